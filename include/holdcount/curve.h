@@ -1,0 +1,89 @@
+/*
+ * curve.h - risk by holding count: exact figures and sampled figures.
+ *
+ * A random equal-weight portfolio of n holdings is a uniform n-subset of the
+ * M securities, drawn without replacement (design.md section 3).  The exact
+ * functions work per period; struct curve holds figures already scaled by
+ * the curve's periods_per_year (variance times P, standard deviation times
+ * sqrt(P)), which is what every writer prints.
+ */
+#ifndef HOLDCOUNT_CURVE_H
+#define HOLDCOUNT_CURVE_H
+
+#include <stddef.h>
+
+#include "holdcount/error.h"
+#include "holdcount/moments.h"
+
+/* E[sigma^2(n)] = vbar/n + (1 - 1/n) cbar, per period; n >= 1 (real n allowed). */
+double curve_expected_variance(const struct moments *mo, double n);
+
+/* Exact standard deviation of the portfolio variance across random n-subsets,
+ * per period (squared units).  Needs mo->has_spread; 1 <= n <= m.
+ * Returns HC_OK or HC_EDOMAIN-like HC_EUSAGE when n is out of range. */
+int curve_variance_sd(const struct moments *mo, size_t n, double *sd,
+		      struct hc_error *err);
+
+/* E[TE^2(n)] = (vbar - cbar)(1/n - 1/M) against the universe equal-weight
+ * portfolio, per period; with an unbounded universe (m = 0) the 1/M term is 0. */
+double curve_expected_te2(const struct moments *mo, double n);
+
+/* (vbar - cbar)/n divided by E[sigma^2(n)]. */
+double curve_diversifiable_share(const struct moments *mo, double n);
+
+/* Equivalent count of a portfolio with per-period variance s2:
+ * (vbar - cbar)/(s2 - cbar).  Returns 0 and sets *n_eq, or -1 when s2 <= cbar
+ * ("below the floor": there is no such count). */
+int curve_equivalent_count(const struct moments *mo, double s2, double *n_eq);
+
+struct curve_point {
+	size_t n;
+	double expected_variance;       /* annualised */
+	double expected_sd;             /* sqrt of expected_variance (not E[sigma]) */
+	double variance_sd;             /* exact sd of the variance; NaN when unknown */
+	double expected_tracking_error; /* sqrt(E[TE^2]) */
+	double diversifiable_share;     /* fraction, 0..1 */
+	int sampled;                    /* the fields below are set */
+	double sampled_mean_variance;
+	double sampled_variance_se;     /* Monte Carlo standard error of that mean */
+	double sampled_mean_sd;         /* mean of sampled sigma */
+	double sd_p05, sd_p50, sd_p95;  /* quantiles of sampled sigma (numpy's linear rule) */
+	double z_score;                 /* (sampled mean - exact)/se */
+};
+
+struct curve {
+	size_t npoints;
+	struct curve_point *points;
+	double periods_per_year;        /* scale applied; 1 = per period as given */
+	size_t m;                       /* securities; 0 = unbounded */
+	double floor_variance;          /* c-bar, annualised */
+	double universe_variance;       /* annualised */
+	size_t paths;                   /* 0 = not sampled */
+	unsigned long long seed;
+};
+
+/* Allocate a curve with the exact columns filled for sizes[0..nsizes-1]
+ * (each 1 <= n <= m, or any n >= 1 when m = 0), scaled by
+ * periods_per_year (> 0; 1 keeps the input's scale). */
+int curve_exact(struct curve **out, const struct moments *mo,
+		const size_t *sizes, size_t nsizes, double periods_per_year,
+		struct hc_error *err);
+
+void curve_free(struct curve *c);
+
+/*
+ * Parse a size list "1,2,5-30,50,100" (ranges inclusive, ascending order
+ * not required; duplicates removed; result sorted) into a new array.
+ * Every size must be 1 <= n <= max (max = 0: no upper bound).
+ * HC_EUSAGE with a message naming the offending item on error.
+ */
+int curve_parse_sizes(const char *text, size_t max, size_t **sizes,
+		      size_t *nsizes, struct hc_error *err);
+
+/* The default grid for a universe of m securities: 1..10, then a roughly
+ * logarithmic sequence (12, 15, 20, 25, 30, 40, 50, ...) up to and
+ * including m.  m = 0 (unbounded) stops at 1000. */
+int curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
+			struct hc_error *err);
+
+#endif

@@ -1,0 +1,51 @@
+/*
+ * error.h - status codes and the caller-owned error record.
+ *
+ * Every fallible library function returns one of the HC_* status codes and
+ * fills a struct hc_error supplied by the caller.  The numeric values double
+ * as the command-line tool's exit statuses (see docs/commands.md, EXIT STATUS).
+ * Library code never prints and never exits: it records and returns.
+ */
+#ifndef HOLDCOUNT_ERROR_H
+#define HOLDCOUNT_ERROR_H
+
+#include <stddef.h>
+
+enum hc_status {
+	HC_OK = 0,        /* success */
+	HC_EPOLICY = 1,   /* computed fine, but a policy check failed (audit) */
+	HC_EUSAGE = 2,    /* bad command line: unknown option, bad value */
+	HC_EDATA = 3,     /* malformed or unusable input data */
+	HC_EIO = 4,       /* a file could not be read, written or renamed */
+	HC_ENOMEM = 5,    /* out of memory, or input larger than the memory budget */
+	HC_EINTERNAL = 6, /* a numerical library failed or an invariant broke */
+	HC_EINTERRUPT = 7 /* stopped by a signal before finishing */
+};
+
+#define HC_ERROR_MESSAGE_MAX 1024
+
+/* The error record: a status code and a formatted message (lower case,
+ * failure first, subject quoted; input errors as "FILE:LINE:COLUMN: ..."). */
+struct hc_error {
+	int code;
+	char message[HC_ERROR_MESSAGE_MAX];
+};
+
+/* Reset to HC_OK with an empty message. err may be NULL. */
+void hc_error_clear(struct hc_error *err);
+
+/*
+ * Record code and a printf-style message in err (which may be NULL) and
+ * return code, so that callers write `return hc_error(err, HC_EDATA, ...)`.
+ * A message already recorded is overwritten.
+ */
+int hc_error(struct hc_error *err, int code, const char *fmt, ...)
+	__attribute__((format(printf, 3, 4)));
+
+/* Prefix the recorded message with "prefix: " (for adding context). */
+void hc_error_prefix(struct hc_error *err, const char *prefix);
+
+/* A short name for a status code ("data error", "usage error", ...). */
+const char *hc_status_name(int code);
+
+#endif

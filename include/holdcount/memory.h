@@ -1,0 +1,34 @@
+/*
+ * memory.h - the project's allocator, with fault injection for tests.
+ *
+ * All library allocations go through these functions (libcsv's and cJSON's
+ * too, through their hooks), so a test can make the k-th allocation fail and
+ * check that every error path cleans up (the idea behind SQLite's fault
+ * simulation).  They behave like malloc/calloc/realloc/free otherwise.
+ */
+#ifndef HOLDCOUNT_MEMORY_H
+#define HOLDCOUNT_MEMORY_H
+
+#include <stddef.h>
+
+void *hc_malloc(size_t size);
+void *hc_calloc(size_t n, size_t size);          /* checks n*size overflow */
+void *hc_realloc(void *p, size_t size);
+void *hc_reallocarray(void *p, size_t n, size_t size); /* checks overflow */
+void hc_free(void *p);                           /* accepts NULL */
+char *hc_strdup(const char *s);
+char *hc_strndup(const char *s, size_t n);
+
+/*
+ * Fault injection: after n more successful allocations, every allocation
+ * fails (returns NULL) until hc_alloc_fail_after(-1) turns it off.
+ * hc_alloc_count() returns how many allocations succeeded since start.
+ * Not thread-safe; for single-threaded tests.
+ */
+void hc_alloc_fail_after(long n);
+unsigned long hc_alloc_count(void);
+
+/* Multiply with overflow check: returns 0 and sets *out, or -1 on overflow. */
+int hc_mul_size(size_t a, size_t b, size_t *out);
+
+#endif

@@ -1,0 +1,60 @@
+/*
+ * moments.h - the sums that the exact curve and its spread need.
+ *
+ * From the M x M sample covariance A (divisor T-1) with v_i = A_ii,
+ * c_ij = A_ij (i != j), r_i = sum_{j != i} c_ij (design.md section 3):
+ *   V = sum v_i,  C = sum r_i,  S = sum v_i^2,  Q = sum_{i != j} c_ij^2,
+ *   W = sum v_i r_i,  Z = sum r_i^2.
+ * All figures are per period (not annualised).
+ */
+#ifndef HOLDCOUNT_MOMENTS_H
+#define HOLDCOUNT_MOMENTS_H
+
+#include <stddef.h>
+
+#include "holdcount/error.h"
+#include "holdcount/universe.h"
+
+enum moments_route {
+	MOMENTS_ROUTE_GRAM = 0,     /* column sums and the T x T Gram matrix (complete data, T < M) */
+	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance through BLAS dsyrk */
+	MOMENTS_ROUTE_PAIRWISE = 2, /* pairwise-complete covariances (data with gaps) */
+	MOMENTS_ROUTE_GIVEN = 3,    /* a covariance matrix was supplied */
+	MOMENTS_ROUTE_SUMMARY = 4   /* only average variance and covariance are known */
+};
+
+struct moments {
+	size_t m;                  /* securities; 0 = unbounded universe (summary only) */
+	size_t t;                  /* periods behind the estimate; 0 when unknown */
+	int route;                 /* enum moments_route */
+	int has_spread;            /* S, Q, W, Z are known */
+	int has_correlation;       /* average_correlation is known */
+	double sum_var;            /* V */
+	double sum_cov;            /* C */
+	double sum_var2;           /* S */
+	double sum_cov2;           /* Q */
+	double sum_var_rowcov;     /* W */
+	double sum_rowcov2;        /* Z */
+	double average_variance;   /* v-bar = V/M */
+	double average_covariance; /* c-bar = C/(M(M-1)) */
+	double average_correlation;/* mean off-diagonal correlation */
+	double universe_variance;  /* equal-weight portfolio of all M: (V+C)/M^2; c-bar when unbounded */
+};
+
+/* From a universe: complete data uses the Gram route when T < M, else the
+ * matrix route; data with gaps uses pairwise-complete covariances. */
+int moments_from_universe(struct moments *mo, const struct universe *u,
+			  struct hc_error *err);
+
+/* From an M x M covariance matrix a (row-major, symmetric; only read).
+ * Average correlation is computed from it too. */
+int moments_from_matrix(struct moments *mo, const double *a, size_t m,
+			struct hc_error *err);
+
+/* From summary statistics: average variance vbar, average covariance cbar,
+ * m securities (0 = unbounded).  No spread; correlation cbar/vbar is used
+ * only as an approximation and flagged has_correlation = 0. */
+int moments_from_summary(struct moments *mo, double vbar, double cbar,
+			 size_t m, struct hc_error *err);
+
+#endif

@@ -1,0 +1,117 @@
+/*
+ * report.h - one result model for every writer.
+ *
+ * Each computation (describe, curve, rules, audit, rolling) turns its result
+ * type into a struct report: a list of labelled scalar fields, zero or more
+ * tables, and notes (the cautions).  The writers below render the same
+ * report as an aligned text table, CSV or JSON, so the three never disagree.
+ *
+ *   text: "title: value" lines for the fields, then each table aligned with
+ *         its column titles, then the notes.  Numbers are formatted for
+ *         reading (percent styles, fixed decimals).
+ *   csv:  the first table only, header row of column keys first, numbers
+ *         with 17 significant digits (round-trip), empty cell for no value;
+ *         with no table, "key,value" rows of the fields.
+ *   json: one object: each field under its key, each table as an array of
+ *         objects under its key, notes as "cautions": [...]; numbers with 17
+ *         significant digits, null for no value.
+ */
+#ifndef HOLDCOUNT_REPORT_H
+#define HOLDCOUNT_REPORT_H
+
+#include <stddef.h>
+#include <stdio.h>
+
+#include "holdcount/error.h"
+
+enum report_kind {
+	REPORT_NONE = 0,    /* no value: empty in CSV, null in JSON, "-" in text */
+	REPORT_REAL = 1,
+	REPORT_INT = 2,
+	REPORT_TEXT = 3,
+	REPORT_BOOL = 4
+};
+
+/* How the text writer shows a value; CSV and JSON always print it raw. */
+enum report_style {
+	REPORT_STYLE_PLAIN = 0,    /* %.6g */
+	REPORT_STYLE_PERCENT = 1,  /* decimal shown as percent, 2 decimals: 0.1234 -> 12.34% */
+	REPORT_STYLE_FIXED2 = 2,   /* 2 decimals */
+	REPORT_STYLE_FIXED4 = 3,   /* 4 decimals */
+	REPORT_STYLE_SCI = 4       /* %.4e */
+};
+
+struct report_value {
+	int kind;
+	int style;
+	double real;
+	long long integer;
+	char *text;                /* owned by the report */
+};
+
+struct report_column {
+	char *key;                 /* CSV header / JSON key */
+	char *title;               /* text header */
+	int style;
+};
+
+struct report_table {
+	char *key;                 /* JSON key */
+	char *title;               /* text heading; may be NULL */
+	size_t ncols, nrows, cap_rows;
+	struct report_column *cols;
+	struct report_value *cells; /* nrows*ncols, row-major */
+};
+
+struct report_field {
+	char *key;
+	char *title;
+	struct report_value value;
+};
+
+struct report {
+	size_t nfields, cap_fields;
+	struct report_field *fields;
+	size_t ntables;
+	struct report_table **tables;
+	size_t nnotes;
+	char **notes;
+};
+
+struct report *report_alloc(void);
+void report_free(struct report *r);
+
+/* Fields (scalar key/value pairs). Strings are copied. */
+int report_add_real(struct report *r, const char *key, const char *title, double x, int style);
+int report_add_int(struct report *r, const char *key, const char *title, long long x);
+int report_add_text(struct report *r, const char *key, const char *title, const char *s);
+int report_add_bool(struct report *r, const char *key, const char *title, int b);
+int report_add_none(struct report *r, const char *key, const char *title);
+int report_add_note(struct report *r, const char *note);
+
+/* Tables: columns are declared first, then rows appended and filled. */
+struct report_table *report_add_table(struct report *r, const char *key, const char *title);
+int report_table_add_column(struct report_table *t, const char *key, const char *title, int style);
+int report_table_add_row(struct report_table *t);   /* new row, all REPORT_NONE; index nrows-1 */
+void report_table_set_real(struct report_table *t, size_t row, size_t col, double x);  /* NaN -> none */
+void report_table_set_int(struct report_table *t, size_t row, size_t col, long long x);
+int report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s);
+void report_table_set_bool(struct report_table *t, size_t row, size_t col, int b);
+
+/* The writers share one interface, as GSL's generator types do. */
+struct report_writer {
+	const char *name;          /* "table", "csv", "json" */
+	int (*write)(FILE *fp, const struct report *r, struct hc_error *err);
+};
+
+extern const struct report_writer *const report_writer_text;
+extern const struct report_writer *const report_writer_csv;
+extern const struct report_writer *const report_writer_json;
+
+/* Look a writer up by name ("table", "csv", "json"); NULL when unknown. */
+const struct report_writer *report_writer_find(const char *name);
+
+/* The cautions every output carries (design.md section 9); adds them as notes. */
+int report_add_cautions(struct report *r);
+
+#endif

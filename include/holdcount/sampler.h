@@ -1,0 +1,79 @@
+/*
+ * sampler.h - random equal-weight portfolios by nested random permutations.
+ *
+ * A path is one random ordering of the universe (partial Fisher-Yates up to
+ * the largest size asked for); its first n members are a uniform random
+ * n-subset, so one path gives one portfolio of every size.  Path k's
+ * generator is seeded from (seed, k) through splitmix64, so results are
+ * byte-identical whatever the thread count (design.md section 4).
+ */
+#ifndef HOLDCOUNT_SAMPLER_H
+#define HOLDCOUNT_SAMPLER_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "holdcount/curve.h"
+#include "holdcount/error.h"
+#include "holdcount/universe.h"
+
+/* Progress callback: done of total paths; return nonzero to stop early
+ * (then sampler_run returns HC_EINTERRUPT). May be NULL. Called from one
+ * thread only. */
+typedef int (*sampler_progress_fn)(void *ctx, size_t done, size_t total);
+
+struct sampler_options {
+	size_t paths;            /* K portfolios per size */
+	uint64_t seed;
+	int threads;             /* 0 = OpenMP default */
+	int want_returns;        /* also record each portfolio's annualised compound return */
+	double periods_per_year; /* for annualising returns */
+	const size_t *strata;    /* NULL, or m stratum indices (0..nstrata-1) for stratified draws */
+	size_t nstrata;
+	int stratify;            /* enum sampler_stratify, with strata */
+	size_t per_stratum_max;  /* cap for SAMPLER_STRATA_CAP */
+	sampler_progress_fn progress;
+	void *progress_ctx;
+};
+
+enum sampler_stratify {
+	SAMPLER_STRATA_NONE = 0,
+	SAMPLER_STRATA_PROPORTIONAL = 1, /* allocation by largest remainder */
+	SAMPLER_STRATA_CAP = 2           /* uniform over subsets with at most k per stratum */
+};
+
+void sampler_options_init(struct sampler_options *opt);
+
+struct sampler_result {
+	size_t paths;
+	size_t nsizes;
+	size_t *sizes;           /* copy of the sizes */
+	double *variance;        /* paths*nsizes, per-period variance, row k = path k */
+	double *annual_return;   /* paths*nsizes or NULL: compound annualised return */
+	unsigned char *feasible; /* nsizes: 0 where a stratified allocation is impossible */
+};
+
+/* Sample from the return series (complete data: u->has_missing == 0).
+ * Every size must be 1..u->m. */
+int sampler_run(struct sampler_result **out, const struct universe *u,
+		const size_t *sizes, size_t nsizes,
+		const struct sampler_options *opt, struct hc_error *err);
+
+/* Sample from a covariance matrix a (m x m row-major): running quadratic
+ * form, O(n_max^2) a path.  No returns. */
+int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
+		       const size_t *sizes, size_t nsizes,
+		       const struct sampler_options *opt, struct hc_error *err);
+
+/* Fill the sampled columns of c (whose points must have the same sizes, in
+ * the same order) from r, scaling by c->periods_per_year.  Deterministic. */
+int sampler_summarise(struct curve *c, const struct sampler_result *r,
+		      struct hc_error *err);
+
+void sampler_result_free(struct sampler_result *r);
+
+/* splitmix64 step (Steele, Lea & Flood, 2014, OOPSLA): advances *state and
+ * returns the next output; used to derive per-path seeds. */
+uint64_t sampler_splitmix64(uint64_t *state);
+
+#endif

@@ -1,0 +1,124 @@
+/*
+ * universe.h - a return history for M securities over T periods.
+ *
+ * Loaded from a wide CSV (date column, then one column per security id) or a
+ * long CSV (date,id,value), of returns or prices; see docs/formats.md.
+ * Storage is security-major: the T returns of security i are contiguous at
+ * x[i*t .. i*t + t-1], in date order, so that summing whole series (the
+ * sampler's and the moments' hot loops) reads memory in order.
+ * Returns are per period, as decimals (0.012 = 1.2%), simple returns unless
+ * the user asked for log returns computed from prices.
+ */
+#ifndef HOLDCOUNT_UNIVERSE_H
+#define HOLDCOUNT_UNIVERSE_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "holdcount/error.h"
+
+enum universe_layout {
+	UNIVERSE_WIDE = 0,  /* date,ID1,ID2,... */
+	UNIVERSE_LONG = 1   /* date,id,value rows (column names by option) */
+};
+
+enum universe_values {
+	UNIVERSE_RETURNS = 0,      /* cells are returns */
+	UNIVERSE_PRICES = 1,       /* cells are prices: simple returns computed */
+	UNIVERSE_PRICES_LOG = 2    /* cells are prices: log returns computed */
+};
+
+enum universe_missing {
+	UNIVERSE_MISSING_COMPLETE = 0, /* keep only securities with no gap */
+	UNIVERSE_MISSING_PAIRWISE = 1, /* keep securities with coverage >= min_coverage; NaN marks gaps */
+	UNIVERSE_MISSING_KEEP = 2      /* keep every security as read (for rolling windows) */
+};
+
+/* Defaults named once. */
+#define UNIVERSE_DEFAULT_MIN_COVERAGE 0.8
+
+struct universe_options {
+	int layout;                 /* enum universe_layout */
+	int values;                 /* enum universe_values */
+	int percent;                /* cells are percents (a trailing '%' also says so per cell) */
+	int missing;                /* enum universe_missing */
+	double min_coverage;        /* fraction of periods a security must have (pairwise/keep) */
+	double periods_per_year;    /* > 0 overrides detection from the dates */
+	char delimiter;             /* ',' or ';'; 0 = detect from the header line */
+	const char *date_column;    /* name of the date column; NULL = first column (wide) or "date" (long) */
+	const char *id_column;      /* long layout: NULL = "id" */
+	const char *value_column;   /* long layout: NULL = "value" */
+	size_t max_bytes;           /* budget for the numbers; 0 = from available memory */
+};
+
+void universe_options_init(struct universe_options *opt);
+
+struct universe_dropped {
+	char *id;
+	char *reason;   /* e.g. "missing 14 of 240 periods" */
+};
+
+struct universe {
+	size_t m;                   /* securities kept */
+	size_t t;                   /* periods (of returns) */
+	char **ids;                 /* m ids, as in the file's header order */
+	double *x;                  /* m*t returns, security-major; NaN = missing */
+	int32_t *dates;             /* t period dates, days since 1970-01-01 */
+	double periods_per_year;    /* detected or given */
+	int periods_detected;       /* 1 when detected from the dates */
+	int has_missing;            /* any NaN left in x */
+	size_t m_read;              /* securities found in the file */
+	size_t ndropped;
+	struct universe_dropped *dropped;
+	char *source;               /* the path it was read from */
+};
+
+/*
+ * Read path into a new universe.  On failure *out is NULL, and err holds
+ * "PATH:LINE:COLUMN: what was found, what was expected" with HC_EDATA, or
+ * HC_EIO (cannot open/read), HC_ENOMEM (allocation or budget), HC_EUSAGE
+ * (contradictory options).  Fewer than two securities or two periods left
+ * after the missing-data policy is HC_EDATA.  A zero-variance security is
+ * HC_EDATA (it has no risk to diversify; name it).
+ */
+int universe_load(struct universe **out, const char *path,
+		  const struct universe_options *opt, struct hc_error *err);
+
+/* The same from a memory buffer; name is used in messages. */
+int universe_load_buffer(struct universe **out, const char *name,
+			 const char *data, size_t len,
+			 const struct universe_options *opt, struct hc_error *err);
+
+/*
+ * A window of periods [first, first+len) of src with the missing policy
+ * applied inside the window (securities complete in the window are kept
+ * under UNIVERSE_MISSING_COMPLETE).  The new universe owns copies.
+ */
+int universe_window(struct universe **out, const struct universe *src,
+		    size_t first, size_t len, int missing, double min_coverage,
+		    struct hc_error *err);
+
+/* A universe from a period-resampled copy: period k of the result is period
+ * idx[k] of src (k < n).  Dates are copied from idx. */
+int universe_resample(struct universe **out, const struct universe *src,
+		      const size_t *idx, size_t n, struct hc_error *err);
+
+void universe_free(struct universe *u);
+
+/* Index of id in u->ids, or -1. */
+long universe_find(const struct universe *u, const char *id);
+
+/* Detect periods per year from the median spacing of sorted dates
+ * (days since 1970-01-01): about 252 (daily), 52, 12, 4, 2 or 1.
+ * Returns 0 when fewer than two dates. */
+double universe_detect_periods(const int32_t *dates, size_t n);
+
+/* Parse an ISO 8601 calendar date YYYY-MM-DD (or YYYY-MM, taken as the
+ * month's last day) into days since 1970-01-01; validates the day of month.
+ * Returns 0 on success, -1 when not a valid date. */
+int universe_parse_date(const char *s, size_t len, int32_t *days);
+
+/* Format days since 1970-01-01 as YYYY-MM-DD into buf (at least 11 bytes). */
+void universe_format_date(int32_t days, char *buf);
+
+#endif
