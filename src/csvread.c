@@ -225,6 +225,8 @@ static int reader_take(struct reader *r, const char *s, size_t len)
 		return r->status;
 	if (r->started)
 		return scan(r, s, len);
+	if (len == 0)
+		return HC_OK;
 	need = r->npending + len;
 	if (need > r->cap_pending) {
 		cap = r->cap_pending ? r->cap_pending : 256;
