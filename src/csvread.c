@@ -530,6 +530,8 @@ int csvread_is_missing(const char *s, size_t len)
 	n = end - i;
 	if (n == 0)
 		return 1;
+	if (n > 4 || (s[i] != 'n' && s[i] != 'N' && s[i] != '.'))
+		return 0;   /* the common case, a number, decided at once */
 	for (k = 0; k < sizeof markers / sizeof markers[0]; k++) {
 		if (strlen(markers[k]) != n)
 			continue;
