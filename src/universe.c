@@ -327,7 +327,7 @@ static int id_ref_cmp(const void *pa, const void *pb)
  * blanks, by sorting on the folded key (O(M log M), not O(M^2)).  Returns
  * 0 when all distinct, 1 with *first < *second set, -1 out of memory.
  */
-static int find_id_clash(char *const *ids, size_t n, size_t *first, size_t *second)
+int universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second)
 {
 	struct id_ref *refs;
 	size_t i;
@@ -354,8 +354,8 @@ static int find_id_clash(char *const *ids, size_t n, size_t *first, size_t *seco
 	return found;
 }
 
-static int check_id_text(const char *name, size_t line, size_t col,
-			 const char *id, size_t len, struct hc_error *err)
+int universe_check_id(const char *name, size_t line, size_t col,
+		      const char *id, size_t len, struct hc_error *err)
 {
 	size_t i;
 
@@ -523,13 +523,13 @@ static int wide_header(struct loader *L, struct hc_error *err)
 	for (i = 0; i < L->ncols; i++) {
 		if (i == L->date_col)
 			continue;
-		rc = check_id_text(L->name, 1, i + 1, L->header[i], strlen(L->header[i]), err);
+		rc = universe_check_id(L->name, 1, i + 1, L->header[i], strlen(L->header[i]), err);
 		if (rc != HC_OK)
 			return rc;
 		L->ids[L->m++] = L->header[i];
 		L->header[i] = NULL;   /* now owned by ids */
 	}
-	rc = find_id_clash(L->ids, L->m, &a, &b);
+	rc = universe_id_clash(L->ids, L->m, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 	if (rc > 0) {
@@ -745,7 +745,7 @@ static int long_id(struct loader *L, const struct csvread_field *f,
 			return HC_OK;
 		}
 	}
-	rc = check_id_text(L->name, f->line, f->column, f->text, f->len, err);
+	rc = universe_check_id(L->name, f->line, f->column, f->text, f->len, err);
 	if (rc != HC_OK)
 		return rc;
 	if (L->m == L->cap_ids) {
@@ -901,7 +901,7 @@ static int long_finish(struct loader *L, struct universe *u, struct hc_error *er
 	char ds[11];
 	int rc;
 
-	rc = find_id_clash(L->ids, L->m, &a, &b);
+	rc = universe_id_clash(L->ids, L->m, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 	if (rc > 0)
