@@ -202,29 +202,52 @@ fail:
 	return NULL;
 }
 
-/* Columns must all be declared before the first row: cells are row-major
- * with a fixed stride. */
+/* A column added after rows exist widens every row with an empty cell, so
+ * that a caller can append its own column (say, the scale) to a table
+ * another module filled.  Cells stay row-major: the rows are re-laid. */
+static int widen_rows(struct report_table *t)
+{
+	struct report_value *nv;
+	size_t cells, row, col;
+
+	if (hc_mul_size(t->cap_rows, t->ncols + 1, &cells))
+		return HC_ENOMEM;
+	nv = hc_calloc(cells, sizeof *nv);
+	if (!nv)
+		return HC_ENOMEM;
+	for (row = 0; row < t->nrows; row++)
+		for (col = 0; col < t->ncols; col++)
+			nv[row * (t->ncols + 1) + col] = t->cells[row * t->ncols + col];
+	hc_free(t->cells);
+	t->cells = nv;
+	return HC_OK;
+}
+
 int report_table_add_column(struct report_table *t, const char *key, const char *title, int style)
 {
 	struct report_column *nc;
 	char *k, *ti;
+	size_t row;
 
-	if (t->nrows > 0)
-		return HC_EINTERNAL;
-	nc = hc_reallocarray(t->cols, t->ncols + 1, sizeof *nc);
-	if (!nc)
-		return HC_ENOMEM;
-	t->cols = nc;
 	k = hc_strdup(key);
 	ti = hc_strdup(title ? title : key);
-	if (!k || !ti) {
+	nc = (k && ti) ? hc_reallocarray(t->cols, t->ncols + 1, sizeof *nc) : NULL;
+	if (!nc || (t->nrows > 0 && widen_rows(t))) {
+		if (nc)
+			t->cols = nc;
 		hc_free(k);
 		hc_free(ti);
 		return HC_ENOMEM;
 	}
+	t->cols = nc;
 	t->cols[t->ncols].key = k;
 	t->cols[t->ncols].title = ti;
 	t->cols[t->ncols].style = style;
+	for (row = 0; row < t->nrows; row++) {
+		struct report_value *v = &t->cells[row * (t->ncols + 1) + t->ncols];
+		memset(v, 0, sizeof *v);
+		v->style = style;
+	}
 	t->ncols++;
 	return HC_OK;
 }

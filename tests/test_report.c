@@ -271,16 +271,33 @@ static void test_report_cautions_cover_each_subject(void **state)
 	report_free(r);
 }
 
-/* Columns after the first row would break the row stride: refused. */
-static void test_report_column_after_row_refused(void **state)
+/* A column added after rows (a caller appending its own column to a table
+ * another module filled): existing cells keep their values, the new cells
+ * are empty, and the CSV shows it (RFC 4180 empty field). */
+static void test_report_column_after_rows_widens(void **state)
 {
 	struct report *r = report_alloc();
 	struct report_table *t = report_add_table(r, "t", NULL);
+	char *s;
+	size_t i;
+	int rc;
 
 	assert_non_null(t);
 	assert_int_equal(report_table_add_column(t, "a", NULL, 0), HC_OK);
+	for (i = 0; i < 20; i++) { /* past the first growth of 16 rows */
+		assert_int_equal(report_table_add_row(t), HC_OK);
+		report_table_set_real(t, i, 0, 2.385 * (double)i);
+	}
+	assert_int_equal(report_table_add_column(t, "b", NULL, 0), HC_OK);
+	report_table_set_int(t, 19, 1, 7);
 	assert_int_equal(report_table_add_row(t), HC_OK);
-	assert_int_equal(report_table_add_column(t, "b", NULL, 0), HC_EINTERNAL);
+	s = render(report_writer_csv, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_non_null(strstr(s, "a,b\n0,\n2.3849999999999998,\n"));
+	/* 19 * 2.385 = 45.315 in decimal; as doubles it prints as below
+	 * (Python 3: '%.17g' % (2.385 * 19)). */
+	assert_non_null(strstr(s, "\n45.314999999999998,7\n,\n"));
+	free(s);
 	report_free(r);
 }
 
@@ -355,7 +372,7 @@ int main(void)
 		cmocka_unit_test(test_report_json_numbers_round_trip),
 		cmocka_unit_test(test_report_writer_find),
 		cmocka_unit_test(test_report_cautions_cover_each_subject),
-		cmocka_unit_test(test_report_column_after_row_refused),
+		cmocka_unit_test(test_report_column_after_rows_widens),
 		cmocka_unit_test(test_report_write_failure_is_eio),
 		cmocka_unit_test(test_report_allocation_failure),
 	};
