@@ -454,23 +454,65 @@ static int column_is_numeric(const struct report_table *t, size_t col)
 	return 1;
 }
 
+/* A column with no value in any row (say, the sampled columns of a curve
+ * that was not sampled) says nothing to a reader: the text view leaves it
+ * out.  CSV and JSON keep every column, since scripts rely on the set. */
+static int column_is_empty(const struct report_table *t, size_t col)
+{
+	size_t row;
+
+	for (row = 0; row < t->nrows; row++)
+		if (t->cells[row * t->ncols + col].kind != REPORT_NONE)
+			return 0;
+	return t->nrows > 0;
+}
+
+static void put_text_row(FILE *fp, const struct report_table *t, const size_t *width, const int *right,
+			 const int *shown, size_t row)
+{
+	char buf[REPORT_NUMBER_MAX];
+	size_t col, last = 0;
+	int first = 1;
+
+	for (col = 0; col < t->ncols; col++)
+		if (shown[col])
+			last = col;
+	for (col = 0; col < t->ncols; col++) {
+		const char *s;
+
+		if (!shown[col])
+			continue;
+		s = row == (size_t)-1 ? t->cols[col].title
+			: format_text(buf, sizeof buf, &t->cells[row * t->ncols + col]);
+		if (!first)
+			fputs("  ", fp);
+		first = 0;
+		/* No trailing blanks: the last column is not padded on the right. */
+		put_padded(fp, s, col < last || right[col] ? width[col] : 0, right[col]);
+	}
+	fputc('\n', fp);
+}
+
 static int write_text_table(FILE *fp, const struct report_table *t)
 {
 	char buf[REPORT_NUMBER_MAX];
-	size_t *width;
-	int *right;
+	size_t *width, n = t->ncols ? t->ncols : 1;
+	int *right, *shown;
 	size_t row, col;
 
-	width = hc_calloc(t->ncols ? t->ncols : 1, sizeof *width);
-	right = hc_calloc(t->ncols ? t->ncols : 1, sizeof *right);
-	if (!width || !right) {
+	width = hc_calloc(n, sizeof *width);
+	right = hc_calloc(n, sizeof *right);
+	shown = hc_calloc(n, sizeof *shown);
+	if (!width || !right || !shown) {
 		hc_free(width);
 		hc_free(right);
+		hc_free(shown);
 		return HC_ENOMEM;
 	}
 	for (col = 0; col < t->ncols; col++) {
 		width[col] = text_width(t->cols[col].title);
 		right[col] = column_is_numeric(t, col);
+		shown[col] = !column_is_empty(t, col);
 		for (row = 0; row < t->nrows; row++) {
 			size_t w = text_width(format_text(buf, sizeof buf, &t->cells[row * t->ncols + col]));
 			if (w > width[col])
@@ -479,23 +521,12 @@ static int write_text_table(FILE *fp, const struct report_table *t)
 	}
 	if (t->title)
 		fprintf(fp, "%s\n", t->title);
-	for (col = 0; col < t->ncols; col++) {
-		if (col)
-			fputs("  ", fp);
-		put_padded(fp, t->cols[col].title, col + 1 < t->ncols || right[col] ? width[col] : 0, right[col]);
-	}
-	fputc('\n', fp);
-	for (row = 0; row < t->nrows; row++) {
-		for (col = 0; col < t->ncols; col++) {
-			const char *s = format_text(buf, sizeof buf, &t->cells[row * t->ncols + col]);
-			if (col)
-				fputs("  ", fp);
-			put_padded(fp, s, col + 1 < t->ncols || right[col] ? width[col] : 0, right[col]);
-		}
-		fputc('\n', fp);
-	}
+	put_text_row(fp, t, width, right, shown, (size_t)-1);
+	for (row = 0; row < t->nrows; row++)
+		put_text_row(fp, t, width, right, shown, row);
 	hc_free(width);
 	hc_free(right);
+	hc_free(shown);
 	return HC_OK;
 }
 

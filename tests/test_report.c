@@ -298,6 +298,16 @@ static void test_report_column_after_rows_widens(void **state)
 	 * (Python 3: '%.17g' % (2.385 * 19)). */
 	assert_non_null(strstr(s, "\n45.314999999999998,7\n,\n"));
 	free(s);
+	/* A column with no value anywhere is left out of the text view only. */
+	assert_int_equal(report_table_add_column(t, "c", "never set", 0), HC_OK);
+	s = render(report_writer_text, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_null(strstr(s, "never set"));
+	assert_int_equal(strncmp(s, "     a  b\n     0  -\n", 20), 0);
+	free(s);
+	s = render(report_writer_csv, r, &rc);
+	assert_non_null(strstr(s, "a,b,c\n0,,\n"));
+	free(s);
 	report_free(r);
 }
 
