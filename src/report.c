@@ -24,6 +24,7 @@
 #include "holdcount/memory.h"
 
 #define REPORT_NUMBER_MAX 64
+#define REPORT_TEXT_WIDTH 79  /* notes wrap to fit an 80-column terminal */
 
 struct report *report_alloc(void)
 {
@@ -530,6 +531,32 @@ static int write_text_table(FILE *fp, const struct report_table *t)
 	return HC_OK;
 }
 
+/* "- note", wrapped at REPORT_TEXT_WIDTH with continuation lines indented
+ * under the text; a word longer than a line is left whole. */
+static void put_wrapped_note(FILE *fp, const char *note)
+{
+	const char *p = note;
+	size_t col = 2;
+
+	fputs("- ", fp);
+	while (*p) {
+		size_t word = strcspn(p, " ");
+		if (col > 2 && col + 1 + word > REPORT_TEXT_WIDTH) {
+			fputs("\n  ", fp);
+			col = 2;
+		} else if (col > 2) {
+			fputc(' ', fp);
+			col++;
+		}
+		fwrite(p, 1, word, fp);
+		col += word;
+		p += word;
+		while (*p == ' ')
+			p++;
+	}
+	fputc('\n', fp);
+}
+
 static int write_text(FILE *fp, const struct report *r, struct hc_error *err)
 {
 	size_t i;
@@ -547,7 +574,7 @@ static int write_text(FILE *fp, const struct report *r, struct hc_error *err)
 	if (r->nnotes) {
 		fputs("\ncautions:\n", fp);
 		for (i = 0; i < r->nnotes; i++)
-			fprintf(fp, "- %s\n", r->notes[i]);
+			put_wrapped_note(fp, r->notes[i]);
 	}
 	return ferror(fp) ? write_failed(err) : HC_OK;
 }

@@ -241,6 +241,26 @@ static void test_report_json_numbers_round_trip(void **state)
 	report_free(r);
 }
 
+/* Long notes wrap at 79 columns with a two-space hanging indent; short
+ * ones stay on one line (the golden test above). */
+static void test_report_text_wraps_notes(void **state)
+{
+	struct report *r = report_alloc();
+	char *s;
+	int rc;
+
+	assert_non_null(r);
+	assert_int_equal(report_add_note(r, "alpha bravo charlie delta echo foxtrot golf hotel india juliett "
+					 "kilo lima mike november oscar papa"), HC_OK);
+	s = render(report_writer_text, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_string_equal(s, "\ncautions:\n"
+			    "- alpha bravo charlie delta echo foxtrot golf hotel india juliett kilo lima\n"
+			    "  mike november oscar papa\n");
+	free(s);
+	report_free(r);
+}
+
 static void test_report_writer_find(void **state)
 {
 	assert_ptr_equal(report_writer_find("table"), report_writer_text);
@@ -380,6 +400,7 @@ int main(void)
 		cmocka_unit_test(test_report_csv_fields_without_table),
 		cmocka_unit_test(test_report_json_golden_and_round_trip),
 		cmocka_unit_test(test_report_json_numbers_round_trip),
+		cmocka_unit_test(test_report_text_wraps_notes),
 		cmocka_unit_test(test_report_writer_find),
 		cmocka_unit_test(test_report_cautions_cover_each_subject),
 		cmocka_unit_test(test_report_column_after_rows_widens),
