@@ -222,7 +222,7 @@ static int row_check(struct reader *rd, size_t nfields, size_t line,
 
 	if (nfields != rd->header_fields)
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found %zu fields, expected %zu as in the header",
-				rd->name, line, nfields < rd->header_fields ? nfields : rd->header_fields + 1,
+				rd->name, line, nfields < rd->header_fields ? nfields + 1 : rd->header_fields + 1,
 				nfields, rd->header_fields);
 	if (!rd->cell[COL_FUND] || !rd->cell[COL_ID] || !w)
 		return hc_error(err, HC_EINTERNAL, "%s:%zu: a cell of the row was not seen", rd->name, line);
@@ -289,12 +289,17 @@ static int on_record(void *ctx, size_t record, size_t nfields, size_t line,
 	return HC_OK;
 }
 
-static const struct row *sort_rows; /* qsort has no context argument in C11 */
+/* A sort key for one row; qsort has no context argument in C11, so the key
+ * carries what the comparison needs. */
+struct row_key {
+	size_t fund;
+	const char *id;
+	size_t line;
+};
 
-static int cmp_row_index(const void *a, const void *b)
+static int cmp_row_key(const void *a, const void *b)
 {
-	const struct row *x = &sort_rows[*(const size_t *)a];
-	const struct row *y = &sort_rows[*(const size_t *)b];
+	const struct row_key *x = a, *y = b;
 	int c;
 
 	if (x->fund != y->fund)
@@ -304,36 +309,35 @@ static int cmp_row_index(const void *a, const void *b)
 	return x->line < y->line ? -1 : (x->line > y->line);
 }
 
-/* Duplicate ids within a fund: sort (fund, id, line) and compare neighbours;
- * of all duplicates the one latest-read-first-reported is the one on the
- * smallest line, which is where a reader of the file would look first. */
+/* Duplicate ids within a fund: sort (fund, id, line) and compare neighbours.
+ * Of all duplicates the one reported is the repeat on the smallest line,
+ * where a reader of the file would look first. */
 static int check_duplicates(struct reader *rd, struct hc_error *err)
 {
-	size_t *idx, k, best = (size_t)-1, first = 0;
+	struct row_key *key;
+	size_t k, best = (size_t)-1;
 
 	if (rd->nrows < 2)
 		return HC_OK;
-	idx = hc_calloc(rd->nrows, sizeof *idx);
-	if (!idx)
+	key = hc_calloc(rd->nrows, sizeof *key);
+	if (!key)
 		return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
-	for (k = 0; k < rd->nrows; k++)
-		idx[k] = k;
-	sort_rows = rd->rows;
-	qsort(idx, rd->nrows, sizeof *idx, cmp_row_index);
-	for (k = 1; k < rd->nrows; k++) {
-		const struct row *a = &rd->rows[idx[k - 1]], *b = &rd->rows[idx[k]];
-		if (a->fund == b->fund && strcmp(a->id, b->id) == 0 &&
-		    (best == (size_t)-1 || b->line < rd->rows[best].line)) {
-			best = idx[k];
-			first = idx[k - 1];
-		}
+	for (k = 0; k < rd->nrows; k++) {
+		key[k].fund = rd->rows[k].fund;
+		key[k].id = rd->rows[k].id;
+		key[k].line = rd->rows[k].line;
 	}
-	hc_free(idx);
-	if (best == (size_t)-1)
-		return HC_OK;
-	return hc_error(err, HC_EDATA, "%s:%zu:%zu: duplicate id '%s' in fund '%s' (also at line %zu), expected each id once per fund",
-			rd->name, rd->rows[best].line, rd->col[COL_ID], rd->rows[best].id,
-			rd->h->funds[rd->rows[best].fund].name, rd->rows[first].line);
+	qsort(key, rd->nrows, sizeof *key, cmp_row_key);
+	for (k = 1; k < rd->nrows; k++)
+		if (key[k - 1].fund == key[k].fund && strcmp(key[k - 1].id, key[k].id) == 0 &&
+		    (best == (size_t)-1 || key[k].line < key[best].line))
+			best = k;
+	if (best != (size_t)-1)
+		hc_error(err, HC_EDATA, "%s:%zu:%zu: duplicate id '%s' in fund '%s' (also at line %zu), expected each id once per fund",
+			 rd->name, key[best].line, rd->col[COL_ID], key[best].id,
+			 rd->h->funds[key[best].fund].name, key[best - 1].line);
+	hc_free(key);
+	return best == (size_t)-1 ? HC_OK : HC_EDATA;
 }
 
 static int add_warning(struct holdings *h, struct hc_error *err, const char *fmt, ...)
@@ -395,7 +399,7 @@ static int build_funds(struct reader *rd, struct hc_error *err)
 	for (f = 0; f < h->nfunds; f++) {
 		struct holdings_fund *fd = &h->funds[f];
 		if (!(fd->raw_sum > 0))
-			return hc_error(err, HC_EDATA, "%s:%zu:%zu: fund '%s' has a net %s of %.17g, expected a positive total",
+			return hc_error(err, HC_EDATA, "%s:%zu:%zu: fund '%s' has a net %s of %.6g, expected a positive total",
 					rd->name, fd->first_line, rd->col[COL_WEIGHT], fd->name,
 					rd->weight_name, fd->raw_sum);
 		for (k = 0; k < fd->n; k++) {
@@ -595,53 +599,44 @@ static int label_record(void *ctx, size_t record, size_t nfields, size_t line,
 	return HC_OK;
 }
 
-static const struct holdings_labels *sort_labels;
+struct label_key {
+	char *id;
+	char *label;
+	size_t line;
+};
 
-static int cmp_label_index(const void *a, const void *b)
+static int cmp_label_key(const void *a, const void *b)
 {
-	size_t i = *(const size_t *)a, j = *(const size_t *)b;
-	int c = strcmp(sort_labels->ids[i], sort_labels->ids[j]);
-	return c ? c : (i < j ? -1 : (i > j));
+	const struct label_key *x = a, *y = b;
+	int c = strcmp(x->id, y->id);
+	return c ? c : (x->line < y->line ? -1 : (x->line > y->line));
 }
 
-/* Sort the entries by id (permuting both arrays) and refuse duplicates. */
+/* Sort the entries by id (both arrays together) and refuse duplicates. */
 static int labels_sort(struct label_reader *lr, struct hc_error *err)
 {
 	struct holdings_labels *l = lr->l;
-	size_t *idx = NULL, k;
-	char **ids = NULL, **labels = NULL;
+	struct label_key *key;
+	size_t k;
 	int rc = HC_OK;
 
-	idx = hc_calloc(l->n ? l->n : 1, sizeof *idx);
-	ids = hc_calloc(l->n ? l->n : 1, sizeof *ids);
-	labels = hc_calloc(l->n ? l->n : 1, sizeof *labels);
-	if (!idx || !ids || !labels) {
-		rc = hc_error(err, HC_ENOMEM, "out of memory reading '%s'", lr->name);
-		goto cleanup;
-	}
-	for (k = 0; k < l->n; k++)
-		idx[k] = k;
-	sort_labels = l;
-	qsort(idx, l->n, sizeof *idx, cmp_label_index);
-	for (k = 1; k < l->n; k++)
-		if (strcmp(l->ids[idx[k - 1]], l->ids[idx[k]]) == 0) {
-			rc = hc_error(err, HC_EDATA, "%s:%zu:1: duplicate id '%s' (also at line %zu), expected each id once",
-				      lr->name, lr->lines[idx[k]], l->ids[idx[k]], lr->lines[idx[k - 1]]);
-			goto cleanup;
-		}
+	key = hc_calloc(l->n, sizeof *key);
+	if (!key)
+		return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", lr->name);
 	for (k = 0; k < l->n; k++) {
-		ids[k] = l->ids[idx[k]];
-		labels[k] = l->labels[idx[k]];
+		key[k].id = l->ids[k];
+		key[k].label = l->labels[k];
+		key[k].line = lr->lines[k];
 	}
-	hc_free(l->ids);
-	hc_free(l->labels);
-	l->ids = ids;
-	l->labels = labels;
-	ids = labels = NULL;
-cleanup:
-	hc_free(idx);
-	hc_free(ids);
-	hc_free(labels);
+	qsort(key, l->n, sizeof *key, cmp_label_key);
+	for (k = 0; k < l->n; k++) {
+		l->ids[k] = key[k].id;
+		l->labels[k] = key[k].label;
+		if (k && rc == HC_OK && strcmp(key[k - 1].id, key[k].id) == 0)
+			rc = hc_error(err, HC_EDATA, "%s:%zu:1: duplicate id '%s' (also at line %zu), expected each id once",
+				      lr->name, key[k].line, key[k].id, key[k - 1].line);
+	}
+	hc_free(key);
 	return rc;
 }
 
