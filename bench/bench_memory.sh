@@ -52,7 +52,7 @@ printf 'describe: peak RSS %s kB (%.1f MB), %s x the numbers (target < 3), wall 
 	"$rss_kb" "$(awk -v r="$rss_kb" 'BEGIN { print r / 1024 }')" "$ratio" "$wall"
 
 # A budget below the numbers' size must be refused cleanly (exit 5).
-budget=$((numbers / 2 / 1048576))M
+budget=$((numbers / 2 / 1048576))   # MiB
 set +e
 /usr/bin/time -v "$HOLDCOUNT" describe --max-memory "$budget" "$FILE" >/dev/null 2>"$TMP/budget.txt"
 rc=$?

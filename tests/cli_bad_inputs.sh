@@ -20,8 +20,8 @@
 #   message    expected start of the message, {} again standing for the
 #              file; "-" checks nothing (successful runs)
 #
-# Rows whose command the binary does not have yet are counted and listed as
-# pending, and the test then ends with status 77, which ctest shows as
+# Rows whose command the binary does not have yet (or has only as a
+# placeholder that says "not built yet") are counted and listed as pending, and the test then ends with status 77, which ctest shows as
 # skipped (never as passed).
 set -uo pipefail
 
@@ -69,8 +69,8 @@ with open(path, "w") as f:
         text = returns(100000, 4).split("\n")
         text[3] = text[3].rsplit(",", 1)[0]          # line 4 loses its last field
         f.write("\n".join(text))
-    elif name == "budget-300x400":
-        f.write(returns(300, 400))                    # 120000 numbers: 960 KB as doubles
+    elif name == "budget-400x500":
+        f.write(returns(400, 500))                    # 200000 numbers: 1.53 MiB as doubles
     else:
         sys.exit("cli_bad_inputs.sh: unknown generator gen:" + name)
 EOF
@@ -108,6 +108,13 @@ run_row() {
 	checked=$((checked + 1))
 	"${WRAPPER[@]}" "$HOLDCOUNT" "${args[@]}" >"$SCRATCH/stdout" 2>"$SCRATCH/stderr" </dev/null
 	rc=$?
+	# The front end's placeholder commands say "not built yet": such a row
+	# waits for its command, like a row whose command does not exist.
+	if grep -q 'not built yet' "$SCRATCH/stderr"; then
+		checked=$((checked - 1)) pending=$((pending + 1))
+		case " $pending_commands " in *" ${words[0]} "*) ;; *) pending_commands+=" ${words[0]}" ;; esac
+		return
+	fi
 	if [ "${HOLDCOUNT_WRAPPER_NAME:-}" = valgrind ] && [ "$rc" = 99 ]; then
 		fail "catalogue line $lineno ($file): valgrind reported errors:"; sed 's/^/    /' "$SCRATCH/stderr" >&2
 		return
