@@ -479,3 +479,46 @@ cleanup:
 	hc_free(eval);
 	return rc;
 }
+
+int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
+			     struct hc_error *err)
+{
+	gsl_eigen_symm_workspace *ws = NULL;
+	double *w = NULL, *eval = NULL;
+	size_t k, n;
+	int rc = HC_OK, st;
+
+	*lambda_min = NAN;
+	if (m == 0)
+		return hc_error(err, HC_EINTERNAL, "no eigenvalues of an empty matrix");
+	if (hc_mul_size(m, m, &n))
+		return hc_error(err, HC_ENOMEM, "out of memory for the eigenvalues");
+	w = hc_reallocarray(NULL, n, sizeof *w);
+	eval = hc_reallocarray(NULL, m, sizeof *eval);
+	ws = gsl_eigen_symm_alloc(m);
+	if (!w || !eval || !ws) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the eigenvalues");
+		goto cleanup;
+	}
+	memcpy(w, a, n * sizeof *w);
+	{
+		gsl_matrix_view A = gsl_matrix_view_array(w, m, m);
+		gsl_vector_view L = gsl_vector_view_array(eval, m);
+
+		st = gsl_eigen_symm(&A.matrix, &L.vector, ws);
+	}
+	if (st != GSL_SUCCESS) {
+		rc = hc_error(err, HC_EINTERNAL, "eigenvalue computation failed: %s", gsl_strerror(st));
+		goto cleanup;
+	}
+	*lambda_min = eval[0];
+	for (k = 1; k < m; k++)
+		if (eval[k] < *lambda_min)
+			*lambda_min = eval[k];
+cleanup:
+	if (ws)
+		gsl_eigen_symm_free(ws);
+	hc_free(w);
+	hc_free(eval);
+	return rc;
+}

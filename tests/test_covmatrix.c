@@ -209,6 +209,24 @@ static void test_covmatrix_repair_psd_leaves_psd_alone(void **state)
 	assert_int_equal(changed, 0);
 }
 
+static void test_covmatrix_min_eigenvalue(void **state)
+{
+	double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 }, lmin;
+	struct hc_error err;
+
+	gsl_set_error_handler_off();
+	/* numpy: np.linalg.eigvalsh(A)[0] = -0.7925555647440522; 1e-14 as for the repair */
+	assert_int_equal(covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_OK);
+	assert_close(lmin, -0.7925555647440522, 1e-14);
+	/* numpy: eigvalsh(NUMPY_PAIRWISE)[0] = -9.722332796231278e-05 */
+	assert_int_equal(covmatrix_min_eigenvalue(NUMPY_PAIRWISE, 4, &lmin, &err), HC_OK);
+	assert_close(lmin, -9.722332796231278e-05, 1e-17);
+	assert_int_equal(covmatrix_min_eigenvalue(a, 0, &lmin, &err), HC_EINTERNAL);
+	hc_alloc_fail_after(1);
+	assert_int_equal(covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+}
+
 static const char MATRIX[] =
 	"\xEF\xBB\xBF" "risk model,A,B,C\r\n"
 	"A,0.0004,0.00012,-0.00003\r\n"
@@ -362,6 +380,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_covmatrix_pairwise_too_few_common),
 		cmocka_unit_test(test_covmatrix_repair_psd_against_numpy),
 		cmocka_unit_test(test_covmatrix_repair_psd_leaves_psd_alone),
+		cmocka_unit_test(test_covmatrix_min_eigenvalue),
 		cmocka_unit_test(test_covmatrix_load),
 		cmocka_unit_test(test_covmatrix_load_errors),
 		cmocka_unit_test(test_covmatrix_load_file),

@@ -71,6 +71,15 @@ int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
  */
 int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err);
 
+/*
+ * The smallest eigenvalue of the symmetric m*m row-major matrix a (a is
+ * not modified), so a caller can refuse or repair a matrix that is not
+ * positive semi-definite (*lambda_min < 0).  HC_ENOMEM, or HC_EINTERNAL
+ * when the eigensolver fails.  O(m^3).
+ */
+int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
+			     struct hc_error *err);
+
 void covmatrix_free(struct covmatrix *c);
 
 /* Index of id in c->ids, or -1. */
