@@ -142,6 +142,8 @@ static int scan(struct reader *r, const char *s, size_t len)
 {
 	size_t start = 0, i;
 
+	if (len == 0)
+		return r->status;   /* s may be NULL (an empty file) */
 	for (i = 0; i < len; i++) {
 		unsigned char c = (unsigned char)s[i];
 

@@ -177,6 +177,8 @@ static void test_csvread_empty_file(void **state)
 	assert_string_equal(err.message, "t.csv: empty file");
 	assert_int_equal(run(&g, "\xEF\xBB\xBF", 3, 0, NULL, &err), HC_EDATA);
 	assert_string_equal(err.message, "t.csv: empty file");
+	assert_int_equal(run(&g, NULL, 0, 0, NULL, &err), HC_EDATA);   /* found by fuzzing: no pointer arithmetic on NULL */
+	assert_string_equal(err.message, "t.csv: empty file");
 	assert_int_equal(run(&g, "\n\r\n  \n", 6, 0, NULL, &err), HC_EDATA);
 	assert_string_equal(err.message, "t.csv: empty file");
 }
