@@ -16,8 +16,6 @@
 #include "holdcount/csvread.h"
 #include "holdcount/memory.h"
 
-/* Longest cell text quoted back in a message. */
-#define COVMATRIX_QUOTE_MAX 40
 
 void covmatrix_free(struct covmatrix *c)
 {
@@ -62,15 +60,6 @@ struct reader {
 	size_t rows;          /* data rows read */
 	size_t *row_line;     /* line of each row */
 };
-
-static const char *quote(const char *s, size_t len, char *buf)
-{
-	size_t n = len < COVMATRIX_QUOTE_MAX ? len : COVMATRIX_QUOTE_MAX;
-
-	memcpy(buf, s, n);
-	strcpy(buf + n, n < len ? "..." : "");
-	return buf;
-}
 
 static int header_field(struct reader *r, const struct csvread_field *f,
 			struct hc_error *err)
@@ -136,7 +125,7 @@ static int data_field(struct reader *r, const struct csvread_field *f,
 {
 	struct covmatrix *c = r->c;
 	size_t i = f->record - 1, j;
-	char q[COVMATRIX_QUOTE_MAX + 4];
+	char q[CSVREAD_QUOTE_BUF];
 	double v;
 
 	if (i >= c->m)
@@ -147,7 +136,7 @@ static int data_field(struct reader *r, const struct csvread_field *f,
 		if (f->len != strlen(c->ids[i]) || memcmp(f->text, c->ids[i], f->len) != 0)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:1: row id '%s' does not match '%s' in column %zu of the header; expected the same ids in the same order",
-				r->name, f->line, quote(f->text, f->len, q), c->ids[i], i + 2);
+				r->name, f->line, csvread_quote(f->text, f->len, q), c->ids[i], i + 2);
 		r->row_line[i] = f->line;
 		return HC_OK;
 	}
@@ -158,11 +147,11 @@ static int data_field(struct reader *r, const struct csvread_field *f,
 			r->name, f->line, f->column, c->m + 1, c->m + 1);
 	if (csvread_parse_number(f->text, f->len, &v, NULL) != 0)
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: expected a number, found '%s'",
-				r->name, f->line, f->column, quote(f->text, f->len, q));
+				r->name, f->line, f->column, csvread_quote(f->text, f->len, q));
 	if (i == j && !(v > 0))
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: variance of '%s' is %s; expected a positive number on the diagonal",
-			r->name, f->line, f->column, c->ids[i], quote(f->text, f->len, q));
+			r->name, f->line, f->column, c->ids[i], csvread_quote(f->text, f->len, q));
 	c->a[i * c->m + j] = v;
 	return HC_OK;
 }

@@ -28,8 +28,6 @@
  * calendar days (365 a year); below it as trading days (252).  A calendar
  * series has 2/7 of its dates on weekends, a trading-day series none. */
 #define UNIVERSE_WEEKEND_SHARE_CALENDAR (1.0 / 7.0)
-/* Longest cell text quoted back in a message. */
-#define UNIVERSE_QUOTE_MAX 40
 /* How many dropped ids a "too few left" message names. */
 #define UNIVERSE_NAME_DROPPED_MAX 5
 
@@ -265,20 +263,6 @@ static int add_dropped(struct universe *u, size_t *cap, const char *id,
 	u->dropped[u->ndropped].reason = rc;
 	u->ndropped++;
 	return 0;
-}
-
-/* A cell quoted back in a message: at most UNIVERSE_QUOTE_MAX bytes. */
-static const char *quote_cell(const char *s, size_t len, char *buf, size_t bufsz)
-{
-	size_t n = len < UNIVERSE_QUOTE_MAX ? len : UNIVERSE_QUOTE_MAX;
-
-	if (n >= bufsz)
-		n = bufsz - 1;
-	memcpy(buf, s, n);
-	buf[n] = '\0';
-	if (n < len && bufsz > n + 3)
-		strcpy(buf + n, "...");
-	return buf;
 }
 
 /* ---- id checks ------------------------------------------------------------ */
@@ -572,7 +556,7 @@ static int long_header(struct loader *L, struct hc_error *err)
 static int parse_cell(const struct loader *L, const struct csvread_field *f,
 		      double *out, struct hc_error *err)
 {
-	char q[UNIVERSE_QUOTE_MAX + 4];
+	char q[CSVREAD_QUOTE_BUF];
 	int pct = 0;
 	double v;
 
@@ -583,16 +567,16 @@ static int parse_cell(const struct loader *L, const struct csvread_field *f,
 	if (csvread_parse_number(f->text, f->len, &v, &pct) != 0)
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: expected a number or a missing marker, found '%s'",
-			L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q));
+			L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
 	if (L->opt->values != UNIVERSE_RETURNS) {
 		if (pct)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a price, found the percent '%s'",
-				L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q));
+				L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
 		if (v <= 0)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a positive price, found '%s'",
-				L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q));
+				L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
 	} else if (L->opt->percent && !pct) {
 		v /= 100.0;
 	}
@@ -603,14 +587,14 @@ static int parse_cell(const struct loader *L, const struct csvread_field *f,
 static int date_cell(const struct loader *L, const struct csvread_field *f,
 		     int32_t *out, struct hc_error *err)
 {
-	char q[UNIVERSE_QUOTE_MAX + 4];
+	char q[CSVREAD_QUOTE_BUF];
 	int rc = parse_date(f->text, f->len, out);
 
 	if (rc == 0)
 		return HC_OK;
 	return hc_error(err, HC_EDATA,
 		"%s:%zu:%zu: expected a date as YYYY-MM-DD or YYYY-MM, found '%s'%s",
-		L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q),
+		L->name, f->line, f->column, csvread_quote(f->text, f->len, q),
 		rc == -2 ? " (no such day)" : "");
 }
 
