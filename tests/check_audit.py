@@ -89,6 +89,7 @@ def reference(held, raw, ids, x):
         "diversification_ratio": (wi @ np.sqrt(np.diag(sub))) / np.sqrt(s2),
         "equivalent_count": (vbar - cbar) / (s2 - cbar) if s2 > cbar else "below the floor",
         "weighted_random_sd": np.sqrt(P * (hhi_in * vbar + (1 - hhi_in) * cbar)),
+        "equal_weight_random_sd": np.sqrt(P * (vbar / len(inside) + (1 - 1 / len(inside)) * cbar)),
         "missing_weight": w.sum() - w[inside].sum(),
     }
 

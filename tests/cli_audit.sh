@@ -53,7 +53,20 @@ esac
 
 # JSON carries the per-screen detail
 "$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/ok.csv" --paths 0 --format json --screens ucits >"$T/out.json" 2>"$T/err"
-grep -q '"screens"' "$T/out.json" || { echo "FAIL: json lacks screens"; fails=$((fails + 1)); }
+[ $? -eq 1 ] || { echo "FAIL: json run: expected status 1 (Lark's 60% breaks UCITS)"; fails=$((fails + 1)); }
+"${PYTHON:-/usr/bin/python3}" - "$T/out.json" <<'EOF' || fails=$((fails + 1))
+import json, sys
+doc = json.load(open(sys.argv[1]))
+funds, screens = doc["funds"], doc["screens"]
+# five parts per fund: two UCITS, one 1940 Act, two s. 851(b)(3)
+assert len(funds) == 2 and len(screens) == 10, (len(funds), len(screens))
+assert [f["fund"] for f in funds] == ["Wren", "Lark"], funds
+lark = [s for s in screens if s["fund"] == "Lark" and s["screen"] == "ucits"]
+assert lark[0]["passed"] is False and abs(lark[0]["figure"] - 0.6) < 1e-15, lark
+assert lark[0]["required"] is True
+assert funds[1]["failed_rules"] == "ucits" and funds[1]["passed"] is False, funds[1]
+assert any("compliance counsel" in c for c in doc["cautions"])
+EOF
 
 # a weight sum off 1 by more than 0.5% is a warning, not an error
 printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.48\n' >"$T/off.csv"

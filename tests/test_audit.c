@@ -233,6 +233,8 @@ static void test_audit_concentration_and_risk_match_definitions(void **state)
 	/* design.md section 3: E[w'Aw] over random placements */
 	averages(fx.u, &vbar, &cbar);
 	assert_rel(af->weighted_random_sd, sqrt(12 * (hhi * vbar + (1 - hhi) * cbar)), 1e-12);
+	/* the same with equal weights over 5 holdings: E[sigma^2(5)] */
+	assert_rel(af->equal_random_sd, sqrt(12 * (vbar / 5 + (1 - 1.0 / 5) * cbar)), 1e-12);
 	/* equivalent count (v-bar - c-bar)/(s2 - c-bar), from the explicit averages */
 	assert_true(s2 > cbar);
 	assert_false(af->below_floor);
@@ -553,7 +555,8 @@ static void test_audit_percentile_ties_at_full_count(void **state)
 static void test_audit_missing_ids_renormalised_or_refused(void **state)
 {
 	static const char *text =
-		"fund,id,weight\nElm,QX04,0.45\nElm,ZZ999,0.1\nElm,QX09,0.45\n";
+		"fund,id,weight\nElm,QX04,0.45\nElm,ZZ999,0.1\nElm,QX09,0.45\n"
+		"Fern,ZZ1,0.6\nFern,ZZ2,0.4\n";
 	static const size_t idx[] = { 3, 8 };
 	static const double w[] = { 0.5, 0.5 };   /* 0.45/0.9 each */
 	struct fixture fx;
@@ -575,6 +578,18 @@ static void test_audit_missing_ids_renormalised_or_refused(void **state)
 	assert_int_equal(a->funds[0].holdings, 3);
 	assert_rel(a->funds[0].variance, 12 * quad_form(fx.u, idx, w, 2), 1e-12);
 	audit_result_free(a);
+	/* Fern holds nothing the universe knows: concentration yes, risk none,
+	 * and no percentile even when sampling */
+	options(&opt, 50);
+	a = run(h, &fx, &opt);
+	assert_false(a->funds[1].risk_known);
+	assert_near(a->funds[1].hhi, 0.52, 1e-15);          /* 0.36 + 0.16 */
+	assert_near(a->funds[1].missing_weight, 1.0, 1e-15);
+	assert_true(isnan(a->funds[1].sd));
+	assert_true(isnan(a->funds[1].sd_percentile));
+	assert_false(isnan(a->funds[0].sd_percentile));
+	audit_result_free(a);
+	options(&opt, 0);
 	opt.strict = 1;
 	assert_int_equal(audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EDATA);
 	assert_null(a);
