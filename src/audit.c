@@ -518,11 +518,11 @@ static int check_options(const struct audit_options *opt, struct hc_error *err)
 	return HC_OK;
 }
 
-static int audit_fund(struct audit_fund *af, const struct holdings_fund *fd,
-		      const struct holdings *h, const struct universe *u,
-		      const struct moments *mo, const struct audit_options *opt,
-		      long *idx, double *dwork, struct issuer_weight *iw,
-		      double *series, struct hc_error *err)
+static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
+		     const struct holdings *h, const struct universe *u,
+		     const struct moments *mo, const struct audit_options *opt,
+		     long *idx, double *dwork, struct issuer_weight *iw,
+		     double *series, struct hc_error *err)
 {
 	int rc;
 
@@ -583,7 +583,7 @@ int audit_run(struct audit_result **out, const struct holdings *h,
 	a->holdings_source = h->source;
 	for (f = 0; f < h->nfunds; f++) {
 		a->nfunds = f + 1;
-		rc = audit_fund(&a->funds[f], &h->funds[f], h, u, mo, opt,
+		rc = audit_one(&a->funds[f], &h->funds[f], h, u, mo, opt,
 				idx, dwork, iw, series, err);
 		if (rc != HC_OK)
 			goto cleanup;
