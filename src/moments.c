@@ -22,6 +22,29 @@
 
 #include "holdcount/memory.h"
 
+/*
+ * OpenBLAS's own thread control (the build links OpenBLAS, design.md).
+ * Its pthread build keeps worker threads spinning with sched_yield for
+ * about 0.1 s after every threaded call, which steals the cores from the
+ * OpenMP sampler that runs next.  One BLAS thread does the Gram or
+ * covariance product fast enough (about 2 GFlop for 5000 x 600, some
+ * 0.05 s), so each product runs single-threaded and the setting is put
+ * back afterwards.
+ */
+void openblas_set_num_threads(int num_threads);
+int openblas_get_num_threads(void);
+
+static void syrk(enum CBLAS_TRANSPOSE trans, size_t n, size_t k, double alpha,
+		 const double *a, size_t lda, double *c, size_t ldc)
+{
+	int saved = openblas_get_num_threads();
+
+	openblas_set_num_threads(1);
+	cblas_dsyrk(CblasRowMajor, CblasUpper, trans, (int)n, (int)k, alpha,
+		    a, (int)lda, 0.0, c, (int)ldc);
+	openblas_set_num_threads(saved);
+}
+
 static const char *security_name(const struct universe *u, size_t i, char *buf, size_t len)
 {
 	if (u->ids && u->ids[i])
@@ -229,8 +252,7 @@ static int route_gram(struct moments *mo, const struct universe *u, const double
 		Z += r * r;
 	}
 	/* G = Xc^T Xc with Xc the M x T row-major centred matrix. */
-	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasTrans, (int)t, (int)m, 1.0,
-		    xc, (int)t, 0.0, g, (int)t);
+	syrk(CblasTrans, t, m, 1.0, xc, t, g, t);
 	for (a = 0; a < t; a++) {
 		F += (long double)g[a * t + a] * g[a * t + a];
 		for (b = a + 1; b < t; b++)
@@ -263,8 +285,7 @@ static int route_matrix(struct moments *mo, const struct universe *u, const doub
 
 	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
-	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t,
-		    1.0 / (double)(t - 1), xc, (int)t, 0.0, a, (int)m);
+	syrk(CblasNoTrans, m, t, 1.0 / (double)(t - 1), xc, t, a, m);
 	for (i = 0; i < m; i++)
 		for (j = 0; j < i; j++)
 			a[i * m + j] = a[j * m + i];
