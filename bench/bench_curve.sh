@@ -35,7 +35,7 @@ if [ -x "$HC" ] && "$HC" curve --help >/dev/null 2>&1; then
 else
   subject="bench_sampler (library alone: the CLI has no curve command yet)"
   gcc -O2 -std=c11 -D_POSIX_C_SOURCE=200809L -fopenmp -Iinclude bench/bench_sampler.c \
-    "$BUILD/libholdcount.a" -lgsl -lopenblas -lm -o "$WORK/bench_sampler"
+    "$BUILD/libholdcount.a" -lgsl -lopenblas -lcsv -lcjson -lm -o "$WORK/bench_sampler"
   curve_cmd() { CMD=("$WORK/bench_sampler" "$1" "$2" 1 0 "$SIZES"); }
 fi
 
