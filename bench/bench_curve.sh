@@ -29,7 +29,7 @@ mkdir -p "$WORK"
 [ -s "$WORK/u5000x600.csv" ] || "$PYTHON" bench/gen_universe.py "$WORK/u5000x600.csv" --securities 5000 --periods 600
 
 HC="$BUILD/holdcount"
-if [ -x "$HC" ] && "$HC" curve --help >/dev/null 2>&1; then
+if [ -x "$HC" ] && "$HC" curve "$WORK/u1000x240.csv" --paths 1 --sizes 1 --format csv --quiet >/dev/null 2>&1; then
   subject="holdcount curve"
   curve_cmd() { CMD=("$HC" curve "$1" --paths "$2" --sizes "$SIZES" --seed 1 --format csv --quiet); }
 else
@@ -39,31 +39,36 @@ else
   curve_cmd() { CMD=("$WORK/bench_sampler" "$1" "$2" 1 0 "$SIZES"); }
 fi
 
-# wall seconds (from the monotonic clock around the process) and peak RSS
-# (KB, from GNU time -v) of a command
+# wall seconds (from the clock around the process), CPU seconds (user +
+# system) and peak RSS (KB), the last two from GNU time -v, of a command
 measure() {
   local out=$1; shift
-  local t0 t1 rss
+  local t0 t1 rss cpu
   t0=$(date +%s.%N)
   if ! /usr/bin/time -v "$@" >"$out" 2>"$out.time"; then
     echo "failed: $*" >&2; cat "$out.time" >&2; exit 1
   fi
   t1=$(date +%s.%N)
   rss=$(awk -F': ' '/Maximum resident set size/ {print $2}' "$out.time")
-  awk -v a="$t0" -v b="$t1" -v r="$rss" 'BEGIN {printf "%.3f %s\n", b - a, r}'
+  cpu=$(awk -F': ' '/User time|System time/ {s += $2} END {print s}' "$out.time")
+  awk -v a="$t0" -v b="$t1" -v r="$rss" -v c="$cpu" 'BEGIN {printf "%.3f %s %.2f\n", b - a, r, c}'
 }
 
 echo "subject: $subject"
-echo "machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg)"
+echo "machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg) (1, 5, 15 min)"
+ratios=()
 for r in $(seq 1 "$REPEATS"); do
   curve_cmd "$WORK/u1000x240.csv" 2000
-  read -r hw hr < <(measure "$WORK/hc.csv" "${CMD[@]}")
-  read -r pw pr < <(measure "$WORK/peer.csv" "$PYTHON" "$PEER" "$WORK/u1000x240.csv" --paths 2000 --seed 1 --sizes "$SIZES")
+  read -r hw hr hc < <(measure "$WORK/hc.csv" "${CMD[@]}")
+  read -r pw pr pc < <(measure "$WORK/peer.csv" "$PYTHON" "$PEER" "$WORK/u1000x240.csv" --paths 2000 --seed 1 --sizes "$SIZES")
   ratio=$(awk -v a="$pw" -v b="$hw" 'BEGIN {printf "%.1f", a / b}')
-  echo "run $r: 1000x240, 2000 paths: holdcount ${hw} s (${hr} KB), numpy ${pw} s (${pr} KB), ratio ${ratio}x"
+  ratios+=("$ratio")
+  echo "run $r: 1000x240, 2000 paths: holdcount ${hw} s wall, ${hc} s cpu, ${hr} KB; numpy ${pw} s wall, ${pc} s cpu, ${pr} KB; wall ratio ${ratio}x"
 done
+median=$(printf '%s\n' "${ratios[@]}" | sort -n | awk '{a[NR] = $1} END {print (NR % 2) ? a[(NR + 1) / 2] : (a[NR / 2] + a[NR / 2 + 1]) / 2}')
+echo "median wall ratio over $REPEATS runs: ${median}x (target: at least 60x)"
 for r in $(seq 1 "$REPEATS"); do
   curve_cmd "$WORK/u5000x600.csv" 0
-  read -r zw zr < <(measure "$WORK/hc0.csv" "${CMD[@]}")
-  echo "run $r: 5000x600, --paths 0: holdcount ${zw} s (${zr} KB)"
+  read -r zw zr zc < <(measure "$WORK/hc0.csv" "${CMD[@]}")
+  echo "run $r: 5000x600, --paths 0: holdcount ${zw} s wall, ${zc} s cpu, ${zr} KB (target: under 1 s)"
 done
