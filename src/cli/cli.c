@@ -121,6 +121,7 @@ void cli_universe_init(struct cli_universe *u)
 	u->missing = CLI_MISSING_COMPLETE;
 	u->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
 	u->layout = CLI_LAYOUT_WIDE;
+	u->periods_per_year = NAN;
 }
 
 void cli_sampling_init(struct cli_sampling *s)
