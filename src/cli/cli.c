@@ -625,6 +625,17 @@ static void on_signal(int sig)
 	_exit(HC_EINTERRUPT);
 }
 
+/* A signal the parent set to be ignored (a shell does so for SIGINT in
+ * background jobs, nohup for SIGHUP) stays ignored: the user asked for it. */
+static void catch_unless_ignored(int sig, const struct sigaction *sa)
+{
+	struct sigaction old;
+
+	if (sigaction(sig, NULL, &old) == 0 && old.sa_handler == SIG_IGN)
+		return;
+	sigaction(sig, sa, NULL);
+}
+
 void cli_install_signal_handlers(void)
 {
 	struct sigaction sa;
@@ -632,6 +643,6 @@ void cli_install_signal_handlers(void)
 	memset(&sa, 0, sizeof sa);
 	sa.sa_handler = on_signal;
 	sigemptyset(&sa.sa_mask);
-	sigaction(SIGINT, &sa, NULL);
-	sigaction(SIGTERM, &sa, NULL);
+	catch_unless_ignored(SIGINT, &sa);
+	catch_unless_ignored(SIGTERM, &sa);
 }
