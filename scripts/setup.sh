@@ -6,7 +6,7 @@ cd "$(dirname "$0")/.."
 
 PACKAGES=(build-essential cmake pkg-config libgsl-dev libopenblas-dev libcsv-dev
           libcjson-dev libcmocka-dev python3 python3-numpy gnuplot-nox clang
-          libclang-rt-14-dev valgrind)
+          libclang-rt-14-dev valgrind strace time)
 
 missing=()
 for p in "${PACKAGES[@]}"; do

@@ -1,7 +1,97 @@
 #!/usr/bin/env bash
-# Set up, build, and run every test: the plain build's suite through ctest.
+# Set up, build, and run every test (the README's test command).
+#
+#   1. the plain build (build/) and its whole ctest suite;
+#   2. a second build with AddressSanitizer and UndefinedBehaviorSanitizer
+#      (build-sanitize/, gcc) and its whole suite, failing on any report;
+#   3. the valgrind memcheck label (build-memcheck/, ctest -L memcheck);
+#   4. a bounded libFuzzer run with clang (build-fuzz/): each seed corpus is
+#      replayed, then each target fuzzes for FUZZ_SECONDS (default 60).
+#
+# Environment: FUZZ_SECONDS (0 replays the corpora only), SKIP_STAGES (a
+# space-separated list of sanitize, memcheck, fuzz to leave out, e.g. while
+# iterating locally; CI leaves it empty).  docs/reliability.md has the
+# long-run fuzz command and the figures.
 set -euo pipefail
 cd "$(dirname "$0")/.."
+ROOT=$PWD
+JOBS=$(nproc)
+FUZZ_SECONDS=${FUZZ_SECONDS:-60}
+SKIP_STAGES=${SKIP_STAGES:-}
+
+stage() { printf '\n== test.sh: %s\n' "$*" >&2; }
+skipped() { case " $SKIP_STAGES " in *" $1 "*) echo "test.sh: stage $1 skipped (SKIP_STAGES)" >&2; return 0;; esac; return 1; }
+
+stage "plain build and test suite"
 bash scripts/setup.sh
-cd build
-ctest --output-on-failure -j "$(nproc)"
+(cd build && ctest --output-on-failure -j "$JOBS")
+
+if ! skipped sanitize; then
+	stage "sanitizer build (ASan + UBSan) and test suite"
+	cmake -S . -B build-sanitize -DCMAKE_BUILD_TYPE=RelWithDebInfo -DHOLDCOUNT_SANITIZE=ON >/dev/null
+	cmake --build build-sanitize -j "$JOBS" >/dev/null
+	# Reports also go to files, so that one swallowed by a test that expects
+	# a non-zero exit status (the bad-input catalogue) still fails the stage.
+	SAN_LOGS=$ROOT/build-sanitize/sanitizer-logs
+	rm -rf "$SAN_LOGS" && mkdir -p "$SAN_LOGS"
+	export ASAN_OPTIONS="detect_leaks=1:abort_on_error=1:log_path=$SAN_LOGS/asan"
+	export UBSAN_OPTIONS="halt_on_error=1:print_stacktrace=1:log_path=$SAN_LOGS/ubsan"
+	(cd build-sanitize && ctest --output-on-failure -j "$JOBS")
+	unset ASAN_OPTIONS UBSAN_OPTIONS
+	if compgen -G "$SAN_LOGS/*" >/dev/null; then
+		echo "test.sh: sanitizer reports found:" >&2
+		for f in "$SAN_LOGS"/*; do echo "--- $f" >&2; head -40 "$f" >&2; done
+		exit 1
+	fi
+	echo "test.sh: sanitizer suite clean" >&2
+fi
+
+if ! skipped memcheck; then
+	stage "valgrind memcheck (ctest -L memcheck)"
+	cmake -S . -B build-memcheck -DCMAKE_BUILD_TYPE=RelWithDebInfo -DHOLDCOUNT_MEMCHECK=ON >/dev/null
+	cmake --build build-memcheck -j "$JOBS" >/dev/null
+	(cd build-memcheck && ctest --output-on-failure -j "$JOBS" -L memcheck)
+fi
+
+if ! skipped fuzz; then
+	stage "libFuzzer: corpus replay, then ${FUZZ_SECONDS}s per target"
+	CC=clang cmake -S . -B build-fuzz -DCMAKE_BUILD_TYPE=RelWithDebInfo \
+		-DHOLDCOUNT_FUZZ=ON -DHOLDCOUNT_TESTS=OFF >/dev/null
+	targets=$(cat build-fuzz/tests/fuzz/targets.txt)
+	if [ -n "$targets" ]; then
+		# shellcheck disable=SC2086 # one word per target
+		cmake --build build-fuzz -j "$JOBS" --target $targets >/dev/null
+		(cd build-fuzz/tests/fuzz && ctest --output-on-failure -L fuzz)
+	else
+		echo "test.sh: no fuzz target has its modules yet (see the configure messages)" >&2
+	fi
+	export ASAN_OPTIONS="detect_leaks=1:abort_on_error=1"
+	export UBSAN_OPTIONS="halt_on_error=1:print_stacktrace=1"
+	SUMMARY=$ROOT/build-fuzz/fuzz-summary.tsv
+	printf 'target\tseconds\texecutions\tcorpus_seed\tcorpus_after\n' >"$SUMMARY"
+	while read -r target; do
+		[ -n "$target" ] || continue
+		[ "$FUZZ_SECONDS" -gt 0 ] || break
+		name=${target#fuzz_}
+		work=$ROOT/build-fuzz/run/$name
+		rm -rf "$work" && mkdir -p "$work/corpus" "$work/artifacts"
+		# Fuzz into a scratch copy: new inputs stay out of the source tree
+		# (merge the useful ones by hand, see docs/reliability.md).
+		cp "$ROOT/tests/fuzz/corpus/$name/"* "$work/corpus/"
+		seeds=$(ls "$work/corpus" | wc -l)
+		if ! build-fuzz/tests/fuzz/"$target" -max_total_time="$FUZZ_SECONDS" -timeout=10 \
+			-print_final_stats=1 -artifact_prefix="$work/artifacts/" \
+			"$work/corpus" >"$work/log" 2>&1; then
+			echo "test.sh: $target found a failure; input saved in $work/artifacts:" >&2
+			tail -60 "$work/log" >&2
+			exit 1
+		fi
+		runs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$work/log" | tail -1)
+		after=$(ls "$work/corpus" | wc -l)
+		printf '%s\t%s\t%s\t%s\t%s\n' "$target" "$FUZZ_SECONDS" "$runs" "$seeds" "$after" >>"$SUMMARY"
+		echo "test.sh: $target: $runs executions in ${FUZZ_SECONDS}s, corpus $seeds -> $after, no failure" >&2
+	done <build-fuzz/tests/fuzz/targets.txt
+	unset ASAN_OPTIONS UBSAN_OPTIONS
+fi
+
+stage "all stages passed"

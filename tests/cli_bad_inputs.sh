@@ -1,0 +1,190 @@
+#!/usr/bin/env bash
+# Run the bad-input catalogue (tests/bad-inputs/catalogue.tsv) through the
+# real binary, and check that input files are only ever read.
+#
+# Each catalogue row gives a file, a command line, the expected exit status
+# (the HC_* codes of include/holdcount/error.h) and the expected start of the
+# message.  A row fails when the status differs, when the first line of
+# stderr (less a leading "holdcount: " or "holdcount CMD: ") does not start
+# with the expected words, when a run under --output {out} fails and leaves
+# the output file or its temporary behind, or when valgrind (the memcheck
+# label sets HOLDCOUNT_WRAPPER) reports an error.
+#
+# Catalogue syntax (tab-separated; '#' starts a comment line):
+#   file       a name in tests/bad-inputs/, or gen:NAME for a file this script
+#              writes at run time (large ones are not committed), or
+#              gen:missing for a path that does not exist
+#   command    holdcount's arguments; {} is the file, {out} an output path in
+#              the scratch directory
+#   status     expected exit status
+#   message    expected start of the message, {} again standing for the
+#              file; "-" checks nothing (successful runs)
+#
+# Rows whose command the binary does not have yet (or has only as a
+# placeholder that says "not built yet") are counted and listed as pending, and the test then ends with status 77, which ctest shows as
+# skipped (never as passed).
+set -uo pipefail
+
+: "${HOLDCOUNT:?set by ctest}" "${HOLDCOUNT_SOURCE_DIR:?set by ctest}" "${HOLDCOUNT_TEST_TMP:?set by ctest}"
+PYTHON=${PYTHON:-/usr/bin/python3}
+read -r -a WRAPPER <<<"${HOLDCOUNT_WRAPPER:-}"
+DIR=$HOLDCOUNT_SOURCE_DIR/tests/bad-inputs
+SCRATCH=$HOLDCOUNT_TEST_TMP/bad-inputs${HOLDCOUNT_WRAPPER_NAME:+-$HOLDCOUNT_WRAPPER_NAME}
+rm -rf "$SCRATCH" && mkdir -p "$SCRATCH/gen" || exit 1
+
+checked=0 failed=0 pending=0
+declare -A have_command=()
+pending_commands=""
+
+fail() { echo "FAIL: $*" >&2; failed=$((failed + 1)); }
+
+# gen:NAME files, written once into $SCRATCH/gen.
+generate() {
+	local name=$1 path=$SCRATCH/gen/$1.csv
+	[ -e "$path" ] && { printf '%s\n' "$path"; return 0; }
+	case $name in
+	missing) printf '%s\n' "$SCRATCH/gen/no-such-file.csv"; return 0 ;;
+	directory) mkdir -p "$SCRATCH/gen/a-directory"; printf '%s\n' "$SCRATCH/gen/a-directory"; return 0 ;;
+	esac
+	"$PYTHON" - "$name" "$path" <<'EOF' || return 1
+import random, sys
+name, path = sys.argv[1], sys.argv[2]
+rnd = random.Random(2385)
+def returns(m, t, ids=None):
+    ids = ids or ["S%05d" % (i + 1) for i in range(m)]
+    out = ["date," + ",".join(ids)]
+    day = 18000  # days since 1970-01-01; one row a week
+    import datetime
+    for k in range(t):
+        d = datetime.date(1970, 1, 1) + datetime.timedelta(days=day + 7 * k)
+        out.append(d.isoformat() + "," + ",".join("%.5f" % rnd.gauss(0.001, 0.02) for _ in ids))
+    return "\n".join(out) + "\n"
+with open(path, "w") as f:
+    if name == "line-10mb":
+        # one 10 MB line: a header whose second field never ends
+        f.write("date," + "Q" * (10 * 1024 * 1024) + "\n2021-01-29,0.01\n")
+    elif name == "columns-100k":
+        f.write(returns(100000, 4))
+    elif name == "columns-100k-ragged":
+        text = returns(100000, 4).split("\n")
+        text[3] = text[3].rsplit(",", 1)[0]          # line 4 loses its last field
+        f.write("\n".join(text))
+    elif name == "budget-400x500":
+        f.write(returns(400, 500))                    # 200000 numbers: 1.53 MiB as doubles
+    else:
+        sys.exit("cli_bad_inputs.sh: unknown generator gen:" + name)
+EOF
+	printf '%s\n' "$path"
+}
+
+command_available() {
+	local cmd=$1
+	if [ -z "${have_command[$cmd]+x}" ]; then
+		if "$HOLDCOUNT" "$cmd" --help >/dev/null 2>&1; then have_command[$cmd]=1; else have_command[$cmd]=0; fi
+	fi
+	[ "${have_command[$cmd]}" = 1 ]
+}
+
+run_row() {
+	local lineno=$1 file=$2 command=$3 status=$4 message=$5
+	local path out="" rc first want args=() word
+
+	case $file in
+	gen:*) path=$(generate "${file#gen:}") || { fail "catalogue line $lineno: cannot generate $file"; return; } ;;
+	*) path=$DIR/$file; [ -e "$path" ] || { fail "catalogue line $lineno: no file $path"; return; } ;;
+	esac
+	read -r -a words <<<"$command"
+	if ! command_available "${words[0]}"; then
+		pending=$((pending + 1))
+		case " $pending_commands " in *" ${words[0]} "*) ;; *) pending_commands+=" ${words[0]}" ;; esac
+		return
+	fi
+	for word in "${words[@]}"; do
+		case $word in
+		*'{out}'*) out=$SCRATCH/out-$lineno.txt; rm -f "$out"; word=${word//'{out}'/$out} ;;
+		esac
+		args+=("${word//'{}'/$path}")
+	done
+	checked=$((checked + 1))
+	"${WRAPPER[@]}" "$HOLDCOUNT" "${args[@]}" >"$SCRATCH/stdout" 2>"$SCRATCH/stderr" </dev/null
+	rc=$?
+	# The front end's placeholder commands say "not built yet": such a row
+	# waits for its command, like a row whose command does not exist.
+	if grep -q 'not built yet' "$SCRATCH/stderr"; then
+		checked=$((checked - 1)) pending=$((pending + 1))
+		case " $pending_commands " in *" ${words[0]} "*) ;; *) pending_commands+=" ${words[0]}" ;; esac
+		return
+	fi
+	if [ "${HOLDCOUNT_WRAPPER_NAME:-}" = valgrind ] && [ "$rc" = 99 ]; then
+		fail "catalogue line $lineno ($file): valgrind reported errors:"; sed 's/^/    /' "$SCRATCH/stderr" >&2
+		return
+	fi
+	first=$(grep -v '^==[0-9]*==' "$SCRATCH/stderr" | head -n 1 | sed -E 's/^holdcount( [a-z-]+)?: //')
+	want=${message//'{}'/$path}
+	if [ "$rc" != "$status" ]; then
+		fail "catalogue line $lineno ($file): holdcount ${args[*]}: exit status $rc, expected $status; stderr: $first"
+	elif [ "$message" != "-" ] && [ "${first:0:${#want}}" != "$want" ]; then
+		fail "catalogue line $lineno ($file): message '$first', expected it to start with '$want'"
+	fi
+	if [ -n "$out" ]; then
+		if [ "$rc" != 0 ] && [ -e "$out" ]; then
+			fail "catalogue line $lineno ($file): failed run left $out behind"
+		fi
+		if [ "$rc" = 0 ] && [ ! -s "$out" ]; then
+			fail "catalogue line $lineno ($file): successful run wrote no $out"
+		fi
+		if compgen -G "$SCRATCH/.out-$lineno.txt*" >/dev/null || compgen -G "$SCRATCH/*.tmp-*" >/dev/null; then
+			fail "catalogue line $lineno ($file): temporary output file left in $SCRATCH"
+		fi
+	fi
+}
+
+lineno=0
+while IFS=$'\t' read -r file command status message || [ -n "$file" ]; do
+	lineno=$((lineno + 1))
+	case $file in ''|'#'*) continue ;; esac
+	if [ -z "$command" ] || [ -z "$status" ] || [ -z "$message" ]; then
+		fail "catalogue line $lineno: needs four tab-separated columns"; continue
+	fi
+	run_row "$lineno" "$file" "$command" "$status" "$message"
+done <"$DIR/catalogue.tsv"
+
+# Inputs are opened read-only and never changed: a read-only copy of a valid
+# file is described (to stdout and through --output); every open of it that
+# strace sees must be O_RDONLY, and its bytes and mtime must not change.
+# (The tests may run as root, who can write a 0444 file, hence strace.)
+if command_available describe; then
+	ro=$SCRATCH/read-only.csv
+	cp "$DIR/valid-small.csv" "$ro" && chmod 0444 "$ro" && touch -d '2021-06-30 12:00:00' "$ro"
+	before=$(stat -c '%Y %s' "$ro")$(sha256sum <"$ro")
+	for args in "describe $ro" "describe --output $SCRATCH/ro-out.txt $ro"; do
+		checked=$((checked + 1))
+		read -r -a words <<<"$args"
+		if command -v strace >/dev/null; then
+			strace -f -qq -o "$SCRATCH/strace" -e trace=open,openat,openat2,creat,truncate \
+				"${WRAPPER[@]}" "$HOLDCOUNT" "${words[@]}" >/dev/null 2>"$SCRATCH/stderr"
+			rc=$?
+			if grep -F "\"$ro\"" "$SCRATCH/strace" | grep -Eq 'O_WRONLY|O_RDWR|O_TRUNC|O_CREAT|creat\(|truncate\('; then
+				fail "read-only input: holdcount $args opened it for writing:"; grep -F "$ro" "$SCRATCH/strace" >&2
+			fi
+			grep -Fq "\"$ro\"" "$SCRATCH/strace" || fail "read-only input: strace saw no open of $ro"
+		else
+			fail "read-only input: strace is not installed (scripts/setup.sh installs it)"
+			"${WRAPPER[@]}" "$HOLDCOUNT" "${words[@]}" >/dev/null 2>"$SCRATCH/stderr"
+			rc=$?
+		fi
+		[ "$rc" = 0 ] || fail "read-only input: holdcount $args: exit status $rc: $(head -n 1 "$SCRATCH/stderr")"
+	done
+	after=$(stat -c '%Y %s' "$ro")$(sha256sum <"$ro")
+	[ "$before" = "$after" ] || fail "read-only input: $ro changed ($before -> $after)"
+else
+	pending=$((pending + 2))
+fi
+
+echo "cli_bad_inputs: $checked runs checked, $failed failed, $pending pending" >&2
+if [ "$failed" -gt 0 ]; then exit 1; fi
+if [ "$pending" -gt 0 ]; then
+	echo "cli_bad_inputs: $pending catalogue rows wait for commands not in the binary yet:$pending_commands" >&2
+	exit 77
+fi
+exit 0
