@@ -112,7 +112,7 @@ static int build(struct report *r, const struct universe *u, const struct moment
 	    report_add_text(r, "first_date", "first date", first) ||
 	    report_add_text(r, "last_date", "last date", last) ||
 	    cli_add_scale(r, p, 1) ||
-	    report_add_bool(r, "periods_per_year_detected", "periods per year detected from the dates",
+	    report_add_bool(r, "periods_per_year_detected", "detected from the dates",
 			    u->periods_detected) ||
 	    report_add_text(r, "covariances", "covariances",
 			    mo->route == MOMENTS_ROUTE_PAIRWISE ? "pairwise-complete (data with gaps)"
