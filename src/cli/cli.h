@@ -215,6 +215,12 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd);
 /* The top-level help: usage, commands with summaries, global options. */
 void cli_print_main_help(FILE *fp);
 
+/* A manual page in roff: holdcount-COMMAND(1), or holdcount(1) when cmd
+ * is NULL.  Generated from the same tables as --help. */
+void cli_print_man(FILE *fp, const struct cli_command *cmd, const char *version);
+/* A bash completion script for every command and option. */
+void cli_print_bash_completion(FILE *fp);
+
 /* Every command, in the order `holdcount --help` lists them; NULL-terminated.
  * Defined in commands.c. */
 extern const struct cli_command *const cli_commands[];
