@@ -98,7 +98,8 @@ static int build(struct report *r, const struct moments *mo, const struct curve 
 	    report_add_real(r, "average_correlation", "average correlation (implied)",
 			    mo->average_covariance / mo->average_variance, REPORT_STYLE_FIXED4) ||
 	    (mo->m ? report_add_int(r, "securities", "securities", (long long)mo->m)
-		   : report_add_text(r, "securities", "securities", "unbounded")) ||
+		   : report_add_none(r, "securities", "securities")) ||
+	    report_add_text(r, "universe", "universe", mo->m ? "finite" : "unbounded") ||
 	    cli_add_scale(r, p, annualised) ||
 	    report_add_real(r, "floor_variance", "floor variance", c->floor_variance, REPORT_STYLE_PLAIN) ||
 	    report_add_real(r, "floor_sd", "floor sd", c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, sd_style) ||
