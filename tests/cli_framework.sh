@@ -60,7 +60,7 @@ expect 2 "holdcount: unknown option '--bogus'" -- --bogus
 expect 2 "usage: holdcount COMMAND" --
 HOLDCOUNT_THREADS=abc expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number from 1, found 'abc'" -- curve u.csv
 HOLDCOUNT_THREADS=0 expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number" -- curve u.csv
-expect 2 "holdcount synth: not built yet" -- synth
+expect 2 "holdcount synth: unknown option '--bogus' (see 'holdcount synth --help')" -- synth --bogus
 
 # --version names holdcount, GSL and the BLAS (issue 8).
 "$HC" --version >"$T/v" || fail "--version exit $?"
