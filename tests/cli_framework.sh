@@ -62,7 +62,7 @@ expect 2 "holdcount: unknown option '--bogus'" -- --bogus
 expect 2 "usage: holdcount COMMAND" --
 HOLDCOUNT_THREADS=abc expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number from 1, found 'abc'" -- curve u.csv
 HOLDCOUNT_THREADS=0 expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number" -- curve u.csv
-expect 2 "holdcount synth: not built yet" -- synth
+expect 2 "holdcount synth: unknown option '--bogus' (see 'holdcount synth --help')" -- synth --bogus
 
 # Manual pages (roff) from the same tables: groff -ww finds nothing to warn
 # about, and each page lists exactly the options --help lists.
