@@ -18,6 +18,7 @@
 
 #include <stddef.h>
 
+#include "holdcount/bootstrap.h"
 #include "holdcount/error.h"
 #include "holdcount/report.h"
 #include "holdcount/sampler.h"
@@ -180,6 +181,22 @@ int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
  */
 void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
+
+/*
+ * Bootstrap interval of the sampled rules (band, shortfall) among
+ * res[0..nres-1]: per replicate the periods are resampled as in bootstrap.h
+ * (same kind, block length and seed as bopt), the resampled universe is
+ * sampled afresh at every size 1..M with sopt (its seed derived from
+ * (bopt->seed, replicate), so results do not depend on threads), and the
+ * replicate's own c-bar and universe return set the thresholds.  Costs
+ * B x paths x M x T: use fewer paths than the main run.  b must come from u.
+ * Progress (bopt->progress) after each replicate.
+ */
+int rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+			    const struct bootstrap_base *b,
+			    const struct bootstrap_options *bopt,
+			    const struct sampler_options *sopt,
+			    struct rule_result *res, size_t nres, struct hc_error *err);
 
 /*
  * Append the table "rules" to rep with the columns
