@@ -780,9 +780,9 @@ int rules_report(struct report *rep, const struct rule_result *res,
 
 /* ---- bootstrap of the sampled rules ------------------------------------ */
 
-/* The sampler seed of replicate rep: distinct from the bootstrap's own
- * period streams, which use (seed, rep) directly. */
-static uint64_t sampled_seed(uint64_t seed, size_t rep)
+/* Distinct from the bootstrap's own period streams, which use (seed, rep)
+ * directly. */
+uint64_t rules_replicate_seed(uint64_t seed, size_t rep)
 {
 	uint64_t s = seed ^ 0x5DEECE66DULL, r = (uint64_t)rep;
 
@@ -813,7 +813,7 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 	bootstrap_moments(b, w, &vbar, &cbar);
 	if ((status = universe_resample(&ru, u, idx, u->t, err)) != HC_OK)
 		return status;
-	so.seed = sampled_seed(bopt->seed, rep);
+	so.seed = rules_replicate_seed(bopt->seed, rep);
 	so.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
 	so.progress = NULL;
 	if (so.want_returns &&

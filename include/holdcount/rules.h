@@ -17,6 +17,7 @@
 #define HOLDCOUNT_RULES_H
 
 #include <stddef.h>
+#include <stdint.h>
 
 #include "holdcount/bootstrap.h"
 #include "holdcount/error.h"
@@ -192,6 +193,7 @@ void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
  * B x paths x M x T: use fewer paths than the main run.  b must come from u.
  * Progress (bopt->progress) after each replicate.
  */
+uint64_t rules_replicate_seed(uint64_t seed, size_t rep);  /* the sampler seed of replicate rep */
 int rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
 			    const struct bootstrap_base *b,
 			    const struct bootstrap_options *bopt,
