@@ -778,6 +778,69 @@ int rules_report(struct report *rep, const struct rule_result *res,
 	return HC_OK;
 }
 
+
+/* ---- sampling for the sampled rules ------------------------------------ */
+
+int rules_sampled(const struct rules_config *cfg, const struct universe *u,
+		  const struct sampler_options *so, double cbar,
+		  struct rule_result *res, size_t *nres, size_t *largest,
+		  struct hc_error *err)
+{
+	struct sampler_options o = *so;
+	struct sampler_result *sr = NULL;
+	size_t *sizes = NULL, k, n = 0, j;
+	int want_band = (cfg->selected & RULES_FLAG(RULES_BAND)) != 0;
+	int status = HC_OK;
+	double uret = 0;
+
+	*nres = 0;
+	o.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
+	if (!want_band && !o.want_returns)
+		return HC_OK;
+	if (o.want_returns && (status = rules_universe_return(u, o.periods_per_year, &uret, err)) != HC_OK)
+		return status;
+	sizes = hc_malloc(u->m * sizeof *sizes);
+	if (!sizes)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu sizes", u->m);
+	for (j = 0; j < u->m; j++)
+		sizes[j] = j + 1;
+	for (k = RULES_SAMPLED_FIRST_K;; k *= RULES_SAMPLED_GROWTH) {
+		int done = 1;
+
+		if (k > u->m)
+			k = u->m;
+		n = 0;
+		if ((status = sampler_run(&sr, u, sizes, k, &o, err)) != HC_OK)
+			break;
+		if (want_band) {
+			if ((status = rules_band(cfg, sr, cbar, o.periods_per_year, &res[n], err)) != HC_OK)
+				break;
+			done &= res[n].met || !res[n].defined;
+			n++;
+		}
+		if (o.want_returns) {
+			if ((status = rules_shortfall(cfg, sr, uret, &res[n], err)) != HC_OK)
+				break;
+			done &= res[n].met;
+			n++;
+		}
+		sampler_result_free(sr);
+		sr = NULL;
+		/* the caller's progress bar follows the first stage only */
+		o.progress = NULL;
+		if (done || k == u->m)
+			break;
+	}
+	sampler_result_free(sr);
+	hc_free(sizes);
+	if (status != HC_OK)
+		return status;
+	if (largest)
+		*largest = k;
+	*nres = n;
+	return HC_OK;
+}
+
 /* ---- bootstrap of the sampled rules ------------------------------------ */
 
 /* Distinct from the bootstrap's own period streams, which use (seed, rep)
@@ -794,15 +857,14 @@ uint64_t rules_replicate_seed(uint64_t seed, size_t rep)
 static int sampled_replicate(const struct rules_config *cfg, const struct universe *u,
 			     const struct bootstrap_base *b, const struct bootstrap_options *bopt,
 			     const struct sampler_options *sopt, size_t l, size_t rep,
-			     const size_t *sizes, size_t *idx, double *w,
-			     size_t *band, size_t *shortfall, struct hc_error *err)
+			     size_t *idx, double *w, size_t *band, size_t *shortfall,
+			     struct hc_error *err)
 {
 	struct universe *ru = NULL;
-	struct sampler_result *sr = NULL;
 	struct sampler_options so = *sopt;
-	struct rule_result rr;
-	double vbar, cbar, uret = 0;
-	size_t k;
+	struct rule_result rr[2];
+	double vbar, cbar;
+	size_t k, n;
 	int status;
 
 	if ((status = bootstrap_indices(bopt->kind, u->t, l, bopt->seed, rep, idx, err)) != HC_OK)
@@ -814,27 +876,20 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 	if ((status = universe_resample(&ru, u, idx, u->t, err)) != HC_OK)
 		return status;
 	so.seed = rules_replicate_seed(bopt->seed, rep);
-	so.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
 	so.progress = NULL;
-	if (so.want_returns &&
-	    (status = rules_universe_return(ru, so.periods_per_year, &uret, err)) != HC_OK)
-		goto cleanup;
-	if ((status = sampler_run(&sr, ru, sizes, u->m, &so, err)) != HC_OK)
-		goto cleanup;
-	if (cfg->selected & RULES_FLAG(RULES_BAND)) {
-		if ((status = rules_band(cfg, sr, cbar, so.periods_per_year, &rr, err)) != HC_OK)
-			goto cleanup;
-		*band = rr.met ? rr.count : 0;
-	}
-	if (so.want_returns) {
-		if ((status = rules_shortfall(cfg, sr, uret, &rr, err)) != HC_OK)
-			goto cleanup;
-		*shortfall = rr.met ? rr.count : 0;
-	}
-cleanup:
-	sampler_result_free(sr);
+	status = rules_sampled(cfg, ru, &so, cbar, rr, &n, NULL, err);
 	universe_free(ru);
-	return status;
+	if (status != HC_OK)
+		return status;
+	for (k = 0; k < n; k++) {
+		size_t c = rr[k].met ? rr[k].count : 0;
+
+		if (rr[k].rule == RULES_BAND)
+			*band = c;
+		else
+			*shortfall = c;
+	}
+	return HC_OK;
 }
 
 int rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
@@ -843,7 +898,7 @@ int rules_bootstrap_sampled(const struct rules_config *cfg, const struct univers
 			    const struct sampler_options *sopt,
 			    struct rule_result *res, size_t nres, struct hc_error *err)
 {
-	size_t nrep = bopt->replicates, l, rep, j, *sizes = NULL, *idx = NULL;
+	size_t nrep = bopt->replicates, l, rep, j, *idx = NULL;
 	size_t *band = NULL, *shortfall = NULL;
 	double *w = NULL;
 	int status = HC_OK;
@@ -851,19 +906,16 @@ int rules_bootstrap_sampled(const struct rules_config *cfg, const struct univers
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
 	l = bopt->block_length ? bopt->block_length : bootstrap_default_block_length(u->t);
-	sizes = hc_malloc(u->m * sizeof *sizes);
 	idx = hc_malloc(u->t * sizeof *idx);
 	w = hc_malloc(u->t * sizeof *w);
 	band = hc_calloc(nrep, sizeof *band);
 	shortfall = hc_calloc(nrep, sizeof *shortfall);
-	if (!sizes || !idx || !w || !band || !shortfall) {
+	if (!idx || !w || !band || !shortfall) {
 		status = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
 		goto cleanup;
 	}
-	for (j = 0; j < u->m; j++)
-		sizes[j] = j + 1;
 	for (rep = 0; rep < nrep; rep++) {
-		status = sampled_replicate(cfg, u, b, bopt, sopt, l, rep, sizes, idx, w,
+		status = sampled_replicate(cfg, u, b, bopt, sopt, l, rep, idx, w,
 					   &band[rep], &shortfall[rep], err);
 		if (status != HC_OK)
 			goto cleanup;
@@ -879,7 +931,6 @@ int rules_bootstrap_sampled(const struct rules_config *cfg, const struct univers
 			rules_set_interval(&res[j], shortfall, nrep);
 	}
 cleanup:
-	hc_free(sizes);
 	hc_free(idx);
 	hc_free(w);
 	hc_free(band);

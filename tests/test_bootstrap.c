@@ -536,6 +536,33 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 	fixture_free(u);
 }
 
+/* The universe return of the shortfall rule is the sampler's portfolio
+ * return at N = M (every path then holds the whole universe): two
+ * implementations of prod(1 + R_t)^(P/T) - 1 that must agree. */
+static void test_bootstrap_universe_return_matches_sampler(void **state)
+{
+	enum { M = 9, T = 37 };
+	struct universe *u = fixture_random_universe(M, T, 5150);
+	struct sampler_options so;
+	struct sampler_result *sr = NULL;
+	struct hc_error err;
+	size_t size = M, k;
+	double uret;
+
+	assert_non_null(u);
+	sampler_options_init(&so);
+	so.paths = 3;
+	so.want_returns = 1;
+	so.periods_per_year = 12;
+	so.threads = 1;
+	assert_int_equal(sampler_run(&sr, u, &size, 1, &so, &err), HC_OK);
+	assert_int_equal(rules_universe_return(u, 12, &uret, &err), HC_OK);
+	for (k = 0; k < 3; k++)
+		assert_close(sr->annual_return[k], uret, 1e-12);
+	sampler_result_free(sr);
+	fixture_free(u);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -551,6 +578,7 @@ int main(void)
 		cmocka_unit_test(test_bootstrap_interval_covers_true_count),
 		cmocka_unit_test(test_bootstrap_agrees_with_moments_module),
 		cmocka_unit_test(test_bootstrap_sampled_rules_interval),
+		cmocka_unit_test(test_bootstrap_universe_return_matches_sampler),
 	};
 
 	gsl_set_error_handler_off();

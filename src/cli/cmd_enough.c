@@ -299,6 +299,7 @@ struct enough_run {
 	int kind;
 	uint64_t seed;
 	size_t paths;
+	size_t sampled_sizes;        /* sampled sizes 1..this */
 	int sampled_bootstrapped;
 	size_t bootstrap_paths;
 	const char *no_interval;     /* why there is no interval, or NULL */
@@ -325,8 +326,10 @@ static int add_fields(struct report *r, const struct enough_run *e)
 	bad |= report_add_real(r, "average_covariance", "average covariance", e->cbar * p, REPORT_STYLE_SCI);
 	bad |= report_add_real(r, "floor_sd", "floor sd", floor_var > 0 ? sqrt(floor_var) : NAN, sd_style);
 	bad |= report_add_real(r, "universe_sd", "equal-weight universe sd", uvar > 0 ? sqrt(uvar) : NAN, sd_style);
-	if (e->paths)
+	if (e->paths) {
 		bad |= report_add_int(r, "paths", "sampled portfolios a size", (long long)e->paths);
+		bad |= report_add_int(r, "sampled_sizes", "sampled sizes 1 to", (long long)e->sampled_sizes);
+	}
 	if (e->bootstrapped) {
 		bad |= report_add_text(r, "bootstrap", "bootstrap", bootstrap_kind_name(e->kind));
 		bad |= report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
@@ -394,40 +397,39 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
-/* Sample every size 1..M once for the band and shortfall rules. */
-static int sample_all_sizes(const struct enough_opts *o, const struct universe *u,
-			    const struct rules_config *cfg, struct sampler_result **sr,
-			    double *uret)
+/* The band and shortfall rules by sampling (rules_sampled stops at the
+ * smallest stage of sizes that settles them); their results replace the
+ * "needs sampled portfolios" placeholders that rules_evaluate left. */
+static int run_sampled(const struct enough_opts *o, const struct universe *u,
+		       const struct rules_config *cfg, double cbar, struct enough_run *e,
+		       struct rule_result *res, size_t nres)
 {
 	struct sampler_options so;
 	struct cli_progress prog;
+	struct rule_result sr[2];
 	struct hc_error err;
-	size_t *sizes, k;
+	size_t n = 0, k, j;
 	int rc;
 
-	sizes = hc_malloc(u->m * sizeof *sizes);
-	if (!sizes) {
-		hc_error(&err, HC_ENOMEM, "out of memory for the size grid");
-		return cli_fail("enough", &err);
-	}
-	for (k = 0; k < u->m; k++)
-		sizes[k] = k + 1;
 	hc_error_clear(&err);
 	sampler_options_init(&so);
 	so.paths = o->smp.paths;
 	so.seed = o->smp.seed;
 	so.threads = (int)o->smp.threads;
 	so.periods_per_year = u->periods_per_year;
-	so.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
 	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
-	rc = sampler_run(sr, u, sizes, u->m, &so, &err);
+	rc = rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
 	cli_progress_finish(&prog);
-	hc_free(sizes);
-	if (rc == HC_OK && so.want_returns)
-		rc = rules_universe_return(u, u->periods_per_year, uret, &err);
-	return rc ? cli_fail("enough", &err) : HC_OK;
+	if (rc)
+		return cli_fail("enough", &err);
+	for (k = 0; k < n; k++)
+		for (j = 0; j < nres; j++)
+			if (res[j].rule == sr[k].rule)
+				res[j] = sr[k];
+	e->paths = o->smp.paths;
+	return HC_OK;
 }
 
 static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
@@ -490,7 +492,6 @@ static int run_data(const struct enough_opts *o, const struct cli_args *a,
 		    struct rule_result *res, size_t *nres)
 {
 	struct universe *u;
-	struct sampler_result *sr = NULL;
 	struct rules_input in;
 	struct moments mo;
 	struct hc_error err;
@@ -522,17 +523,19 @@ static int run_data(const struct enough_opts *o, const struct cli_args *a,
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
-	if ((cfg->selected & RULES_SAMPLED_MASK) && !u->has_missing) {
-		rc = sample_all_sizes(o, u, cfg, &sr, &in.universe_return);
-		if (rc)
-			return rc;
-		in.sampled = sr;
-		e->paths = o->smp.paths;
-	}
 	rc = rules_evaluate(cfg, &in, res, nres, &err);
-	sampler_result_free(sr);
 	if (rc)
 		return cli_fail("enough", &err);
+	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
+		for (size_t j = 0; j < *nres; j++)
+			if (RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK)
+				snprintf(res[j].note, sizeof res[j].note,
+					 "needs complete data: the sampler draws whole return series");
+	} else if (cfg->selected & RULES_SAMPLED_MASK) {
+		rc = run_sampled(o, u, cfg, e->cbar, e, res, *nres);
+		if (rc)
+			return rc;
+	}
 	if (o->bootstrap == 0)
 		e->no_interval = "no interval: --bootstrap 0";
 	else if (u->has_missing)
