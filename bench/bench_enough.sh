@@ -53,3 +53,4 @@ timeit() {
 echo "holdcount: $("$bin" --version | head -1); threads: ${HOLDCOUNT_THREADS:-all} of $(nproc) cores"
 timeit "exact rules, --bootstrap 1000" "$bin" enough "$data" --rules exact --bootstrap 1000 --seed 1 --format csv --quiet
 timeit "all rules, --paths 1000, --bootstrap 1000" "$bin" enough "$data" --paths 1000 --bootstrap 1000 --seed 1 --format csv --quiet
+timeit "all rules, default --paths 10000, --bootstrap 1000" "$bin" enough "$data" --bootstrap 1000 --seed 1 --format csv --quiet
