@@ -14,6 +14,7 @@
 
 #include "holdcount/error.h"
 #include "holdcount/moments.h"
+#include "holdcount/report.h"
 
 /* E[sigma^2(n)] = vbar/n + (1 - 1/n) cbar, per period; n >= 1 (real n allowed). */
 double curve_expected_variance(const struct moments *mo, double n);
@@ -85,5 +86,18 @@ int curve_parse_sizes(const char *text, size_t max, size_t **sizes,
  * including m.  m = 0 (unbounded) stops at 1000. */
 int curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
 			struct hc_error *err);
+
+/*
+ * Declare the curve's columns on t, in the contract order
+ *   n,expected_variance,expected_sd,variance_sd,expected_tracking_error,
+ *   diversifiable_share,sampled_mean_variance,sampled_variance_se,
+ *   sampled_mean_sd,sd_p05,sd_p50,sd_p95,z_score
+ * and append one row per point (annualised as c is; sampled cells and
+ * unknown values left empty).  t must have no columns yet.  Defined in
+ * src/curve_report.c so that programs without a report need no writer.
+ * Returns HC_OK, HC_ENOMEM when the table cannot grow, or HC_EUSAGE when
+ * t already has columns (no error record: the caller words the message).
+ */
+int curve_report(const struct curve *c, struct report_table *t);
 
 #endif

@@ -42,9 +42,18 @@ struct moments {
 };
 
 /* From a universe: complete data uses the Gram route when T < M, else the
- * matrix route; data with gaps uses pairwise-complete covariances. */
+ * matrix route; data with gaps uses pairwise-complete covariances.
+ * HC_EDATA when fewer than 2 securities or periods, when a security has
+ * zero variance, or (pairwise) when two securities share fewer than two
+ * periods; HC_ENOMEM.  On error *mo is zeroed. */
 int moments_from_universe(struct moments *mo, const struct universe *u,
 			  struct hc_error *err);
+
+/* The same by a chosen route (MOMENTS_ROUTE_GRAM, _MATRIX or _PAIRWISE),
+ * for tests and benchmarks: every route is exact for complete data, only
+ * the cost differs.  GRAM and MATRIX need complete data (HC_EUSAGE). */
+int moments_from_universe_route(struct moments *mo, const struct universe *u,
+				int route, struct hc_error *err);
 
 /* From an M x M covariance matrix a (row-major, symmetric; only read).
  * Average correlation is computed from it too. */

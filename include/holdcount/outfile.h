@@ -27,4 +27,9 @@ void outfile_abort(struct outfile *of);
  * unlink it: async-signal-safe to read). */
 const char *outfile_pending(void);
 
+/* Unlink every temporary still open (several outfiles may be open at once,
+ * e.g. a report folder).  Async-signal-safe: for a SIGINT/SIGTERM handler.
+ * The FILE streams are left alone; the process is expected to exit. */
+void outfile_unlink_pending(void);
+
 #endif

@@ -89,7 +89,8 @@ int report_add_bool(struct report *r, const char *key, const char *title, int b)
 int report_add_none(struct report *r, const char *key, const char *title);
 int report_add_note(struct report *r, const char *note);
 
-/* Tables: columns are declared first, then rows appended and filled. */
+/* Tables: columns are declared, then rows appended and filled.  A column
+ * added after rows exist gives every existing row an empty cell. */
 struct report_table *report_add_table(struct report *r, const char *key, const char *title);
 int report_table_add_column(struct report_table *t, const char *key, const char *title, int style);
 int report_table_add_row(struct report_table *t);   /* new row, all REPORT_NONE; index nrows-1 */

@@ -51,22 +51,38 @@ struct sampler_result {
 	double *variance;        /* paths*nsizes, per-period variance, row k = path k */
 	double *annual_return;   /* paths*nsizes or NULL: compound annualised return */
 	unsigned char *feasible; /* nsizes: 0 where a stratified allocation is impossible */
+	uint64_t seed;           /* the seed the paths were drawn from (copied to the curve) */
 };
 
 /* Sample from the return series (complete data: u->has_missing == 0).
- * Every size must be 1..u->m. */
+ * Every size must be 1..u->m, in any order (duplicates allowed).
+ * variance[k*nsizes + j] is path k's portfolio of sizes[j] members, per
+ * period (divisor T-1).  annual_return, when opt->want_returns, is that
+ * portfolio's compound annualised return, rebalanced to equal weights each
+ * period: prod(1 + r_t)^(P/T) - 1 with P = opt->periods_per_year.
+ * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, stratified draws
+ * asked for: "stratified sampling is not available yet"), HC_EDATA (fewer
+ * than 2 securities or periods), HC_ENOMEM, HC_EINTERRUPT (progress
+ * callback asked to stop).  *out is NULL on error. */
 int sampler_run(struct sampler_result **out, const struct universe *u,
 		const size_t *sizes, size_t nsizes,
 		const struct sampler_options *opt, struct hc_error *err);
 
 /* Sample from a covariance matrix a (m x m row-major): running quadratic
- * form, O(n_max^2) a path.  No returns. */
+ * form, O(n_max^2) a path.  No returns (want_returns is HC_EUSAGE).
+ * Same seed, same portfolios as sampler_run for the same m and sizes. */
 int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
 		       const size_t *sizes, size_t nsizes,
 		       const struct sampler_options *opt, struct hc_error *err);
 
 /* Fill the sampled columns of c (whose points must have the same sizes, in
- * the same order) from r, scaling by c->periods_per_year.  Deterministic. */
+ * the same order) from r, scaling by c->periods_per_year: the mean variance,
+ * its Monte Carlo standard error sd/sqrt(K) (sd with divisor K-1; NaN for
+ * K = 1), the mean of sigma, sigma's 5/50/95% quantiles (linear
+ * interpolation between order statistics, numpy's default), and the z-score
+ * of the mean against the exact expected variance (NaN when the standard
+ * error is 0, as at n = M).  Sets c->paths and c->seed.  Deterministic.
+ * HC_EUSAGE when the sizes differ, HC_ENOMEM. */
 int sampler_summarise(struct curve *c, const struct sampler_result *r,
 		      struct hc_error *err);
 

@@ -1,0 +1,217 @@
+/*
+ * audit.h - concentration audit of actual funds against a universe and a policy.
+ *
+ * For each fund of a struct holdings (design.md section 6): how many
+ * positions, how concentrated (largest weight, top-10 share, HHI, effective
+ * number of holdings), how risky given the universe's return history
+ * (sigma, diversification ratio, equivalent count, percentile among random
+ * equal-weight portfolios of the same count, expected sigma of a random
+ * portfolio laid out with the fund's own weights), sector weights when a
+ * label map is given, three regulatory weight screens, and a policy verdict.
+ *
+ * Units: weights are fractions of the fund (0.052 = 5.2%); every sigma and
+ * variance in struct audit_fund is annualised by the universe's periods per
+ * year (variance times P, sigma times sqrt(P): common practice under serially
+ * independent returns).
+ *
+ * The screens are written from memory of the published texts; every output
+ * must say so, and that the current text and compliance counsel decide:
+ *   UCITS Directive 2009/65/EC Art. 52: no issuer above 10%; the issuers
+ *     above 5% together at most 40%.
+ *   US Investment Company Act of 1940, s. 5(b)(1), weight part: at least 75%
+ *     of assets in issuers of at most 5% each (equivalently: issuers above 5%
+ *     together at most 25%).  The 10%-of-voting-securities part needs shares
+ *     outstanding and is not tested.
+ *   US Internal Revenue Code s. 851(b)(3): at least 50% of assets in issuers
+ *     of at most 5% each, and no issuer above 25%.
+ * Issuer weights are the fund's weights summed over ids sharing an issuer.
+ * Cash and government securities, which the texts let count towards the 75%
+ * and 50% whatever their size, are not recognised: each row is an issuer.
+ * With short positions an issuer's share is |net weight| / sum of |net weight|.
+ */
+#ifndef HOLDCOUNT_AUDIT_H
+#define HOLDCOUNT_AUDIT_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "holdcount/error.h"
+#include "holdcount/holdings.h"
+#include "holdcount/moments.h"
+#include "holdcount/report.h"
+#include "holdcount/sampler.h"
+#include "holdcount/universe.h"
+
+/* Defaults, named once. */
+#define AUDIT_DEFAULT_PATHS 10000
+/* Weight limits are met within this (fractions): far below the 0.01%
+ * granularity of a stated limit, far above rounding in a normalised sum. */
+#define AUDIT_DEFAULT_LIMIT_TOLERANCE 1e-9
+/* Two portfolio variances are tied (mid-rank) when they agree to this
+ * relative difference: the same portfolio summed in another order differs by
+ * a few units in the last place. */
+#define AUDIT_DEFAULT_TIE_RTOL 1e-12
+
+enum audit_screen {
+	AUDIT_SCREEN_UCITS = 1 << 0,
+	AUDIT_SCREEN_1940ACT = 1 << 1,
+	AUDIT_SCREEN_RIC = 1 << 2
+};
+#define AUDIT_NSCREENS 3
+
+/* Policy rules; a fund's failed rules are a mask of these. */
+enum audit_rule {
+	AUDIT_RULE_MIN_HOLDINGS = 1 << 0,
+	AUDIT_RULE_MIN_EFFECTIVE = 1 << 1,
+	AUDIT_RULE_MAX_WEIGHT = 1 << 2,
+	AUDIT_RULE_MAX_SECTOR_WEIGHT = 1 << 3,
+	AUDIT_RULE_UCITS = 1 << 4,
+	AUDIT_RULE_1940ACT = 1 << 5,
+	AUDIT_RULE_RIC = 1 << 6
+};
+#define AUDIT_NRULES 7
+
+/* The parts of the screens, each deciding on one figure against one limit. */
+enum audit_part {
+	AUDIT_PART_UCITS_ISSUER = 0,     /* largest issuer <= 10% */
+	AUDIT_PART_UCITS_AGGREGATE = 1,  /* issuers above 5% together <= 40% */
+	AUDIT_PART_1940ACT_SMALL = 2,    /* issuers of at most 5% together >= 75% */
+	AUDIT_PART_RIC_SMALL = 3,        /* issuers of at most 5% together >= 50% */
+	AUDIT_PART_RIC_ISSUER = 4,       /* largest issuer <= 25% */
+	AUDIT_NPARTS = 5
+};
+
+struct audit_policy {
+	size_t min_holdings;        /* 0 = no rule */
+	double min_effective;       /* 0 = no rule */
+	double max_weight;          /* 0 = no rule; largest position, fraction */
+	double max_sector_weight;   /* 0 = no rule; needs a sector map */
+	unsigned screens;           /* AUDIT_SCREEN_* the policy requires */
+};
+
+struct audit_options {
+	struct audit_policy policy;
+	int strict;                 /* an id missing from the universe is an error */
+	size_t paths;               /* random portfolios for the percentile; 0 = none */
+	uint64_t seed;
+	int threads;                /* for the sampler; 0 = OpenMP default */
+	double limit_tolerance;     /* AUDIT_DEFAULT_LIMIT_TOLERANCE */
+	double tie_rtol;            /* AUDIT_DEFAULT_TIE_RTOL */
+	const struct holdings_labels *sectors;  /* id -> sector, or NULL */
+	sampler_progress_fn progress;
+	void *progress_ctx;
+};
+
+void audit_options_init(struct audit_options *opt);
+
+struct audit_check {
+	int passed;
+	double figure;              /* the figure that decided */
+	double limit;
+	const char *issuer;         /* the largest issuer, for the issuer parts; else NULL */
+};
+
+struct audit_missing {
+	const char *id;             /* points into the holdings */
+	double weight;              /* normalised fund weight it carries */
+	size_t line;
+};
+
+struct audit_sector {
+	const char *label;          /* points into the sector map; NULL = not in the map */
+	double weight;
+	size_t count;
+};
+
+struct audit_fund {
+	const char *name;           /* points into the holdings */
+	size_t holdings;            /* positions with non-zero weight */
+	double weight_sum;          /* raw sum before normalisation (market value total for values) */
+	double max_weight;
+	const char *max_id;
+	double top10_share;
+	double hhi;                 /* sum of squared weights */
+	double effective_holdings;  /* 1/hhi */
+	size_t nmissing;            /* ids not in the universe */
+	struct audit_missing *missing;
+	double missing_weight;
+	int risk_known;             /* some weight is in the universe: figures below set */
+	int risk_subset;            /* figures use the in-universe weights renormalised */
+	size_t risk_holdings;       /* positions in the universe */
+	double variance;            /* annualised, sample variance (T-1) of the portfolio series */
+	double sd;
+	double diversification_ratio;  /* sum w_i sigma_i / sigma_p */
+	int below_floor;            /* variance <= the universe floor: no equivalent count */
+	double equivalent_count;    /* NaN when below_floor */
+	double sd_percentile;       /* mid-rank, 0..1; NaN when not sampled */
+	double weighted_random_sd;  /* sqrt(P (hhi' vbar + (1 - hhi') cbar)) */
+	size_t nsectors;
+	struct audit_sector *sectors;   /* by descending weight; unmapped last */
+	double sector_hhi;          /* over sectors, the unmapped bucket counted as one */
+	const char *max_sector;
+	double max_sector_weight;   /* largest mapped sector; NaN without a map */
+	double issuer_max;          /* largest issuer share */
+	const char *issuer_max_id;
+	struct audit_check checks[AUDIT_NPARTS];
+	int screen_passed[AUDIT_NSCREENS];
+	unsigned failed;            /* AUDIT_RULE_* bits */
+	int passed;
+};
+
+struct audit_result {
+	size_t nfunds;
+	struct audit_fund *funds;
+	size_t failed_funds;
+	struct audit_policy policy;
+	int has_sectors;
+	size_t paths;
+	uint64_t seed;
+	double tie_rtol;
+	double periods_per_year;
+	size_t m, t;
+	const char *universe_source;
+	const char *holdings_source;
+};
+
+/*
+ * Audit every fund of h against u (complete return series) and mo (its
+ * moments, from moments_from_universe).  *out points into h, u and the
+ * sector map, which must outlive it.
+ * Errors: HC_EDATA for an id missing from the universe under strict
+ * ("HOLDINGS:LINE:COLUMN: ...") or a held security with gaps in u;
+ * HC_EUSAGE for a sector rule without a map or a bad option;
+ * HC_ENOMEM; HC_EINTERRUPT from the progress callback; sampler errors.
+ * A failed policy is not an error: see result->failed_funds.
+ */
+int audit_run(struct audit_result **out, const struct holdings *h,
+	      const struct universe *u, const struct moments *mo,
+	      const struct audit_options *opt, struct hc_error *err);
+
+void audit_result_free(struct audit_result *a);
+
+/*
+ * Build the report: fields describing the run, table "funds" (first: the
+ * CSV columns fund,holdings,weight_sum,max_weight,top10_share,hhi,
+ * effective_holdings,sd,diversification_ratio,equivalent_count,
+ * sd_percentile,weighted_random_sd,passed,failed_rules, then more), table
+ * "screens" (fund,screen,part,passed,figure,test,limit,issuer), "missing"
+ * (fund,id,weight,line) and "sectors" (fund,sector,weight,holdings) when
+ * there are any, the holdings' warnings and the cautions as notes.
+ * equivalent_count is the text "below the floor" when there is no count;
+ * failed_rules is a ';'-separated list of rule names (audit_rule_name).
+ */
+int audit_report(struct report **out, const struct audit_result *a,
+		 const struct holdings *h, struct hc_error *err);
+
+/* Parse "ucits,1940act,ric" (any order, case-insensitive; "all" and "none"
+ * too) into AUDIT_SCREEN_* bits.  HC_EUSAGE naming an unknown item. */
+int audit_parse_screens(const char *text, unsigned *screens, struct hc_error *err);
+
+/* "min-holdings", "min-effective", "max-weight", "max-sector-weight",
+ * "ucits", "1940act", "ric" for one AUDIT_RULE_* bit; NULL otherwise. */
+const char *audit_rule_name(unsigned rule);
+
+/* "ucits", "1940act", "ric" for AUDIT_SCREEN_* index 0..2. */
+const char *audit_screen_name(int index);
+
+#endif

@@ -1,0 +1,110 @@
+/*
+ * bootstrap.h - resampling periods to measure the estimation error of the
+ * average variance and average covariance.
+ *
+ * Whole periods are resampled, so cross-sectional dependence is kept; blocks
+ * of consecutive periods keep short-range serial dependence:
+ *   - moving-block bootstrap (Kuensch, 1989, Annals of Statistics 17(3)):
+ *     ceil(T/L) blocks of L consecutive periods with uniform starts in
+ *     0..T-L, joined and cut to T periods;
+ *   - stationary bootstrap (Politis & Romano, 1994, JASA 89(428)): blocks of
+ *     geometric length with mean L, wrapping round the end of the sample.
+ * Default L = round(T^(1/3)) for both (common practice for the order of the
+ * block length; no single source).
+ *
+ * Replicate k's generator is splitmix64 (Steele, Lea & Flood, 2014) seeded
+ * from (seed, k), and each replicate's result is stored in its own slot, so
+ * results are identical for any thread count.
+ */
+#ifndef HOLDCOUNT_BOOTSTRAP_H
+#define HOLDCOUNT_BOOTSTRAP_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "holdcount/error.h"
+#include "holdcount/universe.h"
+
+enum bootstrap_kind {
+	BOOTSTRAP_BLOCK = 0,       /* moving-block (Kuensch, 1989) */
+	BOOTSTRAP_STATIONARY = 1   /* stationary (Politis & Romano, 1994) */
+};
+
+#define BOOTSTRAP_DEFAULT_REPLICATES 1000
+
+/* Progress callback, as the sampler's: done of total; nonzero stops
+ * (HC_EINTERRUPT).  Called from one thread only.  May be NULL. */
+typedef int (*bootstrap_progress_fn)(void *ctx, size_t done, size_t total);
+
+struct bootstrap_options {
+	size_t replicates;         /* B >= 1 */
+	int kind;                  /* enum bootstrap_kind */
+	size_t block_length;       /* L; 0 = bootstrap_default_block_length(T) */
+	uint64_t seed;
+	int threads;               /* 0 = OpenMP default */
+	bootstrap_progress_fn progress;
+	void *progress_ctx;
+};
+
+void bootstrap_options_init(struct bootstrap_options *opt);
+
+/* round(T^(1/3)), at least 1. */
+size_t bootstrap_default_block_length(size_t t);
+
+/* Name of a kind ("block", "stationary"), or NULL. */
+const char *bootstrap_kind_name(int kind);
+
+/*
+ * The precomputed sums a replicate needs, from data centred by the
+ * sample's own means (covariances are unchanged by a shift, and centring
+ * keeps the replicate's raw sums from cancelling):
+ *   s_t = sum_i x_ti          the row-sum series          (T)
+ *   G   = X X^T over securities, the T x T Gram matrix    (when T <= M)
+ * A replicate with period counts w (w_t = times period t was drawn) has
+ *   sum_ij A_ij   = sample variance of the resampled row sums,
+ *   sum_i A_ii    = (sum_t w_t G_tt - w^T G w / T) / (T - 1),
+ * so it costs O(T^2) with G (O(T^2 M) once, by BLAS dsyrk), or O(MT) from
+ * the centred data when T > M (then G is not formed).
+ */
+struct bootstrap_base {
+	size_t m, t;
+	double *rowsum;            /* t */
+	double *gram;              /* t*t row-major, full symmetric; NULL when the direct route is used */
+	double *xc;                /* m*t centred data, security-major; NULL when gram is used */
+};
+
+/* From complete data (u->has_missing == 0, m >= 2, t >= 2; else HC_EDATA). */
+int bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *u,
+			 struct hc_error *err);
+void bootstrap_base_free(struct bootstrap_base *b);
+
+/*
+ * Period indices of replicate rep into idx[0..t-1] (values 0..t-1).
+ * Deterministic in (kind, t, block_length, seed, rep).  block_length must be
+ * 1..t (HC_EUSAGE otherwise).
+ */
+int bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
+		      size_t rep, size_t *idx, struct hc_error *err);
+
+/*
+ * Average variance and covariance (per period, divisor T-1) of the
+ * resampled universe whose period t appears w[t] times (sum w = T).
+ * No allocation; safe to call from several threads at once.
+ */
+void bootstrap_moments(const struct bootstrap_base *b, const double *w,
+		       double *vbar, double *cbar);
+
+struct bootstrap_result {
+	size_t replicates;
+	size_t block_length;       /* L used */
+	int kind;
+	double *vbar;              /* replicates, per period */
+	double *cbar;              /* replicates, per period */
+};
+
+/* Run B replicates (OpenMP over replicates). */
+int bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
+		  const struct bootstrap_options *opt, struct hc_error *err);
+void bootstrap_result_free(struct bootstrap_result *r);
+
+#endif

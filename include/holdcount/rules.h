@@ -1,0 +1,192 @@
+/*
+ * rules.h - the holding count past which extra holdings add little.
+ *
+ * Each rule turns the risk-versus-count curve into one count: the smallest
+ * N that meets it (design.md section 5).  Exact rules depend only on the
+ * per-period average variance v-bar, average covariance c-bar, the number of
+ * securities M (0 = unbounded) and the periods per year P, so a bootstrap
+ * replicate can evaluate them in O(log M) or O(M) without allocating.
+ * Sampled rules read a sampler_result over consecutive sizes.
+ *
+ * Units: v-bar and c-bar are per period; every threshold in struct
+ * rules_config and every value in struct rule_result is annualised (variance
+ * times P, standard deviation times sqrt(P): common practice under serially
+ * independent returns), as decimals (0.02 = 2% a year).
+ */
+#ifndef HOLDCOUNT_RULES_H
+#define HOLDCOUNT_RULES_H
+
+#include <stddef.h>
+
+#include "holdcount/error.h"
+#include "holdcount/report.h"
+#include "holdcount/sampler.h"
+#include "holdcount/universe.h"
+
+enum rules_id {
+	RULES_NEAR_FLOOR = 0,     /* sqrt(E[s2(N)]) <= (1+x) sqrt(floor) */
+	RULES_MARGINAL = 1,       /* sqrt(E[s2(N)]) - sqrt(E[s2(N+1)]) < eps */
+	RULES_BAND = 2,           /* q-quantile of sampled sigma(N) <= (1+x) sqrt(floor) */
+	RULES_COST_BENEFIT = 3,   /* premium (s(N) - s(N+1)) / s_universe < holding cost */
+	RULES_TRACKING_ERROR = 4, /* sqrt(E[TE2(N)]) <= budget */
+	RULES_SHORTFALL = 5,      /* share trailing the universe by more than d < p */
+	RULES_COUNT = 6
+};
+
+#define RULES_FLAG(id) (1u << (id))
+#define RULES_EXACT_MASK (RULES_FLAG(RULES_NEAR_FLOOR) | RULES_FLAG(RULES_MARGINAL) | \
+			  RULES_FLAG(RULES_COST_BENEFIT) | RULES_FLAG(RULES_TRACKING_ERROR))
+#define RULES_SAMPLED_MASK (RULES_FLAG(RULES_BAND) | RULES_FLAG(RULES_SHORTFALL))
+#define RULES_ALL_MASK (RULES_EXACT_MASK | RULES_SAMPLED_MASK)
+
+/* Defaults, named once (design.md section 5; common practice, no single
+ * source, except where a paper is named in docs/enough.md). */
+#define RULES_DEFAULT_NEAR_FLOOR_X 0.10     /* within 10% of the floor sigma */
+#define RULES_DEFAULT_MARGINAL_EPS 0.001    /* 0.10 percentage points of sigma a year */
+#define RULES_DEFAULT_BAND_Q 0.95
+#define RULES_DEFAULT_BAND_X 0.10
+#define RULES_DEFAULT_PREMIUM 0.05          /* universe portfolio's premium a year */
+#define RULES_DEFAULT_HOLDING_COST 0.0005   /* yearly cost of one more holding */
+#define RULES_DEFAULT_TE_BUDGET 0.02        /* 2% a year */
+#define RULES_DEFAULT_SHORTFALL_D 0.01      /* trails by more than 1% a year */
+#define RULES_DEFAULT_SHORTFALL_P 0.10      /* in fewer than 10% of portfolios */
+
+/* Unbounded universes (m = 0) search counts up to this; beyond it a rule is
+ * reported as not met. */
+#define RULES_UNBOUNDED_MAX ((size_t)1 << 40)
+
+#define RULES_TEXT_MAX 160
+
+struct rules_config {
+	unsigned selected;        /* RULES_FLAG(...) mask */
+	double near_floor_x;
+	double marginal_eps;      /* annualised sigma, decimal */
+	double band_q, band_x;
+	double premium;           /* a year, decimal */
+	double holding_cost;      /* a year, decimal */
+	int cost_defaults;        /* 1 when premium and cost are the defaults (said in the output) */
+	double te_budget;         /* annualised TE, decimal */
+	double shortfall_d;       /* a year, decimal */
+	double shortfall_p;       /* share, 0..1 */
+};
+
+/* Every rule selected, every parameter at its default. */
+void rules_config_init(struct rules_config *cfg);
+
+/* Check every parameter's range: HC_EUSAGE naming the parameter otherwise
+ * (x > 0, eps > 0, 0 < q < 1, premium > 0, cost > 0, budget > 0, d >= 0,
+ * 0 < p < 1). */
+int rules_config_check(const struct rules_config *cfg, struct hc_error *err);
+
+/* Parse "near-floor,marginal,..." into a mask (also "all", "exact",
+ * "sampled").  HC_EUSAGE naming the unknown item. */
+int rules_parse_list(const char *text, unsigned *mask, struct hc_error *err);
+
+/* The rule's name as printed ("near-floor", ...); NULL when out of range. */
+const char *rules_name(int rule);
+
+struct rule_result {
+	int rule;                 /* enum rules_id */
+	const char *name;         /* static, rules_name(rule) */
+	char parameters[RULES_TEXT_MAX]; /* e.g. "x=10%" */
+	int defined;              /* 0: cannot be evaluated on these data (see note) */
+	int met;                  /* 1: some count up to M meets it */
+	size_t count;             /* the smallest such count (when met) */
+	double value;             /* the rule's quantity at count (NaN when not met) */
+	double threshold;         /* what value is compared with (NaN when not defined) */
+	const char *unit;         /* static: what value measures */
+	char note[RULES_TEXT_MAX];/* "not met within the universe of 40", ... */
+	/* Bootstrap interval (bootstrapped = 1): percentiles of the count over
+	 * the replicates, numpy's linear rule, with an unmet replicate counted as
+	 * larger than every count; a percentile that touches an unmet replicate
+	 * is NaN and printed "not met". */
+	int bootstrapped;
+	size_t replicates;
+	size_t replicates_met;
+	double count_p05, count_p50, count_p95;
+};
+
+/* The inputs every rule may need. */
+struct rules_input {
+	double vbar;              /* per period */
+	double cbar;              /* per period */
+	size_t m;                 /* securities; 0 = unbounded */
+	double periods_per_year;  /* P > 0 */
+	const struct sampler_result *sampled; /* NULL: sampled rules not evaluated */
+	double universe_return;   /* compound annualised, for shortfall */
+};
+
+/*
+ * One exact rule (near-floor, marginal, cost-benefit, tracking-error) for
+ * the given averages: fills res completely (no bootstrap).  No allocation;
+ * fit for a bootstrap replicate.  HC_EUSAGE for a sampled rule or m = 1.
+ */
+int rules_exact(const struct rules_config *cfg, int rule, double vbar,
+		double cbar, size_t m, double periods_per_year,
+		struct rule_result *res, struct hc_error *err);
+
+/*
+ * The count alone, cheaper still: returns 1 and sets *count when met, 0 when
+ * not met within the universe, -1 when undefined on these averages.
+ */
+int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
+		      double cbar, size_t m, double periods_per_year,
+		      size_t *count);
+
+/*
+ * Band rule from sampled variances: r must hold sizes in ascending order
+ * (1..M consecutive for "the smallest count"; otherwise the smallest grid
+ * size meeting it, said in the note).  cbar per period.  Allocates one
+ * workspace of r->paths doubles.
+ */
+int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
+	       double cbar, double periods_per_year, struct rule_result *res,
+	       struct hc_error *err);
+
+/* Shortfall rule from sampled annual returns (r->annual_return required)
+ * against the universe's compound annualised return. */
+int rules_shortfall(const struct rules_config *cfg,
+		    const struct sampler_result *r, double universe_return,
+		    struct rule_result *res, struct hc_error *err);
+
+/*
+ * Compound annualised return of the universe's equal-weight portfolio,
+ * rebalanced every period: prod_t (1 + mean_i r_ti)^(P/T) - 1 (complete data
+ * only).  HC_EDATA when a period's portfolio return is -100% or worse.
+ */
+int rules_universe_return(const struct universe *u, double periods_per_year,
+			  double *ret, struct hc_error *err);
+
+/*
+ * Every selected rule, in enum order, into res[0..*nres-1] (res has room for
+ * RULES_COUNT).  Sampled rules are evaluated when in->sampled is set; else
+ * they are reported as defined = 0 with the note "needs return data".
+ */
+int rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
+		   struct rule_result *res, size_t *nres, struct hc_error *err);
+
+/*
+ * Bootstrap interval of the exact rules among res[0..nres-1] from per
+ * replicate averages vbar[k], cbar[k] (k < nrep, per period).  Sampled rules
+ * are left alone (see rules_set_interval).  Allocates nrep counts.
+ */
+int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
+			  const double *cbar, size_t nrep, size_t m,
+			  double periods_per_year, struct rule_result *res,
+			  size_t nres, struct hc_error *err);
+
+/*
+ * Set res's interval from per replicate counts: count[k] is the count of
+ * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
+ */
+void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
+
+/*
+ * Append the table "rules" to rep with the columns
+ * rule,parameters,count,value_at_count,count_p05,count_p50,count_p95,met
+ * then unit,threshold,replicates,replicates_met,note.
+ */
+int rules_report(struct report *rep, const struct rule_result *res,
+		 size_t nres, struct hc_error *err);
+
+#endif

@@ -1,0 +1,929 @@
+/*
+ * audit.c - per-fund concentration, risk against the universe, screens and
+ * policy (design.md section 6).
+ *
+ * The fund's variance is the sample variance (divisor T-1) of its portfolio
+ * return series p_t = sum_i w_i x_it.  That equals w'Aw for the sample
+ * covariance A without forming A: O(nT) per fund instead of O(n^2 T).
+ * Two passes (mean, then squared deviations) keep it accurate when the mean
+ * is large against the spread.
+ */
+#include "holdcount/audit.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "holdcount/curve.h"
+#include "holdcount/memory.h"
+
+/* The screens' limits, from memory of the published texts (audit.h). */
+#define UCITS_ISSUER_LIMIT 0.10      /* 2009/65/EC Art. 52(2): raised ceiling per issuer */
+#define UCITS_LARGE_THRESHOLD 0.05   /* Art. 52(1)/(2): holdings above 5% ... */
+#define UCITS_LARGE_AGGREGATE 0.40   /* ... together at most 40% */
+#define ACT1940_THRESHOLD 0.05       /* s. 5(b)(1): not more than 5% in one issuer ... */
+#define ACT1940_SMALL_SHARE 0.75     /* ... for 75% of total assets */
+#define RIC_THRESHOLD 0.05           /* IRC s. 851(b)(3)(A): each at most 5% ... */
+#define RIC_SMALL_SHARE 0.50         /* ... for at least 50% of assets */
+#define RIC_ISSUER_LIMIT 0.25        /* s. 851(b)(3)(B): no more than 25% in one issuer */
+
+static const struct {
+	const char *screen;
+	const char *part;
+	const char *test;
+	double limit;
+	int screen_index;
+} parts[AUDIT_NPARTS] = {
+	{ "ucits", "largest issuer", "<=", UCITS_ISSUER_LIMIT, 0 },
+	{ "ucits", "issuers above 5% together", "<=", UCITS_LARGE_AGGREGATE, 0 },
+	{ "1940act", "issuers of at most 5% together", ">=", ACT1940_SMALL_SHARE, 1 },
+	{ "ric", "issuers of at most 5% together", ">=", RIC_SMALL_SHARE, 2 },
+	{ "ric", "largest issuer", "<=", RIC_ISSUER_LIMIT, 2 },
+};
+
+static const char *const rule_names[AUDIT_NRULES] = {
+	"min-holdings", "min-effective", "max-weight", "max-sector-weight",
+	"ucits", "1940act", "ric"
+};
+
+const char *audit_rule_name(unsigned rule)
+{
+	int k;
+
+	for (k = 0; k < AUDIT_NRULES; k++)
+		if (rule == 1u << k)
+			return rule_names[k];
+	return NULL;
+}
+
+const char *audit_screen_name(int index)
+{
+	return index >= 0 && index < AUDIT_NSCREENS ? rule_names[4 + index] : NULL;
+}
+
+void audit_options_init(struct audit_options *opt)
+{
+	memset(opt, 0, sizeof *opt);
+	opt->paths = AUDIT_DEFAULT_PATHS;
+	opt->seed = 1;
+	opt->limit_tolerance = AUDIT_DEFAULT_LIMIT_TOLERANCE;
+	opt->tie_rtol = AUDIT_DEFAULT_TIE_RTOL;
+}
+
+static int item_is(const char *s, size_t len, const char *name)
+{
+	size_t k;
+
+	if (len != strlen(name))
+		return 0;
+	for (k = 0; k < len; k++) {
+		char c = s[k];
+		if (c >= 'A' && c <= 'Z')
+			c = (char)(c - 'A' + 'a');
+		if (c != name[k])
+			return 0;
+	}
+	return 1;
+}
+
+int audit_parse_screens(const char *text, unsigned *screens, struct hc_error *err)
+{
+	const char *p = text;
+	unsigned bits = 0;
+
+	while (1) {
+		const char *end = strchr(p, ',');
+		size_t len = end ? (size_t)(end - p) : strlen(p);
+		int k, found = 0;
+
+		while (len && (*p == ' ')) {
+			p++;
+			len--;
+		}
+		while (len && p[len - 1] == ' ')
+			len--;
+		for (k = 0; k < AUDIT_NSCREENS; k++)
+			if (item_is(p, len, audit_screen_name(k))) {
+				bits |= 1u << k;
+				found = 1;
+			}
+		if (item_is(p, len, "all")) {
+			bits = AUDIT_SCREEN_UCITS | AUDIT_SCREEN_1940ACT | AUDIT_SCREEN_RIC;
+			found = 1;
+		} else if (item_is(p, len, "none"))
+			found = 1;
+		if (!found)
+			return hc_error(err, HC_EUSAGE, "unknown screen '%.*s' in '%s', expected ucits, 1940act, ric, all or none",
+					(int)len, p, text);
+		if (!end)
+			break;
+		p = end + 1;
+	}
+	*screens = bits;
+	return HC_OK;
+}
+
+/* ---- concentration ---- */
+
+static int cmp_desc(const void *a, const void *b)
+{
+	double x = *(const double *)a, y = *(const double *)b;
+	return x > y ? -1 : (x < y);
+}
+
+static void concentration(struct audit_fund *af, const struct holdings_fund *fd,
+			  double *work)
+{
+	size_t k;
+
+	af->holdings = fd->n;
+	af->weight_sum = fd->raw_sum;
+	af->max_weight = -INFINITY;
+	af->hhi = 0;
+	for (k = 0; k < fd->n; k++) {
+		double w = fd->h[k].weight;
+		if (w > af->max_weight) {
+			af->max_weight = w;
+			af->max_id = fd->h[k].id;
+		}
+		af->hhi += w * w;
+		work[k] = w;
+	}
+	af->effective_holdings = 1 / af->hhi;
+	qsort(work, fd->n, sizeof *work, cmp_desc);
+	af->top10_share = 0;
+	for (k = 0; k < fd->n && k < 10; k++)
+		af->top10_share += work[k];
+}
+
+/* ---- risk against the universe ---- */
+
+static double series_variance(const double *x, size_t t)
+{
+	double mean = 0, ss = 0;
+	size_t k;
+
+	for (k = 0; k < t; k++)
+		mean += x[k];
+	mean /= (double)t;
+	for (k = 0; k < t; k++)
+		ss += (x[k] - mean) * (x[k] - mean);
+	return ss / (double)(t - 1);
+}
+
+static const char *dropped_reason(const struct universe *u, const char *id)
+{
+	size_t k;
+
+	for (k = 0; k < u->ndropped; k++)
+		if (strcmp(u->dropped[k].id, id) == 0)
+			return u->dropped[k].reason;
+	return NULL;
+}
+
+/* Find each holding in u; record the missing ones (or refuse under strict). */
+static int locate(struct audit_fund *af, const struct holdings_fund *fd,
+		  const struct holdings *h, const struct universe *u, int strict,
+		  long *idx, struct hc_error *err)
+{
+	size_t k;
+
+	for (k = 0; k < fd->n; k++) {
+		idx[k] = universe_find(u, fd->h[k].id);
+		if (idx[k] >= 0)
+			continue;
+		if (strict) {
+			const char *why = dropped_reason(u, fd->h[k].id);
+			return hc_error(err, HC_EDATA, "%s:%zu:%zu: id '%s' of fund '%s' is not in the universe '%s'%s%s%s, expected an id of the universe (without --strict the fund's risk is computed on the rest)",
+					h->source, fd->h[k].line, h->id_column, fd->h[k].id, fd->name,
+					u->source ? u->source : "", why ? " (dropped: " : "", why ? why : "", why ? ")" : "");
+		}
+		af->nmissing++;
+	}
+	if (!af->nmissing)
+		return HC_OK;
+	af->missing = hc_calloc(af->nmissing, sizeof *af->missing);
+	if (!af->missing)
+		return hc_error(err, HC_ENOMEM, "out of memory auditing fund '%s'", fd->name);
+	af->nmissing = 0;
+	for (k = 0; k < fd->n; k++) {
+		struct audit_missing *mi;
+		if (idx[k] >= 0)
+			continue;
+		mi = &af->missing[af->nmissing++];
+		mi->id = fd->h[k].id;
+		mi->weight = fd->h[k].weight;
+		mi->line = fd->h[k].line;
+		af->missing_weight += mi->weight;
+	}
+	return HC_OK;
+}
+
+static int risk(struct audit_fund *af, const struct holdings_fund *fd,
+		const struct universe *u, const struct moments *mo,
+		const long *idx, double *series, struct hc_error *err)
+{
+	double in = 0, hhi = 0, wsd = 0, s2, neq, pp = u->periods_per_year > 0 ? u->periods_per_year : 1;
+	size_t k, t, T = u->t;
+
+	for (k = 0; k < fd->n; k++)
+		if (idx[k] >= 0)
+			in += fd->h[k].weight;
+	if (!(in > 0))
+		return HC_OK;
+	af->risk_known = 1;
+	af->risk_subset = af->nmissing > 0;
+	memset(series, 0, T * sizeof *series);
+	for (k = 0; k < fd->n; k++) {
+		const double *x;
+		double w;
+		if (idx[k] < 0)
+			continue;
+		x = &u->x[(size_t)idx[k] * T];
+		w = fd->h[k].weight / in;
+		for (t = 0; t < T; t++) {
+			if (isnan(x[t]))
+				return hc_error(err, HC_EDATA, "security '%s' has gaps in the universe '%s', expected complete series for an audit (load it keeping only complete securities)",
+						fd->h[k].id, u->source ? u->source : "");
+			series[t] += w * x[t];
+		}
+		hhi += w * w;
+		wsd += w * sqrt(series_variance(x, T));
+		af->risk_holdings++;
+	}
+	s2 = series_variance(series, T);
+	af->variance = s2 * pp;
+	af->sd = sqrt(af->variance);
+	/* Choueifaty & Coignard (2008), J. Portfolio Management 35(1): the ratio
+	 * of the weighted average volatility to the portfolio's volatility. */
+	af->diversification_ratio = s2 > 0 ? wsd / sqrt(s2) : NAN;
+	af->below_floor = curve_equivalent_count(mo, s2, &neq) != 0;
+	af->equivalent_count = af->below_floor ? NAN : neq;
+	/* design.md section 3: a weight vector laid on a random subset has
+	 * E[w'Aw] = sum w^2 vbar + (1 - sum w^2) cbar. */
+	s2 = hhi * mo->average_variance + (1 - hhi) * mo->average_covariance;
+	af->weighted_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
+	return HC_OK;
+}
+
+/* ---- sectors ---- */
+
+static int cmp_sector(const void *a, const void *b)
+{
+	const struct audit_sector *x = a, *y = b;
+
+	if (!x->label != !y->label)
+		return x->label ? -1 : 1;   /* the unmapped bucket last */
+	if (x->weight != y->weight)
+		return x->weight > y->weight ? -1 : 1;
+	return x->label ? strcmp(x->label, y->label) : 0;
+}
+
+static int sectors(struct audit_fund *af, const struct holdings_fund *fd,
+		   const struct holdings_labels *map, struct hc_error *err)
+{
+	size_t k, j;
+
+	af->max_sector_weight = NAN;
+	if (!map)
+		return HC_OK;
+	af->sectors = hc_calloc(fd->n, sizeof *af->sectors);
+	if (!af->sectors)
+		return hc_error(err, HC_ENOMEM, "out of memory auditing fund '%s'", fd->name);
+	for (k = 0; k < fd->n; k++) {
+		const char *label = holdings_labels_find(map, fd->h[k].id);
+		for (j = 0; j < af->nsectors; j++) {
+			const char *l = af->sectors[j].label;
+			if (l == label || (l && label && strcmp(l, label) == 0))
+				break;
+		}
+		if (j == af->nsectors)
+			af->sectors[af->nsectors++].label = label;
+		af->sectors[j].weight += fd->h[k].weight;
+		af->sectors[j].count++;
+	}
+	qsort(af->sectors, af->nsectors, sizeof *af->sectors, cmp_sector);
+	af->sector_hhi = 0;
+	for (j = 0; j < af->nsectors; j++) {
+		af->sector_hhi += af->sectors[j].weight * af->sectors[j].weight;
+		if (af->sectors[j].label && !(af->sectors[j].weight <= af->max_sector_weight)) {
+			af->max_sector_weight = af->sectors[j].weight;
+			af->max_sector = af->sectors[j].label;
+		}
+	}
+	if (!af->max_sector)
+		af->max_sector_weight = 0;
+	return HC_OK;
+}
+
+/* ---- screens ---- */
+
+struct issuer_weight {
+	const char *issuer;
+	double w;
+};
+
+static int cmp_issuer(const void *a, const void *b)
+{
+	return strcmp(((const struct issuer_weight *)a)->issuer,
+		      ((const struct issuer_weight *)b)->issuer);
+}
+
+/* Net weights per issuer, then shares |net| / sum |net| (equal to the
+ * weights for a long-only fund).  Compacts iw in place; returns the count. */
+static size_t issuer_shares(const struct holdings_fund *fd, struct issuer_weight *iw)
+{
+	size_t k, n = 0;
+	double gross = 0;
+
+	for (k = 0; k < fd->n; k++) {
+		iw[k].issuer = fd->h[k].issuer;
+		iw[k].w = fd->h[k].weight;
+	}
+	qsort(iw, fd->n, sizeof *iw, cmp_issuer);
+	for (k = 0; k < fd->n; k++) {
+		if (n && strcmp(iw[n - 1].issuer, iw[k].issuer) == 0)
+			iw[n - 1].w += iw[k].w;
+		else
+			iw[n++] = iw[k];
+	}
+	for (k = 0; k < n; k++)
+		gross += fabs(iw[k].w);
+	for (k = 0; k < n; k++)
+		iw[k].w = fabs(iw[k].w) / gross;
+	return n;
+}
+
+static void set_check(struct audit_check *c, int part, double figure,
+		      const char *issuer, double tol)
+{
+	c->figure = figure;
+	c->limit = parts[part].limit;
+	c->issuer = issuer;
+	if (parts[part].test[0] == '<')
+		c->passed = figure <= c->limit + tol;
+	else
+		c->passed = figure >= c->limit - tol;
+}
+
+static void screens(struct audit_fund *af, const struct holdings_fund *fd,
+		    struct issuer_weight *iw, double tol)
+{
+	size_t n = issuer_shares(fd, iw), k;
+	double large_ucits = 0, small_1940 = 0, small_ric = 0;
+	int s;
+
+	af->issuer_max = -1;
+	for (k = 0; k < n; k++) {
+		double w = iw[k].w;
+		if (w > af->issuer_max) {
+			af->issuer_max = w;
+			af->issuer_max_id = iw[k].issuer;
+		}
+		/* "above 5%" is strict and "at most 5%" inclusive, both within tol */
+		if (w > UCITS_LARGE_THRESHOLD + tol)
+			large_ucits += w;
+		if (w <= ACT1940_THRESHOLD + tol)
+			small_1940 += w;
+		if (w <= RIC_THRESHOLD + tol)
+			small_ric += w;
+	}
+	set_check(&af->checks[AUDIT_PART_UCITS_ISSUER], AUDIT_PART_UCITS_ISSUER, af->issuer_max, af->issuer_max_id, tol);
+	set_check(&af->checks[AUDIT_PART_UCITS_AGGREGATE], AUDIT_PART_UCITS_AGGREGATE, large_ucits, NULL, tol);
+	set_check(&af->checks[AUDIT_PART_1940ACT_SMALL], AUDIT_PART_1940ACT_SMALL, small_1940, NULL, tol);
+	set_check(&af->checks[AUDIT_PART_RIC_SMALL], AUDIT_PART_RIC_SMALL, small_ric, NULL, tol);
+	set_check(&af->checks[AUDIT_PART_RIC_ISSUER], AUDIT_PART_RIC_ISSUER, af->issuer_max, af->issuer_max_id, tol);
+	for (s = 0; s < AUDIT_NSCREENS; s++)
+		af->screen_passed[s] = 1;
+	for (k = 0; k < AUDIT_NPARTS; k++)
+		if (!af->checks[k].passed)
+			af->screen_passed[parts[k].screen_index] = 0;
+}
+
+/* ---- policy ---- */
+
+static void policy(struct audit_fund *af, const struct audit_policy *p, double tol)
+{
+	int s;
+
+	af->failed = 0;
+	if (p->min_holdings && af->holdings < p->min_holdings)
+		af->failed |= AUDIT_RULE_MIN_HOLDINGS;
+	/* a count, so the weight tolerance is applied relative to it */
+	if (p->min_effective > 0 && af->effective_holdings < p->min_effective * (1 - tol))
+		af->failed |= AUDIT_RULE_MIN_EFFECTIVE;
+	if (p->max_weight > 0 && af->max_weight > p->max_weight + tol)
+		af->failed |= AUDIT_RULE_MAX_WEIGHT;
+	if (p->max_sector_weight > 0 && af->max_sector_weight > p->max_sector_weight + tol)
+		af->failed |= AUDIT_RULE_MAX_SECTOR_WEIGHT;
+	for (s = 0; s < AUDIT_NSCREENS; s++)
+		if ((p->screens & (1u << s)) && !af->screen_passed[s])
+			af->failed |= AUDIT_RULE_UCITS << s;
+	af->passed = af->failed == 0;
+}
+
+/* ---- percentile among random equal-weight portfolios ---- */
+
+static int cmp_size(const void *a, const void *b)
+{
+	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+	return x < y ? -1 : (x > y);
+}
+
+/*
+ * Mid-rank percentile: (below + equal/2)/K, where "equal" means within
+ * tie_rtol relative.  At n = M every random portfolio is the whole universe,
+ * so an equal-weight fund of all M securities ranks exactly 0.5.
+ */
+static double mid_rank(const double *v, size_t stride, size_t k_paths,
+		       double s2, double tie_rtol)
+{
+	size_t k, below = 0, equal = 0;
+
+	for (k = 0; k < k_paths; k++) {
+		double x = v[k * stride];
+		double scale = fmax(fabs(x), fabs(s2));
+		if (fabs(x - s2) <= tie_rtol * scale)
+			equal++;
+		else if (x < s2)
+			below++;
+	}
+	return ((double)below + 0.5 * (double)equal) / (double)k_paths;
+}
+
+static int percentiles(struct audit_result *a, const struct universe *u,
+		       const struct audit_options *opt, struct hc_error *err)
+{
+	struct sampler_options so;
+	struct sampler_result *sr = NULL;
+	size_t *sizes = NULL, nsizes = 0, f, k;
+	double pp = u->periods_per_year > 0 ? u->periods_per_year : 1;
+	int rc = HC_OK;
+
+	if (opt->paths == 0)
+		return HC_OK;
+	sizes = hc_calloc(a->nfunds ? a->nfunds : 1, sizeof *sizes);
+	if (!sizes)
+		return hc_error(err, HC_ENOMEM, "out of memory sampling portfolios");
+	for (f = 0; f < a->nfunds; f++)
+		if (a->funds[f].risk_known)
+			sizes[nsizes++] = a->funds[f].risk_holdings;
+	if (!nsizes)
+		goto cleanup;
+	qsort(sizes, nsizes, sizeof *sizes, cmp_size);
+	for (f = k = 1; f < nsizes; f++)
+		if (sizes[f] != sizes[k - 1])
+			sizes[k++] = sizes[f];
+	nsizes = k;
+	sampler_options_init(&so);
+	so.paths = opt->paths;
+	so.seed = opt->seed;
+	so.threads = opt->threads;
+	so.periods_per_year = pp;
+	so.progress = opt->progress;
+	so.progress_ctx = opt->progress_ctx;
+	if ((rc = sampler_run(&sr, u, sizes, nsizes, &so, err)) != HC_OK)
+		goto cleanup;
+	for (f = 0; f < a->nfunds; f++) {
+		struct audit_fund *af = &a->funds[f];
+		size_t *at;
+		if (!af->risk_known)
+			continue;
+		at = bsearch(&af->risk_holdings, sizes, nsizes, sizeof *sizes, cmp_size);
+		af->sd_percentile = mid_rank(sr->variance + (at - sizes), nsizes, sr->paths,
+					     af->variance / pp, opt->tie_rtol);
+	}
+cleanup:
+	sampler_result_free(sr);
+	hc_free(sizes);
+	return rc;
+}
+
+/* ---- the run ---- */
+
+static int check_options(const struct audit_options *opt, struct hc_error *err)
+{
+	const struct audit_policy *p = &opt->policy;
+
+	if (p->max_sector_weight > 0 && !opt->sectors)
+		return hc_error(err, HC_EUSAGE, "a maximum sector weight needs a sector map");
+	if (!(p->min_effective >= 0) || !(p->max_weight >= 0) || !(p->max_sector_weight >= 0) ||
+	    p->max_weight > 1 || p->max_sector_weight > 1)
+		return hc_error(err, HC_EUSAGE, "policy limits must be weights between 0 and 1 and counts of 0 or more");
+	if (!(opt->limit_tolerance >= 0) || !(opt->tie_rtol >= 0))
+		return hc_error(err, HC_EUSAGE, "tolerances must be zero or more");
+	return HC_OK;
+}
+
+static int audit_fund(struct audit_fund *af, const struct holdings_fund *fd,
+		      const struct holdings *h, const struct universe *u,
+		      const struct moments *mo, const struct audit_options *opt,
+		      long *idx, double *dwork, struct issuer_weight *iw,
+		      double *series, struct hc_error *err)
+{
+	int rc;
+
+	af->name = fd->name;
+	af->sd_percentile = NAN;
+	af->variance = af->sd = af->diversification_ratio = NAN;
+	af->equivalent_count = af->weighted_random_sd = NAN;
+	concentration(af, fd, dwork);
+	if ((rc = locate(af, fd, h, u, opt->strict, idx, err)) != HC_OK)
+		return rc;
+	if ((rc = risk(af, fd, u, mo, idx, series, err)) != HC_OK)
+		return rc;
+	if ((rc = sectors(af, fd, opt->sectors, err)) != HC_OK)
+		return rc;
+	screens(af, fd, iw, opt->limit_tolerance);
+	return HC_OK;
+}
+
+int audit_run(struct audit_result **out, const struct holdings *h,
+	      const struct universe *u, const struct moments *mo,
+	      const struct audit_options *opt, struct hc_error *err)
+{
+	struct audit_result *a = NULL;
+	long *idx = NULL;
+	double *dwork = NULL, *series = NULL;
+	struct issuer_weight *iw = NULL;
+	size_t nmax = 1, f;
+	int rc;
+
+	*out = NULL;
+	if ((rc = check_options(opt, err)) != HC_OK)
+		return rc;
+	if (u->t < 2)
+		return hc_error(err, HC_EDATA, "the universe '%s' has %zu periods, expected at least 2",
+				u->source ? u->source : "", u->t);
+	for (f = 0; f < h->nfunds; f++)
+		if (h->funds[f].n > nmax)
+			nmax = h->funds[f].n;
+	a = hc_calloc(1, sizeof *a);
+	idx = hc_calloc(nmax, sizeof *idx);
+	dwork = hc_calloc(nmax, sizeof *dwork);
+	iw = hc_calloc(nmax, sizeof *iw);
+	series = hc_calloc(u->t, sizeof *series);
+	if (!a || !idx || !dwork || !iw || !series ||
+	    !(a->funds = hc_calloc(h->nfunds ? h->nfunds : 1, sizeof *a->funds))) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory auditing '%s'", h->source);
+		goto cleanup;
+	}
+	a->policy = opt->policy;
+	a->has_sectors = opt->sectors != NULL;
+	a->paths = opt->paths;
+	a->seed = opt->seed;
+	a->tie_rtol = opt->tie_rtol;
+	a->periods_per_year = u->periods_per_year;
+	a->m = u->m;
+	a->t = u->t;
+	a->universe_source = u->source;
+	a->holdings_source = h->source;
+	for (f = 0; f < h->nfunds; f++) {
+		a->nfunds = f + 1;
+		rc = audit_fund(&a->funds[f], &h->funds[f], h, u, mo, opt,
+				idx, dwork, iw, series, err);
+		if (rc != HC_OK)
+			goto cleanup;
+	}
+	if ((rc = percentiles(a, u, opt, err)) != HC_OK)
+		goto cleanup;
+	for (f = 0; f < a->nfunds; f++) {
+		policy(&a->funds[f], &opt->policy, opt->limit_tolerance);
+		a->failed_funds += !a->funds[f].passed;
+	}
+	*out = a;
+	a = NULL;
+cleanup:
+	audit_result_free(a);
+	hc_free(idx);
+	hc_free(dwork);
+	hc_free(iw);
+	hc_free(series);
+	return rc;
+}
+
+void audit_result_free(struct audit_result *a)
+{
+	size_t f;
+
+	if (!a)
+		return;
+	for (f = 0; a->funds && f < a->nfunds; f++) {
+		hc_free(a->funds[f].missing);
+		hc_free(a->funds[f].sectors);
+	}
+	hc_free(a->funds);
+	hc_free(a);
+}
+
+/* ---- the report ---- */
+
+enum {
+	FC_FUND, FC_HOLDINGS, FC_WEIGHT_SUM, FC_MAX_WEIGHT, FC_TOP10, FC_HHI,
+	FC_EFFECTIVE, FC_SD, FC_DR, FC_EQUIVALENT, FC_PERCENTILE, FC_WRSD,
+	FC_PASSED, FC_FAILED, FC_MAX_ID, FC_RISK_HOLDINGS, FC_MISSING,
+	FC_MISSING_WEIGHT, FC_SUBSET, FC_BELOW_FLOOR, FC_ISSUER_MAX,
+	FC_ISSUER_MAX_ID, FC_UCITS, FC_1940, FC_RIC, FC_SECTOR_HHI,
+	FC_MAX_SECTOR, FC_MAX_SECTOR_WEIGHT, FC_N
+};
+
+static const struct {
+	const char *key, *title;
+	int style;
+} fund_columns[FC_N] = {
+	{ "fund", "fund", REPORT_STYLE_PLAIN },
+	{ "holdings", "holdings", REPORT_STYLE_PLAIN },
+	{ "weight_sum", "weight sum", REPORT_STYLE_FIXED4 },
+	{ "max_weight", "largest", REPORT_STYLE_PERCENT },
+	{ "top10_share", "top 10", REPORT_STYLE_PERCENT },
+	{ "hhi", "HHI", REPORT_STYLE_FIXED4 },
+	{ "effective_holdings", "effective", REPORT_STYLE_FIXED2 },
+	{ "sd", "sd", REPORT_STYLE_PERCENT },
+	{ "diversification_ratio", "div. ratio", REPORT_STYLE_FIXED2 },
+	{ "equivalent_count", "equiv. count", REPORT_STYLE_FIXED2 },
+	{ "sd_percentile", "sd percentile", REPORT_STYLE_PERCENT },
+	{ "weighted_random_sd", "random sd, own weights", REPORT_STYLE_PERCENT },
+	{ "passed", "passed", REPORT_STYLE_PLAIN },
+	{ "failed_rules", "failed rules", REPORT_STYLE_PLAIN },
+	{ "max_weight_id", "largest id", REPORT_STYLE_PLAIN },
+	{ "risk_holdings", "in universe", REPORT_STYLE_PLAIN },
+	{ "missing_ids", "missing ids", REPORT_STYLE_PLAIN },
+	{ "missing_weight", "missing weight", REPORT_STYLE_PERCENT },
+	{ "risk_on_subset", "risk on subset", REPORT_STYLE_PLAIN },
+	{ "below_floor", "below floor", REPORT_STYLE_PLAIN },
+	{ "max_issuer_weight", "largest issuer", REPORT_STYLE_PERCENT },
+	{ "max_issuer", "largest issuer id", REPORT_STYLE_PLAIN },
+	{ "ucits", "ucits", REPORT_STYLE_PLAIN },
+	{ "1940act", "1940act", REPORT_STYLE_PLAIN },
+	{ "ric", "ric", REPORT_STYLE_PLAIN },
+	{ "sector_hhi", "sector HHI", REPORT_STYLE_FIXED4 },
+	{ "max_sector", "largest sector", REPORT_STYLE_PLAIN },
+	{ "max_sector_weight", "largest sector weight", REPORT_STYLE_PERCENT },
+};
+
+static int failed_text(unsigned failed, char *buf, size_t size)
+{
+	size_t used = 0;
+	int k;
+
+	buf[0] = '\0';
+	for (k = 0; k < AUDIT_NRULES; k++) {
+		int n;
+		if (!(failed & (1u << k)))
+			continue;
+		n = snprintf(buf + used, size - used, "%s%s", used ? ";" : "", rule_names[k]);
+		if (n < 0 || (size_t)n >= size - used)
+			return -1;
+		used += (size_t)n;
+	}
+	return 0;
+}
+
+static int fund_row(struct report_table *t, const struct audit_result *a,
+		    const struct audit_fund *af)
+{
+	char failed[256];
+	size_t r;
+
+	if (report_table_add_row(t) != HC_OK)
+		return HC_ENOMEM;
+	r = t->nrows - 1;
+	if (report_table_set_text(t, r, FC_FUND, af->name) != HC_OK)
+		return HC_ENOMEM;
+	report_table_set_int(t, r, FC_HOLDINGS, (long long)af->holdings);
+	report_table_set_real(t, r, FC_WEIGHT_SUM, af->weight_sum);
+	report_table_set_real(t, r, FC_MAX_WEIGHT, af->max_weight);
+	report_table_set_real(t, r, FC_TOP10, af->top10_share);
+	report_table_set_real(t, r, FC_HHI, af->hhi);
+	report_table_set_real(t, r, FC_EFFECTIVE, af->effective_holdings);
+	report_table_set_real(t, r, FC_SD, af->sd);
+	report_table_set_real(t, r, FC_DR, af->diversification_ratio);
+	if (af->risk_known && af->below_floor) {
+		if (report_table_set_text(t, r, FC_EQUIVALENT, "below the floor") != HC_OK)
+			return HC_ENOMEM;
+	} else
+		report_table_set_real(t, r, FC_EQUIVALENT, af->equivalent_count);
+	report_table_set_real(t, r, FC_PERCENTILE, af->sd_percentile);
+	report_table_set_real(t, r, FC_WRSD, af->weighted_random_sd);
+	report_table_set_bool(t, r, FC_PASSED, af->passed);
+	if (failed_text(af->failed, failed, sizeof failed) != 0 ||
+	    report_table_set_text(t, r, FC_FAILED, failed) != HC_OK ||
+	    report_table_set_text(t, r, FC_MAX_ID, af->max_id) != HC_OK ||
+	    report_table_set_text(t, r, FC_ISSUER_MAX_ID, af->issuer_max_id) != HC_OK)
+		return HC_ENOMEM;
+	report_table_set_int(t, r, FC_RISK_HOLDINGS, (long long)af->risk_holdings);
+	report_table_set_int(t, r, FC_MISSING, (long long)af->nmissing);
+	report_table_set_real(t, r, FC_MISSING_WEIGHT, af->missing_weight);
+	report_table_set_bool(t, r, FC_SUBSET, af->risk_subset || !af->risk_known);
+	if (af->risk_known)
+		report_table_set_bool(t, r, FC_BELOW_FLOOR, af->below_floor);
+	report_table_set_real(t, r, FC_ISSUER_MAX, af->issuer_max);
+	report_table_set_bool(t, r, FC_UCITS, af->screen_passed[0]);
+	report_table_set_bool(t, r, FC_1940, af->screen_passed[1]);
+	report_table_set_bool(t, r, FC_RIC, af->screen_passed[2]);
+	if (a->has_sectors) {
+		report_table_set_real(t, r, FC_SECTOR_HHI, af->sector_hhi);
+		report_table_set_real(t, r, FC_MAX_SECTOR_WEIGHT, af->max_sector_weight);
+		if (af->max_sector && report_table_set_text(t, r, FC_MAX_SECTOR, af->max_sector) != HC_OK)
+			return HC_ENOMEM;
+	}
+	return HC_OK;
+}
+
+static int funds_table(struct report *rep, const struct audit_result *a)
+{
+	struct report_table *t = report_add_table(rep, "funds", "funds");
+	size_t k;
+
+	if (!t)
+		return HC_ENOMEM;
+	for (k = 0; k < FC_N; k++)
+		if (report_table_add_column(t, fund_columns[k].key, fund_columns[k].title,
+					    fund_columns[k].style) != HC_OK)
+			return HC_ENOMEM;
+	for (k = 0; k < a->nfunds; k++)
+		if (fund_row(t, a, &a->funds[k]) != HC_OK)
+			return HC_ENOMEM;
+	return HC_OK;
+}
+
+static int add_columns(struct report_table *t, const char *const *keys,
+		       const int *styles, size_t n)
+{
+	size_t k;
+
+	for (k = 0; k < n; k++)
+		if (report_table_add_column(t, keys[k], keys[k], styles[k]) != HC_OK)
+			return HC_ENOMEM;
+	return HC_OK;
+}
+
+static int screens_table(struct report *rep, const struct audit_result *a)
+{
+	static const char *const keys[] = { "fund", "screen", "part", "passed", "figure", "test", "limit", "issuer", "required" };
+	static const int styles[] = { 0, 0, 0, 0, REPORT_STYLE_PERCENT, 0, REPORT_STYLE_PERCENT, 0, 0 };
+	struct report_table *t = report_add_table(rep, "screens", "screens (from memory of the published texts: verify against the current text)");
+	size_t f, p, r;
+
+	if (!t || add_columns(t, keys, styles, 9) != HC_OK)
+		return HC_ENOMEM;
+	for (f = 0; f < a->nfunds; f++)
+		for (p = 0; p < AUDIT_NPARTS; p++) {
+			const struct audit_check *c = &a->funds[f].checks[p];
+			if (report_table_add_row(t) != HC_OK)
+				return HC_ENOMEM;
+			r = t->nrows - 1;
+			if (report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
+			    report_table_set_text(t, r, 1, parts[p].screen) != HC_OK ||
+			    report_table_set_text(t, r, 2, parts[p].part) != HC_OK ||
+			    report_table_set_text(t, r, 5, parts[p].test) != HC_OK ||
+			    (c->issuer && report_table_set_text(t, r, 7, c->issuer) != HC_OK))
+				return HC_ENOMEM;
+			report_table_set_bool(t, r, 3, c->passed);
+			report_table_set_real(t, r, 4, c->figure);
+			report_table_set_real(t, r, 6, c->limit);
+			report_table_set_bool(t, r, 8, (a->policy.screens >> parts[p].screen_index) & 1);
+		}
+	return HC_OK;
+}
+
+static int missing_table(struct report *rep, const struct audit_result *a)
+{
+	static const char *const keys[] = { "fund", "id", "weight", "line" };
+	static const int styles[] = { 0, 0, REPORT_STYLE_PERCENT, 0 };
+	struct report_table *t = NULL;
+	size_t f, k, r;
+
+	for (f = 0; f < a->nfunds; f++)
+		for (k = 0; k < a->funds[f].nmissing; k++) {
+			const struct audit_missing *mi = &a->funds[f].missing[k];
+			if (!t) {
+				t = report_add_table(rep, "missing", "ids not in the universe");
+				if (!t || add_columns(t, keys, styles, 4) != HC_OK)
+					return HC_ENOMEM;
+			}
+			if (report_table_add_row(t) != HC_OK)
+				return HC_ENOMEM;
+			r = t->nrows - 1;
+			if (report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
+			    report_table_set_text(t, r, 1, mi->id) != HC_OK)
+				return HC_ENOMEM;
+			report_table_set_real(t, r, 2, mi->weight);
+			report_table_set_int(t, r, 3, (long long)mi->line);
+		}
+	return HC_OK;
+}
+
+static int sectors_table(struct report *rep, const struct audit_result *a)
+{
+	static const char *const keys[] = { "fund", "sector", "weight", "holdings" };
+	static const int styles[] = { 0, 0, REPORT_STYLE_PERCENT, 0 };
+	struct report_table *t;
+	size_t f, k, r;
+
+	if (!a->has_sectors)
+		return HC_OK;
+	t = report_add_table(rep, "sectors", "sector weights");
+	if (!t || add_columns(t, keys, styles, 4) != HC_OK)
+		return HC_ENOMEM;
+	for (f = 0; f < a->nfunds; f++)
+		for (k = 0; k < a->funds[f].nsectors; k++) {
+			const struct audit_sector *s = &a->funds[f].sectors[k];
+			if (report_table_add_row(t) != HC_OK)
+				return HC_ENOMEM;
+			r = t->nrows - 1;
+			if (report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
+			    report_table_set_text(t, r, 1, s->label ? s->label : "(not in the sector map)") != HC_OK)
+				return HC_ENOMEM;
+			report_table_set_real(t, r, 2, s->weight);
+			report_table_set_int(t, r, 3, (long long)s->count);
+		}
+	return HC_OK;
+}
+
+static int policy_text(const struct audit_policy *p, int has_sectors, char *buf, size_t size)
+{
+	size_t used = 0;
+	int n, s;
+
+#define APPEND(...) do { \
+		n = snprintf(buf + used, size - used, __VA_ARGS__); \
+		if (n < 0 || (size_t)n >= size - used) return -1; \
+		used += (size_t)n; \
+	} while (0)
+	buf[0] = '\0';
+	if (p->min_holdings)
+		APPEND("%sholdings >= %zu", used ? "; " : "", p->min_holdings);
+	if (p->min_effective > 0)
+		APPEND("%seffective holdings >= %g", used ? "; " : "", p->min_effective);
+	if (p->max_weight > 0)
+		APPEND("%slargest weight <= %g%%", used ? "; " : "", 100 * p->max_weight);
+	if (p->max_sector_weight > 0 && has_sectors)
+		APPEND("%slargest sector <= %g%%", used ? "; " : "", 100 * p->max_sector_weight);
+	for (s = 0; s < AUDIT_NSCREENS; s++)
+		if (p->screens & (1u << s))
+			APPEND("%sscreen %s", used ? "; " : "", rule_names[4 + s]);
+	if (!used)
+		APPEND("none (every fund passes)");
+#undef APPEND
+	return 0;
+}
+
+static int fields(struct report *rep, const struct audit_result *a)
+{
+	char buf[512];
+
+	if (policy_text(&a->policy, a->has_sectors, buf, sizeof buf) != 0)
+		return HC_EINTERNAL;
+	if (report_add_text(rep, "universe", "universe", a->universe_source ? a->universe_source : "") != HC_OK ||
+	    report_add_text(rep, "holdings_file", "holdings", a->holdings_source ? a->holdings_source : "") != HC_OK ||
+	    report_add_int(rep, "securities", "securities", (long long)a->m) != HC_OK ||
+	    report_add_int(rep, "periods", "periods", (long long)a->t) != HC_OK ||
+	    report_add_real(rep, "periods_per_year", "periods per year", a->periods_per_year, REPORT_STYLE_PLAIN) != HC_OK ||
+	    report_add_int(rep, "paths", "random portfolios per count", (long long)a->paths) != HC_OK ||
+	    report_add_int(rep, "seed", "seed", (long long)a->seed) != HC_OK ||
+	    report_add_text(rep, "policy", "policy", buf) != HC_OK ||
+	    report_add_int(rep, "funds", "funds", (long long)a->nfunds) != HC_OK ||
+	    report_add_int(rep, "failed_funds", "funds failing the policy", (long long)a->failed_funds) != HC_OK)
+		return HC_ENOMEM;
+	return HC_OK;
+}
+
+static int notes(struct report *rep, const struct audit_result *a, const struct holdings *h)
+{
+	char buf[512];
+	size_t k;
+
+	for (k = 0; h && k < h->nwarnings; k++)
+		if (report_add_note(rep, h->warnings[k]) != HC_OK)
+			return HC_ENOMEM;
+	snprintf(buf, sizeof buf,
+		 "sd_percentile ranks the fund's sd among %zu random equal-weight portfolios of the same count (seed %llu); ties (relative difference within %g) count half: (below + equal/2)/paths",
+		 a->paths, (unsigned long long)a->seed, a->tie_rtol);
+	if (report_add_note(rep, buf) != HC_OK ||
+	    report_add_note(rep, "risk figures are annualised sample estimates from the universe's history; funds with ids missing from the universe have them computed on the remaining weights, renormalised (risk_on_subset)") != HC_OK ||
+	    report_add_note(rep, "the UCITS (2009/65/EC Art. 52), Investment Company Act of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3) screens are written from memory of the published texts and test weights only: verify against the current text and defer to compliance counsel") != HC_OK)
+		return HC_ENOMEM;
+	return report_add_cautions(rep) == HC_OK ? HC_OK : HC_ENOMEM;
+}
+
+int audit_report(struct report **out, const struct audit_result *a,
+		 const struct holdings *h, struct hc_error *err)
+{
+	struct report *rep = report_alloc();
+	int rc;
+
+	*out = NULL;
+	if (!rep)
+		return hc_error(err, HC_ENOMEM, "out of memory building the audit report");
+	if ((rc = fields(rep, a)) != HC_OK || (rc = funds_table(rep, a)) != HC_OK ||
+	    (rc = screens_table(rep, a)) != HC_OK || (rc = missing_table(rep, a)) != HC_OK ||
+	    (rc = sectors_table(rep, a)) != HC_OK || (rc = notes(rep, a, h)) != HC_OK) {
+		report_free(rep);
+		return hc_error(err, rc, rc == HC_ENOMEM ? "out of memory building the audit report"
+				: "the audit report's policy text is too long");
+	}
+	*out = rep;
+	return HC_OK;
+}

@@ -1,0 +1,361 @@
+/*
+ * bootstrap.c - moving-block and stationary bootstrap of periods, with each
+ * replicate's average variance and covariance in O(T^2) (or O(MT)) from
+ * sums computed once, never from an M x M covariance matrix.
+ */
+#include "holdcount/bootstrap.h"
+
+#include <math.h>
+#include <omp.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_cblas.h>
+
+#include "holdcount/memory.h"
+
+void bootstrap_options_init(struct bootstrap_options *opt)
+{
+	memset(opt, 0, sizeof *opt);
+	opt->replicates = BOOTSTRAP_DEFAULT_REPLICATES;
+	opt->kind = BOOTSTRAP_BLOCK;
+	opt->seed = 1;
+}
+
+size_t bootstrap_default_block_length(size_t t)
+{
+	double l = floor(cbrt((double)t) + 0.5);
+
+	return l < 1 ? 1 : (size_t)l;
+}
+
+const char *bootstrap_kind_name(int kind)
+{
+	switch (kind) {
+	case BOOTSTRAP_BLOCK: return "block";
+	case BOOTSTRAP_STATIONARY: return "stationary";
+	default: return NULL;
+	}
+}
+
+/* splitmix64 (Steele, Lea & Flood, 2014, OOPSLA), the same step as
+ * sampler_splitmix64; kept here so the bootstrap does not depend on the
+ * sampler.  It is also the replicate's stream generator: its output passes
+ * BigCrush, and a stream needs only T draws. */
+static uint64_t splitmix64(uint64_t *state)
+{
+	uint64_t z = (*state += 0x9E3779B97F4A7C15ULL);
+
+	z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
+	z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
+	return z ^ (z >> 31);
+}
+
+/* Replicate rep's stream state from (seed, rep): the replicate number is
+ * mixed first so that neighbouring (seed, rep) pairs give unrelated
+ * streams. */
+static uint64_t replicate_state(uint64_t seed, size_t rep)
+{
+	uint64_t a = (uint64_t)rep, s;
+
+	s = seed ^ splitmix64(&a);
+	return splitmix64(&s);
+}
+
+/* Uniform integer in 0..n-1 without modulo bias: reject the low
+ * (2^64 mod n) outputs. */
+static uint64_t uniform_below(uint64_t *state, uint64_t n)
+{
+	uint64_t threshold = (0 - n) % n, x;
+
+	do
+		x = splitmix64(state);
+	while (x < threshold);
+	return x % n;
+}
+
+/* Uniform double in [0, 1) from the top 53 bits. */
+static double uniform01(uint64_t *state)
+{
+	return (double)(splitmix64(state) >> 11) * 0x1.0p-53;
+}
+
+int bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
+		      size_t rep, size_t *idx, struct hc_error *err)
+{
+	uint64_t st = replicate_state(seed, rep);
+	size_t k, pos, l = block_length;
+
+	if (t == 0 || l < 1 || l > t)
+		return hc_error(err, HC_EUSAGE, "bad block length %zu: expected 1 to %zu periods", l, t);
+	if (kind == BOOTSTRAP_BLOCK) {
+		/* Kuensch (1989): blocks start uniformly in 0..T-L. */
+		for (k = 0; k < t; k += l) {
+			size_t start = (size_t)uniform_below(&st, t - l + 1), j;
+
+			for (j = 0; j < l && k + j < t; j++)
+				idx[k + j] = start + j;
+		}
+		return HC_OK;
+	}
+	if (kind != BOOTSTRAP_STATIONARY)
+		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", kind);
+	/* Politis & Romano (1994): each period starts a new block with
+	 * probability 1/L at a uniform position, else follows the previous one,
+	 * wrapping circularly. */
+	pos = (size_t)uniform_below(&st, t);
+	idx[0] = pos;
+	for (k = 1; k < t; k++) {
+		if (uniform01(&st) * (double)l < 1.0)
+			pos = (size_t)uniform_below(&st, t);
+		else
+			pos = pos + 1 == t ? 0 : pos + 1;
+		idx[k] = pos;
+	}
+	return HC_OK;
+}
+
+void bootstrap_base_free(struct bootstrap_base *b)
+{
+	if (!b)
+		return;
+	hc_free(b->rowsum);
+	hc_free(b->gram);
+	hc_free(b->xc);
+	hc_free(b);
+}
+
+/* Centre each security's series by its mean (two passes). */
+static void centre(const struct universe *u, double *xc)
+{
+	size_t i, t;
+
+	for (i = 0; i < u->m; i++) {
+		const double *x = u->x + i * u->t;
+		double *y = xc + i * u->t, mean = 0;
+
+		for (t = 0; t < u->t; t++)
+			mean += x[t];
+		mean /= (double)u->t;
+		for (t = 0; t < u->t; t++)
+			y[t] = x[t] - mean;
+	}
+}
+
+int bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *u,
+			 struct hc_error *err)
+{
+	struct bootstrap_base *b = NULL;
+	size_t mt, tt, i, t;
+	int status = HC_OK;
+
+	*out = NULL;
+	if (u->has_missing)
+		return hc_error(err, HC_EDATA, "the bootstrap needs complete data: '%s' has missing returns", u->source ? u->source : "universe");
+	if (u->m < 2 || u->t < 2)
+		return hc_error(err, HC_EDATA, "the bootstrap needs at least two securities and two periods");
+	if (hc_mul_size(u->m, u->t, &mt) || hc_mul_size(u->t, u->t, &tt))
+		return hc_error(err, HC_ENOMEM, "universe too large for the bootstrap");
+	b = hc_calloc(1, sizeof *b);
+	if (!b)
+		return hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
+	b->m = u->m;
+	b->t = u->t;
+	b->rowsum = hc_calloc(u->t, sizeof *b->rowsum);
+	b->xc = hc_malloc(mt * sizeof *b->xc);
+	if (!b->rowsum || !b->xc) {
+		status = hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
+		goto cleanup;
+	}
+	centre(u, b->xc);
+	for (i = 0; i < u->m; i++)
+		for (t = 0; t < u->t; t++)
+			b->rowsum[t] += b->xc[i * u->t + t];
+	if (u->t <= u->m) {
+		b->gram = hc_malloc(tt * sizeof *b->gram);
+		if (!b->gram) {
+			status = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu Gram matrix", u->t, u->t);
+			goto cleanup;
+		}
+		/* G = X^T X with X the m x t security-major centred data. */
+		cblas_dsyrk(CblasRowMajor, CblasUpper, CblasTrans, (int)u->t, (int)u->m,
+			    1.0, b->xc, (int)u->t, 0.0, b->gram, (int)u->t);
+		for (t = 0; t < u->t; t++)
+			for (i = 0; i < t; i++)
+				b->gram[t * u->t + i] = b->gram[i * u->t + t];
+		hc_free(b->xc);
+		b->xc = NULL;
+	}
+cleanup:
+	if (status != HC_OK) {
+		bootstrap_base_free(b);
+		return status;
+	}
+	*out = b;
+	return HC_OK;
+}
+
+/* sum_i A_ii times (T-1), by the Gram matrix: sum_t w_t G_tt - w^T G w / T. */
+static double trace_gram(const struct bootstrap_base *b, const double *w)
+{
+	size_t n = b->t, s, k;
+	double diag = 0, quad = 0;
+
+	for (s = 0; s < n; s++) {
+		const double *g = b->gram + s * n;
+		double dot = 0;
+
+		if (w[s] == 0)
+			continue;
+		diag += w[s] * g[s];
+#pragma omp simd reduction(+:dot)
+		for (k = 0; k < n; k++)
+			dot += g[k] * w[k];
+		quad += w[s] * dot;
+	}
+	return diag - quad / (double)n;
+}
+
+/* The same from the centred data, O(MT): for T > M. */
+static double trace_direct(const struct bootstrap_base *b, const double *w)
+{
+	size_t i, k, n = b->t;
+	double tr = 0;
+
+	for (i = 0; i < b->m; i++) {
+		const double *x = b->xc + i * n;
+		double s1 = 0, s2 = 0;
+
+#pragma omp simd reduction(+:s1, s2)
+		for (k = 0; k < n; k++) {
+			s1 += w[k] * x[k];
+			s2 += w[k] * x[k] * x[k];
+		}
+		tr += s2 - s1 * s1 / (double)n;
+	}
+	return tr;
+}
+
+void bootstrap_moments(const struct bootstrap_base *b, const double *w,
+		       double *vbar, double *cbar)
+{
+	size_t k, n = b->t;
+	double s1 = 0, s2 = 0, total, trace, m = (double)b->m;
+
+	for (k = 0; k < n; k++) {
+		s1 += w[k] * b->rowsum[k];
+		s2 += w[k] * b->rowsum[k] * b->rowsum[k];
+	}
+	/* Sum of every entry of A = sample variance of the row-sum series. */
+	total = (s2 - s1 * s1 / (double)n) / (double)(n - 1);
+	trace = (b->gram ? trace_gram(b, w) : trace_direct(b, w)) / (double)(n - 1);
+	*vbar = trace / m;
+	*cbar = (total - trace) / (m * (m - 1));
+}
+
+void bootstrap_result_free(struct bootstrap_result *r)
+{
+	if (!r)
+		return;
+	hc_free(r->vbar);
+	hc_free(r->cbar);
+	hc_free(r);
+}
+
+/* One replicate into slot rep, with the thread's own idx and w (t each). */
+static void run_one(const struct bootstrap_base *b, const struct bootstrap_options *opt,
+		    size_t l, size_t rep, size_t *idx, double *w,
+		    struct bootstrap_result *r)
+{
+	size_t k;
+
+	/* Arguments were checked before the parallel region, so this cannot fail. */
+	bootstrap_indices(opt->kind, b->t, l, opt->seed, rep, idx, NULL);
+	memset(w, 0, b->t * sizeof *w);
+	for (k = 0; k < b->t; k++)
+		w[idx[k]] += 1;
+	bootstrap_moments(b, w, &r->vbar[rep], &r->cbar[rep]);
+}
+
+int bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
+		  const struct bootstrap_options *opt, struct hc_error *err)
+{
+	struct bootstrap_result *r = NULL;
+	size_t l, **idx = NULL, nb = 0, done = 0;
+	double **w = NULL;
+	int nthreads, th, status = HC_OK, stop = 0;
+	long long rep;
+
+	*out = NULL;
+	if (opt->replicates == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (!bootstrap_kind_name(opt->kind))
+		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", opt->kind);
+	l = opt->block_length ? opt->block_length : bootstrap_default_block_length(b->t);
+	if (l > b->t)
+		return hc_error(err, HC_EUSAGE, "bad block length %zu: longer than the %zu periods", l, b->t);
+	nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads();
+	r = hc_calloc(1, sizeof *r);
+	idx = hc_calloc((size_t)nthreads, sizeof *idx);
+	w = hc_calloc((size_t)nthreads, sizeof *w);
+	if (!r || !idx || !w)
+		goto nomem;
+	r->replicates = opt->replicates;
+	r->block_length = l;
+	r->kind = opt->kind;
+	r->vbar = hc_malloc(opt->replicates * sizeof *r->vbar);
+	r->cbar = hc_malloc(opt->replicates * sizeof *r->cbar);
+	if (!r->vbar || !r->cbar)
+		goto nomem;
+	for (nb = 0; nb < (size_t)nthreads; nb++) {
+		idx[nb] = hc_malloc(b->t * sizeof **idx);
+		w[nb] = hc_malloc(b->t * sizeof **w);
+		if (!idx[nb] || !w[nb]) {
+			nb++;
+			goto nomem;
+		}
+	}
+#pragma omp parallel for schedule(dynamic, 4) num_threads(nthreads) private(th)
+	for (rep = 0; rep < (long long)opt->replicates; rep++) {
+		int halt;
+
+		th = omp_get_thread_num();
+#pragma omp atomic read
+		halt = stop;
+		if (halt)
+			continue;
+		run_one(b, opt, l, (size_t)rep, idx[th], w[th], r);
+#pragma omp atomic
+		done++;
+		if (th == 0 && opt->progress) {
+			size_t d;
+
+#pragma omp atomic read
+			d = done;
+			if (opt->progress(opt->progress_ctx, d, opt->replicates)) {
+#pragma omp atomic write
+				stop = 1;
+			}
+		}
+	}
+	if (stop) {
+		status = hc_error(err, HC_EINTERRUPT, "bootstrap stopped after %zu of %zu replicates", done, opt->replicates);
+		goto cleanup;
+	}
+	*out = r;
+	r = NULL;
+	goto cleanup;
+nomem:
+	status = hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap replicates", opt->replicates);
+cleanup:
+	if (idx)
+		for (size_t k = 0; k < nb; k++)
+			hc_free(idx[k]);
+	if (w)
+		for (size_t k = 0; k < nb; k++)
+			hc_free(w[k]);
+	hc_free(idx);
+	hc_free(w);
+	bootstrap_result_free(r);
+	return status;
+}

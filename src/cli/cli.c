@@ -1,0 +1,636 @@
+/*
+ * cli.c - option tables, parsing and help, shared by every command.
+ *
+ * The parser and the help printer walk the same tables (cli.h), which is
+ * what keeps `--help`, `help COMMAND` and the behaviour in step.
+ */
+#define _POSIX_C_SOURCE 200809L
+
+#include "cli.h"
+
+#include <errno.h>
+#include <math.h>
+#include <signal.h>
+#include <stdarg.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+#include <unistd.h>
+
+#include "holdcount/memory.h"
+#include "holdcount/outfile.h"
+#include "holdcount/universe.h"
+
+#define HELP_WIDTH 79
+#define HELP_INDENT 30
+
+/* ---- the shared groups --------------------------------------------------- */
+
+static const char *const format_words[] = { "table", "csv", "json", NULL };
+static const char *const missing_words[] = { "complete", "pairwise", NULL };
+static const char *const layout_words[] = { "wide", "long", NULL };
+
+#define OUT(f) offsetof(struct cli_output, f)
+static const struct cli_option output_options[] = {
+	{ "format", 0, CLI_CHOICE, OUT(format), NULL, "output format", format_words, "table" },
+	{ "output", 'o', CLI_STRING, OUT(output), "FILE",
+	  "write to FILE instead of standard output; FILE appears complete or not at all", NULL, NULL },
+	{ "quiet", 'q', CLI_FLAG, OUT(quiet), NULL, "no progress display on standard error", NULL, NULL },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_output = { "output options", output_options };
+
+#define UNI(f) offsetof(struct cli_universe, f)
+static const struct cli_option universe_options[] = {
+	{ "prices", 0, CLI_FLAG, UNI(prices), NULL,
+	  "cells are prices; simple returns are computed from them", NULL, NULL },
+	{ "log-returns", 0, CLI_FLAG, UNI(log_returns), NULL,
+	  "with --prices, compute log returns instead of simple returns", NULL, NULL },
+	{ "percent", 0, CLI_FLAG, UNI(percent), NULL,
+	  "cells are percents (2.5 means 2.5%); a trailing % on a cell says the same", NULL, NULL },
+	{ "missing", 0, CLI_CHOICE, UNI(missing), NULL,
+	  "securities with gaps: drop them (complete), or keep those meeting --min-coverage "
+	  "and use pairwise-complete covariances (pairwise)", missing_words, "complete" },
+	{ "min-coverage", 0, CLI_FRACTION, UNI(min_coverage), "F",
+	  "share of the periods a security must cover to be kept under --missing pairwise, "
+	  "as 0.8 or 80%", NULL, "80%" },
+	{ "periods-per-year", 0, CLI_REAL, UNI(periods_per_year), "P",
+	  "periods per year, for annualising", NULL, "detected from the dates" },
+	{ "layout", 0, CLI_CHOICE, UNI(layout), NULL,
+	  "wide: a date column, then one column per security; long: date,id,value rows",
+	  layout_words, "wide" },
+	{ "date-column", 0, CLI_STRING, UNI(date_column), "NAME",
+	  "name of the date column", NULL, "the first column (wide), 'date' (long)" },
+	{ "id-column", 0, CLI_STRING, UNI(id_column), "NAME",
+	  "long layout: name of the security id column", NULL, "id" },
+	{ "value-column", 0, CLI_STRING, UNI(value_column), "NAME",
+	  "long layout: name of the value column", NULL, "value" },
+	{ "delimiter", 0, CLI_STRING, UNI(delimiter), "CHAR",
+	  "field delimiter, ',' or ';'", NULL, "detected from the header" },
+	{ "max-memory", 0, CLI_COUNT, UNI(max_memory_mib), "MIB",
+	  "refuse inputs whose numbers need more than MIB mebibytes", NULL, "from available memory" },
+	{ "covariance", 0, CLI_FLAG, UNI(covariance), NULL,
+	  "the file is a covariance matrix (ids in the header row and first column), "
+	  "not a return history", NULL, NULL },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_universe = { "universe options", universe_options };
+
+#define SAM(f) offsetof(struct cli_sampling, f)
+static const struct cli_option sampling_options[] = {
+	{ "sizes", 0, CLI_STRING, SAM(sizes), "LIST",
+	  "holding counts, as 1,2,5-30,50,100", NULL, "1 to 10, then a log-spaced grid up to every security" },
+	{ "paths", 0, CLI_COUNT, SAM(paths), "K",
+	  "random portfolios per holding count; 0 skips sampling", NULL, "10000" },
+	{ "seed", 0, CLI_U64, SAM(seed), "S",
+	  "seed of the random portfolios; the same seed gives the same output", NULL, "1" },
+	{ "threads", 0, CLI_COUNT, SAM(threads), "N",
+	  "threads for sampling; the output does not depend on it", NULL,
+	  "$HOLDCOUNT_THREADS, else every core" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_sampling = { "sampling options", sampling_options };
+
+#define SUM(f) offsetof(struct cli_summary, f)
+static const struct cli_option summary_options[] = {
+	{ "average-variance", 0, CLI_REAL, SUM(average_variance), "V",
+	  "average variance of one security, on any scale", NULL, NULL },
+	{ "average-covariance", 0, CLI_REAL, SUM(average_covariance), "C",
+	  "average covariance of two distinct securities, on the same scale", NULL, NULL },
+	{ "average-sd", 0, CLI_FRACTION, SUM(average_sd), "S",
+	  "average standard deviation of one security, as 0.3 or 30% (instead of --average-variance)",
+	  NULL, NULL },
+	{ "average-correlation", 0, CLI_FRACTION, SUM(average_correlation), "R",
+	  "average correlation of two distinct securities (instead of --average-covariance)", NULL, NULL },
+	{ "securities", 0, CLI_COUNT, SUM(securities), "M",
+	  "securities in the universe, for the finite-universe formulas", NULL, "unbounded" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_summary = { "summary statistics", summary_options };
+
+void cli_output_init(struct cli_output *o)
+{
+	o->format = CLI_FORMAT_TABLE;
+	o->output = NULL;
+	o->quiet = 0;
+}
+
+void cli_universe_init(struct cli_universe *u)
+{
+	memset(u, 0, sizeof *u);
+	u->missing = CLI_MISSING_COMPLETE;
+	u->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
+	u->layout = CLI_LAYOUT_WIDE;
+}
+
+void cli_sampling_init(struct cli_sampling *s)
+{
+	s->sizes = NULL;
+	s->paths = CLI_DEFAULT_PATHS;
+	s->seed = CLI_DEFAULT_SEED;
+	s->threads = 0;
+}
+
+void cli_summary_init(struct cli_summary *s)
+{
+	s->average_variance = s->average_covariance = NAN;
+	s->average_sd = s->average_correlation = NAN;
+	s->securities = 0;
+}
+
+/* ---- parsing values ------------------------------------------------------ */
+
+/* Each returns 0 and stores, or -1 with *expected naming what was wanted. */
+
+static int parse_count(const char *s, size_t *out)
+{
+	unsigned long long v;
+	char *end;
+
+	if (!*s || strspn(s, "0123456789") != strlen(s))
+		return -1;
+	errno = 0;
+	v = strtoull(s, &end, 10);
+	if (errno || v > SIZE_MAX)
+		return -1;
+	*out = (size_t)v;
+	return 0;
+}
+
+static int parse_u64(const char *s, uint64_t *out)
+{
+	unsigned long long v;
+	char *end;
+
+	if (!*s || strspn(s, "0123456789") != strlen(s))
+		return -1;
+	errno = 0;
+	v = strtoull(s, &end, 10);
+	if (errno || v > UINT64_MAX)
+		return -1;
+	*out = (uint64_t)v;
+	return 0;
+}
+
+static int parse_real(const char *s, size_t len, double *out)
+{
+	char buf[128], *end;
+	double v;
+
+	if (len == 0 || len >= sizeof buf || strchr(" \t\n", s[0]))
+		return -1;
+	memcpy(buf, s, len);
+	buf[len] = '\0';
+	errno = 0;
+	v = strtod(buf, &end);
+	if (*end || errno == ERANGE || !isfinite(v))
+		return -1;
+	*out = v;
+	return 0;
+}
+
+static int store_value(const struct cli_option *op, void *where, const char *val)
+{
+	size_t len = strlen(val);
+	size_t i;
+
+	switch (op->kind) {
+	case CLI_STRING:
+		*(const char **)where = val;
+		return 0;
+	case CLI_COUNT:
+		return parse_count(val, where);
+	case CLI_U64:
+		return parse_u64(val, where);
+	case CLI_REAL:
+		return parse_real(val, len, where);
+	case CLI_FRACTION:
+		if (len > 1 && val[len - 1] == '%') {
+			if (parse_real(val, len - 1, where))
+				return -1;
+			*(double *)where /= 100.0;
+			return 0;
+		}
+		return parse_real(val, len, where);
+	case CLI_CHOICE:
+		for (i = 0; op->choices[i]; i++)
+			if (strcmp(op->choices[i], val) == 0) {
+				*(int *)where = (int)i;
+				return 0;
+			}
+		return -1;
+	default:
+		return -1;
+	}
+}
+
+static const char *expected_text(const struct cli_option *op, char *buf, size_t size)
+{
+	size_t i, used = 0;
+
+	switch (op->kind) {
+	case CLI_COUNT: return "a whole number (0, 1, 2, ...)";
+	case CLI_U64: return "a whole number from 0 to 18446744073709551615";
+	case CLI_REAL: return "a finite number";
+	case CLI_FRACTION: return "a number, or a percent such as 10%";
+	case CLI_CHOICE:
+		used = (size_t)snprintf(buf, size, "one of ");
+		for (i = 0; op->choices[i] && used < size; i++)
+			used += (size_t)snprintf(buf + used, size - used, "%s%s",
+					       i ? (op->choices[i + 1] ? ", " : " or ") : "", op->choices[i]);
+		return buf;
+	default: return "a value";
+	}
+}
+
+/* ---- parsing the command line -------------------------------------------- */
+
+static int usage_fail(const struct cli_command *cmd, const char *fmt, ...)
+	__attribute__((format(printf, 2, 3)));
+
+static int usage_fail(const struct cli_command *cmd, const char *fmt, ...)
+{
+	va_list ap;
+
+	fprintf(stderr, "holdcount %s: ", cmd->name);
+	va_start(ap, fmt);
+	vfprintf(stderr, fmt, ap);
+	va_end(ap);
+	fprintf(stderr, " (see 'holdcount %s --help')\n", cmd->name);
+	return HC_EUSAGE;
+}
+
+/* Find a long option (name of length len) or a short one (len 0) among
+ * the command's groups; sets *base to the group's storage. */
+static const struct cli_option *find_option(const struct cli_command *cmd, const char *name,
+					    size_t len, char shortc, void *opts, char **base)
+{
+	const struct cli_group_use *g;
+	const struct cli_option *op;
+
+	for (g = cmd->groups; g && g->group; g++)
+		for (op = g->group->options; op->name; op++) {
+			if (len ? (strlen(op->name) == len && strncmp(op->name, name, len) == 0)
+				: (shortc && op->short_name == shortc)) {
+				*base = (char *)opts + g->offset;
+				return op;
+			}
+		}
+	return NULL;
+}
+
+/* HOLDCOUNT_THREADS as the default of --threads (issue 8). */
+static int threads_from_environment(const struct cli_command *cmd, void *opts)
+{
+	const struct cli_group_use *g;
+	const char *env = getenv("HOLDCOUNT_THREADS");
+	size_t n;
+
+	if (!env || !*env)
+		return HC_OK;
+	for (g = cmd->groups; g && g->group; g++) {
+		if (g->group != &cli_group_sampling)
+			continue;
+		if (parse_count(env, &n) || n == 0) {
+			fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be a whole number from 1, found '%s'\n",
+				cmd->name, env);
+			return HC_EUSAGE;
+		}
+		((struct cli_sampling *)((char *)opts + g->offset))->threads = n;
+	}
+	return HC_OK;
+}
+
+static int take_option(const struct cli_command *cmd, struct cli_args *a, void *opts,
+		       int argc, char **argv, int *i)
+{
+	const char *arg = argv[*i], *val = NULL, *eq;
+	const struct cli_option *op;
+	char *base = NULL;
+
+	if (arg[1] == '-') {
+		eq = strchr(arg + 2, '=');
+		op = find_option(cmd, arg + 2, eq ? (size_t)(eq - arg - 2) : strlen(arg + 2), 0, opts, &base);
+		if (eq)
+			val = eq + 1;
+		if (!op)
+			return usage_fail(cmd, "unknown option '%.*s'", (int)(eq ? eq - arg : (long)strlen(arg)), arg);
+	} else {
+		op = arg[1] ? find_option(cmd, NULL, 0, arg[1], opts, &base) : NULL;
+		if (!op)
+			return usage_fail(cmd, "unknown option '%.2s'", arg);
+		if (arg[2])
+			val = arg + 2;
+	}
+	a->given[a->ngiven++] = op;
+	if (op->kind == CLI_FLAG) {
+		if (val)
+			return usage_fail(cmd, "option '--%s' takes no value, found '%s'", op->name, val);
+		*(int *)(base + op->offset) = 1;
+		return HC_OK;
+	}
+	if (!val) {
+		if (*i + 1 >= argc)
+			return usage_fail(cmd, "option '--%s' needs a value", op->name);
+		val = argv[++*i];
+	}
+	if (store_value(op, base + op->offset, val)) {
+		char buf[160];
+		return usage_fail(cmd, "option '--%s' expects %s, found '%s'", op->name,
+				  expected_text(op, buf, sizeof buf), val);
+	}
+	return HC_OK;
+}
+
+static int is_help(const char *arg)
+{
+	return strcmp(arg, "-h") == 0 || strcmp(arg, "--help") == 0;
+}
+
+int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, struct cli_args *a)
+{
+	int i, rc, options_done = 0;
+	size_t n = argc > 0 ? (size_t)argc : 1;
+
+	memset(a, 0, sizeof *a);
+	a->cmd = cmd;
+	for (i = 1; i < argc; i++)
+		if (strcmp(argv[i], "--") == 0)
+			break;
+		else if (is_help(argv[i])) {
+			cli_print_help(stdout, cmd);
+			return fflush(stdout) == 0 ? CLI_HELP_SHOWN : HC_EIO;
+		}
+	a->positional = hc_calloc(n, sizeof *a->positional);
+	a->given = hc_calloc(n, sizeof *a->given);
+	if (!a->positional || !a->given) {
+		fprintf(stderr, "holdcount %s: out of memory\n", cmd->name);
+		cli_args_release(a);
+		return HC_ENOMEM;
+	}
+	rc = threads_from_environment(cmd, opts);
+	for (i = 1; rc == HC_OK && i < argc; i++) {
+		const char *arg = argv[i];
+		if (!options_done && strcmp(arg, "--") == 0)
+			options_done = 1;
+		else if (!options_done && arg[0] == '-' && arg[1])
+			rc = take_option(cmd, a, opts, argc, argv, &i);
+		else
+			a->positional[a->npositional++] = argv[i];
+	}
+	if (rc == HC_OK && a->npositional < cmd->min_positional)
+		rc = usage_fail(cmd, "missing %s", cmd->usage);
+	if (rc == HC_OK && a->npositional > cmd->max_positional)
+		rc = usage_fail(cmd, "unexpected argument '%s'", a->positional[cmd->max_positional]);
+	if (rc != HC_OK)
+		cli_args_release(a);
+	return rc;
+}
+
+void cli_args_release(struct cli_args *a)
+{
+	hc_free(a->positional);
+	hc_free(a->given);
+	a->positional = NULL;
+	a->given = NULL;
+	a->npositional = a->ngiven = 0;
+}
+
+int cli_parse_status(int rc)
+{
+	return rc == CLI_HELP_SHOWN ? HC_OK : rc;
+}
+
+int cli_given(const struct cli_args *a, const char *name)
+{
+	size_t i;
+
+	for (i = 0; i < a->ngiven; i++)
+		if (strcmp(a->given[i]->name, name) == 0)
+			return 1;
+	return 0;
+}
+
+/* ---- help ---------------------------------------------------------------- */
+
+/* Print text wrapped to HELP_WIDTH, continuation lines indented by indent;
+ * the first line starts at column col. */
+static void wrap(FILE *fp, const char *text, size_t col, size_t indent)
+{
+	const char *p = text;
+
+	while (*p) {
+		size_t word = strcspn(p, " ");
+		if (col > indent && col + 1 + word > HELP_WIDTH) {
+			fprintf(fp, "\n%*s", (int)indent, "");
+			col = indent;
+		} else if (col > indent) {
+			fputc(' ', fp);
+			col++;
+		}
+		fwrite(p, 1, word, fp);
+		col += word;
+		p += word;
+		while (*p == ' ')
+			p++;
+	}
+	fputc('\n', fp);
+}
+
+static void print_option(FILE *fp, const struct cli_option *op)
+{
+	char left[128], help[512];
+	size_t used, i;
+
+	used = (size_t)snprintf(left, sizeof left, "  %c%c%s--%s", op->short_name ? '-' : ' ',
+				op->short_name ? op->short_name : ' ', op->short_name ? ", " : "  ", op->name);
+	if (op->kind == CLI_CHOICE) {
+		for (i = 0; op->choices[i] && used < sizeof left; i++)
+			used += (size_t)snprintf(left + used, sizeof left - used, "%c%s", i ? '|' : ' ', op->choices[i]);
+	} else if (op->kind != CLI_FLAG && used < sizeof left) {
+		used += (size_t)snprintf(left + used, sizeof left - used, " %s", op->metavar ? op->metavar : "VALUE");
+	}
+	if (op->default_text)
+		snprintf(help, sizeof help, "%s (default: %s)", op->help, op->default_text);
+	else
+		snprintf(help, sizeof help, "%s", op->help);
+	fputs(left, fp);
+	if (used + 2 > HELP_INDENT) {
+		fprintf(fp, "\n%*s", HELP_INDENT, "");
+	} else {
+		fprintf(fp, "%*s", (int)(HELP_INDENT - used), "");
+	}
+	wrap(fp, help, HELP_INDENT, HELP_INDENT);
+}
+
+void cli_print_help(FILE *fp, const struct cli_command *cmd)
+{
+	static const struct cli_option help_option = {
+		"help", 'h', CLI_FLAG, 0, NULL, "show this help and exit", NULL, NULL };
+	const struct cli_group_use *g;
+	const struct cli_option *op;
+
+	fprintf(fp, "usage: holdcount %s%s%s [OPTIONS]\n\n", cmd->name, *cmd->usage ? " " : "", cmd->usage);
+	wrap(fp, cmd->summary, 0, 0);
+	if (cmd->description && *cmd->description) {
+		fputc('\n', fp);
+		wrap(fp, cmd->description, 0, 0);
+	}
+	fputs("\noptions:\n", fp);
+	print_option(fp, &help_option);
+	for (g = cmd->groups; g && g->group; g++) {
+		if (!g->group->options[0].name)
+			continue;
+		fprintf(fp, "\n%s:\n", g->group->title);
+		for (op = g->group->options; op->name; op++)
+			print_option(fp, op);
+	}
+	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
+	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted.\n", fp);
+}
+
+void cli_print_main_help(FILE *fp)
+{
+	size_t i;
+
+	fputs("usage: holdcount COMMAND [OPTIONS] [ARGUMENTS]\n"
+	      "       holdcount help [COMMAND]\n"
+	      "       holdcount --version\n\n", fp);
+	wrap(fp, "How portfolio risk falls as the number of holdings grows, for a universe of "
+	     "securities, and past which count extra holdings add little.", 0, 0);
+	fputs("\ncommands:\n", fp);
+	for (i = 0; cli_commands[i]; i++) {
+		fprintf(fp, "  %-12s", cli_commands[i]->name);
+		wrap(fp, cli_commands[i]->summary, 14, 14);
+	}
+	fputs("\n'holdcount help COMMAND' or 'holdcount COMMAND --help' shows a command's options.\n"
+	      "Environment: HOLDCOUNT_THREADS sets the default of --threads; NO_COLOR is honoured.\n", fp);
+}
+
+const struct cli_command *cli_find_command(const char *name)
+{
+	size_t i;
+
+	for (i = 0; name && cli_commands[i]; i++)
+		if (strcmp(cli_commands[i]->name, name) == 0)
+			return cli_commands[i];
+	return NULL;
+}
+
+/* ---- messages and output ------------------------------------------------- */
+
+int cli_fail(const char *cmd, const struct hc_error *err)
+{
+	fprintf(stderr, "holdcount %s: %s\n", cmd, err->message[0] ? err->message : hc_status_name(err->code));
+	return err->code ? err->code : HC_EINTERNAL;
+}
+
+int cli_usage_error(const char *cmd, const char *fmt, ...)
+{
+	va_list ap;
+
+	fprintf(stderr, "holdcount %s: ", cmd);
+	va_start(ap, fmt);
+	vfprintf(stderr, fmt, ap);
+	va_end(ap);
+	fputc('\n', stderr);
+	return HC_EUSAGE;
+}
+
+int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r)
+{
+	const struct report_writer *w = report_writer_find(format_words[o->format]);
+	struct outfile of;
+	struct hc_error err;
+	int rc;
+
+	hc_error_clear(&err);
+	if (!w)
+		return hc_error(&err, HC_EINTERNAL, "no writer for format %d", o->format), cli_fail(cmd, &err);
+	rc = outfile_open(&of, o->output, &err);
+	if (rc)
+		return cli_fail(cmd, &err);
+	rc = w->write(of.fp, r, &err);
+	if (rc) {
+		outfile_abort(&of);
+		return cli_fail(cmd, &err);
+	}
+	rc = outfile_commit(&of, &err);
+	return rc ? cli_fail(cmd, &err) : HC_OK;
+}
+
+/* ---- progress -------------------------------------------------------------- */
+
+static double now_seconds(void)
+{
+	struct timespec ts;
+
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+void cli_progress_init(struct cli_progress *p, const char *label, const char *unit, int quiet)
+{
+	p->label = label;
+	p->unit = unit;
+	p->enabled = !quiet && isatty(STDERR_FILENO);
+	p->start = now_seconds();
+	p->last_draw = 0.0;
+}
+
+int cli_progress_update(void *ctx, size_t done, size_t total)
+{
+	struct cli_progress *p = ctx;
+	double t, rate;
+	char bar[31];
+	size_t filled, i;
+
+	if (!p || !p->enabled || total == 0)
+		return 0;
+	t = now_seconds();
+	/* Redraw at most ten times a second: a terminal is slower than the loop. */
+	if (done < total && t - p->last_draw < 0.1)
+		return 0;
+	p->last_draw = t;
+	filled = done >= total ? 30 : 30 * done / total;
+	for (i = 0; i < 30; i++)
+		bar[i] = i < filled ? '#' : '.';
+	bar[30] = '\0';
+	rate = t > p->start ? (double)done / (t - p->start) : 0.0;
+	fprintf(stderr, "\r%s [%s] %3d%%  %.0f %s/s ", p->label, bar,
+		(int)(100.0 * (double)done / (double)total), rate, p->unit);
+	return 0;
+}
+
+void cli_progress_finish(struct cli_progress *p)
+{
+	if (p && p->enabled && p->last_draw > 0.0)
+		fprintf(stderr, "\r%*s\r", 70, "");
+}
+
+/* ---- signals --------------------------------------------------------------- */
+
+/* Only async-signal-safe calls here (POSIX.1-2008, 2.4.3): unlink, write,
+ * _exit. */
+static void on_signal(int sig)
+{
+	static const char msg[] = "holdcount: interrupted; partial output removed\n";
+	ssize_t ignored;
+
+	(void)sig;
+	outfile_unlink_pending();
+	ignored = write(STDERR_FILENO, msg, sizeof msg - 1);
+	(void)ignored;
+	_exit(HC_EINTERRUPT);
+}
+
+void cli_install_signal_handlers(void)
+{
+	struct sigaction sa;
+
+	memset(&sa, 0, sizeof sa);
+	sa.sa_handler = on_signal;
+	sigemptyset(&sa.sa_mask);
+	sigaction(SIGINT, &sa, NULL);
+	sigaction(SIGTERM, &sa, NULL);
+}

@@ -1,0 +1,270 @@
+/*
+ * cli.h - the command-line framework: option tables, parsing, help, output.
+ *
+ * Every command is described by one static table (struct cli_command), and
+ * everything a user sees about its options comes from that table: the
+ * parser, `holdcount COMMAND --help`, `holdcount help COMMAND` (the same
+ * text), and later the manual pages and shell completion.  Nothing about an
+ * option is written twice, so nothing can drift.
+ *
+ * HOW A COMMAND FILE USES THE FRAMEWORK (copy src/cli/cmd_describe.c):
+ *
+ *   1. A struct holding the command's parsed options; shared groups are
+ *      embedded as members:
+ *
+ *          struct frob_opts {
+ *              struct cli_output out;      // --format, --output, --quiet
+ *              struct cli_universe uni;    // --prices, --missing, ...
+ *              size_t widgets;             // the command's own option
+ *          };
+ *
+ *   2. The command's own options, offsets relative to its struct, ending
+ *      with an all-zero entry:
+ *
+ *          static const struct cli_option frob_own[] = {
+ *              { "widgets", 0, CLI_COUNT, offsetof(struct frob_opts, widgets),
+ *                "N", "how many widgets to frob", NULL, "3" },
+ *              { NULL }
+ *          };
+ *          static const struct cli_group frob_group = { "frob options", frob_own };
+ *
+ *   3. The groups it accepts, each with the offset of its struct, and the
+ *      command record (exported; list it in src/cli/commands.c):
+ *
+ *          static const struct cli_group_use frob_groups[] = {
+ *              { &frob_group, 0 },
+ *              { &cli_group_universe, offsetof(struct frob_opts, uni) },
+ *              { &cli_group_output, offsetof(struct frob_opts, out) },
+ *              { NULL, 0 }
+ *          };
+ *          const struct cli_command cli_command_frob = {
+ *              "frob", cmd_frob, "frob a universe", "UNIVERSE",
+ *              "Longer description, one paragraph.", 1, 1, frob_groups };
+ *
+ *   4. The command function: set defaults, parse, work, write a report:
+ *
+ *          int cmd_frob(int argc, char **argv)
+ *          {
+ *              struct frob_opts o;
+ *              struct cli_args a;
+ *              int rc;
+ *
+ *              memset(&o, 0, sizeof o);
+ *              cli_output_init(&o.out);
+ *              cli_universe_init(&o.uni);
+ *              o.widgets = 3;
+ *              rc = cli_parse(&cli_command_frob, argc, argv, &o, &a);
+ *              if (rc != HC_OK)
+ *                  return cli_parse_status(rc);   // 0 after --help, 2 on error
+ *              ... build a struct report r, then
+ *              rc = cli_write_report("frob", &o.out, r);  // prints its own errors
+ *              ...
+ *              cli_args_release(&a);
+ *              return rc;
+ *          }
+ *
+ *      Library failures: `return cli_fail("frob", &err);` prints
+ *      "holdcount frob: MESSAGE" and returns err.code (the exit status).
+ *      Long loops: struct cli_progress (a bar on stderr, only on a terminal
+ *      and without --quiet); its update function fits sampler_progress_fn.
+ *
+ * Values land in these C types: CLI_FLAG int (set to 1), CLI_STRING
+ * const char * (points into argv), CLI_COUNT size_t, CLI_REAL double,
+ * CLI_FRACTION double ("10%" or "0.10" both give 0.10), CLI_CHOICE int
+ * (index into the option's choices), CLI_U64 uint64_t.  A repeated option:
+ * the last one wins.  cli_given() says whether an option was on the line.
+ */
+#ifndef HOLDCOUNT_CLI_H
+#define HOLDCOUNT_CLI_H
+
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+
+#include "holdcount/error.h"
+#include "holdcount/report.h"
+
+enum cli_kind {
+	CLI_FLAG = 0,
+	CLI_STRING = 1,
+	CLI_COUNT = 2,
+	CLI_REAL = 3,
+	CLI_FRACTION = 4,
+	CLI_CHOICE = 5,
+	CLI_U64 = 6
+};
+
+struct cli_option {
+	const char *name;          /* long name without "--"; NULL ends a table */
+	char short_name;           /* 0 = none */
+	int kind;                  /* enum cli_kind */
+	size_t offset;             /* of the value in the group's struct */
+	const char *metavar;       /* value's placeholder in help ("FILE"); choices list themselves */
+	const char *help;          /* lower case, no final full stop */
+	const char *const *choices;/* CLI_CHOICE: NULL-terminated words */
+	const char *default_text;  /* shown as "(default: ...)"; NULL = none */
+};
+
+struct cli_group {
+	const char *title;         /* heading in help: "output options" */
+	const struct cli_option *options;
+};
+
+struct cli_group_use {
+	const struct cli_group *group;  /* NULL ends the list */
+	size_t offset;                  /* of the group's struct in the command's struct */
+};
+
+struct cli_command {
+	const char *name;
+	int (*run)(int argc, char **argv);   /* argv[0] is the command name */
+	const char *summary;                 /* one line, for `holdcount --help` */
+	const char *usage;                   /* positional arguments: "UNIVERSE" ("" = none) */
+	const char *description;             /* a paragraph; wrapped by the help printer */
+	size_t min_positional, max_positional;
+	const struct cli_group_use *groups;
+};
+
+/* ---- shared option groups ------------------------------------------------ */
+
+/* --format table|csv|json, --output/-o FILE, --quiet/-q */
+enum cli_format { CLI_FORMAT_TABLE = 0, CLI_FORMAT_CSV = 1, CLI_FORMAT_JSON = 2 };
+struct cli_output {
+	int format;                /* enum cli_format */
+	const char *output;        /* NULL or "-" = standard output */
+	int quiet;
+};
+extern const struct cli_group cli_group_output;
+void cli_output_init(struct cli_output *o);
+
+/* Universe loading (see include/holdcount/universe.h for the meanings). */
+enum cli_missing { CLI_MISSING_COMPLETE = 0, CLI_MISSING_PAIRWISE = 1 };
+enum cli_layout { CLI_LAYOUT_WIDE = 0, CLI_LAYOUT_LONG = 1 };
+struct cli_universe {
+	int prices;                /* cells are prices */
+	int log_returns;           /* with prices: log returns */
+	int percent;
+	int missing;               /* enum cli_missing */
+	double min_coverage;
+	double periods_per_year;   /* 0 = detect */
+	int layout;                /* enum cli_layout */
+	const char *date_column, *id_column, *value_column;
+	const char *delimiter;     /* "," or ";"; NULL = detect */
+	size_t max_memory_mib;     /* 0 = from available memory */
+	int covariance;            /* the positional file is a covariance matrix */
+};
+extern const struct cli_group cli_group_universe;
+void cli_universe_init(struct cli_universe *u);
+
+/* --sizes LIST, --paths K, --seed S, --threads N */
+#define CLI_DEFAULT_PATHS 10000
+#define CLI_DEFAULT_SEED 1
+struct cli_sampling {
+	const char *sizes;         /* NULL = the default grid */
+	size_t paths;
+	uint64_t seed;
+	size_t threads;            /* 0 = all cores (OpenMP's default) */
+};
+extern const struct cli_group cli_group_sampling;
+void cli_sampling_init(struct cli_sampling *s);
+
+/* --average-variance, --average-covariance, --average-sd,
+ * --average-correlation, --securities M */
+struct cli_summary {
+	double average_variance, average_covariance;
+	double average_sd, average_correlation;
+	size_t securities;         /* 0 = unbounded */
+};
+extern const struct cli_group cli_group_summary;
+void cli_summary_init(struct cli_summary *s);
+
+/* ---- parsing ------------------------------------------------------------- */
+
+#define CLI_HELP_SHOWN (-1)
+
+struct cli_args {
+	const struct cli_command *cmd;
+	size_t npositional;
+	char **positional;         /* into argv; array owned here */
+	size_t ngiven;
+	const struct cli_option **given;
+};
+
+/*
+ * Parse argv[1..argc-1] for cmd into the struct at opts (whose groups were
+ * given their defaults).  Returns HC_OK, CLI_HELP_SHOWN after printing the
+ * help to stdout for -h/--help, or HC_EUSAGE after printing one message to
+ * stderr, e.g. "holdcount curve: unknown option '--pathz' (see 'holdcount
+ * curve --help')".  After HC_OK release a with cli_args_release.
+ * The sampling group's --threads also falls back on HOLDCOUNT_THREADS here.
+ */
+int cli_parse(const struct cli_command *cmd, int argc, char **argv,
+	      void *opts, struct cli_args *a);
+void cli_args_release(struct cli_args *a);
+
+/* The exit status for a cli_parse result that is not HC_OK. */
+int cli_parse_status(int rc);
+
+/* Was the option with this long name on the command line? */
+int cli_given(const struct cli_args *a, const char *name);
+
+/* ---- help ---------------------------------------------------------------- */
+
+/* The help text of one command (identical for --help and `help COMMAND`). */
+void cli_print_help(FILE *fp, const struct cli_command *cmd);
+/* The top-level help: usage, commands with summaries, global options. */
+void cli_print_main_help(FILE *fp);
+
+/* Every command, in the order `holdcount --help` lists them; NULL-terminated.
+ * Defined in commands.c. */
+extern const struct cli_command *const cli_commands[];
+const struct cli_command *cli_find_command(const char *name);
+
+/* ---- messages, output, progress ------------------------------------------ */
+
+/* Print "holdcount CMD: MESSAGE" for a library failure; return its status
+ * (HC_EINTERNAL when err carries none). */
+int cli_fail(const char *cmd, const struct hc_error *err);
+
+/* Print "holdcount CMD: ..." for a usage problem found after parsing;
+ * returns HC_EUSAGE. */
+int cli_usage_error(const char *cmd, const char *fmt, ...)
+	__attribute__((format(printf, 2, 3)));
+
+/* Render r in the chosen format to --output (all or nothing, through
+ * outfile) or stdout.  Prints its own error; returns the exit status. */
+int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r);
+
+/* A progress bar with rate on stderr, shown only when stderr is a terminal
+ * and --quiet was not given. */
+struct cli_progress {
+	const char *label;         /* "sampling" */
+	const char *unit;          /* "paths" */
+	int enabled;
+	double start, last_draw;
+};
+void cli_progress_init(struct cli_progress *p, const char *label, const char *unit, int quiet);
+/* sampler_progress_fn-compatible: ctx is a struct cli_progress; returns 0. */
+int cli_progress_update(void *ctx, size_t done, size_t total);
+/* Clear the bar's line. */
+void cli_progress_finish(struct cli_progress *p);
+
+/* SIGINT/SIGTERM: remove any half-written output temporaries and exit 7. */
+void cli_install_signal_handlers(void);
+
+/* ---- commands -------------------------------------------------------------- */
+
+#define CLI_DECLARE_COMMAND(name) \
+	int cmd_##name(int argc, char **argv); \
+	extern const struct cli_command cli_command_##name
+
+CLI_DECLARE_COMMAND(describe);
+CLI_DECLARE_COMMAND(curve);
+CLI_DECLARE_COMMAND(formula);
+CLI_DECLARE_COMMAND(synth);
+CLI_DECLARE_COMMAND(enough);
+CLI_DECLARE_COMMAND(audit);
+CLI_DECLARE_COMMAND(report);
+CLI_DECLARE_COMMAND(rolling);
+
+#endif

@@ -1,0 +1,398 @@
+/*
+ * moments.c - the sums behind the exact curve (design.md section 3).
+ *
+ * Three routes from returns, chosen by the data's shape:
+ *   Gram     complete data, T < M: V, r_i and C from column sums in O(MT),
+ *            S + Q = ||A||_F^2 = ||X X^T||_F^2 / (T-1)^2 from the T x T Gram
+ *            matrix in O(T^2 M); no M x M matrix is formed.
+ *   matrix   complete data, T >= M: A = X^T X/(T-1) by BLAS dsyrk, O(M^2 T).
+ *   pairwise data with gaps: each covariance over the periods both
+ *            securities have (pairwise-complete), O(M^2 T).
+ * Sums over M or M^2 terms are accumulated in long double so that the
+ * spread formula's cancellation (E[X^2] - E[X]^2) starts from accurate sums.
+ */
+#include "holdcount/moments.h"
+
+#include <math.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <string.h>
+
+#include <gsl/gsl_cblas.h>
+
+#include "holdcount/memory.h"
+
+static const char *security_name(const struct universe *u, size_t i, char *buf, size_t len)
+{
+	if (u->ids && u->ids[i])
+		return u->ids[i];
+	snprintf(buf, len, "#%zu", i + 1);
+	return buf;
+}
+
+/* Derived figures common to every route with a finite universe. */
+static void finish(struct moments *mo)
+{
+	double m = (double)mo->m;
+
+	mo->average_variance = mo->sum_var / m;
+	mo->average_covariance = mo->sum_cov / (m * (m - 1.0));
+	mo->universe_variance = (mo->sum_var + mo->sum_cov) / (m * m);
+}
+
+/*
+ * V, C, S, Q, W, Z and the average correlation from a full M x M matrix.
+ * Off-diagonal entries are read as given (the caller supplies a symmetric
+ * matrix), each row sum r_i over j != i.
+ */
+static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
+			    struct hc_error *err)
+{
+	long double V = 0, C = 0, S = 0, Q = 0, W = 0, Z = 0, R = 0, r, c;
+	size_t i, j;
+
+	for (i = 0; i < m; i++) {
+		double v = a[i * m + i];
+		if (!isfinite(v) || v <= 0)
+			return hc_error(err, HC_EDATA,
+					"covariance matrix: variance of security %zu is %g, expected a positive number",
+					i + 1, v);
+	}
+	for (i = 0; i < m; i++) {
+		double v = a[i * m + i];
+		r = 0;
+		for (j = 0; j < m; j++) {
+			if (j == i)
+				continue;
+			c = a[i * m + j];
+			if (!isfinite(a[i * m + j]))
+				return hc_error(err, HC_EDATA,
+						"covariance matrix: entry (%zu, %zu) is not a finite number",
+						i + 1, j + 1);
+			r += c;
+			Q += c * c;
+			R += c / sqrtl((long double)v * a[j * m + j]);
+		}
+		V += v;
+		S += (long double)v * v;
+		W += v * r;
+		Z += r * r;
+		C += r;
+	}
+	mo->m = m;
+	mo->has_spread = 1;
+	mo->has_correlation = 1;
+	mo->sum_var = (double)V;
+	mo->sum_cov = (double)C;
+	mo->sum_var2 = (double)S;
+	mo->sum_cov2 = (double)Q;
+	mo->sum_var_rowcov = (double)W;
+	mo->sum_rowcov2 = (double)Z;
+	mo->average_correlation = (double)(R / ((long double)m * (m - 1)));
+	finish(mo);
+	return HC_OK;
+}
+
+int moments_from_matrix(struct moments *mo, const double *a, size_t m,
+			struct hc_error *err)
+{
+	memset(mo, 0, sizeof *mo);
+	if (m < 2)
+		return hc_error(err, HC_EDATA,
+				"covariance matrix has %zu securities, expected at least 2", m);
+	mo->route = MOMENTS_ROUTE_GIVEN;
+	return sums_from_matrix(mo, a, m, err);
+}
+
+int moments_from_summary(struct moments *mo, double vbar, double cbar,
+			 size_t m, struct hc_error *err)
+{
+	memset(mo, 0, sizeof *mo);
+	if (!isfinite(vbar) || vbar <= 0)
+		return hc_error(err, HC_EUSAGE,
+				"average variance %g is not a positive number", vbar);
+	if (!isfinite(cbar) || cbar > vbar)
+		return hc_error(err, HC_EUSAGE,
+				"average covariance %g is not a number at most the average variance %g",
+				cbar, vbar);
+	if (m == 1)
+		return hc_error(err, HC_EUSAGE,
+				"a universe of 1 security has nothing to diversify; expected at least 2");
+	/* A covariance matrix with equal variances and covariances is positive
+	 * semi-definite only when cbar >= -vbar/(M-1). */
+	if (m > 1 && cbar < -vbar / (double)(m - 1))
+		return hc_error(err, HC_EUSAGE,
+				"average covariance %g is below -%g/(%zu-1), which no %zu securities can have",
+				cbar, vbar, m, m);
+	if (m == 0 && cbar < 0)
+		return hc_error(err, HC_EUSAGE,
+				"average covariance %g is negative, which no unbounded universe can have", cbar);
+	mo->m = m;
+	mo->route = MOMENTS_ROUTE_SUMMARY;
+	mo->average_variance = vbar;
+	mo->average_covariance = cbar;
+	mo->average_correlation = cbar / vbar;
+	if (m > 0) {
+		mo->sum_var = vbar * (double)m;
+		mo->sum_cov = cbar * (double)m * (double)(m - 1);
+		mo->universe_variance = (mo->sum_var + mo->sum_cov) / ((double)m * (double)m);
+	} else {
+		mo->sum_var = NAN;
+		mo->sum_cov = NAN;
+		mo->universe_variance = cbar;
+	}
+	return HC_OK;
+}
+
+/* Centred copy of u's series (security-major), two-pass means; rejects a
+ * zero-variance security, which has no risk to diversify. */
+static int centred_copy(const struct universe *u, double **out, struct hc_error *err)
+{
+	size_t i, k, t = u->t, n;
+	double *xc, mean, ss;
+	char buf[32];
+
+	if (hc_mul_size(u->m, u->t, &n) || !(xc = hc_malloc(n * sizeof *xc)))
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu x %zu returns", u->m, u->t);
+	for (i = 0; i < u->m; i++) {
+		const double *x = u->x + i * t;
+		double *y = xc + i * t;
+		long double s = 0;
+		for (k = 0; k < t; k++)
+			s += x[k];
+		mean = (double)(s / t);
+		ss = 0;
+		for (k = 0; k < t; k++) {
+			y[k] = x[k] - mean;
+			ss += y[k] * y[k];
+		}
+		if (!(ss > 0)) {
+			hc_free(xc);
+			return hc_error(err, HC_EDATA, "security '%s' has zero variance",
+					security_name(u, i, buf, sizeof buf));
+		}
+	}
+	*out = xc;
+	return HC_OK;
+}
+
+static double dot(const double *a, const double *b, size_t n)
+{
+	double s = 0;
+	size_t k;
+
+	for (k = 0; k < n; k++)
+		s += a[k] * b[k];
+	return s;
+}
+
+/*
+ * Gram route.  With x_i the centred series and s = sum_i x_i,
+ *   v_i = x_i.x_i/(T-1),  r_i = x_i.s/(T-1) - v_i,  C = s.s/(T-1) - V,
+ *   Q = ||X X^T||_F^2/(T-1)^2 - S,
+ *   average correlation = (||sum_i x_i/|x_i| ||^2 - M)/(M(M-1)).
+ */
+static int route_gram(struct moments *mo, const struct universe *u, const double *xc,
+		      struct hc_error *err)
+{
+	size_t m = u->m, t = u->t, i, a, b;
+	double *s = NULL, *z = NULL, *g = NULL, d = (double)(t - 1);
+	long double V = 0, S = 0, W = 0, Z = 0, F = 0, zz = 0, ss = 0;
+	int rc = HC_OK;
+
+	s = hc_calloc(t, sizeof *s);
+	z = hc_calloc(t, sizeof *z);
+	g = hc_malloc(t * t * sizeof *g);
+	if (!s || !z || !g) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu Gram matrix", t, t);
+		goto cleanup;
+	}
+	for (i = 0; i < m; i++) {
+		const double *x = xc + i * t;
+		double nrm = sqrt(dot(x, x, t));
+		for (a = 0; a < t; a++) {
+			s[a] += x[a];
+			z[a] += x[a] / nrm;
+		}
+	}
+	for (a = 0; a < t; a++) {
+		ss += (long double)s[a] * s[a];
+		zz += (long double)z[a] * z[a];
+	}
+	for (i = 0; i < m; i++) {
+		const double *x = xc + i * t;
+		long double v = dot(x, x, t) / d;
+		long double r = dot(x, s, t) / d - v;
+		V += v;
+		S += v * v;
+		W += v * r;
+		Z += r * r;
+	}
+	/* G = Xc^T Xc with Xc the M x T row-major centred matrix. */
+	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasTrans, (int)t, (int)m, 1.0,
+		    xc, (int)t, 0.0, g, (int)t);
+	for (a = 0; a < t; a++) {
+		F += (long double)g[a * t + a] * g[a * t + a];
+		for (b = a + 1; b < t; b++)
+			F += 2.0L * g[a * t + b] * g[a * t + b];
+	}
+	mo->has_spread = 1;
+	mo->has_correlation = 1;
+	mo->sum_var = (double)V;
+	mo->sum_cov = (double)(ss / d - V);
+	mo->sum_var2 = (double)S;
+	mo->sum_cov2 = (double)(F / ((long double)d * d) - S);
+	mo->sum_var_rowcov = (double)W;
+	mo->sum_rowcov2 = (double)Z;
+	mo->average_correlation = (double)((zz - m) / ((long double)m * (m - 1)));
+	finish(mo);
+cleanup:
+	hc_free(s);
+	hc_free(z);
+	hc_free(g);
+	return rc;
+}
+
+/* Matrix route: A = Xc Xc^T/(T-1) through dsyrk, then the sums. */
+static int route_matrix(struct moments *mo, const struct universe *u, const double *xc,
+			struct hc_error *err)
+{
+	size_t m = u->m, t = u->t, i, j, n;
+	double *a;
+	int rc;
+
+	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
+	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t,
+		    1.0 / (double)(t - 1), xc, (int)t, 0.0, a, (int)m);
+	for (i = 0; i < m; i++)
+		for (j = 0; j < i; j++)
+			a[i * m + j] = a[j * m + i];
+	rc = sums_from_matrix(mo, a, m, err);
+	hc_free(a);
+	return rc;
+}
+
+/*
+ * Pairwise-complete covariance of securities i and j: means and products
+ * over the periods where both are present (the convention of pandas'
+ * DataFrame.cov and R's use = "pairwise.complete.obs"), divisor n_ij - 1.
+ * Also the overlap variances, for the pairwise correlation.
+ */
+static int pair_cov(const double *x, const double *y, size_t t,
+		    double *cov, double *vx, double *vy)
+{
+	long double mx = 0, my = 0, sxy = 0, sxx = 0, syy = 0;
+	size_t k, n = 0;
+
+	for (k = 0; k < t; k++)
+		if (!isnan(x[k]) && !isnan(y[k])) {
+			mx += x[k];
+			my += y[k];
+			n++;
+		}
+	if (n < 2)
+		return -1;
+	mx /= n;
+	my /= n;
+	for (k = 0; k < t; k++)
+		if (!isnan(x[k]) && !isnan(y[k])) {
+			sxy += (x[k] - mx) * (y[k] - my);
+			sxx += (x[k] - mx) * (x[k] - mx);
+			syy += (y[k] - my) * (y[k] - my);
+		}
+	*cov = (double)(sxy / (n - 1));
+	*vx = (double)(sxx / (n - 1));
+	*vy = (double)(syy / (n - 1));
+	return 0;
+}
+
+/* Pairwise route.  The average correlation is the mean of pairwise
+ * correlations, each on its own overlap, not a ratio of averages. */
+static int route_pairwise(struct moments *mo, const struct universe *u, struct hc_error *err)
+{
+	size_t m = u->m, t = u->t, i, j, n;
+	double *a = NULL, cov, vx, vy;
+	long double R = 0;
+	char b1[32], b2[32];
+	int rc = HC_OK;
+
+	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
+	for (i = 0; i < m; i++) {
+		const double *x = u->x + i * t;
+		if (pair_cov(x, x, t, &cov, &vx, &vy) || !(cov > 0)) {
+			rc = hc_error(err, HC_EDATA, "security '%s' has %s",
+				      security_name(u, i, b1, sizeof b1),
+				      pair_cov(x, x, t, &cov, &vx, &vy) ? "fewer than two periods" : "zero variance");
+			goto cleanup;
+		}
+		a[i * m + i] = cov;
+	}
+	for (i = 0; i < m; i++)
+		for (j = i + 1; j < m; j++) {
+			if (pair_cov(u->x + i * t, u->x + j * t, t, &cov, &vx, &vy) || !(vx > 0) || !(vy > 0)) {
+				rc = hc_error(err, HC_EDATA,
+					      "securities '%s' and '%s' share too few periods for a covariance",
+					      security_name(u, i, b1, sizeof b1), security_name(u, j, b2, sizeof b2));
+				goto cleanup;
+			}
+			a[i * m + j] = a[j * m + i] = cov;
+			R += 2.0L * cov / sqrtl((long double)vx * vy);
+		}
+	rc = sums_from_matrix(mo, a, m, err);
+	mo->average_correlation = (double)(R / ((long double)m * (m - 1)));
+cleanup:
+	hc_free(a);
+	return rc;
+}
+
+int moments_from_universe_route(struct moments *mo, const struct universe *u,
+				int route, struct hc_error *err)
+{
+	double *xc = NULL;
+	int rc;
+
+	memset(mo, 0, sizeof *mo);
+	if (u->m < 2 || u->t < 2)
+		return hc_error(err, HC_EDATA,
+				"universe has %zu securities over %zu periods, expected at least 2 of each",
+				u->m, u->t);
+	if (u->m > INT32_MAX || u->t > INT32_MAX)
+		return hc_error(err, HC_ENOMEM, "universe of %zu x %zu is too large for BLAS", u->m, u->t);
+	if (route != MOMENTS_ROUTE_PAIRWISE && route != MOMENTS_ROUTE_GRAM &&
+	    route != MOMENTS_ROUTE_MATRIX)
+		return hc_error(err, HC_EUSAGE, "moments route %d is not one computed from returns", route);
+	if (u->has_missing && route != MOMENTS_ROUTE_PAIRWISE)
+		return hc_error(err, HC_EUSAGE, "data with gaps needs pairwise-complete covariances");
+	mo->m = u->m;
+	mo->route = route;
+	if (route == MOMENTS_ROUTE_PAIRWISE) {
+		rc = route_pairwise(mo, u, err);
+	} else {
+		rc = centred_copy(u, &xc, err);
+		if (rc)
+			return rc;
+		if (route == MOMENTS_ROUTE_GRAM)
+			rc = route_gram(mo, u, xc, err);
+		else
+			rc = route_matrix(mo, u, xc, err);
+		hc_free(xc);
+	}
+	if (rc) {
+		memset(mo, 0, sizeof *mo);
+		return rc;
+	}
+	mo->t = u->t;
+	return HC_OK;
+}
+
+int moments_from_universe(struct moments *mo, const struct universe *u,
+			  struct hc_error *err)
+{
+	int route = MOMENTS_ROUTE_PAIRWISE;
+
+	if (!u->has_missing)
+		route = u->t < u->m ? MOMENTS_ROUTE_GRAM : MOMENTS_ROUTE_MATRIX;
+	return moments_from_universe_route(mo, u, route, err);
+}

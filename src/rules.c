@@ -1,0 +1,699 @@
+/*
+ * rules.c - the rules for "enough holdings" (design.md section 5).
+ *
+ * The exact rules use E[s2(N)] = vbar/N + (1 - 1/N) cbar and
+ * E[TE2(N)] = (vbar - cbar)(1/N - 1/M) (design.md section 3).  Closed forms
+ * give a candidate count; the count reported is always confirmed by
+ * evaluating the rule itself at N and N-1, so no floating-point rounding of
+ * the closed form can move it by one.
+ */
+#include "holdcount/rules.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "holdcount/memory.h"
+
+static const char *const rule_names[RULES_COUNT] = {
+	"near-floor", "marginal", "band", "cost-benefit", "tracking-error",
+	"shortfall"
+};
+
+static const char *const rule_units[RULES_COUNT] = {
+	"sd a year", "sd reduction a year", "sd a year (quantile)",
+	"return a year", "tracking error a year", "share of portfolios"
+};
+
+void rules_config_init(struct rules_config *cfg)
+{
+	memset(cfg, 0, sizeof *cfg);
+	cfg->selected = RULES_ALL_MASK;
+	cfg->near_floor_x = RULES_DEFAULT_NEAR_FLOOR_X;
+	cfg->marginal_eps = RULES_DEFAULT_MARGINAL_EPS;
+	cfg->band_q = RULES_DEFAULT_BAND_Q;
+	cfg->band_x = RULES_DEFAULT_BAND_X;
+	cfg->premium = RULES_DEFAULT_PREMIUM;
+	cfg->holding_cost = RULES_DEFAULT_HOLDING_COST;
+	cfg->cost_defaults = 1;
+	cfg->te_budget = RULES_DEFAULT_TE_BUDGET;
+	cfg->shortfall_d = RULES_DEFAULT_SHORTFALL_D;
+	cfg->shortfall_p = RULES_DEFAULT_SHORTFALL_P;
+}
+
+static int positive(double x)
+{
+	return isfinite(x) && x > 0;
+}
+
+int rules_config_check(const struct rules_config *cfg, struct hc_error *err)
+{
+	if (!positive(cfg->near_floor_x))
+		return hc_error(err, HC_EUSAGE, "bad near-floor margin: expected a positive share, found %g", cfg->near_floor_x);
+	if (!positive(cfg->marginal_eps))
+		return hc_error(err, HC_EUSAGE, "bad marginal step: expected a positive reduction, found %g", cfg->marginal_eps);
+	if (!(cfg->band_q > 0 && cfg->band_q < 1))
+		return hc_error(err, HC_EUSAGE, "bad band quantile: expected a share strictly between 0 and 1, found %g", cfg->band_q);
+	if (!positive(cfg->band_x))
+		return hc_error(err, HC_EUSAGE, "bad band margin: expected a positive share, found %g", cfg->band_x);
+	if (!positive(cfg->premium))
+		return hc_error(err, HC_EUSAGE, "bad premium: expected a positive yearly return, found %g", cfg->premium);
+	if (!positive(cfg->holding_cost))
+		return hc_error(err, HC_EUSAGE, "bad holding cost: expected a positive yearly cost, found %g", cfg->holding_cost);
+	if (!positive(cfg->te_budget))
+		return hc_error(err, HC_EUSAGE, "bad tracking-error budget: expected a positive yearly figure, found %g", cfg->te_budget);
+	if (!(isfinite(cfg->shortfall_d) && cfg->shortfall_d >= 0))
+		return hc_error(err, HC_EUSAGE, "bad shortfall margin: expected a yearly return of 0 or more, found %g", cfg->shortfall_d);
+	if (!(cfg->shortfall_p > 0 && cfg->shortfall_p < 1))
+		return hc_error(err, HC_EUSAGE, "bad shortfall share: expected a share strictly between 0 and 1, found %g", cfg->shortfall_p);
+	return HC_OK;
+}
+
+const char *rules_name(int rule)
+{
+	return rule >= 0 && rule < RULES_COUNT ? rule_names[rule] : NULL;
+}
+
+static int lookup_rule(const char *s, size_t len, unsigned *mask)
+{
+	static const struct { const char *name; unsigned mask; } groups[] = {
+		{ "all", RULES_ALL_MASK },
+		{ "exact", RULES_EXACT_MASK },
+		{ "sampled", RULES_SAMPLED_MASK },
+	};
+	size_t k;
+
+	for (k = 0; k < RULES_COUNT; k++)
+		if (strlen(rule_names[k]) == len && strncmp(s, rule_names[k], len) == 0) {
+			*mask = RULES_FLAG(k);
+			return 0;
+		}
+	for (k = 0; k < sizeof groups / sizeof groups[0]; k++)
+		if (strlen(groups[k].name) == len && strncmp(s, groups[k].name, len) == 0) {
+			*mask = groups[k].mask;
+			return 0;
+		}
+	return -1;
+}
+
+int rules_parse_list(const char *text, unsigned *mask, struct hc_error *err)
+{
+	const char *p = text;
+	unsigned out = 0, one;
+
+	for (;;) {
+		const char *end = strchr(p, ',');
+		size_t len = end ? (size_t)(end - p) : strlen(p);
+
+		if (lookup_rule(p, len, &one) != 0)
+			return hc_error(err, HC_EUSAGE,
+					"bad rule list: '%.*s' is not a rule (expected near-floor, marginal, band, cost-benefit, tracking-error, shortfall, all, exact or sampled)",
+					(int)len, p);
+		out |= one;
+		if (!end)
+			break;
+		p = end + 1;
+	}
+	*mask = out;
+	return HC_OK;
+}
+
+/* ---- exact rules ------------------------------------------------------ */
+
+/* The exact rules' state: annualised averages a = cbar P (the floor) and
+ * b = (vbar - cbar) P (the diversifiable part at N = 1). */
+struct exact {
+	double vbar, cbar, a, b;
+	size_t m;        /* 0 = unbounded */
+	size_t nmax;     /* largest count considered */
+};
+
+static void exact_init(struct exact *e, double vbar, double cbar, size_t m, double ppy)
+{
+	e->vbar = vbar * ppy;
+	e->cbar = cbar * ppy;
+	e->a = cbar * ppy;
+	e->b = (vbar - cbar) * ppy;
+	e->m = m;
+	e->nmax = m ? m : RULES_UNBOUNDED_MAX;
+}
+
+/* Annualised sqrt(E[s2(N)]). */
+static double exact_sd(const struct exact *e, double n)
+{
+	double v = e->a + e->b / n;
+
+	return v > 0 ? sqrt(v) : 0.0;
+}
+
+/* sqrt(E[s2(N)]) - sqrt(E[s2(N+1)]), written as the difference of squares
+ * over the sum so that it keeps its digits at large N:
+ * b (1/N - 1/(N+1)) / (s(N) + s(N+1)) = b / (N (N+1) (s(N) + s(N+1))). */
+static double exact_step(const struct exact *e, size_t n)
+{
+	double dn = (double)n, sum = exact_sd(e, dn) + exact_sd(e, dn + 1);
+
+	if (sum <= 0)
+		return 0.0;
+	return e->b / (dn * (dn + 1) * sum);
+}
+
+static int near_floor_meets(const struct exact *e, double x, size_t n)
+{
+	double dn = (double)n;
+
+	/* v-bar/N + (1 - 1/N) c-bar <= (1+x)^2 c-bar, as the issue states it. */
+	return e->vbar / dn + (1 - 1 / dn) * e->cbar <= (1 + x) * (1 + x) * e->cbar;
+}
+
+static double te2(const struct exact *e, size_t n)
+{
+	double inv_m = e->m ? 1.0 / (double)e->m : 0.0;
+	double v = e->b * (1.0 / (double)n - inv_m);
+
+	return v > 0 ? v : 0.0;
+}
+
+static int te_meets(const struct exact *e, double budget, size_t n)
+{
+	return te2(e, n) <= budget * budget;
+}
+
+/*
+ * Smallest n in [1, nmax] with meets(n), given that meets is monotone
+ * (false then true) and cand is a closed-form guess: confirm at cand and
+ * cand - 1 and walk the few steps rounding can cost.  Returns 0 when none.
+ */
+static size_t confirm_count(const struct exact *e, double param,
+			    int (*meets)(const struct exact *, double, size_t),
+			    double cand)
+{
+	size_t n;
+
+	if (!(cand >= 1))
+		n = 1;
+	else if (cand >= (double)e->nmax)
+		n = e->nmax;
+	else
+		n = (size_t)ceil(cand);
+	while (n > 1 && meets(e, param, n - 1))
+		n--;
+	while (n <= e->nmax && !meets(e, param, n))
+		n++;
+	return n <= e->nmax ? n : 0;
+}
+
+/* Marginal and cost-benefit: smallest N in 1..nmax-1 whose step
+ * s(N) - s(N+1) is below limit.  With cbar >= 0, s(N) = sqrt(a + b/N) is
+ * convex in N (its second derivative is b/(N^3 s) (1 - b/(4 N s^2)) > 0
+ * because s^2 >= b/N), so the step falls with N and a bisection finds the
+ * first N exactly.  With cbar < 0 (possible only in a finite universe)
+ * convexity can fail near N = M, so every N is scanned. */
+static size_t first_small_step(const struct exact *e, double limit)
+{
+	size_t lo, hi, n;
+
+	if (e->nmax < 2)
+		return 0;
+	if (e->a < 0) {
+		for (n = 1; n < e->nmax; n++)
+			if (exact_step(e, n) < limit)
+				return n;
+		return 0;
+	}
+	if (exact_step(e, 1) < limit)
+		return 1;
+	if (!(exact_step(e, e->nmax - 1) < limit))
+		return 0;
+	lo = 1;                 /* step(lo) >= limit */
+	hi = e->nmax - 1;       /* step(hi) < limit */
+	while (hi - lo > 1) {
+		size_t mid = lo + (hi - lo) / 2;
+
+		if (exact_step(e, mid) < limit)
+			hi = mid;
+		else
+			lo = mid;
+	}
+	return hi;
+}
+
+/* Universe sigma for cost-benefit: the equal-weight portfolio of all M, or
+ * the floor when unbounded. */
+static double universe_sd(const struct exact *e)
+{
+	return e->m ? exact_sd(e, (double)e->m) : (e->a > 0 ? sqrt(e->a) : 0.0);
+}
+
+/* The count of one exact rule: 1 = met (count set), 0 = not met,
+ * -1 = undefined on these averages. */
+static int exact_count(const struct rules_config *cfg, int rule,
+		       const struct exact *e, size_t *count)
+{
+	size_t n = 0;
+
+	switch (rule) {
+	case RULES_NEAR_FLOOR: {
+		double gap = ((1 + cfg->near_floor_x) * (1 + cfg->near_floor_x) - 1) * e->cbar;
+
+		if (!(e->cbar > 0))
+			return -1;
+		/* N >= (v-bar - c-bar) / (((1+x)^2 - 1) c-bar) */
+		n = confirm_count(e, cfg->near_floor_x, near_floor_meets, e->b / gap);
+		break;
+	}
+	case RULES_MARGINAL:
+		n = first_small_step(e, cfg->marginal_eps);
+		break;
+	case RULES_COST_BENEFIT: {
+		double su = universe_sd(e);
+
+		if (!(su > 0))
+			return -1;
+		/* premium (s(N) - s(N+1)) / s_u < cost  <=>  step < cost s_u / premium */
+		n = first_small_step(e, cfg->holding_cost * su / cfg->premium);
+		break;
+	}
+	case RULES_TRACKING_ERROR: {
+		/* (1/N - 1/M) <= k with k = budget^2 / b: N >= 1 / (1/M + k). */
+		double inv_m = e->m ? 1.0 / (double)e->m : 0.0;
+		double k = e->b > 0 ? cfg->te_budget * cfg->te_budget / e->b : INFINITY;
+
+		n = confirm_count(e, cfg->te_budget, te_meets, 1.0 / (inv_m + k));
+		break;
+	}
+	default:
+		return -1;
+	}
+	if (n == 0)
+		return 0;
+	*count = n;
+	return 1;
+}
+
+int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
+		      double cbar, size_t m, double periods_per_year,
+		      size_t *count)
+{
+	struct exact e;
+
+	if (m == 0 && cbar < 0)
+		return -1;
+	exact_init(&e, vbar, cbar, m, periods_per_year);
+	return exact_count(cfg, rule, &e, count);
+}
+
+static void pct(char *buf, size_t len, double x)
+{
+	snprintf(buf, len, "%.4g%%", 100 * x);
+}
+
+/* The parameter text of a rule, e.g. "x=10%" or "premium=5% a year,
+ * holding cost=0.05% a year (defaults)". */
+static void rule_parameters(const struct rules_config *cfg, int rule, char *buf, size_t len)
+{
+	char a[32], b[32];
+
+	switch (rule) {
+	case RULES_NEAR_FLOOR:
+		pct(a, sizeof a, cfg->near_floor_x);
+		snprintf(buf, len, "x=%s", a);
+		break;
+	case RULES_MARGINAL:
+		snprintf(buf, len, "eps=%.4gpp a year", 100 * cfg->marginal_eps);
+		break;
+	case RULES_BAND:
+		pct(a, sizeof a, cfg->band_q);
+		pct(b, sizeof b, cfg->band_x);
+		snprintf(buf, len, "q=%s x=%s", a, b);
+		break;
+	case RULES_COST_BENEFIT:
+		pct(a, sizeof a, cfg->premium);
+		pct(b, sizeof b, cfg->holding_cost);
+		snprintf(buf, len, "premium=%s a year, holding cost=%s a year%s", a, b,
+			 cfg->cost_defaults ? " (defaults)" : "");
+		break;
+	case RULES_TRACKING_ERROR:
+		pct(a, sizeof a, cfg->te_budget);
+		snprintf(buf, len, "budget=%s a year", a);
+		break;
+	case RULES_SHORTFALL:
+		pct(a, sizeof a, cfg->shortfall_d);
+		pct(b, sizeof b, cfg->shortfall_p);
+		snprintf(buf, len, "d=%s a year p=%s", a, b);
+		break;
+	default:
+		snprintf(buf, len, "-");
+	}
+}
+
+static void result_init(const struct rules_config *cfg, int rule, struct rule_result *res)
+{
+	memset(res, 0, sizeof *res);
+	res->rule = rule;
+	res->name = rule_names[rule];
+	res->unit = rule_units[rule];
+	res->defined = 1;
+	res->value = NAN;
+	res->threshold = NAN;
+	res->count_p05 = res->count_p50 = res->count_p95 = NAN;
+	rule_parameters(cfg, rule, res->parameters, sizeof res->parameters);
+}
+
+static void note_not_met(struct rule_result *res, size_t m, const char *what)
+{
+	if (m)
+		snprintf(res->note, sizeof res->note, "not met within the universe of %zu securities%s", m, what);
+	else
+		snprintf(res->note, sizeof res->note, "not met at any count up to %zu%s", (size_t)RULES_UNBOUNDED_MAX, what);
+}
+
+/* The value at n and the threshold of an exact rule. */
+static void exact_value(const struct rules_config *cfg, int rule,
+			const struct exact *e, struct rule_result *res)
+{
+	double su;
+
+	switch (rule) {
+	case RULES_NEAR_FLOOR:
+		res->threshold = (1 + cfg->near_floor_x) * sqrt(e->cbar);
+		if (res->met)
+			res->value = exact_sd(e, (double)res->count);
+		break;
+	case RULES_MARGINAL:
+		res->threshold = cfg->marginal_eps;
+		if (res->met)
+			res->value = exact_step(e, res->count);
+		break;
+	case RULES_COST_BENEFIT:
+		su = universe_sd(e);
+		res->threshold = cfg->holding_cost;
+		if (res->met)
+			res->value = cfg->premium * exact_step(e, res->count) / su;
+		break;
+	case RULES_TRACKING_ERROR:
+		res->threshold = cfg->te_budget;
+		if (res->met)
+			res->value = sqrt(te2(e, res->count));
+		break;
+	}
+}
+
+int rules_exact(const struct rules_config *cfg, int rule, double vbar,
+		double cbar, size_t m, double periods_per_year,
+		struct rule_result *res, struct hc_error *err)
+{
+	struct exact e;
+	int got;
+
+	if (rule < 0 || rule >= RULES_COUNT || !(RULES_FLAG(rule) & RULES_EXACT_MASK))
+		return hc_error(err, HC_EUSAGE, "rule %d is not an exact rule", rule);
+	if (m == 1)
+		return hc_error(err, HC_EUSAGE, "a universe of one security has no count to choose");
+	if (!positive(periods_per_year) || !isfinite(vbar) || !isfinite(cbar))
+		return hc_error(err, HC_EUSAGE, "rules need finite averages and positive periods per year");
+	if (m == 0 && cbar < 0)
+		return hc_error(err, HC_EUSAGE, "a negative average covariance is impossible in an unbounded universe: give the number of securities");
+	result_init(cfg, rule, res);
+	exact_init(&e, vbar, cbar, m, periods_per_year);
+	got = exact_count(cfg, rule, &e, &res->count);
+	if (got < 0) {
+		res->defined = 0;
+		if (rule == RULES_NEAR_FLOOR)
+			snprintf(res->note, sizeof res->note,
+				 "undefined: the floor (average covariance %.4g a year) is not above zero", e.cbar);
+		else
+			snprintf(res->note, sizeof res->note,
+				 "undefined: the universe portfolio has no risk to compare with");
+		return HC_OK;
+	}
+	res->met = got;
+	if (!got)
+		note_not_met(res, m, "");
+	exact_value(cfg, rule, &e, res);
+	return HC_OK;
+}
+
+/* ---- sampled rules ---------------------------------------------------- */
+
+static int cmp_double(const void *a, const void *b)
+{
+	double x = *(const double *)a, y = *(const double *)b;
+
+	return (x > y) - (x < y);
+}
+
+/* numpy's default (linear) quantile of sorted x[0..n-1]. */
+static double quantile_sorted(const double *x, size_t n, double q)
+{
+	double h = (double)(n - 1) * q, lo = floor(h);
+	size_t i = (size_t)lo;
+
+	if (i + 1 >= n)
+		return x[n - 1];
+	return x[i] + (h - lo) * (x[i + 1] - x[i]);
+}
+
+static int sizes_consecutive(const struct sampler_result *r)
+{
+	size_t k;
+
+	for (k = 0; k < r->nsizes; k++)
+		if (r->sizes[k] != k + 1)
+			return 0;
+	return 1;
+}
+
+static int check_sampled(const struct sampler_result *r, struct hc_error *err)
+{
+	size_t k;
+
+	if (!r || r->paths == 0 || r->nsizes == 0)
+		return hc_error(err, HC_EUSAGE, "sampled rules need sampled portfolios");
+	for (k = 1; k < r->nsizes; k++)
+		if (r->sizes[k] <= r->sizes[k - 1])
+			return hc_error(err, HC_EUSAGE, "sampled rules need ascending sizes");
+	return HC_OK;
+}
+
+static void grid_note(struct rule_result *res, const struct sampler_result *r)
+{
+	if (res->met && !sizes_consecutive(r))
+		snprintf(res->note, sizeof res->note,
+			 "smallest size on the sampled grid; sizes in between were not sampled");
+}
+
+int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
+	       double cbar, double periods_per_year, struct rule_result *res,
+	       struct hc_error *err)
+{
+	double *sd, limit;
+	size_t k, j;
+	int status;
+
+	if ((status = check_sampled(r, err)) != HC_OK)
+		return status;
+	result_init(cfg, RULES_BAND, res);
+	if (!(cbar > 0)) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note,
+			 "undefined: the floor (average covariance %.4g a year) is not above zero",
+			 cbar * periods_per_year);
+		return HC_OK;
+	}
+	limit = (1 + cfg->band_x) * sqrt(cbar * periods_per_year);
+	res->threshold = limit;
+	sd = hc_malloc(r->paths * sizeof *sd);
+	if (!sd)
+		return hc_error(err, HC_ENOMEM, "out of memory for the band rule");
+	for (j = 0; j < r->nsizes && !res->met; j++) {
+		double qv;
+
+		for (k = 0; k < r->paths; k++) {
+			double v = r->variance[k * r->nsizes + j] * periods_per_year;
+
+			sd[k] = v > 0 ? sqrt(v) : 0.0;
+		}
+		qsort(sd, r->paths, sizeof *sd, cmp_double);
+		qv = quantile_sorted(sd, r->paths, cfg->band_q);
+		if (qv <= limit) {
+			res->met = 1;
+			res->count = r->sizes[j];
+			res->value = qv;
+		}
+	}
+	hc_free(sd);
+	if (!res->met)
+		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
+	grid_note(res, r);
+	return HC_OK;
+}
+
+int rules_shortfall(const struct rules_config *cfg,
+		    const struct sampler_result *r, double universe_return,
+		    struct rule_result *res, struct hc_error *err)
+{
+	double cut = universe_return - cfg->shortfall_d;
+	size_t k, j;
+	int status;
+
+	if ((status = check_sampled(r, err)) != HC_OK)
+		return status;
+	if (!r->annual_return)
+		return hc_error(err, HC_EUSAGE, "the shortfall rule needs sampled returns");
+	result_init(cfg, RULES_SHORTFALL, res);
+	res->threshold = cfg->shortfall_p;
+	for (j = 0; j < r->nsizes; j++) {
+		size_t behind = 0;
+		double share;
+
+		for (k = 0; k < r->paths; k++)
+			behind += r->annual_return[k * r->nsizes + j] < cut;
+		share = (double)behind / (double)r->paths;
+		if (share < cfg->shortfall_p) {
+			res->met = 1;
+			res->count = r->sizes[j];
+			res->value = share;
+			break;
+		}
+	}
+	if (!res->met)
+		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
+	grid_note(res, r);
+	return HC_OK;
+}
+
+int rules_universe_return(const struct universe *u, double periods_per_year,
+			  double *ret, struct hc_error *err)
+{
+	double log_growth = 0;
+	size_t t, i;
+
+	if (u->has_missing)
+		return hc_error(err, HC_EDATA, "the universe return needs complete data");
+	if (u->t == 0 || u->m == 0 || !positive(periods_per_year))
+		return hc_error(err, HC_EUSAGE, "the universe return needs periods, securities and positive periods per year");
+	/* Sum of logs rather than a running product: no overflow or underflow
+	 * over long daily histories. */
+	for (t = 0; t < u->t; t++) {
+		double s = 0;
+
+		for (i = 0; i < u->m; i++)
+			s += u->x[i * u->t + t];
+		s /= (double)u->m;
+		if (!(s > -1))
+			return hc_error(err, HC_EDATA, "the universe portfolio loses everything in period %zu", t + 1);
+		log_growth += log1p(s);
+	}
+	*ret = expm1(log_growth * periods_per_year / (double)u->t);
+	return HC_OK;
+}
+
+int rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
+		   struct rule_result *res, size_t *nres, struct hc_error *err)
+{
+	size_t n = 0;
+	int rule, status;
+
+	if ((status = rules_config_check(cfg, err)) != HC_OK)
+		return status;
+	for (rule = 0; rule < RULES_COUNT; rule++) {
+		struct rule_result *r = &res[n];
+
+		if (!(cfg->selected & RULES_FLAG(rule)))
+			continue;
+		if (RULES_FLAG(rule) & RULES_EXACT_MASK)
+			status = rules_exact(cfg, rule, in->vbar, in->cbar, in->m,
+					     in->periods_per_year, r, err);
+		else if (!in->sampled) {
+			result_init(cfg, rule, r);
+			r->defined = 0;
+			snprintf(r->note, sizeof r->note, "needs return data and sampled portfolios");
+			status = HC_OK;
+		} else if (rule == RULES_BAND)
+			status = rules_band(cfg, in->sampled, in->cbar, in->periods_per_year, r, err);
+		else
+			status = rules_shortfall(cfg, in->sampled, in->universe_return, r, err);
+		if (status != HC_OK)
+			return status;
+		n++;
+	}
+	*nres = n;
+	return HC_OK;
+}
+
+/* ---- bootstrap intervals ---------------------------------------------- */
+
+static int cmp_count(const void *a, const void *b)
+{
+	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+
+	/* 0 (not met) sorts after every count. */
+	if (x == 0 || y == 0)
+		return (x == 0) - (y == 0);
+	return (x > y) - (x < y);
+}
+
+/* Linear quantile of sorted counts with not-met (0) as +infinity: NaN when
+ * the interpolation touches a not-met replicate. */
+static double count_quantile(const size_t *c, size_t n, double q)
+{
+	double h = (double)(n - 1) * q, lo = floor(h);
+	size_t i = (size_t)lo;
+	double a, b;
+
+	if (c[i] == 0)
+		return NAN;
+	a = (double)c[i];
+	if (h == lo || i + 1 >= n)
+		return a;
+	if (c[i + 1] == 0)
+		return NAN;
+	b = (double)c[i + 1];
+	return a + (h - lo) * (b - a);
+}
+
+void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
+{
+	size_t k;
+
+	res->bootstrapped = 1;
+	res->replicates = nrep;
+	res->replicates_met = 0;
+	for (k = 0; k < nrep; k++)
+		res->replicates_met += count[k] != 0;
+	if (nrep == 0)
+		return;
+	qsort(count, nrep, sizeof *count, cmp_count);
+	res->count_p05 = count_quantile(count, nrep, 0.05);
+	res->count_p50 = count_quantile(count, nrep, 0.50);
+	res->count_p95 = count_quantile(count, nrep, 0.95);
+}
+
+int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
+			  const double *cbar, size_t nrep, size_t m,
+			  double periods_per_year, struct rule_result *res,
+			  size_t nres, struct hc_error *err)
+{
+	size_t *count, j, k;
+
+	if (nrep == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	count = hc_malloc(nrep * sizeof *count);
+	if (!count)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", nrep);
+	for (j = 0; j < nres; j++) {
+		if (!(RULES_FLAG(res[j].rule) & RULES_EXACT_MASK))
+			continue;
+		for (k = 0; k < nrep; k++) {
+			size_t n;
+
+			count[k] = rules_exact_count(cfg, res[j].rule, vbar[k], cbar[k],
+						     m, periods_per_year, &n) == 1 ? n : 0;
+		}
+		rules_set_interval(&res[j], count, nrep);
+	}
+	hc_free(count);
+	return HC_OK;
+}

@@ -1,0 +1,692 @@
+/*
+ * sampler.c - random equal-weight portfolios by nested random permutations
+ * (design.md section 4).
+ *
+ * Each path draws a random ordering by a partial Fisher-Yates shuffle
+ * (Fisher & Yates, 1938, Statistical Tables; in place as Durstenfeld, 1964,
+ * CACM 7(7), Algorithm 235); the first n members of the ordering are a
+ * uniform random n-subset, so one path yields one portfolio of every size.
+ *
+ * Column route: the portfolio's centred return series is a running sum of
+ * the members' centred series, T contiguous doubles that stay in L1; its
+ * variance ||s||^2/(n^2 (T-1)) is needed only at the grid sizes.  Because
+ * the members of the first n are the complement of the last M-n, a grid
+ * size above the split is reached from the universe's total series by
+ * subtracting the last M-n columns: the split between the forward and the
+ * backward sweep is chosen to touch the fewest columns (with sizes up to M,
+ * about a quarter of the work is skipped).
+ *
+ * Reproducibility: path k's generator is GSL's mt19937 seeded with the k-th
+ * splitmix64 output from the user's seed, and each path writes its own row
+ * of the result; every reduction happens later, serially, in path order.
+ * So the bytes are the same whatever the thread count.
+ */
+#include "holdcount/sampler.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_rng.h>
+#include <gsl/gsl_sort.h>
+#include <gsl/gsl_statistics_double.h>
+#include <omp.h>
+
+#include "holdcount/memory.h"
+
+/* Defaults named once. */
+#define SAMPLER_DEFAULT_PATHS 10000
+#define SAMPLER_SCHEDULE_CHUNK 8 /* paths per dynamic work unit */
+
+uint64_t sampler_splitmix64(uint64_t *state)
+{
+	uint64_t z = (*state += 0x9e3779b97f4a7c15ULL);
+
+	z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
+	z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
+	return z ^ (z >> 31);
+}
+
+void sampler_options_init(struct sampler_options *opt)
+{
+	memset(opt, 0, sizeof *opt);
+	opt->paths = SAMPLER_DEFAULT_PATHS;
+	opt->periods_per_year = 1.0;
+}
+
+void sampler_result_free(struct sampler_result *r)
+{
+	if (!r)
+		return;
+	hc_free(r->sizes);
+	hc_free(r->variance);
+	hc_free(r->annual_return);
+	hc_free(r->feasible);
+	hc_free(r);
+}
+
+/* Seed for path k: the (k+1)-th splitmix64 output from seed, folded to the
+ * 32 bits that GSL's mt19937 takes. */
+static unsigned long path_seed(uint64_t seed, size_t k)
+{
+	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z;
+
+	z = sampler_splitmix64(&st);
+	return (unsigned long)((z ^ (z >> 32)) & 0xffffffffUL);
+}
+
+/* ---- the plan shared by every path ---- */
+
+struct plan {
+	size_t nsizes, nuniq;
+	size_t *uniq;     /* sorted distinct sizes */
+	size_t *slot;     /* slot[j]: index into uniq of sizes[j] */
+	size_t split;     /* uniq[0..split-1] forward, uniq[split..] backward */
+	size_t shuffle;   /* Fisher-Yates steps a path needs */
+};
+
+static int cmp_size(const void *a, const void *b)
+{
+	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+
+	return (x > y) - (x < y);
+}
+
+static void plan_release(struct plan *p)
+{
+	hc_free(p->uniq);
+	hc_free(p->slot);
+}
+
+/* Validate sizes, sort them and choose the forward/backward split that
+ * touches the fewest columns: forward to uniq[j-1], backward from M down to
+ * uniq[j].  allow_backward = 0 keeps every size forward. */
+static int plan_init(struct plan *p, size_t m, const size_t *sizes, size_t nsizes,
+		     int allow_backward, struct hc_error *err)
+{
+	size_t j, k, best, cost, fwd, back_top;
+
+	memset(p, 0, sizeof *p);
+	if (nsizes == 0)
+		return hc_error(err, HC_EUSAGE, "no sizes to sample");
+	for (j = 0; j < nsizes; j++)
+		if (sizes[j] < 1 || sizes[j] > m)
+			return hc_error(err, HC_EUSAGE,
+					"size %zu is larger than the %zu securities kept", sizes[j], m);
+	p->uniq = hc_malloc(nsizes * sizeof *p->uniq);
+	p->slot = hc_malloc(nsizes * sizeof *p->slot);
+	if (!p->uniq || !p->slot) {
+		plan_release(p);
+		return hc_error(err, HC_ENOMEM, "out of memory for the sampling plan");
+	}
+	memcpy(p->uniq, sizes, nsizes * sizeof *sizes);
+	qsort(p->uniq, nsizes, sizeof *p->uniq, cmp_size);
+	for (j = k = 0; j < nsizes; j++)
+		if (k == 0 || p->uniq[j] != p->uniq[k - 1])
+			p->uniq[k++] = p->uniq[j];
+	p->nuniq = k;
+	p->nsizes = nsizes;
+	for (j = 0; j < nsizes; j++) {
+		size_t *hit = bsearch(&sizes[j], p->uniq, p->nuniq, sizeof *p->uniq, cmp_size);
+		p->slot[j] = (size_t)(hit - p->uniq);
+	}
+	best = p->nuniq;
+	cost = p->uniq[p->nuniq - 1];
+	for (j = 0; allow_backward && j < p->nuniq; j++) {
+		fwd = j ? p->uniq[j - 1] : 0;
+		if (fwd + (m - p->uniq[j]) < cost) {
+			cost = fwd + (m - p->uniq[j]);
+			best = j;
+		}
+	}
+	p->split = best;
+	fwd = best ? p->uniq[best - 1] : 0;
+	/* The backward sweep needs the largest backward size below M drawn. */
+	back_top = 0;
+	for (j = best; j < p->nuniq; j++)
+		if (p->uniq[j] < m)
+			back_top = p->uniq[j];
+	p->shuffle = fwd > back_top ? fwd : back_top;
+	return HC_OK;
+}
+
+/* ---- per-thread workspace ---- */
+
+struct workspace {
+	gsl_rng *rng;
+	uint32_t *idx;   /* the permutation being drawn */
+	double *acc;     /* running series, T doubles */
+	double *out_v;   /* nuniq variances of the current path */
+	double *out_r;   /* nuniq returns of the current path */
+};
+
+static void workspace_release(struct workspace *w)
+{
+	gsl_rng_free(w->rng);
+	hc_free(w->idx);
+	hc_free(w->acc);
+	hc_free(w->out_v);
+	hc_free(w->out_r);
+}
+
+static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
+{
+	memset(w, 0, sizeof *w);
+	w->rng = gsl_rng_alloc(gsl_rng_mt19937);
+	w->idx = hc_malloc(m * sizeof *w->idx);
+	w->acc = hc_malloc((t ? t : 1) * sizeof *w->acc);
+	w->out_v = hc_malloc(nuniq * sizeof *w->out_v);
+	w->out_r = hc_malloc(nuniq * sizeof *w->out_r);
+	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r) {
+		workspace_release(w);
+		return -1;
+	}
+	return 0;
+}
+
+/* Partial Fisher-Yates (Durstenfeld's in-place form): after `steps` swaps
+ * idx[0..steps-1] is a uniform random ordered sample without replacement
+ * and idx[steps..m-1] holds the rest. */
+static void shuffle(struct workspace *w, size_t m, size_t steps, unsigned long seed)
+{
+	size_t j, u;
+	uint32_t tmp;
+
+	gsl_rng_set(w->rng, seed);
+	for (j = 0; j < m; j++)
+		w->idx[j] = (uint32_t)j;
+	for (j = 0; j < steps && j + 1 < m; j++) {
+		u = j + (size_t)gsl_rng_uniform_int(w->rng, (unsigned long)(m - j));
+		tmp = w->idx[j];
+		w->idx[j] = w->idx[u];
+		w->idx[u] = tmp;
+	}
+}
+
+/* ---- the column route's hot loops ---- */
+
+/*
+ * acc += (or -=) the sum of columns idx[from..to-1].  Four columns are added
+ * per sweep of acc, so acc is loaded and stored a quarter as often; the loop
+ * over k is contiguous and vectorises (an AVX2 clone where the CPU has it,
+ * SSE2 otherwise).  Each element is the same expression in the same order
+ * in both clones (elementwise, no reassociation; -std=c11 turns FMA
+ * contraction off), and the grouping depends only on the path, so the
+ * result does not depend on the thread count or on the clone.
+ */
+__attribute__((target_clones("avx2", "default")))
+static void sweep(double *restrict acc, const double *restrict x, size_t t,
+		  const uint32_t *idx, size_t from, size_t to, int subtract)
+{
+	size_t j = from, k;
+
+	for (; j + 4 <= to; j += 4) {
+		const double *restrict c0 = x + (size_t)idx[j] * t;
+		const double *restrict c1 = x + (size_t)idx[j + 1] * t;
+		const double *restrict c2 = x + (size_t)idx[j + 2] * t;
+		const double *restrict c3 = x + (size_t)idx[j + 3] * t;
+		if (subtract)
+			for (k = 0; k < t; k++)
+				acc[k] -= (c0[k] + c1[k]) + (c2[k] + c3[k]);
+		else
+			for (k = 0; k < t; k++)
+				acc[k] += (c0[k] + c1[k]) + (c2[k] + c3[k]);
+	}
+	for (; j < to; j++) {
+		const double *restrict c0 = x + (size_t)idx[j] * t;
+		if (subtract)
+			for (k = 0; k < t; k++)
+				acc[k] -= c0[k];
+		else
+			for (k = 0; k < t; k++)
+				acc[k] += c0[k];
+	}
+}
+
+/* ||acc||^2 with four fixed lanes: the same bits from either clone. */
+__attribute__((target_clones("avx2", "default")))
+static double norm2(const double *restrict a, size_t t)
+{
+	double s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+	size_t k = 0;
+
+	for (; k + 4 <= t; k += 4) {
+		s0 += a[k] * a[k];
+		s1 += a[k + 1] * a[k + 1];
+		s2 += a[k + 2] * a[k + 2];
+		s3 += a[k + 3] * a[k + 3];
+	}
+	for (; k < t; k++)
+		s0 += a[k] * a[k];
+	return (s0 + s1) + (s2 + s3);
+}
+
+struct column_job {
+	const double *xc;      /* centred series, security-major */
+	const double *mean;    /* each security's mean return */
+	const double *total;   /* sum of all centred series */
+	double total_mean;     /* sum of all means */
+	size_t m, t;
+	const struct plan *plan;
+	int want_returns;
+	double periods_per_year;
+};
+
+/* Compound annualised return of the equal-weight portfolio rebalanced each
+ * period: prod(1 + r_p)^(P/T) - 1 with r_p = (acc + mean_sum)/n. */
+static double compound(const double *acc, size_t t, double mean_sum, double n, double ppy)
+{
+	long double lg = 0;
+	double r;
+	size_t k;
+
+	for (k = 0; k < t; k++) {
+		r = (acc[k] + mean_sum) / n;
+		if (!(r > -1.0))
+			return -1.0; /* the portfolio lost everything */
+		lg += log1p(r);
+	}
+	return expm1((double)(lg * ppy / (long double)t));
+}
+
+static void record(const struct column_job *job, struct workspace *w, size_t slot,
+		   double mean_sum)
+{
+	double n = (double)job->plan->uniq[slot];
+
+	w->out_v[slot] = norm2(w->acc, job->t) / (n * n * (double)(job->t - 1));
+	if (job->want_returns)
+		w->out_r[slot] = compound(w->acc, job->t, mean_sum, n, job->periods_per_year);
+}
+
+static double mean_of(const struct column_job *job, const uint32_t *idx, size_t from, size_t to)
+{
+	double s = 0;
+	size_t j;
+
+	for (j = from; j < to; j++)
+		s += job->mean[idx[j]];
+	return s;
+}
+
+/* One path of the column route into w->out_v / w->out_r (nuniq slots). */
+static void column_path(const struct column_job *job, struct workspace *w, unsigned long seed)
+{
+	const struct plan *p = job->plan;
+	size_t j, at, t = job->t, m = job->m;
+	double msum = 0;
+
+	shuffle(w, m, p->shuffle, seed);
+	memset(w->acc, 0, t * sizeof *w->acc);
+	for (j = 0, at = 0; j < p->split; j++) {
+		sweep(w->acc, job->xc, t, w->idx, at, p->uniq[j], 0);
+		if (job->want_returns)
+			msum += mean_of(job, w->idx, at, p->uniq[j]);
+		at = p->uniq[j];
+		record(job, w, j, msum);
+	}
+	if (p->split == p->nuniq)
+		return;
+	/* Backward: from the total series, remove the members past each size. */
+	memcpy(w->acc, job->total, t * sizeof *w->acc);
+	msum = job->total_mean;
+	at = m;
+	for (j = p->nuniq; j-- > p->split;) {
+		sweep(w->acc, job->xc, t, w->idx, p->uniq[j], at, 1);
+		if (job->want_returns)
+			msum -= mean_of(job, w->idx, p->uniq[j], at);
+		at = p->uniq[j];
+		record(job, w, j, msum);
+	}
+}
+
+/* ---- driving the paths ---- */
+
+struct run {
+	size_t paths;
+	int threads;
+	const struct plan *plan;
+	struct sampler_result *res;
+	const struct sampler_options *opt;
+	void (*path)(const void *job, struct workspace *w, unsigned long seed);
+	const void *job;
+	size_t m, t;
+};
+
+static void column_path_cb(const void *job, struct workspace *w, unsigned long seed)
+{
+	column_path(job, w, seed);
+}
+
+/* Copy a path's per-slot figures into its row, in the caller's size order. */
+static void store(struct sampler_result *res, const struct plan *p, const struct workspace *w,
+		  size_t k)
+{
+	size_t j;
+
+	for (j = 0; j < p->nsizes; j++) {
+		res->variance[k * p->nsizes + j] = w->out_v[p->slot[j]];
+		if (res->annual_return)
+			res->annual_return[k * p->nsizes + j] = w->out_r[p->slot[j]];
+	}
+}
+
+static int run_paths(struct run *r, struct hc_error *err)
+{
+	struct workspace *ws;
+	int nthreads = r->threads > 0 ? r->threads : omp_get_max_threads(), i, stop = 0;
+	size_t done = 0, total = r->paths;
+	long kk, paths = (long)r->paths;
+
+	if (nthreads < 1)
+		nthreads = 1;
+	ws = hc_calloc((size_t)nthreads, sizeof *ws);
+	if (!ws)
+		return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
+	for (i = 0; i < nthreads; i++)
+		if (workspace_init(&ws[i], r->m, r->t, r->plan->nuniq)) {
+			while (i-- > 0)
+				workspace_release(&ws[i]);
+			hc_free(ws);
+			return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
+		}
+#pragma omp parallel num_threads(nthreads)
+	{
+		struct workspace *w = &ws[omp_get_thread_num()];
+#pragma omp for schedule(dynamic, SAMPLER_SCHEDULE_CHUNK)
+		for (kk = 0; kk < paths; kk++) {
+			int halted;
+#pragma omp atomic read
+			halted = stop;
+			if (halted)
+				continue;
+			r->path(r->job, w, path_seed(r->opt->seed, (size_t)kk));
+			store(r->res, r->plan, w, (size_t)kk);
+			size_t now;
+#pragma omp atomic capture
+			now = ++done;
+			if (r->opt->progress && omp_get_thread_num() == 0 &&
+			    r->opt->progress(r->opt->progress_ctx, now, total)) {
+#pragma omp atomic write
+				stop = 1;
+			}
+		}
+	}
+	for (i = 0; i < nthreads; i++)
+		workspace_release(&ws[i]);
+	hc_free(ws);
+	if (stop)
+		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", done, total);
+	if (r->opt->progress && r->opt->progress(r->opt->progress_ctx, total, total))
+		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", total, total);
+	return HC_OK;
+}
+
+static int check_options(const struct sampler_options *opt, struct hc_error *err)
+{
+	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
+		return hc_error(err, HC_EUSAGE, "stratified sampling is not available yet");
+	if (opt->paths == 0)
+		return hc_error(err, HC_EUSAGE, "no paths to sample");
+	if (opt->want_returns && !(opt->periods_per_year > 0 && isfinite(opt->periods_per_year)))
+		return hc_error(err, HC_EUSAGE, "periods per year %g is not a positive number",
+				opt->periods_per_year);
+	if (opt->threads < 0)
+		return hc_error(err, HC_EUSAGE, "thread count %d is negative", opt->threads);
+	return HC_OK;
+}
+
+static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t nsizes,
+			size_t paths, int want_returns, uint64_t seed, struct hc_error *err)
+{
+	struct sampler_result *r;
+	size_t cells;
+
+	*out = NULL;
+	if (hc_mul_size(paths, nsizes, &cells))
+		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", paths, nsizes);
+	r = hc_calloc(1, sizeof *r);
+	if (!r)
+		goto nomem;
+	r->paths = paths;
+	r->nsizes = nsizes;
+	r->sizes = hc_malloc(nsizes * sizeof *r->sizes);
+	r->variance = hc_calloc(cells, sizeof *r->variance);
+	r->feasible = hc_malloc(nsizes);
+	if (want_returns)
+		r->annual_return = hc_calloc(cells, sizeof *r->annual_return);
+	if (!r->sizes || !r->variance || !r->feasible || (want_returns && !r->annual_return))
+		goto nomem;
+	memcpy(r->sizes, sizes, nsizes * sizeof *sizes);
+	memset(r->feasible, 1, nsizes);
+	r->seed = seed;
+	*out = r;
+	return HC_OK;
+nomem:
+	sampler_result_free(r);
+	return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", cells);
+}
+
+/* Centred series, means and their totals for the column route. */
+static int column_data(const struct universe *u, double **xc, double **mean, double **total,
+		       double *total_mean, struct hc_error *err)
+{
+	size_t i, k, t = u->t, cells;
+	long double s, tm = 0;
+
+	*xc = *mean = *total = NULL;
+	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_malloc(cells * sizeof **xc)) ||
+	    !(*mean = hc_malloc(u->m * sizeof **mean)) || !(*total = hc_calloc(t, sizeof **total))) {
+		hc_free(*xc);
+		hc_free(*mean);
+		*xc = *mean = NULL;
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu x %zu returns", u->m, t);
+	}
+	for (i = 0; i < u->m; i++) {
+		const double *x = u->x + i * t;
+		for (s = 0, k = 0; k < t; k++)
+			s += x[k];
+		(*mean)[i] = (double)(s / t);
+		tm += (*mean)[i];
+		for (k = 0; k < t; k++) {
+			(*xc)[i * t + k] = x[k] - (*mean)[i];
+			(*total)[k] += (*xc)[i * t + k];
+		}
+	}
+	*total_mean = (double)tm;
+	return HC_OK;
+}
+
+int sampler_run(struct sampler_result **out, const struct universe *u,
+		const size_t *sizes, size_t nsizes,
+		const struct sampler_options *opt, struct hc_error *err)
+{
+	struct plan plan;
+	struct column_job job = {0};
+	struct run run = {0};
+	double *xc = NULL, *mean = NULL, *total = NULL;
+	int rc;
+
+	*out = NULL;
+	if ((rc = check_options(opt, err)))
+		return rc;
+	if (u->has_missing)
+		return hc_error(err, HC_EUSAGE,
+				"sampling from returns needs complete data; sample from the covariance matrix instead");
+	if (u->m < 2 || u->t < 2)
+		return hc_error(err, HC_EDATA,
+				"universe has %zu securities over %zu periods, expected at least 2 of each",
+				u->m, u->t);
+	if (u->m > UINT32_MAX)
+		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", u->m);
+	if ((rc = plan_init(&plan, u->m, sizes, nsizes, 1, err)))
+		return rc;
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, err)))
+		goto cleanup;
+	if ((rc = column_data(u, &xc, &mean, &total, &job.total_mean, err)))
+		goto cleanup;
+	job.xc = xc;
+	job.mean = mean;
+	job.total = total;
+	job.m = u->m;
+	job.t = u->t;
+	job.plan = &plan;
+	job.want_returns = opt->want_returns;
+	job.periods_per_year = opt->periods_per_year;
+	run.paths = opt->paths;
+	run.threads = opt->threads;
+	run.plan = &plan;
+	run.res = *out;
+	run.opt = opt;
+	run.path = column_path_cb;
+	run.job = &job;
+	run.m = u->m;
+	run.t = u->t;
+	rc = run_paths(&run, err);
+cleanup:
+	if (rc) {
+		sampler_result_free(*out);
+		*out = NULL;
+	}
+	plan_release(&plan);
+	hc_free(xc);
+	hc_free(mean);
+	hc_free(total);
+	return rc;
+}
+
+/* ---- the matrix route ---- */
+
+struct matrix_job {
+	const double *a;
+	size_t m;
+	const struct plan *plan;
+};
+
+/* Running quadratic form: adding member p to a portfolio of sum X gives
+ * X + a_pp + 2 sum_{q before p} a_pq; variance X/n^2 at the grid sizes. */
+static void matrix_path(const void *vjob, struct workspace *w, unsigned long seed)
+{
+	const struct matrix_job *job = vjob;
+	const struct plan *p = job->plan;
+	size_t j, q, g = 0, m = job->m;
+	long double x = 0;
+	double cross;
+
+	shuffle(w, m, p->shuffle, seed);
+	for (j = 0; j < p->uniq[p->nuniq - 1]; j++) {
+		const double *row = job->a + (size_t)w->idx[j] * m;
+		cross = 0;
+		for (q = 0; q < j; q++)
+			cross += row[w->idx[q]];
+		x += row[w->idx[j]] + 2 * cross;
+		if (j + 1 == p->uniq[g]) {
+			w->out_v[g] = (double)(x / ((long double)(j + 1) * (j + 1)));
+			g++;
+		}
+	}
+}
+
+int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
+		       const size_t *sizes, size_t nsizes,
+		       const struct sampler_options *opt, struct hc_error *err)
+{
+	struct plan plan;
+	struct matrix_job job;
+	struct run run = {0};
+	int rc;
+
+	*out = NULL;
+	if ((rc = check_options(opt, err)))
+		return rc;
+	if (opt->want_returns)
+		return hc_error(err, HC_EUSAGE, "a covariance matrix has no returns to compound");
+	if (m < 2)
+		return hc_error(err, HC_EDATA, "covariance matrix has %zu securities, expected at least 2", m);
+	if (m > UINT32_MAX)
+		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", m);
+	if ((rc = plan_init(&plan, m, sizes, nsizes, 0, err)))
+		return rc;
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, err)))
+		goto cleanup;
+	job.a = a;
+	job.m = m;
+	job.plan = &plan;
+	run.paths = opt->paths;
+	run.threads = opt->threads;
+	run.plan = &plan;
+	run.res = *out;
+	run.opt = opt;
+	run.path = matrix_path;
+	run.job = &job;
+	run.m = m;
+	run.t = 0;
+	rc = run_paths(&run, err);
+	if (rc) {
+		sampler_result_free(*out);
+		*out = NULL;
+	}
+cleanup:
+	plan_release(&plan);
+	return rc;
+}
+
+/* ---- summary ---- */
+
+int sampler_summarise(struct curve *c, const struct sampler_result *r,
+		      struct hc_error *err)
+{
+	double *sd, ppy = c->periods_per_year, v, mean_v, mean_s, var_v;
+	long double s1, ss;
+	size_t j, k, K = r->paths;
+	struct curve_point *pt;
+
+	if (c->npoints != r->nsizes)
+		return hc_error(err, HC_EUSAGE, "the curve has %zu sizes but the sample %zu",
+				c->npoints, r->nsizes);
+	for (j = 0; j < r->nsizes; j++)
+		if (c->points[j].n != r->sizes[j])
+			return hc_error(err, HC_EUSAGE, "the curve's size %zu does not match the sample's %zu",
+					c->points[j].n, r->sizes[j]);
+	if (K == 0)
+		return hc_error(err, HC_EUSAGE, "no sampled paths to summarise");
+	sd = hc_malloc(K * sizeof *sd);
+	if (!sd)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", K);
+	for (j = 0; j < r->nsizes; j++) {
+		pt = &c->points[j];
+		s1 = 0;
+		for (k = 0; k < K; k++) {
+			v = r->variance[k * r->nsizes + j] * ppy;
+			s1 += v;
+			sd[k] = sqrt(v);
+		}
+		mean_v = (double)(s1 / K);
+		/* Two-pass sample variance (divisor K-1), as numpy's var(ddof=1). */
+		ss = 0;
+		for (k = 0; k < K; k++) {
+			long double d = r->variance[k * r->nsizes + j] * ppy - (long double)mean_v;
+			ss += d * d;
+		}
+		var_v = K > 1 ? (double)(ss / (K - 1)) : NAN;
+		s1 = 0;
+		for (k = 0; k < K; k++)
+			s1 += sd[k];
+		mean_s = (double)(s1 / K);
+		gsl_sort(sd, 1, K);
+		pt->sampled = 1;
+		pt->sampled_mean_variance = mean_v;
+		pt->sampled_variance_se = sqrt(var_v / (double)K);
+		pt->sampled_mean_sd = mean_s;
+		/* GSL's quantile interpolates like numpy's default (linear). */
+		pt->sd_p05 = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.05);
+		pt->sd_p50 = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.50);
+		pt->sd_p95 = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.95);
+		pt->z_score = pt->sampled_variance_se > 0
+			? (mean_v - pt->expected_variance) / pt->sampled_variance_se : NAN;
+	}
+	c->paths = K;
+	c->seed = r->seed;
+	hc_free(sd);
+	return HC_OK;
+}

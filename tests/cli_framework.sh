@@ -1,0 +1,72 @@
+#!/usr/bin/env bash
+# The front end's framework: dispatch, help from one table, option errors,
+# --version.  Expected messages are the project's own contract (cli.h);
+# exit statuses are the HC_* codes of include/holdcount/error.h.
+set -u
+HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
+T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_framework.$$
+mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
+fails=0
+fail() { echo "FAIL: $*"; fails=$((fails+1)); }
+
+# expect STATUS STDERR-PREFIX -- ARGS...: exit status and first words of stderr.
+expect() {
+	local want=$1 prefix=$2; shift 3
+	"$HC" "$@" >"$T/out" 2>"$T/err"; local got=$?
+	[ "$got" = "$want" ] || fail "holdcount $*: exit $got, expected $want ($(head -c 300 "$T/err"))"
+	case "$(head -n1 "$T/err")" in "$prefix"*) ;; *) fail "holdcount $*: stderr '$(head -n1 "$T/err")', expected it to start '$prefix'";; esac
+}
+
+# Help for every command: `COMMAND --help`, `COMMAND -h` and `help COMMAND` identical.
+for c in describe curve formula enough audit rolling report synth; do
+	"$HC" help "$c" >"$T/a" 2>&1 || fail "help $c exit $?"
+	case $c in describe|curve|formula)
+		"$HC" "$c" --help >"$T/b" 2>&1 || fail "$c --help exit $?"
+		"$HC" "$c" -h >"$T/c" 2>&1 || fail "$c -h exit $?"
+		cmp -s "$T/a" "$T/b" || fail "help $c differs from $c --help"
+		cmp -s "$T/a" "$T/c" || fail "help $c differs from $c -h";;
+	esac
+	head -n1 "$T/a" | grep -q "^usage: holdcount $c" || fail "help $c: no usage line"
+	grep -q "Exit status: 0 success" "$T/a" || fail "help $c: no exit status list"
+done
+# Every option a command's help lists is accepted by its parser (same table):
+# each flag-or-value option of curve is parsed without 'unknown option'.
+for opt in $("$HC" curve --help | grep -oE -- '--[a-z-]+' | sort -u); do
+	"$HC" curve "$opt" 2>"$T/err" >/dev/null
+	grep -q "unknown option" "$T/err" && fail "curve lists $opt but rejects it"
+done
+"$HC" curve --help | grep -q -- "--paths K" || fail "curve help lacks --paths K"
+"$HC" curve --help | grep -q -- "(default: 10000)" || fail "curve help lacks the paths default"
+"$HC" --help | grep -q "^  describe" || fail "--help does not list describe"
+"$HC" help | cmp -s - <("$HC" --help) || fail "help differs from --help"
+
+expect 2 "holdcount curve: unknown option '--pathz' (see 'holdcount curve --help')" -- curve --pathz 10 u.csv
+expect 2 "holdcount curve: unknown option '--pathz' (see" -- curve --pathz=10 u.csv
+expect 2 "holdcount curve: unknown option '-x'" -- curve -x u.csv
+expect 2 "holdcount curve: option '--paths' expects a whole number" -- curve --paths -3 u.csv
+expect 2 "holdcount curve: option '--paths' expects a whole number" -- curve --paths=2.5 u.csv
+expect 2 "holdcount curve: option '--seed' expects a whole number" -- curve --seed 99999999999999999999 u.csv
+expect 2 "holdcount curve: option '--paths' needs a value" -- curve u.csv --paths
+expect 2 "holdcount curve: option '--format' expects one of table, csv or json, found 'xml'" -- curve --format xml u.csv
+expect 2 "holdcount curve: option '--quiet' takes no value" -- curve --quiet=yes u.csv
+expect 2 "holdcount curve: option '--min-coverage' expects a number, or a percent" -- curve --min-coverage 80%% u.csv
+expect 2 "holdcount curve: option '--periods-per-year' expects a finite number, found 'inf'" -- curve --periods-per-year inf u.csv
+expect 2 "holdcount curve: missing UNIVERSE" -- curve
+expect 2 "holdcount curve: unexpected argument 'b.csv'" -- curve a.csv b.csv
+expect 2 "holdcount formula: unexpected argument 'x.csv'" -- formula x.csv
+expect 2 "holdcount: unknown command 'curvy' (see 'holdcount --help')" -- curvy
+expect 2 "holdcount: unknown command 'curvy'" -- help curvy
+expect 2 "holdcount: unknown option '--bogus'" -- --bogus
+expect 2 "usage: holdcount COMMAND" --
+HOLDCOUNT_THREADS=abc expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number from 1, found 'abc'" -- curve u.csv
+HOLDCOUNT_THREADS=0 expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number" -- curve u.csv
+expect 2 "holdcount synth: not built yet" -- synth
+
+# --version names holdcount, GSL and the BLAS (issue 8).
+"$HC" --version >"$T/v" || fail "--version exit $?"
+sed -n 1p "$T/v" | grep -qE '^holdcount [0-9]+\.[0-9]+\.[0-9]+$' || fail "--version line 1: $(sed -n 1p "$T/v")"
+sed -n 2p "$T/v" | grep -qE '^GSL [0-9]+\.[0-9]+' || fail "--version line 2: $(sed -n 2p "$T/v")"
+sed -n 3p "$T/v" | grep -q '^BLAS OpenBLAS' || fail "--version line 3: $(sed -n 3p "$T/v")"
+
+[ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
+echo "cli_framework: all checks passed"

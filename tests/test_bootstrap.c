@@ -1,0 +1,437 @@
+/* Unit tests for the period bootstrap (bootstrap.h). */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_randist.h>
+#include <gsl/gsl_rng.h>
+
+#include "holdcount/bootstrap.h"
+#include "holdcount/memory.h"
+#include "holdcount/rules.h"
+
+/* cmocka's float comparison is single precision; this one is double. */
+#define assert_close(a, b, tol) do { \
+	double a_ = (a), b_ = (b), t_ = (tol); \
+	if (!(fabs(a_ - b_) <= t_)) \
+		fail_msg("%s = %.17g, expected %.17g within %.3g", #a, a_, b_, t_); \
+} while (0)
+
+/* A hand-built universe over caller-owned storage (the loader is tested
+ * elsewhere; here only m, t, x and has_missing matter). */
+static struct universe make_universe(size_t m, size_t t, double *x)
+{
+	struct universe u;
+
+	memset(&u, 0, sizeof u);
+	u.m = m;
+	u.t = t;
+	u.x = x;
+	u.periods_per_year = 12;
+	u.source = "test";
+	return u;
+}
+
+/* One-factor returns r_ti = beta_i f_t + e_ti with Gaussian f and e,
+ * security-major; beta and sd_e fixed per security. */
+static void one_factor(gsl_rng *rng, size_t m, size_t t, const double *beta,
+		       double sd_f, const double *sd_e, double mean, double *x)
+{
+	size_t i, k;
+	double *f = malloc(t * sizeof *f);
+
+	assert_non_null(f);
+	for (k = 0; k < t; k++)
+		f[k] = gsl_ran_gaussian(rng, sd_f);
+	for (i = 0; i < m; i++)
+		for (k = 0; k < t; k++)
+			x[i * t + k] = mean + beta[i] * f[k] + gsl_ran_gaussian(rng, sd_e[i]);
+	free(f);
+}
+
+static void high_entropy_universe(size_t m, size_t t, unsigned long seed, double *x)
+{
+	gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+	double *beta = malloc(m * sizeof *beta), *sd = malloc(m * sizeof *sd);
+	size_t i;
+
+	assert_non_null(rng);
+	gsl_rng_set(rng, seed);
+	for (i = 0; i < m; i++) {
+		beta[i] = 0.6 + 0.8 * gsl_rng_uniform(rng);
+		sd[i] = 0.04 + 0.09 * gsl_rng_uniform(rng);
+	}
+	one_factor(rng, m, t, beta, 0.045, sd, 0.00917, x);
+	free(beta);
+	free(sd);
+	gsl_rng_free(rng);
+}
+
+/*
+ * The outside reference: the textbook covariance matrix of the explicitly
+ * resampled T x M data (divisor T-1), O(M^2 T), then v-bar as the mean of
+ * its diagonal and c-bar as the mean of its off-diagonal entries
+ * (design.md section 2) -- no shortcut shared with the library.
+ */
+static void direct_moments(const double *x, size_t m, size_t t, const size_t *idx,
+			   double *vbar, double *cbar)
+{
+	double *mean = calloc(m, sizeof *mean);
+	long double v = 0, c = 0;
+	size_t i, j, k;
+
+	assert_non_null(mean);
+	for (i = 0; i < m; i++) {
+		for (k = 0; k < t; k++)
+			mean[i] += x[i * t + idx[k]];
+		mean[i] /= (double)t;
+	}
+	for (i = 0; i < m; i++)
+		for (j = 0; j < m; j++) {
+			long double a = 0;
+
+			for (k = 0; k < t; k++)
+				a += (long double)(x[i * t + idx[k]] - mean[i]) * (x[j * t + idx[k]] - mean[j]);
+			a /= (long double)(t - 1);
+			if (i == j)
+				v += a;
+			else
+				c += a;
+		}
+	*vbar = (double)(v / m);
+	*cbar = (double)(c / ((long double)m * (m - 1)));
+	free(mean);
+}
+
+static void counts_of(const size_t *idx, size_t t, double *w)
+{
+	size_t k;
+
+	memset(w, 0, t * sizeof *w);
+	for (k = 0; k < t; k++)
+		w[idx[k]] += 1;
+}
+
+static void check_replicates_match_direct(size_t m, size_t t, int kind)
+{
+	double *x = malloc(m * t * sizeof *x), *w = malloc(t * sizeof *w);
+	size_t *idx = malloc(t * sizeof *idx), rep, k;
+	struct universe u;
+	struct bootstrap_base *b = NULL;
+	struct hc_error err;
+
+	assert_non_null(x);
+	high_entropy_universe(m, t, 2385 + m + t, x);
+	u = make_universe(m, t, x);
+	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	assert_true(t <= m ? b->gram != NULL : b->gram == NULL);
+	for (rep = 0; rep < 6; rep++) {
+		double v1, c1, v2, c2;
+
+		if (rep == 0)
+			for (k = 0; k < t; k++)
+				idx[k] = k;     /* the sample itself */
+		else
+			assert_int_equal(bootstrap_indices(kind, t, 3, 77, rep, idx, &err), HC_OK);
+		counts_of(idx, t, w);
+		bootstrap_moments(b, w, &v1, &c1);
+		direct_moments(x, m, t, idx, &v2, &c2);
+		/* 1e-10 relative: both are sums of O(MT) terms of similar size
+		 * in double precision, so agreement is near 1e-14; 1e-10 leaves
+		 * room for the different summation orders. */
+		assert_close(v1, v2, 1e-10 * fabs(v2));
+		assert_close(c1, c2, 1e-10 * fabs(c2));
+	}
+	bootstrap_base_free(b);
+	free(x);
+	free(w);
+	free(idx);
+}
+
+static void test_bootstrap_gram_replicate_equals_direct(void **state)
+{
+	check_replicates_match_direct(37, 23, BOOTSTRAP_BLOCK);
+	check_replicates_match_direct(37, 23, BOOTSTRAP_STATIONARY);
+}
+
+static void test_bootstrap_direct_route_replicate_equals_direct(void **state)
+{
+	check_replicates_match_direct(7, 41, BOOTSTRAP_BLOCK);
+	check_replicates_match_direct(7, 41, BOOTSTRAP_STATIONARY);
+}
+
+static void test_bootstrap_default_block_length(void **state)
+{
+	/* round(T^(1/3)): 240^(1/3) = 6.214, 1000^(1/3) = 10, 91^(1/3) = 4.498,
+	 * 92^(1/3) = 4.514 (by hand) */
+	assert_int_equal(bootstrap_default_block_length(240), 6);
+	assert_int_equal(bootstrap_default_block_length(1000), 10);
+	assert_int_equal(bootstrap_default_block_length(91), 4);
+	assert_int_equal(bootstrap_default_block_length(92), 5);
+	assert_int_equal(bootstrap_default_block_length(2), 1);
+}
+
+static void test_bootstrap_block_indices_are_blocks(void **state)
+{
+	size_t t = 50, l = 7, idx[50], k;
+	struct hc_error err;
+
+	/* Kuensch (1989): consecutive runs of L periods from starts 0..T-L;
+	 * the last block is cut to fit T. */
+	assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, t, l, 5, 3, idx, &err), HC_OK);
+	for (k = 0; k < t; k++) {
+		if (k % l == 0)
+			assert_true(idx[k] <= t - l);
+		else
+			assert_int_equal(idx[k], idx[k - 1] + 1);
+	}
+}
+
+static void test_bootstrap_stationary_mean_block_length(void **state)
+{
+	size_t t = 400, l = 6, idx[400], k, rep, starts = 0, total = 0;
+	struct hc_error err;
+
+	/* Politis & Romano (1994): a new block starts with probability 1/L, so
+	 * over 200 x 399 transitions the share of breaks has mean 1/6 and
+	 * sd sqrt(p(1-p)/79800) = 0.0013; a break can also land on the next
+	 * period (probability 1/T), which only hides a break.  4 sd: 0.0053. */
+	for (rep = 0; rep < 200; rep++) {
+		assert_int_equal(bootstrap_indices(BOOTSTRAP_STATIONARY, t, l, 11, rep, idx, &err), HC_OK);
+		for (k = 1; k < t; k++) {
+			assert_true(idx[k] < t);
+			starts += idx[k] != (idx[k - 1] + 1) % t;
+			total++;
+		}
+	}
+	assert_close((double)starts / (double)total, 1.0 / 6.0, 0.0053);
+}
+
+static void test_bootstrap_same_for_any_thread_count(void **state)
+{
+	size_t m = 60, t = 48;
+	double *x = malloc(m * t * sizeof *x);
+	struct universe u;
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_options opt;
+	struct bootstrap_result *r1 = NULL, *r2 = NULL;
+	struct hc_error err;
+	int kind;
+
+	high_entropy_universe(m, t, 9, x);
+	u = make_universe(m, t, x);
+	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	for (kind = 0; kind < 2; kind++) {
+		bootstrap_options_init(&opt);
+		opt.replicates = 257;
+		opt.kind = kind;
+		opt.seed = 20240917;
+		opt.threads = 1;
+		assert_int_equal(bootstrap_run(&r1, b, &opt, &err), HC_OK);
+		opt.threads = 2;
+		assert_int_equal(bootstrap_run(&r2, b, &opt, &err), HC_OK);
+		assert_int_equal(r1->block_length, 4);   /* round(48^(1/3) = 3.634) */
+		assert_memory_equal(r1->vbar, r2->vbar, opt.replicates * sizeof(double));
+		assert_memory_equal(r1->cbar, r2->cbar, opt.replicates * sizeof(double));
+		/* and replicates differ from one another (the streams are not stuck) */
+		assert_true(r1->vbar[0] != r1->vbar[1]);
+		bootstrap_result_free(r1);
+		bootstrap_result_free(r2);
+	}
+	bootstrap_base_free(b);
+	free(x);
+}
+
+static void test_bootstrap_errors(void **state)
+{
+	double x[12] = { 0.012, -0.031, 0.027, 0.004, -0.019, 0.033,
+			 0.021, 0.008, -0.026, 0.017, 0.002, -0.011 };
+	size_t idx[4];
+	struct universe u = make_universe(3, 4, x);
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_options opt;
+	struct bootstrap_result *r = NULL;
+	struct hc_error err;
+
+	u.has_missing = 1;
+	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_EDATA);
+	assert_null(b);
+	assert_non_null(strstr(err.message, "complete data"));
+	u = make_universe(1, 12, x);
+	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_EDATA);
+	u = make_universe(3, 4, x);
+	assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, 4, 5, 1, 0, idx, &err), HC_EUSAGE);
+	assert_non_null(strstr(err.message, "bad block length 5"));
+	assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, 4, 0, 1, 0, idx, &err), HC_EUSAGE);
+	assert_int_equal(bootstrap_indices(7, 4, 2, 1, 0, idx, &err), HC_EUSAGE);
+	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	bootstrap_options_init(&opt);
+	opt.replicates = 0;
+	assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_EUSAGE);
+	opt.replicates = 10;
+	opt.block_length = 9;
+	assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_EUSAGE);
+	assert_null(r);
+	bootstrap_base_free(b);
+	bootstrap_base_free(NULL);
+	bootstrap_result_free(NULL);
+}
+
+static int stop_at_half(void *ctx, size_t done, size_t total)
+{
+	return done * 2 >= total;
+}
+
+static void test_bootstrap_progress_can_stop(void **state)
+{
+	double x[12] = { 0.012, -0.031, 0.027, 0.004, -0.019, 0.033,
+			 0.021, 0.008, -0.026, 0.017, 0.002, -0.011 };
+	struct universe u = make_universe(3, 4, x);
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_options opt;
+	struct bootstrap_result *r = NULL;
+	struct hc_error err;
+
+	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	bootstrap_options_init(&opt);
+	opt.replicates = 40;
+	opt.threads = 1;
+	opt.progress = stop_at_half;
+	assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_EINTERRUPT);
+	assert_null(r);
+	bootstrap_base_free(b);
+}
+
+static void test_bootstrap_allocation_failures(void **state)
+{
+	size_t m = 6, t = 5;     /* T <= M: the Gram route allocates the most */
+	double *x = malloc(m * t * sizeof *x);
+	struct universe u;
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_options opt;
+	struct bootstrap_result *r = NULL;
+	struct hc_error err;
+	long k;
+	int failures = 0;
+
+	high_entropy_universe(m, t, 4, x);
+	u = make_universe(m, t, x);
+	bootstrap_options_init(&opt);
+	opt.replicates = 8;
+	opt.threads = 2;
+	for (k = 0; k < 64; k++) {
+		int s1, s2 = HC_ENOMEM;
+
+		hc_alloc_fail_after(k);
+		s1 = bootstrap_base_alloc(&b, &u, &err);
+		if (s1 == HC_OK)
+			s2 = bootstrap_run(&r, b, &opt, &err);
+		hc_alloc_fail_after(-1);
+		bootstrap_base_free(b);
+		b = NULL;
+		if (s1 == HC_OK && s2 == HC_OK) {
+			bootstrap_result_free(r);
+			break;
+		}
+		assert_int_equal(s1 == HC_OK ? s2 : s1, HC_ENOMEM);
+		assert_null(r);
+		failures++;
+	}
+	assert_true(k < 64);
+	assert_true(failures >= 5);   /* every allocation site was made to fail */
+	free(x);
+}
+
+/*
+ * Coverage: data from a known one-factor model, whose true v-bar and c-bar
+ * follow from the parameters (Sigma = sd_f^2 beta beta^T + diag(sd_e^2)).
+ * In each trial a fresh history is drawn, the bootstrap's 5th-95th
+ * percentile interval of the near-floor count is computed, and we ask
+ * whether it holds the count from the true averages.  200 trials: if the
+ * coverage is 0.90, the number covered is binomial with sd
+ * sqrt(200 * 0.9 * 0.1) = 4.24; we accept 0.83..0.97 (about 3.3 sd below
+ * and above).  Percentile intervals of a nonlinear statistic (the count
+ * varies as 1/c-bar) are known to miss on the low side in small samples
+ * (Efron & Tibshirani, 1993, An Introduction to the Bootstrap, ch. 13 --
+ * from memory), so the lower bound matters most.
+ */
+static void test_bootstrap_interval_covers_true_count(void **state)
+{
+	enum { M = 30, T = 120, TRIALS = 200, B = 199 };
+	double beta[M], sd_e[M], *x = malloc(M * T * sizeof *x);
+	double sd_f = 0.047, vbar_true = 0, sum_b = 0, sum_b2 = 0, cbar_true;
+	gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+	struct rules_config cfg;
+	struct bootstrap_options opt;
+	struct hc_error err;
+	size_t true_count, i, trial, covered = 0;
+
+	assert_non_null(rng);
+	gsl_rng_set(rng, 31337);
+	for (i = 0; i < M; i++) {
+		beta[i] = 0.55 + 0.9 * gsl_rng_uniform(rng);
+		sd_e[i] = 0.05 + 0.08 * gsl_rng_uniform(rng);
+		vbar_true += beta[i] * beta[i] * sd_f * sd_f + sd_e[i] * sd_e[i];
+		sum_b += beta[i];
+		sum_b2 += beta[i] * beta[i];
+	}
+	vbar_true /= M;
+	cbar_true = sd_f * sd_f * (sum_b * sum_b - sum_b2) / ((double)M * (M - 1));
+	rules_config_init(&cfg);
+	cfg.near_floor_x = 0.15;   /* true count 11, inside the universe of 30 */
+	assert_int_equal(rules_exact_count(&cfg, RULES_NEAR_FLOOR, vbar_true, cbar_true, M, 12, &true_count), 1);
+	assert_true(true_count > 3 && true_count < M);
+	bootstrap_options_init(&opt);
+	opt.replicates = B;
+	opt.threads = 1;
+	for (trial = 0; trial < TRIALS; trial++) {
+		struct universe u;
+		struct bootstrap_base *b = NULL;
+		struct bootstrap_result *r = NULL;
+		struct rule_result res;
+
+		one_factor(rng, M, T, beta, sd_f, sd_e, 0.0081, x);
+		u = make_universe(M, T, x);
+		opt.seed = 1000 + trial;
+		assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+		assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_OK);
+		res.rule = RULES_NEAR_FLOOR;
+		assert_int_equal(rules_bootstrap_exact(&cfg, r->vbar, r->cbar, B, M, 12, &res, 1, &err), HC_OK);
+		/* a "not met" upper end (NaN) is an open interval */
+		if ((double)true_count >= res.count_p05 &&
+		    (isnan(res.count_p95) || (double)true_count <= res.count_p95))
+			covered++;
+		bootstrap_result_free(r);
+		bootstrap_base_free(b);
+	}
+	print_message("near-floor count %zu; interval covered it in %zu of %d trials\n",
+		      true_count, covered, TRIALS);
+	assert_in_range(covered, 166, 194);
+	gsl_rng_free(rng);
+	free(x);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_bootstrap_gram_replicate_equals_direct),
+		cmocka_unit_test(test_bootstrap_direct_route_replicate_equals_direct),
+		cmocka_unit_test(test_bootstrap_default_block_length),
+		cmocka_unit_test(test_bootstrap_block_indices_are_blocks),
+		cmocka_unit_test(test_bootstrap_stationary_mean_block_length),
+		cmocka_unit_test(test_bootstrap_same_for_any_thread_count),
+		cmocka_unit_test(test_bootstrap_errors),
+		cmocka_unit_test(test_bootstrap_progress_can_stop),
+		cmocka_unit_test(test_bootstrap_allocation_failures),
+		cmocka_unit_test(test_bootstrap_interval_covers_true_count),
+	};
+
+	gsl_set_error_handler_off();
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

@@ -1,0 +1,375 @@
+/*
+ * Unit tests for curve.c.  Outside references: exact enumeration of every
+ * subset of small universes (the mean and spread of the portfolio variance,
+ * and of the tracking error), the published tables of Elton & Gruber (1977)
+ * and Statman (1987) (from memory, design.md section 11), and hand-written
+ * expectations for the size-list grammar.
+ */
+#include <math.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include <gsl/gsl_errno.h>
+
+#include "fixture.h"
+#include "holdcount/curve.h"
+#include "holdcount/memory.h"
+
+static void assert_close(double got, double want, double scale, double rel)
+{
+	if (!(fabs(got - want) <= rel * fmax(fabs(want), scale)))
+		fail_msg("got %.17g, want %.17g (rel %.3g)", got, want, rel);
+}
+
+struct enumeration {
+	long double mean_var[16], var_var[16], mean_te2[16];
+};
+
+/* Every subset of the m securities (m <= 15), by bit mask: the portfolio
+ * variance X/N^2 and the squared tracking error against the universe's
+ * equal-weight portfolio, (w_S - 1/M)' A (w_S - 1/M), averaged per N;
+ * the spread is the population variance over the C(M, N) subsets. */
+static void enumerate(const double *a, size_t m, struct enumeration *e)
+{
+	long double sum[16] = {0}, sum2[16] = {0}, te[16] = {0}, count[16] = {0};
+	unsigned long mask, top = 1UL << m;
+	size_t i, j, n;
+	double w[16];
+
+	for (mask = 1; mask < top; mask++) {
+		long double x = 0, q = 0, v;
+		n = (size_t)__builtin_popcountl(mask);
+		for (i = 0; i < m; i++)
+			w[i] = ((mask >> i) & 1 ? 1.0 / n : 0.0) - 1.0 / m;
+		for (i = 0; i < m; i++)
+			for (j = 0; j < m; j++) {
+				if (((mask >> i) & 1) && ((mask >> j) & 1))
+					x += a[i * m + j];
+				q += (long double)w[i] * a[i * m + j] * w[j];
+			}
+		v = x / ((long double)n * n);
+		sum[n] += v;
+		te[n] += q;
+		count[n] += 1;
+		(void)sum2;
+	}
+	for (n = 1; n <= m; n++) {
+		e->mean_var[n] = sum[n] / count[n];
+		e->mean_te2[n] = te[n] / count[n];
+	}
+	/* Second pass for the spread: two-pass variance over the subsets. */
+	for (mask = 1; mask < top; mask++) {
+		long double x = 0, d;
+		n = (size_t)__builtin_popcountl(mask);
+		for (i = 0; i < m; i++)
+			for (j = 0; j < m; j++)
+				if (((mask >> i) & 1) && ((mask >> j) & 1))
+					x += a[i * m + j];
+		d = x / ((long double)n * n) - e->mean_var[n];
+		sum2[n] += d * d;
+	}
+	for (n = 1; n <= m; n++)
+		e->var_var[n] = sum2[n] / count[n];
+}
+
+/* (a) Exact mean and sd of the portfolio variance, and E[TE^2], against
+ * enumeration of all 2^M - 1 subsets, every N, 1e-12 relative.  The
+ * enumeration is the outside reference; both shapes (Gram route, T < M,
+ * and matrix route, T >= M) are covered. */
+static void check_enumeration(size_t m, size_t t, unsigned long seed, int route)
+{
+	struct universe *u = fixture_random_universe(m, t, seed);
+	double a[256], sd;
+	struct enumeration e;
+	struct moments mo;
+	struct hc_error err;
+	size_t n;
+
+	assert_non_null(u);
+	fixture_covariance(u, a);
+	enumerate(a, m, &e);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(mo.route, route);
+	for (n = 1; n <= m; n++) {
+		assert_close(curve_expected_variance(&mo, (double)n), (double)e.mean_var[n], 0, 1e-12);
+		assert_int_equal(curve_variance_sd(&mo, n, &sd, &err), HC_OK);
+		if (n == m)
+			assert_true(sd == 0.0); /* one subset: no spread at all */
+		else
+			assert_close(sd, sqrt((double)e.var_var[n]), 0, 1e-12);
+		assert_close(curve_expected_te2(&mo, (double)n), (double)e.mean_te2[n],
+			     (double)e.mean_te2[1], 1e-12);
+	}
+	/* At N = M the expectation is the equal-weight universe variance. */
+	assert_close(curve_expected_variance(&mo, (double)m), mo.universe_variance, 0, 1e-12);
+	fixture_free(u);
+}
+
+static void test_curve_exact_matches_enumeration(void **state)
+{
+	check_enumeration(11, 7, 2385, MOMENTS_ROUTE_GRAM);
+	check_enumeration(10, 23, 4711, MOMENTS_ROUTE_MATRIX);
+	check_enumeration(12, 5, 314159, MOMENTS_ROUTE_GRAM);
+}
+
+/* Tiny universes (M = 2, 3) exercise the p_3 = p_4 = 0 cases. */
+static void test_curve_tiny_universes(void **state)
+{
+	double sd;
+	struct enumeration e;
+	struct moments mo;
+	struct hc_error err;
+	size_t m, n;
+	const double a3[9] = {0.0412, 0.0071, -0.0033, 0.0071, 0.0237, 0.0058, -0.0033, 0.0058, 0.0659};
+	double a[9];
+
+	for (m = 2; m <= 3; m++) {
+		size_t i, j;
+		for (i = 0; i < m; i++)
+			for (j = 0; j < m; j++)
+				a[i * m + j] = a3[i * 3 + j];
+		enumerate(a, m, &e);
+		assert_int_equal(moments_from_matrix(&mo, a, m, &err), HC_OK);
+		for (n = 1; n <= m; n++) {
+			assert_int_equal(curve_variance_sd(&mo, n, &sd, &err), HC_OK);
+			assert_close(sd, sqrt((double)e.var_var[n]), 1e-18, 1e-12);
+			assert_close(curve_expected_variance(&mo, (double)n), (double)e.mean_var[n], 0, 1e-12);
+		}
+	}
+}
+
+/* (d) Elton & Gruber (1977), "Risk Reduction and Portfolio Size: An
+ * Analytical Solution", Journal of Business 50(4): their table follows
+ * 46.619/N + 7.058(1 - 1/N); rows N = 1, 10 and the limit read 46.619,
+ * 11.014 and 7.058 (values from memory; the table is rounded, so 0.002).
+ * Statman (1987), "How Many Stocks Make a Diversified Portfolio?", JFQA
+ * 22(3): 49.236% at N = 1, 23.932% at 10 and 19.158% in the limit, the same
+ * averages annualised with 52 weeks (from memory; within 0.002). */
+static void test_curve_published_tables(void **state)
+{
+	const size_t sizes[] = {1, 10, 1000000};
+	struct moments mo;
+	struct curve *c;
+	struct hc_error err;
+
+	assert_int_equal(moments_from_summary(&mo, 46.619, 7.058, 0, &err), HC_OK);
+	assert_int_equal(curve_exact(&c, &mo, sizes, 3, 1.0, &err), HC_OK);
+	assert_true(fabs(c->points[0].expected_variance - 46.619) < 0.002);
+	assert_true(fabs(c->points[1].expected_variance - 11.014) < 0.002);
+	assert_true(fabs(c->floor_variance - 7.058) < 0.002);
+	assert_true(fabs(c->points[2].expected_variance - 7.058) < 0.002);
+	assert_true(isnan(c->points[0].variance_sd)); /* summary: no spread */
+	assert_false(c->points[0].sampled);
+	curve_free(c);
+
+	assert_int_equal(curve_exact(&c, &mo, sizes, 3, 52.0, &err), HC_OK);
+	assert_true(fabs(c->points[0].expected_sd - 49.236) < 0.002);
+	assert_true(fabs(c->points[1].expected_sd - 23.932) < 0.002);
+	assert_true(fabs(sqrt(c->floor_variance) - 19.158) < 0.002);
+	assert_true(c->m == 0 && c->periods_per_year == 52.0);
+	curve_free(c);
+}
+
+/* Scaling: variance by P, sd by sqrt(P); the diversifiable share and the
+ * tracking error follow their definitions in design.md section 2. */
+static void test_curve_exact_columns_and_scaling(void **state)
+{
+	const size_t sizes[] = {1, 4, 9, 25};
+	struct moments mo;
+	struct curve *c;
+	struct hc_error err;
+	double vbar = 0.00873, cbar = 0.00219, ev, sd;
+	size_t i;
+
+	assert_int_equal(moments_from_summary(&mo, vbar, cbar, 25, &err), HC_OK);
+	assert_int_equal(curve_exact(&c, &mo, sizes, 4, 12.0, &err), HC_OK);
+	assert_int_equal(c->npoints, 4);
+	for (i = 0; i < 4; i++) {
+		double n = (double)sizes[i];
+		ev = vbar / n + (1 - 1 / n) * cbar;
+		assert_int_equal(c->points[i].n, sizes[i]);
+		assert_close(c->points[i].expected_variance, 12 * ev, 0, 1e-15);
+		assert_close(c->points[i].expected_sd, sqrt(12 * ev), 0, 1e-15);
+		assert_close(c->points[i].diversifiable_share, (vbar - cbar) / n / ev, 0, 1e-14);
+		assert_close(c->points[i].expected_tracking_error,
+			     sqrt(12 * (vbar - cbar) * (1 / n - 1 / 25.0)), 1e-300, 1e-14);
+	}
+	assert_true(c->points[3].expected_tracking_error == 0.0);
+	assert_close(c->universe_variance, 12 * (vbar / 25 + cbar * 24 / 25), 0, 1e-14);
+	curve_free(c);
+	assert_int_equal(curve_variance_sd(&mo, 3, &sd, &err), HC_EUSAGE);
+}
+
+/* Equivalent count inverts the expected-variance curve (to 1e-9); at or
+ * below the floor there is no such count. */
+static void test_curve_equivalent_count(void **state)
+{
+	struct moments mo;
+	struct hc_error err;
+	const double ns[] = {1.0, 2.385, 17.0, 250.5};
+	double n_eq;
+	size_t i;
+
+	assert_int_equal(moments_from_summary(&mo, 0.0612, 0.0094, 0, &err), HC_OK);
+	for (i = 0; i < 4; i++) {
+		assert_int_equal(curve_equivalent_count(&mo, curve_expected_variance(&mo, ns[i]), &n_eq), 0);
+		assert_close(n_eq, ns[i], 0, 1e-9);
+	}
+	assert_int_equal(curve_equivalent_count(&mo, 0.0094, &n_eq), -1);
+	assert_int_equal(curve_equivalent_count(&mo, 0.0031, &n_eq), -1);
+}
+
+static void test_curve_exact_rejects_bad_sizes(void **state)
+{
+	const size_t big[] = {3, 26}, zero[] = {0};
+	struct moments mo;
+	struct curve *c = (struct curve *)&mo;
+	struct hc_error err;
+	double sd;
+
+	assert_int_equal(moments_from_summary(&mo, 0.0412, 0.0101, 25, &err), HC_OK);
+	assert_int_equal(curve_exact(&c, &mo, big, 2, 12.0, &err), HC_EUSAGE);
+	assert_null(c);
+	assert_string_equal(err.message, "size 26 is larger than the 25 securities kept");
+	assert_int_equal(curve_exact(&c, &mo, zero, 1, 12.0, &err), HC_EUSAGE);
+	assert_int_equal(curve_exact(&c, &mo, big, 1, 0.0, &err), HC_EUSAGE);
+	assert_int_equal(curve_exact(&c, &mo, big, 1, NAN, &err), HC_EUSAGE);
+	{
+		const double a[4] = {0.0412, 0.0071, 0.0071, 0.0237};
+		assert_int_equal(moments_from_matrix(&mo, a, 2, &err), HC_OK);
+		assert_int_equal(curve_variance_sd(&mo, 3, &sd, &err), HC_EUSAGE);
+		assert_int_equal(curve_variance_sd(&mo, 0, &sd, &err), HC_EUSAGE);
+	}
+	curve_free(NULL);
+}
+
+static void expect_sizes(const char *text, size_t max, const size_t *want, size_t nwant)
+{
+	size_t *got, n, i;
+	struct hc_error err;
+
+	assert_int_equal(curve_parse_sizes(text, max, &got, &n, &err), HC_OK);
+	assert_int_equal(n, nwant);
+	for (i = 0; i < n; i++)
+		assert_int_equal(got[i], want[i]);
+	hc_free(got);
+}
+
+static void expect_bad_sizes(const char *text, size_t max, int code, const char *message)
+{
+	size_t *got = (size_t *)&max, n = 99;
+	struct hc_error err;
+
+	assert_int_equal(curve_parse_sizes(text, max, &got, &n, &err), code);
+	assert_null(got);
+	assert_int_equal(n, 0);
+	assert_string_equal(err.message, message);
+}
+
+static void test_curve_parse_sizes(void **state)
+{
+	const size_t a[] = {1, 2, 5, 6, 7, 8, 50, 100};
+	const size_t b[] = {3, 4, 5, 9};
+	const size_t c[] = {412};
+
+	expect_sizes("1,2,5-8,50,100", 412, a, 8);
+	expect_sizes("100,5-8,2,50,1,6,6", 0, a, 8);      /* any order, duplicates once */
+	expect_sizes(" 9 , 3-5,4", 10, b, 4);
+	expect_sizes("412", 412, c, 1);
+	expect_bad_sizes("1,x,3", 412, HC_EUSAGE, "bad size list: 'x' is not a count");
+	expect_bad_sizes("1,900", 412, HC_EUSAGE, "size 900 is larger than the 412 securities kept");
+	expect_bad_sizes("5-900", 412, HC_EUSAGE, "size 900 is larger than the 412 securities kept");
+	expect_bad_sizes("0", 412, HC_EUSAGE, "bad size list: '0' is not a count");
+	expect_bad_sizes("1,,2", 412, HC_EUSAGE, "bad size list: '' is not a count");
+	expect_bad_sizes("", 412, HC_EUSAGE, "bad size list: '' is not a count");
+	expect_bad_sizes("-3", 412, HC_EUSAGE, "bad size list: '-3' is not a count or a range of counts");
+	expect_bad_sizes("2.5", 412, HC_EUSAGE, "bad size list: '2.5' is not a count");
+	expect_bad_sizes("30-5", 412, HC_EUSAGE, "bad size list: range '30-5' runs backwards");
+	expect_bad_sizes("99999999999999999999999", 0, HC_EUSAGE,
+			 "bad size list: '99999999999999999999999' is not a count");
+	hc_alloc_fail_after(0);
+	expect_bad_sizes("1-5", 0, HC_ENOMEM, "out of memory for the size list");
+	hc_alloc_fail_after(-1);
+}
+
+static void test_curve_default_sizes(void **state)
+{
+	const size_t g1000[] = {1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 12, 15, 20, 25, 30, 40, 50, 60, 75,
+				100, 120, 150, 200, 250, 300, 400, 500, 600, 750, 1000};
+	const size_t g412[] = {1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 12, 15, 20, 25, 30, 40, 50, 60, 75,
+			       100, 120, 150, 200, 250, 300, 400, 412};
+	size_t *s, n, i;
+	struct hc_error err;
+
+	assert_int_equal(curve_default_sizes(1000, &s, &n, &err), HC_OK);
+	assert_int_equal(n, sizeof g1000 / sizeof g1000[0]);
+	for (i = 0; i < n; i++)
+		assert_int_equal(s[i], g1000[i]);
+	hc_free(s);
+	assert_int_equal(curve_default_sizes(0, &s, &n, &err), HC_OK); /* unbounded: to 1000 */
+	assert_int_equal(n, sizeof g1000 / sizeof g1000[0]);
+	assert_int_equal(s[n - 1], 1000);
+	hc_free(s);
+	assert_int_equal(curve_default_sizes(412, &s, &n, &err), HC_OK);
+	assert_int_equal(n, sizeof g412 / sizeof g412[0]);
+	for (i = 0; i < n; i++)
+		assert_int_equal(s[i], g412[i]);
+	hc_free(s);
+	assert_int_equal(curve_default_sizes(7, &s, &n, &err), HC_OK);
+	assert_int_equal(n, 7);
+	assert_int_equal(s[6], 7);
+	hc_free(s);
+	assert_int_equal(curve_default_sizes(11, &s, &n, &err), HC_OK);
+	assert_int_equal(n, 11);
+	assert_int_equal(s[10], 11);
+	hc_free(s);
+	hc_alloc_fail_after(0);
+	assert_int_equal(curve_default_sizes(11, &s, &n, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+	assert_null(s);
+}
+
+/* (f) Allocation failures in curve_exact leave nothing behind. */
+static void test_curve_allocation_failure(void **state)
+{
+	const size_t sizes[] = {1, 2, 3};
+	struct moments mo;
+	struct curve *c;
+	struct hc_error err;
+	long k;
+	int rc;
+
+	assert_int_equal(moments_from_summary(&mo, 0.0412, 0.0101, 25, &err), HC_OK);
+	for (k = 0;; k++) {
+		hc_alloc_fail_after(k);
+		rc = curve_exact(&c, &mo, sizes, 3, 12.0, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_OK)
+			break;
+		assert_int_equal(rc, HC_ENOMEM);
+		assert_null(c);
+	}
+	assert_int_equal(k, 2);
+	curve_free(c);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_curve_exact_matches_enumeration),
+		cmocka_unit_test(test_curve_tiny_universes),
+		cmocka_unit_test(test_curve_published_tables),
+		cmocka_unit_test(test_curve_exact_columns_and_scaling),
+		cmocka_unit_test(test_curve_equivalent_count),
+		cmocka_unit_test(test_curve_exact_rejects_bad_sizes),
+		cmocka_unit_test(test_curve_parse_sizes),
+		cmocka_unit_test(test_curve_default_sizes),
+		cmocka_unit_test(test_curve_allocation_failure),
+	};
+	gsl_set_error_handler_off();
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

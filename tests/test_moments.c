@@ -1,0 +1,359 @@
+/*
+ * Unit tests for moments.c.  References: a textbook two-pass covariance in
+ * long double (tests/support/fixture.c), sums worked by hand for a 3 x 3
+ * matrix, and the routes checked against each other.
+ */
+#include <math.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include <gsl/gsl_errno.h>
+
+#include "fixture.h"
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+
+/* Relative closeness with a floor scale, so that sums near 0 compare
+ * against the size of the figures they are made of. */
+static void assert_close(double got, double want, double scale, double rel)
+{
+	if (!(fabs(got - want) <= rel * fmax(fabs(want), scale)))
+		fail_msg("got %.17g, want %.17g (rel %.3g)", got, want, rel);
+}
+
+/* Reference sums straight from a full matrix, by their definitions. */
+static void reference_sums(const double *a, size_t m, double *out /* V C S Q W Z */)
+{
+	long double V = 0, C = 0, S = 0, Q = 0, W = 0, Z = 0, r;
+	size_t i, j;
+
+	for (i = 0; i < m; i++) {
+		r = 0;
+		for (j = 0; j < m; j++)
+			if (j != i) {
+				r += a[i * m + j];
+				Q += (long double)a[i * m + j] * a[i * m + j];
+			}
+		V += a[i * m + i];
+		S += (long double)a[i * m + i] * a[i * m + i];
+		W += a[i * m + i] * r;
+		Z += r * r;
+		C += r;
+	}
+	out[0] = V, out[1] = C, out[2] = S, out[3] = Q, out[4] = W, out[5] = Z;
+}
+
+static double reference_correlation(const double *a, size_t m)
+{
+	long double s = 0;
+	size_t i, j;
+
+	for (i = 0; i < m; i++)
+		for (j = 0; j < m; j++)
+			if (i != j)
+				s += a[i * m + j] / sqrt(a[i * m + i] * a[j * m + j]);
+	return (double)(s / (m * (m - 1.0)));
+}
+
+static void check_against_reference(const struct moments *mo, const double *a, size_t m, double rel)
+{
+	double ref[6];
+
+	reference_sums(a, m, ref);
+	assert_close(mo->sum_var, ref[0], ref[0], rel);
+	assert_close(mo->sum_cov, ref[1], ref[0], rel);
+	assert_close(mo->sum_var2, ref[2], ref[2], rel);
+	assert_close(mo->sum_cov2, ref[3], ref[2], rel);
+	assert_close(mo->sum_var_rowcov, ref[4], ref[2], rel);
+	assert_close(mo->sum_rowcov2, ref[5], ref[2], rel);
+	assert_close(mo->average_variance, ref[0] / m, ref[0] / m, rel);
+	assert_close(mo->average_covariance, ref[1] / (m * (m - 1.0)), ref[0] / m, rel);
+	assert_close(mo->average_correlation, reference_correlation(a, m), 1.0, rel);
+	assert_close(mo->universe_variance, (ref[0] + ref[1]) / ((double)m * m), ref[0] / m, rel);
+}
+
+/* (b) Gram route (T < M) against the two-pass reference covariance; both
+ * double-precision routes agree with it to 1e-10 (the sums' rounding is
+ * about 1e-15 relative; 1e-10 leaves room for the Q = ||A||^2 - S step). */
+static void test_moments_gram_route_matches_reference(void **state)
+{
+	size_t m = 37, t = 13;
+	struct universe *u = fixture_random_universe(m, t, 2385);
+	double *a = hc_malloc(m * m * sizeof *a);
+	struct moments mo;
+	struct hc_error err;
+
+	assert_non_null(u);
+	assert_non_null(a);
+	fixture_covariance(u, a);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_GRAM);
+	assert_int_equal(mo.m, m);
+	assert_int_equal(mo.t, t);
+	assert_true(mo.has_spread && mo.has_correlation);
+	check_against_reference(&mo, a, m, 1e-10);
+	hc_free(a);
+	fixture_free(u);
+}
+
+static void test_moments_matrix_route_matches_reference(void **state)
+{
+	size_t m = 23, t = 61;
+	struct universe *u = fixture_random_universe(m, t, 7741);
+	double *a = hc_malloc(m * m * sizeof *a);
+	struct moments mo;
+	struct hc_error err;
+
+	assert_non_null(u);
+	assert_non_null(a);
+	fixture_covariance(u, a);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_MATRIX);
+	check_against_reference(&mo, a, m, 1e-10);
+	hc_free(a);
+	fixture_free(u);
+}
+
+/* (b) Gram and matrix routes on the same data, both shapes, agree to
+ * 1e-10 (each sum is exact up to rounding, about 1e-15 relative; the
+ * margin covers Q = ||A||_F^2 - S). */
+static void check_routes_agree(size_t m, size_t t, unsigned long seed)
+{
+	struct universe *u = fixture_random_universe(m, t, seed);
+	struct moments mg, mm;
+	struct hc_error err;
+
+	assert_non_null(u);
+	assert_int_equal(moments_from_universe_route(&mg, u, MOMENTS_ROUTE_GRAM, &err), HC_OK);
+	assert_int_equal(moments_from_universe_route(&mm, u, MOMENTS_ROUTE_MATRIX, &err), HC_OK);
+	assert_int_equal(mg.route, MOMENTS_ROUTE_GRAM);
+	assert_int_equal(mm.route, MOMENTS_ROUTE_MATRIX);
+	assert_close(mg.sum_var, mm.sum_var, mm.sum_var, 1e-10);
+	assert_close(mg.sum_cov, mm.sum_cov, mm.sum_var, 1e-10);
+	assert_close(mg.sum_var2, mm.sum_var2, mm.sum_var2, 1e-10);
+	assert_close(mg.sum_cov2, mm.sum_cov2, mm.sum_var2, 1e-10);
+	assert_close(mg.sum_var_rowcov, mm.sum_var_rowcov, mm.sum_var2, 1e-10);
+	assert_close(mg.sum_rowcov2, mm.sum_rowcov2, mm.sum_var2, 1e-10);
+	assert_close(mg.average_correlation, mm.average_correlation, 1.0, 1e-10);
+	assert_close(mg.universe_variance, mm.universe_variance, mm.average_variance, 1e-10);
+	assert_int_equal(moments_from_universe_route(&mm, u, 17, &err), HC_EUSAGE);
+	u->has_missing = 1;
+	assert_int_equal(moments_from_universe_route(&mm, u, MOMENTS_ROUTE_GRAM, &err), HC_EUSAGE);
+	fixture_free(u);
+}
+
+static void test_moments_gram_and_matrix_routes_agree(void **state)
+{
+	check_routes_agree(30, 29, 99);
+	check_routes_agree(17, 44, 1001);
+}
+
+/* (c) A 3 x 3 matrix whose sums were worked by hand:
+ * V = 0.1925, r = (0.004, 0.018, 0.010), C = 0.032, S = 0.01360625,
+ * Q = 2(0.006^2 + 0.002^2 + 0.012^2) = 0.000368, W = 0.002405,
+ * Z = 0.00044, correlations 0.1, -0.04, 0.16 (mean 0.22/3). */
+static void test_moments_from_matrix_hand_worked(void **state)
+{
+	const double a[9] = {0.04, 0.006, -0.002, 0.006, 0.09, 0.012, -0.002, 0.012, 0.0625};
+	struct moments mo;
+	struct hc_error err;
+
+	assert_int_equal(moments_from_matrix(&mo, a, 3, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_GIVEN);
+	assert_close(mo.sum_var, 0.1925, 1, 1e-15);
+	assert_close(mo.sum_cov, 0.032, 1, 1e-15);
+	assert_close(mo.sum_var2, 0.01360625, 1, 1e-15);
+	assert_close(mo.sum_cov2, 0.000368, 1, 1e-15);
+	assert_close(mo.sum_var_rowcov, 0.002405, 1, 1e-15);
+	assert_close(mo.sum_rowcov2, 0.00044, 1, 1e-15);
+	assert_close(mo.average_variance, 0.1925 / 3, 1, 1e-15);
+	assert_close(mo.average_covariance, 0.032 / 6, 1, 1e-15);
+	assert_close(mo.average_correlation, 0.22 / 3, 1, 1e-15);
+	assert_close(mo.universe_variance, (0.1925 + 0.032) / 9, 1, 1e-15);
+}
+
+/* Pairwise route: on complete data it must give the ordinary covariance;
+ * with a gap, pairs with the gappy security use the 8 shared periods. */
+static void test_moments_pairwise_route(void **state)
+{
+	size_t m = 4, t = 9, i, j;
+	double x[36], y[32], a[16], a9[16], a8[16], corr = 0;
+	struct universe *u, *u8;
+	struct moments mo, ref;
+	struct hc_error err;
+
+	fixture_returns(x, m, t, 4242);
+	u = fixture_universe(x, m, t);
+	assert_non_null(u);
+	u->has_missing = 1; /* forces the pairwise route on complete data */
+	fixture_covariance(u, a9);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_PAIRWISE);
+	check_against_reference(&mo, a9, m, 1e-12);
+	fixture_free(u);
+
+	/* The same series with security 2's period 3 missing. */
+	for (i = 0; i < m; i++)
+		for (j = 0, t = 0; j < 9; j++)
+			if (j != 3)
+				y[i * 8 + t++] = x[i * 9 + j];
+	t = 9;
+	u8 = fixture_universe(y, m, 8);
+	assert_non_null(u8);
+	fixture_covariance(u8, a8);
+	x[2 * 9 + 3] = NAN;
+	u = fixture_universe(x, m, t);
+	assert_non_null(u);
+	assert_true(u->has_missing);
+	for (i = 0; i < m; i++)
+		for (j = 0; j < m; j++) {
+			a[i * m + j] = (i == 2 || j == 2) ? a8[i * m + j] : a9[i * m + j];
+			if (i != j)
+				corr += (i == 2 || j == 2)
+					? a8[i * m + j] / sqrt(a8[i * m + i] * a8[j * m + j])
+					: a9[i * m + j] / sqrt(a9[i * m + i] * a9[j * m + j]);
+		}
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(moments_from_matrix(&ref, a, m, &err), HC_OK);
+	assert_close(mo.sum_var, ref.sum_var, ref.sum_var, 1e-12);
+	assert_close(mo.sum_cov, ref.sum_cov, ref.sum_var, 1e-12);
+	assert_close(mo.sum_cov2, ref.sum_cov2, ref.sum_var2, 1e-12);
+	assert_close(mo.sum_rowcov2, ref.sum_rowcov2, ref.sum_var2, 1e-12);
+	assert_close(mo.average_correlation, corr / 12.0, 1.0, 1e-12);
+	fixture_free(u);
+	fixture_free(u8);
+}
+
+static void test_moments_from_summary(void **state)
+{
+	struct moments mo;
+	struct hc_error err;
+
+	/* Elton & Gruber (1977) averages (from memory, design.md section 11). */
+	assert_int_equal(moments_from_summary(&mo, 46.619, 7.058, 0, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_SUMMARY);
+	assert_int_equal(mo.m, 0);
+	assert_false(mo.has_spread);
+	assert_false(mo.has_correlation);
+	assert_close(mo.universe_variance, 7.058, 1, 1e-15);
+	assert_close(mo.average_correlation, 7.058 / 46.619, 1, 1e-15);
+	assert_int_equal(moments_from_summary(&mo, 0.0385, 0.0071, 412, &err), HC_OK);
+	assert_close(mo.sum_var, 0.0385 * 412, 1, 1e-15);
+	assert_close(mo.sum_cov, 0.0071 * 412 * 411, 1, 1e-14);
+	assert_close(mo.universe_variance, 0.0385 / 412 + 0.0071 * 411 / 412, 1, 1e-14);
+}
+
+static void test_moments_summary_rejects_impossible(void **state)
+{
+	struct moments mo;
+	struct hc_error err;
+
+	assert_int_equal(moments_from_summary(&mo, -0.02, 0.01, 0, &err), HC_EUSAGE);
+	assert_non_null(strstr(err.message, "not a positive number"));
+	assert_int_equal(moments_from_summary(&mo, 0.02, 0.03, 0, &err), HC_EUSAGE);
+	assert_non_null(strstr(err.message, "at most the average variance"));
+	assert_int_equal(moments_from_summary(&mo, 0.02, NAN, 10, &err), HC_EUSAGE);
+	assert_int_equal(moments_from_summary(&mo, 0.02, 0.01, 1, &err), HC_EUSAGE);
+	/* cbar >= -vbar/(M-1) for a positive semi-definite equicorrelated matrix. */
+	assert_int_equal(moments_from_summary(&mo, 0.02, -0.011, 3, &err), HC_EUSAGE);
+	assert_int_equal(moments_from_summary(&mo, 0.02, -0.009, 3, &err), HC_OK);
+	assert_int_equal(moments_from_summary(&mo, 0.02, -0.001, 0, &err), HC_EUSAGE);
+}
+
+static void test_moments_rejects_bad_data(void **state)
+{
+	double x[3 * 5];
+	const double bad[4] = {0.04, 0.01, 0.01, 0.0};
+	const double inf[4] = {0.04, INFINITY, INFINITY, 0.05};
+	struct universe *u;
+	struct moments mo;
+	struct hc_error err;
+	size_t k;
+
+	fixture_returns(x, 3, 5, 11);
+	for (k = 0; k < 5; k++)
+		x[1 * 5 + k] = 0.0137; /* S02 constant */
+	u = fixture_universe(x, 3, 5);
+	assert_non_null(u);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_string_equal(err.message, "security 'S02' has zero variance");
+	u->has_missing = 1;
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_string_equal(err.message, "security 'S02' has zero variance");
+	u->has_missing = 0;
+	u->m = 1;
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_non_null(strstr(err.message, "expected at least 2"));
+	u->m = 3;
+	fixture_free(u);
+	assert_int_equal(moments_from_matrix(&mo, bad, 2, &err), HC_EDATA);
+	assert_non_null(strstr(err.message, "variance of security 2 is 0"));
+	assert_int_equal(moments_from_matrix(&mo, inf, 2, &err), HC_EDATA);
+	assert_non_null(strstr(err.message, "not a finite number"));
+	assert_int_equal(moments_from_matrix(&mo, bad, 1, &err), HC_EDATA);
+
+	/* Pairwise: a security with a single observation. */
+	fixture_returns(x, 3, 5, 12);
+	for (k = 1; k < 5; k++)
+		x[2 * 5 + k] = NAN;
+	u = fixture_universe(x, 3, 5);
+	assert_non_null(u);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_string_equal(err.message, "security 'S03' has fewer than two periods");
+	fixture_free(u);
+}
+
+/* (f) Every allocation failure on each route ends in HC_ENOMEM. */
+static void check_alloc_failures(struct universe *u)
+{
+	struct moments mo;
+	struct hc_error err;
+	long k;
+	int rc;
+
+	for (k = 0;; k++) {
+		hc_alloc_fail_after(k);
+		rc = moments_from_universe(&mo, u, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_OK)
+			break;
+		assert_int_equal(rc, HC_ENOMEM);
+		assert_non_null(strstr(err.message, "out of memory"));
+	}
+	assert_true(k >= 1);
+}
+
+static void test_moments_allocation_failure(void **state)
+{
+	struct universe *g = fixture_random_universe(12, 5, 5), *m = fixture_random_universe(5, 12, 6);
+
+	assert_non_null(g);
+	assert_non_null(m);
+	check_alloc_failures(g);
+	check_alloc_failures(m);
+	m->has_missing = 1;
+	check_alloc_failures(m);
+	fixture_free(g);
+	fixture_free(m);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_moments_gram_route_matches_reference),
+		cmocka_unit_test(test_moments_matrix_route_matches_reference),
+		cmocka_unit_test(test_moments_gram_and_matrix_routes_agree),
+		cmocka_unit_test(test_moments_from_matrix_hand_worked),
+		cmocka_unit_test(test_moments_pairwise_route),
+		cmocka_unit_test(test_moments_from_summary),
+		cmocka_unit_test(test_moments_summary_rejects_impossible),
+		cmocka_unit_test(test_moments_rejects_bad_data),
+		cmocka_unit_test(test_moments_allocation_failure),
+	};
+	gsl_set_error_handler_off();
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

@@ -1,0 +1,412 @@
+/*
+ * Unit tests for the report model and its writers.
+ *
+ * Golden outputs: the expected strings below were worked out by hand from
+ * the writer contract in report.h; the 17-digit spellings of the numbers
+ * were taken from Python 3's '%.17g' % x (CPython formats through the C
+ * library's correctly rounded printf), and the JSON is also re-parsed with
+ * cJSON's own parser and every number compared bit for bit with the value
+ * put in, which is the round-trip property the contract promises.
+ */
+#define _POSIX_C_SOURCE 200809L
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <math.h>
+#include <cmocka.h>
+
+#include <cjson/cJSON.h>
+
+#include "holdcount/error.h"
+#include "holdcount/memory.h"
+#include "holdcount/report.h"
+
+/* Build the small report every golden test renders; HC_OK or the first
+ * failing status (for the allocation-failure sweep). */
+static int build(struct report **out)
+{
+	struct report *r = report_alloc();
+	struct report_table *t;
+	int rc = HC_ENOMEM;
+
+	*out = NULL;
+	if (!r)
+		return HC_ENOMEM;
+	if (report_add_int(r, "securities", "securities kept", 37) ||
+	    report_add_real(r, "average_correlation", "average correlation", 0.2385, REPORT_STYLE_FIXED4) ||
+	    report_add_real(r, "floor_sd", "floor sd", 0.1915815, REPORT_STYLE_PERCENT) ||
+	    report_add_text(r, "first_date", "first date", "2004-01-31") ||
+	    report_add_bool(r, "complete", "complete data", 1) ||
+	    report_add_none(r, "periods_per_year", "periods per year"))
+		goto fail;
+	t = report_add_table(r, "curve", "risk by count");
+	if (!t)
+		goto fail;
+	if (report_table_add_column(t, "n", "N", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "expected_sd", "expected sd", REPORT_STYLE_PERCENT) ||
+	    report_table_add_column(t, "variance", "variance", REPORT_STYLE_SCI) ||
+	    report_table_add_column(t, "label", "label", REPORT_STYLE_PLAIN))
+		goto fail;
+	if (report_table_add_row(t))
+		goto fail;
+	report_table_set_int(t, 0, 0, 1);
+	report_table_set_real(t, 0, 1, 0.49236);
+	report_table_set_real(t, 0, 2, -0.0123456789);
+	if (report_table_set_text(t, 0, 3, "one, \"a\""))
+		goto fail;
+	if (report_table_add_row(t))
+		goto fail;
+	report_table_set_int(t, 1, 0, 10);
+	report_table_set_real(t, 1, 1, 0.23932);
+	report_table_set_real(t, 1, 2, NAN);
+	if (report_table_set_text(t, 1, 3, "ten"))
+		goto fail;
+	if (report_add_note(r, "check the inputs"))
+		goto fail;
+	*out = r;
+	return HC_OK;
+fail:
+	report_free(r);
+	return rc;
+}
+
+/* Render r with writer w into a heap string (open_memstream). */
+static char *render(const struct report_writer *w, const struct report *r, int *rc)
+{
+	char *buf = NULL;
+	size_t len = 0;
+	FILE *fp = open_memstream(&buf, &len);
+	struct hc_error err;
+
+	assert_non_null(fp);
+	hc_error_clear(&err);
+	*rc = w->write(fp, r, &err);
+	fclose(fp);
+	return buf;
+}
+
+static const char golden_text[] =
+	"securities kept:     37\n"
+	"average correlation: 0.2385\n"
+	"floor sd:            19.16%\n"
+	"first date:          2004-01-31\n"
+	"complete data:       yes\n"
+	"periods per year:    -\n"
+	"\n"
+	"risk by count\n"
+	" N  expected sd     variance  label\n"
+	" 1       49.24%  -1.2346e-02  one, \"a\"\n"
+	"10       23.93%            -  ten\n"
+	"\n"
+	"cautions:\n"
+	"- check the inputs\n";
+
+static void test_report_text_golden(void **state)
+{
+	struct report *r;
+	char *s;
+	int rc;
+
+	assert_int_equal(build(&r), HC_OK);
+	s = render(report_writer_text, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_string_equal(s, golden_text);
+	free(s);
+	report_free(r);
+}
+
+/* RFC 4180 section 2: a field with a comma or a quote is quoted, inner
+ * quotes doubled; the no-value cell is empty. */
+static const char golden_csv[] =
+	"n,expected_sd,variance,label\n"
+	"1,0.49236000000000002,-0.0123456789,\"one, \"\"a\"\"\"\n"
+	"10,0.23932,,ten\n";
+
+static void test_report_csv_golden(void **state)
+{
+	struct report *r;
+	char *s;
+	int rc;
+
+	assert_int_equal(build(&r), HC_OK);
+	s = render(report_writer_csv, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_string_equal(s, golden_csv);
+	free(s);
+	report_free(r);
+}
+
+static void test_report_csv_fields_without_table(void **state)
+{
+	struct report *r = report_alloc();
+	char *s;
+	int rc;
+
+	assert_non_null(r);
+	assert_int_equal(report_add_real(r, "average_variance", "average variance", 46.619, REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(report_add_real(r, "floor", "floor", -0.0, REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(report_add_real(r, "infinite", "infinite", INFINITY, REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(report_add_text(r, "id", "id", "Q7,\nline"), HC_OK);
+	s = render(report_writer_csv, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	/* -0 prints as 0, a non-finite value has no spelling (empty), and the
+	 * text with a comma and a line break is quoted (RFC 4180). */
+	assert_string_equal(s, "key,value\naverage_variance,46.619\nfloor,0\ninfinite,\nid,\"Q7,\nline\"\n");
+	free(s);
+	report_free(r);
+}
+
+static const char golden_json[] =
+	"{\n"
+	"\t\"securities\":\t37,\n"
+	"\t\"average_correlation\":\t0.23849999999999999,\n"
+	"\t\"floor_sd\":\t0.19158149999999999,\n"
+	"\t\"first_date\":\t\"2004-01-31\",\n"
+	"\t\"complete\":\ttrue,\n"
+	"\t\"periods_per_year\":\tnull,\n"
+	"\t\"curve\":\t[{\n"
+	"\t\t\t\"n\":\t1,\n"
+	"\t\t\t\"expected_sd\":\t0.49236000000000002,\n"
+	"\t\t\t\"variance\":\t-0.0123456789,\n"
+	"\t\t\t\"label\":\t\"one, \\\"a\\\"\"\n"
+	"\t\t}, {\n"
+	"\t\t\t\"n\":\t10,\n"
+	"\t\t\t\"expected_sd\":\t0.23932,\n"
+	"\t\t\t\"variance\":\tnull,\n"
+	"\t\t\t\"label\":\t\"ten\"\n"
+	"\t\t}],\n"
+	"\t\"cautions\":\t[\"check the inputs\"]\n"
+	"}\n";
+
+static void test_report_json_golden_and_round_trip(void **state)
+{
+	struct report *r;
+	cJSON *root, *curve, *row;
+	char *s;
+	int rc;
+
+	assert_int_equal(build(&r), HC_OK);
+	s = render(report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_string_equal(s, golden_json);
+	root = cJSON_Parse(s);
+	assert_non_null(root);
+	/* Exact equality on purpose: 17 significant digits read back to the
+	 * same double (IEEE 754-2008, 5.12.2). */
+	assert_true(cJSON_GetObjectItem(root, "average_correlation")->valuedouble == 0.2385);
+	assert_true(cJSON_GetObjectItem(root, "floor_sd")->valuedouble == 0.1915815);
+	assert_true(cJSON_IsNull(cJSON_GetObjectItem(root, "periods_per_year")));
+	curve = cJSON_GetObjectItem(root, "curve");
+	assert_int_equal(cJSON_GetArraySize(curve), 2);
+	row = cJSON_GetArrayItem(curve, 0);
+	assert_true(cJSON_GetObjectItem(row, "expected_sd")->valuedouble == 0.49236);
+	assert_true(cJSON_GetObjectItem(row, "variance")->valuedouble == -0.0123456789);
+	assert_string_equal(cJSON_GetObjectItem(row, "label")->valuestring, "one, \"a\"");
+	assert_int_equal(cJSON_GetObjectItem(cJSON_GetArrayItem(curve, 1), "n")->valueint, 10);
+	cJSON_Delete(root);
+	free(s);
+	report_free(r);
+}
+
+/* Round trip over awkward doubles (subnormal, near 1, large): 17 digits
+ * must give back the very same bits. */
+static void test_report_json_numbers_round_trip(void **state)
+{
+	static const double xs[] = { 5e-324, 0.1, 1.0 - 0x1p-53, 2.385e300, -7.058e-7, 123456789012.25 };
+	struct report *r = report_alloc();
+	cJSON *root;
+	char key[8], *s;
+	size_t i;
+	int rc;
+
+	assert_non_null(r);
+	for (i = 0; i < sizeof xs / sizeof xs[0]; i++) {
+		snprintf(key, sizeof key, "x%zu", i);
+		assert_int_equal(report_add_real(r, key, key, xs[i], REPORT_STYLE_PLAIN), HC_OK);
+	}
+	s = render(report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	root = cJSON_Parse(s);
+	assert_non_null(root);
+	for (i = 0; i < sizeof xs / sizeof xs[0]; i++) {
+		snprintf(key, sizeof key, "x%zu", i);
+		assert_true(cJSON_GetObjectItem(root, key)->valuedouble == xs[i]);
+	}
+	cJSON_Delete(root);
+	free(s);
+	report_free(r);
+}
+
+/* Long notes wrap at 79 columns with a two-space hanging indent; short
+ * ones stay on one line (the golden test above). */
+static void test_report_text_wraps_notes(void **state)
+{
+	struct report *r = report_alloc();
+	char *s;
+	int rc;
+
+	assert_non_null(r);
+	assert_int_equal(report_add_note(r, "alpha bravo charlie delta echo foxtrot golf hotel india juliett "
+					 "kilo lima mike november oscar papa"), HC_OK);
+	s = render(report_writer_text, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_string_equal(s, "\ncautions:\n"
+			    "- alpha bravo charlie delta echo foxtrot golf hotel india juliett kilo lima\n"
+			    "  mike november oscar papa\n");
+	free(s);
+	report_free(r);
+}
+
+static void test_report_writer_find(void **state)
+{
+	assert_ptr_equal(report_writer_find("table"), report_writer_text);
+	assert_ptr_equal(report_writer_find("csv"), report_writer_csv);
+	assert_ptr_equal(report_writer_find("json"), report_writer_json);
+	assert_null(report_writer_find("xml"));
+	assert_null(report_writer_find(NULL));
+}
+
+/* The cautions of design.md section 9 and the project rules: each subject
+ * must be present. */
+static void test_report_cautions_cover_each_subject(void **state)
+{
+	static const char *const subjects[] = { "historical", "survivor", "estimation error",
+		"independent", "not investment advice", "licensed advisers", "legal limits" };
+	struct report *r = report_alloc();
+	size_t i, j;
+
+	assert_non_null(r);
+	assert_int_equal(report_add_cautions(r), HC_OK);
+	assert_int_equal(r->nnotes, 5);
+	for (i = 0; i < sizeof subjects / sizeof subjects[0]; i++) {
+		int found = 0;
+		for (j = 0; j < r->nnotes; j++)
+			found |= strstr(r->notes[j], subjects[i]) != NULL;
+		assert_true(found);
+	}
+	report_free(r);
+}
+
+/* A column added after rows (a caller appending its own column to a table
+ * another module filled): existing cells keep their values, the new cells
+ * are empty, and the CSV shows it (RFC 4180 empty field). */
+static void test_report_column_after_rows_widens(void **state)
+{
+	struct report *r = report_alloc();
+	struct report_table *t = report_add_table(r, "t", NULL);
+	char *s;
+	size_t i;
+	int rc;
+
+	assert_non_null(t);
+	assert_int_equal(report_table_add_column(t, "a", NULL, 0), HC_OK);
+	for (i = 0; i < 20; i++) { /* past the first growth of 16 rows */
+		assert_int_equal(report_table_add_row(t), HC_OK);
+		report_table_set_real(t, i, 0, 2.385 * (double)i);
+	}
+	assert_int_equal(report_table_add_column(t, "b", NULL, 0), HC_OK);
+	report_table_set_int(t, 19, 1, 7);
+	assert_int_equal(report_table_add_row(t), HC_OK);
+	s = render(report_writer_csv, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_non_null(strstr(s, "a,b\n0,\n2.3849999999999998,\n"));
+	/* 19 * 2.385 = 45.315 in decimal; as doubles it prints as below
+	 * (Python 3: '%.17g' % (2.385 * 19)). */
+	assert_non_null(strstr(s, "\n45.314999999999998,7\n,\n"));
+	free(s);
+	/* A column with no value anywhere is left out of the text view only. */
+	assert_int_equal(report_table_add_column(t, "c", "never set", 0), HC_OK);
+	s = render(report_writer_text, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_null(strstr(s, "never set"));
+	assert_int_equal(strncmp(s, "     a  b\n     0  -\n", 20), 0);
+	free(s);
+	s = render(report_writer_csv, r, &rc);
+	assert_non_null(strstr(s, "a,b,c\n0,,\n"));
+	free(s);
+	report_free(r);
+}
+
+/* Writing to a full device: the writers report HC_EIO, not success. */
+static void test_report_write_failure_is_eio(void **state)
+{
+	const struct report_writer *ws[] = { report_writer_text, report_writer_csv, report_writer_json };
+	struct report *r;
+	struct hc_error err;
+	size_t i;
+
+	assert_int_equal(build(&r), HC_OK);
+	for (i = 0; i < 3; i++) {
+		FILE *fp = fopen("/dev/full", "w");
+		assert_non_null(fp);
+		setvbuf(fp, NULL, _IONBF, 0);
+		hc_error_clear(&err);
+		assert_int_equal(ws[i]->write(fp, r, &err), HC_EIO);
+		assert_non_null(strstr(err.message, "cannot write output"));
+		fclose(fp);
+	}
+	report_free(r);
+}
+
+/* Fault injection: every allocation in building and writing may fail;
+ * the result is HC_ENOMEM (never a crash, never a wrong success), and
+ * once enough allocations succeed the output is the golden one. */
+static void test_report_allocation_failure(void **state)
+{
+	const struct report_writer *ws[] = { report_writer_text, report_writer_json };
+	const char *golden[] = { golden_text, golden_json };
+	long k;
+	size_t i;
+
+	for (i = 0; i < 2; i++) {
+		int succeeded = 0;
+		for (k = 0; k < 400 && !succeeded; k++) {
+			struct report *r;
+			char *s;
+			int rc;
+
+			hc_alloc_fail_after(k);
+			rc = build(&r);
+			if (rc == HC_OK) {
+				s = render(ws[i], r, &rc);
+				hc_alloc_fail_after(-1);
+				if (rc == HC_OK) {
+					assert_string_equal(s, golden[i]);
+					succeeded = 1;
+				} else {
+					assert_int_equal(rc, HC_ENOMEM);
+				}
+				free(s);
+				report_free(r);
+			} else {
+				hc_alloc_fail_after(-1);
+				assert_int_equal(rc, HC_ENOMEM);
+			}
+		}
+		assert_true(succeeded);
+		assert_true(k > 10); /* the sweep really did fail allocations */
+	}
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_report_text_golden),
+		cmocka_unit_test(test_report_csv_golden),
+		cmocka_unit_test(test_report_csv_fields_without_table),
+		cmocka_unit_test(test_report_json_golden_and_round_trip),
+		cmocka_unit_test(test_report_json_numbers_round_trip),
+		cmocka_unit_test(test_report_text_wraps_notes),
+		cmocka_unit_test(test_report_writer_find),
+		cmocka_unit_test(test_report_cautions_cover_each_subject),
+		cmocka_unit_test(test_report_column_after_rows_widens),
+		cmocka_unit_test(test_report_write_failure_is_eio),
+		cmocka_unit_test(test_report_allocation_failure),
+	};
+
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

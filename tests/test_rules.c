@@ -1,0 +1,565 @@
+/* Unit tests for the rules for "enough holdings" (rules.h). */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_randist.h>
+#include <gsl/gsl_rng.h>
+#include <gsl/gsl_sort.h>
+#include <gsl/gsl_statistics_double.h>
+
+#include "holdcount/bootstrap.h"
+#include "holdcount/memory.h"
+#include "holdcount/rules.h"
+
+/* cmocka's float comparison is single precision; this one is double. */
+#define assert_close(a, b, tol) do { \
+	double a_ = (a), b_ = (b), t_ = (tol); \
+	if (!(fabs(a_ - b_) <= t_)) \
+		fail_msg("%s = %.17g, expected %.17g within %.3g", #a, a_, b_, t_); \
+} while (0)
+
+/* Averages per period with high-entropy values: (v-bar, c-bar, M, P). */
+static const struct { double vbar, cbar; size_t m; double ppy; } cases[] = {
+	{ 0.011384, 0.0021937, 500, 12 },
+	{ 0.0093817, 0.0029411, 87, 12 },
+	{ 0.00041385, 0.00006193, 1200, 252 },
+	{ 0.0236, 0.0018, 41, 4 },
+	{ 46.619, 7.058, 0, 1 },
+	{ 0.004917, 0.0043721, 2, 12 },     /* M = 2 */
+	{ 0.0152, -0.000213, 64, 12 },      /* negative floor, finite universe */
+	{ 0.0152, 0.0, 64, 12 },            /* zero floor */
+};
+#define NCASES (sizeof cases / sizeof cases[0])
+
+/* The issue's inequality, independently in long double:
+ * v-bar/N + (1 - 1/N) c-bar <= (1+x)^2 c-bar (annualised). */
+static int near_floor_holds(long double v, long double c, long double x, size_t n)
+{
+	return v / n + (1 - 1.0L / n) * c <= (1 + x) * (1 + x) * c;
+}
+
+static void test_rules_near_floor_matches_closed_form(void **state)
+{
+	static const double xs[] = { 0.10, 0.05, 0.0237, 0.31 };
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+	size_t c, k, n;
+
+	rules_config_init(&cfg);
+	for (c = 0; c < NCASES; c++)
+		for (k = 0; k < 4; k++) {
+			long double v = (long double)cases[c].vbar * cases[c].ppy;
+			long double cb = (long double)cases[c].cbar * cases[c].ppy;
+			size_t limit = cases[c].m ? cases[c].m : 100000;
+
+			cfg.near_floor_x = xs[k];
+			assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, cases[c].vbar, cases[c].cbar,
+						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
+			if (!(cases[c].cbar > 0)) {
+				assert_false(res.defined);
+				assert_non_null(strstr(res.note, "undefined"));
+				assert_true(isnan(res.value));
+				continue;
+			}
+			for (n = 1; n <= limit && !near_floor_holds(v, cb, xs[k], n); n++)
+				;
+			if (n > limit) {
+				assert_false(res.met);
+				assert_non_null(strstr(res.note, "not met within the universe"));
+				assert_true(isnan(res.value));
+				continue;
+			}
+			assert_true(res.met);
+			assert_int_equal(res.count, n);
+			assert_close(res.value, sqrt((double)(v / n + (1 - 1.0L / n) * cb)), 1e-12);
+			assert_close(res.threshold, (1 + xs[k]) * sqrt((double)cb), 1e-12);
+		}
+}
+
+static void test_rules_near_floor_elton_gruber(void **state)
+{
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+
+	/* Elton & Gruber (1977), Journal of Business 50(4): average variance
+	 * 46.619 and covariance 7.058 (values from memory, design.md section
+	 * 11).  (46.619 - 7.058) / (0.21 x 7.058) = 26.69 -> 27 at x = 10%;
+	 * / (0.1025 x 7.058) = 54.68 -> 55 at x = 5% (by hand). */
+	rules_config_init(&cfg);
+	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 0, 1, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, 27);
+	cfg.near_floor_x = 0.05;
+	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 0, 1, &res, &err), HC_OK);
+	assert_int_equal(res.count, 55);
+	/* the same figures in a finite universe of 40: 55 is not reachable */
+	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 40, 1, &res, &err), HC_OK);
+	assert_false(res.met);
+	assert_string_equal(res.note, "not met within the universe of 40 securities");
+}
+
+static void test_rules_tracking_error_matches_closed_form(void **state)
+{
+	static const double budgets[] = { 0.02, 0.0113, 0.047 };
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+	size_t c, k, n;
+
+	rules_config_init(&cfg);
+	for (c = 0; c < NCASES; c++)
+		for (k = 0; k < 3; k++) {
+			long double d = ((long double)cases[c].vbar - cases[c].cbar) * cases[c].ppy;
+			long double inv_m = cases[c].m ? 1.0L / cases[c].m : 0;
+			long double b2 = (long double)budgets[k] * budgets[k];
+
+			cfg.te_budget = budgets[k];
+			assert_int_equal(rules_exact(&cfg, RULES_TRACKING_ERROR, cases[c].vbar, cases[c].cbar,
+						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
+			/* (v-bar - c-bar)(1/N - 1/M) <= b^2, scanned from N = 1 */
+			for (n = 1; !(d * (1.0L / n - inv_m) <= b2); n++)
+				;
+			assert_true(res.met);
+			assert_int_equal(res.count, n);
+			assert_close(res.value, sqrt((double)(d * (1.0L / n - inv_m))), 1e-12);
+		}
+}
+
+/* Naive annualised sd and step, written the obvious way. */
+static double naive_sd(double v, double c, double n)
+{
+	return sqrt(v / n + (1 - 1 / n) * c);
+}
+
+static void test_rules_marginal_and_cost_benefit_match_brute_scan(void **state)
+{
+	static const double eps[] = { 0.001, 0.00037, 0.0052 };
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+	size_t c, k, n;
+
+	rules_config_init(&cfg);
+	for (c = 0; c < NCASES; c++)
+		for (k = 0; k < 3; k++) {
+			double v = cases[c].vbar * cases[c].ppy, cb = cases[c].cbar * cases[c].ppy;
+			size_t limit = cases[c].m ? cases[c].m - 1 : 1000000;
+			double su = cases[c].m ? naive_sd(v, cb, (double)cases[c].m) : sqrt(cb);
+
+			cfg.marginal_eps = eps[k];
+			assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, cases[c].vbar, cases[c].cbar,
+						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
+			for (n = 1; n <= limit && !(naive_sd(v, cb, n) - naive_sd(v, cb, n + 1) < eps[k]); n++)
+				;
+			if (n > limit) {
+				assert_false(res.met);
+			} else {
+				assert_true(res.met);
+				assert_int_equal(res.count, n);
+				assert_close(res.value, naive_sd(v, cb, n) - naive_sd(v, cb, n + 1), 1e-12);
+			}
+			/* cost-benefit after Statman (1987): premium (s(N) - s(N+1)) / s_u < cost */
+			cfg.premium = 0.0613;
+			cfg.holding_cost = eps[k] / 4;
+			assert_int_equal(rules_exact(&cfg, RULES_COST_BENEFIT, cases[c].vbar, cases[c].cbar,
+						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
+			for (n = 1; n <= limit &&
+			     !(cfg.premium * (naive_sd(v, cb, n) - naive_sd(v, cb, n + 1)) / su < cfg.holding_cost); n++)
+				;
+			if (n > limit)
+				assert_false(res.met);
+			else {
+				assert_true(res.met);
+				assert_int_equal(res.count, n);
+				assert_true(res.value < cfg.holding_cost);
+			}
+		}
+}
+
+static void test_rules_edge_cases(void **state)
+{
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+
+	rules_config_init(&cfg);
+	/* met at N = 1: v-bar within (1.1)^2 = 1.21 of c-bar */
+	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 0.00513, 0.00447, 30, 12, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, 1);
+	/* marginal met at N = 1: s(1) - s(2) = 0.2481 - 0.2474 < 0.001 a year */
+	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.00513, 0.00507, 30, 12, &res, &err), HC_OK);
+	assert_int_equal(res.count, 1);
+	/* M = 2: marginal compares N = 1 with N = 2 only */
+	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.0119, 0.0021, 2, 12, &res, &err), HC_OK);
+	assert_false(res.met);
+	assert_string_equal(res.note, "not met within the universe of 2 securities");
+	/* tracking error is zero at N = M, so always met */
+	assert_int_equal(rules_exact(&cfg, RULES_TRACKING_ERROR, 0.0119, 0.0021, 2, 12, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, 2);
+	assert_close(res.value, 0.0, 1e-15);
+	/* c-bar <= 0: near-floor undefined, never a number */
+	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 0.0119, -0.0003, 25, 12, &res, &err), HC_OK);
+	assert_false(res.defined);
+	assert_false(res.met);
+	assert_string_equal(res.note, "undefined: the floor (average covariance -0.0036 a year) is not above zero");
+	assert_int_equal(rules_exact_count(&cfg, RULES_NEAR_FLOOR, 0.0119, -0.0003, 25, 12, &(size_t){0}), -1);
+	/* invalid calls */
+	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 0.0119, 0.0021, 1, 12, &res, &err), HC_EUSAGE);
+	assert_int_equal(rules_exact(&cfg, RULES_BAND, 0.0119, 0.0021, 10, 12, &res, &err), HC_EUSAGE);
+	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.0119, -0.0021, 0, 12, &res, &err), HC_EUSAGE);
+	assert_non_null(strstr(err.message, "unbounded"));
+	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, NAN, 0.0021, 10, 12, &res, &err), HC_EUSAGE);
+	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.0119, 0.0021, 10, 0, &res, &err), HC_EUSAGE);
+}
+
+/*
+ * Common practice, no single source (design.md section 11 and issue 3):
+ * with realistic averages the near-floor and marginal rules land in the
+ * tens.  The rule of thumb comes from the textbook reading of Evans &
+ * Archer (1968) and Statman (1987) that "20 to 40 holdings" remove most
+ * diversifiable risk -- a reading, not a result either paper states as a
+ * rule.  Checked here at 35% a year average sigma with average
+ * correlations 0.1, 0.2 and 0.3 in a universe of 500, and on a generated
+ * one-factor universe.
+ */
+static void test_rules_realistic_averages_land_in_the_tens(void **state)
+{
+	static const double rho[] = { 0.1, 0.2, 0.3 };
+	struct rules_config cfg;
+	struct hc_error err;
+	size_t k, n;
+	int rule;
+
+	rules_config_init(&cfg);
+	for (k = 0; k < 3; k++) {
+		double v = 0.35 * 0.35 / 12;
+
+		for (rule = RULES_NEAR_FLOOR; rule <= RULES_MARGINAL; rule++) {
+			assert_int_equal(rules_exact_count(&cfg, rule, v, rho[k] * v, 500, 12, &n), 1);
+			assert_in_range(n, 10, 99);
+		}
+	}
+	{
+		enum { M = 200, T = 240 };
+		double *x = malloc(M * T * sizeof *x), vbar, cbar, *w = malloc(T * sizeof *w);
+		gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+		struct universe u;
+		struct bootstrap_base *b = NULL;
+		size_t i, t;
+
+		assert_non_null(x);
+		assert_non_null(rng);
+		gsl_rng_set(rng, 88);
+		for (t = 0; t < T; t++) {
+			double f = gsl_ran_gaussian(rng, 0.046);
+
+			for (i = 0; i < M; i++)
+				x[i * T + t] = 0.0087 + (0.7 + 0.006 * i) * f + gsl_ran_tdist(rng, 5) * 0.0741;
+		}
+		memset(&u, 0, sizeof u);
+		u.m = M;
+		u.t = T;
+		u.x = x;
+		for (t = 0; t < T; t++)
+			w[t] = 1;
+		assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+		bootstrap_moments(b, w, &vbar, &cbar);
+		/* the generated universe's average correlation is about 0.2 */
+		assert_in_range((long)(100 * cbar / vbar), 10, 30);
+		for (rule = RULES_NEAR_FLOOR; rule <= RULES_MARGINAL; rule++) {
+			assert_int_equal(rules_exact_count(&cfg, rule, vbar, cbar, M, 12, &n), 1);
+			assert_in_range(n, 10, 99);
+		}
+		bootstrap_base_free(b);
+		gsl_rng_free(rng);
+		free(x);
+		free(w);
+	}
+}
+
+/* A sampler_result by hand: variance c + (v - c)/n times a lognormal
+ * factor, returns around 0.081 with spread shrinking as 1/sqrt(n). */
+static struct sampler_result *fake_sampled(size_t paths, size_t nsizes, const size_t *sizes,
+					   double v, double c)
+{
+	struct sampler_result *r = calloc(1, sizeof *r);
+	gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+	size_t k, j;
+
+	assert_non_null(r);
+	gsl_rng_set(rng, 4242);
+	r->paths = paths;
+	r->nsizes = nsizes;
+	r->sizes = malloc(nsizes * sizeof *r->sizes);
+	r->variance = malloc(paths * nsizes * sizeof *r->variance);
+	r->annual_return = malloc(paths * nsizes * sizeof *r->annual_return);
+	memcpy(r->sizes, sizes, nsizes * sizeof *sizes);
+	for (k = 0; k < paths; k++)
+		for (j = 0; j < nsizes; j++) {
+			double n = (double)sizes[j];
+
+			r->variance[k * nsizes + j] = (c + (v - c) / n) * gsl_ran_lognormal(rng, 0, 0.35 / sqrt(n));
+			r->annual_return[k * nsizes + j] = 0.081 + gsl_ran_gaussian(rng, 0.093 / sqrt(n));
+		}
+	gsl_rng_free(rng);
+	return r;
+}
+
+static void free_fake(struct sampler_result *r)
+{
+	free(r->sizes);
+	free(r->variance);
+	free(r->annual_return);
+	free(r);
+}
+
+static void test_rules_band_matches_gsl_quantile(void **state)
+{
+	enum { K = 301, NS = 80 };
+	size_t sizes[NS], j, k, expect = 0;
+	double v = 0.0117, c = 0.0023, sd[K], qv = NAN, limit;
+	struct sampler_result *r;
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+
+	for (j = 0; j < NS; j++)
+		sizes[j] = j + 1;
+	r = fake_sampled(K, NS, sizes, v, c);
+	rules_config_init(&cfg);
+	cfg.band_q = 0.9;
+	/* the reference: GSL's gsl_stats_quantile_from_sorted_data, documented
+	 * as (1 - d) x_i + d x_{i+1} with i = floor((n-1) f), numpy's default */
+	limit = 1.1 * sqrt(12 * c);
+	for (j = 0; j < NS && !expect; j++) {
+		for (k = 0; k < K; k++)
+			sd[k] = sqrt(12 * r->variance[k * NS + j]);
+		gsl_sort(sd, 1, K);
+		qv = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.9);
+		if (qv <= limit)
+			expect = sizes[j];
+	}
+	assert_true(expect > 5 && expect < NS);
+	assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, expect);
+	assert_close(res.value, qv, 1e-15);
+	assert_string_equal(res.note, "");
+	/* a floor at zero leaves the band undefined */
+	assert_int_equal(rules_band(&cfg, r, 0.0, 12, &res, &err), HC_OK);
+	assert_false(res.defined);
+	/* allocation failure of the workspace */
+	hc_alloc_fail_after(0);
+	assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+	/* a grid with gaps says so */
+	r->sizes[NS - 1] = 200;
+	assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
+	assert_non_null(strstr(res.note, "sampled grid"));
+	free_fake(r);
+}
+
+static void test_rules_shortfall_counts_trailing_share(void **state)
+{
+	enum { K = 400, NS = 60 };
+	size_t sizes[NS], j, k, expect = 0;
+	double share = NAN;
+	struct sampler_result *r;
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+
+	for (j = 0; j < NS; j++)
+		sizes[j] = j + 1;
+	r = fake_sampled(K, NS, sizes, 0.0117, 0.0023);
+	rules_config_init(&cfg);
+	cfg.shortfall_d = 0.0215;
+	/* the definition (after Domian, Louton & Racine, 2007): share of
+	 * portfolios with annual return below universe - d, first below p */
+	for (j = 0; j < NS && !expect; j++) {
+		size_t behind = 0;
+
+		for (k = 0; k < K; k++)
+			behind += r->annual_return[k * NS + j] < 0.0843 - 0.0215;
+		share = behind / (double)K;
+		if (share < 0.10)
+			expect = sizes[j];
+	}
+	assert_true(expect > 3 && expect < NS);
+	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
+	assert_int_equal(res.count, expect);
+	assert_close(res.value, share, 0);
+	/* p so small that no size reaches it */
+	cfg.shortfall_p = 1e-9;
+	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
+	assert_false(res.met);
+	assert_non_null(strstr(res.note, "not met"));
+	free(r->annual_return);
+	r->annual_return = NULL;
+	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_EUSAGE);
+	free_fake(r);
+}
+
+static void test_rules_universe_return(void **state)
+{
+	/* 3 securities x 4 quarters; equal-weight returns by hand:
+	 * 0.0123, -0.0057, 0.0212, 0.0031; compound and annualise with P = 4 over
+	 * one year: the product of (1 + R_t) minus 1. */
+	double x[12] = { 0.021, -0.013, 0.034, 0.002,
+			 0.007, 0.004, 0.011, -0.006,
+			 0.0089, -0.0081, 0.0186, 0.0133 };
+	double expect = 1.0123 * 0.9943 * 1.0212 * 1.0031 - 1, got;
+	struct universe u;
+	struct hc_error err;
+
+	memset(&u, 0, sizeof u);
+	u.m = 3;
+	u.t = 4;
+	u.x = x;
+	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_OK);
+	assert_close(got, expect, 1e-15);
+	/* over two years at P = 2: the yearly rate is the square root */
+	assert_int_equal(rules_universe_return(&u, 2, &got, &err), HC_OK);
+	assert_close(got, sqrt(1 + expect) - 1, 1e-15);
+	x[4] = x[8] = -1.5;
+	x[0] = -0.2;
+	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_EDATA);
+	u.has_missing = 1;
+	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_EDATA);
+}
+
+static void test_rules_bootstrap_percentiles(void **state)
+{
+	enum { B = 101 };
+	double vbar[B], cbar[B];
+	size_t k, counts[B];
+	struct rules_config cfg;
+	struct rule_result res[2];
+	struct hc_error err;
+
+	rules_config_init(&cfg);
+	/* replicate k has c-bar chosen so that the near-floor count is
+	 * ceil((v - c)/(0.21 c)): with v = 0.01 and c = v / (1 + 0.21 n_k - 0.5 x 0.21)
+	 * the count is exactly n_k = 11 + k/4 (by hand from the closed form). */
+	for (k = 0; k < B; k++) {
+		double n = 11 + (double)(k / 4);
+
+		vbar[k] = 0.01;
+		cbar[k] = 0.01 / (1 + 0.21 * (n - 0.5));
+	}
+	res[0].rule = RULES_NEAR_FLOOR;
+	res[1].rule = RULES_BAND;   /* sampled: left alone */
+	res[1].bootstrapped = 0;
+	assert_int_equal(rules_bootstrap_exact(&cfg, vbar, cbar, B, 0, 1, res, 2, &err), HC_OK);
+	assert_false(res[1].bootstrapped);
+	assert_true(res[0].bootstrapped);
+	assert_int_equal(res[0].replicates_met, B);
+	/* numpy linear percentiles of 11,11,11,11,12,...,36 (101 values):
+	 * index 5 -> 12, index 50 -> 23, index 95 -> 34 (h = 100 q) */
+	assert_close(res[0].count_p05, 12, 0);
+	assert_close(res[0].count_p50, 23, 0);
+	assert_close(res[0].count_p95, 34, 0);
+	/* six replicates not met (0) of 101: over 5%, so the 95th is "not met" */
+	for (k = 0; k < B; k++)
+		counts[k] = k < 6 ? 0 : 20 + k % 7;
+	rules_set_interval(&res[0], counts, B);
+	assert_int_equal(res[0].replicates_met, B - 6);
+	assert_true(isnan(res[0].count_p95));
+	assert_false(isnan(res[0].count_p50));
+	/* five of 101: the 95th percentile index 95 is the last met count */
+	for (k = 0; k < B; k++)
+		counts[k] = k < 5 ? 0 : 20 + k % 7;
+	rules_set_interval(&res[0], counts, B);
+	assert_close(res[0].count_p95, 26, 0);
+	hc_alloc_fail_after(0);
+	assert_int_equal(rules_bootstrap_exact(&cfg, vbar, cbar, B, 0, 1, res, 1, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+	assert_int_equal(rules_bootstrap_exact(&cfg, vbar, cbar, 0, 0, 1, res, 1, &err), HC_EUSAGE);
+}
+
+static void test_rules_parse_list_and_config(void **state)
+{
+	struct rules_config cfg;
+	struct hc_error err;
+	unsigned mask;
+
+	assert_int_equal(rules_parse_list("near-floor,tracking-error", &mask, &err), HC_OK);
+	assert_int_equal(mask, RULES_FLAG(RULES_NEAR_FLOOR) | RULES_FLAG(RULES_TRACKING_ERROR));
+	assert_int_equal(rules_parse_list("exact,shortfall", &mask, &err), HC_OK);
+	assert_int_equal(mask, RULES_EXACT_MASK | RULES_FLAG(RULES_SHORTFALL));
+	assert_int_equal(rules_parse_list("all", &mask, &err), HC_OK);
+	assert_int_equal(mask, RULES_ALL_MASK);
+	assert_int_equal(rules_parse_list("near-floor,nearfloor", &mask, &err), HC_EUSAGE);
+	assert_non_null(strstr(err.message, "bad rule list: 'nearfloor' is not a rule"));
+	assert_int_equal(rules_parse_list("marginal,", &mask, &err), HC_EUSAGE);
+	assert_string_equal(rules_name(RULES_COST_BENEFIT), "cost-benefit");
+	assert_null(rules_name(RULES_COUNT));
+	rules_config_init(&cfg);
+	assert_int_equal(rules_config_check(&cfg, &err), HC_OK);
+	cfg.band_q = 1.0;
+	assert_int_equal(rules_config_check(&cfg, &err), HC_EUSAGE);
+	assert_non_null(strstr(err.message, "band quantile"));
+	rules_config_init(&cfg);
+	cfg.te_budget = -0.02;
+	assert_int_equal(rules_config_check(&cfg, &err), HC_EUSAGE);
+	rules_config_init(&cfg);
+	cfg.shortfall_p = 0;
+	assert_int_equal(rules_config_check(&cfg, &err), HC_EUSAGE);
+}
+
+static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
+{
+	struct rules_config cfg;
+	struct rules_input in = { 0.011384, 0.0021937, 500, 12, NULL, 0 };
+	struct rule_result res[RULES_COUNT];
+	struct hc_error err;
+	size_t n;
+
+	rules_config_init(&cfg);
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(n, RULES_COUNT);
+	assert_string_equal(res[2].name, "band");
+	assert_false(res[2].defined);
+	assert_string_equal(res[2].note, "needs return data and sampled portfolios");
+	assert_string_equal(res[3].parameters, "premium=5% a year, holding cost=0.05% a year (defaults)");
+	/* (0.011384 - 0.0021937) / (0.21 x 0.0021937) = 19.95 -> 20 (by hand) */
+	assert_int_equal(res[0].count, 20);
+	cfg.selected = RULES_FLAG(RULES_TRACKING_ERROR);
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(n, 1);
+	assert_string_equal(res[0].parameters, "budget=2% a year");
+	cfg.marginal_eps = 0;
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_EUSAGE);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_rules_near_floor_matches_closed_form),
+		cmocka_unit_test(test_rules_near_floor_elton_gruber),
+		cmocka_unit_test(test_rules_tracking_error_matches_closed_form),
+		cmocka_unit_test(test_rules_marginal_and_cost_benefit_match_brute_scan),
+		cmocka_unit_test(test_rules_edge_cases),
+		cmocka_unit_test(test_rules_realistic_averages_land_in_the_tens),
+		cmocka_unit_test(test_rules_band_matches_gsl_quantile),
+		cmocka_unit_test(test_rules_shortfall_counts_trailing_share),
+		cmocka_unit_test(test_rules_universe_return),
+		cmocka_unit_test(test_rules_bootstrap_percentiles),
+		cmocka_unit_test(test_rules_parse_list_and_config),
+		cmocka_unit_test(test_rules_evaluate_selects_and_reports_sampled_needs),
+	};
+
+	gsl_set_error_handler_off();
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
