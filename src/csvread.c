@@ -142,6 +142,8 @@ static int scan(struct reader *r, const char *s, size_t len)
 {
 	size_t start = 0, i;
 
+	if (len == 0)   /* an empty file: s may be NULL, and NULL + 0 is undefined */
+		return r->status;
 	for (i = 0; i < len; i++) {
 		unsigned char c = (unsigned char)s[i];
 

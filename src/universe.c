@@ -908,7 +908,8 @@ static int long_finish(struct loader *L, struct universe *u, struct hc_error *er
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: security id '%s' differs only in case or surrounding spaces from '%s' (line %zu); expected distinct ids",
 			L->name, L->id_line[b], L->id_col + 1, L->ids[b], L->ids[a], L->id_line[a]);
-	qsort(L->lrows, L->nlrows, sizeof *L->lrows, long_row_cmp);
+	if (L->nlrows > 1)   /* no rows: lrows is NULL, which qsort must not get */
+		qsort(L->lrows, L->nlrows, sizeof *L->lrows, long_row_cmp);
 	for (i = 1; i < L->nlrows; i++) {
 		if (L->lrows[i].sec == L->lrows[i - 1].sec && L->lrows[i].date == L->lrows[i - 1].date) {
 			universe_format_date(L->lrows[i].date, ds);
