@@ -990,12 +990,10 @@ static int write_render_note(struct reportdir *rd, struct hc_error *err)
 	return reportdir_close(rd, fp, "README-plots.txt", err);
 }
 
-static int write_folder(struct run *r, struct hc_error *err)
+static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *err)
 {
-	struct reportdir *rd = NULL;
 	struct plots_input pin;
 	unsigned char made[PLOTS_NKINDS];
-	size_t stale = 0;
 	int rc;
 
 	memset(&pin, 0, sizeof pin);
@@ -1007,11 +1005,6 @@ static int write_folder(struct run *r, struct hc_error *err)
 	pin.audit = r->audit;
 	pin.universe_name = r->u->source ? (strrchr(r->u->source, '/') ? strrchr(r->u->source, '/') + 1 : r->u->source)
 					 : NULL;
-	if ((rc = reportdir_begin(&rd, r->o->output, r->o->force, &stale, err)) != HC_OK)
-		return rc;
-	if (stale && stage_enabled(r->o))
-		fprintf(stderr, "holdcount report: removed %zu temporary folder%s left by an interrupted run\n", stale,
-			stale == 1 ? "" : "s");
 	r->rendered = plots_find_gnuplot(NULL, r->gnuplot, sizeof r->gnuplot);
 	rc = write_plots(rd, r, &pin, made, err);
 	if (rc == HC_OK)
@@ -1030,7 +1023,6 @@ static int write_folder(struct run *r, struct hc_error *err)
 		rc = write_markdown(rd, r, &pin, made, err);
 	if (rc == HC_OK)
 		rc = reportdir_commit(rd, err);
-	reportdir_free(rd);
 	return rc;
 }
 
@@ -1064,6 +1056,8 @@ int cmd_report(int argc, char **argv)
 	static char demo_universe[PATH_MAX], demo_funds[PATH_MAX], demo_sectors[PATH_MAX];
 	struct report_opts o;
 	struct cli_args a;
+	struct reportdir *rd = NULL;
+	size_t stale = 0;
 	struct run r;
 	struct hc_error err;
 	char line[PATH_MAX + 32];
@@ -1099,6 +1093,15 @@ int cmd_report(int argc, char **argv)
 		r.sectors_path = o.sectors ? o.sectors
 			: demo_path(demo_sectors, sizeof demo_sectors, "demo-sectors.csv") ? demo_sectors : NULL;
 	}
+	/* the folder first: an existing DIR is refused before any work, and
+	 * the temporary folder shows that a run is under way */
+	if ((rc = reportdir_begin(&rd, o.output, o.force, &stale, &err)) != HC_OK) {
+		rc = cli_fail("report", &err);
+		goto cleanup;
+	}
+	if (stale && stage_enabled(&o))
+		fprintf(stderr, "holdcount report: removed %zu temporary folder%s left by an interrupted run\n", stale,
+			stale == 1 ? "" : "s");
 	snprintf(line, sizeof line, "loading '%s'", r.universe_path);
 	stage(&o, line);
 	if ((rc = load_universe(&o, r.universe_path, &r.u)) != HC_OK)
@@ -1110,7 +1113,7 @@ int cmd_report(int argc, char **argv)
 		rc = audit_report(&r.rep_audit, r.audit, r.h, &err);
 	if (rc == HC_OK) {
 		stage(&o, "writing the folder");
-		rc = write_folder(&r, &err);
+		rc = write_folder(&r, rd, &err);
 	}
 	if (rc != HC_OK) {
 		rc = cli_fail("report", &err);
@@ -1119,6 +1122,7 @@ int cmd_report(int argc, char **argv)
 	if (stage_enabled(&o))
 		fprintf(stderr, "holdcount report: wrote '%s' (start with summary.md)\n", o.output);
 cleanup:
+	reportdir_free(rd);
 	run_release(&r);
 	cli_args_release(&a);
 	return rc;
