@@ -264,6 +264,8 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 	 * E[w'Aw] = sum w^2 vbar + (1 - sum w^2) cbar. */
 	s2 = hhi * mo->average_variance + (1 - hhi) * mo->average_covariance;
 	af->weighted_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
+	s2 = curve_expected_variance(mo, (double)af->risk_holdings);
+	af->equal_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
 	return HC_OK;
 }
 
@@ -516,18 +518,18 @@ static int check_options(const struct audit_options *opt, struct hc_error *err)
 	return HC_OK;
 }
 
-static int audit_fund(struct audit_fund *af, const struct holdings_fund *fd,
-		      const struct holdings *h, const struct universe *u,
-		      const struct moments *mo, const struct audit_options *opt,
-		      long *idx, double *dwork, struct issuer_weight *iw,
-		      double *series, struct hc_error *err)
+static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
+		     const struct holdings *h, const struct universe *u,
+		     const struct moments *mo, const struct audit_options *opt,
+		     long *idx, double *dwork, struct issuer_weight *iw,
+		     double *series, struct hc_error *err)
 {
 	int rc;
 
 	af->name = fd->name;
 	af->sd_percentile = NAN;
 	af->variance = af->sd = af->diversification_ratio = NAN;
-	af->equivalent_count = af->weighted_random_sd = NAN;
+	af->equivalent_count = af->weighted_random_sd = af->equal_random_sd = NAN;
 	concentration(af, fd, dwork);
 	if ((rc = locate(af, fd, h, u, opt->strict, idx, err)) != HC_OK)
 		return rc;
@@ -581,7 +583,7 @@ int audit_run(struct audit_result **out, const struct holdings *h,
 	a->holdings_source = h->source;
 	for (f = 0; f < h->nfunds; f++) {
 		a->nfunds = f + 1;
-		rc = audit_fund(&a->funds[f], &h->funds[f], h, u, mo, opt,
+		rc = audit_one(&a->funds[f], &h->funds[f], h, u, mo, opt,
 				idx, dwork, iw, series, err);
 		if (rc != HC_OK)
 			goto cleanup;
@@ -622,7 +624,7 @@ void audit_result_free(struct audit_result *a)
 enum {
 	FC_FUND, FC_HOLDINGS, FC_WEIGHT_SUM, FC_MAX_WEIGHT, FC_TOP10, FC_HHI,
 	FC_EFFECTIVE, FC_SD, FC_DR, FC_EQUIVALENT, FC_PERCENTILE, FC_WRSD,
-	FC_PASSED, FC_FAILED, FC_MAX_ID, FC_RISK_HOLDINGS, FC_MISSING,
+	FC_PASSED, FC_FAILED, FC_EQUAL_RSD, FC_MAX_ID, FC_RISK_HOLDINGS, FC_MISSING,
 	FC_MISSING_WEIGHT, FC_SUBSET, FC_BELOW_FLOOR, FC_ISSUER_MAX,
 	FC_ISSUER_MAX_ID, FC_UCITS, FC_1940, FC_RIC, FC_SECTOR_HHI,
 	FC_MAX_SECTOR, FC_MAX_SECTOR_WEIGHT, FC_N
@@ -646,6 +648,7 @@ static const struct {
 	{ "weighted_random_sd", "random sd, own weights", REPORT_STYLE_PERCENT },
 	{ "passed", "passed", REPORT_STYLE_PLAIN },
 	{ "failed_rules", "failed rules", REPORT_STYLE_PLAIN },
+	{ "equal_weight_random_sd", "random sd, equal weights", REPORT_STYLE_PERCENT },
 	{ "max_weight_id", "largest id", REPORT_STYLE_PLAIN },
 	{ "risk_holdings", "in universe", REPORT_STYLE_PLAIN },
 	{ "missing_ids", "missing ids", REPORT_STYLE_PLAIN },
@@ -706,6 +709,7 @@ static int fund_row(struct report_table *t, const struct audit_result *a,
 		report_table_set_real(t, r, FC_EQUIVALENT, af->equivalent_count);
 	report_table_set_real(t, r, FC_PERCENTILE, af->sd_percentile);
 	report_table_set_real(t, r, FC_WRSD, af->weighted_random_sd);
+	report_table_set_real(t, r, FC_EQUAL_RSD, af->equal_random_sd);
 	report_table_set_bool(t, r, FC_PASSED, af->passed);
 	if (failed_text(af->failed, failed, sizeof failed) != 0 ||
 	    report_table_set_text(t, r, FC_FAILED, failed) != HC_OK ||

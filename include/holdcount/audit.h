@@ -145,6 +145,7 @@ struct audit_fund {
 	double equivalent_count;    /* NaN when below_floor */
 	double sd_percentile;       /* mid-rank, 0..1; NaN when not sampled */
 	double weighted_random_sd;  /* sqrt(P (hhi' vbar + (1 - hhi') cbar)) */
+	double equal_random_sd;     /* sqrt(P E[sigma^2(n)]) at n = risk_holdings, equal weights */
 	size_t nsectors;
 	struct audit_sector *sectors;   /* by descending weight; unmapped last */
 	double sector_hhi;          /* over sectors, the unmapped bucket counted as one */
@@ -193,7 +194,8 @@ void audit_result_free(struct audit_result *a);
  * Build the report: fields describing the run, table "funds" (first: the
  * CSV columns fund,holdings,weight_sum,max_weight,top10_share,hhi,
  * effective_holdings,sd,diversification_ratio,equivalent_count,
- * sd_percentile,weighted_random_sd,passed,failed_rules, then more), table
+ * sd_percentile,weighted_random_sd,passed,failed_rules, then more, among
+ * them equal_weight_random_sd), table
  * "screens" (fund,screen,part,passed,figure,test,limit,issuer), "missing"
  * (fund,id,weight,line) and "sectors" (fund,sector,weight,holdings) when
  * there are any, the holdings' warnings and the cautions as notes.

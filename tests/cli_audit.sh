@@ -1,0 +1,115 @@
+# Command-line tests for `holdcount audit`: exit statuses (0 pass, 1 policy
+# failed, 2 usage, 3 data, 4 i/o: include/holdcount/error.h), the exact
+# messages for bad input, the CSV contract and the bundled demo.
+set -u
+: "${HOLDCOUNT:?}" "${HOLDCOUNT_SOURCE_DIR:?}" "${HOLDCOUNT_TEST_TMP:?}"
+T="$HOLDCOUNT_TEST_TMP/cli_audit"
+rm -rf "$T" && mkdir -p "$T"
+fails=0
+
+# expect STATUS 'STDERR-SUBSTRING' -- ARGS...
+expect() {
+	local want="$1" msg="$2"
+	shift 3
+	"$HOLDCOUNT" "$@" >"$T/out" 2>"$T/err"
+	local got=$?
+	if [ "$got" != "$want" ]; then
+		echo "FAIL: holdcount $* exited $got, expected $want"; cat "$T/err"; fails=$((fails + 1))
+	elif [ -n "$msg" ] && ! grep -qF -- "$msg" "$T/err"; then
+		echo "FAIL: holdcount $*: stderr lacks '$msg':"; cat "$T/err"; fails=$((fails + 1))
+	fi
+}
+
+# A small invented universe: 6 securities, 10 months (numbers made up).
+cat >"$T/u.csv" <<'EOF'
+date,QA1,QA2,QA3,QA4,QA5,QA6
+2010-01,0.0123,-0.0211,0.0305,0.0017,-0.0142,0.0231
+2010-02,-0.0385,0.0142,-0.0067,0.0251,0.0188,-0.0109
+2010-03,0.0219,0.0311,0.0158,-0.0204,0.0062,0.0347
+2010-04,0.0071,-0.0153,-0.0236,0.0129,-0.0311,0.0045
+2010-05,-0.0127,0.0268,0.0194,-0.0083,0.0217,-0.0192
+2010-06,0.0342,0.0027,0.0081,0.0356,0.0109,0.0163
+2010-07,-0.0066,-0.0299,-0.0147,-0.0121,-0.0058,-0.0274
+2010-08,0.0195,0.0183,0.0263,0.0072,0.0296,0.0118
+2010-09,-0.0241,0.0076,-0.0189,-0.0268,-0.0017,0.0052
+2010-10,0.0154,-0.0048,0.0121,0.0203,0.0135,-0.0085
+EOF
+printf 'fund,id,weight\nWren,QA1,0.25\nWren,QA2,0.25\nWren,QA3,0.25\nWren,QA4,0.25\nLark,QA5,0.6\nLark,QA6,0.4\n' >"$T/ok.csv"
+
+# passes with no policy; fails (1) with one, naming the fund and the rule
+expect 0 "" -- audit "$T/u.csv" --holdings "$T/ok.csv" --paths 200
+expect 1 "holdcount audit: 1 of 2 funds fails the policy: 'Lark' (min-holdings, max-weight)" -- \
+	audit "$T/u.csv" --holdings "$T/ok.csv" --paths 200 --min-holdings 3 --max-weight 50%
+expect 0 "" -- audit "$T/u.csv" --holdings "$T/ok.csv" --paths 0 --min-holdings 2 --max-weight 60%
+
+# the CSV contract's leading columns, in order
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/ok.csv" --paths 100 --format csv >"$T/out.csv" 2>"$T/err"
+want='fund,holdings,weight_sum,max_weight,top10_share,hhi,effective_holdings,sd,diversification_ratio,equivalent_count,sd_percentile,weighted_random_sd,passed,failed_rules'
+case "$(head -1 "$T/out.csv")" in
+"$want"*) ;;
+*) echo "FAIL: csv header: $(head -1 "$T/out.csv")"; fails=$((fails + 1)) ;;
+esac
+[ "$(wc -l <"$T/out.csv")" -eq 3 ] || { echo "FAIL: csv rows: $(wc -l <"$T/out.csv")"; fails=$((fails + 1)); }
+
+# JSON carries the per-screen detail
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/ok.csv" --paths 0 --format json --screens ucits >"$T/out.json" 2>"$T/err"
+[ $? -eq 1 ] || { echo "FAIL: json run: expected status 1 (Lark's 60% breaks UCITS)"; fails=$((fails + 1)); }
+"${PYTHON:-/usr/bin/python3}" - "$T/out.json" <<'EOF' || fails=$((fails + 1))
+import json, sys
+doc = json.load(open(sys.argv[1]))
+funds, screens = doc["funds"], doc["screens"]
+# five parts per fund: two UCITS, one 1940 Act, two s. 851(b)(3)
+assert len(funds) == 2 and len(screens) == 10, (len(funds), len(screens))
+assert [f["fund"] for f in funds] == ["Wren", "Lark"], funds
+lark = [s for s in screens if s["fund"] == "Lark" and s["screen"] == "ucits"]
+assert lark[0]["passed"] is False and abs(lark[0]["figure"] - 0.6) < 1e-15, lark
+assert lark[0]["required"] is True
+assert funds[1]["failed_rules"] == "ucits" and funds[1]["passed"] is False, funds[1]
+assert any("compliance counsel" in c for c in doc["cautions"])
+EOF
+
+# a weight sum off 1 by more than 0.5% is a warning, not an error
+printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.48\n' >"$T/off.csv"
+expect 0 "holdcount audit: warning: $T/off.csv:2: fund 'Wren': weights sum to 0.98, not 1 (off by more than 0.5%); normalised" -- \
+	audit "$T/u.csv" --holdings "$T/off.csv" --paths 0
+
+# bad input: one message with file:line:column, exit status 3
+printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.5\nMoss,QA1,0\nMoss,QA3,0\n' >"$T/empty.csv"
+expect 3 "holdcount audit: $T/empty.csv:4:3: fund 'Moss' holds nothing: all its 2 weights are zero, expected at least one non-zero weight" -- \
+	audit "$T/u.csv" --holdings "$T/empty.csv"
+printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA1,0.5\n' >"$T/dup.csv"
+expect 3 "holdcount audit: $T/dup.csv:3:2: duplicate id 'QA1' in fund 'Wren' (also at line 2), expected each id once per fund" -- \
+	audit "$T/u.csv" --holdings "$T/dup.csv"
+printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,half\n' >"$T/nan.csv"
+expect 3 "holdcount audit: $T/nan.csv:3:3: found 'half', expected a number (a weight such as 0.052 or 5.2%)" -- \
+	audit "$T/u.csv" --holdings "$T/nan.csv"
+printf 'fund,id,weight\nWren,QA1,0\nWren,QA2,0\n' >"$T/zero.csv"
+expect 3 "holdcount audit: $T/zero.csv:2:3: fund 'Wren' holds nothing: all its 2 weights are zero" -- \
+	audit "$T/u.csv" --holdings "$T/zero.csv"
+printf 'fund,id,weight\nWren,QA1,0.5\nWren,QZ9,0.5\n' >"$T/unknown.csv"
+expect 3 "holdcount audit: $T/unknown.csv:3:2: id 'QZ9' of fund 'Wren' is not in the universe '$T/u.csv'" -- \
+	audit "$T/u.csv" --holdings "$T/unknown.csv" --strict
+expect 0 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0   # without --strict: risk on the rest
+printf 'fund,id,weight\nWren,QA1,1.2\nWren,QA2,-0.2\n' >"$T/short.csv"
+expect 3 "found negative weight '-0.2', expected zero or more (short positions need --allow-short)" -- \
+	audit "$T/u.csv" --holdings "$T/short.csv"
+expect 0 "" -- audit "$T/u.csv" --holdings "$T/short.csv" --allow-short --paths 0
+
+# usage errors: exit status 2
+expect 2 "--holdings FILE is required" -- audit "$T/u.csv"
+expect 2 "unknown screen 'ucit'" -- audit "$T/u.csv" --holdings "$T/ok.csv" --screens ucits,ucit
+expect 2 "--max-sector-weight needs --sectors FILE" -- audit "$T/u.csv" --holdings "$T/ok.csv" --max-sector-weight 30%
+# a holdings file that does not exist: i/o error, 4
+expect 4 "$T/none.csv" -- audit "$T/u.csv" --holdings "$T/none.csv"
+
+# the bundled demo: three invented funds; the concentrated and the
+# screen-breaking fund fail --screens all, the broad one passes
+D="$HOLDCOUNT_SOURCE_DIR/data"
+expect 1 "2 of 3 funds fail the policy: 'Lirrand Focus Fund A' (1940act) 'Lirrand Select Fund C' (ucits, 1940act)" -- \
+	audit "$D/demo-universe.csv" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" --screens all --paths 500
+
+if [ "$fails" -ne 0 ]; then
+	echo "$fails failure(s)"
+	exit 1
+fi
+echo "cli_audit: all passed"

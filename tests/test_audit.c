@@ -1,0 +1,784 @@
+/*
+ * Unit tests for the fund audit.
+ *
+ * References, named beside each check:
+ *   - exact arithmetic on hand-built weights (HHI, effective count, screens);
+ *   - the sample covariance matrix A formed explicitly here by its textbook
+ *     definition (divisor T-1) and the quadratic form w'Aw, which the audit
+ *     never forms (it takes the variance of the portfolio series);
+ *   - exact enumeration of every same-count portfolio of a small universe
+ *     for the percentile;
+ *   - the screens' limits from memory of the published texts (UCITS
+ *     Directive 2009/65/EC Art. 52; Investment Company Act of 1940 s. 5(b)(1);
+ *     Internal Revenue Code s. 851(b)(3)), as the tool states them.
+ */
+#include <math.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <cmocka.h>
+#include <gsl/gsl_errno.h>
+
+#include "holdcount/audit.h"
+#include "holdcount/curve.h"
+#include "holdcount/holdings.h"
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/report.h"
+#include "holdcount/universe.h"
+
+/* cmocka 1.1 has no double assertion: |got - want| <= tol, values printed. */
+static void near(double got, double want, double tol, const char *what, int line)
+{
+	if (!(fabs(got - want) <= tol)) {
+		print_error("%s = %.17g, expected %.17g within %g\n", what, got, want, tol);
+		_fail(__FILE__, line);
+	}
+}
+#define assert_near(got, want, tol) near((got), (want), (tol), #got, __LINE__)
+#define assert_rel(got, want, rtol) near((got), (want), (rtol) * fabs(want), #got, __LINE__)
+
+/* ---- a generated universe ---- */
+
+/* A small linear congruential generator (Knuth's MMIX constants), so the
+ * returns are the same on every platform. */
+static double lcg_uniform(uint64_t *s)
+{
+	*s = *s * 6364136223846793005ULL + 1442695040888963407ULL;
+	return (double)(*s >> 11) / 9007199254740992.0;
+}
+
+/*
+ * m securities "QX01".., t monthly periods: a common factor with loadings
+ * 0.6..1.4, idiosyncratic noise scaled 0.5..2.5 by security (so variances
+ * differ), plus optionally security 2 as the near mirror image of security 1
+ * (a hedge pair whose 50/50 mix is below the floor).
+ */
+static char *universe_text(size_t m, size_t t, uint64_t seed, int hedge)
+{
+	size_t cap = 64 + m * 8 + t * (16 + m * 26), used = 0, i, k;
+	char *buf = malloc(cap);
+	double *row = malloc(m * sizeof *row);
+
+	assert_non_null(buf);
+	assert_non_null(row);
+	used += (size_t)snprintf(buf + used, cap - used, "date");
+	for (i = 0; i < m; i++)
+		used += (size_t)snprintf(buf + used, cap - used, ",QX%02zu", i + 1);
+	used += (size_t)snprintf(buf + used, cap - used, "\n");
+	for (k = 0; k < t; k++) {
+		double f = 0.04 * (lcg_uniform(&seed) - 0.45);
+		used += (size_t)snprintf(buf + used, cap - used, "%04zu-%02zu", 2001 + k / 12, k % 12 + 1);
+		for (i = 0; i < m; i++) {
+			double beta = 0.6 + 0.8 * (double)i / (double)(m > 1 ? m - 1 : 1);
+			double scale = 0.5 + 2.0 * (double)((i * 7) % m) / (double)m;
+			row[i] = beta * f + 0.03 * scale * (lcg_uniform(&seed) - 0.5);
+			if (hedge && i == 1)
+				row[i] = -row[0] + 0.001 * (lcg_uniform(&seed) - 0.5);
+			used += (size_t)snprintf(buf + used, cap - used, ",%.17g", row[i]);
+		}
+		used += (size_t)snprintf(buf + used, cap - used, "\n");
+		assert_true(used < cap);
+	}
+	free(row);
+	return buf;
+}
+
+struct fixture {
+	struct universe *u;
+	struct moments mo;
+};
+
+static void fixture_load(struct fixture *fx, size_t m, size_t t, uint64_t seed, int hedge)
+{
+	char *text = universe_text(m, t, seed, hedge);
+	struct universe_options uo;
+	struct hc_error err;
+	int rc;
+
+	universe_options_init(&uo);
+	rc = universe_load_buffer(&fx->u, "u.csv", text, strlen(text), &uo, &err);
+	free(text);
+	if (rc != HC_OK)
+		print_error("%s\n", err.message);
+	assert_int_equal(rc, HC_OK);
+	assert_int_equal(fx->u->m, m);
+	assert_near(fx->u->periods_per_year, 12, 0);
+	assert_int_equal(moments_from_universe(&fx->mo, fx->u, &err), HC_OK);
+}
+
+static struct holdings *holdings_text(const char *text)
+{
+	struct holdings *h;
+	struct hc_error err;
+	int rc = holdings_load_buffer(&h, "h.csv", text, strlen(text), NULL, &err);
+
+	if (rc != HC_OK)
+		print_error("%s\n", err.message);
+	assert_int_equal(rc, HC_OK);
+	return h;
+}
+
+static struct audit_result *run(const struct holdings *h, const struct fixture *fx,
+				const struct audit_options *opt)
+{
+	struct audit_result *a;
+	struct hc_error err;
+	int rc = audit_run(&a, h, fx->u, &fx->mo, opt, &err);
+
+	if (rc != HC_OK)
+		print_error("%s\n", err.message);
+	assert_int_equal(rc, HC_OK);
+	return a;
+}
+
+/* The textbook sample covariance of securities i and j (divisor T-1). */
+static double cov_ij(const struct universe *u, size_t i, size_t j)
+{
+	const double *x = u->x + i * u->t, *y = u->x + j * u->t;
+	double mx = 0, my = 0, s = 0;
+	size_t k;
+
+	for (k = 0; k < u->t; k++) {
+		mx += x[k];
+		my += y[k];
+	}
+	mx /= (double)u->t;
+	my /= (double)u->t;
+	for (k = 0; k < u->t; k++)
+		s += (x[k] - mx) * (y[k] - my);
+	return s / (double)(u->t - 1);
+}
+
+/* w'Aw with A formed entry by entry; idx are universe indices. */
+static double quad_form(const struct universe *u, const size_t *idx, const double *w, size_t n)
+{
+	double s = 0;
+	size_t a, b;
+
+	for (a = 0; a < n; a++)
+		for (b = 0; b < n; b++)
+			s += w[a] * w[b] * cov_ij(u, idx[a], idx[b]);
+	return s;
+}
+
+/* v-bar and c-bar by their definitions (design.md section 3). */
+static void averages(const struct universe *u, double *vbar, double *cbar)
+{
+	double v = 0, c = 0;
+	size_t i, j;
+
+	for (i = 0; i < u->m; i++)
+		for (j = 0; j < u->m; j++)
+			if (i == j)
+				v += cov_ij(u, i, i);
+			else
+				c += cov_ij(u, i, j);
+	*vbar = v / (double)u->m;
+	*cbar = c / ((double)u->m * (double)(u->m - 1));
+}
+
+static void options(struct audit_options *opt, size_t paths)
+{
+	audit_options_init(opt);
+	opt->paths = paths;
+	opt->seed = 20240917;
+	opt->threads = 1;
+}
+
+/* ---- concentration and risk ---- */
+
+static void test_audit_concentration_and_risk_match_definitions(void **state)
+{
+	/* Weights 0.385 0.245 0.17 0.12 0.08 (sum 1).  By hand:
+	 * HHI = 0.148225 + 0.060025 + 0.0289 + 0.0144 + 0.0064 = 0.25795,
+	 * effective = 1/0.25795, top-10 = 1 (five holdings), largest 0.385. */
+	static const char *text =
+		"fund,id,weight\n"
+		"Alder,QX03,0.385\nAlder,QX11,0.245\nAlder,QX07,0.17\nAlder,QX02,0.12\nAlder,QX19,0.08\n";
+	static const size_t idx[] = { 2, 10, 6, 1, 18 };
+	static const double w[] = { 0.385, 0.245, 0.17, 0.12, 0.08 };
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+	const struct audit_fund *af;
+	double s2, vbar, cbar, wsd = 0, hhi = 0.25795;
+	size_t k;
+
+	fixture_load(&fx, 20, 60, 7, 0);
+	h = holdings_text(text);
+	options(&opt, 0);
+	a = run(h, &fx, &opt);
+	af = &a->funds[0];
+	assert_int_equal(af->holdings, 5);
+	assert_near(af->hhi, hhi, 1e-15);
+	assert_near(af->effective_holdings, 1 / hhi, 1e-13);
+	assert_near(af->top10_share, 1.0, 1e-15);
+	assert_near(af->max_weight, 0.385, 0);
+	assert_string_equal(af->max_id, "QX03");
+	/* sigma: w'Aw with A formed explicitly (the audit never forms A),
+	 * annualised by 12; agreement to 1e-12 relative is rounding only. */
+	s2 = quad_form(fx.u, idx, w, 5);
+	assert_rel(af->variance, 12 * s2, 1e-12);
+	assert_rel(af->sd, sqrt(12 * s2), 1e-12);
+	/* Choueifaty & Coignard (2008): sum w_i sigma_i / sigma_p */
+	for (k = 0; k < 5; k++)
+		wsd += w[k] * sqrt(cov_ij(fx.u, idx[k], idx[k]));
+	assert_rel(af->diversification_ratio, wsd / sqrt(s2), 1e-12);
+	/* design.md section 3: E[w'Aw] over random placements */
+	averages(fx.u, &vbar, &cbar);
+	assert_rel(af->weighted_random_sd, sqrt(12 * (hhi * vbar + (1 - hhi) * cbar)), 1e-12);
+	/* the same with equal weights over 5 holdings: E[sigma^2(5)] */
+	assert_rel(af->equal_random_sd, sqrt(12 * (vbar / 5 + (1 - 1.0 / 5) * cbar)), 1e-12);
+	/* equivalent count (v-bar - c-bar)/(s2 - c-bar), from the explicit averages */
+	assert_true(s2 > cbar);
+	assert_false(af->below_floor);
+	assert_rel(af->equivalent_count, (vbar - cbar) / (s2 - cbar), 1e-10);
+	assert_true(isnan(af->sd_percentile));   /* paths = 0: not sampled */
+	assert_int_equal(af->nmissing, 0);
+	assert_false(af->risk_subset);
+	audit_result_free(a);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+static void test_audit_equivalent_count_inverts_exact_curve(void **state)
+{
+	/* Feeding E[sigma^2(N)] back must give N (design.md section 3): the
+	 * inversion is algebraic, so 1e-9 leaves room only for rounding. */
+	static const double counts[] = { 1, 2, 3.5, 7, 13, 19.25 };
+	struct fixture fx;
+	size_t k;
+	double n;
+
+	fixture_load(&fx, 20, 60, 11, 0);
+	for (k = 0; k < sizeof counts / sizeof counts[0]; k++) {
+		double s2 = curve_expected_variance(&fx.mo, counts[k]);
+		assert_int_equal(curve_equivalent_count(&fx.mo, s2, &n), 0);
+		assert_near(n, counts[k], 1e-9);
+	}
+	universe_free(fx.u);
+}
+
+static void test_audit_below_the_floor_is_not_a_number(void **state)
+{
+	/* QX02 is QX01's mirror image plus tiny noise: the 50/50 pair's
+	 * variance is far below the average covariance (the floor). */
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+	struct report *r;
+	struct hc_error err;
+	double vbar, cbar;
+	const struct report_table *t;
+	size_t col;
+
+	fixture_load(&fx, 12, 48, 5, 1);
+	averages(fx.u, &vbar, &cbar);
+	h = holdings_text("fund,id,weight\nBirch,QX01,0.5\nBirch,QX02,0.5\n");
+	options(&opt, 0);
+	a = run(h, &fx, &opt);
+	assert_true(a->funds[0].variance / 12 < cbar);
+	assert_true(a->funds[0].below_floor);
+	assert_true(isnan(a->funds[0].equivalent_count));
+	assert_int_equal(audit_report(&r, a, h, &err), HC_OK);
+	t = r->tables[0];
+	assert_string_equal(t->key, "funds");
+	for (col = 0; col < t->ncols; col++)
+		if (strcmp(t->cols[col].key, "equivalent_count") == 0)
+			break;
+	assert_true(col < t->ncols);
+	assert_int_equal(t->cells[col].kind, REPORT_TEXT);
+	assert_string_equal(t->cells[col].text, "below the floor");
+	report_free(r);
+	audit_result_free(a);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+/* ---- screens at and just beyond each limit ---- */
+
+/* A one-fund holdings text from percent weights; ids QX01.. in order. */
+static struct holdings *fund_of(const double *pct, size_t n, const char *issuers)
+{
+	char buf[4096];
+	size_t used = 0, k;
+	struct holdings *h;
+
+	used += (size_t)snprintf(buf, sizeof buf, issuers ? "fund,id,weight,issuer\n" : "fund,id,weight\n");
+	for (k = 0; k < n; k++) {
+		used += (size_t)snprintf(buf + used, sizeof buf - used, "Cedar,QX%02zu,%.6g%%", k + 1, pct[k]);
+		if (issuers)
+			used += (size_t)snprintf(buf + used, sizeof buf - used, ",I%c", issuers[k]);
+		used += (size_t)snprintf(buf + used, sizeof buf - used, "\n");
+	}
+	h = holdings_text(buf);
+	assert_int_equal(h->nwarnings, 0);   /* the percents sum to 100 */
+	return h;
+}
+
+static const struct audit_fund *screen_fund(const struct fixture *fx, const double *pct,
+					    size_t n, const char *issuers,
+					    struct audit_result **a, struct holdings **h)
+{
+	struct audit_options opt;
+
+	options(&opt, 0);
+	*h = fund_of(pct, n, issuers);
+	*a = run(*h, fx, &opt);
+	return &(*a)->funds[0];
+}
+
+#define SCREEN_CASE(pct, issuers, body) do { \
+		struct audit_result *a_; struct holdings *h_; \
+		const struct audit_fund *af = screen_fund(&fx, pct, sizeof pct / sizeof pct[0], issuers, &a_, &h_); \
+		body; \
+		audit_result_free(a_); holdings_free(h_); \
+	} while (0)
+
+static void test_audit_screens_ucits_art52(void **state)
+{
+	/* UCITS 2009/65/EC Art. 52 (from memory): no issuer above 10%, issuers
+	 * above 5% together at most 40%.  Each fund sums to 100% exactly in
+	 * decimal; figures are compared within 1e-14, room for the dozen
+	 * roundings of parsing, normalising and summing. */
+	static const double at_limit[] = { 10, 10, 10, 10, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };   /* 40 + 60 */
+	static const double issuer_over[] = { 10.01, 9.99, 10, 10, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };
+	static const double aggregate_over[] = { 10, 10, 10, 5.005, 5.005, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 4.99 };  /* 40.01 above 5% */
+	struct fixture fx;
+
+	fixture_load(&fx, 20, 36, 3, 0);
+	SCREEN_CASE(at_limit, NULL, {
+		assert_true(af->checks[AUDIT_PART_UCITS_ISSUER].passed);
+		assert_near(af->checks[AUDIT_PART_UCITS_ISSUER].figure, 0.10, 1e-14);
+		assert_true(af->checks[AUDIT_PART_UCITS_AGGREGATE].passed);
+		assert_near(af->checks[AUDIT_PART_UCITS_AGGREGATE].figure, 0.40, 1e-14);
+		assert_true(af->screen_passed[0]);
+	});
+	SCREEN_CASE(issuer_over, NULL, {
+		assert_false(af->checks[AUDIT_PART_UCITS_ISSUER].passed);
+		assert_near(af->checks[AUDIT_PART_UCITS_ISSUER].figure, 0.1001, 1e-14);
+		assert_string_equal(af->checks[AUDIT_PART_UCITS_ISSUER].issuer, "QX01");
+		assert_false(af->screen_passed[0]);
+	});
+	SCREEN_CASE(aggregate_over, NULL, {
+		assert_true(af->checks[AUDIT_PART_UCITS_ISSUER].passed);
+		assert_false(af->checks[AUDIT_PART_UCITS_AGGREGATE].passed);
+		assert_near(af->checks[AUDIT_PART_UCITS_AGGREGATE].figure, 0.4001, 1e-14);
+		assert_false(af->screen_passed[0]);
+	});
+	universe_free(fx.u);
+}
+
+static void test_audit_screens_1940act_5b1(void **state)
+{
+	/* Investment Company Act of 1940 s. 5(b)(1), weight part (from memory):
+	 * at least 75% of assets in issuers of at most 5% each. */
+	static const double at_limit[] = { 12.5, 12.5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };      /* 75 in <= 5% */
+	static const double beyond[] = { 12.505, 12.505, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 4.99 };     /* 74.99 */
+	struct fixture fx;
+
+	fixture_load(&fx, 20, 36, 3, 0);
+	SCREEN_CASE(at_limit, NULL, {
+		assert_true(af->checks[AUDIT_PART_1940ACT_SMALL].passed);
+		assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.75, 1e-14);
+		assert_true(af->screen_passed[1]);
+		assert_false(af->screen_passed[0]);   /* 12.5% breaks UCITS's 10% */
+	});
+	SCREEN_CASE(beyond, NULL, {
+		assert_false(af->checks[AUDIT_PART_1940ACT_SMALL].passed);
+		assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.7499, 1e-14);
+		assert_false(af->screen_passed[1]);
+	});
+	universe_free(fx.u);
+}
+
+static void test_audit_screens_ric_851b3(void **state)
+{
+	/* Internal Revenue Code s. 851(b)(3) (from memory): at least 50% of
+	 * assets in issuers of at most 5% each; no issuer above 25%. */
+	static const double at_limit[] = { 25, 25, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };
+	static const double issuer_over[] = { 25.01, 24.99, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };
+	static const double small_under[] = { 25, 19.99, 5.02, 5, 5, 5, 5, 5, 5, 5, 5, 5, 4.99 };   /* 49.99 in <= 5% */
+	struct fixture fx;
+
+	fixture_load(&fx, 20, 36, 3, 0);
+	SCREEN_CASE(at_limit, NULL, {
+		assert_true(af->checks[AUDIT_PART_RIC_ISSUER].passed);
+		assert_true(af->checks[AUDIT_PART_RIC_SMALL].passed);
+		assert_near(af->checks[AUDIT_PART_RIC_SMALL].figure, 0.50, 1e-14);
+		assert_true(af->screen_passed[2]);
+		assert_false(af->screen_passed[1]);   /* 50 < 75: fails the 1940 Act part */
+	});
+	SCREEN_CASE(issuer_over, NULL, {
+		assert_false(af->checks[AUDIT_PART_RIC_ISSUER].passed);
+		assert_near(af->checks[AUDIT_PART_RIC_ISSUER].figure, 0.2501, 1e-14);
+		assert_true(af->checks[AUDIT_PART_RIC_SMALL].passed);
+		assert_false(af->screen_passed[2]);
+	});
+	SCREEN_CASE(small_under, NULL, {
+		assert_true(af->checks[AUDIT_PART_RIC_ISSUER].passed);
+		assert_false(af->checks[AUDIT_PART_RIC_SMALL].passed);
+		assert_near(af->checks[AUDIT_PART_RIC_SMALL].figure, 0.4999, 1e-14);
+	});
+	universe_free(fx.u);
+}
+
+static void test_audit_screens_aggregate_by_issuer(void **state)
+{
+	/* Issuer = the issuer column: QX01 (6%) and QX02 (5%) share issuer IA,
+	 * so IA holds 11% and breaks UCITS Art. 52's 10%, though no single
+	 * position does.  The other 89% are twenty 4.45% positions, one issuer
+	 * each. */
+	static const double pct[] = { 6, 5, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45,
+				      4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45, 4.45 };
+	struct fixture fx;
+
+	fixture_load(&fx, 24, 36, 3, 0);
+	SCREEN_CASE(pct, "AABCDEFGHIJKLMNOPQRSTU", {
+		assert_near(af->max_weight, 0.06, 1e-15);
+		assert_false(af->checks[AUDIT_PART_UCITS_ISSUER].passed);
+		assert_near(af->checks[AUDIT_PART_UCITS_ISSUER].figure, 0.11, 1e-14);
+		assert_string_equal(af->checks[AUDIT_PART_UCITS_ISSUER].issuer, "IA");
+	});
+	universe_free(fx.u);
+}
+
+/* ---- percentile ---- */
+
+/* The variance of the equal-weight portfolio of the securities in mask. */
+static double subset_variance(const struct universe *u, unsigned mask)
+{
+	size_t idx[32], n = 0, i;
+	double w[32];
+
+	for (i = 0; i < u->m; i++)
+		if (mask & (1u << i))
+			idx[n++] = i;
+	for (i = 0; i < n; i++)
+		w[i] = 1.0 / (double)n;
+	return quad_form(u, idx, w, n);
+}
+
+/* Exact mid-rank of s2 among all n-subsets, by enumeration. */
+static double enumerated_rank(const struct universe *u, size_t n, double s2)
+{
+	unsigned mask;
+	double below = 0, equal = 0, total = 0;
+
+	for (mask = 0; mask < (1u << u->m); mask++) {
+		double v;
+		if ((size_t)__builtin_popcount(mask) != n)
+			continue;
+		v = subset_variance(u, mask);
+		total++;
+		if (fabs(v - s2) <= 1e-12 * s2)
+			equal++;
+		else if (v < s2)
+			below++;
+	}
+	return (below + equal / 2) / total;
+}
+
+static void test_audit_percentile_against_enumeration(void **state)
+{
+	/* M = 8, n = 3: all 56 subsets enumerated.  With K = 20000 sampled
+	 * portfolios the sampled rank has binomial standard error
+	 * sqrt(p(1-p)/K) <= 0.0036; 4.5 standard errors is the tolerance. */
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+	double var[8], exact, tol;
+	size_t order[8], i, j, K = 20000;
+	char text[256];
+
+	fixture_load(&fx, 8, 30, 17, 0);
+	for (i = 0; i < 8; i++) {
+		var[i] = cov_ij(fx.u, i, i);
+		order[i] = i;
+	}
+	for (i = 0; i < 8; i++)                   /* order by variance, lowest first */
+		for (j = i + 1; j < 8; j++)
+			if (var[order[j]] < var[order[i]]) {
+				size_t s = order[i]; order[i] = order[j]; order[j] = s;
+			}
+	snprintf(text, sizeof text,
+		 "fund,id,weight\n"
+		 "Middle,QX02,1\nMiddle,QX05,1\nMiddle,QX07,1\n"
+		 "Lowest,%s,1\nLowest,%s,1\nLowest,%s,1\n",
+		 fx.u->ids[order[0]], fx.u->ids[order[1]], fx.u->ids[order[2]]);
+	h = holdings_text(text);
+	options(&opt, K);
+	a = run(h, &fx, &opt);
+	for (i = 0; i < 2; i++) {
+		exact = enumerated_rank(fx.u, 3, a->funds[i].variance / 12);
+		tol = 4.5 * sqrt(fmax(exact * (1 - exact), 0.5 / (double)K) / (double)K);
+		assert_near(a->funds[i].sd_percentile, exact, tol);
+	}
+	/* the three lowest-variance securities make a low-ranking portfolio */
+	assert_true(a->funds[1].sd_percentile < 0.2);
+	audit_result_free(a);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+static void test_audit_percentile_ties_at_full_count(void **state)
+{
+	/* n = M: every random equal-weight portfolio is the whole universe, the
+	 * same portfolio as the fund; mid-rank counts each tie half, so the
+	 * percentile is exactly (0 + K/2)/K = 0.5. */
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+
+	fixture_load(&fx, 6, 30, 23, 0);
+	h = holdings_text("fund,id,weight\nDogwood,QX01,1\nDogwood,QX02,1\nDogwood,QX03,1\n"
+			  "Dogwood,QX04,1\nDogwood,QX05,1\nDogwood,QX06,1\n");
+	options(&opt, 500);
+	a = run(h, &fx, &opt);
+	assert_near(a->funds[0].sd_percentile, 0.5, 0);
+	audit_result_free(a);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+/* ---- missing ids, strict ---- */
+
+static void test_audit_missing_ids_renormalised_or_refused(void **state)
+{
+	static const char *text =
+		"fund,id,weight\nElm,QX04,0.45\nElm,ZZ999,0.1\nElm,QX09,0.45\n"
+		"Fern,ZZ1,0.6\nFern,ZZ2,0.4\n";
+	static const size_t idx[] = { 3, 8 };
+	static const double w[] = { 0.5, 0.5 };   /* 0.45/0.9 each */
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+	struct hc_error err;
+
+	fixture_load(&fx, 12, 36, 29, 0);
+	h = holdings_text(text);
+	options(&opt, 0);
+	a = run(h, &fx, &opt);
+	assert_int_equal(a->funds[0].nmissing, 1);
+	assert_string_equal(a->funds[0].missing[0].id, "ZZ999");
+	assert_int_equal(a->funds[0].missing[0].line, 3);
+	assert_near(a->funds[0].missing_weight, 0.1, 1e-15);
+	assert_true(a->funds[0].risk_subset);
+	assert_int_equal(a->funds[0].risk_holdings, 2);
+	assert_int_equal(a->funds[0].holdings, 3);
+	assert_rel(a->funds[0].variance, 12 * quad_form(fx.u, idx, w, 2), 1e-12);
+	audit_result_free(a);
+	/* Fern holds nothing the universe knows: concentration yes, risk none,
+	 * and no percentile even when sampling */
+	options(&opt, 50);
+	a = run(h, &fx, &opt);
+	assert_false(a->funds[1].risk_known);
+	assert_near(a->funds[1].hhi, 0.52, 1e-15);          /* 0.36 + 0.16 */
+	assert_near(a->funds[1].missing_weight, 1.0, 1e-15);
+	assert_true(isnan(a->funds[1].sd));
+	assert_true(isnan(a->funds[1].sd_percentile));
+	assert_false(isnan(a->funds[0].sd_percentile));
+	audit_result_free(a);
+	options(&opt, 0);
+	opt.strict = 1;
+	assert_int_equal(audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EDATA);
+	assert_null(a);
+	assert_string_equal(err.message, "h.csv:3:2: id 'ZZ999' of fund 'Elm' is not in the universe 'u.csv', expected an id of the universe (without --strict the fund's risk is computed on the rest)");
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+/* ---- policy and sectors ---- */
+
+static void test_audit_policy_and_sectors(void **state)
+{
+	/* Fir: 4 holdings 0.4/0.3/0.2/0.1, HHI 0.30, effective 3.33...,
+	 * sectors Energy 0.4+0.2 = 0.6, Utilities 0.3, unmapped 0.1: sector HHI
+	 * 0.36 + 0.09 + 0.01 = 0.46.  Gum: 20 x 5%, one sector each.  */
+	static const char *text =
+		"fund,id,weight\n"
+		"Fir,QX01,0.4\nFir,QX02,0.3\nFir,QX03,0.2\nFir,QX20,0.1\n";
+	static const char *map =
+		"id,sector\nQX01,Energy\nQX02,Utilities\nQX03,Energy\nQX04,Health\n";
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct holdings_labels *l;
+	struct audit_result *a;
+	struct hc_error err;
+	const struct audit_fund *af;
+
+	fixture_load(&fx, 20, 36, 31, 0);
+	h = holdings_text(text);
+	assert_int_equal(holdings_labels_load_buffer(&l, "s.csv", map, strlen(map), 0, &err), HC_OK);
+	options(&opt, 0);
+	opt.policy.max_sector_weight = 0.5;
+	assert_int_equal(audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EUSAGE);   /* no map */
+	assert_string_equal(err.message, "a maximum sector weight needs a sector map");
+	opt.sectors = l;
+	opt.policy.min_holdings = 5;
+	opt.policy.min_effective = 3.3;
+	opt.policy.max_weight = 0.35;
+	opt.policy.screens = AUDIT_SCREEN_UCITS | AUDIT_SCREEN_RIC;
+	a = run(h, &fx, &opt);
+	af = &a->funds[0];
+	assert_near(af->hhi, 0.30, 1e-15);
+	assert_near(af->sector_hhi, 0.46, 1e-15);
+	assert_int_equal(af->nsectors, 3);
+	assert_string_equal(af->sectors[0].label, "Energy");
+	assert_near(af->sectors[0].weight, 0.6, 1e-15);
+	assert_int_equal(af->sectors[0].count, 2);
+	assert_null(af->sectors[2].label);            /* the unmapped bucket last */
+	assert_near(af->max_sector_weight, 0.6, 1e-15);
+	/* 4 < 5 holdings; 3.33 >= 3.3 effective; 0.4 > 0.35; sector 0.6 > 0.5;
+	 * UCITS fails (40% > 10%); RIC fails (40% > 25%); the 1940 Act screen
+	 * also fails but was not asked for. */
+	assert_int_equal(af->failed, AUDIT_RULE_MIN_HOLDINGS | AUDIT_RULE_MAX_WEIGHT |
+			 AUDIT_RULE_MAX_SECTOR_WEIGHT | AUDIT_RULE_UCITS | AUDIT_RULE_RIC);
+	assert_false(af->passed);
+	assert_false(af->screen_passed[1]);
+	assert_int_equal(a->failed_funds, 1);
+	audit_result_free(a);
+	holdings_labels_free(l);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+static void test_audit_parse_screens(void **state)
+{
+	unsigned s;
+	struct hc_error err;
+
+	assert_int_equal(audit_parse_screens("ric, UCITS", &s, &err), HC_OK);
+	assert_int_equal(s, AUDIT_SCREEN_UCITS | AUDIT_SCREEN_RIC);
+	assert_int_equal(audit_parse_screens("all", &s, &err), HC_OK);
+	assert_int_equal(s, AUDIT_SCREEN_UCITS | AUDIT_SCREEN_1940ACT | AUDIT_SCREEN_RIC);
+	assert_int_equal(audit_parse_screens("ucits,40act", &s, &err), HC_EUSAGE);
+	assert_string_equal(err.message, "unknown screen '40act' in 'ucits,40act', expected ucits, 1940act, ric, all or none");
+	assert_string_equal(audit_rule_name(AUDIT_RULE_MAX_SECTOR_WEIGHT), "max-sector-weight");
+	assert_null(audit_rule_name(3));
+}
+
+/* ---- the report ---- */
+
+static void test_audit_report_csv_columns_and_json_screens(void **state)
+{
+	static const char *want =
+		"fund,holdings,weight_sum,max_weight,top10_share,hhi,effective_holdings,sd,"
+		"diversification_ratio,equivalent_count,sd_percentile,weighted_random_sd,passed,failed_rules,";
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+	struct report *r;
+	struct hc_error err;
+	char line[2048];
+	FILE *fp;
+	int json_has_screens = 0, json_has_failed = 0;
+
+	fixture_load(&fx, 12, 36, 37, 0);
+	h = holdings_text("fund,id,weight\nGum,QX01,0.7\nGum,QX02,0.3\nHolly,QX03,0.5\nHolly,QX04,0.5\n");
+	options(&opt, 200);
+	opt.policy.min_holdings = 2;
+	opt.policy.max_weight = 0.6;
+	a = run(h, &fx, &opt);
+	assert_int_equal(audit_report(&r, a, h, &err), HC_OK);
+	fp = tmpfile();
+	assert_non_null(fp);
+	assert_int_equal(report_writer_csv->write(fp, r, &err), HC_OK);
+	rewind(fp);
+	assert_non_null(fgets(line, sizeof line, fp));
+	assert_int_equal(strncmp(line, want, strlen(want)), 0);
+	fclose(fp);
+	fp = tmpfile();
+	assert_int_equal(report_writer_json->write(fp, r, &err), HC_OK);
+	rewind(fp);
+	while (fgets(line, sizeof line, fp)) {
+		json_has_screens |= strstr(line, "\"screens\"") != NULL;
+		json_has_failed |= strstr(line, "\"max-weight\"") != NULL;
+	}
+	fclose(fp);
+	assert_true(json_has_screens);
+	assert_true(json_has_failed);      /* Gum's 70% breaks the 60% maximum */
+	assert_int_equal(a->failed_funds, 1);
+	report_free(r);
+	audit_result_free(a);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+/* ---- allocation failures ---- */
+
+static void test_audit_allocation_failures(void **state)
+{
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct holdings_labels *l;
+	struct audit_result *a;
+	struct report *r;
+	struct hc_error err;
+	long k;
+	int rc = HC_ENOMEM;
+
+	fixture_load(&fx, 10, 24, 41, 0);
+	h = holdings_text("fund,id,weight\nIvy,QX01,0.6\nIvy,ZZ1,0.1\nIvy,QX02,0.3\nJuniper,QX03,1\n");
+	assert_int_equal(holdings_labels_load_buffer(&l, "s.csv", "id,s\nQX01,A\n", strlen("id,s\nQX01,A\n"), 0, &err), HC_OK);
+	options(&opt, 50);
+	opt.sectors = l;
+	for (k = 0; rc == HC_ENOMEM; k++) {
+		hc_alloc_fail_after(k);
+		rc = audit_run(&a, h, fx.u, &fx.mo, &opt, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_ENOMEM)
+			assert_null(a);
+		assert_true(k < 1000);
+	}
+	assert_int_equal(rc, HC_OK);
+	for (k = 0, rc = HC_ENOMEM; rc == HC_ENOMEM; k++) {
+		hc_alloc_fail_after(k);
+		rc = audit_report(&r, a, h, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_ENOMEM)
+			assert_null(r);
+		assert_true(k < 5000);
+	}
+	assert_int_equal(rc, HC_OK);
+	report_free(r);
+	audit_result_free(a);
+	holdings_labels_free(l);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_audit_concentration_and_risk_match_definitions),
+		cmocka_unit_test(test_audit_equivalent_count_inverts_exact_curve),
+		cmocka_unit_test(test_audit_below_the_floor_is_not_a_number),
+		cmocka_unit_test(test_audit_screens_ucits_art52),
+		cmocka_unit_test(test_audit_screens_1940act_5b1),
+		cmocka_unit_test(test_audit_screens_ric_851b3),
+		cmocka_unit_test(test_audit_screens_aggregate_by_issuer),
+		cmocka_unit_test(test_audit_percentile_against_enumeration),
+		cmocka_unit_test(test_audit_percentile_ties_at_full_count),
+		cmocka_unit_test(test_audit_missing_ids_renormalised_or_refused),
+		cmocka_unit_test(test_audit_policy_and_sectors),
+		cmocka_unit_test(test_audit_parse_screens),
+		cmocka_unit_test(test_audit_report_csv_columns_and_json_screens),
+		cmocka_unit_test(test_audit_allocation_failures),
+	};
+	gsl_set_error_handler_off();
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

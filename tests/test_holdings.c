@@ -1,0 +1,276 @@
+/*
+ * Unit tests for the holdings reader and the id,label map.
+ *
+ * References: the expected weights are exact arithmetic on the values in
+ * each buffer (worked beside each check); the messages are the contract in
+ * holdings.h ("FILE:LINE:COLUMN: found ..., expected ...").
+ */
+#include <math.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include "holdcount/holdings.h"
+#include "holdcount/memory.h"
+
+/* cmocka 1.1 has no double assertion: |got - want| <= tol, values printed. */
+static void near(double got, double want, double tol, const char *what, int line)
+{
+	if (!(fabs(got - want) <= tol)) {
+		print_error("%s = %.17g, expected %.17g within %g\n", what, got, want, tol);
+		_fail(__FILE__, line);
+	}
+}
+#define assert_near(got, want, tol) near((got), (want), (tol), #got, __LINE__)
+
+static int load(struct holdings **h, const char *text, const struct holdings_options *opt,
+		struct hc_error *err)
+{
+	hc_error_clear(err);
+	return holdings_load_buffer(h, "f.csv", text, strlen(text), opt, err);
+}
+
+static void test_holdings_reads_weights_by_fund(void **state)
+{
+	/* Rows of two funds interleaved; fund order is first appearance. */
+	const char *text =
+		"fund,id,weight\n"
+		"Alder Growth,QX101,0.4125\n"
+		"Birch Income,QX205,0.25\n"
+		"Alder Growth,QX117,0.3375\n"
+		"Birch Income,QX101,0.75\n"
+		"Alder Growth,QX140,0.25\n";
+	struct holdings *h;
+	struct hc_error err;
+
+	assert_int_equal(load(&h, text, NULL, &err), HC_OK);
+	assert_int_equal(h->nfunds, 2);
+	assert_int_equal(h->kind, HOLDINGS_WEIGHTS);
+	assert_string_equal(h->funds[0].name, "Alder Growth");
+	assert_int_equal(h->funds[0].n, 3);
+	assert_string_equal(h->funds[0].h[1].id, "QX117");
+	assert_string_equal(h->funds[0].h[1].issuer, "QX117");   /* issuer = id without the column */
+	assert_int_equal(h->funds[0].h[1].line, 4);
+	/* 0.4125 + 0.3375 + 0.25 = 1 (exact arithmetic): weights unchanged within rounding */
+	assert_near(h->funds[0].raw_sum, 1.0, 1e-15);
+	assert_near(h->funds[0].h[0].weight, 0.4125, 1e-15);
+	assert_string_equal(h->funds[1].name, "Birch Income");
+	assert_int_equal(h->funds[1].n, 2);
+	assert_near(h->funds[1].h[1].weight, 0.75, 1e-15);
+	assert_int_equal(h->nwarnings, 0);
+	holdings_free(h);
+}
+
+static void test_holdings_normalises_values_and_reads_issuers(void **state)
+{
+	/* Market values 137500 + 412500 + 550000 = 1100000, so the weights are
+	 * 0.125, 0.375 and 0.5 exactly; ';' as the delimiter, CRLF line ends. */
+	const char *text =
+		"Fund;ID;Value;Issuer\r\n"
+		"Cedar;QX301;137500.00;ISS-A\r\n"
+		"Cedar;QX302;412500.00;ISS-A\r\n"
+		"Cedar;QX303;550000.00;ISS-B\r\n";
+	struct holdings *h;
+	struct hc_error err;
+
+	assert_int_equal(load(&h, text, NULL, &err), HC_OK);
+	assert_int_equal(h->kind, HOLDINGS_VALUES);
+	assert_true(h->has_issuer);
+	assert_near(h->funds[0].raw_sum, 1100000.0, 0);
+	assert_near(h->funds[0].h[0].weight, 0.125, 1e-15);
+	assert_near(h->funds[0].h[1].weight, 0.375, 1e-15);
+	assert_near(h->funds[0].h[2].weight, 0.5, 1e-15);
+	assert_string_equal(h->funds[0].h[1].issuer, "ISS-A");
+	assert_int_equal(h->nwarnings, 0);   /* values are not expected to sum to 1 */
+	holdings_free(h);
+}
+
+static void test_holdings_warns_and_normalises_off_sums(void **state)
+{
+	/* Sum 0.9871 is off 1 by 1.29% > 0.5%: warned, then 0.4936/0.9871 etc.
+	 * Sum 0.997 is within 0.5%: normalised silently.  Percent cells
+	 * divide by 100 (csvread's contract). */
+	const char *text =
+		"fund,id,weight\n"
+		"Dogwood,QX1,0.4936\n"
+		"Dogwood,QX2,0.4935\n"
+		"Elm,QX1,49.85%\n"
+		"Elm,QX2,49.85%\n"
+		"Elm,QX3,0\n";
+	struct holdings *h;
+	struct hc_error err;
+
+	assert_int_equal(load(&h, text, NULL, &err), HC_OK);
+	assert_near(h->funds[0].raw_sum, 0.9871, 1e-15);
+	assert_near(h->funds[0].h[0].weight, 0.4936 / 0.9871, 1e-15);
+	assert_near(h->funds[1].raw_sum, 0.997, 1e-15);
+	assert_near(h->funds[1].h[0].weight, 0.5, 1e-15);
+	assert_int_equal(h->funds[1].n, 2);          /* the zero row is not a holding */
+	assert_int_equal(h->funds[1].zero_rows, 1);
+	assert_int_equal(h->nwarnings, 2);
+	assert_non_null(strstr(h->warnings[0], "f.csv:2: fund 'Dogwood': weights sum to 0.9871"));
+	assert_non_null(strstr(h->warnings[1], "fund 'Elm': 1 row with zero weight"));
+	holdings_free(h);
+}
+
+static void test_holdings_column_names_by_option(void **state)
+{
+	const char *text =
+		"portfolio,ticker,pct,extra\n"
+		"Fir,QX9,60,x\n"
+		"Fir,QX8,40,y\n";
+	struct holdings_options opt;
+	struct holdings *h;
+	struct hc_error err;
+
+	holdings_options_init(&opt);
+	opt.fund_column = "portfolio";
+	opt.id_column = "ticker";
+	opt.value_column = "pct";
+	assert_int_equal(load(&h, text, &opt, &err), HC_OK);
+	assert_int_equal(h->kind, HOLDINGS_VALUES);
+	assert_near(h->funds[0].h[0].weight, 0.6, 1e-15);   /* 60/100 */
+	holdings_free(h);
+	opt.weight_column = "pct";
+	assert_int_equal(load(&h, text, &opt, &err), HC_EUSAGE);
+	assert_null(h);
+}
+
+static void test_holdings_short_positions(void **state)
+{
+	/* 1.3 - 0.3 = 1: accepted only with allow_short. */
+	const char *text = "fund,id,weight\nGinkgo,QX1,1.3\nGinkgo,QX2,-0.3\n";
+	struct holdings_options opt;
+	struct holdings *h;
+	struct hc_error err;
+
+	assert_int_equal(load(&h, text, NULL, &err), HC_EDATA);
+	assert_string_equal(err.message, "f.csv:3:3: found negative weight '-0.3', expected zero or more (short positions need --allow-short)");
+	holdings_options_init(&opt);
+	opt.allow_short = 1;
+	assert_int_equal(load(&h, text, &opt, &err), HC_OK);
+	assert_near(h->funds[0].h[1].weight, -0.3, 1e-15);
+	holdings_free(h);
+	/* a net short fund cannot be normalised */
+	assert_int_equal(load(&h, "fund,id,weight\nHazel,QX1,0.2\nHazel,QX2,-0.45\n", &opt, &err), HC_EDATA);
+	assert_string_equal(err.message, "f.csv:2:3: fund 'Hazel' has a net weight of -0.25, expected a positive total");
+}
+
+struct bad_case {
+	const char *text;
+	const char *message;
+};
+
+static void test_holdings_bad_input_messages(void **state)
+{
+	static const struct bad_case cases[] = {
+		{ "fund,id,weight\nIvy,QX1,0.5\nIvy,QX2,abc\n",
+		  "f.csv:3:3: found 'abc', expected a number (a weight such as 0.052 or 5.2%)" },
+		{ "fund,id,weight\nIvy,QX1,0.5\nJuniper,QX1,1\nIvy,QX1,0.5\n",
+		  "f.csv:4:2: duplicate id 'QX1' in fund 'Ivy' (also at line 2), expected each id once per fund" },
+		{ "fund,id,weight\nIvy,QX1,0.5\nKapok,QX1,0\nKapok,QX2,0.0\n",
+		  "f.csv:3:3: fund 'Kapok' holds nothing: all its 2 weights are zero, expected at least one non-zero weight" },
+		{ "fund,id,weight\n",
+		  "f.csv: no holdings after the header, expected rows of fund,id,weight" },
+		{ "fund,id,weight\n,QX1,1\n",
+		  "f.csv:2:1: empty fund name, expected the fund the position belongs to" },
+		{ "fund,id,weight\nLarch, ,1\n",
+		  "f.csv:2:2: empty security id, expected an id" },
+		{ "fund,id,weight\nLarch,QX1\n",
+		  "f.csv:2:3: found 2 fields, expected 3 as in the header" },
+		{ "fund,id,shares\nLarch,QX1,10\n",
+		  "f.csv:1: no 'weight' or 'value' column in the header; expected fund,id,weight or fund,id,value" },
+		{ "name,id,weight\nLarch,QX1,1\n",
+		  "f.csv:1: no 'fund' column in the header; expected fund,id,weight" },
+		{ "fund,id,value\nMaple,QX1,\n",
+		  "f.csv:2:3: found '', expected a number (a market value)" },
+	};
+	struct holdings *h = (void *)1;
+	struct hc_error err;
+	size_t k;
+
+	for (k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		assert_int_equal(load(&h, cases[k].text, NULL, &err), HC_EDATA);
+		assert_null(h);
+		assert_string_equal(err.message, cases[k].message);
+	}
+}
+
+static void test_holdings_allocation_failures(void **state)
+{
+	const char *text =
+		"fund,id,weight,issuer\n"
+		"Nyssa,QX1,0.3,I1\nNyssa,QX2,0.3,I2\nOak,QX1,0.5,I1\nNyssa,QX3,0.39,I1\nOak,QX4,0.5,I3\nOak,QX5,0,I3\n";
+	struct holdings *h;
+	struct hc_error err;
+	long k;
+	int rc = HC_ENOMEM;
+
+	/* Fail the k-th allocation for every k until the load succeeds: each
+	 * failure must be reported as HC_ENOMEM with nothing returned. */
+	for (k = 0; rc == HC_ENOMEM; k++) {
+		hc_alloc_fail_after(k);
+		rc = load(&h, text, NULL, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_ENOMEM)
+			assert_null(h);
+		assert_true(k < 1000);
+	}
+	assert_int_equal(rc, HC_OK);
+	assert_true(k > 5);
+	assert_int_equal(h->nwarnings, 2);
+	holdings_free(h);
+}
+
+static int labels(struct holdings_labels **l, const char *text, struct hc_error *err)
+{
+	return holdings_labels_load_buffer(l, "s.csv", text, strlen(text), 0, err);
+}
+
+static void test_holdings_labels_map(void **state)
+{
+	const char *text = "id,sector\nQX3,Utilities\nQX1,Energy\n\"QX2\",\"Health, care\"\n";
+	struct holdings_labels *l;
+	struct hc_error err;
+	long k;
+	int rc = HC_ENOMEM;
+
+	assert_int_equal(holdings_labels_load_buffer(&l, "s.csv", text, strlen(text), 0, &err), HC_OK);
+	assert_int_equal(l->n, 3);
+	assert_string_equal(holdings_labels_find(l, "QX2"), "Health, care");
+	assert_string_equal(holdings_labels_find(l, "QX3"), "Utilities");
+	assert_null(holdings_labels_find(l, "QX4"));
+	holdings_labels_free(l);
+	assert_int_equal(labels(&l, "id,sector\nQX1,A\nQX2,B\nQX1,C\n", &err), HC_EDATA);
+	assert_string_equal(err.message, "s.csv:4:1: duplicate id 'QX1' (also at line 2), expected each id once");
+	assert_int_equal(labels(&l, "id,sector\nQX1,\n", &err), HC_EDATA);
+	assert_string_equal(err.message, "s.csv:2:2: empty label, expected a label for the id");
+	assert_int_equal(labels(&l, "id,sector\nQX1,A,B\n", &err), HC_EDATA);
+	assert_string_equal(err.message, "s.csv:2:3: found 3 fields, expected 2 (id,label)");
+	for (k = 0; rc == HC_ENOMEM; k++) {
+		hc_alloc_fail_after(k);
+		rc = holdings_labels_load_buffer(&l, "s.csv", text, strlen(text), 0, &err);
+		hc_alloc_fail_after(-1);
+		assert_true(k < 1000);
+	}
+	assert_int_equal(rc, HC_OK);
+	holdings_labels_free(l);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_holdings_reads_weights_by_fund),
+		cmocka_unit_test(test_holdings_normalises_values_and_reads_issuers),
+		cmocka_unit_test(test_holdings_warns_and_normalises_off_sums),
+		cmocka_unit_test(test_holdings_column_names_by_option),
+		cmocka_unit_test(test_holdings_short_positions),
+		cmocka_unit_test(test_holdings_bad_input_messages),
+		cmocka_unit_test(test_holdings_allocation_failures),
+		cmocka_unit_test(test_holdings_labels_map),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
