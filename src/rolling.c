@@ -543,14 +543,17 @@ int rolling_report(struct report *rep, const struct rolling_result *r,
 		   struct hc_error *err)
 {
 	struct report_table *t;
-	size_t j;
+	size_t j, rebuilt = 0;
 	int rc = 0;
 
+	for (j = 0; j < r->nwindows; j++)
+		rebuilt += r->windows[j].recomputed;
 	rc |= report_add_int(rep, "window", "window (periods)", (long long)r->window);
 	rc |= report_add_int(rep, "step", "step (periods)", (long long)r->step);
 	rc |= report_add_real(rep, "periods_per_year", "periods per year", r->periods_per_year,
 			      REPORT_STYLE_PLAIN);
-	rc |= report_add_int(rep, "windows", "windows", (long long)r->nwindows);
+	rc |= report_add_int(rep, "window_count", "windows", (long long)r->nwindows);
+	rc |= report_add_int(rep, "windows_recomputed", "windows computed from scratch", (long long)rebuilt);
 	if (r->replicates)
 		rc |= report_add_int(rep, "replicates", "bootstrap replicates", (long long)r->replicates);
 	t = report_add_table(rep, "windows", "rolling windows");

@@ -108,7 +108,8 @@ void rolling_result_free(struct rolling_result *r);
  * floor_sd (annualised; floor_sd empty when c-bar <= 0), then count_<rule>
  * per evaluated rule ('-' written '_': count_near_floor), with bootstrap
  * count_<rule>_p05/_p50/_p95, then dropped and note.  Also the fields
- * window, step, periods_per_year, windows.  HC_ENOMEM.
+ * window, step, periods_per_year, window_count, windows_recomputed (the rest
+ * slid).  HC_ENOMEM.
  */
 int rolling_report(struct report *rep, const struct rolling_result *r,
 		   struct hc_error *err);
