@@ -28,6 +28,10 @@
 /* Bytes read from a file at a time. */
 #define CSVREAD_CHUNK (64 * 1024)
 
+/* Most of the first line held back to choose the delimiter: a ';' header
+ * longer than this (over 100 000 ids of 9 bytes) is decided on its start. */
+#define CSVREAD_SNIFF_MAX (1024 * 1024)
+
 /* Longest number text csvread_parse_number hands to strtod. */
 #define CSVREAD_NUMBER_MAX 400
 
@@ -243,14 +247,21 @@ static int reader_take(struct reader *r, const char *s, size_t len)
 	}
 	memcpy(r->pending + r->npending, s, len);
 	r->npending = need;
+	/* Hold back no more than the decision needs: a ',' settles it, a
+	 * given delimiter needs only the byte-order mark, and the sample is
+	 * bounded so that a file with no line break is not held whole. */
+	if (r->delim_fixed)
+		return r->npending >= 3 ? start_body(r) : HC_OK;
 	for (; r->scan_pos < r->npending; r->scan_pos++) {
 		char c = r->pending[r->scan_pos];
 
 		if (c == '"')
 			r->pending_quote = !r->pending_quote;
-		else if (c == '\n' && !r->pending_quote)
+		else if ((c == '\n' || c == ',') && !r->pending_quote)
 			return start_body(r);
 	}
+	if (r->npending >= CSVREAD_SNIFF_MAX)
+		return start_body(r);
 	return HC_OK;
 }
 
