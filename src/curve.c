@@ -271,6 +271,9 @@ static int parse_item(const char *s, size_t len, size_t max, struct sizes_buf *b
 	}
 	if (max && hi > max)
 		return hc_error(err, HC_EUSAGE, "size %zu is larger than the %zu securities kept", hi, max);
+	if (hi - lo >= CURVE_MAX_SIZES - b->n)
+		return hc_error(err, HC_EUSAGE, "bad size list: '%.*s' names more than %d sizes",
+				(int)len, s, CURVE_MAX_SIZES);
 	for (x = lo; x <= hi; x++)
 		if (push(b, x))
 			return hc_error(err, HC_ENOMEM, "out of memory for the size list");

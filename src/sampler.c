@@ -10,11 +10,12 @@
  * Column route: the portfolio's centred return series is a running sum of
  * the members' centred series, T contiguous doubles that stay in L1; its
  * variance ||s||^2/(n^2 (T-1)) is needed only at the grid sizes.  Because
- * the members of the first n are the complement of the last M-n, a grid
- * size above the split is reached from the universe's total series by
- * subtracting the last M-n columns: the split between the forward and the
- * backward sweep is chosen to touch the fewest columns (with sizes up to M,
- * about a quarter of the work is skipped).
+ * the members of the first n are the complement of the last M-n, a size
+ * above M/2 is reached from the universe's total series by subtracting the
+ * last M-n columns (with sizes up to M, about a quarter of the work is
+ * skipped).  Sums are grouped canonically (fours aligned on the ordering),
+ * so a portfolio's figure has the same bits whatever other sizes are asked
+ * for.
  *
  * Reproducibility: path k's generator is GSL's taus2 (L'Ecuyer, 1996,
  * Mathematics of Computation 65(213), a maximally equidistributed combined
@@ -107,13 +108,13 @@ static void plan_release(struct plan *p)
 	hc_free(p->slot);
 }
 
-/* Validate sizes, sort them and choose the forward/backward split that
- * touches the fewest columns: forward to uniq[j-1], backward from M down to
- * uniq[j].  allow_backward = 0 keeps every size forward. */
+/* Validate sizes, sort them and split them: uniq[0..split-1] are summed
+ * forward from zero, the rest backward from the total.  allow_backward = 0
+ * keeps every size forward. */
 static int plan_init(struct plan *p, size_t m, const size_t *sizes, size_t nsizes,
 		     int allow_backward, struct hc_error *err)
 {
-	size_t j, k, best, cost, fwd, back_top;
+	size_t j, k, best, fwd, back_top;
 
 	memset(p, 0, sizeof *p);
 	if (nsizes == 0)
@@ -139,22 +140,19 @@ static int plan_init(struct plan *p, size_t m, const size_t *sizes, size_t nsize
 		size_t *hit = bsearch(&sizes[j], p->uniq, p->nuniq, sizeof *p->uniq, cmp_size);
 		p->slot[j] = (size_t)(hit - p->uniq);
 	}
-	best = p->nuniq;
-	cost = p->uniq[p->nuniq - 1];
-	for (j = 0; allow_backward && j < p->nuniq; j++) {
-		fwd = j ? p->uniq[j - 1] : 0;
-		if (fwd + (m - p->uniq[j]) < cost) {
-			cost = fwd + (m - p->uniq[j]);
-			best = j;
-		}
-	}
+	/* Forward when 2n <= M, backward otherwise: a rule of n and M alone, so
+	 * a portfolio's figure does not depend on the other sizes asked for. */
+	best = 0;
+	while (best < p->nuniq && (!allow_backward || 2 * p->uniq[best] <= m))
+		best++;
 	p->split = best;
 	fwd = best ? p->uniq[best - 1] : 0;
-	/* The backward sweep needs the largest backward size below M drawn. */
+	/* A backward size below M needs the whole ordering drawn: the members
+	 * past it are then the same, in the same order, whatever the sizes. */
 	back_top = 0;
 	for (j = best; j < p->nuniq; j++)
 		if (p->uniq[j] < m)
-			back_top = p->uniq[j];
+			back_top = m - 1;
 	p->shuffle = fwd > back_top ? fwd : back_top;
 	return HC_OK;
 }
@@ -167,6 +165,8 @@ struct workspace {
 	double *acc;     /* running series, T doubles */
 	double *out_v;   /* nuniq variances of the current path */
 	double *out_r;   /* nuniq returns of the current path */
+	uint32_t *ridx;  /* the ordering reversed, for the backward sweep */
+	double *scratch; /* T doubles: a size's series between group boundaries */
 };
 
 static void workspace_release(struct workspace *w)
@@ -176,6 +176,8 @@ static void workspace_release(struct workspace *w)
 	hc_free(w->acc);
 	hc_free(w->out_v);
 	hc_free(w->out_r);
+	hc_free(w->ridx);
+	hc_free(w->scratch);
 }
 
 static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
@@ -186,7 +188,9 @@ static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
 	w->acc = hc_malloc((t ? t : 1) * sizeof *w->acc);
 	w->out_v = hc_malloc(nuniq * sizeof *w->out_v);
 	w->out_r = hc_malloc(nuniq * sizeof *w->out_r);
-	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r) {
+	w->ridx = hc_malloc(m * sizeof *w->ridx);
+	w->scratch = hc_malloc((t ? t : 1) * sizeof *w->scratch);
+	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r || !w->ridx || !w->scratch) {
 		workspace_release(w);
 		return -1;
 	}
@@ -242,8 +246,8 @@ static void shuffle(struct workspace *w, size_t m, size_t steps, unsigned long s
  * over k is contiguous and vectorises (an AVX2 clone where the CPU has it,
  * SSE2 otherwise).  Each element is the same expression in the same order
  * in both clones (elementwise, no reassociation; -std=c11 turns FMA
- * contraction off), and the grouping depends only on the path, so the
- * result does not depend on the thread count or on the clone.
+ * contraction off), and the callers fix the grouping by the ordering
+ * alone, so the result depends neither on the thread count nor on the clone.
  */
 __attribute__((target_clones("avx2", "default")))
 static void sweep(double *restrict acc, const double *restrict x, size_t t,
@@ -327,53 +331,85 @@ static double compound(const double *acc, size_t t, double mean_sum, double n, d
 }
 
 static void record(const struct column_job *job, struct workspace *w, size_t slot,
-		   double mean_sum)
+		   const double *series, double mean_sum)
 {
 	double n = (double)job->plan->uniq[slot];
 
-	w->out_v[slot] = norm2(w->acc, job->t) / (n * n * (double)(job->t - 1));
+	w->out_v[slot] = norm2(series, job->t) / (n * n * (double)(job->t - 1));
 	if (job->want_returns)
-		w->out_r[slot] = compound(w->acc, job->t, mean_sum, n, job->periods_per_year);
+		w->out_r[slot] = compound(series, job->t, mean_sum, n, job->periods_per_year);
 }
 
-static double mean_of(const struct column_job *job, const uint32_t *idx, size_t from, size_t to)
+/*
+ * The sum of the first n columns of order[] in a canonical grouping: acc
+ * holds the sum of the first `*at` (a multiple of 4) in groups of four, is
+ * advanced to the last multiple of 4 not above n, and the remaining n mod 4
+ * columns are added one by one to a copy.  The bits of a size's series
+ * thus depend on the ordering and n only, not on the other sizes.  Returns
+ * the series (acc or w->scratch).
+ */
+static const double *prefix_series(const struct column_job *job, struct workspace *w,
+				   const uint32_t *order, size_t *at, size_t n)
 {
-	double s = 0;
+	size_t q = n & ~(size_t)3, t = job->t;
+
+	sweep(w->acc, job->xc, t, order, *at, q, 0);
+	*at = q;
+	if (q == n)
+		return w->acc;
+	memcpy(w->scratch, w->acc, t * sizeof *w->scratch);
+	sweep(w->scratch, job->xc, t, order, q, n, 0);
+	return w->scratch;
+}
+
+/* Sum of job->mean over order[from..to-1], one by one in order (a
+ * sequential sum is the same whatever the breakpoints). */
+static double mean_run(const struct column_job *job, const uint32_t *order, size_t from,
+		       size_t to, double s)
+{
 	size_t j;
 
 	for (j = from; j < to; j++)
-		s += job->mean[idx[j]];
+		s += job->mean[order[j]];
 	return s;
 }
 
-/* One path of the column route into w->out_v / w->out_r (nuniq slots). */
+/* One path of the column route into w->out_v / w->out_r (nuniq slots).
+ * Sizes with 2n <= M: the prefix sum of the ordering.  Larger sizes: the
+ * total series minus the sum of the last M - n members, which touches
+ * fewer columns (the first n members are the complement of the last M-n). */
 static void column_path(const struct column_job *job, struct workspace *w, unsigned long seed)
 {
 	const struct plan *p = job->plan;
-	size_t j, at, t = job->t, m = job->m;
-	double msum = 0;
+	const double *series;
+	size_t j, k, at = 0, ms = 0, t = job->t, m = job->m, n;
+	double msum = 0, *d;
 
 	shuffle(w, m, p->shuffle, seed);
 	memset(w->acc, 0, t * sizeof *w->acc);
-	for (j = 0, at = 0; j < p->split; j++) {
-		sweep(w->acc, job->xc, t, w->idx, at, p->uniq[j], 0);
+	for (j = 0; j < p->split; j++) {
+		n = p->uniq[j];
+		series = prefix_series(job, w, w->idx, &at, n);
 		if (job->want_returns)
-			msum += mean_of(job, w->idx, at, p->uniq[j]);
-		at = p->uniq[j];
-		record(job, w, j, msum);
+			msum = mean_run(job, w->idx, ms, n, msum), ms = n;
+		record(job, w, j, series, msum);
 	}
 	if (p->split == p->nuniq)
 		return;
-	/* Backward: from the total series, remove the members past each size. */
-	memcpy(w->acc, job->total, t * sizeof *w->acc);
-	msum = job->total_mean;
-	at = m;
+	for (k = 0; k < m; k++)
+		w->ridx[k] = w->idx[m - 1 - k];
+	memset(w->acc, 0, t * sizeof *w->acc);
+	at = ms = 0;
+	msum = 0;
 	for (j = p->nuniq; j-- > p->split;) {
-		sweep(w->acc, job->xc, t, w->idx, p->uniq[j], at, 1);
+		n = m - p->uniq[j]; /* members past the size */
+		series = prefix_series(job, w, w->ridx, &at, n);
+		d = w->scratch;
+		for (k = 0; k < t; k++)
+			d[k] = job->total[k] - series[k];
 		if (job->want_returns)
-			msum -= mean_of(job, w->idx, p->uniq[j], at);
-		at = p->uniq[j];
-		record(job, w, j, msum);
+			msum = mean_run(job, w->ridx, ms, n, msum), ms = n;
+		record(job, w, j, d, job->total_mean - msum);
 	}
 }
 

@@ -296,6 +296,15 @@ static void test_curve_parse_sizes(void **state)
 	expect_bad_sizes("30-5", 412, HC_EUSAGE, "bad size list: range '30-5' runs backwards");
 	expect_bad_sizes("99999999999999999999999", 0, HC_EUSAGE,
 			 "bad size list: '99999999999999999999999' is not a count");
+	/* A bound on the list, not on the sizes (an unbounded universe). */
+	expect_bad_sizes("1-3000000000", 0, HC_EUSAGE, "bad size list: '1-3000000000' names more than 1000000 sizes");
+	expect_bad_sizes("1-999999,5-6", 0, HC_EUSAGE, "bad size list: '5-6' names more than 1000000 sizes");
+	expect_bad_sizes("1-18446744073709551615", 0, HC_EUSAGE,
+			 "bad size list: '1-18446744073709551615' is not a count or a range of counts");
+	{
+		const size_t one_big[] = {3000000000UL};
+		expect_sizes("3000000000", 0, one_big, 1);
+	}
 	hc_alloc_fail_after(0);
 	expect_bad_sizes("1-5", 0, HC_ENOMEM, "out of memory for the size list");
 	hc_alloc_fail_after(-1);

@@ -146,6 +146,35 @@ static void test_sampler_threads_identical(void **state)
 	fixture_free(u);
 }
 
+/* A portfolio's figures do not depend on which other sizes are asked for:
+ * same seed, same path, same n, same bytes (variance and return). */
+static void test_sampler_sizes_do_not_change_bits(void **state)
+{
+	const size_t a[] = {7, 30, 41}, b[] = {60, 2, 7, 13, 30, 31, 41, 55};
+	const size_t K = 97;
+	struct universe *u = fixture_random_universe(60, 33, 404);
+	struct sampler_options opt;
+	struct sampler_result *ra, *rb;
+	struct hc_error err;
+	size_t k, j, jb[3] = {2, 4, 6};
+
+	assert_non_null(u);
+	options(&opt, K, 77, 2);
+	opt.want_returns = 1;
+	opt.periods_per_year = 12;
+	assert_int_equal(sampler_run(&ra, u, a, 3, &opt, &err), HC_OK);
+	assert_int_equal(sampler_run(&rb, u, b, 8, &opt, &err), HC_OK);
+	for (k = 0; k < K; k++)
+		for (j = 0; j < 3; j++) {
+			assert_memory_equal(&ra->variance[k * 3 + j], &rb->variance[k * 8 + jb[j]], sizeof(double));
+			assert_memory_equal(&ra->annual_return[k * 3 + j], &rb->annual_return[k * 8 + jb[j]],
+					    sizeof(double));
+		}
+	sampler_result_free(ra);
+	sampler_result_free(rb);
+	fixture_free(u);
+}
+
 /* Every sampled 1- and 2-holding portfolio is one of the C(M,1), C(M,2)
  * possible ones, whose variances are computed here from the textbook
  * covariance; the compound return of a 1-holding portfolio is that
@@ -442,6 +471,7 @@ int main(void)
 		cmocka_unit_test(test_sampler_splitmix64_reference),
 		cmocka_unit_test(test_sampler_mean_within_4_se),
 		cmocka_unit_test(test_sampler_threads_identical),
+		cmocka_unit_test(test_sampler_sizes_do_not_change_bits),
 		cmocka_unit_test(test_sampler_portfolios_are_subsets),
 		cmocka_unit_test(test_sampler_matrix_route_matches_columns),
 		cmocka_unit_test(test_sampler_tiny_universes),

@@ -76,11 +76,20 @@ int curve_exact(struct curve **out, const struct moments *mo,
 
 void curve_free(struct curve *c);
 
+/* Most sizes one size list may name, ranges expanded and duplicates
+ * counted: bounds the work and memory of a list such as "1-3000000000"
+ * for an unbounded universe. */
+#define CURVE_MAX_SIZES 1000000
+
 /*
  * Parse a size list "1,2,5-30,50,100" (ranges inclusive, ascending order
  * not required; duplicates removed; result sorted) into a new array.
- * Every size must be 1 <= n <= max (max = 0: no upper bound).
- * HC_EUSAGE with a message naming the offending item on error.
+ * Every size must be 1 <= n <= max (max = 0: no upper bound), and the list
+ * may name at most CURVE_MAX_SIZES sizes.
+ * HC_EUSAGE with a message naming the offending item on error
+ * ("bad size list: 'x' is not a count", "size 900 is larger than the 412
+ * securities kept", "bad size list: '1-3000000000' names more than
+ * 1000000 sizes"); HC_ENOMEM.
  */
 int curve_parse_sizes(const char *text, size_t max, size_t **sizes,
 		      size_t *nsizes, struct hc_error *err);
