@@ -70,6 +70,12 @@ for i, name in enumerate(["QX01", "QX02", "QX03", "QX04", "QX05"]):
 sys.exit(0 if ok else 1)
 PY
 
+# describe's CSV is its first table, the securities kept (report.h contract).
+"$HC" describe "$T/u.csv" --format csv >"$T/d.csv" || fail "describe csv exit $?"
+[ "$(head -n1 "$T/d.csv")" = "id,periods,sd" ] || fail "describe csv header: $(head -n1 "$T/d.csv")"
+[ "$(wc -l <"$T/d.csv")" = 6 ] || fail "describe csv rows: $(wc -l <"$T/d.csv")"
+"$HC" describe "$T/u.csv" | grep -q '^annualisation: *annualised: variances times 12' || fail "describe text lacks the scale"
+
 # curve: exact columns against numpy, CSV header exactly the contract.
 "$HC" curve "$T/u.csv" --sizes 1,2,3,5 --paths 4000 --seed 2385 --format csv --quiet >"$T/c.csv" || fail "curve exit $?"
 head -n1 "$T/c.csv" | grep -q '^n,expected_variance,expected_sd,variance_sd,expected_tracking_error,diversifiable_share,sampled_mean_variance,sampled_variance_se,sampled_mean_sd,sd_p05,sd_p50,sd_p95,z_score' \
