@@ -124,6 +124,18 @@ cmp -s "$T/t1.csv" "$T/t3.csv" || fail "HOLDCOUNT_THREADS=2 differs"
 	|| fail "curve json"
 "$HC" curve "$T/u.csv" --sizes 2 --paths 0 | grep -q '^annualisation: *annualised: variances times 12' || fail "curve text lacks the scale"
 
+# Option values at their limits: the largest seed, a percent and a decimal
+# for the same fraction.
+"$HC" curve "$T/u.csv" --sizes 2 --paths 50 --seed 18446744073709551615 -q --format json >"$T/s.json" || fail "largest seed exit $?"
+"$PY" -c 'import json,sys; sys.exit(0 if json.load(open(sys.argv[1]))["seed"]=="18446744073709551615" else 1)' "$T/s.json" || fail "largest seed not echoed"
+expect 2 "holdcount curve: option '--seed' expects a whole number from 0 to 18446744073709551615, found '18446744073709551616'" -- curve "$T/u.csv" --seed 18446744073709551616
+expect 2 "holdcount curve: option '--paths' expects a whole number" -- curve "$T/u.csv" --paths 99999999999999999999999
+"$HC" describe "$T/u.csv" --missing pairwise --min-coverage 80% --format csv >"$T/c1" || fail "--min-coverage 80% exit $?"
+"$HC" describe "$T/u.csv" --missing pairwise --min-coverage 0.8 --format csv >"$T/c2" || fail "--min-coverage 0.8 exit $?"
+cmp -s "$T/c1" "$T/c2" || fail "--min-coverage 80% and 0.8 differ"
+expect 2 "holdcount describe: --min-coverage must be above 0 and at most 1" -- describe "$T/u.csv" --min-coverage 120%
+expect 2 "holdcount describe: --periods-per-year must be positive" -- describe "$T/u.csv" --periods-per-year -12
+
 # Bad input (issue 2).  Each file differs from u.csv in one way.
 mk() { printf '%b' "$2" >"$T/$1"; }
 mk bad_cell.csv  'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-02-28,0.03,abc\n2021-03-31,0.02,0.01\n'
