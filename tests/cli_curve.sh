@@ -72,8 +72,9 @@ PY
 
 # describe's CSV is its first table, the securities kept (report.h contract).
 "$HC" describe "$T/u.csv" --format csv >"$T/d.csv" || fail "describe csv exit $?"
-[ "$(head -n1 "$T/d.csv")" = "id,periods,sd" ] || fail "describe csv header: $(head -n1 "$T/d.csv")"
+[ "$(head -n1 "$T/d.csv")" = "id,periods,sd,periods_per_year" ] || fail "describe csv header: $(head -n1 "$T/d.csv")"
 [ "$(wc -l <"$T/d.csv")" = 6 ] || fail "describe csv rows: $(wc -l <"$T/d.csv")"
+[ "$(sed -n 2p "$T/d.csv" | cut -d, -f1,2,4)" = "QX01,8,12" ] || fail "describe csv first row: $(sed -n 2p "$T/d.csv")"
 "$HC" describe "$T/u.csv" | grep -q '^annualisation: *annualised: variances times 12' || fail "describe text lacks the scale"
 
 # curve: exact columns against numpy, CSV header exactly the contract.
