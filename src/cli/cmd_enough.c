@@ -225,67 +225,6 @@ static int data_summary_given(const struct cli_args *a)
 }
 
 
-/* ---- loading and scale ----------------------------------------------------- */
-
-/* Until the shared loading helpers reach this branch, the universe group's
- * options are mapped here (the same mapping as the other commands use). */
-static int enough_load(const struct cli_universe *cu, const struct cli_args *a, const char *path,
-		       struct universe **out)
-{
-	struct universe_options uo;
-	struct hc_error err;
-	int rc;
-
-	*out = NULL;
-	universe_options_init(&uo);
-	if (cu->log_returns && !cu->prices)
-		return cli_usage_error("enough", "--log-returns needs --prices (log returns are computed from prices)");
-	uo.values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
-	uo.layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
-	uo.percent = cu->percent;
-	uo.missing = cu->missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE : UNIVERSE_MISSING_COMPLETE;
-	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
-		return cli_usage_error("enough", "--min-coverage must be above 0 and at most 1 (or 100%%), found %g",
-				       cu->min_coverage);
-	uo.min_coverage = cu->min_coverage;
-	if (cli_given(a, "periods-per-year") && !(cu->periods_per_year > 0.0))
-		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", cu->periods_per_year);
-	uo.periods_per_year = cli_given(a, "periods-per-year") ? cu->periods_per_year : 0.0;
-	if (cu->delimiter) {
-		if (strcmp(cu->delimiter, ",") && strcmp(cu->delimiter, ";"))
-			return cli_usage_error("enough", "--delimiter must be ',' or ';', found '%s'", cu->delimiter);
-		uo.delimiter = cu->delimiter[0];
-	}
-	uo.date_column = cu->date_column;
-	uo.id_column = cu->id_column;
-	uo.value_column = cu->value_column;
-	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, &uo.max_bytes))
-		return cli_usage_error("enough", "--max-memory %zu MiB does not fit in this machine's address space",
-				       cu->max_memory_mib);
-	hc_error_clear(&err);
-	rc = universe_load(out, path, &uo, &err);
-	return rc ? cli_fail("enough", &err) : HC_OK;
-}
-
-/* The fields that state the scale. */
-static int enough_scale(struct report *r, double periods_per_year, int annualised)
-{
-	char text[200];
-	int rc;
-
-	if (annualised) {
-		rc = report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
-		snprintf(text, sizeof text,
-			 "annualised: variances times %g, standard deviations times sqrt(%g); rule thresholds are yearly",
-			 periods_per_year, periods_per_year);
-	} else {
-		rc = report_add_none(r, "periods_per_year", "periods per year");
-		snprintf(text, sizeof text,
-			 "not annualised: figures and rule thresholds are on the scale of the inputs");
-	}
-	return rc ? rc : report_add_text(r, "annualisation", "annualisation", text);
-}
-
 /* ---- the report ----------------------------------------------------------- */
 
 struct enough_run {
@@ -321,7 +260,7 @@ static int add_fields(struct report *r, const struct enough_run *e)
 		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
 	else
 		bad |= report_add_text(r, "securities", "securities", "unbounded");
-	bad |= enough_scale(r, p, e->annualised);
+	bad |= cli_add_scale(r, p, e->annualised);
 	bad |= report_add_real(r, "average_variance", "average variance", e->vbar * p, REPORT_STYLE_SCI);
 	bad |= report_add_real(r, "average_covariance", "average covariance", e->cbar * p, REPORT_STYLE_SCI);
 	bad |= report_add_real(r, "floor_sd", "floor sd", floor_var > 0 ? sqrt(floor_var) : NAN, sd_style);
@@ -360,6 +299,9 @@ static int add_notes(struct report *r, const struct enough_run *e)
 		bad |= report_add_note(r, text);
 	} else if (e->no_interval)
 		bad |= report_add_note(r, e->no_interval);
+	if (!e->annualised)
+		bad |= report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
+				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
 	bad |= report_add_cautions(r);
 	return bad ? HC_ENOMEM : HC_OK;
 }
@@ -503,7 +445,7 @@ static int run_data(const struct enough_opts *o, const struct cli_args *a,
 		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
 	if (o->smp.paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error("enough", "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
-	rc = enough_load(&o->uni, a, path, up);
+	rc = cli_load_universe("enough", &o->uni, path, up);
 	if (rc)
 		return rc;
 	u = *up;
