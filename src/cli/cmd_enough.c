@@ -13,6 +13,7 @@
 
 #include "cli.h"
 #include "holdcount/bootstrap.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/rules.h"
@@ -156,12 +157,14 @@ static int config_from(const struct enough_opts *o, const struct cli_args *a,
 
 	rules_config_init(cfg);
 	hc_error_clear(&err);
-	if (!have_data)
+	if (!have_data || o->uni.covariance)
 		cfg->selected = RULES_EXACT_MASK;
 	if (o->rules && rules_parse_list(o->rules, &cfg->selected, &err))
 		return cli_fail("enough", &err);
 	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error("enough", "the band and shortfall rules need a universe file, not summary statistics");
+	if (o->uni.covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
+		return cli_usage_error("enough", "--bootstrap needs return data: a covariance matrix has no periods to resample");
 	if (cli_given(a, "near-floor"))
 		cfg->near_floor_x = o->near_floor;
 	if (o->marginal && parse_step(o->marginal, &cfg->marginal_eps))
@@ -428,6 +431,44 @@ static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
+/* A covariance matrix (--covariance): the exact rules from its averages;
+ * no periods, so no sampled rules and no interval. */
+static int run_matrix(const struct enough_opts *o, const struct cli_args *a, const char *path,
+		      const struct rules_config *cfg, struct enough_run *e,
+		      struct rule_result *res, size_t *nres)
+{
+	struct covmatrix *cm = NULL;
+	struct rules_input in;
+	struct moments mo;
+	struct hc_error err;
+	int rc;
+
+	hc_error_clear(&err);
+	if (cfg->selected & RULES_SAMPLED_MASK)
+		return cli_usage_error("enough", "the band and shortfall rules need return data, not a covariance matrix");
+	e->annualised = cli_given(a, "periods-per-year");
+	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
+	if (!(e->ppy > 0))
+		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
+	rc = covmatrix_load(&cm, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+	if (rc == HC_OK)
+		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+	covmatrix_free(cm);
+	if (rc)
+		return cli_fail("enough", &err);
+	e->vbar = mo.average_variance;
+	e->cbar = mo.average_covariance;
+	e->m = mo.m;
+	e->no_interval = "no interval: a covariance matrix has no periods to resample";
+	memset(&in, 0, sizeof in);
+	in.vbar = e->vbar;
+	in.cbar = e->cbar;
+	in.m = e->m;
+	in.periods_per_year = e->ppy;
+	rc = rules_evaluate(cfg, &in, res, nres, &err);
+	return rc ? cli_fail("enough", &err) : HC_OK;
+}
+
 static int run_data(const struct enough_opts *o, const struct cli_args *a,
 		    const char *path, const struct rules_config *cfg,
 		    struct universe **up, struct enough_run *e,
@@ -439,8 +480,6 @@ static int run_data(const struct enough_opts *o, const struct cli_args *a,
 	struct hc_error err;
 	int rc;
 
-	if (o->uni.covariance)
-		return cli_usage_error("enough", "--covariance is not supported by enough yet: give the return history");
 	if (o->smp.sizes)
 		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
 	if (o->smp.paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
@@ -519,7 +558,9 @@ int cmd_enough(int argc, char **argv)
 	rc = config_from(&o, &a, have_data, &cfg);
 	if (rc)
 		goto cleanup;
-	if (have_data)
+	if (have_data && o.uni.covariance)
+		rc = run_matrix(&o, &a, a.positional[0], &cfg, &e, res, &nres);
+	else if (have_data)
 		rc = run_data(&o, &a, a.positional[0], &cfg, &u, &e, res, &nres);
 	else
 		rc = run_summary(&o, &a, &cfg, &e, res, &nres);
