@@ -59,7 +59,7 @@ enum rules_id {
 
 /* Sampled rules sample sizes 1..K for K = RULES_SAMPLED_FIRST_K, then 2K,
  * 4K, ... up to M, stopping once every selected sampled rule is met. */
-#define RULES_SAMPLED_FIRST_K 64
+#define RULES_SAMPLED_FIRST_K 256
 #define RULES_SAMPLED_GROWTH 2
 
 #define RULES_TEXT_MAX 160
