@@ -159,13 +159,10 @@ int rules_shortfall(const struct rules_config *cfg,
 /*
  * Band and shortfall (those selected in cfg) by sampling u with so: sizes
  * 1..K, K growing as RULES_SAMPLED_FIRST_K x RULES_SAMPLED_GROWTH^j up to
- * M, until every selected sampled rule is met.  A path's first n members do
- * not depend on K (a partial Fisher-Yates shuffle makes the same first
- * draws), so the portfolios are those a run over 1..M would draw, at a
- * fraction of the cost when counts are small.  The sampler may sum a size's
- * columns in a different grouping for a different grid, so figures can
- * differ from a full-grid run in the last digits (and a count only in an
- * exact tie at the threshold).
+ * M, until every selected sampled rule is met.  Each stage is a valid
+ * sample of random portfolios; the sampler builds sizes by a route that
+ * depends on the set of sizes asked for, so a staged run and a full-grid run
+ * may draw different portfolios and agree within sampling noise only.
  * cbar per period (the band's floor); so->want_returns is set as needed.
  * *largest (may be NULL) gets the last K sampled.  res holds room for 2;
  * *nres gets how many were filled (band first).
