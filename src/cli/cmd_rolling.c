@@ -1,24 +1,238 @@
 /*
- * cmd_rolling.c - placeholder so the tree links; its owner replaces this file.
+ * cmd_rolling.c - `holdcount rolling UNIVERSE --window W --step S`: the
+ * averages and every exact rule's count, window by window (rolling.h).
  */
+#include <math.h>
+#include <stddef.h>
 #include <stdio.h>
+#include <string.h>
 
 #include "cli.h"
+#include "holdcount/rolling.h"
+#include "holdcount/universe.h"
+
+struct rolling_opts {
+	struct cli_universe uni;
+	struct cli_output out;
+	size_t window, step, refresh;
+	const char *rules;
+	double near_floor, marginal, premium, holding_cost, te_budget;
+	size_t bootstrap, block_length, threads;
+	int bootstrap_kind;
+	uint64_t seed;
+};
+
+static const char *const kind_words[] = { "block", "stationary", NULL };
+
+#define OWN(f) offsetof(struct rolling_opts, f)
+static const struct cli_option rolling_own[] = {
+	{ "window", 'w', CLI_COUNT, OWN(window), "W", "periods in each window", NULL, "60" },
+	{ "step", 0, CLI_COUNT, OWN(step), "S", "periods between the starts of two windows", NULL, "12" },
+	{ "rules", 0, CLI_STRING, OWN(rules), "LIST",
+	  "exact rules to evaluate: near-floor, marginal, cost-benefit, tracking-error, or exact",
+	  NULL, "exact" },
+	{ "near-floor", 0, CLI_FRACTION, OWN(near_floor), "X",
+	  "near-floor rule: sigma within X of the floor sigma, as 0.1 or 10%", NULL, "10%" },
+	{ "marginal", 0, CLI_FRACTION, OWN(marginal), "E",
+	  "marginal rule: one more holding lowers annual sigma by less than E, as 0.001 or 0.1%",
+	  NULL, "0.1%" },
+	{ "premium", 0, CLI_FRACTION, OWN(premium), "P",
+	  "cost-benefit rule: the universe portfolio's premium a year", NULL, "5%" },
+	{ "holding-cost", 0, CLI_FRACTION, OWN(holding_cost), "C",
+	  "cost-benefit rule: yearly cost of one more holding", NULL, "0.05%" },
+	{ "te-budget", 0, CLI_FRACTION, OWN(te_budget), "B",
+	  "tracking-error rule: annual tracking error budget", NULL, "2%" },
+	{ "bootstrap", 0, CLI_COUNT, OWN(bootstrap), "B",
+	  "bootstrap replicates per window for each count's 5-95% interval; 0 for none", NULL, "0" },
+	{ "bootstrap-kind", 0, CLI_CHOICE, OWN(bootstrap_kind), NULL,
+	  "moving-block (Kuensch, 1989) or stationary (Politis & Romano, 1994) bootstrap",
+	  kind_words, "block" },
+	{ "block-length", 0, CLI_COUNT, OWN(block_length), "L",
+	  "bootstrap block length in periods", NULL, "round(W^(1/3))" },
+	{ "seed", 0, CLI_U64, OWN(seed), "S",
+	  "bootstrap seed; every window uses it, and the same seed gives the same output", NULL, "1" },
+	{ "threads", 0, CLI_COUNT, OWN(threads), "N",
+	  "threads for the bootstrap; the output does not depend on it", NULL, "every core" },
+	{ "refresh", 0, CLI_COUNT, OWN(refresh), "R",
+	  "recompute the running sums from scratch at least every R windows", NULL, "64" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+static const struct cli_group rolling_group = { "rolling options", rolling_own };
 
 static const struct cli_group_use rolling_groups[] = {
-	{ &cli_group_output, 0 },
+	{ &rolling_group, 0 },
+	{ &cli_group_universe, offsetof(struct rolling_opts, uni) },
+	{ &cli_group_output, offsetof(struct rolling_opts, out) },
 	{ NULL, 0 }
 };
 
 const struct cli_command cli_command_rolling = {
-	"rolling", cmd_rolling, "how the averages and the count needed move through rolling windows", "UNIVERSE",
-	"Not built yet.", 0, 64, rolling_groups
+	"rolling", cmd_rolling,
+	"how the averages and the count needed move through rolling windows",
+	"UNIVERSE",
+	"Cuts the return history into windows of W periods, one starting every S periods, and "
+	"for each window gives its first and last dates, the securities kept (complete in the "
+	"window, or those meeting --min-coverage with --missing pairwise), the average variance, "
+	"covariance and correlation, the floor sigma, and the count every exact rule recommends "
+	"(with --bootstrap, its 5%, 50% and 95% percentiles over resampled periods). Securities "
+	"listed late or delisted enter and leave the windows as they did. Figures are annualised "
+	"by the periods per year.",
+	1, 1, rolling_groups
 };
+
+static int load(const struct rolling_opts *o, const char *path, struct universe **u)
+{
+	struct universe_options uo;
+	struct hc_error err;
+	int rc;
+
+	*u = NULL;
+	if (o->uni.covariance)
+		return cli_usage_error("rolling", "--covariance: a covariance matrix has no periods to "
+				       "roll over; give a return history");
+	if (o->uni.log_returns && !o->uni.prices)
+		return cli_usage_error("rolling", "--log-returns needs --prices");
+	if (o->uni.delimiter && strcmp(o->uni.delimiter, ",") && strcmp(o->uni.delimiter, ";"))
+		return cli_usage_error("rolling", "--delimiter must be ',' or ';', found '%s'",
+				       o->uni.delimiter);
+	if (!(o->uni.min_coverage > 0 && o->uni.min_coverage <= 1))
+		return cli_usage_error("rolling", "--min-coverage must be above 0 and at most 1, found %g",
+				       o->uni.min_coverage);
+	universe_options_init(&uo);
+	uo.values = !o->uni.prices ? UNIVERSE_RETURNS
+		  : o->uni.log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
+	uo.layout = o->uni.layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
+	uo.percent = o->uni.percent;
+	/* Every security as read: each window applies the policy itself. */
+	uo.missing = UNIVERSE_MISSING_KEEP;
+	uo.min_coverage = o->uni.min_coverage;
+	uo.periods_per_year = o->uni.periods_per_year > 0 ? o->uni.periods_per_year : 0;
+	uo.delimiter = o->uni.delimiter ? o->uni.delimiter[0] : 0;
+	uo.date_column = o->uni.date_column;
+	uo.id_column = o->uni.id_column;
+	uo.value_column = o->uni.value_column;
+	uo.max_bytes = o->uni.max_memory_mib << 20;
+	hc_error_clear(&err);
+	rc = universe_load(u, path, &uo, &err);
+	return rc ? cli_fail("rolling", &err) : HC_OK;
+}
+
+static int options(const struct rolling_opts *o, const struct cli_args *a,
+		   struct rolling_options *ro)
+{
+	struct hc_error err;
+	unsigned mask;
+
+	rolling_options_init(ro);
+	hc_error_clear(&err);
+	ro->window = o->window;
+	ro->step = o->step;
+	ro->refresh = o->refresh;
+	ro->missing = o->uni.missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE
+							     : UNIVERSE_MISSING_COMPLETE;
+	ro->min_coverage = o->uni.min_coverage;
+	if (o->rules) {
+		if (rules_parse_list(o->rules, &mask, &err))
+			return cli_fail("rolling", &err);
+		if (mask & ~RULES_EXACT_MASK)
+			return cli_usage_error("rolling", "--rules: rolling windows evaluate the exact rules "
+					       "only (near-floor, marginal, cost-benefit, tracking-error)");
+		ro->rules.selected = mask;
+	} else {
+		ro->rules.selected = RULES_EXACT_MASK;
+	}
+	ro->rules.near_floor_x = o->near_floor;
+	ro->rules.marginal_eps = o->marginal;
+	ro->rules.premium = o->premium;
+	ro->rules.holding_cost = o->holding_cost;
+	ro->rules.cost_defaults = !cli_given(a, "premium") && !cli_given(a, "holding-cost");
+	ro->rules.te_budget = o->te_budget;
+	if (rules_config_check(&ro->rules, &err))
+		return cli_fail("rolling", &err);
+	ro->replicates = o->bootstrap;
+	ro->boot.kind = o->bootstrap_kind;
+	ro->boot.block_length = o->block_length;
+	ro->boot.seed = o->seed;
+	ro->boot.threads = (int)o->threads;
+	return HC_OK;
+}
+
+/* The rules' parameters and what the windows mean, beside the table. */
+static int add_context(struct report *r, const struct rolling_result *res)
+{
+	char key[64], title[96];
+	size_t j, c;
+	int rc = 0;
+
+	for (j = 0; j < res->nwindows; j++)
+		if (res->windows[j].status == HC_OK)
+			break;
+	for (c = 0; j < res->nwindows && c < res->windows[j].nrules; c++) {
+		const struct rule_result *rr = &res->windows[j].rules[c];
+		snprintf(key, sizeof key, "parameters_%s", rr->name);
+		for (char *p = key; *p; p++)
+			if (*p == '-')
+				*p = '_';
+		snprintf(title, sizeof title, "%s parameters", rr->name);
+		rc |= report_add_text(r, key, title, rr->parameters);
+	}
+	rc |= report_add_note(r, "each window's figures come from that window's periods alone; "
+			      "averages drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, "
+			      "Journal of Finance 56(1)), so a count set once is worth revisiting");
+	return rc;
+}
 
 int cmd_rolling(int argc, char **argv)
 {
-	(void)argc;
-	(void)argv;
-	fprintf(stderr, "holdcount rolling: not built yet\n");
-	return 2;
+	struct rolling_opts o;
+	struct rolling_options ro;
+	struct rolling_result *res = NULL;
+	struct universe *u = NULL;
+	struct report *r = NULL;
+	struct cli_progress prog;
+	struct cli_args a;
+	struct hc_error err;
+	int rc;
+
+	memset(&o, 0, sizeof o);
+	cli_universe_init(&o.uni);
+	cli_output_init(&o.out);
+	o.window = 60;
+	o.step = 12;
+	o.refresh = ROLLING_DEFAULT_REFRESH;
+	o.near_floor = RULES_DEFAULT_NEAR_FLOOR_X;
+	o.marginal = RULES_DEFAULT_MARGINAL_EPS;
+	o.premium = RULES_DEFAULT_PREMIUM;
+	o.holding_cost = RULES_DEFAULT_HOLDING_COST;
+	o.te_budget = RULES_DEFAULT_TE_BUDGET;
+	o.seed = 1;
+	rc = cli_parse(&cli_command_rolling, argc, argv, &o, &a);
+	if (rc != HC_OK)
+		return cli_parse_status(rc);
+	hc_error_clear(&err);
+	if ((rc = options(&o, &a, &ro)) || (rc = load(&o, a.positional[0], &u)))
+		goto cleanup;
+	cli_progress_init(&prog, "windows", "windows", o.out.quiet);
+	ro.progress = cli_progress_update;
+	ro.progress_ctx = &prog;
+	rc = rolling_run(&res, u, &ro, &err);
+	cli_progress_finish(&prog);
+	if (rc) {
+		rc = cli_fail("rolling", &err);
+		goto cleanup;
+	}
+	r = report_alloc();
+	if (!r || rolling_report(r, res, &err) || add_context(r, res) || report_add_cautions(r)) {
+		if (!err.code)
+			hc_error(&err, HC_ENOMEM, "out of memory for the report");
+		rc = cli_fail("rolling", &err);
+		goto cleanup;
+	}
+	rc = cli_write_report("rolling", &o.out, r);
+cleanup:
+	report_free(r);
+	rolling_result_free(res);
+	universe_free(u);
+	cli_args_release(&a);
+	return rc;
 }

@@ -1,0 +1,117 @@
+/*
+ * rolling.h - the averages and the count needed, window by window.
+ *
+ * A universe loaded with UNIVERSE_MISSING_KEEP is cut into windows of W
+ * consecutive periods starting every `step` periods (the last window ends
+ * at or before the last period; a shorter tail is not used).  In each
+ * window the missing-data policy picks the securities (complete in the
+ * window by default, so late listings and delistings enter and leave as
+ * they did; constant ones are dropped as universe_window does), and the
+ * window's v-bar, c-bar and average correlation feed every selected exact
+ * rule (rules.h).  Why it matters: Campbell, Lettau, Malkiel & Xu (2001,
+ * Journal of Finance 56(1)) found security-specific volatility rising and
+ * correlations falling over decades, so a count set once goes stale.
+ *
+ * Cost (complete-data policy): where the kept set does not change between
+ * windows, v-bar and c-bar slide in O(M * step) per window from running
+ * sums of each security's shifted returns and squares and of the row-sum
+ * series; the average correlation needs each window's own means and
+ * standard deviations, so it costs one O(M * W) pass; every `refresh`
+ * windows, and whenever the kept set changes, the window is recomputed
+ * from scratch through universe_window and moments_from_universe (the
+ * figures `describe` prints).  The pairwise policy recomputes every window
+ * (O(M^2 W) each).
+ *
+ * Units: the result holds per-period v-bar and c-bar; rolling_report
+ * annualises them by the universe's periods per year, as every command does.
+ */
+#ifndef HOLDCOUNT_ROLLING_H
+#define HOLDCOUNT_ROLLING_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "holdcount/bootstrap.h"
+#include "holdcount/error.h"
+#include "holdcount/report.h"
+#include "holdcount/rules.h"
+#include "holdcount/universe.h"
+
+/* Recompute from scratch every this many windows (defaults named once; see
+ * rolling.c for why drift stays far below this bound's reach). */
+#define ROLLING_DEFAULT_REFRESH 64
+/* refresh value that never recomputes while the kept set holds (tests). */
+#define ROLLING_REFRESH_NEVER ((size_t)-1)
+
+#define ROLLING_NOTE_MAX 200
+
+/* Progress: done of total windows; nonzero stops (HC_EINTERRUPT). */
+typedef int (*rolling_progress_fn)(void *ctx, size_t done, size_t total);
+
+struct rolling_options {
+	size_t window;             /* W >= 2 periods */
+	size_t step;               /* >= 1 period */
+	int missing;               /* UNIVERSE_MISSING_COMPLETE or _PAIRWISE */
+	double min_coverage;       /* pairwise: fraction of the window (0, 1] */
+	size_t refresh;            /* 0 = ROLLING_DEFAULT_REFRESH */
+	int from_scratch;          /* 1: every window recomputed (reference, benchmarks) */
+	struct rules_config rules; /* only the selected exact rules are evaluated */
+	size_t replicates;         /* bootstrap replicates per window; 0 = none */
+	struct bootstrap_options boot; /* seed, kind, block length, threads (replicates ignored) */
+	rolling_progress_fn progress;
+	void *progress_ctx;
+};
+
+/* Window 60, step 12, complete data, default rules, no bootstrap. */
+void rolling_options_init(struct rolling_options *opt);
+
+struct rolling_window {
+	size_t first;              /* index of the first period */
+	int32_t start_date, end_date; /* days since 1970-01-01 */
+	size_t securities;         /* kept in the window */
+	size_t dropped;            /* of the universe's, not kept */
+	int status;                /* HC_OK, or why the window has no figures (note says) */
+	int recomputed;            /* figures from scratch (1) or slid (0) */
+	double average_variance;   /* per period */
+	double average_covariance; /* per period */
+	double average_correlation;
+	size_t nrules;
+	struct rule_result rules[RULES_COUNT]; /* the selected exact rules, in enum order */
+	char note[ROLLING_NOTE_MAX];
+};
+
+struct rolling_result {
+	size_t window, step;
+	double periods_per_year;
+	size_t replicates;         /* 0 = no intervals */
+	unsigned rules;            /* RULES_FLAG mask of the exact rules evaluated */
+	size_t nwindows;
+	struct rolling_window *windows;
+};
+
+/*
+ * Run the windows over u (any missing policy at load; UNIVERSE_MISSING_KEEP
+ * keeps late listings).  A window whose policy leaves fewer than two
+ * securities, or whose figures cannot be computed, keeps status and a note
+ * and no figures; the run goes on.  Errors: HC_EUSAGE (window < 2, window
+ * longer than the sample, step 0, bad policy or rules, bootstrap with the
+ * pairwise policy), HC_ENOMEM, HC_EINTERRUPT.  *out is NULL on error.
+ */
+int rolling_run(struct rolling_result **out, const struct universe *u,
+		const struct rolling_options *opt, struct hc_error *err);
+
+void rolling_result_free(struct rolling_result *r);
+
+/*
+ * Append the table "windows" to rep: window_start, window_end,
+ * securities, average_variance, average_covariance, average_correlation,
+ * floor_sd (annualised; floor_sd empty when c-bar <= 0), then count_<rule>
+ * per evaluated rule ('-' written '_': count_near_floor), with bootstrap
+ * count_<rule>_p05/_p50/_p95, then dropped and note.  Also the fields
+ * window, step, periods_per_year, window_count, windows_recomputed (the rest
+ * slid).  HC_ENOMEM.
+ */
+int rolling_report(struct report *rep, const struct rolling_result *r,
+		   struct hc_error *err);
+
+#endif

@@ -1,0 +1,568 @@
+/*
+ * rolling.c - the averages and the count needed through rolling windows
+ * (design.md section 7; why counts drift: Campbell, Lettau, Malkiel & Xu,
+ * 2001, "Have Individual Stocks Become More Volatile? An Empirical
+ * Exploration of Idiosyncratic Risk", Journal of Finance 56(1)).
+ *
+ * Which sums slide exactly.  With the kept set fixed, a window's
+ *   V     = sum_i var_i, from each security's running sum and sum of squares,
+ *   V + C = the variance of the row-sum series s_t = sum_i x_ti,
+ * and s_t does not depend on the window, so both move by adding the
+ * entering periods and removing the leaving ones: O(M * step) a window.
+ * The average correlation is (||sum_i (x_i - mu_i)/|x_i - mu_i| ||^2 - M)
+ * / (M(M-1)), the standardised row sums of the window's own means and
+ * norms; those change with every window, so nothing M-sized slides and it
+ * costs one O(M * W) pass over the window's columns (read in memory order).
+ *
+ * Drift.  The running sums are of returns shifted by each security's mean
+ * in the window where the sums were last built, so sum of squares minus
+ * (sum)^2/W does not cancel; every add/remove pair rounds at most a few
+ * units in the last place of a sum of W squares, so after R windows the
+ * error is of order R * 2^-52 relative, and the sums are rebuilt from
+ * scratch every ROLLING_DEFAULT_REFRESH (64) windows and whenever the kept
+ * set changes, so it stays near 1e-14.  A rebuilt window's figures are
+ * universe_window + moments_from_universe, exactly what `describe` and
+ * `enough` compute for that stretch of data.
+ */
+#include "holdcount/rolling.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+
+void rolling_options_init(struct rolling_options *opt)
+{
+	memset(opt, 0, sizeof *opt);
+	opt->window = 60;
+	opt->step = 12;
+	opt->missing = UNIVERSE_MISSING_COMPLETE;
+	opt->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
+	opt->refresh = ROLLING_DEFAULT_REFRESH;
+	rules_config_init(&opt->rules);
+	bootstrap_options_init(&opt->boot);
+}
+
+void rolling_result_free(struct rolling_result *r)
+{
+	if (!r)
+		return;
+	hc_free(r->windows);
+	hc_free(r);
+}
+
+/* ---- the sliding state ---- */
+
+struct slide {
+	const struct universe *u;
+	size_t w;
+	uint32_t *nanpre;       /* m*(t+1): NaNs among periods before k, security-major */
+	uint32_t *run;          /* m*t: equal values in a row ending at period k */
+	unsigned char *in;      /* m: kept in the current sums */
+	unsigned char *want;    /* m: kept in the window being examined */
+	size_t *kept, nkept;    /* the kept securities, in the universe's order */
+	double *shift, *sd, *sdd; /* m: shift, running sum and sum of squares of x - shift */
+	double *rs;             /* t: row sums of shifted returns over the kept set */
+	double ss, sss;         /* running sum and sum of squares of rs */
+	double *z;              /* w: standardised row sums */
+	int valid;              /* the sums describe the window starting at `at` */
+	size_t at;
+};
+
+static void slide_release(struct slide *s)
+{
+	hc_free(s->nanpre);
+	hc_free(s->run);
+	hc_free(s->in);
+	hc_free(s->want);
+	hc_free(s->kept);
+	hc_free(s->shift);
+	hc_free(s->sd);
+	hc_free(s->sdd);
+	hc_free(s->rs);
+	hc_free(s->z);
+}
+
+/* Prefix NaN counts and equal-value runs: whether a security is complete
+ * and not constant in any window is then O(1). */
+static int slide_init(struct slide *s, const struct universe *u, size_t w)
+{
+	size_t m = u->m, t = u->t, i, k, cells;
+
+	memset(s, 0, sizeof *s);
+	s->u = u;
+	s->w = w;
+	if (hc_mul_size(m, t + 1, &cells))
+		return -1;
+	s->nanpre = hc_malloc(cells * sizeof *s->nanpre);
+	s->run = hc_malloc(cells * sizeof *s->run);
+	s->in = hc_calloc(m, 1);
+	s->want = hc_calloc(m, 1);
+	s->kept = hc_malloc(m * sizeof *s->kept);
+	s->shift = hc_malloc(m * sizeof *s->shift);
+	s->sd = hc_malloc(m * sizeof *s->sd);
+	s->sdd = hc_malloc(m * sizeof *s->sdd);
+	s->rs = hc_malloc(t * sizeof *s->rs);
+	s->z = hc_malloc(w * sizeof *s->z);
+	if (!s->nanpre || !s->run || !s->in || !s->want || !s->kept || !s->shift ||
+	    !s->sd || !s->sdd || !s->rs || !s->z)
+		return -1;
+	for (i = 0; i < m; i++) {
+		const double *x = u->x + i * t;
+		uint32_t *np = s->nanpre + i * (t + 1), *rn = s->run + i * t;
+		np[0] = 0;
+		for (k = 0; k < t; k++) {
+			np[k + 1] = np[k] + (isnan(x[k]) != 0);
+			rn[k] = (k > 0 && x[k] == x[k - 1]) ? rn[k - 1] + 1 : 1;
+		}
+	}
+	return 0;
+}
+
+/* The complete-data policy in the window at a: complete and not constant
+ * (universe_window's rule).  Returns 1 when the set differs from the sums'. */
+static int slide_examine(struct slide *s, size_t a)
+{
+	size_t i, m = s->u->m, t = s->u->t, w = s->w;
+	int changed = 0;
+
+	for (i = 0; i < m; i++) {
+		const uint32_t *np = s->nanpre + i * (t + 1);
+		s->want[i] = np[a + w] == np[a] && s->run[i * t + a + w - 1] < w;
+		changed |= s->want[i] != s->in[i];
+	}
+	return changed;
+}
+
+/* Build the sums for the window at a over the wanted set. */
+static void slide_build(struct slide *s, size_t a)
+{
+	const struct universe *u = s->u;
+	size_t i, j, k, t = u->t, w = s->w;
+
+	s->nkept = 0;
+	for (i = 0; i < u->m; i++) {
+		s->in[i] = s->want[i];
+		if (s->in[i])
+			s->kept[s->nkept++] = i;
+	}
+	memset(s->rs + a, 0, w * sizeof *s->rs);
+	for (j = 0; j < s->nkept; j++) {
+		const double *x = u->x + s->kept[j] * t + a;
+		long double m0 = 0;
+		double d, sd = 0, sdd = 0;
+		i = s->kept[j];
+		for (k = 0; k < w; k++)
+			m0 += x[k];
+		s->shift[i] = (double)(m0 / w);
+		for (k = 0; k < w; k++) {
+			d = x[k] - s->shift[i];
+			sd += d;
+			sdd += d * d;
+			s->rs[a + k] += d;
+		}
+		s->sd[i] = sd;
+		s->sdd[i] = sdd;
+	}
+	s->ss = s->sss = 0;
+	for (k = 0; k < w; k++) {
+		s->ss += s->rs[a + k];
+		s->sss += s->rs[a + k] * s->rs[a + k];
+	}
+	s->at = a;
+	s->valid = 1;
+}
+
+/* Move the sums from the window at s->at to the one at a (a - s->at < w). */
+static void slide_move(struct slide *s, size_t a)
+{
+	const struct universe *u = s->u;
+	size_t j, p, from = s->at, t = u->t, w = s->w;
+
+	memset(s->rs + from + w, 0, (a - from) * sizeof *s->rs);
+	for (j = 0; j < s->nkept; j++) {
+		size_t i = s->kept[j];
+		const double *x = u->x + i * t;
+		double sh = s->shift[i], sd = s->sd[i], sdd = s->sdd[i], din, dout;
+		for (p = from; p < a; p++) {
+			dout = x[p] - sh;
+			din = x[p + w] - sh;
+			sd += din - dout;
+			sdd += din * din - dout * dout;
+			s->rs[p + w] += din;
+		}
+		s->sd[i] = sd;
+		s->sdd[i] = sdd;
+	}
+	for (p = from; p < a; p++) {
+		s->ss += s->rs[p + w] - s->rs[p];
+		s->sss += s->rs[p + w] * s->rs[p + w] - s->rs[p] * s->rs[p];
+	}
+	s->at = a;
+}
+
+/* v-bar, c-bar and the average correlation from the sums.  Returns -1 when
+ * a security's sliding variance is not positive (rebuild instead). */
+static int slide_figures(struct slide *s, double *vbar, double *cbar, double *corr)
+{
+	const struct universe *u = s->u;
+	size_t j, k, t = u->t, w = s->w, a = s->at;
+	double d = (double)(w - 1), m = (double)s->nkept;
+	long double V = 0, zz = 0;
+
+	memset(s->z, 0, w * sizeof *s->z);
+	for (j = 0; j < s->nkept; j++) {
+		size_t i = s->kept[j];
+		const double *x = u->x + i * t + a;
+		double ssq = s->sdd[i] - s->sd[i] * s->sd[i] / (double)w, mu, inv;
+		if (!(ssq > 0))
+			return -1;
+		V += ssq / d;
+		mu = s->shift[i] + s->sd[i] / (double)w;
+		inv = 1.0 / sqrt(ssq);
+		for (k = 0; k < w; k++)
+			s->z[k] += (x[k] - mu) * inv;
+	}
+	for (k = 0; k < w; k++)
+		zz += (long double)s->z[k] * s->z[k];
+	*vbar = (double)(V / m);
+	*cbar = (double)(((s->sss - s->ss * s->ss / (double)w) / d - V) / (m * (m - 1)));
+	*corr = (double)((zz - m) / (m * (m - 1)));
+	return 0;
+}
+
+/* ---- one window ---- */
+
+struct job {
+	const struct universe *u;
+	const struct rolling_options *opt;
+	struct slide slide;
+	int sliding;            /* the policy and step allow sliding */
+	size_t since;           /* windows since the last rebuild */
+};
+
+static void window_dates(struct rolling_window *w, const struct universe *u, size_t len)
+{
+	w->start_date = u->dates[w->first];
+	w->end_date = u->dates[w->first + len - 1];
+}
+
+/* The selected exact rules, and the bootstrap interval when asked. */
+static int window_rules(const struct job *jb, struct rolling_window *w,
+			const struct universe *wu, struct hc_error *err)
+{
+	const struct rolling_options *opt = jb->opt;
+	struct bootstrap_base *base = NULL;
+	struct bootstrap_result *br = NULL;
+	struct bootstrap_options bo;
+	int id, rc = HC_OK;
+
+	w->nrules = 0;
+	for (id = 0; id < RULES_COUNT; id++) {
+		if (!(opt->rules.selected & RULES_EXACT_MASK & RULES_FLAG(id)))
+			continue;
+		rc = rules_exact(&opt->rules, id, w->average_variance, w->average_covariance,
+				 w->securities, jb->u->periods_per_year, &w->rules[w->nrules++], err);
+		if (rc)
+			return rc;
+	}
+	if (!opt->replicates || !wu)
+		return HC_OK;
+	bo = opt->boot;
+	bo.replicates = opt->replicates;
+	bo.progress = NULL;
+	if ((rc = bootstrap_base_alloc(&base, wu, err)) ||
+	    (rc = bootstrap_run(&br, base, &bo, err)))
+		goto cleanup;
+	rc = rules_bootstrap_exact(&opt->rules, br->vbar, br->cbar, br->replicates, w->securities,
+				   jb->u->periods_per_year, w->rules, w->nrules, err);
+cleanup:
+	bootstrap_result_free(br);
+	bootstrap_base_free(base);
+	return rc;
+}
+
+/* A window without figures: keep why (data problems only; the run goes on). */
+static int window_unusable(struct rolling_window *w, struct hc_error *err)
+{
+	if (err->code != HC_EDATA)
+		return err->code;
+	w->status = err->code;
+	snprintf(w->note, sizeof w->note, "%.*s", (int)(sizeof w->note - 1), err->message);
+	hc_error_clear(err);
+	return HC_OK;
+}
+
+/* From scratch: the figures `describe` prints for this stretch of data. */
+static int window_scratch(struct job *jb, struct rolling_window *w, struct hc_error *err)
+{
+	const struct rolling_options *opt = jb->opt;
+	struct universe *wu = NULL;
+	struct moments mo;
+	int rc;
+
+	w->recomputed = 1;
+	jb->slide.valid = 0;
+	rc = universe_window(&wu, jb->u, w->first, opt->window, opt->missing, opt->min_coverage, err);
+	if (rc == HC_OK)
+		rc = moments_from_universe(&mo, wu, err);
+	if (rc) {
+		w->securities = wu ? wu->m : 0;
+		w->dropped = jb->u->m - w->securities;
+		universe_free(wu);
+		return window_unusable(w, err);
+	}
+	w->securities = wu->m;
+	w->dropped = jb->u->m - wu->m;
+	w->average_variance = mo.average_variance;
+	w->average_covariance = mo.average_covariance;
+	w->average_correlation = mo.average_correlation;
+	rc = window_rules(jb, w, wu, err);
+	universe_free(wu);
+	if (rc)
+		return rc == HC_EDATA ? window_unusable(w, err) : rc;
+	if (jb->sliding) {
+		slide_examine(&jb->slide, w->first);
+		slide_build(&jb->slide, w->first);
+		jb->since = 0;
+		/* The policy is the loader's; a disagreement would be a bug. */
+		if (jb->slide.nkept != w->securities)
+			return hc_error(err, HC_EINTERNAL,
+					"window at period %zu: %zu securities kept by the sliding sums, %zu by the loader",
+					w->first, jb->slide.nkept, w->securities);
+	}
+	return HC_OK;
+}
+
+static int window_one(struct job *jb, struct rolling_window *w, struct hc_error *err)
+{
+	struct slide *s = &jb->slide;
+	size_t refresh = jb->opt->refresh ? jb->opt->refresh : ROLLING_DEFAULT_REFRESH;
+	struct universe *wu = NULL;
+	int rc;
+
+	w->status = HC_OK;
+	window_dates(w, jb->u, jb->opt->window);
+	if (!jb->sliding || !s->valid || jb->since + 1 >= refresh || slide_examine(s, w->first))
+		return window_scratch(jb, w, err);
+	slide_move(s, w->first);
+	if (slide_figures(s, &w->average_variance, &w->average_covariance, &w->average_correlation))
+		return window_scratch(jb, w, err);
+	jb->since++;
+	w->recomputed = 0;
+	w->securities = s->nkept;
+	w->dropped = jb->u->m - s->nkept;
+	if (jb->opt->replicates &&
+	    (rc = universe_window(&wu, jb->u, w->first, jb->opt->window, jb->opt->missing,
+				  jb->opt->min_coverage, err)))
+		return rc;
+	rc = window_rules(jb, w, wu, err);
+	universe_free(wu);
+	return rc;
+}
+
+static int check_options(const struct universe *u, const struct rolling_options *opt,
+			 struct hc_error *err)
+{
+	int rc;
+
+	if (opt->window < 2)
+		return hc_error(err, HC_EUSAGE, "window of %zu periods is too short; expected at least 2",
+				opt->window);
+	if (opt->window > u->t)
+		return hc_error(err, HC_EUSAGE,
+				"window of %zu periods is longer than the %zu periods of data",
+				opt->window, u->t);
+	if (opt->step < 1)
+		return hc_error(err, HC_EUSAGE, "window step of 0 periods; expected at least 1");
+	if (opt->missing != UNIVERSE_MISSING_COMPLETE && opt->missing != UNIVERSE_MISSING_PAIRWISE)
+		return hc_error(err, HC_EUSAGE,
+				"rolling windows need the complete-data or the pairwise policy");
+	if (opt->replicates && opt->missing != UNIVERSE_MISSING_COMPLETE)
+		return hc_error(err, HC_EUSAGE,
+				"bootstrap intervals need the complete-data policy in each window");
+	if (!(opt->rules.selected & RULES_EXACT_MASK))
+		return hc_error(err, HC_EUSAGE,
+				"no exact rule selected; rolling windows evaluate the exact rules");
+	if ((rc = rules_config_check(&opt->rules, err)))
+		return rc;
+	if (u->t > UINT32_MAX)
+		return hc_error(err, HC_ENOMEM, "%zu periods are too many for rolling windows", u->t);
+	return HC_OK;
+}
+
+int rolling_run(struct rolling_result **out, const struct universe *u,
+		const struct rolling_options *opt, struct hc_error *err)
+{
+	struct rolling_result *r = NULL;
+	struct job jb;
+	size_t j;
+	int rc;
+
+	*out = NULL;
+	memset(&jb, 0, sizeof jb);
+	if ((rc = check_options(u, opt, err)))
+		return rc;
+	jb.u = u;
+	jb.opt = opt;
+	jb.sliding = opt->missing == UNIVERSE_MISSING_COMPLETE && opt->step < opt->window &&
+		     !opt->from_scratch;
+	r = hc_calloc(1, sizeof *r);
+	if (!r || (jb.sliding && slide_init(&jb.slide, u, opt->window))) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for rolling windows over %zu x %zu returns",
+			      u->m, u->t);
+		goto cleanup;
+	}
+	r->window = opt->window;
+	r->step = opt->step;
+	r->periods_per_year = u->periods_per_year;
+	r->replicates = opt->replicates;
+	r->rules = opt->rules.selected & RULES_EXACT_MASK;
+	r->nwindows = (u->t - opt->window) / opt->step + 1;
+	r->windows = hc_calloc(r->nwindows, sizeof *r->windows);
+	if (!r->windows) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for %zu windows", r->nwindows);
+		goto cleanup;
+	}
+	for (j = 0; j < r->nwindows; j++) {
+		r->windows[j].first = j * opt->step;
+		if ((rc = window_one(&jb, &r->windows[j], err)))
+			goto cleanup;
+		if (opt->progress && opt->progress(opt->progress_ctx, j + 1, r->nwindows)) {
+			rc = hc_error(err, HC_EINTERRUPT, "rolling windows stopped after %zu of %zu",
+				      j + 1, r->nwindows);
+			goto cleanup;
+		}
+	}
+	*out = r;
+	r = NULL;
+cleanup:
+	slide_release(&jb.slide);
+	rolling_result_free(r);
+	return rc;
+}
+
+/* ---- the report ---- */
+
+static int add_columns(struct report_table *t, const struct rolling_result *r)
+{
+	static const char *const pct[] = { "p05", "p50", "p95" };
+	char key[64], title[96], name[48];
+	size_t q, c;
+	int id, rc = 0;
+
+	rc |= report_table_add_column(t, "window_start", "from", REPORT_STYLE_PLAIN);
+	rc |= report_table_add_column(t, "window_end", "to", REPORT_STYLE_PLAIN);
+	rc |= report_table_add_column(t, "securities", "securities", REPORT_STYLE_PLAIN);
+	rc |= report_table_add_column(t, "average_variance", "avg variance", REPORT_STYLE_SCI);
+	rc |= report_table_add_column(t, "average_covariance", "avg covariance", REPORT_STYLE_SCI);
+	rc |= report_table_add_column(t, "average_correlation", "avg corr", REPORT_STYLE_FIXED4);
+	rc |= report_table_add_column(t, "floor_sd", "floor sd", REPORT_STYLE_PERCENT);
+	for (id = 0; id < RULES_COUNT; id++) {
+		if (!(r->rules & RULES_FLAG(id)))
+			continue;
+		snprintf(name, sizeof name, "%s", rules_name(id));
+		for (c = 0; name[c]; c++)
+			if (name[c] == '-')
+				name[c] = '_';
+		snprintf(key, sizeof key, "count_%s", name);
+		snprintf(title, sizeof title, "%s", rules_name(id));
+		rc |= report_table_add_column(t, key, title, REPORT_STYLE_PLAIN);
+		for (q = 0; r->replicates && q < 3; q++) {
+			snprintf(key, sizeof key, "count_%s_%s", name, pct[q]);
+			snprintf(title, sizeof title, "%s %s", rules_name(id), pct[q]);
+			rc |= report_table_add_column(t, key, title, REPORT_STYLE_PLAIN);
+		}
+	}
+	rc |= report_table_add_column(t, "dropped", "dropped", REPORT_STYLE_PLAIN);
+	rc |= report_table_add_column(t, "note", "note", REPORT_STYLE_PLAIN);
+	return rc;
+}
+
+/* The notes of a window's rules, joined: "near-floor: not met ..." */
+static int window_note(struct report_table *t, size_t row, size_t col,
+		       const struct rolling_window *w)
+{
+	char buf[ROLLING_NOTE_MAX + RULES_COUNT * (RULES_TEXT_MAX + 24)];
+	size_t j, len = 0;
+
+	buf[0] = 0;
+	if (w->status != HC_OK)
+		len += (size_t)snprintf(buf, sizeof buf, "%s", w->note);
+	for (j = 0; w->status == HC_OK && j < w->nrules; j++)
+		if (w->rules[j].note[0] && len < sizeof buf)
+			len += (size_t)snprintf(buf + len, sizeof buf - len, "%s%s: %s",
+						len ? "; " : "", w->rules[j].name, w->rules[j].note);
+	return buf[0] ? report_table_set_text(t, row, col, buf) : 0;
+}
+
+static int add_row(struct report_table *t, const struct rolling_result *r,
+		   const struct rolling_window *w)
+{
+	double ppy = r->periods_per_year;
+	char d[11];
+	size_t j, c = 0, row;
+	int rc = 0;
+
+	if (report_table_add_row(t))
+		return -1;
+	row = t->nrows - 1;
+	universe_format_date(w->start_date, d);
+	rc |= report_table_set_text(t, row, c++, d);
+	universe_format_date(w->end_date, d);
+	rc |= report_table_set_text(t, row, c++, d);
+	report_table_set_int(t, row, c++, (long long)w->securities);
+	if (w->status != HC_OK) {
+		c = t->ncols - 2;
+	} else {
+		report_table_set_real(t, row, c++, w->average_variance * ppy);
+		report_table_set_real(t, row, c++, w->average_covariance * ppy);
+		report_table_set_real(t, row, c++, w->average_correlation);
+		report_table_set_real(t, row, c++, w->average_covariance > 0
+				      ? sqrt(w->average_covariance * ppy) : NAN);
+		for (j = 0; j < w->nrules; j++) {
+			const struct rule_result *rr = &w->rules[j];
+			if (rr->defined && rr->met)
+				report_table_set_int(t, row, c, (long long)rr->count);
+			c++;
+			if (!r->replicates)
+				continue;
+			report_table_set_real(t, row, c++, rr->bootstrapped ? rr->count_p05 : NAN);
+			report_table_set_real(t, row, c++, rr->bootstrapped ? rr->count_p50 : NAN);
+			report_table_set_real(t, row, c++, rr->bootstrapped ? rr->count_p95 : NAN);
+		}
+	}
+	report_table_set_int(t, row, c++, (long long)w->dropped);
+	rc |= window_note(t, row, c, w);
+	return rc;
+}
+
+int rolling_report(struct report *rep, const struct rolling_result *r,
+		   struct hc_error *err)
+{
+	struct report_table *t;
+	size_t j, rebuilt = 0;
+	int rc = 0;
+
+	for (j = 0; j < r->nwindows; j++)
+		rebuilt += r->windows[j].recomputed;
+	rc |= report_add_int(rep, "window", "window (periods)", (long long)r->window);
+	rc |= report_add_int(rep, "step", "step (periods)", (long long)r->step);
+	rc |= report_add_real(rep, "periods_per_year", "periods per year", r->periods_per_year,
+			      REPORT_STYLE_PLAIN);
+	rc |= report_add_int(rep, "window_count", "windows", (long long)r->nwindows);
+	rc |= report_add_int(rep, "windows_recomputed", "windows computed from scratch", (long long)rebuilt);
+	if (r->replicates)
+		rc |= report_add_int(rep, "replicates", "bootstrap replicates", (long long)r->replicates);
+	t = report_add_table(rep, "windows", "rolling windows");
+	if (rc || !t)
+		return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");
+	if (add_columns(t, r))
+		return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");
+	for (j = 0; j < r->nwindows; j++)
+		if (add_row(t, r, &r->windows[j]))
+			return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");
+	return HC_OK;
+}
