@@ -16,7 +16,7 @@
 #              writes at run time (large ones are not committed), or
 #              gen:missing for a path that does not exist, or - for none
 #   command    holdcount's arguments; {} is the file, {out} an output path in
-#              the scratch directory
+#              the scratch directory, {dir} the tests/bad-inputs directory
 #   status     expected exit status
 #   message    expected start of the message, {} again standing for the
 #              file; "-" checks nothing (successful runs)
@@ -108,6 +108,7 @@ run_row() {
 		case $word in
 		*'{out}'*) out=$SCRATCH/out-$lineno.txt; rm -f "$out"; word=${word//'{out}'/$out} ;;
 		esac
+		word=${word//'{dir}'/$DIR}
 		args+=("${word//'{}'/$path}")
 	done
 	checked=$((checked + 1))
