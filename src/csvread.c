@@ -107,14 +107,11 @@ static void on_record(int c, void *data)
 	r->nfields = 0;
 }
 
-/* Hand s[0..len) to libcsv and translate its failures into positions. */
-static int feed(struct reader *r, const char *s, size_t len)
+static int feed_piece(struct reader *r, const char *s, size_t len)
 {
 	size_t used;
 	int e;
 
-	if (len == 0 || r->status != HC_OK)
-		return r->status;
 	used = csv_parse(&r->parser, s, len, on_field, on_record, r);
 	if (r->status != HC_OK)
 		return r->status;
@@ -134,6 +131,27 @@ static int feed(struct reader *r, const char *s, size_t len)
 			"%s:%zu:%zu: field longer than %zu bytes",
 			r->name, r->line, r->nfields + 1, r->max_field);
 	return HC_OK;
+}
+
+/* Hand s[0..len) to libcsv and translate its failures into positions.
+ * At most max_field + 1 bytes go in per call, so an overlong field is caught
+ * when libcsv's buffer first passes the limit rather than after it has grown
+ * (in small steps, one realloc each) to the whole field: a 10 MB line would
+ * otherwise cost 10 MB of buffer, and quadratic copying where realloc cannot
+ * grow in place (under valgrind, for one). */
+static int feed(struct reader *r, const char *s, size_t len)
+{
+	size_t step = r->max_field + 1;
+
+	while (len > 0 && r->status == HC_OK) {
+		size_t n = len < step ? len : step;
+
+		if (feed_piece(r, s, n) != HC_OK)
+			break;
+		s += n;
+		len -= n;
+	}
+	return r->status;
 }
 
 static int is_terminator(const struct reader *r, unsigned char c)
