@@ -550,7 +550,7 @@ const char *plots_caption(int kind, const struct plots_input *in, char *buf, siz
 		       "tracking-error rule's.";
 	case PLOTS_FUNDS:
 		return "Audited funds: each fund's own sd from the universe's history, drawn at its number of "
-		       "holdings (square) and at its effective number 1/HHI (circle), against the curve of "
+		       "holdings (square) and at its effective number 1/HHI (diamond), against the curve of "
 		       "random equal-weight portfolios. A fund above the curve at its effective count is riskier "
 		       "than its concentration alone explains.";
 	default:
