@@ -13,6 +13,7 @@
 #include <gsl/gsl_cblas.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/sampler.h"
 
 void bootstrap_options_init(struct bootstrap_options *opt)
 {
@@ -38,17 +39,12 @@ const char *bootstrap_kind_name(int kind)
 	}
 }
 
-/* splitmix64 (Steele, Lea & Flood, 2014, OOPSLA), the same step as
- * sampler_splitmix64; kept here so the bootstrap does not depend on the
- * sampler.  It is also the replicate's stream generator: its output passes
- * BigCrush, and a stream needs only T draws. */
+/* The replicate's stream generator is splitmix64 itself (Steele, Lea &
+ * Flood, 2014, OOPSLA; sampler_splitmix64): its output passes BigCrush, and
+ * a replicate needs only about T draws. */
 static uint64_t splitmix64(uint64_t *state)
 {
-	uint64_t z = (*state += 0x9E3779B97F4A7C15ULL);
-
-	z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
-	z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
-	return z ^ (z >> 31);
+	return sampler_splitmix64(state);
 }
 
 /* Replicate rep's stream state from (seed, rep): the replicate number is

@@ -142,6 +142,8 @@ static int scan(struct reader *r, const char *s, size_t len)
 {
 	size_t start = 0, i;
 
+	if (len == 0)
+		return r->status;   /* s may be NULL (an empty file) */
 	for (i = 0; i < len; i++) {
 		unsigned char c = (unsigned char)s[i];
 
@@ -547,4 +549,26 @@ int csvread_is_missing(const char *s, size_t len)
 			return 1;
 	}
 	return 0;
+}
+
+const char *csvread_quote(const char *s, size_t len, char *buf)
+{
+	size_t i, o = 0, n = len < CSVREAD_QUOTE_MAX ? len : CSVREAD_QUOTE_MAX;
+
+	for (i = 0; i < n; i++) {
+		unsigned char c = (unsigned char)s[i];
+
+		if (c == '\n' || c == '\r' || c == '\t') {
+			buf[o++] = '\\';
+			buf[o++] = c == '\n' ? 'n' : c == '\r' ? 'r' : 't';
+		} else {
+			buf[o++] = c < 0x20 || c == 0x7F ? '?' : (char)c;
+		}
+	}
+	if (n < len) {
+		memcpy(buf + o, "...", 3);
+		o += 3;
+	}
+	buf[o] = '\0';
+	return buf;
 }

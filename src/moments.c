@@ -22,6 +22,29 @@
 
 #include "holdcount/memory.h"
 
+/*
+ * OpenBLAS's own thread control (the build links OpenBLAS, design.md).
+ * Its pthread build keeps worker threads spinning with sched_yield for
+ * about 0.1 s after every threaded call, which steals the cores from the
+ * OpenMP sampler that runs next.  One BLAS thread does the Gram or
+ * covariance product fast enough (about 2 GFlop for 5000 x 600, some
+ * 0.05 s), so each product runs single-threaded and the setting is put
+ * back afterwards.
+ */
+void openblas_set_num_threads(int num_threads);
+int openblas_get_num_threads(void);
+
+static void syrk(enum CBLAS_TRANSPOSE trans, size_t n, size_t k, double alpha,
+		 const double *a, size_t lda, double *c, size_t ldc)
+{
+	int saved = openblas_get_num_threads();
+
+	openblas_set_num_threads(1);
+	cblas_dsyrk(CblasRowMajor, CblasUpper, trans, (int)n, (int)k, alpha,
+		    a, (int)lda, 0.0, c, (int)ldc);
+	openblas_set_num_threads(saved);
+}
+
 static const char *security_name(const struct universe *u, size_t i, char *buf, size_t len)
 {
 	if (u->ids && u->ids[i])
@@ -229,8 +252,7 @@ static int route_gram(struct moments *mo, const struct universe *u, const double
 		Z += r * r;
 	}
 	/* G = Xc^T Xc with Xc the M x T row-major centred matrix. */
-	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasTrans, (int)t, (int)m, 1.0,
-		    xc, (int)t, 0.0, g, (int)t);
+	syrk(CblasTrans, t, m, 1.0, xc, t, g, t);
 	for (a = 0; a < t; a++) {
 		F += (long double)g[a * t + a] * g[a * t + a];
 		for (b = a + 1; b < t; b++)
@@ -254,21 +276,18 @@ cleanup:
 }
 
 /* Matrix route: A = Xc Xc^T/(T-1) through dsyrk, then the sums. */
+static int full_matrix(const struct universe *u, const double *xc, double **out,
+		       struct hc_error *err);
+
 static int route_matrix(struct moments *mo, const struct universe *u, const double *xc,
 			struct hc_error *err)
 {
-	size_t m = u->m, t = u->t, i, j, n;
 	double *a;
 	int rc;
 
-	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
-		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
-	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t,
-		    1.0 / (double)(t - 1), xc, (int)t, 0.0, a, (int)m);
-	for (i = 0; i < m; i++)
-		for (j = 0; j < i; j++)
-			a[i * m + j] = a[j * m + i];
-	rc = sums_from_matrix(mo, a, m, err);
+	if ((rc = full_matrix(u, xc, &a, err)))
+		return rc;
+	rc = sums_from_matrix(mo, a, u->m, err);
 	hc_free(a);
 	return rc;
 }
@@ -307,43 +326,106 @@ static int pair_cov(const double *x, const double *y, size_t t,
 	return 0;
 }
 
-/* Pairwise route.  The average correlation is the mean of pairwise
- * correlations, each on its own overlap, not a ratio of averages. */
-static int route_pairwise(struct moments *mo, const struct universe *u, struct hc_error *err)
+/* The pairwise-complete matrix into a new *out, and the sum of the
+ * off-diagonal pairwise correlations (each on its own overlap) into *rsum. */
+static int pairwise_matrix(const struct universe *u, double **out, long double *rsum,
+			   struct hc_error *err)
 {
 	size_t m = u->m, t = u->t, i, j, n;
-	double *a = NULL, cov, vx, vy;
+	double *a, cov, vx, vy;
 	long double R = 0;
 	char b1[32], b2[32];
-	int rc = HC_OK;
 
+	*out = NULL;
 	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	for (i = 0; i < m; i++) {
 		const double *x = u->x + i * t;
-		if (pair_cov(x, x, t, &cov, &vx, &vy) || !(cov > 0)) {
-			rc = hc_error(err, HC_EDATA, "security '%s' has %s",
-				      security_name(u, i, b1, sizeof b1),
-				      pair_cov(x, x, t, &cov, &vx, &vy) ? "fewer than two periods" : "zero variance");
-			goto cleanup;
+		int few = pair_cov(x, x, t, &cov, &vx, &vy);
+		if (few || !(cov > 0)) {
+			hc_free(a);
+			return hc_error(err, HC_EDATA, "security '%s' has %s",
+					security_name(u, i, b1, sizeof b1),
+					few ? "fewer than two periods" : "zero variance");
 		}
 		a[i * m + i] = cov;
 	}
 	for (i = 0; i < m; i++)
 		for (j = i + 1; j < m; j++) {
 			if (pair_cov(u->x + i * t, u->x + j * t, t, &cov, &vx, &vy) || !(vx > 0) || !(vy > 0)) {
-				rc = hc_error(err, HC_EDATA,
-					      "securities '%s' and '%s' share too few periods for a covariance",
-					      security_name(u, i, b1, sizeof b1), security_name(u, j, b2, sizeof b2));
-				goto cleanup;
+				hc_free(a);
+				return hc_error(err, HC_EDATA,
+						"securities '%s' and '%s' share too few periods for a covariance",
+						security_name(u, i, b1, sizeof b1), security_name(u, j, b2, sizeof b2));
 			}
 			a[i * m + j] = a[j * m + i] = cov;
 			R += 2.0L * cov / sqrtl((long double)vx * vy);
 		}
-	rc = sums_from_matrix(mo, a, m, err);
-	mo->average_correlation = (double)(R / ((long double)m * (m - 1)));
-cleanup:
+	*out = a;
+	*rsum = R;
+	return HC_OK;
+}
+
+/* Pairwise route.  The average correlation is the mean of pairwise
+ * correlations, each on its own overlap, not a ratio of averages. */
+static int route_pairwise(struct moments *mo, const struct universe *u, struct hc_error *err)
+{
+	double *a;
+	long double R;
+	int rc;
+
+	if ((rc = pairwise_matrix(u, &a, &R, err)))
+		return rc;
+	rc = sums_from_matrix(mo, a, u->m, err);
+	mo->average_correlation = (double)(R / ((long double)u->m * (u->m - 1)));
 	hc_free(a);
+	return rc;
+}
+
+/* Complete data: A = Xc Xc^T/(T-1) through dsyrk, both triangles filled. */
+static int full_matrix(const struct universe *u, const double *xc, double **out,
+		       struct hc_error *err)
+{
+	size_t m = u->m, t = u->t, i, j, n;
+	double *a;
+
+	*out = NULL;
+	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
+	syrk(CblasNoTrans, m, t, 1.0 / (double)(t - 1), xc, t, a, m);
+	for (i = 0; i < m; i++)
+		for (j = 0; j < i; j++)
+			a[i * m + j] = a[j * m + i];
+	*out = a;
+	return HC_OK;
+}
+
+static int check_shape(const struct universe *u, struct hc_error *err)
+{
+	if (u->m < 2 || u->t < 2)
+		return hc_error(err, HC_EDATA,
+				"universe has %zu securities over %zu periods, expected at least 2 of each",
+				u->m, u->t);
+	if (u->m > INT32_MAX || u->t > INT32_MAX)
+		return hc_error(err, HC_ENOMEM, "universe of %zu x %zu is too large for BLAS", u->m, u->t);
+	return HC_OK;
+}
+
+int moments_covariance(const struct universe *u, double **a, struct hc_error *err)
+{
+	double *xc;
+	long double R;
+	int rc;
+
+	*a = NULL;
+	if ((rc = check_shape(u, err)))
+		return rc;
+	if (u->has_missing)
+		return pairwise_matrix(u, a, &R, err);
+	if ((rc = centred_copy(u, &xc, err)))
+		return rc;
+	rc = full_matrix(u, xc, a, err);
+	hc_free(xc);
 	return rc;
 }
 
@@ -354,12 +436,8 @@ int moments_from_universe_route(struct moments *mo, const struct universe *u,
 	int rc;
 
 	memset(mo, 0, sizeof *mo);
-	if (u->m < 2 || u->t < 2)
-		return hc_error(err, HC_EDATA,
-				"universe has %zu securities over %zu periods, expected at least 2 of each",
-				u->m, u->t);
-	if (u->m > INT32_MAX || u->t > INT32_MAX)
-		return hc_error(err, HC_ENOMEM, "universe of %zu x %zu is too large for BLAS", u->m, u->t);
+	if ((rc = check_shape(u, err)))
+		return rc;
 	if (route != MOMENTS_ROUTE_PAIRWISE && route != MOMENTS_ROUTE_GRAM &&
 	    route != MOMENTS_ROUTE_MATRIX)
 		return hc_error(err, HC_EUSAGE, "moments route %d is not one computed from returns", route);

@@ -697,3 +697,243 @@ int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 	hc_free(count);
 	return HC_OK;
 }
+
+/* ---- report ------------------------------------------------------------- */
+
+static const struct { const char *key, *title; int style; } rule_columns[] = {
+	{ "rule", "rule", REPORT_STYLE_PLAIN },
+	{ "parameters", "parameters", REPORT_STYLE_PLAIN },
+	{ "count", "count", REPORT_STYLE_PLAIN },
+	{ "value_at_count", "value at count", REPORT_STYLE_PERCENT },
+	{ "count_p05", "count p05", REPORT_STYLE_PLAIN },
+	{ "count_p50", "count p50", REPORT_STYLE_PLAIN },
+	{ "count_p95", "count p95", REPORT_STYLE_PLAIN },
+	{ "met", "met", REPORT_STYLE_PLAIN },
+	{ "unit", "unit", REPORT_STYLE_PLAIN },
+	{ "threshold", "threshold", REPORT_STYLE_PERCENT },
+	{ "replicates", "replicates", REPORT_STYLE_PLAIN },
+	{ "replicates_met", "replicates met", REPORT_STYLE_PLAIN },
+	{ "note", "note", REPORT_STYLE_PLAIN },
+};
+#define RULE_NCOLUMNS (sizeof rule_columns / sizeof rule_columns[0])
+
+/* A count percentile: none without a bootstrap, "not met" when it reaches
+ * replicates that did not meet the rule. */
+static int set_percentile(struct report_table *t, size_t row, size_t col,
+			  const struct rule_result *res, double p)
+{
+	if (!res->bootstrapped)
+		return 0;
+	if (isnan(p))
+		return report_table_set_text(t, row, col, "not met");
+	report_table_set_real(t, row, col, p);
+	return 0;
+}
+
+static int rule_row(struct report_table *t, const struct rule_result *res)
+{
+	size_t row;
+	int bad = 0;
+
+	if (report_table_add_row(t) != 0)
+		return -1;
+	row = t->nrows - 1;
+	bad |= report_table_set_text(t, row, 0, res->name);
+	bad |= report_table_set_text(t, row, 1, res->parameters);
+	if (res->met) {
+		report_table_set_int(t, row, 2, (long long)res->count);
+		report_table_set_real(t, row, 3, res->value);
+	}
+	bad |= set_percentile(t, row, 4, res, res->count_p05);
+	bad |= set_percentile(t, row, 5, res, res->count_p50);
+	bad |= set_percentile(t, row, 6, res, res->count_p95);
+	report_table_set_bool(t, row, 7, res->met);
+	bad |= report_table_set_text(t, row, 8, res->unit);
+	report_table_set_real(t, row, 9, res->threshold);
+	if (res->bootstrapped) {
+		report_table_set_int(t, row, 10, (long long)res->replicates);
+		report_table_set_int(t, row, 11, (long long)res->replicates_met);
+	}
+	if (res->note[0])
+		bad |= report_table_set_text(t, row, 12, res->note);
+	return bad ? -1 : 0;
+}
+
+int rules_report(struct report *rep, const struct rule_result *res,
+		 size_t nres, struct hc_error *err)
+{
+	struct report_table *t;
+	size_t k;
+
+	t = report_add_table(rep, "rules", "smallest holding count meeting each rule");
+	if (!t)
+		return hc_error(err, HC_ENOMEM, "out of memory for the rules table");
+	for (k = 0; k < RULE_NCOLUMNS; k++)
+		if (report_table_add_column(t, rule_columns[k].key, rule_columns[k].title,
+					    rule_columns[k].style) != 0)
+			return hc_error(err, HC_ENOMEM, "out of memory for the rules table");
+	for (k = 0; k < nres; k++)
+		if (rule_row(t, &res[k]) != 0)
+			return hc_error(err, HC_ENOMEM, "out of memory for the rules table");
+	return HC_OK;
+}
+
+
+/* ---- sampling for the sampled rules ------------------------------------ */
+
+int rules_sampled(const struct rules_config *cfg, const struct universe *u,
+		  const struct sampler_options *so, double cbar,
+		  struct rule_result *res, size_t *nres, size_t *largest,
+		  struct hc_error *err)
+{
+	struct sampler_options o = *so;
+	struct sampler_result *sr = NULL;
+	size_t *sizes = NULL, k, n = 0, j;
+	int want_band = (cfg->selected & RULES_FLAG(RULES_BAND)) != 0;
+	int status = HC_OK;
+	double uret = 0;
+
+	*nres = 0;
+	o.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
+	if (!want_band && !o.want_returns)
+		return HC_OK;
+	if (o.want_returns && (status = rules_universe_return(u, o.periods_per_year, &uret, err)) != HC_OK)
+		return status;
+	sizes = hc_malloc(u->m * sizeof *sizes);
+	if (!sizes)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu sizes", u->m);
+	for (j = 0; j < u->m; j++)
+		sizes[j] = j + 1;
+	for (k = RULES_SAMPLED_FIRST_K;; k *= RULES_SAMPLED_GROWTH) {
+		int done = 1;
+
+		if (k > u->m)
+			k = u->m;
+		n = 0;
+		if ((status = sampler_run(&sr, u, sizes, k, &o, err)) != HC_OK)
+			break;
+		if (want_band) {
+			if ((status = rules_band(cfg, sr, cbar, o.periods_per_year, &res[n], err)) != HC_OK)
+				break;
+			done &= res[n].met || !res[n].defined;
+			n++;
+		}
+		if (o.want_returns) {
+			if ((status = rules_shortfall(cfg, sr, uret, &res[n], err)) != HC_OK)
+				break;
+			done &= res[n].met;
+			n++;
+		}
+		sampler_result_free(sr);
+		sr = NULL;
+		/* the caller's progress bar follows the first stage only */
+		o.progress = NULL;
+		if (done || k == u->m)
+			break;
+	}
+	sampler_result_free(sr);
+	hc_free(sizes);
+	if (status != HC_OK)
+		return status;
+	if (largest)
+		*largest = k;
+	*nres = n;
+	return HC_OK;
+}
+
+/* ---- bootstrap of the sampled rules ------------------------------------ */
+
+/* Distinct from the bootstrap's own period streams, which use (seed, rep)
+ * directly. */
+uint64_t rules_replicate_seed(uint64_t seed, size_t rep)
+{
+	uint64_t s = seed ^ 0x5DEECE66DULL, r = (uint64_t)rep;
+
+	s ^= sampler_splitmix64(&r);
+	return sampler_splitmix64(&s);
+}
+
+/* One replicate's band and shortfall counts (0 = not met). */
+static int sampled_replicate(const struct rules_config *cfg, const struct universe *u,
+			     const struct bootstrap_base *b, const struct bootstrap_options *bopt,
+			     const struct sampler_options *sopt, size_t l, size_t rep,
+			     size_t *idx, double *w, size_t *band, size_t *shortfall,
+			     struct hc_error *err)
+{
+	struct universe *ru = NULL;
+	struct sampler_options so = *sopt;
+	struct rule_result rr[2];
+	double vbar, cbar;
+	size_t k, n;
+	int status;
+
+	if ((status = bootstrap_indices(bopt->kind, u->t, l, bopt->seed, rep, idx, err)) != HC_OK)
+		return status;
+	memset(w, 0, u->t * sizeof *w);
+	for (k = 0; k < u->t; k++)
+		w[idx[k]] += 1;
+	bootstrap_moments(b, w, &vbar, &cbar);
+	if ((status = universe_resample(&ru, u, idx, u->t, err)) != HC_OK)
+		return status;
+	so.seed = rules_replicate_seed(bopt->seed, rep);
+	so.progress = NULL;
+	status = rules_sampled(cfg, ru, &so, cbar, rr, &n, NULL, err);
+	universe_free(ru);
+	if (status != HC_OK)
+		return status;
+	for (k = 0; k < n; k++) {
+		size_t c = rr[k].met ? rr[k].count : 0;
+
+		if (rr[k].rule == RULES_BAND)
+			*band = c;
+		else
+			*shortfall = c;
+	}
+	return HC_OK;
+}
+
+int rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+			    const struct bootstrap_base *b,
+			    const struct bootstrap_options *bopt,
+			    const struct sampler_options *sopt,
+			    struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t nrep = bopt->replicates, l, rep, j, *idx = NULL;
+	size_t *band = NULL, *shortfall = NULL;
+	double *w = NULL;
+	int status = HC_OK;
+
+	if (nrep == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	l = bopt->block_length ? bopt->block_length : bootstrap_default_block_length(u->t);
+	idx = hc_malloc(u->t * sizeof *idx);
+	w = hc_malloc(u->t * sizeof *w);
+	band = hc_calloc(nrep, sizeof *band);
+	shortfall = hc_calloc(nrep, sizeof *shortfall);
+	if (!idx || !w || !band || !shortfall) {
+		status = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
+		goto cleanup;
+	}
+	for (rep = 0; rep < nrep; rep++) {
+		status = sampled_replicate(cfg, u, b, bopt, sopt, l, rep, idx, w,
+					   &band[rep], &shortfall[rep], err);
+		if (status != HC_OK)
+			goto cleanup;
+		if (bopt->progress && bopt->progress(bopt->progress_ctx, rep + 1, nrep)) {
+			status = hc_error(err, HC_EINTERRUPT, "sampled bootstrap stopped after %zu of %zu replicates", rep + 1, nrep);
+			goto cleanup;
+		}
+	}
+	for (j = 0; j < nres; j++) {
+		if (res[j].rule == RULES_BAND && res[j].defined)
+			rules_set_interval(&res[j], band, nrep);
+		else if (res[j].rule == RULES_SHORTFALL && res[j].defined)
+			rules_set_interval(&res[j], shortfall, nrep);
+	}
+cleanup:
+	hc_free(idx);
+	hc_free(w);
+	hc_free(band);
+	hc_free(shortfall);
+	return status;
+}

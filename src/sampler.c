@@ -16,10 +16,13 @@
  * backward sweep is chosen to touch the fewest columns (with sizes up to M,
  * about a quarter of the work is skipped).
  *
- * Reproducibility: path k's generator is GSL's mt19937 seeded with the k-th
- * splitmix64 output from the user's seed, and each path writes its own row
- * of the result; every reduction happens later, serially, in path order.
- * So the bytes are the same whatever the thread count.
+ * Reproducibility: path k's generator is GSL's taus2 (L'Ecuyer, 1996,
+ * Mathematics of Computation 65(213), a maximally equidistributed combined
+ * Tausworthe generator, chosen over mt19937 because re-seeding it for every
+ * path costs a few words instead of 624) seeded with the k-th splitmix64
+ * output from the user's seed, and each path writes its own row of the
+ * result; every reduction happens later, serially, in path order.  So the
+ * bytes are the same whatever the thread count.
  */
 #include "holdcount/sampler.h"
 
@@ -28,7 +31,6 @@
 #include <string.h>
 
 #include <gsl/gsl_rng.h>
-#include <gsl/gsl_sort.h>
 #include <gsl/gsl_statistics_double.h>
 #include <omp.h>
 
@@ -67,7 +69,7 @@ void sampler_result_free(struct sampler_result *r)
 }
 
 /* Seed for path k: the (k+1)-th splitmix64 output from seed, folded to the
- * 32 bits that GSL's mt19937 takes. */
+ * 32 bits that GSL's taus2 seeding takes. */
 static unsigned long path_seed(uint64_t seed, size_t k)
 {
 	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z;
@@ -89,6 +91,13 @@ struct plan {
 static int cmp_size(const void *a, const void *b)
 {
 	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+
+	return (x > y) - (x < y);
+}
+
+static int cmp_double(const void *a, const void *b)
+{
+	double x = *(const double *)a, y = *(const double *)b;
 
 	return (x > y) - (x < y);
 }
@@ -173,7 +182,7 @@ static void workspace_release(struct workspace *w)
 static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
 {
 	memset(w, 0, sizeof *w);
-	w->rng = gsl_rng_alloc(gsl_rng_mt19937);
+	w->rng = gsl_rng_alloc(gsl_rng_taus2);
 	w->idx = hc_malloc(m * sizeof *w->idx);
 	w->acc = hc_malloc((t ? t : 1) * sizeof *w->acc);
 	w->out_v = hc_malloc(nuniq * sizeof *w->out_v);
@@ -183,6 +192,28 @@ static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
 		return -1;
 	}
 	return 0;
+}
+
+/*
+ * A uniform integer in [0, s), s >= 1, from 32-bit outputs: Lemire's
+ * multiply-and-reject method (Lemire, 2019, "Fast Random Integer Generation
+ * in an Interval", ACM TOMACS 29(1)), exact, and without the division that
+ * gsl_rng_uniform_int spends on every draw.  taus2 gives 32 uniform bits
+ * (gsl_rng_min 0, gsl_rng_max 2^32 - 1).
+ */
+static uint32_t bounded(gsl_rng *r, uint32_t s)
+{
+	uint64_t p = (uint64_t)gsl_rng_get(r) * s;
+	uint32_t low = (uint32_t)p, floor_;
+
+	if (low < s) {
+		floor_ = (uint32_t)(-s) % s;
+		while (low < floor_) {
+			p = (uint64_t)gsl_rng_get(r) * s;
+			low = (uint32_t)p;
+		}
+	}
+	return (uint32_t)(p >> 32);
 }
 
 /* Partial Fisher-Yates (Durstenfeld's in-place form): after `steps` swaps
@@ -197,7 +228,7 @@ static void shuffle(struct workspace *w, size_t m, size_t steps, unsigned long s
 	for (j = 0; j < m; j++)
 		w->idx[j] = (uint32_t)j;
 	for (j = 0; j < steps && j + 1 < m; j++) {
-		u = j + (size_t)gsl_rng_uniform_int(w->rng, (unsigned long)(m - j));
+		u = j + bounded(w->rng, (uint32_t)(m - j));
 		tmp = w->idx[j];
 		w->idx[j] = w->idx[u];
 		w->idx[u] = tmp;
@@ -226,21 +257,27 @@ static void sweep(double *restrict acc, const double *restrict x, size_t t,
 		const double *restrict c1 = x + (size_t)idx[j + 1] * t;
 		const double *restrict c2 = x + (size_t)idx[j + 2] * t;
 		const double *restrict c3 = x + (size_t)idx[j + 3] * t;
-		if (subtract)
+		if (subtract) {
+#pragma omp simd
 			for (k = 0; k < t; k++)
 				acc[k] -= (c0[k] + c1[k]) + (c2[k] + c3[k]);
-		else
+		} else {
+#pragma omp simd
 			for (k = 0; k < t; k++)
 				acc[k] += (c0[k] + c1[k]) + (c2[k] + c3[k]);
+		}
 	}
 	for (; j < to; j++) {
 		const double *restrict c0 = x + (size_t)idx[j] * t;
-		if (subtract)
+		if (subtract) {
+#pragma omp simd
 			for (k = 0; k < t; k++)
 				acc[k] -= c0[k];
-		else
+		} else {
+#pragma omp simd
 			for (k = 0; k < t; k++)
 				acc[k] += c0[k];
+		}
 	}
 }
 
@@ -677,7 +714,7 @@ int sampler_summarise(struct curve *c, const struct sampler_result *r,
 		for (k = 0; k < K; k++)
 			s1 += sd[k];
 		mean_s = (double)(s1 / K);
-		gsl_sort(sd, 1, K);
+		qsort(sd, K, sizeof *sd, cmp_double);
 		pt->sampled = 1;
 		pt->sampled_mean_variance = mean_v;
 		pt->sampled_variance_se = sqrt(var_v / (double)K);

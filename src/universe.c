@@ -28,8 +28,6 @@
  * calendar days (365 a year); below it as trading days (252).  A calendar
  * series has 2/7 of its dates on weekends, a trading-day series none. */
 #define UNIVERSE_WEEKEND_SHARE_CALENDAR (1.0 / 7.0)
-/* Longest cell text quoted back in a message. */
-#define UNIVERSE_QUOTE_MAX 40
 /* How many dropped ids a "too few left" message names. */
 #define UNIVERSE_NAME_DROPPED_MAX 5
 
@@ -267,20 +265,6 @@ static int add_dropped(struct universe *u, size_t *cap, const char *id,
 	return 0;
 }
 
-/* A cell quoted back in a message: at most UNIVERSE_QUOTE_MAX bytes. */
-static const char *quote_cell(const char *s, size_t len, char *buf, size_t bufsz)
-{
-	size_t n = len < UNIVERSE_QUOTE_MAX ? len : UNIVERSE_QUOTE_MAX;
-
-	if (n >= bufsz)
-		n = bufsz - 1;
-	memcpy(buf, s, n);
-	buf[n] = '\0';
-	if (n < len && bufsz > n + 3)
-		strcpy(buf + n, "...");
-	return buf;
-}
-
 /* ---- id checks ------------------------------------------------------------ */
 
 struct id_ref {
@@ -327,7 +311,7 @@ static int id_ref_cmp(const void *pa, const void *pb)
  * blanks, by sorting on the folded key (O(M log M), not O(M^2)).  Returns
  * 0 when all distinct, 1 with *first < *second set, -1 out of memory.
  */
-static int find_id_clash(char *const *ids, size_t n, size_t *first, size_t *second)
+int universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second)
 {
 	struct id_ref *refs;
 	size_t i;
@@ -354,8 +338,8 @@ static int find_id_clash(char *const *ids, size_t n, size_t *first, size_t *seco
 	return found;
 }
 
-static int check_id_text(const char *name, size_t line, size_t col,
-			 const char *id, size_t len, struct hc_error *err)
+int universe_check_id(const char *name, size_t line, size_t col,
+		      const char *id, size_t len, struct hc_error *err)
 {
 	size_t i;
 
@@ -523,13 +507,13 @@ static int wide_header(struct loader *L, struct hc_error *err)
 	for (i = 0; i < L->ncols; i++) {
 		if (i == L->date_col)
 			continue;
-		rc = check_id_text(L->name, 1, i + 1, L->header[i], strlen(L->header[i]), err);
+		rc = universe_check_id(L->name, 1, i + 1, L->header[i], strlen(L->header[i]), err);
 		if (rc != HC_OK)
 			return rc;
 		L->ids[L->m++] = L->header[i];
 		L->header[i] = NULL;   /* now owned by ids */
 	}
-	rc = find_id_clash(L->ids, L->m, &a, &b);
+	rc = universe_id_clash(L->ids, L->m, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 	if (rc > 0) {
@@ -572,7 +556,7 @@ static int long_header(struct loader *L, struct hc_error *err)
 static int parse_cell(const struct loader *L, const struct csvread_field *f,
 		      double *out, struct hc_error *err)
 {
-	char q[UNIVERSE_QUOTE_MAX + 4];
+	char q[CSVREAD_QUOTE_BUF];
 	int pct = 0;
 	double v;
 
@@ -583,16 +567,16 @@ static int parse_cell(const struct loader *L, const struct csvread_field *f,
 	if (csvread_parse_number(f->text, f->len, &v, &pct) != 0)
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: expected a number or a missing marker, found '%s'",
-			L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q));
+			L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
 	if (L->opt->values != UNIVERSE_RETURNS) {
 		if (pct)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a price, found the percent '%s'",
-				L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q));
+				L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
 		if (v <= 0)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a positive price, found '%s'",
-				L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q));
+				L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
 	} else if (L->opt->percent && !pct) {
 		v /= 100.0;
 	}
@@ -603,14 +587,14 @@ static int parse_cell(const struct loader *L, const struct csvread_field *f,
 static int date_cell(const struct loader *L, const struct csvread_field *f,
 		     int32_t *out, struct hc_error *err)
 {
-	char q[UNIVERSE_QUOTE_MAX + 4];
+	char q[CSVREAD_QUOTE_BUF];
 	int rc = parse_date(f->text, f->len, out);
 
 	if (rc == 0)
 		return HC_OK;
 	return hc_error(err, HC_EDATA,
 		"%s:%zu:%zu: expected a date as YYYY-MM-DD or YYYY-MM, found '%s'%s",
-		L->name, f->line, f->column, quote_cell(f->text, f->len, q, sizeof q),
+		L->name, f->line, f->column, csvread_quote(f->text, f->len, q),
 		rc == -2 ? " (no such day)" : "");
 }
 
@@ -745,7 +729,7 @@ static int long_id(struct loader *L, const struct csvread_field *f,
 			return HC_OK;
 		}
 	}
-	rc = check_id_text(L->name, f->line, f->column, f->text, f->len, err);
+	rc = universe_check_id(L->name, f->line, f->column, f->text, f->len, err);
 	if (rc != HC_OK)
 		return rc;
 	if (L->m == L->cap_ids) {
@@ -901,14 +885,15 @@ static int long_finish(struct loader *L, struct universe *u, struct hc_error *er
 	char ds[11];
 	int rc;
 
-	rc = find_id_clash(L->ids, L->m, &a, &b);
+	rc = universe_id_clash(L->ids, L->m, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 	if (rc > 0)
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: security id '%s' differs only in case or surrounding spaces from '%s' (line %zu); expected distinct ids",
 			L->name, L->id_line[b], L->id_col + 1, L->ids[b], L->ids[a], L->id_line[a]);
-	qsort(L->lrows, L->nlrows, sizeof *L->lrows, long_row_cmp);
+	if (L->nlrows > 1)
+		qsort(L->lrows, L->nlrows, sizeof *L->lrows, long_row_cmp);
 	for (i = 1; i < L->nlrows; i++) {
 		if (L->lrows[i].sec == L->lrows[i - 1].sec && L->lrows[i].date == L->lrows[i - 1].date) {
 			universe_format_date(L->lrows[i].date, ds);
@@ -922,7 +907,8 @@ static int long_finish(struct loader *L, struct universe *u, struct hc_error *er
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 	for (i = 0; i < L->nlrows; i++)
 		d[i] = L->lrows[i].date;
-	qsort(d, L->nlrows, sizeof *d, int32_cmp);
+	if (L->nlrows > 1)
+		qsort(d, L->nlrows, sizeof *d, int32_cmp);
 	for (i = 0; i < L->nlrows; i++)
 		if (t == 0 || d[i] != d[t - 1])
 			d[t++] = d[i];

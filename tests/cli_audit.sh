@@ -105,7 +105,7 @@ expect 4 "$T/none.csv" -- audit "$T/u.csv" --holdings "$T/none.csv"
 # the bundled demo: three invented funds; the concentrated and the
 # screen-breaking fund fail --screens all, the broad one passes
 D="$HOLDCOUNT_SOURCE_DIR/data"
-expect 1 "2 of 3 funds fail the policy: 'Gannet Focus Fund' (1940act) 'Puffin Select Fund' (ucits, 1940act)" -- \
+expect 1 "2 of 3 funds fail the policy: 'Lirrand Focus Fund A' (1940act) 'Lirrand Select Fund C' (ucits, 1940act)" -- \
 	audit "$D/demo-universe.csv" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" --screens all --paths 500
 
 if [ "$fails" -ne 0 ]; then

@@ -3,7 +3,9 @@
 # --version.  Expected messages are the project's own contract (cli.h);
 # exit statuses are the HC_* codes of include/holdcount/error.h.
 set -u
+export LC_ALL=C
 HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
+PY=${PYTHON:-/usr/bin/python3}
 T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_framework.$$
 mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
 fails=0
@@ -60,7 +62,35 @@ expect 2 "holdcount: unknown option '--bogus'" -- --bogus
 expect 2 "usage: holdcount COMMAND" --
 HOLDCOUNT_THREADS=abc expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number from 1, found 'abc'" -- curve u.csv
 HOLDCOUNT_THREADS=0 expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number" -- curve u.csv
-expect 2 "holdcount synth: not built yet" -- synth
+expect 2 "holdcount synth: unknown option '--bogus' (see 'holdcount synth --help')" -- synth --bogus
+
+# Manual pages (roff) from the same tables: groff -ww finds nothing to warn
+# about, and each page lists exactly the options --help lists.
+command -v groff >/dev/null || { echo "FAIL: groff is needed to check the manual pages"; exit 1; }
+for c in "" describe curve formula enough audit rolling report synth; do
+	"$HC" help --man $c >"$T/page.1" || fail "help --man $c exit $?"
+	groff -ww -man -Tutf8 -P-cbou "$T/page.1" >"$T/page.txt" 2>"$T/groff.err" || fail "groff on the $c page exit $?"
+	[ -s "$T/groff.err" ] && fail "groff warnings on the $c page: $(head -c 300 "$T/groff.err")"
+	if [ -n "$c" ]; then
+		"$HC" help "$c" | grep -oE -- '--[a-z][a-z-]*' | sort -u >"$T/o_help"
+		# roff spells a hyphen \- ; undo that, then collect the option names
+		# (before EXIT STATUS: the ENVIRONMENT section names --threads)
+		"$PY" -c 'import re,sys; t=open(sys.argv[1]).read().split(".SH EXIT STATUS")[0].replace("\\-","-"); print("\n".join(sorted(set(re.findall(r"--[a-z][a-z-]*", t)))))' "$T/page.1" >"$T/o_man"
+		cmp -s "$T/o_help" "$T/o_man" || fail "help and manual page of $c list different options: $(diff "$T/o_help" "$T/o_man" | head -5)"
+		grep -qE "^ *holdcount-$c +- " "$T/page.txt" || fail "$c page has no NAME line"
+	fi
+	grep -q "EXIT STATUS" "$T/page.txt" || fail "page '$c' lacks EXIT STATUS"
+done
+expect 2 "holdcount: unknown command 'curvy'" -- help --man curvy
+
+# Bash completion: commands, options, choice values.
+"$HC" help --bash-completion >"$T/comp.bash" || fail "help --bash-completion exit $?"
+complete_words() { bash -c 'source "$1"; shift; COMP_WORDS=("$@"); COMP_CWORD=$(($# - 1)); _holdcount; echo "${COMPREPLY[*]}"' _ "$T/comp.bash" "$@"; }
+[ "$(complete_words holdcount cu)" = "curve" ] || fail "completion of 'cu': '$(complete_words holdcount cu)'"
+[ "$(complete_words holdcount curve --pa)" = "--paths" ] || fail "completion of 'curve --pa'"
+[ "$(complete_words holdcount curve --format '')" = "table csv json" ] || fail "completion of --format values"
+[ "$(complete_words holdcount formula --average-c)" = "--average-covariance --average-correlation" ] || fail "completion of 'formula --average-c': '$(complete_words holdcount formula --average-c)'"
+[ "$(complete_words holdcount help des)" = "describe" ] || fail "completion of 'help des'"
 
 # --version names holdcount, GSL and the BLAS (issue 8).
 "$HC" --version >"$T/v" || fail "--version exit $?"

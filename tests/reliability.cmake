@@ -31,10 +31,24 @@ set(VALGRIND_COMMAND ${VALGRIND} -q --error-exitcode=99 --leak-check=full
     --suppressions=${CMAKE_CURRENT_SOURCE_DIR}/valgrind.supp)
 list(JOIN VALGRIND_COMMAND " " VALGRIND_COMMAND_TEXT)
 
+# Left out: test_sampler, whose checks agree with exact values to 1e-12 using
+# long double sums; valgrind runs long double arithmetic in 64 bits (its
+# manual, "Limitations": no 80-bit x87 arithmetic), so those checks fail for
+# a reason that is not the code's.  The sampler still runs under memcheck
+# through `holdcount curve` in memcheck/cli_commands.sh, and under ASan and
+# LeakSanitizer in the sanitizer stage.
+set(MEMCHECK_LEFT_OUT test_sampler)
 foreach(src ${UNIT_TESTS})
   get_filename_component(name ${src} NAME_WE)
+  if(name IN_LIST MEMCHECK_LEFT_OUT)
+    continue()
+  endif()
   add_test(NAME memcheck_${name} COMMAND ${VALGRIND_COMMAND} $<TARGET_FILE:${name}>)
-  set_tests_properties(memcheck_${name} PROPERTIES ENVIRONMENT "${TEST_ENV}" LABELS "memcheck")
+  # HOLDCOUNT_TEST_NO_TCACHE: test_csvread re-executes /proc/self/exe to turn
+  # glibc's malloc cache off, which under valgrind is valgrind itself; with
+  # valgrind's own allocator the cache does not exist anyway.
+  set_tests_properties(memcheck_${name} PROPERTIES LABELS "memcheck"
+    ENVIRONMENT "${TEST_ENV};HOLDCOUNT_TEST_NO_TCACHE=1")
 endforeach()
 
 # The shell runners put HOLDCOUNT_WRAPPER in front of every holdcount call.

@@ -14,7 +14,10 @@
 
 #include "holdcount/bootstrap.h"
 #include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/sampler.h"
 #include "holdcount/rules.h"
+#include "fixture.h"
 
 /* cmocka's float comparison is single precision; this one is double. */
 #define assert_close(a, b, tol) do { \
@@ -417,6 +420,149 @@ static void test_bootstrap_interval_covers_true_count(void **state)
 	free(x);
 }
 
+/* The replicate figures against the moments module (a separate
+ * implementation: centred columns and the Gram or matrix route) run on the
+ * universe that universe_resample builds from the same indices. */
+static void test_bootstrap_agrees_with_moments_module(void **state)
+{
+	struct universe *u = fixture_random_universe(23, 31, 2385), *ru = NULL;
+	struct bootstrap_base *b = NULL;
+	struct moments mo;
+	struct hc_error err;
+	size_t idx[31], rep;
+	double w[31], vbar, cbar;
+
+	assert_non_null(u);
+	assert_int_equal(bootstrap_base_alloc(&b, u, &err), HC_OK);
+	for (rep = 0; rep < 4; rep++) {
+		assert_int_equal(bootstrap_indices(rep % 2, 31, 4, 99, rep, idx, &err), HC_OK);
+		counts_of(idx, 31, w);
+		bootstrap_moments(b, w, &vbar, &cbar);
+		assert_int_equal(universe_resample(&ru, u, idx, 31, &err), HC_OK);
+		assert_int_equal(moments_from_universe(&mo, ru, &err), HC_OK);
+		assert_close(vbar, mo.average_variance, 1e-10 * mo.average_variance);
+		assert_close(cbar, mo.average_covariance, 1e-10 * fabs(mo.average_covariance));
+		universe_free(ru);
+	}
+	bootstrap_base_free(b);
+	fixture_free(u);
+}
+
+/* The sampled rules' interval: each replicate is the band and shortfall
+ * count of the sampler run on the resampled universe (rebuilt here step by
+ * step from the public functions), and the result is the same for 1 and 2
+ * threads. */
+static void test_bootstrap_sampled_rules_interval(void **state)
+{
+	enum { M = 14, T = 60, B = 5 };
+	struct universe *u = fixture_random_universe(M, T, 777);
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_options bo;
+	struct sampler_options so;
+	struct rules_config cfg;
+	struct rule_result res[2], res2[2];
+	struct hc_error err;
+	size_t sizes[M], idx[T], band[B], shortfall[B], k, rep;
+	double w[T];
+
+	assert_non_null(u);
+	for (k = 0; k < M; k++)
+		sizes[k] = k + 1;
+	rules_config_init(&cfg);
+	cfg.band_x = 0.6;            /* so that the band is met inside 14 */
+	cfg.shortfall_d = 0.04;
+	bootstrap_options_init(&bo);
+	bo.replicates = B;
+	bo.seed = 4321;
+	sampler_options_init(&so);
+	so.paths = 150;
+	so.periods_per_year = 12;
+	so.threads = 1;
+	assert_int_equal(bootstrap_base_alloc(&b, u, &err), HC_OK);
+	for (rep = 0; rep < B; rep++) {
+		struct universe *ru = NULL;
+		struct sampler_result *sr = NULL;
+		struct sampler_options s1 = so;
+		struct rule_result rr;
+		double vbar, cbar, uret;
+
+		assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, T, bootstrap_default_block_length(T),
+						   bo.seed, rep, idx, &err), HC_OK);
+		counts_of(idx, T, w);
+		bootstrap_moments(b, w, &vbar, &cbar);
+		assert_int_equal(universe_resample(&ru, u, idx, T, &err), HC_OK);
+		s1.seed = rules_replicate_seed(bo.seed, rep);
+		s1.want_returns = 1;
+		assert_int_equal(sampler_run(&sr, ru, sizes, M, &s1, &err), HC_OK);
+		assert_int_equal(rules_band(&cfg, sr, cbar, 12, &rr, &err), HC_OK);
+		band[rep] = rr.met ? rr.count : 0;
+		assert_int_equal(rules_universe_return(ru, 12, &uret, &err), HC_OK);
+		assert_int_equal(rules_shortfall(&cfg, sr, uret, &rr, &err), HC_OK);
+		shortfall[rep] = rr.met ? rr.count : 0;
+		sampler_result_free(sr);
+		universe_free(ru);
+	}
+	res[0].rule = RULES_BAND;
+	res[1].rule = RULES_SHORTFALL;
+	res[0].defined = res[1].defined = 1;
+	res[0].bootstrapped = res[1].bootstrapped = 0;
+	memcpy(res2, res, sizeof res);
+	assert_int_equal(rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res, 2, &err), HC_OK);
+	so.threads = 2;
+	assert_int_equal(rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res2, 2, &err), HC_OK);
+	assert_memory_equal(res, res2, sizeof res);
+	/* 5 replicates: the numpy linear percentiles of the sorted counts sit at
+	 * h = 0.2, 2 and 3.8 */
+	{
+		struct rule_result ref;
+		size_t *sets[2] = { band, shortfall };
+
+		for (k = 0; k < 2; k++) {
+			ref.rule = res[k].rule;
+			rules_set_interval(&ref, sets[k], B);
+			assert_true(res[k].bootstrapped);
+			assert_int_equal(res[k].replicates, B);
+			assert_int_equal(res[k].replicates_met, ref.replicates_met);
+			assert_true(res[k].count_p50 == ref.count_p50 || (isnan(res[k].count_p50) && isnan(ref.count_p50)));
+			assert_true(res[k].count_p05 == ref.count_p05 || (isnan(res[k].count_p05) && isnan(ref.count_p05)));
+		}
+		/* rules_set_interval sorted band (not met last): h = 2 is the
+		 * middle replicate */
+		if (band[2] != 0)
+			assert_close(res[0].count_p50, (double)band[2], 0);
+		print_message("band counts %zu %zu %zu %zu %zu\n", band[0], band[1], band[2], band[3], band[4]);
+	}
+	bootstrap_base_free(b);
+	fixture_free(u);
+}
+
+/* The universe return of the shortfall rule is the sampler's portfolio
+ * return at N = M (every path then holds the whole universe): two
+ * implementations of prod(1 + R_t)^(P/T) - 1 that must agree. */
+static void test_bootstrap_universe_return_matches_sampler(void **state)
+{
+	enum { M = 9, T = 37 };
+	struct universe *u = fixture_random_universe(M, T, 5150);
+	struct sampler_options so;
+	struct sampler_result *sr = NULL;
+	struct hc_error err;
+	size_t size = M, k;
+	double uret;
+
+	assert_non_null(u);
+	sampler_options_init(&so);
+	so.paths = 3;
+	so.want_returns = 1;
+	so.periods_per_year = 12;
+	so.threads = 1;
+	assert_int_equal(sampler_run(&sr, u, &size, 1, &so, &err), HC_OK);
+	assert_int_equal(rules_universe_return(u, 12, &uret, &err), HC_OK);
+	for (k = 0; k < 3; k++)
+		assert_close(sr->annual_return[k], uret, 1e-12);
+	sampler_result_free(sr);
+	fixture_free(u);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -430,6 +576,9 @@ int main(void)
 		cmocka_unit_test(test_bootstrap_progress_can_stop),
 		cmocka_unit_test(test_bootstrap_allocation_failures),
 		cmocka_unit_test(test_bootstrap_interval_covers_true_count),
+		cmocka_unit_test(test_bootstrap_agrees_with_moments_module),
+		cmocka_unit_test(test_bootstrap_sampled_rules_interval),
+		cmocka_unit_test(test_bootstrap_universe_return_matches_sampler),
 	};
 
 	gsl_set_error_handler_off();

@@ -177,6 +177,8 @@ static void test_csvread_empty_file(void **state)
 	assert_string_equal(err.message, "t.csv: empty file");
 	assert_int_equal(run(&g, "\xEF\xBB\xBF", 3, 0, NULL, &err), HC_EDATA);
 	assert_string_equal(err.message, "t.csv: empty file");
+	assert_int_equal(run(&g, NULL, 0, 0, NULL, &err), HC_EDATA);   /* found by fuzzing: no pointer arithmetic on NULL */
+	assert_string_equal(err.message, "t.csv: empty file");
 	assert_int_equal(run(&g, "\n\r\n  \n", 6, 0, NULL, &err), HC_EDATA);
 	assert_string_equal(err.message, "t.csv: empty file");
 }
@@ -441,6 +443,22 @@ static void test_csvread_is_missing(void **state)
 		assert_int_equal(csvread_is_missing(no[i], strlen(no[i])), 0);
 }
 
+static void test_csvread_quote(void **state)
+{
+	char buf[CSVREAD_QUOTE_BUF];
+	char long_cell[100];
+
+	assert_string_equal(csvread_quote("x\r\ny\tz\001", 7, buf), "x\\r\\ny\\tz?");
+	memset(long_cell, 'k', sizeof long_cell);
+	csvread_quote(long_cell, sizeof long_cell, buf);
+	assert_int_equal(strlen(buf), CSVREAD_QUOTE_MAX + 3);
+	assert_string_equal(buf + CSVREAD_QUOTE_MAX, "...");
+	/* the worst case fills the buffer exactly: every byte escaped, then "..." */
+	memset(long_cell, '\n', sizeof long_cell);
+	csvread_quote(long_cell, sizeof long_cell, buf);
+	assert_int_equal(strlen(buf), CSVREAD_QUOTE_BUF - 1);
+}
+
 /* Unicode Standard Table 3-7: well-formed sequences and classic ill-formed ones. */
 static void test_csvread_utf8_valid(void **state)
 {
@@ -486,6 +504,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_csvread_parse_number_matches_strtod),
 		cmocka_unit_test(test_csvread_parse_number_rejects),
 		cmocka_unit_test(test_csvread_is_missing),
+		cmocka_unit_test(test_csvread_quote),
 		cmocka_unit_test(test_csvread_utf8_valid),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);

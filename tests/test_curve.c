@@ -5,7 +5,10 @@
  * and Statman (1987) (from memory, design.md section 11), and hand-written
  * expectations for the size-list grammar.
  */
+#define _POSIX_C_SOURCE 200809L /* open_memstream */
 #include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -18,6 +21,8 @@
 #include "fixture.h"
 #include "holdcount/curve.h"
 #include "holdcount/memory.h"
+#include "holdcount/report.h"
+#include "holdcount/sampler.h"
 
 static void assert_close(double got, double want, double scale, double rel)
 {
@@ -357,6 +362,115 @@ static void test_curve_allocation_failure(void **state)
 	curve_free(c);
 }
 
+/* curve_report: the column contract of issue 2, in order, every cell the
+ * curve's own figure, sampled cells empty when not sampled; rendered by the
+ * CSV writer, the header row is exactly the contract. */
+static const char *const contract =
+	"n,expected_variance,expected_sd,variance_sd,expected_tracking_error,"
+	"diversifiable_share,sampled_mean_variance,sampled_variance_se,"
+	"sampled_mean_sd,sd_p05,sd_p50,sd_p95,z_score";
+
+static void test_curve_report_columns(void **state)
+{
+	const size_t sizes[] = {1, 3, 10};
+	struct universe *u = fixture_random_universe(10, 14, 2718);
+	struct sampler_options opt;
+	struct sampler_result *res;
+	struct moments mo;
+	struct curve *c;
+	struct report *r;
+	struct report_table *t;
+	struct hc_error err;
+	char *buf = NULL, line[512];
+	size_t len = 0, i, j, at = 0;
+	FILE *fp;
+
+	assert_non_null(u);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(curve_exact(&c, &mo, sizes, 3, 12.0, &err), HC_OK);
+	r = report_alloc();
+	assert_non_null(r);
+	t = report_add_table(r, "curve", "risk by holding count");
+	assert_non_null(t);
+	assert_int_equal(curve_report(c, t), HC_OK);
+	assert_int_equal(t->ncols, 13);
+	assert_int_equal(t->nrows, 3);
+	for (j = 0; j < t->ncols; j++) {
+		size_t k = strlen(t->cols[j].key);
+		assert_memory_equal(contract + at, t->cols[j].key, k);
+		at += k + 1;
+	}
+	assert_int_equal(at, strlen(contract) + 1);
+	for (i = 0; i < 3; i++) {
+		const struct report_value *row = t->cells + i * t->ncols;
+		assert_int_equal(row[0].kind, REPORT_INT);
+		assert_int_equal(row[0].integer, (long long)sizes[i]);
+		assert_true(row[1].real == c->points[i].expected_variance);
+		assert_true(row[2].real == c->points[i].expected_sd);
+		assert_true(row[3].real == c->points[i].variance_sd);
+		assert_true(row[4].real == c->points[i].expected_tracking_error);
+		assert_true(row[5].real == c->points[i].diversifiable_share);
+		for (j = 6; j < 13; j++)
+			assert_int_equal(row[j].kind, REPORT_NONE);
+	}
+	assert_int_equal(t->cells[2 * 13 + 4].kind, REPORT_REAL); /* TE is 0 at n = M */
+	assert_int_equal(curve_report(c, t), HC_EUSAGE);             /* columns already there */
+	report_free(r);
+
+	/* Sampled: every cell filled except z at n = M (standard error 0). */
+	sampler_options_init(&opt);
+	opt.paths = 64;
+	opt.seed = 8;
+	opt.threads = 1;
+	assert_int_equal(sampler_run(&res, u, sizes, 3, &opt, &err), HC_OK);
+	assert_int_equal(sampler_summarise(c, res, &err), HC_OK);
+	r = report_alloc();
+	assert_non_null(r);
+	t = report_add_table(r, "curve", NULL);
+	assert_non_null(t);
+	assert_int_equal(curve_report(c, t), HC_OK);
+	assert_true(t->cells[0 * 13 + 6].real == c->points[0].sampled_mean_variance);
+	assert_true(t->cells[1 * 13 + 7].real == c->points[1].sampled_variance_se);
+	assert_true(t->cells[1 * 13 + 8].real == c->points[1].sampled_mean_sd);
+	assert_true(t->cells[1 * 13 + 9].real == c->points[1].sd_p05);
+	assert_true(t->cells[1 * 13 + 10].real == c->points[1].sd_p50);
+	assert_true(t->cells[1 * 13 + 11].real == c->points[1].sd_p95);
+	assert_true(t->cells[1 * 13 + 12].real == c->points[1].z_score);
+	assert_int_equal(t->cells[2 * 13 + 12].kind, REPORT_NONE);
+	fp = open_memstream(&buf, &len);
+	assert_non_null(fp);
+	assert_int_equal(report_writer_csv->write(fp, r, &err), HC_OK);
+	fclose(fp);
+	assert_non_null(buf);
+	assert_int_equal(sscanf(buf, "%511[^\n]", line), 1);
+	assert_string_equal(line, contract);
+	free(buf);
+	report_free(r);
+	sampler_result_free(res);
+
+	/* Allocation failure while growing the table. */
+	{
+		long k;
+		int rc;
+		for (k = 0;; k++) {
+			r = report_alloc();
+			assert_non_null(r);
+			t = report_add_table(r, "curve", NULL);
+			assert_non_null(t);
+			hc_alloc_fail_after(k);
+			rc = curve_report(c, t);
+			hc_alloc_fail_after(-1);
+			report_free(r);
+			if (rc == HC_OK)
+				break;
+			assert_int_equal(rc, HC_ENOMEM);
+		}
+		assert_true(k >= 2);
+	}
+	curve_free(c);
+	fixture_free(u);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -369,6 +483,7 @@ int main(void)
 		cmocka_unit_test(test_curve_parse_sizes),
 		cmocka_unit_test(test_curve_default_sizes),
 		cmocka_unit_test(test_curve_allocation_failure),
+		cmocka_unit_test(test_curve_report_columns),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

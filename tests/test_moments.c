@@ -341,6 +341,63 @@ static void test_moments_allocation_failure(void **state)
 	fixture_free(m);
 }
 
+/* moments_covariance: the full matrix against the textbook two-pass
+ * covariance (complete data), and pairwise entries against the covariance
+ * of the overlapping periods (a security with a gap). */
+static void test_moments_covariance_matrix(void **state)
+{
+	size_t m = 6, t = 11, i, j, k, n;
+	double x[66], y[60], ref[36], ref10[36], *a;
+	struct universe *u, *u10;
+	struct hc_error err;
+
+	fixture_returns(x, m, t, 1618);
+	u = fixture_universe(x, m, t);
+	assert_non_null(u);
+	fixture_covariance(u, ref);
+	assert_int_equal(moments_covariance(u, &a, &err), HC_OK);
+	for (i = 0; i < m * m; i++)
+		assert_close(a[i], ref[i], ref[0], 1e-12);
+	hc_free(a);
+	fixture_free(u);
+
+	/* Security 4 misses period 7: its pairs use the other 10 periods. */
+	for (i = 0; i < m; i++)
+		for (k = 0, n = 0; k < t; k++)
+			if (k != 7)
+				y[i * 10 + n++] = x[i * t + k];
+	u10 = fixture_universe(y, m, 10);
+	assert_non_null(u10);
+	fixture_covariance(u10, ref10);
+	x[4 * t + 7] = NAN;
+	u = fixture_universe(x, m, t);
+	assert_non_null(u);
+	assert_int_equal(moments_covariance(u, &a, &err), HC_OK);
+	for (i = 0; i < m; i++)
+		for (j = 0; j < m; j++)
+			assert_close(a[i * m + j], (i == 4 || j == 4) ? ref10[i * m + j] : ref[i * m + j],
+				     ref[0], 1e-12);
+	hc_free(a);
+
+	a = (double *)&err;
+	hc_alloc_fail_after(0);
+	assert_int_equal(moments_covariance(u, &a, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+	assert_null(a);
+	u->has_missing = 0;
+	for (k = 0; k < 2; k++) {
+		hc_alloc_fail_after((long)k);
+		assert_int_equal(moments_covariance(u10, &a, &err), HC_ENOMEM);
+		hc_alloc_fail_after(-1);
+		assert_null(a);
+	}
+	u->m = 1;
+	assert_int_equal(moments_covariance(u, &a, &err), HC_EDATA);
+	u->m = m;
+	fixture_free(u);
+	fixture_free(u10);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -353,6 +410,7 @@ int main(void)
 		cmocka_unit_test(test_moments_summary_rejects_impossible),
 		cmocka_unit_test(test_moments_rejects_bad_data),
 		cmocka_unit_test(test_moments_allocation_failure),
+		cmocka_unit_test(test_moments_covariance_matrix),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

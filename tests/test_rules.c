@@ -16,6 +16,7 @@
 
 #include "holdcount/bootstrap.h"
 #include "holdcount/memory.h"
+#include "holdcount/report.h"
 #include "holdcount/rules.h"
 
 /* cmocka's float comparison is single precision; this one is double. */
@@ -543,6 +544,66 @@ static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
 	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_EUSAGE);
 }
 
+static void test_rules_report_contract_columns(void **state)
+{
+	static const char *const keys[] = { "rule", "parameters", "count", "value_at_count",
+		"count_p05", "count_p50", "count_p95", "met", "unit", "threshold",
+		"replicates", "replicates_met", "note" };
+	struct rules_config cfg;
+	struct rules_input in = { 0.011384, 0.0021937, 500, 12, NULL, 0 };
+	struct rule_result res[RULES_COUNT];
+	struct report *rep;
+	struct report_table *t;
+	struct hc_error err;
+	size_t n, k, counts[21];
+	long fail;
+
+	rules_config_init(&cfg);
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	for (k = 0; k < 21; k++)
+		counts[k] = k < 3 ? 0 : 17 + k % 5;   /* 3 of 21 not met: p95 "not met" */
+	rules_set_interval(&res[0], counts, 21);
+	rep = report_alloc();
+	assert_non_null(rep);
+	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	assert_int_equal(rep->ntables, 1);
+	t = rep->tables[0];
+	assert_string_equal(t->key, "rules");
+	assert_int_equal(t->ncols, 13);
+	for (k = 0; k < 13; k++)
+		assert_string_equal(t->cols[k].key, keys[k]);
+	assert_int_equal(t->nrows, RULES_COUNT);
+	/* near-floor: count 20, interval with a "not met" 95th percentile */
+	assert_int_equal(t->cells[2].kind, REPORT_INT);
+	assert_int_equal(t->cells[2].integer, 20);
+	assert_int_equal(t->cells[4].kind, REPORT_REAL);
+	assert_int_equal(t->cells[6].kind, REPORT_TEXT);
+	assert_string_equal(t->cells[6].text, "not met");
+	assert_int_equal(t->cells[10].integer, 21);
+	assert_int_equal(t->cells[11].integer, 18);
+	/* band (row 2): not evaluated, so no count, no interval, a note */
+	assert_int_equal(t->cells[2 * 13 + 2].kind, REPORT_NONE);
+	assert_int_equal(t->cells[2 * 13 + 4].kind, REPORT_NONE);
+	assert_int_equal(t->cells[2 * 13 + 7].kind, REPORT_BOOL);
+	assert_int_equal(t->cells[2 * 13 + 7].integer, 0);
+	assert_string_equal(t->cells[2 * 13 + 12].text, "needs return data and sampled portfolios");
+	report_free(rep);
+	/* every allocation failure is reported, none leaks or crashes */
+	for (fail = 0; fail < 200; fail++) {
+		int rc;
+
+		hc_alloc_fail_after(fail);
+		rep = report_alloc();
+		rc = rep ? rules_report(rep, res, n, &err) : HC_ENOMEM;
+		hc_alloc_fail_after(-1);
+		report_free(rep);
+		if (rc == HC_OK)
+			break;
+		assert_int_equal(rc, HC_ENOMEM);
+	}
+	assert_true(fail > 10 && fail < 200);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -558,6 +619,7 @@ int main(void)
 		cmocka_unit_test(test_rules_bootstrap_percentiles),
 		cmocka_unit_test(test_rules_parse_list_and_config),
 		cmocka_unit_test(test_rules_evaluate_selects_and_reports_sampled_needs),
+		cmocka_unit_test(test_rules_report_contract_columns),
 	};
 
 	gsl_set_error_handler_off();

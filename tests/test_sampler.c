@@ -203,6 +203,46 @@ static void test_sampler_portfolios_are_subsets(void **state)
 	fixture_free(u);
 }
 
+/* Universes of 2 and 3 securities (every size reached backwards from the
+ * total): each 1-holding portfolio is one security, each M-holding one the
+ * universe; both routes. */
+static void test_sampler_tiny_universes(void **state)
+{
+	const size_t sizes[] = {1, 2, 3};
+	size_t m, i, k, K = 50;
+	double a[9], x[3 * 7];
+	struct universe *u;
+	struct sampler_options opt;
+	struct sampler_result *r, *rm;
+	struct hc_error err;
+
+	for (m = 2; m <= 3; m++) {
+		fixture_returns(x, m, 7, 100 + m);
+		u = fixture_universe(x, m, 7);
+		assert_non_null(u);
+		fixture_covariance(u, a);
+		options(&opt, K, 9, 2);
+		assert_int_equal(sampler_run(&r, u, sizes, m, &opt, &err), HC_OK);
+		assert_int_equal(sampler_run_matrix(&rm, a, m, sizes, m, &opt, &err), HC_OK);
+		for (k = 0; k < K; k++) {
+			int hit = 0;
+			double all = 0;
+			for (i = 0; i < m * m; i++)
+				all += a[i];
+			for (i = 0; i < m; i++)
+				if (fabs(r->variance[k * m] - a[i * m + i]) <= 1e-12 * a[i * m + i])
+					hit = 1;
+			assert_true(hit);
+			assert_close(r->variance[k * m + m - 1], all / (double)(m * m), 0, 1e-12);
+			for (i = 0; i < m; i++)
+				assert_close(r->variance[k * m + i], rm->variance[k * m + i], 0, 1e-12);
+		}
+		sampler_result_free(r);
+		sampler_result_free(rm);
+		fixture_free(u);
+	}
+}
+
 /* The matrix route (running quadratic form) draws the same portfolios from
  * the same seed, so its variances match the column route's (which reaches
  * large sizes backwards from the total) to rounding. */
@@ -407,6 +447,7 @@ int main(void)
 		cmocka_unit_test(test_sampler_threads_identical),
 		cmocka_unit_test(test_sampler_portfolios_are_subsets),
 		cmocka_unit_test(test_sampler_matrix_route_matches_columns),
+		cmocka_unit_test(test_sampler_tiny_universes),
 		cmocka_unit_test(test_sampler_summary_brute_force),
 		cmocka_unit_test(test_sampler_rejects_bad_requests),
 		cmocka_unit_test(test_sampler_allocation_failure),

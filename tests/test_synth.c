@@ -23,6 +23,7 @@
 
 #include "holdcount/memory.h"
 #include "holdcount/synth.h"
+#include "holdcount/universe.h"
 
 /* A model and its generated returns (security-major). */
 struct sample {
@@ -673,6 +674,55 @@ static void test_synth_parameters_file(void **state)
 	synth_model_free(mo);
 }
 
+/* The project's loader reads what synth writes: securities with gaps are
+ * dropped under the complete-data policy, the rest hold exactly the
+ * generated doubles, and the dates and periods per year come back. */
+static void test_synth_loader_reads_output(void **state)
+{
+	struct synth_options opt;
+	struct universe_options uo;
+	struct universe *u;
+	struct sample smp;
+	struct hc_error err;
+	char *buf, *sec;
+	size_t len, slen, i, k, kept = 0;
+
+	synth_options_init(&opt);
+	opt.securities = 30;
+	opt.periods = 60;
+	opt.sectors = 4;
+	opt.late_share = 0.2;
+	opt.early_share = 0.2;
+	opt.seed = 1414;
+	sample_make(&smp, &opt);
+	assert_int_equal(write_mem(&opt, &buf, &len, &sec, &slen, &err), HC_OK);
+	universe_options_init(&uo);
+	assert_int_equal(universe_load_buffer(&u, "synth.csv", buf, len, &uo, &err), HC_OK);
+	assert_int_equal(u->m_read, opt.securities);
+	assert_int_equal(u->t, opt.periods);
+	assert_true(u->periods_per_year == 12.0);
+	for (k = 0; k < u->t; k++)
+		assert_int_equal(u->dates[k], smp.mo->dates[k]);
+	for (i = 0; i < smp.mo->m; i++) {
+		long j = universe_find(u, smp.mo->ids[i]);
+		int complete = smp.mo->first[i] == 0 && smp.mo->end[i] == smp.mo->t;
+
+		assert_int_equal(j >= 0, complete);
+		if (j < 0)
+			continue;
+		kept++;
+		for (k = 0; k < u->t; k++)
+			assert_true(u->x[(size_t)j * u->t + k] == smp.x[i * smp.mo->t + k]);
+	}
+	assert_int_equal(u->m, kept);
+	assert_int_equal(u->ndropped, opt.securities - kept);
+	assert_true(kept > 2 && kept < opt.securities);
+	universe_free(u);
+	free(buf);
+	free(sec);
+	sample_release(&smp);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -689,6 +739,7 @@ int main(void)
 		cmocka_unit_test(test_synth_allocation_failure),
 		cmocka_unit_test(test_synth_write_failure),
 		cmocka_unit_test(test_synth_parameters_file),
+		cmocka_unit_test(test_synth_loader_reads_output),
 	};
 
 	gsl_set_error_handler_off();

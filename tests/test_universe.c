@@ -281,6 +281,7 @@ static void test_universe_long_errors(void **state)
 		     "u.csv:2:3: expected a number or a missing marker, found 'abc'");
 	expect_error("date,id,value\n2021-01-31,A\n", &o, HC_EDATA,
 		     "u.csv:2:2: row has 2 fields; expected 3 as in the header");
+	expect_error("date,id,value\n", &o, HC_EDATA, "u.csv: no data rows after the header");  /* found by fuzzing */
 	o.id_column = "date";
 	expect_error("date,id,value\n2021-01-31,A,1\n", &o, HC_EUSAGE,
 		     "u.csv: the date, id and value columns must be three different columns");
@@ -352,6 +353,8 @@ static void test_universe_bad_cells(void **state)
 
 	expect_error("date,A,B\n2021-01-31,0.01,0.02\n2021-02-28,abc,0.01\n", NULL, HC_EDATA,
 		     "u.csv:3:2: expected a number or a missing marker, found 'abc'");
+	expect_error("date,A,B\n2021-01-31,0.01,0.02\n2021-02-28,\"x\ny\",0.01\n", NULL, HC_EDATA,
+		     "u.csv:4:2: expected a number or a missing marker, found 'x\\ny'");   /* one-line message */
 	expect_error("date,A,B\n2021-01-31,0.01,inf\n2021-02-28,0.2,0.01\n", NULL, HC_EDATA,
 		     "u.csv:2:3: expected a number or a missing marker, found 'inf'");
 	expect_error("date,A,B\n2021-01-31,0.01,-Infinity\n2021-02-28,0.2,0.01\n", NULL, HC_EDATA,

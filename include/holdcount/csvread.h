@@ -77,6 +77,18 @@ int csvread_utf8_valid(const char *s, size_t len);
  */
 int csvread_parse_number(const char *s, size_t len, double *value, int *had_percent);
 
+/* Bytes of a cell csvread_quote keeps, and the buffer it needs. */
+#define CSVREAD_QUOTE_MAX 40
+#define CSVREAD_QUOTE_BUF (2 * CSVREAD_QUOTE_MAX + 4)
+
+/*
+ * A cell made fit to quote back in a one-line message: its first
+ * CSVREAD_QUOTE_MAX bytes, with line breaks and tabs written as \n, \r, \t
+ * and other control bytes as '?', then "..." when it was cut.  buf must
+ * hold CSVREAD_QUOTE_BUF bytes; returns buf.
+ */
+const char *csvread_quote(const char *s, size_t len, char *buf);
+
 /* 1 when the cell means "missing": empty, NA, NaN, N/A, '.', null (any case). */
 int csvread_is_missing(const char *s, size_t len);
 

@@ -20,8 +20,8 @@
 double curve_expected_variance(const struct moments *mo, double n);
 
 /* Exact standard deviation of the portfolio variance across random n-subsets,
- * per period (squared units).  Needs mo->has_spread; 1 <= n <= m.
- * Returns HC_OK or HC_EDOMAIN-like HC_EUSAGE when n is out of range. */
+ * per period (squared units); exactly 0 at n = m.  Needs mo->has_spread
+ * (not from summary statistics) and 1 <= n <= m; otherwise HC_EUSAGE. */
 int curve_variance_sd(const struct moments *mo, size_t n, double *sd,
 		      struct hc_error *err);
 
@@ -65,7 +65,11 @@ struct curve {
 
 /* Allocate a curve with the exact columns filled for sizes[0..nsizes-1]
  * (each 1 <= n <= m, or any n >= 1 when m = 0), scaled by
- * periods_per_year (> 0; 1 keeps the input's scale). */
+ * periods_per_year (> 0; 1 keeps the input's scale).  variance_sd is NaN
+ * without the spread sums; the sampled fields are NaN and sampled = 0
+ * until sampler_summarise.  Free with curve_free.  HC_EUSAGE for a bad size
+ * ("size 900 is larger than the 412 securities kept") or scale, HC_ENOMEM;
+ * *out is NULL on error. */
 int curve_exact(struct curve **out, const struct moments *mo,
 		const size_t *sizes, size_t nsizes, double periods_per_year,
 		struct hc_error *err);

@@ -55,6 +55,14 @@ int moments_from_universe(struct moments *mo, const struct universe *u,
 int moments_from_universe_route(struct moments *mo, const struct universe *u,
 				int route, struct hc_error *err);
 
+/* The M x M sample covariance matrix of u (divisor T-1, row-major, both
+ * triangles) into a new array *a, freed with hc_free: through dsyrk for
+ * complete data; pairwise-complete (each pair over the periods both have,
+ * which need not be positive semi-definite) when u->has_missing.  For the
+ * matrix sampler and for audits.  Errors as moments_from_universe; *a is
+ * NULL on error. */
+int moments_covariance(const struct universe *u, double **a, struct hc_error *err);
+
 /* From an M x M covariance matrix a (row-major, symmetric; only read).
  * Average correlation is computed from it too. */
 int moments_from_matrix(struct moments *mo, const double *a, size_t m,

@@ -17,7 +17,9 @@
 #define HOLDCOUNT_RULES_H
 
 #include <stddef.h>
+#include <stdint.h>
 
+#include "holdcount/bootstrap.h"
 #include "holdcount/error.h"
 #include "holdcount/report.h"
 #include "holdcount/sampler.h"
@@ -54,6 +56,11 @@ enum rules_id {
 /* Unbounded universes (m = 0) search counts up to this; beyond it a rule is
  * reported as not met. */
 #define RULES_UNBOUNDED_MAX ((size_t)1 << 40)
+
+/* Sampled rules sample sizes 1..K for K = RULES_SAMPLED_FIRST_K, then 2K,
+ * 4K, ... up to M, stopping once every selected sampled rule is met. */
+#define RULES_SAMPLED_FIRST_K 64
+#define RULES_SAMPLED_GROWTH 2
 
 #define RULES_TEXT_MAX 160
 
@@ -150,6 +157,22 @@ int rules_shortfall(const struct rules_config *cfg,
 		    struct rule_result *res, struct hc_error *err);
 
 /*
+ * Band and shortfall (those selected in cfg) by sampling u with so: sizes
+ * 1..K, K growing as RULES_SAMPLED_FIRST_K x RULES_SAMPLED_GROWTH^j up to
+ * M, until every selected sampled rule is met.  A path's first n members do
+ * not depend on K (a partial Fisher-Yates shuffle makes the same first
+ * draws), so the smallest count found within 1..K is the one a run over
+ * 1..M would find, at a fraction of the cost when counts are small.
+ * cbar per period (the band's floor); so->want_returns is set as needed.
+ * *largest (may be NULL) gets the last K sampled.  res holds room for 2;
+ * *nres gets how many were filled (band first).
+ */
+int rules_sampled(const struct rules_config *cfg, const struct universe *u,
+		  const struct sampler_options *so, double cbar,
+		  struct rule_result *res, size_t *nres, size_t *largest,
+		  struct hc_error *err);
+
+/*
  * Compound annualised return of the universe's equal-weight portfolio,
  * rebalanced every period: prod_t (1 + mean_i r_ti)^(P/T) - 1 (complete data
  * only).  HC_EDATA when a period's portfolio return is -100% or worse.
@@ -180,6 +203,23 @@ int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
  */
 void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
+
+/*
+ * Bootstrap interval of the sampled rules (band, shortfall) among
+ * res[0..nres-1]: per replicate the periods are resampled as in bootstrap.h
+ * (same kind, block length and seed as bopt), the resampled universe is
+ * sampled afresh by rules_sampled with sopt (its seed derived from
+ * (bopt->seed, replicate), so results do not depend on threads), and the
+ * replicate's own c-bar and universe return set the thresholds.  Costs up
+ * to B x paths x K x T for the K sampled: use fewer paths than the main run.  b must come from u.
+ * Progress (bopt->progress) after each replicate.
+ */
+uint64_t rules_replicate_seed(uint64_t seed, size_t rep);  /* the sampler seed of replicate rep */
+int rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+			    const struct bootstrap_base *b,
+			    const struct bootstrap_options *bopt,
+			    const struct sampler_options *sopt,
+			    struct rule_result *res, size_t nres, struct hc_error *err);
 
 /*
  * Append the table "rules" to rep with the columns

@@ -121,4 +121,18 @@ int universe_parse_date(const char *s, size_t len, int32_t *days);
 /* Format days since 1970-01-01 as YYYY-MM-DD into buf (at least 11 bytes). */
 void universe_format_date(int32_t days, char *buf);
 
+/*
+ * Security-id checks shared by every loader of ids (universe, covariance
+ * matrix, sector map).
+ * universe_check_id: HC_OK when id[0..len) is non-empty (not only blanks)
+ * and valid UTF-8; else HC_EDATA with "NAME:LINE:COL: ..." in err.
+ * universe_id_clash: looks for two of ids[0..n) that are equal, or equal
+ * once ASCII case and surrounding blanks are ignored.  Returns 0 when all
+ * are distinct, 1 with *first < *second the indices of a clashing pair,
+ * -1 when out of memory.  O(n log n).
+ */
+int universe_check_id(const char *name, size_t line, size_t col,
+		      const char *id, size_t len, struct hc_error *err);
+int universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second);
+
 #endif

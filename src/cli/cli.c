@@ -121,6 +121,7 @@ void cli_universe_init(struct cli_universe *u)
 	u->missing = CLI_MISSING_COMPLETE;
 	u->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
 	u->layout = CLI_LAYOUT_WIDE;
+	u->periods_per_year = NAN;
 }
 
 void cli_sampling_init(struct cli_sampling *s)
@@ -507,6 +508,186 @@ void cli_print_main_help(FILE *fp)
 	      "Environment: HOLDCOUNT_THREADS sets the default of --threads; NO_COLOR is honoured.\n", fp);
 }
 
+/* ---- manual pages and completion, from the same tables ------------------- */
+
+/* roff text: a backslash is \e, a hyphen \- (so man does not break or
+ * re-shape option names), and a line may not begin with '.' or '\''. */
+static void roff_text(FILE *fp, const char *s)
+{
+	for (; *s; s++) {
+		if (*s == '\\')
+			fputs("\\e", fp);
+		else if (*s == '-')
+			fputs("\\-", fp);
+		else
+			fputc(*s, fp);
+	}
+}
+
+static void roff_paragraph(FILE *fp, const char *s)
+{
+	if (*s == '.' || *s == '\'')
+		fputs("\\&", fp);
+	roff_text(fp, s);
+	fputc('\n', fp);
+}
+
+static void roff_upper(FILE *fp, const char *s)
+{
+	for (; *s; s++)
+		fputc(*s == '-' ? '-' : (*s >= 'a' && *s <= 'z' ? *s - 'a' + 'A' : *s), fp);
+}
+
+static void man_option(FILE *fp, const struct cli_option *op)
+{
+	size_t i;
+
+	fputs(".TP\n", fp);
+	if (op->short_name)
+		fprintf(fp, "\\fB\\-%c\\fR, ", op->short_name);
+	fputs("\\fB\\-\\-", fp);
+	roff_text(fp, op->name);
+	fputs("\\fR", fp);
+	if (op->kind == CLI_CHOICE) {
+		fputs(" ", fp);
+		for (i = 0; op->choices[i]; i++)
+			fprintf(fp, "%s\\fB%s\\fR", i ? "|" : "", op->choices[i]);
+	} else if (op->kind != CLI_FLAG) {
+		fputs(" \\fI", fp);
+		roff_text(fp, op->metavar ? op->metavar : "VALUE");
+		fputs("\\fR", fp);
+	}
+	fputc('\n', fp);
+	roff_text(fp, op->help);
+	if (op->default_text) {
+		fputs(" (default: ", fp);
+		roff_text(fp, op->default_text);
+		fputc(')', fp);
+	}
+	fputs(".\n", fp);
+}
+
+static void man_common_sections(FILE *fp)
+{
+	static const char *const status[][2] = {
+		{ "0", "success" }, { "1", "the computation succeeded but a policy check failed" },
+		{ "2", "usage error: unknown option or command, bad option value, bad size list" },
+		{ "3", "malformed or unusable input data (the message names file, line and column)" },
+		{ "4", "a file could not be read, written or renamed" },
+		{ "5", "out of memory, or the input exceeds the memory budget" },
+		{ "6", "a numerical library failed or an internal check broke" },
+		{ "7", "interrupted by a signal; partly written output is removed" },
+	};
+	size_t i;
+
+	fputs(".SH EXIT STATUS\n", fp);
+	for (i = 0; i < sizeof status / sizeof status[0]; i++)
+		fprintf(fp, ".TP\n.B %s\n%s.\n", status[i][0], status[i][1]);
+	fputs(".SH ENVIRONMENT\n"
+	      ".TP\n.B HOLDCOUNT_THREADS\nthe default of \\fB\\-\\-threads\\fR (a whole number from 1).\n"
+	      ".TP\n.B NO_COLOR\nhonoured; holdcount prints no colour or terminal escape codes in any case.\n"
+	      ".SH NOTES\n"
+	      "Figures are historical estimates and the past need not repeat; a universe of today's survivors "
+	      "looks safer than its market did; averages carry estimation error; annualising assumes serially "
+	      "independent returns.  Not investment advice: defer to licensed advisers and to each fund's own "
+	      "legal limits.\n", fp);
+}
+
+void cli_print_man(FILE *fp, const struct cli_command *cmd, const char *version)
+{
+	const struct cli_group_use *g;
+	const struct cli_option *op;
+	size_t i;
+
+	if (!cmd) {
+		fprintf(fp, ".TH HOLDCOUNT 1 \"\" \"holdcount %s\" \"User Commands\"\n.SH NAME\nholdcount \\- ", version);
+		fputs("risk by holding count for a universe of securities\n"
+		      ".SH SYNOPSIS\n.B holdcount\n.I COMMAND\n[\\fIOPTIONS\\fR] [\\fIARGUMENTS\\fR]\n.br\n"
+		      ".B holdcount help\n[\\fICOMMAND\\fR]\n.br\n.B holdcount \\-\\-version\n"
+		      ".SH DESCRIPTION\nHow portfolio risk falls as the number of holdings grows, for a universe of "
+		      "securities, and past which count extra holdings add little.\n.SH COMMANDS\n", fp);
+		for (i = 0; cli_commands[i]; i++) {
+			fprintf(fp, ".TP\n.BR holdcount\\-%s (1)\n", cli_commands[i]->name);
+			roff_text(fp, cli_commands[i]->summary);
+			fputs(".\n", fp);
+		}
+		man_common_sections(fp);
+		return;
+	}
+	fputs(".TH HOLDCOUNT\\-", fp);
+	roff_upper(fp, cmd->name);
+	fprintf(fp, " 1 \"\" \"holdcount %s\" \"User Commands\"\n.SH NAME\nholdcount\\-%s \\- ", version, cmd->name);
+	roff_text(fp, cmd->summary);
+	fprintf(fp, "\n.SH SYNOPSIS\n.B holdcount %s\n", cmd->name);
+	if (*cmd->usage)
+		fprintf(fp, ".I %s\n", cmd->usage);
+	fputs("[\\fIOPTIONS\\fR]\n.SH DESCRIPTION\n", fp);
+	roff_paragraph(fp, cmd->description && *cmd->description ? cmd->description : cmd->summary);
+	fputs(".SH OPTIONS\n.TP\n\\fB\\-h\\fR, \\fB\\-\\-help\\fR\nshow the help and exit.\n", fp);
+	for (g = cmd->groups; g && g->group; g++) {
+		if (!g->group->options[0].name)
+			continue;
+		fputs(".SS \"", fp);
+		roff_text(fp, g->group->title);
+		fputs("\"\n", fp);
+		for (op = g->group->options; op->name; op++)
+			man_option(fp, op);
+	}
+	man_common_sections(fp);
+	fputs(".SH SEE ALSO\n.BR holdcount (1)\n", fp);
+}
+
+void cli_print_bash_completion(FILE *fp)
+{
+	const struct cli_group_use *g;
+	const struct cli_option *op;
+	size_t i, j;
+
+	fputs("# bash completion for holdcount, generated by 'holdcount help --bash-completion'\n"
+	      "# from the same option tables as the parser and --help.\n"
+	      "_holdcount()\n{\n"
+	      "\tlocal cur=${COMP_WORDS[COMP_CWORD]} prev=${COMP_WORDS[COMP_CWORD-1]} cmd=${COMP_WORDS[1]} opts\n"
+	      "\tif [ \"$COMP_CWORD\" -eq 1 ]; then\n\t\tCOMPREPLY=($(compgen -W \"help --help --version", fp);
+	for (i = 0; cli_commands[i]; i++)
+		fprintf(fp, " %s", cli_commands[i]->name);
+	fputs("\" -- \"$cur\"))\n\t\treturn\n\tfi\n\tcase $cmd in\n\thelp)\n\t\tCOMPREPLY=($(compgen -W \"", fp);
+	for (i = 0; cli_commands[i]; i++)
+		fprintf(fp, "%s%s", i ? " " : "", cli_commands[i]->name);
+	fputs("\" -- \"$cur\"))\n\t\treturn;;\n", fp);
+	for (i = 0; cli_commands[i]; i++) {
+		const struct cli_command *cmd = cli_commands[i];
+
+		fprintf(fp, "\t%s)\n\t\tcase $prev in\n", cmd->name);
+		for (g = cmd->groups; g && g->group; g++)
+			for (op = g->group->options; op->name; op++) {
+				if (op->kind == CLI_FLAG)
+					continue;
+				fprintf(fp, "\t\t--%s", op->name);
+				if (op->short_name)
+					fprintf(fp, "|-%c", op->short_name);
+				if (op->kind == CLI_CHOICE) {
+					fputs(")\n\t\t\tCOMPREPLY=($(compgen -W \"", fp);
+					for (j = 0; op->choices[j]; j++)
+						fprintf(fp, "%s%s", j ? " " : "", op->choices[j]);
+					fputs("\" -- \"$cur\"))\n\t\t\treturn;;\n", fp);
+				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0) {
+					fputs(")\n\t\t\tCOMPREPLY=($(compgen -f -- \"$cur\"))\n\t\t\treturn;;\n", fp);
+				} else {
+					fputs(")\n\t\t\tCOMPREPLY=()\n\t\t\treturn;;\n", fp);
+				}
+			}
+		fputs("\t\tesac\n\t\topts=\"--help", fp);
+		for (g = cmd->groups; g && g->group; g++)
+			for (op = g->group->options; op->name; op++)
+				fprintf(fp, " --%s", op->name);
+		fputs("\";;\n", fp);
+	}
+	fputs("\t*) return;;\n\tesac\n"
+	      "\tif [[ $cur == -* ]]; then\n\t\tCOMPREPLY=($(compgen -W \"$opts\" -- \"$cur\"))\n"
+	      "\telse\n\t\tCOMPREPLY=($(compgen -f -- \"$cur\"))\n\tfi\n}\n"
+	      "complete -o filenames -F _holdcount holdcount\n", fp);
+}
+
 const struct cli_command *cli_find_command(const char *name)
 {
 	size_t i;
@@ -624,6 +805,17 @@ static void on_signal(int sig)
 	_exit(HC_EINTERRUPT);
 }
 
+/* A signal the parent set to be ignored (a shell does so for SIGINT in
+ * background jobs, nohup for SIGHUP) stays ignored: the user asked for it. */
+static void catch_unless_ignored(int sig, const struct sigaction *sa)
+{
+	struct sigaction old;
+
+	if (sigaction(sig, NULL, &old) == 0 && old.sa_handler == SIG_IGN)
+		return;
+	sigaction(sig, sa, NULL);
+}
+
 void cli_install_signal_handlers(void)
 {
 	struct sigaction sa;
@@ -631,6 +823,6 @@ void cli_install_signal_handlers(void)
 	memset(&sa, 0, sizeof sa);
 	sa.sa_handler = on_signal;
 	sigemptyset(&sa.sa_mask);
-	sigaction(SIGINT, &sa, NULL);
-	sigaction(SIGTERM, &sa, NULL);
+	catch_unless_ignored(SIGINT, &sa);
+	catch_unless_ignored(SIGTERM, &sa);
 }

@@ -146,7 +146,7 @@ struct cli_universe {
 	int percent;
 	int missing;               /* enum cli_missing */
 	double min_coverage;
-	double periods_per_year;   /* 0 = detect */
+	double periods_per_year;   /* NaN = detect from the dates */
 	int layout;                /* enum cli_layout */
 	const char *date_column, *id_column, *value_column;
 	const char *delimiter;     /* "," or ";"; NULL = detect */
@@ -215,6 +215,12 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd);
 /* The top-level help: usage, commands with summaries, global options. */
 void cli_print_main_help(FILE *fp);
 
+/* A manual page in roff: holdcount-COMMAND(1), or holdcount(1) when cmd
+ * is NULL.  Generated from the same tables as --help. */
+void cli_print_man(FILE *fp, const struct cli_command *cmd, const char *version);
+/* A bash completion script for every command and option. */
+void cli_print_bash_completion(FILE *fp);
+
 /* Every command, in the order `holdcount --help` lists them; NULL-terminated.
  * Defined in commands.c. */
 extern const struct cli_command *const cli_commands[];
@@ -251,6 +257,35 @@ void cli_progress_finish(struct cli_progress *p);
 
 /* SIGINT/SIGTERM: remove any half-written output temporaries and exit 7. */
 void cli_install_signal_handlers(void);
+
+/* ---- data helpers shared by the commands (cli_data.c) --------------------- */
+
+struct universe;
+struct universe_options;
+
+/* The loader's options from the universe group.  HC_EUSAGE (printed) for
+ * contradictions such as --log-returns without --prices. */
+int cli_universe_options(const char *cmd, const struct cli_universe *cu,
+			 struct universe_options *uo);
+
+/* Load path with the group's options; prints the loader's message
+ * ("holdcount CMD: FILE:LINE:COLUMN: ...") and returns its status. */
+int cli_load_universe(const char *cmd, const struct cli_universe *cu,
+		      const char *path, struct universe **out);
+
+/* The holding counts: text (NULL = the default grid up to m) parsed and
+ * checked against m securities (0 = unbounded).  Prints its error;
+ * HC_EUSAGE names the size and the securities kept. Free *sizes with hc_free. */
+int cli_sizes(const char *cmd, const char *text, size_t m, size_t **sizes, size_t *nsizes);
+
+/* The fields that state the scale: periods_per_year (none when 1 and not
+ * annualised) and annualisation, a sentence saying what was multiplied. */
+int cli_add_scale(struct report *r, double periods_per_year, int annualised);
+
+/* The "curve" table of c (columns from curve_report, then periods_per_year,
+ * filled when annualised) added to r.  Defined in cmd_curve.c. */
+struct curve;
+int cli_curve_table(struct report *r, const struct curve *c, int annualised);
 
 /* ---- commands -------------------------------------------------------------- */
 

@@ -2,11 +2,18 @@
  * cmd_curve.c - `holdcount curve UNIVERSE`: risk by holding count, exact
  * and sampled.
  */
+#include <limits.h>
+#include <math.h>
 #include <stddef.h>
 #include <stdio.h>
 #include <string.h>
 
 #include "cli.h"
+#include "holdcount/curve.h"
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/sampler.h"
+#include "holdcount/universe.h"
 
 struct curve_opts {
 	struct cli_sampling sam;
@@ -34,10 +41,90 @@ const struct cli_command cli_command_curve = {
 	1, 1, curve_groups
 };
 
+/* Random portfolios: fill the sampled columns of c. */
+static int sample(const struct curve_opts *o, const struct universe *u, struct curve *c,
+		  const size_t *sizes, size_t nsizes, struct hc_error *err)
+{
+	struct sampler_options so;
+	struct sampler_result *res = NULL;
+	struct cli_progress prog;
+	int rc;
+
+	sampler_options_init(&so);
+	so.paths = o->sam.paths;
+	so.seed = o->sam.seed;
+	so.threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
+	so.periods_per_year = u->periods_per_year;
+	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
+	so.progress = cli_progress_update;
+	so.progress_ctx = &prog;
+	rc = sampler_run(&res, u, sizes, nsizes, &so, err);
+	cli_progress_finish(&prog);
+	if (rc == HC_OK)
+		rc = sampler_summarise(c, res, err);
+	sampler_result_free(res);
+	if (rc == HC_OK) {
+		c->paths = o->sam.paths;
+		c->seed = o->sam.seed;
+	}
+	return rc;
+}
+
+/* The curve table, with the scale appended as a column so that the CSV,
+ * which carries only this table, still says what it is annualised by. */
+int cli_curve_table(struct report *r, const struct curve *c, int annualised)
+{
+	struct report_table *t = report_add_table(r, "curve", "risk by holding count");
+	size_t i;
+
+	if (!t || curve_report(c, t) != HC_OK ||
+	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	if (annualised)
+		for (i = 0; i < t->nrows; i++)
+			report_table_set_real(t, i, t->ncols - 1, c->periods_per_year);
+	return HC_OK;
+}
+
+static int build(struct report *r, const struct curve_opts *o, const struct universe *u,
+		 const struct moments *mo, const struct curve *c)
+{
+	char seed[32];
+
+	snprintf(seed, sizeof seed, "%llu", (unsigned long long)o->sam.seed);
+	if (report_add_text(r, "source", "source", u->source ? u->source : "") ||
+	    report_add_int(r, "securities", "securities kept", (long long)u->m) ||
+	    report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped) ||
+	    report_add_int(r, "periods", "periods", (long long)u->t) ||
+	    cli_add_scale(r, c->periods_per_year, 1) ||
+	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
+			    c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
+	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(c->universe_variance),
+			    REPORT_STYLE_PERCENT) ||
+	    report_add_real(r, "average_correlation", "average correlation",
+			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    report_add_int(r, "paths", "random portfolios per count", (long long)c->paths) ||
+	    (c->paths ? report_add_text(r, "seed", "seed", seed) : report_add_none(r, "seed", "seed")) ||
+	    report_add_text(r, "sampling", "sampling",
+			    c->paths ? "uniform random subsets without replacement; z compares the sampled mean "
+				       "variance with the exact one in Monte Carlo standard errors"
+				     : "not sampled (--paths 0)"))
+		return HC_ENOMEM;
+	if (cli_curve_table(r, c, 1))
+		return HC_ENOMEM;
+	return report_add_cautions(r);
+}
+
 int cmd_curve(int argc, char **argv)
 {
 	struct curve_opts o;
 	struct cli_args a;
+	struct universe *u = NULL;
+	struct curve *c = NULL;
+	struct report *r = NULL;
+	struct moments mo;
+	struct hc_error err;
+	size_t *sizes = NULL, nsizes = 0;
 	int rc;
 
 	memset(&o, 0, sizeof o);
@@ -47,7 +134,39 @@ int cmd_curve(int argc, char **argv)
 	rc = cli_parse(&cli_command_curve, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
+	hc_error_clear(&err);
+	rc = cli_load_universe("curve", &o.uni, a.positional[0], &u);
+	if (rc)
+		goto cleanup;
+	rc = cli_sizes("curve", o.sam.sizes, u->m, &sizes, &nsizes);
+	if (rc)
+		goto cleanup;
+	if (o.sam.paths > 0 && u->has_missing) {
+		rc = cli_usage_error("curve", "random portfolios need complete data, and '%s' has gaps under "
+				     "--missing pairwise; use --paths 0 for the exact curve alone", a.positional[0]);
+		goto cleanup;
+	}
+	rc = moments_from_universe(&mo, u, &err);
+	if (rc == HC_OK)
+		rc = curve_exact(&c, &mo, sizes, nsizes, u->periods_per_year, &err);
+	if (rc == HC_OK && o.sam.paths > 0)
+		rc = sample(&o, u, c, sizes, nsizes, &err);
+	if (rc) {
+		rc = cli_fail("curve", &err);
+		goto cleanup;
+	}
+	r = report_alloc();
+	if (!r || build(r, &o, u, &mo, c)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("curve", &err);
+		goto cleanup;
+	}
+	rc = cli_write_report("curve", &o.out, r);
+cleanup:
+	report_free(r);
+	curve_free(c);
+	hc_free(sizes);
+	universe_free(u);
 	cli_args_release(&a);
-	fprintf(stderr, "holdcount curve: not built yet\n");
-	return HC_EUSAGE;
+	return rc;
 }

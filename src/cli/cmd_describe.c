@@ -6,11 +6,15 @@
  * record, and a command function that parses, computes, fills one struct
  * report and hands it to cli_write_report.
  */
+#include <math.h>
 #include <stddef.h>
 #include <stdio.h>
 #include <string.h>
 
 #include "cli.h"
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/universe.h"
 
 struct describe_opts {
 	struct cli_universe uni;
@@ -32,10 +36,110 @@ const struct cli_command cli_command_describe = {
 	1, 1, describe_groups
 };
 
+/* One security's observed periods and annualised standard deviation, two
+ * passes (mean, then squared deviations) for accuracy, gaps skipped, sample
+ * divisor n-1 as in the covariance matrix. */
+static void security_sd(const double *x, size_t t, double p, size_t *nobs, double *sd)
+{
+	double mean = 0.0, ss = 0.0;
+	size_t k, n = 0;
+
+	for (k = 0; k < t; k++)
+		if (!isnan(x[k])) {
+			mean += x[k];
+			n++;
+		}
+	*nobs = n;
+	*sd = NAN;
+	if (n < 2)
+		return;
+	mean /= (double)n;
+	for (k = 0; k < t; k++)
+		if (!isnan(x[k]))
+			ss += (x[k] - mean) * (x[k] - mean);
+	*sd = sqrt(ss / (double)(n - 1) * p);
+}
+
+static int add_kept(struct report *r, const struct universe *u)
+{
+	struct report_table *t = report_add_table(r, "kept", "securities kept");
+	size_t i, nobs;
+	double sd;
+
+	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT))
+		return HC_ENOMEM;
+	for (i = 0; i < u->m; i++) {
+		if (report_table_add_row(t) || report_table_set_text(t, i, 0, u->ids[i]))
+			return HC_ENOMEM;
+		security_sd(u->x + i * u->t, u->t, u->periods_per_year, &nobs, &sd);
+		report_table_set_int(t, i, 1, (long long)nobs);
+		report_table_set_real(t, i, 2, sd);
+	}
+	return HC_OK;
+}
+
+static int add_dropped(struct report *r, const struct universe *u)
+{
+	struct report_table *t = report_add_table(r, "dropped", "securities dropped");
+	size_t i;
+
+	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (i = 0; i < u->ndropped; i++)
+		if (report_table_add_row(t) || report_table_set_text(t, i, 0, u->dropped[i].id) ||
+		    report_table_set_text(t, i, 1, u->dropped[i].reason))
+			return HC_ENOMEM;
+	return HC_OK;
+}
+
+static int build(struct report *r, const struct universe *u, const struct moments *mo)
+{
+	double p = u->periods_per_year;
+	char first[16] = "", last[16] = "";
+
+	if (u->t > 0) {
+		universe_format_date(u->dates[0], first);
+		universe_format_date(u->dates[u->t - 1], last);
+	}
+	if (report_add_text(r, "source", "source", u->source ? u->source : "") ||
+	    report_add_int(r, "securities", "securities kept", (long long)u->m) ||
+	    report_add_int(r, "securities_read", "securities read", (long long)u->m_read) ||
+	    report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped) ||
+	    report_add_int(r, "periods", "periods", (long long)u->t) ||
+	    report_add_text(r, "first_date", "first date", first) ||
+	    report_add_text(r, "last_date", "last date", last) ||
+	    cli_add_scale(r, p, 1) ||
+	    report_add_bool(r, "periods_per_year_detected", "detected from the dates",
+			    u->periods_detected) ||
+	    report_add_text(r, "covariances", "covariances",
+			    mo->route == MOMENTS_ROUTE_PAIRWISE ? "pairwise-complete (data with gaps)"
+								: "complete data") ||
+	    report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
+	    report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p,
+			    REPORT_STYLE_PLAIN) ||
+	    report_add_real(r, "average_correlation", "average correlation",
+			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
+			    mo->average_covariance >= 0 ? sqrt(mo->average_covariance * p) : NAN, REPORT_STYLE_PERCENT) ||
+	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(mo->universe_variance * p),
+			    REPORT_STYLE_PERCENT))
+		return HC_ENOMEM;
+	if (add_kept(r, u) || add_dropped(r, u))
+		return HC_ENOMEM;
+	return report_add_cautions(r);
+}
+
 int cmd_describe(int argc, char **argv)
 {
 	struct describe_opts o;
 	struct cli_args a;
+	struct universe *u = NULL;
+	struct report *r = NULL;
+	struct moments mo;
+	struct hc_error err;
 	int rc;
 
 	memset(&o, 0, sizeof o);
@@ -44,7 +148,25 @@ int cmd_describe(int argc, char **argv)
 	rc = cli_parse(&cli_command_describe, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
+	hc_error_clear(&err);
+	rc = cli_load_universe("describe", &o.uni, a.positional[0], &u);
+	if (rc)
+		goto cleanup;
+	rc = moments_from_universe(&mo, u, &err);
+	if (rc) {
+		rc = cli_fail("describe", &err);
+		goto cleanup;
+	}
+	r = report_alloc();
+	if (!r || build(r, u, &mo)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("describe", &err);
+		goto cleanup;
+	}
+	rc = cli_write_report("describe", &o.out, r);
+cleanup:
+	report_free(r);
+	universe_free(u);
 	cli_args_release(&a);
-	fprintf(stderr, "holdcount describe: not built yet\n");
-	return HC_EUSAGE;
+	return rc;
 }

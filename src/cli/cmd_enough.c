@@ -1,24 +1,599 @@
 /*
- * cmd_enough.c - placeholder so the tree links; its owner replaces this file.
+ * cmd_enough.c - `holdcount enough UNIVERSE`: the holding count past which
+ * extra holdings add little, by each rule, with a bootstrap interval.
+ *
+ * The rules and their sources are in docs/enough.md; the library does the
+ * work (rules.h, bootstrap.h), this file parses, loads and reports.
  */
+#include <math.h>
+#include <stddef.h>
 #include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
 
 #include "cli.h"
+#include "holdcount/bootstrap.h"
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/rules.h"
+#include "holdcount/sampler.h"
+#include "holdcount/universe.h"
+
+#define ENOUGH_DEFAULT_BOOTSTRAP_PATHS 1000
+
+struct enough_opts {
+	const char *rules;
+	double near_floor;
+	const char *marginal;
+	const char *band;
+	double premium, holding_cost;
+	double te_budget;
+	const char *shortfall;
+	size_t bootstrap;
+	int bootstrap_kind;
+	size_t block_length;
+	int bootstrap_sampled;
+	size_t bootstrap_paths;
+	struct cli_sampling smp;
+	struct cli_summary sum;
+	struct cli_universe uni;
+	struct cli_output out;
+};
+
+static const char *const kind_choices[] = { "block", "stationary", NULL };
+
+#define OFF(f) offsetof(struct enough_opts, f)
+static const struct cli_option enough_own[] = {
+	{ "rules", 0, CLI_STRING, OFF(rules), "LIST",
+	  "rules to apply: near-floor, marginal, band, cost-benefit, tracking-error, shortfall, or all, exact, sampled",
+	  NULL, "all (exact only from summary statistics)" },
+	{ "near-floor", 0, CLI_FRACTION, OFF(near_floor), "X",
+	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
+	{ "marginal", 0, CLI_STRING, OFF(marginal), "EPS",
+	  "marginal: one more holding lowers the expected sd by less than EPS a year (0.10pp, 0.1% or 0.001)",
+	  NULL, "0.10pp" },
+	{ "band", 0, CLI_STRING, OFF(band), "Q:X",
+	  "band: the Q-quantile of sampled sd within X of the floor sd", NULL, "95%:10%" },
+	{ "premium", 0, CLI_FRACTION, OFF(premium), "R",
+	  "cost-benefit: the universe portfolio's premium a year", NULL, "5% (a placeholder: set it)" },
+	{ "holding-cost", 0, CLI_FRACTION, OFF(holding_cost), "C",
+	  "cost-benefit: the yearly cost of one more holding", NULL, "0.05% (a placeholder: set it)" },
+	{ "te-budget", 0, CLI_FRACTION, OFF(te_budget), "B",
+	  "tracking-error: expected tracking error against the universe within B a year", NULL, "2%" },
+	{ "shortfall", 0, CLI_STRING, OFF(shortfall), "D:P",
+	  "shortfall: fewer than P of sampled portfolios trail the universe's return by more than D a year",
+	  NULL, "1%:10%" },
+	{ "bootstrap", 0, CLI_COUNT, OFF(bootstrap), "B",
+	  "bootstrap replicates for the count's interval (0: no interval)", NULL, "1000" },
+	{ "bootstrap-kind", 0, CLI_CHOICE, OFF(bootstrap_kind), NULL,
+	  "resample periods in moving blocks (Kuensch 1989) or stationary blocks (Politis & Romano 1994)",
+	  kind_choices, "block" },
+	{ "block-length", 0, CLI_COUNT, OFF(block_length), "L",
+	  "block length (mean length for stationary) in periods", NULL, "round(T^(1/3))" },
+	{ "bootstrap-sampled", 0, CLI_FLAG, OFF(bootstrap_sampled), NULL,
+	  "also bootstrap the sampled rules (band, shortfall): re-samples portfolios per replicate, costly",
+	  NULL, NULL },
+	{ "bootstrap-paths", 0, CLI_COUNT, OFF(bootstrap_paths), "K",
+	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+static const struct cli_group enough_group = { "rule options", enough_own };
 
 static const struct cli_group_use enough_groups[] = {
-	{ &cli_group_output, 0 },
+	{ &enough_group, 0 },
+	{ &cli_group_sampling, OFF(smp) },
+	{ &cli_group_summary, OFF(sum) },
+	{ &cli_group_universe, OFF(uni) },
+	{ &cli_group_output, OFF(out) },
 	{ NULL, 0 }
 };
 
 const struct cli_command cli_command_enough = {
-	"enough", cmd_enough, "the holding count past which extra holdings add little, by several published rules", "UNIVERSE",
-	"Not built yet.", 0, 64, enough_groups
+	"enough", cmd_enough,
+	"the holding count past which extra holdings add little, by several published rules",
+	"[UNIVERSE]",
+	"For each rule, the smallest holding count that meets it, the rule's parameters, the value "
+	"reached at that count, and a 90% interval for the count from a bootstrap of the periods. "
+	"Without UNIVERSE, give summary statistics (--average-variance and --average-covariance, or "
+	"--average-sd and --average-correlation, and optionally --securities) for the exact rules. "
+	"See docs/enough.md for each rule and its source.",
+	0, 1, enough_groups
 };
+
+/* A yearly sd step: "0.10pp" (percentage points), "0.1%" or "0.001". */
+static int parse_step(const char *s, double *out)
+{
+	char *end;
+	double x = strtod(s, &end);
+
+	if (end == s || !isfinite(x))
+		return -1;
+	if (strcmp(end, "pp") == 0 || strcmp(end, "%") == 0)
+		x /= 100;
+	else if (*end)
+		return -1;
+	*out = x;
+	return 0;
+}
+
+/* One share: "95%" or "0.95". */
+static int parse_share(const char *s, size_t len, double *out)
+{
+	char buf[64], *end;
+	double x;
+
+	if (len == 0 || len >= sizeof buf)
+		return -1;
+	memcpy(buf, s, len);
+	buf[len] = 0;
+	x = strtod(buf, &end);
+	if (end == buf || !isfinite(x))
+		return -1;
+	if (strcmp(end, "%") == 0)
+		x /= 100;
+	else if (*end)
+		return -1;
+	*out = x;
+	return 0;
+}
+
+/* "A:B" as two shares. */
+static int parse_pair(const char *opt, const char *s, double *a, double *b)
+{
+	const char *colon = strchr(s, ':');
+
+	if (!colon || parse_share(s, (size_t)(colon - s), a) || parse_share(colon + 1, strlen(colon + 1), b))
+		return cli_usage_error("enough", "bad --%s '%s': expected two shares as A:B, e.g. %s", opt, s,
+				       strcmp(opt, "band") == 0 ? "95%:10%" : "1%:10%");
+	return HC_OK;
+}
+
+/* The rules configuration from the options. */
+static int config_from(const struct enough_opts *o, const struct cli_args *a,
+		       int have_data, struct rules_config *cfg)
+{
+	struct hc_error err;
+
+	rules_config_init(cfg);
+	hc_error_clear(&err);
+	if (!have_data)
+		cfg->selected = RULES_EXACT_MASK;
+	if (o->rules && rules_parse_list(o->rules, &cfg->selected, &err))
+		return cli_fail("enough", &err);
+	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error("enough", "the band and shortfall rules need a universe file, not summary statistics");
+	if (cli_given(a, "near-floor"))
+		cfg->near_floor_x = o->near_floor;
+	if (o->marginal && parse_step(o->marginal, &cfg->marginal_eps))
+		return cli_usage_error("enough", "bad --marginal '%s': expected a yearly sd step such as 0.10pp, 0.1%% or 0.001",
+				       o->marginal);
+	if (o->band && parse_pair("band", o->band, &cfg->band_q, &cfg->band_x))
+		return HC_EUSAGE;
+	if (o->shortfall && parse_pair("shortfall", o->shortfall, &cfg->shortfall_d, &cfg->shortfall_p))
+		return HC_EUSAGE;
+	if (cli_given(a, "premium"))
+		cfg->premium = o->premium;
+	if (cli_given(a, "holding-cost"))
+		cfg->holding_cost = o->holding_cost;
+	cfg->cost_defaults = !cli_given(a, "premium") && !cli_given(a, "holding-cost");
+	if (cli_given(a, "premium") != cli_given(a, "holding-cost"))
+		return cli_usage_error("enough", "give --premium and --holding-cost together (or neither, for the stated defaults)");
+	if (cli_given(a, "te-budget"))
+		cfg->te_budget = o->te_budget;
+	if (rules_config_check(cfg, &err))
+		return cli_fail("enough", &err);
+	return HC_OK;
+}
+
+/* ---- summary statistics ------------------------------------------------- */
+
+static int summary_averages(const struct enough_opts *o, const struct cli_args *a,
+			    double *vbar, double *cbar)
+{
+	int var = cli_given(a, "average-variance"), sd = cli_given(a, "average-sd");
+	int cov = cli_given(a, "average-covariance"), cor = cli_given(a, "average-correlation");
+
+	if (var == sd)
+		return cli_usage_error("enough", var ? "give --average-variance or --average-sd, not both"
+				       : "needs a UNIVERSE file, or --average-variance or --average-sd (see 'holdcount enough --help')");
+	if (cov == cor)
+		return cli_usage_error("enough", cov ? "give --average-covariance or --average-correlation, not both"
+				       : "needs --average-covariance or --average-correlation with summary statistics");
+	if (sd && !(o->sum.average_sd > 0))
+		return cli_usage_error("enough", "--average-sd must be positive, found %g", o->sum.average_sd);
+	if (var && !(o->sum.average_variance > 0))
+		return cli_usage_error("enough", "--average-variance must be positive, found %g", o->sum.average_variance);
+	if (cor && !(fabs(o->sum.average_correlation) <= 1))
+		return cli_usage_error("enough", "--average-correlation must lie from -1 to 1, found %g",
+				       o->sum.average_correlation);
+	*vbar = var ? o->sum.average_variance : o->sum.average_sd * o->sum.average_sd;
+	/* correlation times the average variance: the equal-variance reading */
+	*cbar = cov ? o->sum.average_covariance : o->sum.average_correlation * *vbar;
+	return HC_OK;
+}
+
+static int data_summary_given(const struct cli_args *a)
+{
+	static const char *const names[] = { "average-variance", "average-covariance", "average-sd",
+					     "average-correlation", "securities" };
+	size_t k;
+
+	for (k = 0; k < sizeof names / sizeof names[0]; k++)
+		if (cli_given(a, names[k]))
+			return 1;
+	return 0;
+}
+
+
+/* ---- loading and scale ----------------------------------------------------- */
+
+/* Until the shared loading helpers reach this branch, the universe group's
+ * options are mapped here (the same mapping as the other commands use). */
+static int enough_load(const struct cli_universe *cu, const struct cli_args *a, const char *path,
+		       struct universe **out)
+{
+	struct universe_options uo;
+	struct hc_error err;
+	int rc;
+
+	*out = NULL;
+	universe_options_init(&uo);
+	if (cu->log_returns && !cu->prices)
+		return cli_usage_error("enough", "--log-returns needs --prices (log returns are computed from prices)");
+	uo.values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
+	uo.layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
+	uo.percent = cu->percent;
+	uo.missing = cu->missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE : UNIVERSE_MISSING_COMPLETE;
+	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
+		return cli_usage_error("enough", "--min-coverage must be above 0 and at most 1 (or 100%%), found %g",
+				       cu->min_coverage);
+	uo.min_coverage = cu->min_coverage;
+	if (cli_given(a, "periods-per-year") && !(cu->periods_per_year > 0.0))
+		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", cu->periods_per_year);
+	uo.periods_per_year = cli_given(a, "periods-per-year") ? cu->periods_per_year : 0.0;
+	if (cu->delimiter) {
+		if (strcmp(cu->delimiter, ",") && strcmp(cu->delimiter, ";"))
+			return cli_usage_error("enough", "--delimiter must be ',' or ';', found '%s'", cu->delimiter);
+		uo.delimiter = cu->delimiter[0];
+	}
+	uo.date_column = cu->date_column;
+	uo.id_column = cu->id_column;
+	uo.value_column = cu->value_column;
+	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, &uo.max_bytes))
+		return cli_usage_error("enough", "--max-memory %zu MiB does not fit in this machine's address space",
+				       cu->max_memory_mib);
+	hc_error_clear(&err);
+	rc = universe_load(out, path, &uo, &err);
+	return rc ? cli_fail("enough", &err) : HC_OK;
+}
+
+/* The fields that state the scale. */
+static int enough_scale(struct report *r, double periods_per_year, int annualised)
+{
+	char text[200];
+	int rc;
+
+	if (annualised) {
+		rc = report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
+		snprintf(text, sizeof text,
+			 "annualised: variances times %g, standard deviations times sqrt(%g); rule thresholds are yearly",
+			 periods_per_year, periods_per_year);
+	} else {
+		rc = report_add_none(r, "periods_per_year", "periods per year");
+		snprintf(text, sizeof text,
+			 "not annualised: figures and rule thresholds are on the scale of the inputs");
+	}
+	return rc ? rc : report_add_text(r, "annualisation", "annualisation", text);
+}
+
+/* ---- the report ----------------------------------------------------------- */
+
+struct enough_run {
+	const struct universe *u;    /* NULL with summary statistics */
+	double vbar, cbar;           /* per period */
+	size_t m;
+	double ppy;
+	int annualised;
+	int bootstrapped;
+	size_t replicates, block_length;
+	int kind;
+	uint64_t seed;
+	size_t paths;
+	size_t sampled_sizes;        /* sampled sizes 1..this */
+	int sampled_bootstrapped;
+	size_t bootstrap_paths;
+	const char *no_interval;     /* why there is no interval, or NULL */
+};
+
+static int add_fields(struct report *r, const struct enough_run *e)
+{
+	double p = e->ppy, floor_var = e->cbar * p;
+	double uvar = e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
+	int sd_style = e->annualised ? REPORT_STYLE_PERCENT : REPORT_STYLE_PLAIN;
+	int bad = 0;
+
+	if (e->u) {
+		bad |= report_add_text(r, "universe", "universe", e->u->source ? e->u->source : "-");
+		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
+		bad |= report_add_int(r, "securities_dropped", "securities dropped", (long long)e->u->ndropped);
+		bad |= report_add_int(r, "periods", "periods", (long long)e->u->t);
+	} else if (e->m)
+		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
+	else
+		bad |= report_add_text(r, "securities", "securities", "unbounded");
+	bad |= enough_scale(r, p, e->annualised);
+	bad |= report_add_real(r, "average_variance", "average variance", e->vbar * p, REPORT_STYLE_SCI);
+	bad |= report_add_real(r, "average_covariance", "average covariance", e->cbar * p, REPORT_STYLE_SCI);
+	bad |= report_add_real(r, "floor_sd", "floor sd", floor_var > 0 ? sqrt(floor_var) : NAN, sd_style);
+	bad |= report_add_real(r, "universe_sd", "equal-weight universe sd", uvar > 0 ? sqrt(uvar) : NAN, sd_style);
+	if (e->paths) {
+		bad |= report_add_int(r, "paths", "sampled portfolios a size", (long long)e->paths);
+		bad |= report_add_int(r, "sampled_sizes", "sampled sizes 1 to", (long long)e->sampled_sizes);
+	}
+	if (e->bootstrapped) {
+		bad |= report_add_text(r, "bootstrap", "bootstrap", bootstrap_kind_name(e->kind));
+		bad |= report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
+		bad |= report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
+	} else
+		bad |= report_add_none(r, "bootstrap", "bootstrap");
+	if (e->u) {
+		char seed[32];
+
+		snprintf(seed, sizeof seed, "%llu", (unsigned long long)e->seed);
+		bad |= report_add_text(r, "seed", "seed", seed);
+	}
+	return bad ? HC_ENOMEM : HC_OK;
+}
+
+static int add_notes(struct report *r, const struct enough_run *e)
+{
+	char text[300];
+	int bad = 0;
+
+	if (e->bootstrapped) {
+		snprintf(text, sizeof text,
+			 "count p05/p50/p95: percentiles of each rule's count over %zu %s-bootstrap replicates of "
+			 "the periods (block length %zu); \"not met\" where the percentile reaches replicates "
+			 "in which the rule is not met%s",
+			 e->replicates, bootstrap_kind_name(e->kind), e->block_length,
+			 e->sampled_bootstrapped ? "" : "; sampled rules (band, shortfall) have an interval only with --bootstrap-sampled");
+		bad |= report_add_note(r, text);
+	} else if (e->no_interval)
+		bad |= report_add_note(r, e->no_interval);
+	bad |= report_add_cautions(r);
+	return bad ? HC_ENOMEM : HC_OK;
+}
+
+/* ---- the command ------------------------------------------------------------ */
+
+static int run_summary(const struct enough_opts *o, const struct cli_args *a,
+		       const struct rules_config *cfg, struct enough_run *e,
+		       struct rule_result *res, size_t *nres)
+{
+	struct rules_input in;
+	struct hc_error err;
+	int rc;
+
+	rc = summary_averages(o, a, &e->vbar, &e->cbar);
+	if (rc)
+		return rc;
+	e->m = o->sum.securities;
+	if (e->m == 1)
+		return cli_usage_error("enough", "--securities must be at least 2, found 1");
+	e->annualised = cli_given(a, "periods-per-year");
+	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
+	if (!(e->ppy > 0))
+		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
+	if (cli_given(a, "bootstrap") && o->bootstrap > 0)
+		return cli_usage_error("enough", "--bootstrap needs a universe file: summary statistics have no periods to resample");
+	e->no_interval = "no interval: summary statistics have no periods to resample";
+	memset(&in, 0, sizeof in);
+	in.vbar = e->vbar;
+	in.cbar = e->cbar;
+	in.m = e->m;
+	in.periods_per_year = e->ppy;
+	hc_error_clear(&err);
+	rc = rules_evaluate(cfg, &in, res, nres, &err);
+	return rc ? cli_fail("enough", &err) : HC_OK;
+}
+
+/* The band and shortfall rules by sampling (rules_sampled stops at the
+ * smallest stage of sizes that settles them); their results replace the
+ * "needs sampled portfolios" placeholders that rules_evaluate left. */
+static int run_sampled(const struct enough_opts *o, const struct universe *u,
+		       const struct rules_config *cfg, double cbar, struct enough_run *e,
+		       struct rule_result *res, size_t nres)
+{
+	struct sampler_options so;
+	struct cli_progress prog;
+	struct rule_result sr[2];
+	struct hc_error err;
+	size_t n = 0, k, j;
+	int rc;
+
+	hc_error_clear(&err);
+	sampler_options_init(&so);
+	so.paths = o->smp.paths;
+	so.seed = o->smp.seed;
+	so.threads = (int)o->smp.threads;
+	so.periods_per_year = u->periods_per_year;
+	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
+	so.progress = cli_progress_update;
+	so.progress_ctx = &prog;
+	rc = rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
+	cli_progress_finish(&prog);
+	if (rc)
+		return cli_fail("enough", &err);
+	for (k = 0; k < n; k++)
+		for (j = 0; j < nres; j++)
+			if (res[j].rule == sr[k].rule)
+				res[j] = sr[k];
+	e->paths = o->smp.paths;
+	return HC_OK;
+}
+
+static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
+			 const struct rules_config *cfg, struct enough_run *e,
+			 struct rule_result *res, size_t nres)
+{
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_result *br = NULL;
+	struct bootstrap_options bo;
+	struct cli_progress prog;
+	struct hc_error err;
+	int rc;
+
+	hc_error_clear(&err);
+	bootstrap_options_init(&bo);
+	bo.replicates = o->bootstrap;
+	bo.kind = o->bootstrap_kind;
+	bo.block_length = o->block_length;
+	bo.seed = o->smp.seed;
+	bo.threads = (int)o->smp.threads;
+	rc = bootstrap_base_alloc(&b, u, &err);
+	if (rc == HC_OK) {
+		cli_progress_init(&prog, "bootstrap", "replicates", o->out.quiet);
+		bo.progress = cli_progress_update;
+		bo.progress_ctx = &prog;
+		rc = bootstrap_run(&br, b, &bo, &err);
+		cli_progress_finish(&prog);
+	}
+	if (rc == HC_OK)
+		rc = rules_bootstrap_exact(cfg, br->vbar, br->cbar, br->replicates, u->m,
+					   u->periods_per_year, res, nres, &err);
+	if (rc == HC_OK) {
+		e->bootstrapped = 1;
+		e->replicates = br->replicates;
+		e->block_length = br->block_length;
+		e->kind = br->kind;
+	}
+	if (rc == HC_OK && o->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
+		struct sampler_options so;
+
+		sampler_options_init(&so);
+		so.paths = o->bootstrap_paths;
+		so.threads = (int)o->smp.threads;
+		so.periods_per_year = u->periods_per_year;
+		cli_progress_init(&prog, "sampled bootstrap", "replicates", o->out.quiet);
+		bo.progress = cli_progress_update;
+		bo.progress_ctx = &prog;
+		rc = rules_bootstrap_sampled(cfg, u, b, &bo, &so, res, nres, &err);
+		cli_progress_finish(&prog);
+		e->sampled_bootstrapped = rc == HC_OK;
+	}
+	bootstrap_result_free(br);
+	bootstrap_base_free(b);
+	return rc ? cli_fail("enough", &err) : HC_OK;
+}
+
+static int run_data(const struct enough_opts *o, const struct cli_args *a,
+		    const char *path, const struct rules_config *cfg,
+		    struct universe **up, struct enough_run *e,
+		    struct rule_result *res, size_t *nres)
+{
+	struct universe *u;
+	struct rules_input in;
+	struct moments mo;
+	struct hc_error err;
+	int rc;
+
+	if (o->uni.covariance)
+		return cli_usage_error("enough", "--covariance is not supported by enough yet: give the return history");
+	if (o->smp.sizes)
+		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
+	if (o->smp.paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error("enough", "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
+	rc = enough_load(&o->uni, a, path, up);
+	if (rc)
+		return rc;
+	u = *up;
+	hc_error_clear(&err);
+	rc = moments_from_universe(&mo, u, &err);
+	if (rc)
+		return cli_fail("enough", &err);
+	e->u = u;
+	e->vbar = mo.average_variance;
+	e->cbar = mo.average_covariance;
+	e->m = u->m;
+	e->ppy = u->periods_per_year;
+	e->annualised = 1;
+	e->seed = o->smp.seed;
+	memset(&in, 0, sizeof in);
+	in.vbar = e->vbar;
+	in.cbar = e->cbar;
+	in.m = e->m;
+	in.periods_per_year = e->ppy;
+	rc = rules_evaluate(cfg, &in, res, nres, &err);
+	if (rc)
+		return cli_fail("enough", &err);
+	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
+		for (size_t j = 0; j < *nres; j++)
+			if (RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK)
+				snprintf(res[j].note, sizeof res[j].note,
+					 "needs complete data: the sampler draws whole return series");
+	} else if (cfg->selected & RULES_SAMPLED_MASK) {
+		rc = run_sampled(o, u, cfg, e->cbar, e, res, *nres);
+		if (rc)
+			return rc;
+	}
+	if (o->bootstrap == 0)
+		e->no_interval = "no interval: --bootstrap 0";
+	else if (u->has_missing)
+		e->no_interval = "no interval: the bootstrap resamples whole periods and needs complete data";
+	else
+		rc = run_bootstrap(o, u, cfg, e, res, *nres);
+	return rc;
+}
 
 int cmd_enough(int argc, char **argv)
 {
-	(void)argc;
-	(void)argv;
-	fprintf(stderr, "holdcount enough: not built yet\n");
-	return 2;
+	struct enough_opts o;
+	struct cli_args a;
+	struct rules_config cfg;
+	struct rule_result res[RULES_COUNT];
+	struct enough_run e;
+	struct universe *u = NULL;
+	struct report *r = NULL;
+	struct hc_error err;
+	size_t nres = 0;
+	int rc, have_data;
+
+	memset(&o, 0, sizeof o);
+	o.bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
+	o.bootstrap_paths = ENOUGH_DEFAULT_BOOTSTRAP_PATHS;
+	cli_sampling_init(&o.smp);
+	cli_summary_init(&o.sum);
+	cli_universe_init(&o.uni);
+	cli_output_init(&o.out);
+	rc = cli_parse(&cli_command_enough, argc, argv, &o, &a);
+	if (rc != HC_OK)
+		return cli_parse_status(rc);
+	memset(&e, 0, sizeof e);
+	have_data = a.npositional == 1;
+	if (have_data && data_summary_given(&a)) {
+		rc = cli_usage_error("enough", "give a UNIVERSE file or summary statistics, not both");
+		goto cleanup;
+	}
+	rc = config_from(&o, &a, have_data, &cfg);
+	if (rc)
+		goto cleanup;
+	if (have_data)
+		rc = run_data(&o, &a, a.positional[0], &cfg, &u, &e, res, &nres);
+	else
+		rc = run_summary(&o, &a, &cfg, &e, res, &nres);
+	if (rc)
+		goto cleanup;
+	hc_error_clear(&err);
+	r = report_alloc();
+	if (!r || add_fields(r, &e) || rules_report(r, res, nres, &err) || add_notes(r, &e)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("enough", &err);
+		goto cleanup;
+	}
+	rc = cli_write_report("enough", &o.out, r);
+cleanup:
+	report_free(r);
+	universe_free(u);
+	cli_args_release(&a);
+	return rc;
 }

@@ -1,24 +1,1129 @@
 /*
- * cmd_report.c - placeholder so the tree links; its owner replaces this file.
+ * cmd_report.c - `holdcount report [UNIVERSE] -o DIR`: the quarterly report
+ * folder.
+ *
+ * One run computes the curve, the rules (with their bootstrap interval) and,
+ * with --holdings, the audit, exactly as `holdcount curve`, `enough` and
+ * `audit` do with the same options and seed, builds the same struct report
+ * objects, and renders each of them to its CSV (curve.csv, enough.csv,
+ * audit.csv), to summary.json (each report's JSON object under its name)
+ * and to the tables of summary.md.  No figure is computed twice.  Plots are
+ * written by the library's plots module from the same result types.
+ *
+ * The folder is built under a temporary name and renamed into place
+ * (reportdir.h); this file's signal handler removes the temporary folder and
+ * any half-written file on SIGINT/SIGTERM.
  */
+#define _GNU_SOURCE 1
+
+#include <limits.h>
+#include <math.h>
+#include <signal.h>
+#include <stddef.h>
 #include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+#include <unistd.h>
 
 #include "cli.h"
+#include "holdcount/audit.h"
+#include "holdcount/bootstrap.h"
+#include "holdcount/curve.h"
+#include "holdcount/holdings.h"
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/outfile.h"
+#include "holdcount/plots.h"
+#include "holdcount/reportdir.h"
+#include "holdcount/rules.h"
+#include "holdcount/sampler.h"
+#include "holdcount/universe.h"
+
+#ifndef HOLDCOUNT_DATA_DIR
+#define HOLDCOUNT_DATA_DIR "data"
+#endif
+
+/* The rows of the curve shown in summary.md (the CSV has every grid row). */
+static const size_t readable_grid[] = { 1, 2, 3, 5, 10, 15, 20, 25, 30, 40, 50, 75, 100, 150, 200, 300, 500, 1000 };
+
+struct report_opts {
+	const char *output;
+	int force;
+	int plot_format;
+	int quiet;
+	const char *holdings, *sectors;
+	size_t bootstrap;
+	double te_budget;
+	struct cli_sampling sam;
+	struct cli_universe uni;
+};
+
+static const char *const format_words[] = { "png", "svg", "pdf", NULL };
+
+#define RO(f) offsetof(struct report_opts, f)
+static const struct cli_option report_own[] = {
+	{ "output", 'o', CLI_STRING, RO(output), "DIR", "the report folder to write (required)", NULL, NULL },
+	{ "force", 0, CLI_FLAG, RO(force), NULL,
+	  "replace an existing report folder (only once the new one is complete)", NULL, NULL },
+	{ "plot-format", 0, CLI_CHOICE, RO(plot_format), NULL, "format of the rendered plots", format_words, "png" },
+	{ "quiet", 'q', CLI_FLAG, RO(quiet), NULL, "no progress display on standard error", NULL, NULL },
+	{ "holdings", 0, CLI_STRING, RO(holdings), "FILE",
+	  "holdings CSV fund,id,weight: audit these funds (the demo's funds with no UNIVERSE)", NULL, NULL },
+	{ "sectors", 0, CLI_STRING, RO(sectors), "FILE",
+	  "sector map CSV id,label for the audit (the demo's map with no UNIVERSE)", NULL, NULL },
+	{ "bootstrap", 0, CLI_COUNT, RO(bootstrap), "B",
+	  "bootstrap replicates for the rules' intervals; 0 = none", NULL, "1000" },
+	{ "te-budget", 0, CLI_FRACTION, RO(te_budget), "B", "tracking-error budget a year (2% or 0.02)", NULL, "2%" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+static const struct cli_group report_group = { "report options", report_own };
 
 static const struct cli_group_use report_groups[] = {
-	{ &cli_group_output, 0 },
+	{ &report_group, 0 },
+	{ &cli_group_sampling, RO(sam) },
+	{ &cli_group_universe, RO(uni) },
 	{ NULL, 0 }
 };
 
 const struct cli_command cli_command_report = {
-	"report", cmd_report, "write a report folder: tables, JSON summary, gnuplot scripts and plots", "UNIVERSE",
-	"Not built yet.", 0, 64, report_groups
+	"report", cmd_report, "write a report folder: tables, JSON summary, gnuplot scripts and plots",
+	"[UNIVERSE]",
+	"Writes DIR with summary.md (the universe, the curve at a readable grid, every rule's count with "
+	"its 90% bootstrap interval, the audited funds, the plots and the cautions), summary.json (every "
+	"figure of the summary), curve.csv, enough.csv and audit.csv (what 'holdcount curve', 'enough' and "
+	"'audit' print with --format csv and the same options), gnuplot scripts with their data (*.gp, "
+	"*.dat) and, when gnuplot is on the PATH, their renders. The folder is built under a temporary "
+	"name and renamed into place, so an interrupted run leaves the previous report or none. With no "
+	"UNIVERSE it runs on the bundled invented demo universe, its sectors and funds.",
+	0, 1, report_groups
 };
+
+/* Everything one run computes and builds; released by run_release. */
+struct run {
+	const struct report_opts *o;
+	const char *universe_path, *holdings_path, *sectors_path;
+	struct universe *u;
+	struct moments mo;
+	size_t *sizes, nsizes;
+	struct curve *curve, *full;
+	struct sampler_result *every;      /* sizes 1..M, for the sampled rules */
+	struct rules_config cfg;
+	struct rule_result rules[RULES_COUNT];
+	size_t nrules;
+	struct bootstrap_result *boot;
+	struct holdings *h;
+	struct holdings_labels *labels;
+	struct audit_result *audit;
+	struct report *rep_universe, *rep_curve, *rep_enough, *rep_audit, *rep_plots;
+	int rendered;
+	char gnuplot[PATH_MAX];
+};
+
+static void run_release(struct run *r)
+{
+	report_free(r->rep_universe);
+	report_free(r->rep_curve);
+	report_free(r->rep_enough);
+	report_free(r->rep_audit);
+	report_free(r->rep_plots);
+	audit_result_free(r->audit);
+	holdings_labels_free(r->labels);
+	holdings_free(r->h);
+	bootstrap_result_free(r->boot);
+	sampler_result_free(r->every);
+	curve_free(r->full);
+	curve_free(r->curve);
+	hc_free(r->sizes);
+	universe_free(r->u);
+}
+
+/* ---- progress and signals ---------------------------------------------------- */
+
+static int stage_enabled(const struct report_opts *o)
+{
+	return !o->quiet && isatty(STDERR_FILENO);
+}
+
+static void stage(const struct report_opts *o, const char *what)
+{
+	if (stage_enabled(o))
+		fprintf(stderr, "holdcount report: %s\n", what);
+}
+
+static void on_signal(int sig)
+{
+	static const char msg[] = "holdcount report: interrupted; the unfinished report folder was removed\n";
+	ssize_t ignored;
+
+	(void)sig;
+	outfile_unlink_pending();
+	reportdir_unlink_pending();
+	ignored = write(STDERR_FILENO, msg, sizeof msg - 1);
+	(void)ignored;
+	_exit(HC_EINTERRUPT);
+}
+
+static void install_signals(void)
+{
+	struct sigaction sa, old;
+	int sigs[2] = { SIGINT, SIGTERM }, i;
+
+	memset(&sa, 0, sizeof sa);
+	sa.sa_handler = on_signal;
+	sigemptyset(&sa.sa_mask);
+	for (i = 0; i < 2; i++)
+		/* a signal the parent ignores (background job, nohup) stays ignored */
+		if (sigaction(sigs[i], NULL, &old) == 0 && old.sa_handler != SIG_IGN)
+			sigaction(sigs[i], &sa, NULL);
+}
+
+/* ---- computing ----------------------------------------------------------------- */
+
+/* The loader's options from the universe group (NaN or 0 periods a year:
+ * detect from the dates). */
+static int load_universe(const struct report_opts *o, const char *path, struct universe **out)
+{
+	const struct cli_universe *cu = &o->uni;
+	struct universe_options uo;
+	struct hc_error err;
+
+	universe_options_init(&uo);
+	if (cu->log_returns && !cu->prices)
+		return cli_usage_error("report", "--log-returns needs --prices (log returns are computed from prices)");
+	uo.values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
+	uo.layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
+	uo.percent = cu->percent;
+	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
+		return cli_usage_error("report", "--min-coverage must be above 0 and at most 1, found %g", cu->min_coverage);
+	uo.min_coverage = cu->min_coverage;
+	if (!isnan(cu->periods_per_year) && cu->periods_per_year < 0.0)
+		return cli_usage_error("report", "--periods-per-year must be positive, found %g", cu->periods_per_year);
+	uo.periods_per_year = isnan(cu->periods_per_year) ? 0.0 : cu->periods_per_year;
+	if (cu->delimiter) {
+		if (strcmp(cu->delimiter, ",") && strcmp(cu->delimiter, ";"))
+			return cli_usage_error("report", "--delimiter must be ',' or ';', found '%s'", cu->delimiter);
+		uo.delimiter = cu->delimiter[0];
+	}
+	uo.date_column = cu->date_column;
+	uo.id_column = cu->id_column;
+	uo.value_column = cu->value_column;
+	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, &uo.max_bytes))
+		return cli_usage_error("report", "--max-memory %zu MiB is too large", cu->max_memory_mib);
+	hc_error_clear(&err);
+	return universe_load(out, path, &uo, &err) ? cli_fail("report", &err) : HC_OK;
+}
+
+static int threads_of(const struct report_opts *o)
+{
+	return o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
+}
+
+static int sample(struct run *r, const size_t *sizes, size_t nsizes, int want_returns,
+		  struct sampler_result **res, const char *label, struct hc_error *err)
+{
+	struct sampler_options so;
+	struct cli_progress prog;
+	int rc;
+
+	sampler_options_init(&so);
+	so.paths = r->o->sam.paths;
+	so.seed = r->o->sam.seed;
+	so.threads = threads_of(r->o);
+	so.periods_per_year = r->u->periods_per_year;
+	so.want_returns = want_returns;
+	cli_progress_init(&prog, label, "paths", r->o->quiet);
+	so.progress = cli_progress_update;
+	so.progress_ctx = &prog;
+	rc = sampler_run(res, r->u, sizes, nsizes, &so, err);
+	cli_progress_finish(&prog);
+	return rc;
+}
+
+/* The curve as `holdcount curve` computes it: exact at the grid, sampled there. */
+static int compute_curve(struct run *r, struct hc_error *err)
+{
+	struct sampler_result *res = NULL;
+	size_t *every, i;
+	int rc;
+
+	if (r->o->sam.sizes)
+		rc = curve_parse_sizes(r->o->sam.sizes, r->u->m, &r->sizes, &r->nsizes, err);
+	else
+		rc = curve_default_sizes(r->u->m, &r->sizes, &r->nsizes, err);
+	if (rc == HC_OK)
+		rc = curve_exact(&r->curve, &r->mo, r->sizes, r->nsizes, r->u->periods_per_year, err);
+	if (rc == HC_OK && r->o->sam.paths > 0) {
+		rc = sample(r, r->sizes, r->nsizes, 0, &res, "sampling the curve", err);
+		if (rc == HC_OK)
+			rc = sampler_summarise(r->curve, res, err);
+		sampler_result_free(res);
+	}
+	if (rc != HC_OK)
+		return rc;
+	/* every count 1..M for the plots and the sampled rules */
+	every = hc_calloc(r->u->m, sizeof *every);
+	if (!every)
+		return hc_error(err, HC_ENOMEM, "out of memory for the count grid");
+	for (i = 0; i < r->u->m; i++)
+		every[i] = i + 1;
+	rc = curve_exact(&r->full, &r->mo, every, r->u->m, r->u->periods_per_year, err);
+	if (rc == HC_OK && r->o->sam.paths > 0)
+		rc = sample(r, every, r->u->m, 1, &r->every, "sampling every count", err);
+	hc_free(every);
+	return rc;
+}
+
+/* The rules as `holdcount enough` computes them, with the bootstrap interval
+ * of the exact rules. */
+static int compute_rules(struct run *r, struct hc_error *err)
+{
+	struct rules_input in;
+	struct bootstrap_base *base = NULL;
+	struct bootstrap_options bo;
+	struct cli_progress prog;
+	int rc;
+
+	rules_config_init(&r->cfg);
+	r->cfg.te_budget = r->o->te_budget;
+	if ((rc = rules_config_check(&r->cfg, err)) != HC_OK)
+		return rc;
+	memset(&in, 0, sizeof in);
+	in.vbar = r->mo.average_variance;
+	in.cbar = r->mo.average_covariance;
+	in.m = r->u->m;
+	in.periods_per_year = r->u->periods_per_year;
+	in.sampled = r->every;
+	if (r->every && (rc = rules_universe_return(r->u, r->u->periods_per_year, &in.universe_return, err)))
+		return rc;
+	if ((rc = rules_evaluate(&r->cfg, &in, r->rules, &r->nrules, err)) != HC_OK || r->o->bootstrap == 0)
+		return rc;
+	stage(r->o, "bootstrap of the periods");
+	bootstrap_options_init(&bo);
+	bo.replicates = r->o->bootstrap;
+	bo.seed = r->o->sam.seed;
+	bo.threads = threads_of(r->o);
+	cli_progress_init(&prog, "bootstrap", "replicates", r->o->quiet);
+	bo.progress = cli_progress_update;
+	bo.progress_ctx = &prog;
+	rc = bootstrap_base_alloc(&base, r->u, err);
+	if (rc == HC_OK)
+		rc = bootstrap_run(&r->boot, base, &bo, err);
+	cli_progress_finish(&prog);
+	bootstrap_base_free(base);
+	if (rc == HC_OK)
+		rc = rules_bootstrap_exact(&r->cfg, r->boot->vbar, r->boot->cbar, r->boot->replicates, r->u->m,
+					   r->u->periods_per_year, r->rules, r->nrules, err);
+	return rc;
+}
+
+/* The audit as `holdcount audit` computes it with no policy options. */
+static int compute_audit(struct run *r, struct hc_error *err)
+{
+	struct holdings_options ho;
+	struct audit_options ao;
+	struct cli_progress prog;
+	size_t k;
+	int rc;
+
+	holdings_options_init(&ho);
+	if ((rc = holdings_load(&r->h, r->holdings_path, &ho, err)) != HC_OK)
+		return rc;
+	for (k = 0; k < r->h->nwarnings; k++)
+		fprintf(stderr, "holdcount report: warning: %s\n", r->h->warnings[k]);
+	if (r->sectors_path && (rc = holdings_labels_load(&r->labels, r->sectors_path, 0, err)) != HC_OK)
+		return rc;
+	audit_options_init(&ao);
+	ao.paths = r->o->sam.paths;
+	ao.seed = r->o->sam.seed;
+	ao.threads = threads_of(r->o);
+	ao.sectors = r->labels;
+	cli_progress_init(&prog, "sampling the funds' counts", "paths", r->o->quiet);
+	ao.progress = cli_progress_update;
+	ao.progress_ctx = &prog;
+	rc = audit_run(&r->audit, r->h, r->u, &r->mo, &ao, err);
+	cli_progress_finish(&prog);
+	return rc;
+}
+
+static int compute(struct run *r, struct hc_error *err)
+{
+	int rc;
+
+	stage(r->o, "exact curve");
+	if ((rc = moments_from_universe(&r->mo, r->u, err)) != HC_OK || (rc = compute_curve(r, err)) != HC_OK)
+		return rc;
+	stage(r->o, "rules");
+	if ((rc = compute_rules(r, err)) != HC_OK)
+		return rc;
+	if (r->holdings_path) {
+		stage(r->o, "audit of the funds");
+		rc = compute_audit(r, err);
+	}
+	return rc;
+}
+
+/* ---- the report objects ----------------------------------------------------------- */
+
+static int add_scale(struct report *rep, double ppy)
+{
+	char text[200];
+
+	snprintf(text, sizeof text, "annualised: variances times %g, standard deviations times sqrt(%g)", ppy, ppy);
+	return report_add_real(rep, "periods_per_year", "periods per year", ppy, REPORT_STYLE_PLAIN) ||
+	       report_add_text(rep, "annualisation", "annualisation", text);
+}
+
+static int build_universe(struct run *r)
+{
+	struct report *rep = r->rep_universe = report_alloc();
+	char first[16], last[16];
+	struct report_table *t;
+	size_t i;
+
+	if (!rep)
+		return HC_ENOMEM;
+	universe_format_date(r->u->dates[0], first);
+	universe_format_date(r->u->dates[r->u->t - 1], last);
+	if (report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
+	    report_add_int(rep, "securities_read", "securities read", (long long)r->u->m_read) ||
+	    report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
+	    report_add_int(rep, "securities_dropped", "securities dropped", (long long)r->u->ndropped) ||
+	    report_add_int(rep, "periods", "periods", (long long)r->u->t) ||
+	    report_add_text(rep, "first_date", "first period", first) ||
+	    report_add_text(rep, "last_date", "last period", last) ||
+	    add_scale(rep, r->u->periods_per_year) ||
+	    report_add_bool(rep, "periods_detected", "periods per year detected from the dates",
+			    r->u->periods_detected) ||
+	    report_add_real(rep, "average_variance", "average variance", r->mo.average_variance * r->u->periods_per_year,
+			    REPORT_STYLE_FIXED4) ||
+	    report_add_real(rep, "average_covariance", "average covariance",
+			    r->mo.average_covariance * r->u->periods_per_year, REPORT_STYLE_FIXED4) ||
+	    report_add_real(rep, "average_correlation", "average correlation",
+			    r->mo.has_correlation ? r->mo.average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
+			    r->curve->floor_variance >= 0 ? sqrt(r->curve->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
+	    report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
+			    REPORT_STYLE_PERCENT))
+		return HC_ENOMEM;
+	if (r->u->ndropped) {
+		t = report_add_table(rep, "dropped", "securities dropped");
+		if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+		    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
+			return HC_ENOMEM;
+		for (i = 0; i < r->u->ndropped; i++)
+			if (report_table_add_row(t) || report_table_set_text(t, i, 0, r->u->dropped[i].id) ||
+			    report_table_set_text(t, i, 1, r->u->dropped[i].reason))
+				return HC_ENOMEM;
+	}
+	return report_add_cautions(rep);
+}
+
+/* The report `holdcount curve` prints: its first table is curve.csv. */
+static int build_curve(struct run *r)
+{
+	struct report *rep = r->rep_curve = report_alloc();
+	const struct curve *c = r->curve;
+	struct report_table *t;
+	char seed[32];
+	size_t i;
+
+	if (!rep)
+		return HC_ENOMEM;
+	snprintf(seed, sizeof seed, "%llu", (unsigned long long)r->o->sam.seed);
+	if (report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
+	    report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
+	    report_add_int(rep, "securities_dropped", "securities dropped", (long long)r->u->ndropped) ||
+	    report_add_int(rep, "periods", "periods", (long long)r->u->t) || add_scale(rep, c->periods_per_year) ||
+	    report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
+			    c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
+	    report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(c->universe_variance),
+			    REPORT_STYLE_PERCENT) ||
+	    report_add_real(rep, "average_correlation", "average correlation",
+			    r->mo.has_correlation ? r->mo.average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    report_add_int(rep, "paths", "random portfolios per count", (long long)c->paths) ||
+	    (c->paths ? report_add_text(rep, "seed", "seed", seed) : report_add_none(rep, "seed", "seed")))
+		return HC_ENOMEM;
+	/* the curve table with the scale appended as a column, as the curve
+	 * command's CSV carries it */
+	t = report_add_table(rep, "curve", "risk by holding count");
+	if (!t || curve_report(c, t) != HC_OK ||
+	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (i = 0; i < t->nrows; i++)
+		report_table_set_real(t, i, t->ncols - 1, c->periods_per_year);
+	return report_add_cautions(rep);
+}
+
+/* The "rules" table in the contract of rules.h's rules_report, which is
+ * declared on main but not yet defined there; replace this copy by a call
+ * to rules_report when the rules branch lands (tests/cli_report_identity.sh
+ * compares enough.csv with `holdcount enough --format csv` once that
+ * command exists). */
+static const struct { const char *key, *title; int style; } rule_columns[] = {
+	{ "rule", "rule", REPORT_STYLE_PLAIN },
+	{ "parameters", "parameters", REPORT_STYLE_PLAIN },
+	{ "count", "count", REPORT_STYLE_PLAIN },
+	{ "value_at_count", "value at count", REPORT_STYLE_PERCENT },
+	{ "count_p05", "count p05", REPORT_STYLE_PLAIN },
+	{ "count_p50", "count p50", REPORT_STYLE_PLAIN },
+	{ "count_p95", "count p95", REPORT_STYLE_PLAIN },
+	{ "met", "met", REPORT_STYLE_PLAIN },
+	{ "unit", "unit", REPORT_STYLE_PLAIN },
+	{ "threshold", "threshold", REPORT_STYLE_PERCENT },
+	{ "replicates", "replicates", REPORT_STYLE_PLAIN },
+	{ "replicates_met", "replicates met", REPORT_STYLE_PLAIN },
+	{ "note", "note", REPORT_STYLE_PLAIN },
+};
+
+static int percentile_cell(struct report_table *t, size_t row, size_t col, const struct rule_result *res, double p)
+{
+	if (!res->bootstrapped)
+		return 0;
+	if (isnan(p))
+		return report_table_set_text(t, row, col, "not met");
+	report_table_set_real(t, row, col, p);
+	return 0;
+}
+
+static int rules_table(struct report *rep, const struct rule_result *res, size_t nres)
+{
+	struct report_table *t = report_add_table(rep, "rules", "smallest holding count meeting each rule");
+	size_t k, row;
+	int bad = 0;
+
+	if (!t)
+		return HC_ENOMEM;
+	for (k = 0; k < sizeof rule_columns / sizeof rule_columns[0]; k++)
+		if (report_table_add_column(t, rule_columns[k].key, rule_columns[k].title, rule_columns[k].style))
+			return HC_ENOMEM;
+	for (k = 0; k < nres; k++, res++) {
+		if (report_table_add_row(t))
+			return HC_ENOMEM;
+		row = t->nrows - 1;
+		bad |= report_table_set_text(t, row, 0, res->name);
+		bad |= report_table_set_text(t, row, 1, res->parameters);
+		if (res->met) {
+			report_table_set_int(t, row, 2, (long long)res->count);
+			report_table_set_real(t, row, 3, res->value);
+		}
+		bad |= percentile_cell(t, row, 4, res, res->count_p05);
+		bad |= percentile_cell(t, row, 5, res, res->count_p50);
+		bad |= percentile_cell(t, row, 6, res, res->count_p95);
+		report_table_set_bool(t, row, 7, res->met);
+		bad |= report_table_set_text(t, row, 8, res->unit);
+		report_table_set_real(t, row, 9, res->threshold);
+		if (res->bootstrapped) {
+			report_table_set_int(t, row, 10, (long long)res->replicates);
+			report_table_set_int(t, row, 11, (long long)res->replicates_met);
+		}
+		if (res->note[0])
+			bad |= report_table_set_text(t, row, 12, res->note);
+	}
+	return bad ? HC_ENOMEM : HC_OK;
+}
+
+/* The report `holdcount enough` prints: its first table is enough.csv. */
+static int build_enough(struct run *r)
+{
+	struct report *rep = r->rep_enough = report_alloc();
+	char seed[32];
+
+	if (!rep)
+		return HC_ENOMEM;
+	snprintf(seed, sizeof seed, "%llu", (unsigned long long)r->o->sam.seed);
+	if (report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
+	    report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
+	    report_add_int(rep, "periods", "periods", (long long)r->u->t) || add_scale(rep, r->u->periods_per_year) ||
+	    report_add_int(rep, "paths", "random portfolios per count (sampled rules)", (long long)r->o->sam.paths) ||
+	    report_add_text(rep, "seed", "seed", seed) ||
+	    report_add_int(rep, "bootstrap_replicates", "bootstrap replicates", (long long)r->o->bootstrap) ||
+	    (r->boot ? report_add_text(rep, "bootstrap_kind", "bootstrap", bootstrap_kind_name(r->boot->kind)) ||
+			       report_add_int(rep, "block_length", "block length (periods)", (long long)r->boot->block_length)
+		     : report_add_none(rep, "bootstrap_kind", "bootstrap")))
+		return HC_ENOMEM;
+	if (rules_table(rep, r->rules, r->nrules) != HC_OK)
+		return HC_ENOMEM;
+	return report_add_cautions(rep);
+}
+
+static int build_plots_report(struct run *r, const struct plots_input *pin, const unsigned char *made)
+{
+	struct report *rep = r->rep_plots = report_alloc();
+	struct report_table *t;
+	char name[REPORTDIR_NAME_MAX], cap[1024];
+	size_t row;
+	int k;
+
+	if (!rep || report_add_text(rep, "format", "plot format", plots_format_name(r->o->plot_format)) ||
+	    report_add_bool(rep, "rendered", "rendered with gnuplot", r->rendered))
+		return HC_ENOMEM;
+	t = report_add_table(rep, "plots", "plots");
+	if (!t || report_table_add_column(t, "name", "plot", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "title", "title", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "script", "script", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "image", "image", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "caption", "caption", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		if (report_table_add_row(t))
+			return HC_ENOMEM;
+		row = t->nrows - 1;
+		snprintf(name, sizeof name, "%s.gp", plots_name(k));
+		if (report_table_set_text(t, row, 0, plots_name(k)) || report_table_set_text(t, row, 1, plots_title(k)) ||
+		    report_table_set_text(t, row, 2, name) ||
+		    report_table_set_text(t, row, 4, plots_caption(k, pin, cap, sizeof cap)))
+			return HC_ENOMEM;
+		snprintf(name, sizeof name, "%s.%s", plots_name(k), plots_format_name(r->o->plot_format));
+		if (r->rendered && report_table_set_text(t, row, 3, name))
+			return HC_ENOMEM;
+	}
+	return HC_OK;
+}
+
+/* ---- writing the folder -------------------------------------------------------------- */
+
+static int write_report_file(struct reportdir *rd, const char *name, const struct report *rep,
+			     const struct report_writer *w, struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
+		return rc;
+	rc = w->write(fp, rep, err);
+	if (rc != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return reportdir_close(rd, fp, name, err);
+}
+
+/* One report's JSON object, without its trailing newline, into fp. */
+static int json_member(FILE *fp, const char *key, const struct report *rep, int last, struct hc_error *err)
+{
+	char *buf = NULL;
+	size_t len = 0;
+	FILE *mem;
+	int rc;
+
+	fprintf(fp, "  \"%s\": ", key);
+	if (!rep) {
+		fprintf(fp, "null%s\n", last ? "" : ",");
+		return HC_OK;
+	}
+	mem = open_memstream(&buf, &len);
+	if (!mem)
+		return hc_error(err, HC_ENOMEM, "out of memory writing summary.json");
+	rc = report_writer_json->write(mem, rep, err);
+	if (fclose(mem) != 0 && rc == HC_OK)
+		rc = hc_error(err, HC_ENOMEM, "out of memory writing summary.json");
+	if (rc == HC_OK) {
+		while (len && (buf[len - 1] == '\n' || buf[len - 1] == ' '))
+			len--;
+		fwrite(buf, 1, len, fp);
+		fprintf(fp, "%s\n", last ? "" : ",");
+	}
+	free(buf);   /* open_memstream's buffer comes from malloc */
+	return rc;
+}
+
+static int write_json(struct reportdir *rd, struct run *r, struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = reportdir_open(rd, "summary.json", &fp, err)) != HC_OK)
+		return rc;
+	fprintf(fp, "{\n  \"holdcount_version\": \"%s\",\n", HOLDCOUNT_VERSION);
+	rc = json_member(fp, "universe", r->rep_universe, 0, err);
+	rc = rc ? rc : json_member(fp, "curve", r->rep_curve, 0, err);
+	rc = rc ? rc : json_member(fp, "enough", r->rep_enough, 0, err);
+	rc = rc ? rc : json_member(fp, "audit", r->rep_audit, 0, err);
+	rc = rc ? rc : json_member(fp, "plots", r->rep_plots, 1, err);
+	fputs("}\n", fp);
+	if (rc != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return reportdir_close(rd, fp, "summary.json", err);
+}
+
+/* ---- summary.md ------------------------------------------------------------------------ */
+
+static long col_of(const struct report_table *t, const char *key)
+{
+	size_t j;
+
+	for (j = 0; j < t->ncols; j++)
+		if (strcmp(t->cols[j].key, key) == 0)
+			return (long)j;
+	return -1;
+}
+
+static const struct report_table *table_of(const struct report *rep, const char *key)
+{
+	size_t i;
+
+	for (i = 0; rep && i < rep->ntables; i++)
+		if (strcmp(rep->tables[i]->key, key) == 0)
+			return rep->tables[i];
+	return NULL;
+}
+
+/* A cell as the text writer would show it; '|' escaped for Markdown. */
+static void md_value(FILE *fp, const struct report_value *v, int style)
+{
+	const char *s;
+
+	switch (v->kind) {
+	case REPORT_REAL:
+		if (style == REPORT_STYLE_PERCENT)
+			fprintf(fp, "%.2f%%", 100.0 * v->real);
+		else if (style == REPORT_STYLE_FIXED2)
+			fprintf(fp, "%.2f", v->real);
+		else if (style == REPORT_STYLE_FIXED4)
+			fprintf(fp, "%.4f", v->real);
+		else if (style == REPORT_STYLE_SCI)
+			fprintf(fp, "%.4e", v->real);
+		else
+			fprintf(fp, "%.6g", v->real);
+		break;
+	case REPORT_INT:
+		fprintf(fp, "%lld", v->integer);
+		break;
+	case REPORT_TEXT:
+		for (s = v->text; s && *s; s++)
+			fputs(*s == '|' ? "\\|" : (char[2]){ *s == '\n' ? ' ' : *s, 0 }, fp);
+		break;
+	case REPORT_BOOL:
+		fputs(v->integer ? "yes" : "no", fp);
+		break;
+	default:
+		fputs("-", fp);
+	}
+}
+
+static const struct report_value *cell(const struct report_table *t, size_t row, const char *key)
+{
+	long j = col_of(t, key);
+	static const struct report_value none = { REPORT_NONE, 0, 0, 0, NULL };
+
+	return j < 0 ? &none : &t->cells[row * t->ncols + (size_t)j];
+}
+
+static int style_of(const struct report_table *t, const char *key)
+{
+	long j = col_of(t, key);
+
+	return j < 0 ? REPORT_STYLE_PLAIN : t->cols[j].style;
+}
+
+/* A Markdown table of the given columns (key, heading) of t; rows where
+ * keep(row) says so. */
+static void md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
+		     int (*keep)(const struct report_table *, size_t, const void *), const void *ctx)
+{
+	size_t i, j;
+
+	for (j = 0; j < ncols; j++)
+		fprintf(fp, "| %s ", cols[j][1]);
+	fputs("|\n", fp);
+	for (j = 0; j < ncols; j++)
+		fputs(j == 0 ? "|---" : "|--:", fp);
+	fputs("|\n", fp);
+	for (i = 0; i < t->nrows; i++) {
+		if (keep && !keep(t, i, ctx))
+			continue;
+		for (j = 0; j < ncols; j++) {
+			fputs("| ", fp);
+			md_value(fp, cell(t, i, cols[j][0]), style_of(t, cols[j][0]));
+			fputc(' ', fp);
+		}
+		fputs("|\n", fp);
+	}
+	fputc('\n', fp);
+}
+
+static int readable_row(const struct report_table *t, size_t row, const void *ctx)
+{
+	const struct report_value *v = cell(t, row, "n");
+	size_t m = *(const size_t *)ctx, k;
+
+	if (v->kind != REPORT_INT)
+		return 0;
+	if ((size_t)v->integer == m)
+		return 1;
+	for (k = 0; k < sizeof readable_grid / sizeof readable_grid[0]; k++)
+		if ((size_t)v->integer == readable_grid[k])
+			return 1;
+	return 0;
+}
+
+static void md_field(FILE *fp, const struct report *rep, const char *key, const char *label)
+{
+	size_t i;
+
+	for (i = 0; i < rep->nfields; i++)
+		if (strcmp(rep->fields[i].key, key) == 0) {
+			fprintf(fp, "- %s: ", label);
+			md_value(fp, &rep->fields[i].value, rep->fields[i].value.style);
+			fputc('\n', fp);
+		}
+}
+
+static void md_universe(FILE *fp, const struct run *r)
+{
+	static const char *const fields[][2] = {
+		{ "source", "source" }, { "securities_read", "securities read" },
+		{ "securities", "securities kept (complete over the sample)" },
+		{ "securities_dropped", "securities dropped" }, { "periods", "periods" },
+		{ "first_date", "first period" }, { "last_date", "last period" },
+		{ "periods_per_year", "periods per year" }, { "annualisation", "annualisation" },
+		{ "average_variance", "average variance (a year)" }, { "average_covariance", "average covariance (a year)" },
+		{ "average_correlation", "average correlation" },
+		{ "floor_sd", "floor sd, sqrt of the average covariance (a year)" },
+		{ "universe_sd", "sd of the equal-weight portfolio of all securities (a year)" },
+	};
+	size_t i;
+
+	fputs("## The universe\n\n", fp);
+	for (i = 0; i < sizeof fields / sizeof fields[0]; i++)
+		md_field(fp, r->rep_universe, fields[i][0], fields[i][1]);
+	fputc('\n', fp);
+}
+
+static void md_curve(FILE *fp, const struct run *r)
+{
+	static const char *const cols[][2] = {
+		{ "n", "holdings" }, { "expected_sd", "sqrt E[var] a year" },
+		{ "diversifiable_share", "diversifiable share" }, { "expected_tracking_error", "tracking error a year" },
+		{ "sampled_mean_sd", "mean sd (random)" }, { "sd_p05", "sd 5%" }, { "sd_p95", "sd 95%" },
+		{ "z_score", "z (sampled vs exact)" },
+	};
+	const struct report_table *t = table_of(r->rep_curve, "curve");
+
+	fputs("## Risk by holding count\n\n", fp);
+	fprintf(fp, "Exact figures for a random equal-weight portfolio of N holdings drawn without replacement, "
+		"and %zu random portfolios per count (seed %llu) to check them: z is the sampled mean variance's "
+		"distance from the exact one in Monte Carlo standard errors. Every grid row is in `curve.csv`.\n\n",
+		r->curve->paths, (unsigned long long)r->curve->seed);
+	if (t)
+		md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row, &r->u->m);
+}
+
+static void md_rules(FILE *fp, const struct run *r)
+{
+	static const char *const cols[][2] = {
+		{ "rule", "rule" }, { "parameters", "parameters" }, { "count", "count" },
+		{ "count_p05", "5%" }, { "count_p95", "95%" }, { "value_at_count", "value at count" },
+		{ "note", "note" },
+	};
+	const struct report_table *t = table_of(r->rep_enough, "rules");
+
+	fputs("## How many holdings are enough\n\n", fp);
+	fputs("Each rule's smallest count meeting it; 5% and 95% are the percentiles of that count over a "
+	      "bootstrap of the periods (the data's own estimation error). See `enough.csv` for units and "
+	      "thresholds.\n\n", fp);
+	if (t)
+		md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+}
+
+static void md_audit(FILE *fp, const struct run *r)
+{
+	static const char *const cols[][2] = {
+		{ "fund", "fund" }, { "holdings", "holdings" }, { "effective_holdings", "effective (1/HHI)" },
+		{ "max_weight", "largest weight" }, { "sd", "sd a year" }, { "equivalent_count", "equivalent count" },
+		{ "sd_percentile", "sd percentile" }, { "passed", "passed" }, { "failed_rules", "failed" },
+	};
+	const struct report_table *t = table_of(r->rep_audit, "funds");
+
+	fputs("## Audited funds\n\n", fp);
+	if (!t) {
+		fputs("No holdings were given (--holdings FILE audits funds).\n\n", fp);
+		return;
+	}
+	fprintf(fp, "From `%s`. The equivalent count is the number of equal-weight random holdings with the "
+		"same expected risk; the percentile places the fund's sd among random portfolios of its own "
+		"count. Screens and sector weights are in `audit.csv` and `summary.json`.\n\n",
+		r->holdings_path);
+	md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+}
+
+static void md_plots(FILE *fp, const struct run *r, const struct plots_input *pin, const unsigned char *made)
+{
+	char cap[1024];
+	int k;
+
+	fputs("## Plots\n\n", fp);
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		if (r->rendered && r->o->plot_format != PLOTS_PDF)
+			fprintf(fp, "![%s](%s.%s)\n\n", plots_title(k), plots_name(k), plots_format_name(r->o->plot_format));
+		else if (r->rendered)
+			fprintf(fp, "[%s](%s.pdf)\n\n", plots_title(k), plots_name(k));
+		fprintf(fp, "*%s* (`%s.gp`)\n\n", plots_caption(k, pin, cap, sizeof cap), plots_name(k));
+	}
+	if (!r->rendered)
+		fputs("gnuplot was not found on the PATH, so the plots are scripts only. To render them, install "
+		      "gnuplot and run, inside this folder, `gnuplot risk.gp` (and likewise for each `.gp` file); "
+		      "see README-plots.txt.\n\n", fp);
+}
+
+static int write_markdown(struct reportdir *rd, struct run *r, const struct plots_input *pin,
+			  const unsigned char *made, struct hc_error *err)
+{
+	char date[16];
+	time_t now = time(NULL);
+	struct tm tm;
+	FILE *fp;
+	size_t i;
+	int rc;
+
+	if ((rc = reportdir_open(rd, "summary.md", &fp, err)) != HC_OK)
+		return rc;
+	gmtime_r(&now, &tm);
+	strftime(date, sizeof date, "%Y-%m-%d", &tm);
+	fprintf(fp, "# Holding-count report\n\n");
+	fprintf(fp, "Written by holdcount %s on %s (UTC; the only line that changes when the same inputs are run "
+		"again).\n\n", HOLDCOUNT_VERSION, date);
+	md_universe(fp, r);
+	md_curve(fp, r);
+	md_rules(fp, r);
+	md_audit(fp, r);
+	md_plots(fp, r, pin, made);
+	fputs("## Cautions\n\n", fp);
+	for (i = 0; i < r->rep_universe->nnotes; i++)
+		fprintf(fp, "- %s\n", r->rep_universe->notes[i]);
+	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
+	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
+	      "`--format csv` and the same options\n- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a "
+	      "year)\n", fp);
+	return reportdir_close(rd, fp, "summary.md", err);
+}
+
+/* ---- plots ----------------------------------------------------------------------------- */
+
+static int write_plots(struct reportdir *rd, struct run *r, struct plots_input *pin, unsigned char *made,
+		       struct hc_error *err)
+{
+	unsigned need = 0;
+	char name[REPORTDIR_NAME_MAX];
+	FILE *fp;
+	int k, rc;
+
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		made[k] = (unsigned char)plots_available(k, pin);
+		if (made[k])
+			need |= plots_data_used(k);
+	}
+	for (k = 0; k < PLOTS_NDATA; k++) {
+		if (!(need & (1u << k)) || (k == PLOTS_DATA_SAMPLED && !pin->sampled))
+			continue;
+		if ((rc = reportdir_open(rd, plots_data_name(k), &fp, err)) != HC_OK)
+			return rc;
+		rc = plots_write_data(fp, k, pin, err);
+		if (rc != HC_OK) {
+			fclose(fp);
+			return rc;
+		}
+		if ((rc = reportdir_close(rd, fp, plots_data_name(k), err)) != HC_OK)
+			return rc;
+	}
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		snprintf(name, sizeof name, "%s.gp", plots_name(k));
+		if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
+			return rc;
+		rc = plots_write_script(fp, k, pin, r->o->plot_format, err);
+		if (rc != HC_OK) {
+			fclose(fp);
+			return rc;
+		}
+		if ((rc = reportdir_close(rd, fp, name, err)) != HC_OK)
+			return rc;
+	}
+	return HC_OK;
+}
+
+static int render_plots(struct reportdir *rd, struct run *r, const unsigned char *made, struct hc_error *err)
+{
+	char script[REPORTDIR_NAME_MAX], image[REPORTDIR_NAME_MAX], line[128];
+	int k, rc, done = 0, total = 0;
+
+	for (k = 0; k < PLOTS_NKINDS; k++)
+		total += made[k];
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		snprintf(script, sizeof script, "%s.gp", plots_name(k));
+		snprintf(image, sizeof image, "%s.%s", plots_name(k), plots_format_name(r->o->plot_format));
+		snprintf(line, sizeof line, "rendering %s (%d of %d)", image, ++done, total);
+		stage(r->o, line);
+		if ((rc = reportdir_expect(rd, image, err)) != HC_OK ||
+		    (rc = plots_render(r->gnuplot, reportdir_tmp_path(rd), script, err)) != HC_OK)
+			return rc;
+		if (!reportdir_has(rd, image))
+			return hc_error(err, HC_EINTERNAL, "gnuplot ran on '%s' but wrote no '%s'", script, image);
+	}
+	return HC_OK;
+}
+
+static int write_render_note(struct reportdir *rd, struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = reportdir_open(rd, "README-plots.txt", &fp, err)) != HC_OK)
+		return rc;
+	fputs("The plots in this folder are gnuplot scripts (*.gp) with their data (*.dat).\n"
+	      "gnuplot was not on the PATH when the report was written, so they were not rendered.\n\n"
+	      "To render them, install gnuplot 5 and run inside this folder:\n\n"
+	      "    gnuplot risk.gp\n\n"
+	      "and likewise for each .gp file (for f in *.gp; do gnuplot \"$f\"; done).\n"
+	      "Each script writes an image of the same name next to it; the format was chosen with\n"
+	      "--plot-format when the report was written (edit the 'set terminal' lines to change it).\n", fp);
+	return reportdir_close(rd, fp, "README-plots.txt", err);
+}
+
+static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *err)
+{
+	struct plots_input pin;
+	unsigned char made[PLOTS_NKINDS];
+	int rc;
+
+	memset(&pin, 0, sizeof pin);
+	pin.exact = r->full;
+	pin.sampled = r->curve->paths ? r->curve : NULL;
+	pin.rules = r->rules;
+	pin.nrules = r->nrules;
+	pin.te_budget = r->cfg.te_budget;
+	pin.audit = r->audit;
+	pin.universe_name = r->u->source ? (strrchr(r->u->source, '/') ? strrchr(r->u->source, '/') + 1 : r->u->source)
+					 : NULL;
+	r->rendered = plots_find_gnuplot(NULL, r->gnuplot, sizeof r->gnuplot);
+	rc = write_plots(rd, r, &pin, made, err);
+	if (rc == HC_OK)
+		rc = r->rendered ? render_plots(rd, r, made, err) : write_render_note(rd, err);
+	if (rc == HC_OK && (rc = build_plots_report(r, &pin, made)) != HC_OK)
+		rc = hc_error(err, rc, "out of memory building the report");
+	if (rc == HC_OK)
+		rc = write_report_file(rd, "curve.csv", r->rep_curve, report_writer_csv, err);
+	if (rc == HC_OK)
+		rc = write_report_file(rd, "enough.csv", r->rep_enough, report_writer_csv, err);
+	if (rc == HC_OK && r->rep_audit)
+		rc = write_report_file(rd, "audit.csv", r->rep_audit, report_writer_csv, err);
+	if (rc == HC_OK)
+		rc = write_json(rd, r, err);
+	if (rc == HC_OK)
+		rc = write_markdown(rd, r, &pin, made, err);
+	if (rc == HC_OK)
+		rc = reportdir_commit(rd, err);
+	return rc;
+}
+
+/* ---- the command ----------------------------------------------------------------------- */
+
+static int demo_path(char *buf, size_t size, const char *file)
+{
+	const char *dir = getenv("HOLDCOUNT_DATA_DIR");
+
+	snprintf(buf, size, "%s/%s", dir && dir[0] ? dir : HOLDCOUNT_DATA_DIR, file);
+	return access(buf, R_OK) == 0;
+}
+
+static int check_options(const struct report_opts *o, const struct cli_args *a)
+{
+	if (!o->output)
+		return cli_usage_error("report", "-o DIR is required: the report folder to write");
+	if (o->uni.missing == CLI_MISSING_PAIRWISE)
+		return cli_usage_error("report", "--missing pairwise does not apply: random portfolios and the audit "
+				       "need complete series");
+	if (o->uni.covariance)
+		return cli_usage_error("report", "--covariance does not apply: the report needs a return history");
+	if (!(o->te_budget > 0))
+		return cli_usage_error("report", "--te-budget must be above 0, found %g", o->te_budget);
+	(void)a;
+	return HC_OK;
+}
 
 int cmd_report(int argc, char **argv)
 {
-	(void)argc;
-	(void)argv;
-	fprintf(stderr, "holdcount report: not built yet\n");
-	return 2;
+	static char demo_universe[PATH_MAX], demo_funds[PATH_MAX], demo_sectors[PATH_MAX];
+	struct report_opts o;
+	struct cli_args a;
+	struct reportdir *rd = NULL;
+	size_t stale = 0;
+	struct run r;
+	struct hc_error err;
+	char line[PATH_MAX + 32];
+	int rc;
+
+	memset(&o, 0, sizeof o);
+	cli_sampling_init(&o.sam);
+	cli_universe_init(&o.uni);
+	o.bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
+	o.te_budget = RULES_DEFAULT_TE_BUDGET;
+	rc = cli_parse(&cli_command_report, argc, argv, &o, &a);
+	if (rc != HC_OK)
+		return cli_parse_status(rc);
+	memset(&r, 0, sizeof r);
+	hc_error_clear(&err);
+	r.o = &o;
+	if ((rc = check_options(&o, &a)) != HC_OK)
+		goto cleanup;
+	install_signals();
+	if (a.npositional) {
+		r.universe_path = a.positional[0];
+		r.holdings_path = o.holdings;
+		r.sectors_path = o.sectors;
+	} else {
+		if (!demo_path(demo_universe, sizeof demo_universe, "demo-universe.csv")) {
+			rc = cli_usage_error("report", "no UNIVERSE given and the demo universe '%s' cannot be read",
+					     demo_universe);
+			goto cleanup;
+		}
+		r.universe_path = demo_universe;
+		r.holdings_path = o.holdings ? o.holdings
+			: demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv") ? demo_funds : NULL;
+		r.sectors_path = o.sectors ? o.sectors
+			: demo_path(demo_sectors, sizeof demo_sectors, "demo-sectors.csv") ? demo_sectors : NULL;
+	}
+	/* the folder first: an existing DIR is refused before any work, and
+	 * the temporary folder shows that a run is under way */
+	if ((rc = reportdir_begin(&rd, o.output, o.force, &stale, &err)) != HC_OK) {
+		rc = cli_fail("report", &err);
+		goto cleanup;
+	}
+	if (stale && stage_enabled(&o))
+		fprintf(stderr, "holdcount report: removed %zu temporary folder%s left by an interrupted run\n", stale,
+			stale == 1 ? "" : "s");
+	snprintf(line, sizeof line, "loading '%s'", r.universe_path);
+	stage(&o, line);
+	if ((rc = load_universe(&o, r.universe_path, &r.u)) != HC_OK)
+		goto cleanup;
+	rc = compute(&r, &err);
+	if (rc == HC_OK && (build_universe(&r) || build_curve(&r) || build_enough(&r)))
+		rc = hc_error(&err, HC_ENOMEM, "out of memory building the report");
+	if (rc == HC_OK && r.audit)
+		rc = audit_report(&r.rep_audit, r.audit, r.h, &err);
+	if (rc == HC_OK) {
+		stage(&o, "writing the folder");
+		rc = write_folder(&r, rd, &err);
+	}
+	if (rc != HC_OK) {
+		rc = cli_fail("report", &err);
+		goto cleanup;
+	}
+	if (stage_enabled(&o))
+		fprintf(stderr, "holdcount report: wrote '%s' (start with summary.md)\n", o.output);
+cleanup:
+	reportdir_free(rd);
+	run_release(&r);
+	cli_args_release(&a);
+	return rc;
 }

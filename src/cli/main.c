@@ -35,6 +35,19 @@ static int help(int argc, char **argv)
 		cli_print_main_help(stdout);
 		return 0;
 	}
+	/* For packagers: the manual pages and the completion script are
+	 * generated from the option tables, like --help. */
+	if (strcmp(argv[2], "--man") == 0) {
+		cmd = argc > 3 ? cli_find_command(argv[3]) : NULL;
+		if (argc > 3 && !cmd)
+			return unknown("command", argv[3]);
+		cli_print_man(stdout, cmd, HOLDCOUNT_VERSION);
+		return fflush(stdout) == 0 ? 0 : HC_EIO;
+	}
+	if (strcmp(argv[2], "--bash-completion") == 0 && argc == 3) {
+		cli_print_bash_completion(stdout);
+		return fflush(stdout) == 0 ? 0 : HC_EIO;
+	}
 	if (argc > 3) {
 		fprintf(stderr, "holdcount help: expected one command name, found %d words\n", argc - 2);
 		return HC_EUSAGE;

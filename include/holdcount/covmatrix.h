@@ -1,0 +1,88 @@
+/*
+ * covmatrix.h - a covariance matrix of M securities: read from a CSV (a
+ * risk model's output), or computed from a universe's returns.
+ *
+ * CSV layout (docs/formats.md): the header row is a corner cell (empty or
+ * any label) then the M ids; each of the M following rows is an id (the
+ * same ids in the same order) then M numbers.  Units are whatever the file
+ * holds (per period for computed matrices).
+ */
+#ifndef HOLDCOUNT_COVMATRIX_H
+#define HOLDCOUNT_COVMATRIX_H
+
+#include <stddef.h>
+
+#include "holdcount/error.h"
+#include "holdcount/universe.h"
+
+/* Largest accepted |a_ij - a_ji|, relative to sqrt(a_ii * a_jj) (the
+ * product of the two standard deviations, a covariance's natural scale):
+ * room for a file printed with about 9 significant digits. */
+#define COVMATRIX_DEFAULT_SYMMETRY_TOL 1e-8
+
+/* Fewest common periods a pair needs for a pairwise covariance. */
+#define COVMATRIX_MIN_COMMON_PERIODS 3
+
+struct covmatrix {
+	size_t m;
+	char **ids;     /* m ids, owned */
+	double *a;      /* m*m, row-major, symmetric */
+};
+
+/*
+ * Read a covariance-matrix CSV (',' or ';' detected).  symmetry_tol >= 0
+ * is the relative tolerance above (COVMATRIX_DEFAULT_SYMMETRY_TOL is the
+ * usual choice; 0 demands exact symmetry); within it the two triangles are
+ * averaged.  Errors: HC_EIO (cannot open/read), HC_ENOMEM, HC_EUSAGE (bad
+ * tolerance), HC_EDATA "PATH:LINE:COLUMN: ..." for a non-numeric or
+ * missing cell, a row id that does not match the header, duplicate ids, a
+ * ragged or non-square matrix, an asymmetric pair (naming both ids), a
+ * diagonal entry that is not positive, or fewer than 2 ids.
+ * On failure *out is NULL.
+ */
+int covmatrix_load(struct covmatrix **out, const char *path, double symmetry_tol,
+		   struct hc_error *err);
+
+/* The same from a buffer; name is used in messages. */
+int covmatrix_load_buffer(struct covmatrix **out, const char *name,
+			  const char *data, size_t len, double symmetry_tol,
+			  struct hc_error *err);
+
+/*
+ * The sample covariance matrix (divisor T-1) of u's returns, per period.
+ * Complete data: centred returns through BLAS dsyrk.  With gaps
+ * (u->has_missing): pairwise-complete covariances, each pair using its own
+ * means over its n_ij common periods and divisor n_ij - 1; HC_EDATA naming
+ * the pair when n_ij < COVMATRIX_MIN_COMMON_PERIODS.  A pairwise matrix need
+ * not be positive semi-definite (see covmatrix_repair_psd).
+ * Memory: one m*t copy and the m*m result (complete); two m*t and three
+ * m*m arrays (pairwise).  HC_ENOMEM when they cannot be allocated.
+ */
+int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
+			    struct hc_error *err);
+
+/*
+ * Replace the symmetric m*m row-major matrix a by the nearest positive
+ * semi-definite matrix in the Frobenius norm: eigenvalues below zero are
+ * set to zero (Higham, 1988).  *changed is 1 when any eigenvalue was
+ * negative (a is then rebuilt), 0 when a was already positive
+ * semi-definite (a is left exactly as it was).  HC_ENOMEM, or
+ * HC_EINTERNAL when the eigensolver fails (a unchanged).
+ */
+int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err);
+
+/*
+ * The smallest eigenvalue of the symmetric m*m row-major matrix a (a is
+ * not modified), so a caller can refuse or repair a matrix that is not
+ * positive semi-definite (*lambda_min < 0).  HC_ENOMEM, or HC_EINTERNAL
+ * when the eigensolver fails.  O(m^3).
+ */
+int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
+			     struct hc_error *err);
+
+void covmatrix_free(struct covmatrix *c);
+
+/* Index of id in c->ids, or -1. */
+long covmatrix_find(const struct covmatrix *c, const char *id);
+
+#endif

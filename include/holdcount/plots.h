@@ -1,0 +1,112 @@
+/*
+ * plots.h - gnuplot scripts and their data files from the result types.
+ *
+ * Each plot is one gnuplot script (NAME.gp) reading whitespace-separated
+ * data files (*.dat) that sit beside it, so that `cd DIR && gnuplot NAME.gp`
+ * renders it anywhere.  The fixed parts of the scripts are templates kept in
+ * the plots/ folder (one NAME.gp each) and built into the library (plots_template); the parts that
+ * depend on the figures (the plot command, tick marks, the floor) are filled
+ * in here.  Figures in the data files are percent a year (annualised as the
+ * curve is), printed with 10 significant digits and no dates or times, so
+ * the same results give the same bytes.
+ *
+ * Library code never runs a program it was not asked to: plots_render is
+ * the only function that starts gnuplot, and it reports gnuplot's messages
+ * instead of printing them.
+ */
+#ifndef HOLDCOUNT_PLOTS_H
+#define HOLDCOUNT_PLOTS_H
+
+#include <stddef.h>
+#include <stdio.h>
+
+#include "holdcount/audit.h"
+#include "holdcount/curve.h"
+#include "holdcount/error.h"
+#include "holdcount/rules.h"
+
+enum plots_kind {
+	PLOTS_RISK = 0,        /* risk by count, linear count axis */
+	PLOTS_RISK_LOG = 1,    /* the same, log-scaled count axis */
+	PLOTS_SHARE = 2,       /* diversifiable share of variance by count */
+	PLOTS_TRACKING = 3,    /* expected tracking error by count, budget line */
+	PLOTS_FUNDS = 4,       /* audited funds on the risk curve */
+	PLOTS_ROLLING = 5,     /* count needed through time (hook: needs rolling.h) */
+	PLOTS_NKINDS = 6
+};
+
+enum plots_data {
+	PLOTS_DATA_EXACT = 0,   /* exact.dat: n, sqrt E[var], share, tracking error */
+	PLOTS_DATA_SAMPLED = 1, /* sampled.dat: n, mean sd, 5% and 95% quantiles */
+	PLOTS_DATA_RULES = 2,   /* rules.dat: count, sd at count, label height, label */
+	PLOTS_DATA_FUNDS = 3,   /* funds.dat: holdings, effective holdings, sd, fund */
+	PLOTS_NDATA = 4
+};
+
+enum plots_format { PLOTS_PNG = 0, PLOTS_SVG = 1, PLOTS_PDF = 2 };
+
+/* PNG and SVG canvas in pixels; PDF is the same shape in inches / 100. */
+#define PLOTS_WIDTH 1000
+#define PLOTS_HEIGHT 640
+
+/* Everything a plot may show.  The pointers are borrowed. */
+struct plots_input {
+	const struct curve *exact;      /* exact columns at every count 1..M (required) */
+	const struct curve *sampled;    /* grid with sampled columns; NULL = none */
+	const struct rule_result *rules;/* nrules results; unmet or undefined ones are not marked */
+	size_t nrules;
+	double te_budget;               /* annualised decimal; NaN = no budget line */
+	const struct audit_result *audit; /* NULL = no funds plot */
+	const char *universe_name;      /* shown in titles; NULL = none */
+};
+
+/* The template text of plots/NAME.gp, or NULL (defined in the generated
+ * plots_embedded.c). */
+const char *plots_template(const char *name);
+
+/* File names and words for each kind and data file. */
+const char *plots_name(int kind);          /* "risk", "risk-log", ... (script NAME.gp) */
+const char *plots_title(int kind);         /* the plot's title */
+const char *plots_data_name(int data);     /* "exact.dat", ... */
+const char *plots_format_name(int format); /* "png", "svg", "pdf" */
+/* Parse "png", "svg" or "pdf"; -1 when unknown. */
+int plots_parse_format(const char *s);
+
+/* 1 when in holds what plot kind needs (funds: an audit with some fund's
+ * risk known; rolling: never yet), else 0. */
+int plots_available(int kind, const struct plots_input *in);
+/* Bit d set when plot kind reads data file d. */
+unsigned plots_data_used(int kind);
+
+/* Write data file d for in.  HC_EIO when the stream fails; HC_EUSAGE when in
+ * lacks what d needs. */
+int plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err);
+
+/* Write script NAME.gp of kind for in, drawing to NAME.<format>.
+ * HC_EUSAGE when the plot is not available for in or format is unknown,
+ * HC_EINTERNAL when a template is missing or keeps a placeholder (a build
+ * fault), HC_EIO when the stream fails, HC_ENOMEM. */
+int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
+		       struct hc_error *err);
+
+/* A caption line for summary.md: what the plot shows and how to read it
+ * (static text or built into buf of size bytes; returns buf or static). */
+const char *plots_caption(int kind, const struct plots_input *in, char *buf, size_t size);
+
+/* Look for an executable "gnuplot" along the PATH given (the environment's
+ * PATH when NULL).  Returns 1 and copies its path into buf (size bytes), or
+ * 0 when there is none. */
+int plots_find_gnuplot(const char *path_env, char *buf, size_t size);
+
+/*
+ * Run gnuplot (the path from plots_find_gnuplot) on script inside dir, with
+ * dir as its working directory, its standard output discarded and its
+ * standard error captured.  Any output on standard error containing
+ * "warning" (any case), or a non-zero exit, is a failure: HC_EINTERNAL with
+ * gnuplot's first message line in err (the scripts are ours, so a warning is
+ * a fault to fix, not to hide).  HC_EIO when gnuplot cannot be started.
+ */
+int plots_render(const char *gnuplot, const char *dir, const char *script,
+		 struct hc_error *err);
+
+#endif

@@ -1,0 +1,11 @@
+# Audited funds on the risk curve: each fund's own standard deviation drawn
+# at its number of holdings and at its effective number (1/HHI).
+set title "@TITLE@\n@BASIS@"
+set xlabel "holding count N (log scale): fund's positions (square) and effective holdings 1/HHI (circle)"
+set ylabel "standard deviation (% a year)"
+set logscale x
+set xrange [1:@XMAX@]
+set xtics (@XTICS@)
+set yrange [0:*]
+set format y "%.0f%%"
+floor = @FLOOR@

@@ -1,0 +1,513 @@
+/*
+ * covmatrix.c - covariance matrices: read from CSV, computed from returns,
+ * and repaired to the nearest positive semi-definite matrix.
+ */
+#include "holdcount/covmatrix.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include <gsl/gsl_cblas.h>
+#include <gsl/gsl_eigen.h>
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_matrix.h>
+
+#include "holdcount/csvread.h"
+#include "holdcount/memory.h"
+
+
+void covmatrix_free(struct covmatrix *c)
+{
+	size_t i;
+
+	if (!c)
+		return;
+	if (c->ids)
+		for (i = 0; i < c->m; i++)
+			hc_free(c->ids[i]);
+	hc_free(c->ids);
+	hc_free(c->a);
+	hc_free(c);
+}
+
+long covmatrix_find(const struct covmatrix *c, const char *id)
+{
+	size_t i;
+
+	for (i = 0; i < c->m; i++)
+		if (strcmp(c->ids[i], id) == 0)
+			return (long)i;
+	return -1;
+}
+
+/* Copy the upper triangle of the m*m row-major a into the lower one. */
+static void mirror_upper(double *a, size_t m)
+{
+	size_t i, j;
+
+	for (i = 0; i < m; i++)
+		for (j = i + 1; j < m; j++)
+			a[j * m + i] = a[i * m + j];
+}
+
+/* ---- reading ------------------------------------------------------------ */
+
+struct reader {
+	const char *name;
+	struct covmatrix *c;
+	size_t nids, cap_ids;
+	size_t rows;          /* data rows read */
+	size_t *row_line;     /* line of each row */
+};
+
+static int header_field(struct reader *r, const struct csvread_field *f,
+			struct hc_error *err)
+{
+	struct covmatrix *c = r->c;
+	char **ids;
+	int rc;
+
+	if (f->column == 1)
+		return HC_OK;   /* the corner: empty or a label */
+	rc = universe_check_id(r->name, f->line, f->column, f->text, f->len, err);
+	if (rc != HC_OK)
+		return rc;
+	if (c->m == r->cap_ids) {
+		size_t nc = r->cap_ids ? r->cap_ids * 2 : 64;
+
+		ids = hc_reallocarray(c->ids, nc, sizeof *ids);
+		if (!ids)
+			return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
+		c->ids = ids;
+		r->cap_ids = nc;
+	}
+	c->ids[c->m] = hc_strndup(f->text, f->len);
+	if (!c->ids[c->m])
+		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
+	c->m++;
+	return HC_OK;
+}
+
+static int header_done(struct reader *r, struct hc_error *err)
+{
+	struct covmatrix *c = r->c;
+	size_t a, b, n;
+	int rc;
+
+	if (c->m < 2)
+		return hc_error(err, HC_EDATA,
+			"%s:1: the header has %zu id%s; expected a corner cell then at least 2 ids",
+			r->name, c->m, c->m == 1 ? "" : "s");
+	rc = universe_id_clash(c->ids, c->m, &a, &b);
+	if (rc < 0)
+		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
+	if (rc > 0) {
+		if (strcmp(c->ids[a], c->ids[b]) == 0)
+			return hc_error(err, HC_EDATA,
+				"%s:1:%zu: duplicate security id '%s' (also in column %zu); expected unique ids",
+				r->name, b + 2, c->ids[b], a + 2);
+		return hc_error(err, HC_EDATA,
+			"%s:1:%zu: security id '%s' differs only in case or surrounding spaces from '%s' in column %zu; expected distinct ids",
+			r->name, b + 2, c->ids[b], c->ids[a], a + 2);
+	}
+	if (hc_mul_size(c->m, c->m, &n) || !(c->a = hc_reallocarray(NULL, n, sizeof(double))))
+		return hc_error(err, HC_ENOMEM,
+			"%s: out of memory for a %zu x %zu covariance matrix", r->name, c->m, c->m);
+	r->row_line = hc_reallocarray(NULL, c->m, sizeof *r->row_line);
+	if (!r->row_line)
+		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
+	return HC_OK;
+}
+
+static int data_field(struct reader *r, const struct csvread_field *f,
+		      struct hc_error *err)
+{
+	struct covmatrix *c = r->c;
+	size_t i = f->record - 1, j;
+	char q[CSVREAD_QUOTE_BUF];
+	double v;
+
+	if (i >= c->m)
+		return hc_error(err, HC_EDATA,
+			"%s:%zu: more rows than the header's %zu ids; expected a square matrix with one row per id",
+			r->name, f->line, c->m);
+	if (f->column == 1) {
+		if (f->len != strlen(c->ids[i]) || memcmp(f->text, c->ids[i], f->len) != 0)
+			return hc_error(err, HC_EDATA,
+				"%s:%zu:1: row id '%s' does not match '%s' in column %zu of the header; expected the same ids in the same order",
+				r->name, f->line, csvread_quote(f->text, f->len, q), c->ids[i], i + 2);
+		r->row_line[i] = f->line;
+		return HC_OK;
+	}
+	j = f->column - 2;
+	if (j >= c->m)
+		return hc_error(err, HC_EDATA,
+			"%s:%zu:%zu: row has more fields than the header's %zu; expected %zu fields",
+			r->name, f->line, f->column, c->m + 1, c->m + 1);
+	if (csvread_parse_number(f->text, f->len, &v, NULL) != 0)
+		return hc_error(err, HC_EDATA, "%s:%zu:%zu: expected a number, found '%s'",
+				r->name, f->line, f->column, csvread_quote(f->text, f->len, q));
+	if (i == j && !(v > 0))
+		return hc_error(err, HC_EDATA,
+			"%s:%zu:%zu: variance of '%s' is %s; expected a positive number on the diagonal",
+			r->name, f->line, f->column, c->ids[i], csvread_quote(f->text, f->len, q));
+	c->a[i * c->m + j] = v;
+	return HC_OK;
+}
+
+static int on_field(void *ctx, const struct csvread_field *f, struct hc_error *err)
+{
+	struct reader *r = ctx;
+
+	return f->record == 0 ? header_field(r, f, err) : data_field(r, f, err);
+}
+
+static int on_record(void *ctx, size_t record, size_t nfields, size_t line,
+		     struct hc_error *err)
+{
+	struct reader *r = ctx;
+
+	if (record == 0)
+		return header_done(r, err);
+	if (nfields < r->c->m + 1)
+		return hc_error(err, HC_EDATA,
+			"%s:%zu:%zu: row has %zu fields; expected %zu as in the header",
+			r->name, line, nfields, nfields, r->c->m + 1);
+	r->rows++;
+	return HC_OK;
+}
+
+/* Check symmetry within tol (relative to sqrt(a_ii a_jj)), then average
+ * the two triangles so the matrix is exactly symmetric. */
+static int symmetrize(struct reader *r, double tol, struct hc_error *err)
+{
+	struct covmatrix *c = r->c;
+	size_t i, j, m = c->m;
+
+	for (i = 0; i < m; i++) {
+		for (j = i + 1; j < m; j++) {
+			double x = c->a[i * m + j], y = c->a[j * m + i];
+			double scale = sqrt(c->a[i * m + i] * c->a[j * m + j]);
+
+			if (!(fabs(x - y) <= tol * scale))
+				return hc_error(err, HC_EDATA,
+					"%s:%zu:%zu: covariance of '%s' and '%s' is %.17g here but %.17g on line %zu, column %zu; expected a symmetric matrix (relative tolerance %g)",
+					r->name, r->row_line[j], i + 2, c->ids[j], c->ids[i], y, x,
+					r->row_line[i], j + 2, tol);
+			c->a[i * m + j] = c->a[j * m + i] = 0.5 * (x + y);
+		}
+	}
+	return HC_OK;
+}
+
+static int load(struct covmatrix **out, const char *name, const char *path,
+		const char *data, size_t len, double tol, struct hc_error *err)
+{
+	struct csvread_handler h;
+	struct reader r;
+	int rc;
+
+	*out = NULL;
+	if (!(tol >= 0) || isinf(tol))
+		return hc_error(err, HC_EUSAGE,
+			"symmetry tolerance %g is out of range; expected a number >= 0", tol);
+	memset(&r, 0, sizeof r);
+	r.name = name;
+	r.c = hc_calloc(1, sizeof *r.c);
+	if (!r.c)
+		return hc_error(err, HC_ENOMEM, "%s: out of memory", name);
+	h.field = on_field;
+	h.record = on_record;
+	h.ctx = &r;
+	rc = path ? csvread_file(path, NULL, &h, NULL, err)
+		  : csvread_buffer(name, data, len, NULL, &h, NULL, err);
+	if (rc == HC_OK && r.rows < r.c->m)
+		rc = hc_error(err, HC_EDATA,
+			"%s: %zu rows for %zu ids; expected a square matrix with one row per id",
+			name, r.rows, r.c->m);
+	if (rc == HC_OK)
+		rc = symmetrize(&r, tol, err);
+	hc_free(r.row_line);
+	if (rc != HC_OK) {
+		covmatrix_free(r.c);
+		return rc;
+	}
+	*out = r.c;
+	return HC_OK;
+}
+
+int covmatrix_load(struct covmatrix **out, const char *path, double symmetry_tol,
+		   struct hc_error *err)
+{
+	return load(out, path, path, NULL, 0, symmetry_tol, err);
+}
+
+int covmatrix_load_buffer(struct covmatrix **out, const char *name,
+			  const char *data, size_t len, double symmetry_tol,
+			  struct hc_error *err)
+{
+	return load(out, name, NULL, data, len, symmetry_tol, err);
+}
+
+/* ---- from returns ---------------------------------------------------------- */
+
+static struct covmatrix *alloc_like(const struct universe *u)
+{
+	struct covmatrix *c = hc_calloc(1, sizeof *c);
+	size_t i, n;
+
+	if (!c)
+		return NULL;
+	c->ids = hc_calloc(u->m, sizeof *c->ids);
+	if (!c->ids || hc_mul_size(u->m, u->m, &n) ||
+	    !(c->a = hc_reallocarray(NULL, n, sizeof(double)))) {
+		covmatrix_free(c);
+		return NULL;
+	}
+	for (c->m = 0; c->m < u->m; c->m++) {
+		c->ids[c->m] = hc_strdup(u->ids[c->m]);
+		if (!c->ids[c->m]) {
+			covmatrix_free(c);
+			return NULL;
+		}
+	}
+	for (i = 0; i < n; i++)
+		c->a[i] = 0;
+	return c;
+}
+
+/* Complete data: A = Xc Xc' / (T-1) with Xc the centred m x t returns. */
+static int complete_cov(const struct universe *u, double *a, struct hc_error *err)
+{
+	size_t i, k, m = u->m, t = u->t, n;
+	double *xc;
+
+	if (hc_mul_size(m, t, &n) || !(xc = hc_reallocarray(NULL, n, sizeof *xc)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the centred returns");
+	for (i = 0; i < m; i++) {
+		const double *x = u->x + i * t;
+		double mean = 0;
+
+		for (k = 0; k < t; k++)
+			mean += x[k];
+		mean /= (double)t;
+		for (k = 0; k < t; k++)
+			xc[i * t + k] = x[k] - mean;
+	}
+	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t,
+		    1.0 / (double)(t - 1), xc, (int)t, 0.0, a, (int)m);
+	mirror_upper(a, m);
+	hc_free(xc);
+	return HC_OK;
+}
+
+/*
+ * Pairwise-complete covariances through three matrix products, so BLAS
+ * does the O(m^2 t) work.  With Z the returns (0 at gaps) and K the 0/1
+ * indicator of an observation, over the periods common to i and j:
+ *   n_ij = (K K')_ij, sum x_i = (Z K')_ij, sum x_j = (Z K')_ji,
+ *   sum x_i x_j = (Z Z')_ij,
+ *   cov_ij = (sum x_i x_j - sum x_i sum x_j / n_ij) / (n_ij - 1),
+ * which uses each pair's own means.  Each series is first shifted by its
+ * own mean: covariances do not change, and the one-pass formula then
+ * subtracts small numbers rather than large ones (the shifted-data
+ * algorithm; Chan, Golub & LeVeque, 1983, "Algorithms for computing the
+ * sample variance: analysis and recommendations", The American
+ * Statistician 37(3)).
+ */
+static int pairwise_cov(const struct universe *u, double *a, struct hc_error *err)
+{
+	size_t i, j, k, m = u->m, t = u->t, nmt, nmm;
+	double *z = NULL, *ind = NULL, *cnt = NULL, *sx = NULL;
+	int rc = HC_OK;
+
+	if (hc_mul_size(m, t, &nmt) || hc_mul_size(m, m, &nmm))
+		return hc_error(err, HC_ENOMEM, "out of memory for pairwise covariances");
+	z = hc_reallocarray(NULL, nmt, sizeof *z);
+	ind = hc_reallocarray(NULL, nmt, sizeof *ind);
+	cnt = hc_reallocarray(NULL, nmm, sizeof *cnt);
+	sx = hc_reallocarray(NULL, nmm, sizeof *sx);
+	if (!z || !ind || !cnt || !sx) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for pairwise covariances");
+		goto cleanup;
+	}
+	for (i = 0; i < m; i++) {
+		const double *x = u->x + i * t;
+		double mean = 0;
+		size_t obs = 0;
+
+		for (k = 0; k < t; k++)
+			if (!isnan(x[k])) {
+				mean += x[k];
+				obs++;
+			}
+		mean = obs ? mean / (double)obs : 0;
+		for (k = 0; k < t; k++) {
+			int seen = !isnan(x[k]);
+
+			z[i * t + k] = seen ? x[k] - mean : 0.0;
+			ind[i * t + k] = seen;
+		}
+	}
+	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t,
+		    1.0, z, (int)t, 0.0, a, (int)m);
+	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t,
+		    1.0, ind, (int)t, 0.0, cnt, (int)m);
+	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t,
+		    1.0, z, (int)t, ind, (int)t, 0.0, sx, (int)m);
+	for (i = 0; i < m; i++) {
+		for (j = i; j < m; j++) {
+			double n = cnt[i * m + j];
+
+			if (n < COVMATRIX_MIN_COMMON_PERIODS) {
+				rc = i == j
+				   ? hc_error(err, HC_EDATA,
+					"%s: security '%s' has only %.0f periods; expected at least %d for a covariance",
+					u->source ? u->source : "universe", u->ids[i], n, COVMATRIX_MIN_COMMON_PERIODS)
+				   : hc_error(err, HC_EDATA,
+					"%s: securities '%s' and '%s' have only %.0f common periods; expected at least %d for a pairwise covariance",
+					u->source ? u->source : "universe", u->ids[i], u->ids[j], n, COVMATRIX_MIN_COMMON_PERIODS);
+				goto cleanup;
+			}
+			a[i * m + j] = (a[i * m + j] - sx[i * m + j] * sx[j * m + i] / n) / (n - 1);
+		}
+	}
+	mirror_upper(a, m);
+cleanup:
+	hc_free(z);
+	hc_free(ind);
+	hc_free(cnt);
+	hc_free(sx);
+	return rc;
+}
+
+int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
+			    struct hc_error *err)
+{
+	struct covmatrix *c;
+	int rc;
+
+	*out = NULL;
+	if (u->m < 1 || u->t < 2)
+		return hc_error(err, HC_EDATA,
+			"a covariance matrix needs at least 1 security and 2 periods; found %zu and %zu",
+			u->m, u->t);
+	c = alloc_like(u);
+	if (!c)
+		return hc_error(err, HC_ENOMEM, "out of memory for a %zu x %zu covariance matrix", u->m, u->m);
+	rc = u->has_missing ? pairwise_cov(u, c->a, err) : complete_cov(u, c->a, err);
+	if (rc != HC_OK) {
+		covmatrix_free(c);
+		return rc;
+	}
+	*out = c;
+	return HC_OK;
+}
+
+/* ---- nearest positive semi-definite matrix ------------------------------- */
+
+/*
+ * For a symmetric A = V diag(l) V', the nearest positive semi-definite
+ * matrix in the Frobenius norm is V diag(max(l, 0)) V' (Higham, 1988,
+ * "Computing a nearest symmetric positive semidefinite matrix", Linear
+ * Algebra and its Applications 103, Theorem 2.1).  It is rebuilt as B B'
+ * with B = V diag(sqrt(max(l, 0))), so the result is symmetric and positive
+ * semi-definite by construction, not only up to rounding.
+ */
+int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err)
+{
+	double *w = NULL, *eval = NULL, *evec = NULL;
+	gsl_eigen_symmv_workspace *ws = NULL;
+	size_t i, k, n;
+	int rc = HC_OK, st, neg = 0;
+
+	*changed = 0;
+	if (m == 0)
+		return HC_OK;
+	if (hc_mul_size(m, m, &n))
+		return hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
+	w = hc_reallocarray(NULL, n, sizeof *w);
+	evec = hc_reallocarray(NULL, n, sizeof *evec);
+	eval = hc_reallocarray(NULL, m, sizeof *eval);
+	ws = gsl_eigen_symmv_alloc(m);
+	if (!w || !evec || !eval || !ws) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
+		goto cleanup;
+	}
+	memcpy(w, a, n * sizeof *w);
+	{
+		gsl_matrix_view A = gsl_matrix_view_array(w, m, m);
+		gsl_matrix_view V = gsl_matrix_view_array(evec, m, m);
+		gsl_vector_view L = gsl_vector_view_array(eval, m);
+
+		st = gsl_eigen_symmv(&A.matrix, &L.vector, &V.matrix, ws);
+	}
+	if (st != GSL_SUCCESS) {
+		rc = hc_error(err, HC_EINTERNAL, "eigen decomposition failed: %s", gsl_strerror(st));
+		goto cleanup;
+	}
+	for (k = 0; k < m; k++)
+		neg |= eval[k] < 0;
+	if (!neg)
+		goto cleanup;
+	for (k = 0; k < m; k++)
+		eval[k] = eval[k] > 0 ? sqrt(eval[k]) : 0.0;
+	for (i = 0; i < m; i++)
+		for (k = 0; k < m; k++)
+			evec[i * m + k] *= eval[k];   /* column k of V is eigenvector k */
+	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)m,
+		    1.0, evec, (int)m, 0.0, a, (int)m);
+	mirror_upper(a, m);
+	*changed = 1;
+cleanup:
+	if (ws)
+		gsl_eigen_symmv_free(ws);
+	hc_free(w);
+	hc_free(evec);
+	hc_free(eval);
+	return rc;
+}
+
+int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
+			     struct hc_error *err)
+{
+	gsl_eigen_symm_workspace *ws = NULL;
+	double *w = NULL, *eval = NULL;
+	size_t k, n;
+	int rc = HC_OK, st;
+
+	*lambda_min = NAN;
+	if (m == 0)
+		return hc_error(err, HC_EINTERNAL, "no eigenvalues of an empty matrix");
+	if (hc_mul_size(m, m, &n))
+		return hc_error(err, HC_ENOMEM, "out of memory for the eigenvalues");
+	w = hc_reallocarray(NULL, n, sizeof *w);
+	eval = hc_reallocarray(NULL, m, sizeof *eval);
+	ws = gsl_eigen_symm_alloc(m);
+	if (!w || !eval || !ws) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the eigenvalues");
+		goto cleanup;
+	}
+	memcpy(w, a, n * sizeof *w);
+	{
+		gsl_matrix_view A = gsl_matrix_view_array(w, m, m);
+		gsl_vector_view L = gsl_vector_view_array(eval, m);
+
+		st = gsl_eigen_symm(&A.matrix, &L.vector, ws);
+	}
+	if (st != GSL_SUCCESS) {
+		rc = hc_error(err, HC_EINTERNAL, "eigenvalue computation failed: %s", gsl_strerror(st));
+		goto cleanup;
+	}
+	*lambda_min = eval[0];
+	for (k = 1; k < m; k++)
+		if (eval[k] < *lambda_min)
+			*lambda_min = eval[k];
+cleanup:
+	if (ws)
+		gsl_eigen_symm_free(ws);
+	hc_free(w);
+	hc_free(eval);
+	return rc;
+}

@@ -1,0 +1,117 @@
+"""check_report.py - the demo report folder against its own CSVs, numpy and
+the PNG specification.
+
+Runs `holdcount report` on the bundled demo and checks:
+  - summary.json parses (Python's json) and every cell of curve.csv and
+    enough.csv equals the same cell of summary.json to the last digit (both
+    are printed with 17 significant digits, so float equality is exact);
+  - the exact curve against numpy on the same data: E[var(N)] =
+    vbar/N + (1 - 1/N) cbar from numpy's sample covariance (ddof=1) of the
+    complete securities, times 12 (design.md section 3; rtol 1e-12, since
+    both sum about 10^4 products in a different order);
+  - exact.dat carries 100 * expected_sd to its 10 significant digits;
+  - each PNG is a PNG (signature, PNG specification 1.2 section 12.12) whose
+    IHDR says 1000 x 640 (section 4.1.1).
+"""
+import csv
+import json
+import os
+import struct
+import subprocess
+import sys
+
+import numpy as np
+
+HC = os.environ["HOLDCOUNT"]
+SRC = os.environ["HOLDCOUNT_SOURCE_DIR"]
+TMP = os.path.join(os.environ["HOLDCOUNT_TEST_TMP"], "check_report")
+failures = []
+
+
+def check(ok, what):
+    if not ok:
+        failures.append(what)
+        print("FAIL:", what)
+
+
+def cell_value(text):
+    if text == "":
+        return None
+    if text in ("true", "false"):
+        return text == "true"
+    try:
+        return int(text)
+    except ValueError:
+        pass
+    try:
+        return float(text)
+    except ValueError:
+        return text
+
+
+os.makedirs(TMP, exist_ok=True)
+out = os.path.join(TMP, "demo")
+subprocess.run([HC, "report", "--force", "-q", "-o", out, "--paths", "2000", "--bootstrap", "200"],
+               check=True)
+with open(os.path.join(out, "summary.json")) as fp:
+    summary = json.load(fp)
+
+for name, section, table in (("curve.csv", "curve", "curve"), ("enough.csv", "enough", "rules")):
+    with open(os.path.join(out, name), newline="") as fp:
+        rows = list(csv.DictReader(fp))
+    js = summary[section][table]
+    check(len(rows) == len(js), f"{name}: {len(rows)} rows, summary.json {len(js)}")
+    for i, (row, obj) in enumerate(zip(rows, js)):
+        check(list(row.keys()) == list(obj.keys()), f"{name}: row {i} keys differ from summary.json")
+        for k, v in row.items():
+            a, b = cell_value(v), obj.get(k)
+            if isinstance(b, bool) or isinstance(a, bool):
+                check(a == b or str(b).lower() == v, f"{name} row {i} {k}: {v!r} vs {b!r}")
+            else:
+                check(a == b, f"{name} row {i} {k}: csv {v!r}, json {b!r}")
+
+# numpy reference: complete securities of the demo, monthly.
+with open(os.path.join(SRC, "data", "demo-universe.csv"), newline="") as fp:
+    data = list(csv.reader(fp))
+cols = list(zip(*data[1:]))[1:]
+complete = [c for c in cols if all(x not in ("", "NA", "NaN", ".") for x in c)]
+x = np.array([[float(v) for v in c] for c in complete])
+a = np.cov(x, ddof=1)
+m = a.shape[0]
+vbar = np.trace(a) / m
+cbar = (a.sum() - np.trace(a)) / (m * (m - 1))
+check(summary["curve"]["securities"] == m, f"securities {summary['curve']['securities']} vs numpy {m}")
+for row in summary["curve"]["curve"]:
+    n = row["n"]
+    ev = 12 * (vbar / n + (1 - 1 / n) * cbar)
+    check(abs(row["expected_variance"] - ev) <= 1e-12 * ev, f"E[var]({n}) {row['expected_variance']} vs numpy {ev}")
+    te2 = 12 * (vbar - cbar) * (1 / n - 1 / m)
+    check(abs(row["expected_tracking_error"] ** 2 - te2) <= 1e-12 * 12 * vbar,
+          f"TE({n}) {row['expected_tracking_error']} vs numpy sqrt {te2}")
+check(abs(summary["universe"]["floor_sd"] - np.sqrt(12 * cbar)) <= 1e-12, "floor sd vs numpy")
+
+# exact.dat: every count 1..M, 100 * expected_sd to 10 significant digits.
+exact = {}
+with open(os.path.join(out, "exact.dat")) as fp:
+    for line in fp:
+        if not line.startswith("#"):
+            f = line.split()
+            exact[int(f[0])] = float(f[1])
+check(sorted(exact) == list(range(1, m + 1)), "exact.dat holds every count 1..M")
+for row in summary["curve"]["curve"]:
+    want = float("%.10g" % (100 * row["expected_sd"]))
+    check(exact.get(row["n"]) == want, f"exact.dat at {row['n']}: {exact.get(row['n'])} vs {want}")
+
+# PNG signature and IHDR.
+pngs = [p for p in summary["plots"]["plots"] if p["image"]]
+check(len(pngs) >= 4, f"{len(pngs)} rendered plots, expected at least 4")
+for p in pngs:
+    with open(os.path.join(out, p["image"]), "rb") as fp:
+        head = fp.read(24)
+    check(head[:8] == b"\x89PNG\r\n\x1a\n", f"{p['image']}: not a PNG signature")
+    check(head[12:16] == b"IHDR", f"{p['image']}: first chunk is not IHDR")
+    w, h = struct.unpack(">II", head[16:24])
+    check((w, h) == (1000, 640), f"{p['image']}: {w}x{h}, expected 1000x640")
+
+print("check_report: %d failures" % len(failures))
+sys.exit(1 if failures else 0)

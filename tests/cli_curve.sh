@@ -1,0 +1,168 @@
+#!/usr/bin/env bash
+# holdcount describe and holdcount curve on tiny universes built here.
+# References: numpy (Debian's python3-numpy) recomputes the sample
+# covariance (divisor T-1), average variance and covariance, and the exact
+# expected variance v/N + (1-1/N)c (design.md section 3) from the same
+# file; the bad-input cases are those of issue 2, each with its exit
+# status (include/holdcount/error.h) and the first words of its message.
+set -u
+HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
+PY=${PYTHON:-/usr/bin/python3}
+T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_curve.$$
+mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
+fails=0
+fail() { echo "FAIL: $*"; fails=$((fails+1)); }
+expect() {
+	local want=$1 prefix=$2; shift 3
+	"$HC" "$@" >"$T/out" 2>"$T/err"; local got=$?
+	[ "$got" = "$want" ] || fail "holdcount $*: exit $got, expected $want ($(head -c 300 "$T/err"))"
+	case "$(head -n1 "$T/err")" in "$prefix"*) ;; *) fail "holdcount $*: stderr '$(head -n1 "$T/err")', expected '$prefix...'";; esac
+	[ "$want" != 0 ] && [ -s "$T/out" ] && fail "holdcount $*: wrote to stdout on failure"
+	return 0
+}
+
+# A monthly universe of 5 invented securities over 8 months (values made up).
+cat >"$T/u.csv" <<'CSV'
+date,QX01,QX02,QX03,QX04,QX05
+2021-01-31,0.0123,-0.0211,0.0345,0.0071,-0.0102
+2021-02-28,-0.0088,0.0154,0.0021,-0.0193,0.0240
+2021-03-31,0.0311,0.0087,-0.0145,0.0226,0.0039
+2021-04-30,0.0046,-0.0302,0.0198,0.0012,-0.0176
+2021-05-31,-0.0215,0.0063,0.0281,-0.0094,0.0137
+2021-06-30,0.0174,0.0229,-0.0067,0.0158,-0.0041
+2021-07-31,-0.0031,-0.0118,0.0102,-0.0249,0.0205
+2021-08-31,0.0262,0.0035,-0.0233,0.0083,0.0118
+CSV
+
+"$HC" describe "$T/u.csv" --format json >"$T/d.json" || fail "describe exit $?"
+"$PY" - "$T/u.csv" "$T/d.json" <<'PY' || fail "describe against numpy"
+import json, sys, numpy as np
+x = np.genfromtxt(sys.argv[1], delimiter=",", skip_header=1)[:, 1:]
+d = json.load(open(sys.argv[2]))
+a = np.cov(x, rowvar=False, ddof=1)          # numpy: sample covariance, divisor T-1
+m = a.shape[0]
+vbar = np.trace(a) / m
+cbar = (a.sum() - np.trace(a)) / (m * (m - 1))
+sd = np.sqrt(np.diag(a)); corr = a / np.outer(sd, sd)
+rbar = (corr.sum() - m) / (m * (m - 1))
+p = 12.0                                      # monthly dates: 12 a year
+ok = True
+def close(k, want, tol=1e-12):
+    global ok
+    if abs(d[k] - want) > tol * max(1.0, abs(want)):
+        print(k, d[k], want); ok = False
+for k in ("securities", "securities_dropped", "periods", "periods_per_year", "first_date", "last_date",
+          "average_variance", "average_covariance", "average_correlation", "floor_sd", "universe_sd"):
+    if k not in d: print("missing key", k); ok = False
+if d["securities"] != 5 or d["periods"] != 8 or d["securities_dropped"] != 0: print("counts", d); ok = False
+if d["first_date"] != "2021-01-31" or d["last_date"] != "2021-08-31": print("dates"); ok = False
+close("periods_per_year", p)
+close("average_variance", vbar * p)
+close("average_covariance", cbar * p)
+close("average_correlation", rbar)
+if cbar >= 0: close("floor_sd", np.sqrt(cbar * p))
+else:
+    if d["floor_sd"] is not None: print("floor_sd should be null for a negative average covariance"); ok = False
+close("universe_sd", np.sqrt(a.sum() / m**2 * p))
+kept = {r["id"]: r for r in d["kept"]}
+for i, name in enumerate(["QX01", "QX02", "QX03", "QX04", "QX05"]):
+    if abs(kept[name]["sd"] - sd[i] * np.sqrt(p)) > 1e-12: print("sd", name); ok = False
+sys.exit(0 if ok else 1)
+PY
+
+# curve: exact columns against numpy, CSV header exactly the contract.
+"$HC" curve "$T/u.csv" --sizes 1,2,3,5 --paths 4000 --seed 2385 --format csv --quiet >"$T/c.csv" || fail "curve exit $?"
+head -n1 "$T/c.csv" | grep -q '^n,expected_variance,expected_sd,variance_sd,expected_tracking_error,diversifiable_share,sampled_mean_variance,sampled_variance_se,sampled_mean_sd,sd_p05,sd_p50,sd_p95,z_score' \
+	|| fail "curve csv header: $(head -n1 "$T/c.csv")"
+"$PY" - "$T/u.csv" "$T/c.csv" <<'PY' || fail "curve against numpy"
+import csv, sys, numpy as np
+x = np.genfromtxt(sys.argv[1], delimiter=",", skip_header=1)[:, 1:]
+a = np.cov(x, rowvar=False, ddof=1); m = a.shape[0]; p = 12.0
+vbar = np.trace(a) / m; cbar = (a.sum() - np.trace(a)) / (m * (m - 1))
+ok = True
+for r in csv.DictReader(open(sys.argv[2])):
+    n = int(r["n"])
+    ev = (vbar / n + (1 - 1 / n) * cbar) * p
+    if abs(float(r["expected_variance"]) - ev) > 1e-12 * ev: print("E[var]", n, r["expected_variance"], ev); ok = False
+    if abs(float(r["expected_sd"]) - np.sqrt(ev)) > 1e-12: print("sd", n); ok = False
+    te2 = (vbar - cbar) * (1 / n - 1 / m) * p
+    if abs(float(r["expected_tracking_error"]) - np.sqrt(max(te2, 0))) > 1e-12: print("TE", n); ok = False
+    if n == m:
+        # every portfolio of all M securities is the universe itself: no
+        # spread, so the z-score is undefined (empty) and the mean is exact
+        if r["z_score"] != "" or abs(float(r["sampled_mean_variance"]) - ev) > 1e-12 * ev:
+            print("N=M row", r); ok = False
+    else:
+        # the sampled mean lies within 4 Monte Carlo standard errors of the exact mean
+        z = float(r["z_score"]); se = float(r["sampled_variance_se"])
+        if not abs(z) < 4: print("z", n, z); ok = False
+        if abs((float(r["sampled_mean_variance"]) - ev) / se - z) > 1e-6 * max(1, abs(z)): print("z formula", n); ok = False
+    if float(r["periods_per_year"]) != p: print("periods_per_year column"); ok = False
+    if not float(r["sd_p05"]) <= float(r["sd_p50"]) <= float(r["sd_p95"]): print("quantile order", n); ok = False
+sys.exit(0 if ok else 1)
+PY
+
+# Same seed, same bytes, whatever the thread count (design.md section 4).
+"$HC" curve "$T/u.csv" --sizes 1-5 --paths 3000 --seed 77 --threads 1 --format csv -q >"$T/t1.csv"
+"$HC" curve "$T/u.csv" --sizes 1-5 --paths 3000 --seed 77 --threads 2 --format csv -q >"$T/t2.csv"
+HOLDCOUNT_THREADS=2 "$HC" curve "$T/u.csv" --sizes 1-5 --paths 3000 --seed 77 --format csv -q >"$T/t3.csv"
+cmp -s "$T/t1.csv" "$T/t2.csv" || fail "threads 1 and 2 differ"
+cmp -s "$T/t1.csv" "$T/t3.csv" || fail "HOLDCOUNT_THREADS=2 differs"
+
+# --paths 0: sampled columns empty.
+"$HC" curve "$T/u.csv" --sizes 2 --paths 0 --format csv >"$T/p0.csv" || fail "curve --paths 0 exit $?"
+"$PY" -c 'import csv,sys; r=list(csv.DictReader(open(sys.argv[1])))[0]; sys.exit(0 if r["sampled_mean_variance"]=="" and r["z_score"]=="" and r["expected_variance"]!="" else 1)' "$T/p0.csv" \
+	|| fail "--paths 0 sampled columns not empty"
+# JSON parses and states the scale; text states it too.
+"$HC" curve "$T/u.csv" --sizes 2,4 --paths 200 --format json -q | "$PY" -c 'import json,sys; d=json.load(sys.stdin); sys.exit(0 if d["periods_per_year"]==12 and len(d["curve"])==2 and d["cautions"] else 1)' \
+	|| fail "curve json"
+"$HC" curve "$T/u.csv" --sizes 2 --paths 0 | grep -q '^annualisation: *annualised: variances times 12' || fail "curve text lacks the scale"
+
+# Bad input (issue 2).  Each file differs from u.csv in one way.
+mk() { printf '%b' "$2" >"$T/$1"; }
+mk bad_cell.csv  'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-02-28,0.03,abc\n2021-03-31,0.02,0.01\n'
+mk dup_id.csv    'date,QX01,QX01\n2021-01-31,0.01,0.02\n2021-02-28,0.03,0.01\n2021-03-31,0.02,0.05\n'
+mk unsorted.csv  'date,QX01,QX02\n2021-02-28,0.01,0.02\n2021-01-31,0.03,0.01\n2021-03-31,0.02,0.05\n'
+mk dup_date.csv  'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-01-31,0.03,0.01\n2021-03-31,0.02,0.05\n'
+mk ragged.csv    'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-02-28,0.03\n2021-03-31,0.02,0.05\n'
+mk empty.csv     ''
+mk header.csv    'date,QX01,QX02\n'
+mk single.csv    'date,QX01\n2021-01-31,0.01\n2021-02-28,0.03\n2021-03-31,0.02\n'
+mk zero_var.csv  'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-02-28,0.03,0.02\n2021-03-31,0.02,0.02\n'
+mk price.csv     'date,QX01,QX02\n2021-01-31,10.5,20.1\n2021-02-28,0,20.7\n2021-03-31,11.2,19.8\n'
+mk inf.csv       'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-02-28,inf,0.01\n2021-03-31,0.02,0.05\n'
+mk nan.csv       'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-02-28,0.03,0.01\n2021-03-31,1e999,0.05\n'
+for c in describe curve; do
+	expect 3 "holdcount $c: $T/bad_cell.csv:3:3:" -- $c "$T/bad_cell.csv"
+	expect 3 "holdcount $c: $T/dup_id.csv:1:3:" -- $c "$T/dup_id.csv"
+	expect 3 "holdcount $c: $T/unsorted.csv:3:1:" -- $c "$T/unsorted.csv"
+	expect 3 "holdcount $c: $T/dup_date.csv:3:1:" -- $c "$T/dup_date.csv"
+	expect 3 "holdcount $c: $T/ragged.csv:3:" -- $c "$T/ragged.csv"
+	expect 3 "holdcount $c: $T/empty.csv: empty file" -- $c "$T/empty.csv"
+	expect 3 "holdcount $c: $T/header.csv" -- $c "$T/header.csv"
+	expect 3 "holdcount $c: $T/single.csv" -- $c "$T/single.csv"
+	expect 3 "holdcount $c: $T/zero_var.csv" -- $c "$T/zero_var.csv"
+	expect 3 "holdcount $c: $T/price.csv:3:2:" -- $c --prices "$T/price.csv"
+	expect 3 "holdcount $c: $T/inf.csv:3:2:" -- $c "$T/inf.csv"
+	expect 3 "holdcount $c: $T/nan.csv:4:2:" -- $c "$T/nan.csv"
+	expect 4 "holdcount $c: " -- $c "$T/no_such_file.csv"
+	expect 2 "holdcount $c: --log-returns needs --prices" -- $c --log-returns "$T/u.csv"
+	expect 2 "holdcount $c: --delimiter must be ',' or ';'" -- $c --delimiter '|' "$T/u.csv"
+done
+expect 2 "holdcount curve: size 6 is larger than the 5 securities kept" -- curve "$T/u.csv" --sizes 1,6
+expect 2 "holdcount curve: bad size list" -- curve "$T/u.csv" --sizes 1,,x
+expect 2 "holdcount curve: bad size list" -- curve "$T/u.csv" --sizes 5-2
+expect 2 "holdcount curve: unknown option '--pathz'" -- curve "$T/u.csv" --pathz 10
+
+# --output: a failed run leaves no file (and an old file untouched).
+echo "earlier" >"$T/keep.csv"
+"$HC" curve "$T/u.csv" --sizes 1,6 -o "$T/keep.csv" 2>/dev/null
+[ "$(cat "$T/keep.csv")" = "earlier" ] || fail "failed run changed the --output file"
+"$HC" curve "$T/bad_cell.csv" -o "$T/new.csv" 2>/dev/null
+[ -e "$T/new.csv" ] && fail "failed run created the --output file"
+"$HC" curve "$T/u.csv" --sizes 1,2 --paths 100 -q --format csv -o "$T/keep.csv" || fail "curve -o exit $?"
+head -n1 "$T/keep.csv" | grep -q '^n,expected_variance' || fail "curve -o content"
+ls -A "$T" | grep -q '\.tmp-' && fail "temporary file left behind"
+
+[ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
+echo "cli_curve: all checks passed"

@@ -1,0 +1,150 @@
+#!/usr/bin/env bash
+# cli_enough.sh - `holdcount enough`: output contract, reference values,
+# exit statuses and messages.
+set -euo pipefail
+: "${HOLDCOUNT:?}" "${HOLDCOUNT_TEST_TMP:?}" "${PYTHON:=/usr/bin/python3}"
+tmp="$HOLDCOUNT_TEST_TMP/cli_enough"
+rm -rf "$tmp"; mkdir -p "$tmp"
+fails=0
+fail() { echo "FAIL: $*" >&2; fails=$((fails + 1)); }
+
+# expect STATUS MESSAGE-START -- command...: exit status and first words of stderr
+expect() {
+	local want="$1" msg="$2"; shift 3
+	local got=0
+	"$@" >"$tmp/out" 2>"$tmp/err" || got=$?
+	[ "$got" = "$want" ] || fail "$* -> exit $got, expected $want ($(cat "$tmp/err"))"
+	if [ -n "$msg" ]; then
+		grep -qF -- "$msg" "$tmp/err" || fail "$* -> message '$(cat "$tmp/err")', expected '$msg'"
+	fi
+}
+
+# A generated universe: 40 securities x 120 months, one-factor, seeded.
+"$PYTHON" - "$tmp/u.csv" <<'PY'
+import sys, numpy as np, datetime as dt
+rng = np.random.default_rng(2385)
+m, t = 40, 120
+beta = rng.uniform(0.6, 1.4, m)
+f = rng.normal(0.0071, 0.046, t)
+x = f[:, None] * beta[None, :] + rng.normal(0, 1, (t, m)) * rng.uniform(0.05, 0.11, m)[None, :]
+with open(sys.argv[1], "w") as fp:
+    fp.write("date," + ",".join("Q%03d" % i for i in range(m)) + "\n")
+    for k in range(t):
+        y, mo = 2005 + (k + 1) // 12, (k + 1) % 12 + 1
+        d = dt.date(y, mo, 1) - dt.timedelta(days=1)
+        fp.write(d.isoformat() + "," + ",".join(repr(float(v)) for v in x[k]) + "\n")
+PY
+
+# 1. The CSV header is the contract (issue 3), then our added columns.
+"$HOLDCOUNT" enough "$tmp/u.csv" --bootstrap 200 --paths 300 --seed 5 --format csv >"$tmp/a.csv"
+head -1 "$tmp/a.csv" | grep -q '^rule,parameters,count,value_at_count,count_p05,count_p50,count_p95,met' \
+	|| fail "csv header: $(head -1 "$tmp/a.csv")"
+[ "$(wc -l <"$tmp/a.csv")" = 7 ] || fail "csv: expected 6 rules, got $(($(wc -l <"$tmp/a.csv") - 1))"
+
+# 2. Counts against numpy: v-bar and c-bar of the file by numpy.cov, then the
+#    closed forms of near-floor and tracking-error (design.md section 5), and
+#    the marginal rule by numpy's own scan.
+"$PYTHON" - "$tmp/u.csv" "$tmp/a.csv" <<'PY' || fail "counts differ from numpy"
+import sys, csv, math, numpy as np
+x = np.loadtxt(sys.argv[1], delimiter=",", skiprows=1, usecols=range(1, 41))
+a = np.cov(x, rowvar=False)                      # divisor T-1
+m = a.shape[0]
+v = np.trace(a) / m
+c = (a.sum() - np.trace(a)) / (m * (m - 1))
+P = 12.0
+rows = {r["rule"]: r for r in csv.DictReader(open(sys.argv[2]))}
+nf = math.ceil((v - c) / (0.21 * c))
+while nf > 1 and v/(nf-1) + (1-1/(nf-1))*c <= 1.21*c: nf -= 1
+while not (v/nf + (1-1/nf)*c <= 1.21*c): nf += 1
+te = next(n for n in range(1, m + 1) if (v - c) * P * (1/n - 1/m) <= 0.02**2)
+sd = lambda n: math.sqrt(P * (v/n + (1-1/n)*c))
+mg = next((n for n in range(1, m) if sd(n) - sd(n+1) < 0.001), None)
+ok = True
+for name, want in (("near-floor", nf if nf <= m else None), ("tracking-error", te), ("marginal", mg)):
+    got = rows[name]["count"]
+    exp = "" if want is None else str(want)
+    if got != exp:
+        print("%s: got %r, numpy %r" % (name, got, exp)); ok = False
+    if want is not None and rows[name]["met"] != "true":
+        print("%s: met = %r" % (name, rows[name]["met"])); ok = False
+# the interval brackets something sensible: p05 <= p50 <= p95 when numbers
+for name in ("tracking-error",):
+    r = rows[name]
+    p = [float(r[k]) for k in ("count_p05", "count_p50", "count_p95")]
+    if not (p[0] <= p[1] <= p[2]): print("interval out of order", p); ok = False
+sys.exit(0 if ok else 1)
+PY
+
+# 3. Same output for 1 and 2 threads (per-replicate seeding).
+HOLDCOUNT_THREADS=1 "$HOLDCOUNT" enough "$tmp/u.csv" --bootstrap 200 --paths 300 --seed 5 --format csv --threads 1 >"$tmp/t1.csv"
+HOLDCOUNT_THREADS=2 "$HOLDCOUNT" enough "$tmp/u.csv" --bootstrap 200 --paths 300 --seed 5 --format csv --threads 2 >"$tmp/t2.csv"
+cmp -s "$tmp/t1.csv" "$tmp/t2.csv" || fail "1 and 2 threads differ"
+cmp -s "$tmp/a.csv" "$tmp/t1.csv" || fail "same seed, different output"
+
+# 4. JSON mirrors the CSV: same rules, same counts, cautions present.
+"$HOLDCOUNT" enough "$tmp/u.csv" --bootstrap 200 --paths 300 --seed 5 --format json >"$tmp/a.json"
+"$PYTHON" - "$tmp/a.json" "$tmp/a.csv" <<'PY' || fail "json does not mirror csv"
+import sys, json, csv
+j = json.load(open(sys.argv[1]))
+rows = list(csv.DictReader(open(sys.argv[2])))
+assert j["securities"] == 40 and j["periods"] == 120 and j["periods_per_year"] == 12, j
+assert [r["rule"] for r in j["rules"]] == [r["rule"] for r in rows]
+for a, b in zip(j["rules"], rows):
+    assert (a["count"] is None and b["count"] == "") or str(a["count"]) == b["count"], (a, b)
+assert j["cautions"] and any("advice" in c for c in j["cautions"]), j["cautions"]
+PY
+
+# 5. Table view: the universe line and the cautions.
+"$HOLDCOUNT" enough "$tmp/u.csv" --bootstrap 50 --paths 200 >"$tmp/a.txt"
+for word in "securities" "periods" "periods per year" "near-floor" "advice"; do
+	grep -qi -- "$word" "$tmp/a.txt" || fail "table view lacks '$word'"
+done
+
+# 6. Summary statistics: Elton & Gruber (1977), Journal of Business 50(4),
+#    averages 46.619 and 7.058 (from memory, design.md section 11): the
+#    near-floor count is 27 at 10% and 55 at 5%.
+"$HOLDCOUNT" enough --average-variance 46.619 --average-covariance 7.058 --rules near-floor --format csv >"$tmp/eg.csv"
+[ "$(sed -n 2p "$tmp/eg.csv" | cut -d, -f3)" = 27 ] || fail "Elton & Gruber 10%: $(sed -n 2p "$tmp/eg.csv")"
+"$HOLDCOUNT" enough --average-variance 46.619 --average-covariance 7.058 --rules near-floor --near-floor 5% --format csv >"$tmp/eg.csv"
+[ "$(sed -n 2p "$tmp/eg.csv" | cut -d, -f3)" = 55 ] || fail "Elton & Gruber 5%: $(sed -n 2p "$tmp/eg.csv")"
+
+# 7. Not met and undefined are said, never numbered.
+"$HOLDCOUNT" enough --average-variance 46.619 --average-covariance 7.058 --securities 40 --rules near-floor --near-floor 5% --format csv >"$tmp/nm.csv"
+grep -q 'not met within the universe of 40 securities' "$tmp/nm.csv" || fail "not met: $(cat "$tmp/nm.csv")"
+[ "$(sed -n 2p "$tmp/nm.csv" | cut -d, -f3)" = "" ] || fail "not met but a count: $(sed -n 2p "$tmp/nm.csv")"
+"$HOLDCOUNT" enough --average-variance 0.0119 --average-covariance -0.0003 --securities 25 --rules near-floor --format csv >"$tmp/un.csv"
+grep -q 'undefined: the floor' "$tmp/un.csv" || fail "undefined: $(cat "$tmp/un.csv")"
+
+# 8. Bad input: one clear message, exit 2.
+expect 2 "bad rule list: 'nearfloor' is not a rule" -- "$HOLDCOUNT" enough "$tmp/u.csv" --rules nearfloor
+expect 2 "bad --band '95%'" -- "$HOLDCOUNT" enough "$tmp/u.csv" --band 95%
+expect 2 "bad --marginal 'abc'" -- "$HOLDCOUNT" enough "$tmp/u.csv" --marginal abc
+expect 2 "give --premium and --holding-cost together" -- "$HOLDCOUNT" enough "$tmp/u.csv" --premium 6%
+expect 2 "bad band quantile" -- "$HOLDCOUNT" enough "$tmp/u.csv" --band 100%:10%
+expect 2 "bad block length 500" -- "$HOLDCOUNT" enough "$tmp/u.csv" --rules exact --block-length 500
+expect 2 "need a universe file" -- "$HOLDCOUNT" enough --average-sd 30% --average-correlation 0.2 --rules band
+expect 2 "not both" -- "$HOLDCOUNT" enough "$tmp/u.csv" --average-sd 30%
+expect 2 "unknown option '--bootstrapp'" -- "$HOLDCOUNT" enough "$tmp/u.csv" --bootstrapp 10
+printf 'date,A,B\n2020-01-31,0.01,abc\n2020-02-29,0.02,0.03\n' >"$tmp/bad.csv"
+expect 3 "bad.csv:2:" -- "$HOLDCOUNT" enough "$tmp/bad.csv"
+expect 4 "" -- "$HOLDCOUNT" enough "$tmp/missing-file.csv"
+# nothing half-written on failure
+expect 2 "" -- "$HOLDCOUNT" enough "$tmp/u.csv" --rules nearfloor --output "$tmp/never.csv"
+[ ! -e "$tmp/never.csv" ] || fail "--output written on failure"
+
+# 9. Common practice (no single source): on the invented demo universe the
+#    near-floor and marginal counts land in the tens.
+demo="$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv"
+if [ -f "$demo" ]; then
+	"$HOLDCOUNT" enough "$demo" --rules near-floor,marginal --bootstrap 0 --format csv >"$tmp/demo.csv"
+	"$PYTHON" - "$tmp/demo.csv" <<'PY' || fail "demo counts not in the tens: $(cat "$tmp/demo.csv")"
+import sys, csv
+rows = list(csv.DictReader(open(sys.argv[1])))
+assert len(rows) == 2 and all(r["count"] and 10 <= int(r["count"]) <= 99 for r in rows), rows
+PY
+else
+	fail "data/demo-universe.csv is missing"
+fi
+
+[ "$fails" = 0 ] || { echo "$fails failure(s)" >&2; exit 1; }
+echo "cli_enough: all checks passed"

@@ -1,0 +1,97 @@
+#!/usr/bin/env bash
+# cli_report.sh - `holdcount report`: the files, determinism, rendering with
+# and without gnuplot, refusing and replacing an existing folder, and
+# interruption by SIGINT and SIGKILL.
+set -u
+HC=${HOLDCOUNT:?}
+T=${HOLDCOUNT_TEST_TMP:?}/cli_report
+rm -rf "$T"; mkdir -p "$T"
+fails=0
+fail() { echo "FAIL: $*"; fails=$((fails + 1)); }
+FAST=(--paths 1000 --bootstrap 100 -q)
+
+# 1. The demo report holds every file.
+"$HC" report -o "$T/a" "${FAST[@]}" || fail "demo report exited $?"
+for f in summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rules.dat \
+	 risk.gp risk-log.gp share.gp tracking.gp risk.png risk-log.png share.png tracking.png; do
+	[ -s "$T/a/$f" ] || fail "demo report lacks $f"
+done
+if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
+	for f in audit.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
+fi
+[ -e "$T/a/README-plots.txt" ] && fail "README-plots.txt written although gnuplot rendered"
+[ -e "$T/a/.holdcount-incomplete" ] && fail "the finished report keeps the incomplete marker"
+grep -q '^## Cautions' "$T/a/summary.md" || fail "summary.md has no cautions"
+grep -q 'not investment advice' "$T/a/summary.md" || fail "summary.md lacks 'not investment advice'"
+grep -q '!\[Risk by holding count\](risk.png)' "$T/a/summary.md" || fail "summary.md does not embed risk.png"
+
+# 2. Deterministic: a second run gives the same bytes (summary.md differs at
+# most in its date line).
+"$HC" report -o "$T/b" "${FAST[@]}" || fail "second demo report exited $?"
+for f in "$T"/a/*.json "$T"/a/*.csv "$T"/a/*.gp "$T"/a/*.dat; do
+	cmp -s "$f" "$T/b/$(basename "$f")" || fail "$(basename "$f") differs between two identical runs"
+done
+diff <(grep -v '^Written by' "$T/a/summary.md") <(grep -v '^Written by' "$T/b/summary.md") >/dev/null ||
+	fail "summary.md differs beyond its date line"
+
+# 3. An existing folder is refused without --force and left alone.
+before=$(cat "$T"/a/summary.json | md5sum)
+"$HC" report -o "$T/a" "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] || fail "existing folder without --force: exit $rc, expected 2"
+grep -q "exists; use --force" "$T/err" || fail "existing folder: message was: $(cat "$T/err")"
+[ "$(md5sum < "$T/a/summary.json")" = "$before" ] || fail "refused run changed the old report"
+mkdir -p "$T/notareport"; echo keep > "$T/notareport/notes.txt"
+"$HC" report -o "$T/notareport" --force "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] && [ -f "$T/notareport/notes.txt" ] || fail "--force replaced a folder that is not a report (exit $rc)"
+"$HC" report -o "$T/a" --force --seed 7 "${FAST[@]}" || fail "--force over a report exited $?"
+grep -q '"seed":[[:space:]]*"7"' "$T/a/summary.json" || fail "--force did not put the new report in place"
+ls -d "$T"/a.tmp-* >/dev/null 2>&1 && fail "a temporary folder was left after --force"
+
+# 4. Without gnuplot on the PATH the folder is complete and says how to render.
+PATH=/nonexistent "$HC" report -o "$T/nognuplot" "${FAST[@]}" || fail "report without gnuplot exited $?"
+for f in summary.md summary.json curve.csv enough.csv risk.gp exact.dat README-plots.txt; do
+	[ -s "$T/nognuplot/$f" ] || fail "report without gnuplot lacks $f"
+done
+grep -q 'gnuplot risk.gp' "$T/nognuplot/README-plots.txt" || fail "README-plots.txt does not say how to render"
+grep -q 'gnuplot risk.gp' "$T/nognuplot/summary.md" || fail "summary.md does not say how to render"
+ls "$T"/nognuplot/*.png >/dev/null 2>&1 && fail "PNG files without gnuplot"
+(cd "$T/nognuplot" && for g in *.gp; do gnuplot "$g" 2>>"$T/render-err"; done)
+[ -s "$T/render-err" ] && fail "rendering the scripts by hand printed: $(head -3 "$T/render-err")"
+[ -s "$T/nognuplot/risk.png" ] || fail "'gnuplot risk.gp' in the folder wrote no risk.png"
+
+# 5. SIGINT mid-run: exit 7, no DIR, no temporary folder; over an existing
+# report (--force) the old one is intact.  Job control (set -m) keeps SIGINT
+# from being ignored in the background job.
+set -m
+"$HC" report -o "$T/int" --paths 400000 --bootstrap 0 -q & pid=$!
+sleep 1; kill -INT $pid; wait $pid; rc=$?
+[ $rc -eq 7 ] || fail "SIGINT: exit $rc, expected 7"
+[ -e "$T/int" ] && fail "SIGINT left a report folder"
+ls -d "$T"/int.tmp-* >/dev/null 2>&1 && fail "SIGINT left a temporary folder"
+before=$(cat "$T"/b/* 2>/dev/null | md5sum)
+"$HC" report -o "$T/b" --force --paths 400000 --bootstrap 0 -q & pid=$!
+sleep 1; kill -INT $pid; wait $pid; rc=$?
+[ $rc -eq 7 ] || fail "SIGINT with --force: exit $rc"
+[ "$(cat "$T"/b/* | md5sum)" = "$before" ] || fail "SIGINT with --force changed the old report"
+ls -d "$T"/b.tmp-* >/dev/null 2>&1 && fail "SIGINT with --force left a temporary folder"
+
+# 6. SIGKILL cannot be caught: the leftover is named DIR.tmp-XXXXXX, DIR
+# itself is absent, and the next run for DIR removes the leftover.
+"$HC" report -o "$T/kill" --paths 400000 --bootstrap 0 -q & pid=$!
+sleep 1; kill -KILL $pid; wait $pid 2>/dev/null
+set +m
+[ -e "$T/kill" ] && fail "SIGKILL left a folder named like the report"
+ls -d "$T"/kill.tmp-* >/dev/null 2>&1 || fail "SIGKILL: expected a DIR.tmp-* leftover (is the run too fast?)"
+"$HC" report -o "$T/kill" "${FAST[@]}" || fail "run after SIGKILL exited $?"
+ls -d "$T"/kill.tmp-* >/dev/null 2>&1 && fail "the run after SIGKILL did not remove the leftover"
+[ -s "$T/kill/summary.json" ] || fail "the run after SIGKILL wrote no report"
+
+# 7. Usage errors.
+"$HC" report "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] && grep -q -- "-o DIR is required" "$T/err" || fail "missing -o: exit $rc, $(cat "$T/err")"
+"$HC" report -o "$T/x" --plot-format gif 2>/dev/null; rc=$?
+[ $rc -eq 2 ] || fail "--plot-format gif: exit $rc, expected 2"
+[ -e "$T/x" ] && fail "a usage error wrote a folder"
+
+echo "cli_report: $fails failures"
+[ $fails -eq 0 ]

@@ -1,0 +1,390 @@
+/*
+ * Unit tests for covmatrix: CSV loading and its errors, covariances from
+ * returns (complete and pairwise), nearest positive semi-definite repair.
+ *
+ * Reference values come from numpy (Debian python3-numpy 1.24), computed
+ * with /usr/bin/python3 on the data below:
+ *   X = the 4 x 7 returns of RETURNS below (rows = securities)
+ *   complete:  np.cov(X)                      (ddof = 1)
+ *   pairwise:  Y = X with NaN at the gaps of GAPS below;
+ *              P[i,j] = np.cov(Y[i][k], Y[j][k])[0,1],
+ *              k = ~np.isnan(Y[i]) & ~np.isnan(Y[j])
+ *   repair:    w, V = np.linalg.eigh(A); V @ np.diag(np.maximum(w, 0)) @ V.T
+ */
+#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <cmocka.h>
+
+#include <malloc.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include <gsl/gsl_errno.h>
+
+#include "holdcount/covmatrix.h"
+#include "holdcount/memory.h"
+#include "holdcount/universe.h"
+
+#define assert_close(a, b, tol) do { \
+	double a_ = (a), b_ = (b); \
+	if (!(fabs(a_ - b_) <= (tol))) \
+		fail_msg("%.17g != %.17g (tolerance %g)", a_, b_, (double)(tol)); \
+} while (0)
+
+/* See test_universe.c: glibc's tcache is turned off in main() so that
+ * mallinfo2's count of bytes in use is exact. */
+static size_t heap_in_use(void)
+{
+	struct mallinfo2 mi = mallinfo2();
+
+	return mi.uordblks + mi.hblkhd;
+}
+
+static const char RETURNS[] =
+	"date,A,B,C,D\n"
+	"2021-01-31,0.0213,-0.0117,0.0342,0.0042\n"
+	"2021-02-28,-0.0385,0.0266,0.0051,-0.0093\n"
+	"2021-03-31,0.0172,0.0093,-0.0228,0.0311\n"
+	"2021-04-30,0.0051,-0.0204,0.0137,-0.0128\n"
+	"2021-05-31,0.0094,0.0077,-0.0319,0.0184\n"
+	"2021-06-30,-0.0217,0.0148,0.0089,-0.0036\n"
+	"2021-07-31,0.0332,-0.0061,0.0205,0.0157\n";
+
+/* The same with gaps: B at periods 0 and 4, C at 2, D at 5 and 6. */
+static const char GAPS[] =
+	"date,A,B,C,D\n"
+	"2021-01-31,0.0213,NA,0.0342,0.0042\n"
+	"2021-02-28,-0.0385,0.0266,0.0051,-0.0093\n"
+	"2021-03-31,0.0172,0.0093,,0.0311\n"
+	"2021-04-30,0.0051,-0.0204,0.0137,-0.0128\n"
+	"2021-05-31,0.0094,NA,-0.0319,0.0184\n"
+	"2021-06-30,-0.0217,0.0148,0.0089,NA\n"
+	"2021-07-31,0.0332,-0.0061,0.0205,NA\n";
+
+static const double NUMPY_COMPLETE[16] = {
+	0.0006371180952380951, -0.0002906197619047618, 4.9090714285714295e-05, 0.00025452595238095233,
+	-0.0002906197619047618, 0.0002673914285714286, -0.00017914904761904762, 2.005904761904763e-05,
+	4.9090714285714295e-05, -0.00017914904761904762, 0.0005517728571428571, -0.00020971785714285712,
+	0.00025452595238095233, 2.005904761904763e-05, -0.00020971785714285712, 0.00026006285714285705 };
+
+static const double NUMPY_PAIRWISE[16] = {
+	0.0006371180952380951, -0.000367278, 0.00014310466666666666, 0.0002496175,
+	-0.000367278, 0.00033733299999999994, -0.00010556500000000001, 0.00012823500000000004,
+	0.00014310466666666666, -0.00010556500000000001, 0.0004950736666666666, -0.00022291583333333332,
+	0.0002496175, 0.00012823500000000004, -0.00022291583333333332, 0.00034350699999999995 };
+
+/* numpy: eigenvalues of NUMPY_PAIRWISE are -9.72e-05, 2.61e-04, 6.91e-04,
+ * 9.58e-04, so it is not positive semi-definite; its repair: */
+static const double NUMPY_PAIRWISE_PSD[16] = {
+	0.0006642507286292167, -0.00033854319826522305, 0.00013030361196723095, 0.0002194150284492426,
+	-0.000338543198265223, 0.0003677645773126222, -0.00011912195053561189, 9.624908770756309e-05,
+	0.00013030361196723092, -0.00011912195053561188, 0.000501113146840072, -0.00020866644276345566,
+	0.00021941502844924262, 9.624908770756309e-05, -0.00020866644276345568, 0.00037712663708516417 };
+
+static struct universe *load_universe(const char *text, int missing)
+{
+	struct universe_options o;
+	struct universe *u;
+	struct hc_error err;
+
+	universe_options_init(&o);
+	o.missing = missing;
+	if (universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err) != HC_OK)
+		fail_msg("%s", err.message);
+	return u;
+}
+
+/* Tolerance: 1e-15 relative to the largest variance (6.4e-4): sums of 7
+ * products of numbers near 0.02 carry about 7 ulp of rounding each way. */
+#define COV_TOL (1e-15 * 6.4e-4)
+
+static void test_covmatrix_complete_against_numpy(void **state)
+{
+	struct universe *u = load_universe(RETURNS, UNIVERSE_MISSING_COMPLETE);
+	struct covmatrix *c;
+	struct hc_error err;
+	size_t i;
+
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	assert_int_equal(c->m, 4);
+	assert_string_equal(c->ids[3], "D");
+	for (i = 0; i < 16; i++)
+		assert_close(c->a[i], NUMPY_COMPLETE[i], COV_TOL);
+	assert_true(c->a[1 * 4 + 2] == c->a[2 * 4 + 1]);   /* exactly symmetric */
+	assert_int_equal(covmatrix_find(c, "C"), 2);
+	assert_int_equal(covmatrix_find(c, "E"), -1);
+	covmatrix_free(c);
+	covmatrix_free(NULL);
+	universe_free(u);
+}
+
+static void test_covmatrix_pairwise_against_numpy(void **state)
+{
+	struct universe_options o;
+	struct universe *u;
+	struct covmatrix *c;
+	struct hc_error err;
+	size_t i;
+
+	universe_options_init(&o);
+	o.missing = UNIVERSE_MISSING_PAIRWISE;
+	o.min_coverage = 0.7;
+	assert_int_equal(universe_load_buffer(&u, "u.csv", GAPS, strlen(GAPS), &o, &err), HC_OK);
+	assert_int_equal(u->m, 4);
+	assert_int_equal(u->has_missing, 1);
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	for (i = 0; i < 16; i++)
+		assert_close(c->a[i], NUMPY_PAIRWISE[i], COV_TOL);
+	covmatrix_free(c);
+	universe_free(u);
+}
+
+static void test_covmatrix_pairwise_too_few_common(void **state)
+{
+	static const char text[] =
+		"date,A,B,C\n"
+		"2021-01-31,0.0213,NA,0.0342\n"
+		"2021-02-28,-0.0385,NA,0.0051\n"
+		"2021-03-31,0.0172,0.0093,NA\n"
+		"2021-04-30,0.0051,-0.0204,NA\n"
+		"2021-05-31,0.0094,0.0077,-0.0319\n"
+		"2021-06-30,-0.0217,0.0148,0.0089\n";
+	struct universe *u = load_universe(text, UNIVERSE_MISSING_KEEP);
+	struct covmatrix *c = (struct covmatrix *)1;
+	struct hc_error err;
+
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_EDATA);
+	assert_null(c);
+	assert_string_equal(err.message,
+		"u.csv: securities 'B' and 'C' have only 2 common periods; expected at least 3 for a pairwise covariance");
+	universe_free(u);
+}
+
+static void test_covmatrix_repair_psd_against_numpy(void **state)
+{
+	/* numpy: eigenvalues -0.79256, 3.54223, 4.55333 */
+	double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 };
+	static const double ref[9] = {
+		2.688682035192451, 1.8083836049693134, -1.148162777661336,
+		1.8083836049693136, 2.797030136773818, 1.0581685631604707,
+		-1.148162777661336, 1.0581685631604707, 2.609843392777781 };
+	double p[16];
+	struct hc_error err;
+	int changed = -1;
+	size_t i;
+
+	gsl_set_error_handler_off();
+	assert_int_equal(covmatrix_repair_psd(a, 3, &changed, &err), HC_OK);
+	assert_int_equal(changed, 1);
+	/* 1e-14 absolute on entries near 2.5: a symmetric eigensolver is
+	 * backward stable, error about m * eps * ||A|| (||A|| ~ 4.6) */
+	for (i = 0; i < 9; i++)
+		assert_close(a[i], ref[i], 1e-14);
+	memcpy(p, NUMPY_PAIRWISE, sizeof p);
+	assert_int_equal(covmatrix_repair_psd(p, 4, &changed, &err), HC_OK);
+	assert_int_equal(changed, 1);
+	for (i = 0; i < 16; i++)
+		assert_close(p[i], NUMPY_PAIRWISE_PSD[i], 1e-17);   /* same reasoning, ||P|| ~ 1e-3 */
+}
+
+static void test_covmatrix_repair_psd_leaves_psd_alone(void **state)
+{
+	double a[16];
+	struct hc_error err;
+	int changed = -1;
+
+	/* np.cov of RETURNS is positive definite (numpy eigvalsh > 0): untouched, bit for bit */
+	memcpy(a, NUMPY_COMPLETE, sizeof a);
+	gsl_set_error_handler_off();
+	assert_int_equal(covmatrix_repair_psd(a, 4, &changed, &err), HC_OK);
+	assert_int_equal(changed, 0);
+	assert_memory_equal(a, NUMPY_COMPLETE, sizeof a);
+	assert_int_equal(covmatrix_repair_psd(a, 0, &changed, &err), HC_OK);
+	assert_int_equal(changed, 0);
+}
+
+static void test_covmatrix_min_eigenvalue(void **state)
+{
+	double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 }, lmin;
+	struct hc_error err;
+
+	gsl_set_error_handler_off();
+	/* numpy: np.linalg.eigvalsh(A)[0] = -0.7925555647440522; 1e-14 as for the repair */
+	assert_int_equal(covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_OK);
+	assert_close(lmin, -0.7925555647440522, 1e-14);
+	/* numpy: eigvalsh(NUMPY_PAIRWISE)[0] = -9.722332796231278e-05 */
+	assert_int_equal(covmatrix_min_eigenvalue(NUMPY_PAIRWISE, 4, &lmin, &err), HC_OK);
+	assert_close(lmin, -9.722332796231278e-05, 1e-17);
+	assert_int_equal(covmatrix_min_eigenvalue(a, 0, &lmin, &err), HC_EINTERNAL);
+	hc_alloc_fail_after(1);
+	assert_int_equal(covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+}
+
+static const char MATRIX[] =
+	"\xEF\xBB\xBF" "risk model,A,B,C\r\n"
+	"A,0.0004,0.00012,-0.00003\r\n"
+	"B,0.000120000001,0.0009,0.0002\r\n"
+	"C,-3e-5,0.0002,0.000625\r\n";
+
+static void test_covmatrix_load(void **state)
+{
+	struct covmatrix *c;
+	struct hc_error err;
+
+	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
+					       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
+	assert_int_equal(c->m, 3);
+	assert_string_equal(c->ids[0], "A");
+	assert_true(c->a[2 * 3 + 2] == 0.000625);
+	assert_true(c->a[0 * 3 + 2] == -3e-5);
+	/* within tolerance the triangles are averaged: (0.00012 + 0.000120000001)/2 */
+	assert_true(c->a[0 * 3 + 1] == c->a[1 * 3 + 0]);
+	assert_close(c->a[0 * 3 + 1], 0.0001200000005, 1e-19);
+	covmatrix_free(c);
+	/* exact symmetry demanded: line 3 column 2 holds B's entry for A */
+	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX), 0, &err), HC_EDATA);
+	assert_null(c);
+	assert_string_equal(err.message,
+		"cov.csv:3:2: covariance of 'B' and 'A' is 0.000120000001 here but 0.00012 on line 2, column 3; "
+		"expected a symmetric matrix (relative tolerance 0)");
+	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX), -1, &err), HC_EUSAGE);
+}
+
+static void expect_load_error(const char *text, const char *prefix)
+{
+	struct covmatrix *c = (struct covmatrix *)1;
+	struct hc_error err;
+	int rc = covmatrix_load_buffer(&c, "cov.csv", text, strlen(text),
+				       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+
+	if (rc != HC_EDATA || strncmp(err.message, prefix, strlen(prefix)) != 0)
+		fail_msg("rc %d, message '%s' (want '%s...')", rc, err.message, prefix);
+	assert_null(c);
+}
+
+static void test_covmatrix_load_errors(void **state)
+{
+	expect_load_error("", "cov.csv: empty file");
+	expect_load_error(",A\nA,0.04\n", "cov.csv:1: the header has 1 id; expected a corner cell then at least 2 ids");
+	expect_load_error(",A,B\nA,0.04,0.01\n", "cov.csv: 1 rows for 2 ids; expected a square matrix");
+	expect_load_error(",A,B\nA,0.04,0.01\nB,0.01,0.09\nC,1,2\n",
+			  "cov.csv:4: more rows than the header's 2 ids");
+	expect_load_error(",A,B\nB,0.04,0.01\nA,0.01,0.09\n",
+			  "cov.csv:2:1: row id 'B' does not match 'A' in column 2 of the header");
+	expect_load_error(",A,B,A\nA,1,0,0\n", "cov.csv:1:4: duplicate security id 'A' (also in column 2)");
+	expect_load_error(",A,b,B\n", "cov.csv:1:4: security id 'B' differs only in case or surrounding spaces from 'b'");
+	expect_load_error(",A,B\nA,0.04,x\nB,0.01,0.09\n", "cov.csv:2:3: expected a number, found 'x'");
+	expect_load_error(",A,B\nA,0.04,\nB,0.01,0.09\n", "cov.csv:2:3: expected a number, found ''");
+	expect_load_error(",A,B\nA,0.04,0.01\nB,0.01,0\n",
+			  "cov.csv:3:3: variance of 'B' is 0; expected a positive number on the diagonal");
+	expect_load_error(",A,B\nA,-0.04,0.01\nB,0.01,0.09\n", "cov.csv:2:2: variance of 'A' is -0.04");
+	expect_load_error(",A,B\nA,0.04\nB,0.01,0.09\n", "cov.csv:2:2: row has 2 fields; expected 3 as in the header");
+	expect_load_error(",A,B\nA,0.04,0.01,7\nB,0.01,0.09\n", "cov.csv:2:4: row has more fields than the header's 3");
+	expect_load_error(",A,B\nA,0.04,0.01\nB,0.02,0.09\n",
+			  "cov.csv:3:2: covariance of 'B' and 'A' is 0.02 here but 0.01 on line 2, column 3");
+}
+
+static void test_covmatrix_load_file(void **state)
+{
+	const char *tmp = getenv("HOLDCOUNT_TEST_TMP");
+	char path[4096];
+	struct covmatrix *c;
+	struct hc_error err;
+	FILE *fp;
+
+	snprintf(path, sizeof path, "%s/cov.csv", tmp);
+	fp = fopen(path, "wb");
+	assert_non_null(fp);
+	fputs(MATRIX, fp);
+	fclose(fp);
+	assert_int_equal(covmatrix_load(&c, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
+	assert_int_equal(c->m, 3);
+	covmatrix_free(c);
+	assert_int_equal(covmatrix_load(&c, "/nonexistent/cov.csv", COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_EIO);
+	assert_null(c);
+}
+
+/* Every allocation index fails in turn: HC_ENOMEM, nothing leaked. */
+static void test_covmatrix_allocation_failure(void **state)
+{
+	struct universe *u = load_universe(RETURNS, UNIVERSE_MISSING_COMPLETE);
+	struct universe *g = load_universe(GAPS, UNIVERSE_MISSING_KEEP);
+	const struct universe *src[2] = { u, g };
+	struct covmatrix *c;
+	struct hc_error err;
+	double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 }, b[9];
+	int rc, changed, pass;
+	long k;
+
+	gsl_set_error_handler_off();
+	for (pass = 0; pass < 3; pass++) {
+		for (k = 0;; k++) {
+			size_t before = heap_in_use();
+
+			memcpy(b, a, sizeof b);
+			hc_alloc_fail_after(k);
+			if (pass < 2)
+				rc = covmatrix_from_universe(src[pass], &c, &err);
+			else
+				rc = covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
+							   COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+			hc_alloc_fail_after(-1);
+			if (rc == HC_OK) {
+				covmatrix_free(c);
+				assert_int_equal(heap_in_use(), before);
+				break;
+			}
+			assert_int_equal(rc, HC_ENOMEM);
+			assert_null(c);
+			assert_int_equal(heap_in_use(), before);
+		}
+		assert_true(k > 2);
+	}
+	for (k = 0;; k++) {
+		size_t before = heap_in_use();
+
+		memcpy(b, a, sizeof b);
+		hc_alloc_fail_after(k);
+		rc = covmatrix_repair_psd(b, 3, &changed, &err);
+		hc_alloc_fail_after(-1);
+		assert_int_equal(heap_in_use(), before);
+		if (rc == HC_OK)
+			break;
+		assert_int_equal(rc, HC_ENOMEM);
+		assert_memory_equal(b, a, sizeof b);   /* untouched on failure */
+	}
+	assert_int_equal(k, 3);
+	universe_free(u);
+	universe_free(g);
+}
+
+int main(int argc, char **argv)
+{
+	if (!getenv("HOLDCOUNT_TEST_NO_TCACHE")) {
+		setenv("HOLDCOUNT_TEST_NO_TCACHE", "1", 1);
+		setenv("GLIBC_TUNABLES", "glibc.malloc.tcache_count=0", 1);
+		execv("/proc/self/exe", argv);
+		fprintf(stderr, "cannot re-run without the malloc cache\n");
+		return 1;
+	}
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_covmatrix_complete_against_numpy),
+		cmocka_unit_test(test_covmatrix_pairwise_against_numpy),
+		cmocka_unit_test(test_covmatrix_pairwise_too_few_common),
+		cmocka_unit_test(test_covmatrix_repair_psd_against_numpy),
+		cmocka_unit_test(test_covmatrix_repair_psd_leaves_psd_alone),
+		cmocka_unit_test(test_covmatrix_min_eigenvalue),
+		cmocka_unit_test(test_covmatrix_load),
+		cmocka_unit_test(test_covmatrix_load_errors),
+		cmocka_unit_test(test_covmatrix_load_file),
+		cmocka_unit_test(test_covmatrix_allocation_failure),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

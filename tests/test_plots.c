@@ -1,0 +1,233 @@
+/*
+ * test_plots.c - plot data, scripts and rendering.
+ *
+ * References: the exact curve's closed form E[var(N)] = vbar/N + (1-1/N) cbar
+ * (Elton & Gruber, 1977, Journal of Business 50(4); their averages 46.619 and
+ * 7.058, from memory, scaled here to a monthly 0.0046619 and 0.0007058 per
+ * period), computed independently in the test; the PNG specification 1.2
+ * (signature, section 12.12; IHDR width and height, section 4.1.1).
+ * gnuplot-nox is installed by scripts/setup.sh: a missing gnuplot fails the
+ * render tests rather than skipping them.
+ */
+#define _GNU_SOURCE 1
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <cmocka.h>
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <gsl/gsl_errno.h>
+
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/plots.h"
+
+#define VBAR 0.0046619
+#define CBAR 0.0007058
+#define M 40
+
+static char tmpdir[4096];
+
+static struct curve *make_curve(void)
+{
+	struct moments mo;
+	struct curve *c = NULL;
+	size_t sizes[M], i;
+
+	for (i = 0; i < M; i++)
+		sizes[i] = i + 1;
+	assert_int_equal(moments_from_summary(&mo, VBAR, CBAR, M, NULL), HC_OK);
+	assert_int_equal(curve_exact(&c, &mo, sizes, M, 12.0, NULL), HC_OK);
+	return c;
+}
+
+static void make_tmpdir(const char *name)
+{
+	const char *base = getenv("HOLDCOUNT_TEST_TMP");
+
+	snprintf(tmpdir, sizeof tmpdir, "%s/test_plots_%s", base ? base : "/tmp", name);
+	mkdir(tmpdir, 0777);
+}
+
+static FILE *open_in(const char *name)
+{
+	char p[4200];
+	FILE *fp;
+
+	snprintf(p, sizeof p, "%s/%s", tmpdir, name);
+	fp = fopen(p, "w");
+	assert_non_null(fp);
+	return fp;
+}
+
+/* exact.dat row n: 100 sqrt(12 (vbar/n + (1 - 1/n) cbar)) to its 10 digits
+ * (rtol 1e-9 covers the printed rounding, 5e-10 at most). */
+static void test_plots_exact_data_follows_the_closed_form(void **state)
+{
+	struct curve *c = make_curve();
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented" };
+	char *buf = NULL, *line;
+	size_t len = 0, rows = 0, n;
+	double sd, share, te;
+	FILE *mem = open_memstream(&buf, &len);
+
+	(void)state;
+	assert_int_equal(plots_write_data(mem, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
+	fclose(mem);
+	for (line = strtok(buf, "\n"); line; line = strtok(NULL, "\n")) {
+		if (line[0] == '#')
+			continue;
+		assert_int_equal(sscanf(line, "%zu %lf %lf %lf", &n, &sd, &share, &te), 4);
+		double ev = VBAR / n + (1.0 - 1.0 / n) * CBAR;
+		assert_true(fabs(sd - 100 * sqrt(12 * ev)) <= 1e-9 * sd);
+		assert_true(fabs(share - 100 * ((VBAR - CBAR) / n) / ev) <= 1e-9 * 100);
+		assert_true(fabs(te - 100 * sqrt(12 * (VBAR - CBAR) * (1.0 / n - 1.0 / M))) <= 1e-9 * 100);
+		rows++;
+	}
+	assert_int_equal(rows, M);
+	free(buf);
+	curve_free(c);
+}
+
+static void test_plots_formats_and_availability(void **state)
+{
+	struct curve *c = make_curve();
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL };
+
+	(void)state;
+	assert_int_equal(plots_parse_format("svg"), PLOTS_SVG);
+	assert_int_equal(plots_parse_format("gif"), -1);
+	assert_true(plots_available(PLOTS_RISK, &in));
+	assert_false(plots_available(PLOTS_FUNDS, &in));   /* no audit */
+	assert_false(plots_available(PLOTS_ROLLING, &in)); /* waits for rolling.h */
+	assert_int_equal(plots_write_script(stdout, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_EUSAGE);
+	curve_free(c);
+}
+
+static void test_plots_find_gnuplot_along_a_path(void **state)
+{
+	char found[4200], path[4200], exe[4200];
+	FILE *fp;
+
+	(void)state;
+	make_tmpdir("path");
+	snprintf(exe, sizeof exe, "%s/gnuplot", tmpdir);
+	fp = fopen(exe, "w");
+	assert_non_null(fp);
+	fputs("#!/bin/sh\n", fp);
+	fclose(fp);
+	chmod(exe, 0755);
+	snprintf(path, sizeof path, "/nonexistent:%s", tmpdir);
+	assert_int_equal(plots_find_gnuplot(path, found, sizeof found), 1);
+	assert_string_equal(found, exe);
+	assert_int_equal(plots_find_gnuplot("/nonexistent", found, sizeof found), 0);
+}
+
+/* Render risk.gp (with rule marks) and read the PNG's IHDR. */
+static void test_plots_risk_renders_a_png_of_the_stated_size(void **state)
+{
+	struct curve *c = make_curve();
+	struct rule_result rules[2];
+	struct plots_input in = { c, NULL, rules, 2, 0.02, NULL, "invented" };
+	char gp[4200], png[4200];
+	unsigned char head[24];
+	struct hc_error err;
+	FILE *fp;
+
+	(void)state;
+	memset(rules, 0, sizeof rules);
+	rules[0].name = "near-floor", rules[0].defined = 1, rules[0].met = 1, rules[0].count = 17;
+	rules[1].name = "tracking-error", rules[1].rule = RULES_TRACKING_ERROR;
+	rules[1].defined = 1, rules[1].met = 1, rules[1].count = 33;
+	make_tmpdir("render");
+	assert_true(plots_find_gnuplot(NULL, gp, sizeof gp));
+	fp = open_in("exact.dat");
+	assert_int_equal(plots_write_data(fp, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
+	fclose(fp);
+	fp = open_in("rules.dat");
+	assert_int_equal(plots_write_data(fp, PLOTS_DATA_RULES, &in, NULL), HC_OK);
+	fclose(fp);
+	fp = open_in("risk.gp");
+	assert_int_equal(plots_write_script(fp, PLOTS_RISK, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(fp);
+	fp = open_in("tracking.gp");
+	assert_int_equal(plots_write_script(fp, PLOTS_TRACKING, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(fp);
+	hc_error_clear(&err);
+	assert_int_equal(plots_render(gp, tmpdir, "risk.gp", &err), HC_OK);
+	assert_int_equal(plots_render(gp, tmpdir, "tracking.gp", &err), HC_OK);
+	snprintf(png, sizeof png, "%s/risk.png", tmpdir);
+	fp = fopen(png, "rb");
+	assert_non_null(fp);
+	assert_int_equal(fread(head, 1, 24, fp), 24);
+	fclose(fp);
+	assert_memory_equal(head, "\x89PNG\r\n\x1a\n", 8);
+	assert_memory_equal(head + 12, "IHDR", 4);
+	assert_int_equal((head[16] << 24) | (head[17] << 16) | (head[18] << 8) | head[19], PLOTS_WIDTH);
+	assert_int_equal((head[20] << 24) | (head[21] << 16) | (head[22] << 8) | head[23], PLOTS_HEIGHT);
+	curve_free(c);
+}
+
+/* gnuplot's "warning: Skipping data file with no valid points" on an empty
+ * data file must come back as a failure carrying gnuplot's words. */
+static void test_plots_render_treats_a_warning_as_failure(void **state)
+{
+	char gp[4200];
+	struct hc_error err;
+	FILE *fp;
+
+	(void)state;
+	make_tmpdir("warn");
+	assert_true(plots_find_gnuplot(NULL, gp, sizeof gp));
+	fclose(open_in("empty.dat"));
+	fp = open_in("bad.gp");
+	fputs("set terminal png size 200,100\nset output 'bad.png'\nplot 'empty.dat' using 1:2 with lines\n", fp);
+	fclose(fp);
+	hc_error_clear(&err);
+	assert_int_equal(plots_render(gp, tmpdir, "bad.gp", &err), HC_EINTERNAL);
+	assert_non_null(strstr(err.message, "arning"));
+	assert_int_equal(plots_render("/nonexistent/gnuplot", tmpdir, "bad.gp", &err), HC_EIO);
+}
+
+static void test_plots_script_allocation_failure(void **state)
+{
+	struct curve *c = make_curve();
+	struct rule_result rule;
+	struct plots_input in = { c, NULL, &rule, 1, 0.02, NULL, NULL };
+	struct hc_error err;
+	char *buf = NULL;
+	size_t len = 0;
+	FILE *mem = open_memstream(&buf, &len);
+
+	(void)state;
+	memset(&rule, 0, sizeof rule);
+	rule.name = "marginal", rule.defined = 1, rule.met = 1, rule.count = 9;
+	hc_alloc_fail_after(0);
+	assert_int_equal(plots_write_script(mem, PLOTS_RISK, &in, PLOTS_SVG, &err), HC_ENOMEM);
+	assert_int_equal(plots_write_data(mem, PLOTS_DATA_RULES, &in, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+	fclose(mem);
+	free(buf);
+	curve_free(c);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_plots_exact_data_follows_the_closed_form),
+		cmocka_unit_test(test_plots_formats_and_availability),
+		cmocka_unit_test(test_plots_find_gnuplot_along_a_path),
+		cmocka_unit_test(test_plots_risk_renders_a_png_of_the_stated_size),
+		cmocka_unit_test(test_plots_render_treats_a_warning_as_failure),
+		cmocka_unit_test(test_plots_script_allocation_failure),
+	};
+
+	gsl_set_error_handler_off();
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
