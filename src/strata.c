@@ -562,7 +562,8 @@ static void column_path(const struct srun *r, struct sws *w, size_t k)
 	memset(w->prev, 0, S * sizeof *w->prev);
 	for (u = 0; u < r->nuniq; u++) {
 		if (!r->feas[u]) {
-			w->out_v[u] = w->out_r[u] = NAN;
+			w->out_v[u] = INFINITY;
+			w->out_r[u] = -1.0;
 			continue;
 		}
 		n = r->uniq[u];
@@ -593,7 +594,7 @@ static void matrix_path(const struct srun *r, struct sws *w, size_t k)
 	shuffle_strata(s, w->g, r->seed, k, w->perm);
 	for (u = 0; u < r->nuniq; u++) {
 		if (!r->feas[u]) {
-			w->out_v[u] = NAN;
+			w->out_v[u] = INFINITY;
 			continue;
 		}
 		n = r->uniq[u];
@@ -961,6 +962,10 @@ int strata_curve_alloc(struct strata_curve **out, const struct sampler_result *r
 			p->expected_variance = strata_expected_variance(sm, s, alloc) * periods_per_year;
 		}
 		summarise_size(r, j, periods_per_year, sd, p);
+		/* Every draw of all M is the same portfolio: its spread is
+		 * rounding alone, so no z (as sampler_summarise at n = M). */
+		if (p->n == s->m)
+			p->z_score = NAN;
 	}
 	*out = c;
 	c = NULL;

@@ -118,8 +118,10 @@ double strata_expected_variance(const struct strata_moments *sm, const struct st
  * Stratified sampling, as sampler_run / sampler_run_matrix do for
  * unconstrained draws (they call these when opt->stratify is set):
  * opt->strata (m indices), opt->nstrata, opt->stratify and, for the cap,
- * opt->per_stratum_max.  r->feasible[j] is 0, and row entries NaN, for a
- * size no allocation meets.  Errors: HC_EUSAGE (no strata, mode none, a
+ * opt->per_stratum_max.  r->feasible[j] is 0 for a size no allocation
+ * meets, and its cells hold variance +INFINITY and return -1 (a total
+ * loss), so that no rule reading the sample (rules_band, rules_shortfall)
+ * can be met there.  Errors: HC_EUSAGE (no strata, mode none, a
  * cap of 0, bad size, paths 0, gaps in the data, returns from a matrix),
  * HC_EDATA, HC_ENOMEM, HC_EINTERRUPT.
  */
