@@ -57,6 +57,8 @@ int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct univers
 			return cli_usage_error(cmd, "--per-stratum-max and --proportional need --strata FILE");
 		return HC_OK;
 	}
+	if (s->strata)
+		goto fill;   /* loaded by an earlier call */
 	if (!!s->per_stratum_max == !!s->proportional)
 		return cli_usage_error(cmd, "--strata needs one of --per-stratum-max K (K at least 1) or "
 				       "--proportional");
@@ -69,6 +71,7 @@ int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct univers
 	sectors_free(map);
 	if (rc)
 		return cli_fail(cmd, &err);
+fill:
 	so->strata = s->stratum_of;
 	so->nstrata = s->nlabels;
 	so->stratify = s->proportional ? SAMPLER_STRATA_PROPORTIONAL : SAMPLER_STRATA_CAP;
