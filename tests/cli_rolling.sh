@@ -10,6 +10,8 @@
 #     securities complete in that window, to 1e-12 relative; the counts
 #     from the formulas of design.md section 3 solved by brute force.
 #  3. The CSV header contract, and documented exit statuses for bad use.
+#  4. `report --window` writes the same table as rolling.csv, its plot data
+#     hold the same counts, and summary.json carries it.
 set -euo pipefail
 HC=${HOLDCOUNT:?}
 SRC=${HOLDCOUNT_SOURCE_DIR:?}
@@ -126,6 +128,30 @@ grep -q "longer than the 150 periods" "$TMP/err" || say "window message: $(cat "
 # Nothing half-written: --output appears only complete.
 "$HC" rolling "$TMP/u.csv" --window 36 --step 5 --format csv -o "$TMP/o.csv"
 cmp -s "$TMP/o.csv" "$TMP/u-roll.csv" || say "--output differs from standard output"
+
+# ---- 4. the report folder's rolling table and plot ---------------------------
+rm -rf "$TMP/rep"
+"$HC" report "$TMP/u.csv" -o "$TMP/rep" --window 36 --step 5 --paths 200 --bootstrap 20 --quiet \
+	|| say "report --window failed"
+cmp -s "$TMP/rep/rolling.csv" "$TMP/u-roll.csv" || say "report's rolling.csv differs from holdcount rolling"
+[ -s "$TMP/rep/rolling.gp" ] && [ -s "$TMP/rep/rolling.dat" ] || say "no rolling plot script or data"
+"$PY" - "$TMP/rep/rolling.dat" "$TMP/u-roll.csv" "$TMP/rep/summary.json" <<'PY' || fail=1
+import csv, json, sys
+dat = [l.split() for l in open(sys.argv[1]) if not l.startswith("#")]
+out = list(csv.DictReader(open(sys.argv[2])))
+bad = len(dat) != len(out)
+for d, o in zip(dat, out):
+    want = [o["window_end"]] + [o[k] or "-" for k in
+            ("count_near_floor", "count_marginal", "count_cost_benefit", "count_tracking_error")]
+    bad |= d != want
+if bad:
+    print("FAIL: rolling.dat does not hold the windows' counts")
+if len(json.load(open(sys.argv[3]))["rolling"]["windows"]) != len(out):
+    print("FAIL: summary.json lacks the rolling windows"); bad = 1
+sys.exit(bad)
+PY
+[ "$(status report "$TMP/u.csv" -o "$TMP/rep2" --step 3)" = 2 ] || say "--step without --window: not exit 2"
+[ -e "$TMP/rep2" ] && say "report folder left after a usage error"
 
 [ $fail = 0 ] && echo "cli_rolling: ok"
 exit $fail
