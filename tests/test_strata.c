@@ -542,6 +542,8 @@ static void test_strata_allocation_failure(void **state)
 
 	(void)state;
 	for (mode = SAMPLER_STRATA_PROPORTIONAL; mode <= SAMPLER_STRATA_CAP; mode++) {
+		sampler_result_free(r);   /* the last mode's sample is summarised below */
+		r = NULL;
 		options(&o, of, 3, mode, 2, 5, 1);
 		for (k = 0;; k++) {
 			hc_alloc_fail_after(k);
