@@ -18,6 +18,7 @@
 #include "holdcount/moments.h"
 #include "holdcount/rules.h"
 #include "holdcount/sampler.h"
+#include "holdcount/strata.h"
 #include "holdcount/universe.h"
 
 #define ENOUGH_DEFAULT_BOOTSTRAP_PATHS 1000
@@ -39,6 +40,7 @@ struct enough_opts {
 	struct cli_summary sum;
 	struct cli_universe uni;
 	struct cli_output out;
+	struct cli_strata strat;
 };
 
 static const char *const kind_choices[] = { "block", "stationary", NULL };
@@ -86,6 +88,7 @@ static const struct cli_group_use enough_groups[] = {
 	{ &cli_group_summary, OFF(sum) },
 	{ &cli_group_universe, OFF(uni) },
 	{ &cli_group_output, OFF(out) },
+	{ &cli_group_strata, OFF(strat) },
 	{ NULL, 0 }
 };
 
@@ -97,7 +100,9 @@ const struct cli_command cli_command_enough = {
 	"reached at that count, and a 90% interval for the count from a bootstrap of the periods. "
 	"Without UNIVERSE, give summary statistics (--average-variance and --average-covariance, or "
 	"--average-sd and --average-correlation, and optionally --securities) for the exact rules. "
-	"See docs/enough.md for each rule and its source.",
+	"With --strata, the sampled rules (band, shortfall) draw portfolios spread across strata "
+	"(--proportional, or at most --per-stratum-max K in any stratum); the exact rules are "
+	"unchanged. See docs/enough.md for each rule and its source.",
 	0, 1, enough_groups
 };
 
@@ -345,7 +350,7 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 /* The band and shortfall rules by sampling (rules_sampled stops at the
  * smallest stage of sizes that settles them); their results replace the
  * "needs sampled portfolios" placeholders that rules_evaluate left. */
-static int run_sampled(const struct enough_opts *o, const struct universe *u,
+static int run_sampled(struct enough_opts *o, const struct universe *u,
 		       const struct rules_config *cfg, double cbar, struct enough_run *e,
 		       struct rule_result *res, size_t nres)
 {
@@ -362,6 +367,8 @@ static int run_sampled(const struct enough_opts *o, const struct universe *u,
 	so.seed = o->smp.seed;
 	so.threads = (int)o->smp.threads;
 	so.periods_per_year = u->periods_per_year;
+	if ((rc = cli_strata_apply("enough", &o->strat, u, &so)))
+		return rc;
 	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
@@ -373,11 +380,24 @@ static int run_sampled(const struct enough_opts *o, const struct universe *u,
 		for (j = 0; j < nres; j++)
 			if (res[j].rule == sr[k].rule)
 				res[j] = sr[k];
+	if (o->strat.per_stratum_max) {
+		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
+		size_t top = 0;
+
+		for (k = 0; k < o->strat.strata->nstrata; k++)
+			top += o->strat.strata->count[k] < o->strat.per_stratum_max
+			     ? o->strat.strata->count[k] : o->strat.per_stratum_max;
+		for (j = 0; j < nres; j++)
+			if ((RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK) && res[j].defined && !res[j].met)
+				snprintf(res[j].note, sizeof res[j].note,
+					 "not met up to %zu holdings, the most with at most %zu in every stratum",
+					 top, o->strat.per_stratum_max);
+	}
 	e->paths = o->smp.paths;
 	return HC_OK;
 }
 
-static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
+static int run_bootstrap(struct enough_opts *o, const struct universe *u,
 			 const struct rules_config *cfg, struct enough_run *e,
 			 struct rule_result *res, size_t nres)
 {
@@ -419,6 +439,11 @@ static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
 		so.paths = o->bootstrap_paths;
 		so.threads = (int)o->smp.threads;
 		so.periods_per_year = u->periods_per_year;
+		if ((rc = cli_strata_apply("enough", &o->strat, u, &so))) {
+			bootstrap_result_free(br);
+			bootstrap_base_free(b);
+			return rc;
+		}
 		cli_progress_init(&prog, "sampled bootstrap", "replicates", o->out.quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
@@ -469,7 +494,7 @@ static int run_matrix(const struct enough_opts *o, const struct cli_args *a, con
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
-static int run_data(const struct enough_opts *o, const struct cli_args *a,
+static int run_data(struct enough_opts *o, const struct cli_args *a,
 		    const char *path, const struct rules_config *cfg,
 		    struct universe **up, struct enough_run *e,
 		    struct rule_result *res, size_t *nres)
@@ -482,6 +507,10 @@ static int run_data(const struct enough_opts *o, const struct cli_args *a,
 
 	if (o->smp.sizes)
 		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
+	if ((o->strat.map || o->strat.per_stratum_max || o->strat.proportional) &&
+	    !(cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error("enough", "--strata applies to the sampled rules (band, shortfall), "
+				       "and none is chosen");
 	if (o->smp.paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error("enough", "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
 	rc = cli_load_universe("enough", &o->uni, path, up);
@@ -546,6 +575,7 @@ int cmd_enough(int argc, char **argv)
 	cli_summary_init(&o.sum);
 	cli_universe_init(&o.uni);
 	cli_output_init(&o.out);
+	cli_strata_init(&o.strat);
 	rc = cli_parse(&cli_command_enough, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
@@ -568,7 +598,8 @@ int cmd_enough(int argc, char **argv)
 		goto cleanup;
 	hc_error_clear(&err);
 	r = report_alloc();
-	if (!r || add_fields(r, &e) || rules_report(r, res, nres, &err) || add_notes(r, &e)) {
+	if (!r || add_fields(r, &e) || (have_data && cli_strata_fields(r, &o.strat)) ||
+	    rules_report(r, res, nres, &err) || add_notes(r, &e)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("enough", &err);
 		goto cleanup;
@@ -576,6 +607,7 @@ int cmd_enough(int argc, char **argv)
 	rc = cli_write_report("enough", &o.out, r);
 cleanup:
 	report_free(r);
+	cli_strata_release(&o.strat);
 	universe_free(u);
 	cli_args_release(&a);
 	return rc;
