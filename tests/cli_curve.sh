@@ -176,6 +176,30 @@ for k in ("average_variance", "average_covariance"):
 if abs(m["average_correlation"] - r["average_correlation"]) > 1e-12: print("correlation"); ok = False
 sys.exit(0 if ok else 1)
 PY
+# --missing pairwise with a gap left: the exact columns and the random
+# portfolios both come from the pairwise-complete covariances (numpy below,
+# pair by pair over common periods, divisor n_ij - 1).
+sed 's/^2021-03-31,0.0311,0.0087,-0.0145,/2021-03-31,0.0311,0.0087,,/' "$T/u.csv" >"$T/gap.csv"
+"$HC" curve "$T/gap.csv" --missing pairwise --sizes 1-4 --paths 20000 --seed 5 -q --format csv >"$T/g.csv" || fail "curve pairwise exit $?"
+"$PY" - "$T/gap.csv" "$T/g.csv" <<'PY' || fail "curve --missing pairwise against numpy"
+import csv, sys, numpy as np
+x = np.genfromtxt(sys.argv[1], delimiter=",", skip_header=1)[:, 1:]
+m = x.shape[1]; a = np.empty((m, m))
+for i in range(m):
+    for j in range(m):
+        k = ~np.isnan(x[:, i]) & ~np.isnan(x[:, j])
+        a[i, j] = np.cov(x[k, i], x[k, j], ddof=1)[0, 1]
+vbar = np.trace(a) / m; cbar = (a.sum() - np.trace(a)) / (m * (m - 1)); p = 12.0
+ok = True
+rows = list(csv.DictReader(open(sys.argv[2])))
+ok = len(rows) == 4
+for r in rows:
+    n = int(r["n"]); ev = (vbar / n + (1 - 1 / n) * cbar) * p
+    if abs(float(r["expected_variance"]) - ev) > 1e-12 * ev: print("E[var]", n, r["expected_variance"], ev); ok = False
+    if n < m and not abs(float(r["z_score"])) < 4: print("z", n, r["z_score"]); ok = False
+sys.exit(0 if ok else 1)
+PY
+
 # A matrix that no returns could have (correlations of +0.99, +0.99 and
 # -0.99 among three securities): some portfolio would have negative variance.
 printf 'id,AQ,BR,CT\nAQ,0.0025,0.00297,0.00347\nBR,0.00297,0.0036,-0.00416\nCT,0.00347,-0.00416,0.0049\n' >"$T/notpsd.csv"

@@ -280,6 +280,11 @@ struct covmatrix;
 int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
 			struct covmatrix **out);
 
+/* *psd = 1 when cm is positive semi-definite up to rounding in a printed
+ * file (moves of the nearest PSD matrix within COVMATRIX_DEFAULT_SYMMETRY_TOL
+ * relative to sqrt(a_ii a_jj)).  Prints its own errors. */
+int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd);
+
 /* The holding counts: text (NULL = the default grid up to m) parsed and
  * checked against m securities (0 = unbounded).  Prints its error;
  * HC_EUSAGE names the size and the securities kept. Free *sizes with hc_free. */

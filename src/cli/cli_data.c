@@ -98,14 +98,14 @@ static const char *const return_only_options[] = {
 };
 
 /*
- * A matrix whose eigenvalues are not all >= 0 gives some portfolio a
+ * cli_matrix_is_psd: a matrix whose eigenvalues are not all >= 0 gives some portfolio a
  * negative variance, so it is no covariance matrix.  The test: repair a copy
  * to the nearest positive semi-definite matrix (Higham, 1988, through
  * covmatrix_repair_psd) and see how far it moved.  Moves within the
  * loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are rounding in
  * a printed file (a rank-deficient matrix printed to 9 digits) and pass.
  */
-static int check_psd(const char *cmd, const char *path, const struct covmatrix *cm)
+int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd)
 {
 	struct hc_error err;
 	size_t m = cm->m, i, j, bytes;
@@ -129,11 +129,7 @@ static int check_psd(const char *cmd, const char *path, const struct covmatrix *
 	hc_free(b);
 	if (rc)
 		return cli_fail(cmd, &err);
-	if (worst > COVMATRIX_DEFAULT_SYMMETRY_TOL) {
-		hc_error(&err, HC_EDATA, "%s: not a covariance matrix: it is not positive semi-definite "
-			 "(some portfolio of these securities would have a negative variance)", path);
-		return cli_fail(cmd, &err);
-	}
+	*psd = worst <= COVMATRIX_DEFAULT_SYMMETRY_TOL;
 	return HC_OK;
 }
 
@@ -142,7 +138,7 @@ int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *p
 {
 	struct hc_error err;
 	size_t i;
-	int rc;
+	int rc, psd = 0;
 
 	*out = NULL;
 	for (i = 0; return_only_options[i]; i++)
@@ -153,7 +149,12 @@ int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *p
 	rc = covmatrix_load(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
-	rc = check_psd(cmd, path, *out);
+	rc = cli_matrix_is_psd(cmd, *out, &psd);
+	if (rc == HC_OK && !psd) {
+		hc_error(&err, HC_EDATA, "%s: not a covariance matrix: it is not positive semi-definite "
+			 "(some portfolio of these securities would have a negative variance)", path);
+		rc = cli_fail(cmd, &err);
+	}
 	if (rc) {
 		covmatrix_free(*out);
 		*out = NULL;

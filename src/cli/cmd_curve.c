@@ -197,12 +197,35 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 	return rc;
 }
 
+static int pairwise_matrix(const struct universe *u, const char *path, struct covmatrix **cm)
+{
+	struct hc_error err;
+	int rc, psd = 0;
+
+	hc_error_clear(&err);
+	rc = covmatrix_from_universe(u, cm, &err);
+	if (rc)
+		return cli_fail("curve", &err);
+	rc = cli_matrix_is_psd("curve", *cm, &psd);
+	if (rc == HC_OK && !psd) {
+		hc_error(&err, HC_EDATA, "%s: the pairwise-complete covariances are not positive semi-definite, "
+			 "so no random portfolio can be drawn from them; use --paths 0 for the exact curve alone", path);
+		rc = cli_fail("curve", &err);
+	}
+	if (rc) {
+		covmatrix_free(*cm);
+		*cm = NULL;
+	}
+	return rc;
+}
+
 int cmd_curve(int argc, char **argv)
 {
 	struct curve_opts o;
 	struct cli_args a;
 	struct curve_source src;
 	struct universe *u = NULL;
+	struct covmatrix *cm = NULL;
 	struct moments mo;
 	struct hc_error err;
 	size_t *sizes = NULL, nsizes = 0;
@@ -226,10 +249,13 @@ int cmd_curve(int argc, char **argv)
 	rc = cli_sizes("curve", o.sam.sizes, u->m, &sizes, &nsizes);
 	if (rc)
 		goto cleanup;
+	/* With gaps left (--missing pairwise) no portfolio has a complete return
+	 * series, so random portfolios are drawn from the same pairwise-complete
+	 * covariances the exact columns use, when they form a valid matrix. */
 	if (o.sam.paths > 0 && u->has_missing) {
-		rc = cli_usage_error("curve", "random portfolios need complete data, and '%s' has gaps under "
-				     "--missing pairwise; use --paths 0 for the exact curve alone", a.positional[0]);
-		goto cleanup;
+		rc = pairwise_matrix(u, a.positional[0], &cm);
+		if (rc)
+			goto cleanup;
 	}
 	rc = moments_from_universe(&mo, u, &err);
 	if (rc) {
@@ -237,13 +263,14 @@ int cmd_curve(int argc, char **argv)
 		goto cleanup;
 	}
 	src.path = u->source ? u->source : a.positional[0];
-	src.input = "return history";
+	src.input = cm ? "return history with gaps; sampled from its pairwise-complete covariances" : "return history";
 	src.m = u->m;
 	src.dropped = u->ndropped;
 	src.periods = u->t;
 	src.annualised = 1;
-	rc = finish(&o, &src, u, NULL, &mo, sizes, nsizes, u->periods_per_year);
+	rc = finish(&o, &src, cm ? NULL : u, cm, &mo, sizes, nsizes, u->periods_per_year);
 cleanup:
+	covmatrix_free(cm);
 	hc_free(sizes);
 	universe_free(u);
 	cli_args_release(&a);
