@@ -167,12 +167,15 @@ static int build_matrix(struct report *r, const char *path, const struct covmatr
 	t = report_add_table(r, "kept", "securities kept");
 	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
 	    report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT))
+	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT) ||
+	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
 		return HC_ENOMEM;
 	for (i = 0; i < cm->m; i++) {
 		if (report_table_add_row(t) || report_table_set_text(t, i, 0, cm->ids[i]))
 			return HC_ENOMEM;
 		report_table_set_real(t, i, 2, sqrt(cm->a[i * cm->m + i] * p));
+		if (annualised)
+			report_table_set_real(t, i, 3, p);
 	}
 	t = report_add_table(r, "dropped", "securities dropped");
 	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
