@@ -137,6 +137,77 @@ cmp -s "$T/c1" "$T/c2" || fail "--min-coverage 80% and 0.8 differ"
 expect 2 "holdcount describe: --min-coverage must be above 0 and at most 1" -- describe "$T/u.csv" --min-coverage 120%
 expect 2 "holdcount describe: --periods-per-year must be positive" -- describe "$T/u.csv" --periods-per-year -12
 
+# --covariance: numpy's sample covariance of u.csv, written as a matrix CSV
+# with 17 digits, must give the same exact curve as the returns themselves
+# (annualised by the same 12), and a sampled mean within 4 standard errors.
+"$PY" - "$T/u.csv" "$T/cov.csv" <<'PY'
+import sys, numpy as np
+x = np.genfromtxt(sys.argv[1], delimiter=",", skip_header=1)[:, 1:]
+ids = open(sys.argv[1]).readline().strip().split(",")[1:]
+a = np.cov(x, rowvar=False, ddof=1)
+with open(sys.argv[2], "w") as f:
+    f.write("id," + ",".join(ids) + "\n")
+    for i, name in enumerate(ids):
+        f.write(name + "," + ",".join("%.17g" % v for v in a[i]) + "\n")
+PY
+"$HC" curve "$T/u.csv" --sizes 1-5 --paths 0 --format csv >"$T/r.csv" || fail "curve (returns) exit $?"
+"$HC" curve --covariance "$T/cov.csv" --periods-per-year 12 --sizes 1-5 --paths 4000 --seed 9 -q --format csv >"$T/m.csv" \
+	|| fail "curve --covariance exit $?"
+"$PY" - "$T/r.csv" "$T/m.csv" <<'PY' || fail "curve --covariance disagrees with curve on the returns"
+import csv, sys
+r = list(csv.DictReader(open(sys.argv[1]))); m = list(csv.DictReader(open(sys.argv[2])))
+ok = len(r) == len(m) == 5
+for a, b in zip(r, m):
+    for k in ("expected_variance", "expected_sd", "variance_sd", "expected_tracking_error", "diversifiable_share"):
+        x, y = float(a[k]), float(b[k])
+        if abs(x - y) > 1e-12 * max(abs(x), 1e-300) and abs(x - y) > 1e-15: print(k, a["n"], x, y); ok = False
+    if int(b["n"]) < 5 and not abs(float(b["z_score"])) < 4: print("z", b["n"], b["z_score"]); ok = False
+    if float(b["periods_per_year"]) != 12: print("periods_per_year"); ok = False
+sys.exit(0 if ok else 1)
+PY
+"$HC" describe --covariance "$T/cov.csv" --format json >"$T/dc.json" || fail "describe --covariance exit $?"
+"$PY" - "$T/d.json" "$T/dc.json" <<'PY' || fail "describe --covariance disagrees with describe on the returns"
+import json, sys
+r = json.load(open(sys.argv[1])); m = json.load(open(sys.argv[2]))
+ok = m["securities"] == 5 and m["periods"] is None and m["periods_per_year"] is None
+# not annualised: the matrix's own per-period units, so 12 times smaller
+for k in ("average_variance", "average_covariance"):
+    if abs(m[k] * 12 - r[k]) > 1e-12 * abs(r[k]): print(k, m[k], r[k]); ok = False
+if abs(m["average_correlation"] - r["average_correlation"]) > 1e-12: print("correlation"); ok = False
+sys.exit(0 if ok else 1)
+PY
+# --missing pairwise with a gap left: the exact columns and the random
+# portfolios both come from the pairwise-complete covariances (numpy below,
+# pair by pair over common periods, divisor n_ij - 1).
+sed 's/^2021-03-31,0.0311,0.0087,-0.0145,/2021-03-31,0.0311,0.0087,,/' "$T/u.csv" >"$T/gap.csv"
+"$HC" curve "$T/gap.csv" --missing pairwise --sizes 1-4 --paths 20000 --seed 5 -q --format csv >"$T/g.csv" || fail "curve pairwise exit $?"
+"$PY" - "$T/gap.csv" "$T/g.csv" <<'PY' || fail "curve --missing pairwise against numpy"
+import csv, sys, numpy as np
+x = np.genfromtxt(sys.argv[1], delimiter=",", skip_header=1)[:, 1:]
+m = x.shape[1]; a = np.empty((m, m))
+for i in range(m):
+    for j in range(m):
+        k = ~np.isnan(x[:, i]) & ~np.isnan(x[:, j])
+        a[i, j] = np.cov(x[k, i], x[k, j], ddof=1)[0, 1]
+vbar = np.trace(a) / m; cbar = (a.sum() - np.trace(a)) / (m * (m - 1)); p = 12.0
+ok = True
+rows = list(csv.DictReader(open(sys.argv[2])))
+ok = len(rows) == 4
+for r in rows:
+    n = int(r["n"]); ev = (vbar / n + (1 - 1 / n) * cbar) * p
+    if abs(float(r["expected_variance"]) - ev) > 1e-12 * ev: print("E[var]", n, r["expected_variance"], ev); ok = False
+    if n < m and not abs(float(r["z_score"])) < 4: print("z", n, r["z_score"]); ok = False
+sys.exit(0 if ok else 1)
+PY
+
+# A matrix that no returns could have (correlations of +0.99, +0.99 and
+# -0.99 among three securities): some portfolio would have negative variance.
+printf 'id,AQ,BR,CT\nAQ,0.0025,0.00297,0.00347\nBR,0.00297,0.0036,-0.00416\nCT,0.00347,-0.00416,0.0049\n' >"$T/notpsd.csv"
+expect 3 "holdcount curve: $T/notpsd.csv: not a covariance matrix: it is not positive semi-definite" -- curve --covariance "$T/notpsd.csv"
+expect 2 "holdcount curve: --prices describes a return history and does not apply with --covariance" -- curve --covariance --prices "$T/cov.csv"
+expect 2 "holdcount describe: --missing describes a return history" -- describe --covariance --missing pairwise "$T/cov.csv"
+expect 2 "holdcount curve: size 6 is larger than the 5 securities kept" -- curve --covariance "$T/cov.csv" --sizes 6
+
 # Bad input (issue 2).  Each file differs from u.csv in one way.
 mk() { printf '%b' "$2" >"$T/$1"; }
 mk bad_cell.csv  'date,QX01,QX02\n2021-01-31,0.01,0.02\n2021-02-28,0.03,abc\n2021-03-31,0.02,0.01\n'

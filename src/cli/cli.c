@@ -535,7 +535,7 @@ static void roff_paragraph(FILE *fp, const char *s)
 static void roff_upper(FILE *fp, const char *s)
 {
 	for (; *s; s++)
-		fputc(*s == '-' ? '-' : (*s >= 'a' && *s <= 'z' ? *s - 'a' + 'A' : *s), fp);
+		fputc(*s >= 'a' && *s <= 'z' ? *s - 'a' + 'A' : *s, fp);
 }
 
 static void man_option(FILE *fp, const struct cli_option *op)

@@ -274,6 +274,18 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);
 
+/* Load a covariance-matrix CSV (--covariance): options that only describe
+ * a return history are refused (HC_EUSAGE), the loader's errors printed,
+ * and a matrix that is not positive semi-definite is HC_EDATA. */
+struct covmatrix;
+int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
+			struct covmatrix **out);
+
+/* *psd = 1 when cm is positive semi-definite up to rounding in a printed
+ * file (moves of the nearest PSD matrix within COVMATRIX_DEFAULT_SYMMETRY_TOL
+ * relative to sqrt(a_ii a_jj)).  Prints its own errors. */
+int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd);
+
 /* The holding counts: text (NULL = the default grid up to m) parsed and
  * checked against m securities (0 = unbounded).  Prints its error;
  * HC_EUSAGE names the size and the securities kept. Free *sizes with hc_free. */

@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
 #include "holdcount/memory.h"
 #include "holdcount/universe.h"
@@ -52,9 +53,6 @@ int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 	int rc;
 
 	*out = NULL;
-	if (cu->covariance)
-		return cli_usage_error(cmd, "--covariance: reading a covariance matrix is not built yet; "
-				       "give a return history");
 	rc = cli_universe_options(cmd, cu, &uo);
 	if (rc)
 		return rc;
@@ -91,4 +89,75 @@ int cli_add_scale(struct report *r, double periods_per_year, int annualised)
 		snprintf(text, sizeof text, "not annualised: figures are on the scale of the inputs");
 	}
 	return rc ? rc : report_add_text(r, "annualisation", "annualisation", text);
+}
+
+/* Options that describe a return history and mean nothing for a matrix. */
+static const char *const return_only_options[] = {
+	"prices", "log-returns", "percent", "missing", "min-coverage", "layout", "date-column",
+	"id-column", "value-column", "delimiter", "max-memory", NULL
+};
+
+/*
+ * cli_matrix_is_psd: a matrix whose eigenvalues are not all >= 0 gives some portfolio a
+ * negative variance, so it is no covariance matrix.  The test: repair a copy
+ * to the nearest positive semi-definite matrix (Higham, 1988, through
+ * covmatrix_repair_psd) and see how far it moved.  Moves within the
+ * loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are rounding in
+ * a printed file (a rank-deficient matrix printed to 9 digits) and pass.
+ */
+int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd)
+{
+	struct hc_error err;
+	size_t m = cm->m, i, j, bytes;
+	double *b, worst = 0.0;
+	int changed = 0, rc;
+
+	hc_error_clear(&err);
+	if (hc_mul_size(m * m, sizeof *b, &bytes) || !(b = hc_malloc(bytes))) {
+		hc_error(&err, HC_ENOMEM, "out of memory checking the covariance matrix");
+		return cli_fail(cmd, &err);
+	}
+	memcpy(b, cm->a, bytes);
+	rc = covmatrix_repair_psd(b, m, &changed, &err);
+	for (i = 0; rc == HC_OK && changed && i < m; i++)
+		for (j = 0; j < m; j++) {
+			double scale = sqrt(cm->a[i * m + i] * cm->a[j * m + j]);
+			double d = fabs(b[i * m + j] - cm->a[i * m + j]) / scale;
+			if (d > worst)
+				worst = d;
+		}
+	hc_free(b);
+	if (rc)
+		return cli_fail(cmd, &err);
+	*psd = worst <= COVMATRIX_DEFAULT_SYMMETRY_TOL;
+	return HC_OK;
+}
+
+int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
+			struct covmatrix **out)
+{
+	struct hc_error err;
+	size_t i;
+	int rc, psd = 0;
+
+	*out = NULL;
+	for (i = 0; return_only_options[i]; i++)
+		if (cli_given(a, return_only_options[i]))
+			return cli_usage_error(cmd, "--%s describes a return history and does not apply with --covariance",
+					       return_only_options[i]);
+	hc_error_clear(&err);
+	rc = covmatrix_load(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+	if (rc)
+		return cli_fail(cmd, &err);
+	rc = cli_matrix_is_psd(cmd, *out, &psd);
+	if (rc == HC_OK && !psd) {
+		hc_error(&err, HC_EDATA, "%s: not a covariance matrix: it is not positive semi-definite "
+			 "(some portfolio of these securities would have a negative variance)", path);
+		rc = cli_fail(cmd, &err);
+	}
+	if (rc) {
+		covmatrix_free(*out);
+		*out = NULL;
+	}
+	return rc;
 }

@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "cli.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
@@ -46,9 +47,10 @@ const struct cli_command cli_command_curve = {
 	1, 1, curve_groups
 };
 
-/* Random portfolios: fill the sampled columns of c. */
-static int sample(const struct curve_opts *o, const struct universe *u, struct curve *c,
-		  const size_t *sizes, size_t nsizes, struct hc_error *err)
+/* Random portfolios: fill the sampled columns of c, from the return
+ * series of u, or from the covariance matrix cm when u is NULL. */
+static int sample(const struct curve_opts *o, const struct universe *u, const struct covmatrix *cm,
+		  struct curve *c, const size_t *sizes, size_t nsizes, struct hc_error *err)
 {
 	struct sampler_options so;
 	struct sampler_result *res = NULL;
@@ -59,11 +61,14 @@ static int sample(const struct curve_opts *o, const struct universe *u, struct c
 	so.paths = o->sam.paths;
 	so.seed = o->sam.seed;
 	so.threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
-	so.periods_per_year = u->periods_per_year;
+	so.periods_per_year = c->periods_per_year;
 	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
-	rc = sampler_run(&res, u, sizes, nsizes, &so, err);
+	if (u)
+		rc = sampler_run(&res, u, sizes, nsizes, &so, err);
+	else
+		rc = sampler_run_matrix(&res, cm->a, cm->m, sizes, nsizes, &so, err);
 	cli_progress_finish(&prog);
 	if (rc == HC_OK)
 		rc = sampler_summarise(c, res, err);
@@ -157,17 +162,27 @@ int cli_curve_table(struct report *r, const struct curve *c, int annualised)
 	return HC_OK;
 }
 
-static int build(struct report *r, const struct curve_opts *o, const struct universe *u,
+/* What the curve was computed from: a return history or a matrix. */
+struct curve_source {
+	const char *path;
+	const char *input;          /* "return history" or "covariance matrix" */
+	size_t m, dropped, periods; /* periods 0: unknown (a matrix) */
+	int annualised;
+};
+
+static int build(struct report *r, const struct curve_opts *o, const struct curve_source *src,
 		 const struct moments *mo, const struct curve *c, const struct strata_curve *sc)
 {
 	char seed[32];
 
 	snprintf(seed, sizeof seed, "%llu", (unsigned long long)o->sam.seed);
-	if (report_add_text(r, "source", "source", u->source ? u->source : "") ||
-	    report_add_int(r, "securities", "securities kept", (long long)u->m) ||
-	    report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped) ||
-	    report_add_int(r, "periods", "periods", (long long)u->t) ||
-	    cli_add_scale(r, c->periods_per_year, 1) ||
+	if (report_add_text(r, "source", "source", src->path) ||
+	    report_add_text(r, "input", "input", src->input) ||
+	    report_add_int(r, "securities", "securities kept", (long long)src->m) ||
+	    report_add_int(r, "securities_dropped", "securities dropped", (long long)src->dropped) ||
+	    (src->periods ? report_add_int(r, "periods", "periods", (long long)src->periods)
+			  : report_add_none(r, "periods", "periods")) ||
+	    cli_add_scale(r, c->periods_per_year, src->annualised) ||
 	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
 			    c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
 	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(c->universe_variance),
@@ -181,19 +196,108 @@ static int build(struct report *r, const struct curve_opts *o, const struct univ
 				       "variance with the exact one in Monte Carlo standard errors"
 				     : "not sampled (--paths 0)"))
 		return HC_ENOMEM;
-	if (cli_curve_table(r, c, 1) || add_strata(r, o, sc))
+	if (cli_curve_table(r, c, src->annualised) || add_strata(r, o, sc))
 		return HC_ENOMEM;
 	return report_add_cautions(r);
+}
+
+/* Exact curve, optional sampling and the report: shared by both inputs. */
+static int finish(const struct curve_opts *o, const struct curve_source *src, const struct universe *u,
+		  const struct covmatrix *cm, const struct moments *mo, const size_t *sizes, size_t nsizes,
+		  double p, const struct strata_curve *sc)
+{
+	struct curve *c = NULL;
+	struct report *r = NULL;
+	struct hc_error err;
+	int rc;
+
+	hc_error_clear(&err);
+	rc = curve_exact(&c, mo, sizes, nsizes, p, &err);
+	if (rc == HC_OK && o->sam.paths > 0)
+		rc = sample(o, u, cm, c, sizes, nsizes, &err);
+	if (rc) {
+		rc = cli_fail("curve", &err);
+		goto cleanup;
+	}
+	r = report_alloc();
+	if (!r || build(r, o, src, mo, c, sc)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("curve", &err);
+		goto cleanup;
+	}
+	rc = cli_write_report("curve", &o->out, r);
+cleanup:
+	report_free(r);
+	curve_free(c);
+	return rc;
+}
+
+static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
+{
+	struct curve_source src = { a->positional[0], "covariance matrix", 0, 0, 0, 0 };
+	double p = 1.0;
+	struct covmatrix *cm = NULL;
+	struct moments mo;
+	struct hc_error err;
+	size_t *sizes = NULL, nsizes = 0;
+	int rc;
+
+	src.annualised = !isnan(o->uni.periods_per_year);
+	if (src.annualised) {
+		p = o->uni.periods_per_year;
+		if (!(p > 0.0))
+			return cli_usage_error("curve", "--periods-per-year must be positive, found %g", p);
+	}
+	rc = cli_load_covariance("curve", a, src.path, &cm);
+	if (rc)
+		return rc;
+	src.m = cm->m;
+	hc_error_clear(&err);
+	rc = cli_sizes("curve", o->sam.sizes, cm->m, &sizes, &nsizes);
+	if (rc == HC_OK) {
+		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+		if (rc) {
+			hc_error_prefix(&err, src.path);
+			rc = cli_fail("curve", &err);
+		}
+	}
+	if (rc == HC_OK)
+		rc = finish(o, &src, NULL, cm, &mo, sizes, nsizes, p, NULL);
+	hc_free(sizes);
+	covmatrix_free(cm);
+	return rc;
+}
+
+static int pairwise_matrix(const struct universe *u, const char *path, struct covmatrix **cm)
+{
+	struct hc_error err;
+	int rc, psd = 0;
+
+	hc_error_clear(&err);
+	rc = covmatrix_from_universe(u, cm, &err);
+	if (rc)
+		return cli_fail("curve", &err);
+	rc = cli_matrix_is_psd("curve", *cm, &psd);
+	if (rc == HC_OK && !psd) {
+		hc_error(&err, HC_EDATA, "%s: the pairwise-complete covariances are not positive semi-definite, "
+			 "so no random portfolio can be drawn from them; use --paths 0 for the exact curve alone", path);
+		rc = cli_fail("curve", &err);
+	}
+	if (rc) {
+		covmatrix_free(*cm);
+		*cm = NULL;
+	}
+	return rc;
 }
 
 int cmd_curve(int argc, char **argv)
 {
 	struct curve_opts o;
 	struct cli_args a;
+	struct curve_source src;
 	struct universe *u = NULL;
-	struct curve *c = NULL;
+	struct covmatrix *cm = NULL;
 	struct strata_curve *sc = NULL;
-	struct report *r = NULL;
 	struct moments mo;
 	struct hc_error err;
 	size_t *sizes = NULL, nsizes = 0;
@@ -208,26 +312,38 @@ int cmd_curve(int argc, char **argv)
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	hc_error_clear(&err);
+	if (o.uni.covariance && (o.strat.map || o.strat.per_stratum_max || o.strat.proportional)) {
+		rc = cli_usage_error("curve", "--strata draws from return series, not from a covariance matrix");
+		goto cleanup;
+	}
+	if (o.uni.covariance) {
+		rc = curve_matrix(&o, &a);
+		goto cleanup;
+	}
 	rc = cli_load_universe("curve", &o.uni, a.positional[0], &u);
 	if (rc)
 		goto cleanup;
 	rc = cli_sizes("curve", o.sam.sizes, u->m, &sizes, &nsizes);
 	if (rc)
 		goto cleanup;
+	/* With gaps left (--missing pairwise) no portfolio has a complete return
+	 * series, so random portfolios are drawn from the same pairwise-complete
+	 * covariances the exact columns use, when they form a valid matrix. */
 	if (o.sam.paths > 0 && u->has_missing) {
-		rc = cli_usage_error("curve", "random portfolios need complete data, and '%s' has gaps under "
-				     "--missing pairwise; use --paths 0 for the exact curve alone", a.positional[0]);
-		goto cleanup;
+		rc = pairwise_matrix(u, a.positional[0], &cm);
+		if (rc)
+			goto cleanup;
 	}
 	if (o.strat.map && o.sam.paths == 0) {
 		rc = cli_usage_error("curve", "--strata draws random portfolios: it needs --paths above 0");
 		goto cleanup;
 	}
+	if (o.strat.map && u->has_missing) {
+		rc = cli_usage_error("curve", "--strata draws from complete return series, and '%s' has gaps "
+				     "under --missing pairwise", a.positional[0]);
+		goto cleanup;
+	}
 	rc = moments_from_universe(&mo, u, &err);
-	if (rc == HC_OK)
-		rc = curve_exact(&c, &mo, sizes, nsizes, u->periods_per_year, &err);
-	if (rc == HC_OK && o.sam.paths > 0)
-		rc = sample(&o, u, c, sizes, nsizes, &err);
 	if (rc) {
 		rc = cli_fail("curve", &err);
 		goto cleanup;
@@ -235,16 +351,15 @@ int cmd_curve(int argc, char **argv)
 	if ((o.strat.map || o.strat.per_stratum_max || o.strat.proportional) &&
 	    (rc = sample_strata(&o, u, sizes, nsizes, &sc, &err)))
 		goto cleanup;
-	r = report_alloc();
-	if (!r || build(r, &o, u, &mo, c, sc)) {
-		hc_error(&err, HC_ENOMEM, "out of memory building the report");
-		rc = cli_fail("curve", &err);
-		goto cleanup;
-	}
-	rc = cli_write_report("curve", &o.out, r);
+	src.path = u->source ? u->source : a.positional[0];
+	src.input = cm ? "return history with gaps; sampled from its pairwise-complete covariances" : "return history";
+	src.m = u->m;
+	src.dropped = u->ndropped;
+	src.periods = u->t;
+	src.annualised = 1;
+	rc = finish(&o, &src, cm ? NULL : u, cm, &mo, sizes, nsizes, u->periods_per_year, sc);
 cleanup:
-	report_free(r);
-	curve_free(c);
+	covmatrix_free(cm);
 	strata_curve_free(sc);
 	cli_strata_release(&o.strat);
 	hc_free(sizes);

@@ -12,6 +12,7 @@
 #include <string.h>
 
 #include "cli.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/universe.h"
@@ -135,6 +136,90 @@ static int build(struct report *r, const struct universe *u, const struct moment
 	return report_add_cautions(r);
 }
 
+/* From a covariance matrix: no periods or dates; its own units unless
+ * --periods-per-year says the entries are per period. */
+static int build_matrix(struct report *r, const char *path, const struct covmatrix *cm,
+			const struct moments *mo, double p, int annualised)
+{
+	struct report_table *t;
+	size_t i;
+
+	if (report_add_text(r, "source", "source", path) ||
+	    report_add_text(r, "input", "input", "covariance matrix") ||
+	    report_add_int(r, "securities", "securities kept", (long long)cm->m) ||
+	    report_add_int(r, "securities_read", "securities read", (long long)cm->m) ||
+	    report_add_int(r, "securities_dropped", "securities dropped", 0) ||
+	    report_add_none(r, "periods", "periods") ||
+	    report_add_none(r, "first_date", "first date") ||
+	    report_add_none(r, "last_date", "last date") ||
+	    cli_add_scale(r, p, annualised) ||
+	    report_add_bool(r, "periods_per_year_detected", "detected from the dates", 0) ||
+	    report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
+	    report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p,
+			    REPORT_STYLE_PLAIN) ||
+	    report_add_real(r, "average_correlation", "average correlation",
+			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
+			    mo->average_covariance >= 0 ? sqrt(mo->average_covariance * p) : NAN, REPORT_STYLE_PERCENT) ||
+	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(mo->universe_variance * p),
+			    REPORT_STYLE_PERCENT))
+		return HC_ENOMEM;
+	t = report_add_table(r, "kept", "securities kept");
+	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT) ||
+	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (i = 0; i < cm->m; i++) {
+		if (report_table_add_row(t) || report_table_set_text(t, i, 0, cm->ids[i]))
+			return HC_ENOMEM;
+		report_table_set_real(t, i, 2, sqrt(cm->a[i * cm->m + i] * p));
+		if (annualised)
+			report_table_set_real(t, i, 3, p);
+	}
+	t = report_add_table(r, "dropped", "securities dropped");
+	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	return report_add_cautions(r);
+}
+
+static int describe_matrix(const struct describe_opts *o, const struct cli_args *a)
+{
+	const char *path = a->positional[0];
+	int annualised = !isnan(o->uni.periods_per_year);
+	double p = annualised ? o->uni.periods_per_year : 1.0;
+	struct covmatrix *cm = NULL;
+	struct report *r = NULL;
+	struct moments mo;
+	struct hc_error err;
+	int rc;
+
+	hc_error_clear(&err);
+	if (annualised && !(p > 0.0))
+		return cli_usage_error("describe", "--periods-per-year must be positive, found %g", p);
+	rc = cli_load_covariance("describe", a, path, &cm);
+	if (rc)
+		return rc;
+	rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+	if (rc) {
+		hc_error_prefix(&err, path);
+		rc = cli_fail("describe", &err);
+		goto cleanup;
+	}
+	r = report_alloc();
+	if (!r || build_matrix(r, path, cm, &mo, p, annualised)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("describe", &err);
+		goto cleanup;
+	}
+	rc = cli_write_report("describe", &o->out, r);
+cleanup:
+	report_free(r);
+	covmatrix_free(cm);
+	return rc;
+}
+
 int cmd_describe(int argc, char **argv)
 {
 	struct describe_opts o;
@@ -152,6 +237,10 @@ int cmd_describe(int argc, char **argv)
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	hc_error_clear(&err);
+	if (o.uni.covariance) {
+		rc = describe_matrix(&o, &a);
+		goto cleanup;
+	}
 	rc = cli_load_universe("describe", &o.uni, a.positional[0], &u);
 	if (rc)
 		goto cleanup;
