@@ -16,7 +16,7 @@ trap 'rm -rf "$work"' EXIT
 data="$work/u1000x240.csv"
 
 if [ -f "$here/gen_universe.py" ]; then
-	"$py" "$here/gen_universe.py" --securities 1000 --periods 240 --seed 7 --output "$data"
+	"$py" "$here/gen_universe.py" --securities 1000 --periods 240 --seed 7 "$data"
 else
 	# A one-factor model (common practice), seeded; ISO month-end dates.
 	"$py" - "$data" <<'PY'

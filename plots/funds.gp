@@ -1,11 +1,12 @@
 # Audited funds on the risk curve: each fund's own standard deviation drawn
 # at its number of holdings and at its effective number (1/HHI).
 set title "@TITLE@\n@BASIS@"
-set xlabel "holding count N (log scale): fund's positions (square) and effective holdings 1/HHI (circle)"
+set xlabel "holding count N (log scale): fund's positions (square) and effective holdings 1/HHI (diamond)"
 set ylabel "standard deviation (% a year)"
 set logscale x
 set xrange [1:@XMAX@]
 set xtics (@XTICS@)
-set yrange [0:*]
-set format y "%.0f%%"
 floor = @FLOOR@
+set key top right
+set yrange [0.8 * floor:*]
+set format y "%.0f%%"

@@ -28,6 +28,10 @@
 /* Bytes read from a file at a time. */
 #define CSVREAD_CHUNK (64 * 1024)
 
+/* Most of the first line held back to choose the delimiter: a ';' header
+ * longer than this (over 100 000 ids of 9 bytes) is decided on its start. */
+#define CSVREAD_SNIFF_MAX (1024 * 1024)
+
 /* Longest number text csvread_parse_number hands to strtod. */
 #define CSVREAD_NUMBER_MAX 400
 
@@ -103,14 +107,11 @@ static void on_record(int c, void *data)
 	r->nfields = 0;
 }
 
-/* Hand s[0..len) to libcsv and translate its failures into positions. */
-static int feed(struct reader *r, const char *s, size_t len)
+static int feed_piece(struct reader *r, const char *s, size_t len)
 {
 	size_t used;
 	int e;
 
-	if (len == 0 || r->status != HC_OK)
-		return r->status;
 	used = csv_parse(&r->parser, s, len, on_field, on_record, r);
 	if (r->status != HC_OK)
 		return r->status;
@@ -130,6 +131,27 @@ static int feed(struct reader *r, const char *s, size_t len)
 			"%s:%zu:%zu: field longer than %zu bytes",
 			r->name, r->line, r->nfields + 1, r->max_field);
 	return HC_OK;
+}
+
+/* Hand s[0..len) to libcsv and translate its failures into positions.
+ * At most max_field + 1 bytes go in per call, so an overlong field is caught
+ * when libcsv's buffer first passes the limit rather than after it has grown
+ * (in small steps, one realloc each) to the whole field: a 10 MB line would
+ * otherwise cost 10 MB of buffer, and quadratic copying where realloc cannot
+ * grow in place (under valgrind, for one). */
+static int feed(struct reader *r, const char *s, size_t len)
+{
+	size_t step = r->max_field + 1;
+
+	while (len > 0 && r->status == HC_OK) {
+		size_t n = len < step ? len : step;
+
+		if (feed_piece(r, s, n) != HC_OK)
+			break;
+		s += n;
+		len -= n;
+	}
+	return r->status;
 }
 
 static int is_terminator(const struct reader *r, unsigned char c)
@@ -243,14 +265,21 @@ static int reader_take(struct reader *r, const char *s, size_t len)
 	}
 	memcpy(r->pending + r->npending, s, len);
 	r->npending = need;
+	/* Hold back no more than the decision needs: a ',' settles it, a
+	 * given delimiter needs only the byte-order mark, and the sample is
+	 * bounded so that a file with no line break is not held whole. */
+	if (r->delim_fixed)
+		return r->npending >= 3 ? start_body(r) : HC_OK;
 	for (; r->scan_pos < r->npending; r->scan_pos++) {
 		char c = r->pending[r->scan_pos];
 
 		if (c == '"')
 			r->pending_quote = !r->pending_quote;
-		else if (c == '\n' && !r->pending_quote)
+		else if ((c == '\n' || c == ',') && !r->pending_quote)
 			return start_body(r);
 	}
+	if (r->npending >= CSVREAD_SNIFF_MAX)
+		return start_body(r);
 	return HC_OK;
 }
 

@@ -52,10 +52,11 @@ static const struct {
 	{ "share", "Diversifiable share of variance by holding count", 1u << PLOTS_DATA_EXACT },
 	{ "tracking", "Expected tracking error by holding count", 1u << PLOTS_DATA_EXACT },
 	{ "funds", "Audited funds on the risk curve", 1u << PLOTS_DATA_EXACT | 1u << PLOTS_DATA_FUNDS },
-	{ "rolling", "Holding count needed through time", 0 },
+	{ "rolling", "Holding count needed through time", 1u << PLOTS_DATA_ROLLING },
 };
 
-static const char *const data_names[PLOTS_NDATA] = { "exact.dat", "sampled.dat", "rules.dat", "funds.dat" };
+static const char *const data_names[PLOTS_NDATA] = { "exact.dat", "sampled.dat", "rules.dat", "funds.dat",
+						      "rolling.dat" };
 static const char *const format_names[] = { "png", "svg", "pdf" };
 
 const char *plots_name(int kind)
@@ -109,6 +110,18 @@ static size_t funds_plottable(const struct plots_input *in)
 	return n;
 }
 
+/* Windows with figures in a rolling result. */
+static size_t rolling_plottable(const struct plots_input *in)
+{
+	size_t j, n = 0;
+
+	if (!in->rolling || !in->rolling->rules)
+		return 0;
+	for (j = 0; j < in->rolling->nwindows; j++)
+		n += in->rolling->windows[j].status == HC_OK;
+	return n;
+}
+
 int plots_available(int kind, const struct plots_input *in)
 {
 	if (!in || !in->exact || in->exact->npoints == 0)
@@ -122,8 +135,10 @@ int plots_available(int kind, const struct plots_input *in)
 		return in->exact->m > 0;
 	case PLOTS_FUNDS:
 		return funds_plottable(in) > 0;
+	case PLOTS_ROLLING:
+		return rolling_plottable(in) > 0;
 	default:
-		return 0;   /* PLOTS_ROLLING waits for rolling.h */
+		return 0;
 	}
 }
 
@@ -288,6 +303,39 @@ static int write_funds(FILE *fp, const struct plots_input *in)
 	return HC_OK;
 }
 
+/* One row per window: its last date, then each evaluated exact rule's
+ * count in enum order ("-" where unmet or the window has no figures). */
+static int write_rolling(FILE *fp, const struct plots_input *in)
+{
+	const struct rolling_result *r = in->rolling;
+	char date[11];
+	size_t j, q;
+	int id;
+
+	fprintf(fp, "# holdcount plot data: the count each exact rule recommends in rolling windows of %zu "
+		"periods every %zu\n# window_end", r->window, r->step);
+	for (id = 0; id < RULES_COUNT; id++)
+		if (r->rules & RULES_FLAG(id))
+			fprintf(fp, "  %s", rules_name(id));
+	fputc('\n', fp);
+	for (j = 0; j < r->nwindows; j++) {
+		const struct rolling_window *w = &r->windows[j];
+		universe_format_date(w->end_date, date);
+		fputs(date, fp);
+		for (q = 0, id = 0; id < RULES_COUNT; id++) {
+			if (!(r->rules & RULES_FLAG(id)))
+				continue;
+			if (w->status == HC_OK && q < w->nrules && w->rules[q].defined && w->rules[q].met)
+				fprintf(fp, " %zu", w->rules[q].count);
+			else
+				fputs(" -", fp);
+			q++;
+		}
+		fputc('\n', fp);
+	}
+	return HC_OK;
+}
+
 int plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err)
 {
 	int rc;
@@ -310,6 +358,11 @@ int plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc
 		if (!funds_plottable(in))
 			return hc_error(err, HC_EUSAGE, "'%s' needs audited funds with known risk", data_names[data]);
 		rc = write_funds(fp, in);
+		break;
+	case PLOTS_DATA_ROLLING:
+		if (!rolling_plottable(in))
+			return hc_error(err, HC_EUSAGE, "'%s' needs rolling windows with figures", data_names[data]);
+		rc = write_rolling(fp, in);
 		break;
 	default:
 		return hc_error(err, HC_EUSAGE, "no plot data file number %d", data);
@@ -447,6 +500,24 @@ static void tracking_plot(FILE *fp, const struct plots_input *in)
 	fputc('\n', fp);
 }
 
+/* One line per evaluated exact rule, from column 2 of rolling.dat on. */
+static void rolling_plot(FILE *fp, const struct plots_input *in)
+{
+	static const int styles[] = { 1, 2, 5, 6 };
+	size_t col = 2, q = 0;
+	int id;
+
+	fputs("plot ", fp);
+	for (id = 0; id < RULES_COUNT; id++) {
+		if (!(in->rolling->rules & RULES_FLAG(id)))
+			continue;
+		fprintf(fp, "%s'rolling.dat' using 1:%zu with linespoints ls %d title \"%s rule\"",
+			q ? ", \\\n     " : "", col++, styles[q % 4], rules_name(id));
+		q++;
+	}
+	fputc('\n', fp);
+}
+
 static void plot_command(FILE *fp, int kind, const struct plots_input *in, size_t nmarks)
 {
 	switch (kind) {
@@ -469,6 +540,9 @@ static void plot_command(FILE *fp, int kind, const struct plots_input *in, size_
 		      "     'funds.dat' using 1:3 with points ls 6 title \"fund at its number of holdings\", \\\n"
 		      "     'funds.dat' using 2:3 with points ls 7 title \"fund at its effective holdings (1/HHI)\", \\\n"
 		      "     'funds.dat' using 1:3:4 with labels left offset character 1,0 font \",9\" notitle\n", fp);
+		break;
+	case PLOTS_ROLLING:
+		rolling_plot(fp, in);
 		break;
 	}
 }
@@ -550,9 +624,16 @@ const char *plots_caption(int kind, const struct plots_input *in, char *buf, siz
 		       "tracking-error rule's.";
 	case PLOTS_FUNDS:
 		return "Audited funds: each fund's own sd from the universe's history, drawn at its number of "
-		       "holdings (square) and at its effective number 1/HHI (circle), against the curve of "
+		       "holdings (square) and at its effective number 1/HHI (diamond), against the curve of "
 		       "random equal-weight portfolios. A fund above the curve at its effective count is riskier "
 		       "than its concentration alone explains.";
+	case PLOTS_ROLLING:
+		snprintf(buf, size, "Holding count needed through time: the count each exact rule recommends "
+			 "from the averages of each window of %zu periods (one every %zu), plotted at the window's "
+			 "last date; gaps are windows where the rule is not met or the window has too few "
+			 "securities. A rising line means the same diversification now takes more holdings "
+			 "(Campbell, Lettau, Malkiel & Xu, 2001).", in->rolling->window, in->rolling->step);
+		return buf;
 	default:
 		return "Holding count needed through time.";
 	}

@@ -36,6 +36,7 @@
 #include <omp.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/strata.h"
 
 /* Defaults named once. */
 #define SAMPLER_DEFAULT_PATHS 10000
@@ -497,8 +498,6 @@ static int run_paths(struct run *r, struct hc_error *err)
 
 static int check_options(const struct sampler_options *opt, struct hc_error *err)
 {
-	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return hc_error(err, HC_EUSAGE, "stratified sampling is not available yet");
 	if (opt->paths == 0)
 		return hc_error(err, HC_EUSAGE, "no paths to sample");
 	if (opt->want_returns && !(opt->periods_per_year > 0 && isfinite(opt->periods_per_year)))
@@ -581,6 +580,9 @@ int sampler_run(struct sampler_result **out, const struct universe *u,
 	int rc;
 
 	*out = NULL;
+	/* Stratified draws: strata.c (issue 6). */
+	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
+		return strata_run(out, u, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (u->has_missing)
@@ -670,6 +672,8 @@ int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
 	int rc;
 
 	*out = NULL;
+	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
+		return strata_run_matrix(out, a, m, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (opt->want_returns)

@@ -16,7 +16,7 @@
 #              writes at run time (large ones are not committed), or
 #              gen:missing for a path that does not exist, or - for none
 #   command    holdcount's arguments; {} is the file, {out} an output path in
-#              the scratch directory
+#              the scratch directory, {dir} the tests/bad-inputs directory
 #   status     expected exit status
 #   message    expected start of the message, {} again standing for the
 #              file; "-" checks nothing (successful runs)
@@ -108,6 +108,7 @@ run_row() {
 		case $word in
 		*'{out}'*) out=$SCRATCH/out-$lineno.txt; rm -f "$out"; word=${word//'{out}'/$out} ;;
 		esac
+		word=${word//'{dir}'/$DIR}
 		args+=("${word//'{}'/$path}")
 	done
 	checked=$((checked + 1))
@@ -162,7 +163,8 @@ done <"$DIR/catalogue.tsv"
 # file is described (to stdout and through --output); every open of it that
 # strace sees must be O_RDONLY, and its bytes and mtime must not change.
 # (The tests may run as root, who can write a 0444 file, hence strace.)
-if command_available describe && ! "$HOLDCOUNT" describe "$DIR/valid-small.csv" 2>&1 >/dev/null | grep -q 'not built yet'; then
+probe=$("$HOLDCOUNT" describe "$DIR/valid-small.csv" 2>&1 >/dev/null)
+if command_available describe && [ "${probe#*not built yet}" = "$probe" ]; then
 	ro=$SCRATCH/read-only.csv
 	cp "$DIR/valid-small.csv" "$ro" && chmod 0444 "$ro" && touch -d '2021-06-30 12:00:00' "$ro"
 	before=$(stat -c '%Y %s' "$ro")$(sha256sum <"$ro")

@@ -70,6 +70,13 @@ for i, name in enumerate(["QX01", "QX02", "QX03", "QX04", "QX05"]):
 sys.exit(0 if ok else 1)
 PY
 
+# describe's CSV is its first table, the securities kept (report.h contract).
+"$HC" describe "$T/u.csv" --format csv >"$T/d.csv" || fail "describe csv exit $?"
+[ "$(head -n1 "$T/d.csv")" = "id,periods,sd,periods_per_year" ] || fail "describe csv header: $(head -n1 "$T/d.csv")"
+[ "$(wc -l <"$T/d.csv")" = 6 ] || fail "describe csv rows: $(wc -l <"$T/d.csv")"
+[ "$(sed -n 2p "$T/d.csv" | cut -d, -f1,2,4)" = "QX01,8,12" ] || fail "describe csv first row: $(sed -n 2p "$T/d.csv")"
+"$HC" describe "$T/u.csv" | grep -q '^annualisation: *annualised: variances times 12' || fail "describe text lacks the scale"
+
 # curve: exact columns against numpy, CSV header exactly the contract.
 "$HC" curve "$T/u.csv" --sizes 1,2,3,5 --paths 4000 --seed 2385 --format csv --quiet >"$T/c.csv" || fail "curve exit $?"
 head -n1 "$T/c.csv" | grep -q '^n,expected_variance,expected_sd,variance_sd,expected_tracking_error,diversifiable_share,sampled_mean_variance,sampled_variance_se,sampled_mean_sd,sd_p05,sd_p50,sd_p95,z_score' \
@@ -117,6 +124,18 @@ cmp -s "$T/t1.csv" "$T/t3.csv" || fail "HOLDCOUNT_THREADS=2 differs"
 "$HC" curve "$T/u.csv" --sizes 2,4 --paths 200 --format json -q | "$PY" -c 'import json,sys; d=json.load(sys.stdin); sys.exit(0 if d["periods_per_year"]==12 and len(d["curve"])==2 and d["cautions"] else 1)' \
 	|| fail "curve json"
 "$HC" curve "$T/u.csv" --sizes 2 --paths 0 | grep -q '^annualisation: *annualised: variances times 12' || fail "curve text lacks the scale"
+
+# Option values at their limits: the largest seed, a percent and a decimal
+# for the same fraction.
+"$HC" curve "$T/u.csv" --sizes 2 --paths 50 --seed 18446744073709551615 -q --format json >"$T/s.json" || fail "largest seed exit $?"
+"$PY" -c 'import json,sys; sys.exit(0 if json.load(open(sys.argv[1]))["seed"]=="18446744073709551615" else 1)' "$T/s.json" || fail "largest seed not echoed"
+expect 2 "holdcount curve: option '--seed' expects a whole number from 0 to 18446744073709551615, found '18446744073709551616'" -- curve "$T/u.csv" --seed 18446744073709551616
+expect 2 "holdcount curve: option '--paths' expects a whole number" -- curve "$T/u.csv" --paths 99999999999999999999999
+"$HC" describe "$T/u.csv" --missing pairwise --min-coverage 80% --format csv >"$T/c1" || fail "--min-coverage 80% exit $?"
+"$HC" describe "$T/u.csv" --missing pairwise --min-coverage 0.8 --format csv >"$T/c2" || fail "--min-coverage 0.8 exit $?"
+cmp -s "$T/c1" "$T/c2" || fail "--min-coverage 80% and 0.8 differ"
+expect 2 "holdcount describe: --min-coverage must be above 0 and at most 1" -- describe "$T/u.csv" --min-coverage 120%
+expect 2 "holdcount describe: --periods-per-year must be positive" -- describe "$T/u.csv" --periods-per-year -12
 
 # Bad input (issue 2).  Each file differs from u.csv in one way.
 mk() { printf '%b' "$2" >"$T/$1"; }

@@ -146,5 +146,35 @@ else
 	fail "data/demo-universe.csv is missing"
 fi
 
+# 10. A covariance matrix (--covariance): the exact rules from numpy's
+#     covariance of the generated file give the same counts as the returns.
+"$PYTHON" - "$tmp/u.csv" "$tmp/cov.csv" <<'PY'
+import sys, numpy as np
+x = np.loadtxt(sys.argv[1], delimiter=",", skiprows=1, usecols=range(1, 41))
+a = np.cov(x, rowvar=False)
+ids = ["Q%03d" % i for i in range(40)]
+with open(sys.argv[2], "w") as fp:
+    fp.write("id," + ",".join(ids) + "\n")
+    for i in range(40):
+        fp.write(ids[i] + "," + ",".join(repr(float(v)) for v in a[i]) + "\n")
+PY
+"$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --periods-per-year 12 --format csv >"$tmp/cov.out"
+"$HOLDCOUNT" enough "$tmp/u.csv" --rules exact --bootstrap 0 --format csv >"$tmp/ret.out"
+[ "$(cut -d, -f1,3 "$tmp/cov.out")" = "$(cut -d, -f1,3 "$tmp/ret.out")" ] \
+	|| fail "covariance and returns disagree: $(cat "$tmp/cov.out") vs $(cat "$tmp/ret.out")"
+expect 2 "need return data" -- "$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --rules band
+
+# 11. The sampled rules' interval and the stationary bootstrap run and report
+#     every replicate (small, to stay fast).
+"$HOLDCOUNT" enough "$tmp/u.csv" --bootstrap 8 --bootstrap-sampled --bootstrap-paths 60 --paths 200 \
+	--bootstrap-kind stationary --block-length 3 --format json >"$tmp/bs.json"
+"$PYTHON" - "$tmp/bs.json" <<'PY' || fail "sampled bootstrap: $(cat "$tmp/bs.json")"
+import sys, json
+j = json.load(open(sys.argv[1]))
+assert j["bootstrap"] == "stationary" and j["block_length"] == 3 and j["replicates"] == 8, j
+for r in j["rules"]:
+    assert r["replicates"] == 8, r
+PY
+
 [ "$fails" = 0 ] || { echo "$fails failure(s)" >&2; exit 1; }
 echo "cli_enough: all checks passed"

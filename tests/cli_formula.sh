@@ -107,5 +107,10 @@ expect 2 "holdcount formula: option '--average-sd' expects a number" -- formula 
 [ "$(head -c 2 "$T/f.csv")" = "n," ] || fail "formula -o content"
 ls -A "$T" | grep -q '\.tmp-' && fail "temporary file left behind"
 
+# A full device: exit 4 (HC_EIO) with one message, not a silent success.
+"$HC" formula --average-variance 0.04 --average-covariance 0.01 --format csv >/dev/full 2>"$T/err"; rc=$?
+[ "$rc" = 4 ] || fail "writing to /dev/full: exit $rc, expected 4"
+grep -q "^holdcount formula: cannot write to standard output" "$T/err" || fail "/dev/full message: $(cat "$T/err")"
+
 [ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
 echo "cli_formula: all checks passed"

@@ -155,6 +155,28 @@ static void test_csvread_detects_semicolon(void **state)
 	assert_int_equal(run(&g, both, sizeof both - 1, '\t', &used, &err), HC_EUSAGE);
 }
 
+/* A given delimiter still drops the byte-order mark; a file with no line
+ * break and no ',' is not held back whole: it fails on its first field. */
+static void test_csvread_fixed_delimiter_and_long_first_line(void **state)
+{
+	static const char bom[] = "\xEF\xBB\xBF" "a;b\n1;2\n";
+	struct got g;
+	struct hc_error err;
+	size_t n = 3 * 1024 * 1024;
+	char *big = malloc(n), used = 0;
+
+	assert_int_equal(run(&g, bom, sizeof bom - 1, ';', &used, &err), HC_OK);
+	assert_string_equal(g.text[0], "a");
+	assert_int_equal(g.nf, 4);
+	assert_int_equal(run(&g, "ab", 2, ';', &used, &err), HC_OK);   /* shorter than a BOM */
+	assert_string_equal(g.text[0], "ab");
+	assert_non_null(big);
+	memset(big, 'x', n);
+	assert_int_equal(run(&g, big, n, 0, NULL, &err), HC_EDATA);
+	assert_string_equal(err.message, "t.csv:1:1: field longer than 4096 bytes");
+	free(big);
+}
+
 static void test_csvread_no_final_newline(void **state)
 {
 	static const char data[] = "a,b\n1,2";
@@ -490,6 +512,7 @@ int main(int argc, char **argv)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_csvread_positions_and_quoting),
 		cmocka_unit_test(test_csvread_detects_semicolon),
+		cmocka_unit_test(test_csvread_fixed_delimiter_and_long_first_line),
 		cmocka_unit_test(test_csvread_no_final_newline),
 		cmocka_unit_test(test_csvread_empty_file),
 		cmocka_unit_test(test_csvread_nul_byte),

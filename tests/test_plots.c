@@ -71,7 +71,7 @@ static FILE *open_in(const char *name)
 static void test_plots_exact_data_follows_the_closed_form(void **state)
 {
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented" };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented", NULL };
 	char *buf = NULL, *line;
 	size_t len = 0, rows = 0, n;
 	double sd, share, te;
@@ -98,14 +98,14 @@ static void test_plots_exact_data_follows_the_closed_form(void **state)
 static void test_plots_formats_and_availability(void **state)
 {
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
 
 	(void)state;
 	assert_int_equal(plots_parse_format("svg"), PLOTS_SVG);
 	assert_int_equal(plots_parse_format("gif"), -1);
 	assert_true(plots_available(PLOTS_RISK, &in));
 	assert_false(plots_available(PLOTS_FUNDS, &in));   /* no audit */
-	assert_false(plots_available(PLOTS_ROLLING, &in)); /* waits for rolling.h */
+	assert_false(plots_available(PLOTS_ROLLING, &in)); /* no rolling result given */
 	assert_int_equal(plots_write_script(stdout, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_EUSAGE);
 	curve_free(c);
 }
@@ -134,7 +134,7 @@ static void test_plots_risk_renders_a_png_of_the_stated_size(void **state)
 {
 	struct curve *c = make_curve();
 	struct rule_result rules[2];
-	struct plots_input in = { c, NULL, rules, 2, 0.02, NULL, "invented" };
+	struct plots_input in = { c, NULL, rules, 2, 0.02, NULL, "invented", NULL };
 	char gp[4200], png[4200];
 	unsigned char head[24];
 	struct hc_error err;
@@ -199,7 +199,7 @@ static void test_plots_script_allocation_failure(void **state)
 {
 	struct curve *c = make_curve();
 	struct rule_result rule;
-	struct plots_input in = { c, NULL, &rule, 1, 0.02, NULL, NULL };
+	struct plots_input in = { c, NULL, &rule, 1, 0.02, NULL, NULL, NULL };
 	struct hc_error err;
 	char *buf = NULL;
 	size_t len = 0;

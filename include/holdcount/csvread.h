@@ -21,7 +21,7 @@
 #define CSVREAD_DEFAULT_MAX_FIELD 4096
 
 struct csvread_options {
-	char delimiter;       /* ',' or ';'; 0 = detect: ';' when the first line has ';' outside quotes and no ',' */
+	char delimiter;       /* ',' or ';'; 0 = detect: ';' when the first line (its first MiB) has ';' outside quotes and no ',' */
 	size_t max_field;     /* longest field accepted, bytes; 0 = CSVREAD_DEFAULT_MAX_FIELD */
 };
 

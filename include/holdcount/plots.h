@@ -23,6 +23,7 @@
 #include "holdcount/audit.h"
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
+#include "holdcount/rolling.h"
 #include "holdcount/rules.h"
 
 enum plots_kind {
@@ -31,7 +32,7 @@ enum plots_kind {
 	PLOTS_SHARE = 2,       /* diversifiable share of variance by count */
 	PLOTS_TRACKING = 3,    /* expected tracking error by count, budget line */
 	PLOTS_FUNDS = 4,       /* audited funds on the risk curve */
-	PLOTS_ROLLING = 5,     /* count needed through time (hook: needs rolling.h) */
+	PLOTS_ROLLING = 5,     /* count needed through time, per rolling window */
 	PLOTS_NKINDS = 6
 };
 
@@ -40,7 +41,8 @@ enum plots_data {
 	PLOTS_DATA_SAMPLED = 1, /* sampled.dat: n, mean sd, 5% and 95% quantiles */
 	PLOTS_DATA_RULES = 2,   /* rules.dat: count, sd at count, label height, label */
 	PLOTS_DATA_FUNDS = 3,   /* funds.dat: holdings, effective holdings, sd, fund */
-	PLOTS_NDATA = 4
+	PLOTS_DATA_ROLLING = 4, /* rolling.dat: window end date, each exact rule's count */
+	PLOTS_NDATA = 5
 };
 
 enum plots_format { PLOTS_PNG = 0, PLOTS_SVG = 1, PLOTS_PDF = 2 };
@@ -58,6 +60,7 @@ struct plots_input {
 	double te_budget;               /* annualised decimal; NaN = no budget line */
 	const struct audit_result *audit; /* NULL = no funds plot */
 	const char *universe_name;      /* shown in titles; NULL = none */
+	const struct rolling_result *rolling; /* NULL = no rolling plot */
 };
 
 /* The template text of plots/NAME.gp, or NULL (defined in the generated
@@ -73,7 +76,7 @@ const char *plots_format_name(int format); /* "png", "svg", "pdf" */
 int plots_parse_format(const char *s);
 
 /* 1 when in holds what plot kind needs (funds: an audit with some fund's
- * risk known; rolling: never yet), else 0. */
+ * risk known; rolling: a rolling result with figures in some window), else 0. */
 int plots_available(int kind, const struct plots_input *in);
 /* Bit d set when plot kind reads data file d. */
 unsigned plots_data_used(int kind);

@@ -59,7 +59,7 @@ enum rules_id {
 
 /* Sampled rules sample sizes 1..K for K = RULES_SAMPLED_FIRST_K, then 2K,
  * 4K, ... up to M, stopping once every selected sampled rule is met. */
-#define RULES_SAMPLED_FIRST_K 64
+#define RULES_SAMPLED_FIRST_K 256
 #define RULES_SAMPLED_GROWTH 2
 
 #define RULES_TEXT_MAX 160
@@ -159,10 +159,10 @@ int rules_shortfall(const struct rules_config *cfg,
 /*
  * Band and shortfall (those selected in cfg) by sampling u with so: sizes
  * 1..K, K growing as RULES_SAMPLED_FIRST_K x RULES_SAMPLED_GROWTH^j up to
- * M, until every selected sampled rule is met.  A path's first n members do
- * not depend on K (a partial Fisher-Yates shuffle makes the same first
- * draws), so the smallest count found within 1..K is the one a run over
- * 1..M would find, at a fraction of the cost when counts are small.
+ * M, until every selected sampled rule is met.  Each stage is a valid
+ * sample of random portfolios; the sampler builds sizes by a route that
+ * depends on the set of sizes asked for, so a staged run and a full-grid run
+ * may draw different portfolios and agree within sampling noise only.
  * cbar per period (the band's floor); so->want_returns is set as needed.
  * *largest (may be NULL) gets the last K sampled.  res holds room for 2;
  * *nres gets how many were filled (band first).

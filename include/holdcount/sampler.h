@@ -60,8 +60,11 @@ struct sampler_result {
  * period (divisor T-1).  annual_return, when opt->want_returns, is that
  * portfolio's compound annualised return, rebalanced to equal weights each
  * period: prod(1 + r_t)^(P/T) - 1 with P = opt->periods_per_year.
- * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, stratified draws
- * asked for: "stratified sampling is not available yet"), HC_EDATA (fewer
+ * With opt->strata or opt->stratify set, the draws are stratified and
+ * strata_run (strata.h) does the work; r->feasible marks the sizes no
+ * allocation meets.
+ * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, strata without a
+ * mode or with a cap of 0), HC_EDATA (fewer
  * than 2 securities or periods), HC_ENOMEM, HC_EINTERRUPT (progress
  * callback asked to stop).  *out is NULL on error. */
 int sampler_run(struct sampler_result **out, const struct universe *u,

@@ -718,6 +718,27 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
 	return HC_EUSAGE;
 }
 
+/* Standard output cannot be taken back, so the whole rendering is made in
+ * memory first and written only when it succeeded: a failure half-way
+ * (out of memory in a writer) prints nothing but the message. */
+static int write_stdout(const struct report_writer *w, const struct report *r, struct hc_error *err)
+{
+	char *buf = NULL;
+	size_t len = 0;
+	FILE *mem = open_memstream(&buf, &len);
+	int rc;
+
+	if (!mem)
+		return hc_error(err, HC_ENOMEM, "out of memory rendering the output");
+	rc = w->write(mem, r, err);
+	if (fclose(mem) != 0 && rc == HC_OK)
+		rc = hc_error(err, HC_ENOMEM, "out of memory rendering the output");
+	if (rc == HC_OK && (fwrite(buf, 1, len, stdout) != len || fflush(stdout) != 0))
+		rc = hc_error(err, HC_EIO, "cannot write to standard output: %s", strerror(errno));
+	free(buf);
+	return rc;
+}
+
 int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r)
 {
 	const struct report_writer *w = report_writer_find(format_words[o->format]);
@@ -726,8 +747,12 @@ int cli_write_report(const char *cmd, const struct cli_output *o, const struct r
 	int rc;
 
 	hc_error_clear(&err);
-	if (!w)
-		return hc_error(&err, HC_EINTERNAL, "no writer for format %d", o->format), cli_fail(cmd, &err);
+	if (!w) {
+		hc_error(&err, HC_EINTERNAL, "no writer for format %d", o->format);
+		return cli_fail(cmd, &err);
+	}
+	if (!o->output || strcmp(o->output, "-") == 0)
+		return write_stdout(w, r, &err) ? cli_fail(cmd, &err) : HC_OK;
 	rc = outfile_open(&of, o->output, &err);
 	if (rc)
 		return cli_fail(cmd, &err);

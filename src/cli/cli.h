@@ -262,6 +262,7 @@ void cli_install_signal_handlers(void);
 
 struct universe;
 struct universe_options;
+struct strata;
 
 /* The loader's options from the universe group.  HC_EUSAGE (printed) for
  * contradictions such as --log-returns without --prices. */
@@ -286,6 +287,35 @@ int cli_add_scale(struct report *r, double periods_per_year, int annualised);
  * filled when annualised) added to r.  Defined in cmd_curve.c. */
 struct curve;
 int cli_curve_table(struct report *r, const struct curve *c, int annualised);
+
+/* ---- stratified draws (cli_strata.c) -------------------------------------- */
+
+/* --strata FILE, --strata-id-column NAME, --strata-column NAME,
+ * --per-stratum-max K, --proportional: random portfolios spread across the
+ * labels of a sector map (strata.h). */
+struct sampler_options;
+struct cli_strata {
+	const char *map;           /* NULL = unconstrained draws */
+	const char *id_column, *label_column;
+	size_t per_stratum_max;    /* 0 = no cap */
+	int proportional;
+	/* filled by cli_strata_apply */
+	size_t *stratum_of;
+	char **labels;
+	size_t nlabels, unmapped;
+	struct strata *strata;
+};
+extern const struct cli_group cli_group_strata;
+void cli_strata_init(struct cli_strata *s);
+/* Load the map for u and point so's strata fields at it; nothing when no
+ * --strata was given (returns HC_OK).  Prints its error; returns the exit
+ * status (HC_EUSAGE for a cap or --proportional without --strata, both
+ * at once, or neither with --strata). */
+int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct universe *u,
+		     struct sampler_options *so);
+/* Fields stating the stratification (strata, per_stratum_max, ...). */
+int cli_strata_fields(struct report *r, const struct cli_strata *s);
+void cli_strata_release(struct cli_strata *s);
 
 /* ---- commands -------------------------------------------------------------- */
 

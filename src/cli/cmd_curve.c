@@ -13,18 +13,21 @@
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/sampler.h"
+#include "holdcount/strata.h"
 #include "holdcount/universe.h"
 
 struct curve_opts {
 	struct cli_sampling sam;
 	struct cli_universe uni;
 	struct cli_output out;
+	struct cli_strata strat;
 };
 
 static const struct cli_group_use curve_groups[] = {
 	{ &cli_group_sampling, offsetof(struct curve_opts, sam) },
 	{ &cli_group_universe, offsetof(struct curve_opts, uni) },
 	{ &cli_group_output, offsetof(struct curve_opts, out) },
+	{ &cli_group_strata, offsetof(struct curve_opts, strat) },
 	{ NULL, 0 }
 };
 
@@ -37,7 +40,9 @@ const struct cli_command cli_command_curve = {
 	"tracking error against the equal-weight universe and the diversifiable share; then, from "
 	"K random equal-weight portfolios per count, the mean variance with its Monte Carlo standard "
 	"error, the mean standard deviation, its 5%, 50% and 95% quantiles, and the z-score of the "
-	"sampled mean against the exact one. Figures are annualised by the periods per year.",
+	"sampled mean against the exact one. With --strata, the same for portfolios spread across "
+	"strata (--proportional, or at most --per-stratum-max K in any stratum), in stratified_* "
+	"columns beside the unconstrained ones. Figures are annualised by the periods per year.",
 	1, 1, curve_groups
 };
 
@@ -70,6 +75,72 @@ static int sample(const struct curve_opts *o, const struct universe *u, struct c
 	return rc;
 }
 
+/* Stratified draws (strata.h) with the same paths and seed; the exact
+ * column only for the fixed (proportional) allocation. */
+static int sample_strata(struct curve_opts *o, const struct universe *u, const size_t *sizes,
+			 size_t nsizes, struct strata_curve **sc, struct hc_error *err)
+{
+	struct sampler_options so;
+	struct sampler_result *res = NULL;
+	struct strata_moments *sm = NULL;
+	struct cli_progress prog;
+	int rc;
+
+	sampler_options_init(&so);
+	so.paths = o->sam.paths;
+	so.seed = o->sam.seed;
+	so.threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
+	so.periods_per_year = u->periods_per_year;
+	if ((rc = cli_strata_apply("curve", &o->strat, u, &so)))
+		return rc;
+	cli_progress_init(&prog, "stratified sampling", "paths", o->out.quiet);
+	so.progress = cli_progress_update;
+	so.progress_ctx = &prog;
+	rc = sampler_run(&res, u, sizes, nsizes, &so, err);
+	cli_progress_finish(&prog);
+	if (rc == HC_OK && o->strat.proportional)
+		rc = strata_moments_from_universe(&sm, u, o->strat.strata, err);
+	if (rc == HC_OK)
+		rc = strata_curve_alloc(sc, res, o->strat.strata, sm, so.stratify, so.per_stratum_max,
+					u->periods_per_year, err);
+	strata_moments_free(sm);
+	sampler_result_free(res);
+	return rc ? cli_fail("curve", err) : HC_OK;
+}
+
+/* The stratified columns beside the curve's, and what they mean. */
+static int add_strata(struct report *r, const struct curve_opts *o, const struct strata_curve *sc)
+{
+	char text[240];
+	size_t j, top = 0, any_out = 0;
+
+	if (cli_strata_fields(r, &o->strat))
+		return HC_ENOMEM;
+	if (!sc)
+		return HC_OK;
+	if (strata_report_columns(sc, r->tables[r->ntables - 1]))
+		return HC_ENOMEM;
+	for (j = 0; j < sc->npoints; j++) {
+		if (sc->points[j].feasible)
+			top = sc->points[j].n > top ? sc->points[j].n : top;
+		else
+			any_out = 1;
+	}
+	if (any_out) {
+		snprintf(text, sizeof text, "stratified: no portfolio of more than %zu holdings has at most %zu "
+			 "in every stratum; those counts are left out of the stratified columns",
+			 top, sc->per_stratum_max);
+		if (report_add_note(r, text))
+			return HC_ENOMEM;
+	}
+	snprintf(text, sizeof text, "stratified: %s; its z compares the sampled mean with the exact "
+		 "stratified expectation%s", sc->mode == SAMPLER_STRATA_PROPORTIONAL
+		 ? "the exact column is the expected variance of the fixed allocation"
+		 : "the cap draws the allocation at random, so there is no exact column",
+		 sc->mode == SAMPLER_STRATA_PROPORTIONAL ? "" : " (none here)");
+	return report_add_note(r, text) ? HC_ENOMEM : HC_OK;
+}
+
 /* The curve table, with the scale appended as a column so that the CSV,
  * which carries only this table, still says what it is annualised by. */
 int cli_curve_table(struct report *r, const struct curve *c, int annualised)
@@ -87,7 +158,7 @@ int cli_curve_table(struct report *r, const struct curve *c, int annualised)
 }
 
 static int build(struct report *r, const struct curve_opts *o, const struct universe *u,
-		 const struct moments *mo, const struct curve *c)
+		 const struct moments *mo, const struct curve *c, const struct strata_curve *sc)
 {
 	char seed[32];
 
@@ -110,7 +181,7 @@ static int build(struct report *r, const struct curve_opts *o, const struct univ
 				       "variance with the exact one in Monte Carlo standard errors"
 				     : "not sampled (--paths 0)"))
 		return HC_ENOMEM;
-	if (cli_curve_table(r, c, 1))
+	if (cli_curve_table(r, c, 1) || add_strata(r, o, sc))
 		return HC_ENOMEM;
 	return report_add_cautions(r);
 }
@@ -121,6 +192,7 @@ int cmd_curve(int argc, char **argv)
 	struct cli_args a;
 	struct universe *u = NULL;
 	struct curve *c = NULL;
+	struct strata_curve *sc = NULL;
 	struct report *r = NULL;
 	struct moments mo;
 	struct hc_error err;
@@ -131,6 +203,7 @@ int cmd_curve(int argc, char **argv)
 	cli_sampling_init(&o.sam);
 	cli_universe_init(&o.uni);
 	cli_output_init(&o.out);
+	cli_strata_init(&o.strat);
 	rc = cli_parse(&cli_command_curve, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
@@ -146,6 +219,10 @@ int cmd_curve(int argc, char **argv)
 				     "--missing pairwise; use --paths 0 for the exact curve alone", a.positional[0]);
 		goto cleanup;
 	}
+	if (o.strat.map && o.sam.paths == 0) {
+		rc = cli_usage_error("curve", "--strata draws random portfolios: it needs --paths above 0");
+		goto cleanup;
+	}
 	rc = moments_from_universe(&mo, u, &err);
 	if (rc == HC_OK)
 		rc = curve_exact(&c, &mo, sizes, nsizes, u->periods_per_year, &err);
@@ -155,8 +232,11 @@ int cmd_curve(int argc, char **argv)
 		rc = cli_fail("curve", &err);
 		goto cleanup;
 	}
+	if ((o.strat.map || o.strat.per_stratum_max || o.strat.proportional) &&
+	    (rc = sample_strata(&o, u, sizes, nsizes, &sc, &err)))
+		goto cleanup;
 	r = report_alloc();
-	if (!r || build(r, &o, u, &mo, c)) {
+	if (!r || build(r, &o, u, &mo, c, sc)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("curve", &err);
 		goto cleanup;
@@ -165,6 +245,8 @@ int cmd_curve(int argc, char **argv)
 cleanup:
 	report_free(r);
 	curve_free(c);
+	strata_curve_free(sc);
+	cli_strata_release(&o.strat);
 	hc_free(sizes);
 	universe_free(u);
 	cli_args_release(&a);

@@ -68,7 +68,8 @@ static int add_kept(struct report *r, const struct universe *u)
 
 	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
 	    report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT))
+	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT) ||
+	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
 		return HC_ENOMEM;
 	for (i = 0; i < u->m; i++) {
 		if (report_table_add_row(t) || report_table_set_text(t, i, 0, u->ids[i]))
@@ -76,6 +77,8 @@ static int add_kept(struct report *r, const struct universe *u)
 		security_sd(u->x + i * u->t, u->t, u->periods_per_year, &nobs, &sd);
 		report_table_set_int(t, i, 1, (long long)nobs);
 		report_table_set_real(t, i, 2, sd);
+		/* The CSV carries only this table: it must say its scale too. */
+		report_table_set_real(t, i, 3, u->periods_per_year);
 	}
 	return HC_OK;
 }

@@ -13,10 +13,12 @@
 
 #include "cli.h"
 #include "holdcount/bootstrap.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/rules.h"
 #include "holdcount/sampler.h"
+#include "holdcount/strata.h"
 #include "holdcount/universe.h"
 
 #define ENOUGH_DEFAULT_BOOTSTRAP_PATHS 1000
@@ -38,6 +40,7 @@ struct enough_opts {
 	struct cli_summary sum;
 	struct cli_universe uni;
 	struct cli_output out;
+	struct cli_strata strat;
 };
 
 static const char *const kind_choices[] = { "block", "stationary", NULL };
@@ -85,6 +88,7 @@ static const struct cli_group_use enough_groups[] = {
 	{ &cli_group_summary, OFF(sum) },
 	{ &cli_group_universe, OFF(uni) },
 	{ &cli_group_output, OFF(out) },
+	{ &cli_group_strata, OFF(strat) },
 	{ NULL, 0 }
 };
 
@@ -96,7 +100,9 @@ const struct cli_command cli_command_enough = {
 	"reached at that count, and a 90% interval for the count from a bootstrap of the periods. "
 	"Without UNIVERSE, give summary statistics (--average-variance and --average-covariance, or "
 	"--average-sd and --average-correlation, and optionally --securities) for the exact rules. "
-	"See docs/enough.md for each rule and its source.",
+	"With --strata, the sampled rules (band, shortfall) draw portfolios spread across strata "
+	"(--proportional, or at most --per-stratum-max K in any stratum); the exact rules are "
+	"unchanged. See docs/enough.md for each rule and its source.",
 	0, 1, enough_groups
 };
 
@@ -156,12 +162,14 @@ static int config_from(const struct enough_opts *o, const struct cli_args *a,
 
 	rules_config_init(cfg);
 	hc_error_clear(&err);
-	if (!have_data)
+	if (!have_data || o->uni.covariance)
 		cfg->selected = RULES_EXACT_MASK;
 	if (o->rules && rules_parse_list(o->rules, &cfg->selected, &err))
 		return cli_fail("enough", &err);
 	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error("enough", "the band and shortfall rules need a universe file, not summary statistics");
+	if (o->uni.covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
+		return cli_usage_error("enough", "--bootstrap needs return data: a covariance matrix has no periods to resample");
 	if (cli_given(a, "near-floor"))
 		cfg->near_floor_x = o->near_floor;
 	if (o->marginal && parse_step(o->marginal, &cfg->marginal_eps))
@@ -225,67 +233,6 @@ static int data_summary_given(const struct cli_args *a)
 }
 
 
-/* ---- loading and scale ----------------------------------------------------- */
-
-/* Until the shared loading helpers reach this branch, the universe group's
- * options are mapped here (the same mapping as the other commands use). */
-static int enough_load(const struct cli_universe *cu, const struct cli_args *a, const char *path,
-		       struct universe **out)
-{
-	struct universe_options uo;
-	struct hc_error err;
-	int rc;
-
-	*out = NULL;
-	universe_options_init(&uo);
-	if (cu->log_returns && !cu->prices)
-		return cli_usage_error("enough", "--log-returns needs --prices (log returns are computed from prices)");
-	uo.values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
-	uo.layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
-	uo.percent = cu->percent;
-	uo.missing = cu->missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE : UNIVERSE_MISSING_COMPLETE;
-	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
-		return cli_usage_error("enough", "--min-coverage must be above 0 and at most 1 (or 100%%), found %g",
-				       cu->min_coverage);
-	uo.min_coverage = cu->min_coverage;
-	if (cli_given(a, "periods-per-year") && !(cu->periods_per_year > 0.0))
-		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", cu->periods_per_year);
-	uo.periods_per_year = cli_given(a, "periods-per-year") ? cu->periods_per_year : 0.0;
-	if (cu->delimiter) {
-		if (strcmp(cu->delimiter, ",") && strcmp(cu->delimiter, ";"))
-			return cli_usage_error("enough", "--delimiter must be ',' or ';', found '%s'", cu->delimiter);
-		uo.delimiter = cu->delimiter[0];
-	}
-	uo.date_column = cu->date_column;
-	uo.id_column = cu->id_column;
-	uo.value_column = cu->value_column;
-	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, &uo.max_bytes))
-		return cli_usage_error("enough", "--max-memory %zu MiB does not fit in this machine's address space",
-				       cu->max_memory_mib);
-	hc_error_clear(&err);
-	rc = universe_load(out, path, &uo, &err);
-	return rc ? cli_fail("enough", &err) : HC_OK;
-}
-
-/* The fields that state the scale. */
-static int enough_scale(struct report *r, double periods_per_year, int annualised)
-{
-	char text[200];
-	int rc;
-
-	if (annualised) {
-		rc = report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
-		snprintf(text, sizeof text,
-			 "annualised: variances times %g, standard deviations times sqrt(%g); rule thresholds are yearly",
-			 periods_per_year, periods_per_year);
-	} else {
-		rc = report_add_none(r, "periods_per_year", "periods per year");
-		snprintf(text, sizeof text,
-			 "not annualised: figures and rule thresholds are on the scale of the inputs");
-	}
-	return rc ? rc : report_add_text(r, "annualisation", "annualisation", text);
-}
-
 /* ---- the report ----------------------------------------------------------- */
 
 struct enough_run {
@@ -321,7 +268,7 @@ static int add_fields(struct report *r, const struct enough_run *e)
 		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
 	else
 		bad |= report_add_text(r, "securities", "securities", "unbounded");
-	bad |= enough_scale(r, p, e->annualised);
+	bad |= cli_add_scale(r, p, e->annualised);
 	bad |= report_add_real(r, "average_variance", "average variance", e->vbar * p, REPORT_STYLE_SCI);
 	bad |= report_add_real(r, "average_covariance", "average covariance", e->cbar * p, REPORT_STYLE_SCI);
 	bad |= report_add_real(r, "floor_sd", "floor sd", floor_var > 0 ? sqrt(floor_var) : NAN, sd_style);
@@ -360,6 +307,9 @@ static int add_notes(struct report *r, const struct enough_run *e)
 		bad |= report_add_note(r, text);
 	} else if (e->no_interval)
 		bad |= report_add_note(r, e->no_interval);
+	if (!e->annualised)
+		bad |= report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
+				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
 	bad |= report_add_cautions(r);
 	return bad ? HC_ENOMEM : HC_OK;
 }
@@ -400,7 +350,7 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 /* The band and shortfall rules by sampling (rules_sampled stops at the
  * smallest stage of sizes that settles them); their results replace the
  * "needs sampled portfolios" placeholders that rules_evaluate left. */
-static int run_sampled(const struct enough_opts *o, const struct universe *u,
+static int run_sampled(struct enough_opts *o, const struct universe *u,
 		       const struct rules_config *cfg, double cbar, struct enough_run *e,
 		       struct rule_result *res, size_t nres)
 {
@@ -417,6 +367,8 @@ static int run_sampled(const struct enough_opts *o, const struct universe *u,
 	so.seed = o->smp.seed;
 	so.threads = (int)o->smp.threads;
 	so.periods_per_year = u->periods_per_year;
+	if ((rc = cli_strata_apply("enough", &o->strat, u, &so)))
+		return rc;
 	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
@@ -428,11 +380,24 @@ static int run_sampled(const struct enough_opts *o, const struct universe *u,
 		for (j = 0; j < nres; j++)
 			if (res[j].rule == sr[k].rule)
 				res[j] = sr[k];
+	if (o->strat.per_stratum_max) {
+		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
+		size_t top = 0;
+
+		for (k = 0; k < o->strat.strata->nstrata; k++)
+			top += o->strat.strata->count[k] < o->strat.per_stratum_max
+			     ? o->strat.strata->count[k] : o->strat.per_stratum_max;
+		for (j = 0; j < nres; j++)
+			if ((RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK) && res[j].defined && !res[j].met)
+				snprintf(res[j].note, sizeof res[j].note,
+					 "not met up to %zu holdings, the most with at most %zu in every stratum",
+					 top, o->strat.per_stratum_max);
+	}
 	e->paths = o->smp.paths;
 	return HC_OK;
 }
 
-static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
+static int run_bootstrap(struct enough_opts *o, const struct universe *u,
 			 const struct rules_config *cfg, struct enough_run *e,
 			 struct rule_result *res, size_t nres)
 {
@@ -474,6 +439,11 @@ static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
 		so.paths = o->bootstrap_paths;
 		so.threads = (int)o->smp.threads;
 		so.periods_per_year = u->periods_per_year;
+		if ((rc = cli_strata_apply("enough", &o->strat, u, &so))) {
+			bootstrap_result_free(br);
+			bootstrap_base_free(b);
+			return rc;
+		}
 		cli_progress_init(&prog, "sampled bootstrap", "replicates", o->out.quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
@@ -486,7 +456,45 @@ static int run_bootstrap(const struct enough_opts *o, const struct universe *u,
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
-static int run_data(const struct enough_opts *o, const struct cli_args *a,
+/* A covariance matrix (--covariance): the exact rules from its averages;
+ * no periods, so no sampled rules and no interval. */
+static int run_matrix(const struct enough_opts *o, const struct cli_args *a, const char *path,
+		      const struct rules_config *cfg, struct enough_run *e,
+		      struct rule_result *res, size_t *nres)
+{
+	struct covmatrix *cm = NULL;
+	struct rules_input in;
+	struct moments mo;
+	struct hc_error err;
+	int rc;
+
+	hc_error_clear(&err);
+	if (cfg->selected & RULES_SAMPLED_MASK)
+		return cli_usage_error("enough", "the band and shortfall rules need return data, not a covariance matrix");
+	e->annualised = cli_given(a, "periods-per-year");
+	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
+	if (!(e->ppy > 0))
+		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
+	rc = covmatrix_load(&cm, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+	if (rc == HC_OK)
+		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+	covmatrix_free(cm);
+	if (rc)
+		return cli_fail("enough", &err);
+	e->vbar = mo.average_variance;
+	e->cbar = mo.average_covariance;
+	e->m = mo.m;
+	e->no_interval = "no interval: a covariance matrix has no periods to resample";
+	memset(&in, 0, sizeof in);
+	in.vbar = e->vbar;
+	in.cbar = e->cbar;
+	in.m = e->m;
+	in.periods_per_year = e->ppy;
+	rc = rules_evaluate(cfg, &in, res, nres, &err);
+	return rc ? cli_fail("enough", &err) : HC_OK;
+}
+
+static int run_data(struct enough_opts *o, const struct cli_args *a,
 		    const char *path, const struct rules_config *cfg,
 		    struct universe **up, struct enough_run *e,
 		    struct rule_result *res, size_t *nres)
@@ -497,13 +505,15 @@ static int run_data(const struct enough_opts *o, const struct cli_args *a,
 	struct hc_error err;
 	int rc;
 
-	if (o->uni.covariance)
-		return cli_usage_error("enough", "--covariance is not supported by enough yet: give the return history");
 	if (o->smp.sizes)
 		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
+	if ((o->strat.map || o->strat.per_stratum_max || o->strat.proportional) &&
+	    !(cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error("enough", "--strata applies to the sampled rules (band, shortfall), "
+				       "and none is chosen");
 	if (o->smp.paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error("enough", "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
-	rc = enough_load(&o->uni, a, path, up);
+	rc = cli_load_universe("enough", &o->uni, path, up);
 	if (rc)
 		return rc;
 	u = *up;
@@ -565,6 +575,7 @@ int cmd_enough(int argc, char **argv)
 	cli_summary_init(&o.sum);
 	cli_universe_init(&o.uni);
 	cli_output_init(&o.out);
+	cli_strata_init(&o.strat);
 	rc = cli_parse(&cli_command_enough, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
@@ -577,7 +588,9 @@ int cmd_enough(int argc, char **argv)
 	rc = config_from(&o, &a, have_data, &cfg);
 	if (rc)
 		goto cleanup;
-	if (have_data)
+	if (have_data && o.uni.covariance)
+		rc = run_matrix(&o, &a, a.positional[0], &cfg, &e, res, &nres);
+	else if (have_data)
 		rc = run_data(&o, &a, a.positional[0], &cfg, &u, &e, res, &nres);
 	else
 		rc = run_summary(&o, &a, &cfg, &e, res, &nres);
@@ -585,7 +598,8 @@ int cmd_enough(int argc, char **argv)
 		goto cleanup;
 	hc_error_clear(&err);
 	r = report_alloc();
-	if (!r || add_fields(r, &e) || rules_report(r, res, nres, &err) || add_notes(r, &e)) {
+	if (!r || add_fields(r, &e) || (have_data && cli_strata_fields(r, &o.strat)) ||
+	    rules_report(r, res, nres, &err) || add_notes(r, &e)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("enough", &err);
 		goto cleanup;
@@ -593,6 +607,7 @@ int cmd_enough(int argc, char **argv)
 	rc = cli_write_report("enough", &o.out, r);
 cleanup:
 	report_free(r);
+	cli_strata_release(&o.strat);
 	universe_free(u);
 	cli_args_release(&a);
 	return rc;

@@ -37,6 +37,7 @@
 #include "holdcount/plots.h"
 #include "holdcount/reportdir.h"
 #include "holdcount/rules.h"
+#include "holdcount/rolling.h"
 #include "holdcount/sampler.h"
 #include "holdcount/universe.h"
 
@@ -55,6 +56,7 @@ struct report_opts {
 	const char *holdings, *sectors;
 	size_t bootstrap;
 	double te_budget;
+	size_t window, step;       /* rolling windows; window 0 = none */
 	struct cli_sampling sam;
 	struct cli_universe uni;
 };
@@ -75,6 +77,9 @@ static const struct cli_option report_own[] = {
 	{ "bootstrap", 0, CLI_COUNT, RO(bootstrap), "B",
 	  "bootstrap replicates for the rules' intervals; 0 = none", NULL, "1000" },
 	{ "te-budget", 0, CLI_FRACTION, RO(te_budget), "B", "tracking-error budget a year (2% or 0.02)", NULL, "2%" },
+	{ "window", 0, CLI_COUNT, RO(window), "W",
+	  "also the exact rules' counts in rolling windows of W periods (rolling.csv and its plot)", NULL, "none" },
+	{ "step", 0, CLI_COUNT, RO(step), "S", "with --window: periods between two windows' starts", NULL, "12" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 static const struct cli_group report_group = { "report options", report_own };
@@ -93,7 +98,8 @@ const struct cli_command cli_command_report = {
 	"its 90% bootstrap interval, the audited funds, the plots and the cautions), summary.json (every "
 	"figure of the summary), curve.csv, enough.csv and audit.csv (what 'holdcount curve', 'enough' and "
 	"'audit' print with --format csv and the same options), gnuplot scripts with their data (*.gp, "
-	"*.dat) and, when gnuplot is on the PATH, their renders. The folder is built under a temporary "
+	"*.dat) and, when gnuplot is on the PATH, their renders; with --window W, rolling.csv (what "
+	"'holdcount rolling --window W' prints) and the plot of the count needed through time. The folder is built under a temporary "
 	"name and renamed into place, so an interrupted run leaves the previous report or none. With no "
 	"UNIVERSE it runs on the bundled invented demo universe, its sectors and funds.",
 	0, 1, report_groups
@@ -116,6 +122,9 @@ struct run {
 	struct holdings_labels *labels;
 	struct audit_result *audit;
 	struct report *rep_universe, *rep_curve, *rep_enough, *rep_audit, *rep_plots;
+	struct universe *every_security;   /* --window: the file with no security dropped */
+	struct rolling_result *rolling;
+	struct report *rep_rolling;
 	int rendered;
 	char gnuplot[PATH_MAX];
 };
@@ -127,6 +136,9 @@ static void run_release(struct run *r)
 	report_free(r->rep_enough);
 	report_free(r->rep_audit);
 	report_free(r->rep_plots);
+	report_free(r->rep_rolling);
+	rolling_result_free(r->rolling);
+	universe_free(r->every_security);
 	audit_result_free(r->audit);
 	holdings_labels_free(r->labels);
 	holdings_free(r->h);
@@ -182,7 +194,7 @@ static void install_signals(void)
 
 /* The loader's options from the universe group (NaN or 0 periods a year:
  * detect from the dates). */
-static int load_universe(const struct report_opts *o, const char *path, struct universe **out)
+static int load_universe(const struct report_opts *o, const char *path, struct universe **out, int keep_all)
 {
 	const struct cli_universe *cu = &o->uni;
 	struct universe_options uo;
@@ -194,6 +206,8 @@ static int load_universe(const struct report_opts *o, const char *path, struct u
 	uo.values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
 	uo.layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
 	uo.percent = cu->percent;
+	if (keep_all)
+		uo.missing = UNIVERSE_MISSING_KEEP;   /* each rolling window applies the policy */
 	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
 		return cli_usage_error("report", "--min-coverage must be above 0 and at most 1, found %g", cu->min_coverage);
 	uo.min_coverage = cu->min_coverage;
@@ -346,6 +360,27 @@ static int compute_audit(struct run *r, struct hc_error *err)
 	return rc;
 }
 
+/* The exact rules, with the report's parameters, in every window; no
+ * bootstrap per window (that is `holdcount rolling --bootstrap`). */
+static int compute_rolling(struct run *r, struct hc_error *err)
+{
+	struct rolling_options ro;
+	int rc;
+
+	rolling_options_init(&ro);
+	ro.window = r->o->window;
+	ro.step = r->o->step;
+	ro.rules = r->cfg;
+	ro.rules.selected &= RULES_EXACT_MASK;
+	if ((rc = rolling_run(&r->rolling, r->every_security, &ro, err)) != HC_OK)
+		return rc;
+	r->rep_rolling = report_alloc();
+	if (!r->rep_rolling || rolling_report(r->rep_rolling, r->rolling, err) ||
+	    report_add_cautions(r->rep_rolling))
+		return hc_error(err, HC_ENOMEM, "out of memory building the rolling report");
+	return HC_OK;
+}
+
 static int compute(struct run *r, struct hc_error *err)
 {
 	int rc;
@@ -359,6 +394,10 @@ static int compute(struct run *r, struct hc_error *err)
 	if (r->holdings_path) {
 		stage(r->o, "audit of the funds");
 		rc = compute_audit(r, err);
+	}
+	if (rc == HC_OK && r->o->window) {
+		stage(r->o, "rolling windows");
+		rc = compute_rolling(r, err);
 	}
 	return rc;
 }
@@ -642,6 +681,7 @@ static int write_json(struct reportdir *rd, struct run *r, struct hc_error *err)
 	rc = rc ? rc : json_member(fp, "curve", r->rep_curve, 0, err);
 	rc = rc ? rc : json_member(fp, "enough", r->rep_enough, 0, err);
 	rc = rc ? rc : json_member(fp, "audit", r->rep_audit, 0, err);
+	rc = rc ? rc : json_member(fp, "rolling", r->rep_rolling, 0, err);
 	rc = rc ? rc : json_member(fp, "plots", r->rep_plots, 1, err);
 	fputs("}\n", fp);
 	if (rc != HC_OK) {
@@ -1003,6 +1043,7 @@ static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *er
 	pin.nrules = r->nrules;
 	pin.te_budget = r->cfg.te_budget;
 	pin.audit = r->audit;
+	pin.rolling = r->rolling;
 	pin.universe_name = r->u->source ? (strrchr(r->u->source, '/') ? strrchr(r->u->source, '/') + 1 : r->u->source)
 					 : NULL;
 	r->rendered = plots_find_gnuplot(NULL, r->gnuplot, sizeof r->gnuplot);
@@ -1017,6 +1058,8 @@ static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *er
 		rc = write_report_file(rd, "enough.csv", r->rep_enough, report_writer_csv, err);
 	if (rc == HC_OK && r->rep_audit)
 		rc = write_report_file(rd, "audit.csv", r->rep_audit, report_writer_csv, err);
+	if (rc == HC_OK && r->rep_rolling)
+		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, report_writer_csv, err);
 	if (rc == HC_OK)
 		rc = write_json(rd, r, err);
 	if (rc == HC_OK)
@@ -1047,7 +1090,8 @@ static int check_options(const struct report_opts *o, const struct cli_args *a)
 		return cli_usage_error("report", "--covariance does not apply: the report needs a return history");
 	if (!(o->te_budget > 0))
 		return cli_usage_error("report", "--te-budget must be above 0, found %g", o->te_budget);
-	(void)a;
+	if (cli_given(a, "step") && !o->window)
+		return cli_usage_error("report", "--step needs --window W (the rolling windows' length)");
 	return HC_OK;
 }
 
@@ -1068,6 +1112,7 @@ int cmd_report(int argc, char **argv)
 	cli_universe_init(&o.uni);
 	o.bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
 	o.te_budget = RULES_DEFAULT_TE_BUDGET;
+	o.step = 12;
 	rc = cli_parse(&cli_command_report, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
@@ -1104,7 +1149,8 @@ int cmd_report(int argc, char **argv)
 			stale == 1 ? "" : "s");
 	snprintf(line, sizeof line, "loading '%s'", r.universe_path);
 	stage(&o, line);
-	if ((rc = load_universe(&o, r.universe_path, &r.u)) != HC_OK)
+	if ((rc = load_universe(&o, r.universe_path, &r.u, 0)) != HC_OK ||
+	    (o.window && (rc = load_universe(&o, r.universe_path, &r.every_security, 1)) != HC_OK))
 		goto cleanup;
 	rc = compute(&r, &err);
 	if (rc == HC_OK && (build_universe(&r) || build_curve(&r) || build_enough(&r)))

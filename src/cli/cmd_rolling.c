@@ -90,28 +90,10 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	if (o->uni.covariance)
 		return cli_usage_error("rolling", "--covariance: a covariance matrix has no periods to "
 				       "roll over; give a return history");
-	if (o->uni.log_returns && !o->uni.prices)
-		return cli_usage_error("rolling", "--log-returns needs --prices");
-	if (o->uni.delimiter && strcmp(o->uni.delimiter, ",") && strcmp(o->uni.delimiter, ";"))
-		return cli_usage_error("rolling", "--delimiter must be ',' or ';', found '%s'",
-				       o->uni.delimiter);
-	if (!(o->uni.min_coverage > 0 && o->uni.min_coverage <= 1))
-		return cli_usage_error("rolling", "--min-coverage must be above 0 and at most 1, found %g",
-				       o->uni.min_coverage);
-	universe_options_init(&uo);
-	uo.values = !o->uni.prices ? UNIVERSE_RETURNS
-		  : o->uni.log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
-	uo.layout = o->uni.layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
-	uo.percent = o->uni.percent;
+	if ((rc = cli_universe_options("rolling", &o->uni, &uo)))
+		return rc;
 	/* Every security as read: each window applies the policy itself. */
 	uo.missing = UNIVERSE_MISSING_KEEP;
-	uo.min_coverage = o->uni.min_coverage;
-	uo.periods_per_year = o->uni.periods_per_year > 0 ? o->uni.periods_per_year : 0;
-	uo.delimiter = o->uni.delimiter ? o->uni.delimiter[0] : 0;
-	uo.date_column = o->uni.date_column;
-	uo.id_column = o->uni.id_column;
-	uo.value_column = o->uni.value_column;
-	uo.max_bytes = o->uni.max_memory_mib << 20;
 	hc_error_clear(&err);
 	rc = universe_load(u, path, &uo, &err);
 	return rc ? cli_fail("rolling", &err) : HC_OK;

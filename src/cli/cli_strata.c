@@ -1,0 +1,101 @@
+/*
+ * cli_strata.c - the stratified-draw options shared by `curve` and
+ * `enough`: a sector map (sectors.h) turned into the sampler's strata.
+ */
+#include "cli.h"
+
+#include <stdio.h>
+#include <string.h>
+
+#include "holdcount/sampler.h"
+#include "holdcount/sectors.h"
+#include "holdcount/strata.h"
+#include "holdcount/universe.h"
+
+#define STR(f) offsetof(struct cli_strata, f)
+static const struct cli_option strata_options[] = {
+	{ "strata", 0, CLI_STRING, STR(map), "FILE",
+	  "draw portfolios spread across the labels of FILE (a CSV of id,label, e.g. sectors); "
+	  "securities it lacks form one more stratum", NULL, "unconstrained draws" },
+	{ "strata-id-column", 0, CLI_STRING, STR(id_column), "NAME",
+	  "name of the id column in the --strata file", NULL, "id" },
+	{ "strata-column", 0, CLI_STRING, STR(label_column), "NAME",
+	  "name of the label column in the --strata file", NULL, "label" },
+	{ "per-stratum-max", 0, CLI_COUNT, STR(per_stratum_max), "K",
+	  "with --strata: uniform over all portfolios holding at most K of any stratum", NULL, NULL },
+	{ "proportional", 0, CLI_FLAG, STR(proportional), NULL,
+	  "with --strata: each stratum's share of the holdings in proportion to its size "
+	  "(largest remainder), uniform within strata", NULL, NULL },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_strata = { "stratified draws", strata_options };
+
+void cli_strata_init(struct cli_strata *s)
+{
+	memset(s, 0, sizeof *s);
+}
+
+void cli_strata_release(struct cli_strata *s)
+{
+	sectors_strata_free(s->stratum_of, s->labels, s->nlabels);
+	strata_free(s->strata);
+	s->stratum_of = NULL;
+	s->labels = NULL;
+	s->nlabels = 0;
+	s->strata = NULL;
+}
+
+int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct universe *u,
+		     struct sampler_options *so)
+{
+	struct sectors *map = NULL;
+	struct hc_error err;
+	int rc;
+
+	if (!s->map) {
+		if (s->per_stratum_max || s->proportional)
+			return cli_usage_error(cmd, "--per-stratum-max and --proportional need --strata FILE");
+		return HC_OK;
+	}
+	if (s->strata)
+		goto fill;   /* loaded by an earlier call */
+	if (!!s->per_stratum_max == !!s->proportional)
+		return cli_usage_error(cmd, "--strata needs one of --per-stratum-max K (K at least 1) or "
+				       "--proportional");
+	hc_error_clear(&err);
+	rc = sectors_load(&map, s->map, s->id_column, s->label_column, &err);
+	if (rc == HC_OK)
+		rc = sectors_strata(map, u, &s->stratum_of, &s->labels, &s->nlabels, &s->unmapped, &err);
+	if (rc == HC_OK)
+		rc = strata_alloc(&s->strata, s->stratum_of, u->m, s->nlabels, &err);
+	sectors_free(map);
+	if (rc)
+		return cli_fail(cmd, &err);
+fill:
+	so->strata = s->stratum_of;
+	so->nstrata = s->nlabels;
+	so->stratify = s->proportional ? SAMPLER_STRATA_PROPORTIONAL : SAMPLER_STRATA_CAP;
+	so->per_stratum_max = s->per_stratum_max;
+	return HC_OK;
+}
+
+int cli_strata_fields(struct report *r, const struct cli_strata *s)
+{
+	char text[160];
+	int rc = 0;
+
+	if (!s->map)
+		return report_add_none(r, "strata", "stratified draws");
+	if (s->proportional)
+		snprintf(text, sizeof text, "proportional to stratum size (largest remainder), uniform within strata");
+	else
+		snprintf(text, sizeof text, "uniform over portfolios with at most %zu in any stratum",
+			 s->per_stratum_max);
+	rc |= report_add_text(r, "strata", "stratified draws", text);
+	rc |= report_add_text(r, "strata_map", "strata map", s->map);
+	rc |= report_add_int(r, "strata_count", "strata", (long long)s->nlabels);
+	rc |= report_add_int(r, "strata_unmapped", "securities not in the map", (long long)s->unmapped);
+	if (s->per_stratum_max)
+		rc |= report_add_int(r, "per_stratum_max", "at most per stratum", (long long)s->per_stratum_max);
+	return rc ? HC_ENOMEM : HC_OK;
+}
