@@ -759,7 +759,11 @@ int sampler_summarise(struct curve *c, const struct sampler_result *r,
 		pt->sd_p05 = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.05);
 		pt->sd_p50 = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.50);
 		pt->sd_p95 = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.95);
-		pt->z_score = pt->sampled_variance_se > 0
+		/* Where every draw is the same portfolio (n = M, or a stratified
+		 * allocation that leaves no choice) the sampled variances differ
+		 * only by rounding, so their standard error measures rounding, not
+		 * sampling, and a z-score from it would be noise over noise. */
+		pt->z_score = pt->sampled_variance_se > SAMPLER_SPREAD_RTOL * fabs(mean_v)
 			? (mean_v - pt->expected_variance) / pt->sampled_variance_se : NAN;
 	}
 	c->paths = K;
