@@ -66,7 +66,7 @@ static int readable(char *buf, size_t size, const char *dir, const char *file)
 int cli_data_file(char *buf, size_t size, const char *file)
 {
 	const char *env = getenv("HOLDCOUNT_DATA_DIR");
-	char dir[PATH_MAX], rel[PATH_MAX];
+	char dir[PATH_MAX], rel[PATH_MAX], resolved[PATH_MAX];
 
 	if (env && env[0])
 		return readable(buf, size, env, file);
@@ -75,8 +75,10 @@ int cli_data_file(char *buf, size_t size, const char *file)
 		if (same_dir(dir, HOLDCOUNT_BUILD_BINDIR))
 			return readable(buf, size, HOLDCOUNT_SOURCE_DATA_DIR, file);
 #endif
+		/* realpath: messages and summaries name /usr/share/holdcount,
+		 * not /usr/bin/../share/holdcount */
 		if (snprintf(rel, sizeof rel, "%s/%s", dir, HOLDCOUNT_DATA_RELATIVE) < (int)sizeof rel
-		    && readable(buf, size, rel, file))
+		    && realpath(rel, resolved) && readable(buf, size, resolved, file))
 			return 1;
 	}
 	return readable(buf, size, HOLDCOUNT_DATA_DIR, file);
