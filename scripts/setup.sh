@@ -6,7 +6,8 @@ cd "$(dirname "$0")/.."
 
 PACKAGES=(build-essential cmake pkg-config libgsl-dev libopenblas-dev libcsv-dev
           libcjson-dev libcmocka-dev python3 python3-numpy gnuplot-nox clang
-          libclang-rt-14-dev valgrind strace time)
+          libclang-rt-14-dev valgrind strace time
+          groff-base man-db dpkg-dev util-linux)
 
 missing=()
 for p in "${PACKAGES[@]}"; do

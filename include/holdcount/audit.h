@@ -102,6 +102,9 @@ struct audit_options {
 	void *progress_ctx;
 };
 
+/* Defaults: paths AUDIT_DEFAULT_PATHS, seed 1, limit_tolerance and tie_rtol
+ * their AUDIT_DEFAULT_* values, every rule and option off (zero/NULL).
+ * Set fields afterwards.  Cannot fail. */
 void audit_options_init(struct audit_options *opt);
 
 struct audit_check {
@@ -188,6 +191,7 @@ int audit_run(struct audit_result **out, const struct holdings *h,
 	      const struct universe *u, const struct moments *mo,
 	      const struct audit_options *opt, struct hc_error *err);
 
+/* Free a and everything it owns; NULL is a no-op. */
 void audit_result_free(struct audit_result *a);
 
 /*

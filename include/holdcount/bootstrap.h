@@ -46,6 +46,8 @@ struct bootstrap_options {
 	void *progress_ctx;
 };
 
+/* Defaults: BOOTSTRAP_DEFAULT_REPLICATES replicates, kind BOOTSTRAP_BLOCK,
+ * seed 1, the rest zero/NULL.  Cannot fail. */
 void bootstrap_options_init(struct bootstrap_options *opt);
 
 /* round(T^(1/3)), at least 1. */

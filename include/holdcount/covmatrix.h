@@ -80,6 +80,7 @@ int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err
 int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
 			     struct hc_error *err);
 
+/* Free c and everything it owns; NULL is a no-op. */
 void covmatrix_free(struct covmatrix *c);
 
 /* Index of id in c->ids, or -1. */

@@ -25,6 +25,7 @@ struct csvread_options {
 	size_t max_field;     /* longest field accepted, bytes; 0 = CSVREAD_DEFAULT_MAX_FIELD */
 };
 
+/* Defaults: delimiter detected, max_field CSVREAD_DEFAULT_MAX_FIELD (0). */
 void csvread_options_init(struct csvread_options *opt);
 
 struct csvread_field {

@@ -74,6 +74,7 @@ int curve_exact(struct curve **out, const struct moments *mo,
 		const size_t *sizes, size_t nsizes, double periods_per_year,
 		struct hc_error *err);
 
+/* Free c and everything it owns; NULL is a no-op. */
 void curve_free(struct curve *c);
 
 /* Most sizes one size list may name, ranges expanded and duplicates

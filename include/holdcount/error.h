@@ -5,6 +5,12 @@
  * fills a struct hc_error supplied by the caller.  The numeric values double
  * as the command-line tool's exit statuses (see docs/commands.md, EXIT STATUS).
  * Library code never prints and never exits: it records and returns.
+ *
+ * GSL: the library checks every GSL status, but GSL's default error handler
+ * aborts the process before a status is returned.  A program calling the
+ * modules that use GSL's generators or eigensolvers (sampler, bootstrap,
+ * synth, strata, covmatrix) should call gsl_set_error_handler_off() once at
+ * start, as the holdcount command does (docs/library.md).
  */
 #ifndef HOLDCOUNT_ERROR_H
 #define HOLDCOUNT_ERROR_H
@@ -42,10 +48,13 @@ void hc_error_clear(struct hc_error *err);
 int hc_error(struct hc_error *err, int code, const char *fmt, ...)
 	__attribute__((format(printf, 3, 4)));
 
-/* Prefix the recorded message with "prefix: " (for adding context). */
+/* Prefix the recorded message with "prefix: " (for adding context); the
+ * code is kept, the result cut at HC_ERROR_MESSAGE_MAX - 1 bytes.  Nothing
+ * happens when err or prefix is NULL. */
 void hc_error_prefix(struct hc_error *err, const char *prefix);
 
-/* A short name for a status code ("data error", "usage error", ...). */
+/* A short name for a status code ("data error", "usage error", ...): a
+ * static string, never NULL (unknown codes get a generic name). */
 const char *hc_status_name(int code);
 
 #endif

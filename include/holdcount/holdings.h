@@ -37,6 +37,8 @@ struct holdings_options {
 	char delimiter;             /* ',' or ';'; 0 = detect */
 };
 
+/* Defaults: sum_tolerance HOLDINGS_DEFAULT_SUM_TOLERANCE, the rest
+ * zero/NULL (delimiter detected).  Cannot fail. */
 void holdings_options_init(struct holdings_options *opt);
 
 enum holdings_kind {
@@ -92,6 +94,7 @@ int holdings_load_buffer(struct holdings **out, const char *name,
 			 const char *data, size_t len,
 			 const struct holdings_options *opt, struct hc_error *err);
 
+/* Free h and everything it owns; NULL is a no-op. */
 void holdings_free(struct holdings *h);
 
 /*
@@ -109,11 +112,16 @@ struct holdings_labels {
 	char *source;
 };
 
+/* Read a label map from path, or from data[0..len) named name in messages;
+ * delimiter ',' or ';', 0 = detect.  *out is a new map (holdings_labels_free)
+ * or NULL on error: HC_EIO (cannot read), HC_EDATA ("NAME:LINE:COL: ..."),
+ * HC_ENOMEM. */
 int holdings_labels_load(struct holdings_labels **out, const char *path,
 			 char delimiter, struct hc_error *err);
 int holdings_labels_load_buffer(struct holdings_labels **out, const char *name,
 				const char *data, size_t len, char delimiter,
 				struct hc_error *err);
+/* Free l and everything it owns; NULL is a no-op. */
 void holdings_labels_free(struct holdings_labels *l);
 
 /* The label of id, or NULL when the map does not have it.  O(log n). */

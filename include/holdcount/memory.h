@@ -11,6 +11,10 @@
 
 #include <stddef.h>
 
+/* Like their libc namesakes: NULL when out of memory (or when a failure is
+ * injected, below), never an abort; the caller owns the result and frees it
+ * with hc_free.  A zero size still returns a unique pointer.  hc_strndup
+ * copies exactly n bytes of s (which must hold them) and NUL-terminates. */
 void *hc_malloc(size_t size);
 void *hc_calloc(size_t n, size_t size);          /* checks n*size overflow */
 void *hc_realloc(void *p, size_t size);

@@ -19,8 +19,21 @@ struct outfile {
 	char *tmp;      /* temporary name */
 };
 
+/* Start writing path (NULL or "-": standard output) through of->fp; the
+ * temporary gets the mode of the file it will replace, or 0666 less the
+ * umask for a new one.  of is caller storage, overwritten.  HC_EUSAGE when
+ * path is empty or ends in '/', HC_EIO when the temporary cannot be created
+ * (the message carries strerror), HC_ENOMEM; on error of is zeroed and
+ * nothing is left on disk. */
 int outfile_open(struct outfile *of, const char *path, struct hc_error *err);
+/* Flush, fsync and rename the temporary over the final name (standard
+ * output: flush only).  HC_EIO when any step fails, after removing the
+ * temporary; HC_EINTERNAL when of was never opened or already committed.
+ * Afterwards of->fp is NULL (a file is closed; standard output stays open). */
 int outfile_commit(struct outfile *of, struct hc_error *err);
+/* Close and remove the temporary, leaving an earlier file at the final name
+ * untouched (standard output: flush what was written).  of may be NULL or
+ * already committed; cannot fail. */
 void outfile_abort(struct outfile *of);
 
 /* The temporary name currently open, or NULL (for a signal handler that must

@@ -78,10 +78,15 @@ struct report {
 	char **notes;
 };
 
+/* An empty report; NULL when out of memory.  report_free frees it and
+ * everything it owns (its tables too); NULL is a no-op. */
 struct report *report_alloc(void);
 void report_free(struct report *r);
 
-/* Fields (scalar key/value pairs). Strings are copied. */
+/* Fields (scalar key/value pairs), in the order added; key is the CSV/JSON
+ * key, title the text label.  Strings are copied.  Each returns HC_OK, or
+ * HC_ENOMEM (there is no error record: the caller words the message), the
+ * report then unchanged.  A non-finite real is stored as no value. */
 int report_add_real(struct report *r, const char *key, const char *title, double x, int style);
 int report_add_int(struct report *r, const char *key, const char *title, long long x);
 int report_add_text(struct report *r, const char *key, const char *title, const char *s);
@@ -90,7 +95,11 @@ int report_add_none(struct report *r, const char *key, const char *title);
 int report_add_note(struct report *r, const char *note);
 
 /* Tables: columns are declared, then rows appended and filled.  A column
- * added after rows exist gives every existing row an empty cell. */
+ * added after rows exist gives every existing row an empty cell.
+ * report_add_table returns the new table (owned by r) or NULL when out of
+ * memory; the int functions return HC_OK or HC_ENOMEM.  The setters need
+ * row < nrows and col < ncols (not checked) and replace the cell's value;
+ * a non-finite real leaves it empty. */
 struct report_table *report_add_table(struct report *r, const char *key, const char *title);
 int report_table_add_column(struct report_table *t, const char *key, const char *title, int style);
 int report_table_add_row(struct report_table *t);   /* new row, all REPORT_NONE; index nrows-1 */
@@ -99,7 +108,9 @@ void report_table_set_int(struct report_table *t, size_t row, size_t col, long l
 int report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s);
 void report_table_set_bool(struct report_table *t, size_t row, size_t col, int b);
 
-/* The writers share one interface, as GSL's generator types do. */
+/* The writers share one interface, as GSL's generator types do.  write
+ * renders r to fp and returns HC_OK, HC_EIO when fp reports a write error,
+ * or HC_ENOMEM, with err filled; fp is not closed. */
 struct report_writer {
 	const char *name;          /* "table", "csv", "json" */
 	int (*write)(FILE *fp, const struct report *r, struct hc_error *err);
@@ -112,7 +123,8 @@ extern const struct report_writer *const report_writer_json;
 /* Look a writer up by name ("table", "csv", "json"); NULL when unknown. */
 const struct report_writer *report_writer_find(const char *name);
 
-/* The cautions every output carries (design.md section 9); adds them as notes. */
+/* The cautions every output carries (design.md section 9); adds them as
+ * notes.  HC_OK or HC_ENOMEM. */
 int report_add_cautions(struct report *r);
 
 #endif

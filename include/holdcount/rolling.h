@@ -100,6 +100,7 @@ struct rolling_result {
 int rolling_run(struct rolling_result **out, const struct universe *u,
 		const struct rolling_options *opt, struct hc_error *err);
 
+/* Free r and everything it owns; NULL is a no-op. */
 void rolling_result_free(struct rolling_result *r);
 
 /*

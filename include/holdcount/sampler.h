@@ -42,6 +42,8 @@ enum sampler_stratify {
 	SAMPLER_STRATA_CAP = 2           /* uniform over subsets with at most k per stratum */
 };
 
+/* Defaults: SAMPLER_DEFAULT_PATHS paths, seed 0, threads 0 (OpenMP's
+ * default), periods_per_year 1, no returns, no strata, no progress. */
 void sampler_options_init(struct sampler_options *opt);
 
 /* Below this standard error relative to the mean sampled variance, the
@@ -94,6 +96,7 @@ int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
 int sampler_summarise(struct curve *c, const struct sampler_result *r,
 		      struct hc_error *err);
 
+/* Free r and everything it owns; NULL is a no-op. */
 void sampler_result_free(struct sampler_result *r);
 
 /* splitmix64 step (Steele, Lea & Flood, 2014, OOPSLA): advances *state and

@@ -45,6 +45,7 @@ int sectors_load_buffer(struct sectors **out, const char *name,
 			const char *data, size_t len, const char *id_column,
 			const char *label_column, struct hc_error *err);
 
+/* Free s and everything it owns; NULL is a no-op. */
 void sectors_free(struct sectors *s);
 
 /* Label index of id (exact match), or -1 when the map lacks it. O(log n). */
@@ -63,6 +64,7 @@ int sectors_strata(const struct sectors *s, const struct universe *u,
 		   size_t **stratum_of_security, char ***labels, size_t *nlabels,
 		   size_t *unmapped, struct hc_error *err);
 
+/* Free what sectors_strata returned; NULL pointers are no-ops. */
 void sectors_strata_free(size_t *stratum_of_security, char **labels, size_t nlabels);
 
 #endif

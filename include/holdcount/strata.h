@@ -97,10 +97,14 @@ struct strata_moments {
 	double *block;
 };
 
+/* *out is new (strata_moments_free) or NULL on error.  HC_EUSAGE when u has
+ * gaps, fewer than 2 periods or not s->m securities (from_universe), or
+ * m != s->m (from_matrix); HC_ENOMEM. */
 int strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
 				 const struct strata *s, struct hc_error *err);
 int strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
 			       const struct strata *s, struct hc_error *err);
+/* Free sm and everything it owns; NULL is a no-op. */
 void strata_moments_free(struct strata_moments *sm);
 
 /*
@@ -167,6 +171,7 @@ struct strata_curve {
 int strata_curve_alloc(struct strata_curve **out, const struct sampler_result *r,
 		       const struct strata *s, const struct strata_moments *sm, int mode,
 		       size_t per_stratum_max, double periods_per_year, struct hc_error *err);
+/* Free c and everything it owns; NULL is a no-op. */
 void strata_curve_free(struct strata_curve *c);
 
 /*

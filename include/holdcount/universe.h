@@ -51,6 +51,9 @@ struct universe_options {
 	size_t max_bytes;           /* budget for the numbers; 0 = from available memory */
 };
 
+/* Defaults: wide layout of returns (not percents), complete series only,
+ * min_coverage UNIVERSE_DEFAULT_MIN_COVERAGE, periods per year and delimiter
+ * detected, default column names, memory budget from available memory. */
 void universe_options_init(struct universe_options *opt);
 
 struct universe_dropped {
@@ -103,6 +106,7 @@ int universe_window(struct universe **out, const struct universe *src,
 int universe_resample(struct universe **out, const struct universe *src,
 		      const size_t *idx, size_t n, struct hc_error *err);
 
+/* Free u and everything it owns; NULL is a no-op. */
 void universe_free(struct universe *u);
 
 /* Index of id in u->ids, or -1. */

@@ -586,6 +586,13 @@ static void man_common_sections(FILE *fp)
 	fputs(".SH ENVIRONMENT\n"
 	      ".TP\n.B HOLDCOUNT_THREADS\nthe default of \\fB\\-\\-threads\\fR (a whole number from 1).\n"
 	      ".TP\n.B NO_COLOR\nhonoured; holdcount prints no colour or terminal escape codes in any case.\n"
+	      ".TP\n.B HOLDCOUNT_DATA_DIR\nthe folder of the demo data that \\fBholdcount report\\fR "
+	      "reads when no universe is given, instead of the installed one.\n"
+	      ".SH FILES\n.TP\n.I share/holdcount/\n"
+	      "under the installation prefix, found from the binary's own place (\\fI/usr/share/holdcount/\\fR "
+	      "for a package, \\fI/usr/local/share/holdcount/\\fR by default): "
+	      "the invented demo universe, sector map and funds (\\fIdemo\\-universe.csv\\fR, "
+	      "\\fIdemo\\-sectors.csv\\fR, \\fIdemo\\-funds.csv\\fR).\n"
 	      ".SH NOTES\n"
 	      "Figures are historical estimates and the past need not repeat; a universe of today's survivors "
 	      "looks safer than its market did; averages carry estimation error; annualising assumes serially "
@@ -647,6 +654,10 @@ void cli_print_bash_completion(FILE *fp)
 	      "# from the same option tables as the parser and --help.\n"
 	      "_holdcount()\n{\n"
 	      "\tlocal cur=${COMP_WORDS[COMP_CWORD]} prev=${COMP_WORDS[COMP_CWORD-1]} cmd=${COMP_WORDS[1]} opts\n"
+	      "\t# --name=value: bash splits words at '=' too, so '=' arrives as a word\n"
+	      "\tif [ \"$cur\" = \"=\" ]; then\n\t\tcur=\n"
+	      "\telif [ \"$prev\" = \"=\" ] && [ \"$COMP_CWORD\" -gt 2 ]; then\n"
+	      "\t\tprev=${COMP_WORDS[COMP_CWORD-2]}\n\tfi\n"
 	      "\tif [ \"$COMP_CWORD\" -eq 1 ]; then\n\t\tCOMPREPLY=($(compgen -W \"help --help --version", fp);
 	for (i = 0; cli_commands[i]; i++)
 		fprintf(fp, " %s", cli_commands[i]->name);
@@ -671,7 +682,9 @@ void cli_print_bash_completion(FILE *fp)
 						fprintf(fp, "%s%s", j ? " " : "", op->choices[j]);
 					fputs("\" -- \"$cur\"))\n\t\t\treturn;;\n", fp);
 				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0) {
-					fputs(")\n\t\t\tCOMPREPLY=($(compgen -f -- \"$cur\"))\n\t\t\treturn;;\n", fp);
+					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -f -- \"$cur\")\n\t\t\treturn;;\n", fp);
+				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "DIR") == 0) {
+					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -d -- \"$cur\")\n\t\t\treturn;;\n", fp);
 				} else {
 					fputs(")\n\t\t\tCOMPREPLY=()\n\t\t\treturn;;\n", fp);
 				}
@@ -684,7 +697,7 @@ void cli_print_bash_completion(FILE *fp)
 	}
 	fputs("\t*) return;;\n\tesac\n"
 	      "\tif [[ $cur == -* ]]; then\n\t\tCOMPREPLY=($(compgen -W \"$opts\" -- \"$cur\"))\n"
-	      "\telse\n\t\tCOMPREPLY=($(compgen -f -- \"$cur\"))\n\tfi\n}\n"
+	      "\telse\n\t\tmapfile -t COMPREPLY < <(compgen -f -- \"$cur\")\n\tfi\n}\n"
 	      "complete -o filenames -F _holdcount holdcount\n", fp);
 }
 

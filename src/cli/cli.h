@@ -300,6 +300,16 @@ int cli_add_scale(struct report *r, double periods_per_year, int annualised);
 struct curve;
 int cli_curve_table(struct report *r, const struct curve *c, int annualised);
 
+/* ---- installed files (cli_paths.c) ------------------------------------------ */
+
+/* The path of a bundled demo-data file (e.g. "demo-universe.csv") into buf:
+ * from $HOLDCOUNT_DATA_DIR when set; else, for the build tree's binary, the
+ * source tree's data/; else DATADIR/holdcount beside the installed binary
+ * (BINDIR/../share/holdcount), then at the configured prefix.  Returns 1 when
+ * the file there is readable, 0 otherwise (buf then names the last place
+ * tried, for the message). */
+int cli_data_file(char *buf, size_t size, const char *file);
+
 /* ---- stratified draws (cli_strata.c) -------------------------------------- */
 
 /* --strata FILE, --strata-id-column NAME, --strata-column NAME,

@@ -41,10 +41,6 @@
 #include "holdcount/sampler.h"
 #include "holdcount/universe.h"
 
-#ifndef HOLDCOUNT_DATA_DIR
-#define HOLDCOUNT_DATA_DIR "data"
-#endif
-
 /* The rows of the curve shown in summary.md (the CSV has every grid row). */
 static const size_t readable_grid[] = { 1, 2, 3, 5, 10, 15, 20, 25, 30, 40, 50, 75, 100, 150, 200, 300, 500, 1000 };
 
@@ -1073,10 +1069,7 @@ static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *er
 
 static int demo_path(char *buf, size_t size, const char *file)
 {
-	const char *dir = getenv("HOLDCOUNT_DATA_DIR");
-
-	snprintf(buf, size, "%s/%s", dir && dir[0] ? dir : HOLDCOUNT_DATA_DIR, file);
-	return access(buf, R_OK) == 0;
+	return cli_data_file(buf, size, file);
 }
 
 static int check_options(const struct report_opts *o, const struct cli_args *a)

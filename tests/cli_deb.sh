@@ -1,0 +1,98 @@
+#!/usr/bin/env bash
+# `cpack -G DEB` from the build tree into a scratch directory (issue 8): the
+# package's control fields, its Depends line against what Debian's own
+# dpkg-shlibdeps derives from the shipped library, its contents, and the
+# package unpacked with `dpkg -x` into a scratch root, where holdcount runs
+# on its own library and its own demo data.
+set -u
+export LC_ALL=C
+HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
+B=$(dirname "$HC")
+T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_deb.$$
+mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
+fails=0
+fail() { echo "FAIL: $*"; fails=$((fails+1)); }
+die() { echo "FAIL: $*"; exit 1; }
+for tool in cpack dpkg-deb dpkg-shlibdeps readelf; do
+	command -v "$tool" >/dev/null || die "$tool is needed (dpkg-dev, binutils, cmake)"
+done
+[ -f "$B/CPackConfig.cmake" ] || die "no CPackConfig.cmake beside $HC"
+
+# Reuses the build tree's objects: cpack only installs them into its staging dir.
+cpack -G DEB --config "$B/CPackConfig.cmake" -B "$T/pkg" >"$T/cpack.log" 2>&1 || die "cpack: $(tail -5 "$T/cpack.log")"
+debs=("$T"/pkg/*.deb)
+[ "${#debs[@]}" = 1 ] && [ -f "${debs[0]}" ] || die "expected one .deb, found: ${debs[*]}"
+deb=${debs[0]}
+
+# ---- control fields ----------------------------------------------------------
+version=$("$HC" --version | sed -n '1s/^holdcount //p')
+[ "$(dpkg-deb -f "$deb" Package)" = holdcount ] || fail "Package: $(dpkg-deb -f "$deb" Package)"
+[ "$(dpkg-deb -f "$deb" Version)" = "$version" ] || fail "Version: $(dpkg-deb -f "$deb" Version), --version says $version"
+[ "$(dpkg-deb -f "$deb" Architecture)" = "$(dpkg --print-architecture)" ] || fail "Architecture: $(dpkg-deb -f "$deb" Architecture)"
+[ "$(basename "$deb")" = "holdcount_${version}_$(dpkg --print-architecture).deb" ] || fail "file name $(basename "$deb") is not Debian's NAME_VERSION_ARCH.deb"
+depends=$(dpkg-deb -f "$deb" Depends)
+echo "Depends: $depends"
+for p in libgsl27 libopenblas0 libcsv3 libcjson1 libgomp1 libc6; do
+	echo "$depends" | grep -qE "(^|, )$p( |,|$)" || fail "Depends lacks $p: $depends"
+done
+# GSL's reference CBLAS is not ours (OpenBLAS is): not a direct dependency.
+echo "$depends" | grep -q libgslcblas0 && fail "Depends names libgslcblas0: $depends"
+
+# ---- unpacked into a scratch root --------------------------------------------
+R=$T/root
+dpkg -x "$deb" "$R" || die "dpkg -x failed"
+# lib/ is lib/<multiarch> when the build's prefix was /usr; find it either way.
+lib=$(dirname "$(find "$R/usr/lib" -name 'libholdcount.so.0' | head -n1)")
+[ -n "$lib" ] && [ -d "$lib" ] || die "no libholdcount.so.0 in the package"
+for f in usr/bin/holdcount usr/share/man/man1/holdcount.1 usr/share/man/man1/holdcount-curve.1 \
+	 usr/share/bash-completion/completions/holdcount usr/share/holdcount/demo-universe.csv \
+	 usr/include/holdcount/curve.h usr/share/doc/holdcount/library.md; do
+	[ -e "$R/$f" ] || fail "package lacks /$f"
+done
+for f in libholdcount.a libholdcount.so pkgconfig/holdcount.pc cmake/holdcount/holdcountConfig.cmake; do
+	[ -e "$lib/$f" ] || fail "package lacks ${lib#$R}/$f"
+done
+# Stripped binaries (debug information stays in the build tree), and a static
+# archive that still links: its symbols survive.
+readelf -S "$R/usr/bin/holdcount" | grep -q '\.debug_info' && fail "packaged holdcount is not stripped"
+nm "$lib/libholdcount.a" 2>/dev/null | grep -q ' T curve_exact$' || fail "packaged libholdcount.a lost its symbols"
+
+# What the binary and the library load, against Depends: every NEEDED library
+# of the binary is the library's or the library itself, and Debian's
+# dpkg-shlibdeps names exactly the packages of Depends, at versions Depends
+# does not undercut.
+readelf -d "$R/usr/bin/holdcount" | sed -n 's/.*(NEEDED).*\[\(.*\)\]/\1/p' | sort >"$T/needed_bin"
+readelf -d "$lib/libholdcount.so.0" | sed -n 's/.*(NEEDED).*\[\(.*\)\]/\1/p' | sort >"$T/needed_lib"
+extra=$(comm -23 "$T/needed_bin" <(sort "$T/needed_lib" <(echo libholdcount.so.0)))
+[ -z "$extra" ] || fail "holdcount needs libraries its library does not: $extra"
+mkdir -p "$T/shl/debian"
+printf 'Source: holdcount\n\nPackage: holdcount\nArchitecture: any\n' >"$T/shl/debian/control"
+(cd "$T/shl" && dpkg-shlibdeps -O "$lib/libholdcount.so.0" 2>"$T/shl.err") >"$T/shl.out" || fail "dpkg-shlibdeps: $(head -c 300 "$T/shl.err")"
+shl=$(sed -n 's/^shlibs:Depends=//p' "$T/shl.out")
+echo "dpkg-shlibdeps: $shl"
+names() { echo "$1" | tr ',' '\n' | sed 's/^ *//; s/ .*//' | sed '/^$/d' | sort; }
+[ "$(names "$shl")" = "$(names "$depends")" ] \
+	|| fail "Depends names $(names "$depends" | tr '\n' ' ')but dpkg-shlibdeps finds $(names "$shl" | tr '\n' ' ')"
+echo "$shl" | tr ',' '\n' | sed -n 's/^ *\([^ ]*\) (>= \([^)]*\))$/\1 \2/p' | while read -r p v; do
+	ours=$(echo "$depends" | tr ',' '\n' | sed -n "s/^ *$p (>= \([^)]*\))$/\1/p")
+	[ -n "$ours" ] && dpkg --compare-versions "$ours" ge "$v" || echo "FAIL: Depends allows $p ${ours:-at any version}; its symbols need >= $v"
+done >"$T/versions"
+[ -s "$T/versions" ] && { cat "$T/versions"; fails=$((fails+1)); }
+
+# ---- run from the scratch root -----------------------------------------------
+env -u LD_LIBRARY_PATH "$R/usr/bin/holdcount" --version >"$T/v" 2>"$T/err" || fail "unpacked holdcount --version: $(cat "$T/err")"
+"$HC" --version | cmp -s - "$T/v" || fail "unpacked --version differs: $(head -n1 "$T/v")"
+grep -q '^GSL [0-9]' "$T/v" && grep -q '^BLAS OpenBLAS' "$T/v" || fail "unpacked --version lacks GSL or BLAS: $(cat "$T/v")"
+loaded=$(env -u LD_LIBRARY_PATH ldd "$R/usr/bin/holdcount" | awk '/libholdcount/ {print $3}')
+[ "$(readlink -f "$loaded")" = "$(readlink -f "$lib/libholdcount.so.0")" ] || fail "unpacked holdcount loads '$loaded', not the package's library"
+# The package's own demo data, found from the binary's place (UTF-8: see cli_install.sh).
+(cd "$T" && env -u HOLDCOUNT_DATA_DIR LC_ALL=C.UTF-8 "$R/usr/bin/holdcount" report -o rep --paths 50 --bootstrap 0 -q) 2>"$T/err" \
+	|| fail "unpacked report on the demo data: $(head -c 300 "$T/err")"
+grep -q "^- source: $R/usr/share/holdcount/demo-universe.csv\$" "$T/rep/summary.md" 2>/dev/null \
+	|| fail "unpacked report read $(grep -m1 'source:' "$T/rep/summary.md" 2>/dev/null)"
+# holdcount.pc finds the unpacked prefix from its own place.
+inc=$(PKG_CONFIG_PATH=$lib/pkgconfig pkg-config --variable=includedir holdcount)
+[ -f "$inc/holdcount/curve.h" ] || fail "holdcount.pc's includedir '$inc' has no holdcount/curve.h"
+
+[ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
+echo "cli_deb: all checks passed"

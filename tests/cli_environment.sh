@@ -1,0 +1,79 @@
+#!/usr/bin/env bash
+# Environment conventions (issue 8): NO_COLOR is honoured trivially --
+# holdcount writes no colour or other terminal escape codes, on a terminal or
+# not, whatever TERM or the colour-forcing variables say -- and
+# HOLDCOUNT_THREADS is the default of --threads (a command-line --threads
+# wins), changing how many threads run but not one printed figure.
+set -u
+export LC_ALL=C.UTF-8
+HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
+SRC=${HOLDCOUNT_SOURCE_DIR:?HOLDCOUNT_SOURCE_DIR must name the source tree}
+T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_environment.$$
+mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
+fails=0
+fail() { echo "FAIL: $*"; fails=$((fails+1)); }
+U=$SRC/data/demo-universe.csv
+F=$SRC/data/demo-funds.csv
+S=$SRC/data/demo-sectors.csv
+command -v script >/dev/null || { echo "FAIL: script (util-linux) is needed for a terminal"; exit 1; }
+command -v strace >/dev/null || { echo "FAIL: strace is needed to count threads"; exit 1; }
+
+# ---- no escape codes, on a terminal -------------------------------------------
+# script(1) gives the command a pseudo-terminal for stdin, stdout and stderr,
+# so the progress bars draw; the transcript holds everything written to it.
+runs=(
+	"--help"
+	"curve --paths 40000 $U"
+	"enough --paths 2000 --bootstrap 200 $U"
+	"audit --holdings $F --sectors $S --paths 500 $U"
+	"describe $U"
+	"report -o $T/rep --paths 2000 --bootstrap 100 --force"
+	"curve --pathz 3 $U"
+	"curve $T/absent.csv"
+)
+for nc in unset 1; do
+	for r in "${runs[@]}"; do
+		if [ $nc = unset ]; then
+			env -u NO_COLOR TERM=xterm-256color COLORTERM=truecolor CLICOLOR_FORCE=1 FORCE_COLOR=1 \
+				script -qec "$HC $r" /dev/null >"$T/tty" 2>&1
+		else
+			NO_COLOR=1 TERM=xterm-256color script -qec "$HC $r" /dev/null >"$T/tty" 2>&1
+		fi
+		[ -s "$T/tty" ] || fail "holdcount $r on a terminal wrote nothing"
+		LC_ALL=C grep -q $'\x1b' "$T/tty" && fail "holdcount $r (NO_COLOR $nc) wrote an escape code: $(LC_ALL=C grep -a -m1 -o $'.\{0,20\}\x1b.\{0,10\}' "$T/tty" | od -c | head -2)"
+	done
+	# the terminal path was taken: the curve's progress bar drew
+	NO_COLOR=1 script -qec "$HC curve --paths 40000 $U" /dev/null >"$T/tty" 2>&1
+	grep -aq 'sampling \[' "$T/tty" || fail "no progress bar on a terminal: the escape-code check did not see the terminal path"
+done
+# Off a terminal, NO_COLOR changes nothing.
+"$HC" curve --paths 500 "$U" >"$T/a" 2>&1
+NO_COLOR=1 "$HC" curve --paths 500 "$U" >"$T/b" 2>&1
+cmp -s "$T/a" "$T/b" || fail "NO_COLOR changed the output of curve"
+
+# ---- HOLDCOUNT_THREADS -----------------------------------------------------------
+# Threads started (clone calls, counted by strace): OpenMP starts N - 1 for
+# --threads N (libgomp's team); OpenBLAS starts its own pool whatever N is.
+clones() {
+	strace -f -qq -e trace=clone,clone3 -o "$T/st" "$@" >/dev/null 2>"$T/st.err" \
+		|| { fail "strace $*: $(head -c 200 "$T/st.err")"; echo 0; return; }
+	grep -c 'clone' "$T/st"
+}
+args=(curve --paths 2000 -q "$U")
+c1=$(HOLDCOUNT_THREADS=1 clones "$HC" "${args[@]}")
+c4=$(HOLDCOUNT_THREADS=4 clones "$HC" "${args[@]}")
+cover=$(HOLDCOUNT_THREADS=4 clones "$HC" "${args[@]}" --threads 1)
+cflag=$(clones env -u HOLDCOUNT_THREADS "$HC" "${args[@]}" --threads 4)
+[ $((c4 - c1)) = 3 ] || fail "HOLDCOUNT_THREADS=4 started $c4 threads, =1 started $c1: expected 3 more"
+[ "$cover" = "$c1" ] || fail "--threads 1 with HOLDCOUNT_THREADS=4 started $cover threads, expected $c1 (the option wins)"
+[ "$cflag" = "$c4" ] || fail "--threads 4 started $cflag threads, HOLDCOUNT_THREADS=4 $c4: not the same default"
+# ... and the figures do not depend on it (the sampler's grouping is fixed).
+for n in 1 3; do
+	HOLDCOUNT_THREADS=$n "$HC" curve --paths 3000 --format csv "$U" >"$T/t$n.csv" || fail "curve with HOLDCOUNT_THREADS=$n"
+done
+cmp -s "$T/t1.csv" "$T/t3.csv" || fail "curve's figures differ between HOLDCOUNT_THREADS=1 and 3"
+# Commands without --threads ignore it (describe has no sampling options).
+HOLDCOUNT_THREADS=abc "$HC" describe "$U" >/dev/null 2>"$T/err" || fail "describe with HOLDCOUNT_THREADS=abc: $(cat "$T/err")"
+
+[ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
+echo "cli_environment: all checks passed"
