@@ -243,7 +243,7 @@ static int compute_curve(struct run *r)
 	src.annualised = 1;
 	r->rep_curve = report_alloc();
 	if (!r->rep_curve || cli_curve_fields(r->rep_curve, &src, &r->mo, r->curve) ||
-	    report_add_cautions(r->rep_curve)) {
+	    cli_strata_fields(r->rep_curve, &r->strat) || report_add_cautions(r->rep_curve)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		return cli_fail("report", &err);
 	}
