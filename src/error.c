@@ -31,7 +31,10 @@ void hc_error_prefix(struct hc_error *err, const char *prefix)
 
 	if (!err || !prefix)
 		return;
-	snprintf(tmp, sizeof tmp, "%s: %s", prefix, err->message);
+	/* A message cut at the buffer's end is still the right message; the
+	 * length is looked at only to say so to the compiler. */
+	if (snprintf(tmp, sizeof tmp, "%s: %s", prefix, err->message) < 0)
+		return;
 	memcpy(err->message, tmp, sizeof tmp);
 }
 

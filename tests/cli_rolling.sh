@@ -125,6 +125,11 @@ grep -q "longer than the 150 periods" "$TMP/err" || say "window message: $(cat "
 [ "$(status rolling "$TMP/u.csv" --missing pairwise --bootstrap 10)" = 2 ] || say "pairwise bootstrap: not exit 2"
 [ "$(status rolling "$TMP/nothing.csv")" = 4 ] || say "missing file: not exit 4"
 [ -s "$TMP/out" ] && say "output written on failure"
+# Rule parameters read as `enough` reads them.
+cmp -s <("$HC" rolling "$TMP/u.csv" --window 36 --marginal 0.2pp --format csv) \
+	<("$HC" rolling "$TMP/u.csv" --window 36 --marginal 0.002 --format csv) || say "--marginal 0.2pp is not 0.002"
+[ "$(status rolling "$TMP/u.csv" --marginal 2x)" = 2 ] || say "bad --marginal: not exit 2"
+[ "$(status rolling "$TMP/u.csv" --premium 4%)" = 2 ] || say "--premium alone: not exit 2"
 # Nothing half-written: --output appears only complete.
 "$HC" rolling "$TMP/u.csv" --window 36 --step 5 --format csv -o "$TMP/o.csv"
 cmp -s "$TMP/o.csv" "$TMP/u-roll.csv" || say "--output differs from standard output"

@@ -44,6 +44,11 @@ enum sampler_stratify {
 
 void sampler_options_init(struct sampler_options *opt);
 
+/* Below this standard error relative to the mean sampled variance, the
+ * sampled spread is rounding (every draw the same portfolio, as at n = M)
+ * and sampler_summarise leaves the z-score empty (NaN). */
+#define SAMPLER_SPREAD_RTOL 1e-12
+
 struct sampler_result {
 	size_t paths;
 	size_t nsizes;

@@ -5,6 +5,7 @@
 #include <math.h>
 #include <stddef.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "cli.h"
@@ -16,7 +17,8 @@ struct rolling_opts {
 	struct cli_output out;
 	size_t window, step, refresh;
 	const char *rules;
-	double near_floor, marginal, premium, holding_cost, te_budget;
+	double near_floor, premium, holding_cost, te_budget;
+	const char *marginal;
 	size_t bootstrap, block_length, threads;
 	int bootstrap_kind;
 	uint64_t seed;
@@ -33,9 +35,9 @@ static const struct cli_option rolling_own[] = {
 	  NULL, "exact" },
 	{ "near-floor", 0, CLI_FRACTION, OWN(near_floor), "X",
 	  "near-floor rule: sigma within X of the floor sigma, as 0.1 or 10%", NULL, "10%" },
-	{ "marginal", 0, CLI_FRACTION, OWN(marginal), "E",
-	  "marginal rule: one more holding lowers annual sigma by less than E, as 0.001 or 0.1%",
-	  NULL, "0.1%" },
+	{ "marginal", 0, CLI_STRING, OWN(marginal), "EPS",
+	  "marginal rule: one more holding lowers annual sigma by less than EPS (0.10pp, 0.1% or 0.001)",
+	  NULL, "0.10pp" },
 	{ "premium", 0, CLI_FRACTION, OWN(premium), "P",
 	  "cost-benefit rule: the universe portfolio's premium a year", NULL, "5%" },
 	{ "holding-cost", 0, CLI_FRACTION, OWN(holding_cost), "C",
@@ -99,6 +101,22 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	return rc ? cli_fail("rolling", &err) : HC_OK;
 }
 
+/* A yearly sd step as `enough` reads it: "0.10pp", "0.1%" or "0.001". */
+static int parse_step(const char *s, double *out)
+{
+	char *end;
+	double x = strtod(s, &end);
+
+	if (end == s || !isfinite(x))
+		return -1;
+	if (strcmp(end, "pp") == 0 || strcmp(end, "%") == 0)
+		x /= 100;
+	else if (*end)
+		return -1;
+	*out = x;
+	return 0;
+}
+
 static int options(const struct rolling_opts *o, const struct cli_args *a,
 		   struct rolling_options *ro)
 {
@@ -124,7 +142,12 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 		ro->rules.selected = RULES_EXACT_MASK;
 	}
 	ro->rules.near_floor_x = o->near_floor;
-	ro->rules.marginal_eps = o->marginal;
+	if (o->marginal && parse_step(o->marginal, &ro->rules.marginal_eps))
+		return cli_usage_error("rolling", "bad --marginal '%s': expected a yearly sd step such as "
+				       "0.10pp, 0.1%% or 0.001", o->marginal);
+	if (cli_given(a, "premium") != cli_given(a, "holding-cost"))
+		return cli_usage_error("rolling", "give --premium and --holding-cost together (or neither, "
+				       "for the stated defaults)");
 	ro->rules.premium = o->premium;
 	ro->rules.holding_cost = o->holding_cost;
 	ro->rules.cost_defaults = !cli_given(a, "premium") && !cli_given(a, "holding-cost");
@@ -183,7 +206,6 @@ int cmd_rolling(int argc, char **argv)
 	o.step = 12;
 	o.refresh = ROLLING_DEFAULT_REFRESH;
 	o.near_floor = RULES_DEFAULT_NEAR_FLOOR_X;
-	o.marginal = RULES_DEFAULT_MARGINAL_EPS;
 	o.premium = RULES_DEFAULT_PREMIUM;
 	o.holding_cost = RULES_DEFAULT_HOLDING_COST;
 	o.te_budget = RULES_DEFAULT_TE_BUDGET;
