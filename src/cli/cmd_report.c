@@ -522,6 +522,23 @@ static int style_of(const struct report_table *t, const char *key)
 	return j < 0 ? REPORT_STYLE_PLAIN : t->cols[j].style;
 }
 
+/* Numbers align right, words left: a column is numeric when every cell
+ * that holds something is a number. */
+static int numeric_column(const struct report_table *t, const char *key)
+{
+	long j = col_of(t, key);
+	size_t i;
+	int any = 0;
+
+	for (i = 0; j >= 0 && i < t->nrows; i++) {
+		int kind = t->cells[i * t->ncols + (size_t)j].kind;
+		if (kind == REPORT_TEXT || kind == REPORT_BOOL)
+			return 0;
+		any |= kind != REPORT_NONE;
+	}
+	return any;
+}
+
 /* A Markdown table of the given columns (key, heading) of t; rows where
  * keep(row) says so. */
 static void md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
@@ -533,7 +550,7 @@ static void md_table(FILE *fp, const struct report_table *t, const char *const (
 		fprintf(fp, "| %s ", cols[j][1]);
 	fputs("|\n", fp);
 	for (j = 0; j < ncols; j++)
-		fputs(j == 0 ? "|---" : "|--:", fp);
+		fputs(j > 0 && numeric_column(t, cols[j][0]) ? "|--:" : "|:--", fp);
 	fputs("|\n", fp);
 	for (i = 0; i < t->nrows; i++) {
 		if (keep && !keep(t, i, ctx))
@@ -548,7 +565,20 @@ static void md_table(FILE *fp, const struct report_table *t, const char *const (
 	fputc('\n', fp);
 }
 
+/* A row of the readable grid (and the last, N = M).  A grid given with
+ * --sizes that shares few counts with it is shown whole instead. */
+static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx);
+
 static int readable_row(const struct report_table *t, size_t row, const void *ctx)
+{
+	size_t i, kept = 0;
+
+	for (i = 0; i < t->nrows; i++)
+		kept += (size_t)on_readable_grid(t, i, ctx);
+	return kept >= 6 || kept == t->nrows ? on_readable_grid(t, row, ctx) : 1;
+}
+
+static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx)
 {
 	const struct report_value *v = cell(t, row, "n");
 	size_t m = *(const size_t *)ctx, k;
@@ -615,41 +645,90 @@ static void md_curve(FILE *fp, const struct run *r)
 		md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row, &r->u->m);
 }
 
+/* What each rule asks, in a line a committee reader can follow; sources as
+ * in docs/enough.md. */
+static const char *const rule_legend[RULES_COUNT] = {
+	"near-floor: the expected sd is within x of the floor, the sd no number of holdings gets below",
+	"marginal: one more holding lowers the expected sd by less than eps a year",
+	"band: the q-quantile of random portfolios' sd is within x of the floor, so even an unlucky "
+	"draw of that many holdings is near it",
+	"cost-benefit (after Statman, 1987, Journal of Financial and Quantitative Analysis 22(3)): the "
+	"premium earned on the risk one more holding removes falls below that holding's yearly cost",
+	"tracking-error: the expected tracking error against the equal-weight portfolio of the whole "
+	"universe is within the budget",
+	"shortfall (after Domian, Louton & Racine, 2007, The Financial Review 42(4)): fewer than p of "
+	"random portfolios trail the universe's return over the sample by more than d a year",
+};
+
 static void md_rules(FILE *fp, const struct run *r)
 {
 	static const char *const cols[][2] = {
 		{ "rule", "rule" }, { "parameters", "parameters" }, { "count", "count" },
-		{ "count_p05", "5%" }, { "count_p95", "95%" }, { "value_at_count", "value at count" },
-		{ "note", "note" },
+		{ "count_p05", "5%" }, { "count_p50", "median" }, { "count_p95", "95%" },
+		{ "value_at_count", "value at count" }, { "unit", "value is" }, { "note", "note" },
 	};
 	const struct report_table *t = table_of(r->rep_enough, "rules");
+	size_t k;
+	int sampled = 0, intervals = 0;
 
+	for (k = 0; k < r->nrules; k++) {
+		sampled |= (RULES_FLAG(r->rules[k].rule) & RULES_SAMPLED_MASK) && r->rules[k].defined;
+		intervals |= r->rules[k].bootstrapped;
+	}
 	fputs("## How many holdings are enough\n\n", fp);
-	fputs("Each rule's smallest count meeting it; 5% and 95% are the percentiles of that count over a "
-	      "bootstrap of the periods (the data's own estimation error). See `enough.csv` for units and "
-	      "thresholds.\n\n", fp);
+	fputs("Each rule turns the curve into one count: the smallest number of equal-weight holdings that "
+	      "meets it.\n\n", fp);
+	for (k = 0; k < r->nrules; k++)
+		if (r->rules[k].rule >= 0 && r->rules[k].rule < RULES_COUNT)
+			fprintf(fp, "- %s\n", rule_legend[r->rules[k].rule]);
+	fputc('\n', fp);
+	if (intervals)
+		fprintf(fp, "How to read it: the count is the estimate from the whole history; 5%%, median and 95%% "
+			"are percentiles of the count when the periods are resampled (%s bootstrap, %zu replicates), "
+			"so 5%% to 95%% is a 90%% interval from the data's own estimation error. A narrow interval "
+			"means the history pins the count down; a wide one means a minimum-holdings rule should "
+			"lean to its upper end. Fractional percentiles fall between two replicates' counts. "
+			"\"not met\" in an interval means some replicates never meet the rule.%s\n\n",
+			bootstrap_kind_name(r->o->rul.bootstrap_kind), r->o->rul.bootstrap,
+			sampled && !r->o->rul.bootstrap_sampled
+			? " The sampled rules (band, shortfall) are drawn from random portfolios and have no interval "
+			  "here: `--bootstrap-sampled` gives them one, at some cost in time." : "");
+	else
+		fputs("How to read it: the count is the estimate from the whole history; no bootstrap was run "
+		      "(`--bootstrap 0`), so there is no interval for the estimation error in it.\n\n", fp);
 	if (t)
 		md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
 }
 
 static void md_audit(FILE *fp, const struct run *r)
 {
 	static const char *const cols[][2] = {
 		{ "fund", "fund" }, { "holdings", "holdings" }, { "effective_holdings", "effective (1/HHI)" },
-		{ "max_weight", "largest weight" }, { "sd", "sd a year" }, { "equivalent_count", "equivalent count" },
-		{ "sd_percentile", "sd percentile" }, { "passed", "passed" }, { "failed_rules", "failed" },
+		{ "max_weight", "largest weight" }, { "top10_share", "top 10" }, { "sd", "sd a year" },
+		{ "equivalent_count", "equivalent count" }, { "sd_percentile", "sd percentile" },
+		{ "ucits", "UCITS" }, { "1940act", "1940 Act" }, { "ric", "RIC" },
+		{ "passed", "passes policy" }, { "failed_rules", "fails" },
 	};
 	const struct report_table *t = table_of(r->rep_audit, "funds");
 
 	fputs("## Audited funds\n\n", fp);
 	if (!t) {
-		fputs("No holdings were given (--holdings FILE audits funds).\n\n", fp);
+		fputs("No holdings were given (`--holdings FILE` audits funds).\n\n", fp);
 		return;
 	}
-	fprintf(fp, "From `%s`. The equivalent count is the number of equal-weight random holdings with the "
-		"same expected risk; the percentile places the fund's sd among random portfolios of its own "
-		"count. Screens and sector weights are in `audit.csv` and `summary.json`.\n\n",
-		r->hold.holdings);
+	fprintf(fp, "From `%s`, against the universe above.\n\n", r->hold.holdings);
+	md_field(fp, r->rep_audit, "policy", "policy");
+	md_field(fp, r->rep_audit, "failed_funds", "funds failing it");
+	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
+	      "equivalent count is the number of random equal-weight holdings with the fund's own sd (\"below "
+	      "the floor\" when no count of them is that low); the sd percentile places the fund's sd among "
+	      "random equal-weight portfolios of its own count (50% is typical, high is riskier). UCITS, 1940 "
+	      "Act and RIC are the weight screens of Directive 2009/65/EC Art. 52, the Investment Company Act "
+	      "of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3), written from memory of the texts: "
+	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
+	      "only when `--screens` names it. Sector weights and each screen's deciding figure are in "
+	      "`audit.csv` and `summary.json`.\n\n", fp);
 	md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
 }
 
@@ -699,6 +778,9 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 	fputs("## Cautions\n\n", fp);
 	for (i = 0; i < r->rep_universe->nnotes; i++)
 		fprintf(fp, "- %s\n", r->rep_universe->notes[i]);
+	if (r->rep_audit)
+		fputs("- regulatory screens: written from memory of the published texts and testing weights only; "
+		      "verify against the current text and defer to compliance counsel\n", fp);
 	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
 	      "`--format csv` and the same options\n- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a "
