@@ -4,9 +4,9 @@ set title "@TITLE@\n@BASIS@"
 set xlabel "holding count N (log scale): fund's positions (square) and effective holdings 1/HHI (diamond)"
 set ylabel "standard deviation (% a year)"
 set logscale x
-set xrange [1:@XMAX@]
+set xrange [@XMIN@:@XMAX@]
 set xtics (@XTICS@)
 floor = @FLOOR@
 set key top right
-set yrange [0.8 * floor:*]
+set yrange [@YMIN@:*]
 set format y "%.0f%%"

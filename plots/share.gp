@@ -7,4 +7,6 @@ set logscale x
 set xrange [1:@XMAX@]
 set xtics (@XTICS@)
 set yrange [0:100]
+# the curve falls to the bottom right: the key goes where it is not
+set key top right
 set format y "%.0f%%"

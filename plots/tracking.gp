@@ -7,5 +7,7 @@ set logscale x
 set xrange [1:@XMAX@]
 set xtics (@XTICS@)
 set yrange [0:*]
+# the curve, the budget and the rule's mark run along the bottom
+set key top right
 set format y "%.0f%%"
 budget = @BUDGET@

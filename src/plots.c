@@ -458,6 +458,48 @@ static double plot_xmax(int kind, const struct plots_input *in)
 	return kind == PLOTS_RISK ? ceil(x * 1.02) : x;
 }
 
+/*
+ * The funds plot starts its count axis a little left of the smallest fund
+ * (a third of its effective count, down to the 1-2-5 step below) rather
+ * than at 1: funds sit where the curve is nearly flat, and the axis from 1
+ * would spend the height on single holdings none of them has, squeezing
+ * the funds and the curve they are judged against into a sliver.
+ */
+static double funds_xmin(const struct plots_input *in)
+{
+	static const double steps[] = { 5, 2, 1 };
+	double lo = INFINITY, decade;
+	size_t i;
+
+	for (i = 0; i < in->audit->nfunds; i++) {
+		const struct audit_fund *f = &in->audit->funds[i];
+		if (fund_plottable(f) && f->effective_holdings < lo)
+			lo = f->effective_holdings;
+	}
+	lo /= 3;
+	if (!(lo > 1))
+		return 1;
+	for (decade = pow(10, floor(log10(lo)));; decade /= 10)
+		for (i = 0; i < 3; i++)
+			if (steps[i] * decade <= lo)
+				return steps[i] * decade;
+}
+
+/* The bottom of the funds plot, in percent: a little under the floor and
+ * under the lowest fund (a fund may sit below the floor). */
+static double funds_ymin(const struct plots_input *in, double floor_pct)
+{
+	double lo = 0.9 * floor_pct;
+	size_t i;
+
+	for (i = 0; i < in->audit->nfunds; i++) {
+		const struct audit_fund *f = &in->audit->funds[i];
+		if (fund_plottable(f) && 95.0 * f->sd < lo)
+			lo = 95.0 * f->sd;
+	}
+	return lo;
+}
+
 static void risk_plot(FILE *fp, int kind, const struct plots_input *in, size_t nmarks)
 {
 	/* labels column: 4 on the linear axis, 5 on the log axis (1 = left) */
@@ -489,8 +531,10 @@ static void tracking_plot(FILE *fp, const struct plots_input *in)
 		const struct rule_result *r = &in->rules[i];
 		if (r->rule == RULES_TRACKING_ERROR && r->defined && r->met && isfinite(in->te_budget)) {
 			fprintf(fp, "set arrow from %zu, graph 0 to %zu, budget nohead ls 5\n", r->count, r->count);
+			/* under the budget line, left of the mark: the curve runs above
+			 * the budget there (it meets it at the count), so nothing is struck */
 			fprintf(fp, "set label \"tracking-error rule: %zu holdings\" at %zu, budget right offset "
-				"character -0.5,1 font \",10\" textcolor rgb \"#7b2d63\"\n", r->count, r->count);
+				"character -0.5,-0.9 font \",10\" textcolor rgb \"#7b2d63\"\n", r->count, r->count);
 		}
 	}
 	fputs("plot 'exact.dat' using 1:4 with lines ls 1 title \"sqrt of the exact expected squared tracking "
@@ -550,7 +594,7 @@ static void plot_command(FILE *fp, int kind, const struct plots_input *in, size_
 int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
 		       struct hc_error *err)
 {
-	char title[256], basis[200], xmax[32], floor_pct[32], budget[32], tics[256];
+	char title[256], basis[200], xmin[32], xmax[32], ymin[32], floor_pct[32], budget[32], tics[256];
 	struct mark *mk = NULL;
 	size_t nmarks = 0;
 	int rc;
@@ -574,14 +618,17 @@ int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int for
 	}
 	snprintf(basis, sizeof basis, "annualised from %.10g periods a year (variance times %.10g, sd times its "
 		 "square root)", in->exact->periods_per_year, in->exact->periods_per_year);
+	snprintf(xmin, sizeof xmin, "%.0f", kind == PLOTS_FUNDS ? funds_xmin(in) : 1.0);
 	snprintf(xmax, sizeof xmax, "%.0f", plot_xmax(kind, in));
 	snprintf(floor_pct, sizeof floor_pct, "%.10g",
 		 in->exact->floor_variance > 0 ? 100.0 * sqrt(in->exact->floor_variance) : 0.0);
+	snprintf(ymin, sizeof ymin, "%.10g", kind == PLOTS_FUNDS
+		 ? funds_ymin(in, in->exact->floor_variance > 0 ? 100.0 * sqrt(in->exact->floor_variance) : 0.0) : 0.0);
 	snprintf(budget, sizeof budget, "%.10g", isfinite(in->te_budget) ? 100.0 * in->te_budget : 0.0);
 	log_tics(tics, sizeof tics, plot_xmax(kind, in));
 	{
 		const struct subst s[] = {
-			{ "TITLE", title }, { "BASIS", basis }, { "XMAX", xmax },
+			{ "TITLE", title }, { "BASIS", basis }, { "XMIN", xmin }, { "XMAX", xmax }, { "YMIN", ymin },
 			{ "FLOOR", floor_pct }, { "BUDGET", budget }, { "XTICS", tics },
 		};
 		fprintf(fp, "# %s.gp - written by holdcount; render with: gnuplot %s.gp\n"

@@ -99,6 +99,17 @@ expect 0 "" -- audit "$T/u.csv" --holdings "$T/short.csv" --allow-short --paths 
 expect 2 "--holdings FILE is required" -- audit "$T/u.csv"
 expect 2 "unknown screen 'ucit'" -- audit "$T/u.csv" --holdings "$T/ok.csv" --screens ucits,ucit
 expect 2 "--max-sector-weight needs --sectors FILE" -- audit "$T/u.csv" --holdings "$T/ok.csv" --max-sector-weight 30%
+expect 2 "unknown option '--sizes'" -- audit "$T/u.csv" --holdings "$T/ok.csv" --sizes 1-3
+expect 2 "--covariance does not apply" -- audit "$T/u.csv" --holdings "$T/ok.csv" --covariance
+expect 2 "--missing pairwise does not apply" -- audit "$T/u.csv" --holdings "$T/ok.csv" --missing pairwise
+expect 2 "--log-returns needs --prices" -- audit "$T/u.csv" --holdings "$T/ok.csv" --log-returns
+HOLDCOUNT_THREADS=0 expect 2 "HOLDCOUNT_THREADS must be a whole number from 1" -- audit "$T/u.csv" --holdings "$T/ok.csv"
+# help lists what audit accepts: --paths, --seed and --threads, not --sizes
+"$HOLDCOUNT" audit --help >"$T/help" 2>&1
+for o in --paths --seed --threads --holdings --min-holdings --screens; do
+	grep -q -- "^ *$o " "$T/help" || { echo "FAIL: audit --help lacks $o"; fails=$((fails + 1)); }
+done
+grep -q -- "--sizes" "$T/help" && { echo "FAIL: audit --help lists --sizes, which audit refuses"; fails=$((fails + 1)); }
 # a holdings file that does not exist: i/o error, 4
 expect 4 "$T/none.csv" -- audit "$T/u.csv" --holdings "$T/none.csv"
 

@@ -93,5 +93,27 @@ ls -d "$T"/kill.tmp-* >/dev/null 2>&1 && fail "the run after SIGKILL did not rem
 [ $rc -eq 2 ] || fail "--plot-format gif: exit $rc, expected 2"
 [ -e "$T/x" ] && fail "a usage error wrote a folder"
 
+# 8. The audit's policy options: refused without holdings, and with the
+# demo's funds a failing fund gives exit 1 after the whole folder is written
+# (the demo's Select Fund C holds 12% in one position: common practice
+# reading of a 10% cap; the demo data are invented, data/README.md).
+U=$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv
+"$HC" report "$U" -o "$T/nohold" --max-weight 10% "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] && grep -q -- "--max-weight applies to the audit of funds: give --holdings FILE" "$T/err" ||
+	fail "--max-weight without --holdings: exit $rc, $(cat "$T/err")"
+[ -e "$T/nohold" ] && fail "a refused policy option wrote a folder"
+"$HC" report -o "$T/policy" --max-weight 10% "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 1 ] || fail "demo report with --max-weight 10%: exit $rc, expected 1"
+grep -q "fails the policy: 'Lirrand Select Fund C' (max-weight)" "$T/err" || fail "failing fund not named: $(cat "$T/err")"
+[ -s "$T/policy/summary.json" ] && [ -s "$T/policy/audit.csv" ] || fail "a failing fund left the folder incomplete"
+grep -q '^- policy: largest weight <= 10%' "$T/policy/summary.md" || fail "summary.md does not state the policy"
+grep -q '| Lirrand Select Fund C | .*| no | max-weight |' "$T/policy/summary.md" || fail "summary.md does not show Fund C failing"
+# the rules section explains itself: a line per rule, how to read the interval
+grep -q '^- shortfall (after Domian, Louton & Racine, 2007' "$T/a/summary.md" || fail "summary.md lacks the shortfall rule's line"
+grep -q -- '--bootstrap-sampled` gives them one' "$T/a/summary.md" || fail "summary.md does not say why band and shortfall have no interval"
+"$HC" report -o "$T/bs" "${FAST[@]}" --bootstrap 20 --bootstrap-sampled --bootstrap-paths 50 || fail "--bootstrap-sampled exited $?"
+grep -q -- '--bootstrap-sampled` gives them one' "$T/bs/summary.md" && fail "summary.md says band has no interval under --bootstrap-sampled"
+grep -Eq '^\| band \| [^|]* \| [0-9]+ \| [0-9.]+ \| [0-9.]+ \| [0-9.]+ \| ' "$T/bs/summary.md" || fail "band has no interval with --bootstrap-sampled"
+
 echo "cli_report: $fails failures"
 [ $fails -eq 0 ]

@@ -90,6 +90,8 @@ static const struct cli_option sampling_options[] = {
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 const struct cli_group cli_group_sampling = { "sampling options", sampling_options };
+/* --sizes is the table's first entry, so the rest of the table is the group without it. */
+const struct cli_group cli_group_sampling_no_sizes = { "sampling options", sampling_options + 1 };
 
 #define SUM(f) offsetof(struct cli_summary, f)
 static const struct cli_option summary_options[] = {
@@ -290,7 +292,7 @@ static int threads_from_environment(const struct cli_command *cmd, void *opts)
 	if (!env || !*env)
 		return HC_OK;
 	for (g = cmd->groups; g && g->group; g++) {
-		if (g->group != &cli_group_sampling)
+		if (g->group != &cli_group_sampling && g->group != &cli_group_sampling_no_sizes)
 			continue;
 		if (parse_count(env, &n) || n == 0) {
 			fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be a whole number from 1, found '%s'\n",

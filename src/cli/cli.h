@@ -166,6 +166,10 @@ struct cli_sampling {
 	size_t threads;            /* 0 = all cores (OpenMP's default) */
 };
 extern const struct cli_group cli_group_sampling;
+/* The same group without --sizes (the same struct, sizes left NULL), for a
+ * command whose counts are not a grid: audit compares each fund at its own
+ * count, so its help lists only what works. */
+extern const struct cli_group cli_group_sampling_no_sizes;
 void cli_sampling_init(struct cli_sampling *s);
 
 /* --average-variance, --average-covariance, --average-sd,
@@ -309,6 +313,108 @@ int cli_curve_table(struct report *r, const struct curve *c, int annualised);
  * the file there is readable, 0 otherwise (buf then names the last place
  * tried, for the message). */
 int cli_data_file(char *buf, size_t size, const char *file);
+
+/* ---- what `report` shares with `curve`, `enough` and `audit` ---------------- */
+
+/* The sampled columns of c from sam's paths and seed: random portfolios of
+ * the return series of u, or of the covariance matrix cm when u is NULL;
+ * a progress bar unless quiet.  Sets c->paths and c->seed.  Library status
+ * in err (not printed).  Defined in cmd_curve.c. */
+struct covmatrix;
+int cli_curve_sample(const struct cli_sampling *sam, int quiet, const struct universe *u,
+		     const struct covmatrix *cm, struct curve *c, const size_t *sizes, size_t nsizes,
+		     struct hc_error *err);
+
+/* What a curve was computed from: a return history or a matrix. */
+struct cli_curve_source {
+	const char *path;
+	const char *input;          /* "return history" or "covariance matrix" */
+	size_t m, dropped, periods; /* periods 0: unknown (a matrix) */
+	int annualised;
+};
+/* The fields and the "curve" table that `holdcount curve` prints, without
+ * notes or cautions.  HC_ENOMEM only.  Defined in cmd_curve.c. */
+struct moments;
+int cli_curve_fields(struct report *r, const struct cli_curve_source *src, const struct moments *mo,
+		     const struct curve *c);
+
+/* The rule options of `enough` (cmd_enough.c): --rules, each rule's
+ * parameters, --bootstrap and its kind, --bootstrap-sampled. */
+struct cli_rules {
+	const char *rules;
+	double near_floor;
+	const char *marginal;
+	const char *band;
+	double premium, holding_cost;
+	double te_budget;
+	const char *shortfall;
+	size_t bootstrap;
+	int bootstrap_kind;
+	size_t block_length;
+	int bootstrap_sampled;
+	size_t bootstrap_paths;
+};
+extern const struct cli_group cli_group_rules;
+void cli_rules_init(struct cli_rules *r);
+
+/* The rules configuration from the group; have_data 0 (summary statistics)
+ * or covariance 1 select the exact rules by default.  Prints its error;
+ * returns the exit status. */
+struct rules_config;
+int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cli_args *a,
+		     int have_data, int covariance, struct rules_config *cfg);
+
+/* Every rule of cfg on the return history u (moments mo), exactly as
+ * `holdcount enough UNIVERSE` runs them: exact, the sampled rules staged by
+ * rules_sampled with smp's paths and seed (strata when strat says so), the
+ * bootstrap interval, and with --bootstrap-sampled the sampled rules'
+ * interval.  res has room for RULES_COUNT; *out gets the report `enough`
+ * prints (release with report_free).  Prints its error; returns the exit
+ * status. */
+struct rule_result;
+struct cli_strata;
+int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
+		    struct cli_strata *strat, int quiet, const struct universe *u,
+		    const struct moments *mo, const struct rules_config *cfg,
+		    struct rule_result *res, size_t *nres, struct report **out);
+
+/* The holdings inputs of `audit` (cmd_audit.c): --holdings, --sectors,
+ * --allow-short, --strict and the column names. */
+struct cli_holdings {
+	const char *holdings;
+	const char *sectors;
+	int allow_short;
+	int strict;
+	const char *fund_column, *holding_id_column, *weight_column, *market_value_column, *issuer_column;
+};
+extern const struct cli_group cli_group_holdings;
+
+/* The audit policy: --min-holdings, --min-effective, --max-weight,
+ * --max-sector-weight, --screens. */
+struct cli_policy {
+	size_t min_holdings;
+	double min_effective;
+	double max_weight;
+	double max_sector_weight;
+	const char *screens;
+};
+extern const struct cli_group cli_group_policy;
+
+/* Load the holdings (and sector map) of ho and audit them against u
+ * (moments mo) with po's policy and sam's paths and seed, exactly as
+ * `holdcount audit` does; the loader's warnings go to stderr.  *out gets the
+ * report `audit` prints.  The caller frees *h, *labels, *res and *out (each
+ * may be set on failure).  A failed policy is not an error here: see
+ * (*res)->failed_funds.  Prints its error; returns the exit status. */
+struct holdings;
+struct holdings_labels;
+struct audit_result;
+int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+		   const struct cli_sampling *sam, int quiet, const struct universe *u,
+		   const struct moments *mo, struct holdings **h, struct holdings_labels **labels,
+		   struct audit_result **res, struct report **out);
+/* "holdcount CMD: 2 of 3 funds fail the policy: 'A' (max-weight), ..." on stderr. */
+void cli_audit_say_failures(const char *cmd, const struct audit_result *res);
 
 /* ---- stratified draws (cli_strata.c) -------------------------------------- */
 

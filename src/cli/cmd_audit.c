@@ -20,58 +20,59 @@
 #include "holdcount/universe.h"
 
 struct audit_opts {
-	const char *holdings;
-	const char *sectors;
-	size_t min_holdings;
-	double min_effective;
-	double max_weight;
-	double max_sector_weight;
-	const char *screens;
-	int allow_short;
-	int strict;
-	const char *fund_column, *holding_id_column, *weight_column, *market_value_column, *issuer_column;
+	struct cli_holdings hold;
+	struct cli_policy pol;
 	struct cli_sampling sam;
 	struct cli_universe uni;
 	struct cli_output out;
 };
 
-#define AO(f) offsetof(struct audit_opts, f)
-static const struct cli_option audit_own[] = {
-	{ "holdings", 0, CLI_STRING, AO(holdings), "FILE",
-	  "holdings CSV: fund,id,weight or fund,id,value, optionally issuer (required)", NULL, NULL },
-	{ "sectors", 0, CLI_STRING, AO(sectors), "FILE",
+/* Both groups are shared with `holdcount report` (cli.h). */
+#define HO(f) offsetof(struct cli_holdings, f)
+static const struct cli_option holdings_own[] = {
+	{ "holdings", 0, CLI_STRING, HO(holdings), "FILE",
+	  "holdings CSV: fund,id,weight or fund,id,value, optionally issuer", NULL, NULL },
+	{ "sectors", 0, CLI_STRING, HO(sectors), "FILE",
 	  "sector map CSV id,label: sector weights, sector HHI, --max-sector-weight", NULL, NULL },
-	{ "min-holdings", 0, CLI_COUNT, AO(min_holdings), "N",
-	  "policy: at least N positions per fund", NULL, "no rule" },
-	{ "min-effective", 0, CLI_REAL, AO(min_effective), "X",
-	  "policy: effective number of holdings (1/HHI) at least X", NULL, "no rule" },
-	{ "max-weight", 0, CLI_FRACTION, AO(max_weight), "W",
-	  "policy: no position above W (0.05 or 5%)", NULL, "no rule" },
-	{ "max-sector-weight", 0, CLI_FRACTION, AO(max_sector_weight), "W",
-	  "policy: no sector above W (needs --sectors)", NULL, "no rule" },
-	{ "screens", 0, CLI_STRING, AO(screens), "LIST",
-	  "policy: weight screens each fund must pass: ucits, 1940act, ric, all or none", NULL, "none" },
-	{ "allow-short", 0, CLI_FLAG, AO(allow_short), NULL,
+	{ "allow-short", 0, CLI_FLAG, HO(allow_short), NULL,
 	  "accept negative weights (short positions)", NULL, NULL },
-	{ "strict", 0, CLI_FLAG, AO(strict), NULL,
+	{ "strict", 0, CLI_FLAG, HO(strict), NULL,
 	  "refuse ids missing from the universe instead of computing risk on the rest", NULL, NULL },
-	{ "fund-column", 0, CLI_STRING, AO(fund_column), "NAME",
+	{ "fund-column", 0, CLI_STRING, HO(fund_column), "NAME",
 	  "holdings column naming the fund", NULL, "fund" },
-	{ "holding-id-column", 0, CLI_STRING, AO(holding_id_column), "NAME",
+	{ "holding-id-column", 0, CLI_STRING, HO(holding_id_column), "NAME",
 	  "holdings column with the security id", NULL, "id" },
-	{ "weight-column", 0, CLI_STRING, AO(weight_column), "NAME",
+	{ "weight-column", 0, CLI_STRING, HO(weight_column), "NAME",
 	  "holdings column with weights", NULL, "weight" },
-	{ "market-value-column", 0, CLI_STRING, AO(market_value_column), "NAME",
+	{ "market-value-column", 0, CLI_STRING, HO(market_value_column), "NAME",
 	  "holdings column with market values, normalised per fund", NULL, "value" },
-	{ "issuer-column", 0, CLI_STRING, AO(issuer_column), "NAME",
+	{ "issuer-column", 0, CLI_STRING, HO(issuer_column), "NAME",
 	  "holdings column mapping ids to issuers for the screens", NULL, "issuer, when present" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
-static const struct cli_group audit_group = { "audit options", audit_own };
+const struct cli_group cli_group_holdings = { "holdings options", holdings_own };
 
+#define PO(f) offsetof(struct cli_policy, f)
+static const struct cli_option policy_own[] = {
+	{ "min-holdings", 0, CLI_COUNT, PO(min_holdings), "N",
+	  "policy: at least N positions per fund", NULL, "no rule" },
+	{ "min-effective", 0, CLI_REAL, PO(min_effective), "X",
+	  "policy: effective number of holdings (1/HHI) at least X", NULL, "no rule" },
+	{ "max-weight", 0, CLI_FRACTION, PO(max_weight), "W",
+	  "policy: no position above W (0.05 or 5%)", NULL, "no rule" },
+	{ "max-sector-weight", 0, CLI_FRACTION, PO(max_sector_weight), "W",
+	  "policy: no sector above W (needs --sectors)", NULL, "no rule" },
+	{ "screens", 0, CLI_STRING, PO(screens), "LIST",
+	  "policy: weight screens each fund must pass: ucits, 1940act, ric, all or none", NULL, "none" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_policy = { "policy options", policy_own };
+
+#define AO(f) offsetof(struct audit_opts, f)
 static const struct cli_group_use audit_groups[] = {
-	{ &audit_group, 0 },
-	{ &cli_group_sampling, AO(sam) },
+	{ &cli_group_holdings, AO(hold) },
+	{ &cli_group_policy, AO(pol) },
+	{ &cli_group_sampling_no_sizes, AO(sam) },
 	{ &cli_group_universe, AO(uni) },
 	{ &cli_group_output, AO(out) },
 	{ NULL, 0 }
@@ -80,8 +81,8 @@ static const struct cli_group_use audit_groups[] = {
 const struct cli_command cli_command_audit = {
 	"audit", cmd_audit,
 	"concentration audit of actual funds against the universe and a policy",
-	"UNIVERSE",
-	"Reads the funds in --holdings and, for each, reports: positions, weight sum before "
+	"UNIVERSE --holdings FILE",
+	"Reads the funds in --holdings (required) and, for each, reports: positions, weight sum before "
 	"normalising, largest weight, top-10 share, HHI and effective number of holdings; the "
 	"fund's sd from the universe's history, its diversification ratio, its equivalent count (or "
 	"'below the floor'), the percentile of its sd among random equal-weight portfolios of the "
@@ -93,83 +94,41 @@ const struct cli_command cli_command_audit = {
 	1, 1, audit_groups
 };
 
-static int check_options(const struct audit_opts *o, const struct cli_args *a,
-			 struct audit_options *ao)
+/* The audit's options from the groups; usage errors printed. */
+static int audit_options_from(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+			      const struct cli_sampling *sam, struct audit_options *ao)
 {
 	struct hc_error err;
 
-	if (!o->holdings)
-		return cli_usage_error("audit", "--holdings FILE is required (see 'holdcount audit --help')");
-	if (cli_given(a, "sizes"))
-		return cli_usage_error("audit", "--sizes does not apply: each fund is compared at its own count");
-	if (o->uni.missing == CLI_MISSING_PAIRWISE)
-		return cli_usage_error("audit", "--missing pairwise does not apply: a fund's sd needs complete series");
-	if (o->max_sector_weight > 0 && !o->sectors)
-		return cli_usage_error("audit", "--max-sector-weight needs --sectors FILE");
-	if (!(o->min_effective >= 0))
-		return cli_usage_error("audit", "--min-effective must be 0 or more, found %g", o->min_effective);
-	if (!(o->max_weight >= 0 && o->max_weight <= 1) || !(o->max_sector_weight >= 0 && o->max_sector_weight <= 1))
-		return cli_usage_error("audit", "--max-weight and --max-sector-weight must be between 0 and 1 (or 100%%)");
-	if (o->weight_column && o->market_value_column)
-		return cli_usage_error("audit", "--weight-column and --market-value-column exclude each other");
+	if (po->max_sector_weight > 0 && !ho->sectors)
+		return cli_usage_error(cmd, "--max-sector-weight needs --sectors FILE");
+	if (!(po->min_effective >= 0))
+		return cli_usage_error(cmd, "--min-effective must be 0 or more, found %g", po->min_effective);
+	if (!(po->max_weight >= 0 && po->max_weight <= 1) || !(po->max_sector_weight >= 0 && po->max_sector_weight <= 1))
+		return cli_usage_error(cmd, "--max-weight and --max-sector-weight must be between 0 and 1 (or 100%%)");
+	if (ho->weight_column && ho->market_value_column)
+		return cli_usage_error(cmd, "--weight-column and --market-value-column exclude each other");
 	audit_options_init(ao);
 	hc_error_clear(&err);
-	if (o->screens && audit_parse_screens(o->screens, &ao->policy.screens, &err) != HC_OK)
-		return cli_usage_error("audit", "--screens: %s", err.message);
-	ao->policy.min_holdings = o->min_holdings;
-	ao->policy.min_effective = o->min_effective;
-	ao->policy.max_weight = o->max_weight;
-	ao->policy.max_sector_weight = o->max_sector_weight;
-	ao->strict = o->strict;
-	ao->paths = o->sam.paths;
-	ao->seed = o->sam.seed;
-	ao->threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
+	if (po->screens && audit_parse_screens(po->screens, &ao->policy.screens, &err) != HC_OK)
+		return cli_usage_error(cmd, "--screens: %s", err.message);
+	ao->policy.min_holdings = po->min_holdings;
+	ao->policy.min_effective = po->min_effective;
+	ao->policy.max_weight = po->max_weight;
+	ao->policy.max_sector_weight = po->max_sector_weight;
+	ao->strict = ho->strict;
+	ao->paths = sam->paths;
+	ao->seed = sam->seed;
+	ao->threads = sam->threads > INT_MAX ? INT_MAX : (int)sam->threads;
 	return HC_OK;
 }
 
-/* The universe options as every command reads them (the shared loader in
- * the CLI framework was not on main when this was written). */
-static int load_universe(const struct cli_universe *cu, const char *path,
-			 struct universe **u)
-{
-	struct universe_options uo;
-	struct hc_error err;
-
-	universe_options_init(&uo);
-	if (cu->covariance)
-		return cli_usage_error("audit", "--covariance does not apply: a fund's sd needs return series");
-	if (cu->log_returns && !cu->prices)
-		return cli_usage_error("audit", "--log-returns needs --prices (log returns are computed from prices)");
-	uo.values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
-	uo.layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
-	uo.percent = cu->percent;
-	uo.missing = UNIVERSE_MISSING_COMPLETE;
-	if (!isnan(cu->periods_per_year) && cu->periods_per_year < 0)
-		return cli_usage_error("audit", "--periods-per-year must be positive, found %g", cu->periods_per_year);
-	uo.periods_per_year = isnan(cu->periods_per_year) ? 0.0 : cu->periods_per_year;
-	if (cu->delimiter) {
-		if (strcmp(cu->delimiter, ",") && strcmp(cu->delimiter, ";"))
-			return cli_usage_error("audit", "--delimiter must be ',' or ';', found '%s'", cu->delimiter);
-		uo.delimiter = cu->delimiter[0];
-	}
-	uo.date_column = cu->date_column;
-	uo.id_column = cu->id_column;
-	uo.value_column = cu->value_column;
-	if (cu->max_memory_mib > SIZE_MAX >> 20)
-		return cli_usage_error("audit", "--max-memory %zu MiB does not fit in this machine's address space",
-				       cu->max_memory_mib);
-	uo.max_bytes = cu->max_memory_mib << 20;
-	hc_error_clear(&err);
-	if (universe_load(u, path, &uo, &err) != HC_OK)
-		return cli_fail("audit", &err);
-	return HC_OK;
-}
-
-static int load_inputs(const struct audit_opts *o, struct holdings **h,
+static int load_inputs(const char *cmd, const struct cli_holdings *o, struct holdings **h,
 		       struct holdings_labels **l)
 {
 	struct holdings_options ho;
 	struct hc_error err;
+	size_t k;
 
 	holdings_options_init(&ho);
 	ho.fund_column = o->fund_column;
@@ -180,20 +139,47 @@ static int load_inputs(const struct audit_opts *o, struct holdings **h,
 	ho.allow_short = o->allow_short;
 	hc_error_clear(&err);
 	if (holdings_load(h, o->holdings, &ho, &err) != HC_OK)
-		return cli_fail("audit", &err);
+		return cli_fail(cmd, &err);
+	for (k = 0; k < (*h)->nwarnings; k++)
+		fprintf(stderr, "holdcount %s: warning: %s\n", cmd, (*h)->warnings[k]);
 	if (o->sectors && holdings_labels_load(l, o->sectors, 0, &err) != HC_OK)
-		return cli_fail("audit", &err);
+		return cli_fail(cmd, &err);
 	return HC_OK;
+}
+
+int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+		   const struct cli_sampling *sam, int quiet, const struct universe *u,
+		   const struct moments *mo, struct holdings **h, struct holdings_labels **labels,
+		   struct audit_result **res, struct report **out)
+{
+	struct audit_options ao;
+	struct cli_progress prog;
+	struct hc_error err;
+	int rc;
+
+	if ((rc = audit_options_from(cmd, ho, po, sam, &ao)) != HC_OK ||
+	    (rc = load_inputs(cmd, ho, h, labels)) != HC_OK)
+		return rc;
+	ao.sectors = *labels;
+	hc_error_clear(&err);
+	cli_progress_init(&prog, "sampling the funds' counts", "paths", quiet);
+	ao.progress = cli_progress_update;
+	ao.progress_ctx = &prog;
+	rc = audit_run(res, *h, u, mo, &ao, &err);
+	cli_progress_finish(&prog);
+	if (rc == HC_OK)
+		rc = audit_report(out, *res, *h, &err);
+	return rc ? cli_fail(cmd, &err) : HC_OK;
 }
 
 /* Name the failing funds and rules on stderr, so a log shows why the
  * status is 1 even when the report went to a file. */
-static void say_failures(const struct audit_result *res)
+void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 {
 	size_t f;
 	int k;
 
-	fprintf(stderr, "holdcount audit: %zu of %zu fund%s fail%s the policy:", res->failed_funds,
+	fprintf(stderr, "holdcount %s: %zu of %zu fund%s fail%s the policy:", cmd, res->failed_funds,
 		res->nfunds, res->nfunds == 1 ? "" : "s", res->failed_funds == 1 ? "s" : "");
 	for (f = 0; f < res->nfunds; f++) {
 		const char *sep = " (";
@@ -213,7 +199,6 @@ static void say_failures(const struct audit_result *res)
 int cmd_audit(int argc, char **argv)
 {
 	struct audit_opts o;
-	struct audit_options ao;
 	struct cli_args a;
 	struct universe *u = NULL;
 	struct holdings *h = NULL;
@@ -221,9 +206,7 @@ int cmd_audit(int argc, char **argv)
 	struct audit_result *res = NULL;
 	struct report *r = NULL;
 	struct moments mo;
-	struct cli_progress prog;
 	struct hc_error err;
-	size_t k;
 	int rc;
 
 	memset(&o, 0, sizeof o);
@@ -234,32 +217,23 @@ int cmd_audit(int argc, char **argv)
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	hc_error_clear(&err);
-	if ((rc = check_options(&o, &a, &ao)) != HC_OK)
+	if (!o.hold.holdings)
+		rc = cli_usage_error("audit", "--holdings FILE is required (see 'holdcount audit --help')");
+	else if (o.uni.missing == CLI_MISSING_PAIRWISE)
+		rc = cli_usage_error("audit", "--missing pairwise does not apply: a fund's sd needs complete series");
+	else if (o.uni.covariance)
+		rc = cli_usage_error("audit", "--covariance does not apply: a fund's sd needs return series");
+	if (rc != HC_OK || (rc = cli_load_universe("audit", &o.uni, a.positional[0], &u)) != HC_OK)
 		goto cleanup;
-	if ((rc = load_universe(&o.uni, a.positional[0], &u)) != HC_OK)
-		goto cleanup;
-	if ((rc = load_inputs(&o, &h, &l)) != HC_OK)
-		goto cleanup;
-	for (k = 0; k < h->nwarnings; k++)
-		fprintf(stderr, "holdcount audit: warning: %s\n", h->warnings[k]);
-	ao.sectors = l;
-	cli_progress_init(&prog, "sampling", "paths", o.out.quiet);
-	ao.progress = cli_progress_update;
-	ao.progress_ctx = &prog;
-	rc = moments_from_universe(&mo, u, &err);
-	if (rc == HC_OK)
-		rc = audit_run(&res, h, u, &mo, &ao, &err);
-	cli_progress_finish(&prog);
-	if (rc == HC_OK)
-		rc = audit_report(&r, res, h, &err);
-	if (rc != HC_OK) {
+	if (moments_from_universe(&mo, u, &err) != HC_OK) {
 		rc = cli_fail("audit", &err);
 		goto cleanup;
 	}
-	if ((rc = cli_write_report("audit", &o.out, r)) != HC_OK)
+	rc = cli_audit_data("audit", &o.hold, &o.pol, &o.sam, o.out.quiet, u, &mo, &h, &l, &res, &r);
+	if (rc != HC_OK || (rc = cli_write_report("audit", &o.out, r)) != HC_OK)
 		goto cleanup;
 	if (res->failed_funds) {
-		say_failures(res);
+		cli_audit_say_failures("audit", res);
 		rc = HC_EPOLICY;
 	}
 cleanup:

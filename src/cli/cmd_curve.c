@@ -47,10 +47,9 @@ const struct cli_command cli_command_curve = {
 	1, 1, curve_groups
 };
 
-/* Random portfolios: fill the sampled columns of c, from the return
- * series of u, or from the covariance matrix cm when u is NULL. */
-static int sample(const struct curve_opts *o, const struct universe *u, const struct covmatrix *cm,
-		  struct curve *c, const size_t *sizes, size_t nsizes, struct hc_error *err)
+int cli_curve_sample(const struct cli_sampling *sam, int quiet, const struct universe *u,
+		     const struct covmatrix *cm, struct curve *c, const size_t *sizes, size_t nsizes,
+		     struct hc_error *err)
 {
 	struct sampler_options so;
 	struct sampler_result *res = NULL;
@@ -58,11 +57,11 @@ static int sample(const struct curve_opts *o, const struct universe *u, const st
 	int rc;
 
 	sampler_options_init(&so);
-	so.paths = o->sam.paths;
-	so.seed = o->sam.seed;
-	so.threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
+	so.paths = sam->paths;
+	so.seed = sam->seed;
+	so.threads = sam->threads > INT_MAX ? INT_MAX : (int)sam->threads;
 	so.periods_per_year = c->periods_per_year;
-	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
+	cli_progress_init(&prog, "sampling", "paths", quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
 	if (u)
@@ -74,8 +73,8 @@ static int sample(const struct curve_opts *o, const struct universe *u, const st
 		rc = sampler_summarise(c, res, err);
 	sampler_result_free(res);
 	if (rc == HC_OK) {
-		c->paths = o->sam.paths;
-		c->seed = o->sam.seed;
+		c->paths = sam->paths;
+		c->seed = sam->seed;
 	}
 	return rc;
 }
@@ -162,20 +161,12 @@ int cli_curve_table(struct report *r, const struct curve *c, int annualised)
 	return HC_OK;
 }
 
-/* What the curve was computed from: a return history or a matrix. */
-struct curve_source {
-	const char *path;
-	const char *input;          /* "return history" or "covariance matrix" */
-	size_t m, dropped, periods; /* periods 0: unknown (a matrix) */
-	int annualised;
-};
-
-static int build(struct report *r, const struct curve_opts *o, const struct curve_source *src,
-		 const struct moments *mo, const struct curve *c, const struct strata_curve *sc)
+int cli_curve_fields(struct report *r, const struct cli_curve_source *src, const struct moments *mo,
+		     const struct curve *c)
 {
 	char seed[32];
 
-	snprintf(seed, sizeof seed, "%llu", (unsigned long long)o->sam.seed);
+	snprintf(seed, sizeof seed, "%llu", (unsigned long long)c->seed);
 	if (report_add_text(r, "source", "source", src->path) ||
 	    report_add_text(r, "input", "input", src->input) ||
 	    report_add_int(r, "securities", "securities kept", (long long)src->m) ||
@@ -196,13 +187,19 @@ static int build(struct report *r, const struct curve_opts *o, const struct curv
 				       "variance with the exact one in Monte Carlo standard errors"
 				     : "not sampled (--paths 0)"))
 		return HC_ENOMEM;
-	if (cli_curve_table(r, c, src->annualised) || add_strata(r, o, sc))
+	return cli_curve_table(r, c, src->annualised);
+}
+
+static int build(struct report *r, const struct curve_opts *o, const struct cli_curve_source *src,
+		 const struct moments *mo, const struct curve *c, const struct strata_curve *sc)
+{
+	if (cli_curve_fields(r, src, mo, c) || add_strata(r, o, sc))
 		return HC_ENOMEM;
 	return report_add_cautions(r);
 }
 
 /* Exact curve, optional sampling and the report: shared by both inputs. */
-static int finish(const struct curve_opts *o, const struct curve_source *src, const struct universe *u,
+static int finish(const struct curve_opts *o, const struct cli_curve_source *src, const struct universe *u,
 		  const struct covmatrix *cm, const struct moments *mo, const size_t *sizes, size_t nsizes,
 		  double p, const struct strata_curve *sc)
 {
@@ -214,7 +211,7 @@ static int finish(const struct curve_opts *o, const struct curve_source *src, co
 	hc_error_clear(&err);
 	rc = curve_exact(&c, mo, sizes, nsizes, p, &err);
 	if (rc == HC_OK && o->sam.paths > 0)
-		rc = sample(o, u, cm, c, sizes, nsizes, &err);
+		rc = cli_curve_sample(&o->sam, o->out.quiet, u, cm, c, sizes, nsizes, &err);
 	if (rc) {
 		rc = cli_fail("curve", &err);
 		goto cleanup;
@@ -234,7 +231,7 @@ cleanup:
 
 static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 {
-	struct curve_source src = { a->positional[0], "covariance matrix", 0, 0, 0, 0 };
+	struct cli_curve_source src = { a->positional[0], "covariance matrix", 0, 0, 0, 0 };
 	double p = 1.0;
 	struct covmatrix *cm = NULL;
 	struct moments mo;
@@ -294,7 +291,7 @@ int cmd_curve(int argc, char **argv)
 {
 	struct curve_opts o;
 	struct cli_args a;
-	struct curve_source src;
+	struct cli_curve_source src;
 	struct universe *u = NULL;
 	struct covmatrix *cm = NULL;
 	struct strata_curve *sc = NULL;

@@ -24,18 +24,7 @@
 #define ENOUGH_DEFAULT_BOOTSTRAP_PATHS 1000
 
 struct enough_opts {
-	const char *rules;
-	double near_floor;
-	const char *marginal;
-	const char *band;
-	double premium, holding_cost;
-	double te_budget;
-	const char *shortfall;
-	size_t bootstrap;
-	int bootstrap_kind;
-	size_t block_length;
-	int bootstrap_sampled;
-	size_t bootstrap_paths;
+	struct cli_rules rul;
 	struct cli_sampling smp;
 	struct cli_summary sum;
 	struct cli_universe uni;
@@ -45,45 +34,55 @@ struct enough_opts {
 
 static const char *const kind_choices[] = { "block", "stationary", NULL };
 
-#define OFF(f) offsetof(struct enough_opts, f)
-static const struct cli_option enough_own[] = {
-	{ "rules", 0, CLI_STRING, OFF(rules), "LIST",
+#define RUL(f) offsetof(struct cli_rules, f)
+static const struct cli_option rules_own[] = {
+	{ "rules", 0, CLI_STRING, RUL(rules), "LIST",
 	  "rules to apply: near-floor, marginal, band, cost-benefit, tracking-error, shortfall, or all, exact, sampled",
 	  NULL, "all (exact only from summary statistics)" },
-	{ "near-floor", 0, CLI_FRACTION, OFF(near_floor), "X",
+	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
 	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
-	{ "marginal", 0, CLI_STRING, OFF(marginal), "EPS",
+	{ "marginal", 0, CLI_STRING, RUL(marginal), "EPS",
 	  "marginal: one more holding lowers the expected sd by less than EPS a year (0.10pp, 0.1% or 0.001)",
 	  NULL, "0.10pp" },
-	{ "band", 0, CLI_STRING, OFF(band), "Q:X",
+	{ "band", 0, CLI_STRING, RUL(band), "Q:X",
 	  "band: the Q-quantile of sampled sd within X of the floor sd", NULL, "95%:10%" },
-	{ "premium", 0, CLI_FRACTION, OFF(premium), "R",
+	{ "premium", 0, CLI_FRACTION, RUL(premium), "R",
 	  "cost-benefit: the universe portfolio's premium a year", NULL, "5% (a placeholder: set it)" },
-	{ "holding-cost", 0, CLI_FRACTION, OFF(holding_cost), "C",
+	{ "holding-cost", 0, CLI_FRACTION, RUL(holding_cost), "C",
 	  "cost-benefit: the yearly cost of one more holding", NULL, "0.05% (a placeholder: set it)" },
-	{ "te-budget", 0, CLI_FRACTION, OFF(te_budget), "B",
+	{ "te-budget", 0, CLI_FRACTION, RUL(te_budget), "B",
 	  "tracking-error: expected tracking error against the universe within B a year", NULL, "2%" },
-	{ "shortfall", 0, CLI_STRING, OFF(shortfall), "D:P",
+	{ "shortfall", 0, CLI_STRING, RUL(shortfall), "D:P",
 	  "shortfall: fewer than P of sampled portfolios trail the universe's return by more than D a year",
 	  NULL, "1%:10%" },
-	{ "bootstrap", 0, CLI_COUNT, OFF(bootstrap), "B",
+	{ "bootstrap", 0, CLI_COUNT, RUL(bootstrap), "B",
 	  "bootstrap replicates for the count's interval (0: no interval)", NULL, "1000" },
-	{ "bootstrap-kind", 0, CLI_CHOICE, OFF(bootstrap_kind), NULL,
+	{ "bootstrap-kind", 0, CLI_CHOICE, RUL(bootstrap_kind), NULL,
 	  "resample periods in moving blocks (Kuensch 1989) or stationary blocks (Politis & Romano 1994)",
 	  kind_choices, "block" },
-	{ "block-length", 0, CLI_COUNT, OFF(block_length), "L",
+	{ "block-length", 0, CLI_COUNT, RUL(block_length), "L",
 	  "block length (mean length for stationary) in periods", NULL, "round(T^(1/3))" },
-	{ "bootstrap-sampled", 0, CLI_FLAG, OFF(bootstrap_sampled), NULL,
+	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
 	  "also bootstrap the sampled rules (band, shortfall): re-samples portfolios per replicate, costly",
 	  NULL, NULL },
-	{ "bootstrap-paths", 0, CLI_COUNT, OFF(bootstrap_paths), "K",
+	{ "bootstrap-paths", 0, CLI_COUNT, RUL(bootstrap_paths), "K",
 	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
-static const struct cli_group enough_group = { "rule options", enough_own };
+/* Shared with `holdcount report` (cli.h), so both read the same options. */
+const struct cli_group cli_group_rules = { "rule options", rules_own };
+
+void cli_rules_init(struct cli_rules *r)
+{
+	memset(r, 0, sizeof *r);
+	r->bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
+	r->bootstrap_paths = ENOUGH_DEFAULT_BOOTSTRAP_PATHS;
+}
+
+#define OFF(f) offsetof(struct enough_opts, f)
 
 static const struct cli_group_use enough_groups[] = {
-	{ &enough_group, 0 },
+	{ &cli_group_rules, OFF(rul) },
 	{ &cli_group_sampling, OFF(smp) },
 	{ &cli_group_summary, OFF(sum) },
 	{ &cli_group_universe, OFF(uni) },
@@ -144,40 +143,39 @@ static int parse_share(const char *s, size_t len, double *out)
 }
 
 /* "A:B" as two shares. */
-static int parse_pair(const char *opt, const char *s, double *a, double *b)
+static int parse_pair(const char *cmd, const char *opt, const char *s, double *a, double *b)
 {
 	const char *colon = strchr(s, ':');
 
 	if (!colon || parse_share(s, (size_t)(colon - s), a) || parse_share(colon + 1, strlen(colon + 1), b))
-		return cli_usage_error("enough", "bad --%s '%s': expected two shares as A:B, e.g. %s", opt, s,
+		return cli_usage_error(cmd, "bad --%s '%s': expected two shares as A:B, e.g. %s", opt, s,
 				       strcmp(opt, "band") == 0 ? "95%:10%" : "1%:10%");
 	return HC_OK;
 }
 
-/* The rules configuration from the options. */
-static int config_from(const struct enough_opts *o, const struct cli_args *a,
-		       int have_data, struct rules_config *cfg)
+int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cli_args *a,
+		     int have_data, int covariance, struct rules_config *cfg)
 {
 	struct hc_error err;
 
 	rules_config_init(cfg);
 	hc_error_clear(&err);
-	if (!have_data || o->uni.covariance)
+	if (!have_data || covariance)
 		cfg->selected = RULES_EXACT_MASK;
 	if (o->rules && rules_parse_list(o->rules, &cfg->selected, &err))
-		return cli_fail("enough", &err);
+		return cli_fail(cmd, &err);
 	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error("enough", "the band and shortfall rules need a universe file, not summary statistics");
-	if (o->uni.covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
-		return cli_usage_error("enough", "--bootstrap needs return data: a covariance matrix has no periods to resample");
+		return cli_usage_error(cmd, "the band and shortfall rules need a universe file, not summary statistics");
+	if (covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
+		return cli_usage_error(cmd, "--bootstrap needs return data: a covariance matrix has no periods to resample");
 	if (cli_given(a, "near-floor"))
 		cfg->near_floor_x = o->near_floor;
 	if (o->marginal && parse_step(o->marginal, &cfg->marginal_eps))
-		return cli_usage_error("enough", "bad --marginal '%s': expected a yearly sd step such as 0.10pp, 0.1%% or 0.001",
+		return cli_usage_error(cmd, "bad --marginal '%s': expected a yearly sd step such as 0.10pp, 0.1%% or 0.001",
 				       o->marginal);
-	if (o->band && parse_pair("band", o->band, &cfg->band_q, &cfg->band_x))
+	if (o->band && parse_pair(cmd, "band", o->band, &cfg->band_q, &cfg->band_x))
 		return HC_EUSAGE;
-	if (o->shortfall && parse_pair("shortfall", o->shortfall, &cfg->shortfall_d, &cfg->shortfall_p))
+	if (o->shortfall && parse_pair(cmd, "shortfall", o->shortfall, &cfg->shortfall_d, &cfg->shortfall_p))
 		return HC_EUSAGE;
 	if (cli_given(a, "premium"))
 		cfg->premium = o->premium;
@@ -185,11 +183,11 @@ static int config_from(const struct enough_opts *o, const struct cli_args *a,
 		cfg->holding_cost = o->holding_cost;
 	cfg->cost_defaults = !cli_given(a, "premium") && !cli_given(a, "holding-cost");
 	if (cli_given(a, "premium") != cli_given(a, "holding-cost"))
-		return cli_usage_error("enough", "give --premium and --holding-cost together (or neither, for the stated defaults)");
+		return cli_usage_error(cmd, "give --premium and --holding-cost together (or neither, for the stated defaults)");
 	if (cli_given(a, "te-budget"))
 		cfg->te_budget = o->te_budget;
 	if (rules_config_check(cfg, &err))
-		return cli_fail("enough", &err);
+		return cli_fail(cmd, &err);
 	return HC_OK;
 }
 
@@ -314,6 +312,26 @@ static int add_notes(struct report *r, const struct enough_run *e)
 	return bad ? HC_ENOMEM : HC_OK;
 }
 
+/* The report `holdcount enough` prints: fields, strata, the rules table
+ * (its CSV), notes and cautions. */
+static int build_report(const char *cmd, const struct enough_run *e, const struct cli_strata *strat,
+			const struct rule_result *res, size_t nres, struct report **out)
+{
+	struct report *r = report_alloc();
+	struct hc_error err;
+
+	hc_error_clear(&err);
+	*out = NULL;
+	if (!r || add_fields(r, e) || (strat && cli_strata_fields(r, strat)) ||
+	    rules_report(r, res, nres, &err) || add_notes(r, e)) {
+		report_free(r);
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		return cli_fail(cmd, &err);
+	}
+	*out = r;
+	return HC_OK;
+}
+
 /* ---- the command ------------------------------------------------------------ */
 
 static int run_summary(const struct enough_opts *o, const struct cli_args *a,
@@ -334,7 +352,7 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
 	if (!(e->ppy > 0))
 		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
-	if (cli_given(a, "bootstrap") && o->bootstrap > 0)
+	if (cli_given(a, "bootstrap") && o->rul.bootstrap > 0)
 		return cli_usage_error("enough", "--bootstrap needs a universe file: summary statistics have no periods to resample");
 	e->no_interval = "no interval: summary statistics have no periods to resample";
 	memset(&in, 0, sizeof in);
@@ -347,10 +365,20 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
+/* What a return-history run reads: the command's name for messages and the
+ * option groups it shares with `holdcount report`. */
+struct data_run {
+	const char *cmd;
+	const struct cli_rules *rul;
+	const struct cli_sampling *smp;
+	struct cli_strata *strat;
+	int quiet;
+};
+
 /* The band and shortfall rules by sampling (rules_sampled stops at the
  * smallest stage of sizes that settles them); their results replace the
  * "needs sampled portfolios" placeholders that rules_evaluate left. */
-static int run_sampled(struct enough_opts *o, const struct universe *u,
+static int run_sampled(const struct data_run *d, const struct universe *u,
 		       const struct rules_config *cfg, double cbar, struct enough_run *e,
 		       struct rule_result *res, size_t nres)
 {
@@ -363,41 +391,41 @@ static int run_sampled(struct enough_opts *o, const struct universe *u,
 
 	hc_error_clear(&err);
 	sampler_options_init(&so);
-	so.paths = o->smp.paths;
-	so.seed = o->smp.seed;
-	so.threads = (int)o->smp.threads;
+	so.paths = d->smp->paths;
+	so.seed = d->smp->seed;
+	so.threads = (int)d->smp->threads;
 	so.periods_per_year = u->periods_per_year;
-	if ((rc = cli_strata_apply("enough", &o->strat, u, &so)))
+	if ((rc = cli_strata_apply(d->cmd, d->strat, u, &so)))
 		return rc;
-	cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
+	cli_progress_init(&prog, "sampling", "paths", d->quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
 	rc = rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
 	cli_progress_finish(&prog);
 	if (rc)
-		return cli_fail("enough", &err);
+		return cli_fail(d->cmd, &err);
 	for (k = 0; k < n; k++)
 		for (j = 0; j < nres; j++)
 			if (res[j].rule == sr[k].rule)
 				res[j] = sr[k];
-	if (o->strat.per_stratum_max) {
+	if (d->strat->per_stratum_max) {
 		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
 		size_t top = 0;
 
-		for (k = 0; k < o->strat.strata->nstrata; k++)
-			top += o->strat.strata->count[k] < o->strat.per_stratum_max
-			     ? o->strat.strata->count[k] : o->strat.per_stratum_max;
+		for (k = 0; k < d->strat->strata->nstrata; k++)
+			top += d->strat->strata->count[k] < d->strat->per_stratum_max
+			     ? d->strat->strata->count[k] : d->strat->per_stratum_max;
 		for (j = 0; j < nres; j++)
 			if ((RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK) && res[j].defined && !res[j].met)
 				snprintf(res[j].note, sizeof res[j].note,
 					 "not met up to %zu holdings, the most with at most %zu in every stratum",
-					 top, o->strat.per_stratum_max);
+					 top, d->strat->per_stratum_max);
 	}
-	e->paths = o->smp.paths;
+	e->paths = d->smp->paths;
 	return HC_OK;
 }
 
-static int run_bootstrap(struct enough_opts *o, const struct universe *u,
+static int run_bootstrap(const struct data_run *d, const struct universe *u,
 			 const struct rules_config *cfg, struct enough_run *e,
 			 struct rule_result *res, size_t nres)
 {
@@ -410,14 +438,14 @@ static int run_bootstrap(struct enough_opts *o, const struct universe *u,
 
 	hc_error_clear(&err);
 	bootstrap_options_init(&bo);
-	bo.replicates = o->bootstrap;
-	bo.kind = o->bootstrap_kind;
-	bo.block_length = o->block_length;
-	bo.seed = o->smp.seed;
-	bo.threads = (int)o->smp.threads;
+	bo.replicates = d->rul->bootstrap;
+	bo.kind = d->rul->bootstrap_kind;
+	bo.block_length = d->rul->block_length;
+	bo.seed = d->smp->seed;
+	bo.threads = (int)d->smp->threads;
 	rc = bootstrap_base_alloc(&b, u, &err);
 	if (rc == HC_OK) {
-		cli_progress_init(&prog, "bootstrap", "replicates", o->out.quiet);
+		cli_progress_init(&prog, "bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
 		rc = bootstrap_run(&br, b, &bo, &err);
@@ -432,19 +460,19 @@ static int run_bootstrap(struct enough_opts *o, const struct universe *u,
 		e->block_length = br->block_length;
 		e->kind = br->kind;
 	}
-	if (rc == HC_OK && o->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
+	if (rc == HC_OK && d->rul->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
 		struct sampler_options so;
 
 		sampler_options_init(&so);
-		so.paths = o->bootstrap_paths;
-		so.threads = (int)o->smp.threads;
+		so.paths = d->rul->bootstrap_paths;
+		so.threads = (int)d->smp->threads;
 		so.periods_per_year = u->periods_per_year;
-		if ((rc = cli_strata_apply("enough", &o->strat, u, &so))) {
+		if ((rc = cli_strata_apply(d->cmd, d->strat, u, &so))) {
 			bootstrap_result_free(br);
 			bootstrap_base_free(b);
 			return rc;
 		}
-		cli_progress_init(&prog, "sampled bootstrap", "replicates", o->out.quiet);
+		cli_progress_init(&prog, "sampled bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
 		rc = rules_bootstrap_sampled(cfg, u, b, &bo, &so, res, nres, &err);
@@ -453,7 +481,7 @@ static int run_bootstrap(struct enough_opts *o, const struct universe *u,
 	}
 	bootstrap_result_free(br);
 	bootstrap_base_free(b);
-	return rc ? cli_fail("enough", &err) : HC_OK;
+	return rc ? cli_fail(d->cmd, &err) : HC_OK;
 }
 
 /* A covariance matrix (--covariance): the exact rules from its averages;
@@ -494,65 +522,98 @@ static int run_matrix(const struct enough_opts *o, const struct cli_args *a, con
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
-static int run_data(struct enough_opts *o, const struct cli_args *a,
-		    const char *path, const struct rules_config *cfg,
-		    struct universe **up, struct enough_run *e,
+/* Every selected rule on a return history: exact, sampled, bootstrap. */
+static int run_data(const struct data_run *d, const struct universe *u, const struct moments *mo,
+		    const struct rules_config *cfg, struct enough_run *e,
 		    struct rule_result *res, size_t *nres)
 {
-	struct universe *u;
 	struct rules_input in;
-	struct moments mo;
 	struct hc_error err;
 	int rc;
 
-	if (o->smp.sizes)
-		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
-	if ((o->strat.map || o->strat.per_stratum_max || o->strat.proportional) &&
-	    !(cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error("enough", "--strata applies to the sampled rules (band, shortfall), "
-				       "and none is chosen");
-	if (o->smp.paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error("enough", "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
-	rc = cli_load_universe("enough", &o->uni, path, up);
-	if (rc)
-		return rc;
-	u = *up;
-	hc_error_clear(&err);
-	rc = moments_from_universe(&mo, u, &err);
-	if (rc)
-		return cli_fail("enough", &err);
 	e->u = u;
-	e->vbar = mo.average_variance;
-	e->cbar = mo.average_covariance;
+	e->vbar = mo->average_variance;
+	e->cbar = mo->average_covariance;
 	e->m = u->m;
 	e->ppy = u->periods_per_year;
 	e->annualised = 1;
-	e->seed = o->smp.seed;
+	e->seed = d->smp->seed;
 	memset(&in, 0, sizeof in);
 	in.vbar = e->vbar;
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
+	hc_error_clear(&err);
 	rc = rules_evaluate(cfg, &in, res, nres, &err);
 	if (rc)
-		return cli_fail("enough", &err);
+		return cli_fail(d->cmd, &err);
 	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
 		for (size_t j = 0; j < *nres; j++)
 			if (RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK)
 				snprintf(res[j].note, sizeof res[j].note,
 					 "needs complete data: the sampler draws whole return series");
 	} else if (cfg->selected & RULES_SAMPLED_MASK) {
-		rc = run_sampled(o, u, cfg, e->cbar, e, res, *nres);
+		rc = run_sampled(d, u, cfg, e->cbar, e, res, *nres);
 		if (rc)
 			return rc;
 	}
-	if (o->bootstrap == 0)
+	if (d->rul->bootstrap == 0)
 		e->no_interval = "no interval: --bootstrap 0";
 	else if (u->has_missing)
 		e->no_interval = "no interval: the bootstrap resamples whole periods and needs complete data";
 	else
-		rc = run_bootstrap(o, u, cfg, e, res, *nres);
+		rc = run_bootstrap(d, u, cfg, e, res, *nres);
 	return rc;
+}
+
+/* Options that contradict the rules chosen (before any file is read). */
+static int data_checks(const char *cmd, const struct cli_sampling *smp, const struct cli_strata *strat,
+		       const struct rules_config *cfg)
+{
+	if ((strat->map || strat->per_stratum_max || strat->proportional) && !(cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
+	if (smp->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error(cmd, "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
+	return HC_OK;
+}
+
+int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
+		    struct cli_strata *strat, int quiet, const struct universe *u,
+		    const struct moments *mo, const struct rules_config *cfg,
+		    struct rule_result *res, size_t *nres, struct report **out)
+{
+	struct data_run d = { cmd, rul, smp, strat, quiet };
+	struct enough_run e;
+	int rc;
+
+	*out = NULL;
+	*nres = 0;
+	if ((rc = data_checks(cmd, smp, strat, cfg)))
+		return rc;
+	memset(&e, 0, sizeof e);
+	rc = run_data(&d, u, mo, cfg, &e, res, nres);
+	return rc ? rc : build_report(cmd, &e, strat, res, *nres, out);
+}
+
+/* A return history: load it, then the rules as `holdcount report` also runs them. */
+static int enough_file(struct enough_opts *o, const char *path, const struct rules_config *cfg,
+		       struct universe **up, struct rule_result *res, size_t *nres, struct report **out)
+{
+	struct moments mo;
+	struct hc_error err;
+	int rc;
+
+	if (o->smp.sizes)
+		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
+	if ((rc = data_checks("enough", &o->smp, &o->strat, cfg)))
+		return rc;
+	rc = cli_load_universe("enough", &o->uni, path, up);
+	if (rc)
+		return rc;
+	hc_error_clear(&err);
+	if (moments_from_universe(&mo, *up, &err))
+		return cli_fail("enough", &err);
+	return cli_enough_data("enough", &o->rul, &o->smp, &o->strat, o->out.quiet, *up, &mo, cfg, res, nres, out);
 }
 
 int cmd_enough(int argc, char **argv)
@@ -564,13 +625,11 @@ int cmd_enough(int argc, char **argv)
 	struct enough_run e;
 	struct universe *u = NULL;
 	struct report *r = NULL;
-	struct hc_error err;
 	size_t nres = 0;
 	int rc, have_data;
 
 	memset(&o, 0, sizeof o);
-	o.bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
-	o.bootstrap_paths = ENOUGH_DEFAULT_BOOTSTRAP_PATHS;
+	cli_rules_init(&o.rul);
 	cli_sampling_init(&o.smp);
 	cli_summary_init(&o.sum);
 	cli_universe_init(&o.uni);
@@ -585,26 +644,21 @@ int cmd_enough(int argc, char **argv)
 		rc = cli_usage_error("enough", "give a UNIVERSE file or summary statistics, not both");
 		goto cleanup;
 	}
-	rc = config_from(&o, &a, have_data, &cfg);
+	rc = cli_rules_config("enough", &o.rul, &a, have_data, o.uni.covariance, &cfg);
 	if (rc)
 		goto cleanup;
-	if (have_data && o.uni.covariance)
-		rc = run_matrix(&o, &a, a.positional[0], &cfg, &e, res, &nres);
-	else if (have_data)
-		rc = run_data(&o, &a, a.positional[0], &cfg, &u, &e, res, &nres);
-	else
-		rc = run_summary(&o, &a, &cfg, &e, res, &nres);
-	if (rc)
-		goto cleanup;
-	hc_error_clear(&err);
-	r = report_alloc();
-	if (!r || add_fields(r, &e) || (have_data && cli_strata_fields(r, &o.strat)) ||
-	    rules_report(r, res, nres, &err) || add_notes(r, &e)) {
-		hc_error(&err, HC_ENOMEM, "out of memory building the report");
-		rc = cli_fail("enough", &err);
-		goto cleanup;
+	if (have_data && !o.uni.covariance) {
+		rc = enough_file(&o, a.positional[0], &cfg, &u, res, &nres, &r);
+	} else {
+		if (have_data)
+			rc = run_matrix(&o, &a, a.positional[0], &cfg, &e, res, &nres);
+		else
+			rc = run_summary(&o, &a, &cfg, &e, res, &nres);
+		if (rc == HC_OK)
+			rc = build_report("enough", &e, have_data ? &o.strat : NULL, res, nres, &r);
 	}
-	rc = cli_write_report("enough", &o.out, r);
+	if (rc == HC_OK)
+		rc = cli_write_report("enough", &o.out, r);
 cleanup:
 	report_free(r);
 	cli_strata_release(&o.strat);

@@ -3,12 +3,14 @@
  * folder.
  *
  * One run computes the curve, the rules (with their bootstrap interval) and,
- * with --holdings, the audit, exactly as `holdcount curve`, `enough` and
- * `audit` do with the same options and seed, builds the same struct report
- * objects, and renders each of them to its CSV (curve.csv, enough.csv,
- * audit.csv), to summary.json (each report's JSON object under its name)
- * and to the tables of summary.md.  No figure is computed twice.  Plots are
- * written by the library's plots module from the same result types.
+ * with --holdings, the audit through the very functions `holdcount curve`,
+ * `enough` and `audit` call (cli.h: cli_curve_sample, cli_enough_data,
+ * cli_audit_data), with the same option groups, so the same options and
+ * seed give the same struct report objects.  Each is rendered to its CSV
+ * (curve.csv, enough.csv, audit.csv), to summary.json (each report's JSON
+ * object under its name) and to the tables of summary.md.  No figure is
+ * computed twice.  Plots are written by the library's plots module from the
+ * same result types.
  *
  * The folder is built under a temporary name and renamed into place
  * (reportdir.h); this file's signal handler removes the temporary folder and
@@ -39,6 +41,7 @@
 #include "holdcount/rules.h"
 #include "holdcount/rolling.h"
 #include "holdcount/sampler.h"
+#include "holdcount/strata.h"
 #include "holdcount/universe.h"
 
 /* The rows of the curve shown in summary.md (the CSV has every grid row). */
@@ -49,10 +52,10 @@ struct report_opts {
 	int force;
 	int plot_format;
 	int quiet;
-	const char *holdings, *sectors;
-	size_t bootstrap;
-	double te_budget;
 	size_t window, step;       /* rolling windows; window 0 = none */
+	struct cli_rules rul;
+	struct cli_holdings hold;
+	struct cli_policy pol;
 	struct cli_sampling sam;
 	struct cli_universe uni;
 };
@@ -66,13 +69,6 @@ static const struct cli_option report_own[] = {
 	  "replace an existing report folder (only once the new one is complete)", NULL, NULL },
 	{ "plot-format", 0, CLI_CHOICE, RO(plot_format), NULL, "format of the rendered plots", format_words, "png" },
 	{ "quiet", 'q', CLI_FLAG, RO(quiet), NULL, "no progress display on standard error", NULL, NULL },
-	{ "holdings", 0, CLI_STRING, RO(holdings), "FILE",
-	  "holdings CSV fund,id,weight: audit these funds (the demo's funds with no UNIVERSE)", NULL, NULL },
-	{ "sectors", 0, CLI_STRING, RO(sectors), "FILE",
-	  "sector map CSV id,label for the audit (the demo's map with no UNIVERSE)", NULL, NULL },
-	{ "bootstrap", 0, CLI_COUNT, RO(bootstrap), "B",
-	  "bootstrap replicates for the rules' intervals; 0 = none", NULL, "1000" },
-	{ "te-budget", 0, CLI_FRACTION, RO(te_budget), "B", "tracking-error budget a year (2% or 0.02)", NULL, "2%" },
 	{ "window", 0, CLI_COUNT, RO(window), "W",
 	  "also the exact rules' counts in rolling windows of W periods (rolling.csv and its plot)", NULL, "none" },
 	{ "step", 0, CLI_COUNT, RO(step), "S", "with --window: periods between two windows' starts", NULL, "12" },
@@ -80,8 +76,12 @@ static const struct cli_option report_own[] = {
 };
 static const struct cli_group report_group = { "report options", report_own };
 
+/* The groups of `enough` and `audit` themselves: one table per option. */
 static const struct cli_group_use report_groups[] = {
 	{ &report_group, 0 },
+	{ &cli_group_rules, RO(rul) },
+	{ &cli_group_holdings, RO(hold) },
+	{ &cli_group_policy, RO(pol) },
 	{ &cli_group_sampling, RO(sam) },
 	{ &cli_group_universe, RO(uni) },
 	{ NULL, 0 }
@@ -91,29 +91,31 @@ const struct cli_command cli_command_report = {
 	"report", cmd_report, "write a report folder: tables, JSON summary, gnuplot scripts and plots",
 	"[UNIVERSE]",
 	"Writes DIR with summary.md (the universe, the curve at a readable grid, every rule's count with "
-	"its 90% bootstrap interval, the audited funds, the plots and the cautions), summary.json (every "
-	"figure of the summary), curve.csv, enough.csv and audit.csv (what 'holdcount curve', 'enough' and "
-	"'audit' print with --format csv and the same options), gnuplot scripts with their data (*.gp, "
-	"*.dat) and, when gnuplot is on the PATH, their renders; with --window W, rolling.csv (what "
-	"'holdcount rolling --window W' prints) and the plot of the count needed through time. The folder is built under a temporary "
-	"name and renamed into place, so an interrupted run leaves the previous report or none. With no "
-	"UNIVERSE it runs on the bundled invented demo universe, its sectors and funds.",
+	"its 90% bootstrap interval, the audited funds with their pass or fail under the policy options, "
+	"the plots and the cautions), summary.json (every figure of the summary), curve.csv, enough.csv "
+	"and audit.csv (what 'holdcount curve', 'enough' and 'audit' print with --format csv and the same "
+	"options), gnuplot scripts with their data (*.gp, *.dat) and, when gnuplot is on the PATH, their "
+	"renders; with --window W, rolling.csv (what 'holdcount rolling --window W' prints) and the plot "
+	"of the count needed through time. --sizes sets the curve's grid; the rules look at every count. "
+	"The folder is built under a temporary name and renamed into place, so an interrupted run leaves "
+	"the previous report or none. With no UNIVERSE it runs on the bundled invented demo universe, its "
+	"sectors and funds. Exit status 1 (after the folder is written) when a fund fails a policy option, "
+	"as with 'holdcount audit'.",
 	0, 1, report_groups
 };
 
 /* Everything one run computes and builds; released by run_release. */
 struct run {
 	const struct report_opts *o;
-	const char *universe_path, *holdings_path, *sectors_path;
+	const char *universe_path;
+	struct cli_holdings hold;          /* o->hold with the demo's files filled in */
 	struct universe *u;
 	struct moments mo;
-	size_t *sizes, nsizes;
 	struct curve *curve, *full;
-	struct sampler_result *every;      /* sizes 1..M, for the sampled rules */
 	struct rules_config cfg;
 	struct rule_result rules[RULES_COUNT];
 	size_t nrules;
-	struct bootstrap_result *boot;
+	struct cli_strata strat;           /* unused (no --strata in a report), as enough's default */
 	struct holdings *h;
 	struct holdings_labels *labels;
 	struct audit_result *audit;
@@ -138,11 +140,9 @@ static void run_release(struct run *r)
 	audit_result_free(r->audit);
 	holdings_labels_free(r->labels);
 	holdings_free(r->h);
-	bootstrap_result_free(r->boot);
-	sampler_result_free(r->every);
+	cli_strata_release(&r->strat);
 	curve_free(r->full);
 	curve_free(r->curve);
-	hc_free(r->sizes);
 	universe_free(r->u);
 }
 
@@ -188,226 +188,115 @@ static void install_signals(void)
 
 /* ---- computing ----------------------------------------------------------------- */
 
-/* The loader's options from the universe group (NaN or 0 periods a year:
- * detect from the dates). */
-static int load_universe(const struct report_opts *o, const char *path, struct universe **out, int keep_all)
+/* Each step prints its own error and returns the exit status. */
+
+/* The file with every security, gaps kept, for --window: each rolling
+ * window applies the missing-data policy itself, as `holdcount rolling`. */
+static int load_every_security(const struct report_opts *o, const char *path, struct universe **out)
 {
-	const struct cli_universe *cu = &o->uni;
 	struct universe_options uo;
 	struct hc_error err;
+	int rc;
 
-	universe_options_init(&uo);
-	if (cu->log_returns && !cu->prices)
-		return cli_usage_error("report", "--log-returns needs --prices (log returns are computed from prices)");
-	uo.values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
-	uo.layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
-	uo.percent = cu->percent;
-	if (keep_all)
-		uo.missing = UNIVERSE_MISSING_KEEP;   /* each rolling window applies the policy */
-	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
-		return cli_usage_error("report", "--min-coverage must be above 0 and at most 1, found %g", cu->min_coverage);
-	uo.min_coverage = cu->min_coverage;
-	if (!isnan(cu->periods_per_year) && cu->periods_per_year < 0.0)
-		return cli_usage_error("report", "--periods-per-year must be positive, found %g", cu->periods_per_year);
-	uo.periods_per_year = isnan(cu->periods_per_year) ? 0.0 : cu->periods_per_year;
-	if (cu->delimiter) {
-		if (strcmp(cu->delimiter, ",") && strcmp(cu->delimiter, ";"))
-			return cli_usage_error("report", "--delimiter must be ',' or ';', found '%s'", cu->delimiter);
-		uo.delimiter = cu->delimiter[0];
-	}
-	uo.date_column = cu->date_column;
-	uo.id_column = cu->id_column;
-	uo.value_column = cu->value_column;
-	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, &uo.max_bytes))
-		return cli_usage_error("report", "--max-memory %zu MiB is too large", cu->max_memory_mib);
+	if ((rc = cli_universe_options("report", &o->uni, &uo)) != HC_OK)
+		return rc;
+	uo.missing = UNIVERSE_MISSING_KEEP;
 	hc_error_clear(&err);
 	return universe_load(out, path, &uo, &err) ? cli_fail("report", &err) : HC_OK;
 }
 
-static int threads_of(const struct report_opts *o)
+/* The curve as `holdcount curve` computes and reports it: exact at the
+ * grid, sampled there; and the exact curve at every count for the plots. */
+static int compute_curve(struct run *r)
 {
-	return o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
-}
-
-static int sample(struct run *r, const size_t *sizes, size_t nsizes, int want_returns,
-		  struct sampler_result **res, const char *label, struct hc_error *err)
-{
-	struct sampler_options so;
-	struct cli_progress prog;
+	struct cli_curve_source src;
+	struct hc_error err;
+	size_t *sizes = NULL, nsizes = 0, i;
 	int rc;
 
-	sampler_options_init(&so);
-	so.paths = r->o->sam.paths;
-	so.seed = r->o->sam.seed;
-	so.threads = threads_of(r->o);
-	so.periods_per_year = r->u->periods_per_year;
-	so.want_returns = want_returns;
-	cli_progress_init(&prog, label, "paths", r->o->quiet);
-	so.progress = cli_progress_update;
-	so.progress_ctx = &prog;
-	rc = sampler_run(res, r->u, sizes, nsizes, &so, err);
-	cli_progress_finish(&prog);
-	return rc;
-}
-
-/* The curve as `holdcount curve` computes it: exact at the grid, sampled there. */
-static int compute_curve(struct run *r, struct hc_error *err)
-{
-	struct sampler_result *res = NULL;
-	size_t *every, i;
-	int rc;
-
-	if (r->o->sam.sizes)
-		rc = curve_parse_sizes(r->o->sam.sizes, r->u->m, &r->sizes, &r->nsizes, err);
-	else
-		rc = curve_default_sizes(r->u->m, &r->sizes, &r->nsizes, err);
-	if (rc == HC_OK)
-		rc = curve_exact(&r->curve, &r->mo, r->sizes, r->nsizes, r->u->periods_per_year, err);
-	if (rc == HC_OK && r->o->sam.paths > 0) {
-		rc = sample(r, r->sizes, r->nsizes, 0, &res, "sampling the curve", err);
-		if (rc == HC_OK)
-			rc = sampler_summarise(r->curve, res, err);
-		sampler_result_free(res);
-	}
-	if (rc != HC_OK)
+	if ((rc = cli_sizes("report", r->o->sam.sizes, r->u->m, &sizes, &nsizes)) != HC_OK)
 		return rc;
-	/* every count 1..M for the plots and the sampled rules */
-	every = hc_calloc(r->u->m, sizeof *every);
-	if (!every)
-		return hc_error(err, HC_ENOMEM, "out of memory for the count grid");
-	for (i = 0; i < r->u->m; i++)
-		every[i] = i + 1;
-	rc = curve_exact(&r->full, &r->mo, every, r->u->m, r->u->periods_per_year, err);
+	hc_error_clear(&err);
+	rc = curve_exact(&r->curve, &r->mo, sizes, nsizes, r->u->periods_per_year, &err);
 	if (rc == HC_OK && r->o->sam.paths > 0)
-		rc = sample(r, every, r->u->m, 1, &r->every, "sampling every count", err);
-	hc_free(every);
-	return rc;
-}
-
-/* The rules as `holdcount enough` computes them, with the bootstrap interval
- * of the exact rules. */
-static int compute_rules(struct run *r, struct hc_error *err)
-{
-	struct rules_input in;
-	struct bootstrap_base *base = NULL;
-	struct bootstrap_options bo;
-	struct cli_progress prog;
-	int rc;
-
-	rules_config_init(&r->cfg);
-	r->cfg.te_budget = r->o->te_budget;
-	if ((rc = rules_config_check(&r->cfg, err)) != HC_OK)
-		return rc;
-	memset(&in, 0, sizeof in);
-	in.vbar = r->mo.average_variance;
-	in.cbar = r->mo.average_covariance;
-	in.m = r->u->m;
-	in.periods_per_year = r->u->periods_per_year;
-	in.sampled = r->every;
-	if (r->every && (rc = rules_universe_return(r->u, r->u->periods_per_year, &in.universe_return, err)))
-		return rc;
-	if ((rc = rules_evaluate(&r->cfg, &in, r->rules, &r->nrules, err)) != HC_OK || r->o->bootstrap == 0)
-		return rc;
-	stage(r->o, "bootstrap of the periods");
-	bootstrap_options_init(&bo);
-	bo.replicates = r->o->bootstrap;
-	bo.seed = r->o->sam.seed;
-	bo.threads = threads_of(r->o);
-	cli_progress_init(&prog, "bootstrap", "replicates", r->o->quiet);
-	bo.progress = cli_progress_update;
-	bo.progress_ctx = &prog;
-	rc = bootstrap_base_alloc(&base, r->u, err);
+		rc = cli_curve_sample(&r->o->sam, r->o->quiet, r->u, NULL, r->curve, sizes, nsizes, &err);
+	hc_free(sizes);
+	sizes = NULL;
+	if (rc == HC_OK && !(sizes = hc_calloc(r->u->m, sizeof *sizes)))
+		rc = hc_error(&err, HC_ENOMEM, "out of memory for the count grid");
+	for (i = 0; rc == HC_OK && i < r->u->m; i++)
+		sizes[i] = i + 1;
 	if (rc == HC_OK)
-		rc = bootstrap_run(&r->boot, base, &bo, err);
-	cli_progress_finish(&prog);
-	bootstrap_base_free(base);
-	if (rc == HC_OK)
-		rc = rules_bootstrap_exact(&r->cfg, r->boot->vbar, r->boot->cbar, r->boot->replicates, r->u->m,
-					   r->u->periods_per_year, r->rules, r->nrules, err);
-	return rc;
-}
-
-/* The audit as `holdcount audit` computes it with no policy options. */
-static int compute_audit(struct run *r, struct hc_error *err)
-{
-	struct holdings_options ho;
-	struct audit_options ao;
-	struct cli_progress prog;
-	size_t k;
-	int rc;
-
-	holdings_options_init(&ho);
-	if ((rc = holdings_load(&r->h, r->holdings_path, &ho, err)) != HC_OK)
-		return rc;
-	for (k = 0; k < r->h->nwarnings; k++)
-		fprintf(stderr, "holdcount report: warning: %s\n", r->h->warnings[k]);
-	if (r->sectors_path && (rc = holdings_labels_load(&r->labels, r->sectors_path, 0, err)) != HC_OK)
-		return rc;
-	audit_options_init(&ao);
-	ao.paths = r->o->sam.paths;
-	ao.seed = r->o->sam.seed;
-	ao.threads = threads_of(r->o);
-	ao.sectors = r->labels;
-	cli_progress_init(&prog, "sampling the funds' counts", "paths", r->o->quiet);
-	ao.progress = cli_progress_update;
-	ao.progress_ctx = &prog;
-	rc = audit_run(&r->audit, r->h, r->u, &r->mo, &ao, err);
-	cli_progress_finish(&prog);
-	return rc;
+		rc = curve_exact(&r->full, &r->mo, sizes, r->u->m, r->u->periods_per_year, &err);
+	hc_free(sizes);
+	if (rc != HC_OK)
+		return cli_fail("report", &err);
+	src.path = r->u->source ? r->u->source : r->universe_path;
+	src.input = "return history";
+	src.m = r->u->m;
+	src.dropped = r->u->ndropped;
+	src.periods = r->u->t;
+	src.annualised = 1;
+	r->rep_curve = report_alloc();
+	if (!r->rep_curve || cli_curve_fields(r->rep_curve, &src, &r->mo, r->curve) ||
+	    cli_strata_fields(r->rep_curve, &r->strat) || report_add_cautions(r->rep_curve)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		return cli_fail("report", &err);
+	}
+	return HC_OK;
 }
 
 /* The exact rules, with the report's parameters, in every window; no
  * bootstrap per window (that is `holdcount rolling --bootstrap`). */
-static int compute_rolling(struct run *r, struct hc_error *err)
+static int compute_rolling(struct run *r)
 {
 	struct rolling_options ro;
-	int rc;
+	struct hc_error err;
 
+	hc_error_clear(&err);
 	rolling_options_init(&ro);
 	ro.window = r->o->window;
 	ro.step = r->o->step;
 	ro.rules = r->cfg;
 	ro.rules.selected &= RULES_EXACT_MASK;
-	if ((rc = rolling_run(&r->rolling, r->every_security, &ro, err)) != HC_OK)
-		return rc;
+	if (rolling_run(&r->rolling, r->every_security, &ro, &err) != HC_OK)
+		return cli_fail("report", &err);
 	r->rep_rolling = report_alloc();
-	if (!r->rep_rolling || rolling_report(r->rep_rolling, r->rolling, err) ||
-	    report_add_cautions(r->rep_rolling))
-		return hc_error(err, HC_ENOMEM, "out of memory building the rolling report");
+	if (!r->rep_rolling || rolling_report(r->rep_rolling, r->rolling, &err) ||
+	    report_add_cautions(r->rep_rolling)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the rolling report");
+		return cli_fail("report", &err);
+	}
 	return HC_OK;
 }
 
-static int compute(struct run *r, struct hc_error *err)
+static int compute(struct run *r)
 {
+	struct hc_error err;
 	int rc;
 
 	stage(r->o, "exact curve");
-	if ((rc = moments_from_universe(&r->mo, r->u, err)) != HC_OK || (rc = compute_curve(r, err)) != HC_OK)
+	hc_error_clear(&err);
+	if (moments_from_universe(&r->mo, r->u, &err) != HC_OK)
+		return cli_fail("report", &err);
+	if ((rc = compute_curve(r)) != HC_OK)
 		return rc;
 	stage(r->o, "rules");
-	if ((rc = compute_rules(r, err)) != HC_OK)
-		return rc;
-	if (r->holdings_path) {
+	rc = cli_enough_data("report", &r->o->rul, &r->o->sam, &r->strat, r->o->quiet, r->u, &r->mo, &r->cfg,
+			     r->rules, &r->nrules, &r->rep_enough);
+	if (rc == HC_OK && r->hold.holdings) {
 		stage(r->o, "audit of the funds");
-		rc = compute_audit(r, err);
+		rc = cli_audit_data("report", &r->hold, &r->o->pol, &r->o->sam, r->o->quiet, r->u, &r->mo, &r->h,
+				    &r->labels, &r->audit, &r->rep_audit);
 	}
 	if (rc == HC_OK && r->o->window) {
 		stage(r->o, "rolling windows");
-		rc = compute_rolling(r, err);
+		rc = compute_rolling(r);
 	}
 	return rc;
 }
 
 /* ---- the report objects ----------------------------------------------------------- */
-
-static int add_scale(struct report *rep, double ppy)
-{
-	char text[200];
-
-	snprintf(text, sizeof text, "annualised: variances times %g, standard deviations times sqrt(%g)", ppy, ppy);
-	return report_add_real(rep, "periods_per_year", "periods per year", ppy, REPORT_STYLE_PLAIN) ||
-	       report_add_text(rep, "annualisation", "annualisation", text);
-}
 
 static int build_universe(struct run *r)
 {
@@ -427,7 +316,7 @@ static int build_universe(struct run *r)
 	    report_add_int(rep, "periods", "periods", (long long)r->u->t) ||
 	    report_add_text(rep, "first_date", "first period", first) ||
 	    report_add_text(rep, "last_date", "last period", last) ||
-	    add_scale(rep, r->u->periods_per_year) ||
+	    cli_add_scale(rep, r->u->periods_per_year, 1) ||
 	    report_add_bool(rep, "periods_detected", "periods per year detected from the dates",
 			    r->u->periods_detected) ||
 	    report_add_real(rep, "average_variance", "average variance", r->mo.average_variance * r->u->periods_per_year,
@@ -451,134 +340,6 @@ static int build_universe(struct run *r)
 			    report_table_set_text(t, i, 1, r->u->dropped[i].reason))
 				return HC_ENOMEM;
 	}
-	return report_add_cautions(rep);
-}
-
-/* The report `holdcount curve` prints: its first table is curve.csv. */
-static int build_curve(struct run *r)
-{
-	struct report *rep = r->rep_curve = report_alloc();
-	const struct curve *c = r->curve;
-	struct report_table *t;
-	char seed[32];
-	size_t i;
-
-	if (!rep)
-		return HC_ENOMEM;
-	snprintf(seed, sizeof seed, "%llu", (unsigned long long)r->o->sam.seed);
-	if (report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
-	    report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
-	    report_add_int(rep, "securities_dropped", "securities dropped", (long long)r->u->ndropped) ||
-	    report_add_int(rep, "periods", "periods", (long long)r->u->t) || add_scale(rep, c->periods_per_year) ||
-	    report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
-			    c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
-	    report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(c->universe_variance),
-			    REPORT_STYLE_PERCENT) ||
-	    report_add_real(rep, "average_correlation", "average correlation",
-			    r->mo.has_correlation ? r->mo.average_correlation : NAN, REPORT_STYLE_FIXED4) ||
-	    report_add_int(rep, "paths", "random portfolios per count", (long long)c->paths) ||
-	    (c->paths ? report_add_text(rep, "seed", "seed", seed) : report_add_none(rep, "seed", "seed")))
-		return HC_ENOMEM;
-	/* the curve table with the scale appended as a column, as the curve
-	 * command's CSV carries it */
-	t = report_add_table(rep, "curve", "risk by holding count");
-	if (!t || curve_report(c, t) != HC_OK ||
-	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
-		return HC_ENOMEM;
-	for (i = 0; i < t->nrows; i++)
-		report_table_set_real(t, i, t->ncols - 1, c->periods_per_year);
-	return report_add_cautions(rep);
-}
-
-/* The "rules" table in the contract of rules.h's rules_report, which is
- * declared on main but not yet defined there; replace this copy by a call
- * to rules_report when the rules branch lands (tests/cli_report_identity.sh
- * compares enough.csv with `holdcount enough --format csv` once that
- * command exists). */
-static const struct { const char *key, *title; int style; } rule_columns[] = {
-	{ "rule", "rule", REPORT_STYLE_PLAIN },
-	{ "parameters", "parameters", REPORT_STYLE_PLAIN },
-	{ "count", "count", REPORT_STYLE_PLAIN },
-	{ "value_at_count", "value at count", REPORT_STYLE_PERCENT },
-	{ "count_p05", "count p05", REPORT_STYLE_PLAIN },
-	{ "count_p50", "count p50", REPORT_STYLE_PLAIN },
-	{ "count_p95", "count p95", REPORT_STYLE_PLAIN },
-	{ "met", "met", REPORT_STYLE_PLAIN },
-	{ "unit", "unit", REPORT_STYLE_PLAIN },
-	{ "threshold", "threshold", REPORT_STYLE_PERCENT },
-	{ "replicates", "replicates", REPORT_STYLE_PLAIN },
-	{ "replicates_met", "replicates met", REPORT_STYLE_PLAIN },
-	{ "note", "note", REPORT_STYLE_PLAIN },
-};
-
-static int percentile_cell(struct report_table *t, size_t row, size_t col, const struct rule_result *res, double p)
-{
-	if (!res->bootstrapped)
-		return 0;
-	if (isnan(p))
-		return report_table_set_text(t, row, col, "not met");
-	report_table_set_real(t, row, col, p);
-	return 0;
-}
-
-static int rules_table(struct report *rep, const struct rule_result *res, size_t nres)
-{
-	struct report_table *t = report_add_table(rep, "rules", "smallest holding count meeting each rule");
-	size_t k, row;
-	int bad = 0;
-
-	if (!t)
-		return HC_ENOMEM;
-	for (k = 0; k < sizeof rule_columns / sizeof rule_columns[0]; k++)
-		if (report_table_add_column(t, rule_columns[k].key, rule_columns[k].title, rule_columns[k].style))
-			return HC_ENOMEM;
-	for (k = 0; k < nres; k++, res++) {
-		if (report_table_add_row(t))
-			return HC_ENOMEM;
-		row = t->nrows - 1;
-		bad |= report_table_set_text(t, row, 0, res->name);
-		bad |= report_table_set_text(t, row, 1, res->parameters);
-		if (res->met) {
-			report_table_set_int(t, row, 2, (long long)res->count);
-			report_table_set_real(t, row, 3, res->value);
-		}
-		bad |= percentile_cell(t, row, 4, res, res->count_p05);
-		bad |= percentile_cell(t, row, 5, res, res->count_p50);
-		bad |= percentile_cell(t, row, 6, res, res->count_p95);
-		report_table_set_bool(t, row, 7, res->met);
-		bad |= report_table_set_text(t, row, 8, res->unit);
-		report_table_set_real(t, row, 9, res->threshold);
-		if (res->bootstrapped) {
-			report_table_set_int(t, row, 10, (long long)res->replicates);
-			report_table_set_int(t, row, 11, (long long)res->replicates_met);
-		}
-		if (res->note[0])
-			bad |= report_table_set_text(t, row, 12, res->note);
-	}
-	return bad ? HC_ENOMEM : HC_OK;
-}
-
-/* The report `holdcount enough` prints: its first table is enough.csv. */
-static int build_enough(struct run *r)
-{
-	struct report *rep = r->rep_enough = report_alloc();
-	char seed[32];
-
-	if (!rep)
-		return HC_ENOMEM;
-	snprintf(seed, sizeof seed, "%llu", (unsigned long long)r->o->sam.seed);
-	if (report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
-	    report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
-	    report_add_int(rep, "periods", "periods", (long long)r->u->t) || add_scale(rep, r->u->periods_per_year) ||
-	    report_add_int(rep, "paths", "random portfolios per count (sampled rules)", (long long)r->o->sam.paths) ||
-	    report_add_text(rep, "seed", "seed", seed) ||
-	    report_add_int(rep, "bootstrap_replicates", "bootstrap replicates", (long long)r->o->bootstrap) ||
-	    (r->boot ? report_add_text(rep, "bootstrap_kind", "bootstrap", bootstrap_kind_name(r->boot->kind)) ||
-			       report_add_int(rep, "block_length", "block length (periods)", (long long)r->boot->block_length)
-		     : report_add_none(rep, "bootstrap_kind", "bootstrap")))
-		return HC_ENOMEM;
-	if (rules_table(rep, r->rules, r->nrules) != HC_OK)
-		return HC_ENOMEM;
 	return report_add_cautions(rep);
 }
 
@@ -757,6 +518,23 @@ static int style_of(const struct report_table *t, const char *key)
 	return j < 0 ? REPORT_STYLE_PLAIN : t->cols[j].style;
 }
 
+/* Numbers align right, words left: a column is numeric when every cell
+ * that holds something is a number. */
+static int numeric_column(const struct report_table *t, const char *key)
+{
+	long j = col_of(t, key);
+	size_t i;
+	int any = 0;
+
+	for (i = 0; j >= 0 && i < t->nrows; i++) {
+		int kind = t->cells[i * t->ncols + (size_t)j].kind;
+		if (kind == REPORT_TEXT || kind == REPORT_BOOL)
+			return 0;
+		any |= kind != REPORT_NONE;
+	}
+	return any;
+}
+
 /* A Markdown table of the given columns (key, heading) of t; rows where
  * keep(row) says so. */
 static void md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
@@ -768,7 +546,7 @@ static void md_table(FILE *fp, const struct report_table *t, const char *const (
 		fprintf(fp, "| %s ", cols[j][1]);
 	fputs("|\n", fp);
 	for (j = 0; j < ncols; j++)
-		fputs(j == 0 ? "|---" : "|--:", fp);
+		fputs(j > 0 && numeric_column(t, cols[j][0]) ? "|--:" : "|:--", fp);
 	fputs("|\n", fp);
 	for (i = 0; i < t->nrows; i++) {
 		if (keep && !keep(t, i, ctx))
@@ -783,7 +561,20 @@ static void md_table(FILE *fp, const struct report_table *t, const char *const (
 	fputc('\n', fp);
 }
 
+/* A row of the readable grid (and the last, N = M).  A grid given with
+ * --sizes that shares few counts with it is shown whole instead. */
+static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx);
+
 static int readable_row(const struct report_table *t, size_t row, const void *ctx)
+{
+	size_t i, kept = 0;
+
+	for (i = 0; i < t->nrows; i++)
+		kept += (size_t)on_readable_grid(t, i, ctx);
+	return kept >= 6 || kept == t->nrows ? on_readable_grid(t, row, ctx) : 1;
+}
+
+static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx)
 {
 	const struct report_value *v = cell(t, row, "n");
 	size_t m = *(const size_t *)ctx, k;
@@ -850,41 +641,90 @@ static void md_curve(FILE *fp, const struct run *r)
 		md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row, &r->u->m);
 }
 
+/* What each rule asks, in a line a committee reader can follow; sources as
+ * in docs/enough.md. */
+static const char *const rule_legend[RULES_COUNT] = {
+	"near-floor: the expected sd is within x of the floor, the sd no number of holdings gets below",
+	"marginal: one more holding lowers the expected sd by less than eps a year",
+	"band: the q-quantile of random portfolios' sd is within x of the floor, so even an unlucky "
+	"draw of that many holdings is near it",
+	"cost-benefit (after Statman, 1987, Journal of Financial and Quantitative Analysis 22(3)): the "
+	"premium earned on the risk one more holding removes falls below that holding's yearly cost",
+	"tracking-error: the expected tracking error against the equal-weight portfolio of the whole "
+	"universe is within the budget",
+	"shortfall (after Domian, Louton & Racine, 2007, The Financial Review 42(4)): fewer than p of "
+	"random portfolios trail the universe's return over the sample by more than d a year",
+};
+
 static void md_rules(FILE *fp, const struct run *r)
 {
 	static const char *const cols[][2] = {
 		{ "rule", "rule" }, { "parameters", "parameters" }, { "count", "count" },
-		{ "count_p05", "5%" }, { "count_p95", "95%" }, { "value_at_count", "value at count" },
-		{ "note", "note" },
+		{ "count_p05", "5%" }, { "count_p50", "median" }, { "count_p95", "95%" },
+		{ "value_at_count", "value at count" }, { "unit", "value is" }, { "note", "note" },
 	};
 	const struct report_table *t = table_of(r->rep_enough, "rules");
+	size_t k;
+	int sampled = 0, intervals = 0;
 
+	for (k = 0; k < r->nrules; k++) {
+		sampled |= (RULES_FLAG(r->rules[k].rule) & RULES_SAMPLED_MASK) && r->rules[k].defined;
+		intervals |= r->rules[k].bootstrapped;
+	}
 	fputs("## How many holdings are enough\n\n", fp);
-	fputs("Each rule's smallest count meeting it; 5% and 95% are the percentiles of that count over a "
-	      "bootstrap of the periods (the data's own estimation error). See `enough.csv` for units and "
-	      "thresholds.\n\n", fp);
+	fputs("Each rule turns the curve into one count: the smallest number of equal-weight holdings that "
+	      "meets it.\n\n", fp);
+	for (k = 0; k < r->nrules; k++)
+		if (r->rules[k].rule >= 0 && r->rules[k].rule < RULES_COUNT)
+			fprintf(fp, "- %s\n", rule_legend[r->rules[k].rule]);
+	fputc('\n', fp);
+	if (intervals)
+		fprintf(fp, "How to read it: the count is the estimate from the whole history; 5%%, median and 95%% "
+			"are percentiles of the count when the periods are resampled (%s bootstrap, %zu replicates), "
+			"so 5%% to 95%% is a 90%% interval from the data's own estimation error. A narrow interval "
+			"means the history pins the count down; a wide one means a minimum-holdings rule should "
+			"lean to its upper end. Fractional percentiles fall between two replicates' counts. "
+			"\"not met\" in an interval means some replicates never meet the rule.%s\n\n",
+			bootstrap_kind_name(r->o->rul.bootstrap_kind), r->o->rul.bootstrap,
+			sampled && !r->o->rul.bootstrap_sampled
+			? " The sampled rules (band, shortfall) are drawn from random portfolios and have no interval "
+			  "here: `--bootstrap-sampled` gives them one, at some cost in time." : "");
+	else
+		fputs("How to read it: the count is the estimate from the whole history; no bootstrap was run "
+		      "(`--bootstrap 0`), so there is no interval for the estimation error in it.\n\n", fp);
 	if (t)
 		md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
 }
 
 static void md_audit(FILE *fp, const struct run *r)
 {
 	static const char *const cols[][2] = {
 		{ "fund", "fund" }, { "holdings", "holdings" }, { "effective_holdings", "effective (1/HHI)" },
-		{ "max_weight", "largest weight" }, { "sd", "sd a year" }, { "equivalent_count", "equivalent count" },
-		{ "sd_percentile", "sd percentile" }, { "passed", "passed" }, { "failed_rules", "failed" },
+		{ "max_weight", "largest weight" }, { "top10_share", "top 10" }, { "sd", "sd a year" },
+		{ "equivalent_count", "equivalent count" }, { "sd_percentile", "sd percentile" },
+		{ "ucits", "UCITS" }, { "1940act", "1940 Act" }, { "ric", "RIC" },
+		{ "passed", "passes policy" }, { "failed_rules", "fails" },
 	};
 	const struct report_table *t = table_of(r->rep_audit, "funds");
 
 	fputs("## Audited funds\n\n", fp);
 	if (!t) {
-		fputs("No holdings were given (--holdings FILE audits funds).\n\n", fp);
+		fputs("No holdings were given (`--holdings FILE` audits funds).\n\n", fp);
 		return;
 	}
-	fprintf(fp, "From `%s`. The equivalent count is the number of equal-weight random holdings with the "
-		"same expected risk; the percentile places the fund's sd among random portfolios of its own "
-		"count. Screens and sector weights are in `audit.csv` and `summary.json`.\n\n",
-		r->holdings_path);
+	fprintf(fp, "From `%s`, against the universe above.\n\n", r->hold.holdings);
+	md_field(fp, r->rep_audit, "policy", "policy");
+	md_field(fp, r->rep_audit, "failed_funds", "funds failing it");
+	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
+	      "equivalent count is the number of random equal-weight holdings with the fund's own sd (\"below "
+	      "the floor\" when no count of them is that low); the sd percentile places the fund's sd among "
+	      "random equal-weight portfolios of its own count (50% is typical, high is riskier). UCITS, 1940 "
+	      "Act and RIC are the weight screens of Directive 2009/65/EC Art. 52, the Investment Company Act "
+	      "of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3), written from memory of the texts: "
+	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
+	      "only when `--screens` names it. Sector weights and each screen's deciding figure are in "
+	      "`audit.csv` and `summary.json`.\n\n", fp);
 	md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
 }
 
@@ -934,6 +774,9 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 	fputs("## Cautions\n\n", fp);
 	for (i = 0; i < r->rep_universe->nnotes; i++)
 		fprintf(fp, "- %s\n", r->rep_universe->notes[i]);
+	if (r->rep_audit)
+		fputs("- regulatory screens: written from memory of the published texts and testing weights only; "
+		      "verify against the current text and defer to compliance counsel\n", fp);
 	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
 	      "`--format csv` and the same options\n- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a "
@@ -1072,8 +915,17 @@ static int demo_path(char *buf, size_t size, const char *file)
 	return cli_data_file(buf, size, file);
 }
 
-static int check_options(const struct report_opts *o, const struct cli_args *a)
+/* Options of the audit that mean nothing without holdings to audit. */
+static const char *const audit_only_options[] = {
+	"sectors", "allow-short", "strict", "fund-column", "holding-id-column", "weight-column",
+	"market-value-column", "issuer-column", "min-holdings", "min-effective", "max-weight",
+	"max-sector-weight", "screens", NULL
+};
+
+static int check_options(const struct report_opts *o, const struct cli_args *a, const struct run *r)
 {
+	size_t k;
+
 	if (!o->output)
 		return cli_usage_error("report", "-o DIR is required: the report folder to write");
 	if (o->uni.missing == CLI_MISSING_PAIRWISE)
@@ -1081,16 +933,38 @@ static int check_options(const struct report_opts *o, const struct cli_args *a)
 				       "need complete series");
 	if (o->uni.covariance)
 		return cli_usage_error("report", "--covariance does not apply: the report needs a return history");
-	if (!(o->te_budget > 0))
-		return cli_usage_error("report", "--te-budget must be above 0, found %g", o->te_budget);
 	if (cli_given(a, "step") && !o->window)
 		return cli_usage_error("report", "--step needs --window W (the rolling windows' length)");
+	for (k = 0; !r->hold.holdings && audit_only_options[k]; k++)
+		if (cli_given(a, audit_only_options[k]))
+			return cli_usage_error("report", "--%s applies to the audit of funds: give --holdings FILE",
+					       audit_only_options[k]);
+	return HC_OK;
+}
+
+/* The files to read: UNIVERSE and --holdings, or the bundled demo's. */
+static int choose_inputs(struct run *r, const struct cli_args *a)
+{
+	static char demo_universe[PATH_MAX], demo_funds[PATH_MAX], demo_sectors[PATH_MAX];
+
+	r->hold = r->o->hold;
+	if (a->npositional) {
+		r->universe_path = a->positional[0];
+		return HC_OK;
+	}
+	if (!demo_path(demo_universe, sizeof demo_universe, "demo-universe.csv"))
+		return cli_usage_error("report", "no UNIVERSE given and the demo universe '%s' cannot be read",
+				       demo_universe);
+	r->universe_path = demo_universe;
+	if (!r->hold.holdings && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv"))
+		r->hold.holdings = demo_funds;
+	if (!r->hold.sectors && demo_path(demo_sectors, sizeof demo_sectors, "demo-sectors.csv"))
+		r->hold.sectors = demo_sectors;
 	return HC_OK;
 }
 
 int cmd_report(int argc, char **argv)
 {
-	static char demo_universe[PATH_MAX], demo_funds[PATH_MAX], demo_sectors[PATH_MAX];
 	struct report_opts o;
 	struct cli_args a;
 	struct reportdir *rd = NULL;
@@ -1101,36 +975,21 @@ int cmd_report(int argc, char **argv)
 	int rc;
 
 	memset(&o, 0, sizeof o);
+	cli_rules_init(&o.rul);
 	cli_sampling_init(&o.sam);
 	cli_universe_init(&o.uni);
-	o.bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
-	o.te_budget = RULES_DEFAULT_TE_BUDGET;
 	o.step = 12;
 	rc = cli_parse(&cli_command_report, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	memset(&r, 0, sizeof r);
+	cli_strata_init(&r.strat);
 	hc_error_clear(&err);
 	r.o = &o;
-	if ((rc = check_options(&o, &a)) != HC_OK)
+	if ((rc = choose_inputs(&r, &a)) != HC_OK || (rc = check_options(&o, &a, &r)) != HC_OK ||
+	    (rc = cli_rules_config("report", &o.rul, &a, 1, 0, &r.cfg)) != HC_OK)
 		goto cleanup;
 	install_signals();
-	if (a.npositional) {
-		r.universe_path = a.positional[0];
-		r.holdings_path = o.holdings;
-		r.sectors_path = o.sectors;
-	} else {
-		if (!demo_path(demo_universe, sizeof demo_universe, "demo-universe.csv")) {
-			rc = cli_usage_error("report", "no UNIVERSE given and the demo universe '%s' cannot be read",
-					     demo_universe);
-			goto cleanup;
-		}
-		r.universe_path = demo_universe;
-		r.holdings_path = o.holdings ? o.holdings
-			: demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv") ? demo_funds : NULL;
-		r.sectors_path = o.sectors ? o.sectors
-			: demo_path(demo_sectors, sizeof demo_sectors, "demo-sectors.csv") ? demo_sectors : NULL;
-	}
 	/* the folder first: an existing DIR is refused before any work, and
 	 * the temporary folder shows that a run is under way */
 	if ((rc = reportdir_begin(&rd, o.output, o.force, &stale, &err)) != HC_OK) {
@@ -1142,24 +1001,26 @@ int cmd_report(int argc, char **argv)
 			stale == 1 ? "" : "s");
 	snprintf(line, sizeof line, "loading '%s'", r.universe_path);
 	stage(&o, line);
-	if ((rc = load_universe(&o, r.universe_path, &r.u, 0)) != HC_OK ||
-	    (o.window && (rc = load_universe(&o, r.universe_path, &r.every_security, 1)) != HC_OK))
+	if ((rc = cli_load_universe("report", &o.uni, r.universe_path, &r.u)) != HC_OK ||
+	    (o.window && (rc = load_every_security(&o, r.universe_path, &r.every_security)) != HC_OK) ||
+	    (rc = compute(&r)) != HC_OK)
 		goto cleanup;
-	rc = compute(&r, &err);
-	if (rc == HC_OK && (build_universe(&r) || build_curve(&r) || build_enough(&r)))
-		rc = hc_error(&err, HC_ENOMEM, "out of memory building the report");
-	if (rc == HC_OK && r.audit)
-		rc = audit_report(&r.rep_audit, r.audit, r.h, &err);
-	if (rc == HC_OK) {
-		stage(&o, "writing the folder");
-		rc = write_folder(&r, rd, &err);
+	if (build_universe(&r)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("report", &err);
+		goto cleanup;
 	}
-	if (rc != HC_OK) {
+	stage(&o, "writing the folder");
+	if ((rc = write_folder(&r, rd, &err)) != HC_OK) {
 		rc = cli_fail("report", &err);
 		goto cleanup;
 	}
 	if (stage_enabled(&o))
 		fprintf(stderr, "holdcount report: wrote '%s' (start with summary.md)\n", o.output);
+	if (r.audit && r.audit->failed_funds) {
+		cli_audit_say_failures("report", r.audit);
+		rc = HC_EPOLICY;
+	}
 cleanup:
 	reportdir_free(rd);
 	run_release(&r);

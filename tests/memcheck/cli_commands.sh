@@ -50,6 +50,13 @@ run curve curve --sizes 1-5,10,20,40 --paths 300 --seed 2385 "$U"
 OUT=$SCRATCH/curve.csv run curve-csv curve --format csv --paths 200 --seed 7 --output "$SCRATCH/curve.csv" "$U"
 run formula formula --average-sd 30% --average-correlation 0.25 --sizes 1,10,100
 run enough enough --paths 200 --seed 11 "$U"
+# two invented funds on the universe's ids: audit, and the report folder
+# (whose only output is the folder: its summary.md must be written)
+{ echo "fund,id,value"; for i in 1 2 3 4 5 6; do echo "Ashgrove Narrow,W00$i,0.1$i"; done
+  for i in $(seq 10 39); do echo "Ashgrove Wide,W0$i,1"; done; } >"$SCRATCH/funds.csv"
+run audit audit --paths 200 --seed 3 --max-weight 20% --holdings "$SCRATCH/funds.csv" "$U"
+OUT=$SCRATCH/report/summary.md run report report -q --paths 100 --bootstrap 20 --seed 3 \
+	--holdings "$SCRATCH/funds.csv" -o "$SCRATCH/report" "$U"
 
 echo "memcheck cli_commands: $ran commands run, $failed failed${pending:+, waiting for:$pending}" >&2
 [ "$failed" = 0 ] || exit 1
