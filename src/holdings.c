@@ -174,6 +174,11 @@ static void cells_clear(struct reader *rd)
 	}
 }
 
+/* Find or add fund name; *index is set whenever HC_OK is returned.  The
+ * failure paths return HC_ENOMEM as a constant rather than hc_error's
+ * result: hc_error lives in another unit, so the compiler cannot see that
+ * it returns its code and would think the caller could get HC_OK with
+ * *index unset (gcc -Wmaybe-uninitialized in on_record). */
 static int fund_index(struct reader *rd, const char *name, size_t line,
 		      size_t *index, struct hc_error *err)
 {
@@ -193,17 +198,20 @@ static int fund_index(struct reader *rd, const char *name, size_t line,
 		size_t cap = rd->cap_funds ? 2 * rd->cap_funds : 8;
 		struct holdings_fund *p = hc_reallocarray(h->funds, cap, sizeof *p);
 		if (!p)
-			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+			goto nomem;
 		h->funds = p;
 		rd->cap_funds = cap;
 	}
 	memset(&h->funds[h->nfunds], 0, sizeof h->funds[0]);
 	h->funds[h->nfunds].name = hc_strdup(name);
 	if (!h->funds[h->nfunds].name)
-		return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+		goto nomem;
 	h->funds[h->nfunds].first_line = line;
 	*index = rd->last_fund = h->nfunds++;
 	return HC_OK;
+nomem:
+	hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+	return HC_ENOMEM;
 }
 
 static int blank(const char *s)
