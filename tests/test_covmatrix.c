@@ -31,6 +31,7 @@
 #include "holdcount/memory.h"
 #include "holdcount/universe.h"
 
+#include "check.h"
 #include "heapcheck.h"
 
 #define assert_close(a, b, tol) do { \
@@ -257,8 +258,7 @@ static void expect_load_error(const char *text, const char *prefix)
 	int rc = covmatrix_load_buffer(&c, "cov.csv", text, strlen(text),
 				       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
 
-	if (rc != HC_EDATA || strncmp(err.message, prefix, strlen(prefix)) != 0)
-		fail_msg("rc %d, message '%s' (want '%s...')", rc, err.message, prefix);
+	check_status_prefix(rc, HC_EDATA, err.message, prefix);
 	assert_null(c);
 }
 
@@ -286,17 +286,11 @@ static void test_covmatrix_load_errors(void **state)
 
 static void test_covmatrix_load_file(void **state)
 {
-	const char *tmp = getenv("HOLDCOUNT_TEST_TMP");
 	char path[4096];
 	struct covmatrix *c;
 	struct hc_error err;
-	FILE *fp;
 
-	snprintf(path, sizeof path, "%s/cov.csv", tmp);
-	fp = fopen(path, "wb");
-	assert_non_null(fp);
-	fputs(MATRIX, fp);
-	fclose(fp);
+	check_write_temp(path, sizeof path, "cov.csv", MATRIX);
 	assert_int_equal(covmatrix_load(&c, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
 	assert_int_equal(c->m, 3);
 	covmatrix_free(c);

@@ -23,6 +23,7 @@
 #include "holdcount/sectors.h"
 #include "holdcount/universe.h"
 
+#include "check.h"
 #include "heapcheck.h"
 
 static const char MAP[] =
@@ -87,8 +88,7 @@ static void expect_error(const char *text, const char *prefix)
 	struct hc_error err;
 	int rc = sectors_load_buffer(&s, "map.csv", text, strlen(text), NULL, NULL, &err);
 
-	if (rc != HC_EDATA || strncmp(err.message, prefix, strlen(prefix)) != 0)
-		fail_msg("rc %d, message '%s' (want '%s...')", rc, err.message, prefix);
+	check_status_prefix(rc, HC_EDATA, err.message, prefix);
 	assert_null(s);
 }
 
@@ -170,17 +170,11 @@ static void test_sectors_strata_all_mapped(void **state)
 
 static void test_sectors_file(void **state)
 {
-	const char *tmp = getenv("HOLDCOUNT_TEST_TMP");
 	char path[4096];
 	struct sectors *s;
 	struct hc_error err;
-	FILE *fp;
 
-	snprintf(path, sizeof path, "%s/sectors.csv", tmp);
-	fp = fopen(path, "wb");
-	assert_non_null(fp);
-	fputs(MAP, fp);
-	fclose(fp);
+	check_write_temp(path, sizeof path, "sectors.csv", MAP);
 	assert_int_equal(sectors_load(&s, path, NULL, NULL, &err), HC_OK);
 	assert_int_equal(s->n, 6);
 	sectors_free(s);

@@ -27,6 +27,7 @@
 #include "holdcount/memory.h"
 #include "holdcount/universe.h"
 
+#include "check.h"
 #include "heapcheck.h"
 
 /* |a - b| <= tol, with both values shown on failure (cmocka's float
@@ -51,8 +52,7 @@ static void expect_error(const char *text, const struct universe_options *o,
 	struct hc_error err;
 	int rc = load(&u, text, o, &err);
 
-	if (rc != code || strncmp(err.message, prefix, strlen(prefix)) != 0)
-		fail_msg("rc %d (want %d), message '%s' (want '%s...')", rc, code, err.message, prefix);
+	check_status_prefix(rc, code, err.message, prefix);
 	assert_null(u);
 }
 
@@ -620,17 +620,11 @@ static void test_universe_window_and_resample(void **state)
 
 static void test_universe_file(void **state)
 {
-	const char *tmp = getenv("HOLDCOUNT_TEST_TMP");
 	char path[4096];
 	struct universe *u;
 	struct hc_error err;
-	FILE *fp;
 
-	snprintf(path, sizeof path, "%s/universe_small.csv", tmp);
-	fp = fopen(path, "wb");
-	assert_non_null(fp);
-	fputs(wide3, fp);
-	fclose(fp);
+	check_write_temp(path, sizeof path, "universe_small.csv", wide3);
 	assert_int_equal(universe_load(&u, path, NULL, &err), HC_OK);
 	assert_int_equal(u->m, 3);
 	assert_string_equal(u->source, path);
