@@ -11,19 +11,16 @@
  *              k = ~np.isnan(Y[i]) & ~np.isnan(Y[j])
  *   repair:    w, V = np.linalg.eigh(A); V @ np.diag(np.maximum(w, 0)) @ V.T
  */
-#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <cmocka.h>
 
-#include <malloc.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include <gsl/gsl_errno.h>
 

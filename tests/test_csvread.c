@@ -7,19 +7,16 @@
  * Table 3-7 "Well-Formed UTF-8 Byte Sequences"; glibc's strtod (correctly
  * rounded decimal conversion) as the reference for number parsing.
  */
-#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <cmocka.h>
 
-#include <malloc.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "holdcount/csvread.h"
 #include "holdcount/memory.h"

@@ -6,18 +6,15 @@
  * order of first appearance, unmapped last) - an exact enumeration of a
  * case small enough to check on paper.
  */
-#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <cmocka.h>
 
-#include <malloc.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "holdcount/memory.h"
 #include "holdcount/sectors.h"
