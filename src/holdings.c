@@ -446,12 +446,26 @@ static void reader_release(struct reader *rd)
 	hc_free(rd->rows);
 }
 
+/* Read the CSV at path, or (path NULL) the buffer data of len bytes named
+ * name, with delimiter (0: detect) through handler h: the one reading step
+ * of both loaders below. */
+static int read_csv(const char *name, const char *path, const char *data, size_t len,
+		    char delimiter, const struct csvread_handler *h, struct hc_error *err)
+{
+	struct csvread_options copt;
+
+	csvread_options_init(&copt);
+	copt.delimiter = delimiter;
+	if (path)
+		return csvread_file(path, &copt, h, NULL, err);
+	return csvread_buffer(name, data, len, &copt, h, NULL, err);
+}
+
 static int load(struct holdings **out, const char *name, const char *path,
 		const char *data, size_t len, const struct holdings_options *opt,
 		struct hc_error *err)
 {
 	struct holdings_options defaults;
-	struct csvread_options copt;
 	struct csvread_handler handler;
 	struct reader rd;
 	int rc;
@@ -473,16 +487,10 @@ static int load(struct holdings **out, const char *name, const char *path,
 		rc = hc_error(err, HC_ENOMEM, "out of memory reading '%s'", name);
 		goto cleanup;
 	}
-	csvread_options_init(&copt);
-	copt.delimiter = opt->delimiter;
 	handler.field = on_field;
 	handler.record = on_record;
 	handler.ctx = &rd;
-	if (path)
-		rc = csvread_file(path, &copt, &handler, NULL, err);
-	else
-		rc = csvread_buffer(name, data, len, &copt, &handler, NULL, err);
-	if (rc != HC_OK)
+	if ((rc = read_csv(name, path, data, len, opt->delimiter, &handler, err)) != HC_OK)
 		goto cleanup;
 	if (!rd.header_fields) {
 		rc = hc_error(err, HC_EDATA, "%s: empty file, expected a header fund,id,weight and rows", name);
@@ -652,7 +660,6 @@ static int labels_load(struct holdings_labels **out, const char *name,
 		       const char *path, const char *data, size_t len,
 		       char delimiter, struct hc_error *err)
 {
-	struct csvread_options copt;
 	struct csvread_handler handler;
 	struct label_reader lr;
 	int rc;
@@ -665,16 +672,10 @@ static int labels_load(struct holdings_labels **out, const char *name,
 		rc = hc_error(err, HC_ENOMEM, "out of memory reading '%s'", name);
 		goto cleanup;
 	}
-	csvread_options_init(&copt);
-	copt.delimiter = delimiter;
 	handler.field = label_field;
 	handler.record = label_record;
 	handler.ctx = &lr;
-	if (path)
-		rc = csvread_file(path, &copt, &handler, NULL, err);
-	else
-		rc = csvread_buffer(name, data, len, &copt, &handler, NULL, err);
-	if (rc != HC_OK)
+	if ((rc = read_csv(name, path, data, len, delimiter, &handler, err)) != HC_OK)
 		goto cleanup;
 	if (lr.l->n == 0) {
 		rc = hc_error(err, HC_EDATA, "%s: no rows after the header, expected id,label rows", name);
