@@ -174,6 +174,11 @@ static void cells_clear(struct reader *rd)
 	}
 }
 
+/* Find or add fund name; *index is set whenever HC_OK is returned.  The
+ * failure paths return HC_ENOMEM as a constant rather than hc_error's
+ * result: hc_error lives in another unit, so the compiler cannot see that
+ * it returns its code and would think the caller could get HC_OK with
+ * *index unset (gcc -Wmaybe-uninitialized in on_record). */
 static int fund_index(struct reader *rd, const char *name, size_t line,
 		      size_t *index, struct hc_error *err)
 {
@@ -193,17 +198,20 @@ static int fund_index(struct reader *rd, const char *name, size_t line,
 		size_t cap = rd->cap_funds ? 2 * rd->cap_funds : 8;
 		struct holdings_fund *p = hc_reallocarray(h->funds, cap, sizeof *p);
 		if (!p)
-			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+			goto nomem;
 		h->funds = p;
 		rd->cap_funds = cap;
 	}
 	memset(&h->funds[h->nfunds], 0, sizeof h->funds[0]);
 	h->funds[h->nfunds].name = hc_strdup(name);
 	if (!h->funds[h->nfunds].name)
-		return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+		goto nomem;
 	h->funds[h->nfunds].first_line = line;
 	*index = rd->last_fund = h->nfunds++;
 	return HC_OK;
+nomem:
+	hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+	return HC_ENOMEM;
 }
 
 static int blank(const char *s)
@@ -438,12 +446,26 @@ static void reader_release(struct reader *rd)
 	hc_free(rd->rows);
 }
 
+/* Read the CSV at path, or (path NULL) the buffer data of len bytes named
+ * name, with delimiter (0: detect) through handler h: the one reading step
+ * of both loaders below. */
+static int read_csv(const char *name, const char *path, const char *data, size_t len,
+		    char delimiter, const struct csvread_handler *h, struct hc_error *err)
+{
+	struct csvread_options copt;
+
+	csvread_options_init(&copt);
+	copt.delimiter = delimiter;
+	if (path)
+		return csvread_file(path, &copt, h, NULL, err);
+	return csvread_buffer(name, data, len, &copt, h, NULL, err);
+}
+
 static int load(struct holdings **out, const char *name, const char *path,
 		const char *data, size_t len, const struct holdings_options *opt,
 		struct hc_error *err)
 {
 	struct holdings_options defaults;
-	struct csvread_options copt;
 	struct csvread_handler handler;
 	struct reader rd;
 	int rc;
@@ -465,16 +487,10 @@ static int load(struct holdings **out, const char *name, const char *path,
 		rc = hc_error(err, HC_ENOMEM, "out of memory reading '%s'", name);
 		goto cleanup;
 	}
-	csvread_options_init(&copt);
-	copt.delimiter = opt->delimiter;
 	handler.field = on_field;
 	handler.record = on_record;
 	handler.ctx = &rd;
-	if (path)
-		rc = csvread_file(path, &copt, &handler, NULL, err);
-	else
-		rc = csvread_buffer(name, data, len, &copt, &handler, NULL, err);
-	if (rc != HC_OK)
+	if ((rc = read_csv(name, path, data, len, opt->delimiter, &handler, err)) != HC_OK)
 		goto cleanup;
 	if (!rd.header_fields) {
 		rc = hc_error(err, HC_EDATA, "%s: empty file, expected a header fund,id,weight and rows", name);
@@ -644,7 +660,6 @@ static int labels_load(struct holdings_labels **out, const char *name,
 		       const char *path, const char *data, size_t len,
 		       char delimiter, struct hc_error *err)
 {
-	struct csvread_options copt;
 	struct csvread_handler handler;
 	struct label_reader lr;
 	int rc;
@@ -657,16 +672,10 @@ static int labels_load(struct holdings_labels **out, const char *name,
 		rc = hc_error(err, HC_ENOMEM, "out of memory reading '%s'", name);
 		goto cleanup;
 	}
-	csvread_options_init(&copt);
-	copt.delimiter = delimiter;
 	handler.field = label_field;
 	handler.record = label_record;
 	handler.ctx = &lr;
-	if (path)
-		rc = csvread_file(path, &copt, &handler, NULL, err);
-	else
-		rc = csvread_buffer(name, data, len, &copt, &handler, NULL, err);
-	if (rc != HC_OK)
+	if ((rc = read_csv(name, path, data, len, delimiter, &handler, err)) != HC_OK)
 		goto cleanup;
 	if (lr.l->n == 0) {
 		rc = hc_error(err, HC_EDATA, "%s: no rows after the header, expected id,label rows", name);

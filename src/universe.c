@@ -957,6 +957,31 @@ static void prices_to_returns(struct universe *u, int logret)
 	u->t = n;
 }
 
+/* One step of a compacting pass over the securities: drop security i,
+ * recording reason why in the dropped list (cap: that list's capacity),
+ * or, when why is NULL, move its returns and id down to slot *keep and
+ * count it kept.  HC_ENOMEM when the dropped list cannot grow. */
+static int keep_or_drop(struct universe *u, size_t i, const char *why, size_t *keep,
+			size_t *cap, struct hc_error *err)
+{
+	size_t t = u->t;
+
+	if (why) {
+		if (add_dropped(u, cap, u->ids[i], why) != 0)
+			return hc_error(err, HC_ENOMEM, "out of memory");
+		hc_free(u->ids[i]);
+		u->ids[i] = NULL;
+		return HC_OK;
+	}
+	if (*keep != i) {
+		memmove(u->x + *keep * t, u->x + i * t, t * sizeof(double));
+		u->ids[*keep] = u->ids[i];
+		u->ids[i] = NULL;
+	}
+	(*keep)++;
+	return HC_OK;
+}
+
 static size_t count_missing(const double *x, size_t t)
 {
 	size_t k, c = 0;
@@ -972,6 +997,7 @@ static int apply_policy(struct universe *u, int missing, double min_coverage,
 {
 	size_t i, keep = 0, t = u->t, miss, cap = 0;
 	char reason[160];
+	int rc;
 
 	for (i = 0; i < u->m; i++) {
 		double *xi = u->x + i * t;
@@ -991,19 +1017,8 @@ static int apply_policy(struct universe *u, int missing, double min_coverage,
 		} else {
 			ok = 1;
 		}
-		if (!ok) {
-			if (add_dropped(u, &cap, u->ids[i], reason) != 0)
-				return hc_error(err, HC_ENOMEM, "out of memory");
-			hc_free(u->ids[i]);
-			u->ids[i] = NULL;
-			continue;
-		}
-		if (keep != i) {
-			memmove(u->x + keep * t, xi, t * sizeof(double));
-			u->ids[keep] = u->ids[i];
-			u->ids[i] = NULL;
-		}
-		keep++;
+		if ((rc = keep_or_drop(u, i, ok ? NULL : reason, &keep, &cap, err)) != HC_OK)
+			return rc;
 	}
 	u->m = keep;
 	u->has_missing = 0;
@@ -1258,6 +1273,7 @@ static struct universe *derived_alloc(const struct universe *src, size_t t)
 static int drop_constant(struct universe *u, struct hc_error *err)
 {
 	size_t i, k, keep = 0, t = u->t, cap = u->ndropped;
+	int rc;
 
 	for (i = 0; i < u->m; i++) {
 		const double *xi = u->x + i * t;
@@ -1273,19 +1289,10 @@ static int drop_constant(struct universe *u, struct hc_error *err)
 			else if (xi[k] != first)
 				varies = 1;
 		}
-		if (!varies && obs >= 2) {
-			if (add_dropped(u, &cap, u->ids[i], "zero variance in the window") != 0)
-				return hc_error(err, HC_ENOMEM, "out of memory");
-			hc_free(u->ids[i]);
-			u->ids[i] = NULL;
-			continue;
-		}
-		if (keep != i) {
-			memmove(u->x + keep * t, xi, t * sizeof(double));
-			u->ids[keep] = u->ids[i];
-			u->ids[i] = NULL;
-		}
-		keep++;
+		rc = keep_or_drop(u, i, !varies && obs >= 2 ? "zero variance in the window" : NULL,
+				  &keep, &cap, err);
+		if (rc != HC_OK)
+			return rc;
 	}
 	u->m = keep;
 	return HC_OK;

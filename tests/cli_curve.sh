@@ -6,20 +6,8 @@
 # file; the bad-input cases are those of issue 2, each with its exit
 # status (include/holdcount/error.h) and the first words of its message.
 set -u
-HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
-PY=${PYTHON:-/usr/bin/python3}
-T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_curve.$$
-mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
-fails=0
-fail() { echo "FAIL: $*"; fails=$((fails+1)); }
-expect() {
-	local want=$1 prefix=$2; shift 3
-	"$HC" "$@" >"$T/out" 2>"$T/err"; local got=$?
-	[ "$got" = "$want" ] || fail "holdcount $*: exit $got, expected $want ($(head -c 300 "$T/err"))"
-	case "$(head -n1 "$T/err")" in "$prefix"*) ;; *) fail "holdcount $*: stderr '$(head -n1 "$T/err")', expected '$prefix...'";; esac
-	[ "$want" != 0 ] && [ -s "$T/out" ] && fail "holdcount $*: wrote to stdout on failure"
-	return 0
-}
+. "$(dirname "$0")/lib.sh"
+cli_begin cli_curve
 
 # A monthly universe of 5 invented securities over 8 months (values made up).
 cat >"$T/u.csv" <<'CSV'
@@ -254,5 +242,4 @@ echo "earlier" >"$T/keep.csv"
 head -n1 "$T/keep.csv" | grep -q '^n,expected_variance' || fail "curve -o content"
 ls -A "$T" | grep -q '\.tmp-' && fail "temporary file left behind"
 
-[ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
-echo "cli_curve: all checks passed"
+cli_end cli_curve

@@ -9,19 +9,8 @@
 #   22(3): the same model scaled by 52 weeks, expected annual sd 49.236% at
 #   N = 1, 23.932% at 10, 19.158% in the limit (within 0.002).
 set -u
-HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
-PY=${PYTHON:-/usr/bin/python3}
-T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_formula.$$
-mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
-fails=0
-fail() { echo "FAIL: $*"; fails=$((fails+1)); }
-expect() {
-	local want=$1 prefix=$2; shift 3
-	"$HC" "$@" >"$T/out" 2>"$T/err"; local got=$?
-	[ "$got" = "$want" ] || fail "holdcount $*: exit $got, expected $want ($(head -c 300 "$T/err"))"
-	case "$(head -n1 "$T/err")" in "$prefix"*) ;; *) fail "holdcount $*: stderr '$(head -n1 "$T/err")', expected '$prefix...'";; esac
-	[ -s "$T/out" ] && [ "$want" != 0 ] && fail "holdcount $*: wrote to stdout on failure"
-}
+. "$(dirname "$0")/lib.sh"
+cli_begin cli_formula
 
 # Elton & Gruber (1977), from memory: per-period scale, no annualisation.
 "$HC" formula --average-variance 46.619 --average-covariance 7.058 --sizes 1,10,1000000 --format json >"$T/eg.json" \
@@ -112,5 +101,4 @@ ls -A "$T" | grep -q '\.tmp-' && fail "temporary file left behind"
 [ "$rc" = 4 ] || fail "writing to /dev/full: exit $rc, expected 4"
 grep -q "^holdcount formula: cannot write to standard output" "$T/err" || fail "/dev/full message: $(cat "$T/err")"
 
-[ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
-echo "cli_formula: all checks passed"
+cli_end cli_formula

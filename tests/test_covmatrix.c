@@ -11,19 +11,16 @@
  *              k = ~np.isnan(Y[i]) & ~np.isnan(Y[j])
  *   repair:    w, V = np.linalg.eigh(A); V @ np.diag(np.maximum(w, 0)) @ V.T
  */
-#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <cmocka.h>
 
-#include <malloc.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include <gsl/gsl_errno.h>
 
@@ -31,20 +28,14 @@
 #include "holdcount/memory.h"
 #include "holdcount/universe.h"
 
+#include "check.h"
+#include "heapcheck.h"
+
 #define assert_close(a, b, tol) do { \
 	double a_ = (a), b_ = (b); \
 	if (!(fabs(a_ - b_) <= (tol))) \
 		fail_msg("%.17g != %.17g (tolerance %g)", a_, b_, (double)(tol)); \
 } while (0)
-
-/* See test_universe.c: glibc's tcache is turned off in main() so that
- * mallinfo2's count of bytes in use is exact. */
-static size_t heap_in_use(void)
-{
-	struct mallinfo2 mi = mallinfo2();
-
-	return mi.uordblks + mi.hblkhd;
-}
 
 static const char RETURNS[] =
 	"date,A,B,C,D\n"
@@ -264,8 +255,7 @@ static void expect_load_error(const char *text, const char *prefix)
 	int rc = covmatrix_load_buffer(&c, "cov.csv", text, strlen(text),
 				       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
 
-	if (rc != HC_EDATA || strncmp(err.message, prefix, strlen(prefix)) != 0)
-		fail_msg("rc %d, message '%s' (want '%s...')", rc, err.message, prefix);
+	check_status_prefix(rc, HC_EDATA, err.message, prefix);
 	assert_null(c);
 }
 
@@ -293,17 +283,11 @@ static void test_covmatrix_load_errors(void **state)
 
 static void test_covmatrix_load_file(void **state)
 {
-	const char *tmp = getenv("HOLDCOUNT_TEST_TMP");
 	char path[4096];
 	struct covmatrix *c;
 	struct hc_error err;
-	FILE *fp;
 
-	snprintf(path, sizeof path, "%s/cov.csv", tmp);
-	fp = fopen(path, "wb");
-	assert_non_null(fp);
-	fputs(MATRIX, fp);
-	fclose(fp);
+	check_write_temp(path, sizeof path, "cov.csv", MATRIX);
 	assert_int_equal(covmatrix_load(&c, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
 	assert_int_equal(c->m, 3);
 	covmatrix_free(c);
@@ -311,69 +295,75 @@ static void test_covmatrix_load_file(void **state)
 	assert_null(c);
 }
 
-/* Every allocation index fails in turn: HC_ENOMEM, nothing leaked. */
+/* Every allocation index fails in turn: HC_ENOMEM, nothing leaked
+ * (heapcheck.h).  A sweep's context: */
+struct made {
+	const struct universe *from;   /* NULL: load MATRIX instead */
+	struct covmatrix *c;
+	const double *a;               /* repair: the matrix, and its copy b */
+	double b[9];
+};
+
+static int made_covmatrix(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+
+	if (w->from)
+		return covmatrix_from_universe(w->from, &w->c, err);
+	return covmatrix_load_buffer(&w->c, "cov.csv", MATRIX, strlen(MATRIX),
+				     COVMATRIX_DEFAULT_SYMMETRY_TOL, err);
+}
+
+static void made_release(void *ctx)
+{
+	covmatrix_free(((struct made *)ctx)->c);
+}
+
+static void made_none(void *ctx)
+{
+	assert_null(((struct made *)ctx)->c);
+}
+
+static int made_repair(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+	int changed;
+
+	memcpy(w->b, w->a, sizeof w->b);
+	return covmatrix_repair_psd(w->b, 3, &changed, err);
+}
+
+static void made_untouched(void *ctx)
+{
+	struct made *w = ctx;
+
+	assert_memory_equal(w->b, w->a, sizeof w->b);   /* untouched on failure */
+}
+
 static void test_covmatrix_allocation_failure(void **state)
 {
 	struct universe *u = load_universe(RETURNS, UNIVERSE_MISSING_COMPLETE);
 	struct universe *g = load_universe(GAPS, UNIVERSE_MISSING_KEEP);
-	const struct universe *src[2] = { u, g };
-	struct covmatrix *c;
-	struct hc_error err;
-	double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 }, b[9];
-	int rc, changed, pass;
-	long k;
+	const struct universe *src[3] = { u, g, NULL };
+	static const double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 };
+	struct made w = { NULL, NULL, a, { 0 } };
+	struct heapcheck_call make = { made_covmatrix, made_release, made_none, &w };
+	struct heapcheck_call repair = { made_repair, NULL, made_untouched, &w };
+	int pass;
 
 	gsl_set_error_handler_off();
 	for (pass = 0; pass < 3; pass++) {
-		for (k = 0;; k++) {
-			size_t before = heap_in_use();
-
-			memcpy(b, a, sizeof b);
-			hc_alloc_fail_after(k);
-			if (pass < 2)
-				rc = covmatrix_from_universe(src[pass], &c, &err);
-			else
-				rc = covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
-							   COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
-			hc_alloc_fail_after(-1);
-			if (rc == HC_OK) {
-				covmatrix_free(c);
-				assert_int_equal(heap_in_use(), before);
-				break;
-			}
-			assert_int_equal(rc, HC_ENOMEM);
-			assert_null(c);
-			assert_int_equal(heap_in_use(), before);
-		}
-		assert_true(k > 2);
+		w.from = src[pass];
+		assert_true(heapcheck_sweep(&make) > 2);
 	}
-	for (k = 0;; k++) {
-		size_t before = heap_in_use();
-
-		memcpy(b, a, sizeof b);
-		hc_alloc_fail_after(k);
-		rc = covmatrix_repair_psd(b, 3, &changed, &err);
-		hc_alloc_fail_after(-1);
-		assert_int_equal(heap_in_use(), before);
-		if (rc == HC_OK)
-			break;
-		assert_int_equal(rc, HC_ENOMEM);
-		assert_memory_equal(b, a, sizeof b);   /* untouched on failure */
-	}
-	assert_int_equal(k, 3);
+	assert_int_equal(heapcheck_sweep(&repair), 3);
 	universe_free(u);
 	universe_free(g);
 }
 
 int main(int argc, char **argv)
 {
-	if (!getenv("HOLDCOUNT_TEST_NO_TCACHE")) {
-		setenv("HOLDCOUNT_TEST_NO_TCACHE", "1", 1);
-		setenv("GLIBC_TUNABLES", "glibc.malloc.tcache_count=0", 1);
-		execv("/proc/self/exe", argv);
-		fprintf(stderr, "cannot re-run without the malloc cache\n");
-		return 1;
-	}
+	heapcheck_rerun_without_tcache(argv);
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_covmatrix_complete_against_numpy),
 		cmocka_unit_test(test_covmatrix_pairwise_against_numpy),

@@ -7,22 +7,21 @@
  * Table 3-7 "Well-Formed UTF-8 Byte Sequences"; glibc's strtod (correctly
  * rounded decimal conversion) as the reference for number parsing.
  */
-#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <cmocka.h>
 
-#include <malloc.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "holdcount/csvread.h"
 #include "holdcount/memory.h"
+
+#include "heapcheck.h"
 
 #define MAXF 64
 
@@ -82,17 +81,6 @@ static int run(struct got *g, const char *data, size_t len, char delim,
 	csvread_options_init(&o);
 	o.delimiter = delim;
 	return csvread_buffer("t.csv", data, len, &o, &h, used, err);
-}
-
-/* Bytes of heap in use.  glibc's per-thread cache keeps freed chunks
- * counted as in use, so main() re-runs the test with the cache off
- * (GLIBC_TUNABLES, documented in the glibc manual, "Memory Allocation
- * Tunables"); then mallinfo2's uordblks is exact. */
-static size_t heap_in_use(void)
-{
-	struct mallinfo2 mi = mallinfo2();
-
-	return mi.uordblks + mi.hblkhd;
 }
 
 /* RFC 4180 section 2: quoted fields may contain the delimiter, CRLF and
@@ -360,26 +348,20 @@ static void test_csvread_file_last_field_position(void **state)
 
 /* Every allocation of a small read fails in turn: HC_ENOMEM each time,
  * nothing leaked (glibc's mallinfo2 counts the heap in use). */
-static void test_csvread_allocation_failure(void **state)
+static int read_small(void *ctx, struct hc_error *err)
 {
 	static const char data[] = "date,\"A\",B\n2021-01-29,\"2.385\",1\n";
+
+	return run(ctx, data, sizeof data - 1, 0, NULL, err);
+}
+
+static void test_csvread_allocation_failure(void **state)
+{
 	struct got g;
-	struct hc_error err;
-	long k;
-	int rc;
+	struct heapcheck_call call = { read_small, NULL, NULL, &g };
 
-	for (k = 0;; k++) {
-		size_t before = heap_in_use();
-
-		hc_alloc_fail_after(k);
-		rc = run(&g, data, sizeof data - 1, 0, NULL, &err);
-		hc_alloc_fail_after(-1);
-		assert_int_equal(heap_in_use(), before);
-		if (rc == HC_OK)
-			break;
-		assert_int_equal(rc, HC_ENOMEM);
-	}
-	assert_true(k >= 2);   /* the first line and libcsv's field buffer */
+	/* the first line and libcsv's field buffer */
+	assert_true(heapcheck_sweep(&call) >= 2);
 }
 
 /* Numbers: accepted texts equal glibc strtod of the same text. */
@@ -502,13 +484,7 @@ static void test_csvread_utf8_valid(void **state)
 
 int main(int argc, char **argv)
 {
-	if (!getenv("HOLDCOUNT_TEST_NO_TCACHE")) {
-		setenv("HOLDCOUNT_TEST_NO_TCACHE", "1", 1);
-		setenv("GLIBC_TUNABLES", "glibc.malloc.tcache_count=0", 1);
-		execv("/proc/self/exe", argv);
-		fprintf(stderr, "cannot re-run without the malloc cache\n");
-		return 1;
-	}
+	heapcheck_rerun_without_tcache(argv);
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_csvread_positions_and_quoting),
 		cmocka_unit_test(test_csvread_detects_semicolon),

@@ -16,6 +16,8 @@
 #include "holdcount/holdings.h"
 #include "holdcount/memory.h"
 
+#include "heapcheck.h"
+
 /* cmocka 1.1 has no double assertion: |got - want| <= tol, values printed. */
 static void near(double got, double want, double tol, const char *what, int line)
 {
@@ -199,30 +201,44 @@ static void test_holdings_bad_input_messages(void **state)
 	}
 }
 
-static void test_holdings_allocation_failures(void **state)
+/* Allocation-failure sweeps (heapcheck.h): each failure is HC_ENOMEM
+ * with nothing returned and nothing leaked.  A sweep's context: */
+struct made {
+	struct holdings *h;
+	struct holdings_labels *l;
+};
+
+static int made_holdings(void *ctx, struct hc_error *err)
 {
-	const char *text =
+	static const char text[] =
 		"fund,id,weight,issuer\n"
 		"Nyssa,QX1,0.3,I1\nNyssa,QX2,0.3,I2\nOak,QX1,0.5,I1\nNyssa,QX3,0.39,I1\nOak,QX4,0.5,I3\nOak,QX5,0,I3\n";
-	struct holdings *h;
-	struct hc_error err;
-	long k;
-	int rc = HC_ENOMEM;
 
-	/* Fail the k-th allocation for every k until the load succeeds: each
-	 * failure must be reported as HC_ENOMEM with nothing returned. */
-	for (k = 0; rc == HC_ENOMEM; k++) {
-		hc_alloc_fail_after(k);
-		rc = load(&h, text, NULL, &err);
-		hc_alloc_fail_after(-1);
-		if (rc == HC_ENOMEM)
-			assert_null(h);
-		assert_true(k < 1000);
-	}
-	assert_int_equal(rc, HC_OK);
-	assert_true(k > 5);
-	assert_int_equal(h->nwarnings, 2);
+	return load(&((struct made *)ctx)->h, text, NULL, err);
+}
+
+static void made_holdings_release(void *ctx)
+{
+	struct holdings *h = ((struct made *)ctx)->h;
+
+	assert_int_equal(h->nwarnings, 2);   /* the loaded result, once it loads */
 	holdings_free(h);
+}
+
+static void made_holdings_none(void *ctx)
+{
+	assert_null(((struct made *)ctx)->h);
+}
+
+static void test_holdings_allocation_failures(void **state)
+{
+	struct made w = { NULL, NULL };
+	struct heapcheck_call call = { made_holdings, made_holdings_release, made_holdings_none, &w };
+
+	long k = heapcheck_sweep(&call);
+
+	assert_true(k > 5);
+	assert_true(k < 1000);
 }
 
 static int labels(struct holdings_labels **l, const char *text, struct hc_error *err)
@@ -230,13 +246,25 @@ static int labels(struct holdings_labels **l, const char *text, struct hc_error 
 	return holdings_labels_load_buffer(l, "s.csv", text, strlen(text), 0, err);
 }
 
+static const char label_text[] = "id,sector\nQX3,Utilities\nQX1,Energy\n\"QX2\",\"Health, care\"\n";
+
+static int made_labels(void *ctx, struct hc_error *err)
+{
+	return labels(&((struct made *)ctx)->l, label_text, err);
+}
+
+static void made_labels_release(void *ctx)
+{
+	holdings_labels_free(((struct made *)ctx)->l);
+}
+
 static void test_holdings_labels_map(void **state)
 {
-	const char *text = "id,sector\nQX3,Utilities\nQX1,Energy\n\"QX2\",\"Health, care\"\n";
+	const char *text = label_text;
 	struct holdings_labels *l;
 	struct hc_error err;
-	long k;
-	int rc = HC_ENOMEM;
+	struct made w = { NULL, NULL };
+	struct heapcheck_call call = { made_labels, made_labels_release, NULL, &w };
 
 	assert_int_equal(holdings_labels_load_buffer(&l, "s.csv", text, strlen(text), 0, &err), HC_OK);
 	assert_int_equal(l->n, 3);
@@ -250,18 +278,12 @@ static void test_holdings_labels_map(void **state)
 	assert_string_equal(err.message, "s.csv:2:2: empty label, expected a label for the id");
 	assert_int_equal(labels(&l, "id,sector\nQX1,A,B\n", &err), HC_EDATA);
 	assert_string_equal(err.message, "s.csv:2:3: found 3 fields, expected 2 (id,label)");
-	for (k = 0; rc == HC_ENOMEM; k++) {
-		hc_alloc_fail_after(k);
-		rc = holdings_labels_load_buffer(&l, "s.csv", text, strlen(text), 0, &err);
-		hc_alloc_fail_after(-1);
-		assert_true(k < 1000);
-	}
-	assert_int_equal(rc, HC_OK);
-	holdings_labels_free(l);
+	assert_true(heapcheck_sweep(&call) < 1000);
 }
 
-int main(void)
+int main(int argc, char **argv)
 {
+	heapcheck_rerun_without_tcache(argv);
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_holdings_reads_weights_by_fund),
 		cmocka_unit_test(test_holdings_normalises_values_and_reads_issuers),

@@ -76,13 +76,13 @@ static void check_against_reference(const struct moments *mo, const double *a, s
 	assert_close(mo->universe_variance, (ref[0] + ref[1]) / ((double)m * m), ref[0] / m, rel);
 }
 
-/* (b) Gram route (T < M) against the two-pass reference covariance; both
- * double-precision routes agree with it to 1e-10 (the sums' rounding is
- * about 1e-15 relative; 1e-10 leaves room for the Q = ||A||^2 - S step). */
-static void test_moments_gram_route_matches_reference(void **state)
+/* (b) The route moments_from_universe picks for an m x t fixture, against
+ * the two-pass reference covariance; both double-precision routes agree
+ * with it to 1e-10 (the sums' rounding is about 1e-15 relative; 1e-10
+ * leaves room for the Q = ||A||^2 - S step). */
+static void check_route_against_reference(size_t m, size_t t, unsigned long seed, int route)
 {
-	size_t m = 37, t = 13;
-	struct universe *u = fixture_random_universe(m, t, 2385);
+	struct universe *u = fixture_random_universe(m, t, seed);
 	double *a = hc_malloc(m * m * sizeof *a);
 	struct moments mo;
 	struct hc_error err;
@@ -91,7 +91,7 @@ static void test_moments_gram_route_matches_reference(void **state)
 	assert_non_null(a);
 	fixture_covariance(u, a);
 	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
-	assert_int_equal(mo.route, MOMENTS_ROUTE_GRAM);
+	assert_int_equal(mo.route, route);
 	assert_int_equal(mo.m, m);
 	assert_int_equal(mo.t, t);
 	assert_true(mo.has_spread && mo.has_correlation);
@@ -100,22 +100,16 @@ static void test_moments_gram_route_matches_reference(void **state)
 	fixture_free(u);
 }
 
+/* T < M: the Gram route. */
+static void test_moments_gram_route_matches_reference(void **state)
+{
+	check_route_against_reference(37, 13, 2385, MOMENTS_ROUTE_GRAM);
+}
+
+/* T >= M: the matrix route. */
 static void test_moments_matrix_route_matches_reference(void **state)
 {
-	size_t m = 23, t = 61;
-	struct universe *u = fixture_random_universe(m, t, 7741);
-	double *a = hc_malloc(m * m * sizeof *a);
-	struct moments mo;
-	struct hc_error err;
-
-	assert_non_null(u);
-	assert_non_null(a);
-	fixture_covariance(u, a);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
-	assert_int_equal(mo.route, MOMENTS_ROUTE_MATRIX);
-	check_against_reference(&mo, a, m, 1e-10);
-	hc_free(a);
-	fixture_free(u);
+	check_route_against_reference(23, 61, 7741, MOMENTS_ROUTE_MATRIX);
 }
 
 /* (b) Gram and matrix routes on the same data, both shapes, agree to

@@ -89,6 +89,17 @@ static char *render(const struct report_writer *w, const struct report *r, int *
 	return buf;
 }
 
+/* Render r with writer w: status HC_OK and exactly the text want. */
+static void expect_render(const struct report_writer *w, const struct report *r, const char *want)
+{
+	int rc;
+	char *s = render(w, r, &rc);
+
+	assert_int_equal(rc, HC_OK);
+	assert_string_equal(s, want);
+	free(s);
+}
+
 static const char golden_text[] =
 	"securities kept:     37\n"
 	"average correlation: 0.2385\n"
@@ -108,14 +119,9 @@ static const char golden_text[] =
 static void test_report_text_golden(void **state)
 {
 	struct report *r;
-	char *s;
-	int rc;
 
 	assert_int_equal(build(&r), HC_OK);
-	s = render(report_writer_text, r, &rc);
-	assert_int_equal(rc, HC_OK);
-	assert_string_equal(s, golden_text);
-	free(s);
+	expect_render(report_writer_text, r, golden_text);
 	report_free(r);
 }
 
@@ -129,34 +135,24 @@ static const char golden_csv[] =
 static void test_report_csv_golden(void **state)
 {
 	struct report *r;
-	char *s;
-	int rc;
 
 	assert_int_equal(build(&r), HC_OK);
-	s = render(report_writer_csv, r, &rc);
-	assert_int_equal(rc, HC_OK);
-	assert_string_equal(s, golden_csv);
-	free(s);
+	expect_render(report_writer_csv, r, golden_csv);
 	report_free(r);
 }
 
 static void test_report_csv_fields_without_table(void **state)
 {
 	struct report *r = report_alloc();
-	char *s;
-	int rc;
 
 	assert_non_null(r);
 	assert_int_equal(report_add_real(r, "average_variance", "average variance", 46.619, REPORT_STYLE_PLAIN), HC_OK);
 	assert_int_equal(report_add_real(r, "floor", "floor", -0.0, REPORT_STYLE_PLAIN), HC_OK);
 	assert_int_equal(report_add_real(r, "infinite", "infinite", INFINITY, REPORT_STYLE_PLAIN), HC_OK);
 	assert_int_equal(report_add_text(r, "id", "id", "Q7,\nline"), HC_OK);
-	s = render(report_writer_csv, r, &rc);
-	assert_int_equal(rc, HC_OK);
 	/* -0 prints as 0, a non-finite value has no spelling (empty), and the
 	 * text with a comma and a line break is quoted (RFC 4180). */
-	assert_string_equal(s, "key,value\naverage_variance,46.619\nfloor,0\ninfinite,\nid,\"Q7,\nline\"\n");
-	free(s);
+	expect_render(report_writer_csv, r, "key,value\naverage_variance,46.619\nfloor,0\ninfinite,\nid,\"Q7,\nline\"\n");
 	report_free(r);
 }
 
@@ -246,18 +242,13 @@ static void test_report_json_numbers_round_trip(void **state)
 static void test_report_text_wraps_notes(void **state)
 {
 	struct report *r = report_alloc();
-	char *s;
-	int rc;
 
 	assert_non_null(r);
 	assert_int_equal(report_add_note(r, "alpha bravo charlie delta echo foxtrot golf hotel india juliett "
 					 "kilo lima mike november oscar papa"), HC_OK);
-	s = render(report_writer_text, r, &rc);
-	assert_int_equal(rc, HC_OK);
-	assert_string_equal(s, "\ncautions:\n"
-			    "- alpha bravo charlie delta echo foxtrot golf hotel india juliett kilo lima\n"
-			    "  mike november oscar papa\n");
-	free(s);
+	expect_render(report_writer_text, r, "\ncautions:\n"
+		      "- alpha bravo charlie delta echo foxtrot golf hotel india juliett kilo lima\n"
+		      "  mike november oscar papa\n");
 	report_free(r);
 }
 

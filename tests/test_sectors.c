@@ -6,30 +6,22 @@
  * order of first appearance, unmapped last) - an exact enumeration of a
  * case small enough to check on paper.
  */
-#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <cmocka.h>
 
-#include <malloc.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "holdcount/memory.h"
 #include "holdcount/sectors.h"
 #include "holdcount/universe.h"
 
-/* See test_universe.c: glibc's tcache is off (main) so this is exact. */
-static size_t heap_in_use(void)
-{
-	struct mallinfo2 mi = mallinfo2();
-
-	return mi.uordblks + mi.hblkhd;
-}
+#include "check.h"
+#include "heapcheck.h"
 
 static const char MAP[] =
 	"\xEF\xBB\xBF" "Label;weight;ID\r\n"
@@ -93,8 +85,7 @@ static void expect_error(const char *text, const char *prefix)
 	struct hc_error err;
 	int rc = sectors_load_buffer(&s, "map.csv", text, strlen(text), NULL, NULL, &err);
 
-	if (rc != HC_EDATA || strncmp(err.message, prefix, strlen(prefix)) != 0)
-		fail_msg("rc %d, message '%s' (want '%s...')", rc, err.message, prefix);
+	check_status_prefix(rc, HC_EDATA, err.message, prefix);
 	assert_null(s);
 }
 
@@ -176,17 +167,11 @@ static void test_sectors_strata_all_mapped(void **state)
 
 static void test_sectors_file(void **state)
 {
-	const char *tmp = getenv("HOLDCOUNT_TEST_TMP");
 	char path[4096];
 	struct sectors *s;
 	struct hc_error err;
-	FILE *fp;
 
-	snprintf(path, sizeof path, "%s/sectors.csv", tmp);
-	fp = fopen(path, "wb");
-	assert_non_null(fp);
-	fputs(MAP, fp);
-	fclose(fp);
+	check_write_temp(path, sizeof path, "sectors.csv", MAP);
 	assert_int_equal(sectors_load(&s, path, NULL, NULL, &err), HC_OK);
 	assert_int_equal(s->n, 6);
 	sectors_free(s);
@@ -194,63 +179,77 @@ static void test_sectors_file(void **state)
 	assert_null(s);
 }
 
+/* Allocation-failure sweeps (heapcheck.h): HC_ENOMEM each time and
+ * nothing leaked.  A sweep's context: the map loaded, or the strata of
+ * universe u under map m. */
+struct made {
+	struct sectors *s;
+	const struct sectors *m;
+	const struct universe *u;
+	size_t *st, nlabels, unmapped;
+	char **labels;
+};
+
+static int made_map(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+
+	return sectors_load_buffer(&w->s, "map.csv", MAP, strlen(MAP), NULL, NULL, err);
+}
+
+static void made_map_release(void *ctx)
+{
+	sectors_free(((struct made *)ctx)->s);
+}
+
+static void made_map_none(void *ctx)
+{
+	assert_null(((struct made *)ctx)->s);
+}
+
+static int made_strata(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+
+	return sectors_strata(w->m, w->u, &w->st, &w->labels, &w->nlabels, &w->unmapped, err);
+}
+
+static void made_strata_release(void *ctx)
+{
+	struct made *w = ctx;
+
+	sectors_strata_free(w->st, w->labels, w->nlabels);
+}
+
+static void made_strata_none(void *ctx)
+{
+	struct made *w = ctx;
+
+	assert_null(w->st);
+	assert_null(w->labels);
+}
+
 static void test_sectors_allocation_failure(void **state)
 {
 	struct universe *u = universe();
-	struct sectors *s, *m;
+	struct sectors *m;
 	struct hc_error err;
-	size_t *st, nlabels, unmapped;
-	char **labels;
-	long k;
-	int rc;
+	struct made w = { NULL, NULL, u, NULL, 0, 0, NULL };
+	struct heapcheck_call map = { made_map, made_map_release, made_map_none, &w };
+	struct heapcheck_call strata = { made_strata, made_strata_release, made_strata_none, &w };
 
-	for (k = 0;; k++) {
-		size_t before = heap_in_use();
-
-		hc_alloc_fail_after(k);
-		rc = sectors_load_buffer(&s, "map.csv", MAP, strlen(MAP), NULL, NULL, &err);
-		hc_alloc_fail_after(-1);
-		if (rc == HC_OK) {
-			sectors_free(s);
-			assert_int_equal(heap_in_use(), before);
-			break;
-		}
-		assert_int_equal(rc, HC_ENOMEM);
-		assert_null(s);
-		assert_int_equal(heap_in_use(), before);
-	}
-	assert_true(k > 10);
+	assert_true(heapcheck_sweep(&map) > 10);
 	assert_int_equal(sectors_load_buffer(&m, "map.csv", MAP, strlen(MAP), NULL, NULL, &err), HC_OK);
-	for (k = 0;; k++) {
-		size_t before = heap_in_use();
-
-		hc_alloc_fail_after(k);
-		rc = sectors_strata(m, u, &st, &labels, &nlabels, &unmapped, &err);
-		hc_alloc_fail_after(-1);
-		if (rc == HC_OK) {
-			sectors_strata_free(st, labels, nlabels);
-			assert_int_equal(heap_in_use(), before);
-			break;
-		}
-		assert_int_equal(rc, HC_ENOMEM);
-		assert_null(st);
-		assert_null(labels);
-		assert_int_equal(heap_in_use(), before);
-	}
-	assert_int_equal(k, 7);   /* 3 arrays, 3 labels, the unmapped label */
+	w.m = m;
+	/* 3 arrays, 3 labels, the unmapped label */
+	assert_int_equal(heapcheck_sweep(&strata), 7);
 	sectors_free(m);
 	universe_free(u);
 }
 
 int main(int argc, char **argv)
 {
-	if (!getenv("HOLDCOUNT_TEST_NO_TCACHE")) {
-		setenv("HOLDCOUNT_TEST_NO_TCACHE", "1", 1);
-		setenv("GLIBC_TUNABLES", "glibc.malloc.tcache_count=0", 1);
-		execv("/proc/self/exe", argv);
-		fprintf(stderr, "cannot re-run without the malloc cache\n");
-		return 1;
-	}
+	heapcheck_rerun_without_tcache(argv);
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_sectors_load_and_find),
 		cmocka_unit_test(test_sectors_column_names),

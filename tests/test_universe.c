@@ -10,22 +10,22 @@
  * Error messages are checked against the wording documented in
  * docs/formats.md.
  */
-#define _GNU_SOURCE   /* setenv, execv, mallinfo2 */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <cmocka.h>
 
-#include <malloc.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "holdcount/memory.h"
 #include "holdcount/universe.h"
+
+#include "check.h"
+#include "heapcheck.h"
 
 /* |a - b| <= tol, with both values shown on failure (cmocka's float
  * assertion works in single precision). */
@@ -34,17 +34,6 @@
 	if (!(fabs(a_ - b_) <= (tol))) \
 		fail_msg("%.17g != %.17g (tolerance %g)", a_, b_, (double)(tol)); \
 } while (0)
-
-/* Bytes of heap in use.  glibc's per-thread cache keeps freed chunks
- * counted as in use, so main() re-runs the test with the cache off
- * (GLIBC_TUNABLES, documented in the glibc manual, "Memory Allocation
- * Tunables"); then mallinfo2's uordblks is exact. */
-static size_t heap_in_use(void)
-{
-	struct mallinfo2 mi = mallinfo2();
-
-	return mi.uordblks + mi.hblkhd;
-}
 
 static int load(struct universe **u, const char *text, const struct universe_options *o,
 		struct hc_error *err)
@@ -60,8 +49,7 @@ static void expect_error(const char *text, const struct universe_options *o,
 	struct hc_error err;
 	int rc = load(&u, text, o, &err);
 
-	if (rc != code || strncmp(err.message, prefix, strlen(prefix)) != 0)
-		fail_msg("rc %d (want %d), message '%s' (want '%s...')", rc, code, err.message, prefix);
+	check_status_prefix(rc, code, err.message, prefix);
 	assert_null(u);
 }
 
@@ -629,17 +617,11 @@ static void test_universe_window_and_resample(void **state)
 
 static void test_universe_file(void **state)
 {
-	const char *tmp = getenv("HOLDCOUNT_TEST_TMP");
 	char path[4096];
 	struct universe *u;
 	struct hc_error err;
-	FILE *fp;
 
-	snprintf(path, sizeof path, "%s/universe_small.csv", tmp);
-	fp = fopen(path, "wb");
-	assert_non_null(fp);
-	fputs(wide3, fp);
-	fclose(fp);
+	check_write_temp(path, sizeof path, "universe_small.csv", wide3);
 	assert_int_equal(universe_load(&u, path, NULL, &err), HC_OK);
 	assert_int_equal(u->m, 3);
 	assert_string_equal(u->source, path);
@@ -649,32 +631,41 @@ static void test_universe_file(void **state)
 	assert_string_equal(err.message, "cannot open '/nonexistent/u.csv': No such file or directory");
 }
 
-/* Every allocation index of small loads fails in turn: HC_ENOMEM each
- * time and nothing leaked (glibc mallinfo2). */
+/* Allocation-failure sweeps (heapcheck.h): HC_ENOMEM each time and
+ * nothing leaked (glibc mallinfo2).  A sweep's context: the universe made
+ * and what it is made from. */
+struct made {
+	struct universe *u;              /* the result */
+	const char *text;                /* load: the CSV text and options */
+	const struct universe_options *o;
+	const struct universe *from;     /* window and resample: the source */
+	const size_t *idx;
+};
+
+static int made_load(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+
+	return load(&w->u, w->text, w->o, err);
+}
+
+static void made_release(void *ctx)
+{
+	universe_free(((struct made *)ctx)->u);
+}
+
+static void made_none(void *ctx)
+{
+	assert_null(((struct made *)ctx)->u);
+}
+
+/* Every allocation index of a small load fails in turn. */
 static void alloc_loop(const char *text, const struct universe_options *o)
 {
-	struct universe *u;
-	struct hc_error err;
-	long k;
-	int rc;
+	struct made w = { NULL, text, o, NULL, NULL };
+	struct heapcheck_call call = { made_load, made_release, made_none, &w };
 
-	for (k = 0;; k++) {
-		size_t before = heap_in_use();
-
-		hc_alloc_fail_after(k);
-		rc = load(&u, text, o, &err);
-		hc_alloc_fail_after(-1);
-		if (rc == HC_OK) {
-			universe_free(u);
-			assert_int_equal(heap_in_use(), before);
-			break;
-		}
-		if (rc != HC_ENOMEM)
-			fail_msg("allocation %ld: rc %d, %s", k, rc, err.message);
-		assert_null(u);
-		assert_int_equal(heap_in_use(), before);
-	}
-	assert_true(k > 5);
+	assert_true(heapcheck_sweep(&call) > 5);
 }
 
 static void test_universe_allocation_failure(void **state)
@@ -691,55 +682,39 @@ static void test_universe_allocation_failure(void **state)
 		   "2021-01-31,B,-0.01\n2021-03-31,A,0.01\n2021-03-31,B,0.04\n", &o);
 }
 
+static int made_window(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+
+	return universe_window(&w->u, w->from, 1, 3, UNIVERSE_MISSING_COMPLETE, 0.8, err);
+}
+
+static int made_resample(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+
+	return universe_resample(&w->u, w->from, w->idx, 3, err);
+}
+
 static void test_universe_derived_allocation_failure(void **state)
 {
-	struct universe *u, *w;
+	struct universe *u;
 	struct hc_error err;
 	size_t idx[3] = { 2, 0, 1 };
-	long k;
-	int rc;
+	struct made w = { NULL, NULL, NULL, NULL, idx };
+	struct heapcheck_call window = { made_window, made_release, NULL, &w };
+	struct heapcheck_call resample = { made_resample, made_release, NULL, &w };
 
 	assert_int_equal(load(&u, wide3, NULL, &err), HC_OK);
-	for (k = 0;; k++) {
-		size_t before = heap_in_use();
-
-		hc_alloc_fail_after(k);
-		rc = universe_window(&w, u, 1, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err);
-		hc_alloc_fail_after(-1);
-		if (rc == HC_OK) {
-			universe_free(w);
-			assert_int_equal(heap_in_use(), before);
-			break;
-		}
-		assert_int_equal(rc, HC_ENOMEM);
-		assert_int_equal(heap_in_use(), before);
-	}
-	for (k = 0;; k++) {
-		size_t before = heap_in_use();
-
-		hc_alloc_fail_after(k);
-		rc = universe_resample(&w, u, idx, 3, &err);
-		hc_alloc_fail_after(-1);
-		if (rc == HC_OK) {
-			universe_free(w);
-			assert_int_equal(heap_in_use(), before);
-			break;
-		}
-		assert_int_equal(rc, HC_ENOMEM);
-		assert_int_equal(heap_in_use(), before);
-	}
+	w.from = u;
+	heapcheck_sweep(&window);
+	heapcheck_sweep(&resample);
 	universe_free(u);
 }
 
 int main(int argc, char **argv)
 {
-	if (!getenv("HOLDCOUNT_TEST_NO_TCACHE")) {
-		setenv("HOLDCOUNT_TEST_NO_TCACHE", "1", 1);
-		setenv("GLIBC_TUNABLES", "glibc.malloc.tcache_count=0", 1);
-		execv("/proc/self/exe", argv);
-		fprintf(stderr, "cannot re-run without the malloc cache\n");
-		return 1;
-	}
+	heapcheck_rerun_without_tcache(argv);
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_universe_wide_returns),
 		cmocka_unit_test(test_universe_prices_to_returns),

@@ -99,6 +99,23 @@ static int add_dropped(struct report *r, const struct universe *u)
 	return HC_OK;
 }
 
+/* The universe's averages and the sds they imply, scaled by p (periods a
+ * year, or 1): the same fields whether from returns or from a matrix. */
+static int add_averages(struct report *r, const struct moments *mo, double p)
+{
+	if (report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
+	    report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p,
+			    REPORT_STYLE_PLAIN) ||
+	    report_add_real(r, "average_correlation", "average correlation",
+			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
+			    mo->average_covariance >= 0 ? sqrt(mo->average_covariance * p) : NAN, REPORT_STYLE_PERCENT) ||
+	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(mo->universe_variance * p),
+			    REPORT_STYLE_PERCENT))
+		return HC_ENOMEM;
+	return HC_OK;
+}
+
 static int build(struct report *r, const struct universe *u, const struct moments *mo)
 {
 	double p = u->periods_per_year;
@@ -121,15 +138,7 @@ static int build(struct report *r, const struct universe *u, const struct moment
 	    report_add_text(r, "covariances", "covariances",
 			    mo->route == MOMENTS_ROUTE_PAIRWISE ? "pairwise-complete (data with gaps)"
 								: "complete data") ||
-	    report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p,
-			    REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_correlation", "average correlation",
-			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
-	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
-			    mo->average_covariance >= 0 ? sqrt(mo->average_covariance * p) : NAN, REPORT_STYLE_PERCENT) ||
-	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(mo->universe_variance * p),
-			    REPORT_STYLE_PERCENT))
+	    add_averages(r, mo, p))
 		return HC_ENOMEM;
 	if (add_kept(r, u) || add_dropped(r, u))
 		return HC_ENOMEM;
@@ -154,15 +163,7 @@ static int build_matrix(struct report *r, const char *path, const struct covmatr
 	    report_add_none(r, "last_date", "last date") ||
 	    cli_add_scale(r, p, annualised) ||
 	    report_add_bool(r, "periods_per_year_detected", "detected from the dates", 0) ||
-	    report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p,
-			    REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_correlation", "average correlation",
-			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
-	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
-			    mo->average_covariance >= 0 ? sqrt(mo->average_covariance * p) : NAN, REPORT_STYLE_PERCENT) ||
-	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(mo->universe_variance * p),
-			    REPORT_STYLE_PERCENT))
+	    add_averages(r, mo, p))
 		return HC_ENOMEM;
 	t = report_add_table(r, "kept", "securities kept");
 	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
