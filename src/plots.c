@@ -747,26 +747,58 @@ static void drain(int fd, char *keep, size_t size)
 	keep[used] = '\0';
 }
 
+/* gnuplot's environment: ours, with the locale forced to C.UTF-8.  The
+ * templates are UTF-8 ("set encoding utf8": the degree and sigma signs in
+ * labels), and under a non-UTF-8 locale such as LC_ALL=C gnuplot warns that
+ * it cannot convert them, which fails the render.  Numbers are unaffected:
+ * the C.UTF-8 locale keeps the C decimal point. */
+static char **gnuplot_environment(void)
+{
+	static char utf8[] = "LC_ALL=C.UTF-8";
+	size_t n = 0, k = 0, i;
+	char **env;
+
+	while (environ[n])
+		n++;
+	env = hc_calloc(n + 2, sizeof *env);
+	if (!env)
+		return NULL;
+	for (i = 0; i < n; i++)
+		if (strncmp(environ[i], "LC_ALL=", 7) && strncmp(environ[i], "LC_CTYPE=", 9) &&
+		    strncmp(environ[i], "LANG=", 5))
+			env[k++] = environ[i];
+	env[k++] = utf8;
+	env[k] = NULL;
+	return env;
+}
+
 static int spawn(pid_t *pid, const char *gnuplot, const char *dir, const char *script, int errfd,
 		 struct hc_error *err)
 {
 	posix_spawn_file_actions_t fa;
 	char *argv[3];
+	char **env;
 	int rc;
 
 	argv[0] = (char *)gnuplot;
 	argv[1] = (char *)script;
 	argv[2] = NULL;
-	if (posix_spawn_file_actions_init(&fa))
+	env = gnuplot_environment();
+	if (!env)
+		return hc_error(err, HC_ENOMEM, "out of memory preparing to run gnuplot");
+	if (posix_spawn_file_actions_init(&fa)) {
+		hc_free(env);
 		return hc_error(err, HC_ENOMEM, "cannot prepare to run gnuplot");
+	}
 	rc = posix_spawn_file_actions_addopen(&fa, STDIN_FILENO, "/dev/null", O_RDONLY, 0);
 	rc = rc ? rc : posix_spawn_file_actions_addopen(&fa, STDOUT_FILENO, "/dev/null", O_WRONLY, 0);
 	rc = rc ? rc : posix_spawn_file_actions_adddup2(&fa, errfd, STDERR_FILENO);
 	/* glibc 2.29 and later; gnuplot reads its data files relative to its
 	 * working directory, which must be the report's folder. */
 	rc = rc ? rc : posix_spawn_file_actions_addchdir_np(&fa, dir);
-	rc = rc ? rc : posix_spawn(pid, gnuplot, &fa, NULL, argv, environ);
+	rc = rc ? rc : posix_spawn(pid, gnuplot, &fa, NULL, argv, env);
 	posix_spawn_file_actions_destroy(&fa);
+	hc_free(env);
 	if (rc)
 		return hc_error(err, HC_EIO, "cannot run '%s' on '%s': %s", gnuplot, script, strerror(rc));
 	return HC_OK;

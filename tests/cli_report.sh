@@ -115,5 +115,13 @@ grep -q -- '--bootstrap-sampled` gives them one' "$T/a/summary.md" || fail "summ
 grep -q -- '--bootstrap-sampled` gives them one' "$T/bs/summary.md" && fail "summary.md says band has no interval under --bootstrap-sampled"
 grep -Eq '^\| band \| [^|]* \| [0-9]+ \| [0-9.]+ \| [0-9.]+ \| [0-9.]+ \| ' "$T/bs/summary.md" || fail "band has no interval with --bootstrap-sampled"
 
+# Under a non-UTF-8 locale the report still renders: gnuplot is started under
+# C.UTF-8, because the templates' labels are UTF-8 (degree and sigma signs).
+if command -v gnuplot >/dev/null; then
+	LC_ALL=C LANG=C "$HC" report -o "$T/clocale" "${FAST[@]}" 2>"$T/err" || fail "report under LC_ALL=C exited $?: $(cat "$T/err")"
+	[ -s "$T/clocale/risk.png" ] || fail "report under LC_ALL=C rendered no risk.png"
+	cmp -s "$T/a/summary.json" "$T/clocale/summary.json" || fail "summary.json depends on the locale"
+fi
+
 echo "cli_report: $fails failures"
 [ $fails -eq 0 ]
