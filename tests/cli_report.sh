@@ -120,7 +120,8 @@ grep -Eq '^\| band \| [^|]* \| [0-9]+ \| [0-9.]+ \| [0-9.]+ \| [0-9.]+ \| ' "$T/
 if command -v gnuplot >/dev/null; then
 	LC_ALL=C LANG=C "$HC" report -o "$T/clocale" "${FAST[@]}" 2>"$T/err" || fail "report under LC_ALL=C exited $?: $(cat "$T/err")"
 	[ -s "$T/clocale/risk.png" ] || fail "report under LC_ALL=C rendered no risk.png"
-	cmp -s "$T/a/summary.json" "$T/clocale/summary.json" || fail "summary.json depends on the locale"
+	"$HC" report -o "$T/ulocale" "${FAST[@]}" || fail "report exited $?"
+	cmp -s "$T/ulocale/summary.json" "$T/clocale/summary.json" || fail "summary.json depends on the locale"
 fi
 
 echo "cli_report: $fails failures"
