@@ -42,17 +42,6 @@ list(JOIN VALGRIND_COMMAND " " VALGRIND_COMMAND_TEXT)
 #     valgrind the spawn is emulated and the failed exec shows up as exit
 #     127 of the child instead.
 set(MEMCHECK_LEFT_OUT test_sampler test_curve test_plots)
-# Held: real memcheck findings waiting for their owner's fix; remove each
-# from the list when it lands (docs/reliability.md, "Known findings").
-#   test_bootstrap: test_bootstrap_sampled_rules_interval compares two
-#     struct rule_result arrays with assert_memory_equal, including the
-#     never-written tails of their text buffers and padding ("conditional
-#     jump depends on uninitialised value"); memset the arrays first.
-set(MEMCHECK_HELD test_bootstrap)
-foreach(name ${MEMCHECK_HELD})
-  message(STATUS "memcheck: ${name} held out of the memcheck label (known finding, see tests/reliability.cmake)")
-endforeach()
-list(APPEND MEMCHECK_LEFT_OUT ${MEMCHECK_HELD})
 foreach(src ${UNIT_TESTS})
   get_filename_component(name ${src} NAME_WE)
   if(name IN_LIST MEMCHECK_LEFT_OUT)
