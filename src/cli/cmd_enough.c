@@ -106,7 +106,7 @@ const struct cli_command cli_command_enough = {
 };
 
 /* A yearly sd step: "0.10pp" (percentage points), "0.1%" or "0.001". */
-static int parse_step(const char *s, double *out)
+int cli_parse_sd_step(const char *s, double *out)
 {
 	char *end;
 	double x = strtod(s, &end);
@@ -170,7 +170,7 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 		return cli_usage_error(cmd, "--bootstrap needs return data: a covariance matrix has no periods to resample");
 	if (cli_given(a, "near-floor"))
 		cfg->near_floor_x = o->near_floor;
-	if (o->marginal && parse_step(o->marginal, &cfg->marginal_eps))
+	if (o->marginal && cli_parse_sd_step(o->marginal, &cfg->marginal_eps))
 		return cli_usage_error(cmd, "bad --marginal '%s': expected a yearly sd step such as 0.10pp, 0.1%% or 0.001",
 				       o->marginal);
 	if (o->band && parse_pair(cmd, "band", o->band, &cfg->band_q, &cfg->band_x))

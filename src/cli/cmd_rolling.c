@@ -101,22 +101,6 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	return rc ? cli_fail("rolling", &err) : HC_OK;
 }
 
-/* A yearly sd step as `enough` reads it: "0.10pp", "0.1%" or "0.001". */
-static int parse_step(const char *s, double *out)
-{
-	char *end;
-	double x = strtod(s, &end);
-
-	if (end == s || !isfinite(x))
-		return -1;
-	if (strcmp(end, "pp") == 0 || strcmp(end, "%") == 0)
-		x /= 100;
-	else if (*end)
-		return -1;
-	*out = x;
-	return 0;
-}
-
 static int options(const struct rolling_opts *o, const struct cli_args *a,
 		   struct rolling_options *ro)
 {
@@ -142,7 +126,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 		ro->rules.selected = RULES_EXACT_MASK;
 	}
 	ro->rules.near_floor_x = o->near_floor;
-	if (o->marginal && parse_step(o->marginal, &ro->rules.marginal_eps))
+	if (o->marginal && cli_parse_sd_step(o->marginal, &ro->rules.marginal_eps))
 		return cli_usage_error("rolling", "bad --marginal '%s': expected a yearly sd step such as "
 				       "0.10pp, 0.1%% or 0.001", o->marginal);
 	if (cli_given(a, "premium") != cli_given(a, "holding-cost"))
