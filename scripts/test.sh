@@ -25,12 +25,24 @@ FUZZ_SECONDS=${FUZZ_SECONDS:-60}
 FUZZ_HOLD=${FUZZ_HOLD-}
 SKIP_STAGES=${SKIP_STAGES:-}
 
+# Every ctest run is counted, so that the script ends with one plain line
+# summing the tests of all stages.
+TESTS_RUN=0
+run_ctest() { # DIR ARGS...: ctest in DIR; fails as ctest fails
+	local dir=$1 log n
+	shift
+	log=$(mktemp)
+	(cd "$dir" && ctest --output-on-failure "$@") 2>&1 | tee "$log"
+	n=$(sed -n 's/.*tests passed, 0 tests failed out of \([0-9][0-9]*\)$/\1/p' "$log" | tail -n 1)
+	rm -f "$log"
+	TESTS_RUN=$((TESTS_RUN + ${n:-0}))
+}
 stage() { printf '\n== test.sh: %s\n' "$*" >&2; }
 skipped() { case " $SKIP_STAGES " in *" $1 "*) echo "test.sh: stage $1 skipped (SKIP_STAGES)" >&2; return 0;; esac; return 1; }
 
 stage "plain build and test suite"
 bash scripts/setup.sh
-(cd build && ctest --output-on-failure -j "$JOBS")
+run_ctest build -j "$JOBS"
 
 if ! skipped sanitize; then
 	stage "sanitizer build (ASan + UBSan) and test suite"
@@ -45,7 +57,7 @@ if ! skipped sanitize; then
 	# cli_install and cli_deb (label packaging) ran in the plain build: an
 	# installed or packaged sanitizer build is not what anyone ships.
 	echo "test.sh: the packaging tests (cli_install, cli_deb) run in the plain build only" >&2
-	(cd build-sanitize && ctest --output-on-failure -j "$JOBS" -LE packaging)
+	run_ctest build-sanitize -j "$JOBS" -LE packaging
 	unset ASAN_OPTIONS UBSAN_OPTIONS
 	if compgen -G "$SAN_LOGS/*" >/dev/null; then
 		echo "test.sh: sanitizer reports found:" >&2
@@ -59,7 +71,7 @@ if ! skipped memcheck; then
 	stage "valgrind memcheck (ctest -L memcheck)"
 	cmake -S . -B build-memcheck -DCMAKE_BUILD_TYPE=RelWithDebInfo -DHOLDCOUNT_MEMCHECK=ON >/dev/null
 	cmake --build build-memcheck -j "$JOBS" >/dev/null
-	(cd build-memcheck && ctest --output-on-failure -j "$JOBS" -L memcheck)
+	run_ctest build-memcheck -j "$JOBS" -L memcheck
 fi
 
 if ! skipped fuzz; then
@@ -70,7 +82,7 @@ if ! skipped fuzz; then
 	if [ -n "$targets" ]; then
 		# shellcheck disable=SC2086 # one word per target
 		cmake --build build-fuzz -j "$JOBS" --target $targets >/dev/null
-		(cd build-fuzz/tests/fuzz && ctest --output-on-failure -L fuzz)
+		run_ctest build-fuzz/tests/fuzz -L fuzz
 	else
 		echo "test.sh: no fuzz target has its modules yet (see the configure messages)" >&2
 	fi
@@ -109,3 +121,4 @@ if ! skipped fuzz; then
 fi
 
 stage "all stages passed"
+echo "test.sh: $TESTS_RUN passed, 0 failed"
