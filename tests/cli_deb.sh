@@ -7,6 +7,8 @@
 set -u
 export LC_ALL=C
 HC=${HOLDCOUNT:?HOLDCOUNT must name the binary}
+SRC=${HOLDCOUNT_SOURCE_DIR:?HOLDCOUNT_SOURCE_DIR must name the source tree}
+PY=${PYTHON:-/usr/bin/python3}
 B=$(dirname "$HC")
 T=${HOLDCOUNT_TEST_TMP:-/tmp}/cli_deb.$$
 mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
@@ -90,9 +92,36 @@ loaded=$(env -u LD_LIBRARY_PATH ldd "$R/usr/bin/holdcount" | awk '/libholdcount/
 	|| fail "unpacked report on the demo data: $(head -c 300 "$T/err")"
 grep -q "^- source: $R/usr/share/holdcount/demo-universe.csv\$" "$T/rep/summary.md" 2>/dev/null \
 	|| fail "unpacked report read $(grep -m1 'source:' "$T/rep/summary.md" 2>/dev/null)"
-# holdcount.pc finds the unpacked prefix from its own place.
-inc=$(PKG_CONFIG_PATH=$lib/pkgconfig pkg-config --variable=includedir holdcount)
+# holdcount.pc finds the unpacked prefix from its own place, and works with
+# nothing but itself on pkg-config's path: the package's Depends are runtime
+# libraries, without the -dev packages' .pc files.
+pc() { env -u PKG_CONFIG_PATH PKG_CONFIG_LIBDIR="$lib/pkgconfig" pkg-config "$@"; }
+inc=$(pc --variable=includedir holdcount)
 [ -f "$inc/holdcount/curve.h" ] || fail "holdcount.pc's includedir '$inc' has no holdcount/curve.h"
+pc --cflags --libs holdcount >"$T/pc.out" 2>"$T/pc.err" || fail "pkg-config --cflags --libs holdcount with only the package's holdcount.pc: $(cat "$T/pc.err")"
+[ "$(tr ' ' '\n' <"$T/pc.out" | grep '^-l')" = "-lholdcount" ] || fail "pkg-config --libs holdcount: '$(cat "$T/pc.out")' should link -lholdcount alone"
+# The example of docs/library.md, built on those flags alone (shared, then
+# the static archive), prints what the packaged command prints.
+sed -n '/^```c$/,/^```$/p' "$SRC/docs/library.md" | sed '1d;$d' >"$T/curve.c"
+cc -std=c11 -Wall -Wextra -Werror "$T/curve.c" $(pc --cflags --libs holdcount) -o "$T/curve_so" 2>"$T/cc.err" \
+	|| fail "example against the package with pkg-config: $(head -c 500 "$T/cc.err")"
+cc -std=c11 -Wall -Wextra -Werror "$T/curve.c" $(pc --cflags holdcount) \
+	$(pc --static --libs holdcount | sed 's/-lholdcount/-l:libholdcount.a/') -o "$T/curve_a" 2>"$T/cc.err" \
+	|| fail "example against the package with pkg-config --static: $(head -c 500 "$T/cc.err")"
+LD_LIBRARY_PATH=$lib "$R/usr/bin/holdcount" curve --paths 0 --format csv "$R/usr/share/holdcount/demo-universe.csv" \
+	>"$T/cmd.csv" 2>"$T/err" || fail "packaged holdcount curve on the demo universe: $(cat "$T/err")"
+for exe in curve_so curve_a; do
+	[ -x "$T/$exe" ] || continue
+	LD_LIBRARY_PATH=$lib "$T/$exe" "$R/usr/share/holdcount/demo-universe.csv" >"$T/$exe.out" 2>"$T/err" || { fail "$exe: $(cat "$T/err")"; continue; }
+	"$PY" - "$T/cmd.csv" "$T/$exe.out" <<'PYEOF' || fail "$exe's curve differs from the packaged holdcount curve"
+import sys, csv
+cmd, ex = (list(csv.DictReader(open(f))) for f in sys.argv[1:3])
+assert len(cmd) == len(ex) > 5, (len(cmd), len(ex))
+for c, e in zip(cmd, ex):
+    for k in e:
+        assert abs(float(c[k]) - float(e[k])) <= 1e-8 * abs(float(c[k])) + 1e-15, (k, c[k], e[k])
+PYEOF
+done
 
 [ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
 echo "cli_deb: all checks passed"

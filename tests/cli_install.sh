@@ -73,7 +73,26 @@ grep -q "$T/nowhere/demo-universe.csv" "$T/err" || fail "report with a wrong HOL
 sed -n '/^```c$/,/^```$/p' "$SRC/docs/library.md" | sed '1d;$d' >"$T/curve.c"
 lines=$(wc -l <"$T/curve.c")
 [ "$lines" -ge 25 ] && [ "$lines" -le 50 ] || fail "docs/library.md example has $lines lines (expected about 30)"
-export PKG_CONFIG_PATH=$L/pkgconfig
+# Only the installed holdcount.pc on pkg-config's path, none of the
+# dependencies' .pc files: a machine with the runtime libraries alone (the
+# .deb's Depends) must still get the shared library's flags, and the static
+# library's dependencies are plain -l flags that need no .pc either.
+unset PKG_CONFIG_PATH
+export PKG_CONFIG_LIBDIR=$L/pkgconfig
+pc_flags_ok() { # WHAT FLAGS...: one -I (the prefix's include), one -L (its lib), -lholdcount, then EXTRA
+	local what=$1 extra=$2 f inc= libd= rest=; shift 2
+	for f in "$@"; do
+		case "$f" in -I*) inc="$inc ${f#-I}";; -L*) libd="$libd ${f#-L}";; *) rest="$rest $f";; esac
+	done
+	[ "$(readlink -f $inc)" = "$(readlink -f "$P/include")" ] || fail "$what: -I$inc is not $P/include"
+	[ "$(readlink -f $libd)" = "$(readlink -f "$L")" ] || fail "$what: -L$libd is not $L"
+	[ "$rest" = " -lholdcount$extra" ] || fail "$what: libraries '$rest', expected ' -lholdcount$extra'"
+}
+flags=$(pkg-config --cflags --libs holdcount 2>"$T/pc.err") || fail "pkg-config --cflags --libs holdcount with only holdcount.pc: $(cat "$T/pc.err")"
+pc_flags_ok "pkg-config --cflags --libs" "" $flags
+flags=$(pkg-config --static --cflags --libs holdcount 2>"$T/pc.err") || fail "pkg-config --static with only holdcount.pc: $(cat "$T/pc.err")"
+pc_flags_ok "pkg-config --static --cflags --libs" " -lgsl -lopenblas -lcsv -lcjson -fopenmp -lm" $flags
+[ -z "$(pkg-config --print-requires --print-requires-private holdcount)" ] || fail "holdcount.pc requires other .pc files: $(pkg-config --print-requires --print-requires-private holdcount | tr '\n' ' ')"
 [ "$(pkg-config --modversion holdcount)" = "$("$HC" --version | sed -n '1s/^holdcount //p')" ] || fail "pkg-config --modversion holdcount disagrees with --version"
 cc -std=c11 -Wall -Wextra -Werror "$T/curve.c" $(pkg-config --cflags --libs holdcount) -o "$T/curve_pc" 2>"$T/cc.err" \
 	|| fail "example with pkg-config: $(head -c 500 "$T/cc.err")"
