@@ -15,7 +15,7 @@ mkdir -p "$T"; trap 'rm -rf "$T"' EXIT
 fails=0
 fail() { echo "FAIL: $*"; fails=$((fails+1)); }
 die() { echo "FAIL: $*"; exit 1; }
-for tool in cpack dpkg-deb dpkg-shlibdeps readelf; do
+for tool in cpack dpkg dpkg-deb dpkg-query dpkg-shlibdeps readelf; do
 	command -v "$tool" >/dev/null || die "$tool is needed (dpkg-dev, binutils, cmake)"
 done
 [ -f "$B/CPackConfig.cmake" ] || die "no CPackConfig.cmake beside $HC"
@@ -81,11 +81,67 @@ echo "$shl" | tr ',' '\n' | sed -n 's/^ *\([^ ]*\) (>= \([^)]*\))$/\1 \2/p' | wh
 done >"$T/versions"
 [ -s "$T/versions" ] && { cat "$T/versions"; fails=$((fails+1)); }
 
+# ---- where the dynamic linker finds libholdcount --------------------------------
+# Installed under /usr, the binary carries no RPATH or RUNPATH (common
+# practice in Debian packaging, which lintian enforces; from memory) and
+# finds libholdcount.so.0 on the system path instead.  The reference for "system
+# path" is glibc's dynamic linker itself: the interpreter the binary names,
+# asked with --help, lists its system search directories.
+for f in "$R/usr/bin/holdcount" "$lib/libholdcount.so.0"; do
+	readelf -d "$f" | grep -qE '\((RPATH|RUNPATH)\)' && fail "packaged ${f#$R} has $(readelf -d "$f" | grep -E '\((RPATH|RUNPATH)\)' | sed 's/.*(\(R[A-Z]*PATH\)).*\[/\1 [/')"
+done
+interp=$(readelf -l "$R/usr/bin/holdcount" | sed -n 's/.*Requesting program interpreter: \(.*\)\]$/\1/p')
+[ -x "$interp" ] || die "no program interpreter '$interp' named by the packaged binary"
+"$interp" --help | sed -n 's/^ *\(\/[^ ]*\) (system search path)$/\1/p' >"$T/sysdirs"
+[ -s "$T/sysdirs" ] || die "$interp --help lists no system search path"
+grep -qxF "${lib#$R}" "$T/sysdirs" || fail "the package's ${lib#$R} is not on the dynamic linker's system search path: $(tr '\n' ' ' <"$T/sysdirs")"
+# readelf -d's NEEDED name is the library's SONAME, which ld.so looks up there.
+readelf -d "$R/usr/bin/holdcount" | grep -q '(NEEDED).*\[libholdcount\.so\.0\]' || fail "packaged holdcount does not need libholdcount.so.0 by its SONAME"
+
+# ---- ldconfig trigger and shlibs --------------------------------------------------
+# The control archive: control, md5sums, the ldconfig trigger and shlibs; no
+# maintainer scripts (the trigger replaces postinst/postrm calls to ldconfig).
+C=$T/control
+dpkg-deb -e "$deb" "$C" || die "dpkg-deb -e failed"
+[ "$(cd "$C" && ls | tr '\n' ' ')" = "control md5sums shlibs triggers " ] || fail "control archive holds: $(cd "$C" && ls | tr '\n' ' ')"
+[ "$(cat "$C/triggers" 2>/dev/null)" = "activate-noawait ldconfig" ] || fail "triggers file: '$(cat "$C/triggers" 2>/dev/null)'"
+[ "$(cat "$C/shlibs" 2>/dev/null)" = "libholdcount 0 holdcount (>= $(echo "$version" | cut -d. -f1-2))" ] || fail "shlibs file: '$(cat "$C/shlibs" 2>/dev/null)'"
+# dpkg itself reads the trigger: installed with dpkg --root into an empty
+# database holding one package interested in ldconfig (as libc-bin is),
+# with trigger processing held back, that package is left with ldconfig
+# pending.
+D=$T/dpkgroot
+mkdir -p "$D/var/lib/dpkg/info" "$D/var/lib/dpkg/updates" "$D/var/lib/dpkg/triggers" "$T/watch/DEBIAN"
+: >"$D/var/lib/dpkg/status"
+printf 'Package: ldconfig-watch\nVersion: 1\nArchitecture: all\nMaintainer: test <test@example.invalid>\nDescription: waits for the ldconfig trigger\n' >"$T/watch/DEBIAN/control"
+printf 'interest-noawait ldconfig\n' >"$T/watch/DEBIAN/triggers"
+notroot=; [ "$(id -u)" = 0 ] || notroot=--force-not-root
+dpkg-deb -b "$T/watch" "$T/watch.deb" >/dev/null 2>&1 || die "dpkg-deb -b of the watching package failed"
+dpkg --root="$D" $notroot --log=/dev/null -i "$T/watch.deb" >"$T/dpkg.log" 2>&1 || die "dpkg --root -i watch.deb: $(tail -3 "$T/dpkg.log")"
+dpkg --root="$D" $notroot --log=/dev/null --force-depends --no-triggers -i "$deb" >"$T/dpkg.log" 2>&1 || fail "dpkg --root -i the package: $(tail -3 "$T/dpkg.log")"
+dpkg-query --admindir="$D/var/lib/dpkg" -f '${Status}|${Triggers-Pending}' -W ldconfig-watch >"$T/watch.status" 2>&1
+[ "$(tr -s ' ' <"$T/watch.status")" = "install ok triggers-pending| ldconfig" ] || fail "after installing the package, the ldconfig watcher is '$(cat "$T/watch.status")'"
+# dpkg-shlibdeps reads the shlibs file: a program linked to the packaged
+# library gets a dependency on holdcount.
+S=$T/shlibs
+mkdir -p "$S/debian/holdcount/DEBIAN" "$S/debian/user/usr/bin"
+cp -a "$R/." "$S/debian/holdcount/" && cp "$C/shlibs" "$S/debian/holdcount/DEBIAN/"
+printf 'Source: user\n\nPackage: user\nArchitecture: any\n' >"$S/debian/control"
+printf '#include <holdcount/error.h>\nint main(void) { return hc_status_name(HC_OK) == 0; }\n' >"$T/user.c"
+cc -std=c11 "$T/user.c" -I"$S/debian/holdcount/usr/include" -L"$S/debian/holdcount${lib#$R}" -lholdcount \
+	-o "$S/debian/user/usr/bin/user" 2>"$T/cc.err" || fail "linking a program to the packaged library: $(head -c 300 "$T/cc.err")"
+(cd "$S" && dpkg-shlibdeps -O debian/user/usr/bin/user 2>"$T/shl2.err") >"$T/shl2.out" || fail "dpkg-shlibdeps on a program using libholdcount: $(head -c 300 "$T/shl2.err")"
+grep -q "^shlibs:Depends=.*holdcount (>= $(echo "$version" | cut -d. -f1-2))" "$T/shl2.out" \
+	|| fail "dpkg-shlibdeps gives a program using libholdcount '$(cat "$T/shl2.out")'"
+
 # ---- run from the scratch root -----------------------------------------------
-env -u LD_LIBRARY_PATH "$R/usr/bin/holdcount" --version >"$T/v" 2>"$T/err" || fail "unpacked holdcount --version: $(cat "$T/err")"
+# (The scratch root is not on the system path, so LD_LIBRARY_PATH stands in
+# for it; ldd shows that the package's library is the one loaded.)
+export LD_LIBRARY_PATH=$lib
+"$R/usr/bin/holdcount" --version >"$T/v" 2>"$T/err" || fail "unpacked holdcount --version: $(cat "$T/err")"
 "$HC" --version | cmp -s - "$T/v" || fail "unpacked --version differs: $(head -n1 "$T/v")"
 grep -q '^GSL [0-9]' "$T/v" && grep -q '^BLAS OpenBLAS' "$T/v" || fail "unpacked --version lacks GSL or BLAS: $(cat "$T/v")"
-loaded=$(env -u LD_LIBRARY_PATH ldd "$R/usr/bin/holdcount" | awk '/libholdcount/ {print $3}')
+loaded=$(ldd "$R/usr/bin/holdcount" | awk '/libholdcount/ {print $3}')
 [ "$(readlink -f "$loaded")" = "$(readlink -f "$lib/libholdcount.so.0")" ] || fail "unpacked holdcount loads '$loaded', not the package's library"
 # The package's own demo data, found from the binary's place (UTF-8: see cli_install.sh).
 (cd "$T" && env -u HOLDCOUNT_DATA_DIR LC_ALL=C.UTF-8 "$R/usr/bin/holdcount" report -o rep --paths 50 --bootstrap 0 -q) 2>"$T/err" \
@@ -108,11 +164,11 @@ cc -std=c11 -Wall -Wextra -Werror "$T/curve.c" $(pc --cflags --libs holdcount) -
 cc -std=c11 -Wall -Wextra -Werror "$T/curve.c" $(pc --cflags holdcount) \
 	$(pc --static --libs holdcount | sed 's/-lholdcount/-l:libholdcount.a/') -o "$T/curve_a" 2>"$T/cc.err" \
 	|| fail "example against the package with pkg-config --static: $(head -c 500 "$T/cc.err")"
-LD_LIBRARY_PATH=$lib "$R/usr/bin/holdcount" curve --paths 0 --format csv "$R/usr/share/holdcount/demo-universe.csv" \
+"$R/usr/bin/holdcount" curve --paths 0 --format csv "$R/usr/share/holdcount/demo-universe.csv" \
 	>"$T/cmd.csv" 2>"$T/err" || fail "packaged holdcount curve on the demo universe: $(cat "$T/err")"
 for exe in curve_so curve_a; do
 	[ -x "$T/$exe" ] || continue
-	LD_LIBRARY_PATH=$lib "$T/$exe" "$R/usr/share/holdcount/demo-universe.csv" >"$T/$exe.out" 2>"$T/err" || { fail "$exe: $(cat "$T/err")"; continue; }
+	"$T/$exe" "$R/usr/share/holdcount/demo-universe.csv" >"$T/$exe.out" 2>"$T/err" || { fail "$exe: $(cat "$T/err")"; continue; }
 	"$PY" - "$T/cmd.csv" "$T/$exe.out" <<'PYEOF' || fail "$exe's curve differs from the packaged holdcount curve"
 import sys, csv
 cmd, ex = (list(csv.DictReader(open(f))) for f in sys.argv[1:3])

@@ -51,7 +51,17 @@ for h in $(cat "$T/h_src"); do
 done
 
 # ---- the installed binary ----------------------------------------------------
-# A relative RPATH finds the installed library, not the build tree's.
+# Under a prefix whose library directory is not a system one, a relative
+# RPATH finds the installed library, not the build tree's; wherever the tree
+# is moved, it still does.
+rp=$(readelf -d "$P/bin/holdcount" | sed -n 's/.*(R[UN]*PATH).*\[\(.*\)\]$/\1/p')
+[ "$rp" = '$ORIGIN/../lib' ] || fail "installed holdcount's RPATH/RUNPATH is '$rp', expected '\$ORIGIN/../lib'"
+# Under /usr (a distribution's build: DESTDIR and --prefix /usr), none: the
+# dynamic linker finds the library on its system path.
+DESTDIR=$T/dest cmake --install "$B" --prefix /usr >"$T/install-usr.log" 2>&1 || fail "DESTDIR=... cmake --install --prefix /usr: $(tail -5 "$T/install-usr.log")"
+readelf -d "$T/dest/usr/bin/holdcount" | grep -qE '\((RPATH|RUNPATH)\)' \
+	&& fail "holdcount installed under /usr has $(readelf -d "$T/dest/usr/bin/holdcount" | grep -E '\((RPATH|RUNPATH)\)')"
+rm -rf "$T/dest"
 env -u LD_LIBRARY_PATH "$P/bin/holdcount" --version >"$T/v" 2>&1 || fail "installed holdcount --version: $(cat "$T/v")"
 "$HC" --version | cmp -s - "$T/v" || fail "installed --version differs from the build tree's"
 lib=$(env -u LD_LIBRARY_PATH ldd "$P/bin/holdcount" | awk '/libholdcount/ {print $3}')
