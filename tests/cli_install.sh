@@ -82,7 +82,7 @@ grep -q "$T/nowhere/demo-universe.csv" "$T/err" || fail "report with a wrong HOL
 # ---- the documented example, against the installed library -------------------
 sed -n '/^```c$/,/^```$/p' "$SRC/docs/library.md" | sed '1d;$d' >"$T/curve.c"
 lines=$(wc -l <"$T/curve.c")
-[ "$lines" -ge 25 ] && [ "$lines" -le 50 ] || fail "docs/library.md example has $lines lines (expected about 30)"
+[ "$lines" -ge 25 ] && [ "$lines" -le 35 ] || fail "docs/library.md example has $lines lines (issue 8 asks for about 30: 25 to 35)"
 # Only the installed holdcount.pc on pkg-config's path, none of the
 # dependencies' .pc files: a machine with the runtime libraries alone (the
 # .deb's Depends) must still get the shared library's flags, and the static
