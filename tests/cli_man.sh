@@ -50,6 +50,16 @@ for p in "$SRC"/docs/man/*.1; do
 		sed -n '/^ENVIRONMENT$/,/^[A-Z]/p' "$T/page.txt" | grep -q "^       $v\$" || fail "$name: ENVIRONMENT lacks $v"
 	done
 done
+# `holdcount COMMAND --help` and holdcount-COMMAND(1) come from one option
+# table: the same options, with the same argument names, in the same order
+# (the help's option column against the tags of the page's OPTIONS items).
+for p in "$SRC"/docs/man/holdcount-*.1; do
+	c=$(basename "$p" .1); c=${c#holdcount-}
+	"$HC" "$c" --help 2>/dev/null | sed -n 's/^ \{2,6\}\(-.*\)$/\1/p' | sed 's/  .*//; s/ *$//' >"$T/opts_help"
+	sed -n '/^\.SH OPTIONS$/,/^\.SH /p' "$p" | sed -n '/^\.TP$/{n;p}' | sed 's/\\f[BIRP]//g; s/\\-/-/g' >"$T/opts_man"
+	[ "$(wc -l <"$T/opts_help")" -gt 3 ] || fail "$c --help: no options found"
+	cmp -s "$T/opts_help" "$T/opts_man" || fail "$c --help and holdcount-$c(1) list different options: $(diff "$T/opts_help" "$T/opts_man" | grep '^[<>]' | head -4 | tr '\n' ' ')"
+done
 # Command pages cross-refer to holdcount(1); holdcount(1) to every command page.
 for p in "$SRC"/docs/man/holdcount-*.1; do
 	grep -q '^\.BR holdcount (1)$' "$p" || fail "$(basename "$p") has no SEE ALSO holdcount(1)"
