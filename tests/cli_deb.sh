@@ -46,11 +46,42 @@ dpkg -x "$deb" "$R" || die "dpkg -x failed"
 # lib/ is lib/<multiarch> when the build's prefix was /usr; find it either way.
 lib=$(dirname "$(find "$R/usr/lib" -name 'libholdcount.so.0' | head -n1)")
 [ -n "$lib" ] && [ -d "$lib" ] || die "no libholdcount.so.0 in the package"
-for f in usr/bin/holdcount usr/share/man/man1/holdcount.1 usr/share/man/man1/holdcount-curve.1 \
+for f in usr/bin/holdcount usr/share/man/man1/holdcount.1.gz usr/share/man/man1/holdcount-curve.1.gz \
 	 usr/share/bash-completion/completions/holdcount usr/share/holdcount/demo-universe.csv \
-	 usr/include/holdcount/curve.h usr/share/doc/holdcount/library.md; do
+	 usr/include/holdcount/curve.h usr/share/doc/holdcount/library.md usr/share/doc/holdcount/copyright; do
 	[ -e "$R/$f" ] || fail "package lacks /$f"
 done
+
+# ---- the package as a Debian maintainer reads it --------------------------------
+# The copyright file where Debian policy puts it (section 12.5, from memory).
+cmp -s "$SRC/COPYRIGHT" "$R/usr/share/doc/holdcount/copyright" || fail "/usr/share/doc/holdcount/copyright is not COPYRIGHT"
+# Manual pages: every page of docs/man, gzip'd (policy section 12.1, from
+# memory: gzip -9n), nothing uncompressed.
+(cd "$SRC/docs/man" && ls *.1 | sed 's/$/.gz/') >"$T/m_src"
+(cd "$R/usr/share/man/man1" && ls) >"$T/m_deb"
+cmp -s "$T/m_src" "$T/m_deb" || fail "packaged manual pages differ from docs/man: $(diff "$T/m_src" "$T/m_deb" | grep '^[<>]' | head -3 | tr '\n' ' ')"
+for gz in "$R"/usr/share/man/man1/*; do
+	gzip -dc "$gz" 2>/dev/null | cmp -s - "$SRC/docs/man/$(basename "$gz" .gz)" || fail "packaged ${gz#$R} does not unpack to docs/man/$(basename "$gz" .gz)"
+done
+# Bash completion where bash-completion loads it on demand, as checked in
+# (tests/cli_completion.sh tests the checked-in script itself).
+cmp -s "$SRC/share/bash-completion/completions/holdcount" "$R/usr/share/bash-completion/completions/holdcount" \
+	|| fail "packaged completion differs from share/bash-completion/completions/holdcount"
+# Every public header, each complete on its own: a program that includes
+# just one compiles with nothing but the package's include directory.
+(cd "$SRC/include/holdcount" && ls *.h) >"$T/h_src"
+(cd "$R/usr/include/holdcount" && ls) >"$T/h_deb"
+cmp -s "$T/h_src" "$T/h_deb" || fail "packaged headers differ from include/holdcount: $(diff "$T/h_src" "$T/h_deb" | grep '^[<>]' | head -3 | tr '\n' ' ')"
+for h in $(cat "$T/h_deb"); do
+	printf '#include <holdcount/%s>\n' "$h" | cc -std=c11 -pedantic -Wall -Wextra -Werror -fsyntax-only -I"$R/usr/include" -x c - 2>"$T/h.err" \
+		|| fail "packaged holdcount/$h does not compile alone: $(head -c 300 "$T/h.err")"
+done
+# The long description's lines stay under 80 characters (policy section
+# 5.6.13, from memory), and it repeats the usual cautions.
+dpkg-deb -f "$deb" Description >"$T/desc"
+awk 'length($0) > 80 {print NR": "length($0); bad=1} END {exit bad}' "$T/desc" >"$T/long" || fail "Description lines over 80 characters: $(tr '\n' ' ' <"$T/long")"
+[ "$(wc -l <"$T/desc")" -ge 4 ] || fail "Description has no long description: $(cat "$T/desc")"
+grep -q "Not investment advice" "$T/desc" || fail "Description lacks the cautions"
 for f in libholdcount.a libholdcount.so pkgconfig/holdcount.pc cmake/holdcount/holdcountConfig.cmake; do
 	[ -e "$lib/$f" ] || fail "package lacks ${lib#$R}/$f"
 done

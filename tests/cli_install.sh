@@ -28,7 +28,7 @@ for f in bin/holdcount lib/libholdcount.a lib/libholdcount.so lib/pkgconfig/hold
 	 lib/cmake/holdcount/holdcountConfig.cmake lib/cmake/holdcount/holdcountConfigVersion.cmake \
 	 lib/cmake/holdcount/holdcountTargets.cmake share/bash-completion/completions/holdcount \
 	 share/holdcount/demo-universe.csv share/holdcount/demo-sectors.csv share/holdcount/demo-funds.csv \
-	 share/man/man1/holdcount.1 share/doc/holdcount/library.md; do
+	 share/man/man1/holdcount.1.gz share/doc/holdcount/library.md share/doc/holdcount/copyright; do
 	[ -e "$P/$f" ] || fail "not installed: $f"
 done
 # The shared library's SONAME (libholdcount.so.0) and its versioned file.
@@ -39,10 +39,29 @@ soname=$(readelf -d "$L/libholdcount.so" | sed -n 's/.*(SONAME).*\[\(.*\)\]/\1/p
 (cd "$SRC/include/holdcount" && ls *.h) >"$T/h_src"
 (cd "$P/include/holdcount" && ls) >"$T/h_inst"
 cmp -s "$T/h_src" "$T/h_inst" || fail "installed headers differ from include/holdcount: $(diff "$T/h_src" "$T/h_inst" | head -3)"
-# Every checked-in manual page.
-(cd "$SRC/docs/man" && ls *.1) >"$T/m_src"
+# Every checked-in manual page, gzip'd as gzip -9n makes it (Debian policy,
+# from memory): the header read by RFC 1952's layout has no file name (FLG
+# bit 3 clear), no time stamp (MTIME 0) and XFL 2 (best compression); man-db
+# finds each page by name under the prefix and reads it.
+(cd "$SRC/docs/man" && ls *.1 | sed 's/$/.gz/') >"$T/m_src"
 (cd "$P/share/man/man1" && ls) >"$T/m_inst"
-cmp -s "$T/m_src" "$T/m_inst" || fail "installed manual pages differ from docs/man"
+cmp -s "$T/m_src" "$T/m_inst" || fail "installed manual pages differ from docs/man: $(diff "$T/m_src" "$T/m_inst" | grep '^[<>]' | head -3 | tr '\n' ' ')"
+for gz in "$P"/share/man/man1/*.gz; do
+	page=$(basename "$gz" .gz)
+	gzip -dc "$gz" 2>/dev/null | cmp -s - "$SRC/docs/man/$page" || fail "installed $page.gz does not unpack to docs/man/$page"
+	head=$(od -An -tx1 -N10 "$gz" | tr -d ' \n')
+	[ "${head:0:8}" = 1f8b0800 ] && [ "${head:8:8}" = 00000000 ] && [ "${head:16:2}" = 02 ] \
+		|| fail "$page.gz header $head: expected 1f8b0800 (no name), 00000000 (no time stamp), 02 (gzip -9)"
+	[ "$(man -M "$P/share/man" -w "${page%.1}" 2>/dev/null)" = "$gz" ] || fail "man -M PREFIX/share/man -w ${page%.1}: '$(man -M "$P/share/man" -w "${page%.1}" 2>&1)'"
+done
+MANWIDTH=80 man -M "$P/share/man" holdcount-curve 2>"$T/err" | grep -q '^NAME' || fail "man -M PREFIX/share/man holdcount-curve: $(head -c 200 "$T/err")"
+# The copyright file in Debian's machine-readable format (copyright-format
+# 1.0, from memory): a header paragraph naming the format, then a Files: *
+# paragraph with Copyright and License fields.
+cmp -s "$SRC/COPYRIGHT" "$P/share/doc/holdcount/copyright" || fail "share/doc/holdcount/copyright is not COPYRIGHT"
+head -n1 "$SRC/COPYRIGHT" | grep -qx 'Format: https://www.debian.org/doc/packaging-manuals/copyright-format/1.0/' || fail "COPYRIGHT's first line: $(head -n1 "$SRC/COPYRIGHT")"
+awk 'BEGIN{RS=""} /(^|\n)Files: \*\n/ && /\nCopyright: [^\n]*holdcount developers/ && /\nLicense: [^ \n]+/ {ok=1} END{exit !ok}' "$SRC/COPYRIGHT" \
+	|| fail "COPYRIGHT has no 'Files: *' paragraph with Copyright and License"
 # Each header compiles on its own, strictly: a library user includes one at a time.
 for h in $(cat "$T/h_src"); do
 	printf '#include <holdcount/%s>\nint hc_header_check_%s;\n' "$h" "${h%.h}" >"$T/h.c"
