@@ -62,11 +62,14 @@ cmp -s "$SRC/COPYRIGHT" "$P/share/doc/holdcount/copyright" || fail "share/doc/ho
 head -n1 "$SRC/COPYRIGHT" | grep -qx 'Format: https://www.debian.org/doc/packaging-manuals/copyright-format/1.0/' || fail "COPYRIGHT's first line: $(head -n1 "$SRC/COPYRIGHT")"
 awk 'BEGIN{RS=""} /(^|\n)Files: \*\n/ && /\nCopyright: [^\n]*holdcount developers/ && /\nLicense: [^ \n]+/ {ok=1} END{exit !ok}' "$SRC/COPYRIGHT" \
 	|| fail "COPYRIGHT has no 'Files: *' paragraph with Copyright and License"
-# Each header compiles on its own, strictly: a library user includes one at a time.
+# Each header compiles on its own, strictly: a library user includes one at
+# a time; in C++ too (the headers declare C linkage for C++ programs).
 for h in $(cat "$T/h_src"); do
 	printf '#include <holdcount/%s>\nint hc_header_check_%s;\n' "$h" "${h%.h}" >"$T/h.c"
 	cc -std=c11 -pedantic -Wall -Wextra -Werror -I"$P/include" -c "$T/h.c" -o "$T/h.o" 2>"$T/h.err" \
 		|| fail "holdcount/$h does not compile alone: $(head -c 300 "$T/h.err")"
+	c++ -std=c++11 -pedantic -Wall -Wextra -Werror -I"$P/include" -fsyntax-only -x c++ "$T/h.c" 2>"$T/h.err" \
+		|| fail "holdcount/$h does not compile alone as C++: $(head -c 300 "$T/h.err")"
 done
 
 # ---- the installed binary ----------------------------------------------------
@@ -130,6 +133,30 @@ cc -std=c11 -Wall -Wextra -Werror "$T/curve.c" $(pkg-config --cflags holdcount) 
 	$(pkg-config --static --libs holdcount | sed 's/-lholdcount/-l:libholdcount.a/') -o "$T/curve_pc_static" 2>"$T/cc.err" \
 	|| fail "example with pkg-config --static: $(head -c 500 "$T/cc.err")"
 readelf -d "$T/curve_pc_static" 2>/dev/null | grep -q 'libholdcount' && fail "the static example still needs libholdcount.so"
+
+# A C++ program links to the library by the headers' C names and gets Elton
+# & Gruber's (1977, Journal of Business 50(4)) table from their averages,
+# 46.619/N + 7.058(1 - 1/N): rows N = 1 and 10 read 46.619 and 11.014
+# (values from memory; the table is rounded, so within 0.002).
+cat >"$T/eg.cc" <<'EOF'
+#include <cstdio>
+#include <holdcount/curve.h>
+#include <holdcount/moments.h>
+int main()
+{
+	struct moments mo;
+	struct hc_error err;
+	if (moments_from_summary(&mo, 46.619, 7.058, 0, &err) != HC_OK)
+		return 1;
+	std::printf("%.6f %.6f\n", curve_expected_variance(&mo, 1), curve_expected_variance(&mo, 10));
+	return 0;
+}
+EOF
+c++ -std=c++11 -Wall -Wextra -Werror "$T/eg.cc" $(pkg-config --cflags --libs holdcount) -o "$T/eg" 2>"$T/cc.err" \
+	|| fail "a C++ program against the installed library: $(head -c 500 "$T/cc.err")"
+LD_LIBRARY_PATH=$L "$T/eg" >"$T/eg.out" 2>&1 || fail "the C++ program: $(cat "$T/eg.out")"
+awk 'NR == 1 { ok = $1 - 46.619 < 0.002 && 46.619 - $1 < 0.002 && $2 - 11.014 < 0.002 && 11.014 - $2 < 0.002 } END { exit !ok }' "$T/eg.out" \
+	|| fail "the C++ program prints '$(cat "$T/eg.out")', Elton & Gruber's table 46.619 11.014"
 
 mkdir -p "$T/proj"
 cp "$T/curve.c" "$T/proj/"

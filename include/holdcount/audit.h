@@ -42,6 +42,10 @@
 #include "holdcount/sampler.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* Defaults, named once. */
 #define AUDIT_DEFAULT_PATHS 10000
 /* Weight limits are met within this (fractions): far below the 0.01%
@@ -219,5 +223,9 @@ const char *audit_rule_name(unsigned rule);
 
 /* "ucits", "1940act", "ric" for AUDIT_SCREEN_* index 0..2. */
 const char *audit_screen_name(int index);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

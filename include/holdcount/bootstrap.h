@@ -25,6 +25,10 @@
 #include "holdcount/error.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum bootstrap_kind {
 	BOOTSTRAP_BLOCK = 0,       /* moving-block (Kuensch, 1989) */
 	BOOTSTRAP_STATIONARY = 1   /* stationary (Politis & Romano, 1994) */
@@ -108,5 +112,9 @@ struct bootstrap_result {
 int bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
 		  const struct bootstrap_options *opt, struct hc_error *err);
 void bootstrap_result_free(struct bootstrap_result *r);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -15,6 +15,10 @@
 #include "holdcount/error.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* Largest accepted |a_ij - a_ji|, relative to sqrt(a_ii * a_jj) (the
  * product of the two standard deviations, a covariance's natural scale):
  * room for a file printed with about 9 significant digits. */
@@ -85,5 +89,9 @@ void covmatrix_free(struct covmatrix *c);
 
 /* Index of id in c->ids, or -1. */
 long covmatrix_find(const struct covmatrix *c, const char *id);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

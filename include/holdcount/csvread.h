@@ -18,6 +18,10 @@
 
 #include "holdcount/error.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 #define CSVREAD_DEFAULT_MAX_FIELD 4096
 
 struct csvread_options {
@@ -92,5 +96,9 @@ const char *csvread_quote(const char *s, size_t len, char *buf);
 
 /* 1 when the cell means "missing": empty, NA, NaN, N/A, '.', null (any case). */
 int csvread_is_missing(const char *s, size_t len);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -16,6 +16,10 @@
 #include "holdcount/moments.h"
 #include "holdcount/report.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* E[sigma^2(n)] = vbar/n + (1 - 1/n) cbar, per period; n >= 1 (real n allowed). */
 double curve_expected_variance(const struct moments *mo, double n);
 
@@ -113,5 +117,9 @@ int curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
  * t already has columns (no error record: the caller words the message).
  */
 int curve_report(const struct curve *c, struct report_table *t);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -17,6 +17,10 @@
 
 #include <stddef.h>
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum hc_status {
 	HC_OK = 0,        /* success */
 	HC_EPOLICY = 1,   /* computed fine, but a policy check failed (audit) */
@@ -56,5 +60,9 @@ void hc_error_prefix(struct hc_error *err, const char *prefix);
 /* A short name for a status code ("data error", "usage error", ...): a
  * static string, never NULL (unknown codes get a generic name). */
 const char *hc_status_name(int code);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -23,6 +23,10 @@
 
 #include "holdcount/error.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* Weights whose sum is off 1 by more than this are reported (0.5%). */
 #define HOLDINGS_DEFAULT_SUM_TOLERANCE 0.005
 
@@ -126,5 +130,9 @@ void holdings_labels_free(struct holdings_labels *l);
 
 /* The label of id, or NULL when the map does not have it.  O(log n). */
 const char *holdings_labels_find(const struct holdings_labels *l, const char *id);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -11,6 +11,10 @@
 
 #include <stddef.h>
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* Like their libc namesakes: NULL when out of memory (or when a failure is
  * injected, below), never an abort; the caller owns the result and frees it
  * with hc_free.  A zero size still returns a unique pointer.  hc_strndup
@@ -34,5 +38,9 @@ unsigned long hc_alloc_count(void);
 
 /* Multiply with overflow check: returns 0 and sets *out, or -1 on overflow. */
 int hc_mul_size(size_t a, size_t b, size_t *out);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

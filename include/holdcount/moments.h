@@ -15,6 +15,10 @@
 #include "holdcount/error.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum moments_route {
 	MOMENTS_ROUTE_GRAM = 0,     /* column sums and the T x T Gram matrix (complete data, T < M) */
 	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance through BLAS dsyrk */
@@ -73,5 +77,9 @@ int moments_from_matrix(struct moments *mo, const double *a, size_t m,
  * only as an approximation and flagged has_correlation = 0. */
 int moments_from_summary(struct moments *mo, double vbar, double cbar,
 			 size_t m, struct hc_error *err);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -13,6 +13,10 @@
 
 #include "holdcount/error.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 struct outfile {
 	FILE *fp;
 	char *path;     /* final name, NULL for stdout */
@@ -44,5 +48,9 @@ const char *outfile_pending(void);
  * e.g. a report folder).  Async-signal-safe: for a SIGINT/SIGTERM handler.
  * The FILE streams are left alone; the process is expected to exit. */
 void outfile_unlink_pending(void);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -26,6 +26,10 @@
 #include "holdcount/rolling.h"
 #include "holdcount/rules.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum plots_kind {
 	PLOTS_RISK = 0,        /* risk by count, linear count axis */
 	PLOTS_RISK_LOG = 1,    /* the same, log-scaled count axis */
@@ -111,5 +115,9 @@ int plots_find_gnuplot(const char *path_env, char *buf, size_t size);
  */
 int plots_render(const char *gnuplot, const char *dir, const char *script,
 		 struct hc_error *err);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -24,6 +24,10 @@
 
 #include "holdcount/error.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum report_kind {
 	REPORT_NONE = 0,    /* no value: empty in CSV, null in JSON, "-" in text */
 	REPORT_REAL = 1,
@@ -126,5 +130,9 @@ const struct report_writer *report_writer_find(const char *name);
 /* The cautions every output carries (design.md section 9); adds them as
  * notes.  HC_OK or HC_ENOMEM. */
 int report_add_cautions(struct report *r);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -28,6 +28,10 @@
 
 #include "holdcount/error.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* Files one folder may hold (each registered before it is created). */
 #define REPORTDIR_MAX_FILES 64
 #define REPORTDIR_NAME_MAX 64
@@ -75,5 +79,9 @@ void reportdir_free(struct reportdir *rd);
 /* Async-signal-safe: unlink the registered files and the marker of the
  * folder being written and remove it.  For a SIGINT/SIGTERM handler. */
 void reportdir_unlink_pending(void);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

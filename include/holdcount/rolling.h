@@ -37,6 +37,10 @@
 #include "holdcount/rules.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* Recompute from scratch every this many windows (defaults named once; see
  * rolling.c for why drift stays far below this bound's reach). */
 #define ROLLING_DEFAULT_REFRESH 64
@@ -114,5 +118,9 @@ void rolling_result_free(struct rolling_result *r);
  */
 int rolling_report(struct report *rep, const struct rolling_result *r,
 		   struct hc_error *err);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

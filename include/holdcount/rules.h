@@ -25,6 +25,10 @@
 #include "holdcount/sampler.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum rules_id {
 	RULES_NEAR_FLOOR = 0,     /* sqrt(E[s2(N)]) <= (1+x) sqrt(floor) */
 	RULES_MARGINAL = 1,       /* sqrt(E[s2(N)]) - sqrt(E[s2(N+1)]) < eps */
@@ -228,5 +232,9 @@ int rules_bootstrap_sampled(const struct rules_config *cfg, const struct univers
  */
 int rules_report(struct report *rep, const struct rule_result *res,
 		 size_t nres, struct hc_error *err);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

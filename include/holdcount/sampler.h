@@ -17,6 +17,10 @@
 #include "holdcount/error.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* Progress callback: done of total paths; return nonzero to stop early
  * (then sampler_run returns HC_EINTERRUPT). May be NULL. Called from one
  * thread only. */
@@ -102,5 +106,9 @@ void sampler_result_free(struct sampler_result *r);
 /* splitmix64 step (Steele, Lea & Flood, 2014, OOPSLA): advances *state and
  * returns the next output; used to derive per-path seeds. */
 uint64_t sampler_splitmix64(uint64_t *state);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

@@ -17,6 +17,10 @@
 #include "holdcount/error.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 /* The label of the stratum holding securities absent from the map; the
  * map itself may not use it. */
 #define SECTORS_UNMAPPED_LABEL "(unmapped)"
@@ -66,5 +70,9 @@ int sectors_strata(const struct sectors *s, const struct universe *u,
 
 /* Free what sectors_strata returned; NULL pointers are no-ops. */
 void sectors_strata_free(size_t *stratum_of_security, char **labels, size_t nlabels);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

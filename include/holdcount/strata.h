@@ -37,6 +37,10 @@
 #include "holdcount/sampler.h"
 #include "holdcount/universe.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 struct strata {
 	size_t m, nstrata;
 	size_t *count;             /* nstrata: m_s (0 allowed) */
@@ -184,5 +188,9 @@ void strata_curve_free(struct strata_curve *c);
  * HC_ENOMEM.
  */
 int strata_report_columns(const struct strata_curve *c, struct report_table *t);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

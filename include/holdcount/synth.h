@@ -34,6 +34,10 @@
 
 #include "holdcount/error.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum synth_frequency {
 	SYNTH_MONTHLY = 0,  /* month ends; P = 12 */
 	SYNTH_WEEKLY = 1,   /* every seventh day from the start date; P = 52 */
@@ -193,5 +197,9 @@ int synth_truth_model(const struct synth_model *model, const size_t *keep,
 
 /* Format days since 1970-01-01 as YYYY-MM-DD into buf (at least 11 bytes). */
 void synth_format_date(int32_t days, char *buf);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif

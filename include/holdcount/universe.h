@@ -17,6 +17,10 @@
 
 #include "holdcount/error.h"
 
+#ifdef __cplusplus
+extern "C" {
+#endif
+
 enum universe_layout {
 	UNIVERSE_WIDE = 0,  /* date,ID1,ID2,... */
 	UNIVERSE_LONG = 1   /* date,id,value rows (column names by option) */
@@ -138,5 +142,9 @@ void universe_format_date(int32_t days, char *buf);
 int universe_check_id(const char *name, size_t line, size_t col,
 		      const char *id, size_t len, struct hc_error *err);
 int universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second);
+
+#ifdef __cplusplus
+}
+#endif
 
 #endif
