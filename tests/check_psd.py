@@ -169,6 +169,18 @@ else:
         if not np.isclose(float(row["expected_variance"]), want, rtol=RTOL):
             fail(f"curve --repair-psd n={n}: {row['expected_variance']}, numpy {want!r}")
 
+# random portfolios are drawn from the same repaired matrix: the sampled
+# mean variance within 4 Monte Carlo standard errors of the exact one (the
+# design's self-check, z; at N = M there is no spread and no z)
+out = run("curve", "--covariance", cov, "--repair-psd", "--paths", "20000", "--seed", "3", "--sizes", "1-5",
+          "--threads", "2", "--quiet", "--format", "csv")
+if out.returncode != 0:
+    fail(f"curve --repair-psd --paths 20000: exit {out.returncode}: {out.stderr}")
+else:
+    zs = [(int(r["n"]), r["z_score"]) for r in csv.DictReader(io.StringIO(out.stdout))]
+    if [n for n, z in zs if z != ""] != [1, 2, 3, 4] or any(abs(float(z)) > 4 for n, z in zs if z != ""):
+        fail(f"curve --repair-psd: z-scores {zs}, expected |z| <= 4 for N = 1..4 and none at N = 5")
+
 # ---- pairwise-complete covariances of a history with gaps ---------------------
 gaps = os.path.join(BAD, "pairwise-not-psd.csv")
 lines = open(gaps).read().splitlines()
