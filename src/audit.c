@@ -2,11 +2,15 @@
  * audit.c - per-fund concentration, risk against the universe, screens and
  * policy (design.md section 6).
  *
- * The fund's variance is the sample variance (divisor T-1) of its portfolio
- * return series p_t = sum_i w_i x_it.  That equals w'Aw for the sample
- * covariance A without forming A: O(nT) per fund instead of O(n^2 T).
- * Two passes (mean, then squared deviations) keep it accurate when the mean
- * is large against the spread.
+ * From a return history, the fund's variance is the sample variance
+ * (divisor T-1) of its portfolio return series p_t = sum_i w_i x_it.  That
+ * equals w'Aw for the sample covariance A without forming A: O(nT) per fund
+ * instead of O(n^2 T).  Two passes (mean, then squared deviations) keep it
+ * accurate when the mean is large against the spread.  From a covariance
+ * matrix (a risk model's, or pairwise-complete covariances) it is the
+ * quadratic form w'Aw itself, O(n^2), and the random portfolios come from
+ * the sampler's matrix route, which draws the same portfolios for the same
+ * seed.
  */
 #include "holdcount/audit.h"
 
@@ -15,8 +19,18 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
 #include "holdcount/memory.h"
+
+/* What the funds' risk comes from: a return history or a covariance matrix. */
+struct source {
+	const struct universe *u;        /* complete return series, or NULL */
+	const struct covmatrix *cm;      /* else the covariance matrix */
+	const struct universe *history;  /* names dropped ids in messages; may be NULL */
+	const char *name;                /* the file, for messages */
+	double pp;                       /* variances are multiplied by this */
+};
 
 /* The screens' limits, from memory of the published texts (audit.h). */
 #define UCITS_ISSUER_LIMIT 0.10      /* 2009/65/EC Art. 52(2): raised ceiling per issuer */
@@ -176,7 +190,7 @@ static const char *dropped_reason(const struct universe *u, const char *id)
 {
 	size_t k;
 
-	for (k = 0; k < u->ndropped; k++)
+	for (k = 0; u && k < u->ndropped; k++)
 		if (strcmp(u->dropped[k].id, id) == 0)
 			return u->dropped[k].reason;
 	return NULL;
@@ -184,20 +198,20 @@ static const char *dropped_reason(const struct universe *u, const char *id)
 
 /* Find each holding in u; record the missing ones (or refuse under strict). */
 static int locate(struct audit_fund *af, const struct holdings_fund *fd,
-		  const struct holdings *h, const struct universe *u, int strict,
+		  const struct holdings *h, const struct source *src, int strict,
 		  long *idx, struct hc_error *err)
 {
 	size_t k;
 
 	for (k = 0; k < fd->n; k++) {
-		idx[k] = universe_find(u, fd->h[k].id);
+		idx[k] = src->u ? universe_find(src->u, fd->h[k].id) : covmatrix_find(src->cm, fd->h[k].id);
 		if (idx[k] >= 0)
 			continue;
 		if (strict) {
-			const char *why = dropped_reason(u, fd->h[k].id);
+			const char *why = dropped_reason(src->history, fd->h[k].id);
 			return hc_error(err, HC_EDATA, "%s:%zu:%zu: id '%s' of fund '%s' is not in the universe '%s'%s%s%s, expected an id of the universe (without --strict the fund's risk is computed on the rest)",
 					h->source, fd->h[k].line, h->id_column, fd->h[k].id, fd->name,
-					u->source ? u->source : "", why ? " (dropped: " : "", why ? why : "", why ? ")" : "");
+					src->name ? src->name : "", why ? " (dropped: " : "", why ? why : "", why ? ")" : "");
 		}
 		af->nmissing++;
 	}
@@ -220,21 +234,15 @@ static int locate(struct audit_fund *af, const struct holdings_fund *fd,
 	return HC_OK;
 }
 
-static int risk(struct audit_fund *af, const struct holdings_fund *fd,
-		const struct universe *u, const struct moments *mo,
-		const long *idx, double *series, struct hc_error *err)
+/* The fund's per-period variance and sum w_i sigma_i from the return
+ * series (w already renormalised to the in-universe weight in). */
+static int series_risk(const struct holdings_fund *fd, const struct universe *u, const long *idx,
+		       double in, double *series, double *s2, double *wsd, struct hc_error *err)
 {
-	double in = 0, hhi = 0, wsd = 0, s2, neq, pp = u->periods_per_year > 0 ? u->periods_per_year : 1;
 	size_t k, t, T = u->t;
 
-	for (k = 0; k < fd->n; k++)
-		if (idx[k] >= 0)
-			in += fd->h[k].weight;
-	if (!(in > 0))
-		return HC_OK;
-	af->risk_known = 1;
-	af->risk_subset = af->nmissing > 0;
 	memset(series, 0, T * sizeof *series);
+	*wsd = 0;
 	for (k = 0; k < fd->n; k++) {
 		const double *x;
 		double w;
@@ -248,13 +256,62 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 						fd->h[k].id, u->source ? u->source : "");
 			series[t] += w * x[t];
 		}
-		hhi += w * w;
-		wsd += w * sqrt(series_variance(x, T));
-		af->risk_holdings++;
+		*wsd += w * sqrt(series_variance(x, T));
 	}
-	s2 = series_variance(series, T);
+	*s2 = series_variance(series, T);
+	return HC_OK;
+}
+
+/* The same from a covariance matrix: the quadratic form w'Aw, row by row. */
+static void matrix_risk(const struct holdings_fund *fd, const struct covmatrix *cm, const long *idx,
+			double in, double *s2, double *wsd)
+{
+	size_t k, l, m = cm->m;
+
+	*s2 = *wsd = 0;
+	for (k = 0; k < fd->n; k++) {
+		const double *row;
+		double w, cross = 0;
+		if (idx[k] < 0)
+			continue;
+		row = cm->a + (size_t)idx[k] * m;
+		w = fd->h[k].weight / in;
+		for (l = 0; l < fd->n; l++)
+			if (idx[l] >= 0)
+				cross += fd->h[l].weight / in * row[idx[l]];
+		*s2 += w * cross;
+		*wsd += w * sqrt(row[idx[k]]);
+	}
+}
+
+static int risk(struct audit_fund *af, const struct holdings_fund *fd,
+		const struct source *src, const struct moments *mo,
+		const long *idx, double *series, struct hc_error *err)
+{
+	double in = 0, hhi = 0, wsd = 0, s2 = 0, neq, pp = src->pp;
+	size_t k;
+	int rc;
+
+	for (k = 0; k < fd->n; k++)
+		if (idx[k] >= 0)
+			in += fd->h[k].weight;
+	if (!(in > 0))
+		return HC_OK;
+	af->risk_known = 1;
+	af->risk_subset = af->nmissing > 0;
+	for (k = 0; k < fd->n; k++)
+		if (idx[k] >= 0) {
+			double w = fd->h[k].weight / in;
+			hhi += w * w;
+			af->risk_holdings++;
+		}
+	if (src->u) {
+		if ((rc = series_risk(fd, src->u, idx, in, series, &s2, &wsd, err)) != HC_OK)
+			return rc;
+	} else
+		matrix_risk(fd, src->cm, idx, in, &s2, &wsd);
 	af->variance = s2 * pp;
-	af->sd = sqrt(af->variance);
+	af->sd = s2 >= 0 ? sqrt(af->variance) : NAN;
 	/* Choueifaty & Coignard (2008), J. Portfolio Management 35(1): the ratio
 	 * of the weighted average volatility to the portfolio's volatility. */
 	af->diversification_ratio = s2 > 0 ? wsd / sqrt(s2) : NAN;
@@ -454,13 +511,13 @@ static double mid_rank(const double *v, size_t stride, size_t k_paths,
 	return ((double)below + 0.5 * (double)equal) / (double)k_paths;
 }
 
-static int percentiles(struct audit_result *a, const struct universe *u,
+static int percentiles(struct audit_result *a, const struct source *src,
 		       const struct audit_options *opt, struct hc_error *err)
 {
 	struct sampler_options so;
 	struct sampler_result *sr = NULL;
 	size_t *sizes = NULL, nsizes = 0, f, k;
-	double pp = u->periods_per_year > 0 ? u->periods_per_year : 1;
+	double pp = src->pp;
 	int rc = HC_OK;
 
 	if (opt->paths == 0)
@@ -485,7 +542,9 @@ static int percentiles(struct audit_result *a, const struct universe *u,
 	so.periods_per_year = pp;
 	so.progress = opt->progress;
 	so.progress_ctx = opt->progress_ctx;
-	if ((rc = sampler_run(&sr, u, sizes, nsizes, &so, err)) != HC_OK)
+	rc = src->u ? sampler_run(&sr, src->u, sizes, nsizes, &so, err)
+		    : sampler_run_matrix(&sr, src->cm->a, src->cm->m, sizes, nsizes, &so, err);
+	if (rc != HC_OK)
 		goto cleanup;
 	for (f = 0; f < a->nfunds; f++) {
 		struct audit_fund *af = &a->funds[f];
@@ -519,7 +578,7 @@ static int check_options(const struct audit_options *opt, struct hc_error *err)
 }
 
 static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
-		     const struct holdings *h, const struct universe *u,
+		     const struct holdings *h, const struct source *src,
 		     const struct moments *mo, const struct audit_options *opt,
 		     long *idx, double *dwork, struct issuer_weight *iw,
 		     double *series, struct hc_error *err)
@@ -531,9 +590,9 @@ static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
 	af->variance = af->sd = af->diversification_ratio = NAN;
 	af->equivalent_count = af->weighted_random_sd = af->equal_random_sd = NAN;
 	concentration(af, fd, dwork);
-	if ((rc = locate(af, fd, h, u, opt->strict, idx, err)) != HC_OK)
+	if ((rc = locate(af, fd, h, src, opt->strict, idx, err)) != HC_OK)
 		return rc;
-	if ((rc = risk(af, fd, u, mo, idx, series, err)) != HC_OK)
+	if ((rc = risk(af, fd, src, mo, idx, series, err)) != HC_OK)
 		return rc;
 	if ((rc = sectors(af, fd, opt->sectors, err)) != HC_OK)
 		return rc;
@@ -541,9 +600,9 @@ static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
 	return HC_OK;
 }
 
-int audit_run(struct audit_result **out, const struct holdings *h,
-	      const struct universe *u, const struct moments *mo,
-	      const struct audit_options *opt, struct hc_error *err)
+/* Every fund against src; a->t, a->input and a->annualised are the caller's. */
+static int run(struct audit_result **out, const struct holdings *h, const struct source *src,
+	       const struct moments *mo, const struct audit_options *opt, struct hc_error *err)
 {
 	struct audit_result *a = NULL;
 	long *idx = NULL;
@@ -555,9 +614,6 @@ int audit_run(struct audit_result **out, const struct holdings *h,
 	*out = NULL;
 	if ((rc = check_options(opt, err)) != HC_OK)
 		return rc;
-	if (u->t < 2)
-		return hc_error(err, HC_EDATA, "the universe '%s' has %zu periods, expected at least 2",
-				u->source ? u->source : "", u->t);
 	for (f = 0; f < h->nfunds; f++)
 		if (h->funds[f].n > nmax)
 			nmax = h->funds[f].n;
@@ -565,8 +621,9 @@ int audit_run(struct audit_result **out, const struct holdings *h,
 	idx = hc_calloc(nmax, sizeof *idx);
 	dwork = hc_calloc(nmax, sizeof *dwork);
 	iw = hc_calloc(nmax, sizeof *iw);
-	series = hc_calloc(u->t, sizeof *series);
-	if (!a || !idx || !dwork || !iw || !series ||
+	if (src->u)
+		series = hc_calloc(src->u->t, sizeof *series);
+	if (!a || !idx || !dwork || !iw || (src->u && !series) ||
 	    !(a->funds = hc_calloc(h->nfunds ? h->nfunds : 1, sizeof *a->funds))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory auditing '%s'", h->source);
 		goto cleanup;
@@ -576,19 +633,18 @@ int audit_run(struct audit_result **out, const struct holdings *h,
 	a->paths = opt->paths;
 	a->seed = opt->seed;
 	a->tie_rtol = opt->tie_rtol;
-	a->periods_per_year = u->periods_per_year;
-	a->m = u->m;
-	a->t = u->t;
-	a->universe_source = u->source;
+	a->periods_per_year = src->pp;
+	a->m = src->u ? src->u->m : src->cm->m;
+	a->universe_source = src->name;
 	a->holdings_source = h->source;
 	for (f = 0; f < h->nfunds; f++) {
 		a->nfunds = f + 1;
-		rc = audit_one(&a->funds[f], &h->funds[f], h, u, mo, opt,
+		rc = audit_one(&a->funds[f], &h->funds[f], h, src, mo, opt,
 				idx, dwork, iw, series, err);
 		if (rc != HC_OK)
 			goto cleanup;
 	}
-	if ((rc = percentiles(a, u, opt, err)) != HC_OK)
+	if ((rc = percentiles(a, src, opt, err)) != HC_OK)
 		goto cleanup;
 	for (f = 0; f < a->nfunds; f++) {
 		policy(&a->funds[f], &opt->policy, opt->limit_tolerance);
@@ -603,6 +659,49 @@ cleanup:
 	hc_free(iw);
 	hc_free(series);
 	return rc;
+}
+
+int audit_run(struct audit_result **out, const struct holdings *h,
+	      const struct universe *u, const struct moments *mo,
+	      const struct audit_options *opt, struct hc_error *err)
+{
+	struct source src = { u, NULL, u, u->source, u->periods_per_year > 0 ? u->periods_per_year : 1 };
+	int rc;
+
+	*out = NULL;
+	if ((rc = check_options(opt, err)) != HC_OK)
+		return rc;
+	if (u->t < 2)
+		return hc_error(err, HC_EDATA, "the universe '%s' has %zu periods, expected at least 2",
+				u->source ? u->source : "", u->t);
+	if ((rc = run(out, h, &src, mo, opt, err)) != HC_OK)
+		return rc;
+	(*out)->t = u->t;
+	(*out)->input = "return history";
+	(*out)->annualised = 1;
+	return HC_OK;
+}
+
+int audit_run_matrix(struct audit_result **out, const struct holdings *h,
+		     const struct audit_matrix *am, const struct moments *mo,
+		     const struct audit_options *opt, struct hc_error *err)
+{
+	struct source src = { NULL, am->cm, am->history, am->source, am->periods_per_year };
+	int rc;
+
+	*out = NULL;
+	if (!(am->periods_per_year > 0) || (!am->annualised && am->periods_per_year != 1))
+		return hc_error(err, HC_EUSAGE, "periods per year %g: expected a positive number, 1 when not annualised",
+				am->periods_per_year);
+	if (am->cm->m < 2)
+		return hc_error(err, HC_EDATA, "the covariance matrix '%s' has %zu securities, expected at least 2",
+				am->source ? am->source : "", am->cm->m);
+	if ((rc = run(out, h, &src, mo, opt, err)) != HC_OK)
+		return rc;
+	(*out)->t = am->periods;
+	(*out)->input = am->input ? am->input : "covariance matrix";
+	(*out)->annualised = am->annualised;
+	return HC_OK;
 }
 
 void audit_result_free(struct audit_result *a)
@@ -881,10 +980,14 @@ static int fields(struct report *rep, const struct audit_result *a)
 	if (policy_text(&a->policy, a->has_sectors, buf, sizeof buf) != 0)
 		return HC_EINTERNAL;
 	if (report_add_text(rep, "universe", "universe", a->universe_source ? a->universe_source : "") != HC_OK ||
+	    report_add_text(rep, "input", "input", a->input ? a->input : "return history") != HC_OK ||
 	    report_add_text(rep, "holdings_file", "holdings", a->holdings_source ? a->holdings_source : "") != HC_OK ||
 	    report_add_int(rep, "securities", "securities", (long long)a->m) != HC_OK ||
-	    report_add_int(rep, "periods", "periods", (long long)a->t) != HC_OK ||
-	    report_add_real(rep, "periods_per_year", "periods per year", a->periods_per_year, REPORT_STYLE_PLAIN) != HC_OK ||
+	    (a->t ? report_add_int(rep, "periods", "periods", (long long)a->t)
+		  : report_add_none(rep, "periods", "periods")) != HC_OK ||
+	    (a->annualised ? report_add_real(rep, "periods_per_year", "periods per year", a->periods_per_year,
+					     REPORT_STYLE_PLAIN)
+			   : report_add_none(rep, "periods_per_year", "periods per year")) != HC_OK ||
 	    report_add_int(rep, "paths", "random portfolios per count", (long long)a->paths) != HC_OK ||
 	    report_add_int(rep, "seed", "seed", (long long)a->seed) != HC_OK ||
 	    report_add_text(rep, "policy", "policy", buf) != HC_OK ||
@@ -905,8 +1008,18 @@ static int notes(struct report *rep, const struct audit_result *a, const struct 
 	snprintf(buf, sizeof buf,
 		 "sd_percentile ranks the fund's sd among %zu random equal-weight portfolios of the same count (seed %llu); ties (relative difference within %g) count half: (below + equal/2)/paths",
 		 a->paths, (unsigned long long)a->seed, a->tie_rtol);
+	if (report_add_note(rep, buf) != HC_OK)
+		return HC_ENOMEM;
+	if (a->t == 0 && a->annualised)
+		snprintf(buf, sizeof buf, "risk figures come from the covariance matrix, annualised: variances times %g, "
+			 "standard deviations times sqrt(%g)", a->periods_per_year, a->periods_per_year);
+	else if (a->t == 0)
+		snprintf(buf, sizeof buf, "risk figures come from the covariance matrix, on its own scale (not annualised)");
+	else
+		snprintf(buf, sizeof buf, "risk figures are annualised sample estimates from the universe's history%s",
+			 a->input && strcmp(a->input, "return history") ? ", through its pairwise-complete covariances" : "");
 	if (report_add_note(rep, buf) != HC_OK ||
-	    report_add_note(rep, "risk figures are annualised sample estimates from the universe's history; funds with ids missing from the universe have them computed on the remaining weights, renormalised (risk_on_subset)") != HC_OK ||
+	    report_add_note(rep, "funds with ids missing from the universe have their risk figures computed on the remaining weights, renormalised (risk_on_subset)") != HC_OK ||
 	    report_add_note(rep, "the UCITS (2009/65/EC Art. 52), Investment Company Act of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3) screens are written from memory of the published texts and test weights only: verify against the current text and defer to compliance counsel") != HC_OK)
 		return HC_ENOMEM;
 	return report_add_cautions(rep) == HC_OK ? HC_OK : HC_ENOMEM;

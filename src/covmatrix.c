@@ -411,31 +411,31 @@ int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
  * For a symmetric A = V diag(l) V', the nearest positive semi-definite
  * matrix in the Frobenius norm is V diag(max(l, 0)) V' (Higham, 1988,
  * "Computing a nearest symmetric positive semidefinite matrix", Linear
- * Algebra and its Applications 103, Theorem 2.1).  It is rebuilt as B B'
- * with B = V diag(sqrt(max(l, 0))), so the result is symmetric and positive
- * semi-definite by construction, not only up to rounding.
+ * Algebra and its Applications 103, Theorem 2.1): eigenvalue clipping.  It
+ * is rebuilt as B B' with B = V diag(sqrt(max(l, 0))), so the result is
+ * symmetric and positive semi-definite by construction, not only up to
+ * rounding.
+ *
+ * w holds a copy of A and is destroyed.  out is written only when some
+ * eigenvalue is negative (*neg then counts them); *lmin gets the smallest.
  */
-int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err)
+static int eigen_clip(double *w, size_t m, double *out, size_t *neg, double *lmin,
+		      struct hc_error *err)
 {
-	double *w = NULL, *eval = NULL, *evec = NULL;
+	double *eval = NULL, *evec = NULL;
 	gsl_eigen_symmv_workspace *ws = NULL;
-	size_t i, k, n;
-	int rc = HC_OK, st, neg = 0;
+	size_t i, k;
+	int rc = HC_OK, st;
 
-	*changed = 0;
-	if (m == 0)
-		return HC_OK;
-	if (hc_mul_size(m, m, &n))
-		return hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
-	w = hc_reallocarray(NULL, n, sizeof *w);
-	evec = hc_reallocarray(NULL, n, sizeof *evec);
+	*neg = 0;
+	*lmin = NAN;
+	evec = hc_reallocarray(NULL, m * m, sizeof *evec);
 	eval = hc_reallocarray(NULL, m, sizeof *eval);
 	ws = gsl_eigen_symmv_alloc(m);
-	if (!w || !evec || !eval || !ws) {
+	if (!evec || !eval || !ws) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
 		goto cleanup;
 	}
-	memcpy(w, a, n * sizeof *w);
 	{
 		gsl_matrix_view A = gsl_matrix_view_array(w, m, m);
 		gsl_matrix_view V = gsl_matrix_view_array(evec, m, m);
@@ -447,9 +447,13 @@ int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err
 		rc = hc_error(err, HC_EINTERNAL, "eigen decomposition failed: %s", gsl_strerror(st));
 		goto cleanup;
 	}
-	for (k = 0; k < m; k++)
-		neg |= eval[k] < 0;
-	if (!neg)
+	*lmin = eval[0];
+	for (k = 0; k < m; k++) {
+		*neg += eval[k] < 0;
+		if (eval[k] < *lmin)
+			*lmin = eval[k];
+	}
+	if (!*neg)
 		goto cleanup;
 	for (k = 0; k < m; k++)
 		eval[k] = eval[k] > 0 ? sqrt(eval[k]) : 0.0;
@@ -457,16 +461,69 @@ int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err
 		for (k = 0; k < m; k++)
 			evec[i * m + k] *= eval[k];   /* column k of V is eigenvector k */
 	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)m,
-		    1.0, evec, (int)m, 0.0, a, (int)m);
-	mirror_upper(a, m);
-	*changed = 1;
+		    1.0, evec, (int)m, 0.0, out, (int)m);
+	mirror_upper(out, m);
 cleanup:
 	if (ws)
 		gsl_eigen_symmv_free(ws);
-	hc_free(w);
 	hc_free(evec);
 	hc_free(eval);
 	return rc;
+}
+
+int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err)
+{
+	double *w, lmin;
+	size_t n, neg = 0;
+	int rc;
+
+	*changed = 0;
+	if (m == 0)
+		return HC_OK;
+	if (hc_mul_size(m, m, &n) || !(w = hc_reallocarray(NULL, n, sizeof *w)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
+	memcpy(w, a, n * sizeof *w);
+	rc = eigen_clip(w, m, a, &neg, &lmin, err);
+	hc_free(w);
+	*changed = rc == HC_OK && neg > 0;
+	return rc;
+}
+
+int covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix_psd *st,
+			  struct hc_error *err)
+{
+	double *w, d2 = 0, a2 = 0;
+	size_t n, i, j;
+	int rc;
+
+	memset(st, 0, sizeof *st);
+	if (m == 0)
+		return hc_error(err, HC_EINTERNAL, "no nearest matrix to an empty one");
+	if (hc_mul_size(m, m, &n))
+		return hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
+	memcpy(b, a, n * sizeof *b);
+	if (!(w = hc_reallocarray(NULL, n, sizeof *w)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
+	memcpy(w, a, n * sizeof *w);
+	rc = eigen_clip(w, m, b, &st->negative, &st->min_eigenvalue, err);
+	hc_free(w);
+	if (rc != HC_OK) {
+		memcpy(b, a, n * sizeof *b);
+		return rc;
+	}
+	for (i = 0; i < m; i++)
+		for (j = 0; j < m; j++) {
+			double x = a[i * m + j], d = b[i * m + j] - x;
+			double rel = fabs(d) / sqrt(a[i * m + i] * a[j * m + j]);
+
+			d2 += d * d;
+			a2 += x * x;
+			if (rel > st->max_relative_move)
+				st->max_relative_move = rel;
+		}
+	st->distance = sqrt(d2);
+	st->norm = sqrt(a2);
+	return HC_OK;
 }
 
 int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,

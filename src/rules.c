@@ -781,10 +781,12 @@ int rules_report(struct report *rep, const struct rule_result *res,
 
 /* ---- sampling for the sampled rules ------------------------------------ */
 
-int rules_sampled(const struct rules_config *cfg, const struct universe *u,
-		  const struct sampler_options *so, double cbar,
-		  struct rule_result *res, size_t *nres, size_t *largest,
-		  struct hc_error *err)
+/* The staged sampling of rules_sampled, from the return series u or, when
+ * u is NULL, from the m x m covariance matrix a (band only). */
+static int sampled_stages(const struct rules_config *cfg, const struct universe *u,
+			  const double *a, size_t m, const struct sampler_options *so, double cbar,
+			  struct rule_result *res, size_t *nres, size_t *largest,
+			  struct hc_error *err)
 {
 	struct sampler_options o = *so;
 	struct sampler_result *sr = NULL;
@@ -799,18 +801,19 @@ int rules_sampled(const struct rules_config *cfg, const struct universe *u,
 		return HC_OK;
 	if (o.want_returns && (status = rules_universe_return(u, o.periods_per_year, &uret, err)) != HC_OK)
 		return status;
-	sizes = hc_malloc(u->m * sizeof *sizes);
+	sizes = hc_malloc(m * sizeof *sizes);
 	if (!sizes)
-		return hc_error(err, HC_ENOMEM, "out of memory for %zu sizes", u->m);
-	for (j = 0; j < u->m; j++)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu sizes", m);
+	for (j = 0; j < m; j++)
 		sizes[j] = j + 1;
 	for (k = RULES_SAMPLED_FIRST_K;; k *= RULES_SAMPLED_GROWTH) {
 		int done = 1;
 
-		if (k > u->m)
-			k = u->m;
+		if (k > m)
+			k = m;
 		n = 0;
-		if ((status = sampler_run(&sr, u, sizes, k, &o, err)) != HC_OK)
+		status = u ? sampler_run(&sr, u, sizes, k, &o, err) : sampler_run_matrix(&sr, a, m, sizes, k, &o, err);
+		if (status != HC_OK)
 			break;
 		if (want_band) {
 			if ((status = rules_band(cfg, sr, cbar, o.periods_per_year, &res[n], err)) != HC_OK)
@@ -828,7 +831,7 @@ int rules_sampled(const struct rules_config *cfg, const struct universe *u,
 		sr = NULL;
 		/* the caller's progress bar follows the first stage only */
 		o.progress = NULL;
-		if (done || k == u->m)
+		if (done || k == m)
 			break;
 	}
 	sampler_result_free(sr);
@@ -839,6 +842,26 @@ int rules_sampled(const struct rules_config *cfg, const struct universe *u,
 		*largest = k;
 	*nres = n;
 	return HC_OK;
+}
+
+int rules_sampled(const struct rules_config *cfg, const struct universe *u,
+		  const struct sampler_options *so, double cbar,
+		  struct rule_result *res, size_t *nres, size_t *largest,
+		  struct hc_error *err)
+{
+	return sampled_stages(cfg, u, NULL, u->m, so, cbar, res, nres, largest, err);
+}
+
+int rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
+			 const struct sampler_options *so, double cbar,
+			 struct rule_result *res, size_t *nres, size_t *largest,
+			 struct hc_error *err)
+{
+	*nres = 0;
+	if (cfg->selected & RULES_FLAG(RULES_SHORTFALL))
+		return hc_error(err, HC_EUSAGE, "the shortfall rule compounds each portfolio's returns over the "
+				"periods, and a covariance matrix has none");
+	return sampled_stages(cfg, NULL, a, m, so, cbar, res, nres, largest, err);
 }
 
 /* ---- bootstrap of the sampled rules ------------------------------------ */

@@ -100,8 +100,15 @@ expect 2 "--holdings FILE is required" -- audit "$T/u.csv"
 expect 2 "unknown screen 'ucit'" -- audit "$T/u.csv" --holdings "$T/ok.csv" --screens ucits,ucit
 expect 2 "--max-sector-weight needs --sectors FILE" -- audit "$T/u.csv" --holdings "$T/ok.csv" --max-sector-weight 30%
 expect 2 "unknown option '--sizes'" -- audit "$T/u.csv" --holdings "$T/ok.csv" --sizes 1-3
-expect 2 "--covariance does not apply" -- audit "$T/u.csv" --holdings "$T/ok.csv" --covariance
-expect 2 "--missing pairwise does not apply" -- audit "$T/u.csv" --holdings "$T/ok.csv" --missing pairwise
+# a return history read as a covariance matrix: the matrix loader's message, data error
+expect 3 "holdcount audit: $T/u.csv:2:1: row id '2010-01' does not match 'QA1' in column 2 of the header" -- \
+	audit "$T/u.csv" --holdings "$T/ok.csv" --covariance
+# --missing pairwise on complete data: nothing left with gaps, the usual audit
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/ok.csv" --paths 300 --format csv >"$T/complete.csv" 2>"$T/err"
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/ok.csv" --paths 300 --format csv --missing pairwise >"$T/pw.csv" 2>"$T/err"
+cmp -s "$T/complete.csv" "$T/pw.csv" || { echo "FAIL: --missing pairwise on complete data differs"; fails=$((fails + 1)); }
+expect 2 "holdcount audit: --repair-psd applies to a covariance matrix (--covariance) or to pairwise-complete covariances (--missing pairwise)" -- \
+	audit "$T/u.csv" --holdings "$T/ok.csv" --repair-psd
 expect 2 "--log-returns needs --prices" -- audit "$T/u.csv" --holdings "$T/ok.csv" --log-returns
 HOLDCOUNT_THREADS=0 expect 2 "HOLDCOUNT_THREADS must be a whole number from 1" -- audit "$T/u.csv" --holdings "$T/ok.csv"
 # help lists what audit accepts: --paths, --seed and --threads, not --sizes

@@ -158,11 +158,95 @@ with open(sys.argv[2], "w") as fp:
     for i in range(40):
         fp.write(ids[i] + "," + ",".join(repr(float(v)) for v in a[i]) + "\n")
 PY
-"$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --periods-per-year 12 --format csv >"$tmp/cov.out"
+"$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --periods-per-year 12 --rules exact --format csv >"$tmp/cov.out"
 "$HOLDCOUNT" enough "$tmp/u.csv" --rules exact --bootstrap 0 --format csv >"$tmp/ret.out"
 [ "$(cut -d, -f1,3 "$tmp/cov.out")" = "$(cut -d, -f1,3 "$tmp/ret.out")" ] \
 	|| fail "covariance and returns disagree: $(cat "$tmp/cov.out") vs $(cat "$tmp/ret.out")"
-expect 2 "need return data" -- "$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --rules band
+
+# 10b. The band rule from the matrix.  Same seed, same paths: the sampler's
+#      matrix route draws the same portfolios as its return route
+#      (include/holdcount/sampler.h), and a portfolio's variance w'Aw from
+#      numpy's A equals the variance of its return series up to rounding, so
+#      the count must be EQUAL (not merely within sampling error) and the
+#      quantile at it agree to 1e-9 relative (A is printed with 17 digits).
+#      Two band settings, the default and a tight one met at a larger count.
+for band in 95%:10% 90%:6%; do
+	"$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --periods-per-year 12 --rules band --band "$band" \
+		--paths 3000 --seed 41 --format csv >"$tmp/covb.out"
+	"$HOLDCOUNT" enough "$tmp/u.csv" --rules band --band "$band" --bootstrap 0 --paths 3000 --seed 41 \
+		--format csv >"$tmp/retb.out"
+	"$PYTHON" - "$tmp/covb.out" "$tmp/retb.out" <<'PY' || fail "band $band: matrix and returns disagree: $(cat "$tmp/covb.out") vs $(cat "$tmp/retb.out")"
+import sys, csv
+(m,), (r,) = (list(csv.DictReader(open(f))) for f in sys.argv[1:3])
+assert m["rule"] == r["rule"] == "band" and m["met"] == r["met"] == "true", (m, r)
+assert int(m["count"]) == int(r["count"]) > 1, (m["count"], r["count"])
+vm, vr = float(m["value_at_count"]), float(r["value_at_count"])
+assert abs(vm - vr) <= 1e-9 * vr, (vm, vr)
+assert float(m["threshold"]) == float(r["threshold"]) or abs(float(m["threshold"]) / float(r["threshold"]) - 1) < 1e-12
+PY
+done
+# by default a matrix runs the exact rules and band; the JSON says how it was sampled
+"$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --periods-per-year 12 --paths 500 --format json >"$tmp/covd.json"
+"$PYTHON" - "$tmp/covd.json" <<'PY' || fail "enough --covariance default rules: $(cat "$tmp/covd.json")"
+import sys, json
+j = json.load(open(sys.argv[1]))
+assert [r["rule"] for r in j["rules"]] == ["near-floor", "marginal", "band", "cost-benefit", "tracking-error"], j["rules"]
+assert j["input"] == "covariance matrix" and j["paths"] == 500 and j["seed"] == "1", j
+assert j["securities"] == 40 and j["bootstrap"] is None, j
+assert any(c.startswith("no interval: a covariance matrix has no periods") for c in j["cautions"]), j["cautions"]
+PY
+# shortfall compounds returns over time: refused from a matrix, naming why
+expect 2 "holdcount enough: the shortfall rule needs return series: it compounds each portfolio's returns over the periods, and a covariance matrix has none" \
+	-- "$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --rules all
+expect 2 "holdcount enough: the shortfall rule needs return series" -- "$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --rules shortfall
+expect 2 "holdcount enough: --bootstrap-sampled needs return data" -- "$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --bootstrap-sampled
+expect 2 "holdcount enough: --paths 0 leaves the band and shortfall rules nothing to read" -- "$HOLDCOUNT" enough "$tmp/cov.csv" --covariance --paths 0
+expect 2 "holdcount enough: --repair-psd needs a UNIVERSE file" -- "$HOLDCOUNT" enough --average-sd 30% --average-correlation 0.2 --repair-psd
+
+# 10c. --missing pairwise with gaps left: the band rule draws from the
+#      pairwise-complete covariances, so it equals the band from numpy's
+#      pairwise-complete matrix of the same file (each pair over the periods
+#      both have, divisor n_ij - 1) read with --covariance, seed for seed;
+#      shortfall needs complete series and says so.
+"$PYTHON" - "$tmp/u.csv" "$tmp/gaps.csv" "$tmp/pw.csv" <<'PY'
+import sys, numpy as np
+lines = open(sys.argv[1]).read().splitlines()
+ids = lines[0].split(",")[1:]
+rows = [l.split(",") for l in lines[1:]]
+x = np.array([[float(c) for c in r[1:]] for r in rows])
+rng = np.random.default_rng(4711)
+gap = np.zeros(x.shape, bool)
+for i in rng.choice(len(ids), 12, replace=False):      # 12 securities lose 1 to 9 periods each
+    k = rng.integers(1, 10)
+    gap[rng.choice(x.shape[0], k, replace=False), i] = True
+with open(sys.argv[2], "w") as fp:
+    fp.write(lines[0] + "\n")
+    for r, g in zip(rows, gap):
+        fp.write(r[0] + "," + ",".join("NA" if gi else c for c, gi in zip(r[1:], g)) + "\n")
+y = np.where(gap, np.nan, x)
+m = len(ids)
+a = np.empty((m, m))
+for i in range(m):
+    for j in range(m):
+        k = ~np.isnan(y[:, i]) & ~np.isnan(y[:, j])
+        a[i, j] = np.cov(y[k, i], y[k, j])[0, 1]
+assert np.linalg.eigvalsh(a)[0] > 0, "the gaps should leave a positive definite matrix"
+with open(sys.argv[3], "w") as fp:
+    fp.write("id," + ",".join(ids) + "\n")
+    for i in range(m):
+        fp.write(ids[i] + "," + ",".join(repr(float(v)) for v in a[i]) + "\n")
+PY
+"$HOLDCOUNT" enough "$tmp/gaps.csv" --missing pairwise --min-coverage 90% --rules band,shortfall --paths 2000 --seed 8 \
+	--bootstrap 0 --format csv >"$tmp/pwb.out"
+"$HOLDCOUNT" enough "$tmp/pw.csv" --covariance --periods-per-year 12 --rules band --paths 2000 --seed 8 --format csv >"$tmp/pwm.out"
+"$PYTHON" - "$tmp/pwb.out" "$tmp/pwm.out" <<'PY' || fail "pairwise band: $(cat "$tmp/pwb.out") vs $(cat "$tmp/pwm.out")"
+import sys, csv
+p = {r["rule"]: r for r in csv.DictReader(open(sys.argv[1]))}
+(m,) = list(csv.DictReader(open(sys.argv[2])))
+assert p["band"]["met"] == "true" and int(p["band"]["count"]) == int(m["count"]), (p["band"], m)
+assert abs(float(p["band"]["value_at_count"]) / float(m["value_at_count"]) - 1) < 1e-9
+assert p["shortfall"]["count"] == "" and p["shortfall"]["note"].startswith("needs complete data"), p["shortfall"]
+PY
 
 # 11. The sampled rules' interval and the stationary bootstrap run and report
 #     every replicate (small, to stay fast).

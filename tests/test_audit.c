@@ -8,6 +8,9 @@
  *     never forms (it takes the variance of the portfolio series);
  *   - exact enumeration of every same-count portfolio of a small universe
  *     for the percentile;
+ *   - for the audit from a covariance matrix, the same textbook A handed
+ *     to audit_run_matrix, checked against the quadratic form and against
+ *     the audit of the return series A came from;
  *   - the screens' limits from memory of the published texts (UCITS
  *     Directive 2009/65/EC Art. 52; Investment Company Act of 1940 s. 5(b)(1);
  *     Internal Revenue Code s. 851(b)(3)), as the tool states them.
@@ -24,6 +27,7 @@
 #include <gsl/gsl_errno.h>
 
 #include "holdcount/audit.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
 #include "holdcount/holdings.h"
 #include "holdcount/memory.h"
@@ -550,6 +554,171 @@ static void test_audit_percentile_ties_at_full_count(void **state)
 	universe_free(fx.u);
 }
 
+/* ---- from a covariance matrix ---- */
+
+/* The textbook covariance matrix of fx's universe as a struct covmatrix
+ * (ids borrowed from u; free c->a with free()). */
+static void textbook_matrix(const struct universe *u, struct covmatrix *c)
+{
+	size_t i, j;
+
+	c->m = u->m;
+	c->ids = u->ids;
+	c->a = malloc(u->m * u->m * sizeof *c->a);
+	assert_non_null(c->a);
+	for (i = 0; i < u->m; i++)
+		for (j = 0; j < u->m; j++)
+			c->a[i * u->m + j] = cov_ij(u, i, j);
+}
+
+static struct audit_result *run_matrix(const struct holdings *h, const struct covmatrix *c,
+				       double ppy, int annualised, const struct audit_options *opt)
+{
+	struct audit_matrix am = { c, "cov.csv", NULL, ppy, annualised, 0, NULL };
+	struct audit_result *a;
+	struct moments mo;
+	struct hc_error err;
+	int rc;
+
+	assert_int_equal(moments_from_matrix(&mo, c->a, c->m, &err), HC_OK);
+	rc = audit_run_matrix(&a, h, &am, &mo, opt, &err);
+	if (rc != HC_OK)
+		print_error("%s\n", err.message);
+	assert_int_equal(rc, HC_OK);
+	return a;
+}
+
+static void test_audit_matrix_agrees_with_returns(void **state)
+{
+	/* The same funds audited from the return series and from their textbook
+	 * covariance matrix A: the series variance and w'Aw are the same number
+	 * up to rounding (1e-12 relative; the equivalent count divides by
+	 * s2 - c-bar, 1e-10).  The percentile must agree exactly: the sampler's
+	 * matrix route draws the same portfolios from the same seed
+	 * (sampler.h), and their variances differ by rounding only, far inside
+	 * the tie tolerance's reach of no fund.  One id is missing from both. */
+	static const char *text =
+		"fund,id,weight\n"
+		"Alder,QX03,0.385\nAlder,QX11,0.245\nAlder,QX07,0.17\nAlder,QX02,0.12\nAlder,QX19,0.08\n"
+		"Hazel,QX05,0.3\nHazel,ZZ404,0.1\nHazel,QX14,0.25\nHazel,QX16,0.35\n"
+		"Larch,QX01,1\nLarch,QX04,1\nLarch,QX09,1\nLarch,QX12,1\nLarch,QX13,1\nLarch,QX20,1\n";
+	static const size_t idx[] = { 2, 10, 6, 1, 18 };
+	static const double w[] = { 0.385, 0.245, 0.17, 0.12, 0.08 };
+	struct fixture fx;
+	struct covmatrix c;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *ar, *am;
+	size_t f;
+
+	fixture_load(&fx, 20, 60, 7, 0);
+	textbook_matrix(fx.u, &c);
+	h = holdings_text(text);
+	options(&opt, 3000);
+	ar = run(h, &fx, &opt);
+	am = run_matrix(h, &c, 12, 1, &opt);
+	assert_int_equal(am->nfunds, 3);
+	assert_int_equal(am->m, 20);
+	assert_int_equal(am->t, 0);
+	assert_string_equal(am->input, "covariance matrix");
+	assert_true(am->annualised);
+	/* Alder against the quadratic form itself, annualised by 12 */
+	assert_rel(am->funds[0].variance, 12 * quad_form(fx.u, idx, w, 5), 1e-12);
+	for (f = 0; f < 3; f++) {
+		const struct audit_fund *x = &ar->funds[f], *y = &am->funds[f];
+
+		assert_rel(y->sd, x->sd, 1e-12);
+		assert_rel(y->diversification_ratio, x->diversification_ratio, 1e-12);
+		assert_rel(y->equivalent_count, x->equivalent_count, 1e-10);
+		assert_rel(y->weighted_random_sd, x->weighted_random_sd, 1e-12);
+		assert_rel(y->equal_random_sd, x->equal_random_sd, 1e-12);
+		assert_near(y->sd_percentile, x->sd_percentile, 0);
+		assert_true(y->sd_percentile > 0 && y->sd_percentile < 1);
+		assert_int_equal(y->nmissing, x->nmissing);
+		assert_int_equal(y->risk_holdings, x->risk_holdings);
+	}
+	assert_int_equal(am->funds[1].nmissing, 1);
+	assert_true(am->funds[1].risk_subset);
+	audit_result_free(ar);
+	audit_result_free(am);
+	holdings_free(h);
+	free(c.a);
+	universe_free(fx.u);
+}
+
+static void test_audit_matrix_own_scale_and_errors(void **state)
+{
+	/* Not annualised: the figures are the matrix's own, w'Aw exactly as
+	 * formed here (1e-13 relative: sums in another order). */
+	static const size_t idx[] = { 4, 13, 15 };
+	static const double w[] = { 0.3, 0.25, 0.35 };
+	struct fixture fx;
+	struct covmatrix c;
+	struct audit_options opt;
+	struct audit_matrix bad;
+	struct holdings *h;
+	struct audit_result *a;
+	struct moments mo;
+	struct hc_error err;
+	double wn[3];
+	size_t k;
+
+	fixture_load(&fx, 20, 60, 7, 0);
+	textbook_matrix(fx.u, &c);
+	h = holdings_text("fund,id,weight\nHazel,QX05,0.3\nHazel,ZZ404,0.1\nHazel,QX14,0.25\nHazel,QX16,0.35\n");
+	options(&opt, 0);
+	a = run_matrix(h, &c, 1, 0, &opt);
+	for (k = 0; k < 3; k++)
+		wn[k] = w[k] / 0.9;     /* the in-matrix weights, renormalised */
+	assert_rel(a->funds[0].variance, quad_form(fx.u, idx, wn, 3), 1e-13);
+	assert_false(a->annualised);
+	assert_near(a->periods_per_year, 1, 0);
+	audit_result_free(a);
+	/* strict: the missing id is named with the matrix's file */
+	opt.strict = 1;
+	assert_int_equal(moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
+	bad = (struct audit_matrix){ &c, "cov.csv", NULL, 1, 0, 0, NULL };
+	assert_int_equal(audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EDATA);
+	assert_null(a);
+	assert_string_equal(err.message, "h.csv:3:2: id 'ZZ404' of fund 'Hazel' is not in the universe 'cov.csv', "
+			    "expected an id of the universe (without --strict the fund's risk is computed on the rest)");
+	/* a scale other than 1 without annualising is a contradiction */
+	bad.periods_per_year = 12;
+	assert_int_equal(audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
+	bad.periods_per_year = 0;
+	bad.annualised = 1;
+	assert_int_equal(audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
+	holdings_free(h);
+	free(c.a);
+	universe_free(fx.u);
+}
+
+static void test_audit_matrix_percentile_against_enumeration(void **state)
+{
+	/* As test_audit_percentile_against_enumeration, through the matrix
+	 * route: every 3-subset of 8 enumerated, K = 20000, 4.5 standard errors. */
+	struct fixture fx;
+	struct covmatrix c;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+	double exact, tol;
+	size_t K = 20000;
+
+	fixture_load(&fx, 8, 30, 17, 0);
+	textbook_matrix(fx.u, &c);
+	h = holdings_text("fund,id,weight\nMiddle,QX02,1\nMiddle,QX05,1\nMiddle,QX07,1\n");
+	options(&opt, K);
+	a = run_matrix(h, &c, 12, 1, &opt);
+	exact = enumerated_rank(fx.u, 3, a->funds[0].variance / 12);
+	tol = 4.5 * sqrt(fmax(exact * (1 - exact), 0.5 / (double)K) / (double)K);
+	assert_near(a->funds[0].sd_percentile, exact, tol);
+	audit_result_free(a);
+	holdings_free(h);
+	free(c.a);
+	universe_free(fx.u);
+}
+
 /* ---- missing ids, strict ---- */
 
 static void test_audit_missing_ids_renormalised_or_refused(void **state)
@@ -756,6 +925,27 @@ static void test_audit_allocation_failures(void **state)
 	assert_int_equal(rc, HC_OK);
 	report_free(r);
 	audit_result_free(a);
+	/* the matrix route: its own allocations, the sampler's matrix route */
+	{
+		struct covmatrix c;
+		struct audit_matrix am;
+		struct moments mo;
+
+		textbook_matrix(fx.u, &c);
+		am = (struct audit_matrix){ &c, "cov.csv", NULL, 12, 1, 0, NULL };
+		assert_int_equal(moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
+		for (k = 0, rc = HC_ENOMEM; rc == HC_ENOMEM; k++) {
+			hc_alloc_fail_after(k);
+			rc = audit_run_matrix(&a, h, &am, &mo, &opt, &err);
+			hc_alloc_fail_after(-1);
+			if (rc == HC_ENOMEM)
+				assert_null(a);
+			assert_true(k < 1000);
+		}
+		assert_int_equal(rc, HC_OK);
+		audit_result_free(a);
+		free(c.a);
+	}
 	holdings_labels_free(l);
 	holdings_free(h);
 	universe_free(fx.u);
@@ -773,6 +963,9 @@ int main(void)
 		cmocka_unit_test(test_audit_screens_aggregate_by_issuer),
 		cmocka_unit_test(test_audit_percentile_against_enumeration),
 		cmocka_unit_test(test_audit_percentile_ties_at_full_count),
+		cmocka_unit_test(test_audit_matrix_agrees_with_returns),
+		cmocka_unit_test(test_audit_matrix_own_scale_and_errors),
+		cmocka_unit_test(test_audit_matrix_percentile_against_enumeration),
 		cmocka_unit_test(test_audit_missing_ids_renormalised_or_refused),
 		cmocka_unit_test(test_audit_policy_and_sectors),
 		cmocka_unit_test(test_audit_parse_screens),

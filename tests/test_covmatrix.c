@@ -10,6 +10,8 @@
  *              P[i,j] = np.cov(Y[i][k], Y[j][k])[0,1],
  *              k = ~np.isnan(Y[i]) & ~np.isnan(Y[j])
  *   repair:    w, V = np.linalg.eigh(A); V @ np.diag(np.maximum(w, 0)) @ V.T
+ *   distance:  np.linalg.norm(A - B, 'fro'), np.linalg.norm(A, 'fro'),
+ *              (abs(A - B) / sqrt(outer(diag(A), diag(A)))).max()
  */
 #include <setjmp.h>
 #include <stdarg.h>
@@ -200,6 +202,52 @@ static void test_covmatrix_repair_psd_leaves_psd_alone(void **state)
 	assert_int_equal(changed, 0);
 }
 
+/* covmatrix_nearest_psd: the same clipping into a separate matrix, and what
+ * it moved, against numpy (header).  Higham (1988) also gives the distance
+ * in closed form: sqrt of the sum of the squared negative eigenvalues, here
+ * |lambda_min| (one negative eigenvalue). */
+static void test_covmatrix_nearest_psd_against_numpy(void **state)
+{
+	static const double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 };
+	static const double ref[9] = {
+		2.688682035192451, 1.8083836049693134, -1.148162777661336,
+		1.8083836049693136, 2.797030136773818, 1.0581685631604707,
+		-1.148162777661336, 1.0581685631604707, 2.609843392777781 };
+	struct covmatrix_psd st;
+	struct hc_error err;
+	double b[16];
+	size_t i;
+
+	gsl_set_error_handler_off();
+	assert_int_equal(covmatrix_nearest_psd(a, 3, b, &st, &err), HC_OK);
+	/* 1e-14 absolute, as for covmatrix_repair_psd above (||A|| ~ 5.8) */
+	for (i = 0; i < 9; i++)
+		assert_close(b[i], ref[i], 1e-14);
+	assert_int_equal(st.negative, 1);
+	assert_close(st.min_eigenvalue, -0.7925555647440514, 1e-14);
+	assert_close(st.distance, 0.7925555647440526, 1e-14);
+	assert_close(st.distance, -st.min_eigenvalue, 1e-14);
+	assert_close(st.norm, 5.823084663646923, 1e-14);
+	assert_close(st.max_relative_move, 0.12732999379138407, 1e-14);
+
+	assert_int_equal(covmatrix_nearest_psd(NUMPY_PAIRWISE, 4, b, &st, &err), HC_OK);
+	for (i = 0; i < 16; i++)
+		assert_close(b[i], NUMPY_PAIRWISE_PSD[i], 1e-17);   /* ||P|| ~ 1.2e-3 */
+	assert_int_equal(st.negative, 1);
+	assert_close(st.min_eigenvalue, -9.722332796231278e-05, 1e-17);
+	assert_close(st.distance, 9.722332796231283e-05, 1e-17);
+	assert_close(st.norm, 0.001213560572641531, 1e-17);
+	assert_close(st.max_relative_move, 0.09787176705326077, 1e-13);
+
+	/* np.cov of RETURNS is positive definite: b is a's copy, bit for bit */
+	assert_int_equal(covmatrix_nearest_psd(NUMPY_COMPLETE, 4, b, &st, &err), HC_OK);
+	assert_memory_equal(b, NUMPY_COMPLETE, sizeof NUMPY_COMPLETE);
+	assert_int_equal(st.negative, 0);
+	assert_true(st.min_eigenvalue > 0);
+	assert_true(st.distance == 0 && st.max_relative_move == 0);
+	assert_int_equal(covmatrix_nearest_psd(a, 0, b, &st, &err), HC_EINTERNAL);
+}
+
 static void test_covmatrix_min_eigenvalue(void **state)
 {
 	double a[9] = { 2.385, 2.1, -1.4, 2.1, 2.517, 1.3, -1.4, 1.3, 2.401 }, lmin;
@@ -333,6 +381,14 @@ static int made_repair(void *ctx, struct hc_error *err)
 	return covmatrix_repair_psd(w->b, 3, &changed, err);
 }
 
+static int made_nearest(void *ctx, struct hc_error *err)
+{
+	struct made *w = ctx;
+	struct covmatrix_psd st;
+
+	return covmatrix_nearest_psd(w->a, 3, w->b, &st, err);
+}
+
 static void made_untouched(void *ctx)
 {
 	struct made *w = ctx;
@@ -349,6 +405,7 @@ static void test_covmatrix_allocation_failure(void **state)
 	struct made w = { NULL, NULL, a, { 0 } };
 	struct heapcheck_call make = { made_covmatrix, made_release, made_none, &w };
 	struct heapcheck_call repair = { made_repair, NULL, made_untouched, &w };
+	struct heapcheck_call nearest = { made_nearest, NULL, made_untouched, &w };
 	int pass;
 
 	gsl_set_error_handler_off();
@@ -357,6 +414,8 @@ static void test_covmatrix_allocation_failure(void **state)
 		assert_true(heapcheck_sweep(&make) > 2);
 	}
 	assert_int_equal(heapcheck_sweep(&repair), 3);
+	/* on failure b is a's copy, so a caller holding b still has a matrix */
+	assert_int_equal(heapcheck_sweep(&nearest), 3);
 	universe_free(u);
 	universe_free(g);
 }
@@ -370,6 +429,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_covmatrix_pairwise_too_few_common),
 		cmocka_unit_test(test_covmatrix_repair_psd_against_numpy),
 		cmocka_unit_test(test_covmatrix_repair_psd_leaves_psd_alone),
+		cmocka_unit_test(test_covmatrix_nearest_psd_against_numpy),
 		cmocka_unit_test(test_covmatrix_min_eigenvalue),
 		cmocka_unit_test(test_covmatrix_load),
 		cmocka_unit_test(test_covmatrix_load_errors),

@@ -412,6 +412,127 @@ static void test_rules_shortfall_counts_trailing_share(void **state)
 	free_fake(r);
 }
 
+/* A one-factor universe of m securities over t months, from GSL's taus2
+ * with a fixed seed, as CSV text (caller frees). */
+static char *factor_universe(size_t m, size_t t, unsigned long seed)
+{
+	gsl_rng *g = gsl_rng_alloc(gsl_rng_taus2);
+	size_t cap = 32 + m * 8 + t * (16 + m * 26), used = 0, i, k;
+	char *buf = malloc(cap);
+
+	assert_non_null(g);
+	assert_non_null(buf);
+	gsl_rng_set(g, seed);
+	used += (size_t)snprintf(buf + used, cap - used, "date");
+	for (i = 0; i < m; i++)
+		used += (size_t)snprintf(buf + used, cap - used, ",RZ%03zu", i + 1);
+	used += (size_t)snprintf(buf + used, cap - used, "\n");
+	for (k = 0; k < t; k++) {
+		double f = gsl_ran_gaussian(g, 0.043) + 0.0061;
+
+		used += (size_t)snprintf(buf + used, cap - used, "%04zu-%02zu", 1997 + k / 12, k % 12 + 1);
+		for (i = 0; i < m; i++) {
+			double beta = 0.55 + 0.9 * (double)((i * 13) % m) / (double)m;
+			double spec = 0.035 + 0.07 * (double)((i * 7) % m) / (double)m;
+
+			used += (size_t)snprintf(buf + used, cap - used, ",%.17g", beta * f + gsl_ran_gaussian(g, spec));
+		}
+		used += (size_t)snprintf(buf + used, cap - used, "\n");
+		assert_true(used < cap);
+	}
+	gsl_rng_free(g);
+	return buf;
+}
+
+/* The textbook sample covariance matrix (divisor T-1) of u, m*m row-major. */
+static double *textbook_cov(const struct universe *u)
+{
+	double *a = malloc(u->m * u->m * sizeof *a), *mean = calloc(u->m, sizeof *mean);
+	size_t i, j, k;
+
+	assert_non_null(a);
+	assert_non_null(mean);
+	for (i = 0; i < u->m; i++) {
+		for (k = 0; k < u->t; k++)
+			mean[i] += u->x[i * u->t + k];
+		mean[i] /= (double)u->t;
+	}
+	for (i = 0; i < u->m; i++)
+		for (j = 0; j < u->m; j++) {
+			double s = 0;
+
+			for (k = 0; k < u->t; k++)
+				s += (u->x[i * u->t + k] - mean[i]) * (u->x[j * u->t + k] - mean[j]);
+			a[i * u->m + j] = s / (double)(u->t - 1);
+		}
+	free(mean);
+	return a;
+}
+
+static void test_rules_sampled_matrix_agrees_with_returns(void **state)
+{
+	/* The band rule drawn from the return series and from their textbook
+	 * covariance matrix A with the same seed: the sampler's two routes draw
+	 * the same portfolios (sampler.h), whose variances (series variance vs
+	 * running quadratic form) differ by rounding only, so the count is the
+	 * same and the quantile agrees to 1e-12 relative.  Two universes: one
+	 * settled in the first stage (M = 90 < RULES_SAMPLED_FIRST_K), one that
+	 * needs the second (M = 300, with x small enough that the band is met
+	 * only past 256). */
+	static const struct { size_t m, t; double x; } u_cases[] = { { 90, 72, 0.10 }, { 300, 40, 0.004 } };
+	struct universe_options uo;
+	struct sampler_options so;
+	struct rules_config cfg;
+	struct rule_result rr[2], rm[2];
+	struct hc_error err;
+	size_t c, nr, nm, kr, km;
+
+	for (c = 0; c < 2; c++) {
+		char *text = factor_universe(u_cases[c].m, u_cases[c].t, 2385 + c);
+		struct universe *u;
+		double *a, csum = 0, cbar;
+		size_t i, j, m = u_cases[c].m;
+
+		universe_options_init(&uo);
+		assert_int_equal(universe_load_buffer(&u, "u.csv", text, strlen(text), &uo, &err), HC_OK);
+		free(text);
+		a = textbook_cov(u);
+		for (i = 0; i < m; i++)
+			for (j = 0; j < m; j++)
+				if (i != j)
+					csum += a[i * m + j];
+		cbar = csum / ((double)m * (double)(m - 1));
+		rules_config_init(&cfg);
+		cfg.selected = RULES_FLAG(RULES_BAND);
+		cfg.band_x = u_cases[c].x;
+		sampler_options_init(&so);
+		so.paths = 400;
+		so.seed = 77 + c;
+		so.threads = 1;
+		so.periods_per_year = 12;
+		assert_int_equal(rules_sampled(&cfg, u, &so, cbar, rr, &nr, &kr, &err), HC_OK);
+		assert_int_equal(rules_sampled_matrix(&cfg, a, m, &so, cbar, rm, &nm, &km, &err), HC_OK);
+		assert_int_equal(nr, 1);
+		assert_int_equal(nm, 1);
+		assert_int_equal(rm[0].rule, RULES_BAND);
+		assert_true(rr[0].met);
+		assert_true(rm[0].met);
+		assert_int_equal(rm[0].count, rr[0].count);
+		assert_close(rm[0].value, rr[0].value, 1e-12 * rr[0].value);
+		assert_close(rm[0].threshold, rr[0].threshold, 0);
+		assert_int_equal(km, kr);
+		if (c == 1)
+			assert_true(rm[0].count > RULES_SAMPLED_FIRST_K && km == m);
+		/* shortfall compounds returns over time: not from a matrix */
+		cfg.selected |= RULES_FLAG(RULES_SHORTFALL);
+		assert_int_equal(rules_sampled_matrix(&cfg, a, m, &so, cbar, rm, &nm, &km, &err), HC_EUSAGE);
+		assert_int_equal(nm, 0);
+		assert_non_null(strstr(err.message, "covariance matrix has none"));
+		free(a);
+		universe_free(u);
+	}
+}
+
 static void test_rules_universe_return(void **state)
 {
 	/* 3 securities x 4 quarters; equal-weight returns by hand:
@@ -615,6 +736,7 @@ int main(void)
 		cmocka_unit_test(test_rules_realistic_averages_land_in_the_tens),
 		cmocka_unit_test(test_rules_band_matches_gsl_quantile),
 		cmocka_unit_test(test_rules_shortfall_counts_trailing_share),
+		cmocka_unit_test(test_rules_sampled_matrix_agrees_with_returns),
 		cmocka_unit_test(test_rules_universe_return),
 		cmocka_unit_test(test_rules_bootstrap_percentiles),
 		cmocka_unit_test(test_rules_parse_list_and_config),

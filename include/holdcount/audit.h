@@ -175,8 +175,10 @@ struct audit_result {
 	size_t paths;
 	uint64_t seed;
 	double tie_rtol;
-	double periods_per_year;
-	size_t m, t;
+	double periods_per_year;    /* what variances were multiplied by (1 when not annualised) */
+	int annualised;             /* 0: figures on a covariance matrix's own scale */
+	size_t m, t;                /* t: periods behind the risk figures, 0 = unknown (a matrix) */
+	const char *input;          /* static: "return history", "covariance matrix", ... */
 	const char *universe_source;
 	const char *holdings_source;
 };
@@ -194,6 +196,34 @@ struct audit_result {
 int audit_run(struct audit_result **out, const struct holdings *h,
 	      const struct universe *u, const struct moments *mo,
 	      const struct audit_options *opt, struct hc_error *err);
+
+/* A covariance matrix to audit against instead of return series. */
+struct covmatrix;
+struct audit_matrix {
+	const struct covmatrix *cm;       /* ids and covariances, per period (or its own scale) */
+	const char *source;               /* the file, for messages and the report */
+	const char *input;                /* static, for the report; NULL = "covariance matrix" */
+	double periods_per_year;          /* variances are multiplied by it; 1 when not annualised */
+	int annualised;                   /* 0: figures on the matrix's own scale */
+	size_t periods;                   /* periods behind cm, reported; 0 = unknown */
+	const struct universe *history;   /* the returns cm came from, or NULL: names dropped ids */
+};
+
+/*
+ * The same audit against a covariance matrix (a risk model's output, or
+ * the pairwise-complete covariances of a history with gaps): a fund's
+ * variance is the quadratic form w'Aw of its in-matrix weights, the
+ * diversification ratio uses sigma_i = sqrt(a_ii), and the percentile's
+ * random portfolios come from sampler_run_matrix (same seed, same
+ * portfolios as sampler_run).  mo from moments_from_matrix(cm).  cm must be
+ * positive semi-definite (see covmatrix_nearest_psd); a fund whose w'Aw is
+ * negative gets no sd.  *out points into h, am->cm and the sector map.
+ * Errors as audit_run, and HC_EUSAGE for a bad periods_per_year, HC_EDATA
+ * for fewer than 2 securities.
+ */
+int audit_run_matrix(struct audit_result **out, const struct holdings *h,
+		     const struct audit_matrix *am, const struct moments *mo,
+		     const struct audit_options *opt, struct hc_error *err);
 
 /* Free a and everything it owns; NULL is a no-op. */
 void audit_result_free(struct audit_result *a);

@@ -75,6 +75,28 @@ int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
  */
 int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err);
 
+/* What replacing a matrix by its nearest positive semi-definite one moved. */
+struct covmatrix_psd {
+	size_t negative;          /* eigenvalues below zero (set to zero) */
+	double min_eigenvalue;    /* the smallest eigenvalue of a */
+	double distance;          /* ||a - b||_F, the Frobenius distance moved */
+	double norm;              /* ||a||_F, to put the distance in proportion */
+	double max_relative_move; /* max |a_ij - b_ij| / sqrt(a_ii a_jj) */
+};
+
+/*
+ * Write into b (m*m, the caller's, not overlapping a) the nearest positive
+ * semi-definite matrix to the symmetric m*m row-major a in the Frobenius
+ * norm, by the same eigenvalue clipping as covmatrix_repair_psd (Higham,
+ * 1988), and into *st what it moved.  When a has no negative eigenvalue, b
+ * is an exact copy of a and st->distance is 0.  a's diagonal must be
+ * positive (moves are measured relative to sqrt(a_ii a_jj)).  HC_ENOMEM, or
+ * HC_EINTERNAL when the eigensolver fails or m is 0 (b is then a copy of a,
+ * when m > 0).  O(m^3); a is not modified.
+ */
+int covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix_psd *st,
+			  struct hc_error *err);
+
 /*
  * The smallest eigenvalue of the symmetric m*m row-major matrix a (a is
  * not modified), so a caller can refuse or repair a matrix that is not

@@ -177,6 +177,20 @@ int rules_sampled(const struct rules_config *cfg, const struct universe *u,
 		  struct hc_error *err);
 
 /*
+ * The band rule (when selected in cfg) by the same stages as rules_sampled,
+ * from the m x m covariance matrix a (row-major, positive semi-definite)
+ * through sampler_run_matrix: the same seed draws the same portfolios as
+ * rules_sampled on the returns a came from, so the count agrees unless a
+ * quantile lies within rounding of the threshold.  The shortfall rule needs
+ * each portfolio's returns over time: HC_EUSAGE when it is selected.  res
+ * holds room for 1; *nres gets 0 or 1.
+ */
+int rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
+			 const struct sampler_options *so, double cbar,
+			 struct rule_result *res, size_t *nres, size_t *largest,
+			 struct hc_error *err);
+
+/*
  * Compound annualised return of the universe's equal-weight portfolio,
  * rebalanced every period: prod_t (1 + mean_i r_ti)^(P/T) - 1 (complete data
  * only).  HC_EDATA when a period's portfolio return is -100% or worse.

@@ -76,6 +76,15 @@ static const struct cli_option universe_options[] = {
 };
 const struct cli_group cli_group_universe = { "universe options", universe_options };
 
+static const struct cli_option repair_options[] = {
+	{ "repair-psd", 0, CLI_FLAG, UNI(repair_psd), NULL,
+	  "when the covariance matrix (--covariance) or the pairwise-complete covariances (--missing "
+	  "pairwise) are not positive semi-definite, use the nearest matrix that is (eigenvalue "
+	  "clipping) and say so", NULL, "refuse such a matrix" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_matrix_repair = { "covariance matrix repair", repair_options };
+
 #define SAM(f) offsetof(struct cli_sampling, f)
 static const struct cli_option sampling_options[] = {
 	{ "sizes", 0, CLI_STRING, SAM(sizes), "LIST",

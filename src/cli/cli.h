@@ -152,9 +152,14 @@ struct cli_universe {
 	const char *delimiter;     /* "," or ";"; NULL = detect */
 	size_t max_memory_mib;     /* 0 = from available memory */
 	int covariance;            /* the positional file is a covariance matrix */
+	int repair_psd;            /* --repair-psd (cli_group_matrix_repair) */
 };
 extern const struct cli_group cli_group_universe;
 void cli_universe_init(struct cli_universe *u);
+/* --repair-psd alone, on the commands that can use a repaired matrix
+ * (describe, curve, enough, audit); its struct is the command's
+ * cli_universe, so the group is listed with the universe group's offset. */
+extern const struct cli_group cli_group_matrix_repair;
 
 /* --sizes LIST, --paths K, --seed S, --threads N */
 #define CLI_DEFAULT_PATHS 10000
@@ -278,17 +283,59 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);
 
+/* A covariance matrix that must be positive semi-definite, and what
+ * --repair-psd did to it (cli_psd_settle). */
+struct cli_psd {
+	int asked;                 /* --repair-psd was given */
+	int checked;               /* a matrix was tested */
+	int repaired;              /* ... and replaced by its nearest PSD matrix */
+	size_t negative;           /* its negative eigenvalues */
+	double min_eigenvalue;     /* per period (or the matrix's scale) */
+	double distance, norm;     /* Frobenius: moved, and the matrix's own */
+	double scale;              /* what the output multiplies variances by (P, or 1) */
+	int annualised;
+	const char *what;          /* "the covariance matrix", ... (static) */
+};
+void cli_psd_init(struct cli_psd *ps, int asked, double scale, int annualised, const char *what);
+
+/* --repair-psd without a matrix to repair (no --covariance, no --missing
+ * pairwise) is a usage error (printed; HC_EUSAGE); else HC_OK. */
+int cli_psd_usage(const char *cmd, const struct cli_universe *cu);
+
+/*
+ * Settle whether the symmetric m x m matrix a (read from path) is positive
+ * semi-definite.  The test: the nearest PSD matrix (eigenvalue clipping,
+ * covmatrix_nearest_psd) moves no entry by more than
+ * COVMATRIX_DEFAULT_SYMMETRY_TOL relative to sqrt(a_ii a_jj), so a
+ * rank-deficient matrix printed to 9 digits passes.  Otherwise, without
+ * ps->asked: "holdcount CMD: PATH: REFUSAL" and HC_EDATA (refusal should
+ * name --repair-psd); with it, a is replaced by the nearest PSD matrix, a
+ * note goes to stderr and ps records what moved.  Prints its own errors.
+ */
+int cli_psd_settle(const char *cmd, const char *path, const char *refusal, double *a, size_t m,
+		   struct cli_psd *ps);
+
+/* The fields psd_repair, psd_repaired, psd_negative_eigenvalues,
+ * psd_min_eigenvalue, psd_repair_distance, psd_repair_relative_distance
+ * (scaled as the output) and, when repaired, a note saying so: nothing
+ * unless --repair-psd was given.  HC_ENOMEM only. */
+int cli_psd_fields(struct report *r, const struct cli_psd *ps);
+
 /* Load a covariance-matrix CSV (--covariance): options that only describe
  * a return history are refused (HC_EUSAGE), the loader's errors printed,
- * and a matrix that is not positive semi-definite is HC_EDATA. */
+ * and a matrix that is not positive semi-definite is HC_EDATA unless
+ * ps->asked, when it is repaired (cli_psd_settle). */
 struct covmatrix;
 int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
-			struct covmatrix **out);
+			struct cli_psd *ps, struct covmatrix **out);
 
-/* *psd = 1 when cm is positive semi-definite up to rounding in a printed
- * file (moves of the nearest PSD matrix within COVMATRIX_DEFAULT_SYMMETRY_TOL
- * relative to sqrt(a_ii a_jj)).  Prints its own errors. */
-int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd);
+/* The pairwise-complete covariances of u (which has gaps), settled by
+ * cli_psd_settle with refusal: *out on success.  Prints its own errors. */
+int cli_pairwise_matrix(const char *cmd, const struct universe *u, const char *path,
+			const char *refusal, struct cli_psd *ps, struct covmatrix **out);
+
+/* The end of every refusal of a matrix that is not positive semi-definite. */
+#define CLI_PSD_HINT "--repair-psd uses the nearest positive semi-definite matrix instead"
 
 /* The holding counts: text (NULL = the default grid up to m) parsed and
  * checked against m securities (0 = unbounded).  Prints its error;

@@ -97,48 +97,119 @@ static const char *const return_only_options[] = {
 	"id-column", "value-column", "delimiter", "max-memory", NULL
 };
 
-/*
- * cli_matrix_is_psd: a matrix whose eigenvalues are not all >= 0 gives some portfolio a
- * negative variance, so it is no covariance matrix.  The test: repair a copy
- * to the nearest positive semi-definite matrix (Higham, 1988, through
- * covmatrix_repair_psd) and see how far it moved.  Moves within the
- * loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are rounding in
- * a printed file (a rank-deficient matrix printed to 9 digits) and pass.
- */
-int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd)
+/* ---- positive semi-definite matrices -------------------------------------- */
+
+void cli_psd_init(struct cli_psd *ps, int asked, double scale, int annualised, const char *what)
 {
+	memset(ps, 0, sizeof *ps);
+	ps->asked = asked;
+	ps->scale = scale;
+	ps->annualised = annualised;
+	ps->what = what;
+}
+
+int cli_psd_usage(const char *cmd, const struct cli_universe *cu)
+{
+	if (cu->repair_psd && !cu->covariance && cu->missing != CLI_MISSING_PAIRWISE)
+		return cli_usage_error(cmd, "--repair-psd applies to a covariance matrix (--covariance) or to "
+				       "pairwise-complete covariances (--missing pairwise); complete return series "
+				       "always give a positive semi-definite matrix");
+	return HC_OK;
+}
+
+/* The sentence that says what the repair did, for stderr and the report. */
+static void psd_text(const struct cli_psd *ps, char *buf, size_t size)
+{
+	const char *unit = ps->annualised ? " a year" : "";
+
+	snprintf(buf, size,
+		 "%s was not positive semi-definite, so it was replaced by the nearest positive "
+		 "semi-definite matrix in the Frobenius norm (eigenvalue clipping, Higham 1988): %zu "
+		 "negative eigenvalue%s set to zero, the most negative %.4g%s; the matrix moved by %.4g%s "
+		 "(Frobenius distance, %.3g%% of its Frobenius norm), and every figure uses the repaired matrix",
+		 ps->what, ps->negative, ps->negative == 1 ? "" : "s", ps->min_eigenvalue * ps->scale, unit,
+		 ps->distance * ps->scale, unit, 100 * ps->distance / ps->norm);
+}
+
+/*
+ * A matrix with a negative eigenvalue gives some portfolio a negative
+ * variance, so it is no covariance matrix.  One eigen decomposition both
+ * tests and, when asked, repairs (covmatrix_nearest_psd: eigenvalue
+ * clipping, Higham, 1988, Linear Algebra and its Applications 103).  Moves
+ * within the loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are
+ * rounding in a printed file and leave the matrix as it was.
+ */
+int cli_psd_settle(const char *cmd, const char *path, const char *refusal, double *a, size_t m,
+		   struct cli_psd *ps)
+{
+	struct covmatrix_psd st;
 	struct hc_error err;
-	size_t m = cm->m, i, j, bytes;
-	double *b, worst = 0.0;
-	int changed = 0, rc;
+	size_t bytes;
+	double *b;
+	char text[600];
+	int rc;
 
 	hc_error_clear(&err);
 	if (hc_mul_size(m * m, sizeof *b, &bytes) || !(b = hc_malloc(bytes))) {
 		hc_error(&err, HC_ENOMEM, "out of memory checking the covariance matrix");
 		return cli_fail(cmd, &err);
 	}
-	memcpy(b, cm->a, bytes);
-	rc = covmatrix_repair_psd(b, m, &changed, &err);
-	for (i = 0; rc == HC_OK && changed && i < m; i++)
-		for (j = 0; j < m; j++) {
-			double scale = sqrt(cm->a[i * m + i] * cm->a[j * m + j]);
-			double d = fabs(b[i * m + j] - cm->a[i * m + j]) / scale;
-			if (d > worst)
-				worst = d;
+	rc = covmatrix_nearest_psd(a, m, b, &st, &err);
+	if (rc == HC_OK) {
+		ps->checked = 1;
+		ps->negative = st.negative;
+		ps->min_eigenvalue = st.min_eigenvalue;
+		ps->norm = st.norm;
+		if (st.max_relative_move > COVMATRIX_DEFAULT_SYMMETRY_TOL) {
+			if (!ps->asked)
+				rc = hc_error(&err, HC_EDATA, "%s: %s", path, refusal);
+			else {
+				memcpy(a, b, bytes);
+				ps->repaired = 1;
+				ps->distance = st.distance;
+				psd_text(ps, text, sizeof text);
+				fprintf(stderr, "holdcount %s: note: %s: %s\n", cmd, path, text);
+			}
 		}
+	}
 	hc_free(b);
-	if (rc)
-		return cli_fail(cmd, &err);
-	*psd = worst <= COVMATRIX_DEFAULT_SYMMETRY_TOL;
+	return rc ? cli_fail(cmd, &err) : HC_OK;
+}
+
+int cli_psd_fields(struct report *r, const struct cli_psd *ps)
+{
+	int style = ps->annualised ? REPORT_STYLE_SCI : REPORT_STYLE_PLAIN;
+	char text[600];
+
+	if (!ps->asked)
+		return HC_OK;
+	if (report_add_text(r, "psd_repair", "positive semi-definite repair",
+			    ps->repaired ? "nearest positive semi-definite matrix, by eigenvalue clipping (Higham 1988)"
+			    : ps->checked ? "not needed: the matrix is positive semi-definite (up to rounding)"
+			    : "not needed: no gaps left, and complete series give a positive semi-definite matrix") ||
+	    report_add_bool(r, "psd_repaired", "matrix repaired", ps->repaired))
+		return HC_ENOMEM;
+	if (ps->checked &&
+	    (report_add_int(r, "psd_negative_eigenvalues", "negative eigenvalues", (long long)ps->negative) ||
+	     report_add_real(r, "psd_min_eigenvalue", "smallest eigenvalue", ps->min_eigenvalue * ps->scale, style) ||
+	     report_add_real(r, "psd_repair_distance", "repair distance (Frobenius)", ps->distance * ps->scale, style) ||
+	     report_add_real(r, "psd_repair_relative_distance", "repair distance / matrix norm",
+			     ps->distance / ps->norm, REPORT_STYLE_SCI)))
+		return HC_ENOMEM;
+	if (ps->repaired) {
+		psd_text(ps, text, sizeof text);
+		if (report_add_note(r, text))
+			return HC_ENOMEM;
+	}
 	return HC_OK;
 }
 
 int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
-			struct covmatrix **out)
+			struct cli_psd *ps, struct covmatrix **out)
 {
 	struct hc_error err;
 	size_t i;
-	int rc, psd = 0;
+	int rc;
 
 	*out = NULL;
 	for (i = 0; return_only_options[i]; i++)
@@ -149,12 +220,27 @@ int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *p
 	rc = covmatrix_load(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
-	rc = cli_matrix_is_psd(cmd, *out, &psd);
-	if (rc == HC_OK && !psd) {
-		hc_error(&err, HC_EDATA, "%s: not a covariance matrix: it is not positive semi-definite "
-			 "(some portfolio of these securities would have a negative variance)", path);
-		rc = cli_fail(cmd, &err);
+	rc = cli_psd_settle(cmd, path, "not a covariance matrix: it is not positive semi-definite "
+			    "(some portfolio of these securities would have a negative variance); " CLI_PSD_HINT,
+			    (*out)->a, (*out)->m, ps);
+	if (rc) {
+		covmatrix_free(*out);
+		*out = NULL;
 	}
+	return rc;
+}
+
+int cli_pairwise_matrix(const char *cmd, const struct universe *u, const char *path,
+			const char *refusal, struct cli_psd *ps, struct covmatrix **out)
+{
+	struct hc_error err;
+	int rc;
+
+	hc_error_clear(&err);
+	rc = covmatrix_from_universe(u, out, &err);
+	if (rc)
+		return cli_fail(cmd, &err);
+	rc = cli_psd_settle(cmd, path, refusal, (*out)->a, (*out)->m, ps);
 	if (rc) {
 		covmatrix_free(*out);
 		*out = NULL;

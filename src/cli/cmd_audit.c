@@ -15,6 +15,7 @@
 
 #include "cli.h"
 #include "holdcount/audit.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/holdings.h"
 #include "holdcount/moments.h"
 #include "holdcount/universe.h"
@@ -74,6 +75,7 @@ static const struct cli_group_use audit_groups[] = {
 	{ &cli_group_policy, AO(pol) },
 	{ &cli_group_sampling_no_sizes, AO(sam) },
 	{ &cli_group_universe, AO(uni) },
+	{ &cli_group_matrix_repair, AO(uni) },
 	{ &cli_group_output, AO(out) },
 	{ NULL, 0 }
 };
@@ -89,8 +91,9 @@ const struct cli_command cli_command_audit = {
 	"same count (--paths), and the expected sd of a random portfolio laid out with its own "
 	"weights; sector weights with --sectors; and three weight screens (UCITS 2009/65/EC Art. 52, "
 	"Investment Company Act of 1940 s. 5(b)(1), Internal Revenue Code s. 851(b)(3)), written from "
-	"memory of the texts. Exit status 0 when every fund passes the rules asked for, 1 when any "
-	"fails, 2 for usage and 3 for data errors.",
+	"memory of the texts. With --covariance the risk figures come from a covariance matrix (w'Aw), "
+	"and with --missing pairwise from the pairwise-complete covariances. Exit status 0 when every "
+	"fund passes the rules asked for, 1 when any fails, 2 for usage and 3 for data errors.",
 	1, 1, audit_groups
 };
 
@@ -147,10 +150,12 @@ static int load_inputs(const char *cmd, const struct cli_holdings *o, struct hol
 	return HC_OK;
 }
 
-int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
-		   const struct cli_sampling *sam, int quiet, const struct universe *u,
-		   const struct moments *mo, struct holdings **h, struct holdings_labels **labels,
-		   struct audit_result **res, struct report **out)
+/* The audit against the return series u, or against the matrix am when
+ * it is not NULL. */
+static int audit_data(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+		      const struct cli_sampling *sam, int quiet, const struct universe *u,
+		      const struct audit_matrix *am, const struct moments *mo, struct holdings **h,
+		      struct holdings_labels **labels, struct audit_result **res, struct report **out)
 {
 	struct audit_options ao;
 	struct cli_progress prog;
@@ -165,11 +170,19 @@ int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct 
 	cli_progress_init(&prog, "sampling the funds' counts", "paths", quiet);
 	ao.progress = cli_progress_update;
 	ao.progress_ctx = &prog;
-	rc = audit_run(res, *h, u, mo, &ao, &err);
+	rc = am ? audit_run_matrix(res, *h, am, mo, &ao, &err) : audit_run(res, *h, u, mo, &ao, &err);
 	cli_progress_finish(&prog);
 	if (rc == HC_OK)
 		rc = audit_report(out, *res, *h, &err);
 	return rc ? cli_fail(cmd, &err) : HC_OK;
+}
+
+int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+		   const struct cli_sampling *sam, int quiet, const struct universe *u,
+		   const struct moments *mo, struct holdings **h, struct holdings_labels **labels,
+		   struct audit_result **res, struct report **out)
+{
+	return audit_data(cmd, ho, po, sam, quiet, u, NULL, mo, h, labels, res, out);
 }
 
 /* Name the failing funds and rules on stderr, so a log shows why the
@@ -196,15 +209,79 @@ void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 	fputc('\n', stderr);
 }
 
+/* --covariance: the matrix and its averages; figures on its own scale
+ * unless --periods-per-year says its entries are per period. */
+static int load_matrix(const struct audit_opts *o, const struct cli_args *a, struct cli_psd *ps,
+		       struct covmatrix **cm, struct moments *mo, struct audit_matrix *am)
+{
+	const char *path = a->positional[0];
+	int annualised = !isnan(o->uni.periods_per_year);
+	double p = annualised ? o->uni.periods_per_year : 1.0;
+	struct hc_error err;
+	int rc;
+
+	if (!(p > 0.0))
+		return cli_usage_error("audit", "--periods-per-year must be positive, found %g", p);
+	cli_psd_init(ps, o->uni.repair_psd, p, annualised, "the covariance matrix");
+	if ((rc = cli_load_covariance("audit", a, path, ps, cm)) != HC_OK)
+		return rc;
+	hc_error_clear(&err);
+	if (moments_from_matrix(mo, (*cm)->a, (*cm)->m, &err) != HC_OK) {
+		hc_error_prefix(&err, path);
+		return cli_fail("audit", &err);
+	}
+	memset(am, 0, sizeof *am);
+	am->cm = *cm;
+	am->source = path;
+	am->input = "covariance matrix";
+	am->periods_per_year = p;
+	am->annualised = annualised;
+	return HC_OK;
+}
+
+/* --missing pairwise with gaps left: no fund has a complete return series,
+ * so its risk comes from the pairwise-complete covariances, which must form
+ * a positive semi-definite matrix (or be repaired with --repair-psd). */
+static int pairwise_matrix(const struct audit_opts *o, const struct universe *u, const char *path,
+			   struct cli_psd *ps, struct covmatrix **cm, struct moments *mo, struct audit_matrix *am)
+{
+	struct hc_error err;
+	int rc;
+
+	cli_psd_init(ps, o->uni.repair_psd, u->periods_per_year, 1, "the pairwise-complete covariance matrix");
+	rc = cli_pairwise_matrix("audit", u, path,
+				 "the pairwise-complete covariances are not positive semi-definite, so some fund's "
+				 "variance w'Aw could come out negative; " CLI_PSD_HINT, ps, cm);
+	if (rc)
+		return rc;
+	hc_error_clear(&err);
+	if (moments_from_matrix(mo, (*cm)->a, (*cm)->m, &err) != HC_OK)
+		return cli_fail("audit", &err);
+	memset(am, 0, sizeof *am);
+	am->cm = *cm;
+	am->source = u->source ? u->source : path;
+	am->input = ps->repaired ? "return history with gaps; risk from its pairwise-complete covariances, "
+				   "repaired to the nearest positive semi-definite matrix"
+				 : "return history with gaps; risk from its pairwise-complete covariances";
+	am->periods_per_year = u->periods_per_year;
+	am->annualised = 1;
+	am->periods = u->t;
+	am->history = u;
+	return HC_OK;
+}
+
 int cmd_audit(int argc, char **argv)
 {
 	struct audit_opts o;
 	struct cli_args a;
 	struct universe *u = NULL;
+	struct covmatrix *cm = NULL;
+	struct audit_matrix am;
 	struct holdings *h = NULL;
 	struct holdings_labels *l = NULL;
 	struct audit_result *res = NULL;
 	struct report *r = NULL;
+	struct cli_psd ps;
 	struct moments mo;
 	struct hc_error err;
 	int rc;
@@ -217,19 +294,31 @@ int cmd_audit(int argc, char **argv)
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	hc_error_clear(&err);
+	cli_psd_init(&ps, 0, 1, 0, "");
 	if (!o.hold.holdings)
 		rc = cli_usage_error("audit", "--holdings FILE is required (see 'holdcount audit --help')");
-	else if (o.uni.missing == CLI_MISSING_PAIRWISE)
-		rc = cli_usage_error("audit", "--missing pairwise does not apply: a fund's sd needs complete series");
-	else if (o.uni.covariance)
-		rc = cli_usage_error("audit", "--covariance does not apply: a fund's sd needs return series");
-	if (rc != HC_OK || (rc = cli_load_universe("audit", &o.uni, a.positional[0], &u)) != HC_OK)
+	else
+		rc = cli_psd_usage("audit", &o.uni);
+	if (rc != HC_OK)
 		goto cleanup;
-	if (moments_from_universe(&mo, u, &err) != HC_OK) {
-		rc = cli_fail("audit", &err);
-		goto cleanup;
+	if (o.uni.covariance)
+		rc = load_matrix(&o, &a, &ps, &cm, &mo, &am);
+	else if ((rc = cli_load_universe("audit", &o.uni, a.positional[0], &u)) == HC_OK) {
+		if (u->has_missing)
+			rc = pairwise_matrix(&o, u, a.positional[0], &ps, &cm, &mo, &am);
+		else if (moments_from_universe(&mo, u, &err) != HC_OK)
+			rc = cli_fail("audit", &err);
+		/* --repair-psd had nothing to repair: say so in the output */
+		else if (o.uni.repair_psd)
+			cli_psd_init(&ps, 1, u->periods_per_year, 1, "");
 	}
-	rc = cli_audit_data("audit", &o.hold, &o.pol, &o.sam, o.out.quiet, u, &mo, &h, &l, &res, &r);
+	if (rc != HC_OK)
+		goto cleanup;
+	rc = audit_data("audit", &o.hold, &o.pol, &o.sam, o.out.quiet, u, cm ? &am : NULL, &mo, &h, &l, &res, &r);
+	if (rc == HC_OK && cli_psd_fields(r, &ps) != HC_OK) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("audit", &err);
+	}
 	if (rc != HC_OK || (rc = cli_write_report("audit", &o.out, r)) != HC_OK)
 		goto cleanup;
 	if (res->failed_funds) {
@@ -241,6 +330,7 @@ cleanup:
 	audit_result_free(res);
 	holdings_labels_free(l);
 	holdings_free(h);
+	covmatrix_free(cm);
 	universe_free(u);
 	cli_args_release(&a);
 	return rc;

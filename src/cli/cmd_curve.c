@@ -27,6 +27,7 @@ struct curve_opts {
 static const struct cli_group_use curve_groups[] = {
 	{ &cli_group_sampling, offsetof(struct curve_opts, sam) },
 	{ &cli_group_universe, offsetof(struct curve_opts, uni) },
+	{ &cli_group_matrix_repair, offsetof(struct curve_opts, uni) },
 	{ &cli_group_output, offsetof(struct curve_opts, out) },
 	{ &cli_group_strata, offsetof(struct curve_opts, strat) },
 	{ NULL, 0 }
@@ -191,9 +192,10 @@ int cli_curve_fields(struct report *r, const struct cli_curve_source *src, const
 }
 
 static int build(struct report *r, const struct curve_opts *o, const struct cli_curve_source *src,
-		 const struct moments *mo, const struct curve *c, const struct strata_curve *sc)
+		 const struct moments *mo, const struct curve *c, const struct strata_curve *sc,
+		 const struct cli_psd *ps)
 {
-	if (cli_curve_fields(r, src, mo, c) || add_strata(r, o, sc))
+	if (cli_curve_fields(r, src, mo, c) || add_strata(r, o, sc) || cli_psd_fields(r, ps))
 		return HC_ENOMEM;
 	return report_add_cautions(r);
 }
@@ -201,7 +203,7 @@ static int build(struct report *r, const struct curve_opts *o, const struct cli_
 /* Exact curve, optional sampling and the report: shared by both inputs. */
 static int finish(const struct curve_opts *o, const struct cli_curve_source *src, const struct universe *u,
 		  const struct covmatrix *cm, const struct moments *mo, const size_t *sizes, size_t nsizes,
-		  double p, const struct strata_curve *sc)
+		  double p, const struct strata_curve *sc, const struct cli_psd *ps)
 {
 	struct curve *c = NULL;
 	struct report *r = NULL;
@@ -217,7 +219,7 @@ static int finish(const struct curve_opts *o, const struct cli_curve_source *src
 		goto cleanup;
 	}
 	r = report_alloc();
-	if (!r || build(r, o, src, mo, c, sc)) {
+	if (!r || build(r, o, src, mo, c, sc, ps)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("curve", &err);
 		goto cleanup;
@@ -234,6 +236,7 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 	struct cli_curve_source src = { a->positional[0], "covariance matrix", 0, 0, 0, 0 };
 	double p = 1.0;
 	struct covmatrix *cm = NULL;
+	struct cli_psd ps;
 	struct moments mo;
 	struct hc_error err;
 	size_t *sizes = NULL, nsizes = 0;
@@ -245,7 +248,8 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 		if (!(p > 0.0))
 			return cli_usage_error("curve", "--periods-per-year must be positive, found %g", p);
 	}
-	rc = cli_load_covariance("curve", a, src.path, &cm);
+	cli_psd_init(&ps, o->uni.repair_psd, p, src.annualised, "the covariance matrix");
+	rc = cli_load_covariance("curve", a, src.path, &ps, &cm);
 	if (rc)
 		return rc;
 	src.m = cm->m;
@@ -259,31 +263,9 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 		}
 	}
 	if (rc == HC_OK)
-		rc = finish(o, &src, NULL, cm, &mo, sizes, nsizes, p, NULL);
+		rc = finish(o, &src, NULL, cm, &mo, sizes, nsizes, p, NULL, &ps);
 	hc_free(sizes);
 	covmatrix_free(cm);
-	return rc;
-}
-
-static int pairwise_matrix(const struct universe *u, const char *path, struct covmatrix **cm)
-{
-	struct hc_error err;
-	int rc, psd = 0;
-
-	hc_error_clear(&err);
-	rc = covmatrix_from_universe(u, cm, &err);
-	if (rc)
-		return cli_fail("curve", &err);
-	rc = cli_matrix_is_psd("curve", *cm, &psd);
-	if (rc == HC_OK && !psd) {
-		hc_error(&err, HC_EDATA, "%s: the pairwise-complete covariances are not positive semi-definite, "
-			 "so no random portfolio can be drawn from them; use --paths 0 for the exact curve alone", path);
-		rc = cli_fail("curve", &err);
-	}
-	if (rc) {
-		covmatrix_free(*cm);
-		*cm = NULL;
-	}
 	return rc;
 }
 
@@ -295,6 +277,7 @@ int cmd_curve(int argc, char **argv)
 	struct universe *u = NULL;
 	struct covmatrix *cm = NULL;
 	struct strata_curve *sc = NULL;
+	struct cli_psd ps;
 	struct moments mo;
 	struct hc_error err;
 	size_t *sizes = NULL, nsizes = 0;
@@ -309,6 +292,8 @@ int cmd_curve(int argc, char **argv)
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	hc_error_clear(&err);
+	if ((rc = cli_psd_usage("curve", &o.uni)) != HC_OK)
+		goto cleanup;
 	if (o.uni.covariance && (o.strat.map || o.strat.per_stratum_max || o.strat.proportional)) {
 		rc = cli_usage_error("curve", "--strata draws from return series, not from a covariance matrix");
 		goto cleanup;
@@ -325,9 +310,14 @@ int cmd_curve(int argc, char **argv)
 		goto cleanup;
 	/* With gaps left (--missing pairwise) no portfolio has a complete return
 	 * series, so random portfolios are drawn from the same pairwise-complete
-	 * covariances the exact columns use, when they form a valid matrix. */
-	if (o.sam.paths > 0 && u->has_missing) {
-		rc = pairwise_matrix(u, a.positional[0], &cm);
+	 * covariances the exact columns use, when they form a valid matrix (or
+	 * from its repair, which the exact columns then use too). */
+	cli_psd_init(&ps, o.uni.repair_psd, u->periods_per_year, 1, "the pairwise-complete covariance matrix");
+	if ((o.sam.paths > 0 || ps.asked) && u->has_missing) {
+		rc = cli_pairwise_matrix("curve", u, a.positional[0],
+					 "the pairwise-complete covariances are not positive semi-definite, so no random "
+					 "portfolio can be drawn from them; --paths 0 gives the exact curve alone, and "
+					 CLI_PSD_HINT, &ps, &cm);
 		if (rc)
 			goto cleanup;
 	}
@@ -340,7 +330,7 @@ int cmd_curve(int argc, char **argv)
 				     "under --missing pairwise", a.positional[0]);
 		goto cleanup;
 	}
-	rc = moments_from_universe(&mo, u, &err);
+	rc = ps.repaired ? moments_from_matrix(&mo, cm->a, cm->m, &err) : moments_from_universe(&mo, u, &err);
 	if (rc) {
 		rc = cli_fail("curve", &err);
 		goto cleanup;
@@ -349,12 +339,14 @@ int cmd_curve(int argc, char **argv)
 	    (rc = sample_strata(&o, u, sizes, nsizes, &sc, &err)))
 		goto cleanup;
 	src.path = u->source ? u->source : a.positional[0];
-	src.input = cm ? "return history with gaps; sampled from its pairwise-complete covariances" : "return history";
+	src.input = ps.repaired ? "return history with gaps; its pairwise-complete covariances, repaired to the nearest "
+				  "positive semi-definite matrix, give the exact columns and the random portfolios"
+		  : cm ? "return history with gaps; sampled from its pairwise-complete covariances" : "return history";
 	src.m = u->m;
 	src.dropped = u->ndropped;
 	src.periods = u->t;
 	src.annualised = 1;
-	rc = finish(&o, &src, cm ? NULL : u, cm, &mo, sizes, nsizes, u->periods_per_year, sc);
+	rc = finish(&o, &src, cm ? NULL : u, cm, &mo, sizes, nsizes, u->periods_per_year, sc, &ps);
 cleanup:
 	covmatrix_free(cm);
 	strata_curve_free(sc);

@@ -24,6 +24,7 @@ struct describe_opts {
 
 static const struct cli_group_use describe_groups[] = {
 	{ &cli_group_universe, offsetof(struct describe_opts, uni) },
+	{ &cli_group_matrix_repair, offsetof(struct describe_opts, uni) },
 	{ &cli_group_output, offsetof(struct describe_opts, out) },
 	{ NULL, 0 }
 };
@@ -116,7 +117,8 @@ static int add_averages(struct report *r, const struct moments *mo, double p)
 	return HC_OK;
 }
 
-static int build(struct report *r, const struct universe *u, const struct moments *mo)
+static int build(struct report *r, const struct universe *u, const struct moments *mo,
+		 const struct cli_psd *ps)
 {
 	double p = u->periods_per_year;
 	char first[16] = "", last[16] = "";
@@ -136,11 +138,12 @@ static int build(struct report *r, const struct universe *u, const struct moment
 	    report_add_bool(r, "periods_per_year_detected", "detected from the dates",
 			    u->periods_detected) ||
 	    report_add_text(r, "covariances", "covariances",
-			    mo->route == MOMENTS_ROUTE_PAIRWISE ? "pairwise-complete (data with gaps)"
-								: "complete data") ||
+			    ps->repaired ? "pairwise-complete (data with gaps), repaired to the nearest positive "
+					   "semi-definite matrix"
+			    : u->has_missing ? "pairwise-complete (data with gaps)" : "complete data") ||
 	    add_averages(r, mo, p))
 		return HC_ENOMEM;
-	if (add_kept(r, u) || add_dropped(r, u))
+	if (add_kept(r, u) || add_dropped(r, u) || cli_psd_fields(r, ps))
 		return HC_ENOMEM;
 	return report_add_cautions(r);
 }
@@ -148,9 +151,11 @@ static int build(struct report *r, const struct universe *u, const struct moment
 /* From a covariance matrix: no periods or dates; its own units unless
  * --periods-per-year says the entries are per period. */
 static int build_matrix(struct report *r, const char *path, const struct covmatrix *cm,
-			const struct moments *mo, double p, int annualised)
+			const struct moments *mo, const struct cli_psd *ps)
 {
 	struct report_table *t;
+	double p = ps->scale;
+	int annualised = ps->annualised;
 	size_t i;
 
 	if (report_add_text(r, "source", "source", path) ||
@@ -180,7 +185,7 @@ static int build_matrix(struct report *r, const char *path, const struct covmatr
 	}
 	t = report_add_table(r, "dropped", "securities dropped");
 	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
+	    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN) || cli_psd_fields(r, ps))
 		return HC_ENOMEM;
 	return report_add_cautions(r);
 }
@@ -192,6 +197,7 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 	double p = annualised ? o->uni.periods_per_year : 1.0;
 	struct covmatrix *cm = NULL;
 	struct report *r = NULL;
+	struct cli_psd ps;
 	struct moments mo;
 	struct hc_error err;
 	int rc;
@@ -199,7 +205,8 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 	hc_error_clear(&err);
 	if (annualised && !(p > 0.0))
 		return cli_usage_error("describe", "--periods-per-year must be positive, found %g", p);
-	rc = cli_load_covariance("describe", a, path, &cm);
+	cli_psd_init(&ps, o->uni.repair_psd, p, annualised, "the covariance matrix");
+	rc = cli_load_covariance("describe", a, path, &ps, &cm);
 	if (rc)
 		return rc;
 	rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
@@ -209,7 +216,7 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 		goto cleanup;
 	}
 	r = report_alloc();
-	if (!r || build_matrix(r, path, cm, &mo, p, annualised)) {
+	if (!r || build_matrix(r, path, cm, &mo, &ps)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("describe", &err);
 		goto cleanup;
@@ -226,7 +233,9 @@ int cmd_describe(int argc, char **argv)
 	struct describe_opts o;
 	struct cli_args a;
 	struct universe *u = NULL;
+	struct covmatrix *cm = NULL;
 	struct report *r = NULL;
+	struct cli_psd ps;
 	struct moments mo;
 	struct hc_error err;
 	int rc;
@@ -238,6 +247,8 @@ int cmd_describe(int argc, char **argv)
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	hc_error_clear(&err);
+	if ((rc = cli_psd_usage("describe", &o.uni)) != HC_OK)
+		goto cleanup;
 	if (o.uni.covariance) {
 		rc = describe_matrix(&o, &a);
 		goto cleanup;
@@ -245,13 +256,22 @@ int cmd_describe(int argc, char **argv)
 	rc = cli_load_universe("describe", &o.uni, a.positional[0], &u);
 	if (rc)
 		goto cleanup;
-	rc = moments_from_universe(&mo, u, &err);
+	cli_psd_init(&ps, o.uni.repair_psd, u->periods_per_year, 1, "the pairwise-complete covariance matrix");
+	/* --repair-psd with gaps left: the averages of the repaired matrix,
+	 * which is what curve, enough and audit then use. */
+	if (ps.asked && u->has_missing) {
+		rc = cli_pairwise_matrix("describe", u, a.positional[0], "", &ps, &cm);
+		if (rc)
+			goto cleanup;
+		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+	} else
+		rc = moments_from_universe(&mo, u, &err);
 	if (rc) {
 		rc = cli_fail("describe", &err);
 		goto cleanup;
 	}
 	r = report_alloc();
-	if (!r || build(r, u, &mo)) {
+	if (!r || build(r, u, &mo, &ps)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("describe", &err);
 		goto cleanup;
@@ -259,6 +279,7 @@ int cmd_describe(int argc, char **argv)
 	rc = cli_write_report("describe", &o.out, r);
 cleanup:
 	report_free(r);
+	covmatrix_free(cm);
 	universe_free(u);
 	cli_args_release(&a);
 	return rc;

@@ -86,6 +86,7 @@ static const struct cli_group_use enough_groups[] = {
 	{ &cli_group_sampling, OFF(smp) },
 	{ &cli_group_summary, OFF(sum) },
 	{ &cli_group_universe, OFF(uni) },
+	{ &cli_group_matrix_repair, OFF(uni) },
 	{ &cli_group_output, OFF(out) },
 	{ &cli_group_strata, OFF(strat) },
 	{ NULL, 0 }
@@ -101,7 +102,9 @@ const struct cli_command cli_command_enough = {
 	"--average-sd and --average-correlation, and optionally --securities) for the exact rules. "
 	"With --strata, the sampled rules (band, shortfall) draw portfolios spread across strata "
 	"(--proportional, or at most --per-stratum-max K in any stratum); the exact rules are "
-	"unchanged. See docs/enough.md for each rule and its source.",
+	"unchanged. With --covariance (a covariance matrix) or --missing pairwise the band rule "
+	"draws its portfolios from the matrix; shortfall, which compounds returns over time, needs "
+	"complete return series. See docs/enough.md for each rule and its source.",
 	0, 1, enough_groups
 };
 
@@ -160,14 +163,23 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 
 	rules_config_init(cfg);
 	hc_error_clear(&err);
-	if (!have_data || covariance)
+	if (!have_data)
 		cfg->selected = RULES_EXACT_MASK;
+	else if (covariance)
+		cfg->selected = RULES_EXACT_MASK | RULES_FLAG(RULES_BAND);
 	if (o->rules && rules_parse_list(o->rules, &cfg->selected, &err))
 		return cli_fail(cmd, &err);
 	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error(cmd, "the band and shortfall rules need a universe file, not summary statistics");
+	/* Everything but time-based figures works from a matrix (design.md section 8). */
+	if (covariance && (cfg->selected & RULES_FLAG(RULES_SHORTFALL)))
+		return cli_usage_error(cmd, "the shortfall rule needs return series: it compounds each portfolio's "
+				       "returns over the periods, and a covariance matrix has none (--rules exact,band "
+				       "runs every other rule)");
 	if (covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
 		return cli_usage_error(cmd, "--bootstrap needs return data: a covariance matrix has no periods to resample");
+	if (covariance && o->bootstrap_sampled)
+		return cli_usage_error(cmd, "--bootstrap-sampled needs return data: a covariance matrix has no periods to resample");
 	if (cli_given(a, "near-floor"))
 		cfg->near_floor_x = o->near_floor;
 	if (o->marginal && cli_parse_sd_step(o->marginal, &cfg->marginal_eps))
@@ -234,7 +246,9 @@ static int data_summary_given(const struct cli_args *a)
 /* ---- the report ----------------------------------------------------------- */
 
 struct enough_run {
-	const struct universe *u;    /* NULL with summary statistics */
+	const struct universe *u;    /* NULL with summary statistics or a matrix */
+	const char *matrix;          /* the covariance matrix's file, or NULL */
+	const struct cli_psd *ps;    /* what --repair-psd did, or NULL */
 	double vbar, cbar;           /* per period */
 	size_t m;
 	double ppy;
@@ -262,6 +276,17 @@ static int add_fields(struct report *r, const struct enough_run *e)
 		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
 		bad |= report_add_int(r, "securities_dropped", "securities dropped", (long long)e->u->ndropped);
 		bad |= report_add_int(r, "periods", "periods", (long long)e->u->t);
+		if (e->u->has_missing)
+			bad |= report_add_text(r, "input", "input", e->ps && e->ps->repaired
+				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
+				  "positive semi-definite matrix, for every rule but shortfall"
+				: e->paths ? "return history with gaps; pairwise-complete covariances, from which the band "
+					    "rule draws its portfolios"
+				: "return history with gaps; pairwise-complete covariances");
+	} else if (e->matrix) {
+		bad |= report_add_text(r, "universe", "universe", e->matrix);
+		bad |= report_add_text(r, "input", "input", "covariance matrix");
+		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
 	} else if (e->m)
 		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
 	else
@@ -281,12 +306,14 @@ static int add_fields(struct report *r, const struct enough_run *e)
 		bad |= report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
 	} else
 		bad |= report_add_none(r, "bootstrap", "bootstrap");
-	if (e->u) {
+	if (e->u || e->paths) {
 		char seed[32];
 
 		snprintf(seed, sizeof seed, "%llu", (unsigned long long)e->seed);
 		bad |= report_add_text(r, "seed", "seed", seed);
 	}
+	if (e->ps)
+		bad |= cli_psd_fields(r, e->ps);
 	return bad ? HC_ENOMEM : HC_OK;
 }
 
@@ -375,13 +402,27 @@ struct data_run {
 	int quiet;
 };
 
+/* Options that contradict the rules chosen (before any file is read). */
+static int data_checks(const char *cmd, const struct cli_sampling *smp, const struct cli_strata *strat,
+		       const struct rules_config *cfg)
+{
+	if ((strat->map || strat->per_stratum_max || strat->proportional) && !(cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
+	if (smp->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
+		return cli_usage_error(cmd, "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
+	return HC_OK;
+}
+
 /* The band and shortfall rules by sampling (rules_sampled stops at the
- * smallest stage of sizes that settles them); their results replace the
- * "needs sampled portfolios" placeholders that rules_evaluate left. */
-static int run_sampled(const struct data_run *d, const struct universe *u,
-		       const struct rules_config *cfg, double cbar, struct enough_run *e,
+ * smallest stage of sizes that settles them) the return series u, or
+ * (band only) the covariance matrix cm when it is not NULL; their results
+ * replace the "needs sampled portfolios" placeholders that rules_evaluate
+ * left.  ppy: u's periods per year, or the matrix's scale. */
+static int run_sampled(const struct data_run *d, const struct universe *u, const struct covmatrix *cm,
+		       const struct rules_config *cfg, double cbar, double ppy, struct enough_run *e,
 		       struct rule_result *res, size_t nres)
 {
+	struct rules_config band = *cfg;
 	struct sampler_options so;
 	struct cli_progress prog;
 	struct rule_result sr[2];
@@ -394,13 +435,15 @@ static int run_sampled(const struct data_run *d, const struct universe *u,
 	so.paths = d->smp->paths;
 	so.seed = d->smp->seed;
 	so.threads = (int)d->smp->threads;
-	so.periods_per_year = u->periods_per_year;
-	if ((rc = cli_strata_apply(d->cmd, d->strat, u, &so)))
+	so.periods_per_year = ppy;
+	if (!cm && (rc = cli_strata_apply(d->cmd, d->strat, u, &so)))
 		return rc;
 	cli_progress_init(&prog, "sampling", "paths", d->quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
-	rc = rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
+	band.selected &= ~RULES_FLAG(RULES_SHORTFALL);
+	rc = cm ? rules_sampled_matrix(&band, cm->a, cm->m, &so, cbar, sr, &n, &e->sampled_sizes, &err)
+		: rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
 	cli_progress_finish(&prog);
 	if (rc)
 		return cli_fail(d->cmd, &err);
@@ -408,7 +451,9 @@ static int run_sampled(const struct data_run *d, const struct universe *u,
 		for (j = 0; j < nres; j++)
 			if (res[j].rule == sr[k].rule)
 				res[j] = sr[k];
-	if (d->strat->per_stratum_max) {
+	e->paths = d->smp->paths;
+	e->seed = d->smp->seed;
+	if (!cm && d->strat->per_stratum_max) {
 		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
 		size_t top = 0;
 
@@ -421,7 +466,6 @@ static int run_sampled(const struct data_run *d, const struct universe *u,
 					 "not met up to %zu holdings, the most with at most %zu in every stratum",
 					 top, d->strat->per_stratum_max);
 	}
-	e->paths = d->smp->paths;
 	return HC_OK;
 }
 
@@ -484,12 +528,14 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 	return rc ? cli_fail(d->cmd, &err) : HC_OK;
 }
 
-/* A covariance matrix (--covariance): the exact rules from its averages;
- * no periods, so no sampled rules and no interval. */
-static int run_matrix(const struct enough_opts *o, const struct cli_args *a, const char *path,
-		      const struct rules_config *cfg, struct enough_run *e,
+/* A covariance matrix (--covariance): the exact rules from its averages
+ * and the band rule from random portfolios drawn from it; no periods, so no
+ * shortfall rule (refused by cli_rules_config) and no interval. */
+static int run_matrix(struct enough_opts *o, const struct cli_args *a, const char *path,
+		      const struct rules_config *cfg, struct cli_psd *ps, struct enough_run *e,
 		      struct rule_result *res, size_t *nres)
 {
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet };
 	struct covmatrix *cm = NULL;
 	struct rules_input in;
 	struct moments mo;
@@ -497,18 +543,27 @@ static int run_matrix(const struct enough_opts *o, const struct cli_args *a, con
 	int rc;
 
 	hc_error_clear(&err);
-	if (cfg->selected & RULES_SAMPLED_MASK)
-		return cli_usage_error("enough", "the band and shortfall rules need return data, not a covariance matrix");
+	if (o->smp.sizes)
+		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities in the matrix");
+	if (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)
+		return cli_usage_error("enough", "--strata draws from return series, not from a covariance matrix");
+	if ((rc = data_checks("enough", &o->smp, &o->strat, cfg)))
+		return rc;
 	e->annualised = cli_given(a, "periods-per-year");
 	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
 	if (!(e->ppy > 0))
 		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
-	rc = covmatrix_load(&cm, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
-	if (rc == HC_OK)
-		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
-	covmatrix_free(cm);
-	if (rc)
-		return cli_fail("enough", &err);
+	cli_psd_init(ps, o->uni.repair_psd, e->ppy, e->annualised, "the covariance matrix");
+	if ((rc = cli_load_covariance("enough", a, path, ps, &cm)))
+		return rc;
+	e->ps = ps;
+	e->matrix = path;
+	rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+	if (rc) {
+		hc_error_prefix(&err, path);
+		rc = cli_fail("enough", &err);
+		goto cleanup;
+	}
 	e->vbar = mo.average_variance;
 	e->cbar = mo.average_covariance;
 	e->m = mo.m;
@@ -519,12 +574,22 @@ static int run_matrix(const struct enough_opts *o, const struct cli_args *a, con
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
 	rc = rules_evaluate(cfg, &in, res, nres, &err);
-	return rc ? cli_fail("enough", &err) : HC_OK;
+	if (rc) {
+		rc = cli_fail("enough", &err);
+		goto cleanup;
+	}
+	if (cfg->selected & RULES_FLAG(RULES_BAND))
+		rc = run_sampled(&d, NULL, cm, cfg, e->cbar, e->ppy, e, res, *nres);
+cleanup:
+	covmatrix_free(cm);
+	return rc;
 }
 
-/* Every selected rule on a return history: exact, sampled, bootstrap. */
-static int run_data(const struct data_run *d, const struct universe *u, const struct moments *mo,
-		    const struct rules_config *cfg, struct enough_run *e,
+/* Every selected rule on a return history: exact, sampled, bootstrap.
+ * With gaps left (--missing pairwise) the band rule draws from cm, the
+ * pairwise-complete covariances (NULL when band is not selected). */
+static int run_data(const struct data_run *d, const struct universe *u, const struct covmatrix *cm,
+		    const struct moments *mo, const struct rules_config *cfg, struct enough_run *e,
 		    struct rule_result *res, size_t *nres)
 {
 	struct rules_input in;
@@ -549,11 +614,14 @@ static int run_data(const struct data_run *d, const struct universe *u, const st
 		return cli_fail(d->cmd, &err);
 	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
 		for (size_t j = 0; j < *nres; j++)
-			if (RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK)
+			if (res[j].rule == RULES_SHORTFALL)
 				snprintf(res[j].note, sizeof res[j].note,
-					 "needs complete data: the sampler draws whole return series");
+					 "needs complete data: a portfolio's return over time needs every member's "
+					 "return in every period");
+		if (cm && (rc = run_sampled(d, u, cm, cfg, e->cbar, u->periods_per_year, e, res, *nres)))
+			return rc;
 	} else if (cfg->selected & RULES_SAMPLED_MASK) {
-		rc = run_sampled(d, u, cfg, e->cbar, e, res, *nres);
+		rc = run_sampled(d, u, NULL, cfg, e->cbar, u->periods_per_year, e, res, *nres);
 		if (rc)
 			return rc;
 	}
@@ -566,15 +634,23 @@ static int run_data(const struct data_run *d, const struct universe *u, const st
 	return rc;
 }
 
-/* Options that contradict the rules chosen (before any file is read). */
-static int data_checks(const char *cmd, const struct cli_sampling *smp, const struct cli_strata *strat,
-		       const struct rules_config *cfg)
+/* cli_enough_data, with the pairwise matrix cm (or NULL) and what
+ * --repair-psd did (ps, or NULL). */
+static int enough_data(const struct data_run *d, const struct universe *u, const struct covmatrix *cm,
+		       const struct cli_psd *ps, const struct moments *mo, const struct rules_config *cfg,
+		       struct rule_result *res, size_t *nres, struct report **out)
 {
-	if ((strat->map || strat->per_stratum_max || strat->proportional) && !(cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
-	if (smp->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
-	return HC_OK;
+	struct enough_run e;
+	int rc;
+
+	*out = NULL;
+	*nres = 0;
+	if ((rc = data_checks(d->cmd, d->smp, d->strat, cfg)))
+		return rc;
+	memset(&e, 0, sizeof e);
+	e.ps = ps;
+	rc = run_data(d, u, cm, mo, cfg, &e, res, nres);
+	return rc ? rc : build_report(d->cmd, &e, d->strat, res, *nres, out);
 }
 
 int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
@@ -583,22 +659,17 @@ int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct c
 		    struct rule_result *res, size_t *nres, struct report **out)
 {
 	struct data_run d = { cmd, rul, smp, strat, quiet };
-	struct enough_run e;
-	int rc;
 
-	*out = NULL;
-	*nres = 0;
-	if ((rc = data_checks(cmd, smp, strat, cfg)))
-		return rc;
-	memset(&e, 0, sizeof e);
-	rc = run_data(&d, u, mo, cfg, &e, res, nres);
-	return rc ? rc : build_report(cmd, &e, strat, res, *nres, out);
+	return enough_data(&d, u, NULL, NULL, mo, cfg, res, nres, out);
 }
 
 /* A return history: load it, then the rules as `holdcount report` also runs them. */
 static int enough_file(struct enough_opts *o, const char *path, const struct rules_config *cfg,
-		       struct universe **up, struct rule_result *res, size_t *nres, struct report **out)
+		       struct cli_psd *ps, struct universe **up, struct rule_result *res, size_t *nres,
+		       struct report **out)
 {
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet };
+	struct covmatrix *cm = NULL;
 	struct moments mo;
 	struct hc_error err;
 	int rc;
@@ -610,10 +681,27 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 	rc = cli_load_universe("enough", &o->uni, path, up);
 	if (rc)
 		return rc;
+	cli_psd_init(ps, o->uni.repair_psd, (*up)->periods_per_year, 1, "the pairwise-complete covariance matrix");
+	/* With gaps left the band rule draws from the pairwise-complete
+	 * covariances, and --repair-psd makes the exact rules use the repair too. */
+	if ((*up)->has_missing && (o->strat.map || o->strat.per_stratum_max || o->strat.proportional))
+		return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps "
+				       "under --missing pairwise", path);
+	if ((*up)->has_missing && ((cfg->selected & RULES_FLAG(RULES_BAND)) || ps->asked) &&
+	    (rc = cli_pairwise_matrix("enough", *up, path,
+				      "the pairwise-complete covariances are not positive semi-definite, so the band "
+				      "rule cannot draw random portfolios from them; --rules exact leaves it out, and "
+				      CLI_PSD_HINT, ps, &cm)))
+		return rc;
 	hc_error_clear(&err);
-	if (moments_from_universe(&mo, *up, &err))
-		return cli_fail("enough", &err);
-	return cli_enough_data("enough", &o->rul, &o->smp, &o->strat, o->out.quiet, *up, &mo, cfg, res, nres, out);
+	rc = ps->repaired ? moments_from_matrix(&mo, cm->a, cm->m, &err) : moments_from_universe(&mo, *up, &err);
+	if (rc)
+		rc = cli_fail("enough", &err);
+	else
+		rc = enough_data(&d, *up, (cfg->selected & RULES_FLAG(RULES_BAND)) ? cm : NULL, ps, &mo, cfg,
+				 res, nres, out);
+	covmatrix_free(cm);
+	return rc;
 }
 
 int cmd_enough(int argc, char **argv)
@@ -625,6 +713,7 @@ int cmd_enough(int argc, char **argv)
 	struct enough_run e;
 	struct universe *u = NULL;
 	struct report *r = NULL;
+	struct cli_psd ps;
 	size_t nres = 0;
 	int rc, have_data;
 
@@ -644,14 +733,21 @@ int cmd_enough(int argc, char **argv)
 		rc = cli_usage_error("enough", "give a UNIVERSE file or summary statistics, not both");
 		goto cleanup;
 	}
+	if (!have_data && o.uni.repair_psd) {
+		rc = cli_usage_error("enough", "--repair-psd needs a UNIVERSE file (a covariance matrix or a return history "
+				     "under --missing pairwise), not summary statistics");
+		goto cleanup;
+	}
+	if (have_data && (rc = cli_psd_usage("enough", &o.uni)) != HC_OK)
+		goto cleanup;
 	rc = cli_rules_config("enough", &o.rul, &a, have_data, o.uni.covariance, &cfg);
 	if (rc)
 		goto cleanup;
 	if (have_data && !o.uni.covariance) {
-		rc = enough_file(&o, a.positional[0], &cfg, &u, res, &nres, &r);
+		rc = enough_file(&o, a.positional[0], &cfg, &ps, &u, res, &nres, &r);
 	} else {
 		if (have_data)
-			rc = run_matrix(&o, &a, a.positional[0], &cfg, &e, res, &nres);
+			rc = run_matrix(&o, &a, a.positional[0], &cfg, &ps, &e, res, &nres);
 		else
 			rc = run_summary(&o, &a, &cfg, &e, res, &nres);
 		if (rc == HC_OK)

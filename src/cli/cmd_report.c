@@ -929,10 +929,13 @@ static int check_options(const struct report_opts *o, const struct cli_args *a, 
 	if (!o->output)
 		return cli_usage_error("report", "-o DIR is required: the report folder to write");
 	if (o->uni.missing == CLI_MISSING_PAIRWISE)
-		return cli_usage_error("report", "--missing pairwise does not apply: random portfolios and the audit "
-				       "need complete series");
+		return cli_usage_error("report", "--missing pairwise does not apply: the report draws its random portfolios, "
+				       "its shortfall rule and its audit from complete return series; curve, enough and "
+				       "audit take --missing pairwise");
 	if (o->uni.covariance)
-		return cli_usage_error("report", "--covariance does not apply: the report needs a return history");
+		return cli_usage_error("report", "--covariance does not apply: the report needs a return history "
+				       "(its dates, shortfall rule and rolling windows are time-based); describe, curve, "
+				       "enough and audit take a covariance matrix");
 	if (cli_given(a, "step") && !o->window)
 		return cli_usage_error("report", "--step needs --window W (the rolling windows' length)");
 	for (k = 0; !r->hold.holdings && audit_only_options[k]; k++)
