@@ -125,6 +125,27 @@ expect 2 "bad block length 500" -- "$HOLDCOUNT" enough "$tmp/u.csv" --rules exac
 expect 2 "need a universe file" -- "$HOLDCOUNT" enough --average-sd 30% --average-correlation 0.2 --rules band
 expect 2 "not both" -- "$HOLDCOUNT" enough "$tmp/u.csv" --average-sd 30%
 expect 2 "unknown option '--bootstrapp'" -- "$HOLDCOUNT" enough "$tmp/u.csv" --bootstrapp 10
+# Summary statistics no universe can have are refused by the same check as
+# `formula` (moments_from_summary), exit 2, nothing on stdout: an average
+# covariance above the average variance (a correlation above 1), and an
+# average correlation below -1/(M-1), the bound below which an equicorrelated
+# covariance matrix of M securities is not positive semi-definite (its
+# eigenvalues are v(1-r) and v(1+(M-1)r); linear algebra, common practice).
+expect 2 "average covariance 0.05 is not a number at most the average variance 0.04" -- \
+	"$HOLDCOUNT" enough --average-variance 0.04 --average-covariance 0.05
+[ -s "$tmp/out" ] && fail "c-bar > v-bar: wrote to stdout: $(cat "$tmp/out")"
+expect 2 "average covariance 0.05 is not a number at most the average variance 0.04" -- \
+	"$HOLDCOUNT" formula --average-variance 0.04 --average-covariance 0.05
+# -0.3 x 0.04 = -0.012 < -0.04/4 = -0.01: impossible for 5 securities
+expect 2 "average covariance -0.012 is below -0.04/(5-1) (an average correlation below -1/4), which no 5 securities can have" -- \
+	"$HOLDCOUNT" enough --average-sd 0.2 --average-correlation -0.3 --securities 5
+[ -s "$tmp/out" ] && fail "correlation below -1/(M-1): wrote to stdout: $(cat "$tmp/out")"
+expect 2 "which no 5 securities can have" -- \
+	"$HOLDCOUNT" formula --average-sd 0.2 --average-correlation -0.3 --securities 5
+# at the bound itself (-1/4 x 0.04 = -0.01) the matrix is singular but valid
+expect 0 "" -- "$HOLDCOUNT" enough --average-sd 0.2 --average-correlation -0.25 --securities 5 --format csv
+expect 2 "a universe of 1 security has nothing to diversify" -- \
+	"$HOLDCOUNT" enough --average-sd 0.2 --average-correlation 0.2 --securities 1
 printf 'date,A,B\n2020-01-31,0.01,abc\n2020-02-29,0.02,0.03\n' >"$tmp/bad.csv"
 expect 3 "bad.csv:2:" -- "$HOLDCOUNT" enough "$tmp/bad.csv"
 expect 4 "" -- "$HOLDCOUNT" enough "$tmp/missing-file.csv"

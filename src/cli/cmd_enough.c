@@ -339,6 +339,7 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 		       struct rule_result *res, size_t *nres)
 {
 	struct rules_input in;
+	struct moments mo;
 	struct hc_error err;
 	int rc;
 
@@ -346,8 +347,11 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	if (rc)
 		return rc;
 	e->m = o->sum.securities;
-	if (e->m == 1)
-		return cli_usage_error("enough", "--securities must be at least 2, found 1");
+	/* The same checks as `formula` (c-bar at most v-bar, c-bar at least
+	 * -v-bar/(M-1), M not 1), by the same function. */
+	hc_error_clear(&err);
+	if (moments_from_summary(&mo, e->vbar, e->cbar, e->m, &err))
+		return cli_fail("enough", &err);
 	e->annualised = cli_given(a, "periods-per-year");
 	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
 	if (!(e->ppy > 0))
@@ -360,7 +364,6 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
-	hc_error_clear(&err);
 	rc = rules_evaluate(cfg, &in, res, nres, &err);
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
