@@ -21,10 +21,20 @@ static const char *const rule_names[RULES_COUNT] = {
 	"shortfall"
 };
 
-static const char *const rule_units[RULES_COUNT] = {
-	"sd a year", "sd reduction a year", "sd a year (quantile)",
-	"return a year", "tracking error a year", "share of portfolios"
+/* What each rule's value measures: [0] annualised, [1] on the inputs' own
+ * scale (cfg->per_period). */
+static const char *const rule_units[2][RULES_COUNT] = {
+	{ "sd a year", "sd reduction a year", "sd a year (quantile)",
+	  "return a year", "tracking error a year", "share of portfolios" },
+	{ "sd per period", "sd reduction per period", "sd per period (quantile)",
+	  "return per period", "tracking error per period", "share of portfolios" }
 };
+
+/* " a year" or " per period" after an amount. */
+static const char *scale_word(int per_period)
+{
+	return per_period ? " per period" : " a year";
+}
 
 void rules_config_init(struct rules_config *cfg)
 {
@@ -309,11 +319,25 @@ static void pct(char *buf, size_t len, double x)
 	snprintf(buf, len, "%.4g%%", 100 * x);
 }
 
+/* An amount with its scale: "2% a year" annualised; "0.02 per period" on
+ * the inputs' own scale, where a percent sign would claim a unit the
+ * inputs may not have. */
+static void amount(char *buf, size_t len, double x, int per_period)
+{
+	if (per_period)
+		snprintf(buf, len, "%.4g per period", x);
+	else
+		snprintf(buf, len, "%.4g%% a year", 100 * x);
+}
+
 /* The parameter text of a rule, e.g. "x=10%" or "premium=5% a year,
- * holding cost=0.05% a year (defaults)". */
+ * holding cost=0.05% a year (defaults)"; amounts "per period" and without
+ * a percent sign when cfg->per_period.  Shares (x, q, p) are shares on any
+ * scale. */
 static void rule_parameters(const struct rules_config *cfg, int rule, char *buf, size_t len)
 {
-	char a[32], b[32];
+	char a[48], b[48];
+	int pp = cfg->per_period;
 
 	switch (rule) {
 	case RULES_NEAR_FLOOR:
@@ -321,7 +345,10 @@ static void rule_parameters(const struct rules_config *cfg, int rule, char *buf,
 		snprintf(buf, len, "x=%s", a);
 		break;
 	case RULES_MARGINAL:
-		snprintf(buf, len, "eps=%.4gpp a year", 100 * cfg->marginal_eps);
+		if (pp)
+			snprintf(buf, len, "eps=%.4g per period", cfg->marginal_eps);
+		else
+			snprintf(buf, len, "eps=%.4gpp a year", 100 * cfg->marginal_eps);
 		break;
 	case RULES_BAND:
 		pct(a, sizeof a, cfg->band_q);
@@ -329,19 +356,19 @@ static void rule_parameters(const struct rules_config *cfg, int rule, char *buf,
 		snprintf(buf, len, "q=%s x=%s", a, b);
 		break;
 	case RULES_COST_BENEFIT:
-		pct(a, sizeof a, cfg->premium);
-		pct(b, sizeof b, cfg->holding_cost);
-		snprintf(buf, len, "premium=%s a year, holding cost=%s a year%s", a, b,
+		amount(a, sizeof a, cfg->premium, pp);
+		amount(b, sizeof b, cfg->holding_cost, pp);
+		snprintf(buf, len, "premium=%s, holding cost=%s%s", a, b,
 			 cfg->cost_defaults ? " (defaults)" : "");
 		break;
 	case RULES_TRACKING_ERROR:
-		pct(a, sizeof a, cfg->te_budget);
-		snprintf(buf, len, "budget=%s a year", a);
+		amount(a, sizeof a, cfg->te_budget, pp);
+		snprintf(buf, len, "budget=%s", a);
 		break;
 	case RULES_SHORTFALL:
-		pct(a, sizeof a, cfg->shortfall_d);
+		amount(a, sizeof a, cfg->shortfall_d, pp);
 		pct(b, sizeof b, cfg->shortfall_p);
-		snprintf(buf, len, "d=%s a year p=%s", a, b);
+		snprintf(buf, len, "d=%s p=%s", a, b);
 		break;
 	default:
 		snprintf(buf, len, "-");
@@ -353,7 +380,8 @@ static void result_init(const struct rules_config *cfg, int rule, struct rule_re
 	memset(res, 0, sizeof *res);
 	res->rule = rule;
 	res->name = rule_names[rule];
-	res->unit = rule_units[rule];
+	res->per_period = cfg->per_period != 0;
+	res->unit = rule_units[res->per_period][rule];
 	res->defined = 1;
 	res->value = NAN;
 	res->threshold = NAN;
@@ -422,7 +450,8 @@ int rules_exact(const struct rules_config *cfg, int rule, double vbar,
 		res->defined = 0;
 		if (rule == RULES_NEAR_FLOOR)
 			snprintf(res->note, sizeof res->note,
-				 "undefined: the floor (average covariance %.4g a year) is not above zero", e.cbar);
+				 "undefined: the floor (average covariance %.4g%s) is not above zero", e.cbar,
+				 scale_word(res->per_period));
 		else
 			snprintf(res->note, sizeof res->note,
 				 "undefined: the universe portfolio has no risk to compare with");
@@ -498,8 +527,8 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	if (!(cbar > 0)) {
 		res->defined = 0;
 		snprintf(res->note, sizeof res->note,
-			 "undefined: the floor (average covariance %.4g a year) is not above zero",
-			 cbar * periods_per_year);
+			 "undefined: the floor (average covariance %.4g%s) is not above zero",
+			 cbar * periods_per_year, scale_word(res->per_period));
 		return HC_OK;
 	}
 	limit = (1 + cfg->band_x) * sqrt(cbar * periods_per_year);
@@ -730,6 +759,16 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 	return 0;
 }
 
+/* The value or threshold of a rule: the column's percent style for yearly
+ * figures and shares, plain for amounts on the inputs' own scale. */
+static void set_amount(struct report_table *t, size_t row, size_t col,
+		       const struct rule_result *res, double x)
+{
+	report_table_set_real(t, row, col, x);
+	if (res->per_period && res->rule != RULES_SHORTFALL)
+		t->cells[row * t->ncols + col].style = REPORT_STYLE_PLAIN;
+}
+
 static int rule_row(struct report_table *t, const struct rule_result *res)
 {
 	size_t row;
@@ -742,14 +781,14 @@ static int rule_row(struct report_table *t, const struct rule_result *res)
 	bad |= report_table_set_text(t, row, 1, res->parameters);
 	if (res->met) {
 		report_table_set_int(t, row, 2, (long long)res->count);
-		report_table_set_real(t, row, 3, res->value);
+		set_amount(t, row, 3, res, res->value);
 	}
 	bad |= set_percentile(t, row, 4, res, res->count_p05);
 	bad |= set_percentile(t, row, 5, res, res->count_p50);
 	bad |= set_percentile(t, row, 6, res, res->count_p95);
 	report_table_set_bool(t, row, 7, res->met);
 	bad |= report_table_set_text(t, row, 8, res->unit);
-	report_table_set_real(t, row, 9, res->threshold);
+	set_amount(t, row, 9, res, res->threshold);
 	if (res->bootstrapped) {
 		report_table_set_int(t, row, 10, (long long)res->replicates);
 		report_table_set_int(t, row, 11, (long long)res->replicates_met);

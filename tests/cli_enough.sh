@@ -115,6 +115,42 @@ grep -q 'not met within the universe of 40 securities' "$tmp/nm.csv" || fail "no
 "$HOLDCOUNT" enough --average-variance 0.0119 --average-covariance -0.0003 --securities 25 --rules near-floor --format csv >"$tmp/un.csv"
 grep -q 'undefined: the floor' "$tmp/un.csv" || fail "undefined: $(cat "$tmp/un.csv")"
 
+# 7b. Units are honest: summary statistics without --periods-per-year stay on
+#     the inputs' scale (Elton & Gruber's averages are in percent squared a
+#     month, from memory), so no rule may claim "a year" or a percent sign for
+#     an amount; with --periods-per-year the same rules say "a year".
+eg="--average-variance 46.619 --average-covariance 7.058 --securities 500 --rules exact"
+"$HOLDCOUNT" enough $eg --format csv >"$tmp/pp.csv"
+"$HOLDCOUNT" enough $eg --format json >"$tmp/pp.json"
+"$HOLDCOUNT" enough $eg >"$tmp/pp.txt"
+"$HOLDCOUNT" enough $eg --periods-per-year 12 --format csv >"$tmp/py.csv"
+"$PYTHON" - "$tmp/pp.csv" "$tmp/pp.json" "$tmp/py.csv" <<'PY' || fail "per-period units: $(cat "$tmp/pp.csv")"
+import sys, csv, json
+rows = list(csv.DictReader(open(sys.argv[1])))
+want = {"near-floor": ("sd per period", "x=10%"),
+        "marginal": ("sd reduction per period", "eps=0.001 per period"),
+        "cost-benefit": ("return per period", "premium=0.05 per period, holding cost=0.0005 per period (defaults)"),
+        "tracking-error": ("tracking error per period", "budget=0.02 per period")}
+assert [r["rule"] for r in rows] == list(want), rows
+for r in rows:
+    assert (r["unit"], r["parameters"]) == want[r["rule"]], r
+    assert "a year" not in r["note"], r
+j = json.load(open(sys.argv[2]))
+assert j["periods_per_year"] is None and j["annualisation"].startswith("not annualised"), j
+assert [(r["unit"], r["parameters"]) for r in j["rules"]] == [want[r["rule"]] for r in j["rules"]], j["rules"]
+# near-floor on these averages, by hand: sqrt(46.619/27 + (26/27) 7.058) = 2.91946 (not 291.9%)
+assert abs(float(rows[0]["value_at_count"]) - 2.9194558) < 1e-6, rows[0]
+yearly = list(csv.DictReader(open(sys.argv[3])))
+assert [r["unit"] for r in yearly] == ["sd a year", "sd reduction a year", "return a year", "tracking error a year"], yearly
+assert yearly[3]["parameters"] == "budget=2% a year", yearly[3]
+PY
+# the table shows the per-period amounts as plain numbers, never as percents
+grep -E '^(near-floor|marginal|cost-benefit|tracking-error) ' "$tmp/pp.txt" | sed 's/x=10%//' | grep -q '%' \
+	&& fail "per-period table formats an amount as a percent: $(cat "$tmp/pp.txt")"
+grep -q '^near-floor .* 2\.91946 .* sd per period' "$tmp/pp.txt" || fail "per-period table: $(cat "$tmp/pp.txt")"
+"$HOLDCOUNT" enough --average-variance 0.0119 --average-covariance -0.0003 --securities 25 --rules near-floor --format csv >"$tmp/un.csv"
+grep -q 'average covariance -0.0003 per period' "$tmp/un.csv" || fail "undefined note's unit: $(cat "$tmp/un.csv")"
+
 # 8. Bad input: one clear message, exit 2.
 expect 2 "bad rule list: 'nearfloor' is not a rule" -- "$HOLDCOUNT" enough "$tmp/u.csv" --rules nearfloor
 expect 2 "bad --band '95%'" -- "$HOLDCOUNT" enough "$tmp/u.csv" --band 95%

@@ -544,6 +544,50 @@ static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
 	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_EUSAGE);
 }
 
+/* Inputs not annualised (per_period): every amount says "per period" and the
+ * text view shows it plain, while shares stay shares. */
+static void test_rules_per_period_units(void **state)
+{
+	struct rules_config cfg;
+	struct rules_input in = { 46.619, 7.058, 500, 1, NULL, 0 };
+	struct rule_result res[RULES_COUNT];
+	struct report *rep;
+	struct report_table *t;
+	struct hc_error err;
+	size_t n;
+
+	rules_config_init(&cfg);
+	cfg.selected = RULES_EXACT_MASK;
+	cfg.per_period = 1;
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(n, 4);
+	assert_string_equal(res[0].parameters, "x=10%");
+	assert_string_equal(res[0].unit, "sd per period");
+	assert_string_equal(res[1].parameters, "eps=0.001 per period");
+	assert_string_equal(res[1].unit, "sd reduction per period");
+	assert_string_equal(res[2].parameters, "premium=0.05 per period, holding cost=0.0005 per period (defaults)");
+	assert_string_equal(res[2].unit, "return per period");
+	assert_string_equal(res[3].parameters, "budget=0.02 per period");
+	assert_string_equal(res[3].unit, "tracking error per period");
+	rep = report_alloc();
+	assert_non_null(rep);
+	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	t = rep->tables[0];
+	assert_int_equal(t->cells[3].style, REPORT_STYLE_PLAIN);      /* value at count */
+	assert_int_equal(t->cells[9].style, REPORT_STYLE_PLAIN);      /* threshold */
+	report_free(rep);
+	/* annualised (the default): a year, percents */
+	cfg.per_period = 0;
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_string_equal(res[3].parameters, "budget=2% a year");
+	assert_string_equal(res[0].unit, "sd a year");
+	rep = report_alloc();
+	assert_non_null(rep);
+	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	assert_int_equal(rep->tables[0]->cells[3].style, REPORT_STYLE_PERCENT);
+	report_free(rep);
+}
+
 static void test_rules_report_contract_columns(void **state)
 {
 	static const char *const keys[] = { "rule", "parameters", "count", "value_at_count",
@@ -620,6 +664,7 @@ int main(void)
 		cmocka_unit_test(test_rules_parse_list_and_config),
 		cmocka_unit_test(test_rules_evaluate_selects_and_reports_sampled_needs),
 		cmocka_unit_test(test_rules_report_contract_columns),
+		cmocka_unit_test(test_rules_per_period_units),
 	};
 
 	gsl_set_error_handler_off();

@@ -11,7 +11,11 @@
  * Units: v-bar and c-bar are per period; every threshold in struct
  * rules_config and every value in struct rule_result is annualised (variance
  * times P, standard deviation times sqrt(P): common practice under serially
- * independent returns), as decimals (0.02 = 2% a year).
+ * independent returns), as decimals (0.02 = 2% a year).  With
+ * rules_config.per_period set (summary statistics or a covariance matrix
+ * given without periods per year, evaluated with P = 1) thresholds and
+ * values are on the inputs' own scale instead, and the unit and parameter
+ * texts say "per period" and carry no percent sign.
  */
 #ifndef HOLDCOUNT_RULES_H
 #define HOLDCOUNT_RULES_H
@@ -75,6 +79,7 @@ struct rules_config {
 	double te_budget;         /* annualised TE, decimal */
 	double shortfall_d;       /* a year, decimal */
 	double shortfall_p;       /* share, 0..1 */
+	int per_period;           /* 1: inputs not annualised; texts say "per period" (default 0) */
 };
 
 /* Every rule selected, every parameter at its default. */
@@ -101,7 +106,8 @@ struct rule_result {
 	size_t count;             /* the smallest such count (when met) */
 	double value;             /* the rule's quantity at count (NaN when not met) */
 	double threshold;         /* what value is compared with (NaN when not defined) */
-	const char *unit;         /* static: what value measures */
+	const char *unit;         /* static: what value measures, "a year" or "per period" */
+	int per_period;           /* copied from rules_config.per_period */
 	char note[RULES_TEXT_MAX];/* "not met within the universe of 40", ... */
 	/* Bootstrap interval (bootstrapped = 1): percentiles of the count over
 	 * the replicates, numpy's linear rule, with an unmet replicate counted as

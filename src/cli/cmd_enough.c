@@ -650,6 +650,9 @@ int cmd_enough(int argc, char **argv)
 	rc = cli_rules_config("enough", &o.rul, &a, have_data, o.uni.covariance, &cfg);
 	if (rc)
 		goto cleanup;
+	/* Summary statistics and a matrix stay on the inputs' scale unless told
+	 * the periods per year: the rules' texts then say "per period". */
+	cfg.per_period = (!have_data || o.uni.covariance) && !cli_given(&a, "periods-per-year");
 	if (have_data && !o.uni.covariance) {
 		rc = enough_file(&o, a.positional[0], &cfg, &u, res, &nres, &r);
 	} else {
