@@ -413,11 +413,8 @@ static int run_sampled(const struct data_run *d, const struct universe *u,
 				res[j] = sr[k];
 	if (d->strat->per_stratum_max) {
 		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
-		size_t top = 0;
+		size_t top = strata_cap_most(d->strat->strata, d->strat->per_stratum_max);
 
-		for (k = 0; k < d->strat->strata->nstrata; k++)
-			top += d->strat->strata->count[k] < d->strat->per_stratum_max
-			     ? d->strat->strata->count[k] : d->strat->per_stratum_max;
 		for (j = 0; j < nres; j++)
 			if ((RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK) && res[j].defined && !res[j].met)
 				snprintf(res[j].note, sizeof res[j].note,
@@ -653,6 +650,11 @@ int cmd_enough(int argc, char **argv)
 	/* Summary statistics and a matrix stay on the inputs' scale unless told
 	 * the periods per year: the rules' texts then say "per period". */
 	cfg.per_period = (!have_data || o.uni.covariance) && !cli_given(&a, "periods-per-year");
+	if ((!have_data || o.uni.covariance) && (o.strat.map || o.strat.per_stratum_max || o.strat.proportional)) {
+		rc = cli_usage_error("enough", "--strata draws from return series, not from %s",
+				     have_data ? "a covariance matrix" : "summary statistics");
+		goto cleanup;
+	}
 	if (have_data && !o.uni.covariance) {
 		rc = enough_file(&o, a.positional[0], &cfg, &u, res, &nres, &r);
 	} else {
