@@ -664,23 +664,23 @@ static int cmp_count(const void *a, const void *b)
 	return (x > y) - (x < y);
 }
 
-/* Linear quantile of sorted counts with not-met (0) as +infinity: NaN when
- * the interpolation touches a not-met replicate. */
-static double count_quantile(const size_t *c, size_t n, double q)
+/*
+ * The pct-th percentile of n sorted counts as an order statistic: the
+ * smallest count c with at least pct% of the replicates at or below it,
+ * c[k-1] with k = ceil(n pct / 100) (at least 1), computed in integers.
+ * That is the inverse of the empirical distribution function (definition 1
+ * of Hyndman & Fan, 1996, "Sample Quantiles in Statistical Packages", The
+ * American Statistician 50(4), from memory; numpy's method='inverted_cdf'), so a percentile is always some replicate's count,
+ * a whole number of holdings.  Not met (0, sorted last) stands above every
+ * count: NaN ("not met") when the percentile falls among those replicates.
+ */
+static double count_percentile(const size_t *c, size_t n, size_t pct)
 {
-	double h = (double)(n - 1) * q, lo = floor(h);
-	size_t i = (size_t)lo;
-	double a, b;
+	size_t k = (n * pct + 99) / 100;
 
-	if (c[i] == 0)
-		return NAN;
-	a = (double)c[i];
-	if (h == lo || i + 1 >= n)
-		return a;
-	if (c[i + 1] == 0)
-		return NAN;
-	b = (double)c[i + 1];
-	return a + (h - lo) * (b - a);
+	if (k < 1)
+		k = 1;
+	return c[k - 1] == 0 ? NAN : (double)c[k - 1];
 }
 
 void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
@@ -695,9 +695,9 @@ void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 	if (nrep == 0)
 		return;
 	qsort(count, nrep, sizeof *count, cmp_count);
-	res->count_p05 = count_quantile(count, nrep, 0.05);
-	res->count_p50 = count_quantile(count, nrep, 0.50);
-	res->count_p95 = count_quantile(count, nrep, 0.95);
+	res->count_p05 = count_percentile(count, nrep, 5);
+	res->count_p50 = count_percentile(count, nrep, 50);
+	res->count_p95 = count_percentile(count, nrep, 95);
 }
 
 int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
@@ -755,7 +755,7 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 		return 0;
 	if (isnan(p))
 		return report_table_set_text(t, row, col, "not met");
-	report_table_set_real(t, row, col, p);
+	report_table_set_int(t, row, col, (long long)p);
 	return 0;
 }
 

@@ -514,8 +514,8 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 	so.threads = 2;
 	assert_int_equal(rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res2, 2, &err), HC_OK);
 	assert_memory_equal(res, res2, sizeof res);
-	/* 5 replicates: the numpy linear percentiles of the sorted counts sit at
-	 * h = 0.2, 2 and 3.8 */
+	/* 5 replicates: the percentiles are the order statistics ceil(5 q),
+	 * the 1st, 3rd and 5th smallest counts (numpy's inverted_cdf) */
 	{
 		struct rule_result ref;
 		size_t *sets[2] = { band, shortfall };
@@ -529,8 +529,8 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 			assert_true(res[k].count_p50 == ref.count_p50 || (isnan(res[k].count_p50) && isnan(ref.count_p50)));
 			assert_true(res[k].count_p05 == ref.count_p05 || (isnan(res[k].count_p05) && isnan(ref.count_p05)));
 		}
-		/* rules_set_interval sorted band (not met last): h = 2 is the
-		 * middle replicate */
+		/* rules_set_interval sorted band (not met last): the 3rd smallest
+		 * is the median */
 		if (band[2] != 0)
 			assert_close(res[0].count_p50, (double)band[2], 0);
 		print_message("band counts %zu %zu %zu %zu %zu\n", band[0], band[1], band[2], band[3], band[4]);

@@ -440,15 +440,97 @@ static void test_rules_universe_return(void **state)
 	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_EDATA);
 }
 
+/* Check one set of replicate counts (0 = not met) against the percentiles
+ * numpy gave for it; NAN expects "not met". */
+static void check_interval(const size_t *counts, size_t n, double p05, double p50, double p95)
+{
+	struct rule_result res;
+	size_t *c = malloc(n * sizeof *c), k, met = 0;
+
+	assert_non_null(c);
+	memcpy(c, counts, n * sizeof *c);
+	for (k = 0; k < n; k++)
+		met += counts[k] != 0;
+	res.rule = RULES_NEAR_FLOOR;
+	rules_set_interval(&res, c, n);
+	assert_true(res.bootstrapped);
+	assert_int_equal(res.replicates, n);
+	assert_int_equal(res.replicates_met, met);
+	if (isnan(p05)) assert_true(isnan(res.count_p05)); else assert_close(res.count_p05, p05, 0);
+	if (isnan(p50)) assert_true(isnan(res.count_p50)); else assert_close(res.count_p50, p50, 0);
+	if (isnan(p95)) assert_true(isnan(res.count_p95)); else assert_close(res.count_p95, p95, 0);
+	free(c);
+}
+
+/* The definition itself, by enumeration: the smallest count c among the
+ * replicates with at least pct% of them at or below c (100 x #{<= c} >=
+ * pct x n, in integers); 0 (not met) is above every count, and NaN when the
+ * percentile falls among the unmet. */
+static double brute_percentile(const size_t *c, size_t n, size_t pct)
+{
+	size_t best = 0, i, j;
+	int found = 0;
+
+	for (i = 0; i < n; i++) {
+		size_t below = 0;
+
+		if (c[i] == 0)
+			continue;
+		for (j = 0; j < n; j++)
+			below += c[j] != 0 && c[j] <= c[i];
+		if (100 * below >= pct * n && (!found || c[i] < best))
+			best = c[i], found = 1;
+	}
+	return found ? (double)best : NAN;
+}
+
 static void test_rules_bootstrap_percentiles(void **state)
 {
 	enum { B = 101 };
+	/* numpy 1.24.2, np.percentile(c, [5, 50, 95], method='inverted_cdf') with
+	 * not met as np.inf (run while writing this test; the linear default
+	 * gives 18.05, 27.4 and 28.55 / 31.5 where these differ) */
+	static const size_t a[20] = { 14, 15, 14, 16, 13, 15, 17, 14, 18, 15, 14, 16, 15, 13, 19, 14, 15, 16, 14, 17 };
+	static const size_t b[33] = { 23, 21, 0, 22, 25, 21, 24, 0, 22, 23, 26, 21, 22, 24, 23, 22, 21,
+				      25, 22, 23, 24, 22, 23, 21, 27, 22, 23, 0, 24, 22, 21, 23, 25 };
+	static const size_t d[33] = { 23, 21, 0, 22, 25, 21, 24, 20, 22, 23, 26, 21, 22, 24, 23, 22, 21,
+				      25, 22, 23, 24, 22, 23, 21, 27, 22, 23, 28, 24, 22, 21, 23, 25 };
+	static const size_t e[12] = { 31, 29, 33, 30, 0, 28, 35, 0, 0, 32, 30, 29 };
 	double vbar[B], cbar[B];
-	size_t k, counts[B];
+	size_t k, counts[301];
 	struct rules_config cfg;
 	struct rule_result res[2];
 	struct hc_error err;
+	uint64_t st = 2385;
 
+	check_interval(a, 20, 13, 15, 18);
+	check_interval(b, 33, 21, 23, NAN);     /* 3 of 33 not met: over 5% */
+	check_interval(d, 33, 21, 23, 28);      /* 1 of 33 not met: the 95th is met */
+	check_interval(e, 12, 28, 31, NAN);
+	/* every percentile is some replicate's count: against the definition by
+	 * enumeration on 400 random sets of 1..300 replicates, some not met */
+	for (k = 0; k < 400; k++) {
+		size_t n = 1 + sampler_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
+		struct rule_result r;
+
+		assert_non_null(c);
+		for (j = 0; j < n; j++) {
+			uint64_t z = sampler_splitmix64(&st);
+			c[j] = z % 23 == 0 ? 0 : 9 + z % 41;
+		}
+		memcpy(counts, c, n * sizeof *c);
+		r.rule = RULES_MARGINAL;
+		rules_set_interval(&r, c, n);
+		{
+			double w05 = brute_percentile(counts, n, 5), w50 = brute_percentile(counts, n, 50);
+			double w95 = brute_percentile(counts, n, 95);
+
+			assert_true(r.count_p05 == w05 || (isnan(r.count_p05) && isnan(w05)));
+			assert_true(r.count_p50 == w50 || (isnan(r.count_p50) && isnan(w50)));
+			assert_true(r.count_p95 == w95 || (isnan(r.count_p95) && isnan(w95)));
+		}
+		free(c);
+	}
 	rules_config_init(&cfg);
 	/* replicate k has c-bar chosen so that the near-floor count is
 	 * ceil((v - c)/(0.21 c)): with v = 0.01 and c = v / (1 + 0.21 n_k - 0.5 x 0.21)
@@ -466,8 +548,8 @@ static void test_rules_bootstrap_percentiles(void **state)
 	assert_false(res[1].bootstrapped);
 	assert_true(res[0].bootstrapped);
 	assert_int_equal(res[0].replicates_met, B);
-	/* numpy linear percentiles of 11,11,11,11,12,...,36 (101 values):
-	 * index 5 -> 12, index 50 -> 23, index 95 -> 34 (h = 100 q) */
+	/* order statistics of 11,11,11,11,12,...,36 (101 values): the 6th,
+	 * 51st and 96th smallest (ceil(101 q)), 12, 23 and 34 (by hand) */
 	assert_close(res[0].count_p05, 12, 0);
 	assert_close(res[0].count_p50, 23, 0);
 	assert_close(res[0].count_p95, 34, 0);
@@ -478,7 +560,7 @@ static void test_rules_bootstrap_percentiles(void **state)
 	assert_int_equal(res[0].replicates_met, B - 6);
 	assert_true(isnan(res[0].count_p95));
 	assert_false(isnan(res[0].count_p50));
-	/* five of 101: the 95th percentile index 95 is the last met count */
+	/* five of 101: the 96th smallest is the largest met count */
 	for (k = 0; k < B; k++)
 		counts[k] = k < 5 ? 0 : 20 + k % 7;
 	rules_set_interval(&res[0], counts, B);
@@ -620,7 +702,12 @@ static void test_rules_report_contract_columns(void **state)
 	/* near-floor: count 20, interval with a "not met" 95th percentile */
 	assert_int_equal(t->cells[2].kind, REPORT_INT);
 	assert_int_equal(t->cells[2].integer, 20);
-	assert_int_equal(t->cells[4].kind, REPORT_REAL);
+	/* the percentiles are whole counts: the 2nd and 11th smallest of
+	 * 17 x4, 18 x3, 19 x3, 20 x4, 21 x4 (by hand, ceil(21 q)) */
+	assert_int_equal(t->cells[4].kind, REPORT_INT);
+	assert_int_equal(t->cells[4].integer, 17);
+	assert_int_equal(t->cells[5].kind, REPORT_INT);
+	assert_int_equal(t->cells[5].integer, 20);
 	assert_int_equal(t->cells[6].kind, REPORT_TEXT);
 	assert_string_equal(t->cells[6].text, "not met");
 	assert_int_equal(t->cells[10].integer, 21);

@@ -109,10 +109,13 @@ struct rule_result {
 	const char *unit;         /* static: what value measures, "a year" or "per period" */
 	int per_period;           /* copied from rules_config.per_period */
 	char note[RULES_TEXT_MAX];/* "not met within the universe of 40", ... */
-	/* Bootstrap interval (bootstrapped = 1): percentiles of the count over
-	 * the replicates, numpy's linear rule, with an unmet replicate counted as
-	 * larger than every count; a percentile that touches an unmet replicate
-	 * is NaN and printed "not met". */
+	/* Bootstrap interval (bootstrapped = 1): the 5th, 50th and 95th
+	 * percentiles of the count over the replicates as order statistics --
+	 * the smallest count with at least that share of replicates at or below
+	 * it (numpy's method='inverted_cdf'), so always a whole number of
+	 * holdings some replicate needed -- with an unmet replicate counted as
+	 * larger than every count; a percentile that falls among the unmet
+	 * replicates is NaN and printed "not met". */
 	int bootstrapped;
 	size_t replicates;
 	size_t replicates_met;
@@ -207,6 +210,7 @@ int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 /*
  * Set res's interval from per replicate counts: count[k] is the count of
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
+ * The one place every interval (enough, rolling, report) is computed.
  */
 void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
 
