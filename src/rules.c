@@ -466,22 +466,88 @@ int rules_exact(const struct rules_config *cfg, int rule, double vbar,
 
 /* ---- sampled rules ---------------------------------------------------- */
 
-static int cmp_double(const void *a, const void *b)
+/*
+ * The k-th smallest of a[0..n-1] (k < n), rearranging a so that every
+ * element after position k is at least a[k]: Hoare's selection algorithm
+ * (Hoare, 1961, "Algorithm 65: Find", Communications of the ACM 4(7)) with
+ * a median-of-three pivot, O(n) expected instead of a sort's O(n log n).
+ */
+static double select_kth(double *a, size_t n, size_t k)
 {
-	double x = *(const double *)a, y = *(const double *)b;
+	size_t lo = 0, hi = n - 1;
 
-	return (x > y) - (x < y);
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2, i = lo, j = hi;
+		double pivot, tmp;
+
+		if (a[mid] < a[lo]) tmp = a[mid], a[mid] = a[lo], a[lo] = tmp;
+		if (a[hi] < a[lo]) tmp = a[hi], a[hi] = a[lo], a[lo] = tmp;
+		if (a[hi] < a[mid]) tmp = a[hi], a[hi] = a[mid], a[mid] = tmp;
+		pivot = a[mid];
+		/* a[lo] <= pivot <= a[hi] stop both scans inside [lo, hi] */
+		for (;;) {
+			while (a[i] < pivot)
+				i++;
+			while (a[j] > pivot)
+				j--;
+			if (i >= j)
+				break;
+			tmp = a[i], a[i] = a[j], a[j] = tmp;
+			i++;
+			j--;
+		}
+		/* now a[lo..j] <= pivot <= a[j+1..hi] (i > j), or i == j at a
+		 * pivot-valued element with the same split around it */
+		if (i == j) {
+			if (k == j)
+				return a[k];
+			if (k < j)
+				hi = j - 1;
+			else
+				lo = j + 1;
+		} else if (k <= j)
+			hi = j;
+		else
+			lo = j + 1;
+	}
+	return a[k];
 }
 
-/* numpy's default (linear) quantile of sorted x[0..n-1]. */
-static double quantile_sorted(const double *x, size_t n, double q)
+/* A sampled variance as an annualised sd (0 for a variance of 0 or below);
+ * non-decreasing in v, so it maps order statistics to order statistics. */
+static double annual_sd(double v, double periods_per_year)
 {
-	double h = (double)(n - 1) * q, lo = floor(h);
-	size_t i = (size_t)lo;
+	v *= periods_per_year;
+	return v > 0 ? sqrt(v) : 0.0;
+}
 
+/* numpy's default (linear) q-quantile of the annualised sd of column j of
+ * r: x_i + (h - i)(x_{i+1} - x_i) with h = (K - 1) q, from the two order
+ * statistics found by selection on the variances.  work holds r->paths. */
+static double column_sd_quantile(const struct sampler_result *r, size_t j, double ppy,
+				 double q, double *work)
+{
+	size_t k, n = r->paths, i;
+	double h = (double)(n - 1) * q, lo = floor(h), a, b;
+
+	for (k = 0; k < n; k++)
+		work[k] = r->variance[k * r->nsizes + j];
+	i = (size_t)lo;
 	if (i + 1 >= n)
-		return x[n - 1];
-	return x[i] + (h - lo) * (x[i + 1] - x[i]);
+		return annual_sd(select_kth(work, n, n - 1), ppy);
+	a = select_kth(work, n, i);
+	b = work[i + 1];
+	for (k = i + 2; k < n; k++)
+		if (work[k] < b)
+			b = work[k];
+	a = annual_sd(a, ppy);
+	b = annual_sd(b, ppy);
+	return a + (h - lo) * (b - a);
+}
+
+static int size_feasible(const struct sampler_result *r, size_t j)
+{
+	return !r->feasible || r->feasible[j];
 }
 
 static int sizes_consecutive(const struct sampler_result *r)
@@ -518,7 +584,7 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	       struct hc_error *err)
 {
 	double *sd, limit;
-	size_t k, j;
+	size_t j;
 	int status;
 
 	if ((status = check_sampled(r, err)) != HC_OK)
@@ -536,21 +602,19 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	sd = hc_malloc(r->paths * sizeof *sd);
 	if (!sd)
 		return hc_error(err, HC_ENOMEM, "out of memory for the band rule");
-	for (j = 0; j < r->nsizes && !res->met; j++) {
+	/* Settled, not first crossed: from the largest size down to the last
+	 * one that fails (see rules.h). */
+	for (j = r->nsizes; j-- > 0;) {
 		double qv;
 
-		for (k = 0; k < r->paths; k++) {
-			double v = r->variance[k * r->nsizes + j] * periods_per_year;
-
-			sd[k] = v > 0 ? sqrt(v) : 0.0;
-		}
-		qsort(sd, r->paths, sizeof *sd, cmp_double);
-		qv = quantile_sorted(sd, r->paths, cfg->band_q);
-		if (qv <= limit) {
-			res->met = 1;
-			res->count = r->sizes[j];
-			res->value = qv;
-		}
+		if (!size_feasible(r, j))
+			continue;
+		qv = column_sd_quantile(r, j, periods_per_year, cfg->band_q, sd);
+		if (!(qv <= limit))
+			break;
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = qv;
 	}
 	hc_free(sd);
 	if (!res->met)
@@ -573,19 +637,21 @@ int rules_shortfall(const struct rules_config *cfg,
 		return hc_error(err, HC_EUSAGE, "the shortfall rule needs sampled returns");
 	result_init(cfg, RULES_SHORTFALL, res);
 	res->threshold = cfg->shortfall_p;
-	for (j = 0; j < r->nsizes; j++) {
+	/* Settled, not first crossed, as the band (see rules.h). */
+	for (j = r->nsizes; j-- > 0;) {
 		size_t behind = 0;
 		double share;
 
+		if (!size_feasible(r, j))
+			continue;
 		for (k = 0; k < r->paths; k++)
 			behind += r->annual_return[k * r->nsizes + j] < cut;
 		share = (double)behind / (double)r->paths;
-		if (share < cfg->shortfall_p) {
-			res->met = 1;
-			res->count = r->sizes[j];
-			res->value = share;
+		if (!(share < cfg->shortfall_p))
 			break;
-		}
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = share;
 	}
 	if (!res->met)
 		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");

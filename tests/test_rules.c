@@ -325,11 +325,22 @@ static void free_fake(struct sampler_result *r)
 	free(r);
 }
 
+/*
+ * The band rule against GSL: every size's q-quantile of sampled sd by
+ * gsl_sort and gsl_stats_quantile_from_sorted_data (documented as
+ * (1 - d) x_i + d x_{i+1} with i = floor((n-1) f), numpy's default), then
+ * the settled count -- the smallest size from which every larger sampled
+ * size meets the limit -- by a scan written here.  Several quantiles,
+ * including the top order statistic (q so close to 1 that i = n - 1), so
+ * that the library's selection algorithm is checked against a sort.
+ */
 static void test_rules_band_matches_gsl_quantile(void **state)
 {
 	enum { K = 301, NS = 80 };
-	size_t sizes[NS], j, k, expect = 0;
-	double v = 0.0117, c = 0.0023, sd[K], qv = NAN, limit;
+	static const double qs[] = { 0.9, 0.5, 0.95, 0.737, 0.99, 0.9999 };
+	static const double xs[] = { 0.10, 0.066, 0.123, 0.088, 0.148, 0.20 };
+	size_t sizes[NS], j, k, expect, iq;
+	double v = 0.0117, c = 0.0023, sd[K], qv[NS], limit;
 	struct sampler_result *r;
 	struct rules_config cfg;
 	struct rule_result res;
@@ -339,24 +350,27 @@ static void test_rules_band_matches_gsl_quantile(void **state)
 		sizes[j] = j + 1;
 	r = fake_sampled(K, NS, sizes, v, c);
 	rules_config_init(&cfg);
-	cfg.band_q = 0.9;
-	/* the reference: GSL's gsl_stats_quantile_from_sorted_data, documented
-	 * as (1 - d) x_i + d x_{i+1} with i = floor((n-1) f), numpy's default */
-	limit = 1.1 * sqrt(12 * c);
-	for (j = 0; j < NS && !expect; j++) {
-		for (k = 0; k < K; k++)
-			sd[k] = sqrt(12 * r->variance[k * NS + j]);
-		gsl_sort(sd, 1, K);
-		qv = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.9);
-		if (qv <= limit)
-			expect = sizes[j];
+	for (iq = 0; iq < sizeof qs / sizeof qs[0]; iq++) {
+		cfg.band_q = qs[iq];
+		cfg.band_x = xs[iq];
+		limit = (1 + xs[iq]) * sqrt(12 * c);
+		for (j = 0; j < NS; j++) {
+			for (k = 0; k < K; k++)
+				sd[k] = sqrt(12 * r->variance[k * NS + j]);
+			gsl_sort(sd, 1, K);
+			qv[j] = gsl_stats_quantile_from_sorted_data(sd, 1, K, qs[iq]);
+		}
+		for (expect = NS; expect > 0 && qv[expect - 1] <= limit; expect--)
+			;
+		/* expect is now the index of the settled count (NS: not met) */
+		assert_true(expect > 3 && expect < NS - 3);
+		assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
+		assert_true(res.met);
+		assert_int_equal(res.count, sizes[expect]);
+		assert_close(res.value, qv[expect], 1e-15);
+		assert_string_equal(res.note, "");
+		print_message("band q=%g x=%g: settled at %zu\n", qs[iq], xs[iq], res.count);
 	}
-	assert_true(expect > 5 && expect < NS);
-	assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
-	assert_true(res.met);
-	assert_int_equal(res.count, expect);
-	assert_close(res.value, qv, 1e-15);
-	assert_string_equal(res.note, "");
 	/* a floor at zero leaves the band undefined */
 	assert_int_equal(rules_band(&cfg, r, 0.0, 12, &res, &err), HC_OK);
 	assert_false(res.defined);
@@ -374,8 +388,8 @@ static void test_rules_band_matches_gsl_quantile(void **state)
 static void test_rules_shortfall_counts_trailing_share(void **state)
 {
 	enum { K = 400, NS = 60 };
-	size_t sizes[NS], j, k, expect = 0;
-	double share = NAN;
+	size_t sizes[NS], j, k, expect;
+	double share[NS];
 	struct sampler_result *r;
 	struct rules_config cfg;
 	struct rule_result res;
@@ -387,20 +401,21 @@ static void test_rules_shortfall_counts_trailing_share(void **state)
 	rules_config_init(&cfg);
 	cfg.shortfall_d = 0.0215;
 	/* the definition (after Domian, Louton & Racine, 2007): share of
-	 * portfolios with annual return below universe - d, first below p */
-	for (j = 0; j < NS && !expect; j++) {
+	 * portfolios with annual return below universe - d, below p from the
+	 * settled size on (every larger size too) */
+	for (j = 0; j < NS; j++) {
 		size_t behind = 0;
 
 		for (k = 0; k < K; k++)
 			behind += r->annual_return[k * NS + j] < 0.0843 - 0.0215;
-		share = behind / (double)K;
-		if (share < 0.10)
-			expect = sizes[j];
+		share[j] = behind / (double)K;
 	}
+	for (expect = NS; expect > 0 && share[expect - 1] < 0.10; expect--)
+		;
 	assert_true(expect > 3 && expect < NS);
 	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
-	assert_int_equal(res.count, expect);
-	assert_close(res.value, share, 0);
+	assert_int_equal(res.count, sizes[expect]);
+	assert_close(res.value, share[expect], 0);
 	/* p so small that no size reaches it */
 	cfg.shortfall_p = 1e-9;
 	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
@@ -410,6 +425,85 @@ static void test_rules_shortfall_counts_trailing_share(void **state)
 	r->annual_return = NULL;
 	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_EUSAGE);
 	free_fake(r);
+}
+
+/*
+ * A constructed sample whose criterion dips below the limit and back above
+ * before it settles: the sampled rules must return the smallest size from
+ * which it holds at every larger size, not the first crossing.  Five paths
+ * a size; sizes 1..10.  Band (q = 50%, x = 10%, P = 1, c-bar = 0.01, so the
+ * limit is 0.11): the median sd per size is set to 0.16, 0.14, 0.12, 0.10
+ * (a dip), 0.115, 0.105, 0.104, 0.103, 0.102, 0.101 -- settled at 6, first
+ * crossing at 4.  Shortfall (cut = 0.05 - 0.01, p = 30%): 3, 2, 1, 0 (dip),
+ * 2, 1, 1, 0, 1, 0 portfolios of 5 behind -- settled at 6.  Then sizes 9
+ * and 10 made infeasible (a stratified cap): still 6, judged on the
+ * feasible sizes; and a failure at the top: not met.
+ */
+static void test_rules_sampled_rules_settle(void **state)
+{
+	enum { K = 5, NS = 10 };
+	static const double median[NS] = { 0.16, 0.14, 0.12, 0.10, 0.115, 0.105, 0.104, 0.103, 0.102, 0.101 };
+	static const size_t behind[NS] = { 3, 2, 1, 0, 2, 1, 1, 0, 1, 0 };
+	static const double spread[K] = { -0.03, -0.01, 0, 0.02, 0.05 };  /* path k's sd offset */
+	struct sampler_result r;
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+	size_t sizes[NS], j, k;
+	double variance[K * NS], ret[K * NS];
+	unsigned char feasible[NS];
+
+	memset(&r, 0, sizeof r);
+	for (j = 0; j < NS; j++) {
+		sizes[j] = j + 1;
+		feasible[j] = 1;
+		for (k = 0; k < K; k++) {
+			double sdv = median[j] + spread[k];
+
+			variance[k * NS + j] = sdv * sdv;
+			/* the first behind[j] paths trail the cut of 0.04 */
+			ret[k * NS + j] = k < behind[j] ? 0.0317 - 0.001 * (double)k : 0.0581 + 0.002 * (double)k;
+		}
+	}
+	r.paths = K;
+	r.nsizes = NS;
+	r.sizes = sizes;
+	r.variance = variance;
+	r.annual_return = ret;
+	r.feasible = feasible;
+	rules_config_init(&cfg);
+	cfg.band_q = 0.5;
+	cfg.band_x = 0.10;
+	cfg.shortfall_d = 0.01;
+	cfg.shortfall_p = 0.30;
+	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, 6);
+	assert_close(res.value, 0.105, 1e-15);
+	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, 6);
+	assert_close(res.value, 0.2, 0);
+	/* sizes 9 and 10 infeasible (their cells as strata_run leaves them) */
+	feasible[8] = feasible[9] = 0;
+	for (k = 0; k < K; k++) {
+		variance[k * NS + 8] = variance[k * NS + 9] = INFINITY;
+		ret[k * NS + 8] = ret[k * NS + 9] = -1;
+	}
+	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_int_equal(res.count, 6);
+	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_int_equal(res.count, 6);
+	/* the largest feasible size fails: not met, whatever came before */
+	for (k = 0; k < K; k++)
+		variance[k * NS + 7] = 0.2 * 0.2;
+	for (k = 0; k < 2; k++)
+		ret[k * NS + 7] = 0.0111;
+	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_false(res.met);
+	assert_true(isnan(res.value));
+	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_false(res.met);
 }
 
 static void test_rules_universe_return(void **state)
@@ -746,6 +840,7 @@ int main(void)
 		cmocka_unit_test(test_rules_realistic_averages_land_in_the_tens),
 		cmocka_unit_test(test_rules_band_matches_gsl_quantile),
 		cmocka_unit_test(test_rules_shortfall_counts_trailing_share),
+		cmocka_unit_test(test_rules_sampled_rules_settle),
 		cmocka_unit_test(test_rules_universe_return),
 		cmocka_unit_test(test_rules_bootstrap_percentiles),
 		cmocka_unit_test(test_rules_parse_list_and_config),

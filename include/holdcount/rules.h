@@ -32,10 +32,10 @@
 enum rules_id {
 	RULES_NEAR_FLOOR = 0,     /* sqrt(E[s2(N)]) <= (1+x) sqrt(floor) */
 	RULES_MARGINAL = 1,       /* sqrt(E[s2(N)]) - sqrt(E[s2(N+1)]) < eps */
-	RULES_BAND = 2,           /* q-quantile of sampled sigma(N) <= (1+x) sqrt(floor) */
+	RULES_BAND = 2,           /* q-quantile of sampled sigma(n) <= (1+x) sqrt(floor), every sampled n >= N */
 	RULES_COST_BENEFIT = 3,   /* premium (s(N) - s(N+1)) / s_universe < holding cost */
 	RULES_TRACKING_ERROR = 4, /* sqrt(E[TE2(N)]) <= budget */
-	RULES_SHORTFALL = 5,      /* share trailing the universe by more than d < p */
+	RULES_SHORTFALL = 5,      /* share trailing the universe by more than d < p, every sampled n >= N */
 	RULES_COUNT = 6
 };
 
@@ -150,17 +150,30 @@ int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
 		      size_t *count);
 
 /*
+ * The sampled rules (band, shortfall) return the count from which the rule
+ * is settled: the smallest sampled N such that the criterion holds at N and
+ * at every larger sampled size (sizes r->feasible marks infeasible, under a
+ * stratified cap, are not part of the sample and are passed over).  A first
+ * crossing alone is not enough: the sampled quantile or share wanders with
+ * sampling noise, so it can dip under the limit once and come back above
+ * it; such a dip does not set the count.  Not met when the criterion fails
+ * at the largest feasible sampled size.  Under rules_sampled's stages,
+ * "every larger size" means every size up to the last stage sampled.
+ *
  * Band rule from sampled variances: r must hold sizes in ascending order
  * (1..M consecutive for "the smallest count"; otherwise the smallest grid
- * size meeting it, said in the note).  cbar per period.  Allocates one
- * workspace of r->paths doubles.
+ * size from which the rule is settled, said in the note).  The q-quantile
+ * of each size's sd is numpy's linear one, from two order statistics found
+ * by selection.  cbar per period.  Allocates one workspace of r->paths
+ * doubles.
  */
 int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	       double cbar, double periods_per_year, struct rule_result *res,
 	       struct hc_error *err);
 
 /* Shortfall rule from sampled annual returns (r->annual_return required)
- * against the universe's compound annualised return. */
+ * against the universe's compound annualised return: settled, as above,
+ * where the share trailing by more than d stays below p. */
 int rules_shortfall(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err);
