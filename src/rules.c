@@ -277,6 +277,11 @@ static int exact_count(const struct rules_config *cfg, int rule,
 		n = first_small_step(e, cfg->marginal_eps);
 		break;
 	case RULES_COST_BENEFIT: {
+		/* After Statman (1987), "How Many Stocks Make a Diversified
+		 * Portfolio?", Journal of Financial and Quantitative Analysis
+		 * 22(3): the universe portfolio levered to sigma(N) earns
+		 * premium sigma(N)/sigma_u, so the (N+1)-th holding is worth
+		 * premium (s(N) - s(N+1))/s_u a year against its yearly cost. */
 		double su = universe_sd(e);
 
 		if (!(su > 0))
@@ -623,6 +628,11 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	return HC_OK;
 }
 
+/* After Domian, Louton & Racine (2007), "Diversification in Portfolios of
+ * Individual Stocks: 100 Stocks Are Not Enough", The Financial Review 42(4):
+ * diversification judged by the share of random portfolios whose compound
+ * return over the sample ends more than d a year behind the universe's,
+ * rather than by sigma. */
 int rules_shortfall(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err)

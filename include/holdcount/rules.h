@@ -8,6 +8,13 @@
  * replicate can evaluate them in O(log M) or O(M) without allocating.
  * Sampled rules read a sampler_result over consecutive sizes.
  *
+ * Sources: cost-benefit is after Statman (1987), "How Many Stocks Make a
+ * Diversified Portfolio?", Journal of Financial and Quantitative Analysis
+ * 22(3); shortfall after Domian, Louton & Racine (2007), "Diversification
+ * in Portfolios of Individual Stocks: 100 Stocks Are Not Enough", The
+ * Financial Review 42(4).  The other rules and every default are common
+ * practice with no single source (docs/enough.md).
+ *
  * Units: v-bar and c-bar are per period; every threshold in struct
  * rules_config and every value in struct rule_result is annualised (variance
  * times P, standard deviation times sqrt(P): common practice under serially
