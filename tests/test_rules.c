@@ -1,4 +1,29 @@
-/* Unit tests for the rules for "enough holdings" (rules.h). */
+/*
+ * Unit tests for the rules for "enough holdings" (rules.h).
+ *
+ * Outside references, each named again beside its check:
+ *   - the rules' inequalities scanned count by count in long double (the
+ *     issue's near-floor and tracking-error inequalities, the marginal and
+ *     cost-benefit steps written the obvious way), against the library's
+ *     closed forms and bisection;
+ *   - Elton & Gruber (1977), "Risk Reduction and Portfolio Size: An
+ *     Analytical Solution", Journal of Business 50(4): averages 46.619 and
+ *     7.058 (from memory, design.md section 11), near-floor 27 at 10% and
+ *     55 at 5%;
+ *   - Statman (1987), Journal of Financial and Quantitative Analysis 22(3),
+ *     for the cost-benefit rule's form; Domian, Louton & Racine (2007), The
+ *     Financial Review 42(4), for the shortfall rule's definition;
+ *   - common practice, no single source: realistic averages put near-floor
+ *     and marginal in the tens (the "about 20 holdings" rule of thumb, often
+ *     traced to Evans & Archer, 1968, Journal of Finance 23(5), and Statman,
+ *     1987; from memory);
+ *   - GSL's gsl_sort and gsl_stats_quantile_from_sorted_data (numpy's
+ *     linear quantile) for the band rule's quantile at every size;
+ *   - numpy 1.24.2's np.percentile(..., method='inverted_cdf') for the
+ *     bootstrap percentiles, and the definition (the smallest count with at
+ *     least p of the replicates at or below it) by enumeration;
+ *   - compound returns worked by hand for the universe return.
+ */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
