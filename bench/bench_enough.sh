@@ -4,7 +4,9 @@
 #
 # Usage: bench/bench_enough.sh [BUILD_DIR]   (default: build)
 # Runs each timing 3 times; the machine is shared, so read the best and the
-# spread, not one figure.  Prints peak RSS from /usr/bin/time when present.
+# spread, not one figure.  Prints CPU time and peak RSS from /usr/bin/time
+# when present (CPU time is the steadier figure when other jobs hold a core).
+# The machine's load average is printed first.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 root="$(cd "$here/.." && pwd)"
@@ -41,7 +43,7 @@ timeit() {
 	local label="$1"; shift
 	for run in 1 2 3; do
 		if [ -x /usr/bin/time ]; then
-			/usr/bin/time -f "$label run $run: %e s wall, %M KiB peak RSS" "$@" >/dev/null
+			/usr/bin/time -f "$label run $run: %e s wall, %U s user + %S s sys cpu, %M KiB peak RSS" "$@" >/dev/null
 		else
 			local s e
 			s=$(date +%s.%N); "$@" >/dev/null; e=$(date +%s.%N)
@@ -50,7 +52,7 @@ timeit() {
 	done
 }
 
-echo "holdcount: $("$bin" --version | head -1); threads: ${HOLDCOUNT_THREADS:-all} of $(nproc) cores"
+echo "holdcount: $("$bin" --version | head -1); threads: ${HOLDCOUNT_THREADS:-all} of $(nproc) cores; load $(cut -d' ' -f1-3 /proc/loadavg)"
 timeit "exact rules, --bootstrap 1000" "$bin" enough "$data" --rules exact --bootstrap 1000 --seed 1 --format csv --quiet
 timeit "all rules, --paths 1000, --bootstrap 1000" "$bin" enough "$data" --paths 1000 --bootstrap 1000 --seed 1 --format csv --quiet
 timeit "all rules, default --paths 10000, --bootstrap 1000" "$bin" enough "$data" --bootstrap 1000 --seed 1 --format csv --quiet

@@ -2,6 +2,13 @@
  * bootstrap.c - moving-block and stationary bootstrap of periods, with each
  * replicate's average variance and covariance in O(T^2) (or O(MT)) from
  * sums computed once, never from an M x M covariance matrix.
+ *
+ * Methods: the moving-block bootstrap of Kuensch (1989), "The Jackknife and
+ * the Bootstrap for General Stationary Observations", Annals of Statistics
+ * 17(3); the stationary bootstrap of Politis & Romano (1994), "The
+ * Stationary Bootstrap", Journal of the American Statistical Association
+ * 89(428).  Block length round(T^(1/3)) by default: common practice for
+ * its order, no single source.
  */
 #include "holdcount/bootstrap.h"
 

@@ -145,8 +145,9 @@ int moments_from_summary(struct moments *mo, double vbar, double cbar,
 	 * semi-definite only when cbar >= -vbar/(M-1). */
 	if (m > 1 && cbar < -vbar / (double)(m - 1))
 		return hc_error(err, HC_EUSAGE,
-				"average covariance %g is below -%g/(%zu-1), which no %zu securities can have",
-				cbar, vbar, m, m);
+				"average covariance %g is below -%g/(%zu-1) (an average correlation below -1/%zu), "
+				"which no %zu securities can have",
+				cbar, vbar, m, m - 1, m);
 	if (m == 0 && cbar < 0)
 		return hc_error(err, HC_EUSAGE,
 				"average covariance %g is negative, which no unbounded universe can have", cbar);

@@ -498,6 +498,20 @@ static int window_note(struct report_table *t, size_t row, size_t col,
 	return buf[0] ? report_table_set_text(t, row, col, buf) : 0;
 }
 
+/* A count percentile as enough prints it (rules_set_interval): a whole
+ * count, "not met" where it falls among replicates that never meet the
+ * rule, empty without a bootstrap. */
+static int set_percentile(struct report_table *t, size_t row, size_t col,
+			  const struct rule_result *rr, double p)
+{
+	if (!rr->bootstrapped)
+		return 0;
+	if (isnan(p))
+		return report_table_set_text(t, row, col, "not met");
+	report_table_set_int(t, row, col, (long long)p);
+	return 0;
+}
+
 static int add_row(struct report_table *t, const struct rolling_result *r,
 		   const struct rolling_window *w)
 {
@@ -529,9 +543,9 @@ static int add_row(struct report_table *t, const struct rolling_result *r,
 			c++;
 			if (!r->replicates)
 				continue;
-			report_table_set_real(t, row, c++, rr->bootstrapped ? rr->count_p05 : NAN);
-			report_table_set_real(t, row, c++, rr->bootstrapped ? rr->count_p50 : NAN);
-			report_table_set_real(t, row, c++, rr->bootstrapped ? rr->count_p95 : NAN);
+			rc |= set_percentile(t, row, c++, rr, rr->count_p05);
+			rc |= set_percentile(t, row, c++, rr, rr->count_p50);
+			rc |= set_percentile(t, row, c++, rr, rr->count_p95);
 		}
 	}
 	report_table_set_int(t, row, c++, (long long)w->dropped);

@@ -21,10 +21,20 @@ static const char *const rule_names[RULES_COUNT] = {
 	"shortfall"
 };
 
-static const char *const rule_units[RULES_COUNT] = {
-	"sd a year", "sd reduction a year", "sd a year (quantile)",
-	"return a year", "tracking error a year", "share of portfolios"
+/* What each rule's value measures: [0] annualised, [1] on the inputs' own
+ * scale (cfg->per_period). */
+static const char *const rule_units[2][RULES_COUNT] = {
+	{ "sd a year", "sd reduction a year", "sd a year (quantile)",
+	  "return a year", "tracking error a year", "share of portfolios" },
+	{ "sd per period", "sd reduction per period", "sd per period (quantile)",
+	  "return per period", "tracking error per period", "share of portfolios" }
 };
+
+/* " a year" or " per period" after an amount. */
+static const char *scale_word(int per_period)
+{
+	return per_period ? " per period" : " a year";
+}
 
 void rules_config_init(struct rules_config *cfg)
 {
@@ -267,6 +277,11 @@ static int exact_count(const struct rules_config *cfg, int rule,
 		n = first_small_step(e, cfg->marginal_eps);
 		break;
 	case RULES_COST_BENEFIT: {
+		/* After Statman (1987), "How Many Stocks Make a Diversified
+		 * Portfolio?", Journal of Financial and Quantitative Analysis
+		 * 22(3): the universe portfolio levered to sigma(N) earns
+		 * premium sigma(N)/sigma_u, so the (N+1)-th holding is worth
+		 * premium (s(N) - s(N+1))/s_u a year against its yearly cost. */
 		double su = universe_sd(e);
 
 		if (!(su > 0))
@@ -309,11 +324,25 @@ static void pct(char *buf, size_t len, double x)
 	snprintf(buf, len, "%.4g%%", 100 * x);
 }
 
+/* An amount with its scale: "2% a year" annualised; "0.02 per period" on
+ * the inputs' own scale, where a percent sign would claim a unit the
+ * inputs may not have. */
+static void amount(char *buf, size_t len, double x, int per_period)
+{
+	if (per_period)
+		snprintf(buf, len, "%.4g per period", x);
+	else
+		snprintf(buf, len, "%.4g%% a year", 100 * x);
+}
+
 /* The parameter text of a rule, e.g. "x=10%" or "premium=5% a year,
- * holding cost=0.05% a year (defaults)". */
+ * holding cost=0.05% a year (defaults)"; amounts "per period" and without
+ * a percent sign when cfg->per_period.  Shares (x, q, p) are shares on any
+ * scale. */
 static void rule_parameters(const struct rules_config *cfg, int rule, char *buf, size_t len)
 {
-	char a[32], b[32];
+	char a[48], b[48];
+	int pp = cfg->per_period;
 
 	switch (rule) {
 	case RULES_NEAR_FLOOR:
@@ -321,7 +350,10 @@ static void rule_parameters(const struct rules_config *cfg, int rule, char *buf,
 		snprintf(buf, len, "x=%s", a);
 		break;
 	case RULES_MARGINAL:
-		snprintf(buf, len, "eps=%.4gpp a year", 100 * cfg->marginal_eps);
+		if (pp)
+			snprintf(buf, len, "eps=%.4g per period", cfg->marginal_eps);
+		else
+			snprintf(buf, len, "eps=%.4gpp a year", 100 * cfg->marginal_eps);
 		break;
 	case RULES_BAND:
 		pct(a, sizeof a, cfg->band_q);
@@ -329,19 +361,19 @@ static void rule_parameters(const struct rules_config *cfg, int rule, char *buf,
 		snprintf(buf, len, "q=%s x=%s", a, b);
 		break;
 	case RULES_COST_BENEFIT:
-		pct(a, sizeof a, cfg->premium);
-		pct(b, sizeof b, cfg->holding_cost);
-		snprintf(buf, len, "premium=%s a year, holding cost=%s a year%s", a, b,
+		amount(a, sizeof a, cfg->premium, pp);
+		amount(b, sizeof b, cfg->holding_cost, pp);
+		snprintf(buf, len, "premium=%s, holding cost=%s%s", a, b,
 			 cfg->cost_defaults ? " (defaults)" : "");
 		break;
 	case RULES_TRACKING_ERROR:
-		pct(a, sizeof a, cfg->te_budget);
-		snprintf(buf, len, "budget=%s a year", a);
+		amount(a, sizeof a, cfg->te_budget, pp);
+		snprintf(buf, len, "budget=%s", a);
 		break;
 	case RULES_SHORTFALL:
-		pct(a, sizeof a, cfg->shortfall_d);
+		amount(a, sizeof a, cfg->shortfall_d, pp);
 		pct(b, sizeof b, cfg->shortfall_p);
-		snprintf(buf, len, "d=%s a year p=%s", a, b);
+		snprintf(buf, len, "d=%s p=%s", a, b);
 		break;
 	default:
 		snprintf(buf, len, "-");
@@ -353,7 +385,8 @@ static void result_init(const struct rules_config *cfg, int rule, struct rule_re
 	memset(res, 0, sizeof *res);
 	res->rule = rule;
 	res->name = rule_names[rule];
-	res->unit = rule_units[rule];
+	res->per_period = cfg->per_period != 0;
+	res->unit = rule_units[res->per_period][rule];
 	res->defined = 1;
 	res->value = NAN;
 	res->threshold = NAN;
@@ -422,7 +455,8 @@ int rules_exact(const struct rules_config *cfg, int rule, double vbar,
 		res->defined = 0;
 		if (rule == RULES_NEAR_FLOOR)
 			snprintf(res->note, sizeof res->note,
-				 "undefined: the floor (average covariance %.4g a year) is not above zero", e.cbar);
+				 "undefined: the floor (average covariance %.4g%s) is not above zero", e.cbar,
+				 scale_word(res->per_period));
 		else
 			snprintf(res->note, sizeof res->note,
 				 "undefined: the universe portfolio has no risk to compare with");
@@ -437,22 +471,88 @@ int rules_exact(const struct rules_config *cfg, int rule, double vbar,
 
 /* ---- sampled rules ---------------------------------------------------- */
 
-static int cmp_double(const void *a, const void *b)
+/*
+ * The k-th smallest of a[0..n-1] (k < n), rearranging a so that every
+ * element after position k is at least a[k]: Hoare's selection algorithm
+ * (Hoare, 1961, "Algorithm 65: Find", Communications of the ACM 4(7)) with
+ * a median-of-three pivot, O(n) expected instead of a sort's O(n log n).
+ */
+static double select_kth(double *a, size_t n, size_t k)
 {
-	double x = *(const double *)a, y = *(const double *)b;
+	size_t lo = 0, hi = n - 1;
 
-	return (x > y) - (x < y);
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2, i = lo, j = hi;
+		double pivot, tmp;
+
+		if (a[mid] < a[lo]) tmp = a[mid], a[mid] = a[lo], a[lo] = tmp;
+		if (a[hi] < a[lo]) tmp = a[hi], a[hi] = a[lo], a[lo] = tmp;
+		if (a[hi] < a[mid]) tmp = a[hi], a[hi] = a[mid], a[mid] = tmp;
+		pivot = a[mid];
+		/* a[lo] <= pivot <= a[hi] stop both scans inside [lo, hi] */
+		for (;;) {
+			while (a[i] < pivot)
+				i++;
+			while (a[j] > pivot)
+				j--;
+			if (i >= j)
+				break;
+			tmp = a[i], a[i] = a[j], a[j] = tmp;
+			i++;
+			j--;
+		}
+		/* now a[lo..j] <= pivot <= a[j+1..hi] (i > j), or i == j at a
+		 * pivot-valued element with the same split around it */
+		if (i == j) {
+			if (k == j)
+				return a[k];
+			if (k < j)
+				hi = j - 1;
+			else
+				lo = j + 1;
+		} else if (k <= j)
+			hi = j;
+		else
+			lo = j + 1;
+	}
+	return a[k];
 }
 
-/* numpy's default (linear) quantile of sorted x[0..n-1]. */
-static double quantile_sorted(const double *x, size_t n, double q)
+/* A sampled variance as an annualised sd (0 for a variance of 0 or below);
+ * non-decreasing in v, so it maps order statistics to order statistics. */
+static double annual_sd(double v, double periods_per_year)
 {
-	double h = (double)(n - 1) * q, lo = floor(h);
-	size_t i = (size_t)lo;
+	v *= periods_per_year;
+	return v > 0 ? sqrt(v) : 0.0;
+}
 
+/* numpy's default (linear) q-quantile of the annualised sd of column j of
+ * r: x_i + (h - i)(x_{i+1} - x_i) with h = (K - 1) q, from the two order
+ * statistics found by selection on the variances.  work holds r->paths. */
+static double column_sd_quantile(const struct sampler_result *r, size_t j, double ppy,
+				 double q, double *work)
+{
+	size_t k, n = r->paths, i;
+	double h = (double)(n - 1) * q, lo = floor(h), a, b;
+
+	for (k = 0; k < n; k++)
+		work[k] = r->variance[k * r->nsizes + j];
+	i = (size_t)lo;
 	if (i + 1 >= n)
-		return x[n - 1];
-	return x[i] + (h - lo) * (x[i + 1] - x[i]);
+		return annual_sd(select_kth(work, n, n - 1), ppy);
+	a = select_kth(work, n, i);
+	b = work[i + 1];
+	for (k = i + 2; k < n; k++)
+		if (work[k] < b)
+			b = work[k];
+	a = annual_sd(a, ppy);
+	b = annual_sd(b, ppy);
+	return a + (h - lo) * (b - a);
+}
+
+static int size_feasible(const struct sampler_result *r, size_t j)
+{
+	return !r->feasible || r->feasible[j];
 }
 
 static int sizes_consecutive(const struct sampler_result *r)
@@ -489,7 +589,7 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	       struct hc_error *err)
 {
 	double *sd, limit;
-	size_t k, j;
+	size_t j;
 	int status;
 
 	if ((status = check_sampled(r, err)) != HC_OK)
@@ -498,8 +598,8 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	if (!(cbar > 0)) {
 		res->defined = 0;
 		snprintf(res->note, sizeof res->note,
-			 "undefined: the floor (average covariance %.4g a year) is not above zero",
-			 cbar * periods_per_year);
+			 "undefined: the floor (average covariance %.4g%s) is not above zero",
+			 cbar * periods_per_year, scale_word(res->per_period));
 		return HC_OK;
 	}
 	limit = (1 + cfg->band_x) * sqrt(cbar * periods_per_year);
@@ -507,21 +607,19 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	sd = hc_malloc(r->paths * sizeof *sd);
 	if (!sd)
 		return hc_error(err, HC_ENOMEM, "out of memory for the band rule");
-	for (j = 0; j < r->nsizes && !res->met; j++) {
+	/* Settled, not first crossed: from the largest size down to the last
+	 * one that fails (see rules.h). */
+	for (j = r->nsizes; j-- > 0;) {
 		double qv;
 
-		for (k = 0; k < r->paths; k++) {
-			double v = r->variance[k * r->nsizes + j] * periods_per_year;
-
-			sd[k] = v > 0 ? sqrt(v) : 0.0;
-		}
-		qsort(sd, r->paths, sizeof *sd, cmp_double);
-		qv = quantile_sorted(sd, r->paths, cfg->band_q);
-		if (qv <= limit) {
-			res->met = 1;
-			res->count = r->sizes[j];
-			res->value = qv;
-		}
+		if (!size_feasible(r, j))
+			continue;
+		qv = column_sd_quantile(r, j, periods_per_year, cfg->band_q, sd);
+		if (!(qv <= limit))
+			break;
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = qv;
 	}
 	hc_free(sd);
 	if (!res->met)
@@ -530,6 +628,11 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	return HC_OK;
 }
 
+/* After Domian, Louton & Racine (2007), "Diversification in Portfolios of
+ * Individual Stocks: 100 Stocks Are Not Enough", The Financial Review 42(4):
+ * diversification judged by the share of random portfolios whose compound
+ * return over the sample ends more than d a year behind the universe's,
+ * rather than by sigma. */
 int rules_shortfall(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err)
@@ -544,19 +647,21 @@ int rules_shortfall(const struct rules_config *cfg,
 		return hc_error(err, HC_EUSAGE, "the shortfall rule needs sampled returns");
 	result_init(cfg, RULES_SHORTFALL, res);
 	res->threshold = cfg->shortfall_p;
-	for (j = 0; j < r->nsizes; j++) {
+	/* Settled, not first crossed, as the band (see rules.h). */
+	for (j = r->nsizes; j-- > 0;) {
 		size_t behind = 0;
 		double share;
 
+		if (!size_feasible(r, j))
+			continue;
 		for (k = 0; k < r->paths; k++)
 			behind += r->annual_return[k * r->nsizes + j] < cut;
 		share = (double)behind / (double)r->paths;
-		if (share < cfg->shortfall_p) {
-			res->met = 1;
-			res->count = r->sizes[j];
-			res->value = share;
+		if (!(share < cfg->shortfall_p))
 			break;
-		}
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = share;
 	}
 	if (!res->met)
 		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
@@ -635,23 +740,23 @@ static int cmp_count(const void *a, const void *b)
 	return (x > y) - (x < y);
 }
 
-/* Linear quantile of sorted counts with not-met (0) as +infinity: NaN when
- * the interpolation touches a not-met replicate. */
-static double count_quantile(const size_t *c, size_t n, double q)
+/*
+ * The pct-th percentile of n sorted counts as an order statistic: the
+ * smallest count c with at least pct% of the replicates at or below it,
+ * c[k-1] with k = ceil(n pct / 100) (at least 1), computed in integers.
+ * That is the inverse of the empirical distribution function (definition 1
+ * of Hyndman & Fan, 1996, "Sample Quantiles in Statistical Packages", The
+ * American Statistician 50(4), from memory; numpy's method='inverted_cdf'), so a percentile is always some replicate's count,
+ * a whole number of holdings.  Not met (0, sorted last) stands above every
+ * count: NaN ("not met") when the percentile falls among those replicates.
+ */
+static double count_percentile(const size_t *c, size_t n, size_t pct)
 {
-	double h = (double)(n - 1) * q, lo = floor(h);
-	size_t i = (size_t)lo;
-	double a, b;
+	size_t k = (n * pct + 99) / 100;
 
-	if (c[i] == 0)
-		return NAN;
-	a = (double)c[i];
-	if (h == lo || i + 1 >= n)
-		return a;
-	if (c[i + 1] == 0)
-		return NAN;
-	b = (double)c[i + 1];
-	return a + (h - lo) * (b - a);
+	if (k < 1)
+		k = 1;
+	return c[k - 1] == 0 ? NAN : (double)c[k - 1];
 }
 
 void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
@@ -666,9 +771,9 @@ void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 	if (nrep == 0)
 		return;
 	qsort(count, nrep, sizeof *count, cmp_count);
-	res->count_p05 = count_quantile(count, nrep, 0.05);
-	res->count_p50 = count_quantile(count, nrep, 0.50);
-	res->count_p95 = count_quantile(count, nrep, 0.95);
+	res->count_p05 = count_percentile(count, nrep, 5);
+	res->count_p50 = count_percentile(count, nrep, 50);
+	res->count_p95 = count_percentile(count, nrep, 95);
 }
 
 int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
@@ -726,8 +831,18 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 		return 0;
 	if (isnan(p))
 		return report_table_set_text(t, row, col, "not met");
-	report_table_set_real(t, row, col, p);
+	report_table_set_int(t, row, col, (long long)p);
 	return 0;
+}
+
+/* The value or threshold of a rule: the column's percent style for yearly
+ * figures and shares, plain for amounts on the inputs' own scale. */
+static void set_amount(struct report_table *t, size_t row, size_t col,
+		       const struct rule_result *res, double x)
+{
+	report_table_set_real(t, row, col, x);
+	if (res->per_period && res->rule != RULES_SHORTFALL)
+		t->cells[row * t->ncols + col].style = REPORT_STYLE_PLAIN;
 }
 
 static int rule_row(struct report_table *t, const struct rule_result *res)
@@ -742,14 +857,14 @@ static int rule_row(struct report_table *t, const struct rule_result *res)
 	bad |= report_table_set_text(t, row, 1, res->parameters);
 	if (res->met) {
 		report_table_set_int(t, row, 2, (long long)res->count);
-		report_table_set_real(t, row, 3, res->value);
+		set_amount(t, row, 3, res, res->value);
 	}
 	bad |= set_percentile(t, row, 4, res, res->count_p05);
 	bad |= set_percentile(t, row, 5, res, res->count_p50);
 	bad |= set_percentile(t, row, 6, res, res->count_p95);
 	report_table_set_bool(t, row, 7, res->met);
 	bad |= report_table_set_text(t, row, 8, res->unit);
-	report_table_set_real(t, row, 9, res->threshold);
+	set_amount(t, row, 9, res, res->threshold);
 	if (res->bootstrapped) {
 		report_table_set_int(t, row, 10, (long long)res->replicates);
 		report_table_set_int(t, row, 11, (long long)res->replicates_met);

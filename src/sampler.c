@@ -316,31 +316,114 @@ struct column_job {
 
 /* Compound annualised return of the equal-weight portfolio rebalanced each
  * period: prod(1 + r_p)^(P/T) - 1 with r_p = (acc + mean_sum)/n.
- * The growth factors are multiplied in blocks and one logarithm is taken per
- * block: a logarithm costs some twenty multiplications, and COMPOUND_BLOCK
- * factors, each between 0 and a few units for any return series that is not
- * already absurd, cannot overflow or underflow a double's exponent range.
- * Rounding adds about 1e-16 relative per factor, far below any threshold the
- * shortfall rule compares with. */
-#define COMPOUND_BLOCK 16
-static double compound(const double *acc, size_t t, double mean_sum, double n, double ppy)
-{
-	long double lg = 0;
-	double g, prod;
-	size_t k, b, end;
+ *
+ * The shortfall rule needs this for every size of every path, so it is the
+ * sampler's hottest loop when returns are asked for.
+ *   - A total loss (a factor 1 + r_p of 0 or less) is caught by the
+ *     smallest factor, kept per lane beside the product: a minimum is
+ *     exact in any order.
+ *   - The growth factors are multiplied in eight fixed lanes (period k in
+ *     lane k mod 8, two four-wide vectors of GCC's vector extension), so
+ *     the products do not wait on one another and keep to registers; the
+ *     lanes are the same whatever the vector width, so either clone gives
+ *     the same bits.
+ *   - After every COMPOUND_BLOCK factors a lane is split into a mantissa in
+ *     [0.5, 1) and a power of two (split_exponent, exact), so no product can
+ *     overflow or underflow however long the history, and one logarithm at
+ *     the end replaces one a block.  Between two splits a lane multiplies
+ *     COMPOUND_BLOCK factors; factors between 1e-9 and 1e9 (a period return
+ *     from -99.9999999% to a billionfold gain) keep it inside a double's
+ *     normal range.
+ *   - 1/n is taken once: a multiplication instead of a division per
+ *     factor, at most one more rounding (about 1e-16 relative) per factor,
+ *     far below any threshold the shortfall rule compares with.
+ * Elementwise operations in a fixed order and no reassociation (FMA
+ * contraction is off under -std=c11): the same bits from either clone and
+ * any thread count.
+ */
+#define COMPOUND_BLOCK 32
+#define COMPOUND_LN2 0.69314718055994530941723212145817657 /* log(2), not in strict C11's math.h */
 
-	for (b = 0; b < t; b += COMPOUND_BLOCK) {
-		end = b + COMPOUND_BLOCK < t ? b + COMPOUND_BLOCK : t;
-		prod = 1.0;
-		for (k = b; k < end; k++) {
-			g = 1.0 + (acc[k] + mean_sum) / n;
-			if (!(g > 0.0))
-				return -1.0; /* the portfolio lost everything */
-			prod *= g;
-		}
-		lg += log(prod);
+typedef double compound_v4 __attribute__((vector_size(4 * sizeof(double))));
+typedef long long compound_m4 __attribute__((vector_size(4 * sizeof(long long))));
+
+/* lo = the elementwise smaller of g and lo (lo where they compare equal or
+ * g is NaN), by a mask blend, as C has no ?: on vectors.  A macro: a
+ * function taking vectors by value draws GCC's ABI warning without AVX. */
+#define COMPOUND_MIN(lo, g) do { \
+	compound_m4 lt_ = (g) < (lo); \
+	(lo) = (compound_v4)((lt_ & (compound_m4)(g)) | (~lt_ & (compound_m4)(lo))); \
+} while (0)
+
+/* *p = m 2^e with m in [0.5, 1), as frexp; the exponent added to *expo.
+ * Normal numbers by their bits (the common case, no call); zero, subnormal
+ * or non-finite values by frexp. */
+static inline void split_exponent(double *p, long *expo)
+{
+	uint64_t b;
+	unsigned ex;
+	int e;
+
+	memcpy(&b, p, sizeof b);
+	ex = (unsigned)(b >> 52) & 0x7ffu;
+	if (ex == 0 || ex == 0x7ffu) {
+		*p = frexp(*p, &e);
+		*expo += e;
+		return;
 	}
-	return expm1((double)(lg * ppy / (long double)t));
+	*expo += (long)ex - 1022;
+	b = (b & ~(UINT64_C(0x7ff) << 52)) | (UINT64_C(1022) << 52);
+	memcpy(p, &b, sizeof b);
+}
+
+__attribute__((target_clones("avx2", "default")))
+static double compound(const double *restrict acc, size_t t, double mean_sum, double n, double ppy)
+{
+	const double inv = 1.0 / n;
+	const compound_v4 one = { 1.0, 1.0, 1.0, 1.0 }, vinv = { inv, inv, inv, inv };
+	const compound_v4 vms = { mean_sum, mean_sum, mean_sum, mean_sum };
+	compound_v4 pa = one, pb = one, la = one, lb = one, ga, gb;
+	double lane[8], low[8], prod, least = 1.0;
+	long expo = 0;
+	size_t k, end, l;
+
+	if (t == 0)
+		return 0.0; /* no periods, no growth (the sampler needs two) */
+	for (k = 0; k < t;) {
+		end = t - k > 8 * COMPOUND_BLOCK ? k + 8 * COMPOUND_BLOCK : t;
+		for (; k + 8 <= end; k += 8) {
+			memcpy(&ga, acc + k, sizeof ga);
+			memcpy(&gb, acc + k + 4, sizeof gb);
+			ga = one + (ga + vms) * vinv;
+			gb = one + (gb + vms) * vinv;
+			pa *= ga;
+			pb *= gb;
+			COMPOUND_MIN(la, ga);
+			COMPOUND_MIN(lb, gb);
+		}
+		memcpy(lane, &pa, sizeof pa);
+		memcpy(lane + 4, &pb, sizeof pb);
+		memcpy(low, &la, sizeof la);
+		memcpy(low + 4, &lb, sizeof lb);
+		for (l = 0; k < end; k++, l++) {
+			double g = 1.0 + (acc[k] + mean_sum) * inv;
+
+			lane[l] *= g;
+			low[l] = g < low[l] ? g : low[l];
+		}
+		for (l = 0; l < 8; l++) {
+			least = low[l] < least ? low[l] : least;
+			split_exponent(&lane[l], &expo);
+		}
+		if (!(least > 0.0))
+			return -1.0; /* the portfolio lost everything in some period */
+		memcpy(&pa, lane, sizeof pa);
+		memcpy(&pb, lane + 4, sizeof pb);
+		memcpy(&la, low, sizeof la);
+		memcpy(&lb, low + 4, sizeof lb);
+	}
+	prod = ((lane[0] * lane[1]) * (lane[2] * lane[3])) * ((lane[4] * lane[5]) * (lane[6] * lane[7]));
+	return expm1((log(prod) + (double)expo * COMPOUND_LN2) * ppy / (double)t);
 }
 
 static void record(const struct column_job *job, struct workspace *w, size_t slot,

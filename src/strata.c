@@ -190,6 +190,17 @@ int strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t k,
 	return HC_OK;
 }
 
+size_t strata_cap_most(const struct strata *s, size_t k)
+{
+	size_t st, most = 0;
+
+	if (k == 0)
+		return s->m;
+	for (st = 0; st < s->nstrata; st++)
+		most += s->count[st] < k ? s->count[st] : k;
+	return most;
+}
+
 int strata_cap_feasible(const struct strata_cap *c, size_t n)
 {
 	return n <= c->nmax && c->logw[n] != -INFINITY;

@@ -1,4 +1,29 @@
-/* Unit tests for the rules for "enough holdings" (rules.h). */
+/*
+ * Unit tests for the rules for "enough holdings" (rules.h).
+ *
+ * Outside references, each named again beside its check:
+ *   - the rules' inequalities scanned count by count in long double (the
+ *     issue's near-floor and tracking-error inequalities, the marginal and
+ *     cost-benefit steps written the obvious way), against the library's
+ *     closed forms and bisection;
+ *   - Elton & Gruber (1977), "Risk Reduction and Portfolio Size: An
+ *     Analytical Solution", Journal of Business 50(4): averages 46.619 and
+ *     7.058 (from memory, design.md section 11), near-floor 27 at 10% and
+ *     55 at 5%;
+ *   - Statman (1987), Journal of Financial and Quantitative Analysis 22(3),
+ *     for the cost-benefit rule's form; Domian, Louton & Racine (2007), The
+ *     Financial Review 42(4), for the shortfall rule's definition;
+ *   - common practice, no single source: realistic averages put near-floor
+ *     and marginal in the tens (the "about 20 holdings" rule of thumb, often
+ *     traced to Evans & Archer, 1968, Journal of Finance 23(5), and Statman,
+ *     1987; from memory);
+ *   - GSL's gsl_sort and gsl_stats_quantile_from_sorted_data (numpy's
+ *     linear quantile) for the band rule's quantile at every size;
+ *   - numpy 1.24.2's np.percentile(..., method='inverted_cdf') for the
+ *     bootstrap percentiles, and the definition (the smallest count with at
+ *     least p of the replicates at or below it) by enumeration;
+ *   - compound returns worked by hand for the universe return.
+ */
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -325,11 +350,22 @@ static void free_fake(struct sampler_result *r)
 	free(r);
 }
 
+/*
+ * The band rule against GSL: every size's q-quantile of sampled sd by
+ * gsl_sort and gsl_stats_quantile_from_sorted_data (documented as
+ * (1 - d) x_i + d x_{i+1} with i = floor((n-1) f), numpy's default), then
+ * the settled count -- the smallest size from which every larger sampled
+ * size meets the limit -- by a scan written here.  Several quantiles,
+ * including the top order statistic (q so close to 1 that i = n - 1), so
+ * that the library's selection algorithm is checked against a sort.
+ */
 static void test_rules_band_matches_gsl_quantile(void **state)
 {
 	enum { K = 301, NS = 80 };
-	size_t sizes[NS], j, k, expect = 0;
-	double v = 0.0117, c = 0.0023, sd[K], qv = NAN, limit;
+	static const double qs[] = { 0.9, 0.5, 0.95, 0.737, 0.99, 0.9999 };
+	static const double xs[] = { 0.10, 0.066, 0.123, 0.088, 0.148, 0.20 };
+	size_t sizes[NS], j, k, expect, iq;
+	double v = 0.0117, c = 0.0023, sd[K], qv[NS], limit;
 	struct sampler_result *r;
 	struct rules_config cfg;
 	struct rule_result res;
@@ -339,24 +375,27 @@ static void test_rules_band_matches_gsl_quantile(void **state)
 		sizes[j] = j + 1;
 	r = fake_sampled(K, NS, sizes, v, c);
 	rules_config_init(&cfg);
-	cfg.band_q = 0.9;
-	/* the reference: GSL's gsl_stats_quantile_from_sorted_data, documented
-	 * as (1 - d) x_i + d x_{i+1} with i = floor((n-1) f), numpy's default */
-	limit = 1.1 * sqrt(12 * c);
-	for (j = 0; j < NS && !expect; j++) {
-		for (k = 0; k < K; k++)
-			sd[k] = sqrt(12 * r->variance[k * NS + j]);
-		gsl_sort(sd, 1, K);
-		qv = gsl_stats_quantile_from_sorted_data(sd, 1, K, 0.9);
-		if (qv <= limit)
-			expect = sizes[j];
+	for (iq = 0; iq < sizeof qs / sizeof qs[0]; iq++) {
+		cfg.band_q = qs[iq];
+		cfg.band_x = xs[iq];
+		limit = (1 + xs[iq]) * sqrt(12 * c);
+		for (j = 0; j < NS; j++) {
+			for (k = 0; k < K; k++)
+				sd[k] = sqrt(12 * r->variance[k * NS + j]);
+			gsl_sort(sd, 1, K);
+			qv[j] = gsl_stats_quantile_from_sorted_data(sd, 1, K, qs[iq]);
+		}
+		for (expect = NS; expect > 0 && qv[expect - 1] <= limit; expect--)
+			;
+		/* expect is now the index of the settled count (NS: not met) */
+		assert_true(expect > 3 && expect < NS - 3);
+		assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
+		assert_true(res.met);
+		assert_int_equal(res.count, sizes[expect]);
+		assert_close(res.value, qv[expect], 1e-15);
+		assert_string_equal(res.note, "");
+		print_message("band q=%g x=%g: settled at %zu\n", qs[iq], xs[iq], res.count);
 	}
-	assert_true(expect > 5 && expect < NS);
-	assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
-	assert_true(res.met);
-	assert_int_equal(res.count, expect);
-	assert_close(res.value, qv, 1e-15);
-	assert_string_equal(res.note, "");
 	/* a floor at zero leaves the band undefined */
 	assert_int_equal(rules_band(&cfg, r, 0.0, 12, &res, &err), HC_OK);
 	assert_false(res.defined);
@@ -374,8 +413,8 @@ static void test_rules_band_matches_gsl_quantile(void **state)
 static void test_rules_shortfall_counts_trailing_share(void **state)
 {
 	enum { K = 400, NS = 60 };
-	size_t sizes[NS], j, k, expect = 0;
-	double share = NAN;
+	size_t sizes[NS], j, k, expect;
+	double share[NS];
 	struct sampler_result *r;
 	struct rules_config cfg;
 	struct rule_result res;
@@ -387,20 +426,21 @@ static void test_rules_shortfall_counts_trailing_share(void **state)
 	rules_config_init(&cfg);
 	cfg.shortfall_d = 0.0215;
 	/* the definition (after Domian, Louton & Racine, 2007): share of
-	 * portfolios with annual return below universe - d, first below p */
-	for (j = 0; j < NS && !expect; j++) {
+	 * portfolios with annual return below universe - d, below p from the
+	 * settled size on (every larger size too) */
+	for (j = 0; j < NS; j++) {
 		size_t behind = 0;
 
 		for (k = 0; k < K; k++)
 			behind += r->annual_return[k * NS + j] < 0.0843 - 0.0215;
-		share = behind / (double)K;
-		if (share < 0.10)
-			expect = sizes[j];
+		share[j] = behind / (double)K;
 	}
+	for (expect = NS; expect > 0 && share[expect - 1] < 0.10; expect--)
+		;
 	assert_true(expect > 3 && expect < NS);
 	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
-	assert_int_equal(res.count, expect);
-	assert_close(res.value, share, 0);
+	assert_int_equal(res.count, sizes[expect]);
+	assert_close(res.value, share[expect], 0);
 	/* p so small that no size reaches it */
 	cfg.shortfall_p = 1e-9;
 	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
@@ -533,6 +573,85 @@ static void test_rules_sampled_matrix_agrees_with_returns(void **state)
 	}
 }
 
+/*
+ * A constructed sample whose criterion dips below the limit and back above
+ * before it settles: the sampled rules must return the smallest size from
+ * which it holds at every larger size, not the first crossing.  Five paths
+ * a size; sizes 1..10.  Band (q = 50%, x = 10%, P = 1, c-bar = 0.01, so the
+ * limit is 0.11): the median sd per size is set to 0.16, 0.14, 0.12, 0.10
+ * (a dip), 0.115, 0.105, 0.104, 0.103, 0.102, 0.101 -- settled at 6, first
+ * crossing at 4.  Shortfall (cut = 0.05 - 0.01, p = 30%): 3, 2, 1, 0 (dip),
+ * 2, 1, 1, 0, 1, 0 portfolios of 5 behind -- settled at 6.  Then sizes 9
+ * and 10 made infeasible (a stratified cap): still 6, judged on the
+ * feasible sizes; and a failure at the top: not met.
+ */
+static void test_rules_sampled_rules_settle(void **state)
+{
+	enum { K = 5, NS = 10 };
+	static const double median[NS] = { 0.16, 0.14, 0.12, 0.10, 0.115, 0.105, 0.104, 0.103, 0.102, 0.101 };
+	static const size_t behind[NS] = { 3, 2, 1, 0, 2, 1, 1, 0, 1, 0 };
+	static const double spread[K] = { -0.03, -0.01, 0, 0.02, 0.05 };  /* path k's sd offset */
+	struct sampler_result r;
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+	size_t sizes[NS], j, k;
+	double variance[K * NS], ret[K * NS];
+	unsigned char feasible[NS];
+
+	memset(&r, 0, sizeof r);
+	for (j = 0; j < NS; j++) {
+		sizes[j] = j + 1;
+		feasible[j] = 1;
+		for (k = 0; k < K; k++) {
+			double sdv = median[j] + spread[k];
+
+			variance[k * NS + j] = sdv * sdv;
+			/* the first behind[j] paths trail the cut of 0.04 */
+			ret[k * NS + j] = k < behind[j] ? 0.0317 - 0.001 * (double)k : 0.0581 + 0.002 * (double)k;
+		}
+	}
+	r.paths = K;
+	r.nsizes = NS;
+	r.sizes = sizes;
+	r.variance = variance;
+	r.annual_return = ret;
+	r.feasible = feasible;
+	rules_config_init(&cfg);
+	cfg.band_q = 0.5;
+	cfg.band_x = 0.10;
+	cfg.shortfall_d = 0.01;
+	cfg.shortfall_p = 0.30;
+	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, 6);
+	assert_close(res.value, 0.105, 1e-15);
+	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_true(res.met);
+	assert_int_equal(res.count, 6);
+	assert_close(res.value, 0.2, 0);
+	/* sizes 9 and 10 infeasible (their cells as strata_run leaves them) */
+	feasible[8] = feasible[9] = 0;
+	for (k = 0; k < K; k++) {
+		variance[k * NS + 8] = variance[k * NS + 9] = INFINITY;
+		ret[k * NS + 8] = ret[k * NS + 9] = -1;
+	}
+	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_int_equal(res.count, 6);
+	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_int_equal(res.count, 6);
+	/* the largest feasible size fails: not met, whatever came before */
+	for (k = 0; k < K; k++)
+		variance[k * NS + 7] = 0.2 * 0.2;
+	for (k = 0; k < 2; k++)
+		ret[k * NS + 7] = 0.0111;
+	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_false(res.met);
+	assert_true(isnan(res.value));
+	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_false(res.met);
+}
+
 static void test_rules_universe_return(void **state)
 {
 	/* 3 securities x 4 quarters; equal-weight returns by hand:
@@ -561,15 +680,97 @@ static void test_rules_universe_return(void **state)
 	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_EDATA);
 }
 
+/* Check one set of replicate counts (0 = not met) against the percentiles
+ * numpy gave for it; NAN expects "not met". */
+static void check_interval(const size_t *counts, size_t n, double p05, double p50, double p95)
+{
+	struct rule_result res;
+	size_t *c = malloc(n * sizeof *c), k, met = 0;
+
+	assert_non_null(c);
+	memcpy(c, counts, n * sizeof *c);
+	for (k = 0; k < n; k++)
+		met += counts[k] != 0;
+	res.rule = RULES_NEAR_FLOOR;
+	rules_set_interval(&res, c, n);
+	assert_true(res.bootstrapped);
+	assert_int_equal(res.replicates, n);
+	assert_int_equal(res.replicates_met, met);
+	if (isnan(p05)) assert_true(isnan(res.count_p05)); else assert_close(res.count_p05, p05, 0);
+	if (isnan(p50)) assert_true(isnan(res.count_p50)); else assert_close(res.count_p50, p50, 0);
+	if (isnan(p95)) assert_true(isnan(res.count_p95)); else assert_close(res.count_p95, p95, 0);
+	free(c);
+}
+
+/* The definition itself, by enumeration: the smallest count c among the
+ * replicates with at least pct% of them at or below c (100 x #{<= c} >=
+ * pct x n, in integers); 0 (not met) is above every count, and NaN when the
+ * percentile falls among the unmet. */
+static double brute_percentile(const size_t *c, size_t n, size_t pct)
+{
+	size_t best = 0, i, j;
+	int found = 0;
+
+	for (i = 0; i < n; i++) {
+		size_t below = 0;
+
+		if (c[i] == 0)
+			continue;
+		for (j = 0; j < n; j++)
+			below += c[j] != 0 && c[j] <= c[i];
+		if (100 * below >= pct * n && (!found || c[i] < best))
+			best = c[i], found = 1;
+	}
+	return found ? (double)best : NAN;
+}
+
 static void test_rules_bootstrap_percentiles(void **state)
 {
 	enum { B = 101 };
+	/* numpy 1.24.2, np.percentile(c, [5, 50, 95], method='inverted_cdf') with
+	 * not met as np.inf (run while writing this test; the linear default
+	 * gives 18.05, 27.4 and 28.55 / 31.5 where these differ) */
+	static const size_t a[20] = { 14, 15, 14, 16, 13, 15, 17, 14, 18, 15, 14, 16, 15, 13, 19, 14, 15, 16, 14, 17 };
+	static const size_t b[33] = { 23, 21, 0, 22, 25, 21, 24, 0, 22, 23, 26, 21, 22, 24, 23, 22, 21,
+				      25, 22, 23, 24, 22, 23, 21, 27, 22, 23, 0, 24, 22, 21, 23, 25 };
+	static const size_t d[33] = { 23, 21, 0, 22, 25, 21, 24, 20, 22, 23, 26, 21, 22, 24, 23, 22, 21,
+				      25, 22, 23, 24, 22, 23, 21, 27, 22, 23, 28, 24, 22, 21, 23, 25 };
+	static const size_t e[12] = { 31, 29, 33, 30, 0, 28, 35, 0, 0, 32, 30, 29 };
 	double vbar[B], cbar[B];
-	size_t k, counts[B];
+	size_t k, counts[301];
 	struct rules_config cfg;
 	struct rule_result res[2];
 	struct hc_error err;
+	uint64_t st = 2385;
 
+	check_interval(a, 20, 13, 15, 18);
+	check_interval(b, 33, 21, 23, NAN);     /* 3 of 33 not met: over 5% */
+	check_interval(d, 33, 21, 23, 28);      /* 1 of 33 not met: the 95th is met */
+	check_interval(e, 12, 28, 31, NAN);
+	/* every percentile is some replicate's count: against the definition by
+	 * enumeration on 400 random sets of 1..300 replicates, some not met */
+	for (k = 0; k < 400; k++) {
+		size_t n = 1 + sampler_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
+		struct rule_result r;
+
+		assert_non_null(c);
+		for (j = 0; j < n; j++) {
+			uint64_t z = sampler_splitmix64(&st);
+			c[j] = z % 23 == 0 ? 0 : 9 + z % 41;
+		}
+		memcpy(counts, c, n * sizeof *c);
+		r.rule = RULES_MARGINAL;
+		rules_set_interval(&r, c, n);
+		{
+			double w05 = brute_percentile(counts, n, 5), w50 = brute_percentile(counts, n, 50);
+			double w95 = brute_percentile(counts, n, 95);
+
+			assert_true(r.count_p05 == w05 || (isnan(r.count_p05) && isnan(w05)));
+			assert_true(r.count_p50 == w50 || (isnan(r.count_p50) && isnan(w50)));
+			assert_true(r.count_p95 == w95 || (isnan(r.count_p95) && isnan(w95)));
+		}
+		free(c);
+	}
 	rules_config_init(&cfg);
 	/* replicate k has c-bar chosen so that the near-floor count is
 	 * ceil((v - c)/(0.21 c)): with v = 0.01 and c = v / (1 + 0.21 n_k - 0.5 x 0.21)
@@ -587,8 +788,8 @@ static void test_rules_bootstrap_percentiles(void **state)
 	assert_false(res[1].bootstrapped);
 	assert_true(res[0].bootstrapped);
 	assert_int_equal(res[0].replicates_met, B);
-	/* numpy linear percentiles of 11,11,11,11,12,...,36 (101 values):
-	 * index 5 -> 12, index 50 -> 23, index 95 -> 34 (h = 100 q) */
+	/* order statistics of 11,11,11,11,12,...,36 (101 values): the 6th,
+	 * 51st and 96th smallest (ceil(101 q)), 12, 23 and 34 (by hand) */
 	assert_close(res[0].count_p05, 12, 0);
 	assert_close(res[0].count_p50, 23, 0);
 	assert_close(res[0].count_p95, 34, 0);
@@ -599,7 +800,7 @@ static void test_rules_bootstrap_percentiles(void **state)
 	assert_int_equal(res[0].replicates_met, B - 6);
 	assert_true(isnan(res[0].count_p95));
 	assert_false(isnan(res[0].count_p50));
-	/* five of 101: the 95th percentile index 95 is the last met count */
+	/* five of 101: the 96th smallest is the largest met count */
 	for (k = 0; k < B; k++)
 		counts[k] = k < 5 ? 0 : 20 + k % 7;
 	rules_set_interval(&res[0], counts, B);
@@ -665,6 +866,50 @@ static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
 	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_EUSAGE);
 }
 
+/* Inputs not annualised (per_period): every amount says "per period" and the
+ * text view shows it plain, while shares stay shares. */
+static void test_rules_per_period_units(void **state)
+{
+	struct rules_config cfg;
+	struct rules_input in = { 46.619, 7.058, 500, 1, NULL, 0 };
+	struct rule_result res[RULES_COUNT];
+	struct report *rep;
+	struct report_table *t;
+	struct hc_error err;
+	size_t n;
+
+	rules_config_init(&cfg);
+	cfg.selected = RULES_EXACT_MASK;
+	cfg.per_period = 1;
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(n, 4);
+	assert_string_equal(res[0].parameters, "x=10%");
+	assert_string_equal(res[0].unit, "sd per period");
+	assert_string_equal(res[1].parameters, "eps=0.001 per period");
+	assert_string_equal(res[1].unit, "sd reduction per period");
+	assert_string_equal(res[2].parameters, "premium=0.05 per period, holding cost=0.0005 per period (defaults)");
+	assert_string_equal(res[2].unit, "return per period");
+	assert_string_equal(res[3].parameters, "budget=0.02 per period");
+	assert_string_equal(res[3].unit, "tracking error per period");
+	rep = report_alloc();
+	assert_non_null(rep);
+	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	t = rep->tables[0];
+	assert_int_equal(t->cells[3].style, REPORT_STYLE_PLAIN);      /* value at count */
+	assert_int_equal(t->cells[9].style, REPORT_STYLE_PLAIN);      /* threshold */
+	report_free(rep);
+	/* annualised (the default): a year, percents */
+	cfg.per_period = 0;
+	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_string_equal(res[3].parameters, "budget=2% a year");
+	assert_string_equal(res[0].unit, "sd a year");
+	rep = report_alloc();
+	assert_non_null(rep);
+	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	assert_int_equal(rep->tables[0]->cells[3].style, REPORT_STYLE_PERCENT);
+	report_free(rep);
+}
+
 static void test_rules_report_contract_columns(void **state)
 {
 	static const char *const keys[] = { "rule", "parameters", "count", "value_at_count",
@@ -697,7 +942,12 @@ static void test_rules_report_contract_columns(void **state)
 	/* near-floor: count 20, interval with a "not met" 95th percentile */
 	assert_int_equal(t->cells[2].kind, REPORT_INT);
 	assert_int_equal(t->cells[2].integer, 20);
-	assert_int_equal(t->cells[4].kind, REPORT_REAL);
+	/* the percentiles are whole counts: the 2nd and 11th smallest of
+	 * 17 x4, 18 x3, 19 x3, 20 x4, 21 x4 (by hand, ceil(21 q)) */
+	assert_int_equal(t->cells[4].kind, REPORT_INT);
+	assert_int_equal(t->cells[4].integer, 17);
+	assert_int_equal(t->cells[5].kind, REPORT_INT);
+	assert_int_equal(t->cells[5].integer, 20);
 	assert_int_equal(t->cells[6].kind, REPORT_TEXT);
 	assert_string_equal(t->cells[6].text, "not met");
 	assert_int_equal(t->cells[10].integer, 21);
@@ -737,11 +987,13 @@ int main(void)
 		cmocka_unit_test(test_rules_band_matches_gsl_quantile),
 		cmocka_unit_test(test_rules_shortfall_counts_trailing_share),
 		cmocka_unit_test(test_rules_sampled_matrix_agrees_with_returns),
+		cmocka_unit_test(test_rules_sampled_rules_settle),
 		cmocka_unit_test(test_rules_universe_return),
 		cmocka_unit_test(test_rules_bootstrap_percentiles),
 		cmocka_unit_test(test_rules_parse_list_and_config),
 		cmocka_unit_test(test_rules_evaluate_selects_and_reports_sampled_needs),
 		cmocka_unit_test(test_rules_report_contract_columns),
+		cmocka_unit_test(test_rules_per_period_units),
 	};
 
 	gsl_set_error_handler_off();

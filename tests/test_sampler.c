@@ -232,6 +232,87 @@ static void test_sampler_portfolios_are_subsets(void **state)
 	fixture_free(u);
 }
 
+/*
+ * Compound returns where a running product would leave a double's range,
+ * and total losses.  The reference is the definition summed in logs, in
+ * long double, written here: prod(1 + r_t)^(P/T) - 1 for the portfolio of
+ * all M (every path holds every security at n = M).
+ *  - 2397 periods of about +41% each: the growth factor is near e^830,
+ *    beyond a double (about e^709); the annual return at P = 12 is still
+ *    finite (about 60).
+ *  - 2397 periods of about -37% each: the product falls below the smallest
+ *    double (about e^-745) long before the end.
+ *  - a period in which every security loses more than 100% (a short or
+ *    levered position can): -1 at every size, a total loss, never a NaN.
+ *    (A loss of exactly 100% is caught only up to the rounding of the
+ *    centred sums the sampler keeps, which may leave a factor of 1e-16
+ *    instead of 0: a known limit, not checked here.)
+ */
+static void test_sampler_compound_long_and_lost(void **state)
+{
+	enum { M = 5, T = 2397 };   /* not a multiple of 8: the lanes' tail too */
+	static const double level[2] = { 0.41, -0.37 };
+	const size_t sizes[] = { 1, 3, M };
+	double *x = malloc(M * T * sizeof *x);
+	struct sampler_options opt;
+	struct sampler_result *r;
+	struct universe *u;
+	struct hc_error err;
+	size_t i, k, j, c;
+
+	assert_non_null(x);
+	for (c = 0; c < 2; c++) {
+		long double lg = 0;
+		double want;
+
+		for (i = 0; i < M; i++)
+			for (k = 0; k < T; k++)
+				x[i * T + k] = level[c] + 0.0137 * sin(0.7 * (double)(k + 3 * i)) + 0.0021 * (double)i;
+		for (k = 0; k < T; k++) {
+			long double s = 0;
+
+			for (i = 0; i < M; i++)
+				s += x[i * T + k];
+			lg += log1pl(s / M);
+		}
+		want = (double)expm1l(lg * 12 / T);
+		u = fixture_universe(x, M, T);
+		assert_non_null(u);
+		options(&opt, 7, 3, 1);
+		opt.want_returns = 1;
+		opt.periods_per_year = 12;
+		assert_int_equal(sampler_run(&r, u, sizes, 3, &opt, &err), HC_OK);
+		for (k = 0; k < 7; k++) {
+			assert_true(isfinite(r->annual_return[k * 3]) && r->annual_return[k * 3] > -1);
+			/* 2397 roundings of about 1e-16 each: 1e-12 relative */
+			assert_close(r->annual_return[k * 3 + 2], want, 1e-3, 1e-12);
+		}
+		print_message("compound over %d periods at %+.2f: %.6g (reference %.6g)\n", T, level[c],
+			      r->annual_return[2], want);
+		sampler_result_free(r);
+		fixture_free(u);
+	}
+	for (c = 0; c < 2; c++) {
+		for (i = 0; i < M; i++)
+			for (k = 0; k < T; k++)
+				x[i * T + k] = 0.0083 + 0.031 * sin(1.3 * (double)(k + 5 * i));
+		for (i = 0; i < M; i++)
+			x[i * T + (c ? 2395 : 3)] = -1.0173 - 0.05 * (double)i;
+		u = fixture_universe(x, M, T);
+		assert_non_null(u);
+		options(&opt, 7, 3, 2);
+		opt.want_returns = 1;
+		opt.periods_per_year = 12;
+		assert_int_equal(sampler_run(&r, u, sizes, 3, &opt, &err), HC_OK);
+		for (k = 0; k < 7; k++)
+			for (j = 0; j < 3; j++)
+				assert_true(r->annual_return[k * 3 + j] == -1.0);
+		sampler_result_free(r);
+		fixture_free(u);
+	}
+	free(x);
+}
+
 /* Universes of 2 and 3 securities (every size reached backwards from the
  * total): each 1-holding portfolio is one security, each M-holding one the
  * universe; both routes. */
@@ -478,6 +559,7 @@ int main(void)
 		cmocka_unit_test(test_sampler_portfolios_are_subsets),
 		cmocka_unit_test(test_sampler_matrix_route_matches_columns),
 		cmocka_unit_test(test_sampler_tiny_universes),
+		cmocka_unit_test(test_sampler_compound_long_and_lost),
 		cmocka_unit_test(test_sampler_summary_brute_force),
 		cmocka_unit_test(test_sampler_rejects_bad_requests),
 		cmocka_unit_test(test_sampler_allocation_failure),

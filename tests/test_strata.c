@@ -266,6 +266,48 @@ static void test_strata_cap_probabilities_match_enumeration(void **state)
 	strata_free(s);
 }
 
+/* strata_cap_most against enumeration: the largest subset of a 12-security
+ * universe (strata of 5, 4, 2 and 1; one empty stratum) with at most k in
+ * every stratum, found by trying all 4096 bit masks, for k = 0 (no cap) to
+ * 6; and every size up to it is feasible in the cap table, none above. */
+static void test_strata_cap_most_matches_enumeration(void **state)
+{
+	const size_t of[12] = { 0, 1, 0, 2, 1, 0, 3, 1, 0, 2, 1, 0 };
+	size_t mem[12], cnt[5], k, n, st;
+	struct strata *s = NULL;
+	struct strata_cap *cap = NULL;
+	struct hc_error err;
+	unsigned mask;
+
+	(void)state;
+	assert_int_equal(strata_alloc(&s, of, 12, 5, &err), HC_OK);
+	for (k = 0; k <= 6; k++) {
+		size_t best = 0;
+
+		for (mask = 1; mask < 4096; mask++) {
+			int ok = 1;
+
+			n = mask_members(mask, 12, mem);
+			per_stratum(of, mem, n, 5, cnt);
+			for (st = 0; st < 5; st++)
+				ok &= k == 0 || cnt[st] <= k;
+			if (ok && n > best)
+				best = n;
+		}
+		assert_int_equal(strata_cap_most(s, k), best);
+		if (k == 0)
+			continue;
+		assert_int_equal(strata_cap_alloc(&cap, s, k, 12, &err), HC_OK);
+		for (n = 1; n <= 12; n++)
+			assert_int_equal(strata_cap_feasible(cap, n), n <= best);
+		strata_cap_free(cap);
+	}
+	/* by hand: k = 2 gives 2 + 2 + 2 + 1 + 0 = 7; k = 1 gives 4 */
+	assert_int_equal(strata_cap_most(s, 2), 7);
+	assert_int_equal(strata_cap_most(s, 1), 4);
+	strata_free(s);
+}
+
 /* The cap mode's sampled mean variance against the mean over every
  * admissible subset (enumeration): within 4 Monte Carlo standard errors
  * (a two-sided 6e-5 chance per size for a correct sampler; fixed seed).
@@ -586,6 +628,7 @@ int main(void)
 		cmocka_unit_test(test_strata_one_per_stratum_is_one_portfolio),
 		cmocka_unit_test(test_strata_cap_probabilities_match_enumeration),
 		cmocka_unit_test(test_strata_cap_mean_matches_enumeration),
+		cmocka_unit_test(test_strata_cap_most_matches_enumeration),
 		cmocka_unit_test(test_strata_expected_variance_matches_enumeration),
 		cmocka_unit_test(test_strata_draws_reproducible),
 		cmocka_unit_test(test_strata_report_columns),

@@ -8,10 +8,21 @@
  * replicate can evaluate them in O(log M) or O(M) without allocating.
  * Sampled rules read a sampler_result over consecutive sizes.
  *
+ * Sources: cost-benefit is after Statman (1987), "How Many Stocks Make a
+ * Diversified Portfolio?", Journal of Financial and Quantitative Analysis
+ * 22(3); shortfall after Domian, Louton & Racine (2007), "Diversification
+ * in Portfolios of Individual Stocks: 100 Stocks Are Not Enough", The
+ * Financial Review 42(4).  The other rules and every default are common
+ * practice with no single source (docs/enough.md).
+ *
  * Units: v-bar and c-bar are per period; every threshold in struct
  * rules_config and every value in struct rule_result is annualised (variance
  * times P, standard deviation times sqrt(P): common practice under serially
- * independent returns), as decimals (0.02 = 2% a year).
+ * independent returns), as decimals (0.02 = 2% a year).  With
+ * rules_config.per_period set (summary statistics or a covariance matrix
+ * given without periods per year, evaluated with P = 1) thresholds and
+ * values are on the inputs' own scale instead, and the unit and parameter
+ * texts say "per period" and carry no percent sign.
  */
 #ifndef HOLDCOUNT_RULES_H
 #define HOLDCOUNT_RULES_H
@@ -32,10 +43,10 @@ extern "C" {
 enum rules_id {
 	RULES_NEAR_FLOOR = 0,     /* sqrt(E[s2(N)]) <= (1+x) sqrt(floor) */
 	RULES_MARGINAL = 1,       /* sqrt(E[s2(N)]) - sqrt(E[s2(N+1)]) < eps */
-	RULES_BAND = 2,           /* q-quantile of sampled sigma(N) <= (1+x) sqrt(floor) */
+	RULES_BAND = 2,           /* q-quantile of sampled sigma(n) <= (1+x) sqrt(floor), every sampled n >= N */
 	RULES_COST_BENEFIT = 3,   /* premium (s(N) - s(N+1)) / s_universe < holding cost */
 	RULES_TRACKING_ERROR = 4, /* sqrt(E[TE2(N)]) <= budget */
-	RULES_SHORTFALL = 5,      /* share trailing the universe by more than d < p */
+	RULES_SHORTFALL = 5,      /* share trailing the universe by more than d < p, every sampled n >= N */
 	RULES_COUNT = 6
 };
 
@@ -79,6 +90,7 @@ struct rules_config {
 	double te_budget;         /* annualised TE, decimal */
 	double shortfall_d;       /* a year, decimal */
 	double shortfall_p;       /* share, 0..1 */
+	int per_period;           /* 1: inputs not annualised; texts say "per period" (default 0) */
 };
 
 /* Every rule selected, every parameter at its default. */
@@ -105,12 +117,16 @@ struct rule_result {
 	size_t count;             /* the smallest such count (when met) */
 	double value;             /* the rule's quantity at count (NaN when not met) */
 	double threshold;         /* what value is compared with (NaN when not defined) */
-	const char *unit;         /* static: what value measures */
+	const char *unit;         /* static: what value measures, "a year" or "per period" */
+	int per_period;           /* copied from rules_config.per_period */
 	char note[RULES_TEXT_MAX];/* "not met within the universe of 40", ... */
-	/* Bootstrap interval (bootstrapped = 1): percentiles of the count over
-	 * the replicates, numpy's linear rule, with an unmet replicate counted as
-	 * larger than every count; a percentile that touches an unmet replicate
-	 * is NaN and printed "not met". */
+	/* Bootstrap interval (bootstrapped = 1): the 5th, 50th and 95th
+	 * percentiles of the count over the replicates as order statistics --
+	 * the smallest count with at least that share of replicates at or below
+	 * it (numpy's method='inverted_cdf'), so always a whole number of
+	 * holdings some replicate needed -- with an unmet replicate counted as
+	 * larger than every count; a percentile that falls among the unmet
+	 * replicates is NaN and printed "not met". */
 	int bootstrapped;
 	size_t replicates;
 	size_t replicates_met;
@@ -145,17 +161,30 @@ int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
 		      size_t *count);
 
 /*
+ * The sampled rules (band, shortfall) return the count from which the rule
+ * is settled: the smallest sampled N such that the criterion holds at N and
+ * at every larger sampled size (sizes r->feasible marks infeasible, under a
+ * stratified cap, are not part of the sample and are passed over).  A first
+ * crossing alone is not enough: the sampled quantile or share wanders with
+ * sampling noise, so it can dip under the limit once and come back above
+ * it; such a dip does not set the count.  Not met when the criterion fails
+ * at the largest feasible sampled size.  Under rules_sampled's stages,
+ * "every larger size" means every size up to the last stage sampled.
+ *
  * Band rule from sampled variances: r must hold sizes in ascending order
  * (1..M consecutive for "the smallest count"; otherwise the smallest grid
- * size meeting it, said in the note).  cbar per period.  Allocates one
- * workspace of r->paths doubles.
+ * size from which the rule is settled, said in the note).  The q-quantile
+ * of each size's sd is numpy's linear one, from two order statistics found
+ * by selection.  cbar per period.  Allocates one workspace of r->paths
+ * doubles.
  */
 int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	       double cbar, double periods_per_year, struct rule_result *res,
 	       struct hc_error *err);
 
 /* Shortfall rule from sampled annual returns (r->annual_return required)
- * against the universe's compound annualised return. */
+ * against the universe's compound annualised return: settled, as above,
+ * where the share trailing by more than d stays below p. */
 int rules_shortfall(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err);
@@ -219,6 +248,7 @@ int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 /*
  * Set res's interval from per replicate counts: count[k] is the count of
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
+ * The one place every interval (enough, rolling, report) is computed.
  */
 void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
 

@@ -76,6 +76,11 @@ void strata_cap_free(struct strata_cap *c);
 /* 1 when some n-subset has at most k in every stratum (n <= nmax). */
 int strata_cap_feasible(const struct strata_cap *c, size_t n);
 
+/* The most holdings any portfolio can have with at most k in every
+ * stratum: sum_s min(k, m_s) (s->m when k = 0, no cap).  Every n from 1 to
+ * it is feasible, none above.  The one place the commands take it from. */
+size_t strata_cap_most(const struct strata *s, size_t k);
+
 /* Log of the number of n-subsets meeting the cap (-INFINITY when none). */
 double strata_cap_log_total(const struct strata_cap *c, size_t n);
 

@@ -113,11 +113,45 @@ static int sample_strata(struct curve_opts *o, const struct universe *u, const s
 	return rc ? cli_fail("curve", err) : HC_OK;
 }
 
+/* Append "a, b, c-d and e" naming the infeasible sizes of sc (runs of
+ * consecutive sizes as ranges), at most STRATA_NAMED items then "and N
+ * more". */
+#define STRATA_NAMED 16
+static void left_out_sizes(char *buf, size_t len, const struct strata_curve *sc)
+{
+	size_t j, items = 0, total = 0, used = strlen(buf);
+
+	for (j = 0; j < sc->npoints; j++)
+		if (!sc->points[j].feasible && (j == 0 || sc->points[j - 1].feasible ||
+						sc->points[j].n != sc->points[j - 1].n + 1))
+			total++;
+	for (j = 0; j < sc->npoints && items < STRATA_NAMED; j++) {
+		size_t first, last, e = j;
+		const char *sep;
+
+		if (sc->points[j].feasible)
+			continue;
+		while (e + 1 < sc->npoints && !sc->points[e + 1].feasible &&
+		       sc->points[e + 1].n == sc->points[e].n + 1)
+			e++;
+		first = sc->points[j].n;
+		last = sc->points[e].n;
+		items++;
+		sep = items == 1 ? "" : (items == total ? " and " : ", ");
+		if (used < len)
+			used += (size_t)snprintf(buf + used, len - used, first == last ? "%s%zu" : "%s%zu-%zu",
+						 sep, first, last);
+		j = e;
+	}
+	if (items < total && used < len)
+		snprintf(buf + used, len - used, " and %zu more", total - items);
+}
+
 /* The stratified columns beside the curve's, and what they mean. */
 static int add_strata(struct report *r, const struct curve_opts *o, const struct strata_curve *sc)
 {
-	char text[240];
-	size_t j, top = 0, any_out = 0;
+	char text[600];
+	size_t j, any_out = 0;
 
 	if (cli_strata_fields(r, &o->strat))
 		return HC_ENOMEM;
@@ -125,16 +159,17 @@ static int add_strata(struct report *r, const struct curve_opts *o, const struct
 		return HC_OK;
 	if (strata_report_columns(sc, r->tables[r->ntables - 1]))
 		return HC_ENOMEM;
-	for (j = 0; j < sc->npoints; j++) {
-		if (sc->points[j].feasible)
-			top = sc->points[j].n > top ? sc->points[j].n : top;
-		else
-			any_out = 1;
-	}
+	for (j = 0; j < sc->npoints; j++)
+		any_out |= !sc->points[j].feasible;
 	if (any_out) {
+		/* The true maximum, sum_s min(k, m_s), not the largest grid size
+		 * that happens to fit under it. */
 		snprintf(text, sizeof text, "stratified: no portfolio of more than %zu holdings has at most %zu "
-			 "in every stratum; those counts are left out of the stratified columns",
-			 top, sc->per_stratum_max);
+			 "in every stratum (the sum over strata of the smaller of %zu and the stratum's size); "
+			 "left out of the stratified columns: ",
+			 strata_cap_most(o->strat.strata, sc->per_stratum_max), sc->per_stratum_max,
+			 sc->per_stratum_max);
+		left_out_sizes(text, sizeof text, sc);
 		if (report_add_note(r, text))
 			return HC_ENOMEM;
 	}

@@ -366,6 +366,7 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 		       struct rule_result *res, size_t *nres)
 {
 	struct rules_input in;
+	struct moments mo;
 	struct hc_error err;
 	int rc;
 
@@ -373,8 +374,11 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	if (rc)
 		return rc;
 	e->m = o->sum.securities;
-	if (e->m == 1)
-		return cli_usage_error("enough", "--securities must be at least 2, found 1");
+	/* The same checks as `formula` (c-bar at most v-bar, c-bar at least
+	 * -v-bar/(M-1), M not 1), by the same function. */
+	hc_error_clear(&err);
+	if (moments_from_summary(&mo, e->vbar, e->cbar, e->m, &err))
+		return cli_fail("enough", &err);
 	e->annualised = cli_given(a, "periods-per-year");
 	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
 	if (!(e->ppy > 0))
@@ -387,7 +391,6 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
-	hc_error_clear(&err);
 	rc = rules_evaluate(cfg, &in, res, nres, &err);
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
@@ -455,11 +458,8 @@ static int run_sampled(const struct data_run *d, const struct universe *u, const
 	e->seed = d->smp->seed;
 	if (!cm && d->strat->per_stratum_max) {
 		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
-		size_t top = 0;
+		size_t top = strata_cap_most(d->strat->strata, d->strat->per_stratum_max);
 
-		for (k = 0; k < d->strat->strata->nstrata; k++)
-			top += d->strat->strata->count[k] < d->strat->per_stratum_max
-			     ? d->strat->strata->count[k] : d->strat->per_stratum_max;
 		for (j = 0; j < nres; j++)
 			if ((RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK) && res[j].defined && !res[j].met)
 				snprintf(res[j].note, sizeof res[j].note,
@@ -743,6 +743,14 @@ int cmd_enough(int argc, char **argv)
 	rc = cli_rules_config("enough", &o.rul, &a, have_data, o.uni.covariance, &cfg);
 	if (rc)
 		goto cleanup;
+	/* Summary statistics and a matrix stay on the inputs' scale unless told
+	 * the periods per year: the rules' texts then say "per period". */
+	cfg.per_period = (!have_data || o.uni.covariance) && !cli_given(&a, "periods-per-year");
+	if ((!have_data || o.uni.covariance) && (o.strat.map || o.strat.per_stratum_max || o.strat.proportional)) {
+		rc = cli_usage_error("enough", "--strata draws from return series, not from %s",
+				     have_data ? "a covariance matrix" : "summary statistics");
+		goto cleanup;
+	}
 	if (have_data && !o.uni.covariance) {
 		rc = enough_file(&o, a.positional[0], &cfg, &ps, &u, res, &nres, &r);
 	} else {

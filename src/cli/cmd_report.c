@@ -683,8 +683,10 @@ static void md_rules(FILE *fp, const struct run *r)
 			"are percentiles of the count when the periods are resampled (%s bootstrap, %zu replicates), "
 			"so 5%% to 95%% is a 90%% interval from the data's own estimation error. A narrow interval "
 			"means the history pins the count down; a wide one means a minimum-holdings rule should "
-			"lean to its upper end. Fractional percentiles fall between two replicates' counts. "
-			"\"not met\" in an interval means some replicates never meet the rule.%s\n\n",
+			"lean to its upper end. Each percentile is a count some replicate needed: the smallest count "
+			"that at least that share of the replicates needed or fewer, so always a whole number of "
+			"holdings. \"not met\" in an interval means the percentile falls among replicates that never "
+			"meet the rule.%s\n\n",
 			bootstrap_kind_name(r->o->rul.bootstrap_kind), r->o->rul.bootstrap,
 			sampled && !r->o->rul.bootstrap_sampled
 			? " The sampled rules (band, shortfall) are drawn from random portfolios and have no interval "
