@@ -790,6 +790,12 @@ static double now_seconds(void)
 	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
+void cli_stage(const char *cmd, int quiet, const char *what)
+{
+	if (!quiet && isatty(STDERR_FILENO))
+		fprintf(stderr, "holdcount %s: %s\n", cmd, what);
+}
+
 void cli_progress_init(struct cli_progress *p, const char *label, const char *unit, int quiet)
 {
 	p->label = label;

@@ -245,6 +245,10 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
  * outfile) or stdout.  Prints its own error; returns the exit status. */
 int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r);
 
+/* "holdcount CMD: WHAT" on its own line of stderr, the name of a stage of a
+ * long run, under the same condition as the progress bar below. */
+void cli_stage(const char *cmd, int quiet, const char *what);
+
 /* A progress bar with rate on stderr, shown only when stderr is a terminal
  * and --quiet was not given. */
 struct cli_progress {
@@ -374,12 +378,14 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
  * rules_sampled with smp's paths and seed (strata when strat says so), the
  * bootstrap interval, and with --bootstrap-sampled the sampled rules'
  * interval.  res has room for RULES_COUNT; *out gets the report `enough`
- * prints (release with report_free).  Prints its error; returns the exit
- * status. */
+ * prints (release with report_free).  With stages set, each long step
+ * (sampling, bootstrap, sampled bootstrap) is announced by cli_stage
+ * before its progress bar, as `holdcount report` lists its stages.
+ * Prints its error; returns the exit status. */
 struct rule_result;
 struct cli_strata;
 int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
-		    struct cli_strata *strat, int quiet, const struct universe *u,
+		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out);
 

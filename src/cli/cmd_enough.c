@@ -373,6 +373,7 @@ struct data_run {
 	const struct cli_sampling *smp;
 	struct cli_strata *strat;
 	int quiet;
+	int stages;                /* announce each long step (cli_stage) */
 };
 
 /* The band and shortfall rules by sampling (rules_sampled stops at the
@@ -397,6 +398,8 @@ static int run_sampled(const struct data_run *d, const struct universe *u,
 	so.periods_per_year = u->periods_per_year;
 	if ((rc = cli_strata_apply(d->cmd, d->strat, u, &so)))
 		return rc;
+	if (d->stages)
+		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
 	cli_progress_init(&prog, "sampling", "paths", d->quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
@@ -445,6 +448,11 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 	bo.threads = (int)d->smp->threads;
 	rc = bootstrap_base_alloc(&b, u, &err);
 	if (rc == HC_OK) {
+		if (d->stages) {
+			char what[96];
+			snprintf(what, sizeof what, "bootstrap of the exact rules (%zu replicates)", d->rul->bootstrap);
+			cli_stage(d->cmd, d->quiet, what);
+		}
 		cli_progress_init(&prog, "bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
@@ -472,6 +480,8 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 			bootstrap_base_free(b);
 			return rc;
 		}
+		if (d->stages)
+			cli_stage(d->cmd, d->quiet, "bootstrap of the sampled rules");
 		cli_progress_init(&prog, "sampled bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
@@ -578,11 +588,11 @@ static int data_checks(const char *cmd, const struct cli_sampling *smp, const st
 }
 
 int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
-		    struct cli_strata *strat, int quiet, const struct universe *u,
+		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out)
 {
-	struct data_run d = { cmd, rul, smp, strat, quiet };
+	struct data_run d = { cmd, rul, smp, strat, quiet, stages };
 	struct enough_run e;
 	int rc;
 
@@ -613,7 +623,7 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 	hc_error_clear(&err);
 	if (moments_from_universe(&mo, *up, &err))
 		return cli_fail("enough", &err);
-	return cli_enough_data("enough", &o->rul, &o->smp, &o->strat, o->out.quiet, *up, &mo, cfg, res, nres, out);
+	return cli_enough_data("enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0, *up, &mo, cfg, res, nres, out);
 }
 
 int cmd_enough(int argc, char **argv)

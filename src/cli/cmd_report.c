@@ -155,8 +155,7 @@ static int stage_enabled(const struct report_opts *o)
 
 static void stage(const struct report_opts *o, const char *what)
 {
-	if (stage_enabled(o))
-		fprintf(stderr, "holdcount report: %s\n", what);
+	cli_stage("report", o->quiet, what);
 }
 
 static void on_signal(int sig)
@@ -218,8 +217,10 @@ static int compute_curve(struct run *r)
 		return rc;
 	hc_error_clear(&err);
 	rc = curve_exact(&r->curve, &r->mo, sizes, nsizes, r->u->periods_per_year, &err);
-	if (rc == HC_OK && r->o->sam.paths > 0)
+	if (rc == HC_OK && r->o->sam.paths > 0) {
+		cli_stage("report", r->o->quiet, "sampling random portfolios at the curve's counts");
 		rc = cli_curve_sample(&r->o->sam, r->o->quiet, r->u, NULL, r->curve, sizes, nsizes, &err);
+	}
 	hc_free(sizes);
 	sizes = NULL;
 	if (rc == HC_OK && !(sizes = hc_calloc(r->u->m, sizeof *sizes)))
@@ -251,7 +252,9 @@ static int compute_curve(struct run *r)
 static int compute_rolling(struct run *r)
 {
 	struct rolling_options ro;
+	struct cli_progress prog;
 	struct hc_error err;
+	int rc;
 
 	hc_error_clear(&err);
 	rolling_options_init(&ro);
@@ -259,7 +262,12 @@ static int compute_rolling(struct run *r)
 	ro.step = r->o->step;
 	ro.rules = r->cfg;
 	ro.rules.selected &= RULES_EXACT_MASK;
-	if (rolling_run(&r->rolling, r->every_security, &ro, &err) != HC_OK)
+	cli_progress_init(&prog, "windows", "windows", r->o->quiet);
+	ro.progress = cli_progress_update;
+	ro.progress_ctx = &prog;
+	rc = rolling_run(&r->rolling, r->every_security, &ro, &err);
+	cli_progress_finish(&prog);
+	if (rc != HC_OK)
 		return cli_fail("report", &err);
 	r->rep_rolling = report_alloc();
 	if (!r->rep_rolling || rolling_report(r->rep_rolling, r->rolling, &err) ||
@@ -281,8 +289,8 @@ static int compute(struct run *r)
 		return cli_fail("report", &err);
 	if ((rc = compute_curve(r)) != HC_OK)
 		return rc;
-	stage(r->o, "rules");
-	rc = cli_enough_data("report", &r->o->rul, &r->o->sam, &r->strat, r->o->quiet, r->u, &r->mo, &r->cfg,
+	stage(r->o, "exact rules");
+	rc = cli_enough_data("report", &r->o->rul, &r->o->sam, &r->strat, r->o->quiet, 1, r->u, &r->mo, &r->cfg,
 			     r->rules, &r->nrules, &r->rep_enough);
 	if (rc == HC_OK && r->hold.holdings) {
 		stage(r->o, "audit of the funds");
