@@ -61,30 +61,61 @@ ls "$T"/nognuplot/*.png >/dev/null 2>&1 && fail "PNG files without gnuplot"
 
 # 5. SIGINT mid-run: exit 7, no DIR, no temporary folder; over an existing
 # report (--force) the old one is intact.  Job control (set -m) keeps SIGINT
-# from being ignored in the background job.
+# from being ignored in the background job.  The signal is sent once the
+# run's temporary folder holds its marker (written after the handler is
+# installed and the folder recorded), and the run is pinned to one thread
+# with 400000 paths, so it is still sampling then on any machine: the signal
+# lands mid-run rather than after a fast run has finished.
+SLOW=(--paths 400000 --bootstrap 0 --threads 1 -q)
+# started NAME PID: wait (up to 30 s) for NAME.tmp-*/.holdcount-incomplete;
+# fails unless it appears while PID still runs.
+started() {
+	local i
+	for i in $(seq 300); do
+		compgen -G "$T/$1.tmp-*/.holdcount-incomplete" >/dev/null && kill -0 "$2" 2>/dev/null && return 0
+		kill -0 "$2" 2>/dev/null || break
+		sleep 0.1
+	done
+	fail "$1: the run's temporary folder did not appear while it ran"
+	return 1
+}
+# only_marker NAME: each NAME.tmp-* holds the marker and nothing else.
+only_marker() {
+	local d
+	for d in "$T/$1".tmp-*; do
+		[ "$(ls -A "$d")" = ".holdcount-incomplete" ] || fail "$1: the leftover $d holds $(ls -A "$d" | tr '\n' ' ')"
+	done
+}
 set -m
-"$HC" report -o "$T/int" --paths 400000 --bootstrap 0 -q & pid=$!
-sleep 1; kill -INT $pid; wait $pid; rc=$?
+"$HC" report -o "$T/int" "${SLOW[@]}" & pid=$!
+started int $pid && kill -INT $pid; wait $pid; rc=$?
 [ $rc -eq 7 ] || fail "SIGINT: exit $rc, expected 7"
 [ -e "$T/int" ] && fail "SIGINT left a report folder"
 ls -d "$T"/int.tmp-* >/dev/null 2>&1 && fail "SIGINT left a temporary folder"
-before=$(cat "$T"/b/* 2>/dev/null | md5sum)
-"$HC" report -o "$T/b" --force --paths 400000 --bootstrap 0 -q & pid=$!
-sleep 1; kill -INT $pid; wait $pid; rc=$?
+before=$(cd "$T/b" && ls -A | md5sum; cat "$T"/b/* 2>/dev/null | md5sum)
+"$HC" report -o "$T/b" --force "${SLOW[@]}" & pid=$!
+started b $pid && kill -INT $pid; wait $pid; rc=$?
 [ $rc -eq 7 ] || fail "SIGINT with --force: exit $rc"
-[ "$(cat "$T"/b/* | md5sum)" = "$before" ] || fail "SIGINT with --force changed the old report"
+[ "$(cd "$T/b" && ls -A | md5sum; cat "$T"/b/* | md5sum)" = "$before" ] || fail "SIGINT with --force changed the old report"
 ls -d "$T"/b.tmp-* >/dev/null 2>&1 && fail "SIGINT with --force left a temporary folder"
 
-# 6. SIGKILL cannot be caught: the leftover is named DIR.tmp-XXXXXX, DIR
-# itself is absent, and the next run for DIR removes the leftover.
-"$HC" report -o "$T/kill" --paths 400000 --bootstrap 0 -q & pid=$!
-sleep 1; kill -KILL $pid; wait $pid 2>/dev/null
+# 6. SIGKILL cannot be caught: the leftover is named DIR.tmp-XXXXXX and
+# holds no partial file (only the marker: the run was sampling), DIR itself
+# is absent, and the next run for DIR removes the leftover.
+"$HC" report -o "$T/kill" "${SLOW[@]}" & pid=$!
+started kill $pid && kill -KILL $pid; wait $pid 2>/dev/null
 set +m
 [ -e "$T/kill" ] && fail "SIGKILL left a folder named like the report"
-ls -d "$T"/kill.tmp-* >/dev/null 2>&1 || fail "SIGKILL: expected a DIR.tmp-* leftover (is the run too fast?)"
+ls -d "$T"/kill.tmp-* >/dev/null 2>&1 || fail "SIGKILL: expected a DIR.tmp-* leftover"
+only_marker kill
 "$HC" report -o "$T/kill" "${FAST[@]}" || fail "run after SIGKILL exited $?"
 ls -d "$T"/kill.tmp-* >/dev/null 2>&1 && fail "the run after SIGKILL did not remove the leftover"
 [ -s "$T/kill/summary.json" ] || fail "the run after SIGKILL wrote no report"
+
+# The finished folder has mode 0777 less the umask, as mkdir(2) gives
+# (POSIX.1-2008 umask), not mkdtemp's private 0700.
+(umask 022 && "$HC" report -o "$T/mode" "${FAST[@]}") || fail "report under umask 022 exited $?"
+[ "$(stat -c %a "$T/mode")" = 755 ] || fail "report under umask 022: mode $(stat -c %a "$T/mode"), expected 755"
 
 # 7. Usage errors.
 "$HC" report "${FAST[@]}" 2>"$T/err"; rc=$?
