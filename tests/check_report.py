@@ -2,9 +2,10 @@
 the PNG specification.
 
 Runs `holdcount report` on the bundled demo and checks:
-  - summary.json parses (Python's json) and every cell of curve.csv and
-    enough.csv equals the same cell of summary.json to the last digit (both
-    are printed with 17 significant digits, so float equality is exact);
+  - summary.json parses (Python's json) and every cell of curve.csv,
+    enough.csv, audit.csv, audit-screens.csv and audit-sectors.csv equals
+    the same cell of summary.json to the last digit (both are printed with
+    17 significant digits, so float equality is exact);
   - the exact curve against numpy on the same data: E[var(N)] =
     vbar/N + (1 - 1/N) cbar from numpy's sample covariance (ddof=1) of the
     complete securities, times 12 (design.md section 3; rtol 1e-12, since
@@ -56,17 +57,22 @@ subprocess.run([HC, "report", "--force", "-q", "-o", out, "--paths", "2000", "--
 with open(os.path.join(out, "summary.json")) as fp:
     summary = json.load(fp)
 
-for name, section, table in (("curve.csv", "curve", "curve"), ("enough.csv", "enough", "rules")):
+for name, section, table in (("curve.csv", "curve", "curve"), ("enough.csv", "enough", "rules"),
+                             ("audit.csv", "audit", "funds"), ("audit-screens.csv", "audit", "screens"),
+                             ("audit-sectors.csv", "audit", "sectors")):
     with open(os.path.join(out, name), newline="") as fp:
         rows = list(csv.DictReader(fp))
     js = summary[section][table]
-    check(len(rows) == len(js), f"{name}: {len(rows)} rows, summary.json {len(js)}")
+    check(len(rows) == len(js) and len(rows) > 0, f"{name}: {len(rows)} rows, summary.json {len(js)}")
     for i, (row, obj) in enumerate(zip(rows, js)):
         check(list(row.keys()) == list(obj.keys()), f"{name}: row {i} keys differ from summary.json")
         for k, v in row.items():
             a, b = cell_value(v), obj.get(k)
             if isinstance(b, bool) or isinstance(a, bool):
                 check(a == b or str(b).lower() == v, f"{name} row {i} {k}: {v!r} vs {b!r}")
+            elif b == "":
+                # CSV writes empty text and no value alike (an empty cell)
+                check(v == "", f"{name} row {i} {k}: csv {v!r}, json ''")
             else:
                 check(a == b, f"{name} row {i} {k}: csv {v!r}, json {b!r}")
 

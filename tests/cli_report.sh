@@ -17,7 +17,7 @@ for f in summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rule
 	[ -s "$T/a/$f" ] || fail "demo report lacks $f"
 done
 if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
-	for f in audit.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
+	for f in audit.csv audit-screens.csv audit-sectors.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
 fi
 [ -e "$T/a/README-plots.txt" ] && fail "README-plots.txt written although gnuplot rendered"
 [ -e "$T/a/.holdcount-incomplete" ] && fail "the finished report keeps the incomplete marker"

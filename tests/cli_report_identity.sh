@@ -46,6 +46,13 @@ src=$("$PY" -c 'import json,sys; print(json.load(open(sys.argv[1]))["curve"]["so
 compare "$T/demo" curve 0 "$HC" curve "$src" "${OPTS[@]}"
 compare "$T/demo" enough 0 "$HC" enough "$src" "${OPTS[@]}" --bootstrap 100
 compare "$T/demo" audit 0 "$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}"
+# audit-screens.csv and audit-sectors.csv: `audit --table screens|sectors`
+for table in screens sectors; do
+	"$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}" -q \
+		--format csv --table $table >"$T/demo/audit-$table.cmd.csv" || fail "audit --table $table exited $?"
+	cmp -s "$T/demo/audit-$table.cmd.csv" "$T/demo/r/audit-$table.csv" ||
+		fail "audit-$table.csv of the demo report differs from 'audit --table $table --format csv'"
+done
 
 # 2. 320 invented securities, 96 months; two invented funds on its ids.
 B=$T/big
@@ -74,6 +81,13 @@ compare "$B" curve 0 "$HC" curve "$B/universe.csv" "${BOPTS[@]}"
 compare "$B" enough 0 "$HC" enough "$B/universe.csv" "${BOPTS[@]}" "${RULES[@]}"
 compare "$B" audit 1 "$HC" audit "$B/universe.csv" --holdings "$B/funds.csv" --sectors "$B/sectors.csv" \
 	"${BOPTS[@]}" "${POLICY[@]}"
+for table in screens sectors; do
+	"$HC" audit "$B/universe.csv" --holdings "$B/funds.csv" --sectors "$B/sectors.csv" "${BOPTS[@]}" "${POLICY[@]}" \
+		-q --format csv --table $table >"$B/audit-$table.cmd.csv" 2>/dev/null
+	[ $? -eq 1 ] || fail "audit --table $table with a failing fund: expected exit 1"
+	cmp -s "$B/audit-$table.cmd.csv" "$B/r/audit-$table.csv" ||
+		fail "audit-$table.csv of the 320-security report differs from 'audit --table $table --format csv'"
+done
 # the sampled rules went past the first stage, and got an interval
 "$PY" - "$B/r/summary.json" <<'PY' || fail "summary.json of the 320-security report: sampled rules not as expected"
 import json, sys

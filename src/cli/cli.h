@@ -249,6 +249,11 @@ int cli_write_report(const char *cmd, const struct cli_output *o, const struct r
  * long run, under the same condition as the progress bar below. */
 void cli_stage(const char *cmd, int quiet, const char *what);
 
+/* Like cli_write_report, but only one part of r, as CSV whatever the
+ * format (report_write_csv_part: table is a table's key, or NULL for the
+ * fields as key,value rows), for commands whose --table chooses it. */
+int cli_write_csv_part(const char *cmd, const struct cli_output *o, const struct report *r, const char *table);
+
 /* A progress bar with rate on stderr, shown only when stderr is a terminal
  * and --quiet was not given. */
 struct cli_progress {

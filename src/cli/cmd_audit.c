@@ -20,6 +20,7 @@
 #include "holdcount/universe.h"
 
 struct audit_opts {
+	int table;                 /* enum audit_table: which table --format csv prints */
 	struct cli_holdings hold;
 	struct cli_policy pol;
 	struct cli_sampling sam;
@@ -68,8 +69,22 @@ static const struct cli_option policy_own[] = {
 };
 const struct cli_group cli_group_policy = { "policy options", policy_own };
 
+/* The tables of audit_report that --table chooses for the CSV, by key. */
+enum audit_table { AUDIT_TABLE_FUNDS = 0, AUDIT_TABLE_SCREENS = 1, AUDIT_TABLE_SECTORS = 2 };
+static const char *const table_words[] = { "funds", "screens", "sectors", NULL };
+
 #define AO(f) offsetof(struct audit_opts, f)
+static const struct cli_option audit_own[] = {
+	{ "table", 0, CLI_CHOICE, AO(table), NULL,
+	  "with --format csv, the table to print: funds (one row per fund), screens (each screen's parts "
+	  "with their deciding figures) or sectors (each fund's sector weights; needs --sectors)",
+	  table_words, "funds" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+static const struct cli_group audit_group = { "audit options", audit_own };
+
 static const struct cli_group_use audit_groups[] = {
+	{ &audit_group, 0 },
 	{ &cli_group_holdings, AO(hold) },
 	{ &cli_group_policy, AO(pol) },
 	{ &cli_group_sampling_no_sizes, AO(sam) },
@@ -89,8 +104,9 @@ const struct cli_command cli_command_audit = {
 	"same count (--paths), and the expected sd of a random portfolio laid out with its own "
 	"weights; sector weights with --sectors; and three weight screens (UCITS 2009/65/EC Art. 52, "
 	"Investment Company Act of 1940 s. 5(b)(1), Internal Revenue Code s. 851(b)(3)), written from "
-	"memory of the texts. Exit status 0 when every fund passes the rules asked for, 1 when any "
-	"fails, 2 for usage and 3 for data errors.",
+	"memory of the texts. With --format csv it prints one table, the funds unless --table chooses "
+	"the screens or the sector weights. Exit status 0 when every fund passes the rules asked for, "
+	"1 when any fails, 2 for usage and 3 for data errors.",
 	1, 1, audit_groups
 };
 
@@ -223,6 +239,11 @@ int cmd_audit(int argc, char **argv)
 		rc = cli_usage_error("audit", "--missing pairwise does not apply: a fund's sd needs complete series");
 	else if (o.uni.covariance)
 		rc = cli_usage_error("audit", "--covariance does not apply: a fund's sd needs return series");
+	else if (cli_given(&a, "table") && o.out.format != CLI_FORMAT_CSV)
+		rc = cli_usage_error("audit", "--table chooses the table of --format csv; the text and JSON outputs "
+				     "hold every table");
+	else if (o.table == AUDIT_TABLE_SECTORS && !o.hold.sectors)
+		rc = cli_usage_error("audit", "--table sectors needs --sectors FILE");
 	if (rc != HC_OK || (rc = cli_load_universe("audit", &o.uni, a.positional[0], &u)) != HC_OK)
 		goto cleanup;
 	if (moments_from_universe(&mo, u, &err) != HC_OK) {
@@ -230,7 +251,11 @@ int cmd_audit(int argc, char **argv)
 		goto cleanup;
 	}
 	rc = cli_audit_data("audit", &o.hold, &o.pol, &o.sam, o.out.quiet, u, &mo, &h, &l, &res, &r);
-	if (rc != HC_OK || (rc = cli_write_report("audit", &o.out, r)) != HC_OK)
+	if (rc != HC_OK)
+		goto cleanup;
+	rc = o.table == AUDIT_TABLE_FUNDS ? cli_write_report("audit", &o.out, r)
+					  : cli_write_csv_part("audit", &o.out, r, table_words[o.table]);
+	if (rc != HC_OK)
 		goto cleanup;
 	if (res->failed_funds) {
 		cli_audit_say_failures("audit", res);

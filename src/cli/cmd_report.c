@@ -405,6 +405,24 @@ static int write_report_file(struct reportdir *rd, const char *name, const struc
 	return reportdir_close(rd, fp, name, err);
 }
 
+/* One table of rep as CSV (report_write_csv_part), as `holdcount audit
+ * --table KEY --format csv` prints it. */
+static int write_part_file(struct reportdir *rd, const char *name, const struct report *rep, const char *table,
+			   struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
+		return rc;
+	rc = report_write_csv_part(fp, rep, table, err);
+	if (rc != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return reportdir_close(rd, fp, name, err);
+}
+
 /* One report's JSON object, without its trailing newline, into fp. */
 static int json_member(FILE *fp, const char *key, const struct report *rep, int last, struct hc_error *err)
 {
@@ -731,9 +749,11 @@ static void md_audit(FILE *fp, const struct run *r)
 	      "Act and RIC are the weight screens of Directive 2009/65/EC Art. 52, the Investment Company Act "
 	      "of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3), written from memory of the texts: "
 	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
-	      "only when `--screens` names it. Sector weights and each screen's deciding figure are in "
-	      "`audit.csv` and `summary.json`.\n\n", fp);
+	      "only when `--screens` names it.\n\n", fp);
 	md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, and "
+		"everything in `summary.json` under `audit`.\n\n",
+		table_of(r->rep_audit, "sectors") ? ", each fund's sector weights in `audit-sectors.csv`" : "");
 }
 
 static void md_plots(FILE *fp, const struct run *r, const struct plots_input *pin, const unsigned char *made)
@@ -787,8 +807,14 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 		      "verify against the current text and defer to compliance counsel\n", fp);
 	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
-	      "`--format csv` and the same options\n- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a "
-	      "year)\n", fp);
+	      "`--format csv` and the same options\n", fp);
+	if (r->rep_audit)
+		fprintf(fp, "- `audit-screens.csv`%s: what `holdcount audit` prints with `--format csv --table "
+			"screens`%s\n", table_of(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
+			table_of(r->rep_audit, "sectors") ? " and `--table sectors`" : "");
+	if (r->rep_rolling)
+		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
+	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
 	return reportdir_close(rd, fp, "summary.md", err);
 }
 
@@ -905,6 +931,10 @@ static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *er
 		rc = write_report_file(rd, "enough.csv", r->rep_enough, report_writer_csv, err);
 	if (rc == HC_OK && r->rep_audit)
 		rc = write_report_file(rd, "audit.csv", r->rep_audit, report_writer_csv, err);
+	if (rc == HC_OK && r->rep_audit)
+		rc = write_part_file(rd, "audit-screens.csv", r->rep_audit, "screens", err);
+	if (rc == HC_OK && r->rep_audit && report_find_table(r->rep_audit, "sectors"))
+		rc = write_part_file(rd, "audit-sectors.csv", r->rep_audit, "sectors", err);
 	if (rc == HC_OK && r->rep_rolling)
 		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, report_writer_csv, err);
 	if (rc == HC_OK)
