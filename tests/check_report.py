@@ -10,6 +10,8 @@ Runs `holdcount report` on the bundled demo and checks:
     vbar/N + (1 - 1/N) cbar from numpy's sample covariance (ddof=1) of the
     complete securities, times 12 (design.md section 3; rtol 1e-12, since
     both sum about 10^4 products in a different order);
+  - the rolling windows, in by default: every window's complete securities,
+    average covariance and near-floor count against numpy on that window;
   - exact.dat carries 100 * expected_sd to its 10 significant digits;
   - each PNG is a PNG (signature, PNG specification 1.2 section 12.12) whose
     IHDR says 1000 x 640 (section 4.1.1).
@@ -59,7 +61,7 @@ with open(os.path.join(out, "summary.json")) as fp:
 
 for name, section, table in (("curve.csv", "curve", "curve"), ("enough.csv", "enough", "rules"),
                              ("audit.csv", "audit", "funds"), ("audit-screens.csv", "audit", "screens"),
-                             ("audit-sectors.csv", "audit", "sectors")):
+                             ("audit-sectors.csv", "audit", "sectors"), ("rolling.csv", "rolling", "windows")):
     with open(os.path.join(out, name), newline="") as fp:
         rows = list(csv.DictReader(fp))
     js = summary[section][table]
@@ -95,6 +97,31 @@ for row in summary["curve"]["curve"]:
     check(abs(row["expected_tracking_error"] ** 2 - te2) <= 1e-12 * 12 * vbar,
           f"TE({n}) {row['expected_tracking_error']} vs numpy sqrt {te2}")
 check(abs(summary["universe"]["floor_sd"] - np.sqrt(12 * cbar)) <= 1e-12, "floor sd vs numpy")
+
+# The rolling windows (in by default: 240 months hold two five-year windows)
+# against numpy window by window: the securities complete in the window, and
+# the near-floor count, the smallest N <= M with vbar/N + (1 - 1/N) cbar <=
+# (1 + x)^2 cbar at the default x = 10% (design.md section 5; numpy's
+# covariance with ddof=1 of that window's complete columns).
+dates = [row[0] for row in data[1:]]
+windows = summary["rolling"]["windows"]
+check(len(windows) == 16, f"{len(windows)} rolling windows, expected (240 - 60)/12 + 1 = 16")
+check(summary["rolling"]["window"] == 60 and summary["rolling"]["step"] == 12, "rolling window and step not 60 and 12")
+for w in windows:
+    lo, hi = dates.index(w["window_start"]), dates.index(w["window_end"])
+    check(hi - lo + 1 == 60, f"window {w['window_start']}: {hi - lo + 1} periods")
+    part = [c[lo:hi + 1] for c in cols]
+    full = [c for c in part if all(x not in ("", "NA", "NaN", ".") for x in c)]
+    xw = np.array([[float(v) for v in c] for c in full])
+    aw = np.cov(xw, ddof=1)
+    mw = aw.shape[0]
+    vb = np.trace(aw) / mw
+    cb = (aw.sum() - np.trace(aw)) / (mw * (mw - 1))
+    want = next((n for n in range(1, mw + 1) if vb / n + (1 - 1 / n) * cb <= 1.1 ** 2 * cb), None)
+    check(w["securities"] == mw, f"window {w['window_start']}: {w['securities']} securities, numpy {mw}")
+    check(w["count_near_floor"] == want, f"window {w['window_start']}: near-floor {w['count_near_floor']}, numpy {want}")
+    check(abs(w["average_covariance"] - 12 * cb) <= 1e-12 * 12 * vb,
+          f"window {w['window_start']}: average covariance {w['average_covariance']} vs numpy {12 * cb}")
 
 # exact.dat: every count 1..M, 100 * expected_sd to 10 significant digits.
 exact = {}

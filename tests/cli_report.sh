@@ -13,7 +13,8 @@ FAST=(--paths 1000 --bootstrap 100 -q)
 # 1. The demo report holds every file.
 "$HC" report -o "$T/a" "${FAST[@]}" || fail "demo report exited $?"
 for f in summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rules.dat \
-	 risk.gp risk-log.gp share.gp tracking.gp risk.png risk-log.png share.png tracking.png; do
+	 risk.gp risk-log.gp share.gp tracking.gp risk.png risk-log.png share.png tracking.png \
+	 rolling.csv rolling.dat rolling.gp rolling.png; do
 	[ -s "$T/a/$f" ] || fail "demo report lacks $f"
 done
 if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
@@ -24,6 +25,30 @@ fi
 grep -q '^## Cautions' "$T/a/summary.md" || fail "summary.md has no cautions"
 grep -q 'not investment advice' "$T/a/summary.md" || fail "summary.md lacks 'not investment advice'"
 grep -q '!\[Risk by holding count\](risk.png)' "$T/a/summary.md" || fail "summary.md does not embed risk.png"
+# The count needed through time is in by default: the demo's 240 months hold
+# two windows of five years (60 periods), one a year (12): (240 - 60)/12 + 1
+# = 16 windows (docs/report.md); summary.md says which window was used.
+grep -q '^Each exact rule.s count from the averages of each window of 60 periods (five years, the report.s default' "$T/a/summary.md" ||
+	fail "summary.md does not say which rolling window was used"
+grep -q 'one window starting every 12 periods: 16 windows' "$T/a/summary.md" || fail "summary.md: not 16 windows a year apart"
+[ "$(grep -c '^| 20[0-9][0-9]-' "$T/a/summary.md")" -eq 16 ] || fail "summary.md: the rolling table has not 16 rows"
+[ "$(wc -l <"$T/a/rolling.csv")" -eq 17 ] || fail "rolling.csv: $(wc -l <"$T/a/rolling.csv") lines, expected a header and 16 windows"
+grep -q '!\[Holding count needed through time\](rolling.png)' "$T/a/summary.md" || fail "summary.md does not embed rolling.png"
+# --window 0 leaves it out and says so; a history shorter than two windows
+# leaves it out and says why (an invented 30-security, 100-month universe).
+"$HC" report -o "$T/w0" --window 0 "${FAST[@]}" || fail "--window 0 exited $?"
+ls "$T"/w0/rolling.* >/dev/null 2>&1 && fail "--window 0 wrote rolling files"
+grep -q '^Left out: `--window 0` was given.$' "$T/w0/summary.md" || fail "summary.md does not say --window 0 left the windows out"
+grep -q '"rolling": null' "$T/w0/summary.json" || fail "--window 0: summary.json's rolling is not null"
+"$HC" synth -q --securities 30 --periods 100 --seed 2385 -o "$T/short.csv" || fail "synth exited $?"
+"$HC" report "$T/short.csv" -o "$T/short" "${FAST[@]}" || fail "report of a 100-period history exited $?"
+ls "$T"/short/rolling.* >/dev/null 2>&1 && fail "a 100-period history got rolling windows of 60"
+grep -q '^Left out: the history has 100 periods, fewer than two windows of 60 (five years at 12 periods a year)' "$T/short/summary.md" ||
+	fail "summary.md does not say why a short history has no rolling windows"
+"$HC" report "$T/short.csv" -o "$T/short24" --window 24 --step 6 "${FAST[@]}" || fail "--window 24 --step 6 exited $?"
+[ "$(wc -l <"$T/short24/rolling.csv")" -eq 14 ] || fail "--window 24 --step 6 over 100 periods: expected (100-24)/6+1 = 13 windows"
+grep -q 'each window of 24 periods (set with `--window`), one window starting every 6 periods: 13 windows' "$T/short24/summary.md" ||
+	fail "summary.md does not state the window given"
 
 # 2. Deterministic: a second run gives the same bytes (summary.md differs at
 # most in its date line).
@@ -120,6 +145,9 @@ ls -d "$T"/kill.tmp-* >/dev/null 2>&1 && fail "the run after SIGKILL did not rem
 # 7. Usage errors.
 "$HC" report "${FAST[@]}" 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] && grep -q -- "-o DIR is required" "$T/err" || fail "missing -o: exit $rc, $(cat "$T/err")"
+"$HC" report -o "$T/x" --window 0 --step 6 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] && grep -q -- "--step applies to the rolling windows, which --window 0 leaves out" "$T/err" ||
+	fail "--step with --window 0: exit $rc, $(cat "$T/err")"
 "$HC" report -o "$T/x" --plot-format gif 2>/dev/null; rc=$?
 [ $rc -eq 2 ] || fail "--plot-format gif: exit $rc, expected 2"
 [ -e "$T/x" ] && fail "a usage error wrote a folder"

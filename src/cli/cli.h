@@ -394,6 +394,13 @@ int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct c
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out);
 
+/* After rolling_report: each rule's parameters as fields and the note on
+ * drifting averages, as `holdcount rolling` prints them (cmd_rolling.c), so
+ * that `holdcount report` shows the same object.  0, or non-zero when out
+ * of memory. */
+struct rolling_result;
+int cli_rolling_context(struct report *r, const struct rolling_result *res);
+
 /* The holdings inputs of `audit` (cmd_audit.c): --holdings, --sectors,
  * --allow-short, --strict and the column names. */
 struct cli_holdings {
