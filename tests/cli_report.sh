@@ -59,6 +59,19 @@ done
 diff <(grep -v '^Written by' "$T/a/summary.md") <(grep -v '^Written by' "$T/b/summary.md") >/dev/null ||
 	fail "summary.md differs beyond its date line"
 
+# An invented universe of weakly correlated securities (average correlation
+# about 0.01): the near-floor rule is met in no window (its count would
+# exceed the securities), so the rolling plot leaves its line out (a line
+# with no point makes gnuplot warn, which fails the render) and says so;
+# the floor lies low on the risk plots' axis, so their key goes below them.
+"$HC" synth -q --securities 200 --periods 144 --market-vol 0.05 --sector-vol 0.02 --specific-vol 0.45 \
+	--seed 4 -o "$T/lowcorr.csv" || fail "synth of the weakly correlated universe exited $?"
+"$HC" report "$T/lowcorr.csv" -o "$T/lowcorr" "${FAST[@]}" 2>"$T/err" || fail "report of a weakly correlated universe exited $?: $(cat "$T/err")"
+grep -q 'Not met in any window, so not drawn: near-floor\.' "$T/lowcorr/summary.md" || fail "the rolling caption does not name the rule met in no window"
+[ -s "$T/lowcorr/rolling.png" ] || fail "no rolling.png for the weakly correlated universe"
+grep -q '^set key outside below' "$T/lowcorr/risk.gp" || fail "risk.gp keeps its key over a low floor"
+grep -q '^set key outside below' "$T/a/risk.gp" && fail "the demo's risk.gp moved its key below, though the floor leaves room"
+
 # 3. An existing folder is refused without --force and left alone.
 before=$(cat "$T"/a/summary.json | md5sum)
 "$HC" report -o "$T/a" "${FAST[@]}" 2>"$T/err"; rc=$?
