@@ -127,6 +127,17 @@ for w in windows:
     check(abs(w["average_covariance"] - 12 * cb) <= 1e-12 * 12 * vb,
           f"window {w['window_start']}: average covariance {w['average_covariance']} vs numpy {12 * cb}")
 
+# The share plot's caption states the diversifiable share left at N = M:
+# (vbar - cbar)/M over E[var(M)] from numpy (design.md section 2), to the
+# caption's two decimals.
+import re
+caps = {p["name"]: p["caption"] for p in summary["plots"]["plots"]}
+found = re.search(r"securities ([0-9.]+)% remains at N = ([0-9]+),", caps.get("share", ""))
+share_m = 100 * ((vbar - cbar) / m) / (vbar / m + (1 - 1 / m) * cbar)
+check(found is not None and int(found.group(2)) == m and found.group(1) == "%.2f" % share_m,
+      f"share caption: {found.group(0) if found else caps.get('share')!r}, numpy {share_m:.2f}% at N = {m}")
+check("zero at N = M" in caps.get("tracking", ""), "the tracking caption does not say the error is zero at N = M")
+
 # exact.dat: every count 1..M, 100 * expected_sd to 10 significant digits.
 exact = {}
 with open(os.path.join(out, "exact.dat")) as fp:
