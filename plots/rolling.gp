@@ -1,6 +1,6 @@
 # The count each exact rule recommends, window by window: has the count
 # needed changed?
-set title "@TITLE@\n@BASIS@"
+set title "@TITLE@\n@SUBTITLE@"
 set xdata time
 set timefmt "%Y-%m-%d"
 set format x "%Y"

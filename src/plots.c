@@ -28,17 +28,10 @@
 #include <unistd.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/plotlayout.h"
 
 extern char **environ;
 
-/* Rule labels are stacked in rows this far apart, as a fraction of the
- * plot's top, so that rules with nearby counts do not print over each
- * other; the first row sits this high. */
-#define PLOTS_LABEL_TOP 0.80
-#define PLOTS_LABEL_STEP 0.06
-/* A label whose count lies in the right part of the axis past this
- * fraction is set to the left of its marker, so it stays inside. */
-#define PLOTS_LABEL_FLIP 0.62
 /* Characters of gnuplot's stderr kept in an error message. */
 #define PLOTS_MESSAGE_KEEP 400
 
@@ -94,6 +87,386 @@ unsigned plots_data_used(int kind)
 	return kind >= 0 && kind < PLOTS_NKINDS ? kinds[kind].data : 0;
 }
 
+/* ---- the frame ------------------------------------------------------------- */
+
+/*
+ * Every plot but the rolling one fixes its frame in screen fractions, so
+ * the label layout below knows where a value lands in pixels.  The bottom
+ * leaves room for the tick labels and the axis label, or also for the key
+ * when it goes below the plot.
+ */
+#define FRAME_LEFT 0.08
+#define FRAME_RIGHT 0.97
+#define FRAME_TOP 0.88
+#define FRAME_BOTTOM 0.13
+#define FRAME_BOTTOM_KEY_BELOW 0.27
+
+/* Rule labels: the top row's height and the distance between rows, as
+ * fractions of the y axis; the room kept between a label's row and the
+ * highest curve or band under its span; the pixels between a leader and
+ * its label, and the clearance a label keeps from other leaders. */
+#define RISK_ROW_TOP 0.90
+#define RISK_ROW_STEP 0.055
+#define RISK_ROW_CLEAR 0.03
+#define RISK_LABEL_GAP 5.0
+#define RISK_LABEL_PAD 5.0
+/* Text sizes in points: labels, and the key (the terminal's font). */
+#define LABEL_POINTS 9.0
+#define KEY_POINTS 11.0
+/* Points sampled per pixel along a line, for collision tests. */
+#define LINE_SAMPLES_PER_PX 0.5
+
+static struct plotlayout_axis frame_x(double lo, double hi, int log_axis)
+{
+	struct plotlayout_axis a = { lo, hi, log_axis, FRAME_LEFT * PLOTS_WIDTH, FRAME_RIGHT * PLOTS_WIDTH };
+
+	return a;
+}
+
+static struct plotlayout_axis frame_y(double lo, double hi, int log_axis, int key_below)
+{
+	struct plotlayout_axis a = { lo, hi, log_axis, (key_below ? FRAME_BOTTOM_KEY_BELOW : FRAME_BOTTOM) * PLOTS_HEIGHT,
+				     FRAME_TOP * PLOTS_HEIGHT };
+
+	return a;
+}
+
+static void frame_margins(FILE *fp, int key_below)
+{
+	fprintf(fp, "set lmargin at screen %g\nset rmargin at screen %g\nset tmargin at screen %g\n"
+		"set bmargin at screen %g\n", FRAME_LEFT, FRAME_RIGHT, FRAME_TOP,
+		key_below ? FRAME_BOTTOM_KEY_BELOW : FRAME_BOTTOM);
+}
+
+/* The smallest "round" value at or above v > 0: a multiple of 5, 0.5,
+ * 50, ... units of the decade below v (47.6 -> 50, 3.2 -> 3.5). */
+static double nice_ceil(double v)
+{
+	double u = pow(10.0, floor(log10(v)) - 1.0) * 5.0;
+
+	return ceil(v / u - 1e-9) * u;
+}
+
+/* Points along the lines a plot draws, in pixels, for collision tests. */
+struct lines {
+	double *x, *y;
+	size_t n, cap;
+};
+
+static int lines_add(struct lines *l, double x, double y)
+{
+	if (l->n == l->cap) {
+		size_t cap = l->cap ? 2 * l->cap : 512;
+		double *nx = hc_realloc(l->x, cap * sizeof *nx), *ny;
+		if (!nx)
+			return HC_ENOMEM;
+		l->x = nx;
+		ny = hc_realloc(l->y, cap * sizeof *ny);
+		if (!ny)
+			return HC_ENOMEM;
+		l->y = ny;
+		l->cap = cap;
+	}
+	l->x[l->n] = x;
+	l->y[l->n++] = y;
+	return HC_OK;
+}
+
+/* The segment from (x0,y0) to (x1,y1), pixels, as points about two pixels
+ * apart. */
+static int lines_segment(struct lines *l, double x0, double y0, double x1, double y1)
+{
+	double len = sqrt((x1 - x0) * (x1 - x0) + (y1 - y0) * (y1 - y0));   /* hypot would need glibc 2.35, above the package's libc6 */
+	size_t k, steps = (size_t)(len * LINE_SAMPLES_PER_PX) + 1;
+
+	for (k = 0; k <= steps; k++) {
+		double t = (double)k / (double)steps;
+		if (lines_add(l, x0 + t * (x1 - x0), y0 + t * (y1 - y0)) != HC_OK)
+			return HC_ENOMEM;
+	}
+	return HC_OK;
+}
+
+static void lines_release(struct lines *l)
+{
+	hc_free(l->x);
+	hc_free(l->y);
+}
+
+/* The exact curve (sd, percent) as points, clipped to the y axis's range. */
+static int lines_exact(struct lines *l, const struct curve *c, const struct plotlayout_axis *ax,
+		       const struct plotlayout_axis *ay)
+{
+	size_t i;
+
+	for (i = 0; i + 1 < c->npoints; i++) {
+		double xa = (double)c->points[i].n, xb = (double)c->points[i + 1].n;
+		double ya = 100.0 * c->points[i].expected_sd, yb = 100.0 * c->points[i + 1].expected_sd;
+		if (xb < ax->lo || xa > ax->hi || (ya > ay->hi && yb > ay->hi))
+			continue;
+		if (lines_segment(l, plotlayout_to_px(ax, xa), plotlayout_to_px(ay, ya), plotlayout_to_px(ax, xb),
+				  plotlayout_to_px(ay, yb)) != HC_OK)
+			return HC_ENOMEM;
+	}
+	return HC_OK;
+}
+
+/* The sampled band's edges (5% and 95% of sd), and with interior its
+ * vertical extent at each sampled count too (for a key, which would hide
+ * the band; a label may sit on the light fill). */
+static int lines_band(struct lines *l, const struct curve *c, const struct plotlayout_axis *ax,
+		      const struct plotlayout_axis *ay, int interior)
+{
+	const struct curve_point *prev = NULL;
+	size_t i;
+
+	for (i = 0; c && i < c->npoints; i++) {
+		const struct curve_point *p = &c->points[i];
+		double x;
+		if (!p->sampled || (double)p->n < ax->lo || (double)p->n > ax->hi)
+			continue;
+		x = plotlayout_to_px(ax, (double)p->n);
+		if (interior && lines_segment(l, x, plotlayout_to_px(ay, 100 * p->sd_p05), x,
+					      plotlayout_to_px(ay, fmin(100 * p->sd_p95, ay->hi))) != HC_OK)
+			return HC_ENOMEM;
+		if (prev) {
+			double xp = plotlayout_to_px(ax, (double)prev->n);
+			if (lines_segment(l, xp, plotlayout_to_px(ay, 100 * prev->sd_p05), x,
+					  plotlayout_to_px(ay, 100 * p->sd_p05)) != HC_OK ||
+			    lines_segment(l, xp, plotlayout_to_px(ay, fmin(100 * prev->sd_p95, ay->hi)), x,
+					  plotlayout_to_px(ay, fmin(100 * p->sd_p95, ay->hi))) != HC_OK)
+				return HC_ENOMEM;
+		}
+		prev = p;
+	}
+	return HC_OK;
+}
+
+static double floor_pct(const struct curve *c)
+{
+	return c->floor_variance > 0 ? 100.0 * sqrt(c->floor_variance) : 0.0;
+}
+
+/* A label for gnuplot's data files and strings: double quotes and
+ * backslashes would end or escape the string, and control characters would
+ * break the line, so they are replaced. */
+static void clean_label(char *dst, size_t size, const char *src)
+{
+	size_t i = 0;
+
+	for (; src && *src && i + 1 < size; src++)
+		dst[i++] = (*src == '"' || *src == '\\' || (unsigned char)*src < 0x20) ? '\'' : *src;
+	dst[i] = '\0';
+}
+
+/* ---- rule marks ------------------------------------------------------------ */
+
+/* One marker per distinct count; rules sharing a count share a label. */
+struct mark {
+	size_t count;
+	double sd_pct;
+	char label[RULES_TEXT_MAX * 2 + 32];
+};
+
+static double exact_sd_pct(const struct curve *c, size_t n)
+{
+	size_t i;
+
+	for (i = 0; i < c->npoints; i++)
+		if (c->points[i].n == n)
+			return 100.0 * c->points[i].expected_sd;
+	return NAN;
+}
+
+static void append_rule(struct mark *mk, const struct rule_result *r)
+{
+	size_t len = strlen(mk->label);
+	char interval[64] = "";
+
+	if (r->bootstrapped && isfinite(r->count_p05) && isfinite(r->count_p95))
+		snprintf(interval, sizeof interval, " (90%%: %.0f-%.0f)", r->count_p05, r->count_p95);
+	snprintf(mk->label + len, sizeof mk->label - len, "%s%s%s", len ? "; " : "", r->name, interval);
+}
+
+/* Marks sorted by count, at most nrules of them, each label "N: rules". */
+static size_t build_marks(const struct plots_input *in, struct mark *mk)
+{
+	size_t i, j, n = 0;
+	struct mark tmp;
+	char text[sizeof mk->label - 24];   /* room for "N: " */
+
+	for (i = 0; i < in->nrules; i++) {
+		const struct rule_result *r = &in->rules[i];
+		if (!r->defined || !r->met || !isfinite(exact_sd_pct(in->exact, r->count)))
+			continue;
+		for (j = 0; j < n && mk[j].count != r->count; j++)
+			;
+		if (j == n) {
+			memset(&mk[n], 0, sizeof mk[n]);
+			mk[n].count = r->count;
+			mk[n].sd_pct = exact_sd_pct(in->exact, r->count);
+			n++;
+		}
+		append_rule(&mk[j], r);
+	}
+	for (i = 1; i < n; i++)
+		for (j = i; j > 0 && mk[j - 1].count > mk[j].count; j--) {
+			tmp = mk[j];
+			mk[j] = mk[j - 1];
+			mk[j - 1] = tmp;
+		}
+	for (i = 0; i < n; i++) {
+		clean_label(text, sizeof text, mk[i].label);
+		snprintf(mk[i].label, sizeof mk[i].label, "%zu: %s", mk[i].count, text);
+	}
+	return n;
+}
+
+/* The highest value the risk plots reach, in percent: the curve at N = 1
+ * or the top of the band. */
+static double risk_top_pct(const struct plots_input *in)
+{
+	double top = 100.0 * in->exact->points[0].expected_sd;
+	size_t i;
+
+	if (in->sampled)
+		for (i = 0; i < in->sampled->npoints; i++)
+			if (in->sampled->points[i].sampled && 100.0 * in->sampled->points[i].sd_p95 > top)
+				top = 100.0 * in->sampled->points[i].sd_p95;
+	return top;
+}
+
+/* The highest curve, band or sampled mean (percent) over counts whose x
+ * lies within px0..px1. */
+static double risk_top_within(const struct plots_input *in, const struct plotlayout_axis *ax, double px0,
+			      double px1)
+{
+	double top = 0.0, x;
+	size_t i;
+
+	for (i = 0; i < in->exact->npoints; i++) {
+		x = plotlayout_to_px(ax, (double)in->exact->points[i].n);
+		if (x >= px0 && x <= px1)
+			top = fmax(top, 100.0 * in->exact->points[i].expected_sd);
+	}
+	for (i = 0; in->sampled && i < in->sampled->npoints; i++) {
+		const struct curve_point *p = &in->sampled->points[i];
+		x = plotlayout_to_px(ax, (double)p->n);
+		if (p->sampled && x >= px0 && x <= px1)
+			top = fmax(top, fmax(100.0 * p->sd_p95, 100.0 * p->sampled_mean_sd));
+	}
+	return top;
+}
+
+/* Where the risk plot of one kind puts its rule labels and its key. */
+struct risk_layout {
+	size_t nmarks;
+	struct mark mk[RULES_COUNT];
+	struct plotlayout_leader ld[RULES_COUNT];
+	double ymax;               /* top of the y axis, percent */
+	double row_pct[RULES_COUNT]; /* each mark's label height, percent */
+	int key_below;             /* the key is set below the plot */
+};
+
+static struct plotlayout_axis risk_axis_x(const struct plots_input *in, int kind);
+
+static int risk_key_entries(const struct plots_input *in, size_t nmarks)
+{
+	return 2 + (in->sampled ? 2 : 0) + (nmarks ? 1 : 0);
+}
+
+/* The key inside the frame's bottom right corner, in pixels. */
+static struct plotlayout_rect risk_key_rect(const struct plots_input *in, size_t nmarks)
+{
+	struct plotlayout_rect r;
+	double w = plotlayout_text_px("floor (sqrt of the average covariance): 99.99% a year", KEY_POINTS) + 75.0;
+	double h = risk_key_entries(in, nmarks) * 1.25 * 17.0 + 12.0;
+
+	r.x1 = FRAME_RIGHT * PLOTS_WIDTH - 2.0;
+	r.x0 = r.x1 - w;
+	r.y0 = FRAME_BOTTOM * PLOTS_HEIGHT + 2.0;
+	r.y1 = r.y0 + h;
+	return r;
+}
+
+/* Below the plot when the curve, the band or the floor would run under a
+ * key in the bottom right corner (a universe of weakly correlated
+ * securities, whose floor lies low on an axis that starts at zero). */
+static int risk_key_below(const struct plots_input *in, const struct risk_layout *L, int kind, int *below)
+{
+	struct plotlayout_axis ax = risk_axis_x(in, kind), ay = frame_y(0.0, L->ymax, 0, 0);
+	struct plotlayout_rect key = risk_key_rect(in, L->nmarks);
+	struct plotlayout_scene sc;
+	struct lines l = { NULL, NULL, 0, 0 };
+	double yf = plotlayout_to_px(&ay, floor_pct(in->exact));
+	int rc;
+
+	rc = lines_exact(&l, in->exact, &ax, &ay);
+	rc = rc ? rc : lines_band(&l, in->sampled, &ax, &ay, 1);
+	rc = rc ? rc : lines_segment(&l, ax.px0, yf, ax.px1, yf);
+	if (rc == HC_OK) {
+		memset(&sc, 0, sizeof sc);
+		sc.px = l.x;
+		sc.py = l.y;
+		sc.npoints = l.n;
+		sc.frame = key;
+		*below = plotlayout_collisions(&key, &sc) > 0;
+	}
+	lines_release(&l);
+	return rc;
+}
+
+static struct plotlayout_axis risk_axis_x(const struct plots_input *in, int kind)
+{
+	double xmax = (double)in->exact->points[in->exact->npoints - 1].n;
+
+	/* the linear axis leaves room right of the last count */
+	return kind == PLOTS_RISK ? frame_x(0.0, ceil(xmax * 1.02), 0) : frame_x(1.0, xmax > 1 ? xmax : 2.0, 1);
+}
+
+/*
+ * The rule labels of the risk plot of kind: sides and rows from
+ * plotlayout_leaders, then the y axis tall enough that every label's row
+ * clears the curve and the band under its span and its leader.
+ */
+static int risk_layout(const struct plots_input *in, int kind, struct risk_layout *L, struct hc_error *err)
+{
+	struct plotlayout_axis ax = risk_axis_x(in, kind);
+	struct mark *mk;
+	double need, lo, hi;
+	size_t i, n;
+	int rc;
+
+	memset(L, 0, sizeof *L);
+	mk = hc_calloc(in->nrules ? in->nrules : 1, sizeof *mk);
+	if (!mk)
+		return hc_error(err, HC_ENOMEM, "out of memory laying out the rule labels");
+	n = build_marks(in, mk);
+	L->nmarks = n < RULES_COUNT ? n : RULES_COUNT;
+	memcpy(L->mk, mk, L->nmarks * sizeof *mk);
+	hc_free(mk);
+	for (i = 0; i < L->nmarks; i++) {
+		L->ld[i].x = plotlayout_to_px(&ax, (double)L->mk[i].count);
+		L->ld[i].width = plotlayout_text_px(L->mk[i].label, LABEL_POINTS);
+	}
+	if ((rc = plotlayout_leaders(L->ld, L->nmarks, ax.px0, ax.px1, RISK_LABEL_GAP, RISK_LABEL_PAD, NULL, err)))
+		return rc;
+	need = 1.03 * risk_top_pct(in);
+	for (i = 0; i < L->nmarks; i++) {
+		plotlayout_leader_span(&L->ld[i], RISK_LABEL_GAP, &lo, &hi);
+		double top = risk_top_within(in, &ax, fmin(lo, L->ld[i].x) - 2.0, fmax(hi, L->ld[i].x) + 2.0);
+		need = fmax(need, top / (RISK_ROW_TOP - RISK_ROW_STEP * (double)L->ld[i].row - RISK_ROW_CLEAR));
+	}
+	L->ymax = nice_ceil(need > 0 ? need : 1.0);
+	for (i = 0; i < L->nmarks; i++)
+		L->row_pct[i] = L->ymax * (RISK_ROW_TOP - RISK_ROW_STEP * (double)L->ld[i].row);
+	if ((rc = risk_key_below(in, L, kind, &L->key_below)))
+		return hc_error(err, rc, "out of memory laying out the risk plot's key");
+	return HC_OK;
+}
+
+/* ---- funds ----------------------------------------------------------------- */
+
 static int fund_plottable(const struct audit_fund *f)
 {
 	return f->risk_known && isfinite(f->sd) && f->holdings > 0 && isfinite(f->effective_holdings);
@@ -110,15 +483,293 @@ static size_t funds_plottable(const struct plots_input *in)
 	return n;
 }
 
-/* Windows with figures in a rolling result. */
+/* Where each plottable fund's name goes, and the funds plot's axes. */
+struct funds_layout {
+	double xmin, xmax, ymin, ymax;  /* counts; percent a year */
+	size_t n;                        /* plottable funds, in the audit's order */
+	double *label_x, *label_y;       /* anchor of each name, data units */
+	int *label_right;                /* 1 = the name ends at its anchor */
+	int any_pass, any_fail, any_left, any_right;
+	char *text;                      /* n names, FUNDS_NAME_MAX bytes each */
+};
+
+#define FUNDS_NAME_MAX 160
+/* Pixels between a marker and a name beside it. */
+#define FUNDS_LABEL_GAP 9.0
+/* Marker half-size in pixels (pointsize 1.3 to 2.2 at the 11-point font). */
+#define FUNDS_MARKER_PX 9.0
+
+static void funds_layout_release(struct funds_layout *F)
+{
+	hc_free(F->label_x);
+	hc_free(F->label_y);
+	hc_free(F->label_right);
+	hc_free(F->text);
+}
+
+static double sampled_p95_at(const struct curve *s, double n)
+{
+	double v = NAN;
+	size_t i;
+
+	/* the band narrows as N grows: the nearest sampled count at or
+	 * below n bounds the band at n from above */
+	for (i = 0; s && i < s->npoints; i++)
+		if (s->points[i].sampled && (double)s->points[i].n <= n)
+			v = 100.0 * s->points[i].sd_p95;
+	return v;
+}
+
+/*
+ * The count axis starts a little left of the smallest fund (half its
+ * effective count, down to the 1-2-5 step below) rather than at 1: funds
+ * sit where the curve is nearly flat, and an axis from 1 would spend the
+ * width on single holdings none of them has.
+ */
+static double funds_xmin(const struct plots_input *in)
+{
+	static const double steps[] = { 5, 2, 1 };
+	double lo = INFINITY, decade;
+	size_t i;
+
+	for (i = 0; i < in->audit->nfunds; i++) {
+		const struct audit_fund *f = &in->audit->funds[i];
+		if (fund_plottable(f) && f->effective_holdings < lo)
+			lo = f->effective_holdings;
+	}
+	lo /= 2;
+	if (!(lo > 1))
+		return 1;
+	for (decade = pow(10, floor(log10(lo)));; decade /= 10)
+		for (i = 0; i < 3; i++)
+			if (steps[i] * decade <= lo)
+				return steps[i] * decade;
+}
+
+/*
+ * The sd axis is zoomed to the funds: from a little under the lowest of
+ * the floor, the funds and the band, to a little over the highest fund and
+ * the band's top at each fund's own count (where its percentile is read).
+ * The curve left of the funds leaves the plot at the top; risk.png shows
+ * it whole.  funds_key_room then makes room for the key.
+ */
+static void funds_yrange(const struct plots_input *in, struct funds_layout *F)
+{
+	double lo = floor_pct(in->exact), hi = -INFINITY, span, v;
+	size_t i;
+
+	for (i = 0; i < in->audit->nfunds; i++) {
+		const struct audit_fund *f = &in->audit->funds[i];
+		if (!fund_plottable(f))
+			continue;
+		lo = fmin(lo, 100.0 * f->sd);
+		hi = fmax(hi, 100.0 * f->sd);
+		hi = fmax(hi, exact_sd_pct(in->exact, f->holdings));   /* NaN past M: fmax keeps hi */
+		v = sampled_p95_at(in->sampled, (double)f->holdings);
+		if (isfinite(v))
+			hi = fmax(hi, v);
+	}
+	for (i = 0; in->sampled && i < in->sampled->npoints; i++)
+		if (in->sampled->points[i].sampled && (double)in->sampled->points[i].n >= F->xmin)
+			lo = fmin(lo, 100.0 * in->sampled->points[i].sd_p05);
+	if (!(hi > lo))
+		hi = lo + 1.0;
+	span = hi - lo;
+	F->ymin = lo - 0.08 * span;
+	F->ymax = hi + 0.08 * span;
+}
+
+/* Candidate places for a fund's name, in order of preference: right of
+ * its count marker, left of its effective-count marker, above and below
+ * the pair, and right of the count marker a line up or down. */
+static size_t funds_candidates(double xc, double xe, double y, double w, struct plotlayout_rect *c, int *right)
+{
+	const double h = PLOTLAYOUT_LINE_PX, g = FUNDS_LABEL_GAP;
+	size_t k = 0;
+
+	c[k] = (struct plotlayout_rect){ xc + g, y - h / 2, xc + g + w, y + h / 2 }, right[k++] = 0;
+	c[k] = (struct plotlayout_rect){ xe - g - w, y - h / 2, xe - g, y + h / 2 }, right[k++] = 1;
+	c[k] = (struct plotlayout_rect){ xe - 2, y + g, xe - 2 + w, y + g + h }, right[k++] = 0;
+	c[k] = (struct plotlayout_rect){ xe - 2, y - g - h, xe - 2 + w, y - g }, right[k++] = 0;
+	c[k] = (struct plotlayout_rect){ xc + g, y + g, xc + g + w, y + g + h }, right[k++] = 0;
+	c[k] = (struct plotlayout_rect){ xc + g, y - g - h, xc + g + w, y - g }, right[k++] = 0;
+	return k;
+}
+
+/* The key in the frame's top right corner, in pixels. */
+static struct plotlayout_rect funds_key_rect(const struct funds_layout *F)
+{
+	struct plotlayout_rect r;
+	int entries = 3 + F->any_pass + F->any_fail;
+
+	r.x1 = FRAME_RIGHT * PLOTS_WIDTH - 2.0;
+	r.x0 = r.x1 - plotlayout_text_px("fund failing the policy, at its number of holdings", KEY_POINTS) - 75.0;
+	r.y1 = FRAME_TOP * PLOTS_HEIGHT - 2.0;
+	r.y0 = r.y1 - entries * 1.25 * 17.0 - 12.0;
+	return r;
+}
+
+/* Raise the top of the sd axis until the key in the top right corner
+ * clears the curve, the band and the funds right of its left edge: with
+ * the key's height k pixels of the frame's h, a value v must sit at most
+ * h - k - 8 pixels up, so the top must be at least
+ * ymin + (v - ymin) h / (h - k - 8). */
+static void funds_key_room(const struct plots_input *in, struct funds_layout *F)
+{
+	struct plotlayout_rect key = funds_key_rect(F);
+	struct plotlayout_axis ax = frame_x(F->xmin, F->xmax, 1);
+	double h = (FRAME_TOP - FRAME_BOTTOM) * PLOTS_HEIGHT, k = key.y1 - key.y0, from, top = -INFINITY;
+	size_t i;
+
+	from = plotlayout_from_px(&ax, key.x0 - 4.0);
+	for (i = 0; i < in->exact->npoints; i++)
+		if ((double)in->exact->points[i].n >= from)
+			top = fmax(top, 100.0 * in->exact->points[i].expected_sd);
+	/* the band between two sampled counts is below its value at the left one */
+	for (i = 0; in->sampled && i < in->sampled->npoints; i++) {
+		const struct curve_point *p = &in->sampled->points[i], *q = i + 1 < in->sampled->npoints ? p + 1 : NULL;
+		if (p->sampled && (q ? (double)q->n > from : (double)p->n >= from))
+			top = fmax(top, 100.0 * p->sd_p95);
+	}
+	for (i = 0; i < in->audit->nfunds; i++)
+		if (fund_plottable(&in->audit->funds[i]) && (double)in->audit->funds[i].holdings >= from)
+			top = fmax(top, 100.0 * in->audit->funds[i].sd);
+	if (isfinite(top) && h > k + 8.0)
+		F->ymax = fmax(F->ymax, F->ymin + (top - F->ymin) * h / (h - k - 8.0) + 0.02 * (F->ymax - F->ymin));
+}
+
+static int funds_names(const struct plots_input *in, struct funds_layout *F)
+{
+	size_t i, k = 0;
+
+	for (i = 0; i < in->audit->nfunds; i++) {
+		const struct audit_fund *f = &in->audit->funds[i];
+		char name[FUNDS_NAME_MAX - 24];   /* room for " (fails the policy)" */
+		if (!fund_plottable(f))
+			continue;
+		clean_label(name, sizeof name, f->name);
+		snprintf(F->text + k * FUNDS_NAME_MAX, FUNDS_NAME_MAX, "%s%s", name, f->passed ? "" : " (fails the policy)");
+		F->any_pass |= f->passed != 0;
+		F->any_fail |= f->passed == 0;
+		k++;
+	}
+	return HC_OK;
+}
+
+/*
+ * Each fund's name goes to the first candidate place that collides with
+ * nothing (the curve, the band's edges, the floor, any marker, the key, a
+ * name placed before it, the frame), else to the one that collides least.
+ */
+static int funds_layout(const struct plots_input *in, struct funds_layout *F, struct hc_error *err)
+{
+	struct plotlayout_axis ax, ay;
+	struct plotlayout_rect *boxes = NULL, cand[6];
+	struct plotlayout_scene sc;
+	struct lines l = { NULL, NULL, 0, 0 };
+	size_t i, k, nb = 0, nc, pick;
+	int right[6], rc = HC_OK;
+	double yf;
+
+	memset(F, 0, sizeof *F);
+	F->n = funds_plottable(in);
+	F->xmin = funds_xmin(in);
+	F->xmax = (double)in->exact->points[in->exact->npoints - 1].n;
+	for (i = 0; i < in->audit->nfunds; i++)
+		if (fund_plottable(&in->audit->funds[i]))
+			F->xmax = fmax(F->xmax, (double)in->audit->funds[i].holdings);
+	funds_yrange(in, F);
+	F->label_x = hc_calloc(F->n, sizeof *F->label_x);
+	F->label_y = hc_calloc(F->n, sizeof *F->label_y);
+	F->label_right = hc_calloc(F->n, sizeof *F->label_right);
+	F->text = hc_calloc(F->n, FUNDS_NAME_MAX);
+	boxes = hc_calloc(3 * F->n + 1, sizeof *boxes);
+	if (!F->label_x || !F->label_y || !F->label_right || !F->text || !boxes) {
+		rc = HC_ENOMEM;
+		goto cleanup;
+	}
+	funds_names(in, F);
+	funds_key_room(in, F);
+	ax = frame_x(F->xmin, F->xmax, 1);
+	ay = frame_y(F->ymin, F->ymax, 0, 0);
+	yf = plotlayout_to_px(&ay, floor_pct(in->exact));
+	if ((rc = lines_exact(&l, in->exact, &ax, &ay)) || (rc = lines_band(&l, in->sampled, &ax, &ay, 0)) ||
+	    (rc = lines_segment(&l, ax.px0, yf, ax.px1, yf)))
+		goto cleanup;
+	boxes[nb++] = funds_key_rect(F);
+	for (i = 0; i < in->audit->nfunds; i++) {
+		const struct audit_fund *f = &in->audit->funds[i];
+		double y, xc, xe;
+		if (!fund_plottable(f))
+			continue;
+		y = plotlayout_to_px(&ay, 100.0 * f->sd);
+		xc = plotlayout_to_px(&ax, (double)f->holdings);
+		xe = plotlayout_to_px(&ax, f->effective_holdings);
+		boxes[nb++] = (struct plotlayout_rect){ xe - FUNDS_MARKER_PX, y - FUNDS_MARKER_PX, xc + FUNDS_MARKER_PX,
+							y + FUNDS_MARKER_PX };
+	}
+	memset(&sc, 0, sizeof sc);
+	sc.px = l.x;
+	sc.py = l.y;
+	sc.npoints = l.n;
+	sc.boxes = boxes;
+	sc.frame = (struct plotlayout_rect){ ax.px0, ay.px0, ax.px1, ay.px1 };
+	for (i = 0, k = 0; i < in->audit->nfunds; i++) {
+		const struct audit_fund *f = &in->audit->funds[i];
+		if (!fund_plottable(f))
+			continue;
+		double y = plotlayout_to_px(&ay, 100.0 * f->sd);
+		nc = funds_candidates(plotlayout_to_px(&ax, (double)f->holdings), plotlayout_to_px(&ax, f->effective_holdings),
+				      y, plotlayout_text_px(F->text + k * FUNDS_NAME_MAX, LABEL_POINTS), cand, right);
+		sc.nboxes = nb;
+		pick = plotlayout_choose(cand, nc, &sc);
+		boxes[nb++] = cand[pick];
+		F->label_right[k] = right[pick];
+		F->label_x[k] = plotlayout_from_px(&ax, right[pick] ? cand[pick].x1 : cand[pick].x0);
+		F->label_y[k] = plotlayout_from_px(&ay, (cand[pick].y0 + cand[pick].y1) / 2);
+		F->any_left |= !right[pick];
+		F->any_right |= right[pick];
+		k++;
+	}
+cleanup:
+	lines_release(&l);
+	hc_free(boxes);
+	if (rc != HC_OK) {
+		funds_layout_release(F);
+		return hc_error(err, rc, "out of memory laying out the funds plot");
+	}
+	return HC_OK;
+}
+
+/* ---- availability ------------------------------------------------------------ */
+
+/* Whether the q-th evaluated rule of a rolling result is met in some
+ * window: a line with no point would make gnuplot warn of a data file
+ * with no valid points (a failure here), and says nothing. */
+static int rolling_rule_met(const struct rolling_result *r, size_t q)
+{
+	size_t j;
+
+	for (j = 0; j < r->nwindows; j++) {
+		const struct rolling_window *w = &r->windows[j];
+		if (w->status == HC_OK && q < w->nrules && w->rules[q].defined && w->rules[q].met)
+			return 1;
+	}
+	return 0;
+}
+
+/* Rules met in some window of a rolling result. */
 static size_t rolling_plottable(const struct plots_input *in)
 {
-	size_t j, n = 0;
+	size_t q, n = 0, nrules = 0;
+	int id;
 
 	if (!in->rolling || !in->rolling->rules)
 		return 0;
-	for (j = 0; j < in->rolling->nwindows; j++)
-		n += in->rolling->windows[j].status == HC_OK;
+	for (id = 0; id < RULES_COUNT; id++)
+		nrules += (in->rolling->rules & RULES_FLAG(id)) != 0;
+	for (q = 0; q < nrules; q++)
+		n += (size_t)rolling_rule_met(in->rolling, q);
 	return n;
 }
 
@@ -142,91 +793,7 @@ int plots_available(int kind, const struct plots_input *in)
 	}
 }
 
-/* ---- rule marks ------------------------------------------------------------ */
-
-/* One marker per distinct count; rules sharing a count share a label. */
-struct mark {
-	size_t count;
-	double sd_pct;
-	char label[RULES_TEXT_MAX * 2];
-};
-
-static double exact_sd_pct(const struct curve *c, size_t n)
-{
-	size_t i;
-
-	for (i = 0; i < c->npoints; i++)
-		if (c->points[i].n == n)
-			return 100.0 * c->points[i].expected_sd;
-	return NAN;
-}
-
-static void append_rule(struct mark *mk, const struct rule_result *r)
-{
-	size_t len = strlen(mk->label);
-	char interval[64] = "";
-
-	if (r->bootstrapped && isfinite(r->count_p05) && isfinite(r->count_p95))
-		snprintf(interval, sizeof interval, " (90%%: %.0f-%.0f)", r->count_p05, r->count_p95);
-	snprintf(mk->label + len, sizeof mk->label - len, "%s%s%s", len ? "; " : "", r->name, interval);
-}
-
-/* Marks sorted by count, at most nrules of them. */
-static size_t build_marks(const struct plots_input *in, struct mark *mk)
-{
-	size_t i, j, n = 0;
-	struct mark tmp;
-
-	for (i = 0; i < in->nrules; i++) {
-		const struct rule_result *r = &in->rules[i];
-		if (!r->defined || !r->met || !isfinite(exact_sd_pct(in->exact, r->count)))
-			continue;
-		for (j = 0; j < n && mk[j].count != r->count; j++)
-			;
-		if (j == n) {
-			memset(&mk[n], 0, sizeof mk[n]);
-			mk[n].count = r->count;
-			mk[n].sd_pct = exact_sd_pct(in->exact, r->count);
-			n++;
-		}
-		append_rule(&mk[j], r);
-	}
-	for (i = 1; i < n; i++)
-		for (j = i; j > 0 && mk[j - 1].count > mk[j].count; j--) {
-			tmp = mk[j];
-			mk[j] = mk[j - 1];
-			mk[j - 1] = tmp;
-		}
-	return n;
-}
-
-/* The highest value the risk plots reach (gnuplot's autoscaled top is at or
- * above it), in percent. */
-static double risk_top_pct(const struct plots_input *in)
-{
-	double top = 100.0 * in->exact->points[0].expected_sd;
-	size_t i;
-
-	if (in->sampled)
-		for (i = 0; i < in->sampled->npoints; i++)
-			if (in->sampled->points[i].sampled && 100.0 * in->sampled->points[i].sd_p95 > top)
-				top = 100.0 * in->sampled->points[i].sd_p95;
-	return top;
-}
-
 /* ---- data files -------------------------------------------------------------- */
-
-/* A label for gnuplot's data files and strings: double quotes and
- * backslashes would end or escape the string, and control characters would
- * break the line, so they are replaced. */
-static void clean_label(char *dst, size_t size, const char *src)
-{
-	size_t i = 0;
-
-	for (; src && *src && i + 1 < size; src++)
-		dst[i++] = (*src == '"' || *src == '\\' || (unsigned char)*src < 0x20) ? '\'' : *src;
-	dst[i] = '\0';
-}
 
 static int write_exact(FILE *fp, const struct curve *c)
 {
@@ -260,46 +827,51 @@ static int write_sampled(FILE *fp, const struct curve *c)
 
 static int write_rules(FILE *fp, const struct plots_input *in, struct hc_error *err)
 {
-	struct mark *mk;
-	char label[sizeof mk->label];
-	size_t i, n;
-	double top = risk_top_pct(in);
+	struct risk_layout *lin = hc_calloc(2, sizeof *lin), *lg;
+	size_t i;
+	int rc;
 
-	mk = hc_calloc(in->nrules ? in->nrules : 1, sizeof *mk);
-	if (!mk)
+	if (!lin)
 		return hc_error(err, HC_ENOMEM, "out of memory writing '%s'", data_names[PLOTS_DATA_RULES]);
-	n = build_marks(in, mk);
-	double xmax = (double)in->exact->points[in->exact->npoints - 1].n;
-
-	fprintf(fp, "# holdcount plot data: each met rule's count, sqrt of the exact expected variance there "
-		"(percent a year), the height of its label, whether the label goes left of the marker on the "
-		"linear and on the log axis, the label\n"
-		"# count  sd  label_height  left_linear  left_log  label\n");
-	for (i = 0; i < n; i++) {
-		double c = (double)mk[i].count;
-		clean_label(label, sizeof label, mk[i].label);
-		fprintf(fp, "%zu %.10g %.10g %d %d \"%zu: %s\"\n", mk[i].count, mk[i].sd_pct,
-			top * (PLOTS_LABEL_TOP - PLOTS_LABEL_STEP * (double)i), c / xmax > PLOTS_LABEL_FLIP,
-			xmax > 1 && log(c) / log(xmax) > PLOTS_LABEL_FLIP, mk[i].count, label);
+	lg = lin + 1;
+	if ((rc = risk_layout(in, PLOTS_RISK, lin, err)) || (rc = risk_layout(in, PLOTS_RISK_LOG, lg, err))) {
+		hc_free(lin);
+		return rc;
 	}
-	hc_free(mk);
+	fprintf(fp, "# holdcount plot data: each met rule's count, sqrt of the exact expected variance there "
+		"(percent a year), then for the linear and for the log-scaled count axis the height its leader "
+		"rises to (where its label sits) and whether the label ends at the leader (1) or starts there "
+		"(0), then the label; the layout keeps every leader clear of the other labels\n"
+		"# count  sd  height_linear  left_linear  height_log  left_log  label\n");
+	for (i = 0; i < lin->nmarks; i++)
+		fprintf(fp, "%zu %.10g %.10g %d %.10g %d \"%s\"\n", lin->mk[i].count, lin->mk[i].sd_pct, lin->row_pct[i],
+			lin->ld[i].left, lg->row_pct[i], lg->ld[i].left, lin->mk[i].label);
+	hc_free(lin);
 	return HC_OK;
 }
 
-static int write_funds(FILE *fp, const struct plots_input *in)
+static int write_funds(FILE *fp, const struct plots_input *in, struct hc_error *err)
 {
-	char name[128];
-	size_t i;
+	struct funds_layout F;
+	size_t i, k = 0;
+	int rc;
 
+	if ((rc = funds_layout(in, &F, err)))
+		return rc;
 	fprintf(fp, "# holdcount plot data: audited funds, the fund's own sd from the universe's history "
-		"(percent a year)\n# holdings  effective_holdings  sd  fund\n");
+		"(percent a year), whether it passes the policy, and where its name goes (the anchor, and "
+		"whether the name ends there (1) or starts there (0))\n"
+		"# holdings  effective_holdings  sd  passed  name_x  name_y  name_ends  name\n");
 	for (i = 0; i < in->audit->nfunds; i++) {
 		const struct audit_fund *f = &in->audit->funds[i];
 		if (!fund_plottable(f))
 			continue;
-		clean_label(name, sizeof name, f->name);
-		fprintf(fp, "%zu %.10g %.10g \"%s\"\n", f->holdings, f->effective_holdings, 100.0 * f->sd, name);
+		fprintf(fp, "%zu %.10g %.10g %d %.10g %.10g %d \"%s\"\n", f->holdings, f->effective_holdings,
+			100.0 * f->sd, f->passed != 0, F.label_x[k], F.label_y[k], F.label_right[k],
+			F.text + k * FUNDS_NAME_MAX);
+		k++;
 	}
+	funds_layout_release(&F);
 	return HC_OK;
 }
 
@@ -357,7 +929,7 @@ int plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc
 	case PLOTS_DATA_FUNDS:
 		if (!funds_plottable(in))
 			return hc_error(err, HC_EUSAGE, "'%s' needs audited funds with known risk", data_names[data]);
-		rc = write_funds(fp, in);
+		rc = write_funds(fp, in, err);
 		break;
 	case PLOTS_DATA_ROLLING:
 		if (!rolling_plottable(in))
@@ -430,160 +1002,228 @@ static void terminal_block(FILE *fp, int format, const char *name)
 	fprintf(fp, "set output \"%s.%s\"\n", name, format_names[format]);
 }
 
-/* Log-axis ticks 1, 2, 5, 10, 20, 50, ... up to xmax. */
-static void log_tics(char *buf, size_t size, double xmax)
+/* Log-axis ticks at 1, 2 and 5 times the powers of ten from lo up to hi
+ * (lo > 0), as "1, 2, 5, 10" or, with pct, as ("0.5%" 0.5, "1%" 1). */
+static void log_tics(char *buf, size_t size, double lo, double hi, int pct)
 {
 	static const double steps[] = { 1, 2, 5 };
-	double decade;
+	double decade, v;
 	size_t len = 0;
 	int i;
 
 	buf[0] = '\0';
-	for (decade = 1; decade <= xmax; decade *= 10)
-		for (i = 0; i < 3 && steps[i] * decade <= xmax; i++)
-			len += (size_t)snprintf(buf + len, len < size ? size - len : 0, "%s%.0f",
-						len ? ", " : "", steps[i] * decade);
+	for (decade = pow(10.0, floor(log10(lo))); decade <= hi; decade *= 10)
+		for (i = 0; i < 3; i++) {
+			v = steps[i] * decade;
+			if (v < lo * (1 - 1e-9) || v > hi * (1 + 1e-9))
+				continue;
+			if (pct)
+				len += (size_t)snprintf(buf + len, len < size ? size - len : 0, "%s\"%g%%%%\" %g",
+							len ? ", " : "", v, v);
+			else
+				len += (size_t)snprintf(buf + len, len < size ? size - len : 0, "%s%g",
+							len ? ", " : "", v);
+		}
 }
 
-static double plot_xmax(int kind, const struct plots_input *in)
-{
-	double x = (double)in->exact->points[in->exact->npoints - 1].n;
-	size_t i;
-
-	if (kind == PLOTS_FUNDS)
-		for (i = 0; i < in->audit->nfunds; i++)
-			if (fund_plottable(&in->audit->funds[i]) && (double)in->audit->funds[i].holdings > x)
-				x = (double)in->audit->funds[i].holdings;
-	/* room for the labels right of the last count on a linear axis */
-	return kind == PLOTS_RISK ? ceil(x * 1.02) : x;
-}
-
-/*
- * The funds plot starts its count axis a little left of the smallest fund
- * (a third of its effective count, down to the 1-2-5 step below) rather
- * than at 1: funds sit where the curve is nearly flat, and the axis from 1
- * would spend the height on single holdings none of them has, squeezing
- * the funds and the curve they are judged against into a sliver.
- */
-static double funds_xmin(const struct plots_input *in)
-{
-	static const double steps[] = { 5, 2, 1 };
-	double lo = INFINITY, decade;
-	size_t i;
-
-	for (i = 0; i < in->audit->nfunds; i++) {
-		const struct audit_fund *f = &in->audit->funds[i];
-		if (fund_plottable(f) && f->effective_holdings < lo)
-			lo = f->effective_holdings;
-	}
-	lo /= 3;
-	if (!(lo > 1))
-		return 1;
-	for (decade = pow(10, floor(log10(lo)));; decade /= 10)
-		for (i = 0; i < 3; i++)
-			if (steps[i] * decade <= lo)
-				return steps[i] * decade;
-}
-
-/* The bottom of the funds plot, in percent: a little under the floor and
- * under the lowest fund (a fund may sit below the floor). */
-static double funds_ymin(const struct plots_input *in, double floor_pct)
-{
-	double lo = 0.9 * floor_pct;
-	size_t i;
-
-	for (i = 0; i < in->audit->nfunds; i++) {
-		const struct audit_fund *f = &in->audit->funds[i];
-		if (fund_plottable(f) && 95.0 * f->sd < lo)
-			lo = 95.0 * f->sd;
-	}
-	return lo;
-}
-
-static void risk_plot(FILE *fp, int kind, const struct plots_input *in, size_t nmarks)
-{
-	/* labels column: 4 on the linear axis, 5 on the log axis (1 = left) */
-	int side = kind == PLOTS_RISK ? 4 : 5;
-
-	fputs("plot ", fp);
-	if (in->sampled)
-		fputs("'sampled.dat' using 1:3:4 with filledcurves ls 3 title \"middle 90% of random portfolios "
-		      "(5% to 95% of sd)\", \\\n     ", fp);
-	fputs("'exact.dat' using 1:2 with lines ls 1 title \"sqrt of the exact expected variance\", \\\n", fp);
-	if (in->sampled)
-		fputs("     'sampled.dat' using 1:2 with points ls 2 title \"mean sd of random portfolios\", \\\n", fp);
-	fputs("     floor with lines ls 4 title sprintf(\"floor sqrt(average covariance): %.2f%% a year\", floor)", fp);
-	if (nmarks)
-		fprintf(fp, ", \\\n     'rules.dat' using 1:2:(0):($3-$2) with vectors nohead ls 5 notitle, \\\n"
-			"     'rules.dat' using 1:2 with points ls 5 title \"count each rule recommends\", \\\n"
-			"     'rules.dat' using 1:($%d == 0 ? $3 : 1/0):6 with labels left offset character 0.5,0.4 "
-			"font \",9\" textcolor rgb \"#7b2d63\" notitle, \\\n"
-			"     'rules.dat' using 1:($%d == 1 ? $3 : 1/0):6 with labels right offset character -0.5,0.4 "
-			"font \",9\" textcolor rgb \"#7b2d63\" notitle", side, side);
-	fputc('\n', fp);
-}
-
-static void tracking_plot(FILE *fp, const struct plots_input *in)
+static size_t count_tracking_marks(const struct plots_input *in, size_t *count)
 {
 	size_t i;
 
 	for (i = 0; i < in->nrules; i++) {
 		const struct rule_result *r = &in->rules[i];
 		if (r->rule == RULES_TRACKING_ERROR && r->defined && r->met && isfinite(in->te_budget)) {
-			fprintf(fp, "set arrow from %zu, graph 0 to %zu, budget nohead ls 5\n", r->count, r->count);
-			/* under the budget line, left of the mark: the curve runs above
-			 * the budget there (it meets it at the count), so nothing is struck */
-			fprintf(fp, "set label \"tracking-error rule: %zu holdings\" at %zu, budget right offset "
-				"character -0.5,-0.9 font \",10\" textcolor rgb \"#7b2d63\"\n", r->count, r->count);
+			*count = r->count;
+			return 1;
 		}
 	}
-	fputs("plot 'exact.dat' using 1:4 with lines ls 1 title \"sqrt of the exact expected squared tracking "
-	      "error\"", fp);
+	return 0;
+}
+
+static void risk_plot(FILE *fp, int kind, const struct plots_input *in, const struct risk_layout *L)
+{
+	/* columns of rules.dat: height and side, 3 and 4 on the linear axis,
+	 * 5 and 6 on the log axis */
+	int h = kind == PLOTS_RISK ? 3 : 5, side = h + 1;
+	size_t i;
+	int any[2] = { 0, 0 };
+
+	for (i = 0; i < L->nmarks; i++)
+		any[L->ld[i].left] = 1;
+	frame_margins(fp, L->key_below);
+	fprintf(fp, "set yrange [0:%.10g]\n", L->ymax);
+	if (L->key_below)
+		fputs("set key outside below center horizontal maxrows 2\n", fp);
+	fputs("plot ", fp);
+	if (in->sampled)
+		fputs("'sampled.dat' using 1:3:4 with filledcurves ls 3 title \"middle 90% of random portfolios' sd\", "
+		      "\\\n     ", fp);
+	fputs("'exact.dat' using 1:2 with lines ls 1 title \"sqrt of the exact expected variance\", \\\n", fp);
+	if (in->sampled)
+		fputs("     'sampled.dat' using 1:2 with points ls 2 title \"mean sd of random portfolios\", \\\n", fp);
+	if (L->key_below)
+		fputs("     floor with lines ls 4 title sprintf(\"floor: %.2f%% a year\", floor)", fp);
+	else
+		fputs("     floor with lines ls 4 title sprintf(\"floor (sqrt of the average covariance): %.2f%% a "
+		      "year\", floor)", fp);
+	if (L->nmarks) {
+		fprintf(fp, ", \\\n     'rules.dat' using 1:2:(0):($%d-$2) with vectors nohead ls 5 notitle, \\\n"
+			"     'rules.dat' using 1:2 with points ls 5 title \"count a rule recommends\"", h);
+		if (any[0])
+			fprintf(fp, ", \\\n     'rules.dat' using 1:($%d == 0 ? $%d : 1/0):7 with labels left offset "
+				"character 0.5,0.4 font \",9\" textcolor rgb \"#7b2d63\" notitle", side, h);
+		if (any[1])
+			fprintf(fp, ", \\\n     'rules.dat' using 1:($%d == 1 ? $%d : 1/0):7 with labels right offset "
+				"character -0.5,0.4 font \",9\" textcolor rgb \"#7b2d63\" notitle", side, h);
+	}
+	fputc('\n', fp);
+}
+
+/* The tracking-error axis, log-scaled (percent): from a 1-2-5 step under
+ * the lower of the error one holding short of the whole universe and a
+ * quarter of the budget, to one over the error of a single holding. */
+static void tracking_range(const struct plots_input *in, double *lo, double *hi)
+{
+	const struct curve *c = in->exact;
+	double top = 100.0 * c->points[0].expected_tracking_error, bottom = top;
+	size_t i;
+
+	for (i = 0; i < c->npoints; i++)
+		if (c->points[i].expected_tracking_error > 0)
+			bottom = fmin(bottom, 100.0 * c->points[i].expected_tracking_error);
+	if (isfinite(in->te_budget) && in->te_budget > 0)
+		bottom = fmin(bottom, 25.0 * in->te_budget);
+	if (!(top > 0)) {
+		top = 1.0;
+		bottom = 0.1;
+	}
+	*lo = pow(10.0, floor(log10(bottom)));
+	*lo *= bottom >= 5 * *lo ? 5 : bottom >= 2 * *lo ? 2 : 1;
+	*hi = pow(10.0, ceil(log10(top * 1.05)));
+	*hi /= top * 1.05 <= *hi / 5 ? 5 : top * 1.05 <= *hi / 2 ? 2 : 1;
+}
+
+static void tracking_plot(FILE *fp, const struct plots_input *in)
+{
+	struct plotlayout_axis ax = frame_x(1.0, (double)in->exact->points[in->exact->npoints - 1].n, 1);
+	char tics[512], label[96];
+	double lo, hi;
+	size_t count;
+
+	tracking_range(in, &lo, &hi);
+	log_tics(tics, sizeof tics, lo, hi, 1);
+	frame_margins(fp, 0);
+	fprintf(fp, "set yrange [%.10g:%.10g]\nset ytics (%s)\n", lo, hi, tics);
+	if (count_tracking_marks(in, &count)) {
+		snprintf(label, sizeof label, "tracking-error rule: %zu holdings", count);
+		fprintf(fp, "set arrow from %zu, graph 0 to %zu, budget nohead ls 5\n", count, count);
+		/* Left of the mark the curve runs above the budget, so the space
+		 * under the budget line is free there; when the name does not fit
+		 * left of the mark, it goes right of it above the line, where the
+		 * curve has fallen below the budget. */
+		if (plotlayout_to_px(&ax, (double)count) - 8.0 - plotlayout_text_px(label, 10.0) > ax.px0)
+			fprintf(fp, "set label \"%s\" at %zu, budget / 1.5 right offset character -0.6,0 font \",10\" "
+				"textcolor rgb \"#7b2d63\"\n", label, count);
+		else
+			fprintf(fp, "set label \"%s\" at %zu, budget * 1.5 left offset character 0.6,0 font \",10\" "
+				"textcolor rgb \"#7b2d63\"\n", label, count);
+	}
+	/* the error is zero at N = M, which a log axis cannot show */
+	fputs("plot 'exact.dat' using 1:($4 > 0 ? $4 : 1/0) with lines ls 1 title \"sqrt of the exact expected "
+	      "squared tracking error\"", fp);
 	if (isfinite(in->te_budget))
 		fputs(", \\\n     budget with lines ls 4 title sprintf(\"budget: %.2f%% a year\", budget)", fp);
 	fputc('\n', fp);
 }
 
-/* One line per evaluated exact rule, from column 2 of rolling.dat on. */
+static void funds_plot(FILE *fp, const struct plots_input *in, const struct funds_layout *F)
+{
+	frame_margins(fp, 0);
+	fprintf(fp, "set xrange [%.10g:%.10g]\nset yrange [%.10g:%.10g]\n", F->xmin, F->xmax, F->ymin, F->ymax);
+	fputs("plot ", fp);
+	if (in->sampled)
+		fputs("'sampled.dat' using 1:3:4 with filledcurves ls 3 title \"middle 90% of random portfolios' sd\", "
+		      "\\\n     ", fp);
+	fputs("'exact.dat' using 1:2 with lines ls 1 title \"sqrt of the exact expected variance\", \\\n"
+	      "     floor with lines ls 4 title sprintf(\"floor: %.2f%% a year\", floor), \\\n"
+	      "     'funds.dat' using 2:3:($1-$2):(0) with vectors nohead ls 8 notitle, \\\n"
+	      "     'funds.dat' using 2:3 with points ls 7 title \"fund at its effective holdings 1/HHI\"", fp);
+	if (F->any_pass)
+		fputs(", \\\n     'funds.dat' using 1:($4 == 1 ? $3 : 1/0) with points ls 6 title \"fund at its number "
+		      "of holdings\"", fp);
+	if (F->any_fail)
+		fputs(", \\\n     'funds.dat' using 1:($4 == 0 ? $3 : 1/0) with points ls 9 title \"fund failing the "
+		      "policy, at its number of holdings\"", fp);
+	if (F->any_left)
+		fputs(", \\\n     'funds.dat' using 5:($7 == 0 ? $6 : 1/0):8 with labels left font \",9\" notitle", fp);
+	if (F->any_right)
+		fputs(", \\\n     'funds.dat' using 5:($7 == 1 ? $6 : 1/0):8 with labels right font \",9\" notitle", fp);
+	fputc('\n', fp);
+}
+
+/* One line per evaluated exact rule met in some window, from column 2 of
+ * rolling.dat on (each rule keeps its column and its style). */
 static void rolling_plot(FILE *fp, const struct plots_input *in)
 {
 	static const int styles[] = { 1, 2, 5, 6 };
-	size_t col = 2, q = 0;
+	size_t q = 0, drawn = 0;
 	int id;
 
 	fputs("plot ", fp);
 	for (id = 0; id < RULES_COUNT; id++) {
 		if (!(in->rolling->rules & RULES_FLAG(id)))
 			continue;
-		fprintf(fp, "%s'rolling.dat' using 1:%zu with linespoints ls %d title \"%s rule\"",
-			q ? ", \\\n     " : "", col++, styles[q % 4], rules_name(id));
+		if (rolling_rule_met(in->rolling, q))
+			fprintf(fp, "%s'rolling.dat' using 1:%zu with linespoints ls %d title \"%s rule\"",
+				drawn++ ? ", \\\n     " : "", q + 2, styles[q % 4], rules_name(id));
 		q++;
 	}
 	fputc('\n', fp);
 }
 
-static void plot_command(FILE *fp, int kind, const struct plots_input *in, size_t nmarks)
+/* The second line of a plot's title: its basis. */
+static void subtitle(char *buf, size_t size, int kind, const struct plots_input *in, const struct funds_layout *F)
+{
+	double p = in->exact->periods_per_year;
+	char basis[160];
+
+	snprintf(basis, sizeof basis, "annualised from %.10g periods a year (variance times %.10g, sd times its "
+		 "square root)", p, p);
+	switch (kind) {
+	case PLOTS_SHARE:
+		snprintf(buf, size, "a ratio of variances: the same per period as annualised");
+		break;
+	case PLOTS_FUNDS:
+		snprintf(buf, size, "sd axis from %.3g%% to %.3g%%, zoomed to the funds (risk.png starts at 0); "
+			 "annualised from %.10g periods a year", F->ymin, F->ymax, p);
+		break;
+	case PLOTS_ROLLING:
+		snprintf(buf, size, "windows of %zu periods (%.3g years at %.10g a year), one every %zu periods; "
+			 "parameters annualised from %.10g periods a year", in->rolling->window,
+			 (double)in->rolling->window / p, p, in->rolling->step, p);
+		break;
+	default:
+		snprintf(buf, size, "%s", basis);
+	}
+}
+
+static void plot_command(FILE *fp, int kind, const struct plots_input *in, const struct risk_layout *L,
+			 const struct funds_layout *F)
 {
 	switch (kind) {
 	case PLOTS_RISK:
 	case PLOTS_RISK_LOG:
-		risk_plot(fp, kind, in, nmarks);
+		risk_plot(fp, kind, in, L);
 		break;
 	case PLOTS_SHARE:
-		fputs("plot 'exact.dat' using 1:3 with lines ls 1 title \"(average variance - average covariance)/N "
-		      "as a share of the expected variance\"\n", fp);
+		frame_margins(fp, 0);
+		fputs("plot 'exact.dat' using 1:3 with lines ls 1 notitle\n", fp);
 		break;
 	case PLOTS_TRACKING:
 		tracking_plot(fp, in);
 		break;
 	case PLOTS_FUNDS:
-		fputs("plot 'exact.dat' using 1:2 with lines ls 1 title \"random equal-weight portfolios: sqrt of "
-		      "the exact expected variance\", \\\n"
-		      "     floor with lines ls 4 title sprintf(\"floor: %.2f%% a year\", floor), \\\n"
-		      "     'funds.dat' using 2:3:($1-$2):(0) with vectors nohead ls 8 notitle, \\\n"
-		      "     'funds.dat' using 1:3 with points ls 6 title \"fund at its number of holdings\", \\\n"
-		      "     'funds.dat' using 2:3 with points ls 7 title \"fund at its effective holdings (1/HHI)\", \\\n"
-		      "     'funds.dat' using 1:3:4 with labels left offset character 1,0 font \",9\" notitle\n", fp);
+		funds_plot(fp, in, F);
 		break;
 	case PLOTS_ROLLING:
 		rolling_plot(fp, in);
@@ -591,45 +1231,63 @@ static void plot_command(FILE *fp, int kind, const struct plots_input *in, size_
 	}
 }
 
+/* What the script of kind needs laid out first. */
+static int layout_for(int kind, const struct plots_input *in, struct risk_layout **L, struct funds_layout *F,
+		      int *have_funds, struct hc_error *err)
+{
+	int rc;
+
+	*L = NULL;
+	*have_funds = 0;
+	if (kind == PLOTS_RISK || kind == PLOTS_RISK_LOG) {
+		*L = hc_calloc(1, sizeof **L);
+		if (!*L)
+			return hc_error(err, HC_ENOMEM, "out of memory writing '%s.gp'", plots_name(kind));
+		if ((rc = risk_layout(in, kind, *L, err))) {
+			hc_free(*L);
+			*L = NULL;
+			return rc;
+		}
+	} else if (kind == PLOTS_FUNDS) {
+		if ((rc = funds_layout(in, F, err)))
+			return rc;
+		*have_funds = 1;
+	}
+	return HC_OK;
+}
+
 int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
 		       struct hc_error *err)
 {
-	char title[256], basis[200], xmin[32], xmax[32], ymin[32], floor_pct[32], budget[32], tics[256];
-	struct mark *mk = NULL;
-	size_t nmarks = 0;
-	int rc;
+	char title[256], sub[320], xmax[32], floor_s[32], budget[32], tics[256];
+	struct risk_layout *L = NULL;
+	struct funds_layout F;
+	int rc, have_funds = 0;
 
 	if (!plots_available(kind, in))
 		return hc_error(err, HC_EUSAGE, "plot '%s' is not available for these results",
 				plots_name(kind) ? plots_name(kind) : "?");
 	if (!plots_format_name(format))
 		return hc_error(err, HC_EUSAGE, "no plot format number %d", format);
-	if (in->nrules) {
-		mk = hc_calloc(in->nrules, sizeof *mk);
-		if (!mk)
-			return hc_error(err, HC_ENOMEM, "out of memory writing '%s.gp'", plots_name(kind));
-		nmarks = build_marks(in, mk);
-		hc_free(mk);
-	}
+	memset(&F, 0, sizeof F);
+	if ((rc = layout_for(kind, in, &L, &F, &have_funds, err)))
+		return rc;
 	{
 		char clean[160];
 		clean_label(clean, sizeof clean, in->universe_name);
 		snprintf(title, sizeof title, "%s%s%s", kinds[kind].title, clean[0] ? ": " : "", clean);
 	}
-	snprintf(basis, sizeof basis, "annualised from %.10g periods a year (variance times %.10g, sd times its "
-		 "square root)", in->exact->periods_per_year, in->exact->periods_per_year);
-	snprintf(xmin, sizeof xmin, "%.0f", kind == PLOTS_FUNDS ? funds_xmin(in) : 1.0);
-	snprintf(xmax, sizeof xmax, "%.0f", plot_xmax(kind, in));
-	snprintf(floor_pct, sizeof floor_pct, "%.10g",
-		 in->exact->floor_variance > 0 ? 100.0 * sqrt(in->exact->floor_variance) : 0.0);
-	snprintf(ymin, sizeof ymin, "%.10g", kind == PLOTS_FUNDS
-		 ? funds_ymin(in, in->exact->floor_variance > 0 ? 100.0 * sqrt(in->exact->floor_variance) : 0.0) : 0.0);
+	subtitle(sub, sizeof sub, kind, in, &F);
+	snprintf(xmax, sizeof xmax, "%.0f", kind == PLOTS_RISK ? ceil((double)in->exact->points[in->exact->npoints - 1].n *
+									 1.02)
+		 : (double)in->exact->points[in->exact->npoints - 1].n);
+	snprintf(floor_s, sizeof floor_s, "%.10g", floor_pct(in->exact));
 	snprintf(budget, sizeof budget, "%.10g", isfinite(in->te_budget) ? 100.0 * in->te_budget : 0.0);
-	log_tics(tics, sizeof tics, plot_xmax(kind, in));
+	log_tics(tics, sizeof tics, have_funds ? F.xmin : 1.0, have_funds ? F.xmax : atof(xmax), 0);
 	{
 		const struct subst s[] = {
-			{ "TITLE", title }, { "BASIS", basis }, { "XMIN", xmin }, { "XMAX", xmax }, { "YMIN", ymin },
-			{ "FLOOR", floor_pct }, { "BUDGET", budget }, { "XTICS", tics },
+			{ "TITLE", title }, { "SUBTITLE", sub }, { "XMAX", xmax }, { "FLOOR", floor_s },
+			{ "BUDGET", budget }, { "XTICS", tics },
 		};
 		fprintf(fp, "# %s.gp - written by holdcount; render with: gnuplot %s.gp\n"
 			"# It reads the .dat files beside it; figures are percent a year.\n",
@@ -639,9 +1297,13 @@ int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int for
 		if (rc == HC_OK)
 			rc = emit_template(fp, kinds[kind].name, s, sizeof s / sizeof s[0], err);
 	}
+	if (rc == HC_OK)
+		plot_command(fp, kind, in, L, &F);
+	hc_free(L);
+	if (have_funds)
+		funds_layout_release(&F);
 	if (rc != HC_OK)
 		return rc;
-	plot_command(fp, kind, in, nmarks);
 	if (ferror(fp))
 		return hc_error(err, HC_EIO, "cannot write '%s.gp': %s", kinds[kind].name, strerror(errno));
 	return HC_OK;
@@ -649,37 +1311,63 @@ int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int for
 
 const char *plots_caption(int kind, const struct plots_input *in, char *buf, size_t size)
 {
+	const struct curve_point *last = &in->exact->points[in->exact->npoints - 1];
+
 	switch (kind) {
 	case PLOTS_RISK:
 	case PLOTS_RISK_LOG:
 		snprintf(buf, size, "%s: the solid line is the square root of the exact expected variance of a "
 			 "random equal-weight portfolio of N holdings; %sthe dashed line is the floor; each marked "
-			 "count is the smallest N meeting a rule (90%% bootstrap interval in brackets).%s",
+			 "count is the smallest N meeting a rule (90%% bootstrap interval in brackets), its dotted "
+			 "leader rising to its label.%s",
 			 kind == PLOTS_RISK ? "Risk by holding count" : "The same on a log-scaled count axis",
 			 in->sampled ? "circles are the mean sd of random portfolios and the shaded band holds "
 				       "the middle 90% of them; " : "",
-			 kind == PLOTS_RISK_LOG ? " The log axis gives the first holdings, which remove most of the "
-						  "diversifiable risk, room." : "");
+			 kind == PLOTS_RISK_LOG ? " The log scale spreads out the first holdings, which remove most "
+						  "of the diversifiable risk." : "");
 		return buf;
 	case PLOTS_SHARE:
-		return "Diversifiable share: the part of a random N-holding portfolio's expected variance that "
-		       "more holdings could still remove, (average variance - average covariance)/N over the "
-		       "expected variance.";
+		snprintf(buf, size, "Diversifiable share: the part of a random N-holding portfolio's expected "
+			 "variance that is specific to its holdings, (average variance - average covariance)/N over "
+			 "the expected variance. It vanishes only as N grows without bound: in a universe of %zu "
+			 "securities %.2f%% remains at N = %zu, where the portfolio is the whole universe.",
+			 last->n, 100.0 * last->diversifiable_share, last->n);
+		return buf;
 	case PLOTS_TRACKING:
 		return "Expected tracking error of a random equal-weight portfolio against the equal-weight "
-		       "portfolio of the whole universe; the dashed line is the budget and the marked count the "
-		       "tracking-error rule's.";
+		       "portfolio of the whole universe, on log-scaled axes so that the few percent where a budget "
+		       "is set get room; the dashed line is the budget and the marked count the tracking-error "
+		       "rule's. The error is zero at N = M, where the portfolio is the whole universe, so the "
+		       "curve leaves the log axis there.";
 	case PLOTS_FUNDS:
 		return "Audited funds: each fund's own sd from the universe's history, drawn at its number of "
-		       "holdings (square) and at its effective number 1/HHI (diamond), against the curve of "
-		       "random equal-weight portfolios. A fund above the curve at its effective count is riskier "
-		       "than its concentration alone explains.";
+		       "holdings (square; a failing fund's in its own colour and shape) and at its effective "
+		       "number 1/HHI (hollow diamond), against the exact curve and the band holding the middle "
+		       "90% of random equal-weight portfolios of each count, on an sd axis zoomed to the funds. A "
+		       "fund inside the band at its own count is as risky as a typical random portfolio of that "
+		       "many holdings; one above the curve at its effective count is riskier than its "
+		       "concentration alone explains.";
 	case PLOTS_ROLLING:
-		snprintf(buf, size, "Holding count needed through time: the count each exact rule recommends "
-			 "from the averages of each window of %zu periods (one every %zu), plotted at the window's "
-			 "last date; gaps are windows where the rule is not met or the window has too few "
-			 "securities. A rising line means the same diversification now takes more holdings "
-			 "(Campbell, Lettau, Malkiel & Xu, 2001).", in->rolling->window, in->rolling->step);
+		{
+			size_t q = 0, len;
+			int id, unmet = 0;
+
+			len = (size_t)snprintf(buf, size, "Holding count needed through time: the count each exact "
+					       "rule recommends from the averages of each window of %zu periods (one "
+					       "every %zu), plotted at the window's last date; gaps are windows where "
+					       "the rule is not met or the window has too few securities. A rising line "
+					       "means the same diversification now takes more holdings (Campbell, "
+					       "Lettau, Malkiel & Xu, 2001).", in->rolling->window, in->rolling->step);
+			for (id = 0; id < RULES_COUNT && len < size; id++) {
+				if (!(in->rolling->rules & RULES_FLAG(id)))
+					continue;
+				if (!rolling_rule_met(in->rolling, q++))
+					len += (size_t)snprintf(buf + len, size - len, "%s%s", unmet++ ? ", " : " Not met in "
+								"any window, so not drawn: ", rules_name(id));
+			}
+			if (unmet && len + 1 < size)
+				snprintf(buf + len, size - len, ".");
+		}
 		return buf;
 	default:
 		return "Holding count needed through time.";

@@ -598,38 +598,72 @@ static void put_csv(FILE *fp, const char *s)
 	fputc('"', fp);
 }
 
-static int write_csv(FILE *fp, const struct report *r, struct hc_error *err)
+static void csv_fields(FILE *fp, const struct report *r)
 {
 	char buf[REPORT_NUMBER_MAX];
-	size_t i, row, col;
+	size_t i;
 
-	errno = 0;
-	if (r->ntables == 0) {
-		fputs("key,value\n", fp);
-		for (i = 0; i < r->nfields; i++) {
-			put_csv(fp, r->fields[i].key);
+	fputs("key,value\n", fp);
+	for (i = 0; i < r->nfields; i++) {
+		put_csv(fp, r->fields[i].key);
+		fputc(',', fp);
+		put_csv(fp, format_raw(buf, sizeof buf, &r->fields[i].value));
+		fputc('\n', fp);
+	}
+}
+
+static void csv_table(FILE *fp, const struct report_table *t)
+{
+	char buf[REPORT_NUMBER_MAX];
+	size_t row, col;
+
+	for (col = 0; col < t->ncols; col++) {
+		if (col)
 			fputc(',', fp);
-			put_csv(fp, format_raw(buf, sizeof buf, &r->fields[i].value));
-			fputc('\n', fp);
-		}
-	} else {
-		const struct report_table *t = r->tables[0];
-
+		put_csv(fp, t->cols[col].key);
+	}
+	fputc('\n', fp);
+	for (row = 0; row < t->nrows; row++) {
 		for (col = 0; col < t->ncols; col++) {
 			if (col)
 				fputc(',', fp);
-			put_csv(fp, t->cols[col].key);
+			put_csv(fp, format_raw(buf, sizeof buf, &t->cells[row * t->ncols + col]));
 		}
 		fputc('\n', fp);
-		for (row = 0; row < t->nrows; row++) {
-			for (col = 0; col < t->ncols; col++) {
-				if (col)
-					fputc(',', fp);
-				put_csv(fp, format_raw(buf, sizeof buf, &t->cells[row * t->ncols + col]));
-			}
-			fputc('\n', fp);
-		}
 	}
+}
+
+static int write_csv(FILE *fp, const struct report *r, struct hc_error *err)
+{
+	errno = 0;
+	if (r->ntables == 0)
+		csv_fields(fp, r);
+	else
+		csv_table(fp, r->tables[0]);
+	return ferror(fp) ? write_failed(err) : HC_OK;
+}
+
+const struct report_table *report_find_table(const struct report *r, const char *key)
+{
+	size_t i;
+
+	for (i = 0; r && key && i < r->ntables; i++)
+		if (strcmp(r->tables[i]->key, key) == 0)
+			return r->tables[i];
+	return NULL;
+}
+
+int report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err)
+{
+	const struct report_table *t = NULL;
+
+	if (table && !(t = report_find_table(r, table)))
+		return hc_error(err, HC_EUSAGE, "the output has no table '%s'", table);
+	errno = 0;
+	if (t)
+		csv_table(fp, t);
+	else
+		csv_fields(fp, r);
 	return ferror(fp) ? write_failed(err) : HC_OK;
 }
 

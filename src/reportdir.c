@@ -400,6 +400,18 @@ static int swap(const char *tmp, const char *dir)
 	}
 }
 
+/* mkdtemp makes the temporary folder 0700 (POSIX.1-2008), which keeps a
+ * half-written report private; the finished one gets the mode mkdir(2)
+ * would have given it, 0777 less the umask.  umask(2) can only be read by
+ * setting it, so it is set and restored at once. */
+static int open_up(const char *tmp)
+{
+	mode_t mask = umask(0);
+
+	umask(mask);
+	return chmod(tmp, 0777 & ~mask);
+}
+
 static int put_in_place(struct reportdir *rd)
 {
 	struct stat st;
@@ -437,7 +449,7 @@ int reportdir_commit(struct reportdir *rd, struct hc_error *err)
 	}
 	existed = lstat(rd->dir, &st) == 0;
 	/* the finished folder carries no marker; the old one gets one below */
-	if (unlink(marker) != 0 || fsync_path(rd->tmp) != 0 || put_in_place(rd) != 0) {
+	if (unlink(marker) != 0 || open_up(rd->tmp) != 0 || fsync_path(rd->tmp) != 0 || put_in_place(rd) != 0) {
 		rc = hc_error(err, HC_EIO, "cannot put the report in place as '%s': %s", rd->dir,
 			      errno == EEXIST || errno == ENOTEMPTY ? "it appeared while the report was written"
 								     : strerror(errno));

@@ -68,6 +68,58 @@ assert funds[1]["failed_rules"] == "ucits" and funds[1]["passed"] is False, fund
 assert any("compliance counsel" in c for c in doc["cautions"])
 EOF
 
+# --table: the screens' and sectors' tables as CSV, from the same report as
+# the JSON (report_write_csv_part), so every cell equals the JSON's value
+# (17 significant digits both ways); the sector weights against sums by hand
+# of the weights above (Wren: QA1+QA2+QA4 in Fen = 0.75, QA3 in Moor = 0.25;
+# Lark: QA5 in Moor = 0.6, QA6 in Fen = 0.4), and Lark's largest issuer,
+# 60%, is the figure deciding the UCITS 10% single-issuer part (Directive
+# 2009/65/EC Art. 52, from memory of the text).
+printf 'id,sector\nQA1,Fen\nQA2,Fen\nQA3,Moor\nQA4,Fen\nQA5,Moor\nQA6,Fen\n' >"$T/sec.csv"
+A=(audit "$T/u.csv" --holdings "$T/ok.csv" --sectors "$T/sec.csv" --paths 0)
+"$HOLDCOUNT" "${A[@]}" --format json >"$T/t.json" 2>"$T/err"
+"$HOLDCOUNT" "${A[@]}" --format csv --table screens >"$T/screens.csv" 2>"$T/err" || { echo "FAIL: --table screens exited $?"; fails=$((fails + 1)); }
+"$HOLDCOUNT" "${A[@]}" --format csv --table sectors >"$T/sectors.csv" 2>"$T/err" || { echo "FAIL: --table sectors exited $?"; fails=$((fails + 1)); }
+"$HOLDCOUNT" "${A[@]}" --format csv --table funds >"$T/funds-t.csv" 2>"$T/err"
+"$HOLDCOUNT" "${A[@]}" --format csv >"$T/funds.csv" 2>"$T/err"
+cmp -s "$T/funds.csv" "$T/funds-t.csv" || { echo "FAIL: --table funds differs from the default CSV"; fails=$((fails + 1)); }
+"${PYTHON:-/usr/bin/python3}" - "$T/t.json" "$T/screens.csv" "$T/sectors.csv" <<'EOF' || fails=$((fails + 1))
+import csv, json, sys
+doc = json.load(open(sys.argv[1]))
+
+def value(text, want):
+    if text == "":
+        return None
+    if isinstance(want, bool):
+        return text == "true"
+    if isinstance(want, int):
+        return int(text)
+    if isinstance(want, float):
+        return float(text)
+    return text
+
+for path, key in ((sys.argv[2], "screens"), (sys.argv[3], "sectors")):
+    rows = list(csv.DictReader(open(path, newline="")))
+    js = doc[key]
+    assert len(rows) == len(js) and len(rows) > 0, (key, len(rows), len(js))
+    for row, obj in zip(rows, js):
+        assert list(row) == list(obj), (key, list(row), list(obj))
+        for k, v in row.items():
+            assert value(v, obj[k]) == obj[k], (key, k, v, obj[k])
+sectors = {(r["fund"], r["sector"]): float(r["weight"]) for r in csv.DictReader(open(sys.argv[3], newline=""))}
+want = {("Wren", "Fen"): 0.75, ("Wren", "Moor"): 0.25, ("Lark", "Moor"): 0.6, ("Lark", "Fen"): 0.4}
+assert set(sectors) == set(want), sectors
+for k, w in want.items():
+    assert abs(sectors[k] - w) < 1e-15, (k, sectors[k], w)
+screens = list(csv.DictReader(open(sys.argv[2], newline="")))
+lark = [r for r in screens if r["fund"] == "Lark" and r["screen"] == "ucits" and r["part"] == "largest issuer"]
+assert len(lark) == 1 and lark[0]["passed"] == "false" and float(lark[0]["figure"]) == 0.6, lark
+assert float(lark[0]["limit"]) == 0.1 and lark[0]["issuer"] == "QA5", lark
+EOF
+expect 2 "holdcount audit: --table sectors needs --sectors FILE" -- audit "$T/u.csv" --holdings "$T/ok.csv" --format csv --table sectors
+expect 2 "holdcount audit: --table chooses the table of --format csv" -- audit "$T/u.csv" --holdings "$T/ok.csv" --table screens
+expect 2 "--table" -- audit "$T/u.csv" --holdings "$T/ok.csv" --format csv --table missing
+
 # a weight sum off 1 by more than 0.5% is a warning, not an error
 printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.48\n' >"$T/off.csv"
 expect 0 "holdcount audit: warning: $T/off.csv:2: fund 'Wren': weights sum to 0.98, not 1 (off by more than 0.5%); normalised" -- \

@@ -58,11 +58,45 @@ for i, name in enumerate(["QX01", "QX02", "QX03", "QX04", "QX05"]):
 sys.exit(0 if ok else 1)
 PY
 
-# describe's CSV is its first table, the securities kept (report.h contract).
+# describe's CSV: by default the summary figures as key,value rows, every
+# one the JSON's value to the last digit (17 significant digits both ways)
+# and the averages against numpy as above; --table securities and dropped
+# give the tables.
 "$HC" describe "$T/u.csv" --format csv >"$T/d.csv" || fail "describe csv exit $?"
-[ "$(head -n1 "$T/d.csv")" = "id,periods,sd,periods_per_year" ] || fail "describe csv header: $(head -n1 "$T/d.csv")"
-[ "$(wc -l <"$T/d.csv")" = 6 ] || fail "describe csv rows: $(wc -l <"$T/d.csv")"
-[ "$(sed -n 2p "$T/d.csv" | cut -d, -f1,2,4)" = "QX01,8,12" ] || fail "describe csv first row: $(sed -n 2p "$T/d.csv")"
+"$PY" - "$T/u.csv" "$T/d.csv" "$T/d.json" <<'PY' || fail "describe csv summary against the JSON and numpy"
+import csv, json, sys, numpy as np
+x = np.genfromtxt(sys.argv[1], delimiter=",", skip_header=1)[:, 1:]
+rows = list(csv.reader(open(sys.argv[2], newline="")))
+d = json.load(open(sys.argv[3]))
+assert rows[0] == ["key", "value"], rows[0]
+kv = dict(rows[1:])
+scalars = {k: v for k, v in d.items() if not isinstance(v, list)}
+assert list(kv) == list(scalars), (list(kv), list(scalars))
+for k, v in scalars.items():
+    got = kv[k]
+    if isinstance(v, bool):
+        assert got == ("true" if v else "false"), (k, got, v)
+    elif isinstance(v, (int, float)):
+        assert float(got) == v, (k, got, v)
+    else:
+        assert got == ("" if v is None else v), (k, got, v)
+a = np.cov(x, rowvar=False, ddof=1)          # numpy: sample covariance, divisor T-1
+m = a.shape[0]
+vbar = np.trace(a) / m
+cbar = (a.sum() - np.trace(a)) / (m * (m - 1))
+assert abs(float(kv["average_variance"]) - 12 * vbar) <= 1e-12 * 12 * vbar, (kv["average_variance"], 12 * vbar)
+assert abs(float(kv["average_covariance"]) - 12 * cbar) <= 1e-12 * 12 * vbar, (kv["average_covariance"], 12 * cbar)
+assert kv["securities"] == "5" and kv["periods"] == "8" and kv["periods_per_year"] == "12", kv
+PY
+"$HC" describe "$T/u.csv" --format csv --table securities >"$T/ds.csv" || fail "describe --table securities exit $?"
+[ "$(head -n1 "$T/ds.csv")" = "id,periods,sd,periods_per_year" ] || fail "describe csv header: $(head -n1 "$T/ds.csv")"
+[ "$(wc -l <"$T/ds.csv")" = 6 ] || fail "describe csv rows: $(wc -l <"$T/ds.csv")"
+[ "$(sed -n 2p "$T/ds.csv" | cut -d, -f1,2,4)" = "QX01,8,12" ] || fail "describe csv first row: $(sed -n 2p "$T/ds.csv")"
+"$HC" describe "$T/u.csv" --format csv --table dropped >"$T/dd.csv" || fail "describe --table dropped exit $?"
+[ "$(cat "$T/dd.csv")" = "id,reason" ] || fail "describe --table dropped of a complete universe: $(cat "$T/dd.csv")"
+expect 2 "holdcount describe: --table chooses what --format csv prints" -- describe "$T/u.csv" --table securities
+expect 2 "holdcount describe: option '--table' expects one of summary, securities or dropped, found 'kept'" -- \
+	describe "$T/u.csv" --format csv --table kept
 "$HC" describe "$T/u.csv" | grep -q '^annualisation: *annualised: variances times 12' || fail "describe text lacks the scale"
 
 # curve: exact columns against numpy, CSV header exactly the contract.

@@ -29,5 +29,25 @@ script -qec "$run -q" /dev/null >"$T/tty_q" 2>&1 || fail "quiet run exit $?"
 "$HC" curve "$T/u.csv" --sizes 1,2 --paths 20000 --format csv >/dev/null 2>"$T/err" || fail "plain run exit $?"
 [ -s "$T/err" ] && fail "progress printed to a non-terminal stderr"
 
+# The report names each stage on its own line before that stage's bar, the
+# bootstrap among them (issue 5: "loading, exact curve, sampling with a
+# progress bar and rate, bootstrap, rendering"); --quiet silences them all.
+rep="'$HC' report '$T/u.csv' -o '$T/rep' --paths 2000 --bootstrap 300 --threads 1"
+script -qec "$rep" /dev/null >"$T/rtty" 2>&1 || fail "report on a terminal exit $?"
+tr '\r' '\n' <"$T/rtty" | grep -v '^ *$' >"$T/rlines"
+for s in "loading '" "exact curve" "exact rules" "bootstrap of the exact rules (300 replicates)" \
+	 "writing the folder" "wrote '"; do
+	grep -q "^holdcount report: $s" "$T/rlines" || fail "report: no stage line '$s'"
+done
+# the bootstrap's bar comes after its stage line and before the next stage
+awk '/^holdcount report: bootstrap of the exact rules/ { b = NR }
+     /^bootstrap \[/ && b && !bar { bar = NR }
+     /^holdcount report: / && b && NR > b && !next_stage { next_stage = NR }
+     END { exit !(b && bar > b && (!next_stage || bar < next_stage)) }' "$T/rlines" ||
+	fail "report: no bootstrap bar right after the bootstrap stage line"
+grep -q "^bootstrap \[.*replicates/s" "$T/rlines" || fail "report: the bootstrap bar has no rate"
+script -qec "$rep --force -q" /dev/null >"$T/rtty_q" 2>&1 || fail "quiet report exit $?"
+[ -s "$T/rtty_q" ] && fail "report --quiet still printed: $(head -c 200 "$T/rtty_q")"
+
 [ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
 echo "cli_progress: all checks passed"

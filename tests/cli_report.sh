@@ -13,17 +13,42 @@ FAST=(--paths 1000 --bootstrap 100 -q)
 # 1. The demo report holds every file.
 "$HC" report -o "$T/a" "${FAST[@]}" || fail "demo report exited $?"
 for f in summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rules.dat \
-	 risk.gp risk-log.gp share.gp tracking.gp risk.png risk-log.png share.png tracking.png; do
+	 risk.gp risk-log.gp share.gp tracking.gp risk.png risk-log.png share.png tracking.png \
+	 rolling.csv rolling.dat rolling.gp rolling.png; do
 	[ -s "$T/a/$f" ] || fail "demo report lacks $f"
 done
 if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
-	for f in audit.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
+	for f in audit.csv audit-screens.csv audit-sectors.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
 fi
 [ -e "$T/a/README-plots.txt" ] && fail "README-plots.txt written although gnuplot rendered"
 [ -e "$T/a/.holdcount-incomplete" ] && fail "the finished report keeps the incomplete marker"
 grep -q '^## Cautions' "$T/a/summary.md" || fail "summary.md has no cautions"
 grep -q 'not investment advice' "$T/a/summary.md" || fail "summary.md lacks 'not investment advice'"
 grep -q '!\[Risk by holding count\](risk.png)' "$T/a/summary.md" || fail "summary.md does not embed risk.png"
+# The count needed through time is in by default: the demo's 240 months hold
+# two windows of five years (60 periods), one a year (12): (240 - 60)/12 + 1
+# = 16 windows (docs/report.md); summary.md says which window was used.
+grep -q '^Each exact rule.s count from the averages of each window of 60 periods (five years, the report.s default' "$T/a/summary.md" ||
+	fail "summary.md does not say which rolling window was used"
+grep -q 'one window starting every 12 periods: 16 windows' "$T/a/summary.md" || fail "summary.md: not 16 windows a year apart"
+[ "$(grep -c '^| 20[0-9][0-9]-' "$T/a/summary.md")" -eq 16 ] || fail "summary.md: the rolling table has not 16 rows"
+[ "$(wc -l <"$T/a/rolling.csv")" -eq 17 ] || fail "rolling.csv: $(wc -l <"$T/a/rolling.csv") lines, expected a header and 16 windows"
+grep -q '!\[Holding count needed through time\](rolling.png)' "$T/a/summary.md" || fail "summary.md does not embed rolling.png"
+# --window 0 leaves it out and says so; a history shorter than two windows
+# leaves it out and says why (an invented 30-security, 100-month universe).
+"$HC" report -o "$T/w0" --window 0 "${FAST[@]}" || fail "--window 0 exited $?"
+ls "$T"/w0/rolling.* >/dev/null 2>&1 && fail "--window 0 wrote rolling files"
+grep -q '^Left out: `--window 0` was given.$' "$T/w0/summary.md" || fail "summary.md does not say --window 0 left the windows out"
+grep -q '"rolling": null' "$T/w0/summary.json" || fail "--window 0: summary.json's rolling is not null"
+"$HC" synth -q --securities 30 --periods 100 --seed 2385 -o "$T/short.csv" || fail "synth exited $?"
+"$HC" report "$T/short.csv" -o "$T/short" "${FAST[@]}" || fail "report of a 100-period history exited $?"
+ls "$T"/short/rolling.* >/dev/null 2>&1 && fail "a 100-period history got rolling windows of 60"
+grep -q '^Left out: the history has 100 periods, fewer than two windows of 60 (five years at 12 periods a year)' "$T/short/summary.md" ||
+	fail "summary.md does not say why a short history has no rolling windows"
+"$HC" report "$T/short.csv" -o "$T/short24" --window 24 --step 6 "${FAST[@]}" || fail "--window 24 --step 6 exited $?"
+[ "$(wc -l <"$T/short24/rolling.csv")" -eq 14 ] || fail "--window 24 --step 6 over 100 periods: expected (100-24)/6+1 = 13 windows"
+grep -q 'each window of 24 periods (set with `--window`), one window starting every 6 periods: 13 windows' "$T/short24/summary.md" ||
+	fail "summary.md does not state the window given"
 
 # 2. Deterministic: a second run gives the same bytes (summary.md differs at
 # most in its date line).
@@ -33,6 +58,19 @@ for f in "$T"/a/*.json "$T"/a/*.csv "$T"/a/*.gp "$T"/a/*.dat; do
 done
 diff <(grep -v '^Written by' "$T/a/summary.md") <(grep -v '^Written by' "$T/b/summary.md") >/dev/null ||
 	fail "summary.md differs beyond its date line"
+
+# An invented universe of weakly correlated securities (average correlation
+# about 0.01): the near-floor rule is met in no window (its count would
+# exceed the securities), so the rolling plot leaves its line out (a line
+# with no point makes gnuplot warn, which fails the render) and says so;
+# the floor lies low on the risk plots' axis, so their key goes below them.
+"$HC" synth -q --securities 200 --periods 144 --market-vol 0.05 --sector-vol 0.02 --specific-vol 0.45 \
+	--seed 4 -o "$T/lowcorr.csv" || fail "synth of the weakly correlated universe exited $?"
+"$HC" report "$T/lowcorr.csv" -o "$T/lowcorr" "${FAST[@]}" 2>"$T/err" || fail "report of a weakly correlated universe exited $?: $(cat "$T/err")"
+grep -q 'Not met in any window, so not drawn: near-floor\.' "$T/lowcorr/summary.md" || fail "the rolling caption does not name the rule met in no window"
+[ -s "$T/lowcorr/rolling.png" ] || fail "no rolling.png for the weakly correlated universe"
+grep -q '^set key outside below' "$T/lowcorr/risk.gp" || fail "risk.gp keeps its key over a low floor"
+grep -q '^set key outside below' "$T/a/risk.gp" && fail "the demo's risk.gp moved its key below, though the floor leaves room"
 
 # 3. An existing folder is refused without --force and left alone.
 before=$(cat "$T"/a/summary.json | md5sum)
@@ -61,34 +99,68 @@ ls "$T"/nognuplot/*.png >/dev/null 2>&1 && fail "PNG files without gnuplot"
 
 # 5. SIGINT mid-run: exit 7, no DIR, no temporary folder; over an existing
 # report (--force) the old one is intact.  Job control (set -m) keeps SIGINT
-# from being ignored in the background job.
+# from being ignored in the background job.  The signal is sent once the
+# run's temporary folder holds its marker (written after the handler is
+# installed and the folder recorded), and the run is pinned to one thread
+# with 400000 paths, so it is still sampling then on any machine: the signal
+# lands mid-run rather than after a fast run has finished.
+SLOW=(--paths 400000 --bootstrap 0 --threads 1 -q)
+# started NAME PID: wait (up to 30 s) for NAME.tmp-*/.holdcount-incomplete;
+# fails unless it appears while PID still runs.
+started() {
+	local i
+	for i in $(seq 300); do
+		compgen -G "$T/$1.tmp-*/.holdcount-incomplete" >/dev/null && kill -0 "$2" 2>/dev/null && return 0
+		kill -0 "$2" 2>/dev/null || break
+		sleep 0.1
+	done
+	fail "$1: the run's temporary folder did not appear while it ran"
+	return 1
+}
+# only_marker NAME: each NAME.tmp-* holds the marker and nothing else.
+only_marker() {
+	local d
+	for d in "$T/$1".tmp-*; do
+		[ "$(ls -A "$d")" = ".holdcount-incomplete" ] || fail "$1: the leftover $d holds $(ls -A "$d" | tr '\n' ' ')"
+	done
+}
 set -m
-"$HC" report -o "$T/int" --paths 400000 --bootstrap 0 -q & pid=$!
-sleep 1; kill -INT $pid; wait $pid; rc=$?
+"$HC" report -o "$T/int" "${SLOW[@]}" & pid=$!
+started int $pid && kill -INT $pid; wait $pid; rc=$?
 [ $rc -eq 7 ] || fail "SIGINT: exit $rc, expected 7"
 [ -e "$T/int" ] && fail "SIGINT left a report folder"
 ls -d "$T"/int.tmp-* >/dev/null 2>&1 && fail "SIGINT left a temporary folder"
-before=$(cat "$T"/b/* 2>/dev/null | md5sum)
-"$HC" report -o "$T/b" --force --paths 400000 --bootstrap 0 -q & pid=$!
-sleep 1; kill -INT $pid; wait $pid; rc=$?
+before=$(cd "$T/b" && ls -A | md5sum; cat "$T"/b/* 2>/dev/null | md5sum)
+"$HC" report -o "$T/b" --force "${SLOW[@]}" & pid=$!
+started b $pid && kill -INT $pid; wait $pid; rc=$?
 [ $rc -eq 7 ] || fail "SIGINT with --force: exit $rc"
-[ "$(cat "$T"/b/* | md5sum)" = "$before" ] || fail "SIGINT with --force changed the old report"
+[ "$(cd "$T/b" && ls -A | md5sum; cat "$T"/b/* | md5sum)" = "$before" ] || fail "SIGINT with --force changed the old report"
 ls -d "$T"/b.tmp-* >/dev/null 2>&1 && fail "SIGINT with --force left a temporary folder"
 
-# 6. SIGKILL cannot be caught: the leftover is named DIR.tmp-XXXXXX, DIR
-# itself is absent, and the next run for DIR removes the leftover.
-"$HC" report -o "$T/kill" --paths 400000 --bootstrap 0 -q & pid=$!
-sleep 1; kill -KILL $pid; wait $pid 2>/dev/null
+# 6. SIGKILL cannot be caught: the leftover is named DIR.tmp-XXXXXX and
+# holds no partial file (only the marker: the run was sampling), DIR itself
+# is absent, and the next run for DIR removes the leftover.
+"$HC" report -o "$T/kill" "${SLOW[@]}" & pid=$!
+started kill $pid && kill -KILL $pid; wait $pid 2>/dev/null
 set +m
 [ -e "$T/kill" ] && fail "SIGKILL left a folder named like the report"
-ls -d "$T"/kill.tmp-* >/dev/null 2>&1 || fail "SIGKILL: expected a DIR.tmp-* leftover (is the run too fast?)"
+ls -d "$T"/kill.tmp-* >/dev/null 2>&1 || fail "SIGKILL: expected a DIR.tmp-* leftover"
+only_marker kill
 "$HC" report -o "$T/kill" "${FAST[@]}" || fail "run after SIGKILL exited $?"
 ls -d "$T"/kill.tmp-* >/dev/null 2>&1 && fail "the run after SIGKILL did not remove the leftover"
 [ -s "$T/kill/summary.json" ] || fail "the run after SIGKILL wrote no report"
 
+# The finished folder has mode 0777 less the umask, as mkdir(2) gives
+# (POSIX.1-2008 umask), not mkdtemp's private 0700.
+(umask 022 && "$HC" report -o "$T/mode" "${FAST[@]}") || fail "report under umask 022 exited $?"
+[ "$(stat -c %a "$T/mode")" = 755 ] || fail "report under umask 022: mode $(stat -c %a "$T/mode"), expected 755"
+
 # 7. Usage errors.
 "$HC" report "${FAST[@]}" 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] && grep -q -- "-o DIR is required" "$T/err" || fail "missing -o: exit $rc, $(cat "$T/err")"
+"$HC" report -o "$T/x" --window 0 --step 6 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] && grep -q -- "--step applies to the rolling windows, which --window 0 leaves out" "$T/err" ||
+	fail "--step with --window 0: exit $rc, $(cat "$T/err")"
 "$HC" report -o "$T/x" --plot-format gif 2>/dev/null; rc=$?
 [ $rc -eq 2 ] || fail "--plot-format gif: exit $rc, expected 2"
 [ -e "$T/x" ] && fail "a usage error wrote a folder"

@@ -1,9 +1,11 @@
 #!/usr/bin/env bash
-# cli_report_identity.sh - curve.csv, enough.csv and audit.csv of a report
-# are byte for byte what `holdcount curve`, `enough` and `audit` print with
-# --format csv and the same options and seed, and the report's summary.json
-# holds, under "curve", "enough" and "audit", exactly the JSON those commands
-# print (Python's json, compared as parsed values).
+# cli_report_identity.sh - curve.csv, enough.csv, audit.csv (with
+# audit-screens.csv and audit-sectors.csv) and rolling.csv of a report are
+# byte for byte what `holdcount curve`, `enough`, `audit` (--table) and
+# `rolling` print with --format csv and the same options and seed, and the
+# report's summary.json holds, under "curve", "enough", "audit" and
+# "rolling", exactly the JSON those commands print (Python's json, compared
+# as parsed values).
 #
 # Two universes: the bundled demo (150 securities), and an invented one of
 # 320 from `holdcount synth`, above RULES_SAMPLED_FIRST_K = 256, so that the
@@ -46,6 +48,17 @@ src=$("$PY" -c 'import json,sys; print(json.load(open(sys.argv[1]))["curve"]["so
 compare "$T/demo" curve 0 "$HC" curve "$src" "${OPTS[@]}"
 compare "$T/demo" enough 0 "$HC" enough "$src" "${OPTS[@]}" --bootstrap 100
 compare "$T/demo" audit 0 "$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}"
+# rolling.csv: the report's default windows on the demo's monthly history
+# are five years (60 periods) a year apart (12), what `holdcount rolling`
+# prints with those options and the report's rule options (the defaults)
+compare "$T/demo" rolling 0 "$HC" rolling "$src" --window 60 --step 12
+# audit-screens.csv and audit-sectors.csv: `audit --table screens|sectors`
+for table in screens sectors; do
+	"$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}" -q \
+		--format csv --table $table >"$T/demo/audit-$table.cmd.csv" || fail "audit --table $table exited $?"
+	cmp -s "$T/demo/audit-$table.cmd.csv" "$T/demo/r/audit-$table.csv" ||
+		fail "audit-$table.csv of the demo report differs from 'audit --table $table --format csv'"
+done
 
 # 2. 320 invented securities, 96 months; two invented funds on its ids.
 B=$T/big
@@ -74,6 +87,13 @@ compare "$B" curve 0 "$HC" curve "$B/universe.csv" "${BOPTS[@]}"
 compare "$B" enough 0 "$HC" enough "$B/universe.csv" "${BOPTS[@]}" "${RULES[@]}"
 compare "$B" audit 1 "$HC" audit "$B/universe.csv" --holdings "$B/funds.csv" --sectors "$B/sectors.csv" \
 	"${BOPTS[@]}" "${POLICY[@]}"
+for table in screens sectors; do
+	"$HC" audit "$B/universe.csv" --holdings "$B/funds.csv" --sectors "$B/sectors.csv" "${BOPTS[@]}" "${POLICY[@]}" \
+		-q --format csv --table $table >"$B/audit-$table.cmd.csv" 2>/dev/null
+	[ $? -eq 1 ] || fail "audit --table $table with a failing fund: expected exit 1"
+	cmp -s "$B/audit-$table.cmd.csv" "$B/r/audit-$table.csv" ||
+		fail "audit-$table.csv of the 320-security report differs from 'audit --table $table --format csv'"
+done
 # the sampled rules went past the first stage, and got an interval
 "$PY" - "$B/r/summary.json" <<'PY' || fail "summary.json of the 320-security report: sampled rules not as expected"
 import json, sys
@@ -83,6 +103,12 @@ ok = (e["securities"] == 320 and e["sampled_sizes"] == 320 and rows["band"]["cou
       and all(rows[k]["replicates"] == 40 for k in ("band", "shortfall")))
 sys.exit(0 if ok else 1)
 PY
+# 96 months hold fewer than two five-year windows: no rolling windows, and
+# summary.md says why
+"$PY" -c 'import json,sys; sys.exit(0 if json.load(open(sys.argv[1]))["rolling"] is None else 1)' "$B/r/summary.json" ||
+	fail "the 96-period report has rolling windows"
+grep -q '^Left out: the history has 96 periods, fewer than two windows of 60' "$B/r/summary.md" ||
+	fail "summary.md of the 96-period report does not say why there are no rolling windows"
 grep -q '| Tallow Focus | .*| no |' "$B/r/summary.md" || fail "summary.md does not show 'Tallow Focus' failing"
 grep -q '| Brackenridge Broad | .*| yes |' "$B/r/summary.md" || fail "summary.md does not show 'Brackenridge Broad' passing"
 

@@ -155,7 +155,7 @@ if len(json.load(open(sys.argv[3]))["rolling"]["windows"]) != len(out):
     print("FAIL: summary.json lacks the rolling windows"); bad = 1
 sys.exit(bad)
 PY
-[ "$(status report "$TMP/u.csv" -o "$TMP/rep2" --step 3)" = 2 ] || say "--step without --window: not exit 2"
+[ "$(status report "$TMP/u.csv" -o "$TMP/rep2" --window 0 --step 3)" = 2 ] || say "--step with --window 0: not exit 2"
 [ -e "$TMP/rep2" ] && say "report folder left after a usage error"
 
 [ $fail = 0 ] && echo "cli_rolling: ok"

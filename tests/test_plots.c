@@ -174,6 +174,80 @@ static void test_plots_risk_renders_a_png_of_the_stated_size(void **state)
 	curve_free(c);
 }
 
+/* Funds on the curve: a passing and a failing invented fund.  The failing
+ * one is drawn in its own series (style 9, in the key) and named so; with
+ * no failing fund that series is left out, since gnuplot warns of a data
+ * file with no valid points.  Both scripts render without a warning. */
+static void test_plots_funds_mark_a_failing_fund(void **state)
+{
+	struct curve *c = make_curve();
+	struct audit_fund funds[2];
+	struct audit_result ar;
+	struct plots_input in = { c, NULL, NULL, 0, NAN, &ar, "invented", NULL };
+	char gp[4200], *buf = NULL, line[4400];
+	size_t len = 0, rows = 0, h;
+	double e, sd, x, y;
+	int passed, ends;
+	struct hc_error err;
+	FILE *fp, *mem;
+
+	(void)state;
+	memset(funds, 0, sizeof funds);
+	memset(&ar, 0, sizeof ar);
+	funds[0].name = "Tarn Ledger Fund", funds[0].holdings = 12, funds[0].effective_holdings = 9.385;
+	funds[0].sd = 0.0905, funds[0].risk_known = 1, funds[0].passed = 1;
+	funds[1].name = "Moss Quill Fund", funds[1].holdings = 25, funds[1].effective_holdings = 21.85;
+	funds[1].sd = 0.0815, funds[1].risk_known = 1, funds[1].passed = 0;
+	ar.funds = funds;
+	ar.nfunds = 2;
+	make_tmpdir("funds");
+	assert_true(plots_find_gnuplot(NULL, gp, sizeof gp));
+	fp = open_in("exact.dat");
+	assert_int_equal(plots_write_data(fp, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
+	fclose(fp);
+	fp = open_in("funds.dat");
+	assert_int_equal(plots_write_data(fp, PLOTS_DATA_FUNDS, &in, NULL), HC_OK);
+	fclose(fp);
+	fp = open_in("funds.gp");
+	assert_int_equal(plots_write_script(fp, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(fp);
+	hc_error_clear(&err);
+	assert_int_equal(plots_render(gp, tmpdir, "funds.gp", &err), HC_OK);
+	snprintf(line, sizeof line, "%s/funds.dat", tmpdir);
+	fp = fopen(line, "r");
+	assert_non_null(fp);
+	while (fgets(line, sizeof line, fp)) {
+		if (line[0] == '#')
+			continue;
+		assert_int_equal(sscanf(line, "%zu %lf %lf %d %lf %lf %d", &h, &e, &sd, &passed, &x, &y, &ends), 7);
+		assert_int_equal(passed, rows == 0);
+		assert_non_null(strstr(line, rows == 0 ? "\"Tarn Ledger Fund\"" : "\"Moss Quill Fund (fails the policy)\""));
+		rows++;
+	}
+	fclose(fp);
+	assert_int_equal(rows, 2);
+	mem = open_memstream(&buf, &len);
+	assert_int_equal(plots_write_script(mem, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(mem);
+	assert_non_null(strstr(buf, "with points ls 9 title \"fund failing the policy"));
+	free(buf);
+	funds[1].passed = 1;
+	buf = NULL;
+	mem = open_memstream(&buf, &len);
+	assert_int_equal(plots_write_script(mem, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(mem);
+	assert_null(strstr(buf, "ls 9"));
+	free(buf);
+	fp = open_in("funds.dat");
+	assert_int_equal(plots_write_data(fp, PLOTS_DATA_FUNDS, &in, NULL), HC_OK);
+	fclose(fp);
+	fp = open_in("funds.gp");
+	assert_int_equal(plots_write_script(fp, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(fp);
+	assert_int_equal(plots_render(gp, tmpdir, "funds.gp", &err), HC_OK);
+	curve_free(c);
+}
+
 /* gnuplot's "warning: Skipping data file with no valid points" on an empty
  * data file must come back as a failure carrying gnuplot's words. */
 static void test_plots_render_treats_a_warning_as_failure(void **state)
@@ -224,6 +298,7 @@ int main(void)
 		cmocka_unit_test(test_plots_formats_and_availability),
 		cmocka_unit_test(test_plots_find_gnuplot_along_a_path),
 		cmocka_unit_test(test_plots_risk_renders_a_png_of_the_stated_size),
+		cmocka_unit_test(test_plots_funds_mark_a_failing_fund),
 		cmocka_unit_test(test_plots_render_treats_a_warning_as_failure),
 		cmocka_unit_test(test_plots_script_allocation_failure),
 	};

@@ -156,6 +156,50 @@ static void test_report_csv_fields_without_table(void **state)
 	report_free(r);
 }
 
+/* report_write_csv_part: the second table, by key, and the fields, in the
+ * form of the CSV writer above (RFC 4180 section 2 quoting); an unknown
+ * table is a usage error that writes nothing. */
+static void test_report_csv_part_chooses_a_table_or_the_fields(void **state)
+{
+	struct report *r;
+	struct report_table *t;
+	struct hc_error err;
+	char *buf = NULL;
+	size_t len = 0;
+	FILE *fp;
+
+	(void)state;
+	assert_int_equal(build(&r), HC_OK);
+	t = report_add_table(r, "weights", "weights");
+	assert_non_null(t);
+	assert_int_equal(report_table_add_column(t, "sector", "sector", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(report_table_add_column(t, "weight", "weight", REPORT_STYLE_PERCENT), HC_OK);
+	assert_int_equal(report_table_add_row(t), HC_OK);
+	assert_int_equal(report_table_set_text(t, 0, 0, "Fen, north"), HC_OK);
+	report_table_set_real(t, 0, 1, 0.2385);
+	assert_ptr_equal(report_find_table(r, "weights"), t);
+	assert_null(report_find_table(r, "sectors"));
+
+	fp = open_memstream(&buf, &len);
+	assert_non_null(fp);
+	hc_error_clear(&err);
+	assert_int_equal(report_write_csv_part(fp, r, "weights", &err), HC_OK);
+	assert_int_equal(report_write_csv_part(fp, r, "curve", &err), HC_OK);
+	assert_int_equal(report_write_csv_part(fp, r, NULL, &err), HC_OK);
+	fflush(fp);
+	assert_string_equal(buf, "sector,weight\n\"Fen, north\",0.23849999999999999\n"
+			    "n,expected_sd,variance,label\n"
+			    "1,0.49236000000000002,-0.0123456789,\"one, \"\"a\"\"\"\n"
+			    "10,0.23932,,ten\n"
+			    "key,value\nsecurities,37\naverage_correlation,0.23849999999999999\n"
+			    "floor_sd,0.19158149999999999\nfirst_date,2004-01-31\ncomplete,true\nperiods_per_year,\n");
+	assert_int_equal(report_write_csv_part(fp, r, "sectors", &err), HC_EUSAGE);
+	assert_string_equal(err.message, "the output has no table 'sectors'");
+	fclose(fp);
+	free(buf);
+	report_free(r);
+}
+
 static const char golden_json[] =
 	"{\n"
 	"\t\"securities\":\t37,\n"
@@ -389,6 +433,7 @@ int main(void)
 		cmocka_unit_test(test_report_text_golden),
 		cmocka_unit_test(test_report_csv_golden),
 		cmocka_unit_test(test_report_csv_fields_without_table),
+		cmocka_unit_test(test_report_csv_part_chooses_a_table_or_the_fields),
 		cmocka_unit_test(test_report_json_golden_and_round_trip),
 		cmocka_unit_test(test_report_json_numbers_round_trip),
 		cmocka_unit_test(test_report_text_wraps_notes),

@@ -87,6 +87,37 @@ static void test_reportdir_commit_puts_the_folder_in_place(void **state)
 	assert_int_equal(leftovers(), 0);
 }
 
+/* The finished folder's mode is what mkdir(2) gives under the umask
+ * (POSIX.1-2008 mkdir and umask: requested mode 0777 & ~umask), while the
+ * temporary folder stays 0700 as mkdtemp makes it (POSIX.1-2008 mkdtemp). */
+static mode_t committed_mode(const char *name, mode_t mask)
+{
+	struct reportdir *rd;
+	struct stat st;
+	mode_t old = umask(mask), tmp_mode;
+
+	fresh(name);
+	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
+	assert_int_equal(stat(reportdir_tmp_path(rd), &st), 0);
+	tmp_mode = st.st_mode & 07777;
+	write_one(rd, "summary.json", "{}\n");
+	assert_int_equal(reportdir_commit(rd, NULL), HC_OK);
+	reportdir_free(rd);
+	umask(old);
+	assert_int_equal(tmp_mode, 0700);
+	assert_int_equal(stat(target, &st), 0);
+	return st.st_mode & 07777;
+}
+
+static void test_reportdir_commit_gives_the_folder_the_umask_mode(void **state)
+{
+	(void)state;
+	assert_int_equal(committed_mode("umask022", 022), 0755);
+	assert_int_equal(committed_mode("umask027", 027), 0750);
+	assert_int_equal(committed_mode("umask077", 077), 0700);
+	assert_int_equal(committed_mode("umask002", 002), 0775);
+}
+
 static void test_reportdir_refuses_an_existing_folder(void **state)
 {
 	struct reportdir *rd = NULL;
@@ -218,6 +249,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_reportdir_commit_puts_the_folder_in_place),
+		cmocka_unit_test(test_reportdir_commit_gives_the_folder_the_umask_mode),
 		cmocka_unit_test(test_reportdir_refuses_an_existing_folder),
 		cmocka_unit_test(test_reportdir_force_replaces_an_earlier_report),
 		cmocka_unit_test(test_reportdir_free_without_commit_removes_everything),

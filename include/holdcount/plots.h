@@ -10,6 +10,10 @@
  * curve is), printed with 10 significant digits and no dates or times, so
  * the same results give the same bytes.
  *
+ * Labels are laid out here (plotlayout.h) so that no line strikes them:
+ * each script fixes its frame in screen coordinates, and the data files
+ * carry where each rule's label and each fund's name go.
+ *
  * Library code never runs a program it was not asked to: plots_render is
  * the only function that starts gnuplot, and it reports gnuplot's messages
  * instead of printing them.
@@ -43,8 +47,10 @@ enum plots_kind {
 enum plots_data {
 	PLOTS_DATA_EXACT = 0,   /* exact.dat: n, sqrt E[var], share, tracking error */
 	PLOTS_DATA_SAMPLED = 1, /* sampled.dat: n, mean sd, 5% and 95% quantiles */
-	PLOTS_DATA_RULES = 2,   /* rules.dat: count, sd at count, label height, label */
-	PLOTS_DATA_FUNDS = 3,   /* funds.dat: holdings, effective holdings, sd, fund */
+	PLOTS_DATA_RULES = 2,   /* rules.dat: count, sd at count, then for the linear and the log
+				 * axis the label's height and side (plotlayout_leaders), label */
+	PLOTS_DATA_FUNDS = 3,   /* funds.dat: holdings, effective holdings, sd, passed, the name's
+				 * anchor and side (plotlayout_choose), name */
 	PLOTS_DATA_ROLLING = 4, /* rolling.dat: window end date, each exact rule's count */
 	PLOTS_NDATA = 5
 };

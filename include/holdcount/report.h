@@ -11,7 +11,8 @@
  *         reading (percent styles, fixed decimals).
  *   csv:  the first table only, header row of column keys first, numbers
  *         with 17 significant digits (round-trip), empty cell for no value;
- *         with no table, "key,value" rows of the fields.
+ *         with no table, "key,value" rows of the fields
+ *         (report_write_csv_part writes any other part the same way).
  *   json: one object: each field under its key, each table as an array of
  *         objects under its key, notes as "cautions": [...]; numbers with 17
  *         significant digits, null for no value.
@@ -123,6 +124,17 @@ struct report_writer {
 extern const struct report_writer *const report_writer_text;
 extern const struct report_writer *const report_writer_csv;
 extern const struct report_writer *const report_writer_json;
+
+/* The table of r whose key is key; NULL when there is none. */
+const struct report_table *report_find_table(const struct report *r, const char *key);
+
+/* One part of r as CSV, in report_writer_csv's form, for outputs that need
+ * more than its first table (a report folder's extra tables, a command's
+ * table choice): table is a table's key (a header row of its column keys,
+ * then one row per row), or NULL for the fields as "key,value" rows.
+ * Notes are not written, as in report_writer_csv.  HC_EUSAGE (err names
+ * the table) when r has no table of that key, HC_EIO when fp fails. */
+int report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err);
 
 /* Look a writer up by name ("table", "csv", "json"); NULL when unknown. */
 const struct report_writer *report_writer_find(const char *name);

@@ -13,6 +13,8 @@
  *     earlier report (it holds summary.json or summary.md) or empty: a
  *     folder of other files is never replaced.
  * An interrupted run therefore leaves the previous report intact, or none.
+ * The temporary folder is private (0700, as mkdtemp makes it); the
+ * finished one has mode 0777 less the process's umask, as mkdir(2) gives.
  * A SIGINT/SIGTERM handler calls reportdir_unlink_pending to remove the
  * temporary folder.  After SIGKILL the "DIR.tmp-XXXXXX" folder stays behind;
  * the next reportdir_begin for the same DIR removes every such folder whose

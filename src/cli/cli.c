@@ -742,10 +742,21 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
 	return HC_EUSAGE;
 }
 
+/* What is written: a whole report by a writer, or one part as CSV. */
+struct rendering {
+	const struct report_writer *w;   /* NULL: the CSV of part */
+	const char *part;                /* a table's key; NULL = the fields */
+};
+
+static int render(FILE *fp, const struct rendering *how, const struct report *r, struct hc_error *err)
+{
+	return how->w ? how->w->write(fp, r, err) : report_write_csv_part(fp, r, how->part, err);
+}
+
 /* Standard output cannot be taken back, so the whole rendering is made in
  * memory first and written only when it succeeded: a failure half-way
  * (out of memory in a writer) prints nothing but the message. */
-static int write_stdout(const struct report_writer *w, const struct report *r, struct hc_error *err)
+static int write_stdout(const struct rendering *how, const struct report *r, struct hc_error *err)
 {
 	char *buf = NULL;
 	size_t len = 0;
@@ -754,7 +765,7 @@ static int write_stdout(const struct report_writer *w, const struct report *r, s
 
 	if (!mem)
 		return hc_error(err, HC_ENOMEM, "out of memory rendering the output");
-	rc = w->write(mem, r, err);
+	rc = render(mem, how, r, err);
 	if (fclose(mem) != 0 && rc == HC_OK)
 		rc = hc_error(err, HC_ENOMEM, "out of memory rendering the output");
 	if (rc == HC_OK && (fwrite(buf, 1, len, stdout) != len || fflush(stdout) != 0))
@@ -763,30 +774,46 @@ static int write_stdout(const struct report_writer *w, const struct report *r, s
 	return rc;
 }
 
-int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r)
+static int write_output(const char *cmd, const struct cli_output *o, const struct rendering *how,
+			const struct report *r)
 {
-	const struct report_writer *w = report_writer_find(format_words[o->format]);
 	struct outfile of;
 	struct hc_error err;
 	int rc;
 
 	hc_error_clear(&err);
-	if (!w) {
-		hc_error(&err, HC_EINTERNAL, "no writer for format %d", o->format);
-		return cli_fail(cmd, &err);
-	}
 	if (!o->output || strcmp(o->output, "-") == 0)
-		return write_stdout(w, r, &err) ? cli_fail(cmd, &err) : HC_OK;
+		return write_stdout(how, r, &err) ? cli_fail(cmd, &err) : HC_OK;
 	rc = outfile_open(&of, o->output, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
-	rc = w->write(of.fp, r, &err);
+	rc = render(of.fp, how, r, &err);
 	if (rc) {
 		outfile_abort(&of);
 		return cli_fail(cmd, &err);
 	}
 	rc = outfile_commit(&of, &err);
 	return rc ? cli_fail(cmd, &err) : HC_OK;
+}
+
+int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r)
+{
+	struct rendering how = { report_writer_find(format_words[o->format]), NULL };
+	struct hc_error err;
+
+	if (!how.w) {
+		hc_error_clear(&err);
+		hc_error(&err, HC_EINTERNAL, "no writer for format %d", o->format);
+		return cli_fail(cmd, &err);
+	}
+	return write_output(cmd, o, &how, r);
+}
+
+int cli_write_csv_part(const char *cmd, const struct cli_output *o, const struct report *r, const char *table)
+{
+	struct rendering how = { NULL, table };
+
+	return write_output(cmd, o, &how, r);
 }
 
 /* ---- progress -------------------------------------------------------------- */
@@ -797,6 +824,12 @@ static double now_seconds(void)
 
 	clock_gettime(CLOCK_MONOTONIC, &ts);
 	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+void cli_stage(const char *cmd, int quiet, const char *what)
+{
+	if (!quiet && isatty(STDERR_FILENO))
+		fprintf(stderr, "holdcount %s: %s\n", cmd, what);
 }
 
 void cli_progress_init(struct cli_progress *p, const char *label, const char *unit, int quiet)

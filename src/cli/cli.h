@@ -250,6 +250,15 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
  * outfile) or stdout.  Prints its own error; returns the exit status. */
 int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r);
 
+/* "holdcount CMD: WHAT" on its own line of stderr, the name of a stage of a
+ * long run, under the same condition as the progress bar below. */
+void cli_stage(const char *cmd, int quiet, const char *what);
+
+/* Like cli_write_report, but only one part of r, as CSV whatever the
+ * format (report_write_csv_part: table is a table's key, or NULL for the
+ * fields as key,value rows), for commands whose --table chooses it. */
+int cli_write_csv_part(const char *cmd, const struct cli_output *o, const struct report *r, const char *table);
+
 /* A progress bar with rate on stderr, shown only when stderr is a terminal
  * and --quiet was not given. */
 struct cli_progress {
@@ -421,14 +430,23 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
  * rules_sampled with smp's paths and seed (strata when strat says so), the
  * bootstrap interval, and with --bootstrap-sampled the sampled rules'
  * interval.  res has room for RULES_COUNT; *out gets the report `enough`
- * prints (release with report_free).  Prints its error; returns the exit
- * status. */
+ * prints (release with report_free).  With stages set, each long step
+ * (sampling, bootstrap, sampled bootstrap) is announced by cli_stage
+ * before its progress bar, as `holdcount report` lists its stages.
+ * Prints its error; returns the exit status. */
 struct rule_result;
 struct cli_strata;
 int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
-		    struct cli_strata *strat, int quiet, const struct universe *u,
+		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out);
+
+/* After rolling_report: each rule's parameters as fields and the note on
+ * drifting averages, as `holdcount rolling` prints them (cmd_rolling.c), so
+ * that `holdcount report` shows the same object.  0, or non-zero when out
+ * of memory. */
+struct rolling_result;
+int cli_rolling_context(struct report *r, const struct rolling_result *res);
 
 /* The holdings inputs of `audit` (cmd_audit.c): --holdings, --sectors,
  * --allow-short, --strict and the column names. */

@@ -21,6 +21,7 @@
 #include "holdcount/universe.h"
 
 struct audit_opts {
+	int table;                 /* enum audit_table: which table --format csv prints */
 	struct cli_holdings hold;
 	struct cli_policy pol;
 	struct cli_sampling sam;
@@ -69,8 +70,22 @@ static const struct cli_option policy_own[] = {
 };
 const struct cli_group cli_group_policy = { "policy options", policy_own };
 
+/* The tables of audit_report that --table chooses for the CSV, by key. */
+enum audit_table { AUDIT_TABLE_FUNDS = 0, AUDIT_TABLE_SCREENS = 1, AUDIT_TABLE_SECTORS = 2 };
+static const char *const table_words[] = { "funds", "screens", "sectors", NULL };
+
 #define AO(f) offsetof(struct audit_opts, f)
+static const struct cli_option audit_own[] = {
+	{ "table", 0, CLI_CHOICE, AO(table), NULL,
+	  "with --format csv, the table to print: funds (one row per fund), screens (each screen's parts "
+	  "with their deciding figures) or sectors (each fund's sector weights; needs --sectors)",
+	  table_words, "funds" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+static const struct cli_group audit_group = { "audit options", audit_own };
+
 static const struct cli_group_use audit_groups[] = {
+	{ &audit_group, 0 },
 	{ &cli_group_holdings, AO(hold) },
 	{ &cli_group_policy, AO(pol) },
 	{ &cli_group_sampling_no_sizes, AO(sam) },
@@ -92,8 +107,9 @@ const struct cli_command cli_command_audit = {
 	"weights; sector weights with --sectors; and three weight screens (UCITS 2009/65/EC Art. 52, "
 	"Investment Company Act of 1940 s. 5(b)(1), Internal Revenue Code s. 851(b)(3)), written from "
 	"memory of the texts. With --covariance the risk figures come from a covariance matrix (w'Aw), "
-	"and with --missing pairwise from the pairwise-complete covariances. Exit status 0 when every "
-	"fund passes the rules asked for, 1 when any fails, 2 for usage and 3 for data errors.",
+	"and with --missing pairwise from the pairwise-complete covariances. With --format csv it prints "
+	"one table, the funds unless --table chooses the screens or the sector weights. Exit status 0 "
+	"when every fund passes the rules asked for, 1 when any fails, 2 for usage and 3 for data errors.",
 	1, 1, audit_groups
 };
 
@@ -297,6 +313,11 @@ int cmd_audit(int argc, char **argv)
 	cli_psd_init(&ps, 0, 1, 0, "");
 	if (!o.hold.holdings)
 		rc = cli_usage_error("audit", "--holdings FILE is required (see 'holdcount audit --help')");
+	else if (cli_given(&a, "table") && o.out.format != CLI_FORMAT_CSV)
+		rc = cli_usage_error("audit", "--table chooses the table of --format csv; the text and JSON outputs "
+				     "hold every table");
+	else if (o.table == AUDIT_TABLE_SECTORS && !o.hold.sectors)
+		rc = cli_usage_error("audit", "--table sectors needs --sectors FILE");
 	else
 		rc = cli_psd_usage("audit", &o.uni);
 	if (rc != HC_OK)
@@ -319,7 +340,11 @@ int cmd_audit(int argc, char **argv)
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("audit", &err);
 	}
-	if (rc != HC_OK || (rc = cli_write_report("audit", &o.out, r)) != HC_OK)
+	if (rc != HC_OK)
+		goto cleanup;
+	rc = o.table == AUDIT_TABLE_FUNDS ? cli_write_report("audit", &o.out, r)
+					  : cli_write_csv_part("audit", &o.out, r, table_words[o.table]);
+	if (rc != HC_OK)
 		goto cleanup;
 	if (res->failed_funds) {
 		cli_audit_say_failures("audit", res);

@@ -18,11 +18,28 @@
 #include "holdcount/universe.h"
 
 struct describe_opts {
+	int table;                 /* enum describe_table: what --format csv prints */
 	struct cli_universe uni;
 	struct cli_output out;
 };
 
+/* What the CSV carries: the summary figures as key,value rows (the
+ * report's fields), or one of its tables, by key. */
+enum describe_table { DESCRIBE_TABLE_SUMMARY = 0, DESCRIBE_TABLE_SECURITIES = 1, DESCRIBE_TABLE_DROPPED = 2 };
+static const char *const table_words[] = { "summary", "securities", "dropped", NULL };
+static const char *const table_keys[] = { NULL, "kept", "dropped" };
+
+static const struct cli_option describe_own[] = {
+	{ "table", 0, CLI_CHOICE, offsetof(struct describe_opts, table), NULL,
+	  "with --format csv, what to print: summary (the figures as key,value rows), securities (one "
+	  "row per security kept) or dropped (one row per security dropped, with the reason)",
+	  table_words, "summary" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+static const struct cli_group describe_group = { "describe options", describe_own };
+
 static const struct cli_group_use describe_groups[] = {
+	{ &describe_group, 0 },
 	{ &cli_group_universe, offsetof(struct describe_opts, uni) },
 	{ &cli_group_matrix_repair, offsetof(struct describe_opts, uni) },
 	{ &cli_group_output, offsetof(struct describe_opts, out) },
@@ -34,7 +51,8 @@ const struct cli_command cli_command_describe = {
 	"what was read from a universe: securities kept and dropped, periods, dates, and the averages",
 	"UNIVERSE",
 	"UNIVERSE is a CSV of returns (or prices, with --prices), or with --covariance a covariance "
-	"matrix. Figures are annualised by the periods per year, which the output states.",
+	"matrix. Figures are annualised by the periods per year, which the output states. With --format "
+	"csv it prints the summary figures as key,value rows, or with --table one table of securities.",
 	1, 1, describe_groups
 };
 
@@ -79,7 +97,7 @@ static int add_kept(struct report *r, const struct universe *u)
 		security_sd(u->x + i * u->t, u->t, u->periods_per_year, &nobs, &sd);
 		report_table_set_int(t, i, 1, (long long)nobs);
 		report_table_set_real(t, i, 2, sd);
-		/* The CSV carries only this table: it must say its scale too. */
+		/* A CSV of this table alone (--table securities) says its scale too. */
 		report_table_set_real(t, i, 3, u->periods_per_year);
 	}
 	return HC_OK;
@@ -190,6 +208,13 @@ static int build_matrix(struct report *r, const char *path, const struct covmatr
 	return report_add_cautions(r);
 }
 
+static int write(const struct describe_opts *o, const struct report *r)
+{
+	if (o->out.format != CLI_FORMAT_CSV)
+		return cli_write_report("describe", &o->out, r);
+	return cli_write_csv_part("describe", &o->out, r, table_keys[o->table]);
+}
+
 static int describe_matrix(const struct describe_opts *o, const struct cli_args *a)
 {
 	const char *path = a->positional[0];
@@ -221,7 +246,7 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 		rc = cli_fail("describe", &err);
 		goto cleanup;
 	}
-	rc = cli_write_report("describe", &o->out, r);
+	rc = write(o, r);
 cleanup:
 	report_free(r);
 	covmatrix_free(cm);
@@ -249,6 +274,11 @@ int cmd_describe(int argc, char **argv)
 	hc_error_clear(&err);
 	if ((rc = cli_psd_usage("describe", &o.uni)) != HC_OK)
 		goto cleanup;
+	if (cli_given(&a, "table") && o.out.format != CLI_FORMAT_CSV) {
+		rc = cli_usage_error("describe", "--table chooses what --format csv prints; the text and JSON outputs "
+				     "hold everything");
+		goto cleanup;
+	}
 	if (o.uni.covariance) {
 		rc = describe_matrix(&o, &a);
 		goto cleanup;
@@ -276,7 +306,7 @@ int cmd_describe(int argc, char **argv)
 		rc = cli_fail("describe", &err);
 		goto cleanup;
 	}
-	rc = cli_write_report("describe", &o.out, r);
+	rc = write(&o, r);
 cleanup:
 	report_free(r);
 	covmatrix_free(cm);

@@ -403,6 +403,7 @@ struct data_run {
 	const struct cli_sampling *smp;
 	struct cli_strata *strat;
 	int quiet;
+	int stages;                /* announce each long step (cli_stage) */
 };
 
 /* Options that contradict the rules chosen (before any file is read). */
@@ -441,6 +442,8 @@ static int run_sampled(const struct data_run *d, const struct universe *u, const
 	so.periods_per_year = ppy;
 	if (!cm && (rc = cli_strata_apply(d->cmd, d->strat, u, &so)))
 		return rc;
+	if (d->stages)
+		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
 	cli_progress_init(&prog, "sampling", "paths", d->quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
@@ -489,6 +492,11 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 	bo.threads = (int)d->smp->threads;
 	rc = bootstrap_base_alloc(&b, u, &err);
 	if (rc == HC_OK) {
+		if (d->stages) {
+			char what[96];
+			snprintf(what, sizeof what, "bootstrap of the exact rules (%zu replicates)", d->rul->bootstrap);
+			cli_stage(d->cmd, d->quiet, what);
+		}
 		cli_progress_init(&prog, "bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
@@ -516,6 +524,8 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 			bootstrap_base_free(b);
 			return rc;
 		}
+		if (d->stages)
+			cli_stage(d->cmd, d->quiet, "bootstrap of the sampled rules");
 		cli_progress_init(&prog, "sampled bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
@@ -535,7 +545,7 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 		      const struct rules_config *cfg, struct cli_psd *ps, struct enough_run *e,
 		      struct rule_result *res, size_t *nres)
 {
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet };
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0 };
 	struct covmatrix *cm = NULL;
 	struct rules_input in;
 	struct moments mo;
@@ -654,11 +664,11 @@ static int enough_data(const struct data_run *d, const struct universe *u, const
 }
 
 int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
-		    struct cli_strata *strat, int quiet, const struct universe *u,
+		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out)
 {
-	struct data_run d = { cmd, rul, smp, strat, quiet };
+	struct data_run d = { cmd, rul, smp, strat, quiet, stages };
 
 	return enough_data(&d, u, NULL, NULL, mo, cfg, res, nres, out);
 }
@@ -668,7 +678,7 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 		       struct cli_psd *ps, struct universe **up, struct rule_result *res, size_t *nres,
 		       struct report **out)
 {
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet };
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0 };
 	struct covmatrix *cm = NULL;
 	struct moments mo;
 	struct hc_error err;

@@ -44,6 +44,14 @@
 #include "holdcount/strata.h"
 #include "holdcount/universe.h"
 
+/* The rolling windows a report shows unless --window says otherwise: five
+ * years of periods, one starting every year, when the history holds at
+ * least this many windows' worth of periods (common practice for a
+ * committee's look back, no single source; two windows' length gives six
+ * windows a year apart, enough for a line to show a drift). */
+#define REPORT_WINDOW_YEARS 5
+#define REPORT_WINDOW_MIN_SPANS 2
+
 /* The rows of the curve shown in summary.md (the CSV has every grid row). */
 static const size_t readable_grid[] = { 1, 2, 3, 5, 10, 15, 20, 25, 30, 40, 50, 75, 100, 150, 200, 300, 500, 1000 };
 
@@ -52,7 +60,7 @@ struct report_opts {
 	int force;
 	int plot_format;
 	int quiet;
-	size_t window, step;       /* rolling windows; window 0 = none */
+	size_t window, step;       /* --window (0 = none) and --step (0 = a year's periods) as given */
 	struct cli_rules rul;
 	struct cli_holdings hold;
 	struct cli_policy pol;
@@ -70,8 +78,10 @@ static const struct cli_option report_own[] = {
 	{ "plot-format", 0, CLI_CHOICE, RO(plot_format), NULL, "format of the rendered plots", format_words, "png" },
 	{ "quiet", 'q', CLI_FLAG, RO(quiet), NULL, "no progress display on standard error", NULL, NULL },
 	{ "window", 0, CLI_COUNT, RO(window), "W",
-	  "also the exact rules' counts in rolling windows of W periods (rolling.csv and its plot)", NULL, "none" },
-	{ "step", 0, CLI_COUNT, RO(step), "S", "with --window: periods between two windows' starts", NULL, "12" },
+	  "the exact rules' counts in rolling windows of W periods (rolling.csv and its plot); 0 leaves them out",
+	  NULL, "five years of periods, when the history holds two such windows" },
+	{ "step", 0, CLI_COUNT, RO(step), "S", "periods between two rolling windows' starts", NULL,
+	  "one year of periods" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 static const struct cli_group report_group = { "report options", report_own };
@@ -95,8 +105,10 @@ const struct cli_command cli_command_report = {
 	"the plots and the cautions), summary.json (every figure of the summary), curve.csv, enough.csv "
 	"and audit.csv (what 'holdcount curve', 'enough' and 'audit' print with --format csv and the same "
 	"options), gnuplot scripts with their data (*.gp, *.dat) and, when gnuplot is on the PATH, their "
-	"renders; with --window W, rolling.csv (what 'holdcount rolling --window W' prints) and the plot "
-	"of the count needed through time. --sizes sets the curve's grid; the rules look at every count. "
+	"renders; and rolling.csv (what 'holdcount rolling' prints) with the plot of the count needed "
+	"through time, in windows of five years of periods a year apart when the history holds two such "
+	"windows (--window W and --step S choose others, --window 0 leaves them out; summary.md says "
+	"which). --sizes sets the curve's grid; the rules look at every count. "
 	"The folder is built under a temporary name and renamed into place, so an interrupted run leaves "
 	"the previous report or none. With no UNIVERSE it runs on the bundled invented demo universe, its "
 	"sectors and funds. Exit status 1 (after the folder is written) when a fund fails a policy option, "
@@ -120,7 +132,10 @@ struct run {
 	struct holdings_labels *labels;
 	struct audit_result *audit;
 	struct report *rep_universe, *rep_curve, *rep_enough, *rep_audit, *rep_plots;
-	struct universe *every_security;   /* --window: the file with no security dropped */
+	size_t window, step;               /* the rolling windows used; window 0 = none */
+	int window_default;                /* chosen by the report, not by --window */
+	char window_why[256];              /* why there are none, when window is 0 */
+	struct universe *every_security;   /* rolling windows: the file with no security dropped */
 	struct rolling_result *rolling;
 	struct report *rep_rolling;
 	int rendered;
@@ -155,8 +170,7 @@ static int stage_enabled(const struct report_opts *o)
 
 static void stage(const struct report_opts *o, const char *what)
 {
-	if (stage_enabled(o))
-		fprintf(stderr, "holdcount report: %s\n", what);
+	cli_stage("report", o->quiet, what);
 }
 
 static void on_signal(int sig)
@@ -218,8 +232,10 @@ static int compute_curve(struct run *r)
 		return rc;
 	hc_error_clear(&err);
 	rc = curve_exact(&r->curve, &r->mo, sizes, nsizes, r->u->periods_per_year, &err);
-	if (rc == HC_OK && r->o->sam.paths > 0)
+	if (rc == HC_OK && r->o->sam.paths > 0) {
+		cli_stage("report", r->o->quiet, "sampling random portfolios at the curve's counts");
 		rc = cli_curve_sample(&r->o->sam, r->o->quiet, r->u, NULL, r->curve, sizes, nsizes, &err);
+	}
 	hc_free(sizes);
 	sizes = NULL;
 	if (rc == HC_OK && !(sizes = hc_calloc(r->u->m, sizeof *sizes)))
@@ -251,19 +267,26 @@ static int compute_curve(struct run *r)
 static int compute_rolling(struct run *r)
 {
 	struct rolling_options ro;
+	struct cli_progress prog;
 	struct hc_error err;
+	int rc;
 
 	hc_error_clear(&err);
 	rolling_options_init(&ro);
-	ro.window = r->o->window;
-	ro.step = r->o->step;
+	ro.window = r->window;
+	ro.step = r->step;
 	ro.rules = r->cfg;
 	ro.rules.selected &= RULES_EXACT_MASK;
-	if (rolling_run(&r->rolling, r->every_security, &ro, &err) != HC_OK)
+	cli_progress_init(&prog, "windows", "windows", r->o->quiet);
+	ro.progress = cli_progress_update;
+	ro.progress_ctx = &prog;
+	rc = rolling_run(&r->rolling, r->every_security, &ro, &err);
+	cli_progress_finish(&prog);
+	if (rc != HC_OK)
 		return cli_fail("report", &err);
 	r->rep_rolling = report_alloc();
 	if (!r->rep_rolling || rolling_report(r->rep_rolling, r->rolling, &err) ||
-	    report_add_cautions(r->rep_rolling)) {
+	    cli_rolling_context(r->rep_rolling, r->rolling) || report_add_cautions(r->rep_rolling)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the rolling report");
 		return cli_fail("report", &err);
 	}
@@ -281,15 +304,15 @@ static int compute(struct run *r)
 		return cli_fail("report", &err);
 	if ((rc = compute_curve(r)) != HC_OK)
 		return rc;
-	stage(r->o, "rules");
-	rc = cli_enough_data("report", &r->o->rul, &r->o->sam, &r->strat, r->o->quiet, r->u, &r->mo, &r->cfg,
+	stage(r->o, "exact rules");
+	rc = cli_enough_data("report", &r->o->rul, &r->o->sam, &r->strat, r->o->quiet, 1, r->u, &r->mo, &r->cfg,
 			     r->rules, &r->nrules, &r->rep_enough);
 	if (rc == HC_OK && r->hold.holdings) {
 		stage(r->o, "audit of the funds");
 		rc = cli_audit_data("report", &r->hold, &r->o->pol, &r->o->sam, r->o->quiet, r->u, &r->mo, &r->h,
 				    &r->labels, &r->audit, &r->rep_audit);
 	}
-	if (rc == HC_OK && r->o->window) {
+	if (rc == HC_OK && r->window) {
 		stage(r->o, "rolling windows");
 		rc = compute_rolling(r);
 	}
@@ -390,6 +413,24 @@ static int write_report_file(struct reportdir *rd, const char *name, const struc
 	if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
 		return rc;
 	rc = w->write(fp, rep, err);
+	if (rc != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return reportdir_close(rd, fp, name, err);
+}
+
+/* One table of rep as CSV (report_write_csv_part), as `holdcount audit
+ * --table KEY --format csv` prints it. */
+static int write_part_file(struct reportdir *rd, const char *name, const struct report *rep, const char *table,
+			   struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
+		return rc;
+	rc = report_write_csv_part(fp, rep, table, err);
 	if (rc != HC_OK) {
 		fclose(fp);
 		return rc;
@@ -725,9 +766,62 @@ static void md_audit(FILE *fp, const struct run *r)
 	      "Act and RIC are the weight screens of Directive 2009/65/EC Art. 52, the Investment Company Act "
 	      "of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3), written from memory of the texts: "
 	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
-	      "only when `--screens` names it. Sector weights and each screen's deciding figure are in "
-	      "`audit.csv` and `summary.json`.\n\n", fp);
+	      "only when `--screens` names it.\n\n", fp);
 	md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, and "
+		"everything in `summary.json` under `audit`.\n\n",
+		table_of(r->rep_audit, "sectors") ? ", each fund's sector weights in `audit-sectors.csv`" : "");
+}
+
+/* Whether some row of t has a non-empty text in column key. */
+static int any_text(const struct report_table *t, const char *key)
+{
+	size_t i;
+
+	for (i = 0; i < t->nrows; i++) {
+		const struct report_value *v = cell(t, i, key);
+		if (v->kind == REPORT_TEXT && v->text && v->text[0])
+			return 1;
+	}
+	return 0;
+}
+
+static void md_rolling(FILE *fp, const struct run *r)
+{
+	static const char *const fixed[][2] = {
+		{ "window_start", "from" }, { "window_end", "to" }, { "securities", "securities" },
+		{ "average_correlation", "avg correlation" }, { "floor_sd", "floor sd a year" },
+	};
+	const char *cols[RULES_COUNT + 8][2];
+	const struct report_table *t = table_of(r->rep_rolling, "windows");
+	size_t n = 0, j;
+
+	fputs("## Count needed through time\n\n", fp);
+	if (!r->window || !t) {
+		fprintf(fp, "Left out: %s.\n\n", r->window_why[0] ? r->window_why : "no rolling windows");
+		return;
+	}
+	fprintf(fp, "Each exact rule's count from the averages of each window of %zu periods (%s), one window "
+		"starting every %zu periods: %zu windows. The sampled rules (band, shortfall) and the bootstrap "
+		"interval are not run per window (`holdcount rolling --bootstrap` gives the interval). Averages "
+		"drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, Journal of Finance 56(1)), so a count "
+		"set once is worth revisiting. Every window's averages are in `rolling.csv`.\n\n",
+		r->window, r->window_default ? "five years, the report's default; `--window W` sets another length "
+		"and `--window 0` leaves this out" : "set with `--window`", r->step, r->rolling->nwindows);
+	for (j = 0; j < sizeof fixed / sizeof fixed[0]; j++) {
+		cols[n][0] = fixed[j][0];
+		cols[n++][1] = fixed[j][1];
+	}
+	for (j = 0; j < t->ncols && n < sizeof cols / sizeof cols[0] - 1; j++)
+		if (strncmp(t->cols[j].key, "count_", 6) == 0) {
+			cols[n][0] = t->cols[j].key;
+			cols[n++][1] = t->cols[j].title;
+		}
+	if (any_text(t, "note")) {
+		cols[n][0] = "note";
+		cols[n++][1] = "note";
+	}
+	md_table(fp, t, (const char *const (*)[2])cols, n, NULL, NULL);
 }
 
 static void md_plots(FILE *fp, const struct run *r, const struct plots_input *pin, const unsigned char *made)
@@ -772,6 +866,7 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 	md_curve(fp, r);
 	md_rules(fp, r);
 	md_audit(fp, r);
+	md_rolling(fp, r);
 	md_plots(fp, r, pin, made);
 	fputs("## Cautions\n\n", fp);
 	for (i = 0; i < r->rep_universe->nnotes; i++)
@@ -781,8 +876,14 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 		      "verify against the current text and defer to compliance counsel\n", fp);
 	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
-	      "`--format csv` and the same options\n- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a "
-	      "year)\n", fp);
+	      "`--format csv` and the same options\n", fp);
+	if (r->rep_audit)
+		fprintf(fp, "- `audit-screens.csv`%s: what `holdcount audit` prints with `--format csv --table "
+			"screens`%s\n", table_of(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
+			table_of(r->rep_audit, "sectors") ? " and `--table sectors`" : "");
+	if (r->rep_rolling)
+		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
+	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
 	return reportdir_close(rd, fp, "summary.md", err);
 }
 
@@ -899,6 +1000,10 @@ static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *er
 		rc = write_report_file(rd, "enough.csv", r->rep_enough, report_writer_csv, err);
 	if (rc == HC_OK && r->rep_audit)
 		rc = write_report_file(rd, "audit.csv", r->rep_audit, report_writer_csv, err);
+	if (rc == HC_OK && r->rep_audit)
+		rc = write_part_file(rd, "audit-screens.csv", r->rep_audit, "screens", err);
+	if (rc == HC_OK && r->rep_audit && report_find_table(r->rep_audit, "sectors"))
+		rc = write_part_file(rd, "audit-sectors.csv", r->rep_audit, "sectors", err);
 	if (rc == HC_OK && r->rep_rolling)
 		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, report_writer_csv, err);
 	if (rc == HC_OK)
@@ -938,13 +1043,40 @@ static int check_options(const struct report_opts *o, const struct cli_args *a, 
 		return cli_usage_error("report", "--covariance does not apply: the report needs a return history "
 				       "(its dates, shortfall rule and rolling windows are time-based); describe, curve, "
 				       "enough and audit take a covariance matrix");
-	if (cli_given(a, "step") && !o->window)
-		return cli_usage_error("report", "--step needs --window W (the rolling windows' length)");
+	if (cli_given(a, "step") && cli_given(a, "window") && !o->window)
+		return cli_usage_error("report", "--step applies to the rolling windows, which --window 0 leaves out");
+	if (cli_given(a, "step") && !o->step)
+		return cli_usage_error("report", "--step must be at least 1 period");
 	for (k = 0; !r->hold.holdings && audit_only_options[k]; k++)
 		if (cli_given(a, audit_only_options[k]))
 			return cli_usage_error("report", "--%s applies to the audit of funds: give --holdings FILE",
 					       audit_only_options[k]);
 	return HC_OK;
+}
+
+/* The rolling windows: --window and --step as given, else five years of
+ * periods a year apart when the history holds two such windows, else none,
+ * with the reason kept for summary.md. */
+static void choose_window(struct run *r, const struct cli_args *a)
+{
+	double ppy = r->u->periods_per_year;
+	size_t year = ppy >= 1.5 ? (size_t)llround(ppy) : 1;
+
+	r->step = r->o->step ? r->o->step : year;
+	if (cli_given(a, "window")) {
+		r->window = r->o->window;
+		if (!r->window)
+			snprintf(r->window_why, sizeof r->window_why, "`--window 0` was given");
+		return;
+	}
+	r->window_default = 1;
+	r->window = REPORT_WINDOW_YEARS * year;
+	if (r->u->t < REPORT_WINDOW_MIN_SPANS * r->window) {
+		snprintf(r->window_why, sizeof r->window_why, "the history has %zu periods, fewer than two windows "
+			 "of %zu (five years at %.10g periods a year); `--window W` with a shorter W gives it", r->u->t,
+			 r->window, ppy);
+		r->window = 0;
+	}
 }
 
 /* The files to read: UNIVERSE and --holdings, or the bundled demo's. */
@@ -983,7 +1115,6 @@ int cmd_report(int argc, char **argv)
 	cli_rules_init(&o.rul);
 	cli_sampling_init(&o.sam);
 	cli_universe_init(&o.uni);
-	o.step = 12;
 	rc = cli_parse(&cli_command_report, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
@@ -1006,8 +1137,10 @@ int cmd_report(int argc, char **argv)
 			stale == 1 ? "" : "s");
 	snprintf(line, sizeof line, "loading '%s'", r.universe_path);
 	stage(&o, line);
-	if ((rc = cli_load_universe("report", &o.uni, r.universe_path, &r.u)) != HC_OK ||
-	    (o.window && (rc = load_every_security(&o, r.universe_path, &r.every_security)) != HC_OK) ||
+	if ((rc = cli_load_universe("report", &o.uni, r.universe_path, &r.u)) != HC_OK)
+		goto cleanup;
+	choose_window(&r, &a);
+	if ((r.window && (rc = load_every_security(&o, r.universe_path, &r.every_security)) != HC_OK) ||
 	    (rc = compute(&r)) != HC_OK)
 		goto cleanup;
 	if (build_universe(&r)) {

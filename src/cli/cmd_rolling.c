@@ -147,7 +147,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 }
 
 /* The rules' parameters and what the windows mean, beside the table. */
-static int add_context(struct report *r, const struct rolling_result *res)
+int cli_rolling_context(struct report *r, const struct rolling_result *res)
 {
 	char key[64], title[96];
 	size_t j, c;
@@ -210,7 +210,7 @@ int cmd_rolling(int argc, char **argv)
 		goto cleanup;
 	}
 	r = report_alloc();
-	if (!r || rolling_report(r, res, &err) || add_context(r, res) || report_add_cautions(r)) {
+	if (!r || rolling_report(r, res, &err) || cli_rolling_context(r, res) || report_add_cautions(r)) {
 		if (!err.code)
 			hc_error(&err, HC_ENOMEM, "out of memory for the report");
 		rc = cli_fail("rolling", &err);
