@@ -991,7 +991,7 @@ static int fields(struct report *rep, const struct audit_result *a)
 	    report_add_int(rep, "paths", "random portfolios per count", (long long)a->paths) != HC_OK ||
 	    report_add_int(rep, "seed", "seed", (long long)a->seed) != HC_OK ||
 	    report_add_text(rep, "policy", "policy", buf) != HC_OK ||
-	    report_add_int(rep, "funds", "funds", (long long)a->nfunds) != HC_OK ||
+	    report_add_int(rep, "fund_count", "funds", (long long)a->nfunds) != HC_OK ||
 	    report_add_int(rep, "failed_funds", "funds failing the policy", (long long)a->failed_funds) != HC_OK)
 		return HC_ENOMEM;
 	return HC_OK;

@@ -763,11 +763,43 @@ fail:
 	return NULL;
 }
 
+/* The first key that names two members of one JSON object (the report's
+ * fields, its tables and "cautions" share the top level; a table's columns
+ * share each row), or NULL.  JSON parsers keep only one of two equal keys,
+ * so a clash would silently hide a figure from scripts. */
+static const char *json_key_clash(const struct report *r)
+{
+	size_t n = r->nfields + r->ntables + 1, i, j;
+
+	for (i = 0; i < n; i++) {
+		const char *a = i < r->nfields ? r->fields[i].key
+			      : i < n - 1 ? r->tables[i - r->nfields]->key : "cautions";
+		for (j = i + 1; j < n; j++) {
+			const char *b = j < r->nfields ? r->fields[j].key
+				      : j < n - 1 ? r->tables[j - r->nfields]->key : "cautions";
+			if (strcmp(a, b) == 0)
+				return a;
+		}
+	}
+	for (i = 0; i < r->ntables; i++) {
+		const struct report_table *t = r->tables[i];
+		for (j = 0; j < t->ncols; j++)
+			for (n = j + 1; n < t->ncols; n++)
+				if (strcmp(t->cols[j].key, t->cols[n].key) == 0)
+					return t->cols[j].key;
+	}
+	return NULL;
+}
+
 static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
 {
 	cJSON_Hooks hooks = { json_malloc, json_free };
 	cJSON *root;
+	const char *clash;
 	char *text;
+
+	if ((clash = json_key_clash(r)))
+		return hc_error(err, HC_EINTERNAL, "JSON output names '%s' twice", clash);
 
 	/* Route cJSON through the project's allocator (fault injection reaches
 	 * it too).  Setting the hooks is idempotent. */

@@ -208,7 +208,7 @@ else:
     p = doc["periods_per_year"]
     if p != 12:
         fail(f"pairwise audit: periods_per_year {p}, expected 12 (month-end dates)")
-    # "funds" is both a field (the count) and the table; json keeps the last
+    # "funds" is the table (the count is "fund_count")
     rows = [{"fund": f["fund"], "sd": f["sd"]} for f in doc["funds"]]
     compare_matrix("--missing pairwise", recovered(rows, GIDS, p), PB)
     compare_fields("--missing pairwise", doc, P, PB, p)

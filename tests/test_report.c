@@ -281,6 +281,39 @@ static void test_report_json_numbers_round_trip(void **state)
 	report_free(r);
 }
 
+/* A key used twice in one JSON object is refused, not written: a parser
+ * keeps one of the two (RFC 8259 section 4: names "SHOULD be unique"), so a
+ * figure would vanish from scripts unseen. */
+static void test_report_json_refuses_a_key_used_twice(void **state)
+{
+	struct report *r = report_alloc();
+	struct report_table *t;
+	char *s;
+	int rc;
+
+	(void)state;
+	assert_non_null(r);
+	assert_int_equal(report_add_int(r, "funds", "funds", 3), HC_OK);
+	assert_non_null(t = report_add_table(r, "funds", "funds"));
+	s = render(report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_EINTERNAL);
+	free(s);
+	report_free(r);
+	/* the same within one table's rows */
+	assert_non_null(r = report_alloc());
+	assert_non_null(t = report_add_table(r, "rows", "rows"));
+	assert_int_equal(report_table_add_column(t, "sd", "sd", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(report_table_add_column(t, "sd", "sd again", REPORT_STYLE_PLAIN), HC_OK);
+	s = render(report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_EINTERNAL);
+	free(s);
+	/* text and CSV have no such constraint and still render */
+	s = render(report_writer_csv, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	free(s);
+	report_free(r);
+}
+
 /* Long notes wrap at 79 columns with a two-space hanging indent; short
  * ones stay on one line (the golden test above). */
 static void test_report_text_wraps_notes(void **state)
@@ -436,6 +469,7 @@ int main(void)
 		cmocka_unit_test(test_report_csv_part_chooses_a_table_or_the_fields),
 		cmocka_unit_test(test_report_json_golden_and_round_trip),
 		cmocka_unit_test(test_report_json_numbers_round_trip),
+		cmocka_unit_test(test_report_json_refuses_a_key_used_twice),
 		cmocka_unit_test(test_report_text_wraps_notes),
 		cmocka_unit_test(test_report_writer_find),
 		cmocka_unit_test(test_report_cautions_cover_each_subject),
