@@ -352,7 +352,7 @@ static int is_help(const char *arg)
 
 int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, struct cli_args *a)
 {
-	int i, rc, options_done = 0;
+	int i, rc = HC_OK, options_done = 0;
 	size_t n = argc > 0 ? (size_t)argc : 1;
 
 	memset(a, 0, sizeof *a);
@@ -362,7 +362,7 @@ int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, 
 			break;
 		else if (is_help(argv[i])) {
 			cli_print_help(stdout, cmd);
-			return fflush(stdout) == 0 ? CLI_HELP_SHOWN : HC_EIO;
+			return cli_flush_stdout(cmd->name) == HC_OK ? CLI_HELP_SHOWN : HC_EIO;
 		}
 	a->positional = hc_calloc(n, sizeof *a->positional);
 	a->given = hc_calloc(n, sizeof *a->given);
@@ -371,7 +371,6 @@ int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, 
 		cli_args_release(a);
 		return HC_ENOMEM;
 	}
-	rc = threads_from_environment(cmd, opts);
 	for (i = 1; rc == HC_OK && i < argc; i++) {
 		const char *arg = argv[i];
 		if (!options_done && strcmp(arg, "--") == 0)
@@ -381,6 +380,11 @@ int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, 
 		else
 			a->positional[a->npositional++] = argv[i];
 	}
+	/* After the options: an explicit --threads wins, so the variable is
+	 * not even read (a bad value there cannot stop a run that names its
+	 * own thread count). */
+	if (rc == HC_OK && !cli_given(a, "threads"))
+		rc = threads_from_environment(cmd, opts);
 	if (rc == HC_OK && a->npositional < cmd->min_positional)
 		rc = usage_fail(cmd, "missing %s", cmd->usage);
 	if (rc == HC_OK && a->npositional > cmd->max_positional)
@@ -731,6 +735,20 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
 	va_end(ap);
 	fputc('\n', stderr);
 	return HC_EUSAGE;
+}
+
+int cli_flush_stdout(const char *cmd)
+{
+	int e;
+
+	if (fflush(stdout) == 0 && !ferror(stdout))
+		return HC_OK;
+	/* errno still holds the failed write's reason (ENOSPC for /dev/full,
+	 * EPIPE, EIO); EIO when nothing set it. */
+	e = errno ? errno : EIO;
+	fprintf(stderr, "holdcount%s%s: cannot write to standard output: %s\n", cmd ? " " : "", cmd ? cmd : "",
+		strerror(e));
+	return HC_EIO;
 }
 
 /* Standard output cannot be taken back, so the whole rendering is made in

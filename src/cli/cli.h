@@ -236,6 +236,12 @@ const struct cli_command *cli_find_command(const char *name);
  * (HC_EINTERNAL when err carries none). */
 int cli_fail(const char *cmd, const struct hc_error *err);
 
+/* Flush standard output after text printed straight to it (help, manual
+ * pages, --version): HC_OK, or HC_EIO after printing "holdcount[ CMD]:
+ * cannot write to standard output: REASON" when any write failed (a full
+ * disk, /dev/full, a closed pipe).  cmd may be NULL (the top level). */
+int cli_flush_stdout(const char *cmd);
+
 /* Print "holdcount CMD: ..." for a usage problem found after parsing;
  * returns HC_EUSAGE. */
 int cli_usage_error(const char *cmd, const char *fmt, ...)
