@@ -360,16 +360,9 @@ static int pairwise_cov(const struct universe *u, double *a, struct hc_error *er
 		for (j = i; j < m; j++) {
 			double n = cnt[i * m + j];
 
-			if (n < COVMATRIX_MIN_COMMON_PERIODS) {
-				rc = i == j
-				   ? hc_error(err, HC_EDATA,
-					"%s: security '%s' has only %.0f periods; expected at least %d for a covariance",
-					u->source ? u->source : "universe", u->ids[i], n, COVMATRIX_MIN_COMMON_PERIODS)
-				   : hc_error(err, HC_EDATA,
-					"%s: securities '%s' and '%s' have only %.0f common periods; expected at least %d for a pairwise covariance",
-					u->source ? u->source : "universe", u->ids[i], u->ids[j], n, COVMATRIX_MIN_COMMON_PERIODS);
+			/* n counts 0/1 indicators exactly (integers below 2^53) */
+			if ((rc = covmatrix_check_overlap(u, i, j, (size_t)n, err)) != HC_OK)
 				goto cleanup;
-			}
 			a[i * m + j] = (a[i * m + j] - sx[i * m + j] * sx[j * m + i] / n) / (n - 1);
 		}
 	}
@@ -380,6 +373,34 @@ cleanup:
 	hc_free(cnt);
 	hc_free(sx);
 	return rc;
+}
+
+/* The id of security i, or "#i+1" for a universe built without ids. */
+static const char *id_or_number(const struct universe *u, size_t i, char *buf, size_t len)
+{
+	if (u->ids && u->ids[i])
+		return u->ids[i];
+	snprintf(buf, len, "#%zu", i + 1);
+	return buf;
+}
+
+int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
+			    struct hc_error *err)
+{
+	const char *src = u->source ? u->source : "universe";
+	char b1[32], b2[32];
+
+	if (n >= COVMATRIX_MIN_COMMON_PERIODS)
+		return HC_OK;
+	if (i == j)
+		return hc_error(err, HC_EDATA,
+			"%s: security '%s' has only %zu period%s; expected at least %d for a covariance",
+			src, id_or_number(u, i, b1, sizeof b1), n, n == 1 ? "" : "s",
+			COVMATRIX_MIN_COMMON_PERIODS);
+	return hc_error(err, HC_EDATA,
+		"%s: securities '%s' and '%s' have only %zu common period%s; expected at least %d for a pairwise covariance",
+		src, id_or_number(u, i, b1, sizeof b1), id_or_number(u, j, b2, sizeof b2),
+		n, n == 1 ? "" : "s", COVMATRIX_MIN_COMMON_PERIODS);
 }
 
 int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,

@@ -20,6 +20,7 @@
 
 #include <gsl/gsl_cblas.h>
 
+#include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 
 /*
@@ -293,16 +294,21 @@ static int route_matrix(struct moments *mo, const struct universe *u, const doub
 }
 
 /*
- * Pairwise-complete covariance of securities i and j: means and products
- * over the periods where both are present (the convention of pandas'
- * DataFrame.cov and R's use = "pairwise.complete.obs"), divisor n_ij - 1.
- * Also the overlap variances, for the pairwise correlation.
+ * Pairwise-complete covariance of securities i and j of u: means and
+ * products over the periods where both are present (the convention of
+ * pandas' DataFrame.cov and R's use = "pairwise.complete.obs"), divisor
+ * n_ij - 1.  Also the overlap variances, for the pairwise correlation.
+ * Fewer common periods than covmatrix.h's minimum is HC_EDATA from the
+ * routine covmatrix_from_universe uses too, so both refuse the same data
+ * with the same message.
  */
-static int pair_cov(const double *x, const double *y, size_t t,
-		    double *cov, double *vx, double *vy)
+static int pair_cov(const struct universe *u, size_t i, size_t j,
+		    double *cov, double *vx, double *vy, struct hc_error *err)
 {
+	const double *x = u->x + i * u->t, *y = u->x + j * u->t;
 	long double mx = 0, my = 0, sxy = 0, sxx = 0, syy = 0;
-	size_t k, n = 0;
+	size_t k, n = 0, t = u->t;
+	int rc;
 
 	for (k = 0; k < t; k++)
 		if (!isnan(x[k]) && !isnan(y[k])) {
@@ -310,8 +316,8 @@ static int pair_cov(const double *x, const double *y, size_t t,
 			my += y[k];
 			n++;
 		}
-	if (n < 2)
-		return -1;
+	if ((rc = covmatrix_check_overlap(u, i, j, n, err)) != HC_OK)
+		return rc;
 	mx /= n;
 	my /= n;
 	for (k = 0; k < t; k++)
@@ -323,7 +329,7 @@ static int pair_cov(const double *x, const double *y, size_t t,
 	*cov = (double)(sxy / (n - 1));
 	*vx = (double)(sxx / (n - 1));
 	*vy = (double)(syy / (n - 1));
-	return 0;
+	return HC_OK;
 }
 
 /* The pairwise-complete matrix into a new *out, and the sum of the
@@ -331,7 +337,7 @@ static int pair_cov(const double *x, const double *y, size_t t,
 static int pairwise_matrix(const struct universe *u, double **out, long double *rsum,
 			   struct hc_error *err)
 {
-	size_t m = u->m, t = u->t, i, j, n;
+	size_t m = u->m, i, j, n;
 	double *a, cov, vx, vy;
 	long double R = 0;
 	char b1[32], b2[32];
@@ -340,23 +346,24 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	for (i = 0; i < m; i++) {
-		const double *x = u->x + i * t;
-		int few = pair_cov(x, x, t, &cov, &vx, &vy);
-		if (few || !(cov > 0)) {
+		int rc = pair_cov(u, i, i, &cov, &vx, &vy, err);
+		if (rc || !(cov > 0)) {
 			hc_free(a);
-			return hc_error(err, HC_EDATA, "security '%s' has %s",
-					security_name(u, i, b1, sizeof b1),
-					few ? "fewer than two periods" : "zero variance");
+			return rc ? rc : hc_error(err, HC_EDATA, "security '%s' has zero variance",
+						  security_name(u, i, b1, sizeof b1));
 		}
 		a[i * m + i] = cov;
 	}
 	for (i = 0; i < m; i++)
 		for (j = i + 1; j < m; j++) {
-			if (pair_cov(u->x + i * t, u->x + j * t, t, &cov, &vx, &vy) || !(vx > 0) || !(vy > 0)) {
+			int rc = pair_cov(u, i, j, &cov, &vx, &vy, err);
+			if (rc || !(vx > 0) || !(vy > 0)) {
+				const char *ni = security_name(u, i, b1, sizeof b1);
+				const char *nj = security_name(u, j, b2, sizeof b2);
 				hc_free(a);
-				return hc_error(err, HC_EDATA,
-						"securities '%s' and '%s' share too few periods for a covariance",
-						security_name(u, i, b1, sizeof b1), security_name(u, j, b2, sizeof b2));
+				return rc ? rc : hc_error(err, HC_EDATA,
+						"securities '%s' and '%s': '%s' does not vary over their common periods, "
+						"so they have no correlation", ni, nj, vx > 0 ? nj : ni);
 			}
 			a[i * m + j] = a[j * m + i] = cov;
 			R += 2.0L * cov / sqrtl((long double)vx * vy);

@@ -8,12 +8,14 @@
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
+#include <stdio.h>
 #include <string.h>
 #include <cmocka.h>
 
 #include <gsl/gsl_errno.h>
 
 #include "fixture.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 
@@ -297,7 +299,7 @@ static void test_moments_rejects_bad_data(void **state)
 	u = fixture_universe(x, 3, 5);
 	assert_non_null(u);
 	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
-	assert_string_equal(err.message, "security 'S03' has fewer than two periods");
+	assert_string_equal(err.message, "fixture: security 'S03' has only 1 period; expected at least 3 for a covariance");
 	fixture_free(u);
 }
 
@@ -392,6 +394,62 @@ static void test_moments_covariance_matrix(void **state)
 	fixture_free(u10);
 }
 
+/*
+ * One minimum of common periods for every pairwise computation: 3, the
+ * contract of docs/formats.md ("a pair with fewer than 3 common periods is
+ * an error naming the pair").  B and C below share exactly 2 periods: the
+ * pairwise route of moments_from_universe and covmatrix_from_universe
+ * refuse them with the same message.  One more row gives them 3, and then
+ * both accept, with the covariance numpy gives for those three periods.
+ */
+static void test_moments_pairwise_minimum_periods(void **state)
+{
+	static const char two[] =
+		"date,A,B,C\n"
+		"2021-01-31,0.0213,NA,0.0342\n"
+		"2021-02-28,-0.0385,NA,0.0051\n"
+		"2021-03-31,0.0172,0.0093,NA\n"
+		"2021-04-30,0.0051,-0.0204,NA\n"
+		"2021-05-31,0.0094,0.0077,-0.0319\n"
+		"2021-06-30,-0.0217,0.0148,0.0089\n";
+	static const char three_row[] = "2021-07-31,-0.0106,-0.0126,0.0207\n";
+	static const char want[] =
+		"u.csv: securities 'B' and 'C' have only 2 common periods; expected at least 3 for a pairwise covariance";
+	char text[sizeof two + sizeof three_row];
+	struct universe_options o;
+	struct universe *u;
+	struct covmatrix *c;
+	struct moments mo;
+	struct hc_error err;
+	double *a;
+
+	universe_options_init(&o);
+	o.missing = UNIVERSE_MISSING_KEEP;
+	assert_int_equal(universe_load_buffer(&u, "u.csv", two, strlen(two), &o, &err), HC_OK);
+	assert_int_equal(u->has_missing, 1);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_string_equal(err.message, want);
+	assert_int_equal(moments_covariance(u, &a, &err), HC_EDATA);
+	assert_string_equal(err.message, want);
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_EDATA);
+	assert_string_equal(err.message, want);
+	universe_free(u);
+
+	snprintf(text, sizeof text, "%s%s", two, three_row);
+	assert_int_equal(universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err), HC_OK);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_PAIRWISE);
+	assert_int_equal(moments_covariance(u, &a, &err), HC_OK);
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	/* numpy.cov([0.0077, 0.0148, -0.0126], [-0.0319, 0.0089, 0.0207])[0, 1]
+	 * = -0.00018357 (numpy 1.24); the two routines round differently. */
+	assert_close(a[1 * 3 + 2], -0.00018357, 1e-4, 1e-12);
+	assert_close(c->a[1 * 3 + 2], -0.00018357, 1e-4, 1e-12);
+	hc_free(a);
+	covmatrix_free(c);
+	universe_free(u);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -405,6 +463,7 @@ int main(void)
 		cmocka_unit_test(test_moments_rejects_bad_data),
 		cmocka_unit_test(test_moments_allocation_failure),
 		cmocka_unit_test(test_moments_covariance_matrix),
+		cmocka_unit_test(test_moments_pairwise_minimum_periods),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

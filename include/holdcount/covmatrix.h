@@ -20,7 +20,8 @@
  * room for a file printed with about 9 significant digits. */
 #define COVMATRIX_DEFAULT_SYMMETRY_TOL 1e-8
 
-/* Fewest common periods a pair needs for a pairwise covariance. */
+/* Fewest common periods a pair needs for a pairwise covariance (and a
+ * security alone for its variance), docs/formats.md. */
 #define COVMATRIX_MIN_COMMON_PERIODS 3
 
 struct covmatrix {
@@ -59,6 +60,18 @@ int covmatrix_load_buffer(struct covmatrix **out, const char *name,
  * m*m arrays (pairwise).  HC_ENOMEM when they cannot be allocated.
  */
 int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
+			    struct hc_error *err);
+
+/*
+ * The one place the minimum above is applied, by every pairwise-complete
+ * computation (covmatrix_from_universe here, the pairwise route of
+ * moments.h): HC_OK when securities i and j of u share n >=
+ * COVMATRIX_MIN_COMMON_PERIODS observed periods (i == j: security i alone
+ * has n), else HC_EDATA "SOURCE: securities 'B' and 'C' have only 2 common
+ * periods; expected at least 3 for a pairwise covariance" ("security 'B'
+ * has only 2 periods; ..." when i == j).
+ */
+int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
 			    struct hc_error *err);
 
 /*

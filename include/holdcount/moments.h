@@ -44,8 +44,9 @@ struct moments {
 /* From a universe: complete data uses the Gram route when T < M, else the
  * matrix route; data with gaps uses pairwise-complete covariances.
  * HC_EDATA when fewer than 2 securities or periods, when a security has
- * zero variance, or (pairwise) when two securities share fewer than two
- * periods; HC_ENOMEM.  On error *mo is zeroed. */
+ * zero variance, or (pairwise) when two securities share fewer than
+ * COVMATRIX_MIN_COMMON_PERIODS (covmatrix.h) periods, with the message
+ * covmatrix_check_overlap gives; HC_ENOMEM.  On error *mo is zeroed. */
 int moments_from_universe(struct moments *mo, const struct universe *u,
 			  struct hc_error *err);
 
