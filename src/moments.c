@@ -5,7 +5,8 @@
  *   Gram     complete data, T < M: V, r_i and C from column sums in O(MT),
  *            S + Q = ||A||_F^2 = ||X X^T||_F^2 / (T-1)^2 from the T x T Gram
  *            matrix in O(T^2 M); no M x M matrix is formed.
- *   matrix   complete data, T >= M: A = X^T X/(T-1) by BLAS dsyrk, O(M^2 T).
+ *   matrix   complete data, T >= M: A = X^T X/(T-1) by BLAS dgemm in blocks
+ *            of MOMENTS_BLOCK_ROWS rows, O(M^2 T), never held whole.
  *   pairwise data with gaps: each covariance over the periods both
  *            securities have (pairwise-complete), O(M^2 T).
  * Sums over M or M^2 terms are accumulated in long double so that the
@@ -276,20 +277,111 @@ cleanup:
 	return rc;
 }
 
-/* Matrix route: A = Xc Xc^T/(T-1) through dsyrk, then the sums. */
-static int full_matrix(const struct universe *u, const double *xc, double **out,
-		       struct hc_error *err);
+static void gemm_nt(size_t n, size_t w, size_t k, double alpha, const double *a,
+		    const double *b, size_t ld, double *c)
+{
+	int saved = openblas_get_num_threads();
 
+	openblas_set_num_threads(1);
+	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)n, (int)w, (int)k, alpha,
+		    a, (int)ld, b, (int)ld, 0.0, c, (int)w);
+	openblas_set_num_threads(saved);
+}
+
+/* Add the entries right of the diagonal in rows i0..i0+nb of A (block
+ * row blk: nb x (m - i0), column j at j - i0) to the row sums r, to Q and
+ * to the correlation sum R, each twice for its mirror image below. */
+static int block_sums(const struct universe *u, const double *blk, size_t i0, size_t nb,
+		      const double *v, long double *r, long double *Q, long double *R,
+		      struct hc_error *err)
+{
+	size_t m = u->m, w = m - i0, i, j;
+	char b1[32], b2[32];
+
+	for (i = i0; i < i0 + nb; i++) {
+		const double *row = blk + (i - i0) * w;
+		long double ri = 0, q = 0, rr = 0;
+
+		for (j = i + 1; j < m; j++) {
+			double c = row[j - i0];
+			if (!isfinite(c))
+				return hc_error(err, HC_EDATA,
+						"the covariance of securities '%s' and '%s' is not a finite number",
+						security_name(u, i, b1, sizeof b1), security_name(u, j, b2, sizeof b2));
+			ri += c;
+			r[j] += c;
+			q += (long double)c * c;
+			rr += c / sqrtl((long double)v[i] * v[j]);
+		}
+		r[i] += ri;
+		*Q += 2.0L * q;
+		*R += 2.0L * rr;
+	}
+	return HC_OK;
+}
+
+/*
+ * Matrix route, in row blocks, so that no M x M matrix is held: the
+ * variances v_i = x_i.x_i/(T-1) come first (O(MT)); then each block of
+ * MOMENTS_BLOCK_ROWS rows i0.. of A right of column i0, Xc[i0..] Xc[i0..M]^T
+ * /(T-1), is one BLAS dgemm into a buffer of MOMENTS_BLOCK_ROWS x M
+ * doubles, whose entries right of the diagonal (the upper triangle) feed
+ * the row sums r_i and r_j, Q and the correlation sum.  V, S, W, Z and C
+ * then follow from v and r.  Work: about M^2 T multiply-adds as for
+ * dsyrk on the whole matrix; memory: the centred copy and
+ * (MOMENTS_BLOCK_ROWS + 3) M numbers besides the universe.
+ */
 static int route_matrix(struct moments *mo, const struct universe *u, const double *xc,
 			struct hc_error *err)
 {
-	double *a;
-	int rc;
+	size_t m = u->m, t = u->t, b = m < MOMENTS_BLOCK_ROWS ? m : MOMENTS_BLOCK_ROWS, i, i0, n;
+	double d = (double)(t - 1), *v, *blk = NULL;
+	long double *r, V = 0, C = 0, S = 0, Q = 0, W = 0, Z = 0, R = 0;
+	char buf[32];
+	int rc = HC_OK;
 
-	if ((rc = full_matrix(u, xc, &a, err)))
-		return rc;
-	rc = sums_from_matrix(mo, a, u->m, err);
-	hc_free(a);
+	v = hc_malloc(m * sizeof *v);
+	r = hc_calloc(m, sizeof *r);
+	if (!v || !r || hc_mul_size(b, m, &n) || !(blk = hc_malloc(n * sizeof *blk))) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the covariance blocks of %zu securities", m);
+		goto cleanup;
+	}
+	for (i = 0; i < m; i++) {
+		v[i] = dot(xc + i * t, xc + i * t, t) / d;
+		if (!isfinite(v[i])) {
+			rc = hc_error(err, HC_EDATA, "the variance of security '%s' is not a finite number",
+				      security_name(u, i, buf, sizeof buf));
+			goto cleanup;
+		}
+	}
+	for (i0 = 0; i0 < m; i0 += b) {
+		size_t nb = m - i0 < b ? m - i0 : b;
+
+		gemm_nt(nb, m - i0, t, 1.0 / d, xc + i0 * t, xc + i0 * t, t, blk);
+		if ((rc = block_sums(u, blk, i0, nb, v, r, &Q, &R, err)) != HC_OK)
+			goto cleanup;
+	}
+	for (i = 0; i < m; i++) {
+		V += v[i];
+		S += (long double)v[i] * v[i];
+		W += v[i] * r[i];
+		Z += r[i] * r[i];
+		C += r[i];
+	}
+	mo->has_spread = 1;
+	mo->has_correlation = 1;
+	mo->sum_var = (double)V;
+	mo->sum_cov = (double)C;
+	mo->sum_var2 = (double)S;
+	mo->sum_cov2 = (double)Q;
+	mo->sum_var_rowcov = (double)W;
+	mo->sum_rowcov2 = (double)Z;
+	mo->average_correlation = (double)(R / ((long double)m * (m - 1)));
+	finish(mo);
+cleanup:
+	hc_free(v);
+	hc_free(r);
+	hc_free(blk);
 	return rc;
 }
 

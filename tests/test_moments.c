@@ -114,6 +114,16 @@ static void test_moments_matrix_route_matches_reference(void **state)
 	check_route_against_reference(23, 61, 7741, MOMENTS_ROUTE_MATRIX);
 }
 
+/* T >= M with M = 2 blocks + 37 rows: the matrix route's row blocks
+ * (MOMENTS_BLOCK_ROWS) meet at two boundaries and end in a short block;
+ * the sums still match the reference covariance held whole. */
+static void test_moments_matrix_route_several_blocks(void **state)
+{
+	size_t m = 2 * MOMENTS_BLOCK_ROWS + 37;
+
+	check_route_against_reference(m, m + 11, 3141, MOMENTS_ROUTE_MATRIX);
+}
+
 /* (b) Gram and matrix routes on the same data, both shapes, agree to
  * 1e-10 (each sum is exact up to rounding, about 1e-15 relative; the
  * margin covers Q = ||A||_F^2 - S). */
@@ -455,6 +465,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_moments_gram_route_matches_reference),
 		cmocka_unit_test(test_moments_matrix_route_matches_reference),
+		cmocka_unit_test(test_moments_matrix_route_several_blocks),
 		cmocka_unit_test(test_moments_gram_and_matrix_routes_agree),
 		cmocka_unit_test(test_moments_from_matrix_hand_worked),
 		cmocka_unit_test(test_moments_pairwise_route),

@@ -17,11 +17,15 @@
 
 enum moments_route {
 	MOMENTS_ROUTE_GRAM = 0,     /* column sums and the T x T Gram matrix (complete data, T < M) */
-	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance through BLAS dsyrk */
+	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance in row blocks through BLAS dgemm */
 	MOMENTS_ROUTE_PAIRWISE = 2, /* pairwise-complete covariances (data with gaps) */
 	MOMENTS_ROUTE_GIVEN = 3,    /* a covariance matrix was supplied */
 	MOMENTS_ROUTE_SUMMARY = 4   /* only average variance and covariance are known */
 };
+
+/* Rows of the covariance matrix the matrix route computes at a time (its
+ * buffer holds MOMENTS_BLOCK_ROWS x M doubles, 10 MB for M = 5000). */
+#define MOMENTS_BLOCK_ROWS 256
 
 struct moments {
 	size_t m;                  /* securities; 0 = unbounded universe (summary only) */
