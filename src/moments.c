@@ -499,6 +499,35 @@ static int full_matrix(const struct universe *u, const double *xc, double **out,
 	return HC_OK;
 }
 
+/*
+ * The memory budget (memory.h), checked before anything is allocated: the
+ * universe's numbers stay held while need more bytes are made.  The sizes
+ * are those of the allocations of each route.
+ */
+static int check_budget(const struct universe *u, double need, const char *what,
+			struct hc_error *err)
+{
+	double held = (double)u->m * (double)u->t * sizeof(double);
+
+	return hc_memory_check(u->max_bytes, held, need, err, "%s: universe too large for its %s",
+			       u->source ? u->source : "universe", what);
+}
+
+static double route_bytes(const struct universe *u, int route)
+{
+	double m = (double)u->m, t = (double)u->t;
+	double b = m < MOMENTS_BLOCK_ROWS ? m : MOMENTS_BLOCK_ROWS;
+
+	switch (route) {
+	case MOMENTS_ROUTE_GRAM:    /* centred copy, T x T Gram matrix, two T-vectors */
+		return (m * t + t * t + 2 * t) * sizeof(double);
+	case MOMENTS_ROUTE_MATRIX:  /* centred copy, one block of rows, v, and r in long double */
+		return (m * t + b * m + m) * sizeof(double) + m * sizeof(long double);
+	default:                    /* pairwise: the M x M matrix */
+		return m * m * sizeof(double);
+	}
+}
+
 static int check_shape(const struct universe *u, struct hc_error *err)
 {
 	if (u->m < 2 || u->t < 2)
@@ -518,6 +547,10 @@ int moments_covariance(const struct universe *u, double **a, struct hc_error *er
 
 	*a = NULL;
 	if ((rc = check_shape(u, err)))
+		return rc;
+	/* the M x M result, and for complete data the centred copy */
+	if ((rc = check_budget(u, ((double)u->m * u->m + (u->has_missing ? 0.0 : (double)u->m * u->t))
+				      * sizeof(double), "covariance matrix", err)))
 		return rc;
 	if (u->has_missing)
 		return pairwise_matrix(u, a, &R, err);
@@ -542,6 +575,8 @@ int moments_from_universe_route(struct moments *mo, const struct universe *u,
 		return hc_error(err, HC_EUSAGE, "moments route %d is not one computed from returns", route);
 	if (u->has_missing && route != MOMENTS_ROUTE_PAIRWISE)
 		return hc_error(err, HC_EUSAGE, "data with gaps needs pairwise-complete covariances");
+	if ((rc = check_budget(u, route_bytes(u, route), "covariances", err)))
+		return rc;
 	mo->m = u->m;
 	mo->route = route;
 	if (route == MOMENTS_ROUTE_PAIRWISE) {

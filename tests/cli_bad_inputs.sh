@@ -73,6 +73,20 @@ with open(path, "w") as f:
         f.write("\n".join(text))
     elif name == "budget-400x500":
         f.write(returns(400, 500))                    # 200000 numbers: 1.53 MiB as doubles
+    elif name == "gram-600x500":
+        f.write(returns(600, 500))                    # T < M: loads within 5 MiB, the Gram route does not fit
+    elif name == "matrix-400x600":
+        f.write(returns(400, 600))                    # T >= M: loads within 4 MiB, the row blocks do not fit
+    elif name == "cov-header-40k":
+        # a covariance header of 40 000 ids (a 12.8 GB matrix) and one row
+        ids = ["I%05d" % (i + 1) for i in range(40000)]
+        f.write("," + ",".join(ids) + "\n" + ids[0] + "," + ",".join(["0.01"] * 40000) + "\n")
+    elif name == "cov-200":
+        # a valid 200 x 200 covariance matrix: variances 0.04, covariances 0.01
+        ids = ["I%03d" % (i + 1) for i in range(200)]
+        f.write("," + ",".join(ids) + "\n")
+        for i in range(200):
+            f.write(ids[i] + "," + ",".join("0.04" if j == i else "0.01" for j in range(200)) + "\n")
     else:
         sys.exit("cli_bad_inputs.sh: unknown generator gen:" + name)
 EOF

@@ -404,6 +404,55 @@ static void test_moments_covariance_matrix(void **state)
 	fixture_free(u10);
 }
 
+/* Budget (memory.h) of a universe with u->max_bytes set: ok at exactly
+ * the bytes held plus those the route allocates, refused one byte below,
+ * with the message naming the figures. */
+static void expect_budget(struct universe *u, int route, size_t bytes)
+{
+	struct moments mo;
+	struct hc_error err;
+
+	u->max_bytes = bytes - 1;
+	assert_int_equal(moments_from_universe_route(&mo, u, route, &err), HC_ENOMEM);
+	assert_int_equal(mo.m, 0);
+	assert_memory_equal(err.message, "fixture: universe too large for its covariances: needs at least 0.1 MiB, budget 0.0 MiB",
+			    sizeof "fixture: universe too large for its covariances: needs at least 0.1 MiB, budget 0.0 MiB");
+	u->max_bytes = bytes;
+	assert_int_equal(moments_from_universe_route(&mo, u, route, &err), HC_OK);
+	u->max_bytes = 0;
+}
+
+/* The sizes counted by hand from the allocations (8-byte doubles):
+ *   matrix, 23 x 61: held 23*61, centred copy 23*61, one block of
+ *     min(23, MOMENTS_BLOCK_ROWS) = 23 rows of 23, v 23 doubles, r 23 long doubles;
+ *   Gram, 37 x 13: held 37*13, centred copy 37*13, Gram 13*13, two 13-vectors;
+ *   pairwise, 23 x 61: held 23*61, the 23 x 23 matrix;
+ *   moments_covariance, 23 x 61 complete: held, centred copy, 23 x 23. */
+static void test_moments_memory_budget(void **state)
+{
+	struct universe *a = fixture_random_universe(23, 61, 7741);
+	struct universe *g = fixture_random_universe(37, 13, 2385);
+	struct hc_error err;
+	double *cov = (double *)&err;
+
+	assert_non_null(a);
+	assert_non_null(g);
+	expect_budget(a, MOMENTS_ROUTE_MATRIX, 8 * (23 * 61 * 2 + 23 * 23 + 23) + 23 * sizeof(long double));
+	expect_budget(g, MOMENTS_ROUTE_GRAM, 8 * (37 * 13 * 2 + 13 * 13 + 2 * 13));
+	a->has_missing = 1;
+	expect_budget(a, MOMENTS_ROUTE_PAIRWISE, 8 * (23 * 61 + 23 * 23));
+	a->has_missing = 0;
+	a->max_bytes = 8 * (23 * 61 * 2 + 23 * 23) - 1;
+	assert_int_equal(moments_covariance(a, &cov, &err), HC_ENOMEM);
+	assert_null(cov);
+	assert_memory_equal(err.message, "fixture: universe too large for its covariance matrix: ", 55);
+	a->max_bytes = 8 * (23 * 61 * 2 + 23 * 23);
+	assert_int_equal(moments_covariance(a, &cov, &err), HC_OK);
+	hc_free(cov);
+	fixture_free(a);
+	fixture_free(g);
+}
+
 /*
  * One minimum of common periods for every pairwise computation: 3, the
  * contract of docs/formats.md ("a pair with fewer than 3 common periods is
@@ -475,6 +524,7 @@ int main(void)
 		cmocka_unit_test(test_moments_allocation_failure),
 		cmocka_unit_test(test_moments_covariance_matrix),
 		cmocka_unit_test(test_moments_pairwise_minimum_periods),
+		cmocka_unit_test(test_moments_memory_budget),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -28,6 +28,8 @@ struct covmatrix {
 	size_t m;
 	char **ids;     /* m ids, owned */
 	double *a;      /* m*m, row-major, symmetric */
+	size_t max_bytes; /* the memory budget it was made under (memory.h; 0 =
+			   * from available memory), for later steps on it */
 };
 
 /*
@@ -50,6 +52,20 @@ int covmatrix_load_buffer(struct covmatrix **out, const char *name,
 			  struct hc_error *err);
 
 /*
+ * covmatrix_load and covmatrix_load_buffer within a memory budget of
+ * max_bytes (0 = from available memory, which the two above use): the
+ * m x m numbers are checked against it as soon as the header has given m,
+ * before they are allocated; HC_ENOMEM "PATH: covariance matrix of M ids
+ * too large: needs at least X MiB, budget Y MiB" (memory.h's
+ * hc_memory_check).  The result's max_bytes is max_bytes.
+ */
+int covmatrix_load_within(struct covmatrix **out, const char *path, double symmetry_tol,
+			  size_t max_bytes, struct hc_error *err);
+int covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
+				 const char *data, size_t len, double symmetry_tol,
+				 size_t max_bytes, struct hc_error *err);
+
+/*
  * The sample covariance matrix (divisor T-1) of u's returns, per period.
  * Complete data: centred returns through BLAS dsyrk.  With gaps
  * (u->has_missing): pairwise-complete covariances, each pair using its own
@@ -57,7 +73,10 @@ int covmatrix_load_buffer(struct covmatrix **out, const char *name,
  * the pair when n_ij < COVMATRIX_MIN_COMMON_PERIODS.  A pairwise matrix need
  * not be positive semi-definite (see covmatrix_repair_psd).
  * Memory: one m*t copy and the m*m result (complete); two m*t and three
- * m*m arrays (pairwise).  HC_ENOMEM when they cannot be allocated.
+ * m*m arrays (pairwise).  They are checked first against u->max_bytes
+ * (memory.h), HC_ENOMEM "SOURCE: universe too large for its covariance
+ * matrix: ..." when they do not fit; HC_ENOMEM too when they cannot be
+ * allocated.  The result's max_bytes is u->max_bytes.
  */
 int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
 			    struct hc_error *err);

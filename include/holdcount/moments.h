@@ -47,6 +47,12 @@ struct moments {
 
 /* From a universe: complete data uses the Gram route when T < M, else the
  * matrix route; data with gaps uses pairwise-complete covariances.
+ * Memory besides the universe: the centred copy (M x T) and the T x T Gram
+ * matrix, or the centred copy and MOMENTS_BLOCK_ROWS x M doubles (matrix
+ * route), or the M x M matrix (pairwise); checked first against the
+ * universe's budget u->max_bytes (memory.h's hc_memory_check), HC_ENOMEM
+ * "SOURCE: universe too large for its covariances: needs at least ..."
+ * when they do not fit.
  * HC_EDATA when fewer than 2 securities or periods, when a security has
  * zero variance, or (pairwise) when two securities share fewer than
  * COVMATRIX_MIN_COMMON_PERIODS (covmatrix.h) periods, with the message
@@ -64,8 +70,9 @@ int moments_from_universe_route(struct moments *mo, const struct universe *u,
  * triangles) into a new array *a, freed with hc_free: through dsyrk for
  * complete data; pairwise-complete (each pair over the periods both have,
  * which need not be positive semi-definite) when u->has_missing.  For the
- * matrix sampler and for audits.  Errors as moments_from_universe; *a is
- * NULL on error. */
+ * matrix sampler and for audits.  Errors as moments_from_universe (the
+ * budget counts the M x M result, and the centred copy for complete data);
+ * *a is NULL on error. */
 int moments_covariance(const struct universe *u, double **a, struct hc_error *err);
 
 /* From an M x M covariance matrix a (row-major, symmetric; only read).

@@ -68,7 +68,8 @@ static const struct cli_option universe_options[] = {
 	{ "delimiter", 0, CLI_STRING, UNI(delimiter), "CHAR",
 	  "field delimiter, ',' or ';'", NULL, "detected from the header" },
 	{ "max-memory", 0, CLI_COUNT, UNI(max_memory_mib), "MIB",
-	  "refuse inputs whose numbers need more than MIB mebibytes", NULL, "from available memory" },
+	  "refuse an input when its numbers, with the working copies made of them, would need more "
+	  "than MIB mebibytes", NULL, "80% of the memory available" },
 	{ "covariance", 0, CLI_FLAG, UNI(covariance), NULL,
 	  "the file is a covariance matrix (ids in the header row and first column), "
 	  "not a return history", NULL, NULL },

@@ -284,17 +284,23 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);
 
-/* Load a covariance-matrix CSV (--covariance): options that only describe
- * a return history are refused (HC_EUSAGE), the loader's errors printed,
- * and a matrix that is not positive semi-definite is HC_EDATA. */
+/* --max-memory in bytes (0 = from available memory); HC_EUSAGE (printed)
+ * when it overflows. */
+int cli_max_bytes(const char *cmd, const struct cli_universe *cu, size_t *bytes);
+
+/* Load a covariance-matrix CSV (--covariance) within cu's --max-memory:
+ * options that only describe a return history are refused (HC_EUSAGE),
+ * the loader's errors printed, and a matrix that is not positive
+ * semi-definite is HC_EDATA. */
 struct covmatrix;
-int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
-			struct covmatrix **out);
+int cli_load_covariance(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
+			const char *path, struct covmatrix **out);
 
 /* *psd = 1 when cm is positive semi-definite up to rounding in a printed
  * file (moves of the nearest PSD matrix within COVMATRIX_DEFAULT_SYMMETRY_TOL
- * relative to sqrt(a_ii a_jj)).  Prints its own errors. */
-int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd);
+ * relative to sqrt(a_ii a_jj)).  Its working copies are checked against
+ * cm->max_bytes first (HC_ENOMEM naming path).  Prints its own errors. */
+int cli_matrix_is_psd(const char *cmd, const char *path, const struct covmatrix *cm, int *psd);
 
 /* The holding counts: text (NULL = the default grid up to m) parsed and
  * checked against m securities (0 = unbounded).  Prints its error;

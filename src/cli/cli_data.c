@@ -39,10 +39,7 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 	uo->date_column = cu->date_column;
 	uo->id_column = cu->id_column;
 	uo->value_column = cu->value_column;
-	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, &uo->max_bytes))
-		return cli_usage_error(cmd, "--max-memory %zu MiB does not fit in this machine's address space",
-				       cu->max_memory_mib);
-	return HC_OK;
+	return cli_max_bytes(cmd, cu, &uo->max_bytes);
 }
 
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
@@ -91,11 +88,20 @@ int cli_add_scale(struct report *r, double periods_per_year, int annualised)
 	return rc ? rc : report_add_text(r, "annualisation", "annualisation", text);
 }
 
-/* Options that describe a return history and mean nothing for a matrix. */
+/* Options that describe a return history and mean nothing for a matrix
+ * (--max-memory applies to both). */
 static const char *const return_only_options[] = {
 	"prices", "log-returns", "percent", "missing", "min-coverage", "layout", "date-column",
-	"id-column", "value-column", "delimiter", "max-memory", NULL
+	"id-column", "value-column", "delimiter", NULL
 };
+
+int cli_max_bytes(const char *cmd, const struct cli_universe *cu, size_t *bytes)
+{
+	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, bytes))
+		return cli_usage_error(cmd, "--max-memory %zu MiB does not fit in this machine's address space",
+				       cu->max_memory_mib);
+	return HC_OK;
+}
 
 /*
  * cli_matrix_is_psd: a matrix whose eigenvalues are not all >= 0 gives some portfolio a
@@ -104,15 +110,21 @@ static const char *const return_only_options[] = {
  * covmatrix_repair_psd) and see how far it moved.  Moves within the
  * loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are rounding in
  * a printed file (a rank-deficient matrix printed to 9 digits) and pass.
+ * Memory: the copy, and covmatrix_repair_psd's eigenvectors and rebuilt
+ * matrix, three m x m arrays beside cm, checked against cm's budget first.
  */
-int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd)
+int cli_matrix_is_psd(const char *cmd, const char *path, const struct covmatrix *cm, int *psd)
 {
 	struct hc_error err;
 	size_t m = cm->m, i, j, bytes;
-	double *b, worst = 0.0;
+	double *b, worst = 0.0, mm = (double)m * (double)m * sizeof(double);
 	int changed = 0, rc;
 
 	hc_error_clear(&err);
+	if (hc_memory_check(cm->max_bytes, mm, 3 * mm, &err,
+			    "%s: covariance matrix of %zu securities too large to check for negative eigenvalues",
+			    path, m))
+		return cli_fail(cmd, &err);
 	if (hc_mul_size(m * m, sizeof *b, &bytes) || !(b = hc_malloc(bytes))) {
 		hc_error(&err, HC_ENOMEM, "out of memory checking the covariance matrix");
 		return cli_fail(cmd, &err);
@@ -133,11 +145,11 @@ int cli_matrix_is_psd(const char *cmd, const struct covmatrix *cm, int *psd)
 	return HC_OK;
 }
 
-int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
-			struct covmatrix **out)
+int cli_load_covariance(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
+			const char *path, struct covmatrix **out)
 {
 	struct hc_error err;
-	size_t i;
+	size_t i, max_bytes;
 	int rc, psd = 0;
 
 	*out = NULL;
@@ -145,11 +157,13 @@ int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *p
 		if (cli_given(a, return_only_options[i]))
 			return cli_usage_error(cmd, "--%s describes a return history and does not apply with --covariance",
 					       return_only_options[i]);
+	if ((rc = cli_max_bytes(cmd, cu, &max_bytes)))
+		return rc;
 	hc_error_clear(&err);
-	rc = covmatrix_load(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+	rc = covmatrix_load_within(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, max_bytes, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
-	rc = cli_matrix_is_psd(cmd, *out, &psd);
+	rc = cli_matrix_is_psd(cmd, path, *out, &psd);
 	if (rc == HC_OK && !psd) {
 		hc_error(&err, HC_EDATA, "%s: not a covariance matrix: it is not positive semi-definite "
 			 "(some portfolio of these securities would have a negative variance)", path);

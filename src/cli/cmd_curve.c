@@ -245,7 +245,7 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 		if (!(p > 0.0))
 			return cli_usage_error("curve", "--periods-per-year must be positive, found %g", p);
 	}
-	rc = cli_load_covariance("curve", a, src.path, &cm);
+	rc = cli_load_covariance("curve", &o->uni, a, src.path, &cm);
 	if (rc)
 		return rc;
 	src.m = cm->m;
@@ -274,7 +274,7 @@ static int pairwise_matrix(const struct universe *u, const char *path, struct co
 	rc = covmatrix_from_universe(u, cm, &err);
 	if (rc)
 		return cli_fail("curve", &err);
-	rc = cli_matrix_is_psd("curve", *cm, &psd);
+	rc = cli_matrix_is_psd("curve", path, *cm, &psd);
 	if (rc == HC_OK && !psd) {
 		hc_error(&err, HC_EDATA, "%s: the pairwise-complete covariances are not positive semi-definite, "
 			 "so no random portfolio can be drawn from them; use --paths 0 for the exact curve alone", path);

@@ -199,7 +199,7 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 	hc_error_clear(&err);
 	if (annualised && !(p > 0.0))
 		return cli_usage_error("describe", "--periods-per-year must be positive, found %g", p);
-	rc = cli_load_covariance("describe", a, path, &cm);
+	rc = cli_load_covariance("describe", &o->uni, a, path, &cm);
 	if (rc)
 		return rc;
 	rc = moments_from_matrix(&mo, cm->a, cm->m, &err);

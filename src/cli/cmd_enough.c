@@ -494,6 +494,7 @@ static int run_matrix(const struct enough_opts *o, const struct cli_args *a, con
 	struct rules_input in;
 	struct moments mo;
 	struct hc_error err;
+	size_t max_bytes;
 	int rc;
 
 	hc_error_clear(&err);
@@ -503,7 +504,9 @@ static int run_matrix(const struct enough_opts *o, const struct cli_args *a, con
 	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
 	if (!(e->ppy > 0))
 		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
-	rc = covmatrix_load(&cm, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+	if ((rc = cli_max_bytes("enough", &o->uni, &max_bytes)))
+		return rc;
+	rc = covmatrix_load_within(&cm, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, max_bytes, &err);
 	if (rc == HC_OK)
 		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
 	covmatrix_free(cm);
