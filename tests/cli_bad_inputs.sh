@@ -6,20 +6,25 @@
 # (the HC_* codes of include/holdcount/error.h) and the expected start of the
 # message.  A row fails when the status differs, when the first line of
 # stderr (less a leading "holdcount: " or "holdcount CMD: ") does not start
-# with the expected words, when a run takes longer than ROW_TIMEOUT, when a
-# run under --output {out} fails and leaves
-# the output file or its temporary behind, or when valgrind (the memcheck
-# label sets HOLDCOUNT_WRAPPER) reports an error.
+# with the expected words, when the standard output (or {out}) lacks the
+# expected text, when a run takes longer than ROW_TIMEOUT, when a run under
+# --output {out} fails and leaves the output file or its temporary behind,
+# when the row's file has changed afterwards (inputs are only read), or when
+# valgrind (the memcheck label sets HOLDCOUNT_WRAPPER) reports an error.
 #
 # Catalogue syntax (tab-separated; '#' starts a comment line):
 #   file       a name in tests/bad-inputs/, or gen:NAME for a file this script
 #              writes at run time (large ones are not committed), or
-#              gen:missing for a path that does not exist, or - for none
+#              gen:missing for a path that does not exist, or copy:NAME for
+#              a fresh scratch copy of tests/bad-inputs/NAME with a hard link
+#              NAME.hard and a symbolic link NAME.link beside it (for rows
+#              that try to write over their input), or - for none
 #   command    holdcount's arguments; {} is the file, {out} an output path in
-#              the scratch directory, {dir} the tests/bad-inputs directory
+#              the scratch directory, {dir} the tests/bad-inputs directory,
+#              {parent} the directory holding the file
 #   status     expected exit status
-#   message    expected start of the message, {} again standing for the
-#              file; "-" checks nothing (successful runs)
+#   message    expected start of the message, with {}, {out} and {parent}
+#              as in the command; "-" checks nothing (successful runs)
 #
 # Every command exists now: a row whose command the binary does not know
 # fails (it never skips).
@@ -101,25 +106,42 @@ command_available() {
 	[ "${have_command[$cmd]}" = 1 ]
 }
 
+# copy:NAME files: a fresh copy each time (a row that wrote over its input
+# must not spoil the next), with a hard link and a symbolic link to it.
+copy_input() {
+	local name=$1 d=$SCRATCH/gen/copy
+	mkdir -p "$d" && rm -f "$d/$name" "$d/$name.hard" "$d/$name.link" &&
+		cp "$DIR/$name" "$d/$name" && ln "$d/$name" "$d/$name.hard" &&
+		ln -s "$name" "$d/$name.link" && printf '%s\n' "$d/$name"
+}
+
+# A fingerprint of the row's input, to see that the run left it alone.
+fingerprint() {
+	[ -n "$1" ] && [ -f "$1" ] && cksum <"$1"
+}
+
 run_row() {
 	local lineno=$1 file=$2 command=$3 status=$4 message=$5
-	local path out="" rc first want args=() word
+	local path out="" rc first want args=() word before parent
 
 	case $file in
 	-) path="" ;;
 	gen:*) path=$(generate "${file#gen:}") || { fail "catalogue line $lineno: cannot generate $file"; return; } ;;
+	copy:*) path=$(copy_input "${file#copy:}") || { fail "catalogue line $lineno: cannot copy $file"; return; } ;;
 	*) path=$DIR/$file; [ -e "$path" ] || { fail "catalogue line $lineno: no file $path"; return; } ;;
 	esac
+	parent=$(dirname "${path:-.}")
+	before=$(fingerprint "$path")
 	read -r -a words <<<"$command"
 	if ! command_available "${words[0]}"; then
 		fail "catalogue line $lineno: the binary has no command '${words[0]}'"
 		return
 	fi
+	case $command in *'{out}'*) out=$SCRATCH/out-$lineno.txt; rm -f "$out" ;; esac
 	for word in "${words[@]}"; do
-		case $word in
-		*'{out}'*) out=$SCRATCH/out-$lineno.txt; rm -f "$out"; word=${word//'{out}'/$out} ;;
-		esac
+		word=${word//'{out}'/$out}
 		word=${word//'{dir}'/$DIR}
+		word=${word//'{parent}'/$parent}
 		args+=("${word//'{}'/$path}")
 	done
 	checked=$((checked + 1))
@@ -135,10 +157,15 @@ run_row() {
 	fi
 	first=$(grep -v '^==[0-9]*==' "$SCRATCH/stderr" | head -n 1 | sed -E 's/^holdcount( [a-z-]+)?: //')
 	want=${message//'{}'/$path}
+	want=${want//'{out}'/$out}
+	want=${want//'{parent}'/$parent}
 	if [ "$rc" != "$status" ]; then
 		fail "catalogue line $lineno ($file): holdcount ${args[*]}: exit status $rc, expected $status; stderr: $first"
 	elif [ "$message" != "-" ] && [ "${first:0:${#want}}" != "$want" ]; then
 		fail "catalogue line $lineno ($file): message '$first', expected it to start with '$want'"
+	fi
+	if [ "$(fingerprint "$path")" != "$before" ]; then
+		fail "catalogue line $lineno ($file): holdcount ${args[*]} changed its input $path"
 	fi
 	if [ -n "$out" ]; then
 		if [ "$rc" != 0 ] && [ -e "$out" ]; then
@@ -193,6 +220,21 @@ for args in "describe $ro" "describe --output $SCRATCH/ro-out.txt $ro"; do
 done
 after=$(stat -c '%Y %s' "$ro")$(sha256sum <"$ro")
 [ "$before" = "$after" ] || fail "read-only input: $ro changed ($before -> $after)"
+
+# An output that is a symbolic link is written through, as a shell's '>'
+# (open(2) following the link) would: the link stays, its target gets the
+# output, all or nothing.
+checked=$((checked + 1))
+mkdir -p "$SCRATCH/linked/real" && printf 'old\n' >"$SCRATCH/linked/real/out.txt" &&
+	ln -sfn real/out.txt "$SCRATCH/linked/out.lnk"
+"${WRAPPER[@]}" "$HOLDCOUNT" describe --format csv "$DIR/valid-small.csv" >"$SCRATCH/linked/want" 2>/dev/null
+"${WRAPPER[@]}" "$HOLDCOUNT" describe --format csv --output "$SCRATCH/linked/out.lnk" "$DIR/valid-small.csv" 2>"$SCRATCH/stderr"
+rc=$?
+if [ "$rc" != 0 ] || [ ! -L "$SCRATCH/linked/out.lnk" ] || [ "$(readlink "$SCRATCH/linked/out.lnk")" != real/out.txt ] ||
+	! cmp -s "$SCRATCH/linked/want" "$SCRATCH/linked/real/out.txt" || [ ! -s "$SCRATCH/linked/want" ]; then
+	fail "symbolic-link output: exit $rc; the link or its target is not as a write through the link leaves them: $(ls -l "$SCRATCH/linked" "$SCRATCH/linked/real" | tr '\n' ' ')"
+fi
+[ "$(ls -A "$SCRATCH/linked/real")" = out.txt ] || fail "symbolic-link output: temporaries left in $SCRATCH/linked/real"
 
 echo "cli_bad_inputs: $checked runs checked, $failed failed" >&2
 [ "$failed" = 0 ]

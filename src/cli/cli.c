@@ -4,11 +4,12 @@
  * The parser and the help printer walk the same tables (cli.h), which is
  * what keeps `--help`, `help COMMAND` and the behaviour in step.
  */
-#define _POSIX_C_SOURCE 200809L
+#define _XOPEN_SOURCE 700   /* realpath(3) */
 
 #include "cli.h"
 
 #include <errno.h>
+#include <limits.h>
 #include <math.h>
 #include <signal.h>
 #include <stdarg.h>
@@ -346,6 +347,123 @@ static int take_option(const struct cli_command *cmd, struct cli_args *a, void *
 	return HC_OK;
 }
 
+/* ---- inputs and outputs ---------------------------------------------------- */
+
+/* The files a command line names, by the option tables' conventions
+ * (cli.h): an option named "output" or "...-output" writes, an option
+ * whose value is a FILE reads, and so does every positional argument. */
+struct named_file {
+	const char *option;    /* "holdings" (--holdings), or NULL for a positional input */
+	const char *path;
+	int folder;            /* an output folder (metavar DIR) */
+};
+
+static int is_output_option(const struct cli_option *op)
+{
+	size_t n = strlen(op->name);
+
+	return op->kind == CLI_STRING &&
+	       (strcmp(op->name, "output") == 0 || (n > 7 && strcmp(op->name + n - 7, "-output") == 0));
+}
+
+static int is_input_option(const struct cli_option *op)
+{
+	return op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
+	       !is_output_option(op);
+}
+
+static void describe_file(char *buf, size_t size, const struct named_file *f)
+{
+	if (f->option)
+		snprintf(buf, size, "--%s '%s'", f->option, f->path);
+	else
+		snprintf(buf, size, "the input '%s'", f->path);
+}
+
+/* Is the existing file path inside the existing folder dir (after
+ * resolving links, "." and "..")? */
+static int inside_folder(const char *path, const char *dir)
+{
+	char rp[PATH_MAX], rd[PATH_MAX];
+	size_t n;
+
+	if (!realpath(path, rp) || !realpath(dir, rd))
+		return 0;
+	n = strlen(rd);
+	return strncmp(rp, rd, n) == 0 && (rp[n] == '/' || (n == 1 && rd[0] == '/'));
+}
+
+/* One output against one earlier-named file: a usage error naming both
+ * when they are the same file (or the input lies in the output folder). */
+static int check_pair(const struct cli_command *cmd, const struct named_file *out,
+		      const struct named_file *other, int other_is_output)
+{
+	char a[PATH_MAX + 64], b[PATH_MAX + 64];
+	struct hc_error err;
+	int same = 0;
+
+	if (out->folder) {
+		if (other_is_output || !inside_folder(other->path, out->path))
+			return HC_OK;
+		describe_file(a, sizeof a, other);
+		fprintf(stderr, "holdcount %s: %s is inside the report folder --output '%s', which this run "
+			"would replace; keep inputs outside it\n", cmd->name, a, out->path);
+		return HC_EUSAGE;
+	}
+	hc_error_clear(&err);
+	if (outfile_same_file(out->path, other->path, &same, &err) != HC_OK)
+		return cli_fail(cmd->name, &err);
+	if (!same)
+		return HC_OK;
+	describe_file(a, sizeof a, out);
+	describe_file(b, sizeof b, other);
+	fprintf(stderr, "holdcount %s: %s is the same file as %s; %s\n", cmd->name, a, b,
+		other_is_output ? "each output needs a file of its own"
+				: "writing it would replace an input, so choose another output file");
+	return HC_EUSAGE;
+}
+
+/*
+ * No output may be the same file as an input or as another output, and no
+ * input may lie inside an output folder: the output would replace the data
+ * it was computed from (a run of `describe --output u.csv u.csv` once did).
+ */
+static int check_files(const struct cli_command *cmd, const struct cli_args *a, void *opts)
+{
+	struct named_file in[16], out[4];
+	const struct cli_group_use *g;
+	const struct cli_option *op;
+	size_t nin = 0, nout = 0, i, j;
+	int rc;
+
+	for (i = 0; i < a->npositional && nin < 16; i++)
+		in[nin++] = (struct named_file){ NULL, a->positional[i], 0 };
+	for (g = cmd->groups; g && g->group; g++)
+		for (op = g->group->options; op->name; op++) {
+			const char *v;
+
+			if (!is_output_option(op) && !is_input_option(op))
+				continue;
+			v = *(const char *const *)((const char *)opts + g->offset + op->offset);
+			if (!v || !*v || strcmp(v, "-") == 0)
+				continue;
+			if (is_output_option(op) && nout < 4)
+				out[nout++] = (struct named_file){ op->name, v,
+					op->metavar && strcmp(op->metavar, "DIR") == 0 };
+			else if (is_input_option(op) && nin < 16)
+				in[nin++] = (struct named_file){ op->name, v, 0 };
+		}
+	for (i = 0; i < nout; i++) {
+		for (j = 0; j < nin; j++)
+			if ((rc = check_pair(cmd, &out[i], &in[j], 0)) != HC_OK)
+				return rc;
+		for (j = 0; j < i; j++)
+			if ((rc = check_pair(cmd, &out[i], &out[j], 1)) != HC_OK)
+				return rc;
+	}
+	return HC_OK;
+}
+
 static int is_help(const char *arg)
 {
 	return strcmp(arg, "-h") == 0 || strcmp(arg, "--help") == 0;
@@ -390,6 +508,8 @@ int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, 
 		rc = usage_fail(cmd, "missing %s", cmd->usage);
 	if (rc == HC_OK && a->npositional > cmd->max_positional)
 		rc = usage_fail(cmd, "unexpected argument '%s'", a->positional[cmd->max_positional]);
+	if (rc == HC_OK)
+		rc = check_files(cmd, a, opts);
 	if (rc != HC_OK)
 		cli_args_release(a);
 	return rc;

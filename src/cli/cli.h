@@ -73,6 +73,14 @@
  * CLI_FRACTION double ("10%" or "0.10" both give 0.10), CLI_CHOICE int
  * (index into the option's choices), CLI_U64 uint64_t.  A repeated option:
  * the last one wins.  cli_given() says whether an option was on the line.
+ *
+ * Files: a CLI_STRING option named "output" or "...-output" names a file
+ * (metavar FILE) or folder (metavar DIR) the command writes; any other
+ * CLI_STRING option with metavar FILE, and every positional argument, names
+ * a file it reads.  cli_parse refuses (HC_EUSAGE, naming both) an output
+ * that is the same file as an input or as another output, and an input
+ * inside an output folder, so a new command gets the check by following
+ * these names.
  */
 #ifndef HOLDCOUNT_CLI_H
 #define HOLDCOUNT_CLI_H
