@@ -25,6 +25,8 @@
 #   status     expected exit status
 #   message    expected start of the message, with {}, {out} and {parent}
 #              as in the command; "-" checks nothing (successful runs)
+#   output     optional: text the standard output (or {out}, when the
+#              command writes there) must contain, placeholders as above
 #
 # Every command exists now: a row whose command the binary does not know
 # fails (it never skips).
@@ -121,7 +123,7 @@ fingerprint() {
 }
 
 run_row() {
-	local lineno=$1 file=$2 command=$3 status=$4 message=$5
+	local lineno=$1 file=$2 command=$3 status=$4 message=$5 expect_out=$6
 	local path out="" rc first want args=() word before parent
 
 	case $file in
@@ -164,6 +166,12 @@ run_row() {
 	elif [ "$message" != "-" ] && [ "${first:0:${#want}}" != "$want" ]; then
 		fail "catalogue line $lineno ($file): message '$first', expected it to start with '$want'"
 	fi
+	if [ -n "$expect_out" ]; then
+		want=${expect_out//'{}'/$path}
+		if ! grep -qF -- "$want" "${out:-$SCRATCH/stdout}" 2>/dev/null; then
+			fail "catalogue line $lineno ($file): output lacks '$want'"
+		fi
+	fi
 	if [ "$(fingerprint "$path")" != "$before" ]; then
 		fail "catalogue line $lineno ($file): holdcount ${args[*]} changed its input $path"
 	fi
@@ -181,13 +189,13 @@ run_row() {
 }
 
 lineno=0
-while IFS=$'\t' read -r file command status message || [ -n "$file" ]; do
+while IFS=$'\t' read -r file command status message output || [ -n "$file" ]; do
 	lineno=$((lineno + 1))
 	case $file in ''|'#'*) continue ;; esac
 	if [ -z "$command" ] || [ -z "$status" ] || [ -z "$message" ]; then
-		fail "catalogue line $lineno: needs four tab-separated columns"; continue
+		fail "catalogue line $lineno: needs four or five tab-separated columns"; continue
 	fi
-	run_row "$lineno" "$file" "$command" "$status" "$message"
+	run_row "$lineno" "$file" "$command" "$status" "$message" "$output"
 done <"$DIR/catalogue.tsv"
 
 # Inputs are opened read-only and never changed: a read-only copy of a valid
