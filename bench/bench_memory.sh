@@ -7,7 +7,10 @@
 # Z00001..; about 9 bytes a cell, so 5000 x 5000 is about 230 MB) into
 # BENCH_TMP (default build/bench-tmp), runs `holdcount describe` on it under
 # /usr/bin/time -v, and prints the peak resident set size next to M*T*8
-# bytes (the numbers as doubles).  The target is a ratio under 3.  It then
+# bytes (the numbers as doubles).  The target is a ratio under 3.  The
+# loader alone is measured the same way through bench/bench_load.c (built
+# here against the build's libholdcount.a, as bench_curve.sh builds its
+# driver).  It then
 # checks that the same file is refused under a memory budget smaller than
 # its numbers (--max-memory), with exit status 5 and a message instead of
 # an out-of-memory kill.  Figures go in docs/reliability.md with the command.
@@ -51,6 +54,17 @@ printf 'universe %sx%s: file %s bytes, numbers %s bytes as doubles\n' "$M" "$T" 
 printf 'describe: peak RSS %s kB (%.1f MB), %s x the numbers (target < 3), wall %s\n' \
 	"$rss_kb" "$(awk -v r="$rss_kb" 'BEGIN { print r / 1024 }')" "$ratio" "$wall"
 
+# The loader alone (bench/bench_load.c).
+gcc -O2 -std=c11 -Iinclude bench/bench_load.c "$(dirname "$HOLDCOUNT")/libholdcount.a" \
+	-fopenmp -lgsl -lopenblas -lcsv -lcjson -lm -o "$TMP/bench_load"
+/usr/bin/time -v "$TMP/bench_load" "$FILE" >/dev/null 2>"$TMP/load.txt" || {
+	echo "bench_memory: bench_load failed:" >&2; cat "$TMP/load.txt" >&2; exit 1; }
+rss_load=$(sed -n 's/^[[:space:]]*Maximum resident set size (kbytes): //p' "$TMP/load.txt")
+wall_load=$(sed -n 's/^[[:space:]]*Elapsed (wall clock) time (h:mm:ss or m:ss): //p' "$TMP/load.txt")
+printf 'loading alone (bench_load): peak RSS %s kB (%.1f MB), %s x the numbers, wall %s\n' \
+	"$rss_load" "$(awk -v r="$rss_load" 'BEGIN { print r / 1024 }')" \
+	"$(awk -v r="$rss_load" -v n="$numbers" 'BEGIN { printf "%.2f", r * 1024 / n }')" "$wall_load"
+
 # A budget below the numbers' size must be refused cleanly (exit 5).
 budget=$((numbers / 2 / 1048576))   # MiB
 set +e
@@ -60,7 +74,19 @@ set -e
 msg=$(grep -v -E '^\s|^Command' "$TMP/budget.txt" | head -n 1)
 rss2=$(sed -n 's/^[[:space:]]*Maximum resident set size (kbytes): //p' "$TMP/budget.txt")
 printf 'describe --max-memory %s: exit %s, peak RSS %s kB, message: %s\n' "$budget" "$rc" "$rss2" "$msg"
+# A budget the loading fits (twice the numbers) but the averages' working
+# arrays do not (a centred copy, and the covariance row blocks or the Gram
+# matrix) must be refused too, before they are allocated.
+budget2=$(((2 * numbers + 1048575) / 1048576 + 2))   # MiB
+set +e
+/usr/bin/time -v "$HOLDCOUNT" describe --max-memory "$budget2" "$FILE" >/dev/null 2>"$TMP/budget2.txt"
+rc2=$?
+set -e
+msg2=$(grep -v -E '^\s|^Command' "$TMP/budget2.txt" | head -n 1)
+rss3=$(sed -n 's/^[[:space:]]*Maximum resident set size (kbytes): //p' "$TMP/budget2.txt")
+printf 'describe --max-memory %s: exit %s, peak RSS %s kB, message: %s\n' "$budget2" "$rc2" "$rss3" "$msg2"
 status=0
 [ "$rc" = 5 ] || { echo "bench_memory: expected exit status 5 under --max-memory $budget" >&2; status=1; }
+[ "$rc2" = 5 ] || { echo "bench_memory: expected exit status 5 under --max-memory $budget2" >&2; status=1; }
 awk -v r="$ratio" 'BEGIN { exit !(r < 3) }' || { echo "bench_memory: peak RSS ratio $ratio is not under 3" >&2; status=1; }
 exit $status

@@ -55,6 +55,7 @@ static void mirror_upper(double *a, size_t m)
 
 struct reader {
 	const char *name;
+	size_t max_bytes;
 	struct covmatrix *c;
 	size_t nids, cap_ids;
 	size_t rows;          /* data rows read */
@@ -111,6 +112,11 @@ static int header_done(struct reader *r, struct hc_error *err)
 			"%s:1:%zu: security id '%s' differs only in case or surrounding spaces from '%s' in column %zu; expected distinct ids",
 			r->name, b + 2, c->ids[b], c->ids[a], a + 2);
 	}
+	/* The header alone sets the size: check it before touching memory. */
+	rc = hc_memory_check(r->max_bytes, 0.0, (double)c->m * (double)c->m * sizeof(double), err,
+			     "%s: covariance matrix of %zu ids too large", r->name, c->m);
+	if (rc != HC_OK)
+		return rc;
 	if (hc_mul_size(c->m, c->m, &n) || !(c->a = hc_reallocarray(NULL, n, sizeof(double))))
 		return hc_error(err, HC_ENOMEM,
 			"%s: out of memory for a %zu x %zu covariance matrix", r->name, c->m, c->m);
@@ -202,7 +208,7 @@ static int symmetrize(struct reader *r, double tol, struct hc_error *err)
 }
 
 static int load(struct covmatrix **out, const char *name, const char *path,
-		const char *data, size_t len, double tol, struct hc_error *err)
+		const char *data, size_t len, double tol, size_t max_bytes, struct hc_error *err)
 {
 	struct csvread_handler h;
 	struct reader r;
@@ -214,9 +220,11 @@ static int load(struct covmatrix **out, const char *name, const char *path,
 			"symmetry tolerance %g is out of range; expected a number >= 0", tol);
 	memset(&r, 0, sizeof r);
 	r.name = name;
+	r.max_bytes = max_bytes;
 	r.c = hc_calloc(1, sizeof *r.c);
 	if (!r.c)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", name);
+	r.c->max_bytes = max_bytes;
 	h.field = on_field;
 	h.record = on_record;
 	h.ctx = &r;
@@ -240,14 +248,27 @@ static int load(struct covmatrix **out, const char *name, const char *path,
 int covmatrix_load(struct covmatrix **out, const char *path, double symmetry_tol,
 		   struct hc_error *err)
 {
-	return load(out, path, path, NULL, 0, symmetry_tol, err);
+	return load(out, path, path, NULL, 0, symmetry_tol, 0, err);
 }
 
 int covmatrix_load_buffer(struct covmatrix **out, const char *name,
 			  const char *data, size_t len, double symmetry_tol,
 			  struct hc_error *err)
 {
-	return load(out, name, NULL, data, len, symmetry_tol, err);
+	return load(out, name, NULL, data, len, symmetry_tol, 0, err);
+}
+
+int covmatrix_load_within(struct covmatrix **out, const char *path, double symmetry_tol,
+			  size_t max_bytes, struct hc_error *err)
+{
+	return load(out, path, path, NULL, 0, symmetry_tol, max_bytes, err);
+}
+
+int covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
+				 const char *data, size_t len, double symmetry_tol,
+				 size_t max_bytes, struct hc_error *err)
+{
+	return load(out, name, NULL, data, len, symmetry_tol, max_bytes, err);
 }
 
 /* ---- from returns ---------------------------------------------------------- */
@@ -274,6 +295,7 @@ static struct covmatrix *alloc_like(const struct universe *u)
 	}
 	for (i = 0; i < n; i++)
 		c->a[i] = 0;
+	c->max_bytes = u->max_bytes;
 	return c;
 }
 
@@ -360,16 +382,9 @@ static int pairwise_cov(const struct universe *u, double *a, struct hc_error *er
 		for (j = i; j < m; j++) {
 			double n = cnt[i * m + j];
 
-			if (n < COVMATRIX_MIN_COMMON_PERIODS) {
-				rc = i == j
-				   ? hc_error(err, HC_EDATA,
-					"%s: security '%s' has only %.0f periods; expected at least %d for a covariance",
-					u->source ? u->source : "universe", u->ids[i], n, COVMATRIX_MIN_COMMON_PERIODS)
-				   : hc_error(err, HC_EDATA,
-					"%s: securities '%s' and '%s' have only %.0f common periods; expected at least %d for a pairwise covariance",
-					u->source ? u->source : "universe", u->ids[i], u->ids[j], n, COVMATRIX_MIN_COMMON_PERIODS);
+			/* n counts 0/1 indicators exactly (integers below 2^53) */
+			if ((rc = covmatrix_check_overlap(u, i, j, (size_t)n, err)) != HC_OK)
 				goto cleanup;
-			}
 			a[i * m + j] = (a[i * m + j] - sx[i * m + j] * sx[j * m + i] / n) / (n - 1);
 		}
 	}
@@ -382,10 +397,39 @@ cleanup:
 	return rc;
 }
 
+/* The id of security i, or "#i+1" for a universe built without ids. */
+static const char *id_or_number(const struct universe *u, size_t i, char *buf, size_t len)
+{
+	if (u->ids && u->ids[i])
+		return u->ids[i];
+	snprintf(buf, len, "#%zu", i + 1);
+	return buf;
+}
+
+int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
+			    struct hc_error *err)
+{
+	const char *src = u->source ? u->source : "universe";
+	char b1[32], b2[32];
+
+	if (n >= COVMATRIX_MIN_COMMON_PERIODS)
+		return HC_OK;
+	if (i == j)
+		return hc_error(err, HC_EDATA,
+			"%s: security '%s' has only %zu period%s; expected at least %d for a covariance",
+			src, id_or_number(u, i, b1, sizeof b1), n, n == 1 ? "" : "s",
+			COVMATRIX_MIN_COMMON_PERIODS);
+	return hc_error(err, HC_EDATA,
+		"%s: securities '%s' and '%s' have only %zu common period%s; expected at least %d for a pairwise covariance",
+		src, id_or_number(u, i, b1, sizeof b1), id_or_number(u, j, b2, sizeof b2),
+		n, n == 1 ? "" : "s", COVMATRIX_MIN_COMMON_PERIODS);
+}
+
 int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
 			    struct hc_error *err)
 {
 	struct covmatrix *c;
+	double mm, mt;
 	int rc;
 
 	*out = NULL;
@@ -393,6 +437,14 @@ int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
 		return hc_error(err, HC_EDATA,
 			"a covariance matrix needs at least 1 security and 2 periods; found %zu and %zu",
 			u->m, u->t);
+	/* the result, and the centred copy (complete) or pairwise_cov's arrays */
+	mm = (double)u->m * (double)u->m;
+	mt = (double)u->m * (double)u->t;
+	rc = hc_memory_check(u->max_bytes, mt * sizeof(double),
+			     (u->has_missing ? 3 * mm + 2 * mt : mm + mt) * sizeof(double), err,
+			     "%s: universe too large for its covariance matrix", u->source ? u->source : "universe");
+	if (rc != HC_OK)
+		return rc;
 	c = alloc_like(u);
 	if (!c)
 		return hc_error(err, HC_ENOMEM, "out of memory for a %zu x %zu covariance matrix", u->m, u->m);

@@ -1,8 +1,15 @@
+#define _GNU_SOURCE   /* sysconf(_SC_AVPHYS_PAGES) */
 #include "holdcount/memory.h"
 
+#include <math.h>
+#include <stdarg.h>
 #include <stdint.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
+
+#include "holdcount/error.h"
 
 static long fail_after = -1;
 static unsigned long alloc_count;
@@ -101,4 +108,52 @@ char *hc_strndup(const char *s, size_t n)
 char *hc_strdup(const char *s)
 {
 	return hc_strndup(s, strlen(s));
+}
+
+size_t hc_memory_available(void)
+{
+	FILE *fp = fopen("/proc/meminfo", "r");
+	char line[256];
+	unsigned long long kb = 0;
+	double bytes = 0;
+
+	if (fp) {
+		while (fgets(line, sizeof line, fp))
+			if (sscanf(line, "MemAvailable: %llu kB", &kb) == 1)
+				break;
+		fclose(fp);
+	}
+	if (kb)
+		bytes = (double)kb * 1024.0;
+	else
+		bytes = (double)sysconf(_SC_AVPHYS_PAGES) * (double)sysconf(_SC_PAGESIZE);
+	bytes *= HC_MEMORY_SHARE;
+	if (bytes <= 0 || bytes >= (double)SIZE_MAX)
+		return SIZE_MAX;
+	return (size_t)bytes;
+}
+
+int hc_memory_check(size_t max_bytes, double held, double need, struct hc_error *err,
+		    const char *prefix, ...)
+{
+	double budget, mib = 1024.0 * 1024.0;
+	char what[HC_ERROR_MESSAGE_MAX];
+	va_list ap;
+
+	if (max_bytes) {
+		budget = (double)max_bytes;
+	} else {
+		size_t avail = hc_memory_available();
+
+		if (avail == SIZE_MAX)
+			return HC_OK;
+		budget = held + (double)avail;
+	}
+	if (held + need <= budget)
+		return HC_OK;
+	va_start(ap, prefix);
+	vsnprintf(what, sizeof what, prefix, ap);
+	va_end(ap);
+	return hc_error(err, HC_ENOMEM, "%s: needs at least %.1f MiB, budget %.1f MiB", what,
+			ceil(10 * (held + need) / mib) / 10, floor(10 * budget / mib) / 10);
 }

@@ -5,7 +5,8 @@
  *   Gram     complete data, T < M: V, r_i and C from column sums in O(MT),
  *            S + Q = ||A||_F^2 = ||X X^T||_F^2 / (T-1)^2 from the T x T Gram
  *            matrix in O(T^2 M); no M x M matrix is formed.
- *   matrix   complete data, T >= M: A = X^T X/(T-1) by BLAS dsyrk, O(M^2 T).
+ *   matrix   complete data, T >= M: A = X^T X/(T-1) by BLAS dgemm in blocks
+ *            of MOMENTS_BLOCK_ROWS rows, O(M^2 T), never held whole.
  *   pairwise data with gaps: each covariance over the periods both
  *            securities have (pairwise-complete), O(M^2 T).
  * Sums over M or M^2 terms are accumulated in long double so that the
@@ -20,6 +21,7 @@
 
 #include <gsl/gsl_cblas.h>
 
+#include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 
 /*
@@ -276,34 +278,130 @@ cleanup:
 	return rc;
 }
 
-/* Matrix route: A = Xc Xc^T/(T-1) through dsyrk, then the sums. */
-static int full_matrix(const struct universe *u, const double *xc, double **out,
-		       struct hc_error *err);
+static void gemm_nt(size_t n, size_t w, size_t k, double alpha, const double *a,
+		    const double *b, size_t ld, double *c)
+{
+	int saved = openblas_get_num_threads();
 
+	openblas_set_num_threads(1);
+	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)n, (int)w, (int)k, alpha,
+		    a, (int)ld, b, (int)ld, 0.0, c, (int)w);
+	openblas_set_num_threads(saved);
+}
+
+/* Add the entries right of the diagonal in rows i0..i0+nb of A (block
+ * row blk: nb x (m - i0), column j at j - i0) to the row sums r, to Q and
+ * to the correlation sum R, each twice for its mirror image below. */
+static int block_sums(const struct universe *u, const double *blk, size_t i0, size_t nb,
+		      const double *v, long double *r, long double *Q, long double *R,
+		      struct hc_error *err)
+{
+	size_t m = u->m, w = m - i0, i, j;
+	char b1[32], b2[32];
+
+	for (i = i0; i < i0 + nb; i++) {
+		const double *row = blk + (i - i0) * w;
+		long double ri = 0, q = 0, rr = 0;
+
+		for (j = i + 1; j < m; j++) {
+			double c = row[j - i0];
+			if (!isfinite(c))
+				return hc_error(err, HC_EDATA,
+						"the covariance of securities '%s' and '%s' is not a finite number",
+						security_name(u, i, b1, sizeof b1), security_name(u, j, b2, sizeof b2));
+			ri += c;
+			r[j] += c;
+			q += (long double)c * c;
+			rr += c / sqrtl((long double)v[i] * v[j]);
+		}
+		r[i] += ri;
+		*Q += 2.0L * q;
+		*R += 2.0L * rr;
+	}
+	return HC_OK;
+}
+
+/*
+ * Matrix route, in row blocks, so that no M x M matrix is held: the
+ * variances v_i = x_i.x_i/(T-1) come first (O(MT)); then each block of
+ * MOMENTS_BLOCK_ROWS rows i0.. of A right of column i0, Xc[i0..] Xc[i0..M]^T
+ * /(T-1), is one BLAS dgemm into a buffer of MOMENTS_BLOCK_ROWS x M
+ * doubles, whose entries right of the diagonal (the upper triangle) feed
+ * the row sums r_i and r_j, Q and the correlation sum.  V, S, W, Z and C
+ * then follow from v and r.  Work: about M^2 T multiply-adds as for
+ * dsyrk on the whole matrix; memory: the centred copy and
+ * (MOMENTS_BLOCK_ROWS + 3) M numbers besides the universe.
+ */
 static int route_matrix(struct moments *mo, const struct universe *u, const double *xc,
 			struct hc_error *err)
 {
-	double *a;
-	int rc;
+	size_t m = u->m, t = u->t, b = m < MOMENTS_BLOCK_ROWS ? m : MOMENTS_BLOCK_ROWS, i, i0, n;
+	double d = (double)(t - 1), *v, *blk = NULL;
+	long double *r, V = 0, C = 0, S = 0, Q = 0, W = 0, Z = 0, R = 0;
+	char buf[32];
+	int rc = HC_OK;
 
-	if ((rc = full_matrix(u, xc, &a, err)))
-		return rc;
-	rc = sums_from_matrix(mo, a, u->m, err);
-	hc_free(a);
+	v = hc_malloc(m * sizeof *v);
+	r = hc_calloc(m, sizeof *r);
+	if (!v || !r || hc_mul_size(b, m, &n) || !(blk = hc_malloc(n * sizeof *blk))) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the covariance blocks of %zu securities", m);
+		goto cleanup;
+	}
+	for (i = 0; i < m; i++) {
+		v[i] = dot(xc + i * t, xc + i * t, t) / d;
+		if (!isfinite(v[i])) {
+			rc = hc_error(err, HC_EDATA, "the variance of security '%s' is not a finite number",
+				      security_name(u, i, buf, sizeof buf));
+			goto cleanup;
+		}
+	}
+	for (i0 = 0; i0 < m; i0 += b) {
+		size_t nb = m - i0 < b ? m - i0 : b;
+
+		gemm_nt(nb, m - i0, t, 1.0 / d, xc + i0 * t, xc + i0 * t, t, blk);
+		if ((rc = block_sums(u, blk, i0, nb, v, r, &Q, &R, err)) != HC_OK)
+			goto cleanup;
+	}
+	for (i = 0; i < m; i++) {
+		V += v[i];
+		S += (long double)v[i] * v[i];
+		W += v[i] * r[i];
+		Z += r[i] * r[i];
+		C += r[i];
+	}
+	mo->has_spread = 1;
+	mo->has_correlation = 1;
+	mo->sum_var = (double)V;
+	mo->sum_cov = (double)C;
+	mo->sum_var2 = (double)S;
+	mo->sum_cov2 = (double)Q;
+	mo->sum_var_rowcov = (double)W;
+	mo->sum_rowcov2 = (double)Z;
+	mo->average_correlation = (double)(R / ((long double)m * (m - 1)));
+	finish(mo);
+cleanup:
+	hc_free(v);
+	hc_free(r);
+	hc_free(blk);
 	return rc;
 }
 
 /*
- * Pairwise-complete covariance of securities i and j: means and products
- * over the periods where both are present (the convention of pandas'
- * DataFrame.cov and R's use = "pairwise.complete.obs"), divisor n_ij - 1.
- * Also the overlap variances, for the pairwise correlation.
+ * Pairwise-complete covariance of securities i and j of u: means and
+ * products over the periods where both are present (the convention of
+ * pandas' DataFrame.cov and R's use = "pairwise.complete.obs"), divisor
+ * n_ij - 1.  Also the overlap variances, for the pairwise correlation.
+ * Fewer common periods than covmatrix.h's minimum is HC_EDATA from the
+ * routine covmatrix_from_universe uses too, so both refuse the same data
+ * with the same message.
  */
-static int pair_cov(const double *x, const double *y, size_t t,
-		    double *cov, double *vx, double *vy)
+static int pair_cov(const struct universe *u, size_t i, size_t j,
+		    double *cov, double *vx, double *vy, struct hc_error *err)
 {
+	const double *x = u->x + i * u->t, *y = u->x + j * u->t;
 	long double mx = 0, my = 0, sxy = 0, sxx = 0, syy = 0;
-	size_t k, n = 0;
+	size_t k, n = 0, t = u->t;
+	int rc;
 
 	for (k = 0; k < t; k++)
 		if (!isnan(x[k]) && !isnan(y[k])) {
@@ -311,8 +409,8 @@ static int pair_cov(const double *x, const double *y, size_t t,
 			my += y[k];
 			n++;
 		}
-	if (n < 2)
-		return -1;
+	if ((rc = covmatrix_check_overlap(u, i, j, n, err)) != HC_OK)
+		return rc;
 	mx /= n;
 	my /= n;
 	for (k = 0; k < t; k++)
@@ -324,7 +422,7 @@ static int pair_cov(const double *x, const double *y, size_t t,
 	*cov = (double)(sxy / (n - 1));
 	*vx = (double)(sxx / (n - 1));
 	*vy = (double)(syy / (n - 1));
-	return 0;
+	return HC_OK;
 }
 
 /* The pairwise-complete matrix into a new *out, and the sum of the
@@ -332,7 +430,7 @@ static int pair_cov(const double *x, const double *y, size_t t,
 static int pairwise_matrix(const struct universe *u, double **out, long double *rsum,
 			   struct hc_error *err)
 {
-	size_t m = u->m, t = u->t, i, j, n;
+	size_t m = u->m, i, j, n;
 	double *a, cov, vx, vy;
 	long double R = 0;
 	char b1[32], b2[32];
@@ -341,23 +439,24 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	for (i = 0; i < m; i++) {
-		const double *x = u->x + i * t;
-		int few = pair_cov(x, x, t, &cov, &vx, &vy);
-		if (few || !(cov > 0)) {
+		int rc = pair_cov(u, i, i, &cov, &vx, &vy, err);
+		if (rc || !(cov > 0)) {
 			hc_free(a);
-			return hc_error(err, HC_EDATA, "security '%s' has %s",
-					security_name(u, i, b1, sizeof b1),
-					few ? "fewer than two periods" : "zero variance");
+			return rc ? rc : hc_error(err, HC_EDATA, "security '%s' has zero variance",
+						  security_name(u, i, b1, sizeof b1));
 		}
 		a[i * m + i] = cov;
 	}
 	for (i = 0; i < m; i++)
 		for (j = i + 1; j < m; j++) {
-			if (pair_cov(u->x + i * t, u->x + j * t, t, &cov, &vx, &vy) || !(vx > 0) || !(vy > 0)) {
+			int rc = pair_cov(u, i, j, &cov, &vx, &vy, err);
+			if (rc || !(vx > 0) || !(vy > 0)) {
+				const char *ni = security_name(u, i, b1, sizeof b1);
+				const char *nj = security_name(u, j, b2, sizeof b2);
 				hc_free(a);
-				return hc_error(err, HC_EDATA,
-						"securities '%s' and '%s' share too few periods for a covariance",
-						security_name(u, i, b1, sizeof b1), security_name(u, j, b2, sizeof b2));
+				return rc ? rc : hc_error(err, HC_EDATA,
+						"securities '%s' and '%s': '%s' does not vary over their common periods, "
+						"so they have no correlation", ni, nj, vx > 0 ? nj : ni);
 			}
 			a[i * m + j] = a[j * m + i] = cov;
 			R += 2.0L * cov / sqrtl((long double)vx * vy);
@@ -401,6 +500,35 @@ static int full_matrix(const struct universe *u, const double *xc, double **out,
 	return HC_OK;
 }
 
+/*
+ * The memory budget (memory.h), checked before anything is allocated: the
+ * universe's numbers stay held while need more bytes are made.  The sizes
+ * are those of the allocations of each route.
+ */
+static int check_budget(const struct universe *u, double need, const char *what,
+			struct hc_error *err)
+{
+	double held = (double)u->m * (double)u->t * sizeof(double);
+
+	return hc_memory_check(u->max_bytes, held, need, err, "%s: universe too large for its %s",
+			       u->source ? u->source : "universe", what);
+}
+
+static double route_bytes(const struct universe *u, int route)
+{
+	double m = (double)u->m, t = (double)u->t;
+	double b = m < MOMENTS_BLOCK_ROWS ? m : MOMENTS_BLOCK_ROWS;
+
+	switch (route) {
+	case MOMENTS_ROUTE_GRAM:    /* centred copy, T x T Gram matrix, two T-vectors */
+		return (m * t + t * t + 2 * t) * sizeof(double);
+	case MOMENTS_ROUTE_MATRIX:  /* centred copy, one block of rows, v, and r in long double */
+		return (m * t + b * m + m) * sizeof(double) + m * sizeof(long double);
+	default:                    /* pairwise: the M x M matrix */
+		return m * m * sizeof(double);
+	}
+}
+
 static int check_shape(const struct universe *u, struct hc_error *err)
 {
 	if (u->m < 2 || u->t < 2)
@@ -420,6 +548,10 @@ int moments_covariance(const struct universe *u, double **a, struct hc_error *er
 
 	*a = NULL;
 	if ((rc = check_shape(u, err)))
+		return rc;
+	/* the M x M result, and for complete data the centred copy */
+	if ((rc = check_budget(u, ((double)u->m * u->m + (u->has_missing ? 0.0 : (double)u->m * u->t))
+				      * sizeof(double), "covariance matrix", err)))
 		return rc;
 	if (u->has_missing)
 		return pairwise_matrix(u, a, &R, err);
@@ -444,6 +576,8 @@ int moments_from_universe_route(struct moments *mo, const struct universe *u,
 		return hc_error(err, HC_EUSAGE, "moments route %d is not one computed from returns", route);
 	if (u->has_missing && route != MOMENTS_ROUTE_PAIRWISE)
 		return hc_error(err, HC_EUSAGE, "data with gaps needs pairwise-complete covariances");
+	if ((rc = check_budget(u, route_bytes(u, route), "covariances", err)))
+		return rc;
 	mo->m = u->m;
 	mo->route = route;
 	if (route == MOMENTS_ROUTE_PAIRWISE) {

@@ -7,6 +7,10 @@
  * The data are fsync'ed before the rename so that a crash cannot leave the
  * new name pointing at an empty file (the ext4 delayed-allocation problem).
  *
+ * A symbolic link given as the output is written through: the temporary is
+ * made beside the link's target and renamed over the target, so the link
+ * stays a link (as it would for a plain open(2) of the name).
+ *
  * The names of open temporaries are kept in a fixed static table of plain
  * char arrays, so a signal handler can read and unlink them without
  * touching the heap (unlink(2) is async-signal-safe).
@@ -32,6 +36,9 @@
 #endif
 
 #define OUTFILE_SLOTS 16
+/* Symbolic links followed in a row before giving up with ELOOP: the
+ * kernel's own limit (path_resolution(7)). */
+#define OUTFILE_MAX_LINKS 40
 
 static char pending_name[OUTFILE_SLOTS][PATH_MAX];
 static volatile sig_atomic_t pending_used[OUTFILE_SLOTS];
@@ -103,6 +110,128 @@ static char *temp_template(const char *path)
 	return t;
 }
 
+/*
+ * Follow path while it names a symbolic link, so that output replaces the
+ * file the link points at and the link itself stays, as writing through
+ * open(2) would.  A relative target is read from the link's directory.
+ * *out is a new string: the last name reached, which exists as no link or
+ * does not exist yet (a dangling link's target is created).  0 or an errno
+ * (ENOMEM, ELOOP, or readlink's).
+ */
+static int follow_links(const char *path, char **out)
+{
+	char target[PATH_MAX], *cur = hc_strdup(path), *next;
+	struct stat st;
+	int hops;
+
+	*out = NULL;
+	for (hops = 0; cur; hops++) {
+		const char *slash;
+		ssize_t n;
+
+		if (lstat(cur, &st) != 0 || !S_ISLNK(st.st_mode)) {
+			*out = cur;
+			return 0;
+		}
+		if (hops == OUTFILE_MAX_LINKS || (n = readlink(cur, target, sizeof target - 1)) < 0) {
+			int e = hops == OUTFILE_MAX_LINKS ? ELOOP : errno;
+			hc_free(cur);
+			return e;
+		}
+		target[n] = '\0';
+		slash = strrchr(cur, '/');
+		if (target[0] == '/' || !slash) {
+			next = hc_strdup(target);
+		} else {
+			size_t dirlen = (size_t)(slash - cur) + 1;
+			next = hc_malloc(dirlen + (size_t)n + 1);
+			if (next) {
+				memcpy(next, cur, dirlen);
+				memcpy(next + dirlen, target, (size_t)n + 1);
+			}
+		}
+		hc_free(cur);
+		cur = next;
+	}
+	return ENOMEM;
+}
+
+/* The canonical name of a file that may not exist yet: links followed,
+ * then its directory resolved by realpath(3).  NULL when the directory
+ * cannot be resolved (*e says why: ENOMEM, or realpath's). */
+static char *canonical_name(const char *path, int *e)
+{
+	char dir[PATH_MAX], *name = NULL, *out = NULL;
+	const char *slash, *base;
+	size_t dirlen;
+
+	if ((*e = follow_links(path, &name)) != 0)
+		return NULL;
+	slash = strrchr(name, '/');
+	base = slash ? slash + 1 : name;
+	dirlen = slash ? (size_t)(slash - name) : 0;
+	if (dirlen >= sizeof dir) {
+		*e = ENAMETOOLONG;
+		goto done;
+	}
+	if (!slash)
+		strcpy(dir, ".");
+	else if (dirlen == 0)
+		strcpy(dir, "/");
+	else {
+		memcpy(dir, name, dirlen);
+		dir[dirlen] = '\0';
+	}
+	{
+		char resolved[PATH_MAX];
+		size_t rl, bl = strlen(base);
+
+		if (!realpath(dir, resolved)) {
+			*e = errno;
+			goto done;
+		}
+		rl = strlen(resolved);
+		out = hc_malloc(rl + bl + 2);
+		if (!out) {
+			*e = ENOMEM;
+			goto done;
+		}
+		memcpy(out, resolved, rl);
+		out[rl] = '/';
+		memcpy(out + rl + 1, base, bl + 1);
+	}
+done:
+	hc_free(name);
+	return out;
+}
+
+int outfile_same_file(const char *a, const char *b, int *same, struct hc_error *err)
+{
+	struct stat sa, sb;
+	char *ca, *cb;
+	int ea = 0, eb = 0, ok_a, ok_b;
+
+	*same = 0;
+	if (is_stdout(a) || is_stdout(b))
+		return HC_OK;
+	ok_a = stat(a, &sa) == 0;
+	ok_b = stat(b, &sb) == 0;
+	if (ok_a && ok_b) {
+		*same = sa.st_dev == sb.st_dev && sa.st_ino == sb.st_ino;
+		return HC_OK;
+	}
+	if (ok_a || ok_b)
+		return HC_OK;   /* one exists and the other does not */
+	ca = canonical_name(a, &ea);
+	cb = canonical_name(b, &eb);
+	*same = ca && cb && strcmp(ca, cb) == 0;
+	hc_free(ca);
+	hc_free(cb);
+	if (ea == ENOMEM || eb == ENOMEM)
+		return hc_error(err, HC_ENOMEM, "out of memory comparing '%s' and '%s'", a, b);
+	return HC_OK;
+}
+
 /* mkstemp creates 0600; the finished file gets the mode an ordinary
  * open(2) would give it (0666 less the umask), or the old file's mode when
  * it replaces one. */
@@ -122,7 +251,7 @@ static void set_final_mode(int fd, const char *path)
 
 int outfile_open(struct outfile *of, const char *path, struct hc_error *err)
 {
-	int fd;
+	int fd, e;
 
 	memset(of, 0, sizeof *of);
 	if (is_stdout(path)) {
@@ -131,13 +260,19 @@ int outfile_open(struct outfile *of, const char *path, struct hc_error *err)
 	}
 	if (path[0] == '\0' || path[strlen(path) - 1] == '/')
 		return hc_error(err, HC_EUSAGE, "output name '%s' is not a file name", path);
-	of->path = hc_strdup(path);
-	of->tmp = temp_template(path);
-	if (!of->path || !of->tmp)
+	/* A link is written through: the temporary goes beside its target,
+	 * which the rename then replaces. */
+	e = follow_links(path, &of->path);
+	if (e == ENOMEM)
+		goto nomem;
+	if (e)
+		return hc_error(err, HC_EIO, "cannot follow the symbolic link '%s': %s", path, strerror(e));
+	of->tmp = temp_template(of->path);
+	if (!of->tmp)
 		goto nomem;
 	fd = mkstemp(of->tmp);
 	if (fd < 0) {
-		int e = errno;
+		e = errno;
 		hc_free(of->path);
 		hc_free(of->tmp);
 		memset(of, 0, sizeof *of);
@@ -151,7 +286,7 @@ int outfile_open(struct outfile *of, const char *path, struct hc_error *err)
 		memset(of, 0, sizeof *of);
 		return hc_error(err, HC_EIO, "too many output files open at once (or name too long) for '%s'", path);
 	}
-	set_final_mode(fd, path);
+	set_final_mode(fd, of->path);
 	of->fp = fdopen(fd, "w");
 	if (!of->fp) {
 		close(fd);

@@ -10,20 +10,16 @@
  * Prices become returns in place, and the missing-data policy compacts the
  * store in place, so neither step needs a third copy.
  */
-#define _GNU_SOURCE   /* sysconf(_SC_AVPHYS_PAGES) */
 #include "holdcount/universe.h"
 
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "holdcount/csvread.h"
 #include "holdcount/memory.h"
 
-/* Share of the available memory the default budget allows. */
-#define UNIVERSE_MEMORY_SHARE 0.8
 /* Daily data whose share of Saturday/Sunday dates exceeds this counts as
  * calendar days (365 a year); below it as trading days (252).  A calendar
  * series has 2/7 of its dates on weekends, a trading-day series none. */
@@ -408,29 +404,6 @@ static void loader_release(struct loader *L)
 	hc_free(L->rows);
 	hc_free(L->dates);
 	hc_free(L->lrows);
-}
-
-static size_t default_budget(void)
-{
-	FILE *fp = fopen("/proc/meminfo", "r");
-	char line[256];
-	unsigned long long kb = 0;
-	double bytes = 0;
-
-	if (fp) {
-		while (fgets(line, sizeof line, fp))
-			if (sscanf(line, "MemAvailable: %llu kB", &kb) == 1)
-				break;
-		fclose(fp);
-	}
-	if (kb)
-		bytes = (double)kb * 1024.0;
-	else
-		bytes = (double)sysconf(_SC_AVPHYS_PAGES) * (double)sysconf(_SC_PAGESIZE);
-	bytes *= UNIVERSE_MEMORY_SHARE;
-	if (bytes <= 0 || bytes >= (double)SIZE_MAX)
-		return SIZE_MAX;
-	return (size_t)bytes;
 }
 
 static double mib(double bytes)
@@ -1177,7 +1150,7 @@ static int load(struct universe **out, const char *name, const char *path,
 	memset(&L, 0, sizeof L);
 	L.name = name;
 	L.opt = opt;
-	L.budget = opt->max_bytes ? opt->max_bytes : default_budget();
+	L.budget = opt->max_bytes ? opt->max_bytes : hc_memory_available();
 	csvread_options_init(&copt);
 	copt.delimiter = opt->delimiter;
 	h.field = on_field;
@@ -1206,6 +1179,7 @@ static int load(struct universe **out, const char *name, const char *path,
 		rc = hc_error(err, HC_ENOMEM, "%s: out of memory", name);
 		goto cleanup;
 	}
+	u->max_bytes = opt->max_bytes;
 	*out = u;
 	u = NULL;
 cleanup:
@@ -1265,6 +1239,7 @@ static struct universe *derived_alloc(const struct universe *src, size_t t)
 	u->t = t;
 	u->periods_per_year = src->periods_per_year;
 	u->periods_detected = src->periods_detected;
+	u->max_bytes = src->max_bytes;
 	return u;
 }
 

@@ -62,6 +62,17 @@ expect 2 "holdcount: unknown option '--bogus'" -- --bogus
 expect 2 "usage: holdcount COMMAND" --
 HOLDCOUNT_THREADS=abc expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number from 1, found 'abc'" -- curve u.csv
 HOLDCOUNT_THREADS=0 expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number" -- curve u.csv
+# An explicit --threads wins over the variable, even over a bad value: the
+# run succeeds and prints what the same options print without the variable.
+V=${HOLDCOUNT_SOURCE_DIR:?}/tests/bad-inputs/valid-small.csv
+for t in "--threads 2" "--threads=2"; do
+	# shellcheck disable=SC2086
+	env -u HOLDCOUNT_THREADS "$HC" curve $t --sizes 1-3 --paths 50 --format csv "$V" >"$T/want" 2>/dev/null
+	# shellcheck disable=SC2086
+	HOLDCOUNT_THREADS=abc "$HC" curve $t --sizes 1-3 --paths 50 --format csv "$V" >"$T/got" 2>"$T/err"; rc=$?
+	[ $rc = 0 ] || fail "curve $t with HOLDCOUNT_THREADS=abc: exit $rc, expected 0 ($(head -n1 "$T/err"))"
+	[ -s "$T/want" ] && cmp -s "$T/want" "$T/got" || fail "curve $t with HOLDCOUNT_THREADS=abc printed other output"
+done
 expect 2 "holdcount synth: unknown option '--bogus' (see 'holdcount synth --help')" -- synth --bogus
 
 # Manual pages (roff) from the same tables: groff -ww finds nothing to warn
@@ -97,6 +108,21 @@ complete_words() { bash -c 'source "$1"; shift; COMP_WORDS=("$@"); COMP_CWORD=$(
 sed -n 1p "$T/v" | grep -qE '^holdcount [0-9]+\.[0-9]+\.[0-9]+$' || fail "--version line 1: $(sed -n 1p "$T/v")"
 sed -n 2p "$T/v" | grep -qE '^GSL [0-9]+\.[0-9]+' || fail "--version line 2: $(sed -n 2p "$T/v")"
 sed -n 3p "$T/v" | grep -q '^BLAS OpenBLAS' || fail "--version line 3: $(sed -n 3p "$T/v")"
+
+# Text printed straight to standard output (help, manual pages, completion,
+# --version) that cannot be written is an input/output error, exit 4, with
+# one message naming the reason: on Linux every write to /dev/full fails
+# with ENOSPC (null(4)), whose C-locale text is glibc's strerror.
+for args in "--version" "--help" "-h" "help" "help curve" "curve --help" "synth -h" \
+	"help --man" "help --man enough" "help --bash-completion"; do
+	# shellcheck disable=SC2086
+	"$HC" $args >/dev/full 2>"$T/err"; rc=$?
+	[ $rc = 4 ] || fail "holdcount $args >/dev/full: exit $rc, expected 4"
+	case $args in help*|-*) who="holdcount" ;; *) who="holdcount ${args%% *}" ;; esac
+	case $args in help?*) who="holdcount help" ;; esac
+	[ "$(cat "$T/err")" = "$who: cannot write to standard output: No space left on device" ] \
+		|| fail "holdcount $args >/dev/full: stderr '$(cat "$T/err")'"
+done
 
 [ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
 echo "cli_framework: all checks passed"

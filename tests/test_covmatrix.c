@@ -329,6 +329,72 @@ static void test_covmatrix_load_errors(void **state)
 			  "cov.csv:3:2: covariance of 'B' and 'A' is 0.02 here but 0.01 on line 2, column 3");
 }
 
+/* The memory budget: the header's 3 ids make a 3 x 3 matrix of 72 bytes,
+ * checked before it is allocated; a header of 40 000 ids (12 800 000 000
+ * bytes of numbers, 12207.1 MiB) is refused before any row is read.
+ * Budget 0 is the memory available, and the plain loaders use it. */
+static void test_covmatrix_load_within_budget(void **state)
+{
+	struct covmatrix *c = (struct covmatrix *)1;
+	struct hc_error err;
+	char *text;
+	size_t i, len = 0;
+
+	assert_int_equal(covmatrix_load_buffer_within(&c, "cov.csv", MATRIX, strlen(MATRIX),
+						      COVMATRIX_DEFAULT_SYMMETRY_TOL, 71, &err), HC_ENOMEM);
+	assert_null(c);
+	assert_string_equal(err.message,
+		"cov.csv: covariance matrix of 3 ids too large: needs at least 0.1 MiB, budget 0.0 MiB");
+	assert_int_equal(covmatrix_load_buffer_within(&c, "cov.csv", MATRIX, strlen(MATRIX),
+						      COVMATRIX_DEFAULT_SYMMETRY_TOL, 72, &err), HC_OK);
+	assert_int_equal(c->m, 3);
+	assert_int_equal(c->max_bytes, 72);
+	covmatrix_free(c);
+	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
+					       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
+	assert_int_equal(c->max_bytes, 0);
+	covmatrix_free(c);
+
+	text = malloc(40000 * 7 + 2);
+	assert_non_null(text);
+	text[len++] = ',';
+	for (i = 1; i <= 40000; i++)
+		len += (size_t)sprintf(text + len, i < 40000 ? "I%05zu," : "I%05zu\n", i);
+	assert_int_equal(covmatrix_load_buffer_within(&c, "big.csv", text, len,
+						      COVMATRIX_DEFAULT_SYMMETRY_TOL, (size_t)64 << 20, &err), HC_ENOMEM);
+	assert_null(c);
+	assert_string_equal(err.message,
+		"big.csv: covariance matrix of 40000 ids too large: needs at least 12207.1 MiB, budget 64.0 MiB");
+	free(text);
+}
+
+/* covmatrix_from_universe keeps to the universe's budget: the 4 x 7
+ * returns (224 bytes held) need the 4 x 4 result and a centred copy
+ * (128 + 224 bytes) when complete, and 3 x 128 + 2 x 224 bytes when
+ * pairwise (covmatrix.h). */
+static void test_covmatrix_from_universe_budget(void **state)
+{
+	struct universe *u = load_universe(RETURNS, UNIVERSE_MISSING_COMPLETE);
+	struct covmatrix *c = (struct covmatrix *)1;
+	struct hc_error err;
+
+	u->max_bytes = 224 + 128 + 224 - 1;
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_ENOMEM);
+	assert_null(c);
+	assert_string_equal(err.message,
+		"u.csv: universe too large for its covariance matrix: needs at least 0.1 MiB, budget 0.0 MiB");
+	u->max_bytes = 224 + 128 + 224;
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	assert_int_equal(c->max_bytes, 224 + 128 + 224);
+	covmatrix_free(c);
+	u->has_missing = 1;
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_ENOMEM);
+	u->max_bytes = 224 + 3 * 128 + 2 * 224;
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	covmatrix_free(c);
+	universe_free(u);
+}
+
 static void test_covmatrix_load_file(void **state)
 {
 	char path[4096];
@@ -434,6 +500,8 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_covmatrix_load),
 		cmocka_unit_test(test_covmatrix_load_errors),
 		cmocka_unit_test(test_covmatrix_load_file),
+		cmocka_unit_test(test_covmatrix_load_within_budget),
+		cmocka_unit_test(test_covmatrix_from_universe_budget),
 		cmocka_unit_test(test_covmatrix_allocation_failure),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -3,6 +3,7 @@
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
+#include <stdio.h>
 #include <string.h>
 #include <cmocka.h>
 
@@ -44,11 +45,56 @@ static void test_memory_fault_injection(void **state)
 	assert_int_equal(out, 42);
 }
 
+/* A given budget counts what is held and what is asked for together; the
+ * message rounds the need up and the budget down to 0.1 MiB, so it never
+ * shows a need that seems to fit (1 MiB = 1048576 bytes). */
+static void test_memory_check_given_budget(void **state)
+{
+	struct hc_error err;
+
+	hc_error_clear(&err);
+	assert_int_equal(hc_memory_check(3000000, 1000000.0, 2000000.0, &err, "u.csv: %s", "whole"), HC_OK);
+	assert_int_equal(hc_memory_check(3000000, 1000000.0, 2000001.0, &err, "u.csv: %s", "whole"), HC_ENOMEM);
+	/* 3000001 bytes = 2.86102 MiB -> 2.9; 3000000 bytes = 2.86102 MiB -> 2.8 */
+	assert_string_equal(err.message, "u.csv: whole: needs at least 2.9 MiB, budget 2.8 MiB");
+	assert_int_equal(hc_memory_check(1048576, 0.0, 1048577.0, &err, "m"), HC_ENOMEM);
+	assert_string_equal(err.message, "m: needs at least 1.1 MiB, budget 1.0 MiB");
+}
+
+/* MemAvailable, read here from /proc/meminfo (Linux, proc(5)), bounds the
+ * default budget: HC_MEMORY_SHARE of it, give or take what other processes
+ * did between the two reads; and a need far beyond any machine's memory is
+ * refused without a given budget, while a small one passes. */
+static void test_memory_check_available(void **state)
+{
+	FILE *fp = fopen("/proc/meminfo", "r");
+	unsigned long long kb = 0;
+	char line[256];
+	double avail, want;
+	struct hc_error err;
+
+	assert_non_null(fp);
+	while (fgets(line, sizeof line, fp))
+		if (sscanf(line, "MemAvailable: %llu kB", &kb) == 1)
+			break;
+	fclose(fp);
+	assert_true(kb > 0);
+	avail = (double)hc_memory_available();
+	want = HC_MEMORY_SHARE * (double)kb * 1024.0;
+	assert_true(avail > 0.9 * want && avail < 1.1 * want);
+	hc_error_clear(&err);
+	assert_int_equal(hc_memory_check(0, 0.0, 1e18, &err, "big"), HC_ENOMEM);
+	assert_memory_equal(err.message, "big: needs at least 953674316406.3 MiB, budget ", 47);
+	assert_int_equal(hc_memory_check(0, 1e18, 4096.0, &err, "held"), HC_OK);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_error_formats_and_returns_code),
 		cmocka_unit_test(test_memory_fault_injection),
+		cmocka_unit_test(test_memory_check_given_budget),
+		cmocka_unit_test(test_memory_check_available),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

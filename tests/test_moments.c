@@ -8,12 +8,14 @@
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
+#include <stdio.h>
 #include <string.h>
 #include <cmocka.h>
 
 #include <gsl/gsl_errno.h>
 
 #include "fixture.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 
@@ -110,6 +112,16 @@ static void test_moments_gram_route_matches_reference(void **state)
 static void test_moments_matrix_route_matches_reference(void **state)
 {
 	check_route_against_reference(23, 61, 7741, MOMENTS_ROUTE_MATRIX);
+}
+
+/* T >= M with M = 2 blocks + 37 rows: the matrix route's row blocks
+ * (MOMENTS_BLOCK_ROWS) meet at two boundaries and end in a short block;
+ * the sums still match the reference covariance held whole. */
+static void test_moments_matrix_route_several_blocks(void **state)
+{
+	size_t m = 2 * MOMENTS_BLOCK_ROWS + 37;
+
+	check_route_against_reference(m, m + 11, 3141, MOMENTS_ROUTE_MATRIX);
 }
 
 /* (b) Gram and matrix routes on the same data, both shapes, agree to
@@ -297,7 +309,7 @@ static void test_moments_rejects_bad_data(void **state)
 	u = fixture_universe(x, 3, 5);
 	assert_non_null(u);
 	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
-	assert_string_equal(err.message, "security 'S03' has fewer than two periods");
+	assert_string_equal(err.message, "fixture: security 'S03' has only 1 period; expected at least 3 for a covariance");
 	fixture_free(u);
 }
 
@@ -392,11 +404,117 @@ static void test_moments_covariance_matrix(void **state)
 	fixture_free(u10);
 }
 
+/* Budget (memory.h) of a universe with u->max_bytes set: ok at exactly
+ * the bytes held plus those the route allocates, refused one byte below,
+ * with the message naming the figures. */
+static void expect_budget(struct universe *u, int route, size_t bytes)
+{
+	struct moments mo;
+	struct hc_error err;
+
+	u->max_bytes = bytes - 1;
+	assert_int_equal(moments_from_universe_route(&mo, u, route, &err), HC_ENOMEM);
+	assert_int_equal(mo.m, 0);
+	assert_memory_equal(err.message, "fixture: universe too large for its covariances: needs at least 0.1 MiB, budget 0.0 MiB",
+			    sizeof "fixture: universe too large for its covariances: needs at least 0.1 MiB, budget 0.0 MiB");
+	u->max_bytes = bytes;
+	assert_int_equal(moments_from_universe_route(&mo, u, route, &err), HC_OK);
+	u->max_bytes = 0;
+}
+
+/* The sizes counted by hand from the allocations (8-byte doubles):
+ *   matrix, 23 x 61: held 23*61, centred copy 23*61, one block of
+ *     min(23, MOMENTS_BLOCK_ROWS) = 23 rows of 23, v 23 doubles, r 23 long doubles;
+ *   Gram, 37 x 13: held 37*13, centred copy 37*13, Gram 13*13, two 13-vectors;
+ *   pairwise, 23 x 61: held 23*61, the 23 x 23 matrix;
+ *   moments_covariance, 23 x 61 complete: held, centred copy, 23 x 23. */
+static void test_moments_memory_budget(void **state)
+{
+	struct universe *a = fixture_random_universe(23, 61, 7741);
+	struct universe *g = fixture_random_universe(37, 13, 2385);
+	struct hc_error err;
+	double *cov = (double *)&err;
+
+	assert_non_null(a);
+	assert_non_null(g);
+	expect_budget(a, MOMENTS_ROUTE_MATRIX, 8 * (23 * 61 * 2 + 23 * 23 + 23) + 23 * sizeof(long double));
+	expect_budget(g, MOMENTS_ROUTE_GRAM, 8 * (37 * 13 * 2 + 13 * 13 + 2 * 13));
+	a->has_missing = 1;
+	expect_budget(a, MOMENTS_ROUTE_PAIRWISE, 8 * (23 * 61 + 23 * 23));
+	a->has_missing = 0;
+	a->max_bytes = 8 * (23 * 61 * 2 + 23 * 23) - 1;
+	assert_int_equal(moments_covariance(a, &cov, &err), HC_ENOMEM);
+	assert_null(cov);
+	assert_memory_equal(err.message, "fixture: universe too large for its covariance matrix: ", 55);
+	a->max_bytes = 8 * (23 * 61 * 2 + 23 * 23);
+	assert_int_equal(moments_covariance(a, &cov, &err), HC_OK);
+	hc_free(cov);
+	fixture_free(a);
+	fixture_free(g);
+}
+
+/*
+ * One minimum of common periods for every pairwise computation: 3, the
+ * contract of docs/formats.md ("a pair with fewer than 3 common periods is
+ * an error naming the pair").  B and C below share exactly 2 periods: the
+ * pairwise route of moments_from_universe and covmatrix_from_universe
+ * refuse them with the same message.  One more row gives them 3, and then
+ * both accept, with the covariance numpy gives for those three periods.
+ */
+static void test_moments_pairwise_minimum_periods(void **state)
+{
+	static const char two[] =
+		"date,A,B,C\n"
+		"2021-01-31,0.0213,NA,0.0342\n"
+		"2021-02-28,-0.0385,NA,0.0051\n"
+		"2021-03-31,0.0172,0.0093,NA\n"
+		"2021-04-30,0.0051,-0.0204,NA\n"
+		"2021-05-31,0.0094,0.0077,-0.0319\n"
+		"2021-06-30,-0.0217,0.0148,0.0089\n";
+	static const char three_row[] = "2021-07-31,-0.0106,-0.0126,0.0207\n";
+	static const char want[] =
+		"u.csv: securities 'B' and 'C' have only 2 common periods; expected at least 3 for a pairwise covariance";
+	char text[sizeof two + sizeof three_row];
+	struct universe_options o;
+	struct universe *u;
+	struct covmatrix *c;
+	struct moments mo;
+	struct hc_error err;
+	double *a;
+
+	universe_options_init(&o);
+	o.missing = UNIVERSE_MISSING_KEEP;
+	assert_int_equal(universe_load_buffer(&u, "u.csv", two, strlen(two), &o, &err), HC_OK);
+	assert_int_equal(u->has_missing, 1);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_string_equal(err.message, want);
+	assert_int_equal(moments_covariance(u, &a, &err), HC_EDATA);
+	assert_string_equal(err.message, want);
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_EDATA);
+	assert_string_equal(err.message, want);
+	universe_free(u);
+
+	snprintf(text, sizeof text, "%s%s", two, three_row);
+	assert_int_equal(universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err), HC_OK);
+	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_PAIRWISE);
+	assert_int_equal(moments_covariance(u, &a, &err), HC_OK);
+	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	/* numpy.cov([0.0077, 0.0148, -0.0126], [-0.0319, 0.0089, 0.0207])[0, 1]
+	 * = -0.00018357 (numpy 1.24); the two routines round differently. */
+	assert_close(a[1 * 3 + 2], -0.00018357, 1e-4, 1e-12);
+	assert_close(c->a[1 * 3 + 2], -0.00018357, 1e-4, 1e-12);
+	hc_free(a);
+	covmatrix_free(c);
+	universe_free(u);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_moments_gram_route_matches_reference),
 		cmocka_unit_test(test_moments_matrix_route_matches_reference),
+		cmocka_unit_test(test_moments_matrix_route_several_blocks),
 		cmocka_unit_test(test_moments_gram_and_matrix_routes_agree),
 		cmocka_unit_test(test_moments_from_matrix_hand_worked),
 		cmocka_unit_test(test_moments_pairwise_route),
@@ -405,6 +523,8 @@ int main(void)
 		cmocka_unit_test(test_moments_rejects_bad_data),
 		cmocka_unit_test(test_moments_allocation_failure),
 		cmocka_unit_test(test_moments_covariance_matrix),
+		cmocka_unit_test(test_moments_pairwise_minimum_periods),
+		cmocka_unit_test(test_moments_memory_budget),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

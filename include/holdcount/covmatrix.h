@@ -24,13 +24,16 @@ extern "C" {
  * room for a file printed with about 9 significant digits. */
 #define COVMATRIX_DEFAULT_SYMMETRY_TOL 1e-8
 
-/* Fewest common periods a pair needs for a pairwise covariance. */
+/* Fewest common periods a pair needs for a pairwise covariance (and a
+ * security alone for its variance), docs/formats.md. */
 #define COVMATRIX_MIN_COMMON_PERIODS 3
 
 struct covmatrix {
 	size_t m;
 	char **ids;     /* m ids, owned */
 	double *a;      /* m*m, row-major, symmetric */
+	size_t max_bytes; /* the memory budget it was made under (memory.h; 0 =
+			   * from available memory), for later steps on it */
 };
 
 /*
@@ -53,6 +56,20 @@ int covmatrix_load_buffer(struct covmatrix **out, const char *name,
 			  struct hc_error *err);
 
 /*
+ * covmatrix_load and covmatrix_load_buffer within a memory budget of
+ * max_bytes (0 = from available memory, which the two above use): the
+ * m x m numbers are checked against it as soon as the header has given m,
+ * before they are allocated; HC_ENOMEM "PATH: covariance matrix of M ids
+ * too large: needs at least X MiB, budget Y MiB" (memory.h's
+ * hc_memory_check).  The result's max_bytes is max_bytes.
+ */
+int covmatrix_load_within(struct covmatrix **out, const char *path, double symmetry_tol,
+			  size_t max_bytes, struct hc_error *err);
+int covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
+				 const char *data, size_t len, double symmetry_tol,
+				 size_t max_bytes, struct hc_error *err);
+
+/*
  * The sample covariance matrix (divisor T-1) of u's returns, per period.
  * Complete data: centred returns through BLAS dsyrk.  With gaps
  * (u->has_missing): pairwise-complete covariances, each pair using its own
@@ -60,9 +77,24 @@ int covmatrix_load_buffer(struct covmatrix **out, const char *name,
  * the pair when n_ij < COVMATRIX_MIN_COMMON_PERIODS.  A pairwise matrix need
  * not be positive semi-definite (see covmatrix_repair_psd).
  * Memory: one m*t copy and the m*m result (complete); two m*t and three
- * m*m arrays (pairwise).  HC_ENOMEM when they cannot be allocated.
+ * m*m arrays (pairwise).  They are checked first against u->max_bytes
+ * (memory.h), HC_ENOMEM "SOURCE: universe too large for its covariance
+ * matrix: ..." when they do not fit; HC_ENOMEM too when they cannot be
+ * allocated.  The result's max_bytes is u->max_bytes.
  */
 int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
+			    struct hc_error *err);
+
+/*
+ * The one place the minimum above is applied, by every pairwise-complete
+ * computation (covmatrix_from_universe here, the pairwise route of
+ * moments.h): HC_OK when securities i and j of u share n >=
+ * COVMATRIX_MIN_COMMON_PERIODS observed periods (i == j: security i alone
+ * has n), else HC_EDATA "SOURCE: securities 'B' and 'C' have only 2 common
+ * periods; expected at least 3 for a pairwise covariance" ("security 'B'
+ * has only 2 periods; ..." when i == j).
+ */
+int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
 			    struct hc_error *err);
 
 /*

@@ -39,6 +39,33 @@ unsigned long hc_alloc_count(void);
 /* Multiply with overflow check: returns 0 and sets *out, or -1 on overflow. */
 int hc_mul_size(size_t a, size_t b, size_t *out);
 
+/*
+ * Memory budget.  Large inputs are refused with a message (HC_ENOMEM) before
+ * their arrays are allocated, not killed by the kernel half-way.  A budget
+ * is a byte count given by the user (--max-memory), or 0 for "from the
+ * memory available": HC_MEMORY_SHARE of Linux's MemAvailable
+ * (/proc/meminfo; free pages elsewhere) at the moment of the check.
+ */
+#define HC_MEMORY_SHARE 0.8
+
+/* HC_MEMORY_SHARE of the memory available now, in bytes; SIZE_MAX when it
+ * cannot be found out. */
+size_t hc_memory_available(void);
+
+/*
+ * Check a step that allocates need bytes while held bytes of its input stay
+ * allocated, against max_bytes (0 = from available memory).  With a given
+ * budget, held + need must not exceed it; from available memory, need must
+ * fit what is available now (held is already allocated, so no longer
+ * counted as available).  HC_OK, or HC_ENOMEM with the message
+ * "PREFIX: needs at least X MiB, budget Y MiB", X = held + need and Y the
+ * budget in the same terms (max_bytes, or held plus the available share),
+ * rounded away from the limit to 0.1 MiB.  prefix is printf-style.
+ */
+struct hc_error;
+int hc_memory_check(size_t max_bytes, double held, double need, struct hc_error *err,
+		    const char *prefix, ...) __attribute__((format(printf, 5, 6)));
+
 #ifdef __cplusplus
 }
 #endif

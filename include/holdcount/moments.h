@@ -21,11 +21,15 @@ extern "C" {
 
 enum moments_route {
 	MOMENTS_ROUTE_GRAM = 0,     /* column sums and the T x T Gram matrix (complete data, T < M) */
-	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance through BLAS dsyrk */
+	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance in row blocks through BLAS dgemm */
 	MOMENTS_ROUTE_PAIRWISE = 2, /* pairwise-complete covariances (data with gaps) */
 	MOMENTS_ROUTE_GIVEN = 3,    /* a covariance matrix was supplied */
 	MOMENTS_ROUTE_SUMMARY = 4   /* only average variance and covariance are known */
 };
+
+/* Rows of the covariance matrix the matrix route computes at a time (its
+ * buffer holds MOMENTS_BLOCK_ROWS x M doubles, 10 MB for M = 5000). */
+#define MOMENTS_BLOCK_ROWS 256
 
 struct moments {
 	size_t m;                  /* securities; 0 = unbounded universe (summary only) */
@@ -47,9 +51,16 @@ struct moments {
 
 /* From a universe: complete data uses the Gram route when T < M, else the
  * matrix route; data with gaps uses pairwise-complete covariances.
+ * Memory besides the universe: the centred copy (M x T) and the T x T Gram
+ * matrix, or the centred copy and MOMENTS_BLOCK_ROWS x M doubles (matrix
+ * route), or the M x M matrix (pairwise); checked first against the
+ * universe's budget u->max_bytes (memory.h's hc_memory_check), HC_ENOMEM
+ * "SOURCE: universe too large for its covariances: needs at least ..."
+ * when they do not fit.
  * HC_EDATA when fewer than 2 securities or periods, when a security has
- * zero variance, or (pairwise) when two securities share fewer than two
- * periods; HC_ENOMEM.  On error *mo is zeroed. */
+ * zero variance, or (pairwise) when two securities share fewer than
+ * COVMATRIX_MIN_COMMON_PERIODS (covmatrix.h) periods, with the message
+ * covmatrix_check_overlap gives; HC_ENOMEM.  On error *mo is zeroed. */
 int moments_from_universe(struct moments *mo, const struct universe *u,
 			  struct hc_error *err);
 
@@ -63,8 +74,9 @@ int moments_from_universe_route(struct moments *mo, const struct universe *u,
  * triangles) into a new array *a, freed with hc_free: through dsyrk for
  * complete data; pairwise-complete (each pair over the periods both have,
  * which need not be positive semi-definite) when u->has_missing.  For the
- * matrix sampler and for audits.  Errors as moments_from_universe; *a is
- * NULL on error. */
+ * matrix sampler and for audits.  Errors as moments_from_universe (the
+ * budget counts the M x M result, and the centred copy for complete data);
+ * *a is NULL on error. */
 int moments_covariance(const struct universe *u, double **a, struct hc_error *err);
 
 /* From an M x M covariance matrix a (row-major, symmetric; only read).

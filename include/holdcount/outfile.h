@@ -5,6 +5,9 @@
  * which outfile_commit flushes, fsyncs and renames over NAME; outfile_abort
  * (or a failed commit) removes it, leaving any earlier NAME untouched.
  * With path NULL or "-", output goes to stdout and commit only flushes.
+ * A NAME that is a symbolic link is written through: the temporary is made
+ * beside the file the link points at, and replaces that file; the link
+ * stays (a dangling link's target is created).
  */
 #ifndef HOLDCOUNT_OUTFILE_H
 #define HOLDCOUNT_OUTFILE_H
@@ -25,10 +28,12 @@ struct outfile {
 
 /* Start writing path (NULL or "-": standard output) through of->fp; the
  * temporary gets the mode of the file it will replace, or 0666 less the
- * umask for a new one.  of is caller storage, overwritten.  HC_EUSAGE when
- * path is empty or ends in '/', HC_EIO when the temporary cannot be created
- * (the message carries strerror), HC_ENOMEM; on error of is zeroed and
- * nothing is left on disk. */
+ * umask for a new one.  of is caller storage, overwritten; of->path is the
+ * name that will be replaced (the link's target when path is a link).
+ * HC_EUSAGE when path is empty or ends in '/', HC_EIO when the temporary
+ * cannot be created or a link cannot be followed (more than 40 in a row:
+ * ELOOP; the message carries strerror), HC_ENOMEM; on error of is zeroed
+ * and nothing is left on disk. */
 int outfile_open(struct outfile *of, const char *path, struct hc_error *err);
 /* Flush, fsync and rename the temporary over the final name (standard
  * output: flush only).  HC_EIO when any step fails, after removing the
@@ -39,6 +44,16 @@ int outfile_commit(struct outfile *of, struct hc_error *err);
  * untouched (standard output: flush what was written).  of may be NULL or
  * already committed; cannot fail. */
 void outfile_abort(struct outfile *of);
+
+/*
+ * Do a and b name the same file?  *same = 1 when both exist and are one
+ * file (same device and inode: hard links and symbolic links included), or
+ * when neither exists yet and both resolve to one name (links followed,
+ * the directory by realpath(3): "./x" and "x").  "-" (standard output) or
+ * NULL is never the same as anything.  So a command can refuse to write
+ * over its own input.  HC_OK, or HC_ENOMEM.
+ */
+int outfile_same_file(const char *a, const char *b, int *same, struct hc_error *err);
 
 /* The temporary name currently open, or NULL (for a signal handler that must
  * unlink it: async-signal-safe to read). */

@@ -78,6 +78,10 @@ struct universe {
 	size_t ndropped;
 	struct universe_dropped *dropped;
 	char *source;               /* the path it was read from */
+	size_t max_bytes;           /* the budget it was loaded under (universe_options.max_bytes;
+	                             * 0 = from available memory); the steps that compute on it
+	                             * (moments.h, covmatrix.h) keep to it too, and windows and
+	                             * resamples inherit it */
 };
 
 /*

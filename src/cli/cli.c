@@ -4,11 +4,12 @@
  * The parser and the help printer walk the same tables (cli.h), which is
  * what keeps `--help`, `help COMMAND` and the behaviour in step.
  */
-#define _POSIX_C_SOURCE 200809L
+#define _XOPEN_SOURCE 700   /* realpath(3) */
 
 #include "cli.h"
 
 #include <errno.h>
+#include <limits.h>
 #include <math.h>
 #include <signal.h>
 #include <stdarg.h>
@@ -68,7 +69,8 @@ static const struct cli_option universe_options[] = {
 	{ "delimiter", 0, CLI_STRING, UNI(delimiter), "CHAR",
 	  "field delimiter, ',' or ';'", NULL, "detected from the header" },
 	{ "max-memory", 0, CLI_COUNT, UNI(max_memory_mib), "MIB",
-	  "refuse inputs whose numbers need more than MIB mebibytes", NULL, "from available memory" },
+	  "refuse an input when its numbers, with the working copies made of them, would need more "
+	  "than MIB mebibytes", NULL, "80% of the memory available" },
 	{ "covariance", 0, CLI_FLAG, UNI(covariance), NULL,
 	  "the file is a covariance matrix (ids in the header row and first column), "
 	  "not a return history", NULL, NULL },
@@ -354,6 +356,123 @@ static int take_option(const struct cli_command *cmd, struct cli_args *a, void *
 	return HC_OK;
 }
 
+/* ---- inputs and outputs ---------------------------------------------------- */
+
+/* The files a command line names, by the option tables' conventions
+ * (cli.h): an option named "output" or "...-output" writes, an option
+ * whose value is a FILE reads, and so does every positional argument. */
+struct named_file {
+	const char *option;    /* "holdings" (--holdings), or NULL for a positional input */
+	const char *path;
+	int folder;            /* an output folder (metavar DIR) */
+};
+
+static int is_output_option(const struct cli_option *op)
+{
+	size_t n = strlen(op->name);
+
+	return op->kind == CLI_STRING &&
+	       (strcmp(op->name, "output") == 0 || (n > 7 && strcmp(op->name + n - 7, "-output") == 0));
+}
+
+static int is_input_option(const struct cli_option *op)
+{
+	return op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
+	       !is_output_option(op);
+}
+
+static void describe_file(char *buf, size_t size, const struct named_file *f)
+{
+	if (f->option)
+		snprintf(buf, size, "--%s '%s'", f->option, f->path);
+	else
+		snprintf(buf, size, "the input '%s'", f->path);
+}
+
+/* Is the existing file path inside the existing folder dir (after
+ * resolving links, "." and "..")? */
+static int inside_folder(const char *path, const char *dir)
+{
+	char rp[PATH_MAX], rd[PATH_MAX];
+	size_t n;
+
+	if (!realpath(path, rp) || !realpath(dir, rd))
+		return 0;
+	n = strlen(rd);
+	return strncmp(rp, rd, n) == 0 && (rp[n] == '/' || (n == 1 && rd[0] == '/'));
+}
+
+/* One output against one earlier-named file: a usage error naming both
+ * when they are the same file (or the input lies in the output folder). */
+static int check_pair(const struct cli_command *cmd, const struct named_file *out,
+		      const struct named_file *other, int other_is_output)
+{
+	char a[PATH_MAX + 64], b[PATH_MAX + 64];
+	struct hc_error err;
+	int same = 0;
+
+	if (out->folder) {
+		if (other_is_output || !inside_folder(other->path, out->path))
+			return HC_OK;
+		describe_file(a, sizeof a, other);
+		fprintf(stderr, "holdcount %s: %s is inside the report folder --output '%s', which this run "
+			"would replace; keep inputs outside it\n", cmd->name, a, out->path);
+		return HC_EUSAGE;
+	}
+	hc_error_clear(&err);
+	if (outfile_same_file(out->path, other->path, &same, &err) != HC_OK)
+		return cli_fail(cmd->name, &err);
+	if (!same)
+		return HC_OK;
+	describe_file(a, sizeof a, out);
+	describe_file(b, sizeof b, other);
+	fprintf(stderr, "holdcount %s: %s is the same file as %s; %s\n", cmd->name, a, b,
+		other_is_output ? "each output needs a file of its own"
+				: "writing it would replace an input, so choose another output file");
+	return HC_EUSAGE;
+}
+
+/*
+ * No output may be the same file as an input or as another output, and no
+ * input may lie inside an output folder: the output would replace the data
+ * it was computed from (a run of `describe --output u.csv u.csv` once did).
+ */
+static int check_files(const struct cli_command *cmd, const struct cli_args *a, void *opts)
+{
+	struct named_file in[16], out[4];
+	const struct cli_group_use *g;
+	const struct cli_option *op;
+	size_t nin = 0, nout = 0, i, j;
+	int rc;
+
+	for (i = 0; i < a->npositional && nin < 16; i++)
+		in[nin++] = (struct named_file){ NULL, a->positional[i], 0 };
+	for (g = cmd->groups; g && g->group; g++)
+		for (op = g->group->options; op->name; op++) {
+			const char *v;
+
+			if (!is_output_option(op) && !is_input_option(op))
+				continue;
+			v = *(const char *const *)((const char *)opts + g->offset + op->offset);
+			if (!v || !*v || strcmp(v, "-") == 0)
+				continue;
+			if (is_output_option(op) && nout < 4)
+				out[nout++] = (struct named_file){ op->name, v,
+					op->metavar && strcmp(op->metavar, "DIR") == 0 };
+			else if (is_input_option(op) && nin < 16)
+				in[nin++] = (struct named_file){ op->name, v, 0 };
+		}
+	for (i = 0; i < nout; i++) {
+		for (j = 0; j < nin; j++)
+			if ((rc = check_pair(cmd, &out[i], &in[j], 0)) != HC_OK)
+				return rc;
+		for (j = 0; j < i; j++)
+			if ((rc = check_pair(cmd, &out[i], &out[j], 1)) != HC_OK)
+				return rc;
+	}
+	return HC_OK;
+}
+
 static int is_help(const char *arg)
 {
 	return strcmp(arg, "-h") == 0 || strcmp(arg, "--help") == 0;
@@ -361,7 +480,7 @@ static int is_help(const char *arg)
 
 int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, struct cli_args *a)
 {
-	int i, rc, options_done = 0;
+	int i, rc = HC_OK, options_done = 0;
 	size_t n = argc > 0 ? (size_t)argc : 1;
 
 	memset(a, 0, sizeof *a);
@@ -371,7 +490,7 @@ int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, 
 			break;
 		else if (is_help(argv[i])) {
 			cli_print_help(stdout, cmd);
-			return fflush(stdout) == 0 ? CLI_HELP_SHOWN : HC_EIO;
+			return cli_flush_stdout(cmd->name) == HC_OK ? CLI_HELP_SHOWN : HC_EIO;
 		}
 	a->positional = hc_calloc(n, sizeof *a->positional);
 	a->given = hc_calloc(n, sizeof *a->given);
@@ -380,7 +499,6 @@ int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, 
 		cli_args_release(a);
 		return HC_ENOMEM;
 	}
-	rc = threads_from_environment(cmd, opts);
 	for (i = 1; rc == HC_OK && i < argc; i++) {
 		const char *arg = argv[i];
 		if (!options_done && strcmp(arg, "--") == 0)
@@ -390,10 +508,17 @@ int cli_parse(const struct cli_command *cmd, int argc, char **argv, void *opts, 
 		else
 			a->positional[a->npositional++] = argv[i];
 	}
+	/* After the options: an explicit --threads wins, so the variable is
+	 * not even read (a bad value there cannot stop a run that names its
+	 * own thread count). */
+	if (rc == HC_OK && !cli_given(a, "threads"))
+		rc = threads_from_environment(cmd, opts);
 	if (rc == HC_OK && a->npositional < cmd->min_positional)
 		rc = usage_fail(cmd, "missing %s", cmd->usage);
 	if (rc == HC_OK && a->npositional > cmd->max_positional)
 		rc = usage_fail(cmd, "unexpected argument '%s'", a->positional[cmd->max_positional]);
+	if (rc == HC_OK)
+		rc = check_files(cmd, a, opts);
 	if (rc != HC_OK)
 		cli_args_release(a);
 	return rc;
@@ -740,6 +865,20 @@ int cli_usage_error(const char *cmd, const char *fmt, ...)
 	va_end(ap);
 	fputc('\n', stderr);
 	return HC_EUSAGE;
+}
+
+int cli_flush_stdout(const char *cmd)
+{
+	int e;
+
+	if (fflush(stdout) == 0 && !ferror(stdout))
+		return HC_OK;
+	/* errno still holds the failed write's reason (ENOSPC for /dev/full,
+	 * EPIPE, EIO); EIO when nothing set it. */
+	e = errno ? errno : EIO;
+	fprintf(stderr, "holdcount%s%s: cannot write to standard output: %s\n", cmd ? " " : "", cmd ? cmd : "",
+		strerror(e));
+	return HC_EIO;
 }
 
 /* What is written: a whole report by a writer, or one part as CSV. */

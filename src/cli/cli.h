@@ -73,6 +73,14 @@
  * CLI_FRACTION double ("10%" or "0.10" both give 0.10), CLI_CHOICE int
  * (index into the option's choices), CLI_U64 uint64_t.  A repeated option:
  * the last one wins.  cli_given() says whether an option was on the line.
+ *
+ * Files: a CLI_STRING option named "output" or "...-output" names a file
+ * (metavar FILE) or folder (metavar DIR) the command writes; any other
+ * CLI_STRING option with metavar FILE, and every positional argument, names
+ * a file it reads.  cli_parse refuses (HC_EUSAGE, naming both) an output
+ * that is the same file as an input or as another output, and an input
+ * inside an output folder, so a new command gets the check by following
+ * these names.
  */
 #ifndef HOLDCOUNT_CLI_H
 #define HOLDCOUNT_CLI_H
@@ -241,6 +249,12 @@ const struct cli_command *cli_find_command(const char *name);
  * (HC_EINTERNAL when err carries none). */
 int cli_fail(const char *cmd, const struct hc_error *err);
 
+/* Flush standard output after text printed straight to it (help, manual
+ * pages, --version): HC_OK, or HC_EIO after printing "holdcount[ CMD]:
+ * cannot write to standard output: REASON" when any write failed (a full
+ * disk, /dev/full, a closed pipe).  cmd may be NULL (the top level). */
+int cli_flush_stdout(const char *cmd);
+
 /* Print "holdcount CMD: ..." for a usage problem found after parsing;
  * returns HC_EUSAGE. */
 int cli_usage_error(const char *cmd, const char *fmt, ...)
@@ -292,6 +306,10 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);
 
+/* --max-memory in bytes (0 = from available memory); HC_EUSAGE (printed)
+ * when it overflows. */
+int cli_max_bytes(const char *cmd, const struct cli_universe *cu, size_t *bytes);
+
 /* A covariance matrix that must be positive semi-definite, and what
  * --repair-psd did to it (cli_psd_settle). */
 struct cli_psd {
@@ -319,10 +337,12 @@ int cli_psd_usage(const char *cmd, const struct cli_universe *cu);
  * rank-deficient matrix printed to 9 digits passes.  Otherwise, without
  * ps->asked: "holdcount CMD: PATH: REFUSAL" and HC_EDATA (refusal should
  * name --repair-psd); with it, a is replaced by the nearest PSD matrix, a
- * note goes to stderr and ps records what moved.  Prints its own errors.
+ * note goes to stderr and ps records what moved.  The decomposition's
+ * working copies (three m x m arrays beside a) are checked against
+ * max_bytes first (memory.h; HC_ENOMEM naming path).  Prints its own errors.
  */
 int cli_psd_settle(const char *cmd, const char *path, const char *refusal, double *a, size_t m,
-		   struct cli_psd *ps);
+		   size_t max_bytes, struct cli_psd *ps);
 
 /* The fields psd_repair, psd_repaired, psd_negative_eigenvalues,
  * psd_min_eigenvalue, psd_repair_distance, psd_repair_relative_distance
@@ -330,13 +350,14 @@ int cli_psd_settle(const char *cmd, const char *path, const char *refusal, doubl
  * unless --repair-psd was given.  HC_ENOMEM only. */
 int cli_psd_fields(struct report *r, const struct cli_psd *ps);
 
-/* Load a covariance-matrix CSV (--covariance): options that only describe
- * a return history are refused (HC_EUSAGE), the loader's errors printed,
+/* Load a covariance-matrix CSV (--covariance) within cu's --max-memory:
+ * options that only describe a return history are refused (HC_EUSAGE),
+ * the loader's errors printed,
  * and a matrix that is not positive semi-definite is HC_EDATA unless
  * ps->asked, when it is repaired (cli_psd_settle). */
 struct covmatrix;
-int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
-			struct cli_psd *ps, struct covmatrix **out);
+int cli_load_covariance(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
+			const char *path, struct cli_psd *ps, struct covmatrix **out);
 
 /* The pairwise-complete covariances of u (which has gaps), settled by
  * cli_psd_settle with refusal: *out on success.  Prints its own errors. */

@@ -39,10 +39,7 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 	uo->date_column = cu->date_column;
 	uo->id_column = cu->id_column;
 	uo->value_column = cu->value_column;
-	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, &uo->max_bytes))
-		return cli_usage_error(cmd, "--max-memory %zu MiB does not fit in this machine's address space",
-				       cu->max_memory_mib);
-	return HC_OK;
+	return cli_max_bytes(cmd, cu, &uo->max_bytes);
 }
 
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
@@ -91,11 +88,20 @@ int cli_add_scale(struct report *r, double periods_per_year, int annualised)
 	return rc ? rc : report_add_text(r, "annualisation", "annualisation", text);
 }
 
-/* Options that describe a return history and mean nothing for a matrix. */
+/* Options that describe a return history and mean nothing for a matrix
+ * (--max-memory applies to both). */
 static const char *const return_only_options[] = {
 	"prices", "log-returns", "percent", "missing", "min-coverage", "layout", "date-column",
-	"id-column", "value-column", "delimiter", "max-memory", NULL
+	"id-column", "value-column", "delimiter", NULL
 };
+
+int cli_max_bytes(const char *cmd, const struct cli_universe *cu, size_t *bytes)
+{
+	if (hc_mul_size(cu->max_memory_mib, (size_t)1 << 20, bytes))
+		return cli_usage_error(cmd, "--max-memory %zu MiB does not fit in this machine's address space",
+				       cu->max_memory_mib);
+	return HC_OK;
+}
 
 /* ---- positive semi-definite matrices -------------------------------------- */
 
@@ -137,19 +143,26 @@ static void psd_text(const struct cli_psd *ps, char *buf, size_t size)
  * tests and, when asked, repairs (covmatrix_nearest_psd: eigenvalue
  * clipping, Higham, 1988, Linear Algebra and its Applications 103).  Moves
  * within the loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are
- * rounding in a printed file and leave the matrix as it was.
+ * rounding in a printed file and leave the matrix as it was.  Memory: the
+ * copy b and the decomposition's eigenvectors and rebuilt matrix, three
+ * m x m arrays beside a, checked against the budget first.
  */
 int cli_psd_settle(const char *cmd, const char *path, const char *refusal, double *a, size_t m,
-		   struct cli_psd *ps)
+		   size_t max_bytes, struct cli_psd *ps)
 {
 	struct covmatrix_psd st;
 	struct hc_error err;
 	size_t bytes;
+	double mm = (double)m * (double)m * sizeof(double);
 	double *b;
 	char text[600];
 	int rc;
 
 	hc_error_clear(&err);
+	if (hc_memory_check(max_bytes, mm, 3 * mm, &err,
+			    "%s: covariance matrix of %zu securities too large to check for negative eigenvalues",
+			    path, m))
+		return cli_fail(cmd, &err);
 	if (hc_mul_size(m * m, sizeof *b, &bytes) || !(b = hc_malloc(bytes))) {
 		hc_error(&err, HC_ENOMEM, "out of memory checking the covariance matrix");
 		return cli_fail(cmd, &err);
@@ -204,11 +217,11 @@ int cli_psd_fields(struct report *r, const struct cli_psd *ps)
 	return HC_OK;
 }
 
-int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *path,
-			struct cli_psd *ps, struct covmatrix **out)
+int cli_load_covariance(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
+			const char *path, struct cli_psd *ps, struct covmatrix **out)
 {
 	struct hc_error err;
-	size_t i;
+	size_t i, max_bytes;
 	int rc;
 
 	*out = NULL;
@@ -216,13 +229,15 @@ int cli_load_covariance(const char *cmd, const struct cli_args *a, const char *p
 		if (cli_given(a, return_only_options[i]))
 			return cli_usage_error(cmd, "--%s describes a return history and does not apply with --covariance",
 					       return_only_options[i]);
+	if ((rc = cli_max_bytes(cmd, cu, &max_bytes)))
+		return rc;
 	hc_error_clear(&err);
-	rc = covmatrix_load(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
+	rc = covmatrix_load_within(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, max_bytes, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
 	rc = cli_psd_settle(cmd, path, "not a covariance matrix: it is not positive semi-definite "
 			    "(some portfolio of these securities would have a negative variance); " CLI_PSD_HINT,
-			    (*out)->a, (*out)->m, ps);
+			    (*out)->a, (*out)->m, max_bytes, ps);
 	if (rc) {
 		covmatrix_free(*out);
 		*out = NULL;
@@ -240,7 +255,7 @@ int cli_pairwise_matrix(const char *cmd, const struct universe *u, const char *p
 	rc = covmatrix_from_universe(u, out, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
-	rc = cli_psd_settle(cmd, path, refusal, (*out)->a, (*out)->m, ps);
+	rc = cli_psd_settle(cmd, path, refusal, (*out)->a, (*out)->m, (*out)->max_bytes, ps);
 	if (rc) {
 		covmatrix_free(*out);
 		*out = NULL;

@@ -239,7 +239,7 @@ static int load_matrix(const struct audit_opts *o, const struct cli_args *a, str
 	if (!(p > 0.0))
 		return cli_usage_error("audit", "--periods-per-year must be positive, found %g", p);
 	cli_psd_init(ps, o->uni.repair_psd, p, annualised, "the covariance matrix");
-	if ((rc = cli_load_covariance("audit", a, path, ps, cm)) != HC_OK)
+	if ((rc = cli_load_covariance("audit", &o->uni, a, path, ps, cm)) != HC_OK)
 		return rc;
 	hc_error_clear(&err);
 	if (moments_from_matrix(mo, (*cm)->a, (*cm)->m, &err) != HC_OK) {

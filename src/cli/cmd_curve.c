@@ -284,7 +284,7 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 			return cli_usage_error("curve", "--periods-per-year must be positive, found %g", p);
 	}
 	cli_psd_init(&ps, o->uni.repair_psd, p, src.annualised, "the covariance matrix");
-	rc = cli_load_covariance("curve", a, src.path, &ps, &cm);
+	rc = cli_load_covariance("curve", &o->uni, a, src.path, &ps, &cm);
 	if (rc)
 		return rc;
 	src.m = cm->m;

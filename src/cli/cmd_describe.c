@@ -231,7 +231,7 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 	if (annualised && !(p > 0.0))
 		return cli_usage_error("describe", "--periods-per-year must be positive, found %g", p);
 	cli_psd_init(&ps, o->uni.repair_psd, p, annualised, "the covariance matrix");
-	rc = cli_load_covariance("describe", a, path, &ps, &cm);
+	rc = cli_load_covariance("describe", &o->uni, a, path, &ps, &cm);
 	if (rc)
 		return rc;
 	rc = moments_from_matrix(&mo, cm->a, cm->m, &err);

@@ -564,7 +564,7 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 	if (!(e->ppy > 0))
 		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
 	cli_psd_init(ps, o->uni.repair_psd, e->ppy, e->annualised, "the covariance matrix");
-	if ((rc = cli_load_covariance("enough", a, path, ps, &cm)))
+	if ((rc = cli_load_covariance("enough", &o->uni, a, path, ps, &cm)))
 		return rc;
 	e->ps = ps;
 	e->matrix = path;

@@ -18,7 +18,7 @@ static int print_version(void)
 	printf("holdcount %s\n", HOLDCOUNT_VERSION);
 	printf("GSL %s\n", gsl_version);
 	printf("BLAS %s\n", openblas_get_config());
-	return fflush(stdout) == 0 ? 0 : 4;
+	return cli_flush_stdout(NULL);
 }
 
 static int unknown(const char *what, const char *name)
@@ -33,7 +33,7 @@ static int help(int argc, char **argv)
 
 	if (argc < 3) {
 		cli_print_main_help(stdout);
-		return 0;
+		return cli_flush_stdout(NULL);
 	}
 	/* For packagers: the manual pages and the completion script are
 	 * generated from the option tables, like --help. */
@@ -42,11 +42,11 @@ static int help(int argc, char **argv)
 		if (argc > 3 && !cmd)
 			return unknown("command", argv[3]);
 		cli_print_man(stdout, cmd, HOLDCOUNT_VERSION);
-		return fflush(stdout) == 0 ? 0 : HC_EIO;
+		return cli_flush_stdout("help");
 	}
 	if (strcmp(argv[2], "--bash-completion") == 0 && argc == 3) {
 		cli_print_bash_completion(stdout);
-		return fflush(stdout) == 0 ? 0 : HC_EIO;
+		return cli_flush_stdout("help");
 	}
 	if (argc > 3) {
 		fprintf(stderr, "holdcount help: expected one command name, found %d words\n", argc - 2);
@@ -56,7 +56,7 @@ static int help(int argc, char **argv)
 	if (!cmd)
 		return unknown("command", argv[2]);
 	cli_print_help(stdout, cmd);
-	return 0;
+	return cli_flush_stdout("help");
 }
 
 int main(int argc, char **argv)
@@ -70,8 +70,10 @@ int main(int argc, char **argv)
 		cli_print_main_help(stderr);
 		return HC_EUSAGE;
 	}
-	if (strcmp(argv[1], "--help") == 0 || strcmp(argv[1], "-h") == 0)
-		return cli_print_main_help(stdout), 0;
+	if (strcmp(argv[1], "--help") == 0 || strcmp(argv[1], "-h") == 0) {
+		cli_print_main_help(stdout);
+		return cli_flush_stdout(NULL);
+	}
 	if (strcmp(argv[1], "--version") == 0)
 		return print_version();
 	if (strcmp(argv[1], "help") == 0)
