@@ -32,7 +32,7 @@
 
 /* An invented universe: 3 securities, 4 months, one quoted id, CRLF. */
 static const char universe_csv[] =
-	"date,AQX,\"BRM\",CTV\r\n"
+	"date,LIR901,\"LIR902\",LIR903\r\n"
 	"2021-01-29,0.0123,-0.0045,0.0310\r\n"
 	"2021-02-26,0.0071,0.0213,-0.0152\r\n"
 	"2021-03-31,-0.0264,0.0118,0.0047\r\n"
@@ -61,9 +61,9 @@ static void check_universe(const struct universe *u)
 
 	assert_int_equal(u->m, 3);
 	assert_int_equal(u->t, 4);
-	assert_string_equal(u->ids[0], "AQX");
-	assert_string_equal(u->ids[1], "BRM");
-	assert_string_equal(u->ids[2], "CTV");
+	assert_string_equal(u->ids[0], "LIR901");
+	assert_string_equal(u->ids[1], "LIR902");
+	assert_string_equal(u->ids[2], "LIR903");
 	/* The cells are parsed with strtod-like correct rounding: exact equality
 	 * with the same literals compiled by the C compiler. */
 	for (i = 0; i < 12; i++)
@@ -129,11 +129,11 @@ static void test_faults_csvread_buffer(void **state)
 
 static const char holdings_csv[] =
 	"fund,id,weight\n"
-	"Northgate Balanced,AQX,0.35\n"
-	"Northgate Balanced,BRM,0.40\n"
-	"Riverside Value,CTV,0.60\n"
-	"Northgate Balanced,CTV,0.25\n"
-	"Riverside Value,AQX,0.40\n";
+	"Lirrand Balanced Fund D,LIR901,0.35\n"
+	"Lirrand Balanced Fund D,LIR902,0.40\n"
+	"Lirrand Value Fund E,LIR903,0.60\n"
+	"Lirrand Balanced Fund D,LIR903,0.25\n"
+	"Lirrand Value Fund E,LIR901,0.40\n";
 
 static void test_faults_holdings_load_buffer(void **state)
 {
@@ -156,7 +156,7 @@ static void test_faults_holdings_load_buffer(void **state)
 	}
 	assert_true(k > 0 && k < SWEEP_LIMIT);
 	assert_int_equal(h->nfunds, 2);
-	assert_string_equal(h->funds[0].name, "Northgate Balanced");
+	assert_string_equal(h->funds[0].name, "Lirrand Balanced Fund D");
 	assert_int_equal(h->funds[0].n, 3);
 	assert_int_equal(h->funds[1].n, 2);
 	/* The weights in the text sum to exactly 1 per fund (0.35+0.40+0.25,
@@ -166,7 +166,7 @@ static void test_faults_holdings_load_buffer(void **state)
 }
 
 static const char labels_csv[] =
-	"id,sector\nCTV,Materials\nAQX,Utilities\nBRM,\"Consumer, Staples\"\n";
+	"id,sector\nLIR903,Materials\nLIR901,Utilities\nLIR902,\"Consumer, Staples\"\n";
 
 static void test_faults_labels_load_buffer(void **state)
 {
@@ -187,7 +187,7 @@ static void test_faults_labels_load_buffer(void **state)
 	}
 	assert_true(k > 0 && k < SWEEP_LIMIT);
 	assert_int_equal(l->n, 3);
-	assert_string_equal(holdings_labels_find(l, "BRM"), "Consumer, Staples");
+	assert_string_equal(holdings_labels_find(l, "LIR902"), "Consumer, Staples");
 	holdings_labels_free(l);
 }
 

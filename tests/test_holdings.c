@@ -40,18 +40,18 @@ static void test_holdings_reads_weights_by_fund(void **state)
 	/* Rows of two funds interleaved; fund order is first appearance. */
 	const char *text =
 		"fund,id,weight\n"
-		"Alder Growth,QX101,0.4125\n"
-		"Birch Income,QX205,0.25\n"
-		"Alder Growth,QX117,0.3375\n"
-		"Birch Income,QX101,0.75\n"
-		"Alder Growth,QX140,0.25\n";
+		"Lirrand Growth Fund F,QX101,0.4125\n"
+		"Lirrand Income Fund G,QX205,0.25\n"
+		"Lirrand Growth Fund F,QX117,0.3375\n"
+		"Lirrand Income Fund G,QX101,0.75\n"
+		"Lirrand Growth Fund F,QX140,0.25\n";
 	struct holdings *h;
 	struct hc_error err;
 
 	assert_int_equal(load(&h, text, NULL, &err), HC_OK);
 	assert_int_equal(h->nfunds, 2);
 	assert_int_equal(h->kind, HOLDINGS_WEIGHTS);
-	assert_string_equal(h->funds[0].name, "Alder Growth");
+	assert_string_equal(h->funds[0].name, "Lirrand Growth Fund F");
 	assert_int_equal(h->funds[0].n, 3);
 	assert_string_equal(h->funds[0].h[1].id, "QX117");
 	assert_string_equal(h->funds[0].h[1].issuer, "QX117");   /* issuer = id without the column */
@@ -59,7 +59,7 @@ static void test_holdings_reads_weights_by_fund(void **state)
 	/* 0.4125 + 0.3375 + 0.25 = 1 (exact arithmetic): weights unchanged within rounding */
 	assert_near(h->funds[0].raw_sum, 1.0, 1e-15);
 	assert_near(h->funds[0].h[0].weight, 0.4125, 1e-15);
-	assert_string_equal(h->funds[1].name, "Birch Income");
+	assert_string_equal(h->funds[1].name, "Lirrand Income Fund G");
 	assert_int_equal(h->funds[1].n, 2);
 	assert_near(h->funds[1].h[1].weight, 0.75, 1e-15);
 	assert_int_equal(h->nwarnings, 0);
