@@ -35,16 +35,50 @@
  */
 void openblas_set_num_threads(int num_threads);
 int openblas_get_num_threads(void);
+int blas_thread_shutdown_(void);
+
+/*
+ * The pthread build also starts its worker threads when the library loads,
+ * and they spin the same way from then on (measured: a process that makes
+ * no BLAS call at all spends a second core on sched_yield for its first
+ * 0.1 s).  Only OPENBLAS_NUM_THREADS=1 in the environment, read at load,
+ * prevents that; a program can instead put BLAS on one thread and stop the
+ * idle workers (blas_thread_shutdown_ is what OpenBLAS's own fork handler
+ * calls; a later threaded call would start them again).
+ */
+void moments_blas_serial(void)
+{
+	openblas_set_num_threads(1);
+	blas_thread_shutdown_();
+}
+
+/* One BLAS thread for a product; the count it replaced (to give to
+ * blas_restore).  The count is set only when it differs: setting it
+ * re-creates the worker threads moments_blas_serial stopped, and they
+ * spin again. */
+static int blas_single(void)
+{
+	int saved = openblas_get_num_threads();
+
+	if (saved != 1)
+		openblas_set_num_threads(1);
+	return saved;
+}
+
+static void blas_restore(int saved)
+{
+	if (saved != 1)
+		openblas_set_num_threads(saved);
+}
 
 static void syrk(enum CBLAS_TRANSPOSE trans, size_t n, size_t k, double alpha,
 		 const double *a, size_t lda, double *c, size_t ldc)
 {
-	int saved = openblas_get_num_threads();
+	int saved = blas_single();
 
-	openblas_set_num_threads(1);
 	cblas_dsyrk(CblasRowMajor, CblasUpper, trans, (int)n, (int)k, alpha,
 		    a, (int)lda, 0.0, c, (int)ldc);
-	openblas_set_num_threads(saved);
+	blas_restore(saved);
 }
 
 static const char *security_name(const struct universe *u, size_t i, char *buf, size_t len)
@@ -281,12 +315,11 @@ cleanup:
 static void gemm_nt(size_t n, size_t w, size_t k, double alpha, const double *a,
 		    const double *b, size_t ld, double *c)
 {
-	int saved = openblas_get_num_threads();
+	int saved = blas_single();
 
-	openblas_set_num_threads(1);
 	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)n, (int)w, (int)k, alpha,
 		    a, (int)ld, b, (int)ld, 0.0, c, (int)w);
-	openblas_set_num_threads(saved);
+	blas_restore(saved);
 }
 
 /* Add the entries right of the diagonal in rows i0..i0+nb of A (block

@@ -77,5 +77,24 @@ cmp -s "$T/t1.csv" "$T/t3.csv" || fail "curve's figures differ between HOLDCOUNT
 # Commands without --threads ignore it (describe has no sampling options).
 HOLDCOUNT_THREADS=abc "$HC" describe "$U" >/dev/null 2>"$T/err" || fail "describe with HOLDCOUNT_THREADS=abc: $(cat "$T/err")"
 
+# ---- no idle BLAS threads spinning ------------------------------------------------
+# OpenBLAS's pthread build starts a worker per core when it loads, and an idle
+# worker busy-waits with sched_yield for about 0.1 s (at start and after a
+# threaded call), taking a core from the sampler.  holdcount stops those
+# workers at start (moments_blas_serial), and its one-thread products must
+# not start them again: a curve run through the Gram route (T < M is not
+# needed: every route calls the BLAS) makes next to no sched_yield call.
+# Before the fix the same run made thousands (measured under strace: 465 to
+# over 10 000), so 50 separates the two with room.
+yields() {
+	ASAN_OPTIONS="${ASAN_OPTIONS:+$ASAN_OPTIONS:}detect_leaks=0" strace -f -qq -c -e trace=sched_yield -o "$T/sy" "$@" >/dev/null 2>"$T/sy.err" \
+		|| { fail "strace $*: $(head -c 200 "$T/sy.err")"; echo 0; return; }
+	awk '$NF == "sched_yield" {print $4}' "$T/sy" | head -n 1
+}
+y=$(yields "$HC" curve --paths 2000 --threads 2 -q "$U")
+[ "${y:-0}" -lt 50 ] || fail "curve made $y sched_yield calls: idle BLAS threads are spinning"
+y=$(yields "$HC" describe "$U")
+[ "${y:-0}" -lt 50 ] || fail "describe made $y sched_yield calls: idle BLAS threads are spinning"
+
 [ "$fails" = 0 ] || { echo "$fails failure(s)"; exit 1; }
 echo "cli_environment: all checks passed"

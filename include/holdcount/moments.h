@@ -49,6 +49,18 @@ struct moments {
 	double universe_variance;  /* equal-weight portfolio of all M: (V+C)/M^2; c-bar when unbounded */
 };
 
+/*
+ * Put the BLAS (OpenBLAS, which the library links) on one thread and stop
+ * its idle worker threads.  The products here run on one BLAS thread
+ * anyway (each sets and restores the count around its call), but the
+ * pthread build of OpenBLAS starts a worker per core when it loads, and
+ * those busy-wait with sched_yield for about 0.1 s at start and after every
+ * threaded call, taking cores from the sampler's OpenMP threads.  For
+ * programs that want no threaded BLAS of their own: call once at start,
+ * before any other thread runs.  The holdcount command does.  Cannot fail.
+ */
+void moments_blas_serial(void);
+
 /* From a universe: complete data uses the Gram route when T < M, else the
  * matrix route; data with gaps uses pairwise-complete covariances.
  * Memory besides the universe: the centred copy (M x T) and the T x T Gram

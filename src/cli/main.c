@@ -8,6 +8,7 @@
 #include <gsl/gsl_version.h>
 
 #include "cli.h"
+#include "holdcount/moments.h"
 
 /* OpenBLAS's own report of its version and build (declared in its
  * cblas.h, which is not on every include path). */
@@ -65,6 +66,9 @@ int main(int argc, char **argv)
 
 	/* Library code checks every GSL status itself; GSL must not abort. */
 	gsl_set_error_handler_off();
+	/* No threaded BLAS here: OpenBLAS's idle workers would spin on the
+	 * cores the sampler's threads need. */
+	moments_blas_serial();
 	cli_install_signal_handlers();
 	if (argc < 2) {
 		cli_print_main_help(stderr);
