@@ -99,6 +99,25 @@ static void finish(struct moments *mo)
 	mo->universe_variance = (mo->sum_var + mo->sum_cov) / (m * m);
 }
 
+/* Store every route's sums (design.md section 3: V, C, S, Q, W, Z) and the
+ * sum R of the off-diagonal correlations, then the derived figures. */
+static void store_sums(struct moments *mo, long double V, long double C, long double S,
+		       long double Q, long double W, long double Z, long double R)
+{
+	long double m = (long double)mo->m;
+
+	mo->has_spread = 1;
+	mo->has_correlation = 1;
+	mo->sum_var = (double)V;
+	mo->sum_cov = (double)C;
+	mo->sum_var2 = (double)S;
+	mo->sum_cov2 = (double)Q;
+	mo->sum_var_rowcov = (double)W;
+	mo->sum_rowcov2 = (double)Z;
+	mo->average_correlation = (double)(R / (m * (m - 1)));
+	finish(mo);
+}
+
 /*
  * V, C, S, Q, W, Z and the average correlation from a full M x M matrix.
  * Off-diagonal entries are read as given (the caller supplies a symmetric
@@ -139,16 +158,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 		C += r;
 	}
 	mo->m = m;
-	mo->has_spread = 1;
-	mo->has_correlation = 1;
-	mo->sum_var = (double)V;
-	mo->sum_cov = (double)C;
-	mo->sum_var2 = (double)S;
-	mo->sum_cov2 = (double)Q;
-	mo->sum_var_rowcov = (double)W;
-	mo->sum_rowcov2 = (double)Z;
-	mo->average_correlation = (double)(R / ((long double)m * (m - 1)));
-	finish(mo);
+	store_sums(mo, V, C, S, Q, W, Z, R);
 	return HC_OK;
 }
 
@@ -295,16 +305,7 @@ static int route_gram(struct moments *mo, const struct universe *u, const double
 		for (b = a + 1; b < t; b++)
 			F += 2.0L * g[a * t + b] * g[a * t + b];
 	}
-	mo->has_spread = 1;
-	mo->has_correlation = 1;
-	mo->sum_var = (double)V;
-	mo->sum_cov = (double)(ss / d - V);
-	mo->sum_var2 = (double)S;
-	mo->sum_cov2 = (double)(F / ((long double)d * d) - S);
-	mo->sum_var_rowcov = (double)W;
-	mo->sum_rowcov2 = (double)Z;
-	mo->average_correlation = (double)((zz - m) / ((long double)m * (m - 1)));
-	finish(mo);
+	store_sums(mo, V, ss / d - V, S, F / ((long double)d * d) - S, W, Z, zz - m);
 cleanup:
 	hc_free(s);
 	hc_free(z);
@@ -402,16 +403,7 @@ static int route_matrix(struct moments *mo, const struct universe *u, const doub
 		Z += r[i] * r[i];
 		C += r[i];
 	}
-	mo->has_spread = 1;
-	mo->has_correlation = 1;
-	mo->sum_var = (double)V;
-	mo->sum_cov = (double)C;
-	mo->sum_var2 = (double)S;
-	mo->sum_cov2 = (double)Q;
-	mo->sum_var_rowcov = (double)W;
-	mo->sum_rowcov2 = (double)Z;
-	mo->average_correlation = (double)(R / ((long double)m * (m - 1)));
-	finish(mo);
+	store_sums(mo, V, C, S, Q, W, Z, R);
 cleanup:
 	hc_free(v);
 	hc_free(r);
