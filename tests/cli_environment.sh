@@ -69,6 +69,13 @@ cflag=$(clones env -u HOLDCOUNT_THREADS "$HC" "${args[@]}" --threads 4)
 [ $((c4 - c1)) = 3 ] || fail "HOLDCOUNT_THREADS=4 started $c4 threads, =1 started $c1: expected 3 more"
 [ "$cover" = "$c1" ] || fail "--threads 1 with HOLDCOUNT_THREADS=4 started $cover threads, expected $c1 (the option wins)"
 [ "$cflag" = "$c4" ] || fail "--threads 4 started $cflag threads, HOLDCOUNT_THREADS=4 $c4: not the same default"
+# rolling holds --threads in its own options (threads for the bootstrap):
+# the variable is its default there too.
+r1=$(HOLDCOUNT_THREADS=1 clones "$HC" rolling --bootstrap 20 "$U")
+r3=$(HOLDCOUNT_THREADS=3 clones "$HC" rolling --bootstrap 20 "$U")
+[ $((r3 - r1)) = 2 ] || fail "rolling: HOLDCOUNT_THREADS=3 started $r3 threads, =1 started $r1: expected 2 more"
+HOLDCOUNT_THREADS=abc "$HC" rolling --bootstrap 20 "$U" >/dev/null 2>"$T/err"
+[ $? = 2 ] && grep -q "HOLDCOUNT_THREADS must be a whole number" "$T/err" || fail "rolling with HOLDCOUNT_THREADS=abc: $(cat "$T/err")"
 # ... and the figures do not depend on it (the sampler's grouping is fixed).
 for n in 1 3; do
 	HOLDCOUNT_THREADS=$n "$HC" curve --paths 3000 --format csv "$U" >"$T/t$n.csv" || fail "curve with HOLDCOUNT_THREADS=$n"

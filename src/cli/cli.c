@@ -293,26 +293,23 @@ static const struct cli_option *find_option(const struct cli_command *cmd, const
 	return NULL;
 }
 
-/* HOLDCOUNT_THREADS as the default of --threads (issue 8). */
+/* HOLDCOUNT_THREADS as the default of --threads (issue 8), for every
+ * command that has that option, whichever group holds it. */
 static int threads_from_environment(const struct cli_command *cmd, void *opts)
 {
-	const struct cli_group_use *g;
+	const struct cli_option *op;
 	const char *env = getenv("HOLDCOUNT_THREADS");
+	char *base;
 	size_t n;
 
-	if (!env || !*env)
+	if (!env || !*env || !(op = find_option(cmd, "threads", strlen("threads"), 0, opts, &base)))
 		return HC_OK;
-	for (g = cmd->groups; g && g->group; g++) {
-		if (g->group != &cli_group_sampling && g->group != &cli_group_sampling_no_sizes)
-			continue;
-		if (parse_count(env, &n) || n == 0) {
-			fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be a whole number from 1, found '%s'\n",
-				cmd->name, env);
-			return HC_EUSAGE;
-		}
-		((struct cli_sampling *)((char *)opts + g->offset))->threads = n;
+	if (parse_count(env, &n) || n == 0) {
+		fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be a whole number from 1, found '%s'\n",
+			cmd->name, env);
+		return HC_EUSAGE;
 	}
-	return HC_OK;
+	return store_value(op, base + op->offset, env) ? HC_EUSAGE : HC_OK;
 }
 
 static int take_option(const struct cli_command *cmd, struct cli_args *a, void *opts,
