@@ -83,7 +83,7 @@ void cli_rules_init(struct cli_rules *r)
 
 static const struct cli_group_use enough_groups[] = {
 	{ &cli_group_rules, OFF(rul) },
-	{ &cli_group_sampling, OFF(smp) },
+	{ &cli_group_sampling_no_sizes, OFF(smp) },
 	{ &cli_group_summary, OFF(sum) },
 	{ &cli_group_universe, OFF(uni) },
 	{ &cli_group_matrix_repair, OFF(uni) },
@@ -553,8 +553,6 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 	int rc;
 
 	hc_error_clear(&err);
-	if (o->smp.sizes)
-		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities in the matrix");
 	if (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)
 		return cli_usage_error("enough", "--strata draws from return series, not from a covariance matrix");
 	if ((rc = data_checks("enough", &o->smp, &o->strat, cfg)))
@@ -684,8 +682,6 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 	struct hc_error err;
 	int rc;
 
-	if (o->smp.sizes)
-		return cli_usage_error("enough", "--sizes does not apply: enough looks at every count from 1 to the securities kept");
 	if ((rc = data_checks("enough", &o->smp, &o->strat, cfg)))
 		return rc;
 	rc = cli_load_universe("enough", &o->uni, path, up);
