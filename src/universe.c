@@ -1061,7 +1061,7 @@ static int check_variation(const struct universe *u, const char *name,
 		}
 		if (!varies && obs >= 2)
 			return hc_error(err, HC_EDATA,
-				"%s: security '%s' has zero variance (the same return %.17g in all %zu periods); expected a varying series",
+				"%s: security '%s' has zero variance (the same return %.10g in all %zu periods); expected a varying series",
 				name, u->ids[i], first, obs);
 	}
 	return HC_OK;

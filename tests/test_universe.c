@@ -399,7 +399,7 @@ static void test_universe_zero_variance(void **state)
 
 	expect_error("date,A,B\n2021-01-31,0.01,0.0125\n2021-02-28,0.03,0.0125\n2021-03-31,0.02,0.0125\n",
 		     NULL, HC_EDATA,
-		     "u.csv: security 'B' has zero variance (the same return 0.012500000000000001 in all 3 periods)");
+		     "u.csv: security 'B' has zero variance (the same return 0.0125 in all 3 periods)");
 	universe_options_init(&o);
 	o.values = UNIVERSE_PRICES;
 	expect_error("date,A,B\n2021-01-31,2.385,7\n2021-02-28,2.4,7\n2021-03-31,2.5,7\n", &o, HC_EDATA,
