@@ -403,6 +403,43 @@ static void test_audit_screens_1940act_5b1(void **state)
 	universe_free(fx.u);
 }
 
+static void test_audit_screens_1940act_issuer_above_5pct_excluded(void **state)
+{
+	/* Investment Company Act of 1940 s. 5(b)(1) (from memory of the
+	 * statute): the 75% basket holds only issuers of "not more than 5 per
+	 * centum" of assets each, so an issuer at exactly 5.00% counts towards
+	 * it and one at 5.01% does not.
+	 *   at_limit: fifteen 5.00% issuers = 75.00%, in; passes.
+	 *   one_over: one of them at 5.01% (12.49 + 12.5 + 5.01 + fourteen
+	 *     5.00%): the basket is 70.00%, not 75.01%; fails.
+	 *   kept_out: 5.01 + 19.99 + fifteen 5.00%: the basket is exactly the
+	 *     fifteen, 75.00% (80.01% were 5.01% let in); passes. */
+	static const double at_limit[] = { 12.5, 12.5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };
+	static const double one_over[] = { 12.49, 12.5, 5.01, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };
+	static const double kept_out[] = { 5.01, 19.99, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5, 5 };
+	struct fixture fx;
+
+	fixture_load(&fx, 20, 36, 3, 0);
+	SCREEN_CASE(at_limit, NULL, {
+		assert_true(af->checks[AUDIT_PART_1940ACT_SMALL].passed);
+		assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.75, 1e-14);
+	});
+	SCREEN_CASE(one_over, NULL, {
+		assert_false(af->checks[AUDIT_PART_1940ACT_SMALL].passed);
+		assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.70, 1e-14);
+		assert_false(af->screen_passed[1]);
+		/* UCITS Art. 52 (from memory): 5.01% is "above 5%" there too,
+		 * 12.49 + 12.5 + 5.01 = 30% together */
+		assert_near(af->checks[AUDIT_PART_UCITS_AGGREGATE].figure, 0.30, 1e-14);
+	});
+	SCREEN_CASE(kept_out, NULL, {
+		assert_true(af->checks[AUDIT_PART_1940ACT_SMALL].passed);
+		assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.75, 1e-14);
+		assert_true(af->screen_passed[1]);
+	});
+	universe_free(fx.u);
+}
+
 static void test_audit_screens_ric_851b3(void **state)
 {
 	/* Internal Revenue Code s. 851(b)(3) (from memory): at least 50% of
@@ -494,14 +531,20 @@ static void test_audit_percentile_against_enumeration(void **state)
 {
 	/* M = 8, n = 3: all 56 subsets enumerated.  With K = 20000 sampled
 	 * portfolios the sampled rank has binomial standard error
-	 * sqrt(p(1-p)/K) <= 0.0036; 4.5 standard errors is the tolerance. */
+	 * sqrt(p(1-p)/K) <= 0.0036; 4.5 standard errors is the tolerance.
+	 * Four funds: Middle and Lowest equal-weight; Tilted holds QX01, QX04
+	 * and QX08 at 0.55/0.30/0.15, ranked (as every fund is) among the
+	 * equal-weight 3-subsets; Level holds the same three equally, so the
+	 * two ranks differ only by the weighting. */
+	static const size_t tilt_idx[] = { 0, 3, 7 };
+	static const double tilt_w[] = { 0.55, 0.30, 0.15 };
 	struct fixture fx;
 	struct audit_options opt;
 	struct holdings *h;
 	struct audit_result *a;
-	double var[8], exact, tol;
+	double var[8], exact, tol, rank[4];
 	size_t order[8], i, j, K = 20000;
-	char text[256];
+	char text[512];
 
 	fixture_load(&fx, 8, 30, 17, 0);
 	for (i = 0; i < 8; i++) {
@@ -516,16 +559,24 @@ static void test_audit_percentile_against_enumeration(void **state)
 	snprintf(text, sizeof text,
 		 "fund,id,weight\n"
 		 "Middle,QX02,1\nMiddle,QX05,1\nMiddle,QX07,1\n"
-		 "Lowest,%s,1\nLowest,%s,1\nLowest,%s,1\n",
+		 "Lowest,%s,1\nLowest,%s,1\nLowest,%s,1\n"
+		 "Tilted,QX01,0.55\nTilted,QX04,0.30\nTilted,QX08,0.15\n"
+		 "Level,QX01,1\nLevel,QX04,1\nLevel,QX08,1\n",
 		 fx.u->ids[order[0]], fx.u->ids[order[1]], fx.u->ids[order[2]]);
 	h = holdings_text(text);
 	options(&opt, K);
 	a = run(h, &fx, &opt);
-	for (i = 0; i < 2; i++) {
+	assert_int_equal(a->nfunds, 4);
+	/* Tilted's variance is w'Aw with A formed explicitly */
+	assert_rel(a->funds[2].variance, 12 * quad_form(fx.u, tilt_idx, tilt_w, 3), 1e-12);
+	for (i = 0; i < 4; i++) {
 		exact = enumerated_rank(fx.u, 3, a->funds[i].variance / 12);
 		tol = 4.5 * sqrt(fmax(exact * (1 - exact), 0.5 / (double)K) / (double)K);
 		assert_near(a->funds[i].sd_percentile, exact, tol);
+		rank[i] = exact;
 	}
+	/* the weighting moves the exact rank by more than one subset in 56 */
+	assert_true(fabs(rank[2] - rank[3]) > 1.0 / 56);
 	/* the three lowest-variance securities make a low-ranking portfolio */
 	assert_true(a->funds[1].sd_percentile < 0.2);
 	audit_result_free(a);
@@ -959,6 +1010,7 @@ int main(void)
 		cmocka_unit_test(test_audit_below_the_floor_is_not_a_number),
 		cmocka_unit_test(test_audit_screens_ucits_art52),
 		cmocka_unit_test(test_audit_screens_1940act_5b1),
+		cmocka_unit_test(test_audit_screens_1940act_issuer_above_5pct_excluded),
 		cmocka_unit_test(test_audit_screens_ric_851b3),
 		cmocka_unit_test(test_audit_screens_aggregate_by_issuer),
 		cmocka_unit_test(test_audit_percentile_against_enumeration),
