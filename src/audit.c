@@ -146,6 +146,15 @@ static int cmp_desc(const void *a, const void *b)
 	return x > y ? -1 : (x < y);
 }
 
+/* Whether (w, id) beats the largest so far (max, max_id): a larger weight,
+ * or an equal one with the smaller id in byte order (strcmp).  One rule for
+ * the largest position and the largest issuer, so both name the same id
+ * when a fund holds several at the largest weight, whatever the file order. */
+static int larger(double w, const char *id, double max, const char *max_id)
+{
+	return w > max || (w == max && max_id && strcmp(id, max_id) < 0);
+}
+
 static void concentration(struct audit_fund *af, const struct holdings_fund *fd,
 			  double *work)
 {
@@ -154,10 +163,11 @@ static void concentration(struct audit_fund *af, const struct holdings_fund *fd,
 	af->holdings = fd->n;
 	af->weight_sum = fd->raw_sum;
 	af->max_weight = -INFINITY;
+	af->max_id = NULL;
 	af->hhi = 0;
 	for (k = 0; k < fd->n; k++) {
 		double w = fd->h[k].weight;
-		if (w > af->max_weight) {
+		if (larger(w, fd->h[k].id, af->max_weight, af->max_id)) {
 			af->max_weight = w;
 			af->max_id = fd->h[k].id;
 		}
@@ -434,9 +444,10 @@ static void screens(struct audit_fund *af, const struct holdings_fund *fd,
 	int s;
 
 	af->issuer_max = -1;
+	af->issuer_max_id = NULL;
 	for (k = 0; k < n; k++) {
 		double w = iw[k].w;
-		if (w > af->issuer_max) {
+		if (larger(w, iw[k].issuer, af->issuer_max, af->issuer_max_id)) {
 			af->issuer_max = w;
 			af->issuer_max_id = iw[k].issuer;
 		}

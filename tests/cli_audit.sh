@@ -178,6 +178,19 @@ D="$HOLDCOUNT_SOURCE_DIR/data"
 expect 1 "2 of 3 funds fail the policy: 'Lirrand Focus Fund A' (1940act) 'Lirrand Select Fund C' (ucits, 1940act)" -- \
 	audit "$D/demo-universe.csv" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" --screens all --paths 500
 
+# the demo's tie: Focus Fund A holds four positions at 9.8% (LIR106 first in
+# the file); the largest position and the largest issuer both name the
+# smallest id, LIR046 (the rule in docs/audit.md)
+"$HOLDCOUNT" audit "$D/demo-universe.csv" --holdings "$D/demo-funds.csv" --paths 0 --format json -q >"$T/demo.json" 2>"$T/err"
+"${PYTHON:-/usr/bin/python3}" - "$T/demo.json" "$D/demo-funds.csv" <<'EOF' || fails=$((fails + 1))
+import csv, json, sys
+focus = json.load(open(sys.argv[1]))["funds"][0]
+rows = [r for r in csv.DictReader(open(sys.argv[2], newline="")) if r["fund"] == focus["fund"]]
+top = [r["id"] for r in rows if float(r["weight"]) == 0.098]
+assert len(top) == 4 and top[0] == "LIR106" and min(top) == "LIR046", top
+assert focus["max_weight_id"] == "LIR046" and focus["max_issuer"] == "LIR046", focus
+EOF
+
 if [ "$fails" -ne 0 ]; then
 	echo "$fails failure(s)"
 	exit 1

@@ -491,6 +491,42 @@ static void test_audit_screens_aggregate_by_issuer(void **state)
 	universe_free(fx.u);
 }
 
+static void test_audit_largest_ties_go_to_the_smallest_id(void **state)
+{
+	/* Constructed tie: QX09 and QX04 both hold 30%, QX09 first in the file.
+	 * The documented rule (docs/audit.md) names the smallest id in byte
+	 * order, QX04, for the largest position and the largest issuer alike.
+	 * With an issuer column the same rule picks issuer "Ib" over "Iz" (QX09
+	 * and QX04 map to them), and the largest position stays QX04. */
+	static const char *plain =
+		"fund,id,weight\nOak,QX09,0.3\nOak,QX04,0.3\nOak,QX06,0.2\nOak,QX02,0.2\n";
+	static const char *issued =
+		"fund,id,weight,issuer\nOak,QX09,0.3,Ib\nOak,QX04,0.3,Iz\nOak,QX06,0.2,Ic\nOak,QX02,0.2,Id\n";
+	struct fixture fx;
+	struct audit_options opt;
+	struct holdings *h;
+	struct audit_result *a;
+
+	fixture_load(&fx, 12, 36, 43, 0);
+	options(&opt, 0);
+	h = holdings_text(plain);
+	a = run(h, &fx, &opt);
+	assert_near(a->funds[0].max_weight, 0.3, 1e-15);
+	assert_string_equal(a->funds[0].max_id, "QX04");
+	assert_string_equal(a->funds[0].issuer_max_id, "QX04");
+	assert_string_equal(a->funds[0].checks[AUDIT_PART_UCITS_ISSUER].issuer, "QX04");
+	audit_result_free(a);
+	holdings_free(h);
+	h = holdings_text(issued);
+	a = run(h, &fx, &opt);
+	assert_string_equal(a->funds[0].max_id, "QX04");
+	assert_string_equal(a->funds[0].issuer_max_id, "Ib");
+	assert_near(a->funds[0].issuer_max, 0.3, 1e-15);
+	audit_result_free(a);
+	holdings_free(h);
+	universe_free(fx.u);
+}
+
 /* ---- percentile ---- */
 
 /* The variance of the equal-weight portfolio of the securities in mask. */
@@ -1013,6 +1049,7 @@ int main(void)
 		cmocka_unit_test(test_audit_screens_1940act_issuer_above_5pct_excluded),
 		cmocka_unit_test(test_audit_screens_ric_851b3),
 		cmocka_unit_test(test_audit_screens_aggregate_by_issuer),
+		cmocka_unit_test(test_audit_largest_ties_go_to_the_smallest_id),
 		cmocka_unit_test(test_audit_percentile_against_enumeration),
 		cmocka_unit_test(test_audit_percentile_ties_at_full_count),
 		cmocka_unit_test(test_audit_matrix_agrees_with_returns),

@@ -135,7 +135,7 @@ struct audit_fund {
 	size_t holdings;            /* positions with non-zero weight */
 	double weight_sum;          /* raw sum before normalisation (market value total for values) */
 	double max_weight;
-	const char *max_id;
+	const char *max_id;         /* on a tie, the smallest id (strcmp order) */
 	double top10_share;
 	double hhi;                 /* sum of squared weights */
 	double effective_holdings;  /* 1/hhi */
@@ -159,7 +159,7 @@ struct audit_fund {
 	const char *max_sector;
 	double max_sector_weight;   /* largest mapped sector; NaN without a map */
 	double issuer_max;          /* largest issuer share */
-	const char *issuer_max_id;
+	const char *issuer_max_id;  /* on a tie, the smallest issuer (strcmp order), as max_id */
 	struct audit_check checks[AUDIT_NPARTS];
 	int screen_passed[AUDIT_NSCREENS];
 	unsigned failed;            /* AUDIT_RULE_* bits */
