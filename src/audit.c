@@ -761,7 +761,7 @@ static const struct {
 	{ "equal_weight_random_sd", "random sd, equal weights", REPORT_STYLE_PERCENT },
 	{ "max_weight_id", "largest id", REPORT_STYLE_PLAIN },
 	{ "risk_holdings", "in universe", REPORT_STYLE_PLAIN },
-	{ "missing_ids", "missing ids", REPORT_STYLE_PLAIN },
+	{ "missing_count", "ids missing", REPORT_STYLE_PLAIN },
 	{ "missing_weight", "missing weight", REPORT_STYLE_PERCENT },
 	{ "risk_on_subset", "risk on subset", REPORT_STYLE_PLAIN },
 	{ "below_floor", "below floor", REPORT_STYLE_PLAIN },

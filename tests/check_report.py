@@ -102,6 +102,20 @@ for row in summary["curve"]["curve"]:
           f"TE({n}) {row['expected_tracking_error']} vs numpy sqrt {te2}")
 check(abs(summary["universe"]["floor_sd"] - np.sqrt(12 * cbar)) <= 1e-12, "floor sd vs numpy")
 
+# audit.csv's missing_count (a count, so named; there is no missing_ids
+# column) against the demo files themselves: per fund, the ids of
+# demo-funds.csv that are not complete securities of demo-universe.csv.
+complete_ids = {h for h, c in zip(data[0][1:], cols) if all(x not in ("", "NA", "NaN", ".") for x in c)}
+with open(os.path.join(SRC, "data", "demo-funds.csv"), newline="") as fp:
+    held = list(csv.DictReader(fp))
+with open(os.path.join(out, "audit.csv"), newline="") as fp:
+    audit_rows = list(csv.DictReader(fp))
+check("missing_count" in audit_rows[0] and "missing_ids" not in audit_rows[0], "audit.csv lacks missing_count")
+for row in audit_rows:
+    want = sum(1 for h in held if h["fund"] == row["fund"] and h["id"] not in complete_ids)
+    check(int(row["missing_count"]) == want, f"audit.csv {row['fund']}: missing_count {row['missing_count']}, "
+          f"expected {want} from the demo files")
+
 # The rolling windows (in by default: 240 months hold two five-year windows)
 # against numpy window by window: the securities complete in the window, and
 # the near-floor count, the smallest N <= M with vbar/N + (1 - 1/N) cbar <=

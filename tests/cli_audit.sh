@@ -142,6 +142,14 @@ printf 'fund,id,weight\nWren,QA1,0.5\nWren,QZ9,0.5\n' >"$T/unknown.csv"
 expect 3 "holdcount audit: $T/unknown.csv:3:2: id 'QZ9' of fund 'Wren' is not in the universe '$T/u.csv'" -- \
 	audit "$T/u.csv" --holdings "$T/unknown.csv" --strict
 expect 0 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0   # without --strict: risk on the rest
+# the CSV's missing_count counts them (QZ9: one id, 50% of Wren's weight)
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --format csv -q >"$T/unknown-out.csv" 2>"$T/err"
+"${PYTHON:-/usr/bin/python3}" - "$T/unknown-out.csv" <<'EOF' || fails=$((fails + 1))
+import csv, sys
+rows = list(csv.DictReader(open(sys.argv[1], newline="")))
+assert "missing_ids" not in rows[0], list(rows[0])
+assert rows[0]["missing_count"] == "1" and float(rows[0]["missing_weight"]) == 0.5, rows[0]
+EOF
 printf 'fund,id,weight\nWren,QA1,1.2\nWren,QA2,-0.2\n' >"$T/short.csv"
 expect 3 "found negative weight '-0.2', expected zero or more (short positions need --allow-short)" -- \
 	audit "$T/u.csv" --holdings "$T/short.csv"
