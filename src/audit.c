@@ -812,8 +812,10 @@ static int fund_row(struct report_table *t, const struct audit_result *a,
 	report_table_set_real(t, r, FC_EFFECTIVE, af->effective_holdings);
 	report_table_set_real(t, r, FC_SD, af->sd);
 	report_table_set_real(t, r, FC_DR, af->diversification_ratio);
+	/* no number: "below the floor" in CSV and text, null in JSON, where
+	 * the column below_floor says why */
 	if (af->risk_known && af->below_floor) {
-		if (report_table_set_text(t, r, FC_EQUIVALENT, "below the floor") != HC_OK)
+		if (report_table_set_none(t, r, FC_EQUIVALENT, "below the floor") != HC_OK)
 			return HC_ENOMEM;
 	} else
 		report_table_set_real(t, r, FC_EQUIVALENT, af->equivalent_count);

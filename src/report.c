@@ -317,6 +317,18 @@ int report_table_set_text(struct report_table *t, size_t row, size_t col, const 
 	return HC_OK;
 }
 
+int report_table_set_none(struct report_table *t, size_t row, size_t col, const char *reason)
+{
+	char *copy = hc_strdup(reason ? reason : "");
+	struct report_value *v;
+
+	if (!copy)
+		return HC_ENOMEM;
+	v = cell(t, row, col);
+	v->text = copy;     /* kind stays REPORT_NONE */
+	return HC_OK;
+}
+
 void report_table_set_bool(struct report_table *t, size_t row, size_t col, int b)
 {
 	struct report_value *v = cell(t, row, col);
@@ -354,7 +366,7 @@ static const char *format_raw(char *buf, size_t size, const struct report_value 
 	case REPORT_BOOL:
 		return v->integer ? "true" : "false";
 	default:
-		return "";
+		return v->text ? v->text : "";   /* no value, or its reason */
 	}
 }
 
@@ -392,7 +404,7 @@ static const char *format_text(char *buf, size_t size, const struct report_value
 	case REPORT_BOOL:
 		return v->integer ? "yes" : "no";
 	default:
-		return "-";
+		return v->text ? v->text : "-";
 	}
 }
 
@@ -450,7 +462,8 @@ static int column_is_numeric(const struct report_table *t, size_t col)
 	size_t row;
 
 	for (row = 0; row < t->nrows; row++)
-		if (t->cells[row * t->ncols + col].kind == REPORT_TEXT)
+		if (t->cells[row * t->ncols + col].kind == REPORT_TEXT ||
+		    t->cells[row * t->ncols + col].text)   /* a reason for no value */
 			return 0;
 	return 1;
 }
@@ -463,7 +476,8 @@ static int column_is_empty(const struct report_table *t, size_t col)
 	size_t row;
 
 	for (row = 0; row < t->nrows; row++)
-		if (t->cells[row * t->ncols + col].kind != REPORT_NONE)
+		if (t->cells[row * t->ncols + col].kind != REPORT_NONE ||
+		    t->cells[row * t->ncols + col].text)
 			return 0;
 	return t->nrows > 0;
 }

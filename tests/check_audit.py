@@ -19,9 +19,14 @@ route draws the same portfolios from the same seed (sampler.h) and their
 variances differ by rounding only; (3) --missing pairwise on a history with
 gaps against --covariance on numpy's pairwise-complete matrix of that file
 (each pair over the periods both have, divisor n_ij - 1).
+
+(4) A fund below the floor (numpy's w'Aw under c-bar): the CSV says
+"below the floor" and the JSON has equivalent_count null with below_floor
+true, while a fund above it has numpy's number in both.
 """
 import csv
 import io
+import json
 import os
 import subprocess
 import sys
@@ -227,6 +232,49 @@ def compare_pairwise(seed):
             failures.append(f"pairwise vs matrix {r['fund']}: sd_percentile {r['sd_percentile']} vs {c['sd_percentile']}")
 
 
+def compare_floor_json(seed):
+    """(4) "below the floor" in the CSV, null with below_floor true in the
+    JSON: ZQ002 is nearly ZQ001's mirror image, so numpy's w'Aw of the
+    50/50 pair is under the average covariance c-bar; a fund of three
+    ordinary securities has its number in both, equal to numpy's."""
+    rng = np.random.default_rng(seed)
+    upath = os.path.join(TMP, "check_audit_u_floor.csv")
+    hpath = os.path.join(TMP, "check_audit_h_floor.csv")
+    ids, x = write_universe(upath, rng, 12, 60)
+    lines = open(upath).read().splitlines()
+    x[:, 1] = -x[:, 0] + rng.normal(0, 0.001, 60)
+    with open(upath, "w") as f:
+        f.write(lines[0] + "\n")
+        for line, row in zip(lines[1:], x):
+            f.write(line.split(",")[0] + "," + ",".join(f"{v:.17g}" for v in row) + "\n")
+    x = np.array([[float(c) for c in line.split(",")[1:]] for line in open(upath).read().splitlines()[1:]])
+    funds = {"Hedge": (["ZQ001", "ZQ002"], [0.5, 0.5]), "Plain": (["ZQ004", "ZQ007", "ZQ010"], [0.5, 0.3, 0.2])}
+    with open(hpath, "w") as f:
+        f.write("fund,id,weight\n")
+        for name, (held, raw) in funds.items():
+            f.writelines(f"{name},{h},{r}\n" for h, r in zip(held, raw))
+    ref = {name: reference(held, raw, ids, x)["equivalent_count"] for name, (held, raw) in funds.items()}
+    if ref["Hedge"] != "below the floor" or isinstance(ref["Plain"], str):
+        failures.append(f"floor: the constructed funds do not straddle the floor in numpy: {ref}")
+        return
+    rows = {r["fund"]: r for r in run(upath, hpath)}
+    out = subprocess.run([HOLDCOUNT, "audit", upath, "--holdings", hpath, "--format", "json", "--paths", "0"],
+                         capture_output=True, text=True)
+    if out.returncode != 0 or len(rows) != 2:
+        failures.append(f"floor: exit status {out.returncode}, {len(rows)} CSV rows: {out.stderr}")
+        return
+    js = {f["fund"]: f for f in json.loads(out.stdout)["funds"]}
+    if rows["Hedge"]["equivalent_count"] != "below the floor":
+        failures.append(f"floor: CSV equivalent_count '{rows['Hedge']['equivalent_count']}'")
+    if js["Hedge"]["equivalent_count"] is not None or js["Hedge"]["below_floor"] is not True:
+        failures.append(f"floor: JSON {js['Hedge']['equivalent_count']!r}, below_floor {js['Hedge']['below_floor']!r}")
+    if js["Plain"]["below_floor"] is not False or not isinstance(js["Plain"]["equivalent_count"], float):
+        failures.append(f"floor: JSON Plain {js['Plain']['equivalent_count']!r}, below_floor {js['Plain']['below_floor']!r}")
+    else:
+        check("floor: JSON Plain equivalent_count", js["Plain"]["equivalent_count"], ref["Plain"])
+        check("floor: CSV Plain equivalent_count", float(rows["Plain"]["equivalent_count"]), ref["Plain"])
+
+
 def compare(kind, seed):
     rng = np.random.default_rng(seed)
     upath = os.path.join(TMP, f"check_audit_u_{kind}.csv")
@@ -264,6 +312,7 @@ compare("value", 4711)
 compare_matrix_generated(1913)
 compare_matrix_of_returns(3571)
 compare_pairwise(6029)
+compare_floor_json(8117)
 if failures:
     print("\n".join(failures))
     sys.exit(1)

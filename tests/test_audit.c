@@ -282,6 +282,9 @@ static void test_audit_below_the_floor_is_not_a_number(void **state)
 	double vbar, cbar;
 	const struct report_table *t;
 	size_t col;
+	char line[4096];
+	FILE *fp;
+	int json_null = 0, json_flag = 0, json_text = 0;
 
 	fixture_load(&fx, 12, 48, 5, 1);
 	averages(fx.u, &vbar, &cbar);
@@ -298,8 +301,31 @@ static void test_audit_below_the_floor_is_not_a_number(void **state)
 		if (strcmp(t->cols[col].key, "equivalent_count") == 0)
 			break;
 	assert_true(col < t->ncols);
-	assert_int_equal(t->cells[col].kind, REPORT_TEXT);
+	/* no number, with the reason: CSV (and the text table) say "below the
+	 * floor", JSON has null there and below_floor true */
+	assert_int_equal(t->cells[col].kind, REPORT_NONE);
 	assert_string_equal(t->cells[col].text, "below the floor");
+	fp = tmpfile();
+	assert_non_null(fp);
+	assert_int_equal(report_writer_csv->write(fp, r, &err), HC_OK);
+	rewind(fp);
+	assert_non_null(fgets(line, sizeof line, fp));
+	assert_non_null(fgets(line, sizeof line, fp));
+	assert_non_null(strstr(line, ",below the floor,"));
+	fclose(fp);
+	fp = tmpfile();
+	assert_non_null(fp);
+	assert_int_equal(report_writer_json->write(fp, r, &err), HC_OK);
+	rewind(fp);
+	while (fgets(line, sizeof line, fp)) {     /* cJSON prints "key":<tab>value */
+		json_null |= strstr(line, "\"equivalent_count\":\tnull,") != NULL;
+		json_flag |= strstr(line, "\"below_floor\":\ttrue,") != NULL;
+		json_text |= strstr(line, "below the floor") != NULL;
+	}
+	fclose(fp);
+	assert_true(json_null);
+	assert_true(json_flag);
+	assert_false(json_text);
 	report_free(r);
 	audit_result_free(a);
 	holdings_free(h);

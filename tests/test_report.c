@@ -399,6 +399,47 @@ static void test_report_column_after_rows_widens(void **state)
 	report_free(r);
 }
 
+/* A cell with no value but a reason (report_table_set_none): the reason in
+ * CSV and in the text table, null in JSON (RFC 8259 section 3: a number
+ * field that has no number is null, not a string), and the column is not
+ * dropped from the text view as an empty one would be. */
+static void test_report_none_with_a_reason(void **state)
+{
+	struct report *r = report_alloc();
+	struct report_table *t = report_add_table(r, "funds", NULL);
+	cJSON *doc, *rows;
+	char *s;
+	int rc;
+
+	assert_non_null(t);
+	assert_int_equal(report_table_add_column(t, "fund", "fund", 0), HC_OK);
+	assert_int_equal(report_table_add_column(t, "count", "count", REPORT_STYLE_FIXED2), HC_OK);
+	assert_int_equal(report_table_add_row(t), HC_OK);
+	assert_int_equal(report_table_add_row(t), HC_OK);
+	assert_int_equal(report_table_set_text(t, 0, 0, "Alder"), HC_OK);
+	report_table_set_real(t, 0, 1, 23.85);
+	assert_int_equal(report_table_set_text(t, 1, 0, "Birch"), HC_OK);
+	report_table_set_real(t, 1, 1, 4.5);            /* replaced below: no leak */
+	assert_int_equal(report_table_set_none(t, 1, 1, "below the floor"), HC_OK);
+	assert_int_equal(t->cells[3].kind, REPORT_NONE);
+	expect_render(report_writer_csv, r, "fund,count\nAlder,23.850000000000001\nBirch,below the floor\n");
+	expect_render(report_writer_text, r,
+		      "fund   count\n"
+		      "Alder  23.85\n"
+		      "Birch  below the floor\n");
+	s = render(report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	doc = cJSON_Parse(s);
+	assert_non_null(doc);
+	rows = cJSON_GetObjectItemCaseSensitive(doc, "funds");
+	assert_int_equal(cJSON_GetArraySize(rows), 2);
+	assert_true(cJSON_IsNumber(cJSON_GetObjectItemCaseSensitive(cJSON_GetArrayItem(rows, 0), "count")));
+	assert_true(cJSON_IsNull(cJSON_GetObjectItemCaseSensitive(cJSON_GetArrayItem(rows, 1), "count")));
+	cJSON_Delete(doc);
+	free(s);
+	report_free(r);
+}
+
 /* Writing to a full device: the writers report HC_EIO, not success. */
 static void test_report_write_failure_is_eio(void **state)
 {
@@ -474,6 +515,7 @@ int main(void)
 		cmocka_unit_test(test_report_writer_find),
 		cmocka_unit_test(test_report_cautions_cover_each_subject),
 		cmocka_unit_test(test_report_column_after_rows_widens),
+		cmocka_unit_test(test_report_none_with_a_reason),
 		cmocka_unit_test(test_report_write_failure_is_eio),
 		cmocka_unit_test(test_report_allocation_failure),
 	};

@@ -237,7 +237,9 @@ void audit_result_free(struct audit_result *a);
  * "screens" (fund,screen,part,passed,figure,test,limit,issuer), "missing"
  * (fund,id,weight,line) and "sectors" (fund,sector,weight,holdings) when
  * there are any, the holdings' warnings and the cautions as notes.
- * equivalent_count is the text "below the floor" when there is no count;
+ * equivalent_count has no value when there is no count, with the reason
+ * "below the floor" (report_table_set_none: that text in CSV and the text
+ * table, null in JSON) and below_floor true;
  * failed_rules is a ';'-separated list of rule names (audit_rule_name).
  */
 int audit_report(struct report **out, const struct audit_result *a,

@@ -30,7 +30,9 @@ extern "C" {
 #endif
 
 enum report_kind {
-	REPORT_NONE = 0,    /* no value: empty in CSV, null in JSON, "-" in text */
+	REPORT_NONE = 0,    /* no value: empty in CSV, null in JSON, "-" in text;
+			     * with a reason (text set, report_table_set_none),
+			     * the reason in CSV and text, still null in JSON */
 	REPORT_REAL = 1,
 	REPORT_INT = 2,
 	REPORT_TEXT = 3,
@@ -51,7 +53,7 @@ struct report_value {
 	int style;
 	double real;
 	long long integer;
-	char *text;                /* owned by the report */
+	char *text;                /* owned by the report; for REPORT_NONE, NULL or the reason */
 };
 
 struct report_column {
@@ -112,6 +114,11 @@ void report_table_set_real(struct report_table *t, size_t row, size_t col, doubl
 void report_table_set_int(struct report_table *t, size_t row, size_t col, long long x);
 int report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s);
 void report_table_set_bool(struct report_table *t, size_t row, size_t col, int b);
+/* No value, with the reason the CSV and text writers show in its place (a
+ * figure that does not exist for this row: "below the floor"); the JSON
+ * writer still writes null, so a number field never holds a string there,
+ * and the row should carry a boolean saying why.  reason is copied. */
+int report_table_set_none(struct report_table *t, size_t row, size_t col, const char *reason);
 
 /* The writers share one interface, as GSL's generator types do.  write
  * renders r to fp and returns HC_OK, HC_EIO when fp reports a write error,

@@ -539,8 +539,9 @@ static void md_value(FILE *fp, const struct report_value *v, int style)
 	case REPORT_BOOL:
 		fputs(v->integer ? "yes" : "no", fp);
 		break;
-	default:
-		fputs("-", fp);
+	default:   /* no value, or its reason (report_table_set_none) */
+		for (s = v->text ? v->text : "-"; *s; s++)
+			fputs(*s == '|' ? "\\|" : (char[2]){ *s == '\n' ? ' ' : *s, 0 }, fp);
 	}
 }
 
@@ -569,7 +570,7 @@ static int numeric_column(const struct report_table *t, const char *key)
 
 	for (i = 0; j >= 0 && i < t->nrows; i++) {
 		int kind = t->cells[i * t->ncols + (size_t)j].kind;
-		if (kind == REPORT_TEXT || kind == REPORT_BOOL)
+		if (kind == REPORT_TEXT || kind == REPORT_BOOL || t->cells[i * t->ncols + (size_t)j].text)
 			return 0;
 		any |= kind != REPORT_NONE;
 	}
