@@ -169,12 +169,13 @@ static int load_inputs(const char *cmd, const struct cli_holdings *o, struct hol
 /* One line per fund holding ids the universe lacks, whatever the format,
  * so a script reading the CSV or JSON also hears that the fund's risk
  * figures rest on part of it (the ids themselves are in the "missing"
- * table).  --quiet silences it. */
-static void say_missing(const char *cmd, const struct audit_result *res, int quiet)
+ * table).  Like the weight-sum warning it is not progress, so --quiet
+ * (which silences progress) leaves it. */
+static void say_missing(const char *cmd, const struct audit_result *res)
 {
 	size_t f;
 
-	for (f = 0; !quiet && f < res->nfunds; f++) {
+	for (f = 0; f < res->nfunds; f++) {
 		const struct audit_fund *af = &res->funds[f];
 		size_t n = af->nmissing;
 		if (!n)
@@ -215,7 +216,7 @@ static int audit_data(const char *cmd, const struct cli_holdings *ho, const stru
 	rc = am ? audit_run_matrix(res, *h, am, mo, &ao, &err) : audit_run(res, *h, u, mo, &ao, &err);
 	cli_progress_finish(&prog);
 	if (rc == HC_OK) {
-		say_missing(cmd, *res, quiet);
+		say_missing(cmd, *res);
 		rc = audit_report(out, *res, *h, &err);
 	}
 	return rc ? cli_fail(cmd, &err) : HC_OK;
