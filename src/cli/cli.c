@@ -309,12 +309,14 @@ static const struct cli_option *find_option(const struct cli_command *cmd, const
 		*left_out = NULL;
 	for (g = cmd->groups; g && g->group; g++)
 		for (op = g->group->options; op->name; op++) {
+			const struct cli_omit *om;
+
 			if (!(len ? (strlen(op->name) == len && strncmp(op->name, name, len) == 0)
 				  : (shortc && op->short_name == shortc)))
 				continue;
-			if (omitted(g, op)) {
+			if ((om = omitted(g, op)) != NULL) {
 				if (left_out)
-					*left_out = omitted(g, op);
+					*left_out = om;
 				continue;
 			}
 			*base = (char *)opts + g->offset;
