@@ -178,7 +178,8 @@ expect 0 "" -- audit "$T/u.csv" --holdings "$T/short.csv" --allow-short --paths 
 expect 2 "--holdings FILE is required" -- audit "$T/u.csv"
 expect 2 "unknown screen 'ucit'" -- audit "$T/u.csv" --holdings "$T/ok.csv" --screens ucits,ucit
 expect 2 "--max-sector-weight needs --sectors FILE" -- audit "$T/u.csv" --holdings "$T/ok.csv" --max-sector-weight 30%
-expect 2 "unknown option '--sizes'" -- audit "$T/u.csv" --holdings "$T/ok.csv" --sizes 1-3
+expect 2 "holdcount audit: --sizes does not apply: the audit compares each fund at its own holding count (see 'holdcount audit --help')" -- \
+	audit "$T/u.csv" --holdings "$T/ok.csv" --sizes 1-3
 # a return history read as a covariance matrix: the matrix loader's message, data error
 expect 3 "holdcount audit: $T/u.csv:2:1: row id '2010-01' does not match 'QA1' in column 2 of the header" -- \
 	audit "$T/u.csv" --holdings "$T/ok.csv" --covariance

@@ -101,8 +101,6 @@ static const struct cli_option sampling_options[] = {
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 const struct cli_group cli_group_sampling = { "sampling options", sampling_options };
-/* --sizes is the table's first entry, so the rest of the table is the group without it. */
-const struct cli_group cli_group_sampling_no_sizes = { "sampling options", sampling_options + 1 };
 
 #define SUM(f) offsetof(struct cli_summary, f)
 static const struct cli_option summary_options[] = {
@@ -274,21 +272,55 @@ static int usage_fail(const struct cli_command *cmd, const char *fmt, ...)
 	return HC_EUSAGE;
 }
 
+/* The entry leaving op out of the command's use g of its group, or NULL
+ * when the command takes op. */
+static const struct cli_omit *omitted(const struct cli_group_use *g, const struct cli_option *op)
+{
+	const struct cli_omit *om;
+
+	for (om = g->omit; om && om->name; om++)
+		if (strcmp(om->name, op->name) == 0)
+			return om;
+	return NULL;
+}
+
+/* The options of g the command shows and takes. */
+static size_t options_taken(const struct cli_group_use *g)
+{
+	const struct cli_option *op;
+	size_t n = 0;
+
+	for (op = g->group->options; op->name; op++)
+		n += !omitted(g, op);
+	return n;
+}
+
 /* Find a long option (name of length len) or a short one (len 0) among
- * the command's groups; sets *base to the group's storage. */
+ * the command's groups; sets *base to the group's storage.  An option the
+ * command leaves out is not found; *left_out (when not NULL) then says why. */
 static const struct cli_option *find_option(const struct cli_command *cmd, const char *name,
-					    size_t len, char shortc, void *opts, char **base)
+					    size_t len, char shortc, void *opts, char **base,
+					    const struct cli_omit **left_out)
 {
 	const struct cli_group_use *g;
 	const struct cli_option *op;
 
+	if (left_out)
+		*left_out = NULL;
 	for (g = cmd->groups; g && g->group; g++)
 		for (op = g->group->options; op->name; op++) {
-			if (len ? (strlen(op->name) == len && strncmp(op->name, name, len) == 0)
-				: (shortc && op->short_name == shortc)) {
-				*base = (char *)opts + g->offset;
-				return op;
+			const struct cli_omit *om;
+
+			if (!(len ? (strlen(op->name) == len && strncmp(op->name, name, len) == 0)
+				  : (shortc && op->short_name == shortc)))
+				continue;
+			if ((om = omitted(g, op)) != NULL) {
+				if (left_out)
+					*left_out = om;
+				continue;
 			}
+			*base = (char *)opts + g->offset;
+			return op;
 		}
 	return NULL;
 }
@@ -302,7 +334,7 @@ static int threads_from_environment(const struct cli_command *cmd, void *opts)
 	char *base;
 	size_t n;
 
-	if (!env || !*env || !(op = find_option(cmd, "threads", strlen("threads"), 0, opts, &base)))
+	if (!env || !*env || !(op = find_option(cmd, "threads", strlen("threads"), 0, opts, &base, NULL)))
 		return HC_OK;
 	if (parse_count(env, &n) || n == 0) {
 		fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be a whole number from 1, found '%s'\n",
@@ -315,24 +347,28 @@ static int threads_from_environment(const struct cli_command *cmd, void *opts)
 static int take_option(const struct cli_command *cmd, struct cli_args *a, void *opts,
 		       int argc, char **argv, int *i)
 {
-	const char *arg = argv[*i], *val = NULL, *eq;
+	const char *arg = argv[*i], *val = NULL, *eq = NULL;
 	const struct cli_option *op;
+	const struct cli_omit *left_out = NULL;
 	char *base = NULL;
 
 	if (arg[1] == '-') {
 		eq = strchr(arg + 2, '=');
-		op = find_option(cmd, arg + 2, eq ? (size_t)(eq - arg - 2) : strlen(arg + 2), 0, opts, &base);
+		op = find_option(cmd, arg + 2, eq ? (size_t)(eq - arg - 2) : strlen(arg + 2), 0, opts, &base,
+				 &left_out);
 		if (eq)
 			val = eq + 1;
-		if (!op)
-			return usage_fail(cmd, "unknown option '%.*s'", (int)(eq ? eq - arg : (long)strlen(arg)), arg);
 	} else {
-		op = arg[1] ? find_option(cmd, NULL, 0, arg[1], opts, &base) : NULL;
-		if (!op)
-			return usage_fail(cmd, "unknown option '%.2s'", arg);
+		op = arg[1] ? find_option(cmd, NULL, 0, arg[1], opts, &base, &left_out) : NULL;
 		if (arg[2])
 			val = arg + 2;
 	}
+	if (!op && left_out)
+		return usage_fail(cmd, "--%s does not apply: %s", left_out->name, left_out->why);
+	if (!op && arg[1] == '-')
+		return usage_fail(cmd, "unknown option '%.*s'", (int)(eq ? eq - arg : (long)strlen(arg)), arg);
+	if (!op)
+		return usage_fail(cmd, "unknown option '%.2s'", arg);
 	a->given[a->ngiven++] = op;
 	if (op->kind == CLI_FLAG) {
 		if (val)
@@ -448,7 +484,7 @@ static int check_files(const struct cli_command *cmd, const struct cli_args *a, 
 		for (op = g->group->options; op->name; op++) {
 			const char *v;
 
-			if (!is_output_option(op) && !is_input_option(op))
+			if ((!is_output_option(op) && !is_input_option(op)) || omitted(g, op))
 				continue;
 			v = *(const char *const *)((const char *)opts + g->offset + op->offset);
 			if (!v || !*v || strcmp(v, "-") == 0)
@@ -613,11 +649,12 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd)
 	fputs("\noptions:\n", fp);
 	print_option(fp, &help_option);
 	for (g = cmd->groups; g && g->group; g++) {
-		if (!g->group->options[0].name)
+		if (!options_taken(g))
 			continue;
 		fprintf(fp, "\n%s:\n", g->group->title);
 		for (op = g->group->options; op->name; op++)
-			print_option(fp, op);
+			if (!omitted(g, op))
+				print_option(fp, op);
 	}
 	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
 	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted.\n", fp);
@@ -765,13 +802,14 @@ void cli_print_man(FILE *fp, const struct cli_command *cmd, const char *version)
 	roff_paragraph(fp, cmd->description && *cmd->description ? cmd->description : cmd->summary);
 	fputs(".SH OPTIONS\n.TP\n\\fB\\-h\\fR, \\fB\\-\\-help\\fR\nshow the help and exit.\n", fp);
 	for (g = cmd->groups; g && g->group; g++) {
-		if (!g->group->options[0].name)
+		if (!options_taken(g))
 			continue;
 		fputs(".SS \"", fp);
 		roff_text(fp, g->group->title);
 		fputs("\"\n", fp);
 		for (op = g->group->options; op->name; op++)
-			man_option(fp, op);
+			if (!omitted(g, op))
+				man_option(fp, op);
 	}
 	man_common_sections(fp);
 	fputs(".SH SEE ALSO\n.BR holdcount (1)\n", fp);
@@ -804,7 +842,7 @@ void cli_print_bash_completion(FILE *fp)
 		fprintf(fp, "\t%s)\n\t\tcase $prev in\n", cmd->name);
 		for (g = cmd->groups; g && g->group; g++)
 			for (op = g->group->options; op->name; op++) {
-				if (op->kind == CLI_FLAG)
+				if (op->kind == CLI_FLAG || omitted(g, op))
 					continue;
 				fprintf(fp, "\t\t--%s", op->name);
 				if (op->short_name)
@@ -825,7 +863,8 @@ void cli_print_bash_completion(FILE *fp)
 		fputs("\t\tesac\n\t\topts=\"--help", fp);
 		for (g = cmd->groups; g && g->group; g++)
 			for (op = g->group->options; op->name; op++)
-				fprintf(fp, " --%s", op->name);
+				if (!omitted(g, op))
+					fprintf(fp, " --%s", op->name);
 		fputs("\";;\n", fp);
 	}
 	fputs("\t*) return;;\n\tesac\n"

@@ -32,10 +32,19 @@
  *      command record (exported; list it in src/cli/commands.c):
  *
  *          static const struct cli_group_use frob_groups[] = {
- *              { &frob_group, 0 },
- *              { &cli_group_universe, offsetof(struct frob_opts, uni) },
- *              { &cli_group_output, offsetof(struct frob_opts, out) },
- *              { NULL, 0 }
+ *              { &frob_group, 0, NULL },
+ *              { &cli_group_universe, offsetof(struct frob_opts, uni), frob_omit },
+ *              { &cli_group_output, offsetof(struct frob_opts, out), NULL },
+ *              { NULL, 0, NULL }
+ *          };
+ *
+ *      A shared group's option that the command could never use is left
+ *      out by name, with the reason the parser gives when it is tried,
+ *      rather than refused after parsing (which help would not show):
+ *
+ *          static const struct cli_omit frob_omit[] = {
+ *              { "covariance", "frobbing needs a return history" },
+ *              { NULL, NULL }
  *          };
  *          const struct cli_command cli_command_frob = {
  *              "frob", cmd_frob, "frob a universe", "UNIVERSE",
@@ -118,9 +127,19 @@ struct cli_group {
 	const struct cli_option *options;
 };
 
+/* An option of a shared group that one command leaves out, and why.  The
+ * parser refuses it with "--NAME does not apply: WHY" (exit 2), and help,
+ * the manual page and the completion do not list it, so a command shows
+ * only options it can use. */
+struct cli_omit {
+	const char *name;               /* long name without "--"; NULL ends a list */
+	const char *why;                /* lower case, no final full stop */
+};
+
 struct cli_group_use {
 	const struct cli_group *group;  /* NULL ends the list */
 	size_t offset;                  /* of the group's struct in the command's struct */
+	const struct cli_omit *omit;    /* the group's options left out; NULL = none */
 };
 
 struct cli_command {
@@ -179,10 +198,6 @@ struct cli_sampling {
 	size_t threads;            /* 0 = all cores (OpenMP's default) */
 };
 extern const struct cli_group cli_group_sampling;
-/* The same group without --sizes (the same struct, sizes left NULL), for a
- * command whose counts are not a grid: audit compares each fund at its own
- * count, so its help lists only what works. */
-extern const struct cli_group cli_group_sampling_no_sizes;
 void cli_sampling_init(struct cli_sampling *s);
 
 /* --average-variance, --average-covariance, --average-sd,
@@ -212,7 +227,9 @@ struct cli_args {
  * given their defaults).  Returns HC_OK, CLI_HELP_SHOWN after printing the
  * help to stdout for -h/--help, or HC_EUSAGE after printing one message to
  * stderr, e.g. "holdcount curve: unknown option '--pathz' (see 'holdcount
- * curve --help')".  After HC_OK release a with cli_args_release.
+ * curve --help')", or for an option the command leaves out (struct
+ * cli_omit) "holdcount rolling: --covariance does not apply: WHY (see ...)".
+ * After HC_OK release a with cli_args_release.
  * The sampling group's --threads also falls back on HOLDCOUNT_THREADS here.
  */
 int cli_parse(const struct cli_command *cmd, int argc, char **argv,

@@ -84,15 +84,21 @@ static const struct cli_option audit_own[] = {
 };
 static const struct cli_group audit_group = { "audit options", audit_own };
 
+/* Each fund is compared at its own holding count, so there is no grid. */
+static const struct cli_omit audit_sampling_omit[] = {
+	{ "sizes", "the audit compares each fund at its own holding count" },
+	{ NULL, NULL }
+};
+
 static const struct cli_group_use audit_groups[] = {
-	{ &audit_group, 0 },
-	{ &cli_group_holdings, AO(hold) },
-	{ &cli_group_policy, AO(pol) },
-	{ &cli_group_sampling_no_sizes, AO(sam) },
-	{ &cli_group_universe, AO(uni) },
-	{ &cli_group_matrix_repair, AO(uni) },
-	{ &cli_group_output, AO(out) },
-	{ NULL, 0 }
+	{ &audit_group, 0, NULL },
+	{ &cli_group_holdings, AO(hold), NULL },
+	{ &cli_group_policy, AO(pol), NULL },
+	{ &cli_group_sampling, AO(sam), audit_sampling_omit },
+	{ &cli_group_universe, AO(uni), NULL },
+	{ &cli_group_matrix_repair, AO(uni), NULL },
+	{ &cli_group_output, AO(out), NULL },
+	{ NULL, 0, NULL }
 };
 
 const struct cli_command cli_command_audit = {

@@ -81,15 +81,21 @@ void cli_rules_init(struct cli_rules *r)
 
 #define OFF(f) offsetof(struct enough_opts, f)
 
+/* The rules look at every count, so there is no grid to choose. */
+static const struct cli_omit enough_sampling_omit[] = {
+	{ "sizes", "enough looks at every holding count, not at a grid of them" },
+	{ NULL, NULL }
+};
+
 static const struct cli_group_use enough_groups[] = {
-	{ &cli_group_rules, OFF(rul) },
-	{ &cli_group_sampling_no_sizes, OFF(smp) },
-	{ &cli_group_summary, OFF(sum) },
-	{ &cli_group_universe, OFF(uni) },
-	{ &cli_group_matrix_repair, OFF(uni) },
-	{ &cli_group_output, OFF(out) },
-	{ &cli_group_strata, OFF(strat) },
-	{ NULL, 0 }
+	{ &cli_group_rules, OFF(rul), NULL },
+	{ &cli_group_sampling, OFF(smp), enough_sampling_omit },
+	{ &cli_group_summary, OFF(sum), NULL },
+	{ &cli_group_universe, OFF(uni), NULL },
+	{ &cli_group_matrix_repair, OFF(uni), NULL },
+	{ &cli_group_output, OFF(out), NULL },
+	{ &cli_group_strata, OFF(strat), NULL },
+	{ NULL, 0, NULL }
 };
 
 const struct cli_command cli_command_enough = {

@@ -87,14 +87,27 @@ static const struct cli_option report_own[] = {
 static const struct cli_group report_group = { "report options", report_own };
 
 /* The groups of `enough` and `audit` themselves: one table per option. */
+/* The report reads complete return series only: --missing could only
+ * repeat its default, and --min-coverage would change nothing. */
+static const struct cli_omit report_universe_omit[] = {
+	{ "missing", "the report draws its random portfolios, its shortfall rule and its audit from "
+	  "complete return series (securities with gaps are dropped); curve, enough and audit take "
+	  "--missing pairwise" },
+	{ "min-coverage", "it is the coverage --missing pairwise asks for, and the report reads complete "
+	  "return series only; curve, enough and audit take both" },
+	{ "covariance", "the report needs a return history (its dates, shortfall rule and rolling windows "
+	  "are time-based); describe, curve, enough and audit take a covariance matrix" },
+	{ NULL, NULL }
+};
+
 static const struct cli_group_use report_groups[] = {
-	{ &report_group, 0 },
-	{ &cli_group_rules, RO(rul) },
-	{ &cli_group_holdings, RO(hold) },
-	{ &cli_group_policy, RO(pol) },
-	{ &cli_group_sampling, RO(sam) },
-	{ &cli_group_universe, RO(uni) },
-	{ NULL, 0 }
+	{ &report_group, 0, NULL },
+	{ &cli_group_rules, RO(rul), NULL },
+	{ &cli_group_holdings, RO(hold), NULL },
+	{ &cli_group_policy, RO(pol), NULL },
+	{ &cli_group_sampling, RO(sam), NULL },
+	{ &cli_group_universe, RO(uni), report_universe_omit },
+	{ NULL, 0, NULL }
 };
 
 const struct cli_command cli_command_report = {
@@ -1036,14 +1049,6 @@ static int check_options(const struct report_opts *o, const struct cli_args *a, 
 
 	if (!o->output)
 		return cli_usage_error("report", "-o DIR is required: the report folder to write");
-	if (o->uni.missing == CLI_MISSING_PAIRWISE)
-		return cli_usage_error("report", "--missing pairwise does not apply: the report draws its random portfolios, "
-				       "its shortfall rule and its audit from complete return series; curve, enough and "
-				       "audit take --missing pairwise");
-	if (o->uni.covariance)
-		return cli_usage_error("report", "--covariance does not apply: the report needs a return history "
-				       "(its dates, shortfall rule and rolling windows are time-based); describe, curve, "
-				       "enough and audit take a covariance matrix");
 	if (cli_given(a, "step") && cli_given(a, "window") && !o->window)
 		return cli_usage_error("report", "--step applies to the rolling windows, which --window 0 leaves out");
 	if (cli_given(a, "step") && !o->step)

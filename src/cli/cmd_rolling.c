@@ -61,11 +61,16 @@ static const struct cli_option rolling_own[] = {
 };
 static const struct cli_group rolling_group = { "rolling options", rolling_own };
 
+static const struct cli_omit rolling_universe_omit[] = {
+	{ "covariance", "a covariance matrix has no periods to roll over; give a return history" },
+	{ NULL, NULL }
+};
+
 static const struct cli_group_use rolling_groups[] = {
-	{ &rolling_group, 0 },
-	{ &cli_group_universe, offsetof(struct rolling_opts, uni) },
-	{ &cli_group_output, offsetof(struct rolling_opts, out) },
-	{ NULL, 0 }
+	{ &rolling_group, 0, NULL },
+	{ &cli_group_universe, offsetof(struct rolling_opts, uni), rolling_universe_omit },
+	{ &cli_group_output, offsetof(struct rolling_opts, out), NULL },
+	{ NULL, 0, NULL }
 };
 
 const struct cli_command cli_command_rolling = {
@@ -89,9 +94,6 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	int rc;
 
 	*u = NULL;
-	if (o->uni.covariance)
-		return cli_usage_error("rolling", "--covariance: a covariance matrix has no periods to "
-				       "roll over; give a return history");
 	if ((rc = cli_universe_options("rolling", &o->uni, &uo)))
 		return rc;
 	/* Every security as read: each window applies the policy itself. */
