@@ -341,7 +341,8 @@ static int threads_from_environment(const struct cli_command *cmd, void *opts)
 			cmd->name, env);
 		return HC_EUSAGE;
 	}
-	return store_value(op, base + op->offset, env) ? HC_EUSAGE : HC_OK;
+	*(size_t *)(base + op->offset) = n; /* --threads is a CLI_COUNT, a size_t */
+	return HC_OK;
 }
 
 static int take_option(const struct cli_command *cmd, struct cli_args *a, void *opts,
