@@ -3,7 +3,7 @@
  * the loader's own peak memory, apart from what the commands compute.
  *
  * usage: bench_load UNIVERSE.csv
- * The file is read by universe_load with the default options (the same
+ * The file is read by hc_universe_load with the default options (the same
  * call `holdcount describe UNIVERSE` makes); prints "M x T" on success,
  * the loader's message and its status otherwise.
  */
@@ -25,12 +25,12 @@ int main(int argc, char **argv)
 	}
 	gsl_set_error_handler_off();
 	hc_error_clear(&err);
-	rc = universe_load(&u, argv[1], NULL, &err);
+	rc = hc_universe_load(&u, argv[1], NULL, &err);
 	if (rc != HC_OK) {
 		fprintf(stderr, "bench_load: %s\n", err.message);
 		return rc;
 	}
 	printf("%zu x %zu\n", u->m, u->t);
-	universe_free(u);
+	hc_universe_free(u);
 	return 0;
 }

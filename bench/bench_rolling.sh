@@ -9,7 +9,7 @@
 # `holdcount rolling --window W --step 1` (T-W+1 windows, the four exact
 # rules) three ways: the default (sliding sums, rebuilt every 64 windows
 # and whenever the kept set changes), --refresh 1 (every window from
-# scratch through universe_window + moments, for comparison), and the
+# scratch through hc_universe_window + moments, for comparison), and the
 # loader alone (`rolling --window T`: one window).  Target: under 2 s for
 # 1000 x 600, window 60, step 1.  Best of 3 wall-clock runs each, on
 # one thread (OMP_NUM_THREADS=1).  Figures go in docs/performance.md.

@@ -4,7 +4,7 @@
  * exact curve, sampled curve, CSV out, with phase times on stderr.
  *
  * usage: bench_sampler UNIVERSE.csv PATHS SEED THREADS SIZES
- * The file is read by the library's loader (universe_load), as the tool
+ * The file is read by the library's loader (hc_universe_load), as the tool
  * reads it.
  */
 #include <stdio.h>
@@ -46,21 +46,21 @@ int main(int argc, char **argv)
 	}
 	gsl_set_error_handler_off();
 	t0 = now();
-	universe_options_init(&uo);
-	if (universe_load(&u, argv[1], &uo, &err))
+	hc_universe_options_init(&uo);
+	if (hc_universe_load(&u, argv[1], &uo, &err))
 		goto fail;
 	t1 = now();
-	if (moments_from_universe(&mo, u, &err) ||
-	    curve_parse_sizes(argv[5], u->m, &sizes, &ns, &err) ||
-	    curve_exact(&c, &mo, sizes, ns, u->periods_per_year, &err))
+	if (hc_moments_from_universe(&mo, u, &err) ||
+	    hc_curve_parse_sizes(argv[5], u->m, &sizes, &ns, &err) ||
+	    hc_curve_exact(&c, &mo, sizes, ns, u->periods_per_year, &err))
 		goto fail;
 	t2 = now();
-	sampler_options_init(&opt);
+	hc_sampler_options_init(&opt);
 	opt.paths = strtoul(argv[2], NULL, 10);
 	opt.seed = strtoull(argv[3], NULL, 10);
 	opt.threads = atoi(argv[4]);
-	if (opt.paths && (sampler_run(&r, u, sizes, ns, &opt, &err) ||
-			  sampler_summarise(c, r, &err)))
+	if (opt.paths && (hc_sampler_run(&r, u, sizes, ns, &opt, &err) ||
+			  hc_sampler_summarise(c, r, &err)))
 		goto fail;
 	t3 = now();
 	printf("n,expected_variance,sampled_mean_variance,sampled_variance_se,sd_p05,sd_p50,sd_p95\n");
@@ -71,10 +71,10 @@ int main(int argc, char **argv)
 	}
 	fprintf(stderr, "load %.3f s, moments %.3f s, sampling %.3f s, total %.3f s\n",
 		t1 - t0, t2 - t1, t3 - t2, t3 - t0);
-	sampler_result_free(r);
-	curve_free(c);
+	hc_sampler_result_free(r);
+	hc_curve_free(c);
 	hc_free(sizes);
-	universe_free(u);
+	hc_universe_free(u);
 	return 0;
 fail:
 	fprintf(stderr, "bench_sampler: %s\n", err.message);

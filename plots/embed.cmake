@@ -2,7 +2,7 @@
 #
 # Run as: cmake -DPLOTS_DIR=<dir> -DOUTPUT=<file.c> -P embed.cmake
 # Each template becomes one string literal, named by its file name without
-# ".gp", and plots_template() looks it up (declared in
+# ".gp", and hc_plots_template() looks it up (declared in
 # include/holdcount/plots.h).  The list is sorted so that the generated file
 # is the same on every machine.
 if(NOT PLOTS_DIR OR NOT OUTPUT)
@@ -25,7 +25,7 @@ foreach(path ${templates})
   string(APPEND body "\t{ \"${name}\",\n\t  \"${text}\" },\n")
 endforeach()
 string(APPEND body "};\n\n")
-string(APPEND body "const char *plots_template(const char *name)\n{\n\tsize_t i;\n\n")
+string(APPEND body "const char *hc_plots_template(const char *name)\n{\n\tsize_t i;\n\n")
 string(APPEND body "\tfor (i = 0; i < sizeof templates / sizeof templates[0]; i++)\n")
 string(APPEND body "\t\tif (strcmp(templates[i].name, name) == 0)\n\t\t\treturn templates[i].text;\n")
 string(APPEND body "\treturn NULL;\n}\n")

@@ -61,7 +61,7 @@ static const char *const rule_names[AUDIT_NRULES] = {
 	"ucits", "1940act", "ric"
 };
 
-const char *audit_rule_name(unsigned rule)
+const char *hc_audit_rule_name(unsigned rule)
 {
 	int k;
 
@@ -71,12 +71,12 @@ const char *audit_rule_name(unsigned rule)
 	return NULL;
 }
 
-const char *audit_screen_name(int index)
+const char *hc_audit_screen_name(int index)
 {
 	return index >= 0 && index < AUDIT_NSCREENS ? rule_names[4 + index] : NULL;
 }
 
-void audit_options_init(struct audit_options *opt)
+void hc_audit_options_init(struct audit_options *opt)
 {
 	memset(opt, 0, sizeof *opt);
 	opt->paths = AUDIT_DEFAULT_PATHS;
@@ -101,7 +101,7 @@ static int item_is(const char *s, size_t len, const char *name)
 	return 1;
 }
 
-int audit_parse_screens(const char *text, unsigned *screens, struct hc_error *err)
+int hc_audit_parse_screens(const char *text, unsigned *screens, struct hc_error *err)
 {
 	const char *p = text;
 	unsigned bits = 0;
@@ -118,7 +118,7 @@ int audit_parse_screens(const char *text, unsigned *screens, struct hc_error *er
 		while (len && p[len - 1] == ' ')
 			len--;
 		for (k = 0; k < AUDIT_NSCREENS; k++)
-			if (item_is(p, len, audit_screen_name(k))) {
+			if (item_is(p, len, hc_audit_screen_name(k))) {
 				bits |= 1u << k;
 				found = 1;
 			}
@@ -214,7 +214,7 @@ static int locate(struct audit_fund *af, const struct holdings_fund *fd,
 	size_t k;
 
 	for (k = 0; k < fd->n; k++) {
-		idx[k] = src->u ? universe_find(src->u, fd->h[k].id) : covmatrix_find(src->cm, fd->h[k].id);
+		idx[k] = src->u ? hc_universe_find(src->u, fd->h[k].id) : hc_covmatrix_find(src->cm, fd->h[k].id);
 		if (idx[k] >= 0)
 			continue;
 		if (strict) {
@@ -325,13 +325,13 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 	/* Choueifaty & Coignard (2008), J. Portfolio Management 35(1): the ratio
 	 * of the weighted average volatility to the portfolio's volatility. */
 	af->diversification_ratio = s2 > 0 ? wsd / sqrt(s2) : NAN;
-	af->below_floor = curve_equivalent_count(mo, s2, &neq) != 0;
+	af->below_floor = hc_curve_equivalent_count(mo, s2, &neq) != 0;
 	af->equivalent_count = af->below_floor ? NAN : neq;
 	/* design.md section 3: a weight vector laid on a random subset has
 	 * E[w'Aw] = sum w^2 vbar + (1 - sum w^2) cbar. */
 	s2 = hhi * mo->average_variance + (1 - hhi) * mo->average_covariance;
 	af->weighted_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
-	s2 = curve_expected_variance(mo, (double)af->risk_holdings);
+	s2 = hc_curve_expected_variance(mo, (double)af->risk_holdings);
 	af->equal_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
 	return HC_OK;
 }
@@ -361,7 +361,7 @@ static int sectors(struct audit_fund *af, const struct holdings_fund *fd,
 	if (!af->sectors)
 		return hc_error(err, HC_ENOMEM, "out of memory auditing fund '%s'", fd->name);
 	for (k = 0; k < fd->n; k++) {
-		const char *label = holdings_labels_find(map, fd->h[k].id);
+		const char *label = hc_holdings_labels_find(map, fd->h[k].id);
 		for (j = 0; j < af->nsectors; j++) {
 			const char *l = af->sectors[j].label;
 			if (l == label || (l && label && strcmp(l, label) == 0))
@@ -546,15 +546,15 @@ static int percentiles(struct audit_result *a, const struct source *src,
 		if (sizes[f] != sizes[k - 1])
 			sizes[k++] = sizes[f];
 	nsizes = k;
-	sampler_options_init(&so);
+	hc_sampler_options_init(&so);
 	so.paths = opt->paths;
 	so.seed = opt->seed;
 	so.threads = opt->threads;
 	so.periods_per_year = pp;
 	so.progress = opt->progress;
 	so.progress_ctx = opt->progress_ctx;
-	rc = src->u ? sampler_run(&sr, src->u, sizes, nsizes, &so, err)
-		    : sampler_run_matrix(&sr, src->cm->a, src->cm->m, sizes, nsizes, &so, err);
+	rc = src->u ? hc_sampler_run(&sr, src->u, sizes, nsizes, &so, err)
+		    : hc_sampler_run_matrix(&sr, src->cm->a, src->cm->m, sizes, nsizes, &so, err);
 	if (rc != HC_OK)
 		goto cleanup;
 	for (f = 0; f < a->nfunds; f++) {
@@ -567,7 +567,7 @@ static int percentiles(struct audit_result *a, const struct source *src,
 					     af->variance / pp, opt->tie_rtol);
 	}
 cleanup:
-	sampler_result_free(sr);
+	hc_sampler_result_free(sr);
 	hc_free(sizes);
 	return rc;
 }
@@ -664,7 +664,7 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 	*out = a;
 	a = NULL;
 cleanup:
-	audit_result_free(a);
+	hc_audit_result_free(a);
 	hc_free(idx);
 	hc_free(dwork);
 	hc_free(iw);
@@ -672,7 +672,7 @@ cleanup:
 	return rc;
 }
 
-int audit_run(struct audit_result **out, const struct holdings *h,
+int hc_audit_run(struct audit_result **out, const struct holdings *h,
 	      const struct universe *u, const struct moments *mo,
 	      const struct audit_options *opt, struct hc_error *err)
 {
@@ -693,7 +693,7 @@ int audit_run(struct audit_result **out, const struct holdings *h,
 	return HC_OK;
 }
 
-int audit_run_matrix(struct audit_result **out, const struct holdings *h,
+int hc_audit_run_matrix(struct audit_result **out, const struct holdings *h,
 		     const struct audit_matrix *am, const struct moments *mo,
 		     const struct audit_options *opt, struct hc_error *err)
 {
@@ -715,7 +715,7 @@ int audit_run_matrix(struct audit_result **out, const struct holdings *h,
 	return HC_OK;
 }
 
-void audit_result_free(struct audit_result *a)
+void hc_audit_result_free(struct audit_result *a)
 {
 	size_t f;
 
@@ -799,49 +799,49 @@ static int fund_row(struct report_table *t, const struct audit_result *a,
 	char failed[256];
 	size_t r;
 
-	if (report_table_add_row(t) != HC_OK)
+	if (hc_report_table_add_row(t) != HC_OK)
 		return HC_ENOMEM;
 	r = t->nrows - 1;
-	if (report_table_set_text(t, r, FC_FUND, af->name) != HC_OK)
+	if (hc_report_table_set_text(t, r, FC_FUND, af->name) != HC_OK)
 		return HC_ENOMEM;
-	report_table_set_int(t, r, FC_HOLDINGS, (long long)af->holdings);
-	report_table_set_real(t, r, FC_WEIGHT_SUM, af->weight_sum);
-	report_table_set_real(t, r, FC_MAX_WEIGHT, af->max_weight);
-	report_table_set_real(t, r, FC_TOP10, af->top10_share);
-	report_table_set_real(t, r, FC_HHI, af->hhi);
-	report_table_set_real(t, r, FC_EFFECTIVE, af->effective_holdings);
-	report_table_set_real(t, r, FC_SD, af->sd);
-	report_table_set_real(t, r, FC_DR, af->diversification_ratio);
+	hc_report_table_set_int(t, r, FC_HOLDINGS, (long long)af->holdings);
+	hc_report_table_set_real(t, r, FC_WEIGHT_SUM, af->weight_sum);
+	hc_report_table_set_real(t, r, FC_MAX_WEIGHT, af->max_weight);
+	hc_report_table_set_real(t, r, FC_TOP10, af->top10_share);
+	hc_report_table_set_real(t, r, FC_HHI, af->hhi);
+	hc_report_table_set_real(t, r, FC_EFFECTIVE, af->effective_holdings);
+	hc_report_table_set_real(t, r, FC_SD, af->sd);
+	hc_report_table_set_real(t, r, FC_DR, af->diversification_ratio);
 	/* no number: "below the floor" in CSV and text, null in JSON, where
 	 * the column below_floor says why */
 	if (af->risk_known && af->below_floor) {
-		if (report_table_set_none(t, r, FC_EQUIVALENT, "below the floor") != HC_OK)
+		if (hc_report_table_set_none(t, r, FC_EQUIVALENT, "below the floor") != HC_OK)
 			return HC_ENOMEM;
 	} else
-		report_table_set_real(t, r, FC_EQUIVALENT, af->equivalent_count);
-	report_table_set_real(t, r, FC_PERCENTILE, af->sd_percentile);
-	report_table_set_real(t, r, FC_WRSD, af->weighted_random_sd);
-	report_table_set_real(t, r, FC_EQUAL_RSD, af->equal_random_sd);
-	report_table_set_bool(t, r, FC_PASSED, af->passed);
+		hc_report_table_set_real(t, r, FC_EQUIVALENT, af->equivalent_count);
+	hc_report_table_set_real(t, r, FC_PERCENTILE, af->sd_percentile);
+	hc_report_table_set_real(t, r, FC_WRSD, af->weighted_random_sd);
+	hc_report_table_set_real(t, r, FC_EQUAL_RSD, af->equal_random_sd);
+	hc_report_table_set_bool(t, r, FC_PASSED, af->passed);
 	if (failed_text(af->failed, failed, sizeof failed) != 0 ||
-	    report_table_set_text(t, r, FC_FAILED, failed) != HC_OK ||
-	    report_table_set_text(t, r, FC_MAX_ID, af->max_id) != HC_OK ||
-	    report_table_set_text(t, r, FC_ISSUER_MAX_ID, af->issuer_max_id) != HC_OK)
+	    hc_report_table_set_text(t, r, FC_FAILED, failed) != HC_OK ||
+	    hc_report_table_set_text(t, r, FC_MAX_ID, af->max_id) != HC_OK ||
+	    hc_report_table_set_text(t, r, FC_ISSUER_MAX_ID, af->issuer_max_id) != HC_OK)
 		return HC_ENOMEM;
-	report_table_set_int(t, r, FC_RISK_HOLDINGS, (long long)af->risk_holdings);
-	report_table_set_int(t, r, FC_MISSING, (long long)af->nmissing);
-	report_table_set_real(t, r, FC_MISSING_WEIGHT, af->missing_weight);
-	report_table_set_bool(t, r, FC_SUBSET, af->risk_subset || !af->risk_known);
+	hc_report_table_set_int(t, r, FC_RISK_HOLDINGS, (long long)af->risk_holdings);
+	hc_report_table_set_int(t, r, FC_MISSING, (long long)af->nmissing);
+	hc_report_table_set_real(t, r, FC_MISSING_WEIGHT, af->missing_weight);
+	hc_report_table_set_bool(t, r, FC_SUBSET, af->risk_subset || !af->risk_known);
 	if (af->risk_known)
-		report_table_set_bool(t, r, FC_BELOW_FLOOR, af->below_floor);
-	report_table_set_real(t, r, FC_ISSUER_MAX, af->issuer_max);
-	report_table_set_bool(t, r, FC_UCITS, af->screen_passed[0]);
-	report_table_set_bool(t, r, FC_1940, af->screen_passed[1]);
-	report_table_set_bool(t, r, FC_RIC, af->screen_passed[2]);
+		hc_report_table_set_bool(t, r, FC_BELOW_FLOOR, af->below_floor);
+	hc_report_table_set_real(t, r, FC_ISSUER_MAX, af->issuer_max);
+	hc_report_table_set_bool(t, r, FC_UCITS, af->screen_passed[0]);
+	hc_report_table_set_bool(t, r, FC_1940, af->screen_passed[1]);
+	hc_report_table_set_bool(t, r, FC_RIC, af->screen_passed[2]);
 	if (a->has_sectors) {
-		report_table_set_real(t, r, FC_SECTOR_HHI, af->sector_hhi);
-		report_table_set_real(t, r, FC_MAX_SECTOR_WEIGHT, af->max_sector_weight);
-		if (af->max_sector && report_table_set_text(t, r, FC_MAX_SECTOR, af->max_sector) != HC_OK)
+		hc_report_table_set_real(t, r, FC_SECTOR_HHI, af->sector_hhi);
+		hc_report_table_set_real(t, r, FC_MAX_SECTOR_WEIGHT, af->max_sector_weight);
+		if (af->max_sector && hc_report_table_set_text(t, r, FC_MAX_SECTOR, af->max_sector) != HC_OK)
 			return HC_ENOMEM;
 	}
 	return HC_OK;
@@ -849,13 +849,13 @@ static int fund_row(struct report_table *t, const struct audit_result *a,
 
 static int funds_table(struct report *rep, const struct audit_result *a)
 {
-	struct report_table *t = report_add_table(rep, "funds", "funds");
+	struct report_table *t = hc_report_add_table(rep, "funds", "funds");
 	size_t k;
 
 	if (!t)
 		return HC_ENOMEM;
 	for (k = 0; k < FC_N; k++)
-		if (report_table_add_column(t, fund_columns[k].key, fund_columns[k].title,
+		if (hc_report_table_add_column(t, fund_columns[k].key, fund_columns[k].title,
 					    fund_columns[k].style) != HC_OK)
 			return HC_ENOMEM;
 	for (k = 0; k < a->nfunds; k++)
@@ -870,7 +870,7 @@ static int add_columns(struct report_table *t, const char *const *keys,
 	size_t k;
 
 	for (k = 0; k < n; k++)
-		if (report_table_add_column(t, keys[k], keys[k], styles[k]) != HC_OK)
+		if (hc_report_table_add_column(t, keys[k], keys[k], styles[k]) != HC_OK)
 			return HC_ENOMEM;
 	return HC_OK;
 }
@@ -879,7 +879,7 @@ static int screens_table(struct report *rep, const struct audit_result *a)
 {
 	static const char *const keys[] = { "fund", "screen", "part", "passed", "figure", "test", "limit", "issuer", "required" };
 	static const int styles[] = { 0, 0, 0, 0, REPORT_STYLE_PERCENT, 0, REPORT_STYLE_PERCENT, 0, 0 };
-	struct report_table *t = report_add_table(rep, "screens", "screens (from memory of the published texts: verify against the current text)");
+	struct report_table *t = hc_report_add_table(rep, "screens", "screens (from memory of the published texts: verify against the current text)");
 	size_t f, p, r;
 
 	if (!t || add_columns(t, keys, styles, 9) != HC_OK)
@@ -887,19 +887,19 @@ static int screens_table(struct report *rep, const struct audit_result *a)
 	for (f = 0; f < a->nfunds; f++)
 		for (p = 0; p < AUDIT_NPARTS; p++) {
 			const struct audit_check *c = &a->funds[f].checks[p];
-			if (report_table_add_row(t) != HC_OK)
+			if (hc_report_table_add_row(t) != HC_OK)
 				return HC_ENOMEM;
 			r = t->nrows - 1;
-			if (report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
-			    report_table_set_text(t, r, 1, parts[p].screen) != HC_OK ||
-			    report_table_set_text(t, r, 2, parts[p].part) != HC_OK ||
-			    report_table_set_text(t, r, 5, parts[p].test) != HC_OK ||
-			    (c->issuer && report_table_set_text(t, r, 7, c->issuer) != HC_OK))
+			if (hc_report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
+			    hc_report_table_set_text(t, r, 1, parts[p].screen) != HC_OK ||
+			    hc_report_table_set_text(t, r, 2, parts[p].part) != HC_OK ||
+			    hc_report_table_set_text(t, r, 5, parts[p].test) != HC_OK ||
+			    (c->issuer && hc_report_table_set_text(t, r, 7, c->issuer) != HC_OK))
 				return HC_ENOMEM;
-			report_table_set_bool(t, r, 3, c->passed);
-			report_table_set_real(t, r, 4, c->figure);
-			report_table_set_real(t, r, 6, c->limit);
-			report_table_set_bool(t, r, 8, (a->policy.screens >> parts[p].screen_index) & 1);
+			hc_report_table_set_bool(t, r, 3, c->passed);
+			hc_report_table_set_real(t, r, 4, c->figure);
+			hc_report_table_set_real(t, r, 6, c->limit);
+			hc_report_table_set_bool(t, r, 8, (a->policy.screens >> parts[p].screen_index) & 1);
 		}
 	return HC_OK;
 }
@@ -915,18 +915,18 @@ static int missing_table(struct report *rep, const struct audit_result *a)
 		for (k = 0; k < a->funds[f].nmissing; k++) {
 			const struct audit_missing *mi = &a->funds[f].missing[k];
 			if (!t) {
-				t = report_add_table(rep, "missing", "ids not in the universe");
+				t = hc_report_add_table(rep, "missing", "ids not in the universe");
 				if (!t || add_columns(t, keys, styles, 4) != HC_OK)
 					return HC_ENOMEM;
 			}
-			if (report_table_add_row(t) != HC_OK)
+			if (hc_report_table_add_row(t) != HC_OK)
 				return HC_ENOMEM;
 			r = t->nrows - 1;
-			if (report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
-			    report_table_set_text(t, r, 1, mi->id) != HC_OK)
+			if (hc_report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
+			    hc_report_table_set_text(t, r, 1, mi->id) != HC_OK)
 				return HC_ENOMEM;
-			report_table_set_real(t, r, 2, mi->weight);
-			report_table_set_int(t, r, 3, (long long)mi->line);
+			hc_report_table_set_real(t, r, 2, mi->weight);
+			hc_report_table_set_int(t, r, 3, (long long)mi->line);
 		}
 	return HC_OK;
 }
@@ -940,20 +940,20 @@ static int sectors_table(struct report *rep, const struct audit_result *a)
 
 	if (!a->has_sectors)
 		return HC_OK;
-	t = report_add_table(rep, "sectors", "sector weights");
+	t = hc_report_add_table(rep, "sectors", "sector weights");
 	if (!t || add_columns(t, keys, styles, 4) != HC_OK)
 		return HC_ENOMEM;
 	for (f = 0; f < a->nfunds; f++)
 		for (k = 0; k < a->funds[f].nsectors; k++) {
 			const struct audit_sector *s = &a->funds[f].sectors[k];
-			if (report_table_add_row(t) != HC_OK)
+			if (hc_report_table_add_row(t) != HC_OK)
 				return HC_ENOMEM;
 			r = t->nrows - 1;
-			if (report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
-			    report_table_set_text(t, r, 1, s->label ? s->label : "(not in the sector map)") != HC_OK)
+			if (hc_report_table_set_text(t, r, 0, a->funds[f].name) != HC_OK ||
+			    hc_report_table_set_text(t, r, 1, s->label ? s->label : "(not in the sector map)") != HC_OK)
 				return HC_ENOMEM;
-			report_table_set_real(t, r, 2, s->weight);
-			report_table_set_int(t, r, 3, (long long)s->count);
+			hc_report_table_set_real(t, r, 2, s->weight);
+			hc_report_table_set_int(t, r, 3, (long long)s->count);
 		}
 	return HC_OK;
 }
@@ -992,20 +992,20 @@ static int fields(struct report *rep, const struct audit_result *a)
 
 	if (policy_text(&a->policy, a->has_sectors, buf, sizeof buf) != 0)
 		return HC_EINTERNAL;
-	if (report_add_text(rep, "universe", "universe", a->universe_source ? a->universe_source : "") != HC_OK ||
-	    report_add_text(rep, "input", "input", a->input ? a->input : "return history") != HC_OK ||
-	    report_add_text(rep, "holdings_file", "holdings", a->holdings_source ? a->holdings_source : "") != HC_OK ||
-	    report_add_int(rep, "securities", "securities", (long long)a->m) != HC_OK ||
-	    (a->t ? report_add_int(rep, "periods", "periods", (long long)a->t)
-		  : report_add_none(rep, "periods", "periods")) != HC_OK ||
-	    (a->annualised ? report_add_real(rep, "periods_per_year", "periods per year", a->periods_per_year,
+	if (hc_report_add_text(rep, "universe", "universe", a->universe_source ? a->universe_source : "") != HC_OK ||
+	    hc_report_add_text(rep, "input", "input", a->input ? a->input : "return history") != HC_OK ||
+	    hc_report_add_text(rep, "holdings_file", "holdings", a->holdings_source ? a->holdings_source : "") != HC_OK ||
+	    hc_report_add_int(rep, "securities", "securities", (long long)a->m) != HC_OK ||
+	    (a->t ? hc_report_add_int(rep, "periods", "periods", (long long)a->t)
+		  : hc_report_add_none(rep, "periods", "periods")) != HC_OK ||
+	    (a->annualised ? hc_report_add_real(rep, "periods_per_year", "periods per year", a->periods_per_year,
 					     REPORT_STYLE_PLAIN)
-			   : report_add_none(rep, "periods_per_year", "periods per year")) != HC_OK ||
-	    report_add_int(rep, "paths", "random portfolios per count", (long long)a->paths) != HC_OK ||
-	    report_add_int(rep, "seed", "seed", (long long)a->seed) != HC_OK ||
-	    report_add_text(rep, "policy", "policy", buf) != HC_OK ||
-	    report_add_int(rep, "fund_count", "funds", (long long)a->nfunds) != HC_OK ||
-	    report_add_int(rep, "failed_funds", "funds failing the policy", (long long)a->failed_funds) != HC_OK)
+			   : hc_report_add_none(rep, "periods_per_year", "periods per year")) != HC_OK ||
+	    hc_report_add_int(rep, "paths", "random portfolios per count", (long long)a->paths) != HC_OK ||
+	    hc_report_add_int(rep, "seed", "seed", (long long)a->seed) != HC_OK ||
+	    hc_report_add_text(rep, "policy", "policy", buf) != HC_OK ||
+	    hc_report_add_int(rep, "fund_count", "funds", (long long)a->nfunds) != HC_OK ||
+	    hc_report_add_int(rep, "failed_funds", "funds failing the policy", (long long)a->failed_funds) != HC_OK)
 		return HC_ENOMEM;
 	return HC_OK;
 }
@@ -1016,12 +1016,12 @@ static int notes(struct report *rep, const struct audit_result *a, const struct 
 	size_t k;
 
 	for (k = 0; h && k < h->nwarnings; k++)
-		if (report_add_note(rep, h->warnings[k]) != HC_OK)
+		if (hc_report_add_note(rep, h->warnings[k]) != HC_OK)
 			return HC_ENOMEM;
 	snprintf(buf, sizeof buf,
 		 "sd_percentile ranks the fund's sd among %zu random equal-weight portfolios of the same count (seed %llu); ties (relative difference within %g) count half: (below + equal/2)/paths",
 		 a->paths, (unsigned long long)a->seed, a->tie_rtol);
-	if (report_add_note(rep, buf) != HC_OK)
+	if (hc_report_add_note(rep, buf) != HC_OK)
 		return HC_ENOMEM;
 	if (a->t == 0 && a->annualised)
 		snprintf(buf, sizeof buf, "risk figures come from the covariance matrix, annualised: variances times %g, "
@@ -1031,17 +1031,17 @@ static int notes(struct report *rep, const struct audit_result *a, const struct 
 	else
 		snprintf(buf, sizeof buf, "risk figures are annualised sample estimates from the universe's history%s",
 			 a->input && strcmp(a->input, "return history") ? ", through its pairwise-complete covariances" : "");
-	if (report_add_note(rep, buf) != HC_OK ||
-	    report_add_note(rep, "funds with ids missing from the universe have their risk figures computed on the remaining weights, renormalised (risk_on_subset)") != HC_OK ||
-	    report_add_note(rep, "the UCITS (2009/65/EC Art. 52), Investment Company Act of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3) screens are written from memory of the published texts and test weights only: verify against the current text and defer to compliance counsel") != HC_OK)
+	if (hc_report_add_note(rep, buf) != HC_OK ||
+	    hc_report_add_note(rep, "funds with ids missing from the universe have their risk figures computed on the remaining weights, renormalised (risk_on_subset)") != HC_OK ||
+	    hc_report_add_note(rep, "the UCITS (2009/65/EC Art. 52), Investment Company Act of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3) screens are written from memory of the published texts and test weights only: verify against the current text and defer to compliance counsel") != HC_OK)
 		return HC_ENOMEM;
-	return report_add_cautions(rep) == HC_OK ? HC_OK : HC_ENOMEM;
+	return hc_report_add_cautions(rep) == HC_OK ? HC_OK : HC_ENOMEM;
 }
 
-int audit_report(struct report **out, const struct audit_result *a,
+int hc_audit_report(struct report **out, const struct audit_result *a,
 		 const struct holdings *h, struct hc_error *err)
 {
-	struct report *rep = report_alloc();
+	struct report *rep = hc_report_alloc();
 	int rc;
 
 	*out = NULL;
@@ -1050,7 +1050,7 @@ int audit_report(struct report **out, const struct audit_result *a,
 	if ((rc = fields(rep, a)) != HC_OK || (rc = funds_table(rep, a)) != HC_OK ||
 	    (rc = screens_table(rep, a)) != HC_OK || (rc = missing_table(rep, a)) != HC_OK ||
 	    (rc = sectors_table(rep, a)) != HC_OK || (rc = notes(rep, a, h)) != HC_OK) {
-		report_free(rep);
+		hc_report_free(rep);
 		return hc_error(err, rc, rc == HC_ENOMEM ? "out of memory building the audit report"
 				: "the audit report's policy text is too long");
 	}

@@ -22,7 +22,7 @@
 #include "holdcount/memory.h"
 #include "holdcount/sampler.h"
 
-void bootstrap_options_init(struct bootstrap_options *opt)
+void hc_bootstrap_options_init(struct bootstrap_options *opt)
 {
 	memset(opt, 0, sizeof *opt);
 	opt->replicates = BOOTSTRAP_DEFAULT_REPLICATES;
@@ -30,14 +30,14 @@ void bootstrap_options_init(struct bootstrap_options *opt)
 	opt->seed = 1;
 }
 
-size_t bootstrap_default_block_length(size_t t)
+size_t hc_bootstrap_default_block_length(size_t t)
 {
 	double l = floor(cbrt((double)t) + 0.5);
 
 	return l < 1 ? 1 : (size_t)l;
 }
 
-const char *bootstrap_kind_name(int kind)
+const char *hc_bootstrap_kind_name(int kind)
 {
 	switch (kind) {
 	case BOOTSTRAP_BLOCK: return "block";
@@ -47,11 +47,11 @@ const char *bootstrap_kind_name(int kind)
 }
 
 /* The replicate's stream generator is splitmix64 itself (Steele, Lea &
- * Flood, 2014, OOPSLA; sampler_splitmix64): its output passes BigCrush, and
+ * Flood, 2014, OOPSLA; hc_sampler_splitmix64): its output passes BigCrush, and
  * a replicate needs only about T draws. */
 static uint64_t splitmix64(uint64_t *state)
 {
-	return sampler_splitmix64(state);
+	return hc_sampler_splitmix64(state);
 }
 
 /* Replicate rep's stream state from (seed, rep): the replicate number is
@@ -83,7 +83,7 @@ static double uniform01(uint64_t *state)
 	return (double)(splitmix64(state) >> 11) * 0x1.0p-53;
 }
 
-int bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
+int hc_bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 		      size_t rep, size_t *idx, struct hc_error *err)
 {
 	uint64_t st = replicate_state(seed, rep);
@@ -118,7 +118,7 @@ int bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 	return HC_OK;
 }
 
-void bootstrap_base_free(struct bootstrap_base *b)
+void hc_bootstrap_base_free(struct bootstrap_base *b)
 {
 	if (!b)
 		return;
@@ -145,7 +145,7 @@ static void centre(const struct universe *u, double *xc)
 	}
 }
 
-int bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *u,
+int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *u,
 			 struct hc_error *err)
 {
 	struct bootstrap_base *b = NULL;
@@ -191,7 +191,7 @@ int bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *u,
 	}
 cleanup:
 	if (status != HC_OK) {
-		bootstrap_base_free(b);
+		hc_bootstrap_base_free(b);
 		return status;
 	}
 	*out = b;
@@ -239,7 +239,7 @@ static double trace_direct(const struct bootstrap_base *b, const double *w)
 	return tr;
 }
 
-void bootstrap_moments(const struct bootstrap_base *b, const double *w,
+void hc_bootstrap_moments(const struct bootstrap_base *b, const double *w,
 		       double *vbar, double *cbar)
 {
 	size_t k, n = b->t;
@@ -256,7 +256,7 @@ void bootstrap_moments(const struct bootstrap_base *b, const double *w,
 	*cbar = (total - trace) / (m * (m - 1));
 }
 
-void bootstrap_result_free(struct bootstrap_result *r)
+void hc_bootstrap_result_free(struct bootstrap_result *r)
 {
 	if (!r)
 		return;
@@ -273,14 +273,14 @@ static void run_one(const struct bootstrap_base *b, const struct bootstrap_optio
 	size_t k;
 
 	/* Arguments were checked before the parallel region, so this cannot fail. */
-	bootstrap_indices(opt->kind, b->t, l, opt->seed, rep, idx, NULL);
+	hc_bootstrap_indices(opt->kind, b->t, l, opt->seed, rep, idx, NULL);
 	memset(w, 0, b->t * sizeof *w);
 	for (k = 0; k < b->t; k++)
 		w[idx[k]] += 1;
-	bootstrap_moments(b, w, &r->vbar[rep], &r->cbar[rep]);
+	hc_bootstrap_moments(b, w, &r->vbar[rep], &r->cbar[rep]);
 }
 
-int bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
+int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
 		  const struct bootstrap_options *opt, struct hc_error *err)
 {
 	struct bootstrap_result *r = NULL;
@@ -292,9 +292,9 @@ int bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
 	*out = NULL;
 	if (opt->replicates == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
-	if (!bootstrap_kind_name(opt->kind))
+	if (!hc_bootstrap_kind_name(opt->kind))
 		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", opt->kind);
-	l = opt->block_length ? opt->block_length : bootstrap_default_block_length(b->t);
+	l = opt->block_length ? opt->block_length : hc_bootstrap_default_block_length(b->t);
 	if (l > b->t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: longer than the %zu periods", l, b->t);
 	nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads();
@@ -359,6 +359,6 @@ cleanup:
 			hc_free(w[k]);
 	hc_free(idx);
 	hc_free(w);
-	bootstrap_result_free(r);
+	hc_bootstrap_result_free(r);
 	return status;
 }

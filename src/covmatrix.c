@@ -17,7 +17,7 @@
 #include "holdcount/memory.h"
 
 
-void covmatrix_free(struct covmatrix *c)
+void hc_covmatrix_free(struct covmatrix *c)
 {
 	size_t i;
 
@@ -31,7 +31,7 @@ void covmatrix_free(struct covmatrix *c)
 	hc_free(c);
 }
 
-long covmatrix_find(const struct covmatrix *c, const char *id)
+long hc_covmatrix_find(const struct covmatrix *c, const char *id)
 {
 	size_t i;
 
@@ -71,7 +71,7 @@ static int header_field(struct reader *r, const struct csvread_field *f,
 
 	if (f->column == 1)
 		return HC_OK;   /* the corner: empty or a label */
-	rc = universe_check_id(r->name, f->line, f->column, f->text, f->len, err);
+	rc = hc_universe_check_id(r->name, f->line, f->column, f->text, f->len, err);
 	if (rc != HC_OK)
 		return rc;
 	if (c->m == r->cap_ids) {
@@ -100,7 +100,7 @@ static int header_done(struct reader *r, struct hc_error *err)
 		return hc_error(err, HC_EDATA,
 			"%s:1: the header has %zu id%s; expected a corner cell then at least 2 ids",
 			r->name, c->m, c->m == 1 ? "" : "s");
-	rc = universe_id_clash(c->ids, c->m, &a, &b);
+	rc = hc_universe_id_clash(c->ids, c->m, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
 	if (rc > 0) {
@@ -142,7 +142,7 @@ static int data_field(struct reader *r, const struct csvread_field *f,
 		if (f->len != strlen(c->ids[i]) || memcmp(f->text, c->ids[i], f->len) != 0)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:1: row id '%s' does not match '%s' in column %zu of the header; expected the same ids in the same order",
-				r->name, f->line, csvread_quote(f->text, f->len, q), c->ids[i], i + 2);
+				r->name, f->line, hc_csvread_quote(f->text, f->len, q), c->ids[i], i + 2);
 		r->row_line[i] = f->line;
 		return HC_OK;
 	}
@@ -151,13 +151,13 @@ static int data_field(struct reader *r, const struct csvread_field *f,
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: row has more fields than the header's %zu; expected %zu fields",
 			r->name, f->line, f->column, c->m + 1, c->m + 1);
-	if (csvread_parse_number(f->text, f->len, &v, NULL) != 0)
+	if (hc_csvread_parse_number(f->text, f->len, &v, NULL) != 0)
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: expected a number, found '%s'",
-				r->name, f->line, f->column, csvread_quote(f->text, f->len, q));
+				r->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
 	if (i == j && !(v > 0))
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: variance of '%s' is %s; expected a positive number on the diagonal",
-			r->name, f->line, f->column, c->ids[i], csvread_quote(f->text, f->len, q));
+			r->name, f->line, f->column, c->ids[i], hc_csvread_quote(f->text, f->len, q));
 	c->a[i * c->m + j] = v;
 	return HC_OK;
 }
@@ -228,8 +228,8 @@ static int load(struct covmatrix **out, const char *name, const char *path,
 	h.field = on_field;
 	h.record = on_record;
 	h.ctx = &r;
-	rc = path ? csvread_file(path, NULL, &h, NULL, err)
-		  : csvread_buffer(name, data, len, NULL, &h, NULL, err);
+	rc = path ? hc_csvread_file(path, NULL, &h, NULL, err)
+		  : hc_csvread_buffer(name, data, len, NULL, &h, NULL, err);
 	if (rc == HC_OK && r.rows < r.c->m)
 		rc = hc_error(err, HC_EDATA,
 			"%s: %zu rows for %zu ids; expected a square matrix with one row per id",
@@ -238,33 +238,33 @@ static int load(struct covmatrix **out, const char *name, const char *path,
 		rc = symmetrize(&r, tol, err);
 	hc_free(r.row_line);
 	if (rc != HC_OK) {
-		covmatrix_free(r.c);
+		hc_covmatrix_free(r.c);
 		return rc;
 	}
 	*out = r.c;
 	return HC_OK;
 }
 
-int covmatrix_load(struct covmatrix **out, const char *path, double symmetry_tol,
+int hc_covmatrix_load(struct covmatrix **out, const char *path, double symmetry_tol,
 		   struct hc_error *err)
 {
 	return load(out, path, path, NULL, 0, symmetry_tol, 0, err);
 }
 
-int covmatrix_load_buffer(struct covmatrix **out, const char *name,
+int hc_covmatrix_load_buffer(struct covmatrix **out, const char *name,
 			  const char *data, size_t len, double symmetry_tol,
 			  struct hc_error *err)
 {
 	return load(out, name, NULL, data, len, symmetry_tol, 0, err);
 }
 
-int covmatrix_load_within(struct covmatrix **out, const char *path, double symmetry_tol,
+int hc_covmatrix_load_within(struct covmatrix **out, const char *path, double symmetry_tol,
 			  size_t max_bytes, struct hc_error *err)
 {
 	return load(out, path, path, NULL, 0, symmetry_tol, max_bytes, err);
 }
 
-int covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
+int hc_covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
 				 const char *data, size_t len, double symmetry_tol,
 				 size_t max_bytes, struct hc_error *err)
 {
@@ -283,13 +283,13 @@ static struct covmatrix *alloc_like(const struct universe *u)
 	c->ids = hc_calloc(u->m, sizeof *c->ids);
 	if (!c->ids || hc_mul_size(u->m, u->m, &n) ||
 	    !(c->a = hc_reallocarray(NULL, n, sizeof(double)))) {
-		covmatrix_free(c);
+		hc_covmatrix_free(c);
 		return NULL;
 	}
 	for (c->m = 0; c->m < u->m; c->m++) {
 		c->ids[c->m] = hc_strdup(u->ids[c->m]);
 		if (!c->ids[c->m]) {
-			covmatrix_free(c);
+			hc_covmatrix_free(c);
 			return NULL;
 		}
 	}
@@ -383,7 +383,7 @@ static int pairwise_cov(const struct universe *u, double *a, struct hc_error *er
 			double n = cnt[i * m + j];
 
 			/* n counts 0/1 indicators exactly (integers below 2^53) */
-			if ((rc = covmatrix_check_overlap(u, i, j, (size_t)n, err)) != HC_OK)
+			if ((rc = hc_covmatrix_check_overlap(u, i, j, (size_t)n, err)) != HC_OK)
 				goto cleanup;
 			a[i * m + j] = (a[i * m + j] - sx[i * m + j] * sx[j * m + i] / n) / (n - 1);
 		}
@@ -406,7 +406,7 @@ static const char *id_or_number(const struct universe *u, size_t i, char *buf, s
 	return buf;
 }
 
-int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
+int hc_covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
 			    struct hc_error *err)
 {
 	const char *src = u->source ? u->source : "universe";
@@ -425,7 +425,7 @@ int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t
 		n, n == 1 ? "" : "s", COVMATRIX_MIN_COMMON_PERIODS);
 }
 
-int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
+int hc_covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
 			    struct hc_error *err)
 {
 	struct covmatrix *c;
@@ -450,7 +450,7 @@ int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
 		return hc_error(err, HC_ENOMEM, "out of memory for a %zu x %zu covariance matrix", u->m, u->m);
 	rc = u->has_missing ? pairwise_cov(u, c->a, err) : complete_cov(u, c->a, err);
 	if (rc != HC_OK) {
-		covmatrix_free(c);
+		hc_covmatrix_free(c);
 		return rc;
 	}
 	*out = c;
@@ -523,7 +523,7 @@ cleanup:
 	return rc;
 }
 
-int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err)
+int hc_covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err)
 {
 	double *w, lmin;
 	size_t n, neg = 0;
@@ -541,7 +541,7 @@ int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err
 	return rc;
 }
 
-int covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix_psd *st,
+int hc_covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix_psd *st,
 			  struct hc_error *err)
 {
 	double *w, d2 = 0, a2 = 0;
@@ -578,7 +578,7 @@ int covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix
 	return HC_OK;
 }
 
-int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
+int hc_covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
 			     struct hc_error *err)
 {
 	gsl_eigen_symm_workspace *ws = NULL;

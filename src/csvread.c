@@ -32,7 +32,7 @@
  * longer than this (over 100 000 ids of 9 bytes) is decided on its start. */
 #define CSVREAD_SNIFF_MAX (1024 * 1024)
 
-/* Longest number text csvread_parse_number hands to strtod. */
+/* Longest number text hc_csvread_parse_number hands to strtod. */
 #define CSVREAD_NUMBER_MAX 400
 
 enum field_state {
@@ -64,7 +64,7 @@ struct reader {
 	struct hc_error *err;
 };
 
-void csvread_options_init(struct csvread_options *opt)
+void hc_csvread_options_init(struct csvread_options *opt)
 {
 	opt->delimiter = 0;
 	opt->max_field = 0;
@@ -332,7 +332,7 @@ static void reader_release(struct reader *r)
 	hc_free(r->pending);
 }
 
-int csvread_buffer(const char *name, const char *data, size_t len,
+int hc_csvread_buffer(const char *name, const char *data, size_t len,
 		   const struct csvread_options *opt,
 		   const struct csvread_handler *h, char *delimiter_used,
 		   struct hc_error *err)
@@ -351,7 +351,7 @@ int csvread_buffer(const char *name, const char *data, size_t len,
 	return rc;
 }
 
-int csvread_file(const char *path, const struct csvread_options *opt,
+int hc_csvread_file(const char *path, const struct csvread_options *opt,
 		 const struct csvread_handler *h, char *delimiter_used,
 		 struct hc_error *err)
 {
@@ -395,7 +395,7 @@ cleanup:
 	return rc;
 }
 
-int csvread_utf8_valid(const char *str, size_t len)
+int hc_csvread_utf8_valid(const char *str, size_t len)
 {
 	const unsigned char *s = (const unsigned char *)str;
 	size_t i = 0, k, n;
@@ -456,7 +456,7 @@ static const double pow10_exact[] = {
  * strtod's locale handling.  Anything else goes to strtod.  A trailing '%'
  * is folded into the exponent, so "1.23%" parses exactly as "0.0123".
  */
-int csvread_parse_number(const char *s, size_t len, double *value, int *had_percent)
+int hc_csvread_parse_number(const char *s, size_t len, double *value, int *had_percent)
 {
 	size_t i = 0, end = len, digits = 0, sig = 0, begin;
 	uint64_t mant = 0;
@@ -549,7 +549,7 @@ int csvread_parse_number(const char *s, size_t len, double *value, int *had_perc
 	return 0;
 }
 
-int csvread_is_missing(const char *s, size_t len)
+int hc_csvread_is_missing(const char *s, size_t len)
 {
 	static const char *const markers[] = { "na", "nan", "n/a", ".", "null" };
 	size_t i = 0, end = len, k, j, n;
@@ -580,7 +580,7 @@ int csvread_is_missing(const char *s, size_t len)
 	return 0;
 }
 
-const char *csvread_quote(const char *s, size_t len, char *buf)
+const char *hc_csvread_quote(const char *s, size_t len, char *buf)
 {
 	size_t i, o = 0, n = len < CSVREAD_QUOTE_MAX ? len : CSVREAD_QUOTE_MAX;
 

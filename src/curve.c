@@ -19,12 +19,12 @@
 
 #include "holdcount/memory.h"
 
-double curve_expected_variance(const struct moments *mo, double n)
+double hc_curve_expected_variance(const struct moments *mo, double n)
 {
 	return mo->average_variance / n + (1.0 - 1.0 / n) * mo->average_covariance;
 }
 
-double curve_expected_te2(const struct moments *mo, double n)
+double hc_curve_expected_te2(const struct moments *mo, double n)
 {
 	double spread = mo->average_variance - mo->average_covariance;
 	double inv_m = mo->m ? 1.0 / (double)mo->m : 0.0;
@@ -32,13 +32,13 @@ double curve_expected_te2(const struct moments *mo, double n)
 	return spread * (1.0 / n - inv_m);
 }
 
-double curve_diversifiable_share(const struct moments *mo, double n)
+double hc_curve_diversifiable_share(const struct moments *mo, double n)
 {
 	return (mo->average_variance - mo->average_covariance) / n /
-	       curve_expected_variance(mo, n);
+	       hc_curve_expected_variance(mo, n);
 }
 
-int curve_equivalent_count(const struct moments *mo, double s2, double *n_eq)
+int hc_curve_equivalent_count(const struct moments *mo, double s2, double *n_eq)
 {
 	if (!(s2 > mo->average_covariance))
 		return -1;
@@ -106,7 +106,7 @@ static long double subset_sum_variance(const struct moments *mo, size_t n_)
 	return x;
 }
 
-int curve_variance_sd(const struct moments *mo, size_t n, double *sd,
+int hc_curve_variance_sd(const struct moments *mo, size_t n, double *sd,
 		      struct hc_error *err)
 {
 	long double var, n4;
@@ -124,7 +124,7 @@ int curve_variance_sd(const struct moments *mo, size_t n, double *sd,
 	return HC_OK;
 }
 
-void curve_free(struct curve *c)
+void hc_curve_free(struct curve *c)
 {
 	if (!c)
 		return;
@@ -135,22 +135,22 @@ void curve_free(struct curve *c)
 static void exact_point(struct curve_point *p, const struct moments *mo, size_t n,
 			double ppy, double sd)
 {
-	double ev = curve_expected_variance(mo, (double)n);
-	double te2 = curve_expected_te2(mo, (double)n);
+	double ev = hc_curve_expected_variance(mo, (double)n);
+	double te2 = hc_curve_expected_te2(mo, (double)n);
 
 	p->n = n;
 	p->expected_variance = ev * ppy;
 	p->expected_sd = sqrt(ev * ppy);
 	p->variance_sd = sd * ppy;
 	p->expected_tracking_error = te2 > 0 ? sqrt(te2 * ppy) : 0.0;
-	p->diversifiable_share = curve_diversifiable_share(mo, (double)n);
+	p->diversifiable_share = hc_curve_diversifiable_share(mo, (double)n);
 	p->sampled = 0;
 	p->sampled_mean_variance = p->sampled_variance_se = NAN;
 	p->sampled_mean_sd = p->sd_p05 = p->sd_p50 = p->sd_p95 = NAN;
 	p->z_score = NAN;
 }
 
-int curve_exact(struct curve **out, const struct moments *mo,
+int hc_curve_exact(struct curve **out, const struct moments *mo,
 		const size_t *sizes, size_t nsizes, double periods_per_year,
 		struct hc_error *err)
 {
@@ -172,7 +172,7 @@ int curve_exact(struct curve **out, const struct moments *mo,
 	}
 	c = hc_calloc(1, sizeof *c);
 	if (!c || !(c->points = hc_calloc(nsizes ? nsizes : 1, sizeof *c->points))) {
-		curve_free(c);
+		hc_curve_free(c);
 		return hc_error(err, HC_ENOMEM, "out of memory for a curve of %zu points", nsizes);
 	}
 	c->npoints = nsizes;
@@ -183,9 +183,9 @@ int curve_exact(struct curve **out, const struct moments *mo,
 	for (i = 0; i < nsizes; i++) {
 		sd = NAN;
 		if (mo->has_spread) {
-			rc = curve_variance_sd(mo, sizes[i], &sd, err);
+			rc = hc_curve_variance_sd(mo, sizes[i], &sd, err);
 			if (rc) {
-				curve_free(c);
+				hc_curve_free(c);
 				return rc;
 			}
 		}
@@ -280,7 +280,7 @@ static int parse_item(const char *s, size_t len, size_t max, struct sizes_buf *b
 	return HC_OK;
 }
 
-int curve_parse_sizes(const char *text, size_t max, size_t **sizes,
+int hc_curve_parse_sizes(const char *text, size_t max, size_t **sizes,
 		      size_t *nsizes, struct hc_error *err)
 {
 	struct sizes_buf b = {0};
@@ -310,7 +310,7 @@ int curve_parse_sizes(const char *text, size_t max, size_t **sizes,
 	return HC_OK;
 }
 
-int curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
+int hc_curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
 			struct hc_error *err)
 {
 	/* 1..10, then steps of roughly 1.2-1.5x a decade: common practice for a

@@ -1,5 +1,5 @@
 /*
- * curve_report.c - a curve as a report table (the one result model that
+ * hc_curve_report.c - a curve as a report table (the one result model that
  * every writer renders, report.h).  Kept apart from curve.c so that the
  * numerical module does not pull in the writers.
  */
@@ -28,7 +28,7 @@ static const struct {
 
 #define NCOLS (sizeof columns / sizeof columns[0])
 
-int curve_report(const struct curve *c, struct report_table *t)
+int hc_curve_report(const struct curve *c, struct report_table *t)
 {
 	size_t i, j, row;
 	const struct curve_point *p;
@@ -36,28 +36,28 @@ int curve_report(const struct curve *c, struct report_table *t)
 	if (t->ncols)
 		return HC_EUSAGE;
 	for (j = 0; j < NCOLS; j++)
-		if (report_table_add_column(t, columns[j].key, columns[j].title, columns[j].style))
+		if (hc_report_table_add_column(t, columns[j].key, columns[j].title, columns[j].style))
 			return HC_ENOMEM;
 	for (i = 0; i < c->npoints; i++) {
 		p = &c->points[i];
-		if (report_table_add_row(t))
+		if (hc_report_table_add_row(t))
 			return HC_ENOMEM;
 		row = t->nrows - 1;
-		report_table_set_int(t, row, 0, (long long)p->n);
-		report_table_set_real(t, row, 1, p->expected_variance);
-		report_table_set_real(t, row, 2, p->expected_sd);
-		report_table_set_real(t, row, 3, p->variance_sd);
-		report_table_set_real(t, row, 4, p->expected_tracking_error);
-		report_table_set_real(t, row, 5, p->diversifiable_share);
+		hc_report_table_set_int(t, row, 0, (long long)p->n);
+		hc_report_table_set_real(t, row, 1, p->expected_variance);
+		hc_report_table_set_real(t, row, 2, p->expected_sd);
+		hc_report_table_set_real(t, row, 3, p->variance_sd);
+		hc_report_table_set_real(t, row, 4, p->expected_tracking_error);
+		hc_report_table_set_real(t, row, 5, p->diversifiable_share);
 		if (!p->sampled)
 			continue;
-		report_table_set_real(t, row, 6, p->sampled_mean_variance);
-		report_table_set_real(t, row, 7, p->sampled_variance_se);
-		report_table_set_real(t, row, 8, p->sampled_mean_sd);
-		report_table_set_real(t, row, 9, p->sd_p05);
-		report_table_set_real(t, row, 10, p->sd_p50);
-		report_table_set_real(t, row, 11, p->sd_p95);
-		report_table_set_real(t, row, 12, p->z_score);
+		hc_report_table_set_real(t, row, 6, p->sampled_mean_variance);
+		hc_report_table_set_real(t, row, 7, p->sampled_variance_se);
+		hc_report_table_set_real(t, row, 8, p->sampled_mean_sd);
+		hc_report_table_set_real(t, row, 9, p->sd_p05);
+		hc_report_table_set_real(t, row, 10, p->sd_p50);
+		hc_report_table_set_real(t, row, 11, p->sd_p95);
+		hc_report_table_set_real(t, row, 12, p->z_score);
 	}
 	return HC_OK;
 }

@@ -45,7 +45,7 @@ struct reader {
 	size_t last_fund;           /* cache: rows of one fund are usually adjacent */
 };
 
-void holdings_options_init(struct holdings_options *opt)
+void hc_holdings_options_init(struct holdings_options *opt)
 {
 	memset(opt, 0, sizeof *opt);
 	opt->sum_tolerance = HOLDINGS_DEFAULT_SUM_TOLERANCE;
@@ -243,7 +243,7 @@ static int row_check(struct reader *rd, size_t nfields, size_t line,
 	if (rd->col[COL_ISSUER] && blank(rd->cell[COL_ISSUER]))
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: empty issuer, expected an issuer name (or leave out the issuer column)",
 				rd->name, rd->cell_line[COL_ISSUER], rd->col[COL_ISSUER]);
-	if (csvread_parse_number(w, strlen(w), raw, &percent) != 0)
+	if (hc_csvread_parse_number(w, strlen(w), raw, &percent) != 0)
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found '%s', expected a number (%s)",
 				rd->name, rd->cell_line[COL_WEIGHT], rd->col[COL_WEIGHT], w,
 				rd->h->kind == HOLDINGS_VALUES ? "a market value" : "a weight such as 0.052 or 5.2%");
@@ -454,11 +454,11 @@ static int read_csv(const char *name, const char *path, const char *data, size_t
 {
 	struct csvread_options copt;
 
-	csvread_options_init(&copt);
+	hc_csvread_options_init(&copt);
 	copt.delimiter = delimiter;
 	if (path)
-		return csvread_file(path, &copt, h, NULL, err);
-	return csvread_buffer(name, data, len, &copt, h, NULL, err);
+		return hc_csvread_file(path, &copt, h, NULL, err);
+	return hc_csvread_buffer(name, data, len, &copt, h, NULL, err);
 }
 
 static int load(struct holdings **out, const char *name, const char *path,
@@ -472,7 +472,7 @@ static int load(struct holdings **out, const char *name, const char *path,
 
 	*out = NULL;
 	if (!opt) {
-		holdings_options_init(&defaults);
+		hc_holdings_options_init(&defaults);
 		opt = &defaults;
 	}
 	if (opt->weight_column && opt->value_column)
@@ -509,24 +509,24 @@ static int load(struct holdings **out, const char *name, const char *path,
 	rd.h = NULL;
 cleanup:
 	reader_release(&rd);
-	holdings_free(rd.h);
+	hc_holdings_free(rd.h);
 	return rc;
 }
 
-int holdings_load(struct holdings **out, const char *path,
+int hc_holdings_load(struct holdings **out, const char *path,
 		  const struct holdings_options *opt, struct hc_error *err)
 {
 	return load(out, path, path, NULL, 0, opt, err);
 }
 
-int holdings_load_buffer(struct holdings **out, const char *name,
+int hc_holdings_load_buffer(struct holdings **out, const char *name,
 			 const char *data, size_t len,
 			 const struct holdings_options *opt, struct hc_error *err)
 {
 	return load(out, name, NULL, data, len, opt, err);
 }
 
-void holdings_free(struct holdings *h)
+void hc_holdings_free(struct holdings *h)
 {
 	size_t f, k;
 
@@ -689,24 +689,24 @@ cleanup:
 	hc_free(lr.cell[0]);
 	hc_free(lr.cell[1]);
 	hc_free(lr.lines);
-	holdings_labels_free(lr.l);
+	hc_holdings_labels_free(lr.l);
 	return rc;
 }
 
-int holdings_labels_load(struct holdings_labels **out, const char *path,
+int hc_holdings_labels_load(struct holdings_labels **out, const char *path,
 			 char delimiter, struct hc_error *err)
 {
 	return labels_load(out, path, path, NULL, 0, delimiter, err);
 }
 
-int holdings_labels_load_buffer(struct holdings_labels **out, const char *name,
+int hc_holdings_labels_load_buffer(struct holdings_labels **out, const char *name,
 				const char *data, size_t len, char delimiter,
 				struct hc_error *err)
 {
 	return labels_load(out, name, NULL, data, len, delimiter, err);
 }
 
-void holdings_labels_free(struct holdings_labels *l)
+void hc_holdings_labels_free(struct holdings_labels *l)
 {
 	size_t k;
 
@@ -722,7 +722,7 @@ void holdings_labels_free(struct holdings_labels *l)
 	hc_free(l);
 }
 
-const char *holdings_labels_find(const struct holdings_labels *l, const char *id)
+const char *hc_holdings_labels_find(const struct holdings_labels *l, const char *id)
 {
 	size_t lo = 0, hi;
 

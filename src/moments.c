@@ -46,7 +46,7 @@ int blas_thread_shutdown_(void);
  * idle workers (blas_thread_shutdown_ is what OpenBLAS's own fork handler
  * calls; a later threaded call would start them again).
  */
-void moments_blas_serial(void)
+void hc_moments_blas_serial(void)
 {
 	openblas_set_num_threads(1);
 	blas_thread_shutdown_();
@@ -54,7 +54,7 @@ void moments_blas_serial(void)
 
 /* One BLAS thread for a product; the count it replaced (to give to
  * blas_restore).  The count is set only when it differs: setting it
- * re-creates the worker threads moments_blas_serial stopped, and they
+ * re-creates the worker threads hc_moments_blas_serial stopped, and they
  * spin again. */
 static int blas_single(void)
 {
@@ -162,7 +162,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 	return HC_OK;
 }
 
-int moments_from_matrix(struct moments *mo, const double *a, size_t m,
+int hc_moments_from_matrix(struct moments *mo, const double *a, size_t m,
 			struct hc_error *err)
 {
 	memset(mo, 0, sizeof *mo);
@@ -173,7 +173,7 @@ int moments_from_matrix(struct moments *mo, const double *a, size_t m,
 	return sums_from_matrix(mo, a, m, err);
 }
 
-int moments_from_summary(struct moments *mo, double vbar, double cbar,
+int hc_moments_from_summary(struct moments *mo, double vbar, double cbar,
 			 size_t m, struct hc_error *err)
 {
 	memset(mo, 0, sizeof *mo);
@@ -417,7 +417,7 @@ cleanup:
  * pandas' DataFrame.cov and R's use = "pairwise.complete.obs"), divisor
  * n_ij - 1.  Also the overlap variances, for the pairwise correlation.
  * Fewer common periods than covmatrix.h's minimum is HC_EDATA from the
- * routine covmatrix_from_universe uses too, so both refuse the same data
+ * routine hc_covmatrix_from_universe uses too, so both refuse the same data
  * with the same message.
  */
 static int pair_cov(const struct universe *u, size_t i, size_t j,
@@ -434,7 +434,7 @@ static int pair_cov(const struct universe *u, size_t i, size_t j,
 			my += y[k];
 			n++;
 		}
-	if ((rc = covmatrix_check_overlap(u, i, j, n, err)) != HC_OK)
+	if ((rc = hc_covmatrix_check_overlap(u, i, j, n, err)) != HC_OK)
 		return rc;
 	mx /= n;
 	my /= n;
@@ -565,7 +565,7 @@ static int check_shape(const struct universe *u, struct hc_error *err)
 	return HC_OK;
 }
 
-int moments_covariance(const struct universe *u, double **a, struct hc_error *err)
+int hc_moments_covariance(const struct universe *u, double **a, struct hc_error *err)
 {
 	double *xc;
 	long double R;
@@ -587,7 +587,7 @@ int moments_covariance(const struct universe *u, double **a, struct hc_error *er
 	return rc;
 }
 
-int moments_from_universe_route(struct moments *mo, const struct universe *u,
+int hc_moments_from_universe_route(struct moments *mo, const struct universe *u,
 				int route, struct hc_error *err)
 {
 	double *xc = NULL;
@@ -625,12 +625,12 @@ int moments_from_universe_route(struct moments *mo, const struct universe *u,
 	return HC_OK;
 }
 
-int moments_from_universe(struct moments *mo, const struct universe *u,
+int hc_moments_from_universe(struct moments *mo, const struct universe *u,
 			  struct hc_error *err)
 {
 	int route = MOMENTS_ROUTE_PAIRWISE;
 
 	if (!u->has_missing)
 		route = u->t < u->m ? MOMENTS_ROUTE_GRAM : MOMENTS_ROUTE_MATRIX;
-	return moments_from_universe_route(mo, u, route, err);
+	return hc_moments_from_universe_route(mo, u, route, err);
 }

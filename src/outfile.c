@@ -68,7 +68,7 @@ static void pending_remove(const char *tmp)
 			pending_used[i] = 0;
 }
 
-const char *outfile_pending(void)
+const char *hc_outfile_pending(void)
 {
 	int i;
 
@@ -78,7 +78,7 @@ const char *outfile_pending(void)
 	return NULL;
 }
 
-void outfile_unlink_pending(void)
+void hc_outfile_unlink_pending(void)
 {
 	int i;
 
@@ -205,7 +205,7 @@ done:
 	return out;
 }
 
-int outfile_same_file(const char *a, const char *b, int *same, struct hc_error *err)
+int hc_outfile_same_file(const char *a, const char *b, int *same, struct hc_error *err)
 {
 	struct stat sa, sb;
 	char *ca, *cb;
@@ -249,7 +249,7 @@ static void set_final_mode(int fd, const char *path)
 	(void)fchmod(fd, 0666 & ~mask);
 }
 
-int outfile_open(struct outfile *of, const char *path, struct hc_error *err)
+int hc_outfile_open(struct outfile *of, const char *path, struct hc_error *err)
 {
 	int fd, e;
 
@@ -290,7 +290,7 @@ int outfile_open(struct outfile *of, const char *path, struct hc_error *err)
 	of->fp = fdopen(fd, "w");
 	if (!of->fp) {
 		close(fd);
-		outfile_abort(of);
+		hc_outfile_abort(of);
 		goto nomem;
 	}
 	return HC_OK;
@@ -325,7 +325,7 @@ static void sync_directory(const char *path)
 	}
 }
 
-int outfile_commit(struct outfile *of, struct hc_error *err)
+int hc_outfile_commit(struct outfile *of, struct hc_error *err)
 {
 	int e = 0;
 
@@ -348,7 +348,7 @@ int outfile_commit(struct outfile *of, struct hc_error *err)
 		e = errno;
 	if (e) {
 		int rc = hc_error(err, HC_EIO, "cannot write '%s': %s", of->path, strerror(e));
-		outfile_abort(of);
+		hc_outfile_abort(of);
 		return rc;
 	}
 	pending_remove(of->tmp);
@@ -359,7 +359,7 @@ int outfile_commit(struct outfile *of, struct hc_error *err)
 	return HC_OK;
 }
 
-void outfile_abort(struct outfile *of)
+void hc_outfile_abort(struct outfile *of)
 {
 	if (!of)
 		return;

@@ -36,21 +36,21 @@
 #define EM_MULTIBYTE 0.70
 #define PDF_MARGIN 1.08
 
-double plotlayout_to_px(const struct plotlayout_axis *a, double v)
+double hc_plotlayout_to_px(const struct plotlayout_axis *a, double v)
 {
 	double t = a->log ? (log(v) - log(a->lo)) / (log(a->hi) - log(a->lo)) : (v - a->lo) / (a->hi - a->lo);
 
 	return a->px0 + t * (a->px1 - a->px0);
 }
 
-double plotlayout_from_px(const struct plotlayout_axis *a, double px)
+double hc_plotlayout_from_px(const struct plotlayout_axis *a, double px)
 {
 	double t = (px - a->px0) / (a->px1 - a->px0);
 
 	return a->log ? exp(log(a->lo) + t * (log(a->hi) - log(a->lo))) : a->lo + t * (a->hi - a->lo);
 }
 
-double plotlayout_text_px(const char *s, double points)
+double hc_plotlayout_text_px(const char *s, double points)
 {
 	double em = 0.0;
 
@@ -76,7 +76,7 @@ double plotlayout_text_px(const char *s, double points)
 
 /* ---- leaders ------------------------------------------------------------- */
 
-void plotlayout_leader_span(const struct plotlayout_leader *ld, double gap, double *lo, double *hi)
+void hc_plotlayout_leader_span(const struct plotlayout_leader *ld, double gap, double *lo, double *hi)
 {
 	if (ld->left) {
 		*hi = ld->x - gap;
@@ -96,7 +96,7 @@ static int covers(const struct plotlayout_leader *ld, size_t i, size_t j, double
 
 	if (i == j || ld[i].x == ld[j].x)
 		return 0;
-	plotlayout_leader_span(&ld[i], gap, &lo, &hi);
+	hc_plotlayout_leader_span(&ld[i], gap, &lo, &hi);
 	return ld[j].x >= lo - pad && ld[j].x <= hi + pad;
 }
 
@@ -131,13 +131,13 @@ static double spill_of(const struct plotlayout_leader *ld, size_t n, double x0, 
 	size_t i;
 
 	for (i = 0; i < n; i++) {
-		plotlayout_leader_span(&ld[i], gap, &lo, &hi);
+		hc_plotlayout_leader_span(&ld[i], gap, &lo, &hi);
 		s += (lo < x0 ? x0 - lo : 0.0) + (hi > x1 ? hi - x1 : 0.0);
 	}
 	return s;
 }
 
-int plotlayout_leaders(struct plotlayout_leader *ld, size_t n, double x0, double x1, double gap,
+int hc_plotlayout_leaders(struct plotlayout_leader *ld, size_t n, double x0, double x1, double gap,
 		       double pad, double *spill, struct hc_error *err)
 {
 	struct plotlayout_leader best[PLOTLAYOUT_MAX_LEADERS];
@@ -172,29 +172,29 @@ int plotlayout_leaders(struct plotlayout_leader *ld, size_t n, double x0, double
 
 /* ---- free labels ----------------------------------------------------------- */
 
-int plotlayout_overlap(const struct plotlayout_rect *a, const struct plotlayout_rect *b)
+int hc_plotlayout_overlap(const struct plotlayout_rect *a, const struct plotlayout_rect *b)
 {
 	return a->x0 < b->x1 && b->x0 < a->x1 && a->y0 < b->y1 && b->y0 < a->y1;
 }
 
-size_t plotlayout_collisions(const struct plotlayout_rect *r, const struct plotlayout_scene *s)
+size_t hc_plotlayout_collisions(const struct plotlayout_rect *r, const struct plotlayout_scene *s)
 {
 	size_t i, n = 0;
 
 	for (i = 0; i < s->npoints; i++)
 		n += s->px[i] >= r->x0 && s->px[i] <= r->x1 && s->py[i] >= r->y0 && s->py[i] <= r->y1;
 	for (i = 0; i < s->nboxes; i++)
-		n += (size_t)plotlayout_overlap(r, &s->boxes[i]);
+		n += (size_t)hc_plotlayout_overlap(r, &s->boxes[i]);
 	n += r->x0 < s->frame.x0 || r->x1 > s->frame.x1 || r->y0 < s->frame.y0 || r->y1 > s->frame.y1;
 	return n;
 }
 
-size_t plotlayout_choose(const struct plotlayout_rect *cand, size_t ncand, const struct plotlayout_scene *s)
+size_t hc_plotlayout_choose(const struct plotlayout_rect *cand, size_t ncand, const struct plotlayout_scene *s)
 {
 	size_t i, best = 0, c, least = (size_t)-1;
 
 	for (i = 0; i < ncand; i++) {
-		c = plotlayout_collisions(&cand[i], s);
+		c = hc_plotlayout_collisions(&cand[i], s);
 		if (c < least) {
 			least = c;
 			best = i;

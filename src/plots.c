@@ -52,27 +52,27 @@ static const char *const data_names[PLOTS_NDATA] = { "exact.dat", "sampled.dat",
 						      "rolling.dat" };
 static const char *const format_names[] = { "png", "svg", "pdf" };
 
-const char *plots_name(int kind)
+const char *hc_plots_name(int kind)
 {
 	return kind >= 0 && kind < PLOTS_NKINDS ? kinds[kind].name : NULL;
 }
 
-const char *plots_title(int kind)
+const char *hc_plots_title(int kind)
 {
 	return kind >= 0 && kind < PLOTS_NKINDS ? kinds[kind].title : NULL;
 }
 
-const char *plots_data_name(int data)
+const char *hc_plots_data_name(int data)
 {
 	return data >= 0 && data < PLOTS_NDATA ? data_names[data] : NULL;
 }
 
-const char *plots_format_name(int format)
+const char *hc_plots_format_name(int format)
 {
 	return format >= 0 && format <= PLOTS_PDF ? format_names[format] : NULL;
 }
 
-int plots_parse_format(const char *s)
+int hc_plots_parse_format(const char *s)
 {
 	int i;
 
@@ -82,7 +82,7 @@ int plots_parse_format(const char *s)
 	return -1;
 }
 
-unsigned plots_data_used(int kind)
+unsigned hc_plots_data_used(int kind)
 {
 	return kind >= 0 && kind < PLOTS_NKINDS ? kinds[kind].data : 0;
 }
@@ -204,8 +204,8 @@ static int lines_exact(struct lines *l, const struct curve *c, const struct plot
 		double ya = 100.0 * c->points[i].expected_sd, yb = 100.0 * c->points[i + 1].expected_sd;
 		if (xb < ax->lo || xa > ax->hi || (ya > ay->hi && yb > ay->hi))
 			continue;
-		if (lines_segment(l, plotlayout_to_px(ax, xa), plotlayout_to_px(ay, ya), plotlayout_to_px(ax, xb),
-				  plotlayout_to_px(ay, yb)) != HC_OK)
+		if (lines_segment(l, hc_plotlayout_to_px(ax, xa), hc_plotlayout_to_px(ay, ya), hc_plotlayout_to_px(ax, xb),
+				  hc_plotlayout_to_px(ay, yb)) != HC_OK)
 			return HC_ENOMEM;
 	}
 	return HC_OK;
@@ -225,16 +225,16 @@ static int lines_band(struct lines *l, const struct curve *c, const struct plotl
 		double x;
 		if (!p->sampled || (double)p->n < ax->lo || (double)p->n > ax->hi)
 			continue;
-		x = plotlayout_to_px(ax, (double)p->n);
-		if (interior && lines_segment(l, x, plotlayout_to_px(ay, 100 * p->sd_p05), x,
-					      plotlayout_to_px(ay, fmin(100 * p->sd_p95, ay->hi))) != HC_OK)
+		x = hc_plotlayout_to_px(ax, (double)p->n);
+		if (interior && lines_segment(l, x, hc_plotlayout_to_px(ay, 100 * p->sd_p05), x,
+					      hc_plotlayout_to_px(ay, fmin(100 * p->sd_p95, ay->hi))) != HC_OK)
 			return HC_ENOMEM;
 		if (prev) {
-			double xp = plotlayout_to_px(ax, (double)prev->n);
-			if (lines_segment(l, xp, plotlayout_to_px(ay, 100 * prev->sd_p05), x,
-					  plotlayout_to_px(ay, 100 * p->sd_p05)) != HC_OK ||
-			    lines_segment(l, xp, plotlayout_to_px(ay, fmin(100 * prev->sd_p95, ay->hi)), x,
-					  plotlayout_to_px(ay, fmin(100 * p->sd_p95, ay->hi))) != HC_OK)
+			double xp = hc_plotlayout_to_px(ax, (double)prev->n);
+			if (lines_segment(l, xp, hc_plotlayout_to_px(ay, 100 * prev->sd_p05), x,
+					  hc_plotlayout_to_px(ay, 100 * p->sd_p05)) != HC_OK ||
+			    lines_segment(l, xp, hc_plotlayout_to_px(ay, fmin(100 * prev->sd_p95, ay->hi)), x,
+					  hc_plotlayout_to_px(ay, fmin(100 * p->sd_p95, ay->hi))) != HC_OK)
 				return HC_ENOMEM;
 		}
 		prev = p;
@@ -345,13 +345,13 @@ static double risk_top_within(const struct plots_input *in, const struct plotlay
 	size_t i;
 
 	for (i = 0; i < in->exact->npoints; i++) {
-		x = plotlayout_to_px(ax, (double)in->exact->points[i].n);
+		x = hc_plotlayout_to_px(ax, (double)in->exact->points[i].n);
 		if (x >= px0 && x <= px1)
 			top = fmax(top, 100.0 * in->exact->points[i].expected_sd);
 	}
 	for (i = 0; in->sampled && i < in->sampled->npoints; i++) {
 		const struct curve_point *p = &in->sampled->points[i];
-		x = plotlayout_to_px(ax, (double)p->n);
+		x = hc_plotlayout_to_px(ax, (double)p->n);
 		if (p->sampled && x >= px0 && x <= px1)
 			top = fmax(top, fmax(100.0 * p->sd_p95, 100.0 * p->sampled_mean_sd));
 	}
@@ -379,7 +379,7 @@ static int risk_key_entries(const struct plots_input *in, size_t nmarks)
 static struct plotlayout_rect risk_key_rect(const struct plots_input *in, size_t nmarks)
 {
 	struct plotlayout_rect r;
-	double w = plotlayout_text_px("floor (sqrt of the average covariance): 99.99% a year", KEY_POINTS) + 75.0;
+	double w = hc_plotlayout_text_px("floor (sqrt of the average covariance): 99.99% a year", KEY_POINTS) + 75.0;
 	double h = risk_key_entries(in, nmarks) * 1.25 * 17.0 + 12.0;
 
 	r.x1 = FRAME_RIGHT * PLOTS_WIDTH - 2.0;
@@ -398,7 +398,7 @@ static int risk_key_below(const struct plots_input *in, const struct risk_layout
 	struct plotlayout_rect key = risk_key_rect(in, L->nmarks);
 	struct plotlayout_scene sc;
 	struct lines l = { NULL, NULL, 0, 0 };
-	double yf = plotlayout_to_px(&ay, floor_pct(in->exact));
+	double yf = hc_plotlayout_to_px(&ay, floor_pct(in->exact));
 	int rc;
 
 	rc = lines_exact(&l, in->exact, &ax, &ay);
@@ -410,7 +410,7 @@ static int risk_key_below(const struct plots_input *in, const struct risk_layout
 		sc.py = l.y;
 		sc.npoints = l.n;
 		sc.frame = key;
-		*below = plotlayout_collisions(&key, &sc) > 0;
+		*below = hc_plotlayout_collisions(&key, &sc) > 0;
 	}
 	lines_release(&l);
 	return rc;
@@ -426,7 +426,7 @@ static struct plotlayout_axis risk_axis_x(const struct plots_input *in, int kind
 
 /*
  * The rule labels of the risk plot of kind: sides and rows from
- * plotlayout_leaders, then the y axis tall enough that every label's row
+ * hc_plotlayout_leaders, then the y axis tall enough that every label's row
  * clears the curve and the band under its span and its leader.
  */
 static int risk_layout(const struct plots_input *in, int kind, struct risk_layout *L, struct hc_error *err)
@@ -446,14 +446,14 @@ static int risk_layout(const struct plots_input *in, int kind, struct risk_layou
 	memcpy(L->mk, mk, L->nmarks * sizeof *mk);
 	hc_free(mk);
 	for (i = 0; i < L->nmarks; i++) {
-		L->ld[i].x = plotlayout_to_px(&ax, (double)L->mk[i].count);
-		L->ld[i].width = plotlayout_text_px(L->mk[i].label, LABEL_POINTS);
+		L->ld[i].x = hc_plotlayout_to_px(&ax, (double)L->mk[i].count);
+		L->ld[i].width = hc_plotlayout_text_px(L->mk[i].label, LABEL_POINTS);
 	}
-	if ((rc = plotlayout_leaders(L->ld, L->nmarks, ax.px0, ax.px1, RISK_LABEL_GAP, RISK_LABEL_PAD, NULL, err)))
+	if ((rc = hc_plotlayout_leaders(L->ld, L->nmarks, ax.px0, ax.px1, RISK_LABEL_GAP, RISK_LABEL_PAD, NULL, err)))
 		return rc;
 	need = 1.03 * risk_top_pct(in);
 	for (i = 0; i < L->nmarks; i++) {
-		plotlayout_leader_span(&L->ld[i], RISK_LABEL_GAP, &lo, &hi);
+		hc_plotlayout_leader_span(&L->ld[i], RISK_LABEL_GAP, &lo, &hi);
 		double top = risk_top_within(in, &ax, fmin(lo, L->ld[i].x) - 2.0, fmax(hi, L->ld[i].x) + 2.0);
 		need = fmax(need, top / (RISK_ROW_TOP - RISK_ROW_STEP * (double)L->ld[i].row - RISK_ROW_CLEAR));
 	}
@@ -603,7 +603,7 @@ static struct plotlayout_rect funds_key_rect(const struct funds_layout *F)
 	int entries = 3 + F->any_pass + F->any_fail;
 
 	r.x1 = FRAME_RIGHT * PLOTS_WIDTH - 2.0;
-	r.x0 = r.x1 - plotlayout_text_px("fund failing the policy, at its number of holdings", KEY_POINTS) - 75.0;
+	r.x0 = r.x1 - hc_plotlayout_text_px("fund failing the policy, at its number of holdings", KEY_POINTS) - 75.0;
 	r.y1 = FRAME_TOP * PLOTS_HEIGHT - 2.0;
 	r.y0 = r.y1 - entries * 1.25 * 17.0 - 12.0;
 	return r;
@@ -621,7 +621,7 @@ static void funds_key_room(const struct plots_input *in, struct funds_layout *F)
 	double h = (FRAME_TOP - FRAME_BOTTOM) * PLOTS_HEIGHT, k = key.y1 - key.y0, from, top = -INFINITY;
 	size_t i;
 
-	from = plotlayout_from_px(&ax, key.x0 - 4.0);
+	from = hc_plotlayout_from_px(&ax, key.x0 - 4.0);
 	for (i = 0; i < in->exact->npoints; i++)
 		if ((double)in->exact->points[i].n >= from)
 			top = fmax(top, 100.0 * in->exact->points[i].expected_sd);
@@ -692,7 +692,7 @@ static int funds_layout(const struct plots_input *in, struct funds_layout *F, st
 	funds_key_room(in, F);
 	ax = frame_x(F->xmin, F->xmax, 1);
 	ay = frame_y(F->ymin, F->ymax, 0, 0);
-	yf = plotlayout_to_px(&ay, floor_pct(in->exact));
+	yf = hc_plotlayout_to_px(&ay, floor_pct(in->exact));
 	if ((rc = lines_exact(&l, in->exact, &ax, &ay)) || (rc = lines_band(&l, in->sampled, &ax, &ay, 0)) ||
 	    (rc = lines_segment(&l, ax.px0, yf, ax.px1, yf)))
 		goto cleanup;
@@ -702,9 +702,9 @@ static int funds_layout(const struct plots_input *in, struct funds_layout *F, st
 		double y, xc, xe;
 		if (!fund_plottable(f))
 			continue;
-		y = plotlayout_to_px(&ay, 100.0 * f->sd);
-		xc = plotlayout_to_px(&ax, (double)f->holdings);
-		xe = plotlayout_to_px(&ax, f->effective_holdings);
+		y = hc_plotlayout_to_px(&ay, 100.0 * f->sd);
+		xc = hc_plotlayout_to_px(&ax, (double)f->holdings);
+		xe = hc_plotlayout_to_px(&ax, f->effective_holdings);
 		boxes[nb++] = (struct plotlayout_rect){ xe - FUNDS_MARKER_PX, y - FUNDS_MARKER_PX, xc + FUNDS_MARKER_PX,
 							y + FUNDS_MARKER_PX };
 	}
@@ -718,15 +718,15 @@ static int funds_layout(const struct plots_input *in, struct funds_layout *F, st
 		const struct audit_fund *f = &in->audit->funds[i];
 		if (!fund_plottable(f))
 			continue;
-		double y = plotlayout_to_px(&ay, 100.0 * f->sd);
-		nc = funds_candidates(plotlayout_to_px(&ax, (double)f->holdings), plotlayout_to_px(&ax, f->effective_holdings),
-				      y, plotlayout_text_px(F->text + k * FUNDS_NAME_MAX, LABEL_POINTS), cand, right);
+		double y = hc_plotlayout_to_px(&ay, 100.0 * f->sd);
+		nc = funds_candidates(hc_plotlayout_to_px(&ax, (double)f->holdings), hc_plotlayout_to_px(&ax, f->effective_holdings),
+				      y, hc_plotlayout_text_px(F->text + k * FUNDS_NAME_MAX, LABEL_POINTS), cand, right);
 		sc.nboxes = nb;
-		pick = plotlayout_choose(cand, nc, &sc);
+		pick = hc_plotlayout_choose(cand, nc, &sc);
 		boxes[nb++] = cand[pick];
 		F->label_right[k] = right[pick];
-		F->label_x[k] = plotlayout_from_px(&ax, right[pick] ? cand[pick].x1 : cand[pick].x0);
-		F->label_y[k] = plotlayout_from_px(&ay, (cand[pick].y0 + cand[pick].y1) / 2);
+		F->label_x[k] = hc_plotlayout_from_px(&ax, right[pick] ? cand[pick].x1 : cand[pick].x0);
+		F->label_y[k] = hc_plotlayout_from_px(&ay, (cand[pick].y0 + cand[pick].y1) / 2);
 		F->any_left |= !right[pick];
 		F->any_right |= right[pick];
 		k++;
@@ -773,7 +773,7 @@ static size_t rolling_plottable(const struct plots_input *in)
 	return n;
 }
 
-int plots_available(int kind, const struct plots_input *in)
+int hc_plots_available(int kind, const struct plots_input *in)
 {
 	if (!in || !in->exact || in->exact->npoints == 0)
 		return 0;
@@ -888,11 +888,11 @@ static int write_rolling(FILE *fp, const struct plots_input *in)
 		"periods every %zu\n# window_end", r->window, r->step);
 	for (id = 0; id < RULES_COUNT; id++)
 		if (r->rules & RULES_FLAG(id))
-			fprintf(fp, "  %s", rules_name(id));
+			fprintf(fp, "  %s", hc_rules_name(id));
 	fputc('\n', fp);
 	for (j = 0; j < r->nwindows; j++) {
 		const struct rolling_window *w = &r->windows[j];
-		universe_format_date(w->end_date, date);
+		hc_universe_format_date(w->end_date, date);
 		fputs(date, fp);
 		for (q = 0, id = 0; id < RULES_COUNT; id++) {
 			if (!(r->rules & RULES_FLAG(id)))
@@ -908,7 +908,7 @@ static int write_rolling(FILE *fp, const struct plots_input *in)
 	return HC_OK;
 }
 
-int plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err)
+int hc_plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err)
 {
 	int rc;
 
@@ -955,7 +955,7 @@ struct subst {
 static int emit_template(FILE *fp, const char *name, const struct subst *s, size_t ns,
 			 struct hc_error *err)
 {
-	const char *text = plots_template(name), *p, *end;
+	const char *text = hc_plots_template(name), *p, *end;
 	size_t i, len;
 
 	if (!text)
@@ -1121,7 +1121,7 @@ static void tracking_plot(FILE *fp, const struct plots_input *in)
 		 * under the budget line is free there; when the name does not fit
 		 * left of the mark, it goes right of it above the line, where the
 		 * curve has fallen below the budget. */
-		if (plotlayout_to_px(&ax, (double)count) - 8.0 - plotlayout_text_px(label, 10.0) > ax.px0)
+		if (hc_plotlayout_to_px(&ax, (double)count) - 8.0 - hc_plotlayout_text_px(label, 10.0) > ax.px0)
 			fprintf(fp, "set label \"%s\" at %zu, budget / 1.5 right offset character -0.6,0 font \",10\" "
 				"textcolor rgb \"#7b2d63\"\n", label, count);
 		else
@@ -1175,7 +1175,7 @@ static void rolling_plot(FILE *fp, const struct plots_input *in)
 			continue;
 		if (rolling_rule_met(in->rolling, q))
 			fprintf(fp, "%s'rolling.dat' using 1:%zu with linespoints ls %d title \"%s rule\"",
-				drawn++ ? ", \\\n     " : "", q + 2, styles[q % 4], rules_name(id));
+				drawn++ ? ", \\\n     " : "", q + 2, styles[q % 4], hc_rules_name(id));
 		q++;
 	}
 	fputc('\n', fp);
@@ -1242,7 +1242,7 @@ static int layout_for(int kind, const struct plots_input *in, struct risk_layout
 	if (kind == PLOTS_RISK || kind == PLOTS_RISK_LOG) {
 		*L = hc_calloc(1, sizeof **L);
 		if (!*L)
-			return hc_error(err, HC_ENOMEM, "out of memory writing '%s.gp'", plots_name(kind));
+			return hc_error(err, HC_ENOMEM, "out of memory writing '%s.gp'", hc_plots_name(kind));
 		if ((rc = risk_layout(in, kind, *L, err))) {
 			hc_free(*L);
 			*L = NULL;
@@ -1256,7 +1256,7 @@ static int layout_for(int kind, const struct plots_input *in, struct risk_layout
 	return HC_OK;
 }
 
-int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
+int hc_plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
 		       struct hc_error *err)
 {
 	char title[256], sub[320], xmax[32], floor_s[32], budget[32], tics[256];
@@ -1264,10 +1264,10 @@ int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int for
 	struct funds_layout F;
 	int rc, have_funds = 0;
 
-	if (!plots_available(kind, in))
+	if (!hc_plots_available(kind, in))
 		return hc_error(err, HC_EUSAGE, "plot '%s' is not available for these results",
-				plots_name(kind) ? plots_name(kind) : "?");
-	if (!plots_format_name(format))
+				hc_plots_name(kind) ? hc_plots_name(kind) : "?");
+	if (!hc_plots_format_name(format))
 		return hc_error(err, HC_EUSAGE, "no plot format number %d", format);
 	memset(&F, 0, sizeof F);
 	if ((rc = layout_for(kind, in, &L, &F, &have_funds, err)))
@@ -1309,7 +1309,7 @@ int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int for
 	return HC_OK;
 }
 
-const char *plots_caption(int kind, const struct plots_input *in, char *buf, size_t size)
+const char *hc_plots_caption(int kind, const struct plots_input *in, char *buf, size_t size)
 {
 	const struct curve_point *last = &in->exact->points[in->exact->npoints - 1];
 
@@ -1363,7 +1363,7 @@ const char *plots_caption(int kind, const struct plots_input *in, char *buf, siz
 					continue;
 				if (!rolling_rule_met(in->rolling, q++))
 					len += (size_t)snprintf(buf + len, size - len, "%s%s", unmet++ ? ", " : " Not met in "
-								"any window, so not drawn: ", rules_name(id));
+								"any window, so not drawn: ", hc_rules_name(id));
 			}
 			if (unmet && len + 1 < size)
 				snprintf(buf + len, size - len, ".");
@@ -1376,7 +1376,7 @@ const char *plots_caption(int kind, const struct plots_input *in, char *buf, siz
 
 /* ---- running gnuplot ------------------------------------------------------------- */
 
-int plots_find_gnuplot(const char *path_env, char *buf, size_t size)
+int hc_plots_find_gnuplot(const char *path_env, char *buf, size_t size)
 {
 	const char *p = path_env ? path_env : getenv("PATH"), *end;
 	struct stat st;
@@ -1492,7 +1492,7 @@ static int spawn(pid_t *pid, const char *gnuplot, const char *dir, const char *s
 	return HC_OK;
 }
 
-int plots_render(const char *gnuplot, const char *dir, const char *script, struct hc_error *err)
+int hc_plots_render(const char *gnuplot, const char *dir, const char *script, struct hc_error *err)
 {
 	char msg[PLOTS_MESSAGE_KEEP + 1];
 	int fds[2], status, rc;

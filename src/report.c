@@ -26,7 +26,7 @@
 #define REPORT_NUMBER_MAX 64
 #define REPORT_TEXT_WIDTH 79  /* notes wrap to fit an 80-column terminal */
 
-struct report *report_alloc(void)
+struct report *hc_report_alloc(void)
 {
 	return hc_calloc(1, sizeof(struct report));
 }
@@ -57,7 +57,7 @@ static void table_free(struct report_table *t)
 	hc_free(t);
 }
 
-void report_free(struct report *r)
+void hc_report_free(struct report *r)
 {
 	size_t i;
 
@@ -106,7 +106,7 @@ static struct report_field *add_field(struct report *r, const char *key, const c
 	return f;
 }
 
-int report_add_real(struct report *r, const char *key, const char *title, double x, int style)
+int hc_report_add_real(struct report *r, const char *key, const char *title, double x, int style)
 {
 	struct report_field *f = add_field(r, key, title);
 
@@ -120,7 +120,7 @@ int report_add_real(struct report *r, const char *key, const char *title, double
 	return HC_OK;
 }
 
-int report_add_int(struct report *r, const char *key, const char *title, long long x)
+int hc_report_add_int(struct report *r, const char *key, const char *title, long long x)
 {
 	struct report_field *f = add_field(r, key, title);
 
@@ -131,7 +131,7 @@ int report_add_int(struct report *r, const char *key, const char *title, long lo
 	return HC_OK;
 }
 
-int report_add_text(struct report *r, const char *key, const char *title, const char *s)
+int hc_report_add_text(struct report *r, const char *key, const char *title, const char *s)
 {
 	struct report_field *f;
 	char *copy = hc_strdup(s ? s : "");
@@ -148,7 +148,7 @@ int report_add_text(struct report *r, const char *key, const char *title, const 
 	return HC_OK;
 }
 
-int report_add_bool(struct report *r, const char *key, const char *title, int b)
+int hc_report_add_bool(struct report *r, const char *key, const char *title, int b)
 {
 	struct report_field *f = add_field(r, key, title);
 
@@ -159,12 +159,12 @@ int report_add_bool(struct report *r, const char *key, const char *title, int b)
 	return HC_OK;
 }
 
-int report_add_none(struct report *r, const char *key, const char *title)
+int hc_report_add_none(struct report *r, const char *key, const char *title)
 {
 	return add_field(r, key, title) ? HC_OK : HC_ENOMEM;
 }
 
-int report_add_note(struct report *r, const char *note)
+int hc_report_add_note(struct report *r, const char *note)
 {
 	char **nn;
 	char *copy = hc_strdup(note);
@@ -181,7 +181,7 @@ int report_add_note(struct report *r, const char *note)
 	return HC_OK;
 }
 
-struct report_table *report_add_table(struct report *r, const char *key, const char *title)
+struct report_table *hc_report_add_table(struct report *r, const char *key, const char *title)
 {
 	struct report_table **nt;
 	struct report_table *t = hc_calloc(1, sizeof *t);
@@ -224,7 +224,7 @@ static int widen_rows(struct report_table *t)
 	return HC_OK;
 }
 
-int report_table_add_column(struct report_table *t, const char *key, const char *title, int style)
+int hc_report_table_add_column(struct report_table *t, const char *key, const char *title, int style)
 {
 	struct report_column *nc;
 	char *k, *ti;
@@ -253,7 +253,7 @@ int report_table_add_column(struct report_table *t, const char *key, const char 
 	return HC_OK;
 }
 
-int report_table_add_row(struct report_table *t)
+int hc_report_table_add_row(struct report_table *t)
 {
 	size_t i;
 
@@ -286,7 +286,7 @@ static struct report_value *cell(struct report_table *t, size_t row, size_t col)
 	return v;
 }
 
-void report_table_set_real(struct report_table *t, size_t row, size_t col, double x)
+void hc_report_table_set_real(struct report_table *t, size_t row, size_t col, double x)
 {
 	struct report_value *v = cell(t, row, col);
 
@@ -296,7 +296,7 @@ void report_table_set_real(struct report_table *t, size_t row, size_t col, doubl
 	}
 }
 
-void report_table_set_int(struct report_table *t, size_t row, size_t col, long long x)
+void hc_report_table_set_int(struct report_table *t, size_t row, size_t col, long long x)
 {
 	struct report_value *v = cell(t, row, col);
 
@@ -304,7 +304,7 @@ void report_table_set_int(struct report_table *t, size_t row, size_t col, long l
 	v->integer = x;
 }
 
-int report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s)
+int hc_report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s)
 {
 	char *copy = hc_strdup(s ? s : "");
 	struct report_value *v;
@@ -317,7 +317,7 @@ int report_table_set_text(struct report_table *t, size_t row, size_t col, const 
 	return HC_OK;
 }
 
-int report_table_set_none(struct report_table *t, size_t row, size_t col, const char *reason)
+int hc_report_table_set_none(struct report_table *t, size_t row, size_t col, const char *reason)
 {
 	char *copy = hc_strdup(reason ? reason : "");
 	struct report_value *v;
@@ -329,7 +329,7 @@ int report_table_set_none(struct report_table *t, size_t row, size_t col, const 
 	return HC_OK;
 }
 
-void report_table_set_bool(struct report_table *t, size_t row, size_t col, int b)
+void hc_report_table_set_bool(struct report_table *t, size_t row, size_t col, int b)
 {
 	struct report_value *v = cell(t, row, col);
 
@@ -657,7 +657,7 @@ static int write_csv(FILE *fp, const struct report *r, struct hc_error *err)
 	return ferror(fp) ? write_failed(err) : HC_OK;
 }
 
-const struct report_table *report_find_table(const struct report *r, const char *key)
+const struct report_table *hc_report_find_table(const struct report *r, const char *key)
 {
 	size_t i;
 
@@ -667,11 +667,11 @@ const struct report_table *report_find_table(const struct report *r, const char 
 	return NULL;
 }
 
-int report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err)
+int hc_report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err)
 {
 	const struct report_table *t = NULL;
 
-	if (table && !(t = report_find_table(r, table)))
+	if (table && !(t = hc_report_find_table(r, table)))
 		return hc_error(err, HC_EUSAGE, "the output has no table '%s'", table);
 	errno = 0;
 	if (t)
@@ -836,11 +836,11 @@ static const struct report_writer writer_text = { "table", write_text };
 static const struct report_writer writer_csv = { "csv", write_csv };
 static const struct report_writer writer_json = { "json", write_json };
 
-const struct report_writer *const report_writer_text = &writer_text;
-const struct report_writer *const report_writer_csv = &writer_csv;
-const struct report_writer *const report_writer_json = &writer_json;
+const struct report_writer *const hc_report_writer_text = &writer_text;
+const struct report_writer *const hc_report_writer_csv = &writer_csv;
+const struct report_writer *const hc_report_writer_json = &writer_json;
 
-const struct report_writer *report_writer_find(const char *name)
+const struct report_writer *hc_report_writer_find(const char *name)
 {
 	static const struct report_writer *const all[] = { &writer_text, &writer_csv, &writer_json };
 	size_t i;
@@ -862,12 +862,12 @@ static const char *const cautions[] = {
 	"not investment advice: defer to licensed advisers and to each fund's own legal limits",
 };
 
-int report_add_cautions(struct report *r)
+int hc_report_add_cautions(struct report *r)
 {
 	size_t i;
 
 	for (i = 0; i < sizeof cautions / sizeof cautions[0]; i++)
-		if (report_add_note(r, cautions[i]))
+		if (hc_report_add_note(r, cautions[i]))
 			return HC_ENOMEM;
 	return HC_OK;
 }

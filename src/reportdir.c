@@ -11,7 +11,7 @@
  * DIR naming files with no data.
  *
  * The temporary folder's path and its file names live in static char
- * arrays, so reportdir_unlink_pending can run in a signal handler (unlink
+ * arrays, so hc_reportdir_unlink_pending can run in a signal handler (unlink
  * and rmdir are async-signal-safe; no heap, no stdio).
  */
 #define _GNU_SOURCE 1
@@ -69,7 +69,7 @@ static const char *sig_join(const char *name)
 	return sig_path;
 }
 
-void reportdir_unlink_pending(void)
+void hc_reportdir_unlink_pending(void)
 {
 	sig_atomic_t i;
 
@@ -241,7 +241,7 @@ static int write_marker(const char *tmp, struct hc_error *err)
 	return ok ? HC_OK : hc_error(err, HC_EIO, "cannot write in '%s': %s", tmp, strerror(errno));
 }
 
-int reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *removed,
+int hc_reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *removed,
 		    struct hc_error *err)
 {
 	struct reportdir *rd;
@@ -262,7 +262,7 @@ int reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *
 	while (len > 1 && dir[len - 1] == '/')
 		len--;
 	if (!rd || !(rd->dir = hc_strndup(dir, len)) || !(rd->tmp = hc_malloc(len + sizeof TMP_INFIX + TMP_SUFFIX_LEN))) {
-		reportdir_free(rd);
+		hc_reportdir_free(rd);
 		return hc_error(err, HC_ENOMEM, "out of memory starting the report folder");
 	}
 	snprintf(rd->tmp, len + sizeof TMP_INFIX + TMP_SUFFIX_LEN, "%s%sXXXXXX", rd->dir, TMP_INFIX);
@@ -270,7 +270,7 @@ int reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *
 		rc = hc_error(err, HC_EIO, "cannot make the folder '%s': %s", rd->tmp,
 			      strlen(rd->tmp) >= sizeof sig_tmp ? "name too long" : strerror(errno));
 		rd->tmp[0] = '\0';
-		reportdir_free(rd);
+		hc_reportdir_free(rd);
 		return rc;
 	}
 	strcpy(sig_tmp, rd->tmp);
@@ -278,19 +278,19 @@ int reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *
 	sig_active = 1;
 	rd->force = force;
 	if ((rc = write_marker(rd->tmp, err)) != HC_OK) {
-		reportdir_free(rd);
+		hc_reportdir_free(rd);
 		return rc;
 	}
 	*out = rd;
 	return HC_OK;
 }
 
-const char *reportdir_tmp_path(const struct reportdir *rd)
+const char *hc_reportdir_tmp_path(const struct reportdir *rd)
 {
 	return rd->tmp;
 }
 
-int reportdir_has(const struct reportdir *rd, const char *name)
+int hc_reportdir_has(const struct reportdir *rd, const char *name)
 {
 	char *p = join(rd->tmp, name);
 	struct stat st;
@@ -303,7 +303,7 @@ int reportdir_has(const struct reportdir *rd, const char *name)
 	return has;
 }
 
-int reportdir_expect(struct reportdir *rd, const char *name, struct hc_error *err)
+int hc_reportdir_expect(struct reportdir *rd, const char *name, struct hc_error *err)
 {
 	sig_atomic_t i;
 
@@ -320,13 +320,13 @@ int reportdir_expect(struct reportdir *rd, const char *name, struct hc_error *er
 	return HC_OK;
 }
 
-int reportdir_open(struct reportdir *rd, const char *name, FILE **fp, struct hc_error *err)
+int hc_reportdir_open(struct reportdir *rd, const char *name, FILE **fp, struct hc_error *err)
 {
 	char *p;
 	int rc;
 
 	*fp = NULL;
-	if ((rc = reportdir_expect(rd, name, err)) != HC_OK)
+	if ((rc = hc_reportdir_expect(rd, name, err)) != HC_OK)
 		return rc;
 	p = join(rd->tmp, name);
 	if (!p)
@@ -337,7 +337,7 @@ int reportdir_open(struct reportdir *rd, const char *name, FILE **fp, struct hc_
 	return rc;
 }
 
-int reportdir_close(struct reportdir *rd, FILE *fp, const char *name, struct hc_error *err)
+int hc_reportdir_close(struct reportdir *rd, FILE *fp, const char *name, struct hc_error *err)
 {
 	int bad;
 
@@ -432,7 +432,7 @@ static int put_in_place(struct reportdir *rd)
 	return swap(rd->tmp, rd->dir);
 }
 
-int reportdir_commit(struct reportdir *rd, struct hc_error *err)
+int hc_reportdir_commit(struct reportdir *rd, struct hc_error *err)
 {
 	char *marker = join(rd->tmp, REPORTDIR_MARKER), *parent = parent_of(rd->dir);
 	int existed, rc = HC_OK;
@@ -472,7 +472,7 @@ cleanup:
 	return rc;
 }
 
-void reportdir_free(struct reportdir *rd)
+void hc_reportdir_free(struct reportdir *rd)
 {
 	if (!rd)
 		return;

@@ -21,7 +21,7 @@
  * error is of order R * 2^-52 relative, and the sums are rebuilt from
  * scratch every ROLLING_DEFAULT_REFRESH (64) windows and whenever the kept
  * set changes, so it stays near 1e-14.  A rebuilt window's figures are
- * universe_window + moments_from_universe, exactly what `describe` and
+ * hc_universe_window + hc_moments_from_universe, exactly what `describe` and
  * `enough` compute for that stretch of data.
  */
 #include "holdcount/rolling.h"
@@ -33,7 +33,7 @@
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 
-void rolling_options_init(struct rolling_options *opt)
+void hc_rolling_options_init(struct rolling_options *opt)
 {
 	memset(opt, 0, sizeof *opt);
 	opt->window = 60;
@@ -41,11 +41,11 @@ void rolling_options_init(struct rolling_options *opt)
 	opt->missing = UNIVERSE_MISSING_COMPLETE;
 	opt->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
 	opt->refresh = ROLLING_DEFAULT_REFRESH;
-	rules_config_init(&opt->rules);
-	bootstrap_options_init(&opt->boot);
+	hc_rules_config_init(&opt->rules);
+	hc_bootstrap_options_init(&opt->boot);
 }
 
-void rolling_result_free(struct rolling_result *r)
+void hc_rolling_result_free(struct rolling_result *r)
 {
 	if (!r)
 		return;
@@ -122,7 +122,7 @@ static int slide_init(struct slide *s, const struct universe *u, size_t w)
 }
 
 /* The complete-data policy in the window at a: complete and not constant
- * (universe_window's rule).  Returns 1 when the set differs from the sums'. */
+ * (hc_universe_window's rule).  Returns 1 when the set differs from the sums'. */
 static int slide_examine(struct slide *s, size_t a)
 {
 	size_t i, m = s->u->m, t = s->u->t, w = s->w;
@@ -263,7 +263,7 @@ static int window_rules(const struct job *jb, struct rolling_window *w,
 	for (id = 0; id < RULES_COUNT; id++) {
 		if (!(opt->rules.selected & RULES_EXACT_MASK & RULES_FLAG(id)))
 			continue;
-		rc = rules_exact(&opt->rules, id, w->average_variance, w->average_covariance,
+		rc = hc_rules_exact(&opt->rules, id, w->average_variance, w->average_covariance,
 				 w->securities, jb->u->periods_per_year, &w->rules[w->nrules++], err);
 		if (rc)
 			return rc;
@@ -273,14 +273,14 @@ static int window_rules(const struct job *jb, struct rolling_window *w,
 	bo = opt->boot;
 	bo.replicates = opt->replicates;
 	bo.progress = NULL;
-	if ((rc = bootstrap_base_alloc(&base, wu, err)) ||
-	    (rc = bootstrap_run(&br, base, &bo, err)))
+	if ((rc = hc_bootstrap_base_alloc(&base, wu, err)) ||
+	    (rc = hc_bootstrap_run(&br, base, &bo, err)))
 		goto cleanup;
-	rc = rules_bootstrap_exact(&opt->rules, br->vbar, br->cbar, br->replicates, w->securities,
+	rc = hc_rules_bootstrap_exact(&opt->rules, br->vbar, br->cbar, br->replicates, w->securities,
 				   jb->u->periods_per_year, w->rules, w->nrules, err);
 cleanup:
-	bootstrap_result_free(br);
-	bootstrap_base_free(base);
+	hc_bootstrap_result_free(br);
+	hc_bootstrap_base_free(base);
 	return rc;
 }
 
@@ -305,13 +305,13 @@ static int window_scratch(struct job *jb, struct rolling_window *w, struct hc_er
 
 	w->recomputed = 1;
 	jb->slide.valid = 0;
-	rc = universe_window(&wu, jb->u, w->first, opt->window, opt->missing, opt->min_coverage, err);
+	rc = hc_universe_window(&wu, jb->u, w->first, opt->window, opt->missing, opt->min_coverage, err);
 	if (rc == HC_OK)
-		rc = moments_from_universe(&mo, wu, err);
+		rc = hc_moments_from_universe(&mo, wu, err);
 	if (rc) {
 		w->securities = wu ? wu->m : 0;
 		w->dropped = jb->u->m - w->securities;
-		universe_free(wu);
+		hc_universe_free(wu);
 		return window_unusable(w, err);
 	}
 	w->securities = wu->m;
@@ -320,7 +320,7 @@ static int window_scratch(struct job *jb, struct rolling_window *w, struct hc_er
 	w->average_covariance = mo.average_covariance;
 	w->average_correlation = mo.average_correlation;
 	rc = window_rules(jb, w, wu, err);
-	universe_free(wu);
+	hc_universe_free(wu);
 	if (rc)
 		return rc == HC_EDATA ? window_unusable(w, err) : rc;
 	if (jb->sliding) {
@@ -355,11 +355,11 @@ static int window_one(struct job *jb, struct rolling_window *w, struct hc_error 
 	w->securities = s->nkept;
 	w->dropped = jb->u->m - s->nkept;
 	if (jb->opt->replicates &&
-	    (rc = universe_window(&wu, jb->u, w->first, jb->opt->window, jb->opt->missing,
+	    (rc = hc_universe_window(&wu, jb->u, w->first, jb->opt->window, jb->opt->missing,
 				  jb->opt->min_coverage, err)))
 		return rc;
 	rc = window_rules(jb, w, wu, err);
-	universe_free(wu);
+	hc_universe_free(wu);
 	return rc;
 }
 
@@ -386,14 +386,14 @@ static int check_options(const struct universe *u, const struct rolling_options 
 	if (!(opt->rules.selected & RULES_EXACT_MASK))
 		return hc_error(err, HC_EUSAGE,
 				"no exact rule selected; rolling windows evaluate the exact rules");
-	if ((rc = rules_config_check(&opt->rules, err)))
+	if ((rc = hc_rules_config_check(&opt->rules, err)))
 		return rc;
 	if (u->t > UINT32_MAX)
 		return hc_error(err, HC_ENOMEM, "%zu periods are too many for rolling windows", u->t);
 	return HC_OK;
 }
 
-int rolling_run(struct rolling_result **out, const struct universe *u,
+int hc_rolling_run(struct rolling_result **out, const struct universe *u,
 		const struct rolling_options *opt, struct hc_error *err)
 {
 	struct rolling_result *r = NULL;
@@ -440,7 +440,7 @@ int rolling_run(struct rolling_result **out, const struct universe *u,
 	r = NULL;
 cleanup:
 	slide_release(&jb.slide);
-	rolling_result_free(r);
+	hc_rolling_result_free(r);
 	return rc;
 }
 
@@ -453,31 +453,31 @@ static int add_columns(struct report_table *t, const struct rolling_result *r)
 	size_t q, c;
 	int id, rc = 0;
 
-	rc |= report_table_add_column(t, "window_start", "from", REPORT_STYLE_PLAIN);
-	rc |= report_table_add_column(t, "window_end", "to", REPORT_STYLE_PLAIN);
-	rc |= report_table_add_column(t, "securities", "securities", REPORT_STYLE_PLAIN);
-	rc |= report_table_add_column(t, "average_variance", "avg variance", REPORT_STYLE_SCI);
-	rc |= report_table_add_column(t, "average_covariance", "avg covariance", REPORT_STYLE_SCI);
-	rc |= report_table_add_column(t, "average_correlation", "avg corr", REPORT_STYLE_FIXED4);
-	rc |= report_table_add_column(t, "floor_sd", "floor sd", REPORT_STYLE_PERCENT);
+	rc |= hc_report_table_add_column(t, "window_start", "from", REPORT_STYLE_PLAIN);
+	rc |= hc_report_table_add_column(t, "window_end", "to", REPORT_STYLE_PLAIN);
+	rc |= hc_report_table_add_column(t, "securities", "securities", REPORT_STYLE_PLAIN);
+	rc |= hc_report_table_add_column(t, "average_variance", "avg variance", REPORT_STYLE_SCI);
+	rc |= hc_report_table_add_column(t, "average_covariance", "avg covariance", REPORT_STYLE_SCI);
+	rc |= hc_report_table_add_column(t, "average_correlation", "avg corr", REPORT_STYLE_FIXED4);
+	rc |= hc_report_table_add_column(t, "floor_sd", "floor sd", REPORT_STYLE_PERCENT);
 	for (id = 0; id < RULES_COUNT; id++) {
 		if (!(r->rules & RULES_FLAG(id)))
 			continue;
-		snprintf(name, sizeof name, "%s", rules_name(id));
+		snprintf(name, sizeof name, "%s", hc_rules_name(id));
 		for (c = 0; name[c]; c++)
 			if (name[c] == '-')
 				name[c] = '_';
 		snprintf(key, sizeof key, "count_%s", name);
-		snprintf(title, sizeof title, "%s", rules_name(id));
-		rc |= report_table_add_column(t, key, title, REPORT_STYLE_PLAIN);
+		snprintf(title, sizeof title, "%s", hc_rules_name(id));
+		rc |= hc_report_table_add_column(t, key, title, REPORT_STYLE_PLAIN);
 		for (q = 0; r->replicates && q < 3; q++) {
 			snprintf(key, sizeof key, "count_%s_%s", name, pct[q]);
-			snprintf(title, sizeof title, "%s %s", rules_name(id), pct[q]);
-			rc |= report_table_add_column(t, key, title, REPORT_STYLE_PLAIN);
+			snprintf(title, sizeof title, "%s %s", hc_rules_name(id), pct[q]);
+			rc |= hc_report_table_add_column(t, key, title, REPORT_STYLE_PLAIN);
 		}
 	}
-	rc |= report_table_add_column(t, "dropped", "dropped", REPORT_STYLE_PLAIN);
-	rc |= report_table_add_column(t, "note", "note", REPORT_STYLE_PLAIN);
+	rc |= hc_report_table_add_column(t, "dropped", "dropped", REPORT_STYLE_PLAIN);
+	rc |= hc_report_table_add_column(t, "note", "note", REPORT_STYLE_PLAIN);
 	return rc;
 }
 
@@ -495,10 +495,10 @@ static int window_note(struct report_table *t, size_t row, size_t col,
 		if (w->rules[j].note[0] && len < sizeof buf)
 			len += (size_t)snprintf(buf + len, sizeof buf - len, "%s%s: %s",
 						len ? "; " : "", w->rules[j].name, w->rules[j].note);
-	return buf[0] ? report_table_set_text(t, row, col, buf) : 0;
+	return buf[0] ? hc_report_table_set_text(t, row, col, buf) : 0;
 }
 
-/* A count percentile as enough prints it (rules_set_interval): a whole
+/* A count percentile as enough prints it (hc_rules_set_interval): a whole
  * count, "not met" where it falls among replicates that never meet the
  * rule, empty without a bootstrap. */
 static int set_percentile(struct report_table *t, size_t row, size_t col,
@@ -507,8 +507,8 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 	if (!rr->bootstrapped)
 		return 0;
 	if (isnan(p))
-		return report_table_set_text(t, row, col, "not met");
-	report_table_set_int(t, row, col, (long long)p);
+		return hc_report_table_set_text(t, row, col, "not met");
+	hc_report_table_set_int(t, row, col, (long long)p);
 	return 0;
 }
 
@@ -520,26 +520,26 @@ static int add_row(struct report_table *t, const struct rolling_result *r,
 	size_t j, c = 0, row;
 	int rc = 0;
 
-	if (report_table_add_row(t))
+	if (hc_report_table_add_row(t))
 		return -1;
 	row = t->nrows - 1;
-	universe_format_date(w->start_date, d);
-	rc |= report_table_set_text(t, row, c++, d);
-	universe_format_date(w->end_date, d);
-	rc |= report_table_set_text(t, row, c++, d);
-	report_table_set_int(t, row, c++, (long long)w->securities);
+	hc_universe_format_date(w->start_date, d);
+	rc |= hc_report_table_set_text(t, row, c++, d);
+	hc_universe_format_date(w->end_date, d);
+	rc |= hc_report_table_set_text(t, row, c++, d);
+	hc_report_table_set_int(t, row, c++, (long long)w->securities);
 	if (w->status != HC_OK) {
 		c = t->ncols - 2;
 	} else {
-		report_table_set_real(t, row, c++, w->average_variance * ppy);
-		report_table_set_real(t, row, c++, w->average_covariance * ppy);
-		report_table_set_real(t, row, c++, w->average_correlation);
-		report_table_set_real(t, row, c++, w->average_covariance > 0
+		hc_report_table_set_real(t, row, c++, w->average_variance * ppy);
+		hc_report_table_set_real(t, row, c++, w->average_covariance * ppy);
+		hc_report_table_set_real(t, row, c++, w->average_correlation);
+		hc_report_table_set_real(t, row, c++, w->average_covariance > 0
 				      ? sqrt(w->average_covariance * ppy) : NAN);
 		for (j = 0; j < w->nrules; j++) {
 			const struct rule_result *rr = &w->rules[j];
 			if (rr->defined && rr->met)
-				report_table_set_int(t, row, c, (long long)rr->count);
+				hc_report_table_set_int(t, row, c, (long long)rr->count);
 			c++;
 			if (!r->replicates)
 				continue;
@@ -548,12 +548,12 @@ static int add_row(struct report_table *t, const struct rolling_result *r,
 			rc |= set_percentile(t, row, c++, rr, rr->count_p95);
 		}
 	}
-	report_table_set_int(t, row, c++, (long long)w->dropped);
+	hc_report_table_set_int(t, row, c++, (long long)w->dropped);
 	rc |= window_note(t, row, c, w);
 	return rc;
 }
 
-int rolling_report(struct report *rep, const struct rolling_result *r,
+int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 		   struct hc_error *err)
 {
 	struct report_table *t;
@@ -562,15 +562,15 @@ int rolling_report(struct report *rep, const struct rolling_result *r,
 
 	for (j = 0; j < r->nwindows; j++)
 		rebuilt += r->windows[j].recomputed;
-	rc |= report_add_int(rep, "window", "window (periods)", (long long)r->window);
-	rc |= report_add_int(rep, "step", "step (periods)", (long long)r->step);
-	rc |= report_add_real(rep, "periods_per_year", "periods per year", r->periods_per_year,
+	rc |= hc_report_add_int(rep, "window", "window (periods)", (long long)r->window);
+	rc |= hc_report_add_int(rep, "step", "step (periods)", (long long)r->step);
+	rc |= hc_report_add_real(rep, "periods_per_year", "periods per year", r->periods_per_year,
 			      REPORT_STYLE_PLAIN);
-	rc |= report_add_int(rep, "window_count", "windows", (long long)r->nwindows);
-	rc |= report_add_int(rep, "windows_recomputed", "windows computed from scratch", (long long)rebuilt);
+	rc |= hc_report_add_int(rep, "window_count", "windows", (long long)r->nwindows);
+	rc |= hc_report_add_int(rep, "windows_recomputed", "windows computed from scratch", (long long)rebuilt);
 	if (r->replicates)
-		rc |= report_add_int(rep, "replicates", "bootstrap replicates", (long long)r->replicates);
-	t = report_add_table(rep, "windows", "rolling windows");
+		rc |= hc_report_add_int(rep, "replicates", "bootstrap replicates", (long long)r->replicates);
+	t = hc_report_add_table(rep, "windows", "rolling windows");
 	if (rc || !t)
 		return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");
 	if (add_columns(t, r))

@@ -36,7 +36,7 @@ static const char *scale_word(int per_period)
 	return per_period ? " per period" : " a year";
 }
 
-void rules_config_init(struct rules_config *cfg)
+void hc_rules_config_init(struct rules_config *cfg)
 {
 	memset(cfg, 0, sizeof *cfg);
 	cfg->selected = RULES_ALL_MASK;
@@ -57,7 +57,7 @@ static int positive(double x)
 	return isfinite(x) && x > 0;
 }
 
-int rules_config_check(const struct rules_config *cfg, struct hc_error *err)
+int hc_rules_config_check(const struct rules_config *cfg, struct hc_error *err)
 {
 	if (!positive(cfg->near_floor_x))
 		return hc_error(err, HC_EUSAGE, "bad near-floor margin: expected a positive share, found %g", cfg->near_floor_x);
@@ -80,7 +80,7 @@ int rules_config_check(const struct rules_config *cfg, struct hc_error *err)
 	return HC_OK;
 }
 
-const char *rules_name(int rule)
+const char *hc_rules_name(int rule)
 {
 	return rule >= 0 && rule < RULES_COUNT ? rule_names[rule] : NULL;
 }
@@ -107,7 +107,7 @@ static int lookup_rule(const char *s, size_t len, unsigned *mask)
 	return -1;
 }
 
-int rules_parse_list(const char *text, unsigned *mask, struct hc_error *err)
+int hc_rules_parse_list(const char *text, unsigned *mask, struct hc_error *err)
 {
 	const char *p = text;
 	unsigned out = 0, one;
@@ -307,7 +307,7 @@ static int exact_count(const struct rules_config *cfg, int rule,
 	return 1;
 }
 
-int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
+int hc_rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
 		      double cbar, size_t m, double periods_per_year,
 		      size_t *count)
 {
@@ -433,7 +433,7 @@ static void exact_value(const struct rules_config *cfg, int rule,
 	}
 }
 
-int rules_exact(const struct rules_config *cfg, int rule, double vbar,
+int hc_rules_exact(const struct rules_config *cfg, int rule, double vbar,
 		double cbar, size_t m, double periods_per_year,
 		struct rule_result *res, struct hc_error *err)
 {
@@ -584,7 +584,7 @@ static void grid_note(struct rule_result *res, const struct sampler_result *r)
 			 "smallest size on the sampled grid; sizes in between were not sampled");
 }
 
-int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
+int hc_rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	       double cbar, double periods_per_year, struct rule_result *res,
 	       struct hc_error *err)
 {
@@ -633,7 +633,7 @@ int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
  * diversification judged by the share of random portfolios whose compound
  * return over the sample ends more than d a year behind the universe's,
  * rather than by sigma. */
-int rules_shortfall(const struct rules_config *cfg,
+int hc_rules_shortfall(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err)
 {
@@ -669,7 +669,7 @@ int rules_shortfall(const struct rules_config *cfg,
 	return HC_OK;
 }
 
-int rules_universe_return(const struct universe *u, double periods_per_year,
+int hc_rules_universe_return(const struct universe *u, double periods_per_year,
 			  double *ret, struct hc_error *err)
 {
 	double log_growth = 0;
@@ -695,13 +695,13 @@ int rules_universe_return(const struct universe *u, double periods_per_year,
 	return HC_OK;
 }
 
-int rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
+int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
 		   struct rule_result *res, size_t *nres, struct hc_error *err)
 {
 	size_t n = 0;
 	int rule, status;
 
-	if ((status = rules_config_check(cfg, err)) != HC_OK)
+	if ((status = hc_rules_config_check(cfg, err)) != HC_OK)
 		return status;
 	for (rule = 0; rule < RULES_COUNT; rule++) {
 		struct rule_result *r = &res[n];
@@ -709,7 +709,7 @@ int rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
 		if (!(cfg->selected & RULES_FLAG(rule)))
 			continue;
 		if (RULES_FLAG(rule) & RULES_EXACT_MASK)
-			status = rules_exact(cfg, rule, in->vbar, in->cbar, in->m,
+			status = hc_rules_exact(cfg, rule, in->vbar, in->cbar, in->m,
 					     in->periods_per_year, r, err);
 		else if (!in->sampled) {
 			result_init(cfg, rule, r);
@@ -717,9 +717,9 @@ int rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
 			snprintf(r->note, sizeof r->note, "needs return data and sampled portfolios");
 			status = HC_OK;
 		} else if (rule == RULES_BAND)
-			status = rules_band(cfg, in->sampled, in->cbar, in->periods_per_year, r, err);
+			status = hc_rules_band(cfg, in->sampled, in->cbar, in->periods_per_year, r, err);
 		else
-			status = rules_shortfall(cfg, in->sampled, in->universe_return, r, err);
+			status = hc_rules_shortfall(cfg, in->sampled, in->universe_return, r, err);
 		if (status != HC_OK)
 			return status;
 		n++;
@@ -759,7 +759,7 @@ static double count_percentile(const size_t *c, size_t n, size_t pct)
 	return c[k - 1] == 0 ? NAN : (double)c[k - 1];
 }
 
-void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
+void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 {
 	size_t k;
 
@@ -776,7 +776,7 @@ void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 	res->count_p95 = count_percentile(count, nrep, 95);
 }
 
-int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
+int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 			  const double *cbar, size_t nrep, size_t m,
 			  double periods_per_year, struct rule_result *res,
 			  size_t nres, struct hc_error *err)
@@ -794,10 +794,10 @@ int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 		for (k = 0; k < nrep; k++) {
 			size_t n;
 
-			count[k] = rules_exact_count(cfg, res[j].rule, vbar[k], cbar[k],
+			count[k] = hc_rules_exact_count(cfg, res[j].rule, vbar[k], cbar[k],
 						     m, periods_per_year, &n) == 1 ? n : 0;
 		}
-		rules_set_interval(&res[j], count, nrep);
+		hc_rules_set_interval(&res[j], count, nrep);
 	}
 	hc_free(count);
 	return HC_OK;
@@ -830,8 +830,8 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 	if (!res->bootstrapped)
 		return 0;
 	if (isnan(p))
-		return report_table_set_text(t, row, col, "not met");
-	report_table_set_int(t, row, col, (long long)p);
+		return hc_report_table_set_text(t, row, col, "not met");
+	hc_report_table_set_int(t, row, col, (long long)p);
 	return 0;
 }
 
@@ -840,7 +840,7 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 static void set_amount(struct report_table *t, size_t row, size_t col,
 		       const struct rule_result *res, double x)
 {
-	report_table_set_real(t, row, col, x);
+	hc_report_table_set_real(t, row, col, x);
 	if (res->per_period && res->rule != RULES_SHORTFALL)
 		t->cells[row * t->ncols + col].style = REPORT_STYLE_PLAIN;
 }
@@ -850,41 +850,41 @@ static int rule_row(struct report_table *t, const struct rule_result *res)
 	size_t row;
 	int bad = 0;
 
-	if (report_table_add_row(t) != 0)
+	if (hc_report_table_add_row(t) != 0)
 		return -1;
 	row = t->nrows - 1;
-	bad |= report_table_set_text(t, row, 0, res->name);
-	bad |= report_table_set_text(t, row, 1, res->parameters);
+	bad |= hc_report_table_set_text(t, row, 0, res->name);
+	bad |= hc_report_table_set_text(t, row, 1, res->parameters);
 	if (res->met) {
-		report_table_set_int(t, row, 2, (long long)res->count);
+		hc_report_table_set_int(t, row, 2, (long long)res->count);
 		set_amount(t, row, 3, res, res->value);
 	}
 	bad |= set_percentile(t, row, 4, res, res->count_p05);
 	bad |= set_percentile(t, row, 5, res, res->count_p50);
 	bad |= set_percentile(t, row, 6, res, res->count_p95);
-	report_table_set_bool(t, row, 7, res->met);
-	bad |= report_table_set_text(t, row, 8, res->unit);
+	hc_report_table_set_bool(t, row, 7, res->met);
+	bad |= hc_report_table_set_text(t, row, 8, res->unit);
 	set_amount(t, row, 9, res, res->threshold);
 	if (res->bootstrapped) {
-		report_table_set_int(t, row, 10, (long long)res->replicates);
-		report_table_set_int(t, row, 11, (long long)res->replicates_met);
+		hc_report_table_set_int(t, row, 10, (long long)res->replicates);
+		hc_report_table_set_int(t, row, 11, (long long)res->replicates_met);
 	}
 	if (res->note[0])
-		bad |= report_table_set_text(t, row, 12, res->note);
+		bad |= hc_report_table_set_text(t, row, 12, res->note);
 	return bad ? -1 : 0;
 }
 
-int rules_report(struct report *rep, const struct rule_result *res,
+int hc_rules_report(struct report *rep, const struct rule_result *res,
 		 size_t nres, struct hc_error *err)
 {
 	struct report_table *t;
 	size_t k;
 
-	t = report_add_table(rep, "rules", "smallest holding count meeting each rule");
+	t = hc_report_add_table(rep, "rules", "smallest holding count meeting each rule");
 	if (!t)
 		return hc_error(err, HC_ENOMEM, "out of memory for the rules table");
 	for (k = 0; k < RULE_NCOLUMNS; k++)
-		if (report_table_add_column(t, rule_columns[k].key, rule_columns[k].title,
+		if (hc_report_table_add_column(t, rule_columns[k].key, rule_columns[k].title,
 					    rule_columns[k].style) != 0)
 			return hc_error(err, HC_ENOMEM, "out of memory for the rules table");
 	for (k = 0; k < nres; k++)
@@ -896,7 +896,7 @@ int rules_report(struct report *rep, const struct rule_result *res,
 
 /* ---- sampling for the sampled rules ------------------------------------ */
 
-/* The staged sampling of rules_sampled, from the return series u or, when
+/* The staged sampling of hc_rules_sampled, from the return series u or, when
  * u is NULL, from the m x m covariance matrix a (band only). */
 static int sampled_stages(const struct rules_config *cfg, const struct universe *u,
 			  const double *a, size_t m, const struct sampler_options *so, double cbar,
@@ -914,7 +914,7 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 	o.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
 	if (!want_band && !o.want_returns)
 		return HC_OK;
-	if (o.want_returns && (status = rules_universe_return(u, o.periods_per_year, &uret, err)) != HC_OK)
+	if (o.want_returns && (status = hc_rules_universe_return(u, o.periods_per_year, &uret, err)) != HC_OK)
 		return status;
 	sizes = hc_malloc(m * sizeof *sizes);
 	if (!sizes)
@@ -927,29 +927,29 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 		if (k > m)
 			k = m;
 		n = 0;
-		status = u ? sampler_run(&sr, u, sizes, k, &o, err) : sampler_run_matrix(&sr, a, m, sizes, k, &o, err);
+		status = u ? hc_sampler_run(&sr, u, sizes, k, &o, err) : hc_sampler_run_matrix(&sr, a, m, sizes, k, &o, err);
 		if (status != HC_OK)
 			break;
 		if (want_band) {
-			if ((status = rules_band(cfg, sr, cbar, o.periods_per_year, &res[n], err)) != HC_OK)
+			if ((status = hc_rules_band(cfg, sr, cbar, o.periods_per_year, &res[n], err)) != HC_OK)
 				break;
 			done &= res[n].met || !res[n].defined;
 			n++;
 		}
 		if (o.want_returns) {
-			if ((status = rules_shortfall(cfg, sr, uret, &res[n], err)) != HC_OK)
+			if ((status = hc_rules_shortfall(cfg, sr, uret, &res[n], err)) != HC_OK)
 				break;
 			done &= res[n].met;
 			n++;
 		}
-		sampler_result_free(sr);
+		hc_sampler_result_free(sr);
 		sr = NULL;
 		/* the caller's progress bar follows the first stage only */
 		o.progress = NULL;
 		if (done || k == m)
 			break;
 	}
-	sampler_result_free(sr);
+	hc_sampler_result_free(sr);
 	hc_free(sizes);
 	if (status != HC_OK)
 		return status;
@@ -959,7 +959,7 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 	return HC_OK;
 }
 
-int rules_sampled(const struct rules_config *cfg, const struct universe *u,
+int hc_rules_sampled(const struct rules_config *cfg, const struct universe *u,
 		  const struct sampler_options *so, double cbar,
 		  struct rule_result *res, size_t *nres, size_t *largest,
 		  struct hc_error *err)
@@ -967,7 +967,7 @@ int rules_sampled(const struct rules_config *cfg, const struct universe *u,
 	return sampled_stages(cfg, u, NULL, u->m, so, cbar, res, nres, largest, err);
 }
 
-int rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
+int hc_rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
 			 const struct sampler_options *so, double cbar,
 			 struct rule_result *res, size_t *nres, size_t *largest,
 			 struct hc_error *err)
@@ -983,12 +983,12 @@ int rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t
 
 /* Distinct from the bootstrap's own period streams, which use (seed, rep)
  * directly. */
-uint64_t rules_replicate_seed(uint64_t seed, size_t rep)
+uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep)
 {
 	uint64_t s = seed ^ 0x5DEECE66DULL, r = (uint64_t)rep;
 
-	s ^= sampler_splitmix64(&r);
-	return sampler_splitmix64(&s);
+	s ^= hc_sampler_splitmix64(&r);
+	return hc_sampler_splitmix64(&s);
 }
 
 /* One replicate's band and shortfall counts (0 = not met). */
@@ -1005,18 +1005,18 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 	size_t k, n;
 	int status;
 
-	if ((status = bootstrap_indices(bopt->kind, u->t, l, bopt->seed, rep, idx, err)) != HC_OK)
+	if ((status = hc_bootstrap_indices(bopt->kind, u->t, l, bopt->seed, rep, idx, err)) != HC_OK)
 		return status;
 	memset(w, 0, u->t * sizeof *w);
 	for (k = 0; k < u->t; k++)
 		w[idx[k]] += 1;
-	bootstrap_moments(b, w, &vbar, &cbar);
-	if ((status = universe_resample(&ru, u, idx, u->t, err)) != HC_OK)
+	hc_bootstrap_moments(b, w, &vbar, &cbar);
+	if ((status = hc_universe_resample(&ru, u, idx, u->t, err)) != HC_OK)
 		return status;
-	so.seed = rules_replicate_seed(bopt->seed, rep);
+	so.seed = hc_rules_replicate_seed(bopt->seed, rep);
 	so.progress = NULL;
-	status = rules_sampled(cfg, ru, &so, cbar, rr, &n, NULL, err);
-	universe_free(ru);
+	status = hc_rules_sampled(cfg, ru, &so, cbar, rr, &n, NULL, err);
+	hc_universe_free(ru);
 	if (status != HC_OK)
 		return status;
 	for (k = 0; k < n; k++) {
@@ -1030,7 +1030,7 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 	return HC_OK;
 }
 
-int rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
 			    const struct bootstrap_base *b,
 			    const struct bootstrap_options *bopt,
 			    const struct sampler_options *sopt,
@@ -1043,7 +1043,7 @@ int rules_bootstrap_sampled(const struct rules_config *cfg, const struct univers
 
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
-	l = bopt->block_length ? bopt->block_length : bootstrap_default_block_length(u->t);
+	l = bopt->block_length ? bopt->block_length : hc_bootstrap_default_block_length(u->t);
 	idx = hc_malloc(u->t * sizeof *idx);
 	w = hc_malloc(u->t * sizeof *w);
 	band = hc_calloc(nrep, sizeof *band);
@@ -1064,9 +1064,9 @@ int rules_bootstrap_sampled(const struct rules_config *cfg, const struct univers
 	}
 	for (j = 0; j < nres; j++) {
 		if (res[j].rule == RULES_BAND && res[j].defined)
-			rules_set_interval(&res[j], band, nrep);
+			hc_rules_set_interval(&res[j], band, nrep);
 		else if (res[j].rule == RULES_SHORTFALL && res[j].defined)
-			rules_set_interval(&res[j], shortfall, nrep);
+			hc_rules_set_interval(&res[j], shortfall, nrep);
 	}
 cleanup:
 	hc_free(idx);

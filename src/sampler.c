@@ -42,7 +42,7 @@
 #define SAMPLER_DEFAULT_PATHS 10000
 #define SAMPLER_SCHEDULE_CHUNK 8 /* paths per dynamic work unit */
 
-uint64_t sampler_splitmix64(uint64_t *state)
+uint64_t hc_sampler_splitmix64(uint64_t *state)
 {
 	uint64_t z = (*state += 0x9e3779b97f4a7c15ULL);
 
@@ -51,14 +51,14 @@ uint64_t sampler_splitmix64(uint64_t *state)
 	return z ^ (z >> 31);
 }
 
-void sampler_options_init(struct sampler_options *opt)
+void hc_sampler_options_init(struct sampler_options *opt)
 {
 	memset(opt, 0, sizeof *opt);
 	opt->paths = SAMPLER_DEFAULT_PATHS;
 	opt->periods_per_year = 1.0;
 }
 
-void sampler_result_free(struct sampler_result *r)
+void hc_sampler_result_free(struct sampler_result *r)
 {
 	if (!r)
 		return;
@@ -75,7 +75,7 @@ static unsigned long path_seed(uint64_t seed, size_t k)
 {
 	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z;
 
-	z = sampler_splitmix64(&st);
+	z = hc_sampler_splitmix64(&st);
 	return (unsigned long)((z ^ (z >> 32)) & 0xffffffffUL);
 }
 
@@ -630,7 +630,7 @@ static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t
 	*out = r;
 	return HC_OK;
 nomem:
-	sampler_result_free(r);
+	hc_sampler_result_free(r);
 	return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", cells);
 }
 
@@ -664,7 +664,7 @@ static int column_data(const struct universe *u, double **xc, double **mean, dou
 	return HC_OK;
 }
 
-int sampler_run(struct sampler_result **out, const struct universe *u,
+int hc_sampler_run(struct sampler_result **out, const struct universe *u,
 		const size_t *sizes, size_t nsizes,
 		const struct sampler_options *opt, struct hc_error *err)
 {
@@ -677,7 +677,7 @@ int sampler_run(struct sampler_result **out, const struct universe *u,
 	*out = NULL;
 	/* Stratified draws: strata.c (issue 6). */
 	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return strata_run(out, u, sizes, nsizes, opt, err);
+		return hc_strata_run(out, u, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (u->has_missing)
@@ -715,7 +715,7 @@ int sampler_run(struct sampler_result **out, const struct universe *u,
 	rc = run_paths(&run, err);
 cleanup:
 	if (rc) {
-		sampler_result_free(*out);
+		hc_sampler_result_free(*out);
 		*out = NULL;
 	}
 	plan_release(&plan);
@@ -757,7 +757,7 @@ static void matrix_path(const void *vjob, struct workspace *w, unsigned long see
 	}
 }
 
-int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
+int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
 		       const size_t *sizes, size_t nsizes,
 		       const struct sampler_options *opt, struct hc_error *err)
 {
@@ -768,7 +768,7 @@ int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
 
 	*out = NULL;
 	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return strata_run_matrix(out, a, m, sizes, nsizes, opt, err);
+		return hc_strata_run_matrix(out, a, m, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (opt->want_returns)
@@ -795,7 +795,7 @@ int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
 	run.t = 0;
 	rc = run_paths(&run, err);
 	if (rc) {
-		sampler_result_free(*out);
+		hc_sampler_result_free(*out);
 		*out = NULL;
 	}
 cleanup:
@@ -805,7 +805,7 @@ cleanup:
 
 /* ---- summary ---- */
 
-int sampler_summarise(struct curve *c, const struct sampler_result *r,
+int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 		      struct hc_error *err)
 {
 	double *sd, ppy = c->periods_per_year, v, mean_v, mean_s, var_v;

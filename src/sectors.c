@@ -11,7 +11,7 @@
 
 #define NO_COLUMN ((size_t)-1)
 
-void sectors_free(struct sectors *s)
+void hc_sectors_free(struct sectors *s)
 {
 	size_t i;
 
@@ -107,7 +107,7 @@ static int on_field(void *ctx, const struct csvread_field *f, struct hc_error *e
 			"%s:%zu:%zu: row has more fields than the header's %zu; expected %zu fields",
 			r->name, f->line, f->column, r->ncols, r->ncols);
 	if (col == r->id_col) {
-		rc = universe_check_id(r->name, f->line, f->column, f->text, f->len, err);
+		rc = hc_universe_check_id(r->name, f->line, f->column, f->text, f->len, err);
 		if (rc != HC_OK)
 			return rc;
 		r->row_id = hc_strndup(f->text, f->len);
@@ -121,7 +121,7 @@ static int on_field(void *ctx, const struct csvread_field *f, struct hc_error *e
 		if (i == f->len)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: empty sector label; expected a label", r->name, f->line, f->column);
-		if (!csvread_utf8_valid(f->text, f->len))
+		if (!hc_csvread_utf8_valid(f->text, f->len))
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: sector label is not valid UTF-8", r->name, f->line, f->column);
 		if (strcmp(f->text, SECTORS_UNMAPPED_LABEL) == 0)
@@ -243,7 +243,7 @@ static int finish(struct reader *r, struct hc_error *err)
 
 	if (s->n == 0)
 		return hc_error(err, HC_EDATA, "%s: no rows after the header; expected one row per security", r->name);
-	rc = universe_id_clash(s->ids, s->n, &a, &b);
+	rc = hc_universe_id_clash(s->ids, s->n, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
 	if (rc > 0) {
@@ -295,8 +295,8 @@ static int load(struct sectors **out, const char *name, const char *path,
 	h.field = on_field;
 	h.record = on_record;
 	h.ctx = &r;
-	rc = path ? csvread_file(path, NULL, &h, NULL, err)
-		  : csvread_buffer(name, data, len, NULL, &h, NULL, err);
+	rc = path ? hc_csvread_file(path, NULL, &h, NULL, err)
+		  : hc_csvread_buffer(name, data, len, NULL, &h, NULL, err);
 	if (rc == HC_OK)
 		rc = finish(&r, err);
 cleanup:
@@ -308,27 +308,27 @@ cleanup:
 	hc_free(r.raw_labels);
 	hc_free(r.line);
 	if (rc != HC_OK) {
-		sectors_free(r.s);
+		hc_sectors_free(r.s);
 		return rc;
 	}
 	*out = r.s;
 	return HC_OK;
 }
 
-int sectors_load(struct sectors **out, const char *path, const char *id_column,
+int hc_sectors_load(struct sectors **out, const char *path, const char *id_column,
 		 const char *label_column, struct hc_error *err)
 {
 	return load(out, path, path, NULL, 0, id_column, label_column, err);
 }
 
-int sectors_load_buffer(struct sectors **out, const char *name,
+int hc_sectors_load_buffer(struct sectors **out, const char *name,
 			const char *data, size_t len, const char *id_column,
 			const char *label_column, struct hc_error *err)
 {
 	return load(out, name, NULL, data, len, id_column, label_column, err);
 }
 
-long sectors_find(const struct sectors *s, const char *id)
+long hc_sectors_find(const struct sectors *s, const char *id)
 {
 	size_t lo = 0, hi = s->n;
 
@@ -346,7 +346,7 @@ long sectors_find(const struct sectors *s, const char *id)
 	return -1;
 }
 
-void sectors_strata_free(size_t *stratum_of_security, char **labels, size_t nlabels)
+void hc_sectors_strata_free(size_t *stratum_of_security, char **labels, size_t nlabels)
 {
 	size_t i;
 
@@ -357,7 +357,7 @@ void sectors_strata_free(size_t *stratum_of_security, char **labels, size_t nlab
 	hc_free(labels);
 }
 
-int sectors_strata(const struct sectors *s, const struct universe *u,
+int hc_sectors_strata(const struct sectors *s, const struct universe *u,
 		   size_t **stratum_of_security, char ***labels, size_t *nlabels,
 		   size_t *unmapped, struct hc_error *err)
 {
@@ -377,7 +377,7 @@ int sectors_strata(const struct sectors *s, const struct universe *u,
 	for (i = 0; i <= s->nlabels; i++)
 		renum[i] = (size_t)-1;
 	for (i = 0; i < u->m; i++) {
-		k = sectors_find(s, u->ids[i]);
+		k = hc_sectors_find(s, u->ids[i]);
 		if (k < 0) {
 			miss++;
 			k = (long)s->nlabels;   /* the unmapped stratum, numbered last */
@@ -412,6 +412,6 @@ int sectors_strata(const struct sectors *s, const struct universe *u,
 	return HC_OK;
 nomem:
 	hc_free(renum);
-	sectors_strata_free(st, out, s->nlabels + 1);
+	hc_sectors_strata_free(st, out, s->nlabels + 1);
 	return hc_error(err, HC_ENOMEM, "out of memory for the sector strata");
 }

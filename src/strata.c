@@ -39,7 +39,7 @@
 
 /* ---- the partition ---- */
 
-void strata_free(struct strata *s)
+void hc_strata_free(struct strata *s)
 {
 	if (!s)
 		return;
@@ -49,7 +49,7 @@ void strata_free(struct strata *s)
 	hc_free(s);
 }
 
-int strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
+int hc_strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
 		 size_t nstrata, struct hc_error *err)
 {
 	struct strata *s;
@@ -67,7 +67,7 @@ int strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
 	    !(s->start = hc_calloc(nstrata + 1, sizeof *s->start)) ||
 	    !(s->members = hc_malloc(m * sizeof *s->members)) ||
 	    !(fill = hc_calloc(nstrata, sizeof *fill))) {
-		strata_free(s);
+		hc_strata_free(s);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu strata", nstrata);
 	}
 	s->m = m;
@@ -85,7 +85,7 @@ int strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
 
 /* ---- Hamilton's method ---- */
 
-int strata_proportional(const struct strata *s, size_t n, size_t *alloc,
+int hc_strata_proportional(const struct strata *s, size_t n, size_t *alloc,
 			struct hc_error *err)
 {
 	size_t j, left = n, best;
@@ -138,7 +138,7 @@ static double log_add(double a, double b)
 	return a > b ? a + log1p(exp(b - a)) : b + log1p(exp(a - b));
 }
 
-void strata_cap_free(struct strata_cap *c)
+void hc_strata_cap_free(struct strata_cap *c)
 {
 	if (!c)
 		return;
@@ -148,7 +148,7 @@ void strata_cap_free(struct strata_cap *c)
 	hc_free(c);
 }
 
-int strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t k,
+int hc_strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t k,
 		     size_t nmax, struct hc_error *err)
 {
 	struct strata_cap *c;
@@ -162,7 +162,7 @@ int strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t k,
 	if (!c || hc_mul_size(S + 1, nmax + 1, &cells) ||
 	    !(c->cap = hc_malloc(S * sizeof *c->cap)) || !(c->count = hc_malloc(S * sizeof *c->count)) ||
 	    !(c->logw = hc_malloc(cells * sizeof *c->logw))) {
-		strata_cap_free(c);
+		hc_strata_cap_free(c);
 		return hc_error(err, HC_ENOMEM, "out of memory for the per-stratum cap's table");
 	}
 	c->nstrata = S;
@@ -190,7 +190,7 @@ int strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t k,
 	return HC_OK;
 }
 
-size_t strata_cap_most(const struct strata *s, size_t k)
+size_t hc_strata_cap_most(const struct strata *s, size_t k)
 {
 	size_t st, most = 0;
 
@@ -201,22 +201,22 @@ size_t strata_cap_most(const struct strata *s, size_t k)
 	return most;
 }
 
-int strata_cap_feasible(const struct strata_cap *c, size_t n)
+int hc_strata_cap_feasible(const struct strata_cap *c, size_t n)
 {
 	return n <= c->nmax && c->logw[n] != -INFINITY;
 }
 
-double strata_cap_log_total(const struct strata_cap *c, size_t n)
+double hc_strata_cap_log_total(const struct strata_cap *c, size_t n)
 {
 	return n <= c->nmax ? c->logw[n] : -INFINITY;
 }
 
-double strata_cap_log_probability(const struct strata_cap *c, size_t n, const size_t *alloc)
+double hc_strata_cap_log_probability(const struct strata_cap *c, size_t n, const size_t *alloc)
 {
 	double lp = 0;
 	size_t st, sum = 0;
 
-	if (!strata_cap_feasible(c, n))
+	if (!hc_strata_cap_feasible(c, n))
 		return -INFINITY;
 	for (st = 0; st < c->nstrata; st++) {
 		if (alloc[st] > c->cap[st])
@@ -228,7 +228,7 @@ double strata_cap_log_probability(const struct strata_cap *c, size_t n, const si
 }
 
 /* Stratum by stratum: P(n_s = a | r left) = C(m_s, a) W_{s+1}(r - a) / W_s(r). */
-void strata_cap_draw(const struct strata_cap *c, size_t n,
+void hc_strata_cap_draw(const struct strata_cap *c, size_t n,
 		     double (*uniform)(void *ctx), void *ctx, size_t *alloc)
 {
 	size_t st, a, r = n, last;
@@ -258,7 +258,7 @@ void strata_cap_draw(const struct strata_cap *c, size_t n,
 
 /* ---- exact expected variance for a fixed allocation ---- */
 
-void strata_moments_free(struct strata_moments *sm)
+void hc_strata_moments_free(struct strata_moments *sm)
 {
 	if (!sm)
 		return;
@@ -273,7 +273,7 @@ static struct strata_moments *moments_new(size_t S)
 
 	if (!sm || !(sm->sum_var = hc_calloc(S, sizeof *sm->sum_var)) ||
 	    !(sm->block = hc_calloc(S * S, sizeof *sm->block))) {
-		strata_moments_free(sm);
+		hc_strata_moments_free(sm);
 		return NULL;
 	}
 	sm->nstrata = S;
@@ -281,7 +281,7 @@ static struct strata_moments *moments_new(size_t S)
 }
 
 /* y_s = sum of the centred series of stratum s; B_st = y_s.y_t/(T-1). */
-int strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
+int hc_strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
 				 const struct strata *s, struct hc_error *err)
 {
 	size_t S = s->nstrata, t = u->t, i, k, a, b;
@@ -295,7 +295,7 @@ int strata_moments_from_universe(struct strata_moments **out, const struct unive
 				s->m);
 	sm = moments_new(S);
 	if (!sm || !(y = hc_calloc(S * t, sizeof *y))) {
-		strata_moments_free(sm);
+		hc_strata_moments_free(sm);
 		return hc_error(err, HC_ENOMEM, "out of memory for the stratum sums");
 	}
 	for (a = 0; a < S; a++)
@@ -321,7 +321,7 @@ int strata_moments_from_universe(struct strata_moments **out, const struct unive
 	return HC_OK;
 }
 
-int strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
+int hc_strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
 			       const struct strata *s, struct hc_error *err)
 {
 	size_t S = s->nstrata, p, q, i, j;
@@ -348,7 +348,7 @@ int strata_moments_from_matrix(struct strata_moments **out, const double *a, siz
 	return HC_OK;
 }
 
-double strata_expected_variance(const struct strata_moments *sm, const struct strata *s,
+double hc_strata_expected_variance(const struct strata_moments *sm, const struct strata *s,
 				const size_t *alloc)
 {
 	size_t S = s->nstrata, p, q, n = 0;
@@ -376,8 +376,8 @@ static uint64_t mix(uint64_t seed, uint64_t tag, uint64_t a, uint64_t b)
 	uint64_t st = seed ^ tag;
 
 	st += 0x9e3779b97f4a7c15ULL * a;
-	st = sampler_splitmix64(&st) + b;
-	return sampler_splitmix64(&st);
+	st = hc_sampler_splitmix64(&st) + b;
+	return hc_sampler_splitmix64(&st);
 }
 
 struct alloc_stream {
@@ -389,7 +389,7 @@ static double stream_uniform(void *ctx)
 {
 	struct alloc_stream *a = ctx;
 
-	return (double)(sampler_splitmix64(&a->state) >> 11) * 0x1.0p-53;
+	return (double)(hc_sampler_splitmix64(&a->state) >> 11) * 0x1.0p-53;
 }
 
 /* Every stratum shuffled completely by Durstenfeld's in-place Fisher-Yates
@@ -428,7 +428,7 @@ static void allocation(const struct strata *s, const struct strata_cap *cap, int
 		return;
 	}
 	as.state = mix(seed, STRATA_ALLOC_TAG, k, n);
-	strata_cap_draw(cap, n, stream_uniform, &as, alloc);
+	hc_strata_cap_draw(cap, n, stream_uniform, &as, alloc);
 }
 
 static int cmp_size(const void *a, const void *b)
@@ -438,7 +438,7 @@ static int cmp_size(const void *a, const void *b)
 	return (x > y) - (x < y);
 }
 
-int strata_portfolio(const struct strata *s, const struct strata_cap *cap, int mode,
+int hc_strata_portfolio(const struct strata *s, const struct strata_cap *cap, int mode,
 		     size_t n, uint64_t seed, size_t k, size_t *members, size_t *alloc,
 		     struct hc_error *err)
 {
@@ -448,9 +448,9 @@ int strata_portfolio(const struct strata *s, const struct strata_cap *cap, int m
 	int rc;
 
 	if (mode == SAMPLER_STRATA_PROPORTIONAL) {
-		if ((rc = strata_proportional(s, n, alloc, err)))
+		if ((rc = hc_strata_proportional(s, n, alloc, err)))
 			return rc;
-	} else if (mode != SAMPLER_STRATA_CAP || !cap || !strata_cap_feasible(cap, n)) {
+	} else if (mode != SAMPLER_STRATA_CAP || !cap || !hc_strata_cap_feasible(cap, n)) {
 		return hc_error(err, HC_EUSAGE, "no portfolio of %zu meets the stratification", n);
 	}
 	g = gsl_rng_alloc(gsl_rng_mt19937);
@@ -719,8 +719,8 @@ static void srun_release(struct srun *r, struct strata *s, struct strata_cap *ca
 	hc_free(r->slot);
 	hc_free(r->feas);
 	hc_free(r->fixed);
-	strata_free(s);
-	strata_cap_free(cap);
+	hc_strata_free(s);
+	hc_strata_cap_free(cap);
 }
 
 /* Sizes, feasibility and fixed allocations shared by every path. */
@@ -734,7 +734,7 @@ static int srun_plan(struct srun *r, struct strata **s, struct strata_cap **cap,
 	memset(r, 0, sizeof *r);
 	*s = NULL;
 	*cap = NULL;
-	if ((rc = strata_alloc(s, opt->strata, m, opt->nstrata, err)))
+	if ((rc = hc_strata_alloc(s, opt->strata, m, opt->nstrata, err)))
 		return rc;
 	r->uniq = hc_malloc(nsizes * sizeof *r->uniq);
 	r->slot = hc_malloc(nsizes * sizeof *r->slot);
@@ -753,14 +753,14 @@ static int srun_plan(struct srun *r, struct strata **s, struct strata_cap **cap,
 		r->slot[j] = (size_t)((size_t *)bsearch(&sizes[j], r->uniq, r->nuniq, sizeof *r->uniq,
 							cmp_size) - r->uniq);
 	if (opt->stratify == SAMPLER_STRATA_CAP &&
-	    (rc = strata_cap_alloc(cap, *s, opt->per_stratum_max, r->uniq[r->nuniq - 1], err)))
+	    (rc = hc_strata_cap_alloc(cap, *s, opt->per_stratum_max, r->uniq[r->nuniq - 1], err)))
 		return rc;
 	for (j = 0; j < r->nuniq; j++) {
 		if (opt->stratify == SAMPLER_STRATA_CAP) {
-			r->feas[j] = (unsigned char)strata_cap_feasible(*cap, r->uniq[j]);
+			r->feas[j] = (unsigned char)hc_strata_cap_feasible(*cap, r->uniq[j]);
 		} else {
 			r->feas[j] = 1;
-			if ((rc = strata_proportional(*s, r->uniq[j], r->fixed + j * opt->nstrata, err)))
+			if ((rc = hc_strata_proportional(*s, r->uniq[j], r->fixed + j * opt->nstrata, err)))
 				return rc;
 		}
 	}
@@ -786,7 +786,7 @@ static int result_new(struct sampler_result **out, const struct srun *r, const s
 	    !(res->variance = hc_calloc(cells, sizeof *res->variance)) ||
 	    !(res->feasible = hc_malloc(r->nsizes)) ||
 	    (want_returns && !(res->annual_return = hc_calloc(cells, sizeof *res->annual_return)))) {
-		sampler_result_free(res);
+		hc_sampler_result_free(res);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", cells);
 	}
 	res->paths = opt->paths;
@@ -823,7 +823,7 @@ static int centred(const struct universe *u, double **xc, double **mean, struct 
 	return HC_OK;
 }
 
-int strata_run(struct sampler_result **out, const struct universe *u,
+int hc_strata_run(struct sampler_result **out, const struct universe *u,
 	       const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
 	       struct hc_error *err)
 {
@@ -855,7 +855,7 @@ int strata_run(struct sampler_result **out, const struct universe *u,
 	rc = drive(&r, *out, opt, err);
 cleanup:
 	if (rc) {
-		sampler_result_free(*out);
+		hc_sampler_result_free(*out);
 		*out = NULL;
 	}
 	srun_release(&r, s, cap);
@@ -864,7 +864,7 @@ cleanup:
 	return rc;
 }
 
-int strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
+int hc_strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
 		      const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
 		      struct hc_error *err)
 {
@@ -888,7 +888,7 @@ int strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
 	rc = drive(&r, *out, opt, err);
 cleanup:
 	if (rc) {
-		sampler_result_free(*out);
+		hc_sampler_result_free(*out);
 		*out = NULL;
 	}
 	srun_release(&r, s, cap);
@@ -897,7 +897,7 @@ cleanup:
 
 /* ---- the stratified curve ---- */
 
-void strata_curve_free(struct strata_curve *c)
+void hc_strata_curve_free(struct strata_curve *c)
 {
 	if (!c)
 		return;
@@ -906,7 +906,7 @@ void strata_curve_free(struct strata_curve *c)
 }
 
 /* Mean, Monte Carlo standard error, mean sigma and sigma's quantiles of
- * column j of r (numpy's linear quantile rule, as sampler_summarise). */
+ * column j of r (numpy's linear quantile rule, as hc_sampler_summarise). */
 static void summarise_size(const struct sampler_result *r, size_t j, double ppy, double *sd,
 			   struct strata_point *p)
 {
@@ -937,7 +937,7 @@ static void summarise_size(const struct sampler_result *r, size_t j, double ppy,
 		? (p->mean_variance - p->expected_variance) / p->variance_se : NAN;
 }
 
-int strata_curve_alloc(struct strata_curve **out, const struct sampler_result *r,
+int hc_strata_curve_alloc(struct strata_curve **out, const struct sampler_result *r,
 		       const struct strata *s, const struct strata_moments *sm, int mode,
 		       size_t per_stratum_max, double periods_per_year, struct hc_error *err)
 {
@@ -968,26 +968,26 @@ int strata_curve_alloc(struct strata_curve **out, const struct sampler_result *r
 		if (!p->feasible)
 			continue;
 		if (sm && mode == SAMPLER_STRATA_PROPORTIONAL) {
-			if ((rc = strata_proportional(s, p->n, alloc, err)))
+			if ((rc = hc_strata_proportional(s, p->n, alloc, err)))
 				goto cleanup;
-			p->expected_variance = strata_expected_variance(sm, s, alloc) * periods_per_year;
+			p->expected_variance = hc_strata_expected_variance(sm, s, alloc) * periods_per_year;
 		}
 		summarise_size(r, j, periods_per_year, sd, p);
 		/* Every draw of all M is the same portfolio: its spread is
-		 * rounding alone, so no z (as sampler_summarise at n = M). */
+		 * rounding alone, so no z (as hc_sampler_summarise at n = M). */
 		if (p->n == s->m)
 			p->z_score = NAN;
 	}
 	*out = c;
 	c = NULL;
 cleanup:
-	strata_curve_free(c);
+	hc_strata_curve_free(c);
 	hc_free(sd);
 	hc_free(alloc);
 	return rc;
 }
 
-int strata_report_columns(const struct strata_curve *c, struct report_table *t)
+int hc_strata_report_columns(const struct strata_curve *c, struct report_table *t)
 {
 	static const char *const keys[] = {
 		"stratified_feasible", "stratified_expected_variance", "stratified_mean_variance",
@@ -1008,21 +1008,21 @@ int strata_report_columns(const struct strata_curve *c, struct report_table *t)
 	if (t->nrows != c->npoints)
 		return HC_EUSAGE;
 	for (q = 0; q < sizeof keys / sizeof *keys; q++)
-		if (report_table_add_column(t, keys[q], titles[q], styles[q]))
+		if (hc_report_table_add_column(t, keys[q], titles[q], styles[q]))
 			return HC_ENOMEM;
 	for (j = 0; j < c->npoints; j++) {
 		const struct strata_point *p = &c->points[j];
-		report_table_set_bool(t, j, col0, p->feasible);
+		hc_report_table_set_bool(t, j, col0, p->feasible);
 		if (!p->feasible)
 			continue;
-		report_table_set_real(t, j, col0 + 1, p->expected_variance);
-		report_table_set_real(t, j, col0 + 2, p->mean_variance);
-		report_table_set_real(t, j, col0 + 3, p->variance_se);
-		report_table_set_real(t, j, col0 + 4, p->mean_sd);
-		report_table_set_real(t, j, col0 + 5, p->sd_p05);
-		report_table_set_real(t, j, col0 + 6, p->sd_p50);
-		report_table_set_real(t, j, col0 + 7, p->sd_p95);
-		report_table_set_real(t, j, col0 + 8, p->z_score);
+		hc_report_table_set_real(t, j, col0 + 1, p->expected_variance);
+		hc_report_table_set_real(t, j, col0 + 2, p->mean_variance);
+		hc_report_table_set_real(t, j, col0 + 3, p->variance_se);
+		hc_report_table_set_real(t, j, col0 + 4, p->mean_sd);
+		hc_report_table_set_real(t, j, col0 + 5, p->sd_p05);
+		hc_report_table_set_real(t, j, col0 + 6, p->sd_p50);
+		hc_report_table_set_real(t, j, col0 + 7, p->sd_p95);
+		hc_report_table_set_real(t, j, col0 + 8, p->z_score);
 	}
 	return HC_OK;
 }

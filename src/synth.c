@@ -17,7 +17,7 @@
 
 #include "holdcount/memory.h"
 
-void synth_options_init(struct synth_options *opt)
+void hc_synth_options_init(struct synth_options *opt)
 {
 	memset(opt, 0, sizeof *opt);
 	opt->securities = SYNTH_DEFAULT_SECURITIES;
@@ -42,7 +42,7 @@ void synth_options_init(struct synth_options *opt)
 	opt->sector_names = NULL;
 }
 
-double synth_periods_per_year(int frequency)
+double hc_synth_periods_per_year(int frequency)
 {
 	switch (frequency) {
 	case SYNTH_MONTHLY: return 12.0;
@@ -98,7 +98,7 @@ static unsigned month_days(int64_t y, unsigned m)
 	return m == 2 && is_leap(y) ? 29 : n[m - 1];
 }
 
-void synth_format_date(int32_t days, char *buf)
+void hc_synth_format_date(int32_t days, char *buf)
 {
 	int64_t y;
 	unsigned m, d;
@@ -246,7 +246,7 @@ static int check_counts(const struct synth_options *opt, struct hc_error *err)
 	if (opt->sectors < 1 || opt->sectors > opt->securities)
 		return hc_error(err, HC_EUSAGE, "sectors must be from 1 to the number of securities (%zu), found %zu",
 				opt->securities, opt->sectors);
-	if (synth_periods_per_year(opt->frequency) == 0.0)
+	if (hc_synth_periods_per_year(opt->frequency) == 0.0)
 		return hc_error(err, HC_EUSAGE, "unknown frequency %d (expected monthly, weekly or daily)",
 				opt->frequency);
 	if (make_dates(opt, NULL) < 0)
@@ -255,7 +255,7 @@ static int check_counts(const struct synth_options *opt, struct hc_error *err)
 	return HC_OK;
 }
 
-int synth_options_check(const struct synth_options *opt, struct hc_error *err)
+int hc_synth_options_check(const struct synth_options *opt, struct hc_error *err)
 {
 	int rc;
 
@@ -303,7 +303,7 @@ static gsl_rng *stream_rng(uint64_t seed, uint64_t stream)
 	return r;
 }
 
-void synth_model_free(struct synth_model *model)
+void hc_synth_model_free(struct synth_model *model)
 {
 	size_t i;
 
@@ -391,7 +391,7 @@ static void draw_parameters(struct synth_model *mo, const struct synth_options *
 	}
 }
 
-int synth_model_alloc(struct synth_model **out, const struct synth_options *opt,
+int hc_synth_model_alloc(struct synth_model **out, const struct synth_options *opt,
 		      struct hc_error *err)
 {
 	struct synth_model *mo = NULL;
@@ -399,14 +399,14 @@ int synth_model_alloc(struct synth_model **out, const struct synth_options *opt,
 	int rc;
 
 	*out = NULL;
-	if ((rc = synth_options_check(opt, err)) != HC_OK)
+	if ((rc = hc_synth_options_check(opt, err)) != HC_OK)
 		return rc;
 	if (!(mo = hc_calloc(1, sizeof *mo)))
 		return hc_error(err, HC_ENOMEM, "out of memory drawing the synthetic model");
 	mo->m = opt->securities;
 	mo->t = opt->periods;
 	mo->nsectors = opt->sectors;
-	mo->periods_per_year = synth_periods_per_year(opt->frequency);
+	mo->periods_per_year = hc_synth_periods_per_year(opt->frequency);
 	mo->market_sd = opt->market_vol / sqrt(mo->periods_per_year);
 	mo->sector_sd = opt->sector_vol / sqrt(mo->periods_per_year);
 	mo->df = opt->df;
@@ -428,7 +428,7 @@ int synth_model_alloc(struct synth_model **out, const struct synth_options *opt,
 	rc = HC_OK;
 cleanup:
 	gsl_rng_free(r);
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 	return rc;
 }
 
@@ -471,7 +471,7 @@ static size_t draw_row(const struct synth_model *mo, gsl_rng *r, size_t k,
 	return nfloor;
 }
 
-int synth_generate(const struct synth_model *mo, double *x, size_t *nfloored,
+int hc_synth_generate(const struct synth_model *mo, double *x, size_t *nfloored,
 		   struct hc_error *err)
 {
 	double *g = NULL, *row = NULL;
@@ -537,7 +537,7 @@ static int write_row(const struct synth_model *mo, size_t k, const double *row, 
 	char buf[40];
 	size_t i;
 
-	synth_format_date(mo->dates[k], buf);
+	hc_synth_format_date(mo->dates[k], buf);
 	if (fputs(buf, fp) < 0)
 		return -1;
 	for (i = 0; i < mo->m; i++) {
@@ -603,24 +603,24 @@ cleanup:
 	return rc;
 }
 
-int synth_write(const struct synth_options *opt, FILE *universe, FILE *sectors,
+int hc_synth_write(const struct synth_options *opt, FILE *universe, FILE *sectors,
 		size_t *nfloored, struct hc_error *err)
 {
 	struct synth_model *mo = NULL;
 	int rc;
 
-	if ((rc = synth_model_alloc(&mo, opt, err)) != HC_OK)
+	if ((rc = hc_synth_model_alloc(&mo, opt, err)) != HC_OK)
 		return rc;
 	if ((rc = write_universe(mo, universe, nfloored, err)) != HC_OK)
 		goto cleanup;
 	if (sectors && write_sectors(mo, sectors) < 0)
 		rc = hc_error(err, HC_EIO, "cannot write the sector map: %s", strerror(errno));
 cleanup:
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 	return rc;
 }
 
-int synth_write_parameters(const struct synth_model *mo, FILE *fp, struct hc_error *err)
+int hc_synth_write_parameters(const struct synth_model *mo, FILE *fp, struct hc_error *err)
 {
 	char b[3][40], first[11], last[11];
 	size_t i;
@@ -631,8 +631,8 @@ int synth_write_parameters(const struct synth_model *mo, FILE *fp, struct hc_err
 		format_number(mo->beta[i], b[0], sizeof b[0]);
 		format_number(mo->idio_sd[i], b[1], sizeof b[1]);
 		format_number(mo->mean[i], b[2], sizeof b[2]);
-		synth_format_date(mo->dates[mo->first[i]], first);
-		synth_format_date(mo->dates[mo->end[i] - 1], last);
+		hc_synth_format_date(mo->dates[mo->first[i]], first);
+		hc_synth_format_date(mo->dates[mo->end[i] - 1], last);
 		if (fprintf(fp, "%s,%s,%s,%s,%s,%s,%s\n", mo->ids[i],
 			    mo->sector_names[mo->sector[i]], b[0], b[1], b[2], first, last) < 0)
 			goto ioerr;
@@ -645,15 +645,15 @@ ioerr:
 
 /* ---- truth ------------------------------------------------------------ */
 
-int synth_truth_expected(const struct synth_options *opt, struct synth_truth *out,
+int hc_synth_truth_expected(const struct synth_options *opt, struct synth_truth *out,
 			 struct hc_error *err)
 {
 	double p, mkt2, sec2, idio2;
 	int rc;
 
-	if ((rc = synth_options_check(opt, err)) != HC_OK)
+	if ((rc = hc_synth_options_check(opt, err)) != HC_OK)
 		return rc;
-	p = synth_periods_per_year(opt->frequency);
+	p = hc_synth_periods_per_year(opt->frequency);
 	mkt2 = opt->market_vol * opt->market_vol / p;
 	sec2 = opt->sector_vol * opt->sector_vol / p;
 	/* E[exp(2 s Z)] = exp(2 s^2) for Z ~ N(0,1): the lognormal's mean. */
@@ -665,7 +665,7 @@ int synth_truth_expected(const struct synth_options *opt, struct synth_truth *ou
 	return HC_OK;
 }
 
-int synth_truth_model(const struct synth_model *mo, const size_t *keep, size_t nkeep,
+int hc_synth_truth_model(const struct synth_model *mo, const size_t *keep, size_t nkeep,
 		      struct synth_truth *out, struct hc_error *err)
 {
 	double sum_b = 0, sum_b2 = 0, sum_v = 0, same = 0, n;

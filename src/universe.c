@@ -29,7 +29,7 @@
 
 #define NO_COLUMN ((size_t)-1)
 
-void universe_options_init(struct universe_options *opt)
+void hc_universe_options_init(struct universe_options *opt)
 {
 	memset(opt, 0, sizeof *opt);
 	opt->layout = UNIVERSE_WIDE;
@@ -116,12 +116,12 @@ static int parse_date(const char *s, size_t len, int32_t *days)
 	return 0;
 }
 
-int universe_parse_date(const char *s, size_t len, int32_t *days)
+int hc_universe_parse_date(const char *s, size_t len, int32_t *days)
 {
 	return parse_date(s, len, days) == 0 ? 0 : -1;
 }
 
-void universe_format_date(int32_t days, char *buf)
+void hc_universe_format_date(int32_t days, char *buf)
 {
 	long y, m, d;
 
@@ -167,7 +167,7 @@ static long kth_spacing(const int32_t *dates, size_t n, size_t k)
  * month, a long weekend).  The bands around each usual frequency are wide
  * enough for month and quarter lengths; anything else is 365.25/median.
  */
-double universe_detect_periods(const int32_t *dates, size_t n)
+double hc_universe_detect_periods(const int32_t *dates, size_t n)
 {
 	size_t gaps, i, weekend = 0;
 	double med;
@@ -202,7 +202,7 @@ double universe_detect_periods(const int32_t *dates, size_t n)
 
 /* ---- the universe object ------------------------------------------------ */
 
-void universe_free(struct universe *u)
+void hc_universe_free(struct universe *u)
 {
 	size_t i;
 
@@ -223,7 +223,7 @@ void universe_free(struct universe *u)
 	hc_free(u);
 }
 
-long universe_find(const struct universe *u, const char *id)
+long hc_universe_find(const struct universe *u, const char *id)
 {
 	size_t i;
 
@@ -307,7 +307,7 @@ static int id_ref_cmp(const void *pa, const void *pb)
  * blanks, by sorting on the folded key (O(M log M), not O(M^2)).  Returns
  * 0 when all distinct, 1 with *first < *second set, -1 out of memory.
  */
-int universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second)
+int hc_universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second)
 {
 	struct id_ref *refs;
 	size_t i;
@@ -334,7 +334,7 @@ int universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second)
 	return found;
 }
 
-int universe_check_id(const char *name, size_t line, size_t col,
+int hc_universe_check_id(const char *name, size_t line, size_t col,
 		      const char *id, size_t len, struct hc_error *err)
 {
 	size_t i;
@@ -345,7 +345,7 @@ int universe_check_id(const char *name, size_t line, size_t col,
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: empty security id; expected a non-empty id",
 			name, line, col);
-	if (!csvread_utf8_valid(id, len))
+	if (!hc_csvread_utf8_valid(id, len))
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: security id is not valid UTF-8", name, line, col);
 	return HC_OK;
@@ -480,13 +480,13 @@ static int wide_header(struct loader *L, struct hc_error *err)
 	for (i = 0; i < L->ncols; i++) {
 		if (i == L->date_col)
 			continue;
-		rc = universe_check_id(L->name, 1, i + 1, L->header[i], strlen(L->header[i]), err);
+		rc = hc_universe_check_id(L->name, 1, i + 1, L->header[i], strlen(L->header[i]), err);
 		if (rc != HC_OK)
 			return rc;
 		L->ids[L->m++] = L->header[i];
 		L->header[i] = NULL;   /* now owned by ids */
 	}
-	rc = universe_id_clash(L->ids, L->m, &a, &b);
+	rc = hc_universe_id_clash(L->ids, L->m, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 	if (rc > 0) {
@@ -533,23 +533,23 @@ static int parse_cell(const struct loader *L, const struct csvread_field *f,
 	int pct = 0;
 	double v;
 
-	if (csvread_is_missing(f->text, f->len)) {
+	if (hc_csvread_is_missing(f->text, f->len)) {
 		*out = NAN;
 		return HC_OK;
 	}
-	if (csvread_parse_number(f->text, f->len, &v, &pct) != 0)
+	if (hc_csvread_parse_number(f->text, f->len, &v, &pct) != 0)
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: expected a number or a missing marker, found '%s'",
-			L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
+			L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
 	if (L->opt->values != UNIVERSE_RETURNS) {
 		if (pct)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a price, found the percent '%s'",
-				L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
+				L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
 		if (v <= 0)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a positive price, found '%s'",
-				L->name, f->line, f->column, csvread_quote(f->text, f->len, q));
+				L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
 	} else if (L->opt->percent && !pct) {
 		v /= 100.0;
 	}
@@ -567,7 +567,7 @@ static int date_cell(const struct loader *L, const struct csvread_field *f,
 		return HC_OK;
 	return hc_error(err, HC_EDATA,
 		"%s:%zu:%zu: expected a date as YYYY-MM-DD or YYYY-MM, found '%s'%s",
-		L->name, f->line, f->column, csvread_quote(f->text, f->len, q),
+		L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q),
 		rc == -2 ? " (no such day)" : "");
 }
 
@@ -638,10 +638,10 @@ static int wide_record(struct loader *L, size_t nfields, size_t line,
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: duplicate date %s (also on line %zu); expected each date once",
 				L->name, line, L->date_col + 1,
-				(universe_format_date(prev, a), a), L->prev_line);
+				(hc_universe_format_date(prev, a), a), L->prev_line);
 		if (L->row_date < prev) {
-			universe_format_date(L->row_date, a);
-			universe_format_date(prev, b);
+			hc_universe_format_date(L->row_date, a);
+			hc_universe_format_date(prev, b);
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: date %s comes after %s on line %zu; expected increasing dates",
 				L->name, line, L->date_col + 1, a, b, L->prev_line);
@@ -702,7 +702,7 @@ static int long_id(struct loader *L, const struct csvread_field *f,
 			return HC_OK;
 		}
 	}
-	rc = universe_check_id(L->name, f->line, f->column, f->text, f->len, err);
+	rc = hc_universe_check_id(L->name, f->line, f->column, f->text, f->len, err);
 	if (rc != HC_OK)
 		return rc;
 	if (L->m == L->cap_ids) {
@@ -858,7 +858,7 @@ static int long_finish(struct loader *L, struct universe *u, struct hc_error *er
 	char ds[11];
 	int rc;
 
-	rc = universe_id_clash(L->ids, L->m, &a, &b);
+	rc = hc_universe_id_clash(L->ids, L->m, &a, &b);
 	if (rc < 0)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 	if (rc > 0)
@@ -869,7 +869,7 @@ static int long_finish(struct loader *L, struct universe *u, struct hc_error *er
 		qsort(L->lrows, L->nlrows, sizeof *L->lrows, long_row_cmp);
 	for (i = 1; i < L->nlrows; i++) {
 		if (L->lrows[i].sec == L->lrows[i - 1].sec && L->lrows[i].date == L->lrows[i - 1].date) {
-			universe_format_date(L->lrows[i].date, ds);
+			hc_universe_format_date(L->lrows[i].date, ds);
 			return hc_error(err, HC_EDATA,
 				"%s:%u:%zu: second row for security '%s' on %s (first on line %u); expected one row per date and security",
 				L->name, L->lrows[i].line, L->date_col + 1, L->ids[L->lrows[i].sec], ds, L->lrows[i - 1].line);
@@ -1049,7 +1049,7 @@ static int check_variation(const struct universe *u, const char *name,
 			if (isnan(xi[k]))
 				continue;
 			if (!isfinite(xi[k])) {
-				universe_format_date(u->dates[k], d);
+				hc_universe_format_date(u->dates[k], d);
 				return hc_error(err, HC_EDATA,
 					"%s: security '%s' has an infinite return on %s; expected finite values",
 					name, u->ids[i], d);
@@ -1099,7 +1099,7 @@ static int finish(struct loader *L, struct universe *u, struct hc_error *err)
 	if (o->periods_per_year > 0) {
 		u->periods_per_year = o->periods_per_year;
 	} else {
-		u->periods_per_year = universe_detect_periods(u->dates, u->t);
+		u->periods_per_year = hc_universe_detect_periods(u->dates, u->t);
 		u->periods_detected = 1;
 	}
 	return HC_OK;
@@ -1141,7 +1141,7 @@ static int load(struct universe **out, const char *name, const char *path,
 
 	*out = NULL;
 	if (!opt) {
-		universe_options_init(&defaults);
+		hc_universe_options_init(&defaults);
 		opt = &defaults;
 	}
 	rc = check_options(opt, err);
@@ -1151,7 +1151,7 @@ static int load(struct universe **out, const char *name, const char *path,
 	L.name = name;
 	L.opt = opt;
 	L.budget = opt->max_bytes ? opt->max_bytes : hc_memory_available();
-	csvread_options_init(&copt);
+	hc_csvread_options_init(&copt);
 	copt.delimiter = opt->delimiter;
 	h.field = on_field;
 	h.record = on_record;
@@ -1161,8 +1161,8 @@ static int load(struct universe **out, const char *name, const char *path,
 		rc = hc_error(err, HC_ENOMEM, "%s: out of memory", name);
 		goto cleanup;
 	}
-	rc = path ? csvread_file(path, &copt, &h, NULL, err)
-		  : csvread_buffer(name, data, len, &copt, &h, NULL, err);
+	rc = path ? hc_csvread_file(path, &copt, &h, NULL, err)
+		  : hc_csvread_buffer(name, data, len, &copt, &h, NULL, err);
 	if (rc != HC_OK)
 		goto cleanup;
 	if (opt->layout == UNIVERSE_LONG)
@@ -1189,18 +1189,18 @@ cleanup:
 		L.ids = NULL;
 		L.m = 0;
 	}
-	universe_free(u);
+	hc_universe_free(u);
 	loader_release(&L);
 	return rc;
 }
 
-int universe_load(struct universe **out, const char *path,
+int hc_universe_load(struct universe **out, const char *path,
 		  const struct universe_options *opt, struct hc_error *err)
 {
 	return load(out, path, path, NULL, 0, opt, err);
 }
 
-int universe_load_buffer(struct universe **out, const char *name,
+int hc_universe_load_buffer(struct universe **out, const char *name,
 			 const char *data, size_t len,
 			 const struct universe_options *opt, struct hc_error *err)
 {
@@ -1223,14 +1223,14 @@ static struct universe *derived_alloc(const struct universe *src, size_t t)
 	if (!u->ids || !u->dates || (src->source && !u->source) ||
 	    hc_mul_size(src->m, t, &n) ||
 	    !(u->x = hc_reallocarray(NULL, n ? n : 1, sizeof(double)))) {
-		universe_free(u);
+		hc_universe_free(u);
 		return NULL;
 	}
 	for (i = 0; i < src->m; i++) {
 		u->ids[i] = hc_strdup(src->ids[i]);
 		if (!u->ids[i]) {
 			u->m = i;
-			universe_free(u);
+			hc_universe_free(u);
 			return NULL;
 		}
 	}
@@ -1273,7 +1273,7 @@ static int drop_constant(struct universe *u, struct hc_error *err)
 	return HC_OK;
 }
 
-int universe_window(struct universe **out, const struct universe *src,
+int hc_universe_window(struct universe **out, const struct universe *src,
 		    size_t first, size_t len, int missing, double min_coverage,
 		    struct hc_error *err)
 {
@@ -1300,21 +1300,21 @@ int universe_window(struct universe **out, const struct universe *src,
 	if (rc == HC_OK && missing != UNIVERSE_MISSING_KEEP)
 		rc = drop_constant(u, err);
 	if (rc == HC_OK && u->m < 2) {
-		universe_format_date(u->dates[0], a);
-		universe_format_date(u->dates[len - 1], b);
+		hc_universe_format_date(u->dates[0], a);
+		hc_universe_format_date(u->dates[len - 1], b);
 		rc = hc_error(err, HC_EDATA,
 			"window %s to %s: %zu of %zu securities left after %zu dropped; expected at least 2",
 			a, b, u->m, src->m, u->ndropped);
 	}
 	if (rc != HC_OK) {
-		universe_free(u);
+		hc_universe_free(u);
 		return rc;
 	}
 	*out = u;
 	return HC_OK;
 }
 
-int universe_resample(struct universe **out, const struct universe *src,
+int hc_universe_resample(struct universe **out, const struct universe *src,
 		      const size_t *idx, size_t n, struct hc_error *err)
 {
 	struct universe *u;

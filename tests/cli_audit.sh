@@ -69,7 +69,7 @@ assert any("compliance counsel" in c for c in doc["cautions"])
 EOF
 
 # --table: the screens' and sectors' tables as CSV, from the same report as
-# the JSON (report_write_csv_part), so every cell equals the JSON's value
+# the JSON (hc_report_write_csv_part), so every cell equals the JSON's value
 # (17 significant digits both ways); the sector weights against sums by hand
 # of the weights above (Wren: QA1+QA2+QA4 in Fen = 0.75, QA3 in Moor = 0.25;
 # Lark: QA5 in Moor = 0.6, QA6 in Fen = 0.4), and Lark's largest issuer,

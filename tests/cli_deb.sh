@@ -44,8 +44,8 @@ echo "$depends" | grep -q libgslcblas0 && fail "Depends names libgslcblas0: $dep
 R=$T/root
 dpkg -x "$deb" "$R" || die "dpkg -x failed"
 # lib/ is lib/<multiarch> when the build's prefix was /usr; find it either way.
-lib=$(dirname "$(find "$R/usr/lib" -name 'libholdcount.so.0' | head -n1)")
-[ -n "$lib" ] && [ -d "$lib" ] || die "no libholdcount.so.0 in the package"
+lib=$(dirname "$(find "$R/usr/lib" -name 'libholdcount.so.1' | head -n1)")
+[ -n "$lib" ] && [ -d "$lib" ] || die "no libholdcount.so.1 in the package"
 for f in usr/bin/holdcount usr/share/man/man1/holdcount.1.gz usr/share/man/man1/holdcount-curve.1.gz \
 	 usr/share/bash-completion/completions/holdcount usr/share/holdcount/demo-universe.csv \
 	 usr/include/holdcount/curve.h usr/share/doc/holdcount/library.md usr/share/doc/holdcount/copyright; do
@@ -88,19 +88,19 @@ done
 # Stripped binaries (debug information stays in the build tree), and a static
 # archive that still links: its symbols survive.
 readelf -S "$R/usr/bin/holdcount" | grep -q '\.debug_info' && fail "packaged holdcount is not stripped"
-nm "$lib/libholdcount.a" 2>/dev/null | grep -q ' T curve_exact$' || fail "packaged libholdcount.a lost its symbols"
+nm "$lib/libholdcount.a" 2>/dev/null | grep -q ' T hc_curve_exact$' || fail "packaged libholdcount.a lost its symbols"
 
 # What the binary and the library load, against Depends: every NEEDED library
 # of the binary is the library's or the library itself, and Debian's
 # dpkg-shlibdeps names exactly the packages of Depends, at versions Depends
 # does not undercut.
 readelf -d "$R/usr/bin/holdcount" | sed -n 's/.*(NEEDED).*\[\(.*\)\]/\1/p' | sort >"$T/needed_bin"
-readelf -d "$lib/libholdcount.so.0" | sed -n 's/.*(NEEDED).*\[\(.*\)\]/\1/p' | sort >"$T/needed_lib"
-extra=$(comm -23 "$T/needed_bin" <(sort "$T/needed_lib" <(echo libholdcount.so.0)))
+readelf -d "$lib/libholdcount.so.1" | sed -n 's/.*(NEEDED).*\[\(.*\)\]/\1/p' | sort >"$T/needed_lib"
+extra=$(comm -23 "$T/needed_bin" <(sort "$T/needed_lib" <(echo libholdcount.so.1)))
 [ -z "$extra" ] || fail "holdcount needs libraries its library does not: $extra"
 mkdir -p "$T/shl/debian"
 printf 'Source: holdcount\n\nPackage: holdcount\nArchitecture: any\n' >"$T/shl/debian/control"
-(cd "$T/shl" && dpkg-shlibdeps -O "$lib/libholdcount.so.0" 2>"$T/shl.err") >"$T/shl.out" || fail "dpkg-shlibdeps: $(head -c 300 "$T/shl.err")"
+(cd "$T/shl" && dpkg-shlibdeps -O "$lib/libholdcount.so.1" 2>"$T/shl.err") >"$T/shl.out" || fail "dpkg-shlibdeps: $(head -c 300 "$T/shl.err")"
 shl=$(sed -n 's/^shlibs:Depends=//p' "$T/shl.out")
 echo "dpkg-shlibdeps: $shl"
 names() { echo "$1" | tr ',' '\n' | sed 's/^ *//; s/ .*//' | sed '/^$/d' | sort; }
@@ -115,10 +115,10 @@ done >"$T/versions"
 # ---- where the dynamic linker finds libholdcount --------------------------------
 # Installed under /usr, the binary carries no RPATH or RUNPATH (common
 # practice in Debian packaging, which lintian enforces; from memory) and
-# finds libholdcount.so.0 on the system path instead.  The reference for "system
+# finds libholdcount.so.1 on the system path instead.  The reference for "system
 # path" is glibc's dynamic linker itself: the interpreter the binary names,
 # asked with --help, lists its system search directories.
-for f in "$R/usr/bin/holdcount" "$lib/libholdcount.so.0"; do
+for f in "$R/usr/bin/holdcount" "$lib/libholdcount.so.1"; do
 	readelf -d "$f" | grep -qE '\((RPATH|RUNPATH)\)' && fail "packaged ${f#$R} has $(readelf -d "$f" | grep -E '\((RPATH|RUNPATH)\)' | sed 's/.*(\(R[A-Z]*PATH\)).*\[/\1 [/')"
 done
 interp=$(readelf -l "$R/usr/bin/holdcount" | sed -n 's/.*Requesting program interpreter: \(.*\)\]$/\1/p')
@@ -127,7 +127,7 @@ interp=$(readelf -l "$R/usr/bin/holdcount" | sed -n 's/.*Requesting program inte
 [ -s "$T/sysdirs" ] || die "$interp --help lists no system search path"
 grep -qxF "${lib#$R}" "$T/sysdirs" || fail "the package's ${lib#$R} is not on the dynamic linker's system search path: $(tr '\n' ' ' <"$T/sysdirs")"
 # readelf -d's NEEDED name is the library's SONAME, which ld.so looks up there.
-readelf -d "$R/usr/bin/holdcount" | grep -q '(NEEDED).*\[libholdcount\.so\.0\]' || fail "packaged holdcount does not need libholdcount.so.0 by its SONAME"
+readelf -d "$R/usr/bin/holdcount" | grep -q '(NEEDED).*\[libholdcount\.so\.1\]' || fail "packaged holdcount does not need libholdcount.so.1 by its SONAME"
 
 # ---- ldconfig trigger and shlibs --------------------------------------------------
 # The control archive: control, md5sums, the ldconfig trigger and shlibs; no
@@ -136,7 +136,7 @@ C=$T/control
 dpkg-deb -e "$deb" "$C" || die "dpkg-deb -e failed"
 [ "$(cd "$C" && ls | tr '\n' ' ')" = "control md5sums shlibs triggers " ] || fail "control archive holds: $(cd "$C" && ls | tr '\n' ' ')"
 [ "$(cat "$C/triggers" 2>/dev/null)" = "activate-noawait ldconfig" ] || fail "triggers file: '$(cat "$C/triggers" 2>/dev/null)'"
-[ "$(cat "$C/shlibs" 2>/dev/null)" = "libholdcount 0 holdcount (>= $(echo "$version" | cut -d. -f1-2))" ] || fail "shlibs file: '$(cat "$C/shlibs" 2>/dev/null)'"
+[ "$(cat "$C/shlibs" 2>/dev/null)" = "libholdcount 1 holdcount (>= $(echo "$version" | cut -d. -f1-2))" ] || fail "shlibs file: '$(cat "$C/shlibs" 2>/dev/null)'"
 # dpkg itself reads the trigger: installed with dpkg --root into an empty
 # database holding one package interested in ldconfig (as libc-bin is),
 # with trigger processing held back, that package is left with ldconfig
@@ -173,7 +173,7 @@ export LD_LIBRARY_PATH=$lib
 "$HC" --version | cmp -s - "$T/v" || fail "unpacked --version differs: $(head -n1 "$T/v")"
 grep -q '^GSL [0-9]' "$T/v" && grep -q '^BLAS OpenBLAS' "$T/v" || fail "unpacked --version lacks GSL or BLAS: $(cat "$T/v")"
 loaded=$(ldd "$R/usr/bin/holdcount" | awk '/libholdcount/ {print $3}')
-[ "$(readlink -f "$loaded")" = "$(readlink -f "$lib/libholdcount.so.0")" ] || fail "unpacked holdcount loads '$loaded', not the package's library"
+[ "$(readlink -f "$loaded")" = "$(readlink -f "$lib/libholdcount.so.1")" ] || fail "unpacked holdcount loads '$loaded', not the package's library"
 # The package's own demo data, found from the binary's place (UTF-8: see cli_install.sh).
 (cd "$T" && env -u HOLDCOUNT_DATA_DIR LC_ALL=C.UTF-8 "$R/usr/bin/holdcount" report -o rep --paths 50 --bootstrap 0 -q) 2>"$T/err" \
 	|| fail "unpacked report on the demo data: $(head -c 300 "$T/err")"

@@ -162,7 +162,7 @@ expect 2 "need a universe file" -- "$HOLDCOUNT" enough --average-sd 30% --averag
 expect 2 "not both" -- "$HOLDCOUNT" enough "$tmp/u.csv" --average-sd 30%
 expect 2 "unknown option '--bootstrapp'" -- "$HOLDCOUNT" enough "$tmp/u.csv" --bootstrapp 10
 # Summary statistics no universe can have are refused by the same check as
-# `formula` (moments_from_summary), exit 2, nothing on stdout: an average
+# `formula` (hc_moments_from_summary), exit 2, nothing on stdout: an average
 # covariance above the average variance (a correlation above 1), and an
 # average correlation below -1/(M-1), the bound below which an equicorrelated
 # covariance matrix of M securities is not positive semi-definite (its

@@ -90,7 +90,7 @@ HOLDCOUNT_THREADS=abc "$HC" describe "$U" >/dev/null 2>"$T/err" || fail "describ
 # OpenBLAS's pthread build starts a worker per core when it loads, and an idle
 # worker busy-waits with sched_yield for about 0.1 s (at start and after a
 # threaded call), taking a core from the sampler.  holdcount stops those
-# workers at start (moments_blas_serial), and its one-thread products must
+# workers at start (hc_moments_blas_serial), and its one-thread products must
 # not start them again: a curve run through the Gram route (T < M is not
 # needed: every route calls the BLAS) makes next to no sched_yield call.
 # Before the fix the same run made thousands (measured under strace: 465 to

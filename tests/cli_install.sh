@@ -31,10 +31,17 @@ for f in bin/holdcount lib/libholdcount.a lib/libholdcount.so lib/pkgconfig/hold
 	 share/man/man1/holdcount.1.gz share/doc/holdcount/library.md share/doc/holdcount/copyright; do
 	[ -e "$P/$f" ] || fail "not installed: $f"
 done
-# The shared library's SONAME (libholdcount.so.0) and its versioned file.
+# The shared library's SONAME (libholdcount.so.1) and its versioned file.
 soname=$(readelf -d "$L/libholdcount.so" | sed -n 's/.*(SONAME).*\[\(.*\)\]/\1/p')
-[ "$soname" = "libholdcount.so.0" ] || fail "SONAME is '$soname', expected libholdcount.so.0"
-[ -f "$L/libholdcount.so.0.$(sed -n 's/^Version: 0\.//p' "$L/pkgconfig/holdcount.pc")" ] || fail "no libholdcount.so.0.MINOR.PATCH matching holdcount.pc's version"
+[ "$soname" = "libholdcount.so.1" ] || fail "SONAME is '$soname', expected libholdcount.so.1"
+[ -f "$L/libholdcount.so.1.$(sed -n 's/^Version: 0\.//p' "$L/pkgconfig/holdcount.pc")" ] || fail "no libholdcount.so.1.MINOR.PATCH matching holdcount.pc's version"
+# Every exported name carries the project prefix hc_ (so that none can collide
+# with a user's own functions, e.g. a "report_free" of theirs): functions and
+# data alike, as nm -D lists them for the installed library.
+unprefixed=$(nm -D --defined-only "$L/libholdcount.so" | awk '$2 ~ /^[TDBRVW]$/ && $3 !~ /^hc_/ && $3 !~ /^_/ {print $3}')
+[ -z "$unprefixed" ] || fail "exported without the hc_ prefix: $(echo $unprefixed | head -c 300)"
+nexp=$(nm -D --defined-only "$L/libholdcount.so" | awk '$2 == "T" && $3 ~ /^hc_/' | wc -l)
+[ "$nexp" -ge 150 ] || fail "only $nexp exported hc_ functions: is nm reading the right library?"
 # Every public header, and nothing else, under include/holdcount/.
 (cd "$SRC/include/holdcount" && ls *.h) >"$T/h_src"
 (cd "$P/include/holdcount" && ls) >"$T/h_inst"
@@ -87,7 +94,7 @@ rm -rf "$T/dest"
 env -u LD_LIBRARY_PATH "$P/bin/holdcount" --version >"$T/v" 2>&1 || fail "installed holdcount --version: $(cat "$T/v")"
 "$HC" --version | cmp -s - "$T/v" || fail "installed --version differs from the build tree's"
 lib=$(env -u LD_LIBRARY_PATH ldd "$P/bin/holdcount" | awk '/libholdcount/ {print $3}')
-[ "$(readlink -f "$lib")" = "$(readlink -f "$L/libholdcount.so.0")" ] || fail "installed binary loads '$lib', not the installed library"
+[ "$(readlink -f "$lib")" = "$(readlink -f "$L/libholdcount.so.1")" ] || fail "installed binary loads '$lib', not the installed library"
 # With no UNIVERSE, report runs on the demo data installed beside the binary.
 # (A UTF-8 locale: under LC_ALL=C gnuplot warns that it cannot convert the
 # plots' degree sign and report stops with status 6 -- left to the report's
@@ -146,9 +153,9 @@ int main()
 {
 	struct moments mo;
 	struct hc_error err;
-	if (moments_from_summary(&mo, 46.619, 7.058, 0, &err) != HC_OK)
+	if (hc_moments_from_summary(&mo, 46.619, 7.058, 0, &err) != HC_OK)
 		return 1;
-	std::printf("%.6f %.6f\n", curve_expected_variance(&mo, 1), curve_expected_variance(&mo, 10));
+	std::printf("%.6f %.6f\n", hc_curve_expected_variance(&mo, 1), hc_curve_expected_variance(&mo, 10));
 	return 0;
 }
 EOF
@@ -163,7 +170,7 @@ cp "$T/curve.c" "$T/proj/"
 cat >"$T/proj/CMakeLists.txt" <<'EOF'
 cmake_minimum_required(VERSION 3.18)
 project(uses_holdcount C)
-find_package(holdcount 0.1 REQUIRED)
+find_package(holdcount 0.2 REQUIRED)
 add_executable(curve_shared curve.c)
 target_link_libraries(curve_shared PRIVATE holdcount::holdcount)
 add_executable(curve_static curve.c)
@@ -172,9 +179,9 @@ EOF
 cmake -S "$T/proj" -B "$T/proj/build" -DCMAKE_PREFIX_PATH="$P" >"$T/cm.log" 2>&1 \
 	&& cmake --build "$T/proj/build" >>"$T/cm.log" 2>&1 || fail "find_package(holdcount) project: $(tail -8 "$T/cm.log")"
 # An incompatible version request is refused (SameMinorVersion before 1.0).
-sed -i 's/find_package(holdcount 0.1 REQUIRED)/find_package(holdcount 0.2 REQUIRED)/' "$T/proj/CMakeLists.txt"
+sed -i 's/find_package(holdcount 0.2 REQUIRED)/find_package(holdcount 0.3 REQUIRED)/' "$T/proj/CMakeLists.txt"
 cmake -S "$T/proj" -B "$T/proj/build2" -DCMAKE_PREFIX_PATH="$P" >"$T/cm2.log" 2>&1 \
-	&& fail "find_package(holdcount 0.2) accepted version $(pkg-config --modversion holdcount)"
+	&& fail "find_package(holdcount 0.3) accepted version $(pkg-config --modversion holdcount)"
 
 # A universe small enough to enumerate: 8 invented securities, 61 months.
 "$PY" - "$T/u8.csv" <<'EOF' || die "writing the test universe"

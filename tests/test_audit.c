@@ -9,7 +9,7 @@
  *   - exact enumeration of every same-count portfolio of a small universe
  *     for the percentile;
  *   - for the audit from a covariance matrix, the same textbook A handed
- *     to audit_run_matrix, checked against the quadratic form and against
+ *     to hc_audit_run_matrix, checked against the quadratic form and against
  *     the audit of the return series A came from;
  *   - the screens' limits from memory of the published texts (UCITS
  *     Directive 2009/65/EC Art. 52; Investment Company Act of 1940 s. 5(b)(1);
@@ -104,22 +104,22 @@ static void fixture_load(struct fixture *fx, size_t m, size_t t, uint64_t seed, 
 	struct hc_error err;
 	int rc;
 
-	universe_options_init(&uo);
-	rc = universe_load_buffer(&fx->u, "u.csv", text, strlen(text), &uo, &err);
+	hc_universe_options_init(&uo);
+	rc = hc_universe_load_buffer(&fx->u, "u.csv", text, strlen(text), &uo, &err);
 	free(text);
 	if (rc != HC_OK)
 		print_error("%s\n", err.message);
 	assert_int_equal(rc, HC_OK);
 	assert_int_equal(fx->u->m, m);
 	assert_near(fx->u->periods_per_year, 12, 0);
-	assert_int_equal(moments_from_universe(&fx->mo, fx->u, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&fx->mo, fx->u, &err), HC_OK);
 }
 
 static struct holdings *holdings_text(const char *text)
 {
 	struct holdings *h;
 	struct hc_error err;
-	int rc = holdings_load_buffer(&h, "h.csv", text, strlen(text), NULL, &err);
+	int rc = hc_holdings_load_buffer(&h, "h.csv", text, strlen(text), NULL, &err);
 
 	if (rc != HC_OK)
 		print_error("%s\n", err.message);
@@ -132,7 +132,7 @@ static struct audit_result *run(const struct holdings *h, const struct fixture *
 {
 	struct audit_result *a;
 	struct hc_error err;
-	int rc = audit_run(&a, h, fx->u, &fx->mo, opt, &err);
+	int rc = hc_audit_run(&a, h, fx->u, &fx->mo, opt, &err);
 
 	if (rc != HC_OK)
 		print_error("%s\n", err.message);
@@ -188,7 +188,7 @@ static void averages(const struct universe *u, double *vbar, double *cbar)
 
 static void options(struct audit_options *opt, size_t paths)
 {
-	audit_options_init(opt);
+	hc_audit_options_init(opt);
 	opt->paths = paths;
 	opt->seed = 20240917;
 	opt->threads = 1;
@@ -246,9 +246,9 @@ static void test_audit_concentration_and_risk_match_definitions(void **state)
 	assert_true(isnan(af->sd_percentile));   /* paths = 0: not sampled */
 	assert_int_equal(af->nmissing, 0);
 	assert_false(af->risk_subset);
-	audit_result_free(a);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_equivalent_count_inverts_exact_curve(void **state)
@@ -262,11 +262,11 @@ static void test_audit_equivalent_count_inverts_exact_curve(void **state)
 
 	fixture_load(&fx, 20, 60, 11, 0);
 	for (k = 0; k < sizeof counts / sizeof counts[0]; k++) {
-		double s2 = curve_expected_variance(&fx.mo, counts[k]);
-		assert_int_equal(curve_equivalent_count(&fx.mo, s2, &n), 0);
+		double s2 = hc_curve_expected_variance(&fx.mo, counts[k]);
+		assert_int_equal(hc_curve_equivalent_count(&fx.mo, s2, &n), 0);
 		assert_near(n, counts[k], 1e-9);
 	}
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_below_the_floor_is_not_a_number(void **state)
@@ -294,7 +294,7 @@ static void test_audit_below_the_floor_is_not_a_number(void **state)
 	assert_true(a->funds[0].variance / 12 < cbar);
 	assert_true(a->funds[0].below_floor);
 	assert_true(isnan(a->funds[0].equivalent_count));
-	assert_int_equal(audit_report(&r, a, h, &err), HC_OK);
+	assert_int_equal(hc_audit_report(&r, a, h, &err), HC_OK);
 	t = r->tables[0];
 	assert_string_equal(t->key, "funds");
 	for (col = 0; col < t->ncols; col++)
@@ -307,7 +307,7 @@ static void test_audit_below_the_floor_is_not_a_number(void **state)
 	assert_string_equal(t->cells[col].text, "below the floor");
 	fp = tmpfile();
 	assert_non_null(fp);
-	assert_int_equal(report_writer_csv->write(fp, r, &err), HC_OK);
+	assert_int_equal(hc_report_writer_csv->write(fp, r, &err), HC_OK);
 	rewind(fp);
 	assert_non_null(fgets(line, sizeof line, fp));
 	assert_non_null(fgets(line, sizeof line, fp));
@@ -315,7 +315,7 @@ static void test_audit_below_the_floor_is_not_a_number(void **state)
 	fclose(fp);
 	fp = tmpfile();
 	assert_non_null(fp);
-	assert_int_equal(report_writer_json->write(fp, r, &err), HC_OK);
+	assert_int_equal(hc_report_writer_json->write(fp, r, &err), HC_OK);
 	rewind(fp);
 	while (fgets(line, sizeof line, fp)) {     /* cJSON prints "key":<tab>value */
 		json_null |= strstr(line, "\"equivalent_count\":\tnull,") != NULL;
@@ -326,10 +326,10 @@ static void test_audit_below_the_floor_is_not_a_number(void **state)
 	assert_true(json_null);
 	assert_true(json_flag);
 	assert_false(json_text);
-	report_free(r);
-	audit_result_free(a);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_report_free(r);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 /* ---- screens at and just beyond each limit ---- */
@@ -369,7 +369,7 @@ static const struct audit_fund *screen_fund(const struct fixture *fx, const doub
 		struct audit_result *a_; struct holdings *h_; \
 		const struct audit_fund *af = screen_fund(&fx, pct, sizeof pct / sizeof pct[0], issuers, &a_, &h_); \
 		body; \
-		audit_result_free(a_); holdings_free(h_); \
+		hc_audit_result_free(a_); hc_holdings_free(h_); \
 	} while (0)
 
 static void test_audit_screens_ucits_art52(void **state)
@@ -403,7 +403,7 @@ static void test_audit_screens_ucits_art52(void **state)
 		assert_near(af->checks[AUDIT_PART_UCITS_AGGREGATE].figure, 0.4001, 1e-14);
 		assert_false(af->screen_passed[0]);
 	});
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_screens_1940act_5b1(void **state)
@@ -426,7 +426,7 @@ static void test_audit_screens_1940act_5b1(void **state)
 		assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.7499, 1e-14);
 		assert_false(af->screen_passed[1]);
 	});
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_screens_1940act_issuer_above_5pct_excluded(void **state)
@@ -463,7 +463,7 @@ static void test_audit_screens_1940act_issuer_above_5pct_excluded(void **state)
 		assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.75, 1e-14);
 		assert_true(af->screen_passed[1]);
 	});
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_screens_ric_851b3(void **state)
@@ -494,7 +494,7 @@ static void test_audit_screens_ric_851b3(void **state)
 		assert_false(af->checks[AUDIT_PART_RIC_SMALL].passed);
 		assert_near(af->checks[AUDIT_PART_RIC_SMALL].figure, 0.4999, 1e-14);
 	});
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_screens_aggregate_by_issuer(void **state)
@@ -514,7 +514,7 @@ static void test_audit_screens_aggregate_by_issuer(void **state)
 		assert_near(af->checks[AUDIT_PART_UCITS_ISSUER].figure, 0.11, 1e-14);
 		assert_string_equal(af->checks[AUDIT_PART_UCITS_ISSUER].issuer, "IA");
 	});
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_largest_ties_go_to_the_smallest_id(void **state)
@@ -541,16 +541,16 @@ static void test_audit_largest_ties_go_to_the_smallest_id(void **state)
 	assert_string_equal(a->funds[0].max_id, "QX04");
 	assert_string_equal(a->funds[0].issuer_max_id, "QX04");
 	assert_string_equal(a->funds[0].checks[AUDIT_PART_UCITS_ISSUER].issuer, "QX04");
-	audit_result_free(a);
-	holdings_free(h);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
 	h = holdings_text(issued);
 	a = run(h, &fx, &opt);
 	assert_string_equal(a->funds[0].max_id, "QX04");
 	assert_string_equal(a->funds[0].issuer_max_id, "Ib");
 	assert_near(a->funds[0].issuer_max, 0.3, 1e-15);
-	audit_result_free(a);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 /* ---- percentile ---- */
@@ -641,9 +641,9 @@ static void test_audit_percentile_against_enumeration(void **state)
 	assert_true(fabs(rank[2] - rank[3]) > 1.0 / 56);
 	/* the three lowest-variance securities make a low-ranking portfolio */
 	assert_true(a->funds[1].sd_percentile < 0.2);
-	audit_result_free(a);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_percentile_ties_at_full_count(void **state)
@@ -662,9 +662,9 @@ static void test_audit_percentile_ties_at_full_count(void **state)
 	options(&opt, 500);
 	a = run(h, &fx, &opt);
 	assert_near(a->funds[0].sd_percentile, 0.5, 0);
-	audit_result_free(a);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 /* ---- from a covariance matrix ---- */
@@ -693,8 +693,8 @@ static struct audit_result *run_matrix(const struct holdings *h, const struct co
 	struct hc_error err;
 	int rc;
 
-	assert_int_equal(moments_from_matrix(&mo, c->a, c->m, &err), HC_OK);
-	rc = audit_run_matrix(&a, h, &am, &mo, opt, &err);
+	assert_int_equal(hc_moments_from_matrix(&mo, c->a, c->m, &err), HC_OK);
+	rc = hc_audit_run_matrix(&a, h, &am, &mo, opt, &err);
 	if (rc != HC_OK)
 		print_error("%s\n", err.message);
 	assert_int_equal(rc, HC_OK);
@@ -752,11 +752,11 @@ static void test_audit_matrix_agrees_with_returns(void **state)
 	}
 	assert_int_equal(am->funds[1].nmissing, 1);
 	assert_true(am->funds[1].risk_subset);
-	audit_result_free(ar);
-	audit_result_free(am);
-	holdings_free(h);
+	hc_audit_result_free(ar);
+	hc_audit_result_free(am);
+	hc_holdings_free(h);
 	free(c.a);
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_matrix_own_scale_and_errors(void **state)
@@ -786,24 +786,24 @@ static void test_audit_matrix_own_scale_and_errors(void **state)
 	assert_rel(a->funds[0].variance, quad_form(fx.u, idx, wn, 3), 1e-13);
 	assert_false(a->annualised);
 	assert_near(a->periods_per_year, 1, 0);
-	audit_result_free(a);
+	hc_audit_result_free(a);
 	/* strict: the missing id is named with the matrix's file */
 	opt.strict = 1;
-	assert_int_equal(moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
+	assert_int_equal(hc_moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
 	bad = (struct audit_matrix){ &c, "cov.csv", NULL, 1, 0, 0, NULL };
-	assert_int_equal(audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EDATA);
+	assert_int_equal(hc_audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EDATA);
 	assert_null(a);
 	assert_string_equal(err.message, "h.csv:3:2: id 'ZZ404' of fund 'Hazel' is not in the universe 'cov.csv', "
 			    "expected an id of the universe (without --strict the fund's risk is computed on the rest)");
 	/* a scale other than 1 without annualising is a contradiction */
 	bad.periods_per_year = 12;
-	assert_int_equal(audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
 	bad.periods_per_year = 0;
 	bad.annualised = 1;
-	assert_int_equal(audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
-	holdings_free(h);
+	assert_int_equal(hc_audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
+	hc_holdings_free(h);
 	free(c.a);
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_matrix_percentile_against_enumeration(void **state)
@@ -826,10 +826,10 @@ static void test_audit_matrix_percentile_against_enumeration(void **state)
 	exact = enumerated_rank(fx.u, 3, a->funds[0].variance / 12);
 	tol = 4.5 * sqrt(fmax(exact * (1 - exact), 0.5 / (double)K) / (double)K);
 	assert_near(a->funds[0].sd_percentile, exact, tol);
-	audit_result_free(a);
-	holdings_free(h);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
 	free(c.a);
-	universe_free(fx.u);
+	hc_universe_free(fx.u);
 }
 
 /* ---- missing ids, strict ---- */
@@ -859,7 +859,7 @@ static void test_audit_missing_ids_renormalised_or_refused(void **state)
 	assert_int_equal(a->funds[0].risk_holdings, 2);
 	assert_int_equal(a->funds[0].holdings, 3);
 	assert_rel(a->funds[0].variance, 12 * quad_form(fx.u, idx, w, 2), 1e-12);
-	audit_result_free(a);
+	hc_audit_result_free(a);
 	/* Fern holds nothing the universe knows: concentration yes, risk none,
 	 * and no percentile even when sampling */
 	options(&opt, 50);
@@ -870,14 +870,14 @@ static void test_audit_missing_ids_renormalised_or_refused(void **state)
 	assert_true(isnan(a->funds[1].sd));
 	assert_true(isnan(a->funds[1].sd_percentile));
 	assert_false(isnan(a->funds[0].sd_percentile));
-	audit_result_free(a);
+	hc_audit_result_free(a);
 	options(&opt, 0);
 	opt.strict = 1;
-	assert_int_equal(audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EDATA);
+	assert_int_equal(hc_audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EDATA);
 	assert_null(a);
 	assert_string_equal(err.message, "h.csv:3:2: id 'ZZ999' of fund 'Elm' is not in the universe 'u.csv', expected an id of the universe (without --strict the fund's risk is computed on the rest)");
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 /* ---- policy and sectors ---- */
@@ -902,10 +902,10 @@ static void test_audit_policy_and_sectors(void **state)
 
 	fixture_load(&fx, 20, 36, 31, 0);
 	h = holdings_text(text);
-	assert_int_equal(holdings_labels_load_buffer(&l, "s.csv", map, strlen(map), 0, &err), HC_OK);
+	assert_int_equal(hc_holdings_labels_load_buffer(&l, "s.csv", map, strlen(map), 0, &err), HC_OK);
 	options(&opt, 0);
 	opt.policy.max_sector_weight = 0.5;
-	assert_int_equal(audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EUSAGE);   /* no map */
+	assert_int_equal(hc_audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EUSAGE);   /* no map */
 	assert_string_equal(err.message, "a maximum sector weight needs a sector map");
 	opt.sectors = l;
 	opt.policy.min_holdings = 5;
@@ -930,10 +930,10 @@ static void test_audit_policy_and_sectors(void **state)
 	assert_false(af->passed);
 	assert_false(af->screen_passed[1]);
 	assert_int_equal(a->failed_funds, 1);
-	audit_result_free(a);
-	holdings_labels_free(l);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_audit_result_free(a);
+	hc_holdings_labels_free(l);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 static void test_audit_parse_screens(void **state)
@@ -941,14 +941,14 @@ static void test_audit_parse_screens(void **state)
 	unsigned s;
 	struct hc_error err;
 
-	assert_int_equal(audit_parse_screens("ric, UCITS", &s, &err), HC_OK);
+	assert_int_equal(hc_audit_parse_screens("ric, UCITS", &s, &err), HC_OK);
 	assert_int_equal(s, AUDIT_SCREEN_UCITS | AUDIT_SCREEN_RIC);
-	assert_int_equal(audit_parse_screens("all", &s, &err), HC_OK);
+	assert_int_equal(hc_audit_parse_screens("all", &s, &err), HC_OK);
 	assert_int_equal(s, AUDIT_SCREEN_UCITS | AUDIT_SCREEN_1940ACT | AUDIT_SCREEN_RIC);
-	assert_int_equal(audit_parse_screens("ucits,40act", &s, &err), HC_EUSAGE);
+	assert_int_equal(hc_audit_parse_screens("ucits,40act", &s, &err), HC_EUSAGE);
 	assert_string_equal(err.message, "unknown screen '40act' in 'ucits,40act', expected ucits, 1940act, ric, all or none");
-	assert_string_equal(audit_rule_name(AUDIT_RULE_MAX_SECTOR_WEIGHT), "max-sector-weight");
-	assert_null(audit_rule_name(3));
+	assert_string_equal(hc_audit_rule_name(AUDIT_RULE_MAX_SECTOR_WEIGHT), "max-sector-weight");
+	assert_null(hc_audit_rule_name(3));
 }
 
 /* ---- the report ---- */
@@ -974,16 +974,16 @@ static void test_audit_report_csv_columns_and_json_screens(void **state)
 	opt.policy.min_holdings = 2;
 	opt.policy.max_weight = 0.6;
 	a = run(h, &fx, &opt);
-	assert_int_equal(audit_report(&r, a, h, &err), HC_OK);
+	assert_int_equal(hc_audit_report(&r, a, h, &err), HC_OK);
 	fp = tmpfile();
 	assert_non_null(fp);
-	assert_int_equal(report_writer_csv->write(fp, r, &err), HC_OK);
+	assert_int_equal(hc_report_writer_csv->write(fp, r, &err), HC_OK);
 	rewind(fp);
 	assert_non_null(fgets(line, sizeof line, fp));
 	assert_int_equal(strncmp(line, want, strlen(want)), 0);
 	fclose(fp);
 	fp = tmpfile();
-	assert_int_equal(report_writer_json->write(fp, r, &err), HC_OK);
+	assert_int_equal(hc_report_writer_json->write(fp, r, &err), HC_OK);
 	rewind(fp);
 	while (fgets(line, sizeof line, fp)) {
 		json_has_screens |= strstr(line, "\"screens\"") != NULL;
@@ -993,10 +993,10 @@ static void test_audit_report_csv_columns_and_json_screens(void **state)
 	assert_true(json_has_screens);
 	assert_true(json_has_failed);      /* Gum's 70% breaks the 60% maximum */
 	assert_int_equal(a->failed_funds, 1);
-	report_free(r);
-	audit_result_free(a);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_report_free(r);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 /* ---- allocation failures ---- */
@@ -1015,12 +1015,12 @@ static void test_audit_allocation_failures(void **state)
 
 	fixture_load(&fx, 10, 24, 41, 0);
 	h = holdings_text("fund,id,weight\nIvy,QX01,0.6\nIvy,ZZ1,0.1\nIvy,QX02,0.3\nJuniper,QX03,1\n");
-	assert_int_equal(holdings_labels_load_buffer(&l, "s.csv", "id,s\nQX01,A\n", strlen("id,s\nQX01,A\n"), 0, &err), HC_OK);
+	assert_int_equal(hc_holdings_labels_load_buffer(&l, "s.csv", "id,s\nQX01,A\n", strlen("id,s\nQX01,A\n"), 0, &err), HC_OK);
 	options(&opt, 50);
 	opt.sectors = l;
 	for (k = 0; rc == HC_ENOMEM; k++) {
 		hc_alloc_fail_after(k);
-		rc = audit_run(&a, h, fx.u, &fx.mo, &opt, &err);
+		rc = hc_audit_run(&a, h, fx.u, &fx.mo, &opt, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_ENOMEM)
 			assert_null(a);
@@ -1029,15 +1029,15 @@ static void test_audit_allocation_failures(void **state)
 	assert_int_equal(rc, HC_OK);
 	for (k = 0, rc = HC_ENOMEM; rc == HC_ENOMEM; k++) {
 		hc_alloc_fail_after(k);
-		rc = audit_report(&r, a, h, &err);
+		rc = hc_audit_report(&r, a, h, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_ENOMEM)
 			assert_null(r);
 		assert_true(k < 5000);
 	}
 	assert_int_equal(rc, HC_OK);
-	report_free(r);
-	audit_result_free(a);
+	hc_report_free(r);
+	hc_audit_result_free(a);
 	/* the matrix route: its own allocations, the sampler's matrix route */
 	{
 		struct covmatrix c;
@@ -1046,22 +1046,22 @@ static void test_audit_allocation_failures(void **state)
 
 		textbook_matrix(fx.u, &c);
 		am = (struct audit_matrix){ &c, "cov.csv", NULL, 12, 1, 0, NULL };
-		assert_int_equal(moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
+		assert_int_equal(hc_moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
 		for (k = 0, rc = HC_ENOMEM; rc == HC_ENOMEM; k++) {
 			hc_alloc_fail_after(k);
-			rc = audit_run_matrix(&a, h, &am, &mo, &opt, &err);
+			rc = hc_audit_run_matrix(&a, h, &am, &mo, &opt, &err);
 			hc_alloc_fail_after(-1);
 			if (rc == HC_ENOMEM)
 				assert_null(a);
 			assert_true(k < 1000);
 		}
 		assert_int_equal(rc, HC_OK);
-		audit_result_free(a);
+		hc_audit_result_free(a);
 		free(c.a);
 	}
-	holdings_labels_free(l);
-	holdings_free(h);
-	universe_free(fx.u);
+	hc_holdings_labels_free(l);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
 }
 
 int main(void)

@@ -6,7 +6,7 @@
  *     resampled data, computed here in O(M^2 T) long double, for every
  *     replicate's v-bar and c-bar (design.md section 2);
  *   - the moments module's separate route on a universe rebuilt by
- *     universe_resample from the same indices;
+ *     hc_universe_resample from the same indices;
  *   - the definitions of the two schemes: Kuensch (1989), Annals of
  *     Statistics 17(3), blocks of L consecutive periods from starts in
  *     0..T-L; Politis & Romano (1994), Journal of the American Statistical
@@ -20,7 +20,7 @@
  *     covered; Efron & Tibshirani (1993), An Introduction to the Bootstrap,
  *     on percentile intervals (from memory);
  *   - the sampler for the universe return at N = M (every path then holds
- *     every security), and rules_band / rules_shortfall rebuilt step by step
+ *     every security), and hc_rules_band / hc_rules_shortfall rebuilt step by step
  *     for the sampled rules' interval.
  */
 #include <setjmp.h>
@@ -156,7 +156,7 @@ static void check_replicates_match_direct(size_t m, size_t t, int kind)
 	assert_non_null(x);
 	high_entropy_universe(m, t, 2385 + m + t, x);
 	u = make_universe(m, t, x);
-	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
 	assert_true(t <= m ? b->gram != NULL : b->gram == NULL);
 	for (rep = 0; rep < 6; rep++) {
 		double v1, c1, v2, c2;
@@ -165,9 +165,9 @@ static void check_replicates_match_direct(size_t m, size_t t, int kind)
 			for (k = 0; k < t; k++)
 				idx[k] = k;     /* the sample itself */
 		else
-			assert_int_equal(bootstrap_indices(kind, t, 3, 77, rep, idx, &err), HC_OK);
+			assert_int_equal(hc_bootstrap_indices(kind, t, 3, 77, rep, idx, &err), HC_OK);
 		counts_of(idx, t, w);
-		bootstrap_moments(b, w, &v1, &c1);
+		hc_bootstrap_moments(b, w, &v1, &c1);
 		direct_moments(x, m, t, idx, &v2, &c2);
 		/* 1e-10 relative: both are sums of O(MT) terms of similar size
 		 * in double precision, so agreement is near 1e-14; 1e-10 leaves
@@ -175,7 +175,7 @@ static void check_replicates_match_direct(size_t m, size_t t, int kind)
 		assert_close(v1, v2, 1e-10 * fabs(v2));
 		assert_close(c1, c2, 1e-10 * fabs(c2));
 	}
-	bootstrap_base_free(b);
+	hc_bootstrap_base_free(b);
 	free(x);
 	free(w);
 	free(idx);
@@ -197,11 +197,11 @@ static void test_bootstrap_default_block_length(void **state)
 {
 	/* round(T^(1/3)): 240^(1/3) = 6.214, 1000^(1/3) = 10, 91^(1/3) = 4.498,
 	 * 92^(1/3) = 4.514 (by hand) */
-	assert_int_equal(bootstrap_default_block_length(240), 6);
-	assert_int_equal(bootstrap_default_block_length(1000), 10);
-	assert_int_equal(bootstrap_default_block_length(91), 4);
-	assert_int_equal(bootstrap_default_block_length(92), 5);
-	assert_int_equal(bootstrap_default_block_length(2), 1);
+	assert_int_equal(hc_bootstrap_default_block_length(240), 6);
+	assert_int_equal(hc_bootstrap_default_block_length(1000), 10);
+	assert_int_equal(hc_bootstrap_default_block_length(91), 4);
+	assert_int_equal(hc_bootstrap_default_block_length(92), 5);
+	assert_int_equal(hc_bootstrap_default_block_length(2), 1);
 }
 
 static void test_bootstrap_block_indices_are_blocks(void **state)
@@ -211,7 +211,7 @@ static void test_bootstrap_block_indices_are_blocks(void **state)
 
 	/* Kuensch (1989): consecutive runs of L periods from starts 0..T-L;
 	 * the last block is cut to fit T. */
-	assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, t, l, 5, 3, idx, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_indices(BOOTSTRAP_BLOCK, t, l, 5, 3, idx, &err), HC_OK);
 	for (k = 0; k < t; k++) {
 		if (k % l == 0)
 			assert_true(idx[k] <= t - l);
@@ -230,7 +230,7 @@ static void test_bootstrap_stationary_mean_block_length(void **state)
 	 * sd sqrt(p(1-p)/79800) = 0.0013; a break can also land on the next
 	 * period (probability 1/T), which only hides a break.  4 sd: 0.0053. */
 	for (rep = 0; rep < 200; rep++) {
-		assert_int_equal(bootstrap_indices(BOOTSTRAP_STATIONARY, t, l, 11, rep, idx, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_indices(BOOTSTRAP_STATIONARY, t, l, 11, rep, idx, &err), HC_OK);
 		for (k = 1; k < t; k++) {
 			assert_true(idx[k] < t);
 			starts += idx[k] != (idx[k - 1] + 1) % t;
@@ -253,25 +253,25 @@ static void test_bootstrap_same_for_any_thread_count(void **state)
 
 	high_entropy_universe(m, t, 9, x);
 	u = make_universe(m, t, x);
-	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
 	for (kind = 0; kind < 2; kind++) {
-		bootstrap_options_init(&opt);
+		hc_bootstrap_options_init(&opt);
 		opt.replicates = 257;
 		opt.kind = kind;
 		opt.seed = 20240917;
 		opt.threads = 1;
-		assert_int_equal(bootstrap_run(&r1, b, &opt, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_run(&r1, b, &opt, &err), HC_OK);
 		opt.threads = 2;
-		assert_int_equal(bootstrap_run(&r2, b, &opt, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_run(&r2, b, &opt, &err), HC_OK);
 		assert_int_equal(r1->block_length, 4);   /* round(48^(1/3) = 3.634) */
 		assert_memory_equal(r1->vbar, r2->vbar, opt.replicates * sizeof(double));
 		assert_memory_equal(r1->cbar, r2->cbar, opt.replicates * sizeof(double));
 		/* and replicates differ from one another (the streams are not stuck) */
 		assert_true(r1->vbar[0] != r1->vbar[1]);
-		bootstrap_result_free(r1);
-		bootstrap_result_free(r2);
+		hc_bootstrap_result_free(r1);
+		hc_bootstrap_result_free(r2);
 	}
-	bootstrap_base_free(b);
+	hc_bootstrap_base_free(b);
 	free(x);
 }
 
@@ -287,27 +287,27 @@ static void test_bootstrap_errors(void **state)
 	struct hc_error err;
 
 	u.has_missing = 1;
-	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_EDATA);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_EDATA);
 	assert_null(b);
 	assert_non_null(strstr(err.message, "complete data"));
 	u = make_universe(1, 12, x);
-	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_EDATA);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_EDATA);
 	u = make_universe(3, 4, x);
-	assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, 4, 5, 1, 0, idx, &err), HC_EUSAGE);
+	assert_int_equal(hc_bootstrap_indices(BOOTSTRAP_BLOCK, 4, 5, 1, 0, idx, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "bad block length 5"));
-	assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, 4, 0, 1, 0, idx, &err), HC_EUSAGE);
-	assert_int_equal(bootstrap_indices(7, 4, 2, 1, 0, idx, &err), HC_EUSAGE);
-	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
-	bootstrap_options_init(&opt);
+	assert_int_equal(hc_bootstrap_indices(BOOTSTRAP_BLOCK, 4, 0, 1, 0, idx, &err), HC_EUSAGE);
+	assert_int_equal(hc_bootstrap_indices(7, 4, 2, 1, 0, idx, &err), HC_EUSAGE);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	hc_bootstrap_options_init(&opt);
 	opt.replicates = 0;
-	assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_bootstrap_run(&r, b, &opt, &err), HC_EUSAGE);
 	opt.replicates = 10;
 	opt.block_length = 9;
-	assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_bootstrap_run(&r, b, &opt, &err), HC_EUSAGE);
 	assert_null(r);
-	bootstrap_base_free(b);
-	bootstrap_base_free(NULL);
-	bootstrap_result_free(NULL);
+	hc_bootstrap_base_free(b);
+	hc_bootstrap_base_free(NULL);
+	hc_bootstrap_result_free(NULL);
 }
 
 static int stop_at_half(void *ctx, size_t done, size_t total)
@@ -325,14 +325,14 @@ static void test_bootstrap_progress_can_stop(void **state)
 	struct bootstrap_result *r = NULL;
 	struct hc_error err;
 
-	assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
-	bootstrap_options_init(&opt);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	hc_bootstrap_options_init(&opt);
 	opt.replicates = 40;
 	opt.threads = 1;
 	opt.progress = stop_at_half;
-	assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_EINTERRUPT);
+	assert_int_equal(hc_bootstrap_run(&r, b, &opt, &err), HC_EINTERRUPT);
 	assert_null(r);
-	bootstrap_base_free(b);
+	hc_bootstrap_base_free(b);
 }
 
 static void test_bootstrap_allocation_failures(void **state)
@@ -349,21 +349,21 @@ static void test_bootstrap_allocation_failures(void **state)
 
 	high_entropy_universe(m, t, 4, x);
 	u = make_universe(m, t, x);
-	bootstrap_options_init(&opt);
+	hc_bootstrap_options_init(&opt);
 	opt.replicates = 8;
 	opt.threads = 2;
 	for (k = 0; k < 64; k++) {
 		int s1, s2 = HC_ENOMEM;
 
 		hc_alloc_fail_after(k);
-		s1 = bootstrap_base_alloc(&b, &u, &err);
+		s1 = hc_bootstrap_base_alloc(&b, &u, &err);
 		if (s1 == HC_OK)
-			s2 = bootstrap_run(&r, b, &opt, &err);
+			s2 = hc_bootstrap_run(&r, b, &opt, &err);
 		hc_alloc_fail_after(-1);
-		bootstrap_base_free(b);
+		hc_bootstrap_base_free(b);
 		b = NULL;
 		if (s1 == HC_OK && s2 == HC_OK) {
-			bootstrap_result_free(r);
+			hc_bootstrap_result_free(r);
 			break;
 		}
 		assert_int_equal(s1 == HC_OK ? s2 : s1, HC_ENOMEM);
@@ -410,11 +410,11 @@ static void test_bootstrap_interval_covers_true_count(void **state)
 	}
 	vbar_true /= M;
 	cbar_true = sd_f * sd_f * (sum_b * sum_b - sum_b2) / ((double)M * (M - 1));
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	cfg.near_floor_x = 0.15;   /* true count 11, inside the universe of 30 */
-	assert_int_equal(rules_exact_count(&cfg, RULES_NEAR_FLOOR, vbar_true, cbar_true, M, 12, &true_count), 1);
+	assert_int_equal(hc_rules_exact_count(&cfg, RULES_NEAR_FLOOR, vbar_true, cbar_true, M, 12, &true_count), 1);
 	assert_true(true_count > 3 && true_count < M);
-	bootstrap_options_init(&opt);
+	hc_bootstrap_options_init(&opt);
 	opt.replicates = B;
 	opt.threads = 1;
 	for (trial = 0; trial < TRIALS; trial++) {
@@ -426,16 +426,16 @@ static void test_bootstrap_interval_covers_true_count(void **state)
 		one_factor(rng, M, T, beta, sd_f, sd_e, 0.0081, x);
 		u = make_universe(M, T, x);
 		opt.seed = 1000 + trial;
-		assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
-		assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_run(&r, b, &opt, &err), HC_OK);
 		res.rule = RULES_NEAR_FLOOR;
-		assert_int_equal(rules_bootstrap_exact(&cfg, r->vbar, r->cbar, B, M, 12, &res, 1, &err), HC_OK);
+		assert_int_equal(hc_rules_bootstrap_exact(&cfg, r->vbar, r->cbar, B, M, 12, &res, 1, &err), HC_OK);
 		/* a "not met" upper end (NaN) is an open interval */
 		if ((double)true_count >= res.count_p05 &&
 		    (isnan(res.count_p95) || (double)true_count <= res.count_p95))
 			covered++;
-		bootstrap_result_free(r);
-		bootstrap_base_free(b);
+		hc_bootstrap_result_free(r);
+		hc_bootstrap_base_free(b);
 	}
 	print_message("near-floor count %zu; interval covered it in %zu of %d trials\n",
 		      true_count, covered, TRIALS);
@@ -501,10 +501,10 @@ static size_t ar1_coverage(int kind, size_t block_length, double phi, size_t tri
 	}
 	vbar /= M;
 	cbar = var_f * (sum_b * sum_b - sum_b2) / ((double)M * (M - 1));
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	cfg.near_floor_x = 0.11;
-	assert_int_equal(rules_exact_count(&cfg, RULES_NEAR_FLOOR, vbar, cbar, M, 12, truth), 1);
-	bootstrap_options_init(&opt);
+	assert_int_equal(hc_rules_exact_count(&cfg, RULES_NEAR_FLOOR, vbar, cbar, M, 12, truth), 1);
+	hc_bootstrap_options_init(&opt);
 	opt.replicates = B;
 	opt.kind = kind;
 	opt.block_length = block_length;
@@ -518,15 +518,15 @@ static size_t ar1_coverage(int kind, size_t block_length, double phi, size_t tri
 		ar1_factor(rng, M, T, beta, sd_u, phi, sd_e, 0.0077, x);
 		u = make_universe(M, T, x);
 		opt.seed = 5000 + trial;
-		assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
-		assert_int_equal(bootstrap_run(&r, b, &opt, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_run(&r, b, &opt, &err), HC_OK);
 		res.rule = RULES_NEAR_FLOOR;
-		assert_int_equal(rules_bootstrap_exact(&cfg, r->vbar, r->cbar, B, M, 12, &res, 1, &err), HC_OK);
+		assert_int_equal(hc_rules_bootstrap_exact(&cfg, r->vbar, r->cbar, B, M, 12, &res, 1, &err), HC_OK);
 		if ((double)*truth >= res.count_p05 &&
 		    (isnan(res.count_p95) || (double)*truth <= res.count_p95))
 			covered++;
-		bootstrap_result_free(r);
-		bootstrap_base_free(b);
+		hc_bootstrap_result_free(r);
+		hc_bootstrap_base_free(b);
 	}
 	gsl_rng_free(rng);
 	free(x);
@@ -579,7 +579,7 @@ static void test_bootstrap_coverage_dependent_data(void **state)
 
 /* The replicate figures against the moments module (a separate
  * implementation: centred columns and the Gram or matrix route) run on the
- * universe that universe_resample builds from the same indices. */
+ * universe that hc_universe_resample builds from the same indices. */
 static void test_bootstrap_agrees_with_moments_module(void **state)
 {
 	struct universe *u = fixture_random_universe(23, 31, 2385), *ru = NULL;
@@ -590,18 +590,18 @@ static void test_bootstrap_agrees_with_moments_module(void **state)
 	double w[31], vbar, cbar;
 
 	assert_non_null(u);
-	assert_int_equal(bootstrap_base_alloc(&b, u, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, u, &err), HC_OK);
 	for (rep = 0; rep < 4; rep++) {
-		assert_int_equal(bootstrap_indices(rep % 2, 31, 4, 99, rep, idx, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_indices(rep % 2, 31, 4, 99, rep, idx, &err), HC_OK);
 		counts_of(idx, 31, w);
-		bootstrap_moments(b, w, &vbar, &cbar);
-		assert_int_equal(universe_resample(&ru, u, idx, 31, &err), HC_OK);
-		assert_int_equal(moments_from_universe(&mo, ru, &err), HC_OK);
+		hc_bootstrap_moments(b, w, &vbar, &cbar);
+		assert_int_equal(hc_universe_resample(&ru, u, idx, 31, &err), HC_OK);
+		assert_int_equal(hc_moments_from_universe(&mo, ru, &err), HC_OK);
 		assert_close(vbar, mo.average_variance, 1e-10 * mo.average_variance);
 		assert_close(cbar, mo.average_covariance, 1e-10 * fabs(mo.average_covariance));
-		universe_free(ru);
+		hc_universe_free(ru);
 	}
-	bootstrap_base_free(b);
+	hc_bootstrap_base_free(b);
 	fixture_free(u);
 }
 
@@ -628,17 +628,17 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 	memset(res2, 0, sizeof res2);
 	for (k = 0; k < M; k++)
 		sizes[k] = k + 1;
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	cfg.band_x = 0.6;            /* so that the band is met inside 14 */
 	cfg.shortfall_d = 0.04;
-	bootstrap_options_init(&bo);
+	hc_bootstrap_options_init(&bo);
 	bo.replicates = B;
 	bo.seed = 4321;
-	sampler_options_init(&so);
+	hc_sampler_options_init(&so);
 	so.paths = 150;
 	so.periods_per_year = 12;
 	so.threads = 1;
-	assert_int_equal(bootstrap_base_alloc(&b, u, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, u, &err), HC_OK);
 	for (rep = 0; rep < B; rep++) {
 		struct universe *ru = NULL;
 		struct sampler_result *sr = NULL;
@@ -646,30 +646,30 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 		struct rule_result rr;
 		double vbar, cbar, uret;
 
-		assert_int_equal(bootstrap_indices(BOOTSTRAP_BLOCK, T, bootstrap_default_block_length(T),
+		assert_int_equal(hc_bootstrap_indices(BOOTSTRAP_BLOCK, T, hc_bootstrap_default_block_length(T),
 						   bo.seed, rep, idx, &err), HC_OK);
 		counts_of(idx, T, w);
-		bootstrap_moments(b, w, &vbar, &cbar);
-		assert_int_equal(universe_resample(&ru, u, idx, T, &err), HC_OK);
-		s1.seed = rules_replicate_seed(bo.seed, rep);
+		hc_bootstrap_moments(b, w, &vbar, &cbar);
+		assert_int_equal(hc_universe_resample(&ru, u, idx, T, &err), HC_OK);
+		s1.seed = hc_rules_replicate_seed(bo.seed, rep);
 		s1.want_returns = 1;
-		assert_int_equal(sampler_run(&sr, ru, sizes, M, &s1, &err), HC_OK);
-		assert_int_equal(rules_band(&cfg, sr, cbar, 12, &rr, &err), HC_OK);
+		assert_int_equal(hc_sampler_run(&sr, ru, sizes, M, &s1, &err), HC_OK);
+		assert_int_equal(hc_rules_band(&cfg, sr, cbar, 12, &rr, &err), HC_OK);
 		band[rep] = rr.met ? rr.count : 0;
-		assert_int_equal(rules_universe_return(ru, 12, &uret, &err), HC_OK);
-		assert_int_equal(rules_shortfall(&cfg, sr, uret, &rr, &err), HC_OK);
+		assert_int_equal(hc_rules_universe_return(ru, 12, &uret, &err), HC_OK);
+		assert_int_equal(hc_rules_shortfall(&cfg, sr, uret, &rr, &err), HC_OK);
 		shortfall[rep] = rr.met ? rr.count : 0;
-		sampler_result_free(sr);
-		universe_free(ru);
+		hc_sampler_result_free(sr);
+		hc_universe_free(ru);
 	}
 	res[0].rule = RULES_BAND;
 	res[1].rule = RULES_SHORTFALL;
 	res[0].defined = res[1].defined = 1;
 	res[0].bootstrapped = res[1].bootstrapped = 0;
 	memcpy(res2, res, sizeof res);
-	assert_int_equal(rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res, 2, &err), HC_OK);
+	assert_int_equal(hc_rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res, 2, &err), HC_OK);
 	so.threads = 2;
-	assert_int_equal(rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res2, 2, &err), HC_OK);
+	assert_int_equal(hc_rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res2, 2, &err), HC_OK);
 	assert_memory_equal(res, res2, sizeof res);
 	/* 5 replicates: the percentiles are the order statistics ceil(5 q),
 	 * the 1st, 3rd and 5th smallest counts (numpy's inverted_cdf) */
@@ -679,20 +679,20 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 
 		for (k = 0; k < 2; k++) {
 			ref.rule = res[k].rule;
-			rules_set_interval(&ref, sets[k], B);
+			hc_rules_set_interval(&ref, sets[k], B);
 			assert_true(res[k].bootstrapped);
 			assert_int_equal(res[k].replicates, B);
 			assert_int_equal(res[k].replicates_met, ref.replicates_met);
 			assert_true(res[k].count_p50 == ref.count_p50 || (isnan(res[k].count_p50) && isnan(ref.count_p50)));
 			assert_true(res[k].count_p05 == ref.count_p05 || (isnan(res[k].count_p05) && isnan(ref.count_p05)));
 		}
-		/* rules_set_interval sorted band (not met last): the 3rd smallest
+		/* hc_rules_set_interval sorted band (not met last): the 3rd smallest
 		 * is the median */
 		if (band[2] != 0)
 			assert_close(res[0].count_p50, (double)band[2], 0);
 		print_message("band counts %zu %zu %zu %zu %zu\n", band[0], band[1], band[2], band[3], band[4]);
 	}
-	bootstrap_base_free(b);
+	hc_bootstrap_base_free(b);
 	fixture_free(u);
 }
 
@@ -710,16 +710,16 @@ static void test_bootstrap_universe_return_matches_sampler(void **state)
 	double uret;
 
 	assert_non_null(u);
-	sampler_options_init(&so);
+	hc_sampler_options_init(&so);
 	so.paths = 3;
 	so.want_returns = 1;
 	so.periods_per_year = 12;
 	so.threads = 1;
-	assert_int_equal(sampler_run(&sr, u, &size, 1, &so, &err), HC_OK);
-	assert_int_equal(rules_universe_return(u, 12, &uret, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&sr, u, &size, 1, &so, &err), HC_OK);
+	assert_int_equal(hc_rules_universe_return(u, 12, &uret, &err), HC_OK);
 	for (k = 0; k < 3; k++)
 		assert_close(sr->annual_return[k], uret, 1e-12);
-	sampler_result_free(sr);
+	hc_sampler_result_free(sr);
 	fixture_free(u);
 }
 

@@ -86,9 +86,9 @@ static struct universe *load_universe(const char *text, int missing)
 	struct universe *u;
 	struct hc_error err;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.missing = missing;
-	if (universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err) != HC_OK)
+	if (hc_universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err) != HC_OK)
 		fail_msg("%s", err.message);
 	return u;
 }
@@ -104,17 +104,17 @@ static void test_covmatrix_complete_against_numpy(void **state)
 	struct hc_error err;
 	size_t i;
 
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_OK);
 	assert_int_equal(c->m, 4);
 	assert_string_equal(c->ids[3], "D");
 	for (i = 0; i < 16; i++)
 		assert_close(c->a[i], NUMPY_COMPLETE[i], COV_TOL);
 	assert_true(c->a[1 * 4 + 2] == c->a[2 * 4 + 1]);   /* exactly symmetric */
-	assert_int_equal(covmatrix_find(c, "C"), 2);
-	assert_int_equal(covmatrix_find(c, "E"), -1);
-	covmatrix_free(c);
-	covmatrix_free(NULL);
-	universe_free(u);
+	assert_int_equal(hc_covmatrix_find(c, "C"), 2);
+	assert_int_equal(hc_covmatrix_find(c, "E"), -1);
+	hc_covmatrix_free(c);
+	hc_covmatrix_free(NULL);
+	hc_universe_free(u);
 }
 
 static void test_covmatrix_pairwise_against_numpy(void **state)
@@ -125,17 +125,17 @@ static void test_covmatrix_pairwise_against_numpy(void **state)
 	struct hc_error err;
 	size_t i;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.missing = UNIVERSE_MISSING_PAIRWISE;
 	o.min_coverage = 0.7;
-	assert_int_equal(universe_load_buffer(&u, "u.csv", GAPS, strlen(GAPS), &o, &err), HC_OK);
+	assert_int_equal(hc_universe_load_buffer(&u, "u.csv", GAPS, strlen(GAPS), &o, &err), HC_OK);
 	assert_int_equal(u->m, 4);
 	assert_int_equal(u->has_missing, 1);
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_OK);
 	for (i = 0; i < 16; i++)
 		assert_close(c->a[i], NUMPY_PAIRWISE[i], COV_TOL);
-	covmatrix_free(c);
-	universe_free(u);
+	hc_covmatrix_free(c);
+	hc_universe_free(u);
 }
 
 static void test_covmatrix_pairwise_too_few_common(void **state)
@@ -152,11 +152,11 @@ static void test_covmatrix_pairwise_too_few_common(void **state)
 	struct covmatrix *c = (struct covmatrix *)1;
 	struct hc_error err;
 
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_EDATA);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_EDATA);
 	assert_null(c);
 	assert_string_equal(err.message,
 		"u.csv: securities 'B' and 'C' have only 2 common periods; expected at least 3 for a pairwise covariance");
-	universe_free(u);
+	hc_universe_free(u);
 }
 
 static void test_covmatrix_repair_psd_against_numpy(void **state)
@@ -173,14 +173,14 @@ static void test_covmatrix_repair_psd_against_numpy(void **state)
 	size_t i;
 
 	gsl_set_error_handler_off();
-	assert_int_equal(covmatrix_repair_psd(a, 3, &changed, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_repair_psd(a, 3, &changed, &err), HC_OK);
 	assert_int_equal(changed, 1);
 	/* 1e-14 absolute on entries near 2.5: a symmetric eigensolver is
 	 * backward stable, error about m * eps * ||A|| (||A|| ~ 4.6) */
 	for (i = 0; i < 9; i++)
 		assert_close(a[i], ref[i], 1e-14);
 	memcpy(p, NUMPY_PAIRWISE, sizeof p);
-	assert_int_equal(covmatrix_repair_psd(p, 4, &changed, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_repair_psd(p, 4, &changed, &err), HC_OK);
 	assert_int_equal(changed, 1);
 	for (i = 0; i < 16; i++)
 		assert_close(p[i], NUMPY_PAIRWISE_PSD[i], 1e-17);   /* same reasoning, ||P|| ~ 1e-3 */
@@ -195,14 +195,14 @@ static void test_covmatrix_repair_psd_leaves_psd_alone(void **state)
 	/* np.cov of RETURNS is positive definite (numpy eigvalsh > 0): untouched, bit for bit */
 	memcpy(a, NUMPY_COMPLETE, sizeof a);
 	gsl_set_error_handler_off();
-	assert_int_equal(covmatrix_repair_psd(a, 4, &changed, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_repair_psd(a, 4, &changed, &err), HC_OK);
 	assert_int_equal(changed, 0);
 	assert_memory_equal(a, NUMPY_COMPLETE, sizeof a);
-	assert_int_equal(covmatrix_repair_psd(a, 0, &changed, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_repair_psd(a, 0, &changed, &err), HC_OK);
 	assert_int_equal(changed, 0);
 }
 
-/* covmatrix_nearest_psd: the same clipping into a separate matrix, and what
+/* hc_covmatrix_nearest_psd: the same clipping into a separate matrix, and what
  * it moved, against numpy (header).  Higham (1988) also gives the distance
  * in closed form: sqrt of the sum of the squared negative eigenvalues, here
  * |lambda_min| (one negative eigenvalue). */
@@ -219,8 +219,8 @@ static void test_covmatrix_nearest_psd_against_numpy(void **state)
 	size_t i;
 
 	gsl_set_error_handler_off();
-	assert_int_equal(covmatrix_nearest_psd(a, 3, b, &st, &err), HC_OK);
-	/* 1e-14 absolute, as for covmatrix_repair_psd above (||A|| ~ 5.8) */
+	assert_int_equal(hc_covmatrix_nearest_psd(a, 3, b, &st, &err), HC_OK);
+	/* 1e-14 absolute, as for hc_covmatrix_repair_psd above (||A|| ~ 5.8) */
 	for (i = 0; i < 9; i++)
 		assert_close(b[i], ref[i], 1e-14);
 	assert_int_equal(st.negative, 1);
@@ -230,7 +230,7 @@ static void test_covmatrix_nearest_psd_against_numpy(void **state)
 	assert_close(st.norm, 5.823084663646923, 1e-14);
 	assert_close(st.max_relative_move, 0.12732999379138407, 1e-14);
 
-	assert_int_equal(covmatrix_nearest_psd(NUMPY_PAIRWISE, 4, b, &st, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_nearest_psd(NUMPY_PAIRWISE, 4, b, &st, &err), HC_OK);
 	for (i = 0; i < 16; i++)
 		assert_close(b[i], NUMPY_PAIRWISE_PSD[i], 1e-17);   /* ||P|| ~ 1.2e-3 */
 	assert_int_equal(st.negative, 1);
@@ -240,12 +240,12 @@ static void test_covmatrix_nearest_psd_against_numpy(void **state)
 	assert_close(st.max_relative_move, 0.09787176705326077, 1e-13);
 
 	/* np.cov of RETURNS is positive definite: b is a's copy, bit for bit */
-	assert_int_equal(covmatrix_nearest_psd(NUMPY_COMPLETE, 4, b, &st, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_nearest_psd(NUMPY_COMPLETE, 4, b, &st, &err), HC_OK);
 	assert_memory_equal(b, NUMPY_COMPLETE, sizeof NUMPY_COMPLETE);
 	assert_int_equal(st.negative, 0);
 	assert_true(st.min_eigenvalue > 0);
 	assert_true(st.distance == 0 && st.max_relative_move == 0);
-	assert_int_equal(covmatrix_nearest_psd(a, 0, b, &st, &err), HC_EINTERNAL);
+	assert_int_equal(hc_covmatrix_nearest_psd(a, 0, b, &st, &err), HC_EINTERNAL);
 }
 
 static void test_covmatrix_min_eigenvalue(void **state)
@@ -255,14 +255,14 @@ static void test_covmatrix_min_eigenvalue(void **state)
 
 	gsl_set_error_handler_off();
 	/* numpy: np.linalg.eigvalsh(A)[0] = -0.7925555647440522; 1e-14 as for the repair */
-	assert_int_equal(covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_OK);
 	assert_close(lmin, -0.7925555647440522, 1e-14);
 	/* numpy: eigvalsh(NUMPY_PAIRWISE)[0] = -9.722332796231278e-05 */
-	assert_int_equal(covmatrix_min_eigenvalue(NUMPY_PAIRWISE, 4, &lmin, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_min_eigenvalue(NUMPY_PAIRWISE, 4, &lmin, &err), HC_OK);
 	assert_close(lmin, -9.722332796231278e-05, 1e-17);
-	assert_int_equal(covmatrix_min_eigenvalue(a, 0, &lmin, &err), HC_EINTERNAL);
+	assert_int_equal(hc_covmatrix_min_eigenvalue(a, 0, &lmin, &err), HC_EINTERNAL);
 	hc_alloc_fail_after(1);
-	assert_int_equal(covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_ENOMEM);
+	assert_int_equal(hc_covmatrix_min_eigenvalue(a, 3, &lmin, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
 }
 
@@ -277,7 +277,7 @@ static void test_covmatrix_load(void **state)
 	struct covmatrix *c;
 	struct hc_error err;
 
-	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
+	assert_int_equal(hc_covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
 					       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
 	assert_int_equal(c->m, 3);
 	assert_string_equal(c->ids[0], "A");
@@ -286,21 +286,21 @@ static void test_covmatrix_load(void **state)
 	/* within tolerance the triangles are averaged: (0.00012 + 0.000120000001)/2 */
 	assert_true(c->a[0 * 3 + 1] == c->a[1 * 3 + 0]);
 	assert_close(c->a[0 * 3 + 1], 0.0001200000005, 1e-19);
-	covmatrix_free(c);
+	hc_covmatrix_free(c);
 	/* exact symmetry demanded: line 3 column 2 holds B's entry for A */
-	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX), 0, &err), HC_EDATA);
+	assert_int_equal(hc_covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX), 0, &err), HC_EDATA);
 	assert_null(c);
 	assert_string_equal(err.message,
 		"cov.csv:3:2: covariance of 'B' and 'A' is 0.000120000001 here but 0.00012 on line 2, column 3; "
 		"expected a symmetric matrix (relative tolerance 0)");
-	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX), -1, &err), HC_EUSAGE);
+	assert_int_equal(hc_covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX), -1, &err), HC_EUSAGE);
 }
 
 static void expect_load_error(const char *text, const char *prefix)
 {
 	struct covmatrix *c = (struct covmatrix *)1;
 	struct hc_error err;
-	int rc = covmatrix_load_buffer(&c, "cov.csv", text, strlen(text),
+	int rc = hc_covmatrix_load_buffer(&c, "cov.csv", text, strlen(text),
 				       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err);
 
 	check_status_prefix(rc, HC_EDATA, err.message, prefix);
@@ -340,27 +340,27 @@ static void test_covmatrix_load_within_budget(void **state)
 	char *text;
 	size_t i, len = 0;
 
-	assert_int_equal(covmatrix_load_buffer_within(&c, "cov.csv", MATRIX, strlen(MATRIX),
+	assert_int_equal(hc_covmatrix_load_buffer_within(&c, "cov.csv", MATRIX, strlen(MATRIX),
 						      COVMATRIX_DEFAULT_SYMMETRY_TOL, 71, &err), HC_ENOMEM);
 	assert_null(c);
 	assert_string_equal(err.message,
 		"cov.csv: covariance matrix of 3 ids too large: needs at least 0.1 MiB, budget 0.0 MiB");
-	assert_int_equal(covmatrix_load_buffer_within(&c, "cov.csv", MATRIX, strlen(MATRIX),
+	assert_int_equal(hc_covmatrix_load_buffer_within(&c, "cov.csv", MATRIX, strlen(MATRIX),
 						      COVMATRIX_DEFAULT_SYMMETRY_TOL, 72, &err), HC_OK);
 	assert_int_equal(c->m, 3);
 	assert_int_equal(c->max_bytes, 72);
-	covmatrix_free(c);
-	assert_int_equal(covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
+	hc_covmatrix_free(c);
+	assert_int_equal(hc_covmatrix_load_buffer(&c, "cov.csv", MATRIX, strlen(MATRIX),
 					       COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
 	assert_int_equal(c->max_bytes, 0);
-	covmatrix_free(c);
+	hc_covmatrix_free(c);
 
 	text = malloc(40000 * 7 + 2);
 	assert_non_null(text);
 	text[len++] = ',';
 	for (i = 1; i <= 40000; i++)
 		len += (size_t)sprintf(text + len, i < 40000 ? "I%05zu," : "I%05zu\n", i);
-	assert_int_equal(covmatrix_load_buffer_within(&c, "big.csv", text, len,
+	assert_int_equal(hc_covmatrix_load_buffer_within(&c, "big.csv", text, len,
 						      COVMATRIX_DEFAULT_SYMMETRY_TOL, (size_t)64 << 20, &err), HC_ENOMEM);
 	assert_null(c);
 	assert_string_equal(err.message,
@@ -368,7 +368,7 @@ static void test_covmatrix_load_within_budget(void **state)
 	free(text);
 }
 
-/* covmatrix_from_universe keeps to the universe's budget: the 4 x 7
+/* hc_covmatrix_from_universe keeps to the universe's budget: the 4 x 7
  * returns (224 bytes held) need the 4 x 4 result and a centred copy
  * (128 + 224 bytes) when complete, and 3 x 128 + 2 x 224 bytes when
  * pairwise (covmatrix.h). */
@@ -379,20 +379,20 @@ static void test_covmatrix_from_universe_budget(void **state)
 	struct hc_error err;
 
 	u->max_bytes = 224 + 128 + 224 - 1;
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_ENOMEM);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_ENOMEM);
 	assert_null(c);
 	assert_string_equal(err.message,
 		"u.csv: universe too large for its covariance matrix: needs at least 0.1 MiB, budget 0.0 MiB");
 	u->max_bytes = 224 + 128 + 224;
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_OK);
 	assert_int_equal(c->max_bytes, 224 + 128 + 224);
-	covmatrix_free(c);
+	hc_covmatrix_free(c);
 	u->has_missing = 1;
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_ENOMEM);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_ENOMEM);
 	u->max_bytes = 224 + 3 * 128 + 2 * 224;
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
-	covmatrix_free(c);
-	universe_free(u);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_OK);
+	hc_covmatrix_free(c);
+	hc_universe_free(u);
 }
 
 static void test_covmatrix_load_file(void **state)
@@ -402,10 +402,10 @@ static void test_covmatrix_load_file(void **state)
 	struct hc_error err;
 
 	check_write_temp(path, sizeof path, "cov.csv", MATRIX);
-	assert_int_equal(covmatrix_load(&c, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_load(&c, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_OK);
 	assert_int_equal(c->m, 3);
-	covmatrix_free(c);
-	assert_int_equal(covmatrix_load(&c, "/nonexistent/cov.csv", COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_EIO);
+	hc_covmatrix_free(c);
+	assert_int_equal(hc_covmatrix_load(&c, "/nonexistent/cov.csv", COVMATRIX_DEFAULT_SYMMETRY_TOL, &err), HC_EIO);
 	assert_null(c);
 }
 
@@ -423,14 +423,14 @@ static int made_covmatrix(void *ctx, struct hc_error *err)
 	struct made *w = ctx;
 
 	if (w->from)
-		return covmatrix_from_universe(w->from, &w->c, err);
-	return covmatrix_load_buffer(&w->c, "cov.csv", MATRIX, strlen(MATRIX),
+		return hc_covmatrix_from_universe(w->from, &w->c, err);
+	return hc_covmatrix_load_buffer(&w->c, "cov.csv", MATRIX, strlen(MATRIX),
 				     COVMATRIX_DEFAULT_SYMMETRY_TOL, err);
 }
 
 static void made_release(void *ctx)
 {
-	covmatrix_free(((struct made *)ctx)->c);
+	hc_covmatrix_free(((struct made *)ctx)->c);
 }
 
 static void made_none(void *ctx)
@@ -444,7 +444,7 @@ static int made_repair(void *ctx, struct hc_error *err)
 	int changed;
 
 	memcpy(w->b, w->a, sizeof w->b);
-	return covmatrix_repair_psd(w->b, 3, &changed, err);
+	return hc_covmatrix_repair_psd(w->b, 3, &changed, err);
 }
 
 static int made_nearest(void *ctx, struct hc_error *err)
@@ -452,7 +452,7 @@ static int made_nearest(void *ctx, struct hc_error *err)
 	struct made *w = ctx;
 	struct covmatrix_psd st;
 
-	return covmatrix_nearest_psd(w->a, 3, w->b, &st, err);
+	return hc_covmatrix_nearest_psd(w->a, 3, w->b, &st, err);
 }
 
 static void made_untouched(void *ctx)
@@ -482,8 +482,8 @@ static void test_covmatrix_allocation_failure(void **state)
 	assert_int_equal(heapcheck_sweep(&repair), 3);
 	/* on failure b is a's copy, so a caller holding b still has a matrix */
 	assert_int_equal(heapcheck_sweep(&nearest), 3);
-	universe_free(u);
-	universe_free(g);
+	hc_universe_free(u);
+	hc_universe_free(g);
 }
 
 int main(int argc, char **argv)

@@ -78,9 +78,9 @@ static int run(struct got *g, const char *data, size_t len, char delim,
 
 	memset(g, 0, sizeof *g);
 	g->stop_at = -1;
-	csvread_options_init(&o);
+	hc_csvread_options_init(&o);
 	o.delimiter = delim;
-	return csvread_buffer("t.csv", data, len, &o, &h, used, err);
+	return hc_csvread_buffer("t.csv", data, len, &o, &h, used, err);
 }
 
 /* RFC 4180 section 2: quoted fields may contain the delimiter, CRLF and
@@ -238,9 +238,9 @@ static void test_csvread_field_too_long(void **state)
 	memset(&g, 0, sizeof g);
 	g.stop_at = -1;
 	h.ctx = &g;
-	csvread_options_init(&o);
+	hc_csvread_options_init(&o);
 	o.max_field = 8;
-	assert_int_equal(csvread_buffer("t.csv", data, sizeof data - 1, &o, &h, NULL, &err), HC_EDATA);
+	assert_int_equal(hc_csvread_buffer("t.csv", data, sizeof data - 1, &o, &h, NULL, &err), HC_EDATA);
 	assert_string_equal(err.message, "t.csv:2:2: field longer than 8 bytes");
 }
 
@@ -255,8 +255,8 @@ static void test_csvread_callback_stops(void **state)
 	memset(&g, 0, sizeof g);
 	g.stop_at = 3;
 	h.ctx = &g;
-	csvread_options_init(&o);
-	assert_int_equal(csvread_buffer("t.csv", data, sizeof data - 1, &o, &h, NULL, &err), HC_EDATA);
+	hc_csvread_options_init(&o);
+	assert_int_equal(hc_csvread_buffer("t.csv", data, sizeof data - 1, &o, &h, NULL, &err), HC_EDATA);
 	assert_string_equal(err.message, "stopped at field 3");
 	assert_int_equal(g.nf, 3);
 }
@@ -287,17 +287,17 @@ static void test_csvread_file_streams_across_chunks(void **state)
 	memset(&g, 0, sizeof g);
 	g.stop_at = -1;
 	h.ctx = &g;
-	csvread_options_init(&o);
-	assert_int_equal(csvread_file(path, &o, &h, &used, &err), HC_OK);
+	hc_csvread_options_init(&o);
+	assert_int_equal(hc_csvread_file(path, &o, &h, &used, &err), HC_OK);
 	assert_int_equal(used, ';');
 	assert_int_equal(g.nr, i + 2);
 	assert_int_equal(g.nf, 2 * (i + 2));
 	assert_string_equal(g.last_text, "a;b\nc;d");
 	assert_int_equal(g.last_line, i + 3);          /* header, i rows, then two lines */
 	assert_int_equal(g.last_rec_line, i + 3);
-	assert_int_equal(csvread_file("/nonexistent/dir/u.csv", &o, &h, NULL, &err), HC_EIO);
+	assert_int_equal(hc_csvread_file("/nonexistent/dir/u.csv", &o, &h, NULL, &err), HC_EIO);
 	assert_string_equal(err.message, "cannot open '/nonexistent/dir/u.csv': No such file or directory");
-	assert_int_equal(csvread_file(tmp, &o, &h, NULL, &err), HC_EIO);
+	assert_int_equal(hc_csvread_file(tmp, &o, &h, NULL, &err), HC_EIO);
 	assert_non_null(strstr(err.message, "cannot read '"));
 }
 
@@ -338,8 +338,8 @@ static void test_csvread_file_last_field_position(void **state)
 	fprintf(fp, "end,\"multi\r\nline\"\r\n");
 	lines += 2;
 	fclose(fp);
-	csvread_options_init(&o);
-	assert_int_equal(csvread_file(path, &o, &h, NULL, &err), HC_OK);
+	hc_csvread_options_init(&o);
+	assert_int_equal(hc_csvread_file(path, &o, &h, NULL, &err), HC_OK);
 	assert_string_equal(l.text, "multi\r\nline");
 	assert_int_equal(l.line, lines);
 	assert_int_equal(l.column, 2);
@@ -378,21 +378,21 @@ static void test_csvread_parse_number_accepts(void **state)
 	size_t i;
 
 	for (i = 0; i < sizeof ok / sizeof ok[0]; i++) {
-		assert_int_equal(csvread_parse_number(ok[i], strlen(ok[i]), &v, &pct), 0);
+		assert_int_equal(hc_csvread_parse_number(ok[i], strlen(ok[i]), &v, &pct), 0);
 		assert_true(v == strtod(ok[i], NULL));   /* bit-exact vs glibc strtod */
 		assert_int_equal(pct, 0);
 	}
 	/* "-0" is negative zero, as strtod gives. */
-	assert_int_equal(csvread_parse_number("-0", 2, &v, &pct), 0);
+	assert_int_equal(hc_csvread_parse_number("-0", 2, &v, &pct), 0);
 	assert_true(v == 0.0 && signbit(v));
 	/* A trailing '%' is exactly the decimal moved two places. */
-	assert_int_equal(csvread_parse_number("1.23%", 5, &v, &pct), 0);
+	assert_int_equal(hc_csvread_parse_number("1.23%", 5, &v, &pct), 0);
 	assert_int_equal(pct, 1);
 	assert_true(v == strtod("0.0123", NULL));
-	assert_int_equal(csvread_parse_number("-12.5 %", 7, &v, &pct), 0);
+	assert_int_equal(hc_csvread_parse_number("-12.5 %", 7, &v, &pct), 0);
 	assert_true(v == -0.125);
 	/* The length bounds the text: a digit past len is not read. */
-	assert_int_equal(csvread_parse_number("2.3859", 5, &v, &pct), 0);
+	assert_int_equal(hc_csvread_parse_number("2.3859", 5, &v, &pct), 0);
 	assert_true(v == strtod("2.385", NULL));
 }
 
@@ -414,7 +414,7 @@ static void test_csvread_parse_number_matches_strtod(void **state)
 		exp10 = (int)((s >> 3) % 40) - 20;
 		snprintf(buf, sizeof buf, "%s%lld.%.*de%d", (s & 1) ? "-" : "",
 			 mant % 1000, digits, (int)(mant % 1000000000), exp10);
-		assert_int_equal(csvread_parse_number(buf, strlen(buf), &v, &pct), 0);
+		assert_int_equal(hc_csvread_parse_number(buf, strlen(buf), &v, &pct), 0);
 		assert_true(v == strtod(buf, NULL));
 	}
 }
@@ -430,7 +430,7 @@ static void test_csvread_parse_number_rejects(void **state)
 	size_t i;
 
 	for (i = 0; i < sizeof bad / sizeof bad[0]; i++) {
-		assert_int_equal(csvread_parse_number(bad[i], strlen(bad[i]), &v, NULL), -1);
+		assert_int_equal(hc_csvread_parse_number(bad[i], strlen(bad[i]), &v, NULL), -1);
 		assert_true(v == 2.385);   /* untouched on failure */
 	}
 }
@@ -442,9 +442,9 @@ static void test_csvread_is_missing(void **state)
 	size_t i;
 
 	for (i = 0; i < sizeof yes / sizeof yes[0]; i++)
-		assert_int_equal(csvread_is_missing(yes[i], strlen(yes[i])), 1);
+		assert_int_equal(hc_csvread_is_missing(yes[i], strlen(yes[i])), 1);
 	for (i = 0; i < sizeof no / sizeof no[0]; i++)
-		assert_int_equal(csvread_is_missing(no[i], strlen(no[i])), 0);
+		assert_int_equal(hc_csvread_is_missing(no[i], strlen(no[i])), 0);
 }
 
 static void test_csvread_quote(void **state)
@@ -452,14 +452,14 @@ static void test_csvread_quote(void **state)
 	char buf[CSVREAD_QUOTE_BUF];
 	char long_cell[100];
 
-	assert_string_equal(csvread_quote("x\r\ny\tz\001", 7, buf), "x\\r\\ny\\tz?");
+	assert_string_equal(hc_csvread_quote("x\r\ny\tz\001", 7, buf), "x\\r\\ny\\tz?");
 	memset(long_cell, 'k', sizeof long_cell);
-	csvread_quote(long_cell, sizeof long_cell, buf);
+	hc_csvread_quote(long_cell, sizeof long_cell, buf);
 	assert_int_equal(strlen(buf), CSVREAD_QUOTE_MAX + 3);
 	assert_string_equal(buf + CSVREAD_QUOTE_MAX, "...");
 	/* the worst case fills the buffer exactly: every byte escaped, then "..." */
 	memset(long_cell, '\n', sizeof long_cell);
-	csvread_quote(long_cell, sizeof long_cell, buf);
+	hc_csvread_quote(long_cell, sizeof long_cell, buf);
 	assert_int_equal(strlen(buf), CSVREAD_QUOTE_BUF - 1);
 }
 
@@ -477,9 +477,9 @@ static void test_csvread_utf8_valid(void **state)
 	size_t i;
 
 	for (i = 0; i < sizeof good / sizeof good[0]; i++)
-		assert_int_equal(csvread_utf8_valid(good[i], strlen(good[i])), 1);
+		assert_int_equal(hc_csvread_utf8_valid(good[i], strlen(good[i])), 1);
 	for (i = 0; i < sizeof bad / sizeof bad[0]; i++)
-		assert_int_equal(csvread_utf8_valid(bad[i], strlen(bad[i])), 0);
+		assert_int_equal(hc_csvread_utf8_valid(bad[i], strlen(bad[i])), 0);
 }
 
 int main(int argc, char **argv)

@@ -98,20 +98,20 @@ static void check_enumeration(size_t m, size_t t, unsigned long seed, int route)
 	assert_non_null(u);
 	fixture_covariance(u, a);
 	enumerate(a, m, &e);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(mo.route, route);
 	for (n = 1; n <= m; n++) {
-		assert_close(curve_expected_variance(&mo, (double)n), (double)e.mean_var[n], 0, 1e-12);
-		assert_int_equal(curve_variance_sd(&mo, n, &sd, &err), HC_OK);
+		assert_close(hc_curve_expected_variance(&mo, (double)n), (double)e.mean_var[n], 0, 1e-12);
+		assert_int_equal(hc_curve_variance_sd(&mo, n, &sd, &err), HC_OK);
 		if (n == m)
 			assert_true(sd == 0.0); /* one subset: no spread at all */
 		else
 			assert_close(sd, sqrt((double)e.var_var[n]), 0, 1e-12);
-		assert_close(curve_expected_te2(&mo, (double)n), (double)e.mean_te2[n],
+		assert_close(hc_curve_expected_te2(&mo, (double)n), (double)e.mean_te2[n],
 			     (double)e.mean_te2[1], 1e-12);
 	}
 	/* At N = M the expectation is the equal-weight universe variance. */
-	assert_close(curve_expected_variance(&mo, (double)m), mo.universe_variance, 0, 1e-12);
+	assert_close(hc_curve_expected_variance(&mo, (double)m), mo.universe_variance, 0, 1e-12);
 	fixture_free(u);
 }
 
@@ -139,11 +139,11 @@ static void test_curve_tiny_universes(void **state)
 			for (j = 0; j < m; j++)
 				a[i * m + j] = a3[i * 3 + j];
 		enumerate(a, m, &e);
-		assert_int_equal(moments_from_matrix(&mo, a, m, &err), HC_OK);
+		assert_int_equal(hc_moments_from_matrix(&mo, a, m, &err), HC_OK);
 		for (n = 1; n <= m; n++) {
-			assert_int_equal(curve_variance_sd(&mo, n, &sd, &err), HC_OK);
+			assert_int_equal(hc_curve_variance_sd(&mo, n, &sd, &err), HC_OK);
 			assert_close(sd, sqrt((double)e.var_var[n]), 1e-18, 1e-12);
-			assert_close(curve_expected_variance(&mo, (double)n), (double)e.mean_var[n], 0, 1e-12);
+			assert_close(hc_curve_expected_variance(&mo, (double)n), (double)e.mean_var[n], 0, 1e-12);
 		}
 	}
 }
@@ -162,22 +162,22 @@ static void test_curve_published_tables(void **state)
 	struct curve *c;
 	struct hc_error err;
 
-	assert_int_equal(moments_from_summary(&mo, 46.619, 7.058, 0, &err), HC_OK);
-	assert_int_equal(curve_exact(&c, &mo, sizes, 3, 1.0, &err), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&mo, 46.619, 7.058, 0, &err), HC_OK);
+	assert_int_equal(hc_curve_exact(&c, &mo, sizes, 3, 1.0, &err), HC_OK);
 	assert_true(fabs(c->points[0].expected_variance - 46.619) < 0.002);
 	assert_true(fabs(c->points[1].expected_variance - 11.014) < 0.002);
 	assert_true(fabs(c->floor_variance - 7.058) < 0.002);
 	assert_true(fabs(c->points[2].expected_variance - 7.058) < 0.002);
 	assert_true(isnan(c->points[0].variance_sd)); /* summary: no spread */
 	assert_false(c->points[0].sampled);
-	curve_free(c);
+	hc_curve_free(c);
 
-	assert_int_equal(curve_exact(&c, &mo, sizes, 3, 52.0, &err), HC_OK);
+	assert_int_equal(hc_curve_exact(&c, &mo, sizes, 3, 52.0, &err), HC_OK);
 	assert_true(fabs(c->points[0].expected_sd - 49.236) < 0.002);
 	assert_true(fabs(c->points[1].expected_sd - 23.932) < 0.002);
 	assert_true(fabs(sqrt(c->floor_variance) - 19.158) < 0.002);
 	assert_true(c->m == 0 && c->periods_per_year == 52.0);
-	curve_free(c);
+	hc_curve_free(c);
 }
 
 /* Scaling: variance by P, sd by sqrt(P); the diversifiable share and the
@@ -191,8 +191,8 @@ static void test_curve_exact_columns_and_scaling(void **state)
 	double vbar = 0.00873, cbar = 0.00219, ev, sd;
 	size_t i;
 
-	assert_int_equal(moments_from_summary(&mo, vbar, cbar, 25, &err), HC_OK);
-	assert_int_equal(curve_exact(&c, &mo, sizes, 4, 12.0, &err), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&mo, vbar, cbar, 25, &err), HC_OK);
+	assert_int_equal(hc_curve_exact(&c, &mo, sizes, 4, 12.0, &err), HC_OK);
 	assert_int_equal(c->npoints, 4);
 	for (i = 0; i < 4; i++) {
 		double n = (double)sizes[i];
@@ -206,8 +206,8 @@ static void test_curve_exact_columns_and_scaling(void **state)
 	}
 	assert_true(c->points[3].expected_tracking_error == 0.0);
 	assert_close(c->universe_variance, 12 * (vbar / 25 + cbar * 24 / 25), 0, 1e-14);
-	curve_free(c);
-	assert_int_equal(curve_variance_sd(&mo, 3, &sd, &err), HC_EUSAGE);
+	hc_curve_free(c);
+	assert_int_equal(hc_curve_variance_sd(&mo, 3, &sd, &err), HC_EUSAGE);
 }
 
 /* Equivalent count inverts the expected-variance curve (to 1e-9); at or
@@ -220,13 +220,13 @@ static void test_curve_equivalent_count(void **state)
 	double n_eq;
 	size_t i;
 
-	assert_int_equal(moments_from_summary(&mo, 0.0612, 0.0094, 0, &err), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.0612, 0.0094, 0, &err), HC_OK);
 	for (i = 0; i < 4; i++) {
-		assert_int_equal(curve_equivalent_count(&mo, curve_expected_variance(&mo, ns[i]), &n_eq), 0);
+		assert_int_equal(hc_curve_equivalent_count(&mo, hc_curve_expected_variance(&mo, ns[i]), &n_eq), 0);
 		assert_close(n_eq, ns[i], 0, 1e-9);
 	}
-	assert_int_equal(curve_equivalent_count(&mo, 0.0094, &n_eq), -1);
-	assert_int_equal(curve_equivalent_count(&mo, 0.0031, &n_eq), -1);
+	assert_int_equal(hc_curve_equivalent_count(&mo, 0.0094, &n_eq), -1);
+	assert_int_equal(hc_curve_equivalent_count(&mo, 0.0031, &n_eq), -1);
 }
 
 static void test_curve_exact_rejects_bad_sizes(void **state)
@@ -237,20 +237,20 @@ static void test_curve_exact_rejects_bad_sizes(void **state)
 	struct hc_error err;
 	double sd;
 
-	assert_int_equal(moments_from_summary(&mo, 0.0412, 0.0101, 25, &err), HC_OK);
-	assert_int_equal(curve_exact(&c, &mo, big, 2, 12.0, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.0412, 0.0101, 25, &err), HC_OK);
+	assert_int_equal(hc_curve_exact(&c, &mo, big, 2, 12.0, &err), HC_EUSAGE);
 	assert_null(c);
 	assert_string_equal(err.message, "size 26 is larger than the 25 securities kept");
-	assert_int_equal(curve_exact(&c, &mo, zero, 1, 12.0, &err), HC_EUSAGE);
-	assert_int_equal(curve_exact(&c, &mo, big, 1, 0.0, &err), HC_EUSAGE);
-	assert_int_equal(curve_exact(&c, &mo, big, 1, NAN, &err), HC_EUSAGE);
+	assert_int_equal(hc_curve_exact(&c, &mo, zero, 1, 12.0, &err), HC_EUSAGE);
+	assert_int_equal(hc_curve_exact(&c, &mo, big, 1, 0.0, &err), HC_EUSAGE);
+	assert_int_equal(hc_curve_exact(&c, &mo, big, 1, NAN, &err), HC_EUSAGE);
 	{
 		const double a[4] = {0.0412, 0.0071, 0.0071, 0.0237};
-		assert_int_equal(moments_from_matrix(&mo, a, 2, &err), HC_OK);
-		assert_int_equal(curve_variance_sd(&mo, 3, &sd, &err), HC_EUSAGE);
-		assert_int_equal(curve_variance_sd(&mo, 0, &sd, &err), HC_EUSAGE);
+		assert_int_equal(hc_moments_from_matrix(&mo, a, 2, &err), HC_OK);
+		assert_int_equal(hc_curve_variance_sd(&mo, 3, &sd, &err), HC_EUSAGE);
+		assert_int_equal(hc_curve_variance_sd(&mo, 0, &sd, &err), HC_EUSAGE);
 	}
-	curve_free(NULL);
+	hc_curve_free(NULL);
 }
 
 static void expect_sizes(const char *text, size_t max, const size_t *want, size_t nwant)
@@ -258,7 +258,7 @@ static void expect_sizes(const char *text, size_t max, const size_t *want, size_
 	size_t *got, n, i;
 	struct hc_error err;
 
-	assert_int_equal(curve_parse_sizes(text, max, &got, &n, &err), HC_OK);
+	assert_int_equal(hc_curve_parse_sizes(text, max, &got, &n, &err), HC_OK);
 	assert_int_equal(n, nwant);
 	for (i = 0; i < n; i++)
 		assert_int_equal(got[i], want[i]);
@@ -270,7 +270,7 @@ static void expect_bad_sizes(const char *text, size_t max, int code, const char 
 	size_t *got = (size_t *)&max, n = 99;
 	struct hc_error err;
 
-	assert_int_equal(curve_parse_sizes(text, max, &got, &n, &err), code);
+	assert_int_equal(hc_curve_parse_sizes(text, max, &got, &n, &err), code);
 	assert_null(got);
 	assert_int_equal(n, 0);
 	assert_string_equal(err.message, message);
@@ -320,35 +320,35 @@ static void test_curve_default_sizes(void **state)
 	size_t *s, n, i;
 	struct hc_error err;
 
-	assert_int_equal(curve_default_sizes(1000, &s, &n, &err), HC_OK);
+	assert_int_equal(hc_curve_default_sizes(1000, &s, &n, &err), HC_OK);
 	assert_int_equal(n, sizeof g1000 / sizeof g1000[0]);
 	for (i = 0; i < n; i++)
 		assert_int_equal(s[i], g1000[i]);
 	hc_free(s);
-	assert_int_equal(curve_default_sizes(0, &s, &n, &err), HC_OK); /* unbounded: to 1000 */
+	assert_int_equal(hc_curve_default_sizes(0, &s, &n, &err), HC_OK); /* unbounded: to 1000 */
 	assert_int_equal(n, sizeof g1000 / sizeof g1000[0]);
 	assert_int_equal(s[n - 1], 1000);
 	hc_free(s);
-	assert_int_equal(curve_default_sizes(412, &s, &n, &err), HC_OK);
+	assert_int_equal(hc_curve_default_sizes(412, &s, &n, &err), HC_OK);
 	assert_int_equal(n, sizeof g412 / sizeof g412[0]);
 	for (i = 0; i < n; i++)
 		assert_int_equal(s[i], g412[i]);
 	hc_free(s);
-	assert_int_equal(curve_default_sizes(7, &s, &n, &err), HC_OK);
+	assert_int_equal(hc_curve_default_sizes(7, &s, &n, &err), HC_OK);
 	assert_int_equal(n, 7);
 	assert_int_equal(s[6], 7);
 	hc_free(s);
-	assert_int_equal(curve_default_sizes(11, &s, &n, &err), HC_OK);
+	assert_int_equal(hc_curve_default_sizes(11, &s, &n, &err), HC_OK);
 	assert_int_equal(n, 11);
 	assert_int_equal(s[10], 11);
 	hc_free(s);
 	hc_alloc_fail_after(0);
-	assert_int_equal(curve_default_sizes(11, &s, &n, &err), HC_ENOMEM);
+	assert_int_equal(hc_curve_default_sizes(11, &s, &n, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
 	assert_null(s);
 }
 
-/* (f) Allocation failures in curve_exact leave nothing behind: HC_ENOMEM,
+/* (f) Allocation failures in hc_curve_exact leave nothing behind: HC_ENOMEM,
  * no curve, the heap as it was (heapcheck.h). */
 struct made {
 	struct moments mo;
@@ -360,12 +360,12 @@ static int made_curve(void *ctx, struct hc_error *err)
 	static const size_t sizes[] = {1, 2, 3};
 	struct made *w = ctx;
 
-	return curve_exact(&w->c, &w->mo, sizes, 3, 12.0, err);
+	return hc_curve_exact(&w->c, &w->mo, sizes, 3, 12.0, err);
 }
 
 static void made_release(void *ctx)
 {
-	curve_free(((struct made *)ctx)->c);
+	hc_curve_free(((struct made *)ctx)->c);
 }
 
 static void made_none(void *ctx)
@@ -379,11 +379,11 @@ static void test_curve_allocation_failure(void **state)
 	struct heapcheck_call call = { made_curve, made_release, made_none, &w };
 	struct hc_error err;
 
-	assert_int_equal(moments_from_summary(&w.mo, 0.0412, 0.0101, 25, &err), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&w.mo, 0.0412, 0.0101, 25, &err), HC_OK);
 	assert_int_equal(heapcheck_sweep(&call), 2);
 }
 
-/* curve_report: the column contract of issue 2, in order, every cell the
+/* hc_curve_report: the column contract of issue 2, in order, every cell the
  * curve's own figure, sampled cells empty when not sampled; rendered by the
  * CSV writer, the header row is exactly the contract. */
 static const char *const contract =
@@ -407,13 +407,13 @@ static void test_curve_report_columns(void **state)
 	FILE *fp;
 
 	assert_non_null(u);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
-	assert_int_equal(curve_exact(&c, &mo, sizes, 3, 12.0, &err), HC_OK);
-	r = report_alloc();
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_curve_exact(&c, &mo, sizes, 3, 12.0, &err), HC_OK);
+	r = hc_report_alloc();
 	assert_non_null(r);
-	t = report_add_table(r, "curve", "risk by holding count");
+	t = hc_report_add_table(r, "curve", "risk by holding count");
 	assert_non_null(t);
-	assert_int_equal(curve_report(c, t), HC_OK);
+	assert_int_equal(hc_curve_report(c, t), HC_OK);
 	assert_int_equal(t->ncols, 13);
 	assert_int_equal(t->nrows, 3);
 	for (j = 0; j < t->ncols; j++) {
@@ -435,21 +435,21 @@ static void test_curve_report_columns(void **state)
 			assert_int_equal(row[j].kind, REPORT_NONE);
 	}
 	assert_int_equal(t->cells[2 * 13 + 4].kind, REPORT_REAL); /* TE is 0 at n = M */
-	assert_int_equal(curve_report(c, t), HC_EUSAGE);             /* columns already there */
-	report_free(r);
+	assert_int_equal(hc_curve_report(c, t), HC_EUSAGE);             /* columns already there */
+	hc_report_free(r);
 
 	/* Sampled: every cell filled except z at n = M (standard error 0). */
-	sampler_options_init(&opt);
+	hc_sampler_options_init(&opt);
 	opt.paths = 64;
 	opt.seed = 8;
 	opt.threads = 1;
-	assert_int_equal(sampler_run(&res, u, sizes, 3, &opt, &err), HC_OK);
-	assert_int_equal(sampler_summarise(c, res, &err), HC_OK);
-	r = report_alloc();
+	assert_int_equal(hc_sampler_run(&res, u, sizes, 3, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_summarise(c, res, &err), HC_OK);
+	r = hc_report_alloc();
 	assert_non_null(r);
-	t = report_add_table(r, "curve", NULL);
+	t = hc_report_add_table(r, "curve", NULL);
 	assert_non_null(t);
-	assert_int_equal(curve_report(c, t), HC_OK);
+	assert_int_equal(hc_curve_report(c, t), HC_OK);
 	assert_true(t->cells[0 * 13 + 6].real == c->points[0].sampled_mean_variance);
 	assert_true(t->cells[1 * 13 + 7].real == c->points[1].sampled_variance_se);
 	assert_true(t->cells[1 * 13 + 8].real == c->points[1].sampled_mean_sd);
@@ -460,35 +460,35 @@ static void test_curve_report_columns(void **state)
 	assert_int_equal(t->cells[2 * 13 + 12].kind, REPORT_NONE);
 	fp = open_memstream(&buf, &len);
 	assert_non_null(fp);
-	assert_int_equal(report_writer_csv->write(fp, r, &err), HC_OK);
+	assert_int_equal(hc_report_writer_csv->write(fp, r, &err), HC_OK);
 	fclose(fp);
 	assert_non_null(buf);
 	assert_int_equal(sscanf(buf, "%511[^\n]", line), 1);
 	assert_string_equal(line, contract);
 	free(buf);
-	report_free(r);
-	sampler_result_free(res);
+	hc_report_free(r);
+	hc_sampler_result_free(res);
 
 	/* Allocation failure while growing the table. */
 	{
 		long k;
 		int rc;
 		for (k = 0;; k++) {
-			r = report_alloc();
+			r = hc_report_alloc();
 			assert_non_null(r);
-			t = report_add_table(r, "curve", NULL);
+			t = hc_report_add_table(r, "curve", NULL);
 			assert_non_null(t);
 			hc_alloc_fail_after(k);
-			rc = curve_report(c, t);
+			rc = hc_curve_report(c, t);
 			hc_alloc_fail_after(-1);
-			report_free(r);
+			hc_report_free(r);
 			if (rc == HC_OK)
 				break;
 			assert_int_equal(rc, HC_ENOMEM);
 		}
 		assert_true(k >= 2);
 	}
-	curve_free(c);
+	hc_curve_free(c);
 	fixture_free(u);
 }
 

@@ -81,12 +81,12 @@ static void test_faults_universe_load_buffer(void **state)
 	long k;
 	int rc;
 
-	universe_options_init(&opt);
+	hc_universe_options_init(&opt);
 	for (k = 0; k < SWEEP_LIMIT; k++) {
 		u = NULL;
 		hc_error_clear(&err);
 		hc_alloc_fail_after(k);
-		rc = universe_load_buffer(&u, "faults.csv", universe_csv, sizeof universe_csv - 1, &opt, &err);
+		rc = hc_universe_load_buffer(&u, "faults.csv", universe_csv, sizeof universe_csv - 1, &opt, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -95,7 +95,7 @@ static void test_faults_universe_load_buffer(void **state)
 	assert_true(k > 0); /* loading allocates, so the sweep did test failures */
 	assert_true(k < SWEEP_LIMIT);
 	check_universe(u);
-	universe_free(u);
+	hc_universe_free(u);
 }
 
 static int count_field(void *ctx, const struct csvread_field *f, struct hc_error *err)
@@ -117,7 +117,7 @@ static void test_faults_csvread_buffer(void **state)
 		fields = 0;
 		hc_error_clear(&err);
 		hc_alloc_fail_after(k);
-		rc = csvread_buffer("faults.csv", universe_csv, sizeof universe_csv - 1, NULL, &h, NULL, &err);
+		rc = hc_csvread_buffer("faults.csv", universe_csv, sizeof universe_csv - 1, NULL, &h, NULL, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -143,12 +143,12 @@ static void test_faults_holdings_load_buffer(void **state)
 	long k;
 	int rc;
 
-	holdings_options_init(&opt);
+	hc_holdings_options_init(&opt);
 	for (k = 0; k < SWEEP_LIMIT; k++) {
 		h = NULL;
 		hc_error_clear(&err);
 		hc_alloc_fail_after(k);
-		rc = holdings_load_buffer(&h, "funds.csv", holdings_csv, sizeof holdings_csv - 1, &opt, &err);
+		rc = hc_holdings_load_buffer(&h, "funds.csv", holdings_csv, sizeof holdings_csv - 1, &opt, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -162,7 +162,7 @@ static void test_faults_holdings_load_buffer(void **state)
 	/* The weights in the text sum to exactly 1 per fund (0.35+0.40+0.25,
 	 * 0.60+0.40), so normalising leaves them within rounding: 1e-15. */
 	assert_float_equal(h->funds[1].h[0].weight, 0.60, 1e-15);
-	holdings_free(h);
+	hc_holdings_free(h);
 }
 
 static const char labels_csv[] =
@@ -179,7 +179,7 @@ static void test_faults_labels_load_buffer(void **state)
 		l = NULL;
 		hc_error_clear(&err);
 		hc_alloc_fail_after(k);
-		rc = holdings_labels_load_buffer(&l, "sectors.csv", labels_csv, sizeof labels_csv - 1, 0, &err);
+		rc = hc_holdings_labels_load_buffer(&l, "sectors.csv", labels_csv, sizeof labels_csv - 1, 0, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -187,8 +187,8 @@ static void test_faults_labels_load_buffer(void **state)
 	}
 	assert_true(k > 0 && k < SWEEP_LIMIT);
 	assert_int_equal(l->n, 3);
-	assert_string_equal(holdings_labels_find(l, "LIR902"), "Consumer, Staples");
-	holdings_labels_free(l);
+	assert_string_equal(hc_holdings_labels_find(l, "LIR902"), "Consumer, Staples");
+	hc_holdings_labels_free(l);
 }
 
 static void test_faults_curve_parse_sizes(void **state)
@@ -202,7 +202,7 @@ static void test_faults_curve_parse_sizes(void **state)
 		sizes = NULL;
 		hc_error_clear(&err);
 		hc_alloc_fail_after(k);
-		rc = curve_parse_sizes("40,1-3,12,3", 500, &sizes, &n, &err);
+		rc = hc_curve_parse_sizes("40,1-3,12,3", 500, &sizes, &n, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;

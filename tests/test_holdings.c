@@ -32,7 +32,7 @@ static int load(struct holdings **h, const char *text, const struct holdings_opt
 		struct hc_error *err)
 {
 	hc_error_clear(err);
-	return holdings_load_buffer(h, "f.csv", text, strlen(text), opt, err);
+	return hc_holdings_load_buffer(h, "f.csv", text, strlen(text), opt, err);
 }
 
 static void test_holdings_reads_weights_by_fund(void **state)
@@ -63,7 +63,7 @@ static void test_holdings_reads_weights_by_fund(void **state)
 	assert_int_equal(h->funds[1].n, 2);
 	assert_near(h->funds[1].h[1].weight, 0.75, 1e-15);
 	assert_int_equal(h->nwarnings, 0);
-	holdings_free(h);
+	hc_holdings_free(h);
 }
 
 static void test_holdings_normalises_values_and_reads_issuers(void **state)
@@ -87,7 +87,7 @@ static void test_holdings_normalises_values_and_reads_issuers(void **state)
 	assert_near(h->funds[0].h[2].weight, 0.5, 1e-15);
 	assert_string_equal(h->funds[0].h[1].issuer, "ISS-A");
 	assert_int_equal(h->nwarnings, 0);   /* values are not expected to sum to 1 */
-	holdings_free(h);
+	hc_holdings_free(h);
 }
 
 static void test_holdings_warns_and_normalises_off_sums(void **state)
@@ -115,7 +115,7 @@ static void test_holdings_warns_and_normalises_off_sums(void **state)
 	assert_int_equal(h->nwarnings, 2);
 	assert_non_null(strstr(h->warnings[0], "f.csv:2: fund 'Dogwood': weights sum to 0.9871"));
 	assert_non_null(strstr(h->warnings[1], "fund 'Elm': 1 row with zero weight"));
-	holdings_free(h);
+	hc_holdings_free(h);
 }
 
 static void test_holdings_column_names_by_option(void **state)
@@ -128,14 +128,14 @@ static void test_holdings_column_names_by_option(void **state)
 	struct holdings *h;
 	struct hc_error err;
 
-	holdings_options_init(&opt);
+	hc_holdings_options_init(&opt);
 	opt.fund_column = "portfolio";
 	opt.id_column = "ticker";
 	opt.value_column = "pct";
 	assert_int_equal(load(&h, text, &opt, &err), HC_OK);
 	assert_int_equal(h->kind, HOLDINGS_VALUES);
 	assert_near(h->funds[0].h[0].weight, 0.6, 1e-15);   /* 60/100 */
-	holdings_free(h);
+	hc_holdings_free(h);
 	opt.weight_column = "pct";
 	assert_int_equal(load(&h, text, &opt, &err), HC_EUSAGE);
 	assert_null(h);
@@ -151,11 +151,11 @@ static void test_holdings_short_positions(void **state)
 
 	assert_int_equal(load(&h, text, NULL, &err), HC_EDATA);
 	assert_string_equal(err.message, "f.csv:3:3: found negative weight '-0.3', expected zero or more (short positions need --allow-short)");
-	holdings_options_init(&opt);
+	hc_holdings_options_init(&opt);
 	opt.allow_short = 1;
 	assert_int_equal(load(&h, text, &opt, &err), HC_OK);
 	assert_near(h->funds[0].h[1].weight, -0.3, 1e-15);
-	holdings_free(h);
+	hc_holdings_free(h);
 	/* a net short fund cannot be normalised */
 	assert_int_equal(load(&h, "fund,id,weight\nHazel,QX1,0.2\nHazel,QX2,-0.45\n", &opt, &err), HC_EDATA);
 	assert_string_equal(err.message, "f.csv:2:3: fund 'Hazel' has a net weight of -0.25, expected a positive total");
@@ -222,7 +222,7 @@ static void made_holdings_release(void *ctx)
 	struct holdings *h = ((struct made *)ctx)->h;
 
 	assert_int_equal(h->nwarnings, 2);   /* the loaded result, once it loads */
-	holdings_free(h);
+	hc_holdings_free(h);
 }
 
 static void made_holdings_none(void *ctx)
@@ -243,7 +243,7 @@ static void test_holdings_allocation_failures(void **state)
 
 static int labels(struct holdings_labels **l, const char *text, struct hc_error *err)
 {
-	return holdings_labels_load_buffer(l, "s.csv", text, strlen(text), 0, err);
+	return hc_holdings_labels_load_buffer(l, "s.csv", text, strlen(text), 0, err);
 }
 
 static const char label_text[] = "id,sector\nQX3,Utilities\nQX1,Energy\n\"QX2\",\"Health, care\"\n";
@@ -255,7 +255,7 @@ static int made_labels(void *ctx, struct hc_error *err)
 
 static void made_labels_release(void *ctx)
 {
-	holdings_labels_free(((struct made *)ctx)->l);
+	hc_holdings_labels_free(((struct made *)ctx)->l);
 }
 
 static void test_holdings_labels_map(void **state)
@@ -266,12 +266,12 @@ static void test_holdings_labels_map(void **state)
 	struct made w = { NULL, NULL };
 	struct heapcheck_call call = { made_labels, made_labels_release, NULL, &w };
 
-	assert_int_equal(holdings_labels_load_buffer(&l, "s.csv", text, strlen(text), 0, &err), HC_OK);
+	assert_int_equal(hc_holdings_labels_load_buffer(&l, "s.csv", text, strlen(text), 0, &err), HC_OK);
 	assert_int_equal(l->n, 3);
-	assert_string_equal(holdings_labels_find(l, "QX2"), "Health, care");
-	assert_string_equal(holdings_labels_find(l, "QX3"), "Utilities");
-	assert_null(holdings_labels_find(l, "QX4"));
-	holdings_labels_free(l);
+	assert_string_equal(hc_holdings_labels_find(l, "QX2"), "Health, care");
+	assert_string_equal(hc_holdings_labels_find(l, "QX3"), "Utilities");
+	assert_null(hc_holdings_labels_find(l, "QX4"));
+	hc_holdings_labels_free(l);
 	assert_int_equal(labels(&l, "id,sector\nQX1,A\nQX2,B\nQX1,C\n", &err), HC_EDATA);
 	assert_string_equal(err.message, "s.csv:4:1: duplicate id 'QX1' (also at line 2), expected each id once");
 	assert_int_equal(labels(&l, "id,sector\nQX1,\n", &err), HC_EDATA);

@@ -78,7 +78,7 @@ static void check_against_reference(const struct moments *mo, const double *a, s
 	assert_close(mo->universe_variance, (ref[0] + ref[1]) / ((double)m * m), ref[0] / m, rel);
 }
 
-/* (b) The route moments_from_universe picks for an m x t fixture, against
+/* (b) The route hc_moments_from_universe picks for an m x t fixture, against
  * the two-pass reference covariance; both double-precision routes agree
  * with it to 1e-10 (the sums' rounding is about 1e-15 relative; 1e-10
  * leaves room for the Q = ||A||^2 - S step). */
@@ -92,7 +92,7 @@ static void check_route_against_reference(size_t m, size_t t, unsigned long seed
 	assert_non_null(u);
 	assert_non_null(a);
 	fixture_covariance(u, a);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(mo.route, route);
 	assert_int_equal(mo.m, m);
 	assert_int_equal(mo.t, t);
@@ -134,8 +134,8 @@ static void check_routes_agree(size_t m, size_t t, unsigned long seed)
 	struct hc_error err;
 
 	assert_non_null(u);
-	assert_int_equal(moments_from_universe_route(&mg, u, MOMENTS_ROUTE_GRAM, &err), HC_OK);
-	assert_int_equal(moments_from_universe_route(&mm, u, MOMENTS_ROUTE_MATRIX, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe_route(&mg, u, MOMENTS_ROUTE_GRAM, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe_route(&mm, u, MOMENTS_ROUTE_MATRIX, &err), HC_OK);
 	assert_int_equal(mg.route, MOMENTS_ROUTE_GRAM);
 	assert_int_equal(mm.route, MOMENTS_ROUTE_MATRIX);
 	assert_close(mg.sum_var, mm.sum_var, mm.sum_var, 1e-10);
@@ -146,9 +146,9 @@ static void check_routes_agree(size_t m, size_t t, unsigned long seed)
 	assert_close(mg.sum_rowcov2, mm.sum_rowcov2, mm.sum_var2, 1e-10);
 	assert_close(mg.average_correlation, mm.average_correlation, 1.0, 1e-10);
 	assert_close(mg.universe_variance, mm.universe_variance, mm.average_variance, 1e-10);
-	assert_int_equal(moments_from_universe_route(&mm, u, 17, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_universe_route(&mm, u, 17, &err), HC_EUSAGE);
 	u->has_missing = 1;
-	assert_int_equal(moments_from_universe_route(&mm, u, MOMENTS_ROUTE_GRAM, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_universe_route(&mm, u, MOMENTS_ROUTE_GRAM, &err), HC_EUSAGE);
 	fixture_free(u);
 }
 
@@ -168,7 +168,7 @@ static void test_moments_from_matrix_hand_worked(void **state)
 	struct moments mo;
 	struct hc_error err;
 
-	assert_int_equal(moments_from_matrix(&mo, a, 3, &err), HC_OK);
+	assert_int_equal(hc_moments_from_matrix(&mo, a, 3, &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_GIVEN);
 	assert_close(mo.sum_var, 0.1925, 1, 1e-15);
 	assert_close(mo.sum_cov, 0.032, 1, 1e-15);
@@ -197,7 +197,7 @@ static void test_moments_pairwise_route(void **state)
 	assert_non_null(u);
 	u->has_missing = 1; /* forces the pairwise route on complete data */
 	fixture_covariance(u, a9);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_PAIRWISE);
 	check_against_reference(&mo, a9, m, 1e-12);
 	fixture_free(u);
@@ -223,8 +223,8 @@ static void test_moments_pairwise_route(void **state)
 					? a8[i * m + j] / sqrt(a8[i * m + i] * a8[j * m + j])
 					: a9[i * m + j] / sqrt(a9[i * m + i] * a9[j * m + j]);
 		}
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
-	assert_int_equal(moments_from_matrix(&ref, a, m, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_moments_from_matrix(&ref, a, m, &err), HC_OK);
 	assert_close(mo.sum_var, ref.sum_var, ref.sum_var, 1e-12);
 	assert_close(mo.sum_cov, ref.sum_cov, ref.sum_var, 1e-12);
 	assert_close(mo.sum_cov2, ref.sum_cov2, ref.sum_var2, 1e-12);
@@ -240,14 +240,14 @@ static void test_moments_from_summary(void **state)
 	struct hc_error err;
 
 	/* Elton & Gruber (1977) averages (from memory, design.md section 11). */
-	assert_int_equal(moments_from_summary(&mo, 46.619, 7.058, 0, &err), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&mo, 46.619, 7.058, 0, &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_SUMMARY);
 	assert_int_equal(mo.m, 0);
 	assert_false(mo.has_spread);
 	assert_false(mo.has_correlation);
 	assert_close(mo.universe_variance, 7.058, 1, 1e-15);
 	assert_close(mo.average_correlation, 7.058 / 46.619, 1, 1e-15);
-	assert_int_equal(moments_from_summary(&mo, 0.0385, 0.0071, 412, &err), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.0385, 0.0071, 412, &err), HC_OK);
 	assert_close(mo.sum_var, 0.0385 * 412, 1, 1e-15);
 	assert_close(mo.sum_cov, 0.0071 * 412 * 411, 1, 1e-14);
 	assert_close(mo.universe_variance, 0.0385 / 412 + 0.0071 * 411 / 412, 1, 1e-14);
@@ -258,16 +258,16 @@ static void test_moments_summary_rejects_impossible(void **state)
 	struct moments mo;
 	struct hc_error err;
 
-	assert_int_equal(moments_from_summary(&mo, -0.02, 0.01, 0, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_summary(&mo, -0.02, 0.01, 0, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "not a positive number"));
-	assert_int_equal(moments_from_summary(&mo, 0.02, 0.03, 0, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.02, 0.03, 0, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "at most the average variance"));
-	assert_int_equal(moments_from_summary(&mo, 0.02, NAN, 10, &err), HC_EUSAGE);
-	assert_int_equal(moments_from_summary(&mo, 0.02, 0.01, 1, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.02, NAN, 10, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.02, 0.01, 1, &err), HC_EUSAGE);
 	/* cbar >= -vbar/(M-1) for a positive semi-definite equicorrelated matrix. */
-	assert_int_equal(moments_from_summary(&mo, 0.02, -0.011, 3, &err), HC_EUSAGE);
-	assert_int_equal(moments_from_summary(&mo, 0.02, -0.009, 3, &err), HC_OK);
-	assert_int_equal(moments_from_summary(&mo, 0.02, -0.001, 0, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.02, -0.011, 3, &err), HC_EUSAGE);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.02, -0.009, 3, &err), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&mo, 0.02, -0.001, 0, &err), HC_EUSAGE);
 }
 
 static void test_moments_rejects_bad_data(void **state)
@@ -285,22 +285,22 @@ static void test_moments_rejects_bad_data(void **state)
 		x[1 * 5 + k] = 0.0137; /* S02 constant */
 	u = fixture_universe(x, 3, 5);
 	assert_non_null(u);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_EDATA);
 	assert_string_equal(err.message, "security 'S02' has zero variance");
 	u->has_missing = 1;
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_EDATA);
 	assert_string_equal(err.message, "security 'S02' has zero variance");
 	u->has_missing = 0;
 	u->m = 1;
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_EDATA);
 	assert_non_null(strstr(err.message, "expected at least 2"));
 	u->m = 3;
 	fixture_free(u);
-	assert_int_equal(moments_from_matrix(&mo, bad, 2, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_matrix(&mo, bad, 2, &err), HC_EDATA);
 	assert_non_null(strstr(err.message, "variance of security 2 is 0"));
-	assert_int_equal(moments_from_matrix(&mo, inf, 2, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_matrix(&mo, inf, 2, &err), HC_EDATA);
 	assert_non_null(strstr(err.message, "not a finite number"));
-	assert_int_equal(moments_from_matrix(&mo, bad, 1, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_matrix(&mo, bad, 1, &err), HC_EDATA);
 
 	/* Pairwise: a security with a single observation. */
 	fixture_returns(x, 3, 5, 12);
@@ -308,7 +308,7 @@ static void test_moments_rejects_bad_data(void **state)
 		x[2 * 5 + k] = NAN;
 	u = fixture_universe(x, 3, 5);
 	assert_non_null(u);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_EDATA);
 	assert_string_equal(err.message, "fixture: security 'S03' has only 1 period; expected at least 3 for a covariance");
 	fixture_free(u);
 }
@@ -323,7 +323,7 @@ static void check_alloc_failures(struct universe *u)
 
 	for (k = 0;; k++) {
 		hc_alloc_fail_after(k);
-		rc = moments_from_universe(&mo, u, &err);
+		rc = hc_moments_from_universe(&mo, u, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -347,7 +347,7 @@ static void test_moments_allocation_failure(void **state)
 	fixture_free(m);
 }
 
-/* moments_covariance: the full matrix against the textbook two-pass
+/* hc_moments_covariance: the full matrix against the textbook two-pass
  * covariance (complete data), and pairwise entries against the covariance
  * of the overlapping periods (a security with a gap). */
 static void test_moments_covariance_matrix(void **state)
@@ -361,7 +361,7 @@ static void test_moments_covariance_matrix(void **state)
 	u = fixture_universe(x, m, t);
 	assert_non_null(u);
 	fixture_covariance(u, ref);
-	assert_int_equal(moments_covariance(u, &a, &err), HC_OK);
+	assert_int_equal(hc_moments_covariance(u, &a, &err), HC_OK);
 	for (i = 0; i < m * m; i++)
 		assert_close(a[i], ref[i], ref[0], 1e-12);
 	hc_free(a);
@@ -378,7 +378,7 @@ static void test_moments_covariance_matrix(void **state)
 	x[4 * t + 7] = NAN;
 	u = fixture_universe(x, m, t);
 	assert_non_null(u);
-	assert_int_equal(moments_covariance(u, &a, &err), HC_OK);
+	assert_int_equal(hc_moments_covariance(u, &a, &err), HC_OK);
 	for (i = 0; i < m; i++)
 		for (j = 0; j < m; j++)
 			assert_close(a[i * m + j], (i == 4 || j == 4) ? ref10[i * m + j] : ref[i * m + j],
@@ -387,18 +387,18 @@ static void test_moments_covariance_matrix(void **state)
 
 	a = (double *)&err;
 	hc_alloc_fail_after(0);
-	assert_int_equal(moments_covariance(u, &a, &err), HC_ENOMEM);
+	assert_int_equal(hc_moments_covariance(u, &a, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
 	assert_null(a);
 	u->has_missing = 0;
 	for (k = 0; k < 2; k++) {
 		hc_alloc_fail_after((long)k);
-		assert_int_equal(moments_covariance(u10, &a, &err), HC_ENOMEM);
+		assert_int_equal(hc_moments_covariance(u10, &a, &err), HC_ENOMEM);
 		hc_alloc_fail_after(-1);
 		assert_null(a);
 	}
 	u->m = 1;
-	assert_int_equal(moments_covariance(u, &a, &err), HC_EDATA);
+	assert_int_equal(hc_moments_covariance(u, &a, &err), HC_EDATA);
 	u->m = m;
 	fixture_free(u);
 	fixture_free(u10);
@@ -413,12 +413,12 @@ static void expect_budget(struct universe *u, int route, size_t bytes)
 	struct hc_error err;
 
 	u->max_bytes = bytes - 1;
-	assert_int_equal(moments_from_universe_route(&mo, u, route, &err), HC_ENOMEM);
+	assert_int_equal(hc_moments_from_universe_route(&mo, u, route, &err), HC_ENOMEM);
 	assert_int_equal(mo.m, 0);
 	assert_memory_equal(err.message, "fixture: universe too large for its covariances: needs at least 0.1 MiB, budget 0.0 MiB",
 			    sizeof "fixture: universe too large for its covariances: needs at least 0.1 MiB, budget 0.0 MiB");
 	u->max_bytes = bytes;
-	assert_int_equal(moments_from_universe_route(&mo, u, route, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe_route(&mo, u, route, &err), HC_OK);
 	u->max_bytes = 0;
 }
 
@@ -427,7 +427,7 @@ static void expect_budget(struct universe *u, int route, size_t bytes)
  *     min(23, MOMENTS_BLOCK_ROWS) = 23 rows of 23, v 23 doubles, r 23 long doubles;
  *   Gram, 37 x 13: held 37*13, centred copy 37*13, Gram 13*13, two 13-vectors;
  *   pairwise, 23 x 61: held 23*61, the 23 x 23 matrix;
- *   moments_covariance, 23 x 61 complete: held, centred copy, 23 x 23. */
+ *   hc_moments_covariance, 23 x 61 complete: held, centred copy, 23 x 23. */
 static void test_moments_memory_budget(void **state)
 {
 	struct universe *a = fixture_random_universe(23, 61, 7741);
@@ -443,11 +443,11 @@ static void test_moments_memory_budget(void **state)
 	expect_budget(a, MOMENTS_ROUTE_PAIRWISE, 8 * (23 * 61 + 23 * 23));
 	a->has_missing = 0;
 	a->max_bytes = 8 * (23 * 61 * 2 + 23 * 23) - 1;
-	assert_int_equal(moments_covariance(a, &cov, &err), HC_ENOMEM);
+	assert_int_equal(hc_moments_covariance(a, &cov, &err), HC_ENOMEM);
 	assert_null(cov);
 	assert_memory_equal(err.message, "fixture: universe too large for its covariance matrix: ", 55);
 	a->max_bytes = 8 * (23 * 61 * 2 + 23 * 23);
-	assert_int_equal(moments_covariance(a, &cov, &err), HC_OK);
+	assert_int_equal(hc_moments_covariance(a, &cov, &err), HC_OK);
 	hc_free(cov);
 	fixture_free(a);
 	fixture_free(g);
@@ -457,7 +457,7 @@ static void test_moments_memory_budget(void **state)
  * One minimum of common periods for every pairwise computation: 3, the
  * contract of docs/formats.md ("a pair with fewer than 3 common periods is
  * an error naming the pair").  B and C below share exactly 2 periods: the
- * pairwise route of moments_from_universe and covmatrix_from_universe
+ * pairwise route of hc_moments_from_universe and hc_covmatrix_from_universe
  * refuse them with the same message.  One more row gives them 3, and then
  * both accept, with the covariance numpy gives for those three periods.
  */
@@ -482,31 +482,31 @@ static void test_moments_pairwise_minimum_periods(void **state)
 	struct hc_error err;
 	double *a;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.missing = UNIVERSE_MISSING_KEEP;
-	assert_int_equal(universe_load_buffer(&u, "u.csv", two, strlen(two), &o, &err), HC_OK);
+	assert_int_equal(hc_universe_load_buffer(&u, "u.csv", two, strlen(two), &o, &err), HC_OK);
 	assert_int_equal(u->has_missing, 1);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_EDATA);
 	assert_string_equal(err.message, want);
-	assert_int_equal(moments_covariance(u, &a, &err), HC_EDATA);
+	assert_int_equal(hc_moments_covariance(u, &a, &err), HC_EDATA);
 	assert_string_equal(err.message, want);
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_EDATA);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_EDATA);
 	assert_string_equal(err.message, want);
-	universe_free(u);
+	hc_universe_free(u);
 
 	snprintf(text, sizeof text, "%s%s", two, three_row);
-	assert_int_equal(universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err), HC_OK);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_PAIRWISE);
-	assert_int_equal(moments_covariance(u, &a, &err), HC_OK);
-	assert_int_equal(covmatrix_from_universe(u, &c, &err), HC_OK);
+	assert_int_equal(hc_moments_covariance(u, &a, &err), HC_OK);
+	assert_int_equal(hc_covmatrix_from_universe(u, &c, &err), HC_OK);
 	/* numpy.cov([0.0077, 0.0148, -0.0126], [-0.0319, 0.0089, 0.0207])[0, 1]
 	 * = -0.00018357 (numpy 1.24); the two routines round differently. */
 	assert_close(a[1 * 3 + 2], -0.00018357, 1e-4, 1e-12);
 	assert_close(c->a[1 * 3 + 2], -0.00018357, 1e-4, 1e-12);
 	hc_free(a);
-	covmatrix_free(c);
-	universe_free(u);
+	hc_covmatrix_free(c);
+	hc_universe_free(u);
 }
 
 int main(void)

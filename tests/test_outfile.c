@@ -93,18 +93,18 @@ static void test_outfile_commit_replaces(void **state)
 	make_dir(state);
 	snprintf(path, sizeof path, "%s/curve.csv", dir);
 	write_plain(path, "old\n");
-	assert_int_equal(outfile_open(&of, path, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, path, &err), HC_OK);
 	/* The temporary sits beside the target, and is the pending name. */
-	assert_non_null(outfile_pending());
-	assert_string_equal(outfile_pending(), of.tmp);
+	assert_non_null(hc_outfile_pending());
+	assert_string_equal(hc_outfile_pending(), of.tmp);
 	assert_int_equal(strncmp(of.tmp, dir, strlen(dir)), 0);
 	assert_non_null(strstr(of.tmp, "/.curve.csv.tmp-"));
 	fputs("n,expected_sd\n1,0.2385\n", of.fp);
 	/* Until commit the old content is what readers see. */
 	slurp(path, buf, sizeof buf);
 	assert_string_equal(buf, "old\n");
-	assert_int_equal(outfile_commit(&of, &err), HC_OK);
-	assert_null(outfile_pending());
+	assert_int_equal(hc_outfile_commit(&of, &err), HC_OK);
+	assert_null(hc_outfile_pending());
 	slurp(path, buf, sizeof buf);
 	assert_string_equal(buf, "n,expected_sd\n1,0.2385\n");
 	assert_int_equal(entries(), 1); /* no temporary left behind */
@@ -122,9 +122,9 @@ static void test_outfile_new_file_mode(void **state)
 
 	make_dir(state);
 	snprintf(path, sizeof path, "%s/new.json", dir);
-	assert_int_equal(outfile_open(&of, path, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, path, &err), HC_OK);
 	fputs("{}\n", of.fp);
-	assert_int_equal(outfile_commit(&of, &err), HC_OK);
+	assert_int_equal(hc_outfile_commit(&of, &err), HC_OK);
 	assert_int_equal(stat(path, &st), 0);
 	assert_int_equal(st.st_mode & 0777, 0644);
 	umask(old);
@@ -140,10 +140,10 @@ static void test_outfile_abort_keeps_old(void **state)
 	make_dir(state);
 	snprintf(path, sizeof path, "%s/table.txt", dir);
 	write_plain(path, "earlier run\n");
-	assert_int_equal(outfile_open(&of, path, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, path, &err), HC_OK);
 	fputs("half of a new", of.fp);
-	outfile_abort(&of);
-	assert_null(outfile_pending());
+	hc_outfile_abort(&of);
+	assert_null(hc_outfile_pending());
 	slurp(path, buf, sizeof buf);
 	assert_string_equal(buf, "earlier run\n");
 	assert_int_equal(entries(), 1);
@@ -162,15 +162,15 @@ static void test_outfile_failed_commit_leaves_target(void **state)
 	make_dir(state);
 	snprintf(path, sizeof path, "%s/busy", dir);
 	assert_int_equal(mkdir(path, 0755), 0);
-	assert_int_equal(outfile_open(&of, path, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, path, &err), HC_OK);
 	fputs("data\n", of.fp);
 	hc_error_clear(&err);
-	assert_int_equal(outfile_commit(&of, &err), HC_EIO);
+	assert_int_equal(hc_outfile_commit(&of, &err), HC_EIO);
 	assert_non_null(strstr(err.message, "cannot write '"));
 	assert_int_equal(stat(path, &st), 0);
 	assert_true(S_ISDIR(st.st_mode));
 	assert_int_equal(entries(), 1);
-	assert_null(outfile_pending());
+	assert_null(hc_outfile_pending());
 	rmdir(path);
 	remove_dir();
 }
@@ -184,10 +184,10 @@ static void test_outfile_missing_directory_is_eio(void **state)
 	make_dir(state);
 	snprintf(path, sizeof path, "%s/no/such/dir/x.csv", dir);
 	hc_error_clear(&err);
-	assert_int_equal(outfile_open(&of, path, &err), HC_EIO);
+	assert_int_equal(hc_outfile_open(&of, path, &err), HC_EIO);
 	assert_non_null(strstr(err.message, "cannot create a file beside"));
 	assert_null(of.fp);
-	assert_int_equal(outfile_open(&of, "", &err), HC_EUSAGE);
+	assert_int_equal(hc_outfile_open(&of, "", &err), HC_EUSAGE);
 	remove_dir();
 }
 
@@ -196,13 +196,13 @@ static void test_outfile_stdout(void **state)
 	struct outfile of;
 	struct hc_error err;
 
-	assert_int_equal(outfile_open(&of, "-", &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, "-", &err), HC_OK);
 	assert_ptr_equal(of.fp, stdout);
-	assert_null(outfile_pending());
-	assert_int_equal(outfile_commit(&of, &err), HC_OK);
-	assert_int_equal(outfile_open(&of, NULL, &err), HC_OK);
+	assert_null(hc_outfile_pending());
+	assert_int_equal(hc_outfile_commit(&of, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, NULL, &err), HC_OK);
 	assert_ptr_equal(of.fp, stdout);
-	outfile_abort(&of);
+	hc_outfile_abort(&of);
 }
 
 /* Two files open at once (a report folder): the signal-safe sweep
@@ -216,12 +216,12 @@ static void test_outfile_unlink_pending_sweeps_all(void **state)
 	make_dir(state);
 	snprintf(pa, sizeof pa, "%s/a.csv", dir);
 	snprintf(pb, sizeof pb, "%s/b.csv", dir);
-	assert_int_equal(outfile_open(&a, pa, &err), HC_OK);
-	assert_int_equal(outfile_open(&b, pb, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&a, pa, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&b, pb, &err), HC_OK);
 	assert_int_equal(entries(), 2);
-	outfile_unlink_pending();
+	hc_outfile_unlink_pending();
 	assert_int_equal(entries(), 0);
-	assert_null(outfile_pending());
+	assert_null(hc_outfile_pending());
 	fclose(a.fp);
 	fclose(b.fp);
 	hc_free(a.path); hc_free(a.tmp);
@@ -240,7 +240,7 @@ static void test_outfile_allocation_failure(void **state)
 	snprintf(path, sizeof path, "%s/x.csv", dir);
 	for (k = 0; k < 2; k++) {
 		hc_alloc_fail_after(k);
-		assert_int_equal(outfile_open(&of, path, &err), HC_ENOMEM);
+		assert_int_equal(hc_outfile_open(&of, path, &err), HC_ENOMEM);
 		hc_alloc_fail_after(-1);
 		assert_null(of.fp);
 		assert_int_equal(entries(), 0);
@@ -290,12 +290,12 @@ static void test_outfile_writes_through_symlink(void **state)
 	write_through_fopen(link, "n,sd\n1,0.2385\n");
 	link_state(link, target, want, sizeof want);
 	write_plain(target, "old\n");
-	assert_int_equal(outfile_open(&of, link, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, link, &err), HC_OK);
 	assert_string_equal(of.path, target);
 	assert_int_equal(strncmp(of.tmp, sub, strlen(sub)), 0);
 	assert_non_null(strstr(of.tmp, "/sub/.curve.csv.tmp-"));
 	fputs("n,sd\n1,0.2385\n", of.fp);
-	assert_int_equal(outfile_commit(&of, &err), HC_OK);
+	assert_int_equal(hc_outfile_commit(&of, &err), HC_OK);
 	link_state(link, target, got, sizeof got);
 	assert_string_equal(got, want);
 	assert_string_equal(got, "/curve.lnk -> sub/curve.csv: n,sd\n1,0.2385\n");
@@ -303,9 +303,9 @@ static void test_outfile_writes_through_symlink(void **state)
 	unlink(target);
 
 	/* a dangling link: its target is created, as fopen would create it */
-	assert_int_equal(outfile_open(&of, link, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, link, &err), HC_OK);
 	fputs("fresh\n", of.fp);
-	assert_int_equal(outfile_commit(&of, &err), HC_OK);
+	assert_int_equal(hc_outfile_commit(&of, &err), HC_OK);
 	link_state(link, target, got, sizeof got);
 	assert_string_equal(got, "/curve.lnk -> sub/curve.csv: fresh\n");
 	unlink(target);
@@ -317,10 +317,10 @@ static void test_outfile_writes_through_symlink(void **state)
 	snprintf(sub, sizeof sub, "%s/second.lnk", dir);
 	assert_int_equal(symlink(target, sub), 0);
 	assert_int_equal(symlink("second.lnk", link), 0);
-	assert_int_equal(outfile_open(&of, link, &err), HC_OK);
+	assert_int_equal(hc_outfile_open(&of, link, &err), HC_OK);
 	assert_string_equal(of.path, target);
 	fputs("two hops\n", of.fp);
-	assert_int_equal(outfile_commit(&of, &err), HC_OK);
+	assert_int_equal(hc_outfile_commit(&of, &err), HC_OK);
 	slurp(link, got, sizeof got);
 	assert_string_equal(got, "two hops\n");
 	assert_int_equal(lstat(sub, &(struct stat){ 0 }), 0);
@@ -333,7 +333,7 @@ static void test_outfile_writes_through_symlink(void **state)
 	assert_int_equal(symlink("b.lnk", link), 0);
 	snprintf(sub, sizeof sub, "%s/b.lnk", dir);
 	assert_int_equal(symlink("curve.lnk", sub), 0);
-	assert_int_equal(outfile_open(&of, link, &err), HC_EIO);
+	assert_int_equal(hc_outfile_open(&of, link, &err), HC_EIO);
 	assert_null(of.fp);
 	assert_non_null(strstr(err.message, "cannot follow the symbolic link"));
 	assert_non_null(strstr(err.message, "Too many levels of symbolic links"));
@@ -344,7 +344,7 @@ static void test_outfile_writes_through_symlink(void **state)
 	remove_dir();
 }
 
-/* outfile_same_file: one file under several names (a hard link, a
+/* hc_outfile_same_file: one file under several names (a hard link, a
  * symbolic link, "./"), two distinct files, and names not created yet. */
 static void test_outfile_same_file(void **state)
 {
@@ -367,7 +367,7 @@ static void test_outfile_same_file(void **state)
 	assert_int_equal(symlink("u.csv", l), 0);
 	assert_int_equal(symlink("new.csv", dl), 0);
 #define SAME(a, b, want) do { same = -1; \
-	assert_int_equal(outfile_same_file((a), (b), &same, &err), HC_OK); \
+	assert_int_equal(hc_outfile_same_file((a), (b), &same, &err), HC_OK); \
 	assert_int_equal(same, (want)); } while (0)
 	SAME(f, f, 1);
 	SAME(f, h, 1);

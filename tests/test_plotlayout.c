@@ -84,7 +84,7 @@ static void test_plotlayout_leaders_never_strike_a_label(void **state)
 				ld[j] = ld[j - 1];
 				ld[j - 1] = t;
 			}
-		assert_int_equal(plotlayout_leaders(ld, n, 80, 970, GAP, PAD, &spill, NULL), HC_OK);
+		assert_int_equal(hc_plotlayout_leaders(ld, n, 80, 970, GAP, PAD, &spill, NULL), HC_OK);
 		assert_int_equal(strikes(ld, n), 0);
 		for (i = 0; i < n; i++) {      /* rows are 0..n-1, each once */
 			assert_true(ld[i].row < n);
@@ -119,10 +119,10 @@ static void test_plotlayout_leaders_the_demo_case(void **state)
 
 	(void)state;
 	for (i = 0; i < 6; i++) {
-		ld[i].x = plotlayout_to_px(&ax, counts[i]);
-		ld[i].width = plotlayout_text_px(labels[i], 9);
+		ld[i].x = hc_plotlayout_to_px(&ax, counts[i]);
+		ld[i].width = hc_plotlayout_text_px(labels[i], 9);
 	}
-	assert_int_equal(plotlayout_leaders(ld, 6, 80, 970, GAP, PAD, &spill, NULL), HC_OK);
+	assert_int_equal(hc_plotlayout_leaders(ld, 6, 80, 970, GAP, PAD, &spill, NULL), HC_OK);
 	assert_true(spill == 0.0);
 	assert_int_equal(strikes(ld, 6), 0);
 	assert_false(ld[0].left || ld[1].left || ld[2].left);
@@ -139,9 +139,9 @@ static void test_plotlayout_leaders_refuses_too_many(void **state)
 	(void)state;
 	memset(ld, 0, sizeof ld);
 	hc_error_clear(&err);
-	assert_int_equal(plotlayout_leaders(ld, PLOTLAYOUT_MAX_LEADERS + 1, 0, 100, GAP, PAD, NULL, &err), HC_EUSAGE);
+	assert_int_equal(hc_plotlayout_leaders(ld, PLOTLAYOUT_MAX_LEADERS + 1, 0, 100, GAP, PAD, NULL, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "at most 12"));
-	assert_int_equal(plotlayout_leaders(ld, 0, 0, 100, GAP, PAD, NULL, &err), HC_OK);
+	assert_int_equal(hc_plotlayout_leaders(ld, 0, 0, 100, GAP, PAD, NULL, &err), HC_OK);
 }
 
 /* Axes: a log axis 1..100 over 0..200 pixels puts 10 at 100; linear
@@ -151,10 +151,10 @@ static void test_plotlayout_axes_map_and_invert(void **state)
 	struct plotlayout_axis lg = { 1, 100, 1, 0, 200 }, lin = { 0, 50, 0, 80, 970 };
 
 	(void)state;
-	assert_true(fabs(plotlayout_to_px(&lg, 10) - 100) < 1e-12);
-	assert_true(fabs(plotlayout_to_px(&lin, 25) - 525) < 1e-12);
-	assert_true(fabs(plotlayout_from_px(&lg, plotlayout_to_px(&lg, 37.5)) - 37.5) < 1e-12);
-	assert_true(fabs(plotlayout_from_px(&lin, plotlayout_to_px(&lin, 13.25)) - 13.25) < 1e-12);
+	assert_true(fabs(hc_plotlayout_to_px(&lg, 10) - 100) < 1e-12);
+	assert_true(fabs(hc_plotlayout_to_px(&lin, 25) - 525) < 1e-12);
+	assert_true(fabs(hc_plotlayout_from_px(&lg, hc_plotlayout_to_px(&lg, 37.5)) - 37.5) < 1e-12);
+	assert_true(fabs(hc_plotlayout_from_px(&lin, hc_plotlayout_to_px(&lin, 13.25)) - 13.25) < 1e-12);
 }
 
 /* Estimates on the wide side of the measured widths, by at most a third. */
@@ -167,11 +167,11 @@ static void test_plotlayout_text_width_covers_the_render(void **state)
 
 	(void)state;
 	for (i = 0; i < sizeof m / sizeof m[0]; i++) {
-		double w = plotlayout_text_px(m[i].s, 9);
+		double w = hc_plotlayout_text_px(m[i].s, 9);
 		assert_true(w >= m[i].measured);
 		assert_true(w <= 4.0 / 3.0 * m[i].measured);
 	}
-	assert_true(plotlayout_text_px("", 9) == 0.0);
+	assert_true(hc_plotlayout_text_px("", 9) == 0.0);
 }
 
 /* A line through the first candidate sends the label to the second; with
@@ -195,16 +195,16 @@ static void test_plotlayout_choose_keeps_clear_of_lines_and_boxes(void **state)
 	sc.py = py;
 	sc.npoints = 40;
 	sc.frame = (struct plotlayout_rect){ 0, 0, 1000, 640 };
-	assert_int_equal(plotlayout_collisions(&cand[0], &sc), 11);
-	assert_int_equal(plotlayout_choose(cand, 3, &sc), 1);
+	assert_int_equal(hc_plotlayout_collisions(&cand[0], &sc), 11);
+	assert_int_equal(hc_plotlayout_choose(cand, 3, &sc), 1);
 	sc.boxes = &box;
 	sc.nboxes = 1;
 	/* candidate 1 now overlaps the box (1), candidate 2 holds 10 points of
 	 * the line (x = 300 .. 390), candidate 0 11 */
-	assert_int_equal(plotlayout_collisions(&cand[1], &sc), 1);
-	assert_int_equal(plotlayout_choose(cand, 3, &sc), 1);
+	assert_int_equal(hc_plotlayout_collisions(&cand[1], &sc), 1);
+	assert_int_equal(hc_plotlayout_choose(cand, 3, &sc), 1);
 	sc.frame = (struct plotlayout_rect){ 0, 0, 1000, 140 };
-	assert_int_equal(plotlayout_collisions(&cand[1], &sc), 2);
+	assert_int_equal(hc_plotlayout_collisions(&cand[1], &sc), 2);
 }
 
 int main(void)

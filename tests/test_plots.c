@@ -42,8 +42,8 @@ static struct curve *make_curve(void)
 
 	for (i = 0; i < M; i++)
 		sizes[i] = i + 1;
-	assert_int_equal(moments_from_summary(&mo, VBAR, CBAR, M, NULL), HC_OK);
-	assert_int_equal(curve_exact(&c, &mo, sizes, M, 12.0, NULL), HC_OK);
+	assert_int_equal(hc_moments_from_summary(&mo, VBAR, CBAR, M, NULL), HC_OK);
+	assert_int_equal(hc_curve_exact(&c, &mo, sizes, M, 12.0, NULL), HC_OK);
 	return c;
 }
 
@@ -78,7 +78,7 @@ static void test_plots_exact_data_follows_the_closed_form(void **state)
 	FILE *mem = open_memstream(&buf, &len);
 
 	(void)state;
-	assert_int_equal(plots_write_data(mem, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_data(mem, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
 	fclose(mem);
 	for (line = strtok(buf, "\n"); line; line = strtok(NULL, "\n")) {
 		if (line[0] == '#')
@@ -92,7 +92,7 @@ static void test_plots_exact_data_follows_the_closed_form(void **state)
 	}
 	assert_int_equal(rows, M);
 	free(buf);
-	curve_free(c);
+	hc_curve_free(c);
 }
 
 static void test_plots_formats_and_availability(void **state)
@@ -101,13 +101,13 @@ static void test_plots_formats_and_availability(void **state)
 	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
 
 	(void)state;
-	assert_int_equal(plots_parse_format("svg"), PLOTS_SVG);
-	assert_int_equal(plots_parse_format("gif"), -1);
-	assert_true(plots_available(PLOTS_RISK, &in));
-	assert_false(plots_available(PLOTS_FUNDS, &in));   /* no audit */
-	assert_false(plots_available(PLOTS_ROLLING, &in)); /* no rolling result given */
-	assert_int_equal(plots_write_script(stdout, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_EUSAGE);
-	curve_free(c);
+	assert_int_equal(hc_plots_parse_format("svg"), PLOTS_SVG);
+	assert_int_equal(hc_plots_parse_format("gif"), -1);
+	assert_true(hc_plots_available(PLOTS_RISK, &in));
+	assert_false(hc_plots_available(PLOTS_FUNDS, &in));   /* no audit */
+	assert_false(hc_plots_available(PLOTS_ROLLING, &in)); /* no rolling result given */
+	assert_int_equal(hc_plots_write_script(stdout, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_EUSAGE);
+	hc_curve_free(c);
 }
 
 static void test_plots_find_gnuplot_along_a_path(void **state)
@@ -124,9 +124,9 @@ static void test_plots_find_gnuplot_along_a_path(void **state)
 	fclose(fp);
 	chmod(exe, 0755);
 	snprintf(path, sizeof path, "/nonexistent:%s", tmpdir);
-	assert_int_equal(plots_find_gnuplot(path, found, sizeof found), 1);
+	assert_int_equal(hc_plots_find_gnuplot(path, found, sizeof found), 1);
 	assert_string_equal(found, exe);
-	assert_int_equal(plots_find_gnuplot("/nonexistent", found, sizeof found), 0);
+	assert_int_equal(hc_plots_find_gnuplot("/nonexistent", found, sizeof found), 0);
 }
 
 /* Render risk.gp (with rule marks) and read the PNG's IHDR. */
@@ -146,22 +146,22 @@ static void test_plots_risk_renders_a_png_of_the_stated_size(void **state)
 	rules[1].name = "tracking-error", rules[1].rule = RULES_TRACKING_ERROR;
 	rules[1].defined = 1, rules[1].met = 1, rules[1].count = 33;
 	make_tmpdir("render");
-	assert_true(plots_find_gnuplot(NULL, gp, sizeof gp));
+	assert_true(hc_plots_find_gnuplot(NULL, gp, sizeof gp));
 	fp = open_in("exact.dat");
-	assert_int_equal(plots_write_data(fp, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_data(fp, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
 	fclose(fp);
 	fp = open_in("rules.dat");
-	assert_int_equal(plots_write_data(fp, PLOTS_DATA_RULES, &in, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_data(fp, PLOTS_DATA_RULES, &in, NULL), HC_OK);
 	fclose(fp);
 	fp = open_in("risk.gp");
-	assert_int_equal(plots_write_script(fp, PLOTS_RISK, &in, PLOTS_PNG, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_script(fp, PLOTS_RISK, &in, PLOTS_PNG, NULL), HC_OK);
 	fclose(fp);
 	fp = open_in("tracking.gp");
-	assert_int_equal(plots_write_script(fp, PLOTS_TRACKING, &in, PLOTS_PNG, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_script(fp, PLOTS_TRACKING, &in, PLOTS_PNG, NULL), HC_OK);
 	fclose(fp);
 	hc_error_clear(&err);
-	assert_int_equal(plots_render(gp, tmpdir, "risk.gp", &err), HC_OK);
-	assert_int_equal(plots_render(gp, tmpdir, "tracking.gp", &err), HC_OK);
+	assert_int_equal(hc_plots_render(gp, tmpdir, "risk.gp", &err), HC_OK);
+	assert_int_equal(hc_plots_render(gp, tmpdir, "tracking.gp", &err), HC_OK);
 	snprintf(png, sizeof png, "%s/risk.png", tmpdir);
 	fp = fopen(png, "rb");
 	assert_non_null(fp);
@@ -171,7 +171,7 @@ static void test_plots_risk_renders_a_png_of_the_stated_size(void **state)
 	assert_memory_equal(head + 12, "IHDR", 4);
 	assert_int_equal((head[16] << 24) | (head[17] << 16) | (head[18] << 8) | head[19], PLOTS_WIDTH);
 	assert_int_equal((head[20] << 24) | (head[21] << 16) | (head[22] << 8) | head[23], PLOTS_HEIGHT);
-	curve_free(c);
+	hc_curve_free(c);
 }
 
 /* Funds on the curve: a passing and a failing invented fund.  The failing
@@ -201,18 +201,18 @@ static void test_plots_funds_mark_a_failing_fund(void **state)
 	ar.funds = funds;
 	ar.nfunds = 2;
 	make_tmpdir("funds");
-	assert_true(plots_find_gnuplot(NULL, gp, sizeof gp));
+	assert_true(hc_plots_find_gnuplot(NULL, gp, sizeof gp));
 	fp = open_in("exact.dat");
-	assert_int_equal(plots_write_data(fp, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_data(fp, PLOTS_DATA_EXACT, &in, NULL), HC_OK);
 	fclose(fp);
 	fp = open_in("funds.dat");
-	assert_int_equal(plots_write_data(fp, PLOTS_DATA_FUNDS, &in, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_data(fp, PLOTS_DATA_FUNDS, &in, NULL), HC_OK);
 	fclose(fp);
 	fp = open_in("funds.gp");
-	assert_int_equal(plots_write_script(fp, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_script(fp, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
 	fclose(fp);
 	hc_error_clear(&err);
-	assert_int_equal(plots_render(gp, tmpdir, "funds.gp", &err), HC_OK);
+	assert_int_equal(hc_plots_render(gp, tmpdir, "funds.gp", &err), HC_OK);
 	snprintf(line, sizeof line, "%s/funds.dat", tmpdir);
 	fp = fopen(line, "r");
 	assert_non_null(fp);
@@ -227,25 +227,25 @@ static void test_plots_funds_mark_a_failing_fund(void **state)
 	fclose(fp);
 	assert_int_equal(rows, 2);
 	mem = open_memstream(&buf, &len);
-	assert_int_equal(plots_write_script(mem, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_script(mem, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
 	fclose(mem);
 	assert_non_null(strstr(buf, "with points ls 9 title \"fund failing the policy"));
 	free(buf);
 	funds[1].passed = 1;
 	buf = NULL;
 	mem = open_memstream(&buf, &len);
-	assert_int_equal(plots_write_script(mem, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_script(mem, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
 	fclose(mem);
 	assert_null(strstr(buf, "ls 9"));
 	free(buf);
 	fp = open_in("funds.dat");
-	assert_int_equal(plots_write_data(fp, PLOTS_DATA_FUNDS, &in, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_data(fp, PLOTS_DATA_FUNDS, &in, NULL), HC_OK);
 	fclose(fp);
 	fp = open_in("funds.gp");
-	assert_int_equal(plots_write_script(fp, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
+	assert_int_equal(hc_plots_write_script(fp, PLOTS_FUNDS, &in, PLOTS_PNG, NULL), HC_OK);
 	fclose(fp);
-	assert_int_equal(plots_render(gp, tmpdir, "funds.gp", &err), HC_OK);
-	curve_free(c);
+	assert_int_equal(hc_plots_render(gp, tmpdir, "funds.gp", &err), HC_OK);
+	hc_curve_free(c);
 }
 
 /* gnuplot's "warning: Skipping data file with no valid points" on an empty
@@ -258,15 +258,15 @@ static void test_plots_render_treats_a_warning_as_failure(void **state)
 
 	(void)state;
 	make_tmpdir("warn");
-	assert_true(plots_find_gnuplot(NULL, gp, sizeof gp));
+	assert_true(hc_plots_find_gnuplot(NULL, gp, sizeof gp));
 	fclose(open_in("empty.dat"));
 	fp = open_in("bad.gp");
 	fputs("set terminal png size 200,100\nset output 'bad.png'\nplot 'empty.dat' using 1:2 with lines\n", fp);
 	fclose(fp);
 	hc_error_clear(&err);
-	assert_int_equal(plots_render(gp, tmpdir, "bad.gp", &err), HC_EINTERNAL);
+	assert_int_equal(hc_plots_render(gp, tmpdir, "bad.gp", &err), HC_EINTERNAL);
 	assert_non_null(strstr(err.message, "arning"));
-	assert_int_equal(plots_render("/nonexistent/gnuplot", tmpdir, "bad.gp", &err), HC_EIO);
+	assert_int_equal(hc_plots_render("/nonexistent/gnuplot", tmpdir, "bad.gp", &err), HC_EIO);
 }
 
 static void test_plots_script_allocation_failure(void **state)
@@ -283,12 +283,12 @@ static void test_plots_script_allocation_failure(void **state)
 	memset(&rule, 0, sizeof rule);
 	rule.name = "marginal", rule.defined = 1, rule.met = 1, rule.count = 9;
 	hc_alloc_fail_after(0);
-	assert_int_equal(plots_write_script(mem, PLOTS_RISK, &in, PLOTS_SVG, &err), HC_ENOMEM);
-	assert_int_equal(plots_write_data(mem, PLOTS_DATA_RULES, &in, &err), HC_ENOMEM);
+	assert_int_equal(hc_plots_write_script(mem, PLOTS_RISK, &in, PLOTS_SVG, &err), HC_ENOMEM);
+	assert_int_equal(hc_plots_write_data(mem, PLOTS_DATA_RULES, &in, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
 	fclose(mem);
 	free(buf);
-	curve_free(c);
+	hc_curve_free(c);
 }
 
 int main(void)

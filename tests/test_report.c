@@ -29,48 +29,48 @@
  * failing status (for the allocation-failure sweep). */
 static int build(struct report **out)
 {
-	struct report *r = report_alloc();
+	struct report *r = hc_report_alloc();
 	struct report_table *t;
 	int rc = HC_ENOMEM;
 
 	*out = NULL;
 	if (!r)
 		return HC_ENOMEM;
-	if (report_add_int(r, "securities", "securities kept", 37) ||
-	    report_add_real(r, "average_correlation", "average correlation", 0.2385, REPORT_STYLE_FIXED4) ||
-	    report_add_real(r, "floor_sd", "floor sd", 0.1915815, REPORT_STYLE_PERCENT) ||
-	    report_add_text(r, "first_date", "first date", "2004-01-31") ||
-	    report_add_bool(r, "complete", "complete data", 1) ||
-	    report_add_none(r, "periods_per_year", "periods per year"))
+	if (hc_report_add_int(r, "securities", "securities kept", 37) ||
+	    hc_report_add_real(r, "average_correlation", "average correlation", 0.2385, REPORT_STYLE_FIXED4) ||
+	    hc_report_add_real(r, "floor_sd", "floor sd", 0.1915815, REPORT_STYLE_PERCENT) ||
+	    hc_report_add_text(r, "first_date", "first date", "2004-01-31") ||
+	    hc_report_add_bool(r, "complete", "complete data", 1) ||
+	    hc_report_add_none(r, "periods_per_year", "periods per year"))
 		goto fail;
-	t = report_add_table(r, "curve", "risk by count");
+	t = hc_report_add_table(r, "curve", "risk by count");
 	if (!t)
 		goto fail;
-	if (report_table_add_column(t, "n", "N", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "expected_sd", "expected sd", REPORT_STYLE_PERCENT) ||
-	    report_table_add_column(t, "variance", "variance", REPORT_STYLE_SCI) ||
-	    report_table_add_column(t, "label", "label", REPORT_STYLE_PLAIN))
+	if (hc_report_table_add_column(t, "n", "N", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "expected_sd", "expected sd", REPORT_STYLE_PERCENT) ||
+	    hc_report_table_add_column(t, "variance", "variance", REPORT_STYLE_SCI) ||
+	    hc_report_table_add_column(t, "label", "label", REPORT_STYLE_PLAIN))
 		goto fail;
-	if (report_table_add_row(t))
+	if (hc_report_table_add_row(t))
 		goto fail;
-	report_table_set_int(t, 0, 0, 1);
-	report_table_set_real(t, 0, 1, 0.49236);
-	report_table_set_real(t, 0, 2, -0.0123456789);
-	if (report_table_set_text(t, 0, 3, "one, \"a\""))
+	hc_report_table_set_int(t, 0, 0, 1);
+	hc_report_table_set_real(t, 0, 1, 0.49236);
+	hc_report_table_set_real(t, 0, 2, -0.0123456789);
+	if (hc_report_table_set_text(t, 0, 3, "one, \"a\""))
 		goto fail;
-	if (report_table_add_row(t))
+	if (hc_report_table_add_row(t))
 		goto fail;
-	report_table_set_int(t, 1, 0, 10);
-	report_table_set_real(t, 1, 1, 0.23932);
-	report_table_set_real(t, 1, 2, NAN);
-	if (report_table_set_text(t, 1, 3, "ten"))
+	hc_report_table_set_int(t, 1, 0, 10);
+	hc_report_table_set_real(t, 1, 1, 0.23932);
+	hc_report_table_set_real(t, 1, 2, NAN);
+	if (hc_report_table_set_text(t, 1, 3, "ten"))
 		goto fail;
-	if (report_add_note(r, "check the inputs"))
+	if (hc_report_add_note(r, "check the inputs"))
 		goto fail;
 	*out = r;
 	return HC_OK;
 fail:
-	report_free(r);
+	hc_report_free(r);
 	return rc;
 }
 
@@ -121,8 +121,8 @@ static void test_report_text_golden(void **state)
 	struct report *r;
 
 	assert_int_equal(build(&r), HC_OK);
-	expect_render(report_writer_text, r, golden_text);
-	report_free(r);
+	expect_render(hc_report_writer_text, r, golden_text);
+	hc_report_free(r);
 }
 
 /* RFC 4180 section 2: a field with a comma or a quote is quoted, inner
@@ -137,26 +137,26 @@ static void test_report_csv_golden(void **state)
 	struct report *r;
 
 	assert_int_equal(build(&r), HC_OK);
-	expect_render(report_writer_csv, r, golden_csv);
-	report_free(r);
+	expect_render(hc_report_writer_csv, r, golden_csv);
+	hc_report_free(r);
 }
 
 static void test_report_csv_fields_without_table(void **state)
 {
-	struct report *r = report_alloc();
+	struct report *r = hc_report_alloc();
 
 	assert_non_null(r);
-	assert_int_equal(report_add_real(r, "average_variance", "average variance", 46.619, REPORT_STYLE_PLAIN), HC_OK);
-	assert_int_equal(report_add_real(r, "floor", "floor", -0.0, REPORT_STYLE_PLAIN), HC_OK);
-	assert_int_equal(report_add_real(r, "infinite", "infinite", INFINITY, REPORT_STYLE_PLAIN), HC_OK);
-	assert_int_equal(report_add_text(r, "id", "id", "Q7,\nline"), HC_OK);
+	assert_int_equal(hc_report_add_real(r, "average_variance", "average variance", 46.619, REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_add_real(r, "floor", "floor", -0.0, REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_add_real(r, "infinite", "infinite", INFINITY, REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_add_text(r, "id", "id", "Q7,\nline"), HC_OK);
 	/* -0 prints as 0, a non-finite value has no spelling (empty), and the
 	 * text with a comma and a line break is quoted (RFC 4180). */
-	expect_render(report_writer_csv, r, "key,value\naverage_variance,46.619\nfloor,0\ninfinite,\nid,\"Q7,\nline\"\n");
-	report_free(r);
+	expect_render(hc_report_writer_csv, r, "key,value\naverage_variance,46.619\nfloor,0\ninfinite,\nid,\"Q7,\nline\"\n");
+	hc_report_free(r);
 }
 
-/* report_write_csv_part: the second table, by key, and the fields, in the
+/* hc_report_write_csv_part: the second table, by key, and the fields, in the
  * form of the CSV writer above (RFC 4180 section 2 quoting); an unknown
  * table is a usage error that writes nothing. */
 static void test_report_csv_part_chooses_a_table_or_the_fields(void **state)
@@ -170,22 +170,22 @@ static void test_report_csv_part_chooses_a_table_or_the_fields(void **state)
 
 	(void)state;
 	assert_int_equal(build(&r), HC_OK);
-	t = report_add_table(r, "weights", "weights");
+	t = hc_report_add_table(r, "weights", "weights");
 	assert_non_null(t);
-	assert_int_equal(report_table_add_column(t, "sector", "sector", REPORT_STYLE_PLAIN), HC_OK);
-	assert_int_equal(report_table_add_column(t, "weight", "weight", REPORT_STYLE_PERCENT), HC_OK);
-	assert_int_equal(report_table_add_row(t), HC_OK);
-	assert_int_equal(report_table_set_text(t, 0, 0, "Fen, north"), HC_OK);
-	report_table_set_real(t, 0, 1, 0.2385);
-	assert_ptr_equal(report_find_table(r, "weights"), t);
-	assert_null(report_find_table(r, "sectors"));
+	assert_int_equal(hc_report_table_add_column(t, "sector", "sector", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "weight", "weight", REPORT_STYLE_PERCENT), HC_OK);
+	assert_int_equal(hc_report_table_add_row(t), HC_OK);
+	assert_int_equal(hc_report_table_set_text(t, 0, 0, "Fen, north"), HC_OK);
+	hc_report_table_set_real(t, 0, 1, 0.2385);
+	assert_ptr_equal(hc_report_find_table(r, "weights"), t);
+	assert_null(hc_report_find_table(r, "sectors"));
 
 	fp = open_memstream(&buf, &len);
 	assert_non_null(fp);
 	hc_error_clear(&err);
-	assert_int_equal(report_write_csv_part(fp, r, "weights", &err), HC_OK);
-	assert_int_equal(report_write_csv_part(fp, r, "curve", &err), HC_OK);
-	assert_int_equal(report_write_csv_part(fp, r, NULL, &err), HC_OK);
+	assert_int_equal(hc_report_write_csv_part(fp, r, "weights", &err), HC_OK);
+	assert_int_equal(hc_report_write_csv_part(fp, r, "curve", &err), HC_OK);
+	assert_int_equal(hc_report_write_csv_part(fp, r, NULL, &err), HC_OK);
 	fflush(fp);
 	assert_string_equal(buf, "sector,weight\n\"Fen, north\",0.23849999999999999\n"
 			    "n,expected_sd,variance,label\n"
@@ -193,11 +193,11 @@ static void test_report_csv_part_chooses_a_table_or_the_fields(void **state)
 			    "10,0.23932,,ten\n"
 			    "key,value\nsecurities,37\naverage_correlation,0.23849999999999999\n"
 			    "floor_sd,0.19158149999999999\nfirst_date,2004-01-31\ncomplete,true\nperiods_per_year,\n");
-	assert_int_equal(report_write_csv_part(fp, r, "sectors", &err), HC_EUSAGE);
+	assert_int_equal(hc_report_write_csv_part(fp, r, "sectors", &err), HC_EUSAGE);
 	assert_string_equal(err.message, "the output has no table 'sectors'");
 	fclose(fp);
 	free(buf);
-	report_free(r);
+	hc_report_free(r);
 }
 
 static const char golden_json[] =
@@ -230,7 +230,7 @@ static void test_report_json_golden_and_round_trip(void **state)
 	int rc;
 
 	assert_int_equal(build(&r), HC_OK);
-	s = render(report_writer_json, r, &rc);
+	s = render(hc_report_writer_json, r, &rc);
 	assert_int_equal(rc, HC_OK);
 	assert_string_equal(s, golden_json);
 	root = cJSON_Parse(s);
@@ -249,7 +249,7 @@ static void test_report_json_golden_and_round_trip(void **state)
 	assert_int_equal(cJSON_GetObjectItem(cJSON_GetArrayItem(curve, 1), "n")->valueint, 10);
 	cJSON_Delete(root);
 	free(s);
-	report_free(r);
+	hc_report_free(r);
 }
 
 /* Round trip over awkward doubles (subnormal, near 1, large): 17 digits
@@ -257,7 +257,7 @@ static void test_report_json_golden_and_round_trip(void **state)
 static void test_report_json_numbers_round_trip(void **state)
 {
 	static const double xs[] = { 5e-324, 0.1, 1.0 - 0x1p-53, 2.385e300, -7.058e-7, 123456789012.25 };
-	struct report *r = report_alloc();
+	struct report *r = hc_report_alloc();
 	cJSON *root;
 	char key[8], *s;
 	size_t i;
@@ -266,9 +266,9 @@ static void test_report_json_numbers_round_trip(void **state)
 	assert_non_null(r);
 	for (i = 0; i < sizeof xs / sizeof xs[0]; i++) {
 		snprintf(key, sizeof key, "x%zu", i);
-		assert_int_equal(report_add_real(r, key, key, xs[i], REPORT_STYLE_PLAIN), HC_OK);
+		assert_int_equal(hc_report_add_real(r, key, key, xs[i], REPORT_STYLE_PLAIN), HC_OK);
 	}
-	s = render(report_writer_json, r, &rc);
+	s = render(hc_report_writer_json, r, &rc);
 	assert_int_equal(rc, HC_OK);
 	root = cJSON_Parse(s);
 	assert_non_null(root);
@@ -278,7 +278,7 @@ static void test_report_json_numbers_round_trip(void **state)
 	}
 	cJSON_Delete(root);
 	free(s);
-	report_free(r);
+	hc_report_free(r);
 }
 
 /* A key used twice in one JSON object is refused, not written: a parser
@@ -286,56 +286,56 @@ static void test_report_json_numbers_round_trip(void **state)
  * figure would vanish from scripts unseen. */
 static void test_report_json_refuses_a_key_used_twice(void **state)
 {
-	struct report *r = report_alloc();
+	struct report *r = hc_report_alloc();
 	struct report_table *t;
 	char *s;
 	int rc;
 
 	(void)state;
 	assert_non_null(r);
-	assert_int_equal(report_add_int(r, "funds", "funds", 3), HC_OK);
-	assert_non_null(t = report_add_table(r, "funds", "funds"));
-	s = render(report_writer_json, r, &rc);
+	assert_int_equal(hc_report_add_int(r, "funds", "funds", 3), HC_OK);
+	assert_non_null(t = hc_report_add_table(r, "funds", "funds"));
+	s = render(hc_report_writer_json, r, &rc);
 	assert_int_equal(rc, HC_EINTERNAL);
 	free(s);
-	report_free(r);
+	hc_report_free(r);
 	/* the same within one table's rows */
-	assert_non_null(r = report_alloc());
-	assert_non_null(t = report_add_table(r, "rows", "rows"));
-	assert_int_equal(report_table_add_column(t, "sd", "sd", REPORT_STYLE_PLAIN), HC_OK);
-	assert_int_equal(report_table_add_column(t, "sd", "sd again", REPORT_STYLE_PLAIN), HC_OK);
-	s = render(report_writer_json, r, &rc);
+	assert_non_null(r = hc_report_alloc());
+	assert_non_null(t = hc_report_add_table(r, "rows", "rows"));
+	assert_int_equal(hc_report_table_add_column(t, "sd", "sd", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "sd", "sd again", REPORT_STYLE_PLAIN), HC_OK);
+	s = render(hc_report_writer_json, r, &rc);
 	assert_int_equal(rc, HC_EINTERNAL);
 	free(s);
 	/* text and CSV have no such constraint and still render */
-	s = render(report_writer_csv, r, &rc);
+	s = render(hc_report_writer_csv, r, &rc);
 	assert_int_equal(rc, HC_OK);
 	free(s);
-	report_free(r);
+	hc_report_free(r);
 }
 
 /* Long notes wrap at 79 columns with a two-space hanging indent; short
  * ones stay on one line (the golden test above). */
 static void test_report_text_wraps_notes(void **state)
 {
-	struct report *r = report_alloc();
+	struct report *r = hc_report_alloc();
 
 	assert_non_null(r);
-	assert_int_equal(report_add_note(r, "alpha bravo charlie delta echo foxtrot golf hotel india juliett "
+	assert_int_equal(hc_report_add_note(r, "alpha bravo charlie delta echo foxtrot golf hotel india juliett "
 					 "kilo lima mike november oscar papa"), HC_OK);
-	expect_render(report_writer_text, r, "\ncautions:\n"
+	expect_render(hc_report_writer_text, r, "\ncautions:\n"
 		      "- alpha bravo charlie delta echo foxtrot golf hotel india juliett kilo lima\n"
 		      "  mike november oscar papa\n");
-	report_free(r);
+	hc_report_free(r);
 }
 
 static void test_report_writer_find(void **state)
 {
-	assert_ptr_equal(report_writer_find("table"), report_writer_text);
-	assert_ptr_equal(report_writer_find("csv"), report_writer_csv);
-	assert_ptr_equal(report_writer_find("json"), report_writer_json);
-	assert_null(report_writer_find("xml"));
-	assert_null(report_writer_find(NULL));
+	assert_ptr_equal(hc_report_writer_find("table"), hc_report_writer_text);
+	assert_ptr_equal(hc_report_writer_find("csv"), hc_report_writer_csv);
+	assert_ptr_equal(hc_report_writer_find("json"), hc_report_writer_json);
+	assert_null(hc_report_writer_find("xml"));
+	assert_null(hc_report_writer_find(NULL));
 }
 
 /* The cautions of design.md section 9 and the project rules: each subject
@@ -344,11 +344,11 @@ static void test_report_cautions_cover_each_subject(void **state)
 {
 	static const char *const subjects[] = { "historical", "survivor", "estimation error",
 		"independent", "not investment advice", "licensed advisers", "legal limits" };
-	struct report *r = report_alloc();
+	struct report *r = hc_report_alloc();
 	size_t i, j;
 
 	assert_non_null(r);
-	assert_int_equal(report_add_cautions(r), HC_OK);
+	assert_int_equal(hc_report_add_cautions(r), HC_OK);
 	assert_int_equal(r->nnotes, 5);
 	for (i = 0; i < sizeof subjects / sizeof subjects[0]; i++) {
 		int found = 0;
@@ -356,7 +356,7 @@ static void test_report_cautions_cover_each_subject(void **state)
 			found |= strstr(r->notes[j], subjects[i]) != NULL;
 		assert_true(found);
 	}
-	report_free(r);
+	hc_report_free(r);
 }
 
 /* A column added after rows (a caller appending its own column to a table
@@ -364,22 +364,22 @@ static void test_report_cautions_cover_each_subject(void **state)
  * are empty, and the CSV shows it (RFC 4180 empty field). */
 static void test_report_column_after_rows_widens(void **state)
 {
-	struct report *r = report_alloc();
-	struct report_table *t = report_add_table(r, "t", NULL);
+	struct report *r = hc_report_alloc();
+	struct report_table *t = hc_report_add_table(r, "t", NULL);
 	char *s;
 	size_t i;
 	int rc;
 
 	assert_non_null(t);
-	assert_int_equal(report_table_add_column(t, "a", NULL, 0), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "a", NULL, 0), HC_OK);
 	for (i = 0; i < 20; i++) { /* past the first growth of 16 rows */
-		assert_int_equal(report_table_add_row(t), HC_OK);
-		report_table_set_real(t, i, 0, 2.385 * (double)i);
+		assert_int_equal(hc_report_table_add_row(t), HC_OK);
+		hc_report_table_set_real(t, i, 0, 2.385 * (double)i);
 	}
-	assert_int_equal(report_table_add_column(t, "b", NULL, 0), HC_OK);
-	report_table_set_int(t, 19, 1, 7);
-	assert_int_equal(report_table_add_row(t), HC_OK);
-	s = render(report_writer_csv, r, &rc);
+	assert_int_equal(hc_report_table_add_column(t, "b", NULL, 0), HC_OK);
+	hc_report_table_set_int(t, 19, 1, 7);
+	assert_int_equal(hc_report_table_add_row(t), HC_OK);
+	s = render(hc_report_writer_csv, r, &rc);
 	assert_int_equal(rc, HC_OK);
 	assert_non_null(strstr(s, "a,b\n0,\n2.3849999999999998,\n"));
 	/* 19 * 2.385 = 45.315 in decimal; as doubles it prints as below
@@ -387,47 +387,47 @@ static void test_report_column_after_rows_widens(void **state)
 	assert_non_null(strstr(s, "\n45.314999999999998,7\n,\n"));
 	free(s);
 	/* A column with no value anywhere is left out of the text view only. */
-	assert_int_equal(report_table_add_column(t, "c", "never set", 0), HC_OK);
-	s = render(report_writer_text, r, &rc);
+	assert_int_equal(hc_report_table_add_column(t, "c", "never set", 0), HC_OK);
+	s = render(hc_report_writer_text, r, &rc);
 	assert_int_equal(rc, HC_OK);
 	assert_null(strstr(s, "never set"));
 	assert_int_equal(strncmp(s, "     a  b\n     0  -\n", 20), 0);
 	free(s);
-	s = render(report_writer_csv, r, &rc);
+	s = render(hc_report_writer_csv, r, &rc);
 	assert_non_null(strstr(s, "a,b,c\n0,,\n"));
 	free(s);
-	report_free(r);
+	hc_report_free(r);
 }
 
-/* A cell with no value but a reason (report_table_set_none): the reason in
+/* A cell with no value but a reason (hc_report_table_set_none): the reason in
  * CSV and in the text table, null in JSON (RFC 8259 section 3: a number
  * field that has no number is null, not a string), and the column is not
  * dropped from the text view as an empty one would be. */
 static void test_report_none_with_a_reason(void **state)
 {
-	struct report *r = report_alloc();
-	struct report_table *t = report_add_table(r, "funds", NULL);
+	struct report *r = hc_report_alloc();
+	struct report_table *t = hc_report_add_table(r, "funds", NULL);
 	cJSON *doc, *rows;
 	char *s;
 	int rc;
 
 	assert_non_null(t);
-	assert_int_equal(report_table_add_column(t, "fund", "fund", 0), HC_OK);
-	assert_int_equal(report_table_add_column(t, "count", "count", REPORT_STYLE_FIXED2), HC_OK);
-	assert_int_equal(report_table_add_row(t), HC_OK);
-	assert_int_equal(report_table_add_row(t), HC_OK);
-	assert_int_equal(report_table_set_text(t, 0, 0, "Alder"), HC_OK);
-	report_table_set_real(t, 0, 1, 23.85);
-	assert_int_equal(report_table_set_text(t, 1, 0, "Birch"), HC_OK);
-	report_table_set_real(t, 1, 1, 4.5);            /* replaced below: no leak */
-	assert_int_equal(report_table_set_none(t, 1, 1, "below the floor"), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "fund", "fund", 0), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "count", "count", REPORT_STYLE_FIXED2), HC_OK);
+	assert_int_equal(hc_report_table_add_row(t), HC_OK);
+	assert_int_equal(hc_report_table_add_row(t), HC_OK);
+	assert_int_equal(hc_report_table_set_text(t, 0, 0, "Alder"), HC_OK);
+	hc_report_table_set_real(t, 0, 1, 23.85);
+	assert_int_equal(hc_report_table_set_text(t, 1, 0, "Birch"), HC_OK);
+	hc_report_table_set_real(t, 1, 1, 4.5);            /* replaced below: no leak */
+	assert_int_equal(hc_report_table_set_none(t, 1, 1, "below the floor"), HC_OK);
 	assert_int_equal(t->cells[3].kind, REPORT_NONE);
-	expect_render(report_writer_csv, r, "fund,count\nAlder,23.850000000000001\nBirch,below the floor\n");
-	expect_render(report_writer_text, r,
+	expect_render(hc_report_writer_csv, r, "fund,count\nAlder,23.850000000000001\nBirch,below the floor\n");
+	expect_render(hc_report_writer_text, r,
 		      "fund   count\n"
 		      "Alder  23.85\n"
 		      "Birch  below the floor\n");
-	s = render(report_writer_json, r, &rc);
+	s = render(hc_report_writer_json, r, &rc);
 	assert_int_equal(rc, HC_OK);
 	doc = cJSON_Parse(s);
 	assert_non_null(doc);
@@ -437,13 +437,13 @@ static void test_report_none_with_a_reason(void **state)
 	assert_true(cJSON_IsNull(cJSON_GetObjectItemCaseSensitive(cJSON_GetArrayItem(rows, 1), "count")));
 	cJSON_Delete(doc);
 	free(s);
-	report_free(r);
+	hc_report_free(r);
 }
 
 /* Writing to a full device: the writers report HC_EIO, not success. */
 static void test_report_write_failure_is_eio(void **state)
 {
-	const struct report_writer *ws[] = { report_writer_text, report_writer_csv, report_writer_json };
+	const struct report_writer *ws[] = { hc_report_writer_text, hc_report_writer_csv, hc_report_writer_json };
 	struct report *r;
 	struct hc_error err;
 	size_t i;
@@ -458,7 +458,7 @@ static void test_report_write_failure_is_eio(void **state)
 		assert_non_null(strstr(err.message, "cannot write output"));
 		fclose(fp);
 	}
-	report_free(r);
+	hc_report_free(r);
 }
 
 /* Fault injection: every allocation in building and writing may fail;
@@ -466,7 +466,7 @@ static void test_report_write_failure_is_eio(void **state)
  * once enough allocations succeed the output is the golden one. */
 static void test_report_allocation_failure(void **state)
 {
-	const struct report_writer *ws[] = { report_writer_text, report_writer_json };
+	const struct report_writer *ws[] = { hc_report_writer_text, hc_report_writer_json };
 	const char *golden[] = { golden_text, golden_json };
 	long k;
 	size_t i;
@@ -490,7 +490,7 @@ static void test_report_allocation_failure(void **state)
 					assert_int_equal(rc, HC_ENOMEM);
 				}
 				free(s);
-				report_free(r);
+				hc_report_free(r);
 			} else {
 				hc_alloc_fail_after(-1);
 				assert_int_equal(rc, HC_ENOMEM);

@@ -65,9 +65,9 @@ static void write_one(struct reportdir *rd, const char *name, const char *text)
 {
 	FILE *fp;
 
-	assert_int_equal(reportdir_open(rd, name, &fp, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_open(rd, name, &fp, NULL), HC_OK);
 	fputs(text, fp);
-	assert_int_equal(reportdir_close(rd, fp, name, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_close(rd, fp, name, NULL), HC_OK);
 }
 
 static void test_reportdir_commit_puts_the_folder_in_place(void **state)
@@ -76,12 +76,12 @@ static void test_reportdir_commit_puts_the_folder_in_place(void **state)
 
 	(void)state;
 	fresh("commit");
-	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
 	assert_false(exists(target, NULL));            /* nothing under DIR yet */
-	assert_true(exists(reportdir_tmp_path(rd), REPORTDIR_MARKER));
+	assert_true(exists(hc_reportdir_tmp_path(rd), REPORTDIR_MARKER));
 	write_one(rd, "summary.json", "{}\n");
-	assert_int_equal(reportdir_commit(rd, NULL), HC_OK);
-	reportdir_free(rd);
+	assert_int_equal(hc_reportdir_commit(rd, NULL), HC_OK);
+	hc_reportdir_free(rd);
 	assert_true(exists(target, "summary.json"));
 	assert_false(exists(target, REPORTDIR_MARKER));
 	assert_int_equal(leftovers(), 0);
@@ -97,12 +97,12 @@ static mode_t committed_mode(const char *name, mode_t mask)
 	mode_t old = umask(mask), tmp_mode;
 
 	fresh(name);
-	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
-	assert_int_equal(stat(reportdir_tmp_path(rd), &st), 0);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
+	assert_int_equal(stat(hc_reportdir_tmp_path(rd), &st), 0);
 	tmp_mode = st.st_mode & 07777;
 	write_one(rd, "summary.json", "{}\n");
-	assert_int_equal(reportdir_commit(rd, NULL), HC_OK);
-	reportdir_free(rd);
+	assert_int_equal(hc_reportdir_commit(rd, NULL), HC_OK);
+	hc_reportdir_free(rd);
 	umask(old);
 	assert_int_equal(tmp_mode, 0700);
 	assert_int_equal(stat(target, &st), 0);
@@ -133,10 +133,10 @@ static void test_reportdir_refuses_an_existing_folder(void **state)
 	fputs("keep\n", fp);
 	fclose(fp);
 	hc_error_clear(&err);
-	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, &err), HC_EUSAGE);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, NULL, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "--force"));
 	/* a folder that is no report is not replaced even with force */
-	assert_int_equal(reportdir_begin(&rd, target, 1, NULL, &err), HC_EUSAGE);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 1, NULL, &err), HC_EUSAGE);
 	assert_null(rd);
 	assert_true(exists(target, "notes.txt"));
 	assert_int_equal(leftovers(), 0);
@@ -148,16 +148,16 @@ static void test_reportdir_force_replaces_an_earlier_report(void **state)
 
 	(void)state;
 	fresh("force");
-	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
 	write_one(rd, "summary.md", "old\n");
 	write_one(rd, "old-only.txt", "old\n");
-	assert_int_equal(reportdir_commit(rd, NULL), HC_OK);
-	reportdir_free(rd);
-	assert_int_equal(reportdir_begin(&rd, target, 1, NULL, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_commit(rd, NULL), HC_OK);
+	hc_reportdir_free(rd);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 1, NULL, NULL), HC_OK);
 	write_one(rd, "summary.md", "new\n");
 	assert_true(exists(target, "old-only.txt"));   /* old report intact until commit */
-	assert_int_equal(reportdir_commit(rd, NULL), HC_OK);
-	reportdir_free(rd);
+	assert_int_equal(hc_reportdir_commit(rd, NULL), HC_OK);
+	hc_reportdir_free(rd);
 	assert_true(exists(target, "summary.md"));
 	assert_false(exists(target, "old-only.txt"));
 	assert_int_equal(leftovers(), 0);
@@ -169,9 +169,9 @@ static void test_reportdir_free_without_commit_removes_everything(void **state)
 
 	(void)state;
 	fresh("abort");
-	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
 	write_one(rd, "curve.csv", "n\n1\n");
-	reportdir_free(rd);
+	hc_reportdir_free(rd);
 	assert_false(exists(target, NULL));
 	assert_int_equal(leftovers(), 0);
 }
@@ -183,15 +183,15 @@ static void test_reportdir_unlink_pending_empties_the_temporary_folder(void **st
 
 	(void)state;
 	fresh("signal");
-	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, NULL, NULL), HC_OK);
 	write_one(rd, "a.dat", "1 2\n");
-	assert_int_equal(reportdir_expect(rd, "a.png", NULL), HC_OK);   /* never made */
-	snprintf(tmp, sizeof tmp, "%s", reportdir_tmp_path(rd));
-	reportdir_unlink_pending();
+	assert_int_equal(hc_reportdir_expect(rd, "a.png", NULL), HC_OK);   /* never made */
+	snprintf(tmp, sizeof tmp, "%s", hc_reportdir_tmp_path(rd));
+	hc_reportdir_unlink_pending();
 	assert_false(exists(tmp, NULL));
-	reportdir_free(rd);
+	hc_reportdir_free(rd);
 	assert_int_equal(leftovers(), 0);
-	assert_int_equal(reportdir_expect(rd = NULL, "../x", NULL), HC_EUSAGE);
+	assert_int_equal(hc_reportdir_expect(rd = NULL, "../x", NULL), HC_EUSAGE);
 }
 
 /* A leftover whose marker names a finished process is removed; one whose
@@ -224,11 +224,11 @@ static void test_reportdir_begin_removes_stale_leftovers(void **state)
 	fp = fopen(p, "w");
 	fprintf(fp, "%ld\n", (long)getpid());
 	fclose(fp);
-	assert_int_equal(reportdir_begin(&rd, target, 0, &removed, NULL), HC_OK);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, &removed, NULL), HC_OK);
 	assert_int_equal(removed, 1);
 	assert_false(exists(dead, NULL));
 	assert_true(exists(live, NULL));
-	reportdir_free(rd);
+	hc_reportdir_free(rd);
 }
 
 static void test_reportdir_allocation_failure_leaves_nothing(void **state)
@@ -239,7 +239,7 @@ static void test_reportdir_allocation_failure_leaves_nothing(void **state)
 	(void)state;
 	fresh("nomem");
 	hc_alloc_fail_after(0);
-	assert_int_equal(reportdir_begin(&rd, target, 0, NULL, &err), HC_ENOMEM);
+	assert_int_equal(hc_reportdir_begin(&rd, target, 0, NULL, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
 	assert_null(rd);
 	assert_int_equal(leftovers(), 0);

@@ -3,8 +3,8 @@
  *
  * References outside the module: the textbook two-pass covariance of the
  * test fixtures (tests/support/fixture.c, long double) for every window's
- * averages; the library's from-scratch route (universe_window +
- * moments_from_universe, what `describe` prints) for the sliding sums; the
+ * averages; the library's from-scratch route (hc_universe_window +
+ * hc_moments_from_universe, what `describe` prints) for the sliding sums; the
  * formula N* = (v-bar - c-bar)/(((1+x)^2 - 1) c-bar) for the direction of a
  * regime change.
  */
@@ -97,13 +97,13 @@ static struct universe *regime_universe(size_t m, size_t t, size_t change, doubl
 
 static void opts(struct rolling_options *o, size_t window, size_t step)
 {
-	rolling_options_init(o);
+	hc_rolling_options_init(o);
 	o->window = window;
 	o->step = step;
 }
 
 /* A window over the whole sample gives, bit for bit, what describe and
- * enough compute (moments_from_universe, rules_exact), and agrees with the
+ * enough compute (hc_moments_from_universe, hc_rules_exact), and agrees with the
  * textbook covariance to 1e-12 (rounding of sums of 37*36 terms). */
 static void test_rolling_whole_window_matches_moments(void **state)
 {
@@ -119,9 +119,9 @@ static void test_rolling_whole_window_matches_moments(void **state)
 	(void)state;
 	assert_non_null(u);
 	opts(&o, 90, 1);
-	assert_int_equal(rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 1);
-	assert_int_equal(moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_true(r->windows[0].average_variance == mo.average_variance);
 	assert_true(r->windows[0].average_covariance == mo.average_covariance);
 	assert_true(r->windows[0].average_correlation == mo.average_correlation);
@@ -129,7 +129,7 @@ static void test_rolling_whole_window_matches_moments(void **state)
 	assert_int_equal(r->windows[0].nrules, 4);
 	for (j = 0; j < r->windows[0].nrules; j++) {
 		const struct rule_result *w = &r->windows[0].rules[j];
-		assert_int_equal(rules_exact(&o.rules, w->rule, mo.average_variance,
+		assert_int_equal(hc_rules_exact(&o.rules, w->rule, mo.average_variance,
 					     mo.average_covariance, 37, 12.0, &rr, &err), HC_OK);
 		assert_int_equal(w->met, rr.met);
 		assert_int_equal(w->count, rr.count);
@@ -140,7 +140,7 @@ static void test_rolling_whole_window_matches_moments(void **state)
 	assert_true(rel(r->windows[0].average_variance, vbar) < 1e-12);
 	assert_true(rel(r->windows[0].average_covariance, cbar) < 1e-12);
 	assert_true(rel(r->windows[0].average_correlation, corr) < 1e-12);
-	rolling_result_free(r);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 
@@ -165,7 +165,7 @@ static void test_rolling_windows_follow_listings(void **state)
 	u->has_missing = 1;
 	opts(&o, 36, 3);
 	o.refresh = ROLLING_REFRESH_NEVER;
-	assert_int_equal(rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, (150 - 36) / 3 + 1);
 	for (j = 0; j < r->nwindows; j++) {
 		first = j * 3;
@@ -187,7 +187,7 @@ static void test_rolling_windows_follow_listings(void **state)
 		assert_true(rel(r->windows[j].average_covariance, cbar) < 1e-11);
 		assert_true(rel(r->windows[j].average_correlation, corr) < 1e-11);
 	}
-	rolling_result_free(r);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 
@@ -206,9 +206,9 @@ static void test_rolling_sliding_agrees_with_scratch(void **state)
 	assert_non_null(u);
 	opts(&o, 60, 1);
 	o.refresh = ROLLING_REFRESH_NEVER;
-	assert_int_equal(rolling_run(&a, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&a, u, &o, &err), HC_OK);
 	o.from_scratch = 1;
-	assert_int_equal(rolling_run(&b, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&b, u, &o, &err), HC_OK);
 	assert_int_equal(a->nwindows, 2041);
 	for (j = 0; j < a->nwindows; j++) {
 		const struct rolling_window *x = &a->windows[j], *y = &b->windows[j];
@@ -221,8 +221,8 @@ static void test_rolling_sliding_agrees_with_scratch(void **state)
 			assert_int_equal(x->rules[q].count, y->rules[q].count);
 	}
 	assert_int_equal(slid, 2040);
-	rolling_result_free(a);
-	rolling_result_free(b);
+	hc_rolling_result_free(a);
+	hc_rolling_result_free(b);
 	fixture_free(u);
 }
 
@@ -242,7 +242,7 @@ static void test_rolling_counts_rise_after_regime_change(void **state)
 	(void)state;
 	opts(&o, 60, 12);
 	o.rules.selected = RULES_FLAG(RULES_NEAR_FLOOR) | RULES_FLAG(RULES_TRACKING_ERROR);
-	assert_int_equal(rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
 	for (j = 0; j < r->nwindows; j++) {
 		const struct rolling_window *w = &r->windows[j];
 		assert_true(w->rules[0].met);
@@ -254,7 +254,7 @@ static void test_rolling_counts_rise_after_regime_change(void **state)
 	}
 	assert_true(after_min > 2 * before_max);
 	assert_true(r->windows[r->nwindows - 1].rules[1].count > r->windows[0].rules[1].count);
-	rolling_result_free(r);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 
@@ -265,7 +265,7 @@ static void test_rolling_window_without_figures(void **state)
 	struct universe *u = fixture_random_universe(3, 48, 7);
 	struct rolling_options o;
 	struct rolling_result *r = NULL;
-	struct report *rep = report_alloc();
+	struct report *rep = hc_report_alloc();
 	struct hc_error err;
 	size_t k;
 
@@ -275,17 +275,17 @@ static void test_rolling_window_without_figures(void **state)
 		u->x[k] = u->x[48 + k] = NAN;
 	u->has_missing = 1;
 	opts(&o, 12, 12);
-	assert_int_equal(rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 4);
 	assert_int_equal(r->windows[0].status, HC_EDATA);
 	assert_int_equal(r->windows[1].status, HC_EDATA);
 	assert_non_null(strstr(r->windows[0].note, "expected at least 2"));
 	assert_int_equal(r->windows[2].status, HC_OK);
 	assert_int_equal(r->windows[2].securities, 3);
-	assert_int_equal(rolling_report(rep, r, &err), HC_OK);
+	assert_int_equal(hc_rolling_report(rep, r, &err), HC_OK);
 	assert_int_equal(rep->tables[0]->cells[0 * rep->tables[0]->ncols + 3].kind, REPORT_NONE);
-	report_free(rep);
-	rolling_result_free(r);
+	hc_report_free(rep);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 
@@ -307,15 +307,15 @@ static void test_rolling_bootstrap_interval(void **state)
 	opts(&o, 48, 24);
 	o.replicates = 64;
 	o.boot.seed = 31337;
-	assert_int_equal(rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 2);
-	assert_int_equal(universe_window(&w, u, 24, 48, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_OK);
+	assert_int_equal(hc_universe_window(&w, u, 24, 48, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_OK);
 	bo = o.boot;
 	bo.replicates = 64;
-	assert_int_equal(bootstrap_base_alloc(&base, w, &err), HC_OK);
-	assert_int_equal(bootstrap_run(&br, base, &bo, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_base_alloc(&base, w, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_run(&br, base, &bo, &err), HC_OK);
 	memcpy(res, r->windows[1].rules, sizeof res);
-	assert_int_equal(rules_bootstrap_exact(&o.rules, br->vbar, br->cbar, 64, 30, 12.0, res,
+	assert_int_equal(hc_rules_bootstrap_exact(&o.rules, br->vbar, br->cbar, 64, 30, 12.0, res,
 					       r->windows[1].nrules, &err), HC_OK);
 	for (j = 0; j < r->windows[1].nrules; j++) {
 		assert_true(r->windows[1].rules[j].bootstrapped);
@@ -323,10 +323,10 @@ static void test_rolling_bootstrap_interval(void **state)
 		assert_true(memcmp(&res[j].count_p05, &r->windows[1].rules[j].count_p05, sizeof(double)) == 0);
 		assert_true(memcmp(&res[j].count_p95, &r->windows[1].rules[j].count_p95, sizeof(double)) == 0);
 	}
-	bootstrap_result_free(br);
-	bootstrap_base_free(base);
-	universe_free(w);
-	rolling_result_free(r);
+	hc_bootstrap_result_free(br);
+	hc_bootstrap_base_free(base);
+	hc_universe_free(w);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 
@@ -341,15 +341,15 @@ static void test_rolling_report_contract(void **state)
 	struct universe *u = fixture_random_universe(12, 40, 3);
 	struct rolling_options o;
 	struct rolling_result *r = NULL;
-	struct report *rep = report_alloc();
+	struct report *rep = hc_report_alloc();
 	struct hc_error err;
 	struct report_table *t;
 	size_t j;
 
 	(void)state;
 	opts(&o, 24, 8);
-	assert_int_equal(rolling_run(&r, u, &o, &err), HC_OK);
-	assert_int_equal(rolling_report(rep, r, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_report(rep, r, &err), HC_OK);
 	t = rep->tables[0];
 	assert_int_equal(t->ncols, sizeof want / sizeof *want);
 	for (j = 0; j < t->ncols; j++)
@@ -357,8 +357,8 @@ static void test_rolling_report_contract(void **state)
 	assert_int_equal(t->nrows, 3);
 	assert_true(rel(t->cells[6].real, sqrt(r->windows[0].average_covariance * 12.0)) < 1e-15);
 	assert_true(rel(t->cells[3].real, r->windows[0].average_variance * 12.0) < 1e-15);
-	report_free(rep);
-	rolling_result_free(r);
+	hc_report_free(rep);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 
@@ -367,7 +367,7 @@ static void expect_usage(const struct universe *u, const struct rolling_options 
 	struct rolling_result *r = (void *)1;
 	struct hc_error err;
 
-	assert_int_equal(rolling_run(&r, u, o, &err), HC_EUSAGE);
+	assert_int_equal(hc_rolling_run(&r, u, o, &err), HC_EUSAGE);
 	assert_null(r);
 	assert_non_null(strstr(err.message, what));
 }
@@ -417,7 +417,7 @@ static void test_rolling_allocation_failure(void **state)
 	o.refresh = 4;
 	for (k = 0;; k++) {
 		hc_alloc_fail_after(k);
-		rc = rolling_run(&r, u, &o, &err);
+		rc = hc_rolling_run(&r, u, &o, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -425,7 +425,7 @@ static void test_rolling_allocation_failure(void **state)
 		assert_null(r);
 	}
 	assert_true(k > 10);
-	rolling_result_free(r);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 
@@ -444,15 +444,15 @@ static void test_rolling_pairwise_policy(void **state)
 	u->has_missing = 1;
 	opts(&o, 40, 10);
 	o.missing = UNIVERSE_MISSING_PAIRWISE;
-	assert_int_equal(rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 3);
 	assert_int_equal(r->windows[1].securities, 8);
-	assert_int_equal(universe_window(&w, u, 10, 40, UNIVERSE_MISSING_PAIRWISE, 0.8, &err), HC_OK);
-	assert_int_equal(moments_from_universe(&mo, w, &err), HC_OK);
+	assert_int_equal(hc_universe_window(&w, u, 10, 40, UNIVERSE_MISSING_PAIRWISE, 0.8, &err), HC_OK);
+	assert_int_equal(hc_moments_from_universe(&mo, w, &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_PAIRWISE);
 	assert_true(r->windows[1].average_covariance == mo.average_covariance);
-	universe_free(w);
-	rolling_result_free(r);
+	hc_universe_free(w);
+	hc_rolling_result_free(r);
 	fixture_free(u);
 }
 

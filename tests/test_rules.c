@@ -79,7 +79,7 @@ static void test_rules_near_floor_matches_closed_form(void **state)
 	struct hc_error err;
 	size_t c, k, n;
 
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	for (c = 0; c < NCASES; c++)
 		for (k = 0; k < 4; k++) {
 			long double v = (long double)cases[c].vbar * cases[c].ppy;
@@ -87,7 +87,7 @@ static void test_rules_near_floor_matches_closed_form(void **state)
 			size_t limit = cases[c].m ? cases[c].m : 100000;
 
 			cfg.near_floor_x = xs[k];
-			assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, cases[c].vbar, cases[c].cbar,
+			assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, cases[c].vbar, cases[c].cbar,
 						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
 			if (!(cases[c].cbar > 0)) {
 				assert_false(res.defined);
@@ -120,15 +120,15 @@ static void test_rules_near_floor_elton_gruber(void **state)
 	 * 46.619 and covariance 7.058 (values from memory, design.md section
 	 * 11).  (46.619 - 7.058) / (0.21 x 7.058) = 26.69 -> 27 at x = 10%;
 	 * / (0.1025 x 7.058) = 54.68 -> 55 at x = 5% (by hand). */
-	rules_config_init(&cfg);
-	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 0, 1, &res, &err), HC_OK);
+	hc_rules_config_init(&cfg);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 0, 1, &res, &err), HC_OK);
 	assert_true(res.met);
 	assert_int_equal(res.count, 27);
 	cfg.near_floor_x = 0.05;
-	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 0, 1, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 0, 1, &res, &err), HC_OK);
 	assert_int_equal(res.count, 55);
 	/* the same figures in a finite universe of 40: 55 is not reachable */
-	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 40, 1, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, 46.619, 7.058, 40, 1, &res, &err), HC_OK);
 	assert_false(res.met);
 	assert_string_equal(res.note, "not met within the universe of 40 securities");
 }
@@ -141,7 +141,7 @@ static void test_rules_tracking_error_matches_closed_form(void **state)
 	struct hc_error err;
 	size_t c, k, n;
 
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	for (c = 0; c < NCASES; c++)
 		for (k = 0; k < 3; k++) {
 			long double d = ((long double)cases[c].vbar - cases[c].cbar) * cases[c].ppy;
@@ -149,7 +149,7 @@ static void test_rules_tracking_error_matches_closed_form(void **state)
 			long double b2 = (long double)budgets[k] * budgets[k];
 
 			cfg.te_budget = budgets[k];
-			assert_int_equal(rules_exact(&cfg, RULES_TRACKING_ERROR, cases[c].vbar, cases[c].cbar,
+			assert_int_equal(hc_rules_exact(&cfg, RULES_TRACKING_ERROR, cases[c].vbar, cases[c].cbar,
 						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
 			/* (v-bar - c-bar)(1/N - 1/M) <= b^2, scanned from N = 1 */
 			for (n = 1; !(d * (1.0L / n - inv_m) <= b2); n++)
@@ -174,7 +174,7 @@ static void test_rules_marginal_and_cost_benefit_match_brute_scan(void **state)
 	struct hc_error err;
 	size_t c, k, n;
 
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	for (c = 0; c < NCASES; c++)
 		for (k = 0; k < 3; k++) {
 			double v = cases[c].vbar * cases[c].ppy, cb = cases[c].cbar * cases[c].ppy;
@@ -182,7 +182,7 @@ static void test_rules_marginal_and_cost_benefit_match_brute_scan(void **state)
 			double su = cases[c].m ? naive_sd(v, cb, (double)cases[c].m) : sqrt(cb);
 
 			cfg.marginal_eps = eps[k];
-			assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, cases[c].vbar, cases[c].cbar,
+			assert_int_equal(hc_rules_exact(&cfg, RULES_MARGINAL, cases[c].vbar, cases[c].cbar,
 						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
 			for (n = 1; n <= limit && !(naive_sd(v, cb, n) - naive_sd(v, cb, n + 1) < eps[k]); n++)
 				;
@@ -196,7 +196,7 @@ static void test_rules_marginal_and_cost_benefit_match_brute_scan(void **state)
 			/* cost-benefit after Statman (1987): premium (s(N) - s(N+1)) / s_u < cost */
 			cfg.premium = 0.0613;
 			cfg.holding_cost = eps[k] / 4;
-			assert_int_equal(rules_exact(&cfg, RULES_COST_BENEFIT, cases[c].vbar, cases[c].cbar,
+			assert_int_equal(hc_rules_exact(&cfg, RULES_COST_BENEFIT, cases[c].vbar, cases[c].cbar,
 						     cases[c].m, cases[c].ppy, &res, &err), HC_OK);
 			for (n = 1; n <= limit &&
 			     !(cfg.premium * (naive_sd(v, cb, n) - naive_sd(v, cb, n + 1)) / su < cfg.holding_cost); n++)
@@ -217,36 +217,36 @@ static void test_rules_edge_cases(void **state)
 	struct rule_result res;
 	struct hc_error err;
 
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	/* met at N = 1: v-bar within (1.1)^2 = 1.21 of c-bar */
-	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 0.00513, 0.00447, 30, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, 0.00513, 0.00447, 30, 12, &res, &err), HC_OK);
 	assert_true(res.met);
 	assert_int_equal(res.count, 1);
 	/* marginal met at N = 1: s(1) - s(2) = 0.2481 - 0.2474 < 0.001 a year */
-	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.00513, 0.00507, 30, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_MARGINAL, 0.00513, 0.00507, 30, 12, &res, &err), HC_OK);
 	assert_int_equal(res.count, 1);
 	/* M = 2: marginal compares N = 1 with N = 2 only */
-	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.0119, 0.0021, 2, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_MARGINAL, 0.0119, 0.0021, 2, 12, &res, &err), HC_OK);
 	assert_false(res.met);
 	assert_string_equal(res.note, "not met within the universe of 2 securities");
 	/* tracking error is zero at N = M, so always met */
-	assert_int_equal(rules_exact(&cfg, RULES_TRACKING_ERROR, 0.0119, 0.0021, 2, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_TRACKING_ERROR, 0.0119, 0.0021, 2, 12, &res, &err), HC_OK);
 	assert_true(res.met);
 	assert_int_equal(res.count, 2);
 	assert_close(res.value, 0.0, 1e-15);
 	/* c-bar <= 0: near-floor undefined, never a number */
-	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 0.0119, -0.0003, 25, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, 0.0119, -0.0003, 25, 12, &res, &err), HC_OK);
 	assert_false(res.defined);
 	assert_false(res.met);
 	assert_string_equal(res.note, "undefined: the floor (average covariance -0.0036 a year) is not above zero");
-	assert_int_equal(rules_exact_count(&cfg, RULES_NEAR_FLOOR, 0.0119, -0.0003, 25, 12, &(size_t){0}), -1);
+	assert_int_equal(hc_rules_exact_count(&cfg, RULES_NEAR_FLOOR, 0.0119, -0.0003, 25, 12, &(size_t){0}), -1);
 	/* invalid calls */
-	assert_int_equal(rules_exact(&cfg, RULES_NEAR_FLOOR, 0.0119, 0.0021, 1, 12, &res, &err), HC_EUSAGE);
-	assert_int_equal(rules_exact(&cfg, RULES_BAND, 0.0119, 0.0021, 10, 12, &res, &err), HC_EUSAGE);
-	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.0119, -0.0021, 0, 12, &res, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, 0.0119, 0.0021, 1, 12, &res, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_BAND, 0.0119, 0.0021, 10, 12, &res, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_MARGINAL, 0.0119, -0.0021, 0, 12, &res, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "unbounded"));
-	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, NAN, 0.0021, 10, 12, &res, &err), HC_EUSAGE);
-	assert_int_equal(rules_exact(&cfg, RULES_MARGINAL, 0.0119, 0.0021, 10, 0, &res, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_MARGINAL, NAN, 0.0021, 10, 12, &res, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_exact(&cfg, RULES_MARGINAL, 0.0119, 0.0021, 10, 0, &res, &err), HC_EUSAGE);
 }
 
 /*
@@ -267,12 +267,12 @@ static void test_rules_realistic_averages_land_in_the_tens(void **state)
 	size_t k, n;
 	int rule;
 
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	for (k = 0; k < 3; k++) {
 		double v = 0.35 * 0.35 / 12;
 
 		for (rule = RULES_NEAR_FLOOR; rule <= RULES_MARGINAL; rule++) {
-			assert_int_equal(rules_exact_count(&cfg, rule, v, rho[k] * v, 500, 12, &n), 1);
+			assert_int_equal(hc_rules_exact_count(&cfg, rule, v, rho[k] * v, 500, 12, &n), 1);
 			assert_in_range(n, 10, 99);
 		}
 	}
@@ -299,15 +299,15 @@ static void test_rules_realistic_averages_land_in_the_tens(void **state)
 		u.x = x;
 		for (t = 0; t < T; t++)
 			w[t] = 1;
-		assert_int_equal(bootstrap_base_alloc(&b, &u, &err), HC_OK);
-		bootstrap_moments(b, w, &vbar, &cbar);
+		assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+		hc_bootstrap_moments(b, w, &vbar, &cbar);
 		/* the generated universe's average correlation is about 0.2 */
 		assert_in_range((long)(100 * cbar / vbar), 10, 30);
 		for (rule = RULES_NEAR_FLOOR; rule <= RULES_MARGINAL; rule++) {
-			assert_int_equal(rules_exact_count(&cfg, rule, vbar, cbar, M, 12, &n), 1);
+			assert_int_equal(hc_rules_exact_count(&cfg, rule, vbar, cbar, M, 12, &n), 1);
 			assert_in_range(n, 10, 99);
 		}
-		bootstrap_base_free(b);
+		hc_bootstrap_base_free(b);
 		gsl_rng_free(rng);
 		free(x);
 		free(w);
@@ -374,7 +374,7 @@ static void test_rules_band_matches_gsl_quantile(void **state)
 	for (j = 0; j < NS; j++)
 		sizes[j] = j + 1;
 	r = fake_sampled(K, NS, sizes, v, c);
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	for (iq = 0; iq < sizeof qs / sizeof qs[0]; iq++) {
 		cfg.band_q = qs[iq];
 		cfg.band_x = xs[iq];
@@ -389,7 +389,7 @@ static void test_rules_band_matches_gsl_quantile(void **state)
 			;
 		/* expect is now the index of the settled count (NS: not met) */
 		assert_true(expect > 3 && expect < NS - 3);
-		assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
+		assert_int_equal(hc_rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
 		assert_true(res.met);
 		assert_int_equal(res.count, sizes[expect]);
 		assert_close(res.value, qv[expect], 1e-15);
@@ -397,15 +397,15 @@ static void test_rules_band_matches_gsl_quantile(void **state)
 		print_message("band q=%g x=%g: settled at %zu\n", qs[iq], xs[iq], res.count);
 	}
 	/* a floor at zero leaves the band undefined */
-	assert_int_equal(rules_band(&cfg, r, 0.0, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_band(&cfg, r, 0.0, 12, &res, &err), HC_OK);
 	assert_false(res.defined);
 	/* allocation failure of the workspace */
 	hc_alloc_fail_after(0);
-	assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_ENOMEM);
+	assert_int_equal(hc_rules_band(&cfg, r, c, 12, &res, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
 	/* a grid with gaps says so */
 	r->sizes[NS - 1] = 200;
-	assert_int_equal(rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_band(&cfg, r, c, 12, &res, &err), HC_OK);
 	assert_non_null(strstr(res.note, "sampled grid"));
 	free_fake(r);
 }
@@ -423,7 +423,7 @@ static void test_rules_shortfall_counts_trailing_share(void **state)
 	for (j = 0; j < NS; j++)
 		sizes[j] = j + 1;
 	r = fake_sampled(K, NS, sizes, 0.0117, 0.0023);
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	cfg.shortfall_d = 0.0215;
 	/* the definition (after Domian, Louton & Racine, 2007): share of
 	 * portfolios with annual return below universe - d, below p from the
@@ -438,17 +438,17 @@ static void test_rules_shortfall_counts_trailing_share(void **state)
 	for (expect = NS; expect > 0 && share[expect - 1] < 0.10; expect--)
 		;
 	assert_true(expect > 3 && expect < NS);
-	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
 	assert_int_equal(res.count, sizes[expect]);
 	assert_close(res.value, share[expect], 0);
 	/* p so small that no size reaches it */
 	cfg.shortfall_p = 1e-9;
-	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_OK);
 	assert_false(res.met);
 	assert_non_null(strstr(res.note, "not met"));
 	free(r->annual_return);
 	r->annual_return = NULL;
-	assert_int_equal(rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_shortfall(&cfg, r, 0.0843, &res, &err), HC_EUSAGE);
 	free_fake(r);
 }
 
@@ -533,8 +533,8 @@ static void test_rules_sampled_matrix_agrees_with_returns(void **state)
 		double *a, csum = 0, cbar;
 		size_t i, j, m = u_cases[c].m;
 
-		universe_options_init(&uo);
-		assert_int_equal(universe_load_buffer(&u, "u.csv", text, strlen(text), &uo, &err), HC_OK);
+		hc_universe_options_init(&uo);
+		assert_int_equal(hc_universe_load_buffer(&u, "u.csv", text, strlen(text), &uo, &err), HC_OK);
 		free(text);
 		a = textbook_cov(u);
 		for (i = 0; i < m; i++)
@@ -542,16 +542,16 @@ static void test_rules_sampled_matrix_agrees_with_returns(void **state)
 				if (i != j)
 					csum += a[i * m + j];
 		cbar = csum / ((double)m * (double)(m - 1));
-		rules_config_init(&cfg);
+		hc_rules_config_init(&cfg);
 		cfg.selected = RULES_FLAG(RULES_BAND);
 		cfg.band_x = u_cases[c].x;
-		sampler_options_init(&so);
+		hc_sampler_options_init(&so);
 		so.paths = 400;
 		so.seed = 77 + c;
 		so.threads = 1;
 		so.periods_per_year = 12;
-		assert_int_equal(rules_sampled(&cfg, u, &so, cbar, rr, &nr, &kr, &err), HC_OK);
-		assert_int_equal(rules_sampled_matrix(&cfg, a, m, &so, cbar, rm, &nm, &km, &err), HC_OK);
+		assert_int_equal(hc_rules_sampled(&cfg, u, &so, cbar, rr, &nr, &kr, &err), HC_OK);
+		assert_int_equal(hc_rules_sampled_matrix(&cfg, a, m, &so, cbar, rm, &nm, &km, &err), HC_OK);
 		assert_int_equal(nr, 1);
 		assert_int_equal(nm, 1);
 		assert_int_equal(rm[0].rule, RULES_BAND);
@@ -565,11 +565,11 @@ static void test_rules_sampled_matrix_agrees_with_returns(void **state)
 			assert_true(rm[0].count > RULES_SAMPLED_FIRST_K && km == m);
 		/* shortfall compounds returns over time: not from a matrix */
 		cfg.selected |= RULES_FLAG(RULES_SHORTFALL);
-		assert_int_equal(rules_sampled_matrix(&cfg, a, m, &so, cbar, rm, &nm, &km, &err), HC_EUSAGE);
+		assert_int_equal(hc_rules_sampled_matrix(&cfg, a, m, &so, cbar, rm, &nm, &km, &err), HC_EUSAGE);
 		assert_int_equal(nm, 0);
 		assert_non_null(strstr(err.message, "covariance matrix has none"));
 		free(a);
-		universe_free(u);
+		hc_universe_free(u);
 	}
 }
 
@@ -617,38 +617,38 @@ static void test_rules_sampled_rules_settle(void **state)
 	r.variance = variance;
 	r.annual_return = ret;
 	r.feasible = feasible;
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	cfg.band_q = 0.5;
 	cfg.band_x = 0.10;
 	cfg.shortfall_d = 0.01;
 	cfg.shortfall_p = 0.30;
-	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
 	assert_true(res.met);
 	assert_int_equal(res.count, 6);
 	assert_close(res.value, 0.105, 1e-15);
-	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
 	assert_true(res.met);
 	assert_int_equal(res.count, 6);
 	assert_close(res.value, 0.2, 0);
-	/* sizes 9 and 10 infeasible (their cells as strata_run leaves them) */
+	/* sizes 9 and 10 infeasible (their cells as hc_strata_run leaves them) */
 	feasible[8] = feasible[9] = 0;
 	for (k = 0; k < K; k++) {
 		variance[k * NS + 8] = variance[k * NS + 9] = INFINITY;
 		ret[k * NS + 8] = ret[k * NS + 9] = -1;
 	}
-	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
 	assert_int_equal(res.count, 6);
-	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
 	assert_int_equal(res.count, 6);
 	/* the largest feasible size fails: not met, whatever came before */
 	for (k = 0; k < K; k++)
 		variance[k * NS + 7] = 0.2 * 0.2;
 	for (k = 0; k < 2; k++)
 		ret[k * NS + 7] = 0.0111;
-	assert_int_equal(rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_band(&cfg, &r, 0.01, 1, &res, &err), HC_OK);
 	assert_false(res.met);
 	assert_true(isnan(res.value));
-	assert_int_equal(rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
+	assert_int_equal(hc_rules_shortfall(&cfg, &r, 0.05, &res, &err), HC_OK);
 	assert_false(res.met);
 }
 
@@ -668,16 +668,16 @@ static void test_rules_universe_return(void **state)
 	u.m = 3;
 	u.t = 4;
 	u.x = x;
-	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_OK);
+	assert_int_equal(hc_rules_universe_return(&u, 4, &got, &err), HC_OK);
 	assert_close(got, expect, 1e-15);
 	/* over two years at P = 2: the yearly rate is the square root */
-	assert_int_equal(rules_universe_return(&u, 2, &got, &err), HC_OK);
+	assert_int_equal(hc_rules_universe_return(&u, 2, &got, &err), HC_OK);
 	assert_close(got, sqrt(1 + expect) - 1, 1e-15);
 	x[4] = x[8] = -1.5;
 	x[0] = -0.2;
-	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_EDATA);
+	assert_int_equal(hc_rules_universe_return(&u, 4, &got, &err), HC_EDATA);
 	u.has_missing = 1;
-	assert_int_equal(rules_universe_return(&u, 4, &got, &err), HC_EDATA);
+	assert_int_equal(hc_rules_universe_return(&u, 4, &got, &err), HC_EDATA);
 }
 
 /* Check one set of replicate counts (0 = not met) against the percentiles
@@ -692,7 +692,7 @@ static void check_interval(const size_t *counts, size_t n, double p05, double p5
 	for (k = 0; k < n; k++)
 		met += counts[k] != 0;
 	res.rule = RULES_NEAR_FLOOR;
-	rules_set_interval(&res, c, n);
+	hc_rules_set_interval(&res, c, n);
 	assert_true(res.bootstrapped);
 	assert_int_equal(res.replicates, n);
 	assert_int_equal(res.replicates_met, met);
@@ -750,17 +750,17 @@ static void test_rules_bootstrap_percentiles(void **state)
 	/* every percentile is some replicate's count: against the definition by
 	 * enumeration on 400 random sets of 1..300 replicates, some not met */
 	for (k = 0; k < 400; k++) {
-		size_t n = 1 + sampler_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
+		size_t n = 1 + hc_sampler_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
 		struct rule_result r;
 
 		assert_non_null(c);
 		for (j = 0; j < n; j++) {
-			uint64_t z = sampler_splitmix64(&st);
+			uint64_t z = hc_sampler_splitmix64(&st);
 			c[j] = z % 23 == 0 ? 0 : 9 + z % 41;
 		}
 		memcpy(counts, c, n * sizeof *c);
 		r.rule = RULES_MARGINAL;
-		rules_set_interval(&r, c, n);
+		hc_rules_set_interval(&r, c, n);
 		{
 			double w05 = brute_percentile(counts, n, 5), w50 = brute_percentile(counts, n, 50);
 			double w95 = brute_percentile(counts, n, 95);
@@ -771,7 +771,7 @@ static void test_rules_bootstrap_percentiles(void **state)
 		}
 		free(c);
 	}
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	/* replicate k has c-bar chosen so that the near-floor count is
 	 * ceil((v - c)/(0.21 c)): with v = 0.01 and c = v / (1 + 0.21 n_k - 0.5 x 0.21)
 	 * the count is exactly n_k = 11 + k/4 (by hand from the closed form). */
@@ -784,7 +784,7 @@ static void test_rules_bootstrap_percentiles(void **state)
 	res[0].rule = RULES_NEAR_FLOOR;
 	res[1].rule = RULES_BAND;   /* sampled: left alone */
 	res[1].bootstrapped = 0;
-	assert_int_equal(rules_bootstrap_exact(&cfg, vbar, cbar, B, 0, 1, res, 2, &err), HC_OK);
+	assert_int_equal(hc_rules_bootstrap_exact(&cfg, vbar, cbar, B, 0, 1, res, 2, &err), HC_OK);
 	assert_false(res[1].bootstrapped);
 	assert_true(res[0].bootstrapped);
 	assert_int_equal(res[0].replicates_met, B);
@@ -796,19 +796,19 @@ static void test_rules_bootstrap_percentiles(void **state)
 	/* six replicates not met (0) of 101: over 5%, so the 95th is "not met" */
 	for (k = 0; k < B; k++)
 		counts[k] = k < 6 ? 0 : 20 + k % 7;
-	rules_set_interval(&res[0], counts, B);
+	hc_rules_set_interval(&res[0], counts, B);
 	assert_int_equal(res[0].replicates_met, B - 6);
 	assert_true(isnan(res[0].count_p95));
 	assert_false(isnan(res[0].count_p50));
 	/* five of 101: the 96th smallest is the largest met count */
 	for (k = 0; k < B; k++)
 		counts[k] = k < 5 ? 0 : 20 + k % 7;
-	rules_set_interval(&res[0], counts, B);
+	hc_rules_set_interval(&res[0], counts, B);
 	assert_close(res[0].count_p95, 26, 0);
 	hc_alloc_fail_after(0);
-	assert_int_equal(rules_bootstrap_exact(&cfg, vbar, cbar, B, 0, 1, res, 1, &err), HC_ENOMEM);
+	assert_int_equal(hc_rules_bootstrap_exact(&cfg, vbar, cbar, B, 0, 1, res, 1, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
-	assert_int_equal(rules_bootstrap_exact(&cfg, vbar, cbar, 0, 0, 1, res, 1, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_bootstrap_exact(&cfg, vbar, cbar, 0, 0, 1, res, 1, &err), HC_EUSAGE);
 }
 
 static void test_rules_parse_list_and_config(void **state)
@@ -817,28 +817,28 @@ static void test_rules_parse_list_and_config(void **state)
 	struct hc_error err;
 	unsigned mask;
 
-	assert_int_equal(rules_parse_list("near-floor,tracking-error", &mask, &err), HC_OK);
+	assert_int_equal(hc_rules_parse_list("near-floor,tracking-error", &mask, &err), HC_OK);
 	assert_int_equal(mask, RULES_FLAG(RULES_NEAR_FLOOR) | RULES_FLAG(RULES_TRACKING_ERROR));
-	assert_int_equal(rules_parse_list("exact,shortfall", &mask, &err), HC_OK);
+	assert_int_equal(hc_rules_parse_list("exact,shortfall", &mask, &err), HC_OK);
 	assert_int_equal(mask, RULES_EXACT_MASK | RULES_FLAG(RULES_SHORTFALL));
-	assert_int_equal(rules_parse_list("all", &mask, &err), HC_OK);
+	assert_int_equal(hc_rules_parse_list("all", &mask, &err), HC_OK);
 	assert_int_equal(mask, RULES_ALL_MASK);
-	assert_int_equal(rules_parse_list("near-floor,nearfloor", &mask, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_parse_list("near-floor,nearfloor", &mask, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "bad rule list: 'nearfloor' is not a rule"));
-	assert_int_equal(rules_parse_list("marginal,", &mask, &err), HC_EUSAGE);
-	assert_string_equal(rules_name(RULES_COST_BENEFIT), "cost-benefit");
-	assert_null(rules_name(RULES_COUNT));
-	rules_config_init(&cfg);
-	assert_int_equal(rules_config_check(&cfg, &err), HC_OK);
+	assert_int_equal(hc_rules_parse_list("marginal,", &mask, &err), HC_EUSAGE);
+	assert_string_equal(hc_rules_name(RULES_COST_BENEFIT), "cost-benefit");
+	assert_null(hc_rules_name(RULES_COUNT));
+	hc_rules_config_init(&cfg);
+	assert_int_equal(hc_rules_config_check(&cfg, &err), HC_OK);
 	cfg.band_q = 1.0;
-	assert_int_equal(rules_config_check(&cfg, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_config_check(&cfg, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "band quantile"));
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	cfg.te_budget = -0.02;
-	assert_int_equal(rules_config_check(&cfg, &err), HC_EUSAGE);
-	rules_config_init(&cfg);
+	assert_int_equal(hc_rules_config_check(&cfg, &err), HC_EUSAGE);
+	hc_rules_config_init(&cfg);
 	cfg.shortfall_p = 0;
-	assert_int_equal(rules_config_check(&cfg, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_config_check(&cfg, &err), HC_EUSAGE);
 }
 
 static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
@@ -849,8 +849,8 @@ static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
 	struct hc_error err;
 	size_t n;
 
-	rules_config_init(&cfg);
-	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	hc_rules_config_init(&cfg);
+	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
 	assert_int_equal(n, RULES_COUNT);
 	assert_string_equal(res[2].name, "band");
 	assert_false(res[2].defined);
@@ -859,11 +859,11 @@ static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
 	/* (0.011384 - 0.0021937) / (0.21 x 0.0021937) = 19.95 -> 20 (by hand) */
 	assert_int_equal(res[0].count, 20);
 	cfg.selected = RULES_FLAG(RULES_TRACKING_ERROR);
-	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
 	assert_int_equal(n, 1);
 	assert_string_equal(res[0].parameters, "budget=2% a year");
 	cfg.marginal_eps = 0;
-	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_EUSAGE);
 }
 
 /* Inputs not annualised (per_period): every amount says "per period" and the
@@ -878,10 +878,10 @@ static void test_rules_per_period_units(void **state)
 	struct hc_error err;
 	size_t n;
 
-	rules_config_init(&cfg);
+	hc_rules_config_init(&cfg);
 	cfg.selected = RULES_EXACT_MASK;
 	cfg.per_period = 1;
-	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
 	assert_int_equal(n, 4);
 	assert_string_equal(res[0].parameters, "x=10%");
 	assert_string_equal(res[0].unit, "sd per period");
@@ -891,23 +891,23 @@ static void test_rules_per_period_units(void **state)
 	assert_string_equal(res[2].unit, "return per period");
 	assert_string_equal(res[3].parameters, "budget=0.02 per period");
 	assert_string_equal(res[3].unit, "tracking error per period");
-	rep = report_alloc();
+	rep = hc_report_alloc();
 	assert_non_null(rep);
-	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	assert_int_equal(hc_rules_report(rep, res, n, &err), HC_OK);
 	t = rep->tables[0];
 	assert_int_equal(t->cells[3].style, REPORT_STYLE_PLAIN);      /* value at count */
 	assert_int_equal(t->cells[9].style, REPORT_STYLE_PLAIN);      /* threshold */
-	report_free(rep);
+	hc_report_free(rep);
 	/* annualised (the default): a year, percents */
 	cfg.per_period = 0;
-	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
 	assert_string_equal(res[3].parameters, "budget=2% a year");
 	assert_string_equal(res[0].unit, "sd a year");
-	rep = report_alloc();
+	rep = hc_report_alloc();
 	assert_non_null(rep);
-	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	assert_int_equal(hc_rules_report(rep, res, n, &err), HC_OK);
 	assert_int_equal(rep->tables[0]->cells[3].style, REPORT_STYLE_PERCENT);
-	report_free(rep);
+	hc_report_free(rep);
 }
 
 static void test_rules_report_contract_columns(void **state)
@@ -924,14 +924,14 @@ static void test_rules_report_contract_columns(void **state)
 	size_t n, k, counts[21];
 	long fail;
 
-	rules_config_init(&cfg);
-	assert_int_equal(rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	hc_rules_config_init(&cfg);
+	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
 	for (k = 0; k < 21; k++)
 		counts[k] = k < 3 ? 0 : 17 + k % 5;   /* 3 of 21 not met: p95 "not met" */
-	rules_set_interval(&res[0], counts, 21);
-	rep = report_alloc();
+	hc_rules_set_interval(&res[0], counts, 21);
+	rep = hc_report_alloc();
 	assert_non_null(rep);
-	assert_int_equal(rules_report(rep, res, n, &err), HC_OK);
+	assert_int_equal(hc_rules_report(rep, res, n, &err), HC_OK);
 	assert_int_equal(rep->ntables, 1);
 	t = rep->tables[0];
 	assert_string_equal(t->key, "rules");
@@ -958,16 +958,16 @@ static void test_rules_report_contract_columns(void **state)
 	assert_int_equal(t->cells[2 * 13 + 7].kind, REPORT_BOOL);
 	assert_int_equal(t->cells[2 * 13 + 7].integer, 0);
 	assert_string_equal(t->cells[2 * 13 + 12].text, "needs return data and sampled portfolios");
-	report_free(rep);
+	hc_report_free(rep);
 	/* every allocation failure is reported, none leaks or crashes */
 	for (fail = 0; fail < 200; fail++) {
 		int rc;
 
 		hc_alloc_fail_after(fail);
-		rep = report_alloc();
-		rc = rep ? rules_report(rep, res, n, &err) : HC_ENOMEM;
+		rep = hc_report_alloc();
+		rc = rep ? hc_rules_report(rep, res, n, &err) : HC_ENOMEM;
 		hc_alloc_fail_after(-1);
-		report_free(rep);
+		hc_report_free(rep);
 		if (rc == HC_OK)
 			break;
 		assert_int_equal(rc, HC_ENOMEM);

@@ -43,7 +43,7 @@ static void test_sectors_load_and_find(void **state)
 	struct sectors *s;
 	struct hc_error err;
 
-	assert_int_equal(sectors_load_buffer(&s, "map.csv", MAP, strlen(MAP), NULL, NULL, &err), HC_OK);
+	assert_int_equal(hc_sectors_load_buffer(&s, "map.csv", MAP, strlen(MAP), NULL, NULL, &err), HC_OK);
 	assert_int_equal(s->n, 6);
 	assert_int_equal(s->nlabels, 4);
 	assert_string_equal(s->labels[0], "Harbour works");
@@ -51,13 +51,13 @@ static void test_sectors_load_and_find(void **state)
 	assert_string_equal(s->labels[2], "Salt; brine");
 	assert_string_equal(s->labels[3], "Glassmakers");
 	assert_string_equal(s->ids[2], "KV03");
-	assert_int_equal(sectors_find(s, "KV05"), 0);
-	assert_int_equal(sectors_find(s, "KV04"), 1);
-	assert_int_equal(sectors_find(s, "KV06"), 3);
-	assert_int_equal(sectors_find(s, "kv06"), -1);
-	assert_int_equal(sectors_find(s, "KV07"), -1);
-	sectors_free(s);
-	sectors_free(NULL);
+	assert_int_equal(hc_sectors_find(s, "KV05"), 0);
+	assert_int_equal(hc_sectors_find(s, "KV04"), 1);
+	assert_int_equal(hc_sectors_find(s, "KV06"), 3);
+	assert_int_equal(hc_sectors_find(s, "kv06"), -1);
+	assert_int_equal(hc_sectors_find(s, "KV07"), -1);
+	hc_sectors_free(s);
+	hc_sectors_free(NULL);
 }
 
 static void test_sectors_column_names(void **state)
@@ -66,24 +66,24 @@ static void test_sectors_column_names(void **state)
 	struct sectors *s;
 	struct hc_error err;
 
-	assert_int_equal(sectors_load_buffer(&s, "map.csv", text, strlen(text), "CODE", "Group", &err), HC_OK);
-	assert_int_equal(sectors_find(s, "B2"), 1);
-	sectors_free(s);
-	assert_int_equal(sectors_load_buffer(&s, "map.csv", text, strlen(text), NULL, NULL, &err), HC_EDATA);
+	assert_int_equal(hc_sectors_load_buffer(&s, "map.csv", text, strlen(text), "CODE", "Group", &err), HC_OK);
+	assert_int_equal(hc_sectors_find(s, "B2"), 1);
+	hc_sectors_free(s);
+	assert_int_equal(hc_sectors_load_buffer(&s, "map.csv", text, strlen(text), NULL, NULL, &err), HC_EDATA);
 	assert_null(s);
 	assert_string_equal(err.message,
 		"map.csv:1: no column named 'id' in the header; expected it to hold the security ids");
-	assert_int_equal(sectors_load_buffer(&s, "map.csv", text, strlen(text), "code", NULL, &err), HC_EDATA);
+	assert_int_equal(hc_sectors_load_buffer(&s, "map.csv", text, strlen(text), "code", NULL, &err), HC_EDATA);
 	assert_string_equal(err.message,
 		"map.csv:1: no column named 'label' in the header; expected it to hold the sector labels");
-	assert_int_equal(sectors_load_buffer(&s, "map.csv", text, strlen(text), "code", "Code", &err), HC_EUSAGE);
+	assert_int_equal(hc_sectors_load_buffer(&s, "map.csv", text, strlen(text), "code", "Code", &err), HC_EUSAGE);
 }
 
 static void expect_error(const char *text, const char *prefix)
 {
 	struct sectors *s = (struct sectors *)1;
 	struct hc_error err;
-	int rc = sectors_load_buffer(&s, "map.csv", text, strlen(text), NULL, NULL, &err);
+	int rc = hc_sectors_load_buffer(&s, "map.csv", text, strlen(text), NULL, NULL, &err);
 
 	check_status_prefix(rc, HC_EDATA, err.message, prefix);
 	assert_null(s);
@@ -110,7 +110,7 @@ static struct universe *universe(void)
 	struct universe *u;
 	struct hc_error err;
 
-	if (universe_load_buffer(&u, "u.csv", UNIVERSE, strlen(UNIVERSE), NULL, &err) != HC_OK)
+	if (hc_universe_load_buffer(&u, "u.csv", UNIVERSE, strlen(UNIVERSE), NULL, &err) != HC_OK)
 		fail_msg("%s", err.message);
 	return u;
 }
@@ -127,8 +127,8 @@ static void test_sectors_strata(void **state)
 	static const size_t want[6] = { 1, 3, 0, 2, 0, 3 };
 	size_t i;
 
-	assert_int_equal(sectors_load_buffer(&s, "map.csv", MAP, strlen(MAP), NULL, NULL, &err), HC_OK);
-	assert_int_equal(sectors_strata(s, u, &st, &labels, &nlabels, &unmapped, &err), HC_OK);
+	assert_int_equal(hc_sectors_load_buffer(&s, "map.csv", MAP, strlen(MAP), NULL, NULL, &err), HC_OK);
+	assert_int_equal(hc_sectors_strata(s, u, &st, &labels, &nlabels, &unmapped, &err), HC_OK);
 	assert_int_equal(nlabels, 4);
 	assert_int_equal(unmapped, 2);
 	assert_string_equal(labels[0], "Harbour works");
@@ -137,9 +137,9 @@ static void test_sectors_strata(void **state)
 	assert_string_equal(labels[3], SECTORS_UNMAPPED_LABEL);
 	for (i = 0; i < 6; i++)
 		assert_int_equal(st[i], want[i]);
-	sectors_strata_free(st, labels, nlabels);
-	sectors_free(s);
-	universe_free(u);
+	hc_sectors_strata_free(st, labels, nlabels);
+	hc_sectors_free(s);
+	hc_universe_free(u);
 }
 
 static void test_sectors_strata_all_mapped(void **state)
@@ -153,16 +153,16 @@ static void test_sectors_strata_all_mapped(void **state)
 	static const size_t want[6] = { 0, 0, 1, 1, 2, 0 };
 	size_t i;
 
-	assert_int_equal(sectors_load_buffer(&s, "map.csv", map, strlen(map), NULL, NULL, &err), HC_OK);
-	assert_int_equal(sectors_strata(s, u, &st, &labels, &nlabels, &unmapped, &err), HC_OK);
+	assert_int_equal(hc_sectors_load_buffer(&s, "map.csv", map, strlen(map), NULL, NULL, &err), HC_OK);
+	assert_int_equal(hc_sectors_strata(s, u, &st, &labels, &nlabels, &unmapped, &err), HC_OK);
 	assert_int_equal(nlabels, 3);
 	assert_int_equal(unmapped, 0);
 	assert_string_equal(labels[2], "Kilns");
 	for (i = 0; i < 6; i++)
 		assert_int_equal(st[i], want[i]);
-	sectors_strata_free(st, labels, nlabels);
-	sectors_free(s);
-	universe_free(u);
+	hc_sectors_strata_free(st, labels, nlabels);
+	hc_sectors_free(s);
+	hc_universe_free(u);
 }
 
 static void test_sectors_file(void **state)
@@ -172,10 +172,10 @@ static void test_sectors_file(void **state)
 	struct hc_error err;
 
 	check_write_temp(path, sizeof path, "sectors.csv", MAP);
-	assert_int_equal(sectors_load(&s, path, NULL, NULL, &err), HC_OK);
+	assert_int_equal(hc_sectors_load(&s, path, NULL, NULL, &err), HC_OK);
 	assert_int_equal(s->n, 6);
-	sectors_free(s);
-	assert_int_equal(sectors_load(&s, "/nonexistent/map.csv", NULL, NULL, &err), HC_EIO);
+	hc_sectors_free(s);
+	assert_int_equal(hc_sectors_load(&s, "/nonexistent/map.csv", NULL, NULL, &err), HC_EIO);
 	assert_null(s);
 }
 
@@ -194,12 +194,12 @@ static int made_map(void *ctx, struct hc_error *err)
 {
 	struct made *w = ctx;
 
-	return sectors_load_buffer(&w->s, "map.csv", MAP, strlen(MAP), NULL, NULL, err);
+	return hc_sectors_load_buffer(&w->s, "map.csv", MAP, strlen(MAP), NULL, NULL, err);
 }
 
 static void made_map_release(void *ctx)
 {
-	sectors_free(((struct made *)ctx)->s);
+	hc_sectors_free(((struct made *)ctx)->s);
 }
 
 static void made_map_none(void *ctx)
@@ -211,14 +211,14 @@ static int made_strata(void *ctx, struct hc_error *err)
 {
 	struct made *w = ctx;
 
-	return sectors_strata(w->m, w->u, &w->st, &w->labels, &w->nlabels, &w->unmapped, err);
+	return hc_sectors_strata(w->m, w->u, &w->st, &w->labels, &w->nlabels, &w->unmapped, err);
 }
 
 static void made_strata_release(void *ctx)
 {
 	struct made *w = ctx;
 
-	sectors_strata_free(w->st, w->labels, w->nlabels);
+	hc_sectors_strata_free(w->st, w->labels, w->nlabels);
 }
 
 static void made_strata_none(void *ctx)
@@ -239,12 +239,12 @@ static void test_sectors_allocation_failure(void **state)
 	struct heapcheck_call strata = { made_strata, made_strata_release, made_strata_none, &w };
 
 	assert_true(heapcheck_sweep(&map) > 10);
-	assert_int_equal(sectors_load_buffer(&m, "map.csv", MAP, strlen(MAP), NULL, NULL, &err), HC_OK);
+	assert_int_equal(hc_sectors_load_buffer(&m, "map.csv", MAP, strlen(MAP), NULL, NULL, &err), HC_OK);
 	w.m = m;
 	/* 3 arrays, 3 labels, the unmapped label */
 	assert_int_equal(heapcheck_sweep(&strata), 7);
-	sectors_free(m);
-	universe_free(u);
+	hc_sectors_free(m);
+	hc_universe_free(u);
 }
 
 int main(int argc, char **argv)

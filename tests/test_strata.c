@@ -66,16 +66,16 @@ static void per_stratum(const size_t *of, const size_t *mem, size_t n, size_t S,
 		cnt[of[mem[j]]]++;
 }
 
-/* Uniforms for strata_cap_draw: splitmix64's top 53 bits. */
+/* Uniforms for hc_strata_cap_draw: splitmix64's top 53 bits. */
 static double splitmix_uniform(void *ctx)
 {
-	return (double)(sampler_splitmix64(ctx) >> 11) * 0x1.0p-53;
+	return (double)(hc_sampler_splitmix64(ctx) >> 11) * 0x1.0p-53;
 }
 
 static void options(struct sampler_options *o, const size_t *of, size_t S, int mode, size_t k,
 		    size_t paths, uint64_t seed)
 {
-	sampler_options_init(o);
+	hc_sampler_options_init(o);
 	o->strata = of;
 	o->nstrata = S;
 	o->stratify = mode;
@@ -102,29 +102,29 @@ static void test_strata_proportional_by_hand(void **state)
 	(void)state;
 	for (i = 0; i < 17; i++)
 		of[i] = i < 7 ? 0 : i < 12 ? 1 : i < 15 ? 2 : 3;
-	assert_int_equal(strata_alloc(&s, of, 17, 4, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 17, 4, &err), HC_OK);
 	for (i = 0; i < 4; i++)
 		assert_int_equal(s->count[i], sizes[i]);
-	assert_int_equal(strata_proportional(s, 6, alloc, &err), HC_OK);
+	assert_int_equal(hc_strata_proportional(s, 6, alloc, &err), HC_OK);
 	assert_int_equal(alloc[0], 2);
 	assert_int_equal(alloc[1], 2);
 	assert_int_equal(alloc[2], 1);
 	assert_int_equal(alloc[3], 1);
-	assert_int_equal(strata_proportional(s, 10, alloc, &err), HC_OK);
+	assert_int_equal(hc_strata_proportional(s, 10, alloc, &err), HC_OK);
 	assert_int_equal(alloc[0], 4);
 	assert_int_equal(alloc[1], 3);
 	assert_int_equal(alloc[2], 2);
 	assert_int_equal(alloc[3], 1);
-	assert_int_equal(strata_proportional(s, 17, alloc, &err), HC_OK);
+	assert_int_equal(hc_strata_proportional(s, 17, alloc, &err), HC_OK);
 	assert_int_equal(alloc[0], 7);
 	assert_int_equal(alloc[3], 2);
-	assert_int_equal(strata_proportional(s, 18, alloc, &err), HC_EUSAGE);
-	assert_int_equal(strata_alloc(&t, tie_of, 6, 2, &err), HC_OK);
-	assert_int_equal(strata_proportional(t, 1, alloc, &err), HC_OK);
+	assert_int_equal(hc_strata_proportional(s, 18, alloc, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_alloc(&t, tie_of, 6, 2, &err), HC_OK);
+	assert_int_equal(hc_strata_proportional(t, 1, alloc, &err), HC_OK);
 	assert_int_equal(alloc[0], 1);
 	assert_int_equal(alloc[1], 0);
-	strata_free(t);
-	strata_free(s);
+	hc_strata_free(t);
+	hc_strata_free(s);
 }
 
 /* Every proportional draw holds exactly the allocation, distinct members
@@ -138,11 +138,11 @@ static void test_strata_proportional_draws_meet_allocation(void **state)
 	(void)state;
 	for (j = 0; j < 23; j++)
 		of[j] = (j * 7 + 3) % 4;
-	assert_int_equal(strata_alloc(&s, of, 23, 4, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 23, 4, &err), HC_OK);
 	for (n = 1; n <= 23; n += 3)
 		for (k = 0; k < 200; k++) {
-			assert_int_equal(strata_proportional(s, n, want, &err), HC_OK);
-			assert_int_equal(strata_portfolio(s, NULL, SAMPLER_STRATA_PROPORTIONAL, n, 2385, k,
+			assert_int_equal(hc_strata_proportional(s, n, want, &err), HC_OK);
+			assert_int_equal(hc_strata_portfolio(s, NULL, SAMPLER_STRATA_PROPORTIONAL, n, 2385, k,
 							  mem, alloc, &err), HC_OK);
 			per_stratum(of, mem, n, 4, cnt);
 			for (j = 0; j < 4; j++) {
@@ -152,7 +152,7 @@ static void test_strata_proportional_draws_meet_allocation(void **state)
 			for (j = 1; j < n; j++)
 				assert_true(mem[j] > mem[j - 1]);
 		}
-	strata_free(s);
+	hc_strata_free(s);
 }
 
 /* One security per stratum, at most one each, N = M: every draw is the
@@ -172,21 +172,21 @@ static void test_strata_one_per_stratum_is_one_portfolio(void **state)
 	(void)state;
 	for (j = 0; j < 7; j++)
 		of[j] = all[j] = j;
-	assert_int_equal(strata_alloc(&s, of, 7, 7, &err), HC_OK);
-	assert_int_equal(strata_cap_alloc(&cap, s, 1, 7, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 7, 7, &err), HC_OK);
+	assert_int_equal(hc_strata_cap_alloc(&cap, s, 1, 7, &err), HC_OK);
 	for (k = 0; k < 50; k++) {
-		assert_int_equal(strata_portfolio(s, cap, SAMPLER_STRATA_CAP, 7, 9, k, mem, alloc, &err), HC_OK);
+		assert_int_equal(hc_strata_portfolio(s, cap, SAMPLER_STRATA_CAP, 7, 9, k, mem, alloc, &err), HC_OK);
 		assert_memory_equal(mem, all, sizeof all);
 	}
 	v = subset_variance(u, all, 7);
 	options(&o, of, 7, SAMPLER_STRATA_CAP, 1, 300, 9);
-	assert_int_equal(sampler_run(&r, u, sizes, 2, &o, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_OK);
 	for (k = 0; k < 300; k++)
 		assert_true(rel(r->variance[k * 2 + 1], v) < 1e-13);  /* rounding of 7-term sums */
 	assert_true(r->feasible[0] && r->feasible[1]);
-	sampler_result_free(r);
-	strata_cap_free(cap);
-	strata_free(s);
+	hc_sampler_result_free(r);
+	hc_strata_cap_free(cap);
+	hc_strata_free(s);
 	fixture_free(u);
 }
 
@@ -205,8 +205,8 @@ static void test_strata_cap_probabilities_match_enumeration(void **state)
 
 	(void)state;
 	memset(ways, 0, sizeof ways);
-	assert_int_equal(strata_alloc(&s, of, 9, 3, &err), HC_OK);
-	assert_int_equal(strata_cap_alloc(&cap, s, 2, 9, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 9, 3, &err), HC_OK);
+	assert_int_equal(hc_strata_cap_alloc(&cap, s, 2, 9, &err), HC_OK);
 	for (mask = 1; mask < 512; mask++) {
 		n = mask_members(mask, 9, mem);
 		per_stratum(of, mem, n, 3, cnt);
@@ -219,18 +219,18 @@ static void test_strata_cap_probabilities_match_enumeration(void **state)
 			for (a1 = 0; a1 < 3; a1++)
 				for (a2 = 0; a2 < 3; a2++)
 					total += ways[n][a0][a1][a2];
-		assert_int_equal(strata_cap_feasible(cap, n), total > 0);
+		assert_int_equal(hc_strata_cap_feasible(cap, n), total > 0);
 		if (total == 0) {
 			assert_true(n > 6);
 			continue;
 		}
-		assert_true(fabs(strata_cap_log_total(cap, n) - log(total)) < 1e-12);
+		assert_true(fabs(hc_strata_cap_log_total(cap, n) - log(total)) < 1e-12);
 		for (a0 = 0; a0 < 3; a0++)
 			for (a1 = 0; a1 < 3; a1++)
 				for (a2 = 0; a2 < 3; a2++) {
 					double lp;
 					alloc[0] = a0, alloc[1] = a1, alloc[2] = a2;
-					lp = strata_cap_log_probability(cap, n, alloc);
+					lp = hc_strata_cap_log_probability(cap, n, alloc);
 					if (ways[n][a0][a1][a2] == 0)
 						assert_true(lp == -INFINITY);
 					else
@@ -250,7 +250,7 @@ static void test_strata_cap_probabilities_match_enumeration(void **state)
 				for (a2 = 0; a2 < 3; a2++)
 					total += ways[4][a0][a1][a2];
 		for (d = 0; d < D; d++) {
-			strata_cap_draw(cap, 4, splitmix_uniform, &st, alloc);
+			hc_strata_cap_draw(cap, 4, splitmix_uniform, &st, alloc);
 			assert_true(alloc[0] + alloc[1] + alloc[2] == 4);
 			freq[alloc[0]][alloc[1]][alloc[2]] += 1;
 		}
@@ -262,11 +262,11 @@ static void test_strata_cap_probabilities_match_enumeration(void **state)
 					assert_true(fabs(freq[a0][a1][a2] / (double)D - pr) <= 4 * sd);
 				}
 	}
-	strata_cap_free(cap);
-	strata_free(s);
+	hc_strata_cap_free(cap);
+	hc_strata_free(s);
 }
 
-/* strata_cap_most against enumeration: the largest subset of a 12-security
+/* hc_strata_cap_most against enumeration: the largest subset of a 12-security
  * universe (strata of 5, 4, 2 and 1; one empty stratum) with at most k in
  * every stratum, found by trying all 4096 bit masks, for k = 0 (no cap) to
  * 6; and every size up to it is feasible in the cap table, none above. */
@@ -280,7 +280,7 @@ static void test_strata_cap_most_matches_enumeration(void **state)
 	unsigned mask;
 
 	(void)state;
-	assert_int_equal(strata_alloc(&s, of, 12, 5, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 12, 5, &err), HC_OK);
 	for (k = 0; k <= 6; k++) {
 		size_t best = 0;
 
@@ -294,18 +294,18 @@ static void test_strata_cap_most_matches_enumeration(void **state)
 			if (ok && n > best)
 				best = n;
 		}
-		assert_int_equal(strata_cap_most(s, k), best);
+		assert_int_equal(hc_strata_cap_most(s, k), best);
 		if (k == 0)
 			continue;
-		assert_int_equal(strata_cap_alloc(&cap, s, k, 12, &err), HC_OK);
+		assert_int_equal(hc_strata_cap_alloc(&cap, s, k, 12, &err), HC_OK);
 		for (n = 1; n <= 12; n++)
-			assert_int_equal(strata_cap_feasible(cap, n), n <= best);
-		strata_cap_free(cap);
+			assert_int_equal(hc_strata_cap_feasible(cap, n), n <= best);
+		hc_strata_cap_free(cap);
 	}
 	/* by hand: k = 2 gives 2 + 2 + 2 + 1 + 0 = 7; k = 1 gives 4 */
-	assert_int_equal(strata_cap_most(s, 2), 7);
-	assert_int_equal(strata_cap_most(s, 1), 4);
-	strata_free(s);
+	assert_int_equal(hc_strata_cap_most(s, 2), 7);
+	assert_int_equal(hc_strata_cap_most(s, 1), 4);
+	hc_strata_free(s);
 }
 
 /* The cap mode's sampled mean variance against the mean over every
@@ -334,7 +334,7 @@ static void test_strata_cap_mean_matches_enumeration(void **state)
 		}
 	}
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 2, K, 4242);
-	assert_int_equal(sampler_run(&r, u, sizes, 7, &o, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 7, &o, &err), HC_OK);
 	for (j = 0; j < 7; j++) {
 		long double s1 = 0, s2 = 0;
 		double mean, se;
@@ -353,7 +353,7 @@ static void test_strata_cap_mean_matches_enumeration(void **state)
 		se = sqrt((double)((s2 - s1 * s1 / K) / (K - 1)) / (double)K);
 		assert_true(fabs(mean - sum[n] / num[n]) < 4 * se);
 	}
-	sampler_result_free(r);
+	hc_sampler_result_free(r);
 	fixture_free(u);
 }
 
@@ -378,12 +378,12 @@ static void test_strata_expected_variance_matches_enumeration(void **state)
 
 	(void)state;
 	fixture_covariance(u, a);
-	assert_int_equal(strata_alloc(&s, of, 10, 3, &err), HC_OK);
-	assert_int_equal(strata_moments_from_universe(&sm, u, s, &err), HC_OK);
-	assert_int_equal(strata_moments_from_matrix(&smm, a, 10, s, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 10, 3, &err), HC_OK);
+	assert_int_equal(hc_strata_moments_from_universe(&sm, u, s, &err), HC_OK);
+	assert_int_equal(hc_strata_moments_from_matrix(&smm, a, 10, s, &err), HC_OK);
 	for (n = 1; n <= 10; n++) {
 		double sum = 0, num = 0, ex;
-		assert_int_equal(strata_proportional(s, n, alloc, &err), HC_OK);
+		assert_int_equal(hc_strata_proportional(s, n, alloc, &err), HC_OK);
 		for (mask = 1; mask < 1024; mask++) {
 			if (mask_members(mask, 10, mem) != n)
 				continue;
@@ -393,32 +393,32 @@ static void test_strata_expected_variance_matches_enumeration(void **state)
 				num += 1;
 			}
 		}
-		ex = strata_expected_variance(sm, s, alloc);
+		ex = hc_strata_expected_variance(sm, s, alloc);
 		assert_true(rel(ex, sum / num) < 1e-12);
-		assert_true(rel(strata_expected_variance(smm, s, alloc), ex) < 1e-12);
+		assert_true(rel(hc_strata_expected_variance(smm, s, alloc), ex) < 1e-12);
 	}
 	options(&o, of, 3, SAMPLER_STRATA_PROPORTIONAL, 0, K, 5150);
-	assert_int_equal(sampler_run(&r, u, sizes, 4, &o, &err), HC_OK);
-	assert_int_equal(strata_curve_alloc(&c, r, s, sm, SAMPLER_STRATA_PROPORTIONAL, 0, 12.0, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_curve_alloc(&c, r, s, sm, SAMPLER_STRATA_PROPORTIONAL, 0, 12.0, &err), HC_OK);
 	for (q = 0; q < 4; q++) {
-		assert_int_equal(strata_proportional(s, sizes[q], alloc, &err), HC_OK);
+		assert_int_equal(hc_strata_proportional(s, sizes[q], alloc, &err), HC_OK);
 		assert_true(rel(c->points[q].expected_variance,
-				12.0 * strata_expected_variance(sm, s, alloc)) < 1e-15);
+				12.0 * hc_strata_expected_variance(sm, s, alloc)) < 1e-15);
 		assert_true(fabs(c->points[q].z_score) < 4);
 		assert_true(c->points[q].sd_p05 < c->points[q].sd_p50);
 		assert_true(c->points[q].sd_p50 < c->points[q].sd_p95);
 	}
 	(void)j;
-	strata_curve_free(c);
-	sampler_result_free(r);
-	strata_moments_free(sm);
-	strata_moments_free(smm);
-	strata_free(s);
+	hc_strata_curve_free(c);
+	hc_sampler_result_free(r);
+	hc_strata_moments_free(sm);
+	hc_strata_moments_free(smm);
+	hc_strata_free(s);
 	fixture_free(u);
 }
 
 /* Each sampled variance and compound return is that of the portfolio
- * strata_portfolio names for (seed, path, size), computed here from the
+ * hc_strata_portfolio names for (seed, path, size), computed here from the
  * returns; the same bytes on 1 and 2 threads; the matrix route agrees. */
 static void test_strata_draws_reproducible(void **state)
 {
@@ -436,18 +436,18 @@ static void test_strata_draws_reproducible(void **state)
 	for (j = 0; j < 14; j++)
 		of[j] = j % 3;
 	fixture_covariance(u, a);
-	assert_int_equal(strata_alloc(&s, of, 14, 3, &err), HC_OK);
-	assert_int_equal(strata_cap_alloc(&cap, s, 4, 14, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 14, 3, &err), HC_OK);
+	assert_int_equal(hc_strata_cap_alloc(&cap, s, 4, 14, &err), HC_OK);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 4, 64, 99);
 	o.want_returns = 1;
 	o.periods_per_year = 12;
-	assert_int_equal(sampler_run(&r1, u, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r1, u, sizes, 4, &o, &err), HC_OK);
 	o.threads = 2;
-	assert_int_equal(sampler_run(&r2, u, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r2, u, sizes, 4, &o, &err), HC_OK);
 	assert_memory_equal(r1->variance, r2->variance, 64 * 4 * sizeof(double));
 	assert_memory_equal(r1->annual_return, r2->annual_return, 64 * 4 * sizeof(double));
 	o.want_returns = 0;
-	assert_int_equal(sampler_run_matrix(&rm, a, 14, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_sampler_run_matrix(&rm, a, 14, sizes, 4, &o, &err), HC_OK);
 	assert_true(r1->feasible[3]);   /* strata of 5, 5, 4 at most 4 each: 12 fits */
 	for (k = 0; k < 64; k++)
 		for (q = 0; q < 4; q++) {
@@ -455,7 +455,7 @@ static void test_strata_draws_reproducible(void **state)
 			size_t t;
 			if (!r1->feasible[q])
 				continue;
-			assert_int_equal(strata_portfolio(s, cap, SAMPLER_STRATA_CAP, sizes[q], 99, k, mem,
+			assert_int_equal(hc_strata_portfolio(s, cap, SAMPLER_STRATA_CAP, sizes[q], 99, k, mem,
 							  alloc, &err), HC_OK);
 			assert_true(rel(r1->variance[k * 4 + q], subset_variance(u, mem, sizes[q])) < 1e-12);
 			assert_true(rel(rm->variance[k * 4 + q], subset_variance(u, mem, sizes[q])) < 1e-12);
@@ -467,11 +467,11 @@ static void test_strata_draws_reproducible(void **state)
 			}
 			assert_true(fabs(r1->annual_return[k * 4 + q] - expm1((double)(lg * 12 / u->t))) < 1e-13);
 		}
-	sampler_result_free(r1);
-	sampler_result_free(r2);
-	sampler_result_free(rm);
-	strata_cap_free(cap);
-	strata_free(s);
+	hc_sampler_result_free(r1);
+	hc_sampler_result_free(r2);
+	hc_sampler_result_free(rm);
+	hc_strata_cap_free(cap);
+	hc_strata_free(s);
 	fixture_free(u);
 }
 
@@ -486,37 +486,37 @@ static void test_strata_report_columns(void **state)
 	struct sampler_result *r = NULL;
 	struct strata *s = NULL;
 	struct strata_curve *c = NULL;
-	struct report *rep = report_alloc();
+	struct report *rep = hc_report_alloc();
 	struct report_table *t;
 	struct hc_error err;
 
 	(void)state;
 	for (j = 0; j < 14; j++)
 		of[j] = j % 3;
-	assert_int_equal(strata_alloc(&s, of, 14, 3, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 14, 3, &err), HC_OK);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 4, 50, 1);
-	assert_int_equal(sampler_run(&r, u, sizes, 3, &o, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 3, &o, &err), HC_OK);
 	assert_true(r->feasible[0] && r->feasible[1]);
 	assert_false(r->feasible[2]);
-	assert_int_equal(strata_curve_alloc(&c, r, s, NULL, SAMPLER_STRATA_CAP, 4, 12.0, &err), HC_OK);
-	t = report_add_table(rep, "curve", NULL);
-	assert_int_equal(report_table_add_column(t, "n", "n", REPORT_STYLE_PLAIN), 0);
-	assert_int_equal(strata_report_columns(c, t), HC_EUSAGE);   /* no rows yet */
+	assert_int_equal(hc_strata_curve_alloc(&c, r, s, NULL, SAMPLER_STRATA_CAP, 4, 12.0, &err), HC_OK);
+	t = hc_report_add_table(rep, "curve", NULL);
+	assert_int_equal(hc_report_table_add_column(t, "n", "n", REPORT_STYLE_PLAIN), 0);
+	assert_int_equal(hc_strata_report_columns(c, t), HC_EUSAGE);   /* no rows yet */
 	for (j = 0; j < 3; j++) {
-		assert_int_equal(report_table_add_row(t), 0);
-		report_table_set_int(t, j, 0, (long long)sizes[j]);
+		assert_int_equal(hc_report_table_add_row(t), 0);
+		hc_report_table_set_int(t, j, 0, (long long)sizes[j]);
 	}
-	assert_int_equal(strata_report_columns(c, t), HC_OK);
+	assert_int_equal(hc_strata_report_columns(c, t), HC_OK);
 	assert_int_equal(t->ncols, 10);
 	assert_string_equal(t->cols[1].key, "stratified_feasible");
 	assert_int_equal(t->cells[2 * 10 + 1].kind, REPORT_BOOL);
 	assert_int_equal(t->cells[2 * 10 + 3].kind, REPORT_NONE);
 	assert_int_equal(t->cells[0 * 10 + 2].kind, REPORT_NONE); /* no exact value under a cap */
 	assert_true(rel(t->cells[0 * 10 + 3].real, c->points[0].mean_variance) == 0);
-	report_free(rep);
-	strata_curve_free(c);
-	sampler_result_free(r);
-	strata_free(s);
+	hc_report_free(rep);
+	hc_strata_curve_free(c);
+	hc_sampler_result_free(r);
+	hc_strata_free(s);
 	fixture_free(u);
 }
 
@@ -535,36 +535,36 @@ static void test_strata_rejects_bad_requests(void **state)
 	(void)state;
 	fixture_covariance(u, a);
 	options(&o, of, 3, SAMPLER_STRATA_NONE, 0, 10, 1);
-	assert_int_equal(sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "without a way to use them"));
 	assert_null(r);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 0, 10, 1);
-	assert_int_equal(sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 2, 0, 1);
-	assert_int_equal(sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 2, 10, 1);
-	assert_int_equal(sampler_run(&r, u, big, 1, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, u, big, 1, &o, &err), HC_EUSAGE);
 	o.want_returns = 1;
 	o.periods_per_year = 12;
-	assert_int_equal(sampler_run_matrix(&r, a, 6, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run_matrix(&r, a, 6, sizes, 2, &o, &err), HC_EUSAGE);
 	o.want_returns = 0;
 	options(&o, bad_of, 3, SAMPLER_STRATA_PROPORTIONAL, 0, 10, 1);
-	assert_int_equal(sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "stratum 3 of 3"));
-	assert_int_equal(strata_alloc(&s, of, 0, 3, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_alloc(&s, of, 0, 3, &err), HC_EUSAGE);
 	assert_null(s);
-	assert_int_equal(strata_alloc(&s, of, 6, 3, &err), HC_OK);
-	assert_int_equal(strata_cap_alloc(&cap, s, 0, 6, &err), HC_EUSAGE);
-	assert_int_equal(strata_cap_alloc(&cap, s, 1, 6, &err), HC_OK);
-	assert_int_equal(strata_portfolio(s, cap, SAMPLER_STRATA_CAP, 4, 1, 0, (size_t[6]){0},
+	assert_int_equal(hc_strata_alloc(&s, of, 6, 3, &err), HC_OK);
+	assert_int_equal(hc_strata_cap_alloc(&cap, s, 0, 6, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_cap_alloc(&cap, s, 1, 6, &err), HC_OK);
+	assert_int_equal(hc_strata_portfolio(s, cap, SAMPLER_STRATA_CAP, 4, 1, 0, (size_t[6]){0},
 					  (size_t[3]){0}, &err), HC_EUSAGE);
 	u->x[5] = NAN;
 	u->has_missing = 1;
 	options(&o, of, 3, SAMPLER_STRATA_PROPORTIONAL, 0, 10, 1);
-	assert_int_equal(sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
-	assert_int_equal(strata_moments_from_universe((struct strata_moments **)&r, u, s, &err), HC_EUSAGE);
-	strata_cap_free(cap);
-	strata_free(s);
+	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_moments_from_universe((struct strata_moments **)&r, u, s, &err), HC_EUSAGE);
+	hc_strata_cap_free(cap);
+	hc_strata_free(s);
 	fixture_free(u);
 }
 
@@ -584,12 +584,12 @@ static void test_strata_allocation_failure(void **state)
 
 	(void)state;
 	for (mode = SAMPLER_STRATA_PROPORTIONAL; mode <= SAMPLER_STRATA_CAP; mode++) {
-		sampler_result_free(r);   /* the last mode's sample is summarised below */
+		hc_sampler_result_free(r);   /* the last mode's sample is summarised below */
 		r = NULL;
 		options(&o, of, 3, mode, 2, 5, 1);
 		for (k = 0;; k++) {
 			hc_alloc_fail_after(k);
-			rc = sampler_run(&r, u, sizes, 2, &o, &err);
+			rc = hc_sampler_run(&r, u, sizes, 2, &o, &err);
 			hc_alloc_fail_after(-1);
 			if (rc == HC_OK)
 				break;
@@ -598,25 +598,25 @@ static void test_strata_allocation_failure(void **state)
 		}
 		assert_true(k > 5);
 	}
-	assert_int_equal(strata_alloc(&s, of, 8, 3, &err), HC_OK);
+	assert_int_equal(hc_strata_alloc(&s, of, 8, 3, &err), HC_OK);
 	for (k = 0;; k++) {
 		hc_alloc_fail_after(k);
-		rc = strata_moments_from_universe(&sm, u, s, &err);
+		rc = hc_strata_moments_from_universe(&sm, u, s, &err);
 		if (rc == HC_OK)
-			rc = strata_curve_alloc(&c, r, s, sm, SAMPLER_STRATA_CAP, 2, 12.0, &err);
+			rc = hc_strata_curve_alloc(&c, r, s, sm, SAMPLER_STRATA_CAP, 2, 12.0, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
 		assert_int_equal(rc, HC_ENOMEM);
 		assert_null(c);
-		strata_moments_free(sm);
+		hc_strata_moments_free(sm);
 		sm = NULL;
 	}
 	assert_true(k >= 3);
-	strata_curve_free(c);
-	strata_moments_free(sm);
-	strata_free(s);
-	sampler_result_free(r);
+	hc_strata_curve_free(c);
+	hc_strata_moments_free(sm);
+	hc_strata_free(s);
+	hc_sampler_result_free(r);
 	fixture_free(u);
 }
 

@@ -36,15 +36,15 @@ static void sample_make(struct sample *s, const struct synth_options *opt)
 {
 	struct hc_error err;
 
-	assert_int_equal(synth_model_alloc(&s->mo, opt, &err), HC_OK);
+	assert_int_equal(hc_synth_model_alloc(&s->mo, opt, &err), HC_OK);
 	s->x = malloc(s->mo->m * s->mo->t * sizeof *s->x);
 	assert_non_null(s->x);
-	assert_int_equal(synth_generate(s->mo, s->x, &s->nfloored, &err), HC_OK);
+	assert_int_equal(hc_synth_generate(s->mo, s->x, &s->nfloored, &err), HC_OK);
 }
 
 static void sample_release(struct sample *s)
 {
-	synth_model_free(s->mo);
+	hc_synth_model_free(s->mo);
 	free(s->x);
 }
 
@@ -73,7 +73,7 @@ static int write_mem(const struct synth_options *opt, char **u, size_t *ulen,
 
 	assert_non_null(fu);
 	assert_non_null(fs);
-	rc = synth_write(opt, fu, fs, NULL, err);
+	rc = hc_synth_write(opt, fu, fs, NULL, err);
 	fclose(fu);
 	fclose(fs);
 	return rc;
@@ -81,7 +81,7 @@ static int write_mem(const struct synth_options *opt, char **u, size_t *ulen,
 
 static void quiet_options(struct synth_options *opt)
 {
-	synth_options_init(opt);
+	hc_synth_options_init(opt);
 	opt->late_share = 0;
 	opt->early_share = 0;
 }
@@ -167,7 +167,7 @@ static void test_synth_factor_structure(void **state)
 	double dev[3][R], truth[3][R];
 	size_t r, i, j, c;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 30;
 	opt.sectors = 3;
 	opt.periods = 1200;
@@ -232,13 +232,13 @@ static void test_synth_truth_expected_matches_drawn_parameters(void **state)
 	double sd = 0, mean, m2, s2;
 	size_t i;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 200000;
 	opt.periods = 4;
 	opt.seed = 99;
-	assert_int_equal(synth_truth_expected(&opt, &te, &err), HC_OK);
-	assert_int_equal(synth_model_alloc(&mo, &opt, &err), HC_OK);
-	assert_int_equal(synth_truth_model(mo, NULL, 0, &tm, &err), HC_OK);
+	assert_int_equal(hc_synth_truth_expected(&opt, &te, &err), HC_OK);
+	assert_int_equal(hc_synth_model_alloc(&mo, &opt, &err), HC_OK);
+	assert_int_equal(hc_synth_truth_model(mo, NULL, 0, &tm, &err), HC_OK);
 	m2 = mo->market_sd * mo->market_sd;
 	s2 = mo->sector_sd * mo->sector_sd;
 	mean = tm.average_variance;
@@ -253,7 +253,7 @@ static void test_synth_truth_expected_matches_drawn_parameters(void **state)
 		    4 * (2 * m2 * opt.beta_spread / sqrt((double)mo->m) + s2 * opt.sectors / (double)mo->m));
 	assert_int_equal(te.m, opt.securities);
 	assert_true(te.periods_per_year == 12.0);
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 }
 
 /* The true averages over a subset equal the direct average of the model's
@@ -267,11 +267,11 @@ static void test_synth_truth_model_subset(void **state)
 	size_t keep[] = { 0, 3, 4, 7, 8, 11 }, n = 6, a, b;
 	double v = 0, c = 0;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 12;
 	opt.sectors = 3;
 	opt.seed = 31;
-	assert_int_equal(synth_model_alloc(&mo, &opt, &err), HC_OK);
+	assert_int_equal(hc_synth_model_alloc(&mo, &opt, &err), HC_OK);
 	for (a = 0; a < n; a++)
 		for (b = 0; b < n; b++) {
 			size_t i = keep[a], j = keep[b];
@@ -283,16 +283,16 @@ static void test_synth_truth_model_subset(void **state)
 			else
 				c += cov;
 		}
-	assert_int_equal(synth_truth_model(mo, keep, n, &t, &err), HC_OK);
+	assert_int_equal(hc_synth_truth_model(mo, keep, n, &t, &err), HC_OK);
 	assert_true(fabs(t.average_variance - v / n) < 1e-14 * (v / n));
 	assert_true(fabs(t.average_covariance - c / (n * (n - 1))) < 1e-13 * fabs(c / (n * (n - 1))));
 	assert_int_equal(t.m, n);
 	keep[2] = 12;
-	assert_int_equal(synth_truth_model(mo, keep, n, &t, &err), HC_EUSAGE);
+	assert_int_equal(hc_synth_truth_model(mo, keep, n, &t, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "out of range"));
-	assert_int_equal(synth_truth_model(mo, keep, 1, &t, &err), HC_EUSAGE);
+	assert_int_equal(hc_synth_truth_model(mo, keep, 1, &t, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "at least two"));
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 }
 
 /* Same seed, same bytes; another seed, other bytes. */
@@ -303,7 +303,7 @@ static void test_synth_seed_determines_bytes(void **state)
 	char *u[3], *s[3];
 	size_t ul[3], sl[3], k;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 25;
 	opt.periods = 30;
 	for (k = 0; k < 3; k++) {
@@ -322,7 +322,7 @@ static void test_synth_seed_determines_bytes(void **state)
 }
 
 /* Parse the written wide CSV back with strtod: every cell equals the value
- * synth_generate returns exactly (round trip), empty exactly where NaN, and
+ * hc_synth_generate returns exactly (round trip), empty exactly where NaN, and
  * the sector map lists every id with its sector's name. */
 static void test_synth_written_values_round_trip(void **state)
 {
@@ -333,7 +333,7 @@ static void test_synth_written_values_round_trip(void **state)
 	char *u, *s, *line, *save, *cell, *p;
 	size_t ul, sl, row = 0, i, cells = 0;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 17;
 	opt.periods = 40;
 	opt.sectors = 3;
@@ -349,7 +349,7 @@ static void test_synth_written_values_round_trip(void **state)
 	while ((line = strtok_r(NULL, "\n", &save))) {
 		char date[11];
 
-		synth_format_date(smp.mo->dates[row], date);
+		hc_synth_format_date(smp.mo->dates[row], date);
 		assert_memory_equal(line, date, 10);
 		p = line + 10;
 		for (i = 0; i < smp.mo->m; i++) {
@@ -399,7 +399,7 @@ static void test_synth_listing_pattern(void **state)
 	size_t i, k, late = 0, early = 0;
 	double se;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 300;
 	opt.periods = 48;
 	opt.late_share = 0.3;
@@ -460,13 +460,13 @@ static void test_synth_dates_follow_calendar(void **state)
 	char buf[11];
 	size_t k;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 3;
 	opt.sectors = 2;
 	opt.periods = 130;
 	opt.start = "2003-11";
-	assert_int_equal(synth_model_alloc(&mo, &opt, &err), HC_OK);
-	synth_format_date(mo->dates[0], buf);
+	assert_int_equal(hc_synth_model_alloc(&mo, &opt, &err), HC_OK);
+	hc_synth_format_date(mo->dates[0], buf);
 	assert_string_equal(buf, "2003-11-30");
 	for (k = 0; k < mo->t; k++) {
 		struct tm now = tm_of(mo->dates[k]), next = tm_of(mo->dates[k] + 1);
@@ -474,22 +474,22 @@ static void test_synth_dates_follow_calendar(void **state)
 		assert_int_equal(next.tm_mday, 1);
 		assert_int_equal((now.tm_year * 12 + now.tm_mon), 103 * 12 + 10 + (int)k);
 	}
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 
 	opt.frequency = SYNTH_WEEKLY;
 	opt.start = "2011-03-04";
-	assert_int_equal(synth_model_alloc(&mo, &opt, &err), HC_OK);
-	synth_format_date(mo->dates[0], buf);
+	assert_int_equal(hc_synth_model_alloc(&mo, &opt, &err), HC_OK);
+	hc_synth_format_date(mo->dates[0], buf);
 	assert_string_equal(buf, "2011-03-04");
 	for (k = 1; k < mo->t; k++)
 		assert_int_equal(mo->dates[k] - mo->dates[k - 1], 7);
 	assert_true(mo->periods_per_year == 52.0);
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 
 	opt.frequency = SYNTH_DAILY;
 	opt.start = "2012-12-29";   /* a Saturday: the series starts Monday */
-	assert_int_equal(synth_model_alloc(&mo, &opt, &err), HC_OK);
-	synth_format_date(mo->dates[0], buf);
+	assert_int_equal(hc_synth_model_alloc(&mo, &opt, &err), HC_OK);
+	hc_synth_format_date(mo->dates[0], buf);
 	assert_string_equal(buf, "2012-12-31");
 	for (k = 0; k < mo->t; k++) {
 		struct tm tm = tm_of(mo->dates[k]);
@@ -498,7 +498,7 @@ static void test_synth_dates_follow_calendar(void **state)
 		if (k > 0)
 			assert_int_equal(mo->dates[k] - mo->dates[k - 1], tm.tm_wday == 1 ? 3 : 1);
 	}
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 }
 
 static void expect_usage(const struct synth_options *opt, const char *fragment)
@@ -506,9 +506,9 @@ static void expect_usage(const struct synth_options *opt, const char *fragment)
 	struct hc_error err;
 	struct synth_model *mo = (struct synth_model *)1;
 
-	assert_int_equal(synth_options_check(opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_synth_options_check(opt, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, fragment));
-	assert_int_equal(synth_model_alloc(&mo, opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_synth_model_alloc(&mo, opt, &err), HC_EUSAGE);
 	assert_null(mo);
 }
 
@@ -519,8 +519,8 @@ static void test_synth_rejects_bad_options(void **state)
 	struct synth_options opt, base;
 	struct hc_error err;
 
-	synth_options_init(&base);
-	assert_int_equal(synth_options_check(&base, &err), HC_OK);
+	hc_synth_options_init(&base);
+	assert_int_equal(hc_synth_options_check(&base, &err), HC_OK);
 #define BAD(field, value, fragment) do { opt = base; opt.field = value; expect_usage(&opt, fragment); } while (0)
 	BAD(securities, 1, "securities must be from 2");
 	BAD(periods, 3, "periods must be from 4");
@@ -554,7 +554,7 @@ static void test_synth_rejects_bad_options(void **state)
 #undef BAD
 	opt = base;
 	opt.df = 0;   /* Gaussian noise is allowed */
-	assert_int_equal(synth_options_check(&opt, &err), HC_OK);
+	assert_int_equal(hc_synth_options_check(&opt, &err), HC_OK);
 }
 
 /* Every allocation failure is reported as HC_ENOMEM and leaks nothing (the
@@ -570,13 +570,13 @@ static void test_synth_allocation_failure(void **state)
 	int rc;
 	FILE *fp;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 6;
 	opt.sectors = 2;
 	opt.periods = 8;
 	for (k = 0;; k++) {
 		hc_alloc_fail_after(k);
-		rc = synth_model_alloc(&mo, &opt, &err);
+		rc = hc_synth_model_alloc(&mo, &opt, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -587,17 +587,17 @@ static void test_synth_allocation_failure(void **state)
 	x = malloc(6 * 8 * sizeof *x);
 	assert_non_null(x);
 	hc_alloc_fail_after(0);
-	assert_int_equal(synth_generate(mo, x, NULL, &err), HC_ENOMEM);
-	assert_int_equal(synth_truth_model(mo, NULL, 0, &t, &err), HC_ENOMEM);
+	assert_int_equal(hc_synth_generate(mo, x, NULL, &err), HC_ENOMEM);
+	assert_int_equal(hc_synth_truth_model(mo, NULL, 0, &t, &err), HC_ENOMEM);
 	hc_alloc_fail_after(-1);
 	free(x);
-	synth_model_free(mo);
-	synth_model_free(NULL);
+	hc_synth_model_free(mo);
+	hc_synth_model_free(NULL);
 	fp = fopen("/dev/null", "w");
 	assert_non_null(fp);
 	for (k = 0;; k++) {
 		hc_alloc_fail_after(k);
-		rc = synth_write(&opt, fp, fp, NULL, &err);
+		rc = hc_synth_write(&opt, fp, fp, NULL, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -616,16 +616,16 @@ static void test_synth_write_failure(void **state)
 
 	assert_non_null(ro);
 	assert_non_null(ok);
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 5;
 	opt.sectors = 2;
-	assert_int_equal(synth_write(&opt, ro, ok, NULL, &err), HC_EIO);
+	assert_int_equal(hc_synth_write(&opt, ro, ok, NULL, &err), HC_EIO);
 	assert_non_null(strstr(err.message, "cannot write the synthetic universe"));
-	assert_int_equal(synth_write(&opt, ok, ro, NULL, &err), HC_EIO);
+	assert_int_equal(hc_synth_write(&opt, ok, ro, NULL, &err), HC_EIO);
 	assert_non_null(strstr(err.message, "cannot write the sector map"));
-	assert_int_equal(synth_model_alloc(&mo, &opt, &err), HC_OK);
-	assert_int_equal(synth_write_parameters(mo, ro, &err), HC_EIO);
-	synth_model_free(mo);
+	assert_int_equal(hc_synth_model_alloc(&mo, &opt, &err), HC_OK);
+	assert_int_equal(hc_synth_write_parameters(mo, ro, &err), HC_EIO);
+	hc_synth_model_free(mo);
 	fclose(ro);
 	fclose(ok);
 }
@@ -641,16 +641,16 @@ static void test_synth_parameters_file(void **state)
 	size_t len, i = 0;
 	FILE *fp;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 20;
 	opt.sectors = 4;
 	opt.late_share = 0.5;
 	opt.early_share = 0.5;
 	opt.seed = 577;
-	assert_int_equal(synth_model_alloc(&mo, &opt, &err), HC_OK);
+	assert_int_equal(hc_synth_model_alloc(&mo, &opt, &err), HC_OK);
 	fp = open_memstream(&buf, &len);
 	assert_non_null(fp);
-	assert_int_equal(synth_write_parameters(mo, fp, &err), HC_OK);
+	assert_int_equal(hc_synth_write_parameters(mo, fp, &err), HC_OK);
 	fclose(fp);
 	line = strtok_r(buf, "\n", &save);
 	assert_string_equal(line, "id,sector,beta,specific_sd,mean,first_date,last_date");
@@ -663,15 +663,15 @@ static void test_synth_parameters_file(void **state)
 		assert_string_equal(id, mo->ids[i]);
 		assert_string_equal(sector, mo->sector_names[mo->sector[i]]);
 		assert_true(beta == mo->beta[i] && sd == mo->idio_sd[i] && mean == mo->mean[i]);
-		synth_format_date(mo->dates[mo->first[i]], first);
-		synth_format_date(mo->dates[mo->end[i] - 1], last);
+		hc_synth_format_date(mo->dates[mo->first[i]], first);
+		hc_synth_format_date(mo->dates[mo->end[i] - 1], last);
 		assert_string_equal(f, first);
 		assert_string_equal(l, last);
 		i++;
 	}
 	assert_int_equal(i, mo->m);
 	free(buf);
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 }
 
 /* The project's loader reads what synth writes: securities with gaps are
@@ -687,7 +687,7 @@ static void test_synth_loader_reads_output(void **state)
 	char *buf, *sec;
 	size_t len, slen, i, k, kept = 0;
 
-	synth_options_init(&opt);
+	hc_synth_options_init(&opt);
 	opt.securities = 30;
 	opt.periods = 60;
 	opt.sectors = 4;
@@ -696,15 +696,15 @@ static void test_synth_loader_reads_output(void **state)
 	opt.seed = 1414;
 	sample_make(&smp, &opt);
 	assert_int_equal(write_mem(&opt, &buf, &len, &sec, &slen, &err), HC_OK);
-	universe_options_init(&uo);
-	assert_int_equal(universe_load_buffer(&u, "synth.csv", buf, len, &uo, &err), HC_OK);
+	hc_universe_options_init(&uo);
+	assert_int_equal(hc_universe_load_buffer(&u, "synth.csv", buf, len, &uo, &err), HC_OK);
 	assert_int_equal(u->m_read, opt.securities);
 	assert_int_equal(u->t, opt.periods);
 	assert_true(u->periods_per_year == 12.0);
 	for (k = 0; k < u->t; k++)
 		assert_int_equal(u->dates[k], smp.mo->dates[k]);
 	for (i = 0; i < smp.mo->m; i++) {
-		long j = universe_find(u, smp.mo->ids[i]);
+		long j = hc_universe_find(u, smp.mo->ids[i]);
 		int complete = smp.mo->first[i] == 0 && smp.mo->end[i] == smp.mo->t;
 
 		assert_int_equal(j >= 0, complete);
@@ -717,7 +717,7 @@ static void test_synth_loader_reads_output(void **state)
 	assert_int_equal(u->m, kept);
 	assert_int_equal(u->ndropped, opt.securities - kept);
 	assert_true(kept > 2 && kept < opt.securities);
-	universe_free(u);
+	hc_universe_free(u);
 	free(buf);
 	free(sec);
 	sample_release(&smp);

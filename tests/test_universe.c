@@ -38,7 +38,7 @@
 static int load(struct universe **u, const char *text, const struct universe_options *o,
 		struct hc_error *err)
 {
-	return universe_load_buffer(u, "u.csv", text, strlen(text), o, err);
+	return hc_universe_load_buffer(u, "u.csv", text, strlen(text), o, err);
 }
 
 /* Expect failure with status code and a message starting with prefix. */
@@ -76,7 +76,7 @@ static void test_universe_wide_returns(void **state)
 	assert_true(u->x[2 * 4 + 1] == 0.0051);
 	/* 2021-01-31 is day 18658 (Python: date(2021,1,31).toordinal() - date(1970,1,1).toordinal()) */
 	assert_int_equal(u->dates[0], 18658);
-	universe_format_date(u->dates[3], d);
+	hc_universe_format_date(u->dates[3], d);
 	assert_string_equal(d, "2021-04-30");
 	assert_true(u->periods_per_year == 12);   /* month ends: 12 a year */
 	assert_int_equal(u->periods_detected, 1);
@@ -84,10 +84,10 @@ static void test_universe_wide_returns(void **state)
 	assert_int_equal(u->m_read, 3);
 	assert_int_equal(u->ndropped, 0);
 	assert_string_equal(u->source, "u.csv");
-	assert_int_equal(universe_find(u, "C"), 2);
-	assert_int_equal(universe_find(u, "c"), -1);
-	universe_free(u);
-	universe_free(NULL);
+	assert_int_equal(hc_universe_find(u, "C"), 2);
+	assert_int_equal(hc_universe_find(u, "c"), -1);
+	hc_universe_free(u);
+	hc_universe_free(NULL);
 }
 
 /* numpy reference:
@@ -113,24 +113,24 @@ static void test_universe_prices_to_returns(void **state)
 	size_t i, k;
 	char d[11];
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.values = UNIVERSE_PRICES;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	assert_int_equal(u->t, 3);   /* the first date is consumed */
-	universe_format_date(u->dates[0], d);
+	hc_universe_format_date(u->dates[0], d);
 	assert_string_equal(d, "2021-02-26");
 	/* 4e-16 relative: b/a - 1 and numpy's division differ at most in the last bit of the ratio */
 	for (i = 0; i < 2; i++)
 		for (k = 0; k < 3; k++)
 			assert_close(u->x[i * 3 + k], simple[i][k], 4e-16 * fabs(simple[i][k]) + 1e-18);
-	universe_free(u);
+	hc_universe_free(u);
 	o.values = UNIVERSE_PRICES_LOG;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	/* log(b/a) vs numpy's log(b) - log(a): 1e-13 relative covers the cancellation in the difference */
 	for (i = 0; i < 2; i++)
 		for (k = 0; k < 3; k++)
 			assert_close(u->x[i * 3 + k], logr[i][k], 1e-13 * fabs(logr[i][k]));
-	universe_free(u);
+	hc_universe_free(u);
 }
 
 static void test_universe_percent(void **state)
@@ -149,14 +149,14 @@ static void test_universe_percent(void **state)
 	assert_true(u->x[0] == 2.13);
 	assert_true(u->x[1] == strtod("-0.0385", NULL));
 	assert_true(u->x[3] == strtod("-0.0117", NULL));
-	universe_free(u);
-	universe_options_init(&o);
+	hc_universe_free(u);
+	hc_universe_options_init(&o);
 	o.percent = 1;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	assert_close(u->x[0], 0.0213, 1e-17);   /* 2.13/100: one rounding */
 	assert_true(u->x[1] == strtod("-0.0385", NULL)); /* not divided twice */
 	assert_close(u->x[5], 0.0093, 1e-17);
-	universe_free(u);
+	hc_universe_free(u);
 }
 
 /* BOM, CRLF, ';' delimiter with decimal points, quoted ids holding the
@@ -176,7 +176,7 @@ static void test_universe_bom_crlf_semicolon_quotes(void **state)
 	assert_string_equal(u->ids[0], "X;1");
 	assert_string_equal(u->ids[1], "Y\r\nZ");
 	assert_true(u->x[3 + 2] == 0.0093);
-	universe_free(u);
+	hc_universe_free(u);
 	/* ';' files with decimal commas are refused at the cell */
 	expect_error("date;A;B\n2021-01-04;1,5;2\n2021-01-05;1;2\n", NULL, HC_EDATA,
 		     "u.csv:2:2: expected a number or a missing marker, found '1,5'");
@@ -193,14 +193,14 @@ static void test_universe_date_column_option(void **state)
 	struct universe *u;
 	struct hc_error err;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.date_column = "When";
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	assert_string_equal(u->ids[0], "A");
 	assert_string_equal(u->ids[1], "B");
 	assert_true(u->x[3 + 1] == 0.0266);
 	assert_int_equal(u->dates[2], 18717);   /* Python: date(2021,3,31) - date(1970,1,1) */
-	universe_free(u);
+	hc_universe_free(u);
 	o.date_column = "day";
 	expect_error(text, &o, HC_EDATA, "u.csv:1: no column named 'day' in the header");
 	o.date_column = NULL;
@@ -223,7 +223,7 @@ static void test_universe_long_layout(void **state)
 	struct universe *u;
 	struct hc_error err;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.layout = UNIVERSE_LONG;
 	o.date_column = "DT";
 	o.id_column = "sym";
@@ -239,14 +239,14 @@ static void test_universe_long_layout(void **state)
 	assert_true(u->x[3 + 1] == -0.0385);
 	assert_true(isnan(u->x[6 + 1]));          /* C has no 2021-02-28 row */
 	assert_int_equal(u->has_missing, 1);
-	universe_free(u);
+	hc_universe_free(u);
 	o.missing = UNIVERSE_MISSING_COMPLETE;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	assert_int_equal(u->m, 2);
 	assert_int_equal(u->ndropped, 1);
 	assert_string_equal(u->dropped[0].id, "C");
 	assert_string_equal(u->dropped[0].reason, "missing 1 of 3 periods");
-	universe_free(u);
+	hc_universe_free(u);
 	o.id_column = "ticker";
 	expect_error(text, &o, HC_EDATA, "u.csv:1: no column named 'ticker' in the header");
 }
@@ -255,7 +255,7 @@ static void test_universe_long_errors(void **state)
 {
 	struct universe_options o;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.layout = UNIVERSE_LONG;
 	expect_error("date,id,value\n2021-01-31,A,0.01\n2021-02-28,A,0.02\n2021-01-31,A,0.03\n",
 		     &o, HC_EDATA,
@@ -297,9 +297,9 @@ static void test_universe_missing_policies(void **state)
 	assert_string_equal(u->dropped[0].id, "B");
 	assert_string_equal(u->dropped[0].reason, "missing 1 of 5 periods");
 	assert_string_equal(u->dropped[1].reason, "missing 4 of 5 periods");
-	universe_free(u);
+	hc_universe_free(u);
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.missing = UNIVERSE_MISSING_PAIRWISE;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);   /* default 80% coverage keeps B */
 	assert_int_equal(u->m, 3);
@@ -307,16 +307,16 @@ static void test_universe_missing_policies(void **state)
 	assert_true(isnan(u->x[5 + 0]));
 	assert_int_equal(u->has_missing, 1);
 	assert_string_equal(u->dropped[0].reason, "coverage 20.0% below the minimum 80.0% (missing 4 of 5 periods)");
-	universe_free(u);
+	hc_universe_free(u);
 	o.min_coverage = 0.85;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	assert_int_equal(u->m, 2);
-	universe_free(u);
+	hc_universe_free(u);
 	o.missing = UNIVERSE_MISSING_KEEP;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	assert_int_equal(u->m, 4);
 	assert_int_equal(u->ndropped, 0);
-	universe_free(u);
+	hc_universe_free(u);
 }
 
 static void test_universe_too_few_left(void **state)
@@ -353,7 +353,7 @@ static void test_universe_bad_cells(void **state)
 		     "u.csv:2:1: expected a date as YYYY-MM-DD or YYYY-MM, found '2021-02-30' (no such day)");
 	expect_error("date,A,B\n31/01/2021,0.01,0.02\n", NULL, HC_EDATA,
 		     "u.csv:2:1: expected a date as YYYY-MM-DD or YYYY-MM, found '31/01/2021'");
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.values = UNIVERSE_PRICES;
 	expect_error("date,A,B\n2021-01-31,2.385,1\n2021-02-28,0,1.1\n2021-03-31,1,1\n", &o, HC_EDATA,
 		     "u.csv:3:2: expected a positive price, found '0'");
@@ -400,7 +400,7 @@ static void test_universe_zero_variance(void **state)
 	expect_error("date,A,B\n2021-01-31,0.01,0.0125\n2021-02-28,0.03,0.0125\n2021-03-31,0.02,0.0125\n",
 		     NULL, HC_EDATA,
 		     "u.csv: security 'B' has zero variance (the same return 0.0125 in all 3 periods)");
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.values = UNIVERSE_PRICES;
 	expect_error("date,A,B\n2021-01-31,2.385,7\n2021-02-28,2.4,7\n2021-03-31,2.5,7\n", &o, HC_EDATA,
 		     "u.csv: security 'B' has zero variance (the same return 0 in all 2 periods)");
@@ -410,20 +410,20 @@ static void test_universe_bad_options(void **state)
 {
 	struct universe_options o;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.min_coverage = 1.5;
 	expect_error(wide3, &o, HC_EUSAGE, "minimum coverage 1.5 is out of range");
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.percent = 1;
 	o.values = UNIVERSE_PRICES;
 	expect_error(wide3, &o, HC_EUSAGE, "percent cells and prices exclude each other");
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.id_column = "id";
 	expect_error(wide3, &o, HC_EUSAGE, "id and value column names apply only to the long layout");
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.periods_per_year = -12;
 	expect_error(wide3, &o, HC_EUSAGE, "periods per year -12 is out of range");
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.delimiter = '|';
 	expect_error(wide3, &o, HC_EUSAGE, "unsupported delimiter '|'");
 }
@@ -452,7 +452,7 @@ static void test_universe_memory_budget(void **state)
 			n += (size_t)snprintf(text + n, cap - n, ",%.4f", 0.001 * (double)((i * 7 + j * 13) % 29) - 0.0145);
 		n += (size_t)snprintf(text + n, cap - n, "\n");
 	}
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.max_bytes = 200000;
 	assert_int_equal(load(&u, text, &o, &err), HC_ENOMEM);
 	assert_null(u);
@@ -464,7 +464,7 @@ static void test_universe_memory_budget(void **state)
 	assert_int_equal(u->m, 100);
 	assert_int_equal(u->t, 200);
 	assert_true(u->periods_per_year == 1);   /* year ends */
-	universe_free(u);
+	hc_universe_free(u);
 	free(text);
 }
 
@@ -472,7 +472,7 @@ static int32_t day(const char *s)
 {
 	int32_t d = 0;
 
-	assert_int_equal(universe_parse_date(s, strlen(s), &d), 0);
+	assert_int_equal(hc_universe_parse_date(s, strlen(s), &d), 0);
 	return d;
 }
 
@@ -488,14 +488,14 @@ static void test_universe_dates(void **state)
 	assert_int_equal(day("1969-12-31"), -1);
 	assert_int_equal(day("2000-01-31"), 10987);
 	assert_int_equal(day("1900-03-01"), -25508);
-	assert_int_equal(universe_parse_date("2023-02-29", 10, &d), -1);
-	assert_int_equal(universe_parse_date("1900-02-29", 10, &d), -1);  /* 1900 was not a leap year */
-	assert_int_equal(universe_parse_date("2021-13", 7, &d), -1);
-	assert_int_equal(universe_parse_date("2021-1-05", 9, &d), -1);
-	assert_int_equal(universe_parse_date("20210105", 8, &d), -1);
-	universe_format_date(-25508, buf);
+	assert_int_equal(hc_universe_parse_date("2023-02-29", 10, &d), -1);
+	assert_int_equal(hc_universe_parse_date("1900-02-29", 10, &d), -1);  /* 1900 was not a leap year */
+	assert_int_equal(hc_universe_parse_date("2021-13", 7, &d), -1);
+	assert_int_equal(hc_universe_parse_date("2021-1-05", 9, &d), -1);
+	assert_int_equal(hc_universe_parse_date("20210105", 8, &d), -1);
+	hc_universe_format_date(-25508, buf);
 	assert_string_equal(buf, "1900-03-01");
-	universe_format_date(19782, buf);
+	hc_universe_format_date(19782, buf);
 	assert_string_equal(buf, "2024-02-29");
 }
 
@@ -511,37 +511,37 @@ static void test_universe_detect_periods(void **state)
 		if (((x % 7) + 7 + 4) % 7 != 0 && ((x % 7) + 7 + 4) % 7 != 6)
 			d[n++] = x;
 	}
-	assert_true(universe_detect_periods(d, n) == 252);
+	assert_true(hc_universe_detect_periods(d, n) == 252);
 	for (i = 0; i < 60; i++)
 		d[i] = day("2021-01-04") + (int32_t)i;
-	assert_true(universe_detect_periods(d, 60) == 365);   /* calendar days, weekends included */
+	assert_true(hc_universe_detect_periods(d, 60) == 365);   /* calendar days, weekends included */
 	for (i = 0; i < 60; i++)
 		d[i] = day("2021-01-08") + 7 * (int32_t)i;
-	assert_true(universe_detect_periods(d, 60) == 52);
+	assert_true(hc_universe_detect_periods(d, 60) == 52);
 	d[0] = day("2021-03-31");
 	d[1] = day("2021-06-30");
 	d[2] = day("2021-09-30");
 	d[3] = day("2021-12-31");
 	d[4] = day("2022-03-31");
-	assert_true(universe_detect_periods(d, 5) == 4);
+	assert_true(hc_universe_detect_periods(d, 5) == 4);
 	d[0] = day("2020-06-30");
 	d[1] = day("2020-12-31");
 	d[2] = day("2021-06-30");
-	assert_true(universe_detect_periods(d, 3) == 2);
+	assert_true(hc_universe_detect_periods(d, 3) == 2);
 	d[0] = day("2019-12-31");
 	d[1] = day("2020-12-31");
-	assert_true(universe_detect_periods(d, 2) == 1);
+	assert_true(hc_universe_detect_periods(d, 2) == 1);
 	for (i = 0; i < 10; i++)
 		d[i] = 10 * (int32_t)i;
-	assert_true(universe_detect_periods(d, 10) == 37);    /* round(365.25/10) */
-	assert_true(universe_detect_periods(d, 1) == 0);
+	assert_true(hc_universe_detect_periods(d, 10) == 37);    /* round(365.25/10) */
+	assert_true(hc_universe_detect_periods(d, 1) == 0);
 	/* a missing month does not move the median */
 	d[0] = day("2021-01-31");
 	d[1] = day("2021-02-28");
 	d[2] = day("2021-04-30");
 	d[3] = day("2021-05-31");
 	d[4] = day("2021-06-30");
-	assert_true(universe_detect_periods(d, 5) == 12);
+	assert_true(hc_universe_detect_periods(d, 5) == 12);
 }
 
 static void test_universe_periods_override(void **state)
@@ -550,12 +550,12 @@ static void test_universe_periods_override(void **state)
 	struct universe *u;
 	struct hc_error err;
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.periods_per_year = 13;
 	assert_int_equal(load(&u, wide3, &o, &err), HC_OK);
 	assert_true(u->periods_per_year == 13);
 	assert_int_equal(u->periods_detected, 0);
-	universe_free(u);
+	hc_universe_free(u);
 }
 
 static void test_universe_window_and_resample(void **state)
@@ -573,12 +573,12 @@ static void test_universe_window_and_resample(void **state)
 	size_t idx[4] = { 4, 0, 4, 2 };
 	char d[11];
 
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.missing = UNIVERSE_MISSING_KEEP;
 	assert_int_equal(load(&u, text, &o, &err), HC_OK);
 	/* periods 1..3: B is complete there, C is constant there (dropped);
 	 * periods 2..4: B has a gap and C is constant, only A is left */
-	assert_int_equal(universe_window(&w, u, 1, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_OK);
+	assert_int_equal(hc_universe_window(&w, u, 1, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_OK);
 	assert_int_equal(w->m, 2);
 	assert_int_equal(w->t, 3);
 	assert_string_equal(w->ids[1], "B");
@@ -586,33 +586,33 @@ static void test_universe_window_and_resample(void **state)
 	assert_int_equal(w->ndropped, 1);
 	assert_string_equal(w->dropped[0].id, "C");
 	assert_string_equal(w->dropped[0].reason, "zero variance in the window");
-	universe_format_date(w->dates[0], d);
+	hc_universe_format_date(w->dates[0], d);
 	assert_string_equal(d, "2021-02-28");
-	universe_free(w);
+	hc_universe_free(w);
 	/* periods 0..2: B is missing one, so complete-data keeps A and C */
-	assert_int_equal(universe_window(&w, u, 0, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_OK);
+	assert_int_equal(hc_universe_window(&w, u, 0, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_OK);
 	assert_int_equal(w->m, 2);
 	assert_string_equal(w->ids[1], "C");
-	universe_free(w);
-	assert_int_equal(universe_window(&w, u, 1, 3, UNIVERSE_MISSING_KEEP, 0.8, &err), HC_OK);
+	hc_universe_free(w);
+	assert_int_equal(hc_universe_window(&w, u, 1, 3, UNIVERSE_MISSING_KEEP, 0.8, &err), HC_OK);
 	assert_int_equal(w->m, 3);
-	universe_free(w);
-	assert_int_equal(universe_window(&w, u, 2, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_EDATA);
+	hc_universe_free(w);
+	assert_int_equal(hc_universe_window(&w, u, 2, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_EDATA);
 	assert_null(w);
 	assert_string_equal(err.message, "window 2021-03-31 to 2021-05-31: 1 of 3 securities left after 2 dropped; expected at least 2");
-	assert_int_equal(universe_window(&w, u, 3, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_EUSAGE);
+	assert_int_equal(hc_universe_window(&w, u, 3, 3, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_EUSAGE);
 
-	assert_int_equal(universe_resample(&r, u, idx, 4, &err), HC_OK);
+	assert_int_equal(hc_universe_resample(&r, u, idx, 4, &err), HC_OK);
 	assert_int_equal(r->t, 4);
 	assert_true(r->x[0] == 0.0094);
 	assert_true(r->x[1] == 0.0213);
 	assert_true(isnan(r->x[4 + 1]));
 	assert_int_equal(r->has_missing, 1);
 	assert_int_equal(r->dates[0], u->dates[4]);
-	universe_free(r);
+	hc_universe_free(r);
 	idx[3] = 5;
-	assert_int_equal(universe_resample(&r, u, idx, 4, &err), HC_EUSAGE);
-	universe_free(u);
+	assert_int_equal(hc_universe_resample(&r, u, idx, 4, &err), HC_EUSAGE);
+	hc_universe_free(u);
 }
 
 static void test_universe_file(void **state)
@@ -622,11 +622,11 @@ static void test_universe_file(void **state)
 	struct hc_error err;
 
 	check_write_temp(path, sizeof path, "universe_small.csv", wide3);
-	assert_int_equal(universe_load(&u, path, NULL, &err), HC_OK);
+	assert_int_equal(hc_universe_load(&u, path, NULL, &err), HC_OK);
 	assert_int_equal(u->m, 3);
 	assert_string_equal(u->source, path);
-	universe_free(u);
-	assert_int_equal(universe_load(&u, "/nonexistent/u.csv", NULL, &err), HC_EIO);
+	hc_universe_free(u);
+	assert_int_equal(hc_universe_load(&u, "/nonexistent/u.csv", NULL, &err), HC_EIO);
 	assert_null(u);
 	assert_string_equal(err.message, "cannot open '/nonexistent/u.csv': No such file or directory");
 }
@@ -651,7 +651,7 @@ static int made_load(void *ctx, struct hc_error *err)
 
 static void made_release(void *ctx)
 {
-	universe_free(((struct made *)ctx)->u);
+	hc_universe_free(((struct made *)ctx)->u);
 }
 
 static void made_none(void *ctx)
@@ -676,7 +676,7 @@ static void test_universe_allocation_failure(void **state)
 
 	alloc_loop(wide3, NULL);
 	alloc_loop(missing, NULL);
-	universe_options_init(&o);
+	hc_universe_options_init(&o);
 	o.layout = UNIVERSE_LONG;
 	alloc_loop("date,id,value\n2021-02-28,B,0.02\n2021-01-31,A,0.01\n2021-02-28,A,0.03\n"
 		   "2021-01-31,B,-0.01\n2021-03-31,A,0.01\n2021-03-31,B,0.04\n", &o);
@@ -686,14 +686,14 @@ static int made_window(void *ctx, struct hc_error *err)
 {
 	struct made *w = ctx;
 
-	return universe_window(&w->u, w->from, 1, 3, UNIVERSE_MISSING_COMPLETE, 0.8, err);
+	return hc_universe_window(&w->u, w->from, 1, 3, UNIVERSE_MISSING_COMPLETE, 0.8, err);
 }
 
 static int made_resample(void *ctx, struct hc_error *err)
 {
 	struct made *w = ctx;
 
-	return universe_resample(&w->u, w->from, w->idx, 3, err);
+	return hc_universe_resample(&w->u, w->from, w->idx, 3, err);
 }
 
 static void test_universe_derived_allocation_failure(void **state)
@@ -709,7 +709,7 @@ static void test_universe_derived_allocation_failure(void **state)
 	w.from = u;
 	heapcheck_sweep(&window);
 	heapcheck_sweep(&resample);
-	universe_free(u);
+	hc_universe_free(u);
 }
 
 int main(int argc, char **argv)

@@ -109,7 +109,7 @@ struct audit_options {
 /* Defaults: paths AUDIT_DEFAULT_PATHS, seed 1, limit_tolerance and tie_rtol
  * their AUDIT_DEFAULT_* values, every rule and option off (zero/NULL).
  * Set fields afterwards.  Cannot fail. */
-void audit_options_init(struct audit_options *opt);
+void hc_audit_options_init(struct audit_options *opt);
 
 struct audit_check {
 	int passed;
@@ -185,7 +185,7 @@ struct audit_result {
 
 /*
  * Audit every fund of h against u (complete return series) and mo (its
- * moments, from moments_from_universe).  *out points into h, u and the
+ * moments, from hc_moments_from_universe).  *out points into h, u and the
  * sector map, which must outlive it.
  * Errors: HC_EDATA for an id missing from the universe under strict
  * ("HOLDINGS:LINE:COLUMN: ...") or a held security with gaps in u;
@@ -193,7 +193,7 @@ struct audit_result {
  * HC_ENOMEM; HC_EINTERRUPT from the progress callback; sampler errors.
  * A failed policy is not an error: see result->failed_funds.
  */
-int audit_run(struct audit_result **out, const struct holdings *h,
+int hc_audit_run(struct audit_result **out, const struct holdings *h,
 	      const struct universe *u, const struct moments *mo,
 	      const struct audit_options *opt, struct hc_error *err);
 
@@ -214,19 +214,19 @@ struct audit_matrix {
  * the pairwise-complete covariances of a history with gaps): a fund's
  * variance is the quadratic form w'Aw of its in-matrix weights, the
  * diversification ratio uses sigma_i = sqrt(a_ii), and the percentile's
- * random portfolios come from sampler_run_matrix (same seed, same
- * portfolios as sampler_run).  mo from moments_from_matrix(cm).  cm must be
- * positive semi-definite (see covmatrix_nearest_psd); a fund whose w'Aw is
+ * random portfolios come from hc_sampler_run_matrix (same seed, same
+ * portfolios as hc_sampler_run).  mo from hc_moments_from_matrix(cm).  cm must be
+ * positive semi-definite (see hc_covmatrix_nearest_psd); a fund whose w'Aw is
  * negative gets no sd.  *out points into h, am->cm and the sector map.
- * Errors as audit_run, and HC_EUSAGE for a bad periods_per_year, HC_EDATA
+ * Errors as hc_audit_run, and HC_EUSAGE for a bad periods_per_year, HC_EDATA
  * for fewer than 2 securities.
  */
-int audit_run_matrix(struct audit_result **out, const struct holdings *h,
+int hc_audit_run_matrix(struct audit_result **out, const struct holdings *h,
 		     const struct audit_matrix *am, const struct moments *mo,
 		     const struct audit_options *opt, struct hc_error *err);
 
 /* Free a and everything it owns; NULL is a no-op. */
-void audit_result_free(struct audit_result *a);
+void hc_audit_result_free(struct audit_result *a);
 
 /*
  * Build the report: fields describing the run, table "funds" (first: the
@@ -238,23 +238,23 @@ void audit_result_free(struct audit_result *a);
  * (fund,id,weight,line) and "sectors" (fund,sector,weight,holdings) when
  * there are any, the holdings' warnings and the cautions as notes.
  * equivalent_count has no value when there is no count, with the reason
- * "below the floor" (report_table_set_none: that text in CSV and the text
+ * "below the floor" (hc_report_table_set_none: that text in CSV and the text
  * table, null in JSON) and below_floor true;
- * failed_rules is a ';'-separated list of rule names (audit_rule_name).
+ * failed_rules is a ';'-separated list of rule names (hc_audit_rule_name).
  */
-int audit_report(struct report **out, const struct audit_result *a,
+int hc_audit_report(struct report **out, const struct audit_result *a,
 		 const struct holdings *h, struct hc_error *err);
 
 /* Parse "ucits,1940act,ric" (any order, case-insensitive; "all" and "none"
  * too) into AUDIT_SCREEN_* bits.  HC_EUSAGE naming an unknown item. */
-int audit_parse_screens(const char *text, unsigned *screens, struct hc_error *err);
+int hc_audit_parse_screens(const char *text, unsigned *screens, struct hc_error *err);
 
 /* "min-holdings", "min-effective", "max-weight", "max-sector-weight",
  * "ucits", "1940act", "ric" for one AUDIT_RULE_* bit; NULL otherwise. */
-const char *audit_rule_name(unsigned rule);
+const char *hc_audit_rule_name(unsigned rule);
 
 /* "ucits", "1940act", "ric" for AUDIT_SCREEN_* index 0..2. */
-const char *audit_screen_name(int index);
+const char *hc_audit_screen_name(int index);
 
 #ifdef __cplusplus
 }

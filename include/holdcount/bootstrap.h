@@ -43,7 +43,7 @@ typedef int (*bootstrap_progress_fn)(void *ctx, size_t done, size_t total);
 struct bootstrap_options {
 	size_t replicates;         /* B >= 1 */
 	int kind;                  /* enum bootstrap_kind */
-	size_t block_length;       /* L; 0 = bootstrap_default_block_length(T) */
+	size_t block_length;       /* L; 0 = hc_bootstrap_default_block_length(T) */
 	uint64_t seed;
 	int threads;               /* 0 = OpenMP default */
 	bootstrap_progress_fn progress;
@@ -52,13 +52,13 @@ struct bootstrap_options {
 
 /* Defaults: BOOTSTRAP_DEFAULT_REPLICATES replicates, kind BOOTSTRAP_BLOCK,
  * seed 1, the rest zero/NULL.  Cannot fail. */
-void bootstrap_options_init(struct bootstrap_options *opt);
+void hc_bootstrap_options_init(struct bootstrap_options *opt);
 
 /* round(T^(1/3)), at least 1. */
-size_t bootstrap_default_block_length(size_t t);
+size_t hc_bootstrap_default_block_length(size_t t);
 
 /* Name of a kind ("block", "stationary"), or NULL. */
-const char *bootstrap_kind_name(int kind);
+const char *hc_bootstrap_kind_name(int kind);
 
 /*
  * The precomputed sums a replicate needs, from data centred by the
@@ -80,16 +80,16 @@ struct bootstrap_base {
 };
 
 /* From complete data (u->has_missing == 0, m >= 2, t >= 2; else HC_EDATA). */
-int bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *u,
+int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *u,
 			 struct hc_error *err);
-void bootstrap_base_free(struct bootstrap_base *b);
+void hc_bootstrap_base_free(struct bootstrap_base *b);
 
 /*
  * Period indices of replicate rep into idx[0..t-1] (values 0..t-1).
  * Deterministic in (kind, t, block_length, seed, rep).  block_length must be
  * 1..t (HC_EUSAGE otherwise).
  */
-int bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
+int hc_bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 		      size_t rep, size_t *idx, struct hc_error *err);
 
 /*
@@ -97,7 +97,7 @@ int bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
  * resampled universe whose period t appears w[t] times (sum w = T).
  * No allocation; safe to call from several threads at once.
  */
-void bootstrap_moments(const struct bootstrap_base *b, const double *w,
+void hc_bootstrap_moments(const struct bootstrap_base *b, const double *w,
 		       double *vbar, double *cbar);
 
 struct bootstrap_result {
@@ -109,9 +109,9 @@ struct bootstrap_result {
 };
 
 /* Run B replicates (OpenMP over replicates). */
-int bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
+int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
 		  const struct bootstrap_options *opt, struct hc_error *err);
-void bootstrap_result_free(struct bootstrap_result *r);
+void hc_bootstrap_result_free(struct bootstrap_result *r);
 
 #ifdef __cplusplus
 }

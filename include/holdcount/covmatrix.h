@@ -47,25 +47,25 @@ struct covmatrix {
  * diagonal entry that is not positive, or fewer than 2 ids.
  * On failure *out is NULL.
  */
-int covmatrix_load(struct covmatrix **out, const char *path, double symmetry_tol,
+int hc_covmatrix_load(struct covmatrix **out, const char *path, double symmetry_tol,
 		   struct hc_error *err);
 
 /* The same from a buffer; name is used in messages. */
-int covmatrix_load_buffer(struct covmatrix **out, const char *name,
+int hc_covmatrix_load_buffer(struct covmatrix **out, const char *name,
 			  const char *data, size_t len, double symmetry_tol,
 			  struct hc_error *err);
 
 /*
- * covmatrix_load and covmatrix_load_buffer within a memory budget of
+ * hc_covmatrix_load and hc_covmatrix_load_buffer within a memory budget of
  * max_bytes (0 = from available memory, which the two above use): the
  * m x m numbers are checked against it as soon as the header has given m,
  * before they are allocated; HC_ENOMEM "PATH: covariance matrix of M ids
  * too large: needs at least X MiB, budget Y MiB" (memory.h's
  * hc_memory_check).  The result's max_bytes is max_bytes.
  */
-int covmatrix_load_within(struct covmatrix **out, const char *path, double symmetry_tol,
+int hc_covmatrix_load_within(struct covmatrix **out, const char *path, double symmetry_tol,
 			  size_t max_bytes, struct hc_error *err);
-int covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
+int hc_covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
 				 const char *data, size_t len, double symmetry_tol,
 				 size_t max_bytes, struct hc_error *err);
 
@@ -75,26 +75,26 @@ int covmatrix_load_buffer_within(struct covmatrix **out, const char *name,
  * (u->has_missing): pairwise-complete covariances, each pair using its own
  * means over its n_ij common periods and divisor n_ij - 1; HC_EDATA naming
  * the pair when n_ij < COVMATRIX_MIN_COMMON_PERIODS.  A pairwise matrix need
- * not be positive semi-definite (see covmatrix_repair_psd).
+ * not be positive semi-definite (see hc_covmatrix_repair_psd).
  * Memory: one m*t copy and the m*m result (complete); two m*t and three
  * m*m arrays (pairwise).  They are checked first against u->max_bytes
  * (memory.h), HC_ENOMEM "SOURCE: universe too large for its covariance
  * matrix: ..." when they do not fit; HC_ENOMEM too when they cannot be
  * allocated.  The result's max_bytes is u->max_bytes.
  */
-int covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
+int hc_covmatrix_from_universe(const struct universe *u, struct covmatrix **out,
 			    struct hc_error *err);
 
 /*
  * The one place the minimum above is applied, by every pairwise-complete
- * computation (covmatrix_from_universe here, the pairwise route of
+ * computation (hc_covmatrix_from_universe here, the pairwise route of
  * moments.h): HC_OK when securities i and j of u share n >=
  * COVMATRIX_MIN_COMMON_PERIODS observed periods (i == j: security i alone
  * has n), else HC_EDATA "SOURCE: securities 'B' and 'C' have only 2 common
  * periods; expected at least 3 for a pairwise covariance" ("security 'B'
  * has only 2 periods; ..." when i == j).
  */
-int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
+int hc_covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t n,
 			    struct hc_error *err);
 
 /*
@@ -105,7 +105,7 @@ int covmatrix_check_overlap(const struct universe *u, size_t i, size_t j, size_t
  * semi-definite (a is left exactly as it was).  HC_ENOMEM, or
  * HC_EINTERNAL when the eigensolver fails (a unchanged).
  */
-int covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err);
+int hc_covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *err);
 
 /* What replacing a matrix by its nearest positive semi-definite one moved. */
 struct covmatrix_psd {
@@ -119,14 +119,14 @@ struct covmatrix_psd {
 /*
  * Write into b (m*m, the caller's, not overlapping a) the nearest positive
  * semi-definite matrix to the symmetric m*m row-major a in the Frobenius
- * norm, by the same eigenvalue clipping as covmatrix_repair_psd (Higham,
+ * norm, by the same eigenvalue clipping as hc_covmatrix_repair_psd (Higham,
  * 1988), and into *st what it moved.  When a has no negative eigenvalue, b
  * is an exact copy of a and st->distance is 0.  a's diagonal must be
  * positive (moves are measured relative to sqrt(a_ii a_jj)).  HC_ENOMEM, or
  * HC_EINTERNAL when the eigensolver fails or m is 0 (b is then a copy of a,
  * when m > 0).  O(m^3); a is not modified.
  */
-int covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix_psd *st,
+int hc_covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix_psd *st,
 			  struct hc_error *err);
 
 /*
@@ -135,14 +135,14 @@ int covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix
  * positive semi-definite (*lambda_min < 0).  HC_ENOMEM, or HC_EINTERNAL
  * when the eigensolver fails.  O(m^3).
  */
-int covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
+int hc_covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
 			     struct hc_error *err);
 
 /* Free c and everything it owns; NULL is a no-op. */
-void covmatrix_free(struct covmatrix *c);
+void hc_covmatrix_free(struct covmatrix *c);
 
 /* Index of id in c->ids, or -1. */
-long covmatrix_find(const struct covmatrix *c, const char *id);
+long hc_covmatrix_find(const struct covmatrix *c, const char *id);
 
 #ifdef __cplusplus
 }

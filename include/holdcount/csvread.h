@@ -30,7 +30,7 @@ struct csvread_options {
 };
 
 /* Defaults: delimiter detected, max_field CSVREAD_DEFAULT_MAX_FIELD (0). */
-void csvread_options_init(struct csvread_options *opt);
+void hc_csvread_options_init(struct csvread_options *opt);
 
 struct csvread_field {
 	const char *text;     /* NUL-terminated; quotes removed; not owned by the callee */
@@ -60,18 +60,18 @@ struct csvread_handler {
  * HC_EDATA for malformed CSV (unterminated quote, NUL byte, empty file:
  * "PATH: empty file"), or whatever a callback returned. *delimiter_used
  * (may be NULL) receives the delimiter. */
-int csvread_file(const char *path, const struct csvread_options *opt,
+int hc_csvread_file(const char *path, const struct csvread_options *opt,
 		 const struct csvread_handler *h, char *delimiter_used,
 		 struct hc_error *err);
 
 /* The same over a buffer; name is used in messages (fuzzing, tests). */
-int csvread_buffer(const char *name, const char *data, size_t len,
+int hc_csvread_buffer(const char *name, const char *data, size_t len,
 		   const struct csvread_options *opt,
 		   const struct csvread_handler *h, char *delimiter_used,
 		   struct hc_error *err);
 
 /* 1 when s[0..len) is valid UTF-8 (no overlongs, no surrogates), else 0. */
-int csvread_utf8_valid(const char *s, size_t len);
+int hc_csvread_utf8_valid(const char *s, size_t len);
 
 /*
  * Parse a decimal number cell strictly: optional sign, digits, optional
@@ -80,9 +80,9 @@ int csvread_utf8_valid(const char *s, size_t len);
  * separators, decimal commas and values that overflow to infinity.
  * Returns 0 on success, -1 otherwise.
  */
-int csvread_parse_number(const char *s, size_t len, double *value, int *had_percent);
+int hc_csvread_parse_number(const char *s, size_t len, double *value, int *had_percent);
 
-/* Bytes of a cell csvread_quote keeps, and the buffer it needs. */
+/* Bytes of a cell hc_csvread_quote keeps, and the buffer it needs. */
 #define CSVREAD_QUOTE_MAX 40
 #define CSVREAD_QUOTE_BUF (2 * CSVREAD_QUOTE_MAX + 4)
 
@@ -92,10 +92,10 @@ int csvread_parse_number(const char *s, size_t len, double *value, int *had_perc
  * and other control bytes as '?', then "..." when it was cut.  buf must
  * hold CSVREAD_QUOTE_BUF bytes; returns buf.
  */
-const char *csvread_quote(const char *s, size_t len, char *buf);
+const char *hc_csvread_quote(const char *s, size_t len, char *buf);
 
 /* 1 when the cell means "missing": empty, NA, NaN, N/A, '.', null (any case). */
-int csvread_is_missing(const char *s, size_t len);
+int hc_csvread_is_missing(const char *s, size_t len);
 
 #ifdef __cplusplus
 }

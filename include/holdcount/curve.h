@@ -21,25 +21,25 @@ extern "C" {
 #endif
 
 /* E[sigma^2(n)] = vbar/n + (1 - 1/n) cbar, per period; n >= 1 (real n allowed). */
-double curve_expected_variance(const struct moments *mo, double n);
+double hc_curve_expected_variance(const struct moments *mo, double n);
 
 /* Exact standard deviation of the portfolio variance across random n-subsets,
  * per period (squared units); exactly 0 at n = m.  Needs mo->has_spread
  * (not from summary statistics) and 1 <= n <= m; otherwise HC_EUSAGE. */
-int curve_variance_sd(const struct moments *mo, size_t n, double *sd,
+int hc_curve_variance_sd(const struct moments *mo, size_t n, double *sd,
 		      struct hc_error *err);
 
 /* E[TE^2(n)] = (vbar - cbar)(1/n - 1/M) against the universe equal-weight
  * portfolio, per period; with an unbounded universe (m = 0) the 1/M term is 0. */
-double curve_expected_te2(const struct moments *mo, double n);
+double hc_curve_expected_te2(const struct moments *mo, double n);
 
 /* (vbar - cbar)/n divided by E[sigma^2(n)]. */
-double curve_diversifiable_share(const struct moments *mo, double n);
+double hc_curve_diversifiable_share(const struct moments *mo, double n);
 
 /* Equivalent count of a portfolio with per-period variance s2:
  * (vbar - cbar)/(s2 - cbar).  Returns 0 and sets *n_eq, or -1 when s2 <= cbar
  * ("below the floor": there is no such count). */
-int curve_equivalent_count(const struct moments *mo, double s2, double *n_eq);
+int hc_curve_equivalent_count(const struct moments *mo, double s2, double *n_eq);
 
 struct curve_point {
 	size_t n;
@@ -71,15 +71,15 @@ struct curve {
  * (each 1 <= n <= m, or any n >= 1 when m = 0), scaled by
  * periods_per_year (> 0; 1 keeps the input's scale).  variance_sd is NaN
  * without the spread sums; the sampled fields are NaN and sampled = 0
- * until sampler_summarise.  Free with curve_free.  HC_EUSAGE for a bad size
+ * until hc_sampler_summarise.  Free with hc_curve_free.  HC_EUSAGE for a bad size
  * ("size 900 is larger than the 412 securities kept") or scale, HC_ENOMEM;
  * *out is NULL on error. */
-int curve_exact(struct curve **out, const struct moments *mo,
+int hc_curve_exact(struct curve **out, const struct moments *mo,
 		const size_t *sizes, size_t nsizes, double periods_per_year,
 		struct hc_error *err);
 
 /* Free c and everything it owns; NULL is a no-op. */
-void curve_free(struct curve *c);
+void hc_curve_free(struct curve *c);
 
 /* Most sizes one size list may name, ranges expanded and duplicates
  * counted: bounds the work and memory of a list such as "1-3000000000"
@@ -96,13 +96,13 @@ void curve_free(struct curve *c);
  * securities kept", "bad size list: '1-3000000000' names more than
  * 1000000 sizes"); HC_ENOMEM.
  */
-int curve_parse_sizes(const char *text, size_t max, size_t **sizes,
+int hc_curve_parse_sizes(const char *text, size_t max, size_t **sizes,
 		      size_t *nsizes, struct hc_error *err);
 
 /* The default grid for a universe of m securities: 1..10, then a roughly
  * logarithmic sequence (12, 15, 20, 25, 30, 40, 50, ...) up to and
  * including m.  m = 0 (unbounded) stops at 1000. */
-int curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
+int hc_curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
 			struct hc_error *err);
 
 /*
@@ -112,11 +112,11 @@ int curve_default_sizes(size_t m, size_t **sizes, size_t *nsizes,
  *   sampled_mean_sd,sd_p05,sd_p50,sd_p95,z_score
  * and append one row per point (annualised as c is; sampled cells and
  * unknown values left empty).  t must have no columns yet.  Defined in
- * src/curve_report.c so that programs without a report need no writer.
+ * src/hc_curve_report.c so that programs without a report need no writer.
  * Returns HC_OK, HC_ENOMEM when the table cannot grow, or HC_EUSAGE when
  * t already has columns (no error record: the caller words the message).
  */
-int curve_report(const struct curve *c, struct report_table *t);
+int hc_curve_report(const struct curve *c, struct report_table *t);
 
 #ifdef __cplusplus
 }

@@ -43,7 +43,7 @@ struct holdings_options {
 
 /* Defaults: sum_tolerance HOLDINGS_DEFAULT_SUM_TOLERANCE, the rest
  * zero/NULL (delimiter detected).  Cannot fail. */
-void holdings_options_init(struct holdings_options *opt);
+void hc_holdings_options_init(struct holdings_options *opt);
 
 enum holdings_kind {
 	HOLDINGS_WEIGHTS = 0,       /* the file gave weights */
@@ -90,23 +90,23 @@ struct holdings {
  *   HC_EUSAGE both weight_column and value_column were named.
  *   HC_EIO    the file cannot be read.  HC_ENOMEM  allocation failed.
  */
-int holdings_load(struct holdings **out, const char *path,
+int hc_holdings_load(struct holdings **out, const char *path,
 		  const struct holdings_options *opt, struct hc_error *err);
 
 /* The same from a memory buffer; name is used in messages. */
-int holdings_load_buffer(struct holdings **out, const char *name,
+int hc_holdings_load_buffer(struct holdings **out, const char *name,
 			 const char *data, size_t len,
 			 const struct holdings_options *opt, struct hc_error *err);
 
 /* Free h and everything it owns; NULL is a no-op. */
-void holdings_free(struct holdings *h);
+void hc_holdings_free(struct holdings *h);
 
 /*
  * A two-column label map (id,label; e.g. a sector map) read with csvread.
  * The header row is required; its column names are not checked beyond
  * there being two.  Duplicate ids, empty ids or labels and rows of the wrong
  * width are HC_EDATA at their position.  Entries are sorted by id for
- * holdings_labels_find.  (Written here because the audit needs it before a
+ * hc_holdings_labels_find.  (Written here because the audit needs it before a
  * shared sector loader existed; it is deliberately small.)
  */
 struct holdings_labels {
@@ -117,19 +117,19 @@ struct holdings_labels {
 };
 
 /* Read a label map from path, or from data[0..len) named name in messages;
- * delimiter ',' or ';', 0 = detect.  *out is a new map (holdings_labels_free)
+ * delimiter ',' or ';', 0 = detect.  *out is a new map (hc_holdings_labels_free)
  * or NULL on error: HC_EIO (cannot read), HC_EDATA ("NAME:LINE:COL: ..."),
  * HC_ENOMEM. */
-int holdings_labels_load(struct holdings_labels **out, const char *path,
+int hc_holdings_labels_load(struct holdings_labels **out, const char *path,
 			 char delimiter, struct hc_error *err);
-int holdings_labels_load_buffer(struct holdings_labels **out, const char *name,
+int hc_holdings_labels_load_buffer(struct holdings_labels **out, const char *name,
 				const char *data, size_t len, char delimiter,
 				struct hc_error *err);
 /* Free l and everything it owns; NULL is a no-op. */
-void holdings_labels_free(struct holdings_labels *l);
+void hc_holdings_labels_free(struct holdings_labels *l);
 
 /* The label of id, or NULL when the map does not have it.  O(log n). */
-const char *holdings_labels_find(const struct holdings_labels *l, const char *id);
+const char *hc_holdings_labels_find(const struct holdings_labels *l, const char *id);
 
 #ifdef __cplusplus
 }

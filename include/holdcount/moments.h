@@ -59,7 +59,7 @@ struct moments {
  * programs that want no threaded BLAS of their own: call once at start,
  * before any other thread runs.  The holdcount command does.  Cannot fail.
  */
-void moments_blas_serial(void);
+void hc_moments_blas_serial(void);
 
 /* From a universe: complete data uses the Gram route when T < M, else the
  * matrix route; data with gaps uses pairwise-complete covariances.
@@ -72,34 +72,34 @@ void moments_blas_serial(void);
  * HC_EDATA when fewer than 2 securities or periods, when a security has
  * zero variance, or (pairwise) when two securities share fewer than
  * COVMATRIX_MIN_COMMON_PERIODS (covmatrix.h) periods, with the message
- * covmatrix_check_overlap gives; HC_ENOMEM.  On error *mo is zeroed. */
-int moments_from_universe(struct moments *mo, const struct universe *u,
+ * hc_covmatrix_check_overlap gives; HC_ENOMEM.  On error *mo is zeroed. */
+int hc_moments_from_universe(struct moments *mo, const struct universe *u,
 			  struct hc_error *err);
 
 /* The same by a chosen route (MOMENTS_ROUTE_GRAM, _MATRIX or _PAIRWISE),
  * for tests and benchmarks: every route is exact for complete data, only
  * the cost differs.  GRAM and MATRIX need complete data (HC_EUSAGE). */
-int moments_from_universe_route(struct moments *mo, const struct universe *u,
+int hc_moments_from_universe_route(struct moments *mo, const struct universe *u,
 				int route, struct hc_error *err);
 
 /* The M x M sample covariance matrix of u (divisor T-1, row-major, both
  * triangles) into a new array *a, freed with hc_free: through dsyrk for
  * complete data; pairwise-complete (each pair over the periods both have,
  * which need not be positive semi-definite) when u->has_missing.  For the
- * matrix sampler and for audits.  Errors as moments_from_universe (the
+ * matrix sampler and for audits.  Errors as hc_moments_from_universe (the
  * budget counts the M x M result, and the centred copy for complete data);
  * *a is NULL on error. */
-int moments_covariance(const struct universe *u, double **a, struct hc_error *err);
+int hc_moments_covariance(const struct universe *u, double **a, struct hc_error *err);
 
 /* From an M x M covariance matrix a (row-major, symmetric; only read).
  * Average correlation is computed from it too. */
-int moments_from_matrix(struct moments *mo, const double *a, size_t m,
+int hc_moments_from_matrix(struct moments *mo, const double *a, size_t m,
 			struct hc_error *err);
 
 /* From summary statistics: average variance vbar, average covariance cbar,
  * m securities (0 = unbounded).  No spread; correlation cbar/vbar is used
  * only as an approximation and flagged has_correlation = 0. */
-int moments_from_summary(struct moments *mo, double vbar, double cbar,
+int hc_moments_from_summary(struct moments *mo, double vbar, double cbar,
 			 size_t m, struct hc_error *err);
 
 #ifdef __cplusplus

@@ -2,7 +2,7 @@
  * outfile.h - write a file so that readers see all of it or none of it.
  *
  * Output goes to a temporary file in the same directory (".NAME.tmp-XXXXXX"),
- * which outfile_commit flushes, fsyncs and renames over NAME; outfile_abort
+ * which hc_outfile_commit flushes, fsyncs and renames over NAME; hc_outfile_abort
  * (or a failed commit) removes it, leaving any earlier NAME untouched.
  * With path NULL or "-", output goes to stdout and commit only flushes.
  * A NAME that is a symbolic link is written through: the temporary is made
@@ -34,16 +34,16 @@ struct outfile {
  * cannot be created or a link cannot be followed (more than 40 in a row:
  * ELOOP; the message carries strerror), HC_ENOMEM; on error of is zeroed
  * and nothing is left on disk. */
-int outfile_open(struct outfile *of, const char *path, struct hc_error *err);
+int hc_outfile_open(struct outfile *of, const char *path, struct hc_error *err);
 /* Flush, fsync and rename the temporary over the final name (standard
  * output: flush only).  HC_EIO when any step fails, after removing the
  * temporary; HC_EINTERNAL when of was never opened or already committed.
  * Afterwards of->fp is NULL (a file is closed; standard output stays open). */
-int outfile_commit(struct outfile *of, struct hc_error *err);
+int hc_outfile_commit(struct outfile *of, struct hc_error *err);
 /* Close and remove the temporary, leaving an earlier file at the final name
  * untouched (standard output: flush what was written).  of may be NULL or
  * already committed; cannot fail. */
-void outfile_abort(struct outfile *of);
+void hc_outfile_abort(struct outfile *of);
 
 /*
  * Do a and b name the same file?  *same = 1 when both exist and are one
@@ -53,16 +53,16 @@ void outfile_abort(struct outfile *of);
  * NULL is never the same as anything.  So a command can refuse to write
  * over its own input.  HC_OK, or HC_ENOMEM.
  */
-int outfile_same_file(const char *a, const char *b, int *same, struct hc_error *err);
+int hc_outfile_same_file(const char *a, const char *b, int *same, struct hc_error *err);
 
 /* The temporary name currently open, or NULL (for a signal handler that must
  * unlink it: async-signal-safe to read). */
-const char *outfile_pending(void);
+const char *hc_outfile_pending(void);
 
 /* Unlink every temporary still open (several outfiles may be open at once,
  * e.g. a report folder).  Async-signal-safe: for a SIGINT/SIGTERM handler.
  * The FILE streams are left alone; the process is expected to exit. */
-void outfile_unlink_pending(void);
+void hc_outfile_unlink_pending(void);
 
 #ifdef __cplusplus
 }

@@ -26,18 +26,18 @@ struct plotlayout_axis {
 	double px0, px1;
 };
 
-double plotlayout_to_px(const struct plotlayout_axis *a, double v);
-double plotlayout_from_px(const struct plotlayout_axis *a, double px);
+double hc_plotlayout_to_px(const struct plotlayout_axis *a, double v);
+double hc_plotlayout_from_px(const struct plotlayout_axis *a, double px);
 
 /* Estimated width in pixels of s drawn in Sans at points points. */
-double plotlayout_text_px(const char *s, double points);
+double hc_plotlayout_text_px(const char *s, double points);
 
 /* Height in pixels of one line of text at 9 points (with its leading). */
 #define PLOTLAYOUT_LINE_PX 14.0
 
 /* ---- labels on leader lines ---------------------------------------------- */
 
-/* Most leaders plotlayout_leaders lays out (it tries every choice of sides). */
+/* Most leaders hc_plotlayout_leaders lays out (it tries every choice of sides). */
 #define PLOTLAYOUT_MAX_LEADERS 12
 
 /*
@@ -65,11 +65,11 @@ struct plotlayout_leader {
  * labels reach outside x0..x1 (0 when they all fit).  HC_EUSAGE when n is
  * above PLOTLAYOUT_MAX_LEADERS.
  */
-int plotlayout_leaders(struct plotlayout_leader *ld, size_t n, double x0, double x1, double gap,
+int hc_plotlayout_leaders(struct plotlayout_leader *ld, size_t n, double x0, double x1, double gap,
 		       double pad, double *spill, struct hc_error *err);
 
 /* The span [*lo, *hi] in pixels of leader i's label as laid out. */
-void plotlayout_leader_span(const struct plotlayout_leader *ld, double gap, double *lo, double *hi);
+void hc_plotlayout_leader_span(const struct plotlayout_leader *ld, double gap, double *lo, double *hi);
 
 /* ---- labels among obstacles ------------------------------------------------ */
 
@@ -91,14 +91,14 @@ struct plotlayout_scene {
 };
 
 /* 1 when a and b overlap (touching edges do not). */
-int plotlayout_overlap(const struct plotlayout_rect *a, const struct plotlayout_rect *b);
+int hc_plotlayout_overlap(const struct plotlayout_rect *a, const struct plotlayout_rect *b);
 
 /* How much the rect r collides with the scene: the line points inside it,
  * plus 1 for each box it overlaps, plus 1 when it leaves the frame. */
-size_t plotlayout_collisions(const struct plotlayout_rect *r, const struct plotlayout_scene *s);
+size_t hc_plotlayout_collisions(const struct plotlayout_rect *r, const struct plotlayout_scene *s);
 
 /* The candidate (index 0..ncand-1) with the fewest collisions, the earliest
  * on a tie (so candidates go in order of preference).  ncand >= 1. */
-size_t plotlayout_choose(const struct plotlayout_rect *cand, size_t ncand, const struct plotlayout_scene *s);
+size_t hc_plotlayout_choose(const struct plotlayout_rect *cand, size_t ncand, const struct plotlayout_scene *s);
 
 #endif

@@ -4,7 +4,7 @@
  * Each plot is one gnuplot script (NAME.gp) reading whitespace-separated
  * data files (*.dat) that sit beside it, so that `cd DIR && gnuplot NAME.gp`
  * renders it anywhere.  The fixed parts of the scripts are templates kept in
- * the plots/ folder (one NAME.gp each) and built into the library (plots_template); the parts that
+ * the plots/ folder (one NAME.gp each) and built into the library (hc_plots_template); the parts that
  * depend on the figures (the plot command, tick marks, the floor) are filled
  * in here.  Figures in the data files are percent a year (annualised as the
  * curve is), printed with 10 significant digits and no dates or times, so
@@ -14,7 +14,7 @@
  * each script fixes its frame in screen coordinates, and the data files
  * carry where each rule's label and each fund's name go.
  *
- * Library code never runs a program it was not asked to: plots_render is
+ * Library code never runs a program it was not asked to: hc_plots_render is
  * the only function that starts gnuplot, and it reports gnuplot's messages
  * instead of printing them.
  */
@@ -48,9 +48,9 @@ enum plots_data {
 	PLOTS_DATA_EXACT = 0,   /* exact.dat: n, sqrt E[var], share, tracking error */
 	PLOTS_DATA_SAMPLED = 1, /* sampled.dat: n, mean sd, 5% and 95% quantiles */
 	PLOTS_DATA_RULES = 2,   /* rules.dat: count, sd at count, then for the linear and the log
-				 * axis the label's height and side (plotlayout_leaders), label */
+				 * axis the label's height and side (hc_plotlayout_leaders), label */
 	PLOTS_DATA_FUNDS = 3,   /* funds.dat: holdings, effective holdings, sd, passed, the name's
-				 * anchor and side (plotlayout_choose), name */
+				 * anchor and side (hc_plotlayout_choose), name */
 	PLOTS_DATA_ROLLING = 4, /* rolling.dat: window end date, each exact rule's count */
 	PLOTS_NDATA = 5
 };
@@ -75,51 +75,51 @@ struct plots_input {
 
 /* The template text of plots/NAME.gp, or NULL (defined in the generated
  * plots_embedded.c). */
-const char *plots_template(const char *name);
+const char *hc_plots_template(const char *name);
 
 /* File names and words for each kind and data file. */
-const char *plots_name(int kind);          /* "risk", "risk-log", ... (script NAME.gp) */
-const char *plots_title(int kind);         /* the plot's title */
-const char *plots_data_name(int data);     /* "exact.dat", ... */
-const char *plots_format_name(int format); /* "png", "svg", "pdf" */
+const char *hc_plots_name(int kind);          /* "risk", "risk-log", ... (script NAME.gp) */
+const char *hc_plots_title(int kind);         /* the plot's title */
+const char *hc_plots_data_name(int data);     /* "exact.dat", ... */
+const char *hc_plots_format_name(int format); /* "png", "svg", "pdf" */
 /* Parse "png", "svg" or "pdf"; -1 when unknown. */
-int plots_parse_format(const char *s);
+int hc_plots_parse_format(const char *s);
 
 /* 1 when in holds what plot kind needs (funds: an audit with some fund's
  * risk known; rolling: a rolling result with figures in some window), else 0. */
-int plots_available(int kind, const struct plots_input *in);
+int hc_plots_available(int kind, const struct plots_input *in);
 /* Bit d set when plot kind reads data file d. */
-unsigned plots_data_used(int kind);
+unsigned hc_plots_data_used(int kind);
 
 /* Write data file d for in.  HC_EIO when the stream fails; HC_EUSAGE when in
  * lacks what d needs. */
-int plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err);
+int hc_plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err);
 
 /* Write script NAME.gp of kind for in, drawing to NAME.<format>.
  * HC_EUSAGE when the plot is not available for in or format is unknown,
  * HC_EINTERNAL when a template is missing or keeps a placeholder (a build
  * fault), HC_EIO when the stream fails, HC_ENOMEM. */
-int plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
+int hc_plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
 		       struct hc_error *err);
 
 /* A caption line for summary.md: what the plot shows and how to read it
  * (static text or built into buf of size bytes; returns buf or static). */
-const char *plots_caption(int kind, const struct plots_input *in, char *buf, size_t size);
+const char *hc_plots_caption(int kind, const struct plots_input *in, char *buf, size_t size);
 
 /* Look for an executable "gnuplot" along the PATH given (the environment's
  * PATH when NULL).  Returns 1 and copies its path into buf (size bytes), or
  * 0 when there is none. */
-int plots_find_gnuplot(const char *path_env, char *buf, size_t size);
+int hc_plots_find_gnuplot(const char *path_env, char *buf, size_t size);
 
 /*
- * Run gnuplot (the path from plots_find_gnuplot) on script inside dir, with
+ * Run gnuplot (the path from hc_plots_find_gnuplot) on script inside dir, with
  * dir as its working directory, its standard output discarded and its
  * standard error captured.  Any output on standard error containing
  * "warning" (any case), or a non-zero exit, is a failure: HC_EINTERNAL with
  * gnuplot's first message line in err (the scripts are ours, so a warning is
  * a fault to fix, not to hide).  HC_EIO when gnuplot cannot be started.
  */
-int plots_render(const char *gnuplot, const char *dir, const char *script,
+int hc_plots_render(const char *gnuplot, const char *dir, const char *script,
 		 struct hc_error *err);
 
 #ifdef __cplusplus

@@ -12,7 +12,7 @@
  *   csv:  the first table only, header row of column keys first, numbers
  *         with 17 significant digits (round-trip), empty cell for no value;
  *         with no table, "key,value" rows of the fields
- *         (report_write_csv_part writes any other part the same way).
+ *         (hc_report_write_csv_part writes any other part the same way).
  *   json: one object: each field under its key, each table as an array of
  *         objects under its key, notes as "cautions": [...]; numbers with 17
  *         significant digits, null for no value.
@@ -31,7 +31,7 @@ extern "C" {
 
 enum report_kind {
 	REPORT_NONE = 0,    /* no value: empty in CSV, null in JSON, "-" in text;
-			     * with a reason (text set, report_table_set_none),
+			     * with a reason (text set, hc_report_table_set_none),
 			     * the reason in CSV and text, still null in JSON */
 	REPORT_REAL = 1,
 	REPORT_INT = 2,
@@ -85,40 +85,40 @@ struct report {
 	char **notes;
 };
 
-/* An empty report; NULL when out of memory.  report_free frees it and
+/* An empty report; NULL when out of memory.  hc_report_free frees it and
  * everything it owns (its tables too); NULL is a no-op. */
-struct report *report_alloc(void);
-void report_free(struct report *r);
+struct report *hc_report_alloc(void);
+void hc_report_free(struct report *r);
 
 /* Fields (scalar key/value pairs), in the order added; key is the CSV/JSON
  * key, title the text label.  Strings are copied.  Each returns HC_OK, or
  * HC_ENOMEM (there is no error record: the caller words the message), the
  * report then unchanged.  A non-finite real is stored as no value. */
-int report_add_real(struct report *r, const char *key, const char *title, double x, int style);
-int report_add_int(struct report *r, const char *key, const char *title, long long x);
-int report_add_text(struct report *r, const char *key, const char *title, const char *s);
-int report_add_bool(struct report *r, const char *key, const char *title, int b);
-int report_add_none(struct report *r, const char *key, const char *title);
-int report_add_note(struct report *r, const char *note);
+int hc_report_add_real(struct report *r, const char *key, const char *title, double x, int style);
+int hc_report_add_int(struct report *r, const char *key, const char *title, long long x);
+int hc_report_add_text(struct report *r, const char *key, const char *title, const char *s);
+int hc_report_add_bool(struct report *r, const char *key, const char *title, int b);
+int hc_report_add_none(struct report *r, const char *key, const char *title);
+int hc_report_add_note(struct report *r, const char *note);
 
 /* Tables: columns are declared, then rows appended and filled.  A column
  * added after rows exist gives every existing row an empty cell.
- * report_add_table returns the new table (owned by r) or NULL when out of
+ * hc_report_add_table returns the new table (owned by r) or NULL when out of
  * memory; the int functions return HC_OK or HC_ENOMEM.  The setters need
  * row < nrows and col < ncols (not checked) and replace the cell's value;
  * a non-finite real leaves it empty. */
-struct report_table *report_add_table(struct report *r, const char *key, const char *title);
-int report_table_add_column(struct report_table *t, const char *key, const char *title, int style);
-int report_table_add_row(struct report_table *t);   /* new row, all REPORT_NONE; index nrows-1 */
-void report_table_set_real(struct report_table *t, size_t row, size_t col, double x);  /* NaN -> none */
-void report_table_set_int(struct report_table *t, size_t row, size_t col, long long x);
-int report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s);
-void report_table_set_bool(struct report_table *t, size_t row, size_t col, int b);
+struct report_table *hc_report_add_table(struct report *r, const char *key, const char *title);
+int hc_report_table_add_column(struct report_table *t, const char *key, const char *title, int style);
+int hc_report_table_add_row(struct report_table *t);   /* new row, all REPORT_NONE; index nrows-1 */
+void hc_report_table_set_real(struct report_table *t, size_t row, size_t col, double x);  /* NaN -> none */
+void hc_report_table_set_int(struct report_table *t, size_t row, size_t col, long long x);
+int hc_report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s);
+void hc_report_table_set_bool(struct report_table *t, size_t row, size_t col, int b);
 /* No value, with the reason the CSV and text writers show in its place (a
  * figure that does not exist for this row: "below the floor"); the JSON
  * writer still writes null, so a number field never holds a string there,
  * and the row should carry a boolean saying why.  reason is copied. */
-int report_table_set_none(struct report_table *t, size_t row, size_t col, const char *reason);
+int hc_report_table_set_none(struct report_table *t, size_t row, size_t col, const char *reason);
 
 /* The writers share one interface, as GSL's generator types do.  write
  * renders r to fp and returns HC_OK, HC_EIO when fp reports a write error,
@@ -128,27 +128,27 @@ struct report_writer {
 	int (*write)(FILE *fp, const struct report *r, struct hc_error *err);
 };
 
-extern const struct report_writer *const report_writer_text;
-extern const struct report_writer *const report_writer_csv;
-extern const struct report_writer *const report_writer_json;
+extern const struct report_writer *const hc_report_writer_text;
+extern const struct report_writer *const hc_report_writer_csv;
+extern const struct report_writer *const hc_report_writer_json;
 
 /* The table of r whose key is key; NULL when there is none. */
-const struct report_table *report_find_table(const struct report *r, const char *key);
+const struct report_table *hc_report_find_table(const struct report *r, const char *key);
 
-/* One part of r as CSV, in report_writer_csv's form, for outputs that need
+/* One part of r as CSV, in hc_report_writer_csv's form, for outputs that need
  * more than its first table (a report folder's extra tables, a command's
  * table choice): table is a table's key (a header row of its column keys,
  * then one row per row), or NULL for the fields as "key,value" rows.
- * Notes are not written, as in report_writer_csv.  HC_EUSAGE (err names
+ * Notes are not written, as in hc_report_writer_csv.  HC_EUSAGE (err names
  * the table) when r has no table of that key, HC_EIO when fp fails. */
-int report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err);
+int hc_report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err);
 
 /* Look a writer up by name ("table", "csv", "json"); NULL when unknown. */
-const struct report_writer *report_writer_find(const char *name);
+const struct report_writer *hc_report_writer_find(const char *name);
 
 /* The cautions every output carries (design.md section 9); adds them as
  * notes.  HC_OK or HC_ENOMEM. */
-int report_add_cautions(struct report *r);
+int hc_report_add_cautions(struct report *r);
 
 #ifdef __cplusplus
 }

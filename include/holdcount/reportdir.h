@@ -3,7 +3,7 @@
  *
  * Everything is written into a temporary folder beside the target,
  * "DIR.tmp-XXXXXX", holding a marker file ".holdcount-incomplete" with the
- * writer's process id.  reportdir_commit renames the folder into place:
+ * writer's process id.  hc_reportdir_commit renames the folder into place:
  *   - without force, DIR must not exist (rename with RENAME_NOREPLACE, so
  *     a DIR created meanwhile is not replaced either);
  *   - with force, an existing DIR is replaced only after the new folder is
@@ -15,9 +15,9 @@
  * An interrupted run therefore leaves the previous report intact, or none.
  * The temporary folder is private (0700, as mkdtemp makes it); the
  * finished one has mode 0777 less the process's umask, as mkdir(2) gives.
- * A SIGINT/SIGTERM handler calls reportdir_unlink_pending to remove the
+ * A SIGINT/SIGTERM handler calls hc_reportdir_unlink_pending to remove the
  * temporary folder.  After SIGKILL the "DIR.tmp-XXXXXX" folder stays behind;
- * the next reportdir_begin for the same DIR removes every such folder whose
+ * the next hc_reportdir_begin for the same DIR removes every such folder whose
  * marker names a process that no longer runs.
  *
  * One report folder at a time per process (the signal handler's record is
@@ -48,39 +48,39 @@ struct reportdir;
  * temporary folder cannot be made; HC_ENOMEM.  Removes stale temporary
  * folders of dir first (see above); *removed (may be NULL) counts them.
  */
-int reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *removed,
+int hc_reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *removed,
 		    struct hc_error *err);
 
 /* The temporary folder's path (for running gnuplot inside it). */
-const char *reportdir_tmp_path(const struct reportdir *rd);
+const char *hc_reportdir_tmp_path(const struct reportdir *rd);
 
 /* Register a file name (no '/', at most REPORTDIR_NAME_MAX - 1 bytes) that
  * will be created inside the folder by someone else (gnuplot's render), so
  * that an interruption removes it.  HC_EUSAGE for a bad name, HC_ENOMEM
  * when the table is full. */
-int reportdir_expect(struct reportdir *rd, const char *name, struct hc_error *err);
+int hc_reportdir_expect(struct reportdir *rd, const char *name, struct hc_error *err);
 
 /* Create name inside the folder for writing (registering it first).  The
- * stream must be finished with reportdir_close. */
-int reportdir_open(struct reportdir *rd, const char *name, FILE **fp, struct hc_error *err);
+ * stream must be finished with hc_reportdir_close. */
+int hc_reportdir_open(struct reportdir *rd, const char *name, FILE **fp, struct hc_error *err);
 
 /* Flush, fsync and close fp; HC_EIO (naming the file) when any write failed. */
-int reportdir_close(struct reportdir *rd, FILE *fp, const char *name, struct hc_error *err);
+int hc_reportdir_close(struct reportdir *rd, FILE *fp, const char *name, struct hc_error *err);
 
 /* Does the temporary folder hold name? */
-int reportdir_has(const struct reportdir *rd, const char *name);
+int hc_reportdir_has(const struct reportdir *rd, const char *name);
 
 /* Put the folder in place (see above).  On failure the temporary folder is
  * removed and the previous DIR is untouched. */
-int reportdir_commit(struct reportdir *rd, struct hc_error *err);
+int hc_reportdir_commit(struct reportdir *rd, struct hc_error *err);
 
 /* Remove the temporary folder and free rd; accepts NULL.  After a commit
  * it only frees. */
-void reportdir_free(struct reportdir *rd);
+void hc_reportdir_free(struct reportdir *rd);
 
 /* Async-signal-safe: unlink the registered files and the marker of the
  * folder being written and remove it.  For a SIGINT/SIGTERM handler. */
-void reportdir_unlink_pending(void);
+void hc_reportdir_unlink_pending(void);
 
 #ifdef __cplusplus
 }

@@ -6,7 +6,7 @@
  * at or before the last period; a shorter tail is not used).  In each
  * window the missing-data policy picks the securities (complete in the
  * window by default, so late listings and delistings enter and leave as
- * they did; constant ones are dropped as universe_window does), and the
+ * they did; constant ones are dropped as hc_universe_window does), and the
  * window's v-bar, c-bar and average correlation feed every selected exact
  * rule (rules.h).  Why it matters: Campbell, Lettau, Malkiel & Xu (2001,
  * Journal of Finance 56(1)) found security-specific volatility rising and
@@ -18,11 +18,11 @@
  * series; the average correlation needs each window's own means and
  * standard deviations, so it costs one O(M * W) pass; every `refresh`
  * windows, and whenever the kept set changes, the window is recomputed
- * from scratch through universe_window and moments_from_universe (the
+ * from scratch through hc_universe_window and hc_moments_from_universe (the
  * figures `describe` prints).  The pairwise policy recomputes every window
  * (O(M^2 W) each).
  *
- * Units: the result holds per-period v-bar and c-bar; rolling_report
+ * Units: the result holds per-period v-bar and c-bar; hc_rolling_report
  * annualises them by the universe's periods per year, as every command does.
  */
 #ifndef HOLDCOUNT_ROLLING_H
@@ -67,7 +67,7 @@ struct rolling_options {
 };
 
 /* Window 60, step 12, complete data, default rules, no bootstrap. */
-void rolling_options_init(struct rolling_options *opt);
+void hc_rolling_options_init(struct rolling_options *opt);
 
 struct rolling_window {
 	size_t first;              /* index of the first period */
@@ -101,11 +101,11 @@ struct rolling_result {
  * longer than the sample, step 0, bad policy or rules, bootstrap with the
  * pairwise policy), HC_ENOMEM, HC_EINTERRUPT.  *out is NULL on error.
  */
-int rolling_run(struct rolling_result **out, const struct universe *u,
+int hc_rolling_run(struct rolling_result **out, const struct universe *u,
 		const struct rolling_options *opt, struct hc_error *err);
 
 /* Free r and everything it owns; NULL is a no-op. */
-void rolling_result_free(struct rolling_result *r);
+void hc_rolling_result_free(struct rolling_result *r);
 
 /*
  * Append the table "windows" to rep: window_start, window_end,
@@ -116,7 +116,7 @@ void rolling_result_free(struct rolling_result *r);
  * window, step, periods_per_year, window_count, windows_recomputed (the rest
  * slid).  HC_ENOMEM.
  */
-int rolling_report(struct report *rep, const struct rolling_result *r,
+int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 		   struct hc_error *err);
 
 #ifdef __cplusplus

@@ -94,23 +94,23 @@ struct rules_config {
 };
 
 /* Every rule selected, every parameter at its default. */
-void rules_config_init(struct rules_config *cfg);
+void hc_rules_config_init(struct rules_config *cfg);
 
 /* Check every parameter's range: HC_EUSAGE naming the parameter otherwise
  * (x > 0, eps > 0, 0 < q < 1, premium > 0, cost > 0, budget > 0, d >= 0,
  * 0 < p < 1). */
-int rules_config_check(const struct rules_config *cfg, struct hc_error *err);
+int hc_rules_config_check(const struct rules_config *cfg, struct hc_error *err);
 
 /* Parse "near-floor,marginal,..." into a mask (also "all", "exact",
  * "sampled").  HC_EUSAGE naming the unknown item. */
-int rules_parse_list(const char *text, unsigned *mask, struct hc_error *err);
+int hc_rules_parse_list(const char *text, unsigned *mask, struct hc_error *err);
 
 /* The rule's name as printed ("near-floor", ...); NULL when out of range. */
-const char *rules_name(int rule);
+const char *hc_rules_name(int rule);
 
 struct rule_result {
 	int rule;                 /* enum rules_id */
-	const char *name;         /* static, rules_name(rule) */
+	const char *name;         /* static, hc_rules_name(rule) */
 	char parameters[RULES_TEXT_MAX]; /* e.g. "x=10%" */
 	int defined;              /* 0: cannot be evaluated on these data (see note) */
 	int met;                  /* 1: some count up to M meets it */
@@ -148,7 +148,7 @@ struct rules_input {
  * the given averages: fills res completely (no bootstrap).  No allocation;
  * fit for a bootstrap replicate.  HC_EUSAGE for a sampled rule or m = 1.
  */
-int rules_exact(const struct rules_config *cfg, int rule, double vbar,
+int hc_rules_exact(const struct rules_config *cfg, int rule, double vbar,
 		double cbar, size_t m, double periods_per_year,
 		struct rule_result *res, struct hc_error *err);
 
@@ -156,7 +156,7 @@ int rules_exact(const struct rules_config *cfg, int rule, double vbar,
  * The count alone, cheaper still: returns 1 and sets *count when met, 0 when
  * not met within the universe, -1 when undefined on these averages.
  */
-int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
+int hc_rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
 		      double cbar, size_t m, double periods_per_year,
 		      size_t *count);
 
@@ -168,7 +168,7 @@ int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
  * crossing alone is not enough: the sampled quantile or share wanders with
  * sampling noise, so it can dip under the limit once and come back above
  * it; such a dip does not set the count.  Not met when the criterion fails
- * at the largest feasible sampled size.  Under rules_sampled's stages,
+ * at the largest feasible sampled size.  Under hc_rules_sampled's stages,
  * "every larger size" means every size up to the last stage sampled.
  *
  * Band rule from sampled variances: r must hold sizes in ascending order
@@ -178,14 +178,14 @@ int rules_exact_count(const struct rules_config *cfg, int rule, double vbar,
  * by selection.  cbar per period.  Allocates one workspace of r->paths
  * doubles.
  */
-int rules_band(const struct rules_config *cfg, const struct sampler_result *r,
+int hc_rules_band(const struct rules_config *cfg, const struct sampler_result *r,
 	       double cbar, double periods_per_year, struct rule_result *res,
 	       struct hc_error *err);
 
 /* Shortfall rule from sampled annual returns (r->annual_return required)
  * against the universe's compound annualised return: settled, as above,
  * where the share trailing by more than d stays below p. */
-int rules_shortfall(const struct rules_config *cfg,
+int hc_rules_shortfall(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err);
 
@@ -200,21 +200,21 @@ int rules_shortfall(const struct rules_config *cfg,
  * *largest (may be NULL) gets the last K sampled.  res holds room for 2;
  * *nres gets how many were filled (band first).
  */
-int rules_sampled(const struct rules_config *cfg, const struct universe *u,
+int hc_rules_sampled(const struct rules_config *cfg, const struct universe *u,
 		  const struct sampler_options *so, double cbar,
 		  struct rule_result *res, size_t *nres, size_t *largest,
 		  struct hc_error *err);
 
 /*
- * The band rule (when selected in cfg) by the same stages as rules_sampled,
+ * The band rule (when selected in cfg) by the same stages as hc_rules_sampled,
  * from the m x m covariance matrix a (row-major, positive semi-definite)
- * through sampler_run_matrix: the same seed draws the same portfolios as
- * rules_sampled on the returns a came from, so the count agrees unless a
+ * through hc_sampler_run_matrix: the same seed draws the same portfolios as
+ * hc_rules_sampled on the returns a came from, so the count agrees unless a
  * quantile lies within rounding of the threshold.  The shortfall rule needs
  * each portfolio's returns over time: HC_EUSAGE when it is selected.  res
  * holds room for 1; *nres gets 0 or 1.
  */
-int rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
+int hc_rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
 			 const struct sampler_options *so, double cbar,
 			 struct rule_result *res, size_t *nres, size_t *largest,
 			 struct hc_error *err);
@@ -224,7 +224,7 @@ int rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t
  * rebalanced every period: prod_t (1 + mean_i r_ti)^(P/T) - 1 (complete data
  * only).  HC_EDATA when a period's portfolio return is -100% or worse.
  */
-int rules_universe_return(const struct universe *u, double periods_per_year,
+int hc_rules_universe_return(const struct universe *u, double periods_per_year,
 			  double *ret, struct hc_error *err);
 
 /*
@@ -232,15 +232,15 @@ int rules_universe_return(const struct universe *u, double periods_per_year,
  * RULES_COUNT).  Sampled rules are evaluated when in->sampled is set; else
  * they are reported as defined = 0 with the note "needs return data".
  */
-int rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
+int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
 		   struct rule_result *res, size_t *nres, struct hc_error *err);
 
 /*
  * Bootstrap interval of the exact rules among res[0..nres-1] from per
  * replicate averages vbar[k], cbar[k] (k < nrep, per period).  Sampled rules
- * are left alone (see rules_set_interval).  Allocates nrep counts.
+ * are left alone (see hc_rules_set_interval).  Allocates nrep counts.
  */
-int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
+int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 			  const double *cbar, size_t nrep, size_t m,
 			  double periods_per_year, struct rule_result *res,
 			  size_t nres, struct hc_error *err);
@@ -250,20 +250,20 @@ int rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
  * The one place every interval (enough, rolling, report) is computed.
  */
-void rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
+void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
 
 /*
  * Bootstrap interval of the sampled rules (band, shortfall) among
  * res[0..nres-1]: per replicate the periods are resampled as in bootstrap.h
  * (same kind, block length and seed as bopt), the resampled universe is
- * sampled afresh by rules_sampled with sopt (its seed derived from
+ * sampled afresh by hc_rules_sampled with sopt (its seed derived from
  * (bopt->seed, replicate), so results do not depend on threads), and the
  * replicate's own c-bar and universe return set the thresholds.  Costs up
  * to B x paths x K x T for the K sampled: use fewer paths than the main run.  b must come from u.
  * Progress (bopt->progress) after each replicate.
  */
-uint64_t rules_replicate_seed(uint64_t seed, size_t rep);  /* the sampler seed of replicate rep */
-int rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep);  /* the sampler seed of replicate rep */
+int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
 			    const struct bootstrap_base *b,
 			    const struct bootstrap_options *bopt,
 			    const struct sampler_options *sopt,
@@ -274,7 +274,7 @@ int rules_bootstrap_sampled(const struct rules_config *cfg, const struct univers
  * rule,parameters,count,value_at_count,count_p05,count_p50,count_p95,met
  * then unit,threshold,replicates,replicates_met,note.
  */
-int rules_report(struct report *rep, const struct rule_result *res,
+int hc_rules_report(struct report *rep, const struct rule_result *res,
 		 size_t nres, struct hc_error *err);
 
 #ifdef __cplusplus

@@ -22,7 +22,7 @@ extern "C" {
 #endif
 
 /* Progress callback: done of total paths; return nonzero to stop early
- * (then sampler_run returns HC_EINTERRUPT). May be NULL. Called from one
+ * (then hc_sampler_run returns HC_EINTERRUPT). May be NULL. Called from one
  * thread only. */
 typedef int (*sampler_progress_fn)(void *ctx, size_t done, size_t total);
 
@@ -48,11 +48,11 @@ enum sampler_stratify {
 
 /* Defaults: SAMPLER_DEFAULT_PATHS paths, seed 0, threads 0 (OpenMP's
  * default), periods_per_year 1, no returns, no strata, no progress. */
-void sampler_options_init(struct sampler_options *opt);
+void hc_sampler_options_init(struct sampler_options *opt);
 
 /* Below this standard error relative to the mean sampled variance, the
  * sampled spread is rounding (every draw the same portfolio, as at n = M)
- * and sampler_summarise leaves the z-score empty (NaN). */
+ * and hc_sampler_summarise leaves the z-score empty (NaN). */
 #define SAMPLER_SPREAD_RTOL 1e-12
 
 struct sampler_result {
@@ -72,20 +72,20 @@ struct sampler_result {
  * portfolio's compound annualised return, rebalanced to equal weights each
  * period: prod(1 + r_t)^(P/T) - 1 with P = opt->periods_per_year.
  * With opt->strata or opt->stratify set, the draws are stratified and
- * strata_run (strata.h) does the work; r->feasible marks the sizes no
+ * hc_strata_run (strata.h) does the work; r->feasible marks the sizes no
  * allocation meets.
  * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, strata without a
  * mode or with a cap of 0), HC_EDATA (fewer
  * than 2 securities or periods), HC_ENOMEM, HC_EINTERRUPT (progress
  * callback asked to stop).  *out is NULL on error. */
-int sampler_run(struct sampler_result **out, const struct universe *u,
+int hc_sampler_run(struct sampler_result **out, const struct universe *u,
 		const size_t *sizes, size_t nsizes,
 		const struct sampler_options *opt, struct hc_error *err);
 
 /* Sample from a covariance matrix a (m x m row-major): running quadratic
  * form, O(n_max^2) a path.  No returns (want_returns is HC_EUSAGE).
- * Same seed, same portfolios as sampler_run for the same m and sizes. */
-int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
+ * Same seed, same portfolios as hc_sampler_run for the same m and sizes. */
+int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
 		       const size_t *sizes, size_t nsizes,
 		       const struct sampler_options *opt, struct hc_error *err);
 
@@ -97,15 +97,15 @@ int sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
  * of the mean against the exact expected variance (NaN when the standard
  * error is 0, as at n = M).  Sets c->paths and c->seed.  Deterministic.
  * HC_EUSAGE when the sizes differ, HC_ENOMEM. */
-int sampler_summarise(struct curve *c, const struct sampler_result *r,
+int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 		      struct hc_error *err);
 
 /* Free r and everything it owns; NULL is a no-op. */
-void sampler_result_free(struct sampler_result *r);
+void hc_sampler_result_free(struct sampler_result *r);
 
 /* splitmix64 step (Steele, Lea & Flood, 2014, OOPSLA): advances *state and
  * returns the next output; used to derive per-path seeds. */
-uint64_t sampler_splitmix64(uint64_t *state);
+uint64_t hc_sampler_splitmix64(uint64_t *state);
 
 #ifdef __cplusplus
 }

@@ -41,19 +41,19 @@ struct sectors {
  * id (naming the line of the first), a ragged row, the reserved label, or
  * a header with no rows.  On failure *out is NULL.
  */
-int sectors_load(struct sectors **out, const char *path, const char *id_column,
+int hc_sectors_load(struct sectors **out, const char *path, const char *id_column,
 		 const char *label_column, struct hc_error *err);
 
 /* The same from a buffer; name is used in messages. */
-int sectors_load_buffer(struct sectors **out, const char *name,
+int hc_sectors_load_buffer(struct sectors **out, const char *name,
 			const char *data, size_t len, const char *id_column,
 			const char *label_column, struct hc_error *err);
 
 /* Free s and everything it owns; NULL is a no-op. */
-void sectors_free(struct sectors *s);
+void hc_sectors_free(struct sectors *s);
 
 /* Label index of id (exact match), or -1 when the map lacks it. O(log n). */
-long sectors_find(const struct sectors *s, const char *id);
+long hc_sectors_find(const struct sectors *s, const char *id);
 
 /*
  * Strata of u's securities: *stratum_of_security (u->m entries) gets each
@@ -61,15 +61,15 @@ long sectors_find(const struct sectors *s, const char *id);
  * the map's labels used by at least one of u's securities, in the map's
  * order of first appearance, then SECTORS_UNMAPPED_LABEL when *unmapped
  * (the number of u's securities absent from the map) is not 0.
- * Free the results with sectors_strata_free.  HC_ENOMEM on failure, with
+ * Free the results with hc_sectors_strata_free.  HC_ENOMEM on failure, with
  * the outputs set to NULL / 0.
  */
-int sectors_strata(const struct sectors *s, const struct universe *u,
+int hc_sectors_strata(const struct sectors *s, const struct universe *u,
 		   size_t **stratum_of_security, char ***labels, size_t *nlabels,
 		   size_t *unmapped, struct hc_error *err);
 
-/* Free what sectors_strata returned; NULL pointers are no-ops. */
-void sectors_strata_free(size_t *stratum_of_security, char **labels, size_t nlabels);
+/* Free what hc_sectors_strata returned; NULL pointers are no-ops. */
+void hc_sectors_strata_free(size_t *stratum_of_security, char **labels, size_t nlabels);
 
 #ifdef __cplusplus
 }

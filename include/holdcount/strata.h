@@ -50,13 +50,13 @@ struct strata {
 
 /* From stratum_of[i] in 0..nstrata-1 for each of m securities.
  * HC_EUSAGE for an index out of range or m = 0; HC_ENOMEM. */
-int strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
+int hc_strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
 		 size_t nstrata, struct hc_error *err);
-void strata_free(struct strata *s);
+void hc_strata_free(struct strata *s);
 
 /* Hamilton's largest-remainder allocation of n (1 <= n <= m) into alloc
  * (nstrata entries).  HC_EUSAGE when n is out of range. */
-int strata_proportional(const struct strata *s, size_t n, size_t *alloc,
+int hc_strata_proportional(const struct strata *s, size_t n, size_t *alloc,
 			struct hc_error *err);
 
 /* The cap mode's table: log of the number of ways to fill strata s.. with
@@ -69,29 +69,29 @@ struct strata_cap {
 };
 
 /* HC_EUSAGE for k = 0; HC_ENOMEM. */
-int strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t k,
+int hc_strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t k,
 		     size_t nmax, struct hc_error *err);
-void strata_cap_free(struct strata_cap *c);
+void hc_strata_cap_free(struct strata_cap *c);
 
 /* 1 when some n-subset has at most k in every stratum (n <= nmax). */
-int strata_cap_feasible(const struct strata_cap *c, size_t n);
+int hc_strata_cap_feasible(const struct strata_cap *c, size_t n);
 
 /* The most holdings any portfolio can have with at most k in every
  * stratum: sum_s min(k, m_s) (s->m when k = 0, no cap).  Every n from 1 to
  * it is feasible, none above.  The one place the commands take it from. */
-size_t strata_cap_most(const struct strata *s, size_t k);
+size_t hc_strata_cap_most(const struct strata *s, size_t k);
 
 /* Log of the number of n-subsets meeting the cap (-INFINITY when none). */
-double strata_cap_log_total(const struct strata_cap *c, size_t n);
+double hc_strata_cap_log_total(const struct strata_cap *c, size_t n);
 
 /* Log probability of allocation alloc for size n under uniform subsets
  * meeting the cap: sum_s log C(m_s, n_s) - log total (-INFINITY when the
  * allocation breaks the cap or does not sum to n). */
-double strata_cap_log_probability(const struct strata_cap *c, size_t n, const size_t *alloc);
+double hc_strata_cap_log_probability(const struct strata_cap *c, size_t n, const size_t *alloc);
 
 /* Draw an allocation for a feasible n into alloc from a stream of uniforms
  * in [0, 1): uniform(ctx) is called once per stratum. */
-void strata_cap_draw(const struct strata_cap *c, size_t n,
+void hc_strata_cap_draw(const struct strata_cap *c, size_t n,
 		     double (*uniform)(void *ctx), void *ctx, size_t *alloc);
 
 /*
@@ -106,15 +106,15 @@ struct strata_moments {
 	double *block;
 };
 
-/* *out is new (strata_moments_free) or NULL on error.  HC_EUSAGE when u has
+/* *out is new (hc_strata_moments_free) or NULL on error.  HC_EUSAGE when u has
  * gaps, fewer than 2 periods or not s->m securities (from_universe), or
  * m != s->m (from_matrix); HC_ENOMEM. */
-int strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
+int hc_strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
 				 const struct strata *s, struct hc_error *err);
-int strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
+int hc_strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
 			       const struct strata *s, struct hc_error *err);
 /* Free sm and everything it owns; NULL is a no-op. */
-void strata_moments_free(struct strata_moments *sm);
+void hc_strata_moments_free(struct strata_moments *sm);
 
 /*
  * Exact expected per-period variance of an equal-weight portfolio of
@@ -124,34 +124,34 @@ void strata_moments_free(struct strata_moments *sm);
  * (inclusion probabilities within a stratum, as design.md section 3 does
  * for one stratum).
  */
-double strata_expected_variance(const struct strata_moments *sm, const struct strata *s,
+double hc_strata_expected_variance(const struct strata_moments *sm, const struct strata *s,
 				const size_t *alloc);
 
 /*
- * Stratified sampling, as sampler_run / sampler_run_matrix do for
+ * Stratified sampling, as hc_sampler_run / hc_sampler_run_matrix do for
  * unconstrained draws (they call these when opt->stratify is set):
  * opt->strata (m indices), opt->nstrata, opt->stratify and, for the cap,
  * opt->per_stratum_max.  r->feasible[j] is 0 for a size no allocation
  * meets, and its cells hold variance +INFINITY and return -1 (a total
- * loss), so that no rule reading the sample (rules_band, rules_shortfall)
+ * loss), so that no rule reading the sample (hc_rules_band, hc_rules_shortfall)
  * can be met there.  Errors: HC_EUSAGE (no strata, mode none, a
  * cap of 0, bad size, paths 0, gaps in the data, returns from a matrix),
  * HC_EDATA, HC_ENOMEM, HC_EINTERRUPT.
  */
-int strata_run(struct sampler_result **out, const struct universe *u,
+int hc_strata_run(struct sampler_result **out, const struct universe *u,
 	       const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
 	       struct hc_error *err);
-int strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
+int hc_strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
 		      const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
 		      struct hc_error *err);
 
 /*
  * The members (sorted ascending) of path k's portfolio of n holdings, as
- * strata_run draws it, into members (n entries), and its allocation into
+ * hc_strata_run draws it, into members (n entries), and its allocation into
  * alloc (nstrata entries).  mode is enum sampler_stratify; cap is needed
  * (and only read) for SAMPLER_STRATA_CAP.  HC_EUSAGE when n is infeasible.
  */
-int strata_portfolio(const struct strata *s, const struct strata_cap *cap, int mode,
+int hc_strata_portfolio(const struct strata *s, const struct strata_cap *cap, int mode,
 		     size_t n, uint64_t seed, size_t k, size_t *members, size_t *alloc,
 		     struct hc_error *err);
 
@@ -174,25 +174,25 @@ struct strata_curve {
 
 /*
  * Summarise a stratified sample r (scaled by periods_per_year) as
- * sampler_summarise does; the exact column from sm for the proportional
+ * hc_sampler_summarise does; the exact column from sm for the proportional
  * mode (sm may be NULL: no exact column), the z-score against it.
  */
-int strata_curve_alloc(struct strata_curve **out, const struct sampler_result *r,
+int hc_strata_curve_alloc(struct strata_curve **out, const struct sampler_result *r,
 		       const struct strata *s, const struct strata_moments *sm, int mode,
 		       size_t per_stratum_max, double periods_per_year, struct hc_error *err);
 /* Free c and everything it owns; NULL is a no-op. */
-void strata_curve_free(struct strata_curve *c);
+void hc_strata_curve_free(struct strata_curve *c);
 
 /*
  * Append the columns stratified_feasible, stratified_expected_variance,
  * stratified_mean_variance, stratified_variance_se, stratified_mean_sd,
  * stratified_sd_p05, stratified_sd_p50, stratified_sd_p95,
  * stratified_z_score to t, whose rows must be the curve's sizes in order
- * (a curve_report table).  Infeasible sizes: stratified_feasible false
+ * (a hc_curve_report table).  Infeasible sizes: stratified_feasible false
  * and the other cells empty.  HC_EUSAGE when the row count differs,
  * HC_ENOMEM.
  */
-int strata_report_columns(const struct strata_curve *c, struct report_table *t);
+int hc_strata_report_columns(const struct strata_curve *c, struct report_table *t);
 
 #ifdef __cplusplus
 }

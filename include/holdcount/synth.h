@@ -99,16 +99,16 @@ struct synth_options {
 };
 
 /* Fill opt with the defaults above. */
-void synth_options_init(struct synth_options *opt);
+void hc_synth_options_init(struct synth_options *opt);
 
 /*
  * Check opt: HC_EUSAGE with a message naming the option and the accepted
  * range (e.g. "degrees of freedom must be above 4 or 0, found 3").
  */
-int synth_options_check(const struct synth_options *opt, struct hc_error *err);
+int hc_synth_options_check(const struct synth_options *opt, struct hc_error *err);
 
 /* Periods per year for a frequency: 12, 52 or 252; 0 when unknown. */
-double synth_periods_per_year(int frequency);
+double hc_synth_periods_per_year(int frequency);
 
 /* The drawn parameters of one universe, per period. */
 struct synth_model {
@@ -132,20 +132,20 @@ struct synth_model {
 
 /*
  * Draw the parameters, ids and dates for opt into a new model (*out; NULL on
- * failure).  Errors: HC_EUSAGE (bad options, as synth_options_check),
+ * failure).  Errors: HC_EUSAGE (bad options, as hc_synth_options_check),
  * HC_ENOMEM, HC_EINTERNAL (a GSL generator could not be made).
  */
-int synth_model_alloc(struct synth_model **out, const struct synth_options *opt,
+int hc_synth_model_alloc(struct synth_model **out, const struct synth_options *opt,
 		      struct hc_error *err);
-void synth_model_free(struct synth_model *model);
+void hc_synth_model_free(struct synth_model *model);
 
 /*
  * Generate the returns of model into x (m*t doubles, security-major: x[i*t+k]
  * is security i in period k; NaN where not listed).  *nfloored (may be NULL)
  * gets the number of cells raised to the floor return.  HC_ENOMEM or
- * HC_EINTERNAL on failure.  The values are those synth_write prints.
+ * HC_EINTERNAL on failure.  The values are those hc_synth_write prints.
  */
-int synth_generate(const struct synth_model *model, double *x, size_t *nfloored,
+int hc_synth_generate(const struct synth_model *model, double *x, size_t *nfloored,
 		   struct hc_error *err);
 
 /*
@@ -154,15 +154,15 @@ int synth_generate(const struct synth_model *model, double *x, size_t *nfloored,
  * shortest form that reads back to the same double) and, if sectors is not
  * NULL, the sector map "id,sector".  Streams one period at a time (memory
  * O(M)).  The streams stay open; the caller commits or discards them.
- * *nfloored as in synth_generate.  HC_EIO when a write fails, else as
- * synth_model_alloc.
+ * *nfloored as in hc_synth_generate.  HC_EIO when a write fails, else as
+ * hc_synth_model_alloc.
  */
-int synth_write(const struct synth_options *opt, FILE *universe, FILE *sectors,
+int hc_synth_write(const struct synth_options *opt, FILE *universe, FILE *sectors,
 		size_t *nfloored, struct hc_error *err);
 
 /* Write the drawn parameters as CSV
  * "id,sector,beta,specific_sd,mean,first_date,last_date" (per period). */
-int synth_write_parameters(const struct synth_model *model, FILE *fp,
+int hc_synth_write_parameters(const struct synth_model *model, FILE *fp,
 			   struct hc_error *err);
 
 /* True average variance and covariance, per period. */
@@ -182,7 +182,7 @@ struct synth_truth {
  * sector with probability 1/S).  The floor return is ignored.  HC_EUSAGE on
  * bad options.
  */
-int synth_truth_expected(const struct synth_options *opt, struct synth_truth *out,
+int hc_synth_truth_expected(const struct synth_options *opt, struct synth_truth *out,
 			 struct hc_error *err);
 
 /*
@@ -192,11 +192,11 @@ int synth_truth_expected(const struct synth_options *opt, struct synth_truth *ou
  * sigma_i^2.  HC_EUSAGE when fewer than two securities or an index is out
  * of range.
  */
-int synth_truth_model(const struct synth_model *model, const size_t *keep,
+int hc_synth_truth_model(const struct synth_model *model, const size_t *keep,
 		      size_t nkeep, struct synth_truth *out, struct hc_error *err);
 
 /* Format days since 1970-01-01 as YYYY-MM-DD into buf (at least 11 bytes). */
-void synth_format_date(int32_t days, char *buf);
+void hc_synth_format_date(int32_t days, char *buf);
 
 #ifdef __cplusplus
 }

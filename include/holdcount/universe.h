@@ -58,7 +58,7 @@ struct universe_options {
 /* Defaults: wide layout of returns (not percents), complete series only,
  * min_coverage UNIVERSE_DEFAULT_MIN_COVERAGE, periods per year and delimiter
  * detected, default column names, memory budget from available memory. */
-void universe_options_init(struct universe_options *opt);
+void hc_universe_options_init(struct universe_options *opt);
 
 struct universe_dropped {
 	char *id;
@@ -92,11 +92,11 @@ struct universe {
  * after the missing-data policy is HC_EDATA.  A zero-variance security is
  * HC_EDATA (it has no risk to diversify; name it).
  */
-int universe_load(struct universe **out, const char *path,
+int hc_universe_load(struct universe **out, const char *path,
 		  const struct universe_options *opt, struct hc_error *err);
 
 /* The same from a memory buffer; name is used in messages. */
-int universe_load_buffer(struct universe **out, const char *name,
+int hc_universe_load_buffer(struct universe **out, const char *name,
 			 const char *data, size_t len,
 			 const struct universe_options *opt, struct hc_error *err);
 
@@ -105,47 +105,47 @@ int universe_load_buffer(struct universe **out, const char *name,
  * applied inside the window (securities complete in the window are kept
  * under UNIVERSE_MISSING_COMPLETE).  The new universe owns copies.
  */
-int universe_window(struct universe **out, const struct universe *src,
+int hc_universe_window(struct universe **out, const struct universe *src,
 		    size_t first, size_t len, int missing, double min_coverage,
 		    struct hc_error *err);
 
 /* A universe from a period-resampled copy: period k of the result is period
  * idx[k] of src (k < n).  Dates are copied from idx. */
-int universe_resample(struct universe **out, const struct universe *src,
+int hc_universe_resample(struct universe **out, const struct universe *src,
 		      const size_t *idx, size_t n, struct hc_error *err);
 
 /* Free u and everything it owns; NULL is a no-op. */
-void universe_free(struct universe *u);
+void hc_universe_free(struct universe *u);
 
 /* Index of id in u->ids, or -1. */
-long universe_find(const struct universe *u, const char *id);
+long hc_universe_find(const struct universe *u, const char *id);
 
 /* Detect periods per year from the median spacing of sorted dates
  * (days since 1970-01-01): about 252 (daily), 52, 12, 4, 2 or 1.
  * Returns 0 when fewer than two dates. */
-double universe_detect_periods(const int32_t *dates, size_t n);
+double hc_universe_detect_periods(const int32_t *dates, size_t n);
 
 /* Parse an ISO 8601 calendar date YYYY-MM-DD (or YYYY-MM, taken as the
  * month's last day) into days since 1970-01-01; validates the day of month.
  * Returns 0 on success, -1 when not a valid date. */
-int universe_parse_date(const char *s, size_t len, int32_t *days);
+int hc_universe_parse_date(const char *s, size_t len, int32_t *days);
 
 /* Format days since 1970-01-01 as YYYY-MM-DD into buf (at least 11 bytes). */
-void universe_format_date(int32_t days, char *buf);
+void hc_universe_format_date(int32_t days, char *buf);
 
 /*
  * Security-id checks shared by every loader of ids (universe, covariance
  * matrix, sector map).
- * universe_check_id: HC_OK when id[0..len) is non-empty (not only blanks)
+ * hc_universe_check_id: HC_OK when id[0..len) is non-empty (not only blanks)
  * and valid UTF-8; else HC_EDATA with "NAME:LINE:COL: ..." in err.
- * universe_id_clash: looks for two of ids[0..n) that are equal, or equal
+ * hc_universe_id_clash: looks for two of ids[0..n) that are equal, or equal
  * once ASCII case and surrounding blanks are ignored.  Returns 0 when all
  * are distinct, 1 with *first < *second the indices of a clashing pair,
  * -1 when out of memory.  O(n log n).
  */
-int universe_check_id(const char *name, size_t line, size_t col,
+int hc_universe_check_id(const char *name, size_t line, size_t col,
 		      const char *id, size_t len, struct hc_error *err);
-int universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second);
+int hc_universe_id_clash(char *const *ids, size_t n, size_t *first, size_t *second);
 
 #ifdef __cplusplus
 }

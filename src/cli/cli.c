@@ -454,7 +454,7 @@ static int check_pair(const struct cli_command *cmd, const struct named_file *ou
 		return HC_EUSAGE;
 	}
 	hc_error_clear(&err);
-	if (outfile_same_file(out->path, other->path, &same, &err) != HC_OK)
+	if (hc_outfile_same_file(out->path, other->path, &same, &err) != HC_OK)
 		return cli_fail(cmd->name, &err);
 	if (!same)
 		return HC_OK;
@@ -926,7 +926,7 @@ struct rendering {
 
 static int render(FILE *fp, const struct rendering *how, const struct report *r, struct hc_error *err)
 {
-	return how->w ? how->w->write(fp, r, err) : report_write_csv_part(fp, r, how->part, err);
+	return how->w ? how->w->write(fp, r, err) : hc_report_write_csv_part(fp, r, how->part, err);
 }
 
 /* Standard output cannot be taken back, so the whole rendering is made in
@@ -960,21 +960,21 @@ static int write_output(const char *cmd, const struct cli_output *o, const struc
 	hc_error_clear(&err);
 	if (!o->output || strcmp(o->output, "-") == 0)
 		return write_stdout(how, r, &err) ? cli_fail(cmd, &err) : HC_OK;
-	rc = outfile_open(&of, o->output, &err);
+	rc = hc_outfile_open(&of, o->output, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
 	rc = render(of.fp, how, r, &err);
 	if (rc) {
-		outfile_abort(&of);
+		hc_outfile_abort(&of);
 		return cli_fail(cmd, &err);
 	}
-	rc = outfile_commit(&of, &err);
+	rc = hc_outfile_commit(&of, &err);
 	return rc ? cli_fail(cmd, &err) : HC_OK;
 }
 
 int cli_write_report(const char *cmd, const struct cli_output *o, const struct report *r)
 {
-	struct rendering how = { report_writer_find(format_words[o->format]), NULL };
+	struct rendering how = { hc_report_writer_find(format_words[o->format]), NULL };
 	struct hc_error err;
 
 	if (!how.w) {
@@ -1057,7 +1057,7 @@ static void on_signal(int sig)
 	ssize_t ignored;
 
 	(void)sig;
-	outfile_unlink_pending();
+	hc_outfile_unlink_pending();
 	ignored = write(STDERR_FILENO, msg, sizeof msg - 1);
 	(void)ignored;
 	_exit(HC_EINTERRUPT);

@@ -286,7 +286,7 @@ int cli_write_report(const char *cmd, const struct cli_output *o, const struct r
 void cli_stage(const char *cmd, int quiet, const char *what);
 
 /* Like cli_write_report, but only one part of r, as CSV whatever the
- * format (report_write_csv_part: table is a table's key, or NULL for the
+ * format (hc_report_write_csv_part: table is a table's key, or NULL for the
  * fields as key,value rows), for commands whose --table chooses it. */
 int cli_write_csv_part(const char *cmd, const struct cli_output *o, const struct report *r, const char *table);
 
@@ -349,7 +349,7 @@ int cli_psd_usage(const char *cmd, const struct cli_universe *cu);
 /*
  * Settle whether the symmetric m x m matrix a (read from path) is positive
  * semi-definite.  The test: the nearest PSD matrix (eigenvalue clipping,
- * covmatrix_nearest_psd) moves no entry by more than
+ * hc_covmatrix_nearest_psd) moves no entry by more than
  * COVMATRIX_DEFAULT_SYMMETRY_TOL relative to sqrt(a_ii a_jj), so a
  * rank-deficient matrix printed to 9 digits passes.  Otherwise, without
  * ps->asked: "holdcount CMD: PATH: REFUSAL" and HC_EDATA (refusal should
@@ -393,7 +393,7 @@ int cli_sizes(const char *cmd, const char *text, size_t m, size_t **sizes, size_
  * annualised) and annualisation, a sentence saying what was multiplied. */
 int cli_add_scale(struct report *r, double periods_per_year, int annualised);
 
-/* The "curve" table of c (columns from curve_report, then periods_per_year,
+/* The "curve" table of c (columns from hc_curve_report, then periods_per_year,
  * filled when annualised) added to r.  Defined in cmd_curve.c. */
 struct curve;
 int cli_curve_table(struct report *r, const struct curve *c, int annualised);
@@ -465,10 +465,10 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 
 /* Every rule of cfg on the return history u (moments mo), exactly as
  * `holdcount enough UNIVERSE` runs them: exact, the sampled rules staged by
- * rules_sampled with smp's paths and seed (strata when strat says so), the
+ * hc_rules_sampled with smp's paths and seed (strata when strat says so), the
  * bootstrap interval, and with --bootstrap-sampled the sampled rules'
  * interval.  res has room for RULES_COUNT; *out gets the report `enough`
- * prints (release with report_free).  With stages set, each long step
+ * prints (release with hc_report_free).  With stages set, each long step
  * (sampling, bootstrap, sampled bootstrap) is announced by cli_stage
  * before its progress bar, as `holdcount report` lists its stages.
  * Prints its error; returns the exit status. */
@@ -479,7 +479,7 @@ int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct c
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out);
 
-/* After rolling_report: each rule's parameters as fields and the note on
+/* After hc_rolling_report: each rule's parameters as fields and the note on
  * drifting averages, as `holdcount rolling` prints them (cmd_rolling.c), so
  * that `holdcount report` shows the same object.  0, or non-zero when out
  * of memory. */

@@ -16,7 +16,7 @@
 int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 			 struct universe_options *uo)
 {
-	universe_options_init(uo);
+	hc_universe_options_init(uo);
 	if (cu->log_returns && !cu->prices)
 		return cli_usage_error(cmd, "--log-returns needs --prices (log returns are computed from prices)");
 	uo->values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
@@ -54,7 +54,7 @@ int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 	if (rc)
 		return rc;
 	hc_error_clear(&err);
-	rc = universe_load(out, path, &uo, &err);
+	rc = hc_universe_load(out, path, &uo, &err);
 	return rc ? cli_fail(cmd, &err) : HC_OK;
 }
 
@@ -65,9 +65,9 @@ int cli_sizes(const char *cmd, const char *text, size_t m, size_t **sizes, size_
 
 	hc_error_clear(&err);
 	if (text)
-		rc = curve_parse_sizes(text, m, sizes, nsizes, &err);
+		rc = hc_curve_parse_sizes(text, m, sizes, nsizes, &err);
 	else
-		rc = curve_default_sizes(m, sizes, nsizes, &err);
+		rc = hc_curve_default_sizes(m, sizes, nsizes, &err);
 	return rc ? cli_fail(cmd, &err) : HC_OK;
 }
 
@@ -77,15 +77,15 @@ int cli_add_scale(struct report *r, double periods_per_year, int annualised)
 	int rc;
 
 	if (annualised) {
-		rc = report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
+		rc = hc_report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
 		snprintf(text, sizeof text,
 			 "annualised: variances times %g, standard deviations times sqrt(%g)", periods_per_year,
 			 periods_per_year);
 	} else {
-		rc = report_add_none(r, "periods_per_year", "periods per year");
+		rc = hc_report_add_none(r, "periods_per_year", "periods per year");
 		snprintf(text, sizeof text, "not annualised: figures are on the scale of the inputs");
 	}
-	return rc ? rc : report_add_text(r, "annualisation", "annualisation", text);
+	return rc ? rc : hc_report_add_text(r, "annualisation", "annualisation", text);
 }
 
 /* Options that describe a return history and mean nothing for a matrix
@@ -140,7 +140,7 @@ static void psd_text(const struct cli_psd *ps, char *buf, size_t size)
 /*
  * A matrix with a negative eigenvalue gives some portfolio a negative
  * variance, so it is no covariance matrix.  One eigen decomposition both
- * tests and, when asked, repairs (covmatrix_nearest_psd: eigenvalue
+ * tests and, when asked, repairs (hc_covmatrix_nearest_psd: eigenvalue
  * clipping, Higham, 1988, Linear Algebra and its Applications 103).  Moves
  * within the loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are
  * rounding in a printed file and leave the matrix as it was.  Memory: the
@@ -167,7 +167,7 @@ int cli_psd_settle(const char *cmd, const char *path, const char *refusal, doubl
 		hc_error(&err, HC_ENOMEM, "out of memory checking the covariance matrix");
 		return cli_fail(cmd, &err);
 	}
-	rc = covmatrix_nearest_psd(a, m, b, &st, &err);
+	rc = hc_covmatrix_nearest_psd(a, m, b, &st, &err);
 	if (rc == HC_OK) {
 		ps->checked = 1;
 		ps->negative = st.negative;
@@ -196,22 +196,22 @@ int cli_psd_fields(struct report *r, const struct cli_psd *ps)
 
 	if (!ps->asked)
 		return HC_OK;
-	if (report_add_text(r, "psd_repair", "positive semi-definite repair",
+	if (hc_report_add_text(r, "psd_repair", "positive semi-definite repair",
 			    ps->repaired ? "nearest positive semi-definite matrix, by eigenvalue clipping (Higham 1988)"
 			    : ps->checked ? "not needed: the matrix is positive semi-definite (up to rounding)"
 			    : "not needed: no gaps left, and complete series give a positive semi-definite matrix") ||
-	    report_add_bool(r, "psd_repaired", "matrix repaired", ps->repaired))
+	    hc_report_add_bool(r, "psd_repaired", "matrix repaired", ps->repaired))
 		return HC_ENOMEM;
 	if (ps->checked &&
-	    (report_add_int(r, "psd_negative_eigenvalues", "negative eigenvalues", (long long)ps->negative) ||
-	     report_add_real(r, "psd_min_eigenvalue", "smallest eigenvalue", ps->min_eigenvalue * ps->scale, style) ||
-	     report_add_real(r, "psd_repair_distance", "repair distance (Frobenius)", ps->distance * ps->scale, style) ||
-	     report_add_real(r, "psd_repair_relative_distance", "repair distance / matrix norm",
+	    (hc_report_add_int(r, "psd_negative_eigenvalues", "negative eigenvalues", (long long)ps->negative) ||
+	     hc_report_add_real(r, "psd_min_eigenvalue", "smallest eigenvalue", ps->min_eigenvalue * ps->scale, style) ||
+	     hc_report_add_real(r, "psd_repair_distance", "repair distance (Frobenius)", ps->distance * ps->scale, style) ||
+	     hc_report_add_real(r, "psd_repair_relative_distance", "repair distance / matrix norm",
 			     ps->distance / ps->norm, REPORT_STYLE_SCI)))
 		return HC_ENOMEM;
 	if (ps->repaired) {
 		psd_text(ps, text, sizeof text);
-		if (report_add_note(r, text))
+		if (hc_report_add_note(r, text))
 			return HC_ENOMEM;
 	}
 	return HC_OK;
@@ -232,14 +232,14 @@ int cli_load_covariance(const char *cmd, const struct cli_universe *cu, const st
 	if ((rc = cli_max_bytes(cmd, cu, &max_bytes)))
 		return rc;
 	hc_error_clear(&err);
-	rc = covmatrix_load_within(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, max_bytes, &err);
+	rc = hc_covmatrix_load_within(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, max_bytes, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
 	rc = cli_psd_settle(cmd, path, "not a covariance matrix: it is not positive semi-definite "
 			    "(some portfolio of these securities would have a negative variance); " CLI_PSD_HINT,
 			    (*out)->a, (*out)->m, max_bytes, ps);
 	if (rc) {
-		covmatrix_free(*out);
+		hc_covmatrix_free(*out);
 		*out = NULL;
 	}
 	return rc;
@@ -252,12 +252,12 @@ int cli_pairwise_matrix(const char *cmd, const struct universe *u, const char *p
 	int rc;
 
 	hc_error_clear(&err);
-	rc = covmatrix_from_universe(u, out, &err);
+	rc = hc_covmatrix_from_universe(u, out, &err);
 	if (rc)
 		return cli_fail(cmd, &err);
 	rc = cli_psd_settle(cmd, path, refusal, (*out)->a, (*out)->m, (*out)->max_bytes, ps);
 	if (rc) {
-		covmatrix_free(*out);
+		hc_covmatrix_free(*out);
 		*out = NULL;
 	}
 	return rc;

@@ -37,8 +37,8 @@ void cli_strata_init(struct cli_strata *s)
 
 void cli_strata_release(struct cli_strata *s)
 {
-	sectors_strata_free(s->stratum_of, s->labels, s->nlabels);
-	strata_free(s->strata);
+	hc_sectors_strata_free(s->stratum_of, s->labels, s->nlabels);
+	hc_strata_free(s->strata);
 	s->stratum_of = NULL;
 	s->labels = NULL;
 	s->nlabels = 0;
@@ -63,12 +63,12 @@ int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct univers
 		return cli_usage_error(cmd, "--strata needs one of --per-stratum-max K (K at least 1) or "
 				       "--proportional");
 	hc_error_clear(&err);
-	rc = sectors_load(&map, s->map, s->id_column, s->label_column, &err);
+	rc = hc_sectors_load(&map, s->map, s->id_column, s->label_column, &err);
 	if (rc == HC_OK)
-		rc = sectors_strata(map, u, &s->stratum_of, &s->labels, &s->nlabels, &s->unmapped, &err);
+		rc = hc_sectors_strata(map, u, &s->stratum_of, &s->labels, &s->nlabels, &s->unmapped, &err);
 	if (rc == HC_OK)
-		rc = strata_alloc(&s->strata, s->stratum_of, u->m, s->nlabels, &err);
-	sectors_free(map);
+		rc = hc_strata_alloc(&s->strata, s->stratum_of, u->m, s->nlabels, &err);
+	hc_sectors_free(map);
 	if (rc)
 		return cli_fail(cmd, &err);
 fill:
@@ -85,17 +85,17 @@ int cli_strata_fields(struct report *r, const struct cli_strata *s)
 	int rc = 0;
 
 	if (!s->map)
-		return report_add_none(r, "strata", "stratified draws");
+		return hc_report_add_none(r, "strata", "stratified draws");
 	if (s->proportional)
 		snprintf(text, sizeof text, "proportional to stratum size (largest remainder), uniform within strata");
 	else
 		snprintf(text, sizeof text, "uniform over portfolios with at most %zu in any stratum",
 			 s->per_stratum_max);
-	rc |= report_add_text(r, "strata", "stratified draws", text);
-	rc |= report_add_text(r, "strata_map", "strata map", s->map);
-	rc |= report_add_int(r, "strata_count", "strata", (long long)s->nlabels);
-	rc |= report_add_int(r, "strata_unmapped", "securities not in the map", (long long)s->unmapped);
+	rc |= hc_report_add_text(r, "strata", "stratified draws", text);
+	rc |= hc_report_add_text(r, "strata_map", "strata map", s->map);
+	rc |= hc_report_add_int(r, "strata_count", "strata", (long long)s->nlabels);
+	rc |= hc_report_add_int(r, "strata_unmapped", "securities not in the map", (long long)s->unmapped);
 	if (s->per_stratum_max)
-		rc |= report_add_int(r, "per_stratum_max", "at most per stratum", (long long)s->per_stratum_max);
+		rc |= hc_report_add_int(r, "per_stratum_max", "at most per stratum", (long long)s->per_stratum_max);
 	return rc ? HC_ENOMEM : HC_OK;
 }

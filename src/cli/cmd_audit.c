@@ -70,7 +70,7 @@ static const struct cli_option policy_own[] = {
 };
 const struct cli_group cli_group_policy = { "policy options", policy_own };
 
-/* The tables of audit_report that --table chooses for the CSV, by key. */
+/* The tables of hc_audit_report that --table chooses for the CSV, by key. */
 enum audit_table { AUDIT_TABLE_FUNDS = 0, AUDIT_TABLE_SCREENS = 1, AUDIT_TABLE_SECTORS = 2 };
 static const char *const table_words[] = { "funds", "screens", "sectors", NULL };
 
@@ -133,9 +133,9 @@ static int audit_options_from(const char *cmd, const struct cli_holdings *ho, co
 		return cli_usage_error(cmd, "--max-weight and --max-sector-weight must be between 0 and 1 (or 100%%)");
 	if (ho->weight_column && ho->market_value_column)
 		return cli_usage_error(cmd, "--weight-column and --market-value-column exclude each other");
-	audit_options_init(ao);
+	hc_audit_options_init(ao);
 	hc_error_clear(&err);
-	if (po->screens && audit_parse_screens(po->screens, &ao->policy.screens, &err) != HC_OK)
+	if (po->screens && hc_audit_parse_screens(po->screens, &ao->policy.screens, &err) != HC_OK)
 		return cli_usage_error(cmd, "--screens: %s", err.message);
 	ao->policy.min_holdings = po->min_holdings;
 	ao->policy.min_effective = po->min_effective;
@@ -155,7 +155,7 @@ static int load_inputs(const char *cmd, const struct cli_holdings *o, struct hol
 	struct hc_error err;
 	size_t k;
 
-	holdings_options_init(&ho);
+	hc_holdings_options_init(&ho);
 	ho.fund_column = o->fund_column;
 	ho.id_column = o->holding_id_column;
 	ho.weight_column = o->weight_column;
@@ -163,11 +163,11 @@ static int load_inputs(const char *cmd, const struct cli_holdings *o, struct hol
 	ho.issuer_column = o->issuer_column;
 	ho.allow_short = o->allow_short;
 	hc_error_clear(&err);
-	if (holdings_load(h, o->holdings, &ho, &err) != HC_OK)
+	if (hc_holdings_load(h, o->holdings, &ho, &err) != HC_OK)
 		return cli_fail(cmd, &err);
 	for (k = 0; k < (*h)->nwarnings; k++)
 		fprintf(stderr, "holdcount %s: warning: %s\n", cmd, (*h)->warnings[k]);
-	if (o->sectors && holdings_labels_load(l, o->sectors, 0, &err) != HC_OK)
+	if (o->sectors && hc_holdings_labels_load(l, o->sectors, 0, &err) != HC_OK)
 		return cli_fail(cmd, &err);
 	return HC_OK;
 }
@@ -219,11 +219,11 @@ static int audit_data(const char *cmd, const struct cli_holdings *ho, const stru
 	cli_progress_init(&prog, "sampling the funds' counts", "paths", quiet);
 	ao.progress = cli_progress_update;
 	ao.progress_ctx = &prog;
-	rc = am ? audit_run_matrix(res, *h, am, mo, &ao, &err) : audit_run(res, *h, u, mo, &ao, &err);
+	rc = am ? hc_audit_run_matrix(res, *h, am, mo, &ao, &err) : hc_audit_run(res, *h, u, mo, &ao, &err);
 	cli_progress_finish(&prog);
 	if (rc == HC_OK) {
 		say_missing(cmd, *res);
-		rc = audit_report(out, *res, *h, &err);
+		rc = hc_audit_report(out, *res, *h, &err);
 	}
 	return rc ? cli_fail(cmd, &err) : HC_OK;
 }
@@ -252,7 +252,7 @@ void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 		fprintf(stderr, " '%s'", res->funds[f].name);
 		for (k = 0; k < AUDIT_NRULES; k++)
 			if (res->funds[f].failed & (1u << k)) {
-				fprintf(stderr, "%s%s", sep, audit_rule_name(1u << k));
+				fprintf(stderr, "%s%s", sep, hc_audit_rule_name(1u << k));
 				sep = ", ";
 			}
 		fputc(')', stderr);
@@ -277,7 +277,7 @@ static int load_matrix(const struct audit_opts *o, const struct cli_args *a, str
 	if ((rc = cli_load_covariance("audit", &o->uni, a, path, ps, cm)) != HC_OK)
 		return rc;
 	hc_error_clear(&err);
-	if (moments_from_matrix(mo, (*cm)->a, (*cm)->m, &err) != HC_OK) {
+	if (hc_moments_from_matrix(mo, (*cm)->a, (*cm)->m, &err) != HC_OK) {
 		hc_error_prefix(&err, path);
 		return cli_fail("audit", &err);
 	}
@@ -306,7 +306,7 @@ static int pairwise_matrix(const struct audit_opts *o, const struct universe *u,
 	if (rc)
 		return rc;
 	hc_error_clear(&err);
-	if (moments_from_matrix(mo, (*cm)->a, (*cm)->m, &err) != HC_OK)
+	if (hc_moments_from_matrix(mo, (*cm)->a, (*cm)->m, &err) != HC_OK)
 		return cli_fail("audit", &err);
 	memset(am, 0, sizeof *am);
 	am->cm = *cm;
@@ -362,7 +362,7 @@ int cmd_audit(int argc, char **argv)
 	else if ((rc = cli_load_universe("audit", &o.uni, a.positional[0], &u)) == HC_OK) {
 		if (u->has_missing)
 			rc = pairwise_matrix(&o, u, a.positional[0], &ps, &cm, &mo, &am);
-		else if (moments_from_universe(&mo, u, &err) != HC_OK)
+		else if (hc_moments_from_universe(&mo, u, &err) != HC_OK)
 			rc = cli_fail("audit", &err);
 		/* --repair-psd had nothing to repair: say so in the output */
 		else if (o.uni.repair_psd)
@@ -386,12 +386,12 @@ int cmd_audit(int argc, char **argv)
 		rc = HC_EPOLICY;
 	}
 cleanup:
-	report_free(r);
-	audit_result_free(res);
-	holdings_labels_free(l);
-	holdings_free(h);
-	covmatrix_free(cm);
-	universe_free(u);
+	hc_report_free(r);
+	hc_audit_result_free(res);
+	hc_holdings_labels_free(l);
+	hc_holdings_free(h);
+	hc_covmatrix_free(cm);
+	hc_universe_free(u);
 	cli_args_release(&a);
 	return rc;
 }

@@ -57,7 +57,7 @@ int cli_curve_sample(const struct cli_sampling *sam, int quiet, const struct uni
 	struct cli_progress prog;
 	int rc;
 
-	sampler_options_init(&so);
+	hc_sampler_options_init(&so);
 	so.paths = sam->paths;
 	so.seed = sam->seed;
 	so.threads = sam->threads > INT_MAX ? INT_MAX : (int)sam->threads;
@@ -66,13 +66,13 @@ int cli_curve_sample(const struct cli_sampling *sam, int quiet, const struct uni
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
 	if (u)
-		rc = sampler_run(&res, u, sizes, nsizes, &so, err);
+		rc = hc_sampler_run(&res, u, sizes, nsizes, &so, err);
 	else
-		rc = sampler_run_matrix(&res, cm->a, cm->m, sizes, nsizes, &so, err);
+		rc = hc_sampler_run_matrix(&res, cm->a, cm->m, sizes, nsizes, &so, err);
 	cli_progress_finish(&prog);
 	if (rc == HC_OK)
-		rc = sampler_summarise(c, res, err);
-	sampler_result_free(res);
+		rc = hc_sampler_summarise(c, res, err);
+	hc_sampler_result_free(res);
 	if (rc == HC_OK) {
 		c->paths = sam->paths;
 		c->seed = sam->seed;
@@ -91,7 +91,7 @@ static int sample_strata(struct curve_opts *o, const struct universe *u, const s
 	struct cli_progress prog;
 	int rc;
 
-	sampler_options_init(&so);
+	hc_sampler_options_init(&so);
 	so.paths = o->sam.paths;
 	so.seed = o->sam.seed;
 	so.threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
@@ -101,15 +101,15 @@ static int sample_strata(struct curve_opts *o, const struct universe *u, const s
 	cli_progress_init(&prog, "stratified sampling", "paths", o->out.quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
-	rc = sampler_run(&res, u, sizes, nsizes, &so, err);
+	rc = hc_sampler_run(&res, u, sizes, nsizes, &so, err);
 	cli_progress_finish(&prog);
 	if (rc == HC_OK && o->strat.proportional)
-		rc = strata_moments_from_universe(&sm, u, o->strat.strata, err);
+		rc = hc_strata_moments_from_universe(&sm, u, o->strat.strata, err);
 	if (rc == HC_OK)
-		rc = strata_curve_alloc(sc, res, o->strat.strata, sm, so.stratify, so.per_stratum_max,
+		rc = hc_strata_curve_alloc(sc, res, o->strat.strata, sm, so.stratify, so.per_stratum_max,
 					u->periods_per_year, err);
-	strata_moments_free(sm);
-	sampler_result_free(res);
+	hc_strata_moments_free(sm);
+	hc_sampler_result_free(res);
 	return rc ? cli_fail("curve", err) : HC_OK;
 }
 
@@ -157,7 +157,7 @@ static int add_strata(struct report *r, const struct curve_opts *o, const struct
 		return HC_ENOMEM;
 	if (!sc)
 		return HC_OK;
-	if (strata_report_columns(sc, r->tables[r->ntables - 1]))
+	if (hc_strata_report_columns(sc, r->tables[r->ntables - 1]))
 		return HC_ENOMEM;
 	for (j = 0; j < sc->npoints; j++)
 		any_out |= !sc->points[j].feasible;
@@ -167,10 +167,10 @@ static int add_strata(struct report *r, const struct curve_opts *o, const struct
 		snprintf(text, sizeof text, "stratified: no portfolio of more than %zu holdings has at most %zu "
 			 "in every stratum (the sum over strata of the smaller of %zu and the stratum's size); "
 			 "left out of the stratified columns: ",
-			 strata_cap_most(o->strat.strata, sc->per_stratum_max), sc->per_stratum_max,
+			 hc_strata_cap_most(o->strat.strata, sc->per_stratum_max), sc->per_stratum_max,
 			 sc->per_stratum_max);
 		left_out_sizes(text, sizeof text, sc);
-		if (report_add_note(r, text))
+		if (hc_report_add_note(r, text))
 			return HC_ENOMEM;
 	}
 	snprintf(text, sizeof text, "stratified: %s; its z compares the sampled mean with the exact "
@@ -178,22 +178,22 @@ static int add_strata(struct report *r, const struct curve_opts *o, const struct
 		 ? "the exact column is the expected variance of the fixed allocation"
 		 : "the cap draws the allocation at random, so there is no exact column",
 		 sc->mode == SAMPLER_STRATA_PROPORTIONAL ? "" : " (none here)");
-	return report_add_note(r, text) ? HC_ENOMEM : HC_OK;
+	return hc_report_add_note(r, text) ? HC_ENOMEM : HC_OK;
 }
 
 /* The curve table, with the scale appended as a column so that the CSV,
  * which carries only this table, still says what it is annualised by. */
 int cli_curve_table(struct report *r, const struct curve *c, int annualised)
 {
-	struct report_table *t = report_add_table(r, "curve", "risk by holding count");
+	struct report_table *t = hc_report_add_table(r, "curve", "risk by holding count");
 	size_t i;
 
-	if (!t || curve_report(c, t) != HC_OK ||
-	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
+	if (!t || hc_curve_report(c, t) != HC_OK ||
+	    hc_report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
 		return HC_ENOMEM;
 	if (annualised)
 		for (i = 0; i < t->nrows; i++)
-			report_table_set_real(t, i, t->ncols - 1, c->periods_per_year);
+			hc_report_table_set_real(t, i, t->ncols - 1, c->periods_per_year);
 	return HC_OK;
 }
 
@@ -203,22 +203,22 @@ int cli_curve_fields(struct report *r, const struct cli_curve_source *src, const
 	char seed[32];
 
 	snprintf(seed, sizeof seed, "%llu", (unsigned long long)c->seed);
-	if (report_add_text(r, "source", "source", src->path) ||
-	    report_add_text(r, "input", "input", src->input) ||
-	    report_add_int(r, "securities", "securities kept", (long long)src->m) ||
-	    report_add_int(r, "securities_dropped", "securities dropped", (long long)src->dropped) ||
-	    (src->periods ? report_add_int(r, "periods", "periods", (long long)src->periods)
-			  : report_add_none(r, "periods", "periods")) ||
+	if (hc_report_add_text(r, "source", "source", src->path) ||
+	    hc_report_add_text(r, "input", "input", src->input) ||
+	    hc_report_add_int(r, "securities", "securities kept", (long long)src->m) ||
+	    hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)src->dropped) ||
+	    (src->periods ? hc_report_add_int(r, "periods", "periods", (long long)src->periods)
+			  : hc_report_add_none(r, "periods", "periods")) ||
 	    cli_add_scale(r, c->periods_per_year, src->annualised) ||
-	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
+	    hc_report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
 			    c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
-	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(c->universe_variance),
+	    hc_report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(c->universe_variance),
 			    REPORT_STYLE_PERCENT) ||
-	    report_add_real(r, "average_correlation", "average correlation",
+	    hc_report_add_real(r, "average_correlation", "average correlation",
 			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
-	    report_add_int(r, "paths", "random portfolios per count", (long long)c->paths) ||
-	    (c->paths ? report_add_text(r, "seed", "seed", seed) : report_add_none(r, "seed", "seed")) ||
-	    report_add_text(r, "sampling", "sampling",
+	    hc_report_add_int(r, "paths", "random portfolios per count", (long long)c->paths) ||
+	    (c->paths ? hc_report_add_text(r, "seed", "seed", seed) : hc_report_add_none(r, "seed", "seed")) ||
+	    hc_report_add_text(r, "sampling", "sampling",
 			    c->paths ? "uniform random subsets without replacement; z compares the sampled mean "
 				       "variance with the exact one in Monte Carlo standard errors"
 				     : "not sampled (--paths 0)"))
@@ -232,7 +232,7 @@ static int build(struct report *r, const struct curve_opts *o, const struct cli_
 {
 	if (cli_curve_fields(r, src, mo, c) || add_strata(r, o, sc) || cli_psd_fields(r, ps))
 		return HC_ENOMEM;
-	return report_add_cautions(r);
+	return hc_report_add_cautions(r);
 }
 
 /* Exact curve, optional sampling and the report: shared by both inputs. */
@@ -246,14 +246,14 @@ static int finish(const struct curve_opts *o, const struct cli_curve_source *src
 	int rc;
 
 	hc_error_clear(&err);
-	rc = curve_exact(&c, mo, sizes, nsizes, p, &err);
+	rc = hc_curve_exact(&c, mo, sizes, nsizes, p, &err);
 	if (rc == HC_OK && o->sam.paths > 0)
 		rc = cli_curve_sample(&o->sam, o->out.quiet, u, cm, c, sizes, nsizes, &err);
 	if (rc) {
 		rc = cli_fail("curve", &err);
 		goto cleanup;
 	}
-	r = report_alloc();
+	r = hc_report_alloc();
 	if (!r || build(r, o, src, mo, c, sc, ps)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("curve", &err);
@@ -261,8 +261,8 @@ static int finish(const struct curve_opts *o, const struct cli_curve_source *src
 	}
 	rc = cli_write_report("curve", &o->out, r);
 cleanup:
-	report_free(r);
-	curve_free(c);
+	hc_report_free(r);
+	hc_curve_free(c);
 	return rc;
 }
 
@@ -291,7 +291,7 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 	hc_error_clear(&err);
 	rc = cli_sizes("curve", o->sam.sizes, cm->m, &sizes, &nsizes);
 	if (rc == HC_OK) {
-		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+		rc = hc_moments_from_matrix(&mo, cm->a, cm->m, &err);
 		if (rc) {
 			hc_error_prefix(&err, src.path);
 			rc = cli_fail("curve", &err);
@@ -300,7 +300,7 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 	if (rc == HC_OK)
 		rc = finish(o, &src, NULL, cm, &mo, sizes, nsizes, p, NULL, &ps);
 	hc_free(sizes);
-	covmatrix_free(cm);
+	hc_covmatrix_free(cm);
 	return rc;
 }
 
@@ -365,7 +365,7 @@ int cmd_curve(int argc, char **argv)
 				     "under --missing pairwise", a.positional[0]);
 		goto cleanup;
 	}
-	rc = ps.repaired ? moments_from_matrix(&mo, cm->a, cm->m, &err) : moments_from_universe(&mo, u, &err);
+	rc = ps.repaired ? hc_moments_from_matrix(&mo, cm->a, cm->m, &err) : hc_moments_from_universe(&mo, u, &err);
 	if (rc) {
 		rc = cli_fail("curve", &err);
 		goto cleanup;
@@ -383,11 +383,11 @@ int cmd_curve(int argc, char **argv)
 	src.annualised = 1;
 	rc = finish(&o, &src, cm ? NULL : u, cm, &mo, sizes, nsizes, u->periods_per_year, sc, &ps);
 cleanup:
-	covmatrix_free(cm);
-	strata_curve_free(sc);
+	hc_covmatrix_free(cm);
+	hc_strata_curve_free(sc);
 	cli_strata_release(&o.strat);
 	hc_free(sizes);
-	universe_free(u);
+	hc_universe_free(u);
 	cli_args_release(&a);
 	return rc;
 }

@@ -82,38 +82,38 @@ static void security_sd(const double *x, size_t t, double p, size_t *nobs, doubl
 
 static int add_kept(struct report *r, const struct universe *u)
 {
-	struct report_table *t = report_add_table(r, "kept", "securities kept");
+	struct report_table *t = hc_report_add_table(r, "kept", "securities kept");
 	size_t i, nobs;
 	double sd;
 
-	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT) ||
-	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
+	if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT) ||
+	    hc_report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
 		return HC_ENOMEM;
 	for (i = 0; i < u->m; i++) {
-		if (report_table_add_row(t) || report_table_set_text(t, i, 0, u->ids[i]))
+		if (hc_report_table_add_row(t) || hc_report_table_set_text(t, i, 0, u->ids[i]))
 			return HC_ENOMEM;
 		security_sd(u->x + i * u->t, u->t, u->periods_per_year, &nobs, &sd);
-		report_table_set_int(t, i, 1, (long long)nobs);
-		report_table_set_real(t, i, 2, sd);
+		hc_report_table_set_int(t, i, 1, (long long)nobs);
+		hc_report_table_set_real(t, i, 2, sd);
 		/* A CSV of this table alone (--table securities) says its scale too. */
-		report_table_set_real(t, i, 3, u->periods_per_year);
+		hc_report_table_set_real(t, i, 3, u->periods_per_year);
 	}
 	return HC_OK;
 }
 
 static int add_dropped(struct report *r, const struct universe *u)
 {
-	struct report_table *t = report_add_table(r, "dropped", "securities dropped");
+	struct report_table *t = hc_report_add_table(r, "dropped", "securities dropped");
 	size_t i;
 
-	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
+	if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
 		return HC_ENOMEM;
 	for (i = 0; i < u->ndropped; i++)
-		if (report_table_add_row(t) || report_table_set_text(t, i, 0, u->dropped[i].id) ||
-		    report_table_set_text(t, i, 1, u->dropped[i].reason))
+		if (hc_report_table_add_row(t) || hc_report_table_set_text(t, i, 0, u->dropped[i].id) ||
+		    hc_report_table_set_text(t, i, 1, u->dropped[i].reason))
 			return HC_ENOMEM;
 	return HC_OK;
 }
@@ -122,14 +122,14 @@ static int add_dropped(struct report *r, const struct universe *u)
  * year, or 1): the same fields whether from returns or from a matrix. */
 static int add_averages(struct report *r, const struct moments *mo, double p)
 {
-	if (report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p,
+	if (hc_report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p,
 			    REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_correlation", "average correlation",
+	    hc_report_add_real(r, "average_correlation", "average correlation",
 			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
-	    report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
+	    hc_report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
 			    mo->average_covariance >= 0 ? sqrt(mo->average_covariance * p) : NAN, REPORT_STYLE_PERCENT) ||
-	    report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(mo->universe_variance * p),
+	    hc_report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(mo->universe_variance * p),
 			    REPORT_STYLE_PERCENT))
 		return HC_ENOMEM;
 	return HC_OK;
@@ -142,20 +142,20 @@ static int build(struct report *r, const struct universe *u, const struct moment
 	char first[16] = "", last[16] = "";
 
 	if (u->t > 0) {
-		universe_format_date(u->dates[0], first);
-		universe_format_date(u->dates[u->t - 1], last);
+		hc_universe_format_date(u->dates[0], first);
+		hc_universe_format_date(u->dates[u->t - 1], last);
 	}
-	if (report_add_text(r, "source", "source", u->source ? u->source : "") ||
-	    report_add_int(r, "securities", "securities kept", (long long)u->m) ||
-	    report_add_int(r, "securities_read", "securities read", (long long)u->m_read) ||
-	    report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped) ||
-	    report_add_int(r, "periods", "periods", (long long)u->t) ||
-	    report_add_text(r, "first_date", "first date", first) ||
-	    report_add_text(r, "last_date", "last date", last) ||
+	if (hc_report_add_text(r, "source", "source", u->source ? u->source : "") ||
+	    hc_report_add_int(r, "securities", "securities kept", (long long)u->m) ||
+	    hc_report_add_int(r, "securities_read", "securities read", (long long)u->m_read) ||
+	    hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped) ||
+	    hc_report_add_int(r, "periods", "periods", (long long)u->t) ||
+	    hc_report_add_text(r, "first_date", "first date", first) ||
+	    hc_report_add_text(r, "last_date", "last date", last) ||
 	    cli_add_scale(r, p, 1) ||
-	    report_add_bool(r, "periods_per_year_detected", "detected from the dates",
+	    hc_report_add_bool(r, "periods_per_year_detected", "detected from the dates",
 			    u->periods_detected) ||
-	    report_add_text(r, "covariances", "covariances",
+	    hc_report_add_text(r, "covariances", "covariances",
 			    ps->repaired ? "pairwise-complete (data with gaps), repaired to the nearest positive "
 					   "semi-definite matrix"
 			    : u->has_missing ? "pairwise-complete (data with gaps)" : "complete data") ||
@@ -163,7 +163,7 @@ static int build(struct report *r, const struct universe *u, const struct moment
 		return HC_ENOMEM;
 	if (add_kept(r, u) || add_dropped(r, u) || cli_psd_fields(r, ps))
 		return HC_ENOMEM;
-	return report_add_cautions(r);
+	return hc_report_add_cautions(r);
 }
 
 /* From a covariance matrix: no periods or dates; its own units unless
@@ -176,36 +176,36 @@ static int build_matrix(struct report *r, const char *path, const struct covmatr
 	int annualised = ps->annualised;
 	size_t i;
 
-	if (report_add_text(r, "source", "source", path) ||
-	    report_add_text(r, "input", "input", "covariance matrix") ||
-	    report_add_int(r, "securities", "securities kept", (long long)cm->m) ||
-	    report_add_int(r, "securities_read", "securities read", (long long)cm->m) ||
-	    report_add_int(r, "securities_dropped", "securities dropped", 0) ||
-	    report_add_none(r, "periods", "periods") ||
-	    report_add_none(r, "first_date", "first date") ||
-	    report_add_none(r, "last_date", "last date") ||
+	if (hc_report_add_text(r, "source", "source", path) ||
+	    hc_report_add_text(r, "input", "input", "covariance matrix") ||
+	    hc_report_add_int(r, "securities", "securities kept", (long long)cm->m) ||
+	    hc_report_add_int(r, "securities_read", "securities read", (long long)cm->m) ||
+	    hc_report_add_int(r, "securities_dropped", "securities dropped", 0) ||
+	    hc_report_add_none(r, "periods", "periods") ||
+	    hc_report_add_none(r, "first_date", "first date") ||
+	    hc_report_add_none(r, "last_date", "last date") ||
 	    cli_add_scale(r, p, annualised) ||
-	    report_add_bool(r, "periods_per_year_detected", "detected from the dates", 0) ||
+	    hc_report_add_bool(r, "periods_per_year_detected", "detected from the dates", 0) ||
 	    add_averages(r, mo, p))
 		return HC_ENOMEM;
-	t = report_add_table(r, "kept", "securities kept");
-	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT) ||
-	    report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
+	t = hc_report_add_table(r, "kept", "securities kept");
+	if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT) ||
+	    hc_report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
 		return HC_ENOMEM;
 	for (i = 0; i < cm->m; i++) {
-		if (report_table_add_row(t) || report_table_set_text(t, i, 0, cm->ids[i]))
+		if (hc_report_table_add_row(t) || hc_report_table_set_text(t, i, 0, cm->ids[i]))
 			return HC_ENOMEM;
-		report_table_set_real(t, i, 2, sqrt(cm->a[i * cm->m + i] * p));
+		hc_report_table_set_real(t, i, 2, sqrt(cm->a[i * cm->m + i] * p));
 		if (annualised)
-			report_table_set_real(t, i, 3, p);
+			hc_report_table_set_real(t, i, 3, p);
 	}
-	t = report_add_table(r, "dropped", "securities dropped");
-	if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN) || cli_psd_fields(r, ps))
+	t = hc_report_add_table(r, "dropped", "securities dropped");
+	if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN) || cli_psd_fields(r, ps))
 		return HC_ENOMEM;
-	return report_add_cautions(r);
+	return hc_report_add_cautions(r);
 }
 
 static int write(const struct describe_opts *o, const struct report *r)
@@ -234,13 +234,13 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 	rc = cli_load_covariance("describe", &o->uni, a, path, &ps, &cm);
 	if (rc)
 		return rc;
-	rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+	rc = hc_moments_from_matrix(&mo, cm->a, cm->m, &err);
 	if (rc) {
 		hc_error_prefix(&err, path);
 		rc = cli_fail("describe", &err);
 		goto cleanup;
 	}
-	r = report_alloc();
+	r = hc_report_alloc();
 	if (!r || build_matrix(r, path, cm, &mo, &ps)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("describe", &err);
@@ -248,8 +248,8 @@ static int describe_matrix(const struct describe_opts *o, const struct cli_args 
 	}
 	rc = write(o, r);
 cleanup:
-	report_free(r);
-	covmatrix_free(cm);
+	hc_report_free(r);
+	hc_covmatrix_free(cm);
 	return rc;
 }
 
@@ -293,14 +293,14 @@ int cmd_describe(int argc, char **argv)
 		rc = cli_pairwise_matrix("describe", u, a.positional[0], "", &ps, &cm);
 		if (rc)
 			goto cleanup;
-		rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+		rc = hc_moments_from_matrix(&mo, cm->a, cm->m, &err);
 	} else
-		rc = moments_from_universe(&mo, u, &err);
+		rc = hc_moments_from_universe(&mo, u, &err);
 	if (rc) {
 		rc = cli_fail("describe", &err);
 		goto cleanup;
 	}
-	r = report_alloc();
+	r = hc_report_alloc();
 	if (!r || build(r, u, &mo, &ps)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("describe", &err);
@@ -308,9 +308,9 @@ int cmd_describe(int argc, char **argv)
 	}
 	rc = write(&o, r);
 cleanup:
-	report_free(r);
-	covmatrix_free(cm);
-	universe_free(u);
+	hc_report_free(r);
+	hc_covmatrix_free(cm);
+	hc_universe_free(u);
 	cli_args_release(&a);
 	return rc;
 }

@@ -167,13 +167,13 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 {
 	struct hc_error err;
 
-	rules_config_init(cfg);
+	hc_rules_config_init(cfg);
 	hc_error_clear(&err);
 	if (!have_data)
 		cfg->selected = RULES_EXACT_MASK;
 	else if (covariance)
 		cfg->selected = RULES_EXACT_MASK | RULES_FLAG(RULES_BAND);
-	if (o->rules && rules_parse_list(o->rules, &cfg->selected, &err))
+	if (o->rules && hc_rules_parse_list(o->rules, &cfg->selected, &err))
 		return cli_fail(cmd, &err);
 	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error(cmd, "the band and shortfall rules need a universe file, not summary statistics");
@@ -204,7 +204,7 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 		return cli_usage_error(cmd, "give --premium and --holding-cost together (or neither, for the stated defaults)");
 	if (cli_given(a, "te-budget"))
 		cfg->te_budget = o->te_budget;
-	if (rules_config_check(cfg, &err))
+	if (hc_rules_config_check(cfg, &err))
 		return cli_fail(cmd, &err);
 	return HC_OK;
 }
@@ -278,45 +278,45 @@ static int add_fields(struct report *r, const struct enough_run *e)
 	int bad = 0;
 
 	if (e->u) {
-		bad |= report_add_text(r, "universe", "universe", e->u->source ? e->u->source : "-");
-		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
-		bad |= report_add_int(r, "securities_dropped", "securities dropped", (long long)e->u->ndropped);
-		bad |= report_add_int(r, "periods", "periods", (long long)e->u->t);
+		bad |= hc_report_add_text(r, "universe", "universe", e->u->source ? e->u->source : "-");
+		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
+		bad |= hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)e->u->ndropped);
+		bad |= hc_report_add_int(r, "periods", "periods", (long long)e->u->t);
 		if (e->u->has_missing)
-			bad |= report_add_text(r, "input", "input", e->ps && e->ps->repaired
+			bad |= hc_report_add_text(r, "input", "input", e->ps && e->ps->repaired
 				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
 				  "positive semi-definite matrix, for every rule but shortfall"
 				: e->paths ? "return history with gaps; pairwise-complete covariances, from which the band "
 					    "rule draws its portfolios"
 				: "return history with gaps; pairwise-complete covariances");
 	} else if (e->matrix) {
-		bad |= report_add_text(r, "universe", "universe", e->matrix);
-		bad |= report_add_text(r, "input", "input", "covariance matrix");
-		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
+		bad |= hc_report_add_text(r, "universe", "universe", e->matrix);
+		bad |= hc_report_add_text(r, "input", "input", "covariance matrix");
+		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
 	} else if (e->m)
-		bad |= report_add_int(r, "securities", "securities", (long long)e->m);
+		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
 	else
-		bad |= report_add_text(r, "securities", "securities", "unbounded");
+		bad |= hc_report_add_text(r, "securities", "securities", "unbounded");
 	bad |= cli_add_scale(r, p, e->annualised);
-	bad |= report_add_real(r, "average_variance", "average variance", e->vbar * p, REPORT_STYLE_SCI);
-	bad |= report_add_real(r, "average_covariance", "average covariance", e->cbar * p, REPORT_STYLE_SCI);
-	bad |= report_add_real(r, "floor_sd", "floor sd", floor_var > 0 ? sqrt(floor_var) : NAN, sd_style);
-	bad |= report_add_real(r, "universe_sd", "equal-weight universe sd", uvar > 0 ? sqrt(uvar) : NAN, sd_style);
+	bad |= hc_report_add_real(r, "average_variance", "average variance", e->vbar * p, REPORT_STYLE_SCI);
+	bad |= hc_report_add_real(r, "average_covariance", "average covariance", e->cbar * p, REPORT_STYLE_SCI);
+	bad |= hc_report_add_real(r, "floor_sd", "floor sd", floor_var > 0 ? sqrt(floor_var) : NAN, sd_style);
+	bad |= hc_report_add_real(r, "universe_sd", "equal-weight universe sd", uvar > 0 ? sqrt(uvar) : NAN, sd_style);
 	if (e->paths) {
-		bad |= report_add_int(r, "paths", "sampled portfolios a size", (long long)e->paths);
-		bad |= report_add_int(r, "sampled_sizes", "sampled sizes 1 to", (long long)e->sampled_sizes);
+		bad |= hc_report_add_int(r, "paths", "sampled portfolios a size", (long long)e->paths);
+		bad |= hc_report_add_int(r, "sampled_sizes", "sampled sizes 1 to", (long long)e->sampled_sizes);
 	}
 	if (e->bootstrapped) {
-		bad |= report_add_text(r, "bootstrap", "bootstrap", bootstrap_kind_name(e->kind));
-		bad |= report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
-		bad |= report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
+		bad |= hc_report_add_text(r, "bootstrap", "bootstrap", hc_bootstrap_kind_name(e->kind));
+		bad |= hc_report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
+		bad |= hc_report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
 	} else
-		bad |= report_add_none(r, "bootstrap", "bootstrap");
+		bad |= hc_report_add_none(r, "bootstrap", "bootstrap");
 	if (e->u || e->paths) {
 		char seed[32];
 
 		snprintf(seed, sizeof seed, "%llu", (unsigned long long)e->seed);
-		bad |= report_add_text(r, "seed", "seed", seed);
+		bad |= hc_report_add_text(r, "seed", "seed", seed);
 	}
 	if (e->ps)
 		bad |= cli_psd_fields(r, e->ps);
@@ -333,15 +333,15 @@ static int add_notes(struct report *r, const struct enough_run *e)
 			 "count p05/p50/p95: percentiles of each rule's count over %zu %s-bootstrap replicates of "
 			 "the periods (block length %zu); \"not met\" where the percentile reaches replicates "
 			 "in which the rule is not met%s",
-			 e->replicates, bootstrap_kind_name(e->kind), e->block_length,
+			 e->replicates, hc_bootstrap_kind_name(e->kind), e->block_length,
 			 e->sampled_bootstrapped ? "" : "; sampled rules (band, shortfall) have an interval only with --bootstrap-sampled");
-		bad |= report_add_note(r, text);
+		bad |= hc_report_add_note(r, text);
 	} else if (e->no_interval)
-		bad |= report_add_note(r, e->no_interval);
+		bad |= hc_report_add_note(r, e->no_interval);
 	if (!e->annualised)
-		bad |= report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
+		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
-	bad |= report_add_cautions(r);
+	bad |= hc_report_add_cautions(r);
 	return bad ? HC_ENOMEM : HC_OK;
 }
 
@@ -350,14 +350,14 @@ static int add_notes(struct report *r, const struct enough_run *e)
 static int build_report(const char *cmd, const struct enough_run *e, const struct cli_strata *strat,
 			const struct rule_result *res, size_t nres, struct report **out)
 {
-	struct report *r = report_alloc();
+	struct report *r = hc_report_alloc();
 	struct hc_error err;
 
 	hc_error_clear(&err);
 	*out = NULL;
 	if (!r || add_fields(r, e) || (strat && cli_strata_fields(r, strat)) ||
-	    rules_report(r, res, nres, &err) || add_notes(r, e)) {
-		report_free(r);
+	    hc_rules_report(r, res, nres, &err) || add_notes(r, e)) {
+		hc_report_free(r);
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		return cli_fail(cmd, &err);
 	}
@@ -383,7 +383,7 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	/* The same checks as `formula` (c-bar at most v-bar, c-bar at least
 	 * -v-bar/(M-1), M not 1), by the same function. */
 	hc_error_clear(&err);
-	if (moments_from_summary(&mo, e->vbar, e->cbar, e->m, &err))
+	if (hc_moments_from_summary(&mo, e->vbar, e->cbar, e->m, &err))
 		return cli_fail("enough", &err);
 	e->annualised = cli_given(a, "periods-per-year");
 	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
@@ -397,7 +397,7 @@ static int run_summary(const struct enough_opts *o, const struct cli_args *a,
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
-	rc = rules_evaluate(cfg, &in, res, nres, &err);
+	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
@@ -423,10 +423,10 @@ static int data_checks(const char *cmd, const struct cli_sampling *smp, const st
 	return HC_OK;
 }
 
-/* The band and shortfall rules by sampling (rules_sampled stops at the
+/* The band and shortfall rules by sampling (hc_rules_sampled stops at the
  * smallest stage of sizes that settles them) the return series u, or
  * (band only) the covariance matrix cm when it is not NULL; their results
- * replace the "needs sampled portfolios" placeholders that rules_evaluate
+ * replace the "needs sampled portfolios" placeholders that hc_rules_evaluate
  * left.  ppy: u's periods per year, or the matrix's scale. */
 static int run_sampled(const struct data_run *d, const struct universe *u, const struct covmatrix *cm,
 		       const struct rules_config *cfg, double cbar, double ppy, struct enough_run *e,
@@ -441,7 +441,7 @@ static int run_sampled(const struct data_run *d, const struct universe *u, const
 	int rc;
 
 	hc_error_clear(&err);
-	sampler_options_init(&so);
+	hc_sampler_options_init(&so);
 	so.paths = d->smp->paths;
 	so.seed = d->smp->seed;
 	so.threads = (int)d->smp->threads;
@@ -454,8 +454,8 @@ static int run_sampled(const struct data_run *d, const struct universe *u, const
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
 	band.selected &= ~RULES_FLAG(RULES_SHORTFALL);
-	rc = cm ? rules_sampled_matrix(&band, cm->a, cm->m, &so, cbar, sr, &n, &e->sampled_sizes, &err)
-		: rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
+	rc = cm ? hc_rules_sampled_matrix(&band, cm->a, cm->m, &so, cbar, sr, &n, &e->sampled_sizes, &err)
+		: hc_rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
 	cli_progress_finish(&prog);
 	if (rc)
 		return cli_fail(d->cmd, &err);
@@ -467,7 +467,7 @@ static int run_sampled(const struct data_run *d, const struct universe *u, const
 	e->seed = d->smp->seed;
 	if (!cm && d->strat->per_stratum_max) {
 		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
-		size_t top = strata_cap_most(d->strat->strata, d->strat->per_stratum_max);
+		size_t top = hc_strata_cap_most(d->strat->strata, d->strat->per_stratum_max);
 
 		for (j = 0; j < nres; j++)
 			if ((RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK) && res[j].defined && !res[j].met)
@@ -490,13 +490,13 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 	int rc;
 
 	hc_error_clear(&err);
-	bootstrap_options_init(&bo);
+	hc_bootstrap_options_init(&bo);
 	bo.replicates = d->rul->bootstrap;
 	bo.kind = d->rul->bootstrap_kind;
 	bo.block_length = d->rul->block_length;
 	bo.seed = d->smp->seed;
 	bo.threads = (int)d->smp->threads;
-	rc = bootstrap_base_alloc(&b, u, &err);
+	rc = hc_bootstrap_base_alloc(&b, u, &err);
 	if (rc == HC_OK) {
 		if (d->stages) {
 			char what[96];
@@ -506,11 +506,11 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 		cli_progress_init(&prog, "bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
-		rc = bootstrap_run(&br, b, &bo, &err);
+		rc = hc_bootstrap_run(&br, b, &bo, &err);
 		cli_progress_finish(&prog);
 	}
 	if (rc == HC_OK)
-		rc = rules_bootstrap_exact(cfg, br->vbar, br->cbar, br->replicates, u->m,
+		rc = hc_rules_bootstrap_exact(cfg, br->vbar, br->cbar, br->replicates, u->m,
 					   u->periods_per_year, res, nres, &err);
 	if (rc == HC_OK) {
 		e->bootstrapped = 1;
@@ -521,13 +521,13 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 	if (rc == HC_OK && d->rul->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
 		struct sampler_options so;
 
-		sampler_options_init(&so);
+		hc_sampler_options_init(&so);
 		so.paths = d->rul->bootstrap_paths;
 		so.threads = (int)d->smp->threads;
 		so.periods_per_year = u->periods_per_year;
 		if ((rc = cli_strata_apply(d->cmd, d->strat, u, &so))) {
-			bootstrap_result_free(br);
-			bootstrap_base_free(b);
+			hc_bootstrap_result_free(br);
+			hc_bootstrap_base_free(b);
 			return rc;
 		}
 		if (d->stages)
@@ -535,12 +535,12 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 		cli_progress_init(&prog, "sampled bootstrap", "replicates", d->quiet);
 		bo.progress = cli_progress_update;
 		bo.progress_ctx = &prog;
-		rc = rules_bootstrap_sampled(cfg, u, b, &bo, &so, res, nres, &err);
+		rc = hc_rules_bootstrap_sampled(cfg, u, b, &bo, &so, res, nres, &err);
 		cli_progress_finish(&prog);
 		e->sampled_bootstrapped = rc == HC_OK;
 	}
-	bootstrap_result_free(br);
-	bootstrap_base_free(b);
+	hc_bootstrap_result_free(br);
+	hc_bootstrap_base_free(b);
 	return rc ? cli_fail(d->cmd, &err) : HC_OK;
 }
 
@@ -572,7 +572,7 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 		return rc;
 	e->ps = ps;
 	e->matrix = path;
-	rc = moments_from_matrix(&mo, cm->a, cm->m, &err);
+	rc = hc_moments_from_matrix(&mo, cm->a, cm->m, &err);
 	if (rc) {
 		hc_error_prefix(&err, path);
 		rc = cli_fail("enough", &err);
@@ -587,7 +587,7 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
-	rc = rules_evaluate(cfg, &in, res, nres, &err);
+	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
 	if (rc) {
 		rc = cli_fail("enough", &err);
 		goto cleanup;
@@ -595,7 +595,7 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 	if (cfg->selected & RULES_FLAG(RULES_BAND))
 		rc = run_sampled(&d, NULL, cm, cfg, e->cbar, e->ppy, e, res, *nres);
 cleanup:
-	covmatrix_free(cm);
+	hc_covmatrix_free(cm);
 	return rc;
 }
 
@@ -623,7 +623,7 @@ static int run_data(const struct data_run *d, const struct universe *u, const st
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
 	hc_error_clear(&err);
-	rc = rules_evaluate(cfg, &in, res, nres, &err);
+	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
 	if (rc)
 		return cli_fail(d->cmd, &err);
 	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
@@ -706,13 +706,13 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 				      CLI_PSD_HINT, ps, &cm)))
 		return rc;
 	hc_error_clear(&err);
-	rc = ps->repaired ? moments_from_matrix(&mo, cm->a, cm->m, &err) : moments_from_universe(&mo, *up, &err);
+	rc = ps->repaired ? hc_moments_from_matrix(&mo, cm->a, cm->m, &err) : hc_moments_from_universe(&mo, *up, &err);
 	if (rc)
 		rc = cli_fail("enough", &err);
 	else
 		rc = enough_data(&d, *up, (cfg->selected & RULES_FLAG(RULES_BAND)) ? cm : NULL, ps, &mo, cfg,
 				 res, nres, out);
-	covmatrix_free(cm);
+	hc_covmatrix_free(cm);
 	return rc;
 }
 
@@ -776,9 +776,9 @@ int cmd_enough(int argc, char **argv)
 	if (rc == HC_OK)
 		rc = cli_write_report("enough", &o.out, r);
 cleanup:
-	report_free(r);
+	hc_report_free(r);
 	cli_strata_release(&o.strat);
-	universe_free(u);
+	hc_universe_free(u);
 	cli_args_release(&a);
 	return rc;
 }

@@ -93,17 +93,17 @@ static int build(struct report *r, const struct moments *mo, const struct curve 
 	double p = c->periods_per_year;
 	struct report_table *t;
 
-	if (report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p, REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "average_correlation", "average correlation (implied)",
+	if (hc_report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(r, "average_correlation", "average correlation (implied)",
 			    mo->average_covariance / mo->average_variance, REPORT_STYLE_FIXED4) ||
-	    (mo->m ? report_add_int(r, "securities", "securities", (long long)mo->m)
-		   : report_add_none(r, "securities", "securities")) ||
-	    report_add_text(r, "universe", "universe", mo->m ? "finite" : "unbounded") ||
+	    (mo->m ? hc_report_add_int(r, "securities", "securities", (long long)mo->m)
+		   : hc_report_add_none(r, "securities", "securities")) ||
+	    hc_report_add_text(r, "universe", "universe", mo->m ? "finite" : "unbounded") ||
 	    cli_add_scale(r, p, annualised) ||
-	    report_add_real(r, "floor_variance", "floor variance", c->floor_variance, REPORT_STYLE_PLAIN) ||
-	    report_add_real(r, "floor_sd", "floor sd", c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, sd_style) ||
-	    report_add_real(r, "universe_sd", "equal-weight universe sd",
+	    hc_report_add_real(r, "floor_variance", "floor variance", c->floor_variance, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(r, "floor_sd", "floor sd", c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, sd_style) ||
+	    hc_report_add_real(r, "universe_sd", "equal-weight universe sd",
 			    mo->m ? sqrt(c->universe_variance) : NAN, sd_style))
 		return HC_ENOMEM;
 	if (cli_curve_table(r, c, annualised))
@@ -111,7 +111,7 @@ static int build(struct report *r, const struct moments *mo, const struct curve 
 	t = r->tables[r->ntables - 1];
 	if (plain)
 		plain_styles(t);
-	return report_add_cautions(r);
+	return hc_report_add_cautions(r);
 }
 
 int cmd_formula(int argc, char **argv)
@@ -143,7 +143,7 @@ int cmd_formula(int argc, char **argv)
 	}
 	if (annualised)
 		p = o.periods_per_year;
-	rc = moments_from_summary(&mo, vbar, cbar, o.sum.securities, &err);
+	rc = hc_moments_from_summary(&mo, vbar, cbar, o.sum.securities, &err);
 	if (rc) {
 		rc = cli_fail("formula", &err);
 		goto cleanup;
@@ -151,12 +151,12 @@ int cmd_formula(int argc, char **argv)
 	rc = cli_sizes("formula", o.sizes, o.sum.securities, &sizes, &nsizes);
 	if (rc)
 		goto cleanup;
-	rc = curve_exact(&c, &mo, sizes, nsizes, p, &err);
+	rc = hc_curve_exact(&c, &mo, sizes, nsizes, p, &err);
 	if (rc) {
 		rc = cli_fail("formula", &err);
 		goto cleanup;
 	}
-	r = report_alloc();
+	r = hc_report_alloc();
 	if (!r || build(r, &mo, c, annualised, !annualised && !cli_given(&a, "average-sd"))) {
 		rc = hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("formula", &err);
@@ -164,8 +164,8 @@ int cmd_formula(int argc, char **argv)
 	}
 	rc = cli_write_report("formula", &o.out, r);
 cleanup:
-	report_free(r);
-	curve_free(c);
+	hc_report_free(r);
+	hc_curve_free(c);
 	hc_free(sizes);
 	cli_args_release(&a);
 	return rc;

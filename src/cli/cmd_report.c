@@ -157,21 +157,21 @@ struct run {
 
 static void run_release(struct run *r)
 {
-	report_free(r->rep_universe);
-	report_free(r->rep_curve);
-	report_free(r->rep_enough);
-	report_free(r->rep_audit);
-	report_free(r->rep_plots);
-	report_free(r->rep_rolling);
-	rolling_result_free(r->rolling);
-	universe_free(r->every_security);
-	audit_result_free(r->audit);
-	holdings_labels_free(r->labels);
-	holdings_free(r->h);
+	hc_report_free(r->rep_universe);
+	hc_report_free(r->rep_curve);
+	hc_report_free(r->rep_enough);
+	hc_report_free(r->rep_audit);
+	hc_report_free(r->rep_plots);
+	hc_report_free(r->rep_rolling);
+	hc_rolling_result_free(r->rolling);
+	hc_universe_free(r->every_security);
+	hc_audit_result_free(r->audit);
+	hc_holdings_labels_free(r->labels);
+	hc_holdings_free(r->h);
 	cli_strata_release(&r->strat);
-	curve_free(r->full);
-	curve_free(r->curve);
-	universe_free(r->u);
+	hc_curve_free(r->full);
+	hc_curve_free(r->curve);
+	hc_universe_free(r->u);
 }
 
 /* ---- progress and signals ---------------------------------------------------- */
@@ -192,8 +192,8 @@ static void on_signal(int sig)
 	ssize_t ignored;
 
 	(void)sig;
-	outfile_unlink_pending();
-	reportdir_unlink_pending();
+	hc_outfile_unlink_pending();
+	hc_reportdir_unlink_pending();
 	ignored = write(STDERR_FILENO, msg, sizeof msg - 1);
 	(void)ignored;
 	_exit(HC_EINTERRUPT);
@@ -229,7 +229,7 @@ static int load_every_security(const struct report_opts *o, const char *path, st
 		return rc;
 	uo.missing = UNIVERSE_MISSING_KEEP;
 	hc_error_clear(&err);
-	return universe_load(out, path, &uo, &err) ? cli_fail("report", &err) : HC_OK;
+	return hc_universe_load(out, path, &uo, &err) ? cli_fail("report", &err) : HC_OK;
 }
 
 /* The curve as `holdcount curve` computes and reports it: exact at the
@@ -244,7 +244,7 @@ static int compute_curve(struct run *r)
 	if ((rc = cli_sizes("report", r->o->sam.sizes, r->u->m, &sizes, &nsizes)) != HC_OK)
 		return rc;
 	hc_error_clear(&err);
-	rc = curve_exact(&r->curve, &r->mo, sizes, nsizes, r->u->periods_per_year, &err);
+	rc = hc_curve_exact(&r->curve, &r->mo, sizes, nsizes, r->u->periods_per_year, &err);
 	if (rc == HC_OK && r->o->sam.paths > 0) {
 		cli_stage("report", r->o->quiet, "sampling random portfolios at the curve's counts");
 		rc = cli_curve_sample(&r->o->sam, r->o->quiet, r->u, NULL, r->curve, sizes, nsizes, &err);
@@ -256,7 +256,7 @@ static int compute_curve(struct run *r)
 	for (i = 0; rc == HC_OK && i < r->u->m; i++)
 		sizes[i] = i + 1;
 	if (rc == HC_OK)
-		rc = curve_exact(&r->full, &r->mo, sizes, r->u->m, r->u->periods_per_year, &err);
+		rc = hc_curve_exact(&r->full, &r->mo, sizes, r->u->m, r->u->periods_per_year, &err);
 	hc_free(sizes);
 	if (rc != HC_OK)
 		return cli_fail("report", &err);
@@ -266,9 +266,9 @@ static int compute_curve(struct run *r)
 	src.dropped = r->u->ndropped;
 	src.periods = r->u->t;
 	src.annualised = 1;
-	r->rep_curve = report_alloc();
+	r->rep_curve = hc_report_alloc();
 	if (!r->rep_curve || cli_curve_fields(r->rep_curve, &src, &r->mo, r->curve) ||
-	    cli_strata_fields(r->rep_curve, &r->strat) || report_add_cautions(r->rep_curve)) {
+	    cli_strata_fields(r->rep_curve, &r->strat) || hc_report_add_cautions(r->rep_curve)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		return cli_fail("report", &err);
 	}
@@ -285,7 +285,7 @@ static int compute_rolling(struct run *r)
 	int rc;
 
 	hc_error_clear(&err);
-	rolling_options_init(&ro);
+	hc_rolling_options_init(&ro);
 	ro.window = r->window;
 	ro.step = r->step;
 	ro.rules = r->cfg;
@@ -293,13 +293,13 @@ static int compute_rolling(struct run *r)
 	cli_progress_init(&prog, "windows", "windows", r->o->quiet);
 	ro.progress = cli_progress_update;
 	ro.progress_ctx = &prog;
-	rc = rolling_run(&r->rolling, r->every_security, &ro, &err);
+	rc = hc_rolling_run(&r->rolling, r->every_security, &ro, &err);
 	cli_progress_finish(&prog);
 	if (rc != HC_OK)
 		return cli_fail("report", &err);
-	r->rep_rolling = report_alloc();
-	if (!r->rep_rolling || rolling_report(r->rep_rolling, r->rolling, &err) ||
-	    cli_rolling_context(r->rep_rolling, r->rolling) || report_add_cautions(r->rep_rolling)) {
+	r->rep_rolling = hc_report_alloc();
+	if (!r->rep_rolling || hc_rolling_report(r->rep_rolling, r->rolling, &err) ||
+	    cli_rolling_context(r->rep_rolling, r->rolling) || hc_report_add_cautions(r->rep_rolling)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the rolling report");
 		return cli_fail("report", &err);
 	}
@@ -313,7 +313,7 @@ static int compute(struct run *r)
 
 	stage(r->o, "exact curve");
 	hc_error_clear(&err);
-	if (moments_from_universe(&r->mo, r->u, &err) != HC_OK)
+	if (hc_moments_from_universe(&r->mo, r->u, &err) != HC_OK)
 		return cli_fail("report", &err);
 	if ((rc = compute_curve(r)) != HC_OK)
 		return rc;
@@ -336,80 +336,80 @@ static int compute(struct run *r)
 
 static int build_universe(struct run *r)
 {
-	struct report *rep = r->rep_universe = report_alloc();
+	struct report *rep = r->rep_universe = hc_report_alloc();
 	char first[16], last[16];
 	struct report_table *t;
 	size_t i;
 
 	if (!rep)
 		return HC_ENOMEM;
-	universe_format_date(r->u->dates[0], first);
-	universe_format_date(r->u->dates[r->u->t - 1], last);
-	if (report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
-	    report_add_int(rep, "securities_read", "securities read", (long long)r->u->m_read) ||
-	    report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
-	    report_add_int(rep, "securities_dropped", "securities dropped", (long long)r->u->ndropped) ||
-	    report_add_int(rep, "periods", "periods", (long long)r->u->t) ||
-	    report_add_text(rep, "first_date", "first period", first) ||
-	    report_add_text(rep, "last_date", "last period", last) ||
+	hc_universe_format_date(r->u->dates[0], first);
+	hc_universe_format_date(r->u->dates[r->u->t - 1], last);
+	if (hc_report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
+	    hc_report_add_int(rep, "securities_read", "securities read", (long long)r->u->m_read) ||
+	    hc_report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
+	    hc_report_add_int(rep, "securities_dropped", "securities dropped", (long long)r->u->ndropped) ||
+	    hc_report_add_int(rep, "periods", "periods", (long long)r->u->t) ||
+	    hc_report_add_text(rep, "first_date", "first period", first) ||
+	    hc_report_add_text(rep, "last_date", "last period", last) ||
 	    cli_add_scale(rep, r->u->periods_per_year, 1) ||
-	    report_add_bool(rep, "periods_detected", "periods per year detected from the dates",
+	    hc_report_add_bool(rep, "periods_detected", "periods per year detected from the dates",
 			    r->u->periods_detected) ||
-	    report_add_real(rep, "average_variance", "average variance", r->mo.average_variance * r->u->periods_per_year,
+	    hc_report_add_real(rep, "average_variance", "average variance", r->mo.average_variance * r->u->periods_per_year,
 			    REPORT_STYLE_FIXED4) ||
-	    report_add_real(rep, "average_covariance", "average covariance",
+	    hc_report_add_real(rep, "average_covariance", "average covariance",
 			    r->mo.average_covariance * r->u->periods_per_year, REPORT_STYLE_FIXED4) ||
-	    report_add_real(rep, "average_correlation", "average correlation",
+	    hc_report_add_real(rep, "average_correlation", "average correlation",
 			    r->mo.has_correlation ? r->mo.average_correlation : NAN, REPORT_STYLE_FIXED4) ||
-	    report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
+	    hc_report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
 			    r->curve->floor_variance >= 0 ? sqrt(r->curve->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
-	    report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
+	    hc_report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
 			    REPORT_STYLE_PERCENT))
 		return HC_ENOMEM;
 	if (r->u->ndropped) {
-		t = report_add_table(rep, "dropped", "securities dropped");
-		if (!t || report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
-		    report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
+		t = hc_report_add_table(rep, "dropped", "securities dropped");
+		if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+		    hc_report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
 			return HC_ENOMEM;
 		for (i = 0; i < r->u->ndropped; i++)
-			if (report_table_add_row(t) || report_table_set_text(t, i, 0, r->u->dropped[i].id) ||
-			    report_table_set_text(t, i, 1, r->u->dropped[i].reason))
+			if (hc_report_table_add_row(t) || hc_report_table_set_text(t, i, 0, r->u->dropped[i].id) ||
+			    hc_report_table_set_text(t, i, 1, r->u->dropped[i].reason))
 				return HC_ENOMEM;
 	}
-	return report_add_cautions(rep);
+	return hc_report_add_cautions(rep);
 }
 
 static int build_plots_report(struct run *r, const struct plots_input *pin, const unsigned char *made)
 {
-	struct report *rep = r->rep_plots = report_alloc();
+	struct report *rep = r->rep_plots = hc_report_alloc();
 	struct report_table *t;
 	char name[REPORTDIR_NAME_MAX], cap[1024];
 	size_t row;
 	int k;
 
-	if (!rep || report_add_text(rep, "format", "plot format", plots_format_name(r->o->plot_format)) ||
-	    report_add_bool(rep, "rendered", "rendered with gnuplot", r->rendered))
+	if (!rep || hc_report_add_text(rep, "format", "plot format", hc_plots_format_name(r->o->plot_format)) ||
+	    hc_report_add_bool(rep, "rendered", "rendered with gnuplot", r->rendered))
 		return HC_ENOMEM;
-	t = report_add_table(rep, "plots", "plots");
-	if (!t || report_table_add_column(t, "name", "plot", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "title", "title", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "script", "script", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "image", "image", REPORT_STYLE_PLAIN) ||
-	    report_table_add_column(t, "caption", "caption", REPORT_STYLE_PLAIN))
+	t = hc_report_add_table(rep, "plots", "plots");
+	if (!t || hc_report_table_add_column(t, "name", "plot", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "title", "title", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "script", "script", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "image", "image", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "caption", "caption", REPORT_STYLE_PLAIN))
 		return HC_ENOMEM;
 	for (k = 0; k < PLOTS_NKINDS; k++) {
 		if (!made[k])
 			continue;
-		if (report_table_add_row(t))
+		if (hc_report_table_add_row(t))
 			return HC_ENOMEM;
 		row = t->nrows - 1;
-		snprintf(name, sizeof name, "%s.gp", plots_name(k));
-		if (report_table_set_text(t, row, 0, plots_name(k)) || report_table_set_text(t, row, 1, plots_title(k)) ||
-		    report_table_set_text(t, row, 2, name) ||
-		    report_table_set_text(t, row, 4, plots_caption(k, pin, cap, sizeof cap)))
+		snprintf(name, sizeof name, "%s.gp", hc_plots_name(k));
+		if (hc_report_table_set_text(t, row, 0, hc_plots_name(k)) || hc_report_table_set_text(t, row, 1, hc_plots_title(k)) ||
+		    hc_report_table_set_text(t, row, 2, name) ||
+		    hc_report_table_set_text(t, row, 4, hc_plots_caption(k, pin, cap, sizeof cap)))
 			return HC_ENOMEM;
-		snprintf(name, sizeof name, "%s.%s", plots_name(k), plots_format_name(r->o->plot_format));
-		if (r->rendered && report_table_set_text(t, row, 3, name))
+		snprintf(name, sizeof name, "%s.%s", hc_plots_name(k), hc_plots_format_name(r->o->plot_format));
+		if (r->rendered && hc_report_table_set_text(t, row, 3, name))
 			return HC_ENOMEM;
 	}
 	return HC_OK;
@@ -423,17 +423,17 @@ static int write_report_file(struct reportdir *rd, const char *name, const struc
 	FILE *fp;
 	int rc;
 
-	if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
+	if ((rc = hc_reportdir_open(rd, name, &fp, err)) != HC_OK)
 		return rc;
 	rc = w->write(fp, rep, err);
 	if (rc != HC_OK) {
 		fclose(fp);
 		return rc;
 	}
-	return reportdir_close(rd, fp, name, err);
+	return hc_reportdir_close(rd, fp, name, err);
 }
 
-/* One table of rep as CSV (report_write_csv_part), as `holdcount audit
+/* One table of rep as CSV (hc_report_write_csv_part), as `holdcount audit
  * --table KEY --format csv` prints it. */
 static int write_part_file(struct reportdir *rd, const char *name, const struct report *rep, const char *table,
 			   struct hc_error *err)
@@ -441,14 +441,14 @@ static int write_part_file(struct reportdir *rd, const char *name, const struct 
 	FILE *fp;
 	int rc;
 
-	if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
+	if ((rc = hc_reportdir_open(rd, name, &fp, err)) != HC_OK)
 		return rc;
-	rc = report_write_csv_part(fp, rep, table, err);
+	rc = hc_report_write_csv_part(fp, rep, table, err);
 	if (rc != HC_OK) {
 		fclose(fp);
 		return rc;
 	}
-	return reportdir_close(rd, fp, name, err);
+	return hc_reportdir_close(rd, fp, name, err);
 }
 
 /* One report's JSON object, without its trailing newline, into fp. */
@@ -467,7 +467,7 @@ static int json_member(FILE *fp, const char *key, const struct report *rep, int 
 	mem = open_memstream(&buf, &len);
 	if (!mem)
 		return hc_error(err, HC_ENOMEM, "out of memory writing summary.json");
-	rc = report_writer_json->write(mem, rep, err);
+	rc = hc_report_writer_json->write(mem, rep, err);
 	if (fclose(mem) != 0 && rc == HC_OK)
 		rc = hc_error(err, HC_ENOMEM, "out of memory writing summary.json");
 	if (rc == HC_OK) {
@@ -485,7 +485,7 @@ static int write_json(struct reportdir *rd, struct run *r, struct hc_error *err)
 	FILE *fp;
 	int rc;
 
-	if ((rc = reportdir_open(rd, "summary.json", &fp, err)) != HC_OK)
+	if ((rc = hc_reportdir_open(rd, "summary.json", &fp, err)) != HC_OK)
 		return rc;
 	fprintf(fp, "{\n  \"holdcount_version\": \"%s\",\n", HOLDCOUNT_VERSION);
 	rc = json_member(fp, "universe", r->rep_universe, 0, err);
@@ -499,7 +499,7 @@ static int write_json(struct reportdir *rd, struct run *r, struct hc_error *err)
 		fclose(fp);
 		return rc;
 	}
-	return reportdir_close(rd, fp, "summary.json", err);
+	return hc_reportdir_close(rd, fp, "summary.json", err);
 }
 
 /* ---- summary.md ------------------------------------------------------------------------ */
@@ -552,7 +552,7 @@ static void md_value(FILE *fp, const struct report_value *v, int style)
 	case REPORT_BOOL:
 		fputs(v->integer ? "yes" : "no", fp);
 		break;
-	default:   /* no value, or its reason (report_table_set_none) */
+	default:   /* no value, or its reason (hc_report_table_set_none) */
 		for (s = v->text ? v->text : "-"; *s; s++)
 			fputs(*s == '|' ? "\\|" : (char[2]){ *s == '\n' ? ' ' : *s, 0 }, fp);
 	}
@@ -742,7 +742,7 @@ static void md_rules(FILE *fp, const struct run *r)
 			"that at least that share of the replicates needed or fewer, so always a whole number of "
 			"holdings. \"not met\" in an interval means the percentile falls among replicates that never "
 			"meet the rule.%s\n\n",
-			bootstrap_kind_name(r->o->rul.bootstrap_kind), r->o->rul.bootstrap,
+			hc_bootstrap_kind_name(r->o->rul.bootstrap_kind), r->o->rul.bootstrap,
 			sampled && !r->o->rul.bootstrap_sampled
 			? " The sampled rules (band, shortfall) are drawn from random portfolios and have no interval "
 			  "here: `--bootstrap-sampled` gives them one, at some cost in time." : "");
@@ -848,10 +848,10 @@ static void md_plots(FILE *fp, const struct run *r, const struct plots_input *pi
 		if (!made[k])
 			continue;
 		if (r->rendered && r->o->plot_format != PLOTS_PDF)
-			fprintf(fp, "![%s](%s.%s)\n\n", plots_title(k), plots_name(k), plots_format_name(r->o->plot_format));
+			fprintf(fp, "![%s](%s.%s)\n\n", hc_plots_title(k), hc_plots_name(k), hc_plots_format_name(r->o->plot_format));
 		else if (r->rendered)
-			fprintf(fp, "[%s](%s.pdf)\n\n", plots_title(k), plots_name(k));
-		fprintf(fp, "*%s* (`%s.gp`)\n\n", plots_caption(k, pin, cap, sizeof cap), plots_name(k));
+			fprintf(fp, "[%s](%s.pdf)\n\n", hc_plots_title(k), hc_plots_name(k));
+		fprintf(fp, "*%s* (`%s.gp`)\n\n", hc_plots_caption(k, pin, cap, sizeof cap), hc_plots_name(k));
 	}
 	if (!r->rendered)
 		fputs("gnuplot was not found on the PATH, so the plots are scripts only. To render them, install "
@@ -869,7 +869,7 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 	size_t i;
 	int rc;
 
-	if ((rc = reportdir_open(rd, "summary.md", &fp, err)) != HC_OK)
+	if ((rc = hc_reportdir_open(rd, "summary.md", &fp, err)) != HC_OK)
 		return rc;
 	gmtime_r(&now, &tm);
 	strftime(date, sizeof date, "%Y-%m-%d", &tm);
@@ -898,7 +898,7 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 	if (r->rep_rolling)
 		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
 	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
-	return reportdir_close(rd, fp, "summary.md", err);
+	return hc_reportdir_close(rd, fp, "summary.md", err);
 }
 
 /* ---- plots ----------------------------------------------------------------------------- */
@@ -912,35 +912,35 @@ static int write_plots(struct reportdir *rd, struct run *r, struct plots_input *
 	int k, rc;
 
 	for (k = 0; k < PLOTS_NKINDS; k++) {
-		made[k] = (unsigned char)plots_available(k, pin);
+		made[k] = (unsigned char)hc_plots_available(k, pin);
 		if (made[k])
-			need |= plots_data_used(k);
+			need |= hc_plots_data_used(k);
 	}
 	for (k = 0; k < PLOTS_NDATA; k++) {
 		if (!(need & (1u << k)) || (k == PLOTS_DATA_SAMPLED && !pin->sampled))
 			continue;
-		if ((rc = reportdir_open(rd, plots_data_name(k), &fp, err)) != HC_OK)
+		if ((rc = hc_reportdir_open(rd, hc_plots_data_name(k), &fp, err)) != HC_OK)
 			return rc;
-		rc = plots_write_data(fp, k, pin, err);
+		rc = hc_plots_write_data(fp, k, pin, err);
 		if (rc != HC_OK) {
 			fclose(fp);
 			return rc;
 		}
-		if ((rc = reportdir_close(rd, fp, plots_data_name(k), err)) != HC_OK)
+		if ((rc = hc_reportdir_close(rd, fp, hc_plots_data_name(k), err)) != HC_OK)
 			return rc;
 	}
 	for (k = 0; k < PLOTS_NKINDS; k++) {
 		if (!made[k])
 			continue;
-		snprintf(name, sizeof name, "%s.gp", plots_name(k));
-		if ((rc = reportdir_open(rd, name, &fp, err)) != HC_OK)
+		snprintf(name, sizeof name, "%s.gp", hc_plots_name(k));
+		if ((rc = hc_reportdir_open(rd, name, &fp, err)) != HC_OK)
 			return rc;
-		rc = plots_write_script(fp, k, pin, r->o->plot_format, err);
+		rc = hc_plots_write_script(fp, k, pin, r->o->plot_format, err);
 		if (rc != HC_OK) {
 			fclose(fp);
 			return rc;
 		}
-		if ((rc = reportdir_close(rd, fp, name, err)) != HC_OK)
+		if ((rc = hc_reportdir_close(rd, fp, name, err)) != HC_OK)
 			return rc;
 	}
 	return HC_OK;
@@ -956,14 +956,14 @@ static int render_plots(struct reportdir *rd, struct run *r, const unsigned char
 	for (k = 0; k < PLOTS_NKINDS; k++) {
 		if (!made[k])
 			continue;
-		snprintf(script, sizeof script, "%s.gp", plots_name(k));
-		snprintf(image, sizeof image, "%s.%s", plots_name(k), plots_format_name(r->o->plot_format));
+		snprintf(script, sizeof script, "%s.gp", hc_plots_name(k));
+		snprintf(image, sizeof image, "%s.%s", hc_plots_name(k), hc_plots_format_name(r->o->plot_format));
 		snprintf(line, sizeof line, "rendering %s (%d of %d)", image, ++done, total);
 		stage(r->o, line);
-		if ((rc = reportdir_expect(rd, image, err)) != HC_OK ||
-		    (rc = plots_render(r->gnuplot, reportdir_tmp_path(rd), script, err)) != HC_OK)
+		if ((rc = hc_reportdir_expect(rd, image, err)) != HC_OK ||
+		    (rc = hc_plots_render(r->gnuplot, hc_reportdir_tmp_path(rd), script, err)) != HC_OK)
 			return rc;
-		if (!reportdir_has(rd, image))
+		if (!hc_reportdir_has(rd, image))
 			return hc_error(err, HC_EINTERNAL, "gnuplot ran on '%s' but wrote no '%s'", script, image);
 	}
 	return HC_OK;
@@ -974,7 +974,7 @@ static int write_render_note(struct reportdir *rd, struct hc_error *err)
 	FILE *fp;
 	int rc;
 
-	if ((rc = reportdir_open(rd, "README-plots.txt", &fp, err)) != HC_OK)
+	if ((rc = hc_reportdir_open(rd, "README-plots.txt", &fp, err)) != HC_OK)
 		return rc;
 	fputs("The plots in this folder are gnuplot scripts (*.gp) with their data (*.dat).\n"
 	      "gnuplot was not on the PATH when the report was written, so they were not rendered.\n\n"
@@ -983,7 +983,7 @@ static int write_render_note(struct reportdir *rd, struct hc_error *err)
 	      "and likewise for each .gp file (for f in *.gp; do gnuplot \"$f\"; done).\n"
 	      "Each script writes an image of the same name next to it; the format was chosen with\n"
 	      "--plot-format when the report was written (edit the 'set terminal' lines to change it).\n", fp);
-	return reportdir_close(rd, fp, "README-plots.txt", err);
+	return hc_reportdir_close(rd, fp, "README-plots.txt", err);
 }
 
 static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *err)
@@ -1002,30 +1002,30 @@ static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *er
 	pin.rolling = r->rolling;
 	pin.universe_name = r->u->source ? (strrchr(r->u->source, '/') ? strrchr(r->u->source, '/') + 1 : r->u->source)
 					 : NULL;
-	r->rendered = plots_find_gnuplot(NULL, r->gnuplot, sizeof r->gnuplot);
+	r->rendered = hc_plots_find_gnuplot(NULL, r->gnuplot, sizeof r->gnuplot);
 	rc = write_plots(rd, r, &pin, made, err);
 	if (rc == HC_OK)
 		rc = r->rendered ? render_plots(rd, r, made, err) : write_render_note(rd, err);
 	if (rc == HC_OK && (rc = build_plots_report(r, &pin, made)) != HC_OK)
 		rc = hc_error(err, rc, "out of memory building the report");
 	if (rc == HC_OK)
-		rc = write_report_file(rd, "curve.csv", r->rep_curve, report_writer_csv, err);
+		rc = write_report_file(rd, "curve.csv", r->rep_curve, hc_report_writer_csv, err);
 	if (rc == HC_OK)
-		rc = write_report_file(rd, "enough.csv", r->rep_enough, report_writer_csv, err);
+		rc = write_report_file(rd, "enough.csv", r->rep_enough, hc_report_writer_csv, err);
 	if (rc == HC_OK && r->rep_audit)
-		rc = write_report_file(rd, "audit.csv", r->rep_audit, report_writer_csv, err);
+		rc = write_report_file(rd, "audit.csv", r->rep_audit, hc_report_writer_csv, err);
 	if (rc == HC_OK && r->rep_audit)
 		rc = write_part_file(rd, "audit-screens.csv", r->rep_audit, "screens", err);
-	if (rc == HC_OK && r->rep_audit && report_find_table(r->rep_audit, "sectors"))
+	if (rc == HC_OK && r->rep_audit && hc_report_find_table(r->rep_audit, "sectors"))
 		rc = write_part_file(rd, "audit-sectors.csv", r->rep_audit, "sectors", err);
 	if (rc == HC_OK && r->rep_rolling)
-		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, report_writer_csv, err);
+		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, hc_report_writer_csv, err);
 	if (rc == HC_OK)
 		rc = write_json(rd, r, err);
 	if (rc == HC_OK)
 		rc = write_markdown(rd, r, &pin, made, err);
 	if (rc == HC_OK)
-		rc = reportdir_commit(rd, err);
+		rc = hc_reportdir_commit(rd, err);
 	return rc;
 }
 
@@ -1134,7 +1134,7 @@ int cmd_report(int argc, char **argv)
 	install_signals();
 	/* the folder first: an existing DIR is refused before any work, and
 	 * the temporary folder shows that a run is under way */
-	if ((rc = reportdir_begin(&rd, o.output, o.force, &stale, &err)) != HC_OK) {
+	if ((rc = hc_reportdir_begin(&rd, o.output, o.force, &stale, &err)) != HC_OK) {
 		rc = cli_fail("report", &err);
 		goto cleanup;
 	}
@@ -1166,7 +1166,7 @@ int cmd_report(int argc, char **argv)
 		rc = HC_EPOLICY;
 	}
 cleanup:
-	reportdir_free(rd);
+	hc_reportdir_free(rd);
 	run_release(&r);
 	cli_args_release(&a);
 	return rc;

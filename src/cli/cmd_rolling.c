@@ -99,7 +99,7 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	/* Every security as read: each window applies the policy itself. */
 	uo.missing = UNIVERSE_MISSING_KEEP;
 	hc_error_clear(&err);
-	rc = universe_load(u, path, &uo, &err);
+	rc = hc_universe_load(u, path, &uo, &err);
 	return rc ? cli_fail("rolling", &err) : HC_OK;
 }
 
@@ -109,7 +109,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 	struct hc_error err;
 	unsigned mask;
 
-	rolling_options_init(ro);
+	hc_rolling_options_init(ro);
 	hc_error_clear(&err);
 	ro->window = o->window;
 	ro->step = o->step;
@@ -118,7 +118,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 							     : UNIVERSE_MISSING_COMPLETE;
 	ro->min_coverage = o->uni.min_coverage;
 	if (o->rules) {
-		if (rules_parse_list(o->rules, &mask, &err))
+		if (hc_rules_parse_list(o->rules, &mask, &err))
 			return cli_fail("rolling", &err);
 		if (mask & ~RULES_EXACT_MASK)
 			return cli_usage_error("rolling", "--rules: rolling windows evaluate the exact rules "
@@ -138,7 +138,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 	ro->rules.holding_cost = o->holding_cost;
 	ro->rules.cost_defaults = !cli_given(a, "premium") && !cli_given(a, "holding-cost");
 	ro->rules.te_budget = o->te_budget;
-	if (rules_config_check(&ro->rules, &err))
+	if (hc_rules_config_check(&ro->rules, &err))
 		return cli_fail("rolling", &err);
 	ro->replicates = o->bootstrap;
 	ro->boot.kind = o->bootstrap_kind;
@@ -165,9 +165,9 @@ int cli_rolling_context(struct report *r, const struct rolling_result *res)
 			if (*p == '-')
 				*p = '_';
 		snprintf(title, sizeof title, "%s parameters", rr->name);
-		rc |= report_add_text(r, key, title, rr->parameters);
+		rc |= hc_report_add_text(r, key, title, rr->parameters);
 	}
-	rc |= report_add_note(r, "each window's figures come from that window's periods alone; "
+	rc |= hc_report_add_note(r, "each window's figures come from that window's periods alone; "
 			      "averages drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, "
 			      "Journal of Finance 56(1)), so a count set once is worth revisiting");
 	return rc;
@@ -205,14 +205,14 @@ int cmd_rolling(int argc, char **argv)
 	cli_progress_init(&prog, "windows", "windows", o.out.quiet);
 	ro.progress = cli_progress_update;
 	ro.progress_ctx = &prog;
-	rc = rolling_run(&res, u, &ro, &err);
+	rc = hc_rolling_run(&res, u, &ro, &err);
 	cli_progress_finish(&prog);
 	if (rc) {
 		rc = cli_fail("rolling", &err);
 		goto cleanup;
 	}
-	r = report_alloc();
-	if (!r || rolling_report(r, res, &err) || cli_rolling_context(r, res) || report_add_cautions(r)) {
+	r = hc_report_alloc();
+	if (!r || hc_rolling_report(r, res, &err) || cli_rolling_context(r, res) || hc_report_add_cautions(r)) {
 		if (!err.code)
 			hc_error(&err, HC_ENOMEM, "out of memory for the report");
 		rc = cli_fail("rolling", &err);
@@ -220,9 +220,9 @@ int cmd_rolling(int argc, char **argv)
 	}
 	rc = cli_write_report("rolling", &o.out, r);
 cleanup:
-	report_free(r);
-	rolling_result_free(res);
-	universe_free(u);
+	hc_report_free(r);
+	hc_rolling_result_free(res);
+	hc_universe_free(u);
 	cli_args_release(&a);
 	return rc;
 }

@@ -104,7 +104,7 @@ static void synth_cli_init(struct synth_cli *c)
 {
 	struct synth_options d;
 
-	synth_options_init(&d);
+	hc_synth_options_init(&d);
 	memset(c, 0, sizeof *c);
 	c->securities = d.securities;
 	c->periods = d.periods;
@@ -129,7 +129,7 @@ static void synth_cli_init(struct synth_cli *c)
 
 static void synth_cli_apply(const struct synth_cli *c, struct synth_options *o)
 {
-	synth_options_init(o);
+	hc_synth_options_init(o);
 	o->securities = c->securities;
 	o->periods = c->periods;
 	o->sectors = c->sectors;
@@ -152,7 +152,7 @@ static void synth_cli_apply(const struct synth_cli *c, struct synth_options *o)
 }
 
 /* Split "A,B,C" into a NULL-terminated array of copies in *out (count in
- * *n).  Empty names are kept so that synth_options_check names them. */
+ * *n).  Empty names are kept so that hc_synth_options_check names them. */
 static int split_names(const char *list, char ***out, size_t *n)
 {
 	size_t k = 1, i = 0;
@@ -201,33 +201,33 @@ static int write_all(const struct synth_cli *c, const struct synth_options *opt,
 	struct synth_model *mo = NULL;
 	int rc;
 
-	if ((rc = outfile_open(&uf, c->output, err)) != HC_OK)
+	if ((rc = hc_outfile_open(&uf, c->output, err)) != HC_OK)
 		return rc;
-	if (c->sectors_output && (rc = outfile_open(&sf, c->sectors_output, err)) != HC_OK)
+	if (c->sectors_output && (rc = hc_outfile_open(&sf, c->sectors_output, err)) != HC_OK)
 		goto fail;
-	if (c->parameters_output && (rc = outfile_open(&pf, c->parameters_output, err)) != HC_OK)
+	if (c->parameters_output && (rc = hc_outfile_open(&pf, c->parameters_output, err)) != HC_OK)
 		goto fail;
-	if ((rc = synth_write(opt, uf.fp, sf.fp, nfloored, err)) != HC_OK)
+	if ((rc = hc_synth_write(opt, uf.fp, sf.fp, nfloored, err)) != HC_OK)
 		goto fail;
 	if (pf.fp) {
-		if ((rc = synth_model_alloc(&mo, opt, err)) != HC_OK ||
-		    (rc = synth_write_parameters(mo, pf.fp, err)) != HC_OK)
+		if ((rc = hc_synth_model_alloc(&mo, opt, err)) != HC_OK ||
+		    (rc = hc_synth_write_parameters(mo, pf.fp, err)) != HC_OK)
 			goto fail;
 	}
-	if ((rc = outfile_commit(&uf, err)) != HC_OK ||
-	    (sf.fp && (rc = outfile_commit(&sf, err)) != HC_OK) ||
-	    (pf.fp && (rc = outfile_commit(&pf, err)) != HC_OK))
+	if ((rc = hc_outfile_commit(&uf, err)) != HC_OK ||
+	    (sf.fp && (rc = hc_outfile_commit(&sf, err)) != HC_OK) ||
+	    (pf.fp && (rc = hc_outfile_commit(&pf, err)) != HC_OK))
 		goto fail;
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 	return HC_OK;
 fail:
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 	if (uf.fp)
-		outfile_abort(&uf);
+		hc_outfile_abort(&uf);
 	if (sf.fp)
-		outfile_abort(&sf);
+		hc_outfile_abort(&sf);
 	if (pf.fp)
-		outfile_abort(&pf);
+		hc_outfile_abort(&pf);
 	return rc;
 }
 
@@ -240,13 +240,13 @@ static void print_summary(const struct synth_cli *c, const struct synth_options 
 	struct hc_error err;
 	double p;
 
-	if (synth_truth_expected(opt, &te, &err) != HC_OK || synth_model_alloc(&mo, opt, &err) != HC_OK)
+	if (hc_synth_truth_expected(opt, &te, &err) != HC_OK || hc_synth_model_alloc(&mo, opt, &err) != HC_OK)
 		return;
-	if (synth_truth_model(mo, NULL, 0, &tm, &err) != HC_OK) {
-		synth_model_free(mo);
+	if (hc_synth_truth_model(mo, NULL, 0, &tm, &err) != HC_OK) {
+		hc_synth_model_free(mo);
 		return;
 	}
-	synth_model_free(mo);
+	hc_synth_model_free(mo);
 	p = te.periods_per_year;
 	fprintf(stderr, "holdcount synth: wrote %zu securities over %zu %s periods to %s\n"
 		"  true average variance %.6g and average covariance %.6g a year for the drawn parameters\n"
@@ -289,7 +289,7 @@ int cmd_synth(int argc, char **argv)
 		}
 		opt.sector_names = (const char *const *)names;
 	}
-	if ((rc = synth_options_check(&opt, &err)) != HC_OK) {
+	if ((rc = hc_synth_options_check(&opt, &err)) != HC_OK) {
 		rc = cli_usage_error("synth", "%s", err.message);
 		goto cleanup;
 	}

@@ -68,7 +68,7 @@ int main(int argc, char **argv)
 	gsl_set_error_handler_off();
 	/* No threaded BLAS here: OpenBLAS's idle workers would spin on the
 	 * cores the sampler's threads need. */
-	moments_blas_serial();
+	hc_moments_blas_serial();
 	cli_install_signal_handlers();
 	if (argc < 2) {
 		cli_print_main_help(stderr);

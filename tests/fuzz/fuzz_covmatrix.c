@@ -1,5 +1,5 @@
 /*
- * fuzz_covmatrix.c - libFuzzer target for covmatrix_load_buffer.
+ * fuzz_covmatrix.c - libFuzzer target for hc_covmatrix_load_buffer.
  * fuzz-needs: covmatrix csvread universe memory error
  *
  * The first byte picks the symmetry tolerance (exact, the default, or a
@@ -25,7 +25,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	if (size < 1)
 		return 0;
 	hc_error_clear(&err);
-	rc = covmatrix_load_buffer(&c, "fuzz.csv", (const char *)data + 1, size - 1, tols[data[0] & 3], &err);
+	rc = hc_covmatrix_load_buffer(&c, "fuzz.csv", (const char *)data + 1, size - 1, tols[data[0] & 3], &err);
 	if (rc == HC_OK) {
 		if (!c || c->m < 2 || !c->ids || !c->a)
 			__builtin_trap();
@@ -39,6 +39,6 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	} else if (c || rc < HC_EUSAGE || rc > HC_EINTERNAL || err.code != rc || !err.message[0]) {
 		__builtin_trap();
 	}
-	covmatrix_free(c);
+	hc_covmatrix_free(c);
 	return 0;
 }

@@ -1,5 +1,5 @@
 /*
- * fuzz_csvread.c - libFuzzer target for csvread_buffer and its cell helpers.
+ * fuzz_csvread.c - libFuzzer target for hc_csvread_buffer and its cell helpers.
  * fuzz-needs: csvread memory error
  *
  * The first byte picks the options (delimiter: detect, ',' or ';'; a small
@@ -39,9 +39,9 @@ static int on_field(void *ctx, const struct csvread_field *f, struct hc_error *e
 		st->last_column = 0;
 	st->last_record = f->record;
 	st->last_column = f->column;
-	(void)csvread_utf8_valid(f->text, f->len);
-	(void)csvread_is_missing(f->text, f->len);
-	if (csvread_parse_number(f->text, f->len, &v, &pct) == 0 && (v != v || v - v != 0))
+	(void)hc_csvread_utf8_valid(f->text, f->len);
+	(void)hc_csvread_is_missing(f->text, f->len);
+	if (hc_csvread_parse_number(f->text, f->len, &v, &pct) == 0 && (v != v || v - v != 0))
 		__builtin_trap(); /* the contract: no NaN, no infinity */
 	return HC_OK;
 }
@@ -65,7 +65,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 
 	if (size < 1)
 		return 0;
-	csvread_options_init(&opt);
+	hc_csvread_options_init(&opt);
 	opt.delimiter = delims[data[0] & 3];
 	opt.max_field = (data[0] & 4) ? 16 : 0;
 	st.max_field = opt.max_field ? opt.max_field : CSVREAD_DEFAULT_MAX_FIELD;
@@ -73,7 +73,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	h.record = on_record;
 	h.ctx = &st;
 	hc_error_clear(&err);
-	rc = csvread_buffer("fuzz.csv", (const char *)data + 1, size - 1, &opt, &h, &used, &err);
+	rc = hc_csvread_buffer("fuzz.csv", (const char *)data + 1, size - 1, &opt, &h, &used, &err);
 	if (rc != HC_OK && (err.message[0] == '\0' || rc != err.code))
 		__builtin_trap(); /* every failure must explain itself */
 	if (rc == HC_OK && used != ',' && used != ';')

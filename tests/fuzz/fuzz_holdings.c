@@ -1,5 +1,5 @@
 /*
- * fuzz_holdings.c - libFuzzer target for holdings_load_buffer.
+ * fuzz_holdings.c - libFuzzer target for hc_holdings_load_buffer.
  * fuzz-needs: holdings csvread memory error
  *
  * The first byte picks the options (short positions allowed or not; a
@@ -52,13 +52,13 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 
 	if (size < 1)
 		return 0;
-	holdings_options_init(&opt);
+	hc_holdings_options_init(&opt);
 	opt.allow_short = data[0] & 1;
 	opt.delimiter = delims[(data[0] >> 1) & 3];
 	if (data[0] & 8)
 		opt.value_column = "value";
 	hc_error_clear(&err);
-	rc = holdings_load_buffer(&h, "fuzz.csv", (const char *)data + 1, size - 1, &opt, &err);
+	rc = hc_holdings_load_buffer(&h, "fuzz.csv", (const char *)data + 1, size - 1, &opt, &err);
 	if (rc == HC_OK) {
 		if (!h || h->nfunds == 0)
 			__builtin_trap();
@@ -70,6 +70,6 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	} else if (h || rc < HC_EUSAGE || rc > HC_EINTERNAL || err.code != rc || !err.message[0]) {
 		__builtin_trap();
 	}
-	holdings_free(h);
+	hc_holdings_free(h);
 	return 0;
 }

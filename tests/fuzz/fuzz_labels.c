@@ -1,10 +1,10 @@
 /*
  * fuzz_labels.c - libFuzzer target for the sector-map loader
- * (holdings_labels_load_buffer: id,label rows).
+ * (hc_holdings_labels_load_buffer: id,label rows).
  * fuzz-needs: holdings csvread memory error
  *
  * The first byte picks the delimiter, the rest is the file.  A loaded map
- * must be sorted by id without duplicates (holdings_labels_find's binary
+ * must be sorted by id without duplicates (hc_holdings_labels_find's binary
  * search depends on it), and every id must be found again.
  */
 #include <stddef.h>
@@ -25,7 +25,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	if (size < 1)
 		return 0;
 	hc_error_clear(&err);
-	rc = holdings_labels_load_buffer(&l, "fuzz.csv", (const char *)data + 1, size - 1,
+	rc = hc_holdings_labels_load_buffer(&l, "fuzz.csv", (const char *)data + 1, size - 1,
 					 delims[data[0] & 3], &err);
 	if (rc == HC_OK) {
 		if (!l)
@@ -35,12 +35,12 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 				__builtin_trap();
 			if (i && strcmp(l->ids[i - 1], l->ids[i]) >= 0)
 				__builtin_trap();
-			if (holdings_labels_find(l, l->ids[i]) != l->labels[i])
+			if (hc_holdings_labels_find(l, l->ids[i]) != l->labels[i])
 				__builtin_trap();
 		}
 	} else if (l || rc < HC_EUSAGE || rc > HC_EINTERNAL || err.code != rc || !err.message[0]) {
 		__builtin_trap();
 	}
-	holdings_labels_free(l);
+	hc_holdings_labels_free(l);
 	return 0;
 }

@@ -1,5 +1,5 @@
 /*
- * fuzz_sizes.c - libFuzzer target for curve_parse_sizes (the --sizes list).
+ * fuzz_sizes.c - libFuzzer target for hc_curve_parse_sizes (the --sizes list).
  * fuzz-needs: curve memory error
  *
  * The first two bytes give the upper bound (0 = none), the rest is the text.
@@ -27,7 +27,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	if (!text)
 		return 0;
 	hc_error_clear(&err);
-	rc = curve_parse_sizes(text, max, &sizes, &n, &err);
+	rc = hc_curve_parse_sizes(text, max, &sizes, &n, &err);
 	if (rc == HC_OK) {
 		if (!sizes || n == 0)
 			__builtin_trap();

@@ -1,5 +1,5 @@
 /*
- * fuzz_universe.c - libFuzzer target for universe_load_buffer.
+ * fuzz_universe.c - libFuzzer target for hc_universe_load_buffer.
  * fuzz-needs: universe csvread memory error
  *
  * The first byte picks the options (wide or long layout; returns, prices or
@@ -42,7 +42,7 @@ static void check_universe(const struct universe *u)
 	for (i = 0; i < u->ndropped; i++)
 		if (!u->dropped[i].id || !u->dropped[i].reason)
 			__builtin_trap();
-	(void)universe_find(u, u->ids[u->m - 1]);
+	(void)hc_universe_find(u, u->ids[u->m - 1]);
 }
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
@@ -55,7 +55,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 
 	if (size < 1)
 		return 0;
-	universe_options_init(&opt);
+	hc_universe_options_init(&opt);
 	opt.layout = (data[0] & 1) ? UNIVERSE_LONG : UNIVERSE_WIDE;
 	opt.values = ((data[0] >> 1) & 3) % 3;
 	opt.percent = (data[0] >> 3) & 1;
@@ -63,7 +63,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	opt.delimiter = delims[(data[0] >> 6) & 3];
 	opt.max_bytes = FUZZ_MAX_BYTES;
 	hc_error_clear(&err);
-	rc = universe_load_buffer(&u, "fuzz.csv", (const char *)data + 1, size - 1, &opt, &err);
+	rc = hc_universe_load_buffer(&u, "fuzz.csv", (const char *)data + 1, size - 1, &opt, &err);
 	if (rc == HC_OK) {
 		if (!u)
 			__builtin_trap();
@@ -72,6 +72,6 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 		if (u || rc < HC_EUSAGE || rc > HC_EINTERNAL || err.code != rc || !err.message[0])
 			__builtin_trap();
 	}
-	universe_free(u);
+	hc_universe_free(u);
 	return 0;
 }

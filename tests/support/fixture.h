@@ -3,7 +3,7 @@
  *
  * Until (and besides) the loader, tests build a struct universe by hand.
  * Everything is allocated with hc_malloc, laid out as universe.h documents
- * (security-major x[i*t + k]), so universe_free can release it too; tests
+ * (security-major x[i*t + k]), so hc_universe_free can release it too; tests
  * that do not link the loader use fixture_free.
  */
 #ifndef HOLDCOUNT_TEST_FIXTURE_H
