@@ -25,7 +25,7 @@ timeit() {   # label args...
 	for ((i = 1; i <= runs; i++)); do
 		rm -rf "$work/out"
 		/usr/bin/time -f "$label: %e s wall, %U s user + %S s system, %M KiB peak" \
-			/usr/bin/env ${run_path:+PATH=$run_path} "$bin" report -q -o "$work/out" "$@" 2>&1 | tail -1
+			/usr/bin/env ${run_path:+PATH=$run_path} "$bin" report -q -o "$work/out" "${@:---demo}" 2>&1 | tail -1
 	done
 }
 echo "load average: $(cut -d' ' -f1-3 /proc/loadavg)"

@@ -4,7 +4,7 @@
 # y range and ticks are set after this by holdcount.
 set title "@TITLE@\n@SUBTITLE@"
 set xlabel "holding count N (log scale; equal weights)"
-set ylabel "expected tracking error (% a year, log scale)"
+set ylabel "tracking error (% a year, log scale)"
 set logscale xy
 set xrange [1:@XMAX@]
 set xtics (@XTICS@)

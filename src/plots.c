@@ -111,8 +111,8 @@ unsigned hc_plots_data_used(int kind)
 #define RISK_LABEL_GAP 5.0
 #define RISK_LABEL_PAD 5.0
 /* Text sizes in points: labels, and the key (the terminal's font). */
-#define LABEL_POINTS 9.0
-#define KEY_POINTS 11.0
+#define LABEL_POINTS 11.0
+#define KEY_POINTS 13.0
 /* Points sampled per pixel along a line, for collision tests. */
 #define LINE_SAMPLES_PER_PX 0.5
 
@@ -380,7 +380,7 @@ static struct plotlayout_rect risk_key_rect(const struct plots_input *in, size_t
 {
 	struct plotlayout_rect r;
 	double w = hc_plotlayout_text_px("floor (sqrt of the average covariance): 99.99% a year", KEY_POINTS) + 75.0;
-	double h = risk_key_entries(in, nmarks) * 1.25 * 17.0 + 12.0;
+	double h = risk_key_entries(in, nmarks) * 1.25 * 20.0 + 12.0;
 
 	r.x1 = FRAME_RIGHT * PLOTS_WIDTH - 2.0;
 	r.x0 = r.x1 - w;
@@ -496,8 +496,8 @@ struct funds_layout {
 #define FUNDS_NAME_MAX 160
 /* Pixels between a marker and a name beside it. */
 #define FUNDS_LABEL_GAP 9.0
-/* Marker half-size in pixels (pointsize 1.3 to 2.2 at the 11-point font). */
-#define FUNDS_MARKER_PX 9.0
+/* Marker half-size in pixels (pointsize 1.3 to 2.2 at the 13-point font). */
+#define FUNDS_MARKER_PX 11.0
 
 static void funds_layout_release(struct funds_layout *F)
 {
@@ -584,7 +584,7 @@ static void funds_yrange(const struct plots_input *in, struct funds_layout *F)
  * the pair, and right of the count marker a line up or down. */
 static size_t funds_candidates(double xc, double xe, double y, double w, struct plotlayout_rect *c, int *right)
 {
-	const double h = PLOTLAYOUT_LINE_PX, g = FUNDS_LABEL_GAP;
+	const double h = PLOTLAYOUT_LINE_PX * LABEL_POINTS / 9.0, g = FUNDS_LABEL_GAP;
 	size_t k = 0;
 
 	c[k] = (struct plotlayout_rect){ xc + g, y - h / 2, xc + g + w, y + h / 2 }, right[k++] = 0;
@@ -605,7 +605,7 @@ static struct plotlayout_rect funds_key_rect(const struct funds_layout *F)
 	r.x1 = FRAME_RIGHT * PLOTS_WIDTH - 2.0;
 	r.x0 = r.x1 - hc_plotlayout_text_px("fund failing the policy, at its number of holdings", KEY_POINTS) - 75.0;
 	r.y1 = FRAME_TOP * PLOTS_HEIGHT - 2.0;
-	r.y0 = r.y1 - entries * 1.25 * 17.0 - 12.0;
+	r.y0 = r.y1 - entries * 1.25 * 20.0 - 12.0;
 	return r;
 }
 
@@ -983,23 +983,33 @@ static void terminal_block(FILE *fp, int format, const char *name)
 {
 	switch (format) {
 	case PLOTS_SVG:
-		fprintf(fp, "set terminal svg size %d,%d dynamic font \"Sans,11\" noenhanced\n", PLOTS_WIDTH,
+		fprintf(fp, "set terminal svg size %d,%d dynamic font \"Sans,13\" noenhanced\n", PLOTS_WIDTH,
 			PLOTS_HEIGHT);
 		break;
 	case PLOTS_PDF:
-		fprintf(fp, "set terminal pdfcairo size %gin,%gin font \"Sans,10\" noenhanced\n", PLOTS_WIDTH / 100.0,
+		fprintf(fp, "set terminal pdfcairo size %gin,%gin font \"Sans,12\" noenhanced\n", PLOTS_WIDTH / 100.0,
 			PLOTS_HEIGHT / 100.0);
 		break;
 	default:
 		/* pngcairo draws smoother lines and text; the libgd png terminal is
 		 * the fallback on builds without cairo. */
 		fprintf(fp, "if (strstrt(GPVAL_TERMINALS, \"pngcairo\") > 0) {\n"
-			"    set terminal pngcairo size %d,%d font \"Sans,11\" noenhanced\n"
+			"    set terminal pngcairo size %d,%d font \"Sans,13\" noenhanced\n"
 			"} else {\n"
 			"    set terminal png size %d,%d noenhanced\n"
 			"}\n", PLOTS_WIDTH, PLOTS_HEIGHT, PLOTS_WIDTH, PLOTS_HEIGHT);
 	}
 	fprintf(fp, "set output \"%s.%s\"\n", name, format_names[format]);
+}
+
+/* The same plot once more as SVG, on the same canvas and fonts, so that
+ * the labels laid out in pixels stay where they were: report.html embeds
+ * it inline (htmlreport.h). */
+static void svg_replot(FILE *fp, const char *name)
+{
+	fprintf(fp, "# the same plot as SVG, for report.html\n"
+		"set terminal svg size %d,%d dynamic font \"Sans,13\" noenhanced\n"
+		"set output \"%s.svg\"\nreplot\n", PLOTS_WIDTH, PLOTS_HEIGHT, name);
 }
 
 /* Log-axis ticks at 1, 2 and 5 times the powers of ten from lo up to hi
@@ -1071,10 +1081,10 @@ static void risk_plot(FILE *fp, int kind, const struct plots_input *in, const st
 			"     'rules.dat' using 1:2 with points ls 5 title \"count a rule recommends\"", h);
 		if (any[0])
 			fprintf(fp, ", \\\n     'rules.dat' using 1:($%d == 0 ? $%d : 1/0):7 with labels left offset "
-				"character 0.5,0.4 font \",9\" textcolor rgb \"#7b2d63\" notitle", side, h);
+				"character 0.5,0.4 font \",11\" textcolor rgb \"#7b2d63\" notitle", side, h);
 		if (any[1])
 			fprintf(fp, ", \\\n     'rules.dat' using 1:($%d == 1 ? $%d : 1/0):7 with labels right offset "
-				"character -0.5,0.4 font \",9\" textcolor rgb \"#7b2d63\" notitle", side, h);
+				"character -0.5,0.4 font \",11\" textcolor rgb \"#7b2d63\" notitle", side, h);
 	}
 	fputc('\n', fp);
 }
@@ -1121,11 +1131,11 @@ static void tracking_plot(FILE *fp, const struct plots_input *in)
 		 * under the budget line is free there; when the name does not fit
 		 * left of the mark, it goes right of it above the line, where the
 		 * curve has fallen below the budget. */
-		if (hc_plotlayout_to_px(&ax, (double)count) - 8.0 - hc_plotlayout_text_px(label, 10.0) > ax.px0)
-			fprintf(fp, "set label \"%s\" at %zu, budget / 1.5 right offset character -0.6,0 font \",10\" "
+		if (hc_plotlayout_to_px(&ax, (double)count) - 8.0 - hc_plotlayout_text_px(label, 12.0) > ax.px0)
+			fprintf(fp, "set label \"%s\" at %zu, budget / 1.5 right offset character -0.6,0 font \",12\" "
 				"textcolor rgb \"#7b2d63\"\n", label, count);
 		else
-			fprintf(fp, "set label \"%s\" at %zu, budget * 1.5 left offset character 0.6,0 font \",10\" "
+			fprintf(fp, "set label \"%s\" at %zu, budget * 1.5 left offset character 0.6,0 font \",12\" "
 				"textcolor rgb \"#7b2d63\"\n", label, count);
 	}
 	/* the error is zero at N = M, which a log axis cannot show */
@@ -1155,10 +1165,91 @@ static void funds_plot(FILE *fp, const struct plots_input *in, const struct fund
 		fputs(", \\\n     'funds.dat' using 1:($4 == 0 ? $3 : 1/0) with points ls 9 title \"fund failing the "
 		      "policy, at its number of holdings\"", fp);
 	if (F->any_left)
-		fputs(", \\\n     'funds.dat' using 5:($7 == 0 ? $6 : 1/0):8 with labels left font \",9\" notitle", fp);
+		fputs(", \\\n     'funds.dat' using 5:($7 == 0 ? $6 : 1/0):8 with labels left font \",11\" notitle", fp);
 	if (F->any_right)
-		fputs(", \\\n     'funds.dat' using 5:($7 == 1 ? $6 : 1/0):8 with labels right font \",9\" notitle", fp);
+		fputs(", \\\n     'funds.dat' using 5:($7 == 1 ? $6 : 1/0):8 with labels right font \",11\" notitle", fp);
 	fputc('\n', fp);
+}
+
+/* The counts drawn on the rolling plot: the smallest and the largest of
+ * every met rule's count in every window with figures. */
+static void rolling_count_range(const struct rolling_result *r, double *lo, double *hi)
+{
+	size_t j, q;
+
+	*lo = INFINITY;
+	*hi = -INFINITY;
+	for (j = 0; j < r->nwindows; j++) {
+		const struct rolling_window *w = &r->windows[j];
+		for (q = 0; w->status == HC_OK && q < w->nrules; q++)
+			if (w->rules[q].defined && w->rules[q].met) {
+				*lo = fmin(*lo, (double)w->rules[q].count);
+				*hi = fmax(*hi, (double)w->rules[q].count);
+			}
+	}
+}
+
+/*
+ * The date axis: ticks a whole number of months apart, chosen by the span
+ * so that there are at most ROLLING_MAX_TICKS of them, each on the first day
+ * of a month and each labelled once ("%Y" when a year or more apart, else
+ * "%Y-%m"); gnuplot's own choice under "%Y" labels a span of a few years
+ * with repeated years ("2020 2020 2021").  Dates are days since 1970-01-01.
+ */
+#define ROLLING_MAX_TICKS 9
+static void rolling_date_axis(FILE *fp, const struct rolling_result *r)
+{
+	static const int steps[] = { 1, 2, 3, 6, 12, 24, 36, 60, 120, 240, 600 };
+	int32_t first = r->windows[0].end_date, last = r->windows[r->nwindows - 1].end_date, pad;
+	char a[11], b[11];
+	int y0, m0, y1, m1, months, step = 600, k, n = 0, y, m;
+
+	pad = (last - first) / 30 + 20;
+	hc_universe_format_date(first - pad, a);
+	hc_universe_format_date(last + pad, b);
+	fprintf(fp, "set xrange [\"%s\":\"%s\"]\n", a, b);
+	sscanf(a, "%d-%d", &y0, &m0);
+	sscanf(b, "%d-%d", &y1, &m1);
+	months = (y1 - y0) * 12 + (m1 - m0);
+	for (k = 0; k < (int)(sizeof steps / sizeof steps[0]); k++)
+		if (months / steps[k] + 1 <= ROLLING_MAX_TICKS) {
+			step = steps[k];
+			break;
+		}
+	fputs("set xtics (", fp);
+	/* the first tick after the range's start, on a multiple of the step
+	 * counted from January of year 0, so that yearly ticks fall on round years */
+	for (k = (y0 * 12 + m0 - 1) / step * step + step; k <= y1 * 12 + m1 - 1; k += step) {
+		y = k / 12;
+		m = k % 12 + 1;
+		if (step >= 12)
+			fprintf(fp, "%s\"%d\" \"%04d-%02d-01\"", n++ ? ", " : "", y, y, m);
+		else
+			fprintf(fp, "%s\"%04d-%02d\" \"%04d-%02d-01\"", n++ ? ", " : "", y, m, y, m);
+	}
+	fputs(")\n", fp);
+}
+
+/* The count axis, log-scaled so that small counts (a rule needing 15) and
+ * large ones (one needing 150) both keep room, with ticks at whole counts
+ * 1, 1.5, 2, 3, 5 and 7 times the powers of ten. */
+static void rolling_count_axis(FILE *fp, const struct rolling_result *r)
+{
+	static const double steps[] = { 1, 1.5, 2, 3, 5, 7 };
+	double lo, hi, decade, v;
+	size_t i, n = 0;
+
+	rolling_count_range(r, &lo, &hi);
+	lo = fmax(1.0, floor(lo / 1.25));
+	hi = ceil(hi * 1.25) + 1.0;
+	fprintf(fp, "set logscale y\nset yrange [%.10g:%.10g]\nset ytics (", lo, hi);
+	for (decade = pow(10.0, floor(log10(lo))); decade <= hi; decade *= 10)
+		for (i = 0; i < sizeof steps / sizeof steps[0]; i++) {
+			v = steps[i] * decade;
+			if (v >= lo && v <= hi && v == floor(v))
+				fprintf(fp, "%s%.0f", n++ ? ", " : "", v);
+		}
+	fputs(")\n", fp);
 }
 
 /* One line per evaluated exact rule met in some window, from column 2 of
@@ -1169,6 +1260,8 @@ static void rolling_plot(FILE *fp, const struct plots_input *in)
 	size_t q = 0, drawn = 0;
 	int id;
 
+	rolling_date_axis(fp, in->rolling);
+	rolling_count_axis(fp, in->rolling);
 	fputs("plot ", fp);
 	for (id = 0; id < RULES_COUNT; id++) {
 		if (!(in->rolling->rules & RULES_FLAG(id)))
@@ -1194,13 +1287,12 @@ static void subtitle(char *buf, size_t size, int kind, const struct plots_input 
 		snprintf(buf, size, "a ratio of variances: the same per period as annualised");
 		break;
 	case PLOTS_FUNDS:
-		snprintf(buf, size, "sd axis from %.3g%% to %.3g%%, zoomed to the funds (risk.png starts at 0); "
-			 "annualised from %.10g periods a year", F->ymin, F->ymax, p);
+		snprintf(buf, size, "sd axis %.3g%% to %.3g%%, zoomed to the funds (risk.png starts at 0); "
+			 "%.10g periods a year", F->ymin, F->ymax, p);
 		break;
 	case PLOTS_ROLLING:
-		snprintf(buf, size, "windows of %zu periods (%.3g years at %.10g a year), one every %zu periods; "
-			 "parameters annualised from %.10g periods a year", in->rolling->window,
-			 (double)in->rolling->window / p, p, in->rolling->step, p);
+		snprintf(buf, size, "windows of %zu periods (%.3g years), one every %zu; annualised from %.10g "
+			 "periods a year", in->rolling->window, (double)in->rolling->window / p, in->rolling->step, p);
 		break;
 	default:
 		snprintf(buf, size, "%s", basis);
@@ -1299,6 +1391,8 @@ int hc_plots_write_script(FILE *fp, int kind, const struct plots_input *in, int 
 	}
 	if (rc == HC_OK)
 		plot_command(fp, kind, in, L, &F);
+	if (rc == HC_OK && format != PLOTS_SVG)
+		svg_replot(fp, kinds[kind].name);
 	hc_free(L);
 	if (have_funds)
 		funds_layout_release(&F);

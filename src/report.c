@@ -408,6 +408,11 @@ static const char *format_text(char *buf, size_t size, const struct report_value
 	}
 }
 
+const char *hc_report_format_value(char *buf, size_t size, const struct report_value *v)
+{
+	return format_text(buf, size, v);
+}
+
 static int write_failed(struct hc_error *err)
 {
 	return hc_error(err, HC_EIO, "cannot write output: %s", strerror(errno ? errno : EIO));

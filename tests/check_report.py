@@ -58,7 +58,7 @@ def cell_value(text):
 
 os.makedirs(TMP, exist_ok=True)
 out = os.path.join(TMP, "demo")
-subprocess.run([HC, "report", "--force", "-q", "-o", out, "--paths", "2000", "--bootstrap", "200"],
+subprocess.run([HC, "report", "--demo", "--force", "-q", "-o", out, "--paths", "2000", "--bootstrap", "200"],
                check=True)
 with open(os.path.join(out, "summary.json")) as fp:
     summary = json.load(fp)

@@ -175,7 +175,7 @@ grep -q '^GSL [0-9]' "$T/v" && grep -q '^BLAS OpenBLAS' "$T/v" || fail "unpacked
 loaded=$(ldd "$R/usr/bin/holdcount" | awk '/libholdcount/ {print $3}')
 [ "$(readlink -f "$loaded")" = "$(readlink -f "$lib/libholdcount.so.1")" ] || fail "unpacked holdcount loads '$loaded', not the package's library"
 # The package's own demo data, found from the binary's place (UTF-8: see cli_install.sh).
-(cd "$T" && env -u HOLDCOUNT_DATA_DIR LC_ALL=C.UTF-8 "$R/usr/bin/holdcount" report -o rep --paths 50 --bootstrap 0 -q) 2>"$T/err" \
+(cd "$T" && env -u HOLDCOUNT_DATA_DIR LC_ALL=C.UTF-8 "$R/usr/bin/holdcount" report --demo -o rep --paths 50 --bootstrap 0 -q) 2>"$T/err" \
 	|| fail "unpacked report on the demo data: $(head -c 300 "$T/err")"
 grep -q "^- source: $R/usr/share/holdcount/demo-universe.csv\$" "$T/rep/summary.md" 2>/dev/null \
 	|| fail "unpacked report read $(grep -m1 'source:' "$T/rep/summary.md" 2>/dev/null)"

@@ -27,7 +27,7 @@ runs=(
 	"enough --paths 2000 --bootstrap 200 $U"
 	"audit --holdings $F --sectors $S --paths 500 $U"
 	"describe $U"
-	"report -o $T/rep --paths 2000 --bootstrap 100 --force"
+	"report --demo -o $T/rep --paths 2000 --bootstrap 100 --force"
 	"curve --pathz 3 $U"
 	"curve $T/absent.csv"
 )

@@ -95,16 +95,16 @@ env -u LD_LIBRARY_PATH "$P/bin/holdcount" --version >"$T/v" 2>&1 || fail "instal
 "$HC" --version | cmp -s - "$T/v" || fail "installed --version differs from the build tree's"
 lib=$(env -u LD_LIBRARY_PATH ldd "$P/bin/holdcount" | awk '/libholdcount/ {print $3}')
 [ "$(readlink -f "$lib")" = "$(readlink -f "$L/libholdcount.so.1")" ] || fail "installed binary loads '$lib', not the installed library"
-# With no UNIVERSE, report runs on the demo data installed beside the binary.
+# report --demo runs on the demo data installed beside the binary.
 # (A UTF-8 locale: under LC_ALL=C gnuplot warns that it cannot convert the
 # plots' degree sign and report stops with status 6 -- left to the report's
 # owner.)
-(cd "$T" && env -u HOLDCOUNT_DATA_DIR LC_ALL=C.UTF-8 "$P/bin/holdcount" report -o rep --paths 50 --bootstrap 0 -q) 2>"$T/err" \
+(cd "$T" && env -u HOLDCOUNT_DATA_DIR LC_ALL=C.UTF-8 "$P/bin/holdcount" report --demo -o rep --paths 50 --bootstrap 0 -q) 2>"$T/err" \
 	|| fail "installed report on the demo data: $(head -c 300 "$T/err")"
 grep -q "^- source: $P/share/holdcount/demo-universe.csv\$" "$T/rep/summary.md" 2>/dev/null \
 	|| fail "installed report did not read $P/share/holdcount: $(grep -m1 'source:' "$T/rep/summary.md" 2>/dev/null)"
 # HOLDCOUNT_DATA_DIR overrides it, and a wrong one is named in the message.
-(cd "$T" && HOLDCOUNT_DATA_DIR=$T/nowhere "$P/bin/holdcount" report -o rep2 -q) 2>"$T/err"; rc=$?
+(cd "$T" && HOLDCOUNT_DATA_DIR=$T/nowhere "$P/bin/holdcount" report --demo -o rep2 -q) 2>"$T/err"; rc=$?
 [ "$rc" = 2 ] || fail "report with HOLDCOUNT_DATA_DIR=nowhere: exit $rc, expected 2"
 grep -q "$T/nowhere/demo-universe.csv" "$T/err" || fail "report with a wrong HOLDCOUNT_DATA_DIR: '$(cat "$T/err")'"
 

@@ -28,6 +28,8 @@ fail() { echo "FAIL: $*"; fails=$((fails+1)); }
 "$HC" synth --securities 12 --periods 72 --seed 3 --late-share 0 --early-share 0 \
 	-o "$T/u.csv" --sectors-output "$T/s.csv" -q || { echo "FAIL: synth exit $?"; exit 1; }
 printf 'fund,id,weight\nAlder Growth,S01,0.35\nAlder Growth,S02,0.40\nAlder Growth,S07,0.25\n' >"$T/h.csv"
+# An earlier report folder, for compare and report --previous.
+"$HC" report "$T/u.csv" -o "$T/rep0" --paths 50 --bootstrap 0 -q || { echo "FAIL: report exit $?"; exit 1; }
 
 # What each command needs to run at all.
 base() {
@@ -36,6 +38,7 @@ base() {
 	report) echo "$T/u.csv -o $T/rep --force" ;;
 	formula) echo "--average-variance 0.0385 --average-covariance 0.0092" ;;
 	synth) echo "-o $T/syn.csv" ;;
+	compare) echo "$T/rep0 $T/rep0" ;;
 	*) echo "$T/u.csv" ;;
 	esac
 }
@@ -48,6 +51,7 @@ value() {
 	synth:sectors) echo 3; return ;;
 	synth:seed) echo 5; return ;;
 	report:output) echo "$T/rep"; return ;;
+	report:previous) echo "$T/rep0"; return ;;
 	esac
 	case $2 in
 	sizes) echo 1-3 ;;            paths) echo 200 ;;           seed) echo 7 ;;
@@ -112,7 +116,7 @@ listed() {
 }
 
 commands=$("$HC" --help | sed -n '/^commands:/,/^$/p' | sed -n 's/^  \([a-z][a-z]*\) .*/\1/p')
-[ "$(echo $commands)" = "describe curve formula enough audit rolling report synth" ] \
+[ "$(echo $commands)" = "describe curve formula enough audit rolling report compare synth" ] \
 	|| fail "the commands are now '$(echo $commands)': check this test covers each"
 n=0
 for c in $commands; do
@@ -133,9 +137,10 @@ for c in $commands; do
 		fi
 		checked=$((checked+1))
 	done <"$T/opts"
-	[ "$checked" -ge 8 ] || fail "$c: only $checked options read from its help"
+	# compare takes the output options only (--format, --output, --quiet)
+	[ "$checked" -ge "$([ "$c" = compare ] && echo 3 || echo 8)" ] || fail "$c: only $checked options read from its help"
 done
-# 8 commands, each with at least 8 options (synth has 24, report 44).
+# 9 commands, each but compare with at least 8 options (synth has 24, report 46).
 [ "$n" -ge 150 ] || fail "only $n options checked in all"
 
 # The options left out, per command (src/cli/cmd_*.c, cli_omit lists): not

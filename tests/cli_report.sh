@@ -11,10 +11,10 @@ fail() { echo "FAIL: $*"; fails=$((fails + 1)); }
 FAST=(--paths 1000 --bootstrap 100 -q)
 
 # 1. The demo report holds every file.
-"$HC" report -o "$T/a" "${FAST[@]}" || fail "demo report exited $?"
-for f in summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rules.dat \
+"$HC" report --demo -o "$T/a" "${FAST[@]}" || fail "demo report exited $?"
+for f in report.html summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rules.dat \
 	 risk.gp risk-log.gp share.gp tracking.gp risk.png risk-log.png share.png tracking.png \
-	 rolling.csv rolling.dat rolling.gp rolling.png; do
+	 risk.svg risk-log.svg share.svg tracking.svg rolling.csv rolling.dat rolling.gp rolling.png rolling.svg; do
 	[ -s "$T/a/$f" ] || fail "demo report lacks $f"
 done
 if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
@@ -36,7 +36,7 @@ grep -q 'one window starting every 12 periods: 16 windows' "$T/a/summary.md" || 
 grep -q '!\[Holding count needed through time\](rolling.png)' "$T/a/summary.md" || fail "summary.md does not embed rolling.png"
 # --window 0 leaves it out and says so; a history shorter than two windows
 # leaves it out and says why (an invented 30-security, 100-month universe).
-"$HC" report -o "$T/w0" --window 0 "${FAST[@]}" || fail "--window 0 exited $?"
+"$HC" report --demo -o "$T/w0" --window 0 "${FAST[@]}" || fail "--window 0 exited $?"
 ls "$T"/w0/rolling.* >/dev/null 2>&1 && fail "--window 0 wrote rolling files"
 grep -q '^Left out: `--window 0` was given.$' "$T/w0/summary.md" || fail "summary.md does not say --window 0 left the windows out"
 grep -q '"rolling": null' "$T/w0/summary.json" || fail "--window 0: summary.json's rolling is not null"
@@ -52,7 +52,7 @@ grep -q 'each window of 24 periods (set with `--window`), one window starting ev
 
 # 2. Deterministic: a second run gives the same bytes (summary.md differs at
 # most in its date line).
-"$HC" report -o "$T/b" "${FAST[@]}" || fail "second demo report exited $?"
+"$HC" report --demo -o "$T/b" "${FAST[@]}" || fail "second demo report exited $?"
 for f in "$T"/a/*.json "$T"/a/*.csv "$T"/a/*.gp "$T"/a/*.dat; do
 	cmp -s "$f" "$T/b/$(basename "$f")" || fail "$(basename "$f") differs between two identical runs"
 done
@@ -74,19 +74,19 @@ grep -q '^set key outside below' "$T/a/risk.gp" && fail "the demo's risk.gp move
 
 # 3. An existing folder is refused without --force and left alone.
 before=$(cat "$T"/a/summary.json | md5sum)
-"$HC" report -o "$T/a" "${FAST[@]}" 2>"$T/err"; rc=$?
+"$HC" report --demo -o "$T/a" "${FAST[@]}" 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] || fail "existing folder without --force: exit $rc, expected 2"
 grep -q "exists; use --force" "$T/err" || fail "existing folder: message was: $(cat "$T/err")"
 [ "$(md5sum < "$T/a/summary.json")" = "$before" ] || fail "refused run changed the old report"
 mkdir -p "$T/notareport"; echo keep > "$T/notareport/notes.txt"
-"$HC" report -o "$T/notareport" --force "${FAST[@]}" 2>"$T/err"; rc=$?
+"$HC" report --demo -o "$T/notareport" --force "${FAST[@]}" 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] && [ -f "$T/notareport/notes.txt" ] || fail "--force replaced a folder that is not a report (exit $rc)"
-"$HC" report -o "$T/a" --force --seed 7 "${FAST[@]}" || fail "--force over a report exited $?"
+"$HC" report --demo -o "$T/a" --force --seed 7 "${FAST[@]}" || fail "--force over a report exited $?"
 grep -q '"seed":[[:space:]]*"7"' "$T/a/summary.json" || fail "--force did not put the new report in place"
 ls -d "$T"/a.tmp-* >/dev/null 2>&1 && fail "a temporary folder was left after --force"
 
 # 4. Without gnuplot on the PATH the folder is complete and says how to render.
-PATH=/nonexistent "$HC" report -o "$T/nognuplot" "${FAST[@]}" || fail "report without gnuplot exited $?"
+PATH=/nonexistent "$HC" report --demo -o "$T/nognuplot" "${FAST[@]}" || fail "report without gnuplot exited $?"
 for f in summary.md summary.json curve.csv enough.csv risk.gp exact.dat README-plots.txt; do
 	[ -s "$T/nognuplot/$f" ] || fail "report without gnuplot lacks $f"
 done
@@ -125,13 +125,13 @@ only_marker() {
 	done
 }
 set -m
-"$HC" report -o "$T/int" "${SLOW[@]}" & pid=$!
+"$HC" report --demo -o "$T/int" "${SLOW[@]}" & pid=$!
 started int $pid && kill -INT $pid; wait $pid; rc=$?
 [ $rc -eq 7 ] || fail "SIGINT: exit $rc, expected 7"
 [ -e "$T/int" ] && fail "SIGINT left a report folder"
 ls -d "$T"/int.tmp-* >/dev/null 2>&1 && fail "SIGINT left a temporary folder"
 before=$(cd "$T/b" && ls -A | md5sum; cat "$T"/b/* 2>/dev/null | md5sum)
-"$HC" report -o "$T/b" --force "${SLOW[@]}" & pid=$!
+"$HC" report --demo -o "$T/b" --force "${SLOW[@]}" & pid=$!
 started b $pid && kill -INT $pid; wait $pid; rc=$?
 [ $rc -eq 7 ] || fail "SIGINT with --force: exit $rc"
 [ "$(cd "$T/b" && ls -A | md5sum; cat "$T"/b/* | md5sum)" = "$before" ] || fail "SIGINT with --force changed the old report"
@@ -140,28 +140,36 @@ ls -d "$T"/b.tmp-* >/dev/null 2>&1 && fail "SIGINT with --force left a temporary
 # 6. SIGKILL cannot be caught: the leftover is named DIR.tmp-XXXXXX and
 # holds no partial file (only the marker: the run was sampling), DIR itself
 # is absent, and the next run for DIR removes the leftover.
-"$HC" report -o "$T/kill" "${SLOW[@]}" & pid=$!
+"$HC" report --demo -o "$T/kill" "${SLOW[@]}" & pid=$!
 started kill $pid && kill -KILL $pid; wait $pid 2>/dev/null
 set +m
 [ -e "$T/kill" ] && fail "SIGKILL left a folder named like the report"
 ls -d "$T"/kill.tmp-* >/dev/null 2>&1 || fail "SIGKILL: expected a DIR.tmp-* leftover"
 only_marker kill
-"$HC" report -o "$T/kill" "${FAST[@]}" || fail "run after SIGKILL exited $?"
+"$HC" report --demo -o "$T/kill" "${FAST[@]}" || fail "run after SIGKILL exited $?"
 ls -d "$T"/kill.tmp-* >/dev/null 2>&1 && fail "the run after SIGKILL did not remove the leftover"
 [ -s "$T/kill/summary.json" ] || fail "the run after SIGKILL wrote no report"
 
 # The finished folder has mode 0777 less the umask, as mkdir(2) gives
 # (POSIX.1-2008 umask), not mkdtemp's private 0700.
-(umask 022 && "$HC" report -o "$T/mode" "${FAST[@]}") || fail "report under umask 022 exited $?"
+(umask 022 && "$HC" report --demo -o "$T/mode" "${FAST[@]}") || fail "report under umask 022 exited $?"
 [ "$(stat -c %a "$T/mode")" = 755 ] || fail "report under umask 022: mode $(stat -c %a "$T/mode"), expected 755"
 
 # 7. Usage errors.
-"$HC" report "${FAST[@]}" 2>"$T/err"; rc=$?
+"$HC" report --demo "${FAST[@]}" 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] && grep -q -- "-o DIR is required" "$T/err" || fail "missing -o: exit $rc, $(cat "$T/err")"
-"$HC" report -o "$T/x" --window 0 --step 6 2>"$T/err"; rc=$?
+# No silent demo: without a UNIVERSE the report is a usage error naming
+# --demo, and a UNIVERSE with --demo is refused too; neither writes a folder.
+"$HC" report -o "$T/nouniverse" "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] && grep -q -- "a UNIVERSE file is required (--demo runs on the bundled invented demo universe)" "$T/err" ||
+	fail "report without a UNIVERSE: exit $rc, $(cat "$T/err")"
+"$HC" report "$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv" --demo -o "$T/nouniverse" "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 2 ] && grep -q -- "give a UNIVERSE or --demo, not both" "$T/err" || fail "UNIVERSE with --demo: exit $rc, $(cat "$T/err")"
+[ -e "$T/nouniverse" ] && fail "a report without a UNIVERSE wrote a folder"
+"$HC" report --demo -o "$T/x" --window 0 --step 6 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] && grep -q -- "--step applies to the rolling windows, which --window 0 leaves out" "$T/err" ||
 	fail "--step with --window 0: exit $rc, $(cat "$T/err")"
-"$HC" report -o "$T/x" --plot-format gif 2>/dev/null; rc=$?
+"$HC" report --demo -o "$T/x" --plot-format gif 2>/dev/null; rc=$?
 [ $rc -eq 2 ] || fail "--plot-format gif: exit $rc, expected 2"
 [ -e "$T/x" ] && fail "a usage error wrote a folder"
 
@@ -174,7 +182,7 @@ U=$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv
 [ $rc -eq 2 ] && grep -q -- "--max-weight applies to the audit of funds: give --holdings FILE" "$T/err" ||
 	fail "--max-weight without --holdings: exit $rc, $(cat "$T/err")"
 [ -e "$T/nohold" ] && fail "a refused policy option wrote a folder"
-"$HC" report -o "$T/policy" --max-weight 10% "${FAST[@]}" 2>"$T/err"; rc=$?
+"$HC" report --demo -o "$T/policy" --max-weight 10% "${FAST[@]}" 2>"$T/err"; rc=$?
 [ $rc -eq 1 ] || fail "demo report with --max-weight 10%: exit $rc, expected 1"
 grep -q "fails the policy: 'Lirrand Select Fund C' (max-weight)" "$T/err" || fail "failing fund not named: $(cat "$T/err")"
 [ -s "$T/policy/summary.json" ] && [ -s "$T/policy/audit.csv" ] || fail "a failing fund left the folder incomplete"
@@ -183,16 +191,16 @@ grep -q '| Lirrand Select Fund C | .*| no | max-weight |' "$T/policy/summary.md"
 # the rules section explains itself: a line per rule, how to read the interval
 grep -q '^- shortfall (after Domian, Louton & Racine, 2007' "$T/a/summary.md" || fail "summary.md lacks the shortfall rule's line"
 grep -q -- '--bootstrap-sampled` gives them one' "$T/a/summary.md" || fail "summary.md does not say why band and shortfall have no interval"
-"$HC" report -o "$T/bs" "${FAST[@]}" --bootstrap 20 --bootstrap-sampled --bootstrap-paths 50 || fail "--bootstrap-sampled exited $?"
+"$HC" report --demo -o "$T/bs" "${FAST[@]}" --bootstrap 20 --bootstrap-sampled --bootstrap-paths 50 || fail "--bootstrap-sampled exited $?"
 grep -q -- '--bootstrap-sampled` gives them one' "$T/bs/summary.md" && fail "summary.md says band has no interval under --bootstrap-sampled"
 grep -Eq '^\| band \| [^|]* \| [0-9]+ \| [0-9.]+ \| [0-9.]+ \| [0-9.]+ \| ' "$T/bs/summary.md" || fail "band has no interval with --bootstrap-sampled"
 
 # Under a non-UTF-8 locale the report still renders: gnuplot is started under
 # C.UTF-8, because the templates' labels are UTF-8 (degree and sigma signs).
 if command -v gnuplot >/dev/null; then
-	LC_ALL=C LANG=C "$HC" report -o "$T/clocale" "${FAST[@]}" 2>"$T/err" || fail "report under LC_ALL=C exited $?: $(cat "$T/err")"
+	LC_ALL=C LANG=C "$HC" report --demo -o "$T/clocale" "${FAST[@]}" 2>"$T/err" || fail "report under LC_ALL=C exited $?: $(cat "$T/err")"
 	[ -s "$T/clocale/risk.png" ] || fail "report under LC_ALL=C rendered no risk.png"
-	"$HC" report -o "$T/ulocale" "${FAST[@]}" || fail "report exited $?"
+	"$HC" report --demo -o "$T/ulocale" "${FAST[@]}" || fail "report exited $?"
 	cmp -s "$T/ulocale/summary.json" "$T/clocale/summary.json" || fail "summary.json depends on the locale"
 fi
 

@@ -41,7 +41,7 @@ PY
 # 1. The demo: the report's own inputs, named as the report finds them.
 OPTS=(--paths 1000 --seed 11)
 mkdir -p "$T/demo"
-"$HC" report -q -o "$T/demo/r" "${OPTS[@]}" --bootstrap 100 || fail "demo report exited $?"
+"$HC" report --demo -q -o "$T/demo/r" "${OPTS[@]}" --bootstrap 100 || fail "demo report exited $?"
 U=$(ls "$D/demo-universe.csv")
 # the report names its universe by the path it read (HOLDCOUNT_DATA_DIR)
 src=$("$PY" -c 'import json,sys; print(json.load(open(sys.argv[1]))["curve"]["source"])' "$T/demo/r/summary.json")

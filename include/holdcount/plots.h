@@ -95,7 +95,9 @@ unsigned hc_plots_data_used(int kind);
  * lacks what d needs. */
 int hc_plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err);
 
-/* Write script NAME.gp of kind for in, drawing to NAME.<format>.
+/* Write script NAME.gp of kind for in, drawing to NAME.<format> and, when
+ * format is not SVG, to NAME.svg as well (the same canvas and fonts; the
+ * HTML report embeds it).
  * HC_EUSAGE when the plot is not available for in or format is unknown,
  * HC_EINTERNAL when a template is missing or keeps a placeholder (a build
  * fault), HC_EIO when the stream fails, HC_ENOMEM. */

@@ -143,6 +143,13 @@ const struct report_table *hc_report_find_table(const struct report *r, const ch
  * the table) when r has no table of that key, HC_EIO when fp fails. */
 int hc_report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err);
 
+/* A value as the text writer shows it (its style: "12.34%", "0.1234";
+ * "yes"/"no"; "-" or the reason for no value), in buf (size bytes, 64 is
+ * enough for a number) or, for text, the value's own string.  Other writers
+ * of the model (summary.md, report.html) use it so that every view of a
+ * figure reads the same. */
+const char *hc_report_format_value(char *buf, size_t size, const struct report_value *v);
+
 /* Look a writer up by name ("table", "csv", "json"); NULL when unknown. */
 const struct report_writer *hc_report_writer_find(const char *name);
 

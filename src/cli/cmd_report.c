@@ -31,8 +31,10 @@
 #include "cli.h"
 #include "holdcount/audit.h"
 #include "holdcount/bootstrap.h"
+#include "holdcount/compare.h"
 #include "holdcount/curve.h"
 #include "holdcount/holdings.h"
+#include "holdcount/htmlreport.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/outfile.h"
@@ -60,6 +62,8 @@ struct report_opts {
 	int force;
 	int plot_format;
 	int quiet;
+	int demo;                  /* --demo: the bundled invented universe, sectors and funds */
+	const char *previous;      /* --previous DIR: the report to compare with */
 	size_t window, step;       /* --window (0 = none) and --step (0 = a year's periods) as given */
 	struct cli_rules rul;
 	struct cli_holdings hold;
@@ -77,6 +81,10 @@ static const struct cli_option report_own[] = {
 	  "replace an existing report folder (only once the new one is complete)", NULL, NULL },
 	{ "plot-format", 0, CLI_CHOICE, RO(plot_format), NULL, "format of the rendered plots", format_words, "png" },
 	{ "quiet", 'q', CLI_FLAG, RO(quiet), NULL, "no progress display on standard error", NULL, NULL },
+	{ "demo", 0, CLI_FLAG, RO(demo), NULL,
+	  "run on the bundled invented demo universe, its sectors and funds (instead of UNIVERSE)", NULL, NULL },
+	{ "previous", 0, CLI_STRING, RO(previous), "DIR",
+	  "an earlier report folder: add a section on what changed since it (as 'holdcount compare')", NULL, NULL },
 	{ "window", 0, CLI_COUNT, RO(window), "W",
 	  "the exact rules' counts in rolling windows of W periods (rolling.csv and its plot); 0 leaves them out",
 	  NULL, "five years of periods, when the history holds two such windows" },
@@ -112,8 +120,10 @@ static const struct cli_group_use report_groups[] = {
 
 const struct cli_command cli_command_report = {
 	"report", cmd_report, "write a report folder: tables, JSON summary, gnuplot scripts and plots",
-	"[UNIVERSE]",
-	"Writes DIR with summary.md (the universe, the curve at a readable grid, every rule's count with "
+	"UNIVERSE | --demo",
+	"Writes DIR with report.html (one self-contained document for a committee: the recommendation, "
+	"the universe, the curve, every rule, the funds, the count through time, the cautions and a "
+	"technical appendix, with the plots inline as SVG; it prints a page per section), summary.md (the universe, the curve at a readable grid, every rule's count with "
 	"its 90% bootstrap interval, the audited funds with their pass or fail under the policy options, "
 	"the plots and the cautions), summary.json (every figure of the summary), curve.csv, enough.csv "
 	"and audit.csv (what 'holdcount curve', 'enough' and 'audit' print with --format csv and the same "
@@ -123,8 +133,9 @@ const struct cli_command cli_command_report = {
 	"windows (--window W and --step S choose others, --window 0 leaves them out; summary.md says "
 	"which). --sizes sets the curve's grid; the rules look at every count. "
 	"The folder is built under a temporary name and renamed into place, so an interrupted run leaves "
-	"the previous report or none. With no UNIVERSE it runs on the bundled invented demo universe, its "
-	"sectors and funds. Exit status 1 (after the folder is written) when a fund fails a policy option, "
+	"the previous report or none. --demo runs on the bundled invented demo universe, its "
+	"sectors and funds; without it a UNIVERSE is required. --previous DIR compares with an earlier report "
+	"(a section in report.html and summary.md). Exit status 1 (after the folder is written) when a fund fails a policy option, "
 	"as with 'holdcount audit'.",
 	0, 1, report_groups
 };
@@ -151,6 +162,9 @@ struct run {
 	struct universe *every_security;   /* rolling windows: the file with no security dropped */
 	struct rolling_result *rolling;
 	struct report *rep_rolling;
+	char *previous_json;               /* --previous: its summary.json, read before any work */
+	struct report *rep_compare;        /* --previous: what changed */
+	char *svg[PLOTS_NKINDS];           /* the plots as SVG, for report.html */
 	int rendered;
 	char gnuplot[PATH_MAX];
 };
@@ -163,6 +177,10 @@ static void run_release(struct run *r)
 	hc_report_free(r->rep_audit);
 	hc_report_free(r->rep_plots);
 	hc_report_free(r->rep_rolling);
+	hc_report_free(r->rep_compare);
+	hc_free(r->previous_json);
+	for (int k = 0; k < PLOTS_NKINDS; k++)
+		hc_free(r->svg[k]);
 	hc_rolling_result_free(r->rolling);
 	hc_universe_free(r->every_security);
 	hc_audit_result_free(r->audit);
@@ -366,6 +384,14 @@ static int build_universe(struct run *r)
 	    hc_report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
 			    REPORT_STYLE_PERCENT))
 		return HC_ENOMEM;
+	/* the kept ids, so that `holdcount compare` can say which securities
+	 * came in and went out between two reports */
+	t = hc_report_add_table(rep, "kept", "securities kept");
+	if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (i = 0; i < r->u->m; i++)
+		if (hc_report_table_add_row(t) || hc_report_table_set_text(t, i, 0, r->u->ids[i]))
+			return HC_ENOMEM;
 	if (r->u->ndropped) {
 		t = hc_report_add_table(rep, "dropped", "securities dropped");
 		if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
@@ -838,6 +864,54 @@ static void md_rolling(FILE *fp, const struct run *r)
 	md_table(fp, t, (const char *const (*)[2])cols, n, NULL, NULL);
 }
 
+/* "Since the last report": the changed rows of the comparison, policy
+ * verdicts first (hc_compare_summaries puts them there). */
+static int changed_row(const struct report_table *t, size_t row, const void *ctx)
+{
+	const struct report_value *v = cell(t, row, "changed");
+
+	(void)ctx;
+	return v->kind == REPORT_BOOL && v->integer;
+}
+
+static void md_since(FILE *fp, const struct run *r)
+{
+	static const char *const cols[][2] = {
+		{ "item", "figure" }, { "section", "part" }, { "old", "last report" }, { "new", "this report" },
+		{ "change", "change" },
+	};
+	const struct report_table *t = table_of(r->rep_compare, "changes"), *sec = table_of(r->rep_compare, "securities");
+	size_t i, n = 0;
+
+	if (!r->rep_compare)
+		return;
+	fputs("## Since the last report\n\n", fp);
+	fprintf(fp, "Compared with `%s` (", r->o->previous);
+	for (i = 0; i < r->rep_compare->nfields; i++)
+		if (strcmp(r->rep_compare->fields[i].key, "old_period") == 0)
+			md_value(fp, &r->rep_compare->fields[i].value, REPORT_STYLE_PLAIN);
+	fputs("). **", fp);
+	for (i = 0; i < r->rep_compare->nfields; i++)
+		if (strcmp(r->rep_compare->fields[i].key, "headline") == 0)
+			md_value(fp, &r->rep_compare->fields[i].value, REPORT_STYLE_PLAIN);
+	fputs(".**\n\n", fp);
+	for (i = 0; t && i < t->nrows; i++)
+		n += (size_t)changed_row(t, i, NULL);
+	if (n)
+		md_table(fp, t, cols, sizeof cols / sizeof cols[0], changed_row, NULL);
+	else
+		fputs("No compared figure changed.\n\n", fp);
+	for (i = 0, n = 0; sec && i < sec->nrows; i++) {
+		fputs(n++ ? ", " : "Securities in and out: ", fp);
+		md_value(fp, cell(sec, i, "id"), REPORT_STYLE_PLAIN);
+		fputs(" (", fp);
+		md_value(fp, cell(sec, i, "change"), REPORT_STYLE_PLAIN);
+		fputc(')', fp);
+	}
+	fputs(n ? ".\n\n" : "", fp);
+	fputs("`holdcount compare` lists every compared figure.\n\n", fp);
+}
+
 static void md_plots(FILE *fp, const struct run *r, const struct plots_input *pin, const unsigned char *made)
 {
 	char cap[1024];
@@ -876,6 +950,9 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 	fprintf(fp, "# Holding-count report\n\n");
 	fprintf(fp, "Written by holdcount %s on %s (UTC; the only line that changes when the same inputs are run "
 		"again).\n\n", HOLDCOUNT_VERSION, date);
+	fputs("The committee's copy is `report.html`: one self-contained document (open it in a browser; it "
+	      "prints a page per section).\n\n", fp);
+	md_since(fp, r);
 	md_universe(fp, r);
 	md_curve(fp, r);
 	md_rules(fp, r);
@@ -899,6 +976,73 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
 	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
 	return hc_reportdir_close(rd, fp, "summary.md", err);
+}
+
+/* ---- report.html ----------------------------------------------------------------------- */
+
+/* --previous: the earlier summary (read before any work) against the one
+ * just written into the temporary folder. */
+static int compare_previous(struct reportdir *rd, struct run *r, struct hc_error *err)
+{
+	char *now = NULL;
+	int rc;
+
+	if ((rc = hc_compare_read(&now, hc_reportdir_tmp_path(rd), err)) == HC_OK)
+		rc = hc_compare_summaries(&r->rep_compare, r->previous_json, r->o->previous, now, r->o->output, err);
+	hc_free(now);
+	return rc;
+}
+
+static int write_html(struct reportdir *rd, struct run *r, const struct plots_input *pin, const unsigned char *made,
+		      struct hc_error *err)
+{
+	static const char *const screens_caution[] = {
+		"regulatory screens: written from memory of the published texts and testing weights only; verify "
+		"against the current text and defer to compliance counsel",
+	};
+	struct htmlreport_figure fig[PLOTS_NKINDS];
+	char caps[PLOTS_NKINDS][1024], date[16];
+	struct htmlreport_input in;
+	time_t now = time(NULL);
+	struct tm tm;
+	size_t n = 0;
+	FILE *fp;
+	int k, rc;
+
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		fig[n].name = hc_plots_name(k);
+		fig[n].title = hc_plots_title(k);
+		fig[n].caption = hc_plots_caption(k, pin, caps[k], sizeof caps[k]);
+		fig[n].svg = r->svg[k];
+		fig[n].place = k == PLOTS_FUNDS ? HTMLREPORT_FUNDS : k == PLOTS_ROLLING ? HTMLREPORT_TIME : HTMLREPORT_CURVE;
+		n++;
+	}
+	gmtime_r(&now, &tm);
+	strftime(date, sizeof date, "%Y-%m-%d", &tm);
+	memset(&in, 0, sizeof in);
+	in.version = HOLDCOUNT_VERSION;
+	in.date = date;
+	in.universe = r->rep_universe;
+	in.curve = r->rep_curve;
+	in.enough = r->rep_enough;
+	in.audit = r->rep_audit;
+	in.rolling = r->rep_rolling;
+	in.compare = r->rep_compare;
+	in.rolling_why = r->window_why;
+	in.holdings_file = r->hold.holdings;
+	in.figures = fig;
+	in.nfigures = n;
+	in.cautions = screens_caution;
+	in.ncautions = r->rep_audit ? 1 : 0;
+	if ((rc = hc_reportdir_open(rd, "report.html", &fp, err)) != HC_OK)
+		return rc;
+	if ((rc = hc_htmlreport_write(fp, &in, err)) != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return hc_reportdir_close(rd, fp, "report.html", err);
 }
 
 /* ---- plots ----------------------------------------------------------------------------- */
@@ -948,7 +1092,7 @@ static int write_plots(struct reportdir *rd, struct run *r, struct plots_input *
 
 static int render_plots(struct reportdir *rd, struct run *r, const unsigned char *made, struct hc_error *err)
 {
-	char script[REPORTDIR_NAME_MAX], image[REPORTDIR_NAME_MAX], line[128];
+	char script[REPORTDIR_NAME_MAX], image[REPORTDIR_NAME_MAX], svg[REPORTDIR_NAME_MAX], line[128];
 	int k, rc, done = 0, total = 0;
 
 	for (k = 0; k < PLOTS_NKINDS; k++)
@@ -960,11 +1104,15 @@ static int render_plots(struct reportdir *rd, struct run *r, const unsigned char
 		snprintf(image, sizeof image, "%s.%s", hc_plots_name(k), hc_plots_format_name(r->o->plot_format));
 		snprintf(line, sizeof line, "rendering %s (%d of %d)", image, ++done, total);
 		stage(r->o, line);
-		if ((rc = hc_reportdir_expect(rd, image, err)) != HC_OK ||
+		snprintf(svg, sizeof svg, "%s.svg", hc_plots_name(k));
+		if ((rc = hc_reportdir_expect(rd, image, err)) != HC_OK || (rc = hc_reportdir_expect(rd, svg, err)) != HC_OK ||
 		    (rc = hc_plots_render(r->gnuplot, hc_reportdir_tmp_path(rd), script, err)) != HC_OK)
 			return rc;
-		if (!hc_reportdir_has(rd, image))
-			return hc_error(err, HC_EINTERNAL, "gnuplot ran on '%s' but wrote no '%s'", script, image);
+		if (!hc_reportdir_has(rd, image) || !hc_reportdir_has(rd, svg))
+			return hc_error(err, HC_EINTERNAL, "gnuplot ran on '%s' but wrote no '%s'", script,
+					hc_reportdir_has(rd, image) ? svg : image);
+		if ((rc = hc_htmlreport_read_svg(&r->svg[k], hc_reportdir_tmp_path(rd), svg, err)) != HC_OK)
+			return rc;
 	}
 	return HC_OK;
 }
@@ -1022,8 +1170,12 @@ static int write_folder(struct run *r, struct reportdir *rd, struct hc_error *er
 		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, hc_report_writer_csv, err);
 	if (rc == HC_OK)
 		rc = write_json(rd, r, err);
+	if (rc == HC_OK && r->previous_json)
+		rc = compare_previous(rd, r, err);
 	if (rc == HC_OK)
 		rc = write_markdown(rd, r, &pin, made, err);
+	if (rc == HC_OK)
+		rc = write_html(rd, r, &pin, made, err);
 	if (rc == HC_OK)
 		rc = hc_reportdir_commit(rd, err);
 	return rc;
@@ -1091,12 +1243,17 @@ static int choose_inputs(struct run *r, const struct cli_args *a)
 	static char demo_universe[PATH_MAX], demo_funds[PATH_MAX], demo_sectors[PATH_MAX];
 
 	r->hold = r->o->hold;
+	if (a->npositional && r->o->demo)
+		return cli_usage_error("report", "give a UNIVERSE or --demo, not both");
 	if (a->npositional) {
 		r->universe_path = a->positional[0];
 		return HC_OK;
 	}
+	if (!r->o->demo)
+		return cli_usage_error("report", "a UNIVERSE file is required (--demo runs on the bundled invented demo "
+				       "universe)");
 	if (!demo_path(demo_universe, sizeof demo_universe, "demo-universe.csv"))
-		return cli_usage_error("report", "no UNIVERSE given and the demo universe '%s' cannot be read",
+		return cli_usage_error("report", "--demo: the demo universe '%s' cannot be read",
 				       demo_universe);
 	r->universe_path = demo_universe;
 	if (!r->hold.holdings && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv"))
@@ -1138,6 +1295,10 @@ int cmd_report(int argc, char **argv)
 		rc = cli_fail("report", &err);
 		goto cleanup;
 	}
+	if (o.previous && (rc = hc_compare_read(&r.previous_json, o.previous, &err)) != HC_OK) {
+		rc = cli_fail("report", &err);
+		goto cleanup;
+	}
 	if (stale && stage_enabled(&o))
 		fprintf(stderr, "holdcount report: removed %zu temporary folder%s left by an interrupted run\n", stale,
 			stale == 1 ? "" : "s");
@@ -1160,7 +1321,7 @@ int cmd_report(int argc, char **argv)
 		goto cleanup;
 	}
 	if (stage_enabled(&o))
-		fprintf(stderr, "holdcount report: wrote '%s' (start with summary.md)\n", o.output);
+		fprintf(stderr, "holdcount report: wrote '%s' (start with report.html)\n", o.output);
 	if (r.audit && r.audit->failed_funds) {
 		cli_audit_say_failures("report", r.audit);
 		rc = HC_EPOLICY;

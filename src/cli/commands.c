@@ -14,6 +14,7 @@ const struct cli_command *const cli_commands[] = {
 	&cli_command_audit,
 	&cli_command_rolling,
 	&cli_command_report,
+	&cli_command_compare,
 	&cli_command_synth,
 	NULL
 };
