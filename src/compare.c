@@ -377,13 +377,19 @@ static int headline(struct cmp *c)
 	recommendation(c->old, &ra, &ca, &la, &ha);
 	recommendation(c->new, &rb, &cb, &lb, &hb);
 	if (c->verdicts)
-		snprintf(buf, sizeof buf, "%zu fund%s changed policy verdict; see the first rows", c->verdicts,
+		snprintf(buf, sizeof buf, "%zu fund%s changed policy verdict: see the first rows", c->verdicts,
 			 c->verdicts == 1 ? "" : "s");
 	else if (cJSON_IsNumber(ca) && cJSON_IsNumber(cb) && same(ra, rb))
-		snprintf(buf, sizeof buf, "no fund changed policy verdict; the %s count went from %.0f to %.0f",
-			 cJSON_IsString(rb) ? rb->valuestring : "leading", ca->valuedouble, cb->valuedouble);
+	{
+		char to[32] = "";
+		if (ca->valuedouble != cb->valuedouble)
+			snprintf(to, sizeof to, " to %.0f", cb->valuedouble);
+		snprintf(buf, sizeof buf, "No fund changed policy verdict; the %s count %s %.0f%s",
+			 cJSON_IsString(rb) ? rb->valuestring : "leading",
+			 ca->valuedouble == cb->valuedouble ? "stays at" : "went from", ca->valuedouble, to);
+	}
 	else
-		snprintf(buf, sizeof buf, "no fund changed policy verdict");
+		snprintf(buf, sizeof buf, "No fund changed policy verdict");
 	return hc_report_add_text(c->rep, "headline", "headline", buf);
 }
 

@@ -641,7 +641,7 @@ static void funds(FILE *fp, const struct htmlreport_input *in)
 		{ "fund", "fund" }, { "passed", "passes the policy" }, { "failed_rules", "fails on" },
 		{ "holdings", "holdings" }, { "effective_holdings", "effective holdings 1/HHI" },
 		{ "max_weight", "largest weight" }, { "sd", "sd a year" }, { "sd_percentile", "sd percentile among random portfolios" },
-		{ "equivalent_count", "equivalent count" }, { "missing_count", "holdings missing from the universe" },
+		{ "missing_count", "holdings missing from the universe" },
 		{ "missing_weight", "their weight" }, { "coverage", "coverage" }, { "coverage_flag", "coverage flag" },
 		{ "ucits", "UCITS Art. 52" }, { "1940act", "1940 Act 5(b)(1)" }, { "ric", "IRC 851(b)(3)" },
 	};
@@ -661,8 +661,7 @@ static void funds(FILE *fp, const struct htmlreport_input *in)
 	whole_table(fp, hc_report_find_table(in->audit, "funds"), "Audited funds", cols, sizeof cols / sizeof cols[0],
 		    NULL, NULL);
 	fputs("<p class=\"note\">The effective count 1/HHI is the number of equal weights with the same "
-	      "concentration; the equivalent count is the number of random equal-weight holdings with the fund's "
-	      "own sd; the sd percentile places the fund among random portfolios of its own count (high is "
+	      "concentration; the sd percentile places the fund among random portfolios of its own count (high is "
 	      "riskier). The three statute columns test weights only and are written from memory of the texts "
 	      "(Directive 2009/65/EC Art. 52; Investment Company Act of 1940 s. 5(b)(1); Internal Revenue Code "
 	      "s. 851(b)(3)): verify against the current text and defer to compliance counsel.</p>\n", fp);

@@ -171,10 +171,11 @@ for row in summary["curve"]["curve"]:
 # Label layout, checked on the written scripts and data with geometry of
 # its own: the frame from each script's "set lmargin/rmargin/tmargin/
 # bmargin at screen" lines on the 1000 x 640 canvas, the axes from its
-# xrange and yrange, and text 7.0 pixels a character (gnuplot 5.4's
+# xrange and yrange, and text 8.6 pixels a character (gnuplot 5.4's
 # pngcairo draws these labels in Sans 9 at 6.2 to 6.4 pixels a character,
-# measured by hand on a render).
-CHAR_PX, W, H = 7.0, 1000, 640
+# measured by hand on a render; they are drawn in Sans 11 now, so 7.0 for
+# Sans 9 scaled by 11/9).
+CHAR_PX, W, H = 8.6, 1000, 640
 
 
 def script_geometry(path):

@@ -886,7 +886,7 @@ static void md_since(FILE *fp, const struct run *r)
 	if (!r->rep_compare)
 		return;
 	fputs("## Since the last report\n\n", fp);
-	fprintf(fp, "Compared with `%s` (", r->o->previous);
+	fprintf(fp, "Compared with `%s` (its data: ", r->o->previous);
 	for (i = 0; i < r->rep_compare->nfields; i++)
 		if (strcmp(r->rep_compare->fields[i].key, "old_period") == 0)
 			md_value(fp, &r->rep_compare->fields[i].value, REPORT_STYLE_PLAIN);

@@ -1,0 +1,151 @@
+#!/usr/bin/env bash
+# cli_report_html.sh - report.html checked in a real browser.
+#
+# Headless Chromium (Debian's chromium package, installed by
+# scripts/setup.sh) renders the demo report's report.html, written with
+# --previous against a report of the same demo cut to an earlier date range,
+# to a PNG screenshot and to PDFs on US Letter and A4, and the test asserts:
+#   - the document is self-contained: no <script>, <link>, <img> or url to
+#     fetch (the SVG namespace URIs are names, not fetches);
+#   - no console message from the page in Chromium's log (--enable-logging
+#     --v=0 prints each as "CONSOLE"), checked blind-proof on a page that does
+#     log an error;
+#   - every figure is present with a non-zero rendered size: a test copy
+#     (only the copy) gets a script at the end of its body that writes each
+#     figure's laid-out size into the DOM, read back with --dump-dom; every
+#     figure carries an accessible name;
+#   - every section heading is in the DOM and in the PDF's text (pdftotext,
+#     Debian's poppler-utils);
+#   - the PDF's page count is within 8 to 24 pages on Letter and on A4
+#     (pdfinfo; nine sections, each from a new page, figures kept whole);
+#   - the recommendation sentence (the near-floor count from summary.json and
+#     the policy sentence's minimum) is in the PDF's text.
+# The screenshot is left in the test folder ($T/screenshot.png); docs/img/
+# report-html.png is a copy of its top.
+set -u
+HC=${HOLDCOUNT:?}
+T=${HOLDCOUNT_TEST_TMP:?}/cli_report_html
+rm -rf "$T"; mkdir -p "$T"
+fails=0
+fail() { echo "FAIL: $*"; fails=$((fails + 1)); }
+U=$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv
+FAST=(--paths 1000 --bootstrap 100 -q)
+
+for tool in chromium pdfinfo pdftotext python3; do
+	command -v "$tool" >/dev/null || { echo "FAIL: $tool is not installed (scripts/setup.sh installs it)"; exit 1; }
+done
+
+# Chromium as root needs --no-sandbox; each run gets a new, empty profile
+# and no network-facing background services.
+browse() { # OUT_LOG ARGS...: run headless Chromium, its log in OUT_LOG
+	local log=$1 profile
+	shift
+	profile=$(mktemp -d "$T/profile.XXXXXX")
+	timeout 120 chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
+		--disable-background-networking --disable-component-update --disable-sync \
+		--user-data-dir="$profile" --enable-logging=stderr --v=0 "$@" 2>"$log"
+	local rc=$?
+	rm -rf "$profile"
+	return $rc
+}
+console_clean() { # LOG: no page console message in a Chromium log
+	! grep -q 'CONSOLE' "$1"
+}
+
+# The previous report: the demo's first 180 months (2005-2019), with the
+# demo's funds; then this quarter's on the whole demo with --previous.
+head -n 181 "$U" >"$T/older.csv"
+"$HC" report "$T/older.csv" --holdings "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" \
+	--sectors "$HOLDCOUNT_SOURCE_DIR/data/demo-sectors.csv" -o "$T/old" "${FAST[@]}" || fail "older report exited $?"
+"$HC" report --demo --previous "$T/old" -o "$T/new" "${FAST[@]}" || fail "report --previous exited $?"
+H=$T/new/report.html
+[ -s "$H" ] || { echo "FAIL: no report.html"; exit 1; }
+
+# Self-contained: nothing to fetch, no script needed.
+grep -Eiq '<script|<link|<img|<iframe|@import|src=' "$H" && fail "report.html loads or runs something: $(grep -Eio '<script|<link|<img|<iframe|@import|src=' "$H" | head -3)"
+grep -Eo '(https?|ftp)://[^"'"'"' )]*' "$H" | grep -Ev '^http://www\.w3\.org/(2000/svg|1999/xlink)$' | head -3 >"$T/urls"
+[ -s "$T/urls" ] && fail "report.html names a URL to fetch: $(cat "$T/urls")"
+nfig=$(grep -c '<figure ' "$H")
+[ "$nfig" -eq 6 ] || fail "report.html has $nfig figures, expected the demo's 6"
+[ "$(grep -c '<svg role="img" aria-label="[^"]' "$H")" -eq "$nfig" ] || fail "a figure lacks role=img and an aria-label"
+[ "$(grep -c '<figcaption>' "$H")" -eq "$nfig" ] || fail "a figure lacks a caption"
+grep -q '<th scope="col">' "$H" || fail "tables have no column headers with scope"
+# the self-check columns stay out of the committee's tables: z appears in
+# the appendix only
+z_at=$(grep -n '<th scope="col">z</th>' "$H" | head -1 | cut -d: -f1)
+app_at=$(grep -n '<section id="appendix"' "$H" | cut -d: -f1)
+[ -n "$z_at" ] && [ -n "$app_at" ] && [ "$z_at" -gt "$app_at" ] || fail "the z column is not (only) in the appendix"
+
+# The sections, in order.
+SECTIONS=("Recommendation" "Since the last report" "The universe and its treatment" "Risk by holding count"
+	  "How many holdings are enough: every rule" "Audited funds" "The count needed through time" "Cautions"
+	  "Technical appendix: self-checks")
+
+# 1. Screenshot (the page as a reader first sees it, at a desktop width).
+browse "$T/shot.log" --window-size=1200,1600 --screenshot="$T/screenshot.png" "file://$H" || fail "screenshot: chromium exited $?"
+console_clean "$T/shot.log" || fail "console messages while rendering: $(grep CONSOLE "$T/shot.log" | head -3)"
+python3 - "$T/screenshot.png" <<'EOF' || fail "screenshot is not a 1200 x 1600 PNG of some content"
+import struct, sys, zlib
+data = open(sys.argv[1], "rb").read()
+assert data[:8] == b"\x89PNG\r\n\x1a\n" and data[12:16] == b"IHDR"    # PNG 1.2, 12.12 and 4.1.1
+w, h = struct.unpack(">II", data[16:24])
+assert (w, h) == (1200, 1600), (w, h)
+assert len(data) > 30000, len(data)   # a blank page compresses to a few kB
+EOF
+
+# 2. Laid-out sizes of every figure and the headings, from a test copy.
+sed 's|</body>|<script>(function(){var o=[];document.querySelectorAll("figure").forEach(function(f){var s=f.querySelector("svg");var r=s?s.getBoundingClientRect():{width:0,height:0};o.push("figure "+f.id+" "+Math.round(r.width)+" "+Math.round(r.height));});document.querySelectorAll("h2").forEach(function(h){o.push("h2 "+h.textContent);});var p=document.createElement("pre");p.id="hc-sizes";p.textContent=o.join("\\n");document.body.appendChild(p);})();</script></body>|' \
+	"$H" >"$T/new/report-sizes.html"
+browse "$T/dom.log" --window-size=1200,1600 --dump-dom "file://$T/new/report-sizes.html" >"$T/dom.html" || fail "dump-dom: chromium exited $?"
+console_clean "$T/dom.log" || fail "console messages in the sized copy: $(grep CONSOLE "$T/dom.log" | head -3)"
+python3 -c '
+import html, re, sys
+m = re.search(r"<pre id=\"hc-sizes\">(.*?)</pre>", open(sys.argv[1]).read(), re.S)
+print(html.unescape(m.group(1)) if m else "")' "$T/dom.html" >"$T/sizes"
+[ "$(grep -c '^figure ' "$T/sizes")" -eq "$nfig" ] || fail "the browser laid out $(grep -c '^figure ' "$T/sizes") figures, expected $nfig"
+while read -r _ id w h; do
+	[ "$w" -gt 300 ] && [ "$h" -gt 150 ] || fail "figure $id rendered at ${w} x ${h} pixels"
+	# the SVG keeps its 1000 x 640 shape
+	[ $((w * 640 / 1000 - h)) -le 2 ] && [ $((h - w * 640 / 1000)) -le 2 ] || fail "figure $id is ${w} x ${h}, not 1000:640"
+done < <(grep '^figure ' "$T/sizes")
+for s in "${SECTIONS[@]}"; do
+	grep -qxF "h2 $s" "$T/sizes" || fail "the page has no heading '$s'"
+done
+
+# 3. PDF on Letter (Chromium's default paper) and on A4 (a copy whose
+# @page names it), page counts and text.
+browse "$T/pdf.log" --no-pdf-header-footer --print-to-pdf="$T/letter.pdf" "file://$H" || fail "print to PDF: chromium exited $?"
+console_clean "$T/pdf.log" || fail "console messages while printing: $(grep CONSOLE "$T/pdf.log" | head -3)"
+sed 's|@page{size:auto;|@page{size:A4;|' "$H" >"$T/new/report-a4.html"
+grep -q '@page{size:A4;' "$T/new/report-a4.html" || fail "the A4 copy did not get its @page size"
+browse "$T/pdf4.log" --no-pdf-header-footer --print-to-pdf="$T/a4.pdf" "file://$T/new/report-a4.html" || fail "print to A4: chromium exited $?"
+for paper in letter:612x792 a4:595x842; do
+	f=$T/${paper%%:*}.pdf
+	pages=$(pdfinfo "$f" 2>/dev/null | sed -n 's/^Pages: *//p')
+	# points, rounded: Chromium lays A4 out as 594.96 x 841.92 (210 x 297 mm is 595.28 x 841.89)
+	size=$(pdfinfo "$f" 2>/dev/null | awk '/^Page size:/ { printf "%.0fx%.0f", $3, $5 }')
+	[ "$size" = "${paper#*:}" ] || fail "${paper%%:*}.pdf: page size $size, expected ${paper#*:} pt"
+	[ -n "$pages" ] && [ "$pages" -ge 8 ] && [ "$pages" -le 24 ] || fail "${paper%%:*}.pdf: $pages pages, expected 8 to 24"
+	pdftotext -layout "$f" - | tr -s ' \n' '  ' >"$T/${paper%%:*}.txt"
+	for s in "${SECTIONS[@]}"; do
+		grep -qF "$s" "$T/${paper%%:*}.txt" || fail "${paper%%:*}.pdf: no heading '$s' in its text"
+	done
+done
+# The recommendation: the near-floor count and its 95% end from summary.json.
+read -r count p05 p95 < <(python3 -c '
+import json, sys
+r = [r for r in json.load(open(sys.argv[1]))["enough"]["rules"] if r["rule"] == "near-floor"][0]
+print(r["count"], r["count_p05"], r["count_p95"])' "$T/new/summary.json")
+grep -qF "$count holdings (near-floor rule; 90% interval $p05 to $p95)" "$T/letter.txt" ||
+	fail "letter.pdf lacks the recommendation '$count holdings (near-floor rule; 90% interval $p05 to $p95)'"
+grep -qF "The portfolio holds at least $p95 securities of its universe" "$T/letter.txt" ||
+	fail "letter.pdf lacks the policy sentence with its minimum $p95"
+grep -qF "not investment advice" "$T/letter.txt" || fail "letter.pdf lacks the cautions"
+
+# The console check is not blind: a page that logs an error is caught.
+printf '<!DOCTYPE html><html lang="en"><title>x</title><p>x</p><script>console.error("hc-control")</script></html>\n' >"$T/control.html"
+browse "$T/control.log" --dump-dom "file://$T/control.html" >/dev/null
+console_clean "$T/control.log" && fail "the console check missed a page's console.error"
+
+echo "cli_report_html: $fails failures"
+[ $fails -eq 0 ]
