@@ -4,5 +4,6 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 bash scripts/setup.sh
 out=holdcount-report
-./build/holdcount report --force -o "$out"
-echo "demo: the report is in $(pwd)/$out (start with $out/summary.md)"
+./build/holdcount report --demo --force -o "$out"
+echo "demo: the report folder is $(pwd)/$out; open the committee's document:"
+echo "$(pwd)/$out/report.html"

@@ -7,7 +7,8 @@ cd "$(dirname "$0")/.."
 PACKAGES=(build-essential cmake pkg-config libgsl-dev libopenblas-dev libcsv-dev
           libcjson-dev libcmocka-dev python3 python3-numpy gnuplot-nox clang
           libclang-rt-14-dev valgrind strace time
-          groff-base man-db dpkg-dev util-linux)
+          groff-base man-db dpkg-dev util-linux
+          chromium poppler-utils)   # the browser test of report.html (tests/cli_report_html.sh)
 
 missing=()
 for p in "${PACKAGES[@]}"; do

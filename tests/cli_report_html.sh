@@ -54,11 +54,13 @@ console_clean() { # LOG: no page console message in a Chromium log
 
 # The previous report: the demo's first 180 months (2005-2019), with the
 # demo's funds; then this quarter's on the whole demo with --previous.
-head -n 181 "$U" >"$T/older.csv"
-"$HC" report "$T/older.csv" --holdings "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" \
-	--sectors "$HOLDCOUNT_SOURCE_DIR/data/demo-sectors.csv" -o "$T/old" "${FAST[@]}" || fail "older report exited $?"
-"$HC" report --demo --previous "$T/old" -o "$T/new" "${FAST[@]}" || fail "report --previous exited $?"
-H=$T/new/report.html
+# Relative names, as a quarterly script would use (the page shows them).
+cd "$T" || exit 1
+head -n 181 "$U" >universe-2019.csv
+"$HC" report universe-2019.csv --holdings "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" \
+	--sectors "$HOLDCOUNT_SOURCE_DIR/data/demo-sectors.csv" -o report-2019 "${FAST[@]}" || fail "older report exited $?"
+"$HC" report --demo --previous report-2019 -o report-2024 "${FAST[@]}" || fail "report --previous exited $?"
+H=$T/report-2024/report.html
 [ -s "$H" ] || { echo "FAIL: no report.html"; exit 1; }
 
 # Self-contained: nothing to fetch, no script needed.
@@ -82,21 +84,21 @@ SECTIONS=("Recommendation" "Since the last report" "The universe and its treatme
 	  "Technical appendix: self-checks")
 
 # 1. Screenshot (the page as a reader first sees it, at a desktop width).
-browse "$T/shot.log" --window-size=1200,1600 --screenshot="$T/screenshot.png" "file://$H" || fail "screenshot: chromium exited $?"
+browse "$T/shot.log" --window-size=1000,1300 --screenshot="$T/screenshot.png" "file://$H" || fail "screenshot: chromium exited $?"
 console_clean "$T/shot.log" || fail "console messages while rendering: $(grep CONSOLE "$T/shot.log" | head -3)"
-python3 - "$T/screenshot.png" <<'EOF' || fail "screenshot is not a 1200 x 1600 PNG of some content"
+python3 - "$T/screenshot.png" <<'EOF' || fail "screenshot is not a 1000 x 1300 PNG of some content"
 import struct, sys, zlib
 data = open(sys.argv[1], "rb").read()
 assert data[:8] == b"\x89PNG\r\n\x1a\n" and data[12:16] == b"IHDR"    # PNG 1.2, 12.12 and 4.1.1
 w, h = struct.unpack(">II", data[16:24])
-assert (w, h) == (1200, 1600), (w, h)
+assert (w, h) == (1000, 1300), (w, h)
 assert len(data) > 30000, len(data)   # a blank page compresses to a few kB
 EOF
 
 # 2. Laid-out sizes of every figure and the headings, from a test copy.
 sed 's|</body>|<script>(function(){var o=[];document.querySelectorAll("figure").forEach(function(f){var s=f.querySelector("svg");var r=s?s.getBoundingClientRect():{width:0,height:0};o.push("figure "+f.id+" "+Math.round(r.width)+" "+Math.round(r.height));});document.querySelectorAll("h2").forEach(function(h){o.push("h2 "+h.textContent);});var p=document.createElement("pre");p.id="hc-sizes";p.textContent=o.join("\\n");document.body.appendChild(p);})();</script></body>|' \
-	"$H" >"$T/new/report-sizes.html"
-browse "$T/dom.log" --window-size=1200,1600 --dump-dom "file://$T/new/report-sizes.html" >"$T/dom.html" || fail "dump-dom: chromium exited $?"
+	"$H" >"$T/report-2024/report-sizes.html"
+browse "$T/dom.log" --window-size=1200,1600 --dump-dom "file://$T/report-2024/report-sizes.html" >"$T/dom.html" || fail "dump-dom: chromium exited $?"
 console_clean "$T/dom.log" || fail "console messages in the sized copy: $(grep CONSOLE "$T/dom.log" | head -3)"
 python3 -c '
 import html, re, sys
@@ -116,9 +118,9 @@ done
 # @page names it), page counts and text.
 browse "$T/pdf.log" --no-pdf-header-footer --print-to-pdf="$T/letter.pdf" "file://$H" || fail "print to PDF: chromium exited $?"
 console_clean "$T/pdf.log" || fail "console messages while printing: $(grep CONSOLE "$T/pdf.log" | head -3)"
-sed 's|@page{size:auto;|@page{size:A4;|' "$H" >"$T/new/report-a4.html"
-grep -q '@page{size:A4;' "$T/new/report-a4.html" || fail "the A4 copy did not get its @page size"
-browse "$T/pdf4.log" --no-pdf-header-footer --print-to-pdf="$T/a4.pdf" "file://$T/new/report-a4.html" || fail "print to A4: chromium exited $?"
+sed 's|@page{size:auto;|@page{size:A4;|' "$H" >"$T/report-2024/report-a4.html"
+grep -q '@page{size:A4;' "$T/report-2024/report-a4.html" || fail "the A4 copy did not get its @page size"
+browse "$T/pdf4.log" --no-pdf-header-footer --print-to-pdf="$T/a4.pdf" "file://$T/report-2024/report-a4.html" || fail "print to A4: chromium exited $?"
 for paper in letter:612x792 a4:595x842; do
 	f=$T/${paper%%:*}.pdf
 	pages=$(pdfinfo "$f" 2>/dev/null | sed -n 's/^Pages: *//p')
@@ -135,7 +137,7 @@ done
 read -r count p05 p95 < <(python3 -c '
 import json, sys
 r = [r for r in json.load(open(sys.argv[1]))["enough"]["rules"] if r["rule"] == "near-floor"][0]
-print(r["count"], r["count_p05"], r["count_p95"])' "$T/new/summary.json")
+print(r["count"], r["count_p05"], r["count_p95"])' "$T/report-2024/summary.json")
 grep -qF "$count holdings (near-floor rule; 90% interval $p05 to $p95)" "$T/letter.txt" ||
 	fail "letter.pdf lacks the recommendation '$count holdings (near-floor rule; 90% interval $p05 to $p95)'"
 grep -qF "The portfolio holds at least $p95 securities of its universe" "$T/letter.txt" ||
