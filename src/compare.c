@@ -430,6 +430,14 @@ static int parse(cJSON **root, const char *text, const char *label, struct hc_er
 	*root = cJSON_Parse(text);
 	if (!*root) {
 		const char *at = cJSON_GetErrorPtr();
+		/* cJSON returns NULL alike for bad syntax and for a failed
+		 * allocation; its tree takes a few times the text's size, so
+		 * when that much cannot be had, say out of memory rather than
+		 * blame the file. */
+		void *probe = hc_malloc(4 * strlen(text) + 4096);
+		if (!probe)
+			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", label);
+		hc_free(probe);
 		return hc_error(err, HC_EDATA, "'%s': not JSON (the parse stops at '%.20s')", label, at ? at : "");
 	}
 	if (!cJSON_IsString(get(*root, "holdcount_version")) || !cJSON_IsObject(get(*root, "universe")))

@@ -27,6 +27,8 @@
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/plots.h"
+#include "holdcount/rules.h"
+#include "holdcount/universe.h"
 
 #define VBAR 0.0046619
 #define CBAR 0.0007058
@@ -291,6 +293,88 @@ static void test_plots_script_allocation_failure(void **state)
 	hc_curve_free(c);
 }
 
+
+/*
+ * The rolling plot's date axis: ticks chosen by the span, each labelled
+ * once.  gnuplot's own choice under format "%Y" labelled a span of three
+ * years "2020 2020 2021 ..."; here 36 monthly windows get ticks a few
+ * months apart labelled YYYY-MM, and 20 years of yearly windows get year
+ * labels, never more than nine ticks.  The count axis is log-scaled with
+ * whole-number ticks covering the counts drawn (12 to 200 here).
+ */
+static void rolling_ticks(size_t nwin, int months_apart, size_t *nticks, int *yearly)
+{
+	struct rolling_window *w = hc_calloc(nwin, sizeof *w);
+	struct rolling_result r;
+	struct curve *c = make_curve();
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	char *buf = NULL, *tics, *p, labels[16][16], date[16];
+	size_t len = 0, j, k;
+	FILE *mem;
+
+	assert_non_null(w);
+	memset(&r, 0, sizeof r);
+	r.window = 24;
+	r.step = (size_t)months_apart;
+	r.periods_per_year = 12;
+	r.rules = RULES_FLAG(RULES_NEAR_FLOOR);
+	r.nwindows = nwin;
+	r.windows = w;
+	for (j = 0; j < nwin; j++) {
+		int m = 2019 * 12 + 11 + (int)j * months_apart;   /* from 2019-12 */
+		snprintf(date, sizeof date, "%04d-%02d-28", m / 12, m % 12 + 1);
+		assert_int_equal(hc_universe_parse_date(date, strlen(date), &w[j].end_date), HC_OK);
+		w[j].status = HC_OK;
+		w[j].nrules = 1;
+		w[j].rules[0].defined = 1;
+		w[j].rules[0].met = 1;
+		w[j].rules[0].count = j % 2 ? 12 : 200;
+	}
+	in.rolling = &r;
+	assert_true(hc_plots_available(PLOTS_ROLLING, &in));
+	mem = open_memstream(&buf, &len);
+	assert_int_equal(hc_plots_write_script(mem, PLOTS_ROLLING, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(mem);
+	assert_non_null(strstr(buf, "set logscale y\n"));
+	assert_non_null(strstr(buf, "set ytics (10, 15, 20, 30, 50, 70, 100, 150, 200)"));
+	tics = strstr(buf, "set xtics (");
+	assert_non_null(tics);
+	*nticks = 0;
+	*yearly = 1;
+	for (p = strchr(tics, '"'); p && p < strchr(tics, '\n'); p = strchr(p + 1, '"')) {
+		/* "LABEL" "YYYY-MM-01": the label, then the tick's date */
+		char *label_end = strchr(p + 1, '"'), *date_start = strchr(label_end + 1, '"');
+		size_t n = (size_t)(label_end - p - 1);
+		assert_true(n < 16 && *nticks < 16);
+		memcpy(labels[*nticks], p + 1, n);
+		labels[*nticks][n] = 0;
+		*yearly &= n == 4;
+		for (k = 0; k < *nticks; k++)
+			assert_string_not_equal(labels[k], labels[*nticks]);
+		(*nticks)++;
+		assert_non_null(date_start);
+		assert_int_equal(strncmp(date_start + 8, "-01\"", 4), 0);
+		p = strchr(date_start + 1, '"');   /* the date's closing quote */
+	}
+	free(buf);
+	hc_free(w);
+	hc_curve_free(c);
+}
+
+static void test_plots_rolling_date_ticks_by_span(void **state)
+{
+	size_t n;
+	int yearly;
+
+	(void)state;
+	rolling_ticks(36, 1, &n, &yearly);      /* three years of monthly windows */
+	assert_true(n >= 4 && n <= 9);
+	assert_false(yearly);
+	rolling_ticks(21, 12, &n, &yearly);     /* twenty years of yearly windows */
+	assert_true(n >= 4 && n <= 9);
+	assert_true(yearly);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -301,6 +385,7 @@ int main(void)
 		cmocka_unit_test(test_plots_funds_mark_a_failing_fund),
 		cmocka_unit_test(test_plots_render_treats_a_warning_as_failure),
 		cmocka_unit_test(test_plots_script_allocation_failure),
+		cmocka_unit_test(test_plots_rolling_date_ticks_by_span),
 	};
 
 	gsl_set_error_handler_off();

@@ -1,0 +1,259 @@
+/*
+ * Unit tests for the HTML report writer (htmlreport.h).
+ *
+ * Small result objects are built here and the document is checked for what
+ * the writer promises: the sections in order, text escaped (HTML 5, section
+ * 13.1.2.6: '<' and '&' in text, '"' in attribute values), the SVG inlined
+ * with its ids prefixed and an accessible name, the committee's curve table
+ * at the readable grid with the self-check column z only in the appendix,
+ * the recommendation from the rules table or from a chosen recommendation,
+ * and a write error reported as HC_EIO.  How it looks in a browser is
+ * tests/cli_report_html.sh's job.
+ */
+#define _POSIX_C_SOURCE 200809L
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include "holdcount/htmlreport.h"
+
+struct fixture {
+	struct report *universe, *curve, *enough;
+	struct htmlreport_figure fig[2];
+	struct htmlreport_input in;
+};
+
+static const char svg[] =
+	"<?xml version=\"1.0\" encoding=\"utf-8\"  standalone=\"no\"?>\n"
+	"<svg \n viewBox=\"0 0 1000 640\"\n xmlns=\"http://www.w3.org/2000/svg\">\n<title>Gnuplot</title>\n"
+	"<g id=\"gnuplot_canvas\"><defs><path id='gpPt0' d='M-1,0 h2'/></defs>"
+	"<use xlink:href='#gpPt0' x='3'/><rect fill='url(#gpPat1)'/></g></svg>\n";
+
+static void build(struct fixture *f)
+{
+	static const long long grid[] = { 1, 4, 10, 139 };
+	struct report_table *t;
+	size_t i;
+
+	memset(f, 0, sizeof *f);
+	f->universe = hc_report_alloc();
+	f->curve = hc_report_alloc();
+	f->enough = hc_report_alloc();
+	assert_non_null(f->universe);
+	assert_int_equal(hc_report_add_text(f->universe, "source", "source", "data/a<b&c.csv"), HC_OK);
+	assert_int_equal(hc_report_add_text(f->universe, "first_date", "first", "2005-01-31"), HC_OK);
+	assert_int_equal(hc_report_add_text(f->universe, "last_date", "last", "2024-12-31"), HC_OK);
+	assert_int_equal(hc_report_add_int(f->universe, "securities", "kept", 139), HC_OK);
+	assert_int_equal(hc_report_add_cautions(f->universe), HC_OK);
+	t = hc_report_add_table(f->curve, "curve", NULL);
+	assert_non_null(t);
+	assert_int_equal(hc_report_table_add_column(t, "n", "holdings", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "expected_sd", "sqrt E[var]", REPORT_STYLE_PERCENT), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "z_score", "z", REPORT_STYLE_FIXED2), HC_OK);
+	for (i = 0; i < 4; i++) {
+		assert_int_equal(hc_report_table_add_row(t), HC_OK);
+		hc_report_table_set_int(t, i, 0, grid[i]);
+		hc_report_table_set_real(t, i, 1, 0.3433 / (double)(i + 1));
+		hc_report_table_set_real(t, i, 2, 0.41);
+	}
+	t = hc_report_add_table(f->enough, "rules", NULL);
+	assert_non_null(t);
+	assert_int_equal(hc_report_table_add_column(t, "rule", "rule", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "parameters", "parameters", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "count", "count", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "count_p05", "5%", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "count_p95", "95%", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "met", "met", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_row(t), HC_OK);
+	assert_int_equal(hc_report_table_set_text(t, 0, 0, "marginal"), HC_OK);
+	hc_report_table_set_int(t, 0, 2, 17);
+	hc_report_table_set_bool(t, 0, 5, 1);
+	assert_int_equal(hc_report_table_add_row(t), HC_OK);
+	assert_int_equal(hc_report_table_set_text(t, 1, 0, "near-floor"), HC_OK);
+	assert_int_equal(hc_report_table_set_text(t, 1, 1, "x=10%"), HC_OK);
+	hc_report_table_set_int(t, 1, 2, 21);
+	hc_report_table_set_int(t, 1, 3, 18);
+	hc_report_table_set_int(t, 1, 4, 24);
+	hc_report_table_set_bool(t, 1, 5, 1);
+	f->fig[0] = (struct htmlreport_figure){ "risk", "Risk by count", "How to read it.", svg, HTMLREPORT_CURVE };
+	f->fig[1] = (struct htmlreport_figure){ "share", "Share", "Not drawn.", NULL, HTMLREPORT_CURVE };
+	f->in.version = "9.9.9";
+	f->in.date = "2026-12-03";
+	f->in.universe = f->universe;
+	f->in.curve = f->curve;
+	f->in.enough = f->enough;
+	f->in.rolling_why = "`--window 0` was given";
+	f->in.figures = f->fig;
+	f->in.nfigures = 2;
+}
+
+static void release(struct fixture *f)
+{
+	hc_report_free(f->universe);
+	hc_report_free(f->curve);
+	hc_report_free(f->enough);
+}
+
+/* The document for f->in, as a string the caller frees. */
+static char *write_doc(const struct fixture *f)
+{
+	char *buf = NULL;
+	size_t len = 0;
+	struct hc_error err;
+	FILE *fp = open_memstream(&buf, &len);
+
+	assert_non_null(fp);
+	assert_int_equal(hc_htmlreport_write(fp, &f->in, &err), HC_OK);
+	assert_int_equal(fclose(fp), 0);
+	return buf;
+}
+
+static void test_htmlreport_sections_in_order(void **state)
+{
+	struct fixture f;
+	const char *prev;
+	char *doc, id[64];
+	size_t s;
+
+	(void)state;
+	build(&f);
+	doc = write_doc(&f);
+	assert_true(strncmp(doc, "<!DOCTYPE html>\n<html lang=\"en\">", 32) == 0);
+	prev = doc;
+	for (s = 0; s < hc_htmlreport_nsections; s++) {
+		snprintf(id, sizeof id, "<section id=\"%s\"", hc_htmlreport_sections[s][0]);
+		if (strcmp(hc_htmlreport_sections[s][0], "since") == 0) {
+			assert_null(strstr(doc, id));    /* no previous report given */
+			continue;
+		}
+		assert_non_null(strstr(prev, id));
+		prev = strstr(prev, id);
+	}
+	assert_non_null(strstr(doc, "No holdings were given"));
+	assert_non_null(strstr(doc, "Left out: `--window 0` was given."));
+	assert_null(strstr(doc, "<script"));
+	assert_non_null(strstr(doc, "@media print"));
+	assert_non_null(strstr(doc, "not investment advice"));
+	free(doc);
+	release(&f);
+}
+
+static void test_htmlreport_escapes_text(void **state)
+{
+	struct fixture f;
+	char *doc;
+
+	(void)state;
+	build(&f);
+	doc = write_doc(&f);
+	assert_non_null(strstr(doc, "data/a&lt;b&amp;c.csv"));
+	assert_null(strstr(doc, "a<b&c"));
+	free(doc);
+	release(&f);
+}
+
+static void test_htmlreport_inlines_svg(void **state)
+{
+	struct fixture f;
+	char *doc;
+
+	(void)state;
+	build(&f);
+	doc = write_doc(&f);
+	assert_null(strstr(doc, "<?xml"));
+	assert_non_null(strstr(doc, "<svg role=\"img\" aria-label=\"Risk by count\" \n viewBox=\"0 0 1000 640\""));
+	assert_non_null(strstr(doc, "<title>Risk by count</title>"));
+	assert_non_null(strstr(doc, "id=\"risk-gnuplot_canvas\""));
+	assert_non_null(strstr(doc, "id='risk-gpPt0'"));
+	assert_non_null(strstr(doc, "xlink:href='#risk-gpPt0'"));
+	assert_non_null(strstr(doc, "url(#risk-gpPat1)"));
+	assert_null(strstr(doc, "id='gpPt0'"));
+	/* the figure without a render says so, still with an accessible name */
+	assert_non_null(strstr(doc, "role=\"img\" aria-label=\"Share\">Not rendered"));
+	assert_non_null(strstr(doc, "<figcaption><strong>Risk by count.</strong> How to read it.</figcaption>"));
+	free(doc);
+	release(&f);
+}
+
+static void test_htmlreport_committee_tables(void **state)
+{
+	struct fixture f;
+	char *doc, *appendix, *z;
+
+	(void)state;
+	build(&f);
+	doc = write_doc(&f);
+	appendix = strstr(doc, "<section id=\"appendix\"");
+	assert_non_null(appendix);
+	z = strstr(doc, "<th scope=\"col\">z</th>");
+	assert_true(z != NULL && z > appendix);
+	/* 1, 10 and 139 (= M, the last row) are on the readable grid; 4 is not */
+	assert_non_null(strstr(doc, "<th scope=\"row\">1</th>"));
+	assert_non_null(strstr(doc, "<th scope=\"row\">10</th>"));
+	assert_non_null(strstr(doc, "<th scope=\"row\">139</th>"));
+	assert_null(strstr(doc, "<th scope=\"row\">4</th>"));
+	free(doc);
+	release(&f);
+}
+
+static void test_htmlreport_recommendation(void **state)
+{
+	struct fixture f;
+	char *doc;
+
+	(void)state;
+	build(&f);
+	doc = write_doc(&f);
+	/* the near-floor row, though it is not the first rule of the table */
+	assert_non_null(strstr(doc, "21 holdings <small>(near-floor rule; 90% interval 18 to 24)</small>"));
+	assert_non_null(strstr(doc, "The portfolio holds at least 24 securities of its universe"));
+	assert_non_null(strstr(doc, "give counts from 17 (marginal) to 21 (near-floor)"));
+	free(doc);
+	/* a chosen recommendation takes its place */
+	assert_int_equal(hc_report_add_text(f.enough, "recommended_rule", "rule", "marginal"), HC_OK);
+	assert_int_equal(hc_report_add_int(f.enough, "recommended_count", "count", 19), HC_OK);
+	assert_int_equal(hc_report_add_text(f.enough, "policy_sentence", "sentence", "Hold 19 or more."), HC_OK);
+	doc = write_doc(&f);
+	assert_non_null(strstr(doc, "19 holdings <small>(marginal rule)</small>"));
+	assert_non_null(strstr(doc, "<blockquote class=\"policy\">Hold 19 or more.</blockquote>"));
+	free(doc);
+	release(&f);
+}
+
+static void test_htmlreport_errors(void **state)
+{
+	struct fixture f;
+	struct hc_error err;
+	FILE *fp;
+
+	(void)state;
+	build(&f);
+	f.in.enough = NULL;
+	assert_int_equal(hc_htmlreport_write(stdout, &f.in, &err), HC_EUSAGE);
+	f.in.enough = f.enough;
+	fp = fopen("/dev/full", "w");
+	assert_non_null(fp);
+	setvbuf(fp, NULL, _IONBF, 0);
+	assert_int_equal(hc_htmlreport_write(fp, &f.in, &err), HC_EIO);
+	fclose(fp);
+	release(&f);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_htmlreport_sections_in_order),
+		cmocka_unit_test(test_htmlreport_escapes_text),
+		cmocka_unit_test(test_htmlreport_inlines_svg),
+		cmocka_unit_test(test_htmlreport_committee_tables),
+		cmocka_unit_test(test_htmlreport_recommendation),
+		cmocka_unit_test(test_htmlreport_errors),
+	};
+
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
