@@ -179,15 +179,32 @@ static void table_head(FILE *fp, const char *caption, const struct column *cols,
 	fputs("</tr></thead>\n<tbody>\n", fp);
 }
 
+/* Whether a column holds numbers (and no text): its cells align right,
+ * a missing value's "-" among them. */
+static int numeric_column(const struct report_table *t, const char *key)
+{
+	size_t row;
+	int any = 0;
+
+	for (row = 0; row < t->nrows; row++) {
+		const struct report_value *v = cell(t, row, key);
+		if (v->kind == REPORT_TEXT || v->kind == REPORT_BOOL)
+			return 0;
+		any |= is_number(v);
+	}
+	return any;
+}
+
 /* One row: the first column is the row's header cell. */
-static void table_row(FILE *fp, const struct report_table *t, size_t row, const struct column *cols, size_t n)
+static void table_row(FILE *fp, const struct report_table *t, size_t row, const struct column *cols, size_t n,
+		      const int *numeric)
 {
 	size_t j;
 
 	fputs("<tr>", fp);
 	for (j = 0; j < n; j++) {
 		const struct report_value *v = cell(t, row, cols[j].key);
-		fputs(j == 0 ? "<th scope=\"row\">" : is_number(v) ? "<td class=\"n\">" : "<td>", fp);
+		fputs(j == 0 ? "<th scope=\"row\">" : is_number(v) || numeric[j] ? "<td class=\"n\">" : "<td>", fp);
 		value(fp, v);
 		fputs(j == 0 ? "</th>" : "</td>", fp);
 	}
@@ -216,15 +233,18 @@ static void whole_table(FILE *fp, const struct report_table *t, const char *capt
 			size_t n, int (*keep)(const struct report_table *, size_t, const void *), const void *ctx)
 {
 	struct column shown[32];
-	size_t k, row;
+	int numeric[32];
+	size_t k, j, row;
 
 	if (!t)
 		return;
 	k = present(t, cols, n < 32 ? n : 32, shown);
+	for (j = 0; j < k; j++)
+		numeric[j] = numeric_column(t, shown[j].key);
 	table_head(fp, caption, shown, k);
 	for (row = 0; row < t->nrows; row++)
 		if (!keep || keep(t, row, ctx))
-			table_row(fp, t, row, shown, k);
+			table_row(fp, t, row, shown, k, numeric);
 	fputs("</tbody>\n</table>\n", fp);
 }
 
@@ -726,7 +746,7 @@ static void appendix(FILE *fp, const struct htmlreport_input *in)
 {
 	static const struct column curve_cols[] = {
 		{ "n", "holdings" }, { "expected_variance", "E[var]" }, { "expected_sd", "sqrt E[var] a year" },
-		{ "sd_of_variance", "sd of var" }, { "sampled_variance", "sampled var" },
+		{ "variance_sd", "sd of var" }, { "sampled_mean_variance", "sampled var" },
 		{ "sampled_variance_se", "its MC s.e." }, { "sampled_mean_sd", "mean sd" }, { "z_score", "z" },
 	};
 	static const struct column rule_cols[] = {

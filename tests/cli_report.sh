@@ -92,6 +92,9 @@ for f in summary.md summary.json curve.csv enough.csv risk.gp exact.dat README-p
 done
 grep -q 'gnuplot risk.gp' "$T/nognuplot/README-plots.txt" || fail "README-plots.txt does not say how to render"
 grep -q 'gnuplot risk.gp' "$T/nognuplot/summary.md" || fail "summary.md does not say how to render"
+# report.html is still written, each figure saying it was not rendered
+[ "$(grep -c 'role="img" aria-label="[^"]*">Not rendered: gnuplot was not found' "$T/nognuplot/report.html")" -eq 6 ] ||
+	fail "report.html without gnuplot does not say, for each of the 6 figures, that it was not rendered"
 ls "$T"/nognuplot/*.png >/dev/null 2>&1 && fail "PNG files without gnuplot"
 (cd "$T/nognuplot" && for g in *.gp; do gnuplot "$g" 2>>"$T/render-err"; done)
 [ -s "$T/render-err" ] && fail "rendering the scripts by hand printed: $(head -3 "$T/render-err")"

@@ -965,7 +965,8 @@ static int write_markdown(struct reportdir *rd, struct run *r, const struct plot
 	if (r->rep_audit)
 		fputs("- regulatory screens: written from memory of the published texts and testing weights only; "
 		      "verify against the current text and defer to compliance counsel\n", fp);
-	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
+	fputs("\n## Files\n\n- `report.html`: the committee's document, one self-contained file (the plots inline as "
+	      "SVG; `*.svg` are the same plots)\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
 	      "`--format csv` and the same options\n", fp);
 	if (r->rep_audit)

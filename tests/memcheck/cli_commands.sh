@@ -54,6 +54,10 @@ run enough enough --paths 200 --seed 11 "$U"
 run audit audit --paths 200 --seed 3 --max-weight 20% --holdings "$SCRATCH/funds.csv" "$U"
 OUT=$SCRATCH/report/summary.md run report report -q --paths 100 --bootstrap 20 --seed 3 \
 	--holdings "$SCRATCH/funds.csv" -o "$SCRATCH/report" "$U"
+# a second report with --previous (report.html's since section), and compare
+OUT=$SCRATCH/report2/report.html run report-previous report -q --paths 100 --bootstrap 20 --seed 4 \
+	--holdings "$SCRATCH/funds.csv" --previous "$SCRATCH/report" -o "$SCRATCH/report2" "$U"
+run compare compare --format json "$SCRATCH/report" "$SCRATCH/report2"
 
 # rolling windows (and their bootstrap), kept small: 104 weeks in windows of 52
 run rolling rolling --window 52 --step 26 --bootstrap 20 --seed 5 "$U"
