@@ -99,7 +99,7 @@ unsigned hc_plots_data_used(int kind)
 #define FRAME_RIGHT 0.97
 #define FRAME_TOP 0.88
 #define FRAME_BOTTOM 0.13
-#define FRAME_BOTTOM_KEY_BELOW 0.27
+#define FRAME_BOTTOM_KEY_BELOW 0.33
 
 /* Rule labels: the top row's height and the distance between rows, as
  * fractions of the y axis; the room kept between a label's row and the
@@ -1063,7 +1063,7 @@ static void risk_plot(FILE *fp, int kind, const struct plots_input *in, const st
 	frame_margins(fp, L->key_below);
 	fprintf(fp, "set yrange [0:%.10g]\n", L->ymax);
 	if (L->key_below)
-		fputs("set key outside below center horizontal maxrows 2\n", fp);
+		fputs("set key outside below center horizontal maxcols 2 width -2\n", fp);
 	fputs("plot ", fp);
 	if (in->sampled)
 		fputs("'sampled.dat' using 1:3:4 with filledcurves ls 3 title \"middle 90% of random portfolios' sd\", "
