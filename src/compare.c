@@ -143,19 +143,25 @@ static int each_fund(struct cmp *c, int (*fn)(struct cmp *, const char *, int), 
 	return HC_OK;
 }
 
-/* The fund's verdict; with want_changed 1 only changed ones, with 0 only
- * unchanged ones, so that changed verdicts come first. */
+/* The fund's verdict: whether it passes the policy and, when the audit
+ * gives one, its verdict in words (pass, fail, insufficient data); with
+ * want_changed 1 only changed ones, with 0 only unchanged ones, so that
+ * changed verdicts come first. */
 static int verdict(struct cmp *c, const char *name, int want_changed)
 {
-	const cJSON *a = get(find_row(funds_of(c->old), "fund", name), "passed");
-	const cJSON *b = get(find_row(funds_of(c->new), "fund", name), "passed");
+	const cJSON *fa = find_row(funds_of(c->old), "fund", name), *fb = find_row(funds_of(c->new), "fund", name);
+	const cJSON *a = get(fa, "passed"), *b = get(fb, "passed"), *va = get(fa, "verdict"), *vb = get(fb, "verdict");
 	char item[256];
+	int changed = !same(a, b) || !same(va, vb);
 
-	if ((!same(a, b)) != want_changed)
+	if (changed != want_changed)
 		return HC_OK;
 	c->verdicts += (size_t)want_changed;
 	snprintf(item, sizeof item, "%s passes the policy", name);
-	return add(c, "verdict", item, a, b, REPORT_STYLE_PLAIN);
+	if (add(c, "verdict", item, a, b, REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	snprintf(item, sizeof item, "%s: verdict", name);
+	return va || vb ? add(c, "verdict", item, va, vb, REPORT_STYLE_PLAIN) : HC_OK;
 }
 
 static int add_verdicts(struct cmp *c)
@@ -341,9 +347,8 @@ static int fund_figures(struct cmp *c, const char *name, int unused)
 		{ "sd_percentile", "sd percentile", REPORT_STYLE_PERCENT },
 		{ "missing_count", "holdings missing from the universe", REPORT_STYLE_PLAIN },
 		{ "missing_weight", "weight missing from the universe", REPORT_STYLE_PERCENT },
-		{ "coverage", "coverage", REPORT_STYLE_PERCENT },
-		{ "covered_weight", "weight covered by the history", REPORT_STYLE_PERCENT },
-		{ "coverage_flag", "coverage flag", REPORT_STYLE_PLAIN },
+		{ "covered_weight", "weight its risk uses (coverage)", REPORT_STYLE_PERCENT },
+		{ "risk_holdings", "holdings its risk uses", REPORT_STYLE_PLAIN },
 	};
 	const cJSON *a = find_row(funds_of(c->old), "fund", name), *b = find_row(funds_of(c->new), "fund", name);
 	char item[320];

@@ -658,11 +658,13 @@ static void rules(FILE *fp, const struct htmlreport_input *in)
 static void funds(FILE *fp, const struct htmlreport_input *in)
 {
 	static const struct column cols[] = {
-		{ "fund", "fund" }, { "passed", "passes the policy" }, { "failed_rules", "fails on" },
+		{ "fund", "fund" }, { "verdict", "verdict" }, { "passed", "passes the policy" },
+		{ "failed_rules", "fails on" },
 		{ "holdings", "holdings" }, { "effective_holdings", "effective holdings 1/HHI" },
 		{ "max_weight", "largest weight" }, { "sd", "sd a year" }, { "sd_percentile", "sd percentile among random portfolios" },
 		{ "missing_count", "holdings missing from the universe" },
-		{ "missing_weight", "their weight" }, { "coverage", "coverage" }, { "coverage_flag", "coverage flag" },
+		{ "missing_weight", "their weight" }, { "covered_weight", "weight its risk uses (coverage)" },
+		{ "risk_holdings", "holdings its risk uses" },
 		{ "ucits", "UCITS Art. 52" }, { "1940act", "1940 Act 5(b)(1)" }, { "ric", "IRC 851(b)(3)" },
 	};
 

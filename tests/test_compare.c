@@ -158,6 +158,33 @@ static void test_compare_same(void **state)
 	hc_report_free(r);
 }
 
+
+/* An audit that gives a verdict in words (pass, fail, insufficient data):
+ * a change of it is a changed verdict, even when "passed" stays. */
+static void test_compare_verdict_words(void **state)
+{
+	static const char a[] = "{\"holdcount_version\": \"0.2.0\", \"universe\": {},"
+		" \"audit\": {\"funds\": [{\"fund\": \"Cedar Income\", \"passed\": true, \"verdict\": \"pass\"}]}}";
+	static const char b[] = "{\"holdcount_version\": \"0.2.0\", \"universe\": {},"
+		" \"audit\": {\"funds\": [{\"fund\": \"Cedar Income\", \"passed\": true,"
+		" \"verdict\": \"insufficient data\"}]}}";
+	struct report *r = NULL;
+	struct hc_error err;
+	const struct report_table *t;
+
+	(void)state;
+	assert_int_equal(hc_compare_summaries(&r, a, "a", b, "b", &err), HC_OK);
+	t = hc_report_find_table(r, "changes");
+	assert_int_equal(field(r, "verdict_changes")->value.integer, 1);
+	assert_string_equal(at(t, 0, 1)->text, "Cedar Income passes the policy");
+	assert_int_equal(at(t, 0, 5)->integer, 0);
+	assert_string_equal(at(t, 1, 1)->text, "Cedar Income: verdict");
+	assert_string_equal(at(t, 1, 2)->text, "pass");
+	assert_string_equal(at(t, 1, 3)->text, "insufficient data");
+	assert_int_equal(at(t, 1, 5)->integer, 1);
+	hc_report_free(r);
+}
+
 static void test_compare_not_a_summary(void **state)
 {
 	struct report *r = (struct report *)&r;
@@ -201,6 +228,7 @@ int main(void)
 		cmocka_unit_test(test_compare_verdict_first),
 		cmocka_unit_test(test_compare_figures),
 		cmocka_unit_test(test_compare_same),
+		cmocka_unit_test(test_compare_verdict_words),
 		cmocka_unit_test(test_compare_not_a_summary),
 		cmocka_unit_test(test_compare_out_of_memory),
 	};
