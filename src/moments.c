@@ -13,6 +13,7 @@
  * spread formula's cancellation (E[X^2] - E[X]^2) starts from accurate sums.
  */
 #include "holdcount/moments.h"
+#include "holdcount/source.h"
 
 #include <math.h>
 #include <stdint.h>
@@ -162,8 +163,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 	return HC_OK;
 }
 
-int hc_moments_from_matrix(struct moments *mo, const double *a, size_t m,
-			struct hc_error *err)
+static int from_matrix(struct moments *mo, const double *a, size_t m, struct hc_error *err)
 {
 	memset(mo, 0, sizeof *mo);
 	if (m < 2)
@@ -633,4 +633,24 @@ int hc_moments_from_universe(struct moments *mo, const struct universe *u,
 	if (!u->has_missing)
 		route = u->t < u->m ? MOMENTS_ROUTE_GRAM : MOMENTS_ROUTE_MATRIX;
 	return hc_moments_from_universe_route(mo, u, route, err);
+}
+
+int hc_moments_from_source(struct moments *mo, const struct hc_source *src, struct hc_error *err)
+{
+	int rc;
+
+	switch (src->kind) {
+	case HC_SOURCE_SERIES:
+		return hc_moments_from_universe(mo, src->u, err);
+	case HC_SOURCE_PAIRWISE:
+		return src->psd.repaired ? from_matrix(mo, src->cm->a, src->cm->m, err)
+					 : hc_moments_from_universe(mo, src->u, err);
+	case HC_SOURCE_MATRIX:
+		rc = from_matrix(mo, src->cm->a, src->cm->m, err);
+		if (rc)
+			hc_error_prefix(err, src->name);
+		return rc;
+	}
+	memset(mo, 0, sizeof *mo);
+	return hc_error(err, HC_EUSAGE, "unknown data source kind %d", src->kind);
 }

@@ -408,6 +408,11 @@ static const char *format_text(char *buf, size_t size, const struct report_value
 	}
 }
 
+const char *hc_report_value_text(char *buf, size_t size, const struct report_value *v)
+{
+	return format_text(buf, size, v);
+}
+
 static int write_failed(struct hc_error *err)
 {
 	return hc_error(err, HC_EIO, "cannot write output: %s", strerror(errno ? errno : EIO));
@@ -832,6 +837,41 @@ static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
 	return ferror(fp) ? write_failed(err) : HC_OK;
 }
 
+int hc_report_write_json_set(FILE *fp, const char *version, const char *const *keys,
+			     const struct report *const *reports, size_t n, struct hc_error *err)
+{
+	cJSON_Hooks hooks = { json_malloc, json_free };
+	cJSON *root, *item;
+	const char *clash;
+	char *text;
+	size_t i;
+
+	for (i = 0; i < n; i++)
+		if (reports[i] && (clash = json_key_clash(reports[i])))
+			return hc_error(err, HC_EINTERNAL, "JSON output names '%s' twice", clash);
+	cJSON_InitHooks(&hooks);
+	root = cJSON_CreateObject();
+	if (!root || !json_put(root, "holdcount_version", cJSON_CreateString(version)))
+		goto nomem;
+	for (i = 0; i < n; i++) {
+		item = reports[i] ? json_report(reports[i]) : cJSON_CreateNull();
+		if (!json_put(root, keys[i], item))
+			goto nomem;
+	}
+	text = cJSON_Print(root);
+	cJSON_Delete(root);
+	if (!text)
+		return hc_error(err, HC_ENOMEM, "out of memory printing the JSON output");
+	errno = 0;
+	fputs(text, fp);
+	fputc('\n', fp);
+	cJSON_free(text);
+	return ferror(fp) ? write_failed(err) : HC_OK;
+nomem:
+	cJSON_Delete(root);
+	return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
+}
+
 static const struct report_writer writer_text = { "table", write_text };
 static const struct report_writer writer_csv = { "csv", write_csv };
 static const struct report_writer writer_json = { "json", write_json };
@@ -870,4 +910,21 @@ int hc_report_add_cautions(struct report *r)
 		if (hc_report_add_note(r, cautions[i]))
 			return HC_ENOMEM;
 	return HC_OK;
+}
+
+int hc_report_add_scale(struct report *r, double periods_per_year, int annualised)
+{
+	char text[200];
+	int rc;
+
+	if (annualised) {
+		rc = hc_report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
+		snprintf(text, sizeof text,
+			 "annualised: variances times %g, standard deviations times sqrt(%g)", periods_per_year,
+			 periods_per_year);
+	} else {
+		rc = hc_report_add_none(r, "periods_per_year", "periods per year");
+		snprintf(text, sizeof text, "not annualised: figures are on the scale of the inputs");
+	}
+	return rc ? rc : hc_report_add_text(r, "annualisation", "annualisation", text);
 }

@@ -580,3 +580,28 @@ int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 			return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");
 	return HC_OK;
 }
+
+/* The rules' parameters and what the windows mean, beside the table. */
+int hc_rolling_report_context(struct report *r, const struct rolling_result *res)
+{
+	char key[64], title[96];
+	size_t j, c;
+	int rc = 0;
+
+	for (j = 0; j < res->nwindows; j++)
+		if (res->windows[j].status == HC_OK)
+			break;
+	for (c = 0; j < res->nwindows && c < res->windows[j].nrules; c++) {
+		const struct rule_result *rr = &res->windows[j].rules[c];
+		snprintf(key, sizeof key, "parameters_%s", rr->name);
+		for (char *p = key; *p; p++)
+			if (*p == '-')
+				*p = '_';
+		snprintf(title, sizeof title, "%s parameters", rr->name);
+		rc |= hc_report_add_text(r, key, title, rr->parameters);
+	}
+	rc |= hc_report_add_note(r, "each window's figures come from that window's periods alone; "
+			      "averages drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, "
+			      "Journal of Finance 56(1)), so a count set once is worth revisiting");
+	return rc;
+}

@@ -896,13 +896,14 @@ int hc_rules_report(struct report *rep, const struct rule_result *res,
 
 /* ---- sampling for the sampled rules ------------------------------------ */
 
-/* The staged sampling of hc_rules_sampled, from the return series u or, when
- * u is NULL, from the m x m covariance matrix a (band only). */
-static int sampled_stages(const struct rules_config *cfg, const struct universe *u,
-			  const double *a, size_t m, const struct sampler_options *so, double cbar,
+/* The staged sampling of hc_rules_sampled (the sampler picks the series or
+ * the matrix route from src). */
+static int sampled_stages(const struct rules_config *cfg, const struct hc_source *src,
+			  const struct sampler_options *so, double cbar,
 			  struct rule_result *res, size_t *nres, size_t *largest,
 			  struct hc_error *err)
 {
+	size_t m = hc_source_m(src);
 	struct sampler_options o = *so;
 	struct sampler_result *sr = NULL;
 	size_t *sizes = NULL, k, n = 0, j;
@@ -914,7 +915,7 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 	o.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
 	if (!want_band && !o.want_returns)
 		return HC_OK;
-	if (o.want_returns && (status = hc_rules_universe_return(u, o.periods_per_year, &uret, err)) != HC_OK)
+	if (o.want_returns && (status = hc_rules_universe_return(src->u, o.periods_per_year, &uret, err)) != HC_OK)
 		return status;
 	sizes = hc_malloc(m * sizeof *sizes);
 	if (!sizes)
@@ -927,7 +928,7 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 		if (k > m)
 			k = m;
 		n = 0;
-		status = u ? hc_sampler_run(&sr, u, sizes, k, &o, err) : hc_sampler_run_matrix(&sr, a, m, sizes, k, &o, err);
+		status = hc_sampler_run(&sr, src, sizes, k, &o, err);
 		if (status != HC_OK)
 			break;
 		if (want_band) {
@@ -959,24 +960,16 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 	return HC_OK;
 }
 
-int hc_rules_sampled(const struct rules_config *cfg, const struct universe *u,
-		  const struct sampler_options *so, double cbar,
-		  struct rule_result *res, size_t *nres, size_t *largest,
-		  struct hc_error *err)
-{
-	return sampled_stages(cfg, u, NULL, u->m, so, cbar, res, nres, largest, err);
-}
-
-int hc_rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
-			 const struct sampler_options *so, double cbar,
-			 struct rule_result *res, size_t *nres, size_t *largest,
-			 struct hc_error *err)
+int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src,
+		     const struct sampler_options *so, double cbar,
+		     struct rule_result *res, size_t *nres, size_t *largest,
+		     struct hc_error *err)
 {
 	*nres = 0;
-	if (cfg->selected & RULES_FLAG(RULES_SHORTFALL))
+	if (hc_source_matrix(src) && (cfg->selected & RULES_FLAG(RULES_SHORTFALL)))
 		return hc_error(err, HC_EUSAGE, "the shortfall rule compounds each portfolio's returns over the "
 				"periods, and a covariance matrix has none");
-	return sampled_stages(cfg, NULL, a, m, so, cbar, res, nres, largest, err);
+	return sampled_stages(cfg, src, so, cbar, res, nres, largest, err);
 }
 
 /* ---- bootstrap of the sampled rules ------------------------------------ */
@@ -999,6 +992,7 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 			     struct hc_error *err)
 {
 	struct universe *ru = NULL;
+	struct hc_source rs;
 	struct sampler_options so = *sopt;
 	struct rule_result rr[2];
 	double vbar, cbar;
@@ -1015,7 +1009,8 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 		return status;
 	so.seed = hc_rules_replicate_seed(bopt->seed, rep);
 	so.progress = NULL;
-	status = hc_rules_sampled(cfg, ru, &so, cbar, rr, &n, NULL, err);
+	hc_source_init_series(&rs, ru);
+	status = hc_rules_sampled(cfg, &rs, &so, cbar, rr, &n, NULL, err);
 	hc_universe_free(ru);
 	if (status != HC_OK)
 		return status;

@@ -664,9 +664,9 @@ static int column_data(const struct universe *u, double **xc, double **mean, dou
 	return HC_OK;
 }
 
-int hc_sampler_run(struct sampler_result **out, const struct universe *u,
-		const size_t *sizes, size_t nsizes,
-		const struct sampler_options *opt, struct hc_error *err)
+static int run_series(struct sampler_result **out, const struct universe *u,
+		      const size_t *sizes, size_t nsizes,
+		      const struct sampler_options *opt, struct hc_error *err)
 {
 	struct plan plan;
 	struct column_job job = {0};
@@ -675,9 +675,6 @@ int hc_sampler_run(struct sampler_result **out, const struct universe *u,
 	int rc;
 
 	*out = NULL;
-	/* Stratified draws: strata.c (issue 6). */
-	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return hc_strata_run(out, u, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (u->has_missing)
@@ -757,9 +754,9 @@ static void matrix_path(const void *vjob, struct workspace *w, unsigned long see
 	}
 }
 
-int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
-		       const size_t *sizes, size_t nsizes,
-		       const struct sampler_options *opt, struct hc_error *err)
+static int run_matrix(struct sampler_result **out, const double *a, size_t m,
+		      const size_t *sizes, size_t nsizes,
+		      const struct sampler_options *opt, struct hc_error *err)
 {
 	struct plan plan;
 	struct matrix_job job;
@@ -767,8 +764,6 @@ int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m
 	int rc;
 
 	*out = NULL;
-	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return hc_strata_run_matrix(out, a, m, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (opt->want_returns)
@@ -801,6 +796,23 @@ int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m
 cleanup:
 	plan_release(&plan);
 	return rc;
+}
+
+/* Stratified draws are strata.c's; a source that draws from a matrix (a
+ * covariance matrix, or the pairwise-complete covariances of series with
+ * gaps) takes the matrix route, complete series the column route. */
+int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
+		   const size_t *sizes, size_t nsizes,
+		   const struct sampler_options *opt, struct hc_error *err)
+{
+	const double *a = hc_source_matrix(src);
+
+	*out = NULL;
+	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
+		return hc_strata_run(out, src, sizes, nsizes, opt, err);
+	if (a)
+		return run_matrix(out, a, hc_source_m(src), sizes, nsizes, opt, err);
+	return run_series(out, src->u, sizes, nsizes, opt, err);
 }
 
 /* ---- summary ---- */

@@ -34,6 +34,15 @@ void hc_source_init_series(struct hc_source *s, const struct universe *u)
 	s->annualised = 1;
 }
 
+void hc_source_init_matrix(struct hc_source *s, const struct covmatrix *cm, double periods_per_year)
+{
+	memset(s, 0, sizeof *s);
+	s->kind = HC_SOURCE_MATRIX;
+	s->cm = cm;
+	s->annualised = periods_per_year > 0;
+	s->periods_per_year = periods_per_year > 0 ? periods_per_year : 1.0;
+}
+
 /*
  * A matrix with a negative eigenvalue gives some portfolio a negative
  * variance, so it is no covariance matrix.  One eigen decomposition both
@@ -214,25 +223,6 @@ int hc_source_has_series(const struct hc_source *s)
 	return s->kind == HC_SOURCE_SERIES;
 }
 
-int hc_source_moments(const struct hc_source *s, struct moments *mo, struct hc_error *err)
-{
-	int rc;
-
-	switch (s->kind) {
-	case HC_SOURCE_SERIES:
-		return hc_moments_from_universe(mo, s->u, err);
-	case HC_SOURCE_PAIRWISE:
-		return s->psd.repaired ? hc_moments_from_matrix(mo, s->cm->a, s->cm->m, err)
-				       : hc_moments_from_universe(mo, s->u, err);
-	case HC_SOURCE_MATRIX:
-		rc = hc_moments_from_matrix(mo, s->cm->a, s->cm->m, err);
-		if (rc)
-			hc_error_prefix(err, s->name);
-		return rc;
-	}
-	return hc_error(err, HC_EUSAGE, "unknown data source kind %d", s->kind);
-}
-
 void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size)
 {
 	const struct hc_source_psd *ps = &s->psd;
@@ -252,4 +242,34 @@ void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size)
 		 s->kind == HC_SOURCE_MATRIX ? "the covariance matrix" : "the pairwise-complete covariance matrix",
 		 ps->negative, ps->negative == 1 ? "" : "s", ps->min_eigenvalue * scale, unit,
 		 ps->distance * scale, unit, 100 * ps->distance / ps->norm);
+}
+
+int hc_source_report_psd(const struct hc_source *s, struct report *r)
+{
+	const struct hc_source_psd *ps = &s->psd;
+	int style = s->annualised ? REPORT_STYLE_SCI : REPORT_STYLE_PLAIN;
+	double scale = s->periods_per_year;
+	char text[600];
+
+	if (!ps->asked)
+		return HC_OK;
+	if (hc_report_add_text(r, "psd_repair", "positive semi-definite repair",
+			    ps->repaired ? "nearest positive semi-definite matrix, by eigenvalue clipping (Higham 1988)"
+			    : ps->checked ? "not needed: the matrix is positive semi-definite (up to rounding)"
+			    : "not needed: no gaps left, and complete series give a positive semi-definite matrix") ||
+	    hc_report_add_bool(r, "psd_repaired", "matrix repaired", ps->repaired))
+		return HC_ENOMEM;
+	if (ps->checked &&
+	    (hc_report_add_int(r, "psd_negative_eigenvalues", "negative eigenvalues", (long long)ps->negative) ||
+	     hc_report_add_real(r, "psd_min_eigenvalue", "smallest eigenvalue", ps->min_eigenvalue * scale, style) ||
+	     hc_report_add_real(r, "psd_repair_distance", "repair distance (Frobenius)", ps->distance * scale, style) ||
+	     hc_report_add_real(r, "psd_repair_relative_distance", "repair distance / matrix norm",
+			     ps->distance / ps->norm, REPORT_STYLE_SCI)))
+		return HC_ENOMEM;
+	if (ps->repaired) {
+		hc_source_psd_text(s, text, sizeof text);
+		if (hc_report_add_note(r, text))
+			return HC_ENOMEM;
+	}
+	return HC_OK;
 }

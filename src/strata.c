@@ -281,8 +281,8 @@ static struct strata_moments *moments_new(size_t S)
 }
 
 /* y_s = sum of the centred series of stratum s; B_st = y_s.y_t/(T-1). */
-int hc_strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
-				 const struct strata *s, struct hc_error *err)
+static int moments_series(struct strata_moments **out, const struct universe *u,
+			  const struct strata *s, struct hc_error *err)
 {
 	size_t S = s->nstrata, t = u->t, i, k, a, b;
 	struct strata_moments *sm;
@@ -321,8 +321,8 @@ int hc_strata_moments_from_universe(struct strata_moments **out, const struct un
 	return HC_OK;
 }
 
-int hc_strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
-			       const struct strata *s, struct hc_error *err)
+static int moments_matrix(struct strata_moments **out, const double *a, size_t m,
+			  const struct strata *s, struct hc_error *err)
 {
 	size_t S = s->nstrata, p, q, i, j;
 	struct strata_moments *sm;
@@ -346,6 +346,17 @@ int hc_strata_moments_from_matrix(struct strata_moments **out, const double *a, 
 	}
 	*out = sm;
 	return HC_OK;
+}
+
+int hc_strata_moments_from_source(struct strata_moments **out, const struct hc_source *src,
+				  const struct strata *s, struct hc_error *err)
+{
+	const double *a = hc_source_matrix(src);
+
+	*out = NULL;
+	if (a)
+		return moments_matrix(out, a, hc_source_m(src), s, err);
+	return moments_series(out, src->u, s, err);
 }
 
 double hc_strata_expected_variance(const struct strata_moments *sm, const struct strata *s,
@@ -823,9 +834,9 @@ static int centred(const struct universe *u, double **xc, double **mean, struct 
 	return HC_OK;
 }
 
-int hc_strata_run(struct sampler_result **out, const struct universe *u,
-	       const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
-	       struct hc_error *err)
+static int run_series(struct sampler_result **out, const struct universe *u,
+		      const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
+		      struct hc_error *err)
 {
 	struct srun r;
 	struct strata *s = NULL;
@@ -864,7 +875,7 @@ cleanup:
 	return rc;
 }
 
-int hc_strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
+static int run_matrix(struct sampler_result **out, const double *a, size_t m,
 		      const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
 		      struct hc_error *err)
 {
@@ -893,6 +904,18 @@ cleanup:
 	}
 	srun_release(&r, s, cap);
 	return rc;
+}
+
+int hc_strata_run(struct sampler_result **out, const struct hc_source *src,
+		  const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
+		  struct hc_error *err)
+{
+	const double *a = hc_source_matrix(src);
+
+	*out = NULL;
+	if (a)
+		return run_matrix(out, a, hc_source_m(src), sizes, nsizes, opt, err);
+	return run_series(out, src->u, sizes, nsizes, opt, err);
 }
 
 /* ---- the stratified curve ---- */

@@ -1343,3 +1343,39 @@ int hc_universe_resample(struct universe **out, const struct universe *src,
 	*out = u;
 	return HC_OK;
 }
+
+int hc_universe_apply_missing(struct universe **out, const struct universe *src, int missing,
+			      double min_coverage, struct hc_error *err)
+{
+	const char *name = src->source ? src->source : "";
+	struct universe *u;
+	size_t i;
+	int rc;
+
+	*out = NULL;
+	if (missing < UNIVERSE_MISSING_COMPLETE || missing > UNIVERSE_MISSING_KEEP ||
+	    !(min_coverage > 0 && min_coverage <= 1))
+		return hc_error(err, HC_EUSAGE, "bad missing-data policy or minimum coverage");
+	if (src->ndropped)
+		return hc_error(err, HC_EUSAGE, "'%s' already lost securities to a missing-data policy; load it "
+				"under the keep-all policy", name);
+	u = derived_alloc(src, src->t);
+	if (!u)
+		return hc_error(err, HC_ENOMEM, "out of memory");
+	memcpy(u->x, src->x, src->m * src->t * sizeof(double));
+	memcpy(u->dates, src->dates, src->t * sizeof *u->dates);
+	for (i = 0; i < src->m * src->t && !u->has_missing; i++)
+		u->has_missing = isnan(u->x[i]) != 0;
+	u->m_read = src->m_read;
+	rc = apply_policy(u, missing, min_coverage, err);
+	if (rc == HC_OK && u->m < 2)
+		rc = too_few(u, name, missing, err);
+	if (rc == HC_OK)
+		rc = check_variation(u, name, err);
+	if (rc != HC_OK) {
+		hc_universe_free(u);
+		return rc;
+	}
+	*out = u;
+	return HC_OK;
+}

@@ -168,7 +168,7 @@ static void test_moments_from_matrix_hand_worked(void **state)
 	struct moments mo;
 	struct hc_error err;
 
-	assert_int_equal(hc_moments_from_matrix(&mo, a, 3, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(a, 3), &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_GIVEN);
 	assert_close(mo.sum_var, 0.1925, 1, 1e-15);
 	assert_close(mo.sum_cov, 0.032, 1, 1e-15);
@@ -224,7 +224,7 @@ static void test_moments_pairwise_route(void **state)
 					: a9[i * m + j] / sqrt(a9[i * m + i] * a9[j * m + j]);
 		}
 	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
-	assert_int_equal(hc_moments_from_matrix(&ref, a, m, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&ref, fixture_matrix(a, m), &err), HC_OK);
 	assert_close(mo.sum_var, ref.sum_var, ref.sum_var, 1e-12);
 	assert_close(mo.sum_cov, ref.sum_cov, ref.sum_var, 1e-12);
 	assert_close(mo.sum_cov2, ref.sum_cov2, ref.sum_var2, 1e-12);
@@ -296,11 +296,11 @@ static void test_moments_rejects_bad_data(void **state)
 	assert_non_null(strstr(err.message, "expected at least 2"));
 	u->m = 3;
 	fixture_free(u);
-	assert_int_equal(hc_moments_from_matrix(&mo, bad, 2, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(bad, 2), &err), HC_EDATA);
 	assert_non_null(strstr(err.message, "variance of security 2 is 0"));
-	assert_int_equal(hc_moments_from_matrix(&mo, inf, 2, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(inf, 2), &err), HC_EDATA);
 	assert_non_null(strstr(err.message, "not a finite number"));
-	assert_int_equal(hc_moments_from_matrix(&mo, bad, 1, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(bad, 1), &err), HC_EDATA);
 
 	/* Pairwise: a security with a single observation. */
 	fixture_returns(x, 3, 5, 12);

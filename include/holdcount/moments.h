@@ -91,10 +91,17 @@ int hc_moments_from_universe_route(struct moments *mo, const struct universe *u,
  * *a is NULL on error. */
 int hc_moments_covariance(const struct universe *u, double **a, struct hc_error *err);
 
-/* From an M x M covariance matrix a (row-major, symmetric; only read).
- * Average correlation is computed from it too. */
-int hc_moments_from_matrix(struct moments *mo, const double *a, size_t m,
-			struct hc_error *err);
+/*
+ * The moments of a data source (source.h): from its series as
+ * hc_moments_from_universe does (the pairwise route for data with gaps), or
+ * from its M x M covariance matrix (route MOMENTS_ROUTE_GIVEN; the average
+ * correlation from it too) when the source is a matrix or a repaired
+ * pairwise matrix.  A matrix's errors carry its name as prefix.  HC_EDATA
+ * when fewer than 2 securities; errors as hc_moments_from_universe.
+ */
+struct hc_source;
+int hc_moments_from_source(struct moments *mo, const struct hc_source *src,
+			   struct hc_error *err);
 
 /* From summary statistics: average variance vbar, average covariance cbar,
  * m securities (0 = unbounded).  No spread; correlation cbar/vbar is used

@@ -143,12 +143,29 @@ const struct report_table *hc_report_find_table(const struct report *r, const ch
  * the table) when r has no table of that key, HC_EIO when fp fails. */
 int hc_report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err);
 
+/* The reading form of v, as the text writer prints it (styles, "yes"/"no",
+ * "-" or the reason for no value; never "-0.00%": a value that rounds to
+ * zero is zero), into buf or pointing into v. */
+const char *hc_report_value_text(char *buf, size_t size, const struct report_value *v);
+
+/* One JSON object: "holdcount_version": version, then each reports[i] as
+ * the JSON writer renders it under keys[i] (null when reports[i] is NULL),
+ * built as one tree.  HC_EINTERNAL (a key named twice in a report),
+ * HC_ENOMEM, HC_EIO. */
+int hc_report_write_json_set(FILE *fp, const char *version, const char *const *keys,
+			     const struct report *const *reports, size_t n, struct hc_error *err);
+
 /* Look a writer up by name ("table", "csv", "json"); NULL when unknown. */
 const struct report_writer *hc_report_writer_find(const char *name);
 
 /* The cautions every output carries (design.md section 9); adds them as
  * notes.  HC_OK or HC_ENOMEM. */
 int hc_report_add_cautions(struct report *r);
+
+/* The fields that state the scale: periods_per_year (a number, or none when
+ * not annualised) and annualisation (a sentence).  0, or non-zero when out
+ * of memory. */
+int hc_report_add_scale(struct report *r, double periods_per_year, int annualised);
 
 #ifdef __cplusplus
 }

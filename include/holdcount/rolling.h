@@ -119,6 +119,11 @@ void hc_rolling_result_free(struct rolling_result *r);
 int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 		   struct hc_error *err);
 
+/* After hc_rolling_report: each rule's parameters as fields
+ * (parameters_near_floor, ...) and the note on drifting averages.  0, or
+ * non-zero when out of memory. */
+int hc_rolling_report_context(struct report *r, const struct rolling_result *res);
+
 #ifdef __cplusplus
 }
 #endif

@@ -14,8 +14,8 @@
  *
  * Adding a kind (for example ragged histories read period by period) is one
  * more enum value, one constructor, and one more case in the few dispatch
- * points: hc_source_moments here and the computing modules' switch on
- * src->kind (sampler.c, strata.c, rules.c, audit.c).  Callers that use the
+ * points: the computing modules' switch on src->kind (moments.c,
+ * sampler.c, strata.c, rules.c, audit.c).  Callers that use the
  * accessors below need no change.
  */
 #ifndef HOLDCOUNT_SOURCE_H
@@ -25,7 +25,7 @@
 
 #include "holdcount/covmatrix.h"
 #include "holdcount/error.h"
-#include "holdcount/moments.h"
+#include "holdcount/report.h"
 #include "holdcount/universe.h"
 
 #ifdef __cplusplus
@@ -121,6 +121,14 @@ int hc_source_load_covmatrix(struct hc_source **out, const char *path, size_t ma
  */
 void hc_source_init_series(struct hc_source *s, const struct universe *u);
 
+/*
+ * A source viewing the covariance matrix cm that the caller keeps, taken as
+ * it is (no positive semi-definite check: the caller vouches for it), on
+ * its own scale (periods_per_year 0) or annualised by periods_per_year.
+ * No allocation, nothing to free; s must not outlive cm.
+ */
+void hc_source_init_matrix(struct hc_source *s, const struct covmatrix *cm, double periods_per_year);
+
 /* Free s and what it owns; NULL is a no-op. */
 void hc_source_free(struct hc_source *s);
 
@@ -141,17 +149,19 @@ const double *hc_source_matrix(const struct hc_source *s);
 int hc_source_has_series(const struct hc_source *s);
 
 /*
- * The moments of s (moments.h): from the series (the pairwise route for
- * data with gaps), or from the matrix when the source is a matrix or a
- * repaired pairwise matrix.  A matrix's errors carry its name as prefix.
- */
-int hc_source_moments(const struct hc_source *s, struct moments *mo, struct hc_error *err);
-
-/*
  * The sentence that says what a repair did (empty when nothing was
  * repaired), figures annualised like the source, into buf.
  */
 void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size);
+
+/*
+ * When repair was asked (opt.repair_psd): the fields psd_repair,
+ * psd_repaired and, when a matrix was tested, psd_negative_eigenvalues,
+ * psd_min_eigenvalue, psd_repair_distance, psd_repair_relative_distance
+ * (annualised like the source), and the note of hc_source_psd_text after a
+ * repair.  HC_OK, or HC_ENOMEM.
+ */
+int hc_source_report_psd(const struct hc_source *s, struct report *r);
 
 #ifdef __cplusplus
 }

@@ -109,6 +109,18 @@ int hc_universe_window(struct universe **out, const struct universe *src,
 		    size_t first, size_t len, int missing, double min_coverage,
 		    struct hc_error *err);
 
+/*
+ * The missing-data policy applied to a universe already in memory: src as
+ * loaded under UNIVERSE_MISSING_KEEP (no security dropped yet), *out a new
+ * universe with the securities the policy keeps, the dropped list and
+ * messages hc_universe_load gives under that policy for the same file.
+ * So a caller that needs both (every security for rolling windows, the
+ * complete ones for the rest) reads the file once.  HC_EUSAGE (bad policy,
+ * or src already lost securities), HC_EDATA (fewer than 2 left), HC_ENOMEM.
+ */
+int hc_universe_apply_missing(struct universe **out, const struct universe *src, int missing,
+			      double min_coverage, struct hc_error *err);
+
 /* A universe from a period-resampled copy: period k of the result is period
  * idx[k] of src (k < n).  Dates are copied from idx. */
 int hc_universe_resample(struct universe **out, const struct universe *src,

@@ -18,6 +18,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "holdcount/analysis.h"
 #include "holdcount/memory.h"
 #include "holdcount/outfile.h"
 #include "holdcount/universe.h"
@@ -1083,4 +1084,39 @@ void cli_install_signal_handlers(void)
 	sigemptyset(&sa.sa_mask);
 	catch_unless_ignored(SIGINT, &sa);
 	catch_unless_ignored(SIGTERM, &sa);
+}
+
+/* ---- an analysis's progress ----------------------------------------------- */
+
+static void steps_begin(void *ctx, const char *stage, const char *label, const char *unit)
+{
+	struct cli_steps *s = ctx;
+
+	if (stage && s->stages)
+		cli_stage(s->cmd, s->quiet, stage);
+	if (label)
+		cli_progress_init(&s->bar, label, unit, s->quiet);
+}
+
+static int steps_update(void *ctx, size_t done, size_t total)
+{
+	return cli_progress_update(&((struct cli_steps *)ctx)->bar, done, total);
+}
+
+static void steps_end(void *ctx)
+{
+	cli_progress_finish(&((struct cli_steps *)ctx)->bar);
+}
+
+void cli_steps_bind(struct cli_steps *steps, struct hc_progress *p, const char *cmd, int quiet, int stages)
+{
+	memset(steps, 0, sizeof *steps);
+	steps->cmd = cmd;
+	steps->quiet = quiet;
+	steps->stages = stages;
+	cli_progress_init(&steps->bar, "", "", 1);
+	p->begin = steps_begin;
+	p->update = steps_update;
+	p->end = steps_end;
+	p->ctx = steps;
 }

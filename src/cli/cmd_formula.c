@@ -9,6 +9,7 @@
 
 #include "cli.h"
 #include "holdcount/curve.h"
+#include "holdcount/curverun.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 
@@ -100,13 +101,13 @@ static int build(struct report *r, const struct moments *mo, const struct curve 
 	    (mo->m ? hc_report_add_int(r, "securities", "securities", (long long)mo->m)
 		   : hc_report_add_none(r, "securities", "securities")) ||
 	    hc_report_add_text(r, "universe", "universe", mo->m ? "finite" : "unbounded") ||
-	    cli_add_scale(r, p, annualised) ||
+	    hc_report_add_scale(r, p, annualised) ||
 	    hc_report_add_real(r, "floor_variance", "floor variance", c->floor_variance, REPORT_STYLE_PLAIN) ||
 	    hc_report_add_real(r, "floor_sd", "floor sd", c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, sd_style) ||
 	    hc_report_add_real(r, "universe_sd", "equal-weight universe sd",
 			    mo->m ? sqrt(c->universe_variance) : NAN, sd_style))
 		return HC_ENOMEM;
-	if (cli_curve_table(r, c, annualised))
+	if (hc_curve_add_table(r, c, annualised))
 		return HC_ENOMEM;
 	t = r->tables[r->ntables - 1];
 	if (plain)

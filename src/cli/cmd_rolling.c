@@ -148,31 +148,6 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 	return HC_OK;
 }
 
-/* The rules' parameters and what the windows mean, beside the table. */
-int cli_rolling_context(struct report *r, const struct rolling_result *res)
-{
-	char key[64], title[96];
-	size_t j, c;
-	int rc = 0;
-
-	for (j = 0; j < res->nwindows; j++)
-		if (res->windows[j].status == HC_OK)
-			break;
-	for (c = 0; j < res->nwindows && c < res->windows[j].nrules; c++) {
-		const struct rule_result *rr = &res->windows[j].rules[c];
-		snprintf(key, sizeof key, "parameters_%s", rr->name);
-		for (char *p = key; *p; p++)
-			if (*p == '-')
-				*p = '_';
-		snprintf(title, sizeof title, "%s parameters", rr->name);
-		rc |= hc_report_add_text(r, key, title, rr->parameters);
-	}
-	rc |= hc_report_add_note(r, "each window's figures come from that window's periods alone; "
-			      "averages drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, "
-			      "Journal of Finance 56(1)), so a count set once is worth revisiting");
-	return rc;
-}
-
 int cmd_rolling(int argc, char **argv)
 {
 	struct rolling_opts o;
@@ -212,7 +187,7 @@ int cmd_rolling(int argc, char **argv)
 		goto cleanup;
 	}
 	r = hc_report_alloc();
-	if (!r || hc_rolling_report(r, res, &err) || cli_rolling_context(r, res) || hc_report_add_cautions(r)) {
+	if (!r || hc_rolling_report(r, res, &err) || hc_rolling_report_context(r, res) || hc_report_add_cautions(r)) {
 		if (!err.code)
 			hc_error(&err, HC_ENOMEM, "out of memory for the report");
 		rc = cli_fail("rolling", &err);
