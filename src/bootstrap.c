@@ -13,13 +13,13 @@
 #include "holdcount/bootstrap.h"
 
 #include <math.h>
-#include <omp.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include <gsl/gsl_cblas.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
 #include "holdcount/sampler.h"
 
 void hc_bootstrap_options_init(struct bootstrap_options *opt)
@@ -47,11 +47,11 @@ const char *hc_bootstrap_kind_name(int kind)
 }
 
 /* The replicate's stream generator is splitmix64 itself (Steele, Lea &
- * Flood, 2014, OOPSLA; hc_sampler_splitmix64): its output passes BigCrush, and
+ * Flood, 2014, OOPSLA; hc_paths_splitmix64): its output passes BigCrush, and
  * a replicate needs only about T draws. */
 static uint64_t splitmix64(uint64_t *state)
 {
-	return hc_sampler_splitmix64(state);
+	return hc_paths_splitmix64(state);
 }
 
 /* Replicate rep's stream state from (seed, rep): the replicate number is
@@ -280,14 +280,56 @@ static void run_one(const struct bootstrap_base *b, const struct bootstrap_optio
 	hc_bootstrap_moments(b, w, &r->vbar[rep], &r->cbar[rep]);
 }
 
+/* One thread's indices and period weights. */
+struct bws {
+	size_t *idx;
+	double *w;
+};
+
+struct bjob {
+	const struct bootstrap_base *b;
+	const struct bootstrap_options *opt;
+	size_t l;
+	struct bootstrap_result *r;
+};
+
+static int bjob_ws_init(void *job, void *ws)
+{
+	const struct bjob *j = job;
+	struct bws *w = ws;
+
+	w->idx = hc_malloc(j->b->t * sizeof *w->idx);
+	w->w = hc_malloc(j->b->t * sizeof *w->w);
+	if (w->idx && w->w)
+		return 0;
+	hc_free(w->idx);
+	hc_free(w->w);
+	return -1;
+}
+
+static void bjob_ws_release(void *ws)
+{
+	struct bws *w = ws;
+
+	hc_free(w->idx);
+	hc_free(w->w);
+}
+
+static void bjob_path(void *job, void *ws, size_t rep)
+{
+	const struct bjob *j = job;
+	struct bws *w = ws;
+
+	run_one(j->b, j->opt, j->l, rep, w->idx, w->w, j->r);
+}
+
 int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
 		  const struct bootstrap_options *opt, struct hc_error *err)
 {
 	struct bootstrap_result *r = NULL;
-	size_t l, **idx = NULL, nb = 0, done = 0;
-	double **w = NULL;
-	int nthreads, th, status = HC_OK, stop = 0;
-	long long rep;
+	struct bjob job;
+	size_t l;
+	int status;
 
 	*out = NULL;
 	if (opt->replicates == 0)
@@ -297,68 +339,30 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 	l = opt->block_length ? opt->block_length : hc_bootstrap_default_block_length(b->t);
 	if (l > b->t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: longer than the %zu periods", l, b->t);
-	nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads();
 	r = hc_calloc(1, sizeof *r);
-	idx = hc_calloc((size_t)nthreads, sizeof *idx);
-	w = hc_calloc((size_t)nthreads, sizeof *w);
-	if (!r || !idx || !w)
-		goto nomem;
+	if (!r || !(r->vbar = hc_malloc(opt->replicates * sizeof *r->vbar)) ||
+	    !(r->cbar = hc_malloc(opt->replicates * sizeof *r->cbar))) {
+		hc_bootstrap_result_free(r);
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap replicates", opt->replicates);
+	}
 	r->replicates = opt->replicates;
 	r->block_length = l;
 	r->kind = opt->kind;
-	r->vbar = hc_malloc(opt->replicates * sizeof *r->vbar);
-	r->cbar = hc_malloc(opt->replicates * sizeof *r->cbar);
-	if (!r->vbar || !r->cbar)
-		goto nomem;
-	for (nb = 0; nb < (size_t)nthreads; nb++) {
-		idx[nb] = hc_malloc(b->t * sizeof **idx);
-		w[nb] = hc_malloc(b->t * sizeof **w);
-		if (!idx[nb] || !w[nb]) {
-			nb++;
-			goto nomem;
-		}
+	job.b = b;
+	job.opt = opt;
+	job.l = l;
+	job.r = r;
+	{
+		struct hc_paths p = {
+			opt->replicates, opt->threads, 4, &job, sizeof(struct bws), bjob_ws_init, bjob_ws_release,
+			bjob_path, opt->progress, opt->progress_ctx, "bootstrap's", "bootstrap", "replicates"
+		};
+		status = hc_paths_run(&p, err);
 	}
-#pragma omp parallel for schedule(dynamic, 4) num_threads(nthreads) private(th)
-	for (rep = 0; rep < (long long)opt->replicates; rep++) {
-		int halt;
-
-		th = omp_get_thread_num();
-#pragma omp atomic read
-		halt = stop;
-		if (halt)
-			continue;
-		run_one(b, opt, l, (size_t)rep, idx[th], w[th], r);
-#pragma omp atomic
-		done++;
-		if (th == 0 && opt->progress) {
-			size_t d;
-
-#pragma omp atomic read
-			d = done;
-			if (opt->progress(opt->progress_ctx, d, opt->replicates)) {
-#pragma omp atomic write
-				stop = 1;
-			}
-		}
-	}
-	if (stop) {
-		status = hc_error(err, HC_EINTERRUPT, "bootstrap stopped after %zu of %zu replicates", done, opt->replicates);
-		goto cleanup;
+	if (status != HC_OK) {
+		hc_bootstrap_result_free(r);
+		return status;
 	}
 	*out = r;
-	r = NULL;
-	goto cleanup;
-nomem:
-	status = hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap replicates", opt->replicates);
-cleanup:
-	if (idx)
-		for (size_t k = 0; k < nb; k++)
-			hc_free(idx[k]);
-	if (w)
-		for (size_t k = 0; k < nb; k++)
-			hc_free(w[k]);
-	hc_free(idx);
-	hc_free(w);
-	hc_bootstrap_result_free(r);
-	return status;
+	return HC_OK;
 }

@@ -77,7 +77,7 @@ static int sample_strata(const struct hc_source *src, const struct hc_curve_opti
 	sampler_options(&so, opt, src->periods_per_year);
 	hc_strata_use_apply(su, &so);
 	hc_progress_begin(&opt->progress, NULL, "stratified sampling", "paths");
-	rc = hc_sampler_run(&res, src, sizes, nsizes, &so, err);
+	rc = hc_strata_run(&res, src, sizes, nsizes, &so, err);
 	hc_progress_end(&opt->progress);
 	if (rc == HC_OK && su->mode == SAMPLER_STRATA_PROPORTIONAL)
 		rc = hc_strata_moments_from_source(&sm, src, su->strata, err);

@@ -15,6 +15,8 @@
 #include <string.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
+#include "holdcount/strata.h"
 
 static const char *const rule_names[RULES_COUNT] = {
 	"near-floor", "marginal", "band", "cost-benefit", "tracking-error",
@@ -928,7 +930,8 @@ static int sampled_stages(const struct rules_config *cfg, const struct hc_source
 		if (k > m)
 			k = m;
 		n = 0;
-		status = hc_sampler_run(&sr, src, sizes, k, &o, err);
+		status = o.strata || o.stratify != SAMPLER_STRATA_NONE ? hc_strata_run(&sr, src, sizes, k, &o, err)
+									: hc_sampler_run(&sr, src, sizes, k, &o, err);
 		if (status != HC_OK)
 			break;
 		if (want_band) {
@@ -980,8 +983,8 @@ uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep)
 {
 	uint64_t s = seed ^ 0x5DEECE66DULL, r = (uint64_t)rep;
 
-	s ^= hc_sampler_splitmix64(&r);
-	return hc_sampler_splitmix64(&s);
+	s ^= hc_paths_splitmix64(&r);
+	return hc_paths_splitmix64(&s);
 }
 
 /* One replicate's band and shortfall counts (0 = not met). */

@@ -33,23 +33,13 @@
 
 #include <gsl/gsl_rng.h>
 #include <gsl/gsl_statistics_double.h>
-#include <omp.h>
 
 #include "holdcount/memory.h"
-#include "holdcount/strata.h"
+#include "holdcount/paths.h"
 
 /* Defaults named once. */
 #define SAMPLER_DEFAULT_PATHS 10000
 #define SAMPLER_SCHEDULE_CHUNK 8 /* paths per dynamic work unit */
-
-uint64_t hc_sampler_splitmix64(uint64_t *state)
-{
-	uint64_t z = (*state += 0x9e3779b97f4a7c15ULL);
-
-	z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
-	z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
-	return z ^ (z >> 31);
-}
 
 void hc_sampler_options_init(struct sampler_options *opt)
 {
@@ -67,16 +57,6 @@ void hc_sampler_result_free(struct sampler_result *r)
 	hc_free(r->annual_return);
 	hc_free(r->feasible);
 	hc_free(r);
-}
-
-/* Seed for path k: the (k+1)-th splitmix64 output from seed, folded to the
- * 32 bits that GSL's taus2 seeding takes. */
-static unsigned long path_seed(uint64_t seed, size_t k)
-{
-	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z;
-
-	z = hc_sampler_splitmix64(&st);
-	return (unsigned long)((z ^ (z >> 32)) & 0xffffffffUL);
 }
 
 /* ---- the plan shared by every path ---- */
@@ -540,55 +520,35 @@ static void store(struct sampler_result *res, const struct plan *p, const struct
 	}
 }
 
+static int run_ws_init(void *job, void *ws)
+{
+	const struct run *r = job;
+
+	return workspace_init(ws, r->m, r->t, r->plan->nuniq);
+}
+
+static void run_ws_release(void *ws)
+{
+	workspace_release(ws);
+}
+
+/* Path k: drawn from its own seed, stored in its own row. */
+static void run_path(void *job, void *ws, size_t k)
+{
+	const struct run *r = job;
+
+	r->path(r->job, ws, hc_paths_seed32(r->opt->seed, k));
+	store(r->res, r->plan, ws, k);
+}
+
 static int run_paths(struct run *r, struct hc_error *err)
 {
-	struct workspace *ws;
-	int nthreads = r->threads > 0 ? r->threads : omp_get_max_threads(), i, stop = 0;
-	size_t done = 0, total = r->paths;
-	long kk, paths = (long)r->paths;
+	struct hc_paths p = {
+		r->paths, r->threads, SAMPLER_SCHEDULE_CHUNK, r, sizeof(struct workspace), run_ws_init,
+		run_ws_release, run_path, r->opt->progress, r->opt->progress_ctx, "sampler's", "sampling", "paths"
+	};
 
-	if (nthreads < 1)
-		nthreads = 1;
-	ws = hc_calloc((size_t)nthreads, sizeof *ws);
-	if (!ws)
-		return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
-	for (i = 0; i < nthreads; i++)
-		if (workspace_init(&ws[i], r->m, r->t, r->plan->nuniq)) {
-			while (i-- > 0)
-				workspace_release(&ws[i]);
-			hc_free(ws);
-			return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
-		}
-#pragma omp parallel num_threads(nthreads)
-	{
-		struct workspace *w = &ws[omp_get_thread_num()];
-#pragma omp for schedule(dynamic, SAMPLER_SCHEDULE_CHUNK)
-		for (kk = 0; kk < paths; kk++) {
-			int halted;
-#pragma omp atomic read
-			halted = stop;
-			if (halted)
-				continue;
-			r->path(r->job, w, path_seed(r->opt->seed, (size_t)kk));
-			store(r->res, r->plan, w, (size_t)kk);
-			size_t now;
-#pragma omp atomic capture
-			now = ++done;
-			if (r->opt->progress && omp_get_thread_num() == 0 &&
-			    r->opt->progress(r->opt->progress_ctx, now, total)) {
-#pragma omp atomic write
-				stop = 1;
-			}
-		}
-	}
-	for (i = 0; i < nthreads; i++)
-		workspace_release(&ws[i]);
-	hc_free(ws);
-	if (stop)
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", done, total);
-	if (r->opt->progress && r->opt->progress(r->opt->progress_ctx, total, total))
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", total, total);
-	return HC_OK;
+	return hc_paths_run(&p, err);
 }
 
 static int check_options(const struct sampler_options *opt, struct hc_error *err)
@@ -798,9 +758,11 @@ cleanup:
 	return rc;
 }
 
-/* Stratified draws are strata.c's; a source that draws from a matrix (a
- * covariance matrix, or the pairwise-complete covariances of series with
- * gaps) takes the matrix route, complete series the column route. */
+/* A source that draws from a matrix (a covariance matrix, or the
+ * pairwise-complete covariances of series with gaps) takes the matrix
+ * route, complete series the column route.  Stratified draws are
+ * strata.c's (hc_strata_run), which builds on this module, not the other
+ * way round. */
 int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
 		   const size_t *sizes, size_t nsizes,
 		   const struct sampler_options *opt, struct hc_error *err)
@@ -809,7 +771,7 @@ int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
 
 	*out = NULL;
 	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return hc_strata_run(out, src, sizes, nsizes, opt, err);
+		return hc_error(err, HC_EUSAGE, "stratified draws are hc_strata_run's (strata.h)");
 	if (a)
 		return run_matrix(out, a, hc_source_m(src), sizes, nsizes, opt, err);
 	return run_series(out, src->u, sizes, nsizes, opt, err);

@@ -27,9 +27,9 @@
 #include <gsl/gsl_rng.h>
 #include <gsl/gsl_sort.h>
 #include <gsl/gsl_statistics_double.h>
-#include <omp.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
 
 #define STRATA_SCHEDULE_CHUNK 8   /* paths per dynamic work unit */
 /* Stream tags, so stratified paths do not reuse the unconstrained ones'
@@ -382,14 +382,7 @@ double hc_strata_expected_variance(const struct strata_moments *sm, const struct
 
 /* ---- drawing ---- */
 
-static uint64_t mix(uint64_t seed, uint64_t tag, uint64_t a, uint64_t b)
-{
-	uint64_t st = seed ^ tag;
-
-	st += 0x9e3779b97f4a7c15ULL * a;
-	st = hc_sampler_splitmix64(&st) + b;
-	return hc_sampler_splitmix64(&st);
-}
+#define mix hc_paths_mix
 
 struct alloc_stream {
 	uint64_t state;
@@ -400,7 +393,7 @@ static double stream_uniform(void *ctx)
 {
 	struct alloc_stream *a = ctx;
 
-	return (double)(hc_sampler_splitmix64(&a->state) >> 11) * 0x1.0p-53;
+	return (double)(hc_paths_splitmix64(&a->state) >> 11) * 0x1.0p-53;
 }
 
 /* Every stratum shuffled completely by Durstenfeld's in-place Fisher-Yates
@@ -635,63 +628,51 @@ static void matrix_path(const struct srun *r, struct sws *w, size_t k)
 	}
 }
 
+/* What one run of paths shares: the plan, the result rows to fill. */
+struct sjob {
+	const struct srun *r;
+	struct sampler_result *res;
+};
+
+static int sjob_ws_init(void *job, void *ws)
+{
+	return sws_init(ws, ((const struct sjob *)job)->r);
+}
+
+static void sjob_ws_release(void *ws)
+{
+	sws_release(ws);
+}
+
+/* Path k, drawn from (seed, k) alone, stored in its own row. */
+static void sjob_path(void *job, void *ws, size_t k)
+{
+	const struct sjob *sj = job;
+	const struct srun *r = sj->r;
+	struct sws *w = ws;
+	size_t j;
+
+	if (r->a)
+		matrix_path(r, w, k);
+	else
+		column_path(r, w, k);
+	for (j = 0; j < r->nsizes; j++) {
+		sj->res->variance[k * r->nsizes + j] = w->out_v[r->slot[j]];
+		if (sj->res->annual_return)
+			sj->res->annual_return[k * r->nsizes + j] = w->out_r[r->slot[j]];
+	}
+}
+
 static int drive(const struct srun *r, struct sampler_result *res,
 		 const struct sampler_options *opt, struct hc_error *err)
 {
-	int nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads(), i, stop = 0;
-	size_t done = 0, total = opt->paths;
-	long kk, paths = (long)opt->paths;
-	struct sws *ws;
+	struct sjob sj = { r, res };
+	struct hc_paths p = {
+		opt->paths, opt->threads, STRATA_SCHEDULE_CHUNK, &sj, sizeof(struct sws), sjob_ws_init,
+		sjob_ws_release, sjob_path, opt->progress, opt->progress_ctx, "stratified sampler's", "sampling", "paths"
+	};
 
-	if (nthreads < 1)
-		nthreads = 1;
-	ws = hc_calloc((size_t)nthreads, sizeof *ws);
-	if (!ws)
-		return hc_error(err, HC_ENOMEM, "out of memory for the stratified sampler's workspaces");
-	for (i = 0; i < nthreads; i++)
-		if (sws_init(&ws[i], r)) {
-			while (i-- > 0)
-				sws_release(&ws[i]);
-			hc_free(ws);
-			return hc_error(err, HC_ENOMEM, "out of memory for the stratified sampler's workspaces");
-		}
-#pragma omp parallel num_threads(nthreads)
-	{
-		struct sws *w = &ws[omp_get_thread_num()];
-#pragma omp for schedule(dynamic, STRATA_SCHEDULE_CHUNK)
-		for (kk = 0; kk < paths; kk++) {
-			size_t j, now;
-			int halted;
-#pragma omp atomic read
-			halted = stop;
-			if (halted)
-				continue;
-			if (r->a)
-				matrix_path(r, w, (size_t)kk);
-			else
-				column_path(r, w, (size_t)kk);
-			for (j = 0; j < r->nsizes; j++) {
-				res->variance[(size_t)kk * r->nsizes + j] = w->out_v[r->slot[j]];
-				if (res->annual_return)
-					res->annual_return[(size_t)kk * r->nsizes + j] = w->out_r[r->slot[j]];
-			}
-#pragma omp atomic capture
-			now = ++done;
-			if (opt->progress && omp_get_thread_num() == 0 &&
-			    opt->progress(opt->progress_ctx, now, total)) {
-#pragma omp atomic write
-				stop = 1;
-			}
-		}
-	}
-	for (i = 0; i < nthreads; i++)
-		sws_release(&ws[i]);
-	hc_free(ws);
-	if (stop)
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", done, total);
-	if (opt->progress && opt->progress(opt->progress_ctx, total, total))
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", total, total);
-	return HC_OK;
+	return hc_paths_run(&p, err);
 }
 
 static int check(const struct sampler_options *opt, size_t m, const size_t *sizes,

@@ -40,6 +40,7 @@
 #include <gsl/gsl_statistics_double.h>
 
 #include "fixture.h"
+#include "holdcount/paths.h"
 #include "holdcount/bootstrap.h"
 #include "holdcount/memory.h"
 #include "holdcount/report.h"
@@ -751,12 +752,12 @@ static void test_rules_bootstrap_percentiles(void **state)
 	/* every percentile is some replicate's count: against the definition by
 	 * enumeration on 400 random sets of 1..300 replicates, some not met */
 	for (k = 0; k < 400; k++) {
-		size_t n = 1 + hc_sampler_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
+		size_t n = 1 + hc_paths_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
 		struct rule_result r;
 
 		assert_non_null(c);
 		for (j = 0; j < n; j++) {
-			uint64_t z = hc_sampler_splitmix64(&st);
+			uint64_t z = hc_paths_splitmix64(&st);
 			c[j] = z % 23 == 0 ? 0 : 9 + z % 41;
 		}
 		memcpy(counts, c, n * sizeof *c);

@@ -18,6 +18,7 @@
 #include <gsl/gsl_errno.h>
 
 #include "fixture.h"
+#include "holdcount/paths.h"
 #include "holdcount/memory.h"
 #include "holdcount/sampler.h"
 
@@ -64,7 +65,7 @@ static void test_sampler_splitmix64_reference(void **state)
 	int i;
 
 	for (i = 0; i < 5; i++)
-		assert_true(hc_sampler_splitmix64(&st) == want[i]);
+		assert_true(hc_paths_splitmix64(&st) == want[i]);
 }
 
 /* (e) The sampled mean variance lies within 4 Monte Carlo standard errors
@@ -454,13 +455,13 @@ static void test_sampler_rejects_bad_requests(void **state)
 
 	assert_non_null(u);
 	options(&opt, 100, 1, 1);
-	/* Stratified draws are strata.c's (tests/test_strata.c); here only
-	 * that a mode without strata is refused. */
+	/* Stratified draws are strata.c's (tests/test_strata.c), which builds
+	 * on this module: asked of the sampler, they are refused. */
 	opt.strata = NULL;
 	opt.nstrata = 1;
 	opt.stratify = SAMPLER_STRATA_PROPORTIONAL;
 	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_EUSAGE);
-	assert_string_equal(err.message, "stratified sampling needs every security's stratum");
+	assert_string_equal(err.message, "stratified draws are hc_strata_run's (strata.h)");
 	assert_null(r);
 	(void)strata;
 	options(&opt, 0, 1, 1);

@@ -15,6 +15,7 @@
 
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
+#include "holdcount/paths.h"
 #include "holdcount/source.h"
 #include "holdcount/universe.h"
 
@@ -76,11 +77,10 @@ struct sampler_result {
  * period (divisor T-1).  annual_return, when opt->want_returns, is that
  * portfolio's compound annualised return, rebalanced to equal weights each
  * period: prod(1 + r_t)^(P/T) - 1 with P = opt->periods_per_year.
- * With opt->strata or opt->stratify set, the draws are stratified and
- * hc_strata_run (strata.h) does the work; r->feasible marks the sizes no
- * allocation meets.
- * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, strata without a
- * mode or with a cap of 0), HC_EDATA (fewer
+ * Stratified draws are hc_strata_run's (strata.h, which builds on this
+ * module): opt->strata or opt->stratify set here is HC_EUSAGE.
+ * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, strata),
+ * HC_EDATA (fewer
  * than 2 securities or periods), HC_ENOMEM, HC_EINTERRUPT (progress
  * callback asked to stop).  *out is NULL on error. */
 int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
@@ -100,10 +100,6 @@ int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 
 /* Free r and everything it owns; NULL is a no-op. */
 void hc_sampler_result_free(struct sampler_result *r);
-
-/* splitmix64 step (Steele, Lea & Flood, 2014, OOPSLA): advances *state and
- * returns the next output; used to derive per-path seeds. */
-uint64_t hc_sampler_splitmix64(uint64_t *state);
 
 #ifdef __cplusplus
 }

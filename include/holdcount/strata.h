@@ -127,9 +127,8 @@ double hc_strata_expected_variance(const struct strata_moments *sm, const struct
 				const size_t *alloc);
 
 /*
- * Stratified sampling, as hc_sampler_run does for unconstrained draws (it
- * calls this when opt->stratify is set), from src's complete series or from
- * its matrix (source.h):
+ * Stratified sampling, as hc_sampler_run does for unconstrained draws,
+ * from src's complete series or from its matrix (source.h):
  * opt->strata (m indices), opt->nstrata, opt->stratify and, for the cap,
  * opt->per_stratum_max.  r->feasible[j] is 0 for a size no allocation
  * meets, and its cells hold variance +INFINITY and return -1 (a total
