@@ -609,8 +609,20 @@ static void wrap(FILE *fp, const char *text, size_t col, size_t indent)
 	fputc('\n', fp);
 }
 
-static void print_option(FILE *fp, const struct cli_option *op)
+/* The default an option shows in this use of its group. */
+static const char *default_of(const struct cli_group_use *g, const struct cli_option *op)
 {
+	const struct cli_default *d;
+
+	for (d = g ? g->defaults : NULL; d && d->name; d++)
+		if (strcmp(d->name, op->name) == 0)
+			return d->default_text;
+	return op->default_text;
+}
+
+static void print_option(FILE *fp, const struct cli_group_use *g, const struct cli_option *op)
+{
+	const char *def = default_of(g, op);
 	char left[128], help[512];
 	size_t used, i;
 
@@ -622,8 +634,8 @@ static void print_option(FILE *fp, const struct cli_option *op)
 	} else if (op->kind != CLI_FLAG && used < sizeof left) {
 		used += (size_t)snprintf(left + used, sizeof left - used, " %s", op->metavar ? op->metavar : "VALUE");
 	}
-	if (op->default_text)
-		snprintf(help, sizeof help, "%s (default: %s)", op->help, op->default_text);
+	if (def)
+		snprintf(help, sizeof help, "%s (default: %s)", op->help, def);
 	else
 		snprintf(help, sizeof help, "%s", op->help);
 	fputs(left, fp);
@@ -649,14 +661,14 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd)
 		wrap(fp, cmd->description, 0, 0);
 	}
 	fputs("\noptions:\n", fp);
-	print_option(fp, &help_option);
+	print_option(fp, NULL, &help_option);
 	for (g = cmd->groups; g && g->group; g++) {
 		if (!options_taken(g))
 			continue;
 		fprintf(fp, "\n%s:\n", g->group->title);
 		for (op = g->group->options; op->name; op++)
 			if (!omitted(g, op))
-				print_option(fp, op);
+				print_option(fp, g, op);
 	}
 	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
 	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted.\n", fp);
@@ -710,8 +722,9 @@ static void roff_upper(FILE *fp, const char *s)
 		fputc(*s >= 'a' && *s <= 'z' ? *s - 'a' + 'A' : *s, fp);
 }
 
-static void man_option(FILE *fp, const struct cli_option *op)
+static void man_option(FILE *fp, const struct cli_group_use *g, const struct cli_option *op)
 {
+	const char *def = default_of(g, op);
 	size_t i;
 
 	fputs(".TP\n", fp);
@@ -731,9 +744,9 @@ static void man_option(FILE *fp, const struct cli_option *op)
 	}
 	fputc('\n', fp);
 	roff_text(fp, op->help);
-	if (op->default_text) {
+	if (def) {
 		fputs(" (default: ", fp);
-		roff_text(fp, op->default_text);
+		roff_text(fp, def);
 		fputc(')', fp);
 	}
 	fputs(".\n", fp);
@@ -811,7 +824,7 @@ void cli_print_man(FILE *fp, const struct cli_command *cmd, const char *version)
 		fputs("\"\n", fp);
 		for (op = g->group->options; op->name; op++)
 			if (!omitted(g, op))
-				man_option(fp, op);
+				man_option(fp, g, op);
 	}
 	man_common_sections(fp);
 	fputs(".SH SEE ALSO\n.BR holdcount (1)\n", fp);

@@ -136,10 +136,18 @@ struct cli_omit {
 	const char *why;                /* lower case, no final full stop */
 };
 
+/* An option of a shared group whose default differs for one command: the
+ * text help, the manual page and completion show for it there. */
+struct cli_default {
+	const char *name;               /* long name without "--"; NULL ends a list */
+	const char *default_text;
+};
+
 struct cli_group_use {
 	const struct cli_group *group;  /* NULL ends the list */
 	size_t offset;                  /* of the group's struct in the command's struct */
 	const struct cli_omit *omit;    /* the group's options left out; NULL = none */
+	const struct cli_default *defaults; /* defaults shown differently here; NULL = none */
 };
 
 struct cli_command {

@@ -48,14 +48,14 @@ static const struct cli_omit audit_sampling_omit[] = {
 };
 
 static const struct cli_group_use audit_groups[] = {
-	{ &audit_group, 0, NULL },
-	{ &cli_group_holdings, AO(hold), NULL },
-	{ &cli_group_policy, AO(pol), NULL },
-	{ &cli_group_sampling, AO(sam), audit_sampling_omit },
-	{ &cli_group_universe, AO(uni), NULL },
-	{ &cli_group_matrix_repair, AO(uni), NULL },
-	{ &cli_group_output, AO(out), NULL },
-	{ NULL, 0, NULL }
+	{ &audit_group, 0, NULL, NULL },
+	{ &cli_group_holdings, AO(hold), NULL, NULL },
+	{ &cli_group_policy, AO(pol), NULL, NULL },
+	{ &cli_group_sampling, AO(sam), audit_sampling_omit, NULL },
+	{ &cli_group_universe, AO(uni), NULL, NULL },
+	{ &cli_group_matrix_repair, AO(uni), NULL, NULL },
+	{ &cli_group_output, AO(out), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_audit = {

@@ -23,12 +23,12 @@ struct curve_opts {
 };
 
 static const struct cli_group_use curve_groups[] = {
-	{ &cli_group_sampling, offsetof(struct curve_opts, sam), NULL },
-	{ &cli_group_universe, offsetof(struct curve_opts, uni), NULL },
-	{ &cli_group_matrix_repair, offsetof(struct curve_opts, uni), NULL },
-	{ &cli_group_output, offsetof(struct curve_opts, out), NULL },
-	{ &cli_group_strata, offsetof(struct curve_opts, strat), NULL },
-	{ NULL, 0, NULL }
+	{ &cli_group_sampling, offsetof(struct curve_opts, sam), NULL, NULL },
+	{ &cli_group_universe, offsetof(struct curve_opts, uni), NULL, NULL },
+	{ &cli_group_matrix_repair, offsetof(struct curve_opts, uni), NULL, NULL },
+	{ &cli_group_output, offsetof(struct curve_opts, out), NULL, NULL },
+	{ &cli_group_strata, offsetof(struct curve_opts, strat), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_curve = {

@@ -38,11 +38,11 @@ static const struct cli_option describe_own[] = {
 static const struct cli_group describe_group = { "describe options", describe_own };
 
 static const struct cli_group_use describe_groups[] = {
-	{ &describe_group, 0, NULL },
-	{ &cli_group_universe, offsetof(struct describe_opts, uni), NULL },
-	{ &cli_group_matrix_repair, offsetof(struct describe_opts, uni), NULL },
-	{ &cli_group_output, offsetof(struct describe_opts, out), NULL },
-	{ NULL, 0, NULL }
+	{ &describe_group, 0, NULL, NULL },
+	{ &cli_group_universe, offsetof(struct describe_opts, uni), NULL, NULL },
+	{ &cli_group_matrix_repair, offsetof(struct describe_opts, uni), NULL, NULL },
+	{ &cli_group_output, offsetof(struct describe_opts, out), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_describe = {

@@ -35,14 +35,14 @@ static const struct cli_omit enough_sampling_omit[] = {
 };
 
 static const struct cli_group_use enough_groups[] = {
-	{ &cli_group_rules, OFF(rul), NULL },
-	{ &cli_group_sampling, OFF(smp), enough_sampling_omit },
-	{ &cli_group_summary, OFF(sum), NULL },
-	{ &cli_group_universe, OFF(uni), NULL },
-	{ &cli_group_matrix_repair, OFF(uni), NULL },
-	{ &cli_group_output, OFF(out), NULL },
-	{ &cli_group_strata, OFF(strat), NULL },
-	{ NULL, 0, NULL }
+	{ &cli_group_rules, OFF(rul), NULL, NULL },
+	{ &cli_group_sampling, OFF(smp), enough_sampling_omit, NULL },
+	{ &cli_group_summary, OFF(sum), NULL, NULL },
+	{ &cli_group_universe, OFF(uni), NULL, NULL },
+	{ &cli_group_matrix_repair, OFF(uni), NULL, NULL },
+	{ &cli_group_output, OFF(out), NULL, NULL },
+	{ &cli_group_strata, OFF(strat), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_enough = {

@@ -30,10 +30,10 @@ static const struct cli_option formula_own[] = {
 static const struct cli_group formula_group = { "curve options", formula_own };
 
 static const struct cli_group_use formula_groups[] = {
-	{ &cli_group_summary, offsetof(struct formula_opts, sum), NULL },
-	{ &formula_group, 0, NULL },
-	{ &cli_group_output, offsetof(struct formula_opts, out), NULL },
-	{ NULL, 0, NULL }
+	{ &cli_group_summary, offsetof(struct formula_opts, sum), NULL, NULL },
+	{ &formula_group, 0, NULL, NULL },
+	{ &cli_group_output, offsetof(struct formula_opts, out), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_formula = {

@@ -82,13 +82,13 @@ static const struct cli_omit report_universe_omit[] = {
 };
 
 static const struct cli_group_use report_groups[] = {
-	{ &report_group, 0, NULL },
-	{ &cli_group_rules, RO(rul), NULL },
-	{ &cli_group_holdings, RO(hold), NULL },
-	{ &cli_group_policy, RO(pol), NULL },
-	{ &cli_group_sampling, RO(sam), NULL },
-	{ &cli_group_universe, RO(uni), report_universe_omit },
-	{ NULL, 0, NULL }
+	{ &report_group, 0, NULL, NULL },
+	{ &cli_group_rules, RO(rul), NULL, NULL },
+	{ &cli_group_holdings, RO(hold), NULL, NULL },
+	{ &cli_group_policy, RO(pol), NULL, NULL },
+	{ &cli_group_sampling, RO(sam), NULL, NULL },
+	{ &cli_group_universe, RO(uni), report_universe_omit, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_report = {
