@@ -74,15 +74,10 @@ static int header_field(struct reader *r, const struct csvread_field *f,
 	rc = hc_universe_check_id(r->name, f->line, f->column, f->text, f->len, err);
 	if (rc != HC_OK)
 		return rc;
-	if (c->m == r->cap_ids) {
-		size_t nc = r->cap_ids ? r->cap_ids * 2 : 64;
-
-		ids = hc_reallocarray(c->ids, nc, sizeof *ids);
-		if (!ids)
-			return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
-		c->ids = ids;
-		r->cap_ids = nc;
-	}
+	ids = hc_grow(c->ids, &r->cap_ids, c->m, sizeof *ids, 64);
+	if (!ids)
+		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
+	c->ids = ids;
 	c->ids[c->m] = hc_strndup(f->text, f->len);
 	if (!c->ids[c->m])
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);

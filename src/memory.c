@@ -89,6 +89,23 @@ void *hc_reallocarray(void *p, size_t n, size_t size)
 	return hc_realloc(p, total);
 }
 
+void *hc_grow(void *p, size_t *cap, size_t n, size_t size, size_t first)
+{
+	size_t nc;
+	void *q;
+
+	if (n < *cap)
+		return p;
+	if (*cap == 0)
+		nc = first ? first : 1;
+	else if (hc_mul_size(*cap, 2, &nc))
+		return NULL;
+	q = hc_reallocarray(p, nc, size);
+	if (q)
+		*cap = nc;
+	return q;
+}
+
 void hc_free(void *p)
 {
 	free(p);

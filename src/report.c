@@ -84,14 +84,11 @@ static struct report_field *add_field(struct report *r, const char *key, const c
 	struct report_field *f;
 	char *k, *t;
 
-	if (r->nfields == r->cap_fields) {
-		size_t cap = r->cap_fields ? 2 * r->cap_fields : 16;
-		struct report_field *nf = hc_reallocarray(r->fields, cap, sizeof *nf);
-		if (!nf)
-			return NULL;
-		r->fields = nf;
-		r->cap_fields = cap;
-	}
+	struct report_field *nf = hc_grow(r->fields, &r->cap_fields, r->nfields, sizeof *nf, 16);
+
+	if (!nf)
+		return NULL;
+	r->fields = nf;
 	k = hc_strdup(key);
 	t = hc_strdup(title ? title : key);
 	if (!k || !t) {
@@ -552,18 +549,16 @@ static int write_text_table(FILE *fp, const struct report_table *t)
 
 /* "- note", wrapped at REPORT_TEXT_WIDTH with continuation lines indented
  * under the text; a word longer than a line is left whole. */
-static void put_wrapped_note(FILE *fp, const char *note)
+void hc_report_wrap(FILE *fp, const char *text, size_t col, size_t indent, size_t width)
 {
-	const char *p = note;
-	size_t col = 2;
+	const char *p = text;
 
-	fputs("- ", fp);
 	while (*p) {
 		size_t word = strcspn(p, " ");
-		if (col > 2 && col + 1 + word > REPORT_TEXT_WIDTH) {
-			fputs("\n  ", fp);
-			col = 2;
-		} else if (col > 2) {
+		if (col > indent && col + 1 + word > width) {
+			fprintf(fp, "\n%*s", (int)indent, "");
+			col = indent;
+		} else if (col > indent) {
 			fputc(' ', fp);
 			col++;
 		}
@@ -574,6 +569,12 @@ static void put_wrapped_note(FILE *fp, const char *note)
 			p++;
 	}
 	fputc('\n', fp);
+}
+
+static void put_wrapped_note(FILE *fp, const char *note)
+{
+	fputs("- ", fp);
+	hc_report_wrap(fp, note, 2, 2, REPORT_TEXT_WIDTH);
 }
 
 static int write_text(FILE *fp, const struct report *r, struct hc_error *err)

@@ -28,6 +28,18 @@ char *hc_strdup(const char *s);
 char *hc_strndup(const char *s, size_t n);
 
 /*
+ * Room for one more element in an array p of n elements (of size bytes)
+ * allocated for *cap: p itself while n < *cap; else p grown by doubling
+ * (to first elements when *cap is 0) through hc_reallocarray, with *cap
+ * updated.  NULL when out of memory, with p and *cap unchanged (p still
+ * the caller's).  The one grow-by-doubling of the library:
+ *     nf = hc_grow(r->fields, &r->cap_fields, r->nfields, sizeof *nf, 16);
+ *     if (!nf) return HC_ENOMEM;
+ *     r->fields = nf;
+ */
+void *hc_grow(void *p, size_t *cap, size_t n, size_t size, size_t first);
+
+/*
  * Fault injection: after n more successful allocations, every allocation
  * fails (returns NULL) until hc_alloc_fail_after(-1) turns it off.
  * hc_alloc_count() returns how many allocations succeeded since start.

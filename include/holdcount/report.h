@@ -143,6 +143,12 @@ const struct report_table *hc_report_find_table(const struct report *r, const ch
  * the table) when r has no table of that key, HC_EIO when fp fails. */
 int hc_report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err);
 
+/* text onto fp word by word, the cursor at column col: a word that would
+ * pass column width starts a new line indented by indent; a final newline.
+ * Words are split at spaces only.  (The notes of the text writer, and the
+ * command's help.) */
+void hc_report_wrap(FILE *fp, const char *text, size_t col, size_t indent, size_t width);
+
 /* The reading form of v, as the text writer prints it (styles, "yes"/"no",
  * "-" or the reason for no value; never "-0.00%": a value that rounds to
  * zero is zero), into buf or pointing into v. */

@@ -155,7 +155,8 @@ void cli_summary_init(struct cli_summary *s)
 
 /* Each returns 0 and stores, or -1 with *expected naming what was wanted. */
 
-static int parse_count(const char *s, size_t *out)
+/* A whole number of decimal digits only, at most limit. */
+static int parse_unsigned(const char *s, unsigned long long limit, unsigned long long *out)
 {
 	unsigned long long v;
 	char *end;
@@ -164,7 +165,17 @@ static int parse_count(const char *s, size_t *out)
 		return -1;
 	errno = 0;
 	v = strtoull(s, &end, 10);
-	if (errno || v > SIZE_MAX)
+	if (errno || v > limit)
+		return -1;
+	*out = v;
+	return 0;
+}
+
+static int parse_count(const char *s, size_t *out)
+{
+	unsigned long long v;
+
+	if (parse_unsigned(s, SIZE_MAX, &v))
 		return -1;
 	*out = (size_t)v;
 	return 0;
@@ -173,13 +184,8 @@ static int parse_count(const char *s, size_t *out)
 static int parse_u64(const char *s, uint64_t *out)
 {
 	unsigned long long v;
-	char *end;
 
-	if (!*s || strspn(s, "0123456789") != strlen(s))
-		return -1;
-	errno = 0;
-	v = strtoull(s, &end, 10);
-	if (errno || v > UINT64_MAX)
+	if (parse_unsigned(s, UINT64_MAX, &v))
 		return -1;
 	*out = (uint64_t)v;
 	return 0;
@@ -589,24 +595,7 @@ int cli_given(const struct cli_args *a, const char *name)
  * the first line starts at column col. */
 static void wrap(FILE *fp, const char *text, size_t col, size_t indent)
 {
-	const char *p = text;
-
-	while (*p) {
-		size_t word = strcspn(p, " ");
-		if (col > indent && col + 1 + word > HELP_WIDTH) {
-			fprintf(fp, "\n%*s", (int)indent, "");
-			col = indent;
-		} else if (col > indent) {
-			fputc(' ', fp);
-			col++;
-		}
-		fwrite(p, 1, word, fp);
-		col += word;
-		p += word;
-		while (*p == ' ')
-			p++;
-	}
-	fputc('\n', fp);
+	hc_report_wrap(fp, text, col, indent, HELP_WIDTH);
 }
 
 /* The default an option shows in this use of its group. */

@@ -62,24 +62,9 @@ void cli_rules_init(struct cli_rules *r)
 	r->bootstrap_paths = ENOUGH_DEFAULT_BOOTSTRAP_PATHS;
 }
 
-/* A yearly sd step: "0.10pp" (percentage points), "0.1%" or "0.001". */
-int cli_parse_sd_step(const char *s, double *out)
-{
-	char *end;
-	double x = strtod(s, &end);
-
-	if (end == s || !isfinite(x))
-		return -1;
-	if (strcmp(end, "pp") == 0 || strcmp(end, "%") == 0)
-		x /= 100;
-	else if (*end)
-		return -1;
-	*out = x;
-	return 0;
-}
-
-/* One share: "95%" or "0.95". */
-static int parse_share(const char *s, size_t len, double *out)
+/* A finite number in s[0..len), as a decimal or with a "%" suffix (or
+ * "pp", percentage points, when pp is set) meaning hundredths. */
+static int parse_percent(const char *s, size_t len, int pp, double *out)
 {
 	char buf[64], *end;
 	double x;
@@ -91,12 +76,24 @@ static int parse_share(const char *s, size_t len, double *out)
 	x = strtod(buf, &end);
 	if (end == buf || !isfinite(x))
 		return -1;
-	if (strcmp(end, "%") == 0)
+	if (strcmp(end, "%") == 0 || (pp && strcmp(end, "pp") == 0))
 		x /= 100;
 	else if (*end)
 		return -1;
 	*out = x;
 	return 0;
+}
+
+/* A yearly sd step: "0.10pp" (percentage points), "0.1%" or "0.001". */
+int cli_parse_sd_step(const char *s, double *out)
+{
+	return parse_percent(s, strlen(s), 1, out);
+}
+
+/* One share: "95%" or "0.95". */
+static int parse_share(const char *s, size_t len, double *out)
+{
+	return parse_percent(s, len, 0, out);
 }
 
 /* "A:B" as two shares. */
