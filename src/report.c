@@ -873,6 +873,118 @@ nomem:
 	return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
 }
 
+/* ---- Markdown ----------------------------------------------------------- */
+
+static long col_of(const struct report_table *t, const char *key)
+{
+	size_t j;
+
+	for (j = 0; j < t->ncols; j++)
+		if (strcmp(t->cols[j].key, key) == 0)
+			return (long)j;
+	return -1;
+}
+
+void hc_report_md_value(FILE *fp, const struct report_value *v, int style)
+{
+	struct report_value w = *v;
+	char buf[64];
+	const char *s;
+
+	w.style = style;
+	for (s = format_text(buf, sizeof buf, &w); s && *s; s++)
+		fputs(*s == '|' ? "\\|" : (char[2]){ *s == '\n' ? ' ' : *s, 0 }, fp);
+}
+
+const struct report_value *hc_report_md_cell(const struct report_table *t, size_t row, const char *key)
+{
+	long j = col_of(t, key);
+	static const struct report_value none = { REPORT_NONE, 0, 0, 0, NULL };
+
+	return j < 0 ? &none : &t->cells[row * t->ncols + (size_t)j];
+}
+
+static int style_of(const struct report_table *t, const char *key)
+{
+	long j = col_of(t, key);
+
+	return j < 0 ? REPORT_STYLE_PLAIN : t->cols[j].style;
+}
+
+/* Numbers align right, words left: a column is numeric when every cell
+ * that holds something is a number. */
+static int numeric_column(const struct report_table *t, const char *key)
+{
+	long j = col_of(t, key);
+	size_t i;
+	int any = 0;
+
+	for (i = 0; j >= 0 && i < t->nrows; i++) {
+		int kind = t->cells[i * t->ncols + (size_t)j].kind;
+		if (kind == REPORT_TEXT || kind == REPORT_BOOL || t->cells[i * t->ncols + (size_t)j].text)
+			return 0;
+		any |= kind != REPORT_NONE;
+	}
+	return any;
+}
+
+void hc_report_md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
+			int (*keep)(const struct report_table *, size_t, const void *), const void *ctx)
+{
+	size_t i, j;
+
+	for (j = 0; j < ncols; j++)
+		fprintf(fp, "| %s ", cols[j][1]);
+	fputs("|\n", fp);
+	for (j = 0; j < ncols; j++)
+		fputs(j > 0 && numeric_column(t, cols[j][0]) ? "|--:" : "|:--", fp);
+	fputs("|\n", fp);
+	for (i = 0; i < t->nrows; i++) {
+		if (keep && !keep(t, i, ctx))
+			continue;
+		for (j = 0; j < ncols; j++) {
+			fputs("| ", fp);
+			hc_report_md_value(fp, hc_report_md_cell(t, i, cols[j][0]), style_of(t, cols[j][0]));
+			fputc(' ', fp);
+		}
+		fputs("|\n", fp);
+	}
+	fputc('\n', fp);
+}
+
+/* The whole report: fields as a list, each table under its title with
+ * every column, the notes as a list. */
+static int write_markdown(FILE *fp, const struct report *r, struct hc_error *err)
+{
+	const char *(*cols)[2];
+	size_t i, j;
+
+	errno = 0;
+	for (i = 0; i < r->nfields; i++) {
+		fprintf(fp, "- %s: ", r->fields[i].title);
+		hc_report_md_value(fp, &r->fields[i].value, r->fields[i].value.style);
+		fputc('\n', fp);
+	}
+	if (r->nfields)
+		fputc('\n', fp);
+	for (i = 0; i < r->ntables; i++) {
+		const struct report_table *t = r->tables[i];
+
+		if (!(cols = hc_calloc(t->ncols ? t->ncols : 1, sizeof *cols)))
+			return hc_error(err, HC_ENOMEM, "out of memory writing Markdown");
+		for (j = 0; j < t->ncols; j++) {
+			cols[j][0] = t->cols[j].key;
+			cols[j][1] = t->cols[j].title;
+		}
+		fprintf(fp, "### %s\n\n", t->title);
+		hc_report_md_table(fp, t, (const char *const (*)[2])cols, t->ncols, NULL, NULL);
+		hc_free(cols);
+	}
+	for (i = 0; i < r->nnotes; i++)
+		fprintf(fp, "- %s\n", r->notes[i]);
+	return ferror(fp) ? write_failed(err) : HC_OK;
+}
+
 static const struct report_writer writer_text = { "table", write_text };
 static const struct report_writer writer_csv = { "csv", write_csv };
 static const struct report_writer writer_json = { "json", write_json };
@@ -880,10 +992,12 @@ static const struct report_writer writer_json = { "json", write_json };
 const struct report_writer *const hc_report_writer_text = &writer_text;
 const struct report_writer *const hc_report_writer_csv = &writer_csv;
 const struct report_writer *const hc_report_writer_json = &writer_json;
+static const struct report_writer writer_markdown = { "markdown", write_markdown };
+const struct report_writer *const hc_report_writer_markdown = &writer_markdown;
 
 const struct report_writer *hc_report_writer_find(const char *name)
 {
-	static const struct report_writer *const all[] = { &writer_text, &writer_csv, &writer_json };
+	static const struct report_writer *const all[] = { &writer_text, &writer_csv, &writer_json, &writer_markdown };
 	size_t i;
 
 	for (i = 0; name && i < sizeof all / sizeof all[0]; i++)

@@ -338,98 +338,6 @@ static int write_json(struct reportdir *rd, struct hc_reportset *r, struct hc_er
 
 /* ---- summary.md ------------------------------------------------------------------------ */
 
-static long col_of(const struct report_table *t, const char *key)
-{
-	size_t j;
-
-	for (j = 0; j < t->ncols; j++)
-		if (strcmp(t->cols[j].key, key) == 0)
-			return (long)j;
-	return -1;
-}
-
-static const struct report_table *table_of(const struct report *rep, const char *key)
-{
-	size_t i;
-
-	for (i = 0; rep && i < rep->ntables; i++)
-		if (strcmp(rep->tables[i]->key, key) == 0)
-			return rep->tables[i];
-	return NULL;
-}
-
-/* A cell as the text writer shows it (hc_report_value_text: the same
- * styles, and never "-0.00%"); '|' escaped and line breaks made spaces for
- * Markdown. */
-static void md_value(FILE *fp, const struct report_value *v, int style)
-{
-	struct report_value w = *v;
-	char buf[64];
-	const char *s;
-
-	w.style = style;
-	for (s = hc_report_value_text(buf, sizeof buf, &w); s && *s; s++)
-		fputs(*s == '|' ? "\\|" : (char[2]){ *s == '\n' ? ' ' : *s, 0 }, fp);
-}
-
-static const struct report_value *cell(const struct report_table *t, size_t row, const char *key)
-{
-	long j = col_of(t, key);
-	static const struct report_value none = { REPORT_NONE, 0, 0, 0, NULL };
-
-	return j < 0 ? &none : &t->cells[row * t->ncols + (size_t)j];
-}
-
-static int style_of(const struct report_table *t, const char *key)
-{
-	long j = col_of(t, key);
-
-	return j < 0 ? REPORT_STYLE_PLAIN : t->cols[j].style;
-}
-
-/* Numbers align right, words left: a column is numeric when every cell
- * that holds something is a number. */
-static int numeric_column(const struct report_table *t, const char *key)
-{
-	long j = col_of(t, key);
-	size_t i;
-	int any = 0;
-
-	for (i = 0; j >= 0 && i < t->nrows; i++) {
-		int kind = t->cells[i * t->ncols + (size_t)j].kind;
-		if (kind == REPORT_TEXT || kind == REPORT_BOOL || t->cells[i * t->ncols + (size_t)j].text)
-			return 0;
-		any |= kind != REPORT_NONE;
-	}
-	return any;
-}
-
-/* A Markdown table of the given columns (key, heading) of t; rows where
- * keep(row) says so. */
-static void md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
-		     int (*keep)(const struct report_table *, size_t, const void *), const void *ctx)
-{
-	size_t i, j;
-
-	for (j = 0; j < ncols; j++)
-		fprintf(fp, "| %s ", cols[j][1]);
-	fputs("|\n", fp);
-	for (j = 0; j < ncols; j++)
-		fputs(j > 0 && numeric_column(t, cols[j][0]) ? "|--:" : "|:--", fp);
-	fputs("|\n", fp);
-	for (i = 0; i < t->nrows; i++) {
-		if (keep && !keep(t, i, ctx))
-			continue;
-		for (j = 0; j < ncols; j++) {
-			fputs("| ", fp);
-			md_value(fp, cell(t, i, cols[j][0]), style_of(t, cols[j][0]));
-			fputc(' ', fp);
-		}
-		fputs("|\n", fp);
-	}
-	fputc('\n', fp);
-}
-
 /* A row of the readable grid (and the last, N = M).  A grid given with
  * --sizes that shares few counts with it is shown whole instead. */
 static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx);
@@ -445,7 +353,7 @@ static int readable_row(const struct report_table *t, size_t row, const void *ct
 
 static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx)
 {
-	const struct report_value *v = cell(t, row, "n");
+	const struct report_value *v = hc_report_md_cell(t, row, "n");
 	size_t m = *(const size_t *)ctx, k;
 
 	if (v->kind != REPORT_INT)
@@ -465,7 +373,7 @@ static void md_field(FILE *fp, const struct report *rep, const char *key, const 
 	for (i = 0; i < rep->nfields; i++)
 		if (strcmp(rep->fields[i].key, key) == 0) {
 			fprintf(fp, "- %s: ", label);
-			md_value(fp, &rep->fields[i].value, rep->fields[i].value.style);
+			hc_report_md_value(fp, &rep->fields[i].value, rep->fields[i].value.style);
 			fputc('\n', fp);
 		}
 }
@@ -499,7 +407,7 @@ static void md_curve(FILE *fp, const struct hc_reportset *r)
 		{ "sampled_mean_sd", "mean sd (random)" }, { "sd_p05", "sd 5%" }, { "sd_p95", "sd 95%" },
 		{ "z_score", "z (sampled vs exact)" },
 	};
-	const struct report_table *t = table_of(r->rep_curve, "curve");
+	const struct report_table *t = hc_report_find_table(r->rep_curve, "curve");
 
 	fputs("## Risk by holding count\n\n", fp);
 	fprintf(fp, "Exact figures for a random equal-weight portfolio of N holdings drawn without replacement, "
@@ -507,7 +415,7 @@ static void md_curve(FILE *fp, const struct hc_reportset *r)
 		"distance from the exact one in Monte Carlo standard errors. Every grid row is in `curve.csv`.\n\n",
 		r->curve->paths, (unsigned long long)r->curve->seed);
 	if (t)
-		md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row, &r->u->m);
+		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row, &r->u->m);
 }
 
 /* What each rule asks, in a line a committee reader can follow; sources as
@@ -532,7 +440,7 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 		{ "count_p05", "5%" }, { "count_p50", "median" }, { "count_p95", "95%" },
 		{ "value_at_count", "value at count" }, { "unit", "value is" }, { "note", "note" },
 	};
-	const struct report_table *t = table_of(r->rep_enough, "rules");
+	const struct report_table *t = hc_report_find_table(r->rep_enough, "rules");
 	size_t k;
 	int sampled = 0, intervals = 0;
 
@@ -564,7 +472,7 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 		fputs("How to read it: the count is the estimate from the whole history; no bootstrap was run "
 		      "(`--bootstrap 0`), so there is no interval for the estimation error in it.\n\n", fp);
 	if (t)
-		md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
 	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
 }
 
@@ -577,7 +485,7 @@ static void md_audit(FILE *fp, const struct hc_reportset *r)
 		{ "ucits", "UCITS" }, { "1940act", "1940 Act" }, { "ric", "RIC" },
 		{ "passed", "passes policy" }, { "failed_rules", "fails" },
 	};
-	const struct report_table *t = table_of(r->rep_audit, "funds");
+	const struct report_table *t = hc_report_find_table(r->rep_audit, "funds");
 
 	fputs("## Audited funds\n\n", fp);
 	if (!t) {
@@ -595,10 +503,10 @@ static void md_audit(FILE *fp, const struct hc_reportset *r)
 	      "of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3), written from memory of the texts: "
 	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
 	      "only when `--screens` names it.\n\n", fp);
-	md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
 	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, and "
 		"everything in `summary.json` under `audit`.\n\n",
-		table_of(r->rep_audit, "sectors") ? ", each fund's sector weights in `audit-sectors.csv`" : "");
+		hc_report_find_table(r->rep_audit, "sectors") ? ", each fund's sector weights in `audit-sectors.csv`" : "");
 }
 
 /* Whether some row of t has a non-empty text in column key. */
@@ -607,7 +515,7 @@ static int any_text(const struct report_table *t, const char *key)
 	size_t i;
 
 	for (i = 0; i < t->nrows; i++) {
-		const struct report_value *v = cell(t, i, key);
+		const struct report_value *v = hc_report_md_cell(t, i, key);
 		if (v->kind == REPORT_TEXT && v->text && v->text[0])
 			return 1;
 	}
@@ -621,7 +529,7 @@ static void md_rolling(FILE *fp, const struct hc_reportset *r)
 		{ "average_correlation", "avg correlation" }, { "floor_sd", "floor sd a year" },
 	};
 	const char *cols[RULES_COUNT + 8][2];
-	const struct report_table *t = table_of(r->rep_rolling, "windows");
+	const struct report_table *t = hc_report_find_table(r->rep_rolling, "windows");
 	size_t n = 0, j;
 
 	fputs("## Count needed through time\n\n", fp);
@@ -649,7 +557,7 @@ static void md_rolling(FILE *fp, const struct hc_reportset *r)
 		cols[n][0] = "note";
 		cols[n++][1] = "note";
 	}
-	md_table(fp, t, (const char *const (*)[2])cols, n, NULL, NULL);
+	hc_report_md_table(fp, t, (const char *const (*)[2])cols, n, NULL, NULL);
 }
 
 static void md_plots(FILE *fp, const struct hc_reportset *r, const struct plots_input *pin, const unsigned char *made)
@@ -707,8 +615,8 @@ static int write_markdown(struct reportdir *rd, struct hc_reportset *r, const st
 	      "`--format csv` and the same options\n", fp);
 	if (r->rep_audit)
 		fprintf(fp, "- `audit-screens.csv`%s: what `holdcount audit` prints with `--format csv --table "
-			"screens`%s\n", table_of(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
-			table_of(r->rep_audit, "sectors") ? " and `--table sectors`" : "");
+			"screens`%s\n", hc_report_find_table(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
+			hc_report_find_table(r->rep_audit, "sectors") ? " and `--table sectors`" : "");
 	if (r->rep_rolling)
 		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
 	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);

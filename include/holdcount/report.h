@@ -124,13 +124,28 @@ int hc_report_table_set_none(struct report_table *t, size_t row, size_t col, con
  * renders r to fp and returns HC_OK, HC_EIO when fp reports a write error,
  * or HC_ENOMEM, with err filled; fp is not closed. */
 struct report_writer {
-	const char *name;          /* "table", "csv", "json" */
+	const char *name;          /* "table", "csv", "json", "markdown" */
 	int (*write)(FILE *fp, const struct report *r, struct hc_error *err);
 };
 
 extern const struct report_writer *const hc_report_writer_text;
 extern const struct report_writer *const hc_report_writer_csv;
 extern const struct report_writer *const hc_report_writer_json;
+/* Markdown: the fields as a "- title: value" list, each table under a
+ * "### title" heading with every column (numbers right-aligned), the notes
+ * as a list; numbers as the text writer prints them (hc_report_value_text),
+ * '|' escaped. */
+extern const struct report_writer *const hc_report_writer_markdown;
+
+/* The Markdown pieces the writer above is made of, for documents that
+ * compose several reports (reportset.h's summary.md): one value (style as
+ * given; '|' escaped, line breaks as spaces), the cell of column key in row
+ * (a no-value cell when t has no such column), and a table of the given
+ * columns {key, heading} of t, rows where keep(t, row, ctx) (NULL: all). */
+void hc_report_md_value(FILE *fp, const struct report_value *v, int style);
+const struct report_value *hc_report_md_cell(const struct report_table *t, size_t row, const char *key);
+void hc_report_md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
+			int (*keep)(const struct report_table *, size_t, const void *), const void *ctx);
 
 /* The table of r whose key is key; NULL when there is none. */
 const struct report_table *hc_report_find_table(const struct report *r, const char *key);
