@@ -635,6 +635,13 @@ int hc_moments_from_universe(struct moments *mo, const struct universe *u,
 	return hc_moments_from_universe_route(mo, u, route, err);
 }
 
+void hc_moments_summary_averages(double variance, double covariance, double sd, double correlation,
+				 double *vbar, double *cbar)
+{
+	*vbar = !isnan(variance) ? variance : sd * sd;
+	*cbar = !isnan(covariance) ? covariance : correlation * *vbar;
+}
+
 int hc_moments_from_source(struct moments *mo, const struct hc_source *src, struct hc_error *err)
 {
 	int rc;

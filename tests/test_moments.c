@@ -509,10 +509,27 @@ static void test_moments_pairwise_minimum_periods(void **state)
 	hc_universe_free(u);
 }
 
+/* Summary statistics: an sd of 23.85% and correlation 0.3 give v-bar =
+ * 0.23850^2 = 0.0568822 5 and c-bar = 0.3 v-bar = 0.0170646 75 (by hand);
+ * given variances pass through unchanged. */
+static void test_moments_summary_averages(void **state)
+{
+	double v, c;
+
+	(void)state;
+	hc_moments_summary_averages(NAN, NAN, 0.2385, 0.3, &v, &c);
+	assert_true(fabs(v - 0.05688225) < 1e-15 && fabs(c - 0.017064675) < 1e-15);
+	hc_moments_summary_averages(0.0412, NAN, 0.9, -0.1, &v, &c);
+	assert_true(v == 0.0412 && fabs(c + 0.00412) < 1e-15);
+	hc_moments_summary_averages(0.0412, 0.0097, 0.9, -0.1, &v, &c);
+	assert_true(v == 0.0412 && c == 0.0097);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_moments_gram_route_matches_reference),
+		cmocka_unit_test(test_moments_summary_averages),
 		cmocka_unit_test(test_moments_matrix_route_matches_reference),
 		cmocka_unit_test(test_moments_matrix_route_several_blocks),
 		cmocka_unit_test(test_moments_gram_and_matrix_routes_agree),

@@ -103,6 +103,13 @@ struct hc_source;
 int hc_moments_from_source(struct moments *mo, const struct hc_source *src,
 			   struct hc_error *err);
 
+/* The averages summary statistics give: vbar = variance when it is a
+ * number, else sd squared; cbar = covariance when it is a number, else
+ * correlation times vbar (the equal-variance reading: common practice, no
+ * single source).  Pass NAN for what was not given.  Cannot fail. */
+void hc_moments_summary_averages(double variance, double covariance, double sd, double correlation,
+				 double *vbar, double *cbar);
+
 /* From summary statistics: average variance vbar, average covariance cbar,
  * m securities (0 = unbounded).  No spread; correlation cbar/vbar is used
  * only as an approximation and flagged has_correlation = 0. */

@@ -13,6 +13,7 @@
 
 #include "cli.h"
 #include "holdcount/enough.h"
+#include "holdcount/moments.h"
 #include "holdcount/rules.h"
 #include "holdcount/source.h"
 #include "holdcount/universe.h"
@@ -82,9 +83,8 @@ static int summary_averages(const struct enough_opts *o, const struct cli_args *
 	if (cor && !(fabs(o->sum.average_correlation) <= 1))
 		return cli_usage_error("enough", "--average-correlation must lie from -1 to 1, found %g",
 				       o->sum.average_correlation);
-	*vbar = var ? o->sum.average_variance : o->sum.average_sd * o->sum.average_sd;
-	/* correlation times the average variance: the equal-variance reading */
-	*cbar = cov ? o->sum.average_covariance : o->sum.average_correlation * *vbar;
+	hc_moments_summary_averages(var ? o->sum.average_variance : NAN, cov ? o->sum.average_covariance : NAN,
+				    o->sum.average_sd, o->sum.average_correlation, vbar, cbar);
 	return HC_OK;
 }
 

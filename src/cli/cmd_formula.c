@@ -46,10 +46,8 @@ const struct cli_command cli_command_formula = {
 	0, 0, formula_groups
 };
 
-/* The averages from whichever pair of options was given: variance from
- * --average-variance or the square of --average-sd; covariance from
- * --average-covariance or correlation times the average variance (the
- * equal-variance reading, common practice, no single source). */
+/* The averages from whichever pair of options was given
+ * (hc_moments_summary_averages). */
 static int averages(const struct formula_opts *o, const struct cli_args *a, double *vbar, double *cbar)
 {
 	int var = cli_given(a, "average-variance"), sd = cli_given(a, "average-sd");
@@ -63,11 +61,11 @@ static int averages(const struct formula_opts *o, const struct cli_args *a, doub
 					: "needs --average-covariance or --average-correlation (see 'holdcount formula --help')");
 	if (sd && !(o->sum.average_sd > 0.0))
 		return cli_usage_error("formula", "--average-sd must be positive, found %g", o->sum.average_sd);
-	*vbar = var ? o->sum.average_variance : o->sum.average_sd * o->sum.average_sd;
 	if (cor && !(fabs(o->sum.average_correlation) <= 1.0))
 		return cli_usage_error("formula", "--average-correlation must lie from -1 to 1, found %g",
 				       o->sum.average_correlation);
-	*cbar = cov ? o->sum.average_covariance : o->sum.average_correlation * *vbar;
+	hc_moments_summary_averages(var ? o->sum.average_variance : NAN, cov ? o->sum.average_covariance : NAN,
+				    o->sum.average_sd, o->sum.average_correlation, vbar, cbar);
 	return HC_OK;
 }
 
