@@ -65,8 +65,10 @@
  *              rc = cli_parse(&cli_command_frob, argc, argv, &o, &a);
  *              if (rc != HC_OK)
  *                  return cli_parse_status(rc);   // 0 after --help, 2 on error
- *              ... build a struct report r, then
- *              rc = cli_write_report("frob", &o.out, r);  // prints its own errors
+ *              rc = cli_load_source("frob", &o.uni, &a, a.positional[0], 0, NULL, &src);
+ *              ... the library's options from o, then its one call:
+ *              hc_frob_run(&res, src, &fo, &err)  (cli_fail on error), and
+ *              rc = cli_write_report("frob", &o.out, res->report);  // prints its own errors
  *              ...
  *              cli_args_release(&a);
  *              return rc;
@@ -74,8 +76,10 @@
  *
  *      Library failures: `return cli_fail("frob", &err);` prints
  *      "holdcount frob: MESSAGE" and returns err.code (the exit status).
- *      Long loops: struct cli_progress (a bar on stderr, only on a terminal
- *      and without --quiet); its update function fits sampler_progress_fn.
+ *      Long loops: cli_steps_bind fills the analysis's struct hc_progress
+ *      with progress bars on stderr (only on a terminal and without
+ *      --quiet).  A command computes nothing itself: parse, build the
+ *      source, call the library, write (docs/architecture.md).
  *
  * Values land in these C types: CLI_FLAG int (set to 1), CLI_STRING
  * const char * (points into argv), CLI_COUNT size_t, CLI_REAL double,
