@@ -67,6 +67,18 @@ int hc_curve_run(struct hc_curve_result **out, const struct hc_source *src, cons
  * alone still says its scale).  HC_OK or HC_ENOMEM. */
 int hc_curve_add_table(struct report *r, const struct curve *c, int annualised);
 
+/*
+ * The exact curve from summary statistics alone (mo from
+ * hc_moments_from_summary) at sizes, annualised by periods_per_year (0: on
+ * the inputs' scale), as the report `holdcount formula` prints: the
+ * averages, the implied correlation, the floor, and the table "curve";
+ * plain shows the sd-scale columns as plain numbers (inputs in an unknown
+ * unit, such as percent squared).  *out is new (hc_report_free) or NULL on
+ * error: hc_curve_exact's errors, HC_ENOMEM.
+ */
+int hc_curve_formula(struct report **out, const struct moments *mo, const size_t *sizes, size_t nsizes,
+		     double periods_per_year, int plain, struct hc_error *err);
+
 /* Free r and everything it owns; NULL is a no-op. */
 void hc_curve_result_free(struct hc_curve_result *r);
 
