@@ -59,10 +59,7 @@ static uint64_t splitmix64(uint64_t *state)
  * streams. */
 static uint64_t replicate_state(uint64_t seed, size_t rep)
 {
-	uint64_t a = (uint64_t)rep, s;
-
-	s = seed ^ splitmix64(&a);
-	return splitmix64(&s);
+	return hc_paths_stream(seed, (uint64_t)rep);
 }
 
 /* Uniform integer in 0..n-1 without modulo bias: reject the low

@@ -25,6 +25,13 @@ unsigned long hc_paths_seed32(uint64_t seed, size_t k)
 	return (unsigned long)((z ^ (z >> 32)) & 0xffffffffUL);
 }
 
+uint64_t hc_paths_stream(uint64_t key, uint64_t index)
+{
+	uint64_t s = key ^ hc_paths_splitmix64(&index);
+
+	return hc_paths_splitmix64(&s);
+}
+
 uint64_t hc_paths_mix(uint64_t seed, uint64_t tag, uint64_t a, uint64_t b)
 {
 	uint64_t st = seed ^ tag;

@@ -981,10 +981,7 @@ int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src
  * directly. */
 uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep)
 {
-	uint64_t s = seed ^ 0x5DEECE66DULL, r = (uint64_t)rep;
-
-	s ^= hc_paths_splitmix64(&r);
-	return hc_paths_splitmix64(&s);
+	return hc_paths_stream(seed ^ 0x5DEECE66DULL, (uint64_t)rep);
 }
 
 /* One replicate's band and shortfall counts (0 = not met). */

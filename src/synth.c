@@ -16,6 +16,7 @@
 #include <gsl/gsl_rng.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
 
 void hc_synth_options_init(struct synth_options *opt)
 {
@@ -284,22 +285,15 @@ int hc_synth_options_check(const struct synth_options *opt, struct hc_error *err
 /* ---- the model -------------------------------------------------------- */
 
 /* splitmix64 (Steele, Lea & Flood, 2014, "Fast splittable pseudorandom
- * number generators", OOPSLA): turns (seed, stream) into well-mixed seeds so
- * that the parameter and return streams are unrelated. */
-static uint64_t splitmix64(uint64_t x)
-{
-	x += 0x9e3779b97f4a7c15ULL;
-	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9ULL;
-	x = (x ^ (x >> 27)) * 0x94d049bb133111ebULL;
-	return x ^ (x >> 31);
-}
-
+ * number generators", OOPSLA) through paths.h: (stream, seed) gives
+ * well-mixed seeds, so that the parameter and return streams are
+ * unrelated. */
 static gsl_rng *stream_rng(uint64_t seed, uint64_t stream)
 {
 	gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
 
 	if (r)
-		gsl_rng_set(r, (unsigned long)splitmix64(splitmix64(seed) ^ stream));
+		gsl_rng_set(r, (unsigned long)hc_paths_stream(stream, seed));
 	return r;
 }
 

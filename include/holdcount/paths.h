@@ -8,7 +8,10 @@
  * thread count (design.md section 4).  Seeds come from splitmix64 (Steele,
  * Lea & Flood, 2014, OOPSLA), whose outputs for neighbouring inputs are
  * unrelated: hc_paths_seed32 gives a 32-bit seed for a GSL generator of
- * path k, hc_paths_mix the 64-bit state of a tagged stream.
+ * path k, hc_paths_stream the state of a numbered stream (bootstrap
+ * replicates, synth), hc_paths_mix that of a tagged stream of two indices
+ * (the stratified allocations).  Every random stream of the library is
+ * seeded through these three.
  */
 #ifndef HOLDCOUNT_PATHS_H
 #define HOLDCOUNT_PATHS_H
@@ -32,6 +35,12 @@ uint64_t hc_paths_splitmix64(uint64_t *state);
 /* Seed for path k of a run seeded with seed: the (k+1)-th splitmix64
  * output from seed, folded to the 32 bits GSL's generators take. */
 unsigned long hc_paths_seed32(uint64_t seed, size_t k);
+
+/* The state of stream index under key: splitmix64(key ^ splitmix64(index))
+ * (each splitmix64 of a copy).  The bootstrap's replicate rep is
+ * (seed, rep); the sampled rules' bootstrap tags its key (seed ^ a
+ * constant); synth's parameter and return streams are (stream, seed). */
+uint64_t hc_paths_stream(uint64_t key, uint64_t index);
 
 /* A 64-bit stream state from seed, a tag naming the stream's use, and two
  * indices (path, size): two splitmix64 steps over (seed ^ tag) + golden*a,
