@@ -17,7 +17,9 @@
 #include "holdcount/curverun.h"
 #include "holdcount/describe.h"
 #include "holdcount/enough.h"
+#include "holdcount/holdings.h"
 #include "holdcount/memory.h"
+#include "holdcount/reportset.h"
 #include "holdcount/sampler.h"
 
 #include "fixture.h"
@@ -199,6 +201,99 @@ static void test_analysis_allocation_failure(void **state)
 	hc_universe_free(u);
 }
 
+/* The report pipeline: its curve, rules and audit are the very results of
+ * hc_curve_run, hc_enough_run and hc_audit_run with the same options; the
+ * window choice; allocation failure over the whole pipeline. */
+struct pipeline {
+	const struct hc_source *src;
+	const struct universe *every;
+	struct hc_reportset_options ro;
+	struct hc_reportset *rs;
+};
+
+static int made_pipeline(void *ctx, struct hc_error *err)
+{
+	struct pipeline *p = ctx;
+
+	return hc_reportset_run(&p->rs, p->src, p->every, &p->ro, err);
+}
+
+static void pipeline_release(void *ctx)
+{
+	struct pipeline *p = ctx;
+
+	hc_reportset_free(p->rs);
+	p->rs = NULL;
+}
+
+static void pipeline_failed(void *ctx)
+{
+	assert_null(((struct pipeline *)ctx)->rs);
+}
+
+static void test_analysis_report_pipeline(void **state)
+{
+	static const char funds[] = "fund,id,weight\nAlder,S03,0.5\nAlder,S11,0.3\nAlder,S19,0.2\n"
+				    "Birch,S02,0.25\nBirch,S05,0.25\nBirch,S07,0.25\nBirch,S23,0.25\n";
+	static const size_t sizes[] = { 1, 4, 12 };
+	struct universe *u = universe();
+	struct holdings_options ho;
+	struct holdings *h = NULL;
+	struct pipeline p;
+	struct hc_curve_result *cr;
+	struct hc_enough *e;
+	struct hc_error err;
+	struct heapcheck_call call = { made_pipeline, pipeline_release, pipeline_failed, &p };
+	size_t k;
+
+	(void)state;
+	hc_holdings_options_init(&ho);
+	assert_int_equal(hc_holdings_load_buffer(&h, "f.csv", funds, strlen(funds), &ho, &err), HC_OK);
+	memset(&p, 0, sizeof p);
+	p.src = fixture_series(u);
+	p.every = u;
+	p.ro.sizes = sizes;
+	p.ro.nsizes = 3;
+	hc_curve_options_init(&p.ro.curve);
+	p.ro.curve.paths = 60;
+	p.ro.curve.threads = 1;
+	hc_enough_options_init(&p.ro.enough);
+	p.ro.enough.paths = 60;
+	p.ro.enough.bootstrap = 25;
+	p.ro.enough.threads = 1;
+	hc_audit_options_init(&p.ro.audit);
+	p.ro.audit.paths = 40;
+	p.ro.audit.threads = 1;
+	p.ro.holdings = h;
+	p.ro.holdings_name = "f.csv";
+	/* 90 months: five-year windows do not fit twice, so none by default */
+	hc_reportset_choose_window(&p.ro, u->t, u->periods_per_year, 0, 0, 0);
+	assert_int_equal(p.ro.window, 0);
+	assert_non_null(strstr(p.ro.window_why, "fewer than two windows of 60"));
+	hc_reportset_choose_window(&p.ro, u->t, u->periods_per_year, 1, 36, 0);
+	assert_int_equal(p.ro.window, 36);
+	assert_int_equal(p.ro.step, 12);
+	assert_int_equal(made_pipeline(&p, &err), HC_OK);
+	assert_int_equal(hc_curve_run(&cr, p.src, sizes, 3, &p.ro.curve, &err), HC_OK);
+	assert_int_equal(hc_enough_run(&e, p.src, &p.ro.enough, &err), HC_OK);
+	for (k = 0; k < 3; k++)
+		assert_true(p.rs->curve->points[k].sd_p05 == cr->curve->points[k].sd_p05);
+	for (k = 0; k < e->nrules; k++) {
+		assert_int_equal(p.rs->rules[k].count, e->rules[k].count);
+		assert_true(p.rs->rules[k].count_p95 == e->rules[k].count_p95 ||
+			    (isnan(p.rs->rules[k].count_p95) && isnan(e->rules[k].count_p95)));
+	}
+	assert_int_equal(p.rs->audit->nfunds, 2);
+	assert_non_null(p.rs->rolling);
+	assert_int_equal(p.rs->rolling->nwindows, (90 - 36) / 12 + 1);
+	hc_curve_result_free(cr);
+	hc_enough_free(e);
+	pipeline_release(&p);
+	assert_true(heapcheck_sweep(&call) > 20);
+	hc_holdings_free(h);
+	hc_universe_free(u);
+}
+
 int main(int argc, char **argv)
 {
 	heapcheck_rerun_without_tcache(argv);
@@ -207,6 +302,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_analysis_curve_is_its_modules),
 		cmocka_unit_test(test_analysis_enough_is_its_modules),
 		cmocka_unit_test(test_analysis_allocation_failure),
+		cmocka_unit_test(test_analysis_report_pipeline),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
