@@ -9,7 +9,6 @@
 #ifndef HOLDCOUNT_REPORTSET_H
 #define HOLDCOUNT_REPORTSET_H
 
-#include <limits.h>
 #include <stddef.h>
 
 #include "holdcount/analysis.h"
@@ -35,6 +34,9 @@ extern "C" {
  * apart, enough for a line to show a drift). */
 #define REPORTSET_WINDOW_YEARS 5
 #define REPORTSET_WINDOW_MIN_SPANS 2
+
+/* Room for the path of gnuplot found on the PATH (Linux's PATH_MAX). */
+#define REPORTSET_GNUPLOT_PATH_MAX 4096
 
 struct hc_reportset_options {
 	const size_t *sizes;          /* the curve's grid (hc_curve_parse_sizes or _default_sizes) */
@@ -77,7 +79,7 @@ struct hc_reportset {
 	const struct report *rep_curve, *rep_enough;   /* into curve_run and enough */
 	size_t window, step;
 	int rendered;                     /* gnuplot was found (hc_reportset_write) */
-	char gnuplot[PATH_MAX];
+	char gnuplot[REPORTSET_GNUPLOT_PATH_MAX]; /* its path */
 };
 
 /*
