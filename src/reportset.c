@@ -122,6 +122,7 @@ static int compute_audit(struct hc_reportset *r, struct hc_error *err)
 static int compute_rolling(struct hc_reportset *r, const struct universe *every, struct hc_error *err)
 {
 	struct rolling_options ro;
+	struct hc_source view;
 	int rc;
 
 	hc_rolling_options_init(&ro);
@@ -132,7 +133,8 @@ static int compute_rolling(struct hc_reportset *r, const struct universe *every,
 	hc_progress_begin(&r->o.progress, NULL, "windows", "windows");
 	ro.progress = r->o.progress.update;
 	ro.progress_ctx = r->o.progress.ctx;
-	rc = hc_rolling_run(&r->rolling, every, &ro, err);
+	hc_source_init_series(&view, every);   /* every security as read, gaps kept */
+	rc = hc_rolling_run(&r->rolling, &view, &ro, err);
 	hc_progress_end(&r->o.progress);
 	if (rc != HC_OK)
 		return rc;

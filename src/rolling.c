@@ -393,8 +393,8 @@ static int check_options(const struct universe *u, const struct rolling_options 
 	return HC_OK;
 }
 
-int hc_rolling_run(struct rolling_result **out, const struct universe *u,
-		const struct rolling_options *opt, struct hc_error *err)
+static int run_series(struct rolling_result **out, const struct universe *u,
+		      const struct rolling_options *opt, struct hc_error *err)
 {
 	struct rolling_result *r = NULL;
 	struct job jb;
@@ -579,6 +579,15 @@ int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 		if (add_row(t, r, &r->windows[j]))
 			return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");
 	return HC_OK;
+}
+
+int hc_rolling_run(struct rolling_result **out, const struct hc_source *src,
+		   const struct rolling_options *opt, struct hc_error *err)
+{
+	*out = NULL;
+	if (!src->u)
+		return hc_error(err, HC_EUSAGE, "rolling windows need a return history; a covariance matrix has no periods");
+	return run_series(out, src->u, opt, err);
 }
 
 /* The rules' parameters and what the windows mean, beside the table. */

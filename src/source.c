@@ -27,7 +27,7 @@ void hc_source_free(struct hc_source *s)
 void hc_source_init_series(struct hc_source *s, const struct universe *u)
 {
 	memset(s, 0, sizeof *s);
-	s->kind = HC_SOURCE_SERIES;
+	s->kind = u->has_missing ? HC_SOURCE_PAIRWISE : HC_SOURCE_SERIES;
 	s->name = u->source;
 	s->u = u;
 	s->periods_per_year = u->periods_per_year;

@@ -115,9 +115,10 @@ int hc_source_load_covmatrix(struct hc_source **out, const char *path, size_t ma
 			     const struct hc_source_options *opt, struct hc_error *err);
 
 /*
- * A source viewing complete series u that the caller keeps (a rolling
- * window, a bootstrap resample): no allocation, nothing to free; s must not
- * outlive u.  u must have no gaps.
+ * A source viewing series u that the caller keeps (a rolling window, a
+ * bootstrap resample, every security as read for rolling windows): no
+ * allocation, nothing to free; s must not outlive u.  Series with gaps
+ * give a pairwise source with no matrix (hc_source_from_universe builds one).
  */
 void hc_source_init_series(struct hc_source *s, const struct universe *u);
 

@@ -10,6 +10,7 @@
 
 #include "cli.h"
 #include "holdcount/rolling.h"
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
 
 struct rolling_opts {
@@ -150,7 +151,12 @@ int cmd_rolling(int argc, char **argv)
 	cli_progress_init(&prog, "windows", "windows", o.out.quiet);
 	ro.progress = cli_progress_update;
 	ro.progress_ctx = &prog;
-	rc = hc_rolling_run(&res, u, &ro, &err);
+	{
+		struct hc_source src;
+
+		hc_source_init_series(&src, u);   /* every security as read */
+		rc = hc_rolling_run(&res, &src, &ro, &err);
+	}
 	cli_progress_finish(&prog);
 	if (rc) {
 		rc = cli_fail("rolling", &err);
