@@ -2,7 +2,7 @@
  * analysis.h - what every analysis call shares: progress of its long steps,
  * and stratified draws.
  *
- * An analysis (curve.h's hc_curve_analysis, enough.h, audit.h, rolling.h,
+ * An analysis (curverun.h, describe.h, enough.h, audit.h, rolling.h,
  * reportset.h) takes a data source (source.h), its own option struct, and
  * a struct hc_progress; it returns a result and the report (report.h) every
  * writer renders.  It never prints: the caller's progress callbacks show
