@@ -408,10 +408,6 @@ struct cli_rules {
 extern const struct cli_group cli_group_rules;
 void cli_rules_init(struct cli_rules *r);
 
-/* A yearly sd step, as --marginal takes it: "0.10pp" (percentage points),
- * "0.1%" or "0.001".  0 and *out set, or -1 when not such a number. */
-int cli_parse_sd_step(const char *s, double *out);
-
 /* The rules configuration from the group; have_data 0 (summary statistics)
  * or covariance 1 select the exact rules by default.  Prints its error;
  * returns the exit status. */

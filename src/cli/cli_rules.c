@@ -85,7 +85,7 @@ static int parse_percent(const char *s, size_t len, int pp, double *out)
 }
 
 /* A yearly sd step: "0.10pp" (percentage points), "0.1%" or "0.001". */
-int cli_parse_sd_step(const char *s, double *out)
+static int parse_sd_step(const char *s, double *out)
 {
 	return parse_percent(s, strlen(s), 1, out);
 }
@@ -133,7 +133,7 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 		return cli_usage_error(cmd, "--bootstrap-sampled needs return data: a covariance matrix has no periods to resample");
 	if (cli_given(a, "near-floor"))
 		cfg->near_floor_x = o->near_floor;
-	if (o->marginal && cli_parse_sd_step(o->marginal, &cfg->marginal_eps))
+	if (o->marginal && parse_sd_step(o->marginal, &cfg->marginal_eps))
 		return cli_usage_error(cmd, "bad --marginal '%s': expected a yearly sd step such as 0.10pp, 0.1%% or 0.001",
 				       o->marginal);
 	if (o->band && parse_pair(cmd, "band", o->band, &cfg->band_q, &cfg->band_x))
