@@ -17,7 +17,11 @@ LIBDIR=$(dirname "$HC")
 sed -n '/^```C$/,/^```$/p' "$SRC/docs/library.md" | sed '1d;$d' >"$T/enough.c"
 lines=$(wc -l <"$T/enough.c")
 [ "$lines" -ge 25 ] && [ "$lines" -le 40 ] || fail "docs/library.md enough example has $lines lines (about as many as the curve example)"
-cc -std=c11 -Wall -Wextra -Werror -I"$SRC/include" "$T/enough.c" -o "$T/enough" \
+# A library built with the sanitizers (scripts/test.sh's second stage) needs
+# its runtime first in the program: the example is built the same way.
+SANFLAGS=
+readelf -d "$LIBDIR/libholdcount.so" | grep -q 'NEEDED.*libasan' && SANFLAGS="-fsanitize=address,undefined"
+cc -std=c11 -Wall -Wextra -Werror $SANFLAGS -I"$SRC/include" "$T/enough.c" -o "$T/enough" \
 	-L"$LIBDIR" -Wl,-rpath,"$LIBDIR" -lholdcount -lgsl 2>"$T/cc.err" \
 	|| { fail "the example does not build: $(head -c 500 "$T/cc.err")"; echo "cli_library_enough: $fails failures"; exit 1; }
 
