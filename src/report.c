@@ -811,23 +811,11 @@ static const char *json_key_clash(const struct report *r)
 	return NULL;
 }
 
-static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
+/* Print root onto fp with a final newline and free it (both JSON writers). */
+static int json_emit(FILE *fp, cJSON *root, struct hc_error *err)
 {
-	cJSON_Hooks hooks = { json_malloc, json_free };
-	cJSON *root;
-	const char *clash;
-	char *text;
+	char *text = cJSON_Print(root);
 
-	if ((clash = json_key_clash(r)))
-		return hc_error(err, HC_EINTERNAL, "JSON output names '%s' twice", clash);
-
-	/* Route cJSON through the project's allocator (fault injection reaches
-	 * it too).  Setting the hooks is idempotent. */
-	cJSON_InitHooks(&hooks);
-	root = json_report(r);
-	if (!root)
-		return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
-	text = cJSON_Print(root);
 	cJSON_Delete(root);
 	if (!text)
 		return hc_error(err, HC_ENOMEM, "out of memory printing the JSON output");
@@ -838,13 +826,30 @@ static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
 	return ferror(fp) ? write_failed(err) : HC_OK;
 }
 
+static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
+{
+	cJSON_Hooks hooks = { json_malloc, json_free };
+	cJSON *root;
+	const char *clash;
+
+	if ((clash = json_key_clash(r)))
+		return hc_error(err, HC_EINTERNAL, "JSON output names '%s' twice", clash);
+
+	/* Route cJSON through the project's allocator (fault injection reaches
+	 * it too).  Setting the hooks is idempotent. */
+	cJSON_InitHooks(&hooks);
+	root = json_report(r);
+	if (!root)
+		return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
+	return json_emit(fp, root, err);
+}
+
 int hc_report_write_json_set(FILE *fp, const char *version, const char *const *keys,
 			     const struct report *const *reports, size_t n, struct hc_error *err)
 {
 	cJSON_Hooks hooks = { json_malloc, json_free };
 	cJSON *root, *item;
 	const char *clash;
-	char *text;
 	size_t i;
 
 	for (i = 0; i < n; i++)
@@ -859,15 +864,7 @@ int hc_report_write_json_set(FILE *fp, const char *version, const char *const *k
 		if (!json_put(root, keys[i], item))
 			goto nomem;
 	}
-	text = cJSON_Print(root);
-	cJSON_Delete(root);
-	if (!text)
-		return hc_error(err, HC_ENOMEM, "out of memory printing the JSON output");
-	errno = 0;
-	fputs(text, fp);
-	fputc('\n', fp);
-	cJSON_free(text);
-	return ferror(fp) ? write_failed(err) : HC_OK;
+	return json_emit(fp, root, err);
 nomem:
 	cJSON_Delete(root);
 	return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
