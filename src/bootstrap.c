@@ -20,6 +20,7 @@
 #include <gsl/gsl_cblas.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/threads.h"
 #include "holdcount/sampler.h"
 
 void hc_bootstrap_options_init(struct bootstrap_options *opt)
@@ -165,7 +166,7 @@ int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *
 	b->m = u->m;
 	b->t = u->t;
 	b->rowsum = hc_calloc(u->t, sizeof *b->rowsum);
-	b->xc = hc_malloc(mt * sizeof *b->xc);
+	b->xc = hc_mallocarray(mt, sizeof *b->xc);
 	if (!b->rowsum || !b->xc) {
 		status = hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
 		goto cleanup;
@@ -175,7 +176,7 @@ int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *
 		for (t = 0; t < u->t; t++)
 			b->rowsum[t] += b->xc[i * u->t + t];
 	if (u->t <= u->m) {
-		b->gram = hc_malloc(tt * sizeof *b->gram);
+		b->gram = hc_mallocarray(tt, sizeof *b->gram);
 		if (!b->gram) {
 			status = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu Gram matrix", u->t, u->t);
 			goto cleanup;
@@ -292,12 +293,15 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 	*out = NULL;
 	if (opt->replicates == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (opt->replicates > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates is more than the %u allowed",
+				opt->replicates, HC_BOOTSTRAP_MAX_REPLICATES);
 	if (!hc_bootstrap_kind_name(opt->kind))
 		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", opt->kind);
 	l = opt->block_length ? opt->block_length : hc_bootstrap_default_block_length(b->t);
 	if (l > b->t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: longer than the %zu periods", l, b->t);
-	nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads();
+	nthreads = hc_threads_usable(opt->threads, NULL);
 	r = hc_calloc(1, sizeof *r);
 	idx = hc_calloc((size_t)nthreads, sizeof *idx);
 	w = hc_calloc((size_t)nthreads, sizeof *w);
@@ -306,18 +310,19 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 	r->replicates = opt->replicates;
 	r->block_length = l;
 	r->kind = opt->kind;
-	r->vbar = hc_malloc(opt->replicates * sizeof *r->vbar);
-	r->cbar = hc_malloc(opt->replicates * sizeof *r->cbar);
+	r->vbar = hc_mallocarray(opt->replicates, sizeof *r->vbar);
+	r->cbar = hc_mallocarray(opt->replicates, sizeof *r->cbar);
 	if (!r->vbar || !r->cbar)
 		goto nomem;
 	for (nb = 0; nb < (size_t)nthreads; nb++) {
-		idx[nb] = hc_malloc(b->t * sizeof **idx);
-		w[nb] = hc_malloc(b->t * sizeof **w);
+		idx[nb] = hc_mallocarray(b->t, sizeof **idx);
+		w[nb] = hc_mallocarray(b->t, sizeof **w);
 		if (!idx[nb] || !w[nb]) {
 			nb++;
 			goto nomem;
 		}
 	}
+	hc_threads_region_enter();
 #pragma omp parallel for schedule(dynamic, 4) num_threads(nthreads) private(th)
 	for (rep = 0; rep < (long long)opt->replicates; rep++) {
 		int halt;
@@ -341,6 +346,7 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 			}
 		}
 	}
+	hc_threads_region_leave();
 	if (stop) {
 		status = hc_error(err, HC_EINTERRUPT, "bootstrap stopped after %zu of %zu replicates", done, opt->replicates);
 		goto cleanup;

@@ -36,6 +36,7 @@
 #include <omp.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/threads.h"
 #include "holdcount/strata.h"
 
 /* Defaults named once. */
@@ -124,8 +125,8 @@ static int plan_init(struct plan *p, size_t m, const size_t *sizes, size_t nsize
 		if (sizes[j] < 1 || sizes[j] > m)
 			return hc_error(err, HC_EUSAGE,
 					"size %zu is larger than the %zu securities kept", sizes[j], m);
-	p->uniq = hc_malloc(nsizes * sizeof *p->uniq);
-	p->slot = hc_malloc(nsizes * sizeof *p->slot);
+	p->uniq = hc_mallocarray(nsizes, sizeof *p->uniq);
+	p->slot = hc_mallocarray(nsizes, sizeof *p->slot);
 	if (!p->uniq || !p->slot) {
 		plan_release(p);
 		return hc_error(err, HC_ENOMEM, "out of memory for the sampling plan");
@@ -185,12 +186,12 @@ static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
 {
 	memset(w, 0, sizeof *w);
 	w->rng = gsl_rng_alloc(gsl_rng_taus2);
-	w->idx = hc_malloc(m * sizeof *w->idx);
-	w->acc = hc_malloc((t ? t : 1) * sizeof *w->acc);
-	w->out_v = hc_malloc(nuniq * sizeof *w->out_v);
-	w->out_r = hc_malloc(nuniq * sizeof *w->out_r);
-	w->ridx = hc_malloc(m * sizeof *w->ridx);
-	w->scratch = hc_malloc((t ? t : 1) * sizeof *w->scratch);
+	w->idx = hc_mallocarray(m, sizeof *w->idx);
+	w->acc = hc_mallocarray((t ? t : 1), sizeof *w->acc);
+	w->out_v = hc_mallocarray(nuniq, sizeof *w->out_v);
+	w->out_r = hc_mallocarray(nuniq, sizeof *w->out_r);
+	w->ridx = hc_mallocarray(m, sizeof *w->ridx);
+	w->scratch = hc_mallocarray((t ? t : 1), sizeof *w->scratch);
 	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r || !w->ridx || !w->scratch) {
 		workspace_release(w);
 		return -1;
@@ -543,7 +544,7 @@ static void store(struct sampler_result *res, const struct plan *p, const struct
 static int run_paths(struct run *r, struct hc_error *err)
 {
 	struct workspace *ws;
-	int nthreads = r->threads > 0 ? r->threads : omp_get_max_threads(), i, stop = 0;
+	int nthreads = hc_threads_usable(r->threads, NULL), i, stop = 0;
 	size_t done = 0, total = r->paths;
 	long kk, paths = (long)r->paths;
 
@@ -559,6 +560,7 @@ static int run_paths(struct run *r, struct hc_error *err)
 			hc_free(ws);
 			return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
 		}
+	hc_threads_region_enter();
 #pragma omp parallel num_threads(nthreads)
 	{
 		struct workspace *w = &ws[omp_get_thread_num()];
@@ -581,6 +583,7 @@ static int run_paths(struct run *r, struct hc_error *err)
 			}
 		}
 	}
+	hc_threads_region_leave();
 	for (i = 0; i < nthreads; i++)
 		workspace_release(&ws[i]);
 	hc_free(ws);
@@ -617,7 +620,7 @@ static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t
 		goto nomem;
 	r->paths = paths;
 	r->nsizes = nsizes;
-	r->sizes = hc_malloc(nsizes * sizeof *r->sizes);
+	r->sizes = hc_mallocarray(nsizes, sizeof *r->sizes);
 	r->variance = hc_calloc(cells, sizeof *r->variance);
 	r->feasible = hc_malloc(nsizes);
 	if (want_returns)
@@ -642,8 +645,8 @@ static int column_data(const struct universe *u, double **xc, double **mean, dou
 	long double s, tm = 0;
 
 	*xc = *mean = *total = NULL;
-	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_malloc(cells * sizeof **xc)) ||
-	    !(*mean = hc_malloc(u->m * sizeof **mean)) || !(*total = hc_calloc(t, sizeof **total))) {
+	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_mallocarray(cells, sizeof **xc)) ||
+	    !(*mean = hc_mallocarray(u->m, sizeof **mean)) || !(*total = hc_calloc(t, sizeof **total))) {
 		hc_free(*xc);
 		hc_free(*mean);
 		*xc = *mean = NULL;
@@ -822,7 +825,7 @@ int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 					c->points[j].n, r->sizes[j]);
 	if (K == 0)
 		return hc_error(err, HC_EUSAGE, "no sampled paths to summarise");
-	sd = hc_malloc(K * sizeof *sd);
+	sd = hc_mallocarray(K, sizeof *sd);
 	if (!sd)
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", K);
 	for (j = 0; j < r->nsizes; j++) {

@@ -30,6 +30,7 @@
 #include <omp.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/threads.h"
 
 #define STRATA_SCHEDULE_CHUNK 8   /* paths per dynamic work unit */
 /* Stream tags, so stratified paths do not reuse the unconstrained ones'
@@ -65,7 +66,7 @@ int hc_strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
 	s = hc_calloc(1, sizeof *s);
 	if (!s || !(s->count = hc_calloc(nstrata, sizeof *s->count)) ||
 	    !(s->start = hc_calloc(nstrata + 1, sizeof *s->start)) ||
-	    !(s->members = hc_malloc(m * sizeof *s->members)) ||
+	    !(s->members = hc_mallocarray(m, sizeof *s->members)) ||
 	    !(fill = hc_calloc(nstrata, sizeof *fill))) {
 		hc_strata_free(s);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu strata", nstrata);
@@ -160,8 +161,8 @@ int hc_strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t 
 		return hc_error(err, HC_EUSAGE, "a cap of 0 per stratum leaves nothing to hold");
 	c = hc_calloc(1, sizeof *c);
 	if (!c || hc_mul_size(S + 1, nmax + 1, &cells) ||
-	    !(c->cap = hc_malloc(S * sizeof *c->cap)) || !(c->count = hc_malloc(S * sizeof *c->count)) ||
-	    !(c->logw = hc_malloc(cells * sizeof *c->logw))) {
+	    !(c->cap = hc_mallocarray(S, sizeof *c->cap)) || !(c->count = hc_mallocarray(S, sizeof *c->count)) ||
+	    !(c->logw = hc_mallocarray(cells, sizeof *c->logw))) {
 		hc_strata_cap_free(c);
 		return hc_error(err, HC_ENOMEM, "out of memory for the per-stratum cap's table");
 	}
@@ -454,7 +455,7 @@ int hc_strata_portfolio(const struct strata *s, const struct strata_cap *cap, in
 		return hc_error(err, HC_EUSAGE, "no portfolio of %zu meets the stratification", n);
 	}
 	g = gsl_rng_alloc(gsl_rng_mt19937);
-	perm = hc_malloc(s->m * sizeof *perm);
+	perm = hc_mallocarray(s->m, sizeof *perm);
 	if (!g || !perm) {
 		gsl_rng_free(g);
 		hc_free(perm);
@@ -513,13 +514,13 @@ static int sws_init(struct sws *w, const struct srun *r)
 {
 	memset(w, 0, sizeof *w);
 	w->g = gsl_rng_alloc(gsl_rng_mt19937);
-	w->perm = hc_malloc(r->m * sizeof *w->perm);
-	w->alloc = hc_malloc(r->s->nstrata * sizeof *w->alloc);
-	w->prev = hc_malloc(r->s->nstrata * sizeof *w->prev);
-	w->acc = hc_malloc((r->t ? r->t : 1) * sizeof *w->acc);
-	w->out_v = hc_malloc(r->nuniq * sizeof *w->out_v);
-	w->out_r = hc_malloc(r->nuniq * sizeof *w->out_r);
-	w->mem = hc_malloc(r->m * sizeof *w->mem);
+	w->perm = hc_mallocarray(r->m, sizeof *w->perm);
+	w->alloc = hc_mallocarray(r->s->nstrata, sizeof *w->alloc);
+	w->prev = hc_mallocarray(r->s->nstrata, sizeof *w->prev);
+	w->acc = hc_mallocarray((r->t ? r->t : 1), sizeof *w->acc);
+	w->out_v = hc_mallocarray(r->nuniq, sizeof *w->out_v);
+	w->out_r = hc_mallocarray(r->nuniq, sizeof *w->out_r);
+	w->mem = hc_mallocarray(r->m, sizeof *w->mem);
 	if (!w->g || !w->perm || !w->alloc || !w->prev || !w->acc || !w->out_v || !w->out_r ||
 	    !w->mem) {
 		sws_release(w);
@@ -627,7 +628,7 @@ static void matrix_path(const struct srun *r, struct sws *w, size_t k)
 static int drive(const struct srun *r, struct sampler_result *res,
 		 const struct sampler_options *opt, struct hc_error *err)
 {
-	int nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads(), i, stop = 0;
+	int nthreads = hc_threads_usable(opt->threads, NULL), i, stop = 0;
 	size_t done = 0, total = opt->paths;
 	long kk, paths = (long)opt->paths;
 	struct sws *ws;
@@ -644,6 +645,7 @@ static int drive(const struct srun *r, struct sampler_result *res,
 			hc_free(ws);
 			return hc_error(err, HC_ENOMEM, "out of memory for the stratified sampler's workspaces");
 		}
+	hc_threads_region_enter();
 #pragma omp parallel num_threads(nthreads)
 	{
 		struct sws *w = &ws[omp_get_thread_num()];
@@ -673,6 +675,7 @@ static int drive(const struct srun *r, struct sampler_result *res,
 			}
 		}
 	}
+	hc_threads_region_leave();
 	for (i = 0; i < nthreads; i++)
 		sws_release(&ws[i]);
 	hc_free(ws);
@@ -736,8 +739,8 @@ static int srun_plan(struct srun *r, struct strata **s, struct strata_cap **cap,
 	*cap = NULL;
 	if ((rc = hc_strata_alloc(s, opt->strata, m, opt->nstrata, err)))
 		return rc;
-	r->uniq = hc_malloc(nsizes * sizeof *r->uniq);
-	r->slot = hc_malloc(nsizes * sizeof *r->slot);
+	r->uniq = hc_mallocarray(nsizes, sizeof *r->uniq);
+	r->slot = hc_mallocarray(nsizes, sizeof *r->slot);
 	r->feas = hc_malloc(nsizes);
 	if (!r->uniq || !r->slot || !r->feas || hc_mul_size(nsizes, opt->nstrata, &j) ||
 	    !(r->fixed = hc_calloc(j, sizeof *r->fixed)))
@@ -782,7 +785,7 @@ static int result_new(struct sampler_result **out, const struct srun *r, const s
 	if (hc_mul_size(opt->paths, r->nsizes, &cells))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", opt->paths, r->nsizes);
 	res = hc_calloc(1, sizeof *res);
-	if (!res || !(res->sizes = hc_malloc(r->nsizes * sizeof *res->sizes)) ||
+	if (!res || !(res->sizes = hc_mallocarray(r->nsizes, sizeof *res->sizes)) ||
 	    !(res->variance = hc_calloc(cells, sizeof *res->variance)) ||
 	    !(res->feasible = hc_malloc(r->nsizes)) ||
 	    (want_returns && !(res->annual_return = hc_calloc(cells, sizeof *res->annual_return)))) {
@@ -806,8 +809,8 @@ static int centred(const struct universe *u, double **xc, double **mean, struct 
 	long double acc;
 
 	*xc = *mean = NULL;
-	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_malloc(cells * sizeof **xc)) ||
-	    !(*mean = hc_malloc(u->m * sizeof **mean))) {
+	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_mallocarray(cells, sizeof **xc)) ||
+	    !(*mean = hc_mallocarray(u->m, sizeof **mean))) {
 		hc_free(*xc);
 		*xc = NULL;
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu x %zu returns", u->m, t);
@@ -951,8 +954,8 @@ int hc_strata_curve_alloc(struct strata_curve **out, const struct sampler_result
 		return hc_error(err, HC_EUSAGE, "no sampled paths, or periods per year not positive");
 	c = hc_calloc(1, sizeof *c);
 	if (!c || !(c->points = hc_calloc(r->nsizes, sizeof *c->points)) ||
-	    !(sd = hc_malloc(r->paths * sizeof *sd)) ||
-	    !(alloc = hc_malloc(s->nstrata * sizeof *alloc))) {
+	    !(sd = hc_mallocarray(r->paths, sizeof *sd)) ||
+	    !(alloc = hc_mallocarray(s->nstrata, sizeof *alloc))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the stratified curve");
 		goto cleanup;
 	}
