@@ -550,8 +550,14 @@ static int parse_cell(const struct loader *L, const struct csvread_field *f,
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a positive price, found '%s'",
 				L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
-	} else if (L->opt->percent && !pct) {
-		v /= 100.0;
+	} else {
+		if (L->opt->percent && !pct)
+			v /= 100.0;
+		if (fabs(v) > HC_UNIVERSE_MAX_RETURN)
+			return hc_error(err, HC_EDATA,
+				"%s:%zu:%zu: expected a return of at most %g in size (%.0f%%), found '%s'",
+				L->name, f->line, f->column, HC_UNIVERSE_MAX_RETURN,
+				HC_UNIVERSE_MAX_RETURN * 100.0, hc_csvread_quote(f->text, f->len, q));
 	}
 	*out = v;
 	return HC_OK;
@@ -1053,6 +1059,14 @@ static int check_variation(const struct universe *u, const char *name,
 				return hc_error(err, HC_EDATA,
 					"%s: security '%s' has an infinite return on %s; expected finite values",
 					name, u->ids[i], d);
+			}
+			/* returns computed from prices; return cells were
+			 * checked where they were read */
+			if (fabs(xi[k]) > HC_UNIVERSE_MAX_RETURN) {
+				hc_universe_format_date(u->dates[k], d);
+				return hc_error(err, HC_EDATA,
+					"%s: security '%s' has a return of %g on %s; expected at most %g in size",
+					name, u->ids[i], xi[k], d, HC_UNIVERSE_MAX_RETURN);
 			}
 			if (obs++ == 0)
 				first = xi[k];

@@ -1090,4 +1090,9 @@ void cli_install_signal_handlers(void)
 	sigemptyset(&sa.sa_mask);
 	catch_unless_ignored(SIGINT, &sa);
 	catch_unless_ignored(SIGTERM, &sa);
+	/* A file-size limit (ulimit -f) would kill the process with SIGXFSZ
+	 * mid-write, with no message and the temporary left behind; ignored,
+	 * the write fails with EFBIG instead, which the output's commit
+	 * reports as an i/o error (exit 4) after removing the temporary. */
+	signal(SIGXFSZ, SIG_IGN);
 }
