@@ -160,9 +160,14 @@ int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *
 		return hc_error(err, HC_EDATA, "the bootstrap needs at least two securities and two periods");
 	if (hc_mul_size(u->m, u->t, &mt) || hc_mul_size(u->t, u->t, &tt))
 		return hc_error(err, HC_ENOMEM, "universe too large for the bootstrap");
+	if ((status = hc_memory_check(u->max_bytes, (double)mt * 8.0,
+				      ((double)mt + (u->t <= u->m ? (double)tt : 0.0) + (double)u->t) * 8.0, err,
+				      "the bootstrap's centred copy of %zu x %zu returns", u->m, u->t)))
+		return status;
 	b = hc_calloc(1, sizeof *b);
 	if (!b)
 		return hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
+	b->max_bytes = u->max_bytes;
 	b->m = u->m;
 	b->t = u->t;
 	b->rowsum = hc_calloc(u->t, sizeof *b->rowsum);
@@ -302,6 +307,13 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 	if (l > b->t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: longer than the %zu periods", l, b->t);
 	nthreads = hc_threads_usable(opt->threads, NULL);
+	/* Two averages per replicate and two t-long arrays per thread, with
+	 * the base's arrays still held. */
+	if ((status = hc_memory_check(b->max_bytes,
+				      ((double)b->m * (double)b->t + (b->gram ? (double)b->t * (double)b->t : 0.0)) * 8.0,
+				      (double)opt->replicates * 16.0 + (double)nthreads * (double)b->t * 16.0, err,
+				      "%zu bootstrap replicates", opt->replicates)))
+		return status;
 	r = hc_calloc(1, sizeof *r);
 	idx = hc_calloc((size_t)nthreads, sizeof *idx);
 	w = hc_calloc((size_t)nthreads, sizeof *w);

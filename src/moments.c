@@ -133,7 +133,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 		double v = a[i * m + i];
 		if (!isfinite(v) || v <= 0)
 			return hc_error(err, HC_EDATA,
-					"covariance matrix: variance of security %zu is %g, expected a positive number",
+					"the covariances: the variance in row %zu is %g, expected a positive number",
 					i + 1, v);
 	}
 	for (i = 0; i < m; i++) {
@@ -145,7 +145,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 			c = a[i * m + j];
 			if (!isfinite(a[i * m + j]))
 				return hc_error(err, HC_EDATA,
-						"covariance matrix: entry (%zu, %zu) is not a finite number",
+						"the covariances: the entry in row %zu, column %zu is not a finite number",
 						i + 1, j + 1);
 			r += c;
 			Q += c * c;

@@ -606,15 +606,24 @@ static int check_options(const struct sampler_options *opt, struct hc_error *err
 	return HC_OK;
 }
 
+/* max_bytes and held: the budget (memory.h) and the bytes of the input
+ * still held (the universe's numbers), so that K paths of every size,
+ * the sampler's largest arrays, are refused with a message rather than
+ * killed by the kernel. */
 static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t nsizes,
-			size_t paths, int want_returns, uint64_t seed, struct hc_error *err)
+			size_t paths, int want_returns, uint64_t seed, size_t max_bytes, double held,
+			struct hc_error *err)
 {
 	struct sampler_result *r;
 	size_t cells;
+	int rc;
 
 	*out = NULL;
 	if (hc_mul_size(paths, nsizes, &cells))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", paths, nsizes);
+	if ((rc = hc_memory_check(max_bytes, held, (double)cells * 8.0 * (want_returns ? 2 : 1), err,
+				  "%zu sampled portfolios (%zu paths of %zu sizes)", cells, paths, nsizes)))
+		return rc;
 	r = hc_calloc(1, sizeof *r);
 	if (!r)
 		goto nomem;
@@ -694,7 +703,8 @@ int hc_sampler_run(struct sampler_result **out, const struct universe *u,
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", u->m);
 	if ((rc = plan_init(&plan, u->m, sizes, nsizes, 1, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, err)))
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, u->max_bytes,
+			       (double)u->m * (double)u->t * 8.0, err)))
 		goto cleanup;
 	if ((rc = column_data(u, &xc, &mean, &total, &job.total_mean, err)))
 		goto cleanup;
@@ -782,7 +792,7 @@ int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", m);
 	if ((rc = plan_init(&plan, m, sizes, nsizes, 0, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, err)))
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, 0, (double)m * (double)m * 8.0, err)))
 		goto cleanup;
 	job.a = a;
 	job.m = m;

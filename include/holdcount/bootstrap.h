@@ -81,6 +81,8 @@ struct bootstrap_base {
 	double *rowsum;            /* t */
 	double *gram;              /* t*t row-major, full symmetric; NULL when the direct route is used */
 	double *xc;                /* m*t centred data, security-major; NULL when gram is used */
+	size_t max_bytes;          /* the universe's memory budget (memory.h): the base's and
+				    * each run's arrays are checked against it */
 };
 
 /* From complete data (u->has_missing == 0, m >= 2, t >= 2; else HC_EDATA). */

@@ -50,7 +50,7 @@ static const struct cli_option rolling_own[] = {
 	  "moving-block (Kuensch, 1989) or stationary (Politis & Romano, 1994) bootstrap",
 	  kind_words, "block" },
 	{ "block-length", 0, CLI_COUNT, OWN(block_length), "L",
-	  "bootstrap block length in periods", NULL, "round(W^(1/3))" },
+	  "bootstrap block length in periods; 0 means the default", NULL, "round(W^(1/3))" },
 	{ "seed", 0, CLI_U64, OWN(seed), "S",
 	  "bootstrap seed; every window uses it, and the same seed gives the same output", NULL, "1" },
 	{ "threads", 0, CLI_THREADS, OWN(threads), "N",
