@@ -36,8 +36,10 @@ fails=0
 sanitized=0
 if ldd "$HC" 2>/dev/null | grep -q 'libasan\|libclang_rt.asan' || nm "$HC" 2>/dev/null | grep -q __asan_init; then
 	sanitized=1
-	export ASAN_OPTIONS="detect_leaks=1:hard_rss_limit_mb=2048:allocator_may_return_null=1"
-	export UBSAN_OPTIONS="halt_on_error=1:print_stacktrace=1"
+	# added to the caller's settings (the sanitize stage's log_path among
+	# them, so a report also reaches its logs)
+	export ASAN_OPTIONS="${ASAN_OPTIONS:-detect_leaks=1}:hard_rss_limit_mb=2048:allocator_may_return_null=1"
+	export UBSAN_OPTIONS="${UBSAN_OPTIONS:-halt_on_error=1:print_stacktrace=1}"
 fi
 limited() { # run under the memory limit and the timeout
 	if [ $sanitized = 1 ]; then timeout 20 "$@"; else prlimit --as=$((2 << 30)) timeout 20 "$@"; fi
