@@ -20,6 +20,7 @@
 
 #include "holdcount/memory.h"
 #include "holdcount/paths.h"
+#include "holdcount/threads.h"
 #include "holdcount/sampler.h"
 
 void hc_bootstrap_options_init(struct bootstrap_options *opt)
@@ -156,13 +157,18 @@ int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *
 		return hc_error(err, HC_EDATA, "the bootstrap needs at least two securities and two periods");
 	if (hc_mul_size(u->m, u->t, &mt) || hc_mul_size(u->t, u->t, &tt))
 		return hc_error(err, HC_ENOMEM, "universe too large for the bootstrap");
+	if ((status = hc_memory_check(u->max_bytes, (double)mt * 8.0,
+				      ((double)mt + (u->t <= u->m ? (double)tt : 0.0) + (double)u->t) * 8.0, err,
+				      "the bootstrap's centred copy of %zu x %zu returns", u->m, u->t)))
+		return status;
 	b = hc_calloc(1, sizeof *b);
 	if (!b)
 		return hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
+	b->max_bytes = u->max_bytes;
 	b->m = u->m;
 	b->t = u->t;
 	b->rowsum = hc_calloc(u->t, sizeof *b->rowsum);
-	b->xc = hc_malloc(mt * sizeof *b->xc);
+	b->xc = hc_mallocarray(mt, sizeof *b->xc);
 	if (!b->rowsum || !b->xc) {
 		status = hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
 		goto cleanup;
@@ -172,7 +178,7 @@ int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *
 		for (t = 0; t < u->t; t++)
 			b->rowsum[t] += b->xc[i * u->t + t];
 	if (u->t <= u->m) {
-		b->gram = hc_malloc(tt * sizeof *b->gram);
+		b->gram = hc_mallocarray(tt, sizeof *b->gram);
 		if (!b->gram) {
 			status = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu Gram matrix", u->t, u->t);
 			goto cleanup;
@@ -295,8 +301,8 @@ static int bjob_ws_init(void *job, void *ws)
 	const struct bjob *j = job;
 	struct bws *w = ws;
 
-	w->idx = hc_malloc(j->b->t * sizeof *w->idx);
-	w->w = hc_malloc(j->b->t * sizeof *w->w);
+	w->idx = hc_mallocarray(j->b->t, sizeof *w->idx);
+	w->w = hc_mallocarray(j->b->t, sizeof *w->w);
 	if (w->idx && w->w)
 		return 0;
 	hc_free(w->idx);
@@ -326,19 +332,30 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 	struct bootstrap_result *r = NULL;
 	struct bjob job;
 	size_t l;
-	int status;
+	int status, nthreads;
 
 	*out = NULL;
 	if (opt->replicates == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (opt->replicates > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates is more than the %u allowed",
+				opt->replicates, HC_BOOTSTRAP_MAX_REPLICATES);
 	if (!hc_bootstrap_kind_name(opt->kind))
 		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", opt->kind);
 	l = opt->block_length ? opt->block_length : hc_bootstrap_default_block_length(b->t);
 	if (l > b->t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: longer than the %zu periods", l, b->t);
+	nthreads = hc_threads_usable(opt->threads, NULL);
+	/* Two averages per replicate and two t-long arrays per thread, with
+	 * the base's arrays still held. */
+	if ((status = hc_memory_check(b->max_bytes,
+				      ((double)b->m * (double)b->t + (b->gram ? (double)b->t * (double)b->t : 0.0)) * 8.0,
+				      (double)opt->replicates * 16.0 + (double)nthreads * (double)b->t * 16.0, err,
+				      "%zu bootstrap replicates", opt->replicates)))
+		return status;
 	r = hc_calloc(1, sizeof *r);
-	if (!r || !(r->vbar = hc_malloc(opt->replicates * sizeof *r->vbar)) ||
-	    !(r->cbar = hc_malloc(opt->replicates * sizeof *r->cbar))) {
+	if (!r || !(r->vbar = hc_mallocarray(opt->replicates, sizeof *r->vbar)) ||
+	    !(r->cbar = hc_mallocarray(opt->replicates, sizeof *r->cbar))) {
 		hc_bootstrap_result_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap replicates", opt->replicates);
 	}

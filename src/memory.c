@@ -55,6 +55,23 @@ void *hc_malloc(size_t size)
 	return p;
 }
 
+int hc_add_size(size_t a, size_t b, size_t *out)
+{
+	if (b > SIZE_MAX - a)
+		return -1;
+	*out = a + b;
+	return 0;
+}
+
+void *hc_mallocarray(size_t n, size_t size)
+{
+	size_t total;
+
+	if (hc_mul_size(n, size, &total))
+		return NULL;
+	return hc_malloc(total);
+}
+
 void *hc_calloc(size_t n, size_t size)
 {
 	void *p;

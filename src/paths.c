@@ -7,6 +7,7 @@
 #include <omp.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/threads.h"
 
 uint64_t hc_paths_splitmix64(uint64_t *state)
 {
@@ -50,7 +51,7 @@ static void release(const struct hc_paths *p, char *ws, int n)
 
 int hc_paths_run(const struct hc_paths *p, struct hc_error *err)
 {
-	int nthreads = p->threads > 0 ? p->threads : omp_get_max_threads(), i, stop = 0;
+	int nthreads = hc_threads_usable(p->threads, NULL), i, stop = 0;
 	size_t done = 0, total = p->count;
 	long kk, count = (long)p->count;
 	char *ws;
@@ -65,6 +66,7 @@ int hc_paths_run(const struct hc_paths *p, struct hc_error *err)
 			release(p, ws, i);
 			return hc_error(err, HC_ENOMEM, "out of memory for the %s workspaces", p->name);
 		}
+	hc_threads_region_enter();
 #pragma omp parallel num_threads(nthreads)
 	{
 		char *w = ws + (size_t)omp_get_thread_num() * p->ws_size;
@@ -85,6 +87,7 @@ int hc_paths_run(const struct hc_paths *p, struct hc_error *err)
 			}
 		}
 	}
+	hc_threads_region_leave();
 	release(p, ws, nthreads);
 	if (stop)
 		return hc_error(err, HC_EINTERRUPT, "%s stopped after %zu of %zu %s", p->what, done, total, p->unit);

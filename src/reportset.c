@@ -688,7 +688,7 @@ static int render_plots(struct reportdir *rd, struct hc_reportset *r, const unsi
 		    (rc = hc_plots_render(r->gnuplot, hc_reportdir_tmp_path(rd), script, err)) != HC_OK)
 			return rc;
 		if (!hc_reportdir_has(rd, image))
-			return hc_error(err, HC_EINTERNAL, "gnuplot ran on '%s' but wrote no '%s'", script, image);
+			return hc_error(err, HC_ERENDER, "gnuplot ran on '%s' but wrote no '%s'", script, image);
 	}
 	return HC_OK;
 }

@@ -96,16 +96,16 @@ static int slide_init(struct slide *s, const struct universe *u, size_t w)
 	s->w = w;
 	if (hc_mul_size(m, t + 1, &cells))
 		return -1;
-	s->nanpre = hc_malloc(cells * sizeof *s->nanpre);
-	s->run = hc_malloc(cells * sizeof *s->run);
+	s->nanpre = hc_mallocarray(cells, sizeof *s->nanpre);
+	s->run = hc_mallocarray(cells, sizeof *s->run);
 	s->in = hc_calloc(m, 1);
 	s->want = hc_calloc(m, 1);
-	s->kept = hc_malloc(m * sizeof *s->kept);
-	s->shift = hc_malloc(m * sizeof *s->shift);
-	s->sd = hc_malloc(m * sizeof *s->sd);
-	s->sdd = hc_malloc(m * sizeof *s->sdd);
-	s->rs = hc_malloc(t * sizeof *s->rs);
-	s->z = hc_malloc(w * sizeof *s->z);
+	s->kept = hc_mallocarray(m, sizeof *s->kept);
+	s->shift = hc_mallocarray(m, sizeof *s->shift);
+	s->sd = hc_mallocarray(m, sizeof *s->sd);
+	s->sdd = hc_mallocarray(m, sizeof *s->sdd);
+	s->rs = hc_mallocarray(t, sizeof *s->rs);
+	s->z = hc_mallocarray(w, sizeof *s->z);
 	if (!s->nanpre || !s->run || !s->in || !s->want || !s->kept || !s->shift ||
 	    !s->sd || !s->sdd || !s->rs || !s->z)
 		return -1;

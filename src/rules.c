@@ -606,7 +606,7 @@ int hc_rules_band(const struct rules_config *cfg, const struct sampler_result *r
 	}
 	limit = (1 + cfg->band_x) * sqrt(cbar * periods_per_year);
 	res->threshold = limit;
-	sd = hc_malloc(r->paths * sizeof *sd);
+	sd = hc_mallocarray(r->paths, sizeof *sd);
 	if (!sd)
 		return hc_error(err, HC_ENOMEM, "out of memory for the band rule");
 	/* Settled, not first crossed: from the largest size down to the last
@@ -787,7 +787,7 @@ int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
-	count = hc_malloc(nrep * sizeof *count);
+	count = hc_mallocarray(nrep, sizeof *count);
 	if (!count)
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", nrep);
 	for (j = 0; j < nres; j++) {
@@ -919,7 +919,7 @@ static int sampled_stages(const struct rules_config *cfg, const struct hc_source
 		return HC_OK;
 	if (o.want_returns && (status = hc_rules_universe_return(src->u, o.periods_per_year, &uret, err)) != HC_OK)
 		return status;
-	sizes = hc_malloc(m * sizeof *sizes);
+	sizes = hc_mallocarray(m, sizeof *sizes);
 	if (!sizes)
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sizes", m);
 	for (j = 0; j < m; j++)
@@ -1038,9 +1038,12 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (nrep > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates is more than the %u allowed", nrep,
+				HC_BOOTSTRAP_MAX_REPLICATES);
 	l = bopt->block_length ? bopt->block_length : hc_bootstrap_default_block_length(u->t);
-	idx = hc_malloc(u->t * sizeof *idx);
-	w = hc_malloc(u->t * sizeof *w);
+	idx = hc_mallocarray(u->t, sizeof *idx);
+	w = hc_mallocarray(u->t, sizeof *w);
 	band = hc_calloc(nrep, sizeof *band);
 	shortfall = hc_calloc(nrep, sizeof *shortfall);
 	if (!idx || !w || !band || !shortfall) {

@@ -104,8 +104,8 @@ static int plan_init(struct plan *p, size_t m, const size_t *sizes, size_t nsize
 		if (sizes[j] < 1 || sizes[j] > m)
 			return hc_error(err, HC_EUSAGE,
 					"size %zu is larger than the %zu securities kept", sizes[j], m);
-	p->uniq = hc_malloc(nsizes * sizeof *p->uniq);
-	p->slot = hc_malloc(nsizes * sizeof *p->slot);
+	p->uniq = hc_mallocarray(nsizes, sizeof *p->uniq);
+	p->slot = hc_mallocarray(nsizes, sizeof *p->slot);
 	if (!p->uniq || !p->slot) {
 		plan_release(p);
 		return hc_error(err, HC_ENOMEM, "out of memory for the sampling plan");
@@ -165,12 +165,12 @@ static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
 {
 	memset(w, 0, sizeof *w);
 	w->rng = gsl_rng_alloc(gsl_rng_taus2);
-	w->idx = hc_malloc(m * sizeof *w->idx);
-	w->acc = hc_malloc((t ? t : 1) * sizeof *w->acc);
-	w->out_v = hc_malloc(nuniq * sizeof *w->out_v);
-	w->out_r = hc_malloc(nuniq * sizeof *w->out_r);
-	w->ridx = hc_malloc(m * sizeof *w->ridx);
-	w->scratch = hc_malloc((t ? t : 1) * sizeof *w->scratch);
+	w->idx = hc_mallocarray(m, sizeof *w->idx);
+	w->acc = hc_mallocarray((t ? t : 1), sizeof *w->acc);
+	w->out_v = hc_mallocarray(nuniq, sizeof *w->out_v);
+	w->out_r = hc_mallocarray(nuniq, sizeof *w->out_r);
+	w->ridx = hc_mallocarray(m, sizeof *w->ridx);
+	w->scratch = hc_mallocarray((t ? t : 1), sizeof *w->scratch);
 	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r || !w->ridx || !w->scratch) {
 		workspace_release(w);
 		return -1;
@@ -563,21 +563,30 @@ static int check_options(const struct sampler_options *opt, struct hc_error *err
 	return HC_OK;
 }
 
+/* max_bytes and held: the budget (memory.h) and the bytes of the input
+ * still held (the universe's numbers), so that K paths of every size,
+ * the sampler's largest arrays, are refused with a message rather than
+ * killed by the kernel. */
 static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t nsizes,
-			size_t paths, int want_returns, uint64_t seed, struct hc_error *err)
+			size_t paths, int want_returns, uint64_t seed, size_t max_bytes, double held,
+			struct hc_error *err)
 {
 	struct sampler_result *r;
 	size_t cells;
+	int rc;
 
 	*out = NULL;
 	if (hc_mul_size(paths, nsizes, &cells))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", paths, nsizes);
+	if ((rc = hc_memory_check(max_bytes, held, (double)cells * 8.0 * (want_returns ? 2 : 1), err,
+				  "%zu sampled portfolios (%zu paths of %zu sizes)", cells, paths, nsizes)))
+		return rc;
 	r = hc_calloc(1, sizeof *r);
 	if (!r)
 		goto nomem;
 	r->paths = paths;
 	r->nsizes = nsizes;
-	r->sizes = hc_malloc(nsizes * sizeof *r->sizes);
+	r->sizes = hc_mallocarray(nsizes, sizeof *r->sizes);
 	r->variance = hc_calloc(cells, sizeof *r->variance);
 	r->feasible = hc_malloc(nsizes);
 	if (want_returns)
@@ -602,8 +611,8 @@ static int column_data(const struct universe *u, double **xc, double **mean, dou
 	long double s, tm = 0;
 
 	*xc = *mean = *total = NULL;
-	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_malloc(cells * sizeof **xc)) ||
-	    !(*mean = hc_malloc(u->m * sizeof **mean)) || !(*total = hc_calloc(t, sizeof **total))) {
+	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_mallocarray(cells, sizeof **xc)) ||
+	    !(*mean = hc_mallocarray(u->m, sizeof **mean)) || !(*total = hc_calloc(t, sizeof **total))) {
 		hc_free(*xc);
 		hc_free(*mean);
 		*xc = *mean = NULL;
@@ -648,7 +657,8 @@ static int run_series(struct sampler_result **out, const struct universe *u,
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", u->m);
 	if ((rc = plan_init(&plan, u->m, sizes, nsizes, 1, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, err)))
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, u->max_bytes,
+			       (double)u->m * (double)u->t * 8.0, err)))
 		goto cleanup;
 	if ((rc = column_data(u, &xc, &mean, &total, &job.total_mean, err)))
 		goto cleanup;
@@ -734,7 +744,7 @@ static int run_matrix(struct sampler_result **out, const double *a, size_t m,
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", m);
 	if ((rc = plan_init(&plan, m, sizes, nsizes, 0, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, err)))
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, 0, (double)m * (double)m * 8.0, err)))
 		goto cleanup;
 	job.a = a;
 	job.m = m;
@@ -796,7 +806,7 @@ int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 					c->points[j].n, r->sizes[j]);
 	if (K == 0)
 		return hc_error(err, HC_EUSAGE, "no sampled paths to summarise");
-	sd = hc_malloc(K * sizeof *sd);
+	sd = hc_mallocarray(K, sizeof *sd);
 	if (!sd)
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", K);
 	for (j = 0; j < r->nsizes; j++) {

@@ -65,7 +65,7 @@ int hc_strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
 	s = hc_calloc(1, sizeof *s);
 	if (!s || !(s->count = hc_calloc(nstrata, sizeof *s->count)) ||
 	    !(s->start = hc_calloc(nstrata + 1, sizeof *s->start)) ||
-	    !(s->members = hc_malloc(m * sizeof *s->members)) ||
+	    !(s->members = hc_mallocarray(m, sizeof *s->members)) ||
 	    !(fill = hc_calloc(nstrata, sizeof *fill))) {
 		hc_strata_free(s);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu strata", nstrata);
@@ -160,8 +160,8 @@ int hc_strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t 
 		return hc_error(err, HC_EUSAGE, "a cap of 0 per stratum leaves nothing to hold");
 	c = hc_calloc(1, sizeof *c);
 	if (!c || hc_mul_size(S + 1, nmax + 1, &cells) ||
-	    !(c->cap = hc_malloc(S * sizeof *c->cap)) || !(c->count = hc_malloc(S * sizeof *c->count)) ||
-	    !(c->logw = hc_malloc(cells * sizeof *c->logw))) {
+	    !(c->cap = hc_mallocarray(S, sizeof *c->cap)) || !(c->count = hc_mallocarray(S, sizeof *c->count)) ||
+	    !(c->logw = hc_mallocarray(cells, sizeof *c->logw))) {
 		hc_strata_cap_free(c);
 		return hc_error(err, HC_ENOMEM, "out of memory for the per-stratum cap's table");
 	}
@@ -458,7 +458,7 @@ int hc_strata_portfolio(const struct strata *s, const struct strata_cap *cap, in
 		return hc_error(err, HC_EUSAGE, "no portfolio of %zu meets the stratification", n);
 	}
 	g = gsl_rng_alloc(gsl_rng_mt19937);
-	perm = hc_malloc(s->m * sizeof *perm);
+	perm = hc_mallocarray(s->m, sizeof *perm);
 	if (!g || !perm) {
 		gsl_rng_free(g);
 		hc_free(perm);
@@ -517,13 +517,13 @@ static int sws_init(struct sws *w, const struct srun *r)
 {
 	memset(w, 0, sizeof *w);
 	w->g = gsl_rng_alloc(gsl_rng_mt19937);
-	w->perm = hc_malloc(r->m * sizeof *w->perm);
-	w->alloc = hc_malloc(r->s->nstrata * sizeof *w->alloc);
-	w->prev = hc_malloc(r->s->nstrata * sizeof *w->prev);
-	w->acc = hc_malloc((r->t ? r->t : 1) * sizeof *w->acc);
-	w->out_v = hc_malloc(r->nuniq * sizeof *w->out_v);
-	w->out_r = hc_malloc(r->nuniq * sizeof *w->out_r);
-	w->mem = hc_malloc(r->m * sizeof *w->mem);
+	w->perm = hc_mallocarray(r->m, sizeof *w->perm);
+	w->alloc = hc_mallocarray(r->s->nstrata, sizeof *w->alloc);
+	w->prev = hc_mallocarray(r->s->nstrata, sizeof *w->prev);
+	w->acc = hc_mallocarray((r->t ? r->t : 1), sizeof *w->acc);
+	w->out_v = hc_mallocarray(r->nuniq, sizeof *w->out_v);
+	w->out_r = hc_mallocarray(r->nuniq, sizeof *w->out_r);
+	w->mem = hc_mallocarray(r->m, sizeof *w->mem);
 	if (!w->g || !w->perm || !w->alloc || !w->prev || !w->acc || !w->out_v || !w->out_r ||
 	    !w->mem) {
 		sws_release(w);
@@ -728,8 +728,8 @@ static int srun_plan(struct srun *r, struct strata **s, struct strata_cap **cap,
 	*cap = NULL;
 	if ((rc = hc_strata_alloc(s, opt->strata, m, opt->nstrata, err)))
 		return rc;
-	r->uniq = hc_malloc(nsizes * sizeof *r->uniq);
-	r->slot = hc_malloc(nsizes * sizeof *r->slot);
+	r->uniq = hc_mallocarray(nsizes, sizeof *r->uniq);
+	r->slot = hc_mallocarray(nsizes, sizeof *r->slot);
 	r->feas = hc_malloc(nsizes);
 	if (!r->uniq || !r->slot || !r->feas || hc_mul_size(nsizes, opt->nstrata, &j) ||
 	    !(r->fixed = hc_calloc(j, sizeof *r->fixed)))
@@ -774,7 +774,7 @@ static int result_new(struct sampler_result **out, const struct srun *r, const s
 	if (hc_mul_size(opt->paths, r->nsizes, &cells))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", opt->paths, r->nsizes);
 	res = hc_calloc(1, sizeof *res);
-	if (!res || !(res->sizes = hc_malloc(r->nsizes * sizeof *res->sizes)) ||
+	if (!res || !(res->sizes = hc_mallocarray(r->nsizes, sizeof *res->sizes)) ||
 	    !(res->variance = hc_calloc(cells, sizeof *res->variance)) ||
 	    !(res->feasible = hc_malloc(r->nsizes)) ||
 	    (want_returns && !(res->annual_return = hc_calloc(cells, sizeof *res->annual_return)))) {
@@ -798,8 +798,8 @@ static int centred(const struct universe *u, double **xc, double **mean, struct 
 	long double acc;
 
 	*xc = *mean = NULL;
-	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_malloc(cells * sizeof **xc)) ||
-	    !(*mean = hc_malloc(u->m * sizeof **mean))) {
+	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_mallocarray(cells, sizeof **xc)) ||
+	    !(*mean = hc_mallocarray(u->m, sizeof **mean))) {
 		hc_free(*xc);
 		*xc = NULL;
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu x %zu returns", u->m, t);
@@ -955,8 +955,8 @@ int hc_strata_curve_alloc(struct strata_curve **out, const struct sampler_result
 		return hc_error(err, HC_EUSAGE, "no sampled paths, or periods per year not positive");
 	c = hc_calloc(1, sizeof *c);
 	if (!c || !(c->points = hc_calloc(r->nsizes, sizeof *c->points)) ||
-	    !(sd = hc_malloc(r->paths * sizeof *sd)) ||
-	    !(alloc = hc_malloc(s->nstrata * sizeof *alloc))) {
+	    !(sd = hc_mallocarray(r->paths, sizeof *sd)) ||
+	    !(alloc = hc_mallocarray(s->nstrata, sizeof *alloc))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the stratified curve");
 		goto cleanup;
 	}

@@ -6,6 +6,7 @@
  * See synth.h for the contract and docs/synth.md for the parameters.
  */
 #include "holdcount/synth.h"
+#include "holdcount/universe.h"
 
 #include <errno.h>
 #include <math.h>
@@ -572,6 +573,32 @@ static int write_universe(const struct synth_model *mo, FILE *fp, size_t *nfloor
 		rc = hc_error(err, HC_ENOMEM, "out of memory generating returns");
 		goto cleanup;
 	}
+	if (!(r = stream_rng(mo->seed, 1))) {
+		rc = hc_error(err, HC_EINTERNAL, "cannot allocate a random number generator");
+		goto cleanup;
+	}
+	/* A first pass draws every row and only checks it, so that a model
+	 * whose returns holdcount's own reader would refuse (an infinite
+	 * return, or one beyond HC_UNIVERSE_MAX_RETURN) writes nothing, not
+	 * even to standard output; the second pass, from the same stream,
+	 * writes the same rows. */
+	for (k = 0; k < mo->t; k++) {
+		size_t i;
+
+		draw_row(mo, r, k, g, row);
+		for (i = 0; i < mo->m; i++)
+			if (!isnan(row[i]) && !(fabs(row[i]) <= HC_UNIVERSE_MAX_RETURN)) {
+				char d[11];
+
+				hc_synth_format_date(mo->dates[k], d);
+				rc = hc_error(err, HC_EUSAGE,
+					      "the model options give security '%s' a return of %g on %s, beyond "
+					      "the %g a universe may hold; use smaller volatilities or mean returns",
+					      mo->ids[i], row[i], d, HC_UNIVERSE_MAX_RETURN);
+				goto cleanup;
+			}
+	}
+	gsl_rng_free(r);
 	if (!(r = stream_rng(mo->seed, 1))) {
 		rc = hc_error(err, HC_EINTERNAL, "cannot allocate a random number generator");
 		goto cleanup;

@@ -297,7 +297,7 @@ static void test_moments_rejects_bad_data(void **state)
 	u->m = 3;
 	fixture_free(u);
 	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(bad, 2), &err), HC_EDATA);
-	assert_non_null(strstr(err.message, "variance of security 2 is 0"));
+	assert_non_null(strstr(err.message, "the variance in row 2 is 0"));
 	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(inf, 2), &err), HC_EDATA);
 	assert_non_null(strstr(err.message, "not a finite number"));
 	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(bad, 1), &err), HC_EDATA);

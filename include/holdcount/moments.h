@@ -110,9 +110,15 @@ int hc_moments_from_source(struct moments *mo, const struct hc_source *src,
 void hc_moments_summary_averages(double variance, double covariance, double sd, double correlation,
 				 double *vbar, double *cbar);
 
+/* The most securities a summary may name: far beyond any market, and far
+ * below the counts at which M, M - 1 and the size grid lose their meaning
+ * in double arithmetic or wrap in a signed 64-bit count (2^63). */
+#define HC_MOMENTS_MAX_SECURITIES 1000000000u
+
 /* From summary statistics: average variance vbar, average covariance cbar,
  * m securities (0 = unbounded).  No spread; correlation cbar/vbar is used
- * only as an approximation and flagged has_correlation = 0. */
+ * only as an approximation and flagged has_correlation = 0.  HC_EUSAGE
+ * when m is above HC_MOMENTS_MAX_SECURITIES. */
 int hc_moments_from_summary(struct moments *mo, double vbar, double cbar,
 			 size_t m, struct hc_error *err);
 

@@ -41,6 +41,19 @@ enum universe_missing {
 /* Defaults named once. */
 #define UNIVERSE_DEFAULT_MIN_COVERAGE 0.8
 
+/*
+ * The largest return, in size, a universe may hold: 1e6 per period (a
+ * gain of 100 000 000%).  No security earns that in one period; a cell
+ * beyond it is a data error (a price in a return column, a missing
+ * decimal point), refused with its file, line and column (or, for returns
+ * computed from prices, its security and date).  The bound also keeps
+ * every later stage finite and in range: squares and sums of squares of
+ * returns stay far below DBL_MAX (a return of 1e154 made a variance
+ * overflow), and the report's plot axes and gnuplot's own arithmetic work
+ * on values it can handle (returns of 1e9 and up made gnuplot fail).
+ */
+#define HC_UNIVERSE_MAX_RETURN 1e6
+
 struct universe_options {
 	int layout;                 /* enum universe_layout */
 	int values;                 /* enum universe_values */

@@ -71,7 +71,7 @@ static const struct cli_option universe_options[] = {
 	  "field delimiter, ',' or ';'", NULL, "detected from the header" },
 	{ "max-memory", 0, CLI_COUNT, UNI(max_memory_mib), "MIB",
 	  "refuse an input when its numbers, with the working copies made of them, would need more "
-	  "than MIB mebibytes", NULL, "80% of the memory available" },
+	  "than MIB mebibytes; 0 means the default", NULL, "80% of the memory available" },
 	{ "covariance", 0, CLI_FLAG, UNI(covariance), NULL,
 	  "the file is a covariance matrix (ids in the header row and first column), "
 	  "not a return history", NULL, NULL },
@@ -96,7 +96,7 @@ static const struct cli_option sampling_options[] = {
 	  "random portfolios per holding count; 0 skips sampling", NULL, "10000" },
 	{ "seed", 0, CLI_U64, SAM(seed), "S",
 	  "seed of the random portfolios; the same seed gives the same output", NULL, "1" },
-	{ "threads", 0, CLI_COUNT, SAM(threads), "N",
+	{ "threads", 0, CLI_THREADS, SAM(threads), "N",
 	  "threads for sampling; the output does not depend on it", NULL,
 	  "$HOLDCOUNT_THREADS, else every core" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
@@ -115,7 +115,8 @@ static const struct cli_option summary_options[] = {
 	{ "average-correlation", 0, CLI_FRACTION, SUM(average_correlation), "R",
 	  "average correlation of two distinct securities (instead of --average-covariance)", NULL, NULL },
 	{ "securities", 0, CLI_COUNT, SUM(securities), "M",
-	  "securities in the universe, for the finite-universe formulas", NULL, "unbounded" },
+	  "securities in the universe, for the finite-universe formulas, at most 1000000000; "
+	  "0 means unbounded, as leaving it out does", NULL, "unbounded" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 const struct cli_group cli_group_summary = { "summary statistics", summary_options };
@@ -221,6 +222,8 @@ static int store_value(const struct cli_option *op, void *where, const char *val
 		return parse_count(val, where);
 	case CLI_U64:
 		return parse_u64(val, where);
+	case CLI_THREADS:
+		return cli_threads_parse(val, where);
 	case CLI_REAL:
 		return parse_real(val, len, where);
 	case CLI_FRACTION:
@@ -250,6 +253,7 @@ static const char *expected_text(const struct cli_option *op, char *buf, size_t 
 	switch (op->kind) {
 	case CLI_COUNT: return "a whole number (0, 1, 2, ...)";
 	case CLI_U64: return "a whole number from 0 to 18446744073709551615";
+	case CLI_THREADS: return cli_threads_expected;
 	case CLI_REAL: return "a finite number";
 	case CLI_FRACTION: return "a number, or a percent such as 10%";
 	case CLI_CHOICE:
@@ -343,12 +347,12 @@ static int threads_from_environment(const struct cli_command *cmd, void *opts)
 
 	if (!env || !*env || !(op = find_option(cmd, "threads", strlen("threads"), 0, opts, &base, NULL)))
 		return HC_OK;
-	if (parse_count(env, &n) || n == 0) {
-		fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be a whole number from 1, found '%s'\n",
-			cmd->name, env);
+	if (cli_threads_parse(env, &n)) {
+		fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be %s, found '%s'\n", cmd->name,
+			cli_threads_expected, env);
 		return HC_EUSAGE;
 	}
-	*(size_t *)(base + op->offset) = n; /* --threads is a CLI_COUNT, a size_t */
+	*(size_t *)(base + op->offset) = n; /* --threads is a CLI_THREADS, a size_t */
 	return HC_OK;
 }
 
@@ -751,6 +755,9 @@ static void man_common_sections(FILE *fp)
 		{ "5", "out of memory, or the input exceeds the memory budget" },
 		{ "6", "a numerical library failed or an internal check broke" },
 		{ "7", "interrupted by a signal; partly written output is removed" },
+		{ "8", "the system refused a resource other than memory: a thread or process (a process limit)" },
+		{ "9", "the renderer (gnuplot) failed on a plot script; nothing is left behind" },
+		{ "10", "the input is well formed but holds too little data for the question" },
 	};
 	size_t i;
 
@@ -758,7 +765,7 @@ static void man_common_sections(FILE *fp)
 	for (i = 0; i < sizeof status / sizeof status[0]; i++)
 		fprintf(fp, ".TP\n.B %s\n%s.\n", status[i][0], status[i][1]);
 	fputs(".SH ENVIRONMENT\n"
-	      ".TP\n.B HOLDCOUNT_THREADS\nthe default of \\fB\\-\\-threads\\fR (a whole number from 1).\n"
+	      ".TP\n.B HOLDCOUNT_THREADS\nthe default of \\fB\\-\\-threads\\fR (a whole number from 1 to 1024).\n"
 	      ".TP\n.B NO_COLOR\nhonoured; holdcount prints no colour or terminal escape codes in any case.\n"
 	      ".TP\n.B HOLDCOUNT_DATA_DIR\nthe folder of the demo data that \\fBholdcount report\\fR "
 	      "reads when no universe is given, instead of the installed one.\n"
@@ -1086,6 +1093,11 @@ void cli_install_signal_handlers(void)
 	sigemptyset(&sa.sa_mask);
 	catch_unless_ignored(SIGINT, &sa);
 	catch_unless_ignored(SIGTERM, &sa);
+	/* A file-size limit (ulimit -f) would kill the process with SIGXFSZ
+	 * mid-write, with no message and the temporary left behind; ignored,
+	 * the write fails with EFBIG instead, which the output's commit
+	 * reports as an i/o error (exit 4) after removing the temporary. */
+	signal(SIGXFSZ, SIG_IGN);
 }
 
 /* ---- an analysis's progress ----------------------------------------------- */

@@ -112,8 +112,18 @@ enum cli_kind {
 	CLI_REAL = 3,
 	CLI_FRACTION = 4,
 	CLI_CHOICE = 5,
-	CLI_U64 = 6
+	CLI_U64 = 6,
+	CLI_THREADS = 7            /* a thread count: size_t, 1 to HC_THREADS_MAX */
 };
+
+/* cli_threads.c: the one parse of a thread count (--threads and
+ * HOLDCOUNT_THREADS): 0 and *out set, or -1 when text is not a whole
+ * number from 1 to HC_THREADS_MAX; cli_threads_expected says so in words. */
+int cli_threads_parse(const char *text, size_t *out);
+extern const char cli_threads_expected[];
+/* Make an exit from inside the OpenMP runtime (a thread it could not
+ * create) exit with HC_ERESOURCE and a message; once, from main. */
+void cli_threads_guard(void);
 
 struct cli_option {
 	const char *name;          /* long name without "--"; NULL ends a table */
@@ -207,7 +217,7 @@ struct cli_sampling {
 	const char *sizes;         /* NULL = the default grid */
 	size_t paths;
 	uint64_t seed;
-	size_t threads;            /* 0 = all cores (OpenMP's default) */
+	size_t threads;            /* 0 = all cores (OpenMP's default); else 1..HC_THREADS_MAX */
 };
 extern const struct cli_group cli_group_sampling;
 void cli_sampling_init(struct cli_sampling *s);

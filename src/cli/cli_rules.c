@@ -44,7 +44,7 @@ static const struct cli_option rules_own[] = {
 	  "resample periods in moving blocks (Kuensch 1989) or stationary blocks (Politis & Romano 1994)",
 	  kind_choices, "block" },
 	{ "block-length", 0, CLI_COUNT, RUL(block_length), "L",
-	  "block length (mean length for stationary) in periods", NULL, "round(T^(1/3))" },
+	  "block length (mean length for stationary) in periods; 0 means the default", NULL, "round(T^(1/3))" },
 	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
 	  "also bootstrap the sampled rules (band, shortfall): re-samples portfolios per replicate, costly",
 	  NULL, NULL },

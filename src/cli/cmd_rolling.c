@@ -27,7 +27,7 @@ static const struct cli_option rolling_own[] = {
 	{ "step", 0, CLI_COUNT, OWN(step), "S", "periods between the starts of two windows", NULL, "12" },
 	{ "seed", 0, CLI_U64, OWN(seed), "S",
 	  "bootstrap seed; every window uses it, and the same seed gives the same output", NULL, "1" },
-	{ "threads", 0, CLI_COUNT, OWN(threads), "N",
+	{ "threads", 0, CLI_THREADS, OWN(threads), "N",
 	  "threads for the bootstrap; the output does not depend on it", NULL, "every core" },
 	{ "refresh", 0, CLI_COUNT, OWN(refresh), "R",
 	  "recompute the running sums from scratch at least every R windows", NULL, "64" },
