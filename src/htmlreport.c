@@ -141,7 +141,7 @@ static void value(FILE *fp, const struct report_value *v)
 {
 	char buf[64];
 
-	esc(fp, hc_report_format_value(buf, sizeof buf, v));
+	esc(fp, hc_report_value_text(buf, sizeof buf, v));
 }
 
 static int is_number(const struct report_value *v)

@@ -14,8 +14,8 @@ struct compare_opts {
 };
 
 static const struct cli_group_use compare_groups[] = {
-	{ &cli_group_output, offsetof(struct compare_opts, out), NULL },
-	{ NULL, 0, NULL }
+	{ &cli_group_output, offsetof(struct compare_opts, out), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_compare = {
