@@ -71,6 +71,7 @@ static const char stylesheet[] =
 	"thead th{background:var(--band);text-align:left}\n"
 	"tbody th{text-align:left;font-weight:600}\n"
 	"td.n{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}\n"
+	"table.wide{font-size:.78rem}table.wide th,table.wide td{padding:.2rem .3rem}\n"
 	".fail{font-weight:700;text-decoration:underline}\n"
 	"dl.facts{display:grid;grid-template-columns:max-content 1fr;gap:.15rem 1rem;margin:.6rem 0}\n"
 	"dl.facts dt{font-weight:600}dl.facts dd{margin:0}\n"
@@ -164,11 +165,16 @@ struct column {
 	const char *key, *title;
 };
 
+/* A table of more columns than this is set smaller (class "wide"), so that
+ * it fits a 1000-pixel window and a portrait page without sideways
+ * scrolling (the audited funds with their coverage and statute columns). */
+#define WIDE_TABLE_COLUMNS 10
+
 static void table_head(FILE *fp, const char *caption, const struct column *cols, size_t n)
 {
 	size_t j;
 
-	fputs("<table>\n<caption>", fp);
+	fputs(n > WIDE_TABLE_COLUMNS ? "<table class=\"wide\">\n<caption>" : "<table>\n<caption>", fp);
 	esc(fp, caption);
 	fputs("</caption>\n<thead><tr>", fp);
 	for (j = 0; j < n; j++) {

@@ -13,7 +13,8 @@
 #   - every figure is present with a non-zero rendered size: a test copy
 #     (only the copy) gets a script at the end of its body that writes each
 #     figure's laid-out size into the DOM, read back with --dump-dom; every
-#     figure carries an accessible name;
+#     figure carries an accessible name; nothing is wider than the window
+#     (no sideways scrolling at 1000 pixels);
 #   - every section heading is in the DOM and in the PDF's text (pdftotext,
 #     Debian's poppler-utils);
 #   - the PDF's page count is within 8 to 24 pages on Letter and on A4
@@ -96,9 +97,9 @@ assert len(data) > 30000, len(data)   # a blank page compresses to a few kB
 EOF
 
 # 2. Laid-out sizes of every figure and the headings, from a test copy.
-sed 's|</body>|<script>(function(){var o=[];document.querySelectorAll("figure").forEach(function(f){var s=f.querySelector("svg");var r=s?s.getBoundingClientRect():{width:0,height:0};o.push("figure "+f.id+" "+Math.round(r.width)+" "+Math.round(r.height));});document.querySelectorAll("h2").forEach(function(h){o.push("h2 "+h.textContent);});var p=document.createElement("pre");p.id="hc-sizes";p.textContent=o.join("\\n");document.body.appendChild(p);})();</script></body>|' \
+sed 's|</body>|<script>(function(){var o=[];document.querySelectorAll("figure").forEach(function(f){var s=f.querySelector("svg");var r=s?s.getBoundingClientRect():{width:0,height:0};o.push("figure "+f.id+" "+Math.round(r.width)+" "+Math.round(r.height));});document.querySelectorAll("h2").forEach(function(h){o.push("h2 "+h.textContent);});var d=document.documentElement;o.push("width "+d.scrollWidth+" "+d.clientWidth);var p=document.createElement("pre");p.id="hc-sizes";p.textContent=o.join("\\n");document.body.appendChild(p);})();</script></body>|' \
 	"$H" >"$T/report-2024/report-sizes.html"
-browse "$T/dom.log" --window-size=1200,1600 --dump-dom "file://$T/report-2024/report-sizes.html" >"$T/dom.html" || fail "dump-dom: chromium exited $?"
+browse "$T/dom.log" --window-size=1000,1300 --dump-dom "file://$T/report-2024/report-sizes.html" >"$T/dom.html" || fail "dump-dom: chromium exited $?"
 console_clean "$T/dom.log" || fail "console messages in the sized copy: $(grep CONSOLE "$T/dom.log" | head -3)"
 python3 -c '
 import html, re, sys
@@ -113,6 +114,9 @@ done < <(grep '^figure ' "$T/sizes")
 for s in "${SECTIONS[@]}"; do
 	grep -qxF "h2 $s" "$T/sizes" || fail "the page has no heading '$s'"
 done
+# nothing wider than the window at the screenshot's width (no sideways scrolling)
+read -r _ sw cw < <(grep '^width ' "$T/sizes")
+[ -n "$cw" ] && [ "$sw" -le "$cw" ] || fail "the page is ${sw:-?} pixels wide in a window ${cw:-?} wide: a table or figure overflows"
 
 # 3. PDF on Letter (Chromium's default paper) and on A4 (a copy whose
 # @page names it), page counts and text.
