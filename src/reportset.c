@@ -152,7 +152,7 @@ static int compute_rolling(struct hc_reportset *r, const struct universe *every,
 	return HC_OK;
 }
 
-static int build_universe(struct hc_reportset *r);
+static int build_universe(struct hc_reportset *r, const struct universe *every);
 
 int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
 		     const struct universe *every_security, const struct hc_reportset_options *opt,
@@ -195,7 +195,7 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
 		stage(r, "rolling windows");
 		rc = compute_rolling(r, every_security, err);
 	}
-	if (rc == HC_OK && build_universe(r))
+	if (rc == HC_OK && build_universe(r, every_security))
 		rc = hc_error(err, HC_ENOMEM, "out of memory building the report");
 	if (rc != HC_OK) {
 		hc_reportset_free(r);
@@ -210,7 +210,48 @@ static const size_t readable_grid[] = { 1, 2, 3, 5, 10, 15, 20, 25, 30, 40, 50, 
 
 /* ---- the report objects ----------------------------------------------------------- */
 
-static int build_universe(struct hc_reportset *r)
+/* Table "alive" of the universe report: for each calendar year of the file
+ * as read (every security, gaps kept), its periods and the fewest and most
+ * securities with a return in one of them; so a reader sees how many
+ * securities the history held when, and where the file thins out
+ * (listings, delistings, gaps) before the complete series are taken. */
+static int build_alive(struct report *rep, const struct universe *every)
+{
+	struct report_table *t = hc_report_add_table(rep, "alive", "Securities with a return, by year (the file as read)");
+	char date[16];
+	size_t p, i, row = 0, n;
+	long long year, prev = -1;
+
+	if (!t || hc_report_table_add_column(t, "year", "year", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "periods", "periods", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "fewest", "fewest securities with a return", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "most", "most securities with a return", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (p = 0; p < every->t; p++) {
+		hc_universe_format_date(every->dates[p], date);
+		year = strtoll(date, NULL, 10);
+		for (i = 0, n = 0; i < every->m; i++)
+			n += !isnan(every->x[i * every->t + p]);
+		if (year != prev) {
+			if (hc_report_table_add_row(t))
+				return HC_ENOMEM;
+			row = t->nrows - 1;
+			hc_report_table_set_int(t, row, 0, year);
+			hc_report_table_set_int(t, row, 1, 0);
+			hc_report_table_set_int(t, row, 2, (long long)n);
+			hc_report_table_set_int(t, row, 3, (long long)n);
+			prev = year;
+		}
+		t->cells[row * t->ncols + 1].integer++;
+		if ((long long)n < t->cells[row * t->ncols + 2].integer)
+			t->cells[row * t->ncols + 2].integer = (long long)n;
+		if ((long long)n > t->cells[row * t->ncols + 3].integer)
+			t->cells[row * t->ncols + 3].integer = (long long)n;
+	}
+	return HC_OK;
+}
+
+static int build_universe(struct hc_reportset *r, const struct universe *every)
 {
 	struct report *rep = r->rep_universe = hc_report_alloc();
 	char first[16], last[16];
@@ -250,6 +291,8 @@ static int build_universe(struct hc_reportset *r)
 	for (i = 0; i < r->u->m; i++)
 		if (hc_report_table_add_row(t) || hc_report_table_set_text(t, i, 0, r->u->ids[i]))
 			return HC_ENOMEM;
+	if (every && every->t == r->u->t && build_alive(rep, every))
+		return HC_ENOMEM;
 	if (r->u->ndropped) {
 		t = hc_report_add_table(rep, "dropped", "securities dropped");
 		if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
@@ -414,12 +457,22 @@ static void md_universe(FILE *fp, const struct hc_reportset *r)
 		{ "floor_sd", "floor sd, sqrt of the average covariance (a year)" },
 		{ "universe_sd", "sd of the equal-weight portfolio of all securities (a year)" },
 	};
+	static const char *const alive[][2] = {
+		{ "year", "year" }, { "periods", "periods" }, { "fewest", "fewest securities with a return" },
+		{ "most", "most securities with a return" },
+	};
+	const struct report_table *t = hc_report_find_table(r->rep_universe, "alive");
 	size_t i;
 
 	fputs("## The universe\n\n", fp);
 	for (i = 0; i < sizeof fields / sizeof fields[0]; i++)
 		md_field(fp, r->rep_universe, fields[i][0], fields[i][1]);
 	fputc('\n', fp);
+	if (t) {
+		fputs("Securities with a return in the file as read, by year (the analyses use the securities "
+		      "complete over the whole sample):\n\n", fp);
+		hc_report_md_table(fp, t, alive, sizeof alive / sizeof alive[0], NULL, NULL);
+	}
 }
 
 static void md_curve(FILE *fp, const struct hc_reportset *r)

@@ -12,6 +12,8 @@ Runs `holdcount report` on the bundled demo and checks:
     both sum about 10^4 products in a different order);
   - the rolling windows, in by default: every window's complete securities,
     average covariance and near-floor count against numpy on that window;
+  - summary.json's universe.alive (securities with a return per year) against
+    a count of the CSV's cells by calendar year;
   - exact.dat carries 100 * expected_sd to its 10 significant digits;
   - the plots' labels: no rule's leader line strikes another rule's label
     and no label sits on the curve or the band (risk.gp, risk-log.gp), and
@@ -109,6 +111,18 @@ for row in summary["curve"]["curve"]:
     check(abs(row["expected_tracking_error"] ** 2 - te2) <= 1e-12 * 12 * vbar,
           f"TE({n}) {row['expected_tracking_error']} vs numpy sqrt {te2}")
 check(abs(summary["universe"]["floor_sd"] - np.sqrt(12 * cbar)) <= 1e-12, "floor sd vs numpy")
+
+# universe.alive (the "securities with a return, by year" table of
+# summary.md and report.html) counted from the CSV itself: per calendar
+# year of the date column, its periods and the fewest and most securities
+# with a value in one of them.
+by_year = {}
+for row in data[1:]:
+    n = sum(1 for v in row[1:] if v not in ("", "NA", "NaN", "."))
+    by_year.setdefault(int(row[0][:4]), []).append(n)
+want = [{"year": y, "periods": len(c), "fewest": min(c), "most": max(c)} for y, c in sorted(by_year.items())]
+check(summary["universe"].get("alive") == want, f"universe.alive {summary['universe'].get('alive')!r} vs the CSV {want!r}")
+check(min(r["fewest"] for r in want) < max(r["most"] for r in want), "the demo's alive counts vary (the check can fail)")
 
 # audit.csv's missing_count (a count, so named; there is no missing_ids
 # column) against the demo files themselves: per fund, the ids of

@@ -147,6 +147,10 @@ grep -qF "$count holdings (near-floor rule; 90% interval $p05 to $p95)" "$T/lett
 grep -qF "The portfolio holds at least $p95 securities of its universe" "$T/letter.txt" ||
 	fail "letter.pdf lacks the policy sentence with its minimum $p95"
 grep -qF "not investment advice" "$T/letter.txt" || fail "letter.pdf lacks the cautions"
+# the universe's securities with a return by year: the demo's 2011 row
+# (144 to 146 of the file's securities; counted from the CSV by check_report.py)
+grep -qF "Securities with a return, by year (the file as read)" "$T/letter.txt" || fail "letter.pdf lacks the securities-by-year table"
+grep -qE "2011 12 144 146 " "$T/letter.txt" || fail "letter.pdf lacks the demo's 2011 row '2011 12 144 146'"
 
 # The console check is not blind: a page that logs an error is caught.
 printf '<!DOCTYPE html><html lang="en"><title>x</title><p>x</p><script>console.error("hc-control")</script></html>\n' >"$T/control.html"

@@ -94,7 +94,9 @@ struct hc_reportset {
  * Every analysis of the report on src (complete return series), with
  * every_security (the same file with no security dropped: rolling windows
  * apply the missing-data policy each; hc_universe_apply_missing makes src's
- * universe from it) when opt->window is set.  opt->previous is read first
+ * universe from it), required when opt->window is set; when given, the
+ * universe report also counts the securities with a return in each year's
+ * periods (table "alive").  opt->previous is read first
  * (HC_EIO naming it, before any analysis).  *out is new (hc_reportset_free)
  * or NULL on error: the analyses' errors.
  */

@@ -319,7 +319,7 @@ int cmd_report(int argc, char **argv)
 		ro.holdings_name = in.hold.holdings;
 	}
 	cli_steps_bind(&steps, &ro.progress, "report", o.quiet, 1);
-	if ((rc = hc_reportset_run(&rs, src, ro.window ? every : NULL, &ro, &err)) != HC_OK) {
+	if ((rc = hc_reportset_run(&rs, src, every, &ro, &err)) != HC_OK) {
 		rc = cli_fail("report", &err);
 		goto cleanup;
 	}
