@@ -170,7 +170,12 @@ static int add_verdicts(struct cmp *c)
 
 	if ((rc = each_fund(c, verdict, 1)) || (rc = each_fund(c, verdict, 0)))
 		return rc;
-	return add_key(c, "verdict", "audit", "failed_funds", "funds failing the policy", REPORT_STYLE_PLAIN);
+	if ((rc = add_key(c, "verdict", "audit", "failed_funds", "funds failing the policy", REPORT_STYLE_PLAIN)))
+		return rc;
+	/* an audit that judges coverage counts the funds it could not judge */
+	if (!get(get(c->old, "audit"), "insufficient_funds") && !get(get(c->new, "audit"), "insufficient_funds"))
+		return HC_OK;
+	return add_key(c, "verdict", "audit", "insufficient_funds", "funds with insufficient data", REPORT_STYLE_PLAIN);
 }
 
 /* ---- the recommendation ------------------------------------------------------- */
@@ -349,6 +354,16 @@ static int fund_figures(struct cmp *c, const char *name, int unused)
 		{ "missing_weight", "weight missing from the universe", REPORT_STYLE_PERCENT },
 		{ "covered_weight", "weight its risk uses (coverage)", REPORT_STYLE_PERCENT },
 		{ "risk_holdings", "holdings its risk uses", REPORT_STYLE_PLAIN },
+		/* the statute screens and, when the audit gives them, both
+		 * readings of the 5% baskets (a position above 5% counted up to
+		 * 5%, or left out) */
+		{ "ucits", "UCITS Art. 52 screen", REPORT_STYLE_PLAIN },
+		{ "1940act", "1940 Act 5(b)(1) screen", REPORT_STYLE_PLAIN },
+		{ "basket_1940act_capped", "1940 Act basket, positions counted up to 5%", REPORT_STYLE_PERCENT },
+		{ "basket_1940act_excluded", "1940 Act basket, positions above 5% left out", REPORT_STYLE_PERCENT },
+		{ "ric", "IRC 851(b)(3) screen", REPORT_STYLE_PLAIN },
+		{ "basket_ric_capped", "IRC 851 basket, positions counted up to 5%", REPORT_STYLE_PERCENT },
+		{ "basket_ric_excluded", "IRC 851 basket, positions above 5% left out", REPORT_STYLE_PERCENT },
 	};
 	const cJSON *a = find_row(funds_of(c->old), "fund", name), *b = find_row(funds_of(c->new), "fund", name);
 	char item[320];
@@ -357,7 +372,7 @@ static int fund_figures(struct cmp *c, const char *name, int unused)
 	(void)unused;
 	for (k = 0; k < sizeof keys / sizeof keys[0]; k++) {
 		if (!get(a, keys[k].key) && !get(b, keys[k].key) && k >= 7)
-			continue;   /* coverage fields neither summary has */
+			continue;   /* coverage and statute fields neither summary has */
 		snprintf(item, sizeof item, "%s: %s", name, keys[k].item);
 		if (add(c, "funds", item, get(a, keys[k].key), get(b, keys[k].key), keys[k].style))
 			return HC_ENOMEM;

@@ -663,16 +663,29 @@ static void rules(FILE *fp, const struct htmlreport_input *in)
 
 static void funds(FILE *fp, const struct htmlreport_input *in)
 {
+	/* two tables, so that each fits a page: the verdict with the figures
+	 * that lead to it, then how much of each fund the figures rest on and
+	 * the statute screens (with both readings of the 5% baskets when the
+	 * audit gives them) */
 	static const struct column cols[] = {
 		{ "fund", "fund" }, { "verdict", "verdict" }, { "passed", "passes the policy" },
 		{ "failed_rules", "fails on" },
 		{ "holdings", "holdings" }, { "effective_holdings", "effective holdings 1/HHI" },
+		{ "effective_issuers", "effective issuers" },
 		{ "max_weight", "largest weight" }, { "sd", "sd a year" }, { "sd_percentile", "sd percentile among random portfolios" },
-		{ "missing_count", "holdings missing from the universe" },
+	};
+	static const struct column cover[] = {
+		{ "fund", "fund" }, { "missing_count", "holdings missing from the universe" },
 		{ "missing_weight", "their weight" }, { "covered_weight", "weight its risk uses (coverage)" },
 		{ "risk_holdings", "holdings its risk uses" },
-		{ "ucits", "UCITS Art. 52" }, { "1940act", "1940 Act 5(b)(1)" }, { "ric", "IRC 851(b)(3)" },
+		{ "ucits", "UCITS Art. 52" }, { "1940act", "1940 Act 5(b)(1)" },
+		{ "basket_1940act_capped", "1940 Act basket, positions counted up to 5%" },
+		{ "basket_1940act_excluded", "1940 Act basket, positions above 5% left out" },
+		{ "ric", "IRC 851(b)(3)" },
+		{ "basket_ric_capped", "IRC 851 basket, positions counted up to 5%" },
+		{ "basket_ric_excluded", "IRC 851 basket, positions above 5% left out" },
 	};
+	const struct report_table *t;
 
 	section_open(fp, S_FUNDS);
 	if (!in->audit) {
@@ -686,13 +699,26 @@ static void funds(FILE *fp, const struct htmlreport_input *in)
 	fputs(". Funds failing it: ", fp);
 	value(fp, field(in->audit, "failed_funds"));
 	fputs(".</p>\n", fp);
-	whole_table(fp, hc_report_find_table(in->audit, "funds"), "Audited funds", cols, sizeof cols / sizeof cols[0],
+	t = hc_report_find_table(in->audit, "funds");
+	whole_table(fp, t, "Audited funds: the verdict", cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	whole_table(fp, t, "Audited funds: coverage and the statute screens", cover, sizeof cover / sizeof cover[0],
 		    NULL, NULL);
 	fputs("<p class=\"note\">The effective count 1/HHI is the number of equal weights with the same "
 	      "concentration; the sd percentile places the fund among random portfolios of its own count (high is "
-	      "riskier). The three statute columns test weights only and are written from memory of the texts "
-	      "(Directive 2009/65/EC Art. 52; Investment Company Act of 1940 s. 5(b)(1); Internal Revenue Code "
-	      "s. 851(b)(3)): verify against the current text and defer to compliance counsel.</p>\n", fp);
+	      "riskier). Coverage: the risk figures use the holdings with a complete history in the universe "
+	      "(holdings its risk uses).", fp);
+	if (t && col(t, "verdict") >= 0 && col(t, "covered_weight") >= 0)
+		fputs(" The weight they carry is the fund's coverage; a fund whose coverage is below the audit's "
+		      "minimum gets the verdict \"insufficient data\" instead of a pass, and is neither passed nor "
+		      "failed on its risk.", fp);
+	fputs(" The statute columns test weights only and are written from memory of the texts (Directive "
+	      "2009/65/EC Art. 52; Investment Company Act of 1940 s. 5(b)(1); Internal Revenue Code s. 851(b)(3)): "
+	      "verify against the current text and defer to compliance counsel.", fp);
+	if (t && col(t, "basket_1940act_capped") >= 0)
+		fputs(" The 5% baskets are shown under both readings of the texts: a position above 5% of the fund "
+		      "counted up to 5%, or left out entirely; the screen's yes or no uses the reading the audit was "
+		      "run with (docs/audit.md).", fp);
+	fputs("</p>\n", fp);
 	figures(fp, in, HTMLREPORT_FUNDS);
 	fputs("</section>\n", fp);
 }

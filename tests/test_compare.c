@@ -185,6 +185,50 @@ static void test_compare_verdict_words(void **state)
 	hc_report_free(r);
 }
 
+/* The statute screens and both readings of the 5% baskets, and the count
+ * of funds with insufficient data, when an audit gives them: 80% of the
+ * fund in the capped basket last time and 75% now is a change of -5
+ * points (worked out by hand); a screen that flips is a changed row. */
+static void test_compare_statute_readings(void **state)
+{
+	static const char a[] = "{\"holdcount_version\": \"0.2.0\", \"universe\": {},"
+		" \"audit\": {\"failed_funds\": 0, \"insufficient_funds\": 0, \"funds\": [{\"fund\": \"Cedar Income\","
+		" \"passed\": true, \"1940act\": true, \"basket_1940act_capped\": 0.8, \"basket_1940act_excluded\": 0.0}]}}";
+	static const char b[] = "{\"holdcount_version\": \"0.2.0\", \"universe\": {},"
+		" \"audit\": {\"failed_funds\": 0, \"insufficient_funds\": 1, \"funds\": [{\"fund\": \"Cedar Income\","
+		" \"passed\": true, \"1940act\": false, \"basket_1940act_capped\": 0.75, \"basket_1940act_excluded\": 0.0}]}}";
+	struct report *r = NULL;
+	struct hc_error err;
+	const struct report_table *t;
+	size_t i;
+
+	(void)state;
+	assert_int_equal(hc_compare_summaries(&r, a, "a", b, "b", &err), HC_OK);
+	t = hc_report_find_table(r, "changes");
+	i = row_of(t, "Cedar Income: 1940 Act basket, positions counted up to 5%");
+	assert_true(at(t, i, 4)->kind == REPORT_REAL);
+	assert_true(at(t, i, 4)->real > -0.05 - 1e-12 && at(t, i, 4)->real < -0.05 + 1e-12);
+	assert_int_equal(at(t, i, 5)->integer, 1);
+	i = row_of(t, "Cedar Income: 1940 Act basket, positions above 5% left out");
+	assert_int_equal(at(t, i, 5)->integer, 0);
+	i = row_of(t, "Cedar Income: 1940 Act 5(b)(1) screen");
+	assert_int_equal(at(t, i, 5)->integer, 1);
+	i = row_of(t, "funds with insufficient data");
+	assert_int_equal(at(t, i, 2)->integer, 0);
+	assert_int_equal(at(t, i, 3)->integer, 1);
+	assert_int_equal(at(t, i, 5)->integer, 1);
+	hc_report_free(r);
+	/* neither summary has them: no such rows (test_compare_figures' pair) */
+	assert_int_equal(hc_compare_summaries(&r, old_json, "old", new_json, "new", &err), HC_OK);
+	t = hc_report_find_table(r, "changes");
+	for (i = 0; i < t->nrows; i++) {
+		assert_null(strstr(at(t, i, 1)->text, "basket"));
+		assert_null(strstr(at(t, i, 1)->text, "screen"));
+		assert_null(strstr(at(t, i, 1)->text, "insufficient"));
+	}
+	hc_report_free(r);
+}
+
 static void test_compare_not_a_summary(void **state)
 {
 	struct report *r = (struct report *)&r;
@@ -229,6 +273,7 @@ int main(void)
 		cmocka_unit_test(test_compare_figures),
 		cmocka_unit_test(test_compare_same),
 		cmocka_unit_test(test_compare_verdict_words),
+		cmocka_unit_test(test_compare_statute_readings),
 		cmocka_unit_test(test_compare_not_a_summary),
 		cmocka_unit_test(test_compare_out_of_memory),
 	};

@@ -225,6 +225,100 @@ static void test_htmlreport_recommendation(void **state)
 	release(&f);
 }
 
+/* needle occurs in [lo, hi) of the document */
+static int between(const char *lo, const char *hi, const char *needle)
+{
+	const char *p = strstr(lo, needle);
+
+	return p != NULL && p < hi;
+}
+
+/* An audit report with a funds table of the given columns (one fund, every
+ * cell filled: texts "x", booleans yes, numbers 0.25). */
+static struct report *audit_report(const char *const *keys, size_t n, const char *verdict)
+{
+	struct report *r = hc_report_alloc();
+	struct report_table *t;
+	size_t j;
+
+	assert_non_null(r);
+	assert_int_equal(hc_report_add_text(r, "policy", "policy", "none"), HC_OK);
+	assert_int_equal(hc_report_add_int(r, "failed_funds", "failing", 0), HC_OK);
+	t = hc_report_add_table(r, "funds", NULL);
+	assert_non_null(t);
+	for (j = 0; j < n; j++)
+		assert_int_equal(hc_report_table_add_column(t, keys[j], keys[j], REPORT_STYLE_PERCENT), HC_OK);
+	assert_int_equal(hc_report_table_add_row(t), HC_OK);
+	for (j = 0; j < n; j++) {
+		if (strcmp(keys[j], "fund") == 0)
+			assert_int_equal(hc_report_table_set_text(t, 0, j, "Lirrand Test Fund"), HC_OK);
+		else if (strcmp(keys[j], "verdict") == 0)
+			assert_int_equal(hc_report_table_set_text(t, 0, j, verdict), HC_OK);
+		else if (strcmp(keys[j], "passed") == 0 || strcmp(keys[j], "1940act") == 0 || strcmp(keys[j], "ric") == 0 ||
+			 strcmp(keys[j], "ucits") == 0)
+			hc_report_table_set_bool(t, 0, j, 1);
+		else
+			hc_report_table_set_real(t, 0, j, 0.25);
+	}
+	return r;
+}
+
+/* The audited funds in two tables (the verdict; coverage and the statute
+ * screens), columns the audit lacks left out, the coverage and the two
+ * readings explained only when the audit gives them, and a table of more
+ * than ten columns set in the compact style. */
+static void test_htmlreport_funds_tables(void **state)
+{
+	static const char *const full[] = {
+		"fund", "verdict", "passed", "holdings", "effective_holdings", "sd", "missing_count", "missing_weight",
+		"covered_weight", "risk_holdings", "ucits", "1940act", "basket_1940act_capped", "basket_1940act_excluded",
+		"ric", "basket_ric_capped", "basket_ric_excluded",
+	};
+	static const char *const plain[] = { "fund", "passed", "holdings", "sd", "risk_holdings", "ucits", "1940act", "ric" };
+	struct fixture f;
+	char *doc, *first, *second, *end;
+
+	(void)state;
+	build(&f);
+	f.in.audit = audit_report(full, sizeof full / sizeof full[0], "insufficient data");
+	doc = write_doc(&f);
+	first = strstr(doc, "<caption>Audited funds: the verdict</caption>");
+	second = strstr(doc, "<caption>Audited funds: coverage and the statute screens</caption>");
+	assert_true(first && second && first < second);
+	end = strstr(second, "</table>");
+	assert_non_null(end);
+	/* the verdict in the first table, coverage and both readings in the second */
+	assert_true(between(first, second, "<td>insufficient data</td>"));
+	assert_true(between(first, second, "<th scope=\"col\">verdict</th>"));
+	assert_false(between(first, second, "(coverage)</th>"));
+	assert_true(between(second, end, "<th scope=\"col\">weight its risk uses (coverage)</th>"));
+	assert_true(between(second, end, "<th scope=\"col\">1940 Act basket, positions counted up to 5%</th>"));
+	assert_true(between(second, end, "<th scope=\"col\">IRC 851 basket, positions above 5% left out</th>"));
+	assert_true(between(second, end, "<td class=\"n\">25.00%</td>"));
+	assert_false(between(second, end, "<th scope=\"col\">verdict</th>"));
+	/* 12 columns: the compact style; the first table (8) keeps the plain one */
+	assert_non_null(strstr(doc, "<table class=\"wide\">\n<caption>Audited funds: coverage"));
+	assert_non_null(strstr(doc, "<table>\n<caption>Audited funds: the verdict"));
+	assert_non_null(strstr(doc, "gets the verdict \"insufficient data\""));
+	assert_non_null(strstr(doc, "shown under both readings of the texts"));
+	free(doc);
+	hc_report_free((struct report *)f.in.audit);
+
+	/* an audit without coverage or readings: no such columns, no such words */
+	f.in.audit = audit_report(plain, sizeof plain / sizeof plain[0], NULL);
+	doc = write_doc(&f);
+	assert_non_null(strstr(doc, "<caption>Audited funds: the verdict</caption>"));
+	assert_null(strstr(doc, "weight its risk uses (coverage)"));
+	assert_null(strstr(doc, "basket, positions"));
+	assert_null(strstr(doc, "insufficient data"));
+	assert_null(strstr(doc, "both readings"));
+	assert_null(strstr(doc, "class=\"wide\""));
+	assert_non_null(strstr(doc, "<th scope=\"col\">holdings its risk uses</th>"));
+	free(doc);
+	hc_report_free((struct report *)f.in.audit);
+	release(&f);
+}
+
 static void test_htmlreport_errors(void **state)
 {
 	struct fixture f;
@@ -252,6 +346,7 @@ int main(void)
 		cmocka_unit_test(test_htmlreport_inlines_svg),
 		cmocka_unit_test(test_htmlreport_committee_tables),
 		cmocka_unit_test(test_htmlreport_recommendation),
+		cmocka_unit_test(test_htmlreport_funds_tables),
 		cmocka_unit_test(test_htmlreport_errors),
 	};
 
