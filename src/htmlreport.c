@@ -661,6 +661,27 @@ static void rules(FILE *fp, const struct htmlreport_input *in)
 
 /* ---- funds ----------------------------------------------------------------------------- */
 
+/* The audit's own notes (how its figures are computed; with the statutes'
+ * readings, the timing of the tests and the coverage rule when the audit
+ * gives them), those the universe's cautions do not already hold. */
+static void audit_notes(FILE *fp, const struct htmlreport_input *in)
+{
+	size_t i, k, n = 0;
+
+	for (i = 0; i < in->audit->nnotes; i++) {
+		for (k = 0; k < in->universe->nnotes; k++)
+			if (strcmp(in->audit->notes[i], in->universe->notes[k]) == 0)
+				break;
+		if (k < in->universe->nnotes)
+			continue;
+		fputs(n++ ? "<li>" : "<h3>How the audit reads the funds and the statutes</h3>\n<ul class=\"note\">\n<li>", fp);
+		esc(fp, in->audit->notes[i]);
+		fputs("</li>\n", fp);
+	}
+	if (n)
+		fputs("</ul>\n", fp);
+}
+
 static void funds(FILE *fp, const struct htmlreport_input *in)
 {
 	/* two tables, so that each fits a page: the verdict with the figures
@@ -719,6 +740,7 @@ static void funds(FILE *fp, const struct htmlreport_input *in)
 		      "counted up to 5%, or left out entirely; the screen's yes or no uses the reading the audit was "
 		      "run with (docs/audit.md).", fp);
 	fputs("</p>\n", fp);
+	audit_notes(fp, in);
 	figures(fp, in, HTMLREPORT_FUNDS);
 	fputs("</section>\n", fp);
 }

@@ -281,7 +281,19 @@ static void test_htmlreport_funds_tables(void **state)
 	(void)state;
 	build(&f);
 	f.in.audit = audit_report(full, sizeof full / sizeof full[0], "insufficient data");
+	/* the audit's notes in the funds section, less those the cautions
+	 * already list (the universe's) */
+	assert_int_equal(hc_report_add_note((struct report *)f.in.audit, "s. 851(b)(3) is tested at quarter end <30 days>"),
+			 HC_OK);
+	assert_int_equal(hc_report_add_note((struct report *)f.in.audit, f.universe->notes[0]), HC_OK);
 	doc = write_doc(&f);
+	{
+		char *sec = strstr(doc, "<section id=\"funds\""), *next = sec ? strstr(sec, "</section>") : NULL;
+		assert_non_null(next);
+		assert_true(between(sec, next, "<h3>How the audit reads the funds and the statutes</h3>"));
+		assert_true(between(sec, next, "<li>s. 851(b)(3) is tested at quarter end &lt;30 days&gt;</li>"));
+		assert_false(between(sec, next, f.universe->notes[0]));
+	}
 	first = strstr(doc, "<caption>Audited funds: the verdict</caption>");
 	second = strstr(doc, "<caption>Audited funds: coverage and the statute screens</caption>");
 	assert_true(first && second && first < second);
@@ -312,6 +324,7 @@ static void test_htmlreport_funds_tables(void **state)
 	assert_null(strstr(doc, "basket, positions"));
 	assert_null(strstr(doc, "insufficient data"));
 	assert_null(strstr(doc, "both readings"));
+	assert_null(strstr(doc, "How the audit reads"));
 	assert_null(strstr(doc, "class=\"wide\""));
 	assert_non_null(strstr(doc, "<th scope=\"col\">holdings its risk uses</th>"));
 	free(doc);
