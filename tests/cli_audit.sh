@@ -129,8 +129,8 @@ expect 0 "holdcount audit: warning: $T/off.csv:2: fund 'Wren': weights sum to 0.
 printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.5\nMoss,QA1,0\nMoss,QA3,0\n' >"$T/empty.csv"
 expect 3 "holdcount audit: $T/empty.csv:4:3: fund 'Moss' holds nothing: all its 2 weights are zero, expected at least one non-zero weight" -- \
 	audit "$T/u.csv" --holdings "$T/empty.csv"
-printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA1,0.5\n' >"$T/dup.csv"
-expect 3 "holdcount audit: $T/dup.csv:3:2: duplicate id 'QA1' in fund 'Wren' (also at line 2), expected each id once per fund" -- \
+printf 'fund,id,weight,type\nWren,QA1,0.5,security\nWren,QA1,0.5,cash\n' >"$T/dup.csv"
+expect 3 "holdcount audit: $T/dup.csv:3:2: id 'QA1' of fund 'Wren' repeats line 2 with another issuer, group or type, expected the same (repeated rows of an id are summed)" -- \
 	audit "$T/u.csv" --holdings "$T/dup.csv"
 printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,half\n' >"$T/nan.csv"
 expect 3 "holdcount audit: $T/nan.csv:3:3: found 'half', expected a number (a weight such as 0.052 or 5.2%)" -- \

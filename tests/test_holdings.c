@@ -171,8 +171,8 @@ static void test_holdings_bad_input_messages(void **state)
 	static const struct bad_case cases[] = {
 		{ "fund,id,weight\nIvy,QX1,0.5\nIvy,QX2,abc\n",
 		  "f.csv:3:3: found 'abc', expected a number (a weight such as 0.052 or 5.2%)" },
-		{ "fund,id,weight\nIvy,QX1,0.5\nJuniper,QX1,1\nIvy,QX1,0.5\n",
-		  "f.csv:4:2: duplicate id 'QX1' in fund 'Ivy' (also at line 2), expected each id once per fund" },
+		{ "fund,id,weight,issuer\nIvy,QX1,0.5,ISS-A\nJuniper,QX1,1,ISS-A\nIvy,QX1,0.5,ISS-B\n",
+		  "f.csv:4:2: id 'QX1' of fund 'Ivy' repeats line 2 with another issuer, group or type, expected the same (repeated rows of an id are summed)" },
 		{ "fund,id,weight\nIvy,QX1,0.5\nKapok,QX1,0\nKapok,QX2,0.0\n",
 		  "f.csv:3:3: fund 'Kapok' holds nothing: all its 2 weights are zero, expected at least one non-zero weight" },
 		{ "fund,id,weight\n",
@@ -188,7 +188,7 @@ static void test_holdings_bad_input_messages(void **state)
 		{ "name,id,weight\nLarch,QX1,1\n",
 		  "f.csv:1: no 'fund' column in the header; expected fund,id,weight" },
 		{ "fund,id,value\nMaple,QX1,\n",
-		  "f.csv:2:3: found '', expected a number (a market value)" },
+		  "f.csv:2:3: found '', expected a number (a market value such as 125000.00, \"1,250,000.00\" or (1,250.00))" },
 	};
 	struct holdings *h = (void *)1;
 	struct hc_error err;
