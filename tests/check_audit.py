@@ -108,6 +108,10 @@ def reference(held, raw, ids, x, a=None, p=P):
         "weighted_random_sd": np.sqrt(p * (hhi_in * vbar + (1 - hhi_in) * cbar)),
         "equal_weight_random_sd": np.sqrt(p * (vbar / len(inside) + (1 - 1 / len(inside)) * cbar)),
         "missing_weight": w.sum() - w[inside].sum(),
+        # coverage: the share of the (long-only, cash-free) weight in the universe
+        "covered_weight": w[inside].sum() / w.sum(),
+        # below 95% covered the verdict is "insufficient data" (no policy is set)
+        "verdict": "passed" if w[inside].sum() / w.sum() >= 0.95 else "insufficient data",
     }
 
 
@@ -115,10 +119,13 @@ def run(universe, holdings, *extra, paths="0"):
     out = subprocess.run([HOLDCOUNT, "audit", universe, "--holdings", holdings,
                           "--format", "csv", "--paths", paths, *extra],
                          capture_output=True, text=True)
-    if out.returncode != 0:
-        failures.append(f"exit status {out.returncode}: {out.stderr}")
+    rows = list(csv.DictReader(io.StringIO(out.stdout)))
+    # 8 (insufficient data) exactly when a fund's verdict says so
+    want = 8 if any(r["verdict"] == "insufficient data" for r in rows) else 0
+    if out.returncode != want or not rows:
+        failures.append(f"exit status {out.returncode}, expected {want}: {out.stderr}")
         return []
-    return list(csv.DictReader(io.StringIO(out.stdout)))
+    return rows
 
 
 def same(what, got, want):

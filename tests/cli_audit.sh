@@ -58,13 +58,22 @@ esac
 import json, sys
 doc = json.load(open(sys.argv[1]))
 funds, screens = doc["funds"], doc["screens"]
-# five parts per fund: two UCITS, one 1940 Act, two s. 851(b)(3)
-assert len(funds) == 2 and len(screens) == 10, (len(funds), len(screens))
+# nine parts per fund: four UCITS (issuer, 5/40, government issuer, group),
+# the 1940 Act basket under both readings, the s. 851(b)(3) basket under
+# both readings and its 25% issuer limit
+assert len(funds) == 2 and len(screens) == 18, (len(funds), len(screens))
 assert [f["fund"] for f in funds] == ["Wren", "Lark"], funds
 lark = [s for s in screens if s["fund"] == "Lark" and s["screen"] == "ucits"]
 assert lark[0]["passed"] is False and abs(lark[0]["figure"] - 0.6) < 1e-15, lark
 assert lark[0]["required"] is True
 assert funds[1]["failed_rules"] == "ucits" and funds[1]["passed"] is False, funds[1]
+# the failures: an array of objects naming the check, its figure and limit
+# (Wren's four 25% positions break the same two UCITS parts as Lark's 60/40)
+assert doc["failures"] == [{"fund": f, "check": c, "figure": x, "test": "<=", "limit": l}
+                           for f, big in (("Wren", 0.25), ("Lark", 0.6))
+                           for c, x, l in (("ucits: largest issuer", big, 0.1),
+                                           ("ucits: issuers above 5% together", 1.0, 0.4))], doc["failures"]
+assert [f["verdict"] for f in funds] == ["failed", "failed"], funds
 assert any("compliance counsel" in c for c in doc["cautions"])
 EOF
 
@@ -88,7 +97,7 @@ import csv, json, sys
 doc = json.load(open(sys.argv[1]))
 
 def value(text, want):
-    if text == "":
+    if text == "" or want is None:   # a cell with no value: empty, or its reason in words
         return None
     if isinstance(want, bool):
         return text == "true"
@@ -141,7 +150,16 @@ expect 3 "holdcount audit: $T/zero.csv:2:3: fund 'Wren' holds nothing: all its 2
 printf 'fund,id,weight\nWren,QA1,0.5\nWren,QZ9,0.5\n' >"$T/unknown.csv"
 expect 3 "holdcount audit: $T/unknown.csv:3:2: id 'QZ9' of fund 'Wren' is not in the universe '$T/u.csv'" -- \
 	audit "$T/u.csv" --holdings "$T/unknown.csv" --strict
-expect 0 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0   # without --strict: risk on the rest
+# without --strict: risk on the rest, but on 50% of the weight the verdict is
+# "insufficient data", exit 8 (HC_EINSUFFICIENT), unless --min-covered-weight allows it
+expect 8 "holdcount audit: warning: 1 id of 'Wren' is not in the universe (carrying 50% of its weight); its risk figures use the rest" -- \
+	audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0
+grep -qxF "holdcount audit: 1 of 1 fund has insufficient data (risk figures on less than 95% of the invested weight): 'Wren' (50% covered, 1 of 2 holdings)" "$T/err" \
+	|| { echo "FAIL: insufficient-data message: $(cat "$T/err")"; fails=$((fails + 1)); }
+expect 0 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-covered-weight 50%
+expect 8 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-covered-weight 50.01%
+# a policy failure outranks insufficient data: exit 1
+expect 1 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-holdings 3
 # ids missing from the universe: one warning line per such fund on stderr,
 # in every format (a script reading the CSV or JSON hears it too), and
 # under --quiet too: --quiet silences progress, not warnings (as the
@@ -152,11 +170,12 @@ cat >"$T/gone.want" <<'EOF'
 holdcount audit: warning: 2 ids of 'Wren' are not in the universe (carrying 50% of its weight); its risk figures use the rest
 holdcount audit: warning: the only id of 'Fern' is not in the universe; it has no risk figures
 holdcount audit: warning: 1 id of 'Oak' is not in the universe (carrying 10% of its weight); its risk figures use the rest
+holdcount audit: 3 of 4 funds have insufficient data (risk figures on less than 95% of the invested weight): 'Wren' (50% covered, 1 of 3 holdings), 'Fern' (0% covered, 0 of 1 holdings), 'Oak' (90% covered, 1 of 2 holdings)
 EOF
 for fmt in table csv json; do
 	"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/gone.csv" --paths 0 --format $fmt >"$T/out" 2>"$T/err"
 	rc=$?
-	[ $rc -eq 0 ] || { echo "FAIL: missing ids, --format $fmt: exit $rc"; fails=$((fails + 1)); }
+	[ $rc -eq 8 ] || { echo "FAIL: missing ids, --format $fmt: exit $rc"; fails=$((fails + 1)); }
 	cmp -s "$T/err" "$T/gone.want" || { echo "FAIL: missing ids, --format $fmt: stderr"; cat "$T/err"; fails=$((fails + 1)); }
 	"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/gone.csv" --paths 0 --format $fmt -q >"$T/out" 2>"$T/err"
 	cmp -s "$T/err" "$T/gone.want" || { echo "FAIL: missing ids, --format $fmt -q: stderr"; cat "$T/err"; fails=$((fails + 1)); }

@@ -58,6 +58,8 @@ value() {
 	holding-id-column) echo id ;; weight-column) echo weight ;; market-value-column) echo weight ;;
 	issuer-column) echo id ;;     min-holdings) echo 2 ;;      min-effective) echo 1.5 ;;
 	max-weight) echo 60% ;;       max-sector-weight) echo 80% ;; screens) echo ucits ;;
+	holdings-encoding) echo latin-1 ;; type-column) echo id ;; group-column) echo id ;;
+	min-covered-weight) echo 50% ;; benchmark) echo "$T/h.csv" ;;
 	rules) echo exact ;;          near-floor) echo 5% ;;       marginal) echo 0.10pp ;;
 	band) echo 95%:10% ;;         premium) echo 4% ;;          holding-cost) echo 0.1% ;;
 	te-budget) echo 3% ;;         shortfall) echo 1%:10% ;;    bootstrap) echo 40 ;;

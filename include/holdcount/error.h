@@ -29,7 +29,9 @@ enum hc_status {
 	HC_EIO = 4,       /* a file could not be read, written or renamed */
 	HC_ENOMEM = 5,    /* out of memory, or input larger than the memory budget */
 	HC_EINTERNAL = 6, /* a numerical library failed or an invariant broke */
-	HC_EINTERRUPT = 7 /* stopped by a signal before finishing */
+	HC_EINTERRUPT = 7, /* stopped by a signal before finishing */
+	HC_EINSUFFICIENT = 8 /* computed fine, but a fund's risk rests on too little
+	                      * of its weight for a verdict (audit) */
 };
 
 #define HC_ERROR_MESSAGE_MAX 1024

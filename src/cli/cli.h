@@ -80,8 +80,9 @@
  * Values land in these C types: CLI_FLAG int (set to 1), CLI_STRING
  * const char * (points into argv), CLI_COUNT size_t, CLI_REAL double,
  * CLI_FRACTION double ("10%" or "0.10" both give 0.10), CLI_CHOICE int
- * (index into the option's choices), CLI_U64 uint64_t.  A repeated option:
- * the last one wins.  cli_given() says whether an option was on the line.
+ * (index into the option's choices), CLI_U64 uint64_t, CLI_LIST struct
+ * cli_list (every value, in order, up to CLI_LIST_MAX).  A repeated option
+ * of another kind: the last one wins.  cli_given() says whether an option was on the line.
  *
  * Files: a CLI_STRING option named "output" or "...-output" names a file
  * (metavar FILE) or folder (metavar DIR) the command writes; any other
@@ -108,7 +109,18 @@ enum cli_kind {
 	CLI_REAL = 3,
 	CLI_FRACTION = 4,
 	CLI_CHOICE = 5,
-	CLI_U64 = 6
+	CLI_U64 = 6,
+	CLI_LIST = 7
+};
+
+/* A repeatable string option's values (pointing into argv); last is the
+ * last one given (NULL when none), so code reading the option as one
+ * string sees the last, as for CLI_STRING. */
+#define CLI_LIST_MAX 32
+struct cli_list {
+	const char *last;
+	size_t n;
+	const char *v[CLI_LIST_MAX];
 };
 
 struct cli_option {
@@ -489,7 +501,12 @@ int cli_rolling_context(struct report *r, const struct rolling_result *res);
 /* The holdings inputs of `audit` (cmd_audit.c): --holdings, --sectors,
  * --allow-short, --strict and the column names. */
 struct cli_holdings {
-	const char *holdings;
+	struct cli_list holdings;  /* --holdings, repeatable: every file is read */
+	const char *benchmark;
+	const char *encoding;
+	const char *type_column, *group_column;
+	int cash_risk;             /* enum audit_cash_risk */
+	double min_covered_weight;
 	const char *sectors;
 	int allow_short;
 	int strict;
@@ -505,6 +522,7 @@ struct cli_policy {
 	double max_weight;
 	double max_sector_weight;
 	const char *screens;
+	int reading;               /* enum audit_reading: --basket-reading */
 };
 extern const struct cli_group cli_group_policy;
 
@@ -523,6 +541,10 @@ int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct 
 		   struct audit_result **res, struct report **out);
 /* "holdcount CMD: 2 of 3 funds fail the policy: 'A' (max-weight), ..." on stderr. */
 void cli_audit_say_failures(const char *cmd, const struct audit_result *res);
+/* The audit's exit status: HC_EPOLICY (naming the failures on stderr) when
+ * a fund fails the policy, else HC_EINSUFFICIENT (naming the funds and their
+ * covered weight) when a fund has insufficient data, else HC_OK. */
+int cli_audit_status(const char *cmd, const struct audit_result *res);
 
 /* ---- stratified draws (cli_strata.c) -------------------------------------- */
 

@@ -3,8 +3,9 @@
  * concentration against the universe and a policy.
  *
  * Exit status: 0 when every fund passes every rule asked for, 1 (HC_EPOLICY)
- * when any fails, 2 for usage errors and 3 for data errors, so a nightly
- * script can gate on it.
+ * when any fails, 8 (HC_EINSUFFICIENT) when none fails but a fund's risk
+ * rests on less than --min-covered-weight of it, 2 for usage errors and 3
+ * for data errors, so a nightly script can gate on it.
  */
 #include <limits.h>
 #include <math.h>
@@ -30,10 +31,28 @@ struct audit_opts {
 };
 
 /* Both groups are shared with `holdcount report` (cli.h). */
+static const char *const cash_risk_words[] = { "exclude", "zero", NULL };
+static const char *const reading_words[] = { "excluded", "capped", NULL };
 #define HO(f) offsetof(struct cli_holdings, f)
 static const struct cli_option holdings_own[] = {
-	{ "holdings", 0, CLI_STRING, HO(holdings), "FILE",
-	  "holdings CSV: fund,id,weight or fund,id,value, optionally issuer", NULL, NULL },
+	{ "holdings", 0, CLI_LIST, HO(holdings), "FILE",
+	  "holdings CSV: fund,id,weight or fund,id,value, optionally issuer, type and group; repeat for several "
+	  "files (a fund in two files is an error)", NULL, NULL },
+	{ "holdings-encoding", 0, CLI_STRING, HO(encoding), "NAME",
+	  "the holdings files' text encoding: utf-8 (checked), latin-1 or windows-1252 (transcoded)", NULL, "utf-8" },
+	{ "type-column", 0, CLI_STRING, HO(type_column), "NAME",
+	  "holdings column with the asset type: security, cash, government security, investment-company share, other",
+	  NULL, "type, when present" },
+	{ "group-column", 0, CLI_STRING, HO(group_column), "NAME",
+	  "holdings column naming the issuer's group of companies (UCITS 20% group limit)", NULL, "group, when present" },
+	{ "cash-risk", 0, CLI_CHOICE, HO(cash_risk), NULL,
+	  "cash in the risk figures: exclude (risk of the invested assets, renormalised) or zero (risk of net "
+	  "assets, cash at zero variance)", cash_risk_words, "exclude" },
+	{ "min-covered-weight", 0, CLI_FRACTION, HO(min_covered_weight), "W",
+	  "a fund whose risk figures rest on less than W of its invested weight gets the verdict 'insufficient "
+	  "data' (exit 8); 0 turns the verdict off", NULL, "95%" },
+	{ "benchmark", 0, CLI_STRING, HO(benchmark), "FILE",
+	  "benchmark weights CSV id,weight (or id,value): each fund's active share against it", NULL, NULL },
 	{ "sectors", 0, CLI_STRING, HO(sectors), "FILE",
 	  "sector map CSV id,label: sector weights, sector HHI, --max-sector-weight", NULL, NULL },
 	{ "allow-short", 0, CLI_FLAG, HO(allow_short), NULL,
@@ -66,19 +85,24 @@ static const struct cli_option policy_own[] = {
 	  "policy: no sector above W (needs --sectors)", NULL, "no rule" },
 	{ "screens", 0, CLI_STRING, PO(screens), "LIST",
 	  "policy: weight screens each fund must pass: ucits, 1940act, ric, all or none", NULL, "none" },
+	{ "basket-reading", 0, CLI_CHOICE, PO(reading), NULL,
+	  "the reading of the 1940 Act and s. 851(b)(3) 5% baskets that decides: excluded (an issuer above 5% "
+	  "is left out) or capped (counted up to 5%); the other is shown beside it", reading_words, "excluded" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 const struct cli_group cli_group_policy = { "policy options", policy_own };
 
 /* The tables of hc_audit_report that --table chooses for the CSV, by key. */
-enum audit_table { AUDIT_TABLE_FUNDS = 0, AUDIT_TABLE_SCREENS = 1, AUDIT_TABLE_SECTORS = 2 };
-static const char *const table_words[] = { "funds", "screens", "sectors", NULL };
+enum audit_table { AUDIT_TABLE_FUNDS = 0, AUDIT_TABLE_SCREENS = 1, AUDIT_TABLE_SECTORS = 2,
+		   AUDIT_TABLE_FAILURES = 3 };
+static const char *const table_words[] = { "funds", "screens", "sectors", "failures", NULL };
 
 #define AO(f) offsetof(struct audit_opts, f)
 static const struct cli_option audit_own[] = {
 	{ "table", 0, CLI_CHOICE, AO(table), NULL,
 	  "with --format csv, the table to print: funds (one row per fund), screens (each screen's parts "
-	  "with their deciding figures) or sectors (each fund's sector weights; needs --sectors)",
+	  "with their deciding figures), sectors (each fund's sector weights; needs --sectors) or failures "
+	  "(each failed rule with its figure and limit)",
 	  table_words, "funds" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
@@ -114,8 +138,10 @@ const struct cli_command cli_command_audit = {
 	"Investment Company Act of 1940 s. 5(b)(1), Internal Revenue Code s. 851(b)(3)), written from "
 	"memory of the texts. With --covariance the risk figures come from a covariance matrix (w'Aw), "
 	"and with --missing pairwise from the pairwise-complete covariances. With --format csv it prints "
-	"one table, the funds unless --table chooses the screens or the sector weights. Exit status 0 "
-	"when every fund passes the rules asked for, 1 when any fails, 2 for usage and 3 for data errors.",
+	"one table, the funds unless --table chooses the screens, the sector weights or the failures. Exit "
+	"status 0 when every fund passes the rules asked for, 1 when any fails, 8 when none fails but a "
+	"fund's risk rests on less than --min-covered-weight of its invested weight (insufficient data), 2 "
+	"for usage and 3 for data errors.",
 	1, 1, audit_groups
 };
 
@@ -133,7 +159,13 @@ static int audit_options_from(const char *cmd, const struct cli_holdings *ho, co
 		return cli_usage_error(cmd, "--max-weight and --max-sector-weight must be between 0 and 1 (or 100%%)");
 	if (ho->weight_column && ho->market_value_column)
 		return cli_usage_error(cmd, "--weight-column and --market-value-column exclude each other");
+	if (!(ho->min_covered_weight >= 0 && ho->min_covered_weight <= 1))
+		return cli_usage_error(cmd, "--min-covered-weight must be between 0 and 1 (or 100%%), found %g",
+				       ho->min_covered_weight);
 	hc_audit_options_init(ao);
+	ao->reading = po->reading;
+	ao->cash_risk = ho->cash_risk;
+	ao->min_covered_weight = ho->min_covered_weight;
 	hc_error_clear(&err);
 	if (po->screens && hc_audit_parse_screens(po->screens, &ao->policy.screens, &err) != HC_OK)
 		return cli_usage_error(cmd, "--screens: %s", err.message);
@@ -148,27 +180,55 @@ static int audit_options_from(const char *cmd, const struct cli_holdings *ho, co
 	return HC_OK;
 }
 
+static void holdings_options_from(const struct cli_holdings *o, int encoding, struct holdings_options *ho)
+{
+	hc_holdings_options_init(ho);
+	ho->fund_column = o->fund_column;
+	ho->id_column = o->holding_id_column;
+	ho->weight_column = o->weight_column;
+	ho->value_column = o->market_value_column;
+	ho->issuer_column = o->issuer_column;
+	ho->type_column = o->type_column;
+	ho->group_column = o->group_column;
+	ho->encoding = encoding;
+	ho->allow_short = o->allow_short;
+}
+
+/* Every --holdings file, merged (a fund in two files is an error), and the
+ * benchmark into *bench when asked. */
 static int load_inputs(const char *cmd, const struct cli_holdings *o, struct holdings **h,
-		       struct holdings_labels **l)
+		       struct holdings_labels **l, struct holdings **bench)
 {
 	struct holdings_options ho;
+	struct holdings *more = NULL;
 	struct hc_error err;
+	int encoding = HOLDINGS_UTF8;
 	size_t k;
 
-	hc_holdings_options_init(&ho);
-	ho.fund_column = o->fund_column;
-	ho.id_column = o->holding_id_column;
-	ho.weight_column = o->weight_column;
-	ho.value_column = o->market_value_column;
-	ho.issuer_column = o->issuer_column;
-	ho.allow_short = o->allow_short;
+	if (o->encoding && hc_holdings_parse_encoding(o->encoding, &encoding) != 0)
+		return cli_usage_error(cmd, "--holdings-encoding expects utf-8, latin-1 or windows-1252, found '%s'",
+				       o->encoding);
+	holdings_options_from(o, encoding, &ho);
 	hc_error_clear(&err);
-	if (hc_holdings_load(h, o->holdings, &ho, &err) != HC_OK)
-		return cli_fail(cmd, &err);
+	for (k = 0; k < o->holdings.n; k++) {
+		if (hc_holdings_load(k ? &more : h, o->holdings.v[k], &ho, &err) != HC_OK ||
+		    (k && hc_holdings_merge(*h, &more, &err) != HC_OK)) {
+			hc_holdings_free(more);
+			return cli_fail(cmd, &err);
+		}
+	}
 	for (k = 0; k < (*h)->nwarnings; k++)
 		fprintf(stderr, "holdcount %s: warning: %s\n", cmd, (*h)->warnings[k]);
 	if (o->sectors && hc_holdings_labels_load(l, o->sectors, 0, &err) != HC_OK)
 		return cli_fail(cmd, &err);
+	if (o->benchmark) {
+		holdings_options_from(o, encoding, &ho);
+		ho.fund_column = NULL;
+		ho.single_fund = "benchmark";
+		ho.allow_short = 0;
+		if (hc_holdings_load(bench, o->benchmark, &ho, &err) != HC_OK)
+			return cli_fail(cmd, &err);
+	}
 	return HC_OK;
 }
 
@@ -209,12 +269,16 @@ static int audit_data(const char *cmd, const struct cli_holdings *ho, const stru
 	struct audit_options ao;
 	struct cli_progress prog;
 	struct hc_error err;
+	struct holdings *bench = NULL;
 	int rc;
 
 	if ((rc = audit_options_from(cmd, ho, po, sam, &ao)) != HC_OK ||
-	    (rc = load_inputs(cmd, ho, h, labels)) != HC_OK)
+	    (rc = load_inputs(cmd, ho, h, labels, &bench)) != HC_OK) {
+		hc_holdings_free(bench);
 		return rc;
+	}
 	ao.sectors = *labels;
+	ao.benchmark = bench ? &bench->funds[0] : NULL;
 	hc_error_clear(&err);
 	cli_progress_init(&prog, "sampling the funds' counts", "paths", quiet);
 	ao.progress = cli_progress_update;
@@ -225,6 +289,7 @@ static int audit_data(const char *cmd, const struct cli_holdings *ho, const stru
 		say_missing(cmd, *res);
 		rc = hc_audit_report(out, *res, *h, &err);
 	}
+	hc_holdings_free(bench);
 	return rc ? cli_fail(cmd, &err) : HC_OK;
 }
 
@@ -258,6 +323,32 @@ void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 		fputc(')', stderr);
 	}
 	fputc('\n', stderr);
+}
+
+int cli_audit_status(const char *cmd, const struct audit_result *res)
+{
+	size_t f;
+	const char *sep = " ";
+
+	if (res->failed_funds) {
+		cli_audit_say_failures(cmd, res);
+		return HC_EPOLICY;
+	}
+	if (!res->insufficient_funds)
+		return HC_OK;
+	fprintf(stderr, "holdcount %s: %zu of %zu fund%s ha%s insufficient data (risk figures on less than %g%% of "
+		"the invested weight):", cmd, res->insufficient_funds, res->nfunds, res->nfunds == 1 ? "" : "s",
+		res->insufficient_funds == 1 ? "s" : "ve", 100 * res->min_covered_weight);
+	for (f = 0; f < res->nfunds; f++) {
+		const struct audit_fund *af = &res->funds[f];
+		if (af->verdict != AUDIT_VERDICT_INSUFFICIENT)
+			continue;
+		fprintf(stderr, "%s'%s' (%.4g%% covered, %zu of %zu holdings)", sep, af->name,
+			isnan(af->covered_weight) ? 0.0 : 100 * af->covered_weight, af->risk_holdings, af->holdings);
+		sep = ", ";
+	}
+	fputc('\n', stderr);
+	return HC_EINSUFFICIENT;
 }
 
 /* --covariance: the matrix and its averages; figures on its own scale
@@ -341,12 +432,13 @@ int cmd_audit(int argc, char **argv)
 	cli_sampling_init(&o.sam);
 	cli_universe_init(&o.uni);
 	cli_output_init(&o.out);
+	o.hold.min_covered_weight = AUDIT_DEFAULT_MIN_COVERED_WEIGHT;
 	rc = cli_parse(&cli_command_audit, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
 	hc_error_clear(&err);
 	cli_psd_init(&ps, 0, 1, 0, "");
-	if (!o.hold.holdings)
+	if (!o.hold.holdings.n)
 		rc = cli_usage_error("audit", "--holdings FILE is required (see 'holdcount audit --help')");
 	else if (cli_given(&a, "table") && o.out.format != CLI_FORMAT_CSV)
 		rc = cli_usage_error("audit", "--table chooses the table of --format csv; the text and JSON outputs "
@@ -381,10 +473,7 @@ int cmd_audit(int argc, char **argv)
 					  : cli_write_csv_part("audit", &o.out, r, table_words[o.table]);
 	if (rc != HC_OK)
 		goto cleanup;
-	if (res->failed_funds) {
-		cli_audit_say_failures("audit", res);
-		rc = HC_EPOLICY;
-	}
+	rc = cli_audit_status("audit", res);
 cleanup:
 	hc_report_free(r);
 	hc_audit_result_free(res);

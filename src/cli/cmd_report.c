@@ -320,7 +320,7 @@ static int compute(struct run *r)
 	stage(r->o, "exact rules");
 	rc = cli_enough_data("report", &r->o->rul, &r->o->sam, &r->strat, r->o->quiet, 1, r->u, &r->mo, &r->cfg,
 			     r->rules, &r->nrules, &r->rep_enough);
-	if (rc == HC_OK && r->hold.holdings) {
+	if (rc == HC_OK && r->hold.holdings.n) {
 		stage(r->o, "audit of the funds");
 		rc = cli_audit_data("report", &r->hold, &r->o->pol, &r->o->sam, r->o->quiet, r->u, &r->mo, &r->h,
 				    &r->labels, &r->audit, &r->rep_audit);
@@ -770,7 +770,7 @@ static void md_audit(FILE *fp, const struct run *r)
 		fputs("No holdings were given (`--holdings FILE` audits funds).\n\n", fp);
 		return;
 	}
-	fprintf(fp, "From `%s`, against the universe above.\n\n", r->hold.holdings);
+	fprintf(fp, "From `%s`, against the universe above.\n\n", r->h ? r->h->source : r->hold.holdings.last);
 	md_field(fp, r->rep_audit, "policy", "policy");
 	md_field(fp, r->rep_audit, "failed_funds", "funds failing it");
 	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
@@ -1040,7 +1040,8 @@ static int demo_path(char *buf, size_t size, const char *file)
 static const char *const audit_only_options[] = {
 	"sectors", "allow-short", "strict", "fund-column", "holding-id-column", "weight-column",
 	"market-value-column", "issuer-column", "min-holdings", "min-effective", "max-weight",
-	"max-sector-weight", "screens", NULL
+	"max-sector-weight", "screens", "benchmark", "holdings-encoding", "type-column", "group-column",
+	"basket-reading", "cash-risk", "min-covered-weight", NULL
 };
 
 static int check_options(const struct report_opts *o, const struct cli_args *a, const struct run *r)
@@ -1053,7 +1054,7 @@ static int check_options(const struct report_opts *o, const struct cli_args *a, 
 		return cli_usage_error("report", "--step applies to the rolling windows, which --window 0 leaves out");
 	if (cli_given(a, "step") && !o->step)
 		return cli_usage_error("report", "--step must be at least 1 period");
-	for (k = 0; !r->hold.holdings && audit_only_options[k]; k++)
+	for (k = 0; !r->hold.holdings.n && audit_only_options[k]; k++)
 		if (cli_given(a, audit_only_options[k]))
 			return cli_usage_error("report", "--%s applies to the audit of funds: give --holdings FILE",
 					       audit_only_options[k]);
@@ -1099,8 +1100,10 @@ static int choose_inputs(struct run *r, const struct cli_args *a)
 		return cli_usage_error("report", "no UNIVERSE given and the demo universe '%s' cannot be read",
 				       demo_universe);
 	r->universe_path = demo_universe;
-	if (!r->hold.holdings && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv"))
-		r->hold.holdings = demo_funds;
+	if (!r->hold.holdings.n && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv")) {
+		r->hold.holdings.v[r->hold.holdings.n++] = demo_funds;
+		r->hold.holdings.last = demo_funds;
+	}
 	if (!r->hold.sectors && demo_path(demo_sectors, sizeof demo_sectors, "demo-sectors.csv"))
 		r->hold.sectors = demo_sectors;
 	return HC_OK;
@@ -1120,6 +1123,7 @@ int cmd_report(int argc, char **argv)
 	memset(&o, 0, sizeof o);
 	cli_rules_init(&o.rul);
 	cli_sampling_init(&o.sam);
+	o.hold.min_covered_weight = AUDIT_DEFAULT_MIN_COVERED_WEIGHT;
 	cli_universe_init(&o.uni);
 	rc = cli_parse(&cli_command_report, argc, argv, &o, &a);
 	if (rc != HC_OK)
@@ -1161,9 +1165,8 @@ int cmd_report(int argc, char **argv)
 	}
 	if (stage_enabled(&o))
 		fprintf(stderr, "holdcount report: wrote '%s' (start with summary.md)\n", o.output);
-	if (r.audit && r.audit->failed_funds) {
-		cli_audit_say_failures("report", r.audit);
-		rc = HC_EPOLICY;
+	if (r.audit && (r.audit->failed_funds || r.audit->insufficient_funds)) {
+		rc = cli_audit_status("report", r.audit);
 	}
 cleanup:
 	hc_reportdir_free(rd);
