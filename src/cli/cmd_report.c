@@ -760,8 +760,9 @@ static void md_audit(FILE *fp, const struct run *r)
 		{ "fund", "fund" }, { "holdings", "holdings" }, { "effective_holdings", "effective (1/HHI)" },
 		{ "max_weight", "largest weight" }, { "top10_share", "top 10" }, { "sd", "sd a year" },
 		{ "equivalent_count", "equivalent count" }, { "sd_percentile", "sd percentile" },
+		{ "risk_holdings", "holdings its risk uses" }, { "covered_weight", "covered weight" },
 		{ "ucits", "UCITS" }, { "1940act", "1940 Act" }, { "ric", "RIC" },
-		{ "passed", "passes policy" }, { "failed_rules", "fails" },
+		{ "passed", "passes policy" }, { "failed_rules", "fails" }, { "verdict", "verdict" },
 	};
 	const struct report_table *t = table_of(r->rep_audit, "funds");
 
@@ -773,6 +774,14 @@ static void md_audit(FILE *fp, const struct run *r)
 	fprintf(fp, "From `%s`, against the universe above.\n\n", r->h ? r->h->source : r->hold.holdings.last);
 	md_field(fp, r->rep_audit, "policy", "policy");
 	md_field(fp, r->rep_audit, "failed_funds", "funds failing it");
+	md_field(fp, r->rep_audit, "insufficient_funds", "funds with insufficient data");
+	md_field(fp, r->rep_audit, "min_covered_weight", "least covered weight for a verdict");
+	md_field(fp, r->rep_audit, "basket_reading", "5% basket reading deciding");
+	fputs("\nThe covered weight is the share of a fund's invested weight (cash left out) whose history "
+	      "is usable: its sd, equivalent count and percentile rest on that share alone, over the holdings "
+	      "its risk uses; below the least covered weight the verdict is \"insufficient data\" (exit 8) "
+	      "unless the fund fails the policy. Statute figures are from memory of the text; verify with "
+	      "counsel.\n", fp);
 	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
 	      "equivalent count is the number of random equal-weight holdings with the fund's own sd (\"below "
 	      "the floor\" when no count of them is that low); the sd percentile places the fund's sd among "
