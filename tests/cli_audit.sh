@@ -238,6 +238,81 @@ assert len(top) == 4 and top[0] == "LIR106" and min(top) == "LIR046", top
 assert focus["max_weight_id"] == "LIR046" and focus["max_issuer"] == "LIR046", focus
 EOF
 
+# ---- the nightly exit statuses (include/holdcount/error.h, docs/audit.md):
+# 0 pass, 1 policy failure, 8 insufficient data, 2 usage, 3 data, 4 i/o,
+# 5 memory (7, interrupted, is tests/cli_signals.sh's)
+printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.5\n' >"$T/n-pass.csv"
+printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.46\nWren,ZZ1,0.04\n' >"$T/n-thin.csv"
+expect 0 "" -- audit "$T/u.csv" --holdings "$T/n-pass.csv" --paths 0 --min-holdings 2
+expect 1 "holdcount audit: 1 of 1 fund fails the policy: 'Wren' (min-holdings)" -- audit "$T/u.csv" --holdings "$T/n-pass.csv" --paths 0 --min-holdings 3
+expect 0 "" -- audit "$T/u.csv" --holdings "$T/n-thin.csv" --paths 0            # 96% covered
+expect 8 "" -- audit "$T/u.csv" --holdings "$T/n-thin.csv" --paths 0 --min-covered-weight 97%
+expect 2 "holdcount audit: --min-covered-weight must be between 0 and 1" -- audit "$T/u.csv" --holdings "$T/n-pass.csv" --min-covered-weight 150%
+expect 2 "holdcount audit: --holdings-encoding expects utf-8, latin-1 or windows-1252, found 'ebcdic'" -- \
+	audit "$T/u.csv" --holdings "$T/n-pass.csv" --holdings-encoding ebcdic
+expect 3 "" -- audit "$T/u.csv" --holdings "$T/nan.csv"
+expect 4 "" -- audit "$T/u.csv" --holdings "$T/none.csv"
+"${PYTHON:-/usr/bin/python3}" -c '
+import random, sys
+random.seed(7)
+ids = ["QB%03d" % i for i in range(400)]
+with open(sys.argv[1], "w") as f:
+    f.write("date," + ",".join(ids) + "\n")
+    for t in range(400):
+        f.write("%04d-%02d," % (1980 + t // 12, t % 12 + 1) + ",".join("%.4f" % random.uniform(-0.05, 0.05) for _ in ids) + "\n")
+' "$T/big.csv"
+expect 5 "" -- audit "$T/big.csv" --holdings "$T/n-pass.csv" --max-memory 1
+
+# several --holdings files: all are read; a fund in two files is an error
+# naming both; a Windows-1252 name (0x80, the euro sign) refused with file,
+# line and column without --holdings-encoding, transcoded with it
+printf 'fund,id,weight\nLark,QA5,0.6\nLark,QA6,0.4\n' >"$T/two.csv"
+printf 'fund,id,weight\nSedge \x80 Fund,QA3,1\n' >"$T/cp1252.csv"
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/n-pass.csv" --holdings "$T/two.csv" --paths 0 --format csv -q >"$T/two-out.csv" 2>"$T/err" \
+	|| { echo "FAIL: two holdings files: exit $?"; fails=$((fails + 1)); }
+[ "$(cut -d, -f1 "$T/two-out.csv" | tr '\n' ' ')" = "fund Wren Lark " ] || { echo "FAIL: two holdings files: $(cat "$T/two-out.csv")"; fails=$((fails + 1)); }
+expect 3 "holdcount audit: $T/ok.csv:6: fund 'Lark' is also in '$T/two.csv' (line 2), expected each fund in one holdings file" -- \
+	audit "$T/u.csv" --holdings "$T/two.csv" --holdings "$T/ok.csv"
+expect 3 "holdcount audit: $T/cp1252.csv:2:1: found byte 0x80 at byte 7 of the cell, which is not UTF-8" -- \
+	audit "$T/u.csv" --holdings "$T/cp1252.csv"
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/cp1252.csv" --holdings-encoding windows-1252 --paths 0 --format json -q >"$T/cp1252.json" 2>"$T/err" \
+	|| { echo "FAIL: windows-1252: exit $?"; fails=$((fails + 1)); }
+"${PYTHON:-/usr/bin/python3}" -c '
+import json, sys
+doc = json.loads(open(sys.argv[1], "rb").read().decode("utf-8"))
+assert doc["funds"][0]["fund"] == "Sedge \u20ac Fund", doc["funds"][0]["fund"]
+' "$T/cp1252.json" || fails=$((fails + 1))
+# cash, a government security and a short in one file: the text table says
+# each figure's basis
+printf 'fund,id,value,type\nReed,CASH,"10,000.00",cash\nReed,QA1,"60,000.00",\nReed,QA2,"(5,000.00)",\nReed,QA3,"35,000.00",government security\n' >"$T/kinds.csv"
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/kinds.csv" --allow-short --paths 0 --format json -q >"$T/kinds.json" 2>"$T/err" \
+	|| { echo "FAIL: kinds: exit $?"; fails=$((fails + 1)); }
+"${PYTHON:-/usr/bin/python3}" -c '
+import json, sys
+f = json.load(open(sys.argv[1]))["funds"][0]
+# by hand: net assets 100,000; cash 10%, QA1 60%, QA2 -5%, QA3 35% (government)
+want = {"holdings": 3, "cash_weight": 0.1, "government_weight": 0.35, "gross_exposure": 1.0,
+        "net_exposure": 0.9, "short_exposure": 0.05, "max_weight": 0.6,
+        "hhi": 0.6 ** 2 + 0.05 ** 2 + 0.35 ** 2, "basket_1940act_excluded": 0.1 + 0.35 + 0.05,
+        "basket_1940act_capped": 0.1 + 0.35 + 0.05 + 0.05}
+for k, v in want.items():
+    assert abs(f[k] - v) < 1e-15, (k, f[k], v)
+' "$T/kinds.json" || fails=$((fails + 1))
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/kinds.csv" --allow-short --paths 0 -q >"$T/kinds.txt" 2>"$T/err"
+for s in "largest (net assets)" "HHI (invested, gross)" "covered weight (invested, gross)" \
+	"statute figures are from memory of the text; verify with counsel" "s. 5(c)" "quarter end" "Art. 53"; do
+	grep -qF -- "$s" "$T/kinds.txt" || { echo "FAIL: the text table lacks '$s'"; fails=$((fails + 1)); }
+done
+
+# every JSON this test wrote parses (strict UTF-8, standard JSON: no NaN)
+"${PYTHON:-/usr/bin/python3}" -c '
+import glob, json, sys
+paths = sorted(glob.glob(sys.argv[1] + "/*.json"))
+assert len(paths) >= 5, paths
+for p in paths:
+    json.loads(open(p, "rb").read().decode("utf-8"), parse_constant=lambda c: (_ for _ in ()).throw(ValueError(c)))
+' "$T" || { echo "FAIL: a JSON output does not parse"; fails=$((fails + 1)); }
+
 if [ "$fails" -ne 0 ]; then
 	echo "$fails failure(s)"
 	exit 1
