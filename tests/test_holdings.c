@@ -230,13 +230,43 @@ static void made_holdings_none(void *ctx)
 	assert_null(((struct made *)ctx)->h);
 }
 
+/* The administrator's file: Latin-1 transcoded, types, groups, quoted
+ * amounts, a repeated id summed (one warning). */
+static int made_admin(void *ctx, struct hc_error *err)
+{
+	static const char text[] =
+		"fund,id,value,issuer,type,group\n"
+		"Fond\xe9,CASH,\"10,000.00\",,cash,\nFond\xe9,QX1,\"250,000.00\",I\xc9,security,G1\n"
+		"Fond\xe9,QX2,\"(1,000.00)\",I2,other,\nFond\xe9,QX1,\"5,000.00\",I\xc9,security,G1\n";
+	struct holdings_options opt;
+
+	hc_holdings_options_init(&opt);
+	opt.encoding = HOLDINGS_LATIN1;
+	opt.allow_short = 1;
+	hc_error_clear(err);
+	return hc_holdings_load_buffer(&((struct made *)ctx)->h, "f.csv", text, sizeof text - 1, &opt, err);
+}
+
+static void made_admin_release(void *ctx)
+{
+	struct holdings *h = ((struct made *)ctx)->h;
+
+	assert_int_equal(h->nwarnings, 1);
+	assert_int_equal(h->funds[0].n, 3);
+	hc_holdings_free(h);
+}
+
 static void test_holdings_allocation_failures(void **state)
 {
 	struct made w = { NULL, NULL };
 	struct heapcheck_call call = { made_holdings, made_holdings_release, made_holdings_none, &w };
+	struct heapcheck_call admin = { made_admin, made_admin_release, made_holdings_none, &w };
 
 	long k = heapcheck_sweep(&call);
 
+	assert_true(k > 5);
+	assert_true(k < 1000);
+	k = heapcheck_sweep(&admin);
 	assert_true(k > 5);
 	assert_true(k < 1000);
 }
