@@ -120,8 +120,8 @@ def run(universe, holdings, *extra, paths="0"):
                           "--format", "csv", "--paths", paths, *extra],
                          capture_output=True, text=True)
     rows = list(csv.DictReader(io.StringIO(out.stdout)))
-    # 8 (insufficient data) exactly when a fund's verdict says so
-    want = 8 if any(r["verdict"] == "insufficient data" for r in rows) else 0
+    # 10 (insufficient data) exactly when a fund's verdict says so
+    want = 10 if any(r["verdict"] == "insufficient data" for r in rows) else 0
     if out.returncode != want or not rows:
         failures.append(f"exit status {out.returncode}, expected {want}: {out.stderr}")
         return []

@@ -151,13 +151,13 @@ printf 'fund,id,weight\nWren,QA1,0.5\nWren,QZ9,0.5\n' >"$T/unknown.csv"
 expect 3 "holdcount audit: $T/unknown.csv:3:2: id 'QZ9' of fund 'Wren' is not in the universe '$T/u.csv'" -- \
 	audit "$T/u.csv" --holdings "$T/unknown.csv" --strict
 # without --strict: risk on the rest, but on 50% of the weight the verdict is
-# "insufficient data", exit 8 (HC_EINSUFFICIENT), unless --min-covered-weight allows it
-expect 8 "holdcount audit: warning: 1 id of 'Wren' is not in the universe (carrying 50% of its weight); its risk figures use the rest" -- \
+# "insufficient data", exit 10 (HC_EINSUFFICIENT), unless --min-covered-weight allows it
+expect 10 "holdcount audit: warning: 1 id of 'Wren' is not in the universe (carrying 50% of its weight); its risk figures use the rest" -- \
 	audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0
 grep -qxF "holdcount audit: 1 of 1 fund has insufficient data (risk figures on less than 95% of the invested weight): 'Wren' (50% covered, 1 of 2 holdings)" "$T/err" \
 	|| { echo "FAIL: insufficient-data message: $(cat "$T/err")"; fails=$((fails + 1)); }
 expect 0 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-covered-weight 50%
-expect 8 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-covered-weight 50.01%
+expect 10 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-covered-weight 50.01%
 # a policy failure outranks insufficient data: exit 1
 expect 1 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-holdings 3
 # ids missing from the universe: one warning line per such fund on stderr,
@@ -175,7 +175,7 @@ EOF
 for fmt in table csv json; do
 	"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/gone.csv" --paths 0 --format $fmt >"$T/out" 2>"$T/err"
 	rc=$?
-	[ $rc -eq 8 ] || { echo "FAIL: missing ids, --format $fmt: exit $rc"; fails=$((fails + 1)); }
+	[ $rc -eq 10 ] || { echo "FAIL: missing ids, --format $fmt: exit $rc"; fails=$((fails + 1)); }
 	cmp -s "$T/err" "$T/gone.want" || { echo "FAIL: missing ids, --format $fmt: stderr"; cat "$T/err"; fails=$((fails + 1)); }
 	"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/gone.csv" --paths 0 --format $fmt -q >"$T/out" 2>"$T/err"
 	cmp -s "$T/err" "$T/gone.want" || { echo "FAIL: missing ids, --format $fmt -q: stderr"; cat "$T/err"; fails=$((fails + 1)); }
@@ -239,14 +239,14 @@ assert focus["max_weight_id"] == "LIR046" and focus["max_issuer"] == "LIR046", f
 EOF
 
 # ---- the nightly exit statuses (include/holdcount/error.h, docs/audit.md):
-# 0 pass, 1 policy failure, 8 insufficient data, 2 usage, 3 data, 4 i/o,
+# 0 pass, 1 policy failure, 10 insufficient data, 2 usage, 3 data, 4 i/o,
 # 5 memory (7, interrupted, is tests/cli_signals.sh's)
 printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.5\n' >"$T/n-pass.csv"
 printf 'fund,id,weight\nWren,QA1,0.5\nWren,QA2,0.46\nWren,ZZ1,0.04\n' >"$T/n-thin.csv"
 expect 0 "" -- audit "$T/u.csv" --holdings "$T/n-pass.csv" --paths 0 --min-holdings 2
 expect 1 "holdcount audit: 1 of 1 fund fails the policy: 'Wren' (min-holdings)" -- audit "$T/u.csv" --holdings "$T/n-pass.csv" --paths 0 --min-holdings 3
 expect 0 "" -- audit "$T/u.csv" --holdings "$T/n-thin.csv" --paths 0            # 96% covered
-expect 8 "" -- audit "$T/u.csv" --holdings "$T/n-thin.csv" --paths 0 --min-covered-weight 97%
+expect 10 "" -- audit "$T/u.csv" --holdings "$T/n-thin.csv" --paths 0 --min-covered-weight 97%
 expect 2 "holdcount audit: --min-covered-weight must be between 0 and 1" -- audit "$T/u.csv" --holdings "$T/n-pass.csv" --min-covered-weight 150%
 expect 2 "holdcount audit: --holdings-encoding expects utf-8, latin-1 or windows-1252, found 'ebcdic'" -- \
 	audit "$T/u.csv" --holdings "$T/n-pass.csv" --holdings-encoding ebcdic

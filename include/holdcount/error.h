@@ -30,7 +30,7 @@ enum hc_status {
 	HC_ENOMEM = 5,    /* out of memory, or input larger than the memory budget */
 	HC_EINTERNAL = 6, /* a numerical library failed or an invariant broke */
 	HC_EINTERRUPT = 7, /* stopped by a signal before finishing */
-	HC_EINSUFFICIENT = 8 /* computed fine, but a fund's risk rests on too little
+	HC_EINSUFFICIENT = 10 /* computed fine, but a fund's risk rests on too little
 	                      * of its weight for a verdict (audit) */
 };
 

@@ -676,7 +676,7 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd)
 	}
 	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
 	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted,\n"
-	      "8 insufficient data (a fund's risk rests on too little of its weight).\n", fp);
+	      "10 insufficient data (a fund's risk rests on too little of its weight).\n", fp);
 }
 
 void cli_print_main_help(FILE *fp)
@@ -766,7 +766,7 @@ static void man_common_sections(FILE *fp)
 		{ "5", "out of memory, or the input exceeds the memory budget" },
 		{ "6", "a numerical library failed or an internal check broke" },
 		{ "7", "interrupted by a signal; partly written output is removed" },
-		{ "8", "insufficient data: no fund fails the policy, but a fund's risk figures rest on less than "
+		{ "10", "insufficient data: no fund fails the policy, but a fund's risk figures rest on less than "
 		       "its least covered weight (audit, report)" },
 	};
 	size_t i;

@@ -3,7 +3,7 @@
  * concentration against the universe and a policy.
  *
  * Exit status: 0 when every fund passes every rule asked for, 1 (HC_EPOLICY)
- * when any fails, 8 (HC_EINSUFFICIENT) when none fails but a fund's risk
+ * when any fails, 10 (HC_EINSUFFICIENT) when none fails but a fund's risk
  * rests on less than --min-covered-weight of it, 2 for usage errors and 3
  * for data errors, so a nightly script can gate on it.
  */
@@ -50,7 +50,7 @@ static const struct cli_option holdings_own[] = {
 	  "assets, cash at zero variance)", cash_risk_words, "exclude" },
 	{ "min-covered-weight", 0, CLI_FRACTION, HO(min_covered_weight), "W",
 	  "a fund whose risk figures rest on less than W of its invested weight gets the verdict 'insufficient "
-	  "data' (exit 8); 0 turns the verdict off", NULL, "95%" },
+	  "data' (exit 10); 0 turns the verdict off", NULL, "95%" },
 	{ "benchmark", 0, CLI_STRING, HO(benchmark), "FILE",
 	  "benchmark weights CSV id,weight (or id,value): each fund's active share against it", NULL, NULL },
 	{ "sectors", 0, CLI_STRING, HO(sectors), "FILE",
@@ -139,7 +139,7 @@ const struct cli_command cli_command_audit = {
 	"memory of the texts. With --covariance the risk figures come from a covariance matrix (w'Aw), "
 	"and with --missing pairwise from the pairwise-complete covariances. With --format csv it prints "
 	"one table, the funds unless --table chooses the screens, the sector weights or the failures. Exit "
-	"status 0 when every fund passes the rules asked for, 1 when any fails, 8 when none fails but a "
+	"status 0 when every fund passes the rules asked for, 1 when any fails, 10 when none fails but a "
 	"fund's risk rests on less than --min-covered-weight of its invested weight (insufficient data), 2 "
 	"for usage and 3 for data errors.",
 	1, 1, audit_groups

@@ -779,7 +779,7 @@ static void md_audit(FILE *fp, const struct run *r)
 	md_field(fp, r->rep_audit, "basket_reading", "5% basket reading deciding");
 	fputs("\nThe covered weight is the share of a fund's invested weight (cash left out) whose history "
 	      "is usable: its sd, equivalent count and percentile rest on that share alone, over the holdings "
-	      "its risk uses; below the least covered weight the verdict is \"insufficient data\" (exit 8) "
+	      "its risk uses; below the least covered weight the verdict is \"insufficient data\" (exit 10) "
 	      "unless the fund fails the policy. Statute figures are from memory of the text; verify with "
 	      "counsel.\n", fp);
 	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
