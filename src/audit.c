@@ -1296,6 +1296,24 @@ static int failures_table(struct report *rep, const struct audit_result *a)
 	return rc;
 }
 
+/* In JSON each fund's failed_rules is the array of its failures' objects
+ * (check, figure, test, limit); CSV and text keep the ';'-joined names. */
+static int nest_failures(struct report *rep)
+{
+	size_t i;
+	struct report_table *funds = NULL, *failures = NULL;
+
+	for (i = 0; i < rep->ntables; i++) {
+		if (strcmp(rep->tables[i]->key, "funds") == 0)
+			funds = rep->tables[i];
+		else if (strcmp(rep->tables[i]->key, "failures") == 0)
+			failures = rep->tables[i];
+	}
+	if (!funds || !failures)
+		return HC_EINTERNAL;
+	return hc_report_table_nest(funds, "failed_rules", failures, "fund");
+}
+
 static int missing_table(struct report *rep, const struct audit_result *a)
 {
 	static const char *const keys[] = { "fund", "id", "weight", "line" };
@@ -1459,6 +1477,7 @@ int hc_audit_report(struct report **out, const struct audit_result *a,
 	if ((rc = fields(rep, a)) != HC_OK || (rc = funds_table(rep, a)) != HC_OK ||
 	    (rc = screens_table(rep, a)) != HC_OK || (rc = missing_table(rep, a)) != HC_OK ||
 	    (rc = sectors_table(rep, a)) != HC_OK || (rc = failures_table(rep, a)) != HC_OK ||
+	    (rc = nest_failures(rep)) != HC_OK ||
 	    (rc = notes(rep, a, h)) != HC_OK) {
 		hc_report_free(rep);
 		return hc_error(err, rc, rc == HC_ENOMEM ? "out of memory building the audit report"

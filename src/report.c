@@ -200,6 +200,32 @@ fail:
 	return NULL;
 }
 
+static int column_index(const struct report_table *t, const char *key, size_t *col)
+{
+	size_t i;
+
+	for (i = 0; i < t->ncols; i++)
+		if (strcmp(t->cols[i].key, key) == 0) {
+			*col = i;
+			return 1;
+		}
+	return 0;
+}
+
+int hc_report_table_nest(struct report_table *parent, const char *column, const struct report_table *child,
+			 const char *join)
+{
+	size_t c, j, cj;
+
+	if (!column_index(parent, column, &c) || !column_index(parent, join, &j) || !column_index(child, join, &cj))
+		return HC_EINTERNAL;
+	parent->nest = child;
+	parent->nest_col = c;
+	parent->nest_join = j;
+	parent->nest_child_join = cj;
+	return HC_OK;
+}
+
 /* A column added after rows exist widens every row with an empty cell, so
  * that a caller can append its own column (say, the scale) to a table
  * another module filled.  Cells stay row-major: the rows are re-laid. */
@@ -731,6 +757,36 @@ static int json_put(cJSON *obj, const char *key, cJSON *item)
 	return 1;
 }
 
+/* The rows of t->nest matching row `row` of t (hc_report_table_nest). */
+static cJSON *json_nested(const struct report_table *t, size_t row)
+{
+	const struct report_table *c = t->nest;
+	const struct report_value *key = &t->cells[row * t->ncols + t->nest_join];
+	cJSON *arr = cJSON_CreateArray();
+	size_t r, col;
+
+	if (!arr)
+		return NULL;
+	for (r = 0; r < c->nrows; r++) {
+		const struct report_value *k = &c->cells[r * c->ncols + t->nest_child_join];
+		cJSON *obj;
+		if (k->kind != REPORT_TEXT || key->kind != REPORT_TEXT || strcmp(k->text, key->text) != 0)
+			continue;
+		obj = cJSON_CreateObject();
+		if (!obj || !cJSON_AddItemToArray(arr, obj)) {
+			cJSON_Delete(obj);
+			goto fail;
+		}
+		for (col = 0; col < c->ncols; col++)
+			if (col != t->nest_child_join && !json_put(obj, c->cols[col].key, json_value(&c->cells[r * c->ncols + col])))
+				goto fail;
+	}
+	return arr;
+fail:
+	cJSON_Delete(arr);
+	return NULL;
+}
+
 static cJSON *json_table(const struct report_table *t)
 {
 	cJSON *arr = cJSON_CreateArray();
@@ -745,7 +801,8 @@ static cJSON *json_table(const struct report_table *t)
 			goto fail;
 		}
 		for (col = 0; col < t->ncols; col++)
-			if (!json_put(obj, t->cols[col].key, json_value(&t->cells[row * t->ncols + col])))
+			if (!json_put(obj, t->cols[col].key, t->nest && col == t->nest_col ? json_nested(t, row)
+								: json_value(&t->cells[row * t->ncols + col])))
 				goto fail;
 	}
 	return arr;

@@ -84,6 +84,12 @@ for name, section, table in (("curve.csv", "curve", "curve"), ("enough.csv", "en
             a, b = cell_value(v), obj.get(k)
             if isinstance(b, bool) or isinstance(a, bool):
                 check(a == b or str(b).lower() == v, f"{name} row {i} {k}: {v!r} vs {b!r}")
+            elif k == "failed_rules" and isinstance(b, list):
+                # JSON: one object per failed check ("rule" or "rule: part");
+                # CSV: the failed rules' names joined by ';'
+                names = sorted({x["check"].split(":")[0] for x in b})
+                check(sorted(v.split(";")) == names if v else not b,
+                      f"{name} row {i} {k}: csv {v!r}, json {b!r}")
             elif b == "":
                 # CSV writes empty text and no value alike (an empty cell)
                 check(v == "", f"{name} row {i} {k}: csv {v!r}, json ''")

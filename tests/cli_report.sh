@@ -187,6 +187,8 @@ grep -qx 'Lirrand Select Fund C,max-weight,0.1199999999999999[0-9]*,<=,0.1000000
 	fail "audit-failures.csv: $(cat "$T/policy/audit-failures.csv")"
 grep -qxF '| Lirrand Select Fund C | max-weight | 0.1200 | <= | 0.1000 |' "$T/policy/summary.md" ||
 	fail "summary.md lacks the failures table"
+python3 -c 'import json,sys; f=[x for x in json.load(open(sys.argv[1]))["audit"]["funds"] if x["fund"] == "Lirrand Select Fund C"][0]["failed_rules"]; sys.exit(not (len(f) == 1 and f[0]["check"] == "max-weight" and abs(f[0]["figure"] - 0.12) < 1e-12 and f[0]["test"] == "<=" and f[0]["limit"] == 0.1))' \
+	"$T/policy/summary.json" || fail "summary.json's failed_rules of Fund C is not [max-weight 12% <= 10%]"
 # insufficient data (exit 10): a fund of the demo universe's LIR001 and an id
 # it lacks, 50% each; the folder is written in full and says so
 printf 'fund,id,weight\nThin Fund,LIR001,0.5\nThin Fund,LIR999X,0.5\n' >"$T/thin.csv"

@@ -293,9 +293,11 @@ void hc_audit_result_free(struct audit_result *a);
  * equivalent_count has no value when there is no count, with the reason
  * "below the floor" (hc_report_table_set_none: that text in CSV and the text
  * table, null in JSON) and below_floor true;
- * failed_rules is a ';'-separated list of rule names (hc_audit_rule_name);
- * table "failures" (fund,check,figure,test,limit) has one row per failed
- * rule or screen part, so JSON readers get the deciding figures.
+ * failed_rules is a ';'-separated list of rule names (hc_audit_rule_name)
+ * in CSV and text, and in JSON the array of the fund's rows of table
+ * "failures" (check, figure, test, limit: hc_report_table_nest); table
+ * "failures" (fund,check,figure,test,limit) has one row per failed rule or
+ * screen part, so every reader gets the deciding figures.
  */
 int hc_audit_report(struct report **out, const struct audit_result *a,
 		 const struct holdings *h, struct hc_error *err);
