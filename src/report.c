@@ -21,6 +21,7 @@
 
 #include <cjson/cJSON.h>
 
+#include "holdcount/csvread.h"
 #include "holdcount/memory.h"
 
 #define REPORT_NUMBER_MAX 64
@@ -725,6 +726,42 @@ static void json_free(void *p)
 	hc_free(p);
 }
 
+/* A JSON string of text, always valid UTF-8: text from the inputs is
+ * checked where it is read, but some (a file name, say) reaches the report
+ * as the system gave it; each byte that does not start a valid UTF-8
+ * sequence is written as U+FFFD, the replacement character, so no output
+ * is invalid JSON. */
+static cJSON *json_string(const char *text)
+{
+	static const char replacement[] = "\xEF\xBF\xBD";
+	size_t len = strlen(text), i = 0, o = 0;
+	cJSON *item;
+	char *buf;
+
+	if (hc_csvread_utf8_valid(text, len))
+		return cJSON_CreateString(text);
+	if (!(buf = hc_mallocarray(len + 1, 3)))
+		return NULL;
+	while (i < len) {
+		unsigned char c = (unsigned char)text[i];
+		size_t n = c < 0x80 ? 1 : c >= 0xC2 && c <= 0xDF ? 2 : c >= 0xE0 && c <= 0xEF ? 3
+			 : c >= 0xF0 && c <= 0xF4 ? 4 : 0;
+		if (n && n <= len - i && hc_csvread_utf8_valid(text + i, n)) {
+			memcpy(buf + o, text + i, n);
+			o += n;
+			i += n;
+		} else {
+			memcpy(buf + o, replacement, 3);
+			o += 3;
+			i++;
+		}
+	}
+	buf[o] = '\0';
+	item = cJSON_CreateString(buf);
+	hc_free(buf);
+	return item;
+}
+
 static cJSON *json_value(const struct report_value *v)
 {
 	char buf[REPORT_NUMBER_MAX];
@@ -737,7 +774,7 @@ static cJSON *json_value(const struct report_value *v)
 		snprintf(buf, sizeof buf, "%lld", v->integer);
 		return cJSON_CreateRaw(buf);
 	case REPORT_TEXT:
-		return cJSON_CreateString(v->text);
+		return json_string(v->text);
 	case REPORT_BOOL:
 		return cJSON_CreateBool(v->integer != 0);
 	default:
@@ -828,7 +865,7 @@ static cJSON *json_report(const struct report *r)
 	if (!json_put(root, "cautions", notes))
 		goto fail;
 	for (i = 0; i < r->nnotes; i++) {
-		cJSON *s = cJSON_CreateString(r->notes[i]);
+		cJSON *s = json_string(r->notes[i]);
 		if (!s || !cJSON_AddItemToArray(notes, s)) {
 			cJSON_Delete(s);
 			goto fail;

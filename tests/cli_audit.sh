@@ -313,6 +313,19 @@ for s in "largest (net assets)" "HHI (invested, gross)" "covered weight (investe
 	grep -qF -- "$s" "$T/kinds.txt" || { echo "FAIL: the text table lacks '$s'"; fails=$((fails + 1)); }
 done
 
+# a file name that is not UTF-8 (a Latin-1 e-acute, byte 0xE9) reaches the
+# JSON as the system gave it; the writer puts U+FFFD in its place, so the
+# JSON stays valid (RFC 8259 section 8.1: JSON text is UTF-8)
+latin=$(printf 'ok-\351.csv')
+cp "$T/ok.csv" "$T/$latin"
+"$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/$latin" --paths 0 --format json -q >"$T/latin-name.json" 2>"$T/err"
+[ $? -eq 0 ] || { echo "FAIL: a Latin-1 file name: $(cat "$T/err")"; fails=$((fails + 1)); }
+"${PYTHON:-/usr/bin/python3}" -c '
+import json, sys
+doc = json.loads(open(sys.argv[1], "rb").read().decode("utf-8"))
+assert doc["holdings_file"].endswith("ok-\ufffd.csv"), doc["holdings_file"]
+' "$T/latin-name.json" || fails=$((fails + 1))
+
 # every JSON this test wrote parses (strict UTF-8, standard JSON: no NaN)
 "${PYTHON:-/usr/bin/python3}" -c '
 import glob, json, sys

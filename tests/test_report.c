@@ -375,6 +375,38 @@ static void test_report_json_nests_a_table(void **state)
 	hc_report_free(r);
 }
 
+/* JSON is valid UTF-8 whatever the text: a byte that starts no valid
+ * sequence (a Latin-1 e-acute 0xE9, a lone continuation byte 0x80, an
+ * overlong 0xC0 0xAF, a surrogate 0xED 0xA0 0x80: RFC 3629 section 3) becomes
+ * U+FFFD, valid sequences stay; CSV keeps the bytes as given. */
+static void test_report_json_replaces_invalid_utf8(void **state)
+{
+	struct report *r = hc_report_alloc();
+	cJSON *doc;
+	char *s;
+	int rc;
+
+	(void)state;
+	assert_non_null(r);
+	assert_int_equal(hc_report_add_text(r, "input", "input", "caf\xe9 \xc3\xa9\x80|\xc0\xaf|\xed\xa0\x80|\xf0\x9f\x98\x80"), HC_OK);
+	assert_int_equal(hc_report_add_note(r, "from 'x\xe9.csv'"), HC_OK);
+	s = render(hc_report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_non_null(doc = cJSON_Parse(s));
+	free(s);
+	assert_string_equal(cJSON_GetObjectItemCaseSensitive(doc, "input")->valuestring,
+			    "caf\xef\xbf\xbd \xc3\xa9\xef\xbf\xbd|\xef\xbf\xbd\xef\xbf\xbd|"
+			    "\xef\xbf\xbd\xef\xbf\xbd\xef\xbf\xbd|\xf0\x9f\x98\x80");
+	assert_string_equal(cJSON_GetArrayItem(cJSON_GetObjectItemCaseSensitive(doc, "cautions"), 0)->valuestring,
+			    "from 'x\xef\xbf\xbd.csv'");
+	cJSON_Delete(doc);
+	s = render(hc_report_writer_csv, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_non_null(strstr(s, "caf\xe9 "));
+	free(s);
+	hc_report_free(r);
+}
+
 /* Long notes wrap at 79 columns with a two-space hanging indent; short
  * ones stay on one line (the golden test above). */
 static void test_report_text_wraps_notes(void **state)
@@ -612,6 +644,7 @@ int main(void)
 		cmocka_unit_test(test_report_json_numbers_round_trip),
 		cmocka_unit_test(test_report_json_refuses_a_key_used_twice),
 		cmocka_unit_test(test_report_json_nests_a_table),
+		cmocka_unit_test(test_report_json_replaces_invalid_utf8),
 		cmocka_unit_test(test_report_text_wraps_notes),
 		cmocka_unit_test(test_report_writer_find),
 		cmocka_unit_test(test_report_cautions_cover_each_subject),
