@@ -638,6 +638,18 @@ static int write_markdown(struct reportdir *rd, struct hc_reportset *r, const st
 	if (r->rep_audit)
 		fputs("- regulatory screens: written from memory of the published texts and testing weights only; "
 		      "verify against the current text and defer to compliance counsel\n", fp);
+	/* the audit's own notes (the statutes' readings, the acquisition and
+	 * quarter-end nature of the tests, the cure period, the index-tracking
+	 * exceptions, the bases of the figures, coverage), those the universe's
+	 * list does not already hold */
+	for (i = 0; r->rep_audit && i < r->rep_audit->nnotes; i++) {
+		size_t k;
+		for (k = 0; k < r->rep_universe->nnotes; k++)
+			if (strcmp(r->rep_audit->notes[i], r->rep_universe->notes[k]) == 0)
+				break;
+		if (k == r->rep_universe->nnotes)
+			fprintf(fp, "- audit: %s\n", r->rep_audit->notes[i]);
+	}
 	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
 	      "`--format csv` and the same options\n", fp);

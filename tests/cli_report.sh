@@ -189,6 +189,16 @@ grep -qxF '| Lirrand Select Fund C | max-weight | 0.1200 | <= | 0.1000 |' "$T/po
 	fail "summary.md lacks the failures table"
 python3 -c 'import json,sys; f=[x for x in json.load(open(sys.argv[1]))["audit"]["funds"] if x["fund"] == "Lirrand Select Fund C"][0]["failed_rules"]; sys.exit(not (len(f) == 1 and f[0]["check"] == "max-weight" and abs(f[0]["figure"] - 0.12) < 1e-12 and f[0]["test"] == "<=" and f[0]["limit"] == 0.1))' \
 	"$T/policy/summary.json" || fail "summary.json's failed_rules of Fund C is not [max-weight 12% <= 10%]"
+# summary.md's cautions carry the audit's statute notes: the readings, the
+# 1940 Act's test at acquisition (s. 5(c)), s. 851's quarter end and 30-day
+# cure period, UCITS's index-tracking exceptions (Art. 53), all from memory
+# of the texts (docs/audit.md)
+for want in "- audit: statute figures are from memory of the text; verify with counsel" \
+	"(s. 5(c): a fund that later drifts past the limits through market moves alone stays diversified)" \
+	"with a 30-day cure period after a quarter end" "UCITS funds replicating an index may hold up to 20% in one issuer" \
+	"- audit: bases: largest position"; do
+	sed -n '/^## Cautions/,/^## Files/p' "$T/policy/summary.md" | grep -qF -- "$want" || fail "summary.md's cautions lack: $want"
+done
 # insufficient data (exit 10): a fund of the demo universe's LIR001 and an id
 # it lacks, 50% each; the folder is written in full and says so
 printf 'fund,id,weight\nThin Fund,LIR001,0.5\nThin Fund,LIR999X,0.5\n' >"$T/thin.csv"
