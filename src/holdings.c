@@ -283,7 +283,7 @@ static int cell_text(struct reader *rd, const struct csvread_field *f, char **ou
 		*out = hc_strndup(f->text, f->len);
 		goto done;
 	}
-	if (!(o = hc_malloc(3 * f->len + 1)))
+	if (!(o = hc_mallocarray(f->len + 1, 3)))
 		goto done;
 	for (k = 0; k < f->len; k++) {
 		unsigned cp = s[k];
