@@ -169,6 +169,19 @@ expect 0 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-cove
 expect 10 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-covered-weight 50.01%
 # a policy failure outranks insufficient data: exit 1
 expect 1 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-holdings 3
+# a status line names ten funds at most, then how many more: twelve such
+# funds (F01..F12, each QA1 and the unknown QZ9 at 50%)
+{ echo "fund,id,weight"; for i in 01 02 03 04 05 06 07 08 09 10 11 12; do echo "F$i,QA1,0.5"; echo "F$i,QZ9,0.5"; done; } >"$T/twelve.csv"
+names="'F01' (50% covered, 1 of 2 holdings)"
+for i in 02 03 04 05 06 07 08 09 10; do names="$names, 'F$i' (50% covered, 1 of 2 holdings)"; done
+expect 10 "" -- audit "$T/u.csv" --holdings "$T/twelve.csv" --paths 0 -q
+grep -qxF "holdcount audit: 12 of 12 funds have insufficient data (risk figures on less than 95% of the invested weight): $names, and 2 more (the funds table's verdict column lists every fund)" "$T/err" \
+	|| { echo "FAIL: twelve thin funds: $(grep -v warning "$T/err")"; fails=$((fails + 1)); }
+names="'F01' (min-holdings)"
+for i in 02 03 04 05 06 07 08 09 10; do names="$names 'F$i' (min-holdings)"; done
+expect 1 "" -- audit "$T/u.csv" --holdings "$T/twelve.csv" --paths 0 -q --min-holdings 3
+grep -qxF "holdcount audit: 12 of 12 funds fail the policy: $names, and 2 more (the funds table's verdict column lists every fund)" "$T/err" \
+	|| { echo "FAIL: twelve failing funds: $(grep -v warning "$T/err")"; fails=$((fails + 1)); }
 # ids missing from the universe: one warning line per such fund on stderr,
 # in every format (a script reading the CSV or JSON hears it too), and
 # under --quiet too: --quiet silences progress, not warnings (as the

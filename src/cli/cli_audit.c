@@ -199,9 +199,20 @@ void cli_audit_say_missing(const char *cmd, const struct audit_result *res)
 
 /* Name the failing funds and rules on stderr, so a log shows why the
  * status is 1 even when the report went to a file. */
+/* A status line names at most this many funds, then says how many more
+ * (a nightly log of 3,000 funds keeps one readable line; the report's
+ * tables hold every fund). */
+#define CLI_AUDIT_NAMES_MAX 10
+
+static void say_more(size_t named, size_t total)
+{
+	if (total > named)
+		fprintf(stderr, ", and %zu more (the funds table's verdict column lists every fund)", total - named);
+}
+
 void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 {
-	size_t f;
+	size_t f, named = 0;
 	int k;
 
 	fprintf(stderr, "holdcount %s: %zu of %zu fund%s fail%s the policy:", cmd, res->failed_funds,
@@ -210,6 +221,9 @@ void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 		const char *sep = " (";
 		if (res->funds[f].passed)
 			continue;
+		if (named == CLI_AUDIT_NAMES_MAX)
+			break;
+		named++;
 		fprintf(stderr, " '%s'", res->funds[f].name);
 		for (k = 0; k < AUDIT_NRULES; k++)
 			if (res->funds[f].failed & (1u << k)) {
@@ -218,12 +232,13 @@ void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 			}
 		fputc(')', stderr);
 	}
+	say_more(named, res->failed_funds);
 	fputc('\n', stderr);
 }
 
 int cli_audit_status(const char *cmd, const struct audit_result *res)
 {
-	size_t f;
+	size_t f, named = 0;
 	const char *sep = " ";
 
 	if (res->failed_funds) {
@@ -239,10 +254,13 @@ int cli_audit_status(const char *cmd, const struct audit_result *res)
 		const struct audit_fund *af = &res->funds[f];
 		if (af->verdict != AUDIT_VERDICT_INSUFFICIENT)
 			continue;
+		if (named++ == CLI_AUDIT_NAMES_MAX)
+			break;
 		fprintf(stderr, "%s'%s' (%.4g%% covered, %zu of %zu holdings)", sep, af->name,
 			isnan(af->covered_weight) ? 0.0 : 100 * af->covered_weight, af->risk_holdings, af->holdings);
 		sep = ", ";
 	}
+	say_more(named > CLI_AUDIT_NAMES_MAX ? CLI_AUDIT_NAMES_MAX : named, res->insufficient_funds);
 	fputc('\n', stderr);
 	return HC_EINSUFFICIENT;
 }
