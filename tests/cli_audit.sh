@@ -295,6 +295,13 @@ printf 'fund,id,weight\nSedge \x80 Fund,QA3,1\n' >"$T/cp1252.csv"
 [ "$(cut -d, -f1 "$T/two-out.csv" | tr '\n' ' ')" = "fund Wren Lark " ] || { echo "FAIL: two holdings files: $(cat "$T/two-out.csv")"; fails=$((fails + 1)); }
 expect 3 "holdcount audit: $T/ok.csv:6: fund 'Lark' is also in '$T/two.csv' (line 2), expected each fund in one holdings file" -- \
 	audit "$T/u.csv" --holdings "$T/two.csv" --holdings "$T/ok.csv"
+# one file given twice, by the same name or another (a symbolic link), is a
+# usage error naming both, not every fund "in two files"
+ln -sf two.csv "$T/two-link.csv"
+expect 2 "holdcount audit: --holdings '$T/two.csv' and '$T/two.csv' are the same file; give each file once" -- \
+	audit "$T/u.csv" --holdings "$T/two.csv" --holdings "$T/two.csv"
+expect 2 "holdcount audit: --holdings '$T/two.csv' and '$T/two-link.csv' are the same file; give each file once" -- \
+	audit "$T/u.csv" --holdings "$T/two.csv" --holdings "$T/ok.csv" --holdings "$T/two-link.csv"
 expect 3 "holdcount audit: $T/cp1252.csv:2:1: found byte 0x80 at byte 7 of the cell, which is not UTF-8" -- \
 	audit "$T/u.csv" --holdings "$T/cp1252.csv"
 "$HOLDCOUNT" audit "$T/u.csv" --holdings "$T/cp1252.csv" --holdings-encoding windows-1252 --paths 0 --format json -q >"$T/cp1252.json" 2>"$T/err" \

@@ -10,6 +10,7 @@
 #include <stddef.h>
 #include <stdio.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #include "holdcount/analysis.h"
 #include "holdcount/audit.h"
@@ -143,6 +144,17 @@ static int load_inputs(const char *cmd, const struct cli_holdings *o, struct hol
 	int encoding = HOLDINGS_UTF8;
 	size_t k;
 
+	/* one file named twice (under any name) would read as every fund in two files */
+	for (k = 0; k < o->holdings.n; k++) {
+		struct stat a, b;
+		size_t j;
+		for (j = 0; j < k; j++)
+			if (strcmp(o->holdings.v[j], o->holdings.v[k]) == 0 ||
+			    (stat(o->holdings.v[j], &a) == 0 && stat(o->holdings.v[k], &b) == 0 && a.st_dev == b.st_dev &&
+			     a.st_ino == b.st_ino))
+				return cli_usage_error(cmd, "--holdings '%s' and '%s' are the same file; give each file once",
+						       o->holdings.v[j], o->holdings.v[k]);
+	}
 	if (o->encoding && hc_holdings_parse_encoding(o->encoding, &encoding) != 0)
 		return cli_usage_error(cmd, "--holdings-encoding expects utf-8, latin-1 or windows-1252, found '%s'",
 				       o->encoding);
