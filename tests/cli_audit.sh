@@ -175,6 +175,10 @@ expect 1 "" -- audit "$T/u.csv" --holdings "$T/unknown.csv" --paths 0 --min-hold
 names="'F01' (50% covered, 1 of 2 holdings)"
 for i in 02 03 04 05 06 07 08 09 10; do names="$names, 'F$i' (50% covered, 1 of 2 holdings)"; done
 expect 10 "" -- audit "$T/u.csv" --holdings "$T/twelve.csv" --paths 0 -q
+# ... and the missing-id warnings: ten lines, then one counting the other two
+[ "$(grep -c "warning: 1 id of 'F[0-9]*' is not in the universe" "$T/err")" -eq 10 ] && grep -q "warning: 1 id of 'F10'" "$T/err" &&
+	grep -qxF "holdcount audit: warning: 2 more funds hold ids not in the universe (the missing table lists every such id)" "$T/err" \
+	|| { echo "FAIL: twelve funds' missing-id warnings: $(cat "$T/err")"; fails=$((fails + 1)); }
 grep -qxF "holdcount audit: 12 of 12 funds have insufficient data (risk figures on less than 95% of the invested weight): $names, and 2 more (the funds table's verdict column lists every fund)" "$T/err" \
 	|| { echo "FAIL: twelve thin funds: $(grep -v warning "$T/err")"; fails=$((fails + 1)); }
 names="'F01' (min-holdings)"

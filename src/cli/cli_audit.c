@@ -182,35 +182,6 @@ static int load_inputs(const char *cmd, const struct cli_holdings *o, struct hol
 	return HC_OK;
 }
 
-/* One line per fund holding ids the universe lacks, whatever the format,
- * so a script reading the CSV or JSON also hears that the fund's risk
- * figures rest on part of it (the ids themselves are in the "missing"
- * table).  Like the weight-sum warning it is not progress, so --quiet
- * (which silences progress) leaves it. */
-void cli_audit_say_missing(const char *cmd, const struct audit_result *res)
-{
-	size_t f;
-
-	for (f = 0; f < res->nfunds; f++) {
-		const struct audit_fund *af = &res->funds[f];
-		size_t n = af->nmissing;
-		if (!n)
-			continue;
-		if (af->risk_known)
-			fprintf(stderr, "holdcount %s: warning: %zu id%s of '%s' %s not in the universe (carrying "
-				"%.3g%% of its weight); its risk figures use the rest\n", cmd, n, n == 1 ? "" : "s",
-				af->name, n == 1 ? "is" : "are", 100 * af->missing_weight);
-		else if (n == 1)
-			fprintf(stderr, "holdcount %s: warning: the only id of '%s' is not in the universe; it has "
-				"no risk figures\n", cmd, af->name);
-		else
-			fprintf(stderr, "holdcount %s: warning: all %zu ids of '%s' are not in the universe; it has "
-				"no risk figures\n", cmd, n, af->name);
-	}
-}
-
-/* Name the failing funds and rules on stderr, so a log shows why the
- * status is 1 even when the report went to a file. */
 /* A status line names at most this many funds, then says how many more
  * (a nightly log of 3,000 funds keeps one readable line; the report's
  * tables hold every fund). */
@@ -222,6 +193,43 @@ static void say_more(size_t named, size_t total)
 		fprintf(stderr, ", and %zu more (the funds table's verdict column lists every fund)", total - named);
 }
 
+/* One line per fund holding ids the universe lacks, whatever the format,
+ * so a script reading the CSV or JSON also hears that the fund's risk
+ * figures rest on part of it (the ids themselves are in the "missing"
+ * table).  Like the weight-sum warning it is not progress, so --quiet
+ * (which silences progress) leaves it. */
+void cli_audit_say_missing(const char *cmd, const struct audit_result *res)
+{
+	size_t f, said = 0, more = 0;
+
+	for (f = 0; f < res->nfunds; f++) {
+		const struct audit_fund *af = &res->funds[f];
+		size_t n = af->nmissing;
+		if (!n)
+			continue;
+		if (said == CLI_AUDIT_NAMES_MAX) {
+			more++;
+			continue;
+		}
+		said++;
+		if (af->risk_known)
+			fprintf(stderr, "holdcount %s: warning: %zu id%s of '%s' %s not in the universe (carrying "
+				"%.3g%% of its weight); its risk figures use the rest\n", cmd, n, n == 1 ? "" : "s",
+				af->name, n == 1 ? "is" : "are", 100 * af->missing_weight);
+		else if (n == 1)
+			fprintf(stderr, "holdcount %s: warning: the only id of '%s' is not in the universe; it has "
+				"no risk figures\n", cmd, af->name);
+		else
+			fprintf(stderr, "holdcount %s: warning: all %zu ids of '%s' are not in the universe; it has "
+				"no risk figures\n", cmd, n, af->name);
+	}
+	if (more)
+		fprintf(stderr, "holdcount %s: warning: %zu more fund%s hold%s ids not in the universe (the missing "
+			"table lists every such id)\n", cmd, more, more == 1 ? "" : "s", more == 1 ? "s" : "");
+}
+
+/* Name the failing funds and rules on stderr, so a log shows why the
+ * status is 1 even when the report went to a file. */
 void cli_audit_say_failures(const char *cmd, const struct audit_result *res)
 {
 	size_t f, named = 0;
