@@ -28,6 +28,7 @@ import csv
 import io
 import json
 import os
+import shutil
 import subprocess
 import sys
 
@@ -504,10 +505,16 @@ def compare_administrator_files(seed):
     out = subprocess.run([HOLDCOUNT, "audit", upath, "--holdings", h1, "--allow-short"], capture_output=True, text=True)
     if out.returncode != 3 or f"{h1}:2:1: found byte 0xE9 at byte 5 of the cell" not in out.stderr:
         failures.append(f"admin: Latin-1 without --holdings-encoding: exit {out.returncode}, {out.stderr!r}")
-    # a fund in two files is an error naming both
-    out = subprocess.run([HOLDCOUNT, "audit", upath, "--holdings", h2, "--holdings", h2], capture_output=True, text=True)
-    if out.returncode != 3 or f"{h2}:2: fund 'Lirrand Semis' is also in '{h2}' (line 2)" not in out.stderr:
+    # a fund in two files is an error naming both (a copy: one file given
+    # twice is a usage error of its own)
+    h2copy = h2 + ".copy.csv"
+    shutil.copyfile(h2, h2copy)
+    out = subprocess.run([HOLDCOUNT, "audit", upath, "--holdings", h2, "--holdings", h2copy], capture_output=True, text=True)
+    if out.returncode != 3 or f"{h2copy}:2: fund 'Lirrand Semis' is also in '{h2}' (line 2)" not in out.stderr:
         failures.append(f"admin: a fund in two files: exit {out.returncode}, {out.stderr!r}")
+    out = subprocess.run([HOLDCOUNT, "audit", upath, "--holdings", h2, "--holdings", h2], capture_output=True, text=True)
+    if out.returncode != 2 or f"--holdings '{h2}' and '{h2}' are the same file" not in out.stderr:
+        failures.append(f"admin: one file twice: exit {out.returncode}, {out.stderr!r}")
 
 
 
