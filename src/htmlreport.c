@@ -706,7 +706,10 @@ static void funds(FILE *fp, const struct htmlreport_input *in)
 		{ "basket_ric_capped", "IRC 851 basket, positions counted up to 5%" },
 		{ "basket_ric_excluded", "IRC 851 basket, positions above 5% left out" },
 	};
-	const struct report_table *t;
+	static const struct column failures[] = {
+		{ "fund", "fund" }, { "check", "fails on" }, { "figure", "figure" }, { "test", "test" }, { "limit", "limit" },
+	};
+	const struct report_table *t, *fails;
 
 	section_open(fp, S_FUNDS);
 	if (!in->audit) {
@@ -719,11 +722,29 @@ static void funds(FILE *fp, const struct htmlreport_input *in)
 	value(fp, field(in->audit, "policy"));
 	fputs(". Funds failing it: ", fp);
 	value(fp, field(in->audit, "failed_funds"));
-	fputs(".</p>\n", fp);
+	fputs(".", fp);
+	/* an audit that judges coverage and reads the statutes says how */
+	if (field(in->audit, "insufficient_funds")->kind != REPORT_NONE) {
+		fputs(" Funds with insufficient data (risk figures on less than ", fp);
+		value(fp, field(in->audit, "min_covered_weight"));
+		fputs(" of the invested weight): ", fp);
+		value(fp, field(in->audit, "insufficient_funds"));
+		fputs(".", fp);
+	}
+	if (field(in->audit, "basket_reading")->kind == REPORT_TEXT) {
+		fputs(" The 5% baskets' reading that decides the screens: ", fp);
+		value(fp, field(in->audit, "basket_reading"));
+		fputs(".", fp);
+	}
+	fputs("</p>\n", fp);
 	t = hc_report_find_table(in->audit, "funds");
 	whole_table(fp, t, "Audited funds: the verdict", cols, sizeof cols / sizeof cols[0], NULL, NULL);
 	whole_table(fp, t, "Audited funds: coverage and the statute screens", cover, sizeof cover / sizeof cover[0],
 		    NULL, NULL);
+	fails = hc_report_find_table(in->audit, "failures");
+	if (fails && fails->nrows)
+		whole_table(fp, fails, "What fails, with the deciding figure and the limit", failures,
+			    sizeof failures / sizeof failures[0], NULL, NULL);
 	fputs("<p class=\"note\">The effective count 1/HHI is the number of equal weights with the same "
 	      "concentration; the sd percentile places the fund among random portfolios of its own count (high is "
 	      "riskier). Coverage: the risk figures use the holdings with a complete history in the universe "

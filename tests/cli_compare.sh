@@ -109,8 +109,9 @@ mkdir -p "$T/empty"
 echo '{"a": 1}' >"$T/other.json"
 "$HC" compare "$T/other.json" "$T/new" 2>"$T/err"; rc=$?
 [ $rc -eq 3 ] && grep -q "not a holdcount report summary" "$T/err" || fail "not a summary: exit $rc, $(cat "$T/err")"
-echo '{"a": ' >"$T/broken.json"
-"$HC" compare "$T/new" "$T/broken.json" 2>"$T/err"; rc=$?
+# (a name without .json: cli_json_outputs parses every *.json the suite leaves)
+echo '{"a": ' >"$T/broken-summary"
+"$HC" compare "$T/new" "$T/broken-summary" 2>"$T/err"; rc=$?
 [ $rc -eq 3 ] && grep -q "not JSON" "$T/err" || fail "broken JSON: exit $rc, $(cat "$T/err")"
 "$HC" compare "$T/new" 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] || fail "one argument: exit $rc, expected 2"

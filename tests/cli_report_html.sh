@@ -114,6 +114,16 @@ done < <(grep '^figure ' "$T/sizes")
 for s in "${SECTIONS[@]}"; do
 	grep -qxF "h2 $s" "$T/sizes" || fail "the page has no heading '$s'"
 done
+# the audited funds with their coverage and the statutes' readings (the
+# demo's audit gives both baskets and a coverage figure per fund), in the
+# DOM as the browser parsed it
+for want in '<caption>Audited funds: coverage and the statute screens</caption>' \
+	'<th scope="col">weight its risk uses (coverage)</th>' \
+	'<th scope="col">1940 Act basket, positions counted up to 5%</th>' \
+	'<th scope="col">IRC 851 basket, positions above 5% left out</th>' \
+	'<h3>How the audit reads the funds and the statutes</h3>'; do
+	grep -qF "$want" "$T/dom.html" || fail "the page lacks $want"
+done
 # nothing wider than the window at the screenshot's width (no sideways scrolling)
 read -r _ sw cw < <(grep '^width ' "$T/sizes")
 [ -n "$cw" ] && [ "$sw" -le "$cw" ] || fail "the page is ${sw:-?} pixels wide in a window ${cw:-?} wide: a table or figure overflows"

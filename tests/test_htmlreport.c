@@ -281,6 +281,28 @@ static void test_htmlreport_funds_tables(void **state)
 	(void)state;
 	build(&f);
 	f.in.audit = audit_report(full, sizeof full / sizeof full[0], "insufficient data");
+	{
+		/* an audit that judges coverage, names its basket reading and
+		 * lists its failures with the deciding figures */
+		struct report *a = (struct report *)f.in.audit;
+		struct report_table *ft;
+		assert_int_equal(hc_report_add_real(a, "min_covered_weight", "least", 0.95, REPORT_STYLE_PERCENT), HC_OK);
+		assert_int_equal(hc_report_add_int(a, "insufficient_funds", "insufficient", 1), HC_OK);
+		assert_int_equal(hc_report_add_text(a, "basket_reading", "reading", "capped"), HC_OK);
+		ft = hc_report_add_table(a, "failures", NULL);
+		assert_non_null(ft);
+		assert_int_equal(hc_report_table_add_column(ft, "fund", "fund", REPORT_STYLE_PLAIN), HC_OK);
+		assert_int_equal(hc_report_table_add_column(ft, "check", "check", REPORT_STYLE_PLAIN), HC_OK);
+		assert_int_equal(hc_report_table_add_column(ft, "figure", "figure", REPORT_STYLE_PERCENT), HC_OK);
+		assert_int_equal(hc_report_table_add_column(ft, "test", "test", REPORT_STYLE_PLAIN), HC_OK);
+		assert_int_equal(hc_report_table_add_column(ft, "limit", "limit", REPORT_STYLE_PERCENT), HC_OK);
+		assert_int_equal(hc_report_table_add_row(ft), HC_OK);
+		assert_int_equal(hc_report_table_set_text(ft, 0, 0, "Lirrand Test Fund"), HC_OK);
+		assert_int_equal(hc_report_table_set_text(ft, 0, 1, "max-weight"), HC_OK);
+		hc_report_table_set_real(ft, 0, 2, 0.12);
+		assert_int_equal(hc_report_table_set_text(ft, 0, 3, "<="), HC_OK);
+		hc_report_table_set_real(ft, 0, 4, 0.10);
+	}
 	/* the audit's notes in the funds section, less those the cautions
 	 * already list (the universe's) */
 	assert_int_equal(hc_report_add_note((struct report *)f.in.audit, "s. 851(b)(3) is tested at quarter end <30 days>"),
@@ -313,6 +335,11 @@ static void test_htmlreport_funds_tables(void **state)
 	assert_non_null(strstr(doc, "<table>\n<caption>Audited funds: the verdict"));
 	assert_non_null(strstr(doc, "gets the verdict \"insufficient data\""));
 	assert_non_null(strstr(doc, "shown under both readings of the texts"));
+	assert_non_null(strstr(doc, "Funds with insufficient data (risk figures on less than 95.00% of the invested "
+				    "weight): 1."));
+	assert_non_null(strstr(doc, "The 5% baskets' reading that decides the screens: capped."));
+	assert_non_null(strstr(doc, "<caption>What fails, with the deciding figure and the limit</caption>"));
+	assert_non_null(strstr(doc, "<td>max-weight</td><td class=\"n\">12.00%</td><td>&lt;=</td><td class=\"n\">10.00%</td>"));
 	free(doc);
 	hc_report_free((struct report *)f.in.audit);
 
@@ -325,6 +352,8 @@ static void test_htmlreport_funds_tables(void **state)
 	assert_null(strstr(doc, "insufficient data"));
 	assert_null(strstr(doc, "both readings"));
 	assert_null(strstr(doc, "How the audit reads"));
+	assert_null(strstr(doc, "What fails"));
+	assert_null(strstr(doc, "reading that decides"));
 	assert_null(strstr(doc, "class=\"wide\""));
 	assert_non_null(strstr(doc, "<th scope=\"col\">holdings its risk uses</th>"));
 	free(doc);

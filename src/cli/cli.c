@@ -218,6 +218,14 @@ static int store_value(const struct cli_option *op, void *where, const char *val
 	case CLI_STRING:
 		*(const char **)where = val;
 		return 0;
+	case CLI_LIST: {
+		struct cli_list *l = where;
+		if (l->n == CLI_LIST_MAX)
+			return -1;
+		l->v[l->n++] = val;
+		l->last = val;
+		return 0;
+	}
 	case CLI_COUNT:
 		return parse_count(val, where);
 	case CLI_U64:
@@ -256,6 +264,7 @@ static const char *expected_text(const struct cli_option *op, char *buf, size_t 
 	case CLI_THREADS: return cli_threads_expected;
 	case CLI_REAL: return "a finite number";
 	case CLI_FRACTION: return "a number, or a percent such as 10%";
+	case CLI_LIST: return "at most 32 values (the option is given too often)";
 	case CLI_CHOICE:
 		used = (size_t)snprintf(buf, size, "one of ");
 		for (i = 0; op->choices[i] && used < size; i++)
@@ -422,7 +431,7 @@ static int is_output_option(const struct cli_option *op)
 
 static int is_input_option(const struct cli_option *op)
 {
-	return op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
+	return (op->kind == CLI_STRING || op->kind == CLI_LIST) && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
 	       !is_output_option(op);
 }
 
@@ -499,6 +508,14 @@ static int check_files(const struct cli_command *cmd, const struct cli_args *a, 
 			if ((!is_output_option(op) && !is_input_option(op)) || omitted(g, op))
 				continue;
 			v = *(const char *const *)((const char *)opts + g->offset + op->offset);
+			if (op->kind == CLI_LIST) {
+				const struct cli_list *l = (const void *)((const char *)opts + g->offset + op->offset);
+				size_t k;
+				for (k = 0; k < l->n && nin < 16; k++)
+					if (*l->v[k] && strcmp(l->v[k], "-") != 0)
+						in[nin++] = (struct named_file){ op->name, l->v[k], 0 };
+				continue;
+			}
 			if (!v || !*v || strcmp(v, "-") == 0)
 				continue;
 			if (is_output_option(op) && nout < 4)
@@ -664,7 +681,9 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd)
 				print_option(fp, g, op);
 	}
 	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
-	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted.\n", fp);
+	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted,\n"
+	      "8 resource limit, 9 renderer failed, 10 insufficient data (e.g. a fund's risk\n"
+	      "rests on too little of its weight).\n", fp);
 }
 
 void cli_print_main_help(FILE *fp)
@@ -757,7 +776,8 @@ static void man_common_sections(FILE *fp)
 		{ "7", "interrupted by a signal; partly written output is removed" },
 		{ "8", "the system refused a resource other than memory: a thread or process (a process limit)" },
 		{ "9", "the renderer (gnuplot) failed on a plot script; nothing is left behind" },
-		{ "10", "the input is well formed but holds too little data for the question" },
+		{ "10", "the input is well formed but holds too little data for the question: in audit and report, "
+		       "no fund fails the policy but a fund's risk figures rest on less than its least covered weight" },
 	};
 	size_t i;
 
@@ -768,7 +788,7 @@ static void man_common_sections(FILE *fp)
 	      ".TP\n.B HOLDCOUNT_THREADS\nthe default of \\fB\\-\\-threads\\fR (a whole number from 1 to 1024).\n"
 	      ".TP\n.B NO_COLOR\nhonoured; holdcount prints no colour or terminal escape codes in any case.\n"
 	      ".TP\n.B HOLDCOUNT_DATA_DIR\nthe folder of the demo data that \\fBholdcount report\\fR "
-	      "reads when no universe is given, instead of the installed one.\n"
+	      "reads with \\fB\\-\\-demo\\fR, instead of the installed one.\n"
 	      ".SH FILES\n.TP\n.I share/holdcount/\n"
 	      "under the installation prefix, found from the binary's own place (\\fI/usr/share/holdcount/\\fR "
 	      "for a package, \\fI/usr/local/share/holdcount/\\fR by default): "
@@ -863,7 +883,8 @@ void cli_print_bash_completion(FILE *fp)
 					for (j = 0; op->choices[j]; j++)
 						fprintf(fp, "%s%s", j ? " " : "", op->choices[j]);
 					fputs("\" -- \"$cur\"))\n\t\t\treturn;;\n", fp);
-				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0) {
+				} else if ((op->kind == CLI_STRING || op->kind == CLI_LIST) && op->metavar &&
+					   strcmp(op->metavar, "FILE") == 0) {
 					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -f -- \"$cur\")\n\t\t\treturn;;\n", fp);
 				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "DIR") == 0) {
 					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -d -- \"$cur\")\n\t\t\treturn;;\n", fp);
