@@ -1,0 +1,706 @@
+/*
+ * periodic.c - the exact curve of a ragged universe from per-period sums
+ * (design.md section 12; docs/mathematics.md, "Ragged histories").
+ *
+ * Why this form: for complete data, with x_it centred on each security's
+ * own mean, sum_t xbar_t^2/(T-1) is the equal-weight universe's variance
+ * (V + C)/M^2 and sum_t s2_t/(T-1) is v-bar - c-bar, so the familiar
+ * v-bar/N + (1 - 1/N) c-bar is a sum over periods of the variance of a
+ * sample mean drawn without replacement from that period's cross-section:
+ * E[(mean_S x_t)^2] = xbar_t^2 + (1/N - 1/M_t) s2_t (Cochran, 1977,
+ * Sampling Techniques, 3rd ed., Wiley, theorem 2.2).  Each period can
+ * therefore use its own alive set without any covariance matrix.
+ */
+#include "holdcount/periodic.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_rng.h>
+
+#include "holdcount/memory.h"
+
+#include <omp.h>
+
+void hc_periodic_free(struct hc_periodic *p)
+{
+	if (!p)
+		return;
+	hc_periodic_curve_release(&p->curve);
+	hc_free(p->alive);
+	hc_free(p->mean);
+	hc_free(p->cross);
+	hc_free(p->rank);
+	hc_free(p->level);
+	hc_free(p->member);
+	hc_free(p->own_mean);
+	hc_free(p);
+}
+
+static int cmp_size(const void *a, const void *b)
+{
+	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+
+	return (x > y) - (x < y);
+}
+
+/* Each security's mean over the window's periods it is observed; keeps
+ * those observed at least twice. */
+static void own_means(struct hc_periodic *p, const struct universe *u, size_t first, size_t len)
+{
+	size_t i, k, n;
+
+	p->m = p->m_short = p->complete = 0;
+	for (i = 0; i < u->m; i++) {
+		const double *xi = u->x + i * u->t + first;
+		double s = 0;
+
+		for (k = n = 0; k < len; k++)
+			if (!isnan(xi[k])) {
+				s += xi[k];
+				n++;
+			}
+		if (n < 2) {
+			p->m_short += n == 1;
+			continue;
+		}
+		p->complete += n == len;
+		p->member[p->m] = i;
+		p->own_mean[p->m++] = s / (double)n;
+	}
+}
+
+/* Alive counts and period means (pass two), then spreads about those
+ * means (pass three): two-pass sums keep the digits the 1e-12 agreement
+ * with the complete-data route needs. */
+static void period_sums(struct hc_periodic *p, const struct universe *u, size_t first)
+{
+	size_t i, k, len = p->t;
+
+	for (i = 0; i < p->m; i++) {
+		const double *xi = u->x + p->member[i] * u->t + first;
+		double mu = p->own_mean[i];
+
+		for (k = 0; k < len; k++)
+			if (!isnan(xi[k])) {
+				p->alive[k]++;
+				p->mean[k] += xi[k] - mu;
+			}
+	}
+	for (k = 0; k < len; k++)
+		p->mean[k] = p->alive[k] ? p->mean[k] / (double)p->alive[k] : 0.0;
+	for (i = 0; i < p->m; i++) {
+		const double *xi = u->x + p->member[i] * u->t + first;
+		double mu = p->own_mean[i];
+
+		for (k = 0; k < len; k++)
+			if (!isnan(xi[k])) {
+				double d = xi[k] - mu - p->mean[k];
+
+				p->cross[k] += d * d;
+			}
+	}
+	for (k = 0; k < len; k++)
+		p->cross[k] = p->alive[k] > 1 ? p->cross[k] / (double)(p->alive[k] - 1) : 0.0;
+}
+
+/* Distinct alive counts, each period's rank among them, min/median/max. */
+static int levels(struct hc_periodic *p)
+{
+	size_t k, j, *sorted = hc_malloc(p->t * sizeof *sorted);
+
+	if (!sorted)
+		return -1;
+	memcpy(sorted, p->alive, p->t * sizeof *sorted);
+	qsort(sorted, p->t, sizeof *sorted, cmp_size);
+	p->alive_min = sorted[0];
+	p->alive_max = sorted[p->t - 1];
+	p->alive_median = sorted[(p->t - 1) / 2];
+	for (k = j = 0; k < p->t; k++)
+		if (j == 0 || sorted[k] != p->level[j - 1])
+			p->level[j++] = sorted[k];
+	p->nlevels = j;
+	for (k = 0; k < p->t; k++) {
+		size_t *hit = bsearch(&p->alive[k], p->level, p->nlevels, sizeof *p->level, cmp_size);
+
+		p->rank[k] = (size_t)(hit - p->level);
+	}
+	hc_free(sorted);
+	return 0;
+}
+
+int hc_periodic_alloc(struct hc_periodic **out, const struct universe *u,
+		      size_t first, size_t len, struct hc_error *err)
+{
+	struct hc_periodic *p;
+	size_t k, two = 0;
+	int rc = HC_ENOMEM;
+
+	*out = NULL;
+	if (first > u->t || len > u->t - first)
+		return hc_error(err, HC_EUSAGE, "window of %zu periods from period %zu lies outside the %zu periods",
+				len, first, u->t);
+	if (len < 2)
+		return hc_error(err, HC_EDATA, "%s: the per-period route needs at least 2 periods, found %zu",
+				u->source ? u->source : "universe", len);
+	p = hc_calloc(1, sizeof *p);
+	if (!p)
+		return hc_error(err, HC_ENOMEM, "out of memory for per-period sums");
+	p->t = len;
+	p->periods_per_year = u->periods_per_year;
+	if (!(p->alive = hc_calloc(len, sizeof *p->alive)) || !(p->mean = hc_calloc(len, sizeof *p->mean)) ||
+	    !(p->cross = hc_calloc(len, sizeof *p->cross)) || !(p->rank = hc_calloc(len, sizeof *p->rank)) ||
+	    !(p->level = hc_calloc(len, sizeof *p->level)) ||
+	    !(p->member = hc_calloc(u->m ? u->m : 1, sizeof *p->member)) ||
+	    !(p->own_mean = hc_calloc(u->m ? u->m : 1, sizeof *p->own_mean)))
+		goto fail;
+	own_means(p, u, first, len);
+	if (p->m < 2) {
+		rc = hc_error(err, HC_EDATA, "%s: fewer than 2 securities are observed in at least 2 periods",
+			      u->source ? u->source : "universe");
+		goto out;
+	}
+	period_sums(p, u, first);
+	for (k = 0; k < len; k++)
+		two += p->alive[k] > 1;
+	if (two == 0) {
+		rc = hc_error(err, HC_EDATA, "%s: no period has two securities observed together",
+			      u->source ? u->source : "universe");
+		goto out;
+	}
+	if (levels(p) || hc_periodic_curve_init(&p->curve, p))
+		goto fail;
+	hc_periodic_curve_set(&p->curve, p, NULL, len);
+	*out = p;
+	return HC_OK;
+fail:
+	rc = hc_error(err, HC_ENOMEM, "out of memory for the per-period sums of %zu periods", len);
+out:
+	hc_periodic_free(p);
+	return rc;
+}
+
+/* ---- curves ------------------------------------------------------------ */
+
+int hc_periodic_curve_init(struct hc_periodic_curve *c, const struct hc_periodic *p)
+{
+	memset(c, 0, sizeof *c);
+	c->level = p->level;
+	c->nlevels = p->nlevels;
+	c->s1 = hc_calloc(p->nlevels + 1, sizeof *c->s1);
+	c->s2 = hc_calloc(p->nlevels + 1, sizeof *c->s2);
+	if (!c->s1 || !c->s2) {
+		hc_periodic_curve_release(c);
+		return -1;
+	}
+	return 0;
+}
+
+void hc_periodic_curve_release(struct hc_periodic_curve *c)
+{
+	hc_free(c->s1);
+	hc_free(c->s2);
+	c->s1 = c->s2 = NULL;
+}
+
+void hc_periodic_curve_set(struct hc_periodic_curve *c, const struct hc_periodic *p,
+			   const size_t *idx, size_t n)
+{
+	size_t j, k, L = p->nlevels;
+	double a = 0, d = 1.0 / (double)(n - 1);
+
+	memset(c->s1, 0, (L + 1) * sizeof *c->s1);
+	memset(c->s2, 0, (L + 1) * sizeof *c->s2);
+	for (j = 0; j < n; j++) {
+		size_t t = idx ? idx[j] : j;
+
+		a += p->mean[t] * p->mean[t];
+		c->s1[p->rank[t]] += p->cross[t];
+		c->s2[p->rank[t]] += p->cross[t] / (double)p->alive[t];
+	}
+	for (k = L; k-- > 0;) {
+		c->s1[k] += c->s1[k + 1];
+		c->s2[k] += c->s2[k + 1];
+	}
+	for (k = 0; k <= L; k++) {
+		c->s1[k] *= d;
+		c->s2[k] *= d;
+	}
+	c->t = n;
+	c->a = a * d;
+	c->spread = c->s1[0];
+	c->floor = c->a - c->s2[0];
+	c->mmax = p->alive_max;
+}
+
+/* Index of the first level above n (nlevels when none). */
+static size_t above(const struct hc_periodic_curve *c, double n)
+{
+	size_t lo = 0, hi = c->nlevels;
+
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2;
+
+		if ((double)c->level[mid] > n)
+			hi = mid;
+		else
+			lo = mid + 1;
+	}
+	return lo;
+}
+
+double hc_periodic_expected_te2(const struct hc_periodic_curve *c, double n)
+{
+	size_t k = above(c, n);
+	double v = c->s1[k] / n - c->s2[k];
+
+	return v > 0 ? v : 0.0;
+}
+
+double hc_periodic_expected_variance(const struct hc_periodic_curve *c, double n)
+{
+	size_t k = above(c, n);
+
+	/* Write it as the floor plus non-negative parts, so that at N = M of
+	 * complete data it rounds as (V + C)/M^2 does. */
+	if (k == c->nlevels)
+		return c->a;
+	return c->a + (c->s1[k] / n - c->s2[k]);
+}
+
+double hc_periodic_diversifiable_share(const struct hc_periodic_curve *c, double n)
+{
+	double e = hc_periodic_expected_variance(c, n);
+
+	return e > 0 ? (c->spread / n) / e : NAN;
+}
+
+int hc_periodic_curve_exact(struct curve **out, const struct hc_periodic *p,
+			    const size_t *sizes, size_t nsizes, double ppy,
+			    struct hc_error *err)
+{
+	const struct hc_periodic_curve *pc = &p->curve;
+	struct curve *c;
+	size_t i;
+
+	*out = NULL;
+	if (!isfinite(ppy) || ppy <= 0)
+		return hc_error(err, HC_EUSAGE, "periods per year %g is not a positive number", ppy);
+	for (i = 0; i < nsizes; i++)
+		if (sizes[i] < 1 || sizes[i] > p->m)
+			return hc_error(err, HC_EUSAGE, sizes[i] < 1 ? "size 0 is not a holding count" :
+					"size %zu is larger than the %zu securities kept", sizes[i], p->m);
+	c = hc_calloc(1, sizeof *c);
+	if (!c || !(c->points = hc_calloc(nsizes ? nsizes : 1, sizeof *c->points))) {
+		hc_curve_free(c);
+		return hc_error(err, HC_ENOMEM, "out of memory for a curve of %zu points", nsizes);
+	}
+	c->npoints = nsizes;
+	c->periods_per_year = ppy;
+	c->m = p->m;
+	c->floor_variance = pc->floor * ppy;
+	c->universe_variance = pc->a * ppy;
+	for (i = 0; i < nsizes; i++) {
+		struct curve_point *q = &c->points[i];
+		double n = (double)sizes[i];
+
+		q->n = sizes[i];
+		q->expected_variance = hc_periodic_expected_variance(pc, n) * ppy;
+		q->expected_sd = sqrt(q->expected_variance);
+		q->variance_sd = NAN;
+		q->expected_tracking_error = sqrt(hc_periodic_expected_te2(pc, n) * ppy);
+		q->diversifiable_share = hc_periodic_diversifiable_share(pc, n);
+		q->sampled_mean_variance = q->sampled_variance_se = q->sampled_mean_sd = NAN;
+		q->sd_p05 = q->sd_p50 = q->sd_p95 = q->z_score = NAN;
+	}
+	*out = c;
+	return HC_OK;
+}
+
+/* ---- rules ------------------------------------------------------------- */
+
+/* Annualised sqrt(E(n)). */
+static double sd_at(const struct hc_periodic_curve *c, double ppy, size_t n)
+{
+	double v = hc_periodic_expected_variance(c, (double)n) * ppy;
+
+	return v > 0 ? sqrt(v) : 0.0;
+}
+
+/* sqrt(E(N)) - sqrt(E(N+1)) annualised, as a difference of squares over the
+ * sum: E(N) - E(N+1) = s1(N)/(N(N+1)), since a period with M_t = N+1 adds
+ * (1/N - 1/(N+1)) s2_t on the left and nothing on the right. */
+static double step_at(const struct hc_periodic_curve *c, double ppy, size_t n)
+{
+	double dn = (double)n, sum = sd_at(c, ppy, n) + sd_at(c, ppy, n + 1);
+	size_t k = above(c, dn);
+
+	if (sum <= 0)
+		return 0.0;
+	return c->s1[k] * ppy / (dn * (dn + 1) * sum);
+}
+
+/* Smallest n in 1..mmax with E-based meets(n), meets monotone (false then
+ * true): bisection.  0 when none. */
+static size_t first_true(const struct hc_periodic_curve *c, double ppy, double limit,
+			 int (*meets)(const struct hc_periodic_curve *, double, double, size_t))
+{
+	size_t lo = 1, hi = c->mmax;
+
+	if (!meets(c, ppy, limit, hi))
+		return 0;
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2;
+
+		if (meets(c, ppy, limit, mid))
+			hi = mid;
+		else
+			lo = mid + 1;
+	}
+	return lo;
+}
+
+static int floor_meets(const struct hc_periodic_curve *c, double ppy, double limit, size_t n)
+{
+	(void)ppy;
+	return hc_periodic_expected_variance(c, (double)n) <= limit;
+}
+
+static int te_meets(const struct hc_periodic_curve *c, double ppy, double limit, size_t n)
+{
+	return hc_periodic_expected_te2(c, (double)n) * ppy <= limit;
+}
+
+/* The steps need not fall monotonically once N passes the smallest alive
+ * count, so every N is scanned: O(mmax log levels). */
+static size_t first_small_step(const struct hc_periodic_curve *c, double ppy, double limit)
+{
+	size_t n;
+
+	for (n = 1; n < c->mmax; n++)
+		if (step_at(c, ppy, n) < limit)
+			return n;
+	return 0;
+}
+
+int hc_periodic_rule_count(const struct rules_config *cfg, int rule,
+			   const struct hc_periodic_curve *c, double ppy, size_t *count)
+{
+	size_t n;
+	double su;
+
+	switch (rule) {
+	case RULES_NEAR_FLOOR: {
+		double x1 = 1 + cfg->near_floor_x;
+
+		if (!(c->floor > 0))
+			return -1;
+		n = first_true(c, ppy, x1 * x1 * c->floor, floor_meets);
+		break;
+	}
+	case RULES_MARGINAL:
+		n = first_small_step(c, ppy, cfg->marginal_eps);
+		break;
+	case RULES_COST_BENEFIT:
+		/* After Statman (1987), JFQA 22(3), as in rules.c. */
+		su = c->a > 0 ? sqrt(c->a * ppy) : 0.0;
+		if (!(su > 0))
+			return -1;
+		n = first_small_step(c, ppy, cfg->holding_cost * su / cfg->premium);
+		break;
+	case RULES_TRACKING_ERROR:
+		n = first_true(c, ppy, cfg->te_budget * cfg->te_budget, te_meets);
+		break;
+	default:
+		return -1;
+	}
+	if (n == 0)
+		return 0;
+	*count = n;
+	return 1;
+}
+
+int hc_periodic_rule(const struct rules_config *cfg, int rule,
+		     const struct hc_periodic_curve *c, double ppy,
+		     struct rule_result *res, struct hc_error *err)
+{
+	double vbar = c->floor + c->spread;
+	int rc, got;
+
+	/* The texts (parameters, unit, notes) as for complete data; the
+	 * count and values are then the ragged curve's. */
+	rc = hc_rules_exact(cfg, rule, vbar, c->floor, c->mmax, ppy, res, err);
+	if (rc)
+		return rc;
+	got = hc_periodic_rule_count(cfg, rule, c, ppy, &res->count);
+	if (got < 0) {
+		res->defined = 0;
+		res->met = 0;
+		res->value = NAN;
+		if (!res->note[0])
+			snprintf(res->note, sizeof res->note, "undefined: %s is not above zero",
+				 rule == RULES_NEAR_FLOOR ? "the floor" : "the universe portfolio's risk");
+		return HC_OK;
+	}
+	res->defined = 1;
+	res->met = got;
+	res->value = NAN;
+	if (!got) {
+		res->count = 0;
+		snprintf(res->note, sizeof res->note,
+			 "not met with at most %zu securities alive in a period", c->mmax);
+	} else {
+		res->note[0] = '\0';
+	}
+	switch (rule) {
+	case RULES_NEAR_FLOOR:
+		res->threshold = (1 + cfg->near_floor_x) * sqrt(c->floor * ppy);
+		if (got)
+			res->value = sd_at(c, ppy, res->count);
+		break;
+	case RULES_MARGINAL:
+		res->threshold = cfg->marginal_eps;
+		if (got)
+			res->value = step_at(c, ppy, res->count);
+		break;
+	case RULES_COST_BENEFIT:
+		res->threshold = cfg->holding_cost;
+		if (got)
+			res->value = cfg->premium * step_at(c, ppy, res->count) / sqrt(c->a * ppy);
+		break;
+	case RULES_TRACKING_ERROR:
+		res->threshold = cfg->te_budget;
+		if (got)
+			res->value = sqrt(hc_periodic_expected_te2(c, (double)res->count) * ppy);
+		break;
+	}
+	return HC_OK;
+}
+
+/* ---- bootstrap --------------------------------------------------------- */
+
+int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_periodic *p,
+			  const struct bootstrap_options *bopt, double ppy,
+			  struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t B = bopt->replicates, L, j, nb = 0, *counts = NULL;
+	size_t which[RULES_COUNT];
+	int rc = HC_OK, failed = 0;
+
+	if (B == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	L = bopt->block_length ? bopt->block_length : hc_bootstrap_default_block_length(p->t);
+	if (L > p->t)
+		return hc_error(err, HC_EUSAGE, "block length %zu exceeds the %zu periods", L, p->t);
+	for (j = 0; j < nres && nb < RULES_COUNT; j++)
+		if (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
+			which[nb++] = j;
+	if (nb == 0)
+		return HC_OK;
+	if (hc_mul_size(B, nb, &j) || !(counts = hc_calloc(B * nb, sizeof *counts)))
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
+#pragma omp parallel num_threads(bopt->threads > 0 ? bopt->threads : omp_get_max_threads()) reduction(|:failed)
+	{
+		struct hc_periodic_curve c;
+		size_t *idx = hc_malloc(p->t * sizeof *idx);
+		long r;
+
+		if (!idx || hc_periodic_curve_init(&c, p)) {
+			failed = 1;
+			hc_free(idx);
+			idx = NULL;
+		}
+#pragma omp for schedule(static)
+		for (r = 0; r < (long)B; r++) {
+			size_t q, cnt;
+
+			if (!idx)
+				continue;
+			if (hc_bootstrap_indices(bopt->kind, p->t, L, bopt->seed, (size_t)r, idx, NULL)) {
+				failed = 1;
+				continue;
+			}
+			hc_periodic_curve_set(&c, p, idx, p->t);
+			for (q = 0; q < nb; q++)
+				counts[(size_t)r * nb + q] =
+					hc_periodic_rule_count(cfg, res[which[q]].rule, &c, ppy, &cnt) == 1 ? cnt : 0;
+		}
+		if (idx) {
+			hc_periodic_curve_release(&c);
+			hc_free(idx);
+		}
+	}
+	if (failed) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the bootstrap workspaces");
+		goto out;
+	}
+	{
+		size_t *col = hc_malloc(B * sizeof *col), q, r;
+
+		if (!col) {
+			rc = hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
+			goto out;
+		}
+		for (q = 0; q < nb; q++) {
+			for (r = 0; r < B; r++)
+				col[r] = counts[r * nb + q];
+			hc_rules_set_interval(&res[which[q]], col, B);
+		}
+		hc_free(col);
+	}
+out:
+	hc_free(counts);
+	return rc;
+}
+
+/* ---- sampler ----------------------------------------------------------- */
+
+/* Seed of path k: the (k+1)-th splitmix64 output from seed. */
+static unsigned long path_seed(uint64_t seed, size_t k)
+{
+	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z = hc_sampler_splitmix64(&st);
+
+	return (unsigned long)(z ^ (z >> 32));
+}
+
+struct ragged_ws {
+	size_t *order;
+	size_t *cnt, *next;   /* t: securities taken so far, next grid index */
+	double *sum;          /* t */
+	double *acc;          /* nsizes */
+	gsl_rng *rng;
+};
+
+static void ws_release(struct ragged_ws *w)
+{
+	hc_free(w->order);
+	hc_free(w->cnt);
+	hc_free(w->next);
+	hc_free(w->sum);
+	hc_free(w->acc);
+	if (w->rng)
+		gsl_rng_free(w->rng);
+	memset(w, 0, sizeof *w);
+}
+
+static int ws_init(struct ragged_ws *w, size_t m, size_t t, size_t nsizes)
+{
+	memset(w, 0, sizeof *w);
+	w->order = hc_malloc(m * sizeof *w->order);
+	w->cnt = hc_malloc(t * sizeof *w->cnt);
+	w->next = hc_malloc(t * sizeof *w->next);
+	w->sum = hc_malloc(t * sizeof *w->sum);
+	w->acc = hc_malloc(nsizes * sizeof *w->acc);
+	w->rng = gsl_rng_alloc(gsl_rng_taus2);
+	if (!w->order || !w->cnt || !w->next || !w->sum || !w->acc || !w->rng) {
+		ws_release(w);
+		return -1;
+	}
+	return 0;
+}
+
+/* One path: a random order (Fisher-Yates), then the securities in that
+ * order, each adding its centred returns to every period it is alive in,
+ * until every period holds n_max or all it has. */
+static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const struct universe *u,
+			size_t first, const size_t *sizes, size_t ns, unsigned long seed, double *out)
+{
+	size_t i, j, k, t = p->t, nmax = sizes[ns - 1], open = t;
+
+	gsl_rng_set(w->rng, seed);
+	for (i = 0; i < p->m; i++)
+		w->order[i] = i;
+	for (i = 0; i + 1 < p->m; i++) {
+		size_t r = i + (size_t)gsl_rng_uniform_int(w->rng, p->m - i), tmp = w->order[i];
+
+		w->order[i] = w->order[r];
+		w->order[r] = tmp;
+	}
+	memset(w->cnt, 0, t * sizeof *w->cnt);
+	memset(w->next, 0, t * sizeof *w->next);
+	memset(w->sum, 0, t * sizeof *w->sum);
+	memset(w->acc, 0, ns * sizeof *w->acc);
+	for (i = 0; i < p->m && open; i++) {
+		size_t s = w->order[i];
+		const double *xi = u->x + p->member[s] * u->t + first;
+		double mu = p->own_mean[s];
+
+		for (k = 0; k < t; k++) {
+			double m;
+
+			if (isnan(xi[k]) || w->cnt[k] >= nmax)
+				continue;
+			w->sum[k] += xi[k] - mu;
+			w->cnt[k]++;
+			if (w->cnt[k] == sizes[w->next[k]]) {
+				m = w->sum[k] / (double)w->cnt[k];
+				w->acc[w->next[k]++] += m * m;
+				open -= w->next[k] == ns;
+			}
+		}
+	}
+	/* Sizes above a period's alive count hold everything alive then. */
+	for (k = 0; k < t; k++) {
+		double m = w->cnt[k] ? w->sum[k] / (double)w->cnt[k] : 0.0;
+
+		for (j = w->next[k]; j < ns; j++)
+			w->acc[j] += m * m;
+	}
+	for (j = 0; j < ns; j++)
+		out[j] = w->acc[j] / (double)(t - 1);
+}
+
+int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
+		       const struct universe *u, size_t first,
+		       const size_t *sizes, size_t nsizes,
+		       const struct sampler_options *opt, struct hc_error *err)
+{
+	struct sampler_result *r;
+	size_t j, total;
+	int failed = 0;
+
+	*out = NULL;
+	if (opt->paths == 0 || opt->want_returns || opt->strata || nsizes == 0)
+		return hc_error(err, HC_EUSAGE,
+				"the ragged sampler needs paths and sizes, and records neither returns nor strata");
+	for (j = 0; j < nsizes; j++)
+		if (sizes[j] < 1 || sizes[j] > p->m || (j && sizes[j] <= sizes[j - 1]))
+			return hc_error(err, HC_EUSAGE, "sizes must ascend within 1..%zu (size %zu)", p->m, sizes[j]);
+	if (hc_mul_size(opt->paths, nsizes, &total))
+		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes do not fit in memory", opt->paths, nsizes);
+	r = hc_calloc(1, sizeof *r);
+	if (!r || !(r->sizes = hc_malloc(nsizes * sizeof *r->sizes)) ||
+	    !(r->variance = hc_malloc(total * sizeof *r->variance)) ||
+	    !(r->feasible = hc_malloc(nsizes))) {
+		hc_sampler_result_free(r);
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", total);
+	}
+	r->paths = opt->paths;
+	r->nsizes = nsizes;
+	r->seed = opt->seed;
+	memcpy(r->sizes, sizes, nsizes * sizeof *sizes);
+	memset(r->feasible, 1, nsizes);
+#pragma omp parallel num_threads(opt->threads > 0 ? opt->threads : omp_get_max_threads()) reduction(|:failed)
+	{
+		struct ragged_ws w;
+		int ok = ws_init(&w, p->m, p->t, nsizes) == 0;
+		long k;
+
+		failed |= !ok;
+#pragma omp for schedule(dynamic, 4)
+		for (k = 0; k < (long)opt->paths; k++)
+			if (ok)
+				ragged_path(&w, p, u, first, sizes, nsizes, path_seed(opt->seed, (size_t)k),
+					    r->variance + (size_t)k * nsizes);
+		if (ok)
+			ws_release(&w);
+	}
+	if (failed) {
+		hc_sampler_result_free(r);
+		return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
+	}
+	*out = r;
+	return HC_OK;
+}
