@@ -182,6 +182,24 @@ out:
 	return rc;
 }
 
+int hc_periodic_moments(const struct hc_periodic *p, struct moments *mo, struct hc_error *err)
+{
+	double m = (double)p->m;
+
+	(void)err;
+	memset(mo, 0, sizeof *mo);
+	mo->m = p->m;
+	mo->t = p->t;
+	mo->route = MOMENTS_ROUTE_PERIODIC;
+	mo->average_covariance = p->curve.floor;
+	mo->average_variance = p->curve.floor + p->curve.spread;
+	mo->sum_var = m * mo->average_variance;
+	mo->sum_cov = m * (m - 1) * mo->average_covariance;
+	mo->average_correlation = NAN;
+	mo->universe_variance = p->curve.a;
+	return HC_OK;
+}
+
 /* ---- curves ------------------------------------------------------------ */
 
 int hc_periodic_curve_init(struct hc_periodic_curve *c, const struct hc_periodic *p)

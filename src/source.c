@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/periodic.h"
 
 void hc_source_options_init(struct hc_source_options *opt)
 {
@@ -20,6 +21,7 @@ void hc_source_free(struct hc_source *s)
 		return;
 	hc_universe_free(s->own_u);
 	hc_covmatrix_free(s->own_cm);
+	hc_periodic_free(s->own_per);
 	hc_free(s->own_name);
 	hc_free(s);
 }
@@ -99,7 +101,8 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	int rc;
 
 	*out = NULL;
-	s = source_alloc(u->has_missing ? HC_SOURCE_PAIRWISE : HC_SOURCE_SERIES, opt);
+	s = source_alloc(!u->has_missing ? HC_SOURCE_SERIES : opt->ragged ? HC_SOURCE_RAGGED : HC_SOURCE_PAIRWISE,
+			 opt);
 	if (!s) {
 		hc_universe_free(u);
 		return hc_error(err, HC_ENOMEM, "out of memory");
@@ -113,7 +116,15 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	 * portfolios and fund variances come from the pairwise-complete
 	 * covariances, when they form a valid matrix (or from its repair, which
 	 * the exact figures then use too). */
-	if (s->kind == HC_SOURCE_PAIRWISE && (opt->need_matrix || opt->repair_psd)) {
+	if (s->kind == HC_SOURCE_RAGGED) {
+		rc = hc_periodic_alloc(&s->own_per, u, 0, u->t, err);
+		if (rc != HC_OK) {
+			hc_source_free(s);
+			return rc;
+		}
+		s->per = s->own_per;
+	}
+	if (s->kind != HC_SOURCE_SERIES && (opt->need_matrix || opt->repair_psd)) {
 		rc = hc_covmatrix_from_universe(u, &cm, err);
 		if (rc == HC_OK) {
 			s->own_cm = cm;
@@ -224,6 +235,8 @@ int hc_source_moments(const struct hc_source *s, struct moments *mo, struct hc_e
 	case HC_SOURCE_PAIRWISE:
 		return s->psd.repaired ? hc_moments_from_matrix(mo, s->cm->a, s->cm->m, err)
 				       : hc_moments_from_universe(mo, s->u, err);
+	case HC_SOURCE_RAGGED:
+		return hc_periodic_moments(s->per, mo, err);
 	case HC_SOURCE_MATRIX:
 		rc = hc_moments_from_matrix(mo, s->cm->a, s->cm->m, err);
 		if (rc)

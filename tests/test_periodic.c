@@ -20,6 +20,7 @@
 #include "holdcount/periodic.h"
 #include "holdcount/rules.h"
 #include "holdcount/sampler.h"
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
 
 /* A one-factor universe (returns 0.004 + beta f_t + e_it), gaps where
@@ -392,6 +393,37 @@ static void test_periodic_refuses_tiny(void **state)
 	hc_universe_free(u);
 }
 
+/* The data source kind: series with gaps under opt.ragged are read period
+ * by period, and their moments reproduce the curve up to the smallest alive
+ * count; without it they stay pairwise. */
+static void test_periodic_source_kind(void **state)
+{
+	struct universe *u = make_universe(25, 40, 1, 19), *u2 = make_universe(25, 40, 1, 19);
+	struct hc_source *s = NULL, *s2 = NULL;
+	struct hc_source_options so;
+	struct moments mo;
+	struct hc_error err;
+	size_t n;
+
+	(void)state;
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&s, u, &so, &err), HC_OK);
+	assert_int_equal(s->kind, HC_SOURCE_RAGGED);
+	assert_non_null(s->per);
+	assert_null(hc_source_matrix(s));
+	assert_int_equal(hc_source_moments(s, &mo, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_PERIODIC);
+	for (n = 1; n <= s->per->alive_min; n++)
+		assert_true(rel(hc_curve_expected_variance(&mo, (double)n),
+				hc_periodic_expected_variance(&s->per->curve, (double)n)) < 1e-12);
+	so.ragged = 0;
+	assert_int_equal(hc_source_from_universe(&s2, u2, &so, &err), HC_OK);
+	assert_int_equal(s2->kind, HC_SOURCE_PAIRWISE);
+	hc_source_free(s);
+	hc_source_free(s2);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -403,6 +435,7 @@ int main(void)
 		cmocka_unit_test(test_periodic_bootstrap_replicates),
 		cmocka_unit_test(test_periodic_sampler_matches_exact),
 		cmocka_unit_test(test_periodic_refuses_tiny),
+		cmocka_unit_test(test_periodic_source_kind),
 	};
 
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -24,7 +24,8 @@ enum moments_route {
 	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance in row blocks through BLAS dgemm */
 	MOMENTS_ROUTE_PAIRWISE = 2, /* pairwise-complete covariances (data with gaps) */
 	MOMENTS_ROUTE_GIVEN = 3,    /* a covariance matrix was supplied */
-	MOMENTS_ROUTE_SUMMARY = 4   /* only average variance and covariance are known */
+	MOMENTS_ROUTE_SUMMARY = 4,  /* only average variance and covariance are known */
+	MOMENTS_ROUTE_PERIODIC = 5  /* per-period sums of a ragged history (periodic.h) */
 };
 
 /* Rows of the covariance matrix the matrix route computes at a time (its

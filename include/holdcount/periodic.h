@@ -28,6 +28,7 @@
 #include "holdcount/bootstrap.h"
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
+#include "holdcount/moments.h"
 #include "holdcount/rules.h"
 #include "holdcount/sampler.h"
 #include "holdcount/universe.h"
@@ -85,6 +86,16 @@ struct hc_periodic {
 int hc_periodic_alloc(struct hc_periodic **out, const struct universe *u,
 		      size_t first, size_t len, struct hc_error *err);
 void hc_periodic_free(struct hc_periodic *p);
+
+/*
+ * Moments equivalent to the whole sample's curve (route
+ * MOMENTS_ROUTE_PERIODIC): m = p->m, t = p->t, c-bar = curve.floor,
+ * v-bar = c-bar + curve.spread, universe_variance = curve.a; no spread,
+ * no correlation.  v-bar/N + (1 - 1/N) c-bar equals the exact ragged
+ * curve for N up to alive_min; beyond it use hc_periodic_expected_variance.
+ * Cannot fail for a p from hc_periodic_alloc (HC_OK).
+ */
+int hc_periodic_moments(const struct hc_periodic *p, struct moments *mo, struct hc_error *err);
 
 /* Workspace for a curve over a subset of p's periods (hc_periodic_curve_set). */
 int hc_periodic_curve_init(struct hc_periodic_curve *c, const struct hc_periodic *p);

@@ -32,10 +32,14 @@
 extern "C" {
 #endif
 
+struct hc_periodic;
+
 enum hc_source_kind {
 	HC_SOURCE_SERIES = 0,   /* u: complete return series */
 	HC_SOURCE_PAIRWISE = 1, /* u with gaps; cm its pairwise-complete covariances (when built) */
-	HC_SOURCE_MATRIX = 2    /* cm only */
+	HC_SOURCE_MATRIX = 2,   /* cm only */
+	HC_SOURCE_RAGGED = 3    /* u with gaps read period by period: per, its per-period sums
+	                         * (periodic.h); each period uses the securities alive then */
 };
 
 /* What the positive semi-definite policy found and did. */
@@ -58,6 +62,8 @@ struct hc_source_options {
 	                          * ignored for series (the universe's own) */
 	const char *psd_refusal; /* the message after "PATH: " when a matrix is refused;
 	                          * NULL: HC_SOURCE_DEFAULT_REFUSAL */
+	int ragged;              /* series with gaps: HC_SOURCE_RAGGED (per-period sums, no
+	                          * matrix unless need_matrix) instead of HC_SOURCE_PAIRWISE */
 };
 
 #define HC_SOURCE_PSD_HINT "--repair-psd uses the nearest positive semi-definite matrix instead"
@@ -68,13 +74,15 @@ struct hc_source {
 	int kind;                   /* enum hc_source_kind */
 	const char *name;           /* the file, for messages (u->source or the matrix's path) */
 	const struct universe *u;   /* SERIES, PAIRWISE: the returns; NULL for MATRIX */
-	const struct covmatrix *cm; /* MATRIX; PAIRWISE when built (need_matrix, repair_psd); else NULL */
+	const struct covmatrix *cm; /* MATRIX; PAIRWISE or RAGGED when built (need_matrix, repair_psd); else NULL */
+	const struct hc_periodic *per; /* RAGGED: the per-period sums of every period; else NULL */
 	double periods_per_year;    /* per-period variances are multiplied by it (1: not annualised) */
 	int annualised;             /* 0: a matrix on its own scale */
 	struct hc_source_psd psd;
 	/* private: what hc_source_free releases */
 	struct universe *own_u;
 	struct covmatrix *own_cm;
+	struct hc_periodic *own_per;
 	char *own_name;
 };
 
@@ -143,7 +151,9 @@ int hc_source_has_series(const struct hc_source *s);
 /*
  * The moments of s (moments.h): from the series (the pairwise route for
  * data with gaps), or from the matrix when the source is a matrix or a
- * repaired pairwise matrix.  A matrix's errors carry its name as prefix.
+ * repaired pairwise matrix.  RAGGED: hc_periodic_moments, the averages
+ * whose v-bar/N + (1 - 1/N) c-bar is the per-period curve up to the
+ * smallest alive count (use periodic.h for the exact curve beyond it).  A matrix's errors carry its name as prefix.
  */
 int hc_source_moments(const struct hc_source *s, struct moments *mo, struct hc_error *err);
 
