@@ -32,6 +32,7 @@ void hc_periodic_free(struct hc_periodic *p)
 	hc_free(p->alive);
 	hc_free(p->mean);
 	hc_free(p->cross);
+	hc_free(p->raw_mean);
 	hc_free(p->rank);
 	hc_free(p->level);
 	hc_free(p->member);
@@ -87,10 +88,13 @@ static void period_sums(struct hc_periodic *p, const struct universe *u, size_t 
 			if (!isnan(xi[k])) {
 				p->alive[k]++;
 				p->mean[k] += xi[k] - mu;
+				p->raw_mean[k] += xi[k];
 			}
 	}
-	for (k = 0; k < len; k++)
+	for (k = 0; k < len; k++) {
 		p->mean[k] = p->alive[k] ? p->mean[k] / (double)p->alive[k] : 0.0;
+		p->raw_mean[k] = p->alive[k] ? p->raw_mean[k] / (double)p->alive[k] : 0.0;
+	}
 	for (i = 0; i < p->m; i++) {
 		const double *xi = u->x + p->member[i] * u->t + first;
 		double mu = p->own_mean[i];
@@ -151,7 +155,7 @@ int hc_periodic_alloc(struct hc_periodic **out, const struct universe *u,
 	p->t = len;
 	p->periods_per_year = u->periods_per_year;
 	if (!(p->alive = hc_calloc(len, sizeof *p->alive)) || !(p->mean = hc_calloc(len, sizeof *p->mean)) ||
-	    !(p->cross = hc_calloc(len, sizeof *p->cross)) || !(p->rank = hc_calloc(len, sizeof *p->rank)) ||
+	    !(p->cross = hc_calloc(len, sizeof *p->cross)) || !(p->raw_mean = hc_calloc(len, sizeof *p->raw_mean)) || !(p->rank = hc_calloc(len, sizeof *p->rank)) ||
 	    !(p->level = hc_calloc(len, sizeof *p->level)) ||
 	    !(p->member = hc_calloc(u->m ? u->m : 1, sizeof *p->member)) ||
 	    !(p->own_mean = hc_calloc(u->m ? u->m : 1, sizeof *p->own_mean)))
@@ -587,7 +591,9 @@ struct ragged_ws {
 	size_t *order;
 	size_t *cnt, *next;   /* t: securities taken so far, next grid index */
 	double *sum;          /* t */
+	double *raw;          /* t: uncentred sums (returns wanted) */
 	double *acc;          /* nsizes */
+	double *lacc;         /* nsizes: sums of log(1 + p_t) */
 	gsl_rng *rng;
 };
 
@@ -597,7 +603,9 @@ static void ws_release(struct ragged_ws *w)
 	hc_free(w->cnt);
 	hc_free(w->next);
 	hc_free(w->sum);
+	hc_free(w->raw);
 	hc_free(w->acc);
+	hc_free(w->lacc);
 	if (w->rng)
 		gsl_rng_free(w->rng);
 	memset(w, 0, sizeof *w);
@@ -610,20 +618,30 @@ static int ws_init(struct ragged_ws *w, size_t m, size_t t, size_t nsizes)
 	w->cnt = hc_malloc(t * sizeof *w->cnt);
 	w->next = hc_malloc(t * sizeof *w->next);
 	w->sum = hc_malloc(t * sizeof *w->sum);
+	w->raw = hc_malloc(t * sizeof *w->raw);
 	w->acc = hc_malloc(nsizes * sizeof *w->acc);
+	w->lacc = hc_malloc(nsizes * sizeof *w->lacc);
 	w->rng = gsl_rng_alloc(gsl_rng_taus2);
-	if (!w->order || !w->cnt || !w->next || !w->sum || !w->acc || !w->rng) {
+	if (!w->order || !w->cnt || !w->next || !w->sum || !w->raw || !w->acc || !w->lacc || !w->rng) {
 		ws_release(w);
 		return -1;
 	}
 	return 0;
 }
 
+/* log(1 + r), with a total loss (r <= -1) as -infinity: the compound
+ * return is then -100%. */
+static double log1p_total(double r)
+{
+	return r > -1 ? log1p(r) : -INFINITY;
+}
+
 /* One path: a random order (Fisher-Yates), then the securities in that
  * order, each adding its centred returns to every period it is alive in,
  * until every period holds n_max or all it has. */
 static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const struct universe *u,
-			size_t first, const size_t *sizes, size_t ns, unsigned long seed, double *out)
+			size_t first, const size_t *sizes, size_t ns, unsigned long seed, double *out,
+			double *ret, double ppy)
 {
 	size_t i, j, k, t = p->t, nmax = sizes[ns - 1], open = t;
 
@@ -639,7 +657,9 @@ static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const 
 	memset(w->cnt, 0, t * sizeof *w->cnt);
 	memset(w->next, 0, t * sizeof *w->next);
 	memset(w->sum, 0, t * sizeof *w->sum);
+	memset(w->raw, 0, t * sizeof *w->raw);
 	memset(w->acc, 0, ns * sizeof *w->acc);
+	memset(w->lacc, 0, ns * sizeof *w->lacc);
 	for (i = 0; i < p->m && open; i++) {
 		size_t s = w->order[i];
 		const double *xi = u->x + p->member[s] * u->t + first;
@@ -651,9 +671,12 @@ static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const 
 			if (isnan(xi[k]) || w->cnt[k] >= nmax)
 				continue;
 			w->sum[k] += xi[k] - mu;
+			w->raw[k] += xi[k];
 			w->cnt[k]++;
 			if (w->cnt[k] == sizes[w->next[k]]) {
 				m = w->sum[k] / (double)w->cnt[k];
+				if (ret)
+					w->lacc[w->next[k]] += log1p_total(w->raw[k] / (double)w->cnt[k]);
 				w->acc[w->next[k]++] += m * m;
 				open -= w->next[k] == ns;
 			}
@@ -662,12 +685,18 @@ static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const 
 	/* Sizes above a period's alive count hold everything alive then. */
 	for (k = 0; k < t; k++) {
 		double m = w->cnt[k] ? w->sum[k] / (double)w->cnt[k] : 0.0;
+		double l = ret && w->cnt[k] ? log1p_total(w->raw[k] / (double)w->cnt[k]) : 0.0;
 
-		for (j = w->next[k]; j < ns; j++)
+		for (j = w->next[k]; j < ns; j++) {
 			w->acc[j] += m * m;
+			w->lacc[j] += l;
+		}
 	}
-	for (j = 0; j < ns; j++)
+	for (j = 0; j < ns; j++) {
 		out[j] = w->acc[j] / (double)(t - 1);
+		if (ret)
+			ret[j] = expm1(w->lacc[j] * ppy / (double)t);
+	}
 }
 
 int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
@@ -680,9 +709,8 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 	int failed = 0;
 
 	*out = NULL;
-	if (opt->paths == 0 || opt->want_returns || opt->strata || nsizes == 0)
-		return hc_error(err, HC_EUSAGE,
-				"the ragged sampler needs paths and sizes, and records neither returns nor strata");
+	if (opt->paths == 0 || opt->strata || nsizes == 0)
+		return hc_error(err, HC_EUSAGE, "the ragged sampler needs paths and sizes, and draws no strata");
 	for (j = 0; j < nsizes; j++)
 		if (sizes[j] < 1 || sizes[j] > p->m || (j && sizes[j] <= sizes[j - 1]))
 			return hc_error(err, HC_EUSAGE, "sizes must ascend within 1..%zu (size %zu)", p->m, sizes[j]);
@@ -691,7 +719,8 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 	r = hc_calloc(1, sizeof *r);
 	if (!r || !(r->sizes = hc_malloc(nsizes * sizeof *r->sizes)) ||
 	    !(r->variance = hc_malloc(total * sizeof *r->variance)) ||
-	    !(r->feasible = hc_malloc(nsizes))) {
+	    !(r->feasible = hc_malloc(nsizes)) ||
+	    (opt->want_returns && !(r->annual_return = hc_malloc(total * sizeof *r->annual_return)))) {
 		hc_sampler_result_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", total);
 	}
@@ -711,7 +740,9 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 		for (k = 0; k < (long)opt->paths; k++)
 			if (ok)
 				ragged_path(&w, p, u, first, sizes, nsizes, path_seed(opt->seed, (size_t)k),
-					    r->variance + (size_t)k * nsizes);
+					    r->variance + (size_t)k * nsizes,
+					    r->annual_return ? r->annual_return + (size_t)k * nsizes : NULL,
+					    opt->periods_per_year);
 		if (ok)
 			ws_release(&w);
 	}
@@ -720,5 +751,22 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 		return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
 	}
 	*out = r;
+	return HC_OK;
+}
+
+int hc_periodic_universe_return(const struct hc_periodic *p, double ppy, double *ret,
+				struct hc_error *err)
+{
+	double l = 0;
+	size_t k;
+
+	for (k = 0; k < p->t; k++) {
+		if (!(p->raw_mean[k] > -1))
+			return hc_error(err, HC_EDATA,
+					"the equal-weight portfolio of the alive securities loses 100%% or more in period %zu",
+					k + 1);
+		l += log1p(p->raw_mean[k]);
+	}
+	*ret = expm1(l * ppy / (double)p->t);
 	return HC_OK;
 }

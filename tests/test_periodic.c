@@ -366,6 +366,27 @@ static void test_periodic_sampler_matches_exact(void **state)
 		else
 			assert_true(fabs(mean - exact) <= 4.5 * se);
 	}
+	/* Returns: holding everything alive is the equal-weight alive portfolio,
+	 * whose compound return hc_periodic_universe_return gives; a single
+	 * holding's return is its own compounded where alive. */
+	{
+		struct sampler_result *rr = NULL;
+		double ur;
+		size_t one[] = { 1, 45 };
+
+		so.want_returns = 1;
+		so.periods_per_year = 12;
+		so.paths = 50;
+		assert_int_equal(hc_periodic_sample(&rr, p, u, 0, one, 2, &so, &err), HC_OK);
+		assert_int_equal(hc_periodic_universe_return(p, 12, &ur, &err), HC_OK);
+		for (k = 0; k < 50; k++) {
+			assert_true(rel(rr->annual_return[k * 2 + 1], ur) < 1e-12);
+			assert_true(rr->annual_return[k * 2] != rr->annual_return[k * 2 + 1]);
+		}
+		hc_sampler_result_free(rr);
+		so.want_returns = 0;
+		so.paths = 4000;
+	}
 	/* Same seed on one thread: the same portfolios. */
 	so.threads = 1;
 	assert_int_equal(hc_periodic_sample(&r1, p, u, 0, sizes, ns, &so, &err), HC_OK);

@@ -63,6 +63,7 @@ struct hc_periodic {
 	size_t *alive;        /* t: M_t */
 	double *mean;         /* t: xbar_t */
 	double *cross;        /* t: s2_t, 0 when M_t < 2 */
+	double *raw_mean;     /* t: mean return of the securities alive (not centred); 0 when none */
 	size_t *rank;         /* t: index of M_t in level[] */
 	size_t nlevels;
 	size_t *level;        /* distinct alive counts, ascending */
@@ -160,7 +161,9 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
  * of the centred returns x_it: its mean over paths estimates
  * hc_periodic_expected_variance exactly (hc_sampler_summarise gives the
  * z-score).  sizes strictly ascending, each 1..p->m.  Uses opt->paths,
- * seed and threads (no returns, no strata: HC_EUSAGE).  Path k is seeded
+ * seed, threads and want_returns (annual_return: prod_t (1 + p_t)^(P/T) - 1
+ * with p_t the portfolio's mean return, rebalanced each period; a period
+ * with none alive adds nothing); strata are HC_EUSAGE.  Path k is seeded
  * from (seed, k), so output does not depend on threads.  A path costs
  * O(T x the order position where every period has n_max alive), at most
  * O(M T).  u and first must be those p was computed from.
@@ -169,6 +172,12 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 		       const struct universe *u, size_t first,
 		       const size_t *sizes, size_t nsizes,
 		       const struct sampler_options *opt, struct hc_error *err);
+
+/* Compound annualised return of the equal-weight portfolio of the alive
+ * securities, rebalanced every period: prod_t (1 + raw_mean_t)^(P/T) - 1.
+ * HC_EDATA when a period's return is -100% or worse. */
+int hc_periodic_universe_return(const struct hc_periodic *p, double periods_per_year,
+				double *ret, struct hc_error *err);
 
 #ifdef __cplusplus
 }

@@ -28,7 +28,7 @@
 /* ---- the shared groups --------------------------------------------------- */
 
 static const char *const format_words[] = { "table", "csv", "json", NULL };
-static const char *const missing_words[] = { "complete", "pairwise", NULL };
+static const char *const missing_words[] = { "complete", "pairwise", "alive", NULL };
 static const char *const layout_words[] = { "wide", "long", NULL };
 
 #define OUT(f) offsetof(struct cli_output, f)
@@ -50,8 +50,10 @@ static const struct cli_option universe_options[] = {
 	{ "percent", 0, CLI_FLAG, UNI(percent), NULL,
 	  "cells are percents (2.5 means 2.5%); a trailing % on a cell says the same", NULL, NULL },
 	{ "missing", 0, CLI_CHOICE, UNI(missing), NULL,
-	  "securities with gaps: drop them (complete), or keep those meeting --min-coverage "
-	  "and use pairwise-complete covariances (pairwise)", missing_words, "complete" },
+	  "securities with gaps: keep every one and let each period use the securities alive then, "
+	  "so listings and delistings stay in (alive); drop them, keeping survivors only (complete); "
+	  "or keep those meeting --min-coverage and use pairwise-complete covariances (pairwise)",
+	  missing_words, "alive" },
 	{ "min-coverage", 0, CLI_FRACTION, UNI(min_coverage), "F",
 	  "share of the periods a security must cover to be kept under --missing pairwise, "
 	  "as 0.8 or 80%", NULL, "80%" },
@@ -129,7 +131,7 @@ void cli_output_init(struct cli_output *o)
 void cli_universe_init(struct cli_universe *u)
 {
 	memset(u, 0, sizeof *u);
-	u->missing = CLI_MISSING_COMPLETE;
+	u->missing = CLI_MISSING_ALIVE;
 	u->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
 	u->layout = CLI_LAYOUT_WIDE;
 	u->periods_per_year = NAN;

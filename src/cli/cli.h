@@ -165,7 +165,7 @@ extern const struct cli_group cli_group_output;
 void cli_output_init(struct cli_output *o);
 
 /* Universe loading (see include/holdcount/universe.h for the meanings). */
-enum cli_missing { CLI_MISSING_COMPLETE = 0, CLI_MISSING_PAIRWISE = 1 };
+enum cli_missing { CLI_MISSING_COMPLETE = 0, CLI_MISSING_PAIRWISE = 1, CLI_MISSING_ALIVE = 2 };
 enum cli_layout { CLI_LAYOUT_WIDE = 0, CLI_LAYOUT_LONG = 1 };
 struct cli_universe {
 	int prices;                /* cells are prices */
@@ -567,5 +567,28 @@ CLI_DECLARE_COMMAND(enough);
 CLI_DECLARE_COMMAND(audit);
 CLI_DECLARE_COMMAND(report);
 CLI_DECLARE_COMMAND(rolling);
+
+/* ---- ragged histories (cli_ragged.c) ----------------------------------
+ * Under --missing alive (the default) a return history with gaps is read
+ * period by period (periodic.h): each period uses the securities alive
+ * then, so listings and delistings stay in the universe. */
+struct hc_periodic;
+struct sampler_result;
+
+/* 1 when u is read period by period: gaps left under --missing alive. */
+int cli_ragged(const struct cli_universe *cu, const struct universe *u);
+
+/* The per-period sums of every period of u; a message and the status on error. */
+int cli_ragged_sums(const char *cmd, const struct universe *u, struct hc_periodic **out);
+
+/* The fields that say how the universe was treated: "treatment", and for
+ * a ragged one the securities alive per period (min, median, max) and the
+ * securities complete over the sample. */
+int cli_ragged_fields(struct report *r, const struct hc_periodic *p);
+
+/* The sentence "treatment" carries for a ragged universe. */
+#define CLI_RAGGED_TREATMENT "return history with gaps, read period by period: each period uses the " \
+	"securities alive then (listed and not yet delisted), so delisted securities stay in " \
+	"(survivorship-free); --missing complete keeps only securities with no gap"
 
 #endif

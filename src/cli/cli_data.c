@@ -22,7 +22,8 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 	uo->values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
 	uo->layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
 	uo->percent = cu->percent;
-	uo->missing = cu->missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE : UNIVERSE_MISSING_COMPLETE;
+	uo->missing = cu->missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE
+		    : cu->missing == CLI_MISSING_ALIVE ? UNIVERSE_MISSING_KEEP : UNIVERSE_MISSING_COMPLETE;
 	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
 		return cli_usage_error(cmd, "--min-coverage must be above 0 and at most 1 (or 100%%), found %g",
 				       cu->min_coverage);

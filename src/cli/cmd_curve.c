@@ -13,6 +13,7 @@
 #include "holdcount/curve.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
+#include "holdcount/periodic.h"
 #include "holdcount/sampler.h"
 #include "holdcount/strata.h"
 #include "holdcount/universe.h"
@@ -304,6 +305,69 @@ static int curve_matrix(const struct curve_opts *o, const struct cli_args *a)
 	return rc;
 }
 
+/* A return history with gaps under --missing alive: the exact columns from
+ * per-period sums, random portfolios that at each period hold the first
+ * min(N, M_t) alive securities of a random order (periodic.h). */
+static int curve_ragged(const struct curve_opts *o, const struct universe *u, const char *path)
+{
+	struct hc_periodic *p = NULL;
+	struct curve *c = NULL;
+	struct report *r = NULL;
+	struct sampler_result *res = NULL;
+	struct sampler_options so;
+	struct cli_curve_source src;
+	struct moments mo;
+	struct hc_error err;
+	size_t *sizes = NULL, nsizes = 0;
+	int rc;
+
+	hc_error_clear(&err);
+	if (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)
+		return cli_usage_error("curve", "--strata draws from complete return series, and '%s' has gaps: "
+				       "--missing complete keeps only the securities with none", path);
+	if ((rc = cli_ragged_sums("curve", u, &p)))
+		return rc;
+	if ((rc = cli_sizes("curve", o->sam.sizes, p->m, &sizes, &nsizes)))
+		goto cleanup;
+	hc_periodic_moments(p, &mo, &err);
+	rc = hc_periodic_curve_exact(&c, p, sizes, nsizes, u->periods_per_year, &err);
+	if (rc == HC_OK && o->sam.paths > 0) {
+		hc_sampler_options_init(&so);
+		so.paths = o->sam.paths;
+		so.seed = o->sam.seed;
+		so.threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
+		rc = hc_periodic_sample(&res, p, u, 0, sizes, nsizes, &so, &err);
+		if (rc == HC_OK)
+			rc = hc_sampler_summarise(c, res, &err);
+		c->paths = o->sam.paths;
+		c->seed = o->sam.seed;
+	}
+	if (rc) {
+		rc = cli_fail("curve", &err);
+		goto cleanup;
+	}
+	src.path = u->source ? u->source : path;
+	src.input = "return history with gaps, read period by period";
+	src.m = p->m;
+	src.dropped = u->ndropped + (u->m - p->m);
+	src.periods = u->t;
+	src.annualised = 1;
+	r = hc_report_alloc();
+	if (!r || cli_curve_fields(r, &src, &mo, c) || cli_ragged_fields(r, p) || hc_report_add_cautions(r)) {
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail("curve", &err);
+		goto cleanup;
+	}
+	rc = cli_write_report("curve", &o->out, r);
+cleanup:
+	hc_report_free(r);
+	hc_sampler_result_free(res);
+	hc_curve_free(c);
+	hc_free(sizes);
+	hc_periodic_free(p);
+	return rc;
+}
+
 int cmd_curve(int argc, char **argv)
 {
 	struct curve_opts o;
@@ -340,6 +404,10 @@ int cmd_curve(int argc, char **argv)
 	rc = cli_load_universe("curve", &o.uni, a.positional[0], &u);
 	if (rc)
 		goto cleanup;
+	if (cli_ragged(&o.uni, u)) {
+		rc = curve_ragged(&o, u, a.positional[0]);
+		goto cleanup;
+	}
 	rc = cli_sizes("curve", o.sam.sizes, u->m, &sizes, &nsizes);
 	if (rc)
 		goto cleanup;
