@@ -16,6 +16,7 @@
 #include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
+#include "holdcount/periodic.h"
 #include "holdcount/rules.h"
 #include "holdcount/sampler.h"
 #include "holdcount/strata.h"
@@ -268,12 +269,13 @@ struct enough_run {
 	int sampled_bootstrapped;
 	size_t bootstrap_paths;
 	const char *no_interval;     /* why there is no interval, or NULL */
+	const struct hc_periodic *per; /* a ragged history's per-period sums, or NULL */
 };
 
 static int add_fields(struct report *r, const struct enough_run *e)
 {
 	double p = e->ppy, floor_var = e->cbar * p;
-	double uvar = e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
+	double uvar = e->per ? e->per->curve.a * p : e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
 	int sd_style = e->annualised ? REPORT_STYLE_PERCENT : REPORT_STYLE_PLAIN;
 	int bad = 0;
 
@@ -282,7 +284,10 @@ static int add_fields(struct report *r, const struct enough_run *e)
 		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
 		bad |= hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)e->u->ndropped);
 		bad |= hc_report_add_int(r, "periods", "periods", (long long)e->u->t);
-		if (e->u->has_missing)
+		if (e->per) {
+			bad |= hc_report_add_text(r, "input", "input", "return history with gaps, read period by period");
+			bad |= cli_ragged_fields(r, e->per);
+		} else if (e->u->has_missing)
 			bad |= hc_report_add_text(r, "input", "input", e->ps && e->ps->repaired
 				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
 				  "positive semi-definite matrix, for every rule but shortfall"
@@ -338,6 +343,10 @@ static int add_notes(struct report *r, const struct enough_run *e)
 		bad |= hc_report_add_note(r, text);
 	} else if (e->no_interval)
 		bad |= hc_report_add_note(r, e->no_interval);
+	if (e->per && e->bootstrapped)
+		bad |= hc_report_add_note(r, "ragged history: each replicate sums the drawn periods' cross-sections "
+				       "(O(T) a replicate) with every security centred on its full-sample mean, not "
+				       "re-centred on the replicate; --bootstrap-sampled does not apply to it");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -410,6 +419,7 @@ struct data_run {
 	struct cli_strata *strat;
 	int quiet;
 	int stages;                /* announce each long step (cli_stage) */
+	const struct hc_periodic *per; /* a ragged history read period by period, or NULL */
 };
 
 /* Options that contradict the rules chosen (before any file is read). */
@@ -551,7 +561,7 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 		      const struct rules_config *cfg, struct cli_psd *ps, struct enough_run *e,
 		      struct rule_result *res, size_t *nres)
 {
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0 };
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0, NULL };
 	struct covmatrix *cm = NULL;
 	struct rules_input in;
 	struct moments mo;
@@ -599,6 +609,111 @@ cleanup:
 	return rc;
 }
 
+/* Ragged histories (--missing alive): the band and shortfall rules from
+ * ragged random portfolios (periodic.h) over sizes 1..K, K growing as
+ * hc_rules_sampled's stages do until both are met or K reaches M. */
+static int ragged_sampled(const struct data_run *d, const struct universe *u, const struct rules_config *cfg,
+			  struct enough_run *e, struct rule_result *res, size_t nres)
+{
+	const struct hc_periodic *p = d->per;
+	struct sampler_options so;
+	struct sampler_result *r = NULL;
+	struct rule_result sr[2];
+	struct hc_error err;
+	size_t K = RULES_SAMPLED_FIRST_K, *sizes = NULL, k, j;
+	double uret = 0;
+	int rc = HC_OK, want_short = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
+
+	hc_error_clear(&err);
+	if (want_short && (rc = hc_periodic_universe_return(p, u->periods_per_year, &uret, &err)))
+		return cli_fail(d->cmd, &err);
+	if (!(sizes = hc_malloc(p->m * sizeof *sizes)))
+		return cli_fail(d->cmd, &(struct hc_error){ HC_ENOMEM, "out of memory for the sampled sizes" });
+	for (k = 0; k < p->m; k++)
+		sizes[k] = k + 1;
+	hc_sampler_options_init(&so);
+	so.paths = d->smp->paths;
+	so.seed = d->smp->seed;
+	so.threads = (int)d->smp->threads;
+	so.periods_per_year = u->periods_per_year;
+	so.want_returns = want_short;
+	if (d->stages)
+		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
+	for (;;) {
+		int all_met = 1;
+
+		if (K > p->m)
+			K = p->m;
+		hc_sampler_result_free(r);
+		r = NULL;
+		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, &err);
+		for (k = 0; rc == HC_OK && k < 2; k++) {
+			int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
+
+			if (!(cfg->selected & RULES_FLAG(rule)))
+				continue;
+			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, u->periods_per_year, &sr[k], &err)
+						: hc_rules_shortfall(cfg, r, uret, &sr[k], &err);
+			all_met &= rc == HC_OK && sr[k].met;
+		}
+		if (rc || all_met || K == p->m)
+			break;
+		K *= RULES_SAMPLED_GROWTH;
+	}
+	if (rc == HC_OK)
+		for (k = 0; k < 2; k++)
+			for (j = 0; j < nres; j++)
+				if (res[j].rule == (k == 0 ? RULES_BAND : RULES_SHORTFALL) &&
+				    (cfg->selected & RULES_FLAG(res[j].rule)))
+					res[j] = sr[k];
+	e->paths = d->smp->paths;
+	e->seed = d->smp->seed;
+	e->sampled_sizes = K;
+	hc_sampler_result_free(r);
+	hc_free(sizes);
+	return rc ? cli_fail(d->cmd, &err) : HC_OK;
+}
+
+/* Ragged histories: every exact rule on the per-period curve, the sampled
+ * rules from ragged portfolios, the interval from O(T) replicates. */
+static int run_ragged(const struct data_run *d, const struct universe *u, const struct rules_config *cfg,
+		      struct enough_run *e, struct rule_result *res, size_t nres)
+{
+	struct bootstrap_options bo;
+	struct hc_error err;
+	size_t j;
+	int rc = HC_OK;
+
+	hc_error_clear(&err);
+	for (j = 0; j < nres && rc == HC_OK; j++)
+		if (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
+			rc = hc_periodic_rule(cfg, res[j].rule, &d->per->curve, u->periods_per_year, &res[j], &err);
+	if (rc)
+		return cli_fail(d->cmd, &err);
+	if ((cfg->selected & RULES_SAMPLED_MASK) && (rc = ragged_sampled(d, u, cfg, e, res, nres)))
+		return rc;
+	if (d->rul->bootstrap == 0) {
+		e->no_interval = "no interval: --bootstrap 0";
+		return HC_OK;
+	}
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = d->rul->bootstrap;
+	bo.kind = d->rul->bootstrap_kind;
+	bo.block_length = d->rul->block_length;
+	bo.seed = d->smp->seed;
+	bo.threads = (int)d->smp->threads;
+	if (d->stages)
+		cli_stage(d->cmd, d->quiet, "bootstrap of the exact rules");
+	rc = hc_periodic_bootstrap(cfg, d->per, &bo, u->periods_per_year, res, nres, &err);
+	if (rc)
+		return cli_fail(d->cmd, &err);
+	e->bootstrapped = 1;
+	e->replicates = bo.replicates;
+	e->block_length = bo.block_length ? bo.block_length : hc_bootstrap_default_block_length(u->t);
+	e->kind = bo.kind;
+	return HC_OK;
+}
+
 /* Every selected rule on a return history: exact, sampled, bootstrap.
  * With gaps left (--missing pairwise) the band rule draws from cm, the
  * pairwise-complete covariances (NULL when band is not selected). */
@@ -626,6 +741,11 @@ static int run_data(const struct data_run *d, const struct universe *u, const st
 	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
 	if (rc)
 		return cli_fail(d->cmd, &err);
+	if (d->per) {
+		e->per = d->per;
+		e->m = d->per->m;
+		return run_ragged(d, u, cfg, e, res, *nres);
+	}
 	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
 		for (size_t j = 0; j < *nres; j++)
 			if (res[j].rule == RULES_SHORTFALL)
@@ -672,7 +792,7 @@ int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct c
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out)
 {
-	struct data_run d = { cmd, rul, smp, strat, quiet, stages };
+	struct data_run d = { cmd, rul, smp, strat, quiet, stages, NULL };
 
 	return enough_data(&d, u, NULL, NULL, mo, cfg, res, nres, out);
 }
@@ -682,8 +802,9 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 		       struct cli_psd *ps, struct universe **up, struct rule_result *res, size_t *nres,
 		       struct report **out)
 {
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0 };
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0, NULL };
 	struct covmatrix *cm = NULL;
+	struct hc_periodic *per = NULL;
 	struct moments mo;
 	struct hc_error err;
 	int rc;
@@ -693,6 +814,19 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 	rc = cli_load_universe("enough", &o->uni, path, up);
 	if (rc)
 		return rc;
+	if (cli_ragged(&o->uni, *up)) {
+		if (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)
+			return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps: "
+					       "--missing complete keeps only the securities with none", path);
+		if ((rc = cli_ragged_sums("enough", *up, &per)))
+			return rc;
+		hc_error_clear(&err);
+		hc_periodic_moments(per, &mo, &err);
+		d.per = per;
+		rc = enough_data(&d, *up, NULL, NULL, &mo, cfg, res, nres, out);
+		hc_periodic_free(per);
+		return rc;
+	}
 	cli_psd_init(ps, o->uni.repair_psd, (*up)->periods_per_year, 1, "the pairwise-complete covariance matrix");
 	/* With gaps left the band rule draws from the pairwise-complete
 	 * covariances, and --repair-psd makes the exact rules use the repair too. */
