@@ -474,9 +474,11 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
  * Prints its error; returns the exit status. */
 struct rule_result;
 struct cli_strata;
+struct hc_periodic;
 int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
 		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
 		    const struct moments *mo, const struct rules_config *cfg,
+		    const struct hc_periodic *per,
 		    struct rule_result *res, size_t *nres, struct report **out);
 
 /* After hc_rolling_report: each rule's parameters as fields and the note on
@@ -517,6 +519,13 @@ extern const struct cli_group cli_group_policy;
 struct holdings;
 struct holdings_labels;
 struct audit_result;
+/* The same for a return history with gaps: the pairwise-complete matrix,
+ * built into *cm (the caller frees it) and repaired when needed. */
+struct covmatrix;
+int cli_audit_data_gaps(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+			const struct cli_sampling *sam, int quiet, const struct universe *u,
+			struct covmatrix **cm, struct holdings **h, struct holdings_labels **labels,
+			struct audit_result **res, struct report **out);
 int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
 		   const struct cli_sampling *sam, int quiet, const struct universe *u,
 		   const struct moments *mo, struct holdings **h, struct holdings_labels **labels,

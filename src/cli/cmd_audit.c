@@ -299,7 +299,12 @@ static int pairwise_matrix(const struct audit_opts *o, const struct universe *u,
 	struct hc_error err;
 	int rc;
 
-	cli_psd_init(ps, o->uni.repair_psd, u->periods_per_year, 1, "the pairwise-complete covariance matrix");
+	/* Under --missing alive (the default) a fund's variance w'Aw still needs
+	 * the M x M matrix: its pairwise-complete covariances, repaired when
+	 * they are not positive semi-definite (said in the output), rather
+	 * than refusing a history a practitioner would reasonably give. */
+	cli_psd_init(ps, o->uni.repair_psd || o->uni.missing == CLI_MISSING_ALIVE, u->periods_per_year, 1,
+		     "the pairwise-complete covariance matrix");
 	rc = cli_pairwise_matrix("audit", u, path,
 				 "the pairwise-complete covariances are not positive semi-definite, so some fund's "
 				 "variance w'Aw could come out negative; " CLI_PSD_HINT, ps, cm);
@@ -393,5 +398,33 @@ cleanup:
 	hc_covmatrix_free(cm);
 	hc_universe_free(u);
 	cli_args_release(&a);
+	return rc;
+}
+
+/* A return history with gaps inside `holdcount report` (--missing alive):
+ * the funds' risk from the pairwise-complete covariances, repaired when
+ * they are not positive semi-definite (said in the audit's report). */
+int cli_audit_data_gaps(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+			const struct cli_sampling *sam, int quiet, const struct universe *u,
+			struct covmatrix **cm, struct holdings **h, struct holdings_labels **labels,
+			struct audit_result **res, struct report **out)
+{
+	struct audit_opts o;
+	struct audit_matrix am;
+	struct cli_psd ps;
+	struct moments mo;
+	int rc;
+
+	memset(&o, 0, sizeof o);
+	cli_universe_init(&o.uni);
+	rc = pairwise_matrix(&o, u, u->source ? u->source : "", &ps, cm, &mo, &am);
+	if (rc == HC_OK)
+		rc = audit_data(cmd, ho, po, sam, quiet, u, &am, &mo, h, labels, res, out);
+	if (rc == HC_OK && cli_psd_fields(*out, &ps) != HC_OK) {
+		struct hc_error err;
+
+		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+		rc = cli_fail(cmd, &err);
+	}
 	return rc;
 }

@@ -15,6 +15,7 @@
 #include "holdcount/covmatrix.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
+#include "holdcount/periodic.h"
 #include "holdcount/universe.h"
 
 struct describe_opts {
@@ -136,7 +137,7 @@ static int add_averages(struct report *r, const struct moments *mo, double p)
 }
 
 static int build(struct report *r, const struct universe *u, const struct moments *mo,
-		 const struct cli_psd *ps)
+		 const struct cli_psd *ps, const struct hc_periodic *per)
 {
 	double p = u->periods_per_year;
 	char first[16] = "", last[16] = "";
@@ -156,9 +157,11 @@ static int build(struct report *r, const struct universe *u, const struct moment
 	    hc_report_add_bool(r, "periods_per_year_detected", "detected from the dates",
 			    u->periods_detected) ||
 	    hc_report_add_text(r, "covariances", "covariances",
-			    ps->repaired ? "pairwise-complete (data with gaps), repaired to the nearest positive "
+			    per ? "none needed: per-period sums (data with gaps, read period by period)"
+			    : ps->repaired ? "pairwise-complete (data with gaps), repaired to the nearest positive "
 					   "semi-definite matrix"
 			    : u->has_missing ? "pairwise-complete (data with gaps)" : "complete data") ||
+	    (per && cli_ragged_fields(r, per)) ||
 	    add_averages(r, mo, p))
 		return HC_ENOMEM;
 	if (add_kept(r, u) || add_dropped(r, u) || cli_psd_fields(r, ps))
@@ -262,6 +265,7 @@ int cmd_describe(int argc, char **argv)
 	struct report *r = NULL;
 	struct cli_psd ps;
 	struct moments mo;
+	struct hc_periodic *per = NULL;
 	struct hc_error err;
 	int rc;
 
@@ -289,7 +293,11 @@ int cmd_describe(int argc, char **argv)
 	cli_psd_init(&ps, o.uni.repair_psd, u->periods_per_year, 1, "the pairwise-complete covariance matrix");
 	/* --repair-psd with gaps left: the averages of the repaired matrix,
 	 * which is what curve, enough and audit then use. */
-	if (ps.asked && u->has_missing) {
+	if (cli_ragged(&o.uni, u) && !ps.asked) {
+		if ((rc = cli_ragged_sums("describe", u, &per)))
+			goto cleanup;
+		rc = hc_periodic_moments(per, &mo, &err);
+	} else if (ps.asked && u->has_missing) {
 		rc = cli_pairwise_matrix("describe", u, a.positional[0], "", &ps, &cm);
 		if (rc)
 			goto cleanup;
@@ -301,7 +309,7 @@ int cmd_describe(int argc, char **argv)
 		goto cleanup;
 	}
 	r = hc_report_alloc();
-	if (!r || build(r, u, &mo, &ps)) {
+	if (!r || build(r, u, &mo, &ps, per)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("describe", &err);
 		goto cleanup;
@@ -310,6 +318,7 @@ int cmd_describe(int argc, char **argv)
 cleanup:
 	hc_report_free(r);
 	hc_covmatrix_free(cm);
+	hc_periodic_free(per);
 	hc_universe_free(u);
 	cli_args_release(&a);
 	return rc;

@@ -790,9 +790,10 @@ static int enough_data(const struct data_run *d, const struct universe *u, const
 int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
 		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
 		    const struct moments *mo, const struct rules_config *cfg,
+		    const struct hc_periodic *per,
 		    struct rule_result *res, size_t *nres, struct report **out)
 {
-	struct data_run d = { cmd, rul, smp, strat, quiet, stages, NULL };
+	struct data_run d = { cmd, rul, smp, strat, quiet, stages, per };
 
 	return enough_data(&d, u, NULL, NULL, mo, cfg, res, nres, out);
 }

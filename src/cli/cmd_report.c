@@ -31,10 +31,12 @@
 #include "cli.h"
 #include "holdcount/audit.h"
 #include "holdcount/bootstrap.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
 #include "holdcount/holdings.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
+#include "holdcount/periodic.h"
 #include "holdcount/outfile.h"
 #include "holdcount/plots.h"
 #include "holdcount/reportdir.h"
@@ -151,6 +153,8 @@ struct run {
 	struct universe *every_security;   /* rolling windows: the file with no security dropped */
 	struct rolling_result *rolling;
 	struct report *rep_rolling;
+	struct hc_periodic *per;           /* a history with gaps read period by period, or NULL */
+	struct covmatrix *audit_cm;        /* its pairwise matrix for the funds' risk, or NULL */
 	int rendered;
 	char gnuplot[PATH_MAX];
 };
@@ -171,6 +175,8 @@ static void run_release(struct run *r)
 	cli_strata_release(&r->strat);
 	hc_curve_free(r->full);
 	hc_curve_free(r->curve);
+	hc_periodic_free(r->per);
+	hc_covmatrix_free(r->audit_cm);
 	hc_universe_free(r->u);
 }
 
@@ -232,6 +238,26 @@ static int load_every_security(const struct report_opts *o, const char *path, st
 	return hc_universe_load(out, path, &uo, &err) ? cli_fail("report", &err) : HC_OK;
 }
 
+/* Ragged random portfolios at the curve's counts (periodic.h). */
+static int sample_ragged(struct run *r, const size_t *sizes, size_t nsizes, struct hc_error *err)
+{
+	struct sampler_options so;
+	struct sampler_result *res = NULL;
+	int rc;
+
+	hc_sampler_options_init(&so);
+	so.paths = r->o->sam.paths;
+	so.seed = r->o->sam.seed;
+	so.threads = r->o->sam.threads > INT_MAX ? INT_MAX : (int)r->o->sam.threads;
+	rc = hc_periodic_sample(&res, r->per, r->u, 0, sizes, nsizes, &so, err);
+	if (rc == HC_OK)
+		rc = hc_sampler_summarise(r->curve, res, err);
+	hc_sampler_result_free(res);
+	r->curve->paths = so.paths;
+	r->curve->seed = so.seed;
+	return rc;
+}
+
 /* The curve as `holdcount curve` computes and reports it: exact at the
  * grid, sampled there; and the exact curve at every count for the plots. */
 static int compute_curve(struct run *r)
@@ -241,28 +267,35 @@ static int compute_curve(struct run *r)
 	size_t *sizes = NULL, nsizes = 0, i;
 	int rc;
 
-	if ((rc = cli_sizes("report", r->o->sam.sizes, r->u->m, &sizes, &nsizes)) != HC_OK)
+	size_t m = r->per ? r->per->m : r->u->m;
+
+	if ((rc = cli_sizes("report", r->o->sam.sizes, m, &sizes, &nsizes)) != HC_OK)
 		return rc;
 	hc_error_clear(&err);
-	rc = hc_curve_exact(&r->curve, &r->mo, sizes, nsizes, r->u->periods_per_year, &err);
+	rc = r->per ? hc_periodic_curve_exact(&r->curve, r->per, sizes, nsizes, r->u->periods_per_year, &err)
+		    : hc_curve_exact(&r->curve, &r->mo, sizes, nsizes, r->u->periods_per_year, &err);
 	if (rc == HC_OK && r->o->sam.paths > 0) {
 		cli_stage("report", r->o->quiet, "sampling random portfolios at the curve's counts");
-		rc = cli_curve_sample(&r->o->sam, r->o->quiet, r->u, NULL, r->curve, sizes, nsizes, &err);
+		if (r->per)
+			rc = sample_ragged(r, sizes, nsizes, &err);
+		else
+			rc = cli_curve_sample(&r->o->sam, r->o->quiet, r->u, NULL, r->curve, sizes, nsizes, &err);
 	}
 	hc_free(sizes);
 	sizes = NULL;
-	if (rc == HC_OK && !(sizes = hc_calloc(r->u->m, sizeof *sizes)))
+	if (rc == HC_OK && !(sizes = hc_calloc(m, sizeof *sizes)))
 		rc = hc_error(&err, HC_ENOMEM, "out of memory for the count grid");
-	for (i = 0; rc == HC_OK && i < r->u->m; i++)
+	for (i = 0; rc == HC_OK && i < m; i++)
 		sizes[i] = i + 1;
 	if (rc == HC_OK)
-		rc = hc_curve_exact(&r->full, &r->mo, sizes, r->u->m, r->u->periods_per_year, &err);
+		rc = r->per ? hc_periodic_curve_exact(&r->full, r->per, sizes, m, r->u->periods_per_year, &err)
+			    : hc_curve_exact(&r->full, &r->mo, sizes, m, r->u->periods_per_year, &err);
 	hc_free(sizes);
 	if (rc != HC_OK)
 		return cli_fail("report", &err);
 	src.path = r->u->source ? r->u->source : r->universe_path;
-	src.input = "return history";
-	src.m = r->u->m;
+	src.input = r->per ? "return history with gaps, read period by period" : "return history";
+	src.m = m;
 	src.dropped = r->u->ndropped;
 	src.periods = r->u->t;
 	src.annualised = 1;
@@ -290,6 +323,8 @@ static int compute_rolling(struct run *r)
 	ro.step = r->step;
 	ro.rules = r->cfg;
 	ro.rules.selected &= RULES_EXACT_MASK;
+	if (r->per)
+		ro.missing = UNIVERSE_MISSING_KEEP;
 	cli_progress_init(&prog, "windows", "windows", r->o->quiet);
 	ro.progress = cli_progress_update;
 	ro.progress_ctx = &prog;
@@ -313,17 +348,23 @@ static int compute(struct run *r)
 
 	stage(r->o, "exact curve");
 	hc_error_clear(&err);
-	if (hc_moments_from_universe(&r->mo, r->u, &err) != HC_OK)
+	if (cli_ragged(&r->o->uni, r->u)) {
+		if ((rc = cli_ragged_sums("report", r->u, &r->per)) != HC_OK)
+			return rc;
+		hc_periodic_moments(r->per, &r->mo, &err);
+	} else if (hc_moments_from_universe(&r->mo, r->u, &err) != HC_OK)
 		return cli_fail("report", &err);
 	if ((rc = compute_curve(r)) != HC_OK)
 		return rc;
 	stage(r->o, "exact rules");
 	rc = cli_enough_data("report", &r->o->rul, &r->o->sam, &r->strat, r->o->quiet, 1, r->u, &r->mo, &r->cfg,
-			     r->rules, &r->nrules, &r->rep_enough);
+			     r->per, r->rules, &r->nrules, &r->rep_enough);
 	if (rc == HC_OK && r->hold.holdings) {
 		stage(r->o, "audit of the funds");
-		rc = cli_audit_data("report", &r->hold, &r->o->pol, &r->o->sam, r->o->quiet, r->u, &r->mo, &r->h,
-				    &r->labels, &r->audit, &r->rep_audit);
+		rc = r->per ? cli_audit_data_gaps("report", &r->hold, &r->o->pol, &r->o->sam, r->o->quiet, r->u,
+						  &r->audit_cm, &r->h, &r->labels, &r->audit, &r->rep_audit)
+			    : cli_audit_data("report", &r->hold, &r->o->pol, &r->o->sam, r->o->quiet, r->u, &r->mo,
+					     &r->h, &r->labels, &r->audit, &r->rep_audit);
 	}
 	if (rc == HC_OK && r->window) {
 		stage(r->o, "rolling windows");
@@ -364,7 +405,8 @@ static int build_universe(struct run *r)
 	    hc_report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
 			    r->curve->floor_variance >= 0 ? sqrt(r->curve->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
 	    hc_report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
-			    REPORT_STYLE_PERCENT))
+			    REPORT_STYLE_PERCENT) ||
+	    cli_ragged_fields(rep, r->per))
 		return HC_ENOMEM;
 	if (r->u->ndropped) {
 		t = hc_report_add_table(rep, "dropped", "securities dropped");
@@ -660,8 +702,12 @@ static void md_universe(FILE *fp, const struct run *r)
 {
 	static const char *const fields[][2] = {
 		{ "source", "source" }, { "securities_read", "securities read" },
-		{ "securities", "securities kept (complete over the sample)" },
-		{ "securities_dropped", "securities dropped" }, { "periods", "periods" },
+		{ "securities", "securities kept" },
+		{ "securities_dropped", "securities dropped" }, { "treatment", "treatment" },
+		{ "alive_min", "securities alive per period, fewest" },
+		{ "alive_median", "securities alive per period, median" },
+		{ "alive_max", "securities alive per period, most" },
+		{ "securities_complete", "securities with no gap" }, { "periods", "periods" },
 		{ "first_date", "first period" }, { "last_date", "last period" },
 		{ "periods_per_year", "periods per year" }, { "annualisation", "annualisation" },
 		{ "average_variance", "average variance (a year)" }, { "average_covariance", "average covariance (a year)" },

@@ -115,7 +115,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 	ro->step = o->step;
 	ro->refresh = o->refresh;
 	ro->missing = o->uni.missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE
-							     : UNIVERSE_MISSING_COMPLETE;
+		    : o->uni.missing == CLI_MISSING_ALIVE ? UNIVERSE_MISSING_KEEP : UNIVERSE_MISSING_COMPLETE;
 	ro->min_coverage = o->uni.min_coverage;
 	if (o->rules) {
 		if (hc_rules_parse_list(o->rules, &mask, &err))
