@@ -706,7 +706,8 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 {
 	struct sampler_result *r;
 	size_t j, total;
-	int failed = 0;
+	int failed = 0, stop = 0;
+	size_t done = 0;
 
 	*out = NULL;
 	if (opt->paths == 0 || opt->strata || nsizes == 0)
@@ -737,12 +738,27 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 
 		failed |= !ok;
 #pragma omp for schedule(dynamic, 4)
-		for (k = 0; k < (long)opt->paths; k++)
-			if (ok)
-				ragged_path(&w, p, u, first, sizes, nsizes, path_seed(opt->seed, (size_t)k),
-					    r->variance + (size_t)k * nsizes,
-					    r->annual_return ? r->annual_return + (size_t)k * nsizes : NULL,
-					    opt->periods_per_year);
+		for (k = 0; k < (long)opt->paths; k++) {
+			size_t now;
+			int halt;
+
+#pragma omp atomic read
+			halt = stop;
+			if (!ok || halt)
+				continue;
+			ragged_path(&w, p, u, first, sizes, nsizes, path_seed(opt->seed, (size_t)k),
+				    r->variance + (size_t)k * nsizes,
+				    r->annual_return ? r->annual_return + (size_t)k * nsizes : NULL,
+				    opt->periods_per_year);
+#pragma omp atomic capture
+			now = ++done;
+			/* progress from one thread only, as the callback expects */
+			if (opt->progress && omp_get_thread_num() == 0 &&
+			    opt->progress(opt->progress_ctx, now, opt->paths)) {
+#pragma omp atomic write
+				stop = 1;
+			}
+		}
 		if (ok)
 			ws_release(&w);
 	}
@@ -750,6 +766,12 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 		hc_sampler_result_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
 	}
+	if (stop) {
+		hc_sampler_result_free(r);
+		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", done, opt->paths);
+	}
+	if (opt->progress)
+		opt->progress(opt->progress_ctx, opt->paths, opt->paths);
 	*out = r;
 	return HC_OK;
 }

@@ -72,7 +72,7 @@ with open(sys.argv[1], "w") as out:
         out.write("%04d-%02d," % (1991 + k // 12, k % 12 + 1) +
                   ",".join("" if np.isnan(v) else repr(float(v)) for v in x[k]) + "\n")
 PY
-"$HC" rolling "$TMP/u.csv" --window 36 --step 5 --format csv > "$TMP/u-roll.csv"
+"$HC" rolling "$TMP/u.csv" --missing complete --window 36 --step 5 --format csv > "$TMP/u-roll.csv"
 "$PY" - "$TMP/u.csv" "$TMP/u-roll.csv" <<'PY' || fail=1
 import csv, math, sys
 import numpy as np
@@ -87,7 +87,8 @@ if len(out) != (len(x) - W) // S + 1:
 def count(meets, m):
     return next((n for n in range(1, m + 1) if meets(n)), None)
 for j, row in enumerate(out):
-    a = j * S
+    # anchored at the last period: the newest window ends at the last date
+    a = (len(x) - W) - (len(out) - 1 - j) * S
     win = x[a:a + W]
     keep = ~np.isnan(win).any(axis=0)
     y = win[:, keep]

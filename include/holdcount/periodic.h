@@ -161,7 +161,7 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
  * of the centred returns x_it: its mean over paths estimates
  * hc_periodic_expected_variance exactly (hc_sampler_summarise gives the
  * z-score).  sizes strictly ascending, each 1..p->m.  Uses opt->paths,
- * seed, threads and want_returns (annual_return: prod_t (1 + p_t)^(P/T) - 1
+ * seed, threads, progress (from one thread; nonzero stops: HC_EINTERRUPT) and want_returns (annual_return: prod_t (1 + p_t)^(P/T) - 1
  * with p_t the portfolio's mean return, rebalanced each period; a period
  * with none alive adds nothing); strata are HC_EUSAGE.  Path k is seeded
  * from (seed, k), so output does not depend on threads.  A path costs

@@ -315,6 +315,7 @@ static int curve_ragged(const struct curve_opts *o, const struct universe *u, co
 	struct report *r = NULL;
 	struct sampler_result *res = NULL;
 	struct sampler_options so;
+	struct cli_progress prog;
 	struct cli_curve_source src;
 	struct moments mo;
 	struct hc_error err;
@@ -336,7 +337,11 @@ static int curve_ragged(const struct curve_opts *o, const struct universe *u, co
 		so.paths = o->sam.paths;
 		so.seed = o->sam.seed;
 		so.threads = o->sam.threads > INT_MAX ? INT_MAX : (int)o->sam.threads;
+		cli_progress_init(&prog, "sampling", "paths", o->out.quiet);
+		so.progress = cli_progress_update;
+		so.progress_ctx = &prog;
 		rc = hc_periodic_sample(&res, p, u, 0, sizes, nsizes, &so, &err);
+		cli_progress_finish(&prog);
 		if (rc == HC_OK)
 			rc = hc_sampler_summarise(c, res, &err);
 		c->paths = o->sam.paths;
@@ -353,7 +358,8 @@ static int curve_ragged(const struct curve_opts *o, const struct universe *u, co
 	src.periods = u->t;
 	src.annualised = 1;
 	r = hc_report_alloc();
-	if (!r || cli_curve_fields(r, &src, &mo, c) || cli_ragged_fields(r, p) || hc_report_add_cautions(r)) {
+	if (!r || cli_curve_fields(r, &src, &mo, c) || cli_ragged_fields(r, p) || add_strata(r, o, NULL) ||
+	    hc_report_add_cautions(r)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("curve", &err);
 		goto cleanup;

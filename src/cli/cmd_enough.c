@@ -344,9 +344,10 @@ static int add_notes(struct report *r, const struct enough_run *e)
 	} else if (e->no_interval)
 		bad |= hc_report_add_note(r, e->no_interval);
 	if (e->per && e->bootstrapped)
-		bad |= hc_report_add_note(r, "ragged history: each replicate sums the drawn periods' cross-sections "
-				       "(O(T) a replicate) with every security centred on its full-sample mean, not "
-				       "re-centred on the replicate; --bootstrap-sampled does not apply to it");
+		bad |= hc_report_add_note(r, "ragged history: each replicate of the exact rules sums the drawn "
+				       "periods' cross-sections (O(T) a replicate) with every security centred on its "
+				       "full-sample mean, not re-centred on the replicate; --bootstrap-sampled re-sums "
+				       "and re-centres each replicate before sampling it");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -609,36 +610,28 @@ cleanup:
 	return rc;
 }
 
-/* Ragged histories (--missing alive): the band and shortfall rules from
- * ragged random portfolios (periodic.h) over sizes 1..K, K growing as
- * hc_rules_sampled's stages do until both are met or K reaches M. */
-static int ragged_sampled(const struct data_run *d, const struct universe *u, const struct rules_config *cfg,
-			  struct enough_run *e, struct rule_result *res, size_t nres)
+/* Ragged histories (--missing alive): the band and shortfall rules (those
+ * selected) from ragged random portfolios (periodic.h) over sizes 1..K, K
+ * growing as hc_rules_sampled's stages do until both are met or K reaches
+ * M.  sr[0] band, sr[1] shortfall; *largest gets the last K. */
+static int ragged_stages(const struct hc_periodic *p, const struct universe *u, const struct rules_config *cfg,
+			 const struct sampler_options *base, struct rule_result sr[2], size_t *largest,
+			 struct hc_error *err)
 {
-	const struct hc_periodic *p = d->per;
-	struct sampler_options so;
+	struct sampler_options so = *base;
 	struct sampler_result *r = NULL;
-	struct rule_result sr[2];
-	struct hc_error err;
-	size_t K = RULES_SAMPLED_FIRST_K, *sizes = NULL, k, j;
+	size_t K = RULES_SAMPLED_FIRST_K, *sizes, k;
 	double uret = 0;
-	int rc = HC_OK, want_short = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
+	int rc = HC_OK;
 
-	hc_error_clear(&err);
-	if (want_short && (rc = hc_periodic_universe_return(p, u->periods_per_year, &uret, &err)))
-		return cli_fail(d->cmd, &err);
+	so.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
+	so.periods_per_year = u->periods_per_year;
+	if (so.want_returns && (rc = hc_periodic_universe_return(p, u->periods_per_year, &uret, err)))
+		return rc;
 	if (!(sizes = hc_malloc(p->m * sizeof *sizes)))
-		return cli_fail(d->cmd, &(struct hc_error){ HC_ENOMEM, "out of memory for the sampled sizes" });
+		return hc_error(err, HC_ENOMEM, "out of memory for the sampled sizes");
 	for (k = 0; k < p->m; k++)
 		sizes[k] = k + 1;
-	hc_sampler_options_init(&so);
-	so.paths = d->smp->paths;
-	so.seed = d->smp->seed;
-	so.threads = (int)d->smp->threads;
-	so.periods_per_year = u->periods_per_year;
-	so.want_returns = want_short;
-	if (d->stages)
-		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
 	for (;;) {
 		int all_met = 1;
 
@@ -646,32 +639,124 @@ static int ragged_sampled(const struct data_run *d, const struct universe *u, co
 			K = p->m;
 		hc_sampler_result_free(r);
 		r = NULL;
-		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, &err);
+		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, err);
 		for (k = 0; rc == HC_OK && k < 2; k++) {
 			int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
 
 			if (!(cfg->selected & RULES_FLAG(rule)))
 				continue;
-			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, u->periods_per_year, &sr[k], &err)
-						: hc_rules_shortfall(cfg, r, uret, &sr[k], &err);
+			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, u->periods_per_year, &sr[k], err)
+						: hc_rules_shortfall(cfg, r, uret, &sr[k], err);
 			all_met &= rc == HC_OK && sr[k].met;
 		}
 		if (rc || all_met || K == p->m)
 			break;
 		K *= RULES_SAMPLED_GROWTH;
 	}
-	if (rc == HC_OK)
-		for (k = 0; k < 2; k++)
-			for (j = 0; j < nres; j++)
-				if (res[j].rule == (k == 0 ? RULES_BAND : RULES_SHORTFALL) &&
-				    (cfg->selected & RULES_FLAG(res[j].rule)))
-					res[j] = sr[k];
-	e->paths = d->smp->paths;
-	e->seed = d->smp->seed;
-	e->sampled_sizes = K;
+	*largest = K;
 	hc_sampler_result_free(r);
 	hc_free(sizes);
-	return rc ? cli_fail(d->cmd, &err) : HC_OK;
+	return rc;
+}
+
+static int ragged_sampled(const struct data_run *d, const struct universe *u, const struct rules_config *cfg,
+			  struct enough_run *e, struct rule_result *res, size_t nres)
+{
+	struct sampler_options so;
+	struct rule_result sr[2];
+	struct cli_progress prog;
+	struct hc_error err;
+	size_t k, j;
+	int rc;
+
+	hc_error_clear(&err);
+	hc_sampler_options_init(&so);
+	so.paths = d->smp->paths;
+	so.seed = d->smp->seed;
+	so.threads = (int)d->smp->threads;
+	if (d->stages)
+		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
+	cli_progress_init(&prog, "sampling", "paths", d->quiet);
+	so.progress = cli_progress_update;
+	so.progress_ctx = &prog;
+	rc = ragged_stages(d->per, u, cfg, &so, sr, &e->sampled_sizes, &err);
+	cli_progress_finish(&prog);
+	if (rc)
+		return cli_fail(d->cmd, &err);
+	for (k = 0; k < 2; k++)
+		for (j = 0; j < nres; j++)
+			if (res[j].rule == (k == 0 ? RULES_BAND : RULES_SHORTFALL) && (cfg->selected & RULES_FLAG(res[j].rule)))
+				res[j] = sr[k];
+	e->paths = d->smp->paths;
+	e->seed = d->smp->seed;
+	return HC_OK;
+}
+
+/* --bootstrap-sampled on a ragged history: per replicate the periods are
+ * drawn as for the exact rules, the resampled history is re-summed (each
+ * security re-centred on the replicate, O(M T)) and sampled afresh with the
+ * replicate's seed (hc_rules_replicate_seed), B x the sampling cost. */
+static int ragged_bootstrap_sampled(const struct data_run *d, const struct universe *u,
+				    const struct rules_config *cfg, const struct bootstrap_options *bo,
+				    struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t B = bo->replicates, L = bo->block_length ? bo->block_length : hc_bootstrap_default_block_length(u->t);
+	size_t *idx = hc_malloc(u->t * sizeof *idx), *cnt = hc_calloc(2 * (B ? B : 1), sizeof *cnt), rep, k, j, K;
+	struct sampler_options so;
+	struct cli_progress prog;
+	int rc = HC_OK;
+
+	if (!idx || !cnt) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
+		goto out;
+	}
+	hc_sampler_options_init(&so);
+	so.paths = d->rul->bootstrap_paths;
+	so.threads = (int)d->smp->threads;
+	cli_progress_init(&prog, "sampled bootstrap", "replicates", d->quiet);
+	for (rep = 0; rep < B && rc == HC_OK; rep++) {
+		struct universe *ru = NULL;
+		struct hc_periodic *rp = NULL;
+		struct rule_result sr[2];
+
+		so.seed = hc_rules_replicate_seed(bo->seed, rep);
+		rc = hc_bootstrap_indices(bo->kind, u->t, L, bo->seed, rep, idx, err);
+		if (rc == HC_OK)
+			rc = hc_universe_resample(&ru, u, idx, u->t, err);
+		if (rc == HC_OK)
+			rc = hc_periodic_alloc(&rp, ru, 0, ru->t, err);
+		if (rc == HC_OK)
+			rc = ragged_stages(rp, ru, cfg, &so, sr, &K, err);
+		for (k = 0; rc == HC_OK && k < 2; k++)
+			cnt[2 * rep + k] = sr[k].met ? sr[k].count : 0;
+		hc_periodic_free(rp);
+		hc_universe_free(ru);
+		cli_progress_update(&prog, rep + 1, B);
+	}
+	cli_progress_finish(&prog);
+	for (k = 0; rc == HC_OK && k < 2; k++) {
+		int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
+
+		if (!(cfg->selected & RULES_FLAG(rule)))
+			continue;
+		for (j = 0; j < nres; j++)
+			if (res[j].rule == rule) {
+				size_t *col = hc_malloc(B * sizeof *col);
+
+				if (!col) {
+					rc = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
+					break;
+				}
+				for (rep = 0; rep < B; rep++)
+					col[rep] = cnt[2 * rep + k];
+				hc_rules_set_interval(&res[j], col, B);
+				hc_free(col);
+			}
+	}
+out:
+	hc_free(idx);
+	hc_free(cnt);
+	return rc;
 }
 
 /* Ragged histories: every exact rule on the per-period curve, the sampled
@@ -711,6 +796,14 @@ static int run_ragged(const struct data_run *d, const struct universe *u, const 
 	e->replicates = bo.replicates;
 	e->block_length = bo.block_length ? bo.block_length : hc_bootstrap_default_block_length(u->t);
 	e->kind = bo.kind;
+	if (d->rul->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
+		if (d->stages)
+			cli_stage(d->cmd, d->quiet, "bootstrap of the sampled rules");
+		if ((rc = ragged_bootstrap_sampled(d, u, cfg, &bo, res, nres, &err)))
+			return cli_fail(d->cmd, &err);
+		e->sampled_bootstrapped = 1;
+		e->bootstrap_paths = d->rul->bootstrap_paths;
+	}
 	return HC_OK;
 }
 

@@ -243,13 +243,18 @@ static int sample_ragged(struct run *r, const size_t *sizes, size_t nsizes, stru
 {
 	struct sampler_options so;
 	struct sampler_result *res = NULL;
+	struct cli_progress prog;
 	int rc;
 
 	hc_sampler_options_init(&so);
 	so.paths = r->o->sam.paths;
 	so.seed = r->o->sam.seed;
 	so.threads = r->o->sam.threads > INT_MAX ? INT_MAX : (int)r->o->sam.threads;
+	cli_progress_init(&prog, "sampling", "paths", r->o->quiet);
+	so.progress = cli_progress_update;
+	so.progress_ctx = &prog;
 	rc = hc_periodic_sample(&res, r->per, r->u, 0, sizes, nsizes, &so, err);
+	cli_progress_finish(&prog);
 	if (rc == HC_OK)
 		rc = hc_sampler_summarise(r->curve, res, err);
 	hc_sampler_result_free(res);
@@ -301,6 +306,7 @@ static int compute_curve(struct run *r)
 	src.annualised = 1;
 	r->rep_curve = hc_report_alloc();
 	if (!r->rep_curve || cli_curve_fields(r->rep_curve, &src, &r->mo, r->curve) ||
+	    (r->per && cli_ragged_fields(r->rep_curve, r->per)) ||
 	    cli_strata_fields(r->rep_curve, &r->strat) || hc_report_add_cautions(r->rep_curve)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		return cli_fail("report", &err);
