@@ -66,8 +66,8 @@ void hc_moments_blas_serial(void);
  * matrix route; data with gaps uses pairwise-complete covariances.
  * Memory besides the universe: the centred copy (M x T) and the T x T Gram
  * matrix, or the centred copy and MOMENTS_BLOCK_ROWS x M doubles (matrix
- * route), or four M x M arrays and three M x T copies (pairwise, masked
- * Gram products on threaded BLAS); checked first against the
+ * route), or four M x M arrays and four M x T copies, one of each in
+ * float (pairwise, masked Gram products on threaded BLAS); checked first against the
  * universe's budget u->max_bytes (memory.h's hc_memory_check), HC_ENOMEM
  * "SOURCE: universe too large for its covariances: needs at least ..."
  * when they do not fit.
