@@ -54,6 +54,8 @@ static const struct cli_option universe_options[] = {
 	  "so listings and delistings stay in (alive); drop them, keeping survivors only (complete); "
 	  "or keep those meeting --min-coverage and use pairwise-complete covariances (pairwise)",
 	  missing_words, "alive" },
+	{ "strict", 0, CLI_FLAG, UNI(strict), NULL,
+	  "a data-check finding (see 'holdcount check') is an error (exit 3), not a warning", NULL, NULL },
 	{ "min-coverage", 0, CLI_FRACTION, UNI(min_coverage), "F",
 	  "share of the periods a security must cover to be kept under --missing pairwise, "
 	  "as 0.8 or 80%", NULL, "80%" },

@@ -180,6 +180,8 @@ struct cli_universe {
 	size_t max_memory_mib;     /* 0 = from available memory */
 	int covariance;            /* the positional file is a covariance matrix */
 	int repair_psd;            /* --repair-psd (cli_group_matrix_repair) */
+	int strict;                /* --strict: a data-check finding is an error */
+	int no_check;              /* set by `check` itself: cli_load_universe runs no checks */
 };
 extern const struct cli_group cli_group_universe;
 void cli_universe_init(struct cli_universe *u);
@@ -320,6 +322,10 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 
 /* Load path with the group's options; prints the loader's message
  * ("holdcount CMD: FILE:LINE:COLUMN: ...") and returns its status. */
+/* The data checks before any figure (datacheck.h): the count and the
+ * first finding on stderr as a warning, or with --strict as an error
+ * (HC_EDATA).  cli_load_universe runs it unless cu->no_check. */
+int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct universe *u);
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);
 
@@ -576,6 +582,7 @@ CLI_DECLARE_COMMAND(enough);
 CLI_DECLARE_COMMAND(audit);
 CLI_DECLARE_COMMAND(report);
 CLI_DECLARE_COMMAND(rolling);
+CLI_DECLARE_COMMAND(check);
 
 /* ---- ragged histories (cli_ragged.c) ----------------------------------
  * Under --missing alive (the default) a return history with gaps is read

@@ -10,6 +10,7 @@
 
 #include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
+#include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 #include "holdcount/universe.h"
 
@@ -56,7 +57,35 @@ int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		return rc;
 	hc_error_clear(&err);
 	rc = hc_universe_load(out, path, &uo, &err);
-	return rc ? cli_fail(cmd, &err) : HC_OK;
+	if (rc)
+		return cli_fail(cmd, &err);
+	return cu->no_check ? HC_OK : cli_data_check(cmd, cu, *out);
+}
+
+/* The data checks (datacheck.h) before any figure: a warning with the
+ * count and the first finding on stderr, or under --strict an error. */
+int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct universe *u)
+{
+	struct datacheck_result *d = NULL;
+	struct hc_error err;
+	char first[320];
+
+	hc_error_clear(&err);
+	if (hc_datacheck_run(&d, u, &err))
+		return cli_fail(cmd, &err);
+	if (d->nfindings) {
+		hc_datacheck_describe(&d->findings[0], u, first, sizeof first);
+		fprintf(stderr, "holdcount %s: %s: %zu data-check finding%s, the first: %s; 'holdcount check %s' "
+			"lists them%s\n", cmd, cu->strict ? "error" : "warning", d->nfindings,
+			d->nfindings == 1 ? "" : "s", first, u->source ? u->source : "FILE",
+			cu->strict ? "" : " (--strict makes them an error)");
+	}
+	if (d->nfindings && cu->strict) {
+		hc_datacheck_free(d);
+		return HC_EDATA;
+	}
+	hc_datacheck_free(d);
+	return HC_OK;
 }
 
 int cli_sizes(const char *cmd, const char *text, size_t m, size_t **sizes, size_t *nsizes)

@@ -100,7 +100,9 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	uo.missing = UNIVERSE_MISSING_KEEP;
 	hc_error_clear(&err);
 	rc = hc_universe_load(u, path, &uo, &err);
-	return rc ? cli_fail("rolling", &err) : HC_OK;
+	if (rc)
+		return cli_fail("rolling", &err);
+	return cli_data_check("rolling", &o->uni, *u);
 }
 
 static int options(const struct rolling_opts *o, const struct cli_args *a,
