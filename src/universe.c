@@ -1343,3 +1343,30 @@ int hc_universe_resample(struct universe **out, const struct universe *src,
 	*out = u;
 	return HC_OK;
 }
+
+int hc_universe_exclude(struct universe *u, char *const *ids, size_t n, struct hc_error *err)
+{
+	size_t i, j, keep = 0, cap = u->ndropped;
+	int rc;
+
+	for (j = 0; j < n; j++)
+		if (hc_universe_find(u, ids[j]) < 0)
+			return hc_error(err, HC_EDATA, "%s: excluded id '%s' is not a security of the universe",
+					u->source ? u->source : "universe", ids[j]);
+	for (i = 0; i < u->m; i++) {
+		int out = 0;
+
+		for (j = 0; j < n && !out; j++)
+			out = strcmp(u->ids[i], ids[j]) == 0;
+		if ((rc = keep_or_drop(u, i, out ? "excluded (--exclude)" : NULL, &keep, &cap, err)) != HC_OK)
+			return rc;
+	}
+	u->m = keep;
+	u->has_missing = 0;
+	for (i = 0; i < keep * u->t && !u->has_missing; i++)
+		u->has_missing = isnan(u->x[i]) != 0;
+	if (u->m < 2)
+		return hc_error(err, HC_EDATA, "%s: %zu of %zu securities left after the exclusions; expected at least 2",
+				u->source ? u->source : "universe", u->m, u->m + n);
+	return HC_OK;
+}

@@ -3,7 +3,7 @@
 # a daily universe with planted mistakes (an unadjusted split, a split undone
 # two days later, a stale run, a percent column, a price column, a return
 # below -100%) gives each finding at its security and date; other commands
-# warn with the count, --strict makes it exit 3; the demo gives no finding.
+# warn with the count, --strict-data makes it exit 3; the demo gives no finding.
 # The plants are written here; the expected dates are those of the rows
 # they were planted in (numpy only generates the noise).
 set -u
@@ -71,15 +71,15 @@ PY
 "$HC" describe "$T/u.csv" --missing complete >/dev/null 2>"$T/err" || fail "describe exited $?"
 grep -q "^holdcount describe: warning: 7 data-check findings, the first: LIR901 $d40: " "$T/err" \
 	|| fail "describe's warning: $(cat "$T/err")"
-"$HC" curve "$T/u.csv" --paths 0 --strict >/dev/null 2>"$T/err"; rc=$?
-[ $rc = 3 ] || fail "curve --strict exited $rc, expected 3"
-grep -q "^holdcount curve: error: 7 data-check findings" "$T/err" || fail "curve --strict: $(cat "$T/err")"
-"$HC" check "$T/u.csv" --strict >/dev/null 2>&1; rc=$?
-[ $rc = 3 ] || fail "check --strict with findings exited $rc, expected 3"
+"$HC" curve "$T/u.csv" --paths 0 --strict-data >/dev/null 2>"$T/err"; rc=$?
+[ $rc = 3 ] || fail "curve --strict-data exited $rc, expected 3"
+grep -q "^holdcount curve: error: 7 data-check findings" "$T/err" || fail "curve --strict-data: $(cat "$T/err")"
+"$HC" check "$T/u.csv" --strict-data >/dev/null 2>&1; rc=$?
+[ $rc = 3 ] || fail "check --strict-data with findings exited $rc, expected 3"
 
 # the invented demo: no finding, month ends, 12 a year
 demo="$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv"
-"$HC" check "$demo" --strict --format json >"$T/demo.json" || fail "check --strict on the demo exited $?"
+"$HC" check "$demo" --strict-data --format json >"$T/demo.json" || fail "check --strict-data on the demo exited $?"
 "$PY" -c 'import json,sys; j=json.load(open(sys.argv[1])); assert j["findings"] == [] and j["month_end"] is True and abs(j["calendar_periods_per_year"] - 12) < 0.01, j' "$T/demo.json" \
 	|| fail "demo: findings or calendar"
 "$HC" describe "$demo" >/dev/null 2>"$T/err"

@@ -114,6 +114,11 @@ int hc_universe_window(struct universe **out, const struct universe *src,
 int hc_universe_resample(struct universe **out, const struct universe *src,
 		      const size_t *idx, size_t n, struct hc_error *err);
 
+/* Leave out the securities named in ids[0..n-1] (in place; each is listed
+ * as dropped, reason "excluded (--exclude)").  HC_EDATA naming an id that
+ * is not in u, or when fewer than 2 securities are left; HC_ENOMEM. */
+int hc_universe_exclude(struct universe *u, char *const *ids, size_t n, struct hc_error *err);
+
 /* Free u and everything it owns; NULL is a no-op. */
 void hc_universe_free(struct universe *u);
 

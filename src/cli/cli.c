@@ -54,7 +54,15 @@ static const struct cli_option universe_options[] = {
 	  "so listings and delistings stay in (alive); drop them, keeping survivors only (complete); "
 	  "or keep those meeting --min-coverage and use pairwise-complete covariances (pairwise)",
 	  missing_words, "alive" },
-	{ "strict", 0, CLI_FLAG, UNI(strict), NULL,
+	{ "from", 0, CLI_STRING, UNI(from), "DATE",
+	  "first date of the sample (YYYY-MM-DD, or YYYY-MM for that month's end)", NULL, "the first date" },
+	{ "to", 0, CLI_STRING, UNI(to), "DATE",
+	  "last date of the sample, an as-of date (YYYY-MM-DD or YYYY-MM)", NULL, "the last date" },
+	{ "exclude", 0, CLI_STRING, UNI(exclude), "ID,...",
+	  "leave these securities out (listed as dropped)", NULL, NULL },
+	{ "exclude-file", 0, CLI_STRING, UNI(exclude_file), "FILE",
+	  "leave out the securities listed in FILE, one id a line ('#' starts a comment)", NULL, NULL },
+	{ "strict-data", 0, CLI_FLAG, UNI(strict), NULL,
 	  "a data-check finding (see 'holdcount check') is an error (exit 3), not a warning", NULL, NULL },
 	{ "min-coverage", 0, CLI_FRACTION, UNI(min_coverage), "F",
 	  "share of the periods a security must cover to be kept under --missing pairwise, "

@@ -181,6 +181,9 @@ struct cli_universe {
 	int covariance;            /* the positional file is a covariance matrix */
 	int repair_psd;            /* --repair-psd (cli_group_matrix_repair) */
 	int strict;                /* --strict: a data-check finding is an error */
+	const char *from, *to;     /* --from DATE, --to DATE: the sample's first and last dates */
+	const char *exclude;       /* --exclude ID,ID,... */
+	const char *exclude_file;  /* --exclude-file FILE: one id a line */
 	int no_check;              /* set by `check` itself: cli_load_universe runs no checks */
 };
 extern const struct cli_group cli_group_universe;
@@ -325,6 +328,12 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 /* The data checks before any figure (datacheck.h): the count and the
  * first finding on stderr as a warning, or with --strict as an error
  * (HC_EDATA).  cli_load_universe runs it unless cu->no_check. */
+/* --from, --to, --exclude and --exclude-file on a loaded universe: the
+ * periods between the dates (the missing-data policy `missing`, a
+ * universe.h value, applied within them) and the securities not excluded;
+ * *u is replaced.  A message and the status on error. */
+int cli_restrict(const char *cmd, const struct cli_universe *cu, int missing, struct universe **u);
+
 int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct universe *u);
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);

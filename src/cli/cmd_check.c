@@ -39,7 +39,7 @@ const struct cli_command cli_command_check = {
 	"exactly 0 (stale prices) and isolated spikes; and the calendar: the weekdays used, days a "
 	"week, month-end dates and the periods a year the dates themselves show. Each finding names "
 	"the security, the date and the cell. Every other command prints the count of findings as a "
-	"warning; with --strict any finding is an error (exit 3).",
+	"warning; with --strict-data any finding is an error (exit 3).",
 	1, 1, check_groups
 };
 
@@ -144,7 +144,7 @@ int cmd_check(int argc, char **argv)
 	}
 	rc = cli_write_report("check", &o.out, r);
 	if (rc == HC_OK && strict && d->nfindings) {
-		fprintf(stderr, "holdcount check: %zu finding%s under --strict\n", d->nfindings,
+		fprintf(stderr, "holdcount check: %zu finding%s under --strict-data\n", d->nfindings,
 			d->nfindings == 1 ? "" : "s");
 		rc = HC_EDATA;
 	}

@@ -235,7 +235,9 @@ static int load_every_security(const struct report_opts *o, const char *path, st
 		return rc;
 	uo.missing = UNIVERSE_MISSING_KEEP;
 	hc_error_clear(&err);
-	return hc_universe_load(out, path, &uo, &err) ? cli_fail("report", &err) : HC_OK;
+	if (hc_universe_load(out, path, &uo, &err))
+		return cli_fail("report", &err);
+	return cli_restrict("report", &o->uni, UNIVERSE_MISSING_KEEP, out);
 }
 
 /* Ragged random portfolios at the curve's counts (periodic.h). */

@@ -102,6 +102,8 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	rc = hc_universe_load(u, path, &uo, &err);
 	if (rc)
 		return cli_fail("rolling", &err);
+	if ((rc = cli_restrict("rolling", &o->uni, UNIVERSE_MISSING_KEEP, u)))
+		return rc;
 	return cli_data_check("rolling", &o->uni, *u);
 }
 
