@@ -20,10 +20,10 @@
 #include "holdcount/csvread.h"
 #include "holdcount/memory.h"
 
-/* Daily data whose share of Saturday/Sunday dates exceeds this counts as
- * calendar days (365 a year); below it as trading days (252).  A calendar
- * series has 2/7 of its dates on weekends, a trading-day series none. */
-#define UNIVERSE_WEEKEND_SHARE_CALENDAR (1.0 / 7.0)
+/* Daily data: a weekday is a trading day of the calendar when at least
+ * this share of the dates falls on it (a weekday of a five-day week holds
+ * 1/5 of them, a stray session almost none). */
+#define UNIVERSE_WEEKDAY_SHARE 0.05
 /* How many dropped ids a "too few left" message names. */
 #define UNIVERSE_NAME_DROPPED_MAX 5
 
@@ -169,7 +169,7 @@ static long kth_spacing(const int32_t *dates, size_t n, size_t k)
  */
 double hc_universe_detect_periods(const int32_t *dates, size_t n)
 {
-	size_t gaps, i, weekend = 0;
+	size_t gaps, i;
 	double med;
 
 	if (n < 2)
@@ -179,12 +179,20 @@ double hc_universe_detect_periods(const int32_t *dates, size_t n)
 	if (gaps % 2 == 0)
 		med = (med + (double)kth_spacing(dates, n, gaps / 2 - 1)) / 2;
 	if (med < 1.5) {
-		for (i = 0; i < n; i++) {
-			long wd = ((long)dates[i] % 7 + 7 + 4) % 7;   /* 0 = Sunday; 1970-01-01 was a Thursday */
+		/* Daily: the trading calendar is the weekdays the dates fall on,
+		 * whichever they are (a Sunday-to-Thursday week is five days as a
+		 * Monday-to-Friday one is).  A weekday counts when it holds at
+		 * least UNIVERSE_WEEKDAY_SHARE of the dates (a stray holiday
+		 * session does not); five or fewer trading days a week give the
+		 * usual 252 (common practice: 5 x 52 less about 9 holidays), six
+		 * give 6/5 of that, seven the calendar's 365. */
+		size_t per[7] = { 0 }, used = 0;
 
-			weekend += wd == 0 || wd == 6;
-		}
-		return (double)weekend / (double)n > UNIVERSE_WEEKEND_SHARE_CALENDAR ? 365 : 252;
+		for (i = 0; i < n; i++)
+			per[((long)dates[i] % 7 + 7 + 4) % 7]++;   /* 0 = Sunday; 1970-01-01 was a Thursday */
+		for (i = 0; i < 7; i++)
+			used += (double)per[i] >= UNIVERSE_WEEKDAY_SHARE * (double)n;
+		return used >= 7 ? 365 : used == 6 ? 302 : 252;
 	}
 	if (med >= 5 && med <= 8)
 		return 52;

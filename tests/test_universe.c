@@ -515,6 +515,23 @@ static void test_universe_detect_periods(void **state)
 	for (i = 0; i < 60; i++)
 		d[i] = day("2021-01-04") + (int32_t)i;
 	assert_true(hc_universe_detect_periods(d, 60) == 365);   /* calendar days, weekends included */
+	/* a Sunday-to-Thursday week is five trading days a week, as Monday to
+	 * Friday is: 252, not 365 (weekdays from Sunday 2021-01-03) */
+	for (i = 0, n = 0; n < 60; i++) {
+		int32_t x = day("2021-01-03") + (int32_t)i, wd = ((x % 7) + 7 + 4) % 7;
+
+		if (wd != 5 && wd != 6)
+			d[n++] = x;
+	}
+	assert_true(hc_universe_detect_periods(d, n) == 252);
+	/* six days (Monday to Saturday): 6/5 of 252 */
+	for (i = 0, n = 0; n < 60; i++) {
+		int32_t x = day("2021-01-04") + (int32_t)i;
+
+		if (((x % 7) + 7 + 4) % 7 != 0)
+			d[n++] = x;
+	}
+	assert_true(hc_universe_detect_periods(d, n) == 302);
 	for (i = 0; i < 60; i++)
 		d[i] = day("2021-01-08") + 7 * (int32_t)i;
 	assert_true(hc_universe_detect_periods(d, 60) == 52);

@@ -126,7 +126,9 @@ void hc_universe_free(struct universe *u);
 long hc_universe_find(const struct universe *u, const char *id);
 
 /* Detect periods per year from the median spacing of sorted dates
- * (days since 1970-01-01): about 252 (daily), 52, 12, 4, 2 or 1.
+ * (days since 1970-01-01): about 252 (daily, five or fewer trading days a
+ * week, whichever weekdays they are), 302 (six), 365 (seven), 52, 12, 4, 2
+ * or 1.
  * Returns 0 when fewer than two dates. */
 double hc_universe_detect_periods(const int32_t *dates, size_t n);
 
