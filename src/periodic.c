@@ -21,8 +21,8 @@
 #include <gsl/gsl_rng.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
 
-#include <omp.h>
 
 void hc_periodic_free(struct hc_periodic *p)
 {
@@ -113,7 +113,7 @@ static void period_sums(struct hc_periodic *p, const struct universe *u, size_t 
 /* Distinct alive counts, each period's rank among them, min/median/max. */
 static int levels(struct hc_periodic *p)
 {
-	size_t k, j, *sorted = hc_malloc(p->t * sizeof *sorted);
+	size_t k, j, *sorted = hc_mallocarray(p->t, sizeof *sorted);
 
 	if (!sorted)
 		return -1;
@@ -154,6 +154,7 @@ int hc_periodic_alloc(struct hc_periodic **out, const struct universe *u,
 		return hc_error(err, HC_ENOMEM, "out of memory for per-period sums");
 	p->t = len;
 	p->periods_per_year = u->periods_per_year;
+	p->max_bytes = u->max_bytes;
 	if (!(p->alive = hc_calloc(len, sizeof *p->alive)) || !(p->mean = hc_calloc(len, sizeof *p->mean)) ||
 	    !(p->cross = hc_calloc(len, sizeof *p->cross)) || !(p->raw_mean = hc_calloc(len, sizeof *p->raw_mean)) || !(p->rank = hc_calloc(len, sizeof *p->rank)) ||
 	    !(p->level = hc_calloc(len, sizeof *p->level)) ||
@@ -503,16 +504,80 @@ int hc_periodic_rule(const struct rules_config *cfg, int rule,
 
 /* ---- bootstrap --------------------------------------------------------- */
 
+/* One replicate a path of the one parallel driver (paths.h): its periods
+ * drawn as bootstrap.h draws them, its O(T) curve, the rule counts. */
+struct boot_job {
+	const struct rules_config *cfg;
+	const struct hc_periodic *p;
+	const struct bootstrap_options *bopt;
+	double ppy;
+	const struct rule_result *res;
+	const size_t *which;
+	size_t nb, L;
+	size_t *counts;
+};
+
+struct boot_ws {
+	struct hc_periodic_curve c;
+	size_t *idx;
+};
+
+static int boot_ws_init(void *job, void *ws)
+{
+	const struct boot_job *j = job;
+	struct boot_ws *w = ws;
+
+	memset(w, 0, sizeof *w);
+	if (!(w->idx = hc_mallocarray(j->p->t, sizeof *w->idx)))
+		return -1;
+	if (hc_periodic_curve_init(&w->c, j->p)) {
+		hc_free(w->idx);
+		w->idx = NULL;
+		return -1;
+	}
+	return 0;
+}
+
+static void boot_ws_release(void *ws)
+{
+	struct boot_ws *w = ws;
+
+	if (w->idx) {
+		hc_periodic_curve_release(&w->c);
+		hc_free(w->idx);
+	}
+	memset(w, 0, sizeof *w);
+}
+
+static void boot_path(void *job, void *ws, size_t r)
+{
+	const struct boot_job *j = job;
+	struct boot_ws *w = ws;
+	size_t q, cnt;
+
+	/* the kind was checked, so the draw cannot fail */
+	hc_bootstrap_indices(j->bopt->kind, j->p->t, j->L, j->bopt->seed, r, w->idx, NULL);
+	hc_periodic_curve_set(&w->c, j->p, w->idx, j->p->t);
+	for (q = 0; q < j->nb; q++)
+		j->counts[r * j->nb + q] =
+			hc_periodic_rule_count(j->cfg, j->res[j->which[q]].rule, &w->c, j->ppy, &cnt) == 1 ? cnt : 0;
+}
+
 int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_periodic *p,
 			  const struct bootstrap_options *bopt, double ppy,
 			  struct rule_result *res, size_t nres, struct hc_error *err)
 {
 	size_t B = bopt->replicates, L, j, nb = 0, *counts = NULL;
 	size_t which[RULES_COUNT];
-	int rc = HC_OK, failed = 0;
+	int rc = HC_OK;
 
 	if (B == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (B > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates is more than the %u allowed",
+				B, HC_BOOTSTRAP_MAX_REPLICATES);
+	if (!hc_bootstrap_kind_name(bopt->kind))
+		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", bopt->kind);
 	L = bopt->block_length ? bopt->block_length : hc_bootstrap_default_block_length(p->t);
 	if (L > p->t)
 		return hc_error(err, HC_EUSAGE, "block length %zu exceeds the %zu periods", L, p->t);
@@ -521,45 +586,26 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
 			which[nb++] = j;
 	if (nb == 0)
 		return HC_OK;
+	/* the counts of every replicate and a curve and draw per thread,
+	 * beside the sums (memory.h's budget) */
+	if ((rc = hc_memory_check(p->max_bytes, (double)p->t * 48.0,
+				  (double)B * (double)nb * 8.0 + 2.0 * (double)p->t * 24.0, err,
+				  "%zu bootstrap replicates", B)))
+		return rc;
 	if (hc_mul_size(B, nb, &j) || !(counts = hc_calloc(B * nb, sizeof *counts)))
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
-#pragma omp parallel num_threads(bopt->threads > 0 ? bopt->threads : omp_get_max_threads()) reduction(|:failed)
 	{
-		struct hc_periodic_curve c;
-		size_t *idx = hc_malloc(p->t * sizeof *idx);
-		long r;
+		struct boot_job job = { cfg, p, bopt, ppy, res, which, nb, L, counts };
+		struct hc_paths run = {
+			B, bopt->threads, 8, &job, sizeof(struct boot_ws), boot_ws_init, boot_ws_release,
+			boot_path, bopt->progress, bopt->progress_ctx, "bootstrap's", "bootstrap", "replicates"
+		};
 
-		if (!idx || hc_periodic_curve_init(&c, p)) {
-			failed = 1;
-			hc_free(idx);
-			idx = NULL;
-		}
-#pragma omp for schedule(static)
-		for (r = 0; r < (long)B; r++) {
-			size_t q, cnt;
-
-			if (!idx)
-				continue;
-			if (hc_bootstrap_indices(bopt->kind, p->t, L, bopt->seed, (size_t)r, idx, NULL)) {
-				failed = 1;
-				continue;
-			}
-			hc_periodic_curve_set(&c, p, idx, p->t);
-			for (q = 0; q < nb; q++)
-				counts[(size_t)r * nb + q] =
-					hc_periodic_rule_count(cfg, res[which[q]].rule, &c, ppy, &cnt) == 1 ? cnt : 0;
-		}
-		if (idx) {
-			hc_periodic_curve_release(&c);
-			hc_free(idx);
-		}
-	}
-	if (failed) {
-		rc = hc_error(err, HC_ENOMEM, "out of memory for the bootstrap workspaces");
-		goto out;
+		if ((rc = hc_paths_run(&run, err)) != HC_OK)
+			goto out;
 	}
 	{
-		size_t *col = hc_malloc(B * sizeof *col), q, r;
+		size_t *col = hc_mallocarray(B, sizeof *col), q, r;
 
 		if (!col) {
 			rc = hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
@@ -578,14 +624,6 @@ out:
 }
 
 /* ---- sampler ----------------------------------------------------------- */
-
-/* Seed of path k: the (k+1)-th splitmix64 output from seed. */
-static unsigned long path_seed(uint64_t seed, size_t k)
-{
-	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z = hc_sampler_splitmix64(&st);
-
-	return (unsigned long)(z ^ (z >> 32));
-}
 
 struct ragged_ws {
 	size_t *order;
@@ -614,13 +652,13 @@ static void ws_release(struct ragged_ws *w)
 static int ws_init(struct ragged_ws *w, size_t m, size_t t, size_t nsizes)
 {
 	memset(w, 0, sizeof *w);
-	w->order = hc_malloc(m * sizeof *w->order);
-	w->cnt = hc_malloc(t * sizeof *w->cnt);
-	w->next = hc_malloc(t * sizeof *w->next);
-	w->sum = hc_malloc(t * sizeof *w->sum);
-	w->raw = hc_malloc(t * sizeof *w->raw);
-	w->acc = hc_malloc(nsizes * sizeof *w->acc);
-	w->lacc = hc_malloc(nsizes * sizeof *w->lacc);
+	w->order = hc_mallocarray(m, sizeof *w->order);
+	w->cnt = hc_mallocarray(t, sizeof *w->cnt);
+	w->next = hc_mallocarray(t, sizeof *w->next);
+	w->sum = hc_mallocarray(t, sizeof *w->sum);
+	w->raw = hc_mallocarray(t, sizeof *w->raw);
+	w->acc = hc_mallocarray(nsizes, sizeof *w->acc);
+	w->lacc = hc_mallocarray(nsizes, sizeof *w->lacc);
 	w->rng = gsl_rng_alloc(gsl_rng_taus2);
 	if (!w->order || !w->cnt || !w->next || !w->sum || !w->raw || !w->acc || !w->lacc || !w->rng) {
 		ws_release(w);
@@ -699,15 +737,48 @@ static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const 
 	}
 }
 
+/* The ragged sampler's job for the one parallel path driver (paths.h). */
+struct sample_job {
+	const struct hc_periodic *p;
+	const struct universe *u;
+	size_t first;
+	const size_t *sizes;
+	size_t nsizes;
+	const struct sampler_options *opt;
+	struct sampler_result *r;
+};
+
+static int sample_ws_init(void *job, void *ws)
+{
+	const struct sample_job *j = job;
+
+	return ws_init(ws, j->p->m, j->p->t, j->nsizes);
+}
+
+static void sample_ws_release(void *ws)
+{
+	ws_release(ws);
+}
+
+static void sample_path(void *job, void *ws, size_t k)
+{
+	const struct sample_job *j = job;
+	struct sampler_result *r = j->r;
+
+	ragged_path(ws, j->p, j->u, j->first, j->sizes, j->nsizes, hc_paths_seed32(j->opt->seed, k),
+		    r->variance + k * j->nsizes, r->annual_return ? r->annual_return + k * j->nsizes : NULL,
+		    j->opt->periods_per_year);
+}
+
 int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 		       const struct universe *u, size_t first,
 		       const size_t *sizes, size_t nsizes,
 		       const struct sampler_options *opt, struct hc_error *err)
 {
 	struct sampler_result *r;
+	struct sample_job job;
 	size_t j, total;
-	int failed = 0, stop = 0;
-	size_t done = 0;
+	int rc;
 
 	*out = NULL;
 	if (opt->paths == 0 || opt->strata || nsizes == 0)
@@ -717,11 +788,16 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 			return hc_error(err, HC_EUSAGE, "sizes must ascend within 1..%zu (size %zu)", p->m, sizes[j]);
 	if (hc_mul_size(opt->paths, nsizes, &total))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes do not fit in memory", opt->paths, nsizes);
+	/* the result arrays within the universe's budget (memory.h), beside its numbers */
+	if ((rc = hc_memory_check(u->max_bytes, (double)u->m * (double)u->t * 8.0,
+				  (double)total * 8.0 * (opt->want_returns ? 2 : 1), err,
+				  "%zu sampled portfolios (%zu paths of %zu sizes)", total, opt->paths, nsizes)))
+		return rc;
 	r = hc_calloc(1, sizeof *r);
-	if (!r || !(r->sizes = hc_malloc(nsizes * sizeof *r->sizes)) ||
-	    !(r->variance = hc_malloc(total * sizeof *r->variance)) ||
+	if (!r || !(r->sizes = hc_mallocarray(nsizes, sizeof *r->sizes)) ||
+	    !(r->variance = hc_mallocarray(total, sizeof *r->variance)) ||
 	    !(r->feasible = hc_malloc(nsizes)) ||
-	    (opt->want_returns && !(r->annual_return = hc_malloc(total * sizeof *r->annual_return)))) {
+	    (opt->want_returns && !(r->annual_return = hc_mallocarray(total, sizeof *r->annual_return)))) {
 		hc_sampler_result_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", total);
 	}
@@ -730,48 +806,26 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 	r->seed = opt->seed;
 	memcpy(r->sizes, sizes, nsizes * sizeof *sizes);
 	memset(r->feasible, 1, nsizes);
-#pragma omp parallel num_threads(opt->threads > 0 ? opt->threads : omp_get_max_threads()) reduction(|:failed)
+	job.p = p;
+	job.u = u;
+	job.first = first;
+	job.sizes = sizes;
+	job.nsizes = nsizes;
+	job.opt = opt;
+	job.r = r;
 	{
-		struct ragged_ws w;
-		int ok = ws_init(&w, p->m, p->t, nsizes) == 0;
-		long k;
+		struct hc_paths run = {
+			opt->paths, opt->threads, 4, &job, sizeof(struct ragged_ws), sample_ws_init,
+			sample_ws_release, sample_path, opt->progress, opt->progress_ctx, "ragged sampler's",
+			"sampling", "paths"
+		};
 
-		failed |= !ok;
-#pragma omp for schedule(dynamic, 4)
-		for (k = 0; k < (long)opt->paths; k++) {
-			size_t now;
-			int halt;
-
-#pragma omp atomic read
-			halt = stop;
-			if (!ok || halt)
-				continue;
-			ragged_path(&w, p, u, first, sizes, nsizes, path_seed(opt->seed, (size_t)k),
-				    r->variance + (size_t)k * nsizes,
-				    r->annual_return ? r->annual_return + (size_t)k * nsizes : NULL,
-				    opt->periods_per_year);
-#pragma omp atomic capture
-			now = ++done;
-			/* progress from one thread only, as the callback expects */
-			if (opt->progress && omp_get_thread_num() == 0 &&
-			    opt->progress(opt->progress_ctx, now, opt->paths)) {
-#pragma omp atomic write
-				stop = 1;
-			}
-		}
-		if (ok)
-			ws_release(&w);
+		rc = hc_paths_run(&run, err);
 	}
-	if (failed) {
+	if (rc != HC_OK) {
 		hc_sampler_result_free(r);
-		return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
+		return rc;
 	}
-	if (stop) {
-		hc_sampler_result_free(r);
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", done, opt->paths);
-	}
-	if (opt->progress)
-		opt->progress(opt->progress_ctx, opt->paths, opt->paths);
 	*out = r;
 	return HC_OK;
 }
@@ -791,4 +845,110 @@ int hc_periodic_universe_return(const struct hc_periodic *p, double ppy, double 
 	}
 	*ret = expm1(l * ppy / (double)p->t);
 	return HC_OK;
+}
+
+/* ---- the sampled rules ------------------------------------------------- */
+
+int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_periodic *p,
+			      const struct universe *u, const struct sampler_options *base,
+			      struct rule_result sr[2], size_t *largest, struct hc_error *err)
+{
+	struct sampler_options so = *base;
+	struct sampler_result *r = NULL;
+	size_t K = RULES_SAMPLED_FIRST_K, *sizes, k;
+	double uret = 0;
+	int rc = HC_OK;
+
+	memset(sr, 0, 2 * sizeof *sr);
+	*largest = 0;
+	so.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
+	so.periods_per_year = p->periods_per_year;
+	if (so.want_returns && (rc = hc_periodic_universe_return(p, p->periods_per_year, &uret, err)))
+		return rc;
+	if (!(sizes = hc_mallocarray(p->m, sizeof *sizes)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the sampled sizes");
+	for (k = 0; k < p->m; k++)
+		sizes[k] = k + 1;
+	for (;;) {
+		int all_met = 1;
+
+		if (K > p->m)
+			K = p->m;
+		hc_sampler_result_free(r);
+		r = NULL;
+		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, err);
+		for (k = 0; rc == HC_OK && k < 2; k++) {
+			int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
+
+			if (!(cfg->selected & RULES_FLAG(rule)))
+				continue;
+			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, p->periods_per_year, &sr[k], err)
+						: hc_rules_shortfall(cfg, r, uret, &sr[k], err);
+			all_met &= rc == HC_OK && sr[k].met;
+		}
+		if (rc || all_met || K == p->m)
+			break;
+		K *= RULES_SAMPLED_GROWTH;
+	}
+	*largest = K;
+	hc_sampler_result_free(r);
+	hc_free(sizes);
+	return rc;
+}
+
+int hc_periodic_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+				  const struct bootstrap_options *bo, const struct sampler_options *base,
+				  struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t B = bo->replicates, L = bo->block_length ? bo->block_length : hc_bootstrap_default_block_length(u->t);
+	size_t *idx = NULL, *cnt = NULL, *col = NULL, rep, k, j, K, n2;
+	struct sampler_options so = *base;
+	int rc = HC_OK;
+
+	so.progress = NULL;
+	if (B == 0 || B > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates: expected 1 to %u", B, HC_BOOTSTRAP_MAX_REPLICATES);
+	if (hc_mul_size(2, B ? B : 1, &n2) || !(idx = hc_mallocarray(u->t, sizeof *idx)) ||
+	    !(cnt = hc_calloc(n2, sizeof *cnt)) || !(col = hc_mallocarray(B ? B : 1, sizeof *col))) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
+		goto out;
+	}
+	for (rep = 0; rep < B && rc == HC_OK; rep++) {
+		struct universe *ru = NULL;
+		struct hc_periodic *rp = NULL;
+		struct rule_result sr[2];
+
+		so.seed = hc_rules_replicate_seed(bo->seed, rep);
+		rc = hc_bootstrap_indices(bo->kind, u->t, L, bo->seed, rep, idx, err);
+		if (rc == HC_OK)
+			rc = hc_universe_resample(&ru, u, idx, u->t, err);
+		if (rc == HC_OK)
+			rc = hc_periodic_alloc(&rp, ru, 0, ru->t, err);
+		if (rc == HC_OK)
+			rc = hc_periodic_rules_sampled(cfg, rp, ru, &so, sr, &K, err);
+		for (k = 0; rc == HC_OK && k < 2; k++)
+			cnt[2 * rep + k] = sr[k].met ? sr[k].count : 0;
+		hc_periodic_free(rp);
+		hc_universe_free(ru);
+		if (rc == HC_OK && bo->progress && bo->progress(bo->progress_ctx, rep + 1, B))
+			rc = hc_error(err, HC_EINTERRUPT, "the sampled bootstrap stopped after %zu of %zu replicates",
+				      rep + 1, B);
+	}
+	for (k = 0; rc == HC_OK && k < 2; k++) {
+		int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
+
+		if (!(cfg->selected & RULES_FLAG(rule)))
+			continue;
+		for (j = 0; j < nres; j++)
+			if (res[j].rule == rule) {
+				for (rep = 0; rep < B; rep++)
+					col[rep] = cnt[2 * rep + k];
+				hc_rules_set_interval(&res[j], col, B);
+			}
+	}
+out:
+	hc_free(col);
+	hc_free(idx);
+	hc_free(cnt);
+	return rc;
 }

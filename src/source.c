@@ -29,11 +29,20 @@ void hc_source_free(struct hc_source *s)
 void hc_source_init_series(struct hc_source *s, const struct universe *u)
 {
 	memset(s, 0, sizeof *s);
-	s->kind = HC_SOURCE_SERIES;
+	s->kind = u->has_missing ? HC_SOURCE_PAIRWISE : HC_SOURCE_SERIES;
 	s->name = u->source;
 	s->u = u;
 	s->periods_per_year = u->periods_per_year;
 	s->annualised = 1;
+}
+
+void hc_source_init_matrix(struct hc_source *s, const struct covmatrix *cm, double periods_per_year)
+{
+	memset(s, 0, sizeof *s);
+	s->kind = HC_SOURCE_MATRIX;
+	s->cm = cm;
+	s->annualised = periods_per_year > 0;
+	s->periods_per_year = periods_per_year > 0 ? periods_per_year : 1.0;
 }
 
 /*
@@ -89,7 +98,9 @@ static struct hc_source *source_alloc(int kind, const struct hc_source_options *
 	if (!s)
 		return NULL;
 	s->kind = kind;
-	s->psd.asked = opt->repair_psd;
+	/* a ragged source's matrix serves only a fund's variance w'Aw: it is
+	 * repaired when needed (and said) rather than refusing the history */
+	s->psd.asked = opt->repair_psd || (kind == HC_SOURCE_RAGGED && opt->need_fund_matrix);
 	return s;
 }
 
@@ -115,7 +126,8 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	/* With gaps left no portfolio has a complete return series, so random
 	 * portfolios and fund variances come from the pairwise-complete
 	 * covariances, when they form a valid matrix (or from its repair, which
-	 * the exact figures then use too). */
+	 * the exact figures then use too).  A ragged source reads the series
+	 * period by period (periodic.h): its exact figures never use the matrix. */
 	if (s->kind == HC_SOURCE_RAGGED) {
 		rc = hc_periodic_alloc(&s->own_per, u, 0, u->t, err);
 		if (rc != HC_OK) {
@@ -124,7 +136,8 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 		}
 		s->per = s->own_per;
 	}
-	if (s->kind != HC_SOURCE_SERIES && (opt->need_matrix || opt->repair_psd)) {
+	if (s->kind == HC_SOURCE_RAGGED ? opt->need_fund_matrix || opt->repair_psd
+	    : s->kind == HC_SOURCE_PAIRWISE && (opt->need_matrix || opt->need_fund_matrix || opt->repair_psd)) {
 		rc = hc_covmatrix_from_universe(u, &cm, err);
 		if (rc == HC_OK) {
 			s->own_cm = cm;
@@ -197,6 +210,8 @@ int hc_source_load_covmatrix(struct hc_source **out, const char *path, size_t ma
 
 size_t hc_source_m(const struct hc_source *s)
 {
+	/* a ragged source's per-period sums keep every security observed twice
+	 * or more, which the loader's variation check makes every security */
 	return s->u ? s->u->m : s->cm->m;
 }
 
@@ -225,27 +240,6 @@ int hc_source_has_series(const struct hc_source *s)
 	return s->kind == HC_SOURCE_SERIES;
 }
 
-int hc_source_moments(const struct hc_source *s, struct moments *mo, struct hc_error *err)
-{
-	int rc;
-
-	switch (s->kind) {
-	case HC_SOURCE_SERIES:
-		return hc_moments_from_universe(mo, s->u, err);
-	case HC_SOURCE_PAIRWISE:
-		return s->psd.repaired ? hc_moments_from_matrix(mo, s->cm->a, s->cm->m, err)
-				       : hc_moments_from_universe(mo, s->u, err);
-	case HC_SOURCE_RAGGED:
-		return hc_periodic_moments(s->per, mo, err);
-	case HC_SOURCE_MATRIX:
-		rc = hc_moments_from_matrix(mo, s->cm->a, s->cm->m, err);
-		if (rc)
-			hc_error_prefix(err, s->name);
-		return rc;
-	}
-	return hc_error(err, HC_EUSAGE, "unknown data source kind %d", s->kind);
-}
-
 void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size)
 {
 	const struct hc_source_psd *ps = &s->psd;
@@ -261,8 +255,71 @@ void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size)
 		 "%s was not positive semi-definite, so it was replaced by the nearest positive "
 		 "semi-definite matrix in the Frobenius norm (eigenvalue clipping, Higham 1988): %zu "
 		 "negative eigenvalue%s set to zero, the most negative %.4g%s; the matrix moved by %.4g%s "
-		 "(Frobenius distance, %.3g%% of its Frobenius norm), and every figure uses the repaired matrix",
+		 "(Frobenius distance, %.3g%% of its Frobenius norm), and %s",
 		 s->kind == HC_SOURCE_MATRIX ? "the covariance matrix" : "the pairwise-complete covariance matrix",
 		 ps->negative, ps->negative == 1 ? "" : "s", ps->min_eigenvalue * scale, unit,
-		 ps->distance * scale, unit, 100 * ps->distance / ps->norm);
+		 ps->distance * scale, unit, 100 * ps->distance / ps->norm,
+		 /* a ragged history's own figures come from its per-period sums */
+		 s->kind == HC_SOURCE_RAGGED ? "the funds' variances use the repaired matrix"
+					     : "every figure uses the repaired matrix");
+}
+
+int hc_source_report_psd(const struct hc_source *s, struct report *r)
+{
+	const struct hc_source_psd *ps = &s->psd;
+	int style = s->annualised ? REPORT_STYLE_SCI : REPORT_STYLE_PLAIN;
+	double scale = s->periods_per_year;
+	char text[600];
+
+	if (!ps->asked)
+		return HC_OK;
+	if (hc_report_add_text(r, "psd_repair", "positive semi-definite repair",
+			    ps->repaired ? "nearest positive semi-definite matrix, by eigenvalue clipping (Higham 1988)"
+			    : ps->checked ? "not needed: the matrix is positive semi-definite (up to rounding)"
+			    : "not needed: no gaps left, and complete series give a positive semi-definite matrix") ||
+	    hc_report_add_bool(r, "psd_repaired", "matrix repaired", ps->repaired))
+		return HC_ENOMEM;
+	if (ps->checked &&
+	    (hc_report_add_int(r, "psd_negative_eigenvalues", "negative eigenvalues", (long long)ps->negative) ||
+	     hc_report_add_real(r, "psd_min_eigenvalue", "smallest eigenvalue", ps->min_eigenvalue * scale, style) ||
+	     hc_report_add_real(r, "psd_repair_distance", "repair distance (Frobenius)", ps->distance * scale, style) ||
+	     hc_report_add_real(r, "psd_repair_relative_distance", "repair distance / matrix norm",
+			     ps->distance / ps->norm, REPORT_STYLE_SCI)))
+		return HC_ENOMEM;
+	if (ps->repaired) {
+		hc_source_psd_text(s, text, sizeof text);
+		if (hc_report_add_note(r, text))
+			return HC_ENOMEM;
+	}
+	return HC_OK;
+}
+
+int hc_source_report_treatment(const struct hc_source *s, struct report *r)
+{
+	const struct hc_periodic *p = s->per;
+	const char *text;
+
+	switch (s->kind) {
+	case HC_SOURCE_RAGGED:
+		break;
+	case HC_SOURCE_SERIES:
+		text = "complete return series";
+		return hc_report_add_text(r, "treatment", "treatment", text) ? HC_ENOMEM : HC_OK;
+	case HC_SOURCE_PAIRWISE:
+		text = "return history with gaps, read through pairwise-complete covariances";
+		return hc_report_add_text(r, "treatment", "treatment", text) ? HC_ENOMEM : HC_OK;
+	default:
+		return HC_OK;
+	}
+	if (hc_report_add_text(r, "treatment", "treatment", HC_SOURCE_RAGGED_TREATMENT) ||
+	    hc_report_add_int(r, "alive_min", "securities alive per period, fewest", (long long)p->alive_min) ||
+	    hc_report_add_int(r, "alive_median", "securities alive per period, median", (long long)p->alive_median) ||
+	    hc_report_add_int(r, "alive_max", "securities alive per period, most", (long long)p->alive_max) ||
+	    hc_report_add_int(r, "securities_complete", "securities with no gap", (long long)p->complete))
+		return HC_ENOMEM;
+	if (p->m_short &&
+	    hc_report_add_int(r, "securities_single_period", "securities observed in one period only (left out)",
+			      (long long)p->m_short))
+		return HC_ENOMEM;
+	return HC_OK;
 }

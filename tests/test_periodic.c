@@ -433,7 +433,7 @@ static void test_periodic_source_kind(void **state)
 	assert_int_equal(s->kind, HC_SOURCE_RAGGED);
 	assert_non_null(s->per);
 	assert_null(hc_source_matrix(s));
-	assert_int_equal(hc_source_moments(s, &mo, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&mo, s, &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_PERIODIC);
 	for (n = 1; n <= s->per->alive_min; n++)
 		assert_true(rel(hc_curve_expected_variance(&mo, (double)n),

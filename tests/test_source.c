@@ -19,6 +19,7 @@
 #include <gsl/gsl_errno.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/moments.h"
 #include "holdcount/source.h"
 
 #include "heapcheck.h"
@@ -103,7 +104,7 @@ static void test_source_series_kind_and_accessors(void **state)
 	assert_true(hc_source_has_series(s));
 	assert_int_equal(s->annualised, 1);
 	assert_close(s->periods_per_year, 12.0, 0);
-	assert_int_equal(hc_source_moments(s, &a, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&a, s, &err), HC_OK);
 	assert_int_equal(hc_moments_from_universe(&b, s->u, &err), HC_OK);
 	assert_memory_equal(&a, &b, sizeof a);
 	hc_source_free(s);
@@ -182,7 +183,7 @@ static void test_source_matrix_scale_and_policy(void **state)
 	assert_int_equal(hc_source_find(s, "C"), 2);
 	for (i = 0; i < 16; i++)
 		assert_close(hc_source_matrix(s)[i], NUMPY_PAIRWISE_PSD[i], PSD_TOL);
-	assert_int_equal(hc_source_moments(s, &mo, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&mo, s, &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_GIVEN);
 	/* V = the trace of the repaired matrix (numpy above) */
 	assert_close(mo.sum_var, 0.0006642507286292167 + 0.0003677645773126222 + 0.000501113146840072 +

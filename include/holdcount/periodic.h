@@ -72,6 +72,7 @@ struct hc_periodic {
 	size_t *member;       /* m: index in the universe of each security kept */
 	double *own_mean;     /* m: its mean over the window's periods it is observed */
 	double periods_per_year;
+	size_t max_bytes;     /* the universe's memory budget (memory.h), for the bootstrap and sampler */
 	struct hc_periodic_curve curve;  /* every period of the window */
 };
 
@@ -178,6 +179,33 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
  * HC_EDATA when a period's return is -100% or worse. */
 int hc_periodic_universe_return(const struct hc_periodic *p, double periods_per_year,
 				double *ret, struct hc_error *err);
+
+/*
+ * The band and shortfall rules (those cfg selects) from ragged random
+ * portfolios (hc_periodic_sample) over sizes 1..K, K growing as
+ * hc_rules_sampled's stages do (RULES_SAMPLED_FIRST_K, times
+ * RULES_SAMPLED_GROWTH) until both are met or K reaches p->m: band against
+ * the per-period floor, shortfall against the compound return of the
+ * equal-weight portfolio of the alive securities.  sr[0] band, sr[1]
+ * shortfall (zeroed when not selected); *largest the last K.  base gives
+ * paths, seed, threads and progress.  u is the universe p was computed
+ * from (first period 0).
+ */
+int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_periodic *p,
+			      const struct universe *u, const struct sampler_options *base,
+			      struct rule_result sr[2], size_t *largest, struct hc_error *err);
+
+/*
+ * The interval of the sampled rules on a ragged history: per replicate the
+ * periods are drawn as for the exact rules (bo), the resampled history is
+ * re-summed (each security re-centred on the replicate, O(M T)) and
+ * sampled afresh with the replicate's seed (hc_rules_replicate_seed) and
+ * base->paths paths; hc_rules_set_interval on the band and shortfall
+ * results among res.  bo->progress is called after each replicate.
+ */
+int hc_periodic_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+				  const struct bootstrap_options *bo, const struct sampler_options *base,
+				  struct rule_result *res, size_t nres, struct hc_error *err);
 
 #ifdef __cplusplus
 }

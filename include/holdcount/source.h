@@ -7,16 +7,21 @@
  *   HC_SOURCE_PAIRWISE  return series with gaps (securities listed and
  *                       delisted at different dates), read through their
  *                       pairwise-complete covariances (covmatrix.h);
- *   HC_SOURCE_MATRIX    a covariance matrix (a risk model's output).
+ *   HC_SOURCE_MATRIX    a covariance matrix (a risk model's output);
+ *   HC_SOURCE_RAGGED    return series with gaps read period by period
+ *                       (periodic.h): each period uses the securities alive
+ *                       then, so listings and delistings stay in (the
+ *                       survivorship-free treatment); no M x M matrix unless
+ *                       a fund's variance needs it.
  * The missing-data policy (universe.h) and the positive semi-definite
  * policy (refuse, or repair by eigenvalue clipping, Higham 1988) are
  * applied when the source is built, so no caller repeats them.
  *
- * Adding a kind (for example ragged histories read period by period) is one
- * more enum value, one constructor, and one more case in the few dispatch
- * points: hc_source_moments here and the computing modules' switch on
- * src->kind (sampler.c, strata.c, rules.c, audit.c).  Callers that use the
- * accessors below need no change.
+ * Adding a kind is one more enum value, one constructor, and one more case
+ * in the few dispatch points: the computing modules' switch on src->kind
+ * (moments.c, sampler.c, strata.c, rules.c, audit.c) and the analyses'
+ * (curve_run.c, enough.c, describe.c, reportset.c for the ragged kind).
+ * Callers that use the accessors below need no change.
  */
 #ifndef HOLDCOUNT_SOURCE_H
 #define HOLDCOUNT_SOURCE_H
@@ -25,7 +30,7 @@
 
 #include "holdcount/covmatrix.h"
 #include "holdcount/error.h"
-#include "holdcount/moments.h"
+#include "holdcount/report.h"
 #include "holdcount/universe.h"
 
 #ifdef __cplusplus
@@ -62,8 +67,12 @@ struct hc_source_options {
 	                          * ignored for series (the universe's own) */
 	const char *psd_refusal; /* the message after "PATH: " when a matrix is refused;
 	                          * NULL: HC_SOURCE_DEFAULT_REFUSAL */
-	int ragged;              /* series with gaps: HC_SOURCE_RAGGED (per-period sums, no
-	                          * matrix unless need_matrix) instead of HC_SOURCE_PAIRWISE */
+	int need_fund_matrix;    /* funds' variances w'Aw will be asked (an audit): series with
+	                          * gaps build the pairwise-complete matrix, ragged ones too */
+	int ragged;              /* series with gaps: HC_SOURCE_RAGGED (per-period sums; the
+	                          * pairwise matrix only with need_fund_matrix, and then repaired
+	                          * when not positive semi-definite, said in the output) instead
+	                          * of HC_SOURCE_PAIRWISE */
 };
 
 #define HC_SOURCE_PSD_HINT "--repair-psd uses the nearest positive semi-definite matrix instead"
@@ -93,7 +102,9 @@ void hc_source_options_init(struct hc_source_options *opt);
 /*
  * A source from a loaded universe; takes ownership of u (freed by
  * hc_source_free, and on failure).  Complete data gives HC_SOURCE_SERIES;
- * gaps left by the missing-data policy give HC_SOURCE_PAIRWISE, with its
+ * gaps left by the missing-data policy give HC_SOURCE_RAGGED when
+ * opt->ragged (its per-period sums, hc_periodic_alloc), else
+ * HC_SOURCE_PAIRWISE, with its
  * pairwise-complete matrix built and checked when opt asks for it.
  * Errors: those of hc_covmatrix_from_universe; HC_EDATA "NAME: REFUSAL"
  * when the matrix is not positive semi-definite and repair was not asked;
@@ -123,11 +134,20 @@ int hc_source_load_covmatrix(struct hc_source **out, const char *path, size_t ma
 			     const struct hc_source_options *opt, struct hc_error *err);
 
 /*
- * A source viewing complete series u that the caller keeps (a rolling
- * window, a bootstrap resample): no allocation, nothing to free; s must not
- * outlive u.  u must have no gaps.
+ * A source viewing series u that the caller keeps (a rolling window, a
+ * bootstrap resample, every security as read for rolling windows): no
+ * allocation, nothing to free; s must not outlive u.  Series with gaps
+ * give a pairwise source with no matrix (hc_source_from_universe builds one).
  */
 void hc_source_init_series(struct hc_source *s, const struct universe *u);
+
+/*
+ * A source viewing the covariance matrix cm that the caller keeps, taken as
+ * it is (no positive semi-definite check: the caller vouches for it), on
+ * its own scale (periods_per_year 0) or annualised by periods_per_year.
+ * No allocation, nothing to free; s must not outlive cm.
+ */
+void hc_source_init_matrix(struct hc_source *s, const struct covmatrix *cm, double periods_per_year);
 
 /* Free s and what it owns; NULL is a no-op. */
 void hc_source_free(struct hc_source *s);
@@ -149,19 +169,33 @@ const double *hc_source_matrix(const struct hc_source *s);
 int hc_source_has_series(const struct hc_source *s);
 
 /*
- * The moments of s (moments.h): from the series (the pairwise route for
- * data with gaps), or from the matrix when the source is a matrix or a
- * repaired pairwise matrix.  RAGGED: hc_periodic_moments, the averages
- * whose v-bar/N + (1 - 1/N) c-bar is the per-period curve up to the
- * smallest alive count (use periodic.h for the exact curve beyond it).  A matrix's errors carry its name as prefix.
- */
-int hc_source_moments(const struct hc_source *s, struct moments *mo, struct hc_error *err);
-
-/*
  * The sentence that says what a repair did (empty when nothing was
  * repaired), figures annualised like the source, into buf.
  */
 void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size);
+
+/*
+ * When repair was asked (opt.repair_psd): the fields psd_repair,
+ * psd_repaired and, when a matrix was tested, psd_negative_eigenvalues,
+ * psd_min_eigenvalue, psd_repair_distance, psd_repair_relative_distance
+ * (annualised like the source), and the note of hc_source_psd_text after a
+ * repair.  HC_OK, or HC_ENOMEM.
+ */
+int hc_source_report_psd(const struct hc_source *s, struct report *r);
+
+/* The sentence the field "treatment" carries for a ragged source. */
+#define HC_SOURCE_RAGGED_TREATMENT "return history with gaps, read period by period: each period uses the " \
+	"securities alive then (listed and not yet delisted), so delisted securities stay in " \
+	"(survivorship-free); --missing complete keeps only securities with no gap"
+
+/*
+ * How the universe was treated: the field "treatment" (for a ragged source
+ * HC_SOURCE_RAGGED_TREATMENT, and the fields alive_min, alive_median,
+ * alive_max: securities alive per period; securities_complete: those with
+ * no gap; securities_single_period when some were observed once only and
+ * left out).  HC_OK, or HC_ENOMEM.
+ */
+int hc_source_report_treatment(const struct hc_source *s, struct report *r);
 
 #ifdef __cplusplus
 }

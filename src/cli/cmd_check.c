@@ -23,9 +23,9 @@ static const struct cli_omit check_omit[] = {
 };
 
 static const struct cli_group_use check_groups[] = {
-	{ &cli_group_universe, offsetof(struct check_opts, uni), check_omit },
-	{ &cli_group_output, offsetof(struct check_opts, out), NULL },
-	{ NULL, 0, NULL }
+	{ &cli_group_universe, offsetof(struct check_opts, uni), check_omit, NULL },
+	{ &cli_group_output, offsetof(struct check_opts, out), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_check = {

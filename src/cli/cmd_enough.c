@@ -3,7 +3,7 @@
  * extra holdings add little, by each rule, with a bootstrap interval.
  *
  * The rules and their sources are in docs/enough.md; the library does the
- * work (rules.h, bootstrap.h), this file parses, loads and reports.
+ * work (enough.h), this file parses, builds the data source and writes.
  */
 #include <math.h>
 #include <stddef.h>
@@ -12,17 +12,11 @@
 #include <string.h>
 
 #include "cli.h"
-#include "holdcount/bootstrap.h"
-#include "holdcount/covmatrix.h"
-#include "holdcount/memory.h"
+#include "holdcount/enough.h"
 #include "holdcount/moments.h"
-#include "holdcount/periodic.h"
 #include "holdcount/rules.h"
-#include "holdcount/sampler.h"
-#include "holdcount/strata.h"
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
-
-#define ENOUGH_DEFAULT_BOOTSTRAP_PATHS 1000
 
 struct enough_opts {
 	struct cli_rules rul;
@@ -33,53 +27,6 @@ struct enough_opts {
 	struct cli_strata strat;
 };
 
-static const char *const kind_choices[] = { "block", "stationary", NULL };
-
-#define RUL(f) offsetof(struct cli_rules, f)
-static const struct cli_option rules_own[] = {
-	{ "rules", 0, CLI_STRING, RUL(rules), "LIST",
-	  "rules to apply: near-floor, marginal, band, cost-benefit, tracking-error, shortfall, or all, exact, sampled",
-	  NULL, "all (exact only from summary statistics)" },
-	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
-	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
-	{ "marginal", 0, CLI_STRING, RUL(marginal), "EPS",
-	  "marginal: one more holding lowers the expected sd by less than EPS a year (0.10pp, 0.1% or 0.001)",
-	  NULL, "0.10pp" },
-	{ "band", 0, CLI_STRING, RUL(band), "Q:X",
-	  "band: the Q-quantile of sampled sd within X of the floor sd", NULL, "95%:10%" },
-	{ "premium", 0, CLI_FRACTION, RUL(premium), "R",
-	  "cost-benefit: the universe portfolio's premium a year", NULL, "5% (a placeholder: set it)" },
-	{ "holding-cost", 0, CLI_FRACTION, RUL(holding_cost), "C",
-	  "cost-benefit: the yearly cost of one more holding", NULL, "0.05% (a placeholder: set it)" },
-	{ "te-budget", 0, CLI_FRACTION, RUL(te_budget), "B",
-	  "tracking-error: expected tracking error against the universe within B a year", NULL, "2%" },
-	{ "shortfall", 0, CLI_STRING, RUL(shortfall), "D:P",
-	  "shortfall: fewer than P of sampled portfolios trail the universe's return by more than D a year",
-	  NULL, "1%:10%" },
-	{ "bootstrap", 0, CLI_COUNT, RUL(bootstrap), "B",
-	  "bootstrap replicates for the count's interval (0: no interval)", NULL, "1000" },
-	{ "bootstrap-kind", 0, CLI_CHOICE, RUL(bootstrap_kind), NULL,
-	  "resample periods in moving blocks (Kuensch 1989) or stationary blocks (Politis & Romano 1994)",
-	  kind_choices, "block" },
-	{ "block-length", 0, CLI_COUNT, RUL(block_length), "L",
-	  "block length (mean length for stationary) in periods", NULL, "round(T^(1/3))" },
-	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
-	  "also bootstrap the sampled rules (band, shortfall): re-samples portfolios per replicate, costly",
-	  NULL, NULL },
-	{ "bootstrap-paths", 0, CLI_COUNT, RUL(bootstrap_paths), "K",
-	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
-	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
-};
-/* Shared with `holdcount report` (cli.h), so both read the same options. */
-const struct cli_group cli_group_rules = { "rule options", rules_own };
-
-void cli_rules_init(struct cli_rules *r)
-{
-	memset(r, 0, sizeof *r);
-	r->bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
-	r->bootstrap_paths = ENOUGH_DEFAULT_BOOTSTRAP_PATHS;
-}
-
 #define OFF(f) offsetof(struct enough_opts, f)
 
 /* The rules look at every count, so there is no grid to choose. */
@@ -89,14 +36,14 @@ static const struct cli_omit enough_sampling_omit[] = {
 };
 
 static const struct cli_group_use enough_groups[] = {
-	{ &cli_group_rules, OFF(rul), NULL },
-	{ &cli_group_sampling, OFF(smp), enough_sampling_omit },
-	{ &cli_group_summary, OFF(sum), NULL },
-	{ &cli_group_universe, OFF(uni), NULL },
-	{ &cli_group_matrix_repair, OFF(uni), NULL },
-	{ &cli_group_output, OFF(out), NULL },
-	{ &cli_group_strata, OFF(strat), NULL },
-	{ NULL, 0, NULL }
+	{ &cli_group_rules, OFF(rul), NULL, NULL },
+	{ &cli_group_sampling, OFF(smp), enough_sampling_omit, NULL },
+	{ &cli_group_summary, OFF(sum), NULL, NULL },
+	{ &cli_group_universe, OFF(uni), NULL, NULL },
+	{ &cli_group_matrix_repair, OFF(uni), NULL, NULL },
+	{ &cli_group_output, OFF(out), NULL, NULL },
+	{ &cli_group_strata, OFF(strat), NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_enough = {
@@ -114,101 +61,6 @@ const struct cli_command cli_command_enough = {
 	"complete return series. See docs/enough.md for each rule and its source.",
 	0, 1, enough_groups
 };
-
-/* A yearly sd step: "0.10pp" (percentage points), "0.1%" or "0.001". */
-int cli_parse_sd_step(const char *s, double *out)
-{
-	char *end;
-	double x = strtod(s, &end);
-
-	if (end == s || !isfinite(x))
-		return -1;
-	if (strcmp(end, "pp") == 0 || strcmp(end, "%") == 0)
-		x /= 100;
-	else if (*end)
-		return -1;
-	*out = x;
-	return 0;
-}
-
-/* One share: "95%" or "0.95". */
-static int parse_share(const char *s, size_t len, double *out)
-{
-	char buf[64], *end;
-	double x;
-
-	if (len == 0 || len >= sizeof buf)
-		return -1;
-	memcpy(buf, s, len);
-	buf[len] = 0;
-	x = strtod(buf, &end);
-	if (end == buf || !isfinite(x))
-		return -1;
-	if (strcmp(end, "%") == 0)
-		x /= 100;
-	else if (*end)
-		return -1;
-	*out = x;
-	return 0;
-}
-
-/* "A:B" as two shares. */
-static int parse_pair(const char *cmd, const char *opt, const char *s, double *a, double *b)
-{
-	const char *colon = strchr(s, ':');
-
-	if (!colon || parse_share(s, (size_t)(colon - s), a) || parse_share(colon + 1, strlen(colon + 1), b))
-		return cli_usage_error(cmd, "bad --%s '%s': expected two shares as A:B, e.g. %s", opt, s,
-				       strcmp(opt, "band") == 0 ? "95%:10%" : "1%:10%");
-	return HC_OK;
-}
-
-int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cli_args *a,
-		     int have_data, int covariance, struct rules_config *cfg)
-{
-	struct hc_error err;
-
-	hc_rules_config_init(cfg);
-	hc_error_clear(&err);
-	if (!have_data)
-		cfg->selected = RULES_EXACT_MASK;
-	else if (covariance)
-		cfg->selected = RULES_EXACT_MASK | RULES_FLAG(RULES_BAND);
-	if (o->rules && hc_rules_parse_list(o->rules, &cfg->selected, &err))
-		return cli_fail(cmd, &err);
-	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "the band and shortfall rules need a universe file, not summary statistics");
-	/* Everything but time-based figures works from a matrix (design.md section 8). */
-	if (covariance && (cfg->selected & RULES_FLAG(RULES_SHORTFALL)))
-		return cli_usage_error(cmd, "the shortfall rule needs return series: it compounds each portfolio's "
-				       "returns over the periods, and a covariance matrix has none (--rules exact,band "
-				       "runs every other rule)");
-	if (covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
-		return cli_usage_error(cmd, "--bootstrap needs return data: a covariance matrix has no periods to resample");
-	if (covariance && o->bootstrap_sampled)
-		return cli_usage_error(cmd, "--bootstrap-sampled needs return data: a covariance matrix has no periods to resample");
-	if (cli_given(a, "near-floor"))
-		cfg->near_floor_x = o->near_floor;
-	if (o->marginal && cli_parse_sd_step(o->marginal, &cfg->marginal_eps))
-		return cli_usage_error(cmd, "bad --marginal '%s': expected a yearly sd step such as 0.10pp, 0.1%% or 0.001",
-				       o->marginal);
-	if (o->band && parse_pair(cmd, "band", o->band, &cfg->band_q, &cfg->band_x))
-		return HC_EUSAGE;
-	if (o->shortfall && parse_pair(cmd, "shortfall", o->shortfall, &cfg->shortfall_d, &cfg->shortfall_p))
-		return HC_EUSAGE;
-	if (cli_given(a, "premium"))
-		cfg->premium = o->premium;
-	if (cli_given(a, "holding-cost"))
-		cfg->holding_cost = o->holding_cost;
-	cfg->cost_defaults = !cli_given(a, "premium") && !cli_given(a, "holding-cost");
-	if (cli_given(a, "premium") != cli_given(a, "holding-cost"))
-		return cli_usage_error(cmd, "give --premium and --holding-cost together (or neither, for the stated defaults)");
-	if (cli_given(a, "te-budget"))
-		cfg->te_budget = o->te_budget;
-	if (hc_rules_config_check(cfg, &err))
-		return cli_fail(cmd, &err);
-	return HC_OK;
-}
 
 /* ---- summary statistics ------------------------------------------------- */
 
@@ -231,9 +83,8 @@ static int summary_averages(const struct enough_opts *o, const struct cli_args *
 	if (cor && !(fabs(o->sum.average_correlation) <= 1))
 		return cli_usage_error("enough", "--average-correlation must lie from -1 to 1, found %g",
 				       o->sum.average_correlation);
-	*vbar = var ? o->sum.average_variance : o->sum.average_sd * o->sum.average_sd;
-	/* correlation times the average variance: the equal-variance reading */
-	*cbar = cov ? o->sum.average_covariance : o->sum.average_correlation * *vbar;
+	hc_moments_summary_averages(var ? o->sum.average_variance : NAN, cov ? o->sum.average_covariance : NAN,
+				    o->sum.average_sd, o->sum.average_correlation, vbar, cbar);
 	return HC_OK;
 }
 
@@ -250,697 +101,68 @@ static int data_summary_given(const struct cli_args *a)
 }
 
 
-/* ---- the report ----------------------------------------------------------- */
-
-struct enough_run {
-	const struct universe *u;    /* NULL with summary statistics or a matrix */
-	const char *matrix;          /* the covariance matrix's file, or NULL */
-	const struct cli_psd *ps;    /* what --repair-psd did, or NULL */
-	double vbar, cbar;           /* per period */
-	size_t m;
-	double ppy;
-	int annualised;
-	int bootstrapped;
-	size_t replicates, block_length;
-	int kind;
-	uint64_t seed;
-	size_t paths;
-	size_t sampled_sizes;        /* sampled sizes 1..this */
-	int sampled_bootstrapped;
-	size_t bootstrap_paths;
-	const char *no_interval;     /* why there is no interval, or NULL */
-	const struct hc_periodic *per; /* a ragged history's per-period sums, or NULL */
-};
-
-static int add_fields(struct report *r, const struct enough_run *e)
-{
-	double p = e->ppy, floor_var = e->cbar * p;
-	double uvar = e->per ? e->per->curve.a * p : e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
-	int sd_style = e->annualised ? REPORT_STYLE_PERCENT : REPORT_STYLE_PLAIN;
-	int bad = 0;
-
-	if (e->u) {
-		bad |= hc_report_add_text(r, "universe", "universe", e->u->source ? e->u->source : "-");
-		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
-		bad |= hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)e->u->ndropped);
-		bad |= hc_report_add_int(r, "periods", "periods", (long long)e->u->t);
-		if (e->per) {
-			bad |= hc_report_add_text(r, "input", "input", "return history with gaps, read period by period");
-			bad |= cli_ragged_fields(r, e->per);
-		} else if (e->u->has_missing)
-			bad |= hc_report_add_text(r, "input", "input", e->ps && e->ps->repaired
-				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
-				  "positive semi-definite matrix, for every rule but shortfall"
-				: e->paths ? "return history with gaps; pairwise-complete covariances, from which the band "
-					    "rule draws its portfolios"
-				: "return history with gaps; pairwise-complete covariances");
-	} else if (e->matrix) {
-		bad |= hc_report_add_text(r, "universe", "universe", e->matrix);
-		bad |= hc_report_add_text(r, "input", "input", "covariance matrix");
-		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
-	} else if (e->m)
-		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
-	else
-		bad |= hc_report_add_text(r, "securities", "securities", "unbounded");
-	bad |= cli_add_scale(r, p, e->annualised);
-	bad |= hc_report_add_real(r, "average_variance", "average variance", e->vbar * p, REPORT_STYLE_SCI);
-	bad |= hc_report_add_real(r, "average_covariance", "average covariance", e->cbar * p, REPORT_STYLE_SCI);
-	bad |= hc_report_add_real(r, "floor_sd", "floor sd", floor_var > 0 ? sqrt(floor_var) : NAN, sd_style);
-	bad |= hc_report_add_real(r, "universe_sd", "equal-weight universe sd", uvar > 0 ? sqrt(uvar) : NAN, sd_style);
-	if (e->paths) {
-		bad |= hc_report_add_int(r, "paths", "sampled portfolios a size", (long long)e->paths);
-		bad |= hc_report_add_int(r, "sampled_sizes", "sampled sizes 1 to", (long long)e->sampled_sizes);
-	}
-	if (e->bootstrapped) {
-		bad |= hc_report_add_text(r, "bootstrap", "bootstrap", hc_bootstrap_kind_name(e->kind));
-		bad |= hc_report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
-		bad |= hc_report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
-	} else
-		bad |= hc_report_add_none(r, "bootstrap", "bootstrap");
-	if (e->u || e->paths) {
-		char seed[32];
-
-		snprintf(seed, sizeof seed, "%llu", (unsigned long long)e->seed);
-		bad |= hc_report_add_text(r, "seed", "seed", seed);
-	}
-	if (e->ps)
-		bad |= cli_psd_fields(r, e->ps);
-	return bad ? HC_ENOMEM : HC_OK;
-}
-
-static int add_notes(struct report *r, const struct enough_run *e)
-{
-	char text[300];
-	int bad = 0;
-
-	if (e->bootstrapped) {
-		snprintf(text, sizeof text,
-			 "count p05/p50/p95: percentiles of each rule's count over %zu %s-bootstrap replicates of "
-			 "the periods (block length %zu); \"not met\" where the percentile reaches replicates "
-			 "in which the rule is not met%s",
-			 e->replicates, hc_bootstrap_kind_name(e->kind), e->block_length,
-			 e->sampled_bootstrapped ? "" : "; sampled rules (band, shortfall) have an interval only with --bootstrap-sampled");
-		bad |= hc_report_add_note(r, text);
-	} else if (e->no_interval)
-		bad |= hc_report_add_note(r, e->no_interval);
-	if (e->per && e->bootstrapped)
-		bad |= hc_report_add_note(r, "ragged history: each replicate of the exact rules sums the drawn "
-				       "periods' cross-sections (O(T) a replicate) with every security centred on its "
-				       "full-sample mean, not re-centred on the replicate; --bootstrap-sampled re-sums "
-				       "and re-centres each replicate before sampling it");
-	if (!e->annualised)
-		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
-				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
-	bad |= hc_report_add_cautions(r);
-	return bad ? HC_ENOMEM : HC_OK;
-}
-
-/* The report `holdcount enough` prints: fields, strata, the rules table
- * (its CSV), notes and cautions. */
-static int build_report(const char *cmd, const struct enough_run *e, const struct cli_strata *strat,
-			const struct rule_result *res, size_t nres, struct report **out)
-{
-	struct report *r = hc_report_alloc();
-	struct hc_error err;
-
-	hc_error_clear(&err);
-	*out = NULL;
-	if (!r || add_fields(r, e) || (strat && cli_strata_fields(r, strat)) ||
-	    hc_rules_report(r, res, nres, &err) || add_notes(r, e)) {
-		hc_report_free(r);
-		hc_error(&err, HC_ENOMEM, "out of memory building the report");
-		return cli_fail(cmd, &err);
-	}
-	*out = r;
-	return HC_OK;
-}
-
 /* ---- the command ------------------------------------------------------------ */
 
+/* Summary statistics: the exact rules alone. */
 static int run_summary(const struct enough_opts *o, const struct cli_args *a,
-		       const struct rules_config *cfg, struct enough_run *e,
-		       struct rule_result *res, size_t *nres)
+		       const struct hc_enough_options *eo, struct hc_enough **e)
 {
-	struct rules_input in;
-	struct moments mo;
 	struct hc_error err;
+	double vbar = 0, cbar = 0, ppy;
 	int rc;
 
-	rc = summary_averages(o, a, &e->vbar, &e->cbar);
-	if (rc)
+	if ((rc = summary_averages(o, a, &vbar, &cbar)))
 		return rc;
-	e->m = o->sum.securities;
-	/* The same checks as `formula` (c-bar at most v-bar, c-bar at least
-	 * -v-bar/(M-1), M not 1), by the same function. */
-	hc_error_clear(&err);
-	if (hc_moments_from_summary(&mo, e->vbar, e->cbar, e->m, &err))
-		return cli_fail("enough", &err);
-	e->annualised = cli_given(a, "periods-per-year");
-	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
-	if (!(e->ppy > 0))
-		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
+	ppy = cli_given(a, "periods-per-year") ? o->uni.periods_per_year : 0.0;
+	if (cli_given(a, "periods-per-year") && !(ppy > 0))
+		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", ppy);
 	if (cli_given(a, "bootstrap") && o->rul.bootstrap > 0)
 		return cli_usage_error("enough", "--bootstrap needs a universe file: summary statistics have no periods to resample");
-	e->no_interval = "no interval: summary statistics have no periods to resample";
-	memset(&in, 0, sizeof in);
-	in.vbar = e->vbar;
-	in.cbar = e->cbar;
-	in.m = e->m;
-	in.periods_per_year = e->ppy;
-	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
+	hc_error_clear(&err);
+	rc = hc_enough_summary(e, vbar, cbar, o->sum.securities, ppy, eo, &err);
 	return rc ? cli_fail("enough", &err) : HC_OK;
 }
 
-/* What a return-history run reads: the command's name for messages and the
- * option groups it shares with `holdcount report`. */
-struct data_run {
-	const char *cmd;
-	const struct cli_rules *rul;
-	const struct cli_sampling *smp;
-	struct cli_strata *strat;
-	int quiet;
-	int stages;                /* announce each long step (cli_stage) */
-	const struct hc_periodic *per; /* a ragged history read period by period, or NULL */
-};
-
-/* Options that contradict the rules chosen (before any file is read). */
-static int data_checks(const char *cmd, const struct cli_sampling *smp, const struct cli_strata *strat,
-		       const struct rules_config *cfg)
+/* A return history or (--covariance) a matrix. */
+static int run_file(struct enough_opts *o, const struct cli_args *a, struct hc_enough_options *eo,
+		    struct hc_enough **e)
 {
-	if ((strat->map || strat->per_stratum_max || strat->proportional) && !(cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
-	if (smp->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
-	return HC_OK;
-}
-
-/* The band and shortfall rules by sampling (hc_rules_sampled stops at the
- * smallest stage of sizes that settles them) the return series u, or
- * (band only) the covariance matrix cm when it is not NULL; their results
- * replace the "needs sampled portfolios" placeholders that hc_rules_evaluate
- * left.  ppy: u's periods per year, or the matrix's scale. */
-static int run_sampled(const struct data_run *d, const struct universe *u, const struct covmatrix *cm,
-		       const struct rules_config *cfg, double cbar, double ppy, struct enough_run *e,
-		       struct rule_result *res, size_t nres)
-{
-	struct rules_config band = *cfg;
-	struct sampler_options so;
-	struct cli_progress prog;
-	struct rule_result sr[2];
+	const char *path = a->positional[0];
+	struct hc_strata_use su;
+	struct hc_source *src = NULL;
+	struct universe *u = NULL;
+	struct cli_steps steps;
 	struct hc_error err;
-	size_t n = 0, k, j;
-	int rc;
+	int rc, band = (eo->rules.selected & RULES_FLAG(RULES_BAND)) != 0;
 
-	hc_error_clear(&err);
-	hc_sampler_options_init(&so);
-	so.paths = d->smp->paths;
-	so.seed = d->smp->seed;
-	so.threads = (int)d->smp->threads;
-	so.periods_per_year = ppy;
-	if (!cm && (rc = cli_strata_apply(d->cmd, d->strat, u, &so)))
+	if ((rc = cli_enough_checks("enough", &o->smp, &o->strat, &eo->rules)))
 		return rc;
-	if (d->stages)
-		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
-	cli_progress_init(&prog, "sampling", "paths", d->quiet);
-	so.progress = cli_progress_update;
-	so.progress_ctx = &prog;
-	band.selected &= ~RULES_FLAG(RULES_SHORTFALL);
-	rc = cm ? hc_rules_sampled_matrix(&band, cm->a, cm->m, &so, cbar, sr, &n, &e->sampled_sizes, &err)
-		: hc_rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
-	cli_progress_finish(&prog);
-	if (rc)
-		return cli_fail(d->cmd, &err);
-	for (k = 0; k < n; k++)
-		for (j = 0; j < nres; j++)
-			if (res[j].rule == sr[k].rule)
-				res[j] = sr[k];
-	e->paths = d->smp->paths;
-	e->seed = d->smp->seed;
-	if (!cm && d->strat->per_stratum_max) {
-		/* Past sum_s min(K, m_s) no portfolio meets the cap: say so. */
-		size_t top = hc_strata_cap_most(d->strat->strata, d->strat->per_stratum_max);
-
-		for (j = 0; j < nres; j++)
-			if ((RULES_FLAG(res[j].rule) & RULES_SAMPLED_MASK) && res[j].defined && !res[j].met)
-				snprintf(res[j].note, sizeof res[j].note,
-					 "not met up to %zu holdings, the most with at most %zu in every stratum",
-					 top, d->strat->per_stratum_max);
+	if (o->uni.covariance)
+		rc = cli_load_source("enough", &o->uni, a, path, 0, NULL, &src);
+	else if ((rc = cli_load_universe("enough", &o->uni, path, &u)) == HC_OK) {
+		if (u->has_missing && (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)) {
+			hc_universe_free(u);
+			return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps%s",
+					       path, o->uni.missing == CLI_MISSING_ALIVE
+					       ? ": --missing complete keeps only the securities with none" : " under --missing pairwise");
+		}
+		/* With gaps left the band rule draws from the pairwise-complete
+		 * covariances, and --repair-psd makes the exact rules use the repair too. */
+		rc = cli_source_from_universe("enough", &o->uni, u, path, band,
+					      "the pairwise-complete covariances are not positive semi-definite, so the band "
+					      "rule cannot draw random portfolios from them; --rules exact leaves it out, and "
+					      HC_SOURCE_PSD_HINT, &src);
 	}
-	return HC_OK;
-}
-
-static int run_bootstrap(const struct data_run *d, const struct universe *u,
-			 const struct rules_config *cfg, struct enough_run *e,
-			 struct rule_result *res, size_t nres)
-{
-	struct bootstrap_base *b = NULL;
-	struct bootstrap_result *br = NULL;
-	struct bootstrap_options bo;
-	struct cli_progress prog;
-	struct hc_error err;
-	int rc;
-
-	hc_error_clear(&err);
-	hc_bootstrap_options_init(&bo);
-	bo.replicates = d->rul->bootstrap;
-	bo.kind = d->rul->bootstrap_kind;
-	bo.block_length = d->rul->block_length;
-	bo.seed = d->smp->seed;
-	bo.threads = (int)d->smp->threads;
-	rc = hc_bootstrap_base_alloc(&b, u, &err);
+	if (rc == HC_OK && hc_source_has_series(src) && (eo->rules.selected & RULES_SAMPLED_MASK) &&
+	    (rc = cli_strata_apply("enough", &o->strat, src->u, &su)) == HC_OK)
+		eo->strata = &su;
 	if (rc == HC_OK) {
-		if (d->stages) {
-			char what[96];
-			snprintf(what, sizeof what, "bootstrap of the exact rules (%zu replicates)", d->rul->bootstrap);
-			cli_stage(d->cmd, d->quiet, what);
-		}
-		cli_progress_init(&prog, "bootstrap", "replicates", d->quiet);
-		bo.progress = cli_progress_update;
-		bo.progress_ctx = &prog;
-		rc = hc_bootstrap_run(&br, b, &bo, &err);
-		cli_progress_finish(&prog);
-	}
-	if (rc == HC_OK)
-		rc = hc_rules_bootstrap_exact(cfg, br->vbar, br->cbar, br->replicates, u->m,
-					   u->periods_per_year, res, nres, &err);
-	if (rc == HC_OK) {
-		e->bootstrapped = 1;
-		e->replicates = br->replicates;
-		e->block_length = br->block_length;
-		e->kind = br->kind;
-	}
-	if (rc == HC_OK && d->rul->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
-		struct sampler_options so;
-
-		hc_sampler_options_init(&so);
-		so.paths = d->rul->bootstrap_paths;
-		so.threads = (int)d->smp->threads;
-		so.periods_per_year = u->periods_per_year;
-		if ((rc = cli_strata_apply(d->cmd, d->strat, u, &so))) {
-			hc_bootstrap_result_free(br);
-			hc_bootstrap_base_free(b);
-			return rc;
-		}
-		if (d->stages)
-			cli_stage(d->cmd, d->quiet, "bootstrap of the sampled rules");
-		cli_progress_init(&prog, "sampled bootstrap", "replicates", d->quiet);
-		bo.progress = cli_progress_update;
-		bo.progress_ctx = &prog;
-		rc = hc_rules_bootstrap_sampled(cfg, u, b, &bo, &so, res, nres, &err);
-		cli_progress_finish(&prog);
-		e->sampled_bootstrapped = rc == HC_OK;
-	}
-	hc_bootstrap_result_free(br);
-	hc_bootstrap_base_free(b);
-	return rc ? cli_fail(d->cmd, &err) : HC_OK;
-}
-
-/* A covariance matrix (--covariance): the exact rules from its averages
- * and the band rule from random portfolios drawn from it; no periods, so no
- * shortfall rule (refused by cli_rules_config) and no interval. */
-static int run_matrix(struct enough_opts *o, const struct cli_args *a, const char *path,
-		      const struct rules_config *cfg, struct cli_psd *ps, struct enough_run *e,
-		      struct rule_result *res, size_t *nres)
-{
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0, NULL };
-	struct covmatrix *cm = NULL;
-	struct rules_input in;
-	struct moments mo;
-	struct hc_error err;
-	int rc;
-
-	hc_error_clear(&err);
-	if (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)
-		return cli_usage_error("enough", "--strata draws from return series, not from a covariance matrix");
-	if ((rc = data_checks("enough", &o->smp, &o->strat, cfg)))
-		return rc;
-	e->annualised = cli_given(a, "periods-per-year");
-	e->ppy = e->annualised ? o->uni.periods_per_year : 1.0;
-	if (!(e->ppy > 0))
-		return cli_usage_error("enough", "--periods-per-year must be positive, found %g", e->ppy);
-	cli_psd_init(ps, o->uni.repair_psd, e->ppy, e->annualised, "the covariance matrix");
-	if ((rc = cli_load_covariance("enough", &o->uni, a, path, ps, &cm)))
-		return rc;
-	e->ps = ps;
-	e->matrix = path;
-	rc = hc_moments_from_matrix(&mo, cm->a, cm->m, &err);
-	if (rc) {
-		hc_error_prefix(&err, path);
-		rc = cli_fail("enough", &err);
-		goto cleanup;
-	}
-	e->vbar = mo.average_variance;
-	e->cbar = mo.average_covariance;
-	e->m = mo.m;
-	e->no_interval = "no interval: a covariance matrix has no periods to resample";
-	memset(&in, 0, sizeof in);
-	in.vbar = e->vbar;
-	in.cbar = e->cbar;
-	in.m = e->m;
-	in.periods_per_year = e->ppy;
-	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
-	if (rc) {
-		rc = cli_fail("enough", &err);
-		goto cleanup;
-	}
-	if (cfg->selected & RULES_FLAG(RULES_BAND))
-		rc = run_sampled(&d, NULL, cm, cfg, e->cbar, e->ppy, e, res, *nres);
-cleanup:
-	hc_covmatrix_free(cm);
-	return rc;
-}
-
-/* Ragged histories (--missing alive): the band and shortfall rules (those
- * selected) from ragged random portfolios (periodic.h) over sizes 1..K, K
- * growing as hc_rules_sampled's stages do until both are met or K reaches
- * M.  sr[0] band, sr[1] shortfall; *largest gets the last K. */
-static int ragged_stages(const struct hc_periodic *p, const struct universe *u, const struct rules_config *cfg,
-			 const struct sampler_options *base, struct rule_result sr[2], size_t *largest,
-			 struct hc_error *err)
-{
-	struct sampler_options so = *base;
-	struct sampler_result *r = NULL;
-	size_t K = RULES_SAMPLED_FIRST_K, *sizes, k;
-	double uret = 0;
-	int rc = HC_OK;
-
-	so.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
-	so.periods_per_year = u->periods_per_year;
-	if (so.want_returns && (rc = hc_periodic_universe_return(p, u->periods_per_year, &uret, err)))
-		return rc;
-	if (!(sizes = hc_malloc(p->m * sizeof *sizes)))
-		return hc_error(err, HC_ENOMEM, "out of memory for the sampled sizes");
-	for (k = 0; k < p->m; k++)
-		sizes[k] = k + 1;
-	for (;;) {
-		int all_met = 1;
-
-		if (K > p->m)
-			K = p->m;
-		hc_sampler_result_free(r);
-		r = NULL;
-		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, err);
-		for (k = 0; rc == HC_OK && k < 2; k++) {
-			int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
-
-			if (!(cfg->selected & RULES_FLAG(rule)))
-				continue;
-			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, u->periods_per_year, &sr[k], err)
-						: hc_rules_shortfall(cfg, r, uret, &sr[k], err);
-			all_met &= rc == HC_OK && sr[k].met;
-		}
-		if (rc || all_met || K == p->m)
-			break;
-		K *= RULES_SAMPLED_GROWTH;
-	}
-	*largest = K;
-	hc_sampler_result_free(r);
-	hc_free(sizes);
-	return rc;
-}
-
-static int ragged_sampled(const struct data_run *d, const struct universe *u, const struct rules_config *cfg,
-			  struct enough_run *e, struct rule_result *res, size_t nres)
-{
-	struct sampler_options so;
-	struct rule_result sr[2];
-	struct cli_progress prog;
-	struct hc_error err;
-	size_t k, j;
-	int rc;
-
-	hc_error_clear(&err);
-	hc_sampler_options_init(&so);
-	so.paths = d->smp->paths;
-	so.seed = d->smp->seed;
-	so.threads = (int)d->smp->threads;
-	if (d->stages)
-		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
-	cli_progress_init(&prog, "sampling", "paths", d->quiet);
-	so.progress = cli_progress_update;
-	so.progress_ctx = &prog;
-	rc = ragged_stages(d->per, u, cfg, &so, sr, &e->sampled_sizes, &err);
-	cli_progress_finish(&prog);
-	if (rc)
-		return cli_fail(d->cmd, &err);
-	for (k = 0; k < 2; k++)
-		for (j = 0; j < nres; j++)
-			if (res[j].rule == (k == 0 ? RULES_BAND : RULES_SHORTFALL) && (cfg->selected & RULES_FLAG(res[j].rule)))
-				res[j] = sr[k];
-	e->paths = d->smp->paths;
-	e->seed = d->smp->seed;
-	return HC_OK;
-}
-
-/* --bootstrap-sampled on a ragged history: per replicate the periods are
- * drawn as for the exact rules, the resampled history is re-summed (each
- * security re-centred on the replicate, O(M T)) and sampled afresh with the
- * replicate's seed (hc_rules_replicate_seed), B x the sampling cost. */
-static int ragged_bootstrap_sampled(const struct data_run *d, const struct universe *u,
-				    const struct rules_config *cfg, const struct bootstrap_options *bo,
-				    struct rule_result *res, size_t nres, struct hc_error *err)
-{
-	size_t B = bo->replicates, L = bo->block_length ? bo->block_length : hc_bootstrap_default_block_length(u->t);
-	size_t *idx = hc_malloc(u->t * sizeof *idx), *cnt = hc_calloc(2 * (B ? B : 1), sizeof *cnt), rep, k, j, K;
-	struct sampler_options so;
-	struct cli_progress prog;
-	int rc = HC_OK;
-
-	if (!idx || !cnt) {
-		rc = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
-		goto out;
-	}
-	hc_sampler_options_init(&so);
-	so.paths = d->rul->bootstrap_paths;
-	so.threads = (int)d->smp->threads;
-	cli_progress_init(&prog, "sampled bootstrap", "replicates", d->quiet);
-	for (rep = 0; rep < B && rc == HC_OK; rep++) {
-		struct universe *ru = NULL;
-		struct hc_periodic *rp = NULL;
-		struct rule_result sr[2];
-
-		so.seed = hc_rules_replicate_seed(bo->seed, rep);
-		rc = hc_bootstrap_indices(bo->kind, u->t, L, bo->seed, rep, idx, err);
-		if (rc == HC_OK)
-			rc = hc_universe_resample(&ru, u, idx, u->t, err);
-		if (rc == HC_OK)
-			rc = hc_periodic_alloc(&rp, ru, 0, ru->t, err);
-		if (rc == HC_OK)
-			rc = ragged_stages(rp, ru, cfg, &so, sr, &K, err);
-		for (k = 0; rc == HC_OK && k < 2; k++)
-			cnt[2 * rep + k] = sr[k].met ? sr[k].count : 0;
-		hc_periodic_free(rp);
-		hc_universe_free(ru);
-		cli_progress_update(&prog, rep + 1, B);
-	}
-	cli_progress_finish(&prog);
-	for (k = 0; rc == HC_OK && k < 2; k++) {
-		int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
-
-		if (!(cfg->selected & RULES_FLAG(rule)))
-			continue;
-		for (j = 0; j < nres; j++)
-			if (res[j].rule == rule) {
-				size_t *col = hc_malloc(B * sizeof *col);
-
-				if (!col) {
-					rc = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
-					break;
-				}
-				for (rep = 0; rep < B; rep++)
-					col[rep] = cnt[2 * rep + k];
-				hc_rules_set_interval(&res[j], col, B);
-				hc_free(col);
-			}
-	}
-out:
-	hc_free(idx);
-	hc_free(cnt);
-	return rc;
-}
-
-/* Ragged histories: every exact rule on the per-period curve, the sampled
- * rules from ragged portfolios, the interval from O(T) replicates. */
-static int run_ragged(const struct data_run *d, const struct universe *u, const struct rules_config *cfg,
-		      struct enough_run *e, struct rule_result *res, size_t nres)
-{
-	struct bootstrap_options bo;
-	struct hc_error err;
-	size_t j;
-	int rc = HC_OK;
-
-	hc_error_clear(&err);
-	for (j = 0; j < nres && rc == HC_OK; j++)
-		if (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
-			rc = hc_periodic_rule(cfg, res[j].rule, &d->per->curve, u->periods_per_year, &res[j], &err);
-	if (rc)
-		return cli_fail(d->cmd, &err);
-	if ((cfg->selected & RULES_SAMPLED_MASK) && (rc = ragged_sampled(d, u, cfg, e, res, nres)))
-		return rc;
-	if (d->rul->bootstrap == 0) {
-		e->no_interval = "no interval: --bootstrap 0";
-		return HC_OK;
-	}
-	hc_bootstrap_options_init(&bo);
-	bo.replicates = d->rul->bootstrap;
-	bo.kind = d->rul->bootstrap_kind;
-	bo.block_length = d->rul->block_length;
-	bo.seed = d->smp->seed;
-	bo.threads = (int)d->smp->threads;
-	if (d->stages)
-		cli_stage(d->cmd, d->quiet, "bootstrap of the exact rules");
-	rc = hc_periodic_bootstrap(cfg, d->per, &bo, u->periods_per_year, res, nres, &err);
-	if (rc)
-		return cli_fail(d->cmd, &err);
-	e->bootstrapped = 1;
-	e->replicates = bo.replicates;
-	e->block_length = bo.block_length ? bo.block_length : hc_bootstrap_default_block_length(u->t);
-	e->kind = bo.kind;
-	if (d->rul->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
-		if (d->stages)
-			cli_stage(d->cmd, d->quiet, "bootstrap of the sampled rules");
-		if ((rc = ragged_bootstrap_sampled(d, u, cfg, &bo, res, nres, &err)))
-			return cli_fail(d->cmd, &err);
-		e->sampled_bootstrapped = 1;
-		e->bootstrap_paths = d->rul->bootstrap_paths;
-	}
-	return HC_OK;
-}
-
-/* Every selected rule on a return history: exact, sampled, bootstrap.
- * With gaps left (--missing pairwise) the band rule draws from cm, the
- * pairwise-complete covariances (NULL when band is not selected). */
-static int run_data(const struct data_run *d, const struct universe *u, const struct covmatrix *cm,
-		    const struct moments *mo, const struct rules_config *cfg, struct enough_run *e,
-		    struct rule_result *res, size_t *nres)
-{
-	struct rules_input in;
-	struct hc_error err;
-	int rc;
-
-	e->u = u;
-	e->vbar = mo->average_variance;
-	e->cbar = mo->average_covariance;
-	e->m = u->m;
-	e->ppy = u->periods_per_year;
-	e->annualised = 1;
-	e->seed = d->smp->seed;
-	memset(&in, 0, sizeof in);
-	in.vbar = e->vbar;
-	in.cbar = e->cbar;
-	in.m = e->m;
-	in.periods_per_year = e->ppy;
-	hc_error_clear(&err);
-	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
-	if (rc)
-		return cli_fail(d->cmd, &err);
-	if (d->per) {
-		e->per = d->per;
-		e->m = d->per->m;
-		return run_ragged(d, u, cfg, e, res, *nres);
-	}
-	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
-		for (size_t j = 0; j < *nres; j++)
-			if (res[j].rule == RULES_SHORTFALL)
-				snprintf(res[j].note, sizeof res[j].note,
-					 "needs complete data: a portfolio's return over time needs every member's "
-					 "return in every period");
-		if (cm && (rc = run_sampled(d, u, cm, cfg, e->cbar, u->periods_per_year, e, res, *nres)))
-			return rc;
-	} else if (cfg->selected & RULES_SAMPLED_MASK) {
-		rc = run_sampled(d, u, NULL, cfg, e->cbar, u->periods_per_year, e, res, *nres);
-		if (rc)
-			return rc;
-	}
-	if (d->rul->bootstrap == 0)
-		e->no_interval = "no interval: --bootstrap 0";
-	else if (u->has_missing)
-		e->no_interval = "no interval: the bootstrap resamples whole periods and needs complete data";
-	else
-		rc = run_bootstrap(d, u, cfg, e, res, *nres);
-	return rc;
-}
-
-/* cli_enough_data, with the pairwise matrix cm (or NULL) and what
- * --repair-psd did (ps, or NULL). */
-static int enough_data(const struct data_run *d, const struct universe *u, const struct covmatrix *cm,
-		       const struct cli_psd *ps, const struct moments *mo, const struct rules_config *cfg,
-		       struct rule_result *res, size_t *nres, struct report **out)
-{
-	struct enough_run e;
-	int rc;
-
-	*out = NULL;
-	*nres = 0;
-	if ((rc = data_checks(d->cmd, d->smp, d->strat, cfg)))
-		return rc;
-	memset(&e, 0, sizeof e);
-	e.ps = ps;
-	rc = run_data(d, u, cm, mo, cfg, &e, res, nres);
-	return rc ? rc : build_report(d->cmd, &e, d->strat, res, *nres, out);
-}
-
-int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
-		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
-		    const struct moments *mo, const struct rules_config *cfg,
-		    const struct hc_periodic *per,
-		    struct rule_result *res, size_t *nres, struct report **out)
-{
-	struct data_run d = { cmd, rul, smp, strat, quiet, stages, per };
-
-	return enough_data(&d, u, NULL, NULL, mo, cfg, res, nres, out);
-}
-
-/* A return history: load it, then the rules as `holdcount report` also runs them. */
-static int enough_file(struct enough_opts *o, const char *path, const struct rules_config *cfg,
-		       struct cli_psd *ps, struct universe **up, struct rule_result *res, size_t *nres,
-		       struct report **out)
-{
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0, NULL };
-	struct covmatrix *cm = NULL;
-	struct hc_periodic *per = NULL;
-	struct moments mo;
-	struct hc_error err;
-	int rc;
-
-	if ((rc = data_checks("enough", &o->smp, &o->strat, cfg)))
-		return rc;
-	rc = cli_load_universe("enough", &o->uni, path, up);
-	if (rc)
-		return rc;
-	if (cli_ragged(&o->uni, *up)) {
-		if (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)
-			return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps: "
-					       "--missing complete keeps only the securities with none", path);
-		if ((rc = cli_ragged_sums("enough", *up, &per)))
-			return rc;
+		cli_steps_bind(&steps, &eo->progress, "enough", o->out.quiet, 0);
 		hc_error_clear(&err);
-		hc_periodic_moments(per, &mo, &err);
-		d.per = per;
-		rc = enough_data(&d, *up, NULL, NULL, &mo, cfg, res, nres, out);
-		hc_periodic_free(per);
-		return rc;
+		if (hc_enough_run(e, src, eo, &err))
+			rc = cli_fail("enough", &err);
 	}
-	cli_psd_init(ps, o->uni.repair_psd, (*up)->periods_per_year, 1, "the pairwise-complete covariance matrix");
-	/* With gaps left the band rule draws from the pairwise-complete
-	 * covariances, and --repair-psd makes the exact rules use the repair too. */
-	if ((*up)->has_missing && (o->strat.map || o->strat.per_stratum_max || o->strat.proportional))
-		return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps "
-				       "under --missing pairwise", path);
-	if ((*up)->has_missing && ((cfg->selected & RULES_FLAG(RULES_BAND)) || ps->asked) &&
-	    (rc = cli_pairwise_matrix("enough", *up, path,
-				      "the pairwise-complete covariances are not positive semi-definite, so the band "
-				      "rule cannot draw random portfolios from them; --rules exact leaves it out, and "
-				      CLI_PSD_HINT, ps, &cm)))
-		return rc;
-	hc_error_clear(&err);
-	rc = ps->repaired ? hc_moments_from_matrix(&mo, cm->a, cm->m, &err) : hc_moments_from_universe(&mo, *up, &err);
-	if (rc)
-		rc = cli_fail("enough", &err);
-	else
-		rc = enough_data(&d, *up, (cfg->selected & RULES_FLAG(RULES_BAND)) ? cm : NULL, ps, &mo, cfg,
-				 res, nres, out);
-	hc_covmatrix_free(cm);
+	hc_source_free(src);
 	return rc;
 }
 
@@ -948,13 +170,8 @@ int cmd_enough(int argc, char **argv)
 {
 	struct enough_opts o;
 	struct cli_args a;
-	struct rules_config cfg;
-	struct rule_result res[RULES_COUNT];
-	struct enough_run e;
-	struct universe *u = NULL;
-	struct report *r = NULL;
-	struct cli_psd ps;
-	size_t nres = 0;
+	struct hc_enough_options eo;
+	struct hc_enough *e = NULL;
 	int rc, have_data;
 
 	memset(&o, 0, sizeof o);
@@ -967,7 +184,6 @@ int cmd_enough(int argc, char **argv)
 	rc = cli_parse(&cli_command_enough, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
-	memset(&e, 0, sizeof e);
 	have_data = a.npositional == 1;
 	if (have_data && data_summary_given(&a)) {
 		rc = cli_usage_error("enough", "give a UNIVERSE file or summary statistics, not both");
@@ -980,33 +196,23 @@ int cmd_enough(int argc, char **argv)
 	}
 	if (have_data && (rc = cli_psd_usage("enough", &o.uni)) != HC_OK)
 		goto cleanup;
-	rc = cli_rules_config("enough", &o.rul, &a, have_data, o.uni.covariance, &cfg);
+	rc = cli_enough_options("enough", &o.rul, &o.smp, &a, have_data, o.uni.covariance, &eo);
 	if (rc)
 		goto cleanup;
 	/* Summary statistics and a matrix stay on the inputs' scale unless told
 	 * the periods per year: the rules' texts then say "per period". */
-	cfg.per_period = (!have_data || o.uni.covariance) && !cli_given(&a, "periods-per-year");
+	eo.rules.per_period = (!have_data || o.uni.covariance) && !cli_given(&a, "periods-per-year");
 	if ((!have_data || o.uni.covariance) && (o.strat.map || o.strat.per_stratum_max || o.strat.proportional)) {
 		rc = cli_usage_error("enough", "--strata draws from return series, not from %s",
 				     have_data ? "a covariance matrix" : "summary statistics");
 		goto cleanup;
 	}
-	if (have_data && !o.uni.covariance) {
-		rc = enough_file(&o, a.positional[0], &cfg, &ps, &u, res, &nres, &r);
-	} else {
-		if (have_data)
-			rc = run_matrix(&o, &a, a.positional[0], &cfg, &ps, &e, res, &nres);
-		else
-			rc = run_summary(&o, &a, &cfg, &e, res, &nres);
-		if (rc == HC_OK)
-			rc = build_report("enough", &e, have_data ? &o.strat : NULL, res, nres, &r);
-	}
+	rc = have_data ? run_file(&o, &a, &eo, &e) : run_summary(&o, &a, &eo, &e);
 	if (rc == HC_OK)
-		rc = cli_write_report("enough", &o.out, r);
+		rc = cli_write_report("enough", &o.out, e->report);
 cleanup:
-	hc_report_free(r);
+	hc_enough_free(e);
 	cli_strata_release(&o.strat);
-	hc_universe_free(u);
 	cli_args_release(&a);
 	return rc;
 }

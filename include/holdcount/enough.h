@@ -1,0 +1,103 @@
+/*
+ * enough.h - the holding count past which extra holdings add little, by
+ * every selected rule (rules.h), with a bootstrap interval: the analysis
+ * `holdcount enough` prints, as one library call.
+ *
+ * The rules and their sources are in docs/enough.md.
+ */
+#ifndef HOLDCOUNT_ENOUGH_H
+#define HOLDCOUNT_ENOUGH_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "holdcount/analysis.h"
+#include "holdcount/error.h"
+#include "holdcount/moments.h"
+#include "holdcount/report.h"
+#include "holdcount/rules.h"
+#include "holdcount/source.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+#define ENOUGH_DEFAULT_PATHS 10000
+#define ENOUGH_DEFAULT_SEED 1
+#define ENOUGH_DEFAULT_BOOTSTRAP_PATHS 1000
+
+struct hc_enough_options {
+	struct rules_config rules;   /* the rules and their parameters (hc_rules_config_init) */
+	size_t paths;                /* random portfolios a size for band and shortfall */
+	uint64_t seed;               /* of the portfolios and the bootstrap */
+	int threads;                 /* 0 = OpenMP's default */
+	size_t bootstrap;            /* replicates for the interval; 0 = none */
+	int bootstrap_kind;          /* enum bootstrap_kind */
+	size_t block_length;         /* 0 = round(T^(1/3)) */
+	int bootstrap_sampled;       /* also bootstrap band and shortfall (costly) */
+	size_t bootstrap_paths;      /* portfolios a size in each such replicate */
+	const struct hc_strata_use *strata; /* NULL: unconstrained draws */
+	const struct moments *moments; /* the source's, when the caller has them; NULL: computed */
+	struct hc_progress progress;
+};
+
+/* Defaults: hc_rules_config_init's rules, ENOUGH_DEFAULT_PATHS paths, seed
+ * ENOUGH_DEFAULT_SEED, BOOTSTRAP_DEFAULT_REPLICATES block-bootstrap
+ * replicates, ENOUGH_DEFAULT_BOOTSTRAP_PATHS, no strata, no progress. */
+void hc_enough_options_init(struct hc_enough_options *opt);
+
+struct hc_enough {
+	struct rule_result rules[RULES_COUNT];  /* one per selected rule, in rules.h's order */
+	size_t nrules;
+	double vbar, cbar;           /* average variance and covariance, per period */
+	size_t m;                    /* securities; 0 = unbounded (summary statistics) */
+	double periods_per_year;     /* figures are multiplied by it (1: not annualised) */
+	int annualised;
+	int bootstrapped;            /* the exact rules have an interval */
+	size_t replicates, block_length;
+	int kind;                    /* enum bootstrap_kind */
+	uint64_t seed;
+	size_t paths;                /* 0: no rule was sampled */
+	size_t sampled_sizes;        /* sampled sizes 1..this */
+	int sampled_bootstrapped;
+	const char *no_interval;     /* static: why there is no interval, or NULL */
+	struct report *report;       /* fields, strata, table "rules", notes and cautions */
+};
+
+/*
+ * Every selected rule of opt on src: the exact rules from its averages;
+ * band and shortfall by random portfolios (hc_rules_sampled stops at the
+ * smallest stage of sizes that settles them), band only from a matrix (a
+ * covariance matrix, or the pairwise-complete covariances of series with
+ * gaps: build such a source with need_matrix when band is selected) and
+ * shortfall only from complete series; the bootstrap interval of the exact
+ * rules (complete series only) and, with bootstrap_sampled, of the sampled
+ * ones.  A matrix's figures are on its own scale unless the source is
+ * annualised.  *out is new (hc_enough_free) or NULL on error.
+ * Errors: HC_EUSAGE with the reason (shortfall, --bootstrap or
+ * --bootstrap-sampled from a matrix; strata with gaps or a matrix; paths 0
+ * with a sampled rule; strata without a sampled rule), the moments',
+ * rules', sampler's and bootstrap's errors, HC_ENOMEM, HC_EINTERRUPT.
+ */
+int hc_enough_run(struct hc_enough **out, const struct hc_source *src,
+		  const struct hc_enough_options *opt, struct hc_error *err);
+
+/*
+ * The exact rules from summary statistics alone: average variance vbar and
+ * covariance cbar per period, m securities (0 = unbounded), figures
+ * multiplied by periods_per_year (0: not annualised, on the inputs' scale).
+ * No interval.  Errors: those of hc_moments_from_summary, the rules' (a
+ * sampled rule is HC_EUSAGE), HC_ENOMEM.
+ */
+int hc_enough_summary(struct hc_enough **out, double vbar, double cbar, size_t m,
+		      double periods_per_year, const struct hc_enough_options *opt,
+		      struct hc_error *err);
+
+/* Free e and everything it owns; NULL is a no-op. */
+void hc_enough_free(struct hc_enough *e);
+
+#ifdef __cplusplus
+}
+#endif
+
+#endif
