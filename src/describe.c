@@ -116,6 +116,7 @@ static int build(struct report *r, const struct hc_source *s, const struct momen
 					   "semi-definite matrix"
 			    : u->has_missing ? "pairwise-complete (data with gaps)" : "complete data") ||
 	    (s->kind == HC_SOURCE_RAGGED && hc_source_report_treatment(s, r)) ||
+	    hc_source_report_reading(s, r) ||
 	    add_averages(r, mo, p))
 		return HC_ENOMEM;
 	if (add_kept(r, u) || add_dropped(r, u) || hc_source_report_psd(s, r))

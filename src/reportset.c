@@ -238,7 +238,7 @@ static int build_universe(struct hc_reportset *r)
 			    r->curve->floor_variance >= 0 ? sqrt(r->curve->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
 	    hc_report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
 			    REPORT_STYLE_PERCENT) ||
-	    hc_source_report_treatment(r->src, rep))
+	    hc_source_report_treatment(r->src, rep) || hc_source_report_reading(r->src, rep))
 		return HC_ENOMEM;
 	if (r->u->ndropped) {
 		t = hc_report_add_table(rep, "dropped", "securities dropped");
@@ -401,6 +401,8 @@ static void md_universe(FILE *fp, const struct hc_reportset *r)
 		{ "alive_median", "securities alive per period, median" },
 		{ "alive_max", "securities alive per period, most" },
 		{ "securities_complete", "securities with no gap" }, { "periods", "periods" },
+		{ "periods_read", "periods read (before --frequency or --from/--to)" },
+		{ "bad_cells", "cells read as missing (--bad-cells missing)" }, { "bad_cell_first", "the first of them" },
 		{ "first_date", "first period" }, { "last_date", "last period" },
 		{ "periods_per_year", "periods per year" }, { "annualisation", "annualisation" },
 		{ "average_variance", "average variance (a year)" }, { "average_covariance", "average covariance (a year)" },

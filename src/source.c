@@ -323,3 +323,20 @@ int hc_source_report_treatment(const struct hc_source *s, struct report *r)
 		return HC_ENOMEM;
 	return HC_OK;
 }
+
+int hc_source_report_reading(const struct hc_source *s, struct report *r)
+{
+	const struct universe *u = s->u;
+
+	if (!u)
+		return HC_OK;
+	if (u->bad_cells &&
+	    (hc_report_add_int(r, "bad_cells", "cells read as missing (--bad-cells missing)", (long long)u->bad_cells) ||
+	     hc_report_add_text(r, "bad_cell_first", "the first of them", u->bad_first)))
+		return HC_ENOMEM;
+	if (u->periods_read && u->periods_read != u->t &&
+	    hc_report_add_int(r, "periods_read", "periods read (before --frequency or --from/--to)",
+			      (long long)u->periods_read))
+		return HC_ENOMEM;
+	return HC_OK;
+}

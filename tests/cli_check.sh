@@ -85,5 +85,19 @@ demo="$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv"
 "$HC" describe "$demo" >/dev/null 2>"$T/err"
 [ ! -s "$T/err" ] || fail "describe on the demo wrote to stderr: $(cat "$T/err")"
 
+# --bad-cells: a #N/A and a zero price stop every command naming the cell
+# (status 3), or, with --bad-cells missing, become gaps that check counts
+# and every command warns of, naming the first
+printf 'date,LIR901,LIR902,LIR903\n2024-01-02,10,20,30\n2024-01-03,#N/A,21,31\n2024-01-04,11,0,29\n2024-01-05,12,22,30.5\n2024-01-08,11.5,21.5,31\n' >"$T/bad.csv"
+"$HC" curve "$T/bad.csv" --prices --paths 0 >/dev/null 2>"$T/err"; rc=$?
+[ $rc = 3 ] && grep -q "bad.csv:3:2: expected a number or a missing marker, found the spreadsheet error '#N/A'" "$T/err" \
+	|| fail "curve on a #N/A price exited $rc: $(cat "$T/err")"
+"$HC" check "$T/bad.csv" --prices --bad-cells missing --format json >"$T/bad.json" 2>"$T/err" || fail "check --bad-cells missing exited $?"
+"$PY" -c 'import json,sys; j=json.load(open(sys.argv[1])); assert j["bad_cells"] == 2 and "bad.csv:3:2:" in j["bad_cell_first"], j' "$T/bad.json" \
+	|| fail "check --bad-cells missing: count or first cell"
+"$HC" curve "$T/bad.csv" --prices --bad-cells missing --paths 0 >/dev/null 2>"$T/err" || fail "curve --bad-cells missing exited $?"
+grep -q "warning: 2 cells read as missing (--bad-cells missing), the first: .*bad.csv:3:2: '#N/A'" "$T/err" \
+	|| fail "curve --bad-cells missing: no warning naming the first cell: $(cat "$T/err")"
+
 [ $fails = 0 ] || { echo "cli_check: $fails failures"; exit 1; }
 echo "cli_check: ok"

@@ -39,6 +39,7 @@
 #include <stdint.h>
 
 #include "holdcount/error.h"
+#include "holdcount/report.h"
 #include "holdcount/universe.h"
 
 #ifdef __cplusplus
@@ -94,6 +95,17 @@ void hc_datacheck_free(struct datacheck_result *r);
  * an unadjusted 2-for-1 split (not reversed)". */
 void hc_datacheck_describe(const struct datacheck_finding *f, const struct universe *u,
 			   char *buf, size_t size);
+
+/*
+ * The report `holdcount check` prints: the source, the calendar (weekdays,
+ * days a week, month ends, periods a year from the dates and as used),
+ * the count of findings of each kind, the cells read as missing under
+ * --bad-cells missing, the table "findings" (security, date, check, cell,
+ * finding) and the cautions.  *out is new (hc_report_free) or NULL on
+ * HC_ENOMEM.
+ */
+int hc_datacheck_report(struct report **out, const struct universe *u, const struct datacheck_result *d,
+			struct hc_error *err);
 
 #ifdef __cplusplus
 }

@@ -197,6 +197,14 @@ int hc_source_report_psd(const struct hc_source *s, struct report *r);
  */
 int hc_source_report_treatment(const struct hc_source *s, struct report *r);
 
+/*
+ * What reading the file changed, when it did: bad_cells and bad_cell_first
+ * (cells read as missing under UNIVERSE_BAD_MISSING), periods_read (the
+ * periods before a frequency conversion or a date range, when they differ
+ * from the periods kept).  Nothing for a matrix.  HC_OK, or HC_ENOMEM.
+ */
+int hc_source_report_reading(const struct hc_source *s, struct report *r);
+
 #ifdef __cplusplus
 }
 #endif

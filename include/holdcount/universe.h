@@ -38,6 +38,25 @@ enum universe_missing {
 	UNIVERSE_MISSING_KEEP = 2      /* keep every security as read (for rolling windows) */
 };
 
+/* Cells that are not a number: a spreadsheet's error values (#N/A,
+ * #DIV/0!, #VALUE!, #REF!, #NUM!, #NAME?, #NULL!, any cell starting with
+ * '#') and, for prices, zero or negative prices. */
+enum universe_bad_cells {
+	UNIVERSE_BAD_REFUSE = 0,   /* an error naming file, line, column and the cell */
+	UNIVERSE_BAD_MISSING = 1   /* read as missing, counted (universe.bad_cells) and named (bad_first) */
+};
+
+/* Conversion of the periods read to calendar periods: returns compounded
+ * within each calendar week, month or quarter (prices: the last price of
+ * each period); the period's date is the last date of the data in it. */
+enum universe_frequency {
+	UNIVERSE_FREQ_AS_READ = 0,
+	UNIVERSE_FREQ_WEEKLY = 1,    /* weeks start the day after the calendar's weekend (the weekday
+	                              * run the dates use least: Saturday-Sunday gives Monday) */
+	UNIVERSE_FREQ_MONTHLY = 2,
+	UNIVERSE_FREQ_QUARTERLY = 3  /* calendar quarters (January-March, ...) */
+};
+
 /* Defaults named once. */
 #define UNIVERSE_DEFAULT_MIN_COVERAGE 0.8
 
@@ -66,6 +85,8 @@ struct universe_options {
 	const char *id_column;      /* long layout: NULL = "id" */
 	const char *value_column;   /* long layout: NULL = "value" */
 	size_t max_bytes;           /* budget for the numbers; 0 = from available memory */
+	int bad_cells;              /* enum universe_bad_cells */
+	int frequency;              /* enum universe_frequency */
 };
 
 /* Defaults: wide layout of returns (not percents), complete series only,
@@ -91,6 +112,9 @@ struct universe {
 	size_t ndropped;
 	struct universe_dropped *dropped;
 	char *source;               /* the path it was read from */
+	size_t bad_cells;           /* cells read as missing under UNIVERSE_BAD_MISSING */
+	char bad_first[192];        /* the first of them: "FILE:LINE:COLUMN: 'CELL' (why)"; "" when none */
+	size_t periods_read;        /* periods of returns before a frequency conversion */
 	size_t max_bytes;           /* the budget it was loaded under (universe_options.max_bytes;
 	                             * 0 = from available memory); the steps that compute on it
 	                             * (moments.h, covmatrix.h) keep to it too, and windows and

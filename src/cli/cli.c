@@ -31,6 +31,8 @@
 static const char *const format_words[] = { "table", "csv", "json", NULL };
 static const char *const missing_words[] = { "complete", "pairwise", "alive", NULL };
 static const char *const layout_words[] = { "wide", "long", NULL };
+static const char *const bad_cell_words[] = { "refuse", "missing", NULL };
+static const char *const frequency_words[] = { "as-read", "weekly", "monthly", "quarterly", NULL };
 
 #define OUT(f) offsetof(struct cli_output, f)
 static const struct cli_option output_options[] = {
@@ -63,6 +65,13 @@ static const struct cli_option universe_options[] = {
 	  "leave these securities out (listed as dropped)", NULL, NULL },
 	{ "exclude-file", 0, CLI_STRING, UNI(exclude_file), "FILE",
 	  "leave out the securities listed in FILE, one id a line ('#' starts a comment)", NULL, NULL },
+	{ "frequency", 0, CLI_CHOICE, UNI(frequency), NULL,
+	  "convert to calendar periods: returns compounded within each week, month or quarter "
+	  "(prices: each period's last price), dated by the period's last date", frequency_words, "as-read" },
+	{ "bad-cells", 0, CLI_CHOICE, UNI(bad_cells), NULL,
+	  "spreadsheet errors such as #N/A, and zero or negative prices: an error naming the cell "
+	  "(refuse), or read as missing, counted and the first named on standard error (missing)",
+	  bad_cell_words, "refuse" },
 	{ "strict-data", 0, CLI_FLAG, UNI(strict), NULL,
 	  "a data-check finding (see 'holdcount check') is an error (exit 3), not a warning", NULL, NULL },
 	{ "min-coverage", 0, CLI_FRACTION, UNI(min_coverage), "F",

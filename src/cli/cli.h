@@ -207,6 +207,8 @@ struct cli_universe {
 	const char *exclude;       /* --exclude ID,ID,... */
 	const char *exclude_file;  /* --exclude-file FILE: one id a line */
 	int no_check;              /* set by `check` itself: cli_load_universe runs no checks */
+	int frequency;             /* --frequency: enum universe_frequency (the words in that order) */
+	int bad_cells;             /* --bad-cells: enum universe_bad_cells */
 };
 extern const struct cli_group cli_group_universe;
 void cli_universe_init(struct cli_universe *u);

@@ -26,6 +26,8 @@ int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 	uo->values = !cu->prices ? UNIVERSE_RETURNS : cu->log_returns ? UNIVERSE_PRICES_LOG : UNIVERSE_PRICES;
 	uo->layout = cu->layout == CLI_LAYOUT_LONG ? UNIVERSE_LONG : UNIVERSE_WIDE;
 	uo->percent = cu->percent;
+	uo->frequency = cu->frequency;     /* the choice words are in the enum's order */
+	uo->bad_cells = cu->bad_cells;
 	uo->missing = cu->missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE
 		    : cu->missing == CLI_MISSING_ALIVE ? UNIVERSE_MISSING_KEEP : UNIVERSE_MISSING_COMPLETE;
 	if (!(cu->min_coverage > 0.0 && cu->min_coverage <= 1.0))
@@ -199,6 +201,10 @@ int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct 
 	char first[320];
 
 	hc_error_clear(&err);
+	/* cells read as missing under --bad-cells missing: counted and named */
+	if (u->bad_cells)
+		fprintf(stderr, "holdcount %s: warning: %zu cell%s read as missing (--bad-cells missing), the first: %s\n",
+			cmd, u->bad_cells, u->bad_cells == 1 ? "" : "s", u->bad_first);
 	if (hc_datacheck_run(&d, u, &err))
 		return cli_fail(cmd, &err);
 	if (d->nfindings) {
@@ -233,7 +239,7 @@ int cli_sizes(const char *cmd, const char *text, size_t m, size_t **sizes, size_
  * (--max-memory applies to both). */
 static const char *const return_only_options[] = {
 	"prices", "log-returns", "percent", "missing", "min-coverage", "layout", "date-column",
-	"id-column", "value-column", "delimiter", NULL
+	"id-column", "value-column", "delimiter", "frequency", "bad-cells", NULL
 };
 
 int cli_max_bytes(const char *cmd, const struct cli_universe *cu, size_t *bytes)

@@ -2,7 +2,6 @@
  * cmd_check.c - `holdcount check UNIVERSE`: the data checks alone
  * (datacheck.h), every finding with its security, date and cell.
  */
-#include <math.h>
 #include <stddef.h>
 #include <stdio.h>
 #include <string.h>
@@ -43,72 +42,6 @@ const struct cli_command cli_command_check = {
 	1, 1, check_groups
 };
 
-static void weekday_text(unsigned mask, char *buf, size_t size)
-{
-	static const char *const names[7] = { "Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun" };
-	size_t k, used = 0;
-
-	buf[0] = '\0';
-	for (k = 0; k < 7; k++)
-		if (mask & (1u << k))
-			used += (size_t)snprintf(buf + used, used < size ? size - used : 0, "%s%s",
-						 used ? " " : "", names[k]);
-}
-
-static int build(struct report *r, const struct universe *u, const struct datacheck_result *d)
-{
-	struct report_table *t;
-	char text[320], date[16];
-	size_t j;
-	int k;
-
-	weekday_text(d->weekdays, text, sizeof text);
-	if (hc_report_add_text(r, "source", "source", u->source ? u->source : "") ||
-	    hc_report_add_int(r, "securities", "securities", (long long)u->m) ||
-	    hc_report_add_int(r, "periods", "periods", (long long)u->t) ||
-	    hc_report_add_text(r, "weekdays", "weekdays of the dates", text) ||
-	    hc_report_add_real(r, "days_a_week", "days a week (daily data)", d->days_a_week > 0 ? d->days_a_week : NAN,
-			       REPORT_STYLE_PLAIN) ||
-	    hc_report_add_bool(r, "month_end", "every date a month end", d->month_end) ||
-	    hc_report_add_real(r, "calendar_periods_per_year", "periods a year, counted from the dates",
-			       d->calendar_periods_per_year, REPORT_STYLE_FIXED4) ||
-	    hc_report_add_real(r, "periods_per_year", "periods per year used", u->periods_per_year,
-			       REPORT_STYLE_PLAIN) ||
-	    hc_report_add_int(r, "finding_count", "findings", (long long)d->nfindings))
-		return HC_ENOMEM;
-	for (k = 0; k < DATACHECK_NKINDS; k++) {
-		char key[32], title[48];
-
-		snprintf(key, sizeof key, "count_%s", hc_datacheck_name(k));
-		for (char *c = key; *c; c++)
-			if (*c == '-')
-				*c = '_';
-		snprintf(title, sizeof title, "findings: %s", hc_datacheck_name(k));
-		if (hc_report_add_int(r, key, title, (long long)d->count[k]))
-			return HC_ENOMEM;
-	}
-	t = hc_report_add_table(r, "findings", "findings");
-	if (!t || hc_report_table_add_column(t, "security", "security", REPORT_STYLE_PLAIN) ||
-	    hc_report_table_add_column(t, "date", "date", REPORT_STYLE_PLAIN) ||
-	    hc_report_table_add_column(t, "check", "check", REPORT_STYLE_PLAIN) ||
-	    hc_report_table_add_column(t, "value", "cell", REPORT_STYLE_PLAIN) ||
-	    hc_report_table_add_column(t, "finding", "finding", REPORT_STYLE_PLAIN))
-		return HC_ENOMEM;
-	for (j = 0; j < d->nfindings; j++) {
-		const struct datacheck_finding *f = &d->findings[j];
-
-		hc_universe_format_date(u->dates[f->period], date);
-		hc_datacheck_describe(f, u, text, sizeof text);
-		if (hc_report_table_add_row(t) || hc_report_table_set_text(t, j, 0, u->ids[f->security]) ||
-		    hc_report_table_set_text(t, j, 1, f->kind <= 1 ? "" : date) ||
-		    hc_report_table_set_text(t, j, 2, hc_datacheck_name(f->kind)) ||
-		    hc_report_table_set_text(t, j, 4, text))
-			return HC_ENOMEM;
-		hc_report_table_set_real(t, j, 3, f->value);
-	}
-	return hc_report_add_cautions(r);
-}
-
 int cmd_check(int argc, char **argv)
 {
 	struct check_opts o;
@@ -136,9 +69,7 @@ int cmd_check(int argc, char **argv)
 		rc = cli_fail("check", &err);
 		goto cleanup;
 	}
-	r = hc_report_alloc();
-	if (!r || build(r, u, d)) {
-		hc_error(&err, HC_ENOMEM, "out of memory building the report");
+	if (hc_datacheck_report(&r, u, d, &err)) {
 		rc = cli_fail("check", &err);
 		goto cleanup;
 	}

@@ -224,7 +224,8 @@ static int load(const struct report_opts *o, const char *path, int need_matrix, 
 			      .percent = uo.percent, .missing = UNIVERSE_MISSING_KEEP, .min_coverage = uo.min_coverage,
 			      .periods_per_year = uo.periods_per_year, .delimiter = uo.delimiter,
 			      .date_column = uo.date_column, .id_column = uo.id_column,
-			      .value_column = uo.value_column, .max_bytes = uo.max_bytes }, &err);
+			      .value_column = uo.value_column, .max_bytes = uo.max_bytes,
+			      .frequency = uo.frequency, .bad_cells = uo.bad_cells }, &err);
 	if (rc != HC_OK)
 		return cli_fail("report", &err);
 	/* --from, --to, --exclude, then the data checks, once for every analysis */
