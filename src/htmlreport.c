@@ -564,12 +564,26 @@ static void universe(FILE *fp, const struct htmlreport_input *in)
 	fact(fp, "securities read", field(u, "securities_read"));
 	fact(fp, "securities kept", field(u, "securities"));
 	fact(fp, "securities dropped", field(u, "securities_dropped"));
+	/* a history read period by period (with gaps, listings, delistings) */
+	fact(fp, "securities alive per period, fewest", field(u, "alive_min"));
+	fact(fp, "securities alive per period, median", field(u, "alive_median"));
+	fact(fp, "securities alive per period, most", field(u, "alive_max"));
+	fact(fp, "securities with no gap", field(u, "securities_complete"));
+	fact(fp, "periods read (before --frequency or --from/--to)", field(u, "periods_read"));
+	fact(fp, "cells read as missing (--bad-cells missing)", field(u, "bad_cells"));
+	fact(fp, "the first of them", field(u, "bad_cell_first"));
 	fact(fp, "average correlation", field(u, "average_correlation"));
 	fact(fp, "floor sd a year (no number of holdings gets below it)", field(u, "floor_sd"));
 	fact(fp, "sd of the equal-weight portfolio of all kept securities, a year", field(u, "universe_sd"));
 	fputs("</dl>\n", fp);
-	fputs("<p>Treatment: a security is kept when it has a return in every period of the sample; the others "
-	      "are dropped and listed below, so every figure rests on the same periods. Annualisation: ", fp);
+	/* the treatment the data source states, else the complete-data one */
+	if (field(u, "treatment")->kind == REPORT_TEXT) {
+		fputs("<p>Treatment: ", fp);
+		value(fp, field(u, "treatment"));
+		fputs(". Annualisation: ", fp);
+	} else
+		fputs("<p>Treatment: a security is kept when it has a return in every period of the sample; the others "
+		      "are dropped and listed below, so every figure rests on the same periods. Annualisation: ", fp);
 	value(fp, field(u, "annualisation"));
 	fputs(".</p>\n", fp);
 	whole_table(fp, hc_report_find_table(u, "dropped"), "Securities dropped", dropped, 2, NULL, NULL);

@@ -6,8 +6,11 @@
 # that one fund's verdict changes (the demo's Select Fund C holds 12% in one
 # position; data/README.md).  The figures compared are checked against each
 # folder's own summary.json and CSVs, and the securities in and out against
-# the two CSV files read by Python (a security is kept when it has a return
-# in every period: docs/formats.md, complete data).
+# the two CSV files read by Python.  A history with gaps is read period by
+# period, so every security of the demo with returns stays in at both dates
+# (docs/formats.md); the securities in and out come from the analyst's
+# --exclude: last year's report left LIR148 out, this year's leaves LIR001
+# out (neither is held by a demo fund).
 set -u
 HC=${HOLDCOUNT:?}
 T=${HOLDCOUNT_TEST_TMP:?}/cli_compare
@@ -18,8 +21,8 @@ D=$HOLDCOUNT_SOURCE_DIR/data
 FAST=(--paths 1000 --bootstrap 100 -q --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv")
 
 head -n 181 "$D/demo-universe.csv" >"$T/older.csv"
-"$HC" report "$T/older.csv" -o "$T/old" "${FAST[@]}" || fail "older report exited $?"
-"$HC" report "$D/demo-universe.csv" -o "$T/new" --max-weight 10% "${FAST[@]}" 2>/dev/null; rc=$?
+"$HC" report "$T/older.csv" -o "$T/old" --exclude LIR148 "${FAST[@]}" || fail "older report exited $?"
+"$HC" report "$D/demo-universe.csv" -o "$T/new" --exclude LIR001 --max-weight 10% "${FAST[@]}" 2>/dev/null; rc=$?
 [ $rc -eq 1 ] || fail "the new report with --max-weight 10%: exit $rc, expected 1 (a fund fails)"
 
 # Text: the changed verdict is called out first, in the headline and the first row.
@@ -72,13 +75,16 @@ for side, summ in (("old", o), ("new", n)):
         r = rows[("funds", f"{fund['fund']}: weight missing from the universe")]
         check(r[side] == fund["missing_weight"], f"{side} {fund['fund']} missing weight")
 # securities in and out, from the CSVs themselves
-def kept(path):
+def kept(path, excluded):
+    # every security with returns in the file (read period by period), less the excluded one
     with open(path, newline="") as fp:
         rd = csv.reader(fp)
         head = next(rd)
         rows_ = list(rd)
-    return {head[j] for j in range(1, len(head)) if all(r[j].strip() not in ("", "NA", "NaN", ".") for r in rows_)}
-ko, kn = kept(old_csv), kept(new_csv)
+    return {head[j] for j in range(1, len(head))
+            if sum(r[j].strip() not in ("", "NA", "NaN", ".") for r in rows_) >= 2} - {excluded}
+ko, kn = kept(old_csv, "LIR148"), kept(new_csv, "LIR001")
+check(kn - ko == {"LIR148"} and ko - kn == {"LIR001"}, f"the test's own sets: in {sorted(kn - ko)} out {sorted(ko - kn)}")
 got_in = {s["id"] for s in c["securities"] if s["change"] == "in"}
 got_out = {s["id"] for s in c["securities"] if s["change"] == "out"}
 check(got_in == kn - ko and got_out == ko - kn, f"securities in {sorted(got_in)} out {sorted(got_out)}; "
@@ -90,7 +96,7 @@ sys.exit(1 if bad else 0)
 EOF
 
 # report --previous: the same comparison as a section of summary.md and report.html.
-"$HC" report "$D/demo-universe.csv" -o "$T/new2" --max-weight 10% --previous "$T/old" "${FAST[@]}" 2>/dev/null; rc=$?
+"$HC" report "$D/demo-universe.csv" -o "$T/new2" --exclude LIR001 --max-weight 10% --previous "$T/old" "${FAST[@]}" 2>/dev/null; rc=$?
 [ $rc -eq 1 ] || fail "report --previous: exit $rc, expected 1"
 grep -q '^## Since the last report$' "$T/new2/summary.md" || fail "summary.md has no 'Since the last report'"
 grep -q '(its data: 2005-01-31 to 2019-12-31). \*\*1 fund changed policy verdict: see the first rows\.\*\*$' "$T/new2/summary.md" || fail "summary.md: no headline"

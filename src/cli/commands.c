@@ -16,5 +16,6 @@ const struct cli_command *const cli_commands[] = {
 	&cli_command_report,
 	&cli_command_compare,
 	&cli_command_synth,
+	&cli_command_check,
 	NULL
 };
