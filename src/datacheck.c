@@ -323,3 +323,29 @@ int hc_datacheck_report(struct report **out, const struct universe *u, const str
 	*out = r;
 	return HC_OK;
 }
+
+int hc_datacheck_add_counts(struct report *r, const struct universe *u, const struct datacheck_result *d)
+{
+	char text[320], key[48], title[64];
+	int k;
+
+	if (hc_report_add_int(r, "data_check_findings", "data-check findings", (long long)d->nfindings))
+		return HC_ENOMEM;
+	if (!d->nfindings)
+		return HC_OK;
+	hc_datacheck_describe(&d->findings[0], u, text, sizeof text);
+	if (hc_report_add_text(r, "data_check_first", "the first finding", text))
+		return HC_ENOMEM;
+	for (k = 0; k < DATACHECK_NKINDS; k++) {
+		if (!d->count[k])
+			continue;
+		snprintf(key, sizeof key, "data_check_%s", hc_datacheck_name(k));
+		for (char *c = key; *c; c++)
+			if (*c == '-')
+				*c = '_';
+		snprintf(title, sizeof title, "data-check findings: %s", hc_datacheck_name(k));
+		if (hc_report_add_int(r, key, title, (long long)d->count[k]))
+			return HC_ENOMEM;
+	}
+	return HC_OK;
+}

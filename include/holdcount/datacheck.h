@@ -107,6 +107,14 @@ void hc_datacheck_describe(const struct datacheck_finding *f, const struct unive
 int hc_datacheck_report(struct report **out, const struct universe *u, const struct datacheck_result *d,
 			struct hc_error *err);
 
+/*
+ * The count of findings in another report (the report folder's universe):
+ * data_check_findings, and when there are any data_check_first (the first
+ * as hc_datacheck_describe words it) and data_check_KIND for each kind
+ * found.  HC_OK, or HC_ENOMEM.
+ */
+int hc_datacheck_add_counts(struct report *r, const struct universe *u, const struct datacheck_result *d);
+
 #ifdef __cplusplus
 }
 #endif
