@@ -458,13 +458,11 @@ static int fund_index(struct reader *rd, const char *name, size_t line,
 			*index = rd->last_fund = k;
 			return HC_OK;
 		}
-	if (h->nfunds == rd->cap_funds) {
-		size_t cap = rd->cap_funds ? 2 * rd->cap_funds : 8;
-		struct holdings_fund *p = hc_reallocarray(h->funds, cap, sizeof *p);
+	{
+		struct holdings_fund *p = hc_grow(h->funds, &rd->cap_funds, h->nfunds, sizeof *p, 8);
 		if (!p)
 			goto nomem;
 		h->funds = p;
-		rd->cap_funds = cap;
 	}
 	memset(&h->funds[h->nfunds], 0, sizeof h->funds[0]);
 	h->funds[h->nfunds].name = hc_strdup(name);
@@ -554,13 +552,11 @@ static int on_record(void *ctx, size_t record, size_t nfields, size_t line,
 	if ((rc = fund_index(rd, rd->opt->single_fund ? rd->opt->single_fund : rd->cell[COL_FUND],
 			     line, &fund, err)) != HC_OK)
 		return rc;
-	if (rd->nrows == rd->cap_rows) {
-		size_t cap = rd->cap_rows ? 2 * rd->cap_rows : 64;
-		struct row *p = hc_reallocarray(rd->rows, cap, sizeof *p);
+	{
+		struct row *p = hc_grow(rd->rows, &rd->cap_rows, rd->nrows, sizeof *p, 64);
 		if (!p)
 			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
 		rd->rows = p;
-		rd->cap_rows = cap;
 	}
 	r = &rd->rows[rd->nrows++];
 	memset(r, 0, sizeof *r);
@@ -990,8 +986,12 @@ static int label_record(void *ctx, size_t record, size_t nfields, size_t line,
 					lr->name, line, k + 1, k ? "label" : "id",
 					k ? "a label for the id" : "a security id");
 	if (l->n == lr->cap) {
-		size_t cap = lr->cap ? 2 * lr->cap : 64;
-		char **a = hc_reallocarray(l->ids, cap, sizeof *a);
+		size_t cap;
+		char **a;
+
+		if (hc_grow_capacity(lr->cap, lr->cap + 1, 64, &cap))
+			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", lr->name);
+		a = hc_reallocarray(l->ids, cap, sizeof *a);
 		if (!a)
 			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", lr->name);
 		l->ids = a;
