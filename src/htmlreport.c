@@ -572,6 +572,13 @@ static void universe(FILE *fp, const struct htmlreport_input *in)
 	fact(fp, "periods read (before --frequency or --from/--to)", field(u, "periods_read"));
 	fact(fp, "cells read as missing (--bad-cells missing)", field(u, "bad_cells"));
 	fact(fp, "the first of them", field(u, "bad_cell_first"));
+	/* the data checks' count (holdcount check lists every finding) */
+	fact(fp, "data-check findings (holdcount check lists them)", field(u, "data_check_findings"));
+	fact(fp, "the first finding", field(u, "data_check_first"));
+	for (i = 0; i < u->nfields; i++)
+		if (strncmp(u->fields[i].key, "data_check_", 11) == 0 && strcmp(u->fields[i].key, "data_check_findings") &&
+		    strcmp(u->fields[i].key, "data_check_first"))
+			fact(fp, u->fields[i].title ? u->fields[i].title : u->fields[i].key, &u->fields[i].value);
 	fact(fp, "average correlation", field(u, "average_correlation"));
 	fact(fp, "floor sd a year (no number of holdings gets below it)", field(u, "floor_sd"));
 	fact(fp, "sd of the equal-weight portfolio of all kept securities, a year", field(u, "universe_sd"));

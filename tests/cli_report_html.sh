@@ -121,7 +121,10 @@ for want in '<caption>Audited funds: coverage and the statute screens</caption>'
 	'<th scope="col">weight its risk uses (coverage)</th>' \
 	'<th scope="col">1940 Act basket, positions counted up to 5%</th>' \
 	'<th scope="col">IRC 851 basket, positions above 5% left out</th>' \
-	'<h3>How the audit reads the funds and the statutes</h3>'; do
+	'<h3>How the audit reads the funds and the statutes</h3>' \
+	'<dt>data-check findings (holdcount check lists them)</dt><dd>0</dd>' \
+	'<dt>securities alive per period, fewest</dt><dd>144</dd>' \
+	'<p>Treatment: return history with gaps, read period by period'; do
 	grep -qF "$want" "$T/dom.html" || fail "the page lacks $want"
 done
 # nothing wider than the window at the screenshot's width (no sideways scrolling)
