@@ -212,31 +212,6 @@ static void tail(double *x, size_t n, size_t t, unsigned num, double *var, doubl
 	*es = -s / ((double)tp / TAIL_DEN);
 }
 
-double hc_measures_log_growth(const double *d, size_t stride, size_t t, double scale, double mean)
-{
-	double w = 1, peak = 1, least = 1, g;
-	long expo = 0;
-	size_t k;
-	int e;
-
-	/* The same products and rescaling as the pass below, so that a
-	 * portfolio equal to the benchmark gets the same bits. */
-	for (k = 0; k < t; k++) {
-		g = 1.0 + (mean + d[k * stride] * scale);
-		least = g < least ? g : least;
-		w *= g;
-		peak = w > peak ? w : peak;
-		if (k % GROWTH_BLOCK == GROWTH_BLOCK - 1) {
-			peak = frexp(peak, &e);
-			w = ldexp(w, -e);
-			expo += e;
-		}
-	}
-	if (!(least > 0))
-		return -INFINITY;
-	return log(w) + (double)expo * MEASURES_LN2;
-}
-
 /* The ceil(T p95) smallest returns, kept sorted in the pass itself while
  * there are at most this many: a return enters only when it is below the
  * largest kept, which after the first few periods is rare and well
@@ -274,67 +249,148 @@ static void tail_sorted(const double *buf, size_t t, unsigned num, double *var, 
 	*es = -s / ((double)tp / TAIL_DEN);
 }
 
-/*
- * The pass.  Every conditional is a minimum or maximum of two doubles
- * (one instruction, no branch: the signs of returns are a coin toss that
- * a branch predictor would lose on half the time).  Wealth W_t and its
- * running peak are rescaled together by a power of two every GROWTH_BLOCK
- * periods (exact, so W/peak keeps its bits), which keeps both in range
- * however long the history; the log of the final W plus the exponents is
- * the compounded growth.
- */
-void hc_measures_centred(const double *d, size_t stride, size_t t, double scale, double mean, unsigned mask,
-			 double log_growth_bar, double *out, double *scratch)
+/* The moment sums of one series: four fixed lanes (period k in lane
+ * k mod 4), so the adds do not wait on one another and the bits are the
+ * same whichever vector width the compiler picks; every conditional is a
+ * minimum of two doubles (one instruction, no branch: the signs of
+ * returns are a coin toss a branch predictor would lose on half the
+ * time). */
+struct sums {
+	double m2, m3, m4, below_mean, below_zero, worst, least;
+};
+
+/* One period into lane l. */
+#define MOMENT_STEP(l, xv) do { \
+	double x_ = (xv) * scale, r_ = mean + x_, x2_ = x_ * x_; \
+	double xn_ = x_ < 0.0 ? x_ : 0.0, rn_ = r_ < 0.0 ? r_ : 0.0; \
+	m2[l] += x2_; \
+	m3[l] += x2_ * x_; \
+	m4[l] += x2_ * x2_; \
+	bm[l] += xn_ * xn_; \
+	bz[l] += rn_ * rn_; \
+	lo[l] = r_ < lo[l] ? r_ : lo[l]; \
+} while (0)
+
+/* Four lanes as one vector of GCC's vector extension (as the sampler's
+ * compound()): the operations are elementwise, in the same order as
+ * MOMENT_STEP, so either clone and the scalar tail give the same bits. */
+typedef double measures_v4 __attribute__((vector_size(4 * sizeof(double))));
+typedef long long measures_m4 __attribute__((vector_size(4 * sizeof(long long))));
+
+__attribute__((target_clones("avx2", "default")))
+static void moment_sums(const double *d, size_t stride, size_t t, double scale, double mean, struct sums *o)
 {
-	double m2 = 0, m3 = 0, m4 = 0, below_mean = 0, below_zero = 0, worst = INFINITY;
-	double w = 1, peak = 1, dd = 0, least = 1, x, x2, xn, r, rn, g, fall, lg;
-	double buf[TAIL_STREAM_MAX];
-	size_t k, c95 = (t * TAIL95_NUM + TAIL_DEN - 1) / TAIL_DEN, len = 0;
-	int want_tail = (mask & (BIT(HC_MEASURE_VAR95) | BIT(HC_MEASURE_ES95) | BIT(HC_MEASURE_VAR99) |
-				 BIT(HC_MEASURE_ES99))) != 0;
-	int stream = want_tail && c95 <= TAIL_STREAM_MAX;
+	const measures_v4 vs = { scale, scale, scale, scale }, vm = { mean, mean, mean, mean }, zero = { 0, 0, 0, 0 };
+	measures_v4 vm2 = zero, vm3 = zero, vm4 = zero, vbm = zero, vbz = zero, x, r, x2, xn, rn;
+	measures_v4 vlo = { INFINITY, INFINITY, INFINITY, INFINITY };
+	measures_m4 lt;
+	double m2[4], m3[4], m4[4], bm[4], bz[4], lo[4];
+	size_t k = 0;
+
+	if (stride == 1)
+		for (; k + 4 <= t; k += 4) {
+			memcpy(&x, d + k, sizeof x);
+			x = x * vs;
+			r = vm + x;
+			x2 = x * x;
+			lt = x < zero;
+			xn = (measures_v4)(lt & (measures_m4)x);
+			lt = r < zero;
+			rn = (measures_v4)(lt & (measures_m4)r);
+			vm2 += x2;
+			vm3 += x2 * x;
+			vm4 += x2 * x2;
+			vbm += xn * xn;
+			vbz += rn * rn;
+			lt = r < vlo;
+			vlo = (measures_v4)((lt & (measures_m4)r) | (~lt & (measures_m4)vlo));
+		}
+	memcpy(m2, &vm2, sizeof m2);
+	memcpy(m3, &vm3, sizeof m3);
+	memcpy(m4, &vm4, sizeof m4);
+	memcpy(bm, &vbm, sizeof bm);
+	memcpy(bz, &vbz, sizeof bz);
+	memcpy(lo, &vlo, sizeof lo);
+	for (; k + 4 <= t; k += 4) {
+		MOMENT_STEP(0, d[k * stride]);
+		MOMENT_STEP(1, d[(k + 1) * stride]);
+		MOMENT_STEP(2, d[(k + 2) * stride]);
+		MOMENT_STEP(3, d[(k + 3) * stride]);
+	}
+	for (; k < t; k++)
+		MOMENT_STEP(k & 3, d[k * stride]);
+	o->m2 = (m2[0] + m2[1]) + (m2[2] + m2[3]);
+	o->m3 = (m3[0] + m3[1]) + (m3[2] + m3[3]);
+	o->m4 = (m4[0] + m4[1]) + (m4[2] + m4[3]);
+	o->below_mean = (bm[0] + bm[1]) + (bm[2] + bm[3]);
+	o->below_zero = (bz[0] + bz[1]) + (bz[2] + bz[3]);
+	o->worst = lo[0] < lo[1] ? lo[0] : lo[1];
+	o->worst = lo[2] < o->worst ? lo[2] : o->worst;
+	o->worst = lo[3] < o->worst ? lo[3] : o->worst;
+	o->least = 1.0 + o->worst;
+}
+
+/*
+ * The path: wealth W_t and its running peak, rescaled together by a power
+ * of two every GROWTH_BLOCK periods (exact, so W/peak keeps its bits),
+ * which keeps both in range however long the history; the log of the
+ * final W plus the exponents is the compounded growth.  The deepest fall
+ * is found as the smallest W/peak, tested by a multiplication
+ * (W < peak (1 - dd)) so that the division is taken only when the
+ * drawdown deepens, which after the first periods is rare.  With the
+ * streamed tail, the smallest returns are kept in the same pass.
+ */
+static double path(const double *d, size_t stride, size_t t, double scale, double mean, double *dd_out,
+		   double *buf, size_t cap, double *scratch)
+{
+	double w = 1, peak = 1, keep = 1, r, g;
+	size_t k, len = 0;
 	long expo = 0;
 	int e;
 
 	for (k = 0; k < t; k++) {
-		x = d[k * stride] * scale;
-		r = mean + x;
-		x2 = x * x;
-		m2 += x2;
-		m3 += x2 * x;
-		m4 += x2 * x2;
-		xn = x < 0.0 ? x : 0.0;
-		below_mean += xn * xn;
-		rn = r < 0.0 ? r : 0.0;
-		below_zero += rn * rn;
-		worst = r < worst ? r : worst;
+		r = mean + d[k * stride] * scale;
 		g = 1.0 + r;
-		least = g < least ? g : least;
 		w *= g;
 		peak = w > peak ? w : peak;
-		fall = 1.0 - w / peak;
-		dd = fall > dd ? fall : dd;
+		if (w < peak * keep)
+			keep = w / peak; /* the smallest W/peak so far */
 		if (k % GROWTH_BLOCK == GROWTH_BLOCK - 1) {
 			peak = frexp(peak, &e);
 			w = ldexp(w, -e);
 			expo += e;
 		}
-		if (stream)
-			keep_smallest(buf, &len, c95, r);
-		else if (want_tail)
+		if (cap)
+			keep_smallest(buf, &len, cap, r);
+		else if (scratch)
 			scratch[k] = r;
 	}
-	m2 /= (double)t;
-	m3 /= (double)t;
-	m4 /= (double)t;
-	out[HC_MEASURE_SEMIDEV_MEAN] = sqrt(below_mean / (double)t);
-	out[HC_MEASURE_SEMIDEV_ZERO] = sqrt(below_zero / (double)t);
+	*dd_out = 1.0 - keep;
+	return w > 0 ? log(w) + (double)expo * MEASURES_LN2 : -INFINITY;
+}
+
+void hc_measures_centred(const double *d, size_t stride, size_t t, double scale, double mean, unsigned mask,
+			 double log_growth_bar, double *out, double *scratch)
+{
+	struct sums s;
+	double buf[TAIL_STREAM_MAX], dd, lg, m2;
+	size_t c95 = (t * TAIL95_NUM + TAIL_DEN - 1) / TAIL_DEN;
+	int want_tail = (mask & (BIT(HC_MEASURE_VAR95) | BIT(HC_MEASURE_ES95) | BIT(HC_MEASURE_VAR99) |
+				 BIT(HC_MEASURE_ES99))) != 0;
+	int stream = want_tail && c95 <= TAIL_STREAM_MAX;
+
+	moment_sums(d, stride, t, scale, mean, &s);
+	lg = path(d, stride, t, scale, mean, &dd, buf, stream ? c95 : 0, want_tail && !stream ? scratch : NULL);
+	m2 = s.m2 / (double)t;
+	out[HC_MEASURE_SEMIDEV_MEAN] = sqrt(s.below_mean / (double)t);
+	out[HC_MEASURE_SEMIDEV_ZERO] = sqrt(s.below_zero / (double)t);
 	/* A factor of zero or less: the wealth is gone (a fall of 100%). */
-	out[HC_MEASURE_MAX_DRAWDOWN] = least > 0 ? dd : 1.0;
-	out[HC_MEASURE_SKEWNESS] = m2 > 0 ? m3 / (m2 * sqrt(m2)) : NAN;
-	out[HC_MEASURE_EXCESS_KURTOSIS] = m2 > 0 ? m4 / (m2 * m2) - 3.0 : NAN;
-	out[HC_MEASURE_WORST_PERIOD] = worst;
-	lg = least > 0 ? log(w) + (double)expo * MEASURES_LN2 : -INFINITY;
+	out[HC_MEASURE_MAX_DRAWDOWN] = s.least > 0 ? dd : 1.0;
+	out[HC_MEASURE_SKEWNESS] = m2 > 0 ? (s.m3 / (double)t) / (m2 * sqrt(m2)) : NAN;
+	out[HC_MEASURE_EXCESS_KURTOSIS] = m2 > 0 ? (s.m4 / (double)t) / (m2 * m2) - 3.0 : NAN;
+	out[HC_MEASURE_WORST_PERIOD] = s.worst;
+	if (!(s.least > 0))
+		lg = -INFINITY;
 	out[HC_MEASURE_LAG_UNIVERSE] = isnan(log_growth_bar) ? NAN : (lg < log_growth_bar ? 1.0 : 0.0);
 	if (stream) {
 		tail_sorted(buf, t, TAIL95_NUM, &out[HC_MEASURE_VAR95], &out[HC_MEASURE_ES95]);
@@ -345,6 +401,18 @@ void hc_measures_centred(const double *d, size_t stride, size_t t, double scale,
 		tail(scratch, t, t, TAIL95_NUM, &out[HC_MEASURE_VAR95], &out[HC_MEASURE_ES95]);
 		tail(scratch, c95, t, TAIL99_NUM, &out[HC_MEASURE_VAR99], &out[HC_MEASURE_ES99]);
 	}
+}
+
+double hc_measures_log_growth(const double *d, size_t stride, size_t t, double scale, double mean)
+{
+	struct sums s;
+	double dd, lg;
+
+	/* The same pass as a portfolio's, so that a portfolio equal to the
+	 * benchmark gets the same bits. */
+	moment_sums(d, stride, t, scale, mean, &s);
+	lg = path(d, stride, t, scale, mean, &dd, NULL, 0, NULL);
+	return s.least > 0 ? lg : -INFINITY;
 }
 
 void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask, double log_growth_bar,
