@@ -334,94 +334,36 @@ static void moment_sums(const double *d, size_t stride, size_t t, double scale, 
  * The path: wealth W_t and its running peak, rescaled together by a power
  * of two every GROWTH_BLOCK periods (exact, so W/peak keeps its bits),
  * which keeps both in range however long the history; the log of the
- * final W plus the exponents is the compounded growth, and the deepest
- * fall is 1 - min_t W_t/peak_t.
- *
- * Four periods at a time: the running product and the running maximum
- * within a block of four are two shift-and-combine steps (a
- * Hillis-Steele scan), then the carry from the blocks before; so the
- * serial chain is one multiplication per four periods instead of one a
- * period.  The grouping of the products is fixed by the period's place in
- * its block, the same whichever vector width runs it.  With the streamed
- * tail, a block's returns are inserted only when one of them is below the
- * largest kept.
+ * final W plus the exponents is the compounded growth.  The deepest fall
+ * is found as the smallest W/peak, tested by a multiplication
+ * (W < peak (1 - dd)) so that the division is taken only when the
+ * drawdown deepens, which after the first periods is rare.  With the
+ * streamed tail, the smallest returns are kept in the same pass.
  */
-#define PATH_STEP(r_) do { \
-	double g_ = 1.0 + (r_); \
-	w *= g_; \
-	peak = w > peak ? w : peak; \
-	keep = w / peak < keep ? w / peak : keep; \
-} while (0)
-
-__attribute__((target_clones("avx2", "default")))
 static double path(const double *d, size_t stride, size_t t, double scale, double mean, double *dd_out,
 		   double *buf, size_t cap, double *scratch)
 {
-	const measures_v4 one = { 1, 1, 1, 1 }, vs = { scale, scale, scale, scale }, vm = { mean, mean, mean, mean };
-	const measures_v4 ninf = { -INFINITY, -INFINITY, -INFINITY, -INFINITY };
-	const measures_m4 sh1 = { 4, 0, 1, 2 }, sh2 = { 4, 5, 0, 1 };
-	measures_v4 x, r, p, q, lo = one, vw, vp;
-	measures_m4 lt;
-	double w = 1, peak = 1, keep = 1, lane[4], thr = INFINITY;
-	long long any[4];
-	size_t k = 0, l, len = 0;
+	double w = 1, peak = 1, keep = 1, r, g;
+	size_t k, len = 0;
 	long expo = 0;
 	int e;
 
-	if (stride == 1)
-		for (; k + 4 <= t; k += 4) {
-			memcpy(&x, d + k, sizeof x);
-			r = vm + x * vs;
-			p = one + r;
-			p *= __builtin_shuffle(p, one, sh1);
-			p *= __builtin_shuffle(p, one, sh2);
-			vw = (measures_v4){ w, w, w, w } * p;
-			q = vw;
-			lt = __builtin_shuffle(q, ninf, sh1) > q;
-			q = (measures_v4)((lt & (measures_m4)__builtin_shuffle(q, ninf, sh1)) | (~lt & (measures_m4)q));
-			lt = __builtin_shuffle(q, ninf, sh2) > q;
-			q = (measures_v4)((lt & (measures_m4)__builtin_shuffle(q, ninf, sh2)) | (~lt & (measures_m4)q));
-			vp = (measures_v4){ peak, peak, peak, peak };
-			lt = vp > q;
-			q = (measures_v4)((lt & (measures_m4)vp) | (~lt & (measures_m4)q));
-			p = vw / q;
-			lt = p < lo;
-			lo = (measures_v4)((lt & (measures_m4)p) | (~lt & (measures_m4)lo));
-			w = vw[3];
-			peak = q[3];
-			if (k % GROWTH_BLOCK == GROWTH_BLOCK - 4) {
-				peak = frexp(peak, &e);
-				w = ldexp(w, -e);
-				expo += e;
-			}
-			if (cap) {
-				lt = r < (measures_v4){ thr, thr, thr, thr };
-				memcpy(any, &lt, sizeof any);
-				if (any[0] | any[1] | any[2] | any[3]) {
-					memcpy(lane, &r, sizeof lane);
-					for (l = 0; l < 4; l++)
-						keep_smallest(buf, &len, cap, lane[l]);
-					thr = len == cap ? buf[cap - 1] : INFINITY;
-				}
-			} else if (scratch)
-				memcpy(scratch + k, &r, sizeof r);
-		}
-	memcpy(lane, &lo, sizeof lane);
-	for (l = 0; l < 4; l++)
-		keep = lane[l] < keep ? lane[l] : keep;
-	for (; k < t; k++) {
-		double rk = mean + d[k * stride] * scale;
-
-		PATH_STEP(rk);
+	for (k = 0; k < t; k++) {
+		r = mean + d[k * stride] * scale;
+		g = 1.0 + r;
+		w *= g;
+		peak = w > peak ? w : peak;
+		if (w < peak * keep)
+			keep = w / peak; /* the smallest W/peak so far */
 		if (k % GROWTH_BLOCK == GROWTH_BLOCK - 1) {
 			peak = frexp(peak, &e);
 			w = ldexp(w, -e);
 			expo += e;
 		}
 		if (cap)
-			keep_smallest(buf, &len, cap, rk);
+			keep_smallest(buf, &len, cap, r);
 		else if (scratch)
-			scratch[k] = rk;
+			scratch[k] = r;
 	}
 	*dd_out = 1.0 - keep;
 	return w > 0 ? log(w) + (double)expo * MEASURES_LN2 : -INFINITY;
