@@ -318,6 +318,46 @@ static void test_measures_summarise_and_failures(void **state)
 	assert_null(c);
 }
 
+/* Every allocation of a run with measures, failed in turn: HC_ENOMEM and
+ * no result, until the run needs no more and succeeds with the bits of an
+ * unhindered run. */
+static void test_measures_sampler_allocation_failure(void **state)
+{
+	size_t sizes[2] = { 2, 9 }, n;
+	struct universe *u = fixture_random_universe(9, 40, 5);
+	struct sampler_options opt;
+	struct sampler_result *ref = NULL, *r = NULL;
+	struct hc_error err;
+	uint32_t idx[3];
+	int rc;
+
+	(void)state;
+	assert_non_null(u);
+	hc_sampler_options_init(&opt);
+	opt.paths = 6;
+	opt.threads = 1;
+	opt.measures = HC_MEASURES_ALL;
+	assert_int_equal(hc_sampler_run(&ref, fixture_series(u), sizes, 2, &opt, &err), HC_OK);
+	for (n = 0;; n++) {
+		hc_alloc_fail_after((long)n);
+		rc = hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_OK)
+			break;
+		assert_int_equal(rc, HC_ENOMEM);
+		assert_null(r);
+		assert_true(n < 200);
+	}
+	assert_memory_equal(r->measures_value, ref->measures_value, 6 * 2 * HC_MEASURE_COUNT * sizeof(double));
+	hc_sampler_result_free(r);
+	hc_sampler_result_free(ref);
+	fixture_free(u);
+	assert_int_equal(hc_sampler_members(1, 0, 0, idx, &err), HC_EUSAGE);
+	hc_alloc_fail_after(0);
+	assert_int_equal(hc_sampler_members(1, 0, 3, idx, &err), HC_ENOMEM);
+	hc_alloc_fail_after(-1);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -331,6 +371,7 @@ int main(void)
 		cmocka_unit_test(test_measures_sampler_hook_matches_members),
 		cmocka_unit_test(test_measures_matrix_route_refused),
 		cmocka_unit_test(test_measures_summarise_and_failures),
+		cmocka_unit_test(test_measures_sampler_allocation_failure),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);
