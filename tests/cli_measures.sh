@@ -72,4 +72,32 @@ with open(sys.argv[2], "w") as fp:
 PY
 expect 2 "holdcount curve: --measures needs each portfolio's return series" -- curve "$T/cov.csv" --covariance --measures es95 --quiet
 
+# enough: --measures sd leaves every format as it was; with measures, the
+# table "measures" has a row for each distinct count a rule chose, named.
+EARGS=(enough "$U" --paths 400 --seed 5 --rules near-floor,marginal,band --quiet)
+for fmt in table csv json; do
+  "$HC" "${EARGS[@]}" --format "$fmt" >"$T/e.$fmt" || fail "enough --format $fmt"
+  "$HC" "${EARGS[@]}" --format "$fmt" --measures sd >"$T/esd.$fmt" || fail "enough --measures sd --format $fmt"
+  cmp -s "$T/e.$fmt" "$T/esd.$fmt" || fail "enough --measures sd changed the $fmt output"
+done
+"$HC" "${EARGS[@]}" --format json --measures es95,worst_period --threads 1 >"$T/em1.json" || fail "enough --measures"
+"$HC" "${EARGS[@]}" --format json --measures es95,worst_period --threads 2 >"$T/em2.json" || fail "enough --measures --threads 2"
+cmp -s "$T/em1.json" "$T/em2.json" || fail "enough --measures differs between 1 and 2 threads"
+"$PY" - "$T/em1.json" <<'PY' || fail "JSON of enough --measures"
+import json, sys
+d = json.load(open(sys.argv[1]))
+chosen = {}
+for r in d["rules"]:
+    if r.get("count") is not None:
+        chosen.setdefault(r["count"], []).append(r["rule"])
+rows = d["measures"]
+assert [r["n"] for r in rows] == sorted(chosen), (rows, chosen)
+for r in rows:
+    assert r["rules"].split() == chosen[r["n"]], (r, chosen)
+    assert r["es95_p05"] <= r["es95_mean"] <= r["es95_p95"] and r["worst_period_mean"] < 0
+assert 0 < d["universe_es95"] < 0.5
+PY
+expect 2 "holdcount enough: --measures needs each portfolio's return series: a universe file" -- enough --average-sd 30% --average-correlation 0.2 --measures es95
+expect 2 "holdcount enough: bad measure list: 'skew' is not a measure" -- "${EARGS[@]}" --measures skew
+
 cli_end cli_measures
