@@ -3,10 +3,12 @@
  * their summary by holding count (measures.h; definitions and sources in
  * docs/measures.md).
  *
- * One pass over the series gathers the central moments (from the
- * deviations, so no cancellation), both semi-deviations, the worst period,
- * the drawdown and the compounded growth, and copies the returns for the
- * selection that gives the historical value-at-risk and expected shortfall
+ * Two sweeps over the series while it sits in the L1 cache, with no copy
+ * and no second sampler: a vectorised one gathers the central moments
+ * (from the deviations, so no cancellation), both semi-deviations and the
+ * worst period; a serial one follows the wealth path (drawdown, compounded
+ * growth) and keeps the smallest returns, or copies them for the
+ * selection, that give the historical value-at-risk and expected shortfall
  * (Acerbi & Tasche, 2002, "On the coherence of expected shortfall", Journal
  * of Banking & Finance 26(7), 1487-1503: the lower quantile and the
  * tail mean with the fractional weight on the boundary observation).

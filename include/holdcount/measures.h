@@ -3,8 +3,9 @@
  * their summary across random portfolios by holding count.
  *
  * Every measure is computed from a portfolio's per-period return series
- * r_1..r_T in one pass over the series plus a selection (no sort) for the
- * two historical quantiles.  Definitions, conventions and sources are in
+ * r_1..r_T in two sweeps over the series (the moment sums, and the wealth
+ * path with the smallest returns kept as they come, or a selection
+ * without sorting for long series) for the two historical quantiles.  Definitions, conventions and sources are in
  * docs/measures.md; in short, per period unless said:
  *   semidev_mean    sqrt(sum_t min(r_t - mean, 0)^2 / T)   below the mean
  *   semidev_zero    sqrt(sum_t min(r_t, 0)^2 / T)          below zero
