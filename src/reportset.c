@@ -478,14 +478,30 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
 }
 
+/* The failed rules and screen parts with their deciding figures, when a
+ * fund fails. */
+static void md_failures(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const cols[][2] = {
+		{ "fund", "fund" }, { "check", "check" }, { "figure", "figure" }, { "test", "test" }, { "limit", "limit" },
+	};
+	const struct report_table *t = hc_report_find_table(r->rep_audit, "failures");
+
+	if (!t || !t->nrows)
+		return;
+	fputs("What fails, with the figure that decided it:\n\n", fp);
+	hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+}
+
 static void md_audit(FILE *fp, const struct hc_reportset *r)
 {
 	static const char *const cols[][2] = {
 		{ "fund", "fund" }, { "holdings", "holdings" }, { "effective_holdings", "effective (1/HHI)" },
 		{ "max_weight", "largest weight" }, { "top10_share", "top 10" }, { "sd", "sd a year" },
 		{ "equivalent_count", "equivalent count" }, { "sd_percentile", "sd percentile" },
+		{ "risk_holdings", "holdings its risk uses" }, { "covered_weight", "covered weight" },
 		{ "ucits", "UCITS" }, { "1940act", "1940 Act" }, { "ric", "RIC" },
-		{ "passed", "passes policy" }, { "failed_rules", "fails" },
+		{ "passed", "passes policy" }, { "failed_rules", "fails" }, { "verdict", "verdict" },
 	};
 	const struct report_table *t = hc_report_find_table(r->rep_audit, "funds");
 
@@ -497,6 +513,14 @@ static void md_audit(FILE *fp, const struct hc_reportset *r)
 	fprintf(fp, "From `%s`, against the universe above.\n\n", r->o.holdings_name);
 	md_field(fp, r->rep_audit, "policy", "policy");
 	md_field(fp, r->rep_audit, "failed_funds", "funds failing it");
+	md_field(fp, r->rep_audit, "insufficient_funds", "funds with insufficient data");
+	md_field(fp, r->rep_audit, "min_covered_weight", "least covered weight for a verdict");
+	md_field(fp, r->rep_audit, "basket_reading", "5% basket reading deciding");
+	fputs("\nThe covered weight is the share of a fund's invested weight (cash left out) whose history "
+	      "is usable: its sd, equivalent count and percentile rest on that share alone, over the holdings "
+	      "its risk uses; below the least covered weight the verdict is \"insufficient data\" (exit 10) "
+	      "unless the fund fails the policy. Statute figures are from memory of the text; verify with "
+	      "counsel.\n", fp);
 	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
 	      "equivalent count is the number of random equal-weight holdings with the fund's own sd (\"below "
 	      "the floor\" when no count of them is that low); the sd percentile places the fund's sd among "
@@ -506,9 +530,11 @@ static void md_audit(FILE *fp, const struct hc_reportset *r)
 	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
 	      "only when `--screens` names it.\n\n", fp);
 	hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
-	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, and "
-		"everything in `summary.json` under `audit`.\n\n",
+	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, each "
+		"failed rule or screen part with its figure and limit in `audit-failures.csv`, and everything in "
+		"`summary.json` under `audit`.\n\n",
 		hc_report_find_table(r->rep_audit, "sectors") ? ", each fund's sector weights in `audit-sectors.csv`" : "");
+	md_failures(fp, r);
 }
 
 /* Whether some row of t has a non-empty text in column key. */
@@ -612,13 +638,26 @@ static int write_markdown(struct reportdir *rd, struct hc_reportset *r, const st
 	if (r->rep_audit)
 		fputs("- regulatory screens: written from memory of the published texts and testing weights only; "
 		      "verify against the current text and defer to compliance counsel\n", fp);
+	/* the audit's own notes (the statutes' readings, the acquisition and
+	 * quarter-end nature of the tests, the cure period, the index-tracking
+	 * exceptions, the bases of the figures, coverage), those the universe's
+	 * list does not already hold */
+	for (i = 0; r->rep_audit && i < r->rep_audit->nnotes; i++) {
+		size_t k;
+		for (k = 0; k < r->rep_universe->nnotes; k++)
+			if (strcmp(r->rep_audit->notes[i], r->rep_universe->notes[k]) == 0)
+				break;
+		if (k == r->rep_universe->nnotes)
+			fprintf(fp, "- audit: %s\n", r->rep_audit->notes[i]);
+	}
 	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
 	      "`--format csv` and the same options\n", fp);
 	if (r->rep_audit)
-		fprintf(fp, "- `audit-screens.csv`%s: what `holdcount audit` prints with `--format csv --table "
-			"screens`%s\n", hc_report_find_table(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
-			hc_report_find_table(r->rep_audit, "sectors") ? " and `--table sectors`" : "");
+		fprintf(fp, "- `audit-screens.csv`%s, `audit-failures.csv`: what `holdcount audit` prints with "
+			"`--format csv --table screens`%s and `--table failures`\n",
+			hc_report_find_table(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
+			hc_report_find_table(r->rep_audit, "sectors") ? ", `--table sectors`" : "");
 	if (r->rep_rolling)
 		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
 	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
@@ -742,6 +781,8 @@ int hc_reportset_write(struct hc_reportset *r, struct reportdir *rd, struct hc_e
 		rc = write_part_file(rd, "audit-screens.csv", r->rep_audit, "screens", err);
 	if (rc == HC_OK && r->rep_audit && hc_report_find_table(r->rep_audit, "sectors"))
 		rc = write_part_file(rd, "audit-sectors.csv", r->rep_audit, "sectors", err);
+	if (rc == HC_OK && r->rep_audit)
+		rc = write_part_file(rd, "audit-failures.csv", r->rep_audit, "failures", err);
 	if (rc == HC_OK && r->rep_rolling)
 		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, hc_report_writer_csv, err);
 	if (rc == HC_OK)

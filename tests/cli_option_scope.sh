@@ -28,6 +28,8 @@ fail() { echo "FAIL: $*"; fails=$((fails+1)); }
 "$HC" synth --securities 12 --periods 72 --seed 3 --late-share 0 --early-share 0 \
 	-o "$T/u.csv" --sectors-output "$T/s.csv" -q || { echo "FAIL: synth exit $?"; exit 1; }
 printf 'fund,id,weight\nAlder Growth,S01,0.35\nAlder Growth,S02,0.40\nAlder Growth,S07,0.25\n' >"$T/h.csv"
+# a second holdings file (--holdings is repeatable; one file given twice is refused)
+printf 'fund,id,weight\nBirch Income,S01,0.5\nBirch Income,S02,0.5\n' >"$T/h2.csv"
 
 # What each command needs to run at all.
 base() {
@@ -54,10 +56,12 @@ value() {
 	threads) echo 2 ;;            min-coverage) echo 90% ;;    periods-per-year) echo 12 ;;
 	date-column) echo date ;;     id-column) echo id ;;        value-column) echo value ;;
 	delimiter) echo , ;;          max-memory) echo 512 ;;      output) echo "$T/o.$n" ;;
-	holdings) echo "$T/h.csv" ;;  sectors) echo "$T/s.csv" ;;  fund-column) echo fund ;;
+	holdings) echo "$T/h2.csv" ;;  sectors) echo "$T/s.csv" ;;  fund-column) echo fund ;;
 	holding-id-column) echo id ;; weight-column) echo weight ;; market-value-column) echo weight ;;
 	issuer-column) echo id ;;     min-holdings) echo 2 ;;      min-effective) echo 1.5 ;;
 	max-weight) echo 60% ;;       max-sector-weight) echo 80% ;; screens) echo ucits ;;
+	holdings-encoding) echo latin-1 ;; type-column) echo id ;; group-column) echo id ;;
+	min-covered-weight) echo 50% ;; benchmark) echo "$T/h.csv" ;;
 	rules) echo exact ;;          near-floor) echo 5% ;;       marginal) echo 0.10pp ;;
 	band) echo 95%:10% ;;         premium) echo 4% ;;          holding-cost) echo 0.1% ;;
 	te-budget) echo 3% ;;         shortfall) echo 1%:10% ;;    bootstrap) echo 40 ;;

@@ -239,6 +239,14 @@ static int store_value(const struct cli_option *op, void *where, const char *val
 	case CLI_STRING:
 		*(const char **)where = val;
 		return 0;
+	case CLI_LIST: {
+		struct cli_list *l = where;
+		if (l->n == CLI_LIST_MAX)
+			return -1;
+		l->v[l->n++] = val;
+		l->last = val;
+		return 0;
+	}
 	case CLI_COUNT:
 		return parse_count(val, where);
 	case CLI_U64:
@@ -277,6 +285,7 @@ static const char *expected_text(const struct cli_option *op, char *buf, size_t 
 	case CLI_THREADS: return cli_threads_expected;
 	case CLI_REAL: return "a finite number";
 	case CLI_FRACTION: return "a number, or a percent such as 10%";
+	case CLI_LIST: return "at most 32 values (the option is given too often)";
 	case CLI_CHOICE:
 		used = (size_t)snprintf(buf, size, "one of ");
 		for (i = 0; op->choices[i] && used < size; i++)
@@ -443,7 +452,7 @@ static int is_output_option(const struct cli_option *op)
 
 static int is_input_option(const struct cli_option *op)
 {
-	return op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
+	return (op->kind == CLI_STRING || op->kind == CLI_LIST) && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
 	       !is_output_option(op);
 }
 
@@ -520,6 +529,14 @@ static int check_files(const struct cli_command *cmd, const struct cli_args *a, 
 			if ((!is_output_option(op) && !is_input_option(op)) || omitted(g, op))
 				continue;
 			v = *(const char *const *)((const char *)opts + g->offset + op->offset);
+			if (op->kind == CLI_LIST) {
+				const struct cli_list *l = (const void *)((const char *)opts + g->offset + op->offset);
+				size_t k;
+				for (k = 0; k < l->n && nin < 16; k++)
+					if (*l->v[k] && strcmp(l->v[k], "-") != 0)
+						in[nin++] = (struct named_file){ op->name, l->v[k], 0 };
+				continue;
+			}
 			if (!v || !*v || strcmp(v, "-") == 0)
 				continue;
 			if (is_output_option(op) && nout < 4)
@@ -685,7 +702,9 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd)
 				print_option(fp, g, op);
 	}
 	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
-	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted.\n", fp);
+	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted,\n"
+	      "8 resource limit, 9 renderer failed, 10 insufficient data (e.g. a fund's risk\n"
+	      "rests on too little of its weight).\n", fp);
 }
 
 void cli_print_main_help(FILE *fp)
@@ -778,7 +797,8 @@ static void man_common_sections(FILE *fp)
 		{ "7", "interrupted by a signal; partly written output is removed" },
 		{ "8", "the system refused a resource other than memory: a thread or process (a process limit)" },
 		{ "9", "the renderer (gnuplot) failed on a plot script; nothing is left behind" },
-		{ "10", "the input is well formed but holds too little data for the question" },
+		{ "10", "the input is well formed but holds too little data for the question: in audit and report, "
+		       "no fund fails the policy but a fund's risk figures rest on less than its least covered weight" },
 	};
 	size_t i;
 
@@ -884,7 +904,8 @@ void cli_print_bash_completion(FILE *fp)
 					for (j = 0; op->choices[j]; j++)
 						fprintf(fp, "%s%s", j ? " " : "", op->choices[j]);
 					fputs("\" -- \"$cur\"))\n\t\t\treturn;;\n", fp);
-				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0) {
+				} else if ((op->kind == CLI_STRING || op->kind == CLI_LIST) && op->metavar &&
+					   strcmp(op->metavar, "FILE") == 0) {
 					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -f -- \"$cur\")\n\t\t\treturn;;\n", fp);
 				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "DIR") == 0) {
 					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -d -- \"$cur\")\n\t\t\treturn;;\n", fp);

@@ -84,8 +84,9 @@
  * Values land in these C types: CLI_FLAG int (set to 1), CLI_STRING
  * const char * (points into argv), CLI_COUNT size_t, CLI_REAL double,
  * CLI_FRACTION double ("10%" or "0.10" both give 0.10), CLI_CHOICE int
- * (index into the option's choices), CLI_U64 uint64_t.  A repeated option:
- * the last one wins.  cli_given() says whether an option was on the line.
+ * (index into the option's choices), CLI_U64 uint64_t, CLI_LIST struct
+ * cli_list (every value, in order, up to CLI_LIST_MAX).  A repeated option
+ * of another kind: the last one wins.  cli_given() says whether an option was on the line.
  *
  * Files: a CLI_STRING option named "output" or "...-output" names a file
  * (metavar FILE) or folder (metavar DIR) the command writes; any other
@@ -113,7 +114,18 @@ enum cli_kind {
 	CLI_FRACTION = 4,
 	CLI_CHOICE = 5,
 	CLI_U64 = 6,
-	CLI_THREADS = 7            /* a thread count: size_t, 1 to HC_THREADS_MAX */
+	CLI_THREADS = 7,           /* a thread count: size_t, 1 to HC_THREADS_MAX */
+	CLI_LIST = 8
+};
+
+/* A repeatable string option's values (pointing into argv); last is the
+ * last one given (NULL when none), so code reading the option as one
+ * string sees the last, as for CLI_STRING. */
+#define CLI_LIST_MAX 32
+struct cli_list {
+	const char *last;
+	size_t n;
+	const char *v[CLI_LIST_MAX];
 };
 
 /* cli_threads.c: the one parse of a thread count (--threads and
@@ -447,16 +459,23 @@ struct cli_strata;
 int cli_enough_checks(const char *cmd, const struct cli_sampling *smp, const struct cli_strata *strat,
 		      const struct rules_config *cfg);
 
-/* The holdings inputs of `audit` (cmd_audit.c): --holdings, --sectors,
+/* The holdings inputs of `audit` (cli_audit.c; `audit` and `report`): --holdings, --sectors,
  * --allow-short, --strict and the column names. */
 struct cli_holdings {
-	const char *holdings;
+	struct cli_list holdings;  /* --holdings, repeatable: every file is read */
+	const char *benchmark;
+	const char *encoding;
+	const char *type_column, *group_column;
+	int cash_risk;             /* enum audit_cash_risk */
+	double min_covered_weight;
 	const char *sectors;
 	int allow_short;
 	int strict;
 	const char *fund_column, *holding_id_column, *weight_column, *market_value_column, *issuer_column;
 };
 extern const struct cli_group cli_group_holdings;
+/* Zeros, and the library's default least covered weight. */
+void cli_holdings_init(struct cli_holdings *ho);
 
 /* The audit policy: --min-holdings, --min-effective, --max-weight,
  * --max-sector-weight, --screens. */
@@ -466,24 +485,30 @@ struct cli_policy {
 	double max_weight;
 	double max_sector_weight;
 	const char *screens;
+	int reading;               /* enum audit_reading: --basket-reading */
 };
 extern const struct cli_group cli_group_policy;
 
 /* The library's audit options from ho, po and sam (usage errors printed),
- * and the holdings (and sector map, set as ao->sectors) loaded with their
- * warnings on stderr.  The caller frees *h and *labels (each may be set on
- * failure).  Prints its error; returns the exit status. */
+ * and the holdings (every --holdings file, merged), the sector map (set as
+ * ao->sectors) and the benchmark (--benchmark, set as ao->benchmark) loaded
+ * with their warnings on stderr.  The caller frees *h, *labels and *bench
+ * (each may be set on failure).  Prints its error; returns the exit status. */
 struct holdings;
 struct holdings_labels;
 struct audit_result;
 struct audit_options;
 int cli_audit_load(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
 		   const struct cli_sampling *sam, struct audit_options *ao, struct holdings **h,
-		   struct holdings_labels **labels);
+		   struct holdings_labels **labels, struct holdings **bench);
 /* One warning line per fund holding ids the universe lacks, on stderr. */
 void cli_audit_say_missing(const char *cmd, const struct audit_result *res);
 /* "holdcount CMD: 2 of 3 funds fail the policy: 'A' (max-weight), ..." on stderr. */
 void cli_audit_say_failures(const char *cmd, const struct audit_result *res);
+/* The audit's exit status: HC_EPOLICY (naming the failures on stderr) when
+ * a fund fails the policy, else HC_EINSUFFICIENT (naming the funds and their
+ * covered weight) when a fund has insufficient data, else HC_OK. */
+int cli_audit_status(const char *cmd, const struct audit_result *res);
 
 /* ---- stratified draws (cli_strata.c) -------------------------------------- */
 

@@ -106,6 +106,7 @@ const struct cli_command cli_command_report = {
 	"The folder is built under a temporary name and renamed into place, so an interrupted run leaves "
 	"the previous report or none. With no UNIVERSE it runs on the bundled invented demo universe, its "
 	"sectors and funds. Exit status 1 (after the folder is written) when a fund fails a policy option, "
+	"and 10 when none fails but a fund's risk rests on less than --min-covered-weight of its weight, "
 	"as with 'holdcount audit'.",
 	0, 1, report_groups
 };
@@ -166,7 +167,8 @@ struct inputs {
 static const char *const audit_only_options[] = {
 	"sectors", "allow-short", "strict", "fund-column", "holding-id-column", "weight-column",
 	"market-value-column", "issuer-column", "min-holdings", "min-effective", "max-weight",
-	"max-sector-weight", "screens", NULL
+	"max-sector-weight", "screens", "benchmark", "holdings-encoding", "type-column", "group-column",
+	"basket-reading", "cash-risk", "min-covered-weight", NULL
 };
 
 static int check_options(const struct report_opts *o, const struct cli_args *a, const struct inputs *in)
@@ -179,7 +181,7 @@ static int check_options(const struct report_opts *o, const struct cli_args *a, 
 		return cli_usage_error("report", "--step applies to the rolling windows, which --window 0 leaves out");
 	if (cli_given(a, "step") && !o->step)
 		return cli_usage_error("report", "--step must be at least 1 period");
-	for (k = 0; !in->hold.holdings && audit_only_options[k]; k++)
+	for (k = 0; !in->hold.holdings.n && audit_only_options[k]; k++)
 		if (cli_given(a, audit_only_options[k]))
 			return cli_usage_error("report", "--%s applies to the audit of funds: give --holdings FILE",
 					       audit_only_options[k]);
@@ -199,8 +201,10 @@ static int choose_inputs(const struct report_opts *o, struct inputs *in, const s
 		return cli_usage_error("report", "no UNIVERSE given and the demo universe '%s' cannot be read",
 				       demo_universe);
 	in->universe_path = demo_universe;
-	if (!in->hold.holdings && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv"))
-		in->hold.holdings = demo_funds;
+	if (!in->hold.holdings.n && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv")) {
+		in->hold.holdings.v[in->hold.holdings.n++] = demo_funds;
+		in->hold.holdings.last = demo_funds;
+	}
 	if (!in->hold.sectors && demo_path(demo_sectors, sizeof demo_sectors, "demo-sectors.csv"))
 		in->hold.sectors = demo_sectors;
 	return HC_OK;
@@ -256,6 +260,7 @@ int cmd_report(int argc, char **argv)
 	struct hc_source *src = NULL;
 	struct holdings *h = NULL;
 	struct holdings_labels *labels = NULL;
+	struct holdings *bench = NULL;
 	struct cli_strata no_strata;
 	struct cli_steps steps;
 	size_t stale = 0, *sizes = NULL, nsizes = 0;
@@ -267,6 +272,7 @@ int cmd_report(int argc, char **argv)
 	cli_rules_init(&o.rul);
 	cli_sampling_init(&o.sam);
 	cli_universe_init(&o.uni);
+	cli_holdings_init(&o.hold);
 	rc = cli_parse(&cli_command_report, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
@@ -296,11 +302,11 @@ int cmd_report(int argc, char **argv)
 		goto cleanup;
 	ro.sizes = sizes;
 	ro.nsizes = nsizes;
-	if (in.hold.holdings) {
-		if ((rc = cli_audit_load("report", &in.hold, &o.pol, &o.sam, &ro.audit, &h, &labels)) != HC_OK)
+	if (in.hold.holdings.n) {
+		if ((rc = cli_audit_load("report", &in.hold, &o.pol, &o.sam, &ro.audit, &h, &labels, &bench)) != HC_OK)
 			goto cleanup;
 		ro.holdings = h;
-		ro.holdings_name = in.hold.holdings;
+		ro.holdings_name = h->source;   /* every file, comma-separated */
 	}
 	cli_steps_bind(&steps, &ro.progress, "report", o.quiet, 1);
 	if ((rc = hc_reportset_run(&rs, src, ro.window ? every : NULL, &ro, &err)) != HC_OK) {
@@ -316,15 +322,14 @@ int cmd_report(int argc, char **argv)
 	}
 	if (stage_enabled(&o))
 		fprintf(stderr, "holdcount report: wrote '%s' (start with summary.md)\n", o.output);
-	if (rs->audit && rs->audit->failed_funds) {
-		cli_audit_say_failures("report", rs->audit);
-		rc = HC_EPOLICY;
-	}
+	if (rs->audit)
+		rc = cli_audit_status("report", rs->audit);
 cleanup:
 	hc_reportdir_free(rd);
 	hc_reportset_free(rs);
 	hc_holdings_labels_free(labels);
 	hc_holdings_free(h);
+	hc_holdings_free(bench);
 	hc_source_free(src);
 	hc_universe_free(every);
 	hc_free(sizes);
