@@ -957,6 +957,10 @@ static const char *input_text(const struct hc_source *s)
 		return s->psd.repaired ? "return history with gaps; risk from its pairwise-complete covariances, "
 					 "repaired to the nearest positive semi-definite matrix"
 				       : "return history with gaps; risk from its pairwise-complete covariances";
+	case HC_SOURCE_RAGGED:
+		return s->psd.repaired ? "return history with gaps; funds' risk from its pairwise-complete covariances, "
+					 "repaired to the nearest positive semi-definite matrix"
+				       : "return history with gaps; funds' risk from its pairwise-complete covariances";
 	}
 	return "covariance matrix";
 }

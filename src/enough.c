@@ -13,6 +13,7 @@
 
 #include "holdcount/bootstrap.h"
 #include "holdcount/memory.h"
+#include "holdcount/periodic.h"
 #include "holdcount/sampler.h"
 #include "holdcount/strata.h"
 
@@ -53,7 +54,10 @@ static int add_source(struct report *r, const struct hc_enough *e, const struct 
 		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
 		bad |= hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped);
 		bad |= hc_report_add_int(r, "periods", "periods", (long long)u->t);
-		if (u->has_missing)
+		if (src->kind == HC_SOURCE_RAGGED) {
+			bad |= hc_report_add_text(r, "input", "input", "return history with gaps, read period by period");
+			bad |= hc_source_report_treatment(src, r);
+		} else if (u->has_missing)
 			bad |= hc_report_add_text(r, "input", "input", src->psd.repaired
 				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
 				  "positive semi-definite matrix, for every rule but shortfall"
@@ -74,7 +78,8 @@ static int add_source(struct report *r, const struct hc_enough *e, const struct 
 static int add_fields(struct report *r, const struct hc_enough *e, const struct hc_source *src)
 {
 	double p = e->periods_per_year, floor_var = e->cbar * p;
-	double uvar = e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
+	double uvar = src && src->kind == HC_SOURCE_RAGGED ? src->per->curve.a * p
+		    : e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
 	int sd_style = e->annualised ? REPORT_STYLE_PERCENT : REPORT_STYLE_PLAIN;
 	int bad = add_source(r, e, src);
 
@@ -99,12 +104,12 @@ static int add_fields(struct report *r, const struct hc_enough *e, const struct 
 		snprintf(seed, sizeof seed, "%llu", (unsigned long long)e->seed);
 		bad |= hc_report_add_text(r, "seed", "seed", seed);
 	}
-	if (src)
+	if (src && src->kind != HC_SOURCE_RAGGED)   /* a ragged source's matrix serves funds only */
 		bad |= hc_source_report_psd(src, r);
 	return bad ? HC_ENOMEM : HC_OK;
 }
 
-static int add_notes(struct report *r, const struct hc_enough *e)
+static int add_notes(struct report *r, const struct hc_enough *e, const struct hc_source *src)
 {
 	char text[300];
 	int bad = 0;
@@ -119,6 +124,11 @@ static int add_notes(struct report *r, const struct hc_enough *e)
 		bad |= hc_report_add_note(r, text);
 	} else if (e->no_interval)
 		bad |= hc_report_add_note(r, e->no_interval);
+	if (src && src->kind == HC_SOURCE_RAGGED && e->bootstrapped)
+		bad |= hc_report_add_note(r, "ragged history: each replicate of the exact rules sums the drawn "
+				       "periods' cross-sections (O(T) a replicate) with every security centred on its "
+				       "full-sample mean, not re-centred on the replicate; --bootstrap-sampled re-sums "
+				       "and re-centres each replicate before sampling it");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -202,7 +212,7 @@ static int build_report(struct hc_enough *e, const struct hc_source *src,
 	struct report *r = hc_report_alloc();
 
 	if (!r || add_fields(r, e, src) || (src && hc_strata_use_report(r, opt->strata)) ||
-	    hc_rules_report(r, e->rules, e->nrules, err) || measures_table(r, e) || add_notes(r, e)) {
+	    hc_rules_report(r, e->rules, e->nrules, err) || measures_table(r, e) || add_notes(r, e, src)) {
 		hc_report_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory building the report");
 	}
@@ -378,6 +388,86 @@ static int run_series(struct hc_enough *e, const struct hc_source *src,
 	return rc;
 }
 
+/* A ragged history (HC_SOURCE_RAGGED): every exact rule on the per-period
+ * curve (periodic.h), band and shortfall from ragged random portfolios in
+ * stages, the interval of the exact rules from O(T) replicates and, with
+ * bootstrap_sampled, of the sampled ones from re-summed replicates. */
+static int run_ragged(struct hc_enough *e, const struct hc_source *src,
+		      const struct hc_enough_options *opt, struct hc_error *err)
+{
+	const struct hc_periodic *p = src->per;
+	const struct rules_config *cfg = &opt->rules;
+	struct bootstrap_options bo;
+	struct sampler_options so;
+	struct rule_result sr[2];
+	char what[96];
+	size_t j, k;
+	int rc = HC_OK;
+
+	e->seed = opt->seed;
+	if ((rc = evaluate(e, opt, err)))
+		return rc;
+	for (j = 0; j < e->nrules && rc == HC_OK; j++)
+		if (RULES_FLAG(e->rules[j].rule) & RULES_EXACT_MASK)
+			rc = hc_periodic_rule(cfg, e->rules[j].rule, &p->curve, src->periods_per_year, &e->rules[j], err);
+	if (rc)
+		return rc;
+	hc_sampler_options_init(&so);
+	so.paths = opt->paths;
+	so.seed = opt->seed;
+	so.threads = opt->threads;
+	so.periods_per_year = src->periods_per_year;
+	if (cfg->selected & RULES_SAMPLED_MASK) {
+		hc_progress_begin(&opt->progress, "sampling random portfolios for the band and shortfall rules",
+				  "sampling", "paths");
+		so.progress = opt->progress.update;
+		so.progress_ctx = opt->progress.ctx;
+		rc = hc_periodic_rules_sampled(cfg, p, src->u, &so, sr, &e->sampled_sizes, err);
+		hc_progress_end(&opt->progress);
+		if (rc)
+			return rc;
+		for (k = 0; k < 2; k++)
+			for (j = 0; j < e->nrules; j++)
+				if (e->rules[j].rule == (k == 0 ? RULES_BAND : RULES_SHORTFALL) &&
+				    (cfg->selected & RULES_FLAG(e->rules[j].rule)))
+					e->rules[j] = sr[k];
+		e->paths = opt->paths;
+	}
+	if (opt->bootstrap == 0) {
+		e->no_interval = "no interval: --bootstrap 0";
+		return HC_OK;
+	}
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = opt->bootstrap;
+	bo.kind = opt->bootstrap_kind;
+	bo.block_length = opt->block_length;
+	bo.seed = opt->seed;
+	bo.threads = opt->threads;
+	snprintf(what, sizeof what, "bootstrap of the exact rules (%zu replicates)", opt->bootstrap);
+	hc_progress_begin(&opt->progress, what, "bootstrap", "replicates");
+	bo.progress = opt->progress.update;
+	bo.progress_ctx = opt->progress.ctx;
+	rc = hc_periodic_bootstrap(cfg, p, &bo, src->periods_per_year, e->rules, e->nrules, err);
+	hc_progress_end(&opt->progress);
+	if (rc)
+		return rc;
+	e->bootstrapped = 1;
+	e->replicates = bo.replicates;
+	e->block_length = bo.block_length ? bo.block_length : hc_bootstrap_default_block_length(p->t);
+	e->kind = bo.kind;
+	if (opt->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
+		so.paths = opt->bootstrap_paths;
+		so.progress = NULL;
+		hc_progress_begin(&opt->progress, "bootstrap of the sampled rules", "sampled bootstrap", "replicates");
+		bo.progress = opt->progress.update;
+		bo.progress_ctx = opt->progress.ctx;
+		rc = hc_periodic_bootstrap_sampled(cfg, src->u, &bo, &so, e->rules, e->nrules, err);
+		hc_progress_end(&opt->progress);
+		e->sampled_bootstrapped = rc == HC_OK;
+	}
+	return rc;
+}
+
 static int check(const struct hc_source *src, const struct hc_enough_options *opt, struct hc_error *err)
 {
 	const struct rules_config *cfg = &opt->rules;
@@ -387,6 +477,8 @@ static int check(const struct hc_source *src, const struct hc_enough_options *op
 	if (opt->measures && !hc_source_has_series(src))
 		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: complete return "
 				"series, not %s", src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
+				: src->kind == HC_SOURCE_RAGGED ? "a history with gaps read period by period (--missing "
+				"alive); --missing complete leaves out the securities with gaps"
 				: "a history with gaps under --missing pairwise");
 	if (strata_given(opt) && !(cfg->selected & RULES_SAMPLED_MASK))
 		return hc_error(err, HC_EUSAGE, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
@@ -398,7 +490,10 @@ static int check(const struct hc_source *src, const struct hc_enough_options *op
 					"portfolio's returns over the periods, and a covariance matrix has none");
 		if (strata_given(opt))
 			return hc_error(err, HC_EUSAGE, "--strata draws from return series, not from a covariance matrix");
-	} else if (src->u->has_missing && strata_given(opt))
+	} else if (src->kind == HC_SOURCE_RAGGED && strata_given(opt))
+		return hc_error(err, HC_EUSAGE, "--strata draws from complete return series, and '%s' has gaps: "
+				"--missing complete keeps only the securities with none", src->name ? src->name : "");
+	else if (src->u->has_missing && strata_given(opt))
 		return hc_error(err, HC_EUSAGE, "--strata draws from complete return series, and '%s' has gaps "
 				"under --missing pairwise", src->name ? src->name : "");
 	return HC_OK;
@@ -425,7 +520,8 @@ int hc_enough_run(struct hc_enough **out, const struct hc_source *src,
 	e->m = mo.m;
 	e->periods_per_year = src->periods_per_year;
 	e->annualised = src->annualised;
-	rc = src->kind == HC_SOURCE_MATRIX ? run_matrix(e, src, opt, err) : run_series(e, src, opt, err);
+	rc = src->kind == HC_SOURCE_MATRIX ? run_matrix(e, src, opt, err)
+	     : src->kind == HC_SOURCE_RAGGED ? run_ragged(e, src, opt, err) : run_series(e, src, opt, err);
 	if (rc == HC_OK && opt->measures)
 		rc = measure_counts(e, src, opt, err);
 	if (rc == HC_OK)

@@ -112,9 +112,16 @@ static int compute_audit(struct hc_reportset *r, struct hc_error *err)
 	hc_progress_begin(&r->o.progress, NULL, "sampling the funds' counts", "paths");
 	ao.progress = r->o.progress.update;
 	ao.progress_ctx = r->o.progress.ctx;
-	rc = hc_audit_run(&r->audit, r->o.holdings, r->src, &r->mo, &ao, err);
+	/* a ragged history: funds' risk from the pairwise-complete matrix,
+	 * compared with that matrix's averages (hc_audit_run computes them) */
+	rc = hc_audit_run(&r->audit, r->o.holdings, r->src, r->src->kind == HC_SOURCE_RAGGED ? NULL : &r->mo, &ao, err);
 	hc_progress_end(&r->o.progress);
-	return rc ? rc : hc_audit_report(&r->rep_audit, r->audit, r->o.holdings, err);
+	if (rc == HC_OK)
+		rc = hc_audit_report(&r->rep_audit, r->audit, r->o.holdings, err);
+	/* as `holdcount audit` says it: the pairwise matrix of a ragged history, repaired when needed */
+	if (rc == HC_OK && r->src->kind == HC_SOURCE_RAGGED && hc_source_report_psd(r->src, r->rep_audit))
+		rc = hc_error(err, HC_ENOMEM, "out of memory building the audit report");
+	return rc;
 }
 
 /* The exact rules, with the report's parameters, in every window; no
@@ -130,6 +137,9 @@ static int compute_rolling(struct hc_reportset *r, const struct universe *every,
 	ro.step = r->step;
 	ro.rules = r->o.enough.rules;
 	ro.rules.selected &= RULES_EXACT_MASK;
+	/* a ragged history's windows are read period by period too */
+	if (r->src->kind == HC_SOURCE_RAGGED)
+		ro.missing = UNIVERSE_MISSING_KEEP;
 	hc_progress_begin(&r->o.progress, NULL, "windows", "windows");
 	ro.progress = r->o.progress.update;
 	ro.progress_ctx = r->o.progress.ctx;
@@ -155,8 +165,8 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
 	int rc;
 
 	*out = NULL;
-	if (!hc_source_has_series(src))
-		return hc_error(err, HC_EUSAGE, "the report needs complete return series");
+	if (!hc_source_has_series(src) && src->kind != HC_SOURCE_RAGGED)
+		return hc_error(err, HC_EUSAGE, "the report needs return series, complete or read period by period");
 	if (opt->window && !every_security)
 		return hc_error(err, HC_EUSAGE, "rolling windows need the history with every security");
 	if (!(r = hc_calloc(1, sizeof *r)))
@@ -227,7 +237,8 @@ static int build_universe(struct hc_reportset *r)
 	    hc_report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
 			    r->curve->floor_variance >= 0 ? sqrt(r->curve->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
 	    hc_report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
-			    REPORT_STYLE_PERCENT))
+			    REPORT_STYLE_PERCENT) ||
+	    hc_source_report_treatment(r->src, rep) || hc_source_report_reading(r->src, rep))
 		return HC_ENOMEM;
 	if (r->u->ndropped) {
 		t = hc_report_add_table(rep, "dropped", "securities dropped");
@@ -384,8 +395,14 @@ static void md_universe(FILE *fp, const struct hc_reportset *r)
 {
 	static const char *const fields[][2] = {
 		{ "source", "source" }, { "securities_read", "securities read" },
-		{ "securities", "securities kept (complete over the sample)" },
-		{ "securities_dropped", "securities dropped" }, { "periods", "periods" },
+		{ "securities", "securities kept" },
+		{ "securities_dropped", "securities dropped" }, { "treatment", "treatment" },
+		{ "alive_min", "securities alive per period, fewest" },
+		{ "alive_median", "securities alive per period, median" },
+		{ "alive_max", "securities alive per period, most" },
+		{ "securities_complete", "securities with no gap" }, { "periods", "periods" },
+		{ "periods_read", "periods read (before --frequency or --from/--to)" },
+		{ "bad_cells", "cells read as missing (--bad-cells missing)" }, { "bad_cell_first", "the first of them" },
 		{ "first_date", "first period" }, { "last_date", "last period" },
 		{ "periods_per_year", "periods per year" }, { "annualisation", "annualisation" },
 		{ "average_variance", "average variance (a year)" }, { "average_covariance", "average covariance (a year)" },

@@ -71,6 +71,8 @@ value() {
 	strata-column) echo sector ;; per-stratum-max) echo 2 ;;   window) echo 24 ;;
 	step) echo 6 ;;               refresh) echo 8 ;;           periods) echo 36 ;;
 	sector-names) echo alpha,beta,gamma ;; sector-prefix) echo grp- ;; id-prefix) echo Q ;;
+	from) echo 2000-01 ;;         to) echo 2030-12 ;;          exclude) echo S03 ;;
+	exclude-file) printf 'S04\n' >"$T/x.csv"; echo "$T/x.csv" ;;
 	start) echo 2001-01-31 ;;     market-vol) echo 0.15 ;;     sector-vol) echo 0.07 ;;
 	specific-vol) echo 0.2 ;;     specific-spread) echo 0.3 ;; beta-spread) echo 0.2 ;;
 	tail-df) echo 6 ;;            late-share) echo 0.1 ;;      early-share) echo 0.1 ;;
@@ -117,7 +119,7 @@ listed() {
 }
 
 commands=$("$HC" --help | sed -n '/^commands:/,/^$/p' | sed -n 's/^  \([a-z][a-z]*\) .*/\1/p')
-[ "$(echo $commands)" = "describe curve formula enough audit rolling report synth" ] \
+[ "$(echo $commands)" = "describe curve formula enough audit rolling report synth check" ] \
 	|| fail "the commands are now '$(echo $commands)': check this test covers each"
 n=0
 for c in $commands; do
@@ -140,7 +142,7 @@ for c in $commands; do
 	done <"$T/opts"
 	[ "$checked" -ge 8 ] || fail "$c: only $checked options read from its help"
 done
-# 8 commands, each with at least 8 options (synth has 24, report 44).
+# 9 commands, each with at least 8 options (synth has 24, report 44).
 [ "$n" -ge 150 ] || fail "only $n options checked in all"
 
 # The options left out, per command (src/cli/cmd_*.c, cli_omit lists): not

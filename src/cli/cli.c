@@ -30,8 +30,10 @@
 /* ---- the shared groups --------------------------------------------------- */
 
 static const char *const format_words[] = { "table", "csv", "json", NULL };
-static const char *const missing_words[] = { "complete", "pairwise", NULL };
+static const char *const missing_words[] = { "complete", "pairwise", "alive", NULL };
 static const char *const layout_words[] = { "wide", "long", NULL };
+static const char *const bad_cell_words[] = { "refuse", "missing", NULL };
+static const char *const frequency_words[] = { "as-read", "weekly", "monthly", "quarterly", NULL };
 
 #define OUT(f) offsetof(struct cli_output, f)
 static const struct cli_option output_options[] = {
@@ -52,8 +54,27 @@ static const struct cli_option universe_options[] = {
 	{ "percent", 0, CLI_FLAG, UNI(percent), NULL,
 	  "cells are percents (2.5 means 2.5%); a trailing % on a cell says the same", NULL, NULL },
 	{ "missing", 0, CLI_CHOICE, UNI(missing), NULL,
-	  "securities with gaps: drop them (complete), or keep those meeting --min-coverage "
-	  "and use pairwise-complete covariances (pairwise)", missing_words, "complete" },
+	  "securities with gaps: keep every one and let each period use the securities alive then, "
+	  "so listings and delistings stay in (alive); drop them, keeping survivors only (complete); "
+	  "or keep those meeting --min-coverage and use pairwise-complete covariances (pairwise)",
+	  missing_words, "alive" },
+	{ "from", 0, CLI_STRING, UNI(from), "DATE",
+	  "first date of the sample (YYYY-MM-DD, or YYYY-MM for that month's end)", NULL, "the first date" },
+	{ "to", 0, CLI_STRING, UNI(to), "DATE",
+	  "last date of the sample, an as-of date (YYYY-MM-DD or YYYY-MM)", NULL, "the last date" },
+	{ "exclude", 0, CLI_STRING, UNI(exclude), "ID,...",
+	  "leave these securities out (listed as dropped)", NULL, NULL },
+	{ "exclude-file", 0, CLI_STRING, UNI(exclude_file), "FILE",
+	  "leave out the securities listed in FILE, one id a line ('#' starts a comment)", NULL, NULL },
+	{ "frequency", 0, CLI_CHOICE, UNI(frequency), NULL,
+	  "convert to calendar periods: returns compounded within each week, month or quarter "
+	  "(prices: each period's last price), dated by the period's last date", frequency_words, "as-read" },
+	{ "bad-cells", 0, CLI_CHOICE, UNI(bad_cells), NULL,
+	  "spreadsheet errors such as #N/A, and zero or negative prices: an error naming the cell "
+	  "(refuse), or read as missing, counted and the first named on standard error (missing)",
+	  bad_cell_words, "refuse" },
+	{ "strict-data", 0, CLI_FLAG, UNI(strict), NULL,
+	  "a data-check finding (see 'holdcount check') is an error (exit 3), not a warning", NULL, NULL },
 	{ "min-coverage", 0, CLI_FRACTION, UNI(min_coverage), "F",
 	  "share of the periods a security must cover to be kept under --missing pairwise, "
 	  "as 0.8 or 80%", NULL, "80%" },
@@ -152,7 +173,7 @@ void cli_output_init(struct cli_output *o)
 void cli_universe_init(struct cli_universe *u)
 {
 	memset(u, 0, sizeof *u);
-	u->missing = CLI_MISSING_COMPLETE;
+	u->missing = CLI_MISSING_ALIVE;
 	u->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
 	u->layout = CLI_LAYOUT_WIDE;
 	u->periods_per_year = NAN;

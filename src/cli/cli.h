@@ -199,7 +199,7 @@ extern const struct cli_group cli_group_output;
 void cli_output_init(struct cli_output *o);
 
 /* Universe loading (see include/holdcount/universe.h for the meanings). */
-enum cli_missing { CLI_MISSING_COMPLETE = 0, CLI_MISSING_PAIRWISE = 1 };
+enum cli_missing { CLI_MISSING_COMPLETE = 0, CLI_MISSING_PAIRWISE = 1, CLI_MISSING_ALIVE = 2 };
 enum cli_layout { CLI_LAYOUT_WIDE = 0, CLI_LAYOUT_LONG = 1 };
 struct cli_universe {
 	int prices;                /* cells are prices */
@@ -214,6 +214,13 @@ struct cli_universe {
 	size_t max_memory_mib;     /* 0 = from available memory */
 	int covariance;            /* the positional file is a covariance matrix */
 	int repair_psd;            /* --repair-psd (cli_group_matrix_repair) */
+	int strict;                /* --strict: a data-check finding is an error */
+	const char *from, *to;     /* --from DATE, --to DATE: the sample's first and last dates */
+	const char *exclude;       /* --exclude ID,ID,... */
+	const char *exclude_file;  /* --exclude-file FILE: one id a line */
+	int no_check;              /* set by `check` itself: cli_load_universe runs no checks */
+	int frequency;             /* --frequency: enum universe_frequency (the words in that order) */
+	int bad_cells;             /* --bad-cells: enum universe_bad_cells */
 };
 extern const struct cli_group cli_group_universe;
 void cli_universe_init(struct cli_universe *u);
@@ -373,8 +380,20 @@ struct strata;
 int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 			 struct universe_options *uo);
 
-/* Load path with the group's options; prints the loader's message
- * ("holdcount CMD: FILE:LINE:COLUMN: ...") and returns its status. */
+/* --from, --to, --exclude and --exclude-file on a loaded universe: the
+ * periods between the dates (the missing-data policy `missing`, a
+ * universe.h value, applied within them) and the securities not excluded;
+ * *u is replaced.  A message and the status on error. */
+int cli_restrict(const char *cmd, const struct cli_universe *cu, int missing, struct universe **u);
+
+/* The data checks before any figure (datacheck.h): the count and the
+ * first finding on stderr as a warning, or with --strict-data as an error
+ * (HC_EDATA).  cli_load_universe runs it unless cu->no_check. */
+int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct universe *u);
+
+/* Load path with the group's options (then cli_restrict and
+ * cli_data_check); prints the loader's message ("holdcount CMD:
+ * FILE:LINE:COLUMN: ...") and returns its status. */
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);
 
@@ -390,12 +409,16 @@ int cli_psd_usage(const char *cmd, const struct cli_universe *cu);
  * The data source (source.h) of a command's file: a covariance matrix with
  * --covariance (on its own scale unless --periods-per-year is given; the
  * return-history options refused), else the return history loaded with
- * cu's options.  need_matrix and refusal: series with gaps get their
- * pairwise-complete matrix (hc_source_options).  A repair is announced on
- * stderr.  Prints its error; returns the exit status.
- * cli_source_from_universe does the same for a universe already loaded
- * (taking ownership of u).
+ * cu's options (--missing alive: a history with gaps is read period by
+ * period, HC_SOURCE_RAGGED).  need_matrix and refusal: series with gaps
+ * get their pairwise-complete matrix (hc_source_options): CLI_NEED_SAMPLING
+ * for random portfolios (pairwise sources only), CLI_NEED_FUNDS for funds'
+ * variances (ragged ones too).  A repair is announced on stderr.  Prints
+ * its error; returns the exit status.  cli_source_from_universe does the
+ * same for a universe already loaded (taking ownership of u).
  */
+#define CLI_NEED_SAMPLING 1
+#define CLI_NEED_FUNDS 2
 struct hc_source;
 int cli_load_source(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
 		    const char *path, int need_matrix, const char *refusal, struct hc_source **out);
@@ -552,5 +575,6 @@ CLI_DECLARE_COMMAND(enough);
 CLI_DECLARE_COMMAND(audit);
 CLI_DECLARE_COMMAND(report);
 CLI_DECLARE_COMMAND(rolling);
+CLI_DECLARE_COMMAND(check);
 
 #endif

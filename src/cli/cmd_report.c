@@ -213,7 +213,7 @@ static int choose_inputs(const struct report_opts *o, struct inputs *in, const s
 /* The universe file, read once: every security as read (the rolling
  * windows apply the missing-data policy each), and from it the complete
  * series every other analysis reads (hc_universe_apply_missing). */
-static int load(const struct report_opts *o, const char *path, struct universe **every,
+static int load(const struct report_opts *o, const char *path, int need_matrix, struct universe **every,
 		struct hc_source **src)
 {
 	struct universe_options uo;
@@ -228,12 +228,18 @@ static int load(const struct report_opts *o, const char *path, struct universe *
 			      .percent = uo.percent, .missing = UNIVERSE_MISSING_KEEP, .min_coverage = uo.min_coverage,
 			      .periods_per_year = uo.periods_per_year, .delimiter = uo.delimiter,
 			      .date_column = uo.date_column, .id_column = uo.id_column,
-			      .value_column = uo.value_column, .max_bytes = uo.max_bytes }, &err);
-	if (rc == HC_OK)
-		rc = hc_universe_apply_missing(&u, *every, uo.missing, uo.min_coverage, &err);
+			      .value_column = uo.value_column, .max_bytes = uo.max_bytes,
+			      .frequency = uo.frequency, .bad_cells = uo.bad_cells }, &err);
 	if (rc != HC_OK)
 		return cli_fail("report", &err);
-	return cli_source_from_universe("report", &o->uni, u, path, 0, NULL, src);
+	/* --from, --to, --exclude, then the data checks, once for every analysis */
+	if ((rc = cli_restrict("report", &o->uni, UNIVERSE_MISSING_KEEP, every)) != HC_OK ||
+	    (rc = cli_data_check("report", &o->uni, *every)) != HC_OK)
+		return rc;
+	if (hc_universe_apply_missing(&u, *every, uo.missing, uo.min_coverage, &err) != HC_OK)
+		return cli_fail("report", &err);
+	/* a ragged history's funds need the pairwise-complete matrix */
+	return cli_source_from_universe("report", &o->uni, u, path, need_matrix, NULL, src);
 }
 
 /* The library's options from the command's groups. */
@@ -294,7 +300,7 @@ int cmd_report(int argc, char **argv)
 			stale == 1 ? "" : "s");
 	snprintf(line, sizeof line, "loading '%s'", in.universe_path);
 	stage(&o, line);
-	if ((rc = load(&o, in.universe_path, &every, &src)) != HC_OK)
+	if ((rc = load(&o, in.universe_path, in.hold.holdings.n ? CLI_NEED_FUNDS : 0, &every, &src)) != HC_OK)
 		goto cleanup;
 	hc_reportset_choose_window(&ro, src->u->t, src->u->periods_per_year, cli_given(&a, "window"), o.window, o.step);
 	if ((rc = cli_sizes("report", o.sam.sizes, src->u->m, &sizes, &nsizes)) != HC_OK ||
