@@ -26,6 +26,7 @@ void hc_curve_result_free(struct hc_curve_result *r)
 		return;
 	hc_report_free(r->report);
 	hc_strata_curve_free(r->strata);
+	hc_measures_curve_free(r->measures);
 	hc_curve_free(r->full);
 	hc_curve_free(r->curve);
 	hc_free(r);
@@ -42,15 +43,17 @@ static void sampler_options(struct sampler_options *so, const struct hc_curve_op
 	so->progress_ctx = opt->progress.ctx;
 }
 
-/* The sampled columns of c: random portfolios at its sizes. */
+/* The sampled columns of c: random portfolios at its sizes, and their
+ * measures when asked. */
 static int sample(const struct hc_source *src, const struct hc_curve_options *opt, struct curve *c,
-		  const size_t *sizes, size_t nsizes, struct hc_error *err)
+		  struct hc_measures_curve **mc, const size_t *sizes, size_t nsizes, struct hc_error *err)
 {
 	struct sampler_options so;
 	struct sampler_result *res = NULL;
 	int rc;
 
 	sampler_options(&so, opt, c->periods_per_year);
+	so.measures = opt->measures;
 	hc_progress_begin(&opt->progress, "sampling random portfolios at the curve's counts", "sampling", "paths");
 	/* a ragged history: at each period the first min(N, M_t) alive
 	 * securities of a random order (periodic.h) */
@@ -59,6 +62,9 @@ static int sample(const struct hc_source *src, const struct hc_curve_options *op
 	hc_progress_end(&opt->progress);
 	if (rc == HC_OK)
 		rc = hc_sampler_summarise(c, res, err);
+	if (rc == HC_OK && opt->measures)
+		rc = hc_measures_summarise(mc, res->measures_value, res->paths, sizes, nsizes, opt->measures,
+					   res->universe_measures, c->periods_per_year, err);
 	hc_sampler_result_free(res);
 	if (rc == HC_OK) {
 		c->paths = opt->paths;
@@ -227,6 +233,16 @@ static const char *input_text(const struct hc_source *s)
 	return "covariance matrix";
 }
 
+static struct report_table *curve_table(struct report *r)
+{
+	size_t i;
+
+	for (i = 0; i < r->ntables; i++)
+		if (strcmp(r->tables[i]->key, "curve") == 0)
+			return r->tables[i];
+	return NULL;
+}
+
 static int build(struct hc_curve_result *res, const struct hc_source *src, const struct hc_curve_options *opt)
 {
 	struct report *r = res->report = hc_report_alloc();
@@ -235,6 +251,8 @@ static int build(struct hc_curve_result *res, const struct hc_source *src, const
 	    add_strata(r, opt->strata, res->strata) ||
 	    /* a ragged source's matrix (funds only) plays no part in the curve */
 	    (src->kind != HC_SOURCE_RAGGED && hc_source_report_psd(src, r)))
+		return HC_ENOMEM;
+	if (res->measures && hc_measures_report(res->measures, r, curve_table(r)))
 		return HC_ENOMEM;
 	return hc_report_add_cautions(r);
 }
@@ -257,6 +275,14 @@ static int full_curve(struct hc_curve_result *res, const struct hc_source *src, 
 
 static int check(const struct hc_source *src, const struct hc_curve_options *opt, struct hc_error *err)
 {
+	if (opt->measures && opt->paths == 0)
+		return hc_error(err, HC_EUSAGE, "--measures summarises random portfolios: it needs --paths above 0");
+	if (opt->measures && !hc_source_has_series(src))
+		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: complete return "
+				"series, not %s", src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
+				: src->kind == HC_SOURCE_RAGGED ? "a history with gaps read period by period (--missing "
+				"alive); --missing complete leaves out the securities with gaps"
+				: "a history with gaps under --missing pairwise");
 	if (!opt->strata || !opt->strata->map)
 		return HC_OK;
 	if (src->kind == HC_SOURCE_MATRIX)
@@ -296,7 +322,7 @@ int hc_curve_run(struct hc_curve_result **out, const struct hc_source *src, cons
 		     ? hc_periodic_curve_exact(&res->curve, src->per, sizes, nsizes, src->periods_per_year, err)
 		     : hc_curve_exact(&res->curve, &res->mo, sizes, nsizes, src->periods_per_year, err);
 	if (rc == HC_OK && opt->paths > 0)
-		rc = sample(src, opt, res->curve, sizes, nsizes, err);
+		rc = sample(src, opt, res->curve, &res->measures, sizes, nsizes, err);
 	if (rc == HC_OK && opt->full)
 		rc = full_curve(res, src, err);
 	if (rc == HC_OK && build(res, src, opt))

@@ -33,6 +33,7 @@ void hc_enough_free(struct hc_enough *e)
 	if (!e)
 		return;
 	hc_report_free(e->report);
+	hc_measures_curve_free(e->measures);
 	hc_free(e);
 }
 
@@ -136,13 +137,82 @@ static int add_notes(struct report *r, const struct hc_enough *e, const struct h
 }
 
 /* Fields, strata (not from summary statistics), the rules table, notes. */
+/* The table "measures": one row a count some rule chose, the rules that
+ * chose it, and the measures' columns (measures.h). */
+static int measures_table(struct report *r, const struct hc_enough *e)
+{
+	struct report_table *t;
+	char names[RULES_COUNT * 24];
+	size_t j, i;
+
+	if (!e->measures)
+		return HC_OK;
+	t = hc_report_add_table(r, "measures", "measures of random portfolios at the counts the rules chose");
+	if (!t || hc_report_table_add_column(t, "n", "holdings", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "rules", "rules", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (j = 0; j < e->measures->npoints; j++) {
+		names[0] = '\0';
+		for (i = 0; i < e->nrules; i++)
+			if (e->rules[i].met && e->rules[i].count == e->measures->sizes[j])
+				snprintf(names + strlen(names), sizeof names - strlen(names), "%s%s",
+					 names[0] ? " " : "", e->rules[i].name);
+		if (hc_report_table_add_row(t) || hc_report_table_set_text(t, j, 1, names))
+			return HC_ENOMEM;
+		hc_report_table_set_int(t, j, 0, (long long)e->measures->sizes[j]);
+	}
+	return hc_measures_report(e->measures, r, t) == HC_OK ? HC_OK : HC_ENOMEM;
+}
+
+/* The measures at the distinct counts the rules met, ascending, from
+ * opt->paths random portfolios of the series (a run of its own, after the
+ * rules, with their seed). */
+static int measure_counts(struct hc_enough *e, const struct hc_source *src, const struct hc_enough_options *opt,
+			  struct hc_error *err)
+{
+	struct sampler_options so;
+	struct sampler_result *res = NULL;
+	size_t sizes[RULES_COUNT], n = 0, i, j;
+	int rc;
+
+	for (i = 0; i < e->nrules; i++) {
+		if (!e->rules[i].met)
+			continue;
+		for (j = n; j > 0 && sizes[j - 1] > e->rules[i].count; j--)
+			sizes[j] = sizes[j - 1];
+		if (j > 0 && sizes[j - 1] == e->rules[i].count) {
+			memmove(sizes + j, sizes + j + 1, (n - j) * sizeof *sizes);
+			continue;
+		}
+		sizes[j] = e->rules[i].count;
+		n++;
+	}
+	if (n == 0)
+		return HC_OK;
+	hc_sampler_options_init(&so);
+	so.paths = opt->paths;
+	so.seed = opt->seed;
+	so.threads = opt->threads;
+	so.measures = opt->measures;
+	so.progress = opt->progress.update;
+	so.progress_ctx = opt->progress.ctx;
+	hc_progress_begin(&opt->progress, "measures at the chosen counts", "sampling", "paths");
+	rc = hc_sampler_run(&res, src, sizes, n, &so, err);
+	hc_progress_end(&opt->progress);
+	if (rc == HC_OK)
+		rc = hc_measures_summarise(&e->measures, res->measures_value, res->paths, sizes, n, opt->measures,
+					   res->universe_measures, e->periods_per_year, err);
+	hc_sampler_result_free(res);
+	return rc;
+}
+
 static int build_report(struct hc_enough *e, const struct hc_source *src,
 			const struct hc_enough_options *opt, struct hc_error *err)
 {
 	struct report *r = hc_report_alloc();
 
 	if (!r || add_fields(r, e, src) || (src && hc_strata_use_report(r, opt->strata)) ||
-	    hc_rules_report(r, e->rules, e->nrules, err) || add_notes(r, e, src)) {
+	    hc_rules_report(r, e->rules, e->nrules, err) || measures_table(r, e) || add_notes(r, e, src)) {
 		hc_report_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory building the report");
 	}
@@ -402,6 +472,14 @@ static int check(const struct hc_source *src, const struct hc_enough_options *op
 {
 	const struct rules_config *cfg = &opt->rules;
 
+	if (opt->measures && opt->paths == 0)
+		return hc_error(err, HC_EUSAGE, "--measures summarises random portfolios: it needs --paths above 0");
+	if (opt->measures && !hc_source_has_series(src))
+		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: complete return "
+				"series, not %s", src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
+				: src->kind == HC_SOURCE_RAGGED ? "a history with gaps read period by period (--missing "
+				"alive); --missing complete leaves out the securities with gaps"
+				: "a history with gaps under --missing pairwise");
 	if (strata_given(opt) && !(cfg->selected & RULES_SAMPLED_MASK))
 		return hc_error(err, HC_EUSAGE, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
 	if (opt->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
@@ -444,6 +522,8 @@ int hc_enough_run(struct hc_enough **out, const struct hc_source *src,
 	e->annualised = src->annualised;
 	rc = src->kind == HC_SOURCE_MATRIX ? run_matrix(e, src, opt, err)
 	     : src->kind == HC_SOURCE_RAGGED ? run_ragged(e, src, opt, err) : run_series(e, src, opt, err);
+	if (rc == HC_OK && opt->measures)
+		rc = measure_counts(e, src, opt, err);
 	if (rc == HC_OK)
 		rc = build_report(e, src, opt, err);
 	if (rc) {
@@ -469,6 +549,9 @@ int hc_enough_summary(struct hc_enough **out, double vbar, double cbar, size_t m
 		return rc;
 	if (opt->rules.selected & RULES_SAMPLED_MASK)
 		return hc_error(err, HC_EUSAGE, "the band and shortfall rules need a universe file, not summary statistics");
+	if (opt->measures)
+		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: a universe file, "
+				"not summary statistics");
 	if (!(periods_per_year >= 0) || isinf(periods_per_year))
 		return hc_error(err, HC_EUSAGE, "periods per year must be positive, found %g", periods_per_year);
 	if (!(e = hc_calloc(1, sizeof *e)))

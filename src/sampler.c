@@ -56,6 +56,7 @@ void hc_sampler_result_free(struct sampler_result *r)
 	hc_free(r->variance);
 	hc_free(r->annual_return);
 	hc_free(r->feasible);
+	hc_free(r->measures_value);
 	hc_free(r);
 }
 
@@ -148,6 +149,8 @@ struct workspace {
 	double *out_r;   /* nuniq returns of the current path */
 	uint32_t *ridx;  /* the ordering reversed, for the backward sweep */
 	double *scratch; /* T doubles: a size's series between group boundaries */
+	double *out_m;   /* nuniq * HC_MEASURE_COUNT measures of the current path */
+	double *mscratch; /* T doubles: the measures' selection */
 };
 
 static void workspace_release(struct workspace *w)
@@ -159,9 +162,11 @@ static void workspace_release(struct workspace *w)
 	hc_free(w->out_r);
 	hc_free(w->ridx);
 	hc_free(w->scratch);
+	hc_free(w->out_m);
+	hc_free(w->mscratch);
 }
 
-static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
+static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq, int measures)
 {
 	memset(w, 0, sizeof *w);
 	w->rng = gsl_rng_alloc(gsl_rng_taus2);
@@ -171,7 +176,12 @@ static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
 	w->out_r = hc_mallocarray(nuniq, sizeof *w->out_r);
 	w->ridx = hc_mallocarray(m, sizeof *w->ridx);
 	w->scratch = hc_mallocarray((t ? t : 1), sizeof *w->scratch);
-	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r || !w->ridx || !w->scratch) {
+	if (measures) {
+		w->out_m = hc_mallocarray(nuniq * HC_MEASURE_COUNT, sizeof *w->out_m);
+		w->mscratch = hc_mallocarray((t ? t : 1), sizeof *w->mscratch);
+	}
+	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r || !w->ridx || !w->scratch ||
+	    (measures && (!w->out_m || !w->mscratch))) {
 		workspace_release(w);
 		return -1;
 	}
@@ -292,6 +302,8 @@ struct column_job {
 	const struct plan *plan;
 	int want_returns;
 	double periods_per_year;
+	unsigned measures;      /* measures.h set, 0 = none */
+	double log_growth_bar;  /* the equal-weight universe's, for lag_universe */
 };
 
 /* Compound annualised return of the equal-weight portfolio rebalanced each
@@ -414,6 +426,9 @@ static void record(const struct column_job *job, struct workspace *w, size_t slo
 	w->out_v[slot] = norm2(series, job->t) / (n * n * (double)(job->t - 1));
 	if (job->want_returns)
 		w->out_r[slot] = compound(series, job->t, mean_sum, n, job->periods_per_year);
+	if (job->measures)
+		hc_measures_centred(series, 1, job->t, 1.0 / n, mean_sum / n, job->measures, job->log_growth_bar,
+				    w->out_m + slot * HC_MEASURE_COUNT, w->mscratch);
 }
 
 /*
@@ -466,7 +481,7 @@ static void column_path(const struct column_job *job, struct workspace *w, unsig
 	for (j = 0; j < p->split; j++) {
 		n = p->uniq[j];
 		series = prefix_series(job, w, w->idx, &at, n);
-		if (job->want_returns)
+		if (job->want_returns || job->measures)
 			msum = mean_run(job, w->idx, ms, n, msum), ms = n;
 		record(job, w, j, series, msum);
 	}
@@ -483,7 +498,7 @@ static void column_path(const struct column_job *job, struct workspace *w, unsig
 		d = w->scratch;
 		for (k = 0; k < t; k++)
 			d[k] = job->total[k] - series[k];
-		if (job->want_returns)
+		if (job->want_returns || job->measures)
 			msum = mean_run(job, w->ridx, ms, n, msum), ms = n;
 		record(job, w, j, d, job->total_mean - msum);
 	}
@@ -517,6 +532,9 @@ static void store(struct sampler_result *res, const struct plan *p, const struct
 		res->variance[k * p->nsizes + j] = w->out_v[p->slot[j]];
 		if (res->annual_return)
 			res->annual_return[k * p->nsizes + j] = w->out_r[p->slot[j]];
+		if (res->measures_value)
+			memcpy(res->measures_value + (k * p->nsizes + j) * HC_MEASURE_COUNT,
+			       w->out_m + p->slot[j] * HC_MEASURE_COUNT, HC_MEASURE_COUNT * sizeof *w->out_m);
 	}
 }
 
@@ -524,7 +542,7 @@ static int run_ws_init(void *job, void *ws)
 {
 	const struct run *r = job;
 
-	return workspace_init(ws, r->m, r->t, r->plan->nuniq);
+	return workspace_init(ws, r->m, r->t, r->plan->nuniq, r->res->measures_value != NULL);
 }
 
 static void run_ws_release(void *ws)
@@ -568,8 +586,8 @@ static int check_options(const struct sampler_options *opt, struct hc_error *err
  * the sampler's largest arrays, are refused with a message rather than
  * killed by the kernel. */
 static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t nsizes,
-			size_t paths, int want_returns, uint64_t seed, size_t max_bytes, double held,
-			struct hc_error *err)
+			size_t paths, int want_returns, unsigned measures, uint64_t seed, size_t max_bytes,
+			double held, struct hc_error *err)
 {
 	struct sampler_result *r;
 	size_t cells;
@@ -578,7 +596,8 @@ static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t
 	*out = NULL;
 	if (hc_mul_size(paths, nsizes, &cells))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", paths, nsizes);
-	if ((rc = hc_memory_check(max_bytes, held, (double)cells * 8.0 * (want_returns ? 2 : 1), err,
+	if ((rc = hc_memory_check(max_bytes, held,
+				  (double)cells * 8.0 * ((want_returns ? 2 : 1) + (measures ? HC_MEASURE_COUNT : 0)), err,
 				  "%zu sampled portfolios (%zu paths of %zu sizes)", cells, paths, nsizes)))
 		return rc;
 	r = hc_calloc(1, sizeof *r);
@@ -591,8 +610,14 @@ static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t
 	r->feasible = hc_malloc(nsizes);
 	if (want_returns)
 		r->annual_return = hc_calloc(cells, sizeof *r->annual_return);
-	if (!r->sizes || !r->variance || !r->feasible || (want_returns && !r->annual_return))
+	if (measures && !hc_mul_size(cells, HC_MEASURE_COUNT, &cells))
+		r->measures_value = hc_mallocarray(cells, sizeof *r->measures_value);
+	if (!r->sizes || !r->variance || !r->feasible || (want_returns && !r->annual_return) ||
+	    (measures && !r->measures_value))
 		goto nomem;
+	r->measures = measures;
+	for (cells = 0; cells < HC_MEASURE_COUNT; cells++)
+		r->universe_measures[cells] = NAN;
 	memcpy(r->sizes, sizes, nsizes * sizeof *sizes);
 	memset(r->feasible, 1, nsizes);
 	r->seed = seed;
@@ -633,6 +658,23 @@ static int column_data(const struct universe *u, double **xc, double **mean, dou
 	return HC_OK;
 }
 
+/* The equal-weight universe's own measures (the portfolio of every
+ * security, formed as the paths form it at n = M: the total series, the
+ * total mean) and its compounded growth, the benchmark of lag_universe
+ * (so the universe itself does not lag: the same bits on both sides). */
+static int universe_measures(struct column_job *job, struct sampler_result *res, struct hc_error *err)
+{
+	double n = (double)job->m, *scratch = hc_mallocarray(job->t, sizeof *scratch);
+
+	if (!scratch)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu periods", job->t);
+	job->log_growth_bar = hc_measures_log_growth(job->total, 1, job->t, 1.0 / n, job->total_mean / n);
+	hc_measures_centred(job->total, 1, job->t, 1.0 / n, job->total_mean / n, job->measures,
+			    job->log_growth_bar, res->universe_measures, scratch);
+	hc_free(scratch);
+	return HC_OK;
+}
+
 static int run_series(struct sampler_result **out, const struct universe *u,
 		      const size_t *sizes, size_t nsizes,
 		      const struct sampler_options *opt, struct hc_error *err)
@@ -657,7 +699,7 @@ static int run_series(struct sampler_result **out, const struct universe *u,
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", u->m);
 	if ((rc = plan_init(&plan, u->m, sizes, nsizes, 1, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, u->max_bytes,
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->measures, opt->seed, u->max_bytes,
 			       (double)u->m * (double)u->t * 8.0, err)))
 		goto cleanup;
 	if ((rc = column_data(u, &xc, &mean, &total, &job.total_mean, err)))
@@ -670,6 +712,9 @@ static int run_series(struct sampler_result **out, const struct universe *u,
 	job.plan = &plan;
 	job.want_returns = opt->want_returns;
 	job.periods_per_year = opt->periods_per_year;
+	job.measures = opt->measures;
+	if (opt->measures && (rc = universe_measures(&job, *out, err)))
+		goto cleanup;
 	run.paths = opt->paths;
 	run.threads = opt->threads;
 	run.plan = &plan;
@@ -738,13 +783,16 @@ static int run_matrix(struct sampler_result **out, const double *a, size_t m,
 		return rc;
 	if (opt->want_returns)
 		return hc_error(err, HC_EUSAGE, "a covariance matrix has no returns to compound");
+	if (opt->measures)
+		return hc_error(err, HC_EUSAGE, "the measures beyond the sd need each portfolio's return series, "
+				"and a covariance matrix has none");
 	if (m < 2)
 		return hc_error(err, HC_EDATA, "covariance matrix has %zu securities, expected at least 2", m);
 	if (m > UINT32_MAX)
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", m);
 	if ((rc = plan_init(&plan, m, sizes, nsizes, 0, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, 0, (double)m * (double)m * 8.0, err)))
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, 0, opt->seed, 0, (double)m * (double)m * 8.0, err)))
 		goto cleanup;
 	job.a = a;
 	job.m = m;
@@ -787,6 +835,20 @@ int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
 	if (src->kind == HC_SOURCE_RAGGED)
 		return hc_error(err, HC_EUSAGE, "a ragged history is sampled period by period (hc_periodic_sample)");
 	return run_series(out, src->u, sizes, nsizes, opt, err);
+}
+
+int hc_sampler_members(uint64_t seed, size_t k, size_t m, uint32_t *idx, struct hc_error *err)
+{
+	struct workspace w;
+
+	if (m < 1 || m > UINT32_MAX)
+		return hc_error(err, HC_EUSAGE, "cannot draw from %zu securities", m);
+	if (workspace_init(&w, m, 1, 1, 0))
+		return hc_error(err, HC_ENOMEM, "out of memory drawing from %zu securities", m);
+	shuffle(&w, m, m - 1, hc_paths_seed32(seed, k));
+	memcpy(idx, w.idx, m * sizeof *idx);
+	workspace_release(&w);
+	return HC_OK;
 }
 
 /* ---- summary ---- */

@@ -82,6 +82,7 @@ value() {
 	tail-df) echo 6 ;;            late-share) echo 0.1 ;;      early-share) echo 0.1 ;;
 	mean-return) echo 0.07 ;;     mean-spread) echo 0.02 ;;    floor-return) echo -0.9 ;;
 	sectors-output) echo "$T/so.$n" ;; parameters-output) echo "$T/po.$n" ;;
+	measures) echo es95,max_drawdown ;;
 	*) return 1 ;;
 	esac
 }

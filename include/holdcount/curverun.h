@@ -13,6 +13,7 @@
 #include "holdcount/analysis.h"
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
+#include "holdcount/measures.h"
 #include "holdcount/moments.h"
 #include "holdcount/report.h"
 #include "holdcount/source.h"
@@ -32,6 +33,7 @@ struct hc_curve_options {
 	const struct hc_strata_use *strata; /* NULL (or no map): no stratified columns */
 	int full;                           /* also the exact curve at every count 1..M */
 	const struct moments *moments;      /* the source's, when the caller has them; NULL: computed */
+	unsigned measures;                  /* measures.h set beside the sd family; 0 = the sd family alone */
 	struct hc_progress progress;
 };
 
@@ -44,6 +46,7 @@ struct hc_curve_result {
 	struct curve *curve;           /* at the sizes; sampled columns when paths > 0 */
 	struct curve *full;            /* exact at every count, with opt->full; else NULL */
 	struct strata_curve *strata;   /* with strata; else NULL */
+	struct hc_measures_curve *measures; /* with opt->measures; else NULL */
 	struct report *report;         /* fields, table "curve" (with stratified_* columns),
 	                                * what the PSD policy did, notes and cautions */
 };
@@ -54,7 +57,11 @@ struct hc_curve_result {
  * draws first when asked (from complete series only, paths above 0), then
  * the exact figures and the sampled columns from the same seed.  Random
  * portfolios come from the series, or from the matrix of a matrix source
- * (build series with gaps with need_matrix when paths > 0).  *out is new
+ * (build series with gaps with need_matrix when paths > 0).  With
+ * opt->measures, the same random portfolios' measures (measures.h) are
+ * summarised by count, as five columns each in the table "curve" and the
+ * universe's own value as fields universe_KEY; they need complete series
+ * and paths above 0 (else HC_EUSAGE).  *out is new
  * (hc_curve_result_free) or NULL on error.  Errors: HC_EUSAGE (strata from
  * a matrix, from series with gaps, or with paths 0), the moments',
  * curve's, sampler's and strata's errors, HC_ENOMEM, HC_EINTERRUPT.

@@ -13,6 +13,7 @@
 
 #include "holdcount/analysis.h"
 #include "holdcount/error.h"
+#include "holdcount/measures.h"
 #include "holdcount/moments.h"
 #include "holdcount/report.h"
 #include "holdcount/rules.h"
@@ -38,6 +39,7 @@ struct hc_enough_options {
 	size_t bootstrap_paths;      /* portfolios a size in each such replicate */
 	const struct hc_strata_use *strata; /* NULL: unconstrained draws */
 	const struct moments *moments; /* the source's, when the caller has them; NULL: computed */
+	unsigned measures;           /* measures.h set at the counts the rules chose; 0 = none */
 	struct hc_progress progress;
 };
 
@@ -61,7 +63,8 @@ struct hc_enough {
 	size_t sampled_sizes;        /* sampled sizes 1..this */
 	int sampled_bootstrapped;
 	const char *no_interval;     /* static: why there is no interval, or NULL */
-	struct report *report;       /* fields, strata, table "rules", notes and cautions */
+	struct hc_measures_curve *measures; /* with opt->measures and a rule met; else NULL */
+	struct report *report;       /* fields, strata, table "rules" (and "measures"), notes and cautions */
 };
 
 /*
@@ -73,7 +76,12 @@ struct hc_enough {
  * shortfall only from complete series; the bootstrap interval of the exact
  * rules (complete series only) and, with bootstrap_sampled, of the sampled
  * ones.  A matrix's figures are on its own scale unless the source is
- * annualised.  *out is new (hc_enough_free) or NULL on error.
+ * annualised.  With opt->measures, opt->paths random portfolios (seed
+ * opt->seed) at each distinct count a rule chose give the measures of
+ * measures.h there: table "measures" (n, the rules that chose it, then
+ * five columns a measure as curve's) and fields universe_KEY; they need
+ * complete series and paths above 0.  *out is new (hc_enough_free) or
+ * NULL on error.
  * Errors: HC_EUSAGE with the reason (shortfall, --bootstrap or
  * --bootstrap-sampled from a matrix; strata with gaps or a matrix; paths 0
  * with a sampled rule; strata without a sampled rule), the moments',

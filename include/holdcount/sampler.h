@@ -15,6 +15,7 @@
 
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
+#include "holdcount/measures.h"
 #include "holdcount/paths.h"
 #include "holdcount/source.h"
 #include "holdcount/universe.h"
@@ -38,6 +39,7 @@ struct sampler_options {
 	size_t nstrata;
 	int stratify;            /* enum sampler_stratify, with strata */
 	size_t per_stratum_max;  /* cap for SAMPLER_STRATA_CAP */
+	unsigned measures;       /* measures.h set: each portfolio's measures too (series route) */
 	sampler_progress_fn progress;
 	void *progress_ctx;
 };
@@ -65,6 +67,10 @@ struct sampler_result {
 	double *annual_return;   /* paths*nsizes or NULL: compound annualised return */
 	unsigned char *feasible; /* nsizes: 0 where a stratified allocation is impossible */
 	uint64_t seed;           /* the seed the paths were drawn from (copied to the curve) */
+	unsigned measures;       /* the measures asked for (opt->measures) */
+	double *measures_value;  /* paths*nsizes*HC_MEASURE_COUNT or NULL: per period, measures.h;
+	                          * cell (k*nsizes + j)*HC_MEASURE_COUNT + measure */
+	double universe_measures[HC_MEASURE_COUNT]; /* the equal-weight universe's own, per period */
 };
 
 /* Sample random portfolios of src (source.h): from its complete return
@@ -77,6 +83,10 @@ struct sampler_result {
  * period (divisor T-1).  annual_return, when opt->want_returns, is that
  * portfolio's compound annualised return, rebalanced to equal weights each
  * period: prod(1 + r_t)^(P/T) - 1 with P = opt->periods_per_year.
+ * With opt->measures, measures_value holds each portfolio's measures
+ * (measures.h, from its per-period return series, computed in the same
+ * path) and universe_measures the equal-weight universe's; the matrix
+ * route has no series (HC_EUSAGE).
  * Stratified draws are hc_strata_run's (strata.h, which builds on this
  * module): opt->strata or opt->stratify set here is HC_EUSAGE.
  * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, strata),
@@ -97,6 +107,13 @@ int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
  * HC_EUSAGE when the sizes differ, HC_ENOMEM. */
 int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 		      struct hc_error *err);
+
+/* The ordering path k of a run seeded with seed draws from m securities
+ * (m <= UINT32_MAX): idx[0..m) a permutation of 0..m-1 whose first n
+ * entries are the members of that path's portfolio of n holdings, for
+ * every n (the sampler's draw exported for reference checks).  HC_EUSAGE
+ * for m < 1, HC_ENOMEM. */
+int hc_sampler_members(uint64_t seed, size_t k, size_t m, uint32_t *idx, struct hc_error *err);
 
 /* Free r and everything it owns; NULL is a no-op. */
 void hc_sampler_result_free(struct sampler_result *r);

@@ -19,6 +19,7 @@
 #include <unistd.h>
 
 #include "holdcount/analysis.h"
+#include "holdcount/measures.h"
 #include "holdcount/memory.h"
 #include "holdcount/outfile.h"
 #include "holdcount/universe.h"
@@ -123,6 +124,26 @@ static const struct cli_option sampling_options[] = {
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 const struct cli_group cli_group_sampling = { "sampling options", sampling_options };
+
+static const struct cli_option measures_options[] = {
+	{ "measures", 0, CLI_STRING, offsetof(struct cli_measures, list), "LIST",
+	  "measures of the random portfolios beside the sd family, comma-separated: semidev_mean, "
+	  "semidev_zero, var95, var99, es95, es99, max_drawdown, skewness, excess_kurtosis, "
+	  "worst_period, lag_universe, or the groups downside, tail and all; each adds its mean, "
+	  "Monte Carlo se and 5/50/95% quantiles by count (docs/measures.md)", NULL, "sd (the sd family alone)" },
+	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
+};
+const struct cli_group cli_group_measures = { "measure options", measures_options };
+
+int cli_measures_mask(const char *cmd, const struct cli_measures *m, unsigned *mask)
+{
+	struct hc_error err;
+
+	hc_error_clear(&err);
+	if (hc_measures_parse(m->list, mask, &err))
+		return cli_usage_error(cmd, "%s", err.message);
+	return HC_OK;
+}
 
 #define SUM(f) offsetof(struct cli_summary, f)
 static const struct cli_option summary_options[] = {

@@ -241,6 +241,15 @@ struct cli_sampling {
 extern const struct cli_group cli_group_sampling;
 void cli_sampling_init(struct cli_sampling *s);
 
+/* --measures LIST (curve): the measures beyond the sd family
+ * (include/holdcount/measures.h), parsed by hc_measures_parse. */
+struct cli_measures {
+	const char *list;          /* NULL = "sd", the sd family alone */
+};
+extern const struct cli_group cli_group_measures;
+/* HC_OK and *mask set, or the usage error printed and its status. */
+int cli_measures_mask(const char *cmd, const struct cli_measures *m, unsigned *mask);
+
 /* --average-variance, --average-covariance, --average-sd,
  * --average-correlation, --securities M */
 struct cli_summary {

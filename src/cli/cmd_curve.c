@@ -20,10 +20,12 @@ struct curve_opts {
 	struct cli_universe uni;
 	struct cli_output out;
 	struct cli_strata strat;
+	struct cli_measures mea;
 };
 
 static const struct cli_group_use curve_groups[] = {
 	{ &cli_group_sampling, offsetof(struct curve_opts, sam), NULL, NULL },
+	{ &cli_group_measures, offsetof(struct curve_opts, mea), NULL, NULL },
 	{ &cli_group_universe, offsetof(struct curve_opts, uni), NULL, NULL },
 	{ &cli_group_matrix_repair, offsetof(struct curve_opts, uni), NULL, NULL },
 	{ &cli_group_output, offsetof(struct curve_opts, out), NULL, NULL },
@@ -42,7 +44,12 @@ const struct cli_command cli_command_curve = {
 	"error, the mean standard deviation, its 5%, 50% and 95% quantiles, and the z-score of the "
 	"sampled mean against the exact one. With --strata, the same for portfolios spread across "
 	"strata (--proportional, or at most --per-stratum-max K in any stratum), in stratified_* "
-	"columns beside the unconstrained ones. Figures are annualised by the periods per year.",
+	"columns beside the unconstrained ones. With --measures, the same random portfolios' downside, tail "
+	"and path measures (semi-deviations, value-at-risk, expected shortfall, maximum drawdown, "
+	"skewness, excess kurtosis, worst period, the chance of lagging the equal-weight universe): "
+	"each measure's mean with its Monte Carlo standard error and its 5%, 50% and 95% quantiles by "
+	"count, and the universe's own value; they need complete return series. Figures are annualised "
+	"by the periods per year, except those --measures names as per period.",
 	1, 1, curve_groups
 };
 
@@ -112,9 +119,11 @@ int cmd_curve(int argc, char **argv)
 		rc = cli_usage_error("curve", "--strata draws from return series, not from a covariance matrix");
 		goto cleanup;
 	}
+	hc_curve_options_init(&co);
+	if ((rc = cli_measures_mask("curve", &o.mea, &co.measures)))
+		goto cleanup;
 	if ((rc = load(&o, &a, &src, &sizes, &nsizes)))
 		goto cleanup;
-	hc_curve_options_init(&co);
 	co.paths = o.sam.paths;
 	co.seed = o.sam.seed;
 	co.threads = o.sam.threads > INT_MAX ? INT_MAX : (int)o.sam.threads;

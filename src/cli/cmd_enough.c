@@ -25,6 +25,7 @@ struct enough_opts {
 	struct cli_universe uni;
 	struct cli_output out;
 	struct cli_strata strat;
+	struct cli_measures mea;
 };
 
 #define OFF(f) offsetof(struct enough_opts, f)
@@ -38,6 +39,7 @@ static const struct cli_omit enough_sampling_omit[] = {
 static const struct cli_group_use enough_groups[] = {
 	{ &cli_group_rules, OFF(rul), NULL, NULL },
 	{ &cli_group_sampling, OFF(smp), enough_sampling_omit, NULL },
+	{ &cli_group_measures, OFF(mea), NULL, NULL },
 	{ &cli_group_summary, OFF(sum), NULL, NULL },
 	{ &cli_group_universe, OFF(uni), NULL, NULL },
 	{ &cli_group_matrix_repair, OFF(uni), NULL, NULL },
@@ -58,7 +60,9 @@ const struct cli_command cli_command_enough = {
 	"(--proportional, or at most --per-stratum-max K in any stratum); the exact rules are "
 	"unchanged. With --covariance (a covariance matrix) or --missing pairwise the band rule "
 	"draws its portfolios from the matrix; shortfall, which compounds returns over time, needs "
-	"complete return series. See docs/enough.md for each rule and its source.",
+	"complete return series. With --measures, the same kind of random portfolios at each count a "
+	"rule chose give the measures there (docs/measures.md), in a table 'measures' (text and JSON). "
+	"See docs/enough.md for each rule and its source.",
 	0, 1, enough_groups
 };
 
@@ -197,7 +201,7 @@ int cmd_enough(int argc, char **argv)
 	if (have_data && (rc = cli_psd_usage("enough", &o.uni)) != HC_OK)
 		goto cleanup;
 	rc = cli_enough_options("enough", &o.rul, &o.smp, &a, have_data, o.uni.covariance, &eo);
-	if (rc)
+	if (rc || (rc = cli_measures_mask("enough", &o.mea, &eo.measures)))
 		goto cleanup;
 	/* Summary statistics and a matrix stay on the inputs' scale unless told
 	 * the periods per year: the rules' texts then say "per period". */
