@@ -115,7 +115,7 @@ sys.exit(bad)
 PY
 
 # ---- 3. contract and exit statuses ---------------------------------------------
-head -1 "$TMP/u-roll.csv" | grep -q '^window_start,window_end,securities,average_variance,average_covariance,average_correlation,floor_sd,count_near_floor,count_marginal,count_cost_benefit,count_tracking_error,' \
+head -1 "$TMP/u-roll.csv" | grep -q '^window_start,window_end,securities,average_variance,average_covariance,average_correlation,floor_sd,count_near_floor,count_marginal,count_next_holding,count_tracking_error,' \
 	|| say "csv header: $(head -1 "$TMP/u-roll.csv")"
 status() { set +e; "$HC" "$@" > "$TMP/out" 2> "$TMP/err"; echo $?; set -e; }
 [ "$(status rolling "$TMP/u.csv" --window 151)" = 2 ] || say "window longer than the data: not exit 2"
@@ -147,7 +147,7 @@ out = list(csv.DictReader(open(sys.argv[2])))
 bad = len(dat) != len(out)
 for d, o in zip(dat, out):
     want = [o["window_end"]] + [o[k] or "-" for k in
-            ("count_near_floor", "count_marginal", "count_cost_benefit", "count_tracking_error")]
+            ("count_near_floor", "count_marginal", "count_next_holding", "count_tracking_error", "count_statman_borrowing", "count_statman_lending")]
     bad |= d != want
 if bad:
     print("FAIL: rolling.dat does not hold the windows' counts")

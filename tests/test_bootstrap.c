@@ -20,7 +20,7 @@
  *     covered; Efron & Tibshirani (1993), An Introduction to the Bootstrap,
  *     on percentile intervals (from memory);
  *   - the sampler for the universe return at N = M (every path then holds
- *     every security), and hc_rules_band / hc_rules_shortfall rebuilt step by step
+ *     every security), and hc_rules_band / hc_rules_lag_share rebuilt step by step
  *     for the sampled rules' interval.
  */
 #include <setjmp.h>
@@ -657,13 +657,13 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 		assert_int_equal(hc_rules_band(&cfg, sr, cbar, 12, &rr, &err), HC_OK);
 		band[rep] = rr.met ? rr.count : 0;
 		assert_int_equal(hc_rules_universe_return(ru, 12, &uret, &err), HC_OK);
-		assert_int_equal(hc_rules_shortfall(&cfg, sr, uret, &rr, &err), HC_OK);
+		assert_int_equal(hc_rules_lag_share(&cfg, sr, uret, &rr, &err), HC_OK);
 		shortfall[rep] = rr.met ? rr.count : 0;
 		hc_sampler_result_free(sr);
 		hc_universe_free(ru);
 	}
 	res[0].rule = RULES_BAND;
-	res[1].rule = RULES_SHORTFALL;
+	res[1].rule = RULES_LAG_SHARE;
 	res[0].defined = res[1].defined = 1;
 	res[0].bootstrapped = res[1].bootstrapped = 0;
 	memcpy(res2, res, sizeof res);

@@ -22,6 +22,9 @@
 #include "holdcount/universe.h"
 
 #define ENOUGH_DEFAULT_BOOTSTRAP_PATHS 1000
+/* An average sd above this a year (300%) is taken as a unit mistake (common
+ * practice: even single stocks rarely exceed 100% a year). */
+#define RULES_IMPLAUSIBLE_SD 3.0
 
 struct enough_opts {
 	struct cli_rules rul;
@@ -33,11 +36,14 @@ struct enough_opts {
 };
 
 static const char *const kind_choices[] = { "block", "stationary", NULL };
+static const char *const policy_at_choices[] = { "upper", "estimate", NULL };
 
 #define RUL(f) offsetof(struct cli_rules, f)
 static const struct cli_option rules_own[] = {
 	{ "rules", 0, CLI_STRING, RUL(rules), "LIST",
-	  "rules to apply: near-floor, marginal, band, cost-benefit, tracking-error, shortfall, or all, exact, sampled",
+	  "rules to apply: near-floor, marginal, band, next-holding, tracking-error, lag-share, statman-borrowing, "
+	  "statman-lending, alexeev-tapon, alexeev-tapon-sampled, or all, exact, sampled (old names cost-benefit "
+	  "and shortfall still work)",
 	  NULL, "all (exact only from summary statistics)" },
 	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
 	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
@@ -47,14 +53,29 @@ static const struct cli_option rules_own[] = {
 	{ "band", 0, CLI_STRING, RUL(band), "Q:X",
 	  "band: the Q-quantile of sampled sd within X of the floor sd", NULL, "95%:10%" },
 	{ "premium", 0, CLI_FRACTION, RUL(premium), "R",
-	  "cost-benefit: the universe portfolio's premium a year", NULL, "5% (a placeholder: set it)" },
+	  "next-holding: the universe portfolio's premium a year", NULL, "5% (a placeholder: set it)" },
 	{ "holding-cost", 0, CLI_FRACTION, RUL(holding_cost), "C",
-	  "cost-benefit: the yearly cost of one more holding", NULL, "0.05% (a placeholder: set it)" },
+	  "next-holding: the yearly cost of one more holding", NULL, "0.05% (a placeholder: set it)" },
+	{ "statman", 0, CLI_STRING, RUL(statman), "B:L",
+	  "statman-borrowing/-lending: the index's premium a year over the borrowing rate (B) and over the lending rate (L)",
+	  NULL, "5.5%:7.3% (reproduce Statman's 30/40; set yours)" },
+	{ "index-cost", 0, CLI_FRACTION, RUL(index_cost), "C",
+	  "statman-borrowing/-lending: the index fund's cost disadvantage a year", NULL, "0.5% (set yours)" },
+	{ "alexeev-tapon", 0, CLI_STRING, RUL(alexeev_tapon), "X:Q",
+	  "alexeev-tapon: a random portfolio removes at least X of the removable variance with probability Q",
+	  NULL, "90%:90%" },
 	{ "te-budget", 0, CLI_FRACTION, RUL(te_budget), "B",
 	  "tracking-error: expected tracking error against the universe within B a year", NULL, "2%" },
-	{ "shortfall", 0, CLI_STRING, RUL(shortfall), "D:P",
-	  "shortfall: fewer than P of sampled portfolios trail the universe's return by more than D a year",
+	{ "lag-share", 0, CLI_STRING, RUL(shortfall), "D:P",
+	  "lag-share: fewer than P of sampled portfolios lag the universe's return by more than D a year",
 	  NULL, "1%:10%" },
+	{ "shortfall", 0, CLI_STRING, RUL(shortfall), "D:P",
+	  "old spelling of --lag-share, kept so that scripts keep working", NULL, NULL },
+	{ "policy", 0, CLI_STRING, RUL(policy), "RULE",
+	  "the rule whose count becomes the recommended minimum holdings", NULL, "near-floor" },
+	{ "policy-at", 0, CLI_CHOICE, RUL(policy_at), NULL,
+	  "take the recommended count at the upper end of the 90% interval or at the estimate",
+	  policy_at_choices, "upper" },
 	{ "bootstrap", 0, CLI_COUNT, RUL(bootstrap), "B",
 	  "bootstrap replicates for the count's interval (0: no interval)", NULL, "1000" },
 	{ "bootstrap-kind", 0, CLI_CHOICE, RUL(bootstrap_kind), NULL,
@@ -63,7 +84,7 @@ static const struct cli_option rules_own[] = {
 	{ "block-length", 0, CLI_COUNT, RUL(block_length), "L",
 	  "block length (mean length for stationary) in periods", NULL, "round(T^(1/3))" },
 	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
-	  "also bootstrap the sampled rules (band, shortfall): re-samples portfolios per replicate, costly",
+	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled): re-samples portfolios per replicate, costly",
 	  NULL, NULL },
 	{ "bootstrap-paths", 0, CLI_COUNT, RUL(bootstrap_paths), "K",
 	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
@@ -106,10 +127,12 @@ const struct cli_command cli_command_enough = {
 	"reached at that count, and a 90% interval for the count from a bootstrap of the periods. "
 	"Without UNIVERSE, give summary statistics (--average-variance and --average-covariance, or "
 	"--average-sd and --average-correlation, and optionally --securities) for the exact rules. "
-	"With --strata, the sampled rules (band, shortfall) draw portfolios spread across strata "
+	"One rule's count (--policy, default near-floor) becomes the recommendation, with a sentence for a "
+	"policy statement. "
+	"With --strata, the sampled rules (band, lag-share, alexeev-tapon-sampled) draw portfolios spread across strata "
 	"(--proportional, or at most --per-stratum-max K in any stratum); the exact rules are "
-	"unchanged. With --covariance (a covariance matrix) or --missing pairwise the band rule "
-	"draws its portfolios from the matrix; shortfall, which compounds returns over time, needs "
+	"unchanged. With --covariance (a covariance matrix) or --missing pairwise the band and "
+	"alexeev-tapon-sampled rules draw their portfolios from the matrix; lag-share, which compounds returns over time, needs "
 	"complete return series. See docs/enough.md for each rule and its source.",
 	0, 1, enough_groups
 };
@@ -158,7 +181,8 @@ static int parse_pair(const char *cmd, const char *opt, const char *s, double *a
 
 	if (!colon || parse_share(s, (size_t)(colon - s), a) || parse_share(colon + 1, strlen(colon + 1), b))
 		return cli_usage_error(cmd, "bad --%s '%s': expected two shares as A:B, e.g. %s", opt, s,
-				       strcmp(opt, "band") == 0 ? "95%:10%" : "1%:10%");
+				       strcmp(opt, "band") == 0 ? "95%:10%" : strcmp(opt, "statman") == 0 ? "5.5%:7.3%"
+				       : strcmp(opt, "alexeev-tapon") == 0 ? "90%:90%" : "1%:10%");
 	return HC_OK;
 }
 
@@ -172,14 +196,14 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 	if (!have_data)
 		cfg->selected = RULES_EXACT_MASK;
 	else if (covariance)
-		cfg->selected = RULES_EXACT_MASK | RULES_FLAG(RULES_BAND);
+		cfg->selected = RULES_ALL_MASK & ~RULES_FLAG(RULES_LAG_SHARE);
 	if (o->rules && hc_rules_parse_list(o->rules, &cfg->selected, &err))
 		return cli_fail(cmd, &err);
-	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "the band and shortfall rules need a universe file, not summary statistics");
+	if (!have_data && (cfg->selected & (RULES_SAMPLED_MASK | RULES_SPREAD_MASK)))
+		return cli_usage_error(cmd, "the band, lag-share and alexeev-tapon rules need a universe file, not summary statistics");
 	/* Everything but time-based figures works from a matrix (design.md section 8). */
-	if (covariance && (cfg->selected & RULES_FLAG(RULES_SHORTFALL)))
-		return cli_usage_error(cmd, "the shortfall rule needs return series: it compounds each portfolio's "
+	if (covariance && (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)))
+		return cli_usage_error(cmd, "the lag-share rule needs return series: it compounds each portfolio's "
 				       "returns over the periods, and a covariance matrix has none (--rules exact,band "
 				       "runs every other rule)");
 	if (covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
@@ -193,7 +217,15 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 				       o->marginal);
 	if (o->band && parse_pair(cmd, "band", o->band, &cfg->band_q, &cfg->band_x))
 		return HC_EUSAGE;
-	if (o->shortfall && parse_pair(cmd, "shortfall", o->shortfall, &cfg->shortfall_d, &cfg->shortfall_p))
+	if (o->shortfall && parse_pair(cmd, cli_given(a, "shortfall") ? "shortfall" : "lag-share", o->shortfall,
+				       &cfg->shortfall_d, &cfg->shortfall_p))
+		return HC_EUSAGE;
+	if (o->statman && parse_pair(cmd, "statman", o->statman, &cfg->borrow_premium, &cfg->lend_premium))
+		return HC_EUSAGE;
+	if (cli_given(a, "index-cost"))
+		cfg->index_cost = o->index_cost;
+	cfg->statman_defaults = !o->statman && !cli_given(a, "index-cost");
+	if (o->alexeev_tapon && parse_pair(cmd, "alexeev-tapon", o->alexeev_tapon, &cfg->at_x, &cfg->at_q))
 		return HC_EUSAGE;
 	if (cli_given(a, "premium"))
 		cfg->premium = o->premium;
@@ -206,6 +238,17 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 		cfg->te_budget = o->te_budget;
 	if (hc_rules_config_check(cfg, &err))
 		return cli_fail(cmd, &err);
+	if (o->policy) {
+		unsigned one;
+
+		if (hc_rules_parse_list(o->policy, &one, &err))
+			return cli_usage_error(cmd, "bad --policy '%s': expected one rule name, such as near-floor", o->policy);
+		if (one & (one - 1))
+			return cli_usage_error(cmd, "bad --policy '%s': expected one rule, not a group", o->policy);
+		if (!(cfg->selected & one))
+			return cli_usage_error(cmd, "--policy %s: that rule is not among the rules run (add it to --rules)",
+					       o->policy);
+	}
 	return HC_OK;
 }
 
@@ -268,6 +311,9 @@ struct enough_run {
 	int sampled_bootstrapped;
 	size_t bootstrap_paths;
 	const char *no_interval;     /* why there is no interval, or NULL */
+	const char *policy;          /* --policy RULE, or NULL for the default */
+	int policy_at;               /* 0: upper end of the interval, 1: the estimate */
+	int sentence_column;         /* 1: the rules table carries the sentence too (CSV, report folder) */
 };
 
 static int add_fields(struct report *r, const struct enough_run *e)
@@ -285,7 +331,7 @@ static int add_fields(struct report *r, const struct enough_run *e)
 		if (e->u->has_missing)
 			bad |= hc_report_add_text(r, "input", "input", e->ps && e->ps->repaired
 				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
-				  "positive semi-definite matrix, for every rule but shortfall"
+				  "positive semi-definite matrix, for every rule but lag-share"
 				: e->paths ? "return history with gaps; pairwise-complete covariances, from which the band "
 					    "rule draws its portfolios"
 				: "return history with gaps; pairwise-complete covariances");
@@ -334,14 +380,212 @@ static int add_notes(struct report *r, const struct enough_run *e)
 			 "the periods (block length %zu); \"not met\" where the percentile reaches replicates "
 			 "in which the rule is not met%s",
 			 e->replicates, hc_bootstrap_kind_name(e->kind), e->block_length,
-			 e->sampled_bootstrapped ? "" : "; sampled rules (band, shortfall) have an interval only with --bootstrap-sampled");
+			 e->sampled_bootstrapped ? "" : "; sampled rules (band, lag-share, alexeev-tapon-sampled) have an interval only with --bootstrap-sampled");
 		bad |= hc_report_add_note(r, text);
 	} else if (e->no_interval)
 		bad |= hc_report_add_note(r, e->no_interval);
+	if (e->annualised && e->vbar * e->ppy > RULES_IMPLAUSIBLE_SD * RULES_IMPLAUSIBLE_SD) {
+		snprintf(text, sizeof text,
+			 "implausible: the average sd is %.4g%% a year, above %.0f%%; are the inputs in percent (variances in "
+			 "percent squared?) rather than decimals?  Every count and figure here would then be wrong",
+			 100 * sqrt(e->vbar * e->ppy), 100 * RULES_IMPLAUSIBLE_SD);
+		bad |= hc_report_add_note(r, text);
+	}
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
 	bad |= hc_report_add_cautions(r);
+	return bad ? HC_ENOMEM : HC_OK;
+}
+
+/* ---- the recommendation ------------------------------------------------- */
+
+/* The default policy rule.  near-floor: it is exact (no sampling noise),
+ * needs no premium or cost a committee would have to guess, has a bootstrap
+ * interval, and asks what a minimum-holdings rule is for -- risk close to
+ * the least that diversification within this universe can reach. */
+#define ENOUGH_DEFAULT_POLICY RULES_NEAR_FLOOR
+
+/* What each rule asks, in words for a policy statement. */
+static const char *const policy_phrase[RULES_COUNT] = {
+	"a random equal-weight portfolio's expected risk is close to the least that diversification across the universe can reach",
+	"one more holding lowers expected risk by no more than a set step",
+	"even an unlucky random portfolio's risk is close to the least that diversification can reach",
+	"the value of the risk one more holding removes is no more than that holding's cost",
+	"the expected tracking error against the equal-weight universe is within a budget",
+	"few random portfolios lag the universe's return by more than a set margin",
+	"a levered index would add no more return than the index fund's cost disadvantage (Statman, 1987, borrowing investor)",
+	"a levered index would add no more return than the index fund's cost disadvantage (Statman, 1987, lending investor)",
+	"a random portfolio removes most of the removable risk with high probability (Alexeev & Tapon, 2014)",
+	"a random portfolio removes most of the removable risk with high probability (Alexeev & Tapon, 2014, sampled)",
+};
+
+/* The rule the policy takes: --policy, else the default, else the first rule run. */
+static const struct rule_result *policy_rule(const struct enough_run *e, const struct rule_result *res,
+					     size_t nres, int *fallback)
+{
+	int want = ENOUGH_DEFAULT_POLICY;
+	unsigned mask;
+	struct hc_error err;
+	size_t k;
+
+	*fallback = 0;
+	if (e->policy && hc_rules_parse_list(e->policy, &mask, &err) == HC_OK)
+		for (k = 0; k < RULES_COUNT; k++)
+			if (mask == RULES_FLAG(k))
+				want = (int)k;
+	for (k = 0; k < nres; k++)
+		if (res[k].rule == want)
+			return &res[k];
+	*fallback = 1;
+	return nres ? &res[0] : NULL;
+}
+
+/* "240 periods (12 a year) from 2005-01-31 to 2024-12-31", or what stands
+ * in for the data. */
+static void policy_period(const struct enough_run *e, char *buf, size_t len)
+{
+	char d0[16], d1[16];
+
+	if (e->u && e->u->dates && e->u->t) {
+		hc_universe_format_date(e->u->dates[0], d0);
+		hc_universe_format_date(e->u->dates[e->u->t - 1], d1);
+		snprintf(buf, len, "%zu periods (%.4g a year) from %s to %s", e->u->t, e->ppy, d0, d1);
+	} else if (e->matrix)
+		snprintf(buf, len, "a covariance matrix (no data period)");
+	else
+		snprintf(buf, len, "summary statistics (no data period)");
+}
+
+static void policy_universe(const struct enough_run *e, char *buf, size_t len)
+{
+	if (e->u && e->u->has_missing)
+		snprintf(buf, len, "%zu securities from %s, gaps kept, pairwise-complete covariances%s", e->m,
+			 e->u->source ? e->u->source : "the universe file",
+			 e->ps && e->ps->repaired ? " repaired to the nearest positive semi-definite matrix" : "");
+	else if (e->u)
+		snprintf(buf, len, "%zu securities from %s with complete histories (%zu with gaps dropped)", e->m,
+			 e->u->source ? e->u->source : "the universe file", e->u->ndropped);
+	else if (e->matrix)
+		snprintf(buf, len, "%zu securities in %s", e->m, e->matrix);
+	else if (e->m)
+		snprintf(buf, len, "%zu securities described by their averages", e->m);
+	else
+		snprintf(buf, len, "an unbounded universe described by its averages");
+}
+
+/* The count the policy takes, or 0 with *reason set. */
+static size_t policy_count(const struct enough_run *e, const struct rule_result *p, int *at_upper,
+			   const char **reason)
+{
+	*reason = NULL;
+	*at_upper = 0;
+	if (!p->defined) {
+		*reason = "the rule cannot be evaluated on these data (see its note)";
+		return 0;
+	}
+	if (!p->met) {
+		*reason = "the rule is not met within the universe";
+		return 0;
+	}
+	if (e->policy_at == 1 || !p->bootstrapped)
+		return p->count;
+	*at_upper = 1;
+	if (isnan(p->count_p95)) {
+		*reason = "the upper end of the 90% interval is not met: more than 5% of the bootstrap replicates "
+			  "never meet the rule";
+		return 0;
+	}
+	/* An upper end below the estimate (possible when the replicates lean
+	 * low) is not a prudent minimum: take the larger. */
+	return (size_t)p->count_p95 > p->count ? (size_t)p->count_p95 : p->count;
+}
+
+/* The rules table's columns policy (yes on the policy rule's row),
+ * recommended_minimum (its count, or none with the reason) and, for CSV,
+ * policy_sentence: so that the CSV alone carries the recommendation. */
+static int policy_columns(struct report *r, const struct rule_result *res, const struct rule_result *p,
+			  size_t n, const char *reason, const char *sentence)
+{
+	struct report_table *t = NULL;
+	size_t k, row = (size_t)(p - res), col;
+
+	for (k = 0; k < r->ntables; k++)
+		if (strcmp(r->tables[k]->key, "rules") == 0)
+			t = r->tables[k];
+	if (!t || row >= t->nrows)
+		return 0;
+	col = t->ncols;
+	if (hc_report_table_add_column(t, "policy", "policy", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "recommended_minimum", "recommended minimum", REPORT_STYLE_PLAIN) ||
+	    (sentence && hc_report_table_add_column(t, "policy_sentence", "policy sentence", REPORT_STYLE_PLAIN)))
+		return -1;
+	for (k = 0; k < t->nrows; k++)
+		hc_report_table_set_bool(t, k, col, k == row);
+	if (n)
+		hc_report_table_set_int(t, row, col + 1, (long long)n);
+	else if (hc_report_table_set_none(t, row, col + 1, reason ? reason : "no recommendation"))
+		return -1;
+	return sentence ? hc_report_table_set_text(t, row, col + 2, sentence) : 0;
+}
+
+static int add_policy(struct report *r, const struct enough_run *e, const struct rule_result *res, size_t nres)
+{
+	const struct rule_result *p;
+	const char *reason;
+	char period[160], uni[400], on[600], basis[200], text[1800];
+	size_t n;
+	int fallback, at_upper, bad = 0;
+
+	if (!(p = policy_rule(e, res, nres, &fallback)))
+		return HC_OK;
+	n = policy_count(e, p, &at_upper, &reason);
+	policy_period(e, period, sizeof period);
+	policy_universe(e, uni, sizeof uni);
+	if (e->u)
+		snprintf(on, sizeof on, "%s of returns of %s", period, uni);
+	else
+		snprintf(on, sizeof on, "%s, %s", uni, period);
+	if (at_upper)
+		snprintf(basis, sizeof basis, "upper end of the 90%% bootstrap interval");
+	else if (e->policy_at == 1)
+		snprintf(basis, sizeof basis, "estimate (--policy-at estimate)");
+	else
+		snprintf(basis, sizeof basis, "estimate (no interval to take the upper end of)");
+	bad |= hc_report_add_text(r, "policy_rule", "policy rule", p->name);
+	bad |= hc_report_add_text(r, "policy_basis", "policy count taken at", basis);
+	if (n)
+		bad |= hc_report_add_int(r, "policy_count", "recommended minimum holdings", (long long)n);
+	else
+		bad |= hc_report_add_none(r, "policy_count", "recommended minimum holdings");
+	if (reason)
+		bad |= hc_report_add_text(r, "policy_reason", "no recommendation because", reason);
+	bad |= hc_report_add_text(r, "policy_period", "data period", period);
+	bad |= hc_report_add_text(r, "policy_universe", "universe and treatment", uni);
+	if (n && at_upper)
+		snprintf(text, sizeof text,
+			 "The portfolio shall hold at least %zu securities. Basis: on %s, the smallest "
+			 "holding count at which %s (%s rule, %s) is estimated at %zu, with a 90%% bootstrap interval "
+			 "of %.0f to %.0f; the minimum is set at the interval's upper end to allow for estimation error. "
+			 "This is a historical estimate for random equal-weight holdings, to be reviewed when the data "
+			 "are refreshed; it does not replace the fund's legal limits or licensed advice.",
+			 n, on, policy_phrase[p->rule], p->name, p->parameters, p->count,
+			 p->count_p05, p->count_p95);
+	else if (n)
+		snprintf(text, sizeof text,
+			 "The portfolio shall hold at least %zu securities. Basis: on %s, the smallest "
+			 "holding count at which %s (%s rule, %s) is estimated at %zu%s. This is a historical estimate "
+			 "for random equal-weight holdings, to be reviewed when the data are refreshed; it does not "
+			 "replace the fund's legal limits or licensed advice.",
+			 n, on, policy_phrase[p->rule], p->name, p->parameters, p->count,
+			 p->bootstrapped ? "; the policy takes the estimate, not the upper end of its 90% interval"
+			 : "; there is no interval for its estimation error");
+	else
+		snprintf(text, sizeof text, "No minimum can be recommended from the %s rule: %s.", p->name, reason);
+	bad |= hc_report_add_text(r, "policy_sentence", "policy sentence", text);
+	bad |= policy_columns(r, res, p, n, reason, e->sentence_column ? text : NULL);
+	if (fallback)
+		bad |= hc_report_add_note(r, "policy: near-floor, the default policy rule, was not run, so the first rule run stands in; choose one with --policy");
 	return bad ? HC_ENOMEM : HC_OK;
 }
 
@@ -356,7 +600,7 @@ static int build_report(const char *cmd, const struct enough_run *e, const struc
 	hc_error_clear(&err);
 	*out = NULL;
 	if (!r || add_fields(r, e) || (strat && cli_strata_fields(r, strat)) ||
-	    hc_rules_report(r, res, nres, &err) || add_notes(r, e)) {
+	    hc_rules_report(r, res, nres, &err) || add_policy(r, e, res, nres) || add_notes(r, e)) {
 		hc_report_free(r);
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		return cli_fail(cmd, &err);
@@ -410,6 +654,7 @@ struct data_run {
 	struct cli_strata *strat;
 	int quiet;
 	int stages;                /* announce each long step (cli_stage) */
+	int sentence_column;       /* the rules table carries the policy sentence (CSV, report folder) */
 };
 
 /* Options that contradict the rules chosen (before any file is read). */
@@ -417,9 +662,9 @@ static int data_checks(const char *cmd, const struct cli_sampling *smp, const st
 		       const struct rules_config *cfg)
 {
 	if ((strat->map || strat->per_stratum_max || strat->proportional) && !(cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
+		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, lag-share, alexeev-tapon-sampled), and none is chosen");
 	if (smp->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
+		return cli_usage_error(cmd, "--paths 0 leaves the sampled rules nothing to read: choose --rules exact");
 	return HC_OK;
 }
 
@@ -435,7 +680,7 @@ static int run_sampled(const struct data_run *d, const struct universe *u, const
 	struct rules_config band = *cfg;
 	struct sampler_options so;
 	struct cli_progress prog;
-	struct rule_result sr[2];
+	struct rule_result sr[3];
 	struct hc_error err;
 	size_t n = 0, k, j;
 	int rc;
@@ -449,13 +694,13 @@ static int run_sampled(const struct data_run *d, const struct universe *u, const
 	if (!cm && (rc = cli_strata_apply(d->cmd, d->strat, u, &so)))
 		return rc;
 	if (d->stages)
-		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the band and shortfall rules");
+		cli_stage(d->cmd, d->quiet, "sampling random portfolios for the sampled rules");
 	cli_progress_init(&prog, "sampling", "paths", d->quiet);
 	so.progress = cli_progress_update;
 	so.progress_ctx = &prog;
-	band.selected &= ~RULES_FLAG(RULES_SHORTFALL);
-	rc = cm ? hc_rules_sampled_matrix(&band, cm->a, cm->m, &so, cbar, sr, &n, &e->sampled_sizes, &err)
-		: hc_rules_sampled(cfg, u, &so, cbar, sr, &n, &e->sampled_sizes, &err);
+	band.selected &= ~RULES_FLAG(RULES_LAG_SHARE);
+	rc = cm ? hc_rules_sampled_matrix(&band, cm->a, cm->m, &so, e->vbar, cbar, sr, &n, &e->sampled_sizes, &err)
+		: hc_rules_sampled(cfg, u, &so, e->vbar, cbar, sr, &n, &e->sampled_sizes, &err);
 	cli_progress_finish(&prog);
 	if (rc)
 		return cli_fail(d->cmd, &err);
@@ -512,6 +757,10 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 	if (rc == HC_OK)
 		rc = hc_rules_bootstrap_exact(cfg, br->vbar, br->cbar, br->replicates, u->m,
 					   u->periods_per_year, res, nres, &err);
+	for (size_t j = 0; rc == HC_OK && j < nres; j++)
+		if (res[j].rule == RULES_ALEXEEV_TAPON && res[j].defined && !res[j].note[0])
+			snprintf(res[j].note, sizeof res[j].note, "no interval: the exact spread is not recomputed per "
+				 "replicate; alexeev-tapon-sampled has one with --bootstrap-sampled");
 	if (rc == HC_OK) {
 		e->bootstrapped = 1;
 		e->replicates = br->replicates;
@@ -551,7 +800,8 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 		      const struct rules_config *cfg, struct cli_psd *ps, struct enough_run *e,
 		      struct rule_result *res, size_t *nres)
 {
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0 };
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0,
+			      o->out.format != CLI_FORMAT_TABLE };
 	struct covmatrix *cm = NULL;
 	struct rules_input in;
 	struct moments mo;
@@ -587,12 +837,13 @@ static int run_matrix(struct enough_opts *o, const struct cli_args *a, const cha
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
+	in.mo = &mo;
 	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
 	if (rc) {
 		rc = cli_fail("enough", &err);
 		goto cleanup;
 	}
-	if (cfg->selected & RULES_FLAG(RULES_BAND))
+	if (cfg->selected & RULES_SAMPLED_MASK)
 		rc = run_sampled(&d, NULL, cm, cfg, e->cbar, e->ppy, e, res, *nres);
 cleanup:
 	hc_covmatrix_free(cm);
@@ -622,13 +873,14 @@ static int run_data(const struct data_run *d, const struct universe *u, const st
 	in.cbar = e->cbar;
 	in.m = e->m;
 	in.periods_per_year = e->ppy;
+	in.mo = mo;
 	hc_error_clear(&err);
 	rc = hc_rules_evaluate(cfg, &in, res, nres, &err);
 	if (rc)
 		return cli_fail(d->cmd, &err);
 	if ((cfg->selected & RULES_SAMPLED_MASK) && u->has_missing) {
 		for (size_t j = 0; j < *nres; j++)
-			if (res[j].rule == RULES_SHORTFALL)
+			if (res[j].rule == RULES_LAG_SHARE)
 				snprintf(res[j].note, sizeof res[j].note,
 					 "needs complete data: a portfolio's return over time needs every member's "
 					 "return in every period");
@@ -663,6 +915,9 @@ static int enough_data(const struct data_run *d, const struct universe *u, const
 		return rc;
 	memset(&e, 0, sizeof e);
 	e.ps = ps;
+	e.policy = d->rul->policy;
+	e.policy_at = d->rul->policy_at;
+	e.sentence_column = d->sentence_column;
 	rc = run_data(d, u, cm, mo, cfg, &e, res, nres);
 	return rc ? rc : build_report(d->cmd, &e, d->strat, res, *nres, out);
 }
@@ -672,17 +927,21 @@ int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct c
 		    const struct moments *mo, const struct rules_config *cfg,
 		    struct rule_result *res, size_t *nres, struct report **out)
 {
-	struct data_run d = { cmd, rul, smp, strat, quiet, stages };
+	struct data_run d = { cmd, rul, smp, strat, quiet, stages, 1 };
 
 	return enough_data(&d, u, NULL, NULL, mo, cfg, res, nres, out);
 }
+
+/* The sampled rules that can draw from a covariance matrix. */
+#define MATRIX_SAMPLED (RULES_FLAG(RULES_BAND) | RULES_FLAG(RULES_ALEXEEV_TAPON_SAMPLED))
 
 /* A return history: load it, then the rules as `holdcount report` also runs them. */
 static int enough_file(struct enough_opts *o, const char *path, const struct rules_config *cfg,
 		       struct cli_psd *ps, struct universe **up, struct rule_result *res, size_t *nres,
 		       struct report **out)
 {
-	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0 };
+	struct data_run d = { "enough", &o->rul, &o->smp, &o->strat, o->out.quiet, 0,
+			      o->out.format != CLI_FORMAT_TABLE };
 	struct covmatrix *cm = NULL;
 	struct moments mo;
 	struct hc_error err;
@@ -699,7 +958,7 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 	if ((*up)->has_missing && (o->strat.map || o->strat.per_stratum_max || o->strat.proportional))
 		return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps "
 				       "under --missing pairwise", path);
-	if ((*up)->has_missing && ((cfg->selected & RULES_FLAG(RULES_BAND)) || ps->asked) &&
+	if ((*up)->has_missing && ((cfg->selected & MATRIX_SAMPLED) || ps->asked) &&
 	    (rc = cli_pairwise_matrix("enough", *up, path,
 				      "the pairwise-complete covariances are not positive semi-definite, so the band "
 				      "rule cannot draw random portfolios from them; --rules exact leaves it out, and "
@@ -710,7 +969,7 @@ static int enough_file(struct enough_opts *o, const char *path, const struct rul
 	if (rc)
 		rc = cli_fail("enough", &err);
 	else
-		rc = enough_data(&d, *up, (cfg->selected & RULES_FLAG(RULES_BAND)) ? cm : NULL, ps, &mo, cfg,
+		rc = enough_data(&d, *up, (cfg->selected & MATRIX_SAMPLED) ? cm : NULL, ps, &mo, cfg,
 				 res, nres, out);
 	hc_covmatrix_free(cm);
 	return rc;
@@ -763,6 +1022,9 @@ int cmd_enough(int argc, char **argv)
 				     have_data ? "a covariance matrix" : "summary statistics");
 		goto cleanup;
 	}
+	e.policy = o.rul.policy;
+	e.policy_at = o.rul.policy_at;
+	e.sentence_column = o.out.format != CLI_FORMAT_TABLE;
 	if (have_data && !o.uni.covariance) {
 		rc = enough_file(&o, a.positional[0], &cfg, &ps, &u, res, &nres, &r);
 	} else {

@@ -90,12 +90,12 @@ static const struct cli_group report_group = { "report options", report_own };
 /* The report reads complete return series only: --missing could only
  * repeat its default, and --min-coverage would change nothing. */
 static const struct cli_omit report_universe_omit[] = {
-	{ "missing", "the report draws its random portfolios, its shortfall rule and its audit from "
+	{ "missing", "the report draws its random portfolios, its lag-share rule and its audit from "
 	  "complete return series (securities with gaps are dropped); curve, enough and audit take "
 	  "--missing pairwise" },
 	{ "min-coverage", "it is the coverage --missing pairwise asks for, and the report reads complete "
 	  "return series only; curve, enough and audit take both" },
-	{ "covariance", "the report needs a return history (its dates, shortfall rule and rolling windows "
+	{ "covariance", "the report needs a return history (its dates, lag-share rule and rolling windows "
 	  "are time-based); describe, curve, enough and audit take a covariance matrix" },
 	{ NULL, NULL }
 };
@@ -703,12 +703,20 @@ static const char *const rule_legend[RULES_COUNT] = {
 	"marginal: one more holding lowers the expected sd by less than eps a year",
 	"band: the q-quantile of random portfolios' sd is within x of the floor, so even an unlucky "
 	"draw of that many holdings is near it",
-	"cost-benefit (after Statman, 1987, Journal of Financial and Quantitative Analysis 22(3)): the "
-	"premium earned on the risk one more holding removes falls below that holding's yearly cost",
-	"tracking-error: the expected tracking error against the equal-weight portfolio of the whole "
+	"next-holding (this tool's own rule): the premium earned on the risk one more holding removes is "
+	"at most that holding's yearly cost",
+	"tracking-error: the root mean square tracking error against the equal-weight portfolio of the whole "
 	"universe is within the budget",
-	"shortfall (after Domian, Louton & Racine, 2007, The Financial Review 42(4)): fewer than p of "
-	"random portfolios trail the universe's return over the sample by more than d a year",
+	"lag-share (this tool's own rule): fewer than p of random portfolios, rebalanced every period, lag "
+	"the universe's return over the sample by more than d a year",
+	"statman-borrowing (Statman, 1987, Journal of Financial and Quantitative Analysis 22(3)): the extra "
+	"return of the index levered to the portfolio's sd, premium over the borrowing rate times "
+	"(sd(N)/sd(index) - 1), is at most the index fund's cost disadvantage",
+	"statman-lending (Statman, 1987): the same with the premium over the lending rate",
+	"alexeev-tapon (Alexeev & Tapon, 2014, Journal of Banking & Finance 46): a random portfolio removes "
+	"at least x of the removable variance with probability at least q (gamma approximation from the "
+	"exact mean and spread)",
+	"alexeev-tapon-sampled: the same rule counted over sampled random portfolios",
 };
 
 static void md_rules(FILE *fp, const struct run *r)
@@ -744,7 +752,7 @@ static void md_rules(FILE *fp, const struct run *r)
 			"meet the rule.%s\n\n",
 			hc_bootstrap_kind_name(r->o->rul.bootstrap_kind), r->o->rul.bootstrap,
 			sampled && !r->o->rul.bootstrap_sampled
-			? " The sampled rules (band, shortfall) are drawn from random portfolios and have no interval "
+			? " The sampled rules (band, lag-share, alexeev-tapon-sampled) are drawn from random portfolios and have no interval "
 			  "here: `--bootstrap-sampled` gives them one, at some cost in time." : "");
 	else
 		fputs("How to read it: the count is the estimate from the whole history; no bootstrap was run "
@@ -816,7 +824,7 @@ static void md_rolling(FILE *fp, const struct run *r)
 		return;
 	}
 	fprintf(fp, "Each exact rule's count from the averages of each window of %zu periods (%s), one window "
-		"starting every %zu periods: %zu windows. The sampled rules (band, shortfall) and the bootstrap "
+		"starting every %zu periods: %zu windows. The sampled rules (band, lag-share, alexeev-tapon-sampled) and the bootstrap "
 		"interval are not run per window (`holdcount rolling --bootstrap` gives the interval). Averages "
 		"drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, Journal of Finance 56(1)), so a count "
 		"set once is worth revisiting. Every window's averages are in `rolling.csv`.\n\n",

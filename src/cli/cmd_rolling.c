@@ -31,7 +31,7 @@ static const struct cli_option rolling_own[] = {
 	{ "window", 'w', CLI_COUNT, OWN(window), "W", "periods in each window", NULL, "60" },
 	{ "step", 0, CLI_COUNT, OWN(step), "S", "periods between the starts of two windows", NULL, "12" },
 	{ "rules", 0, CLI_STRING, OWN(rules), "LIST",
-	  "exact rules to evaluate: near-floor, marginal, cost-benefit, tracking-error, or exact",
+	  "exact rules to evaluate: near-floor, marginal, next-holding, tracking-error, statman-borrowing, statman-lending, or exact",
 	  NULL, "exact" },
 	{ "near-floor", 0, CLI_FRACTION, OWN(near_floor), "X",
 	  "near-floor rule: sigma within X of the floor sigma, as 0.1 or 10%", NULL, "10%" },
@@ -39,9 +39,9 @@ static const struct cli_option rolling_own[] = {
 	  "marginal rule: one more holding lowers annual sigma by less than EPS (0.10pp, 0.1% or 0.001)",
 	  NULL, "0.10pp" },
 	{ "premium", 0, CLI_FRACTION, OWN(premium), "P",
-	  "cost-benefit rule: the universe portfolio's premium a year", NULL, "5%" },
+	  "next-holding rule: the universe portfolio's premium a year", NULL, "5%" },
 	{ "holding-cost", 0, CLI_FRACTION, OWN(holding_cost), "C",
-	  "cost-benefit rule: yearly cost of one more holding", NULL, "0.05%" },
+	  "next-holding rule: yearly cost of one more holding", NULL, "0.05%" },
 	{ "te-budget", 0, CLI_FRACTION, OWN(te_budget), "B",
 	  "tracking-error rule: annual tracking error budget", NULL, "2%" },
 	{ "bootstrap", 0, CLI_COUNT, OWN(bootstrap), "B",
@@ -122,7 +122,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 			return cli_fail("rolling", &err);
 		if (mask & ~RULES_EXACT_MASK)
 			return cli_usage_error("rolling", "--rules: rolling windows evaluate the exact rules "
-					       "only (near-floor, marginal, cost-benefit, tracking-error)");
+					       "only (near-floor, marginal, next-holding, tracking-error, statman-borrowing, statman-lending)");
 		ro->rules.selected = mask;
 	} else {
 		ro->rules.selected = RULES_EXACT_MASK;
