@@ -182,6 +182,7 @@ grep -q '^- policy: largest weight <= 10%' "$T/policy/summary.md" || fail "summa
 grep -q '| Lirrand Select Fund C | .*| no | max-weight |' "$T/policy/summary.md" || fail "summary.md does not show Fund C failing"
 # the rules section explains itself: a line per rule, how to read the interval
 grep -q '^- lag-share (this tool.s own rule)' "$T/a/summary.md" || fail "summary.md lacks the lag-share rule's line"
+grep -q '^> The portfolio shall hold at least [0-9]* securities. Basis: on ' "$T/a/summary.md" || fail "summary.md lacks the recommendation sentence"
 grep -q -- '--bootstrap-sampled` gives them one' "$T/a/summary.md" || fail "summary.md does not say why band and shortfall have no interval"
 "$HC" report -o "$T/bs" "${FAST[@]}" --bootstrap 20 --bootstrap-sampled --bootstrap-paths 50 || fail "--bootstrap-sampled exited $?"
 grep -q -- '--bootstrap-sampled` gives them one' "$T/bs/summary.md" && fail "summary.md says band has no interval under --bootstrap-sampled"

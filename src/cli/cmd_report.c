@@ -760,6 +760,11 @@ static void md_rules(FILE *fp, const struct run *r)
 	if (t)
 		md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
 	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
+	for (k = 0; r->rep_enough && k < r->rep_enough->nfields; k++)
+		if (strcmp(r->rep_enough->fields[k].key, "policy_sentence") == 0 &&
+		    r->rep_enough->fields[k].value.kind == REPORT_TEXT)
+			fprintf(fp, "**Recommendation** (`--policy`, `--policy-at`; a sentence for a policy statement):\n\n> %s\n\n",
+				r->rep_enough->fields[k].value.text);
 }
 
 static void md_audit(FILE *fp, const struct run *r)
