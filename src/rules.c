@@ -1009,6 +1009,332 @@ int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 	return HC_OK;
 }
 
+/* ---- BCa intervals --------------------------------------------------------- */
+
+/* Real N with step(N) = limit, in (lo, hi], by bisection (step falls with N). */
+static double step_root(const struct exact *e, double limit, double lo, double hi)
+{
+	int k;
+
+	for (k = 0; k < 60; k++) {
+		double mid = 0.5 * (lo + hi), dn = mid, sum = exact_sd(e, dn) + exact_sd(e, dn + 1);
+		double step = sum > 0 ? e->b / (dn * (dn + 1) * sum) : 0;
+
+		if (step <= limit)
+			hi = mid;
+		else
+			lo = mid;
+	}
+	return hi;
+}
+
+/*
+ * The continuous count of an exact rule: the real N at which its quantity
+ * crosses the threshold, so that the count is its ceiling.  A smooth
+ * function of v-bar and c-bar, which is what BCa needs (the count itself is
+ * a step function).  +inf when not met, NaN when undefined.  Clamped into
+ * (count - 1, count] so that rounding never disagrees with the count.
+ */
+double hc_rules_exact_real(const struct rules_config *cfg, int rule, double vbar, double cbar,
+			   size_t m, double periods_per_year)
+{
+	struct exact e;
+	size_t n;
+	double x = NAN, lo, hi;
+	int got;
+
+	if (m == 0 && cbar < 0)
+		return NAN;
+	exact_init(&e, vbar, cbar, m, periods_per_year);
+	got = exact_count(cfg, rule, &e, &n);
+	if (got < 0)
+		return NAN;
+	if (got == 0)
+		return INFINITY;
+	hi = (double)n;
+	lo = hi - 1;
+	switch (rule) {
+	case RULES_NEAR_FLOOR:
+		x = e.b / (((1 + cfg->near_floor_x) * (1 + cfg->near_floor_x) - 1) * e.cbar);
+		break;
+	case RULES_TRACKING_ERROR: {
+		double inv_m = e.m ? 1.0 / (double)e.m : 0.0;
+
+		x = e.b > 0 ? 1.0 / (inv_m + cfg->te_budget * cfg->te_budget / e.b) : 1.0;
+		break;
+	}
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING: {
+		double si = universe_sd(&e), prem = rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium
+			: cfg->lend_premium, k = 1 + cfg->index_cost / prem, limit = k * k * si * si;
+
+		x = limit > e.a ? e.b / (limit - e.a) : hi;
+		break;
+	}
+	case RULES_MARGINAL:
+		x = step_root(&e, cfg->marginal_eps, lo > 0 ? lo : 0, hi);
+		break;
+	case RULES_NEXT_HOLDING:
+		x = step_root(&e, cfg->holding_cost * universe_sd(&e) / cfg->premium, lo > 0 ? lo : 0, hi);
+		break;
+	}
+	if (!(x > lo))
+		x = lo + 1e-9;
+	if (!(x <= hi))
+		x = hi;
+	return x;
+}
+
+static int cmp_double(const void *a, const void *b)
+{
+	double x = *(const double *)a, y = *(const double *)b;
+
+	return (x > y) - (x < y);
+}
+
+/* The count at order statistic ceil(B alpha) of sorted real counts (inf =
+ * not met = NaN). */
+static double bca_count(const double *sorted, size_t nrep, double alpha)
+{
+	double k = ceil((double)nrep * alpha);
+	size_t i = k < 1 ? 0 : k > (double)nrep ? nrep - 1 : (size_t)k - 1;
+	double x = sorted[i];
+
+	if (!isfinite(x))
+		return NAN;
+	return ceil(x) < 1 ? 1 : ceil(x);
+}
+
+/*
+ * BCa interval (Efron, 1987, "Better Bootstrap Confidence Intervals",
+ * Journal of the American Statistical Association 82(397)) of one exact
+ * rule's continuous count: bias correction z0 from the share of replicates
+ * below the estimate (ties count half), acceleration a from the
+ * delete-a-block jackknife values (Kuensch, 1989), endpoints at the
+ * replicate quantiles Phi(z0 + (z0 + z)/(1 - a (z0 + z))) for z = z(0.05),
+ * z(0.95); counts are their ceilings.  *z0 and *acc report what was used.
+ */
+static void bca_rule(const struct rules_config *cfg, int rule, const double *vbar, const double *cbar,
+		     size_t nrep, const double *jv, const double *jc, size_t nj, double vhat, double chat,
+		     size_t m, double ppy, double *work, struct rule_result *res)
+{
+	double est = hc_rules_exact_real(cfg, rule, vhat, chat, m, ppy), less = 0, eq = 0, p, z0, acc = 0;
+	double num = 0, den = 0, jmean = 0, zl = gsl_cdf_ugaussian_Pinv(0.05), zh = -zl, al, ah;
+	size_t k, met = 0;
+	int finite = 1;
+
+	for (k = 0; k < nrep; k++) {
+		double x = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, ppy);
+
+		work[k] = isnan(x) ? INFINITY : x;   /* undefined in a replicate: never met there */
+		met += isfinite(work[k]) != 0;
+		less += work[k] < est;
+		eq += work[k] == est;
+	}
+	p = (less + 0.5 * eq) / (double)nrep;
+	p = fmin(fmax(p, 0.5 / (double)nrep), 1 - 0.5 / (double)nrep);
+	z0 = gsl_cdf_ugaussian_Pinv(p);
+	for (k = 0; k < nj; k++) {
+		double x = hc_rules_exact_real(cfg, rule, jv[k], jc[k], m, ppy);
+
+		finite &= isfinite(x) != 0;
+		jmean += x;
+	}
+	if (finite && nj > 1) {
+		jmean /= (double)nj;
+		for (k = 0; k < nj; k++) {
+			double d = jmean - hc_rules_exact_real(cfg, rule, jv[k], jc[k], m, ppy);
+
+			num += d * d * d;
+			den += d * d;
+		}
+		acc = den > 0 ? num / (6 * pow(den, 1.5)) : 0;
+	}
+	al = gsl_cdf_ugaussian_P(z0 + (z0 + zl) / (1 - acc * (z0 + zl)));
+	ah = gsl_cdf_ugaussian_P(z0 + (z0 + zh) / (1 - acc * (z0 + zh)));
+	qsort(work, nrep, sizeof *work, cmp_double);
+	res->bootstrapped = 1;
+	res->replicates = nrep;
+	res->replicates_met = met;
+	res->count_p05 = bca_count(work, nrep, al);
+	res->count_p50 = bca_count(work, nrep, 0.5);
+	res->count_p95 = bca_count(work, nrep, ah);
+	if (res->met && !res->note[0] &&
+	    ((!isnan(res->count_p05) && (double)res->count < res->count_p05) ||
+	     (!isnan(res->count_p95) && (double)res->count > res->count_p95)))
+		snprintf(res->note, sizeof res->note,
+			 "the BCa interval excludes the estimate: the replicates lean %s of it (bias correction "
+			 "z0 = %.2f, acceleration %.3f)", z0 > 0 ? "below" : "above", z0, acc);
+}
+
+int hc_rules_bootstrap_exact_bca(const struct rules_config *cfg, const double *vbar, const double *cbar,
+				 size_t nrep, const double *jv, const double *jc, size_t nj, double vhat,
+				 double chat, size_t m, double periods_per_year, struct rule_result *res,
+				 size_t nres, struct hc_error *err)
+{
+	double *work;
+	size_t j;
+
+	if (nrep == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	work = hc_malloc(nrep * sizeof *work);
+	if (!work)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", nrep);
+	for (j = 0; j < nres; j++)
+		if ((RULES_FLAG(res[j].rule) & RULES_EXACT_MASK) && res[j].defined)
+			bca_rule(cfg, res[j].rule, vbar, cbar, nrep, jv, jc, nj, vhat, chat, m,
+				 periods_per_year, work, &res[j]);
+	hc_free(work);
+	return HC_OK;
+}
+
+/*
+ * Studentized (bootstrap-t) interval on the log of the continuous count
+ * (Efron & Tibshirani, 1993, An Introduction to the Bootstrap, ch. 12, and
+ * Hall, 1988, Annals of Statistics 16(3), for its second-order accuracy):
+ * t_k = (log theta*_k - log theta-hat) / se*_k with each replicate's own
+ * delta-method standard error from the per-period series q_t and s2_t of
+ * its periods (hc_bootstrap_period_series), so that a replicate that
+ * missed the sample's large shocks has both a low estimate and a low
+ * standard error -- the link a percentile interval loses under fat tails.
+ * Interval: exp(log theta-hat - t_(0.95) se, log theta-hat - t_(0.05) se).
+ */
+static double log_se(const struct rules_config *cfg, int rule, double vbar, double cbar, size_t m,
+		     double ppy, size_t t, const double *q, const double *s2, const size_t *idx, size_t bw)
+{
+	double th = hc_rules_exact_real(cfg, rule, vbar, cbar, m, ppy), hv = 1e-6 * fabs(vbar), hc = 1e-6 * fabs(cbar);
+	double dv, dc, k1, k2, ga, gb, mq = 0, ms = 0, sqq = 0, sss = 0, sqs = 0, dm = (double)m, dt = (double)t;
+	size_t i;
+
+	if (!isfinite(th) || !(hv > 0) || !(hc > 0))
+		return NAN;
+	dv = (log(hc_rules_exact_real(cfg, rule, vbar + hv, cbar, m, ppy)) -
+	      log(hc_rules_exact_real(cfg, rule, vbar - hv, cbar, m, ppy))) / (2 * hv);
+	dc = (log(hc_rules_exact_real(cfg, rule, vbar, cbar + hc, m, ppy)) -
+	      log(hc_rules_exact_real(cfg, rule, vbar, cbar - hc, m, ppy))) / (2 * hc);
+	if (!isfinite(dv) || !isfinite(dc))
+		return NAN;
+	k1 = dt / ((dt - 1) * dm);
+	k2 = dt / ((dt - 1) * dm * (dm - 1));
+	ga = dv * k1 - dc * k2;   /* d log theta / d mean(q) */
+	gb = dc * k2;             /* d log theta / d mean(s2) */
+	for (i = 0; i < t; i++) {
+		size_t p = idx ? idx[i] : i;
+
+		mq += q[p];
+		ms += s2[p];
+	}
+	mq /= dt;
+	ms /= dt;
+	/* Long-run variance of the linearised series g_i = ga q + gb s2 with
+	 * Bartlett weights (Newey & West, 1987, Econometrica 55(3)) up to lag
+	 * bw - 1: dependence in the squares (volatility clustering) widens it. */
+	{
+		double lrv = 0;
+		size_t lag;
+
+		for (lag = 0; lag < bw && lag < t; lag++) {
+			double c = 0, wgt = lag == 0 ? 1.0 : 2.0 * (1.0 - (double)lag / (double)bw);
+
+			for (i = lag; i < t; i++) {
+				size_t p = idx ? idx[i] : i, p0 = idx ? idx[i - lag] : i - lag;
+
+				c += (ga * (q[p] - mq) + gb * (s2[p] - ms)) * (ga * (q[p0] - mq) + gb * (s2[p0] - ms));
+			}
+			lrv += wgt * c;
+		}
+		(void)sqq;
+		(void)sss;
+		(void)sqs;
+		return sqrt(fmax(lrv, 0) / (dt * dt));
+	}
+}
+
+int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct bootstrap_base *b,
+			       const struct bootstrap_options *bopt, size_t block_length, const double *vbar,
+			       const double *cbar, size_t nrep, double vhat, double chat, double periods_per_year,
+			       struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t t = b->t, m = b->m, j, k, *idx = NULL;
+	double *q = NULL, *s2 = NULL, *tk = NULL, *cnt = NULL, *se = NULL;
+	int status = HC_OK;
+
+	if (nrep == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	q = hc_malloc(t * sizeof *q);
+	s2 = hc_malloc(t * sizeof *s2);
+	idx = hc_malloc(t * sizeof *idx);
+	tk = hc_malloc(nrep * sizeof *tk);
+	cnt = hc_malloc(nrep * sizeof *cnt);
+	se = hc_malloc(nrep * RULES_COUNT * sizeof *se);
+	if (!q || !s2 || !idx || !tk || !cnt || !se) {
+		status = hc_error(err, HC_ENOMEM, "out of memory for the studentized bootstrap");
+		goto cleanup;
+	}
+	hc_bootstrap_period_series(b, q, s2);
+	for (k = 0; k < nrep; k++) {
+		if ((status = hc_bootstrap_indices(bopt->kind, t, block_length, bopt->seed, k, idx, err)) != HC_OK)
+			goto cleanup;
+		for (j = 0; j < nres; j++)
+			se[k * RULES_COUNT + res[j].rule] = (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
+				? log_se(cfg, res[j].rule, vbar[k], cbar[k], m, periods_per_year, t, q, s2, idx, block_length) : NAN;
+	}
+	for (j = 0; j < nres; j++) {
+		int rule = res[j].rule;
+		double est, se0, lo, hi, tl, th;
+		size_t met = 0, n = 0;
+
+		if (!(RULES_FLAG(rule) & RULES_EXACT_MASK) || !res[j].defined)
+			continue;
+		est = hc_rules_exact_real(cfg, rule, vhat, chat, m, periods_per_year);
+		se0 = log_se(cfg, rule, vhat, chat, m, periods_per_year, t, q, s2, NULL, block_length);
+		for (k = 0; k < nrep; k++) {
+			double x = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, periods_per_year);
+			double s = se[k * RULES_COUNT + rule];
+
+			cnt[k] = isnan(x) ? INFINITY : x;
+			met += isfinite(cnt[k]) != 0;
+			/* a replicate not met, or without a standard error, lies beyond every other */
+			tk[n++] = isfinite(x) && s > 0 ? (log(x) - log(est)) / s : INFINITY;
+		}
+		qsort(cnt, nrep, sizeof *cnt, cmp_double);
+		res[j].bootstrapped = 1;
+		res[j].replicates = nrep;
+		res[j].replicates_met = met;
+		res[j].count_p50 = bca_count(cnt, nrep, 0.5);
+		if (!isfinite(est) || !(se0 > 0)) {
+			res[j].count_p05 = bca_count(cnt, nrep, 0.05);
+			res[j].count_p95 = bca_count(cnt, nrep, 0.95);
+			continue;
+		}
+		qsort(tk, n, sizeof *tk, cmp_double);
+		tl = tk[(size_t)fmax(ceil(0.05 * (double)n) - 1, 0)];
+		th = tk[(size_t)fmax(ceil(0.95 * (double)n) - 1, 0)];
+		lo = isfinite(th) ? exp(log(est) - th * se0) : 0;
+		hi = exp(log(est) - tl * se0);
+		res[j].count_p05 = ceil(lo) < 1 ? 1 : ceil(lo);
+		{
+			double nmax = m ? (double)m : (double)RULES_UNBOUNDED_MAX;
+
+			res[j].count_p95 = ceil(hi) > nmax ? NAN : fmax(ceil(hi), 1);
+		}
+		if (res[j].met && !res[j].note[0] &&
+		    ((double)res[j].count < res[j].count_p05 ||
+		     (!isnan(res[j].count_p95) && (double)res[j].count > res[j].count_p95)))
+			snprintf(res[j].note, sizeof res[j].note,
+				 "the studentized interval excludes the estimate: the replicates' t-statistics lie "
+				 "to one side of 0 (from %.2f to %.2f)", tl, th);
+	}
+cleanup:
+	hc_free(q);
+	hc_free(s2);
+	hc_free(idx);
+	hc_free(tk);
+	hc_free(cnt);
+	hc_free(se);
+	return status;
+}
+
 /* ---- report ------------------------------------------------------------- */
 
 static const struct { const char *key, *title; int style; } rule_columns[] = {

@@ -996,6 +996,35 @@ static void test_rules_alexeev_tapon_matches_enumeration(void **state)
 	hc_universe_free(u);
 }
 
+/* The continuous count behind the intervals: its ceiling is the count, for
+ * every exact rule, over a grid of averages (the count itself checked by
+ * the brute scans above). */
+static void test_rules_exact_real_ceiling_is_count(void **state)
+{
+	static const int rules[] = { RULES_NEAR_FLOOR, RULES_MARGINAL, RULES_NEXT_HOLDING, RULES_TRACKING_ERROR,
+				     RULES_STATMAN_BORROWING, RULES_STATMAN_LENDING };
+	struct rules_config cfg;
+	size_t r, i, j, n;
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	for (r = 0; r < sizeof rules / sizeof rules[0]; r++)
+		for (i = 0; i < 25; i++)
+			for (j = 0; j < 9; j++) {
+				double v = 0.0031 + 0.0047 * (double)i, c = v * (0.021 + 0.083 * (double)j);
+				size_t m = j % 3 == 0 ? 0 : 40 + 173 * j;
+				double x = hc_rules_exact_real(&cfg, rules[r], v, c, m, 12);
+				int got = hc_rules_exact_count(&cfg, rules[r], v, c, m, 12, &n);
+
+				if (got == 1)
+					assert_true(ceil(x) == (double)n);
+				else if (got == 0)
+					assert_true(isinf(x));
+				else
+					assert_true(isnan(x));
+			}
+}
+
 static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
 {
 	struct rules_config cfg;
@@ -1106,8 +1135,12 @@ static void test_rules_report_contract_columns(void **state)
 	assert_int_equal(t->cells[4].integer, 17);
 	assert_int_equal(t->cells[5].kind, REPORT_INT);
 	assert_int_equal(t->cells[5].integer, 20);
-	assert_int_equal(t->cells[6].kind, REPORT_TEXT);
+	/* JSON never mixes numbers with text: no value (null) with the reason
+	 * "not met" that CSV and text show, and a note saying why */
+	assert_int_equal(t->cells[6].kind, REPORT_NONE);
 	assert_string_equal(t->cells[6].text, "not met");
+	assert_int_equal(t->cells[12].kind, REPORT_TEXT);
+	assert_non_null(strstr(t->cells[12].text, "upper end is null"));
 	assert_int_equal(t->cells[10].integer, 21);
 	assert_int_equal(t->cells[11].integer, 18);
 	/* band (row 2): not evaluated, so no count, no interval, a note */
@@ -1151,6 +1184,7 @@ int main(void)
 		cmocka_unit_test(test_rules_parse_list_and_config),
 		cmocka_unit_test(test_rules_evaluate_selects_and_reports_sampled_needs),
 		cmocka_unit_test(test_rules_statman_reproduces_30_and_40),
+		cmocka_unit_test(test_rules_exact_real_ceiling_is_count),
 		cmocka_unit_test(test_rules_alexeev_tapon_matches_enumeration),
 		cmocka_unit_test(test_rules_report_contract_columns),
 		cmocka_unit_test(test_rules_per_period_units),

@@ -113,6 +113,35 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 		  const struct bootstrap_options *opt, struct hc_error *err);
 void hc_bootstrap_result_free(struct bootstrap_result *r);
 
+/*
+ * Data-driven expected block length for the stationary bootstrap: Politis &
+ * White (2004), Econometric Reviews 23(1), with the correction of Patton,
+ * Politis & White (2009), Econometric Reviews 28(4).
+ * hc_bootstrap_politis_white gives it (a real >= 1) for one series x[0..n-1];
+ * hc_bootstrap_auto_block_length takes the larger of the lengths of the two
+ * per-period series the averages are means of (the squared equal-weight
+ * row sum and the row sum of squares), rounded, within 1..T.
+ */
+double hc_bootstrap_politis_white(const double *x, size_t n);
+int hc_bootstrap_auto_block_length(const struct bootstrap_base *b, size_t *length,
+				   struct hc_error *err);
+
+/*
+ * Delete-a-block jackknife (Kuensch, 1989): the averages (per period) with
+ * each of the floor(T/L) non-overlapping blocks of L periods left out in
+ * turn, into *vbar and *cbar (allocated, *n of each; the caller frees with
+ * hc_free).  O(T L^2 + T^2) with the Gram matrix, O(M T) otherwise.  For the
+ * acceleration of BCa intervals (rules.h).  HC_EUSAGE with fewer than two
+ * blocks.
+ */
+int hc_bootstrap_jackknife(const struct bootstrap_base *b, size_t block_length, double **vbar,
+			   double **cbar, size_t *n, struct hc_error *err);
+
+/* The per-period series the averages are (nearly) means of, from the
+ * centred data: q[t] = sum_i x_ti^2 and s2[t] = (sum_i x_ti)^2, so that
+ * V = sum_t q_t/(T-1) and V + C = sum_t s2_t/(T-1).  q and s2 hold T. */
+void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, double *s2);
+
 #ifdef __cplusplus
 }
 #endif

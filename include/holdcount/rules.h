@@ -296,6 +296,41 @@ int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 			  size_t nres, struct hc_error *err);
 
 /*
+ * The continuous count of an exact rule (the real N at which its quantity
+ * crosses the threshold; the count is its ceiling): +inf when not met, NaN
+ * when undefined.
+ */
+double hc_rules_exact_real(const struct rules_config *cfg, int rule, double vbar, double cbar,
+			   size_t m, double periods_per_year);
+
+/*
+ * BCa intervals (Efron, 1987, JASA 82(397)) for the exact rules among
+ * res[0..nres-1]: the continuous count's bootstrap distribution over the
+ * replicates' averages vbar[k], cbar[k] (k < nrep), bias-corrected by the
+ * estimate's (vhat, chat) position in it and accelerated by the jackknife
+ * averages jv[k], jc[k] (k < nj; hc_bootstrap_jackknife); count_p05 and
+ * count_p95 are the ceilings of the BCa endpoints for a 90% interval,
+ * count_p50 the replicates' median count.  An interval that excludes the
+ * estimate says why in the note.  Allocates nrep doubles.
+ */
+int hc_rules_bootstrap_exact_bca(const struct rules_config *cfg, const double *vbar, const double *cbar,
+				 size_t nrep, const double *jv, const double *jc, size_t nj, double vhat,
+				 double chat, size_t m, double periods_per_year, struct rule_result *res,
+				 size_t nres, struct hc_error *err);
+
+/*
+ * Studentized (bootstrap-t) intervals for the exact rules on the log of the
+ * continuous count, each replicate (regenerated from bopt's kind and seed
+ * and block_length, as hc_bootstrap_run drew it) studentized by its own
+ * delta-method standard error from the per-period series of b.  Same
+ * fields as hc_rules_bootstrap_exact_bca.
+ */
+int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct bootstrap_base *b,
+			       const struct bootstrap_options *bopt, size_t block_length, const double *vbar,
+			       const double *cbar, size_t nrep, double vhat, double chat, double periods_per_year,
+			       struct rule_result *res, size_t nres, struct hc_error *err);
+
+/*
  * Set res's interval from per replicate counts: count[k] is the count of
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
  * The one place every interval (enough, rolling, report) is computed.

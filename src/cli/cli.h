@@ -449,7 +449,8 @@ struct cli_rules {
 	int policy_at;             /* --policy-at: 0 upper end of the interval, 1 the estimate */
 	size_t bootstrap;
 	int bootstrap_kind;
-	size_t block_length;
+	size_t block_length;       /* 0: Politis & White's data-driven length */
+	int interval;              /* 0 studentized, 1 BCa, 2 percentile */
 	int bootstrap_sampled;
 	size_t bootstrap_paths;
 };

@@ -37,6 +37,7 @@ struct enough_opts {
 
 static const char *const kind_choices[] = { "block", "stationary", NULL };
 static const char *const policy_at_choices[] = { "upper", "estimate", NULL };
+static const char *const interval_choices[] = { "studentized", "bca", "percentile", NULL };
 
 #define RUL(f) offsetof(struct cli_rules, f)
 static const struct cli_option rules_own[] = {
@@ -80,9 +81,13 @@ static const struct cli_option rules_own[] = {
 	  "bootstrap replicates for the count's interval (0: no interval)", NULL, "1000" },
 	{ "bootstrap-kind", 0, CLI_CHOICE, RUL(bootstrap_kind), NULL,
 	  "resample periods in moving blocks (Kuensch 1989) or stationary blocks (Politis & Romano 1994)",
-	  kind_choices, "block" },
+	  kind_choices, "stationary" },
 	{ "block-length", 0, CLI_COUNT, RUL(block_length), "L",
-	  "block length (mean length for stationary) in periods", NULL, "round(T^(1/3))" },
+	  "block length (mean length for stationary) in periods", NULL,
+	  "data-driven, Politis & White 2004 with Patton, Politis & White 2009" },
+	{ "interval", 0, CLI_CHOICE, RUL(interval), NULL,
+	  "exact rules' interval: studentized on the log count (bootstrap-t, Hall 1988), bias-corrected and "
+	  "accelerated (Efron 1987) or plain percentiles", interval_choices, "studentized" },
 	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
 	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled): re-samples portfolios per replicate, costly",
 	  NULL, NULL },
@@ -97,6 +102,7 @@ void cli_rules_init(struct cli_rules *r)
 {
 	memset(r, 0, sizeof *r);
 	r->bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
+	r->bootstrap_kind = BOOTSTRAP_STATIONARY;
 	r->bootstrap_paths = ENOUGH_DEFAULT_BOOTSTRAP_PATHS;
 }
 
@@ -303,7 +309,9 @@ struct enough_run {
 	double ppy;
 	int annualised;
 	int bootstrapped;
+	int interval;                /* 0 studentized, 1 BCa, 2 percentile */
 	size_t replicates, block_length;
+	int auto_block;
 	int kind;
 	uint64_t seed;
 	size_t paths;
@@ -371,15 +379,20 @@ static int add_fields(struct report *r, const struct enough_run *e)
 
 static int add_notes(struct report *r, const struct enough_run *e)
 {
-	char text[300];
+	char text[700];
 	int bad = 0;
 
 	if (e->bootstrapped) {
 		snprintf(text, sizeof text,
-			 "count p05/p50/p95: percentiles of each rule's count over %zu %s-bootstrap replicates of "
-			 "the periods (block length %zu); \"not met\" where the percentile reaches replicates "
-			 "in which the rule is not met%s",
-			 e->replicates, hc_bootstrap_kind_name(e->kind), e->block_length,
+			 "count p05/p95: %s 90%% interval of each rule's count (p50: the median) over %zu "
+			 "%s-bootstrap replicates of the periods (%sblock length %zu%s); empty (null) where it "
+			 "reaches replicates in which the rule is not met%s",
+			 e->interval == 0 ? "the exact rules' studentized (bootstrap-t on the log count, Hall 1988) and "
+			 "the sampled rules' percentile" : e->interval == 1 ? "the exact rules' bias-corrected and "
+			 "accelerated (BCa, Efron 1987) and the sampled rules' percentile" : "the percentile",
+			 e->replicates, hc_bootstrap_kind_name(e->kind),
+			 e->kind == BOOTSTRAP_STATIONARY ? "expected " : "", e->block_length,
+			 e->auto_block ? ", data-driven: Politis & White 2004, Patton, Politis & White 2009" : "",
 			 e->sampled_bootstrapped ? "" : "; sampled rules (band, lag-share, alexeev-tapon-sampled) have an interval only with --bootstrap-sampled");
 		bad |= hc_report_add_note(r, text);
 	} else if (e->no_interval)
@@ -742,6 +755,8 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 	bo.seed = d->smp->seed;
 	bo.threads = (int)d->smp->threads;
 	rc = hc_bootstrap_base_alloc(&b, u, &err);
+	if (rc == HC_OK && !bo.block_length)
+		rc = hc_bootstrap_auto_block_length(b, &bo.block_length, &err);
 	if (rc == HC_OK) {
 		if (d->stages) {
 			char what[96];
@@ -754,7 +769,22 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 		rc = hc_bootstrap_run(&br, b, &bo, &err);
 		cli_progress_finish(&prog);
 	}
-	if (rc == HC_OK)
+	if (rc == HC_OK && d->rul->interval == 0)
+		rc = hc_rules_bootstrap_exact_t(cfg, b, &bo, bo.block_length, br->vbar, br->cbar, br->replicates,
+						e->vbar, e->cbar, u->periods_per_year, res, nres, &err);
+	else if (rc == HC_OK && d->rul->interval == 1) {
+		double *jv = NULL, *jc = NULL;
+		size_t nj = 0;
+
+		/* The jackknife needs two blocks; with fewer, no acceleration. */
+		if (u->t / bo.block_length >= 2)
+			rc = hc_bootstrap_jackknife(b, bo.block_length, &jv, &jc, &nj, &err);
+		if (rc == HC_OK)
+			rc = hc_rules_bootstrap_exact_bca(cfg, br->vbar, br->cbar, br->replicates, jv, jc, nj,
+							  e->vbar, e->cbar, u->m, u->periods_per_year, res, nres, &err);
+		hc_free(jv);
+		hc_free(jc);
+	} else if (rc == HC_OK)
 		rc = hc_rules_bootstrap_exact(cfg, br->vbar, br->cbar, br->replicates, u->m,
 					   u->periods_per_year, res, nres, &err);
 	for (size_t j = 0; rc == HC_OK && j < nres; j++)
@@ -763,6 +793,8 @@ static int run_bootstrap(const struct data_run *d, const struct universe *u,
 				 "replicate; alexeev-tapon-sampled has one with --bootstrap-sampled");
 	if (rc == HC_OK) {
 		e->bootstrapped = 1;
+		e->interval = d->rul->interval;
+		e->auto_block = d->rul->block_length == 0;
 		e->replicates = br->replicates;
 		e->block_length = br->block_length;
 		e->kind = br->kind;
