@@ -253,6 +253,32 @@ cleanup:
 	return rc;
 }
 
+/* With gaps left and no repair, warn when the pairwise-complete matrix the
+ * averages come from is not positive semi-definite -- curve and enough
+ * refuse that matrix, so describe must not print its averages silently. */
+static int psd_note(const char *cmd, const struct universe *u, struct report *r)
+{
+	struct covmatrix *cm = NULL;
+	struct hc_error err;
+	double lmin;
+	char text[400];
+	int rc;
+
+	hc_error_clear(&err);
+	if ((rc = hc_covmatrix_from_universe(u, &cm, &err)) == HC_OK)
+		rc = hc_covmatrix_min_eigenvalue(cm->a, cm->m, &lmin, &err);
+	hc_covmatrix_free(cm);
+	if (rc)
+		return cli_fail(cmd, &err);
+	if (lmin >= 0)
+		return HC_OK;
+	snprintf(text, sizeof text,
+		 "warning: the pairwise-complete covariance matrix is not positive semi-definite (smallest "
+		 "eigenvalue %.4g per period); these averages come from it as it is, and curve and enough refuse "
+		 "it without --repair-psd", lmin);
+	return hc_report_add_note(r, text) ? HC_ENOMEM : HC_OK;
+}
+
 int cmd_describe(int argc, char **argv)
 {
 	struct describe_opts o;
@@ -301,6 +327,8 @@ int cmd_describe(int argc, char **argv)
 		goto cleanup;
 	}
 	r = hc_report_alloc();
+	if (r && u->has_missing && !ps.repaired && (rc = psd_note("describe", u, r)) != HC_OK)
+		goto cleanup;
 	if (!r || build(r, u, &mo, &ps)) {
 		hc_error(&err, HC_ENOMEM, "out of memory building the report");
 		rc = cli_fail("describe", &err);

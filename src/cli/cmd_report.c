@@ -681,7 +681,7 @@ static void md_curve(FILE *fp, const struct run *r)
 {
 	static const char *const cols[][2] = {
 		{ "n", "holdings" }, { "expected_sd", "sqrt E[var] a year" },
-		{ "diversifiable_share", "diversifiable share" }, { "expected_tracking_error", "tracking error a year" },
+		{ "diversifiable_share", "share above the floor" }, { "expected_tracking_error", "RMS tracking error a year" },
 		{ "sampled_mean_sd", "mean sd (random)" }, { "sd_p05", "sd 5%" }, { "sd_p95", "sd 95%" },
 		{ "z_score", "z (sampled vs exact)" },
 	};
