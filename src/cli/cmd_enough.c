@@ -340,8 +340,8 @@ static int add_fields(struct report *r, const struct enough_run *e)
 			bad |= hc_report_add_text(r, "input", "input", e->ps && e->ps->repaired
 				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
 				  "positive semi-definite matrix, for every rule but lag-share"
-				: e->paths ? "return history with gaps; pairwise-complete covariances, from which the band "
-					    "rule draws its portfolios"
+				: e->paths ? "return history with gaps; pairwise-complete covariances, from which the band and "
+					    "alexeev-tapon-sampled rules draw their portfolios"
 				: "return history with gaps; pairwise-complete covariances");
 	} else if (e->matrix) {
 		bad |= hc_report_add_text(r, "universe", "universe", e->matrix);
