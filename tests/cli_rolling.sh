@@ -3,7 +3,7 @@
 #
 #  1. One window over the whole demo sample prints, digit for digit, the
 #     averages `describe` prints and the counts and bootstrap percentiles
-#     `enough --rules exact` prints (same seed).
+#     `enough --rules exact` prints with the same resampling (moving blocks of round(T^(1/3)), percentile intervals; same seed).
 #  2. On an invented universe with late listings and delistings, every
 #     window's securities, averages, floor and near-floor and
 #     tracking-error counts agree with numpy (np.cov, ddof=1) on the
@@ -26,7 +26,7 @@ say() { echo "FAIL: $*"; fail=1; }
 D=$SRC/data/demo-universe.csv
 "$HC" rolling "$D" --window 240 --bootstrap 200 --format json > "$TMP/roll.json"
 "$HC" describe "$D" --format json > "$TMP/describe.json"
-"$HC" enough "$D" --rules exact --bootstrap 200 --format json > "$TMP/enough.json"
+"$HC" enough "$D" --rules exact --bootstrap 200 --bootstrap-kind block --block-length 6 --interval percentile --format json > "$TMP/enough.json"
 "$PY" - "$TMP" <<'PY' || fail=1
 import json, sys
 d = sys.argv[1]
