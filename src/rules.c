@@ -965,6 +965,19 @@ static double count_percentile(const size_t *c, size_t n, size_t pct)
 	return c[k - 1] == 0 ? NAN : (double)c[k - 1];
 }
 
+/* Say why, when a percentile interval does not hold its own estimate. */
+static void note_excluded(struct rule_result *res)
+{
+	if (!res->met || res->note[0])
+		return;
+	if ((!isnan(res->count_p05) && (double)res->count < res->count_p05) ||
+	    (!isnan(res->count_p95) && (double)res->count > res->count_p95))
+		snprintf(res->note, sizeof res->note,
+			 "interval excludes the estimate: replicate counts lean %s it (resampling re-estimates "
+			 "the means%s)", (double)res->count < res->count_p05 ? "above" : "below",
+			 RULES_FLAG(res->rule) & RULES_SAMPLED_MASK ? "; fewer, fresh portfolios" : "");
+}
+
 void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 {
 	size_t k;
@@ -980,6 +993,7 @@ void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 	res->count_p05 = count_percentile(count, nrep, 5);
 	res->count_p50 = count_percentile(count, nrep, 50);
 	res->count_p95 = count_percentile(count, nrep, 95);
+	note_excluded(res);
 }
 
 int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
