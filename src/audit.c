@@ -757,7 +757,7 @@ static const struct {
 	{ "sd_percentile", "sd rank (share)", REPORT_STYLE_FIXED4 },
 	{ "weighted_random_sd", "sqrt E[var], own weights", REPORT_STYLE_PERCENT },
 	{ "passed", "passed", REPORT_STYLE_PLAIN },
-	{ "failed_rules", "failed rules", REPORT_STYLE_PLAIN },
+	{ "failed_rules", "limits failed", REPORT_STYLE_PLAIN },
 	{ "equal_weight_random_sd", "random sd, equal weights", REPORT_STYLE_PERCENT },
 	{ "max_weight_id", "largest id", REPORT_STYLE_PLAIN },
 	{ "risk_holdings", "in universe", REPORT_STYLE_PLAIN },
@@ -879,7 +879,7 @@ static int screens_table(struct report *rep, const struct audit_result *a)
 {
 	static const char *const keys[] = { "fund", "screen", "part", "passed", "figure", "test", "limit", "issuer", "required" };
 	static const int styles[] = { 0, 0, 0, 0, REPORT_STYLE_PERCENT, 0, REPORT_STYLE_PERCENT, 0, 0 };
-	struct report_table *t = hc_report_add_table(rep, "screens", "screens (from memory of the published texts: verify against the current text)");
+	struct report_table *t = hc_report_add_table(rep, "screens", "legal weight limits (from memory of the published texts: verify against the current text)");
 	size_t f, p, r;
 
 	if (!t || add_columns(t, keys, styles, 9) != HC_OK)
