@@ -111,6 +111,17 @@ static int build(struct report *r, const struct moments *mo, const struct curve 
 	t = r->tables[r->ntables - 1];
 	if (plain)
 		plain_styles(t);
+	/* An average sd above 300% a year is almost always a unit mistake
+	 * (common practice, as in enough). */
+	if (annualised && mo->average_variance * p > 9.0) {
+		char text[300];
+
+		snprintf(text, sizeof text,
+			 "implausible: the average sd is %.4g%% a year, above 300%%; are the inputs in percent "
+			 "(variances in percent squared?) rather than decimals?", 100 * sqrt(mo->average_variance * p));
+		if (hc_report_add_note(r, text))
+			return HC_ENOMEM;
+	}
 	return hc_report_add_cautions(r);
 }
 
