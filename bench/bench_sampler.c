@@ -38,6 +38,7 @@ int main(int argc, char **argv)
 	struct sampler_result *r = NULL;
 	struct hc_error err;
 	size_t *sizes, ns, j;
+	struct hc_source src;
 	double t0, t1, t2, t3;
 
 	if (argc != 6) {
@@ -59,7 +60,8 @@ int main(int argc, char **argv)
 	opt.paths = strtoul(argv[2], NULL, 10);
 	opt.seed = strtoull(argv[3], NULL, 10);
 	opt.threads = atoi(argv[4]);
-	if (opt.paths && (hc_sampler_run(&r, u, sizes, ns, &opt, &err) ||
+	hc_source_init_series(&src, u);
+	if (opt.paths && (hc_sampler_run(&r, &src, sizes, ns, &opt, &err) ||
 			  hc_sampler_summarise(c, r, &err)))
 		goto fail;
 	t3 = now();

@@ -41,6 +41,8 @@
 #include "holdcount/memory.h"
 #include "holdcount/rules.h"
 #include "holdcount/sampler.h"
+#include "holdcount/source.h"
+#include "holdcount/covmatrix.h"
 #include "holdcount/universe.h"
 
 #define FACTOR_VAR 0.0016
@@ -281,7 +283,13 @@ int main(int argc, char **argv)
 		so.seed = seed;
 		so.threads = 1;
 		so.periods_per_year = 12;
-		if (hc_rules_sampled_matrix(&sc, a, m, &so, vtrue, ctrue, tr, &nt, NULL, &err) != HC_OK) {
+		struct covmatrix tcm = { 0 };
+		struct hc_source tsrc;
+
+		tcm.m = m;
+		tcm.a = a;
+		hc_source_init_matrix(&tsrc, &tcm, 0);
+		if (hc_rules_sampled(&sc, &tsrc, &so, vtrue, ctrue, tr, &nt, NULL, &err) != HC_OK) {
 			fprintf(stderr, "coverage_sim: %s\n", err.message);
 			return 1;
 		}
@@ -300,6 +308,7 @@ int main(int argc, char **argv)
 
 				for (trial = 0; trial < strials; trial++) {
 					struct universe u;
+					struct hc_source usrc;
 					struct bootstrap_base *b = NULL;
 					struct bootstrap_options bo;
 					struct rule_result rr[3];
@@ -321,7 +330,8 @@ int main(int argc, char **argv)
 					free(w);
 					so.paths = 200;
 					so.seed = seed + trial;
-					if (hc_rules_sampled(&sc, &u, &so, vhat, chat, rr, &nr, NULL, &err) != HC_OK) {
+					hc_source_init_series(&usrc, &u);
+					if (hc_rules_sampled(&sc, &usrc, &so, vhat, chat, rr, &nr, NULL, &err) != HC_OK) {
 						fprintf(stderr, "coverage_sim: %s\n", err.message);
 						return 1;
 					}

@@ -118,6 +118,18 @@ if ! skipped fuzz; then
 		echo "test.sh: $target: $runs executions in ${FUZZ_SECONDS}s, corpus $seeds -> $after, no failure" >&2
 	done <build-fuzz/tests/fuzz/targets.txt
 	unset ASAN_OPTIONS UBSAN_OPTIONS
+	# The command-line fuzzer (tests/fuzz/cmdline_fuzz.sh): `report` and the
+	# other commands on hostile command lines under a memory limit, with a
+	# fresh seed each time (printed, to reproduce), on the ASan+UBSan build
+	# when the sanitize stage made one; at most 60 s.
+	if [ "$FUZZ_SECONDS" -gt 0 ]; then
+		cli_bin=$ROOT/build-fuzz/holdcount
+		[ -x "$ROOT/build-sanitize/holdcount" ] && cli_bin=$ROOT/build-sanitize/holdcount
+		[ -x "$cli_bin" ] || cmake --build build-fuzz -j "$JOBS" --target holdcount >/dev/null
+		cli_secs=$FUZZ_SECONDS; [ "$cli_secs" -le 60 ] || cli_secs=60
+		bash tests/fuzz/cmdline_fuzz.sh "$cli_bin" "$cli_secs" "$(date +%s)" || {
+			echo "test.sh: the command-line fuzzer found a failure (above)" >&2; exit 1; }
+	fi
 fi
 
 stage "all stages passed"

@@ -30,6 +30,7 @@ struct source {
 	const struct universe *history;  /* names dropped ids in messages; may be NULL */
 	const char *name;                /* the file, for messages */
 	double pp;                       /* variances are multiplied by this */
+	const struct hc_source *view;    /* the source it was made from (random portfolios) */
 };
 
 /* The screens' limits, from memory of the published texts (audit.h). */
@@ -553,8 +554,7 @@ static int percentiles(struct audit_result *a, const struct source *src,
 	so.periods_per_year = pp;
 	so.progress = opt->progress;
 	so.progress_ctx = opt->progress_ctx;
-	rc = src->u ? hc_sampler_run(&sr, src->u, sizes, nsizes, &so, err)
-		    : hc_sampler_run_matrix(&sr, src->cm->a, src->cm->m, sizes, nsizes, &so, err);
+	rc = hc_sampler_run(&sr, src->view, sizes, nsizes, &so, err);
 	if (rc != HC_OK)
 		goto cleanup;
 	for (f = 0; f < a->nfunds; f++) {
@@ -672,46 +672,61 @@ cleanup:
 	return rc;
 }
 
-int hc_audit_run(struct audit_result **out, const struct holdings *h,
-	      const struct universe *u, const struct moments *mo,
-	      const struct audit_options *opt, struct hc_error *err)
+/* The private view above, from the public source: complete series give
+ * funds' risk from their returns, a matrix (or the pairwise-complete
+ * covariances of series with gaps) from w'Aw. */
+static const char *input_text(const struct hc_source *s)
 {
-	struct source src = { u, NULL, u, u->source, u->periods_per_year > 0 ? u->periods_per_year : 1 };
-	int rc;
-
-	*out = NULL;
-	if ((rc = check_options(opt, err)) != HC_OK)
-		return rc;
-	if (u->t < 2)
-		return hc_error(err, HC_EDATA, "the universe '%s' has %zu periods, expected at least 2",
-				u->source ? u->source : "", u->t);
-	if ((rc = run(out, h, &src, mo, opt, err)) != HC_OK)
-		return rc;
-	(*out)->t = u->t;
-	(*out)->input = "return history";
-	(*out)->annualised = 1;
-	return HC_OK;
+	switch (s->kind) {
+	case HC_SOURCE_SERIES:
+		return "return history";
+	case HC_SOURCE_PAIRWISE:
+		return s->psd.repaired ? "return history with gaps; risk from its pairwise-complete covariances, "
+					 "repaired to the nearest positive semi-definite matrix"
+				       : "return history with gaps; risk from its pairwise-complete covariances";
+	}
+	return "covariance matrix";
 }
 
-int hc_audit_run_matrix(struct audit_result **out, const struct holdings *h,
-		     const struct audit_matrix *am, const struct moments *mo,
-		     const struct audit_options *opt, struct hc_error *err)
+int hc_audit_run(struct audit_result **out, const struct holdings *h,
+		 const struct hc_source *s, const struct moments *mo,
+		 const struct audit_options *opt, struct hc_error *err)
 {
-	struct source src = { NULL, am->cm, am->history, am->source, am->periods_per_year };
+	struct source src = { NULL, NULL, s->u, s->name, s->periods_per_year > 0 ? s->periods_per_year : 1, s };
+	struct hc_source view;
+	struct moments own;
 	int rc;
 
 	*out = NULL;
-	if (!(am->periods_per_year > 0) || (!am->annualised && am->periods_per_year != 1))
-		return hc_error(err, HC_EUSAGE, "periods per year %g: expected a positive number, 1 when not annualised",
-				am->periods_per_year);
-	if (am->cm->m < 2)
-		return hc_error(err, HC_EDATA, "the covariance matrix '%s' has %zu securities, expected at least 2",
-				am->source ? am->source : "", am->cm->m);
+	if (!mo) {
+		/* Funds' risk from a matrix compares with that matrix's averages. */
+		view = *s;
+		if (hc_source_matrix(s))
+			view.kind = HC_SOURCE_MATRIX;
+		if ((rc = hc_moments_from_source(&own, &view, err)) != HC_OK)
+			return rc;
+		mo = &own;
+	}
+	if ((rc = check_options(opt, err)) != HC_OK)
+		return rc;
+	if (hc_source_has_series(s)) {
+		src.u = s->u;
+		if (s->u->t < 2)
+			return hc_error(err, HC_EDATA, "the universe '%s' has %zu periods, expected at least 2",
+					s->name ? s->name : "", s->u->t);
+	} else if (hc_source_matrix(s)) {
+		src.cm = s->cm;
+		if (s->cm->m < 2)
+			return hc_error(err, HC_EDATA, "the covariance matrix '%s' has %zu securities, expected at least 2",
+					s->name ? s->name : "", s->cm->m);
+	} else
+		return hc_error(err, HC_EUSAGE, "'%s' has gaps and no pairwise-complete matrix to take funds' risk from "
+				"(build the source with need_matrix)", s->name ? s->name : "");
 	if ((rc = run(out, h, &src, mo, opt, err)) != HC_OK)
 		return rc;
-	(*out)->t = am->periods;
-	(*out)->input = am->input ? am->input : "covariance matrix";
-	(*out)->annualised = am->annualised;
+	(*out)->t = hc_source_periods(s);
+	(*out)->input = input_text(s);
+	(*out)->annualised = s->annualised;
 	return HC_OK;
 }
 

@@ -13,13 +13,14 @@
 #include "holdcount/bootstrap.h"
 
 #include <math.h>
-#include <omp.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include <gsl/gsl_cblas.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
+#include "holdcount/threads.h"
 #include "holdcount/sampler.h"
 
 void hc_bootstrap_options_init(struct bootstrap_options *opt)
@@ -47,11 +48,11 @@ const char *hc_bootstrap_kind_name(int kind)
 }
 
 /* The replicate's stream generator is splitmix64 itself (Steele, Lea &
- * Flood, 2014, OOPSLA; hc_sampler_splitmix64): its output passes BigCrush, and
+ * Flood, 2014, OOPSLA; hc_paths_splitmix64): its output passes BigCrush, and
  * a replicate needs only about T draws. */
 static uint64_t splitmix64(uint64_t *state)
 {
-	return hc_sampler_splitmix64(state);
+	return hc_paths_splitmix64(state);
 }
 
 /* Replicate rep's stream state from (seed, rep): the replicate number is
@@ -59,10 +60,7 @@ static uint64_t splitmix64(uint64_t *state)
  * streams. */
 static uint64_t replicate_state(uint64_t seed, size_t rep)
 {
-	uint64_t a = (uint64_t)rep, s;
-
-	s = seed ^ splitmix64(&a);
-	return splitmix64(&s);
+	return hc_paths_stream(seed, (uint64_t)rep);
 }
 
 /* Uniform integer in 0..n-1 without modulo bias: reject the low
@@ -159,13 +157,18 @@ int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *
 		return hc_error(err, HC_EDATA, "the bootstrap needs at least two securities and two periods");
 	if (hc_mul_size(u->m, u->t, &mt) || hc_mul_size(u->t, u->t, &tt))
 		return hc_error(err, HC_ENOMEM, "universe too large for the bootstrap");
+	if ((status = hc_memory_check(u->max_bytes, (double)mt * 8.0,
+				      ((double)mt + (u->t <= u->m ? (double)tt : 0.0) + (double)u->t) * 8.0, err,
+				      "the bootstrap's centred copy of %zu x %zu returns", u->m, u->t)))
+		return status;
 	b = hc_calloc(1, sizeof *b);
 	if (!b)
 		return hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
+	b->max_bytes = u->max_bytes;
 	b->m = u->m;
 	b->t = u->t;
 	b->rowsum = hc_calloc(u->t, sizeof *b->rowsum);
-	b->xc = hc_malloc(mt * sizeof *b->xc);
+	b->xc = hc_mallocarray(mt, sizeof *b->xc);
 	if (!b->rowsum || !b->xc) {
 		status = hc_error(err, HC_ENOMEM, "out of memory for the bootstrap");
 		goto cleanup;
@@ -175,7 +178,7 @@ int hc_bootstrap_base_alloc(struct bootstrap_base **out, const struct universe *
 		for (t = 0; t < u->t; t++)
 			b->rowsum[t] += b->xc[i * u->t + t];
 	if (u->t <= u->m) {
-		b->gram = hc_malloc(tt * sizeof *b->gram);
+		b->gram = hc_mallocarray(tt, sizeof *b->gram);
 		if (!b->gram) {
 			status = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu Gram matrix", u->t, u->t);
 			goto cleanup;
@@ -280,87 +283,102 @@ static void run_one(const struct bootstrap_base *b, const struct bootstrap_optio
 	hc_bootstrap_moments(b, w, &r->vbar[rep], &r->cbar[rep]);
 }
 
+/* One thread's indices and period weights. */
+struct bws {
+	size_t *idx;
+	double *w;
+};
+
+struct bjob {
+	const struct bootstrap_base *b;
+	const struct bootstrap_options *opt;
+	size_t l;
+	struct bootstrap_result *r;
+};
+
+static int bjob_ws_init(void *job, void *ws)
+{
+	const struct bjob *j = job;
+	struct bws *w = ws;
+
+	w->idx = hc_mallocarray(j->b->t, sizeof *w->idx);
+	w->w = hc_mallocarray(j->b->t, sizeof *w->w);
+	if (w->idx && w->w)
+		return 0;
+	hc_free(w->idx);
+	hc_free(w->w);
+	return -1;
+}
+
+static void bjob_ws_release(void *ws)
+{
+	struct bws *w = ws;
+
+	hc_free(w->idx);
+	hc_free(w->w);
+}
+
+static void bjob_path(void *job, void *ws, size_t rep)
+{
+	const struct bjob *j = job;
+	struct bws *w = ws;
+
+	run_one(j->b, j->opt, j->l, rep, w->idx, w->w, j->r);
+}
+
 int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base *b,
 		  const struct bootstrap_options *opt, struct hc_error *err)
 {
 	struct bootstrap_result *r = NULL;
-	size_t l, **idx = NULL, nb = 0, done = 0;
-	double **w = NULL;
-	int nthreads, th, status = HC_OK, stop = 0;
-	long long rep;
+	struct bjob job;
+	size_t l;
+	int status, nthreads;
 
 	*out = NULL;
 	if (opt->replicates == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (opt->replicates > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates is more than the %u allowed",
+				opt->replicates, HC_BOOTSTRAP_MAX_REPLICATES);
 	if (!hc_bootstrap_kind_name(opt->kind))
 		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", opt->kind);
 	l = opt->block_length ? opt->block_length : hc_bootstrap_default_block_length(b->t);
 	if (l > b->t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: longer than the %zu periods", l, b->t);
-	nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads();
+	nthreads = hc_threads_usable(opt->threads, NULL);
+	/* Two averages per replicate and two t-long arrays per thread, with
+	 * the base's arrays still held. */
+	if ((status = hc_memory_check(b->max_bytes,
+				      ((double)b->m * (double)b->t + (b->gram ? (double)b->t * (double)b->t : 0.0)) * 8.0,
+				      (double)opt->replicates * 16.0 + (double)nthreads * (double)b->t * 16.0, err,
+				      "%zu bootstrap replicates", opt->replicates)))
+		return status;
 	r = hc_calloc(1, sizeof *r);
-	idx = hc_calloc((size_t)nthreads, sizeof *idx);
-	w = hc_calloc((size_t)nthreads, sizeof *w);
-	if (!r || !idx || !w)
-		goto nomem;
+	if (!r || !(r->vbar = hc_mallocarray(opt->replicates, sizeof *r->vbar)) ||
+	    !(r->cbar = hc_mallocarray(opt->replicates, sizeof *r->cbar))) {
+		hc_bootstrap_result_free(r);
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap replicates", opt->replicates);
+	}
 	r->replicates = opt->replicates;
 	r->block_length = l;
 	r->kind = opt->kind;
-	r->vbar = hc_malloc(opt->replicates * sizeof *r->vbar);
-	r->cbar = hc_malloc(opt->replicates * sizeof *r->cbar);
-	if (!r->vbar || !r->cbar)
-		goto nomem;
-	for (nb = 0; nb < (size_t)nthreads; nb++) {
-		idx[nb] = hc_malloc(b->t * sizeof **idx);
-		w[nb] = hc_malloc(b->t * sizeof **w);
-		if (!idx[nb] || !w[nb]) {
-			nb++;
-			goto nomem;
-		}
+	job.b = b;
+	job.opt = opt;
+	job.l = l;
+	job.r = r;
+	{
+		struct hc_paths p = {
+			opt->replicates, opt->threads, 4, &job, sizeof(struct bws), bjob_ws_init, bjob_ws_release,
+			bjob_path, opt->progress, opt->progress_ctx, "bootstrap's", "bootstrap", "replicates"
+		};
+		status = hc_paths_run(&p, err);
 	}
-#pragma omp parallel for schedule(dynamic, 4) num_threads(nthreads) private(th)
-	for (rep = 0; rep < (long long)opt->replicates; rep++) {
-		int halt;
-
-		th = omp_get_thread_num();
-#pragma omp atomic read
-		halt = stop;
-		if (halt)
-			continue;
-		run_one(b, opt, l, (size_t)rep, idx[th], w[th], r);
-#pragma omp atomic
-		done++;
-		if (th == 0 && opt->progress) {
-			size_t d;
-
-#pragma omp atomic read
-			d = done;
-			if (opt->progress(opt->progress_ctx, d, opt->replicates)) {
-#pragma omp atomic write
-				stop = 1;
-			}
-		}
-	}
-	if (stop) {
-		status = hc_error(err, HC_EINTERRUPT, "bootstrap stopped after %zu of %zu replicates", done, opt->replicates);
-		goto cleanup;
+	if (status != HC_OK) {
+		hc_bootstrap_result_free(r);
+		return status;
 	}
 	*out = r;
-	r = NULL;
-	goto cleanup;
-nomem:
-	status = hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap replicates", opt->replicates);
-cleanup:
-	if (idx)
-		for (size_t k = 0; k < nb; k++)
-			hc_free(idx[k]);
-	if (w)
-		for (size_t k = 0; k < nb; k++)
-			hc_free(w[k]);
-	hc_free(idx);
-	hc_free(w);
-	hc_bootstrap_result_free(r);
-	return status;
+	return HC_OK;
 }
 
 /* ---- data-driven block length and the block jackknife ------------------ */

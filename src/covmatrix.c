@@ -3,6 +3,7 @@
  * and repaired to the nearest positive semi-definite matrix.
  */
 #include "holdcount/covmatrix.h"
+#include "holdcount/universe.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -74,15 +75,10 @@ static int header_field(struct reader *r, const struct csvread_field *f,
 	rc = hc_universe_check_id(r->name, f->line, f->column, f->text, f->len, err);
 	if (rc != HC_OK)
 		return rc;
-	if (c->m == r->cap_ids) {
-		size_t nc = r->cap_ids ? r->cap_ids * 2 : 64;
-
-		ids = hc_reallocarray(c->ids, nc, sizeof *ids);
-		if (!ids)
-			return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
-		c->ids = ids;
-		r->cap_ids = nc;
-	}
+	ids = hc_grow(c->ids, &r->cap_ids, c->m, sizeof *ids, 64);
+	if (!ids)
+		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
+	c->ids = ids;
 	c->ids[c->m] = hc_strndup(f->text, f->len);
 	if (!c->ids[c->m])
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", r->name);
@@ -154,6 +150,13 @@ static int data_field(struct reader *r, const struct csvread_field *f,
 	if (hc_csvread_parse_number(f->text, f->len, &v, NULL) != 0)
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: expected a number, found '%s'",
 				r->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
+	/* The square of the largest return a universe may hold
+	 * (HC_UNIVERSE_MAX_RETURN): beyond it the spread's fourth powers
+	 * overflow, and no real covariance is so large. */
+	if (fabs(v) > HC_UNIVERSE_MAX_RETURN * HC_UNIVERSE_MAX_RETURN)
+		return hc_error(err, HC_EDATA, "%s:%zu:%zu: expected a covariance of at most %g in size, found '%s'",
+				r->name, f->line, f->column, HC_UNIVERSE_MAX_RETURN * HC_UNIVERSE_MAX_RETURN,
+				hc_csvread_quote(f->text, f->len, q));
 	if (i == j && !(v > 0))
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: variance of '%s' is %s; expected a positive number on the diagonal",

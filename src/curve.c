@@ -204,16 +204,11 @@ struct sizes_buf {
 
 static int push(struct sizes_buf *b, size_t x)
 {
-	size_t *nv;
+	size_t *nv = hc_grow(b->v, &b->cap, b->n, sizeof *nv, 32);
 
-	if (b->n == b->cap) {
-		size_t cap = b->cap ? 2 * b->cap : 32;
-		nv = hc_reallocarray(b->v, cap, sizeof *nv);
-		if (!nv)
-			return -1;
-		b->v = nv;
-		b->cap = cap;
-	}
+	if (!nv)
+		return -1;
+	b->v = nv;
 	b->v[b->n++] = x;
 	return 0;
 }

@@ -49,6 +49,9 @@ const char *hc_status_name(int code)
 	case HC_ENOMEM: return "out of memory";
 	case HC_EINTERNAL: return "internal error";
 	case HC_EINTERRUPT: return "interrupted";
+	case HC_ERESOURCE: return "resource limit";
+	case HC_ERENDER: return "renderer failed";
+	case HC_EINSUFFICIENT: return "insufficient data";
 	default: return "unknown error";
 	}
 }

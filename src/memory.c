@@ -55,6 +55,23 @@ void *hc_malloc(size_t size)
 	return p;
 }
 
+int hc_add_size(size_t a, size_t b, size_t *out)
+{
+	if (b > SIZE_MAX - a)
+		return -1;
+	*out = a + b;
+	return 0;
+}
+
+void *hc_mallocarray(size_t n, size_t size)
+{
+	size_t total;
+
+	if (hc_mul_size(n, size, &total))
+		return NULL;
+	return hc_malloc(total);
+}
+
 void *hc_calloc(size_t n, size_t size)
 {
 	void *p;
@@ -87,6 +104,23 @@ void *hc_reallocarray(void *p, size_t n, size_t size)
 	if (hc_mul_size(n, size, &total))
 		return NULL;
 	return hc_realloc(p, total);
+}
+
+void *hc_grow(void *p, size_t *cap, size_t n, size_t size, size_t first)
+{
+	size_t nc;
+	void *q;
+
+	if (n < *cap)
+		return p;
+	if (*cap == 0)
+		nc = first ? first : 1;
+	else if (hc_mul_size(*cap, 2, &nc))
+		return NULL;
+	q = hc_reallocarray(p, nc, size);
+	if (q)
+		*cap = nc;
+	return q;
 }
 
 void hc_free(void *p)

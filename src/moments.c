@@ -13,6 +13,7 @@
  * spread formula's cancellation (E[X^2] - E[X]^2) starts from accurate sums.
  */
 #include "holdcount/moments.h"
+#include "holdcount/source.h"
 
 #include <math.h>
 #include <stdint.h>
@@ -133,7 +134,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 		double v = a[i * m + i];
 		if (!isfinite(v) || v <= 0)
 			return hc_error(err, HC_EDATA,
-					"covariance matrix: variance of security %zu is %g, expected a positive number",
+					"the covariances: the variance in row %zu is %g, expected a positive number",
 					i + 1, v);
 	}
 	for (i = 0; i < m; i++) {
@@ -145,7 +146,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 			c = a[i * m + j];
 			if (!isfinite(a[i * m + j]))
 				return hc_error(err, HC_EDATA,
-						"covariance matrix: entry (%zu, %zu) is not a finite number",
+						"the covariances: the entry in row %zu, column %zu is not a finite number",
 						i + 1, j + 1);
 			r += c;
 			Q += c * c;
@@ -162,8 +163,7 @@ static int sums_from_matrix(struct moments *mo, const double *a, size_t m,
 	return HC_OK;
 }
 
-int hc_moments_from_matrix(struct moments *mo, const double *a, size_t m,
-			struct hc_error *err)
+static int from_matrix(struct moments *mo, const double *a, size_t m, struct hc_error *err)
 {
 	memset(mo, 0, sizeof *mo);
 	if (m < 2)
@@ -184,6 +184,9 @@ int hc_moments_from_summary(struct moments *mo, double vbar, double cbar,
 		return hc_error(err, HC_EUSAGE,
 				"average covariance %g is not a number at most the average variance %g",
 				cbar, vbar);
+	if (m > HC_MOMENTS_MAX_SECURITIES)
+		return hc_error(err, HC_EUSAGE, "%zu securities is more than the %u a summary may name", m,
+				HC_MOMENTS_MAX_SECURITIES);
 	if (m == 1)
 		return hc_error(err, HC_EUSAGE,
 				"a universe of 1 security has nothing to diversify; expected at least 2");
@@ -222,7 +225,7 @@ static int centred_copy(const struct universe *u, double **out, struct hc_error 
 	double *xc, mean, ss;
 	char buf[32];
 
-	if (hc_mul_size(u->m, u->t, &n) || !(xc = hc_malloc(n * sizeof *xc)))
+	if (hc_mul_size(u->m, u->t, &n) || !(xc = hc_mallocarray(n, sizeof *xc)))
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu x %zu returns", u->m, u->t);
 	for (i = 0; i < u->m; i++) {
 		const double *x = u->x + i * t;
@@ -272,7 +275,7 @@ static int route_gram(struct moments *mo, const struct universe *u, const double
 
 	s = hc_calloc(t, sizeof *s);
 	z = hc_calloc(t, sizeof *z);
-	g = hc_malloc(t * t * sizeof *g);
+	g = hc_mallocarray(t * t, sizeof *g);
 	if (!s || !z || !g) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu Gram matrix", t, t);
 		goto cleanup;
@@ -375,9 +378,9 @@ static int route_matrix(struct moments *mo, const struct universe *u, const doub
 	char buf[32];
 	int rc = HC_OK;
 
-	v = hc_malloc(m * sizeof *v);
+	v = hc_mallocarray(m, sizeof *v);
 	r = hc_calloc(m, sizeof *r);
-	if (!v || !r || hc_mul_size(b, m, &n) || !(blk = hc_malloc(n * sizeof *blk))) {
+	if (!v || !r || hc_mul_size(b, m, &n) || !(blk = hc_mallocarray(n, sizeof *blk))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the covariance blocks of %zu securities", m);
 		goto cleanup;
 	}
@@ -461,7 +464,7 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 	char b1[32], b2[32];
 
 	*out = NULL;
-	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
+	if (hc_mul_size(m, m, &n) || !(a = hc_mallocarray(n, sizeof *a)))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	for (i = 0; i < m; i++) {
 		int rc = pair_cov(u, i, i, &cov, &vx, &vy, err);
@@ -515,7 +518,7 @@ static int full_matrix(const struct universe *u, const double *xc, double **out,
 	double *a;
 
 	*out = NULL;
-	if (hc_mul_size(m, m, &n) || !(a = hc_malloc(n * sizeof *a)))
+	if (hc_mul_size(m, m, &n) || !(a = hc_mallocarray(n, sizeof *a)))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	syrk(CblasNoTrans, m, t, 1.0 / (double)(t - 1), xc, t, a, m);
 	for (i = 0; i < m; i++)
@@ -633,4 +636,31 @@ int hc_moments_from_universe(struct moments *mo, const struct universe *u,
 	if (!u->has_missing)
 		route = u->t < u->m ? MOMENTS_ROUTE_GRAM : MOMENTS_ROUTE_MATRIX;
 	return hc_moments_from_universe_route(mo, u, route, err);
+}
+
+void hc_moments_summary_averages(double variance, double covariance, double sd, double correlation,
+				 double *vbar, double *cbar)
+{
+	*vbar = !isnan(variance) ? variance : sd * sd;
+	*cbar = !isnan(covariance) ? covariance : correlation * *vbar;
+}
+
+int hc_moments_from_source(struct moments *mo, const struct hc_source *src, struct hc_error *err)
+{
+	int rc;
+
+	switch (src->kind) {
+	case HC_SOURCE_SERIES:
+		return hc_moments_from_universe(mo, src->u, err);
+	case HC_SOURCE_PAIRWISE:
+		return src->psd.repaired ? from_matrix(mo, src->cm->a, src->cm->m, err)
+					 : hc_moments_from_universe(mo, src->u, err);
+	case HC_SOURCE_MATRIX:
+		rc = from_matrix(mo, src->cm->a, src->cm->m, err);
+		if (rc)
+			hc_error_prefix(err, src->name);
+		return rc;
+	}
+	memset(mo, 0, sizeof *mo);
+	return hc_error(err, HC_EUSAGE, "unknown data source kind %d", src->kind);
 }

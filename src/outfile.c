@@ -94,6 +94,36 @@ static int is_stdout(const char *path)
 	return !path || strcmp(path, "-") == 0;
 }
 
+/*
+ * The descriptor a name stands for when it names one the process already
+ * has open: /dev/stdout, /dev/stderr, /dev/fd/N, /proc/self/fd/N; else -1.
+ * Such a name is written through that descriptor (its offset and O_APPEND
+ * shared, as a shell's `-o /dev/stdout >> log` expects), never reopened
+ * (a reopened /proc/self/fd/1 starts at offset 0) and never replaced.
+ */
+static int inherited_fd(const char *path)
+{
+	const char *digits = NULL;
+	char *end;
+	long n;
+
+	if (strcmp(path, "/dev/stdout") == 0)
+		return STDOUT_FILENO;
+	if (strcmp(path, "/dev/stderr") == 0)
+		return STDERR_FILENO;
+	if (strncmp(path, "/dev/fd/", 8) == 0)
+		digits = path + 8;
+	else if (strncmp(path, "/proc/self/fd/", 14) == 0)
+		digits = path + 14;
+	if (!digits || !*digits || strspn(digits, "0123456789") != strlen(digits))
+		return -1;
+	errno = 0;
+	n = strtol(digits, &end, 10);
+	if (errno || n > INT_MAX || fcntl((int)n, F_GETFD) < 0)
+		return -1;
+	return (int)n;
+}
+
 /* "DIR/.BASE.tmp-XXXXXX" for path "DIR/BASE" (or ".BASE.tmp-XXXXXX"). */
 static char *temp_template(const char *path)
 {
@@ -129,7 +159,7 @@ static int follow_links(const char *path, char **out)
 		const char *slash;
 		ssize_t n;
 
-		if (lstat(cur, &st) != 0 || !S_ISLNK(st.st_mode)) {
+		if (inherited_fd(cur) >= 0 || lstat(cur, &st) != 0 || !S_ISLNK(st.st_mode)) {
 			*out = cur;
 			return 0;
 		}
@@ -249,8 +279,48 @@ static void set_final_mode(int fd, const char *path)
 	(void)fchmod(fd, 0666 & ~mask);
 }
 
+/*
+ * Open a target that is not a regular file where it is: a descriptor the
+ * process has (/dev/stdout ...) through a duplicate, a device or a FIFO
+ * with open(2), without O_CREAT or O_TRUNC.  Replacing such a name would
+ * turn /dev/null into a regular file (as root) or cut a FIFO's reader off;
+ * what was written to it cannot be taken back, as with standard output.
+ */
+static int open_in_place(struct outfile *of, const char *path, int fd, struct hc_error *err)
+{
+	struct stat st;
+	int e;
+
+	if (fd >= 0)
+		fd = fcntl(fd, F_DUPFD_CLOEXEC, 3);
+	else
+		fd = open(of->path, O_WRONLY | O_NOCTTY | O_CLOEXEC);
+	if (fd < 0) {
+		e = errno;
+		hc_free(of->path);
+		memset(of, 0, sizeof *of);
+		return hc_error(err, HC_EIO, "cannot open '%s' for writing: %s", path, strerror(e));
+	}
+	if (fstat(fd, &st) == 0 && S_ISDIR(st.st_mode)) {
+		close(fd);
+		hc_free(of->path);
+		memset(of, 0, sizeof *of);
+		return hc_error(err, HC_EIO, "cannot write '%s': %s", path, strerror(EISDIR));
+	}
+	of->in_place = 1;
+	of->fp = fdopen(fd, "w");
+	if (!of->fp) {
+		close(fd);
+		hc_free(of->path);
+		memset(of, 0, sizeof *of);
+		return hc_error(err, HC_ENOMEM, "out of memory opening '%s'", path);
+	}
+	return HC_OK;
+}
+
 int hc_outfile_open(struct outfile *of, const char *path, struct hc_error *err)
 {
+	struct stat st;
 	int fd, e;
 
 	memset(of, 0, sizeof *of);
@@ -267,6 +337,18 @@ int hc_outfile_open(struct outfile *of, const char *path, struct hc_error *err)
 		goto nomem;
 	if (e)
 		return hc_error(err, HC_EIO, "cannot follow the symbolic link '%s': %s", path, strerror(e));
+	/* One rule for every output: a regular file (or a new name) is
+	 * replaced atomically; anything else is written where it is. */
+	if ((fd = inherited_fd(of->path)) >= 0)
+		return open_in_place(of, path, fd, err);
+	if (stat(of->path, &st) == 0 && !S_ISREG(st.st_mode)) {
+		if (S_ISDIR(st.st_mode)) {
+			hc_free(of->path);
+			memset(of, 0, sizeof *of);
+			return hc_error(err, HC_EIO, "cannot write '%s': %s", path, strerror(EISDIR));
+		}
+		return open_in_place(of, path, -1, err);
+	}
 	of->tmp = temp_template(of->path);
 	if (!of->tmp)
 		goto nomem;
@@ -337,6 +419,19 @@ int hc_outfile_commit(struct outfile *of, struct hc_error *err)
 			return hc_error(err, HC_EIO, "cannot write to standard output: %s", strerror(errno));
 		return HC_OK;
 	}
+	if (of->in_place) {
+		if (fflush(of->fp) != 0 || ferror(of->fp))
+			e = errno ? errno : EIO;
+		if (fclose(of->fp) != 0 && !e)
+			e = errno;
+		of->fp = NULL;
+		if (e)
+			hc_error(err, HC_EIO, "cannot write '%s': %s", of->path, strerror(e));
+		hc_free(of->path);
+		of->path = NULL;
+		of->in_place = 0;
+		return e ? HC_EIO : HC_OK;
+	}
 	if (fflush(of->fp) != 0 || ferror(of->fp))
 		e = errno ? errno : EIO;
 	else if (fsync(fileno(of->fp)) != 0)
@@ -373,6 +468,7 @@ void hc_outfile_abort(struct outfile *of)
 	if (of->fp)
 		fclose(of->fp);
 	of->fp = NULL;
+	of->in_place = 0;
 	if (of->tmp) {
 		unlink(of->tmp);
 		pending_remove(of->tmp);

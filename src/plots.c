@@ -1487,6 +1487,10 @@ static int spawn(pid_t *pid, const char *gnuplot, const char *dir, const char *s
 	rc = rc ? rc : posix_spawn(pid, gnuplot, &fa, NULL, argv, env);
 	posix_spawn_file_actions_destroy(&fa);
 	hc_free(env);
+	/* A process limit (RLIMIT_NPROC, a pids limit) is not an i/o fault. */
+	if (rc == EAGAIN)
+		return hc_error(err, HC_ERESOURCE, "cannot start '%s' on '%s': %s (a process limit)", gnuplot,
+				script, strerror(rc));
 	if (rc)
 		return hc_error(err, HC_EIO, "cannot run '%s' on '%s': %s", gnuplot, script, strerror(rc));
 	return HC_OK;
@@ -1518,7 +1522,7 @@ int hc_plots_render(const char *gnuplot, const char *dir, const char *script, st
 		for (nl = msg; *nl; nl++)
 			if (*nl == '\n')
 				*nl = ' ';
-		return hc_error(err, HC_EINTERNAL, "gnuplot failed on '%s' (%s): %s", script,
+		return hc_error(err, HC_ERENDER, "gnuplot failed on '%s' (%s): %s", script,
 				WIFEXITED(status) ? (WEXITSTATUS(status) ? "non-zero exit" : "a warning")
 						  : "killed by a signal",
 				msg[0] ? msg : "no message");

@@ -84,14 +84,11 @@ static struct report_field *add_field(struct report *r, const char *key, const c
 	struct report_field *f;
 	char *k, *t;
 
-	if (r->nfields == r->cap_fields) {
-		size_t cap = r->cap_fields ? 2 * r->cap_fields : 16;
-		struct report_field *nf = hc_reallocarray(r->fields, cap, sizeof *nf);
-		if (!nf)
-			return NULL;
-		r->fields = nf;
-		r->cap_fields = cap;
-	}
+	struct report_field *nf = hc_grow(r->fields, &r->cap_fields, r->nfields, sizeof *nf, 16);
+
+	if (!nf)
+		return NULL;
+	r->fields = nf;
 	k = hc_strdup(key);
 	t = hc_strdup(title ? title : key);
 	if (!k || !t) {
@@ -408,6 +405,11 @@ static const char *format_text(char *buf, size_t size, const struct report_value
 	}
 }
 
+const char *hc_report_value_text(char *buf, size_t size, const struct report_value *v)
+{
+	return format_text(buf, size, v);
+}
+
 static int write_failed(struct hc_error *err)
 {
 	return hc_error(err, HC_EIO, "cannot write output: %s", strerror(errno ? errno : EIO));
@@ -547,18 +549,16 @@ static int write_text_table(FILE *fp, const struct report_table *t)
 
 /* "- note", wrapped at REPORT_TEXT_WIDTH with continuation lines indented
  * under the text; a word longer than a line is left whole. */
-static void put_wrapped_note(FILE *fp, const char *note)
+void hc_report_wrap(FILE *fp, const char *text, size_t col, size_t indent, size_t width)
 {
-	const char *p = note;
-	size_t col = 2;
+	const char *p = text;
 
-	fputs("- ", fp);
 	while (*p) {
 		size_t word = strcspn(p, " ");
-		if (col > 2 && col + 1 + word > REPORT_TEXT_WIDTH) {
-			fputs("\n  ", fp);
-			col = 2;
-		} else if (col > 2) {
+		if (col > indent && col + 1 + word > width) {
+			fprintf(fp, "\n%*s", (int)indent, "");
+			col = indent;
+		} else if (col > indent) {
 			fputc(' ', fp);
 			col++;
 		}
@@ -569,6 +569,12 @@ static void put_wrapped_note(FILE *fp, const char *note)
 			p++;
 	}
 	fputc('\n', fp);
+}
+
+static void put_wrapped_note(FILE *fp, const char *note)
+{
+	fputs("- ", fp);
+	hc_report_wrap(fp, note, 2, 2, REPORT_TEXT_WIDTH);
 }
 
 static int write_text(FILE *fp, const struct report *r, struct hc_error *err)
@@ -805,23 +811,11 @@ static const char *json_key_clash(const struct report *r)
 	return NULL;
 }
 
-static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
+/* Print root onto fp with a final newline and free it (both JSON writers). */
+static int json_emit(FILE *fp, cJSON *root, struct hc_error *err)
 {
-	cJSON_Hooks hooks = { json_malloc, json_free };
-	cJSON *root;
-	const char *clash;
-	char *text;
+	char *text = cJSON_Print(root);
 
-	if ((clash = json_key_clash(r)))
-		return hc_error(err, HC_EINTERNAL, "JSON output names '%s' twice", clash);
-
-	/* Route cJSON through the project's allocator (fault injection reaches
-	 * it too).  Setting the hooks is idempotent. */
-	cJSON_InitHooks(&hooks);
-	root = json_report(r);
-	if (!root)
-		return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
-	text = cJSON_Print(root);
 	cJSON_Delete(root);
 	if (!text)
 		return hc_error(err, HC_ENOMEM, "out of memory printing the JSON output");
@@ -832,6 +826,162 @@ static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
 	return ferror(fp) ? write_failed(err) : HC_OK;
 }
 
+static int write_json(FILE *fp, const struct report *r, struct hc_error *err)
+{
+	cJSON_Hooks hooks = { json_malloc, json_free };
+	cJSON *root;
+	const char *clash;
+
+	if ((clash = json_key_clash(r)))
+		return hc_error(err, HC_EINTERNAL, "JSON output names '%s' twice", clash);
+
+	/* Route cJSON through the project's allocator (fault injection reaches
+	 * it too).  Setting the hooks is idempotent. */
+	cJSON_InitHooks(&hooks);
+	root = json_report(r);
+	if (!root)
+		return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
+	return json_emit(fp, root, err);
+}
+
+int hc_report_write_json_set(FILE *fp, const char *version, const char *const *keys,
+			     const struct report *const *reports, size_t n, struct hc_error *err)
+{
+	cJSON_Hooks hooks = { json_malloc, json_free };
+	cJSON *root, *item;
+	const char *clash;
+	size_t i;
+
+	for (i = 0; i < n; i++)
+		if (reports[i] && (clash = json_key_clash(reports[i])))
+			return hc_error(err, HC_EINTERNAL, "JSON output names '%s' twice", clash);
+	cJSON_InitHooks(&hooks);
+	root = cJSON_CreateObject();
+	if (!root || !json_put(root, "holdcount_version", cJSON_CreateString(version)))
+		goto nomem;
+	for (i = 0; i < n; i++) {
+		item = reports[i] ? json_report(reports[i]) : cJSON_CreateNull();
+		if (!json_put(root, keys[i], item))
+			goto nomem;
+	}
+	return json_emit(fp, root, err);
+nomem:
+	cJSON_Delete(root);
+	return hc_error(err, HC_ENOMEM, "out of memory building the JSON output");
+}
+
+/* ---- Markdown ----------------------------------------------------------- */
+
+static long col_of(const struct report_table *t, const char *key)
+{
+	size_t j;
+
+	for (j = 0; j < t->ncols; j++)
+		if (strcmp(t->cols[j].key, key) == 0)
+			return (long)j;
+	return -1;
+}
+
+void hc_report_md_value(FILE *fp, const struct report_value *v, int style)
+{
+	struct report_value w = *v;
+	char buf[64];
+	const char *s;
+
+	w.style = style;
+	for (s = format_text(buf, sizeof buf, &w); s && *s; s++)
+		fputs(*s == '|' ? "\\|" : (char[2]){ *s == '\n' ? ' ' : *s, 0 }, fp);
+}
+
+const struct report_value *hc_report_md_cell(const struct report_table *t, size_t row, const char *key)
+{
+	long j = col_of(t, key);
+	static const struct report_value none = { REPORT_NONE, 0, 0, 0, NULL };
+
+	return j < 0 ? &none : &t->cells[row * t->ncols + (size_t)j];
+}
+
+static int style_of(const struct report_table *t, const char *key)
+{
+	long j = col_of(t, key);
+
+	return j < 0 ? REPORT_STYLE_PLAIN : t->cols[j].style;
+}
+
+/* Numbers align right, words left: a column is numeric when every cell
+ * that holds something is a number. */
+static int numeric_column(const struct report_table *t, const char *key)
+{
+	long j = col_of(t, key);
+	size_t i;
+	int any = 0;
+
+	for (i = 0; j >= 0 && i < t->nrows; i++) {
+		int kind = t->cells[i * t->ncols + (size_t)j].kind;
+		if (kind == REPORT_TEXT || kind == REPORT_BOOL || t->cells[i * t->ncols + (size_t)j].text)
+			return 0;
+		any |= kind != REPORT_NONE;
+	}
+	return any;
+}
+
+void hc_report_md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
+			int (*keep)(const struct report_table *, size_t, const void *), const void *ctx)
+{
+	size_t i, j;
+
+	for (j = 0; j < ncols; j++)
+		fprintf(fp, "| %s ", cols[j][1]);
+	fputs("|\n", fp);
+	for (j = 0; j < ncols; j++)
+		fputs(j > 0 && numeric_column(t, cols[j][0]) ? "|--:" : "|:--", fp);
+	fputs("|\n", fp);
+	for (i = 0; i < t->nrows; i++) {
+		if (keep && !keep(t, i, ctx))
+			continue;
+		for (j = 0; j < ncols; j++) {
+			fputs("| ", fp);
+			hc_report_md_value(fp, hc_report_md_cell(t, i, cols[j][0]), style_of(t, cols[j][0]));
+			fputc(' ', fp);
+		}
+		fputs("|\n", fp);
+	}
+	fputc('\n', fp);
+}
+
+/* The whole report: fields as a list, each table under its title with
+ * every column, the notes as a list. */
+static int write_markdown(FILE *fp, const struct report *r, struct hc_error *err)
+{
+	const char *(*cols)[2];
+	size_t i, j;
+
+	errno = 0;
+	for (i = 0; i < r->nfields; i++) {
+		fprintf(fp, "- %s: ", r->fields[i].title);
+		hc_report_md_value(fp, &r->fields[i].value, r->fields[i].value.style);
+		fputc('\n', fp);
+	}
+	if (r->nfields)
+		fputc('\n', fp);
+	for (i = 0; i < r->ntables; i++) {
+		const struct report_table *t = r->tables[i];
+
+		if (!(cols = hc_calloc(t->ncols ? t->ncols : 1, sizeof *cols)))
+			return hc_error(err, HC_ENOMEM, "out of memory writing Markdown");
+		for (j = 0; j < t->ncols; j++) {
+			cols[j][0] = t->cols[j].key;
+			cols[j][1] = t->cols[j].title;
+		}
+		fprintf(fp, "### %s\n\n", t->title);
+		hc_report_md_table(fp, t, (const char *const (*)[2])cols, t->ncols, NULL, NULL);
+		hc_free(cols);
+	}
+	for (i = 0; i < r->nnotes; i++)
+		fprintf(fp, "- %s\n", r->notes[i]);
+	return ferror(fp) ? write_failed(err) : HC_OK;
+}
+
 static const struct report_writer writer_text = { "table", write_text };
 static const struct report_writer writer_csv = { "csv", write_csv };
 static const struct report_writer writer_json = { "json", write_json };
@@ -839,10 +989,12 @@ static const struct report_writer writer_json = { "json", write_json };
 const struct report_writer *const hc_report_writer_text = &writer_text;
 const struct report_writer *const hc_report_writer_csv = &writer_csv;
 const struct report_writer *const hc_report_writer_json = &writer_json;
+static const struct report_writer writer_markdown = { "markdown", write_markdown };
+const struct report_writer *const hc_report_writer_markdown = &writer_markdown;
 
 const struct report_writer *hc_report_writer_find(const char *name)
 {
-	static const struct report_writer *const all[] = { &writer_text, &writer_csv, &writer_json };
+	static const struct report_writer *const all[] = { &writer_text, &writer_csv, &writer_json, &writer_markdown };
 	size_t i;
 
 	for (i = 0; name && i < sizeof all / sizeof all[0]; i++)
@@ -870,4 +1022,21 @@ int hc_report_add_cautions(struct report *r)
 		if (hc_report_add_note(r, cautions[i]))
 			return HC_ENOMEM;
 	return HC_OK;
+}
+
+int hc_report_add_scale(struct report *r, double periods_per_year, int annualised)
+{
+	char text[200];
+	int rc;
+
+	if (annualised) {
+		rc = hc_report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
+		snprintf(text, sizeof text,
+			 "annualised: variances times %g, standard deviations times sqrt(%g)", periods_per_year,
+			 periods_per_year);
+	} else {
+		rc = hc_report_add_none(r, "periods_per_year", "periods per year");
+		snprintf(text, sizeof text, "not annualised: figures are on the scale of the inputs");
+	}
+	return rc ? rc : hc_report_add_text(r, "annualisation", "annualisation", text);
 }

@@ -27,6 +27,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/file.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -45,6 +46,7 @@ struct reportdir {
 	char *tmp;         /* temporary folder */
 	int force;
 	int committed;
+	int lock_fd;       /* the marker, flock'ed for as long as the folder is being written */
 };
 
 /* The signal handler's view: plain arrays, written before each file is
@@ -77,7 +79,9 @@ void hc_reportdir_unlink_pending(void)
 		return;
 	for (i = 0; i < sig_nnames; i++)
 		unlink(sig_join(sig_names[i]));
-	unlink(sig_join(REPORTDIR_MARKER));
+	unlink(sig_join(REPORTDIR_SIGNATURE));
+	unlink(sig_join(REPORTDIR_MARKER ".new"));
+	unlink(sig_join(REPORTDIR_MARKER));   /* last: a folder with it is still known to be ours */
 	rmdir(sig_tmp);
 }
 
@@ -99,43 +103,157 @@ static char *join(const char *a, const char *b)
 	return p;
 }
 
+/* ---- markers ------------------------------------------------------------------ */
+
+/*
+ * Which folders are provably the tool's own:
+ *   - a finished report holds REPORTDIR_SIGNATURE, whose first line is
+ *     REPORTDIR_SIGNATURE_TEXT; only such a folder (or an empty one) is
+ *     replaced by --force;
+ *   - a folder being written, or being removed, holds REPORTDIR_MARKER:
+ *     "holdcount-incomplete", then "pid P", "host H" and "boot B" lines
+ *     (B: the kernel's boot id).  Its writer holds an flock(2) on the
+ *     marker for as long as it works, so another run, in this process's
+ *     container or another on the same kernel (flock is the kernel's, not
+ *     a pid namespace's), sees a live folder as locked and leaves it
+ *     alone.  A marker nobody locks is a dead run's when its boot id is
+ *     this kernel's (whoever locked it is gone) or when the host is this
+ *     one and the boot id differs (the machine has restarted since);
+ *     otherwise (another machine sharing the volume) it is kept.
+ * The marker is written as MARKER.new, locked, then renamed into place, so
+ * a marker is never half-written; a folder holding nothing but an
+ * unlocked MARKER.new is a run killed while starting.
+ */
+static void read_line_file(const char *path, char *buf, size_t size)
+{
+	int fd = open(path, O_RDONLY | O_CLOEXEC);
+	ssize_t n = fd >= 0 ? read(fd, buf, size - 1) : -1;
+	char *nl;
+
+	if (fd >= 0)
+		close(fd);
+	buf[n > 0 ? n : 0] = '\0';
+	if ((nl = strchr(buf, '\n')) != NULL)
+		*nl = '\0';
+}
+
+static void host_and_boot(char *host, size_t hsize, char *boot, size_t bsize)
+{
+	if (gethostname(host, hsize) != 0)
+		host[0] = '\0';
+	host[hsize - 1] = '\0';
+	read_line_file("/proc/sys/kernel/random/boot_id", boot, bsize);
+}
+
+/* Write the marker into folder and lock it; the locked descriptor, or -1
+ * (errno set). */
+static int write_marker_locked(const char *folder)
+{
+	char host[256], boot[64], *path = join(folder, REPORTDIR_MARKER ".new"), *final = join(folder, REPORTDIR_MARKER);
+	char text[512];
+	int fd = -1, n, e;
+
+	if (!path || !final) {
+		errno = ENOMEM;
+		goto done;
+	}
+	host_and_boot(host, sizeof host, boot, sizeof boot);
+	n = snprintf(text, sizeof text, "%s\npid %ld\nhost %s\nboot %s\n", REPORTDIR_MARKER_TEXT,
+		     (long)getpid(), host, boot);
+	fd = open(path, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0600);
+	if (fd < 0)
+		goto done;
+	if (flock(fd, LOCK_EX) != 0 || write(fd, text, (size_t)n) != n || fsync(fd) != 0 ||
+	    rename(path, final) != 0) {
+		e = errno;
+		close(fd);
+		unlink(path);
+		fd = -1;
+		errno = e;
+	}
+done:
+	hc_free(path);
+	hc_free(final);
+	return fd;
+}
+
+/* Is the marker (or MARKER.new) in folder a dead run's, provably?  Leaves
+ * *lock_fd holding its lock when it is (so no second cleaner races this
+ * one), else -1. */
+static int marker_is_dead(const char *folder, const char *name, int *lock_fd)
+{
+	char host[256], boot[64], text[512], want[600], *p = join(folder, name);
+	int fd, dead = 0;
+
+	*lock_fd = -1;
+	if (!p)
+		return 0;
+	fd = open(p, O_RDONLY | O_CLOEXEC);
+	hc_free(p);
+	if (fd < 0)
+		return 0;
+	if (flock(fd, LOCK_EX | LOCK_NB) != 0) {
+		close(fd);
+		return 0;      /* its writer still runs */
+	}
+	if (strcmp(name, REPORTDIR_MARKER ".new") == 0) {
+		*lock_fd = fd;  /* killed before the marker was complete */
+		return 1;
+	}
+	{
+		ssize_t n = pread(fd, text, sizeof text - 1, 0);
+		text[n > 0 ? n : 0] = '\0';
+	}
+	host_and_boot(host, sizeof host, boot, sizeof boot);
+	if (strncmp(text, REPORTDIR_MARKER_TEXT "\n", strlen(REPORTDIR_MARKER_TEXT) + 1) == 0) {
+		snprintf(want, sizeof want, "\nboot %s\n", boot);
+		dead = boot[0] && strstr(text, want) != NULL;
+		snprintf(want, sizeof want, "\nhost %s\n", host);
+		dead = dead || (host[0] && strstr(text, want) != NULL);
+	}
+	if (dead)
+		*lock_fd = fd;
+	else
+		close(fd);
+	return dead;
+}
+
 /* ---- removing folders ------------------------------------------------------ */
 
 static int remove_entry(const char *path, const struct stat *st, int flag, struct FTW *ftw)
 {
+	const char *base = path + ftw->base;
+
 	(void)st;
-	(void)ftw;
+	/* the top folder and its marker go last, by remove_marked_tree */
+	if (ftw->level == 0 ||
+	    (ftw->level == 1 && (strcmp(base, REPORTDIR_MARKER) == 0 || strcmp(base, REPORTDIR_MARKER ".new") == 0)))
+		return 0;
 	return (flag == FTW_DP ? rmdir(path) : unlink(path)) ? -1 : 0;
 }
 
-/* rm -r, not following symbolic links, staying on one file system. */
-static int remove_tree(const char *path)
+/* rm -r, not following symbolic links, staying on one file system; the
+ * marker is removed after everything else and just before the folder, so
+ * a run killed half-way leaves a folder that is still marked as ours. */
+static int remove_marked_tree(const char *path)
 {
-	return nftw(path, remove_entry, NFTW_FDS, FTW_DEPTH | FTW_PHYS | FTW_MOUNT);
-}
+	char *m = join(path, REPORTDIR_MARKER), *mn = join(path, REPORTDIR_MARKER ".new");
+	int rc = -1;
 
-/* The pid in path's marker, or 0 when there is no readable marker. */
-static long marker_pid(const char *path)
-{
-	char *m = join(path, REPORTDIR_MARKER), buf[32];
-	long pid = 0;
-	FILE *fp;
-
-	if (!m)
-		return 0;
-	fp = fopen(m, "r");
-	if (fp) {
-		if (fgets(buf, sizeof buf, fp))
-			pid = strtol(buf, NULL, 10);
-		fclose(fp);
+	if (m && mn && nftw(path, remove_entry, NFTW_FDS, FTW_DEPTH | FTW_PHYS | FTW_MOUNT) == 0) {
+		unlink(mn);
+		unlink(m);
+		rc = rmdir(path);
 	}
 	hc_free(m);
-	return pid;
+	hc_free(mn);
+	return rc;
 }
 
-/* Remove "DIR.tmp-XXXXXX" folders left by runs that were killed: those
- * whose marker names a process that is gone, and empty ones (a run killed
- * between making the folder and writing its marker). */
+/* Remove "DIR.tmp-XXXXXX" folders left by runs that were killed, when
+ * provably ours and dead (see "markers" above), and empty ones (a run
+ * killed between making the folder and writing its marker).  A folder
+ * another live run holds is never touched. */
 static size_t remove_stale(const char *dir)
 {
 	char *copy = hc_strdup(dir), *slash, *parent, *base, *path;
@@ -157,20 +275,22 @@ static size_t remove_stale(const char *dir)
 	blen = strlen(base);
 	d = opendir(parent);
 	while (d && (e = readdir(d)) != NULL) {
-		long pid;
+		int lock_fd;
+
 		if (strncmp(e->d_name, base, blen) || strncmp(e->d_name + blen, TMP_INFIX, strlen(TMP_INFIX)) ||
 		    strlen(e->d_name) != blen + strlen(TMP_INFIX) + TMP_SUFFIX_LEN)
 			continue;
 		path = join(parent, e->d_name);
 		if (!path)
 			break;
-		pid = marker_pid(path);
-		if (pid > 0 && (kill((pid_t)pid, 0) == 0 || errno != ESRCH)) {
-			hc_free(path);
-			continue;   /* its writer still runs */
-		}
-		if (pid > 0 ? remove_tree(path) == 0 : rmdir(path) == 0)
+		if (rmdir(path) == 0)
 			removed++;
+		else if (marker_is_dead(path, REPORTDIR_MARKER, &lock_fd) ||
+			 marker_is_dead(path, REPORTDIR_MARKER ".new", &lock_fd)) {
+			if (remove_marked_tree(path) == 0)
+				removed++;
+			close(lock_fd);
+		}
 		hc_free(path);
 	}
 	if (d)
@@ -181,28 +301,31 @@ static size_t remove_stale(const char *dir)
 
 /* ---- beginning --------------------------------------------------------------- */
 
+/* An earlier report: a folder holding the tool's signature file, or an
+ * empty one.  A folder of the user's that merely holds a summary.md is
+ * not one. */
 static int is_earlier_report(const char *dir)
 {
-	static const char *const names[] = { "summary.json", "summary.md" };
+	char text[128], *p;
 	struct dirent *e;
 	int empty = 1;
-	size_t i;
 	DIR *d = opendir(dir);
 
 	if (!d)
 		return 0;
-	while ((e = readdir(d)) != NULL) {
-		if (strcmp(e->d_name, ".") == 0 || strcmp(e->d_name, "..") == 0)
-			continue;
-		empty = 0;
-		for (i = 0; i < 2; i++)
-			if (strcmp(e->d_name, names[i]) == 0) {
-				closedir(d);
-				return 1;
-			}
-	}
+	while ((e = readdir(d)) != NULL)
+		if (strcmp(e->d_name, ".") && strcmp(e->d_name, "..")) {
+			empty = 0;
+			break;
+		}
 	closedir(d);
-	return empty;
+	if (empty)
+		return 1;
+	if (!(p = join(dir, REPORTDIR_SIGNATURE)))
+		return 0;
+	read_line_file(p, text, sizeof text);
+	hc_free(p);
+	return strcmp(text, REPORTDIR_SIGNATURE_TEXT) == 0;
 }
 
 static int check_target(const char *dir, int force, struct hc_error *err)
@@ -221,24 +344,9 @@ static int check_target(const char *dir, int force, struct hc_error *err)
 	if (!S_ISDIR(st.st_mode))
 		return hc_error(err, HC_EUSAGE, "'%s' exists and is not a folder; not replacing it", dir);
 	if (!is_earlier_report(dir))
-		return hc_error(err, HC_EUSAGE, "'%s' is not an earlier report (no summary.json or summary.md) "
-				"and not empty; not replacing it", dir);
+		return hc_error(err, HC_EUSAGE, "'%s' is not a report holdcount wrote (no %s file) and not "
+				"empty; not replacing it", dir, REPORTDIR_SIGNATURE);
 	return HC_OK;
-}
-
-static int write_marker(const char *tmp, struct hc_error *err)
-{
-	char *m = join(tmp, REPORTDIR_MARKER);
-	FILE *fp;
-	int ok;
-
-	if (!m)
-		return hc_error(err, HC_ENOMEM, "out of memory starting the report folder");
-	fp = fopen(m, "w");
-	ok = fp && fprintf(fp, "%ld\n", (long)getpid()) > 0;
-	ok = fp ? (fclose(fp) == 0 && ok) : 0;
-	hc_free(m);
-	return ok ? HC_OK : hc_error(err, HC_EIO, "cannot write in '%s': %s", tmp, strerror(errno));
 }
 
 int hc_reportdir_begin(struct reportdir **out, const char *dir, int force, size_t *removed,
@@ -257,6 +365,8 @@ int hc_reportdir_begin(struct reportdir **out, const char *dir, int force, size_
 	if (removed)
 		*removed = n;
 	rd = hc_calloc(1, sizeof *rd);
+	if (rd)
+		rd->lock_fd = -1;
 	len = strlen(dir);
 	/* a trailing slash would put the temporary folder inside DIR */
 	while (len > 1 && dir[len - 1] == '/')
@@ -277,7 +387,9 @@ int hc_reportdir_begin(struct reportdir **out, const char *dir, int force, size_
 	sig_nnames = 0;
 	sig_active = 1;
 	rd->force = force;
-	if ((rc = write_marker(rd->tmp, err)) != HC_OK) {
+	if ((rd->lock_fd = write_marker_locked(rd->tmp)) < 0) {
+		rc = errno == ENOMEM ? hc_error(err, HC_ENOMEM, "out of memory starting the report folder")
+				     : hc_error(err, HC_EIO, "cannot write in '%s': %s", rd->tmp, strerror(errno));
 		hc_reportdir_free(rd);
 		return rc;
 	}
@@ -372,6 +484,28 @@ static char *parent_of(const char *path)
 	return slash == path ? hc_strdup("/") : hc_strndup(path, (size_t)(slash - path));
 }
 
+/* The signature file that makes a finished folder provably a report. */
+static int write_signature(const char *folder)
+{
+	static const char text[] = REPORTDIR_SIGNATURE_TEXT "\n"
+		"This folder was written by holdcount report; 'holdcount report --force' may replace it.\n";
+	char *p = join(folder, REPORTDIR_SIGNATURE);
+	int fd, rc = -1;
+
+	if (!p) {
+		errno = ENOMEM;
+		return -1;
+	}
+	fd = open(p, O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0666);
+	if (fd >= 0) {
+		rc = write(fd, text, sizeof text - 1) == (ssize_t)(sizeof text - 1) && fsync(fd) == 0 ? 0 : -1;
+		if (close(fd) != 0)
+			rc = -1;
+	}
+	hc_free(p);
+	return rc;
+}
+
 /* Swap tmp and dir; afterwards tmp names the old report. */
 static int swap(const char *tmp, const char *dir)
 {
@@ -435,7 +569,7 @@ static int put_in_place(struct reportdir *rd)
 int hc_reportdir_commit(struct reportdir *rd, struct hc_error *err)
 {
 	char *marker = join(rd->tmp, REPORTDIR_MARKER), *parent = parent_of(rd->dir);
-	int existed, rc = HC_OK;
+	int existed, rc = HC_OK, old_lock = -1;
 	struct stat st;
 
 	if (!marker || !parent) {
@@ -448,25 +582,41 @@ int hc_reportdir_commit(struct reportdir *rd, struct hc_error *err)
 		goto cleanup;
 	}
 	existed = lstat(rd->dir, &st) == 0;
-	/* the finished folder carries no marker; the old one gets one below */
-	if (unlink(marker) != 0 || open_up(rd->tmp) != 0 || fsync_path(rd->tmp) != 0 || put_in_place(rd) != 0) {
+	/* The old report is marked (and locked) before it is swapped out, so
+	 * that wherever this process dies it lies under a marked name: at DIR
+	 * (a marker in a report with a signature does not stop a later
+	 * --force) or at the temporary name, which a later run cleans. */
+	if (existed && rd->force && (old_lock = write_marker_locked(rd->dir)) < 0) {
+		rc = hc_error(err, HC_EIO, "cannot mark the earlier report '%s' for removal: %s", rd->dir,
+			      strerror(errno));
+		goto cleanup;
+	}
+	/* the finished folder carries the signature and no marker */
+	if (write_signature(rd->tmp) != 0 || unlink(marker) != 0 || open_up(rd->tmp) != 0 ||
+	    fsync_path(rd->tmp) != 0 || put_in_place(rd) != 0) {
 		rc = hc_error(err, HC_EIO, "cannot put the report in place as '%s': %s", rd->dir,
 			      errno == EEXIST || errno == ENOTEMPTY ? "it appeared while the report was written"
 								     : strerror(errno));
+		if (old_lock >= 0) {
+			char *om = join(rd->dir, REPORTDIR_MARKER);
+			if (om)
+				unlink(om);
+			hc_free(om);
+		}
 		goto cleanup;
 	}
 	rd->committed = 1;
 	fsync_path(parent);
-	if (existed) {
-		/* rd->tmp now names the old report: mark it, so that if this
-		 * process dies while removing it the next run finishes the job. */
-		hc_free(marker);
-		marker = NULL;
-		write_marker(rd->tmp, NULL);
-		remove_tree(rd->tmp);
-	}
+	if (existed)
+		remove_marked_tree(rd->tmp);   /* rd->tmp now names the old report */
 	sig_active = 0;
 cleanup:
+	if (old_lock >= 0)
+		close(old_lock);
+	if (rd->committed && rd->lock_fd >= 0) {
+		close(rd->lock_fd);
+		rd->lock_fd = -1;
+	}
 	hc_free(marker);
 	hc_free(parent);
 	return rc;
@@ -477,7 +627,9 @@ void hc_reportdir_free(struct reportdir *rd)
 	if (!rd)
 		return;
 	if (!rd->committed && rd->tmp && rd->tmp[0])
-		remove_tree(rd->tmp);
+		remove_marked_tree(rd->tmp);
+	if (rd->lock_fd >= 0)
+		close(rd->lock_fd);
 	if (rd->tmp && strcmp(sig_tmp, rd->tmp) == 0) {
 		sig_active = 0;
 		sig_nnames = 0;

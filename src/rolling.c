@@ -96,16 +96,16 @@ static int slide_init(struct slide *s, const struct universe *u, size_t w)
 	s->w = w;
 	if (hc_mul_size(m, t + 1, &cells))
 		return -1;
-	s->nanpre = hc_malloc(cells * sizeof *s->nanpre);
-	s->run = hc_malloc(cells * sizeof *s->run);
+	s->nanpre = hc_mallocarray(cells, sizeof *s->nanpre);
+	s->run = hc_mallocarray(cells, sizeof *s->run);
 	s->in = hc_calloc(m, 1);
 	s->want = hc_calloc(m, 1);
-	s->kept = hc_malloc(m * sizeof *s->kept);
-	s->shift = hc_malloc(m * sizeof *s->shift);
-	s->sd = hc_malloc(m * sizeof *s->sd);
-	s->sdd = hc_malloc(m * sizeof *s->sdd);
-	s->rs = hc_malloc(t * sizeof *s->rs);
-	s->z = hc_malloc(w * sizeof *s->z);
+	s->kept = hc_mallocarray(m, sizeof *s->kept);
+	s->shift = hc_mallocarray(m, sizeof *s->shift);
+	s->sd = hc_mallocarray(m, sizeof *s->sd);
+	s->sdd = hc_mallocarray(m, sizeof *s->sdd);
+	s->rs = hc_mallocarray(t, sizeof *s->rs);
+	s->z = hc_mallocarray(w, sizeof *s->z);
 	if (!s->nanpre || !s->run || !s->in || !s->want || !s->kept || !s->shift ||
 	    !s->sd || !s->sdd || !s->rs || !s->z)
 		return -1;
@@ -393,8 +393,8 @@ static int check_options(const struct universe *u, const struct rolling_options 
 	return HC_OK;
 }
 
-int hc_rolling_run(struct rolling_result **out, const struct universe *u,
-		const struct rolling_options *opt, struct hc_error *err)
+static int run_series(struct rolling_result **out, const struct universe *u,
+		      const struct rolling_options *opt, struct hc_error *err)
 {
 	struct rolling_result *r = NULL;
 	struct job jb;
@@ -579,4 +579,38 @@ int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 		if (add_row(t, r, &r->windows[j]))
 			return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");
 	return HC_OK;
+}
+
+int hc_rolling_run(struct rolling_result **out, const struct hc_source *src,
+		   const struct rolling_options *opt, struct hc_error *err)
+{
+	*out = NULL;
+	if (!src->u)
+		return hc_error(err, HC_EUSAGE, "rolling windows need a return history; a covariance matrix has no periods");
+	return run_series(out, src->u, opt, err);
+}
+
+/* The rules' parameters and what the windows mean, beside the table. */
+int hc_rolling_report_context(struct report *r, const struct rolling_result *res)
+{
+	char key[64], title[96];
+	size_t j, c;
+	int rc = 0;
+
+	for (j = 0; j < res->nwindows; j++)
+		if (res->windows[j].status == HC_OK)
+			break;
+	for (c = 0; j < res->nwindows && c < res->windows[j].nrules; c++) {
+		const struct rule_result *rr = &res->windows[j].rules[c];
+		snprintf(key, sizeof key, "parameters_%s", rr->name);
+		for (char *p = key; *p; p++)
+			if (*p == '-')
+				*p = '_';
+		snprintf(title, sizeof title, "%s parameters", rr->name);
+		rc |= hc_report_add_text(r, key, title, rr->parameters);
+	}
+	rc |= hc_report_add_note(r, "each window's figures come from that window's periods alone; "
+			      "averages drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, "
+			      "Journal of Finance 56(1)), so a count set once is worth revisiting");
+	return rc;
 }

@@ -18,6 +18,8 @@
 
 #include "holdcount/curve.h"
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
+#include "holdcount/strata.h"
 
 static const char *const rule_names[RULES_COUNT] = {
 	"near-floor", "marginal", "band", "next-holding", "tracking-error",
@@ -686,7 +688,7 @@ int hc_rules_band(const struct rules_config *cfg, const struct sampler_result *r
 	}
 	limit = (1 + cfg->band_x) * sqrt(cbar * periods_per_year);
 	res->threshold = limit;
-	sd = hc_malloc(r->paths * sizeof *sd);
+	sd = hc_mallocarray(r->paths, sizeof *sd);
 	if (!sd)
 		return hc_error(err, HC_ENOMEM, "out of memory for the band rule");
 	/* Settled, not first crossed: from the largest size down to the last
@@ -1005,7 +1007,7 @@ int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
-	count = hc_malloc(nrep * sizeof *count);
+	count = hc_mallocarray(nrep, sizeof *count);
 	if (!count)
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", nrep);
 	for (j = 0; j < nres; j++) {
@@ -1451,13 +1453,14 @@ int hc_rules_report(struct report *rep, const struct rule_result *res,
 
 /* ---- sampling for the sampled rules ------------------------------------ */
 
-/* The staged sampling of hc_rules_sampled, from the return series u or, when
- * u is NULL, from the m x m covariance matrix a (band only). */
-static int sampled_stages(const struct rules_config *cfg, const struct universe *u,
-			  const double *a, size_t m, const struct sampler_options *so, double vbar, double cbar,
+/* The staged sampling of hc_rules_sampled (the sampler picks the series or
+ * the matrix route from src). */
+static int sampled_stages(const struct rules_config *cfg, const struct hc_source *src,
+			  const struct sampler_options *so, double vbar, double cbar,
 			  struct rule_result *res, size_t *nres, size_t *largest,
 			  struct hc_error *err)
 {
+	size_t m = hc_source_m(src);
 	struct sampler_options o = *so;
 	struct sampler_result *sr = NULL;
 	size_t *sizes = NULL, k, n = 0, j;
@@ -1470,9 +1473,9 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 	o.want_returns = (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)) != 0;
 	if (!want_band && !want_at && !o.want_returns)
 		return HC_OK;
-	if (o.want_returns && (status = hc_rules_universe_return(u, o.periods_per_year, &uret, err)) != HC_OK)
+	if (o.want_returns && (status = hc_rules_universe_return(src->u, o.periods_per_year, &uret, err)) != HC_OK)
 		return status;
-	sizes = hc_malloc(m * sizeof *sizes);
+	sizes = hc_mallocarray(m, sizeof *sizes);
 	if (!sizes)
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sizes", m);
 	for (j = 0; j < m; j++)
@@ -1483,7 +1486,8 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 		if (k > m)
 			k = m;
 		n = 0;
-		status = u ? hc_sampler_run(&sr, u, sizes, k, &o, err) : hc_sampler_run_matrix(&sr, a, m, sizes, k, &o, err);
+		status = o.strata || o.stratify != SAMPLER_STRATA_NONE ? hc_strata_run(&sr, src, sizes, k, &o, err)
+									: hc_sampler_run(&sr, src, sizes, k, &o, err);
 		if (status != HC_OK)
 			break;
 		if (want_band) {
@@ -1521,24 +1525,16 @@ static int sampled_stages(const struct rules_config *cfg, const struct universe 
 	return HC_OK;
 }
 
-int hc_rules_sampled(const struct rules_config *cfg, const struct universe *u,
-		  const struct sampler_options *so, double vbar, double cbar,
-		  struct rule_result *res, size_t *nres, size_t *largest,
-		  struct hc_error *err)
-{
-	return sampled_stages(cfg, u, NULL, u->m, so, vbar, cbar, res, nres, largest, err);
-}
-
-int hc_rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
-			 const struct sampler_options *so, double vbar, double cbar,
-			 struct rule_result *res, size_t *nres, size_t *largest,
-			 struct hc_error *err)
+int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src,
+		     const struct sampler_options *so, double vbar, double cbar,
+		     struct rule_result *res, size_t *nres, size_t *largest,
+		     struct hc_error *err)
 {
 	*nres = 0;
-	if (cfg->selected & RULES_FLAG(RULES_LAG_SHARE))
+	if (hc_source_matrix(src) && (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)))
 		return hc_error(err, HC_EUSAGE, "the lag-share rule compounds each portfolio's returns over the "
 				"periods, and a covariance matrix has none");
-	return sampled_stages(cfg, NULL, a, m, so, vbar, cbar, res, nres, largest, err);
+	return sampled_stages(cfg, src, so, vbar, cbar, res, nres, largest, err);
 }
 
 /* ---- bootstrap of the sampled rules ------------------------------------ */
@@ -1547,10 +1543,7 @@ int hc_rules_sampled_matrix(const struct rules_config *cfg, const double *a, siz
  * directly. */
 uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep)
 {
-	uint64_t s = seed ^ 0x5DEECE66DULL, r = (uint64_t)rep;
-
-	s ^= hc_sampler_splitmix64(&r);
-	return hc_sampler_splitmix64(&s);
+	return hc_paths_stream(seed ^ 0x5DEECE66DULL, (uint64_t)rep);
 }
 
 /* One replicate's band, lag-share and Alexeev-Tapon counts (0 = not met). */
@@ -1561,6 +1554,7 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 			     size_t *at, struct hc_error *err)
 {
 	struct universe *ru = NULL;
+	struct hc_source rs;
 	struct sampler_options so = *sopt;
 	struct rule_result rr[3];
 	double vbar, cbar;
@@ -1577,7 +1571,8 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 		return status;
 	so.seed = hc_rules_replicate_seed(bopt->seed, rep);
 	so.progress = NULL;
-	status = hc_rules_sampled(cfg, ru, &so, vbar, cbar, rr, &n, NULL, err);
+	hc_source_init_series(&rs, ru);
+	status = hc_rules_sampled(cfg, &rs, &so, vbar, cbar, rr, &n, NULL, err);
 	hc_universe_free(ru);
 	if (status != HC_OK)
 		return status;
@@ -1607,9 +1602,12 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (nrep > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates is more than the %u allowed", nrep,
+				HC_BOOTSTRAP_MAX_REPLICATES);
 	l = bopt->block_length ? bopt->block_length : hc_bootstrap_default_block_length(u->t);
-	idx = hc_malloc(u->t * sizeof *idx);
-	w = hc_malloc(u->t * sizeof *w);
+	idx = hc_mallocarray(u->t, sizeof *idx);
+	w = hc_mallocarray(u->t, sizeof *w);
 	band = hc_calloc(nrep, sizeof *band);
 	shortfall = hc_calloc(nrep, sizeof *shortfall);
 	at = hc_calloc(nrep, sizeof *at);

@@ -33,23 +33,13 @@
 
 #include <gsl/gsl_rng.h>
 #include <gsl/gsl_statistics_double.h>
-#include <omp.h>
 
 #include "holdcount/memory.h"
-#include "holdcount/strata.h"
+#include "holdcount/paths.h"
 
 /* Defaults named once. */
 #define SAMPLER_DEFAULT_PATHS 10000
 #define SAMPLER_SCHEDULE_CHUNK 8 /* paths per dynamic work unit */
-
-uint64_t hc_sampler_splitmix64(uint64_t *state)
-{
-	uint64_t z = (*state += 0x9e3779b97f4a7c15ULL);
-
-	z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
-	z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
-	return z ^ (z >> 31);
-}
 
 void hc_sampler_options_init(struct sampler_options *opt)
 {
@@ -67,16 +57,6 @@ void hc_sampler_result_free(struct sampler_result *r)
 	hc_free(r->annual_return);
 	hc_free(r->feasible);
 	hc_free(r);
-}
-
-/* Seed for path k: the (k+1)-th splitmix64 output from seed, folded to the
- * 32 bits that GSL's taus2 seeding takes. */
-static unsigned long path_seed(uint64_t seed, size_t k)
-{
-	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z;
-
-	z = hc_sampler_splitmix64(&st);
-	return (unsigned long)((z ^ (z >> 32)) & 0xffffffffUL);
 }
 
 /* ---- the plan shared by every path ---- */
@@ -124,8 +104,8 @@ static int plan_init(struct plan *p, size_t m, const size_t *sizes, size_t nsize
 		if (sizes[j] < 1 || sizes[j] > m)
 			return hc_error(err, HC_EUSAGE,
 					"size %zu is larger than the %zu securities kept", sizes[j], m);
-	p->uniq = hc_malloc(nsizes * sizeof *p->uniq);
-	p->slot = hc_malloc(nsizes * sizeof *p->slot);
+	p->uniq = hc_mallocarray(nsizes, sizeof *p->uniq);
+	p->slot = hc_mallocarray(nsizes, sizeof *p->slot);
 	if (!p->uniq || !p->slot) {
 		plan_release(p);
 		return hc_error(err, HC_ENOMEM, "out of memory for the sampling plan");
@@ -185,12 +165,12 @@ static int workspace_init(struct workspace *w, size_t m, size_t t, size_t nuniq)
 {
 	memset(w, 0, sizeof *w);
 	w->rng = gsl_rng_alloc(gsl_rng_taus2);
-	w->idx = hc_malloc(m * sizeof *w->idx);
-	w->acc = hc_malloc((t ? t : 1) * sizeof *w->acc);
-	w->out_v = hc_malloc(nuniq * sizeof *w->out_v);
-	w->out_r = hc_malloc(nuniq * sizeof *w->out_r);
-	w->ridx = hc_malloc(m * sizeof *w->ridx);
-	w->scratch = hc_malloc((t ? t : 1) * sizeof *w->scratch);
+	w->idx = hc_mallocarray(m, sizeof *w->idx);
+	w->acc = hc_mallocarray((t ? t : 1), sizeof *w->acc);
+	w->out_v = hc_mallocarray(nuniq, sizeof *w->out_v);
+	w->out_r = hc_mallocarray(nuniq, sizeof *w->out_r);
+	w->ridx = hc_mallocarray(m, sizeof *w->ridx);
+	w->scratch = hc_mallocarray((t ? t : 1), sizeof *w->scratch);
 	if (!w->rng || !w->idx || !w->acc || !w->out_v || !w->out_r || !w->ridx || !w->scratch) {
 		workspace_release(w);
 		return -1;
@@ -540,55 +520,35 @@ static void store(struct sampler_result *res, const struct plan *p, const struct
 	}
 }
 
+static int run_ws_init(void *job, void *ws)
+{
+	const struct run *r = job;
+
+	return workspace_init(ws, r->m, r->t, r->plan->nuniq);
+}
+
+static void run_ws_release(void *ws)
+{
+	workspace_release(ws);
+}
+
+/* Path k: drawn from its own seed, stored in its own row. */
+static void run_path(void *job, void *ws, size_t k)
+{
+	const struct run *r = job;
+
+	r->path(r->job, ws, hc_paths_seed32(r->opt->seed, k));
+	store(r->res, r->plan, ws, k);
+}
+
 static int run_paths(struct run *r, struct hc_error *err)
 {
-	struct workspace *ws;
-	int nthreads = r->threads > 0 ? r->threads : omp_get_max_threads(), i, stop = 0;
-	size_t done = 0, total = r->paths;
-	long kk, paths = (long)r->paths;
+	struct hc_paths p = {
+		r->paths, r->threads, SAMPLER_SCHEDULE_CHUNK, r, sizeof(struct workspace), run_ws_init,
+		run_ws_release, run_path, r->opt->progress, r->opt->progress_ctx, "sampler's", "sampling", "paths"
+	};
 
-	if (nthreads < 1)
-		nthreads = 1;
-	ws = hc_calloc((size_t)nthreads, sizeof *ws);
-	if (!ws)
-		return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
-	for (i = 0; i < nthreads; i++)
-		if (workspace_init(&ws[i], r->m, r->t, r->plan->nuniq)) {
-			while (i-- > 0)
-				workspace_release(&ws[i]);
-			hc_free(ws);
-			return hc_error(err, HC_ENOMEM, "out of memory for the sampler's workspaces");
-		}
-#pragma omp parallel num_threads(nthreads)
-	{
-		struct workspace *w = &ws[omp_get_thread_num()];
-#pragma omp for schedule(dynamic, SAMPLER_SCHEDULE_CHUNK)
-		for (kk = 0; kk < paths; kk++) {
-			int halted;
-#pragma omp atomic read
-			halted = stop;
-			if (halted)
-				continue;
-			r->path(r->job, w, path_seed(r->opt->seed, (size_t)kk));
-			store(r->res, r->plan, w, (size_t)kk);
-			size_t now;
-#pragma omp atomic capture
-			now = ++done;
-			if (r->opt->progress && omp_get_thread_num() == 0 &&
-			    r->opt->progress(r->opt->progress_ctx, now, total)) {
-#pragma omp atomic write
-				stop = 1;
-			}
-		}
-	}
-	for (i = 0; i < nthreads; i++)
-		workspace_release(&ws[i]);
-	hc_free(ws);
-	if (stop)
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", done, total);
-	if (r->opt->progress && r->opt->progress(r->opt->progress_ctx, total, total))
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", total, total);
-	return HC_OK;
+	return hc_paths_run(&p, err);
 }
 
 static int check_options(const struct sampler_options *opt, struct hc_error *err)
@@ -603,21 +563,30 @@ static int check_options(const struct sampler_options *opt, struct hc_error *err
 	return HC_OK;
 }
 
+/* max_bytes and held: the budget (memory.h) and the bytes of the input
+ * still held (the universe's numbers), so that K paths of every size,
+ * the sampler's largest arrays, are refused with a message rather than
+ * killed by the kernel. */
 static int result_alloc(struct sampler_result **out, const size_t *sizes, size_t nsizes,
-			size_t paths, int want_returns, uint64_t seed, struct hc_error *err)
+			size_t paths, int want_returns, uint64_t seed, size_t max_bytes, double held,
+			struct hc_error *err)
 {
 	struct sampler_result *r;
 	size_t cells;
+	int rc;
 
 	*out = NULL;
 	if (hc_mul_size(paths, nsizes, &cells))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", paths, nsizes);
+	if ((rc = hc_memory_check(max_bytes, held, (double)cells * 8.0 * (want_returns ? 2 : 1), err,
+				  "%zu sampled portfolios (%zu paths of %zu sizes)", cells, paths, nsizes)))
+		return rc;
 	r = hc_calloc(1, sizeof *r);
 	if (!r)
 		goto nomem;
 	r->paths = paths;
 	r->nsizes = nsizes;
-	r->sizes = hc_malloc(nsizes * sizeof *r->sizes);
+	r->sizes = hc_mallocarray(nsizes, sizeof *r->sizes);
 	r->variance = hc_calloc(cells, sizeof *r->variance);
 	r->feasible = hc_malloc(nsizes);
 	if (want_returns)
@@ -642,8 +611,8 @@ static int column_data(const struct universe *u, double **xc, double **mean, dou
 	long double s, tm = 0;
 
 	*xc = *mean = *total = NULL;
-	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_malloc(cells * sizeof **xc)) ||
-	    !(*mean = hc_malloc(u->m * sizeof **mean)) || !(*total = hc_calloc(t, sizeof **total))) {
+	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_mallocarray(cells, sizeof **xc)) ||
+	    !(*mean = hc_mallocarray(u->m, sizeof **mean)) || !(*total = hc_calloc(t, sizeof **total))) {
 		hc_free(*xc);
 		hc_free(*mean);
 		*xc = *mean = NULL;
@@ -664,9 +633,9 @@ static int column_data(const struct universe *u, double **xc, double **mean, dou
 	return HC_OK;
 }
 
-int hc_sampler_run(struct sampler_result **out, const struct universe *u,
-		const size_t *sizes, size_t nsizes,
-		const struct sampler_options *opt, struct hc_error *err)
+static int run_series(struct sampler_result **out, const struct universe *u,
+		      const size_t *sizes, size_t nsizes,
+		      const struct sampler_options *opt, struct hc_error *err)
 {
 	struct plan plan;
 	struct column_job job = {0};
@@ -675,9 +644,6 @@ int hc_sampler_run(struct sampler_result **out, const struct universe *u,
 	int rc;
 
 	*out = NULL;
-	/* Stratified draws: strata.c (issue 6). */
-	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return hc_strata_run(out, u, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (u->has_missing)
@@ -691,7 +657,8 @@ int hc_sampler_run(struct sampler_result **out, const struct universe *u,
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", u->m);
 	if ((rc = plan_init(&plan, u->m, sizes, nsizes, 1, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, err)))
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, opt->want_returns, opt->seed, u->max_bytes,
+			       (double)u->m * (double)u->t * 8.0, err)))
 		goto cleanup;
 	if ((rc = column_data(u, &xc, &mean, &total, &job.total_mean, err)))
 		goto cleanup;
@@ -757,9 +724,9 @@ static void matrix_path(const void *vjob, struct workspace *w, unsigned long see
 	}
 }
 
-int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
-		       const size_t *sizes, size_t nsizes,
-		       const struct sampler_options *opt, struct hc_error *err)
+static int run_matrix(struct sampler_result **out, const double *a, size_t m,
+		      const size_t *sizes, size_t nsizes,
+		      const struct sampler_options *opt, struct hc_error *err)
 {
 	struct plan plan;
 	struct matrix_job job;
@@ -767,8 +734,6 @@ int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m
 	int rc;
 
 	*out = NULL;
-	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
-		return hc_strata_run_matrix(out, a, m, sizes, nsizes, opt, err);
 	if ((rc = check_options(opt, err)))
 		return rc;
 	if (opt->want_returns)
@@ -779,7 +744,7 @@ int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m
 		return hc_error(err, HC_ENOMEM, "%zu securities are too many to sample", m);
 	if ((rc = plan_init(&plan, m, sizes, nsizes, 0, err)))
 		return rc;
-	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, err)))
+	if ((rc = result_alloc(out, sizes, nsizes, opt->paths, 0, opt->seed, 0, (double)m * (double)m * 8.0, err)))
 		goto cleanup;
 	job.a = a;
 	job.m = m;
@@ -803,6 +768,25 @@ cleanup:
 	return rc;
 }
 
+/* A source that draws from a matrix (a covariance matrix, or the
+ * pairwise-complete covariances of series with gaps) takes the matrix
+ * route, complete series the column route.  Stratified draws are
+ * strata.c's (hc_strata_run), which builds on this module, not the other
+ * way round. */
+int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
+		   const size_t *sizes, size_t nsizes,
+		   const struct sampler_options *opt, struct hc_error *err)
+{
+	const double *a = hc_source_matrix(src);
+
+	*out = NULL;
+	if (opt->strata || opt->stratify != SAMPLER_STRATA_NONE)
+		return hc_error(err, HC_EUSAGE, "stratified draws are hc_strata_run's (strata.h)");
+	if (a)
+		return run_matrix(out, a, hc_source_m(src), sizes, nsizes, opt, err);
+	return run_series(out, src->u, sizes, nsizes, opt, err);
+}
+
 /* ---- summary ---- */
 
 int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
@@ -822,7 +806,7 @@ int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 					c->points[j].n, r->sizes[j]);
 	if (K == 0)
 		return hc_error(err, HC_EUSAGE, "no sampled paths to summarise");
-	sd = hc_malloc(K * sizeof *sd);
+	sd = hc_mallocarray(K, sizeof *sd);
 	if (!sd)
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", K);
 	for (j = 0; j < r->nsizes; j++) {

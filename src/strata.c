@@ -27,9 +27,9 @@
 #include <gsl/gsl_rng.h>
 #include <gsl/gsl_sort.h>
 #include <gsl/gsl_statistics_double.h>
-#include <omp.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
 
 #define STRATA_SCHEDULE_CHUNK 8   /* paths per dynamic work unit */
 /* Stream tags, so stratified paths do not reuse the unconstrained ones'
@@ -65,7 +65,7 @@ int hc_strata_alloc(struct strata **out, const size_t *stratum_of, size_t m,
 	s = hc_calloc(1, sizeof *s);
 	if (!s || !(s->count = hc_calloc(nstrata, sizeof *s->count)) ||
 	    !(s->start = hc_calloc(nstrata + 1, sizeof *s->start)) ||
-	    !(s->members = hc_malloc(m * sizeof *s->members)) ||
+	    !(s->members = hc_mallocarray(m, sizeof *s->members)) ||
 	    !(fill = hc_calloc(nstrata, sizeof *fill))) {
 		hc_strata_free(s);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu strata", nstrata);
@@ -160,8 +160,8 @@ int hc_strata_cap_alloc(struct strata_cap **out, const struct strata *s, size_t 
 		return hc_error(err, HC_EUSAGE, "a cap of 0 per stratum leaves nothing to hold");
 	c = hc_calloc(1, sizeof *c);
 	if (!c || hc_mul_size(S + 1, nmax + 1, &cells) ||
-	    !(c->cap = hc_malloc(S * sizeof *c->cap)) || !(c->count = hc_malloc(S * sizeof *c->count)) ||
-	    !(c->logw = hc_malloc(cells * sizeof *c->logw))) {
+	    !(c->cap = hc_mallocarray(S, sizeof *c->cap)) || !(c->count = hc_mallocarray(S, sizeof *c->count)) ||
+	    !(c->logw = hc_mallocarray(cells, sizeof *c->logw))) {
 		hc_strata_cap_free(c);
 		return hc_error(err, HC_ENOMEM, "out of memory for the per-stratum cap's table");
 	}
@@ -281,8 +281,8 @@ static struct strata_moments *moments_new(size_t S)
 }
 
 /* y_s = sum of the centred series of stratum s; B_st = y_s.y_t/(T-1). */
-int hc_strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
-				 const struct strata *s, struct hc_error *err)
+static int moments_series(struct strata_moments **out, const struct universe *u,
+			  const struct strata *s, struct hc_error *err)
 {
 	size_t S = s->nstrata, t = u->t, i, k, a, b;
 	struct strata_moments *sm;
@@ -321,8 +321,8 @@ int hc_strata_moments_from_universe(struct strata_moments **out, const struct un
 	return HC_OK;
 }
 
-int hc_strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
-			       const struct strata *s, struct hc_error *err)
+static int moments_matrix(struct strata_moments **out, const double *a, size_t m,
+			  const struct strata *s, struct hc_error *err)
 {
 	size_t S = s->nstrata, p, q, i, j;
 	struct strata_moments *sm;
@@ -348,6 +348,17 @@ int hc_strata_moments_from_matrix(struct strata_moments **out, const double *a, 
 	return HC_OK;
 }
 
+int hc_strata_moments_from_source(struct strata_moments **out, const struct hc_source *src,
+				  const struct strata *s, struct hc_error *err)
+{
+	const double *a = hc_source_matrix(src);
+
+	*out = NULL;
+	if (a)
+		return moments_matrix(out, a, hc_source_m(src), s, err);
+	return moments_series(out, src->u, s, err);
+}
+
 double hc_strata_expected_variance(const struct strata_moments *sm, const struct strata *s,
 				const size_t *alloc)
 {
@@ -371,14 +382,7 @@ double hc_strata_expected_variance(const struct strata_moments *sm, const struct
 
 /* ---- drawing ---- */
 
-static uint64_t mix(uint64_t seed, uint64_t tag, uint64_t a, uint64_t b)
-{
-	uint64_t st = seed ^ tag;
-
-	st += 0x9e3779b97f4a7c15ULL * a;
-	st = hc_sampler_splitmix64(&st) + b;
-	return hc_sampler_splitmix64(&st);
-}
+#define mix hc_paths_mix
 
 struct alloc_stream {
 	uint64_t state;
@@ -389,7 +393,7 @@ static double stream_uniform(void *ctx)
 {
 	struct alloc_stream *a = ctx;
 
-	return (double)(hc_sampler_splitmix64(&a->state) >> 11) * 0x1.0p-53;
+	return (double)(hc_paths_splitmix64(&a->state) >> 11) * 0x1.0p-53;
 }
 
 /* Every stratum shuffled completely by Durstenfeld's in-place Fisher-Yates
@@ -454,7 +458,7 @@ int hc_strata_portfolio(const struct strata *s, const struct strata_cap *cap, in
 		return hc_error(err, HC_EUSAGE, "no portfolio of %zu meets the stratification", n);
 	}
 	g = gsl_rng_alloc(gsl_rng_mt19937);
-	perm = hc_malloc(s->m * sizeof *perm);
+	perm = hc_mallocarray(s->m, sizeof *perm);
 	if (!g || !perm) {
 		gsl_rng_free(g);
 		hc_free(perm);
@@ -513,13 +517,13 @@ static int sws_init(struct sws *w, const struct srun *r)
 {
 	memset(w, 0, sizeof *w);
 	w->g = gsl_rng_alloc(gsl_rng_mt19937);
-	w->perm = hc_malloc(r->m * sizeof *w->perm);
-	w->alloc = hc_malloc(r->s->nstrata * sizeof *w->alloc);
-	w->prev = hc_malloc(r->s->nstrata * sizeof *w->prev);
-	w->acc = hc_malloc((r->t ? r->t : 1) * sizeof *w->acc);
-	w->out_v = hc_malloc(r->nuniq * sizeof *w->out_v);
-	w->out_r = hc_malloc(r->nuniq * sizeof *w->out_r);
-	w->mem = hc_malloc(r->m * sizeof *w->mem);
+	w->perm = hc_mallocarray(r->m, sizeof *w->perm);
+	w->alloc = hc_mallocarray(r->s->nstrata, sizeof *w->alloc);
+	w->prev = hc_mallocarray(r->s->nstrata, sizeof *w->prev);
+	w->acc = hc_mallocarray((r->t ? r->t : 1), sizeof *w->acc);
+	w->out_v = hc_mallocarray(r->nuniq, sizeof *w->out_v);
+	w->out_r = hc_mallocarray(r->nuniq, sizeof *w->out_r);
+	w->mem = hc_mallocarray(r->m, sizeof *w->mem);
 	if (!w->g || !w->perm || !w->alloc || !w->prev || !w->acc || !w->out_v || !w->out_r ||
 	    !w->mem) {
 		sws_release(w);
@@ -624,63 +628,51 @@ static void matrix_path(const struct srun *r, struct sws *w, size_t k)
 	}
 }
 
+/* What one run of paths shares: the plan, the result rows to fill. */
+struct sjob {
+	const struct srun *r;
+	struct sampler_result *res;
+};
+
+static int sjob_ws_init(void *job, void *ws)
+{
+	return sws_init(ws, ((const struct sjob *)job)->r);
+}
+
+static void sjob_ws_release(void *ws)
+{
+	sws_release(ws);
+}
+
+/* Path k, drawn from (seed, k) alone, stored in its own row. */
+static void sjob_path(void *job, void *ws, size_t k)
+{
+	const struct sjob *sj = job;
+	const struct srun *r = sj->r;
+	struct sws *w = ws;
+	size_t j;
+
+	if (r->a)
+		matrix_path(r, w, k);
+	else
+		column_path(r, w, k);
+	for (j = 0; j < r->nsizes; j++) {
+		sj->res->variance[k * r->nsizes + j] = w->out_v[r->slot[j]];
+		if (sj->res->annual_return)
+			sj->res->annual_return[k * r->nsizes + j] = w->out_r[r->slot[j]];
+	}
+}
+
 static int drive(const struct srun *r, struct sampler_result *res,
 		 const struct sampler_options *opt, struct hc_error *err)
 {
-	int nthreads = opt->threads > 0 ? opt->threads : omp_get_max_threads(), i, stop = 0;
-	size_t done = 0, total = opt->paths;
-	long kk, paths = (long)opt->paths;
-	struct sws *ws;
+	struct sjob sj = { r, res };
+	struct hc_paths p = {
+		opt->paths, opt->threads, STRATA_SCHEDULE_CHUNK, &sj, sizeof(struct sws), sjob_ws_init,
+		sjob_ws_release, sjob_path, opt->progress, opt->progress_ctx, "stratified sampler's", "sampling", "paths"
+	};
 
-	if (nthreads < 1)
-		nthreads = 1;
-	ws = hc_calloc((size_t)nthreads, sizeof *ws);
-	if (!ws)
-		return hc_error(err, HC_ENOMEM, "out of memory for the stratified sampler's workspaces");
-	for (i = 0; i < nthreads; i++)
-		if (sws_init(&ws[i], r)) {
-			while (i-- > 0)
-				sws_release(&ws[i]);
-			hc_free(ws);
-			return hc_error(err, HC_ENOMEM, "out of memory for the stratified sampler's workspaces");
-		}
-#pragma omp parallel num_threads(nthreads)
-	{
-		struct sws *w = &ws[omp_get_thread_num()];
-#pragma omp for schedule(dynamic, STRATA_SCHEDULE_CHUNK)
-		for (kk = 0; kk < paths; kk++) {
-			size_t j, now;
-			int halted;
-#pragma omp atomic read
-			halted = stop;
-			if (halted)
-				continue;
-			if (r->a)
-				matrix_path(r, w, (size_t)kk);
-			else
-				column_path(r, w, (size_t)kk);
-			for (j = 0; j < r->nsizes; j++) {
-				res->variance[(size_t)kk * r->nsizes + j] = w->out_v[r->slot[j]];
-				if (res->annual_return)
-					res->annual_return[(size_t)kk * r->nsizes + j] = w->out_r[r->slot[j]];
-			}
-#pragma omp atomic capture
-			now = ++done;
-			if (opt->progress && omp_get_thread_num() == 0 &&
-			    opt->progress(opt->progress_ctx, now, total)) {
-#pragma omp atomic write
-				stop = 1;
-			}
-		}
-	}
-	for (i = 0; i < nthreads; i++)
-		sws_release(&ws[i]);
-	hc_free(ws);
-	if (stop)
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", done, total);
-	if (opt->progress && opt->progress(opt->progress_ctx, total, total))
-		return hc_error(err, HC_EINTERRUPT, "sampling stopped after %zu of %zu paths", total, total);
-	return HC_OK;
+	return hc_paths_run(&p, err);
 }
 
 static int check(const struct sampler_options *opt, size_t m, const size_t *sizes,
@@ -736,8 +728,8 @@ static int srun_plan(struct srun *r, struct strata **s, struct strata_cap **cap,
 	*cap = NULL;
 	if ((rc = hc_strata_alloc(s, opt->strata, m, opt->nstrata, err)))
 		return rc;
-	r->uniq = hc_malloc(nsizes * sizeof *r->uniq);
-	r->slot = hc_malloc(nsizes * sizeof *r->slot);
+	r->uniq = hc_mallocarray(nsizes, sizeof *r->uniq);
+	r->slot = hc_mallocarray(nsizes, sizeof *r->slot);
 	r->feas = hc_malloc(nsizes);
 	if (!r->uniq || !r->slot || !r->feas || hc_mul_size(nsizes, opt->nstrata, &j) ||
 	    !(r->fixed = hc_calloc(j, sizeof *r->fixed)))
@@ -782,7 +774,7 @@ static int result_new(struct sampler_result **out, const struct srun *r, const s
 	if (hc_mul_size(opt->paths, r->nsizes, &cells))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes is too many", opt->paths, r->nsizes);
 	res = hc_calloc(1, sizeof *res);
-	if (!res || !(res->sizes = hc_malloc(r->nsizes * sizeof *res->sizes)) ||
+	if (!res || !(res->sizes = hc_mallocarray(r->nsizes, sizeof *res->sizes)) ||
 	    !(res->variance = hc_calloc(cells, sizeof *res->variance)) ||
 	    !(res->feasible = hc_malloc(r->nsizes)) ||
 	    (want_returns && !(res->annual_return = hc_calloc(cells, sizeof *res->annual_return)))) {
@@ -806,8 +798,8 @@ static int centred(const struct universe *u, double **xc, double **mean, struct 
 	long double acc;
 
 	*xc = *mean = NULL;
-	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_malloc(cells * sizeof **xc)) ||
-	    !(*mean = hc_malloc(u->m * sizeof **mean))) {
+	if (hc_mul_size(u->m, t, &cells) || !(*xc = hc_mallocarray(cells, sizeof **xc)) ||
+	    !(*mean = hc_mallocarray(u->m, sizeof **mean))) {
 		hc_free(*xc);
 		*xc = NULL;
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu x %zu returns", u->m, t);
@@ -823,9 +815,9 @@ static int centred(const struct universe *u, double **xc, double **mean, struct 
 	return HC_OK;
 }
 
-int hc_strata_run(struct sampler_result **out, const struct universe *u,
-	       const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
-	       struct hc_error *err)
+static int run_series(struct sampler_result **out, const struct universe *u,
+		      const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
+		      struct hc_error *err)
 {
 	struct srun r;
 	struct strata *s = NULL;
@@ -864,7 +856,7 @@ cleanup:
 	return rc;
 }
 
-int hc_strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
+static int run_matrix(struct sampler_result **out, const double *a, size_t m,
 		      const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
 		      struct hc_error *err)
 {
@@ -893,6 +885,18 @@ cleanup:
 	}
 	srun_release(&r, s, cap);
 	return rc;
+}
+
+int hc_strata_run(struct sampler_result **out, const struct hc_source *src,
+		  const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
+		  struct hc_error *err)
+{
+	const double *a = hc_source_matrix(src);
+
+	*out = NULL;
+	if (a)
+		return run_matrix(out, a, hc_source_m(src), sizes, nsizes, opt, err);
+	return run_series(out, src->u, sizes, nsizes, opt, err);
 }
 
 /* ---- the stratified curve ---- */
@@ -951,8 +955,8 @@ int hc_strata_curve_alloc(struct strata_curve **out, const struct sampler_result
 		return hc_error(err, HC_EUSAGE, "no sampled paths, or periods per year not positive");
 	c = hc_calloc(1, sizeof *c);
 	if (!c || !(c->points = hc_calloc(r->nsizes, sizeof *c->points)) ||
-	    !(sd = hc_malloc(r->paths * sizeof *sd)) ||
-	    !(alloc = hc_malloc(s->nstrata * sizeof *alloc))) {
+	    !(sd = hc_mallocarray(r->paths, sizeof *sd)) ||
+	    !(alloc = hc_mallocarray(s->nstrata, sizeof *alloc))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the stratified curve");
 		goto cleanup;
 	}

@@ -6,6 +6,7 @@
  * See synth.h for the contract and docs/synth.md for the parameters.
  */
 #include "holdcount/synth.h"
+#include "holdcount/universe.h"
 
 #include <errno.h>
 #include <math.h>
@@ -16,6 +17,7 @@
 #include <gsl/gsl_rng.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/paths.h"
 
 void hc_synth_options_init(struct synth_options *opt)
 {
@@ -284,22 +286,15 @@ int hc_synth_options_check(const struct synth_options *opt, struct hc_error *err
 /* ---- the model -------------------------------------------------------- */
 
 /* splitmix64 (Steele, Lea & Flood, 2014, "Fast splittable pseudorandom
- * number generators", OOPSLA): turns (seed, stream) into well-mixed seeds so
- * that the parameter and return streams are unrelated. */
-static uint64_t splitmix64(uint64_t x)
-{
-	x += 0x9e3779b97f4a7c15ULL;
-	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9ULL;
-	x = (x ^ (x >> 27)) * 0x94d049bb133111ebULL;
-	return x ^ (x >> 31);
-}
-
+ * number generators", OOPSLA) through paths.h: (stream, seed) gives
+ * well-mixed seeds, so that the parameter and return streams are
+ * unrelated. */
 static gsl_rng *stream_rng(uint64_t seed, uint64_t stream)
 {
 	gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
 
 	if (r)
-		gsl_rng_set(r, (unsigned long)splitmix64(splitmix64(seed) ^ stream));
+		gsl_rng_set(r, (unsigned long)hc_paths_stream(stream, seed));
 	return r;
 }
 
@@ -578,6 +573,32 @@ static int write_universe(const struct synth_model *mo, FILE *fp, size_t *nfloor
 		rc = hc_error(err, HC_ENOMEM, "out of memory generating returns");
 		goto cleanup;
 	}
+	if (!(r = stream_rng(mo->seed, 1))) {
+		rc = hc_error(err, HC_EINTERNAL, "cannot allocate a random number generator");
+		goto cleanup;
+	}
+	/* A first pass draws every row and only checks it, so that a model
+	 * whose returns holdcount's own reader would refuse (an infinite
+	 * return, or one beyond HC_UNIVERSE_MAX_RETURN) writes nothing, not
+	 * even to standard output; the second pass, from the same stream,
+	 * writes the same rows. */
+	for (k = 0; k < mo->t; k++) {
+		size_t i;
+
+		draw_row(mo, r, k, g, row);
+		for (i = 0; i < mo->m; i++)
+			if (!isnan(row[i]) && !(fabs(row[i]) <= HC_UNIVERSE_MAX_RETURN)) {
+				char d[11];
+
+				hc_synth_format_date(mo->dates[k], d);
+				rc = hc_error(err, HC_EUSAGE,
+					      "the model options give security '%s' a return of %g on %s, beyond "
+					      "the %g a universe may hold; use smaller volatilities or mean returns",
+					      mo->ids[i], row[i], d, HC_UNIVERSE_MAX_RETURN);
+				goto cleanup;
+			}
+	}
+	gsl_rng_free(r);
 	if (!(r = stream_rng(mo->seed, 1))) {
 		rc = hc_error(err, HC_EINTERNAL, "cannot allocate a random number generator");
 		goto cleanup;

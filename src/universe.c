@@ -364,6 +364,7 @@ struct loader {
 	const char *name;
 	const struct universe_options *opt;
 	size_t budget;
+	size_t name_bytes;        /* header names and ids held, counted against the budget */
 	/* header */
 	char **header;
 	size_t ncols, cap_header;
@@ -418,11 +419,38 @@ static int too_large(const struct loader *L, double need, struct hc_error *err)
 		L->name, ceil(10 * mib(need)) / 10, floor(10 * mib((double)L->budget)) / 10);
 }
 
+/*
+ * Count one name (a header field or a long layout's id) against the
+ * budget before it is kept: its bytes, its pointer in a doubling array
+ * (up to twice over) and the allocator's own header.  The names are held
+ * until the numbers are built, so the rows' budget is what they leave
+ * (six million ids once reached 475 MB under a 10 MiB budget, and a
+ * header streamed from a FIFO grew without end).
+ */
+#define NAME_OVERHEAD (2 * sizeof(char *) + 16)
+
+static int count_name(struct loader *L, const struct csvread_field *f, struct hc_error *err)
+{
+	size_t cost = f->len + 1 + NAME_OVERHEAD + (L->opt->layout == UNIVERSE_LONG ? 3 * sizeof(size_t) : 0);
+
+	if (L->name_bytes + cost > L->budget || L->name_bytes + cost < L->name_bytes)
+		return hc_error(err, HC_ENOMEM,
+			"%s:%zu:%zu: universe too large: its names alone need at least %.1f MiB, budget %.1f MiB",
+			L->name, f->line, f->column, ceil(10 * mib((double)L->name_bytes + (double)cost)) / 10,
+			floor(10 * mib((double)L->budget)) / 10);
+	L->name_bytes += cost;
+	return HC_OK;
+}
+
 static int header_field(struct loader *L, const struct csvread_field *f,
 			struct hc_error *err)
 {
 	char **h;
 	char *s;
+	int rc;
+
+	if ((rc = count_name(L, f, err)) != HC_OK)
+		return rc;
 
 	if (L->ncols == L->cap_header) {
 		size_t nc = L->cap_header ? L->cap_header * 2 : 64;
@@ -550,8 +578,14 @@ static int parse_cell(const struct loader *L, const struct csvread_field *f,
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a positive price, found '%s'",
 				L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
-	} else if (L->opt->percent && !pct) {
-		v /= 100.0;
+	} else {
+		if (L->opt->percent && !pct)
+			v /= 100.0;
+		if (fabs(v) > HC_UNIVERSE_MAX_RETURN)
+			return hc_error(err, HC_EDATA,
+				"%s:%zu:%zu: expected a return of at most %g in size (%.0f%%), found '%s'",
+				L->name, f->line, f->column, HC_UNIVERSE_MAX_RETURN,
+				HC_UNIVERSE_MAX_RETURN * 100.0, hc_csvread_quote(f->text, f->len, q));
 	}
 	*out = v;
 	return HC_OK;
@@ -581,7 +615,7 @@ static int wide_grow(struct loader *L, struct hc_error *err)
 	/* Each row costs its doubles twice at the peak (buffer + transpose). */
 	if (hc_mul_size(L->m, 2 * sizeof(double), &row_bytes))
 		return too_large(L, (double)L->m * 16.0, err);
-	max_rows = L->budget / row_bytes;
+	max_rows = (L->budget - L->name_bytes) / row_bytes;
 	if (L->nrows + 1 > max_rows)
 		return too_large(L, (double)(L->nrows + 1) * (double)row_bytes, err);
 	nc = L->cap_rows ? L->cap_rows * 2 : 64;
@@ -703,6 +737,8 @@ static int long_id(struct loader *L, const struct csvread_field *f,
 		}
 	}
 	rc = hc_universe_check_id(L->name, f->line, f->column, f->text, f->len, err);
+	if (rc == HC_OK)
+		rc = count_name(L, f, err);
 	if (rc != HC_OK)
 		return rc;
 	if (L->m == L->cap_ids) {
@@ -757,11 +793,11 @@ static int long_record(struct loader *L, size_t nfields, size_t line,
 			L->name, line, nfields, nfields, L->ncols);
 	if (L->nlrows == L->cap_lrows) {
 		size_t nc = L->cap_lrows ? L->cap_lrows * 2 : 256;
-		double need = (double)nc * (double)(sizeof *r + sizeof(double));
+		double need = (double)nc * (double)(sizeof *r + sizeof(double)) + (double)L->name_bytes;
 
 		if (need > (double)L->budget) {
 			nc = L->cap_lrows + 1;
-			need = (double)nc * (double)(sizeof *r + sizeof(double));
+			need = (double)nc * (double)(sizeof *r + sizeof(double)) + (double)L->name_bytes;
 			if (need > (double)L->budget)
 				return too_large(L, need, err);
 		}
@@ -1054,6 +1090,14 @@ static int check_variation(const struct universe *u, const char *name,
 					"%s: security '%s' has an infinite return on %s; expected finite values",
 					name, u->ids[i], d);
 			}
+			/* returns computed from prices; return cells were
+			 * checked where they were read */
+			if (fabs(xi[k]) > HC_UNIVERSE_MAX_RETURN) {
+				hc_universe_format_date(u->dates[k], d);
+				return hc_error(err, HC_EDATA,
+					"%s: security '%s' has a return of %g on %s; expected at most %g in size",
+					name, u->ids[i], xi[k], d, HC_UNIVERSE_MAX_RETURN);
+			}
 			if (obs++ == 0)
 				first = xi[k];
 			else if (xi[k] != first)
@@ -1340,6 +1384,42 @@ int hc_universe_resample(struct universe **out, const struct universe *src,
 	u->m_read = src->m_read;
 	for (k = 0; k < src->m * n && !u->has_missing; k++)
 		u->has_missing = isnan(u->x[k]) != 0;
+	*out = u;
+	return HC_OK;
+}
+
+int hc_universe_apply_missing(struct universe **out, const struct universe *src, int missing,
+			      double min_coverage, struct hc_error *err)
+{
+	const char *name = src->source ? src->source : "";
+	struct universe *u;
+	size_t i;
+	int rc;
+
+	*out = NULL;
+	if (missing < UNIVERSE_MISSING_COMPLETE || missing > UNIVERSE_MISSING_KEEP ||
+	    !(min_coverage > 0 && min_coverage <= 1))
+		return hc_error(err, HC_EUSAGE, "bad missing-data policy or minimum coverage");
+	if (src->ndropped)
+		return hc_error(err, HC_EUSAGE, "'%s' already lost securities to a missing-data policy; load it "
+				"under the keep-all policy", name);
+	u = derived_alloc(src, src->t);
+	if (!u)
+		return hc_error(err, HC_ENOMEM, "out of memory");
+	memcpy(u->x, src->x, src->m * src->t * sizeof(double));
+	memcpy(u->dates, src->dates, src->t * sizeof *u->dates);
+	for (i = 0; i < src->m * src->t && !u->has_missing; i++)
+		u->has_missing = isnan(u->x[i]) != 0;
+	u->m_read = src->m_read;
+	rc = apply_policy(u, missing, min_coverage, err);
+	if (rc == HC_OK && u->m < 2)
+		rc = too_few(u, name, missing, err);
+	if (rc == HC_OK)
+		rc = check_variation(u, name, err);
+	if (rc != HC_OK) {
+		hc_universe_free(u);
+		return rc;
+	}
 	*out = u;
 	return HC_OK;
 }

@@ -60,7 +60,7 @@ expect 2 "holdcount: unknown command 'curvy' (see 'holdcount --help')" -- curvy
 expect 2 "holdcount: unknown command 'curvy'" -- help curvy
 expect 2 "holdcount: unknown option '--bogus'" -- --bogus
 expect 2 "usage: holdcount COMMAND" --
-HOLDCOUNT_THREADS=abc expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number from 1, found 'abc'" -- curve u.csv
+HOLDCOUNT_THREADS=abc expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number from 1 to 1024 (the most threads holdcount starts), found 'abc'" -- curve u.csv
 HOLDCOUNT_THREADS=0 expect 2 "holdcount curve: HOLDCOUNT_THREADS must be a whole number" -- curve u.csv
 # An explicit --threads wins over the variable, even over a bad value: the
 # run succeeds and prints what the same options print without the variable.

@@ -9,7 +9,7 @@
  *   - exact enumeration of every same-count portfolio of a small universe
  *     for the percentile;
  *   - for the audit from a covariance matrix, the same textbook A handed
- *     to hc_audit_run_matrix, checked against the quadratic form and against
+ *     to hc_audit_run on a matrix source, checked against the quadratic form and against
  *     the audit of the return series A came from;
  *   - the screens' limits from memory of the published texts (UCITS
  *     Directive 2009/65/EC Art. 52; Investment Company Act of 1940 s. 5(b)(1);
@@ -26,6 +26,7 @@
 #include <cmocka.h>
 #include <gsl/gsl_errno.h>
 
+#include "fixture.h"
 #include "holdcount/audit.h"
 #include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
@@ -132,7 +133,7 @@ static struct audit_result *run(const struct holdings *h, const struct fixture *
 {
 	struct audit_result *a;
 	struct hc_error err;
-	int rc = hc_audit_run(&a, h, fx->u, &fx->mo, opt, &err);
+	int rc = hc_audit_run(&a, h, fixture_series(fx->u), &fx->mo, opt, &err);
 
 	if (rc != HC_OK)
 		print_error("%s\n", err.message);
@@ -687,14 +688,16 @@ static void textbook_matrix(const struct universe *u, struct covmatrix *c)
 static struct audit_result *run_matrix(const struct holdings *h, const struct covmatrix *c,
 				       double ppy, int annualised, const struct audit_options *opt)
 {
-	struct audit_matrix am = { c, "cov.csv", NULL, ppy, annualised, 0, NULL };
+	struct hc_source am;
 	struct audit_result *a;
 	struct moments mo;
 	struct hc_error err;
 	int rc;
 
-	assert_int_equal(hc_moments_from_matrix(&mo, c->a, c->m, &err), HC_OK);
-	rc = hc_audit_run_matrix(&a, h, &am, &mo, opt, &err);
+	hc_source_init_matrix(&am, c, annualised ? ppy : 0);
+	am.name = "cov.csv";
+	assert_int_equal(hc_moments_from_source(&mo, &am, &err), HC_OK);
+	rc = hc_audit_run(&a, h, &am, &mo, opt, &err);
 	if (rc != HC_OK)
 		print_error("%s\n", err.message);
 	assert_int_equal(rc, HC_OK);
@@ -768,7 +771,7 @@ static void test_audit_matrix_own_scale_and_errors(void **state)
 	struct fixture fx;
 	struct covmatrix c;
 	struct audit_options opt;
-	struct audit_matrix bad;
+	struct hc_source bad;
 	struct holdings *h;
 	struct audit_result *a;
 	struct moments mo;
@@ -789,18 +792,20 @@ static void test_audit_matrix_own_scale_and_errors(void **state)
 	hc_audit_result_free(a);
 	/* strict: the missing id is named with the matrix's file */
 	opt.strict = 1;
-	assert_int_equal(hc_moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
-	bad = (struct audit_matrix){ &c, "cov.csv", NULL, 1, 0, 0, NULL };
-	assert_int_equal(hc_audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EDATA);
+	hc_source_init_matrix(&bad, &c, 0);
+	bad.name = "cov.csv";
+	assert_int_equal(hc_moments_from_source(&mo, &bad, &err), HC_OK);
+	assert_int_equal(hc_audit_run(&a, h, &bad, &mo, &opt, &err), HC_EDATA);
 	assert_null(a);
 	assert_string_equal(err.message, "h.csv:3:2: id 'ZZ404' of fund 'Hazel' is not in the universe 'cov.csv', "
 			    "expected an id of the universe (without --strict the fund's risk is computed on the rest)");
-	/* a scale other than 1 without annualising is a contradiction */
-	bad.periods_per_year = 12;
-	assert_int_equal(hc_audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
-	bad.periods_per_year = 0;
-	bad.annualised = 1;
-	assert_int_equal(hc_audit_run_matrix(&a, h, &bad, &mo, &opt, &err), HC_EUSAGE);
+	/* the moments left out: taken from the matrix itself, the same figures */
+	opt.strict = 0;
+	assert_int_equal(hc_audit_run(&a, h, &bad, NULL, &opt, &err), HC_OK);
+	assert_rel(a->funds[0].variance, quad_form(fx.u, idx, wn, 3), 1e-13);
+	hc_audit_result_free(a);
+	/* a scale that is not a number of periods is refused where the
+	 * source is built (hc_source_from_covmatrix, test_source.c) */
 	hc_holdings_free(h);
 	free(c.a);
 	hc_universe_free(fx.u);
@@ -873,7 +878,7 @@ static void test_audit_missing_ids_renormalised_or_refused(void **state)
 	hc_audit_result_free(a);
 	options(&opt, 0);
 	opt.strict = 1;
-	assert_int_equal(hc_audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EDATA);
+	assert_int_equal(hc_audit_run(&a, h, fixture_series(fx.u), &fx.mo, &opt, &err), HC_EDATA);
 	assert_null(a);
 	assert_string_equal(err.message, "h.csv:3:2: id 'ZZ999' of fund 'Elm' is not in the universe 'u.csv', expected an id of the universe (without --strict the fund's risk is computed on the rest)");
 	hc_holdings_free(h);
@@ -905,7 +910,7 @@ static void test_audit_policy_and_sectors(void **state)
 	assert_int_equal(hc_holdings_labels_load_buffer(&l, "s.csv", map, strlen(map), 0, &err), HC_OK);
 	options(&opt, 0);
 	opt.policy.max_sector_weight = 0.5;
-	assert_int_equal(hc_audit_run(&a, h, fx.u, &fx.mo, &opt, &err), HC_EUSAGE);   /* no map */
+	assert_int_equal(hc_audit_run(&a, h, fixture_series(fx.u), &fx.mo, &opt, &err), HC_EUSAGE);   /* no map */
 	assert_string_equal(err.message, "a maximum sector weight needs a sector map");
 	opt.sectors = l;
 	opt.policy.min_holdings = 5;
@@ -1020,7 +1025,7 @@ static void test_audit_allocation_failures(void **state)
 	opt.sectors = l;
 	for (k = 0; rc == HC_ENOMEM; k++) {
 		hc_alloc_fail_after(k);
-		rc = hc_audit_run(&a, h, fx.u, &fx.mo, &opt, &err);
+		rc = hc_audit_run(&a, h, fixture_series(fx.u), &fx.mo, &opt, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_ENOMEM)
 			assert_null(a);
@@ -1041,15 +1046,16 @@ static void test_audit_allocation_failures(void **state)
 	/* the matrix route: its own allocations, the sampler's matrix route */
 	{
 		struct covmatrix c;
-		struct audit_matrix am;
+		struct hc_source am;
 		struct moments mo;
 
 		textbook_matrix(fx.u, &c);
-		am = (struct audit_matrix){ &c, "cov.csv", NULL, 12, 1, 0, NULL };
-		assert_int_equal(hc_moments_from_matrix(&mo, c.a, c.m, &err), HC_OK);
+		hc_source_init_matrix(&am, &c, 12);
+		am.name = "cov.csv";
+		assert_int_equal(hc_moments_from_source(&mo, &am, &err), HC_OK);
 		for (k = 0, rc = HC_ENOMEM; rc == HC_ENOMEM; k++) {
 			hc_alloc_fail_after(k);
-			rc = hc_audit_run_matrix(&a, h, &am, &mo, &opt, &err);
+			rc = hc_audit_run(&a, h, &am, &mo, &opt, &err);
 			hc_alloc_fail_after(-1);
 			if (rc == HC_ENOMEM)
 				assert_null(a);

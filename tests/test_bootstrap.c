@@ -813,7 +813,7 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 		assert_int_equal(hc_universe_resample(&ru, u, idx, T, &err), HC_OK);
 		s1.seed = hc_rules_replicate_seed(bo.seed, rep);
 		s1.want_returns = 1;
-		assert_int_equal(hc_sampler_run(&sr, ru, sizes, M, &s1, &err), HC_OK);
+		assert_int_equal(hc_sampler_run(&sr, fixture_series(ru), sizes, M, &s1, &err), HC_OK);
 		assert_int_equal(hc_rules_band(&cfg, sr, cbar, 12, &rr, &err), HC_OK);
 		band[rep] = rr.met ? rr.count : 0;
 		assert_int_equal(hc_rules_universe_return(ru, 12, &uret, &err), HC_OK);
@@ -875,7 +875,7 @@ static void test_bootstrap_universe_return_matches_sampler(void **state)
 	so.want_returns = 1;
 	so.periods_per_year = 12;
 	so.threads = 1;
-	assert_int_equal(hc_sampler_run(&sr, u, &size, 1, &so, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&sr, fixture_series(u), &size, 1, &so, &err), HC_OK);
 	assert_int_equal(hc_rules_universe_return(u, 12, &uret, &err), HC_OK);
 	for (k = 0; k < 3; k++)
 		assert_close(sr->annual_return[k], uret, 1e-12);

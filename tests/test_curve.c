@@ -139,7 +139,7 @@ static void test_curve_tiny_universes(void **state)
 			for (j = 0; j < m; j++)
 				a[i * m + j] = a3[i * 3 + j];
 		enumerate(a, m, &e);
-		assert_int_equal(hc_moments_from_matrix(&mo, a, m, &err), HC_OK);
+		assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(a, m), &err), HC_OK);
 		for (n = 1; n <= m; n++) {
 			assert_int_equal(hc_curve_variance_sd(&mo, n, &sd, &err), HC_OK);
 			assert_close(sd, sqrt((double)e.var_var[n]), 1e-18, 1e-12);
@@ -246,7 +246,7 @@ static void test_curve_exact_rejects_bad_sizes(void **state)
 	assert_int_equal(hc_curve_exact(&c, &mo, big, 1, NAN, &err), HC_EUSAGE);
 	{
 		const double a[4] = {0.0412, 0.0071, 0.0071, 0.0237};
-		assert_int_equal(hc_moments_from_matrix(&mo, a, 2, &err), HC_OK);
+		assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(a, 2), &err), HC_OK);
 		assert_int_equal(hc_curve_variance_sd(&mo, 3, &sd, &err), HC_EUSAGE);
 		assert_int_equal(hc_curve_variance_sd(&mo, 0, &sd, &err), HC_EUSAGE);
 	}
@@ -443,7 +443,7 @@ static void test_curve_report_columns(void **state)
 	opt.paths = 64;
 	opt.seed = 8;
 	opt.threads = 1;
-	assert_int_equal(hc_sampler_run(&res, u, sizes, 3, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&res, fixture_series(u), sizes, 3, &opt, &err), HC_OK);
 	assert_int_equal(hc_sampler_summarise(c, res, &err), HC_OK);
 	r = hc_report_alloc();
 	assert_non_null(r);

@@ -168,7 +168,7 @@ static void test_moments_from_matrix_hand_worked(void **state)
 	struct moments mo;
 	struct hc_error err;
 
-	assert_int_equal(hc_moments_from_matrix(&mo, a, 3, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(a, 3), &err), HC_OK);
 	assert_int_equal(mo.route, MOMENTS_ROUTE_GIVEN);
 	assert_close(mo.sum_var, 0.1925, 1, 1e-15);
 	assert_close(mo.sum_cov, 0.032, 1, 1e-15);
@@ -224,7 +224,7 @@ static void test_moments_pairwise_route(void **state)
 					: a9[i * m + j] / sqrt(a9[i * m + i] * a9[j * m + j]);
 		}
 	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
-	assert_int_equal(hc_moments_from_matrix(&ref, a, m, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&ref, fixture_matrix(a, m), &err), HC_OK);
 	assert_close(mo.sum_var, ref.sum_var, ref.sum_var, 1e-12);
 	assert_close(mo.sum_cov, ref.sum_cov, ref.sum_var, 1e-12);
 	assert_close(mo.sum_cov2, ref.sum_cov2, ref.sum_var2, 1e-12);
@@ -296,11 +296,11 @@ static void test_moments_rejects_bad_data(void **state)
 	assert_non_null(strstr(err.message, "expected at least 2"));
 	u->m = 3;
 	fixture_free(u);
-	assert_int_equal(hc_moments_from_matrix(&mo, bad, 2, &err), HC_EDATA);
-	assert_non_null(strstr(err.message, "variance of security 2 is 0"));
-	assert_int_equal(hc_moments_from_matrix(&mo, inf, 2, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(bad, 2), &err), HC_EDATA);
+	assert_non_null(strstr(err.message, "the variance in row 2 is 0"));
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(inf, 2), &err), HC_EDATA);
 	assert_non_null(strstr(err.message, "not a finite number"));
-	assert_int_equal(hc_moments_from_matrix(&mo, bad, 1, &err), HC_EDATA);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(bad, 1), &err), HC_EDATA);
 
 	/* Pairwise: a security with a single observation. */
 	fixture_returns(x, 3, 5, 12);
@@ -509,10 +509,27 @@ static void test_moments_pairwise_minimum_periods(void **state)
 	hc_universe_free(u);
 }
 
+/* Summary statistics: an sd of 23.85% and correlation 0.3 give v-bar =
+ * 0.23850^2 = 0.0568822 5 and c-bar = 0.3 v-bar = 0.0170646 75 (by hand);
+ * given variances pass through unchanged. */
+static void test_moments_summary_averages(void **state)
+{
+	double v, c;
+
+	(void)state;
+	hc_moments_summary_averages(NAN, NAN, 0.2385, 0.3, &v, &c);
+	assert_true(fabs(v - 0.05688225) < 1e-15 && fabs(c - 0.017064675) < 1e-15);
+	hc_moments_summary_averages(0.0412, NAN, 0.9, -0.1, &v, &c);
+	assert_true(v == 0.0412 && fabs(c + 0.00412) < 1e-15);
+	hc_moments_summary_averages(0.0412, 0.0097, 0.9, -0.1, &v, &c);
+	assert_true(v == 0.0412 && c == 0.0097);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_moments_gram_route_matches_reference),
+		cmocka_unit_test(test_moments_summary_averages),
 		cmocka_unit_test(test_moments_matrix_route_matches_reference),
 		cmocka_unit_test(test_moments_matrix_route_several_blocks),
 		cmocka_unit_test(test_moments_gram_and_matrix_routes_agree),

@@ -150,8 +150,9 @@ static void test_outfile_abort_keeps_old(void **state)
 	remove_dir();
 }
 
-/* A rename that cannot happen (the target is a directory) fails the
- * commit with HC_EIO, removes the temporary and leaves the target alone. */
+/* A directory as the target is refused when the output is opened
+ * (HC_EIO), before anything is written; the directory stays, and no
+ * temporary is made. */
 static void test_outfile_failed_commit_leaves_target(void **state)
 {
 	struct outfile of;
@@ -162,11 +163,11 @@ static void test_outfile_failed_commit_leaves_target(void **state)
 	make_dir(state);
 	snprintf(path, sizeof path, "%s/busy", dir);
 	assert_int_equal(mkdir(path, 0755), 0);
-	assert_int_equal(hc_outfile_open(&of, path, &err), HC_OK);
-	fputs("data\n", of.fp);
 	hc_error_clear(&err);
-	assert_int_equal(hc_outfile_commit(&of, &err), HC_EIO);
+	assert_int_equal(hc_outfile_open(&of, path, &err), HC_EIO);
 	assert_non_null(strstr(err.message, "cannot write '"));
+	assert_non_null(strstr(err.message, "Is a directory"));
+	assert_null(of.fp);
 	assert_int_equal(stat(path, &st), 0);
 	assert_true(S_ISDIR(st.st_mode));
 	assert_int_equal(entries(), 1);

@@ -264,7 +264,7 @@ static void test_plots_render_treats_a_warning_as_failure(void **state)
 	fputs("set terminal png size 200,100\nset output 'bad.png'\nplot 'empty.dat' using 1:2 with lines\n", fp);
 	fclose(fp);
 	hc_error_clear(&err);
-	assert_int_equal(hc_plots_render(gp, tmpdir, "bad.gp", &err), HC_EINTERNAL);
+	assert_int_equal(hc_plots_render(gp, tmpdir, "bad.gp", &err), HC_ERENDER);
 	assert_non_null(strstr(err.message, "arning"));
 	assert_int_equal(hc_plots_render("/nonexistent/gnuplot", tmpdir, "bad.gp", &err), HC_EIO);
 }

@@ -334,8 +334,46 @@ static void test_report_writer_find(void **state)
 	assert_ptr_equal(hc_report_writer_find("table"), hc_report_writer_text);
 	assert_ptr_equal(hc_report_writer_find("csv"), hc_report_writer_csv);
 	assert_ptr_equal(hc_report_writer_find("json"), hc_report_writer_json);
+	assert_ptr_equal(hc_report_writer_find("markdown"), hc_report_writer_markdown);
 	assert_null(hc_report_writer_find("xml"));
 	assert_null(hc_report_writer_find(NULL));
+}
+
+/* The Markdown writer: the text writer's number formatting (a value that
+ * rounds to zero prints as zero, never "-0.00%"), '|' escaped, numbers
+ * right-aligned, words left. */
+static void test_report_markdown_golden(void **state)
+{
+	struct report *r = hc_report_alloc();
+	struct report_table *t;
+
+	assert_non_null(r);
+	assert_int_equal(hc_report_add_real(r, "drift", "drift", -0.00002385, REPORT_STYLE_PERCENT), 0);
+	assert_int_equal(hc_report_add_text(r, "input", "input", "a|b"), 0);
+	t = hc_report_add_table(r, "curve", "risk by count");
+	assert_non_null(t);
+	assert_int_equal(hc_report_table_add_column(t, "label", "label", REPORT_STYLE_PLAIN), 0);
+	assert_int_equal(hc_report_table_add_column(t, "sd", "sd", REPORT_STYLE_PERCENT), 0);
+	assert_int_equal(hc_report_table_add_row(t), 0);
+	assert_int_equal(hc_report_table_set_text(t, 0, 0, "one"), 0);
+	hc_report_table_set_real(t, 0, 1, 0.4924);
+	assert_int_equal(hc_report_table_add_row(t), 0);
+	assert_int_equal(hc_report_table_set_text(t, 1, 0, "ten"), 0);
+	hc_report_table_set_real(t, 1, 1, -0.00003);
+	assert_int_equal(hc_report_add_note(r, "check the inputs"), 0);
+	expect_render(hc_report_writer_markdown, r,
+		      "- drift: 0.00%\n"
+		      "- input: a\\|b\n"
+		      "\n"
+		      "### risk by count\n"
+		      "\n"
+		      "| label | sd |\n"
+		      "|:--|--:|\n"
+		      "| one | 49.24% |\n"
+		      "| ten | 0.00% |\n"
+		      "\n"
+		      "- check the inputs\n");
+	hc_report_free(r);
 }
 
 /* The cautions of design.md section 9 and the project rules: each subject
@@ -505,6 +543,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_report_text_golden),
+		cmocka_unit_test(test_report_markdown_golden),
 		cmocka_unit_test(test_report_csv_golden),
 		cmocka_unit_test(test_report_csv_fields_without_table),
 		cmocka_unit_test(test_report_csv_part_chooses_a_table_or_the_fields),

@@ -119,7 +119,7 @@ static void test_rolling_whole_window_matches_moments(void **state)
 	(void)state;
 	assert_non_null(u);
 	opts(&o, 90, 1);
-	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 1);
 	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_true(r->windows[0].average_variance == mo.average_variance);
@@ -165,7 +165,7 @@ static void test_rolling_windows_follow_listings(void **state)
 	u->has_missing = 1;
 	opts(&o, 36, 3);
 	o.refresh = ROLLING_REFRESH_NEVER;
-	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, (150 - 36) / 3 + 1);
 	for (j = 0; j < r->nwindows; j++) {
 		first = j * 3;
@@ -206,9 +206,9 @@ static void test_rolling_sliding_agrees_with_scratch(void **state)
 	assert_non_null(u);
 	opts(&o, 60, 1);
 	o.refresh = ROLLING_REFRESH_NEVER;
-	assert_int_equal(hc_rolling_run(&a, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&a, fixture_series(u), &o, &err), HC_OK);
 	o.from_scratch = 1;
-	assert_int_equal(hc_rolling_run(&b, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&b, fixture_series(u), &o, &err), HC_OK);
 	assert_int_equal(a->nwindows, 2041);
 	for (j = 0; j < a->nwindows; j++) {
 		const struct rolling_window *x = &a->windows[j], *y = &b->windows[j];
@@ -242,7 +242,7 @@ static void test_rolling_counts_rise_after_regime_change(void **state)
 	(void)state;
 	opts(&o, 60, 12);
 	o.rules.selected = RULES_FLAG(RULES_NEAR_FLOOR) | RULES_FLAG(RULES_TRACKING_ERROR);
-	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), &o, &err), HC_OK);
 	for (j = 0; j < r->nwindows; j++) {
 		const struct rolling_window *w = &r->windows[j];
 		assert_true(w->rules[0].met);
@@ -275,7 +275,7 @@ static void test_rolling_window_without_figures(void **state)
 		u->x[k] = u->x[48 + k] = NAN;
 	u->has_missing = 1;
 	opts(&o, 12, 12);
-	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 4);
 	assert_int_equal(r->windows[0].status, HC_EDATA);
 	assert_int_equal(r->windows[1].status, HC_EDATA);
@@ -307,7 +307,7 @@ static void test_rolling_bootstrap_interval(void **state)
 	opts(&o, 48, 24);
 	o.replicates = 64;
 	o.boot.seed = 31337;
-	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 2);
 	assert_int_equal(hc_universe_window(&w, u, 24, 48, UNIVERSE_MISSING_COMPLETE, 0.8, &err), HC_OK);
 	bo = o.boot;
@@ -349,7 +349,7 @@ static void test_rolling_report_contract(void **state)
 
 	(void)state;
 	opts(&o, 24, 8);
-	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), &o, &err), HC_OK);
 	assert_int_equal(hc_rolling_report(rep, r, &err), HC_OK);
 	t = rep->tables[0];
 	assert_int_equal(t->ncols, sizeof want / sizeof *want);
@@ -368,7 +368,7 @@ static void expect_usage(const struct universe *u, const struct rolling_options 
 	struct rolling_result *r = (void *)1;
 	struct hc_error err;
 
-	assert_int_equal(hc_rolling_run(&r, u, o, &err), HC_EUSAGE);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), o, &err), HC_EUSAGE);
 	assert_null(r);
 	assert_non_null(strstr(err.message, what));
 }
@@ -418,7 +418,7 @@ static void test_rolling_allocation_failure(void **state)
 	o.refresh = 4;
 	for (k = 0;; k++) {
 		hc_alloc_fail_after(k);
-		rc = hc_rolling_run(&r, u, &o, &err);
+		rc = hc_rolling_run(&r, fixture_series(u), &o, &err);
 		hc_alloc_fail_after(-1);
 		if (rc == HC_OK)
 			break;
@@ -445,7 +445,7 @@ static void test_rolling_pairwise_policy(void **state)
 	u->has_missing = 1;
 	opts(&o, 40, 10);
 	o.missing = UNIVERSE_MISSING_PAIRWISE;
-	assert_int_equal(hc_rolling_run(&r, u, &o, &err), HC_OK);
+	assert_int_equal(hc_rolling_run(&r, fixture_series(u), &o, &err), HC_OK);
 	assert_int_equal(r->nwindows, 3);
 	assert_int_equal(r->windows[1].securities, 8);
 	assert_int_equal(hc_universe_window(&w, u, 10, 40, UNIVERSE_MISSING_PAIRWISE, 0.8, &err), HC_OK);

@@ -43,6 +43,8 @@
 #include <gsl/gsl_sort.h>
 #include <gsl/gsl_statistics_double.h>
 
+#include "fixture.h"
+#include "holdcount/paths.h"
 #include "holdcount/bootstrap.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
@@ -555,8 +557,8 @@ static void test_rules_sampled_matrix_agrees_with_returns(void **state)
 		so.seed = 77 + c;
 		so.threads = 1;
 		so.periods_per_year = 12;
-		assert_int_equal(hc_rules_sampled(&cfg, u, &so, 0.0, cbar, rr, &nr, &kr, &err), HC_OK);
-		assert_int_equal(hc_rules_sampled_matrix(&cfg, a, m, &so, 0.0, cbar, rm, &nm, &km, &err), HC_OK);
+		assert_int_equal(hc_rules_sampled(&cfg, fixture_series(u), &so, 0.0, cbar, rr, &nr, &kr, &err), HC_OK);
+		assert_int_equal(hc_rules_sampled(&cfg, fixture_matrix(a, m), &so, 0.0, cbar, rm, &nm, &km, &err), HC_OK);
 		assert_int_equal(nr, 1);
 		assert_int_equal(nm, 1);
 		assert_int_equal(rm[0].rule, RULES_BAND);
@@ -570,7 +572,7 @@ static void test_rules_sampled_matrix_agrees_with_returns(void **state)
 			assert_true(rm[0].count > RULES_SAMPLED_FIRST_K && km == m);
 		/* shortfall compounds returns over time: not from a matrix */
 		cfg.selected |= RULES_FLAG(RULES_LAG_SHARE);
-		assert_int_equal(hc_rules_sampled_matrix(&cfg, a, m, &so, 0.0, cbar, rm, &nm, &km, &err), HC_EUSAGE);
+		assert_int_equal(hc_rules_sampled(&cfg, fixture_matrix(a, m), &so, 0.0, cbar, rm, &nm, &km, &err), HC_EUSAGE);
 		assert_int_equal(nm, 0);
 		assert_non_null(strstr(err.message, "covariance matrix has none"));
 		free(a);
@@ -755,12 +757,12 @@ static void test_rules_bootstrap_percentiles(void **state)
 	/* every percentile is some replicate's count: against the definition by
 	 * enumeration on 400 random sets of 1..300 replicates, some not met */
 	for (k = 0; k < 400; k++) {
-		size_t n = 1 + hc_sampler_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
+		size_t n = 1 + hc_paths_splitmix64(&st) % 300, j, *c = malloc(n * sizeof *c);
 		struct rule_result r;
 
 		assert_non_null(c);
 		for (j = 0; j < n; j++) {
-			uint64_t z = hc_sampler_splitmix64(&st);
+			uint64_t z = hc_paths_splitmix64(&st);
 			c[j] = z % 23 == 0 ? 0 : 9 + z % 41;
 		}
 		memcpy(counts, c, n * sizeof *c);
@@ -942,7 +944,7 @@ static void test_rules_alexeev_tapon_matches_enumeration(void **state)
 	su2 /= (double)(m * m);
 	vbar /= (double)m;
 	cbar /= (double)(m * (m - 1));
-	assert_int_equal(hc_moments_from_matrix(&mo, a, m, &err), HC_OK);
+	assert_int_equal(hc_moments_from_source(&mo, fixture_matrix(a, m), &err), HC_OK);
 	for (c = 0; c < sizeof xq / sizeof xq[0]; c++) {
 		hc_rules_config_init(&cfg);
 		cfg.at_x = xq[c][0];
@@ -986,7 +988,7 @@ static void test_rules_alexeev_tapon_matches_enumeration(void **state)
 		so.seed = 91 + c;
 		so.threads = 1;
 		so.periods_per_year = 12;
-		assert_int_equal(hc_rules_sampled_matrix(&cfg, a, m, &so, vbar, cbar, rs, &ns, NULL, &err), HC_OK);
+		assert_int_equal(hc_rules_sampled(&cfg, fixture_matrix(a, m), &so, vbar, cbar, rs, &ns, NULL, &err), HC_OK);
 		assert_int_equal(ns, 1);
 		assert_true(rs[0].met);
 		assert_int_equal(rs[0].count, enum_count);

@@ -18,6 +18,7 @@
 #include <gsl/gsl_errno.h>
 
 #include "fixture.h"
+#include "holdcount/paths.h"
 #include "holdcount/memory.h"
 #include "holdcount/sampler.h"
 
@@ -64,7 +65,7 @@ static void test_sampler_splitmix64_reference(void **state)
 	int i;
 
 	for (i = 0; i < 5; i++)
-		assert_true(hc_sampler_splitmix64(&st) == want[i]);
+		assert_true(hc_paths_splitmix64(&st) == want[i]);
 }
 
 /* (e) The sampled mean variance lies within 4 Monte Carlo standard errors
@@ -87,7 +88,7 @@ static void test_sampler_mean_within_4_se(void **state)
 	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(hc_curve_exact(&c, &mo, sizes, ns, 12.0, &err), HC_OK);
 	options(&opt, K, 20260101, 2);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, ns, &opt, &err), HC_OK);
 	assert_int_equal(r->paths, K);
 	assert_int_equal(r->nsizes, ns);
 	assert_null(r->annual_return);
@@ -127,18 +128,18 @@ static void test_sampler_threads_identical(void **state)
 	options(&opt, 501, 99, 1);
 	opt.want_returns = 1;
 	opt.periods_per_year = 12;
-	assert_int_equal(hc_sampler_run(&r1, u, sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r1, fixture_series(u), sizes, ns, &opt, &err), HC_OK);
 	opt.threads = 2;
-	assert_int_equal(hc_sampler_run(&r2, u, sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r2, fixture_series(u), sizes, ns, &opt, &err), HC_OK);
 	opt.threads = 3;
-	assert_int_equal(hc_sampler_run(&r3, u, sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r3, fixture_series(u), sizes, ns, &opt, &err), HC_OK);
 	assert_memory_equal(r1->variance, r2->variance, 501 * ns * sizeof(double));
 	assert_memory_equal(r1->annual_return, r2->annual_return, 501 * ns * sizeof(double));
 	assert_memory_equal(r1->variance, r3->variance, 501 * ns * sizeof(double));
 	/* And a different seed gives different portfolios. */
 	hc_sampler_result_free(r3);
 	opt.seed = 100;
-	assert_int_equal(hc_sampler_run(&r3, u, sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r3, fixture_series(u), sizes, ns, &opt, &err), HC_OK);
 	assert_memory_not_equal(r1->variance, r3->variance, 501 * ns * sizeof(double));
 	hc_sampler_result_free(r1);
 	hc_sampler_result_free(r2);
@@ -162,8 +163,8 @@ static void test_sampler_sizes_do_not_change_bits(void **state)
 	options(&opt, K, 77, 2);
 	opt.want_returns = 1;
 	opt.periods_per_year = 12;
-	assert_int_equal(hc_sampler_run(&ra, u, a, 3, &opt, &err), HC_OK);
-	assert_int_equal(hc_sampler_run(&rb, u, b, 8, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&ra, fixture_series(u), a, 3, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&rb, fixture_series(u), b, 8, &opt, &err), HC_OK);
 	for (k = 0; k < K; k++)
 		for (j = 0; j < 3; j++) {
 			assert_memory_equal(&ra->variance[k * 3 + j], &rb->variance[k * 8 + jb[j]], sizeof(double));
@@ -210,7 +211,7 @@ static void test_sampler_portfolios_are_subsets(void **state)
 	options(&opt, K, 5, 2);
 	opt.want_returns = 1;
 	opt.periods_per_year = 12;
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 3, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 3, &opt, &err), HC_OK);
 	for (k = 0; k < K; k++) {
 		int hit1 = 0, hit2 = 0;
 		double v1 = r->variance[k * 3], v2 = r->variance[k * 3 + 1];
@@ -281,7 +282,7 @@ static void test_sampler_compound_long_and_lost(void **state)
 		options(&opt, 7, 3, 1);
 		opt.want_returns = 1;
 		opt.periods_per_year = 12;
-		assert_int_equal(hc_sampler_run(&r, u, sizes, 3, &opt, &err), HC_OK);
+		assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 3, &opt, &err), HC_OK);
 		for (k = 0; k < 7; k++) {
 			assert_true(isfinite(r->annual_return[k * 3]) && r->annual_return[k * 3] > -1);
 			/* 2397 roundings of about 1e-16 each: 1e-12 relative */
@@ -303,7 +304,7 @@ static void test_sampler_compound_long_and_lost(void **state)
 		options(&opt, 7, 3, 2);
 		opt.want_returns = 1;
 		opt.periods_per_year = 12;
-		assert_int_equal(hc_sampler_run(&r, u, sizes, 3, &opt, &err), HC_OK);
+		assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 3, &opt, &err), HC_OK);
 		for (k = 0; k < 7; k++)
 			for (j = 0; j < 3; j++)
 				assert_true(r->annual_return[k * 3 + j] == -1.0);
@@ -332,8 +333,8 @@ static void test_sampler_tiny_universes(void **state)
 		assert_non_null(u);
 		fixture_covariance(u, a);
 		options(&opt, K, 9, 2);
-		assert_int_equal(hc_sampler_run(&r, u, sizes, m, &opt, &err), HC_OK);
-		assert_int_equal(hc_sampler_run_matrix(&rm, a, m, sizes, m, &opt, &err), HC_OK);
+		assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, m, &opt, &err), HC_OK);
+		assert_int_equal(hc_sampler_run(&rm, fixture_matrix(a, m), sizes, m, &opt, &err), HC_OK);
 		for (k = 0; k < K; k++) {
 			int hit = 0;
 			double all = 0;
@@ -371,8 +372,8 @@ static void test_sampler_matrix_route_matches_columns(void **state)
 	assert_non_null(a);
 	fixture_covariance(u, a);
 	options(&opt, K, 424242, 2);
-	assert_int_equal(hc_sampler_run(&rc, u, sizes, ns, &opt, &err), HC_OK);
-	assert_int_equal(hc_sampler_run_matrix(&rm, a, m, sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&rc, fixture_series(u), sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&rm, fixture_matrix(a, m), sizes, ns, &opt, &err), HC_OK);
 	for (i = 0; i < K * ns; i++)
 		assert_close(rc->variance[i], rm->variance[i], 0, 1e-11);
 	hc_sampler_result_free(rc);
@@ -402,7 +403,7 @@ static void test_sampler_summary_brute_force(void **state)
 	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(hc_curve_exact(&c, &mo, sizes, ns, 12.0, &err), HC_OK);
 	options(&opt, K, 3, 0);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, ns, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, ns, &opt, &err), HC_OK);
 	assert_int_equal(hc_sampler_summarise(c, r, &err), HC_OK);
 	for (j = 0; j < ns; j++) {
 		mean = ms = ss = 0;
@@ -454,34 +455,34 @@ static void test_sampler_rejects_bad_requests(void **state)
 
 	assert_non_null(u);
 	options(&opt, 100, 1, 1);
-	/* Stratified draws are strata.c's (tests/test_strata.c); here only
-	 * that a mode without strata is refused. */
+	/* Stratified draws are strata.c's (tests/test_strata.c), which builds
+	 * on this module: asked of the sampler, they are refused. */
 	opt.strata = NULL;
 	opt.nstrata = 1;
 	opt.stratify = SAMPLER_STRATA_PROPORTIONAL;
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &opt, &err), HC_EUSAGE);
-	assert_string_equal(err.message, "stratified sampling needs every security's stratum");
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_EUSAGE);
+	assert_string_equal(err.message, "stratified draws are hc_strata_run's (strata.h)");
 	assert_null(r);
 	(void)strata;
 	options(&opt, 0, 1, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_EUSAGE);
 	assert_string_equal(err.message, "no paths to sample");
 	options(&opt, 10, 1, 1);
-	assert_int_equal(hc_sampler_run(&r, u, big, 2, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), big, 2, &opt, &err), HC_EUSAGE);
 	assert_string_equal(err.message, "size 13 is larger than the 12 securities kept");
-	assert_int_equal(hc_sampler_run(&r, u, zero, 1, &opt, &err), HC_EUSAGE);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 0, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), zero, 1, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 0, &opt, &err), HC_EUSAGE);
 	opt.threads = -2;
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_EUSAGE);
 	opt.threads = 1;
 	opt.want_returns = 1;
 	opt.periods_per_year = 0;
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_EUSAGE);
 	opt.periods_per_year = 12;
-	assert_int_equal(hc_sampler_run_matrix(&r, a, 2, sizes, 1, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_matrix(a, 2), sizes, 1, &opt, &err), HC_EUSAGE);
 	opt.want_returns = 0;
 	u->has_missing = 1;
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &opt, &err), HC_EUSAGE);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "needs complete data"));
 	u->has_missing = 0;
 
@@ -489,13 +490,13 @@ static void test_sampler_rejects_bad_requests(void **state)
 	options(&opt, 1000, 1, 1);
 	opt.progress = stop_early;
 	opt.progress_ctx = &calls;
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &opt, &err), HC_EINTERRUPT);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_EINTERRUPT);
 	assert_null(r);
 	assert_int_equal(calls, 20);
 
 	/* Summaries of mismatched sizes. */
 	options(&opt, 10, 1, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &opt, &err), HC_OK);
+	assert_int_equal(hc_sampler_run(&r, fixture_series(u), sizes, 2, &opt, &err), HC_OK);
 	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(hc_curve_exact(&c, &mo, other, 2, 12, &err), HC_OK);
 	assert_int_equal(hc_sampler_summarise(c, r, &err), HC_EUSAGE);
@@ -527,8 +528,8 @@ static void test_sampler_allocation_failure(void **state)
 	for (route = 0; route < 2; route++) {
 		for (k = 0;; k++) {
 			hc_alloc_fail_after(k);
-			rc = route ? hc_sampler_run_matrix(&r, a, 8, sizes, 3, &opt, &err)
-				   : hc_sampler_run(&r, u, sizes, 3, &opt, &err);
+			rc = route ? hc_sampler_run(&r, fixture_matrix(a, 8), sizes, 3, &opt, &err)
+				   : hc_sampler_run(&r, fixture_series(u), sizes, 3, &opt, &err);
 			hc_alloc_fail_after(-1);
 			if (rc == HC_OK)
 				break;

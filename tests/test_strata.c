@@ -17,6 +17,7 @@
 #include <gsl/gsl_errno.h>
 
 #include "fixture.h"
+#include "holdcount/paths.h"
 #include "holdcount/memory.h"
 #include "holdcount/report.h"
 #include "holdcount/strata.h"
@@ -69,7 +70,7 @@ static void per_stratum(const size_t *of, const size_t *mem, size_t n, size_t S,
 /* Uniforms for hc_strata_cap_draw: splitmix64's top 53 bits. */
 static double splitmix_uniform(void *ctx)
 {
-	return (double)(hc_sampler_splitmix64(ctx) >> 11) * 0x1.0p-53;
+	return (double)(hc_paths_splitmix64(ctx) >> 11) * 0x1.0p-53;
 }
 
 static void options(struct sampler_options *o, const size_t *of, size_t S, int mode, size_t k,
@@ -180,7 +181,7 @@ static void test_strata_one_per_stratum_is_one_portfolio(void **state)
 	}
 	v = subset_variance(u, all, 7);
 	options(&o, of, 7, SAMPLER_STRATA_CAP, 1, 300, 9);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 2, &o, &err), HC_OK);
 	for (k = 0; k < 300; k++)
 		assert_true(rel(r->variance[k * 2 + 1], v) < 1e-13);  /* rounding of 7-term sums */
 	assert_true(r->feasible[0] && r->feasible[1]);
@@ -334,7 +335,7 @@ static void test_strata_cap_mean_matches_enumeration(void **state)
 		}
 	}
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 2, K, 4242);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 7, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 7, &o, &err), HC_OK);
 	for (j = 0; j < 7; j++) {
 		long double s1 = 0, s2 = 0;
 		double mean, se;
@@ -379,8 +380,8 @@ static void test_strata_expected_variance_matches_enumeration(void **state)
 	(void)state;
 	fixture_covariance(u, a);
 	assert_int_equal(hc_strata_alloc(&s, of, 10, 3, &err), HC_OK);
-	assert_int_equal(hc_strata_moments_from_universe(&sm, u, s, &err), HC_OK);
-	assert_int_equal(hc_strata_moments_from_matrix(&smm, a, 10, s, &err), HC_OK);
+	assert_int_equal(hc_strata_moments_from_source(&sm, fixture_series(u), s, &err), HC_OK);
+	assert_int_equal(hc_strata_moments_from_source(&smm, fixture_matrix(a, 10), s, &err), HC_OK);
 	for (n = 1; n <= 10; n++) {
 		double sum = 0, num = 0, ex;
 		assert_int_equal(hc_strata_proportional(s, n, alloc, &err), HC_OK);
@@ -398,7 +399,7 @@ static void test_strata_expected_variance_matches_enumeration(void **state)
 		assert_true(rel(hc_strata_expected_variance(smm, s, alloc), ex) < 1e-12);
 	}
 	options(&o, of, 3, SAMPLER_STRATA_PROPORTIONAL, 0, K, 5150);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 4, &o, &err), HC_OK);
 	assert_int_equal(hc_strata_curve_alloc(&c, r, s, sm, SAMPLER_STRATA_PROPORTIONAL, 0, 12.0, &err), HC_OK);
 	for (q = 0; q < 4; q++) {
 		assert_int_equal(hc_strata_proportional(s, sizes[q], alloc, &err), HC_OK);
@@ -441,13 +442,13 @@ static void test_strata_draws_reproducible(void **state)
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 4, 64, 99);
 	o.want_returns = 1;
 	o.periods_per_year = 12;
-	assert_int_equal(hc_sampler_run(&r1, u, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_run(&r1, fixture_series(u), sizes, 4, &o, &err), HC_OK);
 	o.threads = 2;
-	assert_int_equal(hc_sampler_run(&r2, u, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_run(&r2, fixture_series(u), sizes, 4, &o, &err), HC_OK);
 	assert_memory_equal(r1->variance, r2->variance, 64 * 4 * sizeof(double));
 	assert_memory_equal(r1->annual_return, r2->annual_return, 64 * 4 * sizeof(double));
 	o.want_returns = 0;
-	assert_int_equal(hc_sampler_run_matrix(&rm, a, 14, sizes, 4, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_run(&rm, fixture_matrix(a, 14), sizes, 4, &o, &err), HC_OK);
 	assert_true(r1->feasible[3]);   /* strata of 5, 5, 4 at most 4 each: 12 fits */
 	for (k = 0; k < 64; k++)
 		for (q = 0; q < 4; q++) {
@@ -495,7 +496,7 @@ static void test_strata_report_columns(void **state)
 		of[j] = j % 3;
 	assert_int_equal(hc_strata_alloc(&s, of, 14, 3, &err), HC_OK);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 4, 50, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 3, &o, &err), HC_OK);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 3, &o, &err), HC_OK);
 	assert_true(r->feasible[0] && r->feasible[1]);
 	assert_false(r->feasible[2]);
 	assert_int_equal(hc_strata_curve_alloc(&c, r, s, NULL, SAMPLER_STRATA_CAP, 4, 12.0, &err), HC_OK);
@@ -535,21 +536,21 @@ static void test_strata_rejects_bad_requests(void **state)
 	(void)state;
 	fixture_covariance(u, a);
 	options(&o, of, 3, SAMPLER_STRATA_NONE, 0, 10, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 2, &o, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "without a way to use them"));
 	assert_null(r);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 0, 10, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 2, &o, &err), HC_EUSAGE);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 2, 0, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 2, &o, &err), HC_EUSAGE);
 	options(&o, of, 3, SAMPLER_STRATA_CAP, 2, 10, 1);
-	assert_int_equal(hc_sampler_run(&r, u, big, 1, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), big, 1, &o, &err), HC_EUSAGE);
 	o.want_returns = 1;
 	o.periods_per_year = 12;
-	assert_int_equal(hc_sampler_run_matrix(&r, a, 6, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_run(&r, fixture_matrix(a, 6), sizes, 2, &o, &err), HC_EUSAGE);
 	o.want_returns = 0;
 	options(&o, bad_of, 3, SAMPLER_STRATA_PROPORTIONAL, 0, 10, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 2, &o, &err), HC_EUSAGE);
 	assert_non_null(strstr(err.message, "stratum 3 of 3"));
 	assert_int_equal(hc_strata_alloc(&s, of, 0, 3, &err), HC_EUSAGE);
 	assert_null(s);
@@ -561,8 +562,8 @@ static void test_strata_rejects_bad_requests(void **state)
 	u->x[5] = NAN;
 	u->has_missing = 1;
 	options(&o, of, 3, SAMPLER_STRATA_PROPORTIONAL, 0, 10, 1);
-	assert_int_equal(hc_sampler_run(&r, u, sizes, 2, &o, &err), HC_EUSAGE);
-	assert_int_equal(hc_strata_moments_from_universe((struct strata_moments **)&r, u, s, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_run(&r, fixture_series(u), sizes, 2, &o, &err), HC_EUSAGE);
+	assert_int_equal(hc_strata_moments_from_source((struct strata_moments **)&r, fixture_series(u), s, &err), HC_EUSAGE);
 	hc_strata_cap_free(cap);
 	hc_strata_free(s);
 	fixture_free(u);
@@ -589,7 +590,7 @@ static void test_strata_allocation_failure(void **state)
 		options(&o, of, 3, mode, 2, 5, 1);
 		for (k = 0;; k++) {
 			hc_alloc_fail_after(k);
-			rc = hc_sampler_run(&r, u, sizes, 2, &o, &err);
+			rc = hc_strata_run(&r, fixture_series(u), sizes, 2, &o, &err);
 			hc_alloc_fail_after(-1);
 			if (rc == HC_OK)
 				break;
@@ -601,7 +602,7 @@ static void test_strata_allocation_failure(void **state)
 	assert_int_equal(hc_strata_alloc(&s, of, 8, 3, &err), HC_OK);
 	for (k = 0;; k++) {
 		hc_alloc_fail_after(k);
-		rc = hc_strata_moments_from_universe(&sm, u, s, &err);
+		rc = hc_strata_moments_from_source(&sm, fixture_series(u), s, &err);
 		if (rc == HC_OK)
 			rc = hc_strata_curve_alloc(&c, r, s, sm, SAMPLER_STRATA_CAP, 2, 12.0, &err);
 		hc_alloc_fail_after(-1);

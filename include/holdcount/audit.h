@@ -184,46 +184,29 @@ struct audit_result {
 };
 
 /*
- * Audit every fund of h against u (complete return series) and mo (its
- * moments, from hc_moments_from_universe).  *out points into h, u and the
- * sector map, which must outlive it.
+ * Audit every fund of h against the data source s (source.h) and mo (its
+ * moments, hc_moments_from_source; NULL: computed here, from the matrix
+ * when funds' risk is taken from one, so that a fund's equivalent count
+ * compares like with like).  Complete series: a fund's risk from
+ * its portfolio's return series.  A matrix (a covariance matrix, or the
+ * pairwise-complete covariances of series with gaps; build such a source
+ * with need_matrix): a fund's variance is the quadratic form w'Aw of its
+ * in-matrix weights, the diversification ratio uses sigma_i = sqrt(a_ii);
+ * the matrix must be positive semi-definite (source.h applies that policy);
+ * a fund whose w'Aw is negative gets no sd.  The percentile's random
+ * portfolios come from hc_sampler_run (same seed, same portfolios for either
+ * kind).  Variances are multiplied by s->periods_per_year.  *out points
+ * into h, s and the sector map, which must outlive it.
  * Errors: HC_EDATA for an id missing from the universe under strict
- * ("HOLDINGS:LINE:COLUMN: ...") or a held security with gaps in u;
- * HC_EUSAGE for a sector rule without a map or a bad option;
- * HC_ENOMEM; HC_EINTERRUPT from the progress callback; sampler errors.
- * A failed policy is not an error: see result->failed_funds.
+ * ("HOLDINGS:LINE:COLUMN: ..."), fewer than 2 periods or securities;
+ * HC_EUSAGE for a sector rule without a map, a bad option, or series with
+ * gaps and no matrix; HC_ENOMEM; HC_EINTERRUPT from the progress callback;
+ * sampler errors.  A failed policy is not an error: see
+ * result->failed_funds.
  */
 int hc_audit_run(struct audit_result **out, const struct holdings *h,
-	      const struct universe *u, const struct moments *mo,
-	      const struct audit_options *opt, struct hc_error *err);
-
-/* A covariance matrix to audit against instead of return series. */
-struct covmatrix;
-struct audit_matrix {
-	const struct covmatrix *cm;       /* ids and covariances, per period (or its own scale) */
-	const char *source;               /* the file, for messages and the report */
-	const char *input;                /* static, for the report; NULL = "covariance matrix" */
-	double periods_per_year;          /* variances are multiplied by it; 1 when not annualised */
-	int annualised;                   /* 0: figures on the matrix's own scale */
-	size_t periods;                   /* periods behind cm, reported; 0 = unknown */
-	const struct universe *history;   /* the returns cm came from, or NULL: names dropped ids */
-};
-
-/*
- * The same audit against a covariance matrix (a risk model's output, or
- * the pairwise-complete covariances of a history with gaps): a fund's
- * variance is the quadratic form w'Aw of its in-matrix weights, the
- * diversification ratio uses sigma_i = sqrt(a_ii), and the percentile's
- * random portfolios come from hc_sampler_run_matrix (same seed, same
- * portfolios as hc_sampler_run).  mo from hc_moments_from_matrix(cm).  cm must be
- * positive semi-definite (see hc_covmatrix_nearest_psd); a fund whose w'Aw is
- * negative gets no sd.  *out points into h, am->cm and the sector map.
- * Errors as hc_audit_run, and HC_EUSAGE for a bad periods_per_year, HC_EDATA
- * for fewer than 2 securities.
- */
-int hc_audit_run_matrix(struct audit_result **out, const struct holdings *h,
-		     const struct audit_matrix *am, const struct moments *mo,
-		     const struct audit_options *opt, struct hc_error *err);
+		 const struct hc_source *s, const struct moments *mo,
+		 const struct audit_options *opt, struct hc_error *err);
 
 /* Free a and everything it owns; NULL is a no-op. */
 void hc_audit_result_free(struct audit_result *a);

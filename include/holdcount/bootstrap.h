@@ -35,13 +35,17 @@ enum bootstrap_kind {
 };
 
 #define BOOTSTRAP_DEFAULT_REPLICATES 1000
+/* The most replicates one run takes: ten million (its two averages are
+ * 160 MB), far beyond what a 5-95% interval needs, and far below the
+ * counts whose array sizes wrap. */
+#define HC_BOOTSTRAP_MAX_REPLICATES 10000000u
 
 /* Progress callback, as the sampler's: done of total; nonzero stops
  * (HC_EINTERRUPT).  Called from one thread only.  May be NULL. */
 typedef int (*bootstrap_progress_fn)(void *ctx, size_t done, size_t total);
 
 struct bootstrap_options {
-	size_t replicates;         /* B >= 1 */
+	size_t replicates;         /* 1 <= B <= HC_BOOTSTRAP_MAX_REPLICATES */
 	int kind;                  /* enum bootstrap_kind */
 	size_t block_length;       /* L; 0 = hc_bootstrap_default_block_length(T) */
 	uint64_t seed;
@@ -77,6 +81,8 @@ struct bootstrap_base {
 	double *rowsum;            /* t */
 	double *gram;              /* t*t row-major, full symmetric; NULL when the direct route is used */
 	double *xc;                /* m*t centred data, security-major; NULL when gram is used */
+	size_t max_bytes;          /* the universe's memory budget (memory.h): the base's and
+				    * each run's arrays are checked against it */
 };
 
 /* From complete data (u->has_missing == 0, m >= 2, t >= 2; else HC_EDATA). */

@@ -29,8 +29,19 @@ enum hc_status {
 	HC_EIO = 4,       /* a file could not be read, written or renamed */
 	HC_ENOMEM = 5,    /* out of memory, or input larger than the memory budget */
 	HC_EINTERNAL = 6, /* a numerical library failed or an invariant broke */
-	HC_EINTERRUPT = 7 /* stopped by a signal before finishing */
+	HC_EINTERRUPT = 7, /* stopped by a signal before finishing */
+	HC_ERESOURCE = 8, /* the system refused a resource other than memory:
+			   * a thread or process (RLIMIT_NPROC, a pids limit) */
+	HC_ERENDER = 9,   /* the renderer (gnuplot) failed on a script the
+			   * tool wrote; the data and tables were fine */
+	HC_EINSUFFICIENT = 10 /* the input is well formed but holds too little
+			   * data for the question (e.g. a fund whose holdings
+			   * the universe covers too thinly) */
 };
+
+/* The highest status; exit statuses above it are not holdcount's own
+ * (a shell reports 128 + N for a process killed by signal N). */
+#define HC_STATUS_MAX HC_EINSUFFICIENT
 
 #define HC_ERROR_MESSAGE_MAX 1024
 

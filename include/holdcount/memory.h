@@ -28,6 +28,18 @@ char *hc_strdup(const char *s);
 char *hc_strndup(const char *s, size_t n);
 
 /*
+ * Room for one more element in an array p of n elements (of size bytes)
+ * allocated for *cap: p itself while n < *cap; else p grown by doubling
+ * (to first elements when *cap is 0) through hc_reallocarray, with *cap
+ * updated.  NULL when out of memory, with p and *cap unchanged (p still
+ * the caller's).  The one grow-by-doubling of the library:
+ *     nf = hc_grow(r->fields, &r->cap_fields, r->nfields, sizeof *nf, 16);
+ *     if (!nf) return HC_ENOMEM;
+ *     r->fields = nf;
+ */
+void *hc_grow(void *p, size_t *cap, size_t n, size_t size, size_t first);
+
+/*
  * Fault injection: after n more successful allocations, every allocation
  * fails (returns NULL) until hc_alloc_fail_after(-1) turns it off.
  * hc_alloc_count() returns how many allocations succeeded since start.
@@ -36,8 +48,18 @@ char *hc_strndup(const char *s, size_t n);
 void hc_alloc_fail_after(long n);
 unsigned long hc_alloc_count(void);
 
-/* Multiply with overflow check: returns 0 and sets *out, or -1 on overflow. */
+/*
+ * Checked size arithmetic: every product or sum of sizes that a user's
+ * numbers reach (--bootstrap, --paths, --securities, a file's M and T) goes
+ * through these, so a huge value is refused instead of wrapping into a
+ * small allocation (2^61 + 1 replicates of 8 bytes once became 8 bytes).
+ * Each returns 0 and sets *out, or -1 on overflow (*out untouched).
+ * hc_mallocarray is hc_malloc(n * size) with the product checked: NULL on
+ * overflow, as for out of memory.
+ */
 int hc_mul_size(size_t a, size_t b, size_t *out);
+int hc_add_size(size_t a, size_t b, size_t *out);
+void *hc_mallocarray(size_t n, size_t size);
 
 /*
  * Memory budget.  Large inputs are refused with a message (HC_ENOMEM) before

@@ -31,6 +31,11 @@ enum moments_route {
  * buffer holds MOMENTS_BLOCK_ROWS x M doubles, 10 MB for M = 5000). */
 #define MOMENTS_BLOCK_ROWS 256
 
+/* An average sd above this a year (300%) is taken as a unit mistake, such as
+ * variances given in percent squared (common practice: even single stocks
+ * rarely exceed 100% a year); enough and formula say so in a note. */
+#define HC_MOMENTS_IMPLAUSIBLE_SD 3.0
+
 struct moments {
 	size_t m;                  /* securities; 0 = unbounded universe (summary only) */
 	size_t t;                  /* periods behind the estimate; 0 when unknown */
@@ -91,14 +96,34 @@ int hc_moments_from_universe_route(struct moments *mo, const struct universe *u,
  * *a is NULL on error. */
 int hc_moments_covariance(const struct universe *u, double **a, struct hc_error *err);
 
-/* From an M x M covariance matrix a (row-major, symmetric; only read).
- * Average correlation is computed from it too. */
-int hc_moments_from_matrix(struct moments *mo, const double *a, size_t m,
-			struct hc_error *err);
+/*
+ * The moments of a data source (source.h): from its series as
+ * hc_moments_from_universe does (the pairwise route for data with gaps), or
+ * from its M x M covariance matrix (route MOMENTS_ROUTE_GIVEN; the average
+ * correlation from it too) when the source is a matrix or a repaired
+ * pairwise matrix.  A matrix's errors carry its name as prefix.  HC_EDATA
+ * when fewer than 2 securities; errors as hc_moments_from_universe.
+ */
+struct hc_source;
+int hc_moments_from_source(struct moments *mo, const struct hc_source *src,
+			   struct hc_error *err);
+
+/* The averages summary statistics give: vbar = variance when it is a
+ * number, else sd squared; cbar = covariance when it is a number, else
+ * correlation times vbar (the equal-variance reading: common practice, no
+ * single source).  Pass NAN for what was not given.  Cannot fail. */
+void hc_moments_summary_averages(double variance, double covariance, double sd, double correlation,
+				 double *vbar, double *cbar);
+
+/* The most securities a summary may name: far beyond any market, and far
+ * below the counts at which M, M - 1 and the size grid lose their meaning
+ * in double arithmetic or wrap in a signed 64-bit count (2^63). */
+#define HC_MOMENTS_MAX_SECURITIES 1000000000u
 
 /* From summary statistics: average variance vbar, average covariance cbar,
  * m securities (0 = unbounded).  No spread; correlation cbar/vbar is used
- * only as an approximation and flagged has_correlation = 0. */
+ * only as an approximation and flagged has_correlation = 0.  HC_EUSAGE
+ * when m is above HC_MOMENTS_MAX_SECURITIES. */
 int hc_moments_from_summary(struct moments *mo, double vbar, double cbar,
 			 size_t m, struct hc_error *err);
 

@@ -8,6 +8,15 @@
  * A NAME that is a symbolic link is written through: the temporary is made
  * beside the file the link points at, and replaces that file; the link
  * stays (a dangling link's target is created).
+ *
+ * Only a regular file (or a name not there yet) is replaced.  Any other
+ * target is written in place, as a shell's `>` would: a device such as
+ * /dev/null or a FIFO is opened without O_CREAT or O_TRUNC, and a name for
+ * a descriptor the process already has (/dev/stdout, /dev/stderr,
+ * /dev/fd/N, /proc/self/fd/N, or a link to one) is written through a
+ * duplicate of it, keeping its offset and O_APPEND (`-o /dev/stdout >> log`
+ * appends).  What was written in place cannot be taken back on abort.  A
+ * directory is refused (HC_EIO).
  */
 #ifndef HOLDCOUNT_OUTFILE_H
 #define HOLDCOUNT_OUTFILE_H
@@ -23,7 +32,8 @@ extern "C" {
 struct outfile {
 	FILE *fp;
 	char *path;     /* final name, NULL for stdout */
-	char *tmp;      /* temporary name */
+	char *tmp;      /* temporary name (NULL when written in place) */
+	int in_place;   /* a device, FIFO or inherited descriptor: no temporary */
 };
 
 /* Start writing path (NULL or "-": standard output) through of->fp; the

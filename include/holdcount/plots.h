@@ -115,9 +115,11 @@ int hc_plots_find_gnuplot(const char *path_env, char *buf, size_t size);
  * Run gnuplot (the path from hc_plots_find_gnuplot) on script inside dir, with
  * dir as its working directory, its standard output discarded and its
  * standard error captured.  Any output on standard error containing
- * "warning" (any case), or a non-zero exit, is a failure: HC_EINTERNAL with
+ * "warning" (any case), or a non-zero exit, is a failure: HC_ERENDER with
  * gnuplot's first message line in err (the scripts are ours, so a warning is
- * a fault to fix, not to hide).  HC_EIO when gnuplot cannot be started.
+ * a fault to fix, not to hide).  HC_ERESOURCE when gnuplot cannot be
+ * started for a process limit (EAGAIN), HC_EIO when it cannot be started
+ * otherwise.
  */
 int hc_plots_render(const char *gnuplot, const char *dir, const char *script,
 		 struct hc_error *err);

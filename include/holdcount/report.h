@@ -124,13 +124,28 @@ int hc_report_table_set_none(struct report_table *t, size_t row, size_t col, con
  * renders r to fp and returns HC_OK, HC_EIO when fp reports a write error,
  * or HC_ENOMEM, with err filled; fp is not closed. */
 struct report_writer {
-	const char *name;          /* "table", "csv", "json" */
+	const char *name;          /* "table", "csv", "json", "markdown" */
 	int (*write)(FILE *fp, const struct report *r, struct hc_error *err);
 };
 
 extern const struct report_writer *const hc_report_writer_text;
 extern const struct report_writer *const hc_report_writer_csv;
 extern const struct report_writer *const hc_report_writer_json;
+/* Markdown: the fields as a "- title: value" list, each table under a
+ * "### title" heading with every column (numbers right-aligned), the notes
+ * as a list; numbers as the text writer prints them (hc_report_value_text),
+ * '|' escaped. */
+extern const struct report_writer *const hc_report_writer_markdown;
+
+/* The Markdown pieces the writer above is made of, for documents that
+ * compose several reports (reportset.h's summary.md): one value (style as
+ * given; '|' escaped, line breaks as spaces), the cell of column key in row
+ * (a no-value cell when t has no such column), and a table of the given
+ * columns {key, heading} of t, rows where keep(t, row, ctx) (NULL: all). */
+void hc_report_md_value(FILE *fp, const struct report_value *v, int style);
+const struct report_value *hc_report_md_cell(const struct report_table *t, size_t row, const char *key);
+void hc_report_md_table(FILE *fp, const struct report_table *t, const char *const (*cols)[2], size_t ncols,
+			int (*keep)(const struct report_table *, size_t, const void *), const void *ctx);
 
 /* The table of r whose key is key; NULL when there is none. */
 const struct report_table *hc_report_find_table(const struct report *r, const char *key);
@@ -143,12 +158,35 @@ const struct report_table *hc_report_find_table(const struct report *r, const ch
  * the table) when r has no table of that key, HC_EIO when fp fails. */
 int hc_report_write_csv_part(FILE *fp, const struct report *r, const char *table, struct hc_error *err);
 
+/* text onto fp word by word, the cursor at column col: a word that would
+ * pass column width starts a new line indented by indent; a final newline.
+ * Words are split at spaces only.  (The notes of the text writer, and the
+ * command's help.) */
+void hc_report_wrap(FILE *fp, const char *text, size_t col, size_t indent, size_t width);
+
+/* The reading form of v, as the text writer prints it (styles, "yes"/"no",
+ * "-" or the reason for no value; never "-0.00%": a value that rounds to
+ * zero is zero), into buf or pointing into v. */
+const char *hc_report_value_text(char *buf, size_t size, const struct report_value *v);
+
+/* One JSON object: "holdcount_version": version, then each reports[i] as
+ * the JSON writer renders it under keys[i] (null when reports[i] is NULL),
+ * built as one tree.  HC_EINTERNAL (a key named twice in a report),
+ * HC_ENOMEM, HC_EIO. */
+int hc_report_write_json_set(FILE *fp, const char *version, const char *const *keys,
+			     const struct report *const *reports, size_t n, struct hc_error *err);
+
 /* Look a writer up by name ("table", "csv", "json"); NULL when unknown. */
 const struct report_writer *hc_report_writer_find(const char *name);
 
 /* The cautions every output carries (design.md section 9); adds them as
  * notes.  HC_OK or HC_ENOMEM. */
 int hc_report_add_cautions(struct report *r);
+
+/* The fields that state the scale: periods_per_year (a number, or none when
+ * not annualised) and annualisation (a sentence).  0, or non-zero when out
+ * of memory. */
+int hc_report_add_scale(struct report *r, double periods_per_year, int annualised);
 
 #ifdef __cplusplus
 }

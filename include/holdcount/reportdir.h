@@ -10,15 +10,21 @@
  *     complete, by swapping the two atomically (renameat2 RENAME_EXCHANGE,
  *     Linux 3.15 and later; elsewhere two renames, between which DIR is
  *     briefly absent), and the old report is then removed.  DIR must be an
- *     earlier report (it holds summary.json or summary.md) or empty: a
- *     folder of other files is never replaced.
+ *     earlier report (it holds the signature file ".holdcount-report" that
+ *     every finished folder gets) or empty: a folder of other files, even
+ *     one holding a summary.md, is never replaced.
  * An interrupted run therefore leaves the previous report intact, or none.
  * The temporary folder is private (0700, as mkdtemp makes it); the
  * finished one has mode 0777 less the process's umask, as mkdir(2) gives.
  * A SIGINT/SIGTERM handler calls hc_reportdir_unlink_pending to remove the
  * temporary folder.  After SIGKILL the "DIR.tmp-XXXXXX" folder stays behind;
- * the next hc_reportdir_begin for the same DIR removes every such folder whose
- * marker names a process that no longer runs.
+ * the next hc_reportdir_begin for the same DIR removes every such folder that
+ * is provably a dead run's: its marker ("holdcount-incomplete", then pid,
+ * host and boot id lines) is not flock'ed by a live writer (a live run holds
+ * the lock on its marker until it commits or gives up, so a run in another
+ * container on the same kernel never removes it), and names this kernel's
+ * boot id or this host.  The marker is removed last, so a removal cut short
+ * leaves a folder still marked.
  *
  * One report folder at a time per process (the signal handler's record is
  * static).
@@ -38,6 +44,11 @@ extern "C" {
 #define REPORTDIR_MAX_FILES 64
 #define REPORTDIR_NAME_MAX 64
 #define REPORTDIR_MARKER ".holdcount-incomplete"
+#define REPORTDIR_MARKER_TEXT "holdcount-incomplete"
+/* The signature a finished report folder holds: only a folder with it (or
+ * an empty one) is replaced by force. */
+#define REPORTDIR_SIGNATURE ".holdcount-report"
+#define REPORTDIR_SIGNATURE_TEXT "holdcount report folder"
 
 struct reportdir;
 

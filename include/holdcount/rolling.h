@@ -35,6 +35,7 @@
 #include "holdcount/error.h"
 #include "holdcount/report.h"
 #include "holdcount/rules.h"
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
 
 #ifdef __cplusplus
@@ -94,15 +95,17 @@ struct rolling_result {
 };
 
 /*
- * Run the windows over u (any missing policy at load; UNIVERSE_MISSING_KEEP
- * keeps late listings).  A window whose policy leaves fewer than two
+ * Run the windows over the return series of src (source.h; a covariance
+ * matrix has no periods: HC_EUSAGE).  Build src from a universe loaded
+ * under UNIVERSE_MISSING_KEEP to keep late listings: each window applies
+ * opt's missing-data policy itself.  A window whose policy leaves fewer than two
  * securities, or whose figures cannot be computed, keeps status and a note
  * and no figures; the run goes on.  Errors: HC_EUSAGE (window < 2, window
  * longer than the sample, step 0, bad policy or rules, bootstrap with the
  * pairwise policy), HC_ENOMEM, HC_EINTERRUPT.  *out is NULL on error.
  */
-int hc_rolling_run(struct rolling_result **out, const struct universe *u,
-		const struct rolling_options *opt, struct hc_error *err);
+int hc_rolling_run(struct rolling_result **out, const struct hc_source *src,
+		   const struct rolling_options *opt, struct hc_error *err);
 
 /* Free r and everything it owns; NULL is a no-op. */
 void hc_rolling_result_free(struct rolling_result *r);
@@ -118,6 +121,11 @@ void hc_rolling_result_free(struct rolling_result *r);
  */
 int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 		   struct hc_error *err);
+
+/* After hc_rolling_report: each rule's parameters as fields
+ * (parameters_near_floor, ...) and the note on drifting averages.  0, or
+ * non-zero when out of memory. */
+int hc_rolling_report_context(struct report *r, const struct rolling_result *res);
 
 #ifdef __cplusplus
 }

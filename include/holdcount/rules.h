@@ -223,34 +223,27 @@ int hc_rules_lag_share(const struct rules_config *cfg,
 		    struct rule_result *res, struct hc_error *err);
 
 /*
- * Band, lag-share and alexeev-tapon-sampled (those selected in cfg) by sampling u with so: sizes
- * 1..K, K growing as RULES_SAMPLED_FIRST_K x RULES_SAMPLED_GROWTH^j up to
- * M, until every selected sampled rule is met.  Each stage is a valid
- * sample of random portfolios; the sampler builds sizes by a route that
- * depends on the set of sizes asked for, so a staged run and a full-grid run
- * may draw different portfolios and agree within sampling noise only.
- * vbar and cbar per period (the band's floor, Alexeev-Tapon's removable risk); so->want_returns is set as needed.
- * *largest (may be NULL) gets the last K sampled.  res holds room for 3;
- * *nres gets how many were filled (band, lag-share, alexeev-tapon-sampled).
+ * Band, lag-share and alexeev-tapon-sampled (those selected in cfg) by
+ * sampling src (source.h) with so: sizes 1..K, K growing as
+ * RULES_SAMPLED_FIRST_K x RULES_SAMPLED_GROWTH^j up to M, until every
+ * selected sampled rule is met.  Each stage is a valid sample of random
+ * portfolios; the sampler builds sizes by a route that depends on the set
+ * of sizes asked for, so a staged run and a full-grid run may draw
+ * different portfolios and agree within sampling noise only.  vbar and cbar
+ * per period (the band's floor, Alexeev-Tapon's removable risk);
+ * so->want_returns is set as needed.  *largest (may be NULL) gets the last
+ * K sampled.  res holds room for 3; *nres gets how many were filled (band,
+ * lag-share, alexeev-tapon-sampled).  A source that draws from a matrix (a
+ * covariance matrix, or the pairwise-complete covariances of series with
+ * gaps) draws the same portfolios for the same seed, so the band's count
+ * agrees unless a quantile lies within rounding of the threshold; the
+ * lag-share rule needs each portfolio's returns over time: HC_EUSAGE when
+ * it is selected there.
  */
-int hc_rules_sampled(const struct rules_config *cfg, const struct universe *u,
-		  const struct sampler_options *so, double vbar, double cbar,
-		  struct rule_result *res, size_t *nres, size_t *largest,
-		  struct hc_error *err);
-
-/*
- * The band rule (when selected in cfg) by the same stages as hc_rules_sampled,
- * from the m x m covariance matrix a (row-major, positive semi-definite)
- * through hc_sampler_run_matrix: the same seed draws the same portfolios as
- * hc_rules_sampled on the returns a came from, so the count agrees unless a
- * quantile lies within rounding of the threshold.  The shortfall rule needs
- * each portfolio's returns over time: HC_EUSAGE when it is selected.  res
- * holds room for 1; *nres gets 0 or 1.
- */
-int hc_rules_sampled_matrix(const struct rules_config *cfg, const double *a, size_t m,
-			 const struct sampler_options *so, double vbar, double cbar,
-			 struct rule_result *res, size_t *nres, size_t *largest,
-			 struct hc_error *err);
+int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src,
+		     const struct sampler_options *so, double vbar, double cbar,
+		     struct rule_result *res, size_t *nres, size_t *largest,
+		     struct hc_error *err);
 
 /*
  * Alexeev & Tapon (2014), Journal of Banking & Finance 46: the smallest N

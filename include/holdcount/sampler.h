@@ -15,6 +15,8 @@
 
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
+#include "holdcount/paths.h"
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
 
 #ifdef __cplusplus
@@ -65,29 +67,25 @@ struct sampler_result {
 	uint64_t seed;           /* the seed the paths were drawn from (copied to the curve) */
 };
 
-/* Sample from the return series (complete data: u->has_missing == 0).
- * Every size must be 1..u->m, in any order (duplicates allowed).
+/* Sample random portfolios of src (source.h): from its complete return
+ * series, or, when the source draws from a matrix (a covariance matrix, or
+ * the pairwise-complete covariances of series with gaps), by a running
+ * quadratic form, O(n_max^2) a path, with no returns (want_returns is then
+ * HC_EUSAGE); the same seed draws the same portfolios either way.
+ * Every size must be 1..M, in any order (duplicates allowed).
  * variance[k*nsizes + j] is path k's portfolio of sizes[j] members, per
  * period (divisor T-1).  annual_return, when opt->want_returns, is that
  * portfolio's compound annualised return, rebalanced to equal weights each
  * period: prod(1 + r_t)^(P/T) - 1 with P = opt->periods_per_year.
- * With opt->strata or opt->stratify set, the draws are stratified and
- * hc_strata_run (strata.h) does the work; r->feasible marks the sizes no
- * allocation meets.
- * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, strata without a
- * mode or with a cap of 0), HC_EDATA (fewer
+ * Stratified draws are hc_strata_run's (strata.h, which builds on this
+ * module): opt->strata or opt->stratify set here is HC_EUSAGE.
+ * Errors: HC_EUSAGE (bad size, paths 0, data with gaps, strata),
+ * HC_EDATA (fewer
  * than 2 securities or periods), HC_ENOMEM, HC_EINTERRUPT (progress
  * callback asked to stop).  *out is NULL on error. */
-int hc_sampler_run(struct sampler_result **out, const struct universe *u,
-		const size_t *sizes, size_t nsizes,
-		const struct sampler_options *opt, struct hc_error *err);
-
-/* Sample from a covariance matrix a (m x m row-major): running quadratic
- * form, O(n_max^2) a path.  No returns (want_returns is HC_EUSAGE).
- * Same seed, same portfolios as hc_sampler_run for the same m and sizes. */
-int hc_sampler_run_matrix(struct sampler_result **out, const double *a, size_t m,
-		       const size_t *sizes, size_t nsizes,
-		       const struct sampler_options *opt, struct hc_error *err);
+int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
+		   const size_t *sizes, size_t nsizes,
+		   const struct sampler_options *opt, struct hc_error *err);
 
 /* Fill the sampled columns of c (whose points must have the same sizes, in
  * the same order) from r, scaling by c->periods_per_year: the mean variance,
@@ -102,10 +100,6 @@ int hc_sampler_summarise(struct curve *c, const struct sampler_result *r,
 
 /* Free r and everything it owns; NULL is a no-op. */
 void hc_sampler_result_free(struct sampler_result *r);
-
-/* splitmix64 step (Steele, Lea & Flood, 2014, OOPSLA): advances *state and
- * returns the next output; used to derive per-path seeds. */
-uint64_t hc_sampler_splitmix64(uint64_t *state);
 
 #ifdef __cplusplus
 }

@@ -106,13 +106,12 @@ struct strata_moments {
 	double *block;
 };
 
-/* *out is new (hc_strata_moments_free) or NULL on error.  HC_EUSAGE when u has
- * gaps, fewer than 2 periods or not s->m securities (from_universe), or
- * m != s->m (from_matrix); HC_ENOMEM. */
-int hc_strata_moments_from_universe(struct strata_moments **out, const struct universe *u,
-				 const struct strata *s, struct hc_error *err);
-int hc_strata_moments_from_matrix(struct strata_moments **out, const double *a, size_t m,
-			       const struct strata *s, struct hc_error *err);
+/* From src's complete series, or from its matrix when it draws from one
+ * (source.h).  *out is new (hc_strata_moments_free) or NULL on error.
+ * HC_EUSAGE when the series have gaps, fewer than 2 periods or not s->m
+ * securities, or the matrix is not s->m square; HC_ENOMEM. */
+int hc_strata_moments_from_source(struct strata_moments **out, const struct hc_source *src,
+				  const struct strata *s, struct hc_error *err);
 /* Free sm and everything it owns; NULL is a no-op. */
 void hc_strata_moments_free(struct strata_moments *sm);
 
@@ -128,8 +127,8 @@ double hc_strata_expected_variance(const struct strata_moments *sm, const struct
 				const size_t *alloc);
 
 /*
- * Stratified sampling, as hc_sampler_run / hc_sampler_run_matrix do for
- * unconstrained draws (they call these when opt->stratify is set):
+ * Stratified sampling, as hc_sampler_run does for unconstrained draws,
+ * from src's complete series or from its matrix (source.h):
  * opt->strata (m indices), opt->nstrata, opt->stratify and, for the cap,
  * opt->per_stratum_max.  r->feasible[j] is 0 for a size no allocation
  * meets, and its cells hold variance +INFINITY and return -1 (a total
@@ -138,12 +137,9 @@ double hc_strata_expected_variance(const struct strata_moments *sm, const struct
  * cap of 0, bad size, paths 0, gaps in the data, returns from a matrix),
  * HC_EDATA, HC_ENOMEM, HC_EINTERRUPT.
  */
-int hc_strata_run(struct sampler_result **out, const struct universe *u,
-	       const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
-	       struct hc_error *err);
-int hc_strata_run_matrix(struct sampler_result **out, const double *a, size_t m,
-		      const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
-		      struct hc_error *err);
+int hc_strata_run(struct sampler_result **out, const struct hc_source *src,
+		  const size_t *sizes, size_t nsizes, const struct sampler_options *opt,
+		  struct hc_error *err);
 
 /*
  * The members (sorted ascending) of path k's portfolio of n holdings, as

@@ -41,6 +41,19 @@ enum universe_missing {
 /* Defaults named once. */
 #define UNIVERSE_DEFAULT_MIN_COVERAGE 0.8
 
+/*
+ * The largest return, in size, a universe may hold: 1e6 per period (a
+ * gain of 100 000 000%).  No security earns that in one period; a cell
+ * beyond it is a data error (a price in a return column, a missing
+ * decimal point), refused with its file, line and column (or, for returns
+ * computed from prices, its security and date).  The bound also keeps
+ * every later stage finite and in range: squares and sums of squares of
+ * returns stay far below DBL_MAX (a return of 1e154 made a variance
+ * overflow), and the report's plot axes and gnuplot's own arithmetic work
+ * on values it can handle (returns of 1e9 and up made gnuplot fail).
+ */
+#define HC_UNIVERSE_MAX_RETURN 1e6
+
 struct universe_options {
 	int layout;                 /* enum universe_layout */
 	int values;                 /* enum universe_values */
@@ -108,6 +121,18 @@ int hc_universe_load_buffer(struct universe **out, const char *name,
 int hc_universe_window(struct universe **out, const struct universe *src,
 		    size_t first, size_t len, int missing, double min_coverage,
 		    struct hc_error *err);
+
+/*
+ * The missing-data policy applied to a universe already in memory: src as
+ * loaded under UNIVERSE_MISSING_KEEP (no security dropped yet), *out a new
+ * universe with the securities the policy keeps, the dropped list and
+ * messages hc_universe_load gives under that policy for the same file.
+ * So a caller that needs both (every security for rolling windows, the
+ * complete ones for the rest) reads the file once.  HC_EUSAGE (bad policy,
+ * or src already lost securities), HC_EDATA (fewer than 2 left), HC_ENOMEM.
+ */
+int hc_universe_apply_missing(struct universe **out, const struct universe *src, int missing,
+			      double min_coverage, struct hc_error *err);
 
 /* A universe from a period-resampled copy: period k of the result is period
  * idx[k] of src (k < n).  Dates are copied from idx. */

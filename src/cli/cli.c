@@ -18,6 +18,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "holdcount/analysis.h"
 #include "holdcount/memory.h"
 #include "holdcount/outfile.h"
 #include "holdcount/universe.h"
@@ -70,7 +71,7 @@ static const struct cli_option universe_options[] = {
 	  "field delimiter, ',' or ';'", NULL, "detected from the header" },
 	{ "max-memory", 0, CLI_COUNT, UNI(max_memory_mib), "MIB",
 	  "refuse an input when its numbers, with the working copies made of them, would need more "
-	  "than MIB mebibytes", NULL, "80% of the memory available" },
+	  "than MIB mebibytes; 0 means the default", NULL, "80% of the memory available" },
 	{ "covariance", 0, CLI_FLAG, UNI(covariance), NULL,
 	  "the file is a covariance matrix (ids in the header row and first column), "
 	  "not a return history", NULL, NULL },
@@ -95,7 +96,7 @@ static const struct cli_option sampling_options[] = {
 	  "random portfolios per holding count; 0 skips sampling", NULL, "10000" },
 	{ "seed", 0, CLI_U64, SAM(seed), "S",
 	  "seed of the random portfolios; the same seed gives the same output", NULL, "1" },
-	{ "threads", 0, CLI_COUNT, SAM(threads), "N",
+	{ "threads", 0, CLI_THREADS, SAM(threads), "N",
 	  "threads for sampling; the output does not depend on it", NULL,
 	  "$HOLDCOUNT_THREADS, else every core" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
@@ -114,7 +115,8 @@ static const struct cli_option summary_options[] = {
 	{ "average-correlation", 0, CLI_FRACTION, SUM(average_correlation), "R",
 	  "average correlation of two distinct securities (instead of --average-covariance)", NULL, NULL },
 	{ "securities", 0, CLI_COUNT, SUM(securities), "M",
-	  "securities in the universe, for the finite-universe formulas", NULL, "unbounded" },
+	  "securities in the universe, for the finite-universe formulas, at most 1000000000; "
+	  "0 means unbounded, as leaving it out does", NULL, "unbounded" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 const struct cli_group cli_group_summary = { "summary statistics", summary_options };
@@ -154,7 +156,8 @@ void cli_summary_init(struct cli_summary *s)
 
 /* Each returns 0 and stores, or -1 with *expected naming what was wanted. */
 
-static int parse_count(const char *s, size_t *out)
+/* A whole number of decimal digits only, at most limit. */
+static int parse_unsigned(const char *s, unsigned long long limit, unsigned long long *out)
 {
 	unsigned long long v;
 	char *end;
@@ -163,7 +166,17 @@ static int parse_count(const char *s, size_t *out)
 		return -1;
 	errno = 0;
 	v = strtoull(s, &end, 10);
-	if (errno || v > SIZE_MAX)
+	if (errno || v > limit)
+		return -1;
+	*out = v;
+	return 0;
+}
+
+static int parse_count(const char *s, size_t *out)
+{
+	unsigned long long v;
+
+	if (parse_unsigned(s, SIZE_MAX, &v))
 		return -1;
 	*out = (size_t)v;
 	return 0;
@@ -172,13 +185,8 @@ static int parse_count(const char *s, size_t *out)
 static int parse_u64(const char *s, uint64_t *out)
 {
 	unsigned long long v;
-	char *end;
 
-	if (!*s || strspn(s, "0123456789") != strlen(s))
-		return -1;
-	errno = 0;
-	v = strtoull(s, &end, 10);
-	if (errno || v > UINT64_MAX)
+	if (parse_unsigned(s, UINT64_MAX, &v))
 		return -1;
 	*out = (uint64_t)v;
 	return 0;
@@ -214,6 +222,8 @@ static int store_value(const struct cli_option *op, void *where, const char *val
 		return parse_count(val, where);
 	case CLI_U64:
 		return parse_u64(val, where);
+	case CLI_THREADS:
+		return cli_threads_parse(val, where);
 	case CLI_REAL:
 		return parse_real(val, len, where);
 	case CLI_FRACTION:
@@ -243,6 +253,7 @@ static const char *expected_text(const struct cli_option *op, char *buf, size_t 
 	switch (op->kind) {
 	case CLI_COUNT: return "a whole number (0, 1, 2, ...)";
 	case CLI_U64: return "a whole number from 0 to 18446744073709551615";
+	case CLI_THREADS: return cli_threads_expected;
 	case CLI_REAL: return "a finite number";
 	case CLI_FRACTION: return "a number, or a percent such as 10%";
 	case CLI_CHOICE:
@@ -336,12 +347,12 @@ static int threads_from_environment(const struct cli_command *cmd, void *opts)
 
 	if (!env || !*env || !(op = find_option(cmd, "threads", strlen("threads"), 0, opts, &base, NULL)))
 		return HC_OK;
-	if (parse_count(env, &n) || n == 0) {
-		fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be a whole number from 1, found '%s'\n",
-			cmd->name, env);
+	if (cli_threads_parse(env, &n)) {
+		fprintf(stderr, "holdcount %s: HOLDCOUNT_THREADS must be %s, found '%s'\n", cmd->name,
+			cli_threads_expected, env);
 		return HC_EUSAGE;
 	}
-	*(size_t *)(base + op->offset) = n; /* --threads is a CLI_COUNT, a size_t */
+	*(size_t *)(base + op->offset) = n; /* --threads is a CLI_THREADS, a size_t */
 	return HC_OK;
 }
 
@@ -588,28 +599,23 @@ int cli_given(const struct cli_args *a, const char *name)
  * the first line starts at column col. */
 static void wrap(FILE *fp, const char *text, size_t col, size_t indent)
 {
-	const char *p = text;
-
-	while (*p) {
-		size_t word = strcspn(p, " ");
-		if (col > indent && col + 1 + word > HELP_WIDTH) {
-			fprintf(fp, "\n%*s", (int)indent, "");
-			col = indent;
-		} else if (col > indent) {
-			fputc(' ', fp);
-			col++;
-		}
-		fwrite(p, 1, word, fp);
-		col += word;
-		p += word;
-		while (*p == ' ')
-			p++;
-	}
-	fputc('\n', fp);
+	hc_report_wrap(fp, text, col, indent, HELP_WIDTH);
 }
 
-static void print_option(FILE *fp, const struct cli_option *op)
+/* The default an option shows in this use of its group. */
+static const char *default_of(const struct cli_group_use *g, const struct cli_option *op)
 {
+	const struct cli_default *d;
+
+	for (d = g ? g->defaults : NULL; d && d->name; d++)
+		if (strcmp(d->name, op->name) == 0)
+			return d->default_text;
+	return op->default_text;
+}
+
+static void print_option(FILE *fp, const struct cli_group_use *g, const struct cli_option *op)
+{
+	const char *def = default_of(g, op);
 	char left[128], help[512];
 	size_t used, i;
 
@@ -621,8 +627,8 @@ static void print_option(FILE *fp, const struct cli_option *op)
 	} else if (op->kind != CLI_FLAG && used < sizeof left) {
 		used += (size_t)snprintf(left + used, sizeof left - used, " %s", op->metavar ? op->metavar : "VALUE");
 	}
-	if (op->default_text)
-		snprintf(help, sizeof help, "%s (default: %s)", op->help, op->default_text);
+	if (def)
+		snprintf(help, sizeof help, "%s (default: %s)", op->help, def);
 	else
 		snprintf(help, sizeof help, "%s", op->help);
 	fputs(left, fp);
@@ -648,14 +654,14 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd)
 		wrap(fp, cmd->description, 0, 0);
 	}
 	fputs("\noptions:\n", fp);
-	print_option(fp, &help_option);
+	print_option(fp, NULL, &help_option);
 	for (g = cmd->groups; g && g->group; g++) {
 		if (!options_taken(g))
 			continue;
 		fprintf(fp, "\n%s:\n", g->group->title);
 		for (op = g->group->options; op->name; op++)
 			if (!omitted(g, op))
-				print_option(fp, op);
+				print_option(fp, g, op);
 	}
 	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
 	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted.\n", fp);
@@ -709,8 +715,9 @@ static void roff_upper(FILE *fp, const char *s)
 		fputc(*s >= 'a' && *s <= 'z' ? *s - 'a' + 'A' : *s, fp);
 }
 
-static void man_option(FILE *fp, const struct cli_option *op)
+static void man_option(FILE *fp, const struct cli_group_use *g, const struct cli_option *op)
 {
+	const char *def = default_of(g, op);
 	size_t i;
 
 	fputs(".TP\n", fp);
@@ -730,9 +737,9 @@ static void man_option(FILE *fp, const struct cli_option *op)
 	}
 	fputc('\n', fp);
 	roff_text(fp, op->help);
-	if (op->default_text) {
+	if (def) {
 		fputs(" (default: ", fp);
-		roff_text(fp, op->default_text);
+		roff_text(fp, def);
 		fputc(')', fp);
 	}
 	fputs(".\n", fp);
@@ -748,6 +755,9 @@ static void man_common_sections(FILE *fp)
 		{ "5", "out of memory, or the input exceeds the memory budget" },
 		{ "6", "a numerical library failed or an internal check broke" },
 		{ "7", "interrupted by a signal; partly written output is removed" },
+		{ "8", "the system refused a resource other than memory: a thread or process (a process limit)" },
+		{ "9", "the renderer (gnuplot) failed on a plot script; nothing is left behind" },
+		{ "10", "the input is well formed but holds too little data for the question" },
 	};
 	size_t i;
 
@@ -755,7 +765,7 @@ static void man_common_sections(FILE *fp)
 	for (i = 0; i < sizeof status / sizeof status[0]; i++)
 		fprintf(fp, ".TP\n.B %s\n%s.\n", status[i][0], status[i][1]);
 	fputs(".SH ENVIRONMENT\n"
-	      ".TP\n.B HOLDCOUNT_THREADS\nthe default of \\fB\\-\\-threads\\fR (a whole number from 1).\n"
+	      ".TP\n.B HOLDCOUNT_THREADS\nthe default of \\fB\\-\\-threads\\fR (a whole number from 1 to 1024).\n"
 	      ".TP\n.B NO_COLOR\nhonoured; holdcount prints no colour or terminal escape codes in any case.\n"
 	      ".TP\n.B HOLDCOUNT_DATA_DIR\nthe folder of the demo data that \\fBholdcount report\\fR "
 	      "reads when no universe is given, instead of the installed one.\n"
@@ -810,7 +820,7 @@ void cli_print_man(FILE *fp, const struct cli_command *cmd, const char *version)
 		fputs("\"\n", fp);
 		for (op = g->group->options; op->name; op++)
 			if (!omitted(g, op))
-				man_option(fp, op);
+				man_option(fp, g, op);
 	}
 	man_common_sections(fp);
 	fputs(".SH SEE ALSO\n.BR holdcount (1)\n", fp);
@@ -1083,4 +1093,44 @@ void cli_install_signal_handlers(void)
 	sigemptyset(&sa.sa_mask);
 	catch_unless_ignored(SIGINT, &sa);
 	catch_unless_ignored(SIGTERM, &sa);
+	/* A file-size limit (ulimit -f) would kill the process with SIGXFSZ
+	 * mid-write, with no message and the temporary left behind; ignored,
+	 * the write fails with EFBIG instead, which the output's commit
+	 * reports as an i/o error (exit 4) after removing the temporary. */
+	signal(SIGXFSZ, SIG_IGN);
+}
+
+/* ---- an analysis's progress ----------------------------------------------- */
+
+static void steps_begin(void *ctx, const char *stage, const char *label, const char *unit)
+{
+	struct cli_steps *s = ctx;
+
+	if (stage && s->stages)
+		cli_stage(s->cmd, s->quiet, stage);
+	if (label)
+		cli_progress_init(&s->bar, label, unit, s->quiet);
+}
+
+static int steps_update(void *ctx, size_t done, size_t total)
+{
+	return cli_progress_update(&((struct cli_steps *)ctx)->bar, done, total);
+}
+
+static void steps_end(void *ctx)
+{
+	cli_progress_finish(&((struct cli_steps *)ctx)->bar);
+}
+
+void cli_steps_bind(struct cli_steps *steps, struct hc_progress *p, const char *cmd, int quiet, int stages)
+{
+	memset(steps, 0, sizeof *steps);
+	steps->cmd = cmd;
+	steps->quiet = quiet;
+	steps->stages = stages;
+	cli_progress_init(&steps->bar, "", "", 1);
+	p->begin = steps_begin;
+	p->update = steps_update;
+	p->end = steps_end;
+	p->ctx = steps;
 }

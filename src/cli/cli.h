@@ -65,8 +65,10 @@
  *              rc = cli_parse(&cli_command_frob, argc, argv, &o, &a);
  *              if (rc != HC_OK)
  *                  return cli_parse_status(rc);   // 0 after --help, 2 on error
- *              ... build a struct report r, then
- *              rc = cli_write_report("frob", &o.out, r);  // prints its own errors
+ *              rc = cli_load_source("frob", &o.uni, &a, a.positional[0], 0, NULL, &src);
+ *              ... the library's options from o, then its one call:
+ *              hc_frob_run(&res, src, &fo, &err)  (cli_fail on error), and
+ *              rc = cli_write_report("frob", &o.out, res->report);  // prints its own errors
  *              ...
  *              cli_args_release(&a);
  *              return rc;
@@ -74,8 +76,10 @@
  *
  *      Library failures: `return cli_fail("frob", &err);` prints
  *      "holdcount frob: MESSAGE" and returns err.code (the exit status).
- *      Long loops: struct cli_progress (a bar on stderr, only on a terminal
- *      and without --quiet); its update function fits sampler_progress_fn.
+ *      Long loops: cli_steps_bind fills the analysis's struct hc_progress
+ *      with progress bars on stderr (only on a terminal and without
+ *      --quiet).  A command computes nothing itself: parse, build the
+ *      source, call the library, write (docs/architecture.md).
  *
  * Values land in these C types: CLI_FLAG int (set to 1), CLI_STRING
  * const char * (points into argv), CLI_COUNT size_t, CLI_REAL double,
@@ -108,8 +112,18 @@ enum cli_kind {
 	CLI_REAL = 3,
 	CLI_FRACTION = 4,
 	CLI_CHOICE = 5,
-	CLI_U64 = 6
+	CLI_U64 = 6,
+	CLI_THREADS = 7            /* a thread count: size_t, 1 to HC_THREADS_MAX */
 };
+
+/* cli_threads.c: the one parse of a thread count (--threads and
+ * HOLDCOUNT_THREADS): 0 and *out set, or -1 when text is not a whole
+ * number from 1 to HC_THREADS_MAX; cli_threads_expected says so in words. */
+int cli_threads_parse(const char *text, size_t *out);
+extern const char cli_threads_expected[];
+/* Make an exit from inside the OpenMP runtime (a thread it could not
+ * create) exit with HC_ERESOURCE and a message; once, from main. */
+void cli_threads_guard(void);
 
 struct cli_option {
 	const char *name;          /* long name without "--"; NULL ends a table */
@@ -136,10 +150,18 @@ struct cli_omit {
 	const char *why;                /* lower case, no final full stop */
 };
 
+/* An option of a shared group whose default differs for one command: the
+ * text help, the manual page and completion show for it there. */
+struct cli_default {
+	const char *name;               /* long name without "--"; NULL ends a list */
+	const char *default_text;
+};
+
 struct cli_group_use {
 	const struct cli_group *group;  /* NULL ends the list */
 	size_t offset;                  /* of the group's struct in the command's struct */
 	const struct cli_omit *omit;    /* the group's options left out; NULL = none */
+	const struct cli_default *defaults; /* defaults shown differently here; NULL = none */
 };
 
 struct cli_command {
@@ -195,7 +217,7 @@ struct cli_sampling {
 	const char *sizes;         /* NULL = the default grid */
 	size_t paths;
 	uint64_t seed;
-	size_t threads;            /* 0 = all cores (OpenMP's default) */
+	size_t threads;            /* 0 = all cores (OpenMP's default); else 1..HC_THREADS_MAX */
 };
 extern const struct cli_group cli_group_sampling;
 void cli_sampling_init(struct cli_sampling *s);
@@ -304,6 +326,18 @@ int cli_progress_update(void *ctx, size_t done, size_t total);
 /* Clear the bar's line. */
 void cli_progress_finish(struct cli_progress *p);
 
+/* An analysis's progress (analysis.h) on stderr: each counted step gets a
+ * cli_progress bar; with stages set, each step's sentence is announced first
+ * by cli_stage (as `holdcount report` lists its stages).  steps must outlive
+ * the analysis call. */
+struct hc_progress;
+struct cli_steps {
+	const char *cmd;
+	int quiet, stages;
+	struct cli_progress bar;
+};
+void cli_steps_bind(struct cli_steps *steps, struct hc_progress *p, const char *cmd, int quiet, int stages);
+
 /* SIGINT/SIGTERM: remove any half-written output temporaries and exit 7. */
 void cli_install_signal_handlers(void);
 
@@ -327,76 +361,30 @@ int cli_load_universe(const char *cmd, const struct cli_universe *cu,
  * when it overflows. */
 int cli_max_bytes(const char *cmd, const struct cli_universe *cu, size_t *bytes);
 
-/* A covariance matrix that must be positive semi-definite, and what
- * --repair-psd did to it (cli_psd_settle). */
-struct cli_psd {
-	int asked;                 /* --repair-psd was given */
-	int checked;               /* a matrix was tested */
-	int repaired;              /* ... and replaced by its nearest PSD matrix */
-	size_t negative;           /* its negative eigenvalues */
-	double min_eigenvalue;     /* per period (or the matrix's scale) */
-	double distance, norm;     /* Frobenius: moved, and the matrix's own */
-	double scale;              /* what the output multiplies variances by (P, or 1) */
-	int annualised;
-	const char *what;          /* "the covariance matrix", ... (static) */
-};
-void cli_psd_init(struct cli_psd *ps, int asked, double scale, int annualised, const char *what);
-
 /* --repair-psd without a matrix to repair (no --covariance, no --missing
- * pairwise) is a usage error (printed; HC_EUSAGE); else HC_OK. */
+ * pairwise): HC_EUSAGE (printed). */
 int cli_psd_usage(const char *cmd, const struct cli_universe *cu);
 
 /*
- * Settle whether the symmetric m x m matrix a (read from path) is positive
- * semi-definite.  The test: the nearest PSD matrix (eigenvalue clipping,
- * hc_covmatrix_nearest_psd) moves no entry by more than
- * COVMATRIX_DEFAULT_SYMMETRY_TOL relative to sqrt(a_ii a_jj), so a
- * rank-deficient matrix printed to 9 digits passes.  Otherwise, without
- * ps->asked: "holdcount CMD: PATH: REFUSAL" and HC_EDATA (refusal should
- * name --repair-psd); with it, a is replaced by the nearest PSD matrix, a
- * note goes to stderr and ps records what moved.  The decomposition's
- * working copies (three m x m arrays beside a) are checked against
- * max_bytes first (memory.h; HC_ENOMEM naming path).  Prints its own errors.
+ * The data source (source.h) of a command's file: a covariance matrix with
+ * --covariance (on its own scale unless --periods-per-year is given; the
+ * return-history options refused), else the return history loaded with
+ * cu's options.  need_matrix and refusal: series with gaps get their
+ * pairwise-complete matrix (hc_source_options).  A repair is announced on
+ * stderr.  Prints its error; returns the exit status.
+ * cli_source_from_universe does the same for a universe already loaded
+ * (taking ownership of u).
  */
-int cli_psd_settle(const char *cmd, const char *path, const char *refusal, double *a, size_t m,
-		   size_t max_bytes, struct cli_psd *ps);
-
-/* The fields psd_repair, psd_repaired, psd_negative_eigenvalues,
- * psd_min_eigenvalue, psd_repair_distance, psd_repair_relative_distance
- * (scaled as the output) and, when repaired, a note saying so: nothing
- * unless --repair-psd was given.  HC_ENOMEM only. */
-int cli_psd_fields(struct report *r, const struct cli_psd *ps);
-
-/* Load a covariance-matrix CSV (--covariance) within cu's --max-memory:
- * options that only describe a return history are refused (HC_EUSAGE),
- * the loader's errors printed,
- * and a matrix that is not positive semi-definite is HC_EDATA unless
- * ps->asked, when it is repaired (cli_psd_settle). */
-struct covmatrix;
-int cli_load_covariance(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
-			const char *path, struct cli_psd *ps, struct covmatrix **out);
-
-/* The pairwise-complete covariances of u (which has gaps), settled by
- * cli_psd_settle with refusal: *out on success.  Prints its own errors. */
-int cli_pairwise_matrix(const char *cmd, const struct universe *u, const char *path,
-			const char *refusal, struct cli_psd *ps, struct covmatrix **out);
-
-/* The end of every refusal of a matrix that is not positive semi-definite. */
-#define CLI_PSD_HINT "--repair-psd uses the nearest positive semi-definite matrix instead"
+struct hc_source;
+int cli_load_source(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
+		    const char *path, int need_matrix, const char *refusal, struct hc_source **out);
+int cli_source_from_universe(const char *cmd, const struct cli_universe *cu, struct universe *u,
+			     const char *path, int need_matrix, const char *refusal, struct hc_source **out);
 
 /* The holding counts: text (NULL = the default grid up to m) parsed and
  * checked against m securities (0 = unbounded).  Prints its error;
  * HC_EUSAGE names the size and the securities kept. Free *sizes with hc_free. */
 int cli_sizes(const char *cmd, const char *text, size_t m, size_t **sizes, size_t *nsizes);
-
-/* The fields that state the scale: periods_per_year (none when 1 and not
- * annualised) and annualisation, a sentence saying what was multiplied. */
-int cli_add_scale(struct report *r, double periods_per_year, int annualised);
-
-/* The "curve" table of c (columns from hc_curve_report, then periods_per_year,
- * filled when annualised) added to r.  Defined in cmd_curve.c. */
-struct curve;
-int cli_curve_table(struct report *r, const struct curve *c, int annualised);
 
 /* ---- installed files (cli_paths.c) ------------------------------------------ */
 
@@ -408,32 +396,11 @@ int cli_curve_table(struct report *r, const struct curve *c, int annualised);
  * tried, for the message). */
 int cli_data_file(char *buf, size_t size, const char *file);
 
-/* ---- what `report` shares with `curve`, `enough` and `audit` ---------------- */
+/* ---- option groups shared by several commands ------------------------------ */
 
-/* The sampled columns of c from sam's paths and seed: random portfolios of
- * the return series of u, or of the covariance matrix cm when u is NULL;
- * a progress bar unless quiet.  Sets c->paths and c->seed.  Library status
- * in err (not printed).  Defined in cmd_curve.c. */
-struct covmatrix;
-int cli_curve_sample(const struct cli_sampling *sam, int quiet, const struct universe *u,
-		     const struct covmatrix *cm, struct curve *c, const size_t *sizes, size_t nsizes,
-		     struct hc_error *err);
-
-/* What a curve was computed from: a return history or a matrix. */
-struct cli_curve_source {
-	const char *path;
-	const char *input;          /* "return history" or "covariance matrix" */
-	size_t m, dropped, periods; /* periods 0: unknown (a matrix) */
-	int annualised;
-};
-/* The fields and the "curve" table that `holdcount curve` prints, without
- * notes or cautions.  HC_ENOMEM only.  Defined in cmd_curve.c. */
-struct moments;
-int cli_curve_fields(struct report *r, const struct cli_curve_source *src, const struct moments *mo,
-		     const struct curve *c);
-
-/* The rule options of `enough` (cmd_enough.c): --rules, each rule's
- * parameters, --bootstrap and its kind, --bootstrap-sampled. */
+/* The rule options of `enough`, `report` and `rolling` (cli_rules.c):
+ * --rules, each rule's parameters, --bootstrap and its kind,
+ * --bootstrap-sampled. */
 struct cli_rules {
 	const char *rules;
 	double near_floor;
@@ -457,11 +424,6 @@ struct cli_rules {
 extern const struct cli_group cli_group_rules;
 void cli_rules_init(struct cli_rules *r);
 
-/* A yearly sd step, as --marginal takes it: "0.10pp" (percentage points),
- * "0.1%" or "0.001".  0 and *out set, or -1 when not such a number.
- * Defined in cmd_enough.c; rolling reads --marginal with it too. */
-int cli_parse_sd_step(const char *s, double *out);
-
 /* The rules configuration from the group; have_data 0 (summary statistics)
  * or covariance 1 select the exact rules by default.  Prints its error;
  * returns the exit status. */
@@ -469,28 +431,18 @@ struct rules_config;
 int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cli_args *a,
 		     int have_data, int covariance, struct rules_config *cfg);
 
-/* Every rule of cfg on the return history u (moments mo), exactly as
- * `holdcount enough UNIVERSE` runs them: exact, the sampled rules staged by
- * hc_rules_sampled with smp's paths and seed (strata when strat says so), the
- * bootstrap interval, and with --bootstrap-sampled the sampled rules'
- * interval.  res has room for RULES_COUNT; *out gets the report `enough`
- * prints (release with hc_report_free).  With stages set, each long step
- * (sampling, bootstrap, sampled bootstrap) is announced by cli_stage
- * before its progress bar, as `holdcount report` lists its stages.
- * Prints its error; returns the exit status. */
-struct rule_result;
-struct cli_strata;
-int cli_enough_data(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
-		    struct cli_strata *strat, int quiet, int stages, const struct universe *u,
-		    const struct moments *mo, const struct rules_config *cfg,
-		    struct rule_result *res, size_t *nres, struct report **out);
+/* The options of hc_enough_run (enough.h) from the rule and sampling groups
+ * (cli_rules_config for its rules).  Prints its error; returns the exit
+ * status. */
+struct hc_enough_options;
+int cli_enough_options(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
+		       const struct cli_args *a, int have_data, int covariance, struct hc_enough_options *eo);
 
-/* After hc_rolling_report: each rule's parameters as fields and the note on
- * drifting averages, as `holdcount rolling` prints them (cmd_rolling.c), so
- * that `holdcount report` shows the same object.  0, or non-zero when out
- * of memory. */
-struct rolling_result;
-int cli_rolling_context(struct report *r, const struct rolling_result *res);
+/* Options that contradict the rules chosen, before any file is read: strata
+ * without a sampled rule, --paths 0 with one.  Prints; returns the status. */
+struct cli_strata;
+int cli_enough_checks(const char *cmd, const struct cli_sampling *smp, const struct cli_strata *strat,
+		      const struct rules_config *cfg);
 
 /* The holdings inputs of `audit` (cmd_audit.c): --holdings, --sectors,
  * --allow-short, --strict and the column names. */
@@ -514,19 +466,19 @@ struct cli_policy {
 };
 extern const struct cli_group cli_group_policy;
 
-/* Load the holdings (and sector map) of ho and audit them against u
- * (moments mo) with po's policy and sam's paths and seed, exactly as
- * `holdcount audit` does; the loader's warnings go to stderr.  *out gets the
- * report `audit` prints.  The caller frees *h, *labels, *res and *out (each
- * may be set on failure).  A failed policy is not an error here: see
- * (*res)->failed_funds.  Prints its error; returns the exit status. */
+/* The library's audit options from ho, po and sam (usage errors printed),
+ * and the holdings (and sector map, set as ao->sectors) loaded with their
+ * warnings on stderr.  The caller frees *h and *labels (each may be set on
+ * failure).  Prints its error; returns the exit status. */
 struct holdings;
 struct holdings_labels;
 struct audit_result;
-int cli_audit_data(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
-		   const struct cli_sampling *sam, int quiet, const struct universe *u,
-		   const struct moments *mo, struct holdings **h, struct holdings_labels **labels,
-		   struct audit_result **res, struct report **out);
+struct audit_options;
+int cli_audit_load(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
+		   const struct cli_sampling *sam, struct audit_options *ao, struct holdings **h,
+		   struct holdings_labels **labels);
+/* One warning line per fund holding ids the universe lacks, on stderr. */
+void cli_audit_say_missing(const char *cmd, const struct audit_result *res);
 /* "holdcount CMD: 2 of 3 funds fail the policy: 'A' (max-weight), ..." on stderr. */
 void cli_audit_say_failures(const char *cmd, const struct audit_result *res);
 
@@ -549,14 +501,13 @@ struct cli_strata {
 };
 extern const struct cli_group cli_group_strata;
 void cli_strata_init(struct cli_strata *s);
-/* Load the map for u and point so's strata fields at it; nothing when no
- * --strata was given (returns HC_OK).  Prints its error; returns the exit
+/* Load the map for u and describe it in su (analysis.h); nothing when no
+ * --strata was given (returns HC_OK, su with no map).  Prints its error; returns the exit
  * status (HC_EUSAGE for a cap or --proportional without --strata, both
  * at once, or neither with --strata). */
+struct hc_strata_use;
 int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct universe *u,
-		     struct sampler_options *so);
-/* Fields stating the stratification (strata, per_stratum_max, ...). */
-int cli_strata_fields(struct report *r, const struct cli_strata *s);
+		     struct hc_strata_use *su);
 void cli_strata_release(struct cli_strata *s);
 
 /* ---- commands -------------------------------------------------------------- */

@@ -11,6 +11,7 @@
 #include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
 #include "holdcount/memory.h"
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
 
 int cli_universe_options(const char *cmd, const struct cli_universe *cu,
@@ -71,23 +72,6 @@ int cli_sizes(const char *cmd, const char *text, size_t m, size_t **sizes, size_
 	return rc ? cli_fail(cmd, &err) : HC_OK;
 }
 
-int cli_add_scale(struct report *r, double periods_per_year, int annualised)
-{
-	char text[200];
-	int rc;
-
-	if (annualised) {
-		rc = hc_report_add_real(r, "periods_per_year", "periods per year", periods_per_year, REPORT_STYLE_PLAIN);
-		snprintf(text, sizeof text,
-			 "annualised: variances times %g, standard deviations times sqrt(%g)", periods_per_year,
-			 periods_per_year);
-	} else {
-		rc = hc_report_add_none(r, "periods_per_year", "periods per year");
-		snprintf(text, sizeof text, "not annualised: figures are on the scale of the inputs");
-	}
-	return rc ? rc : hc_report_add_text(r, "annualisation", "annualisation", text);
-}
-
 /* Options that describe a return history and mean nothing for a matrix
  * (--max-memory applies to both). */
 static const char *const return_only_options[] = {
@@ -103,16 +87,7 @@ int cli_max_bytes(const char *cmd, const struct cli_universe *cu, size_t *bytes)
 	return HC_OK;
 }
 
-/* ---- positive semi-definite matrices -------------------------------------- */
-
-void cli_psd_init(struct cli_psd *ps, int asked, double scale, int annualised, const char *what)
-{
-	memset(ps, 0, sizeof *ps);
-	ps->asked = asked;
-	ps->scale = scale;
-	ps->annualised = annualised;
-	ps->what = what;
-}
+/* ---- data sources ---------------------------------------------------------- */
 
 int cli_psd_usage(const char *cmd, const struct cli_universe *cu)
 {
@@ -123,142 +98,62 @@ int cli_psd_usage(const char *cmd, const struct cli_universe *cu)
 	return HC_OK;
 }
 
-/* The sentence that says what the repair did, for stderr and the report. */
-static void psd_text(const struct cli_psd *ps, char *buf, size_t size)
+/* A repair changes every figure: say so on stderr as well as in the output. */
+static int source_made(const char *cmd, const char *path, int rc, struct hc_error *err,
+		       struct hc_source **out)
 {
-	const char *unit = ps->annualised ? " a year" : "";
-
-	snprintf(buf, size,
-		 "%s was not positive semi-definite, so it was replaced by the nearest positive "
-		 "semi-definite matrix in the Frobenius norm (eigenvalue clipping, Higham 1988): %zu "
-		 "negative eigenvalue%s set to zero, the most negative %.4g%s; the matrix moved by %.4g%s "
-		 "(Frobenius distance, %.3g%% of its Frobenius norm), and every figure uses the repaired matrix",
-		 ps->what, ps->negative, ps->negative == 1 ? "" : "s", ps->min_eigenvalue * ps->scale, unit,
-		 ps->distance * ps->scale, unit, 100 * ps->distance / ps->norm);
-}
-
-/*
- * A matrix with a negative eigenvalue gives some portfolio a negative
- * variance, so it is no covariance matrix.  One eigen decomposition both
- * tests and, when asked, repairs (hc_covmatrix_nearest_psd: eigenvalue
- * clipping, Higham, 1988, Linear Algebra and its Applications 103).  Moves
- * within the loader's symmetry tolerance, relative to sqrt(a_ii a_jj), are
- * rounding in a printed file and leave the matrix as it was.  Memory: the
- * copy b and the decomposition's eigenvectors and rebuilt matrix, three
- * m x m arrays beside a, checked against the budget first.
- */
-int cli_psd_settle(const char *cmd, const char *path, const char *refusal, double *a, size_t m,
-		   size_t max_bytes, struct cli_psd *ps)
-{
-	struct covmatrix_psd st;
-	struct hc_error err;
-	size_t bytes;
-	double mm = (double)m * (double)m * sizeof(double);
-	double *b;
-	char text[600];
-	int rc;
-
-	hc_error_clear(&err);
-	if (hc_memory_check(max_bytes, mm, 3 * mm, &err,
-			    "%s: covariance matrix of %zu securities too large to check for negative eigenvalues",
-			    path, m))
-		return cli_fail(cmd, &err);
-	if (hc_mul_size(m * m, sizeof *b, &bytes) || !(b = hc_malloc(bytes))) {
-		hc_error(&err, HC_ENOMEM, "out of memory checking the covariance matrix");
-		return cli_fail(cmd, &err);
-	}
-	rc = hc_covmatrix_nearest_psd(a, m, b, &st, &err);
-	if (rc == HC_OK) {
-		ps->checked = 1;
-		ps->negative = st.negative;
-		ps->min_eigenvalue = st.min_eigenvalue;
-		ps->norm = st.norm;
-		if (st.max_relative_move > COVMATRIX_DEFAULT_SYMMETRY_TOL) {
-			if (!ps->asked)
-				rc = hc_error(&err, HC_EDATA, "%s: %s", path, refusal);
-			else {
-				memcpy(a, b, bytes);
-				ps->repaired = 1;
-				ps->distance = st.distance;
-				psd_text(ps, text, sizeof text);
-				fprintf(stderr, "holdcount %s: note: %s: %s\n", cmd, path, text);
-			}
-		}
-	}
-	hc_free(b);
-	return rc ? cli_fail(cmd, &err) : HC_OK;
-}
-
-int cli_psd_fields(struct report *r, const struct cli_psd *ps)
-{
-	int style = ps->annualised ? REPORT_STYLE_SCI : REPORT_STYLE_PLAIN;
 	char text[600];
 
-	if (!ps->asked)
-		return HC_OK;
-	if (hc_report_add_text(r, "psd_repair", "positive semi-definite repair",
-			    ps->repaired ? "nearest positive semi-definite matrix, by eigenvalue clipping (Higham 1988)"
-			    : ps->checked ? "not needed: the matrix is positive semi-definite (up to rounding)"
-			    : "not needed: no gaps left, and complete series give a positive semi-definite matrix") ||
-	    hc_report_add_bool(r, "psd_repaired", "matrix repaired", ps->repaired))
-		return HC_ENOMEM;
-	if (ps->checked &&
-	    (hc_report_add_int(r, "psd_negative_eigenvalues", "negative eigenvalues", (long long)ps->negative) ||
-	     hc_report_add_real(r, "psd_min_eigenvalue", "smallest eigenvalue", ps->min_eigenvalue * ps->scale, style) ||
-	     hc_report_add_real(r, "psd_repair_distance", "repair distance (Frobenius)", ps->distance * ps->scale, style) ||
-	     hc_report_add_real(r, "psd_repair_relative_distance", "repair distance / matrix norm",
-			     ps->distance / ps->norm, REPORT_STYLE_SCI)))
-		return HC_ENOMEM;
-	if (ps->repaired) {
-		psd_text(ps, text, sizeof text);
-		if (hc_report_add_note(r, text))
-			return HC_ENOMEM;
+	if (rc)
+		return cli_fail(cmd, err);
+	if ((*out)->psd.repaired) {
+		hc_source_psd_text(*out, text, sizeof text);
+		fprintf(stderr, "holdcount %s: note: %s: %s\n", cmd, path, text);
 	}
 	return HC_OK;
 }
 
-int cli_load_covariance(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
-			const char *path, struct cli_psd *ps, struct covmatrix **out)
+int cli_source_from_universe(const char *cmd, const struct cli_universe *cu, struct universe *u,
+			     const char *path, int need_matrix, const char *refusal, struct hc_source **out)
 {
+	struct hc_source_options so;
+	struct hc_error err;
+
+	hc_source_options_init(&so);
+	so.repair_psd = cu->repair_psd;
+	so.need_matrix = need_matrix;
+	so.psd_refusal = refusal;
+	hc_error_clear(&err);
+	return source_made(cmd, path, hc_source_from_universe(out, u, &so, &err), &err, out);
+}
+
+int cli_load_source(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
+		    const char *path, int need_matrix, const char *refusal, struct hc_source **out)
+{
+	struct hc_source_options so;
+	struct universe *u = NULL;
 	struct hc_error err;
 	size_t i, max_bytes;
 	int rc;
 
 	*out = NULL;
+	if (!cu->covariance) {
+		if ((rc = cli_load_universe(cmd, cu, path, &u)))
+			return rc;
+		return cli_source_from_universe(cmd, cu, u, path, need_matrix, refusal, out);
+	}
+	/* A matrix stays on its own scale unless told the periods per year. */
+	if (!isnan(cu->periods_per_year) && !(cu->periods_per_year > 0.0))
+		return cli_usage_error(cmd, "--periods-per-year must be positive, found %g", cu->periods_per_year);
 	for (i = 0; return_only_options[i]; i++)
 		if (cli_given(a, return_only_options[i]))
 			return cli_usage_error(cmd, "--%s describes a return history and does not apply with --covariance",
 					       return_only_options[i]);
 	if ((rc = cli_max_bytes(cmd, cu, &max_bytes)))
 		return rc;
+	hc_source_options_init(&so);
+	so.repair_psd = cu->repair_psd;
+	so.periods_per_year = isnan(cu->periods_per_year) ? 0 : cu->periods_per_year;
 	hc_error_clear(&err);
-	rc = hc_covmatrix_load_within(out, path, COVMATRIX_DEFAULT_SYMMETRY_TOL, max_bytes, &err);
-	if (rc)
-		return cli_fail(cmd, &err);
-	rc = cli_psd_settle(cmd, path, "not a covariance matrix: it is not positive semi-definite "
-			    "(some portfolio of these securities would have a negative variance); " CLI_PSD_HINT,
-			    (*out)->a, (*out)->m, max_bytes, ps);
-	if (rc) {
-		hc_covmatrix_free(*out);
-		*out = NULL;
-	}
-	return rc;
-}
-
-int cli_pairwise_matrix(const char *cmd, const struct universe *u, const char *path,
-			const char *refusal, struct cli_psd *ps, struct covmatrix **out)
-{
-	struct hc_error err;
-	int rc;
-
-	hc_error_clear(&err);
-	rc = hc_covmatrix_from_universe(u, out, &err);
-	if (rc)
-		return cli_fail(cmd, &err);
-	rc = cli_psd_settle(cmd, path, refusal, (*out)->a, (*out)->m, (*out)->max_bytes, ps);
-	if (rc) {
-		hc_covmatrix_free(*out);
-		*out = NULL;
-	}
-	return rc;
+	return source_made(cmd, path, hc_source_load_covmatrix(out, path, max_bytes, &so, &err), &err, out);
 }

@@ -7,6 +7,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "holdcount/analysis.h"
 #include "holdcount/sampler.h"
 #include "holdcount/sectors.h"
 #include "holdcount/strata.h"
@@ -46,12 +47,13 @@ void cli_strata_release(struct cli_strata *s)
 }
 
 int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct universe *u,
-		     struct sampler_options *so)
+		     struct hc_strata_use *su)
 {
 	struct sectors *map = NULL;
 	struct hc_error err;
 	int rc;
 
+	memset(su, 0, sizeof *su);
 	if (!s->map) {
 		if (s->per_stratum_max || s->proportional)
 			return cli_usage_error(cmd, "--per-stratum-max and --proportional need --strata FILE");
@@ -72,30 +74,12 @@ int cli_strata_apply(const char *cmd, struct cli_strata *s, const struct univers
 	if (rc)
 		return cli_fail(cmd, &err);
 fill:
-	so->strata = s->stratum_of;
-	so->nstrata = s->nlabels;
-	so->stratify = s->proportional ? SAMPLER_STRATA_PROPORTIONAL : SAMPLER_STRATA_CAP;
-	so->per_stratum_max = s->per_stratum_max;
+	su->map = s->map;
+	su->stratum_of = s->stratum_of;
+	su->nstrata = s->nlabels;
+	su->unmapped = s->unmapped;
+	su->strata = s->strata;
+	su->mode = s->proportional ? SAMPLER_STRATA_PROPORTIONAL : SAMPLER_STRATA_CAP;
+	su->per_stratum_max = s->per_stratum_max;
 	return HC_OK;
-}
-
-int cli_strata_fields(struct report *r, const struct cli_strata *s)
-{
-	char text[160];
-	int rc = 0;
-
-	if (!s->map)
-		return hc_report_add_none(r, "strata", "stratified draws");
-	if (s->proportional)
-		snprintf(text, sizeof text, "proportional to stratum size (largest remainder), uniform within strata");
-	else
-		snprintf(text, sizeof text, "uniform over portfolios with at most %zu in any stratum",
-			 s->per_stratum_max);
-	rc |= hc_report_add_text(r, "strata", "stratified draws", text);
-	rc |= hc_report_add_text(r, "strata_map", "strata map", s->map);
-	rc |= hc_report_add_int(r, "strata_count", "strata", (long long)s->nlabels);
-	rc |= hc_report_add_int(r, "strata_unmapped", "securities not in the map", (long long)s->unmapped);
-	if (s->per_stratum_max)
-		rc |= hc_report_add_int(r, "per_stratum_max", "at most per stratum", (long long)s->per_stratum_max);
-	return rc ? HC_ENOMEM : HC_OK;
 }

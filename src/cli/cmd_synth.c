@@ -83,10 +83,10 @@ static const struct cli_group synth_model_group = { "model options (annual figur
 static const struct cli_group synth_output_group = { "output options", synth_output_options };
 
 static const struct cli_group_use synth_groups[] = {
-	{ &synth_universe_group, 0, NULL },
-	{ &synth_model_group, 0, NULL },
-	{ &synth_output_group, 0, NULL },
-	{ NULL, 0, NULL }
+	{ &synth_universe_group, 0, NULL, NULL },
+	{ &synth_model_group, 0, NULL, NULL },
+	{ &synth_output_group, 0, NULL, NULL },
+	{ NULL, 0, NULL, NULL }
 };
 
 const struct cli_command cli_command_synth = {

@@ -14,6 +14,51 @@
  * cblas.h, which is not on every include path). */
 extern char *openblas_get_config(void);
 
+/*
+ * OpenBLAS's pthread build starts its worker threads when the library is
+ * loaded, before main, and when it cannot (a process limit: RLIMIT_NPROC,
+ * a container's pids limit) it raises SIGINT against its own process, so
+ * every command "exited 130".  holdcount runs BLAS on one thread anyway
+ * (hc_moments_blas_serial, below), and OPENBLAS_NUM_THREADS=1, read by
+ * OpenBLAS's initialiser, keeps it from starting any.
+ *
+ * The executable's .preinit_array runs before any shared library's
+ * initialiser (System V ABI, "Initialization and Termination Functions"),
+ * but before libc's too, which then sets environ back to the array the
+ * kernel passed, so setenv(3) there is lost.  The array itself is kept,
+ * so one of its slots is lent to the variable for the libraries'
+ * initialisers and given back at the top of main: the user's environment
+ * is unchanged for everything the program does (gnuplot included).  With
+ * an empty environment there is no slot to lend, and OpenBLAS starts its
+ * threads as it would without holdcount's help.
+ */
+static char one_blas_thread_setting[] = "OPENBLAS_NUM_THREADS=1";
+static char **lent_slot;
+static char *lent_value;
+
+static void lend_environment_slot(int argc, char **argv, char **envp)
+{
+	(void)argc;
+	(void)argv;
+	if (!envp || !envp[0])
+		return;
+	lent_slot = &envp[0];
+	for (char **e = envp; *e; e++)
+		if (strncmp(*e, "OPENBLAS_NUM_THREADS=", 21) == 0)
+			lent_slot = e;
+	lent_value = *lent_slot;
+	*lent_slot = one_blas_thread_setting;
+}
+__attribute__((section(".preinit_array"), used))
+static void (*const preinit_lend_slot)(int, char **, char **) = lend_environment_slot;
+
+static void give_back_environment_slot(void)
+{
+	if (lent_slot && *lent_slot == one_blas_thread_setting)
+		*lent_slot = lent_value;
+	lent_slot = NULL;
+}
+
 static int print_version(void)
 {
 	printf("holdcount %s\n", HOLDCOUNT_VERSION);
@@ -64,12 +109,14 @@ int main(int argc, char **argv)
 {
 	const struct cli_command *cmd;
 
+	give_back_environment_slot();
 	/* Library code checks every GSL status itself; GSL must not abort. */
 	gsl_set_error_handler_off();
 	/* No threaded BLAS here: OpenBLAS's idle workers would spin on the
 	 * cores the sampler's threads need. */
 	hc_moments_blas_serial();
 	cli_install_signal_handlers();
+	cli_threads_guard();
 	if (argc < 2) {
 		cli_print_main_help(stderr);
 		return HC_EUSAGE;

@@ -127,3 +127,29 @@ void fixture_covariance(const struct universe *u, double *a)
 		}
 	}
 }
+
+#define FIXTURE_VIEWS 8
+static struct hc_source views[FIXTURE_VIEWS];
+static struct covmatrix view_matrices[FIXTURE_VIEWS];
+static size_t next_view;
+
+const struct hc_source *fixture_series(const struct universe *u)
+{
+	struct hc_source *s = &views[next_view++ % FIXTURE_VIEWS];
+
+	hc_source_init_series(s, u);
+	return s;
+}
+
+const struct hc_source *fixture_matrix(const double *a, size_t m)
+{
+	size_t k = next_view++ % FIXTURE_VIEWS;
+
+	view_matrices[k].m = m;
+	view_matrices[k].ids = NULL;
+	view_matrices[k].a = (double *)a;   /* a view: only read */
+	view_matrices[k].max_bytes = 0;
+	hc_source_init_matrix(&views[k], &view_matrices[k], 0);
+	views[k].name = "";
+	return &views[k];
+}

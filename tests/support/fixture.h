@@ -12,6 +12,7 @@
 #include <stddef.h>
 #include <stdint.h>
 
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
 
 /*
@@ -41,5 +42,14 @@ void fixture_free(struct universe *u);
  * a (m*m doubles, row-major), by the textbook two-pass formula in long
  * double: an independent reference for the library's routes. */
 void fixture_covariance(const struct universe *u, double *a);
+
+/*
+ * Data sources (source.h) viewing test data: complete series u, or the
+ * m x m row-major matrix a on its own scale (named "" in messages).  The
+ * views live in static storage, eight in turn, so one call may take two;
+ * nothing to free.  The data must outlive the view's use.
+ */
+const struct hc_source *fixture_series(const struct universe *u);
+const struct hc_source *fixture_matrix(const double *a, size_t m);
 
 #endif

@@ -1,0 +1,112 @@
+/*
+ * reportset.h - the whole report pipeline as library calls: on one data
+ * source, the curve (curverun.h), every rule (enough.h), the audit of funds
+ * (audit.h) and the rolling windows (rolling.h), each the very call the
+ * matching command makes with the same options; then the report folder
+ * (reportdir.h): their CSVs, summary.json (one JSON tree), summary.md (the
+ * Markdown writer of these results) and the plots (plots.h).
+ */
+#ifndef HOLDCOUNT_REPORTSET_H
+#define HOLDCOUNT_REPORTSET_H
+
+#include <stddef.h>
+
+#include "holdcount/analysis.h"
+#include "holdcount/audit.h"
+#include "holdcount/curverun.h"
+#include "holdcount/enough.h"
+#include "holdcount/error.h"
+#include "holdcount/holdings.h"
+#include "holdcount/report.h"
+#include "holdcount/reportdir.h"
+#include "holdcount/rolling.h"
+#include "holdcount/source.h"
+#include "holdcount/universe.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* The rolling windows a report shows unless told otherwise: five years of
+ * periods, one starting every year, when the history holds at least this
+ * many windows' worth of periods (common practice for a committee's look
+ * back, no single source; two windows' length gives six windows a year
+ * apart, enough for a line to show a drift). */
+#define REPORTSET_WINDOW_YEARS 5
+#define REPORTSET_WINDOW_MIN_SPANS 2
+
+/* Room for the path of gnuplot found on the PATH (Linux's PATH_MAX). */
+#define REPORTSET_GNUPLOT_PATH_MAX 4096
+
+struct hc_reportset_options {
+	const size_t *sizes;          /* the curve's grid (hc_curve_parse_sizes or _default_sizes) */
+	size_t nsizes;
+	struct hc_curve_options curve;    /* paths, seed, threads */
+	struct hc_enough_options enough;  /* rules, sampling, bootstrap */
+	const struct holdings *holdings;  /* NULL: no audit */
+	const char *holdings_name;        /* its file, for summary.md */
+	struct audit_options audit;       /* policy, sectors, paths, seed */
+	size_t window, step;              /* rolling windows (hc_reportset_choose_window); window 0 = none */
+	int window_default;               /* the window was chosen by default */
+	char window_why[256];             /* why there are none, when window is 0 */
+	int plot_format;                  /* enum plots_format */
+	struct hc_progress progress;      /* stages and counted steps */
+};
+
+/*
+ * The rolling windows for a history of t periods at periods_per_year:
+ * given (window_given 1) as window and step (step 0 = a year's periods),
+ * else REPORTSET_WINDOW_YEARS years a year apart when the history holds
+ * REPORTSET_WINDOW_MIN_SPANS such windows, else none with the reason in
+ * opt->window_why.  Sets opt->window, step, window_default, window_why.
+ */
+void hc_reportset_choose_window(struct hc_reportset_options *opt, size_t t, double periods_per_year,
+				int window_given, size_t window, size_t step);
+
+struct hc_reportset {
+	struct hc_reportset_options o;    /* a copy; its pointers are the caller's */
+	const struct hc_source *src;
+	const struct universe *u;         /* src's complete series */
+	struct moments mo;
+	struct hc_curve_result *curve_run;
+	struct curve *curve, *full;       /* into curve_run */
+	struct hc_enough *enough;
+	const struct rule_result *rules;  /* into enough */
+	size_t nrules;
+	struct audit_result *audit;       /* NULL without holdings */
+	struct rolling_result *rolling;   /* NULL without windows */
+	struct report *rep_universe, *rep_audit, *rep_rolling, *rep_plots;
+	const struct report *rep_curve, *rep_enough;   /* into curve_run and enough */
+	size_t window, step;
+	int rendered;                     /* gnuplot was found (hc_reportset_write) */
+	char gnuplot[REPORTSET_GNUPLOT_PATH_MAX]; /* its path */
+};
+
+/*
+ * Every analysis of the report on src (complete return series), with
+ * every_security (the same file with no security dropped: rolling windows
+ * apply the missing-data policy each; hc_universe_apply_missing makes src's
+ * universe from it) when opt->window is set.  *out is new
+ * (hc_reportset_free) or NULL on error: the analyses' errors.
+ */
+int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
+		     const struct universe *every_security, const struct hc_reportset_options *opt,
+		     struct hc_error *err);
+
+/*
+ * Write rs into the report folder rd (reportdir.h) and commit it: the plots'
+ * data and scripts (rendered when gnuplot is on the PATH, else
+ * README-plots.txt), curve.csv, enough.csv, audit.csv, audit-screens.csv,
+ * audit-sectors.csv, rolling.csv (the commands' CSVs), summary.json and
+ * summary.md.  HC_EIO, HC_ENOMEM, HC_EINTERNAL (gnuplot failed).
+ */
+int hc_reportset_write(struct hc_reportset *rs, struct reportdir *rd, struct hc_error *err);
+
+/* Free rs and what it owns; NULL is a no-op. */
+void hc_reportset_free(struct hc_reportset *rs);
+
+#ifdef __cplusplus
+}
+#endif
+
+#endif

@@ -1,0 +1,363 @@
+/*
+ * curve_run.c - risk by holding count on a data source, exact and sampled,
+ * and the report `holdcount curve` prints (curverun.h).
+ */
+#include "holdcount/curverun.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "holdcount/memory.h"
+#include "holdcount/sampler.h"
+#include "holdcount/strata.h"
+
+void hc_curve_options_init(struct hc_curve_options *opt)
+{
+	memset(opt, 0, sizeof *opt);
+	opt->paths = CURVE_DEFAULT_PATHS;
+	opt->seed = CURVE_DEFAULT_SEED;
+}
+
+void hc_curve_result_free(struct hc_curve_result *r)
+{
+	if (!r)
+		return;
+	hc_report_free(r->report);
+	hc_strata_curve_free(r->strata);
+	hc_curve_free(r->full);
+	hc_curve_free(r->curve);
+	hc_free(r);
+}
+
+static void sampler_options(struct sampler_options *so, const struct hc_curve_options *opt, double ppy)
+{
+	hc_sampler_options_init(so);
+	so->paths = opt->paths;
+	so->seed = opt->seed;
+	so->threads = opt->threads;
+	so->periods_per_year = ppy;
+	so->progress = opt->progress.update;
+	so->progress_ctx = opt->progress.ctx;
+}
+
+/* The sampled columns of c: random portfolios at its sizes. */
+static int sample(const struct hc_source *src, const struct hc_curve_options *opt, struct curve *c,
+		  const size_t *sizes, size_t nsizes, struct hc_error *err)
+{
+	struct sampler_options so;
+	struct sampler_result *res = NULL;
+	int rc;
+
+	sampler_options(&so, opt, c->periods_per_year);
+	hc_progress_begin(&opt->progress, "sampling random portfolios at the curve's counts", "sampling", "paths");
+	rc = hc_sampler_run(&res, src, sizes, nsizes, &so, err);
+	hc_progress_end(&opt->progress);
+	if (rc == HC_OK)
+		rc = hc_sampler_summarise(c, res, err);
+	hc_sampler_result_free(res);
+	if (rc == HC_OK) {
+		c->paths = opt->paths;
+		c->seed = opt->seed;
+	}
+	return rc;
+}
+
+/* Stratified draws (strata.h) with the same paths and seed; the exact
+ * column only for the fixed (proportional) allocation. */
+static int sample_strata(const struct hc_source *src, const struct hc_curve_options *opt, const size_t *sizes,
+			 size_t nsizes, struct strata_curve **sc, struct hc_error *err)
+{
+	const struct hc_strata_use *su = opt->strata;
+	struct sampler_options so;
+	struct sampler_result *res = NULL;
+	struct strata_moments *sm = NULL;
+	int rc;
+
+	sampler_options(&so, opt, src->periods_per_year);
+	hc_strata_use_apply(su, &so);
+	hc_progress_begin(&opt->progress, NULL, "stratified sampling", "paths");
+	rc = hc_strata_run(&res, src, sizes, nsizes, &so, err);
+	hc_progress_end(&opt->progress);
+	if (rc == HC_OK && su->mode == SAMPLER_STRATA_PROPORTIONAL)
+		rc = hc_strata_moments_from_source(&sm, src, su->strata, err);
+	if (rc == HC_OK)
+		rc = hc_strata_curve_alloc(sc, res, su->strata, sm, so.stratify, so.per_stratum_max,
+					src->periods_per_year, err);
+	hc_strata_moments_free(sm);
+	hc_sampler_result_free(res);
+	return rc;
+}
+
+/* Append "a, b, c-d and e" naming the infeasible sizes of sc (runs of
+ * consecutive sizes as ranges), at most STRATA_NAMED items then "and N
+ * more". */
+#define STRATA_NAMED 16
+static void left_out_sizes(char *buf, size_t len, const struct strata_curve *sc)
+{
+	size_t j, items = 0, total = 0, used = strlen(buf);
+
+	for (j = 0; j < sc->npoints; j++)
+		if (!sc->points[j].feasible && (j == 0 || sc->points[j - 1].feasible ||
+						sc->points[j].n != sc->points[j - 1].n + 1))
+			total++;
+	for (j = 0; j < sc->npoints && items < STRATA_NAMED; j++) {
+		size_t first, last, e = j;
+		const char *sep;
+
+		if (sc->points[j].feasible)
+			continue;
+		while (e + 1 < sc->npoints && !sc->points[e + 1].feasible &&
+		       sc->points[e + 1].n == sc->points[e].n + 1)
+			e++;
+		first = sc->points[j].n;
+		last = sc->points[e].n;
+		items++;
+		sep = items == 1 ? "" : (items == total ? " and " : ", ");
+		if (used < len)
+			used += (size_t)snprintf(buf + used, len - used, first == last ? "%s%zu" : "%s%zu-%zu",
+						 sep, first, last);
+		j = e;
+	}
+	if (items < total && used < len)
+		snprintf(buf + used, len - used, " and %zu more", total - items);
+}
+
+/* The stratified columns beside the curve's, and what they mean. */
+static int add_strata(struct report *r, const struct hc_strata_use *su, const struct strata_curve *sc)
+{
+	char text[600];
+	size_t j, any_out = 0;
+
+	if (hc_strata_use_report(r, su))
+		return HC_ENOMEM;
+	if (!sc)
+		return HC_OK;
+	if (hc_strata_report_columns(sc, r->tables[r->ntables - 1]))
+		return HC_ENOMEM;
+	for (j = 0; j < sc->npoints; j++)
+		any_out |= !sc->points[j].feasible;
+	if (any_out) {
+		/* The true maximum, sum_s min(k, m_s), not the largest grid size
+		 * that happens to fit under it. */
+		snprintf(text, sizeof text, "stratified: no portfolio of more than %zu holdings has at most %zu "
+			 "in every stratum (the sum over strata of the smaller of %zu and the stratum's size); "
+			 "left out of the stratified columns: ",
+			 hc_strata_cap_most(su->strata, sc->per_stratum_max), sc->per_stratum_max,
+			 sc->per_stratum_max);
+		left_out_sizes(text, sizeof text, sc);
+		if (hc_report_add_note(r, text))
+			return HC_ENOMEM;
+	}
+	snprintf(text, sizeof text, "stratified: %s; its z compares the sampled mean with the exact "
+		 "stratified expectation%s", sc->mode == SAMPLER_STRATA_PROPORTIONAL
+		 ? "the exact column is the expected variance of the fixed allocation"
+		 : "the cap draws the allocation at random, so there is no exact column",
+		 sc->mode == SAMPLER_STRATA_PROPORTIONAL ? "" : " (none here)");
+	return hc_report_add_note(r, text) ? HC_ENOMEM : HC_OK;
+}
+
+/* The curve table, with the scale appended as a column so that the CSV,
+ * which carries only this table, still says what it is annualised by. */
+int hc_curve_add_table(struct report *r, const struct curve *c, int annualised)
+{
+	struct report_table *t = hc_report_add_table(r, "curve", "risk by holding count");
+	size_t i;
+
+	if (!t || hc_curve_report(c, t) != HC_OK ||
+	    hc_report_table_add_column(t, "periods_per_year", "per year", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	if (annualised)
+		for (i = 0; i < t->nrows; i++)
+			hc_report_table_set_real(t, i, t->ncols - 1, c->periods_per_year);
+	return HC_OK;
+}
+
+static int curve_fields(struct report *r, const struct hc_source *s, const char *input,
+			const struct moments *mo, const struct curve *c)
+{
+	const struct universe *u = s->u;
+	char seed[32];
+
+	snprintf(seed, sizeof seed, "%llu", (unsigned long long)c->seed);
+	if (hc_report_add_text(r, "source", "source", s->name ? s->name : "") ||
+	    hc_report_add_text(r, "input", "input", input) ||
+	    hc_report_add_int(r, "securities", "securities kept", (long long)hc_source_m(s)) ||
+	    hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)(u ? u->ndropped : 0)) ||
+	    (u ? hc_report_add_int(r, "periods", "periods", (long long)u->t)
+	       : hc_report_add_none(r, "periods", "periods")) ||
+	    hc_report_add_scale(r, c->periods_per_year, s->annualised) ||
+	    hc_report_add_real(r, "floor_sd", "floor sd (unbounded universe)",
+			    c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
+	    hc_report_add_real(r, "universe_sd", "equal-weight universe sd", sqrt(c->universe_variance),
+			    REPORT_STYLE_PERCENT) ||
+	    hc_report_add_real(r, "average_correlation", "average correlation",
+			    mo->has_correlation ? mo->average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    hc_report_add_int(r, "paths", "random portfolios per count", (long long)c->paths) ||
+	    (c->paths ? hc_report_add_text(r, "seed", "seed", seed) : hc_report_add_none(r, "seed", "seed")) ||
+	    hc_report_add_text(r, "sampling", "sampling",
+			    c->paths ? "uniform random subsets without replacement; z compares the sampled mean "
+				       "variance with the exact one in Monte Carlo standard errors"
+				     : "not sampled (--paths 0)"))
+		return HC_ENOMEM;
+	return hc_curve_add_table(r, c, s->annualised);
+}
+
+static const char *input_text(const struct hc_source *s)
+{
+	switch (s->kind) {
+	case HC_SOURCE_SERIES:
+		return "return history";
+	case HC_SOURCE_PAIRWISE:
+		return s->psd.repaired ? "return history with gaps; its pairwise-complete covariances, repaired to the "
+					 "nearest positive semi-definite matrix, give the exact columns and the random portfolios"
+		     : s->cm ? "return history with gaps; sampled from its pairwise-complete covariances" : "return history";
+	}
+	return "covariance matrix";
+}
+
+static int build(struct hc_curve_result *res, const struct hc_source *src, const struct hc_curve_options *opt)
+{
+	struct report *r = res->report = hc_report_alloc();
+
+	if (!r || curve_fields(r, src, input_text(src), &res->mo, res->curve) ||
+	    add_strata(r, opt->strata, res->strata) || hc_source_report_psd(src, r))
+		return HC_ENOMEM;
+	return hc_report_add_cautions(r);
+}
+
+/* The exact curve at every count 1..M, for plots. */
+static int full_curve(struct hc_curve_result *res, const struct hc_source *src, struct hc_error *err)
+{
+	size_t m = hc_source_m(src), i, *sizes = hc_calloc(m, sizeof *sizes);
+	int rc;
+
+	if (!sizes)
+		return hc_error(err, HC_ENOMEM, "out of memory for the count grid");
+	for (i = 0; i < m; i++)
+		sizes[i] = i + 1;
+	rc = hc_curve_exact(&res->full, &res->mo, sizes, m, src->periods_per_year, err);
+	hc_free(sizes);
+	return rc;
+}
+
+static int check(const struct hc_source *src, const struct hc_curve_options *opt, struct hc_error *err)
+{
+	if (!opt->strata || !opt->strata->map)
+		return HC_OK;
+	if (src->kind == HC_SOURCE_MATRIX)
+		return hc_error(err, HC_EUSAGE, "--strata draws from return series, not from a covariance matrix");
+	if (opt->paths == 0)
+		return hc_error(err, HC_EUSAGE, "--strata draws random portfolios: it needs --paths above 0");
+	if (!hc_source_has_series(src))
+		return hc_error(err, HC_EUSAGE, "--strata draws from complete return series, and '%s' has gaps "
+				"under --missing pairwise", src->name ? src->name : "");
+	return HC_OK;
+}
+
+int hc_curve_run(struct hc_curve_result **out, const struct hc_source *src, const size_t *sizes, size_t nsizes,
+		 const struct hc_curve_options *opt, struct hc_error *err)
+{
+	struct hc_curve_result *res;
+	int rc;
+
+	*out = NULL;
+	if ((rc = check(src, opt, err)))
+		return rc;
+	if (!(res = hc_calloc(1, sizeof *res)))
+		return hc_error(err, HC_ENOMEM, "out of memory");
+	if (opt->moments)
+		res->mo = *opt->moments;
+	else
+		rc = hc_moments_from_source(&res->mo, src, err);
+	if (rc == HC_OK && opt->strata && opt->strata->map)
+		rc = sample_strata(src, opt, sizes, nsizes, &res->strata, err);
+	if (rc == HC_OK)
+		rc = hc_curve_exact(&res->curve, &res->mo, sizes, nsizes, src->periods_per_year, err);
+	if (rc == HC_OK && opt->paths > 0)
+		rc = sample(src, opt, res->curve, sizes, nsizes, err);
+	if (rc == HC_OK && opt->full)
+		rc = full_curve(res, src, err);
+	if (rc == HC_OK && build(res, src, opt))
+		rc = hc_error(err, HC_ENOMEM, "out of memory building the report");
+	if (rc) {
+		hc_curve_result_free(res);
+		return rc;
+	}
+	*out = res;
+	return HC_OK;
+}
+
+/* ---- from summary statistics (`holdcount formula`) ---- */
+
+/* Text view: variance-scale inputs may be in any unit (percent squared,
+ * say), so their figures are shown plain rather than as percents. */
+static void plain_styles(struct report_table *t)
+{
+	size_t i, j;
+
+	for (j = 0; j < t->ncols; j++) {
+		/* A share is a share whatever the unit of the inputs. */
+		if (t->cols[j].style != REPORT_STYLE_PERCENT || strcmp(t->cols[j].key, "diversifiable_share") == 0)
+			continue;
+		t->cols[j].style = REPORT_STYLE_PLAIN;
+		for (i = 0; i < t->nrows; i++)
+			t->cells[i * t->ncols + j].style = REPORT_STYLE_PLAIN;
+	}
+}
+
+static int build_formula(struct report *r, const struct moments *mo, const struct curve *c,
+			 int annualised, int plain)
+{
+	int sd_style = plain ? REPORT_STYLE_PLAIN : REPORT_STYLE_PERCENT;
+	double p = c->periods_per_year;
+	struct report_table *t;
+
+	if (hc_report_add_real(r, "average_variance", "average variance", mo->average_variance * p, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(r, "average_covariance", "average covariance", mo->average_covariance * p, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(r, "average_correlation", "average correlation (implied)",
+			    mo->average_covariance / mo->average_variance, REPORT_STYLE_FIXED4) ||
+	    (mo->m ? hc_report_add_int(r, "securities", "securities", (long long)mo->m)
+		   : hc_report_add_none(r, "securities", "securities")) ||
+	    hc_report_add_text(r, "universe", "universe", mo->m ? "finite" : "unbounded") ||
+	    hc_report_add_scale(r, p, annualised) ||
+	    hc_report_add_real(r, "floor_variance", "floor variance", c->floor_variance, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(r, "floor_sd", "floor sd", c->floor_variance >= 0 ? sqrt(c->floor_variance) : NAN, sd_style) ||
+	    hc_report_add_real(r, "universe_sd", "equal-weight universe sd",
+			    mo->m ? sqrt(c->universe_variance) : NAN, sd_style))
+		return HC_ENOMEM;
+	if (hc_curve_add_table(r, c, annualised))
+		return HC_ENOMEM;
+	t = r->tables[r->ntables - 1];
+	if (plain)
+		plain_styles(t);
+	if (annualised && mo->average_variance * p > HC_MOMENTS_IMPLAUSIBLE_SD * HC_MOMENTS_IMPLAUSIBLE_SD) {
+		char text[300];
+
+		snprintf(text, sizeof text,
+			 "implausible: the average sd is %.4g%% a year, above %.0f%%; are the inputs in percent "
+			 "(variances in percent squared?) rather than decimals?", 100 * sqrt(mo->average_variance * p),
+			 100 * HC_MOMENTS_IMPLAUSIBLE_SD);
+		if (hc_report_add_note(r, text))
+			return HC_ENOMEM;
+	}
+	return hc_report_add_cautions(r);
+}
+
+int hc_curve_formula(struct report **out, const struct moments *mo, const size_t *sizes, size_t nsizes,
+		     double periods_per_year, int plain, struct hc_error *err)
+{
+	struct curve *c = NULL;
+	struct report *r = NULL;
+	int rc, annualised = periods_per_year > 0;
+
+	*out = NULL;
+	rc = hc_curve_exact(&c, mo, sizes, nsizes, annualised ? periods_per_year : 1.0, err);
+	if (rc == HC_OK && (!(r = hc_report_alloc()) || build_formula(r, mo, c, annualised, plain))) {
+		hc_report_free(r);
+		rc = hc_error(err, HC_ENOMEM, "out of memory building the report");
+	} else if (rc == HC_OK)
+		*out = r;
+	hc_curve_free(c);
+	return rc;
+}

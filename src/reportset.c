@@ -1,0 +1,769 @@
+/*
+ * reportset.c - the report pipeline (reportset.h): every analysis of the
+ * report through the calls the commands make, then the folder: the
+ * commands' CSVs, summary.json as one JSON tree, summary.md (the Markdown
+ * writer of these results, with the text writer's number formatting) and
+ * the plots.
+ */
+#define _GNU_SOURCE 1
+
+#include "holdcount/reportset.h"
+
+#include <limits.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "holdcount/bootstrap.h"
+#include "holdcount/memory.h"
+#include "holdcount/plots.h"
+#include "holdcount/rules.h"
+
+void hc_reportset_choose_window(struct hc_reportset_options *opt, size_t t, double ppy,
+				int window_given, size_t window, size_t step)
+{
+	size_t year = ppy >= 1.5 ? (size_t)llround(ppy) : 1;
+
+	opt->window_why[0] = '\0';
+	opt->window_default = 0;
+	opt->step = step ? step : year;
+	if (window_given) {
+		opt->window = window;
+		if (!opt->window)
+			snprintf(opt->window_why, sizeof opt->window_why, "`--window 0` was given");
+		return;
+	}
+	opt->window_default = 1;
+	opt->window = REPORTSET_WINDOW_YEARS * year;
+	if (t < REPORTSET_WINDOW_MIN_SPANS * opt->window) {
+		snprintf(opt->window_why, sizeof opt->window_why, "the history has %zu periods, fewer than two windows "
+			 "of %zu (five years at %.10g periods a year); `--window W` with a shorter W gives it", t,
+			 opt->window, ppy);
+		opt->window = 0;
+	}
+}
+
+void hc_reportset_free(struct hc_reportset *r)
+{
+	if (!r)
+		return;
+	hc_report_free(r->rep_universe);
+	hc_report_free(r->rep_audit);
+	hc_report_free(r->rep_plots);
+	hc_report_free(r->rep_rolling);
+	hc_rolling_result_free(r->rolling);
+	hc_audit_result_free(r->audit);
+	hc_enough_free(r->enough);
+	hc_curve_result_free(r->curve_run);
+	hc_free(r);
+}
+
+/* ---- computing ----------------------------------------------------------------- */
+
+static void stage(const struct hc_reportset *r, const char *what)
+{
+	hc_progress_begin(&r->o.progress, what, NULL, NULL);
+}
+
+/* The curve as `holdcount curve` computes and reports it: exact at the
+ * grid, sampled there; and the exact curve at every count for the plots. */
+static int compute_curve(struct hc_reportset *r, struct hc_error *err)
+{
+	struct hc_curve_options co = r->o.curve;
+	int rc;
+
+	co.full = 1;
+	co.moments = &r->mo;
+	co.strata = NULL;
+	co.progress = r->o.progress;
+	if ((rc = hc_curve_run(&r->curve_run, r->src, r->o.sizes, r->o.nsizes, &co, err)) != HC_OK)
+		return rc;
+	r->curve = r->curve_run->curve;
+	r->full = r->curve_run->full;
+	r->rep_curve = r->curve_run->report;
+	return HC_OK;
+}
+
+/* Every rule as `holdcount enough` runs them. */
+static int compute_rules(struct hc_reportset *r, struct hc_error *err)
+{
+	struct hc_enough_options eo = r->o.enough;
+	int rc;
+
+	eo.moments = &r->mo;
+	eo.strata = NULL;
+	eo.sentence_column = 1;   /* enough.csv carries the recommendation on its own */
+	eo.progress = r->o.progress;
+	if ((rc = hc_enough_run(&r->enough, r->src, &eo, err)) != HC_OK)
+		return rc;
+	r->rules = r->enough->rules;
+	r->nrules = r->enough->nrules;
+	r->rep_enough = r->enough->report;
+	return HC_OK;
+}
+
+/* The funds as `holdcount audit` audits them. */
+static int compute_audit(struct hc_reportset *r, struct hc_error *err)
+{
+	struct audit_options ao = r->o.audit;
+	int rc;
+
+	hc_progress_begin(&r->o.progress, NULL, "sampling the funds' counts", "paths");
+	ao.progress = r->o.progress.update;
+	ao.progress_ctx = r->o.progress.ctx;
+	rc = hc_audit_run(&r->audit, r->o.holdings, r->src, &r->mo, &ao, err);
+	hc_progress_end(&r->o.progress);
+	return rc ? rc : hc_audit_report(&r->rep_audit, r->audit, r->o.holdings, err);
+}
+
+/* The exact rules, with the report's parameters, in every window; no
+ * bootstrap per window (that is `holdcount rolling --bootstrap`). */
+static int compute_rolling(struct hc_reportset *r, const struct universe *every, struct hc_error *err)
+{
+	struct rolling_options ro;
+	struct hc_source view;
+	int rc;
+
+	hc_rolling_options_init(&ro);
+	ro.window = r->window;
+	ro.step = r->step;
+	ro.rules = r->o.enough.rules;
+	ro.rules.selected &= RULES_EXACT_MASK;
+	hc_progress_begin(&r->o.progress, NULL, "windows", "windows");
+	ro.progress = r->o.progress.update;
+	ro.progress_ctx = r->o.progress.ctx;
+	hc_source_init_series(&view, every);   /* every security as read, gaps kept */
+	rc = hc_rolling_run(&r->rolling, &view, &ro, err);
+	hc_progress_end(&r->o.progress);
+	if (rc != HC_OK)
+		return rc;
+	r->rep_rolling = hc_report_alloc();
+	if (!r->rep_rolling || hc_rolling_report(r->rep_rolling, r->rolling, err) ||
+	    hc_rolling_report_context(r->rep_rolling, r->rolling) || hc_report_add_cautions(r->rep_rolling))
+		return hc_error(err, HC_ENOMEM, "out of memory building the rolling report");
+	return HC_OK;
+}
+
+static int build_universe(struct hc_reportset *r);
+
+int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
+		     const struct universe *every_security, const struct hc_reportset_options *opt,
+		     struct hc_error *err)
+{
+	struct hc_reportset *r;
+	int rc;
+
+	*out = NULL;
+	if (!hc_source_has_series(src))
+		return hc_error(err, HC_EUSAGE, "the report needs complete return series");
+	if (opt->window && !every_security)
+		return hc_error(err, HC_EUSAGE, "rolling windows need the history with every security");
+	if (!(r = hc_calloc(1, sizeof *r)))
+		return hc_error(err, HC_ENOMEM, "out of memory");
+	r->o = *opt;
+	r->src = src;
+	r->u = src->u;
+	r->window = opt->window;
+	r->step = opt->step;
+	stage(r, "exact curve");
+	rc = hc_moments_from_source(&r->mo, src, err);
+	if (rc == HC_OK)
+		rc = compute_curve(r, err);
+	if (rc == HC_OK) {
+		stage(r, "exact rules");
+		rc = compute_rules(r, err);
+	}
+	if (rc == HC_OK && opt->holdings) {
+		stage(r, "audit of the funds");
+		rc = compute_audit(r, err);
+	}
+	if (rc == HC_OK && r->window) {
+		stage(r, "rolling windows");
+		rc = compute_rolling(r, every_security, err);
+	}
+	if (rc == HC_OK && build_universe(r))
+		rc = hc_error(err, HC_ENOMEM, "out of memory building the report");
+	if (rc != HC_OK) {
+		hc_reportset_free(r);
+		return rc;
+	}
+	*out = r;
+	return HC_OK;
+}
+
+/* The rows of the curve shown in summary.md (the CSV has every grid row). */
+static const size_t readable_grid[] = { 1, 2, 3, 5, 10, 15, 20, 25, 30, 40, 50, 75, 100, 150, 200, 300, 500, 1000 };
+
+/* ---- the report objects ----------------------------------------------------------- */
+
+static int build_universe(struct hc_reportset *r)
+{
+	struct report *rep = r->rep_universe = hc_report_alloc();
+	char first[16], last[16];
+	struct report_table *t;
+	size_t i;
+
+	if (!rep)
+		return HC_ENOMEM;
+	hc_universe_format_date(r->u->dates[0], first);
+	hc_universe_format_date(r->u->dates[r->u->t - 1], last);
+	if (hc_report_add_text(rep, "source", "source", r->u->source ? r->u->source : "") ||
+	    hc_report_add_int(rep, "securities_read", "securities read", (long long)r->u->m_read) ||
+	    hc_report_add_int(rep, "securities", "securities kept", (long long)r->u->m) ||
+	    hc_report_add_int(rep, "securities_dropped", "securities dropped", (long long)r->u->ndropped) ||
+	    hc_report_add_int(rep, "periods", "periods", (long long)r->u->t) ||
+	    hc_report_add_text(rep, "first_date", "first period", first) ||
+	    hc_report_add_text(rep, "last_date", "last period", last) ||
+	    hc_report_add_scale(rep, r->u->periods_per_year, 1) ||
+	    hc_report_add_bool(rep, "periods_detected", "periods per year detected from the dates",
+			    r->u->periods_detected) ||
+	    hc_report_add_real(rep, "average_variance", "average variance", r->mo.average_variance * r->u->periods_per_year,
+			    REPORT_STYLE_FIXED4) ||
+	    hc_report_add_real(rep, "average_covariance", "average covariance",
+			    r->mo.average_covariance * r->u->periods_per_year, REPORT_STYLE_FIXED4) ||
+	    hc_report_add_real(rep, "average_correlation", "average correlation",
+			    r->mo.has_correlation ? r->mo.average_correlation : NAN, REPORT_STYLE_FIXED4) ||
+	    hc_report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
+			    r->curve->floor_variance >= 0 ? sqrt(r->curve->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
+	    hc_report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
+			    REPORT_STYLE_PERCENT))
+		return HC_ENOMEM;
+	if (r->u->ndropped) {
+		t = hc_report_add_table(rep, "dropped", "securities dropped");
+		if (!t || hc_report_table_add_column(t, "id", "id", REPORT_STYLE_PLAIN) ||
+		    hc_report_table_add_column(t, "reason", "reason", REPORT_STYLE_PLAIN))
+			return HC_ENOMEM;
+		for (i = 0; i < r->u->ndropped; i++)
+			if (hc_report_table_add_row(t) || hc_report_table_set_text(t, i, 0, r->u->dropped[i].id) ||
+			    hc_report_table_set_text(t, i, 1, r->u->dropped[i].reason))
+				return HC_ENOMEM;
+	}
+	return hc_report_add_cautions(rep);
+}
+
+static int build_plots_report(struct hc_reportset *r, const struct plots_input *pin, const unsigned char *made)
+{
+	struct report *rep = r->rep_plots = hc_report_alloc();
+	struct report_table *t;
+	char name[REPORTDIR_NAME_MAX], cap[1024];
+	size_t row;
+	int k;
+
+	if (!rep || hc_report_add_text(rep, "format", "plot format", hc_plots_format_name(r->o.plot_format)) ||
+	    hc_report_add_bool(rep, "rendered", "rendered with gnuplot", r->rendered))
+		return HC_ENOMEM;
+	t = hc_report_add_table(rep, "plots", "plots");
+	if (!t || hc_report_table_add_column(t, "name", "plot", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "title", "title", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "script", "script", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "image", "image", REPORT_STYLE_PLAIN) ||
+	    hc_report_table_add_column(t, "caption", "caption", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		if (hc_report_table_add_row(t))
+			return HC_ENOMEM;
+		row = t->nrows - 1;
+		snprintf(name, sizeof name, "%s.gp", hc_plots_name(k));
+		if (hc_report_table_set_text(t, row, 0, hc_plots_name(k)) || hc_report_table_set_text(t, row, 1, hc_plots_title(k)) ||
+		    hc_report_table_set_text(t, row, 2, name) ||
+		    hc_report_table_set_text(t, row, 4, hc_plots_caption(k, pin, cap, sizeof cap)))
+			return HC_ENOMEM;
+		snprintf(name, sizeof name, "%s.%s", hc_plots_name(k), hc_plots_format_name(r->o.plot_format));
+		if (r->rendered && hc_report_table_set_text(t, row, 3, name))
+			return HC_ENOMEM;
+	}
+	return HC_OK;
+}
+
+/* ---- writing the folder -------------------------------------------------------------- */
+
+static int write_report_file(struct reportdir *rd, const char *name, const struct report *rep,
+			     const struct report_writer *w, struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = hc_reportdir_open(rd, name, &fp, err)) != HC_OK)
+		return rc;
+	rc = w->write(fp, rep, err);
+	if (rc != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return hc_reportdir_close(rd, fp, name, err);
+}
+
+/* One table of rep as CSV (hc_report_write_csv_part), as `holdcount audit
+ * --table KEY --format csv` prints it. */
+static int write_part_file(struct reportdir *rd, const char *name, const struct report *rep, const char *table,
+			   struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = hc_reportdir_open(rd, name, &fp, err)) != HC_OK)
+		return rc;
+	rc = hc_report_write_csv_part(fp, rep, table, err);
+	if (rc != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return hc_reportdir_close(rd, fp, name, err);
+}
+
+/* summary.json: every report of the folder under its name, one JSON tree. */
+static int write_json(struct reportdir *rd, struct hc_reportset *r, struct hc_error *err)
+{
+	static const char *const keys[] = { "universe", "curve", "enough", "audit", "rolling", "plots" };
+	const struct report *reps[6];
+	FILE *fp;
+	int rc;
+
+	reps[0] = r->rep_universe;
+	reps[1] = r->rep_curve;
+	reps[2] = r->rep_enough;
+	reps[3] = r->rep_audit;
+	reps[4] = r->rep_rolling;
+	reps[5] = r->rep_plots;
+	if ((rc = hc_reportdir_open(rd, "summary.json", &fp, err)) != HC_OK)
+		return rc;
+	rc = hc_report_write_json_set(fp, HOLDCOUNT_VERSION, keys, reps, 6, err);
+	if (rc != HC_OK) {
+		fclose(fp);
+		return rc;
+	}
+	return hc_reportdir_close(rd, fp, "summary.json", err);
+}
+
+/* ---- summary.md ------------------------------------------------------------------------ */
+
+/* A row of the readable grid (and the last, N = M).  A grid given with
+ * --sizes that shares few counts with it is shown whole instead. */
+static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx);
+
+static int readable_row(const struct report_table *t, size_t row, const void *ctx)
+{
+	size_t i, kept = 0;
+
+	for (i = 0; i < t->nrows; i++)
+		kept += (size_t)on_readable_grid(t, i, ctx);
+	return kept >= 6 || kept == t->nrows ? on_readable_grid(t, row, ctx) : 1;
+}
+
+static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx)
+{
+	const struct report_value *v = hc_report_md_cell(t, row, "n");
+	size_t m = *(const size_t *)ctx, k;
+
+	if (v->kind != REPORT_INT)
+		return 0;
+	if ((size_t)v->integer == m)
+		return 1;
+	for (k = 0; k < sizeof readable_grid / sizeof readable_grid[0]; k++)
+		if ((size_t)v->integer == readable_grid[k])
+			return 1;
+	return 0;
+}
+
+static void md_field(FILE *fp, const struct report *rep, const char *key, const char *label)
+{
+	size_t i;
+
+	for (i = 0; i < rep->nfields; i++)
+		if (strcmp(rep->fields[i].key, key) == 0) {
+			fprintf(fp, "- %s: ", label);
+			hc_report_md_value(fp, &rep->fields[i].value, rep->fields[i].value.style);
+			fputc('\n', fp);
+		}
+}
+
+static void md_universe(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const fields[][2] = {
+		{ "source", "source" }, { "securities_read", "securities read" },
+		{ "securities", "securities kept (complete over the sample)" },
+		{ "securities_dropped", "securities dropped" }, { "periods", "periods" },
+		{ "first_date", "first period" }, { "last_date", "last period" },
+		{ "periods_per_year", "periods per year" }, { "annualisation", "annualisation" },
+		{ "average_variance", "average variance (a year)" }, { "average_covariance", "average covariance (a year)" },
+		{ "average_correlation", "average correlation" },
+		{ "floor_sd", "floor sd, sqrt of the average covariance (a year)" },
+		{ "universe_sd", "sd of the equal-weight portfolio of all securities (a year)" },
+	};
+	size_t i;
+
+	fputs("## The universe\n\n", fp);
+	for (i = 0; i < sizeof fields / sizeof fields[0]; i++)
+		md_field(fp, r->rep_universe, fields[i][0], fields[i][1]);
+	fputc('\n', fp);
+}
+
+static void md_curve(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const cols[][2] = {
+		{ "n", "holdings" }, { "expected_sd", "sqrt E[var] a year" },
+		{ "diversifiable_share", "share above the floor" }, { "expected_tracking_error", "RMS tracking error a year" },
+		{ "sampled_mean_sd", "mean sd (random)" }, { "sd_p05", "sd 5%" }, { "sd_p95", "sd 95%" },
+		{ "z_score", "z (sampled vs exact)" },
+	};
+	const struct report_table *t = hc_report_find_table(r->rep_curve, "curve");
+
+	fputs("## Risk by holding count\n\n", fp);
+	fprintf(fp, "Exact figures for a random equal-weight portfolio of N holdings drawn without replacement, "
+		"and %zu random portfolios per count (seed %llu) to check them: z is the sampled mean variance's "
+		"distance from the exact one in Monte Carlo standard errors. Every grid row is in `curve.csv`.\n\n",
+		r->curve->paths, (unsigned long long)r->curve->seed);
+	if (t)
+		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row, &r->u->m);
+}
+
+/* What each rule asks, in a line a committee reader can follow; sources as
+ * in docs/enough.md. */
+static const char *const rule_legend[RULES_COUNT] = {
+	"near-floor: the expected sd is within x of the floor, the sd no number of holdings gets below",
+	"marginal: one more holding lowers the expected sd by less than eps a year",
+	"band: the q-quantile of random portfolios' sd is within x of the floor, so even an unlucky "
+	"draw of that many holdings is near it",
+	"next-holding (this tool's own rule): the premium earned on the risk one more holding removes is "
+	"at most that holding's yearly cost",
+	"tracking-error: the root mean square tracking error against the equal-weight portfolio of the whole "
+	"universe is within the budget",
+	"lag-share (this tool's own rule): fewer than p of random portfolios, rebalanced every period, lag "
+	"the universe's return over the sample by more than d a year",
+	"statman-borrowing (Statman, 1987, Journal of Financial and Quantitative Analysis 22(3)): the extra "
+	"return of the index levered to the portfolio's sd, premium over the borrowing rate times "
+	"(sd(N)/sd(index) - 1), is at most the index fund's cost disadvantage",
+	"statman-lending (Statman, 1987): the same with the premium over the lending rate",
+	"alexeev-tapon (Alexeev & Tapon, 2014, Journal of Banking & Finance 46): a random portfolio removes "
+	"at least x of the removable variance with probability at least q (gamma approximation from the "
+	"exact mean and spread)",
+	"alexeev-tapon-sampled: the same rule counted over sampled random portfolios",
+};
+
+static void md_rules(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const cols[][2] = {
+		{ "rule", "rule" }, { "parameters", "parameters" }, { "count", "count" },
+		{ "count_p05", "5%" }, { "count_p50", "median" }, { "count_p95", "95%" },
+		{ "value_at_count", "value at count" }, { "unit", "value is" }, { "note", "note" },
+	};
+	const struct report_table *t = hc_report_find_table(r->rep_enough, "rules");
+	size_t k;
+	int sampled = 0, intervals = 0;
+
+	for (k = 0; k < r->nrules; k++) {
+		sampled |= (RULES_FLAG(r->rules[k].rule) & RULES_SAMPLED_MASK) && r->rules[k].defined;
+		intervals |= r->rules[k].bootstrapped;
+	}
+	fputs("## How many holdings are enough\n\n", fp);
+	fputs("Each rule turns the curve into one count: the smallest number of equal-weight holdings that "
+	      "meets it.\n\n", fp);
+	for (k = 0; k < r->nrules; k++)
+		if (r->rules[k].rule >= 0 && r->rules[k].rule < RULES_COUNT)
+			fprintf(fp, "- %s\n", rule_legend[r->rules[k].rule]);
+	fputc('\n', fp);
+	if (intervals)
+		fprintf(fp, "How to read it: the count is the estimate from the whole history; 5%%, median and 95%% "
+			"are percentiles of the count when the periods are resampled (%s bootstrap, %zu replicates), "
+			"so 5%% to 95%% is a 90%% interval from the data's own estimation error. A narrow interval "
+			"means the history pins the count down; a wide one means a minimum-holdings rule should "
+			"lean to its upper end. Each percentile is a count some replicate needed: the smallest count "
+			"that at least that share of the replicates needed or fewer, so always a whole number of "
+			"holdings. \"not met\" in an interval means the percentile falls among replicates that never "
+			"meet the rule.%s\n\n",
+			hc_bootstrap_kind_name(r->o.enough.bootstrap_kind), r->o.enough.bootstrap,
+			sampled && !r->o.enough.bootstrap_sampled
+			? " The sampled rules (band, lag-share, alexeev-tapon-sampled) are drawn from random portfolios and have no interval "
+			  "here: `--bootstrap-sampled` gives them one, at some cost in time." : "");
+	else
+		fputs("How to read it: the count is the estimate from the whole history; no bootstrap was run "
+		      "(`--bootstrap 0`), so there is no interval for the estimation error in it.\n\n", fp);
+	if (t)
+		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
+	for (k = 0; r->rep_enough && k < r->rep_enough->nfields; k++)
+		if (strcmp(r->rep_enough->fields[k].key, "policy_sentence") == 0 &&
+		    r->rep_enough->fields[k].value.kind == REPORT_TEXT)
+			fprintf(fp, "**Recommendation** (`--policy`, `--policy-at`; a sentence for a policy statement):\n\n> %s\n\n",
+				r->rep_enough->fields[k].value.text);
+}
+
+static void md_audit(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const cols[][2] = {
+		{ "fund", "fund" }, { "holdings", "holdings" }, { "effective_holdings", "effective (1/HHI)" },
+		{ "max_weight", "largest weight" }, { "top10_share", "top 10" }, { "sd", "sd a year" },
+		{ "equivalent_count", "equivalent count" }, { "sd_percentile", "sd percentile" },
+		{ "ucits", "UCITS" }, { "1940act", "1940 Act" }, { "ric", "RIC" },
+		{ "passed", "passes policy" }, { "failed_rules", "fails" },
+	};
+	const struct report_table *t = hc_report_find_table(r->rep_audit, "funds");
+
+	fputs("## Audited funds\n\n", fp);
+	if (!t) {
+		fputs("No holdings were given (`--holdings FILE` audits funds).\n\n", fp);
+		return;
+	}
+	fprintf(fp, "From `%s`, against the universe above.\n\n", r->o.holdings_name);
+	md_field(fp, r->rep_audit, "policy", "policy");
+	md_field(fp, r->rep_audit, "failed_funds", "funds failing it");
+	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
+	      "equivalent count is the number of random equal-weight holdings with the fund's own sd (\"below "
+	      "the floor\" when no count of them is that low); the sd percentile places the fund's sd among "
+	      "random equal-weight portfolios of its own count (50% is typical, high is riskier). UCITS, 1940 "
+	      "Act and RIC are the weight screens of Directive 2009/65/EC Art. 52, the Investment Company Act "
+	      "of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3), written from memory of the texts: "
+	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
+	      "only when `--screens` names it.\n\n", fp);
+	hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, and "
+		"everything in `summary.json` under `audit`.\n\n",
+		hc_report_find_table(r->rep_audit, "sectors") ? ", each fund's sector weights in `audit-sectors.csv`" : "");
+}
+
+/* Whether some row of t has a non-empty text in column key. */
+static int any_text(const struct report_table *t, const char *key)
+{
+	size_t i;
+
+	for (i = 0; i < t->nrows; i++) {
+		const struct report_value *v = hc_report_md_cell(t, i, key);
+		if (v->kind == REPORT_TEXT && v->text && v->text[0])
+			return 1;
+	}
+	return 0;
+}
+
+static void md_rolling(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const fixed[][2] = {
+		{ "window_start", "from" }, { "window_end", "to" }, { "securities", "securities" },
+		{ "average_correlation", "avg correlation" }, { "floor_sd", "floor sd a year" },
+	};
+	const char *cols[RULES_COUNT + 8][2];
+	const struct report_table *t = hc_report_find_table(r->rep_rolling, "windows");
+	size_t n = 0, j;
+
+	fputs("## Count needed through time\n\n", fp);
+	if (!r->window || !t) {
+		fprintf(fp, "Left out: %s.\n\n", r->o.window_why[0] ? r->o.window_why : "no rolling windows");
+		return;
+	}
+	fprintf(fp, "Each exact rule's count from the averages of each window of %zu periods (%s), one window "
+		"starting every %zu periods: %zu windows. The sampled rules (band, lag-share, alexeev-tapon-sampled) and the bootstrap "
+		"interval are not run per window (`holdcount rolling --bootstrap` gives the interval). Averages "
+		"drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, Journal of Finance 56(1)), so a count "
+		"set once is worth revisiting. Every window's averages are in `rolling.csv`.\n\n",
+		r->window, r->o.window_default ? "five years, the report's default; `--window W` sets another length "
+		"and `--window 0` leaves this out" : "set with `--window`", r->step, r->rolling->nwindows);
+	for (j = 0; j < sizeof fixed / sizeof fixed[0]; j++) {
+		cols[n][0] = fixed[j][0];
+		cols[n++][1] = fixed[j][1];
+	}
+	for (j = 0; j < t->ncols && n < sizeof cols / sizeof cols[0] - 1; j++)
+		if (strncmp(t->cols[j].key, "count_", 6) == 0) {
+			cols[n][0] = t->cols[j].key;
+			cols[n++][1] = t->cols[j].title;
+		}
+	if (any_text(t, "note")) {
+		cols[n][0] = "note";
+		cols[n++][1] = "note";
+	}
+	hc_report_md_table(fp, t, (const char *const (*)[2])cols, n, NULL, NULL);
+}
+
+static void md_plots(FILE *fp, const struct hc_reportset *r, const struct plots_input *pin, const unsigned char *made)
+{
+	char cap[1024];
+	int k;
+
+	fputs("## Plots\n\n", fp);
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		if (r->rendered && r->o.plot_format != PLOTS_PDF)
+			fprintf(fp, "![%s](%s.%s)\n\n", hc_plots_title(k), hc_plots_name(k), hc_plots_format_name(r->o.plot_format));
+		else if (r->rendered)
+			fprintf(fp, "[%s](%s.pdf)\n\n", hc_plots_title(k), hc_plots_name(k));
+		fprintf(fp, "*%s* (`%s.gp`)\n\n", hc_plots_caption(k, pin, cap, sizeof cap), hc_plots_name(k));
+	}
+	if (!r->rendered)
+		fputs("gnuplot was not found on the PATH, so the plots are scripts only. To render them, install "
+		      "gnuplot and run, inside this folder, `gnuplot risk.gp` (and likewise for each `.gp` file); "
+		      "see README-plots.txt.\n\n", fp);
+}
+
+static int write_markdown(struct reportdir *rd, struct hc_reportset *r, const struct plots_input *pin,
+			  const unsigned char *made, struct hc_error *err)
+{
+	char date[16];
+	time_t now = time(NULL);
+	struct tm tm;
+	FILE *fp;
+	size_t i;
+	int rc;
+
+	if ((rc = hc_reportdir_open(rd, "summary.md", &fp, err)) != HC_OK)
+		return rc;
+	gmtime_r(&now, &tm);
+	strftime(date, sizeof date, "%Y-%m-%d", &tm);
+	fprintf(fp, "# Holding-count report\n\n");
+	fprintf(fp, "Written by holdcount %s on %s (UTC; the only line that changes when the same inputs are run "
+		"again).\n\n", HOLDCOUNT_VERSION, date);
+	md_universe(fp, r);
+	md_curve(fp, r);
+	md_rules(fp, r);
+	md_audit(fp, r);
+	md_rolling(fp, r);
+	md_plots(fp, r, pin, made);
+	fputs("## Cautions\n\n", fp);
+	for (i = 0; i < r->rep_universe->nnotes; i++)
+		fprintf(fp, "- %s\n", r->rep_universe->notes[i]);
+	if (r->rep_audit)
+		fputs("- regulatory screens: written from memory of the published texts and testing weights only; "
+		      "verify against the current text and defer to compliance counsel\n", fp);
+	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
+	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
+	      "`--format csv` and the same options\n", fp);
+	if (r->rep_audit)
+		fprintf(fp, "- `audit-screens.csv`%s: what `holdcount audit` prints with `--format csv --table "
+			"screens`%s\n", hc_report_find_table(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
+			hc_report_find_table(r->rep_audit, "sectors") ? " and `--table sectors`" : "");
+	if (r->rep_rolling)
+		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
+	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
+	return hc_reportdir_close(rd, fp, "summary.md", err);
+}
+
+/* ---- plots ----------------------------------------------------------------------------- */
+
+static int write_plots(struct reportdir *rd, struct hc_reportset *r, struct plots_input *pin, unsigned char *made,
+		       struct hc_error *err)
+{
+	unsigned need = 0;
+	char name[REPORTDIR_NAME_MAX];
+	FILE *fp;
+	int k, rc;
+
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		made[k] = (unsigned char)hc_plots_available(k, pin);
+		if (made[k])
+			need |= hc_plots_data_used(k);
+	}
+	for (k = 0; k < PLOTS_NDATA; k++) {
+		if (!(need & (1u << k)) || (k == PLOTS_DATA_SAMPLED && !pin->sampled))
+			continue;
+		if ((rc = hc_reportdir_open(rd, hc_plots_data_name(k), &fp, err)) != HC_OK)
+			return rc;
+		rc = hc_plots_write_data(fp, k, pin, err);
+		if (rc != HC_OK) {
+			fclose(fp);
+			return rc;
+		}
+		if ((rc = hc_reportdir_close(rd, fp, hc_plots_data_name(k), err)) != HC_OK)
+			return rc;
+	}
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		snprintf(name, sizeof name, "%s.gp", hc_plots_name(k));
+		if ((rc = hc_reportdir_open(rd, name, &fp, err)) != HC_OK)
+			return rc;
+		rc = hc_plots_write_script(fp, k, pin, r->o.plot_format, err);
+		if (rc != HC_OK) {
+			fclose(fp);
+			return rc;
+		}
+		if ((rc = hc_reportdir_close(rd, fp, name, err)) != HC_OK)
+			return rc;
+	}
+	return HC_OK;
+}
+
+static int render_plots(struct reportdir *rd, struct hc_reportset *r, const unsigned char *made, struct hc_error *err)
+{
+	char script[REPORTDIR_NAME_MAX], image[REPORTDIR_NAME_MAX], line[128];
+	int k, rc, done = 0, total = 0;
+
+	for (k = 0; k < PLOTS_NKINDS; k++)
+		total += made[k];
+	for (k = 0; k < PLOTS_NKINDS; k++) {
+		if (!made[k])
+			continue;
+		snprintf(script, sizeof script, "%s.gp", hc_plots_name(k));
+		snprintf(image, sizeof image, "%s.%s", hc_plots_name(k), hc_plots_format_name(r->o.plot_format));
+		snprintf(line, sizeof line, "rendering %s (%d of %d)", image, ++done, total);
+		hc_progress_begin(&r->o.progress, line, NULL, NULL);
+		if ((rc = hc_reportdir_expect(rd, image, err)) != HC_OK ||
+		    (rc = hc_plots_render(r->gnuplot, hc_reportdir_tmp_path(rd), script, err)) != HC_OK)
+			return rc;
+		if (!hc_reportdir_has(rd, image))
+			return hc_error(err, HC_ERENDER, "gnuplot ran on '%s' but wrote no '%s'", script, image);
+	}
+	return HC_OK;
+}
+
+static int write_render_note(struct reportdir *rd, struct hc_error *err)
+{
+	FILE *fp;
+	int rc;
+
+	if ((rc = hc_reportdir_open(rd, "README-plots.txt", &fp, err)) != HC_OK)
+		return rc;
+	fputs("The plots in this folder are gnuplot scripts (*.gp) with their data (*.dat).\n"
+	      "gnuplot was not on the PATH when the report was written, so they were not rendered.\n\n"
+	      "To render them, install gnuplot 5 and run inside this folder:\n\n"
+	      "    gnuplot risk.gp\n\n"
+	      "and likewise for each .gp file (for f in *.gp; do gnuplot \"$f\"; done).\n"
+	      "Each script writes an image of the same name next to it; the format was chosen with\n"
+	      "--plot-format when the report was written (edit the 'set terminal' lines to change it).\n", fp);
+	return hc_reportdir_close(rd, fp, "README-plots.txt", err);
+}
+
+int hc_reportset_write(struct hc_reportset *r, struct reportdir *rd, struct hc_error *err)
+{
+	struct plots_input pin;
+	unsigned char made[PLOTS_NKINDS];
+	int rc;
+
+	memset(&pin, 0, sizeof pin);
+	pin.exact = r->full;
+	pin.sampled = r->curve->paths ? r->curve : NULL;
+	pin.rules = r->rules;
+	pin.nrules = r->nrules;
+	pin.te_budget = r->o.enough.rules.te_budget;
+	pin.audit = r->audit;
+	pin.rolling = r->rolling;
+	pin.universe_name = r->u->source ? (strrchr(r->u->source, '/') ? strrchr(r->u->source, '/') + 1 : r->u->source)
+					 : NULL;
+	r->rendered = hc_plots_find_gnuplot(NULL, r->gnuplot, sizeof r->gnuplot);
+	rc = write_plots(rd, r, &pin, made, err);
+	if (rc == HC_OK)
+		rc = r->rendered ? render_plots(rd, r, made, err) : write_render_note(rd, err);
+	if (rc == HC_OK && (rc = build_plots_report(r, &pin, made)) != HC_OK)
+		rc = hc_error(err, rc, "out of memory building the report");
+	if (rc == HC_OK)
+		rc = write_report_file(rd, "curve.csv", r->rep_curve, hc_report_writer_csv, err);
+	if (rc == HC_OK)
+		rc = write_report_file(rd, "enough.csv", r->rep_enough, hc_report_writer_csv, err);
+	if (rc == HC_OK && r->rep_audit)
+		rc = write_report_file(rd, "audit.csv", r->rep_audit, hc_report_writer_csv, err);
+	if (rc == HC_OK && r->rep_audit)
+		rc = write_part_file(rd, "audit-screens.csv", r->rep_audit, "screens", err);
+	if (rc == HC_OK && r->rep_audit && hc_report_find_table(r->rep_audit, "sectors"))
+		rc = write_part_file(rd, "audit-sectors.csv", r->rep_audit, "sectors", err);
+	if (rc == HC_OK && r->rep_rolling)
+		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, hc_report_writer_csv, err);
+	if (rc == HC_OK)
+		rc = write_json(rd, r, err);
+	if (rc == HC_OK)
+		rc = write_markdown(rd, r, &pin, made, err);
+	if (rc == HC_OK)
+		rc = hc_reportdir_commit(rd, err);
+	return rc;
+}
+
