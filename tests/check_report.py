@@ -23,6 +23,7 @@ Runs `holdcount report` on the bundled demo and checks:
 import csv
 import json
 import os
+import shutil
 import struct
 import subprocess
 import sys
@@ -56,6 +57,9 @@ def cell_value(text):
         return text
 
 
+# A fresh folder each run (a folder left by an older build lacks the
+# signature file that --force asks for).
+shutil.rmtree(TMP, ignore_errors=True)
 os.makedirs(TMP, exist_ok=True)
 out = os.path.join(TMP, "demo")
 subprocess.run([HC, "report", "--force", "-q", "-o", out, "--paths", "2000", "--bootstrap", "200"],
