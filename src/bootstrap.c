@@ -17,6 +17,7 @@
 #include <string.h>
 
 #include <gsl/gsl_cblas.h>
+#include <gsl/gsl_cdf.h>
 
 #include "holdcount/memory.h"
 #include "holdcount/paths.h"
@@ -578,4 +579,41 @@ void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, doubl
 		q[t] = row_squares(b, t);
 		s2[t] = b->rowsum[t] * b->rowsum[t];
 	}
+}
+
+/* McLeod & Li (1983): Ljung-Box on the squared centred row sums (the
+ * equal-weight portfolio's squared return times M^2; the scale cancels). */
+void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p)
+{
+	size_t n = b->t, h = *lags ? *lags : HC_BOOTSTRAP_CLUSTERING_LAGS, t, k;
+	double mean = 0, den = 0, sum = 0;
+
+	*q = *p = NAN;
+	if (h > n / 4)
+		h = n / 4;
+	if (h < 1)
+		h = 1;
+	*lags = h;
+	if (n < 8)
+		return;
+	for (t = 0; t < n; t++)
+		mean += b->rowsum[t] * b->rowsum[t];
+	mean /= (double)n;
+	for (t = 0; t < n; t++) {
+		double d = b->rowsum[t] * b->rowsum[t] - mean;
+
+		den += d * d;
+	}
+	if (!(den > 0))
+		return;
+	for (k = 1; k <= h; k++) {
+		double c = 0, r;
+
+		for (t = k; t < n; t++)
+			c += (b->rowsum[t] * b->rowsum[t] - mean) * (b->rowsum[t - k] * b->rowsum[t - k] - mean);
+		r = c / den;
+		sum += r * r / (double)(n - k);
+	}
+	*q = (double)n * (double)(n + 2) * sum;
+	*p = gsl_cdf_chisq_Q(*q, (double)h);
 }

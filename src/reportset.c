@@ -467,15 +467,16 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 			fprintf(fp, "- %s\n", rule_legend[r->rules[k].rule]);
 	fputc('\n', fp);
 	if (intervals)
-		fprintf(fp, "How to read it: the count is the estimate from the whole history; 5%%, median and 95%% "
-			"are percentiles of the count when the periods are resampled (%s bootstrap, %zu replicates), "
-			"so 5%% to 95%% is a 90%% interval from the data's own estimation error. A narrow interval "
-			"means the history pins the count down; a wide one means a minimum-holdings rule should "
-			"lean to its upper end. Each percentile is a count some replicate needed: the smallest count "
-			"that at least that share of the replicates needed or fewer, so always a whole number of "
-			"holdings. \"not met\" in an interval means the percentile falls among replicates that never "
-			"meet the rule.%s\n\n",
+		fprintf(fp, "How to read it: the count is the estimate from the whole history; 5%% to 95%% is a 90%% "
+			"interval for it from the data's own estimation error when the periods are resampled (%s "
+			"bootstrap, %zu replicates; %s), and the median is the replicates' median count. A narrow "
+			"interval means the history pins the count down; a wide one means a minimum-holdings rule "
+			"should lean to its upper end. The ends are whole numbers of holdings. \"not met\" in an "
+			"interval means its end falls among replicates that never meet the rule.%s\n\n",
 			hc_bootstrap_kind_name(r->o.enough.bootstrap_kind), r->o.enough.bootstrap,
+			r->o.enough.interval == HC_ENOUGH_INTERVAL_STUDENTIZED ? "studentized on the log count for the "
+			"exact rules, Hall 1988" : r->o.enough.interval == HC_ENOUGH_INTERVAL_BCA ? "bias-corrected and "
+			"accelerated for the exact rules, Efron 1987" : "percentiles of the replicates' counts",
 			sampled && !r->o.enough.bootstrap_sampled
 			? " The sampled rules (band, lag-share, alexeev-tapon-sampled) are drawn from random portfolios and have no interval "
 			  "here: `--bootstrap-sampled` gives them one, at some cost in time." : "");
@@ -484,6 +485,13 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 		      "(`--bootstrap 0`), so there is no interval for the estimation error in it.\n\n", fp);
 	if (t)
 		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	/* How often such an interval holds the true count, and whether this
+	 * history shows the clustering under which it falls short. */
+	for (k = 0; intervals && r->rep_enough && k < r->rep_enough->nnotes; k++)
+		if (strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ||
+		    strncmp(r->rep_enough->notes[k], "volatility clusters", 19) == 0)
+			fprintf(fp, "%s%s.\n\n", strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ? "Coverage: " : "",
+				r->rep_enough->notes[k] + (strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ? 10 : 0));
 	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
 	for (k = 0; r->rep_enough && k < r->rep_enough->nfields; k++)
 		if (strcmp(r->rep_enough->fields[k].key, "policy_sentence") == 0 &&

@@ -24,6 +24,11 @@ fi
 [ -e "$T/a/.holdcount-incomplete" ] && fail "the finished report keeps the incomplete marker"
 grep -q '^## Cautions' "$T/a/summary.md" || fail "summary.md has no cautions"
 grep -q 'not investment advice' "$T/a/summary.md" || fail "summary.md lacks 'not investment advice'"
+# The interval's measured coverage is said where the interval is shown
+# (docs/enough.md, "Measured coverage"; the figures are checked against that
+# table in cli_enough.sh).
+grep -q '^Coverage: in simulations with known true counts .*only [0-9]*-[0-9]*% for the exact rules when volatility clusters' \
+	"$T/a/summary.md" || fail "summary.md does not state the interval's measured coverage"
 grep -q '!\[Risk by holding count\](risk.png)' "$T/a/summary.md" || fail "summary.md does not embed risk.png"
 # The count needed through time is in by default: the demo's 240 months hold
 # two windows of five years (60 periods), one a year (12): (240 - 60)/12 + 1

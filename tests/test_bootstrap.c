@@ -883,6 +883,73 @@ static void test_bootstrap_universe_return_matches_sampler(void **state)
 	fixture_free(u);
 }
 
+/*
+ * The volatility clustering check (McLeod & Li 1983; Ljung & Box 1978): the
+ * lags are clipped to T/4 and at least 1; fewer than 8 periods, or squared
+ * portfolio returns that never vary, give NaN; and a history whose squared
+ * equal-weight returns alternate low, high (|row sum| 1, 3, 1, 3, ...) has
+ * lag autocorrelations of exactly (-1)^k (T-k)/T, so Q is T(T+2)
+ * sum_k (T-k)/T^2 by hand, and its p-value the chi-square(2) tail exp(-Q/2)
+ * (closed form for two degrees of freedom).  The numpy recomputation on a
+ * realistic history is in tests/cli_enough.sh.
+ */
+static void test_bootstrap_clustering_mcleod_li(void **state)
+{
+	enum { M = 2, T = 8 };
+	double x[M * T], q, p;
+	struct universe u;
+	struct bootstrap_base *b = NULL;
+	struct hc_error err;
+	size_t k, lags;
+
+	(void)state;
+	/* Row sums alternate +-1 and +-3 around a zero mean: both securities
+	 * are 0.5, 1.5, -0.5, -1.5, ... so that every column has mean zero
+	 * and the centring changes nothing. */
+	for (k = 0; k < T; k++) {
+		double a = (k % 2 ? 1.5 : 0.5) * ((k / 2) % 2 ? -1 : 1);
+
+		x[0 * T + k] = a;
+		x[1 * T + k] = a;
+	}
+	u = make_universe(M, T, x);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	lags = 0;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_int_equal(lags, T / 4);        /* 12 clipped to T/4 = 2 */
+	{
+		double want = 0;
+
+		for (k = 1; k <= lags; k++)
+			want += (double)(T - k) / ((double)T * T);
+		want *= (double)T * (T + 2);
+		assert_close(q, want, 1e-12 * want);
+		assert_close(p, exp(-want / 2), 1e-12);
+	}
+	lags = 1;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_int_equal(lags, 1);
+	assert_close(q, (double)T * (T + 2) * (T - 1) / ((double)T * T), 1e-12);
+	hc_bootstrap_base_free(b);
+	/* constant squares: NaN */
+	for (k = 0; k < T; k++)
+		x[k] = x[T + k] = (k / 2) % 2 ? -1.25 : 1.25;
+	u = make_universe(M, T, x);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	lags = 0;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_true(isnan(q) && isnan(p));
+	hc_bootstrap_base_free(b);
+	/* fewer than 8 periods: NaN */
+	u = make_universe(M, 6, x);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	lags = 0;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_int_equal(lags, 1);
+	assert_true(isnan(q) && isnan(p));
+	hc_bootstrap_base_free(b);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -903,6 +970,7 @@ int main(void)
 		cmocka_unit_test(test_bootstrap_agrees_with_moments_module),
 		cmocka_unit_test(test_bootstrap_sampled_rules_interval),
 		cmocka_unit_test(test_bootstrap_universe_return_matches_sampler),
+		cmocka_unit_test(test_bootstrap_clustering_mcleod_li),
 	};
 
 	gsl_set_error_handler_off();

@@ -148,6 +148,21 @@ int hc_bootstrap_jackknife(const struct bootstrap_base *b, size_t block_length, 
  * V = sum_t q_t/(T-1) and V + C = sum_t s2_t/(T-1).  q and s2 hold T. */
 void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, double *s2);
 
+/*
+ * Volatility clustering in b's history: the McLeod & Li (1983) test,
+ * "Diagnostic Checking ARMA Time Series Models Using Squared-Residual
+ * Autocorrelations", Journal of Time Series Analysis 4(4) -- the Ljung &
+ * Box (1978, Biometrika 65(2)) statistic Q = T(T+2) sum_{k=1..h} r_k^2/(T-k)
+ * on the squared centred equal-weight portfolio returns, r_k their lag-k
+ * autocorrelation -- with h = *lags (0: HC_BOOTSTRAP_CLUSTERING_LAGS, at
+ * most T/4, at least 1; *lags gets the h used), *q the statistic and *p its
+ * chi-square(h) upper tail.  NaN for both when T < 8 or the squares are
+ * constant.  A small p says volatility clusters, where the measured
+ * coverage of the intervals falls short (docs/enough.md).
+ */
+#define HC_BOOTSTRAP_CLUSTERING_LAGS 12
+void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p);
+
 #ifdef __cplusplus
 }
 #endif

@@ -31,6 +31,11 @@ extern "C" {
  * the least that diversification within this universe can reach. */
 #define ENOUGH_DEFAULT_POLICY RULES_NEAR_FLOOR
 
+/* A McLeod-Li p-value below this says the history's volatility clusters
+ * (the conventional 5% level), and the report says what that does to the
+ * interval's coverage. */
+#define HC_ENOUGH_CLUSTERING_ALPHA 0.05
+
 /* The sampled rules that can draw from a covariance matrix. */
 #define HC_ENOUGH_MATRIX_SAMPLED (RULES_FLAG(RULES_BAND) | RULES_FLAG(RULES_ALEXEEV_TAPON_SAMPLED))
 
@@ -89,6 +94,8 @@ struct hc_enough {
 	int kind;                    /* enum bootstrap_kind */
 	int interval;                /* enum hc_enough_interval used */
 	int auto_block;              /* the block length is the data-driven one */
+	size_t clustering_lags;      /* volatility clustering test (hc_bootstrap_clustering): its lags, */
+	double clustering_q, clustering_p; /* statistic and p-value; NaN when not run */
 	uint64_t seed;
 	size_t paths;                /* 0: no rule was sampled */
 	size_t sampled_sizes;        /* sampled sizes 1..this */
