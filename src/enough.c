@@ -152,8 +152,8 @@ static int add_coverage_notes(struct report *r, const struct hc_enough *e)
 		size_t len = strlen(text);
 
 		snprintf(text + len, sizeof text - len, "; the sampled rules' percentile intervals held it in only "
-			 "%d-%d%% (read them as a rough guide)", measured_sampled_coverage[0],
-			 measured_sampled_coverage[1]);
+			 "%d-%d%% (read them as a rough guide); alexeev-tapon's percentile interval has not been "
+			 "measured", measured_sampled_coverage[0], measured_sampled_coverage[1]);
 	}
 	bad |= hc_report_add_note(r, text);
 	if (e->clustering_p < HC_ENOUGH_CLUSTERING_ALPHA) {
@@ -508,9 +508,10 @@ static int exact_intervals(struct hc_enough *e, const struct universe *u, const 
 		rc = hc_rules_bootstrap_exact(cfg, br->vbar, br->cbar, br->replicates, u->m,
 					      u->periods_per_year, e->rules, e->nrules, err);
 	for (j = 0; rc == HC_OK && j < e->nrules; j++)
-		if (e->rules[j].rule == RULES_ALEXEEV_TAPON && e->rules[j].defined && !e->rules[j].note[0])
-			snprintf(e->rules[j].note, sizeof e->rules[j].note, "no interval: the exact spread is not "
-				 "recomputed per replicate; alexeev-tapon-sampled has one with --bootstrap-sampled");
+		if (e->rules[j].rule == RULES_ALEXEEV_TAPON && e->rules[j].defined && !e->rules[j].note[0] &&
+		    !opt->bootstrap_sampled)
+			snprintf(e->rules[j].note, sizeof e->rules[j].note, "no interval: the exact spread is "
+				 "recomputed per replicate only with --bootstrap-sampled (costly: O(M^2 T) a replicate)");
 	return rc;
 }
 
@@ -555,7 +556,7 @@ static int run_bootstrap(struct hc_enough *e, const struct universe *u,
 		e->block_length = br->block_length;
 		e->kind = br->kind;
 	}
-	if (rc == HC_OK && opt->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
+	if (rc == HC_OK && opt->bootstrap_sampled && (cfg->selected & (RULES_SAMPLED_MASK | RULES_SPREAD_MASK))) {
 		struct sampler_options so;
 
 		hc_sampler_options_init(&so);

@@ -1546,12 +1546,13 @@ uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep)
 	return hc_paths_stream(seed ^ 0x5DEECE66DULL, (uint64_t)rep);
 }
 
-/* One replicate's band, lag-share and Alexeev-Tapon counts (0 = not met). */
+/* One replicate's band, lag-share and Alexeev-Tapon (sampled, and exact
+ * from the replicate's own exact spread) counts (0 = not met). */
 static int sampled_replicate(const struct rules_config *cfg, const struct universe *u,
 			     const struct bootstrap_base *b, const struct bootstrap_options *bopt,
 			     const struct sampler_options *sopt, size_t l, size_t rep,
 			     size_t *idx, double *w, size_t *band, size_t *shortfall,
-			     size_t *at, struct hc_error *err)
+			     size_t *at, size_t *at_exact, struct hc_error *err)
 {
 	struct universe *ru = NULL;
 	struct hc_source rs;
@@ -1573,6 +1574,14 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 	so.progress = NULL;
 	hc_source_init_series(&rs, ru);
 	status = hc_rules_sampled(cfg, &rs, &so, vbar, cbar, rr, &n, NULL, err);
+	if (status == HC_OK && (cfg->selected & RULES_SPREAD_MASK)) {
+		struct moments mo;
+		struct rule_result ar;
+
+		if ((status = hc_moments_from_universe(&mo, ru, err)) == HC_OK &&
+		    (status = hc_rules_alexeev_tapon(cfg, &mo, &ar, err)) == HC_OK)
+			*at_exact = ar.met ? ar.count : 0;
+	}
 	hc_universe_free(ru);
 	if (status != HC_OK)
 		return status;
@@ -1596,7 +1605,7 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 			    struct rule_result *res, size_t nres, struct hc_error *err)
 {
 	size_t nrep = bopt->replicates, l, rep, j, *idx = NULL;
-	size_t *band = NULL, *shortfall = NULL, *at = NULL;
+	size_t *band = NULL, *shortfall = NULL, *at = NULL, *at_exact = NULL;
 	double *w = NULL;
 	int status = HC_OK;
 
@@ -1611,13 +1620,14 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 	band = hc_calloc(nrep, sizeof *band);
 	shortfall = hc_calloc(nrep, sizeof *shortfall);
 	at = hc_calloc(nrep, sizeof *at);
-	if (!idx || !w || !band || !shortfall || !at) {
+	at_exact = hc_calloc(nrep, sizeof *at_exact);
+	if (!idx || !w || !band || !shortfall || !at || !at_exact) {
 		status = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
 		goto cleanup;
 	}
 	for (rep = 0; rep < nrep; rep++) {
 		status = sampled_replicate(cfg, u, b, bopt, sopt, l, rep, idx, w,
-					   &band[rep], &shortfall[rep], &at[rep], err);
+					   &band[rep], &shortfall[rep], &at[rep], &at_exact[rep], err);
 		if (status != HC_OK)
 			goto cleanup;
 		if (bopt->progress && bopt->progress(bopt->progress_ctx, rep + 1, nrep)) {
@@ -1632,6 +1642,8 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 			hc_rules_set_interval(&res[j], shortfall, nrep);
 		else if (res[j].rule == RULES_ALEXEEV_TAPON_SAMPLED && res[j].defined)
 			hc_rules_set_interval(&res[j], at, nrep);
+		else if (res[j].rule == RULES_ALEXEEV_TAPON && res[j].defined && (cfg->selected & RULES_SPREAD_MASK))
+			hc_rules_set_interval(&res[j], at_exact, nrep);
 	}
 cleanup:
 	hc_free(idx);
@@ -1639,5 +1651,6 @@ cleanup:
 	hc_free(band);
 	hc_free(shortfall);
 	hc_free(at);
+	hc_free(at_exact);
 	return status;
 }

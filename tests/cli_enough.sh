@@ -327,11 +327,8 @@ PY
 import sys, json
 j = json.load(open(sys.argv[1]))
 assert j["bootstrap"] == "stationary" and j["block_length"] == 3 and j["replicates"] == 8, j
-for r in j["rules"]:
-    if r["rule"] == "alexeev-tapon":
-        assert r["replicates"] is None and r["note"].startswith("no interval: the exact spread"), r
-    else:
-        assert r["replicates"] == 8, r
+for r in j["rules"]:   # alexeev-tapon too: its exact spread is recomputed per replicate
+    assert r["replicates"] == 8, r
 PY
 
 # 12. Statman (1987, JFQA 22(3)) as published, from memory: on Elton &
@@ -473,6 +470,21 @@ for name, csvf, clustered in (("cov-studentized", "u.csv", False), ("garch", "g.
     assert said == clustered == (j["clustering_p"] < 0.05), (name, j["clustering_p"], said)
 PY
 grep -q 'volatility clusters in this history' "$tmp/garch.txt" || fail "clustering note in text: $(cat "$tmp/garch.txt")"
+
+# 17. alexeev-tapon (exact) has an interval with --bootstrap-sampled (the
+#     exact spread recomputed per replicate; the replicate counts against a
+#     step-by-step rebuild in test_bootstrap.c), and says why it has none
+#     without it.
+"$HOLDCOUNT" enough "$tmp/u.csv" --rules alexeev-tapon --bootstrap 30 --format json >"$tmp/at0.json"
+"$HOLDCOUNT" enough "$tmp/u.csv" --rules alexeev-tapon --bootstrap 30 --bootstrap-sampled --format json >"$tmp/at1.json"
+"$PYTHON" - "$tmp/at0.json" "$tmp/at1.json" <<'PY' || fail "alexeev-tapon interval: $(cat "$tmp/at1.json")"
+import sys, json
+a, b = (json.load(open(p))["rules"][0] for p in sys.argv[1:3])
+assert a["rule"] == b["rule"] == "alexeev-tapon" and a["count"] == b["count"], (a, b)
+assert a["count_p05"] is None and "only with --bootstrap-sampled" in a["note"], a
+assert b["replicates"] == 30 and b["count_p05"] <= b["count_p50"] <= b["count_p95"], b
+assert b["count_p05"] <= b["count"] + 3 and b["count_p95"] >= b["count"] - 3, b
+PY
 
 [ "$fails" = 0 ] || { echo "$fails failure(s)" >&2; exit 1; }
 echo "cli_enough: all checks passed"

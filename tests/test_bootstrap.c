@@ -856,6 +856,74 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 	fixture_free(u);
 }
 
+/* The exact Alexeev & Tapon rule's interval under --bootstrap-sampled:
+ * each replicate's count is the gamma rule (checked against enumeration in
+ * test_rules.c) on the exact spread of the resampled universe, rebuilt here
+ * step by step (its averages against the explicit resample in
+ * test_bootstrap_agrees_with_moments_module); the interval is the order
+ * statistics of those counts (numpy's inverted_cdf, as above). */
+static void test_bootstrap_exact_alexeev_tapon_interval(void **state)
+{
+	enum { M = 14, T = 60, B = 5 };
+	struct universe *u = fixture_random_universe(M, T, 778);
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_options bo;
+	struct sampler_options so;
+	struct rules_config cfg;
+	struct rule_result res[1], ref;
+	struct hc_error err;
+	size_t idx[T], at[B], rep, met = 0;
+
+	(void)state;
+	assert_non_null(u);
+	memset(res, 0, sizeof res);
+	hc_rules_config_init(&cfg);
+	cfg.selected = RULES_FLAG(RULES_ALEXEEV_TAPON);
+	cfg.at_x = 0.8;
+	cfg.at_q = 0.7;
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = B;
+	bo.seed = 8765;
+	hc_sampler_options_init(&so);
+	so.paths = 10;
+	so.periods_per_year = 12;
+	so.threads = 1;
+	assert_int_equal(hc_bootstrap_base_alloc(&b, u, &err), HC_OK);
+	for (rep = 0; rep < B; rep++) {
+		struct universe *ru = NULL;
+		struct moments mo;
+		struct rule_result rr;
+
+		assert_int_equal(hc_bootstrap_indices(bo.kind, T, bo.block_length ? bo.block_length
+						      : hc_bootstrap_default_block_length(T), bo.seed, rep, idx, &err), HC_OK);
+		assert_int_equal(hc_universe_resample(&ru, u, idx, T, &err), HC_OK);
+		assert_int_equal(hc_moments_from_universe(&mo, ru, &err), HC_OK);
+		assert_true(mo.has_spread);
+		assert_int_equal(hc_rules_alexeev_tapon(&cfg, &mo, &rr, &err), HC_OK);
+		at[rep] = rr.met ? rr.count : 0;
+		met += rr.met;
+		hc_universe_free(ru);
+	}
+	assert_true(met >= 3);
+	res[0].rule = RULES_ALEXEEV_TAPON;
+	res[0].defined = 1;
+	assert_int_equal(hc_rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res, 1, &err), HC_OK);
+	memset(&ref, 0, sizeof ref);
+	ref.rule = RULES_ALEXEEV_TAPON;
+	hc_rules_set_interval(&ref, at, B);
+	assert_true(res[0].bootstrapped);
+	assert_int_equal(res[0].replicates, B);
+	assert_int_equal(res[0].replicates_met, met);
+	assert_true(res[0].count_p05 == ref.count_p05 || (isnan(res[0].count_p05) && isnan(ref.count_p05)));
+	assert_true(res[0].count_p50 == ref.count_p50 || (isnan(res[0].count_p50) && isnan(ref.count_p50)));
+	assert_true(res[0].count_p95 == ref.count_p95 || (isnan(res[0].count_p95) && isnan(ref.count_p95)));
+	/* sorted, not met last: the smallest count is the 5% end */
+	assert_close(res[0].count_p05, (double)at[0], 0);
+	print_message("alexeev-tapon replicate counts %zu %zu %zu %zu %zu\n", at[0], at[1], at[2], at[3], at[4]);
+	hc_bootstrap_base_free(b);
+	fixture_free(u);
+}
+
 /* The universe return of the shortfall rule is the sampler's portfolio
  * return at N = M (every path then holds the whole universe): two
  * implementations of prod(1 + R_t)^(P/T) - 1 that must agree. */
@@ -971,6 +1039,7 @@ int main(void)
 		cmocka_unit_test(test_bootstrap_sampled_rules_interval),
 		cmocka_unit_test(test_bootstrap_universe_return_matches_sampler),
 		cmocka_unit_test(test_bootstrap_clustering_mcleod_li),
+		cmocka_unit_test(test_bootstrap_exact_alexeev_tapon_interval),
 	};
 
 	gsl_set_error_handler_off();

@@ -331,13 +331,16 @@ int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct boot
 void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
 
 /*
- * Bootstrap interval of the sampled rules (band, shortfall) among
- * res[0..nres-1]: per replicate the periods are resampled as in bootstrap.h
- * (same kind, block length and seed as bopt), the resampled universe is
- * sampled afresh by hc_rules_sampled with sopt (its seed derived from
- * (bopt->seed, replicate), so results do not depend on threads), and the
- * replicate's own c-bar and universe return set the thresholds.  Costs up
- * to B x paths x K x T for the K sampled: use fewer paths than the main run.  b must come from u.
+ * Bootstrap interval of the sampled rules (band, lag-share,
+ * alexeev-tapon-sampled) among res[0..nres-1]: per replicate the periods are
+ * resampled as in bootstrap.h (same kind, block length and seed as bopt),
+ * the resampled universe is sampled afresh by hc_rules_sampled with sopt
+ * (its seed derived from (bopt->seed, replicate), so results do not depend
+ * on threads), and the replicate's own v-bar, c-bar and universe return set
+ * the thresholds.  When alexeev-tapon (exact) is selected, each replicate's
+ * exact spread is recomputed (hc_moments_from_universe, O(M^2 T)) and its
+ * percentile interval set too.  Costs up to B x paths x K x T for the K
+ * sampled: use fewer paths than the main run.  b must come from u.
  * Progress (bopt->progress) after each replicate.
  */
 uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep);  /* the sampler seed of replicate rep */

@@ -69,8 +69,8 @@ static const struct cli_option rules_own[] = {
 	  "exact rules' interval: studentized on the log count (bootstrap-t, Hall 1988), bias-corrected and "
 	  "accelerated (Efron 1987) or plain percentiles", interval_choices, "studentized" },
 	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
-	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled): re-samples portfolios per "
-	  "replicate, costly",
+	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled) and alexeev-tapon: re-samples "
+	  "portfolios and recomputes the exact spread per replicate, costly",
 	  NULL, NULL },
 	{ "bootstrap-paths", 0, CLI_COUNT, RUL(bootstrap_paths), "K",
 	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
