@@ -253,10 +253,7 @@ static int reader_take(struct reader *r, const char *s, size_t len)
 		return HC_OK;
 	need = r->npending + len;
 	if (need > r->cap_pending) {
-		cap = r->cap_pending ? r->cap_pending : 256;
-		while (cap < need)
-			cap *= 2;
-		p = hc_realloc(r->pending, cap);
+		p = hc_grow_capacity(r->cap_pending, need, 256, &cap) ? NULL : hc_realloc(r->pending, cap);
 		if (!p)
 			return r->status = hc_error(r->err, HC_ENOMEM,
 				"%s: out of memory reading the first line", r->name);

@@ -106,6 +106,17 @@ void *hc_reallocarray(void *p, size_t n, size_t size)
 	return hc_realloc(p, total);
 }
 
+int hc_grow_capacity(size_t cap, size_t need, size_t first, size_t *out)
+{
+	size_t nc = cap ? cap : (first ? first : 1);
+
+	while (nc < need)
+		if (hc_mul_size(nc, 2, &nc))
+			return -1;
+	*out = nc;
+	return 0;
+}
+
 void *hc_grow(void *p, size_t *cap, size_t n, size_t size, size_t first)
 {
 	size_t nc;
@@ -113,9 +124,7 @@ void *hc_grow(void *p, size_t *cap, size_t n, size_t size, size_t first)
 
 	if (n < *cap)
 		return p;
-	if (*cap == 0)
-		nc = first ? first : 1;
-	else if (hc_mul_size(*cap, 2, &nc))
+	if (hc_grow_capacity(*cap, *cap ? *cap + 1 : 1, first, &nc))
 		return NULL;
 	q = hc_reallocarray(p, nc, size);
 	if (q)

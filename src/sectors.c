@@ -69,10 +69,11 @@ static int name_is(const char *s, size_t len, const char *want)
 static int grow(struct reader *r, struct hc_error *err)
 {
 	struct sectors *s = r->s;
-	size_t nc = r->cap ? r->cap * 2 : 64;
 	char **ids, **labels;
-	size_t *line;
+	size_t *line, nc;
 
+	if (hc_grow_capacity(r->cap, r->cap + 1, 64, &nc))
+		return hc_error(err, HC_ENOMEM, "%s: too many rows", r->name);
 	ids = hc_reallocarray(s->ids, nc, sizeof *ids);
 	if (ids)
 		s->ids = ids;

@@ -45,6 +45,39 @@ static void test_memory_fault_injection(void **state)
 	assert_int_equal(out, 42);
 }
 
+/* Growth by doubling from the first capacity, overflow refused, and the
+ * array unchanged when growth fails (its old contents kept). */
+static void test_memory_grow(void **state)
+{
+	size_t cap = 0, nc, i;
+	int *a = NULL, *p;
+
+	assert_int_equal(hc_grow_capacity(0, 1, 16, &nc), 0);
+	assert_int_equal(nc, 16);
+	assert_int_equal(hc_grow_capacity(16, 17, 16, &nc), 0);
+	assert_int_equal(nc, 32);
+	assert_int_equal(hc_grow_capacity(256, 5000, 8, &nc), 0);
+	assert_int_equal(nc, 8192);
+	assert_int_equal(hc_grow_capacity(0, 3, 0, &nc), 0);
+	assert_int_equal(nc, 4);
+	assert_int_equal(hc_grow_capacity(SIZE_MAX / 2 + 1, SIZE_MAX, 8, &nc), -1);
+	for (i = 0; i < 100; i++) {
+		p = hc_grow(a, &cap, i, sizeof *a, 4);
+		assert_non_null(p);
+		a = p;
+		a[i] = (int)i;
+	}
+	assert_int_equal(cap, 128);
+	hc_alloc_fail_after(0);
+	for (; i < cap; i++)
+		a[i] = (int)i;
+	assert_null(hc_grow(a, &cap, cap, sizeof *a, 4));
+	hc_alloc_fail_after(-1);
+	assert_int_equal(cap, 128);
+	assert_int_equal(a[127], 127);
+	hc_free(a);
+}
+
 /* A given budget counts what is held and what is asked for together; the
  * message rounds the need up and the budget down to 0.1 MiB, so it never
  * shows a need that seems to fit (1 MiB = 1048576 bytes). */
@@ -93,6 +126,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_error_formats_and_returns_code),
 		cmocka_unit_test(test_memory_fault_injection),
+		cmocka_unit_test(test_memory_grow),
 		cmocka_unit_test(test_memory_check_given_budget),
 		cmocka_unit_test(test_memory_check_available),
 	};

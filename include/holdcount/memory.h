@@ -40,6 +40,14 @@ char *hc_strndup(const char *s, size_t n);
 void *hc_grow(void *p, size_t *cap, size_t n, size_t size, size_t first);
 
 /*
+ * The capacity hc_grow would choose, for callers that grow several
+ * parallel arrays under one capacity or need room for many elements at
+ * once: cap doubled (first when cap is 0) until it holds need.  -1 when
+ * that overflows a size_t, else 0 with *out set.
+ */
+int hc_grow_capacity(size_t cap, size_t need, size_t first, size_t *out);
+
+/*
  * Fault injection: after n more successful allocations, every allocation
  * fails (returns NULL) until hc_alloc_fail_after(-1) turns it off.
  * hc_alloc_count() returns how many allocations succeeded since start.
