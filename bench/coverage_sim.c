@@ -38,6 +38,7 @@
 #include <gsl/gsl_rng.h>
 
 #include "holdcount/bootstrap.h"
+#include "holdcount/enough.h"
 #include "holdcount/memory.h"
 #include "holdcount/rules.h"
 #include "holdcount/sampler.h"
@@ -131,6 +132,9 @@ int main(int argc, char **argv)
 	size_t trials = 1000, nrep = 999, strials = 0, m = 60, tt[2] = { 120, 240 };
 	unsigned long seed = 20261203;
 	size_t snrep = 99, fixed_block = 0, lsum[NLAWS][2] = { { 0 } };
+	/* McLeod-Li flags (p < HC_ENOUGH_CLUSTERING_ALPHA) per cell, and the
+	 * near-floor studentized coverage among flagged and unflagged trials. */
+	size_t flagged[NLAWS][2] = { { 0 } }, cov_flag[NLAWS][2] = { { 0 } }, cov_unflag[NLAWS][2] = { { 0 } };
 	double *beta, *a, vtrue, ctrue, sb = 0, sb2 = 0;
 	char **ids, *names;
 	int32_t *dates;
@@ -201,6 +205,7 @@ int main(int argc, char **argv)
 				struct rule_result res[NEXACT], pct[NEXACT], stu[NEXACT];
 				double *w = malloc(t * sizeof *w), vhat, chat, *jv = NULL, *jc = NULL;
 				size_t nj = 0;
+				int flag;
 
 				simulate(g, (int)law, beta, m, t, x, f);
 				memset(&u, 0, sizeof u);
@@ -228,6 +233,14 @@ int main(int argc, char **argv)
 					return 1;
 				}
 				lsum[law][it] += bo.block_length;
+				{
+					size_t lags = 0;
+					double q, pv;
+
+					hc_bootstrap_clustering(b, &lags, &q, &pv);
+					flag = pv < HC_ENOUGH_CLUSTERING_ALPHA;
+					flagged[law][it] += (size_t)flag;
+				}
 				if (
 				    hc_bootstrap_run(&br, b, &bo, &err) != HC_OK ||
 				    (t / bo.block_length >= 2 &&
@@ -252,6 +265,11 @@ int main(int argc, char **argv)
 					cov_stu[k] += covers(&stu[k], true_met[k], true_count[k]);
 					excl_stu[k] += excludes(&stu[k]);
 				}
+				/* exact_rules[0] is near-floor */
+				if (flag)
+					cov_flag[law][it] += covers(&stu[0], true_met[0], true_count[0]);
+				else
+					cov_unflag[law][it] += covers(&stu[0], true_met[0], true_count[0]);
 				hc_free(jv);
 				hc_free(jc);
 				hc_bootstrap_result_free(br);
@@ -269,6 +287,20 @@ int main(int argc, char **argv)
 			free(x);
 			free(f);
 		}
+
+	printf("\nVolatility clustering check (McLeod & Li 1983, Q(12) on squared equal-weight returns, "
+	       "p < %.0f%%): share of trials flagged, and near-floor's studentized coverage among the flagged "
+	       "and the unflagged trials.\n\n", 100 * HC_ENOUGH_CLUSTERING_ALPHA);
+	printf("| law | T | flagged | near-floor covered, flagged | near-floor covered, not flagged |\n"
+	       "|---|---|---|---|---|\n");
+	for (law = 0; law < NLAWS; law++)
+		for (it = 0; it < 2; it++) {
+			size_t nf = flagged[law][it], nu = trials - flagged[law][it];
+
+			printf("| %s | %zu | %zu/%zu (%.1f%%) | %zu/%zu | %zu/%zu |\n", law_names[law], tt[it], nf, trials,
+			       100.0 * (double)nf / (double)trials, cov_flag[law][it], nf, cov_unflag[law][it], nu);
+		}
+	fflush(stdout);
 
 	if (strials) {
 		struct rules_config sc = cfg;

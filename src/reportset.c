@@ -489,7 +489,8 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 	 * history shows the clustering under which it falls short. */
 	for (k = 0; intervals && r->rep_enough && k < r->rep_enough->nnotes; k++)
 		if (strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ||
-		    strncmp(r->rep_enough->notes[k], "volatility clusters", 19) == 0)
+		    strncmp(r->rep_enough->notes[k], "volatility clusters", 19) == 0 ||
+		    strncmp(r->rep_enough->notes[k], "no volatility clustering", 24) == 0)
 			fprintf(fp, "%s%s.\n\n", strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ? "Coverage: " : "",
 				r->rep_enough->notes[k] + (strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ? 10 : 0));
 	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
