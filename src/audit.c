@@ -43,19 +43,49 @@ struct source {
 #define RIC_SMALL_SHARE 0.50         /* ... for at least 50% of assets */
 #define RIC_ISSUER_LIMIT 0.25        /* s. 851(b)(3)(B): no more than 25% in one issuer */
 
+#define UCITS_GOVERNMENT_LIMIT 0.35  /* Art. 52(3): government securities, per issuer */
+#define UCITS_GROUP_LIMIT 0.20       /* Art. 52(5): one group of companies, together */
+
 static const struct {
 	const char *screen;
 	const char *part;
 	const char *test;
 	double limit;
 	int screen_index;
+	int basket;                  /* 1: a 5% basket, computed under a reading */
+	int decides;                 /* 0: shown beside, not deciding */
 } parts[AUDIT_NPARTS] = {
-	{ "ucits", "largest issuer", "<=", UCITS_ISSUER_LIMIT, 0 },
-	{ "ucits", "issuers above 5% together", "<=", UCITS_LARGE_AGGREGATE, 0 },
-	{ "1940act", "issuers of at most 5% together", ">=", ACT1940_SMALL_SHARE, 1 },
-	{ "ric", "issuers of at most 5% together", ">=", RIC_SMALL_SHARE, 2 },
-	{ "ric", "largest issuer", "<=", RIC_ISSUER_LIMIT, 2 },
+	{ "ucits", "largest issuer", "<=", UCITS_ISSUER_LIMIT, 0, 0, 1 },
+	{ "ucits", "issuers above 5% together", "<=", UCITS_LARGE_AGGREGATE, 0, 0, 1 },
+	{ "1940act", "basket of issuers within 5%", ">=", ACT1940_SMALL_SHARE, 1, 1, 1 },
+	{ "ric", "basket of issuers within 5%", ">=", RIC_SMALL_SHARE, 2, 1, 1 },
+	{ "ric", "largest issuer", "<=", RIC_ISSUER_LIMIT, 2, 0, 1 },
+	{ "ucits", "largest government issuer", "<=", UCITS_GOVERNMENT_LIMIT, 0, 0, 1 },
+	{ "ucits", "largest group of companies", "<=", UCITS_GROUP_LIMIT, 0, 0, 1 },
+	{ "1940act", "basket of issuers within 5%", ">=", ACT1940_SMALL_SHARE, 1, 1, 0 },
+	{ "ric", "basket of issuers within 5%", ">=", RIC_SMALL_SHARE, 2, 1, 0 },
 };
+
+/* The order of the parts in the screens table: each screen's together, the
+ * basket under the other reading right after the deciding one. */
+static const int part_order[AUDIT_NPARTS] = {
+	AUDIT_PART_UCITS_ISSUER, AUDIT_PART_UCITS_AGGREGATE, AUDIT_PART_UCITS_GOVERNMENT,
+	AUDIT_PART_UCITS_GROUP, AUDIT_PART_1940ACT_SMALL, AUDIT_PART_1940ACT_OTHER,
+	AUDIT_PART_RIC_SMALL, AUDIT_PART_RIC_OTHER, AUDIT_PART_RIC_ISSUER
+};
+
+static const char *const reading_names[2] = { "excluded", "capped" };
+static const char *const verdict_names[3] = { "passed", "failed", "insufficient data" };
+
+const char *hc_audit_reading_name(int reading)
+{
+	return reading >= 0 && reading < 2 ? reading_names[reading] : NULL;
+}
+
+const char *hc_audit_verdict_name(int verdict)
+{
+	return verdict >= 0 && verdict < 3 ? verdict_names[verdict] : NULL;
+}
 
 static const char *const rule_names[AUDIT_NRULES] = {
 	"min-holdings", "min-effective", "max-weight", "max-sector-weight",
@@ -84,6 +114,7 @@ void hc_audit_options_init(struct audit_options *opt)
 	opt->seed = 1;
 	opt->limit_tolerance = AUDIT_DEFAULT_LIMIT_TOLERANCE;
 	opt->tie_rtol = AUDIT_DEFAULT_TIE_RTOL;
+	opt->min_covered_weight = AUDIT_DEFAULT_MIN_COVERED_WEIGHT;
 }
 
 static int item_is(const char *s, size_t len, const char *name)
@@ -156,30 +187,56 @@ static int larger(double w, const char *id, double max, const char *max_id)
 	return w > max || (w == max && max_id && strcmp(id, max_id) < 0);
 }
 
+/* Counts, exposures and line concentration.  Cash is not a holding; the
+ * largest position and the top 10 are |weights| of net assets; the HHI is on
+ * gross invested weights |w_i| / sum |w_j| over the non-cash positions (a
+ * short concentrates risk as a long does; common practice, no single
+ * source). */
 static void concentration(struct audit_fund *af, const struct holdings_fund *fd,
 			  double *work)
 {
-	size_t k;
+	size_t k, n = 0;
+	double gross = 0;
 
-	af->holdings = fd->n;
 	af->weight_sum = fd->raw_sum;
 	af->max_weight = -INFINITY;
 	af->max_id = NULL;
 	af->hhi = 0;
 	for (k = 0; k < fd->n; k++) {
-		double w = fd->h[k].weight;
-		if (larger(w, fd->h[k].id, af->max_weight, af->max_id)) {
-			af->max_weight = w;
-			af->max_id = fd->h[k].id;
+		const struct holding *hd = &fd->h[k];
+		double w = hd->weight, a = fabs(w);
+		if (hd->type == HOLDING_CASH) {
+			af->cash_weight += w;
+			continue;
 		}
-		af->hhi += w * w;
-		work[k] = w;
+		if (hd->type == HOLDING_GOVERNMENT)
+			af->government_weight += w;
+		else if (hd->type == HOLDING_FUND_SHARE)
+			af->fund_share_weight += w;
+		if (larger(a, hd->id, af->max_weight, af->max_id)) {
+			af->max_weight = a;
+			af->max_id = hd->id;
+		}
+		gross += a;
+		af->net_exposure += w;
+		if (w < 0)
+			af->short_exposure += a;
+		work[n++] = a;
 	}
-	af->effective_holdings = 1 / af->hhi;
-	qsort(work, fd->n, sizeof *work, cmp_desc);
+	af->holdings = n;
+	af->gross_exposure = gross;
+	qsort(work, n, sizeof *work, cmp_desc);
 	af->top10_share = 0;
-	for (k = 0; k < fd->n && k < 10; k++)
-		af->top10_share += work[k];
+	for (k = 0; k < n; k++) {
+		if (k < 10)
+			af->top10_share += work[k];
+		af->hhi += (work[k] / gross) * (work[k] / gross);
+	}
+	if (!n) {
+		af->max_weight = af->hhi = NAN;
+		af->effective_holdings = 0;
+	} else
+		af->effective_holdings = 1 / af->hhi;
 }
 
 /* ---- risk against the universe ---- */
@@ -215,13 +272,19 @@ static int locate(struct audit_fund *af, const struct holdings_fund *fd,
 	size_t k;
 
 	for (k = 0; k < fd->n; k++) {
+		/* cash has no return history to find: it is not a security */
+		if (fd->h[k].type == HOLDING_CASH) {
+			idx[k] = -1;
+			continue;
+		}
 		idx[k] = src->u ? hc_universe_find(src->u, fd->h[k].id) : hc_covmatrix_find(src->cm, fd->h[k].id);
 		if (idx[k] >= 0)
 			continue;
 		if (strict) {
 			const char *why = dropped_reason(src->history, fd->h[k].id);
 			return hc_error(err, HC_EDATA, "%s:%zu:%zu: id '%s' of fund '%s' is not in the universe '%s'%s%s%s, expected an id of the universe (without --strict the fund's risk is computed on the rest)",
-					h->source, fd->h[k].line, h->id_column, fd->h[k].id, fd->name,
+					fd->source ? fd->source : h->source, fd->h[k].line,
+					fd->id_column ? fd->id_column : h->id_column, fd->h[k].id, fd->name,
 					src->name ? src->name : "", why ? " (dropped: " : "", why ? why : "", why ? ")" : "");
 		}
 		af->nmissing++;
@@ -234,7 +297,7 @@ static int locate(struct audit_fund *af, const struct holdings_fund *fd,
 	af->nmissing = 0;
 	for (k = 0; k < fd->n; k++) {
 		struct audit_missing *mi;
-		if (idx[k] >= 0)
+		if (idx[k] >= 0 || fd->h[k].type == HOLDING_CASH)
 			continue;
 		mi = &af->missing[af->nmissing++];
 		mi->id = fd->h[k].id;
@@ -295,17 +358,30 @@ static void matrix_risk(const struct holdings_fund *fd, const struct covmatrix *
 	}
 }
 
+/*
+ * Coverage and risk.  The covered weight is the share of the gross invested
+ * weight whose history is usable (found in the universe or matrix).  The
+ * risk weights are the found positions' weights over "in": their net sum
+ * (AUDIT_CASH_EXCLUDE: the invested assets, renormalised), or that plus the
+ * cash (AUDIT_CASH_ZERO: net assets, cash at zero variance and no
+ * covariance, so it only scales the weights down).
+ */
 static int risk(struct audit_fund *af, const struct holdings_fund *fd,
-		const struct source *src, const struct moments *mo,
+		const struct source *src, const struct moments *mo, int cash_risk,
 		const long *idx, double *series, struct hc_error *err)
 {
-	double in = 0, hhi = 0, wsd = 0, s2 = 0, neq, pp = src->pp;
+	double in = 0, hhi = 0, wsd = 0, s2 = 0, neq, pp = src->pp, found = 0, sum = 0;
 	size_t k;
 	int rc;
 
 	for (k = 0; k < fd->n; k++)
-		if (idx[k] >= 0)
+		if (idx[k] >= 0) {
 			in += fd->h[k].weight;
+			found += fabs(fd->h[k].weight);
+		}
+	af->covered_weight = af->gross_exposure > 0 ? found / af->gross_exposure : NAN;
+	if (cash_risk == AUDIT_CASH_ZERO && found > 0)
+		in += af->cash_weight;
 	if (!(in > 0))
 		return HC_OK;
 	af->risk_known = 1;
@@ -314,6 +390,7 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 		if (idx[k] >= 0) {
 			double w = fd->h[k].weight / in;
 			hhi += w * w;
+			sum += w;
 			af->risk_holdings++;
 		}
 	if (src->u) {
@@ -329,8 +406,9 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 	af->below_floor = hc_curve_equivalent_count(mo, s2, &neq) != 0;
 	af->equivalent_count = af->below_floor ? NAN : neq;
 	/* design.md section 3: a weight vector laid on a random subset has
-	 * E[w'Aw] = sum w^2 vbar + (1 - sum w^2) cbar. */
-	s2 = hhi * mo->average_variance + (1 - hhi) * mo->average_covariance;
+	 * E[w'Aw] = sum w^2 vbar + ((sum w)^2 - sum w^2) cbar; sum w = 1 but for
+	 * cash held at zero variance. */
+	s2 = hhi * mo->average_variance + (sum * sum - hhi) * mo->average_covariance;
 	af->weighted_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
 	s2 = hc_curve_expected_variance(mo, (double)af->risk_holdings);
 	af->equal_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
@@ -362,7 +440,10 @@ static int sectors(struct audit_fund *af, const struct holdings_fund *fd,
 	if (!af->sectors)
 		return hc_error(err, HC_ENOMEM, "out of memory auditing fund '%s'", fd->name);
 	for (k = 0; k < fd->n; k++) {
-		const char *label = hc_holdings_labels_find(map, fd->h[k].id);
+		const char *label;
+		if (fd->h[k].type == HOLDING_CASH)
+			continue;
+		label = hc_holdings_labels_find(map, fd->h[k].id);
 		for (j = 0; j < af->nsectors; j++) {
 			const char *l = af->sectors[j].label;
 			if (l == label || (l && label && strcmp(l, label) == 0))
@@ -387,42 +468,49 @@ static int sectors(struct audit_fund *af, const struct holdings_fund *fd,
 	return HC_OK;
 }
 
-/* ---- screens ---- */
+/* ---- issuers, groups and screens ---- */
+
+/* The statutes' classes of non-cash assets: an issuer's securities (and
+ * "other"), government securities, other investment companies' shares. */
+enum { CLASS_ISSUER = 0, CLASS_GOVERNMENT = 1, CLASS_FUND = 2 };
+
+static int asset_class(int type)
+{
+	return type == HOLDING_GOVERNMENT ? CLASS_GOVERNMENT : type == HOLDING_FUND_SHARE ? CLASS_FUND : CLASS_ISSUER;
+}
 
 struct issuer_weight {
 	const char *issuer;
+	int cls;
 	double w;
 };
 
 static int cmp_issuer(const void *a, const void *b)
 {
-	return strcmp(((const struct issuer_weight *)a)->issuer,
-		      ((const struct issuer_weight *)b)->issuer);
+	const struct issuer_weight *x = a, *y = b;
+
+	if (x->cls != y->cls)
+		return x->cls < y->cls ? -1 : 1;
+	return strcmp(x->issuer, y->issuer);
 }
 
-/* Net weights per issuer, then shares |net| / sum |net| (equal to the
- * weights for a long-only fund).  Compacts iw in place; returns the count. */
-static size_t issuer_shares(const struct holdings_fund *fd, struct issuer_weight *iw)
+/* Sort iw[0..n) by (class, name), sum the net weights of equal names and
+ * take absolute values: an issuer's |net weight| of net assets.  Compacts in
+ * place; returns the count. */
+static size_t aggregate(struct issuer_weight *iw, size_t n)
 {
-	size_t k, n = 0;
-	double gross = 0;
+	size_t k, m = 0;
 
-	for (k = 0; k < fd->n; k++) {
-		iw[k].issuer = fd->h[k].issuer;
-		iw[k].w = fd->h[k].weight;
-	}
-	qsort(iw, fd->n, sizeof *iw, cmp_issuer);
-	for (k = 0; k < fd->n; k++) {
-		if (n && strcmp(iw[n - 1].issuer, iw[k].issuer) == 0)
-			iw[n - 1].w += iw[k].w;
+	qsort(iw, n, sizeof *iw, cmp_issuer);
+	for (k = 0; k < n; k++) {
+		if (m && iw[m - 1].cls == iw[k].cls && strcmp(iw[m - 1].issuer, iw[k].issuer) == 0)
+			iw[m - 1].w += iw[k].w;
 		else
-			iw[n++] = iw[k];
+			iw[m++] = iw[k];
 	}
-	for (k = 0; k < n; k++)
-		gross += fabs(iw[k].w);
-	for (k = 0; k < n; k++)
-		iw[k].w = fabs(iw[k].w) / gross;
-	return n;
+	for (k = 0; k < m; k++)
+		iw[k].w = fabs(iw[k].w);
+	return m;
 }
 
 static void set_check(struct audit_check *c, int part, double figure,
@@ -431,45 +519,197 @@ static void set_check(struct audit_check *c, int part, double figure,
 	c->figure = figure;
 	c->limit = parts[part].limit;
 	c->issuer = issuer;
+	c->applies = 1;
 	if (parts[part].test[0] == '<')
 		c->passed = figure <= c->limit + tol;
 	else
 		c->passed = figure >= c->limit - tol;
 }
 
-static void screens(struct audit_fund *af, const struct holdings_fund *fd,
-		    struct issuer_weight *iw, double tol)
+/* The largest group of companies (UCITS Art. 52(5): a group counts as one
+ * body; 20% together), over the issuers' securities that name a group. */
+static void groups(struct audit_fund *af, const struct holdings_fund *fd,
+		   struct issuer_weight *iw, int has_groups, double tol)
 {
-	size_t n = issuer_shares(fd, iw), k;
-	double large_ucits = 0, small_1940 = 0, small_ric = 0;
-	int s;
+	size_t k, n = 0;
 
+	af->max_group_weight = NAN;
+	af->max_group = NULL;
+	for (k = 0; k < fd->n; k++)
+		if (fd->h[k].group && fd->h[k].type != HOLDING_CASH && asset_class(fd->h[k].type) == CLASS_ISSUER)
+			iw[n++] = (struct issuer_weight){ fd->h[k].group, 0, fd->h[k].weight };
+	n = aggregate(iw, n);
+	if (has_groups)
+		af->max_group_weight = 0;
+	for (k = 0; k < n; k++)
+		if (larger(iw[k].w, iw[k].issuer, af->max_group_weight, af->max_group) || !af->max_group) {
+			af->max_group_weight = iw[k].w;
+			af->max_group = iw[k].issuer;
+		}
+	if (has_groups)
+		set_check(&af->checks[AUDIT_PART_UCITS_GROUP], AUDIT_PART_UCITS_GROUP, af->max_group_weight,
+			  af->max_group, tol);
+	else {
+		af->checks[AUDIT_PART_UCITS_GROUP] = (struct audit_check){ 1, NAN, UCITS_GROUP_LIMIT, NULL, 0 };
+	}
+}
+
+/*
+ * The 5% basket of the 1940 Act s. 5(b)(1) and IRC s. 851(b)(3)(A): cash,
+ * government securities and investment companies' shares whatever their
+ * size, plus each other issuer "limited to" 5% of assets.  Read as
+ * AUDIT_READING_EXCLUDED an issuer above 5% adds nothing; as
+ * AUDIT_READING_CAPPED it adds 5%.  (From memory of the texts; verify with
+ * counsel.)  "Within 5%" is inclusive, within tol.
+ */
+static void baskets(double base, const struct issuer_weight *iw, size_t n, double threshold,
+		    double tol, double out[2])
+{
+	size_t k;
+
+	out[0] = out[1] = base;
+	for (k = 0; k < n; k++) {
+		if (iw[k].cls != CLASS_ISSUER)
+			continue;
+		if (iw[k].w <= threshold + tol)
+			out[AUDIT_READING_EXCLUDED] += iw[k].w;
+		out[AUDIT_READING_CAPPED] += fmin(iw[k].w, threshold);
+	}
+}
+
+static void screens(struct audit_fund *af, const struct holdings_fund *fd,
+		    struct issuer_weight *iw, int reading, int has_groups, double tol)
+{
+	size_t n = 0, k;
+	double large_ucits = 0, total = 0, base;
+	double sec_max = 0, gov_max = 0;
+	const char *sec_id = NULL, *gov_id = NULL;
+	int s, other = !reading;
+
+	groups(af, fd, iw, has_groups, tol);
+	for (k = 0; k < fd->n; k++)
+		if (fd->h[k].type != HOLDING_CASH)
+			iw[n++] = (struct issuer_weight){ fd->h[k].issuer, asset_class(fd->h[k].type), fd->h[k].weight };
+	n = aggregate(iw, n);
+	af->issuers = n;
 	af->issuer_max = -1;
 	af->issuer_max_id = NULL;
+	for (k = 0; k < n; k++)
+		total += iw[k].w;
+	af->issuer_hhi = 0;
 	for (k = 0; k < n; k++) {
 		double w = iw[k].w;
+		af->issuer_hhi += (w / total) * (w / total);
 		if (larger(w, iw[k].issuer, af->issuer_max, af->issuer_max_id)) {
 			af->issuer_max = w;
 			af->issuer_max_id = iw[k].issuer;
 		}
-		/* "above 5%" is strict and "at most 5%" inclusive, both within tol */
+		if (iw[k].cls == CLASS_GOVERNMENT && (larger(w, iw[k].issuer, gov_max, gov_id) || !gov_id)) {
+			gov_max = w;
+			gov_id = iw[k].issuer;
+		}
+		if (iw[k].cls != CLASS_ISSUER)
+			continue;
+		if (larger(w, iw[k].issuer, sec_max, sec_id) || !sec_id) {
+			sec_max = w;
+			sec_id = iw[k].issuer;
+		}
+		/* "above 5%" is strict, within tol */
 		if (w > UCITS_LARGE_THRESHOLD + tol)
 			large_ucits += w;
-		if (w <= ACT1940_THRESHOLD + tol)
-			small_1940 += w;
-		if (w <= RIC_THRESHOLD + tol)
-			small_ric += w;
 	}
-	set_check(&af->checks[AUDIT_PART_UCITS_ISSUER], AUDIT_PART_UCITS_ISSUER, af->issuer_max, af->issuer_max_id, tol);
+	af->effective_issuers = n ? 1 / af->issuer_hhi : 0;
+	if (!n)
+		af->issuer_max = af->issuer_hhi = NAN;
+	base = af->cash_weight + af->government_weight + af->fund_share_weight;
+	baskets(base, iw, n, ACT1940_THRESHOLD, tol, af->basket_1940);
+	baskets(base, iw, n, RIC_THRESHOLD, tol, af->basket_ric);
+	set_check(&af->checks[AUDIT_PART_UCITS_ISSUER], AUDIT_PART_UCITS_ISSUER, sec_max, sec_id, tol);
 	set_check(&af->checks[AUDIT_PART_UCITS_AGGREGATE], AUDIT_PART_UCITS_AGGREGATE, large_ucits, NULL, tol);
-	set_check(&af->checks[AUDIT_PART_1940ACT_SMALL], AUDIT_PART_1940ACT_SMALL, small_1940, NULL, tol);
-	set_check(&af->checks[AUDIT_PART_RIC_SMALL], AUDIT_PART_RIC_SMALL, small_ric, NULL, tol);
-	set_check(&af->checks[AUDIT_PART_RIC_ISSUER], AUDIT_PART_RIC_ISSUER, af->issuer_max, af->issuer_max_id, tol);
+	set_check(&af->checks[AUDIT_PART_UCITS_GOVERNMENT], AUDIT_PART_UCITS_GOVERNMENT, gov_max, gov_id, tol);
+	set_check(&af->checks[AUDIT_PART_1940ACT_SMALL], AUDIT_PART_1940ACT_SMALL, af->basket_1940[reading], NULL, tol);
+	set_check(&af->checks[AUDIT_PART_1940ACT_OTHER], AUDIT_PART_1940ACT_OTHER, af->basket_1940[other], NULL, tol);
+	set_check(&af->checks[AUDIT_PART_RIC_SMALL], AUDIT_PART_RIC_SMALL, af->basket_ric[reading], NULL, tol);
+	set_check(&af->checks[AUDIT_PART_RIC_OTHER], AUDIT_PART_RIC_OTHER, af->basket_ric[other], NULL, tol);
+	set_check(&af->checks[AUDIT_PART_RIC_ISSUER], AUDIT_PART_RIC_ISSUER, sec_max, sec_id, tol);
 	for (s = 0; s < AUDIT_NSCREENS; s++)
 		af->screen_passed[s] = 1;
 	for (k = 0; k < AUDIT_NPARTS; k++)
-		if (!af->checks[k].passed)
+		if (parts[k].decides && !af->checks[k].passed)
 			af->screen_passed[parts[k].screen_index] = 0;
+}
+
+/* ---- active share ---- */
+
+struct bench_weight {
+	const char *id;
+	double w;
+};
+
+static int cmp_bench(const void *a, const void *b)
+{
+	return strcmp(((const struct bench_weight *)a)->id, ((const struct bench_weight *)b)->id);
+}
+
+/*
+ * Active share (Cremers & Petajisto, 2009, "How Active Is Your Fund
+ * Manager? A New Measure That Predicts Performance", Review of Financial
+ * Studies 22(9)): half the sum over the union of ids of |fund weight -
+ * benchmark weight|, both on their invested assets (cash left out, weights
+ * over their net sum).  With sum b = 1 the ids held by the benchmark only
+ * need no visit: AS = (1 + sum over the fund's ids of (|u - b| - b)) / 2.
+ */
+static double active_share(const struct holdings_fund *fd, const struct bench_weight *bw, size_t nb)
+{
+	double net = 0, sum = 0;
+	size_t k;
+
+	for (k = 0; k < fd->n; k++)
+		if (fd->h[k].type != HOLDING_CASH)
+			net += fd->h[k].weight;
+	if (!(net > 0))
+		return NAN;
+	for (k = 0; k < fd->n; k++) {
+		struct bench_weight key = { fd->h[k].id, 0 };
+		const struct bench_weight *b;
+		double u, bi;
+		if (fd->h[k].type == HOLDING_CASH)
+			continue;
+		u = fd->h[k].weight / net;
+		b = nb ? bsearch(&key, bw, nb, sizeof *bw, cmp_bench) : NULL;
+		bi = b ? b->w : 0;
+		sum += fabs(u - bi) - bi;
+	}
+	return 0.5 * (1 + sum);
+}
+
+/* The benchmark's invested weights, sorted by id. */
+static int bench_weights(const struct holdings_fund *bf, struct bench_weight **out, size_t *nout,
+			 struct hc_error *err)
+{
+	struct bench_weight *bw;
+	double net = 0;
+	size_t k, n = 0;
+
+	*out = NULL;
+	*nout = 0;
+	if (!bf)
+		return HC_OK;
+	for (k = 0; k < bf->n; k++)
+		if (bf->h[k].type != HOLDING_CASH)
+			net += bf->h[k].weight;
+	if (!(net > 0))
+		return hc_error(err, HC_EDATA, "the benchmark '%s' has no positive invested weight, expected weights of securities",
+				bf->source ? bf->source : bf->name);
+	if (!(bw = hc_calloc(bf->n ? bf->n : 1, sizeof *bw)))
+		return hc_error(err, HC_ENOMEM, "out of memory reading the benchmark");
+	for (k = 0; k < bf->n; k++)
+		if (bf->h[k].type != HOLDING_CASH)
+			bw[n++] = (struct bench_weight){ bf->h[k].id, bf->h[k].weight / net };
+	qsort(bw, n, sizeof *bw, cmp_bench);
+	*out = bw;
+	*nout = n;
+	return HC_OK;
 }
 
 /* ---- policy ---- */
@@ -492,6 +732,20 @@ static void policy(struct audit_fund *af, const struct audit_policy *p, double t
 		if ((p->screens & (1u << s)) && !af->screen_passed[s])
 			af->failed |= AUDIT_RULE_UCITS << s;
 	af->passed = af->failed == 0;
+}
+
+/* A fund failing the policy has failed whatever its coverage (every rule is
+ * on weights); one that passes but whose risk figures rest on less than
+ * min_covered of its invested weight has too little data for a verdict on
+ * them. */
+static void verdict(struct audit_fund *af, double min_covered, double tol)
+{
+	if (!af->passed)
+		af->verdict = AUDIT_VERDICT_FAILED;
+	else if (min_covered > 0 && !(af->covered_weight >= min_covered - tol))
+		af->verdict = AUDIT_VERDICT_INSUFFICIENT;
+	else
+		af->verdict = AUDIT_VERDICT_PASSED;
 }
 
 /* ---- percentile among random equal-weight portfolios ---- */
@@ -585,6 +839,13 @@ static int check_options(const struct audit_options *opt, struct hc_error *err)
 		return hc_error(err, HC_EUSAGE, "policy limits must be weights between 0 and 1 and counts of 0 or more");
 	if (!(opt->limit_tolerance >= 0) || !(opt->tie_rtol >= 0))
 		return hc_error(err, HC_EUSAGE, "tolerances must be zero or more");
+	if (!(opt->min_covered_weight >= 0 && opt->min_covered_weight <= 1))
+		return hc_error(err, HC_EUSAGE, "the minimum covered weight must be between 0 and 1, found %g",
+				opt->min_covered_weight);
+	if (opt->reading != AUDIT_READING_EXCLUDED && opt->reading != AUDIT_READING_CAPPED)
+		return hc_error(err, HC_EUSAGE, "unknown reading %d of the 5%% baskets", opt->reading);
+	if (opt->cash_risk != AUDIT_CASH_EXCLUDE && opt->cash_risk != AUDIT_CASH_ZERO)
+		return hc_error(err, HC_EUSAGE, "unknown treatment %d of cash in the risk figures", opt->cash_risk);
 	return HC_OK;
 }
 
@@ -592,7 +853,8 @@ static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
 		     const struct holdings *h, const struct source *src,
 		     const struct moments *mo, const struct audit_options *opt,
 		     long *idx, double *dwork, struct issuer_weight *iw,
-		     double *series, struct hc_error *err)
+		     double *series, const struct bench_weight *bw, size_t nb,
+		     struct hc_error *err)
 {
 	int rc;
 
@@ -600,14 +862,15 @@ static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
 	af->sd_percentile = NAN;
 	af->variance = af->sd = af->diversification_ratio = NAN;
 	af->equivalent_count = af->weighted_random_sd = af->equal_random_sd = NAN;
+	af->active_share = opt->benchmark ? active_share(fd, bw, nb) : NAN;
 	concentration(af, fd, dwork);
 	if ((rc = locate(af, fd, h, src, opt->strict, idx, err)) != HC_OK)
 		return rc;
-	if ((rc = risk(af, fd, src, mo, idx, series, err)) != HC_OK)
+	if ((rc = risk(af, fd, src, mo, opt->cash_risk, idx, series, err)) != HC_OK)
 		return rc;
 	if ((rc = sectors(af, fd, opt->sectors, err)) != HC_OK)
 		return rc;
-	screens(af, fd, iw, opt->limit_tolerance);
+	screens(af, fd, iw, opt->reading, h->has_group, opt->limit_tolerance);
 	return HC_OK;
 }
 
@@ -619,11 +882,13 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 	long *idx = NULL;
 	double *dwork = NULL, *series = NULL;
 	struct issuer_weight *iw = NULL;
-	size_t nmax = 1, f;
+	struct bench_weight *bw = NULL;
+	size_t nmax = 1, f, nb = 0;
 	int rc;
 
 	*out = NULL;
-	if ((rc = check_options(opt, err)) != HC_OK)
+	if ((rc = check_options(opt, err)) != HC_OK ||
+	    (rc = bench_weights(opt->benchmark, &bw, &nb, err)) != HC_OK)
 		return rc;
 	for (f = 0; f < h->nfunds; f++)
 		if (h->funds[f].n > nmax)
@@ -641,6 +906,11 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 	}
 	a->policy = opt->policy;
 	a->has_sectors = opt->sectors != NULL;
+	a->min_covered_weight = opt->min_covered_weight;
+	a->reading = opt->reading;
+	a->cash_risk = opt->cash_risk;
+	a->has_benchmark = opt->benchmark != NULL;
+	a->has_groups = h->has_group;
 	a->paths = opt->paths;
 	a->seed = opt->seed;
 	a->tie_rtol = opt->tie_rtol;
@@ -651,7 +921,7 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 	for (f = 0; f < h->nfunds; f++) {
 		a->nfunds = f + 1;
 		rc = audit_one(&a->funds[f], &h->funds[f], h, src, mo, opt,
-				idx, dwork, iw, series, err);
+				idx, dwork, iw, series, bw, nb, err);
 		if (rc != HC_OK)
 			goto cleanup;
 	}
@@ -659,7 +929,9 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 		goto cleanup;
 	for (f = 0; f < a->nfunds; f++) {
 		policy(&a->funds[f], &opt->policy, opt->limit_tolerance);
+		verdict(&a->funds[f], opt->min_covered_weight, opt->limit_tolerance);
 		a->failed_funds += !a->funds[f].passed;
+		a->insufficient_funds += a->funds[f].verdict == AUDIT_VERDICT_INSUFFICIENT;
 	}
 	*out = a;
 	a = NULL;
@@ -669,6 +941,7 @@ cleanup:
 	hc_free(dwork);
 	hc_free(iw);
 	hc_free(series);
+	hc_free(bw);
 	return rc;
 }
 
@@ -684,6 +957,10 @@ static const char *input_text(const struct hc_source *s)
 		return s->psd.repaired ? "return history with gaps; risk from its pairwise-complete covariances, "
 					 "repaired to the nearest positive semi-definite matrix"
 				       : "return history with gaps; risk from its pairwise-complete covariances";
+	case HC_SOURCE_RAGGED:
+		return s->psd.repaired ? "return history with gaps; funds' risk from its pairwise-complete covariances, "
+					 "repaired to the nearest positive semi-definite matrix"
+				       : "return history with gaps; funds' risk from its pairwise-complete covariances";
 	}
 	return "covariance matrix";
 }
@@ -752,7 +1029,11 @@ enum {
 	FC_PASSED, FC_FAILED, FC_EQUAL_RSD, FC_MAX_ID, FC_RISK_HOLDINGS, FC_MISSING,
 	FC_MISSING_WEIGHT, FC_SUBSET, FC_BELOW_FLOOR, FC_ISSUER_MAX,
 	FC_ISSUER_MAX_ID, FC_UCITS, FC_1940, FC_RIC, FC_SECTOR_HHI,
-	FC_MAX_SECTOR, FC_MAX_SECTOR_WEIGHT, FC_N
+	FC_MAX_SECTOR, FC_MAX_SECTOR_WEIGHT, FC_COVERED_WEIGHT, FC_VERDICT,
+	FC_CASH, FC_GOVERNMENT, FC_FUND_SHARES, FC_GROSS, FC_NET, FC_SHORT,
+	FC_ISSUERS, FC_ISSUER_HHI, FC_EFFECTIVE_ISSUERS, FC_MAX_GROUP,
+	FC_MAX_GROUP_WEIGHT, FC_BASKET_1940_EXCLUDED, FC_BASKET_1940_CAPPED,
+	FC_BASKET_RIC_EXCLUDED, FC_BASKET_RIC_CAPPED, FC_ACTIVE_SHARE, FC_N
 };
 
 static const struct {
@@ -762,10 +1043,10 @@ static const struct {
 	{ "fund", "fund", REPORT_STYLE_PLAIN },
 	{ "holdings", "holdings", REPORT_STYLE_PLAIN },
 	{ "weight_sum", "weight sum", REPORT_STYLE_FIXED4 },
-	{ "max_weight", "largest", REPORT_STYLE_PERCENT },
-	{ "top10_share", "top 10", REPORT_STYLE_PERCENT },
-	{ "hhi", "HHI", REPORT_STYLE_FIXED4 },
-	{ "effective_holdings", "effective", REPORT_STYLE_FIXED2 },
+	{ "max_weight", "largest (net assets)", REPORT_STYLE_PERCENT },
+	{ "top10_share", "top 10 (net assets)", REPORT_STYLE_PERCENT },
+	{ "hhi", "HHI (invested, gross)", REPORT_STYLE_FIXED4 },
+	{ "effective_holdings", "effective (invested, gross)", REPORT_STYLE_FIXED2 },
 	{ "sd", "sd", REPORT_STYLE_PERCENT },
 	{ "diversification_ratio", "div. ratio", REPORT_STYLE_FIXED2 },
 	{ "equivalent_count", "equiv. count", REPORT_STYLE_FIXED2 },
@@ -775,12 +1056,12 @@ static const struct {
 	{ "failed_rules", "limits failed", REPORT_STYLE_PLAIN },
 	{ "equal_weight_random_sd", "random sd, equal weights", REPORT_STYLE_PERCENT },
 	{ "max_weight_id", "largest id", REPORT_STYLE_PLAIN },
-	{ "risk_holdings", "in universe", REPORT_STYLE_PLAIN },
+	{ "risk_holdings", "covered holdings", REPORT_STYLE_PLAIN },
 	{ "missing_count", "ids missing", REPORT_STYLE_PLAIN },
 	{ "missing_weight", "missing weight", REPORT_STYLE_PERCENT },
 	{ "risk_on_subset", "risk on subset", REPORT_STYLE_PLAIN },
 	{ "below_floor", "below floor", REPORT_STYLE_PLAIN },
-	{ "max_issuer_weight", "largest issuer", REPORT_STYLE_PERCENT },
+	{ "max_issuer_weight", "largest issuer (net assets)", REPORT_STYLE_PERCENT },
 	{ "max_issuer", "largest issuer id", REPORT_STYLE_PLAIN },
 	{ "ucits", "ucits", REPORT_STYLE_PLAIN },
 	{ "1940act", "1940act", REPORT_STYLE_PLAIN },
@@ -788,6 +1069,24 @@ static const struct {
 	{ "sector_hhi", "sector HHI", REPORT_STYLE_FIXED4 },
 	{ "max_sector", "largest sector", REPORT_STYLE_PLAIN },
 	{ "max_sector_weight", "largest sector weight", REPORT_STYLE_PERCENT },
+	{ "covered_weight", "covered weight (invested, gross)", REPORT_STYLE_PERCENT },
+	{ "verdict", "verdict", REPORT_STYLE_PLAIN },
+	{ "cash_weight", "cash (net assets)", REPORT_STYLE_PERCENT },
+	{ "government_weight", "government (net assets)", REPORT_STYLE_PERCENT },
+	{ "fund_share_weight", "fund shares (net assets)", REPORT_STYLE_PERCENT },
+	{ "gross_exposure", "gross exposure", REPORT_STYLE_PERCENT },
+	{ "net_exposure", "net exposure", REPORT_STYLE_PERCENT },
+	{ "short_exposure", "short exposure", REPORT_STYLE_PERCENT },
+	{ "issuers", "issuers", REPORT_STYLE_PLAIN },
+	{ "issuer_hhi", "issuer HHI (invested, gross)", REPORT_STYLE_FIXED4 },
+	{ "effective_issuers", "effective issuers", REPORT_STYLE_FIXED2 },
+	{ "max_group", "largest group", REPORT_STYLE_PLAIN },
+	{ "max_group_weight", "largest group weight", REPORT_STYLE_PERCENT },
+	{ "basket_1940act_excluded", "1940act basket, excluded", REPORT_STYLE_PERCENT },
+	{ "basket_1940act_capped", "1940act basket, capped", REPORT_STYLE_PERCENT },
+	{ "basket_ric_excluded", "ric basket, excluded", REPORT_STYLE_PERCENT },
+	{ "basket_ric_capped", "ric basket, capped", REPORT_STYLE_PERCENT },
+	{ "active_share", "active share", REPORT_STYLE_PERCENT },
 };
 
 static int failed_text(unsigned failed, char *buf, size_t size)
@@ -859,6 +1158,29 @@ static int fund_row(struct report_table *t, const struct audit_result *a,
 		if (af->max_sector && hc_report_table_set_text(t, r, FC_MAX_SECTOR, af->max_sector) != HC_OK)
 			return HC_ENOMEM;
 	}
+	hc_report_table_set_real(t, r, FC_COVERED_WEIGHT, af->covered_weight);
+	if (hc_report_table_set_text(t, r, FC_VERDICT, hc_audit_verdict_name(af->verdict)) != HC_OK)
+		return HC_ENOMEM;
+	hc_report_table_set_real(t, r, FC_CASH, af->cash_weight);
+	hc_report_table_set_real(t, r, FC_GOVERNMENT, af->government_weight);
+	hc_report_table_set_real(t, r, FC_FUND_SHARES, af->fund_share_weight);
+	hc_report_table_set_real(t, r, FC_GROSS, af->gross_exposure);
+	hc_report_table_set_real(t, r, FC_NET, af->net_exposure);
+	hc_report_table_set_real(t, r, FC_SHORT, af->short_exposure);
+	hc_report_table_set_int(t, r, FC_ISSUERS, (long long)af->issuers);
+	hc_report_table_set_real(t, r, FC_ISSUER_HHI, af->issuer_hhi);
+	hc_report_table_set_real(t, r, FC_EFFECTIVE_ISSUERS, af->effective_issuers);
+	if (a->has_groups) {
+		hc_report_table_set_real(t, r, FC_MAX_GROUP_WEIGHT, af->max_group_weight);
+		if (af->max_group && hc_report_table_set_text(t, r, FC_MAX_GROUP, af->max_group) != HC_OK)
+			return HC_ENOMEM;
+	}
+	hc_report_table_set_real(t, r, FC_BASKET_1940_EXCLUDED, af->basket_1940[AUDIT_READING_EXCLUDED]);
+	hc_report_table_set_real(t, r, FC_BASKET_1940_CAPPED, af->basket_1940[AUDIT_READING_CAPPED]);
+	hc_report_table_set_real(t, r, FC_BASKET_RIC_EXCLUDED, af->basket_ric[AUDIT_READING_EXCLUDED]);
+	hc_report_table_set_real(t, r, FC_BASKET_RIC_CAPPED, af->basket_ric[AUDIT_READING_CAPPED]);
+	if (a->has_benchmark)
+		hc_report_table_set_real(t, r, FC_ACTIVE_SHARE, af->active_share);
 	return HC_OK;
 }
 
@@ -892,16 +1214,19 @@ static int add_columns(struct report_table *t, const char *const *keys,
 
 static int screens_table(struct report *rep, const struct audit_result *a)
 {
-	static const char *const keys[] = { "fund", "screen", "part", "passed", "figure", "test", "limit", "issuer", "required" };
-	static const int styles[] = { 0, 0, 0, 0, REPORT_STYLE_PERCENT, 0, REPORT_STYLE_PERCENT, 0, 0 };
-	struct report_table *t = hc_report_add_table(rep, "screens", "legal weight limits (from memory of the published texts: verify against the current text)");
-	size_t f, p, r;
+	static const char *const keys[] = { "fund", "screen", "part", "passed", "figure", "test", "limit", "issuer",
+					    "required", "reading", "decides", "basis" };
+	static const int styles[] = { 0, 0, 0, 0, REPORT_STYLE_PERCENT, 0, REPORT_STYLE_PERCENT, 0, 0, 0, 0, 0 };
+	struct report_table *t = hc_report_add_table(rep, "screens", "legal weight limits (from memory of the text; verify with counsel)");
+	size_t f, q, r;
 
-	if (!t || add_columns(t, keys, styles, 9) != HC_OK)
+	if (!t || add_columns(t, keys, styles, 12) != HC_OK)
 		return HC_ENOMEM;
 	for (f = 0; f < a->nfunds; f++)
-		for (p = 0; p < AUDIT_NPARTS; p++) {
+		for (q = 0; q < AUDIT_NPARTS; q++) {
+			int p = part_order[q];
 			const struct audit_check *c = &a->funds[f].checks[p];
+			const char *reading = parts[p].basket ? reading_names[parts[p].decides ? a->reading : !a->reading] : NULL;
 			if (hc_report_table_add_row(t) != HC_OK)
 				return HC_ENOMEM;
 			r = t->nrows - 1;
@@ -909,14 +1234,88 @@ static int screens_table(struct report *rep, const struct audit_result *a)
 			    hc_report_table_set_text(t, r, 1, parts[p].screen) != HC_OK ||
 			    hc_report_table_set_text(t, r, 2, parts[p].part) != HC_OK ||
 			    hc_report_table_set_text(t, r, 5, parts[p].test) != HC_OK ||
-			    (c->issuer && hc_report_table_set_text(t, r, 7, c->issuer) != HC_OK))
+			    (c->issuer && hc_report_table_set_text(t, r, 7, c->issuer) != HC_OK) ||
+			    (reading && hc_report_table_set_text(t, r, 9, reading) != HC_OK) ||
+			    hc_report_table_set_text(t, r, 11, "net assets") != HC_OK)
 				return HC_ENOMEM;
 			hc_report_table_set_bool(t, r, 3, c->passed);
-			hc_report_table_set_real(t, r, 4, c->figure);
+			if (c->applies)     /* else empty: no groups given */
+				hc_report_table_set_real(t, r, 4, c->figure);
 			hc_report_table_set_real(t, r, 6, c->limit);
-			hc_report_table_set_bool(t, r, 8, (a->policy.screens >> parts[p].screen_index) & 1);
+			hc_report_table_set_bool(t, r, 8, parts[p].decides && ((a->policy.screens >> parts[p].screen_index) & 1));
+			hc_report_table_set_bool(t, r, 10, parts[p].decides);
 		}
 	return HC_OK;
+}
+
+/* One row per failed rule or screen part: what the JSON's readers need to
+ * see why (the figure against its limit), not only which. */
+static int failure_row(struct report_table *t, const char *fund, const char *check, double figure,
+		       const char *test, double limit)
+{
+	size_t r;
+
+	if (hc_report_table_add_row(t) != HC_OK)
+		return HC_ENOMEM;
+	r = t->nrows - 1;
+	if (hc_report_table_set_text(t, r, 0, fund) != HC_OK || hc_report_table_set_text(t, r, 1, check) != HC_OK ||
+	    hc_report_table_set_text(t, r, 3, test) != HC_OK)
+		return HC_ENOMEM;
+	hc_report_table_set_real(t, r, 2, figure);
+	hc_report_table_set_real(t, r, 4, limit);
+	return HC_OK;
+}
+
+static int failures_table(struct report *rep, const struct audit_result *a)
+{
+	static const char *const keys[] = { "fund", "check", "figure", "test", "limit" };
+	static const int styles[] = { 0, 0, REPORT_STYLE_FIXED4, 0, REPORT_STYLE_FIXED4 };
+	const struct audit_policy *p = &a->policy;
+	struct report_table *t = hc_report_add_table(rep, "failures", "policy failures, with the deciding figures");
+	char check[96];
+	size_t f, q;
+	int rc = HC_OK;
+
+	if (!t || add_columns(t, keys, styles, 5) != HC_OK)
+		return HC_ENOMEM;
+	for (f = 0; f < a->nfunds && rc == HC_OK; f++) {
+		const struct audit_fund *af = &a->funds[f];
+		if (af->failed & AUDIT_RULE_MIN_HOLDINGS)
+			rc = failure_row(t, af->name, "min-holdings", (double)af->holdings, ">=", (double)p->min_holdings);
+		if (rc == HC_OK && (af->failed & AUDIT_RULE_MIN_EFFECTIVE))
+			rc = failure_row(t, af->name, "min-effective", af->effective_holdings, ">=", p->min_effective);
+		if (rc == HC_OK && (af->failed & AUDIT_RULE_MAX_WEIGHT))
+			rc = failure_row(t, af->name, "max-weight", af->max_weight, "<=", p->max_weight);
+		if (rc == HC_OK && (af->failed & AUDIT_RULE_MAX_SECTOR_WEIGHT))
+			rc = failure_row(t, af->name, "max-sector-weight", af->max_sector_weight, "<=", p->max_sector_weight);
+		for (q = 0; q < AUDIT_NPARTS && rc == HC_OK; q++) {
+			int k = part_order[q];
+			if (!parts[k].decides || af->checks[k].passed ||
+			    !(af->failed & (AUDIT_RULE_UCITS << parts[k].screen_index)))
+				continue;
+			snprintf(check, sizeof check, "%s: %s", parts[k].screen, parts[k].part);
+			rc = failure_row(t, af->name, check, af->checks[k].figure, parts[k].test, af->checks[k].limit);
+		}
+	}
+	return rc;
+}
+
+/* In JSON each fund's failed_rules is the array of its failures' objects
+ * (check, figure, test, limit); CSV and text keep the ';'-joined names. */
+static int nest_failures(struct report *rep)
+{
+	size_t i;
+	struct report_table *funds = NULL, *failures = NULL;
+
+	for (i = 0; i < rep->ntables; i++) {
+		if (strcmp(rep->tables[i]->key, "funds") == 0)
+			funds = rep->tables[i];
+		else if (strcmp(rep->tables[i]->key, "failures") == 0)
+			failures = rep->tables[i];
+	}
+	if (!funds || !failures)
+		return HC_EINTERNAL;
+	return hc_report_table_nest(funds, "failed_rules", failures, "fund");
 }
 
 static int missing_table(struct report *rep, const struct audit_result *a)
@@ -1020,7 +1419,14 @@ static int fields(struct report *rep, const struct audit_result *a)
 	    hc_report_add_int(rep, "seed", "seed", (long long)a->seed) != HC_OK ||
 	    hc_report_add_text(rep, "policy", "policy", buf) != HC_OK ||
 	    hc_report_add_int(rep, "fund_count", "funds", (long long)a->nfunds) != HC_OK ||
-	    hc_report_add_int(rep, "failed_funds", "funds failing the policy", (long long)a->failed_funds) != HC_OK)
+	    hc_report_add_int(rep, "failed_funds", "funds failing the policy", (long long)a->failed_funds) != HC_OK ||
+	    hc_report_add_real(rep, "min_covered_weight", "least covered weight for a verdict", a->min_covered_weight,
+			       REPORT_STYLE_PERCENT) != HC_OK ||
+	    hc_report_add_int(rep, "insufficient_funds", "funds with insufficient data", (long long)a->insufficient_funds) != HC_OK ||
+	    hc_report_add_text(rep, "basket_reading", "5% basket reading deciding", reading_names[a->reading]) != HC_OK ||
+	    hc_report_add_text(rep, "cash_risk", "cash in the risk figures",
+			       a->cash_risk == AUDIT_CASH_ZERO ? "zero (risk of net assets, cash at zero variance)"
+							       : "exclude (risk of the invested assets, renormalised)") != HC_OK)
 		return HC_ENOMEM;
 	return HC_OK;
 }
@@ -1048,7 +1454,17 @@ static int notes(struct report *rep, const struct audit_result *a, const struct 
 			 a->input && strcmp(a->input, "return history") ? ", through its pairwise-complete covariances" : "");
 	if (hc_report_add_note(rep, buf) != HC_OK ||
 	    hc_report_add_note(rep, "funds with ids missing from the universe have their risk figures computed on the remaining weights, renormalised (risk_on_subset)") != HC_OK ||
-	    hc_report_add_note(rep, "the UCITS (2009/65/EC Art. 52), Investment Company Act of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3) screens are written from memory of the published texts and test weights only: verify against the current text and defer to compliance counsel") != HC_OK)
+	    hc_report_add_note(rep, "the UCITS (2009/65/EC Art. 52), Investment Company Act of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3) screens are written from memory of the published texts and test weights only: verify against the current text and defer to compliance counsel") != HC_OK ||
+	    hc_report_add_note(rep, "statute figures are from memory of the text; verify with counsel. The 1940 Act s. 5(b)(1) and s. 851(b)(3) baskets have two readings: 'excluded' leaves an issuer above 5% out of the basket, 'capped' counts it up to 5%; the screens table shows both and says which decides") != HC_OK ||
+	    hc_report_add_note(rep, "the 1940 Act tests diversification when a security is acquired (s. 5(c): a fund that later drifts past the limits through market moves alone stays diversified); s. 851(b)(3) is tested at each quarter end, with a 30-day cure period after a quarter end for a failure caused by an acquisition (s. 851(d)); this audit tests the weights as given, at one date. UCITS funds replicating an index may hold up to 20% in one issuer, 35% in exceptional cases (Art. 53); this audit does not apply those exceptions") != HC_OK ||
+	    hc_report_add_note(rep, "bases: largest position, top 10, cash, exposures, issuer and group weights and every screen are of net assets (the fund's lines summed, cash included); holdings, HHI, effective holdings by line and by issuer and the covered weight are of the invested assets (cash left out) by absolute (gross) weight; cash is not a holding or an issuer") != HC_OK)
+		return HC_ENOMEM;
+	snprintf(buf, sizeof buf, "a fund whose risk figures rest on less than %g%% of its invested weight (covered_weight; ids missing from the universe or dropped for gaps) gets the verdict 'insufficient data' unless it fails the policy; risk figures are %s",
+		 100 * a->min_covered_weight,
+		 a->cash_risk == AUDIT_CASH_ZERO ? "of net assets, cash held at zero variance" : "of the invested assets, cash left out and the rest renormalised");
+	if (hc_report_add_note(rep, buf) != HC_OK)
+		return HC_ENOMEM;
+	if (a->has_benchmark && hc_report_add_note(rep, "active share (Cremers & Petajisto, 2009, Review of Financial Studies 22(9)) is half the sum of |fund weight - benchmark weight| over every id, both on invested assets") != HC_OK)
 		return HC_ENOMEM;
 	return hc_report_add_cautions(rep) == HC_OK ? HC_OK : HC_ENOMEM;
 }
@@ -1064,7 +1480,9 @@ int hc_audit_report(struct report **out, const struct audit_result *a,
 		return hc_error(err, HC_ENOMEM, "out of memory building the audit report");
 	if ((rc = fields(rep, a)) != HC_OK || (rc = funds_table(rep, a)) != HC_OK ||
 	    (rc = screens_table(rep, a)) != HC_OK || (rc = missing_table(rep, a)) != HC_OK ||
-	    (rc = sectors_table(rep, a)) != HC_OK || (rc = notes(rep, a, h)) != HC_OK) {
+	    (rc = sectors_table(rep, a)) != HC_OK || (rc = failures_table(rep, a)) != HC_OK ||
+	    (rc = nest_failures(rep)) != HC_OK ||
+	    (rc = notes(rep, a, h)) != HC_OK) {
 		hc_report_free(rep);
 		return hc_error(err, rc, rc == HC_ENOMEM ? "out of memory building the audit report"
 				: "the audit report's policy text is too long");

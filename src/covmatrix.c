@@ -5,6 +5,7 @@
 #include "holdcount/covmatrix.h"
 #include "holdcount/universe.h"
 
+#include <limits.h>
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
@@ -544,6 +545,48 @@ int hc_covmatrix_repair_psd(double *a, size_t m, int *changed, struct hc_error *
 	return rc;
 }
 
+/* LAPACK's divide-and-conquer symmetric eigensolver (in the OpenBLAS the
+ * library links; Fortran calling convention). */
+void dsyevd_(const char *jobz, const char *uplo, const int *n, double *a, const int *lda, double *w,
+	     double *work, const int *lwork, int *iwork, const int *liwork, int *info);
+
+/* The smallest eigenvalue of the symmetric m x m a, eigenvalues only
+ * (LAPACK dsyevd with jobz = 'N': O(m^3/3) flops for the tridiagonal
+ * reduction, no eigenvectors), for the check that needs nothing more. */
+static int min_eigen_lapack(const double *a, size_t m, double *lmin, struct hc_error *err)
+{
+	int n = (int)m, lwork = -1, liwork = -1, info = 0, iw = 0;
+	double wq = 0, *c = NULL, *w = NULL, *work = NULL;
+	int *iwork = NULL, rc = HC_OK;
+	size_t nn;
+
+	if (m > (size_t)INT_MAX || hc_mul_size(m, m, &nn))
+		return hc_error(err, HC_ENOMEM, "matrix of %zu securities too large for LAPACK", m);
+	dsyevd_("N", "U", &n, &wq, &n, &wq, &wq, &lwork, &iw, &liwork, &info);
+	lwork = (int)wq + 1;
+	liwork = iw > 1 ? iw : 1;
+	c = hc_reallocarray(NULL, nn, sizeof *c);
+	w = hc_reallocarray(NULL, m, sizeof *w);
+	work = hc_reallocarray(NULL, (size_t)lwork, sizeof *work);
+	iwork = hc_reallocarray(NULL, (size_t)liwork, sizeof *iwork);
+	if (!c || !w || !work || !iwork) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the eigenvalues");
+		goto cleanup;
+	}
+	memcpy(c, a, nn * sizeof *c);
+	dsyevd_("N", "U", &n, c, &n, w, work, &lwork, iwork, &liwork, &info);
+	if (info != 0)
+		rc = hc_error(err, HC_EINTERNAL, "eigenvalue computation failed (LAPACK dsyevd info %d)", info);
+	else
+		*lmin = w[0];   /* ascending order */
+cleanup:
+	hc_free(c);
+	hc_free(w);
+	hc_free(work);
+	hc_free(iwork);
+	return rc;
+}
+
 int hc_covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmatrix_psd *st,
 			  struct hc_error *err)
 {
@@ -557,6 +600,16 @@ int hc_covmatrix_nearest_psd(const double *a, size_t m, double *b, struct covmat
 	if (hc_mul_size(m, m, &n))
 		return hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
 	memcpy(b, a, n * sizeof *b);
+	/* The check first, eigenvalues only: a matrix with no negative
+	 * eigenvalue is its own nearest one, and needs no eigenvectors. */
+	if ((rc = min_eigen_lapack(a, m, &st->min_eigenvalue, err)) != HC_OK)
+		return rc;
+	if (st->min_eigenvalue >= 0) {
+		for (i = 0; i < n; i++)
+			a2 += a[i] * a[i];
+		st->norm = sqrt(a2);
+		return HC_OK;
+	}
 	if (!(w = hc_reallocarray(NULL, n, sizeof *w)))
 		return hc_error(err, HC_ENOMEM, "out of memory for the eigen decomposition");
 	memcpy(w, a, n * sizeof *w);
@@ -592,6 +645,8 @@ int hc_covmatrix_min_eigenvalue(const double *a, size_t m, double *lambda_min,
 	*lambda_min = NAN;
 	if (m == 0)
 		return hc_error(err, HC_EINTERNAL, "no eigenvalues of an empty matrix");
+	if (m > 1)
+		return min_eigen_lapack(a, m, lambda_min, err);
 	if (hc_mul_size(m, m, &n))
 		return hc_error(err, HC_ENOMEM, "out of memory for the eigenvalues");
 	w = hc_reallocarray(NULL, n, sizeof *w);

@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/periodic.h"
 #include "holdcount/sampler.h"
 #include "holdcount/strata.h"
 
@@ -51,7 +52,10 @@ static int sample(const struct hc_source *src, const struct hc_curve_options *op
 
 	sampler_options(&so, opt, c->periods_per_year);
 	hc_progress_begin(&opt->progress, "sampling random portfolios at the curve's counts", "sampling", "paths");
-	rc = hc_sampler_run(&res, src, sizes, nsizes, &so, err);
+	/* a ragged history: at each period the first min(N, M_t) alive
+	 * securities of a random order (periodic.h) */
+	rc = src->kind == HC_SOURCE_RAGGED ? hc_periodic_sample(&res, src->per, src->u, 0, sizes, nsizes, &so, err)
+					   : hc_sampler_run(&res, src, sizes, nsizes, &so, err);
 	hc_progress_end(&opt->progress);
 	if (rc == HC_OK)
 		rc = hc_sampler_summarise(c, res, err);
@@ -196,9 +200,14 @@ static int curve_fields(struct report *r, const struct hc_source *s, const char 
 	    hc_report_add_int(r, "paths", "random portfolios per count", (long long)c->paths) ||
 	    (c->paths ? hc_report_add_text(r, "seed", "seed", seed) : hc_report_add_none(r, "seed", "seed")) ||
 	    hc_report_add_text(r, "sampling", "sampling",
-			    c->paths ? "uniform random subsets without replacement; z compares the sampled mean "
-				       "variance with the exact one in Monte Carlo standard errors"
-				     : "not sampled (--paths 0)"))
+			    !c->paths ? "not sampled (--paths 0)"
+			    : s->kind == HC_SOURCE_RAGGED
+			    ? "a random order of the securities; at each period the portfolio holds the first N alive "
+			      "then (all of them when fewer are alive); z compares the sampled mean variance with the "
+			      "exact one in Monte Carlo standard errors"
+			    : "uniform random subsets without replacement; z compares the sampled mean "
+			      "variance with the exact one in Monte Carlo standard errors") ||
+	    (s->kind == HC_SOURCE_RAGGED && hc_source_report_treatment(s, r)))
 		return HC_ENOMEM;
 	return hc_curve_add_table(r, c, s->annualised);
 }
@@ -212,6 +221,8 @@ static const char *input_text(const struct hc_source *s)
 		return s->psd.repaired ? "return history with gaps; its pairwise-complete covariances, repaired to the "
 					 "nearest positive semi-definite matrix, give the exact columns and the random portfolios"
 		     : s->cm ? "return history with gaps; sampled from its pairwise-complete covariances" : "return history";
+	case HC_SOURCE_RAGGED:
+		return "return history with gaps, read period by period";
 	}
 	return "covariance matrix";
 }
@@ -221,7 +232,9 @@ static int build(struct hc_curve_result *res, const struct hc_source *src, const
 	struct report *r = res->report = hc_report_alloc();
 
 	if (!r || curve_fields(r, src, input_text(src), &res->mo, res->curve) ||
-	    add_strata(r, opt->strata, res->strata) || hc_source_report_psd(src, r))
+	    add_strata(r, opt->strata, res->strata) ||
+	    /* a ragged source's matrix (funds only) plays no part in the curve */
+	    (src->kind != HC_SOURCE_RAGGED && hc_source_report_psd(src, r)))
 		return HC_ENOMEM;
 	return hc_report_add_cautions(r);
 }
@@ -236,7 +249,8 @@ static int full_curve(struct hc_curve_result *res, const struct hc_source *src, 
 		return hc_error(err, HC_ENOMEM, "out of memory for the count grid");
 	for (i = 0; i < m; i++)
 		sizes[i] = i + 1;
-	rc = hc_curve_exact(&res->full, &res->mo, sizes, m, src->periods_per_year, err);
+	rc = src->kind == HC_SOURCE_RAGGED ? hc_periodic_curve_exact(&res->full, src->per, sizes, m, src->periods_per_year, err)
+					   : hc_curve_exact(&res->full, &res->mo, sizes, m, src->periods_per_year, err);
 	hc_free(sizes);
 	return rc;
 }
@@ -249,6 +263,9 @@ static int check(const struct hc_source *src, const struct hc_curve_options *opt
 		return hc_error(err, HC_EUSAGE, "--strata draws from return series, not from a covariance matrix");
 	if (opt->paths == 0)
 		return hc_error(err, HC_EUSAGE, "--strata draws random portfolios: it needs --paths above 0");
+	if (src->kind == HC_SOURCE_RAGGED)
+		return hc_error(err, HC_EUSAGE, "--strata draws from complete return series, and '%s' has gaps: "
+				"--missing complete keeps only the securities with none", src->name ? src->name : "");
 	if (!hc_source_has_series(src))
 		return hc_error(err, HC_EUSAGE, "--strata draws from complete return series, and '%s' has gaps "
 				"under --missing pairwise", src->name ? src->name : "");
@@ -272,8 +289,12 @@ int hc_curve_run(struct hc_curve_result **out, const struct hc_source *src, cons
 		rc = hc_moments_from_source(&res->mo, src, err);
 	if (rc == HC_OK && opt->strata && opt->strata->map)
 		rc = sample_strata(src, opt, sizes, nsizes, &res->strata, err);
+	/* a ragged history's exact curve from its per-period sums (the
+	 * averages give it only up to the fewest alive) */
 	if (rc == HC_OK)
-		rc = hc_curve_exact(&res->curve, &res->mo, sizes, nsizes, src->periods_per_year, err);
+		rc = src->kind == HC_SOURCE_RAGGED
+		     ? hc_periodic_curve_exact(&res->curve, src->per, sizes, nsizes, src->periods_per_year, err)
+		     : hc_curve_exact(&res->curve, &res->mo, sizes, nsizes, src->periods_per_year, err);
 	if (rc == HC_OK && opt->paths > 0)
 		rc = sample(src, opt, res->curve, sizes, nsizes, err);
 	if (rc == HC_OK && opt->full)

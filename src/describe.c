@@ -111,9 +111,12 @@ static int build(struct report *r, const struct hc_source *s, const struct momen
 	    hc_report_add_bool(r, "periods_per_year_detected", "detected from the dates",
 			    u->periods_detected) ||
 	    hc_report_add_text(r, "covariances", "covariances",
-			    s->psd.repaired ? "pairwise-complete (data with gaps), repaired to the nearest positive "
+			    s->kind == HC_SOURCE_RAGGED ? "none needed: per-period sums (data with gaps, read period by period)"
+			    : s->psd.repaired ? "pairwise-complete (data with gaps), repaired to the nearest positive "
 					   "semi-definite matrix"
 			    : u->has_missing ? "pairwise-complete (data with gaps)" : "complete data") ||
+	    (s->kind == HC_SOURCE_RAGGED && hc_source_report_treatment(s, r)) ||
+	    hc_source_report_reading(s, r) ||
 	    add_averages(r, mo, p))
 		return HC_ENOMEM;
 	if (add_kept(r, u) || add_dropped(r, u) || hc_source_report_psd(s, r))

@@ -13,6 +13,7 @@
 
 #include "holdcount/bootstrap.h"
 #include "holdcount/memory.h"
+#include "holdcount/periodic.h"
 #include "holdcount/sampler.h"
 #include "holdcount/strata.h"
 
@@ -56,7 +57,10 @@ static int add_source(struct report *r, const struct hc_enough *e, const struct 
 		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
 		bad |= hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped);
 		bad |= hc_report_add_int(r, "periods", "periods", (long long)u->t);
-		if (u->has_missing)
+		if (src->kind == HC_SOURCE_RAGGED) {
+			bad |= hc_report_add_text(r, "input", "input", "return history with gaps, read period by period");
+			bad |= hc_source_report_treatment(src, r);
+		} else if (u->has_missing)
 			bad |= hc_report_add_text(r, "input", "input", src->psd.repaired
 				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
 				  "positive semi-definite matrix, for every rule but lag-share"
@@ -77,7 +81,8 @@ static int add_source(struct report *r, const struct hc_enough *e, const struct 
 static int add_fields(struct report *r, const struct hc_enough *e, const struct hc_source *src)
 {
 	double p = e->periods_per_year, floor_var = e->cbar * p;
-	double uvar = e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
+	double uvar = src && src->kind == HC_SOURCE_RAGGED ? src->per->curve.a * p
+		    : e->m ? (e->vbar / e->m + (1 - 1.0 / e->m) * e->cbar) * p : floor_var;
 	int sd_style = e->annualised ? REPORT_STYLE_PERCENT : REPORT_STYLE_PLAIN;
 	int bad = add_source(r, e, src);
 
@@ -94,10 +99,13 @@ static int add_fields(struct report *r, const struct hc_enough *e, const struct 
 		bad |= hc_report_add_text(r, "bootstrap", "bootstrap", hc_bootstrap_kind_name(e->kind));
 		bad |= hc_report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
 		bad |= hc_report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
-		bad |= hc_report_add_real(r, "clustering_q", "volatility clustering: McLeod-Li Q", e->clustering_q,
-					  REPORT_STYLE_FIXED2);
-		bad |= hc_report_add_int(r, "clustering_lags", "McLeod-Li lags", (long long)e->clustering_lags);
-		bad |= hc_report_add_real(r, "clustering_p", "McLeod-Li p-value", e->clustering_p, REPORT_STYLE_FIXED4);
+		if (e->clustering_lags) {   /* not for a history read period by period */
+			bad |= hc_report_add_real(r, "clustering_q", "volatility clustering: McLeod-Li Q",
+						  e->clustering_q, REPORT_STYLE_FIXED2);
+			bad |= hc_report_add_int(r, "clustering_lags", "McLeod-Li lags", (long long)e->clustering_lags);
+			bad |= hc_report_add_real(r, "clustering_p", "McLeod-Li p-value", e->clustering_p,
+						  REPORT_STYLE_FIXED4);
+		}
 	} else
 		bad |= hc_report_add_none(r, "bootstrap", "bootstrap");
 	if ((src && src->u) || e->paths) {
@@ -106,7 +114,7 @@ static int add_fields(struct report *r, const struct hc_enough *e, const struct 
 		snprintf(seed, sizeof seed, "%llu", (unsigned long long)e->seed);
 		bad |= hc_report_add_text(r, "seed", "seed", seed);
 	}
-	if (src)
+	if (src && src->kind != HC_SOURCE_RAGGED)   /* a ragged source's matrix serves funds only */
 		bad |= hc_source_report_psd(src, r);
 	return bad ? HC_ENOMEM : HC_OK;
 }
@@ -182,7 +190,7 @@ static int add_coverage_notes(struct report *r, const struct hc_enough *e)
 	return bad;
 }
 
-static int add_notes(struct report *r, const struct hc_enough *e)
+static int add_notes(struct report *r, const struct hc_enough *e, const struct hc_source *src)
 {
 	double p = e->periods_per_year;
 	char text[700];
@@ -213,6 +221,13 @@ static int add_notes(struct report *r, const struct hc_enough *e)
 			 100 * sqrt(e->vbar * p), 100 * HC_MOMENTS_IMPLAUSIBLE_SD);
 		bad |= hc_report_add_note(r, text);
 	}
+	if (src && src->kind == HC_SOURCE_RAGGED && e->bootstrapped)
+		bad |= hc_report_add_note(r, "ragged history: each replicate of the exact rules sums the drawn "
+				       "periods' cross-sections (O(T) a replicate) with every security centred on its "
+				       "full-sample mean, not re-centred on the replicate; --bootstrap-sampled re-sums "
+				       "and re-centres each replicate before sampling it; the intervals are percentiles of "
+				       "the replicates' counts whatever --interval says, and the block length is "
+				       "round(T^(1/3)) unless --block-length gives one");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -273,7 +288,10 @@ static void policy_universe(const struct hc_enough *e, const struct hc_source *s
 {
 	const struct universe *u = src ? src->u : NULL;
 
-	if (u && u->has_missing)
+	if (src && src->kind == HC_SOURCE_RAGGED)
+		snprintf(buf, len, "%zu securities from %s, gaps kept, read period by period (each period the "
+			 "securities alive then)", e->m, u && u->source ? u->source : "the universe file");
+	else if (u && u->has_missing)
 		snprintf(buf, len, "%zu securities from %s, gaps kept, pairwise-complete covariances%s", e->m,
 			 u->source ? u->source : "the universe file",
 			 src->psd.repaired ? " repaired to the nearest positive semi-definite matrix" : "");
@@ -419,7 +437,7 @@ static int build_report(struct hc_enough *e, const struct hc_source *src,
 	struct report *r = hc_report_alloc();
 
 	if (!r || add_fields(r, e, src) || (src && hc_strata_use_report(r, opt->strata)) ||
-	    hc_rules_report(r, e->rules, e->nrules, err) || add_policy(r, e, src, opt) || add_notes(r, e)) {
+	    hc_rules_report(r, e->rules, e->nrules, err) || add_policy(r, e, src, opt) || add_notes(r, e, src)) {
 		hc_report_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory building the report");
 	}
@@ -640,6 +658,99 @@ static int run_series(struct hc_enough *e, const struct hc_source *src, const st
 	return rc;
 }
 
+/* A ragged history (HC_SOURCE_RAGGED): every exact rule on the per-period
+ * curve (periodic.h), band and lag-share from ragged random portfolios in
+ * stages, the interval of the exact rules from O(T) replicates and, with
+ * bootstrap_sampled, of the sampled ones from re-summed replicates. */
+static int run_ragged(struct hc_enough *e, const struct hc_source *src, const struct moments *mo,
+		      const struct hc_enough_options *opt, struct hc_error *err)
+{
+	const struct hc_periodic *p = src->per;
+	const struct rules_config *cfg = &opt->rules;
+	struct bootstrap_options bo;
+	struct sampler_options so;
+	struct rule_result sr[3];
+	char what[96];
+	size_t j, k;
+	int rc = HC_OK;
+
+	e->seed = opt->seed;
+	if ((rc = evaluate(e, mo, opt, err)))
+		return rc;
+	for (j = 0; j < e->nrules && rc == HC_OK; j++) {
+		struct rule_result *r = &e->rules[j];
+
+		if (RULES_FLAG(r->rule) & RULES_EXACT_MASK)
+			rc = hc_periodic_rule(cfg, r->rule, &p->curve, src->periods_per_year, r, err);
+		else if (r->rule == RULES_ALEXEEV_TAPON || r->rule == RULES_ALEXEEV_TAPON_SAMPLED) {
+			/* Neither the exact spread nor ragged sampling of this
+			 * rule exists period by period. */
+			r->defined = r->met = 0;
+			r->count = 0;
+			r->value = NAN;
+			snprintf(r->note, sizeof r->note, "not available for a history read period by period (ragged); "
+				 "--missing complete or pairwise gives it");
+		}
+	}
+	if (rc)
+		return rc;
+	hc_sampler_options_init(&so);
+	so.paths = opt->paths;
+	so.seed = opt->seed;
+	so.threads = opt->threads;
+	so.periods_per_year = src->periods_per_year;
+	if (cfg->selected & RULES_SAMPLED_MASK) {
+		hc_progress_begin(&opt->progress, "sampling random portfolios for the band and lag-share rules",
+				  "sampling", "paths");
+		so.progress = opt->progress.update;
+		so.progress_ctx = opt->progress.ctx;
+		rc = hc_periodic_rules_sampled(cfg, p, src->u, &so, sr, &e->sampled_sizes, err);
+		hc_progress_end(&opt->progress);
+		if (rc)
+			return rc;
+		for (k = 0; k < 2; k++)
+			for (j = 0; j < e->nrules; j++)
+				if (e->rules[j].rule == (k == 0 ? RULES_BAND : RULES_LAG_SHARE) &&
+				    (cfg->selected & RULES_FLAG(e->rules[j].rule)))
+					e->rules[j] = sr[k];
+		e->paths = opt->paths;
+	}
+	if (opt->bootstrap == 0) {
+		e->no_interval = "no interval: --bootstrap 0";
+		return HC_OK;
+	}
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = opt->bootstrap;
+	bo.kind = opt->bootstrap_kind;
+	bo.block_length = opt->block_length;
+	bo.seed = opt->seed;
+	bo.threads = opt->threads;
+	snprintf(what, sizeof what, "bootstrap of the exact rules (%zu replicates)", opt->bootstrap);
+	hc_progress_begin(&opt->progress, what, "bootstrap", "replicates");
+	bo.progress = opt->progress.update;
+	bo.progress_ctx = opt->progress.ctx;
+	rc = hc_periodic_bootstrap(cfg, p, &bo, src->periods_per_year, e->rules, e->nrules, err);
+	hc_progress_end(&opt->progress);
+	if (rc)
+		return rc;
+	e->bootstrapped = 1;
+	e->replicates = bo.replicates;
+	e->block_length = bo.block_length ? bo.block_length : hc_bootstrap_default_block_length(p->t);
+	e->kind = bo.kind;
+	e->interval = HC_ENOUGH_INTERVAL_PERCENTILE;   /* the ragged replicates' percentiles only */
+	if (opt->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
+		so.paths = opt->bootstrap_paths;
+		so.progress = NULL;
+		hc_progress_begin(&opt->progress, "bootstrap of the sampled rules", "sampled bootstrap", "replicates");
+		bo.progress = opt->progress.update;
+		bo.progress_ctx = opt->progress.ctx;
+		rc = hc_periodic_bootstrap_sampled(cfg, src->u, &bo, &so, e->rules, e->nrules, err);
+		hc_progress_end(&opt->progress);
+		e->sampled_bootstrapped = rc == HC_OK;
+	}
+	return rc;
+}
+
 static int check(const struct hc_source *src, const struct hc_enough_options *opt, struct hc_error *err)
 {
 	const struct rules_config *cfg = &opt->rules;
@@ -655,7 +766,10 @@ static int check(const struct hc_source *src, const struct hc_enough_options *op
 					"portfolio's returns over the periods, and a covariance matrix has none");
 		if (strata_given(opt))
 			return hc_error(err, HC_EUSAGE, "--strata draws from return series, not from a covariance matrix");
-	} else if (src->u->has_missing && strata_given(opt))
+	} else if (src->kind == HC_SOURCE_RAGGED && strata_given(opt))
+		return hc_error(err, HC_EUSAGE, "--strata draws from complete return series, and '%s' has gaps: "
+				"--missing complete keeps only the securities with none", src->name ? src->name : "");
+	else if (src->u->has_missing && strata_given(opt))
 		return hc_error(err, HC_EUSAGE, "--strata draws from complete return series, and '%s' has gaps "
 				"under --missing pairwise", src->name ? src->name : "");
 	return HC_OK;
@@ -683,7 +797,8 @@ int hc_enough_run(struct hc_enough **out, const struct hc_source *src,
 	e->m = mo.m;
 	e->periods_per_year = src->periods_per_year;
 	e->annualised = src->annualised;
-	rc = src->kind == HC_SOURCE_MATRIX ? run_matrix(e, src, &mo, opt, err) : run_series(e, src, &mo, opt, err);
+	rc = src->kind == HC_SOURCE_MATRIX ? run_matrix(e, src, &mo, opt, err)
+	     : src->kind == HC_SOURCE_RAGGED ? run_ragged(e, src, &mo, opt, err) : run_series(e, src, &mo, opt, err);
 	if (rc == HC_OK)
 		rc = build_report(e, src, opt, err);
 	if (rc) {

@@ -1,11 +1,12 @@
 /*
- * holdings.c - funds' holdings from CSV, through csvread.
+ * holdings.c - funds' holdings from CSV, through csvread (libcsv).
  *
  * Rows are streamed: the header fixes which column is which, each data row
  * is checked where it stands (so messages carry its line and column) and
- * appended to its fund.  Checks that need a whole fund (duplicate ids, all
- * weights zero, the weight sum) run once the file is read, and still name the
- * line of the offending row.
+ * kept with its amount's text.  The amounts are parsed once the file is read,
+ * when the delimiter is known (a ';' file may use decimal commas).  Checks
+ * that need a whole fund (repeated ids, all weights zero, the totals) run
+ * then, and still name the line of the offending row.
  */
 #include "holdcount/holdings.h"
 
@@ -18,14 +19,19 @@
 #include "holdcount/csvread.h"
 #include "holdcount/memory.h"
 
-enum { COL_FUND, COL_ID, COL_WEIGHT, COL_ISSUER, NCOLS };
+enum { COL_FUND, COL_ID, COL_WEIGHT, COL_ISSUER, COL_TYPE, COL_GROUP, NCOLS };
 
 struct row {
 	size_t fund;
 	char *id;
 	char *issuer;
+	char *group;
+	char *amount;               /* the weight or value cell as read */
+	int type;
 	double raw;
 	size_t line;
+	size_t amount_line;
+	size_t rows;                /* rows summed into this one; 0 = merged away */
 };
 
 struct reader {
@@ -43,6 +49,7 @@ struct reader {
 	size_t nrows, cap_rows;
 	size_t cap_funds;
 	size_t last_fund;           /* cache: rows of one fund are usually adjacent */
+	char delimiter;             /* the file's, once read */
 };
 
 void hc_holdings_options_init(struct holdings_options *opt)
@@ -76,6 +83,238 @@ static int name_is(const char *s, const char *name)
 	return 1;
 }
 
+/* ---- types, encodings, amounts ---- */
+
+static const char *const type_names[HOLDING_NTYPES] = {
+	"security", "cash and cash equivalents", "government security",
+	"investment-company share", "other"
+};
+
+const char *hc_holding_type_name(int type)
+{
+	return type >= 0 && type < HOLDING_NTYPES ? type_names[type] : NULL;
+}
+
+int hc_holding_type_parse(const char *s, int *type)
+{
+	static const struct { const char *word; int type; } words[] = {
+		{ "", HOLDING_SECURITY }, { "security", HOLDING_SECURITY },
+		{ "cash", HOLDING_CASH }, { "cash and cash equivalents", HOLDING_CASH },
+		{ "cash equivalent", HOLDING_CASH }, { "cash equivalents", HOLDING_CASH },
+		{ "government security", HOLDING_GOVERNMENT }, { "government", HOLDING_GOVERNMENT },
+		{ "government securities", HOLDING_GOVERNMENT },
+		{ "investment-company share", HOLDING_FUND_SHARE }, { "investment company share", HOLDING_FUND_SHARE },
+		{ "investment company", HOLDING_FUND_SHARE }, { "fund share", HOLDING_FUND_SHARE },
+		{ "other", HOLDING_OTHER },
+	};
+	size_t k;
+
+	for (k = 0; k < sizeof words / sizeof words[0]; k++)
+		if (name_is(s, words[k].word)) {
+			*type = words[k].type;
+			return 0;
+		}
+	return -1;
+}
+
+int hc_holdings_parse_encoding(const char *s, int *encoding)
+{
+	if (name_is(s, "utf-8") || name_is(s, "utf8"))
+		*encoding = HOLDINGS_UTF8;
+	else if (name_is(s, "latin-1") || name_is(s, "latin1") || name_is(s, "iso-8859-1"))
+		*encoding = HOLDINGS_LATIN1;
+	else if (name_is(s, "windows-1252") || name_is(s, "cp1252"))
+		*encoding = HOLDINGS_WINDOWS1252;
+	else
+		return -1;
+	return 0;
+}
+
+static int digit(char c)
+{
+	return c >= '0' && c <= '9';
+}
+
+/* Remove thousands separators sep from t[0..n) in place, checking that the
+ * digits before the decimal mark dec come in groups of three after a first
+ * group of one to three.  Returns the new length, or (size_t)-1. */
+static size_t ungroup(char *t, size_t n, char sep, char dec)
+{
+	size_t i = 0, o = 0, run = 0, groups = 0;
+
+	while (i < n && digit(t[i])) {
+		run++;
+		t[o++] = t[i++];
+		if (i < n && t[i] == sep) {
+			if (run == 0 || (groups ? run != 3 : run > 3))
+				return (size_t)-1;
+			groups++;
+			run = 0;
+			i++;
+			if (i == n || !digit(t[i]))
+				return (size_t)-1;
+		}
+	}
+	if (groups && run != 3)
+		return (size_t)-1;
+	for (; i < n; i++) {
+		if (t[i] == sep)
+			return (size_t)-1;
+		t[o++] = t[i] == dec ? '.' : t[i];
+	}
+	return o;
+}
+
+int hc_holdings_parse_amount(const char *s, size_t len, char delimiter, double *value,
+			     int *had_percent)
+{
+	char t[128];
+	size_t i = 0, end = len, n, k, commas = 0, dots = 0, last_comma = 0, last_dot = 0;
+	int paren = 0, neg = 0, pct = 0;
+	char sep = 0, dec = '.';
+
+	while (i < end && (s[i] == ' ' || s[i] == '\t'))
+		i++;
+	while (end > i && (s[end - 1] == ' ' || s[end - 1] == '\t'))
+		end--;
+	if (end - i >= 2 && s[i] == '(' && s[end - 1] == ')') {
+		paren = 1;
+		i++;
+		end--;
+	}
+	if (end - i >= sizeof t)
+		return -1;
+	memcpy(t, s + i, end - i);
+	n = end - i;
+	t[n] = '\0';
+	for (k = 0; k < n; k++) {
+		if (t[k] == ',') {
+			commas++;
+			last_comma = k;
+		} else if (t[k] == '.') {
+			dots++;
+			last_dot = k;
+		}
+	}
+	if (commas && dots) {
+		/* both marks: the last one is the decimal mark */
+		sep = last_comma > last_dot ? '.' : ',';
+		dec = last_comma > last_dot ? ',' : '.';
+	} else if (commas) {
+		/* "12,5" in a ';' file is a decimal comma; "1,234" in a ',' file
+		 * (quoted) is a thousands separator */
+		if (delimiter == ';' && commas == 1)
+			dec = ',';
+		else
+			sep = ',';
+	} else if (dots > 1)
+		sep = '.';
+	if (paren || (n && (t[0] == '-' || t[0] == '+'))) {
+		size_t skip = (!paren && (t[0] == '-' || t[0] == '+')) ? 1 : 0;
+		neg = paren || t[0] == '-';
+		if (paren && n && (t[0] == '-' || t[0] == '+'))
+			return -1;          /* "(-5)" says negative twice */
+		memmove(t, t + skip, n - skip + 1);
+		n -= skip;
+	}
+	if (sep || dec != '.') {
+		n = ungroup(t, n, sep ? sep : '\x01', dec);
+		if (n == (size_t)-1)
+			return -1;
+		t[n] = '\0';
+	}
+	if (hc_csvread_parse_number(t, n, value, &pct) != 0 || t[0] == '-' || t[0] == '+')
+		return -1;
+	if (neg)
+		*value = -*value;
+	if (had_percent)
+		*had_percent = pct;
+	return 0;
+}
+
+/* Windows-1252's 0x80-0x9F as Unicode code points; 0 where it has none. */
+static const unsigned short cp1252_high[32] = {
+	0x20AC, 0, 0x201A, 0x0192, 0x201E, 0x2026, 0x2020, 0x2021,
+	0x02C6, 0x2030, 0x0160, 0x2039, 0x0152, 0, 0x017D, 0,
+	0, 0x2018, 0x2019, 0x201C, 0x201D, 0x2022, 0x2013, 0x2014,
+	0x02DC, 0x2122, 0x0161, 0x203A, 0x0153, 0, 0x017E, 0x0178
+};
+
+/* The first byte offset at which s[0..len) stops being valid UTF-8. */
+static size_t utf8_bad_offset(const char *s, size_t len)
+{
+	size_t lo = 0;
+
+	/* hc_csvread_utf8_valid has the exact rules (overlongs, surrogates);
+	 * find the offending sequence by growing the valid prefix. */
+	while (lo < len) {
+		size_t step = 1;
+		unsigned char c = (unsigned char)s[lo];
+		if (c >= 0xF0)
+			step = 4;
+		else if (c >= 0xE0)
+			step = 3;
+		else if (c >= 0xC0)
+			step = 2;
+		if (lo + step > len || !hc_csvread_utf8_valid(s + lo, step))
+			return lo;
+		lo += step;
+	}
+	return len;
+}
+
+/* The cell as UTF-8 in a new string (*out), from the file's encoding. */
+static int cell_text(struct reader *rd, const struct csvread_field *f, char **out,
+		     struct hc_error *err)
+{
+	const unsigned char *s = (const unsigned char *)f->text;
+	char *o;
+	size_t k, n = 0;
+
+	*out = NULL;
+	if (rd->opt->encoding == HOLDINGS_UTF8) {
+		if (!hc_csvread_utf8_valid(f->text, f->len)) {
+			size_t at = utf8_bad_offset(f->text, f->len);
+			return hc_error(err, HC_EDATA, "%s:%zu:%zu: found byte 0x%02X at byte %zu of the cell, which is not "
+					"UTF-8; expected UTF-8 text (a Latin-1 or Windows-1252 file needs "
+					"--holdings-encoding latin-1 or windows-1252)",
+					rd->name, f->line, f->column, s[at], at + 1);
+		}
+		*out = hc_strndup(f->text, f->len);
+		goto done;
+	}
+	if (!(o = hc_mallocarray(f->len + 1, 3)))
+		goto done;
+	for (k = 0; k < f->len; k++) {
+		unsigned cp = s[k];
+		if (cp >= 0x80 && cp < 0xA0 && rd->opt->encoding == HOLDINGS_WINDOWS1252) {
+			cp = cp1252_high[cp - 0x80];
+			if (!cp) {
+				hc_free(o);
+				return hc_error(err, HC_EDATA, "%s:%zu:%zu: found byte 0x%02X at byte %zu of the cell, which "
+						"Windows-1252 leaves undefined; expected Windows-1252 text",
+						rd->name, f->line, f->column, s[k], k + 1);
+			}
+		}
+		if (cp < 0x80)
+			o[n++] = (char)cp;
+		else if (cp < 0x800) {
+			o[n++] = (char)(0xC0 | (cp >> 6));
+			o[n++] = (char)(0x80 | (cp & 0x3F));
+		} else {
+			o[n++] = (char)(0xE0 | (cp >> 12));
+			o[n++] = (char)(0x80 | ((cp >> 6) & 0x3F));
+			o[n++] = (char)(0x80 | (cp & 0x3F));
+		}
+	}
+	o[n] = '\0';
+	*out = o;
+done:
+	return *out ? HC_OK : hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+}
+
+/* ---- the header ---- */
+
 static int header_field(struct reader *rd, const struct csvread_field *f,
 			struct hc_error *err)
 {
@@ -83,13 +322,19 @@ static int header_field(struct reader *rd, const struct csvread_field *f,
 	const char *fund = o->fund_column ? o->fund_column : "fund";
 	const char *id = o->id_column ? o->id_column : "id";
 	const char *issuer = o->issuer_column ? o->issuer_column : "issuer";
+	const char *type = o->type_column ? o->type_column : "type";
+	const char *group = o->group_column ? o->group_column : "group";
 
-	if (!rd->col[COL_FUND] && name_is(f->text, fund))
+	if (!rd->col[COL_FUND] && !o->single_fund && name_is(f->text, fund))
 		rd->col[COL_FUND] = f->column;
 	else if (!rd->col[COL_ID] && name_is(f->text, id))
 		rd->col[COL_ID] = f->column;
 	else if (!rd->col[COL_ISSUER] && name_is(f->text, issuer))
 		rd->col[COL_ISSUER] = f->column;
+	else if (!rd->col[COL_TYPE] && name_is(f->text, type))
+		rd->col[COL_TYPE] = f->column;
+	else if (!rd->col[COL_GROUP] && name_is(f->text, group))
+		rd->col[COL_GROUP] = f->column;
 	else if (!rd->col[COL_WEIGHT]) {
 		/* A named column is the only one accepted; with neither named,
 		 * "weight" is preferred and "value" taken otherwise. */
@@ -126,12 +371,12 @@ static int header_done(struct reader *rd, size_t nfields, size_t line,
 	const struct holdings_options *o = rd->opt;
 
 	rd->header_fields = nfields;
-	if (!rd->col[COL_FUND])
+	if (!rd->col[COL_FUND] && !o->single_fund)
 		return hc_error(err, HC_EDATA, "%s:%zu: no '%s' column in the header; expected fund,id,weight",
 				rd->name, line, o->fund_column ? o->fund_column : "fund");
 	if (!rd->col[COL_ID])
-		return hc_error(err, HC_EDATA, "%s:%zu: no '%s' column in the header; expected fund,id,weight",
-				rd->name, line, o->id_column ? o->id_column : "id");
+		return hc_error(err, HC_EDATA, "%s:%zu: no '%s' column in the header; expected %sid,weight",
+				rd->name, line, o->id_column ? o->id_column : "id", o->single_fund ? "" : "fund,");
 	if (!rd->col[COL_WEIGHT]) {
 		if (o->weight_column || o->value_column)
 			return hc_error(err, HC_EDATA, "%s:%zu: no '%s' column in the header",
@@ -139,7 +384,13 @@ static int header_done(struct reader *rd, size_t nfields, size_t line,
 		return hc_error(err, HC_EDATA, "%s:%zu: no 'weight' or 'value' column in the header; expected fund,id,weight or fund,id,value",
 				rd->name, line);
 	}
+	if (o->type_column && !rd->col[COL_TYPE])
+		return hc_error(err, HC_EDATA, "%s:%zu: no '%s' column in the header", rd->name, line, o->type_column);
+	if (o->group_column && !rd->col[COL_GROUP])
+		return hc_error(err, HC_EDATA, "%s:%zu: no '%s' column in the header", rd->name, line, o->group_column);
 	rd->h->has_issuer = rd->col[COL_ISSUER] != 0;
+	rd->h->has_type = rd->col[COL_TYPE] != 0;
+	rd->h->has_group = rd->col[COL_GROUP] != 0;
 	rd->h->id_column = rd->col[COL_ID];
 	rd->h->weight_column = rd->col[COL_WEIGHT];
 	return HC_OK;
@@ -148,17 +399,21 @@ static int header_done(struct reader *rd, size_t nfields, size_t line,
 static int on_field(void *ctx, const struct csvread_field *f, struct hc_error *err)
 {
 	struct reader *rd = ctx;
-	int k;
+	int k, rc;
 
-	if (f->record == 0)
+	if (f->record == 0) {
+		if (rd->opt->encoding == HOLDINGS_UTF8 && !hc_csvread_utf8_valid(f->text, f->len))
+			return hc_error(err, HC_EDATA, "%s:%zu:%zu: the header cell is not UTF-8; expected UTF-8 text "
+					"(or --holdings-encoding latin-1 or windows-1252)", rd->name, f->line, f->column);
 		return header_field(rd, f, err);
+	}
 	for (k = 0; k < NCOLS; k++) {
 		if (rd->col[k] != f->column)
 			continue;
 		hc_free(rd->cell[k]);
-		rd->cell[k] = hc_strndup(f->text, f->len);
-		if (!rd->cell[k])
-			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+		rd->cell[k] = NULL;
+		if ((rc = cell_text(rd, f, &rd->cell[k], err)) != HC_OK)
+			return rc;
 		rd->cell_line[k] = f->line;
 	}
 	return HC_OK;
@@ -204,8 +459,13 @@ static int fund_index(struct reader *rd, const char *name, size_t line,
 	}
 	memset(&h->funds[h->nfunds], 0, sizeof h->funds[0]);
 	h->funds[h->nfunds].name = hc_strdup(name);
-	if (!h->funds[h->nfunds].name)
+	h->funds[h->nfunds].source = hc_strdup(rd->name);
+	h->funds[h->nfunds].id_column = rd->col[COL_ID];
+	if (!h->funds[h->nfunds].name || !h->funds[h->nfunds].source) {
+		hc_free(h->funds[h->nfunds].name);
+		hc_free(h->funds[h->nfunds].source);
 		goto nomem;
+	}
 	h->funds[h->nfunds].first_line = line;
 	*index = rd->last_fund = h->nfunds++;
 	return HC_OK;
@@ -222,36 +482,41 @@ static int blank(const char *s)
 	return 1;
 }
 
-static int row_check(struct reader *rd, size_t nfields, size_t line,
-		     double *raw, struct hc_error *err)
+static int row_check(struct reader *rd, size_t nfields, size_t line, int *type,
+		     struct hc_error *err)
 {
-	const char *w = rd->cell[COL_WEIGHT];
-	int percent = 0;
-
 	if (nfields != rd->header_fields)
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found %zu fields, expected %zu as in the header",
 				rd->name, line, nfields < rd->header_fields ? nfields + 1 : rd->header_fields + 1,
 				nfields, rd->header_fields);
-	if (!rd->cell[COL_FUND] || !rd->cell[COL_ID] || !w)
+	if ((!rd->opt->single_fund && !rd->cell[COL_FUND]) || !rd->cell[COL_ID] || !rd->cell[COL_WEIGHT])
 		return hc_error(err, HC_EINTERNAL, "%s:%zu: a cell of the row was not seen", rd->name, line);
-	if (blank(rd->cell[COL_FUND]))
+	if (!rd->opt->single_fund && blank(rd->cell[COL_FUND]))
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: empty fund name, expected the fund the position belongs to",
 				rd->name, rd->cell_line[COL_FUND], rd->col[COL_FUND]);
 	if (blank(rd->cell[COL_ID]))
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: empty security id, expected an id",
 				rd->name, rd->cell_line[COL_ID], rd->col[COL_ID]);
-	if (rd->col[COL_ISSUER] && blank(rd->cell[COL_ISSUER]))
-		return hc_error(err, HC_EDATA, "%s:%zu:%zu: empty issuer, expected an issuer name (or leave out the issuer column)",
-				rd->name, rd->cell_line[COL_ISSUER], rd->col[COL_ISSUER]);
-	if (hc_csvread_parse_number(w, strlen(w), raw, &percent) != 0)
-		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found '%s', expected a number (%s)",
-				rd->name, rd->cell_line[COL_WEIGHT], rd->col[COL_WEIGHT], w,
-				rd->h->kind == HOLDINGS_VALUES ? "a market value" : "a weight such as 0.052 or 5.2%");
-	if (*raw < 0 && !rd->opt->allow_short)
-		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found negative %s '%s', expected zero or more (short positions need --allow-short)",
-				rd->name, rd->cell_line[COL_WEIGHT], rd->col[COL_WEIGHT],
-				rd->weight_name, w);
+	*type = HOLDING_SECURITY;
+	if (rd->col[COL_TYPE] && hc_holding_type_parse(rd->cell[COL_TYPE], type) != 0) {
+		char q[CSVREAD_QUOTE_BUF];
+		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found type '%s', expected security, cash, government security, "
+				"investment-company share or other",
+				rd->name, rd->cell_line[COL_TYPE], rd->col[COL_TYPE],
+				hc_csvread_quote(rd->cell[COL_TYPE], strlen(rd->cell[COL_TYPE]), q));
+	}
 	return HC_OK;
+}
+
+/* Take the cell of column k out of the reader: NULL when absent or blank. */
+static char *take(struct reader *rd, int k)
+{
+	char *s = rd->cell[k];
+
+	if (!rd->col[k] || !s || blank(s))
+		return NULL;
+	rd->cell[k] = NULL;
+	return s;
 }
 
 static int on_record(void *ctx, size_t record, size_t nfields, size_t line,
@@ -259,21 +524,16 @@ static int on_record(void *ctx, size_t record, size_t nfields, size_t line,
 {
 	struct reader *rd = ctx;
 	struct row *r;
-	double raw;
 	size_t fund;
-	int rc;
+	int rc, type;
 
 	if (record == 0)
 		return header_done(rd, nfields, line, err);
-	if ((rc = row_check(rd, nfields, line, &raw, err)) != HC_OK)
+	if ((rc = row_check(rd, nfields, line, &type, err)) != HC_OK)
 		return rc;
-	if ((rc = fund_index(rd, rd->cell[COL_FUND], line, &fund, err)) != HC_OK)
+	if ((rc = fund_index(rd, rd->opt->single_fund ? rd->opt->single_fund : rd->cell[COL_FUND],
+			     line, &fund, err)) != HC_OK)
 		return rc;
-	if (raw == 0) {
-		rd->h->funds[fund].zero_rows++;
-		cells_clear(rd);
-		return HC_OK;
-	}
 	if (rd->nrows == rd->cap_rows) {
 		size_t cap = rd->cap_rows ? 2 * rd->cap_rows : 64;
 		struct row *p = hc_reallocarray(rd->rows, cap, sizeof *p);
@@ -283,69 +543,19 @@ static int on_record(void *ctx, size_t record, size_t nfields, size_t line,
 		rd->cap_rows = cap;
 	}
 	r = &rd->rows[rd->nrows++];
+	memset(r, 0, sizeof *r);
 	r->fund = fund;
-	r->raw = raw;
+	r->type = type;
 	r->line = line;
-	r->id = rd->cell[COL_ID];
-	rd->cell[COL_ID] = NULL;
-	r->issuer = NULL;
-	if (rd->col[COL_ISSUER]) {
-		r->issuer = rd->cell[COL_ISSUER];
-		rd->cell[COL_ISSUER] = NULL;
-	}
+	r->rows = 1;
+	r->amount_line = rd->cell_line[COL_WEIGHT];
+	r->id = take(rd, COL_ID);
+	r->amount = rd->cell[COL_WEIGHT];
+	rd->cell[COL_WEIGHT] = NULL;
+	r->issuer = take(rd, COL_ISSUER);
+	r->group = take(rd, COL_GROUP);
 	cells_clear(rd);
 	return HC_OK;
-}
-
-/* A sort key for one row; qsort has no context argument in C11, so the key
- * carries what the comparison needs. */
-struct row_key {
-	size_t fund;
-	const char *id;
-	size_t line;
-};
-
-static int cmp_row_key(const void *a, const void *b)
-{
-	const struct row_key *x = a, *y = b;
-	int c;
-
-	if (x->fund != y->fund)
-		return x->fund < y->fund ? -1 : 1;
-	if ((c = strcmp(x->id, y->id)) != 0)
-		return c;
-	return x->line < y->line ? -1 : (x->line > y->line);
-}
-
-/* Duplicate ids within a fund: sort (fund, id, line) and compare neighbours.
- * Of all duplicates the one reported is the repeat on the smallest line,
- * where a reader of the file would look first. */
-static int check_duplicates(struct reader *rd, struct hc_error *err)
-{
-	struct row_key *key;
-	size_t k, best = (size_t)-1;
-
-	if (rd->nrows < 2)
-		return HC_OK;
-	key = hc_calloc(rd->nrows, sizeof *key);
-	if (!key)
-		return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
-	for (k = 0; k < rd->nrows; k++) {
-		key[k].fund = rd->rows[k].fund;
-		key[k].id = rd->rows[k].id;
-		key[k].line = rd->rows[k].line;
-	}
-	qsort(key, rd->nrows, sizeof *key, cmp_row_key);
-	for (k = 1; k < rd->nrows; k++)
-		if (key[k - 1].fund == key[k].fund && strcmp(key[k - 1].id, key[k].id) == 0 &&
-		    (best == (size_t)-1 || key[k].line < key[best].line))
-			best = k;
-	if (best != (size_t)-1)
-		hc_error(err, HC_EDATA, "%s:%zu:%zu: duplicate id '%s' in fund '%s' (also at line %zu), expected each id once per fund",
-			 rd->name, key[best].line, rd->col[COL_ID], key[best].id,
-			 rd->h->funds[key[best].fund].name, key[best - 1].line);
-	hc_free(key);
-	return best == (size_t)-1 ? HC_OK : HC_EDATA;
 }
 
 static int add_warning(struct holdings *h, struct hc_error *err, const char *fmt, ...)
@@ -370,6 +580,102 @@ static int add_warning(struct holdings *h, struct hc_error *err, const char *fmt
 	return HC_OK;
 }
 
+/* Parse every row's amount now that the delimiter is known. */
+static int parse_amounts(struct reader *rd, struct hc_error *err)
+{
+	size_t k;
+
+	for (k = 0; k < rd->nrows; k++) {
+		struct row *r = &rd->rows[k];
+		char q[CSVREAD_QUOTE_BUF];
+		int percent = 0;
+		if (hc_holdings_parse_amount(r->amount, strlen(r->amount), rd->delimiter, &r->raw, &percent) != 0)
+			return hc_error(err, HC_EDATA, "%s:%zu:%zu: found '%s', expected a number (%s)",
+					rd->name, r->amount_line, rd->col[COL_WEIGHT],
+					hc_csvread_quote(r->amount, strlen(r->amount), q),
+					rd->h->kind == HOLDINGS_VALUES ? "a market value such as 125000.00, \"1,250,000.00\" or (1,250.00)"
+								       : "a weight such as 0.052 or 5.2%");
+		if (r->raw < 0 && !rd->opt->allow_short)
+			return hc_error(err, HC_EDATA, "%s:%zu:%zu: found negative %s '%s', expected zero or more (short positions need --allow-short)",
+					rd->name, r->amount_line, rd->col[COL_WEIGHT], rd->weight_name,
+					hc_csvread_quote(r->amount, strlen(r->amount), q));
+	}
+	return HC_OK;
+}
+
+/* A sort key for one row; qsort has no context argument in C11, so the key
+ * carries what the comparison needs. */
+struct row_key {
+	size_t fund;
+	const char *id;
+	size_t line;
+	size_t index;
+};
+
+static int cmp_row_key(const void *a, const void *b)
+{
+	const struct row_key *x = a, *y = b;
+	int c;
+
+	if (x->fund != y->fund)
+		return x->fund < y->fund ? -1 : 1;
+	if ((c = strcmp(x->id, y->id)) != 0)
+		return c;
+	return x->line < y->line ? -1 : (x->line > y->line);
+}
+
+static int same_text(const char *a, const char *b)
+{
+	return a == b || (a && b && strcmp(a, b) == 0);
+}
+
+/* Repeated (fund, id) rows -- one position split over lots or lines, as
+ * administrators' files often are -- are summed into the first row; they
+ * must agree on issuer, group and type.  One warning per fund. */
+static int merge_repeats(struct reader *rd, struct hc_error *err)
+{
+	struct row_key *key;
+	size_t k, j, *repeats = NULL;
+	int rc = HC_OK;
+
+	if (rd->nrows < 2)
+		return HC_OK;
+	key = hc_calloc(rd->nrows, sizeof *key);
+	repeats = hc_calloc(rd->h->nfunds, sizeof *repeats);
+	if (!key || !repeats) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+		goto cleanup;
+	}
+	for (k = 0; k < rd->nrows; k++)
+		key[k] = (struct row_key){ rd->rows[k].fund, rd->rows[k].id, rd->rows[k].line, k };
+	qsort(key, rd->nrows, sizeof *key, cmp_row_key);
+	for (k = 0; k < rd->nrows; k = j) {
+		struct row *first = &rd->rows[key[k].index];
+		for (j = k + 1; j < rd->nrows && key[j].fund == key[k].fund && strcmp(key[j].id, key[k].id) == 0; j++) {
+			struct row *r = &rd->rows[key[j].index];
+			if (!same_text(r->issuer, first->issuer) || !same_text(r->group, first->group) || r->type != first->type) {
+				rc = hc_error(err, HC_EDATA, "%s:%zu:%zu: id '%s' of fund '%s' repeats line %zu with another issuer, "
+					      "group or type, expected the same (repeated rows of an id are summed)",
+					      rd->name, r->line, rd->col[COL_ID], r->id, rd->h->funds[r->fund].name, first->line);
+				goto cleanup;
+			}
+			first->raw += r->raw;
+			first->rows += r->rows;
+			r->rows = 0;
+			repeats[r->fund]++;
+		}
+	}
+	for (k = 0; k < rd->h->nfunds; k++)
+		if (repeats[k] && (rc = add_warning(rd->h, err, "%s:%zu: fund '%s': %zu repeated row%s of an id summed into one position",
+						    rd->name, rd->h->funds[k].first_line, rd->h->funds[k].name, repeats[k],
+						    repeats[k] == 1 ? "" : "s")) != HC_OK)
+			goto cleanup;
+cleanup:
+	hc_free(key);
+	hc_free(repeats);
+	return rc;
+}
+
 /* Move each row into its fund (file order kept) and normalise. */
 static int build_funds(struct reader *rd, struct hc_error *err)
 {
@@ -377,8 +683,16 @@ static int build_funds(struct reader *rd, struct hc_error *err)
 	size_t k, f;
 	int rc;
 
-	for (k = 0; k < rd->nrows; k++)
-		h->funds[rd->rows[k].fund].n++;
+	for (k = 0; k < rd->nrows; k++) {
+		struct row *r = &rd->rows[k];
+		if (!r->rows)
+			continue;
+		if (r->raw == 0) {
+			h->funds[r->fund].zero_rows++;
+			r->rows = 0;
+		} else
+			h->funds[r->fund].n++;
+	}
 	for (f = 0; f < h->nfunds; f++) {
 		struct holdings_fund *fd = &h->funds[f];
 		if (fd->n == 0)
@@ -396,13 +710,24 @@ static int build_funds(struct reader *rd, struct hc_error *err)
 	for (k = 0; k < rd->nrows; k++) {
 		struct row *r = &rd->rows[k];
 		struct holdings_fund *fd = &h->funds[r->fund];
-		struct holding *hd = &fd->h[fd->n++];
+		struct holding *hd;
+		if (!r->rows)
+			continue;
+		hd = &fd->h[fd->n++];
 		hd->id = r->id;
 		hd->issuer = r->issuer;
+		hd->group = r->group;
+		hd->type = r->type;
 		hd->raw = r->raw;
 		hd->line = r->line;
-		r->id = r->issuer = NULL;
+		hd->rows = r->rows;
+		r->id = r->issuer = r->group = NULL;
 		fd->raw_sum += hd->raw;
+		/* market values near DBL_MAX: refuse a total that is no longer a
+		 * number rather than divide by infinity into weights of 0 */
+		if (!isfinite(fd->raw_sum))
+			return hc_error(err, HC_EDATA, "%s:%zu:%zu: fund '%s': adding this %s makes the fund's total %g, expected a finite total (values too large: give them in thousands or as weights)",
+					rd->name, r->amount_line, rd->col[COL_WEIGHT], fd->name, rd->weight_name, fd->raw_sum);
 	}
 	for (f = 0; f < h->nfunds; f++) {
 		struct holdings_fund *fd = &h->funds[f];
@@ -442,23 +767,26 @@ static void reader_release(struct reader *rd)
 	for (k = 0; k < rd->nrows; k++) {
 		hc_free(rd->rows[k].id);
 		hc_free(rd->rows[k].issuer);
+		hc_free(rd->rows[k].group);
+		hc_free(rd->rows[k].amount);
 	}
 	hc_free(rd->rows);
 }
 
 /* Read the CSV at path, or (path NULL) the buffer data of len bytes named
  * name, with delimiter (0: detect) through handler h: the one reading step
- * of both loaders below. */
+ * of both loaders below.  *used (may be NULL) gets the delimiter. */
 static int read_csv(const char *name, const char *path, const char *data, size_t len,
-		    char delimiter, const struct csvread_handler *h, struct hc_error *err)
+		    char delimiter, const struct csvread_handler *h, char *used,
+		    struct hc_error *err)
 {
 	struct csvread_options copt;
 
 	hc_csvread_options_init(&copt);
 	copt.delimiter = delimiter;
 	if (path)
-		return hc_csvread_file(path, &copt, h, NULL, err);
-	return hc_csvread_buffer(name, data, len, &copt, h, NULL, err);
+		return hc_csvread_file(path, &copt, h, used, err);
+	return hc_csvread_buffer(name, data, len, &copt, h, used, err);
 }
 
 static int load(struct holdings **out, const char *name, const char *path,
@@ -490,7 +818,7 @@ static int load(struct holdings **out, const char *name, const char *path,
 	handler.field = on_field;
 	handler.record = on_record;
 	handler.ctx = &rd;
-	if ((rc = read_csv(name, path, data, len, opt->delimiter, &handler, err)) != HC_OK)
+	if ((rc = read_csv(name, path, data, len, opt->delimiter, &handler, &rd.delimiter, err)) != HC_OK)
 		goto cleanup;
 	if (!rd.header_fields) {
 		rc = hc_error(err, HC_EDATA, "%s: empty file, expected a header fund,id,weight and rows", name);
@@ -501,9 +829,8 @@ static int load(struct holdings **out, const char *name, const char *path,
 			      name, rd.weight_name);
 		goto cleanup;
 	}
-	if ((rc = check_duplicates(&rd, err)) != HC_OK)
-		goto cleanup;
-	if ((rc = build_funds(&rd, err)) != HC_OK)
+	if ((rc = parse_amounts(&rd, err)) != HC_OK || (rc = merge_repeats(&rd, err)) != HC_OK ||
+	    (rc = build_funds(&rd, err)) != HC_OK)
 		goto cleanup;
 	*out = rd.h;
 	rd.h = NULL;
@@ -526,6 +853,52 @@ int hc_holdings_load_buffer(struct holdings **out, const char *name,
 	return load(out, name, NULL, data, len, opt, err);
 }
 
+int hc_holdings_merge(struct holdings *into, struct holdings **from, struct hc_error *err)
+{
+	struct holdings *b = *from;
+	struct holdings_fund *funds;
+	char **warnings, *source;
+	size_t f, g, n;
+
+	for (f = 0; f < b->nfunds; f++)
+		for (g = 0; g < into->nfunds; g++)
+			if (strcmp(b->funds[f].name, into->funds[g].name) == 0)
+				return hc_error(err, HC_EDATA, "%s:%zu: fund '%s' is also in '%s' (line %zu), expected each fund in one holdings file",
+						b->funds[f].source, b->funds[f].first_line, b->funds[f].name,
+						into->funds[g].source, into->funds[g].first_line);
+	n = strlen(into->source) + strlen(b->source) + 3;
+	if (!(source = hc_malloc(n)))
+		return hc_error(err, HC_ENOMEM, "out of memory merging holdings files");
+	snprintf(source, n, "%s, %s", into->source, b->source);
+	funds = hc_reallocarray(into->funds, into->nfunds + b->nfunds, sizeof *funds);
+	if (!funds) {
+		hc_free(source);
+		return hc_error(err, HC_ENOMEM, "out of memory merging holdings files");
+	}
+	into->funds = funds;
+	warnings = hc_reallocarray(into->warnings, into->nwarnings + b->nwarnings + 1, sizeof *warnings);
+	if (!warnings) {
+		hc_free(source);
+		return hc_error(err, HC_ENOMEM, "out of memory merging holdings files");
+	}
+	into->warnings = warnings;
+	memcpy(into->funds + into->nfunds, b->funds, b->nfunds * sizeof *funds);
+	into->nfunds += b->nfunds;
+	memcpy(into->warnings + into->nwarnings, b->warnings, b->nwarnings * sizeof *warnings);
+	into->nwarnings += b->nwarnings;
+	if (into->kind != b->kind)
+		into->kind = HOLDINGS_VALUES;   /* mixed: weight sums are not checked against 1 across files */
+	into->has_issuer |= b->has_issuer;
+	into->has_type |= b->has_type;
+	into->has_group |= b->has_group;
+	hc_free(into->source);
+	into->source = source;
+	b->nfunds = b->nwarnings = 0;
+	hc_holdings_free(b);
+	*from = NULL;
+	return HC_OK;
+}
+
 void hc_holdings_free(struct holdings *h)
 {
 	size_t f, k;
@@ -536,9 +909,11 @@ void hc_holdings_free(struct holdings *h)
 		for (k = 0; h->funds[f].h && k < h->funds[f].n; k++) {
 			hc_free(h->funds[f].h[k].id);
 			hc_free(h->funds[f].h[k].issuer);
+			hc_free(h->funds[f].h[k].group);
 		}
 		hc_free(h->funds[f].h);
 		hc_free(h->funds[f].name);
+		hc_free(h->funds[f].source);
 	}
 	hc_free(h->funds);
 	for (k = 0; k < h->nwarnings; k++)
@@ -565,6 +940,9 @@ static int label_field(void *ctx, const struct csvread_field *f, struct hc_error
 
 	if (f->record == 0 || f->column > 2)
 		return HC_OK;
+	if (!hc_csvread_utf8_valid(f->text, f->len))
+		return hc_error(err, HC_EDATA, "%s:%zu:%zu: the cell is not UTF-8, expected UTF-8 text",
+				lr->name, f->line, f->column);
 	hc_free(lr->cell[f->column - 1]);
 	lr->cell[f->column - 1] = hc_strndup(f->text, f->len);
 	lr->line[f->column - 1] = f->line;
@@ -675,7 +1053,7 @@ static int labels_load(struct holdings_labels **out, const char *name,
 	handler.field = label_field;
 	handler.record = label_record;
 	handler.ctx = &lr;
-	if ((rc = read_csv(name, path, data, len, delimiter, &handler, err)) != HC_OK)
+	if ((rc = read_csv(name, path, data, len, delimiter, &handler, NULL, err)) != HC_OK)
 		goto cleanup;
 	if (lr.l->n == 0) {
 		rc = hc_error(err, HC_EDATA, "%s: no rows after the header, expected id,label rows", name);

@@ -564,8 +564,8 @@ static void funds_yrange(const struct plots_input *in, struct funds_layout *F)
 			continue;
 		lo = fmin(lo, 100.0 * f->sd);
 		hi = fmax(hi, 100.0 * f->sd);
-		hi = fmax(hi, exact_sd_pct(in->exact, f->holdings));   /* NaN past M: fmax keeps hi */
-		v = sampled_p95_at(in->sampled, (double)f->holdings);
+		hi = fmax(hi, exact_sd_pct(in->exact, f->risk_holdings));   /* NaN past M: fmax keeps hi */
+		v = sampled_p95_at(in->sampled, (double)f->risk_holdings);
 		if (isfinite(v))
 			hi = fmax(hi, v);
 	}
@@ -603,7 +603,7 @@ static struct plotlayout_rect funds_key_rect(const struct funds_layout *F)
 	int entries = 3 + F->any_pass + F->any_fail;
 
 	r.x1 = FRAME_RIGHT * PLOTS_WIDTH - 2.0;
-	r.x0 = r.x1 - hc_plotlayout_text_px("fund failing the policy, at its number of holdings", KEY_POINTS) - 75.0;
+	r.x0 = r.x1 - hc_plotlayout_text_px("fund failing the policy, at the holdings its risk uses", KEY_POINTS) - 75.0;
 	r.y1 = FRAME_TOP * PLOTS_HEIGHT - 2.0;
 	r.y0 = r.y1 - entries * 1.25 * 17.0 - 12.0;
 	return r;
@@ -632,7 +632,7 @@ static void funds_key_room(const struct plots_input *in, struct funds_layout *F)
 			top = fmax(top, 100.0 * p->sd_p95);
 	}
 	for (i = 0; i < in->audit->nfunds; i++)
-		if (fund_plottable(&in->audit->funds[i]) && (double)in->audit->funds[i].holdings >= from)
+		if (fund_plottable(&in->audit->funds[i]) && (double)in->audit->funds[i].risk_holdings >= from)
 			top = fmax(top, 100.0 * in->audit->funds[i].sd);
 	if (isfinite(top) && h > k + 8.0)
 		F->ymax = fmax(F->ymax, F->ymin + (top - F->ymin) * h / (h - k - 8.0) + 0.02 * (F->ymax - F->ymin));
@@ -644,11 +644,17 @@ static int funds_names(const struct plots_input *in, struct funds_layout *F)
 
 	for (i = 0; i < in->audit->nfunds; i++) {
 		const struct audit_fund *f = &in->audit->funds[i];
-		char name[FUNDS_NAME_MAX - 24];   /* room for " (fails the policy)" */
+		char name[FUNDS_NAME_MAX - 72];   /* room for " (fails the policy)" and the coverage */
+		char cover[56] = "";
 		if (!fund_plottable(f))
 			continue;
 		clean_label(name, sizeof name, f->name);
-		snprintf(F->text + k * FUNDS_NAME_MAX, FUNDS_NAME_MAX, "%s%s", name, f->passed ? "" : " (fails the policy)");
+		/* a fund whose risk rests on part of it says so beside its name */
+		if (f->covered_weight < 1 - 1e-12)
+			snprintf(cover, sizeof cover, " (risk on %.3g%%, %zu of %zu holdings)", 100 * f->covered_weight,
+				 f->risk_holdings, f->holdings);
+		snprintf(F->text + k * FUNDS_NAME_MAX, FUNDS_NAME_MAX, "%s%s%s", name, cover,
+			 f->passed ? "" : " (fails the policy)");
 		F->any_pass |= f->passed != 0;
 		F->any_fail |= f->passed == 0;
 		k++;
@@ -677,7 +683,7 @@ static int funds_layout(const struct plots_input *in, struct funds_layout *F, st
 	F->xmax = (double)in->exact->points[in->exact->npoints - 1].n;
 	for (i = 0; i < in->audit->nfunds; i++)
 		if (fund_plottable(&in->audit->funds[i]))
-			F->xmax = fmax(F->xmax, (double)in->audit->funds[i].holdings);
+			F->xmax = fmax(F->xmax, (double)in->audit->funds[i].risk_holdings);
 	funds_yrange(in, F);
 	F->label_x = hc_calloc(F->n, sizeof *F->label_x);
 	F->label_y = hc_calloc(F->n, sizeof *F->label_y);
@@ -703,7 +709,7 @@ static int funds_layout(const struct plots_input *in, struct funds_layout *F, st
 		if (!fund_plottable(f))
 			continue;
 		y = hc_plotlayout_to_px(&ay, 100.0 * f->sd);
-		xc = hc_plotlayout_to_px(&ax, (double)f->holdings);
+		xc = hc_plotlayout_to_px(&ax, (double)f->risk_holdings);
 		xe = hc_plotlayout_to_px(&ax, f->effective_holdings);
 		boxes[nb++] = (struct plotlayout_rect){ xe - FUNDS_MARKER_PX, y - FUNDS_MARKER_PX, xc + FUNDS_MARKER_PX,
 							y + FUNDS_MARKER_PX };
@@ -719,7 +725,7 @@ static int funds_layout(const struct plots_input *in, struct funds_layout *F, st
 		if (!fund_plottable(f))
 			continue;
 		double y = hc_plotlayout_to_px(&ay, 100.0 * f->sd);
-		nc = funds_candidates(hc_plotlayout_to_px(&ax, (double)f->holdings), hc_plotlayout_to_px(&ax, f->effective_holdings),
+		nc = funds_candidates(hc_plotlayout_to_px(&ax, (double)f->risk_holdings), hc_plotlayout_to_px(&ax, f->effective_holdings),
 				      y, hc_plotlayout_text_px(F->text + k * FUNDS_NAME_MAX, LABEL_POINTS), cand, right);
 		sc.nboxes = nb;
 		pick = hc_plotlayout_choose(cand, nc, &sc);
@@ -860,13 +866,13 @@ static int write_funds(FILE *fp, const struct plots_input *in, struct hc_error *
 		return rc;
 	fprintf(fp, "# holdcount plot data: audited funds, the fund's own sd from the universe's history "
 		"(percent a year), whether it passes the policy, and where its name goes (the anchor, and "
-		"whether the name ends there (1) or starts there (0))\n"
+		"whether the name ends there (1) or starts there (0)); holdings are those its risk figures use\n"
 		"# holdings  effective_holdings  sd  passed  name_x  name_y  name_ends  name\n");
 	for (i = 0; i < in->audit->nfunds; i++) {
 		const struct audit_fund *f = &in->audit->funds[i];
 		if (!fund_plottable(f))
 			continue;
-		fprintf(fp, "%zu %.10g %.10g %d %.10g %.10g %d \"%s\"\n", f->holdings, f->effective_holdings,
+		fprintf(fp, "%zu %.10g %.10g %d %.10g %.10g %d \"%s\"\n", f->risk_holdings, f->effective_holdings,
 			100.0 * f->sd, f->passed != 0, F.label_x[k], F.label_y[k], F.label_right[k],
 			F.text + k * FUNDS_NAME_MAX);
 		k++;
@@ -1149,11 +1155,11 @@ static void funds_plot(FILE *fp, const struct plots_input *in, const struct fund
 	      "     'funds.dat' using 2:3:($1-$2):(0) with vectors nohead ls 8 notitle, \\\n"
 	      "     'funds.dat' using 2:3 with points ls 7 title \"fund at its effective holdings 1/HHI\"", fp);
 	if (F->any_pass)
-		fputs(", \\\n     'funds.dat' using 1:($4 == 1 ? $3 : 1/0) with points ls 6 title \"fund at its number "
-		      "of holdings\"", fp);
+		fputs(", \\\n     'funds.dat' using 1:($4 == 1 ? $3 : 1/0) with points ls 6 title \"fund at the holdings "
+		      "its risk uses\"", fp);
 	if (F->any_fail)
 		fputs(", \\\n     'funds.dat' using 1:($4 == 0 ? $3 : 1/0) with points ls 9 title \"fund failing the "
-		      "policy, at its number of holdings\"", fp);
+		      "policy, at the holdings its risk uses\"", fp);
 	if (F->any_left)
 		fputs(", \\\n     'funds.dat' using 5:($7 == 0 ? $6 : 1/0):8 with labels left font \",9\" notitle", fp);
 	if (F->any_right)

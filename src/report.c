@@ -21,6 +21,7 @@
 
 #include <cjson/cJSON.h>
 
+#include "holdcount/csvread.h"
 #include "holdcount/memory.h"
 
 #define REPORT_NUMBER_MAX 64
@@ -198,6 +199,32 @@ struct report_table *hc_report_add_table(struct report *r, const char *key, cons
 fail:
 	table_free(t);
 	return NULL;
+}
+
+static int column_index(const struct report_table *t, const char *key, size_t *col)
+{
+	size_t i;
+
+	for (i = 0; i < t->ncols; i++)
+		if (strcmp(t->cols[i].key, key) == 0) {
+			*col = i;
+			return 1;
+		}
+	return 0;
+}
+
+int hc_report_table_nest(struct report_table *parent, const char *column, const struct report_table *child,
+			 const char *join)
+{
+	size_t c, j, cj;
+
+	if (!column_index(parent, column, &c) || !column_index(parent, join, &j) || !column_index(child, join, &cj))
+		return HC_EINTERNAL;
+	parent->nest = child;
+	parent->nest_col = c;
+	parent->nest_join = j;
+	parent->nest_child_join = cj;
+	return HC_OK;
 }
 
 /* A column added after rows exist widens every row with an empty cell, so
@@ -699,6 +726,42 @@ static void json_free(void *p)
 	hc_free(p);
 }
 
+/* A JSON string of text, always valid UTF-8: text from the inputs is
+ * checked where it is read, but some (a file name, say) reaches the report
+ * as the system gave it; each byte that does not start a valid UTF-8
+ * sequence is written as U+FFFD, the replacement character, so no output
+ * is invalid JSON. */
+static cJSON *json_string(const char *text)
+{
+	static const char replacement[] = "\xEF\xBF\xBD";
+	size_t len = strlen(text), i = 0, o = 0;
+	cJSON *item;
+	char *buf;
+
+	if (hc_csvread_utf8_valid(text, len))
+		return cJSON_CreateString(text);
+	if (!(buf = hc_mallocarray(len + 1, 3)))
+		return NULL;
+	while (i < len) {
+		unsigned char c = (unsigned char)text[i];
+		size_t n = c < 0x80 ? 1 : c >= 0xC2 && c <= 0xDF ? 2 : c >= 0xE0 && c <= 0xEF ? 3
+			 : c >= 0xF0 && c <= 0xF4 ? 4 : 0;
+		if (n && n <= len - i && hc_csvread_utf8_valid(text + i, n)) {
+			memcpy(buf + o, text + i, n);
+			o += n;
+			i += n;
+		} else {
+			memcpy(buf + o, replacement, 3);
+			o += 3;
+			i++;
+		}
+	}
+	buf[o] = '\0';
+	item = cJSON_CreateString(buf);
+	hc_free(buf);
+	return item;
+}
+
 static cJSON *json_value(const struct report_value *v)
 {
 	char buf[REPORT_NUMBER_MAX];
@@ -711,7 +774,7 @@ static cJSON *json_value(const struct report_value *v)
 		snprintf(buf, sizeof buf, "%lld", v->integer);
 		return cJSON_CreateRaw(buf);
 	case REPORT_TEXT:
-		return cJSON_CreateString(v->text);
+		return json_string(v->text);
 	case REPORT_BOOL:
 		return cJSON_CreateBool(v->integer != 0);
 	default:
@@ -731,6 +794,36 @@ static int json_put(cJSON *obj, const char *key, cJSON *item)
 	return 1;
 }
 
+/* The rows of t->nest matching row `row` of t (hc_report_table_nest). */
+static cJSON *json_nested(const struct report_table *t, size_t row)
+{
+	const struct report_table *c = t->nest;
+	const struct report_value *key = &t->cells[row * t->ncols + t->nest_join];
+	cJSON *arr = cJSON_CreateArray();
+	size_t r, col;
+
+	if (!arr)
+		return NULL;
+	for (r = 0; r < c->nrows; r++) {
+		const struct report_value *k = &c->cells[r * c->ncols + t->nest_child_join];
+		cJSON *obj;
+		if (k->kind != REPORT_TEXT || key->kind != REPORT_TEXT || strcmp(k->text, key->text) != 0)
+			continue;
+		obj = cJSON_CreateObject();
+		if (!obj || !cJSON_AddItemToArray(arr, obj)) {
+			cJSON_Delete(obj);
+			goto fail;
+		}
+		for (col = 0; col < c->ncols; col++)
+			if (col != t->nest_child_join && !json_put(obj, c->cols[col].key, json_value(&c->cells[r * c->ncols + col])))
+				goto fail;
+	}
+	return arr;
+fail:
+	cJSON_Delete(arr);
+	return NULL;
+}
+
 static cJSON *json_table(const struct report_table *t)
 {
 	cJSON *arr = cJSON_CreateArray();
@@ -745,7 +838,8 @@ static cJSON *json_table(const struct report_table *t)
 			goto fail;
 		}
 		for (col = 0; col < t->ncols; col++)
-			if (!json_put(obj, t->cols[col].key, json_value(&t->cells[row * t->ncols + col])))
+			if (!json_put(obj, t->cols[col].key, t->nest && col == t->nest_col ? json_nested(t, row)
+								: json_value(&t->cells[row * t->ncols + col])))
 				goto fail;
 	}
 	return arr;
@@ -771,7 +865,7 @@ static cJSON *json_report(const struct report *r)
 	if (!json_put(root, "cautions", notes))
 		goto fail;
 	for (i = 0; i < r->nnotes; i++) {
-		cJSON *s = cJSON_CreateString(r->notes[i]);
+		cJSON *s = json_string(r->notes[i]);
 		if (!s || !cJSON_AddItemToArray(notes, s)) {
 			cJSON_Delete(s);
 			goto fail;

@@ -113,9 +113,16 @@ static int compute_audit(struct hc_reportset *r, struct hc_error *err)
 	hc_progress_begin(&r->o.progress, NULL, "sampling the funds' counts", "paths");
 	ao.progress = r->o.progress.update;
 	ao.progress_ctx = r->o.progress.ctx;
-	rc = hc_audit_run(&r->audit, r->o.holdings, r->src, &r->mo, &ao, err);
+	/* a ragged history: funds' risk from the pairwise-complete matrix,
+	 * compared with that matrix's averages (hc_audit_run computes them) */
+	rc = hc_audit_run(&r->audit, r->o.holdings, r->src, r->src->kind == HC_SOURCE_RAGGED ? NULL : &r->mo, &ao, err);
 	hc_progress_end(&r->o.progress);
-	return rc ? rc : hc_audit_report(&r->rep_audit, r->audit, r->o.holdings, err);
+	if (rc == HC_OK)
+		rc = hc_audit_report(&r->rep_audit, r->audit, r->o.holdings, err);
+	/* as `holdcount audit` says it: the pairwise matrix of a ragged history, repaired when needed */
+	if (rc == HC_OK && r->src->kind == HC_SOURCE_RAGGED && hc_source_report_psd(r->src, r->rep_audit))
+		rc = hc_error(err, HC_ENOMEM, "out of memory building the audit report");
+	return rc;
 }
 
 /* The exact rules, with the report's parameters, in every window; no
@@ -131,6 +138,9 @@ static int compute_rolling(struct hc_reportset *r, const struct universe *every,
 	ro.step = r->step;
 	ro.rules = r->o.enough.rules;
 	ro.rules.selected &= RULES_EXACT_MASK;
+	/* a ragged history's windows are read period by period too */
+	if (r->src->kind == HC_SOURCE_RAGGED)
+		ro.missing = UNIVERSE_MISSING_KEEP;
 	hc_progress_begin(&r->o.progress, NULL, "windows", "windows");
 	ro.progress = r->o.progress.update;
 	ro.progress_ctx = r->o.progress.ctx;
@@ -156,8 +166,8 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
 	int rc;
 
 	*out = NULL;
-	if (!hc_source_has_series(src))
-		return hc_error(err, HC_EUSAGE, "the report needs complete return series");
+	if (!hc_source_has_series(src) && src->kind != HC_SOURCE_RAGGED)
+		return hc_error(err, HC_EUSAGE, "the report needs return series, complete or read period by period");
 	if (opt->window && !every_security)
 		return hc_error(err, HC_EUSAGE, "rolling windows need the history with every security");
 	if (!(r = hc_calloc(1, sizeof *r)))
@@ -228,7 +238,8 @@ static int build_universe(struct hc_reportset *r)
 	    hc_report_add_real(rep, "floor_sd", "floor sd (unbounded universe)",
 			    r->curve->floor_variance >= 0 ? sqrt(r->curve->floor_variance) : NAN, REPORT_STYLE_PERCENT) ||
 	    hc_report_add_real(rep, "universe_sd", "equal-weight universe sd", sqrt(r->curve->universe_variance),
-			    REPORT_STYLE_PERCENT))
+			    REPORT_STYLE_PERCENT) ||
+	    hc_source_report_treatment(r->src, rep) || hc_source_report_reading(r->src, rep))
 		return HC_ENOMEM;
 	if (r->u->ndropped) {
 		t = hc_report_add_table(rep, "dropped", "securities dropped");
@@ -385,8 +396,14 @@ static void md_universe(FILE *fp, const struct hc_reportset *r)
 {
 	static const char *const fields[][2] = {
 		{ "source", "source" }, { "securities_read", "securities read" },
-		{ "securities", "securities kept (complete over the sample)" },
-		{ "securities_dropped", "securities dropped" }, { "periods", "periods" },
+		{ "securities", "securities kept" },
+		{ "securities_dropped", "securities dropped" }, { "treatment", "treatment" },
+		{ "alive_min", "securities alive per period, fewest" },
+		{ "alive_median", "securities alive per period, median" },
+		{ "alive_max", "securities alive per period, most" },
+		{ "securities_complete", "securities with no gap" }, { "periods", "periods" },
+		{ "periods_read", "periods read (before --frequency or --from/--to)" },
+		{ "bad_cells", "cells read as missing (--bad-cells missing)" }, { "bad_cell_first", "the first of them" },
 		{ "first_date", "first period" }, { "last_date", "last period" },
 		{ "periods_per_year", "periods per year" }, { "annualisation", "annualisation" },
 		{ "average_variance", "average variance (a year)" }, { "average_covariance", "average covariance (a year)" },
@@ -501,14 +518,30 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 				r->rep_enough->fields[k].value.text);
 }
 
+/* The failed rules and screen parts with their deciding figures, when a
+ * fund fails. */
+static void md_failures(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const cols[][2] = {
+		{ "fund", "fund" }, { "check", "check" }, { "figure", "figure" }, { "test", "test" }, { "limit", "limit" },
+	};
+	const struct report_table *t = hc_report_find_table(r->rep_audit, "failures");
+
+	if (!t || !t->nrows)
+		return;
+	fputs("What fails, with the figure that decided it:\n\n", fp);
+	hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+}
+
 static void md_audit(FILE *fp, const struct hc_reportset *r)
 {
 	static const char *const cols[][2] = {
 		{ "fund", "fund" }, { "holdings", "holdings" }, { "effective_holdings", "effective (1/HHI)" },
 		{ "max_weight", "largest weight" }, { "top10_share", "top 10" }, { "sd", "sd a year" },
 		{ "equivalent_count", "equivalent count" }, { "sd_percentile", "sd percentile" },
+		{ "risk_holdings", "holdings its risk uses" }, { "covered_weight", "covered weight" },
 		{ "ucits", "UCITS" }, { "1940act", "1940 Act" }, { "ric", "RIC" },
-		{ "passed", "passes policy" }, { "failed_rules", "fails" },
+		{ "passed", "passes policy" }, { "failed_rules", "fails" }, { "verdict", "verdict" },
 	};
 	const struct report_table *t = hc_report_find_table(r->rep_audit, "funds");
 
@@ -520,6 +553,14 @@ static void md_audit(FILE *fp, const struct hc_reportset *r)
 	fprintf(fp, "From `%s`, against the universe above.\n\n", r->o.holdings_name);
 	md_field(fp, r->rep_audit, "policy", "policy");
 	md_field(fp, r->rep_audit, "failed_funds", "funds failing it");
+	md_field(fp, r->rep_audit, "insufficient_funds", "funds with insufficient data");
+	md_field(fp, r->rep_audit, "min_covered_weight", "least covered weight for a verdict");
+	md_field(fp, r->rep_audit, "basket_reading", "5% basket reading deciding");
+	fputs("\nThe covered weight is the share of a fund's invested weight (cash left out) whose history "
+	      "is usable: its sd, equivalent count and percentile rest on that share alone, over the holdings "
+	      "its risk uses; below the least covered weight the verdict is \"insufficient data\" (exit 10) "
+	      "unless the fund fails the policy. Statute figures are from memory of the text; verify with "
+	      "counsel.\n", fp);
 	fputs("\nThe effective count 1/HHI is the number of equal weights with the same concentration; the "
 	      "equivalent count is the number of random equal-weight holdings with the fund's own sd (\"below "
 	      "the floor\" when no count of them is that low); the sd percentile places the fund's sd among "
@@ -529,9 +570,11 @@ static void md_audit(FILE *fp, const struct hc_reportset *r)
 	      "verify against the current text and defer to compliance counsel. A screen decides the policy "
 	      "only when `--screens` names it.\n\n", fp);
 	hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
-	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, and "
-		"everything in `summary.json` under `audit`.\n\n",
+	fprintf(fp, "Each screen's parts with the figure that decided them are in `audit-screens.csv`%s, each "
+		"failed rule or screen part with its figure and limit in `audit-failures.csv`, and everything in "
+		"`summary.json` under `audit`.\n\n",
 		hc_report_find_table(r->rep_audit, "sectors") ? ", each fund's sector weights in `audit-sectors.csv`" : "");
+	md_failures(fp, r);
 }
 
 /* Whether some row of t has a non-empty text in column key. */
@@ -635,13 +678,26 @@ static int write_markdown(struct reportdir *rd, struct hc_reportset *r, const st
 	if (r->rep_audit)
 		fputs("- regulatory screens: written from memory of the published texts and testing weights only; "
 		      "verify against the current text and defer to compliance counsel\n", fp);
+	/* the audit's own notes (the statutes' readings, the acquisition and
+	 * quarter-end nature of the tests, the cure period, the index-tracking
+	 * exceptions, the bases of the figures, coverage), those the universe's
+	 * list does not already hold */
+	for (i = 0; r->rep_audit && i < r->rep_audit->nnotes; i++) {
+		size_t k;
+		for (k = 0; k < r->rep_universe->nnotes; k++)
+			if (strcmp(r->rep_audit->notes[i], r->rep_universe->notes[k]) == 0)
+				break;
+		if (k == r->rep_universe->nnotes)
+			fprintf(fp, "- audit: %s\n", r->rep_audit->notes[i]);
+	}
 	fputs("\n## Files\n\n- `summary.json`: every figure above, for scripts\n"
 	      "- `curve.csv`, `enough.csv`, `audit.csv`: what `holdcount curve`, `enough` and `audit` print with "
 	      "`--format csv` and the same options\n", fp);
 	if (r->rep_audit)
-		fprintf(fp, "- `audit-screens.csv`%s: what `holdcount audit` prints with `--format csv --table "
-			"screens`%s\n", hc_report_find_table(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
-			hc_report_find_table(r->rep_audit, "sectors") ? " and `--table sectors`" : "");
+		fprintf(fp, "- `audit-screens.csv`%s, `audit-failures.csv`: what `holdcount audit` prints with "
+			"`--format csv --table screens`%s and `--table failures`\n",
+			hc_report_find_table(r->rep_audit, "sectors") ? ", `audit-sectors.csv`" : "",
+			hc_report_find_table(r->rep_audit, "sectors") ? ", `--table sectors`" : "");
 	if (r->rep_rolling)
 		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
 	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
@@ -765,6 +821,8 @@ int hc_reportset_write(struct hc_reportset *r, struct reportdir *rd, struct hc_e
 		rc = write_part_file(rd, "audit-screens.csv", r->rep_audit, "screens", err);
 	if (rc == HC_OK && r->rep_audit && hc_report_find_table(r->rep_audit, "sectors"))
 		rc = write_part_file(rd, "audit-sectors.csv", r->rep_audit, "sectors", err);
+	if (rc == HC_OK && r->rep_audit)
+		rc = write_part_file(rd, "audit-failures.csv", r->rep_audit, "failures", err);
 	if (rc == HC_OK && r->rep_rolling)
 		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, hc_report_writer_csv, err);
 	if (rc == HC_OK)

@@ -32,6 +32,7 @@
 
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
+#include "holdcount/periodic.h"
 
 void hc_rolling_options_init(struct rolling_options *opt)
 {
@@ -336,6 +337,43 @@ static int window_scratch(struct job *jb, struct rolling_window *w, struct hc_er
 	return HC_OK;
 }
 
+/* A ragged window (UNIVERSE_MISSING_KEEP): per-period sums of the window,
+ * each security centred on its own mean within the window (O(M W)); the
+ * exact rules on that curve and the interval from O(W) replicates. */
+static int window_ragged(struct job *jb, struct rolling_window *w, struct hc_error *err)
+{
+	const struct rolling_options *opt = jb->opt;
+	struct hc_periodic *p = NULL;
+	struct bootstrap_options bo;
+	double ppy = jb->u->periods_per_year;
+	int id, rc;
+
+	w->recomputed = 1;
+	rc = hc_periodic_alloc(&p, jb->u, w->first, opt->window, err);
+	if (rc) {
+		w->securities = 0;
+		w->dropped = jb->u->m;
+		return window_unusable(w, err);
+	}
+	w->securities = p->m;
+	w->dropped = jb->u->m - p->m;
+	w->average_covariance = p->curve.floor;
+	w->average_variance = p->curve.floor + p->curve.spread;
+	w->average_correlation = NAN;
+	w->nrules = 0;
+	for (id = 0; id < RULES_COUNT && rc == HC_OK; id++)
+		if (opt->rules.selected & RULES_EXACT_MASK & RULES_FLAG(id))
+			rc = hc_periodic_rule(&opt->rules, id, &p->curve, ppy, &w->rules[w->nrules++], err);
+	if (rc == HC_OK && opt->replicates) {
+		bo = opt->boot;
+		bo.replicates = opt->replicates;
+		bo.progress = NULL;
+		rc = hc_periodic_bootstrap(&opt->rules, p, &bo, ppy, w->rules, w->nrules, err);
+	}
+	hc_periodic_free(p);
+	return rc;
+}
+
 static int window_one(struct job *jb, struct rolling_window *w, struct hc_error *err)
 {
 	struct slide *s = &jb->slide;
@@ -345,6 +383,8 @@ static int window_one(struct job *jb, struct rolling_window *w, struct hc_error 
 
 	w->status = HC_OK;
 	window_dates(w, jb->u, jb->opt->window);
+	if (jb->opt->missing == UNIVERSE_MISSING_KEEP)
+		return window_ragged(jb, w, err);
 	if (!jb->sliding || !s->valid || jb->since + 1 >= refresh || slide_examine(s, w->first))
 		return window_scratch(jb, w, err);
 	slide_move(s, w->first);
@@ -377,10 +417,11 @@ static int check_options(const struct universe *u, const struct rolling_options 
 				opt->window, u->t);
 	if (opt->step < 1)
 		return hc_error(err, HC_EUSAGE, "window step of 0 periods; expected at least 1");
-	if (opt->missing != UNIVERSE_MISSING_COMPLETE && opt->missing != UNIVERSE_MISSING_PAIRWISE)
+	if (opt->missing != UNIVERSE_MISSING_COMPLETE && opt->missing != UNIVERSE_MISSING_PAIRWISE &&
+	    opt->missing != UNIVERSE_MISSING_KEEP)
 		return hc_error(err, HC_EUSAGE,
-				"rolling windows need the complete-data or the pairwise policy");
-	if (opt->replicates && opt->missing != UNIVERSE_MISSING_COMPLETE)
+				"rolling windows need the complete-data, pairwise or per-period (keep) policy");
+	if (opt->replicates && opt->missing == UNIVERSE_MISSING_PAIRWISE)
 		return hc_error(err, HC_EUSAGE,
 				"bootstrap intervals need the complete-data policy in each window");
 	if (!(opt->rules.selected & RULES_EXACT_MASK))
@@ -426,8 +467,11 @@ static int run_series(struct rolling_result **out, const struct universe *u,
 		rc = hc_error(err, HC_ENOMEM, "out of memory for %zu windows", r->nwindows);
 		goto cleanup;
 	}
+	/* Anchored at the last period: the newest window always ends at the
+	 * last observation, and the oldest periods that do not fill a step
+	 * are the ones left out. */
 	for (j = 0; j < r->nwindows; j++) {
-		r->windows[j].first = j * opt->step;
+		r->windows[j].first = (u->t - opt->window) - (r->nwindows - 1 - j) * opt->step;
 		if ((rc = window_one(&jb, &r->windows[j], err)))
 			goto cleanup;
 		if (opt->progress && opt->progress(opt->progress_ctx, j + 1, r->nwindows)) {

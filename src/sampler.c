@@ -784,6 +784,8 @@ int hc_sampler_run(struct sampler_result **out, const struct hc_source *src,
 		return hc_error(err, HC_EUSAGE, "stratified draws are hc_strata_run's (strata.h)");
 	if (a)
 		return run_matrix(out, a, hc_source_m(src), sizes, nsizes, opt, err);
+	if (src->kind == HC_SOURCE_RAGGED)
+		return hc_error(err, HC_EUSAGE, "a ragged history is sampled period by period (hc_periodic_sample)");
 	return run_series(out, src->u, sizes, nsizes, opt, err);
 }
 

@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "holdcount/memory.h"
+#include "holdcount/periodic.h"
 
 void hc_source_options_init(struct hc_source_options *opt)
 {
@@ -20,6 +21,7 @@ void hc_source_free(struct hc_source *s)
 		return;
 	hc_universe_free(s->own_u);
 	hc_covmatrix_free(s->own_cm);
+	hc_periodic_free(s->own_per);
 	hc_free(s->own_name);
 	hc_free(s);
 }
@@ -96,7 +98,9 @@ static struct hc_source *source_alloc(int kind, const struct hc_source_options *
 	if (!s)
 		return NULL;
 	s->kind = kind;
-	s->psd.asked = opt->repair_psd;
+	/* a ragged source's matrix serves only a fund's variance w'Aw: it is
+	 * repaired when needed (and said) rather than refusing the history */
+	s->psd.asked = opt->repair_psd || (kind == HC_SOURCE_RAGGED && opt->need_fund_matrix);
 	return s;
 }
 
@@ -108,7 +112,8 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	int rc;
 
 	*out = NULL;
-	s = source_alloc(u->has_missing ? HC_SOURCE_PAIRWISE : HC_SOURCE_SERIES, opt);
+	s = source_alloc(!u->has_missing ? HC_SOURCE_SERIES : opt->ragged ? HC_SOURCE_RAGGED : HC_SOURCE_PAIRWISE,
+			 opt);
 	if (!s) {
 		hc_universe_free(u);
 		return hc_error(err, HC_ENOMEM, "out of memory");
@@ -121,8 +126,18 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	/* With gaps left no portfolio has a complete return series, so random
 	 * portfolios and fund variances come from the pairwise-complete
 	 * covariances, when they form a valid matrix (or from its repair, which
-	 * the exact figures then use too). */
-	if (s->kind == HC_SOURCE_PAIRWISE && (opt->need_matrix || opt->repair_psd)) {
+	 * the exact figures then use too).  A ragged source reads the series
+	 * period by period (periodic.h): its exact figures never use the matrix. */
+	if (s->kind == HC_SOURCE_RAGGED) {
+		rc = hc_periodic_alloc(&s->own_per, u, 0, u->t, err);
+		if (rc != HC_OK) {
+			hc_source_free(s);
+			return rc;
+		}
+		s->per = s->own_per;
+	}
+	if (s->kind == HC_SOURCE_RAGGED ? opt->need_fund_matrix || opt->repair_psd
+	    : s->kind == HC_SOURCE_PAIRWISE && (opt->need_matrix || opt->need_fund_matrix || opt->repair_psd)) {
 		rc = hc_covmatrix_from_universe(u, &cm, err);
 		if (rc == HC_OK) {
 			s->own_cm = cm;
@@ -195,6 +210,8 @@ int hc_source_load_covmatrix(struct hc_source **out, const char *path, size_t ma
 
 size_t hc_source_m(const struct hc_source *s)
 {
+	/* a ragged source's per-period sums keep every security observed twice
+	 * or more, which the loader's variation check makes every security */
 	return s->u ? s->u->m : s->cm->m;
 }
 
@@ -238,10 +255,13 @@ void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size)
 		 "%s was not positive semi-definite, so it was replaced by the nearest positive "
 		 "semi-definite matrix in the Frobenius norm (eigenvalue clipping, Higham 1988): %zu "
 		 "negative eigenvalue%s set to zero, the most negative %.4g%s; the matrix moved by %.4g%s "
-		 "(Frobenius distance, %.3g%% of its Frobenius norm), and every figure uses the repaired matrix",
+		 "(Frobenius distance, %.3g%% of its Frobenius norm), and %s",
 		 s->kind == HC_SOURCE_MATRIX ? "the covariance matrix" : "the pairwise-complete covariance matrix",
 		 ps->negative, ps->negative == 1 ? "" : "s", ps->min_eigenvalue * scale, unit,
-		 ps->distance * scale, unit, 100 * ps->distance / ps->norm);
+		 ps->distance * scale, unit, 100 * ps->distance / ps->norm,
+		 /* a ragged history's own figures come from its per-period sums */
+		 s->kind == HC_SOURCE_RAGGED ? "the funds' variances use the repaired matrix"
+					     : "every figure uses the repaired matrix");
 }
 
 int hc_source_report_psd(const struct hc_source *s, struct report *r)
@@ -271,5 +291,52 @@ int hc_source_report_psd(const struct hc_source *s, struct report *r)
 		if (hc_report_add_note(r, text))
 			return HC_ENOMEM;
 	}
+	return HC_OK;
+}
+
+int hc_source_report_treatment(const struct hc_source *s, struct report *r)
+{
+	const struct hc_periodic *p = s->per;
+	const char *text;
+
+	switch (s->kind) {
+	case HC_SOURCE_RAGGED:
+		break;
+	case HC_SOURCE_SERIES:
+		text = "complete return series";
+		return hc_report_add_text(r, "treatment", "treatment", text) ? HC_ENOMEM : HC_OK;
+	case HC_SOURCE_PAIRWISE:
+		text = "return history with gaps, read through pairwise-complete covariances";
+		return hc_report_add_text(r, "treatment", "treatment", text) ? HC_ENOMEM : HC_OK;
+	default:
+		return HC_OK;
+	}
+	if (hc_report_add_text(r, "treatment", "treatment", HC_SOURCE_RAGGED_TREATMENT) ||
+	    hc_report_add_int(r, "alive_min", "securities alive per period, fewest", (long long)p->alive_min) ||
+	    hc_report_add_int(r, "alive_median", "securities alive per period, median", (long long)p->alive_median) ||
+	    hc_report_add_int(r, "alive_max", "securities alive per period, most", (long long)p->alive_max) ||
+	    hc_report_add_int(r, "securities_complete", "securities with no gap", (long long)p->complete))
+		return HC_ENOMEM;
+	if (p->m_short &&
+	    hc_report_add_int(r, "securities_single_period", "securities observed in one period only (left out)",
+			      (long long)p->m_short))
+		return HC_ENOMEM;
+	return HC_OK;
+}
+
+int hc_source_report_reading(const struct hc_source *s, struct report *r)
+{
+	const struct universe *u = s->u;
+
+	if (!u)
+		return HC_OK;
+	if (u->bad_cells &&
+	    (hc_report_add_int(r, "bad_cells", "cells read as missing (--bad-cells missing)", (long long)u->bad_cells) ||
+	     hc_report_add_text(r, "bad_cell_first", "the first of them", u->bad_first)))
+		return HC_ENOMEM;
+	if (u->periods_read && u->periods_read != u->t &&
+	    hc_report_add_int(r, "periods_read", "periods read (before --frequency or --from/--to)",
+			      (long long)u->periods_read))
+		return HC_ENOMEM;
 	return HC_OK;
 }

@@ -20,10 +20,10 @@
 #include "holdcount/csvread.h"
 #include "holdcount/memory.h"
 
-/* Daily data whose share of Saturday/Sunday dates exceeds this counts as
- * calendar days (365 a year); below it as trading days (252).  A calendar
- * series has 2/7 of its dates on weekends, a trading-day series none. */
-#define UNIVERSE_WEEKEND_SHARE_CALENDAR (1.0 / 7.0)
+/* Daily data: a weekday is a trading day of the calendar when at least
+ * this share of the dates falls on it (a weekday of a five-day week holds
+ * 1/5 of them, a stray session almost none). */
+#define UNIVERSE_WEEKDAY_SHARE 0.05
 /* How many dropped ids a "too few left" message names. */
 #define UNIVERSE_NAME_DROPPED_MAX 5
 
@@ -169,7 +169,7 @@ static long kth_spacing(const int32_t *dates, size_t n, size_t k)
  */
 double hc_universe_detect_periods(const int32_t *dates, size_t n)
 {
-	size_t gaps, i, weekend = 0;
+	size_t gaps, i;
 	double med;
 
 	if (n < 2)
@@ -179,12 +179,20 @@ double hc_universe_detect_periods(const int32_t *dates, size_t n)
 	if (gaps % 2 == 0)
 		med = (med + (double)kth_spacing(dates, n, gaps / 2 - 1)) / 2;
 	if (med < 1.5) {
-		for (i = 0; i < n; i++) {
-			long wd = ((long)dates[i] % 7 + 7 + 4) % 7;   /* 0 = Sunday; 1970-01-01 was a Thursday */
+		/* Daily: the trading calendar is the weekdays the dates fall on,
+		 * whichever they are (a Sunday-to-Thursday week is five days as a
+		 * Monday-to-Friday one is).  A weekday counts when it holds at
+		 * least UNIVERSE_WEEKDAY_SHARE of the dates (a stray holiday
+		 * session does not); five or fewer trading days a week give the
+		 * usual 252 (common practice: 5 x 52 less about 9 holidays), six
+		 * give 6/5 of that, seven the calendar's 365. */
+		size_t per[7] = { 0 }, used = 0;
 
-			weekend += wd == 0 || wd == 6;
-		}
-		return (double)weekend / (double)n > UNIVERSE_WEEKEND_SHARE_CALENDAR ? 365 : 252;
+		for (i = 0; i < n; i++)
+			per[((long)dates[i] % 7 + 7 + 4) % 7]++;   /* 0 = Sunday; 1970-01-01 was a Thursday */
+		for (i = 0; i < 7; i++)
+			used += (double)per[i] >= UNIVERSE_WEEKDAY_SHARE * (double)n;
+		return used >= 7 ? 365 : used == 6 ? 302 : 252;
 	}
 	if (med >= 5 && med <= 8)
 		return 52;
@@ -388,6 +396,9 @@ struct loader {
 	int row_has_date;
 	size_t row_sec;
 	double row_value;
+	/* cells read as missing under UNIVERSE_BAD_MISSING */
+	size_t nbad;
+	char bad_first[192];
 };
 
 static void loader_release(struct loader *L)
@@ -553,30 +564,65 @@ static int long_header(struct loader *L, struct hc_error *err)
 	return HC_OK;
 }
 
+/* A spreadsheet's error value (#N/A, #DIV/0!, #VALUE!, ...): a cell whose
+ * first non-blank character is '#'. */
+static int spreadsheet_error(const char *s, size_t len)
+{
+	size_t i = 0;
+
+	while (i < len && (s[i] == ' ' || s[i] == '\t'))
+		i++;
+	return i < len && s[i] == '#';
+}
+
+/* A bad cell under UNIVERSE_BAD_MISSING: missing, counted, the first named. */
+static int bad_cell(struct loader *L, const struct csvread_field *f, const char *why, double *out)
+{
+	char q[CSVREAD_QUOTE_BUF];
+
+	if (L->nbad++ == 0)
+		snprintf(L->bad_first, sizeof L->bad_first, "%s:%zu:%zu: '%s' (%s)", L->name, f->line, f->column,
+			 hc_csvread_quote(f->text, f->len, q), why);
+	*out = NAN;
+	return HC_OK;
+}
+
+#define BAD_CELLS_HINT " (--bad-cells missing reads spreadsheet errors and non-positive prices as missing)"
+
 /* Parse one value cell: a number, a percent or a missing marker. */
-static int parse_cell(const struct loader *L, const struct csvread_field *f,
+static int parse_cell(struct loader *L, const struct csvread_field *f,
 		      double *out, struct hc_error *err)
 {
 	char q[CSVREAD_QUOTE_BUF];
-	int pct = 0;
+	int pct = 0, bad_missing = L->opt->bad_cells == UNIVERSE_BAD_MISSING;
 	double v;
 
 	if (hc_csvread_is_missing(f->text, f->len)) {
 		*out = NAN;
 		return HC_OK;
 	}
-	if (hc_csvread_parse_number(f->text, f->len, &v, &pct) != 0)
+	if (hc_csvread_parse_number(f->text, f->len, &v, &pct) != 0) {
+		if (spreadsheet_error(f->text, f->len)) {
+			if (bad_missing)
+				return bad_cell(L, f, "a spreadsheet error value", out);
+			return hc_error(err, HC_EDATA,
+				"%s:%zu:%zu: expected a number or a missing marker, found the spreadsheet error '%s'"
+				BAD_CELLS_HINT, L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
+		}
 		return hc_error(err, HC_EDATA,
 			"%s:%zu:%zu: expected a number or a missing marker, found '%s'",
 			L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
+	}
 	if (L->opt->values != UNIVERSE_RETURNS) {
 		if (pct)
 			return hc_error(err, HC_EDATA,
 				"%s:%zu:%zu: expected a price, found the percent '%s'",
 				L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
+		if (v <= 0 && bad_missing)
+			return bad_cell(L, f, v == 0 ? "a zero price" : "a negative price", out);
 		if (v <= 0)
 			return hc_error(err, HC_EDATA,
-				"%s:%zu:%zu: expected a positive price, found '%s'",
+				"%s:%zu:%zu: expected a positive price, found '%s'" BAD_CELLS_HINT,
 				L->name, f->line, f->column, hc_csvread_quote(f->text, f->len, q));
 	} else {
 		if (L->opt->percent && !pct)
@@ -966,6 +1012,96 @@ static void prices_to_returns(struct universe *u, int logret)
 	u->t = n;
 }
 
+/* ---- calendar periods (universe_options.frequency) ---- */
+
+/* The first day of the week: the day after the run of weekdays the dates
+ * use least (Saturday-Sunday for a Monday-Friday calendar gives Monday,
+ * Friday-Saturday for Sunday-Thursday gives Sunday); Monday when every
+ * weekday is used alike.  Weekday 0 is Monday (1970-01-01 was a Thursday). */
+static int week_start(const int32_t *dates, size_t t)
+{
+	size_t count[7] = { 0 }, k, least;
+	int w, start = 0;
+
+	for (k = 0; k < t; k++)
+		count[(((long)dates[k] + 3) % 7 + 7) % 7]++;
+	least = count[0];
+	for (w = 1; w < 7; w++)
+		if (count[w] < least)
+			least = count[w];
+	/* the start: a day used more than least right after one used least */
+	for (w = 0; w < 7; w++)
+		if (count[w] > least && count[(w + 6) % 7] == least) {
+			start = w;
+			break;
+		}
+	return start;
+}
+
+/* The calendar period of day d: weeks counted from start, months, quarters. */
+static long period_key(int32_t d, int freq, int start)
+{
+	long y, m, day;
+
+	if (freq == UNIVERSE_FREQ_WEEKLY) {
+		long w = (((long)d + 3) % 7 + 7) % 7;   /* 0 = Monday */
+		long since = (w - start + 7) % 7;       /* days since the week's first day */
+
+		return ((long)d - since) / 7 + ((long)d - since < 0 ? -1 : 0);
+	}
+	civil_from_days(d, &y, &m, &day);
+	return freq == UNIVERSE_FREQ_MONTHLY ? y * 12 + (m - 1) : y * 4 + (m - 1) / 3;
+}
+
+/*
+ * Convert u's periods to calendar periods in place (dates ascending):
+ * prices take the last price observed in each period, returns compound,
+ * (1 + r_1)...(1 + r_k) - 1 over the returns observed in it (missing when
+ * none is).  Each period's date is the last date read in it.
+ */
+static int to_calendar(struct universe *u, int freq, int prices)
+{
+	size_t t = u->t, i, k, g, n = 0;
+	int start = freq == UNIVERSE_FREQ_WEEKLY ? week_start(u->dates, t) : 0;
+	size_t *group_end = NULL;
+
+	if (t == 0)
+		return 0;
+	/* groups: the index one past each period's last row */
+	group_end = hc_mallocarray(t, sizeof *group_end);
+	if (!group_end)
+		return -1;
+	for (k = 1; k <= t; k++)
+		if (k == t || period_key(u->dates[k], freq, start) != period_key(u->dates[k - 1], freq, start))
+			group_end[n++] = k;
+	for (i = 0; i < u->m; i++) {
+		double *x = u->x + i * t, *y = u->x + i * n;   /* writes never pass the reads */
+		size_t first = 0;
+
+		for (g = 0; g < n; g++) {
+			double v = NAN, c = 1.0;
+			int seen = 0;
+
+			for (k = first; k < group_end[g]; k++) {
+				if (isnan(x[k]))
+					continue;
+				seen = 1;
+				if (prices)
+					v = x[k];
+				else
+					c *= 1.0 + x[k];
+			}
+			y[g] = !seen ? NAN : prices ? v : c - 1.0;
+			first = group_end[g];
+		}
+	}
+	for (g = 0; g < n; g++)
+		u->dates[g] = u->dates[group_end[g] - 1];
+	u->t = n;
+	hc_free(group_end);
+	return 0;
+}
+
 /* One step of a compacting pass over the securities: drop security i,
  * recording reason why in the dropped list (cap: that list's capacity),
  * or, when why is NULL, move its returns and id down to slot *keep and
@@ -1004,7 +1140,7 @@ static size_t count_missing(const double *x, size_t t)
 static int apply_policy(struct universe *u, int missing, double min_coverage,
 			struct hc_error *err)
 {
-	size_t i, keep = 0, t = u->t, miss, cap = 0;
+	size_t i, keep = 0, t = u->t, miss, cap = u->ndropped;
 	char reason[160];
 	int rc;
 
@@ -1124,6 +1260,16 @@ static int finish(struct loader *L, struct universe *u, struct hc_error *err)
 	if (u->t == 0)
 		return hc_error(err, HC_EDATA, "%s: no data rows after the header; expected at least %d",
 				L->name, o->values == UNIVERSE_RETURNS ? 2 : 3);
+	u->bad_cells = L->nbad;
+	memcpy(u->bad_first, L->bad_first, sizeof u->bad_first);
+	u->periods_read = o->values == UNIVERSE_RETURNS ? u->t : u->t - 1;
+	if (o->frequency != UNIVERSE_FREQ_AS_READ) {
+		if (hc_memory_check(L->budget, (double)u->m * (double)u->t * 8.0, (double)u->t * 8.0, err,
+				    "%s: the calendar periods of %zu dates", L->name, u->t))
+			return HC_ENOMEM;
+		if (to_calendar(u, o->frequency, o->values != UNIVERSE_RETURNS))
+			return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
+	}
 	if (o->values != UNIVERSE_RETURNS)
 		prices_to_returns(u, o->values == UNIVERSE_PRICES_LOG);
 	if (u->t < 2)
@@ -1169,6 +1315,10 @@ static int check_options(const struct universe_options *o, struct hc_error *err)
 		return hc_error(err, HC_EUSAGE, "id and value column names apply only to the long layout");
 	if (o->delimiter && o->delimiter != ',' && o->delimiter != ';')
 		return hc_error(err, HC_EUSAGE, "unsupported delimiter '%c'; expected ',' or ';'", o->delimiter);
+	if (o->bad_cells != UNIVERSE_BAD_REFUSE && o->bad_cells != UNIVERSE_BAD_MISSING)
+		return hc_error(err, HC_EUSAGE, "unknown treatment of bad cells %d", o->bad_cells);
+	if (o->frequency < UNIVERSE_FREQ_AS_READ || o->frequency > UNIVERSE_FREQ_QUARTERLY)
+		return hc_error(err, HC_EUSAGE, "unknown frequency %d", o->frequency);
 	return HC_OK;
 }
 
@@ -1284,6 +1434,9 @@ static struct universe *derived_alloc(const struct universe *src, size_t t)
 	u->periods_per_year = src->periods_per_year;
 	u->periods_detected = src->periods_detected;
 	u->max_bytes = src->max_bytes;
+	u->bad_cells = src->bad_cells;
+	memcpy(u->bad_first, src->bad_first, sizeof u->bad_first);
+	u->periods_read = src->periods_read;
 	return u;
 }
 
@@ -1388,24 +1541,54 @@ int hc_universe_resample(struct universe **out, const struct universe *src,
 	return HC_OK;
 }
 
+int hc_universe_exclude(struct universe *u, char *const *ids, size_t n, struct hc_error *err)
+{
+	size_t i, j, keep = 0, cap = u->ndropped;
+	int rc;
+
+	for (j = 0; j < n; j++)
+		if (hc_universe_find(u, ids[j]) < 0)
+			return hc_error(err, HC_EDATA, "%s: excluded id '%s' is not a security of the universe",
+					u->source ? u->source : "universe", ids[j]);
+	for (i = 0; i < u->m; i++) {
+		int out = 0;
+
+		for (j = 0; j < n && !out; j++)
+			out = strcmp(u->ids[i], ids[j]) == 0;
+		if ((rc = keep_or_drop(u, i, out ? "excluded (--exclude)" : NULL, &keep, &cap, err)) != HC_OK)
+			return rc;
+	}
+	u->m = keep;
+	u->has_missing = 0;
+	for (i = 0; i < keep * u->t && !u->has_missing; i++)
+		u->has_missing = isnan(u->x[i]) != 0;
+	if (u->m < 2)
+		return hc_error(err, HC_EDATA, "%s: %zu of %zu securities left after the exclusions; expected at least 2",
+				u->source ? u->source : "universe", u->m, u->m + n);
+	return HC_OK;
+}
+
 int hc_universe_apply_missing(struct universe **out, const struct universe *src, int missing,
 			      double min_coverage, struct hc_error *err)
 {
 	const char *name = src->source ? src->source : "";
 	struct universe *u;
-	size_t i;
+	size_t i, cap;
 	int rc;
 
 	*out = NULL;
 	if (missing < UNIVERSE_MISSING_COMPLETE || missing > UNIVERSE_MISSING_KEEP ||
 	    !(min_coverage > 0 && min_coverage <= 1))
 		return hc_error(err, HC_EUSAGE, "bad missing-data policy or minimum coverage");
-	if (src->ndropped)
-		return hc_error(err, HC_EUSAGE, "'%s' already lost securities to a missing-data policy; load it "
-				"under the keep-all policy", name);
 	u = derived_alloc(src, src->t);
 	if (!u)
 		return hc_error(err, HC_ENOMEM, "out of memory");
+	/* securities src already left out (a date range, --exclude) stay listed */
+	for (i = 0, cap = 0; i < src->ndropped; i++)
+		if (add_dropped(u, &cap, src->dropped[i].id, src->dropped[i].reason)) {
+			hc_universe_free(u);
+			return hc_error(err, HC_ENOMEM, "out of memory");
+		}
 	memcpy(u->x, src->x, src->m * src->t * sizeof(double));
 	memcpy(u->dates, src->dates, src->t * sizeof *u->dates);
 	for (i = 0; i < src->m * src->t && !u->has_missing; i++)

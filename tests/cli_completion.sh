@@ -68,7 +68,7 @@ expect "table csv json" holdcount curve --format ''
 expect "csv" holdcount enough --format c
 expect "table csv json" holdcount curve --format = ''
 expect "json" holdcount audit --format = j
-expect "complete pairwise" holdcount describe --missing ''
+expect "alive complete pairwise" holdcount describe --missing ''
 expect "png svg pdf" holdcount report --plot-format ''
 expect "wide long" holdcount curve --layout ''
 # Paths: files for FILE values and positional arguments, directories for DIR.

@@ -28,6 +28,8 @@ fail() { echo "FAIL: $*"; fails=$((fails+1)); }
 "$HC" synth --securities 12 --periods 72 --seed 3 --late-share 0 --early-share 0 \
 	-o "$T/u.csv" --sectors-output "$T/s.csv" -q || { echo "FAIL: synth exit $?"; exit 1; }
 printf 'fund,id,weight\nAlder Growth,S01,0.35\nAlder Growth,S02,0.40\nAlder Growth,S07,0.25\n' >"$T/h.csv"
+# a second holdings file (--holdings is repeatable; one file given twice is refused)
+printf 'fund,id,weight\nBirch Income,S01,0.5\nBirch Income,S02,0.5\n' >"$T/h2.csv"
 
 # What each command needs to run at all.
 base() {
@@ -54,10 +56,12 @@ value() {
 	threads) echo 2 ;;            min-coverage) echo 90% ;;    periods-per-year) echo 12 ;;
 	date-column) echo date ;;     id-column) echo id ;;        value-column) echo value ;;
 	delimiter) echo , ;;          max-memory) echo 512 ;;      output) echo "$T/o.$n" ;;
-	holdings) echo "$T/h.csv" ;;  sectors) echo "$T/s.csv" ;;  fund-column) echo fund ;;
+	holdings) echo "$T/h2.csv" ;;  sectors) echo "$T/s.csv" ;;  fund-column) echo fund ;;
 	holding-id-column) echo id ;; weight-column) echo weight ;; market-value-column) echo weight ;;
 	issuer-column) echo id ;;     min-holdings) echo 2 ;;      min-effective) echo 1.5 ;;
 	max-weight) echo 60% ;;       max-sector-weight) echo 80% ;; screens) echo ucits ;;
+	holdings-encoding) echo latin-1 ;; type-column) echo id ;; group-column) echo id ;;
+	min-covered-weight) echo 50% ;; benchmark) echo "$T/h.csv" ;;
 	rules) echo exact ;;          near-floor) echo 5% ;;       marginal) echo 0.10pp ;;
 	band) echo 95%:10% ;;         premium) echo 4% ;;          holding-cost) echo 0.1% ;;
 	te-budget) echo 3% ;;         shortfall|lag-share) echo 1%:10% ;;    bootstrap) echo 40 ;;
@@ -69,6 +73,8 @@ value() {
 	strata-column) echo sector ;; per-stratum-max) echo 2 ;;   window) echo 24 ;;
 	step) echo 6 ;;               refresh) echo 8 ;;           periods) echo 36 ;;
 	sector-names) echo alpha,beta,gamma ;; sector-prefix) echo grp- ;; id-prefix) echo Q ;;
+	from) echo 2000-01 ;;         to) echo 2030-12 ;;          exclude) echo S03 ;;
+	exclude-file) printf 'S04\n' >"$T/x.csv"; echo "$T/x.csv" ;;
 	start) echo 2001-01-31 ;;     market-vol) echo 0.15 ;;     sector-vol) echo 0.07 ;;
 	specific-vol) echo 0.2 ;;     specific-spread) echo 0.3 ;; beta-spread) echo 0.2 ;;
 	tail-df) echo 6 ;;            late-share) echo 0.1 ;;      early-share) echo 0.1 ;;
@@ -114,7 +120,7 @@ listed() {
 }
 
 commands=$("$HC" --help | sed -n '/^commands:/,/^$/p' | sed -n 's/^  \([a-z][a-z]*\) .*/\1/p')
-[ "$(echo $commands)" = "describe curve formula enough audit rolling report synth" ] \
+[ "$(echo $commands)" = "describe curve formula enough audit rolling report synth check" ] \
 	|| fail "the commands are now '$(echo $commands)': check this test covers each"
 n=0
 for c in $commands; do
@@ -137,7 +143,7 @@ for c in $commands; do
 	done <"$T/opts"
 	[ "$checked" -ge 8 ] || fail "$c: only $checked options read from its help"
 done
-# 8 commands, each with at least 8 options (synth has 24, report 44).
+# 9 commands, each with at least 8 options (synth has 24, report 44).
 [ "$n" -ge 150 ] || fail "only $n options checked in all"
 
 # The options left out, per command (src/cli/cmd_*.c, cli_omit lists): not

@@ -18,7 +18,7 @@ for f in summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rule
 	[ -s "$T/a/$f" ] || fail "demo report lacks $f"
 done
 if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
-	for f in audit.csv audit-screens.csv audit-sectors.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
+	for f in audit.csv audit-screens.csv audit-sectors.csv audit-failures.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
 fi
 [ -e "$T/a/README-plots.txt" ] && fail "README-plots.txt written although gnuplot rendered"
 [ -e "$T/a/.holdcount-incomplete" ] && fail "the finished report keeps the incomplete marker"
@@ -185,6 +185,37 @@ grep -q "fails the policy: 'Lirrand Select Fund C' (max-weight)" "$T/err" || fai
 [ -s "$T/policy/summary.json" ] && [ -s "$T/policy/audit.csv" ] || fail "a failing fund left the folder incomplete"
 grep -q '^- policy: largest weight <= 10%' "$T/policy/summary.md" || fail "summary.md does not state the policy"
 grep -q '| Lirrand Select Fund C | .*| no | max-weight |' "$T/policy/summary.md" || fail "summary.md does not show Fund C failing"
+# the failures table (the deciding figure and the limit) in audit-failures.csv,
+# summary.json and summary.md: Fund C's largest weight is 12% in
+# data/demo-funds.csv (LIR064), against the 10% asked for
+grep -qx 'Lirrand Select Fund C,max-weight,0.1199999999999999[0-9]*,<=,0.1000000000000000[0-9]*' "$T/policy/audit-failures.csv" ||
+	fail "audit-failures.csv: $(cat "$T/policy/audit-failures.csv")"
+grep -qxF '| Lirrand Select Fund C | max-weight | 0.1200 | <= | 0.1000 |' "$T/policy/summary.md" ||
+	fail "summary.md lacks the failures table"
+python3 -c 'import json,sys; f=[x for x in json.load(open(sys.argv[1]))["audit"]["funds"] if x["fund"] == "Lirrand Select Fund C"][0]["failed_rules"]; sys.exit(not (len(f) == 1 and f[0]["check"] == "max-weight" and abs(f[0]["figure"] - 0.12) < 1e-12 and f[0]["test"] == "<=" and f[0]["limit"] == 0.1))' \
+	"$T/policy/summary.json" || fail "summary.json's failed_rules of Fund C is not [max-weight 12% <= 10%]"
+# summary.md's cautions carry the audit's statute notes: the readings, the
+# 1940 Act's test at acquisition (s. 5(c)), s. 851's quarter end and 30-day
+# cure period, UCITS's index-tracking exceptions (Art. 53), all from memory
+# of the texts (docs/audit.md)
+for want in "- audit: statute figures are from memory of the text; verify with counsel" \
+	"(s. 5(c): a fund that later drifts past the limits through market moves alone stays diversified)" \
+	"with a 30-day cure period after a quarter end" "UCITS funds replicating an index may hold up to 20% in one issuer" \
+	"- audit: bases: largest position"; do
+	sed -n '/^## Cautions/,/^## Files/p' "$T/policy/summary.md" | grep -qF -- "$want" || fail "summary.md's cautions lack: $want"
+done
+# insufficient data (exit 10): a fund of the demo universe's LIR001 and an id
+# it lacks, 50% each; the folder is written in full and says so
+printf 'fund,id,weight\nThin Fund,LIR001,0.5\nThin Fund,LIR999X,0.5\n' >"$T/thin.csv"
+"$HC" report -o "$T/thin" --holdings "$T/thin.csv" "${FAST[@]}" 2>"$T/err"; rc=$?
+[ $rc -eq 10 ] || fail "report with a half-covered fund: exit $rc, expected 10 ($(cat "$T/err"))"
+grep -qF "1 of 1 fund has insufficient data (risk figures on less than 95% of the invested weight): 'Thin Fund' (50% covered, 1 of 2 holdings)" "$T/err" ||
+	fail "insufficient data not named: $(cat "$T/err")"
+grep -qF -- '- funds with insufficient data: 1' "$T/thin/summary.md" || fail "summary.md does not count the thin fund"
+grep -q '^| Thin Fund | .*| 1 | 50.00% | .*| insufficient data |$' "$T/thin/summary.md" ||
+	fail "summary.md does not show the thin fund's coverage and verdict"
+python3 -c 'import json,sys; d=json.load(open(sys.argv[1]))["audit"]; f=d["funds"][0]; sys.exit(not (d["insufficient_funds"] == 1 and f["verdict"] == "insufficient data" and f["covered_weight"] == 0.5 and f["risk_holdings"] == 1))' \
+	"$T/thin/summary.json" || fail "summary.json does not carry the thin fund's coverage"
 # the rules section explains itself: a line per rule, how to read the interval
 grep -q '^- lag-share (this tool.s own rule)' "$T/a/summary.md" || fail "summary.md lacks the lag-share rule's line"
 grep -q '^> The portfolio shall hold at least [0-9]* securities. Basis: on ' "$T/a/summary.md" || fail "summary.md lacks the recommendation sentence"

@@ -52,8 +52,8 @@ compare "$T/demo" audit 0 "$HC" audit "$src" --holdings "$D/demo-funds.csv" --se
 # are five years (60 periods) a year apart (12), what `holdcount rolling`
 # prints with those options and the report's rule options (the defaults)
 compare "$T/demo" rolling 0 "$HC" rolling "$src" --window 60 --step 12
-# audit-screens.csv and audit-sectors.csv: `audit --table screens|sectors`
-for table in screens sectors; do
+# audit-screens.csv, audit-sectors.csv and audit-failures.csv: `audit --table screens|sectors|failures`
+for table in screens sectors failures; do
 	"$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}" -q \
 		--format csv --table $table >"$T/demo/audit-$table.cmd.csv" || fail "audit --table $table exited $?"
 	cmp -s "$T/demo/audit-$table.cmd.csv" "$T/demo/r/audit-$table.csv" ||

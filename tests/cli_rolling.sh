@@ -72,7 +72,7 @@ with open(sys.argv[1], "w") as out:
         out.write("%04d-%02d," % (1991 + k // 12, k % 12 + 1) +
                   ",".join("" if np.isnan(v) else repr(float(v)) for v in x[k]) + "\n")
 PY
-"$HC" rolling "$TMP/u.csv" --window 36 --step 5 --format csv > "$TMP/u-roll.csv"
+"$HC" rolling "$TMP/u.csv" --missing complete --window 36 --step 5 --format csv > "$TMP/u-roll.csv"
 "$PY" - "$TMP/u.csv" "$TMP/u-roll.csv" <<'PY' || fail=1
 import csv, math, sys
 import numpy as np
@@ -87,7 +87,8 @@ if len(out) != (len(x) - W) // S + 1:
 def count(meets, m):
     return next((n for n in range(1, m + 1) if meets(n)), None)
 for j, row in enumerate(out):
-    a = j * S
+    # anchored at the last period: the newest window ends at the last date
+    a = (len(x) - W) - (len(out) - 1 - j) * S
     win = x[a:a + W]
     keep = ~np.isnan(win).any(axis=0)
     y = win[:, keep]
@@ -131,16 +132,18 @@ cmp -s <("$HC" rolling "$TMP/u.csv" --window 36 --marginal 0.2pp --format csv) \
 [ "$(status rolling "$TMP/u.csv" --marginal 2x)" = 2 ] || say "bad --marginal: not exit 2"
 [ "$(status rolling "$TMP/u.csv" --premium 4%)" = 2 ] || say "--premium alone: not exit 2"
 # Nothing half-written: --output appears only complete.
-"$HC" rolling "$TMP/u.csv" --window 36 --step 5 --format csv -o "$TMP/o.csv"
+"$HC" rolling "$TMP/u.csv" --missing complete --window 36 --step 5 --format csv -o "$TMP/o.csv"
 cmp -s "$TMP/o.csv" "$TMP/u-roll.csv" || say "--output differs from standard output"
 
 # ---- 4. the report folder's rolling table and plot ---------------------------
 rm -rf "$TMP/rep"
 "$HC" report "$TMP/u.csv" -o "$TMP/rep" --window 36 --step 5 --paths 200 --bootstrap 20 --quiet \
 	|| say "report --window failed"
-cmp -s "$TMP/rep/rolling.csv" "$TMP/u-roll.csv" || say "report's rolling.csv differs from holdcount rolling"
+# the report reads the history period by period (--missing alive), as rolling does by default
+"$HC" rolling "$TMP/u.csv" --window 36 --step 5 --format csv >"$TMP/u-roll-alive.csv"
+cmp -s "$TMP/rep/rolling.csv" "$TMP/u-roll-alive.csv" || say "report's rolling.csv differs from holdcount rolling"
 [ -s "$TMP/rep/rolling.gp" ] && [ -s "$TMP/rep/rolling.dat" ] || say "no rolling plot script or data"
-"$PY" - "$TMP/rep/rolling.dat" "$TMP/u-roll.csv" "$TMP/rep/summary.json" <<'PY' || fail=1
+"$PY" - "$TMP/rep/rolling.dat" "$TMP/u-roll-alive.csv" "$TMP/rep/summary.json" <<'PY' || fail=1
 import csv, json, sys
 dat = [l.split() for l in open(sys.argv[1]) if not l.startswith("#")]
 out = list(csv.DictReader(open(sys.argv[2])))

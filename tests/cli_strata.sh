@@ -147,7 +147,8 @@ sectors="$HOLDCOUNT_SOURCE_DIR/data/demo-sectors.csv"
 import sys, csv
 rows = list(csv.reader(open(sys.argv[1])))
 ids = rows[0][1:]
-# the securities kept: complete over the whole history (the default policy)
+# the securities kept: complete over the whole history (--missing complete:
+# stratified draws need complete series)
 kept = [i for j, i in enumerate(ids) if all(r[j + 1] not in ("", "NA", "NaN", ".") for r in rows[1:])]
 sector = {r["id"]: r["sector"] for r in csv.DictReader(open(sys.argv[2]))}
 count = {}
@@ -157,7 +158,7 @@ print(sum(min(2, c) for c in count.values()), len(kept))
 PY
 read -r most kept <"$T/most"
 [ "$most" = 18 ] || fail "demo: sum of min(2, m_s) is $most, expected 18 (9 sectors of at least 2)"
-expect 0 "" -- curve "$demo" --strata "$sectors" --strata-column sector --per-stratum-max 2 \
+expect 0 "" -- curve "$demo" --missing complete --strata "$sectors" --strata-column sector --per-stratum-max 2 \
 	--paths 300 --quiet --format json
 "$PY" - "$T/out" "$most" "$kept" <<'PY' || fail "demo curve: the feasibility note"
 import sys, json
@@ -171,7 +172,7 @@ want = ("stratified: no portfolio of more than %d holdings has at most 2 in ever
 assert want in j["cautions"], (want, j["cautions"])
 assert out[-1] == kept, out
 PY
-expect 0 "" -- enough "$demo" --strata "$sectors" --strata-column sector --per-stratum-max 2 \
+expect 0 "" -- enough "$demo" --missing complete --strata "$sectors" --strata-column sector --per-stratum-max 2 \
 	--paths 300 --bootstrap 0 --format csv
 "$PY" - "$T/out" "$most" <<'PY' || fail "demo enough: not met up to $most"
 import sys, csv
@@ -216,6 +217,9 @@ with open(sys.argv[2], "w") as fp:
 PY
 need="needs one of --per-stratum-max K (K at least 1) or --proportional"
 expect 2 "holdcount curve: --strata $need" -- curve "$T/u.csv" --strata "$T/map.csv" --quiet
+# a history with gaps read period by period (the default): stratified draws need complete series
+expect 2 "holdcount curve: --strata draws from complete return series, and '$demo' has gaps: --missing complete keeps only the securities with none" -- \
+	curve "$demo" --strata "$sectors" --strata-column sector --per-stratum-max 2 --quiet
 expect 2 "holdcount enough: --strata $need" -- enough "$T/u.csv" --strata "$T/map.csv" --quiet
 expect 2 "holdcount curve: --strata $need" -- curve "$T/u.csv" --strata "$T/map.csv" --per-stratum-max 2 --proportional --quiet
 expect 2 "holdcount curve: --per-stratum-max and --proportional need --strata FILE" -- curve "$T/u.csv" --per-stratum-max 2 --quiet

@@ -1023,6 +1023,8 @@ static void test_audit_allocation_failures(void **state)
 	assert_int_equal(hc_holdings_labels_load_buffer(&l, "s.csv", "id,s\nQX01,A\n", strlen("id,s\nQX01,A\n"), 0, &err), HC_OK);
 	options(&opt, 50);
 	opt.sectors = l;
+	opt.policy.min_holdings = 2;          /* Juniper fails: the failures table has a row */
+	opt.benchmark = &h->funds[1];         /* active share's sorted benchmark */
 	for (k = 0; rc == HC_ENOMEM; k++) {
 		hc_alloc_fail_after(k);
 		rc = hc_audit_run(&a, h, fixture_series(fx.u), &fx.mo, &opt, &err);
@@ -1070,6 +1072,280 @@ static void test_audit_allocation_failures(void **state)
 	hc_universe_free(fx.u);
 }
 
+/* ---- holdings as administrators send them (issue 16) ---- */
+
+static void test_audit_statute_readings_sixteen_issuers(void **state)
+{
+	/* Sixteen issuers at 6.25% each (100%).  1940 Act s. 5(b)(1) and IRC
+	 * s. 851(b)(3)(A), from memory of the text ("limited in respect of any
+	 * one issuer to an amount not greater than 5 per centum"; verify with
+	 * counsel): read as "excluded", no issuer is within 5%, so the basket is
+	 * 0% and both screens fail; read as "capped", each counts 5%, so the
+	 * basket is 16 x 5% = 80%, above 75% and 50%, and both pass (the
+	 * s. 851(b)(3)(B) 25% issuer limit holds: 6.25%). */
+	static const double pct[] = { 6.25, 6.25, 6.25, 6.25, 6.25, 6.25, 6.25, 6.25,
+				      6.25, 6.25, 6.25, 6.25, 6.25, 6.25, 6.25, 6.25 };
+	struct audit_options opt;
+	struct audit_result *a;
+	struct holdings *h;
+	struct fixture fx;
+	const struct audit_fund *af;
+
+	fixture_load(&fx, 20, 36, 3, 0);
+	h = fund_of(pct, 16, NULL);
+	options(&opt, 0);
+	a = run(h, &fx, &opt);
+	af = &a->funds[0];
+	assert_near(af->basket_1940[AUDIT_READING_EXCLUDED], 0, 0);
+	assert_near(af->basket_1940[AUDIT_READING_CAPPED], 0.80, 1e-14);
+	assert_near(af->basket_ric[AUDIT_READING_EXCLUDED], 0, 0);
+	assert_near(af->basket_ric[AUDIT_READING_CAPPED], 0.80, 1e-14);
+	assert_false(af->checks[AUDIT_PART_1940ACT_SMALL].passed);
+	assert_false(af->checks[AUDIT_PART_RIC_SMALL].passed);
+	assert_true(af->checks[AUDIT_PART_1940ACT_OTHER].passed);    /* capped, shown beside */
+	assert_near(af->checks[AUDIT_PART_1940ACT_OTHER].figure, 0.80, 1e-14);
+	assert_true(af->checks[AUDIT_PART_RIC_OTHER].passed);
+	assert_true(af->checks[AUDIT_PART_RIC_ISSUER].passed);
+	assert_false(af->screen_passed[1]);
+	assert_false(af->screen_passed[2]);
+	hc_audit_result_free(a);
+	opt.reading = AUDIT_READING_CAPPED;
+	a = run(h, &fx, &opt);
+	af = &a->funds[0];
+	assert_true(af->checks[AUDIT_PART_1940ACT_SMALL].passed);
+	assert_near(af->checks[AUDIT_PART_1940ACT_SMALL].figure, 0.80, 1e-14);
+	assert_false(af->checks[AUDIT_PART_1940ACT_OTHER].passed);  /* excluded, shown beside */
+	assert_near(af->checks[AUDIT_PART_1940ACT_OTHER].figure, 0, 0);
+	assert_true(af->screen_passed[1]);
+	assert_true(af->screen_passed[2]);
+	assert_false(af->screen_passed[0]);   /* UCITS: 100% in issuers above 5%, over 40% */
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
+}
+
+/* Birch: cash 8%, a government security 12%, another fund's shares 5%,
+ * issuer IA in two share classes (5% + 4%), IB 7%, IC 5%, ID 4.5% and
+ * eleven issuers at 4.5% (49.5%): 100% of net assets. */
+static const char birch_text[] =
+	"fund,id,value,issuer,type\n"
+	"Birch,CASH-EUR,\"80,000.00\",,cash\n"
+	"Birch,QX17,\"120,000.00\",Treasury N,government security\n"
+	"Birch,QX18,\"50,000.00\",Fund F,investment-company share\n"
+	"Birch,QX01,\"50,000.00\",IA,security\n"
+	"Birch,QX02,\"40,000.00\",IA,security\n"
+	"Birch,QX03,\"70,000.00\",IB,\n"
+	"Birch,QX04,\"50,000.00\",IC,security\n"
+	"Birch,QX05,\"45,000.00\",ID,other\n"
+	"Birch,QX06,\"45,000.00\",I6,security\nBirch,QX07,\"45,000.00\",I7,security\n"
+	"Birch,QX08,\"45,000.00\",I8,security\nBirch,QX09,\"45,000.00\",I9,security\n"
+	"Birch,QX10,\"45,000.00\",I10,security\nBirch,QX11,\"45,000.00\",I11,security\n"
+	"Birch,QX12,\"45,000.00\",I12,security\nBirch,QX13,\"45,000.00\",I13,security\n"
+	"Birch,QX14,\"45,000.00\",I14,security\nBirch,QX15,\"45,000.00\",I15,security\n"
+	"Birch,QX16,\"45,000.00\",I16,security\n";
+
+static void test_audit_cash_kinds_and_baskets_by_hand(void **state)
+{
+	/* By hand (of net assets, 1,000,000):
+	 *   1940 Act / s. 851 basket, excluded: cash 8 + government 12 + fund
+	 *     shares 5 + issuers within 5% (IC 5, ID 4.5, eleven x 4.5 = 49.5)
+	 *     = 84%; capped: the same plus IA and IB at 5% each = 94%.
+	 *   UCITS: largest issuer IA 9% (two share classes); above 5%: IA 9 +
+	 *     IB 7 = 16% (IC at exactly 5% is not above); largest government
+	 *     issuer 12%.
+	 *   Cash is not a holding: 18 positions; 17 issuers (IA..ID, I6..I16,
+	 *     Treasury N, Fund F).  Invested (gross)
+	 *     92%: HHI = sum w^2 / 0.92^2 by line and by issuer. */
+	double line2 = 0.12 * 0.12 + 0.05 * 0.05 + 0.05 * 0.05 + 0.04 * 0.04 + 0.07 * 0.07 + 0.05 * 0.05 +
+		       12 * 0.045 * 0.045;
+	double issuer2 = 0.12 * 0.12 + 0.05 * 0.05 + 0.09 * 0.09 + 0.07 * 0.07 + 0.05 * 0.05 + 12 * 0.045 * 0.045;
+	struct holdings *h = holdings_text(birch_text);
+	struct audit_options opt;
+	struct audit_result *a;
+	struct fixture fx;
+	const struct audit_fund *af;
+
+	fixture_load(&fx, 20, 36, 3, 0);
+	options(&opt, 0);
+	a = run(h, &fx, &opt);
+	af = &a->funds[0];
+	assert_int_equal(af->holdings, 18);
+	assert_int_equal(af->issuers, 17);
+	assert_near(af->cash_weight, 0.08, 1e-15);
+	assert_near(af->government_weight, 0.12, 1e-15);
+	assert_near(af->fund_share_weight, 0.05, 1e-15);
+	assert_near(af->gross_exposure, 0.92, 1e-14);
+	assert_near(af->net_exposure, 0.92, 1e-14);
+	assert_near(af->max_weight, 0.12, 1e-15);
+	assert_string_equal(af->max_id, "QX17");
+	assert_near(af->hhi, line2 / (0.92 * 0.92), 1e-14);
+	assert_near(af->effective_holdings, 0.92 * 0.92 / line2, 1e-12);
+	assert_near(af->issuer_hhi, issuer2 / (0.92 * 0.92), 1e-14);
+	assert_near(af->basket_1940[AUDIT_READING_EXCLUDED], 0.84, 1e-14);
+	assert_near(af->basket_1940[AUDIT_READING_CAPPED], 0.94, 1e-14);
+	assert_near(af->basket_ric[AUDIT_READING_EXCLUDED], 0.84, 1e-14);
+	assert_near(af->basket_ric[AUDIT_READING_CAPPED], 0.94, 1e-14);
+	assert_near(af->checks[AUDIT_PART_UCITS_ISSUER].figure, 0.09, 1e-15);
+	assert_string_equal(af->checks[AUDIT_PART_UCITS_ISSUER].issuer, "IA");
+	assert_near(af->checks[AUDIT_PART_UCITS_AGGREGATE].figure, 0.16, 1e-15);
+	assert_near(af->checks[AUDIT_PART_UCITS_GOVERNMENT].figure, 0.12, 1e-15);
+	assert_string_equal(af->checks[AUDIT_PART_UCITS_GOVERNMENT].issuer, "Treasury N");
+	assert_near(af->checks[AUDIT_PART_RIC_ISSUER].figure, 0.09, 1e-15);
+	assert_true(af->screen_passed[0] && af->screen_passed[1] && af->screen_passed[2]);
+	assert_false(af->checks[AUDIT_PART_UCITS_GROUP].applies);   /* no group column */
+	/* cash has no history and is not missing: coverage is whole */
+	assert_int_equal(af->nmissing, 0);
+	assert_near(af->covered_weight, 1, 1e-15);
+	assert_int_equal(af->risk_holdings, 18);
+	assert_int_equal(af->verdict, AUDIT_VERDICT_PASSED);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
+}
+
+static void test_audit_shorts_gross_net_and_cash_risk(void **state)
+{
+	/* QX01 60%, QX02 50%, QX03 -20%, cash 10% of net assets.  Gross 130%,
+	 * net 90%, short 20%; HHI on gross weights (0.36 + 0.25 + 0.04)/1.3^2;
+	 * --max-weight 55% fails on |60%|.  Risk with cash excluded: weights
+	 * over the net invested 0.9; with cash at zero variance: over 1, so the
+	 * sd is exactly 0.9 times as large (against w'Aw formed entry by entry). */
+	const char *text = "fund,id,weight,type\nAsh,QX01,0.6,\nAsh,QX02,0.5,\nAsh,QX03,-0.2,\nAsh,CASH,0.1,cash\n";
+	struct holdings_options ho;
+	struct holdings *h;
+	struct audit_options opt;
+	struct audit_result *a, *z;
+	struct fixture fx;
+	struct hc_error err;
+	size_t idx[3] = { 0, 1, 2 };
+	double w[3] = { 0.6 / 0.9, 0.5 / 0.9, -0.2 / 0.9 };
+
+	fixture_load(&fx, 8, 36, 5, 0);
+	hc_holdings_options_init(&ho);
+	ho.allow_short = 1;
+	assert_int_equal(hc_holdings_load_buffer(&h, "h.csv", text, strlen(text), &ho, &err), HC_OK);
+	options(&opt, 0);
+	opt.policy.max_weight = 0.55;
+	a = run(h, &fx, &opt);
+	assert_near(a->funds[0].gross_exposure, 1.3, 1e-15);
+	assert_near(a->funds[0].net_exposure, 0.9, 1e-15);
+	assert_near(a->funds[0].short_exposure, 0.2, 1e-15);
+	assert_near(a->funds[0].hhi, 0.65 / 1.69, 1e-15);
+	assert_int_equal(a->funds[0].holdings, 3);
+	assert_true(a->funds[0].failed & AUDIT_RULE_MAX_WEIGHT);
+	assert_int_equal(a->funds[0].verdict, AUDIT_VERDICT_FAILED);
+	assert_rel(a->funds[0].variance, 12 * quad_form(fx.u, idx, w, 3), 1e-12);
+	opt.cash_risk = AUDIT_CASH_ZERO;
+	z = run(h, &fx, &opt);
+	assert_rel(z->funds[0].sd, 0.9 * a->funds[0].sd, 1e-12);
+	hc_audit_result_free(z);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
+}
+
+static void test_audit_ucits_group_limit(void **state)
+{
+	/* UCITS Art. 52(5) (from memory): a group of companies counts as one
+	 * body, 20% together.  G1 = IA 9% + IB 8% + IC 3% = 20% passes; moving
+	 * 0.01% from the ungrouped QX05 into IC makes 20.01%, which fails. */
+	const char *ok = "fund,id,weight,issuer,group\nElm,QX01,9%,IA,G1\nElm,QX02,8%,IB,G1\nElm,QX03,3%,IC,G1\n"
+			 "Elm,QX04,5%,ID,G2\nElm,QX05,75%,IE,\n";
+	const char *over = "fund,id,weight,issuer,group\nElm,QX01,9%,IA,G1\nElm,QX02,8%,IB,G1\nElm,QX03,3.01%,IC,G1\n"
+			   "Elm,QX04,5%,ID,G2\nElm,QX05,74.99%,IE,\n";
+	struct holdings *h;
+	struct audit_options opt;
+	struct audit_result *a;
+	struct fixture fx;
+
+	fixture_load(&fx, 8, 36, 5, 0);
+	options(&opt, 0);
+	h = holdings_text(ok);
+	a = run(h, &fx, &opt);
+	assert_true(a->has_groups);
+	assert_true(a->funds[0].checks[AUDIT_PART_UCITS_GROUP].applies);
+	assert_true(a->funds[0].checks[AUDIT_PART_UCITS_GROUP].passed);
+	assert_near(a->funds[0].max_group_weight, 0.20, 1e-15);
+	assert_string_equal(a->funds[0].max_group, "G1");
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	h = holdings_text(over);
+	a = run(h, &fx, &opt);
+	assert_false(a->funds[0].checks[AUDIT_PART_UCITS_GROUP].passed);
+	assert_near(a->funds[0].checks[AUDIT_PART_UCITS_GROUP].figure, 0.2001, 1e-15);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
+}
+
+static void test_audit_coverage_verdict(void **state)
+{
+	/* One id the universe lacks: at 4.99% of the invested weight the fund
+	 * is 95.01% covered and passes; at 5.01%, 94.99%, it has insufficient
+	 * data; with a failed rule it fails whatever its coverage. */
+	const char *in = "fund,id,weight\nOak,QX01,50%\nOak,QX02,45.01%\nOak,ZZ99,4.99%\n";
+	const char *out = "fund,id,weight\nOak,QX01,50%\nOak,QX02,44.99%\nOak,ZZ99,5.01%\n";
+	struct holdings *h;
+	struct audit_options opt;
+	struct audit_result *a;
+	struct fixture fx;
+
+	fixture_load(&fx, 8, 36, 5, 0);
+	options(&opt, 0);
+	h = holdings_text(in);
+	a = run(h, &fx, &opt);
+	assert_near(a->funds[0].covered_weight, 0.9501, 1e-15);
+	assert_int_equal(a->funds[0].risk_holdings, 2);
+	assert_int_equal(a->funds[0].verdict, AUDIT_VERDICT_PASSED);
+	assert_int_equal(a->insufficient_funds, 0);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	h = holdings_text(out);
+	a = run(h, &fx, &opt);
+	assert_near(a->funds[0].covered_weight, 0.9499, 1e-15);
+	assert_int_equal(a->funds[0].verdict, AUDIT_VERDICT_INSUFFICIENT);
+	assert_int_equal(a->insufficient_funds, 1);
+	assert_int_equal(a->failed_funds, 0);
+	hc_audit_result_free(a);
+	opt.policy.min_holdings = 4;
+	a = run(h, &fx, &opt);
+	assert_int_equal(a->funds[0].verdict, AUDIT_VERDICT_FAILED);
+	assert_int_equal(a->insufficient_funds, 0);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
+}
+
+static void test_audit_active_share(void **state)
+{
+	/* Cremers & Petajisto (2009), Review of Financial Studies 22(9): half
+	 * the sum of |fund - benchmark| over every id.  Fund (cash 10% left
+	 * out): 45/27/18 of 90 = 0.5, 0.3, 0.2; benchmark 0.4, 0.2 and QX04 0.4:
+	 * (0.1 + 0.1 + 0.2 + 0.4)/2 = 0.4. */
+	const char *fund = "fund,id,weight,type\nPine,QX01,45%,\nPine,QX02,27%,\nPine,QX03,18%,\nPine,CASH,10%,cash\n";
+	const char *bench = "id,weight\nQX01,0.4\nQX02,0.2\nQX04,0.4\n";
+	struct holdings_options ho;
+	struct holdings *h, *b;
+	struct audit_options opt;
+	struct audit_result *a;
+	struct fixture fx;
+	struct hc_error err;
+
+	fixture_load(&fx, 8, 36, 5, 0);
+	h = holdings_text(fund);
+	hc_holdings_options_init(&ho);
+	ho.single_fund = "benchmark";
+	assert_int_equal(hc_holdings_load_buffer(&b, "b.csv", bench, strlen(bench), &ho, &err), HC_OK);
+	options(&opt, 0);
+	opt.benchmark = &b->funds[0];
+	a = run(h, &fx, &opt);
+	assert_near(a->funds[0].active_share, 0.4, 1e-15);
+	hc_audit_result_free(a);
+	hc_holdings_free(b);
+	hc_holdings_free(h);
+	hc_universe_free(fx.u);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -1092,6 +1368,12 @@ int main(void)
 		cmocka_unit_test(test_audit_parse_screens),
 		cmocka_unit_test(test_audit_report_csv_columns_and_json_screens),
 		cmocka_unit_test(test_audit_allocation_failures),
+		cmocka_unit_test(test_audit_statute_readings_sixteen_issuers),
+		cmocka_unit_test(test_audit_cash_kinds_and_baskets_by_hand),
+		cmocka_unit_test(test_audit_shorts_gross_net_and_cash_risk),
+		cmocka_unit_test(test_audit_ucits_group_limit),
+		cmocka_unit_test(test_audit_coverage_verdict),
+		cmocka_unit_test(test_audit_active_share),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

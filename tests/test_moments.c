@@ -426,7 +426,8 @@ static void expect_budget(struct universe *u, int route, size_t bytes)
  *   matrix, 23 x 61: held 23*61, centred copy 23*61, one block of
  *     min(23, MOMENTS_BLOCK_ROWS) = 23 rows of 23, v 23 doubles, r 23 long doubles;
  *   Gram, 37 x 13: held 37*13, centred copy 37*13, Gram 13*13, two 13-vectors;
- *   pairwise, 23 x 61: held 23*61, the 23 x 23 matrix;
+ *   pairwise, 23 x 61: held 23*61, three 23 x 23 arrays and three 23 x 61 copies
+ *     in double and one of each in float (the masked Gram products);
  *   hc_moments_covariance, 23 x 61 complete: held, centred copy, 23 x 23. */
 static void test_moments_memory_budget(void **state)
 {
@@ -440,7 +441,7 @@ static void test_moments_memory_budget(void **state)
 	expect_budget(a, MOMENTS_ROUTE_MATRIX, 8 * (23 * 61 * 2 + 23 * 23 + 23) + 23 * sizeof(long double));
 	expect_budget(g, MOMENTS_ROUTE_GRAM, 8 * (37 * 13 * 2 + 13 * 13 + 2 * 13));
 	a->has_missing = 1;
-	expect_budget(a, MOMENTS_ROUTE_PAIRWISE, 8 * (23 * 61 + 23 * 23));
+	expect_budget(a, MOMENTS_ROUTE_PAIRWISE, 8 * (23 * 61 + 3 * 23 * 23 + 3 * 23 * 61) + 4 * (23 * 23 + 23 * 61));
 	a->has_missing = 0;
 	a->max_bytes = 8 * (23 * 61 * 2 + 23 * 23) - 1;
 	assert_int_equal(hc_moments_covariance(a, &cov, &err), HC_ENOMEM);

@@ -196,8 +196,12 @@ static void test_plots_funds_mark_a_failing_fund(void **state)
 	memset(&ar, 0, sizeof ar);
 	funds[0].name = "Tarn Ledger Fund", funds[0].holdings = 12, funds[0].effective_holdings = 9.385;
 	funds[0].sd = 0.0905, funds[0].risk_known = 1, funds[0].passed = 1;
+	funds[0].risk_holdings = 12, funds[0].covered_weight = 1;
 	funds[1].name = "Moss Quill Fund", funds[1].holdings = 25, funds[1].effective_holdings = 21.85;
 	funds[1].sd = 0.0815, funds[1].risk_known = 1, funds[1].passed = 0;
+	/* its risk rests on 13 of its 25 holdings, 52% of its weight: the plot
+	 * places it at 13 and says so beside its name */
+	funds[1].risk_holdings = 13, funds[1].covered_weight = 0.52;
 	ar.funds = funds;
 	ar.nfunds = 2;
 	make_tmpdir("funds");
@@ -221,7 +225,9 @@ static void test_plots_funds_mark_a_failing_fund(void **state)
 			continue;
 		assert_int_equal(sscanf(line, "%zu %lf %lf %d %lf %lf %d", &h, &e, &sd, &passed, &x, &y, &ends), 7);
 		assert_int_equal(passed, rows == 0);
-		assert_non_null(strstr(line, rows == 0 ? "\"Tarn Ledger Fund\"" : "\"Moss Quill Fund (fails the policy)\""));
+		assert_non_null(strstr(line, rows == 0 ? "\"Tarn Ledger Fund\""
+					      : "\"Moss Quill Fund (risk on 52%, 13 of 25 holdings) (fails the policy)\""));
+		assert_int_equal(h, rows == 0 ? 12 : 13);
 		rows++;
 	}
 	fclose(fp);

@@ -314,6 +314,99 @@ static void test_report_json_refuses_a_key_used_twice(void **state)
 	hc_report_free(r);
 }
 
+/* hc_report_table_nest: in JSON a parent row's cell becomes the array of
+ * the child rows with the same join text, each without the join column;
+ * CSV keeps the cell as set; a missing column is refused. */
+static void test_report_json_nests_a_table(void **state)
+{
+	struct report *r = hc_report_alloc();
+	struct report_table *p, *c;
+	cJSON *doc, *rows, *arr, *o;
+	char *s;
+	int rc;
+
+	(void)state;
+	assert_non_null(r);
+	assert_non_null(p = hc_report_add_table(r, "funds", "funds"));
+	assert_int_equal(hc_report_table_add_column(p, "fund", "fund", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(p, "failed", "failed", REPORT_STYLE_PLAIN), HC_OK);
+	assert_non_null(c = hc_report_add_table(r, "failures", "failures"));
+	assert_int_equal(hc_report_table_add_column(c, "fund", "fund", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(c, "check", "check", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(c, "figure", "figure", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_row(p), HC_OK);
+	assert_int_equal(hc_report_table_set_text(p, 0, 0, "A"), HC_OK);
+	assert_int_equal(hc_report_table_set_text(p, 0, 1, "x;y"), HC_OK);
+	assert_int_equal(hc_report_table_add_row(p), HC_OK);
+	assert_int_equal(hc_report_table_set_text(p, 1, 0, "B"), HC_OK);
+	assert_int_equal(hc_report_table_set_text(p, 1, 1, ""), HC_OK);
+	assert_int_equal(hc_report_table_add_row(c), HC_OK);
+	assert_int_equal(hc_report_table_set_text(c, 0, 0, "A"), HC_OK);
+	assert_int_equal(hc_report_table_set_text(c, 0, 1, "x"), HC_OK);
+	hc_report_table_set_real(c, 0, 2, 0.25);
+	assert_int_equal(hc_report_table_add_row(c), HC_OK);
+	assert_int_equal(hc_report_table_set_text(c, 1, 0, "A"), HC_OK);
+	assert_int_equal(hc_report_table_set_text(c, 1, 1, "y"), HC_OK);
+	hc_report_table_set_real(c, 1, 2, 1.5);
+	assert_int_equal(hc_report_table_nest(p, "failed", c, "nofund"), HC_EINTERNAL);
+	assert_int_equal(hc_report_table_nest(p, "nothing", c, "fund"), HC_EINTERNAL);
+	assert_null(p->nest);
+	assert_int_equal(hc_report_table_nest(p, "failed", c, "fund"), HC_OK);
+	s = render(hc_report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_non_null(doc = cJSON_Parse(s));
+	free(s);
+	rows = cJSON_GetObjectItemCaseSensitive(doc, "funds");
+	assert_int_equal(cJSON_GetArraySize(rows), 2);
+	arr = cJSON_GetObjectItemCaseSensitive(cJSON_GetArrayItem(rows, 0), "failed");
+	assert_true(cJSON_IsArray(arr));
+	assert_int_equal(cJSON_GetArraySize(arr), 2);
+	o = cJSON_GetArrayItem(arr, 1);
+	assert_null(cJSON_GetObjectItemCaseSensitive(o, "fund"));
+	assert_string_equal(cJSON_GetObjectItemCaseSensitive(o, "check")->valuestring, "y");
+	assert_true(cJSON_GetObjectItemCaseSensitive(o, "figure")->valuedouble == 1.5);
+	arr = cJSON_GetObjectItemCaseSensitive(cJSON_GetArrayItem(rows, 1), "failed");
+	assert_true(cJSON_IsArray(arr));
+	assert_int_equal(cJSON_GetArraySize(arr), 0);
+	/* the child table is still written on its own */
+	assert_int_equal(cJSON_GetArraySize(cJSON_GetObjectItemCaseSensitive(doc, "failures")), 2);
+	cJSON_Delete(doc);
+	expect_render(hc_report_writer_csv, r, "fund,failed\nA,x;y\nB,\n");
+	hc_report_free(r);
+}
+
+/* JSON is valid UTF-8 whatever the text: a byte that starts no valid
+ * sequence (a Latin-1 e-acute 0xE9, a lone continuation byte 0x80, an
+ * overlong 0xC0 0xAF, a surrogate 0xED 0xA0 0x80: RFC 3629 section 3) becomes
+ * U+FFFD, valid sequences stay; CSV keeps the bytes as given. */
+static void test_report_json_replaces_invalid_utf8(void **state)
+{
+	struct report *r = hc_report_alloc();
+	cJSON *doc;
+	char *s;
+	int rc;
+
+	(void)state;
+	assert_non_null(r);
+	assert_int_equal(hc_report_add_text(r, "input", "input", "caf\xe9 \xc3\xa9\x80|\xc0\xaf|\xed\xa0\x80|\xf0\x9f\x98\x80"), HC_OK);
+	assert_int_equal(hc_report_add_note(r, "from 'x\xe9.csv'"), HC_OK);
+	s = render(hc_report_writer_json, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_non_null(doc = cJSON_Parse(s));
+	free(s);
+	assert_string_equal(cJSON_GetObjectItemCaseSensitive(doc, "input")->valuestring,
+			    "caf\xef\xbf\xbd \xc3\xa9\xef\xbf\xbd|\xef\xbf\xbd\xef\xbf\xbd|"
+			    "\xef\xbf\xbd\xef\xbf\xbd\xef\xbf\xbd|\xf0\x9f\x98\x80");
+	assert_string_equal(cJSON_GetArrayItem(cJSON_GetObjectItemCaseSensitive(doc, "cautions"), 0)->valuestring,
+			    "from 'x\xef\xbf\xbd.csv'");
+	cJSON_Delete(doc);
+	s = render(hc_report_writer_csv, r, &rc);
+	assert_int_equal(rc, HC_OK);
+	assert_non_null(strstr(s, "caf\xe9 "));
+	free(s);
+	hc_report_free(r);
+}
+
 /* Long notes wrap at 79 columns with a two-space hanging indent; short
  * ones stay on one line (the golden test above). */
 static void test_report_text_wraps_notes(void **state)
@@ -550,6 +643,8 @@ int main(void)
 		cmocka_unit_test(test_report_json_golden_and_round_trip),
 		cmocka_unit_test(test_report_json_numbers_round_trip),
 		cmocka_unit_test(test_report_json_refuses_a_key_used_twice),
+		cmocka_unit_test(test_report_json_nests_a_table),
+		cmocka_unit_test(test_report_json_replaces_invalid_utf8),
 		cmocka_unit_test(test_report_text_wraps_notes),
 		cmocka_unit_test(test_report_writer_find),
 		cmocka_unit_test(test_report_cautions_cover_each_subject),

@@ -386,8 +386,8 @@ static void test_rolling_rejects_bad_options(void **state)
 	opts(&o, 12, 0);
 	expect_usage(u, &o, "step of 0");
 	opts(&o, 12, 1);
-	o.missing = UNIVERSE_MISSING_KEEP;
-	expect_usage(u, &o, "complete-data or the pairwise");
+	o.missing = 7;
+	expect_usage(u, &o, "complete-data, pairwise or per-period");
 	opts(&o, 12, 1);
 	o.missing = UNIVERSE_MISSING_PAIRWISE;
 	o.replicates = 10;

@@ -515,6 +515,23 @@ static void test_universe_detect_periods(void **state)
 	for (i = 0; i < 60; i++)
 		d[i] = day("2021-01-04") + (int32_t)i;
 	assert_true(hc_universe_detect_periods(d, 60) == 365);   /* calendar days, weekends included */
+	/* a Sunday-to-Thursday week is five trading days a week, as Monday to
+	 * Friday is: 252, not 365 (weekdays from Sunday 2021-01-03) */
+	for (i = 0, n = 0; n < 60; i++) {
+		int32_t x = day("2021-01-03") + (int32_t)i, wd = ((x % 7) + 7 + 4) % 7;
+
+		if (wd != 5 && wd != 6)
+			d[n++] = x;
+	}
+	assert_true(hc_universe_detect_periods(d, n) == 252);
+	/* six days (Monday to Saturday): 6/5 of 252 */
+	for (i = 0, n = 0; n < 60; i++) {
+		int32_t x = day("2021-01-04") + (int32_t)i;
+
+		if (((x % 7) + 7 + 4) % 7 != 0)
+			d[n++] = x;
+	}
+	assert_true(hc_universe_detect_periods(d, n) == 302);
 	for (i = 0; i < 60; i++)
 		d[i] = day("2021-01-08") + 7 * (int32_t)i;
 	assert_true(hc_universe_detect_periods(d, 60) == 52);
@@ -712,6 +729,75 @@ static void test_universe_derived_allocation_failure(void **state)
 	hc_universe_free(u);
 }
 
+/* --frequency monthly on returns: (1 + r_1)(1 + r_2) - 1 within each month,
+ * missing when none is observed; dated by the month's last date read.
+ * Values worked by hand (exact in binary: 0.5, 0.25, 1.0, -0.5). */
+static void test_universe_frequency_compounds(void **state)
+{
+	static const char text[] =
+		"date,LIR901,LIR902\n"
+		"2024-01-30,0.5,\n"
+		"2024-01-31,0.5,\n"
+		"2024-02-01,0.25,1.0\n"
+		"2024-02-29,-0.5,\n"
+		"2024-03-04,0.25,-0.5\n"
+		"2024-03-28,0.5,0.25\n";
+	struct universe_options o;
+	struct universe *u = NULL;
+	struct hc_error err;
+
+	(void)state;
+	hc_universe_options_init(&o);
+	o.missing = UNIVERSE_MISSING_KEEP;
+	o.frequency = UNIVERSE_FREQ_MONTHLY;
+	assert_int_equal(hc_universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err), HC_OK);
+	assert_int_equal(u->t, 3);
+	assert_int_equal(u->periods_read, 6);
+	assert_close(u->x[0], 1.25, 0);            /* 1.5 x 1.5 - 1 */
+	assert_close(u->x[1], -0.375, 0);          /* 1.25 x 0.5 - 1 */
+	assert_close(u->x[2], 0.875, 0);           /* 1.25 x 1.5 - 1 */
+	assert_true(isnan(u->x[3]));                      /* nothing in January */
+	assert_close(u->x[4], 1.0, 0);
+	assert_close(u->x[5], -0.375, 0);          /* 0.5 x 1.25 - 1 */
+	assert_int_equal(u->dates[0], 19753);             /* 2024-01-31 */
+	assert_int_equal(u->dates[1], 19782);             /* 2024-02-29 */
+	assert_int_equal(u->dates[2], 19810);             /* 2024-03-28 */
+	hc_universe_free(u);
+}
+
+/* --bad-cells: a zero price and #N/A stop the load naming line and column,
+ * or (missing) become gaps, counted, the first named. */
+static void test_universe_bad_cells_option(void **state)
+{
+	static const char text[] =
+		"date,LIR901,LIR902\n"
+		"2024-01-02,10,20\n"
+		"2024-01-03,#N/A,25\n"
+		"2024-01-04,12.5,0\n"
+		"2024-01-05,15,30\n";
+	struct universe_options o;
+	struct universe *u = NULL;
+	struct hc_error err;
+
+	(void)state;
+	hc_universe_options_init(&o);
+	o.values = UNIVERSE_PRICES;
+	o.missing = UNIVERSE_MISSING_KEEP;
+	assert_int_equal(hc_universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err), HC_EDATA);
+	assert_non_null(strstr(err.message, "u.csv:3:2:"));
+	assert_non_null(strstr(err.message, "#N/A"));
+	o.bad_cells = UNIVERSE_BAD_MISSING;
+	assert_int_equal(hc_universe_load_buffer(&u, "u.csv", text, strlen(text), &o, &err), HC_OK);
+	assert_int_equal(u->bad_cells, 2);
+	assert_string_equal(u->bad_first, "u.csv:3:2: '#N/A' (a spreadsheet error value)");
+	assert_int_equal(u->t, 3);
+	assert_true(isnan(u->x[0]) && isnan(u->x[1]));   /* around the #N/A */
+	assert_close(u->x[2], 0.2, 1e-15);         /* 15 / 12.5 - 1 */
+	assert_close(u->x[3], 0.25, 0);            /* 25 / 20 - 1 */
+	assert_true(isnan(u->x[4]) && isnan(u->x[5]));   /* around the zero */
+	hc_universe_free(u);
+}
+
 int main(int argc, char **argv)
 {
 	heapcheck_rerun_without_tcache(argv);
@@ -725,7 +811,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_universe_long_errors),
 		cmocka_unit_test(test_universe_missing_policies),
 		cmocka_unit_test(test_universe_too_few_left),
-		cmocka_unit_test(test_universe_bad_cells),
+		cmocka_unit_test(test_universe_bad_cells_option),
 		cmocka_unit_test(test_universe_bad_ids),
 		cmocka_unit_test(test_universe_bad_rows_and_dates),
 		cmocka_unit_test(test_universe_zero_variance),
@@ -736,6 +822,8 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_universe_periods_override),
 		cmocka_unit_test(test_universe_window_and_resample),
 		cmocka_unit_test(test_universe_file),
+		cmocka_unit_test(test_universe_frequency_compounds),
+		cmocka_unit_test(test_universe_bad_cells),
 		cmocka_unit_test(test_universe_allocation_failure),
 		cmocka_unit_test(test_universe_derived_allocation_failure),
 	};

@@ -14,20 +14,37 @@
  * year (variance times P, sigma times sqrt(P): common practice under serially
  * independent returns).
  *
+ * Assets by kind (holdings.h, enum holding_type).  Weights are fractions of
+ * net assets (the fund's lines summed, cash included, shorts negative).
+ * Cash and cash equivalents are not a holding and not an issuer: counts,
+ * HHI, effective holdings and issuer limits leave them out.  "Invested
+ * assets" are the non-cash positions; the concentration figures (HHI,
+ * effective holdings by line and by issuer) use their absolute weights
+ * renormalised to sum to 1 (gross weights, so a short adds concentration as
+ * a long does).  Largest position, top-10 share, exposures and every statute
+ * figure are of net assets.  Risk figures are on invested assets by default
+ * (AUDIT_CASH_EXCLUDE) or on net assets with cash at zero variance
+ * (AUDIT_CASH_ZERO).
+ *
  * The screens are written from memory of the published texts; every output
  * must say so, and that the current text and compliance counsel decide:
  *   UCITS Directive 2009/65/EC Art. 52: no issuer above 10%; the issuers
- *     above 5% together at most 40%.
+ *     above 5% together at most 40%; government securities at most 35% per
+ *     issuer and outside the 40%; a group of companies at most 20% together
+ *     (when groups are given).  Shares of other funds fall under Art. 55, not
+ *     tested.
  *   US Investment Company Act of 1940, s. 5(b)(1), weight part: at least 75%
- *     of assets in issuers of at most 5% each (equivalently: issuers above 5%
- *     together at most 25%).  The 10%-of-voting-securities part needs shares
- *     outstanding and is not tested.
- *   US Internal Revenue Code s. 851(b)(3): at least 50% of assets in issuers
- *     of at most 5% each, and no issuer above 25%.
- * Issuer weights are the fund's weights summed over ids sharing an issuer.
- * Cash and government securities, which the texts let count towards the 75%
- * and 50% whatever their size, are not recognised: each row is an issuer.
- * With short positions an issuer's share is |net weight| / sum of |net weight|.
+ *     of assets in cash, government securities, other investment companies'
+ *     shares and other issuers "limited to" 5% each.  Two readings
+ *     (enum audit_reading): an issuer above 5% left out of the basket
+ *     (excluded, the stricter, the default) or counted up to 5% (capped).
+ *     The 10%-of-voting-securities part needs shares outstanding and is not
+ *     tested.
+ *   US Internal Revenue Code s. 851(b)(3): the same basket at 50% (RICs'
+ *     shares for investment companies'), under either reading, and no
+ *     issuer (government securities and RICs' shares aside) above 25%.
+ * Issuer weights are net weights summed over ids sharing an issuer (and
+ * kind), taken by absolute value.
  */
 #ifndef HOLDCOUNT_AUDIT_H
 #define HOLDCOUNT_AUDIT_H
@@ -48,6 +65,10 @@ extern "C" {
 
 /* Defaults, named once. */
 #define AUDIT_DEFAULT_PATHS 10000
+/* A fund whose risk figures rest on less than this share of its invested
+ * weight gets the verdict "insufficient data" (common practice: risk
+ * figures on 95% of a portfolio are taken as the portfolio's). */
+#define AUDIT_DEFAULT_MIN_COVERED_WEIGHT 0.95
 /* Weight limits are met within this (fractions): far below the 0.01%
  * granularity of a stated limit, far above rounding in a normalised sum. */
 #define AUDIT_DEFAULT_LIMIT_TOLERANCE 1e-9
@@ -82,7 +103,30 @@ enum audit_part {
 	AUDIT_PART_1940ACT_SMALL = 2,    /* issuers of at most 5% together >= 75% */
 	AUDIT_PART_RIC_SMALL = 3,        /* issuers of at most 5% together >= 50% */
 	AUDIT_PART_RIC_ISSUER = 4,       /* largest issuer <= 25% */
-	AUDIT_NPARTS = 5
+	AUDIT_PART_UCITS_GOVERNMENT = 5, /* largest government issuer <= 35% */
+	AUDIT_PART_UCITS_GROUP = 6,      /* largest group <= 20% (groups given) */
+	AUDIT_PART_1940ACT_OTHER = 7,    /* the 75% basket under the other reading: shown, not deciding */
+	AUDIT_PART_RIC_OTHER = 8,        /* the 50% basket under the other reading: shown, not deciding */
+	AUDIT_NPARTS = 9
+};
+
+/* How the 1940 Act and s. 851(b)(3) baskets count an issuer above 5%. */
+enum audit_reading {
+	AUDIT_READING_EXCLUDED = 0,  /* left out of the basket entirely (the default: the stricter) */
+	AUDIT_READING_CAPPED = 1     /* counted up to 5% */
+};
+
+/* How cash enters the risk figures. */
+enum audit_cash_risk {
+	AUDIT_CASH_EXCLUDE = 0,      /* risk of the invested assets, their weights renormalised (default) */
+	AUDIT_CASH_ZERO = 1          /* risk of net assets, cash held at zero variance */
+};
+
+/* A fund's verdict. */
+enum audit_verdict {
+	AUDIT_VERDICT_PASSED = 0,
+	AUDIT_VERDICT_FAILED = 1,        /* fails the policy (whatever its coverage) */
+	AUDIT_VERDICT_INSUFFICIENT = 2   /* passes, but its risk rests on too little of its weight */
 };
 
 struct audit_policy {
@@ -102,12 +146,17 @@ struct audit_options {
 	double limit_tolerance;     /* AUDIT_DEFAULT_LIMIT_TOLERANCE */
 	double tie_rtol;            /* AUDIT_DEFAULT_TIE_RTOL */
 	const struct holdings_labels *sectors;  /* id -> sector, or NULL */
+	int reading;                /* enum audit_reading deciding the baskets */
+	int cash_risk;              /* enum audit_cash_risk */
+	double min_covered_weight;  /* AUDIT_DEFAULT_MIN_COVERED_WEIGHT; 0 = no verdict */
+	const struct holdings_fund *benchmark;  /* weights for active share, or NULL */
 	sampler_progress_fn progress;
 	void *progress_ctx;
 };
 
-/* Defaults: paths AUDIT_DEFAULT_PATHS, seed 1, limit_tolerance and tie_rtol
- * their AUDIT_DEFAULT_* values, every rule and option off (zero/NULL).
+/* Defaults: paths AUDIT_DEFAULT_PATHS, seed 1, limit_tolerance, tie_rtol and
+ * min_covered_weight their AUDIT_DEFAULT_* values, reading excluded, cash
+ * risk excluded, every rule and option off (zero/NULL).
  * Set fields afterwards.  Cannot fail. */
 void hc_audit_options_init(struct audit_options *opt);
 
@@ -115,7 +164,8 @@ struct audit_check {
 	int passed;
 	double figure;              /* the figure that decided */
 	double limit;
-	const char *issuer;         /* the largest issuer, for the issuer parts; else NULL */
+	const char *issuer;         /* the largest issuer (or group), for those parts; else NULL */
+	int applies;                /* 0: nothing to test (no groups given); passed is 1 */
 };
 
 struct audit_missing {
@@ -132,13 +182,28 @@ struct audit_sector {
 
 struct audit_fund {
 	const char *name;           /* points into the holdings */
-	size_t holdings;            /* positions with non-zero weight */
+	size_t holdings;            /* non-cash positions with non-zero weight */
 	double weight_sum;          /* raw sum before normalisation (market value total for values) */
-	double max_weight;
+	double max_weight;          /* largest |weight| of a non-cash position, of net assets */
 	const char *max_id;         /* on a tie, the smallest id (strcmp order) */
-	double top10_share;
-	double hhi;                 /* sum of squared weights */
+	double top10_share;         /* ten largest |weights|, of net assets */
+	double hhi;                 /* sum of squared gross invested weights */
 	double effective_holdings;  /* 1/hhi */
+	double cash_weight;         /* cash and cash equivalents, of net assets */
+	double government_weight;   /* government securities, of net assets */
+	double fund_share_weight;   /* other investment companies' shares, of net assets */
+	double gross_exposure;      /* sum |w| of non-cash positions, of net assets */
+	double net_exposure;        /* sum w of non-cash positions, of net assets */
+	double short_exposure;      /* sum |w| of the negative positions */
+	size_t issuers;             /* distinct issuers of the non-cash positions */
+	double issuer_hhi;          /* sum of squared gross issuer shares of invested assets */
+	double effective_issuers;   /* 1/issuer_hhi */
+	double max_group_weight;    /* largest group of companies (NaN without groups) */
+	const char *max_group;
+	double covered_weight;      /* share of gross invested weight with a usable history */
+	int verdict;                /* enum audit_verdict */
+	double active_share;        /* against the benchmark; NaN without one */
+	double basket_1940[2], basket_ric[2];   /* the baskets under each enum audit_reading */
 	size_t nmissing;            /* ids not in the universe */
 	struct audit_missing *missing;
 	double missing_weight;
@@ -158,7 +223,7 @@ struct audit_fund {
 	double sector_hhi;          /* over sectors, the unmapped bucket counted as one */
 	const char *max_sector;
 	double max_sector_weight;   /* largest mapped sector; NaN without a map */
-	double issuer_max;          /* largest issuer share */
+	double issuer_max;          /* largest non-cash issuer's |net weight|, of net assets */
 	const char *issuer_max_id;  /* on a tie, the smallest issuer (strcmp order), as max_id */
 	struct audit_check checks[AUDIT_NPARTS];
 	int screen_passed[AUDIT_NSCREENS];
@@ -170,6 +235,11 @@ struct audit_result {
 	size_t nfunds;
 	struct audit_fund *funds;
 	size_t failed_funds;
+	size_t insufficient_funds;  /* verdict AUDIT_VERDICT_INSUFFICIENT */
+	double min_covered_weight;
+	int reading, cash_risk;
+	int has_benchmark;
+	int has_groups;
 	struct audit_policy policy;
 	int has_sectors;
 	size_t paths;
@@ -223,7 +293,11 @@ void hc_audit_result_free(struct audit_result *a);
  * equivalent_count has no value when there is no count, with the reason
  * "below the floor" (hc_report_table_set_none: that text in CSV and the text
  * table, null in JSON) and below_floor true;
- * failed_rules is a ';'-separated list of rule names (hc_audit_rule_name).
+ * failed_rules is a ';'-separated list of rule names (hc_audit_rule_name)
+ * in CSV and text, and in JSON the array of the fund's rows of table
+ * "failures" (check, figure, test, limit: hc_report_table_nest); table
+ * "failures" (fund,check,figure,test,limit) has one row per failed rule or
+ * screen part, so every reader gets the deciding figures.
  */
 int hc_audit_report(struct report **out, const struct audit_result *a,
 		 const struct holdings *h, struct hc_error *err);
@@ -235,6 +309,12 @@ int hc_audit_parse_screens(const char *text, unsigned *screens, struct hc_error 
 /* "min-holdings", "min-effective", "max-weight", "max-sector-weight",
  * "ucits", "1940act", "ric" for one AUDIT_RULE_* bit; NULL otherwise. */
 const char *hc_audit_rule_name(unsigned rule);
+
+/* "excluded", "capped" for an enum audit_reading; NULL otherwise. */
+const char *hc_audit_reading_name(int reading);
+
+/* "passed", "failed", "insufficient data" for an enum audit_verdict. */
+const char *hc_audit_verdict_name(int verdict);
 
 /* "ucits", "1940act", "ric" for AUDIT_SCREEN_* index 0..2. */
 const char *hc_audit_screen_name(int index);

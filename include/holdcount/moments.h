@@ -24,7 +24,8 @@ enum moments_route {
 	MOMENTS_ROUTE_MATRIX = 1,   /* the M x M covariance in row blocks through BLAS dgemm */
 	MOMENTS_ROUTE_PAIRWISE = 2, /* pairwise-complete covariances (data with gaps) */
 	MOMENTS_ROUTE_GIVEN = 3,    /* a covariance matrix was supplied */
-	MOMENTS_ROUTE_SUMMARY = 4   /* only average variance and covariance are known */
+	MOMENTS_ROUTE_SUMMARY = 4,  /* only average variance and covariance are known */
+	MOMENTS_ROUTE_PERIODIC = 5  /* per-period sums of a ragged history (periodic.h) */
 };
 
 /* Rows of the covariance matrix the matrix route computes at a time (its
@@ -70,7 +71,8 @@ void hc_moments_blas_serial(void);
  * matrix route; data with gaps uses pairwise-complete covariances.
  * Memory besides the universe: the centred copy (M x T) and the T x T Gram
  * matrix, or the centred copy and MOMENTS_BLOCK_ROWS x M doubles (matrix
- * route), or the M x M matrix (pairwise); checked first against the
+ * route), or four M x M arrays and four M x T copies, one of each in
+ * float (pairwise, masked Gram products on threaded BLAS); checked first against the
  * universe's budget u->max_bytes (memory.h's hc_memory_check), HC_ENOMEM
  * "SOURCE: universe too large for its covariances: needs at least ..."
  * when they do not fit.

@@ -68,6 +68,10 @@ struct report_table {
 	size_t ncols, nrows, cap_rows;
 	struct report_column *cols;
 	struct report_value *cells; /* nrows*ncols, row-major */
+	/* JSON only (hc_report_table_nest): column nest_col of each row is
+	 * written as the array of nest's rows that match it; NULL = none. */
+	const struct report_table *nest;
+	size_t nest_col, nest_join, nest_child_join;
 };
 
 struct report_field {
@@ -114,6 +118,14 @@ void hc_report_table_set_real(struct report_table *t, size_t row, size_t col, do
 void hc_report_table_set_int(struct report_table *t, size_t row, size_t col, long long x);
 int hc_report_table_set_text(struct report_table *t, size_t row, size_t col, const char *s);
 void hc_report_table_set_bool(struct report_table *t, size_t row, size_t col, int b);
+/* In JSON, write column `column` of each row of parent as an array of
+ * objects: the rows of child (a table of the same report, so it lives as
+ * long) whose column `join` holds the same text as parent's column `join`,
+ * each without that column.  CSV, text and Markdown keep the cell as it
+ * is (a summary such as a ';'-joined list).  HC_OK, or HC_EINTERNAL when a
+ * column is missing (nothing set). */
+int hc_report_table_nest(struct report_table *parent, const char *column, const struct report_table *child,
+			 const char *join);
 /* No value, with the reason the CSV and text writers show in its place (a
  * figure that does not exist for this row: "below the floor"); the JSON
  * writer still writes null, so a number field never holds a string there,

@@ -97,8 +97,8 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
  * Write rs into the report folder rd (reportdir.h) and commit it: the plots'
  * data and scripts (rendered when gnuplot is on the PATH, else
  * README-plots.txt), curve.csv, enough.csv, audit.csv, audit-screens.csv,
- * audit-sectors.csv, rolling.csv (the commands' CSVs), summary.json and
- * summary.md.  HC_EIO, HC_ENOMEM, HC_EINTERNAL (gnuplot failed).
+ * audit-sectors.csv, audit-failures.csv, rolling.csv (the commands' CSVs),
+ * summary.json and summary.md.  HC_EIO, HC_ENOMEM, HC_EINTERNAL (gnuplot failed).
  */
 int hc_reportset_write(struct hc_reportset *rs, struct reportdir *rd, struct hc_error *err);
 

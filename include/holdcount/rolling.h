@@ -2,11 +2,14 @@
  * rolling.h - the averages and the count needed, window by window.
  *
  * A universe loaded with UNIVERSE_MISSING_KEEP is cut into windows of W
- * consecutive periods starting every `step` periods (the last window ends
- * at or before the last period; a shorter tail is not used).  In each
- * window the missing-data policy picks the securities (complete in the
- * window by default, so late listings and delistings enter and leave as
- * they did; constant ones are dropped as hc_universe_window does), and the
+ * consecutive periods, one every `step` periods counted back from the last
+ * period (the newest window always ends at the last observation; oldest
+ * periods that do not fill a step are not used).  In each window the
+ * missing-data policy picks the securities (complete in the window, or,
+ * under UNIVERSE_MISSING_KEEP, every security alive in each period of it,
+ * read through per-period sums, periodic.h; either way late listings and
+ * delistings enter and leave as they did; constant ones are dropped as
+ * hc_universe_window does), and the
  * window's v-bar, c-bar and average correlation feed every selected exact
  * rule (rules.h).  Why it matters: Campbell, Lettau, Malkiel & Xu (2001,
  * Journal of Finance 56(1)) found security-specific volatility rising and
@@ -56,7 +59,8 @@ typedef int (*rolling_progress_fn)(void *ctx, size_t done, size_t total);
 struct rolling_options {
 	size_t window;             /* W >= 2 periods */
 	size_t step;               /* >= 1 period */
-	int missing;               /* UNIVERSE_MISSING_COMPLETE or _PAIRWISE */
+	int missing;               /* UNIVERSE_MISSING_COMPLETE, _PAIRWISE, or _KEEP: each window read
+	                            * period by period (periodic.h), securities alive then */
 	double min_coverage;       /* pairwise: fraction of the window (0, 1] */
 	size_t refresh;            /* 0 = ROLLING_DEFAULT_REFRESH */
 	int from_scratch;          /* 1: every window recomputed (reference, benchmarks) */

@@ -7,16 +7,21 @@
  *   HC_SOURCE_PAIRWISE  return series with gaps (securities listed and
  *                       delisted at different dates), read through their
  *                       pairwise-complete covariances (covmatrix.h);
- *   HC_SOURCE_MATRIX    a covariance matrix (a risk model's output).
+ *   HC_SOURCE_MATRIX    a covariance matrix (a risk model's output);
+ *   HC_SOURCE_RAGGED    return series with gaps read period by period
+ *                       (periodic.h): each period uses the securities alive
+ *                       then, so listings and delistings stay in (the
+ *                       survivorship-free treatment); no M x M matrix unless
+ *                       a fund's variance needs it.
  * The missing-data policy (universe.h) and the positive semi-definite
  * policy (refuse, or repair by eigenvalue clipping, Higham 1988) are
  * applied when the source is built, so no caller repeats them.
  *
- * Adding a kind (for example ragged histories read period by period) is one
- * more enum value, one constructor, and one more case in the few dispatch
- * points: the computing modules' switch on src->kind (moments.c,
- * sampler.c, strata.c, rules.c, audit.c).  Callers that use the
- * accessors below need no change.
+ * Adding a kind is one more enum value, one constructor, and one more case
+ * in the few dispatch points: the computing modules' switch on src->kind
+ * (moments.c, sampler.c, strata.c, rules.c, audit.c) and the analyses'
+ * (curve_run.c, enough.c, describe.c, reportset.c for the ragged kind).
+ * Callers that use the accessors below need no change.
  */
 #ifndef HOLDCOUNT_SOURCE_H
 #define HOLDCOUNT_SOURCE_H
@@ -32,10 +37,14 @@
 extern "C" {
 #endif
 
+struct hc_periodic;
+
 enum hc_source_kind {
 	HC_SOURCE_SERIES = 0,   /* u: complete return series */
 	HC_SOURCE_PAIRWISE = 1, /* u with gaps; cm its pairwise-complete covariances (when built) */
-	HC_SOURCE_MATRIX = 2    /* cm only */
+	HC_SOURCE_MATRIX = 2,   /* cm only */
+	HC_SOURCE_RAGGED = 3    /* u with gaps read period by period: per, its per-period sums
+	                         * (periodic.h); each period uses the securities alive then */
 };
 
 /* What the positive semi-definite policy found and did. */
@@ -58,6 +67,12 @@ struct hc_source_options {
 	                          * ignored for series (the universe's own) */
 	const char *psd_refusal; /* the message after "PATH: " when a matrix is refused;
 	                          * NULL: HC_SOURCE_DEFAULT_REFUSAL */
+	int need_fund_matrix;    /* funds' variances w'Aw will be asked (an audit): series with
+	                          * gaps build the pairwise-complete matrix, ragged ones too */
+	int ragged;              /* series with gaps: HC_SOURCE_RAGGED (per-period sums; the
+	                          * pairwise matrix only with need_fund_matrix, and then repaired
+	                          * when not positive semi-definite, said in the output) instead
+	                          * of HC_SOURCE_PAIRWISE */
 };
 
 #define HC_SOURCE_PSD_HINT "--repair-psd uses the nearest positive semi-definite matrix instead"
@@ -68,13 +83,15 @@ struct hc_source {
 	int kind;                   /* enum hc_source_kind */
 	const char *name;           /* the file, for messages (u->source or the matrix's path) */
 	const struct universe *u;   /* SERIES, PAIRWISE: the returns; NULL for MATRIX */
-	const struct covmatrix *cm; /* MATRIX; PAIRWISE when built (need_matrix, repair_psd); else NULL */
+	const struct covmatrix *cm; /* MATRIX; PAIRWISE or RAGGED when built (need_matrix, repair_psd); else NULL */
+	const struct hc_periodic *per; /* RAGGED: the per-period sums of every period; else NULL */
 	double periods_per_year;    /* per-period variances are multiplied by it (1: not annualised) */
 	int annualised;             /* 0: a matrix on its own scale */
 	struct hc_source_psd psd;
 	/* private: what hc_source_free releases */
 	struct universe *own_u;
 	struct covmatrix *own_cm;
+	struct hc_periodic *own_per;
 	char *own_name;
 };
 
@@ -85,7 +102,9 @@ void hc_source_options_init(struct hc_source_options *opt);
 /*
  * A source from a loaded universe; takes ownership of u (freed by
  * hc_source_free, and on failure).  Complete data gives HC_SOURCE_SERIES;
- * gaps left by the missing-data policy give HC_SOURCE_PAIRWISE, with its
+ * gaps left by the missing-data policy give HC_SOURCE_RAGGED when
+ * opt->ragged (its per-period sums, hc_periodic_alloc), else
+ * HC_SOURCE_PAIRWISE, with its
  * pairwise-complete matrix built and checked when opt asks for it.
  * Errors: those of hc_covmatrix_from_universe; HC_EDATA "NAME: REFUSAL"
  * when the matrix is not positive semi-definite and repair was not asked;
@@ -163,6 +182,28 @@ void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size);
  * repair.  HC_OK, or HC_ENOMEM.
  */
 int hc_source_report_psd(const struct hc_source *s, struct report *r);
+
+/* The sentence the field "treatment" carries for a ragged source. */
+#define HC_SOURCE_RAGGED_TREATMENT "return history with gaps, read period by period: each period uses the " \
+	"securities alive then (listed and not yet delisted), so delisted securities stay in " \
+	"(survivorship-free); --missing complete keeps only securities with no gap"
+
+/*
+ * How the universe was treated: the field "treatment" (for a ragged source
+ * HC_SOURCE_RAGGED_TREATMENT, and the fields alive_min, alive_median,
+ * alive_max: securities alive per period; securities_complete: those with
+ * no gap; securities_single_period when some were observed once only and
+ * left out).  HC_OK, or HC_ENOMEM.
+ */
+int hc_source_report_treatment(const struct hc_source *s, struct report *r);
+
+/*
+ * What reading the file changed, when it did: bad_cells and bad_cell_first
+ * (cells read as missing under UNIVERSE_BAD_MISSING), periods_read (the
+ * periods before a frequency conversion or a date range, when they differ
+ * from the periods kept).  Nothing for a matrix.  HC_OK, or HC_ENOMEM.
+ */
+int hc_source_report_reading(const struct hc_source *s, struct report *r);
 
 #ifdef __cplusplus
 }

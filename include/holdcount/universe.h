@@ -38,6 +38,25 @@ enum universe_missing {
 	UNIVERSE_MISSING_KEEP = 2      /* keep every security as read (for rolling windows) */
 };
 
+/* Cells that are not a number: a spreadsheet's error values (#N/A,
+ * #DIV/0!, #VALUE!, #REF!, #NUM!, #NAME?, #NULL!, any cell starting with
+ * '#') and, for prices, zero or negative prices. */
+enum universe_bad_cells {
+	UNIVERSE_BAD_REFUSE = 0,   /* an error naming file, line, column and the cell */
+	UNIVERSE_BAD_MISSING = 1   /* read as missing, counted (universe.bad_cells) and named (bad_first) */
+};
+
+/* Conversion of the periods read to calendar periods: returns compounded
+ * within each calendar week, month or quarter (prices: the last price of
+ * each period); the period's date is the last date of the data in it. */
+enum universe_frequency {
+	UNIVERSE_FREQ_AS_READ = 0,
+	UNIVERSE_FREQ_WEEKLY = 1,    /* weeks start the day after the calendar's weekend (the weekday
+	                              * run the dates use least: Saturday-Sunday gives Monday) */
+	UNIVERSE_FREQ_MONTHLY = 2,
+	UNIVERSE_FREQ_QUARTERLY = 3  /* calendar quarters (January-March, ...) */
+};
+
 /* Defaults named once. */
 #define UNIVERSE_DEFAULT_MIN_COVERAGE 0.8
 
@@ -66,6 +85,8 @@ struct universe_options {
 	const char *id_column;      /* long layout: NULL = "id" */
 	const char *value_column;   /* long layout: NULL = "value" */
 	size_t max_bytes;           /* budget for the numbers; 0 = from available memory */
+	int bad_cells;              /* enum universe_bad_cells */
+	int frequency;              /* enum universe_frequency */
 };
 
 /* Defaults: wide layout of returns (not percents), complete series only,
@@ -91,6 +112,9 @@ struct universe {
 	size_t ndropped;
 	struct universe_dropped *dropped;
 	char *source;               /* the path it was read from */
+	size_t bad_cells;           /* cells read as missing under UNIVERSE_BAD_MISSING */
+	char bad_first[192];        /* the first of them: "FILE:LINE:COLUMN: 'CELL' (why)"; "" when none */
+	size_t periods_read;        /* periods of returns before a frequency conversion */
 	size_t max_bytes;           /* the budget it was loaded under (universe_options.max_bytes;
 	                             * 0 = from available memory); the steps that compute on it
 	                             * (moments.h, covmatrix.h) keep to it too, and windows and
@@ -124,12 +148,13 @@ int hc_universe_window(struct universe **out, const struct universe *src,
 
 /*
  * The missing-data policy applied to a universe already in memory: src as
- * loaded under UNIVERSE_MISSING_KEEP (no security dropped yet), *out a new
+ * loaded under UNIVERSE_MISSING_KEEP (securities it already left out, by a
+ * date range or an exclusion, stay in the dropped list first), *out a new
  * universe with the securities the policy keeps, the dropped list and
  * messages hc_universe_load gives under that policy for the same file.
  * So a caller that needs both (every security for rolling windows, the
- * complete ones for the rest) reads the file once.  HC_EUSAGE (bad policy,
- * or src already lost securities), HC_EDATA (fewer than 2 left), HC_ENOMEM.
+ * complete ones for the rest) reads the file once.  HC_EUSAGE (bad
+ * policy), HC_EDATA (fewer than 2 left), HC_ENOMEM.
  */
 int hc_universe_apply_missing(struct universe **out, const struct universe *src, int missing,
 			      double min_coverage, struct hc_error *err);
@@ -139,6 +164,11 @@ int hc_universe_apply_missing(struct universe **out, const struct universe *src,
 int hc_universe_resample(struct universe **out, const struct universe *src,
 		      const size_t *idx, size_t n, struct hc_error *err);
 
+/* Leave out the securities named in ids[0..n-1] (in place; each is listed
+ * as dropped, reason "excluded (--exclude)").  HC_EDATA naming an id that
+ * is not in u, or when fewer than 2 securities are left; HC_ENOMEM. */
+int hc_universe_exclude(struct universe *u, char *const *ids, size_t n, struct hc_error *err);
+
 /* Free u and everything it owns; NULL is a no-op. */
 void hc_universe_free(struct universe *u);
 
@@ -146,7 +176,9 @@ void hc_universe_free(struct universe *u);
 long hc_universe_find(const struct universe *u, const char *id);
 
 /* Detect periods per year from the median spacing of sorted dates
- * (days since 1970-01-01): about 252 (daily), 52, 12, 4, 2 or 1.
+ * (days since 1970-01-01): about 252 (daily, five or fewer trading days a
+ * week, whichever weekdays they are), 302 (six), 365 (seven), 52, 12, 4, 2
+ * or 1.
  * Returns 0 when fewer than two dates. */
 double hc_universe_detect_periods(const int32_t *dates, size_t n);
 

@@ -29,8 +29,10 @@
 /* ---- the shared groups --------------------------------------------------- */
 
 static const char *const format_words[] = { "table", "csv", "json", NULL };
-static const char *const missing_words[] = { "complete", "pairwise", NULL };
+static const char *const missing_words[] = { "complete", "pairwise", "alive", NULL };
 static const char *const layout_words[] = { "wide", "long", NULL };
+static const char *const bad_cell_words[] = { "refuse", "missing", NULL };
+static const char *const frequency_words[] = { "as-read", "weekly", "monthly", "quarterly", NULL };
 
 #define OUT(f) offsetof(struct cli_output, f)
 static const struct cli_option output_options[] = {
@@ -51,8 +53,27 @@ static const struct cli_option universe_options[] = {
 	{ "percent", 0, CLI_FLAG, UNI(percent), NULL,
 	  "cells are percents (2.5 means 2.5%); a trailing % on a cell says the same", NULL, NULL },
 	{ "missing", 0, CLI_CHOICE, UNI(missing), NULL,
-	  "securities with gaps: drop them (complete), or keep those meeting --min-coverage "
-	  "and use pairwise-complete covariances (pairwise)", missing_words, "complete" },
+	  "securities with gaps: keep every one and let each period use the securities alive then, "
+	  "so listings and delistings stay in (alive); drop them, keeping survivors only (complete); "
+	  "or keep those meeting --min-coverage and use pairwise-complete covariances (pairwise)",
+	  missing_words, "alive" },
+	{ "from", 0, CLI_STRING, UNI(from), "DATE",
+	  "first date of the sample (YYYY-MM-DD, or YYYY-MM for that month's end)", NULL, "the first date" },
+	{ "to", 0, CLI_STRING, UNI(to), "DATE",
+	  "last date of the sample, an as-of date (YYYY-MM-DD or YYYY-MM)", NULL, "the last date" },
+	{ "exclude", 0, CLI_STRING, UNI(exclude), "ID,...",
+	  "leave these securities out (listed as dropped)", NULL, NULL },
+	{ "exclude-file", 0, CLI_STRING, UNI(exclude_file), "FILE",
+	  "leave out the securities listed in FILE, one id a line ('#' starts a comment)", NULL, NULL },
+	{ "frequency", 0, CLI_CHOICE, UNI(frequency), NULL,
+	  "convert to calendar periods: returns compounded within each week, month or quarter "
+	  "(prices: each period's last price), dated by the period's last date", frequency_words, "as-read" },
+	{ "bad-cells", 0, CLI_CHOICE, UNI(bad_cells), NULL,
+	  "spreadsheet errors such as #N/A, and zero or negative prices: an error naming the cell "
+	  "(refuse), or read as missing, counted and the first named on standard error (missing)",
+	  bad_cell_words, "refuse" },
+	{ "strict-data", 0, CLI_FLAG, UNI(strict), NULL,
+	  "a data-check finding (see 'holdcount check') is an error (exit 3), not a warning", NULL, NULL },
 	{ "min-coverage", 0, CLI_FRACTION, UNI(min_coverage), "F",
 	  "share of the periods a security must cover to be kept under --missing pairwise, "
 	  "as 0.8 or 80%", NULL, "80%" },
@@ -131,7 +152,7 @@ void cli_output_init(struct cli_output *o)
 void cli_universe_init(struct cli_universe *u)
 {
 	memset(u, 0, sizeof *u);
-	u->missing = CLI_MISSING_COMPLETE;
+	u->missing = CLI_MISSING_ALIVE;
 	u->min_coverage = UNIVERSE_DEFAULT_MIN_COVERAGE;
 	u->layout = CLI_LAYOUT_WIDE;
 	u->periods_per_year = NAN;
@@ -218,6 +239,14 @@ static int store_value(const struct cli_option *op, void *where, const char *val
 	case CLI_STRING:
 		*(const char **)where = val;
 		return 0;
+	case CLI_LIST: {
+		struct cli_list *l = where;
+		if (l->n == CLI_LIST_MAX)
+			return -1;
+		l->v[l->n++] = val;
+		l->last = val;
+		return 0;
+	}
 	case CLI_COUNT:
 		return parse_count(val, where);
 	case CLI_U64:
@@ -256,6 +285,7 @@ static const char *expected_text(const struct cli_option *op, char *buf, size_t 
 	case CLI_THREADS: return cli_threads_expected;
 	case CLI_REAL: return "a finite number";
 	case CLI_FRACTION: return "a number, or a percent such as 10%";
+	case CLI_LIST: return "at most 32 values (the option is given too often)";
 	case CLI_CHOICE:
 		used = (size_t)snprintf(buf, size, "one of ");
 		for (i = 0; op->choices[i] && used < size; i++)
@@ -422,7 +452,7 @@ static int is_output_option(const struct cli_option *op)
 
 static int is_input_option(const struct cli_option *op)
 {
-	return op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
+	return (op->kind == CLI_STRING || op->kind == CLI_LIST) && op->metavar && strcmp(op->metavar, "FILE") == 0 &&
 	       !is_output_option(op);
 }
 
@@ -499,6 +529,14 @@ static int check_files(const struct cli_command *cmd, const struct cli_args *a, 
 			if ((!is_output_option(op) && !is_input_option(op)) || omitted(g, op))
 				continue;
 			v = *(const char *const *)((const char *)opts + g->offset + op->offset);
+			if (op->kind == CLI_LIST) {
+				const struct cli_list *l = (const void *)((const char *)opts + g->offset + op->offset);
+				size_t k;
+				for (k = 0; k < l->n && nin < 16; k++)
+					if (*l->v[k] && strcmp(l->v[k], "-") != 0)
+						in[nin++] = (struct named_file){ op->name, l->v[k], 0 };
+				continue;
+			}
 			if (!v || !*v || strcmp(v, "-") == 0)
 				continue;
 			if (is_output_option(op) && nout < 4)
@@ -664,7 +702,9 @@ void cli_print_help(FILE *fp, const struct cli_command *cmd)
 				print_option(fp, g, op);
 	}
 	fputs("\nExit status: 0 success, 1 a policy check failed, 2 usage error, 3 data error,\n"
-	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted.\n", fp);
+	      "4 input/output error, 5 out of memory, 6 internal error, 7 interrupted,\n"
+	      "8 resource limit, 9 renderer failed, 10 insufficient data (e.g. a fund's risk\n"
+	      "rests on too little of its weight).\n", fp);
 }
 
 void cli_print_main_help(FILE *fp)
@@ -757,7 +797,8 @@ static void man_common_sections(FILE *fp)
 		{ "7", "interrupted by a signal; partly written output is removed" },
 		{ "8", "the system refused a resource other than memory: a thread or process (a process limit)" },
 		{ "9", "the renderer (gnuplot) failed on a plot script; nothing is left behind" },
-		{ "10", "the input is well formed but holds too little data for the question" },
+		{ "10", "the input is well formed but holds too little data for the question: in audit and report, "
+		       "no fund fails the policy but a fund's risk figures rest on less than its least covered weight" },
 	};
 	size_t i;
 
@@ -863,7 +904,8 @@ void cli_print_bash_completion(FILE *fp)
 					for (j = 0; op->choices[j]; j++)
 						fprintf(fp, "%s%s", j ? " " : "", op->choices[j]);
 					fputs("\" -- \"$cur\"))\n\t\t\treturn;;\n", fp);
-				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "FILE") == 0) {
+				} else if ((op->kind == CLI_STRING || op->kind == CLI_LIST) && op->metavar &&
+					   strcmp(op->metavar, "FILE") == 0) {
 					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -f -- \"$cur\")\n\t\t\treturn;;\n", fp);
 				} else if (op->kind == CLI_STRING && op->metavar && strcmp(op->metavar, "DIR") == 0) {
 					fputs(")\n\t\t\tmapfile -t COMPREPLY < <(compgen -d -- \"$cur\")\n\t\t\treturn;;\n", fp);

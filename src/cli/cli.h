@@ -84,8 +84,9 @@
  * Values land in these C types: CLI_FLAG int (set to 1), CLI_STRING
  * const char * (points into argv), CLI_COUNT size_t, CLI_REAL double,
  * CLI_FRACTION double ("10%" or "0.10" both give 0.10), CLI_CHOICE int
- * (index into the option's choices), CLI_U64 uint64_t.  A repeated option:
- * the last one wins.  cli_given() says whether an option was on the line.
+ * (index into the option's choices), CLI_U64 uint64_t, CLI_LIST struct
+ * cli_list (every value, in order, up to CLI_LIST_MAX).  A repeated option
+ * of another kind: the last one wins.  cli_given() says whether an option was on the line.
  *
  * Files: a CLI_STRING option named "output" or "...-output" names a file
  * (metavar FILE) or folder (metavar DIR) the command writes; any other
@@ -113,7 +114,18 @@ enum cli_kind {
 	CLI_FRACTION = 4,
 	CLI_CHOICE = 5,
 	CLI_U64 = 6,
-	CLI_THREADS = 7            /* a thread count: size_t, 1 to HC_THREADS_MAX */
+	CLI_THREADS = 7,           /* a thread count: size_t, 1 to HC_THREADS_MAX */
+	CLI_LIST = 8
+};
+
+/* A repeatable string option's values (pointing into argv); last is the
+ * last one given (NULL when none), so code reading the option as one
+ * string sees the last, as for CLI_STRING. */
+#define CLI_LIST_MAX 32
+struct cli_list {
+	const char *last;
+	size_t n;
+	const char *v[CLI_LIST_MAX];
 };
 
 /* cli_threads.c: the one parse of a thread count (--threads and
@@ -187,7 +199,7 @@ extern const struct cli_group cli_group_output;
 void cli_output_init(struct cli_output *o);
 
 /* Universe loading (see include/holdcount/universe.h for the meanings). */
-enum cli_missing { CLI_MISSING_COMPLETE = 0, CLI_MISSING_PAIRWISE = 1 };
+enum cli_missing { CLI_MISSING_COMPLETE = 0, CLI_MISSING_PAIRWISE = 1, CLI_MISSING_ALIVE = 2 };
 enum cli_layout { CLI_LAYOUT_WIDE = 0, CLI_LAYOUT_LONG = 1 };
 struct cli_universe {
 	int prices;                /* cells are prices */
@@ -202,6 +214,13 @@ struct cli_universe {
 	size_t max_memory_mib;     /* 0 = from available memory */
 	int covariance;            /* the positional file is a covariance matrix */
 	int repair_psd;            /* --repair-psd (cli_group_matrix_repair) */
+	int strict;                /* --strict: a data-check finding is an error */
+	const char *from, *to;     /* --from DATE, --to DATE: the sample's first and last dates */
+	const char *exclude;       /* --exclude ID,ID,... */
+	const char *exclude_file;  /* --exclude-file FILE: one id a line */
+	int no_check;              /* set by `check` itself: cli_load_universe runs no checks */
+	int frequency;             /* --frequency: enum universe_frequency (the words in that order) */
+	int bad_cells;             /* --bad-cells: enum universe_bad_cells */
 };
 extern const struct cli_group cli_group_universe;
 void cli_universe_init(struct cli_universe *u);
@@ -352,8 +371,20 @@ struct strata;
 int cli_universe_options(const char *cmd, const struct cli_universe *cu,
 			 struct universe_options *uo);
 
-/* Load path with the group's options; prints the loader's message
- * ("holdcount CMD: FILE:LINE:COLUMN: ...") and returns its status. */
+/* --from, --to, --exclude and --exclude-file on a loaded universe: the
+ * periods between the dates (the missing-data policy `missing`, a
+ * universe.h value, applied within them) and the securities not excluded;
+ * *u is replaced.  A message and the status on error. */
+int cli_restrict(const char *cmd, const struct cli_universe *cu, int missing, struct universe **u);
+
+/* The data checks before any figure (datacheck.h): the count and the
+ * first finding on stderr as a warning, or with --strict-data as an error
+ * (HC_EDATA).  cli_load_universe runs it unless cu->no_check. */
+int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct universe *u);
+
+/* Load path with the group's options (then cli_restrict and
+ * cli_data_check); prints the loader's message ("holdcount CMD:
+ * FILE:LINE:COLUMN: ...") and returns its status. */
 int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		      const char *path, struct universe **out);
 
@@ -369,12 +400,16 @@ int cli_psd_usage(const char *cmd, const struct cli_universe *cu);
  * The data source (source.h) of a command's file: a covariance matrix with
  * --covariance (on its own scale unless --periods-per-year is given; the
  * return-history options refused), else the return history loaded with
- * cu's options.  need_matrix and refusal: series with gaps get their
- * pairwise-complete matrix (hc_source_options).  A repair is announced on
- * stderr.  Prints its error; returns the exit status.
- * cli_source_from_universe does the same for a universe already loaded
- * (taking ownership of u).
+ * cu's options (--missing alive: a history with gaps is read period by
+ * period, HC_SOURCE_RAGGED).  need_matrix and refusal: series with gaps
+ * get their pairwise-complete matrix (hc_source_options): CLI_NEED_SAMPLING
+ * for random portfolios (pairwise sources only), CLI_NEED_FUNDS for funds'
+ * variances (ragged ones too).  A repair is announced on stderr.  Prints
+ * its error; returns the exit status.  cli_source_from_universe does the
+ * same for a universe already loaded (taking ownership of u).
  */
+#define CLI_NEED_SAMPLING 1
+#define CLI_NEED_FUNDS 2
 struct hc_source;
 int cli_load_source(const char *cmd, const struct cli_universe *cu, const struct cli_args *a,
 		    const char *path, int need_matrix, const char *refusal, struct hc_source **out);
@@ -444,16 +479,23 @@ struct cli_strata;
 int cli_enough_checks(const char *cmd, const struct cli_sampling *smp, const struct cli_strata *strat,
 		      const struct rules_config *cfg);
 
-/* The holdings inputs of `audit` (cmd_audit.c): --holdings, --sectors,
+/* The holdings inputs of `audit` (cli_audit.c; `audit` and `report`): --holdings, --sectors,
  * --allow-short, --strict and the column names. */
 struct cli_holdings {
-	const char *holdings;
+	struct cli_list holdings;  /* --holdings, repeatable: every file is read */
+	const char *benchmark;
+	const char *encoding;
+	const char *type_column, *group_column;
+	int cash_risk;             /* enum audit_cash_risk */
+	double min_covered_weight;
 	const char *sectors;
 	int allow_short;
 	int strict;
 	const char *fund_column, *holding_id_column, *weight_column, *market_value_column, *issuer_column;
 };
 extern const struct cli_group cli_group_holdings;
+/* Zeros, and the library's default least covered weight. */
+void cli_holdings_init(struct cli_holdings *ho);
 
 /* The audit policy: --min-holdings, --min-effective, --max-weight,
  * --max-sector-weight, --screens. */
@@ -463,24 +505,30 @@ struct cli_policy {
 	double max_weight;
 	double max_sector_weight;
 	const char *screens;
+	int reading;               /* enum audit_reading: --basket-reading */
 };
 extern const struct cli_group cli_group_policy;
 
 /* The library's audit options from ho, po and sam (usage errors printed),
- * and the holdings (and sector map, set as ao->sectors) loaded with their
- * warnings on stderr.  The caller frees *h and *labels (each may be set on
- * failure).  Prints its error; returns the exit status. */
+ * and the holdings (every --holdings file, merged), the sector map (set as
+ * ao->sectors) and the benchmark (--benchmark, set as ao->benchmark) loaded
+ * with their warnings on stderr.  The caller frees *h, *labels and *bench
+ * (each may be set on failure).  Prints its error; returns the exit status. */
 struct holdings;
 struct holdings_labels;
 struct audit_result;
 struct audit_options;
 int cli_audit_load(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
 		   const struct cli_sampling *sam, struct audit_options *ao, struct holdings **h,
-		   struct holdings_labels **labels);
+		   struct holdings_labels **labels, struct holdings **bench);
 /* One warning line per fund holding ids the universe lacks, on stderr. */
 void cli_audit_say_missing(const char *cmd, const struct audit_result *res);
 /* "holdcount CMD: 2 of 3 funds fail the policy: 'A' (max-weight), ..." on stderr. */
 void cli_audit_say_failures(const char *cmd, const struct audit_result *res);
+/* The audit's exit status: HC_EPOLICY (naming the failures on stderr) when
+ * a fund fails the policy, else HC_EINSUFFICIENT (naming the funds and their
+ * covered weight) when a fund has insufficient data, else HC_OK. */
+int cli_audit_status(const char *cmd, const struct audit_result *res);
 
 /* ---- stratified draws (cli_strata.c) -------------------------------------- */
 
@@ -524,5 +572,6 @@ CLI_DECLARE_COMMAND(enough);
 CLI_DECLARE_COMMAND(audit);
 CLI_DECLARE_COMMAND(report);
 CLI_DECLARE_COMMAND(rolling);
+CLI_DECLARE_COMMAND(check);
 
 #endif

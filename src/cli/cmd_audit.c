@@ -3,8 +3,9 @@
  * concentration against the universe and a policy.
  *
  * Exit status: 0 when every fund passes every rule asked for, 1 (HC_EPOLICY)
- * when any fails, 2 for usage errors and 3 for data errors, so a nightly
- * script can gate on it.
+ * when any fails, 10 (HC_EINSUFFICIENT) when none fails but a fund's risk
+ * rests on less than --min-covered-weight of it, 2 for usage errors and 3
+ * for data errors, so a nightly script can gate on it.
  */
 #include <limits.h>
 #include <math.h>
@@ -28,14 +29,16 @@ struct audit_opts {
 };
 
 /* The tables of hc_audit_report that --table chooses for the CSV, by key. */
-enum audit_table { AUDIT_TABLE_FUNDS = 0, AUDIT_TABLE_SCREENS = 1, AUDIT_TABLE_SECTORS = 2 };
-static const char *const table_words[] = { "funds", "screens", "sectors", NULL };
+enum audit_table { AUDIT_TABLE_FUNDS = 0, AUDIT_TABLE_SCREENS = 1, AUDIT_TABLE_SECTORS = 2,
+		   AUDIT_TABLE_FAILURES = 3 };
+static const char *const table_words[] = { "funds", "screens", "sectors", "failures", NULL };
 
 #define AO(f) offsetof(struct audit_opts, f)
 static const struct cli_option audit_own[] = {
 	{ "table", 0, CLI_CHOICE, AO(table), NULL,
 	  "with --format csv, the table to print: funds (one row per fund), screens (each screen's parts "
-	  "with their deciding figures) or sectors (each fund's sector weights; needs --sectors)",
+	  "with their deciding figures), sectors (each fund's sector weights; needs --sectors) or failures "
+	  "(each failed rule with its figure and limit)",
 	  table_words, "funds" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
@@ -71,8 +74,10 @@ const struct cli_command cli_command_audit = {
 	"Investment Company Act of 1940 s. 5(b)(1), Internal Revenue Code s. 851(b)(3)), written from "
 	"memory of the texts. With --covariance the risk figures come from a covariance matrix (w'Aw), "
 	"and with --missing pairwise from the pairwise-complete covariances. With --format csv it prints "
-	"one table, the funds unless --table chooses the screens or the sector weights. Exit status 0 "
-	"when every fund passes the rules asked for, 1 when any fails, 2 for usage and 3 for data errors.",
+	"one table, the funds unless --table chooses the screens, the sector weights or the failures. Exit "
+	"status 0 when every fund passes the rules asked for, 1 when any fails, 10 when none fails but a "
+	"fund's risk rests on less than --min-covered-weight of its invested weight (insufficient data), 2 "
+	"for usage and 3 for data errors.",
 	1, 1, audit_groups
 };
 
@@ -83,6 +88,7 @@ int cmd_audit(int argc, char **argv)
 	struct hc_source *src = NULL;
 	struct holdings *h = NULL;
 	struct holdings_labels *l = NULL;
+	struct holdings *bench = NULL;
 	struct audit_result *res = NULL;
 	struct report *r = NULL;
 	struct audit_options ao;
@@ -94,10 +100,11 @@ int cmd_audit(int argc, char **argv)
 	cli_sampling_init(&o.sam);
 	cli_universe_init(&o.uni);
 	cli_output_init(&o.out);
+	cli_holdings_init(&o.hold);
 	rc = cli_parse(&cli_command_audit, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
-	if (!o.hold.holdings)
+	if (!o.hold.holdings.n)
 		rc = cli_usage_error("audit", "--holdings FILE is required (see 'holdcount audit --help')");
 	else if (cli_given(&a, "table") && o.out.format != CLI_FORMAT_CSV)
 		rc = cli_usage_error("audit", "--table chooses the table of --format csv; the text and JSON outputs "
@@ -111,13 +118,14 @@ int cmd_audit(int argc, char **argv)
 	/* With gaps left (--missing pairwise) no fund has a complete return
 	 * series, so its risk comes from the pairwise-complete covariances,
 	 * which must form a positive semi-definite matrix (or be repaired with
-	 * --repair-psd). */
-	rc = cli_load_source("audit", &o.uni, &a, a.positional[0], 1,
+	 * --repair-psd); under --missing alive (the default) they are repaired
+	 * when needed, and the output says so. */
+	rc = cli_load_source("audit", &o.uni, &a, a.positional[0], CLI_NEED_FUNDS,
 			     "the pairwise-complete covariances are not positive semi-definite, so some fund's "
 			     "variance w'Aw could come out negative; " HC_SOURCE_PSD_HINT, &src);
 	if (rc != HC_OK)
 		goto cleanup;
-	if ((rc = cli_audit_load("audit", &o.hold, &o.pol, &o.sam, &ao, &h, &l)) != HC_OK)
+	if ((rc = cli_audit_load("audit", &o.hold, &o.pol, &o.sam, &ao, &h, &l, &bench)) != HC_OK)
 		goto cleanup;
 	hc_error_clear(&err);
 	cli_progress_init(&prog, "sampling the funds' counts", "paths", o.out.quiet);
@@ -139,15 +147,13 @@ int cmd_audit(int argc, char **argv)
 					  : cli_write_csv_part("audit", &o.out, r, table_words[o.table]);
 	if (rc != HC_OK)
 		goto cleanup;
-	if (res->failed_funds) {
-		cli_audit_say_failures("audit", res);
-		rc = HC_EPOLICY;
-	}
+	rc = cli_audit_status("audit", res);
 cleanup:
 	hc_report_free(r);
 	hc_audit_result_free(res);
 	hc_holdings_labels_free(l);
 	hc_holdings_free(h);
+	hc_holdings_free(bench);
 	hc_source_free(src);
 	cli_args_release(&a);
 	return rc;

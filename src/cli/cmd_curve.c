@@ -78,8 +78,9 @@ static int load(struct curve_opts *o, const struct cli_args *a, struct hc_source
 	if (o->strat.map && o->sam.paths == 0)
 		return cli_usage_error("curve", "--strata draws random portfolios: it needs --paths above 0");
 	if (o->strat.map && !hc_source_has_series(*src))
-		return cli_usage_error("curve", "--strata draws from complete return series, and '%s' has gaps "
-				       "under --missing pairwise", path);
+		return cli_usage_error("curve", "--strata draws from complete return series, and '%s' has gaps%s", path,
+				       (*src)->kind == HC_SOURCE_RAGGED ? ": --missing complete keeps only the securities with none"
+				       : " under --missing pairwise");
 	return HC_OK;
 }
 

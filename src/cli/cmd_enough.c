@@ -144,8 +144,9 @@ static int run_file(struct enough_opts *o, const struct cli_args *a, struct hc_e
 	else if ((rc = cli_load_universe("enough", &o->uni, path, &u)) == HC_OK) {
 		if (u->has_missing && (o->strat.map || o->strat.per_stratum_max || o->strat.proportional)) {
 			hc_universe_free(u);
-			return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps "
-					       "under --missing pairwise", path);
+			return cli_usage_error("enough", "--strata draws from complete return series, and '%s' has gaps%s",
+					       path, o->uni.missing == CLI_MISSING_ALIVE
+					       ? ": --missing complete keeps only the securities with none" : " under --missing pairwise");
 		}
 		/* With gaps left the band rule draws from the pairwise-complete
 		 * covariances, and --repair-psd makes the exact rules use the repair too. */

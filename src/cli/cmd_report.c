@@ -106,6 +106,7 @@ const struct cli_command cli_command_report = {
 	"The folder is built under a temporary name and renamed into place, so an interrupted run leaves "
 	"the previous report or none. With no UNIVERSE it runs on the bundled invented demo universe, its "
 	"sectors and funds. Exit status 1 (after the folder is written) when a fund fails a policy option, "
+	"and 10 when none fails but a fund's risk rests on less than --min-covered-weight of its weight, "
 	"as with 'holdcount audit'.",
 	0, 1, report_groups
 };
@@ -166,7 +167,8 @@ struct inputs {
 static const char *const audit_only_options[] = {
 	"sectors", "allow-short", "strict", "fund-column", "holding-id-column", "weight-column",
 	"market-value-column", "issuer-column", "min-holdings", "min-effective", "max-weight",
-	"max-sector-weight", "screens", NULL
+	"max-sector-weight", "screens", "benchmark", "holdings-encoding", "type-column", "group-column",
+	"basket-reading", "cash-risk", "min-covered-weight", NULL
 };
 
 static int check_options(const struct report_opts *o, const struct cli_args *a, const struct inputs *in)
@@ -179,7 +181,7 @@ static int check_options(const struct report_opts *o, const struct cli_args *a, 
 		return cli_usage_error("report", "--step applies to the rolling windows, which --window 0 leaves out");
 	if (cli_given(a, "step") && !o->step)
 		return cli_usage_error("report", "--step must be at least 1 period");
-	for (k = 0; !in->hold.holdings && audit_only_options[k]; k++)
+	for (k = 0; !in->hold.holdings.n && audit_only_options[k]; k++)
 		if (cli_given(a, audit_only_options[k]))
 			return cli_usage_error("report", "--%s applies to the audit of funds: give --holdings FILE",
 					       audit_only_options[k]);
@@ -199,8 +201,10 @@ static int choose_inputs(const struct report_opts *o, struct inputs *in, const s
 		return cli_usage_error("report", "no UNIVERSE given and the demo universe '%s' cannot be read",
 				       demo_universe);
 	in->universe_path = demo_universe;
-	if (!in->hold.holdings && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv"))
-		in->hold.holdings = demo_funds;
+	if (!in->hold.holdings.n && demo_path(demo_funds, sizeof demo_funds, "demo-funds.csv")) {
+		in->hold.holdings.v[in->hold.holdings.n++] = demo_funds;
+		in->hold.holdings.last = demo_funds;
+	}
 	if (!in->hold.sectors && demo_path(demo_sectors, sizeof demo_sectors, "demo-sectors.csv"))
 		in->hold.sectors = demo_sectors;
 	return HC_OK;
@@ -209,7 +213,7 @@ static int choose_inputs(const struct report_opts *o, struct inputs *in, const s
 /* The universe file, read once: every security as read (the rolling
  * windows apply the missing-data policy each), and from it the complete
  * series every other analysis reads (hc_universe_apply_missing). */
-static int load(const struct report_opts *o, const char *path, struct universe **every,
+static int load(const struct report_opts *o, const char *path, int need_matrix, struct universe **every,
 		struct hc_source **src)
 {
 	struct universe_options uo;
@@ -224,12 +228,18 @@ static int load(const struct report_opts *o, const char *path, struct universe *
 			      .percent = uo.percent, .missing = UNIVERSE_MISSING_KEEP, .min_coverage = uo.min_coverage,
 			      .periods_per_year = uo.periods_per_year, .delimiter = uo.delimiter,
 			      .date_column = uo.date_column, .id_column = uo.id_column,
-			      .value_column = uo.value_column, .max_bytes = uo.max_bytes }, &err);
-	if (rc == HC_OK)
-		rc = hc_universe_apply_missing(&u, *every, uo.missing, uo.min_coverage, &err);
+			      .value_column = uo.value_column, .max_bytes = uo.max_bytes,
+			      .frequency = uo.frequency, .bad_cells = uo.bad_cells }, &err);
 	if (rc != HC_OK)
 		return cli_fail("report", &err);
-	return cli_source_from_universe("report", &o->uni, u, path, 0, NULL, src);
+	/* --from, --to, --exclude, then the data checks, once for every analysis */
+	if ((rc = cli_restrict("report", &o->uni, UNIVERSE_MISSING_KEEP, every)) != HC_OK ||
+	    (rc = cli_data_check("report", &o->uni, *every)) != HC_OK)
+		return rc;
+	if (hc_universe_apply_missing(&u, *every, uo.missing, uo.min_coverage, &err) != HC_OK)
+		return cli_fail("report", &err);
+	/* a ragged history's funds need the pairwise-complete matrix */
+	return cli_source_from_universe("report", &o->uni, u, path, need_matrix, NULL, src);
 }
 
 /* The library's options from the command's groups. */
@@ -256,6 +266,7 @@ int cmd_report(int argc, char **argv)
 	struct hc_source *src = NULL;
 	struct holdings *h = NULL;
 	struct holdings_labels *labels = NULL;
+	struct holdings *bench = NULL;
 	struct cli_strata no_strata;
 	struct cli_steps steps;
 	size_t stale = 0, *sizes = NULL, nsizes = 0;
@@ -267,6 +278,7 @@ int cmd_report(int argc, char **argv)
 	cli_rules_init(&o.rul);
 	cli_sampling_init(&o.sam);
 	cli_universe_init(&o.uni);
+	cli_holdings_init(&o.hold);
 	rc = cli_parse(&cli_command_report, argc, argv, &o, &a);
 	if (rc != HC_OK)
 		return cli_parse_status(rc);
@@ -288,7 +300,7 @@ int cmd_report(int argc, char **argv)
 			stale == 1 ? "" : "s");
 	snprintf(line, sizeof line, "loading '%s'", in.universe_path);
 	stage(&o, line);
-	if ((rc = load(&o, in.universe_path, &every, &src)) != HC_OK)
+	if ((rc = load(&o, in.universe_path, in.hold.holdings.n ? CLI_NEED_FUNDS : 0, &every, &src)) != HC_OK)
 		goto cleanup;
 	hc_reportset_choose_window(&ro, src->u->t, src->u->periods_per_year, cli_given(&a, "window"), o.window, o.step);
 	if ((rc = cli_sizes("report", o.sam.sizes, src->u->m, &sizes, &nsizes)) != HC_OK ||
@@ -296,11 +308,11 @@ int cmd_report(int argc, char **argv)
 		goto cleanup;
 	ro.sizes = sizes;
 	ro.nsizes = nsizes;
-	if (in.hold.holdings) {
-		if ((rc = cli_audit_load("report", &in.hold, &o.pol, &o.sam, &ro.audit, &h, &labels)) != HC_OK)
+	if (in.hold.holdings.n) {
+		if ((rc = cli_audit_load("report", &in.hold, &o.pol, &o.sam, &ro.audit, &h, &labels, &bench)) != HC_OK)
 			goto cleanup;
 		ro.holdings = h;
-		ro.holdings_name = in.hold.holdings;
+		ro.holdings_name = h->source;   /* every file, comma-separated */
 	}
 	cli_steps_bind(&steps, &ro.progress, "report", o.quiet, 1);
 	if ((rc = hc_reportset_run(&rs, src, ro.window ? every : NULL, &ro, &err)) != HC_OK) {
@@ -316,15 +328,14 @@ int cmd_report(int argc, char **argv)
 	}
 	if (stage_enabled(&o))
 		fprintf(stderr, "holdcount report: wrote '%s' (start with summary.md)\n", o.output);
-	if (rs->audit && rs->audit->failed_funds) {
-		cli_audit_say_failures("report", rs->audit);
-		rc = HC_EPOLICY;
-	}
+	if (rs->audit)
+		rc = cli_audit_status("report", rs->audit);
 cleanup:
 	hc_reportdir_free(rd);
 	hc_reportset_free(rs);
 	hc_holdings_labels_free(labels);
 	hc_holdings_free(h);
+	hc_holdings_free(bench);
 	hc_source_free(src);
 	hc_universe_free(every);
 	hc_free(sizes);

@@ -99,7 +99,11 @@ static int load(const struct rolling_opts *o, const char *path, struct universe 
 	uo.missing = UNIVERSE_MISSING_KEEP;
 	hc_error_clear(&err);
 	rc = hc_universe_load(u, path, &uo, &err);
-	return rc ? cli_fail("rolling", &err) : HC_OK;
+	if (rc)
+		return cli_fail("rolling", &err);
+	if ((rc = cli_restrict("rolling", &o->uni, UNIVERSE_MISSING_KEEP, u)))
+		return rc;
+	return cli_data_check("rolling", &o->uni, *u);
 }
 
 static int options(const struct rolling_opts *o, const struct cli_args *a,
@@ -112,7 +116,7 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 	ro->step = o->step;
 	ro->refresh = o->refresh;
 	ro->missing = o->uni.missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE
-							     : UNIVERSE_MISSING_COMPLETE;
+		    : o->uni.missing == CLI_MISSING_ALIVE ? UNIVERSE_MISSING_KEEP : UNIVERSE_MISSING_COMPLETE;
 	ro->min_coverage = o->uni.min_coverage;
 	if ((rc = cli_rules_config("rolling", &o->rul, a, 1, 0, &ro->rules)))
 		return rc;

@@ -15,5 +15,6 @@ const struct cli_command *const cli_commands[] = {
 	&cli_command_rolling,
 	&cli_command_report,
 	&cli_command_synth,
+	&cli_command_check,
 	NULL
 };

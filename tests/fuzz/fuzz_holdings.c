@@ -3,15 +3,18 @@
  * fuzz-needs: holdings csvread memory error
  *
  * The first byte picks the options (short positions allowed or not; a
- * delimiter; the value column named instead of detecting), the rest is the
- * file.  Loaded funds are checked against holdings.h's contract: every fund
- * has positions, no duplicate id within a fund, finite weights summing to 1.
+ * delimiter; the value column named instead of detecting; the encoding),
+ * the rest is the file.  Loaded funds are checked against holdings.h's
+ * contract: every fund has positions, no duplicate id within a fund (repeats
+ * are summed), finite weights summing to 1, a known type, and every text
+ * valid UTF-8 whatever the input's encoding.
  */
 #include <math.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <string.h>
 
+#include "holdcount/csvread.h"
 #include "holdcount/error.h"
 #include "holdcount/holdings.h"
 
@@ -25,10 +28,15 @@ static void check_fund(const struct holdings_fund *f, int allow_short)
 	double sum = 0;
 	size_t i, j;
 
-	if (!f->name || f->n == 0 || !f->h)
+	if (!f->name || f->n == 0 || !f->h || !hc_csvread_utf8_valid(f->name, strlen(f->name)))
 		__builtin_trap();
 	for (i = 0; i < f->n; i++) {
 		if (!f->h[i].id || !f->h[i].issuer || !isfinite(f->h[i].weight))
+			__builtin_trap();
+		if (f->h[i].type < 0 || f->h[i].type >= HOLDING_NTYPES || f->h[i].rows < 1 ||
+		    !hc_csvread_utf8_valid(f->h[i].id, strlen(f->h[i].id)) ||
+		    !hc_csvread_utf8_valid(f->h[i].issuer, strlen(f->h[i].issuer)) ||
+		    (f->h[i].group && !hc_csvread_utf8_valid(f->h[i].group, strlen(f->h[i].group))))
 			__builtin_trap();
 		if (!allow_short && f->h[i].weight < 0)
 			__builtin_trap();
@@ -57,6 +65,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	opt.delimiter = delims[(data[0] >> 1) & 3];
 	if (data[0] & 8)
 		opt.value_column = "value";
+	opt.encoding = (data[0] >> 4) % 3;   /* utf-8, latin-1, windows-1252 */
 	hc_error_clear(&err);
 	rc = hc_holdings_load_buffer(&h, "fuzz.csv", (const char *)data + 1, size - 1, &opt, &err);
 	if (rc == HC_OK) {

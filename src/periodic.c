@@ -1,0 +1,974 @@
+/*
+ * periodic.c - the exact curve of a ragged universe from per-period sums
+ * (design.md section 12; docs/mathematics.md, "Ragged histories").
+ *
+ * Why this form: for complete data, with x_it centred on each security's
+ * own mean, sum_t xbar_t^2/(T-1) is the equal-weight universe's variance
+ * (V + C)/M^2 and sum_t s2_t/(T-1) is v-bar - c-bar, so the familiar
+ * v-bar/N + (1 - 1/N) c-bar is a sum over periods of the variance of a
+ * sample mean drawn without replacement from that period's cross-section:
+ * E[(mean_S x_t)^2] = xbar_t^2 + (1/N - 1/M_t) s2_t (Cochran, 1977,
+ * Sampling Techniques, 3rd ed., Wiley, theorem 2.2).  Each period can
+ * therefore use its own alive set without any covariance matrix.
+ */
+#include "holdcount/periodic.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <gsl/gsl_rng.h>
+
+#include "holdcount/memory.h"
+#include "holdcount/paths.h"
+
+
+void hc_periodic_free(struct hc_periodic *p)
+{
+	if (!p)
+		return;
+	hc_periodic_curve_release(&p->curve);
+	hc_free(p->alive);
+	hc_free(p->mean);
+	hc_free(p->cross);
+	hc_free(p->raw_mean);
+	hc_free(p->rank);
+	hc_free(p->level);
+	hc_free(p->member);
+	hc_free(p->own_mean);
+	hc_free(p);
+}
+
+static int cmp_size(const void *a, const void *b)
+{
+	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+
+	return (x > y) - (x < y);
+}
+
+/* Each security's mean over the window's periods it is observed; keeps
+ * those observed at least twice. */
+static void own_means(struct hc_periodic *p, const struct universe *u, size_t first, size_t len)
+{
+	size_t i, k, n;
+
+	p->m = p->m_short = p->complete = 0;
+	for (i = 0; i < u->m; i++) {
+		const double *xi = u->x + i * u->t + first;
+		double s = 0;
+
+		for (k = n = 0; k < len; k++)
+			if (!isnan(xi[k])) {
+				s += xi[k];
+				n++;
+			}
+		if (n < 2) {
+			p->m_short += n == 1;
+			continue;
+		}
+		p->complete += n == len;
+		p->member[p->m] = i;
+		p->own_mean[p->m++] = s / (double)n;
+	}
+}
+
+/* Alive counts and period means (pass two), then spreads about those
+ * means (pass three): two-pass sums keep the digits the 1e-12 agreement
+ * with the complete-data route needs. */
+static void period_sums(struct hc_periodic *p, const struct universe *u, size_t first)
+{
+	size_t i, k, len = p->t;
+
+	for (i = 0; i < p->m; i++) {
+		const double *xi = u->x + p->member[i] * u->t + first;
+		double mu = p->own_mean[i];
+
+		for (k = 0; k < len; k++)
+			if (!isnan(xi[k])) {
+				p->alive[k]++;
+				p->mean[k] += xi[k] - mu;
+				p->raw_mean[k] += xi[k];
+			}
+	}
+	for (k = 0; k < len; k++) {
+		p->mean[k] = p->alive[k] ? p->mean[k] / (double)p->alive[k] : 0.0;
+		p->raw_mean[k] = p->alive[k] ? p->raw_mean[k] / (double)p->alive[k] : 0.0;
+	}
+	for (i = 0; i < p->m; i++) {
+		const double *xi = u->x + p->member[i] * u->t + first;
+		double mu = p->own_mean[i];
+
+		for (k = 0; k < len; k++)
+			if (!isnan(xi[k])) {
+				double d = xi[k] - mu - p->mean[k];
+
+				p->cross[k] += d * d;
+			}
+	}
+	for (k = 0; k < len; k++)
+		p->cross[k] = p->alive[k] > 1 ? p->cross[k] / (double)(p->alive[k] - 1) : 0.0;
+}
+
+/* Distinct alive counts, each period's rank among them, min/median/max. */
+static int levels(struct hc_periodic *p)
+{
+	size_t k, j, *sorted = hc_mallocarray(p->t, sizeof *sorted);
+
+	if (!sorted)
+		return -1;
+	memcpy(sorted, p->alive, p->t * sizeof *sorted);
+	qsort(sorted, p->t, sizeof *sorted, cmp_size);
+	p->alive_min = sorted[0];
+	p->alive_max = sorted[p->t - 1];
+	p->alive_median = sorted[(p->t - 1) / 2];
+	for (k = j = 0; k < p->t; k++)
+		if (j == 0 || sorted[k] != p->level[j - 1])
+			p->level[j++] = sorted[k];
+	p->nlevels = j;
+	for (k = 0; k < p->t; k++) {
+		size_t *hit = bsearch(&p->alive[k], p->level, p->nlevels, sizeof *p->level, cmp_size);
+
+		p->rank[k] = (size_t)(hit - p->level);
+	}
+	hc_free(sorted);
+	return 0;
+}
+
+int hc_periodic_alloc(struct hc_periodic **out, const struct universe *u,
+		      size_t first, size_t len, struct hc_error *err)
+{
+	struct hc_periodic *p;
+	size_t k, two = 0;
+	int rc = HC_ENOMEM;
+
+	*out = NULL;
+	if (first > u->t || len > u->t - first)
+		return hc_error(err, HC_EUSAGE, "window of %zu periods from period %zu lies outside the %zu periods",
+				len, first, u->t);
+	if (len < 2)
+		return hc_error(err, HC_EDATA, "%s: the per-period route needs at least 2 periods, found %zu",
+				u->source ? u->source : "universe", len);
+	p = hc_calloc(1, sizeof *p);
+	if (!p)
+		return hc_error(err, HC_ENOMEM, "out of memory for per-period sums");
+	p->t = len;
+	p->periods_per_year = u->periods_per_year;
+	p->max_bytes = u->max_bytes;
+	if (!(p->alive = hc_calloc(len, sizeof *p->alive)) || !(p->mean = hc_calloc(len, sizeof *p->mean)) ||
+	    !(p->cross = hc_calloc(len, sizeof *p->cross)) || !(p->raw_mean = hc_calloc(len, sizeof *p->raw_mean)) || !(p->rank = hc_calloc(len, sizeof *p->rank)) ||
+	    !(p->level = hc_calloc(len, sizeof *p->level)) ||
+	    !(p->member = hc_calloc(u->m ? u->m : 1, sizeof *p->member)) ||
+	    !(p->own_mean = hc_calloc(u->m ? u->m : 1, sizeof *p->own_mean)))
+		goto fail;
+	own_means(p, u, first, len);
+	if (p->m < 2) {
+		rc = hc_error(err, HC_EDATA, "%s: fewer than 2 securities are observed in at least 2 periods",
+			      u->source ? u->source : "universe");
+		goto out;
+	}
+	period_sums(p, u, first);
+	for (k = 0; k < len; k++)
+		two += p->alive[k] > 1;
+	if (two == 0) {
+		rc = hc_error(err, HC_EDATA, "%s: no period has two securities observed together",
+			      u->source ? u->source : "universe");
+		goto out;
+	}
+	if (levels(p) || hc_periodic_curve_init(&p->curve, p))
+		goto fail;
+	hc_periodic_curve_set(&p->curve, p, NULL, len);
+	*out = p;
+	return HC_OK;
+fail:
+	rc = hc_error(err, HC_ENOMEM, "out of memory for the per-period sums of %zu periods", len);
+out:
+	hc_periodic_free(p);
+	return rc;
+}
+
+int hc_periodic_moments(const struct hc_periodic *p, struct moments *mo, struct hc_error *err)
+{
+	double m = (double)p->m;
+
+	(void)err;
+	memset(mo, 0, sizeof *mo);
+	mo->m = p->m;
+	mo->t = p->t;
+	mo->route = MOMENTS_ROUTE_PERIODIC;
+	mo->average_covariance = p->curve.floor;
+	mo->average_variance = p->curve.floor + p->curve.spread;
+	mo->sum_var = m * mo->average_variance;
+	mo->sum_cov = m * (m - 1) * mo->average_covariance;
+	mo->average_correlation = NAN;
+	mo->universe_variance = p->curve.a;
+	return HC_OK;
+}
+
+/* ---- curves ------------------------------------------------------------ */
+
+int hc_periodic_curve_init(struct hc_periodic_curve *c, const struct hc_periodic *p)
+{
+	memset(c, 0, sizeof *c);
+	c->level = p->level;
+	c->nlevels = p->nlevels;
+	c->s1 = hc_calloc(p->nlevels + 1, sizeof *c->s1);
+	c->s2 = hc_calloc(p->nlevels + 1, sizeof *c->s2);
+	if (!c->s1 || !c->s2) {
+		hc_periodic_curve_release(c);
+		return -1;
+	}
+	return 0;
+}
+
+void hc_periodic_curve_release(struct hc_periodic_curve *c)
+{
+	hc_free(c->s1);
+	hc_free(c->s2);
+	c->s1 = c->s2 = NULL;
+}
+
+void hc_periodic_curve_set(struct hc_periodic_curve *c, const struct hc_periodic *p,
+			   const size_t *idx, size_t n)
+{
+	size_t j, k, L = p->nlevels;
+	double a = 0, d = 1.0 / (double)(n - 1);
+
+	memset(c->s1, 0, (L + 1) * sizeof *c->s1);
+	memset(c->s2, 0, (L + 1) * sizeof *c->s2);
+	for (j = 0; j < n; j++) {
+		size_t t = idx ? idx[j] : j;
+
+		a += p->mean[t] * p->mean[t];
+		c->s1[p->rank[t]] += p->cross[t];
+		c->s2[p->rank[t]] += p->cross[t] / (double)p->alive[t];
+	}
+	for (k = L; k-- > 0;) {
+		c->s1[k] += c->s1[k + 1];
+		c->s2[k] += c->s2[k + 1];
+	}
+	for (k = 0; k <= L; k++) {
+		c->s1[k] *= d;
+		c->s2[k] *= d;
+	}
+	c->t = n;
+	c->a = a * d;
+	c->spread = c->s1[0];
+	c->floor = c->a - c->s2[0];
+	c->mmax = p->alive_max;
+}
+
+/* Index of the first level above n (nlevels when none). */
+static size_t above(const struct hc_periodic_curve *c, double n)
+{
+	size_t lo = 0, hi = c->nlevels;
+
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2;
+
+		if ((double)c->level[mid] > n)
+			hi = mid;
+		else
+			lo = mid + 1;
+	}
+	return lo;
+}
+
+double hc_periodic_expected_te2(const struct hc_periodic_curve *c, double n)
+{
+	size_t k = above(c, n);
+	double v = c->s1[k] / n - c->s2[k];
+
+	return v > 0 ? v : 0.0;
+}
+
+double hc_periodic_expected_variance(const struct hc_periodic_curve *c, double n)
+{
+	size_t k = above(c, n);
+
+	/* Write it as the floor plus non-negative parts, so that at N = M of
+	 * complete data it rounds as (V + C)/M^2 does. */
+	if (k == c->nlevels)
+		return c->a;
+	return c->a + (c->s1[k] / n - c->s2[k]);
+}
+
+double hc_periodic_diversifiable_share(const struct hc_periodic_curve *c, double n)
+{
+	double e = hc_periodic_expected_variance(c, n);
+
+	return e > 0 ? (c->spread / n) / e : NAN;
+}
+
+int hc_periodic_curve_exact(struct curve **out, const struct hc_periodic *p,
+			    const size_t *sizes, size_t nsizes, double ppy,
+			    struct hc_error *err)
+{
+	const struct hc_periodic_curve *pc = &p->curve;
+	struct curve *c;
+	size_t i;
+
+	*out = NULL;
+	if (!isfinite(ppy) || ppy <= 0)
+		return hc_error(err, HC_EUSAGE, "periods per year %g is not a positive number", ppy);
+	for (i = 0; i < nsizes; i++)
+		if (sizes[i] < 1 || sizes[i] > p->m)
+			return hc_error(err, HC_EUSAGE, sizes[i] < 1 ? "size 0 is not a holding count" :
+					"size %zu is larger than the %zu securities kept", sizes[i], p->m);
+	c = hc_calloc(1, sizeof *c);
+	if (!c || !(c->points = hc_calloc(nsizes ? nsizes : 1, sizeof *c->points))) {
+		hc_curve_free(c);
+		return hc_error(err, HC_ENOMEM, "out of memory for a curve of %zu points", nsizes);
+	}
+	c->npoints = nsizes;
+	c->periods_per_year = ppy;
+	c->m = p->m;
+	c->floor_variance = pc->floor * ppy;
+	c->universe_variance = pc->a * ppy;
+	for (i = 0; i < nsizes; i++) {
+		struct curve_point *q = &c->points[i];
+		double n = (double)sizes[i];
+
+		q->n = sizes[i];
+		q->expected_variance = hc_periodic_expected_variance(pc, n) * ppy;
+		q->expected_sd = sqrt(q->expected_variance);
+		q->variance_sd = NAN;
+		q->expected_tracking_error = sqrt(hc_periodic_expected_te2(pc, n) * ppy);
+		q->diversifiable_share = hc_periodic_diversifiable_share(pc, n);
+		q->sampled_mean_variance = q->sampled_variance_se = q->sampled_mean_sd = NAN;
+		q->sd_p05 = q->sd_p50 = q->sd_p95 = q->z_score = NAN;
+	}
+	*out = c;
+	return HC_OK;
+}
+
+/* ---- rules ------------------------------------------------------------- */
+
+/* Annualised sqrt(E(n)). */
+static double sd_at(const struct hc_periodic_curve *c, double ppy, size_t n)
+{
+	double v = hc_periodic_expected_variance(c, (double)n) * ppy;
+
+	return v > 0 ? sqrt(v) : 0.0;
+}
+
+/* sqrt(E(N)) - sqrt(E(N+1)) annualised, as a difference of squares over the
+ * sum: E(N) - E(N+1) = s1(N)/(N(N+1)), since a period with M_t = N+1 adds
+ * (1/N - 1/(N+1)) s2_t on the left and nothing on the right. */
+static double step_at(const struct hc_periodic_curve *c, double ppy, size_t n)
+{
+	double dn = (double)n, sum = sd_at(c, ppy, n) + sd_at(c, ppy, n + 1);
+	size_t k = above(c, dn);
+
+	if (sum <= 0)
+		return 0.0;
+	return c->s1[k] * ppy / (dn * (dn + 1) * sum);
+}
+
+/* Smallest n in 1..mmax with E-based meets(n), meets monotone (false then
+ * true): bisection.  0 when none. */
+static size_t first_true(const struct hc_periodic_curve *c, double ppy, double limit,
+			 int (*meets)(const struct hc_periodic_curve *, double, double, size_t))
+{
+	size_t lo = 1, hi = c->mmax;
+
+	if (!meets(c, ppy, limit, hi))
+		return 0;
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2;
+
+		if (meets(c, ppy, limit, mid))
+			hi = mid;
+		else
+			lo = mid + 1;
+	}
+	return lo;
+}
+
+static int floor_meets(const struct hc_periodic_curve *c, double ppy, double limit, size_t n)
+{
+	(void)ppy;
+	return hc_periodic_expected_variance(c, (double)n) <= limit;
+}
+
+static int te_meets(const struct hc_periodic_curve *c, double ppy, double limit, size_t n)
+{
+	return hc_periodic_expected_te2(c, (double)n) * ppy <= limit;
+}
+
+/* The steps need not fall monotonically once N passes the smallest alive
+ * count, so every N is scanned: O(mmax log levels). */
+static size_t first_small_step(const struct hc_periodic_curve *c, double ppy, double limit)
+{
+	size_t n;
+
+	for (n = 1; n < c->mmax; n++)
+		if (step_at(c, ppy, n) < limit)
+			return n;
+	return 0;
+}
+
+int hc_periodic_rule_count(const struct rules_config *cfg, int rule,
+			   const struct hc_periodic_curve *c, double ppy, size_t *count)
+{
+	size_t n;
+	double su;
+
+	switch (rule) {
+	case RULES_NEAR_FLOOR: {
+		double x1 = 1 + cfg->near_floor_x;
+
+		if (!(c->floor > 0))
+			return -1;
+		n = first_true(c, ppy, x1 * x1 * c->floor, floor_meets);
+		break;
+	}
+	case RULES_MARGINAL:
+		n = first_small_step(c, ppy, cfg->marginal_eps);
+		break;
+	case RULES_NEXT_HOLDING:
+		/* After Statman (1987), JFQA 22(3), as in rules.c. */
+		su = c->a > 0 ? sqrt(c->a * ppy) : 0.0;
+		if (!(su > 0))
+			return -1;
+		n = first_small_step(c, ppy, cfg->holding_cost * su / cfg->premium);
+		break;
+	case RULES_TRACKING_ERROR:
+		n = first_true(c, ppy, cfg->te_budget * cfg->te_budget, te_meets);
+		break;
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING: {
+		/* Statman (1987), JFQA 22(3), as in rules.c: premium
+		 * (s(N)/s_i - 1) <= cost  <=>  E(N) <= ((1 + cost/premium))^2 s_i^2
+		 * per period, s_i the equal-weight universe's sd. */
+		double k = 1 + cfg->index_cost / (rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium
+						   : cfg->lend_premium);
+
+		if (!(c->a > 0))
+			return -1;
+		n = first_true(c, ppy, k * k * c->a, floor_meets);
+		break;
+	}
+	default:
+		return -1;
+	}
+	if (n == 0)
+		return 0;
+	*count = n;
+	return 1;
+}
+
+int hc_periodic_rule(const struct rules_config *cfg, int rule,
+		     const struct hc_periodic_curve *c, double ppy,
+		     struct rule_result *res, struct hc_error *err)
+{
+	double vbar = c->floor + c->spread;
+	int rc, got;
+
+	/* The texts (parameters, unit, notes) as for complete data; the
+	 * count and values are then the ragged curve's. */
+	rc = hc_rules_exact(cfg, rule, vbar, c->floor, c->mmax, ppy, res, err);
+	if (rc)
+		return rc;
+	got = hc_periodic_rule_count(cfg, rule, c, ppy, &res->count);
+	if (got < 0) {
+		res->defined = 0;
+		res->met = 0;
+		res->value = NAN;
+		if (!res->note[0])
+			snprintf(res->note, sizeof res->note, "undefined: %s is not above zero",
+				 rule == RULES_NEAR_FLOOR ? "the floor" : "the universe portfolio's risk");
+		return HC_OK;
+	}
+	res->defined = 1;
+	res->met = got;
+	res->value = NAN;
+	if (!got) {
+		res->count = 0;
+		snprintf(res->note, sizeof res->note,
+			 "not met with at most %zu securities alive in a period", c->mmax);
+	} else {
+		res->note[0] = '\0';
+	}
+	switch (rule) {
+	case RULES_NEAR_FLOOR:
+		res->threshold = (1 + cfg->near_floor_x) * sqrt(c->floor * ppy);
+		if (got)
+			res->value = sd_at(c, ppy, res->count);
+		break;
+	case RULES_MARGINAL:
+		res->threshold = cfg->marginal_eps;
+		if (got)
+			res->value = step_at(c, ppy, res->count);
+		break;
+	case RULES_NEXT_HOLDING:
+		res->threshold = cfg->holding_cost;
+		if (got)
+			res->value = cfg->premium * step_at(c, ppy, res->count) / sqrt(c->a * ppy);
+		break;
+	case RULES_TRACKING_ERROR:
+		res->threshold = cfg->te_budget;
+		if (got)
+			res->value = sqrt(hc_periodic_expected_te2(c, (double)res->count) * ppy);
+		break;
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING:
+		res->threshold = cfg->index_cost;
+		if (got)
+			res->value = (rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium : cfg->lend_premium) *
+				     (sd_at(c, ppy, res->count) / sqrt(c->a * ppy) - 1);
+		break;
+	}
+	return HC_OK;
+}
+
+/* ---- bootstrap --------------------------------------------------------- */
+
+/* One replicate a path of the one parallel driver (paths.h): its periods
+ * drawn as bootstrap.h draws them, its O(T) curve, the rule counts. */
+struct boot_job {
+	const struct rules_config *cfg;
+	const struct hc_periodic *p;
+	const struct bootstrap_options *bopt;
+	double ppy;
+	const struct rule_result *res;
+	const size_t *which;
+	size_t nb, L;
+	size_t *counts;
+};
+
+struct boot_ws {
+	struct hc_periodic_curve c;
+	size_t *idx;
+};
+
+static int boot_ws_init(void *job, void *ws)
+{
+	const struct boot_job *j = job;
+	struct boot_ws *w = ws;
+
+	memset(w, 0, sizeof *w);
+	if (!(w->idx = hc_mallocarray(j->p->t, sizeof *w->idx)))
+		return -1;
+	if (hc_periodic_curve_init(&w->c, j->p)) {
+		hc_free(w->idx);
+		w->idx = NULL;
+		return -1;
+	}
+	return 0;
+}
+
+static void boot_ws_release(void *ws)
+{
+	struct boot_ws *w = ws;
+
+	if (w->idx) {
+		hc_periodic_curve_release(&w->c);
+		hc_free(w->idx);
+	}
+	memset(w, 0, sizeof *w);
+}
+
+static void boot_path(void *job, void *ws, size_t r)
+{
+	const struct boot_job *j = job;
+	struct boot_ws *w = ws;
+	size_t q, cnt;
+
+	/* the kind was checked, so the draw cannot fail */
+	hc_bootstrap_indices(j->bopt->kind, j->p->t, j->L, j->bopt->seed, r, w->idx, NULL);
+	hc_periodic_curve_set(&w->c, j->p, w->idx, j->p->t);
+	for (q = 0; q < j->nb; q++)
+		j->counts[r * j->nb + q] =
+			hc_periodic_rule_count(j->cfg, j->res[j->which[q]].rule, &w->c, j->ppy, &cnt) == 1 ? cnt : 0;
+}
+
+int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_periodic *p,
+			  const struct bootstrap_options *bopt, double ppy,
+			  struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t B = bopt->replicates, L, j, nb = 0, *counts = NULL;
+	size_t which[RULES_COUNT];
+	int rc = HC_OK;
+
+	if (B == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	if (B > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates is more than the %u allowed",
+				B, HC_BOOTSTRAP_MAX_REPLICATES);
+	if (!hc_bootstrap_kind_name(bopt->kind))
+		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", bopt->kind);
+	L = bopt->block_length ? bopt->block_length : hc_bootstrap_default_block_length(p->t);
+	if (L > p->t)
+		return hc_error(err, HC_EUSAGE, "block length %zu exceeds the %zu periods", L, p->t);
+	for (j = 0; j < nres && nb < RULES_COUNT; j++)
+		if (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
+			which[nb++] = j;
+	if (nb == 0)
+		return HC_OK;
+	/* the counts of every replicate and a curve and draw per thread,
+	 * beside the sums (memory.h's budget) */
+	if ((rc = hc_memory_check(p->max_bytes, (double)p->t * 48.0,
+				  (double)B * (double)nb * 8.0 + 2.0 * (double)p->t * 24.0, err,
+				  "%zu bootstrap replicates", B)))
+		return rc;
+	if (hc_mul_size(B, nb, &j) || !(counts = hc_calloc(B * nb, sizeof *counts)))
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
+	{
+		struct boot_job job = { cfg, p, bopt, ppy, res, which, nb, L, counts };
+		struct hc_paths run = {
+			B, bopt->threads, 8, &job, sizeof(struct boot_ws), boot_ws_init, boot_ws_release,
+			boot_path, bopt->progress, bopt->progress_ctx, "bootstrap's", "bootstrap", "replicates"
+		};
+
+		if ((rc = hc_paths_run(&run, err)) != HC_OK)
+			goto out;
+	}
+	{
+		size_t *col = hc_mallocarray(B, sizeof *col), q, r;
+
+		if (!col) {
+			rc = hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
+			goto out;
+		}
+		for (q = 0; q < nb; q++) {
+			for (r = 0; r < B; r++)
+				col[r] = counts[r * nb + q];
+			hc_rules_set_interval(&res[which[q]], col, B);
+		}
+		hc_free(col);
+	}
+out:
+	hc_free(counts);
+	return rc;
+}
+
+/* ---- sampler ----------------------------------------------------------- */
+
+struct ragged_ws {
+	size_t *order;
+	size_t *cnt, *next;   /* t: securities taken so far, next grid index */
+	double *sum;          /* t */
+	double *raw;          /* t: uncentred sums (returns wanted) */
+	double *acc;          /* nsizes */
+	double *lacc;         /* nsizes: sums of log(1 + p_t) */
+	gsl_rng *rng;
+};
+
+static void ws_release(struct ragged_ws *w)
+{
+	hc_free(w->order);
+	hc_free(w->cnt);
+	hc_free(w->next);
+	hc_free(w->sum);
+	hc_free(w->raw);
+	hc_free(w->acc);
+	hc_free(w->lacc);
+	if (w->rng)
+		gsl_rng_free(w->rng);
+	memset(w, 0, sizeof *w);
+}
+
+static int ws_init(struct ragged_ws *w, size_t m, size_t t, size_t nsizes)
+{
+	memset(w, 0, sizeof *w);
+	w->order = hc_mallocarray(m, sizeof *w->order);
+	w->cnt = hc_mallocarray(t, sizeof *w->cnt);
+	w->next = hc_mallocarray(t, sizeof *w->next);
+	w->sum = hc_mallocarray(t, sizeof *w->sum);
+	w->raw = hc_mallocarray(t, sizeof *w->raw);
+	w->acc = hc_mallocarray(nsizes, sizeof *w->acc);
+	w->lacc = hc_mallocarray(nsizes, sizeof *w->lacc);
+	w->rng = gsl_rng_alloc(gsl_rng_taus2);
+	if (!w->order || !w->cnt || !w->next || !w->sum || !w->raw || !w->acc || !w->lacc || !w->rng) {
+		ws_release(w);
+		return -1;
+	}
+	return 0;
+}
+
+/* log(1 + r), with a total loss (r <= -1) as -infinity: the compound
+ * return is then -100%. */
+static double log1p_total(double r)
+{
+	return r > -1 ? log1p(r) : -INFINITY;
+}
+
+/* One path: a random order (Fisher-Yates), then the securities in that
+ * order, each adding its centred returns to every period it is alive in,
+ * until every period holds n_max or all it has. */
+static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const struct universe *u,
+			size_t first, const size_t *sizes, size_t ns, unsigned long seed, double *out,
+			double *ret, double ppy)
+{
+	size_t i, j, k, t = p->t, nmax = sizes[ns - 1], open = t;
+
+	gsl_rng_set(w->rng, seed);
+	for (i = 0; i < p->m; i++)
+		w->order[i] = i;
+	for (i = 0; i + 1 < p->m; i++) {
+		size_t r = i + (size_t)gsl_rng_uniform_int(w->rng, p->m - i), tmp = w->order[i];
+
+		w->order[i] = w->order[r];
+		w->order[r] = tmp;
+	}
+	memset(w->cnt, 0, t * sizeof *w->cnt);
+	memset(w->next, 0, t * sizeof *w->next);
+	memset(w->sum, 0, t * sizeof *w->sum);
+	memset(w->raw, 0, t * sizeof *w->raw);
+	memset(w->acc, 0, ns * sizeof *w->acc);
+	memset(w->lacc, 0, ns * sizeof *w->lacc);
+	for (i = 0; i < p->m && open; i++) {
+		size_t s = w->order[i];
+		const double *xi = u->x + p->member[s] * u->t + first;
+		double mu = p->own_mean[s];
+
+		for (k = 0; k < t; k++) {
+			double m;
+
+			if (isnan(xi[k]) || w->cnt[k] >= nmax)
+				continue;
+			w->sum[k] += xi[k] - mu;
+			w->raw[k] += xi[k];
+			w->cnt[k]++;
+			if (w->cnt[k] == sizes[w->next[k]]) {
+				m = w->sum[k] / (double)w->cnt[k];
+				if (ret)
+					w->lacc[w->next[k]] += log1p_total(w->raw[k] / (double)w->cnt[k]);
+				w->acc[w->next[k]++] += m * m;
+				open -= w->next[k] == ns;
+			}
+		}
+	}
+	/* Sizes above a period's alive count hold everything alive then. */
+	for (k = 0; k < t; k++) {
+		double m = w->cnt[k] ? w->sum[k] / (double)w->cnt[k] : 0.0;
+		double l = ret && w->cnt[k] ? log1p_total(w->raw[k] / (double)w->cnt[k]) : 0.0;
+
+		for (j = w->next[k]; j < ns; j++) {
+			w->acc[j] += m * m;
+			w->lacc[j] += l;
+		}
+	}
+	for (j = 0; j < ns; j++) {
+		out[j] = w->acc[j] / (double)(t - 1);
+		if (ret)
+			ret[j] = expm1(w->lacc[j] * ppy / (double)t);
+	}
+}
+
+/* The ragged sampler's job for the one parallel path driver (paths.h). */
+struct sample_job {
+	const struct hc_periodic *p;
+	const struct universe *u;
+	size_t first;
+	const size_t *sizes;
+	size_t nsizes;
+	const struct sampler_options *opt;
+	struct sampler_result *r;
+};
+
+static int sample_ws_init(void *job, void *ws)
+{
+	const struct sample_job *j = job;
+
+	return ws_init(ws, j->p->m, j->p->t, j->nsizes);
+}
+
+static void sample_ws_release(void *ws)
+{
+	ws_release(ws);
+}
+
+static void sample_path(void *job, void *ws, size_t k)
+{
+	const struct sample_job *j = job;
+	struct sampler_result *r = j->r;
+
+	ragged_path(ws, j->p, j->u, j->first, j->sizes, j->nsizes, hc_paths_seed32(j->opt->seed, k),
+		    r->variance + k * j->nsizes, r->annual_return ? r->annual_return + k * j->nsizes : NULL,
+		    j->opt->periods_per_year);
+}
+
+int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
+		       const struct universe *u, size_t first,
+		       const size_t *sizes, size_t nsizes,
+		       const struct sampler_options *opt, struct hc_error *err)
+{
+	struct sampler_result *r;
+	struct sample_job job;
+	size_t j, total;
+	int rc;
+
+	*out = NULL;
+	if (opt->paths == 0 || opt->strata || nsizes == 0)
+		return hc_error(err, HC_EUSAGE, "the ragged sampler needs paths and sizes, and draws no strata");
+	for (j = 0; j < nsizes; j++)
+		if (sizes[j] < 1 || sizes[j] > p->m || (j && sizes[j] <= sizes[j - 1]))
+			return hc_error(err, HC_EUSAGE, "sizes must ascend within 1..%zu (size %zu)", p->m, sizes[j]);
+	if (hc_mul_size(opt->paths, nsizes, &total))
+		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes do not fit in memory", opt->paths, nsizes);
+	/* the result arrays within the universe's budget (memory.h), beside its numbers */
+	if ((rc = hc_memory_check(u->max_bytes, (double)u->m * (double)u->t * 8.0,
+				  (double)total * 8.0 * (opt->want_returns ? 2 : 1), err,
+				  "%zu sampled portfolios (%zu paths of %zu sizes)", total, opt->paths, nsizes)))
+		return rc;
+	r = hc_calloc(1, sizeof *r);
+	if (!r || !(r->sizes = hc_mallocarray(nsizes, sizeof *r->sizes)) ||
+	    !(r->variance = hc_mallocarray(total, sizeof *r->variance)) ||
+	    !(r->feasible = hc_malloc(nsizes)) ||
+	    (opt->want_returns && !(r->annual_return = hc_mallocarray(total, sizeof *r->annual_return)))) {
+		hc_sampler_result_free(r);
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", total);
+	}
+	r->paths = opt->paths;
+	r->nsizes = nsizes;
+	r->seed = opt->seed;
+	memcpy(r->sizes, sizes, nsizes * sizeof *sizes);
+	memset(r->feasible, 1, nsizes);
+	job.p = p;
+	job.u = u;
+	job.first = first;
+	job.sizes = sizes;
+	job.nsizes = nsizes;
+	job.opt = opt;
+	job.r = r;
+	{
+		struct hc_paths run = {
+			opt->paths, opt->threads, 4, &job, sizeof(struct ragged_ws), sample_ws_init,
+			sample_ws_release, sample_path, opt->progress, opt->progress_ctx, "ragged sampler's",
+			"sampling", "paths"
+		};
+
+		rc = hc_paths_run(&run, err);
+	}
+	if (rc != HC_OK) {
+		hc_sampler_result_free(r);
+		return rc;
+	}
+	*out = r;
+	return HC_OK;
+}
+
+int hc_periodic_universe_return(const struct hc_periodic *p, double ppy, double *ret,
+				struct hc_error *err)
+{
+	double l = 0;
+	size_t k;
+
+	for (k = 0; k < p->t; k++) {
+		if (!(p->raw_mean[k] > -1))
+			return hc_error(err, HC_EDATA,
+					"the equal-weight portfolio of the alive securities loses 100%% or more in period %zu",
+					k + 1);
+		l += log1p(p->raw_mean[k]);
+	}
+	*ret = expm1(l * ppy / (double)p->t);
+	return HC_OK;
+}
+
+/* ---- the sampled rules ------------------------------------------------- */
+
+int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_periodic *p,
+			      const struct universe *u, const struct sampler_options *base,
+			      struct rule_result sr[2], size_t *largest, struct hc_error *err)
+{
+	struct sampler_options so = *base;
+	struct sampler_result *r = NULL;
+	size_t K = RULES_SAMPLED_FIRST_K, *sizes, k;
+	double uret = 0;
+	int rc = HC_OK;
+
+	memset(sr, 0, 2 * sizeof *sr);
+	*largest = 0;
+	so.want_returns = (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)) != 0;
+	so.periods_per_year = p->periods_per_year;
+	if (so.want_returns && (rc = hc_periodic_universe_return(p, p->periods_per_year, &uret, err)))
+		return rc;
+	if (!(sizes = hc_mallocarray(p->m, sizeof *sizes)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the sampled sizes");
+	for (k = 0; k < p->m; k++)
+		sizes[k] = k + 1;
+	for (;;) {
+		int all_met = 1;
+
+		if (K > p->m)
+			K = p->m;
+		hc_sampler_result_free(r);
+		r = NULL;
+		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, err);
+		for (k = 0; rc == HC_OK && k < 2; k++) {
+			int rule = k == 0 ? RULES_BAND : RULES_LAG_SHARE;
+
+			if (!(cfg->selected & RULES_FLAG(rule)))
+				continue;
+			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, p->periods_per_year, &sr[k], err)
+						: hc_rules_lag_share(cfg, r, uret, &sr[k], err);
+			all_met &= rc == HC_OK && sr[k].met;
+		}
+		if (rc || all_met || K == p->m)
+			break;
+		K *= RULES_SAMPLED_GROWTH;
+	}
+	*largest = K;
+	hc_sampler_result_free(r);
+	hc_free(sizes);
+	return rc;
+}
+
+int hc_periodic_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
+				  const struct bootstrap_options *bo, const struct sampler_options *base,
+				  struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t B = bo->replicates, L = bo->block_length ? bo->block_length : hc_bootstrap_default_block_length(u->t);
+	size_t *idx = NULL, *cnt = NULL, *col = NULL, rep, k, j, K, n2;
+	struct sampler_options so = *base;
+	int rc = HC_OK;
+
+	so.progress = NULL;
+	if (B == 0 || B > HC_BOOTSTRAP_MAX_REPLICATES)
+		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates: expected 1 to %u", B, HC_BOOTSTRAP_MAX_REPLICATES);
+	if (hc_mul_size(2, B ? B : 1, &n2) || !(idx = hc_mallocarray(u->t, sizeof *idx)) ||
+	    !(cnt = hc_calloc(n2, sizeof *cnt)) || !(col = hc_mallocarray(B ? B : 1, sizeof *col))) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
+		goto out;
+	}
+	for (rep = 0; rep < B && rc == HC_OK; rep++) {
+		struct universe *ru = NULL;
+		struct hc_periodic *rp = NULL;
+		struct rule_result sr[2];
+
+		so.seed = hc_rules_replicate_seed(bo->seed, rep);
+		rc = hc_bootstrap_indices(bo->kind, u->t, L, bo->seed, rep, idx, err);
+		if (rc == HC_OK)
+			rc = hc_universe_resample(&ru, u, idx, u->t, err);
+		if (rc == HC_OK)
+			rc = hc_periodic_alloc(&rp, ru, 0, ru->t, err);
+		if (rc == HC_OK)
+			rc = hc_periodic_rules_sampled(cfg, rp, ru, &so, sr, &K, err);
+		for (k = 0; rc == HC_OK && k < 2; k++)
+			cnt[2 * rep + k] = sr[k].met ? sr[k].count : 0;
+		hc_periodic_free(rp);
+		hc_universe_free(ru);
+		if (rc == HC_OK && bo->progress && bo->progress(bo->progress_ctx, rep + 1, B))
+			rc = hc_error(err, HC_EINTERRUPT, "the sampled bootstrap stopped after %zu of %zu replicates",
+				      rep + 1, B);
+	}
+	for (k = 0; rc == HC_OK && k < 2; k++) {
+		int rule = k == 0 ? RULES_BAND : RULES_LAG_SHARE;
+
+		if (!(cfg->selected & RULES_FLAG(rule)))
+			continue;
+		for (j = 0; j < nres; j++)
+			if (res[j].rule == rule) {
+				for (rep = 0; rep < B; rep++)
+					col[rep] = cnt[2 * rep + k];
+				hc_rules_set_interval(&res[j], col, B);
+			}
+	}
+out:
+	hc_free(col);
+	hc_free(idx);
+	hc_free(cnt);
+	return rc;
+}

@@ -1,0 +1,464 @@
+/*
+ * test_periodic.c - the per-period route against the complete-data route
+ * and against enumeration of every subset of each period's alive set.
+ */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include <gsl/gsl_rng.h>
+#include <gsl/gsl_randist.h>
+
+#include "holdcount/curve.h"
+#include "holdcount/memory.h"
+#include "holdcount/moments.h"
+#include "holdcount/periodic.h"
+#include "holdcount/rules.h"
+#include "holdcount/sampler.h"
+#include "holdcount/source.h"
+#include "holdcount/universe.h"
+
+/* A one-factor universe (returns 0.004 + beta f_t + e_it), gaps where
+ * ragged: security i lists at period first[i] and delists after last[i],
+ * and a few scattered cells are missing. */
+static struct universe *make_universe(size_t m, size_t t, int ragged, unsigned long seed)
+{
+	struct universe *u = hc_calloc(1, sizeof *u);
+	gsl_rng *r = gsl_rng_alloc(gsl_rng_mt19937);
+	double *f = hc_malloc(t * sizeof *f);
+	size_t i, k;
+
+	assert_non_null(u);
+	assert_non_null(r);
+	gsl_rng_set(r, seed);
+	u->m = u->m_read = m;
+	u->t = t;
+	u->ids = hc_calloc(m, sizeof *u->ids);
+	u->x = hc_malloc(m * t * sizeof *u->x);
+	u->dates = hc_malloc(t * sizeof *u->dates);
+	assert_true(u->ids && u->x && u->dates && f);
+	for (k = 0; k < t; k++) {
+		f[k] = 0.043 * gsl_ran_ugaussian(r);
+		u->dates[k] = (int32_t)(12000 + 30 * k);
+	}
+	for (i = 0; i < m; i++) {
+		double beta = 0.55 + 0.9 * gsl_rng_uniform(r), s = 0.03 + 0.07 * gsl_rng_uniform(r);
+		size_t lo = 0, hi = t;
+
+		u->ids[i] = hc_malloc(16);
+		snprintf(u->ids[i], 16, "LIR%03zu", i + 1);
+		if (ragged && i % 3 == 1)
+			lo = (size_t)gsl_rng_uniform_int(r, t / 2);
+		if (ragged && i % 4 == 2)
+			hi = t / 2 + (size_t)gsl_rng_uniform_int(r, t / 2);
+		if (hi < lo + 3)
+			hi = lo + 3;
+		for (k = 0; k < t; k++) {
+			int gap = k < lo || k >= hi || (ragged && gsl_rng_uniform(r) < 0.05);
+
+			u->x[i * t + k] = gap ? NAN : 0.004 + beta * f[k] + s * gsl_ran_ugaussian(r);
+			u->has_missing |= gap;
+		}
+	}
+	u->periods_per_year = 12;
+	hc_free(f);
+	gsl_rng_free(r);
+	return u;
+}
+
+static double rel(double a, double b)
+{
+	double d = fabs(a - b), s = fmax(fabs(a), fabs(b));
+
+	return s > 0 ? d / s : d;
+}
+
+/* Complete data: the per-period formula is the complete-data exact curve
+ * (design.md section 3 via moments.c's Gram route) to 1e-12 relative. */
+static void test_periodic_matches_complete_route(void **state)
+{
+	struct universe *u = make_universe(37, 61, 0, 11);
+	struct hc_periodic *p = NULL;
+	struct moments mo;
+	struct hc_error err;
+	size_t n;
+
+	(void)state;
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_int_equal(p->alive_min, 37);
+	assert_int_equal(p->alive_max, 37);
+	assert_int_equal(p->complete, 37);
+	assert_true(rel(p->curve.floor, mo.average_covariance) < 1e-12);
+	assert_true(rel(p->curve.a, mo.universe_variance) < 1e-12);
+	assert_true(rel(p->curve.spread, mo.average_variance - mo.average_covariance) < 1e-12);
+	for (n = 1; n <= 37; n++) {
+		assert_true(rel(hc_periodic_expected_variance(&p->curve, (double)n),
+				hc_curve_expected_variance(&mo, (double)n)) < 1e-12);
+		if (n < 37)
+			assert_true(rel(hc_periodic_expected_te2(&p->curve, (double)n),
+					hc_curve_expected_te2(&mo, (double)n)) < 1e-12);
+	}
+	assert_true(hc_periodic_expected_te2(&p->curve, 37.0) < 1e-15);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* Complete data: every exact rule gives the complete-data route's count. */
+static void test_periodic_rules_match_complete_route(void **state)
+{
+	struct universe *u = make_universe(150, 120, 0, 12);
+	struct hc_periodic *p = NULL;
+	struct moments mo;
+	struct rules_config cfg;
+	struct hc_error err;
+	int rules[] = { RULES_NEAR_FLOOR, RULES_MARGINAL, RULES_NEXT_HOLDING, RULES_TRACKING_ERROR,
+			RULES_STATMAN_BORROWING, RULES_STATMAN_LENDING };
+	size_t j, a, b;
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	cfg.te_budget = 0.03;
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	for (j = 0; j < sizeof rules / sizeof rules[0]; j++) {
+		int g1 = hc_rules_exact_count(&cfg, rules[j], mo.average_variance, mo.average_covariance, mo.m, 12, &a);
+		int g2 = hc_periodic_rule_count(&cfg, rules[j], &p->curve, 12, &b);
+
+		assert_int_equal(g1, 1);
+		assert_int_equal(g2, 1);
+		assert_int_equal(a, b);
+	}
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* Enumeration: for each period, every subset of min(N, M_t) of the
+ * securities alive then; the mean over subsets of (mean of x over the
+ * subset)^2, summed over periods and divided by T - 1, with x centred on
+ * each security's own observed mean (computed here independently). */
+static double enumerate(const struct universe *u, size_t n)
+{
+	size_t i, k, t = u->t, m = u->m;
+	double total = 0, mean[16];
+
+	assert_true(m <= 16);
+	for (i = 0; i < m; i++) {
+		double s = 0;
+		size_t c = 0;
+
+		for (k = 0; k < t; k++)
+			if (!isnan(u->x[i * t + k])) {
+				s += u->x[i * t + k];
+				c++;
+			}
+		mean[i] = s / (double)c;
+	}
+	for (k = 0; k < t; k++) {
+		size_t alive = 0, take, subsets = 0;
+		unsigned mask, full = 0;
+		double acc = 0;
+
+		for (i = 0; i < m; i++)
+			if (!isnan(u->x[i * t + k])) {
+				full |= 1u << i;
+				alive++;
+			}
+		take = n < alive ? n : alive;
+		for (mask = 0; mask < (1u << m); mask++) {
+			double s = 0;
+
+			if ((mask & ~full) || (size_t)__builtin_popcount(mask) != take)
+				continue;
+			for (i = 0; i < m; i++)
+				if (mask & (1u << i))
+					s += u->x[i * t + k] - mean[i];
+			acc += (s / (double)take) * (s / (double)take);
+			subsets++;
+		}
+		total += subsets ? acc / (double)subsets : 0.0;
+	}
+	return total / (double)(t - 1);
+}
+
+static void test_periodic_matches_enumeration_ragged(void **state)
+{
+	struct universe *u = make_universe(9, 23, 1, 13);
+	struct hc_periodic *p = NULL;
+	struct hc_error err;
+	size_t n;
+
+	(void)state;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_true(p->alive_min < p->alive_max);
+	for (n = 1; n <= 9; n++)
+		assert_true(rel(hc_periodic_expected_variance(&p->curve, (double)n), enumerate(u, n)) < 1e-12);
+	/* The tracking error is the curve less the equal-weight alive portfolio's variance. */
+	for (n = 1; n <= 9; n++)
+		assert_true(fabs(hc_periodic_expected_te2(&p->curve, (double)n) -
+				 (enumerate(u, n) - enumerate(u, 9))) < 1e-14);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* A window's sums equal the sums of a universe cut to that window. */
+static void test_periodic_window_equals_cut(void **state)
+{
+	struct universe *u = make_universe(30, 80, 1, 14), *w = NULL;
+	struct hc_periodic *p = NULL, *q = NULL;
+	struct hc_error err;
+	size_t n;
+
+	(void)state;
+	assert_int_equal(hc_universe_window(&w, u, 17, 40, UNIVERSE_MISSING_KEEP, 0.0001, &err), HC_OK);
+	assert_int_equal(hc_periodic_alloc(&p, u, 17, 40, &err), HC_OK);
+	assert_int_equal(hc_periodic_alloc(&q, w, 0, w->t, &err), HC_OK);
+	assert_int_equal(p->m, q->m);
+	for (n = 1; n <= p->m; n++)
+		assert_true(rel(hc_periodic_expected_variance(&p->curve, (double)n),
+				hc_periodic_expected_variance(&q->curve, (double)n)) < 1e-13);
+	hc_periodic_free(p);
+	hc_periodic_free(q);
+	hc_universe_free(w);
+	hc_universe_free(u);
+}
+
+/* Ragged rules against a plain scan of the formula (independent code). */
+static void test_periodic_rules_scan_ragged(void **state)
+{
+	struct universe *u = make_universe(60, 90, 1, 15);
+	struct hc_periodic *p = NULL;
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+	size_t n, count, want_floor = 0, want_te = 0, want_marg = 0;
+	double P = 12, e0;
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	cfg.near_floor_x = 0.05;
+	cfg.te_budget = 0.04;
+	cfg.marginal_eps = 0.0015;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	for (n = p->alive_max; n >= 1; n--) {
+		double e = hc_periodic_expected_variance(&p->curve, (double)n);
+
+		if (e <= 1.05 * 1.05 * p->curve.floor)
+			want_floor = n;
+		if (hc_periodic_expected_te2(&p->curve, (double)n) * P <= 0.04 * 0.04)
+			want_te = n;
+	}
+	for (n = 1; n < p->alive_max && !want_marg; n++) {
+		e0 = sqrt(P * hc_periodic_expected_variance(&p->curve, (double)n)) -
+		     sqrt(P * hc_periodic_expected_variance(&p->curve, (double)n + 1));
+		if (e0 < 0.0015)
+			want_marg = n;
+	}
+	assert_true(want_floor > 1 && want_te > 1 && want_marg > 1);
+	assert_int_equal(hc_periodic_rule_count(&cfg, RULES_NEAR_FLOOR, &p->curve, P, &count), 1);
+	assert_int_equal(count, want_floor);
+	assert_int_equal(hc_periodic_rule_count(&cfg, RULES_TRACKING_ERROR, &p->curve, P, &count), 1);
+	assert_int_equal(count, want_te);
+	assert_int_equal(hc_periodic_rule_count(&cfg, RULES_MARGINAL, &p->curve, P, &count), 1);
+	assert_int_equal(count, want_marg);
+	assert_int_equal(hc_periodic_rule(&cfg, RULES_TRACKING_ERROR, &p->curve, P, &res, &err), HC_OK);
+	assert_int_equal(res.count, want_te);
+	assert_true(res.value <= 0.04);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* The bootstrap: each replicate's curve is the formula over the drawn
+ * periods; checked by recomputing three replicates' tracking-error counts
+ * here from hc_bootstrap_indices and a direct sum. */
+static void test_periodic_bootstrap_replicates(void **state)
+{
+	struct universe *u = make_universe(40, 70, 1, 16);
+	struct hc_periodic *p = NULL;
+	struct rules_config cfg;
+	struct bootstrap_options bo;
+	struct rule_result res;
+	struct hc_error err;
+	size_t idx[70], rep, k, n, counts[3];
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	cfg.te_budget = 0.05;
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = 3;
+	bo.seed = 99;
+	bo.threads = 2;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	for (rep = 0; rep < 3; rep++) {
+		assert_int_equal(hc_bootstrap_indices(bo.kind, 70, hc_bootstrap_default_block_length(70), 99, rep,
+						      idx, &err), HC_OK);
+		counts[rep] = 0;
+		for (n = 1; n <= p->alive_max && !counts[rep]; n++) {
+			double te2 = 0;
+
+			for (k = 0; k < 70; k++) {
+				double m = (double)p->alive[idx[k]];
+
+				if ((double)n < m)
+					te2 += (1.0 / (double)n - 1.0 / m) * p->cross[idx[k]];
+			}
+			if (te2 / 69.0 * 12 <= 0.05 * 0.05 * (1 + 1e-12))
+				counts[rep] = n;
+		}
+	}
+	assert_int_equal(hc_periodic_rule(&cfg, RULES_TRACKING_ERROR, &p->curve, 12, &res, &err), HC_OK);
+	assert_int_equal(hc_periodic_bootstrap(&cfg, p, &bo, 12, &res, 1, &err), HC_OK);
+	assert_int_equal(res.replicates, 3);
+	/* with three replicates the 5th, 50th and 95th percentiles are the
+	 * smallest, middle and largest counts (inverted-cdf order statistics). */
+	{
+		size_t lo = counts[0], hi = counts[0], mid;
+
+		for (rep = 1; rep < 3; rep++) {
+			lo = counts[rep] < lo ? counts[rep] : lo;
+			hi = counts[rep] > hi ? counts[rep] : hi;
+		}
+		mid = counts[0] + counts[1] + counts[2] - lo - hi;
+		assert_true(res.count_p05 == (double)lo);
+		assert_true(res.count_p50 == (double)mid);
+		assert_true(res.count_p95 == (double)hi);
+	}
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* Sampled ragged portfolios: mean within 4.5 standard errors of the exact
+ * per-period figure at every size; the full size holds everything alive,
+ * so every path gives the exact universe figure there. */
+static void test_periodic_sampler_matches_exact(void **state)
+{
+	struct universe *u = make_universe(45, 60, 1, 17);
+	struct hc_periodic *p = NULL;
+	struct sampler_options so;
+	struct sampler_result *r = NULL, *r1 = NULL;
+	struct hc_error err;
+	size_t sizes[] = { 1, 2, 3, 5, 8, 12, 20, 30, 40, 45 }, ns = 10, j, k;
+
+	(void)state;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	hc_sampler_options_init(&so);
+	so.paths = 4000;
+	so.seed = 2024;
+	so.threads = 2;
+	assert_int_equal(hc_periodic_sample(&r, p, u, 0, sizes, ns, &so, &err), HC_OK);
+	for (j = 0; j < ns; j++) {
+		double s = 0, s2 = 0, mean, se, exact = hc_periodic_expected_variance(&p->curve, (double)sizes[j]);
+
+		for (k = 0; k < so.paths; k++) {
+			double v = r->variance[k * ns + j];
+
+			s += v;
+			s2 += v * v;
+		}
+		mean = s / (double)so.paths;
+		se = sqrt(fmax(s2 / (double)so.paths - mean * mean, 0) / (double)(so.paths - 1));
+		if (sizes[j] == 45)
+			assert_true(rel(mean, exact) < 1e-12);
+		else
+			assert_true(fabs(mean - exact) <= 4.5 * se);
+	}
+	/* Returns: holding everything alive is the equal-weight alive portfolio,
+	 * whose compound return hc_periodic_universe_return gives; a single
+	 * holding's return is its own compounded where alive. */
+	{
+		struct sampler_result *rr = NULL;
+		double ur;
+		size_t one[] = { 1, 45 };
+
+		so.want_returns = 1;
+		so.periods_per_year = 12;
+		so.paths = 50;
+		assert_int_equal(hc_periodic_sample(&rr, p, u, 0, one, 2, &so, &err), HC_OK);
+		assert_int_equal(hc_periodic_universe_return(p, 12, &ur, &err), HC_OK);
+		for (k = 0; k < 50; k++) {
+			assert_true(rel(rr->annual_return[k * 2 + 1], ur) < 1e-12);
+			assert_true(rr->annual_return[k * 2] != rr->annual_return[k * 2 + 1]);
+		}
+		hc_sampler_result_free(rr);
+		so.want_returns = 0;
+		so.paths = 4000;
+	}
+	/* Same seed on one thread: the same portfolios. */
+	so.threads = 1;
+	assert_int_equal(hc_periodic_sample(&r1, p, u, 0, sizes, ns, &so, &err), HC_OK);
+	assert_memory_equal(r->variance, r1->variance, so.paths * ns * sizeof(double));
+	hc_sampler_result_free(r);
+	hc_sampler_result_free(r1);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+static void test_periodic_refuses_tiny(void **state)
+{
+	struct universe *u = make_universe(5, 10, 0, 18);
+	struct hc_periodic *p = NULL;
+	struct hc_error err;
+	size_t i, k;
+
+	(void)state;
+	for (i = 1; i < 5; i++)
+		for (k = 1; k < 10; k++)
+			u->x[i * 10 + k] = NAN;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, 10, &err), HC_EDATA);
+	assert_null(p);
+	assert_int_equal(hc_periodic_alloc(&p, u, 5, 10, &err), HC_EUSAGE);
+	hc_universe_free(u);
+}
+
+/* The data source kind: series with gaps under opt.ragged are read period
+ * by period, and their moments reproduce the curve up to the smallest alive
+ * count; without it they stay pairwise. */
+static void test_periodic_source_kind(void **state)
+{
+	struct universe *u = make_universe(25, 40, 1, 19), *u2 = make_universe(25, 40, 1, 19);
+	struct hc_source *s = NULL, *s2 = NULL;
+	struct hc_source_options so;
+	struct moments mo;
+	struct hc_error err;
+	size_t n;
+
+	(void)state;
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&s, u, &so, &err), HC_OK);
+	assert_int_equal(s->kind, HC_SOURCE_RAGGED);
+	assert_non_null(s->per);
+	assert_null(hc_source_matrix(s));
+	assert_int_equal(hc_moments_from_source(&mo, s, &err), HC_OK);
+	assert_int_equal(mo.route, MOMENTS_ROUTE_PERIODIC);
+	for (n = 1; n <= s->per->alive_min; n++)
+		assert_true(rel(hc_curve_expected_variance(&mo, (double)n),
+				hc_periodic_expected_variance(&s->per->curve, (double)n)) < 1e-12);
+	so.ragged = 0;
+	assert_int_equal(hc_source_from_universe(&s2, u2, &so, &err), HC_OK);
+	assert_int_equal(s2->kind, HC_SOURCE_PAIRWISE);
+	hc_source_free(s);
+	hc_source_free(s2);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_periodic_matches_complete_route),
+		cmocka_unit_test(test_periodic_rules_match_complete_route),
+		cmocka_unit_test(test_periodic_matches_enumeration_ragged),
+		cmocka_unit_test(test_periodic_window_equals_cut),
+		cmocka_unit_test(test_periodic_rules_scan_ragged),
+		cmocka_unit_test(test_periodic_bootstrap_replicates),
+		cmocka_unit_test(test_periodic_sampler_matches_exact),
+		cmocka_unit_test(test_periodic_refuses_tiny),
+		cmocka_unit_test(test_periodic_source_kind),
+	};
+
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
