@@ -17,6 +17,7 @@
 #include <time.h>
 
 #include "holdcount/bootstrap.h"
+#include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 #include "holdcount/plots.h"
 #include "holdcount/rules.h"
@@ -195,6 +196,17 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
 	}
 	if (rc == HC_OK && build_universe(r))
 		rc = hc_error(err, HC_ENOMEM, "out of memory building the report");
+	/* the data checks' count in the folder too (the command warned of them
+	 * on standard error), from the history as read when there is one */
+	if (rc == HC_OK) {
+		struct datacheck_result *d = NULL;
+		const struct universe *cu = every_security ? every_security : r->u;
+
+		rc = hc_datacheck_run(&d, cu, err);
+		if (rc == HC_OK && hc_datacheck_add_counts(r->rep_universe, cu, d))
+			rc = hc_error(err, HC_ENOMEM, "out of memory building the report");
+		hc_datacheck_free(d);
+	}
 	if (rc != HC_OK) {
 		hc_reportset_free(r);
 		return rc;
@@ -404,6 +416,8 @@ static void md_universe(FILE *fp, const struct hc_reportset *r)
 		{ "securities_complete", "securities with no gap" }, { "periods", "periods" },
 		{ "periods_read", "periods read (before --frequency or --from/--to)" },
 		{ "bad_cells", "cells read as missing (--bad-cells missing)" }, { "bad_cell_first", "the first of them" },
+		{ "data_check_findings", "data-check findings (`holdcount check` lists them)" },
+		{ "data_check_first", "the first finding" },
 		{ "first_date", "first period" }, { "last_date", "last period" },
 		{ "periods_per_year", "periods per year" }, { "annualisation", "annualisation" },
 		{ "average_variance", "average variance (a year)" }, { "average_covariance", "average covariance (a year)" },

@@ -413,7 +413,7 @@ static int check_options(const struct universe *u, const struct rolling_options 
 				opt->window);
 	if (opt->window > u->t)
 		return hc_error(err, HC_EUSAGE,
-				"window of %zu periods is longer than the %zu periods of data",
+				"window of %zu periods is longer than the %zu periods of data; --window sets a shorter one",
 				opt->window, u->t);
 	if (opt->step < 1)
 		return hc_error(err, HC_EUSAGE, "window step of 0 periods; expected at least 1");

@@ -77,6 +77,12 @@ grep -q "^holdcount curve: error: 7 data-check findings" "$T/err" || fail "curve
 "$HC" check "$T/u.csv" --strict-data >/dev/null 2>&1; rc=$?
 [ $rc = 3 ] || fail "check --strict-data with findings exited $rc, expected 3"
 
+# the report folder carries the count too: summary.json's universe and summary.md
+"$HC" report "$T/u.csv" -o "$T/rep" --force -q --paths 100 --bootstrap 0 --window 0 2>"$T/err" || fail "report exited $?: $(cat "$T/err")"
+"$PY" -c 'import json,sys; u=json.load(open(sys.argv[1]))["universe"]; assert u["data_check_findings"] == 7 and u["data_check_split"] >= 1 and "LIR" in u["data_check_first"], u' "$T/rep/summary.json" \
+	|| fail "report: summary.json's universe lacks the 7 data-check findings"
+grep -q "^- data-check findings (\`holdcount check\` lists them): 7$" "$T/rep/summary.md" || fail "report: summary.md lacks the data-check count"
+
 # the invented demo: no finding, month ends, 12 a year
 demo="$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv"
 "$HC" check "$demo" --strict-data --format json >"$T/demo.json" || fail "check --strict-data on the demo exited $?"
