@@ -505,8 +505,8 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 			"should lean to its upper end. The ends are whole numbers of holdings. \"not met\" in an "
 			"interval means its end falls among replicates that never meet the rule.%s\n\n",
 			hc_bootstrap_kind_name(r->o.enough.bootstrap_kind), r->o.enough.bootstrap,
-			r->o.enough.interval == HC_ENOUGH_INTERVAL_STUDENTIZED ? "studentized on the log count for the "
-			"exact rules, Hall 1988" : r->o.enough.interval == HC_ENOUGH_INTERVAL_BCA ? "bias-corrected and "
+			r->enough->interval == HC_ENOUGH_INTERVAL_STUDENTIZED ? "studentized on the log count for the "
+			"exact rules, Hall 1988" : r->enough->interval == HC_ENOUGH_INTERVAL_BCA ? "bias-corrected and "
 			"accelerated for the exact rules, Efron 1987" : "percentiles of the replicates' counts",
 			sampled && !r->o.enough.bootstrap_sampled
 			? " The sampled rules (band, lag-share, alexeev-tapon-sampled) are drawn from random portfolios and have no interval "
