@@ -1055,10 +1055,10 @@ static const struct {
 	{ "sd", "sd", REPORT_STYLE_PERCENT },
 	{ "diversification_ratio", "div. ratio", REPORT_STYLE_FIXED2 },
 	{ "equivalent_count", "equiv. count", REPORT_STYLE_FIXED2 },
-	{ "sd_percentile", "sd percentile", REPORT_STYLE_PERCENT },
-	{ "weighted_random_sd", "random sd, own weights", REPORT_STYLE_PERCENT },
+	{ "sd_percentile", "sd rank (share)", REPORT_STYLE_FIXED4 },
+	{ "weighted_random_sd", "sqrt E[var], own weights", REPORT_STYLE_PERCENT },
 	{ "passed", "passed", REPORT_STYLE_PLAIN },
-	{ "failed_rules", "failed rules", REPORT_STYLE_PLAIN },
+	{ "failed_rules", "limits failed", REPORT_STYLE_PLAIN },
 	{ "equal_weight_random_sd", "random sd, equal weights", REPORT_STYLE_PERCENT },
 	{ "max_weight_id", "largest id", REPORT_STYLE_PLAIN },
 	{ "risk_holdings", "covered holdings", REPORT_STYLE_PLAIN },
@@ -1222,7 +1222,7 @@ static int screens_table(struct report *rep, const struct audit_result *a)
 	static const char *const keys[] = { "fund", "screen", "part", "passed", "figure", "test", "limit", "issuer",
 					    "required", "reading", "decides", "basis" };
 	static const int styles[] = { 0, 0, 0, 0, REPORT_STYLE_PERCENT, 0, REPORT_STYLE_PERCENT, 0, 0, 0, 0, 0 };
-	struct report_table *t = hc_report_add_table(rep, "screens", "screens (from memory of the text; verify with counsel)");
+	struct report_table *t = hc_report_add_table(rep, "screens", "legal weight limits (from memory of the text; verify with counsel)");
 	size_t f, q, r;
 
 	if (!t || add_columns(t, keys, styles, 12) != HC_OK)

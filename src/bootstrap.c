@@ -17,6 +17,7 @@
 #include <string.h>
 
 #include <gsl/gsl_cblas.h>
+#include <gsl/gsl_cdf.h>
 
 #include "holdcount/memory.h"
 #include "holdcount/paths.h"
@@ -379,4 +380,240 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 	}
 	*out = r;
 	return HC_OK;
+}
+
+/* ---- data-driven block length and the block jackknife ------------------ */
+
+/* Sample autocovariance of x at lag k (divisor n, mean removed). */
+static double autocov(const double *x, size_t n, double mean, size_t k)
+{
+	double s = 0;
+	size_t t;
+
+	for (t = k; t < n; t++)
+		s += (x[t] - mean) * (x[t - k] - mean);
+	return s / (double)n;
+}
+
+/* The flat-top lag window of Politis & Romano (1995). */
+static double flat_top(double t)
+{
+	t = fabs(t);
+	return t <= 0.5 ? 1.0 : t <= 1.0 ? 2.0 * (1.0 - t) : 0.0;
+}
+
+/*
+ * Politis & White (2004), "Automatic Block-Length Selection for the
+ * Dependent Bootstrap", Econometric Reviews 23(1), with the correction of
+ * Patton, Politis & White (2009), Econometric Reviews 28(4), for the
+ * stationary bootstrap:
+ *   m-hat: the smallest lag after which K_n = max(5, ceil(sqrt(log10 n)))
+ *          autocorrelations in a row are within 2 sqrt(log10(n)/n);
+ *   M = min(2 m-hat, ceil(sqrt(n)) + K_n);
+ *   G = sum_{|k|<=M} lambda(k/M) |k| R(k),  g = sum_{|k|<=M} lambda(k/M) R(k),
+ *   D_SB = 2 g^2 (the corrected constant);
+ *   b = (2 G^2 / D_SB)^(1/3) n^(1/3), at most min(3 sqrt(n), n/3).
+ * Returns b (at least 1) as a real number.
+ */
+double hc_bootstrap_politis_white(const double *x, size_t n)
+{
+	size_t kn, mmax, m, k, run = 0, mhat = 0, lagmax;
+	double mean = 0, r0, crit, g = 0, G = 0, b, cap;
+
+	if (n < 8)
+		return 1.0;
+	for (k = 0; k < n; k++)
+		mean += x[k];
+	mean /= (double)n;
+	r0 = autocov(x, n, mean, 0);
+	if (!(r0 > 0))
+		return 1.0;
+	kn = (size_t)ceil(sqrt(log10((double)n)));
+	if (kn < 5)
+		kn = 5;
+	mmax = (size_t)ceil(sqrt((double)n)) + kn;
+	crit = 2.0 * sqrt(log10((double)n) / (double)n);
+	lagmax = mmax + kn < n - 1 ? mmax + kn : n - 1;
+	for (k = 1; k <= lagmax; k++) {
+		if (fabs(autocov(x, n, mean, k) / r0) < crit) {
+			if (++run == kn) {
+				mhat = k - kn;
+				break;
+			}
+		} else
+			run = 0;
+	}
+	if (run < kn)
+		mhat = mmax;   /* no quiet stretch found: the largest lag allowed */
+	m = 2 * mhat < mmax ? 2 * mhat : mmax;
+	if (m == 0)
+		m = 1;
+	g = r0;
+	for (k = 1; k <= m && k < n; k++) {
+		double w = flat_top((double)k / (double)m), r = autocov(x, n, mean, k);
+
+		g += 2 * w * r;
+		G += 2 * w * (double)k * r;
+	}
+	if (!(g * g > 0) || G == 0)
+		return 1.0;
+	b = cbrt(2 * G * G / (2 * g * g)) * cbrt((double)n);
+	cap = fmin(3 * sqrt((double)n), (double)n / 3);
+	if (b > cap)
+		b = cap;
+	return b < 1 ? 1.0 : b;
+}
+
+/* The per-period series the averages are means of, for the block length:
+ * rowsum^2 (the equal-weight universe's squared return, behind V + C) and
+ * the row sum of squares (behind V). */
+static double row_squares(const struct bootstrap_base *b, size_t t)
+{
+	size_t i;
+	double s = 0;
+
+	if (b->gram)
+		return b->gram[t * b->t + t];
+	for (i = 0; i < b->m; i++)
+		s += b->xc[i * b->t + t] * b->xc[i * b->t + t];
+	return s;
+}
+
+int hc_bootstrap_auto_block_length(const struct bootstrap_base *b, size_t *length,
+				   struct hc_error *err)
+{
+	double *x = hc_malloc(b->t * sizeof *x), l1, l2, l;
+	size_t t;
+
+	if (!x)
+		return hc_error(err, HC_ENOMEM, "out of memory for the block length");
+	for (t = 0; t < b->t; t++)
+		x[t] = b->rowsum[t] * b->rowsum[t];
+	l1 = hc_bootstrap_politis_white(x, b->t);
+	for (t = 0; t < b->t; t++)
+		x[t] = row_squares(b, t);
+	l2 = hc_bootstrap_politis_white(x, b->t);
+	hc_free(x);
+	l = floor(fmax(l1, l2) + 0.5);
+	if (l < 1)
+		l = 1;
+	if (l > (double)b->t)
+		l = (double)b->t;
+	*length = (size_t)l;
+	return HC_OK;
+}
+
+/*
+ * Averages with the periods first..first+len-1 left out (the data are
+ * centred on the whole sample, so the column sums over the rest are minus
+ * those over the block):
+ *   V_-B = (sum_t q_t - sum_B q_t - sum_i (sum_B x_ti)^2 / n') / (n' - 1),
+ *   (V + C)_-B = sample variance of the row sums over the n' periods kept,
+ * with q_t = sum_i x_ti^2 and sum_i (sum_B x_ti)^2 = sum_{t,u in B} G_tu.
+ */
+static void moments_without(const struct bootstrap_base *b, double qtotal, size_t first,
+			    size_t len, double *vbar, double *cbar)
+{
+	double np = (double)(b->t - len), qb = 0, cross = 0, s1 = 0, s2 = 0, V, VC, m = (double)b->m;
+	size_t t, u, i;
+
+	for (t = first; t < first + len; t++)
+		qb += row_squares(b, t);
+	if (b->gram) {
+		for (t = first; t < first + len; t++)
+			for (u = first; u < first + len; u++)
+				cross += b->gram[t * b->t + u];
+	} else {
+		for (i = 0; i < b->m; i++) {
+			double c = 0;
+
+			for (t = first; t < first + len; t++)
+				c += b->xc[i * b->t + t];
+			cross += c * c;
+		}
+	}
+	V = (qtotal - qb - cross / np) / (np - 1);
+	for (t = 0; t < b->t; t++) {
+		if (t >= first && t < first + len)
+			continue;
+		s1 += b->rowsum[t];
+		s2 += b->rowsum[t] * b->rowsum[t];
+	}
+	VC = (s2 - s1 * s1 / np) / (np - 1);
+	*vbar = V / m;
+	*cbar = (VC - V) / (m * (m - 1));
+}
+
+int hc_bootstrap_jackknife(const struct bootstrap_base *b, size_t block_length, double **vbar,
+			   double **cbar, size_t *n, struct hc_error *err)
+{
+	size_t nb, k, t;
+	double qtotal = 0;
+
+	*vbar = *cbar = NULL;
+	*n = 0;
+	if (block_length < 1 || b->t / block_length < 2 || b->t - block_length < 2)
+		return hc_error(err, HC_EUSAGE, "the block jackknife needs at least two blocks of %zu periods", block_length);
+	nb = b->t / block_length;
+	*vbar = hc_malloc(nb * sizeof **vbar);
+	*cbar = hc_malloc(nb * sizeof **cbar);
+	if (!*vbar || !*cbar) {
+		hc_free(*vbar);
+		hc_free(*cbar);
+		*vbar = *cbar = NULL;
+		return hc_error(err, HC_ENOMEM, "out of memory for the jackknife");
+	}
+	for (t = 0; t < b->t; t++)
+		qtotal += row_squares(b, t);
+	for (k = 0; k < nb; k++)
+		moments_without(b, qtotal, k * block_length, block_length, &(*vbar)[k], &(*cbar)[k]);
+	*n = nb;
+	return HC_OK;
+}
+
+void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, double *s2)
+{
+	size_t t;
+
+	for (t = 0; t < b->t; t++) {
+		q[t] = row_squares(b, t);
+		s2[t] = b->rowsum[t] * b->rowsum[t];
+	}
+}
+
+/* McLeod & Li (1983): Ljung-Box on the squared centred row sums (the
+ * equal-weight portfolio's squared return times M^2; the scale cancels). */
+void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p)
+{
+	size_t n = b->t, h = *lags ? *lags : HC_BOOTSTRAP_CLUSTERING_LAGS, t, k;
+	double mean = 0, den = 0, sum = 0;
+
+	*q = *p = NAN;
+	if (h > n / 4)
+		h = n / 4;
+	if (h < 1)
+		h = 1;
+	*lags = h;
+	if (n < 8)
+		return;
+	for (t = 0; t < n; t++)
+		mean += b->rowsum[t] * b->rowsum[t];
+	mean /= (double)n;
+	for (t = 0; t < n; t++) {
+		double d = b->rowsum[t] * b->rowsum[t] - mean;
+
+		den += d * d;
+	}
+	if (!(den > 0))
+		return;
+	for (k = 1; k <= h; k++) {
+		double c = 0, r;
+
+		for (t = k; t < n; t++)
+			c += (b->rowsum[t] * b->rowsum[t] - mean) * (b->rowsum[t - k] * b->rowsum[t - k] - mean);
+		r = c / den;
+		sum += r * r / (double)(n - k);
+	}
+	*q = (double)n * (double)(n + 2) * sum;
+	*p = gsl_cdf_chisq_Q(*q, (double)h);
 }

@@ -378,6 +378,16 @@ static int build_formula(struct report *r, const struct moments *mo, const struc
 	t = r->tables[r->ntables - 1];
 	if (plain)
 		plain_styles(t);
+	if (annualised && mo->average_variance * p > HC_MOMENTS_IMPLAUSIBLE_SD * HC_MOMENTS_IMPLAUSIBLE_SD) {
+		char text[300];
+
+		snprintf(text, sizeof text,
+			 "implausible: the average sd is %.4g%% a year, above %.0f%%; are the inputs in percent "
+			 "(variances in percent squared?) rather than decimals?", 100 * sqrt(mo->average_variance * p),
+			 100 * HC_MOMENTS_IMPLAUSIBLE_SD);
+		if (hc_report_add_note(r, text))
+			return HC_ENOMEM;
+	}
 	return hc_report_add_cautions(r);
 }
 

@@ -167,6 +167,33 @@ static int build_matrix(struct report *r, const struct hc_source *s, const struc
 	return hc_report_add_cautions(r);
 }
 
+/* With gaps left and no repair, warn when the pairwise-complete matrix the
+ * averages come from is not positive semi-definite -- curve and enough
+ * refuse that matrix, so describe must not print its averages silently. */
+static int psd_note(struct report *r, const struct hc_source *s, struct hc_error *err)
+{
+	struct covmatrix *cm = NULL;
+	const double *a = s->cm ? s->cm->a : NULL;
+	double lmin = 0;
+	char text[400];
+	int rc = HC_OK;
+
+	if (!a) {
+		if ((rc = hc_covmatrix_from_universe(s->u, &cm, err)) != HC_OK)
+			return rc;
+		a = cm->a;
+	}
+	rc = hc_covmatrix_min_eigenvalue(a, s->u->m, &lmin, err);
+	hc_covmatrix_free(cm);
+	if (rc != HC_OK || lmin >= 0)
+		return rc;
+	snprintf(text, sizeof text,
+		 "warning: the pairwise-complete covariance matrix is not positive semi-definite (smallest "
+		 "eigenvalue %.4g per period); these averages come from it as it is, and curve and enough refuse "
+		 "it without --repair-psd", lmin);
+	return hc_report_add_note(r, text) ? hc_error(err, HC_ENOMEM, "out of memory building the report") : HC_OK;
+}
+
 int hc_describe(struct report **out, const struct hc_source *s, struct hc_error *err)
 {
 	struct report *r;
@@ -177,6 +204,11 @@ int hc_describe(struct report **out, const struct hc_source *s, struct hc_error 
 	if ((rc = hc_moments_from_source(&mo, s, err)) != HC_OK)
 		return rc;
 	r = hc_report_alloc();
+	if (r && s->kind != HC_SOURCE_MATRIX && s->u->has_missing && !s->psd.repaired &&
+	    (rc = psd_note(r, s, err)) != HC_OK) {
+		hc_report_free(r);
+		return rc;
+	}
 	if (!r || (s->kind == HC_SOURCE_MATRIX ? build_matrix(r, s, &mo) : build(r, s, &mo))) {
 		hc_report_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory building the report");

@@ -426,7 +426,7 @@ int hc_periodic_rule_count(const struct rules_config *cfg, int rule,
 	case RULES_MARGINAL:
 		n = first_small_step(c, ppy, cfg->marginal_eps);
 		break;
-	case RULES_COST_BENEFIT:
+	case RULES_NEXT_HOLDING:
 		/* After Statman (1987), JFQA 22(3), as in rules.c. */
 		su = c->a > 0 ? sqrt(c->a * ppy) : 0.0;
 		if (!(su > 0))
@@ -436,6 +436,19 @@ int hc_periodic_rule_count(const struct rules_config *cfg, int rule,
 	case RULES_TRACKING_ERROR:
 		n = first_true(c, ppy, cfg->te_budget * cfg->te_budget, te_meets);
 		break;
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING: {
+		/* Statman (1987), JFQA 22(3), as in rules.c: premium
+		 * (s(N)/s_i - 1) <= cost  <=>  E(N) <= ((1 + cost/premium))^2 s_i^2
+		 * per period, s_i the equal-weight universe's sd. */
+		double k = 1 + cfg->index_cost / (rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium
+						   : cfg->lend_premium);
+
+		if (!(c->a > 0))
+			return -1;
+		n = first_true(c, ppy, k * k * c->a, floor_meets);
+		break;
+	}
 	default:
 		return -1;
 	}
@@ -488,7 +501,7 @@ int hc_periodic_rule(const struct rules_config *cfg, int rule,
 		if (got)
 			res->value = step_at(c, ppy, res->count);
 		break;
-	case RULES_COST_BENEFIT:
+	case RULES_NEXT_HOLDING:
 		res->threshold = cfg->holding_cost;
 		if (got)
 			res->value = cfg->premium * step_at(c, ppy, res->count) / sqrt(c->a * ppy);
@@ -497,6 +510,13 @@ int hc_periodic_rule(const struct rules_config *cfg, int rule,
 		res->threshold = cfg->te_budget;
 		if (got)
 			res->value = sqrt(hc_periodic_expected_te2(c, (double)res->count) * ppy);
+		break;
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING:
+		res->threshold = cfg->index_cost;
+		if (got)
+			res->value = (rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium : cfg->lend_premium) *
+				     (sd_at(c, ppy, res->count) / sqrt(c->a * ppy) - 1);
 		break;
 	}
 	return HC_OK;
@@ -861,7 +881,7 @@ int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_pe
 
 	memset(sr, 0, 2 * sizeof *sr);
 	*largest = 0;
-	so.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
+	so.want_returns = (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)) != 0;
 	so.periods_per_year = p->periods_per_year;
 	if (so.want_returns && (rc = hc_periodic_universe_return(p, p->periods_per_year, &uret, err)))
 		return rc;
@@ -878,12 +898,12 @@ int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_pe
 		r = NULL;
 		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, err);
 		for (k = 0; rc == HC_OK && k < 2; k++) {
-			int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
+			int rule = k == 0 ? RULES_BAND : RULES_LAG_SHARE;
 
 			if (!(cfg->selected & RULES_FLAG(rule)))
 				continue;
 			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, p->periods_per_year, &sr[k], err)
-						: hc_rules_shortfall(cfg, r, uret, &sr[k], err);
+						: hc_rules_lag_share(cfg, r, uret, &sr[k], err);
 			all_met &= rc == HC_OK && sr[k].met;
 		}
 		if (rc || all_met || K == p->m)
@@ -935,7 +955,7 @@ int hc_periodic_bootstrap_sampled(const struct rules_config *cfg, const struct u
 				      rep + 1, B);
 	}
 	for (k = 0; rc == HC_OK && k < 2; k++) {
-		int rule = k == 0 ? RULES_BAND : RULES_SHORTFALL;
+		int rule = k == 0 ? RULES_BAND : RULES_LAG_SHARE;
 
 		if (!(cfg->selected & RULES_FLAG(rule)))
 			continue;

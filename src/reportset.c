@@ -102,6 +102,7 @@ static int compute_rules(struct hc_reportset *r, struct hc_error *err)
 
 	eo.moments = &r->mo;
 	eo.strata = NULL;
+	eo.sentence_column = 1;   /* enough.csv carries the recommendation on its own */
 	eo.progress = r->o.progress;
 	if ((rc = hc_enough_run(&r->enough, r->src, &eo, err)) != HC_OK)
 		return rc;
@@ -509,7 +510,7 @@ static void md_curve(FILE *fp, const struct hc_reportset *r)
 {
 	static const char *const cols[][2] = {
 		{ "n", "holdings" }, { "expected_sd", "sqrt E[var] a year" },
-		{ "diversifiable_share", "diversifiable share" }, { "expected_tracking_error", "tracking error a year" },
+		{ "diversifiable_share", "share above the floor" }, { "expected_tracking_error", "RMS tracking error a year" },
 		{ "sampled_mean_sd", "mean sd (random)" }, { "sd_p05", "sd 5%" }, { "sd_p95", "sd 95%" },
 		{ "z_score", "z (sampled vs exact)" },
 	};
@@ -531,12 +532,20 @@ static const char *const rule_legend[RULES_COUNT] = {
 	"marginal: one more holding lowers the expected sd by less than eps a year",
 	"band: the q-quantile of random portfolios' sd is within x of the floor, so even an unlucky "
 	"draw of that many holdings is near it",
-	"cost-benefit (after Statman, 1987, Journal of Financial and Quantitative Analysis 22(3)): the "
-	"premium earned on the risk one more holding removes falls below that holding's yearly cost",
-	"tracking-error: the expected tracking error against the equal-weight portfolio of the whole "
+	"next-holding (this tool's own rule): the premium earned on the risk one more holding removes is "
+	"at most that holding's yearly cost",
+	"tracking-error: the root mean square tracking error against the equal-weight portfolio of the whole "
 	"universe is within the budget",
-	"shortfall (after Domian, Louton & Racine, 2007, The Financial Review 42(4)): fewer than p of "
-	"random portfolios trail the universe's return over the sample by more than d a year",
+	"lag-share (this tool's own rule): fewer than p of random portfolios, rebalanced every period, lag "
+	"the universe's return over the sample by more than d a year",
+	"statman-borrowing (Statman, 1987, Journal of Financial and Quantitative Analysis 22(3)): the extra "
+	"return of the index levered to the portfolio's sd, premium over the borrowing rate times "
+	"(sd(N)/sd(index) - 1), is at most the index fund's cost disadvantage",
+	"statman-lending (Statman, 1987): the same with the premium over the lending rate",
+	"alexeev-tapon (Alexeev & Tapon, 2014, Journal of Banking & Finance 46): a random portfolio removes "
+	"at least x of the removable variance with probability at least q (gamma approximation from the "
+	"exact mean and spread)",
+	"alexeev-tapon-sampled: the same rule counted over sampled random portfolios",
 };
 
 static void md_rules(FILE *fp, const struct hc_reportset *r)
@@ -562,24 +571,38 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 			fprintf(fp, "- %s\n", rule_legend[r->rules[k].rule]);
 	fputc('\n', fp);
 	if (intervals)
-		fprintf(fp, "How to read it: the count is the estimate from the whole history; 5%%, median and 95%% "
-			"are percentiles of the count when the periods are resampled (%s bootstrap, %zu replicates), "
-			"so 5%% to 95%% is a 90%% interval from the data's own estimation error. A narrow interval "
-			"means the history pins the count down; a wide one means a minimum-holdings rule should "
-			"lean to its upper end. Each percentile is a count some replicate needed: the smallest count "
-			"that at least that share of the replicates needed or fewer, so always a whole number of "
-			"holdings. \"not met\" in an interval means the percentile falls among replicates that never "
-			"meet the rule.%s\n\n",
+		fprintf(fp, "How to read it: the count is the estimate from the whole history; 5%% to 95%% is a 90%% "
+			"interval for it from the data's own estimation error when the periods are resampled (%s "
+			"bootstrap, %zu replicates; %s), and the median is the replicates' median count. A narrow "
+			"interval means the history pins the count down; a wide one means a minimum-holdings rule "
+			"should lean to its upper end. The ends are whole numbers of holdings. \"not met\" in an "
+			"interval means its end falls among replicates that never meet the rule.%s\n\n",
 			hc_bootstrap_kind_name(r->o.enough.bootstrap_kind), r->o.enough.bootstrap,
+			r->enough->interval == HC_ENOUGH_INTERVAL_STUDENTIZED ? "studentized on the log count for the "
+			"exact rules, Hall 1988" : r->enough->interval == HC_ENOUGH_INTERVAL_BCA ? "bias-corrected and "
+			"accelerated for the exact rules, Efron 1987" : "percentiles of the replicates' counts",
 			sampled && !r->o.enough.bootstrap_sampled
-			? " The sampled rules (band, shortfall) are drawn from random portfolios and have no interval "
+			? " The sampled rules (band, lag-share, alexeev-tapon-sampled) are drawn from random portfolios and have no interval "
 			  "here: `--bootstrap-sampled` gives them one, at some cost in time." : "");
 	else
 		fputs("How to read it: the count is the estimate from the whole history; no bootstrap was run "
 		      "(`--bootstrap 0`), so there is no interval for the estimation error in it.\n\n", fp);
 	if (t)
 		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], NULL, NULL);
+	/* How often such an interval holds the true count, and whether this
+	 * history shows the clustering under which it falls short. */
+	for (k = 0; intervals && r->rep_enough && k < r->rep_enough->nnotes; k++)
+		if (strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ||
+		    strncmp(r->rep_enough->notes[k], "volatility clusters", 19) == 0 ||
+		    strncmp(r->rep_enough->notes[k], "no volatility clustering", 24) == 0)
+			fprintf(fp, "%s%s.\n\n", strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ? "Coverage: " : "",
+				r->rep_enough->notes[k] + (strncmp(r->rep_enough->notes[k], "coverage: ", 10) == 0 ? 10 : 0));
 	fputs("Thresholds and every replicate count are in `enough.csv` and `summary.json`.\n\n", fp);
+	for (k = 0; r->rep_enough && k < r->rep_enough->nfields; k++)
+		if (strcmp(r->rep_enough->fields[k].key, "policy_sentence") == 0 &&
+		    r->rep_enough->fields[k].value.kind == REPORT_TEXT)
+			fprintf(fp, "**Recommendation** (`--policy`, `--policy-at`; a sentence for a policy statement):\n\n> %s\n\n",
+				r->rep_enough->fields[k].value.text);
 }
 
 /* The failed rules and screen parts with their deciding figures, when a
@@ -670,7 +693,7 @@ static void md_rolling(FILE *fp, const struct hc_reportset *r)
 		return;
 	}
 	fprintf(fp, "Each exact rule's count from the averages of each window of %zu periods (%s), one window "
-		"starting every %zu periods: %zu windows. The sampled rules (band, shortfall) and the bootstrap "
+		"starting every %zu periods: %zu windows. The sampled rules (band, lag-share, alexeev-tapon-sampled) and the bootstrap "
 		"interval are not run per window (`holdcount rolling --bootstrap` gives the interval). Averages "
 		"drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, Journal of Finance 56(1)), so a count "
 		"set once is worth revisiting. Every window's averages are in `rolling.csv`.\n\n",

@@ -14,22 +14,35 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <gsl/gsl_cdf.h>
+
+#include "holdcount/curve.h"
 #include "holdcount/memory.h"
 #include "holdcount/paths.h"
 #include "holdcount/strata.h"
 
 static const char *const rule_names[RULES_COUNT] = {
-	"near-floor", "marginal", "band", "cost-benefit", "tracking-error",
-	"shortfall"
+	"near-floor", "marginal", "band", "next-holding", "tracking-error",
+	"lag-share", "statman-borrowing", "statman-lending", "alexeev-tapon",
+	"alexeev-tapon-sampled"
+};
+
+/* Earlier spellings, still accepted by hc_rules_parse_list so that scripts
+ * keep working (docs/enough.md lists them). */
+static const struct { const char *name; int rule; } rule_aliases[] = {
+	{ "cost-benefit", RULES_NEXT_HOLDING },
+	{ "shortfall", RULES_LAG_SHARE },
 };
 
 /* What each rule's value measures: [0] annualised, [1] on the inputs' own
  * scale (cfg->per_period). */
 static const char *const rule_units[2][RULES_COUNT] = {
 	{ "sd a year", "sd reduction a year", "sd a year (quantile)",
-	  "return a year", "tracking error a year", "share of portfolios" },
+	  "return a year", "RMS tracking error a year", "share of portfolios",
+	  "return a year", "return a year", "share of portfolios", "share of portfolios" },
 	{ "sd per period", "sd reduction per period", "sd per period (quantile)",
-	  "return per period", "tracking error per period", "share of portfolios" }
+	  "return per period", "RMS tracking error per period", "share of portfolios",
+	  "return per period", "return per period", "share of portfolios", "share of portfolios" }
 };
 
 /* " a year" or " per period" after an amount. */
@@ -52,6 +65,12 @@ void hc_rules_config_init(struct rules_config *cfg)
 	cfg->te_budget = RULES_DEFAULT_TE_BUDGET;
 	cfg->shortfall_d = RULES_DEFAULT_SHORTFALL_D;
 	cfg->shortfall_p = RULES_DEFAULT_SHORTFALL_P;
+	cfg->borrow_premium = RULES_DEFAULT_BORROW_PREMIUM;
+	cfg->lend_premium = RULES_DEFAULT_LEND_PREMIUM;
+	cfg->index_cost = RULES_DEFAULT_INDEX_COST;
+	cfg->statman_defaults = 1;
+	cfg->at_x = RULES_DEFAULT_AT_X;
+	cfg->at_q = RULES_DEFAULT_AT_Q;
 }
 
 static int positive(double x)
@@ -76,9 +95,17 @@ int hc_rules_config_check(const struct rules_config *cfg, struct hc_error *err)
 	if (!positive(cfg->te_budget))
 		return hc_error(err, HC_EUSAGE, "bad tracking-error budget: expected a positive yearly figure, found %g", cfg->te_budget);
 	if (!(isfinite(cfg->shortfall_d) && cfg->shortfall_d >= 0))
-		return hc_error(err, HC_EUSAGE, "bad shortfall margin: expected a yearly return of 0 or more, found %g", cfg->shortfall_d);
+		return hc_error(err, HC_EUSAGE, "bad lag-share margin: expected a yearly return of 0 or more, found %g", cfg->shortfall_d);
 	if (!(cfg->shortfall_p > 0 && cfg->shortfall_p < 1))
-		return hc_error(err, HC_EUSAGE, "bad shortfall share: expected a share strictly between 0 and 1, found %g", cfg->shortfall_p);
+		return hc_error(err, HC_EUSAGE, "bad lag-share share: expected a share strictly between 0 and 1, found %g", cfg->shortfall_p);
+	if (!positive(cfg->borrow_premium) || !positive(cfg->lend_premium))
+		return hc_error(err, HC_EUSAGE, "bad Statman premium: expected positive yearly premiums, found %g and %g",
+				cfg->borrow_premium, cfg->lend_premium);
+	if (!positive(cfg->index_cost))
+		return hc_error(err, HC_EUSAGE, "bad index cost: expected a positive yearly cost disadvantage, found %g", cfg->index_cost);
+	if (!(cfg->at_x > 0 && cfg->at_x < 1) || !(cfg->at_q > 0 && cfg->at_q < 1))
+		return hc_error(err, HC_EUSAGE, "bad Alexeev-Tapon share or probability: expected both strictly between 0 and 1, found %g and %g",
+				cfg->at_x, cfg->at_q);
 	return HC_OK;
 }
 
@@ -101,6 +128,11 @@ static int lookup_rule(const char *s, size_t len, unsigned *mask)
 			*mask = RULES_FLAG(k);
 			return 0;
 		}
+	for (k = 0; k < sizeof rule_aliases / sizeof rule_aliases[0]; k++)
+		if (strlen(rule_aliases[k].name) == len && strncmp(s, rule_aliases[k].name, len) == 0) {
+			*mask = RULES_FLAG(rule_aliases[k].rule);
+			return 0;
+		}
 	for (k = 0; k < sizeof groups / sizeof groups[0]; k++)
 		if (strlen(groups[k].name) == len && strncmp(s, groups[k].name, len) == 0) {
 			*mask = groups[k].mask;
@@ -120,7 +152,7 @@ int hc_rules_parse_list(const char *text, unsigned *mask, struct hc_error *err)
 
 		if (lookup_rule(p, len, &one) != 0)
 			return hc_error(err, HC_EUSAGE,
-					"bad rule list: '%.*s' is not a rule (expected near-floor, marginal, band, cost-benefit, tracking-error, shortfall, all, exact or sampled)",
+					"bad rule list: '%.*s' is not a rule (expected near-floor, marginal, band, next-holding, tracking-error, lag-share, statman-borrowing, statman-lending, alexeev-tapon, alexeev-tapon-sampled, all, exact or sampled)",
 					(int)len, p);
 		out |= one;
 		if (!end)
@@ -179,6 +211,12 @@ static int near_floor_meets(const struct exact *e, double x, size_t n)
 	return e->vbar / dn + (1 - 1 / dn) * e->cbar <= (1 + x) * (1 + x) * e->cbar;
 }
 
+/* Expected variance a + b/N at or below the limit (Statman's rule, below). */
+static int variance_meets(const struct exact *e, double limit, size_t n)
+{
+	return e->a + e->b / (double)n <= limit;
+}
+
 static double te2(const struct exact *e, size_t n)
 {
 	double inv_m = e->m ? 1.0 / (double)e->m : 0.0;
@@ -216,8 +254,9 @@ static size_t confirm_count(const struct exact *e, double param,
 	return n <= e->nmax ? n : 0;
 }
 
-/* Marginal and cost-benefit: smallest N in 1..nmax-1 whose step
- * s(N) - s(N+1) is below limit.  With cbar >= 0, s(N) = sqrt(a + b/N) is
+/* Marginal and next-holding: smallest N in 1..nmax-1 whose step
+ * s(N) - s(N+1) is at or below limit (<=, so that a value printed equal
+ * to its threshold is never a contradiction).  With cbar >= 0, s(N) = sqrt(a + b/N) is
  * convex in N (its second derivative is b/(N^3 s) (1 - b/(4 N s^2)) > 0
  * because s^2 >= b/N), so the step falls with N and a bisection finds the
  * first N exactly.  With cbar < 0 (possible only in a finite universe)
@@ -230,20 +269,20 @@ static size_t first_small_step(const struct exact *e, double limit)
 		return 0;
 	if (e->a < 0) {
 		for (n = 1; n < e->nmax; n++)
-			if (exact_step(e, n) < limit)
+			if (exact_step(e, n) <= limit)
 				return n;
 		return 0;
 	}
-	if (exact_step(e, 1) < limit)
+	if (exact_step(e, 1) <= limit)
 		return 1;
-	if (!(exact_step(e, e->nmax - 1) < limit))
+	if (!(exact_step(e, e->nmax - 1) <= limit))
 		return 0;
-	lo = 1;                 /* step(lo) >= limit */
-	hi = e->nmax - 1;       /* step(hi) < limit */
+	lo = 1;                 /* step(lo) > limit */
+	hi = e->nmax - 1;       /* step(hi) <= limit */
 	while (hi - lo > 1) {
 		size_t mid = lo + (hi - lo) / 2;
 
-		if (exact_step(e, mid) < limit)
+		if (exact_step(e, mid) <= limit)
 			hi = mid;
 		else
 			lo = mid;
@@ -251,8 +290,8 @@ static size_t first_small_step(const struct exact *e, double limit)
 	return hi;
 }
 
-/* Universe sigma for cost-benefit: the equal-weight portfolio of all M, or
- * the floor when unbounded. */
+/* Universe sigma for next-holding and Statman's index: the equal-weight
+ * portfolio of all M, or the floor when unbounded. */
 static double universe_sd(const struct exact *e)
 {
 	return e->m ? exact_sd(e, (double)e->m) : (e->a > 0 ? sqrt(e->a) : 0.0);
@@ -278,18 +317,39 @@ static int exact_count(const struct rules_config *cfg, int rule,
 	case RULES_MARGINAL:
 		n = first_small_step(e, cfg->marginal_eps);
 		break;
-	case RULES_COST_BENEFIT: {
-		/* After Statman (1987), "How Many Stocks Make a Diversified
-		 * Portfolio?", Journal of Financial and Quantitative Analysis
-		 * 22(3): the universe portfolio levered to sigma(N) earns
-		 * premium sigma(N)/sigma_u, so the (N+1)-th holding is worth
-		 * premium (s(N) - s(N+1))/s_u a year against its yearly cost. */
+	case RULES_NEXT_HOLDING: {
+		/* This tool's own rule (no paper): the universe portfolio
+		 * levered to sigma(N) earns premium sigma(N)/sigma_u, so the
+		 * (N+1)-th holding is worth premium (s(N) - s(N+1))/s_u a year,
+		 * compared with the yearly cost of one more holding. */
 		double su = universe_sd(e);
 
 		if (!(su > 0))
 			return -1;
-		/* premium (s(N) - s(N+1)) / s_u < cost  <=>  step < cost s_u / premium */
+		/* premium (s(N) - s(N+1)) / s_u <= cost  <=>  step <= cost s_u / premium */
 		n = first_small_step(e, cfg->holding_cost * su / cfg->premium);
+		break;
+	}
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING: {
+		/* Statman (1987), "How Many Stocks Make a Diversified
+		 * Portfolio?", Journal of Financial and Quantitative Analysis
+		 * 22(3): an N-holding portfolio with sd s(N) above the index's
+		 * s_i could be replaced by the index levered (borrowing) or
+		 * mixed with lending to the same sd, which earns
+		 * premium (s(N)/s_i - 1) more a year; N holdings are enough
+		 * once that level is at most the index fund's cost
+		 * disadvantage.  premium (s(N)/s_i - 1) <= cost  <=>
+		 * a + b/N <= ((1 + cost/premium) s_i)^2, and a + b/N falls
+		 * with N (b > 0), so the closed form N >= b/(limit - a) is
+		 * confirmed as the other rules' are. */
+		double si = universe_sd(e), prem = rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium
+			: cfg->lend_premium;
+		double k = 1 + cfg->index_cost / prem, limit = k * k * si * si;
+
+		if (!(si > 0))
+			return -1;
+		n = confirm_count(e, limit, variance_meets, limit > e->a ? e->b / (limit - e->a) : INFINITY);
 		break;
 	}
 	case RULES_TRACKING_ERROR: {
@@ -362,17 +422,31 @@ static void rule_parameters(const struct rules_config *cfg, int rule, char *buf,
 		pct(b, sizeof b, cfg->band_x);
 		snprintf(buf, len, "q=%s x=%s", a, b);
 		break;
-	case RULES_COST_BENEFIT:
+	case RULES_NEXT_HOLDING:
 		amount(a, sizeof a, cfg->premium, pp);
 		amount(b, sizeof b, cfg->holding_cost, pp);
 		snprintf(buf, len, "premium=%s, holding cost=%s%s", a, b,
 			 cfg->cost_defaults ? " (defaults)" : "");
 		break;
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING:
+		amount(a, sizeof a, rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium : cfg->lend_premium, pp);
+		amount(b, sizeof b, cfg->index_cost, pp);
+		snprintf(buf, len, "%s premium=%s, index cost disadvantage=%s%s",
+			 rule == RULES_STATMAN_BORROWING ? "borrowing" : "lending", a, b,
+			 cfg->statman_defaults ? " (defaults)" : "");
+		break;
+	case RULES_ALEXEEV_TAPON:
+	case RULES_ALEXEEV_TAPON_SAMPLED:
+		pct(a, sizeof a, cfg->at_x);
+		pct(b, sizeof b, cfg->at_q);
+		snprintf(buf, len, "x=%s q=%s", a, b);
+		break;
 	case RULES_TRACKING_ERROR:
 		amount(a, sizeof a, cfg->te_budget, pp);
 		snprintf(buf, len, "budget=%s", a);
 		break;
-	case RULES_SHORTFALL:
+	case RULES_LAG_SHARE:
 		amount(a, sizeof a, cfg->shortfall_d, pp);
 		pct(b, sizeof b, cfg->shortfall_p);
 		snprintf(buf, len, "d=%s p=%s", a, b);
@@ -421,11 +495,19 @@ static void exact_value(const struct rules_config *cfg, int rule,
 		if (res->met)
 			res->value = exact_step(e, res->count);
 		break;
-	case RULES_COST_BENEFIT:
+	case RULES_NEXT_HOLDING:
 		su = universe_sd(e);
 		res->threshold = cfg->holding_cost;
 		if (res->met)
 			res->value = cfg->premium * exact_step(e, res->count) / su;
+		break;
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING:
+		su = universe_sd(e);
+		res->threshold = cfg->index_cost;
+		if (res->met)
+			res->value = (rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium : cfg->lend_premium) *
+				(exact_sd(e, (double)res->count) / su - 1);
 		break;
 	case RULES_TRACKING_ERROR:
 		res->threshold = cfg->te_budget;
@@ -630,12 +712,12 @@ int hc_rules_band(const struct rules_config *cfg, const struct sampler_result *r
 	return HC_OK;
 }
 
-/* After Domian, Louton & Racine (2007), "Diversification in Portfolios of
- * Individual Stocks: 100 Stocks Are Not Enough", The Financial Review 42(4):
- * diversification judged by the share of random portfolios whose compound
- * return over the sample ends more than d a year behind the universe's,
- * rather than by sigma. */
-int hc_rules_shortfall(const struct rules_config *cfg,
+/* This tool's own rule (it cites no paper: the buy-and-hold rule of
+ * Domian, Louton & Racine, 2007, against bonds over 20 years, is another
+ * question): diversification judged by the share of random portfolios,
+ * rebalanced every period, whose compound return over the sample ends more
+ * than d a year behind the universe's, rather than by sigma. */
+int hc_rules_lag_share(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err)
 {
@@ -646,8 +728,8 @@ int hc_rules_shortfall(const struct rules_config *cfg,
 	if ((status = check_sampled(r, err)) != HC_OK)
 		return status;
 	if (!r->annual_return)
-		return hc_error(err, HC_EUSAGE, "the shortfall rule needs sampled returns");
-	result_init(cfg, RULES_SHORTFALL, res);
+		return hc_error(err, HC_EUSAGE, "the lag-share rule needs sampled returns");
+	result_init(cfg, RULES_LAG_SHARE, res);
 	res->threshold = cfg->shortfall_p;
 	/* Settled, not first crossed, as the band (see rules.h). */
 	for (j = r->nsizes; j-- > 0;) {
@@ -660,6 +742,126 @@ int hc_rules_shortfall(const struct rules_config *cfg,
 			behind += r->annual_return[k * r->nsizes + j] < cut;
 		share = (double)behind / (double)r->paths;
 		if (!(share < cfg->shortfall_p))
+			break;
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = share;
+	}
+	if (!res->met)
+		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
+	grid_note(res, r);
+	return HC_OK;
+}
+
+/* ---- Alexeev & Tapon's quantile rule ----------------------------------- */
+
+/*
+ * Alexeev & Tapon (2014), "Equity Portfolio Diversification: How Many
+ * Stocks Are Enough?  Evidence from Five Developed Markets", Journal of
+ * Banking & Finance 46 (also Raju & Agarwalla, 2021): N holdings are
+ * enough when a random N-holding portfolio removes at least x of the
+ * removable risk with probability at least q.  Removable risk is the
+ * average single holding's variance less the equal-weight universe's,
+ * v-bar - s_u^2, so the share a portfolio of variance s^2 removes is
+ * (v-bar - s^2)/(v-bar - s_u^2), and the rule asks
+ * P(s^2(N) <= v-bar - x (v-bar - s_u^2)) >= q.  *limit gets that variance
+ * limit (per period); returns -1 when there is nothing to remove.
+ */
+static int at_limit(const struct rules_config *cfg, double vbar, double cbar, size_t m, double *limit)
+{
+	double su2 = m ? vbar / (double)m + (1 - 1.0 / (double)m) * cbar : cbar;
+
+	if (!(vbar - su2 > 0))
+		return -1;
+	*limit = vbar - cfg->at_x * (vbar - su2);
+	return 0;
+}
+
+/* P(s^2(n) <= limit) by a gamma distribution with the exact mean and
+ * variance of s^2(n) across random n-subsets (a two-moment match, as
+ * Satterthwaite's for sums of squares; the portfolio variance is a
+ * positive, right-skewed quadratic form).  Exactly 0 or 1 when the spread
+ * is 0 (n = M). */
+static int at_gamma_prob(const struct moments *mo, double vbar, double cbar, size_t n,
+			 double limit, double *prob, struct hc_error *err)
+{
+	double mean = vbar / (double)n + (1 - 1.0 / (double)n) * cbar, sd;
+	int status;
+
+	if ((status = hc_curve_variance_sd(mo, n, &sd, err)) != HC_OK)
+		return status;
+	if (!(sd > 1e-12 * fabs(mean)) || !(mean > 0))
+		*prob = mean <= limit ? 1.0 : 0.0;
+	else
+		*prob = gsl_cdf_gamma_P(limit, mean * mean / (sd * sd), sd * sd / mean);
+	return HC_OK;
+}
+
+int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments *mo,
+			   struct rule_result *res, struct hc_error *err)
+{
+	double vbar, cbar, limit, prob;
+	size_t n;
+	int status;
+
+	result_init(cfg, RULES_ALEXEEV_TAPON, res);
+	res->threshold = cfg->at_q;
+	if (!mo || !mo->has_spread || mo->m < 2) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note,
+			 "needs the exact spread: a return history or a covariance matrix, not summary statistics");
+		return HC_OK;
+	}
+	vbar = mo->average_variance;
+	cbar = mo->average_covariance;
+	if (at_limit(cfg, vbar, cbar, mo->m, &limit) != 0) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
+		return HC_OK;
+	}
+	/* Settled from the top, as the sampled rules: the probability rises
+	 * with n in practice, and a scan down from M guards against a dip. */
+	for (n = mo->m; n >= 1; n--) {
+		if ((status = at_gamma_prob(mo, vbar, cbar, n, limit, &prob, err)) != HC_OK)
+			return status;
+		if (!(prob >= cfg->at_q))
+			break;
+		res->met = 1;
+		res->count = n;
+		res->value = prob;
+	}
+	if (!res->met)
+		note_not_met(res, mo->m, "");
+	return HC_OK;
+}
+
+int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct sampler_result *r,
+				   double vbar, double cbar, size_t m, struct rule_result *res,
+				   struct hc_error *err)
+{
+	double limit;
+	size_t j, k;
+	int status;
+
+	if ((status = check_sampled(r, err)) != HC_OK)
+		return status;
+	result_init(cfg, RULES_ALEXEEV_TAPON_SAMPLED, res);
+	res->threshold = cfg->at_q;
+	if (at_limit(cfg, vbar, cbar, m, &limit) != 0) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
+		return HC_OK;
+	}
+	for (j = r->nsizes; j-- > 0;) {
+		size_t removed = 0;
+		double share;
+
+		if (!size_feasible(r, j))
+			continue;
+		for (k = 0; k < r->paths; k++)
+			removed += r->variance[k * r->nsizes + j] <= limit;
+		share = (double)removed / (double)r->paths;
+		if (!(share >= cfg->at_q))
 			break;
 		res->met = 1;
 		res->count = r->sizes[j];
@@ -713,6 +915,8 @@ int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *
 		if (RULES_FLAG(rule) & RULES_EXACT_MASK)
 			status = hc_rules_exact(cfg, rule, in->vbar, in->cbar, in->m,
 					     in->periods_per_year, r, err);
+		else if (rule == RULES_ALEXEEV_TAPON)
+			status = hc_rules_alexeev_tapon(cfg, in->mo, r, err);
 		else if (!in->sampled) {
 			result_init(cfg, rule, r);
 			r->defined = 0;
@@ -720,8 +924,10 @@ int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *
 			status = HC_OK;
 		} else if (rule == RULES_BAND)
 			status = hc_rules_band(cfg, in->sampled, in->cbar, in->periods_per_year, r, err);
+		else if (rule == RULES_ALEXEEV_TAPON_SAMPLED)
+			status = hc_rules_alexeev_tapon_sampled(cfg, in->sampled, in->vbar, in->cbar, in->m, r, err);
 		else
-			status = hc_rules_shortfall(cfg, in->sampled, in->universe_return, r, err);
+			status = hc_rules_lag_share(cfg, in->sampled, in->universe_return, r, err);
 		if (status != HC_OK)
 			return status;
 		n++;
@@ -761,6 +967,19 @@ static double count_percentile(const size_t *c, size_t n, size_t pct)
 	return c[k - 1] == 0 ? NAN : (double)c[k - 1];
 }
 
+/* Say why, when a percentile interval does not hold its own estimate. */
+static void note_excluded(struct rule_result *res)
+{
+	if (!res->met || res->note[0])
+		return;
+	if ((!isnan(res->count_p05) && (double)res->count < res->count_p05) ||
+	    (!isnan(res->count_p95) && (double)res->count > res->count_p95))
+		snprintf(res->note, sizeof res->note,
+			 "interval excludes the estimate: replicate counts lean %s it (resampling re-estimates "
+			 "the means%s)", (double)res->count < res->count_p05 ? "above" : "below",
+			 RULES_FLAG(res->rule) & RULES_SAMPLED_MASK ? "; fewer, fresh portfolios" : "");
+}
+
 void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 {
 	size_t k;
@@ -776,6 +995,7 @@ void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
 	res->count_p05 = count_percentile(count, nrep, 5);
 	res->count_p50 = count_percentile(count, nrep, 50);
 	res->count_p95 = count_percentile(count, nrep, 95);
+	note_excluded(res);
 }
 
 int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
@@ -805,6 +1025,332 @@ int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 	return HC_OK;
 }
 
+/* ---- BCa intervals --------------------------------------------------------- */
+
+/* Real N with step(N) = limit, in (lo, hi], by bisection (step falls with N). */
+static double step_root(const struct exact *e, double limit, double lo, double hi)
+{
+	int k;
+
+	for (k = 0; k < 60; k++) {
+		double mid = 0.5 * (lo + hi), dn = mid, sum = exact_sd(e, dn) + exact_sd(e, dn + 1);
+		double step = sum > 0 ? e->b / (dn * (dn + 1) * sum) : 0;
+
+		if (step <= limit)
+			hi = mid;
+		else
+			lo = mid;
+	}
+	return hi;
+}
+
+/*
+ * The continuous count of an exact rule: the real N at which its quantity
+ * crosses the threshold, so that the count is its ceiling.  A smooth
+ * function of v-bar and c-bar, which is what BCa needs (the count itself is
+ * a step function).  +inf when not met, NaN when undefined.  Clamped into
+ * (count - 1, count] so that rounding never disagrees with the count.
+ */
+double hc_rules_exact_real(const struct rules_config *cfg, int rule, double vbar, double cbar,
+			   size_t m, double periods_per_year)
+{
+	struct exact e;
+	size_t n;
+	double x = NAN, lo, hi;
+	int got;
+
+	if (m == 0 && cbar < 0)
+		return NAN;
+	exact_init(&e, vbar, cbar, m, periods_per_year);
+	got = exact_count(cfg, rule, &e, &n);
+	if (got < 0)
+		return NAN;
+	if (got == 0)
+		return INFINITY;
+	hi = (double)n;
+	lo = hi - 1;
+	switch (rule) {
+	case RULES_NEAR_FLOOR:
+		x = e.b / (((1 + cfg->near_floor_x) * (1 + cfg->near_floor_x) - 1) * e.cbar);
+		break;
+	case RULES_TRACKING_ERROR: {
+		double inv_m = e.m ? 1.0 / (double)e.m : 0.0;
+
+		x = e.b > 0 ? 1.0 / (inv_m + cfg->te_budget * cfg->te_budget / e.b) : 1.0;
+		break;
+	}
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING: {
+		double si = universe_sd(&e), prem = rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium
+			: cfg->lend_premium, k = 1 + cfg->index_cost / prem, limit = k * k * si * si;
+
+		x = limit > e.a ? e.b / (limit - e.a) : hi;
+		break;
+	}
+	case RULES_MARGINAL:
+		x = step_root(&e, cfg->marginal_eps, lo > 0 ? lo : 0, hi);
+		break;
+	case RULES_NEXT_HOLDING:
+		x = step_root(&e, cfg->holding_cost * universe_sd(&e) / cfg->premium, lo > 0 ? lo : 0, hi);
+		break;
+	}
+	if (!(x > lo))
+		x = lo + 1e-9;
+	if (!(x <= hi))
+		x = hi;
+	return x;
+}
+
+static int cmp_double(const void *a, const void *b)
+{
+	double x = *(const double *)a, y = *(const double *)b;
+
+	return (x > y) - (x < y);
+}
+
+/* The count at order statistic ceil(B alpha) of sorted real counts (inf =
+ * not met = NaN). */
+static double bca_count(const double *sorted, size_t nrep, double alpha)
+{
+	double k = ceil((double)nrep * alpha);
+	size_t i = k < 1 ? 0 : k > (double)nrep ? nrep - 1 : (size_t)k - 1;
+	double x = sorted[i];
+
+	if (!isfinite(x))
+		return NAN;
+	return ceil(x) < 1 ? 1 : ceil(x);
+}
+
+/*
+ * BCa interval (Efron, 1987, "Better Bootstrap Confidence Intervals",
+ * Journal of the American Statistical Association 82(397)) of one exact
+ * rule's continuous count: bias correction z0 from the share of replicates
+ * below the estimate (ties count half), acceleration a from the
+ * delete-a-block jackknife values (Kuensch, 1989), endpoints at the
+ * replicate quantiles Phi(z0 + (z0 + z)/(1 - a (z0 + z))) for z = z(0.05),
+ * z(0.95); counts are their ceilings.  *z0 and *acc report what was used.
+ */
+static void bca_rule(const struct rules_config *cfg, int rule, const double *vbar, const double *cbar,
+		     size_t nrep, const double *jv, const double *jc, size_t nj, double vhat, double chat,
+		     size_t m, double ppy, double *work, struct rule_result *res)
+{
+	double est = hc_rules_exact_real(cfg, rule, vhat, chat, m, ppy), less = 0, eq = 0, p, z0, acc = 0;
+	double num = 0, den = 0, jmean = 0, zl = gsl_cdf_ugaussian_Pinv(0.05), zh = -zl, al, ah;
+	size_t k, met = 0;
+	int finite = 1;
+
+	for (k = 0; k < nrep; k++) {
+		double x = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, ppy);
+
+		work[k] = isnan(x) ? INFINITY : x;   /* undefined in a replicate: never met there */
+		met += isfinite(work[k]) != 0;
+		less += work[k] < est;
+		eq += work[k] == est;
+	}
+	p = (less + 0.5 * eq) / (double)nrep;
+	p = fmin(fmax(p, 0.5 / (double)nrep), 1 - 0.5 / (double)nrep);
+	z0 = gsl_cdf_ugaussian_Pinv(p);
+	for (k = 0; k < nj; k++) {
+		double x = hc_rules_exact_real(cfg, rule, jv[k], jc[k], m, ppy);
+
+		finite &= isfinite(x) != 0;
+		jmean += x;
+	}
+	if (finite && nj > 1) {
+		jmean /= (double)nj;
+		for (k = 0; k < nj; k++) {
+			double d = jmean - hc_rules_exact_real(cfg, rule, jv[k], jc[k], m, ppy);
+
+			num += d * d * d;
+			den += d * d;
+		}
+		acc = den > 0 ? num / (6 * pow(den, 1.5)) : 0;
+	}
+	al = gsl_cdf_ugaussian_P(z0 + (z0 + zl) / (1 - acc * (z0 + zl)));
+	ah = gsl_cdf_ugaussian_P(z0 + (z0 + zh) / (1 - acc * (z0 + zh)));
+	qsort(work, nrep, sizeof *work, cmp_double);
+	res->bootstrapped = 1;
+	res->replicates = nrep;
+	res->replicates_met = met;
+	res->count_p05 = bca_count(work, nrep, al);
+	res->count_p50 = bca_count(work, nrep, 0.5);
+	res->count_p95 = bca_count(work, nrep, ah);
+	if (res->met && !res->note[0] &&
+	    ((!isnan(res->count_p05) && (double)res->count < res->count_p05) ||
+	     (!isnan(res->count_p95) && (double)res->count > res->count_p95)))
+		snprintf(res->note, sizeof res->note,
+			 "the BCa interval excludes the estimate: the replicates lean %s of it (bias correction "
+			 "z0 = %.2f, acceleration %.3f)", z0 > 0 ? "below" : "above", z0, acc);
+}
+
+int hc_rules_bootstrap_exact_bca(const struct rules_config *cfg, const double *vbar, const double *cbar,
+				 size_t nrep, const double *jv, const double *jc, size_t nj, double vhat,
+				 double chat, size_t m, double periods_per_year, struct rule_result *res,
+				 size_t nres, struct hc_error *err)
+{
+	double *work;
+	size_t j;
+
+	if (nrep == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	work = hc_malloc(nrep * sizeof *work);
+	if (!work)
+		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", nrep);
+	for (j = 0; j < nres; j++)
+		if ((RULES_FLAG(res[j].rule) & RULES_EXACT_MASK) && res[j].defined)
+			bca_rule(cfg, res[j].rule, vbar, cbar, nrep, jv, jc, nj, vhat, chat, m,
+				 periods_per_year, work, &res[j]);
+	hc_free(work);
+	return HC_OK;
+}
+
+/*
+ * Studentized (bootstrap-t) interval on the log of the continuous count
+ * (Efron & Tibshirani, 1993, An Introduction to the Bootstrap, ch. 12, and
+ * Hall, 1988, Annals of Statistics 16(3), for its second-order accuracy):
+ * t_k = (log theta*_k - log theta-hat) / se*_k with each replicate's own
+ * delta-method standard error from the per-period series q_t and s2_t of
+ * its periods (hc_bootstrap_period_series), so that a replicate that
+ * missed the sample's large shocks has both a low estimate and a low
+ * standard error -- the link a percentile interval loses under fat tails.
+ * Interval: exp(log theta-hat - t_(0.95) se, log theta-hat - t_(0.05) se).
+ */
+static double log_se(const struct rules_config *cfg, int rule, double vbar, double cbar, size_t m,
+		     double ppy, size_t t, const double *q, const double *s2, const size_t *idx, size_t bw)
+{
+	double th = hc_rules_exact_real(cfg, rule, vbar, cbar, m, ppy), hv = 1e-6 * fabs(vbar), hc = 1e-6 * fabs(cbar);
+	double dv, dc, k1, k2, ga, gb, mq = 0, ms = 0, sqq = 0, sss = 0, sqs = 0, dm = (double)m, dt = (double)t;
+	size_t i;
+
+	if (!isfinite(th) || !(hv > 0) || !(hc > 0))
+		return NAN;
+	dv = (log(hc_rules_exact_real(cfg, rule, vbar + hv, cbar, m, ppy)) -
+	      log(hc_rules_exact_real(cfg, rule, vbar - hv, cbar, m, ppy))) / (2 * hv);
+	dc = (log(hc_rules_exact_real(cfg, rule, vbar, cbar + hc, m, ppy)) -
+	      log(hc_rules_exact_real(cfg, rule, vbar, cbar - hc, m, ppy))) / (2 * hc);
+	if (!isfinite(dv) || !isfinite(dc))
+		return NAN;
+	k1 = dt / ((dt - 1) * dm);
+	k2 = dt / ((dt - 1) * dm * (dm - 1));
+	ga = dv * k1 - dc * k2;   /* d log theta / d mean(q) */
+	gb = dc * k2;             /* d log theta / d mean(s2) */
+	for (i = 0; i < t; i++) {
+		size_t p = idx ? idx[i] : i;
+
+		mq += q[p];
+		ms += s2[p];
+	}
+	mq /= dt;
+	ms /= dt;
+	/* Long-run variance of the linearised series g_i = ga q + gb s2 with
+	 * Bartlett weights (Newey & West, 1987, Econometrica 55(3)) up to lag
+	 * bw - 1: dependence in the squares (volatility clustering) widens it. */
+	{
+		double lrv = 0;
+		size_t lag;
+
+		for (lag = 0; lag < bw && lag < t; lag++) {
+			double c = 0, wgt = lag == 0 ? 1.0 : 2.0 * (1.0 - (double)lag / (double)bw);
+
+			for (i = lag; i < t; i++) {
+				size_t p = idx ? idx[i] : i, p0 = idx ? idx[i - lag] : i - lag;
+
+				c += (ga * (q[p] - mq) + gb * (s2[p] - ms)) * (ga * (q[p0] - mq) + gb * (s2[p0] - ms));
+			}
+			lrv += wgt * c;
+		}
+		(void)sqq;
+		(void)sss;
+		(void)sqs;
+		return sqrt(fmax(lrv, 0) / (dt * dt));
+	}
+}
+
+int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct bootstrap_base *b,
+			       const struct bootstrap_options *bopt, size_t block_length, const double *vbar,
+			       const double *cbar, size_t nrep, double vhat, double chat, double periods_per_year,
+			       struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t t = b->t, m = b->m, j, k, *idx = NULL;
+	double *q = NULL, *s2 = NULL, *tk = NULL, *cnt = NULL, *se = NULL;
+	int status = HC_OK;
+
+	if (nrep == 0)
+		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
+	q = hc_malloc(t * sizeof *q);
+	s2 = hc_malloc(t * sizeof *s2);
+	idx = hc_malloc(t * sizeof *idx);
+	tk = hc_malloc(nrep * sizeof *tk);
+	cnt = hc_malloc(nrep * sizeof *cnt);
+	se = hc_malloc(nrep * RULES_COUNT * sizeof *se);
+	if (!q || !s2 || !idx || !tk || !cnt || !se) {
+		status = hc_error(err, HC_ENOMEM, "out of memory for the studentized bootstrap");
+		goto cleanup;
+	}
+	hc_bootstrap_period_series(b, q, s2);
+	for (k = 0; k < nrep; k++) {
+		if ((status = hc_bootstrap_indices(bopt->kind, t, block_length, bopt->seed, k, idx, err)) != HC_OK)
+			goto cleanup;
+		for (j = 0; j < nres; j++)
+			se[k * RULES_COUNT + res[j].rule] = (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
+				? log_se(cfg, res[j].rule, vbar[k], cbar[k], m, periods_per_year, t, q, s2, idx, block_length) : NAN;
+	}
+	for (j = 0; j < nres; j++) {
+		int rule = res[j].rule;
+		double est, se0, lo, hi, tl, th;
+		size_t met = 0, n = 0;
+
+		if (!(RULES_FLAG(rule) & RULES_EXACT_MASK) || !res[j].defined)
+			continue;
+		est = hc_rules_exact_real(cfg, rule, vhat, chat, m, periods_per_year);
+		se0 = log_se(cfg, rule, vhat, chat, m, periods_per_year, t, q, s2, NULL, block_length);
+		for (k = 0; k < nrep; k++) {
+			double x = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, periods_per_year);
+			double s = se[k * RULES_COUNT + rule];
+
+			cnt[k] = isnan(x) ? INFINITY : x;
+			met += isfinite(cnt[k]) != 0;
+			/* a replicate not met, or without a standard error, lies beyond every other */
+			tk[n++] = isfinite(x) && s > 0 ? (log(x) - log(est)) / s : INFINITY;
+		}
+		qsort(cnt, nrep, sizeof *cnt, cmp_double);
+		res[j].bootstrapped = 1;
+		res[j].replicates = nrep;
+		res[j].replicates_met = met;
+		res[j].count_p50 = bca_count(cnt, nrep, 0.5);
+		if (!isfinite(est) || !(se0 > 0)) {
+			res[j].count_p05 = bca_count(cnt, nrep, 0.05);
+			res[j].count_p95 = bca_count(cnt, nrep, 0.95);
+			continue;
+		}
+		qsort(tk, n, sizeof *tk, cmp_double);
+		tl = tk[(size_t)fmax(ceil(0.05 * (double)n) - 1, 0)];
+		th = tk[(size_t)fmax(ceil(0.95 * (double)n) - 1, 0)];
+		lo = isfinite(th) ? exp(log(est) - th * se0) : 0;
+		hi = exp(log(est) - tl * se0);
+		res[j].count_p05 = ceil(lo) < 1 ? 1 : ceil(lo);
+		{
+			double nmax = m ? (double)m : (double)RULES_UNBOUNDED_MAX;
+
+			res[j].count_p95 = ceil(hi) > nmax ? NAN : fmax(ceil(hi), 1);
+		}
+		if (res[j].met && !res[j].note[0] &&
+		    ((double)res[j].count < res[j].count_p05 ||
+		     (!isnan(res[j].count_p95) && (double)res[j].count > res[j].count_p95)))
+			snprintf(res[j].note, sizeof res[j].note,
+				 "the studentized interval excludes the estimate: the replicates' t-statistics lie "
+				 "to one side of 0 (from %.2f to %.2f)", tl, th);
+	}
+cleanup:
+	hc_free(q);
+	hc_free(s2);
+	hc_free(idx);
+	hc_free(tk);
+	hc_free(cnt);
+	hc_free(se);
+	return status;
+}
+
 /* ---- report ------------------------------------------------------------- */
 
 static const struct { const char *key, *title; int style; } rule_columns[] = {
@@ -832,9 +1378,15 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 	if (!res->bootstrapped)
 		return 0;
 	if (isnan(p))
-		return hc_report_table_set_text(t, row, col, "not met");
+		return hc_report_table_set_none(t, row, col, "not met");
 	hc_report_table_set_int(t, row, col, (long long)p);
 	return 0;
+}
+
+/* Rules whose value and threshold are shares of portfolios, not amounts. */
+static int rule_is_share(int rule)
+{
+	return rule == RULES_LAG_SHARE || rule == RULES_ALEXEEV_TAPON || rule == RULES_ALEXEEV_TAPON_SAMPLED;
 }
 
 /* The value or threshold of a rule: the column's percent style for yearly
@@ -843,7 +1395,7 @@ static void set_amount(struct report_table *t, size_t row, size_t col,
 		       const struct rule_result *res, double x)
 {
 	hc_report_table_set_real(t, row, col, x);
-	if (res->per_period && res->rule != RULES_SHORTFALL)
+	if (res->per_period && !rule_is_share(res->rule))
 		t->cells[row * t->ncols + col].style = REPORT_STYLE_PLAIN;
 }
 
@@ -873,6 +1425,9 @@ static int rule_row(struct report_table *t, const struct rule_result *res)
 	}
 	if (res->note[0])
 		bad |= hc_report_table_set_text(t, row, 12, res->note);
+	else if (res->bootstrapped && isnan(res->count_p95))
+		bad |= hc_report_table_set_text(t, row, 12, "interval reaches replicates that do not meet the rule "
+						"(more than 5% of them): its upper end is null, \"not met\"");
 	return bad ? -1 : 0;
 }
 
@@ -901,7 +1456,7 @@ int hc_rules_report(struct report *rep, const struct rule_result *res,
 /* The staged sampling of hc_rules_sampled (the sampler picks the series or
  * the matrix route from src). */
 static int sampled_stages(const struct rules_config *cfg, const struct hc_source *src,
-			  const struct sampler_options *so, double cbar,
+			  const struct sampler_options *so, double vbar, double cbar,
 			  struct rule_result *res, size_t *nres, size_t *largest,
 			  struct hc_error *err)
 {
@@ -910,12 +1465,13 @@ static int sampled_stages(const struct rules_config *cfg, const struct hc_source
 	struct sampler_result *sr = NULL;
 	size_t *sizes = NULL, k, n = 0, j;
 	int want_band = (cfg->selected & RULES_FLAG(RULES_BAND)) != 0;
+	int want_at = (cfg->selected & RULES_FLAG(RULES_ALEXEEV_TAPON_SAMPLED)) != 0;
 	int status = HC_OK;
 	double uret = 0;
 
 	*nres = 0;
-	o.want_returns = (cfg->selected & RULES_FLAG(RULES_SHORTFALL)) != 0;
-	if (!want_band && !o.want_returns)
+	o.want_returns = (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)) != 0;
+	if (!want_band && !want_at && !o.want_returns)
 		return HC_OK;
 	if (o.want_returns && (status = hc_rules_universe_return(src->u, o.periods_per_year, &uret, err)) != HC_OK)
 		return status;
@@ -941,9 +1497,15 @@ static int sampled_stages(const struct rules_config *cfg, const struct hc_source
 			n++;
 		}
 		if (o.want_returns) {
-			if ((status = hc_rules_shortfall(cfg, sr, uret, &res[n], err)) != HC_OK)
+			if ((status = hc_rules_lag_share(cfg, sr, uret, &res[n], err)) != HC_OK)
 				break;
 			done &= res[n].met;
+			n++;
+		}
+		if (want_at) {
+			if ((status = hc_rules_alexeev_tapon_sampled(cfg, sr, vbar, cbar, m, &res[n], err)) != HC_OK)
+				break;
+			done &= res[n].met || !res[n].defined;
 			n++;
 		}
 		hc_sampler_result_free(sr);
@@ -964,15 +1526,15 @@ static int sampled_stages(const struct rules_config *cfg, const struct hc_source
 }
 
 int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src,
-		     const struct sampler_options *so, double cbar,
+		     const struct sampler_options *so, double vbar, double cbar,
 		     struct rule_result *res, size_t *nres, size_t *largest,
 		     struct hc_error *err)
 {
 	*nres = 0;
-	if (hc_source_matrix(src) && (cfg->selected & RULES_FLAG(RULES_SHORTFALL)))
-		return hc_error(err, HC_EUSAGE, "the shortfall rule compounds each portfolio's returns over the "
+	if (hc_source_matrix(src) && (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)))
+		return hc_error(err, HC_EUSAGE, "the lag-share rule compounds each portfolio's returns over the "
 				"periods, and a covariance matrix has none");
-	return sampled_stages(cfg, src, so, cbar, res, nres, largest, err);
+	return sampled_stages(cfg, src, so, vbar, cbar, res, nres, largest, err);
 }
 
 /* ---- bootstrap of the sampled rules ------------------------------------ */
@@ -984,17 +1546,18 @@ uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep)
 	return hc_paths_stream(seed ^ 0x5DEECE66DULL, (uint64_t)rep);
 }
 
-/* One replicate's band and shortfall counts (0 = not met). */
+/* One replicate's band, lag-share and Alexeev-Tapon (sampled, and exact
+ * from the replicate's own exact spread) counts (0 = not met). */
 static int sampled_replicate(const struct rules_config *cfg, const struct universe *u,
 			     const struct bootstrap_base *b, const struct bootstrap_options *bopt,
 			     const struct sampler_options *sopt, size_t l, size_t rep,
 			     size_t *idx, double *w, size_t *band, size_t *shortfall,
-			     struct hc_error *err)
+			     size_t *at, size_t *at_exact, struct hc_error *err)
 {
 	struct universe *ru = NULL;
 	struct hc_source rs;
 	struct sampler_options so = *sopt;
-	struct rule_result rr[2];
+	struct rule_result rr[3];
 	double vbar, cbar;
 	size_t k, n;
 	int status;
@@ -1010,7 +1573,15 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 	so.seed = hc_rules_replicate_seed(bopt->seed, rep);
 	so.progress = NULL;
 	hc_source_init_series(&rs, ru);
-	status = hc_rules_sampled(cfg, &rs, &so, cbar, rr, &n, NULL, err);
+	status = hc_rules_sampled(cfg, &rs, &so, vbar, cbar, rr, &n, NULL, err);
+	if (status == HC_OK && (cfg->selected & RULES_SPREAD_MASK)) {
+		struct moments mo;
+		struct rule_result ar;
+
+		if ((status = hc_moments_from_universe(&mo, ru, err)) == HC_OK &&
+		    (status = hc_rules_alexeev_tapon(cfg, &mo, &ar, err)) == HC_OK)
+			*at_exact = ar.met ? ar.count : 0;
+	}
 	hc_universe_free(ru);
 	if (status != HC_OK)
 		return status;
@@ -1019,8 +1590,10 @@ static int sampled_replicate(const struct rules_config *cfg, const struct univer
 
 		if (rr[k].rule == RULES_BAND)
 			*band = c;
-		else
+		else if (rr[k].rule == RULES_LAG_SHARE)
 			*shortfall = c;
+		else
+			*at = c;
 	}
 	return HC_OK;
 }
@@ -1032,7 +1605,7 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 			    struct rule_result *res, size_t nres, struct hc_error *err)
 {
 	size_t nrep = bopt->replicates, l, rep, j, *idx = NULL;
-	size_t *band = NULL, *shortfall = NULL;
+	size_t *band = NULL, *shortfall = NULL, *at = NULL, *at_exact = NULL;
 	double *w = NULL;
 	int status = HC_OK;
 
@@ -1046,13 +1619,15 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 	w = hc_mallocarray(u->t, sizeof *w);
 	band = hc_calloc(nrep, sizeof *band);
 	shortfall = hc_calloc(nrep, sizeof *shortfall);
-	if (!idx || !w || !band || !shortfall) {
+	at = hc_calloc(nrep, sizeof *at);
+	at_exact = hc_calloc(nrep, sizeof *at_exact);
+	if (!idx || !w || !band || !shortfall || !at || !at_exact) {
 		status = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
 		goto cleanup;
 	}
 	for (rep = 0; rep < nrep; rep++) {
 		status = sampled_replicate(cfg, u, b, bopt, sopt, l, rep, idx, w,
-					   &band[rep], &shortfall[rep], err);
+					   &band[rep], &shortfall[rep], &at[rep], &at_exact[rep], err);
 		if (status != HC_OK)
 			goto cleanup;
 		if (bopt->progress && bopt->progress(bopt->progress_ctx, rep + 1, nrep)) {
@@ -1063,13 +1638,19 @@ int hc_rules_bootstrap_sampled(const struct rules_config *cfg, const struct univ
 	for (j = 0; j < nres; j++) {
 		if (res[j].rule == RULES_BAND && res[j].defined)
 			hc_rules_set_interval(&res[j], band, nrep);
-		else if (res[j].rule == RULES_SHORTFALL && res[j].defined)
+		else if (res[j].rule == RULES_LAG_SHARE && res[j].defined)
 			hc_rules_set_interval(&res[j], shortfall, nrep);
+		else if (res[j].rule == RULES_ALEXEEV_TAPON_SAMPLED && res[j].defined)
+			hc_rules_set_interval(&res[j], at, nrep);
+		else if (res[j].rule == RULES_ALEXEEV_TAPON && res[j].defined && (cfg->selected & RULES_SPREAD_MASK))
+			hc_rules_set_interval(&res[j], at_exact, nrep);
 	}
 cleanup:
 	hc_free(idx);
 	hc_free(w);
 	hc_free(band);
 	hc_free(shortfall);
+	hc_free(at);
+	hc_free(at_exact);
 	return status;
 }

@@ -228,6 +228,24 @@ printf 'id,AQ,BR,CT\nAQ,0.0025,0.00297,0.00347\nBR,0.00297,0.0036,-0.00416\nCT,0
 expect 3 "holdcount curve: $T/notpsd.csv: not a covariance matrix: it is not positive semi-definite" -- curve --covariance "$T/notpsd.csv"
 expect 2 "holdcount curve: --prices describes a return history and does not apply with --covariance" -- curve --covariance --prices "$T/cov.csv"
 expect 2 "holdcount describe: --missing describes a return history" -- describe --covariance --missing pairwise "$T/cov.csv"
+# Gaps that leave pairwise correlations +1, -1, +1 (A,B; A,C; B,C): a matrix
+# no data can have (by hand: eigenvalues of [[1,1,-1],[1,1,1],[-1,1,1]] include
+# -1).  curve refuses it; describe prints its averages with a warning.
+"$PY" - >"$T/np.csv" <<'PY'
+import random, datetime as dt
+random.seed(5)
+z = [random.gauss(0, 0.05) for _ in range(30)]; w = [random.gauss(0, 0.05) for _ in range(30)]
+print("date,A,B,C")
+for k in range(30):
+    d = dt.date(2001 + (k + 1) // 12, (k + 1) % 12 + 1, 1) - dt.timedelta(days=1)
+    a = z[k] if k < 20 else None
+    b = z[k] if k < 10 else (w[k] if k >= 20 else None)
+    c = -z[k] if 10 <= k < 20 else (w[k] if k >= 20 else None)
+    print(d.isoformat() + "," + ",".join("NA" if v is None else repr(v) for v in (a, b, c)))
+PY
+"$HC" describe "$T/np.csv" --missing pairwise --min-coverage 60% --format json >"$T/np.json" || fail "describe non-PSD exit $?"
+grep -q 'warning: the pairwise-complete covariance matrix is not positive semi-definite' "$T/np.json" \
+	|| fail "describe prints averages of a non-PSD pairwise matrix without a warning: $(cat "$T/np.json")"
 expect 2 "holdcount curve: size 6 is larger than the 5 securities kept" -- curve --covariance "$T/cov.csv" --sizes 6
 
 # Bad input (issue 2).  Each file differs from u.csv in one way.

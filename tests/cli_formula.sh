@@ -101,4 +101,13 @@ ls -A "$T" | grep -q '\.tmp-' && fail "temporary file left behind"
 [ "$rc" = 4 ] || fail "writing to /dev/full: exit $rc, expected 4"
 grep -q "^holdcount formula: cannot write to standard output" "$T/err" || fail "/dev/full message: $(cat "$T/err")"
 
+# Elton & Gruber's averages are percent squared (from memory): annualised as
+# if decimals they give an average sd of 2365% a year, and the output says
+# what the likely cause is; decimal inputs carry no such caution.
+"$HC" formula --average-variance 46.619 --average-covariance 7.058 --periods-per-year 12 --format json >"$T/imp.json"
+grep -q 'implausible: the average sd is 2365% a year, above 300%; are the inputs in percent (variances in percent squared?)' "$T/imp.json" \
+	|| fail "no implausible-sd caution: $(cat "$T/imp.json")"
+"$HC" formula --average-variance 0.0119 --average-covariance 0.0021 --periods-per-year 12 --format json | grep -q implausible \
+	&& fail "implausible caution on decimal inputs"
+
 cli_end cli_formula

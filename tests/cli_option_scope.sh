@@ -68,7 +68,9 @@ value() {
 	min-covered-weight) echo 50% ;; benchmark) echo "$T/h.csv" ;;
 	rules) echo exact ;;          near-floor) echo 5% ;;       marginal) echo 0.10pp ;;
 	band) echo 95%:10% ;;         premium) echo 4% ;;          holding-cost) echo 0.1% ;;
-	te-budget) echo 3% ;;         shortfall) echo 1%:10% ;;    bootstrap) echo 40 ;;
+	te-budget) echo 3% ;;         shortfall|lag-share) echo 1%:10% ;;    bootstrap) echo 40 ;;
+	statman) echo 5%:7% ;;        index-cost) echo 0.4% ;;     alexeev-tapon) echo 85%:90% ;;
+	policy) echo near-floor ;;
 	block-length) echo 3 ;;       bootstrap-paths) echo 100 ;; average-variance) echo 0.0385 ;;
 	average-covariance) echo 0.0092 ;; average-sd) echo 20% ;; average-correlation) echo 0.3 ;;
 	securities) echo 40 ;;        strata) echo "$T/s.csv" ;;   strata-id-column) echo id ;;
@@ -169,7 +171,7 @@ while read -r c name reason; do
 done <<'EOF'
 rolling covariance a covariance matrix has no periods to roll over
 report covariance the report needs a return history
-report missing the report draws its random portfolios, its shortfall rule and its audit from complete return series
+report missing the report draws its random portfolios, its lag-share rule and its audit from complete return series
 report min-coverage it is the coverage --missing pairwise asks for
 enough sizes enough looks at every holding count
 audit sizes the audit compares each fund at its own holding count

@@ -24,6 +24,11 @@ fi
 [ -e "$T/a/.holdcount-incomplete" ] && fail "the finished report keeps the incomplete marker"
 grep -q '^## Cautions' "$T/a/summary.md" || fail "summary.md has no cautions"
 grep -q 'not investment advice' "$T/a/summary.md" || fail "summary.md lacks 'not investment advice'"
+# The interval's measured coverage is said where the interval is shown
+# (docs/enough.md, "Measured coverage"; the figures are checked against that
+# table in cli_enough.sh).
+grep -q '^Coverage: in simulations with known true counts .*only [0-9]*-[0-9]*% for the exact rules when volatility clusters' \
+	"$T/a/summary.md" || fail "summary.md does not state the interval's measured coverage"
 grep -q '!\[Risk by holding count\](risk.png)' "$T/a/summary.md" || fail "summary.md does not embed risk.png"
 # The count needed through time is in by default: the demo's 240 months hold
 # two windows of five years (60 periods), one a year (12): (240 - 60)/12 + 1
@@ -223,7 +228,8 @@ grep -q '^| Thin Fund | .*| 1 | 50.00% | .*| insufficient data |$' "$T/thin/summ
 python3 -c 'import json,sys; d=json.load(open(sys.argv[1]))["audit"]; f=d["funds"][0]; sys.exit(not (d["insufficient_funds"] == 1 and f["verdict"] == "insufficient data" and f["covered_weight"] == 0.5 and f["risk_holdings"] == 1))' \
 	"$T/thin/summary.json" || fail "summary.json does not carry the thin fund's coverage"
 # the rules section explains itself: a line per rule, how to read the interval
-grep -q '^- shortfall (after Domian, Louton & Racine, 2007' "$T/a/summary.md" || fail "summary.md lacks the shortfall rule's line"
+grep -q '^- lag-share (this tool.s own rule)' "$T/a/summary.md" || fail "summary.md lacks the lag-share rule's line"
+grep -q '^> The portfolio shall hold at least [0-9]* securities. Basis: on ' "$T/a/summary.md" || fail "summary.md lacks the recommendation sentence"
 grep -q -- '--bootstrap-sampled` gives them one' "$T/a/summary.md" || fail "summary.md does not say why band and shortfall have no interval"
 "$HC" report --demo -o "$T/bs" "${FAST[@]}" --bootstrap 20 --bootstrap-sampled --bootstrap-paths 50 || fail "--bootstrap-sampled exited $?"
 grep -q -- '--bootstrap-sampled` gives them one' "$T/bs/summary.md" && fail "summary.md says band has no interval under --bootstrap-sampled"

@@ -100,7 +100,7 @@ import json, sys
 e = json.load(open(sys.argv[1]))["enough"]
 rows = {r["rule"]: r for r in e["rules"]}
 ok = (e["securities"] == 320 and e["sampled_sizes"] == 320 and rows["band"]["count"] > 256
-      and all(rows[k]["replicates"] == 40 for k in ("band", "shortfall")))
+      and all(rows[k]["replicates"] == 40 for k in ("band", "lag-share")))
 sys.exit(0 if ok else 1)
 PY
 # 96 months hold fewer than two five-year windows: no rolling windows, and

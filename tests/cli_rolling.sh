@@ -3,7 +3,7 @@
 #
 #  1. One window over the whole demo sample prints, digit for digit, the
 #     averages `describe` prints and the counts and bootstrap percentiles
-#     `enough --rules exact` prints (same seed).
+#     `enough --rules exact` prints with the same resampling (moving blocks of round(T^(1/3)), percentile intervals; same seed).
 #  2. On an invented universe with late listings and delistings, every
 #     window's securities, averages, floor and near-floor and
 #     tracking-error counts agree with numpy (np.cov, ddof=1) on the
@@ -26,7 +26,7 @@ say() { echo "FAIL: $*"; fail=1; }
 D=$SRC/data/demo-universe.csv
 "$HC" rolling "$D" --window 240 --bootstrap 200 --format json > "$TMP/roll.json"
 "$HC" describe "$D" --format json > "$TMP/describe.json"
-"$HC" enough "$D" --rules exact --bootstrap 200 --format json > "$TMP/enough.json"
+"$HC" enough "$D" --rules exact --bootstrap 200 --bootstrap-kind block --block-length 6 --interval percentile --format json > "$TMP/enough.json"
 "$PY" - "$TMP" <<'PY' || fail=1
 import json, sys
 d = sys.argv[1]
@@ -116,7 +116,7 @@ sys.exit(bad)
 PY
 
 # ---- 3. contract and exit statuses ---------------------------------------------
-head -1 "$TMP/u-roll.csv" | grep -q '^window_start,window_end,securities,average_variance,average_covariance,average_correlation,floor_sd,count_near_floor,count_marginal,count_cost_benefit,count_tracking_error,' \
+head -1 "$TMP/u-roll.csv" | grep -q '^window_start,window_end,securities,average_variance,average_covariance,average_correlation,floor_sd,count_near_floor,count_marginal,count_next_holding,count_tracking_error,' \
 	|| say "csv header: $(head -1 "$TMP/u-roll.csv")"
 status() { set +e; "$HC" "$@" > "$TMP/out" 2> "$TMP/err"; echo $?; set -e; }
 [ "$(status rolling "$TMP/u.csv" --window 151)" = 2 ] || say "window longer than the data: not exit 2"
@@ -150,7 +150,7 @@ out = list(csv.DictReader(open(sys.argv[2])))
 bad = len(dat) != len(out)
 for d, o in zip(dat, out):
     want = [o["window_end"]] + [o[k] or "-" for k in
-            ("count_near_floor", "count_marginal", "count_cost_benefit", "count_tracking_error")]
+            ("count_near_floor", "count_marginal", "count_next_holding", "count_tracking_error", "count_statman_borrowing", "count_statman_lending")]
     bad |= d != want
 if bad:
     print("FAIL: rolling.dat does not hold the windows' counts")

@@ -177,7 +177,7 @@ expect 0 "" -- enough "$demo" --missing complete --strata "$sectors" --strata-co
 "$PY" - "$T/out" "$most" <<'PY' || fail "demo enough: not met up to $most"
 import sys, csv
 rows = {r["rule"]: r for r in csv.DictReader(open(sys.argv[1]))}
-for name in ("band", "shortfall"):
+for name in ("band", "lag-share"):
     r = rows[name]
     assert r["met"] == "false" and r["count"] == "", r
     assert r["note"] == "not met up to %s holdings, the most with at most 2 in every stratum" % sys.argv[2], r
@@ -224,7 +224,7 @@ expect 2 "holdcount enough: --strata $need" -- enough "$T/u.csv" --strata "$T/ma
 expect 2 "holdcount curve: --strata $need" -- curve "$T/u.csv" --strata "$T/map.csv" --per-stratum-max 2 --proportional --quiet
 expect 2 "holdcount curve: --per-stratum-max and --proportional need --strata FILE" -- curve "$T/u.csv" --per-stratum-max 2 --quiet
 expect 2 "holdcount enough: --per-stratum-max and --proportional need --strata FILE" -- enough "$T/u.csv" --proportional --quiet
-expect 2 "holdcount enough: --strata applies to the sampled rules (band, shortfall), and none is chosen" -- \
+expect 2 "holdcount enough: --strata applies to the sampled rules (band, lag-share, alexeev-tapon-sampled), and none is chosen" -- \
 	enough "$T/u.csv" --rules exact --strata "$T/map.csv" --proportional
 expect 2 "holdcount curve: --strata draws from return series, not from a covariance matrix" -- \
 	curve "$T/cov.csv" --covariance --periods-per-year 12 --strata "$T/map.csv" --proportional

@@ -9,11 +9,13 @@
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
+#include <stdio.h>
 #include <string.h>
 #include <cmocka.h>
 
 #include <gsl/gsl_errno.h>
 
+#include "holdcount/bootstrap.h"
 #include "holdcount/curverun.h"
 #include "holdcount/describe.h"
 #include "holdcount/enough.h"
@@ -119,9 +121,9 @@ static void test_analysis_enough_is_its_modules(void **state)
 	{
 		double a[4] = { 0.0412, 0.0097, 0.0097, 0.0385 };
 		eo.paths = 50;
-		eo.rules.selected = RULES_FLAG(RULES_SHORTFALL);
+		eo.rules.selected = RULES_FLAG(RULES_LAG_SHARE);
 		assert_int_equal(hc_enough_run(&e, fixture_matrix(a, 2), &eo, &err), HC_EUSAGE);
-		assert_non_null(strstr(err.message, "shortfall"));
+		assert_non_null(strstr(err.message, "lag-share"));
 	}
 	hc_universe_free(u);
 }
@@ -184,6 +186,98 @@ static void made_failed(void *ctx)
 	assert_null(w->e);
 	assert_null(w->c);
 	assert_null(w->d);
+}
+
+/*
+ * hc_enough_run's interval, clustering check and recommendation are their
+ * modules called one by one: the default interval is
+ * hc_rules_bootstrap_exact_t on hc_bootstrap_run's replicates with the
+ * data-driven block length, the clustering fields hc_bootstrap_clustering's,
+ * and the policy count near-floor's upper end (or its estimate with
+ * HC_ENOUGH_POLICY_ESTIMATE, or the rule asked for), with the sentence
+ * naming that count.
+ */
+static void test_analysis_enough_interval_and_policy(void **state)
+{
+	struct universe *u = universe();
+	const struct hc_source *src = fixture_series(u);
+	struct hc_enough_options eo;
+	struct hc_enough *e = NULL;
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_result *br = NULL;
+	struct bootstrap_options bo;
+	struct rule_result want[RULES_COUNT];
+	struct rules_input in;
+	struct moments mo;
+	struct hc_error err;
+	size_t n, k, lags = 0, upper;
+	double q, p;
+	char sentence[40];
+	int found = 0;
+
+	(void)state;
+	hc_enough_options_init(&eo);
+	eo.rules.selected = RULES_EXACT_MASK;
+	eo.bootstrap = 60;
+	eo.threads = 1;
+	assert_int_equal(hc_enough_run(&e, src, &eo, &err), HC_OK);
+	/* one by one */
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	memset(&in, 0, sizeof in);
+	in.vbar = mo.average_variance;
+	in.cbar = mo.average_covariance;
+	in.m = mo.m;
+	in.periods_per_year = u->periods_per_year;
+	assert_int_equal(hc_rules_evaluate(&eo.rules, &in, want, &n, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, u, &err), HC_OK);
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = 60;
+	bo.kind = BOOTSTRAP_STATIONARY;
+	bo.seed = eo.seed;
+	bo.threads = 1;
+	assert_int_equal(hc_bootstrap_auto_block_length(b, &bo.block_length, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_run(&br, b, &bo, &err), HC_OK);
+	assert_int_equal(hc_rules_bootstrap_exact_t(&eo.rules, b, &bo, bo.block_length, br->vbar, br->cbar,
+						    br->replicates, mo.average_variance, mo.average_covariance,
+						    u->periods_per_year, want, n, &err), HC_OK);
+	assert_int_equal(e->nrules, n);
+	assert_int_equal(e->block_length, bo.block_length);
+	assert_true(e->auto_block && e->interval == HC_ENOUGH_INTERVAL_STUDENTIZED);
+	for (k = 0; k < n; k++) {
+		assert_int_equal(e->rules[k].count, want[k].count);
+		assert_true(e->rules[k].count_p05 == want[k].count_p05 ||
+			    (isnan(e->rules[k].count_p05) && isnan(want[k].count_p05)));
+		assert_true(e->rules[k].count_p95 == want[k].count_p95 ||
+			    (isnan(e->rules[k].count_p95) && isnan(want[k].count_p95)));
+	}
+	assert_int_equal(e->clustering_lags, lags);
+	assert_true(e->clustering_q == q && e->clustering_p == p);
+	/* the recommendation: near-floor (rules[0]) at its upper end */
+	assert_int_equal(e->policy_rule, RULES_NEAR_FLOOR);
+	assert_false(isnan(want[0].count_p95));
+	upper = (size_t)want[0].count_p95 > want[0].count ? (size_t)want[0].count_p95 : want[0].count;
+	assert_int_equal(e->policy_count, upper);
+	assert_true(e->policy_at_upper);
+	snprintf(sentence, sizeof sentence, "shall hold at least %zu securities", upper);
+	for (k = 0; k < e->report->nfields; k++)
+		if (strcmp(e->report->fields[k].key, "policy_sentence") == 0)
+			found = strstr(e->report->fields[k].value.text, sentence) != NULL;
+	assert_true(found);
+	hc_enough_free(e);
+	/* at the estimate, and another rule */
+	eo.policy_at = HC_ENOUGH_POLICY_ESTIMATE;
+	eo.policy = RULES_TRACKING_ERROR;
+	assert_int_equal(hc_enough_run(&e, src, &eo, &err), HC_OK);
+	assert_int_equal(e->policy_rule, RULES_TRACKING_ERROR);
+	for (k = 0; k < n; k++)
+		if (want[k].rule == RULES_TRACKING_ERROR)
+			assert_int_equal(e->policy_count, want[k].count);
+	assert_false(e->policy_at_upper);
+	hc_enough_free(e);
+	hc_bootstrap_result_free(br);
+	hc_bootstrap_base_free(b);
+	hc_universe_free(u);
 }
 
 static void test_analysis_allocation_failure(void **state)
@@ -301,6 +395,7 @@ int main(int argc, char **argv)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_analysis_curve_is_its_modules),
 		cmocka_unit_test(test_analysis_enough_is_its_modules),
+		cmocka_unit_test(test_analysis_enough_interval_and_policy),
 		cmocka_unit_test(test_analysis_allocation_failure),
 		cmocka_unit_test(test_analysis_report_pipeline),
 	};

@@ -20,7 +20,7 @@
  *     covered; Efron & Tibshirani (1993), An Introduction to the Bootstrap,
  *     on percentile intervals (from memory);
  *   - the sampler for the universe return at N = M (every path then holds
- *     every security), and hc_rules_band / hc_rules_shortfall rebuilt step by step
+ *     every security), and hc_rules_band / hc_rules_lag_share rebuilt step by step
  *     for the sampled rules' interval.
  */
 #include <setjmp.h>
@@ -445,6 +445,166 @@ static void test_bootstrap_interval_covers_true_count(void **state)
 }
 
 /*
+ * Politis & White (2004), Econometric Reviews 23(1), corrected by Patton,
+ * Politis & White (2009), Econometric Reviews 28(4): the optimal expected
+ * block length of the stationary bootstrap of a mean is (G/g)^(2/3) n^(1/3)
+ * with G = sum |k| R(k) and g = sum R(k).  For an AR(1) series with
+ * coefficient phi these are textbook sums: G/g = 2 phi / (1 - phi^2)
+ * (worked by hand from R(k) = s^2 phi^|k| / (1 - phi^2)).  The estimate,
+ * averaged over 20 series of 2000, must lie within 20% of it; independent
+ * data must give blocks of about 1.
+ */
+static void test_bootstrap_politis_white_block_length(void **state)
+{
+	enum { N = 2000, REPS = 20 };
+	double *x = malloc(N * sizeof *x), phi = 0.6, want, mean = 0, iid = 0;
+	gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+	size_t r, k;
+
+	(void)state;
+	assert_non_null(x);
+	gsl_rng_set(rng, 2004);
+	want = pow(2 * phi / (1 - phi * phi), 2.0 / 3.0) * cbrt((double)N);
+	for (r = 0; r < REPS; r++) {
+		x[0] = gsl_ran_gaussian(rng, 1.0 / sqrt(1 - phi * phi));
+		for (k = 1; k < N; k++)
+			x[k] = phi * x[k - 1] + gsl_ran_gaussian(rng, 1.0);
+		mean += hc_bootstrap_politis_white(x, N) / REPS;
+		for (k = 0; k < N; k++)
+			x[k] = gsl_ran_gaussian(rng, 1.0);
+		iid += hc_bootstrap_politis_white(x, N) / REPS;
+	}
+	print_message("AR(1) 0.6: block length %.2f, theory %.2f; independent: %.2f\n", mean, want, iid);
+	assert_true(fabs(mean / want - 1) < 0.20);
+	assert_true(iid < 2.0);
+	gsl_rng_free(rng);
+	free(x);
+}
+
+/* The delete-a-block jackknife's averages against the textbook covariance
+ * of the data with the block's periods removed (direct_moments). */
+static void test_bootstrap_jackknife_matches_direct(void **state)
+{
+	static const size_t shapes[][2] = { { 7, 40 }, { 50, 24 } };   /* direct route, Gram route */
+	size_t s;
+
+	(void)state;
+	for (s = 0; s < 2; s++) {
+		size_t m = shapes[s][0], t = shapes[s][1], l = 5, n, k, j;
+		double *x = malloc(m * t * sizeof *x), *jv, *jc;
+		size_t *idx = malloc(t * sizeof *idx);
+		struct universe u;
+		struct bootstrap_base *b = NULL;
+		struct hc_error err;
+
+		high_entropy_universe(m, t, 77 + s, x);
+		u = make_universe(m, t, x);
+		assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_jackknife(b, l, &jv, &jc, &n, &err), HC_OK);
+		assert_int_equal(n, t / l);
+		for (k = 0; k < n; k++) {
+			size_t kept = 0;
+			double v, c;
+
+			for (j = 0; j < t; j++)
+				if (j < k * l || j >= (k + 1) * l)
+					idx[kept++] = j;
+			{
+				/* direct_moments reads stride t == count; copy the kept periods */
+				double *y = malloc(m * kept * sizeof *y);
+				size_t i2, *id2 = malloc(kept * sizeof *id2);
+
+				for (i2 = 0; i2 < m; i2++)
+					for (j = 0; j < kept; j++)
+						y[i2 * kept + j] = x[i2 * t + idx[j]];
+				for (j = 0; j < kept; j++)
+					id2[j] = j;
+				direct_moments(y, m, kept, id2, &v, &c);
+				free(y);
+				free(id2);
+			}
+			assert_close(jv[k], v, 1e-10 * fabs(v));
+			assert_close(jc[k], c, 1e-9 * fabs(v));
+		}
+		hc_free(jv);
+		hc_free(jc);
+		assert_int_equal(hc_bootstrap_jackknife(b, t, &jv, &jc, &n, &err), HC_EUSAGE);
+		hc_bootstrap_base_free(b);
+		free(idx);
+		free(x);
+	}
+}
+
+/* The default interval (studentized on the log count, stationary bootstrap
+ * with the Politis & White block length) on i.i.d. one-factor data: 200
+ * trials, binomial band for 0.90 at about three sd (166..194), as the
+ * percentile test above. */
+static void test_bootstrap_studentized_interval_coverage(void **state)
+{
+	enum { M = 30, T = 120, TRIALS = 200, B = 199 };
+	double beta[M], sd_e[M], *x = malloc(M * T * sizeof *x);
+	double sd_f = 0.047, vbar_true = 0, sum_b = 0, sum_b2 = 0, cbar_true;
+	gsl_rng *rng = gsl_rng_alloc(gsl_rng_mt19937);
+	struct rules_config cfg;
+	struct bootstrap_options opt;
+	struct hc_error err;
+	size_t true_count, i, trial, covered = 0;
+
+	(void)state;
+	gsl_rng_set(rng, 4242);
+	for (i = 0; i < M; i++) {
+		beta[i] = 0.55 + 0.9 * gsl_rng_uniform(rng);
+		sd_e[i] = 0.05 + 0.08 * gsl_rng_uniform(rng);
+		vbar_true += beta[i] * beta[i] * sd_f * sd_f + sd_e[i] * sd_e[i];
+		sum_b += beta[i];
+		sum_b2 += beta[i] * beta[i];
+	}
+	vbar_true /= M;
+	cbar_true = sd_f * sd_f * (sum_b * sum_b - sum_b2) / ((double)M * (M - 1));
+	hc_rules_config_init(&cfg);
+	cfg.near_floor_x = 0.15;
+	assert_int_equal(hc_rules_exact_count(&cfg, RULES_NEAR_FLOOR, vbar_true, cbar_true, M, 12, &true_count), 1);
+	hc_bootstrap_options_init(&opt);
+	opt.replicates = B;
+	opt.kind = BOOTSTRAP_STATIONARY;
+	opt.threads = 1;
+	for (trial = 0; trial < TRIALS; trial++) {
+		struct universe u;
+		struct bootstrap_base *b = NULL;
+		struct bootstrap_result *r = NULL;
+		struct rule_result res;
+		double w[T], vhat, chat;
+		size_t k;
+
+		one_factor(rng, M, T, beta, sd_f, sd_e, 0.0081, x);
+		u = make_universe(M, T, x);
+		opt.seed = 5000 + trial;
+		assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_auto_block_length(b, &opt.block_length, &err), HC_OK);
+		assert_int_equal(hc_bootstrap_run(&r, b, &opt, &err), HC_OK);
+		for (k = 0; k < T; k++)
+			w[k] = 1;
+		hc_bootstrap_moments(b, w, &vhat, &chat);
+		assert_int_equal(hc_rules_exact(&cfg, RULES_NEAR_FLOOR, vhat, chat, M, 12, &res, &err), HC_OK);
+		assert_int_equal(hc_rules_bootstrap_exact_t(&cfg, b, &opt, opt.block_length, r->vbar, r->cbar, B,
+							     vhat, chat, 12, &res, 1, &err), HC_OK);
+		assert_true(res.bootstrapped && !isnan(res.count_p05));
+		/* the estimate lies inside its own interval, or the note says why */
+		assert_true(((double)res.count >= res.count_p05 &&
+			     (isnan(res.count_p95) || (double)res.count <= res.count_p95)) || res.note[0]);
+		if ((double)true_count >= res.count_p05 &&
+		    (isnan(res.count_p95) || (double)true_count <= res.count_p95))
+			covered++;
+		hc_bootstrap_result_free(r);
+		hc_bootstrap_base_free(b);
+	}
+	print_message("studentized: near-floor count %zu covered in %zu of %d trials\n", true_count, covered, TRIALS);
+	assert_in_range(covered, 166, 194);
+	gsl_rng_free(rng);
+	free(x);
+}
+
+/*
  * A serially dependent model: an AR(1) market factor f_t = phi f_{t-1} + u_t
  * (u Gaussian with sd sd_u, f_0 drawn from the stationary law), returns
  * r_ti = mean + beta_i f_t + e_ti with e Gaussian with sd sd_e[i]; the true
@@ -657,13 +817,13 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 		assert_int_equal(hc_rules_band(&cfg, sr, cbar, 12, &rr, &err), HC_OK);
 		band[rep] = rr.met ? rr.count : 0;
 		assert_int_equal(hc_rules_universe_return(ru, 12, &uret, &err), HC_OK);
-		assert_int_equal(hc_rules_shortfall(&cfg, sr, uret, &rr, &err), HC_OK);
+		assert_int_equal(hc_rules_lag_share(&cfg, sr, uret, &rr, &err), HC_OK);
 		shortfall[rep] = rr.met ? rr.count : 0;
 		hc_sampler_result_free(sr);
 		hc_universe_free(ru);
 	}
 	res[0].rule = RULES_BAND;
-	res[1].rule = RULES_SHORTFALL;
+	res[1].rule = RULES_LAG_SHARE;
 	res[0].defined = res[1].defined = 1;
 	res[0].bootstrapped = res[1].bootstrapped = 0;
 	memcpy(res2, res, sizeof res);
@@ -696,6 +856,74 @@ static void test_bootstrap_sampled_rules_interval(void **state)
 	fixture_free(u);
 }
 
+/* The exact Alexeev & Tapon rule's interval under --bootstrap-sampled:
+ * each replicate's count is the gamma rule (checked against enumeration in
+ * test_rules.c) on the exact spread of the resampled universe, rebuilt here
+ * step by step (its averages against the explicit resample in
+ * test_bootstrap_agrees_with_moments_module); the interval is the order
+ * statistics of those counts (numpy's inverted_cdf, as above). */
+static void test_bootstrap_exact_alexeev_tapon_interval(void **state)
+{
+	enum { M = 14, T = 60, B = 5 };
+	struct universe *u = fixture_random_universe(M, T, 778);
+	struct bootstrap_base *b = NULL;
+	struct bootstrap_options bo;
+	struct sampler_options so;
+	struct rules_config cfg;
+	struct rule_result res[1], ref;
+	struct hc_error err;
+	size_t idx[T], at[B], rep, met = 0;
+
+	(void)state;
+	assert_non_null(u);
+	memset(res, 0, sizeof res);
+	hc_rules_config_init(&cfg);
+	cfg.selected = RULES_FLAG(RULES_ALEXEEV_TAPON);
+	cfg.at_x = 0.8;
+	cfg.at_q = 0.7;
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = B;
+	bo.seed = 8765;
+	hc_sampler_options_init(&so);
+	so.paths = 10;
+	so.periods_per_year = 12;
+	so.threads = 1;
+	assert_int_equal(hc_bootstrap_base_alloc(&b, u, &err), HC_OK);
+	for (rep = 0; rep < B; rep++) {
+		struct universe *ru = NULL;
+		struct moments mo;
+		struct rule_result rr;
+
+		assert_int_equal(hc_bootstrap_indices(bo.kind, T, bo.block_length ? bo.block_length
+						      : hc_bootstrap_default_block_length(T), bo.seed, rep, idx, &err), HC_OK);
+		assert_int_equal(hc_universe_resample(&ru, u, idx, T, &err), HC_OK);
+		assert_int_equal(hc_moments_from_universe(&mo, ru, &err), HC_OK);
+		assert_true(mo.has_spread);
+		assert_int_equal(hc_rules_alexeev_tapon(&cfg, &mo, &rr, &err), HC_OK);
+		at[rep] = rr.met ? rr.count : 0;
+		met += rr.met;
+		hc_universe_free(ru);
+	}
+	assert_true(met >= 3);
+	res[0].rule = RULES_ALEXEEV_TAPON;
+	res[0].defined = 1;
+	assert_int_equal(hc_rules_bootstrap_sampled(&cfg, u, b, &bo, &so, res, 1, &err), HC_OK);
+	memset(&ref, 0, sizeof ref);
+	ref.rule = RULES_ALEXEEV_TAPON;
+	hc_rules_set_interval(&ref, at, B);
+	assert_true(res[0].bootstrapped);
+	assert_int_equal(res[0].replicates, B);
+	assert_int_equal(res[0].replicates_met, met);
+	assert_true(res[0].count_p05 == ref.count_p05 || (isnan(res[0].count_p05) && isnan(ref.count_p05)));
+	assert_true(res[0].count_p50 == ref.count_p50 || (isnan(res[0].count_p50) && isnan(ref.count_p50)));
+	assert_true(res[0].count_p95 == ref.count_p95 || (isnan(res[0].count_p95) && isnan(ref.count_p95)));
+	/* sorted, not met last: the smallest count is the 5% end */
+	assert_close(res[0].count_p05, (double)at[0], 0);
+	print_message("alexeev-tapon replicate counts %zu %zu %zu %zu %zu\n", at[0], at[1], at[2], at[3], at[4]);
+	hc_bootstrap_base_free(b);
+	fixture_free(u);
+}
+
 /* The universe return of the shortfall rule is the sampler's portfolio
  * return at N = M (every path then holds the whole universe): two
  * implementations of prod(1 + R_t)^(P/T) - 1 that must agree. */
@@ -723,6 +951,73 @@ static void test_bootstrap_universe_return_matches_sampler(void **state)
 	fixture_free(u);
 }
 
+/*
+ * The volatility clustering check (McLeod & Li 1983; Ljung & Box 1978): the
+ * lags are clipped to T/4 and at least 1; fewer than 8 periods, or squared
+ * portfolio returns that never vary, give NaN; and a history whose squared
+ * equal-weight returns alternate low, high (|row sum| 1, 3, 1, 3, ...) has
+ * lag autocorrelations of exactly (-1)^k (T-k)/T, so Q is T(T+2)
+ * sum_k (T-k)/T^2 by hand, and its p-value the chi-square(2) tail exp(-Q/2)
+ * (closed form for two degrees of freedom).  The numpy recomputation on a
+ * realistic history is in tests/cli_enough.sh.
+ */
+static void test_bootstrap_clustering_mcleod_li(void **state)
+{
+	enum { M = 2, T = 8 };
+	double x[M * T], q, p;
+	struct universe u;
+	struct bootstrap_base *b = NULL;
+	struct hc_error err;
+	size_t k, lags;
+
+	(void)state;
+	/* Row sums alternate +-1 and +-3 around a zero mean: both securities
+	 * are 0.5, 1.5, -0.5, -1.5, ... so that every column has mean zero
+	 * and the centring changes nothing. */
+	for (k = 0; k < T; k++) {
+		double a = (k % 2 ? 1.5 : 0.5) * ((k / 2) % 2 ? -1 : 1);
+
+		x[0 * T + k] = a;
+		x[1 * T + k] = a;
+	}
+	u = make_universe(M, T, x);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	lags = 0;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_int_equal(lags, T / 4);        /* 12 clipped to T/4 = 2 */
+	{
+		double want = 0;
+
+		for (k = 1; k <= lags; k++)
+			want += (double)(T - k) / ((double)T * T);
+		want *= (double)T * (T + 2);
+		assert_close(q, want, 1e-12 * want);
+		assert_close(p, exp(-want / 2), 1e-12);
+	}
+	lags = 1;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_int_equal(lags, 1);
+	assert_close(q, (double)T * (T + 2) * (T - 1) / ((double)T * T), 1e-12);
+	hc_bootstrap_base_free(b);
+	/* constant squares: NaN */
+	for (k = 0; k < T; k++)
+		x[k] = x[T + k] = (k / 2) % 2 ? -1.25 : 1.25;
+	u = make_universe(M, T, x);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	lags = 0;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_true(isnan(q) && isnan(p));
+	hc_bootstrap_base_free(b);
+	/* fewer than 8 periods: NaN */
+	u = make_universe(M, 6, x);
+	assert_int_equal(hc_bootstrap_base_alloc(&b, &u, &err), HC_OK);
+	lags = 0;
+	hc_bootstrap_clustering(b, &lags, &q, &p);
+	assert_int_equal(lags, 1);
+	assert_true(isnan(q) && isnan(p));
+	hc_bootstrap_base_free(b);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -736,10 +1031,15 @@ int main(void)
 		cmocka_unit_test(test_bootstrap_progress_can_stop),
 		cmocka_unit_test(test_bootstrap_allocation_failures),
 		cmocka_unit_test(test_bootstrap_interval_covers_true_count),
+		cmocka_unit_test(test_bootstrap_politis_white_block_length),
+		cmocka_unit_test(test_bootstrap_jackknife_matches_direct),
+		cmocka_unit_test(test_bootstrap_studentized_interval_coverage),
 		cmocka_unit_test(test_bootstrap_coverage_dependent_data),
 		cmocka_unit_test(test_bootstrap_agrees_with_moments_module),
 		cmocka_unit_test(test_bootstrap_sampled_rules_interval),
 		cmocka_unit_test(test_bootstrap_universe_return_matches_sampler),
+		cmocka_unit_test(test_bootstrap_clustering_mcleod_li),
+		cmocka_unit_test(test_bootstrap_exact_alexeev_tapon_interval),
 	};
 
 	gsl_set_error_handler_off();

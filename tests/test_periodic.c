@@ -117,7 +117,8 @@ static void test_periodic_rules_match_complete_route(void **state)
 	struct moments mo;
 	struct rules_config cfg;
 	struct hc_error err;
-	int rules[] = { RULES_NEAR_FLOOR, RULES_MARGINAL, RULES_COST_BENEFIT, RULES_TRACKING_ERROR };
+	int rules[] = { RULES_NEAR_FLOOR, RULES_MARGINAL, RULES_NEXT_HOLDING, RULES_TRACKING_ERROR,
+			RULES_STATMAN_BORROWING, RULES_STATMAN_LENDING };
 	size_t j, a, b;
 
 	(void)state;
@@ -125,7 +126,7 @@ static void test_periodic_rules_match_complete_route(void **state)
 	cfg.te_budget = 0.03;
 	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
 	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
-	for (j = 0; j < 4; j++) {
+	for (j = 0; j < sizeof rules / sizeof rules[0]; j++) {
 		int g1 = hc_rules_exact_count(&cfg, rules[j], mo.average_variance, mo.average_covariance, mo.m, 12, &a);
 		int g2 = hc_periodic_rule_count(&cfg, rules[j], &p->curve, 12, &b);
 

@@ -126,7 +126,7 @@ static void test_rolling_whole_window_matches_moments(void **state)
 	assert_true(r->windows[0].average_covariance == mo.average_covariance);
 	assert_true(r->windows[0].average_correlation == mo.average_correlation);
 	assert_int_equal(r->windows[0].securities, 37);
-	assert_int_equal(r->windows[0].nrules, 4);
+	assert_int_equal(r->windows[0].nrules, 6);
 	for (j = 0; j < r->windows[0].nrules; j++) {
 		const struct rule_result *w = &r->windows[0].rules[j];
 		assert_int_equal(hc_rules_exact(&o.rules, w->rule, mo.average_variance,
@@ -336,7 +336,8 @@ static void test_rolling_report_contract(void **state)
 	static const char *const want[] = {
 		"window_start", "window_end", "securities", "average_variance", "average_covariance",
 		"average_correlation", "floor_sd", "count_near_floor", "count_marginal",
-		"count_cost_benefit", "count_tracking_error", "dropped", "note"
+		"count_next_holding", "count_tracking_error", "count_statman_borrowing",
+		"count_statman_lending", "dropped", "note"
 	};
 	struct universe *u = fixture_random_universe(12, 40, 3);
 	struct rolling_options o;

@@ -119,6 +119,50 @@ int hc_bootstrap_run(struct bootstrap_result **out, const struct bootstrap_base 
 		  const struct bootstrap_options *opt, struct hc_error *err);
 void hc_bootstrap_result_free(struct bootstrap_result *r);
 
+/*
+ * Data-driven expected block length for the stationary bootstrap: Politis &
+ * White (2004), Econometric Reviews 23(1), with the correction of Patton,
+ * Politis & White (2009), Econometric Reviews 28(4).
+ * hc_bootstrap_politis_white gives it (a real >= 1) for one series x[0..n-1];
+ * hc_bootstrap_auto_block_length takes the larger of the lengths of the two
+ * per-period series the averages are means of (the squared equal-weight
+ * row sum and the row sum of squares), rounded, within 1..T.
+ */
+double hc_bootstrap_politis_white(const double *x, size_t n);
+int hc_bootstrap_auto_block_length(const struct bootstrap_base *b, size_t *length,
+				   struct hc_error *err);
+
+/*
+ * Delete-a-block jackknife (Kuensch, 1989): the averages (per period) with
+ * each of the floor(T/L) non-overlapping blocks of L periods left out in
+ * turn, into *vbar and *cbar (allocated, *n of each; the caller frees with
+ * hc_free).  O(T L^2 + T^2) with the Gram matrix, O(M T) otherwise.  For the
+ * acceleration of BCa intervals (rules.h).  HC_EUSAGE with fewer than two
+ * blocks.
+ */
+int hc_bootstrap_jackknife(const struct bootstrap_base *b, size_t block_length, double **vbar,
+			   double **cbar, size_t *n, struct hc_error *err);
+
+/* The per-period series the averages are (nearly) means of, from the
+ * centred data: q[t] = sum_i x_ti^2 and s2[t] = (sum_i x_ti)^2, so that
+ * V = sum_t q_t/(T-1) and V + C = sum_t s2_t/(T-1).  q and s2 hold T. */
+void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, double *s2);
+
+/*
+ * Volatility clustering in b's history: the McLeod & Li (1983) test,
+ * "Diagnostic Checking ARMA Time Series Models Using Squared-Residual
+ * Autocorrelations", Journal of Time Series Analysis 4(4) -- the Ljung &
+ * Box (1978, Biometrika 65(2)) statistic Q = T(T+2) sum_{k=1..h} r_k^2/(T-k)
+ * on the squared centred equal-weight portfolio returns, r_k their lag-k
+ * autocorrelation -- with h = *lags (0: HC_BOOTSTRAP_CLUSTERING_LAGS, at
+ * most T/4, at least 1; *lags gets the h used), *q the statistic and *p its
+ * chi-square(h) upper tail.  NaN for both when T < 8 or the squares are
+ * constant.  A small p says volatility clusters, where the measured
+ * coverage of the intervals falls short (docs/enough.md).
+ */
+#define HC_BOOTSTRAP_CLUSTERING_LAGS 12
+void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p);
+
 #ifdef __cplusplus
 }
 #endif

@@ -32,6 +32,11 @@ enum moments_route {
  * buffer holds MOMENTS_BLOCK_ROWS x M doubles, 10 MB for M = 5000). */
 #define MOMENTS_BLOCK_ROWS 256
 
+/* An average sd above this a year (300%) is taken as a unit mistake, such as
+ * variances given in percent squared (common practice: even single stocks
+ * rarely exceed 100% a year); enough and formula say so in a note. */
+#define HC_MOMENTS_IMPLAUSIBLE_SD 3.0
+
 struct moments {
 	size_t m;                  /* securities; 0 = unbounded universe (summary only) */
 	size_t t;                  /* periods behind the estimate; 0 when unknown */

@@ -8,12 +8,16 @@
  * replicate can evaluate them in O(log M) or O(M) without allocating.
  * Sampled rules read a sampler_result over consecutive sizes.
  *
- * Sources: cost-benefit is after Statman (1987), "How Many Stocks Make a
- * Diversified Portfolio?", Journal of Financial and Quantitative Analysis
- * 22(3); shortfall after Domian, Louton & Racine (2007), "Diversification
- * in Portfolios of Individual Stocks: 100 Stocks Are Not Enough", The
- * Financial Review 42(4).  The other rules and every default are common
- * practice with no single source (docs/enough.md).
+ * Sources: statman-borrowing and statman-lending are Statman (1987), "How
+ * Many Stocks Make a Diversified Portfolio?", Journal of Financial and
+ * Quantitative Analysis 22(3), as published (a level compared with the
+ * index fund's cost disadvantage); alexeev-tapon and alexeev-tapon-sampled
+ * are the quantile rule of Alexeev & Tapon (2014), "Equity Portfolio
+ * Diversification: How Many Stocks Are Enough? Evidence from Five Developed
+ * Markets", Journal of Banking & Finance 46, also used by Raju & Agarwalla
+ * (2021).  next-holding and lag-share are this tool's own rules and cite no
+ * paper.  The other rules and every default are common practice with no
+ * single source (docs/enough.md).
  *
  * Units: v-bar and c-bar are per period; every threshold in struct
  * rules_config and every value in struct rule_result is annualised (variance
@@ -32,6 +36,7 @@
 
 #include "holdcount/bootstrap.h"
 #include "holdcount/error.h"
+#include "holdcount/moments.h"
 #include "holdcount/report.h"
 #include "holdcount/sampler.h"
 #include "holdcount/universe.h"
@@ -44,17 +49,26 @@ enum rules_id {
 	RULES_NEAR_FLOOR = 0,     /* sqrt(E[s2(N)]) <= (1+x) sqrt(floor) */
 	RULES_MARGINAL = 1,       /* sqrt(E[s2(N)]) - sqrt(E[s2(N+1)]) < eps */
 	RULES_BAND = 2,           /* q-quantile of sampled sigma(n) <= (1+x) sqrt(floor), every sampled n >= N */
-	RULES_COST_BENEFIT = 3,   /* premium (s(N) - s(N+1)) / s_universe < holding cost */
+	RULES_NEXT_HOLDING = 3,   /* premium (s(N) - s(N+1)) / s_universe < holding cost (formerly cost-benefit) */
 	RULES_TRACKING_ERROR = 4, /* sqrt(E[TE2(N)]) <= budget */
-	RULES_SHORTFALL = 5,      /* share trailing the universe by more than d < p, every sampled n >= N */
-	RULES_COUNT = 6
+	RULES_LAG_SHARE = 5,      /* share lagging the universe by more than d < p, every sampled n >= N (formerly shortfall) */
+	RULES_STATMAN_BORROWING = 6, /* premium_b (s(N)/s_index - 1) <= index cost disadvantage (Statman 1987) */
+	RULES_STATMAN_LENDING = 7,   /* the same with the lending investor's premium */
+	RULES_ALEXEEV_TAPON = 8,  /* P(share of removable variance removed >= x) >= q, two-moment gamma from the exact spread */
+	RULES_ALEXEEV_TAPON_SAMPLED = 9, /* the same from sampled portfolios, every sampled n >= N */
+	RULES_COUNT = 10
 };
 
 #define RULES_FLAG(id) (1u << (id))
+/* Exact rules from the averages v-bar and c-bar alone (bootstrapped per replicate). */
 #define RULES_EXACT_MASK (RULES_FLAG(RULES_NEAR_FLOOR) | RULES_FLAG(RULES_MARGINAL) | \
-			  RULES_FLAG(RULES_COST_BENEFIT) | RULES_FLAG(RULES_TRACKING_ERROR))
-#define RULES_SAMPLED_MASK (RULES_FLAG(RULES_BAND) | RULES_FLAG(RULES_SHORTFALL))
-#define RULES_ALL_MASK (RULES_EXACT_MASK | RULES_SAMPLED_MASK)
+			  RULES_FLAG(RULES_NEXT_HOLDING) | RULES_FLAG(RULES_TRACKING_ERROR) | \
+			  RULES_FLAG(RULES_STATMAN_BORROWING) | RULES_FLAG(RULES_STATMAN_LENDING))
+/* Exact rules that need the exact spread (struct moments with has_spread). */
+#define RULES_SPREAD_MASK RULES_FLAG(RULES_ALEXEEV_TAPON)
+#define RULES_SAMPLED_MASK (RULES_FLAG(RULES_BAND) | RULES_FLAG(RULES_LAG_SHARE) | \
+			    RULES_FLAG(RULES_ALEXEEV_TAPON_SAMPLED))
+#define RULES_ALL_MASK (RULES_EXACT_MASK | RULES_SPREAD_MASK | RULES_SAMPLED_MASK)
 
 /* Defaults, named once (design.md section 5; common practice, no single
  * source, except where a paper is named in docs/enough.md). */
@@ -65,8 +79,20 @@ enum rules_id {
 #define RULES_DEFAULT_PREMIUM 0.05          /* universe portfolio's premium a year */
 #define RULES_DEFAULT_HOLDING_COST 0.0005   /* yearly cost of one more holding */
 #define RULES_DEFAULT_TE_BUDGET 0.02        /* 2% a year */
-#define RULES_DEFAULT_SHORTFALL_D 0.01      /* trails by more than 1% a year */
-#define RULES_DEFAULT_SHORTFALL_P 0.10      /* in fewer than 10% of portfolios */
+#define RULES_DEFAULT_SHORTFALL_D 0.01      /* lag-share: lags by more than 1% a year */
+#define RULES_DEFAULT_SHORTFALL_P 0.10      /* lag-share: in fewer than 10% of portfolios */
+/* Statman (1987): the index fund's cost disadvantage and the premiums of the
+ * index over the borrowing and the lending rate, a year.  These are not
+ * Statman's printed inputs (not recalled with confidence): they are chosen so
+ * that, on Elton & Gruber's averages (46.619, 7.058, unbounded), the rule
+ * gives his published 30 (borrowing) and 40 (lending) holdings (from memory
+ * of the paper's conclusion).  Set your own. */
+#define RULES_DEFAULT_INDEX_COST 0.005
+#define RULES_DEFAULT_BORROW_PREMIUM 0.055
+#define RULES_DEFAULT_LEND_PREMIUM 0.073
+/* Alexeev & Tapon (2014): 90% of the removable risk with probability 90%. */
+#define RULES_DEFAULT_AT_X 0.90
+#define RULES_DEFAULT_AT_Q 0.90
 
 /* Unbounded universes (m = 0) search counts up to this; beyond it a rule is
  * reported as not met. */
@@ -90,6 +116,12 @@ struct rules_config {
 	double te_budget;         /* annualised TE, decimal */
 	double shortfall_d;       /* a year, decimal */
 	double shortfall_p;       /* share, 0..1 */
+	double borrow_premium;    /* Statman: index premium over the borrowing rate, a year */
+	double lend_premium;      /* Statman: index premium over the lending rate, a year */
+	double index_cost;        /* Statman: the index fund's cost disadvantage, a year */
+	int statman_defaults;     /* 1 when the three are the defaults (said in the output) */
+	double at_x;              /* Alexeev & Tapon: share of the removable variance removed, 0..1 */
+	double at_q;              /* Alexeev & Tapon: probability, 0..1 */
 	int per_period;           /* 1: inputs not annualised; texts say "per period" (default 0) */
 };
 
@@ -140,7 +172,8 @@ struct rules_input {
 	size_t m;                 /* securities; 0 = unbounded */
 	double periods_per_year;  /* P > 0 */
 	const struct sampler_result *sampled; /* NULL: sampled rules not evaluated */
-	double universe_return;   /* compound annualised, for shortfall */
+	double universe_return;   /* compound annualised, for lag-share */
+	const struct moments *mo; /* the exact spread for alexeev-tapon; NULL or no spread: undefined */
 };
 
 /*
@@ -182,33 +215,52 @@ int hc_rules_band(const struct rules_config *cfg, const struct sampler_result *r
 	       double cbar, double periods_per_year, struct rule_result *res,
 	       struct hc_error *err);
 
-/* Shortfall rule from sampled annual returns (r->annual_return required)
+/* Lag-share rule (this tool's own; formerly "shortfall") from sampled annual returns (r->annual_return required)
  * against the universe's compound annualised return: settled, as above,
  * where the share trailing by more than d stays below p. */
-int hc_rules_shortfall(const struct rules_config *cfg,
+int hc_rules_lag_share(const struct rules_config *cfg,
 		    const struct sampler_result *r, double universe_return,
 		    struct rule_result *res, struct hc_error *err);
 
 /*
- * Band and shortfall (those selected in cfg) by sampling src (source.h)
- * with so: sizes 1..K, K growing as RULES_SAMPLED_FIRST_K x
- * RULES_SAMPLED_GROWTH^j up to M, until every selected sampled rule is met.
- * Each stage is a valid sample of random portfolios; the sampler builds
- * sizes by a route that depends on the set of sizes asked for, so a staged
- * run and a full-grid run may draw different portfolios and agree within
- * sampling noise only.  cbar per period (the band's floor);
+ * Band, lag-share and alexeev-tapon-sampled (those selected in cfg) by
+ * sampling src (source.h) with so: sizes 1..K, K growing as
+ * RULES_SAMPLED_FIRST_K x RULES_SAMPLED_GROWTH^j up to M, until every
+ * selected sampled rule is met.  Each stage is a valid sample of random
+ * portfolios; the sampler builds sizes by a route that depends on the set
+ * of sizes asked for, so a staged run and a full-grid run may draw
+ * different portfolios and agree within sampling noise only.  vbar and cbar
+ * per period (the band's floor, Alexeev-Tapon's removable risk);
  * so->want_returns is set as needed.  *largest (may be NULL) gets the last
- * K sampled.  res holds room for 2; *nres gets how many were filled (band
- * first).  A source that draws from a matrix (a covariance matrix, or the
- * pairwise-complete covariances of series with gaps) draws the same
- * portfolios for the same seed, so the band's count agrees unless a
- * quantile lies within rounding of the threshold; the shortfall rule needs
- * each portfolio's returns over time: HC_EUSAGE when it is selected there.
+ * K sampled.  res holds room for 3; *nres gets how many were filled (band,
+ * lag-share, alexeev-tapon-sampled).  A source that draws from a matrix (a
+ * covariance matrix, or the pairwise-complete covariances of series with
+ * gaps) draws the same portfolios for the same seed, so the band's count
+ * agrees unless a quantile lies within rounding of the threshold; the
+ * lag-share rule needs each portfolio's returns over time: HC_EUSAGE when
+ * it is selected there.
  */
 int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src,
-		     const struct sampler_options *so, double cbar,
+		     const struct sampler_options *so, double vbar, double cbar,
 		     struct rule_result *res, size_t *nres, size_t *largest,
 		     struct hc_error *err);
+
+/*
+ * Alexeev & Tapon (2014), Journal of Banking & Finance 46: the smallest N
+ * from which a random N-holding portfolio removes at least cfg->at_x of the
+ * removable variance (v-bar less the equal-weight universe's variance) with
+ * probability at least cfg->at_q.  The exact form reads the probability
+ * from a gamma distribution matched to the exact mean and variance of the
+ * portfolio variance (mo->has_spread needed; otherwise res is "undefined"
+ * with a note), scanning N = M down to the first failure; the sampled form
+ * counts sampled portfolios (settled as the other sampled rules).  value is
+ * the probability at the count, threshold is q.
+ */
+int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments *mo,
+			   struct rule_result *res, struct hc_error *err);
+int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct sampler_result *r,
+				   double vbar, double cbar, size_t m, struct rule_result *res,
+				   struct hc_error *err);
 
 /*
  * Compound annualised return of the universe's equal-weight portfolio,
@@ -237,6 +289,41 @@ int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 			  size_t nres, struct hc_error *err);
 
 /*
+ * The continuous count of an exact rule (the real N at which its quantity
+ * crosses the threshold; the count is its ceiling): +inf when not met, NaN
+ * when undefined.
+ */
+double hc_rules_exact_real(const struct rules_config *cfg, int rule, double vbar, double cbar,
+			   size_t m, double periods_per_year);
+
+/*
+ * BCa intervals (Efron, 1987, JASA 82(397)) for the exact rules among
+ * res[0..nres-1]: the continuous count's bootstrap distribution over the
+ * replicates' averages vbar[k], cbar[k] (k < nrep), bias-corrected by the
+ * estimate's (vhat, chat) position in it and accelerated by the jackknife
+ * averages jv[k], jc[k] (k < nj; hc_bootstrap_jackknife); count_p05 and
+ * count_p95 are the ceilings of the BCa endpoints for a 90% interval,
+ * count_p50 the replicates' median count.  An interval that excludes the
+ * estimate says why in the note.  Allocates nrep doubles.
+ */
+int hc_rules_bootstrap_exact_bca(const struct rules_config *cfg, const double *vbar, const double *cbar,
+				 size_t nrep, const double *jv, const double *jc, size_t nj, double vhat,
+				 double chat, size_t m, double periods_per_year, struct rule_result *res,
+				 size_t nres, struct hc_error *err);
+
+/*
+ * Studentized (bootstrap-t) intervals for the exact rules on the log of the
+ * continuous count, each replicate (regenerated from bopt's kind and seed
+ * and block_length, as hc_bootstrap_run drew it) studentized by its own
+ * delta-method standard error from the per-period series of b.  Same
+ * fields as hc_rules_bootstrap_exact_bca.
+ */
+int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct bootstrap_base *b,
+			       const struct bootstrap_options *bopt, size_t block_length, const double *vbar,
+			       const double *cbar, size_t nrep, double vhat, double chat, double periods_per_year,
+			       struct rule_result *res, size_t nres, struct hc_error *err);
+
+/*
  * Set res's interval from per replicate counts: count[k] is the count of
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
  * The one place every interval (enough, rolling, report) is computed.
@@ -244,13 +331,16 @@ int hc_rules_bootstrap_exact(const struct rules_config *cfg, const double *vbar,
 void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep);
 
 /*
- * Bootstrap interval of the sampled rules (band, shortfall) among
- * res[0..nres-1]: per replicate the periods are resampled as in bootstrap.h
- * (same kind, block length and seed as bopt), the resampled universe is
- * sampled afresh by hc_rules_sampled with sopt (its seed derived from
- * (bopt->seed, replicate), so results do not depend on threads), and the
- * replicate's own c-bar and universe return set the thresholds.  Costs up
- * to B x paths x K x T for the K sampled: use fewer paths than the main run.  b must come from u.
+ * Bootstrap interval of the sampled rules (band, lag-share,
+ * alexeev-tapon-sampled) among res[0..nres-1]: per replicate the periods are
+ * resampled as in bootstrap.h (same kind, block length and seed as bopt),
+ * the resampled universe is sampled afresh by hc_rules_sampled with sopt
+ * (its seed derived from (bopt->seed, replicate), so results do not depend
+ * on threads), and the replicate's own v-bar, c-bar and universe return set
+ * the thresholds.  When alexeev-tapon (exact) is selected, each replicate's
+ * exact spread is recomputed (hc_moments_from_universe, O(M^2 T)) and its
+ * percentile interval set too.  Costs up to B x paths x K x T for the K
+ * sampled: use fewer paths than the main run.  b must come from u.
  * Progress (bopt->progress) after each replicate.
  */
 uint64_t hc_rules_replicate_seed(uint64_t seed, size_t rep);  /* the sampler seed of replicate rep */

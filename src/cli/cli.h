@@ -452,10 +452,16 @@ struct cli_rules {
 	const char *band;
 	double premium, holding_cost;
 	double te_budget;
-	const char *shortfall;
+	const char *shortfall;     /* --lag-share (or its old spelling --shortfall) */
+	const char *statman;       /* --statman B:L premiums */
+	double index_cost;
+	const char *alexeev_tapon; /* --alexeev-tapon X:Q */
+	const char *policy;        /* --policy RULE */
+	int policy_at;             /* --policy-at: 0 upper end of the interval, 1 the estimate */
 	size_t bootstrap;
 	int bootstrap_kind;
-	size_t block_length;
+	size_t block_length;       /* 0: Politis & White's data-driven length */
+	int interval;              /* 0 studentized, 1 BCa, 2 percentile */
 	int bootstrap_sampled;
 	size_t bootstrap_paths;
 };

@@ -68,9 +68,9 @@ static const struct cli_option policy_own[] = {
 	{ "max-weight", 0, CLI_FRACTION, PO(max_weight), "W",
 	  "policy: no position above W (0.05 or 5%)", NULL, "no rule" },
 	{ "max-sector-weight", 0, CLI_FRACTION, PO(max_sector_weight), "W",
-	  "policy: no sector above W (needs --sectors)", NULL, "no rule" },
+	  "policy: no sector above W (needs --sectors)", NULL, "no limit" },
 	{ "screens", 0, CLI_STRING, PO(screens), "LIST",
-	  "policy: weight screens each fund must pass: ucits, 1940act, ric, all or none", NULL, "none" },
+	  "policy: legal weight limits (concentration tests, not exclusion lists) each fund must pass: ucits, 1940act, ric, all or none", NULL, "none" },
 	{ "basket-reading", 0, CLI_CHOICE, PO(reading), NULL,
 	  "the reading of the 1940 Act and s. 851(b)(3) 5% baskets that decides: excluded (an issuer above 5% "
 	  "is left out) or capped (counted up to 5%); the other is shown beside it", reading_words, "excluded" },

@@ -16,11 +16,15 @@
 #include "holdcount/rules.h"
 
 static const char *const kind_choices[] = { "block", "stationary", NULL };
+static const char *const policy_at_choices[] = { "upper", "estimate", NULL };
+static const char *const interval_choices[] = { "studentized", "bca", "percentile", NULL };
 
 #define RUL(f) offsetof(struct cli_rules, f)
 static const struct cli_option rules_own[] = {
 	{ "rules", 0, CLI_STRING, RUL(rules), "LIST",
-	  "rules to apply: near-floor, marginal, band, cost-benefit, tracking-error, shortfall, or all, exact, sampled",
+	  "rules to apply: near-floor, marginal, band, next-holding, tracking-error, lag-share, statman-borrowing, "
+	  "statman-lending, alexeev-tapon, alexeev-tapon-sampled, or all, exact, sampled (old names cost-benefit "
+	  "and shortfall still work)",
 	  NULL, "all (exact only from summary statistics)" },
 	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
 	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
@@ -30,23 +34,43 @@ static const struct cli_option rules_own[] = {
 	{ "band", 0, CLI_STRING, RUL(band), "Q:X",
 	  "band: the Q-quantile of sampled sd within X of the floor sd", NULL, "95%:10%" },
 	{ "premium", 0, CLI_FRACTION, RUL(premium), "R",
-	  "cost-benefit: the universe portfolio's premium a year", NULL, "5% (a placeholder: set it)" },
+	  "next-holding: the universe portfolio's premium a year", NULL, "5% (a placeholder: set it)" },
 	{ "holding-cost", 0, CLI_FRACTION, RUL(holding_cost), "C",
-	  "cost-benefit: the yearly cost of one more holding", NULL, "0.05% (a placeholder: set it)" },
+	  "next-holding: the yearly cost of one more holding", NULL, "0.05% (a placeholder: set it)" },
+	{ "statman", 0, CLI_STRING, RUL(statman), "B:L",
+	  "statman-borrowing/-lending: the index's premium a year over the borrowing rate (B) and over the lending rate (L)",
+	  NULL, "5.5%:7.3% (reproduce Statman's 30/40; set yours)" },
+	{ "index-cost", 0, CLI_FRACTION, RUL(index_cost), "C",
+	  "statman-borrowing/-lending: the index fund's cost disadvantage a year", NULL, "0.5% (set yours)" },
+	{ "alexeev-tapon", 0, CLI_STRING, RUL(alexeev_tapon), "X:Q",
+	  "alexeev-tapon: a random portfolio removes at least X of the removable variance with probability Q",
+	  NULL, "90%:90%" },
 	{ "te-budget", 0, CLI_FRACTION, RUL(te_budget), "B",
 	  "tracking-error: expected tracking error against the universe within B a year", NULL, "2%" },
-	{ "shortfall", 0, CLI_STRING, RUL(shortfall), "D:P",
-	  "shortfall: fewer than P of sampled portfolios trail the universe's return by more than D a year",
+	{ "lag-share", 0, CLI_STRING, RUL(shortfall), "D:P",
+	  "lag-share: fewer than P of sampled portfolios lag the universe's return by more than D a year",
 	  NULL, "1%:10%" },
+	{ "shortfall", 0, CLI_STRING, RUL(shortfall), "D:P",
+	  "old spelling of --lag-share, kept so that scripts keep working", NULL, NULL },
+	{ "policy", 0, CLI_STRING, RUL(policy), "RULE",
+	  "the rule whose count becomes the recommended minimum holdings", NULL, "near-floor" },
+	{ "policy-at", 0, CLI_CHOICE, RUL(policy_at), NULL,
+	  "take the recommended count at the upper end of the 90% interval or at the estimate",
+	  policy_at_choices, "upper" },
 	{ "bootstrap", 0, CLI_COUNT, RUL(bootstrap), "B",
 	  "bootstrap replicates for the count's interval (0: no interval)", NULL, "1000" },
 	{ "bootstrap-kind", 0, CLI_CHOICE, RUL(bootstrap_kind), NULL,
 	  "resample periods in moving blocks (Kuensch 1989) or stationary blocks (Politis & Romano 1994)",
-	  kind_choices, "block" },
+	  kind_choices, "stationary" },
 	{ "block-length", 0, CLI_COUNT, RUL(block_length), "L",
-	  "block length (mean length for stationary) in periods; 0 means the default", NULL, "round(T^(1/3))" },
+	  "block length (mean length for stationary) in periods; 0 means the default", NULL,
+	  "data-driven, Politis & White 2004 with Patton, Politis & White 2009" },
+	{ "interval", 0, CLI_CHOICE, RUL(interval), NULL,
+	  "exact rules' interval: studentized on the log count (bootstrap-t, Hall 1988), bias-corrected and "
+	  "accelerated (Efron 1987) or plain percentiles", interval_choices, "studentized" },
 	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
-	  "also bootstrap the sampled rules (band, shortfall): re-samples portfolios per replicate, costly",
+	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled) and alexeev-tapon: re-samples "
+	  "portfolios and recomputes the exact spread per replicate, costly",
 	  NULL, NULL },
 	{ "bootstrap-paths", 0, CLI_COUNT, RUL(bootstrap_paths), "K",
 	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
@@ -59,6 +83,7 @@ void cli_rules_init(struct cli_rules *r)
 {
 	memset(r, 0, sizeof *r);
 	r->bootstrap = BOOTSTRAP_DEFAULT_REPLICATES;
+	r->bootstrap_kind = BOOTSTRAP_STATIONARY;
 	r->bootstrap_paths = ENOUGH_DEFAULT_BOOTSTRAP_PATHS;
 }
 
@@ -103,7 +128,8 @@ static int parse_pair(const char *cmd, const char *opt, const char *s, double *a
 
 	if (!colon || parse_share(s, (size_t)(colon - s), a) || parse_share(colon + 1, strlen(colon + 1), b))
 		return cli_usage_error(cmd, "bad --%s '%s': expected two shares as A:B, e.g. %s", opt, s,
-				       strcmp(opt, "band") == 0 ? "95%:10%" : "1%:10%");
+				       strcmp(opt, "band") == 0 ? "95%:10%" : strcmp(opt, "statman") == 0 ? "5.5%:7.3%"
+				       : strcmp(opt, "alexeev-tapon") == 0 ? "90%:90%" : "1%:10%");
 	return HC_OK;
 }
 
@@ -117,14 +143,14 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 	if (!have_data)
 		cfg->selected = RULES_EXACT_MASK;
 	else if (covariance)
-		cfg->selected = RULES_EXACT_MASK | RULES_FLAG(RULES_BAND);
+		cfg->selected = RULES_ALL_MASK & ~RULES_FLAG(RULES_LAG_SHARE);
 	if (o->rules && hc_rules_parse_list(o->rules, &cfg->selected, &err))
 		return cli_fail(cmd, &err);
-	if (!have_data && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "the band and shortfall rules need a universe file, not summary statistics");
+	if (!have_data && (cfg->selected & (RULES_SAMPLED_MASK | RULES_SPREAD_MASK)))
+		return cli_usage_error(cmd, "the band, lag-share and alexeev-tapon rules need a universe file, not summary statistics");
 	/* Everything but time-based figures works from a matrix (design.md section 8). */
-	if (covariance && (cfg->selected & RULES_FLAG(RULES_SHORTFALL)))
-		return cli_usage_error(cmd, "the shortfall rule needs return series: it compounds each portfolio's "
+	if (covariance && (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)))
+		return cli_usage_error(cmd, "the lag-share rule needs return series: it compounds each portfolio's "
 				       "returns over the periods, and a covariance matrix has none (--rules exact,band "
 				       "runs every other rule)");
 	if (covariance && cli_given(a, "bootstrap") && o->bootstrap > 0)
@@ -138,7 +164,15 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 				       o->marginal);
 	if (o->band && parse_pair(cmd, "band", o->band, &cfg->band_q, &cfg->band_x))
 		return HC_EUSAGE;
-	if (o->shortfall && parse_pair(cmd, "shortfall", o->shortfall, &cfg->shortfall_d, &cfg->shortfall_p))
+	if (o->shortfall && parse_pair(cmd, cli_given(a, "shortfall") ? "shortfall" : "lag-share", o->shortfall,
+				       &cfg->shortfall_d, &cfg->shortfall_p))
+		return HC_EUSAGE;
+	if (o->statman && parse_pair(cmd, "statman", o->statman, &cfg->borrow_premium, &cfg->lend_premium))
+		return HC_EUSAGE;
+	if (cli_given(a, "index-cost"))
+		cfg->index_cost = o->index_cost;
+	cfg->statman_defaults = !o->statman && !cli_given(a, "index-cost");
+	if (o->alexeev_tapon && parse_pair(cmd, "alexeev-tapon", o->alexeev_tapon, &cfg->at_x, &cfg->at_q))
 		return HC_EUSAGE;
 	if (cli_given(a, "premium"))
 		cfg->premium = o->premium;
@@ -159,15 +193,43 @@ int cli_enough_checks(const char *cmd, const struct cli_sampling *smp, const str
 		      const struct rules_config *cfg)
 {
 	if ((strat->map || strat->per_stratum_max || strat->proportional) && !(cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, shortfall), and none is chosen");
+		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, lag-share, alexeev-tapon-sampled), "
+				       "and none is chosen");
 	if (smp->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
-		return cli_usage_error(cmd, "--paths 0 leaves the band and shortfall rules nothing to read: choose --rules exact");
+		return cli_usage_error(cmd, "--paths 0 leaves the sampled rules nothing to read: choose --rules exact");
+	return HC_OK;
+}
+
+/* --policy RULE: one rule among those run, as its enum rules_id in *policy
+ * (-1 when not given: the library's default). */
+static int policy_option(const char *cmd, const struct cli_rules *o, const struct rules_config *cfg, int *policy)
+{
+	struct hc_error err;
+	unsigned one;
+	int k;
+
+	*policy = -1;
+	if (!o->policy)
+		return HC_OK;
+	hc_error_clear(&err);
+	if (hc_rules_parse_list(o->policy, &one, &err))
+		return cli_usage_error(cmd, "bad --policy '%s': expected one rule name, such as near-floor", o->policy);
+	if (one & (one - 1))
+		return cli_usage_error(cmd, "bad --policy '%s': expected one rule, not a group", o->policy);
+	if (!(cfg->selected & one))
+		return cli_usage_error(cmd, "--policy %s: that rule is not among the rules run (add it to --rules)",
+				       o->policy);
+	for (k = 0; k < RULES_COUNT; k++)
+		if (one == RULES_FLAG(k))
+			*policy = k;
 	return HC_OK;
 }
 
 int cli_enough_options(const char *cmd, const struct cli_rules *rul, const struct cli_sampling *smp,
 		       const struct cli_args *a, int have_data, int covariance, struct hc_enough_options *eo)
 {
+	int rc;
+
 	hc_enough_options_init(eo);
 	eo->paths = smp->paths;
 	eo->seed = smp->seed;
@@ -177,5 +239,9 @@ int cli_enough_options(const char *cmd, const struct cli_rules *rul, const struc
 	eo->block_length = rul->block_length;
 	eo->bootstrap_sampled = rul->bootstrap_sampled;
 	eo->bootstrap_paths = rul->bootstrap_paths;
-	return cli_rules_config(cmd, rul, a, have_data, covariance, &eo->rules);
+	eo->interval = rul->interval;
+	eo->policy_at = rul->policy_at;
+	if ((rc = cli_rules_config(cmd, rul, a, have_data, covariance, &eo->rules)))
+		return rc;
+	return policy_option(cmd, rul, &eo->rules, &eo->policy);
 }

@@ -38,8 +38,8 @@ const struct cli_command cli_command_curve = {
 	"risk by holding count: the exact curve and its spread, and random portfolios to check it",
 	"UNIVERSE",
 	"For each holding count N: the exact expected variance and its square root, the exact "
-	"standard deviation of the variance across random portfolios of N, the exact expected "
-	"tracking error against the equal-weight universe and the diversifiable share; then, from "
+	"standard deviation of the variance across random portfolios of N, the exact root-mean-square "
+	"tracking error against the equal-weight universe and the share of the expected variance above the unbounded-universe floor; then, from "
 	"K random equal-weight portfolios per count, the mean variance with its Monte Carlo standard "
 	"error, the mean standard deviation, its 5%, 50% and 95% quantiles, and the z-score of the "
 	"sampled mean against the exact one. With --strata, the same for portfolios spread across "

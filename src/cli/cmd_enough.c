@@ -56,12 +56,14 @@ const struct cli_command cli_command_enough = {
 	"reached at that count, and a 90% interval for the count from a bootstrap of the periods. "
 	"Without UNIVERSE, give summary statistics (--average-variance and --average-covariance, or "
 	"--average-sd and --average-correlation, and optionally --securities) for the exact rules. "
-	"With --strata, the sampled rules (band, shortfall) draw portfolios spread across strata "
-	"(--proportional, or at most --per-stratum-max K in any stratum); the exact rules are "
-	"unchanged. With --covariance (a covariance matrix) or --missing pairwise the band rule "
-	"draws its portfolios from the matrix; shortfall, which compounds returns over time, needs "
-	"complete return series. With --measures, the same kind of random portfolios at each count a "
-	"rule chose give the measures there (docs/measures.md), in a table 'measures' (text and JSON). "
+	"One rule's count (--policy, default near-floor) becomes the recommendation, with a sentence for a "
+	"policy statement. "
+	"With --strata, the sampled rules (band, lag-share, alexeev-tapon-sampled) draw portfolios spread "
+	"across strata (--proportional, or at most --per-stratum-max K in any stratum); the exact rules are "
+	"unchanged. With --covariance (a covariance matrix) or --missing pairwise the band and "
+	"alexeev-tapon-sampled rules draw their portfolios from the matrix; lag-share, which compounds returns "
+	"over time, needs complete return series. With --measures, the same kind of random portfolios at each "
+	"count a rule chose give the measures there (docs/measures.md), in a table 'measures' (text and JSON). "
 	"See docs/enough.md for each rule and its source.",
 	0, 1, enough_groups
 };
@@ -137,7 +139,7 @@ static int run_file(struct enough_opts *o, const struct cli_args *a, struct hc_e
 	struct universe *u = NULL;
 	struct cli_steps steps;
 	struct hc_error err;
-	int rc, band = (eo->rules.selected & RULES_FLAG(RULES_BAND)) != 0;
+	int rc, band = (eo->rules.selected & HC_ENOUGH_MATRIX_SAMPLED) != 0;
 
 	if ((rc = cli_enough_checks("enough", &o->smp, &o->strat, &eo->rules)))
 		return rc;
@@ -203,6 +205,9 @@ int cmd_enough(int argc, char **argv)
 	rc = cli_enough_options("enough", &o.rul, &o.smp, &a, have_data, o.uni.covariance, &eo);
 	if (rc || (rc = cli_measures_mask("enough", &o.mea, &eo.measures)))
 		goto cleanup;
+	/* The text table leaves the long sentence out of the rules table (it
+	 * is a field below it); CSV, the rules table alone, and JSON carry it. */
+	eo.sentence_column = o.out.format != CLI_FORMAT_TABLE;
 	/* Summary statistics and a matrix stay on the inputs' scale unless told
 	 * the periods per year: the rules' texts then say "per period". */
 	eo.rules.per_period = (!have_data || o.uni.covariance) && !cli_given(&a, "periods-per-year");

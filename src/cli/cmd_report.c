@@ -78,12 +78,12 @@ static const struct cli_group report_group = { "report options", report_own };
 /* The report reads complete return series only: --missing could only
  * repeat its default, and --min-coverage would change nothing. */
 static const struct cli_omit report_universe_omit[] = {
-	{ "missing", "the report draws its random portfolios, its shortfall rule and its audit from "
+	{ "missing", "the report draws its random portfolios, its lag-share rule and its audit from "
 	  "complete return series (securities with gaps are dropped); curve, enough and audit take "
 	  "--missing pairwise" },
 	{ "min-coverage", "it is the coverage --missing pairwise asks for, and the report reads complete "
 	  "return series only; curve, enough and audit take both" },
-	{ "covariance", "the report needs a return history (its dates, shortfall rule and rolling windows "
+	{ "covariance", "the report needs a return history (its dates, lag-share rule and rolling windows "
 	  "are time-based); describe, curve, enough and audit take a covariance matrix" },
 	{ NULL, NULL }
 };

@@ -39,7 +39,14 @@ static const struct cli_group rolling_group = { "rolling options", rolling_own }
  * exact rules, with a bootstrap per window only when asked. */
 static const struct cli_omit rolling_rules_omit[] = {
 	{ "band", "rolling windows evaluate the exact rules only (band draws random portfolios)" },
-	{ "shortfall", "rolling windows evaluate the exact rules only (shortfall draws random portfolios)" },
+	{ "lag-share", "rolling windows evaluate the exact rules only (lag-share draws random portfolios)" },
+	{ "shortfall", "rolling windows evaluate the exact rules only (lag-share, once shortfall, draws random portfolios)" },
+	{ "alexeev-tapon", "rolling windows evaluate the exact rules from the averages only (alexeev-tapon needs the "
+	  "exact spread, and its sampled form draws random portfolios)" },
+	{ "interval", "rolling windows give percentile intervals (enough --interval percentile gives the same for "
+	  "one window over the whole sample)" },
+	{ "policy", "rolling windows give each window's counts, not a recommendation: enough and report give it" },
+	{ "policy-at", "rolling windows give each window's counts, not a recommendation: enough and report give it" },
 	{ "bootstrap-sampled", "rolling windows evaluate the exact rules only; the sampled rules have no windows" },
 	{ "bootstrap-paths", "rolling windows evaluate the exact rules only; the sampled rules have no windows" },
 	{ NULL, NULL }
@@ -47,6 +54,7 @@ static const struct cli_omit rolling_rules_omit[] = {
 static const struct cli_default rolling_rules_defaults[] = {
 	{ "rules", "exact" },
 	{ "bootstrap", "0" },
+	{ "bootstrap-kind", "block" },
 	{ "block-length", "round(W^(1/3))" },
 	{ NULL, NULL }
 };
@@ -116,7 +124,8 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 		ro->rules.selected = RULES_EXACT_MASK;
 	else if (ro->rules.selected & ~RULES_EXACT_MASK)
 		return cli_usage_error("rolling", "--rules: rolling windows evaluate the exact rules "
-				       "only (near-floor, marginal, cost-benefit, tracking-error)");
+				       "only (near-floor, marginal, next-holding, tracking-error, statman-borrowing, "
+				       "statman-lending)");
 	ro->replicates = o->rul.bootstrap;
 	ro->boot.kind = o->rul.bootstrap_kind;
 	ro->boot.block_length = o->rul.block_length;
@@ -145,6 +154,7 @@ int cmd_rolling(int argc, char **argv)
 	o.refresh = ROLLING_DEFAULT_REFRESH;
 	cli_rules_init(&o.rul);
 	o.rul.bootstrap = 0;
+	o.rul.bootstrap_kind = BOOTSTRAP_BLOCK;   /* rolling's own default, as before */
 	o.seed = 1;
 	rc = cli_parse(&cli_command_rolling, argc, argv, &o, &a);
 	if (rc != HC_OK)
