@@ -482,7 +482,8 @@ static int asset_class(int type)
 struct issuer_weight {
 	const char *issuer;
 	int cls;
-	double w;
+	double w;      /* after aggregate(): the issuer's exposure, |net weight| */
+	double net;    /* after aggregate(): its net weight (negative: net short) */
 };
 
 static int cmp_issuer(const void *a, const void *b)
@@ -508,8 +509,10 @@ static size_t aggregate(struct issuer_weight *iw, size_t n)
 		else
 			iw[m++] = iw[k];
 	}
-	for (k = 0; k < m; k++)
+	for (k = 0; k < m; k++) {
+		iw[k].net = iw[k].w;
 		iw[k].w = fabs(iw[k].w);
+	}
 	return m;
 }
 
@@ -537,7 +540,7 @@ static void groups(struct audit_fund *af, const struct holdings_fund *fd,
 	af->max_group = NULL;
 	for (k = 0; k < fd->n; k++)
 		if (fd->h[k].group && fd->h[k].type != HOLDING_CASH && asset_class(fd->h[k].type) == CLASS_ISSUER)
-			iw[n++] = (struct issuer_weight){ fd->h[k].group, 0, fd->h[k].weight };
+			iw[n++] = (struct issuer_weight){ fd->h[k].group, 0, fd->h[k].weight, 0 };
 	n = aggregate(iw, n);
 	if (has_groups)
 		af->max_group_weight = 0;
@@ -560,7 +563,9 @@ static void groups(struct audit_fund *af, const struct holdings_fund *fd,
  * size, plus each other issuer "limited to" 5% of assets.  Read as
  * AUDIT_READING_EXCLUDED an issuer above 5% adds nothing; as
  * AUDIT_READING_CAPPED it adds 5%.  (From memory of the texts; verify with
- * counsel.)  "Within 5%" is inclusive, within tol.
+ * counsel.)  "Within 5%" is inclusive, within tol.  A net short issuer
+ * is a liability, not an asset the fund holds: it adds nothing to either
+ * reading (its exposure still counts in the issuer limits).
  */
 static void baskets(double base, const struct issuer_weight *iw, size_t n, double threshold,
 		    double tol, double out[2])
@@ -569,11 +574,11 @@ static void baskets(double base, const struct issuer_weight *iw, size_t n, doubl
 
 	out[0] = out[1] = base;
 	for (k = 0; k < n; k++) {
-		if (iw[k].cls != CLASS_ISSUER)
+		if (iw[k].cls != CLASS_ISSUER || !(iw[k].net > 0))
 			continue;
-		if (iw[k].w <= threshold + tol)
-			out[AUDIT_READING_EXCLUDED] += iw[k].w;
-		out[AUDIT_READING_CAPPED] += fmin(iw[k].w, threshold);
+		if (iw[k].net <= threshold + tol)
+			out[AUDIT_READING_EXCLUDED] += iw[k].net;
+		out[AUDIT_READING_CAPPED] += fmin(iw[k].net, threshold);
 	}
 }
 
@@ -589,7 +594,7 @@ static void screens(struct audit_fund *af, const struct holdings_fund *fd,
 	groups(af, fd, iw, has_groups, tol);
 	for (k = 0; k < fd->n; k++)
 		if (fd->h[k].type != HOLDING_CASH)
-			iw[n++] = (struct issuer_weight){ fd->h[k].issuer, asset_class(fd->h[k].type), fd->h[k].weight };
+			iw[n++] = (struct issuer_weight){ fd->h[k].issuer, asset_class(fd->h[k].type), fd->h[k].weight, 0 };
 	n = aggregate(iw, n);
 	af->issuers = n;
 	af->issuer_max = -1;

@@ -67,15 +67,39 @@ static int add(struct datacheck_result *r, size_t *cap, int kind, size_t sec, si
 	return 0;
 }
 
-/* The split ratio r is near, or 0. */
-static double split_like(double r)
+/* The split ratio nearest r when within tol of it (in log price ratio), or
+ * 0.  On a split day the price also moves by the day's own return, so the
+ * tolerance is the security's robust sd times DATACHECK_SPLIT_MADS, never
+ * below DATACHECK_SPLIT_TOL: a 1-for-10 reverse split on a +1.9% day is a
+ * ratio of 10.19, which a fixed 0.5% tolerance would miss.  Nor above
+ * DATACHECK_SPLIT_TOL_MAX: on monthly data three robust sds are some 30%,
+ * and every large month would look like a split. */
+static double split_like(double r, double tol)
 {
+	double best = 0, dist = tol, d;
 	size_t k;
 
-	for (k = 0; k < sizeof split_returns / sizeof split_returns[0]; k++)
-		if (fabs((1 + r) / (1 + split_returns[k]) - 1) <= DATACHECK_SPLIT_TOL)
-			return split_returns[k];
-	return 0;
+	if (!(r > -1))
+		return 0;
+	for (k = 0; k < sizeof split_returns / sizeof split_returns[0]; k++) {
+		d = fabs(log1p(r) - log1p(split_returns[k]));
+		if (d <= dist) {
+			dist = d;
+			best = split_returns[k];
+		}
+	}
+	return best;
+}
+
+/* The tolerance of split_like for a security of robust sd mad, on data
+ * with ppy periods a year.  Monthly and coarser data keep the fixed
+ * tolerance: there a period's own move is as large as the gaps between
+ * split ratios, so a wider window only finds ordinary large months. */
+static double split_tolerance(double mad, double ppy)
+{
+	if (ppy < DATACHECK_SPLIT_MIN_PPY)
+		return DATACHECK_SPLIT_TOL;
+	return fmin(DATACHECK_SPLIT_TOL_MAX, fmax(DATACHECK_SPLIT_TOL, DATACHECK_SPLIT_MADS * mad));
 }
 
 /* Undone within the next periods: (1 + r_t)(1 + r_{t+j}) within tol of 1. */
@@ -138,8 +162,8 @@ static int check_security(struct datacheck_result *r, size_t *cap, const struct 
 		}
 		if (!(fabs(x[k] - med) > DATACHECK_JUMP_MADS * mad))
 			continue;
-		if (split_like(x[k]) != 0) {
-			if (add(r, cap, DATACHECK_SPLIT, i, k, x[k], reversed_after(x, u->t, k, DATACHECK_SPLIT_TOL)))
+		if (split_like(x[k], split_tolerance(mad, u->periods_per_year)) != 0) {
+			if (add(r, cap, DATACHECK_SPLIT, i, k, x[k], reversed_after(x, u->t, k, split_tolerance(mad, u->periods_per_year))))
 				return -1;
 		} else if (fabs(x[k]) > 0.5 && reversed_after(x, u->t, k, DATACHECK_SPIKE_TOL) &&
 			   add(r, cap, DATACHECK_EXTREME, i, k, x[k], 1)) {
@@ -217,7 +241,7 @@ void hc_datacheck_describe(const struct datacheck_finding *f, const struct unive
 		snprintf(buf, size, "%s %s: return %.4g%% is a loss of 100%% or more", id, date, 100 * f->value);
 		break;
 	case DATACHECK_SPLIT:
-		s = split_like(f->value);
+		s = split_like(f->value, INFINITY)   /* a split finding: its nearest ratio */;
 		if (s < 0)
 			snprintf(buf, size, "%s %s: return %+.4g%% looks like an unadjusted %.0f-for-1 split (%s)", id,
 				 date, 100 * f->value, 1 / (1 + s),

@@ -106,6 +106,15 @@ int hc_holding_type_parse(const char *s, int *type)
 		{ "investment-company share", HOLDING_FUND_SHARE }, { "investment company share", HOLDING_FUND_SHARE },
 		{ "investment company", HOLDING_FUND_SHARE }, { "fund share", HOLDING_FUND_SHARE },
 		{ "other", HOLDING_OTHER },
+		/* words administrators' files commonly use (common practice) */
+		{ "equity", HOLDING_SECURITY }, { "equities", HOLDING_SECURITY }, { "stock", HOLDING_SECURITY },
+		{ "common stock", HOLDING_SECURITY }, { "preferred stock", HOLDING_SECURITY },
+		{ "ordinary share", HOLDING_SECURITY }, { "ordinary shares", HOLDING_SECURITY },
+		{ "share", HOLDING_SECURITY }, { "shares", HOLDING_SECURITY },
+		{ "cash & equivalents", HOLDING_CASH }, { "cash and equivalents", HOLDING_CASH },
+		{ "government bond", HOLDING_GOVERNMENT }, { "government bonds", HOLDING_GOVERNMENT },
+		{ "etf", HOLDING_FUND_SHARE }, { "exchange-traded fund", HOLDING_FUND_SHARE },
+		{ "mutual fund", HOLDING_FUND_SHARE },
 	};
 	size_t k;
 
@@ -449,13 +458,11 @@ static int fund_index(struct reader *rd, const char *name, size_t line,
 			*index = rd->last_fund = k;
 			return HC_OK;
 		}
-	if (h->nfunds == rd->cap_funds) {
-		size_t cap = rd->cap_funds ? 2 * rd->cap_funds : 8;
-		struct holdings_fund *p = hc_reallocarray(h->funds, cap, sizeof *p);
+	{
+		struct holdings_fund *p = hc_grow(h->funds, &rd->cap_funds, h->nfunds, sizeof *p, 8);
 		if (!p)
 			goto nomem;
 		h->funds = p;
-		rd->cap_funds = cap;
 	}
 	memset(&h->funds[h->nfunds], 0, sizeof h->funds[0]);
 	h->funds[h->nfunds].name = hc_strdup(name);
@@ -494,17 +501,28 @@ static int row_check(struct reader *rd, size_t nfields, size_t line, int *type,
 	if (!rd->opt->single_fund && blank(rd->cell[COL_FUND]))
 		return hc_error(err, HC_EDATA, "%s:%zu:%zu: empty fund name, expected the fund the position belongs to",
 				rd->name, rd->cell_line[COL_FUND], rd->col[COL_FUND]);
-	if (blank(rd->cell[COL_ID]))
-		return hc_error(err, HC_EDATA, "%s:%zu:%zu: empty security id, expected an id",
-				rd->name, rd->cell_line[COL_ID], rd->col[COL_ID]);
 	*type = HOLDING_SECURITY;
 	if (rd->col[COL_TYPE] && hc_holding_type_parse(rd->cell[COL_TYPE], type) != 0) {
 		char q[CSVREAD_QUOTE_BUF];
-		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found type '%s', expected security, cash, government security, "
-				"investment-company share or other",
+		return hc_error(err, HC_EDATA, "%s:%zu:%zu: found type '%s', expected security (or equity, stock), cash, government security, "
+				"investment-company share (or ETF, mutual fund) or other",
 				rd->name, rd->cell_line[COL_TYPE], rd->col[COL_TYPE],
 				hc_csvread_quote(rd->cell[COL_TYPE], strlen(rd->cell[COL_TYPE]), q));
 	}
+	/* A cash line often has no id in administrators' files: it is named
+	 * HOLDINGS_CASH_ID (several such lines of a fund are summed). */
+	if (blank(rd->cell[COL_ID]) && *type == HOLDING_CASH) {
+		char *id = hc_strdup(HOLDINGS_CASH_ID);
+
+		if (!id)
+			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
+		hc_free(rd->cell[COL_ID]);
+		rd->cell[COL_ID] = id;
+	}
+	if (blank(rd->cell[COL_ID]))
+		return hc_error(err, HC_EDATA, "%s:%zu:%zu: empty security id, expected an id%s",
+				rd->name, rd->cell_line[COL_ID], rd->col[COL_ID],
+				rd->col[COL_TYPE] ? " (only a cash line may leave it empty)" : "");
 	return HC_OK;
 }
 
@@ -534,13 +552,11 @@ static int on_record(void *ctx, size_t record, size_t nfields, size_t line,
 	if ((rc = fund_index(rd, rd->opt->single_fund ? rd->opt->single_fund : rd->cell[COL_FUND],
 			     line, &fund, err)) != HC_OK)
 		return rc;
-	if (rd->nrows == rd->cap_rows) {
-		size_t cap = rd->cap_rows ? 2 * rd->cap_rows : 64;
-		struct row *p = hc_reallocarray(rd->rows, cap, sizeof *p);
+	{
+		struct row *p = hc_grow(rd->rows, &rd->cap_rows, rd->nrows, sizeof *p, 64);
 		if (!p)
 			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", rd->name);
 		rd->rows = p;
-		rd->cap_rows = cap;
 	}
 	r = &rd->rows[rd->nrows++];
 	memset(r, 0, sizeof *r);
@@ -970,8 +986,12 @@ static int label_record(void *ctx, size_t record, size_t nfields, size_t line,
 					lr->name, line, k + 1, k ? "label" : "id",
 					k ? "a label for the id" : "a security id");
 	if (l->n == lr->cap) {
-		size_t cap = lr->cap ? 2 * lr->cap : 64;
-		char **a = hc_reallocarray(l->ids, cap, sizeof *a);
+		size_t cap;
+		char **a;
+
+		if (hc_grow_capacity(lr->cap, lr->cap + 1, 64, &cap))
+			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", lr->name);
+		a = hc_reallocarray(l->ids, cap, sizeof *a);
 		if (!a)
 			return hc_error(err, HC_ENOMEM, "out of memory reading '%s'", lr->name);
 		l->ids = a;

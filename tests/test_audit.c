@@ -1235,6 +1235,11 @@ static void test_audit_shorts_gross_net_and_cash_risk(void **state)
 	assert_true(a->funds[0].failed & AUDIT_RULE_MAX_WEIGHT);
 	assert_int_equal(a->funds[0].verdict, AUDIT_VERDICT_FAILED);
 	assert_rel(a->funds[0].variance, 12 * quad_form(fx.u, idx, w, 3), 1e-12);
+	/* The 5% baskets count assets held: cash 10%, and under the capped
+	 * reading 5% each of QX01 and QX02; the short QX03 is a liability and
+	 * adds nothing (counting its |20%| would give a capped basket of 25%). */
+	assert_near(a->funds[0].basket_1940[AUDIT_READING_EXCLUDED], 0.10, 1e-15);
+	assert_near(a->funds[0].basket_1940[AUDIT_READING_CAPPED], 0.20, 1e-15);
 	opt.cash_risk = AUDIT_CASH_ZERO;
 	z = run(h, &fx, &opt);
 	assert_rel(z->funds[0].sd, 0.9 * a->funds[0].sd, 1e-12);

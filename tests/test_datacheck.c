@@ -58,6 +58,7 @@ static struct universe *planted(void)
 	u->x[5 * T + 30] = -1.2;                           /* LIR906: below -100% */
 	u->x[6 * T + 90] = 0.873;                          /* LIR907: a spike ... */
 	u->x[6 * T + 91] = 1 / 1.873 - 1 + 0.004;          /* ... undone the next day */
+	u->x[7 * T + 100] = 10 * 1.019 - 1;                /* LIR908: 1-for-10 reverse split on a +1.9% day */
 	u->periods_per_year = 252;
 	gsl_rng_free(r);
 	return u;
@@ -93,12 +94,15 @@ static void test_datacheck_finds_plants(void **state)
 			if (r->findings[j].security == 0) {
 				assert_int_equal(r->findings[j].period, 40);
 				assert_int_equal(r->findings[j].reversed, 0);
+			} else if (r->findings[j].security == 7) {
+				assert_int_equal(r->findings[j].period, 100);
+				assert_int_equal(r->findings[j].reversed, 0);
 			} else {
 				assert_int_equal(r->findings[j].security, 1);
 				assert_true(r->findings[j].period == 60 || r->findings[j].period == 62);
 			}
 		}
-	assert_int_equal(splits, 3);   /* the kept split, and both legs of the bad print */
+	assert_int_equal(splits, 4);   /* the two kept splits, and both legs of the bad print */
 	expect(r, DATACHECK_STALE, 2, 20, 0);
 	expect(r, DATACHECK_PERCENTS, 3, 0, 0);
 	expect(r, DATACHECK_PRICES, 4, 0, 0);
@@ -116,6 +120,11 @@ static void test_datacheck_finds_plants(void **state)
 		if (r->findings[j].kind == DATACHECK_SPLIT && r->findings[j].security == 0)
 			hc_datacheck_describe(&r->findings[j], u, text, sizeof text);
 	assert_string_equal(text, "LIR901 2024-02-26: return -50.12% looks like an unadjusted 2-for-1 split (not reversed)");
+	for (j = 0; j < r->nfindings; j++)
+		if (r->findings[j].kind == DATACHECK_SPLIT && r->findings[j].security == 7)
+			hc_datacheck_describe(&r->findings[j], u, text, sizeof text);
+	assert_non_null(strstr(text, "LIR908"));
+	assert_non_null(strstr(text, "1-for-10 reverse split (not reversed)"));
 	hc_datacheck_free(r);
 	hc_universe_free(u);
 }

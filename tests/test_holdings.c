@@ -379,7 +379,15 @@ static void test_holdings_types_repeats_and_quoted_values(void **state)
 	assert_near(h->funds[0].h[0].weight, 0.625, 1e-15);
 	hc_holdings_free(h);
 	assert_int_equal(load(&h, "fund,id,weight,type\nFir,QX1,1,bond fund\n", NULL, &err), HC_EDATA);
-	assert_string_equal(err.message, "f.csv:2:4: found type 'bond fund', expected security, cash, government security, investment-company share or other");
+	assert_string_equal(err.message, "f.csv:2:4: found type 'bond fund', expected security (or equity, stock), cash, government security, investment-company share (or ETF, mutual fund) or other");
+	/* administrators' words for the types (common practice) */
+	assert_int_equal(load(&h, "fund,id,weight,type\nFir,QX1,0.5,Equity\nFir,QX2,0.2,ETF\n"
+			      "Fir,QX3,0.2,Government Bond\nFir,,0.1,Cash & Equivalents\n", NULL, &err), HC_OK);
+	assert_int_equal(h->funds[0].h[0].type, HOLDING_SECURITY);
+	assert_int_equal(h->funds[0].h[1].type, HOLDING_FUND_SHARE);
+	assert_int_equal(h->funds[0].h[2].type, HOLDING_GOVERNMENT);
+	assert_int_equal(h->funds[0].h[3].type, HOLDING_CASH);
+	hc_holdings_free(h);
 }
 
 static void test_holdings_encodings(void **state)

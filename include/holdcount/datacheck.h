@@ -9,9 +9,14 @@
  *   percents read as decimals  median |r| above DATACHECK_PERCENT_MEDIAN
  *                            (and not prices);
  *   total loss               a return of -100% or worse;
- *   split-like jump          a return within DATACHECK_SPLIT_TOL of a simple
- *                            ratio (-50%, -66.7%, -75%, -80%, -90%, +100%,
- *                            +200%, +300%, +400%, +900%) and at least
+ *   split-like jump          a log price ratio within DATACHECK_SPLIT_MADS
+ *                            robust sds (at least DATACHECK_SPLIT_TOL, at
+ *                            most DATACHECK_SPLIT_TOL_MAX; weekly and
+ *                            daily data only: coarser data keep
+ *                            DATACHECK_SPLIT_TOL) of
+ *                            the log of a simple ratio, the nearest named (-50%, -66.7%, -75%, -80%, -90%, +100%,
+ *                            +200%, +300%, +400%, +900%; the day's own move
+ *                            rides on a split) and at least
  *                            DATACHECK_JUMP_MADS robust sds from the
  *                            security's median; "reversed" when the product
  *                            of (1 + r) over it and one of the next
@@ -49,6 +54,9 @@ extern "C" {
 #define DATACHECK_PRICE_MEDIAN 1.5
 #define DATACHECK_PERCENT_MEDIAN 0.25
 #define DATACHECK_SPLIT_TOL 0.005
+#define DATACHECK_SPLIT_MADS 3.0
+#define DATACHECK_SPLIT_TOL_MAX 0.03
+#define DATACHECK_SPLIT_MIN_PPY 50.0
 #define DATACHECK_JUMP_MADS 8.0
 #define DATACHECK_REVERSAL_PERIODS 5
 #define DATACHECK_STALE_RUN 5

@@ -34,6 +34,9 @@
 
 #include "holdcount/error.h"
 
+/* The id given to a cash line whose id cell is empty. */
+#define HOLDINGS_CASH_ID "(cash)"
+
 #ifdef __cplusplus
 extern "C" {
 #endif
