@@ -48,15 +48,10 @@ static int add(struct datacheck_result *r, size_t *cap, int kind, size_t sec, si
 {
 	struct datacheck_finding *f;
 
-	if (r->nfindings == *cap) {
-		size_t nc = *cap ? 2 * *cap : 64;
-
-		f = hc_reallocarray(r->findings, nc, sizeof *f);
-		if (!f)
-			return -1;
-		r->findings = f;
-		*cap = nc;
-	}
+	f = hc_grow(r->findings, cap, r->nfindings, sizeof *f, 64);
+	if (!f)
+		return -1;
+	r->findings = f;
 	f = &r->findings[r->nfindings++];
 	f->kind = kind;
 	f->security = sec;

@@ -247,15 +247,10 @@ static int add_dropped(struct universe *u, size_t *cap, const char *id,
 	struct universe_dropped *d;
 	char *idc, *rc;
 
-	if (u->ndropped == *cap) {
-		size_t nc = *cap ? *cap * 2 : 8;
-
-		d = hc_reallocarray(u->dropped, nc, sizeof *d);
-		if (!d)
-			return -1;
-		u->dropped = d;
-		*cap = nc;
-	}
+	d = hc_grow(u->dropped, cap, u->ndropped, sizeof *d, 8);
+	if (!d)
+		return -1;
+	u->dropped = d;
 	idc = hc_strdup(id);
 	rc = hc_strdup(reason);
 	if (!idc || !rc) {
@@ -463,15 +458,10 @@ static int header_field(struct loader *L, const struct csvread_field *f,
 	if ((rc = count_name(L, f, err)) != HC_OK)
 		return rc;
 
-	if (L->ncols == L->cap_header) {
-		size_t nc = L->cap_header ? L->cap_header * 2 : 64;
-
-		h = hc_reallocarray(L->header, nc, sizeof *h);
-		if (!h)
-			return hc_error(err, HC_ENOMEM, "%s: out of memory reading the header", L->name);
-		L->header = h;
-		L->cap_header = nc;
-	}
+	h = hc_grow(L->header, &L->cap_header, L->ncols, sizeof *h, 64);
+	if (!h)
+		return hc_error(err, HC_ENOMEM, "%s: out of memory reading the header", L->name);
+	L->header = h;
 	s = hc_strndup(f->text, f->len);
 	if (!s)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory reading the header", L->name);
@@ -664,8 +654,7 @@ static int wide_grow(struct loader *L, struct hc_error *err)
 	max_rows = (L->budget - L->name_bytes) / row_bytes;
 	if (L->nrows + 1 > max_rows)
 		return too_large(L, (double)(L->nrows + 1) * (double)row_bytes, err);
-	nc = L->cap_rows ? L->cap_rows * 2 : 64;
-	if (nc > max_rows)
+	if (hc_grow_capacity(L->cap_rows, L->nrows + 1, 64, &nc) || nc > max_rows)
 		nc = max_rows;
 	r = hc_reallocarray(L->rows, nc, L->m * sizeof(double));
 	if (!r)
@@ -788,10 +777,12 @@ static int long_id(struct loader *L, const struct csvread_field *f,
 	if (rc != HC_OK)
 		return rc;
 	if (L->m == L->cap_ids) {
-		size_t nc = L->cap_ids ? L->cap_ids * 2 : 64;
-		char **ids = hc_reallocarray(L->ids, nc, sizeof *ids);
+		size_t nc;
+		char **ids = NULL;
 		size_t *lines;
 
+		if (!hc_grow_capacity(L->cap_ids, L->m + 1, 64, &nc))
+			ids = hc_reallocarray(L->ids, nc, sizeof *ids);
 		if (!ids)
 			return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
 		L->ids = ids;
@@ -838,9 +829,12 @@ static int long_record(struct loader *L, size_t nfields, size_t line,
 			"%s:%zu:%zu: row has %zu fields; expected %zu as in the header",
 			L->name, line, nfields, nfields, L->ncols);
 	if (L->nlrows == L->cap_lrows) {
-		size_t nc = L->cap_lrows ? L->cap_lrows * 2 : 256;
-		double need = (double)nc * (double)(sizeof *r + sizeof(double)) + (double)L->name_bytes;
+		size_t nc = L->cap_lrows + 1;
+		double need;
 
+		if (hc_grow_capacity(L->cap_lrows, L->nlrows + 1, 256, &nc))
+			nc = L->cap_lrows + 1;
+		need = (double)nc * (double)(sizeof *r + sizeof(double)) + (double)L->name_bytes;
 		if (need > (double)L->budget) {
 			nc = L->cap_lrows + 1;
 			need = (double)nc * (double)(sizeof *r + sizeof(double)) + (double)L->name_bytes;
