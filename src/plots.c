@@ -156,12 +156,13 @@ struct lines {
 static int lines_add(struct lines *l, double x, double y)
 {
 	if (l->n == l->cap) {
-		size_t cap = l->cap ? 2 * l->cap : 512;
-		double *nx = hc_realloc(l->x, cap * sizeof *nx), *ny;
-		if (!nx)
+		size_t cap;
+		double *nx, *ny;
+
+		if (hc_grow_capacity(l->cap, l->n + 1, 512, &cap) || !(nx = hc_reallocarray(l->x, cap, sizeof *nx)))
 			return HC_ENOMEM;
 		l->x = nx;
-		ny = hc_realloc(l->y, cap * sizeof *ny);
+		ny = hc_reallocarray(l->y, cap, sizeof *ny);
 		if (!ny)
 			return HC_ENOMEM;
 		l->y = ny;

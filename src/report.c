@@ -282,10 +282,10 @@ int hc_report_table_add_row(struct report_table *t)
 	size_t i;
 
 	if (t->nrows == t->cap_rows) {
-		size_t cap = t->cap_rows ? 2 * t->cap_rows : 16, cells;
+		size_t cap, cells;
 		struct report_value *nv;
 
-		if (hc_mul_size(cap, t->ncols ? t->ncols : 1, &cells))
+		if (hc_grow_capacity(t->cap_rows, t->nrows + 1, 16, &cap) || hc_mul_size(cap, t->ncols ? t->ncols : 1, &cells))
 			return HC_ENOMEM;
 		nv = hc_reallocarray(t->cells, cells, sizeof *nv);
 		if (!nv)
