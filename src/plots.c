@@ -1261,21 +1261,42 @@ static void rolling_count_axis(FILE *fp, const struct rolling_result *r)
 
 /* One line per evaluated exact rule met in some window, from column 2 of
  * rolling.dat on (each rule keeps its column and its style). */
+/* The rolling plot's own line styles, one a rule line: each differs from
+ * the others in colour, marker and dash pattern, so that six or more rules
+ * stay apart in colour and in greyscale print (four shared styles made two
+ * pairs of rules look the same). */
+#define ROLLING_STYLE_BASE 20
+static const char *const rolling_styles[] = {
+	"linecolor rgb \"#1b6f6a\" linewidth 2.2 dashtype 1 pointtype 7 pointsize 1.1",
+	"linecolor rgb \"#b5541c\" linewidth 1.6 dashtype 2 pointtype 6 pointsize 1.3",
+	"linecolor rgb \"#7b2d63\" linewidth 1.4 dashtype 3 pointtype 9 pointsize 1.5",
+	"linecolor rgb \"#2f4b8f\" linewidth 1.6 dashtype 1 pointtype 5 pointsize 1.1",
+	"linecolor rgb \"#6b8e23\" linewidth 1.6 dashtype 4 pointtype 13 pointsize 1.4",
+	"linecolor rgb \"#a0640f\" linewidth 1.4 dashtype 5 pointtype 4 pointsize 1.3",
+	"linecolor rgb \"#5a6470\" linewidth 1.4 dashtype 1 pointtype 11 pointsize 1.4",
+	"linecolor rgb \"#c0392b\" linewidth 1.4 dashtype 2 pointtype 2 pointsize 1.3",
+	"linecolor rgb \"#3b7dd8\" linewidth 1.4 dashtype 3 pointtype 8 pointsize 1.4",
+	"linecolor rgb \"#8c6d9e\" linewidth 1.4 dashtype 4 pointtype 1 pointsize 1.4",
+};
+#define ROLLING_NSTYLES (sizeof rolling_styles / sizeof rolling_styles[0])
+
 static void rolling_plot(FILE *fp, const struct plots_input *in)
 {
-	static const int styles[] = { 1, 2, 5, 6 };
-	size_t q = 0, drawn = 0;
+	size_t q = 0, drawn = 0, k;
 	int id;
 
 	rolling_date_axis(fp, in->rolling);
 	rolling_count_axis(fp, in->rolling);
+	for (k = 0; k < ROLLING_NSTYLES; k++)
+		fprintf(fp, "set style line %zu %s\n", ROLLING_STYLE_BASE + k, rolling_styles[k]);
 	fputs("plot ", fp);
 	for (id = 0; id < RULES_COUNT; id++) {
 		if (!(in->rolling->rules & RULES_FLAG(id)))
 			continue;
 		if (rolling_rule_met(in->rolling, q))
 			fprintf(fp, "%s'rolling.dat' using 1:%zu with linespoints ls %d title \"%s rule\"",
-				drawn++ ? ", \\\n     " : "", q + 2, styles[q % 4], hc_rules_name(id));
+				drawn++ ? ", \\\n     " : "", q + 2, (int)(ROLLING_STYLE_BASE + q % ROLLING_NSTYLES),
+				hc_rules_name(id));
 		q++;
 	}
 	fputc('\n', fp);

@@ -27,6 +27,7 @@
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/plots.h"
+#include "holdcount/rolling.h"
 #include "holdcount/rules.h"
 #include "holdcount/universe.h"
 
@@ -367,6 +368,73 @@ static void rolling_ticks(size_t nwin, int months_apart, size_t *nticks, int *ye
 	hc_curve_free(c);
 }
 
+/* Every rule line of the rolling plot has its own style, defined in the
+ * script with its own colour, dash pattern and marker: with six rules the
+ * four shared styles of before drew two pairs of rules alike. */
+static void test_plots_rolling_rules_styled_apart(void **state)
+{
+	enum { NW = 4, NR = 6 };
+	static const int ids[NR] = { RULES_NEAR_FLOOR, RULES_MARGINAL, RULES_NEXT_HOLDING, RULES_TRACKING_ERROR,
+				     RULES_STATMAN_BORROWING, RULES_STATMAN_LENDING };
+	struct rolling_window w[NW];
+	struct rolling_result r;
+	struct curve *c = make_curve();
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	char *buf = NULL, *p, seen[NR][128], date[16];
+	size_t len = 0, j, k, n = 0;
+	FILE *mem;
+
+	(void)state;
+	memset(w, 0, sizeof w);
+	memset(&r, 0, sizeof r);
+	r.window = 24;
+	r.step = 12;
+	r.periods_per_year = 12;
+	for (k = 0; k < NR; k++)
+		r.rules |= RULES_FLAG(ids[k]);
+	r.nwindows = NW;
+	r.windows = w;
+	for (j = 0; j < NW; j++) {
+		snprintf(date, sizeof date, "%04d-12-31", 2020 + (int)j);
+		assert_int_equal(hc_universe_parse_date(date, strlen(date), &w[j].end_date), HC_OK);
+		w[j].status = HC_OK;
+		w[j].nrules = NR;
+		for (k = 0; k < NR; k++) {
+			w[j].rules[k].defined = 1;
+			w[j].rules[k].met = 1;
+			w[j].rules[k].count = 10 + 5 * k + j;
+		}
+	}
+	in.rolling = &r;
+	mem = open_memstream(&buf, &len);
+	assert_int_equal(hc_plots_write_script(mem, PLOTS_ROLLING, &in, PLOTS_PNG, NULL), HC_OK);
+	fclose(mem);
+	for (p = strstr(buf, "with linespoints ls "); p; p = strstr(p + 1, "with linespoints ls ")) {
+		int ls = atoi(p + strlen("with linespoints ls "));
+		char def[32], *line, *end;
+
+		assert_true(n < NR);
+		snprintf(def, sizeof def, "set style line %d ", ls);
+		line = strstr(buf, def);
+		assert_non_null(line);
+		end = strchr(line, '\n');
+		assert_non_null(end);
+		line += strlen(def);
+		assert_true((size_t)(end - line) < sizeof seen[0]);
+		memcpy(seen[n], line, (size_t)(end - line));
+		seen[n][end - line] = 0;
+		assert_non_null(strstr(seen[n], "linecolor rgb"));
+		assert_non_null(strstr(seen[n], "dashtype"));
+		assert_non_null(strstr(seen[n], "pointtype"));
+		for (k = 0; k < n; k++)
+			assert_string_not_equal(seen[k], seen[n]);
+		n++;
+	}
+	assert_int_equal(n, NR);
+	free(buf);
+	hc_curve_free(c);
+}
+
 static void test_plots_rolling_date_ticks_by_span(void **state)
 {
 	size_t n;
@@ -392,6 +460,7 @@ int main(void)
 		cmocka_unit_test(test_plots_render_treats_a_warning_as_failure),
 		cmocka_unit_test(test_plots_script_allocation_failure),
 		cmocka_unit_test(test_plots_rolling_date_ticks_by_span),
+		cmocka_unit_test(test_plots_rolling_rules_styled_apart),
 	};
 
 	gsl_set_error_handler_off();
