@@ -175,7 +175,7 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
 
 	*out = NULL;
 	if (!hc_source_has_series(src) && src->kind != HC_SOURCE_RAGGED)
-		return hc_error(err, HC_EUSAGE, "the report needs return series, complete or read period by period (--missing complete or alive, not pairwise)");
+		return hc_error(err, HC_EUSAGE, "the report needs return series, complete or read period by period");
 	if (opt->window && !every_security)
 		return hc_error(err, HC_EUSAGE, "rolling windows need the history with every security");
 	if (!(r = hc_calloc(1, sizeof *r)))

@@ -21,20 +21,6 @@ if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
 	for f in audit.csv audit-screens.csv audit-sectors.csv audit-failures.csv funds.dat funds.gp funds.png; do [ -s "$T/a/$f" ] || fail "demo report lacks $f"; done
 fi
 [ -e "$T/a/README-plots.txt" ] && fail "README-plots.txt written although gnuplot rendered"
-# --missing: alive (the default) or complete; the demo's 11 securities with
-# gaps (data/README.md) are dropped by complete, which summary.json says;
-# pairwise is refused (exit 2) and leaves no folder.
-"$HC" report --demo --missing complete -o "$T/mc" "${FAST[@]}" --window 0 || fail "report --missing complete exited $?"
-"${PYTHON:-/usr/bin/python3}" -c '
-import json, sys
-a = json.load(open(sys.argv[1]))["universe"]; c = json.load(open(sys.argv[2]))["universe"]
-assert a["securities_dropped"] == 0 and c["securities_dropped"] == 11, (a["securities_dropped"], c["securities_dropped"])
-assert c["securities"] == a["securities"] - 11, (a["securities"], c["securities"])
-' "$T/a/summary.json" "$T/mc/summary.json" || fail "report --missing complete: not the 11 fewer securities"
-"$HC" report --demo --missing pairwise -o "$T/mp" "${FAST[@]}" 2>"$T/err"; rc=$?
-[ $rc = 2 ] || fail "report --missing pairwise exited $rc, expected 2"
-grep -q 'not pairwise' "$T/err" || fail "report --missing pairwise: '$(cat "$T/err")'"
-[ -e "$T/mp" ] && fail "report --missing pairwise left a folder"
 [ -e "$T/a/.holdcount-incomplete" ] && fail "the finished report keeps the incomplete marker"
 grep -q '^## Cautions' "$T/a/summary.md" || fail "summary.md has no cautions"
 grep -q 'not investment advice' "$T/a/summary.md" || fail "summary.md lacks 'not investment advice'"

@@ -75,9 +75,14 @@ static const struct cli_option report_own[] = {
 static const struct cli_group report_group = { "report options", report_own };
 
 /* The groups of `enough` and `audit` themselves: one table per option. */
-/* The report takes --missing (alive, the default, or complete; pairwise
- * is refused in check_options) but not a covariance matrix. */
+/* The report reads complete return series only: --missing could only
+ * repeat its default, and --min-coverage would change nothing. */
 static const struct cli_omit report_universe_omit[] = {
+	{ "missing", "the report draws its random portfolios, its lag-share rule and its audit from "
+	  "complete return series (securities with gaps are dropped); curve, enough and audit take "
+	  "--missing pairwise" },
+	{ "min-coverage", "it is the coverage --missing pairwise asks for, and the report reads complete "
+	  "return series only; curve, enough and audit take both" },
 	{ "covariance", "the report needs a return history (its dates, lag-share rule and rolling windows "
 	  "are time-based); describe, curve, enough and audit take a covariance matrix" },
 	{ NULL, NULL }
