@@ -171,7 +171,7 @@ while read -r c name reason; do
 done <<'EOF'
 rolling covariance a covariance matrix has no periods to roll over
 report covariance the report needs a return history
-report missing the report draws its random portfolios, its lag-share rule and its audit from complete return series
+report missing the report reads the history period by period
 report min-coverage it is the coverage --missing pairwise asks for
 enough sizes enough looks at every holding count
 audit sizes the audit compares each fund at its own holding count

@@ -75,14 +75,15 @@ static const struct cli_option report_own[] = {
 static const struct cli_group report_group = { "report options", report_own };
 
 /* The groups of `enough` and `audit` themselves: one table per option. */
-/* The report reads complete return series only: --missing could only
- * repeat its default, and --min-coverage would change nothing. */
+/* The report reads the history period by period (each period the
+ * securities alive then; securities with gaps stay in): --missing and
+ * --min-coverage, which choose another treatment, are left out. */
 static const struct cli_omit report_universe_omit[] = {
-	{ "missing", "the report draws its random portfolios, its lag-share rule and its audit from "
-	  "complete return series (securities with gaps are dropped); curve, enough and audit take "
-	  "--missing pairwise" },
-	{ "min-coverage", "it is the coverage --missing pairwise asks for, and the report reads complete "
-	  "return series only; curve, enough and audit take both" },
+	{ "missing", "the report reads the history period by period, each period with the securities alive "
+	  "then (the other commands' default, --missing alive); curve, enough and audit take --missing "
+	  "complete or pairwise" },
+	{ "min-coverage", "it is the coverage --missing pairwise asks for, which the report does not use; "
+	  "curve, enough and audit take both" },
 	{ "covariance", "the report needs a return history (its dates, lag-share rule and rolling windows "
 	  "are time-based); describe, curve, enough and audit take a covariance matrix" },
 	{ NULL, NULL }
