@@ -898,9 +898,11 @@ int hc_holdings_merge(struct holdings *into, struct holdings **from, struct hc_e
 		return hc_error(err, HC_ENOMEM, "out of memory merging holdings files");
 	}
 	into->warnings = warnings;
-	memcpy(into->funds + into->nfunds, b->funds, b->nfunds * sizeof *funds);
+	if (b->nfunds)
+		memcpy(into->funds + into->nfunds, b->funds, b->nfunds * sizeof *funds);
 	into->nfunds += b->nfunds;
-	memcpy(into->warnings + into->nwarnings, b->warnings, b->nwarnings * sizeof *warnings);
+	if (b->nwarnings)   /* b->warnings may be NULL: memcpy's source must not be */
+		memcpy(into->warnings + into->nwarnings, b->warnings, b->nwarnings * sizeof *warnings);
 	into->nwarnings += b->nwarnings;
 	if (into->kind != b->kind)
 		into->kind = HOLDINGS_VALUES;   /* mixed: weight sums are not checked against 1 across files */

@@ -74,7 +74,11 @@ int cli_load_universe(const char *cmd, const struct cli_universe *cu,
 		*out = NULL;
 		return rc;
 	}
-	return cu->no_check ? HC_OK : cli_data_check(cmd, cu, *out);
+	if (!cu->no_check && (rc = cli_data_check(cmd, cu, *out)) != HC_OK) {
+		hc_universe_free(*out);   /* --strict-data: nothing is computed from it */
+		*out = NULL;
+	}
+	return rc;
 }
 
 static int date_option(const char *cmd, const char *name, const char *text, int32_t *day)
