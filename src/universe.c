@@ -1184,12 +1184,16 @@ static int too_few(const struct universe *u, const char *name, int missing,
 		int n = snprintf(list + used, sizeof list - used, "%s'%s': %s",
 				 i ? "; " : "", u->dropped[i].id, u->dropped[i].reason);
 
-		if (n < 0 || (size_t)n >= sizeof list - used)
+		if (n < 0 || (size_t)n >= sizeof list - used) {
+			/* snprintf left a cut entry: drop it, so the list
+			 * ends at the last whole entry and "; ..." fits */
+			list[used] = '\0';
 			break;
+		}
 		used += (size_t)n;
 	}
-	if (u->ndropped > UNIVERSE_NAME_DROPPED_MAX && used + 8 < sizeof list)
-		strcat(list, "; ...");
+	if ((i < u->ndropped) && used + sizeof "; ..." <= sizeof list)
+		memcpy(list + used, "; ...", sizeof "; ...");
 	if (u->ndropped == 0)
 		return hc_error(err, HC_EDATA,
 			"%s: only %zu security in the file; expected at least 2",
