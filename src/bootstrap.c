@@ -85,17 +85,25 @@ static double uniform01(uint64_t *state)
 int hc_bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 		      size_t rep, size_t *idx, struct hc_error *err)
 {
+	return hc_bootstrap_indices_n(kind, t, t, block_length, seed, rep, idx, err);
+}
+
+int hc_bootstrap_indices_n(int kind, size_t t, size_t n, size_t block_length, uint64_t seed,
+			   size_t rep, size_t *idx, struct hc_error *err)
+{
 	uint64_t st = replicate_state(seed, rep);
 	size_t k, pos, l = block_length;
 
 	if (t == 0 || l < 1 || l > t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: expected 1 to %zu periods", l, t);
+	if (n == 0)
+		return HC_OK;
 	if (kind == BOOTSTRAP_BLOCK) {
 		/* Kuensch (1989): blocks start uniformly in 0..T-L. */
-		for (k = 0; k < t; k += l) {
+		for (k = 0; k < n; k += l) {
 			size_t start = (size_t)uniform_below(&st, t - l + 1), j;
 
-			for (j = 0; j < l && k + j < t; j++)
+			for (j = 0; j < l && k + j < n; j++)
 				idx[k + j] = start + j;
 		}
 		return HC_OK;
@@ -107,7 +115,7 @@ int hc_bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 	 * wrapping circularly. */
 	pos = (size_t)uniform_below(&st, t);
 	idx[0] = pos;
-	for (k = 1; k < t; k++) {
+	for (k = 1; k < n; k++) {
 		if (uniform01(&st) * (double)l < 1.0)
 			pos = (size_t)uniform_below(&st, t);
 		else
