@@ -422,7 +422,8 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 		return hc_error(err, HC_EUSAGE, "unknown horizon route %d", opt->route);
 	if (J.route == HC_HORIZON_WINDOWS && h > t)
 		return hc_error(err, HC_EUSAGE, "a horizon of %g years is %zu periods, longer than the sample's %zu: "
-				"overlapping windows need the horizon within the sample; the bootstrap builds longer paths",
+				"overlapping windows need the horizon (--years) within the sample; the stationary bootstrap "
+				"(--resample bootstrap or auto) builds longer paths",
 				opt->years, h, t);
 	if (opt->block_length > t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: expected 1 to %zu periods", opt->block_length, t);
