@@ -314,7 +314,7 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 			 "uniform over the %zu starts", r->periods, t - r->periods + 1);
 	else
 		snprintf(text, sizeof text, "stationary bootstrap (Politis & Romano, 1994) of whole periods, mean block "
-			 "length %zu periods%s", r->block_length,
+			 "length %zu period%s%s", r->block_length, r->block_length == 1 ? "" : "s",
 			 opt->block_length ? " (given)" : " (Politis & White, 2004, on the equal-weight universe's returns)");
 	if (hc_report_add_text(rep, "paths_from", "paths from", text))
 		goto done;
@@ -344,7 +344,7 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 		const char *wt = w == HC_HORIZON_REBALANCED ? "rebalanced" : "buy-and-hold";
 
 		snprintf(key, sizeof key, "universe_%s_p05", wkey[w]);
-		snprintf(title, sizeof title, "equal-weight universe, %s: wealth 5%%", wt);
+		snprintf(title, sizeof title, "equal-weight universe, %s: 5%%", wt);
 		if (hc_report_add_real(rep, key, title, u->p05, REPORT_STYLE_FIXED4))
 			goto done;
 		snprintf(key, sizeof key, "universe_%s_p50", wkey[w]);
