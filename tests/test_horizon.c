@@ -18,6 +18,7 @@
 #include <gsl/gsl_errno.h>
 
 #include "fixture.h"
+#include "heapcheck.h"
 #include "holdcount/bootstrap.h"
 #include "holdcount/horizon.h"
 #include "holdcount/memory.h"
@@ -261,14 +262,66 @@ static void test_horizon_refusals(void **state)
 	fixture_free(u);
 }
 
-int main(void)
+/* Allocation failure at every allocation in turn, on both routes: each
+ * failing run says HC_ENOMEM, leaves *out NULL and leaks nothing. */
+struct sweep {
+	const struct hc_source *src;
+	int route;
+	struct hc_horizon_result *r;
+};
+
+static int sweep_run(void *ctx, struct hc_error *err)
 {
+	struct sweep *w = ctx;
+	struct hc_horizon_options o;
+	size_t sizes[3] = { 1, 3, 6 };
+
+	hc_horizon_options_init(&o);
+	o.years = 1.5;
+	o.paths = 40;
+	o.threads = 1;
+	o.route = w->route;
+	return hc_horizon_run(&w->r, w->src, sizes, 3, &o, err);
+}
+
+static void sweep_release(void *ctx)
+{
+	struct sweep *w = ctx;
+
+	hc_horizon_result_free(w->r);
+	w->r = NULL;
+}
+
+static void sweep_failed(void *ctx)
+{
+	assert_null(((struct sweep *)ctx)->r);
+}
+
+static void test_horizon_allocation_failure(void **state)
+{
+	struct universe *u = fixture_random_universe(6, 24, 4);
+	struct sweep w = { NULL, HC_HORIZON_WINDOWS, NULL };
+	struct heapcheck_call call = { sweep_run, sweep_release, sweep_failed, &w };
+
+	(void)state;
+	assert_non_null(u);
+	w.src = fixture_series(u);
+	assert_true(heapcheck_sweep(&call) > 10);
+	w.route = HC_HORIZON_BOOTSTRAP;
+	assert_true(heapcheck_sweep(&call) > 10);
+	fixture_free(u);
+}
+
+int main(int argc, char **argv)
+{
+	heapcheck_rerun_without_tcache(argv);
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_horizon_two_securities_two_periods_by_hand),
 		cmocka_unit_test(test_horizon_pairs_of_three_by_hand),
 		cmocka_unit_test(test_horizon_rate_benchmark_and_total_loss),
 		cmocka_unit_test(test_horizon_threads_and_bootstrap_draws),
 		cmocka_unit_test(test_horizon_refusals),
+		cmocka_unit_test(test_horizon_allocation_failure),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);
