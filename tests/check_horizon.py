@@ -17,7 +17,12 @@ published example.
    probability of lagging; the sampled values must lie within 4.5 Monte
    Carlo standard errors (each comparison fails by chance with probability
    under 1e-5).
-3. Heaton, Polson & Witte (2017, "Why indexing works", Applied Stochastic
+3. The stationary bootstrap with mean block length 1 draws periods
+   independently (Politis & Romano, 1994), so the expected ending wealth
+   is a product of sample means: (1 + mu_S)^h rebalanced, the mean of
+   (1 + mu_i)^h buy-and-hold, enumerated over every N-subset; the sampled
+   means within 4.5 standard errors.
+4. Heaton, Polson & Witte (2017, "Why indexing works", Applied Stochastic
    Models in Business and Industry 33(6)), their example as quoted in
    issue 15: five stocks returning 10%, 10%, 10%, 10% and 50% -- 4 of the 5
    one-stock and 6 of the 10 two-stock portfolios lag the equal-weight
@@ -211,6 +216,33 @@ def enumeration():
                   "got %r exact %.12g" % (got, p))
 
 
+def bootstrap_expectation():
+    """With mean block length 1 the stationary bootstrap draws each period
+    independently and uniformly (Politis & Romano, 1994: a block continues
+    with probability 1 - 1/L = 0), so for a fixed portfolio S
+    E[prod_s (1 + r_S,p_s)] = (1 + mu_S)^h, mu_S the sample mean of its
+    return, and E over random S is the mean over every N-subset
+    (enumerated): rebalanced (1 + mean of the members' means)^h;
+    buy-and-hold the mean over securities of (1 + mu_i)^h.  The sampled
+    means must lie within 4.5 of their own standard errors."""
+    path = os.path.join(TMP, "horizon_iid.csv")
+    r = write(path, invented(6, 10, 31))
+    t, m = r.shape
+    h, sizes, paths = 15, [1, 2, 4, 6], 20000
+    out = horizon(path, sizes, paths, 8, h, "--block-length", "1")
+    check("bootstrap with L = 1", out["block_length"] == 1 and out["paths_from"].startswith("stationary bootstrap"),
+          out["paths_from"])
+    rows = {row["holdings"]: row for row in out["horizon"]}
+    mu = r.mean(axis=0)
+    for n in sizes:
+        exact = (np.mean([(1 + mu[list(c)].mean()) ** h for c in itertools.combinations(range(m), n)]),
+                 np.mean((1 + mu) ** h))
+        for w in range(2):
+            got, se = rows[n][W[w] + "_mean"], rows[n][W[w] + "_se"]
+            check("bootstrap expectation n=%d %s" % (n, W[w]), abs(got - exact[w]) <= 4.5 * se,
+                  "got %r exact %.12g (se %.3g)" % (got, exact[w], se))
+
+
 def heaton_polson_witte():
     path = os.path.join(TMP, "horizon_hpw.csv")
     r = write(path, np.array([[0.10, 0.10, 0.10, 0.10, 0.50], [0.0] * 5]))
@@ -234,9 +266,10 @@ same_draws(r, path, 2, ["--block-length", "3"])
 same_draws(r, path, 2, [])  # Politis & White's length, from the output
 same_draws(r, path, 1, ["--benchmark-rate", "4%"], rate=0.04)
 enumeration()
+bootstrap_expectation()
 heaton_polson_witte()
 if failures:
     print("\n".join(failures[:40]))
     print("%d failure(s)" % len(failures))
     sys.exit(1)
-print("check_horizon: numpy on the same draws (windows, bootstrap, rate), enumeration, Heaton-Polson-Witte: ok")
+print("check_horizon: numpy on the same draws (windows, bootstrap, rate), enumeration, bootstrap expectation, Heaton-Polson-Witte: ok")
