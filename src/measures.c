@@ -417,8 +417,10 @@ double hc_measures_log_growth(const double *d, size_t stride, size_t t, double s
 	return s.least > 0 ? lg : -INFINITY;
 }
 
-void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask, double log_growth_bar,
-			double *out, double *scratch)
+/* The series' mean, and its deviations from it into scratch: the one
+ * centring of plain returns, so that hc_measures_series and
+ * hc_measures_series_log_growth see a series with the same bits. */
+static double centre(const double *r, size_t stride, size_t t, double *scratch)
 {
 	long double s = 0;
 	double mean;
@@ -427,11 +429,26 @@ void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask,
 	for (k = 0; k < t; k++)
 		s += r[k * stride];
 	mean = (double)(s / t);
-	/* Deviations formed in scratch, which the pass then overwrites with
-	 * the returns in the same order (element k read before written). */
 	for (k = 0; k < t; k++)
 		scratch[k] = r[k * stride] - mean;
+	return mean;
+}
+
+void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask, double log_growth_bar,
+			double *out, double *scratch)
+{
+	/* Deviations formed in scratch, which the pass then overwrites with
+	 * the returns in the same order (element k read before written). */
+	double mean = centre(r, stride, t, scratch);
+
 	hc_measures_centred(scratch, 1, t, 1.0, mean, mask, log_growth_bar, out, scratch);
+}
+
+double hc_measures_series_log_growth(const double *r, size_t stride, size_t t, double *scratch)
+{
+	double mean = centre(r, stride, t, scratch);
+
+	return hc_measures_log_growth(scratch, 1, t, 1.0, mean);
 }
 
 /* ---- across portfolios ---- */

@@ -93,6 +93,11 @@ void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask,
  * quantity lag_universe compares. */
 double hc_measures_log_growth(const double *d, size_t stride, size_t t, double scale, double mean);
 
+/* The same of plain returns r, centred as hc_measures_series centres them
+ * (so a portfolio whose series has the benchmark's bits gets the
+ * benchmark's growth, and does not lag it); scratch holds t doubles. */
+double hc_measures_series_log_growth(const double *r, size_t stride, size_t t, double *scratch);
+
 /*
  * The k-th smallest (0-based) of x[0..n) by selection (Hoare's FIND,
  * 1961, CACM 4(7), Algorithm 65, median-of-three pivot), reordering x so
