@@ -65,6 +65,8 @@ static int sample(const struct hc_source *src, const struct hc_curve_options *op
 	if (rc == HC_OK && opt->measures)
 		rc = hc_measures_summarise(mc, res->measures_value, res->paths, sizes, nsizes, opt->measures,
 					   res->universe_measures, c->periods_per_year, err);
+	if (rc == HC_OK && opt->measures)
+		(*mc)->ragged = src->kind == HC_SOURCE_RAGGED;
 	hc_sampler_result_free(res);
 	if (rc == HC_OK) {
 		c->paths = opt->paths;

@@ -500,6 +500,8 @@ static int measure_counts(struct hc_enough *e, const struct hc_source *src, cons
 	if (rc == HC_OK)
 		rc = hc_measures_summarise(&e->measures, res->measures_value, res->paths, sizes, n, opt->measures,
 					   res->universe_measures, e->periods_per_year, err);
+	if (rc == HC_OK)
+		e->measures->ragged = src->kind == HC_SOURCE_RAGGED;
 	hc_sampler_result_free(res);
 	return rc;
 }

@@ -572,5 +572,12 @@ int hc_measures_report(const struct hc_measures_curve *c, struct report *r, stru
 			       "compounded return over the sample is below the equal-weight universe's. "
 			       "Definitions and sources: docs/measures.md"))
 		return HC_ENOMEM;
+	if (c->ragged && hc_report_add_note(r, "measures, history with gaps read period by period: a random "
+					    "portfolio's return each period is the equal-weight mean of the "
+					    "securities it holds alive then (a delisted holding is replaced by the "
+					    "next alive in its random order); the equal-weight universe, its value "
+					    "at N = M and the benchmark of lag_universe, is every security alive "
+					    "each period, equally weighted"))
+		return HC_ENOMEM;
 	return HC_OK;
 }

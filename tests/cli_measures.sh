@@ -54,6 +54,7 @@ for r in d["curve"]:
     assert r["es95_p05"] <= r["es95_p50"] <= r["es95_p95"], r
     assert r["es95_se"] > 0
 assert any("docs/measures.md" in c for c in d["cautions"])
+assert not any("read period by period" in c for c in d["cautions"])
 PY
 
 # Usage errors (exit 2), nothing on stdout.
@@ -79,6 +80,7 @@ cut -d, -f1-14 "$T/rall1.csv" | cmp -s - "$T/rplain.csv" || fail "ragged --measu
 import json, sys
 d = json.load(open(sys.argv[1]))
 assert "read period by period" in d["treatment"], d["treatment"]
+assert any(c.startswith("measures, history with gaps read period by period") for c in d["cautions"])
 assert 0 < d["universe_es95"] < 0.5 and 0 < d["universe_semidev_zero"] < 1, d
 rows = d["curve"]
 for r in rows:

@@ -126,6 +126,7 @@ struct hc_measures_curve {
 	struct hc_measure_point *pts;  /* npoints * HC_MEASURE_COUNT, row = count */
 	double universe[HC_MEASURE_COUNT]; /* the equal-weight universe's own value (N = M) */
 	double periods_per_year;       /* semi-deviations scaled by sqrt of this */
+	int ragged;                    /* drawn from a history read period by period (the report says so) */
 };
 
 /*
@@ -144,7 +145,8 @@ void hc_measures_curve_free(struct hc_measures_curve *c);
  * Append to t, whose rows are the same counts in the same order, five
  * columns per measure in mask, in enum order: KEY_mean, KEY_se, KEY_p05,
  * KEY_p50, KEY_p95; and to r the fields universe_KEY and a note on the
- * conventions.  HC_OK, HC_EUSAGE (row count differs), HC_ENOMEM.
+ * conventions (and, when c->ragged, one on what a portfolio and the
+ * universe are on a history read period by period).  HC_OK, HC_EUSAGE (row count differs), HC_ENOMEM.
  */
 int hc_measures_report(const struct hc_measures_curve *c, struct report *r, struct report_table *t);
 
