@@ -796,7 +796,6 @@ static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const 
 	for (k = 0; k < t; k++) {
 		double m = w->cnt[k] ? w->sum[k] / (double)w->cnt[k] : 0.0;
 		double l = ret && w->cnt[k] ? log1p_total(w->raw[k] / (double)w->cnt[k]) : 0.0;
-
 		double r = ser && w->cnt[k] ? held_return(p, k, w->cnt[k], w->raw[k]) : 0.0;
 
 		for (j = w->next[k]; j < ns; j++) {
