@@ -730,12 +730,13 @@ static int run_series(struct hc_enough *e, const struct hc_source *src, const st
 }
 
 /* A ragged history (HC_SOURCE_RAGGED): every exact rule on the per-period
- * curve (periodic.h), band and lag-share from ragged random portfolios in
- * stages, the interval of the exact rules from O(T) replicates and, with
+ * curve (periodic.h), band, lag-share and alexeev-tapon-sampled from ragged
+ * random portfolios in stages, the interval of the exact rules from O(T) replicates and, with
  * bootstrap_sampled, of the sampled ones from re-summed replicates. */
 static int run_ragged(struct hc_enough *e, const struct hc_source *src, const struct moments *mo,
 		      const struct hc_enough_options *opt, struct hc_error *err)
 {
+	static const int which[3] = { RULES_BAND, RULES_LAG_SHARE, RULES_ALEXEEV_TAPON_SAMPLED };
 	const struct hc_periodic *p = src->per;
 	const struct rules_config *cfg = &opt->rules;
 	struct bootstrap_options bo;
@@ -753,14 +754,15 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 
 		if (RULES_FLAG(r->rule) & RULES_EXACT_MASK)
 			rc = hc_periodic_rule(cfg, r->rule, &p->curve, src->periods_per_year, r, err);
-		else if (r->rule == RULES_ALEXEEV_TAPON || r->rule == RULES_ALEXEEV_TAPON_SAMPLED) {
-			/* Neither the exact spread nor ragged sampling of this
-			 * rule exists period by period. */
+		else if (r->rule == RULES_ALEXEEV_TAPON) {
+			/* The gamma approximation needs the exact spread of the
+			 * portfolio variance, which period by period is not
+			 * computed (it needs the M x M matrix). */
 			r->defined = r->met = 0;
 			r->count = 0;
 			r->value = NAN;
-			snprintf(r->note, sizeof r->note, "not available for a history read period by period (ragged); "
-				 "--missing complete or pairwise gives it");
+			snprintf(r->note, sizeof r->note, "not available period by period (ragged): needs the exact spread "
+				 "of the variance, not computed there; alexeev-tapon-sampled gives the rule");
 		}
 	}
 	if (rc)
@@ -771,7 +773,7 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	so.threads = opt->threads;
 	so.periods_per_year = src->periods_per_year;
 	if (cfg->selected & RULES_SAMPLED_MASK) {
-		hc_progress_begin(&opt->progress, "sampling random portfolios for the band and lag-share rules",
+		hc_progress_begin(&opt->progress, "sampling random portfolios for the sampled rules",
 				  "sampling", "paths");
 		so.progress = opt->progress.update;
 		so.progress_ctx = opt->progress.ctx;
@@ -779,10 +781,9 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 		hc_progress_end(&opt->progress);
 		if (rc)
 			return rc;
-		for (k = 0; k < 2; k++)
+		for (k = 0; k < 3; k++)
 			for (j = 0; j < e->nrules; j++)
-				if (e->rules[j].rule == (k == 0 ? RULES_BAND : RULES_LAG_SHARE) &&
-				    (cfg->selected & RULES_FLAG(e->rules[j].rule)))
+				if (e->rules[j].rule == which[k] && (cfg->selected & RULES_FLAG(which[k])))
 					e->rules[j] = sr[k];
 		e->paths = opt->paths;
 	}
