@@ -100,7 +100,7 @@ static int add_fields(struct report *r, const struct hc_enough *e, const struct 
 		bad |= hc_report_add_text(r, "bootstrap", "bootstrap", hc_bootstrap_kind_name(e->kind));
 		bad |= hc_report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
 		bad |= hc_report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
-		if (e->clustering_lags) {   /* not for a history read period by period */
+		if (e->clustering_lags) {
 			bad |= hc_report_add_real(r, "clustering_q", "volatility clustering: McLeod-Li Q",
 						  e->clustering_q, REPORT_STYLE_FIXED2);
 			bad |= hc_report_add_int(r, "clustering_lags", "McLeod-Li lags", (long long)e->clustering_lags);
@@ -191,7 +191,8 @@ static int add_coverage_notes(struct report *r, const struct hc_enough *e)
 	return bad;
 }
 
-static int add_notes(struct report *r, const struct hc_enough *e, const struct hc_source *src)
+static int add_notes(struct report *r, const struct hc_enough *e, const struct hc_source *src,
+		     const struct hc_enough_options *opt)
 {
 	double p = e->periods_per_year;
 	char text[700];
@@ -223,12 +224,18 @@ static int add_notes(struct report *r, const struct hc_enough *e, const struct h
 		bad |= hc_report_add_note(r, text);
 	}
 	if (src && src->kind == HC_SOURCE_RAGGED && e->bootstrapped)
-		bad |= hc_report_add_note(r, "ragged history: each replicate of the exact rules sums the drawn "
-				       "periods' cross-sections (O(T) a replicate) with every security centred on its "
-				       "full-sample mean, not re-centred on the replicate; --bootstrap-sampled re-sums "
-				       "and re-centres each replicate before sampling it; the intervals are percentiles of "
-				       "the replicates' counts whatever --interval says, and the block length is "
-				       "round(T^(1/3)) unless --block-length gives one");
+		bad |= hc_report_add_note(r, opt->interval == HC_ENOUGH_INTERVAL_PERCENTILE
+			? "ragged history: each replicate of the exact rules sums the drawn periods' cross-sections "
+			  "(O(T) a replicate) with every security centred on its full-sample mean, not re-centred on "
+			  "the replicate; --bootstrap-sampled re-sums and re-centres each replicate before sampling it; "
+			  "the measured coverage quoted above is that of complete histories"
+			: "ragged history: each replicate of the exact rules sums the drawn periods' cross-sections "
+			  "(O(T) a replicate) with every security centred on its full-sample mean, not re-centred on "
+			  "the replicate; --bootstrap-sampled re-sums and re-centres each replicate before sampling it; "
+			  "the intervals are percentiles of the replicates' counts, not the --interval asked for: the "
+			  "studentized and BCa intervals are built on the two averages of complete data, and period by "
+			  "period a rule's count depends on every alive count's sums; the measured coverage quoted "
+			  "above is that of the percentile interval on complete histories");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -290,8 +297,10 @@ static void policy_universe(const struct hc_enough *e, const struct hc_source *s
 	const struct universe *u = src ? src->u : NULL;
 
 	if (src && src->kind == HC_SOURCE_RAGGED)
-		snprintf(buf, len, "%zu securities from %s, gaps kept, read period by period (each period the "
-			 "securities alive then)", e->m, u && u->source ? u->source : "the universe file");
+		snprintf(buf, len, "%zu securities from %s, in the survivorship-free per-period treatment (each "
+			 "period the securities alive then, delisted ones included; securities alive per period: "
+			 "fewest %zu, median %zu, most %zu)", e->m, u && u->source ? u->source : "the universe file",
+			 src->per->alive_min, src->per->alive_median, src->per->alive_max);
 	else if (u && u->has_missing)
 		snprintf(buf, len, "%zu securities from %s, gaps kept, pairwise-complete covariances%s", e->m,
 			 u->source ? u->source : "the universe file",
@@ -370,7 +379,7 @@ static int add_policy(struct report *r, struct hc_enough *e, const struct hc_sou
 {
 	const struct rule_result *p;
 	const char *reason;
-	char period[160], uni[400], on[600], basis[200], text[1800];
+	char period[160], uni[900], on[1100], basis[200], text[2400];
 	size_t n;
 	int fallback, at_upper, bad = 0;
 
@@ -508,7 +517,7 @@ static int build_report(struct hc_enough *e, const struct hc_source *src,
 
 	if (!r || add_fields(r, e, src) || (src && hc_strata_use_report(r, opt->strata)) ||
 	    hc_rules_report(r, e->rules, e->nrules, err) || measures_table(r, e) || add_policy(r, e, src, opt) ||
-	    add_notes(r, e, src)) {
+	    add_notes(r, e, src, opt)) {
 		hc_report_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory building the report");
 	}
@@ -797,6 +806,14 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	bo.block_length = opt->block_length;
 	bo.seed = opt->seed;
 	bo.threads = opt->threads;
+	/* The McLeod-Li check on the equal-weight alive portfolio's centred
+	 * returns, and the block length from the per-period series, as on
+	 * complete data. */
+	e->clustering_lags = 0;
+	hc_bootstrap_mcleod_li(p->mean, p->t, &e->clustering_lags, &e->clustering_q, &e->clustering_p);
+	if (!bo.block_length && (rc = hc_periodic_block_length(p, &bo.block_length, err)))
+		return rc;
+	e->auto_block = opt->block_length == 0;
 	snprintf(what, sizeof what, "bootstrap of the exact rules (%zu replicates)", opt->bootstrap);
 	hc_progress_begin(&opt->progress, what, "bootstrap", "replicates");
 	bo.progress = opt->progress.update;
@@ -807,7 +824,7 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 		return rc;
 	e->bootstrapped = 1;
 	e->replicates = bo.replicates;
-	e->block_length = bo.block_length ? bo.block_length : hc_bootstrap_default_block_length(p->t);
+	e->block_length = bo.block_length;
 	e->kind = bo.kind;
 	e->interval = HC_ENOUGH_INTERVAL_PERCENTILE;   /* the ragged replicates' percentiles only */
 	if (opt->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {

@@ -583,6 +583,23 @@ static void boot_path(void *job, void *ws, size_t r)
 			hc_periodic_rule_count(j->cfg, j->res[j->which[q]].rule, &w->c, j->ppy, &cnt) == 1 ? cnt : 0;
 }
 
+int hc_periodic_block_length(const struct hc_periodic *p, size_t *length, struct hc_error *err)
+{
+	double *x = hc_mallocarray(p->t, sizeof *x), l1, l2, l;
+	size_t t;
+
+	if (!x)
+		return hc_error(err, HC_ENOMEM, "out of memory for the block length");
+	for (t = 0; t < p->t; t++)
+		x[t] = p->mean[t] * p->mean[t];
+	l1 = hc_bootstrap_politis_white(x, p->t);
+	l2 = hc_bootstrap_politis_white(p->cross, p->t);
+	hc_free(x);
+	l = floor(fmax(l1, l2) + 0.5);
+	*length = l < 1 ? 1 : l > (double)p->t ? p->t : (size_t)l;
+	return HC_OK;
+}
+
 int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_periodic *p,
 			  const struct bootstrap_options *bopt, double ppy,
 			  struct rule_result *res, size_t nres, struct hc_error *err)

@@ -143,6 +143,15 @@ int hc_periodic_rule(const struct rules_config *cfg, int rule,
 		     struct rule_result *res, struct hc_error *err);
 
 /*
+ * The data-driven expected block length of the per-period route (Politis &
+ * White, 2004, with Patton, Politis & White, 2009: bootstrap.h): the larger
+ * of the lengths of the two per-period series the curve is a mean of, the
+ * squared mean xbar_t^2 and the cross-sectional variance s2_t, rounded,
+ * within 1..T.  HC_ENOMEM only.
+ */
+int hc_periodic_block_length(const struct hc_periodic *p, size_t *length, struct hc_error *err);
+
+/*
  * Bootstrap interval of the exact rules among res[0..nres-1]: B replicates
  * of the periods drawn as bootstrap.h draws them (hc_bootstrap_indices,
  * same kind, block length and seed, so the replicates are the complete-data
