@@ -670,8 +670,7 @@ int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 		rebuilt += r->windows[j].recomputed;
 	rc |= hc_report_add_int(rep, "window", "window (periods)", (long long)r->window);
 	if (r->step_months)
-		rc |= hc_report_add_int(rep, "step_months", "step (calendar months; windows end at a month's last "
-				      "period, the newest at the last)", (long long)r->step_months);
+		rc |= hc_report_add_int(rep, "step_months", "step (calendar months)", (long long)r->step_months);
 	else
 		rc |= hc_report_add_int(rep, "step", "step (periods)", (long long)r->step);
 	rc |= hc_report_add_real(rep, "periods_per_year", "periods per year", r->periods_per_year,
