@@ -353,7 +353,7 @@ static int add_counts(struct report *r, size_t total, const size_t *count, const
 	char key[48], title[64];
 	int k;
 
-	if (hc_report_add_int(r, "data_check_findings", "data-check findings (holdcount check lists them)",
+	if (hc_report_add_int(r, "data_check_findings", "data-check findings",
 			      (long long)total))
 		return HC_ENOMEM;
 	if (!total)
