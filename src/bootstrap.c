@@ -581,11 +581,10 @@ void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, doubl
 	}
 }
 
-/* McLeod & Li (1983): Ljung-Box on the squared centred row sums (the
- * equal-weight portfolio's squared return times M^2; the scale cancels). */
-void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p)
+/* McLeod & Li (1983): Ljung-Box on the squares of the centred series r. */
+void hc_bootstrap_mcleod_li(const double *r, size_t n, size_t *lags, double *q, double *p)
 {
-	size_t n = b->t, h = *lags ? *lags : HC_BOOTSTRAP_CLUSTERING_LAGS, t, k;
+	size_t h = *lags ? *lags : HC_BOOTSTRAP_CLUSTERING_LAGS, t, k;
 	double mean = 0, den = 0, sum = 0;
 
 	*q = *p = NAN;
@@ -597,23 +596,29 @@ void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, doubl
 	if (n < 8)
 		return;
 	for (t = 0; t < n; t++)
-		mean += b->rowsum[t] * b->rowsum[t];
+		mean += r[t] * r[t];
 	mean /= (double)n;
 	for (t = 0; t < n; t++) {
-		double d = b->rowsum[t] * b->rowsum[t] - mean;
+		double d = r[t] * r[t] - mean;
 
 		den += d * d;
 	}
 	if (!(den > 0))
 		return;
 	for (k = 1; k <= h; k++) {
-		double c = 0, r;
+		double c = 0, rk;
 
 		for (t = k; t < n; t++)
-			c += (b->rowsum[t] * b->rowsum[t] - mean) * (b->rowsum[t - k] * b->rowsum[t - k] - mean);
-		r = c / den;
-		sum += r * r / (double)(n - k);
+			c += (r[t] * r[t] - mean) * (r[t - k] * r[t - k] - mean);
+		rk = c / den;
+		sum += rk * rk / (double)(n - k);
 	}
 	*q = (double)n * (double)(n + 2) * sum;
 	*p = gsl_cdf_chisq_Q(*q, (double)h);
+}
+
+/* The equal-weight portfolio's squared return times M^2: the scale cancels. */
+void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p)
+{
+	hc_bootstrap_mcleod_li(b->rowsum, b->t, lags, q, p);
 }

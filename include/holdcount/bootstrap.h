@@ -162,6 +162,10 @@ void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, doubl
  */
 #define HC_BOOTSTRAP_CLUSTERING_LAGS 12
 void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p);
+/* The same test on any series r[0..n-1] (its squares, centred on their
+ * mean): a ragged history passes its equal-weight alive portfolio's
+ * centred returns (periodic.h). */
+void hc_bootstrap_mcleod_li(const double *r, size_t n, size_t *lags, double *q, double *p);
 
 #ifdef __cplusplus
 }
