@@ -21,6 +21,7 @@
 
 #include "holdcount/covmatrix.h"
 #include "holdcount/curve.h"
+#include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 
 /* What the funds' risk comes from: a return history or a covariance matrix. */
@@ -1008,6 +1009,7 @@ int hc_audit_run(struct audit_result **out, const struct holdings *h,
 		return rc;
 	(*out)->t = hc_source_periods(s);
 	(*out)->input = input_text(s);
+	(*out)->source = s;
 	(*out)->annualised = s->annualised;
 	return HC_OK;
 }
@@ -1413,6 +1415,8 @@ static int fields(struct report *rep, const struct audit_result *a)
 		return HC_EINTERNAL;
 	if (hc_report_add_text(rep, "universe", "universe", a->universe_source ? a->universe_source : "") != HC_OK ||
 	    hc_report_add_text(rep, "input", "input", a->input ? a->input : "return history") != HC_OK ||
+	    (a->source && (hc_source_report_treatment(a->source, rep) != HC_OK ||
+			   hc_datacheck_report_kept(rep, a->source->u ? &a->source->u->checks : NULL) != HC_OK)) ||
 	    hc_report_add_text(rep, "holdings_file", "holdings", a->holdings_source ? a->holdings_source : "") != HC_OK ||
 	    hc_report_add_int(rep, "securities", "securities", (long long)a->m) != HC_OK ||
 	    (a->t ? hc_report_add_int(rep, "periods", "periods", (long long)a->t)

@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 #include "holdcount/periodic.h"
 #include "holdcount/sampler.h"
@@ -215,7 +216,7 @@ static int curve_fields(struct report *r, const struct hc_source *s, const char 
 			      "exact one in Monte Carlo standard errors"
 			    : "uniform random subsets without replacement; z compares the sampled mean "
 			      "variance with the exact one in Monte Carlo standard errors") ||
-	    (s->kind == HC_SOURCE_RAGGED && hc_source_report_treatment(s, r)))
+	    hc_source_report_treatment(s, r) || hc_datacheck_report_kept(r, s->u ? &s->u->checks : NULL))
 		return HC_ENOMEM;
 	return hc_curve_add_table(r, c, s->annualised);
 }

@@ -343,28 +343,62 @@ int hc_datacheck_report(struct report **out, const struct universe *u, const str
 	return HC_OK;
 }
 
-int hc_datacheck_add_counts(struct report *r, const struct universe *u, const struct datacheck_result *d)
+_Static_assert(DATACHECK_NKINDS == HC_UNIVERSE_CHECK_KINDS, "universe_checks holds one count a kind");
+
+/* The fields of the count, the same in the report folder and in every
+ * command's output: data_check_findings, then data_check_first and one
+ * data_check_KIND per kind found. */
+static int add_counts(struct report *r, size_t total, const size_t *count, const char *first)
 {
-	char text[320], key[48], title[64];
+	char key[48], title[64];
 	int k;
 
-	if (hc_report_add_int(r, "data_check_findings", "data-check findings", (long long)d->nfindings))
+	if (hc_report_add_int(r, "data_check_findings", "data-check findings",
+			      (long long)total))
 		return HC_ENOMEM;
-	if (!d->nfindings)
+	if (!total)
 		return HC_OK;
-	hc_datacheck_describe(&d->findings[0], u, text, sizeof text);
-	if (hc_report_add_text(r, "data_check_first", "the first finding", text))
+	if (hc_report_add_text(r, "data_check_first", "the first finding", first))
 		return HC_ENOMEM;
 	for (k = 0; k < DATACHECK_NKINDS; k++) {
-		if (!d->count[k])
+		if (!count[k])
 			continue;
 		snprintf(key, sizeof key, "data_check_%s", hc_datacheck_name(k));
 		for (char *c = key; *c; c++)
 			if (*c == '-')
 				*c = '_';
 		snprintf(title, sizeof title, "data-check findings: %s", hc_datacheck_name(k));
-		if (hc_report_add_int(r, key, title, (long long)d->count[k]))
+		if (hc_report_add_int(r, key, title, (long long)count[k]))
 			return HC_ENOMEM;
 	}
 	return HC_OK;
+}
+
+int hc_datacheck_add_counts(struct report *r, const struct universe *u, const struct datacheck_result *d)
+{
+	char text[320] = "";
+
+	if (d->nfindings)
+		hc_datacheck_describe(&d->findings[0], u, text, sizeof text);
+	return add_counts(r, d->nfindings, d->count, text);
+}
+
+void hc_datacheck_keep(struct universe *u, const struct datacheck_result *d)
+{
+	int k;
+
+	memset(&u->checks, 0, sizeof u->checks);
+	u->checks.run = 1;
+	u->checks.total = d->nfindings;
+	for (k = 0; k < DATACHECK_NKINDS; k++)
+		u->checks.count[k] = d->count[k];
+	if (d->nfindings)
+		hc_datacheck_describe(&d->findings[0], u, u->checks.first, sizeof u->checks.first);
+}
+
+int hc_datacheck_report_kept(struct report *r, const struct universe_checks *c)
+{
+	if (!c || !c->run)
+		return HC_OK;
+	return add_counts(r, c->total, c->count, c->first);
 }

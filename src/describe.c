@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "holdcount/covmatrix.h"
+#include "holdcount/datacheck.h"
 #include "holdcount/moments.h"
 
 /* One security's observed periods and annualised standard deviation, two
@@ -115,7 +116,7 @@ static int build(struct report *r, const struct hc_source *s, const struct momen
 			    : s->psd.repaired ? "pairwise-complete (data with gaps), repaired to the nearest positive "
 					   "semi-definite matrix"
 			    : u->has_missing ? "pairwise-complete (data with gaps)" : "complete data") ||
-	    (s->kind == HC_SOURCE_RAGGED && hc_source_report_treatment(s, r)) ||
+	    hc_source_report_treatment(s, r) || hc_datacheck_report_kept(r, &u->checks) ||
 	    hc_source_report_reading(s, r) ||
 	    add_averages(r, mo, p))
 		return HC_ENOMEM;

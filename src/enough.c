@@ -12,6 +12,7 @@
 #include <string.h>
 
 #include "holdcount/bootstrap.h"
+#include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 #include "holdcount/periodic.h"
 #include "holdcount/sampler.h"
@@ -58,16 +59,17 @@ static int add_source(struct report *r, const struct hc_enough *e, const struct 
 		bad |= hc_report_add_int(r, "securities", "securities", (long long)e->m);
 		bad |= hc_report_add_int(r, "securities_dropped", "securities dropped", (long long)u->ndropped);
 		bad |= hc_report_add_int(r, "periods", "periods", (long long)u->t);
-		if (src->kind == HC_SOURCE_RAGGED) {
+		if (src->kind == HC_SOURCE_RAGGED)
 			bad |= hc_report_add_text(r, "input", "input", "return history with gaps, read period by period");
-			bad |= hc_source_report_treatment(src, r);
-		} else if (u->has_missing)
+		else if (u->has_missing)
 			bad |= hc_report_add_text(r, "input", "input", src->psd.repaired
 				? "return history with gaps; pairwise-complete covariances, repaired to the nearest "
 				  "positive semi-definite matrix, for every rule but lag-share"
 				: e->paths ? "return history with gaps; pairwise-complete covariances, from which the band and "
 					    "alexeev-tapon-sampled rules draw their portfolios"
 				: "return history with gaps; pairwise-complete covariances");
+		bad |= hc_source_report_treatment(src, r);
+		bad |= hc_datacheck_report_kept(r, &u->checks);
 	} else if (src) {
 		bad |= hc_report_add_text(r, "universe", "universe", src->name);
 		bad |= hc_report_add_text(r, "input", "input", "covariance matrix");

@@ -28,8 +28,10 @@
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
+#include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/periodic.h"
@@ -385,7 +387,9 @@ static int window_one(struct job *jb, struct rolling_window *w, struct hc_error 
 	window_dates(w, jb->u, jb->opt->window);
 	if (jb->opt->missing == UNIVERSE_MISSING_KEEP)
 		return window_ragged(jb, w, err);
-	if (!jb->sliding || !s->valid || jb->since + 1 >= refresh || slide_examine(s, w->first))
+	/* calendar steps vary: a window that shares no period with the sums' rebuilds them */
+	if (!jb->sliding || !s->valid || jb->since + 1 >= refresh || w->first - s->at >= jb->opt->window ||
+	    slide_examine(s, w->first))
 		return window_scratch(jb, w, err);
 	slide_move(s, w->first);
 	if (slide_figures(s, &w->average_variance, &w->average_covariance, &w->average_correlation))
@@ -415,8 +419,10 @@ static int check_options(const struct universe *u, const struct rolling_options 
 		return hc_error(err, HC_EUSAGE,
 				"window of %zu periods is longer than the %zu periods of data; --window sets a shorter one",
 				opt->window, u->t);
-	if (opt->step < 1)
+	if (opt->step < 1 && !opt->step_months)
 		return hc_error(err, HC_EUSAGE, "window step of 0 periods; expected at least 1");
+	if (opt->step_months > 12 * 10000)
+		return hc_error(err, HC_EUSAGE, "window step of %zu months; expected at most 120000", opt->step_months);
 	if (opt->missing != UNIVERSE_MISSING_COMPLETE && opt->missing != UNIVERSE_MISSING_PAIRWISE &&
 	    opt->missing != UNIVERSE_MISSING_KEEP)
 		return hc_error(err, HC_EUSAGE,
@@ -434,12 +440,63 @@ static int check_options(const struct universe *u, const struct rolling_options 
 	return HC_OK;
 }
 
+/* The calendar month of a date, counted from year 0. */
+static long month_of(int32_t day)
+{
+	char d[11];
+
+	hc_universe_format_date(day, d);
+	return atol(d) * 12 + atol(d + 5) - 1;
+}
+
+/* The last period of each window, oldest first, into *ends (*n of them):
+ * by periods, every opt->step back from the last period; by calendar
+ * months (opt->step_months), the last period, then the last period dated
+ * in the month step_months before the previous target month, and so on,
+ * while a window of opt->window periods fits. */
+static int window_ends(const struct universe *u, const struct rolling_options *opt, size_t **ends, size_t *n)
+{
+	size_t t = u->t, w = opt->window, k, j, cap;
+	size_t *e;
+	long target;
+
+	*n = 0;
+	cap = opt->step_months ? t : (t - w) / opt->step + 1;
+	if (!(e = hc_mallocarray(cap, sizeof *e)))
+		return -1;
+	*ends = e;
+	if (!opt->step_months) {
+		for (j = 0; j < cap; j++)
+			e[j] = t - 1 - (cap - 1 - j) * opt->step;
+		*n = cap;
+		return 0;
+	}
+	e[(*n)++] = t - 1;
+	target = month_of(u->dates[t - 1]);
+	k = t - 1;
+	for (;;) {
+		target -= (long)opt->step_months;
+		while (k > 0 && month_of(u->dates[k]) > target)
+			k--;
+		if (month_of(u->dates[k]) > target || k + 1 < w)
+			break;
+		if (k != e[*n - 1])
+			e[(*n)++] = k;
+	}
+	for (j = 0; j < *n / 2; j++) {   /* oldest first */
+		size_t x = e[j];
+		e[j] = e[*n - 1 - j];
+		e[*n - 1 - j] = x;
+	}
+	return 0;
+}
+
 static int run_series(struct rolling_result **out, const struct universe *u,
 		      const struct rolling_options *opt, struct hc_error *err)
 {
 	struct rolling_result *r = NULL;
 	struct job jb;
-	size_t j;
+	size_t j, *ends = NULL;
 	int rc;
 
 	*out = NULL;
@@ -448,20 +505,24 @@ static int run_series(struct rolling_result **out, const struct universe *u,
 		return rc;
 	jb.u = u;
 	jb.opt = opt;
-	jb.sliding = opt->missing == UNIVERSE_MISSING_COMPLETE && opt->step < opt->window &&
+	jb.sliding = opt->missing == UNIVERSE_MISSING_COMPLETE && (opt->step_months || opt->step < opt->window) &&
 		     !opt->from_scratch;
 	r = hc_calloc(1, sizeof *r);
-	if (!r || (jb.sliding && slide_init(&jb.slide, u, opt->window))) {
+	if (!r || (jb.sliding && slide_init(&jb.slide, u, opt->window)) ||
+	    window_ends(u, opt, &ends, &r->nwindows) ||
+	    hc_universe_alive(u, &r->alive_min, &r->alive_median, &r->alive_max)) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for rolling windows over %zu x %zu returns",
 			      u->m, u->t);
 		goto cleanup;
 	}
 	r->window = opt->window;
-	r->step = opt->step;
+	r->step = opt->step_months ? 0 : opt->step;
+	r->step_months = opt->step_months;
+	r->missing = opt->missing;
+	r->checks = u->checks;
 	r->periods_per_year = u->periods_per_year;
 	r->replicates = opt->replicates;
 	r->rules = opt->rules.selected & RULES_EXACT_MASK;
-	r->nwindows = (u->t - opt->window) / opt->step + 1;
 	r->windows = hc_calloc(r->nwindows, sizeof *r->windows);
 	if (!r->windows) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for %zu windows", r->nwindows);
@@ -471,7 +532,7 @@ static int run_series(struct rolling_result **out, const struct universe *u,
 	 * last observation, and the oldest periods that do not fill a step
 	 * are the ones left out. */
 	for (j = 0; j < r->nwindows; j++) {
-		r->windows[j].first = (u->t - opt->window) - (r->nwindows - 1 - j) * opt->step;
+		r->windows[j].first = ends[j] + 1 - opt->window;
 		if ((rc = window_one(&jb, &r->windows[j], err)))
 			goto cleanup;
 		if (opt->progress && opt->progress(opt->progress_ctx, j + 1, r->nwindows)) {
@@ -483,6 +544,7 @@ static int run_series(struct rolling_result **out, const struct universe *u,
 	*out = r;
 	r = NULL;
 cleanup:
+	hc_free(ends);
 	slide_release(&jb.slide);
 	hc_rolling_result_free(r);
 	return rc;
@@ -607,13 +669,28 @@ int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 	for (j = 0; j < r->nwindows; j++)
 		rebuilt += r->windows[j].recomputed;
 	rc |= hc_report_add_int(rep, "window", "window (periods)", (long long)r->window);
-	rc |= hc_report_add_int(rep, "step", "step (periods)", (long long)r->step);
+	if (r->step_months)
+		rc |= hc_report_add_int(rep, "step_months", "step (calendar months)", (long long)r->step_months);
+	else
+		rc |= hc_report_add_int(rep, "step", "step (periods)", (long long)r->step);
 	rc |= hc_report_add_real(rep, "periods_per_year", "periods per year", r->periods_per_year,
 			      REPORT_STYLE_PLAIN);
 	rc |= hc_report_add_int(rep, "window_count", "windows", (long long)r->nwindows);
 	rc |= hc_report_add_int(rep, "windows_recomputed", "windows computed from scratch", (long long)rebuilt);
 	if (r->replicates)
 		rc |= hc_report_add_int(rep, "replicates", "bootstrap replicates", (long long)r->replicates);
+	rc |= hc_report_add_text(rep, "treatment", "treatment",
+			      r->missing == UNIVERSE_MISSING_KEEP
+			      ? "return history read window by window, each period of a window using the securities "
+				"alive then (survivorship-free); --missing complete keeps only securities complete in "
+				"the window"
+			      : r->missing == UNIVERSE_MISSING_PAIRWISE
+			      ? "each window: securities meeting --min-coverage in it, pairwise-complete covariances"
+			      : "each window: securities complete in it (survivors of the window only)");
+	rc |= hc_report_add_int(rep, "alive_min", "securities alive per period, fewest", (long long)r->alive_min);
+	rc |= hc_report_add_int(rep, "alive_median", "securities alive per period, median", (long long)r->alive_median);
+	rc |= hc_report_add_int(rep, "alive_max", "securities alive per period, most", (long long)r->alive_max);
+	rc |= hc_datacheck_report_kept(rep, &r->checks);
 	t = hc_report_add_table(rep, "windows", "rolling windows");
 	if (rc || !t)
 		return hc_error(err, HC_ENOMEM, "out of memory for the rolling report");

@@ -7,6 +7,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 #include "holdcount/periodic.h"
 
@@ -123,6 +124,18 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	s->name = u->source;
 	s->periods_per_year = u->periods_per_year;
 	s->annualised = 1;
+	/* the data checks (datacheck.h), unless the caller ran them already:
+	 * every analysis's output carries their count */
+	if (!u->checks.run) {
+		struct datacheck_result *d = NULL;
+
+		if ((rc = hc_datacheck_run(&d, u, err)) != HC_OK) {
+			hc_source_free(s);
+			return rc;
+		}
+		hc_datacheck_keep(u, d);
+		hc_datacheck_free(d);
+	}
 	/* With gaps left no portfolio has a complete return series, so random
 	 * portfolios and fund variances come from the pairwise-complete
 	 * covariances, when they form a valid matrix (or from its repair, which
@@ -299,15 +312,23 @@ int hc_source_report_treatment(const struct hc_source *s, struct report *r)
 	const struct hc_periodic *p = s->per;
 	const char *text;
 
+	size_t lo, mid, hi;
+
 	switch (s->kind) {
 	case HC_SOURCE_RAGGED:
 		break;
 	case HC_SOURCE_SERIES:
-		text = "complete return series";
-		return hc_report_add_text(r, "treatment", "treatment", text) ? HC_ENOMEM : HC_OK;
 	case HC_SOURCE_PAIRWISE:
-		text = "return history with gaps, read through pairwise-complete covariances";
-		return hc_report_add_text(r, "treatment", "treatment", text) ? HC_ENOMEM : HC_OK;
+		/* the same lines as a ragged history's: securities observed per period */
+		text = s->kind == HC_SOURCE_SERIES ? "complete return series"
+			: "return history with gaps, read through pairwise-complete covariances";
+		if (hc_universe_alive(s->u, &lo, &mid, &hi) ||
+		    hc_report_add_text(r, "treatment", "treatment", text) ||
+		    hc_report_add_int(r, "alive_min", "securities alive per period, fewest", (long long)lo) ||
+		    hc_report_add_int(r, "alive_median", "securities alive per period, median", (long long)mid) ||
+		    hc_report_add_int(r, "alive_max", "securities alive per period, most", (long long)hi))
+			return HC_ENOMEM;
+		return HC_OK;
 	default:
 		return HC_OK;
 	}

@@ -1581,6 +1581,7 @@ int hc_universe_apply_missing(struct universe **out, const struct universe *src,
 	u = derived_alloc(src, src->t);
 	if (!u)
 		return hc_error(err, HC_ENOMEM, "out of memory");
+	u->checks = src->checks;   /* the same history as read, under a policy */
 	/* securities src already left out (a date range, --exclude) stay listed */
 	for (i = 0, cap = 0; i < src->ndropped; i++)
 		if (add_dropped(u, &cap, src->dropped[i].id, src->dropped[i].reason)) {
@@ -1602,5 +1603,36 @@ int hc_universe_apply_missing(struct universe **out, const struct universe *src,
 		return rc;
 	}
 	*out = u;
+	return HC_OK;
+}
+
+static int size_cmp(const void *a, const void *b)
+{
+	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+
+	return (x > y) - (x < y);
+}
+
+int hc_universe_alive(const struct universe *u, size_t *min, size_t *median, size_t *max)
+{
+	size_t i, k, *n;
+
+	*min = *median = *max = 0;
+	if (!u->t)
+		return HC_OK;
+	if (!u->has_missing) {
+		*min = *median = *max = u->m;
+		return HC_OK;
+	}
+	if (!(n = hc_calloc(u->t, sizeof *n)))
+		return HC_ENOMEM;
+	for (i = 0; i < u->m; i++)
+		for (k = 0; k < u->t; k++)
+			n[k] += !isnan(u->x[i * u->t + k]);
+	qsort(n, u->t, sizeof *n, size_cmp);
+	*min = n[0];
+	*median = n[(u->t - 1) / 2];
+	*max = n[u->t - 1];
+	hc_free(n);
 	return HC_OK;
 }

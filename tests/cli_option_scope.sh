@@ -75,7 +75,7 @@ value() {
 	average-covariance) echo 0.0092 ;; average-sd) echo 20% ;; average-correlation) echo 0.3 ;;
 	securities) echo 40 ;;        strata) echo "$T/s.csv" ;;   strata-id-column) echo id ;;
 	strata-column) echo sector ;; per-stratum-max) echo 2 ;;   window) echo 24 ;;
-	step) echo 6 ;;               refresh) echo 8 ;;           periods) echo 36 ;;
+	step) echo 6 ;;  step-months) echo 3 ;;              refresh) echo 8 ;;           periods) echo 36 ;;
 	sector-names) echo alpha,beta,gamma ;; sector-prefix) echo grp- ;; id-prefix) echo Q ;;
 	from) echo 2000-01 ;;         to) echo 2030-12 ;;          exclude) echo S03 ;;
 	exclude-file) printf 'S04\n' >"$T/x.csv"; echo "$T/x.csv" ;;

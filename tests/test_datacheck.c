@@ -129,6 +129,66 @@ static void test_datacheck_finds_plants(void **state)
 	hc_universe_free(u);
 }
 
+/* A field's integer in a report, -1 when the report has no such field. */
+static long long field_int(const struct report *rep, const char *key)
+{
+	size_t i;
+
+	for (i = 0; i < rep->nfields; i++)
+		if (strcmp(rep->fields[i].key, key) == 0)
+			return rep->fields[i].value.integer;
+	return -1;
+}
+
+/* The count kept on the universe (hc_datacheck_keep) gives the same fields
+ * as the report folder's (hc_datacheck_add_counts): the total, the first
+ * finding, one field a kind found; nothing before the checks ran.  The
+ * plants above: 4 split-like returns, one each of the other five kinds. */
+static void test_datacheck_keeps_count(void **state)
+{
+	struct universe *u = planted();
+	struct datacheck_result *r = NULL;
+	struct report *kept = hc_report_alloc(), *folder = hc_report_alloc(), *none = hc_report_alloc();
+	struct hc_error err;
+	size_t i, lo, mid, hi;
+
+	(void)state;
+	assert_non_null(kept);
+	assert_non_null(folder);
+	assert_non_null(none);
+	assert_int_equal(hc_datacheck_report_kept(none, &u->checks), HC_OK);
+	assert_int_equal(none->nfields, 0);
+	assert_int_equal(hc_datacheck_run(&r, u, &err), HC_OK);
+	hc_datacheck_keep(u, r);
+	assert_int_equal(u->checks.total, 9);
+	assert_int_equal(hc_datacheck_report_kept(kept, &u->checks), HC_OK);
+	assert_int_equal(hc_datacheck_add_counts(folder, u, r), HC_OK);
+	assert_int_equal(kept->nfields, folder->nfields);
+	for (i = 0; i < kept->nfields; i++)
+		assert_string_equal(kept->fields[i].key, folder->fields[i].key);
+	assert_int_equal(field_int(kept, "data_check_findings"), 9);
+	assert_int_equal(field_int(kept, "data_check_split"), 4);
+	assert_int_equal(field_int(kept, "data_check_stale"), 1);
+	assert_int_equal(field_int(kept, "data_check_percents"), 1);
+	assert_int_equal(field_int(kept, "data_check_prices"), 1);
+	assert_int_equal(field_int(kept, "data_check_total_loss"), 1);
+	assert_int_equal(field_int(kept, "data_check_extreme"), 1);
+	/* securities alive per period: all 8, then three gaps, two in one period */
+	assert_int_equal(hc_universe_alive(u, &lo, &mid, &hi), HC_OK);
+	assert_true(lo == 8 && mid == 8 && hi == 8);
+	u->x[0 * T + 5] = NAN;
+	u->x[1 * T + 5] = NAN;
+	u->x[2 * T + 7] = NAN;
+	u->has_missing = 1;
+	assert_int_equal(hc_universe_alive(u, &lo, &mid, &hi), HC_OK);
+	assert_true(lo == 6 && mid == 8 && hi == 8);
+	hc_report_free(kept);
+	hc_report_free(folder);
+	hc_report_free(none);
+	hc_datacheck_free(r);
+	hc_universe_free(u);
+}
+
 /* A Sunday-to-Thursday week is five days a week too, not seven. */
 static void test_datacheck_sunday_thursday(void **state)
 {
@@ -182,6 +242,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_datacheck_finds_plants),
+		cmocka_unit_test(test_datacheck_keeps_count),
 		cmocka_unit_test(test_datacheck_sunday_thursday),
 		cmocka_unit_test(test_datacheck_demo_is_clean),
 	};

@@ -251,6 +251,8 @@ struct audit_result {
 	const char *input;          /* static: "return history", "covariance matrix", ... */
 	const char *universe_source;
 	const char *holdings_source;
+	const struct hc_source *source; /* borrowed, as universe_source: the report states how it
+	                            * was treated and its data checks' count; valid while it lives */
 };
 
 /*

@@ -123,6 +123,16 @@ int hc_datacheck_report(struct report **out, const struct universe *u, const str
  */
 int hc_datacheck_add_counts(struct report *r, const struct universe *u, const struct datacheck_result *d);
 
+/* Keep d's count on u (u->checks), so that the analyses that read u later
+ * carry it in their output. */
+void hc_datacheck_keep(struct universe *u, const struct datacheck_result *d);
+
+/* The fields of hc_datacheck_add_counts from a count kept on a universe
+ * (u->checks, hc_datacheck_keep); nothing when c is NULL or the checks did
+ * not run (a window or copy of the history, or a library caller that did
+ * not run them).  HC_OK, or HC_ENOMEM. */
+int hc_datacheck_report_kept(struct report *r, const struct universe_checks *c);
+
 #ifdef __cplusplus
 }
 #endif

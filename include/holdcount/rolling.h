@@ -58,7 +58,7 @@ typedef int (*rolling_progress_fn)(void *ctx, size_t done, size_t total);
 
 struct rolling_options {
 	size_t window;             /* W >= 2 periods */
-	size_t step;               /* >= 1 period */
+	size_t step;               /* >= 1 period (used when step_months is 0) */
 	int missing;               /* UNIVERSE_MISSING_COMPLETE, _PAIRWISE, or _KEEP: each window read
 	                            * period by period (periodic.h), securities alive then */
 	double min_coverage;       /* pairwise: fraction of the window (0, 1] */
@@ -69,9 +69,18 @@ struct rolling_options {
 	struct bootstrap_options boot; /* seed, kind, block length, threads (replicates ignored) */
 	rolling_progress_fn progress;
 	void *progress_ctx;
+	size_t step_months;        /* > 0: calendar windows.  The newest ends at the last period;
+	                            * each earlier one ends at the last period dated in the calendar
+	                            * month step_months months before the previous end's (for daily
+	                            * or weekly data the month's last trading day present, for
+	                            * monthly data the month end, for quarterly data with a step of
+	                            * a multiple of 3 the quarter end; a month with no period gives
+	                            * the last period before it).  Each window is the W periods
+	                            * ending at its end. */
 };
 
-/* Window 60, step 12, complete data, default rules, no bootstrap. */
+/* Window 60, step 12 periods (step_months 0; the command steps by calendar
+ * months unless --step is given), complete data, default rules, no bootstrap. */
 void hc_rolling_options_init(struct rolling_options *opt);
 
 struct rolling_window {
@@ -90,12 +99,16 @@ struct rolling_window {
 };
 
 struct rolling_result {
-	size_t window, step;
+	size_t window, step;       /* step: periods, 0 when the windows step by calendar months */
 	double periods_per_year;
 	size_t replicates;         /* 0 = no intervals */
 	unsigned rules;            /* RULES_FLAG mask of the exact rules evaluated */
 	size_t nwindows;
 	struct rolling_window *windows;
+	size_t step_months;        /* the calendar step, 0 when the windows step by periods */
+	int missing;               /* the policy each window applied */
+	size_t alive_min, alive_median, alive_max; /* securities observed per period, whole history */
+	struct universe_checks checks;  /* the history's data checks (copied from u->checks) */
 };
 
 /*
@@ -115,7 +128,10 @@ int hc_rolling_run(struct rolling_result **out, const struct hc_source *src,
 void hc_rolling_result_free(struct rolling_result *r);
 
 /*
- * Append the table "windows" to rep: window_start, window_end,
+ * Append the fields window, step (or step_months), how each window was
+ * treated (treatment, alive_min, alive_median, alive_max over the whole
+ * history) and the data checks' count when they ran on the history
+ * (datacheck.h), then the table "windows" to rep: window_start, window_end,
  * securities, average_variance, average_covariance, average_correlation,
  * floor_sd (annualised; floor_sd empty when c-bar <= 0), then count_<rule>
  * per evaluated rule ('-' written '_': count_near_floor), with bootstrap

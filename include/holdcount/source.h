@@ -106,6 +106,9 @@ void hc_source_options_init(struct hc_source_options *opt);
  * opt->ragged (its per-period sums, hc_periodic_alloc), else
  * HC_SOURCE_PAIRWISE, with its
  * pairwise-complete matrix built and checked when opt asks for it.
+ * The data checks (datacheck.h) run on u unless they ran already
+ * (u->checks.run), and their count is kept on u for every analysis's
+ * output (hc_datacheck_report_kept); they warn, they never refuse.
  * Errors: those of hc_covmatrix_from_universe; HC_EDATA "NAME: REFUSAL"
  * when the matrix is not positive semi-definite and repair was not asked;
  * HC_ENOMEM (budget u->max_bytes).  *out is NULL on failure.
@@ -193,7 +196,9 @@ int hc_source_report_psd(const struct hc_source *s, struct report *r);
  * HC_SOURCE_RAGGED_TREATMENT, and the fields alive_min, alive_median,
  * alive_max: securities alive per period; securities_complete: those with
  * no gap; securities_single_period when some were observed once only and
- * left out).  HC_OK, or HC_ENOMEM.
+ * left out; for complete series and pairwise-complete histories the
+ * treatment and alive_min, alive_median, alive_max counted from the
+ * history; nothing for a covariance matrix).  HC_OK, or HC_ENOMEM.
  */
 int hc_source_report_treatment(const struct hc_source *s, struct report *r);
 

@@ -99,6 +99,17 @@ struct universe_dropped {
 	char *reason;   /* e.g. "missing 14 of 240 periods" */
 };
 
+/* What the data checks (datacheck.h) found on this history, kept by
+ * hc_datacheck_keep so that every analysis's output can carry the count
+ * (hc_datacheck_report_kept).  run is 0 until they ran. */
+#define HC_UNIVERSE_CHECK_KINDS 6
+struct universe_checks {
+	int run;
+	size_t total;
+	size_t count[HC_UNIVERSE_CHECK_KINDS];   /* by enum datacheck_kind */
+	char first[320];                        /* the first finding, as hc_datacheck_describe words it */
+};
+
 struct universe {
 	size_t m;                   /* securities kept */
 	size_t t;                   /* periods (of returns) */
@@ -119,6 +130,8 @@ struct universe {
 	                             * 0 = from available memory); the steps that compute on it
 	                             * (moments.h, covmatrix.h) keep to it too, and windows and
 	                             * resamples inherit it */
+	struct universe_checks checks; /* the data checks' count (hc_datacheck_keep); kept by
+	                             * hc_universe_apply_missing, not by windows or resamples */
 };
 
 /*
@@ -181,6 +194,11 @@ long hc_universe_find(const struct universe *u, const char *id);
  * or 1.
  * Returns 0 when fewer than two dates. */
 double hc_universe_detect_periods(const int32_t *dates, size_t n);
+
+/* Securities observed (not NaN) per period: the fewest, the median
+ * (the ((t - 1) / 2)-th smallest) and the most over u's periods.  HC_OK, or
+ * HC_ENOMEM. */
+int hc_universe_alive(const struct universe *u, size_t *min, size_t *median, size_t *max);
 
 /* Parse an ISO 8601 calendar date YYYY-MM-DD (or YYYY-MM, taken as the
  * month's last day) into days since 1970-01-01; validates the day of month.

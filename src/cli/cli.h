@@ -389,7 +389,7 @@ int cli_restrict(const char *cmd, const struct cli_universe *cu, int missing, st
 /* The data checks before any figure (datacheck.h): the count and the
  * first finding on stderr as a warning, or with --strict-data as an error
  * (HC_EDATA).  cli_load_universe runs it unless cu->no_check. */
-int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct universe *u);
+int cli_data_check(const char *cmd, const struct cli_universe *cu, struct universe *u);
 
 /* Load path with the group's options (then cli_restrict and
  * cli_data_check); prints the loader's message ("holdcount CMD:

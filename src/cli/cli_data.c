@@ -197,8 +197,9 @@ int cli_restrict(const char *cmd, const struct cli_universe *cu, int missing, st
 }
 
 /* The data checks (datacheck.h) before any figure: a warning with the
- * count and the first finding on stderr, or under --strict-data an error. */
-int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct universe *u)
+ * count and the first finding on stderr, or under --strict-data an error;
+ * the count is kept on u for the output (hc_datacheck_report_kept). */
+int cli_data_check(const char *cmd, const struct cli_universe *cu, struct universe *u)
 {
 	struct datacheck_result *d = NULL;
 	struct hc_error err;
@@ -211,6 +212,7 @@ int cli_data_check(const char *cmd, const struct cli_universe *cu, const struct 
 			cmd, u->bad_cells, u->bad_cells == 1 ? "" : "s", u->bad_first);
 	if (hc_datacheck_run(&d, u, &err))
 		return cli_fail(cmd, &err);
+	hc_datacheck_keep(u, d);   /* the count goes into the command's output too */
 	if (d->nfindings) {
 		hc_datacheck_describe(&d->findings[0], u, first, sizeof first);
 		fprintf(stderr, "holdcount %s: %s: %zu data-check finding%s, the first: %s; 'holdcount check %s' "

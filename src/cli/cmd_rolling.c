@@ -17,14 +17,21 @@ struct rolling_opts {
 	struct cli_universe uni;
 	struct cli_output out;
 	struct cli_rules rul;      /* the rule options of `enough` and `report` */
-	size_t window, step, refresh, threads;
+	size_t window, step, step_months, refresh, threads;
 	uint64_t seed;
 };
 
 #define OWN(f) offsetof(struct rolling_opts, f)
 static const struct cli_option rolling_own[] = {
 	{ "window", 'w', CLI_COUNT, OWN(window), "W", "periods in each window", NULL, "60" },
-	{ "step", 0, CLI_COUNT, OWN(step), "S", "periods between the starts of two windows", NULL, "12" },
+	{ "step", 0, CLI_COUNT, OWN(step), "S",
+	  "periods between the ends of two windows, counted back from the last period (instead of "
+	  "--step-months)", NULL, "calendar months" },
+	{ "step-months", 0, CLI_COUNT, OWN(step_months), "M",
+	  "calendar months between the ends of two windows: the newest ends at the last period, each "
+	  "earlier one at the last period of the month M months before (a month's last trading day on "
+	  "daily data, the month end on monthly data)", NULL,
+	  "12, or 1 on weekly and daily data" },
 	{ "seed", 0, CLI_U64, OWN(seed), "S",
 	  "bootstrap seed; every window uses it, and the same seed gives the same output", NULL, "1" },
 	{ "threads", 0, CLI_THREADS, OWN(threads), "N",
@@ -76,8 +83,10 @@ const struct cli_command cli_command_rolling = {
 	"rolling", cmd_rolling,
 	"how the averages and the count needed move through rolling windows",
 	"UNIVERSE",
-	"Cuts the return history into windows of W periods, one starting every S periods, and "
-	"for each window gives its first and last dates, the securities kept (complete in the "
+	"Cuts the return history into windows of W periods anchored at the last date: the newest "
+	"ends at the last period, each earlier one at the last period of a calendar month "
+	"(--step-months M apart: 12 on monthly or slower data, 1 on weekly or daily data), or "
+	"with --step S every S periods back from the last. For each window it gives its first and last dates, the securities kept (complete in the "
 	"window, or those meeting --min-coverage with --missing pairwise), the average variance, "
 	"covariance and correlation, the floor sigma, and the count every exact rule recommends "
 	"(with --bootstrap, its 5%, 50% and 95% percentiles over resampled periods). Securities "
@@ -114,6 +123,13 @@ static int options(const struct rolling_opts *o, const struct cli_args *a,
 	hc_rolling_options_init(ro);
 	ro->window = o->window;
 	ro->step = o->step;
+	if (cli_given(a, "step") && cli_given(a, "step-months"))
+		return cli_usage_error("rolling", "--step counts periods and --step-months calendar months; give one");
+	if (cli_given(a, "step-months") && !o->step_months)
+		return cli_usage_error("rolling", "--step-months must be at least 1, found 0");
+	/* calendar steps unless --step counts periods; the default (step_months
+	 * 0 here) is chosen once the data's periods per year are known */
+	ro->step_months = cli_given(a, "step") ? 0 : o->step_months;
 	ro->refresh = o->refresh;
 	ro->missing = o->uni.missing == CLI_MISSING_PAIRWISE ? UNIVERSE_MISSING_PAIRWISE
 		    : o->uni.missing == CLI_MISSING_ALIVE ? UNIVERSE_MISSING_KEEP : UNIVERSE_MISSING_COMPLETE;
@@ -169,6 +185,8 @@ int cmd_rolling(int argc, char **argv)
 		struct hc_source src;
 
 		hc_source_init_series(&src, u);   /* every security as read */
+		if (!cli_given(&a, "step") && !ro.step_months)
+			ro.step_months = u->periods_per_year > 13 ? 1 : 12;
 		rc = hc_rolling_run(&res, &src, &ro, &err);
 	}
 	cli_progress_finish(&prog);
