@@ -205,7 +205,7 @@ int hc_describe(struct report **out, const struct hc_source *s, struct hc_error 
 	if ((rc = hc_moments_from_source(&mo, s, err)) != HC_OK)
 		return rc;
 	r = hc_report_alloc();
-	if (r && s->kind != HC_SOURCE_MATRIX && s->u->has_missing && !s->psd.repaired &&
+	if (r && s->kind == HC_SOURCE_PAIRWISE && s->u->has_missing && !s->psd.repaired &&
 	    (rc = psd_note(r, s, err)) != HC_OK) {
 		hc_report_free(r);
 		return rc;

@@ -284,6 +284,23 @@ expect 2 "holdcount curve: bad size list" -- curve "$T/u.csv" --sizes 1,,x
 expect 2 "holdcount curve: bad size list" -- curve "$T/u.csv" --sizes 5-2
 expect 2 "holdcount curve: unknown option '--pathz'" -- curve "$T/u.csv" --pathz 10
 
+# A ragged history where one security was delisted before another listed
+# (QA and QC share no period) is ordinary vendor data: read period by period,
+# every command that takes a history runs on it (describe once built the
+# pairwise matrix for a check that only the pairwise policy needs and refused
+# the pair).
+printf 'date,QA,QB,QC\n' >"$T/disjoint.csv"
+for row in 2021-01-31,0.01,0.02, 2021-02-28,-0.02,0.01, 2021-03-31,0.03,-0.01, 2021-04-30,0.00,0.02, \
+	2021-05-31,,0.01,0.02 2021-06-30,,-0.03,0.01 2021-07-31,,0.02,-0.02 2021-08-31,,0.01,0.04; do
+	echo "$row" >>"$T/disjoint.csv"
+done
+"$HC" describe "$T/disjoint.csv" >"$T/disjoint.txt" || fail "describe on a ragged history with a disjoint pair: exit $?"
+grep -q '^securities kept: *3$' "$T/disjoint.txt" || fail "describe disjoint: securities kept"
+grep -q '^securities alive per period, fewest: *2$' "$T/disjoint.txt" || fail "describe disjoint: fewest alive"
+for c in curve "enough --rules exact"; do
+	"$HC" $c "$T/disjoint.csv" >/dev/null || fail "$c on a ragged history with a disjoint pair: exit $?"
+done
+
 # --output: a failed run leaves no file (and an old file untouched).
 echo "earlier" >"$T/keep.csv"
 "$HC" curve "$T/u.csv" --sizes 1,6 -o "$T/keep.csv" 2>/dev/null
