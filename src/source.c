@@ -152,6 +152,18 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	if (s->kind == HC_SOURCE_RAGGED ? opt->need_fund_matrix || opt->repair_psd
 	    : s->kind == HC_SOURCE_PAIRWISE && (opt->need_matrix || opt->need_fund_matrix || opt->repair_psd)) {
 		rc = hc_covmatrix_from_universe(u, &cm, err);
+		if (rc == HC_EDATA && s->kind == HC_SOURCE_RAGGED && err &&
+		    strstr(err->message, "common period")) {
+			/* the pairwise matrix is asked of a ragged history only for
+			 * funds' variances (an audit): say why it needs the pair and
+			 * what the user can do */
+			size_t len = strlen(err->message);
+
+			snprintf(err->message + len, sizeof err->message - len,
+				 "; a fund's risk uses the pairwise-complete covariances of the whole universe, "
+				 "which need every pair of securities to share that many periods: narrow the "
+				 "sample with --from/--to, or leave one of the two out with --exclude");
+		}
 		if (rc == HC_OK) {
 			s->own_cm = cm;
 			s->cm = cm;
