@@ -15,6 +15,7 @@
 #include <gsl/gsl_randist.h>
 
 #include "holdcount/curve.h"
+#include "holdcount/curverun.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/periodic.h"
@@ -446,6 +447,93 @@ static void test_periodic_source_kind(void **state)
 	hc_source_free(s2);
 }
 
+/* The exact spread on complete data: hc_curve_pairwise_spread (the masked
+ * Gram products of the pairwise route) on the per-period curve gives the
+ * complete-data variance_sd of hc_curve_exact (design.md section 3) to
+ * 1e-12 relative, 0 at N = M. */
+static void test_periodic_spread_matches_complete_route(void **state)
+{
+	struct universe *u = make_universe(37, 61, 0, 11);
+	struct hc_periodic *p = NULL;
+	struct curve *full = NULL, *per = NULL;
+	struct moments mo, pmo;
+	struct hc_error err;
+	size_t sizes[37], n;
+
+	(void)state;
+	for (n = 0; n < 37; n++)
+		sizes[n] = n + 1;
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_curve_exact(&full, &mo, sizes, 37, 12.0, &err), HC_OK);
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_int_equal(hc_periodic_curve_exact(&per, p, sizes, 37, 12.0, &err), HC_OK);
+	assert_true(isnan(per->points[0].variance_sd));
+	assert_int_equal(hc_curve_pairwise_spread(per, u, &pmo, &err), HC_OK);
+	for (n = 0; n < 36; n++) {
+		assert_true(full->points[n].variance_sd > 0);
+		assert_true(rel(per->points[n].variance_sd, full->points[n].variance_sd) < 1e-12);
+	}
+	assert_true(per->points[36].variance_sd == 0.0 && full->points[36].variance_sd == 0.0);
+	hc_curve_free(full);
+	hc_curve_free(per);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* Where the pairwise matrix cannot be built the spread is refused with the
+ * reason, and the curve run keeps every other column: a security delisted
+ * before another listed (found before any product), and a memory budget
+ * too small for the M x M arrays. */
+static void test_periodic_spread_refusals(void **state)
+{
+	struct universe *u = make_universe(12, 40, 1, 23), *u2 = make_universe(12, 40, 1, 23);
+	struct hc_periodic *p = NULL;
+	struct curve *c = NULL;
+	struct hc_source *s = NULL;
+	struct hc_source_options so;
+	struct hc_curve_options co;
+	struct hc_curve_result *res = NULL;
+	struct moments pmo;
+	struct hc_error err;
+	size_t sizes[3] = {1, 2, 5}, k;
+
+	(void)state;
+	/* LIR001 delists after period 9, LIR002 lists at period 30 */
+	for (k = 10; k < 40; k++)
+		u->x[0 * 40 + k] = NAN;
+	for (k = 0; k < 30; k++)
+		u->x[1 * 40 + k] = NAN;
+	u->has_missing = 1;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_int_equal(hc_periodic_curve_exact(&c, p, sizes, 3, 12.0, &err), HC_OK);
+	assert_int_equal(hc_curve_pairwise_spread(c, u, &pmo, &err), HC_EDATA);
+	assert_non_null(strstr(err.message, "'LIR002' and 'LIR001' have only 0 common periods"));
+	assert_true(isnan(c->points[0].variance_sd));
+	/* the budget: the returns held plus less than the M x M arrays */
+	u2->max_bytes = (size_t)(12 * 40 * sizeof(double)) + 1000;
+	assert_int_equal(hc_curve_pairwise_spread(c, u2, &pmo, &err), HC_ENOMEM);
+	assert_non_null(strstr(err.message, "too large"));
+	hc_curve_free(c);
+	hc_periodic_free(p);
+	hc_universe_free(u2);
+	/* through the curve run: the column empty, the reason kept, the rest there */
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&s, u, &so, &err), HC_OK);
+	hc_curve_options_init(&co);
+	co.paths = 0;
+	assert_int_equal(hc_curve_run(&res, s, sizes, 3, &co, &err), HC_OK);
+	assert_int_equal(res->spread_built, 0);
+	assert_non_null(strstr(res->spread_reason, "not computed"));
+	assert_non_null(strstr(res->spread_reason, "common periods"));
+	for (k = 0; k < 3; k++) {
+		assert_true(isnan(res->curve->points[k].variance_sd));
+		assert_true(res->curve->points[k].expected_variance > 0);
+	}
+	hc_curve_result_free(res);
+	hc_source_free(s);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -458,6 +546,8 @@ int main(void)
 		cmocka_unit_test(test_periodic_sampler_matches_exact),
 		cmocka_unit_test(test_periodic_refuses_tiny),
 		cmocka_unit_test(test_periodic_source_kind),
+		cmocka_unit_test(test_periodic_spread_matches_complete_route),
+		cmocka_unit_test(test_periodic_spread_refusals),
 	};
 
 	return cmocka_run_group_tests(tests, NULL, NULL);
