@@ -451,21 +451,82 @@ static void blas_threaded_end(void)
  * subtract small numbers (Chan, Golub & LeVeque, 1983, The American
  * Statistician 37(3)).  Memory: three M x T copies and four M x M arrays.
  */
+/*
+ * Few gaps (at most 1 cell in PAIRWISE_SPARSE_SHARE): the sums over each
+ * pair's common periods from the gaps instead of two dense products.  Z is
+ * 0 at gaps, so the sum of z_i over the periods where j is observed is z_i's
+ * whole sum w1_i less its values at j's gaps:
+ *   (Z K')_ij = w1_i - sum_{k : j missing} z_ik,
+ * and the same for Z*Z with w2; O(M x gaps) instead of 4 M^2 T flops,
+ * threaded over j.  zt and z2t are Z' and (Z*Z)' (T x M, a period's values
+ * contiguous); sx and q get (Z K') and ((Z*Z) K') in the dense layout.
+ */
+#define PAIRWISE_SPARSE_SHARE 8
+#define PAIRWISE_TILE 64
+static void pairwise_sums_sparse(const struct universe *u, const double *zt, const double *z2t,
+				 const double *w1, const double *w2, double *sx, double *q)
+{
+	size_t m = u->m, t = u->t;
+	long jj, bb;
+
+	/* row j first holds G_j: the sums of every security at j's gaps */
+#pragma omp parallel for schedule(dynamic, 8)
+	for (jj = 0; jj < (long)m; jj++) {
+		size_t j = (size_t)jj, i, k;
+		double *g1 = sx + j * m, *g2 = q + j * m;
+
+		for (i = 0; i < m; i++)
+			g1[i] = g2[i] = 0;
+		for (k = 0; k < t; k++) {
+			const double *zk = zt + k * m, *z2k = z2t + k * m;
+
+			if (!isnan(u->x[j * t + k]))
+				continue;
+			for (i = 0; i < m; i++) {
+				g1[i] += zk[i];
+				g2[i] += z2k[i];
+			}
+		}
+	}
+	/* entry (i, j) = w_i - G_j[i]: a transpose, tile by tile */
+#pragma omp parallel for schedule(dynamic, 1)
+	for (bb = 0; bb < (long)((m + PAIRWISE_TILE - 1) / PAIRWISE_TILE); bb++) {
+		size_t i0 = (size_t)bb * PAIRWISE_TILE, i1 = i0 + PAIRWISE_TILE < m ? i0 + PAIRWISE_TILE : m, i, j;
+
+		for (i = i0; i < i1; i++) {
+			sx[i * m + i] = w1[i] - sx[i * m + i];
+			q[i * m + i] = w2[i] - q[i * m + i];
+			for (j = i + 1; j < m; j++) {
+				double gji = sx[j * m + i], gij = sx[i * m + j];
+				double hji = q[j * m + i], hij = q[i * m + j];
+
+				sx[i * m + j] = w1[i] - gji;
+				sx[j * m + i] = w1[j] - gij;
+				q[i * m + j] = w2[i] - hji;
+				q[j * m + i] = w2[j] - hij;
+			}
+		}
+	}
+}
+
 static int pairwise_matrix(const struct universe *u, double **out, long double *rsum,
 			   struct hc_error *err)
 {
-	size_t m = u->m, t = u->t, i, j, k, nmm, nmt;
-	double *a = NULL, *z = NULL, *ind = NULL, *z2 = NULL, *sx = NULL, *q = NULL;
+	size_t m = u->m, t = u->t, i, j, k, nmm, nmt, gaps = 0;
+	double *a = NULL, *z = NULL, *ind = NULL, *z2 = NULL, *sx = NULL, *q = NULL, *w1 = NULL, *w2 = NULL;
 	float *find = NULL, *cnt = NULL;
 	long double R = 0;
 	char b1[32], b2[32];
-	int rc = HC_OK;
+	int rc = HC_OK, sparse;
 
 	*out = NULL;
 	if (hc_mul_size(m, m, &nmm) || hc_mul_size(m, t, &nmt))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	if (t >= ((size_t)1 << 24))
 		return hc_error(err, HC_ENOMEM, "%zu periods are too many for pairwise counts", t);
+	for (k = 0; k < nmt; k++)
+		gaps += isnan(u->x[k]);
+	sparse = gaps <= nmt / PAIRWISE_SPARSE_SHARE;
 	a = hc_mallocarray(nmm, sizeof *a);
 	cnt = hc_mallocarray(nmm, sizeof *cnt);
 	find = hc_mallocarray(nmt, sizeof *find);
@@ -474,7 +535,9 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 	z = hc_mallocarray(nmt, sizeof *z);
 	ind = hc_mallocarray(nmt, sizeof *ind);
 	z2 = hc_mallocarray(nmt, sizeof *z2);
-	if (!a || !cnt || !find || !sx || !q || !z || !ind || !z2) {
+	w1 = hc_mallocarray(m, sizeof *w1);
+	w2 = hc_mallocarray(m, sizeof *w2);
+	if (!a || !cnt || !find || !sx || !q || !z || !ind || !z2 || !w1 || !w2) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
 		goto cleanup;
 	}
@@ -489,14 +552,22 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 				obs++;
 			}
 		mean = obs ? mean / (double)obs : 0;
+		w1[i] = w2[i] = 0;
 		for (k = 0; k < t; k++) {
 			int seen = !isnan(x[k]);
 			double d = seen ? x[k] - mean : 0.0;
 
 			z[i * t + k] = d;
-			z2[i * t + k] = d * d;
-			ind[i * t + k] = seen;
+			w1[i] += d;
+			w2[i] += d * d;
 			find[i * t + k] = (float)seen;
+			if (sparse) {   /* ind and z2 hold Z' and (Z*Z)', T x M */
+				ind[k * m + i] = d;
+				z2[k * m + i] = d * d;
+			} else {
+				ind[i * t + k] = seen;
+				z2[i * t + k] = d * d;
+			}
 		}
 	}
 	blas_threaded();
@@ -504,11 +575,15 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 	/* counts in single precision: sums of 0/1 are exact below 2^24 periods,
 	 * at half the cost of the double product */
 	cblas_ssyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0f, find, (int)t, 0.0f, cnt, (int)m);
-	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z, (int)t, ind, (int)t,
-		    0.0, sx, (int)m);
-	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z2, (int)t, ind, (int)t,
-		    0.0, q, (int)m);
+	if (!sparse) {
+		cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z, (int)t, ind,
+			    (int)t, 0.0, sx, (int)m);
+		cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z2, (int)t, ind,
+			    (int)t, 0.0, q, (int)m);
+	}
 	blas_threaded_end();
+	if (sparse)
+		pairwise_sums_sparse(u, ind, z2, w1, w2, sx, q);
 	/* every security's own variance first, so a constant one is named as such */
 	for (i = 0; i < m && rc == HC_OK; i++) {
 		double n = cnt[i * m + i], si = sx[i * m + i];
@@ -546,6 +621,8 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 		}
 	}
 cleanup:
+	hc_free(w1);
+	hc_free(w2);
 	hc_free(cnt);
 	hc_free(find);
 	hc_free(sx);
@@ -635,6 +712,37 @@ static int check_shape(const struct universe *u, struct hc_error *err)
 	if (u->m > INT32_MAX || u->t > INT32_MAX)
 		return hc_error(err, HC_ENOMEM, "universe of %zu x %zu is too large for BLAS", u->m, u->t);
 	return HC_OK;
+}
+
+int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, double **a,
+			       struct hc_error *err)
+{
+	long double R;
+	int rc;
+
+	memset(mo, 0, sizeof *mo);
+	*a = NULL;
+	if ((rc = check_shape(u, err)) ||
+	    (rc = check_budget(u, route_bytes(u, MOMENTS_ROUTE_PAIRWISE), "covariances", err)))
+		return rc;
+	if ((rc = pairwise_matrix(u, a, &R, err)))
+		return rc;
+	mo->m = u->m;
+	mo->route = MOMENTS_ROUTE_PAIRWISE;
+	if ((rc = sums_from_matrix(mo, *a, u->m, err)) != HC_OK) {
+		hc_free(*a);
+		*a = NULL;
+		memset(mo, 0, sizeof *mo);
+		return rc;
+	}
+	mo->average_correlation = (double)(R / ((long double)u->m * (u->m - 1)));
+	mo->t = u->t;
+	return HC_OK;
+}
+
+void hc_moments_blas_threaded(void)
+{
+	blas_threaded();
 }
 
 int hc_moments_covariance(const struct universe *u, double **a, struct hc_error *err)
