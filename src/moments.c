@@ -458,53 +458,32 @@ static void blas_threaded_end(void)
  * whole sum w1_i less its values at j's gaps:
  *   (Z K')_ij = w1_i - sum_{k : j missing} z_ik,
  * and the same for Z*Z with w2; O(M x gaps) instead of 4 M^2 T flops,
- * threaded over j.  zt and z2t are Z' and (Z*Z)' (T x M, a period's values
- * contiguous); sx and q get (Z K') and ((Z*Z) K') in the dense layout.
+ * threaded over i, each row z_i staying in cache while every j's gaps
+ * (off, idx: the missing periods of each security in turn) are gathered
+ * from it.  sx and q get (Z K') and ((Z*Z) K').
  */
 #define PAIRWISE_SPARSE_SHARE 8
-#define PAIRWISE_TILE 64
-static void pairwise_sums_sparse(const struct universe *u, const double *zt, const double *z2t,
+static void pairwise_sums_sparse(size_t m, size_t t, const double *z, const size_t *off, const uint32_t *idx,
 				 const double *w1, const double *w2, double *sx, double *q)
 {
-	size_t m = u->m, t = u->t;
-	long jj, bb;
+	long ii;
 
-	/* row j first holds G_j: the sums of every security at j's gaps */
-#pragma omp parallel for schedule(dynamic, 8)
-	for (jj = 0; jj < (long)m; jj++) {
-		size_t j = (size_t)jj, i, k;
-		double *g1 = sx + j * m, *g2 = q + j * m;
+#pragma omp parallel for schedule(static)
+	for (ii = 0; ii < (long)m; ii++) {
+		size_t i = (size_t)ii, j, p;
+		const double *zi = z + i * t;
 
-		for (i = 0; i < m; i++)
-			g1[i] = g2[i] = 0;
-		for (k = 0; k < t; k++) {
-			const double *zk = zt + k * m, *z2k = z2t + k * m;
+		for (j = 0; j < m; j++) {
+			double g1 = 0, g2 = 0;
 
-			if (!isnan(u->x[j * t + k]))
-				continue;
-			for (i = 0; i < m; i++) {
-				g1[i] += zk[i];
-				g2[i] += z2k[i];
+			for (p = off[j]; p < off[j + 1]; p++) {
+				double v = zi[idx[p]];
+
+				g1 += v;
+				g2 += v * v;
 			}
-		}
-	}
-	/* entry (i, j) = w_i - G_j[i]: a transpose, tile by tile */
-#pragma omp parallel for schedule(dynamic, 1)
-	for (bb = 0; bb < (long)((m + PAIRWISE_TILE - 1) / PAIRWISE_TILE); bb++) {
-		size_t i0 = (size_t)bb * PAIRWISE_TILE, i1 = i0 + PAIRWISE_TILE < m ? i0 + PAIRWISE_TILE : m, i, j;
-
-		for (i = i0; i < i1; i++) {
-			sx[i * m + i] = w1[i] - sx[i * m + i];
-			q[i * m + i] = w2[i] - q[i * m + i];
-			for (j = i + 1; j < m; j++) {
-				double gji = sx[j * m + i], gij = sx[i * m + j];
-				double hji = q[j * m + i], hij = q[i * m + j];
-
-				sx[i * m + j] = w1[i] - gji;
-				sx[j * m + i] = w1[j] - gij;
-				q[i * m + j] = w2[i] - hji;
-				q[j * m + i] = w2[j] - hij;
-			}
+			sx[i * m + j] = w1[i] - g1;
+			q[i * m + j] = w2[i] - g2;
 		}
 	}
 }
@@ -512,9 +491,10 @@ static void pairwise_sums_sparse(const struct universe *u, const double *zt, con
 static int pairwise_matrix(const struct universe *u, double **out, long double *rsum,
 			   struct hc_error *err)
 {
-	size_t m = u->m, t = u->t, i, j, k, nmm, nmt, gaps = 0;
+	size_t m = u->m, t = u->t, i, j, k, nmm, nmt, gaps = 0, *off = NULL;
 	double *a = NULL, *z = NULL, *ind = NULL, *z2 = NULL, *sx = NULL, *q = NULL, *w1 = NULL, *w2 = NULL;
 	float *find = NULL, *cnt = NULL;
+	uint32_t *idx = NULL;
 	long double R = 0;
 	char b1[32], b2[32];
 	int rc = HC_OK, sparse;
@@ -533,18 +513,25 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 	sx = hc_mallocarray(nmm, sizeof *sx);
 	q = hc_mallocarray(nmm, sizeof *q);
 	z = hc_mallocarray(nmt, sizeof *z);
-	ind = hc_mallocarray(nmt, sizeof *ind);
-	z2 = hc_mallocarray(nmt, sizeof *z2);
 	w1 = hc_mallocarray(m, sizeof *w1);
 	w2 = hc_mallocarray(m, sizeof *w2);
-	if (!a || !cnt || !find || !sx || !q || !z || !ind || !z2 || !w1 || !w2) {
+	if (sparse) {   /* the gaps' periods, security by security */
+		off = hc_mallocarray(m + 1, sizeof *off);
+		idx = hc_mallocarray(gaps ? gaps : 1, sizeof *idx);
+	} else {
+		ind = hc_mallocarray(nmt, sizeof *ind);
+		z2 = hc_mallocarray(nmt, sizeof *z2);
+	}
+	if (!a || !cnt || !find || !sx || !q || !z || !w1 || !w2 || (sparse ? !off || !idx : !ind || !z2)) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
 		goto cleanup;
 	}
+	if (sparse)
+		off[0] = 0;
 	for (i = 0; i < m; i++) {
 		const double *x = u->x + i * t;
 		double mean = 0;
-		size_t obs = 0;
+		size_t obs = 0, g = sparse ? off[i] : 0;
 
 		for (k = 0; k < t; k++)
 			if (!isnan(x[k])) {
@@ -561,14 +548,16 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 			w1[i] += d;
 			w2[i] += d * d;
 			find[i * t + k] = (float)seen;
-			if (sparse) {   /* ind and z2 hold Z' and (Z*Z)', T x M */
-				ind[k * m + i] = d;
-				z2[k * m + i] = d * d;
+			if (sparse) {
+				if (!seen)
+					idx[g++] = (uint32_t)k;
 			} else {
 				ind[i * t + k] = seen;
 				z2[i * t + k] = d * d;
 			}
 		}
+		if (sparse)
+			off[i + 1] = g;
 	}
 	blas_threaded();
 	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0, z, (int)t, 0.0, a, (int)m);
@@ -583,7 +572,7 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 	}
 	blas_threaded_end();
 	if (sparse)
-		pairwise_sums_sparse(u, ind, z2, w1, w2, sx, q);
+		pairwise_sums_sparse(m, t, z, off, idx, w1, w2, sx, q);
 	/* every security's own variance first, so a constant one is named as such */
 	for (i = 0; i < m && rc == HC_OK; i++) {
 		double n = cnt[i * m + i], si = sx[i * m + i];
@@ -621,6 +610,8 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 		}
 	}
 cleanup:
+	hc_free(off);
+	hc_free(idx);
 	hc_free(w1);
 	hc_free(w2);
 	hc_free(cnt);
