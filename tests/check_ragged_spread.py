@@ -139,6 +139,15 @@ if out is not None:
         if not (p["expected_variance"] and p["expected_variance"] > 0):
             fail("disjoint universe: n=%d expected_variance missing" % p["n"])
 
+# describe reads a ragged history from per-period sums: two securities that
+# never overlap are no reason to fail (it once built the pairwise matrix).
+r = subprocess.run([HOLDCOUNT, "describe", path2, "--format", "json", "-q"], capture_output=True, text=True)
+if r.returncode != 0:
+    fail("describe on the disjoint universe: exit %d: %s" % (r.returncode, r.stderr.strip()))
+elif json.loads(r.stdout).get("securities") != m:
+    fail("describe on the disjoint universe: securities %r, expected %d"
+         % (json.loads(r.stdout).get("securities"), m))
+
 if failures:
     print("\n".join(failures), file=sys.stderr)
     sys.exit(1)
