@@ -13,6 +13,12 @@
 # wall time and of CPU time (user + system, GNU time) are printed per
 # repeat and as medians.  THREADS (default 1) is passed as --threads: one
 # thread keeps the CPU ratio free of the other processes' load.
+#
+# RAGGED=1 runs the same on a ragged copy of the universe (read period by
+# period, --missing alive, the default for a file with gaps): every third
+# security lists up to 80 months late, every fourth delists up to 80 months
+# early (bench/gen_universe.py's file, cells blanked, seeded);
+# PATHS (default 10000) sets the paths of both runs.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 REPEATS=${1:-5}
@@ -45,8 +51,24 @@ measure() {
 
 median() { sort -n | awk '{a[NR] = $1} END {print (NR % 2) ? a[(NR + 1) / 2] : (a[NR / 2] + a[NR / 2 + 1]) / 2}'; }
 
-CMD=("$HC" curve "$WORK/u1000x240.csv" --paths 10000 --sizes "$SIZES" --seed 1 --format csv --quiet --threads "$THREADS")
-echo "machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg) (1, 5, 15 min); --threads $THREADS"
+U="$WORK/u1000x240.csv"
+if [ "${RAGGED:-0}" = 1 ]; then
+  U="$WORK/u1000x240-ragged.csv"
+  [ -s "$U" ] || "$PYTHON" - "$WORK/u1000x240.csv" "$U" <<'PY'
+import random, sys
+rows = [line.rstrip("\n").split(",") for line in open(sys.argv[1])]
+rng = random.Random(15)
+t, m = len(rows) - 1, len(rows[0]) - 1
+for i in range(m):
+    lo = rng.randrange(80) if i % 3 == 1 else 0
+    hi = t - rng.randrange(80) if i % 4 == 2 else t
+    for k in list(range(lo)) + list(range(hi, t)):
+        rows[k + 1][i + 1] = ""
+open(sys.argv[2], "w").write("\n".join(",".join(r) for r in rows) + "\n")
+PY
+fi
+CMD=("$HC" curve "$U" --paths "${PATHS:-10000}" --sizes "$SIZES" --seed 1 --format csv --quiet --threads "$THREADS")
+echo "machine: $(nproc) cores, load $(cut -d' ' -f1-3 /proc/loadavg) (1, 5, 15 min); --threads $THREADS; $U, ${PATHS:-10000} paths"
 wr=(); cr=()
 for r in $(seq 1 "$REPEATS"); do
   read -r sw sc < <(measure "$WORK/sd.csv" "${CMD[@]}")

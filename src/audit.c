@@ -1047,7 +1047,7 @@ static const struct {
 } fund_columns[FC_N] = {
 	{ "fund", "fund", REPORT_STYLE_PLAIN },
 	{ "holdings", "holdings", REPORT_STYLE_PLAIN },
-	{ "weight_sum", "weight sum", REPORT_STYLE_FIXED4 },
+	{ "weight_sum", "input total", REPORT_STYLE_FIXED4 },
 	{ "max_weight", "largest (net assets)", REPORT_STYLE_PERCENT },
 	{ "top10_share", "top 10 (net assets)", REPORT_STYLE_PERCENT },
 	{ "hhi", "HHI (invested, gross)", REPORT_STYLE_FIXED4 },

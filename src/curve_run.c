@@ -66,6 +66,8 @@ static int sample(const struct hc_source *src, const struct hc_curve_options *op
 	if (rc == HC_OK && opt->measures)
 		rc = hc_measures_summarise(mc, res->measures_value, res->paths, sizes, nsizes, opt->measures,
 					   res->universe_measures, c->periods_per_year, err);
+	if (rc == HC_OK && opt->measures)
+		(*mc)->ragged = src->kind == HC_SOURCE_RAGGED;
 	hc_sampler_result_free(res);
 	if (rc == HC_OK) {
 		c->paths = opt->paths;
@@ -404,11 +406,11 @@ static int check(const struct hc_source *src, const struct hc_curve_options *opt
 {
 	if (opt->measures && opt->paths == 0)
 		return hc_error(err, HC_EUSAGE, "--measures summarises random portfolios: it needs --paths above 0");
-	if (opt->measures && !hc_source_has_series(src))
-		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: complete return "
-				"series, not %s", src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
-				: src->kind == HC_SOURCE_RAGGED ? "a history with gaps read period by period (--missing "
-				"alive); --missing complete leaves out the securities with gaps"
+	/* a ragged history's portfolios have series too, period by period */
+	if (opt->measures && !hc_source_has_series(src) && src->kind != HC_SOURCE_RAGGED)
+		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: return series "
+				"(complete, or with gaps read period by period under --missing alive), not %s",
+				src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
 				: "a history with gaps under --missing pairwise");
 	if (!opt->strata || !opt->strata->map)
 		return HC_OK;

@@ -492,11 +492,16 @@ static int measure_counts(struct hc_enough *e, const struct hc_source *src, cons
 	so.progress = opt->progress.update;
 	so.progress_ctx = opt->progress.ctx;
 	hc_progress_begin(&opt->progress, "measures at the chosen counts", "sampling", "paths");
-	rc = hc_sampler_run(&res, src, sizes, n, &so, err);
+	/* a ragged history: at each period the first min(N, M_t) alive
+	 * securities of a random order (periodic.h) */
+	rc = src->kind == HC_SOURCE_RAGGED ? hc_periodic_sample(&res, src->per, src->u, 0, sizes, n, &so, err)
+					   : hc_sampler_run(&res, src, sizes, n, &so, err);
 	hc_progress_end(&opt->progress);
 	if (rc == HC_OK)
 		rc = hc_measures_summarise(&e->measures, res->measures_value, res->paths, sizes, n, opt->measures,
 					   res->universe_measures, e->periods_per_year, err);
+	if (rc == HC_OK)
+		e->measures->ragged = src->kind == HC_SOURCE_RAGGED;
 	hc_sampler_result_free(res);
 	return rc;
 }
@@ -828,11 +833,11 @@ static int check(const struct hc_source *src, const struct hc_enough_options *op
 
 	if (opt->measures && opt->paths == 0)
 		return hc_error(err, HC_EUSAGE, "--measures summarises random portfolios: it needs --paths above 0");
-	if (opt->measures && !hc_source_has_series(src))
-		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: complete return "
-				"series, not %s", src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
-				: src->kind == HC_SOURCE_RAGGED ? "a history with gaps read period by period (--missing "
-				"alive); --missing complete leaves out the securities with gaps"
+	/* a ragged history's portfolios have series too, period by period */
+	if (opt->measures && !hc_source_has_series(src) && src->kind != HC_SOURCE_RAGGED)
+		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: return series "
+				"(complete, or with gaps read period by period under --missing alive), not %s",
+				src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
 				: "a history with gaps under --missing pairwise");
 	if (strata_given(opt) && !(cfg->selected & RULES_SAMPLED_MASK))
 		return hc_error(err, HC_EUSAGE, "--strata applies to the sampled rules (band, lag-share, "

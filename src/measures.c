@@ -417,8 +417,10 @@ double hc_measures_log_growth(const double *d, size_t stride, size_t t, double s
 	return s.least > 0 ? lg : -INFINITY;
 }
 
-void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask, double log_growth_bar,
-			double *out, double *scratch)
+/* The series' mean, and its deviations from it into scratch: the one
+ * centring of plain returns, so that hc_measures_series and
+ * hc_measures_series_log_growth see a series with the same bits. */
+static double centre(const double *r, size_t stride, size_t t, double *scratch)
 {
 	long double s = 0;
 	double mean;
@@ -427,11 +429,26 @@ void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask,
 	for (k = 0; k < t; k++)
 		s += r[k * stride];
 	mean = (double)(s / t);
-	/* Deviations formed in scratch, which the pass then overwrites with
-	 * the returns in the same order (element k read before written). */
 	for (k = 0; k < t; k++)
 		scratch[k] = r[k * stride] - mean;
+	return mean;
+}
+
+void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask, double log_growth_bar,
+			double *out, double *scratch)
+{
+	/* Deviations formed in scratch, which the pass then overwrites with
+	 * the returns in the same order (element k read before written). */
+	double mean = centre(r, stride, t, scratch);
+
 	hc_measures_centred(scratch, 1, t, 1.0, mean, mask, log_growth_bar, out, scratch);
+}
+
+double hc_measures_series_log_growth(const double *r, size_t stride, size_t t, double *scratch)
+{
+	double mean = centre(r, stride, t, scratch);
+
+	return hc_measures_log_growth(scratch, 1, t, 1.0, mean);
 }
 
 /* ---- across portfolios ---- */
@@ -554,6 +571,13 @@ int hc_measures_report(const struct hc_measures_curve *c, struct report *r, stru
 			       "drawdown over the whole sample; lag_universe is the share of portfolios whose "
 			       "compounded return over the sample is below the equal-weight universe's. "
 			       "Definitions and sources: docs/measures.md"))
+		return HC_ENOMEM;
+	if (c->ragged && hc_report_add_note(r, "measures, history with gaps read period by period: a random "
+					    "portfolio's return each period is the equal-weight mean of the "
+					    "securities it holds alive then (a delisted holding is replaced by the "
+					    "next alive in its random order); the equal-weight universe, its value "
+					    "at N = M and the benchmark of lag_universe, is every security alive "
+					    "each period, equally weighted"))
 		return HC_ENOMEM;
 	return HC_OK;
 }

@@ -22,6 +22,7 @@
 
 #include "holdcount/memory.h"
 #include "holdcount/paths.h"
+#include "holdcount/threads.h"
 
 
 void hc_periodic_free(struct hc_periodic *p)
@@ -652,6 +653,8 @@ struct ragged_ws {
 	double *raw;          /* t: uncentred sums (returns wanted) */
 	double *acc;          /* nsizes */
 	double *lacc;         /* nsizes: sums of log(1 + p_t) */
+	double *ser;          /* nsizes * t: each size's return series (measures wanted), size-major */
+	double *mscratch;     /* t: the measures' deviations and selection */
 	gsl_rng *rng;
 };
 
@@ -664,14 +667,28 @@ static void ws_release(struct ragged_ws *w)
 	hc_free(w->raw);
 	hc_free(w->acc);
 	hc_free(w->lacc);
+	hc_free(w->ser);
+	hc_free(w->mscratch);
 	if (w->rng)
 		gsl_rng_free(w->rng);
 	memset(w, 0, sizeof *w);
 }
 
-static int ws_init(struct ragged_ws *w, size_t m, size_t t, size_t nsizes)
+static int ws_init(struct ragged_ws *w, size_t m, size_t t, size_t nsizes, int measures)
 {
+	size_t cells;
+
 	memset(w, 0, sizeof *w);
+	if (measures) {
+		if (hc_mul_size(nsizes, t, &cells))
+			return -1;
+		w->ser = hc_mallocarray(cells, sizeof *w->ser);
+		w->mscratch = hc_mallocarray(t, sizeof *w->mscratch);
+		if (!w->ser || !w->mscratch) {
+			ws_release(w);
+			return -1;
+		}
+	}
 	w->order = hc_mallocarray(m, sizeof *w->order);
 	w->cnt = hc_mallocarray(t, sizeof *w->cnt);
 	w->next = hc_mallocarray(t, sizeof *w->next);
@@ -694,24 +711,57 @@ static double log1p_total(double r)
 	return r > -1 ? log1p(r) : -INFINITY;
 }
 
+/* A path's random order of the m kept securities: a full Fisher-Yates
+ * shuffle (Durstenfeld, 1964, CACM 7(7), Algorithm 235) from seed. */
+static void ragged_order(gsl_rng *rng, size_t *order, size_t m, unsigned long seed)
+{
+	size_t i;
+
+	gsl_rng_set(rng, seed);
+	for (i = 0; i < m; i++)
+		order[i] = i;
+	for (i = 0; i + 1 < m; i++) {
+		size_t r = i + (size_t)gsl_rng_uniform_int(rng, m - i), tmp = order[i];
+
+		order[i] = order[r];
+		order[r] = tmp;
+	}
+}
+
+/* The portfolio's return in period k when it holds its first cnt alive
+ * securities, their raw sum raw: the equal-weight mean as observed; when
+ * it holds every security alive then, the universe's own (raw_mean, the
+ * same bits, so a portfolio of everything is the benchmark exactly). */
+static double held_return(const struct hc_periodic *p, size_t k, size_t cnt, double raw)
+{
+	return cnt == p->alive[k] ? p->raw_mean[k] : raw / (double)cnt;
+}
+
+/* What a path computes beyond the variance: returns (ret, NULL for none)
+ * and measures (mask 0 for none, into meas: ns rows of
+ * HC_MEASURE_COUNT). */
+struct ragged_out {
+	double *ret;
+	double ppy;
+	unsigned mask;
+	double log_growth_bar;
+	double *meas;
+};
+
 /* One path: a random order (Fisher-Yates), then the securities in that
  * order, each adding its centred returns to every period it is alive in,
- * until every period holds n_max or all it has. */
+ * until every period holds n_max or all it has.  With measures, each
+ * size's return series (the held securities' equal-weight mean return,
+ * as observed, each period) is kept in w->ser and handed to measures.h,
+ * the complete route's hook. */
 static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const struct universe *u,
 			size_t first, const size_t *sizes, size_t ns, unsigned long seed, double *out,
-			double *ret, double ppy)
+			const struct ragged_out *o)
 {
 	size_t i, j, k, t = p->t, nmax = sizes[ns - 1], open = t;
+	double *ret = o->ret, ppy = o->ppy, *ser = o->mask ? w->ser : NULL;
 
-	gsl_rng_set(w->rng, seed);
-	for (i = 0; i < p->m; i++)
-		w->order[i] = i;
-	for (i = 0; i + 1 < p->m; i++) {
-		size_t r = i + (size_t)gsl_rng_uniform_int(w->rng, p->m - i), tmp = w->order[i];
-
-		w->order[i] = w->order[r];
-		w->order[r] = tmp;
-	}
+	ragged_order(w->rng, w->order, p->m, seed);
 	memset(w->cnt, 0, t * sizeof *w->cnt);
 	memset(w->next, 0, t * sizeof *w->next);
 	memset(w->sum, 0, t * sizeof *w->sum);
@@ -735,6 +785,8 @@ static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const 
 				m = w->sum[k] / (double)w->cnt[k];
 				if (ret)
 					w->lacc[w->next[k]] += log1p_total(w->raw[k] / (double)w->cnt[k]);
+				if (ser)
+					ser[w->next[k] * t + k] = held_return(p, k, w->cnt[k], w->raw[k]);
 				w->acc[w->next[k]++] += m * m;
 				open -= w->next[k] == ns;
 			}
@@ -744,16 +796,22 @@ static void ragged_path(struct ragged_ws *w, const struct hc_periodic *p, const 
 	for (k = 0; k < t; k++) {
 		double m = w->cnt[k] ? w->sum[k] / (double)w->cnt[k] : 0.0;
 		double l = ret && w->cnt[k] ? log1p_total(w->raw[k] / (double)w->cnt[k]) : 0.0;
+		double r = ser && w->cnt[k] ? held_return(p, k, w->cnt[k], w->raw[k]) : 0.0;
 
 		for (j = w->next[k]; j < ns; j++) {
 			w->acc[j] += m * m;
 			w->lacc[j] += l;
+			if (ser)
+				ser[j * t + k] = r;
 		}
 	}
 	for (j = 0; j < ns; j++) {
 		out[j] = w->acc[j] / (double)(t - 1);
 		if (ret)
 			ret[j] = expm1(w->lacc[j] * ppy / (double)t);
+		if (ser)
+			hc_measures_series(ser + j * t, 1, t, o->mask, o->log_growth_bar, o->meas + j * HC_MEASURE_COUNT,
+					   w->mscratch);
 	}
 }
 
@@ -766,13 +824,14 @@ struct sample_job {
 	size_t nsizes;
 	const struct sampler_options *opt;
 	struct sampler_result *r;
+	double log_growth_bar;   /* the universe's, for lag_universe */
 };
 
 static int sample_ws_init(void *job, void *ws)
 {
 	const struct sample_job *j = job;
 
-	return ws_init(ws, j->p->m, j->p->t, j->nsizes);
+	return ws_init(ws, j->p->m, j->p->t, j->nsizes, j->r->measures != 0);
 }
 
 static void sample_ws_release(void *ws)
@@ -785,9 +844,13 @@ static void sample_path(void *job, void *ws, size_t k)
 	const struct sample_job *j = job;
 	struct sampler_result *r = j->r;
 
+	struct ragged_out o = {
+		r->annual_return ? r->annual_return + k * j->nsizes : NULL, j->opt->periods_per_year, r->measures,
+		j->log_growth_bar, r->measures_value ? r->measures_value + k * j->nsizes * HC_MEASURE_COUNT : NULL
+	};
+
 	ragged_path(ws, j->p, j->u, j->first, j->sizes, j->nsizes, hc_paths_seed32(j->opt->seed, k),
-		    r->variance + k * j->nsizes, r->annual_return ? r->annual_return + k * j->nsizes : NULL,
-		    j->opt->periods_per_year);
+		    r->variance + k * j->nsizes, &o);
 }
 
 int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
@@ -797,8 +860,9 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 {
 	struct sampler_result *r;
 	struct sample_job job;
-	size_t j, total;
-	int rc;
+	size_t j, total, cells = 0;
+	double need, *scratch;
+	int rc, threads;
 
 	*out = NULL;
 	if (opt->paths == 0 || opt->strata || nsizes == 0)
@@ -808,18 +872,44 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 			return hc_error(err, HC_EUSAGE, "sizes must ascend within 1..%zu (size %zu)", p->m, sizes[j]);
 	if (hc_mul_size(opt->paths, nsizes, &total))
 		return hc_error(err, HC_ENOMEM, "%zu paths of %zu sizes do not fit in memory", opt->paths, nsizes);
-	/* the result arrays within the universe's budget (memory.h), beside its numbers */
-	if ((rc = hc_memory_check(u->max_bytes, (double)u->m * (double)u->t * 8.0,
-				  (double)total * 8.0 * (opt->want_returns ? 2 : 1), err,
+	if (opt->measures && hc_mul_size(total, HC_MEASURE_COUNT, &cells))
+		return hc_error(err, HC_ENOMEM, "the measures of %zu sampled portfolios do not fit in memory", total);
+	/* the result arrays within the universe's budget (memory.h), beside its
+	 * numbers; with measures, their values and each thread's series of
+	 * every size (nsizes x T doubles a thread) */
+	need = (double)total * 8.0 * (opt->want_returns ? 2 : 1);
+	if (opt->measures) {
+		threads = hc_threads_usable(opt->threads, NULL);
+		need += (double)cells * 8.0 + (double)threads * ((double)nsizes + 1.0) * (double)p->t * 8.0;
+	}
+	if ((rc = hc_memory_check(u->max_bytes, (double)u->m * (double)u->t * 8.0, need, err,
 				  "%zu sampled portfolios (%zu paths of %zu sizes)", total, opt->paths, nsizes)))
 		return rc;
 	r = hc_calloc(1, sizeof *r);
 	if (!r || !(r->sizes = hc_mallocarray(nsizes, sizeof *r->sizes)) ||
 	    !(r->variance = hc_mallocarray(total, sizeof *r->variance)) ||
 	    !(r->feasible = hc_malloc(nsizes)) ||
-	    (opt->want_returns && !(r->annual_return = hc_mallocarray(total, sizeof *r->annual_return)))) {
+	    (opt->want_returns && !(r->annual_return = hc_mallocarray(total, sizeof *r->annual_return))) ||
+	    (opt->measures && !(r->measures_value = hc_mallocarray(cells, sizeof *r->measures_value)))) {
 		hc_sampler_result_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu sampled portfolios", total);
+	}
+	r->measures = opt->measures;
+	for (j = 0; j < HC_MEASURE_COUNT; j++)
+		r->universe_measures[j] = NAN;
+	job.log_growth_bar = NAN;
+	/* The universe's own measures (N = M): the equal-weight portfolio of
+	 * every security alive, each period (raw_mean), which is also the
+	 * benchmark lag_universe compares with. */
+	if (opt->measures) {
+		if (!(scratch = hc_mallocarray(p->t, sizeof *scratch))) {
+			hc_sampler_result_free(r);
+			return hc_error(err, HC_ENOMEM, "out of memory for %zu periods", p->t);
+		}
+		job.log_growth_bar = hc_measures_series_log_growth(p->raw_mean, 1, p->t, scratch);
+		hc_measures_series(p->raw_mean, 1, p->t, opt->measures, job.log_growth_bar, r->universe_measures,
+				   scratch);
+		hc_free(scratch);
 	}
 	r->paths = opt->paths;
 	r->nsizes = nsizes;
@@ -847,6 +937,19 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 		return rc;
 	}
 	*out = r;
+	return HC_OK;
+}
+
+int hc_periodic_order(uint64_t seed, size_t k, size_t m, size_t *order, struct hc_error *err)
+{
+	gsl_rng *rng;
+
+	if (m < 1)
+		return hc_error(err, HC_EUSAGE, "cannot order %zu securities", m);
+	if (!(rng = gsl_rng_alloc(gsl_rng_taus2)))
+		return hc_error(err, HC_ENOMEM, "out of memory for a random generator");
+	ragged_order(rng, order, m, hc_paths_seed32(seed, k));
+	gsl_rng_free(rng);
 	return HC_OK;
 }
 

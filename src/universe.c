@@ -829,7 +829,7 @@ static int long_record(struct loader *L, size_t nfields, size_t line,
 			"%s:%zu:%zu: row has %zu fields; expected %zu as in the header",
 			L->name, line, nfields, nfields, L->ncols);
 	if (L->nlrows == L->cap_lrows) {
-		size_t nc = L->cap_lrows + 1;
+		size_t nc;
 		double need;
 
 		if (hc_grow_capacity(L->cap_lrows, L->nlrows + 1, 256, &nc))

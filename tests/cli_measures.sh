@@ -2,7 +2,8 @@
 # cli_measures.sh - `curve --measures` on the command line: the default is
 # the sd family with the bytes of today's output; each measure adds five
 # columns and a universe field; the figures do not depend on the thread
-# count; bad lists and sources without series are usage errors.  The
+# count, on complete and ragged histories; bad lists and sources without
+# series are usage errors.  The
 # measures' values are checked against numpy, exact enumeration and a
 # published example in check_measures.py; this file checks the command.
 # Exit statuses are those of include/holdcount/error.h (2: usage).
@@ -53,15 +54,55 @@ for r in d["curve"]:
     assert r["es95_p05"] <= r["es95_p50"] <= r["es95_p95"], r
     assert r["es95_se"] > 0
 assert any("docs/measures.md" in c for c in d["cautions"])
+assert not any("read period by period" in c for c in d["cautions"])
 PY
 
 # Usage errors (exit 2), nothing on stdout.
 expect 2 "holdcount curve: bad measure list: 'es97' is not a measure" -- "${ARGS[@]}" --measures es97
 expect 2 "holdcount curve: bad measure list: '' is not a measure" -- "${ARGS[@]}" --measures es95,
 expect 2 "holdcount curve: --measures summarises random portfolios" -- curve "$U" --missing complete --paths 0 --measures es95 --quiet
-# Read period by period (the default for a history with gaps): not yet.
-expect 2 "holdcount curve: --measures needs each portfolio's return series: complete return series, not a history with gaps read period by period" -- curve "$U" --measures es95 --quiet
-expect 2 "holdcount enough: --measures needs each portfolio's return series: complete return series, not a history with gaps read period by period" -- enough "$U" --measures es95 --quiet
+# Read period by period (--missing alive, the default for a history with
+# gaps): each portfolio's series is its held securities' mean return each
+# period; the same bytes whatever the thread count, the sd columns those
+# of the curve without --measures, and the universe's own value (every
+# security alive, equally weighted) as a field.  The values themselves are
+# checked against numpy and enumeration in check_measures.py.
+RARGS=(curve "$U" --sizes 1,2,5,20 --paths 400 --seed 5 --quiet)
+"$HC" "${RARGS[@]}" --format csv >"$T/rplain.csv" || fail "ragged curve"
+"$HC" "${RARGS[@]}" --format csv --measures all --threads 1 >"$T/rall1.csv" || fail "ragged curve --measures all"
+"$HC" "${RARGS[@]}" --format csv --measures all --threads 2 >"$T/rall2.csv" || fail "ragged curve --measures all --threads 2"
+cmp -s "$T/rall1.csv" "$T/rall2.csv" || fail "ragged --measures all differs between 1 and 2 threads"
+cut -d, -f1-14 "$T/rall1.csv" | cmp -s - "$T/rplain.csv" || fail "ragged --measures all changed the sd columns"
+[ "$(head -1 "$T/rall1.csv" | tr ',' '\n' | wc -l)" -eq $(( $(head -1 "$T/rplain.csv" | tr ',' '\n' | wc -l) + 55 )) ] ||
+  fail "ragged --measures all should add 55 columns"
+"$HC" "${RARGS[@]}" --format json --measures es95,semidev_zero,lag_universe >"$T/rsub.json" || fail "ragged curve --measures es95"
+"$PY" - "$T/rsub.json" <<'PY' || fail "JSON of ragged --measures"
+import json, sys
+d = json.load(open(sys.argv[1]))
+assert "read period by period" in d["treatment"], d["treatment"]
+assert any(c.startswith("measures, history with gaps read period by period") for c in d["cautions"])
+assert 0 < d["universe_es95"] < 0.5 and 0 < d["universe_semidev_zero"] < 1, d
+rows = d["curve"]
+for r in rows:
+    assert r["es95_p05"] <= r["es95_p50"] <= r["es95_p95"] and r["es95_se"] > 0, r
+    assert 0 <= r["lag_universe_mean"] <= 1
+# diversification: the mean expected shortfall falls from 1 to 20 holdings
+assert rows[0]["es95_mean"] > rows[-1]["es95_mean"] > d["universe_es95"] * 0.9, rows
+PY
+"$HC" enough "$U" --paths 400 --seed 5 --rules near-floor,marginal,band --quiet --format json \
+  --measures es95,worst_period >"$T/rem.json" || fail "ragged enough --measures"
+"$PY" - "$T/rem.json" <<'PY' || fail "JSON of ragged enough --measures"
+import json, sys
+d = json.load(open(sys.argv[1]))
+chosen = sorted({r["count"] for r in d["rules"] if r.get("count") is not None})
+rows = d["measures"]
+assert chosen and [r["n"] for r in rows] == chosen, (rows, chosen)
+for r in rows:
+    assert r["es95_p05"] <= r["es95_mean"] <= r["es95_p95"] and r["worst_period_mean"] < 0, r
+assert 0 < d["universe_es95"] < 0.5
+PY
+# Pairwise covariances have no portfolio series.
+expect 2 "holdcount curve: --measures needs each portfolio's return series: return series (complete, or with gaps read period by period under --missing alive), not a history with gaps under --missing pairwise" -- curve "$U" --missing pairwise --measures es95 --quiet
 "$PY" - "$U" "$T/cov.csv" <<'PY'
 import csv, sys
 import numpy as np

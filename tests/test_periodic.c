@@ -1,6 +1,7 @@
 /*
  * test_periodic.c - the per-period route against the complete-data route
- * and against enumeration of every subset of each period's alive set.
+ * and against enumeration of every subset of each period's alive set; the
+ * ragged sampler's measures against the series formed from its orders.
  */
 #include <stdarg.h>
 #include <stddef.h>
@@ -16,6 +17,7 @@
 
 #include "holdcount/curve.h"
 #include "holdcount/curverun.h"
+#include "holdcount/measures.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
 #include "holdcount/periodic.h"
@@ -399,6 +401,98 @@ static void test_periodic_sampler_matches_exact(void **state)
 	hc_universe_free(u);
 }
 
+/* Measures on a ragged history (measures.h through the sampler's hook):
+ * each path's measures are those of the series the test forms from the
+ * path's order (hc_periodic_order): at each period the mean return, as
+ * observed, of the first min(N, M_t) securities of the order alive then;
+ * the universe's are those of the all-alive equal-weight series, which the
+ * portfolio of every security is exactly (it does not lag itself); the
+ * variances keep their bytes; one and two threads give the same bytes; the
+ * per-thread series buffers count in the memory budget. */
+static void test_periodic_measures_hook(void **state)
+{
+	struct universe *u = make_universe(12, 50, 1, 23);
+	struct hc_periodic *p = NULL;
+	struct sampler_options so;
+	struct sampler_result *r = NULL, *r1 = NULL, *plain = NULL;
+	struct hc_error err;
+	size_t sizes[] = { 1, 3, 7, 12 }, ns = 4, j, k, t, i, *order;
+	double series[50], scratch[50], want[HC_MEASURE_COUNT], uni[HC_MEASURE_COUNT], lg;
+	int m;
+
+	(void)state;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_int_equal(p->m, 12);
+	order = hc_mallocarray(p->m, sizeof *order);
+	assert_non_null(order);
+	hc_sampler_options_init(&so);
+	so.paths = 60;
+	so.seed = 77;
+	so.threads = 2;
+	assert_int_equal(hc_periodic_sample(&plain, p, u, 0, sizes, ns, &so, &err), HC_OK);
+	so.measures = HC_MEASURES_ALL;
+	assert_int_equal(hc_periodic_sample(&r, p, u, 0, sizes, ns, &so, &err), HC_OK);
+	assert_non_null(r->measures_value);
+	assert_memory_equal(plain->variance, r->variance, so.paths * ns * sizeof(double));
+	lg = hc_measures_series_log_growth(p->raw_mean, 1, p->t, scratch);
+	hc_measures_series(p->raw_mean, 1, p->t, HC_MEASURES_ALL, lg, uni, scratch);
+	for (m = 0; m < HC_MEASURE_COUNT; m++)
+		if (m != HC_MEASURE_LAG_UNIVERSE)
+			assert_memory_equal(&uni[m], &r->universe_measures[m], sizeof(double));
+	for (k = 0; k < so.paths; k++) {
+		assert_int_equal(hc_periodic_order(so.seed, k, p->m, order, &err), HC_OK);
+		for (j = 0; j < ns; j++) {
+			const double *got = r->measures_value + (k * ns + j) * HC_MEASURE_COUNT;
+
+			for (t = 0; t < p->t; t++) {
+				double s = 0;
+				size_t c = 0;
+
+				for (i = 0; i < p->m && c < sizes[j]; i++) {
+					double x = u->x[p->member[order[i]] * u->t + t];
+
+					if (!isnan(x)) {
+						s += x;
+						c++;
+					}
+				}
+				series[t] = c ? s / (double)c : 0.0;
+			}
+			hc_measures_series(series, 1, p->t, HC_MEASURES_ALL, lg, want, scratch);
+			for (m = 0; m < HC_MEASURE_COUNT; m++)
+				if (m == HC_MEASURE_LAG_UNIVERSE && sizes[j] == p->m)
+					assert_true(got[m] == 0.0); /* everything alive: the universe itself */
+				else if (m == HC_MEASURE_LAG_UNIVERSE)
+					assert_true(got[m] == want[m]);
+				else
+					assert_true(rel(got[m], want[m]) < 1e-12);
+			if (sizes[j] == p->m)
+				for (m = 0; m < HC_MEASURE_LAG_UNIVERSE; m++)
+					assert_memory_equal(&got[m], &uni[m], sizeof(double));
+		}
+	}
+	so.threads = 1;
+	assert_int_equal(hc_periodic_sample(&r1, p, u, 0, sizes, ns, &so, &err), HC_OK);
+	assert_memory_equal(r->measures_value, r1->measures_value, so.paths * ns * HC_MEASURE_COUNT * sizeof(double));
+	hc_sampler_result_free(r1);
+	r1 = NULL;
+	/* A budget that holds the universe and the sd-only results but not the
+	 * measures' values and series: refused with the budget's message. */
+	so.paths = 1000;
+	p->max_bytes = u->max_bytes = (size_t)(12 * 50 * 8 + 1000 * 4 * 8 * 3);
+	assert_int_equal(hc_periodic_sample(&r1, p, u, 0, sizes, ns, &so, &err), HC_ENOMEM);
+	assert_null(r1);
+	assert_non_null(strstr(err.message, "budget"));
+	so.measures = 0;
+	assert_int_equal(hc_periodic_sample(&r1, p, u, 0, sizes, ns, &so, &err), HC_OK);
+	hc_sampler_result_free(r1);
+	hc_sampler_result_free(r);
+	hc_sampler_result_free(plain);
+	hc_free(order);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
 static void test_periodic_refuses_tiny(void **state)
 {
 	struct universe *u = make_universe(5, 10, 0, 18);
@@ -544,6 +638,7 @@ int main(void)
 		cmocka_unit_test(test_periodic_rules_scan_ragged),
 		cmocka_unit_test(test_periodic_bootstrap_replicates),
 		cmocka_unit_test(test_periodic_sampler_matches_exact),
+		cmocka_unit_test(test_periodic_measures_hook),
 		cmocka_unit_test(test_periodic_refuses_tiny),
 		cmocka_unit_test(test_periodic_source_kind),
 		cmocka_unit_test(test_periodic_spread_matches_complete_route),

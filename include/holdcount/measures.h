@@ -93,6 +93,11 @@ void hc_measures_series(const double *r, size_t stride, size_t t, unsigned mask,
  * quantity lag_universe compares. */
 double hc_measures_log_growth(const double *d, size_t stride, size_t t, double scale, double mean);
 
+/* The same of plain returns r, centred as hc_measures_series centres them
+ * (so a portfolio whose series has the benchmark's bits gets the
+ * benchmark's growth, and does not lag it); scratch holds t doubles. */
+double hc_measures_series_log_growth(const double *r, size_t stride, size_t t, double *scratch);
+
 /*
  * The k-th smallest (0-based) of x[0..n) by selection (Hoare's FIND,
  * 1961, CACM 4(7), Algorithm 65, median-of-three pivot), reordering x so
@@ -121,6 +126,7 @@ struct hc_measures_curve {
 	struct hc_measure_point *pts;  /* npoints * HC_MEASURE_COUNT, row = count */
 	double universe[HC_MEASURE_COUNT]; /* the equal-weight universe's own value (N = M) */
 	double periods_per_year;       /* semi-deviations scaled by sqrt of this */
+	int ragged;                    /* drawn from a history read period by period (the report says so) */
 };
 
 /*
@@ -139,7 +145,8 @@ void hc_measures_curve_free(struct hc_measures_curve *c);
  * Append to t, whose rows are the same counts in the same order, five
  * columns per measure in mask, in enum order: KEY_mean, KEY_se, KEY_p05,
  * KEY_p50, KEY_p95; and to r the fields universe_KEY and a note on the
- * conventions.  HC_OK, HC_EUSAGE (row count differs), HC_ENOMEM.
+ * conventions (and, when c->ragged, one on what a portfolio and the
+ * universe are on a history read period by period).  HC_OK, HC_EUSAGE (row count differs), HC_ENOMEM.
  */
 int hc_measures_report(const struct hc_measures_curve *c, struct report *r, struct report_table *t);
 

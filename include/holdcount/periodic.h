@@ -164,7 +164,13 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
  * z-score).  sizes strictly ascending, each 1..p->m.  Uses opt->paths,
  * seed, threads, progress (from one thread; nonzero stops: HC_EINTERRUPT) and want_returns (annual_return: prod_t (1 + p_t)^(P/T) - 1
  * with p_t the portfolio's mean return, rebalanced each period; a period
- * with none alive adds nothing); strata are HC_EUSAGE.  Path k is seeded
+ * with none alive adds nothing) and measures (measures_value, as the
+ * complete route's: measures.h of each portfolio's per-period return
+ * series, the held securities' equal-weight mean return as observed, 0 in
+ * a period with none alive; universe_measures those of the equal-weight
+ * portfolio of every security alive, raw_mean, also lag_universe's
+ * benchmark; each thread keeps nsizes x T doubles of series, counted in
+ * the memory budget); strata are HC_EUSAGE.  Path k is seeded
  * from (seed, k), so output does not depend on threads.  A path costs
  * O(T x the order position where every period has n_max alive), at most
  * O(M T).  u and first must be those p was computed from.
@@ -173,6 +179,15 @@ int hc_periodic_sample(struct sampler_result **out, const struct hc_periodic *p,
 		       const struct universe *u, size_t first,
 		       const size_t *sizes, size_t nsizes,
 		       const struct sampler_options *opt, struct hc_error *err);
+
+/*
+ * The random order path k of a ragged sample seeded with seed draws over
+ * the m kept securities (indices into p->member), into order (m entries):
+ * path k's portfolio of N holdings holds, at each period, the first
+ * min(N, M_t) of this order alive then.  For tests (the numpy check
+ * recomputes each path's measures).  HC_EUSAGE for m 0, HC_ENOMEM.
+ */
+int hc_periodic_order(uint64_t seed, size_t k, size_t m, size_t *order, struct hc_error *err);
 
 /* Compound annualised return of the equal-weight portfolio of the alive
  * securities, rebalanced every period: prod_t (1 + raw_mean_t)^(P/T) - 1.

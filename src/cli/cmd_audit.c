@@ -65,8 +65,8 @@ const struct cli_command cli_command_audit = {
 	"audit", cmd_audit,
 	"concentration audit of actual funds against the universe and a policy",
 	"UNIVERSE --holdings FILE",
-	"Reads the funds in --holdings (required) and, for each, reports: positions, weight sum before "
-	"normalising, largest weight, top-10 share, HHI and effective number of holdings; the "
+	"Reads the funds in --holdings (required) and, for each, reports: positions, the input total (weights or "
+	"market values, before normalising), largest weight, top-10 share, HHI and effective number of holdings; the "
 	"fund's sd from the universe's history, its diversification ratio, its equivalent count (or "
 	"'below the floor'), the percentile of its sd among random equal-weight portfolios of the "
 	"same count (--paths), and the expected sd of a random portfolio laid out with its own "

@@ -48,7 +48,8 @@ const struct cli_command cli_command_curve = {
 	"and path measures (semi-deviations, value-at-risk, expected shortfall, maximum drawdown, "
 	"skewness, excess kurtosis, worst period, the chance of lagging the equal-weight universe): "
 	"each measure's mean with its Monte Carlo standard error and its 5%, 50% and 95% quantiles by "
-	"count, and the universe's own value; they need complete return series. Figures are annualised "
+	"count, and the universe's own value; they need return series, complete or read period by "
+	"period (--missing alive), not a covariance matrix. Figures are annualised "
 	"by the periods per year, except those --measures names as per period.",
 	1, 1, curve_groups
 };
