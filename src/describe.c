@@ -185,7 +185,7 @@ static int psd_note(struct report *r, const struct hc_source *s, const double *p
 		a = cm->a;
 	}
 	/* dsyevd's O(M^3) on the BLAS threads, stopped again after */
-	hc_moments_blas_threaded();
+	hc_moments_blas_threaded(4.0 / 3.0 * (double)s->u->m * (double)s->u->m * (double)s->u->m);
 	rc = hc_covmatrix_min_eigenvalue(a, s->u->m, &lmin, err);
 	hc_moments_blas_serial();
 	hc_covmatrix_free(cm);

@@ -422,9 +422,17 @@ cleanup:
  * threads, then back to one with the idle workers stopped
  * (hc_moments_blas_serial), so they do not spin beside the sampler.
  */
-static void blas_threaded(void)
+/* Work (flops) below which a product stays on one thread: starting the
+ * workers costs more than they save there (and a small universe then runs
+ * no BLAS thread at all, as tests/cli_environment.sh counts). */
+#define MOMENTS_THREADED_WORK 1e9
+
+static void blas_threaded(double work)
 {
 	int n = omp_get_max_threads();
+
+	if (work < MOMENTS_THREADED_WORK)
+		return;
 
 	if (n > 1)
 		openblas_set_num_threads(n);
@@ -468,7 +476,7 @@ static void pairwise_sums_sparse(size_t m, size_t t, const double *z, const size
 {
 	long ii;
 
-#pragma omp parallel for schedule(static)
+#pragma omp parallel for schedule(static) if ((double)m * (double)off[m] >= MOMENTS_THREADED_WORK / 16)
 	for (ii = 0; ii < (long)m; ii++) {
 		size_t i = (size_t)ii, j, p;
 		const double *zi = z + i * t;
@@ -559,7 +567,7 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 		if (sparse)
 			off[i + 1] = g;
 	}
-	blas_threaded();
+	blas_threaded((double)m * (double)m * (double)t);
 	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0, z, (int)t, 0.0, a, (int)m);
 	/* counts in single precision: sums of 0/1 are exact below 2^24 periods,
 	 * at half the cost of the double product */
@@ -731,9 +739,9 @@ int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, dou
 	return HC_OK;
 }
 
-void hc_moments_blas_threaded(void)
+void hc_moments_blas_threaded(double work)
 {
-	blas_threaded();
+	blas_threaded(work);
 }
 
 int hc_moments_covariance(const struct universe *u, double **a, struct hc_error *err)

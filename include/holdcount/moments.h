@@ -97,10 +97,11 @@ int hc_moments_from_universe_route(struct moments *mo, const struct universe *u,
 int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, double **a,
 			       struct hc_error *err);
 
-/* OpenBLAS on omp_get_max_threads() threads for a large product or
- * factorisation outside this module; end with hc_moments_blas_serial,
- * which stops the workers so they do not spin beside OpenMP work. */
-void hc_moments_blas_threaded(void);
+/* OpenBLAS on omp_get_max_threads() threads for a product or
+ * factorisation of about work flops outside this module (below 1e9 it
+ * stays on one thread); end with hc_moments_blas_serial, which stops the
+ * workers so they do not spin beside OpenMP work. */
+void hc_moments_blas_threaded(double work);
 
 /* The M x M sample covariance matrix of u (divisor T-1, row-major, both
  * triangles) into a new array *a, freed with hc_free: through dsyrk for
