@@ -361,6 +361,40 @@ int hc_curve_pairwise_spread(struct curve *c, const struct universe *u, struct m
 }
 
 /*
+ * The per-period route keeps the securities observed at least twice
+ * (per->member); when it left some of u out, *sub is a view of u cut to
+ * those (its own copy of their rows, ids borrowed from u; free sub->x and
+ * sub->ids), else sub->x is NULL and u serves as it is.
+ */
+static int kept_universe(const struct hc_source *src, struct universe *sub, struct hc_error *err)
+{
+	const struct universe *u = src->u;
+	const struct hc_periodic *p = src->per;
+	size_t i, n;
+
+	memset(sub, 0, sizeof *sub);
+	if (p->m == u->m)
+		return HC_OK;
+	if (hc_mul_size(p->m, u->t, &n) || !(sub->x = hc_mallocarray(n, sizeof *sub->x)) ||
+	    !(sub->ids = hc_mallocarray(p->m ? p->m : 1, sizeof *sub->ids))) {
+		hc_free(sub->x);
+		sub->x = NULL;
+		return hc_error(err, HC_ENOMEM, "out of memory for the %zu securities kept", p->m);
+	}
+	for (i = 0; i < p->m; i++) {
+		memcpy(sub->x + i * u->t, u->x + p->member[i] * u->t, u->t * sizeof *sub->x);
+		sub->ids[i] = u->ids ? u->ids[p->member[i]] : NULL;
+	}
+	sub->m = sub->m_read = p->m;
+	sub->t = u->t;
+	sub->source = u->source;
+	sub->max_bytes = u->max_bytes;
+	sub->has_missing = 1;
+	sub->periods_per_year = u->periods_per_year;
+	return HC_OK;
+}
+
+/*
  * A ragged source's variance_sd (hc_curve_pairwise_spread).  A universe
  * with no pairwise-complete matrix (a pair without common periods) or one
  * too large for the memory budget leaves the column empty with the reason
@@ -368,11 +402,16 @@ int hc_curve_pairwise_spread(struct curve *c, const struct universe *u, struct m
  */
 static int ragged_spread(struct hc_curve_result *res, const struct hc_source *src, struct hc_error *err)
 {
+	struct universe sub;
 	struct hc_error why;
 	int rc;
 
 	hc_error_clear(&why);
-	rc = hc_curve_pairwise_spread(res->curve, src->u, &res->spread_mo, &why);
+	rc = kept_universe(src, &sub, &why);
+	if (rc == HC_OK)
+		rc = hc_curve_pairwise_spread(res->curve, sub.x ? &sub : src->u, &res->spread_mo, &why);
+	hc_free(sub.x);
+	hc_free(sub.ids);
 	if (rc == HC_OK) {
 		res->spread_built = 1;
 		return HC_OK;

@@ -628,6 +628,56 @@ static void test_periodic_spread_refusals(void **state)
 	hc_source_free(s);
 }
 
+/* A security observed once is left out of the per-period route; the
+ * spread is then that of the securities kept (not a refusal): the same
+ * figures as the pairwise moments of the universe without it. */
+static void test_periodic_spread_kept_securities(void **state)
+{
+	struct universe *u = make_universe(10, 40, 1, 29), *w = make_universe(10, 40, 1, 29);
+	struct hc_source *s = NULL;
+	struct hc_source_options so;
+	struct hc_curve_options co;
+	struct hc_curve_result *res = NULL;
+	struct moments mo;
+	struct hc_error err;
+	size_t sizes[3] = {1, 4, 9}, k, i;
+	double sd;
+
+	(void)state;
+	for (k = 0; k < 40; k++)
+		if (k != 17)
+			u->x[3 * 40 + k] = NAN;
+	u->has_missing = 1;
+	/* w: the same universe without security 3 (rows 4..9 moved up) */
+	for (i = 3; i < 9; i++)
+		memcpy(w->x + i * 40, w->x + (i + 1) * 40, 40 * sizeof *w->x);
+	hc_free(w->ids[3]);
+	for (i = 3; i < 9; i++)
+		w->ids[i] = w->ids[i + 1];
+	w->ids[9] = NULL;
+	w->m = w->m_read = 9;
+	w->has_missing = 1;
+	assert_int_equal(hc_moments_from_universe_route(&mo, w, MOMENTS_ROUTE_PAIRWISE, &err), HC_OK);
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&s, u, &so, &err), HC_OK);
+	assert_int_equal(s->per->m, 9);
+	hc_curve_options_init(&co);
+	co.paths = 0;
+	assert_int_equal(hc_curve_run(&res, s, sizes, 3, &co, &err), HC_OK);
+	assert_int_equal(res->spread_built, 1);
+	for (k = 0; k < 3; k++) {
+		assert_int_equal(hc_curve_variance_sd(&mo, sizes[k], &sd, &err), HC_OK);
+		if (k < 2)
+			assert_true(rel(res->curve->points[k].variance_sd, sd * 12.0) < 1e-12);
+		else
+			assert_true(res->curve->points[k].variance_sd == 0.0);
+	}
+	hc_curve_result_free(res);
+	hc_source_free(s);
+	hc_universe_free(w);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -643,6 +693,7 @@ int main(void)
 		cmocka_unit_test(test_periodic_source_kind),
 		cmocka_unit_test(test_periodic_spread_matches_complete_route),
 		cmocka_unit_test(test_periodic_spread_refusals),
+		cmocka_unit_test(test_periodic_spread_kept_securities),
 	};
 
 	return cmocka_run_group_tests(tests, NULL, NULL);
