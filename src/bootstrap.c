@@ -85,17 +85,25 @@ static double uniform01(uint64_t *state)
 int hc_bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 		      size_t rep, size_t *idx, struct hc_error *err)
 {
+	return hc_bootstrap_indices_n(kind, t, t, block_length, seed, rep, idx, err);
+}
+
+int hc_bootstrap_indices_n(int kind, size_t t, size_t n, size_t block_length, uint64_t seed,
+			   size_t rep, size_t *idx, struct hc_error *err)
+{
 	uint64_t st = replicate_state(seed, rep);
 	size_t k, pos, l = block_length;
 
 	if (t == 0 || l < 1 || l > t)
 		return hc_error(err, HC_EUSAGE, "bad block length %zu: expected 1 to %zu periods", l, t);
+	if (n == 0)
+		return HC_OK;
 	if (kind == BOOTSTRAP_BLOCK) {
 		/* Kuensch (1989): blocks start uniformly in 0..T-L. */
-		for (k = 0; k < t; k += l) {
+		for (k = 0; k < n; k += l) {
 			size_t start = (size_t)uniform_below(&st, t - l + 1), j;
 
-			for (j = 0; j < l && k + j < t; j++)
+			for (j = 0; j < l && k + j < n; j++)
 				idx[k + j] = start + j;
 		}
 		return HC_OK;
@@ -107,7 +115,7 @@ int hc_bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 	 * wrapping circularly. */
 	pos = (size_t)uniform_below(&st, t);
 	idx[0] = pos;
-	for (k = 1; k < t; k++) {
+	for (k = 1; k < n; k++) {
 		if (uniform01(&st) * (double)l < 1.0)
 			pos = (size_t)uniform_below(&st, t);
 		else
@@ -581,11 +589,10 @@ void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, doubl
 	}
 }
 
-/* McLeod & Li (1983): Ljung-Box on the squared centred row sums (the
- * equal-weight portfolio's squared return times M^2; the scale cancels). */
-void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p)
+/* McLeod & Li (1983): Ljung-Box on the squares of the centred series r. */
+void hc_bootstrap_mcleod_li(const double *r, size_t n, size_t *lags, double *q, double *p)
 {
-	size_t n = b->t, h = *lags ? *lags : HC_BOOTSTRAP_CLUSTERING_LAGS, t, k;
+	size_t h = *lags ? *lags : HC_BOOTSTRAP_CLUSTERING_LAGS, t, k;
 	double mean = 0, den = 0, sum = 0;
 
 	*q = *p = NAN;
@@ -597,23 +604,29 @@ void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, doubl
 	if (n < 8)
 		return;
 	for (t = 0; t < n; t++)
-		mean += b->rowsum[t] * b->rowsum[t];
+		mean += r[t] * r[t];
 	mean /= (double)n;
 	for (t = 0; t < n; t++) {
-		double d = b->rowsum[t] * b->rowsum[t] - mean;
+		double d = r[t] * r[t] - mean;
 
 		den += d * d;
 	}
 	if (!(den > 0))
 		return;
 	for (k = 1; k <= h; k++) {
-		double c = 0, r;
+		double c = 0, rk;
 
 		for (t = k; t < n; t++)
-			c += (b->rowsum[t] * b->rowsum[t] - mean) * (b->rowsum[t - k] * b->rowsum[t - k] - mean);
-		r = c / den;
-		sum += r * r / (double)(n - k);
+			c += (r[t] * r[t] - mean) * (r[t - k] * r[t - k] - mean);
+		rk = c / den;
+		sum += rk * rk / (double)(n - k);
 	}
 	*q = (double)n * (double)(n + 2) * sum;
 	*p = gsl_cdf_chisq_Q(*q, (double)h);
+}
+
+/* The equal-weight portfolio's squared return times M^2: the scale cancels. */
+void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p)
+{
+	hc_bootstrap_mcleod_li(b->rowsum, b->t, lags, q, p);
 }

@@ -100,7 +100,7 @@ static int add_fields(struct report *r, const struct hc_enough *e, const struct 
 		bad |= hc_report_add_text(r, "bootstrap", "bootstrap", hc_bootstrap_kind_name(e->kind));
 		bad |= hc_report_add_int(r, "replicates", "bootstrap replicates", (long long)e->replicates);
 		bad |= hc_report_add_int(r, "block_length", "block length (periods)", (long long)e->block_length);
-		if (e->clustering_lags) {   /* not for a history read period by period */
+		if (e->clustering_lags) {
 			bad |= hc_report_add_real(r, "clustering_q", "volatility clustering: McLeod-Li Q",
 						  e->clustering_q, REPORT_STYLE_FIXED2);
 			bad |= hc_report_add_int(r, "clustering_lags", "McLeod-Li lags", (long long)e->clustering_lags);
@@ -191,7 +191,8 @@ static int add_coverage_notes(struct report *r, const struct hc_enough *e)
 	return bad;
 }
 
-static int add_notes(struct report *r, const struct hc_enough *e, const struct hc_source *src)
+static int add_notes(struct report *r, const struct hc_enough *e, const struct hc_source *src,
+		     const struct hc_enough_options *opt)
 {
 	double p = e->periods_per_year;
 	char text[700];
@@ -223,12 +224,18 @@ static int add_notes(struct report *r, const struct hc_enough *e, const struct h
 		bad |= hc_report_add_note(r, text);
 	}
 	if (src && src->kind == HC_SOURCE_RAGGED && e->bootstrapped)
-		bad |= hc_report_add_note(r, "ragged history: each replicate of the exact rules sums the drawn "
-				       "periods' cross-sections (O(T) a replicate) with every security centred on its "
-				       "full-sample mean, not re-centred on the replicate; --bootstrap-sampled re-sums "
-				       "and re-centres each replicate before sampling it; the intervals are percentiles of "
-				       "the replicates' counts whatever --interval says, and the block length is "
-				       "round(T^(1/3)) unless --block-length gives one");
+		bad |= hc_report_add_note(r, opt->interval == HC_ENOUGH_INTERVAL_PERCENTILE
+			? "ragged history: each replicate of the exact rules sums the drawn periods' cross-sections "
+			  "(O(T) a replicate) with every security centred on its full-sample mean, not re-centred on "
+			  "the replicate; --bootstrap-sampled re-sums and re-centres each replicate before sampling it; "
+			  "the measured coverage quoted above is that of complete histories"
+			: "ragged history: each replicate of the exact rules sums the drawn periods' cross-sections "
+			  "(O(T) a replicate) with every security centred on its full-sample mean, not re-centred on "
+			  "the replicate; --bootstrap-sampled re-sums and re-centres each replicate before sampling it; "
+			  "the intervals are percentiles of the replicates' counts, not the --interval asked for: the "
+			  "studentized and BCa intervals are built on the two averages of complete data, and period by "
+			  "period a rule's count depends on every alive count's sums; the measured coverage quoted "
+			  "above is that of the percentile interval on complete histories");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -290,8 +297,10 @@ static void policy_universe(const struct hc_enough *e, const struct hc_source *s
 	const struct universe *u = src ? src->u : NULL;
 
 	if (src && src->kind == HC_SOURCE_RAGGED)
-		snprintf(buf, len, "%zu securities from %s, gaps kept, read period by period (each period the "
-			 "securities alive then)", e->m, u && u->source ? u->source : "the universe file");
+		snprintf(buf, len, "%zu securities from %s, in the survivorship-free per-period treatment (each "
+			 "period the securities alive then, delisted ones included; securities alive per period: "
+			 "fewest %zu, median %zu, most %zu)", e->m, u && u->source ? u->source : "the universe file",
+			 src->per->alive_min, src->per->alive_median, src->per->alive_max);
 	else if (u && u->has_missing)
 		snprintf(buf, len, "%zu securities from %s, gaps kept, pairwise-complete covariances%s", e->m,
 			 u->source ? u->source : "the universe file",
@@ -370,7 +379,7 @@ static int add_policy(struct report *r, struct hc_enough *e, const struct hc_sou
 {
 	const struct rule_result *p;
 	const char *reason;
-	char period[160], uni[400], on[600], basis[200], text[1800];
+	char period[160], uni[900], on[1100], basis[200], text[2400];
 	size_t n;
 	int fallback, at_upper, bad = 0;
 
@@ -513,7 +522,7 @@ static int build_report(struct hc_enough *e, const struct hc_source *src,
 
 	if (!r || add_fields(r, e, src) || (src && hc_strata_use_report(r, opt->strata)) ||
 	    hc_rules_report(r, e->rules, e->nrules, err) || measures_table(r, e) || add_policy(r, e, src, opt) ||
-	    add_notes(r, e, src)) {
+	    add_notes(r, e, src, opt)) {
 		hc_report_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory building the report");
 	}
@@ -735,12 +744,13 @@ static int run_series(struct hc_enough *e, const struct hc_source *src, const st
 }
 
 /* A ragged history (HC_SOURCE_RAGGED): every exact rule on the per-period
- * curve (periodic.h), band and lag-share from ragged random portfolios in
- * stages, the interval of the exact rules from O(T) replicates and, with
+ * curve (periodic.h), band, lag-share and alexeev-tapon-sampled from ragged
+ * random portfolios in stages, the interval of the exact rules from O(T) replicates and, with
  * bootstrap_sampled, of the sampled ones from re-summed replicates. */
 static int run_ragged(struct hc_enough *e, const struct hc_source *src, const struct moments *mo,
 		      const struct hc_enough_options *opt, struct hc_error *err)
 {
+	static const int which[3] = { RULES_BAND, RULES_LAG_SHARE, RULES_ALEXEEV_TAPON_SAMPLED };
 	const struct hc_periodic *p = src->per;
 	const struct rules_config *cfg = &opt->rules;
 	struct bootstrap_options bo;
@@ -758,14 +768,15 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 
 		if (RULES_FLAG(r->rule) & RULES_EXACT_MASK)
 			rc = hc_periodic_rule(cfg, r->rule, &p->curve, src->periods_per_year, r, err);
-		else if (r->rule == RULES_ALEXEEV_TAPON || r->rule == RULES_ALEXEEV_TAPON_SAMPLED) {
-			/* Neither the exact spread nor ragged sampling of this
-			 * rule exists period by period. */
+		else if (r->rule == RULES_ALEXEEV_TAPON) {
+			/* The gamma approximation needs the exact spread of the
+			 * portfolio variance, which period by period is not
+			 * computed (it needs the M x M matrix). */
 			r->defined = r->met = 0;
 			r->count = 0;
 			r->value = NAN;
-			snprintf(r->note, sizeof r->note, "not available for a history read period by period (ragged); "
-				 "--missing complete or pairwise gives it");
+			snprintf(r->note, sizeof r->note, "not available period by period (ragged): needs the exact spread "
+				 "of the variance, not computed there; alexeev-tapon-sampled gives the rule");
 		}
 	}
 	if (rc)
@@ -776,7 +787,7 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	so.threads = opt->threads;
 	so.periods_per_year = src->periods_per_year;
 	if (cfg->selected & RULES_SAMPLED_MASK) {
-		hc_progress_begin(&opt->progress, "sampling random portfolios for the band and lag-share rules",
+		hc_progress_begin(&opt->progress, "sampling random portfolios for the sampled rules",
 				  "sampling", "paths");
 		so.progress = opt->progress.update;
 		so.progress_ctx = opt->progress.ctx;
@@ -784,10 +795,9 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 		hc_progress_end(&opt->progress);
 		if (rc)
 			return rc;
-		for (k = 0; k < 2; k++)
+		for (k = 0; k < 3; k++)
 			for (j = 0; j < e->nrules; j++)
-				if (e->rules[j].rule == (k == 0 ? RULES_BAND : RULES_LAG_SHARE) &&
-				    (cfg->selected & RULES_FLAG(e->rules[j].rule)))
+				if (e->rules[j].rule == which[k] && (cfg->selected & RULES_FLAG(which[k])))
 					e->rules[j] = sr[k];
 		e->paths = opt->paths;
 	}
@@ -801,6 +811,14 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	bo.block_length = opt->block_length;
 	bo.seed = opt->seed;
 	bo.threads = opt->threads;
+	/* The McLeod-Li check on the equal-weight alive portfolio's centred
+	 * returns, and the block length from the per-period series, as on
+	 * complete data. */
+	e->clustering_lags = 0;
+	hc_bootstrap_mcleod_li(p->mean, p->t, &e->clustering_lags, &e->clustering_q, &e->clustering_p);
+	if (!bo.block_length && (rc = hc_periodic_block_length(p, &bo.block_length, err)))
+		return rc;
+	e->auto_block = opt->block_length == 0;
 	snprintf(what, sizeof what, "bootstrap of the exact rules (%zu replicates)", opt->bootstrap);
 	hc_progress_begin(&opt->progress, what, "bootstrap", "replicates");
 	bo.progress = opt->progress.update;
@@ -811,7 +829,7 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 		return rc;
 	e->bootstrapped = 1;
 	e->replicates = bo.replicates;
-	e->block_length = bo.block_length ? bo.block_length : hc_bootstrap_default_block_length(p->t);
+	e->block_length = bo.block_length;
 	e->kind = bo.kind;
 	e->interval = HC_ENOUGH_INTERVAL_PERCENTILE;   /* the ragged replicates' percentiles only */
 	if (opt->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {

@@ -584,6 +584,23 @@ static void boot_path(void *job, void *ws, size_t r)
 			hc_periodic_rule_count(j->cfg, j->res[j->which[q]].rule, &w->c, j->ppy, &cnt) == 1 ? cnt : 0;
 }
 
+int hc_periodic_block_length(const struct hc_periodic *p, size_t *length, struct hc_error *err)
+{
+	double *x = hc_mallocarray(p->t, sizeof *x), l1, l2, l;
+	size_t t;
+
+	if (!x)
+		return hc_error(err, HC_ENOMEM, "out of memory for the block length");
+	for (t = 0; t < p->t; t++)
+		x[t] = p->mean[t] * p->mean[t];
+	l1 = hc_bootstrap_politis_white(x, p->t);
+	l2 = hc_bootstrap_politis_white(p->cross, p->t);
+	hc_free(x);
+	l = floor(fmax(l1, l2) + 0.5);
+	*length = l < 1 ? 1 : l > (double)p->t ? p->t : (size_t)l;
+	return HC_OK;
+}
+
 int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_periodic *p,
 			  const struct bootstrap_options *bopt, double ppy,
 			  struct rule_result *res, size_t nres, struct hc_error *err)
@@ -972,17 +989,29 @@ int hc_periodic_universe_return(const struct hc_periodic *p, double ppy, double 
 
 /* ---- the sampled rules ------------------------------------------------- */
 
+/* Alexeev & Tapon's removable variance on a ragged history: from the
+ * expected variance of a one-holding random portfolio, E[sigma^2(1)] of the
+ * per-period curve (v-bar for complete data), down to the variance of the
+ * equal-weight portfolio of the securities alive each period (curve.a). */
+static int at_sampled(const struct rules_config *cfg, const struct hc_periodic *p,
+		      const struct sampler_result *r, struct rule_result *res, struct hc_error *err)
+{
+	return hc_rules_alexeev_tapon_sampled_between(cfg, r, hc_periodic_expected_variance(&p->curve, 1),
+						      p->curve.a, res, err);
+}
+
 int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_periodic *p,
 			      const struct universe *u, const struct sampler_options *base,
-			      struct rule_result sr[2], size_t *largest, struct hc_error *err)
+			      struct rule_result sr[3], size_t *largest, struct hc_error *err)
 {
+	static const int which[3] = { RULES_BAND, RULES_LAG_SHARE, RULES_ALEXEEV_TAPON_SAMPLED };
 	struct sampler_options so = *base;
 	struct sampler_result *r = NULL;
 	size_t K = RULES_SAMPLED_FIRST_K, *sizes, k;
 	double uret = 0;
 	int rc = HC_OK;
 
-	memset(sr, 0, 2 * sizeof *sr);
+	memset(sr, 0, 3 * sizeof *sr);
 	*largest = 0;
 	so.want_returns = (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)) != 0;
 	so.periods_per_year = p->periods_per_year;
@@ -1000,14 +1029,15 @@ int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_pe
 		hc_sampler_result_free(r);
 		r = NULL;
 		rc = hc_periodic_sample(&r, p, u, 0, sizes, K, &so, err);
-		for (k = 0; rc == HC_OK && k < 2; k++) {
-			int rule = k == 0 ? RULES_BAND : RULES_LAG_SHARE;
+		for (k = 0; rc == HC_OK && k < 3; k++) {
+			int rule = which[k];
 
 			if (!(cfg->selected & RULES_FLAG(rule)))
 				continue;
 			rc = rule == RULES_BAND ? hc_rules_band(cfg, r, p->curve.floor, p->periods_per_year, &sr[k], err)
-						: hc_rules_lag_share(cfg, r, uret, &sr[k], err);
-			all_met &= rc == HC_OK && sr[k].met;
+			   : rule == RULES_LAG_SHARE ? hc_rules_lag_share(cfg, r, uret, &sr[k], err)
+			   : at_sampled(cfg, p, r, &sr[k], err);
+			all_met &= rc == HC_OK && (sr[k].met || (rule == RULES_ALEXEEV_TAPON_SAMPLED && !sr[k].defined));
 		}
 		if (rc || all_met || K == p->m)
 			break;
@@ -1024,22 +1054,23 @@ int hc_periodic_bootstrap_sampled(const struct rules_config *cfg, const struct u
 				  struct rule_result *res, size_t nres, struct hc_error *err)
 {
 	size_t B = bo->replicates, L = bo->block_length ? bo->block_length : hc_bootstrap_default_block_length(u->t);
-	size_t *idx = NULL, *cnt = NULL, *col = NULL, rep, k, j, K, n2;
+	static const int which[3] = { RULES_BAND, RULES_LAG_SHARE, RULES_ALEXEEV_TAPON_SAMPLED };
+	size_t *idx = NULL, *cnt = NULL, *col = NULL, rep, k, j, K, n3;
 	struct sampler_options so = *base;
 	int rc = HC_OK;
 
 	so.progress = NULL;
 	if (B == 0 || B > HC_BOOTSTRAP_MAX_REPLICATES)
 		return hc_error(err, HC_EUSAGE, "%zu bootstrap replicates: expected 1 to %u", B, HC_BOOTSTRAP_MAX_REPLICATES);
-	if (hc_mul_size(2, B ? B : 1, &n2) || !(idx = hc_mallocarray(u->t, sizeof *idx)) ||
-	    !(cnt = hc_calloc(n2, sizeof *cnt)) || !(col = hc_mallocarray(B ? B : 1, sizeof *col))) {
+	if (hc_mul_size(3, B ? B : 1, &n3) || !(idx = hc_mallocarray(u->t, sizeof *idx)) ||
+	    !(cnt = hc_calloc(n3, sizeof *cnt)) || !(col = hc_mallocarray(B ? B : 1, sizeof *col))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the sampled bootstrap");
 		goto out;
 	}
 	for (rep = 0; rep < B && rc == HC_OK; rep++) {
 		struct universe *ru = NULL;
 		struct hc_periodic *rp = NULL;
-		struct rule_result sr[2];
+		struct rule_result sr[3];
 
 		so.seed = hc_rules_replicate_seed(bo->seed, rep);
 		rc = hc_bootstrap_indices(bo->kind, u->t, L, bo->seed, rep, idx, err);
@@ -1049,23 +1080,23 @@ int hc_periodic_bootstrap_sampled(const struct rules_config *cfg, const struct u
 			rc = hc_periodic_alloc(&rp, ru, 0, ru->t, err);
 		if (rc == HC_OK)
 			rc = hc_periodic_rules_sampled(cfg, rp, ru, &so, sr, &K, err);
-		for (k = 0; rc == HC_OK && k < 2; k++)
-			cnt[2 * rep + k] = sr[k].met ? sr[k].count : 0;
+		for (k = 0; rc == HC_OK && k < 3; k++)
+			cnt[3 * rep + k] = sr[k].met ? sr[k].count : 0;
 		hc_periodic_free(rp);
 		hc_universe_free(ru);
 		if (rc == HC_OK && bo->progress && bo->progress(bo->progress_ctx, rep + 1, B))
 			rc = hc_error(err, HC_EINTERRUPT, "the sampled bootstrap stopped after %zu of %zu replicates",
 				      rep + 1, B);
 	}
-	for (k = 0; rc == HC_OK && k < 2; k++) {
-		int rule = k == 0 ? RULES_BAND : RULES_LAG_SHARE;
+	for (k = 0; rc == HC_OK && k < 3; k++) {
+		int rule = which[k];
 
 		if (!(cfg->selected & RULES_FLAG(rule)))
 			continue;
 		for (j = 0; j < nres; j++)
-			if (res[j].rule == rule) {
+			if (res[j].rule == rule && res[j].defined) {
 				for (rep = 0; rep < B; rep++)
-					col[rep] = cnt[2 * rep + k];
+					col[rep] = cnt[3 * rep + k];
 				hc_rules_set_interval(&res[j], col, B);
 			}
 	}

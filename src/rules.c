@@ -767,14 +767,17 @@ int hc_rules_lag_share(const struct rules_config *cfg,
  * P(s^2(N) <= v-bar - x (v-bar - s_u^2)) >= q.  *limit gets that variance
  * limit (per period); returns -1 when there is nothing to remove.
  */
-static int at_limit(const struct rules_config *cfg, double vbar, double cbar, size_t m, double *limit)
+static int at_limit_between(const struct rules_config *cfg, double vbar, double su2, double *limit)
 {
-	double su2 = m ? vbar / (double)m + (1 - 1.0 / (double)m) * cbar : cbar;
-
 	if (!(vbar - su2 > 0))
 		return -1;
 	*limit = vbar - cfg->at_x * (vbar - su2);
 	return 0;
+}
+
+static int at_limit(const struct rules_config *cfg, double vbar, double cbar, size_t m, double *limit)
+{
+	return at_limit_between(cfg, vbar, m ? vbar / (double)m + (1 - 1.0 / (double)m) * cbar : cbar, limit);
 }
 
 /* P(s^2(n) <= limit) by a gamma distribution with the exact mean and
@@ -839,6 +842,15 @@ int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct 
 				   double vbar, double cbar, size_t m, struct rule_result *res,
 				   struct hc_error *err)
 {
+	return hc_rules_alexeev_tapon_sampled_between(cfg, r, vbar,
+						      m ? vbar / (double)m + (1 - 1.0 / (double)m) * cbar : cbar,
+						      res, err);
+}
+
+int hc_rules_alexeev_tapon_sampled_between(const struct rules_config *cfg, const struct sampler_result *r,
+					   double one_holding, double universe_variance,
+					   struct rule_result *res, struct hc_error *err)
+{
 	double limit;
 	size_t j, k;
 	int status;
@@ -847,7 +859,7 @@ int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct 
 		return status;
 	result_init(cfg, RULES_ALEXEEV_TAPON_SAMPLED, res);
 	res->threshold = cfg->at_q;
-	if (at_limit(cfg, vbar, cbar, m, &limit) != 0) {
+	if (at_limit_between(cfg, one_holding, universe_variance, &limit) != 0) {
 		res->defined = 0;
 		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
 		return HC_OK;

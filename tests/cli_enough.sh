@@ -498,5 +498,112 @@ assert b["replicates"] == 30 and b["count_p05"] <= b["count_p50"] <= b["count_p9
 assert b["count_p05"] <= b["count"] + 3 and b["count_p95"] >= b["count"] - 3, b
 PY
 
+# 18. Ragged histories (--missing alive, the default for a file with gaps):
+#     a generated universe with listings, delistings and scattered gaps.
+"$PYTHON" - "$tmp/r.csv" <<'PY'
+import sys, numpy as np, datetime as dt
+rng = np.random.default_rng(614)
+m, t = 30, 96
+beta = rng.uniform(0.6, 1.4, m)
+f = rng.normal(0.006, 0.045, t)
+x = f[:, None] * beta[None, :] + rng.normal(0, 1, (t, m)) * rng.uniform(0.05, 0.11, m)[None, :]
+for i in range(m):
+    if i % 3 == 1:
+        x[: rng.integers(5, t // 2), i] = np.nan          # listed late
+    if i % 4 == 2:
+        x[t // 2 + rng.integers(0, t // 3):, i] = np.nan  # delisted
+x[rng.uniform(size=(t, m)) < 0.03] = np.nan               # scattered gaps
+with open(sys.argv[1], "w") as fp:
+    fp.write("date," + ",".join("LIR9%02d" % i for i in range(m)) + "\n")
+    for k in range(t):
+        y, mo = 2011 + (k + 1) // 12, (k + 1) % 12 + 1
+        d = dt.date(y, mo, 1) - dt.timedelta(days=1)
+        fp.write(d.isoformat() + "," + ",".join("" if np.isnan(v) else repr(float(v)) for v in x[k]) + "\n")
+PY
+#   (a) Alexeev & Tapon: the exact form null with its reason, the sampled
+#       form counted with an interval (its count against enumeration of
+#       every order of a ragged universe: test_periodic.c); (b) every other
+#       rule's interval present, containing the estimate or saying why;
+#       (c) the intervals are percentiles and the output says so when
+#       another was asked for; (d) the McLeod-Li statistic recomputed with
+#       numpy on the equal-weight alive portfolio's centred returns (each
+#       security centred on its own observed mean), McLeod & Li (1983).
+for iv in studentized percentile; do
+	"$HOLDCOUNT" enough "$tmp/r.csv" --rules all --paths 1500 --bootstrap 60 --bootstrap-sampled \
+		--bootstrap-paths 150 --interval "$iv" --format json >"$tmp/rag-$iv.json" ||
+		fail "ragged enough --interval $iv: exit $?"
+done
+"$PYTHON" - "$tmp" <<'PY' || fail "ragged intervals: $(head -c 3000 "$tmp/rag-studentized.json")"
+import sys, json, csv, numpy as np
+d = sys.argv[1]
+r = list(csv.reader(open(d + "/r.csv")))
+x = np.array([[float(v) if v else np.nan for v in row[1:]] for row in r[1:]])
+xc = x - np.nanmean(x, axis=0)[None, :]
+ew = np.nanmean(xc, axis=1)
+for iv in ("studentized", "percentile"):
+    j = json.load(open("%s/rag-%s.json" % (d, iv)))
+    rules = {q["rule"]: q for q in j["rules"]}
+    assert set(rules) == {"near-floor", "marginal", "band", "next-holding", "tracking-error", "lag-share",
+                          "statman-borrowing", "statman-lending", "alexeev-tapon", "alexeev-tapon-sampled"}
+    a = rules["alexeev-tapon"]
+    assert a["count"] is None and a["met"] is False and a["value_at_count"] is None, a
+    assert "not available period by period" in a["note"] and "alexeev-tapon-sampled" in a["note"], a
+    s = rules["alexeev-tapon-sampled"]
+    assert s["met"] and 2 <= s["count"] <= 30 and s["value_at_count"] >= 0.9, s
+    for name, q in rules.items():
+        if name == "alexeev-tapon":
+            continue
+        assert q["met"], q
+        assert q["replicates"] == 60 and q["count_p50"] is not None, q
+        lo, hi = q["count_p05"], q["count_p95"]
+        inside = lo is not None and lo <= q["count"] and (hi is None or q["count"] <= hi)
+        assert inside or "excludes the estimate" in (q["note"] or ""), q
+        assert lo is not None and (hi is not None or "not met" in (q["note"] or "")), q
+    notes = [c for c in j["cautions"] if c.startswith("ragged history:")]
+    assert len(notes) == 1, j["cautions"]
+    assert ("not the --interval asked for" in notes[0]) == (iv == "studentized"), notes
+    assert j["clustering_lags"] == 12, j["clustering_lags"]
+    y = ew * ew - (ew * ew).mean()
+    h, n = 12, len(y)
+    qq = n * (n + 2) * sum(((y[k:] * y[:-k]).sum() / (y * y).sum()) ** 2 / (n - k) for k in range(1, h + 1))
+    assert abs(j["clustering_q"] - qq) <= 1e-8 * qq, (j["clustering_q"], qq)
+    assert j["block_length"] >= 1 and any("data-driven: Politis & White" in c for c in j["cautions"])
+# the exact rules' intervals do not depend on --interval here (both percentile)
+a, b = (json.load(open("%s/rag-%s.json" % (d, iv)))["rules"] for iv in ("studentized", "percentile"))
+assert [(q["count_p05"], q["count_p95"]) for q in a] == [(q["count_p05"], q["count_p95"]) for q in b]
+PY
+
+# 19. The recommendation on a ragged history names the treatment (the
+#     survivorship-free per-period one, with the securities alive per
+#     period, fewest/median/most, recounted here from the file's cells) and
+#     the data period (the file's first and last dates), in text, CSV and
+#     JSON alike.
+"$HOLDCOUNT" enough "$tmp/r.csv" --bootstrap 40 --paths 300 --format json >"$tmp/rp.json"
+"$HOLDCOUNT" enough "$tmp/r.csv" --bootstrap 40 --paths 300 --format csv >"$tmp/rp.csv"
+"$HOLDCOUNT" enough "$tmp/r.csv" --bootstrap 40 --paths 300 >"$tmp/rp.txt"
+"$PYTHON" - "$tmp" <<'PY' || fail "ragged policy sentence: $(grep -i policy "$tmp/rp.txt")"
+import sys, json, csv
+d = sys.argv[1]
+r = list(csv.reader(open(d + "/r.csv")))
+alive = sorted(sum(1 for v in row[1:] if v) for row in r[1:])
+lo, med, hi = alive[0], alive[(len(alive) - 1) // 2], alive[-1]
+assert lo < hi, alive
+j = json.load(open(d + "/rp.json"))
+assert (j["alive_min"], j["alive_median"], j["alive_max"]) == (lo, med, hi), (j["alive_min"], lo, med, hi)
+period = "96 periods (12 a year) from %s to %s" % (r[1][0], r[-1][0])
+treat = ("30 securities from %s/r.csv, in the survivorship-free per-period treatment (each period the "
+         "securities alive then, delisted ones included; securities alive per period: fewest %d, median %d, "
+         "most %d)" % (d, lo, med, hi))
+assert j["policy_period"] == period, j["policy_period"]
+assert j["policy_universe"] == treat, (j["policy_universe"], treat)
+s = j["policy_sentence"]
+assert s.startswith("The portfolio shall hold at least %d securities. Basis: on %s of returns of %s, "
+                    % (j["policy_count"], period, treat)), s
+rows = [x for x in csv.DictReader(open(d + "/rp.csv")) if x["policy"] == "true"]
+assert len(rows) == 1 and rows[0]["policy_sentence"] == s, rows
+txt = open(d + "/rp.txt").read()
+assert "policy sentence:" in txt and " ".join(txt.split("policy sentence:", 1)[1].split("\n\n")[0].split()) == s
+PY
+
 [ "$fails" = 0 ] || { echo "$fails failure(s)" >&2; exit 1; }
 echo "cli_enough: all checks passed"

@@ -20,7 +20,7 @@ expect() {
 }
 
 # Help for every command: `COMMAND --help`, `COMMAND -h` and `help COMMAND` identical.
-for c in describe curve formula enough audit rolling report synth; do
+for c in describe curve formula enough horizon audit rolling report synth; do
 	"$HC" help "$c" >"$T/a" 2>&1 || fail "help $c exit $?"
 	case $c in describe|curve|formula)
 		"$HC" "$c" --help >"$T/b" 2>&1 || fail "$c --help exit $?"
@@ -78,7 +78,7 @@ expect 2 "holdcount synth: unknown option '--bogus' (see 'holdcount synth --help
 # Manual pages (roff) from the same tables: groff -ww finds nothing to warn
 # about, and each page lists exactly the options --help lists.
 command -v groff >/dev/null || { echo "FAIL: groff is needed to check the manual pages"; exit 1; }
-for c in "" describe curve formula enough audit rolling report synth; do
+for c in "" describe curve formula enough horizon audit rolling report synth; do
 	"$HC" help --man $c >"$T/page.1" || fail "help --man $c exit $?"
 	groff -ww -man -Tutf8 -P-cbou "$T/page.1" >"$T/page.txt" 2>"$T/groff.err" || fail "groff on the $c page exit $?"
 	[ -s "$T/groff.err" ] && fail "groff warnings on the $c page: $(head -c 300 "$T/groff.err")"

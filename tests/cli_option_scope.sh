@@ -85,6 +85,7 @@ value() {
 	mean-return) echo 0.07 ;;     mean-spread) echo 0.02 ;;    floor-return) echo -0.9 ;;
 	sectors-output) echo "$T/so.$n" ;; parameters-output) echo "$T/po.$n" ;;
 	measures) echo es95,max_drawdown ;;
+	years) echo 2 ;;               benchmark-rate) echo 3% ;;
 	*) return 1 ;;
 	esac
 }
@@ -125,7 +126,7 @@ listed() {
 }
 
 commands=$("$HC" --help | sed -n '/^commands:/,/^$/p' | sed -n 's/^  \([a-z][a-z]*\) .*/\1/p')
-[ "$(echo $commands)" = "describe curve formula enough audit rolling report compare synth check" ] \
+[ "$(echo $commands)" = "describe curve formula enough horizon audit rolling report compare synth check" ] \
 	|| fail "the commands are now '$(echo $commands)': check this test covers each"
 n=0
 for c in $commands; do
@@ -149,7 +150,7 @@ for c in $commands; do
 	# compare takes the output options only (--format, --output, --quiet)
 	[ "$checked" -ge "$([ "$c" = compare ] && echo 3 || echo 8)" ] || fail "$c: only $checked options read from its help"
 done
-# 10 commands, each but compare with at least 8 options (synth has 24, report 63).
+# 11 commands, each but compare with at least 8 options (synth has 24, report 63).
 [ "$n" -ge 150 ] || fail "only $n options checked in all"
 
 # The options left out, per command (src/cli/cmd_*.c, cli_omit lists): not

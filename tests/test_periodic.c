@@ -13,6 +13,7 @@
 #include <cmocka.h>
 
 #include <gsl/gsl_rng.h>
+#include <gsl/gsl_permutation.h>
 #include <gsl/gsl_randist.h>
 
 #include "holdcount/curve.h"
@@ -541,6 +542,125 @@ static void test_periodic_source_kind(void **state)
 	hc_source_free(s2);
 }
 
+/* Alexeev & Tapon (2014) on a ragged history, against exact enumeration of
+ * every order of a 7-security ragged universe (7! = 5040): the ragged
+ * sampler draws a uniformly random order and holds, each period, the first
+ * min(N, M_t) of it alive then, so the probability that a random
+ * N-portfolio removes at least x of the removable variance is a count over
+ * orders.  The variance of an order's portfolio (mean square of the
+ * portfolio's centred returns, divisor T - 1) is recomputed here from the
+ * raw cells; the removable variance runs from its mean over orders at
+ * N = 1 down to the equal-weight alive portfolio's (N = M).  The sampled
+ * rule's count must be the enumerated (settled) count, its share at the
+ * count within 4.5 standard errors of the enumerated probability, and no
+ * enumerated probability may sit within 4.5 standard errors of q (so the
+ * count is not a coin toss: the check can fail). */
+static void at_enumerate(const struct universe *u, size_t n, double *var, size_t norders)
+{
+	size_t m = u->m, t = u->t, i, k, o = 0;
+	double mean[8];
+	gsl_permutation *perm = gsl_permutation_calloc(m);
+
+	assert_non_null(perm);
+	assert_true(m <= 8);
+	for (i = 0; i < m; i++) {
+		double s = 0;
+		size_t c = 0;
+
+		for (k = 0; k < t; k++)
+			if (!isnan(u->x[i * t + k])) {
+				s += u->x[i * t + k];
+				c++;
+			}
+		mean[i] = s / (double)c;
+	}
+	do {
+		long double acc = 0;
+
+		for (k = 0; k < t; k++) {
+			long double s = 0;
+			size_t held = 0, j;
+
+			for (j = 0; j < m && held < n; j++) {
+				size_t sec = gsl_permutation_get(perm, j);
+
+				if (!isnan(u->x[sec * t + k])) {
+					s += u->x[sec * t + k] - mean[sec];
+					held++;
+				}
+			}
+			if (held)
+				acc += (s / held) * (s / held);
+		}
+		var[o++] = (double)(acc / (long double)(t - 1));
+	} while (gsl_permutation_next(perm) == GSL_SUCCESS);
+	assert_int_equal(o, norders);
+	gsl_permutation_free(perm);
+}
+
+static void test_periodic_alexeev_tapon_sampled_enumeration(void **state)
+{
+	enum { M = 7, ORDERS = 5040 };
+	static const double xq[][2] = { { 0.90, 0.90 }, { 0.75, 0.90 }, { 0.90, 0.60 } };
+	struct universe *u = make_universe(M, 23, 1, 29);
+	struct hc_periodic *p = NULL;
+	struct sampler_options so;
+	struct rules_config cfg;
+	struct rule_result sr[3];
+	struct hc_error err;
+	static double var[M + 1][ORDERS];
+	double one = 0, prob[M + 1];
+	size_t n, k, c, K, want, paths = 40000;
+
+	(void)state;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_int_equal(p->m, M);
+	assert_true(p->alive_min < p->alive_max);   /* ragged indeed */
+	for (n = 1; n <= M; n++)
+		at_enumerate(u, n, var[n], ORDERS);
+	for (k = 0; k < ORDERS; k++)
+		one += var[1][k] / ORDERS;
+	/* the two ends of the removable variance */
+	assert_true(rel(one, hc_periodic_expected_variance(&p->curve, 1)) < 1e-12);
+	for (k = 0; k < ORDERS; k++)
+		assert_true(rel(var[M][k], p->curve.a) < 1e-12);
+	hc_sampler_options_init(&so);
+	so.paths = paths;
+	so.seed = 7;
+	so.threads = 2;
+	for (c = 0; c < sizeof xq / sizeof xq[0]; c++) {
+		double limit;
+
+		hc_rules_config_init(&cfg);
+		cfg.selected = RULES_FLAG(RULES_ALEXEEV_TAPON_SAMPLED);
+		cfg.at_x = xq[c][0];
+		cfg.at_q = xq[c][1];
+		limit = one - cfg.at_x * (one - p->curve.a);
+		want = 0;
+		for (n = M; n >= 1; n--) {
+			size_t removed = 0;
+
+			for (k = 0; k < ORDERS; k++)
+				removed += var[n][k] <= limit;
+			prob[n] = (double)removed / ORDERS;
+			/* no enumerated probability within sampling reach of q */
+			assert_true(fabs(prob[n] - cfg.at_q) > 4.5 * sqrt(cfg.at_q * (1 - cfg.at_q) / (double)paths));
+			if (want == n + 1 || (n == M && prob[n] >= cfg.at_q))
+				want = prob[n] >= cfg.at_q ? n : want;
+		}
+		assert_true(want >= 2 && want <= M);   /* a count inside the universe, not trivially 1 */
+		assert_int_equal(hc_periodic_rules_sampled(&cfg, p, u, &so, sr, &K, &err), HC_OK);
+		assert_int_equal(K, M);
+		assert_int_equal(sr[2].rule, RULES_ALEXEEV_TAPON_SAMPLED);
+		assert_true(sr[2].defined && sr[2].met);
+		assert_int_equal(sr[2].count, want);
+		assert_true(fabs(sr[2].value - prob[want]) <=
+			    4.5 * sqrt(prob[want] * (1 - prob[want]) / (double)paths) + 1e-12);
+	}
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
 /* The exact spread on complete data: hc_curve_pairwise_spread (the masked
  * Gram products of the pairwise route) on the per-period curve gives the
  * complete-data variance_sd of hc_curve_exact (design.md section 3) to
@@ -691,6 +811,7 @@ int main(void)
 		cmocka_unit_test(test_periodic_measures_hook),
 		cmocka_unit_test(test_periodic_refuses_tiny),
 		cmocka_unit_test(test_periodic_source_kind),
+		cmocka_unit_test(test_periodic_alexeev_tapon_sampled_enumeration),
 		cmocka_unit_test(test_periodic_spread_matches_complete_route),
 		cmocka_unit_test(test_periodic_spread_refusals),
 		cmocka_unit_test(test_periodic_spread_kept_securities),

@@ -98,6 +98,12 @@ void hc_bootstrap_base_free(struct bootstrap_base *b);
 int hc_bootstrap_indices(int kind, size_t t, size_t block_length, uint64_t seed,
 		      size_t rep, size_t *idx, struct hc_error *err);
 
+/* The same streams drawing n periods (n may exceed t: a bootstrap path
+ * longer than the sample, the horizons of horizon.h): for n = t exactly
+ * hc_bootstrap_indices' draw. */
+int hc_bootstrap_indices_n(int kind, size_t t, size_t n, size_t block_length, uint64_t seed,
+			   size_t rep, size_t *idx, struct hc_error *err);
+
 /*
  * Average variance and covariance (per period, divisor T-1) of the
  * resampled universe whose period t appears w[t] times (sum w = T).
@@ -162,6 +168,10 @@ void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, doubl
  */
 #define HC_BOOTSTRAP_CLUSTERING_LAGS 12
 void hc_bootstrap_clustering(const struct bootstrap_base *b, size_t *lags, double *q, double *p);
+/* The same test on any series r[0..n-1] (its squares, centred on their
+ * mean): a ragged history passes its equal-weight alive portfolio's
+ * centred returns (periodic.h). */
+void hc_bootstrap_mcleod_li(const double *r, size_t n, size_t *lags, double *q, double *p);
 
 #ifdef __cplusplus
 }

@@ -143,6 +143,15 @@ int hc_periodic_rule(const struct rules_config *cfg, int rule,
 		     struct rule_result *res, struct hc_error *err);
 
 /*
+ * The data-driven expected block length of the per-period route (Politis &
+ * White, 2004, with Patton, Politis & White, 2009: bootstrap.h): the larger
+ * of the lengths of the two per-period series the curve is a mean of, the
+ * squared mean xbar_t^2 and the cross-sectional variance s2_t, rounded,
+ * within 1..T.  HC_ENOMEM only.
+ */
+int hc_periodic_block_length(const struct hc_periodic *p, size_t *length, struct hc_error *err);
+
+/*
  * Bootstrap interval of the exact rules among res[0..nres-1]: B replicates
  * of the periods drawn as bootstrap.h draws them (hc_bootstrap_indices,
  * same kind, block length and seed, so the replicates are the complete-data
@@ -196,27 +205,30 @@ int hc_periodic_universe_return(const struct hc_periodic *p, double periods_per_
 				double *ret, struct hc_error *err);
 
 /*
- * The band and shortfall rules (those cfg selects) from ragged random
+ * The band, lag-share and alexeev-tapon-sampled rules (those cfg selects) from ragged random
  * portfolios (hc_periodic_sample) over sizes 1..K, K growing as
  * hc_rules_sampled's stages do (RULES_SAMPLED_FIRST_K, times
- * RULES_SAMPLED_GROWTH) until both are met or K reaches p->m: band against
+ * RULES_SAMPLED_GROWTH) until all are met or K reaches p->m: band against
  * the per-period floor, shortfall against the compound return of the
- * equal-weight portfolio of the alive securities.  sr[0] band, sr[1]
- * shortfall (zeroed when not selected); *largest the last K.  base gives
+ * equal-weight portfolio of the alive securities, alexeev-tapon-sampled
+ * with the removable variance running from E[sigma^2(1)] of the curve down
+ * to curve.a (hc_rules_alexeev_tapon_sampled_between).  sr[0] band, sr[1]
+ * lag-share, sr[2] alexeev-tapon-sampled (zeroed when not selected);
+ * *largest the last K.  base gives
  * paths, seed, threads and progress.  u is the universe p was computed
  * from (first period 0).
  */
 int hc_periodic_rules_sampled(const struct rules_config *cfg, const struct hc_periodic *p,
 			      const struct universe *u, const struct sampler_options *base,
-			      struct rule_result sr[2], size_t *largest, struct hc_error *err);
+			      struct rule_result sr[3], size_t *largest, struct hc_error *err);
 
 /*
  * The interval of the sampled rules on a ragged history: per replicate the
  * periods are drawn as for the exact rules (bo), the resampled history is
  * re-summed (each security re-centred on the replicate, O(M T)) and
  * sampled afresh with the replicate's seed (hc_rules_replicate_seed) and
- * base->paths paths; hc_rules_set_interval on the band and shortfall
- * results among res.  bo->progress is called after each replicate.
+ * base->paths paths; hc_rules_set_interval on the band, lag-share and
+ * alexeev-tapon-sampled results among res.  bo->progress is called after each replicate.
  */
 int hc_periodic_bootstrap_sampled(const struct rules_config *cfg, const struct universe *u,
 				  const struct bootstrap_options *bo, const struct sampler_options *base,

@@ -261,6 +261,16 @@ int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments 
 int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct sampler_result *r,
 				   double vbar, double cbar, size_t m, struct rule_result *res,
 				   struct hc_error *err);
+/* The sampled form given the two ends of the removable variance directly
+ * (per period): one_holding, the expected variance of a one-holding random
+ * portfolio (v-bar), and universe_variance, the equal-weight universe's.
+ * A ragged history (periodic.h) passes E[sigma^2(1)] of its per-period
+ * curve and the variance of the equal-weight portfolio of the securities
+ * alive each period (curve.a); hc_rules_alexeev_tapon_sampled passes v-bar
+ * and v-bar/M + (1 - 1/M) c-bar. */
+int hc_rules_alexeev_tapon_sampled_between(const struct rules_config *cfg, const struct sampler_result *r,
+					   double one_holding, double universe_variance,
+					   struct rule_result *res, struct hc_error *err);
 
 /*
  * Compound annualised return of the universe's equal-weight portfolio,

@@ -11,6 +11,7 @@ const struct cli_command *const cli_commands[] = {
 	&cli_command_curve,
 	&cli_command_formula,
 	&cli_command_enough,
+	&cli_command_horizon,
 	&cli_command_audit,
 	&cli_command_rolling,
 	&cli_command_report,

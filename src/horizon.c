@@ -1,0 +1,597 @@
+/*
+ * horizon.c - ending wealth over H years by holding count, rebalanced and
+ * buy-and-hold (horizon.h, docs/horizon.md).
+ *
+ * One path: the sampler's ordering of the securities (hc_sampler_members),
+ * and h period indices (a window, or a stationary bootstrap path: Politis &
+ * Romano, 1994, JASA 89(428), through hc_bootstrap_indices_n).  The history
+ * is transposed once to period-major rows, so each period of the path reads
+ * one row of M returns; the members' returns are summed in the ordering's
+ * order, and each size's rebalanced wealth takes its factor when the
+ * running sum reaches it, while every member's own compounded growth (for
+ * buy-and-hold) is kept in the workspace: O(n_max h) a path, plus O(M h)
+ * for the universe held the same two ways when it is the benchmark.
+ */
+#include "holdcount/horizon.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "holdcount/bootstrap.h"
+#include "holdcount/measures.h"
+#include "holdcount/memory.h"
+#include "holdcount/paths.h"
+#include "holdcount/sampler.h"
+#include "holdcount/universe.h"
+
+/* The tag that keys the horizon's window and bootstrap streams (paths.h):
+ * distinct from the sampler's own seeds. */
+#define HORIZON_TAG 0x686f72697a6f6e31ULL
+
+void hc_horizon_options_init(struct hc_horizon_options *opt)
+{
+	memset(opt, 0, sizeof *opt);
+	opt->years = HC_HORIZON_DEFAULT_YEARS;
+	opt->paths = HC_HORIZON_DEFAULT_PATHS;
+	opt->seed = 1;
+	opt->route = HC_HORIZON_AUTO;
+	opt->rate = NAN;
+}
+
+/* Uniform integer in 0..n-1 from a splitmix64 stream, rejecting the low
+ * (2^64 mod n) outputs (no modulo bias). */
+static uint64_t uniform_below(uint64_t *state, uint64_t n)
+{
+	uint64_t threshold = (0 - n) % n, x;
+
+	do
+		x = hc_paths_splitmix64(state);
+	while (x < threshold);
+	return x % n;
+}
+
+static int draw_periods(uint64_t seed, size_t k, size_t t, size_t h, int route, size_t l, size_t *periods,
+			struct hc_error *err)
+{
+	size_t s, start;
+	uint64_t st;
+
+	if (h < 1 || t < 1)
+		return hc_error(err, HC_EUSAGE, "a path needs at least one period");
+	if (route == HC_HORIZON_WINDOWS) {
+		if (h > t)
+			return hc_error(err, HC_EUSAGE, "a window of %zu periods does not fit in %zu", h, t);
+		st = hc_paths_stream(seed ^ HORIZON_TAG, (uint64_t)k);
+		start = (size_t)uniform_below(&st, (uint64_t)(t - h + 1));
+		for (s = 0; s < h; s++)
+			periods[s] = start + s;
+		return HC_OK;
+	}
+	if (route != HC_HORIZON_BOOTSTRAP)
+		return hc_error(err, HC_EUSAGE, "unknown horizon route %d", route);
+	return hc_bootstrap_indices_n(BOOTSTRAP_STATIONARY, t, h, l, seed ^ HORIZON_TAG, k, periods, err);
+}
+
+int hc_horizon_draw(uint64_t seed, size_t k, size_t m, size_t t, size_t h, int route, size_t block_length,
+		    uint32_t *members, size_t *periods, struct hc_error *err)
+{
+	int rc = hc_sampler_members(seed, k, m, members, err);
+
+	return rc ? rc : draw_periods(seed, k, t, h, route, block_length, periods, err);
+}
+
+/* The growth factor of a return: a loss of 100% or more ends at 0. */
+static inline double grow(double r)
+{
+	double f = 1.0 + r;
+
+	return f > 0 ? f : 0.0;
+}
+
+struct hjob {
+	size_t m, t, h, nmax, nsizes, nuniq, l;
+	int route, universe_bench;
+	uint64_t seed;
+	const double *xt;          /* t*m period-major */
+	const double *ubar;        /* t equal-weight universe returns (index order) */
+	const size_t *sizes;       /* nsizes as asked */
+	const size_t *uniq;        /* nuniq ascending distinct sizes */
+	const size_t *slot;        /* nsizes: index into uniq */
+	double rate_wealth;
+	double *wealth;            /* paths * nsizes * 2 */
+	double *uwealth;           /* paths * 2 (NaN when not computed) */
+	int failed;
+};
+
+struct hws {
+	uint32_t *idx;             /* m */
+	size_t *per;               /* h */
+	double *g;                 /* nmax member growths */
+	double *ug;                /* m, the universe's growths (universe benchmark) */
+	double *reb;               /* nuniq */
+	double *bh;                /* nuniq */
+};
+
+static void ws_release(void *wsv)
+{
+	struct hws *w = wsv;
+
+	hc_free(w->idx);
+	hc_free(w->per);
+	hc_free(w->g);
+	hc_free(w->ug);
+	hc_free(w->reb);
+	hc_free(w->bh);
+	memset(w, 0, sizeof *w);
+}
+
+static int ws_init(void *job, void *wsv)
+{
+	const struct hjob *j = job;
+	struct hws *w = wsv;
+
+	w->idx = hc_mallocarray(j->m, sizeof *w->idx);
+	w->per = hc_mallocarray(j->h, sizeof *w->per);
+	w->g = hc_mallocarray(j->nmax, sizeof *w->g);
+	w->ug = hc_mallocarray(j->m, sizeof *w->ug);
+	w->reb = hc_mallocarray(j->nuniq, sizeof *w->reb);
+	w->bh = hc_mallocarray(j->nuniq, sizeof *w->bh);
+	if (!w->idx || !w->per || !w->g || !w->ug || !w->reb || !w->bh) {
+		ws_release(w);
+		return -1;
+	}
+	return 0;
+}
+
+static void horizon_path(void *job, void *wsv, size_t k)
+{
+	struct hjob *J = job;
+	struct hws *w = wsv;
+	size_t m = J->m, i, q, s, j;
+	double ureb = 1.0, ubh = NAN, sum, *out;
+
+	if (hc_horizon_draw(J->seed, k, m, J->t, J->h, J->route, J->l, w->idx, w->per, NULL)) {
+#pragma omp atomic write
+		J->failed = 1;
+		return;
+	}
+	for (i = 0; i < J->nmax; i++)
+		w->g[i] = 1.0;
+	for (q = 0; q < J->nuniq; q++)
+		w->reb[q] = 1.0;
+	if (J->universe_bench)
+		for (i = 0; i < m; i++)
+			w->ug[i] = 1.0;
+	for (s = 0; s < J->h; s++) {
+		const double *row = J->xt + w->per[s] * m;
+
+		sum = 0.0;
+		i = 0;
+		for (q = 0; q < J->nuniq; q++) {
+			size_t n = J->uniq[q];
+			double a0 = 0.0, a1 = 0.0, a2 = 0.0, a3 = 0.0;
+
+			/* Four fixed lanes between two sizes, so the adds do not
+			 * wait on each other; the grouping depends on the sizes
+			 * alone, never on the thread. */
+			for (; i + 4 <= n; i += 4) {
+				double r0 = row[w->idx[i]], r1 = row[w->idx[i + 1]];
+				double r2 = row[w->idx[i + 2]], r3 = row[w->idx[i + 3]];
+
+				a0 += r0;
+				a1 += r1;
+				a2 += r2;
+				a3 += r3;
+				w->g[i] *= grow(r0);
+				w->g[i + 1] *= grow(r1);
+				w->g[i + 2] *= grow(r2);
+				w->g[i + 3] *= grow(r3);
+			}
+			for (; i < n; i++) {
+				double r = row[w->idx[i]];
+
+				a0 += r;
+				w->g[i] *= grow(r);
+			}
+			sum += (a0 + a1) + (a2 + a3);
+			w->reb[q] *= grow(sum / (double)n);
+		}
+		if (J->universe_bench) {
+			ureb *= grow(J->ubar[w->per[s]]);
+			if (J->nmax < m)
+				for (i = 0; i < m; i++)
+					w->ug[i] *= grow(row[i]);
+		}
+	}
+	sum = 0.0;
+	i = 0;
+	for (q = 0; q < J->nuniq; q++) {
+		size_t n = J->uniq[q];
+
+		for (; i < n; i++)
+			sum += w->g[i];
+		w->bh[q] = sum / (double)n;
+	}
+	if (J->universe_bench) {
+		/* With every security drawn, each one's growth is already in g,
+		 * the same factors multiplied in the same order (the same bits):
+		 * put them back in security order rather than compound them again. */
+		if (J->nmax == m)
+			for (i = 0; i < m; i++)
+				w->ug[w->idx[i]] = w->g[i];
+		sum = 0.0;
+		for (i = 0; i < m; i++)
+			sum += w->ug[i];
+		ubh = sum / (double)m;
+	} else {
+		ureb = NAN;
+	}
+	J->uwealth[k * 2 + HC_HORIZON_REBALANCED] = ureb;
+	J->uwealth[k * 2 + HC_HORIZON_BUY_HOLD] = ubh;
+	out = J->wealth + k * J->nsizes * 2;
+	for (j = 0; j < J->nsizes; j++) {
+		q = J->slot[j];
+		if (J->universe_bench && J->sizes[j] == m) {
+			/* The portfolio of all M is the universe: the same figures,
+			 * bit for bit (its members summed in another order could
+			 * differ by rounding and "lag" themselves). */
+			out[j * 2 + HC_HORIZON_REBALANCED] = ureb;
+			out[j * 2 + HC_HORIZON_BUY_HOLD] = ubh;
+		} else {
+			out[j * 2 + HC_HORIZON_REBALANCED] = w->reb[q];
+			out[j * 2 + HC_HORIZON_BUY_HOLD] = w->bh[q];
+		}
+	}
+}
+
+static int cmp_size(const void *a, const void *b)
+{
+	size_t x = *(const size_t *)a, y = *(const size_t *)b;
+
+	return (x > y) - (x < y);
+}
+
+/* Mean, s.e. and quantiles of v[0..K) (reordered), lag share against
+ * bench (per path, stride bstride; NULL: no lag). */
+static void summarise(struct hc_horizon_point *p, double *v, size_t K, const double *bench, size_t bstride,
+		      const double *wealth_for_lag, size_t wstride)
+{
+	long double s1 = 0, ss = 0, lag = 0;
+	double mean, var;
+	size_t k;
+
+	for (k = 0; k < K; k++)
+		s1 += v[k];
+	mean = (double)(s1 / (long double)K);
+	for (k = 0; k < K; k++)
+		ss += ((long double)v[k] - mean) * ((long double)v[k] - mean);
+	var = K > 1 ? (double)(ss / (long double)(K - 1)) : NAN;
+	p->mean = mean;
+	p->se = sqrt(var / (double)K);
+	if (bench) {
+		for (k = 0; k < K; k++)
+			lag += wealth_for_lag[k * wstride] < bench[k * bstride];
+		p->lag = (double)(lag / (long double)K);
+		p->lag_se = K > 1 ? sqrt(p->lag * (1 - p->lag) * (double)K / (double)(K - 1) / (double)K) : NAN;
+	} else {
+		p->lag = p->lag_se = NAN;
+	}
+	p->p05 = hc_measures_quantile(v, K, 0.05);
+	p->p50 = hc_measures_quantile(v, K, 0.50);
+	p->p95 = hc_measures_quantile(v, K, 0.95);
+}
+
+static const char *const wkey[HC_HORIZON_WEIGHTINGS] = { "rebal", "hold" };
+static const char *const wtitle[HC_HORIZON_WEIGHTINGS] = { "rebal.", "hold" };
+
+static int build_report(struct hc_horizon_result *r, const struct hc_source *src, const struct hc_horizon_options *opt,
+			double ppy, size_t t)
+{
+	struct report *rep = hc_report_alloc();
+	struct report_table *tab;
+	char text[400];
+	size_t j, w, c;
+	int rc = HC_ENOMEM;
+	static const char *const ckey[] = { "mean", "se", "p05", "p50", "p95", "lag", "lag_se" };
+	static const char *const ctitle[] = { "mean", "s.e.", "5%", "median", "95%", "lag", "lag s.e." };
+
+	if (!rep)
+		return HC_ENOMEM;
+	r->report = rep;
+	if (hc_report_add_text(rep, "source", "source", src->name ? src->name : "-") ||
+	    hc_report_add_text(rep, "input", "input", "return history") ||
+	    hc_report_add_int(rep, "securities", "securities", (long long)hc_source_m(src)) ||
+	    hc_report_add_int(rep, "periods", "periods in the sample", (long long)t) ||
+	    hc_report_add_real(rep, "periods_per_year", "periods per year", ppy, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_real(rep, "horizon_years", "horizon (years)", opt->years, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_int(rep, "horizon_periods", "horizon (periods)", (long long)r->periods) ||
+	    hc_report_add_int(rep, "paths", "random portfolios (and paths) per count", (long long)r->paths) ||
+	    hc_report_add_int(rep, "seed", "seed", (long long)opt->seed))
+		goto done;
+	if (r->route == HC_HORIZON_WINDOWS)
+		snprintf(text, sizeof text, "overlapping windows: each path a window of %zu consecutive periods, its start "
+			 "uniform over the %zu starts", r->periods, t - r->periods + 1);
+	else
+		snprintf(text, sizeof text, "stationary bootstrap (Politis & Romano, 1994) of whole periods, mean block "
+			 "length %zu period%s%s", r->block_length, r->block_length == 1 ? "" : "s",
+			 opt->block_length ? " (given)" : " (Politis & White, 2004, on the equal-weight universe's returns)");
+	if (hc_report_add_text(rep, "paths_from", "paths from", text))
+		goto done;
+	if (r->route == HC_HORIZON_BOOTSTRAP) {
+		if (hc_report_add_int(rep, "block_length", "mean block length (periods)", (long long)r->block_length))
+			goto done;
+	} else if (hc_report_add_none(rep, "block_length", "mean block length (periods)")) {
+		goto done;
+	}
+	if (opt->rate_given) {
+		snprintf(text, sizeof text, "a fixed rate of %g%% a year: ending wealth %.6g", opt->rate * 100,
+			 r->rate_wealth);
+		if (hc_report_add_text(rep, "benchmark", "benchmark", text) ||
+		    hc_report_add_real(rep, "benchmark_rate", "benchmark rate (a year)", opt->rate, REPORT_STYLE_PERCENT) ||
+		    hc_report_add_real(rep, "benchmark_wealth", "benchmark ending wealth", r->rate_wealth,
+				       REPORT_STYLE_FIXED4))
+			goto done;
+	} else if (hc_report_add_text(rep, "benchmark", "benchmark",
+				      "the equal-weight universe on the same path, held the same way") ||
+		   hc_report_add_none(rep, "benchmark_rate", "benchmark rate (a year)") ||
+		   hc_report_add_none(rep, "benchmark_wealth", "benchmark ending wealth")) {
+		goto done;
+	}
+	for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++) {
+		const struct hc_horizon_point *u = &r->universe[w];
+		char key[64], title[96];
+		const char *wt = w == HC_HORIZON_REBALANCED ? "rebalanced" : "buy-and-hold";
+
+		snprintf(key, sizeof key, "universe_%s_p05", wkey[w]);
+		snprintf(title, sizeof title, "equal-weight universe, %s: 5%%", wt);
+		if (hc_report_add_real(rep, key, title, u->p05, REPORT_STYLE_FIXED4))
+			goto done;
+		snprintf(key, sizeof key, "universe_%s_p50", wkey[w]);
+		snprintf(title, sizeof title, "equal-weight universe, %s: median", wt);
+		if (hc_report_add_real(rep, key, title, u->p50, REPORT_STYLE_FIXED4))
+			goto done;
+		snprintf(key, sizeof key, "universe_%s_p95", wkey[w]);
+		snprintf(title, sizeof title, "equal-weight universe, %s: 95%%", wt);
+		if (hc_report_add_real(rep, key, title, u->p95, REPORT_STYLE_FIXED4))
+			goto done;
+	}
+	tab = hc_report_add_table(rep, "horizon", "ending wealth of 1 invested, by holding count");
+	if (!tab || hc_report_table_add_column(tab, "holdings", "holdings", REPORT_STYLE_PLAIN))
+		goto done;
+	for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++)
+		for (c = 0; c < sizeof ckey / sizeof ckey[0]; c++) {
+			char key[32], title[48];
+
+			snprintf(key, sizeof key, "%s_%s", wkey[w], ckey[c]);
+			snprintf(title, sizeof title, "%s %s", wtitle[w], ctitle[c]);
+			if (hc_report_table_add_column(tab, key, title,
+						       c >= 5 ? REPORT_STYLE_PERCENT : REPORT_STYLE_FIXED4))
+				goto done;
+		}
+	for (j = 0; j < r->nsizes; j++) {
+		if (hc_report_table_add_row(tab))
+			goto done;
+		hc_report_table_set_int(tab, j, 0, (long long)r->sizes[j]);
+		for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++) {
+			const struct hc_horizon_point *p = &r->pts[j * HC_HORIZON_WEIGHTINGS + w];
+			double v[7] = { p->mean, p->se, p->p05, p->p50, p->p95, p->lag, p->lag_se };
+
+			for (c = 0; c < 7; c++)
+				hc_report_table_set_real(tab, j, 1 + w * 7 + c, v[c]);
+		}
+	}
+	if (hc_report_add_note(rep, "Ending wealth of 1 unit invested over the horizon. 'rebal.': equal weights restored "
+			       "every period, W = prod_s (1 + mean of the members' returns in period s); 'hold': equal "
+			       "amounts bought at the start and held, weights drifting with returns, W = mean over members "
+			       "of prod_s (1 + r). 5%, median and 95% are quantiles across the random portfolios (and their "
+			       "paths); 'lag' is the share of them ending below the benchmark on the same path, with its "
+			       "Monte Carlo standard error.") ||
+	    hc_report_add_note(rep, r->route == HC_HORIZON_BOOTSTRAP
+			       ? "The paths are a resampling of the history: a bootstrap of the past is not a forecast; it "
+			       "repeats the sample's own returns, good and bad periods alike, in new orders."
+			       : "The paths are windows of the history, which overlap: neighbouring windows share most of "
+			       "their periods, so the spread understates what independent horizons would show.") ||
+	    hc_report_add_note(rep, "No costs, taxes or cash flows; a return of -100% or worse ends a holding at 0. "
+			       "Complete histories only: securities that left the market are not in the file "
+			       "(survivorship bias flatters every count and most the smaller ones)."))
+		goto done;
+	rc = hc_report_add_cautions(rep);
+done:
+	return rc;
+}
+
+int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, const size_t *sizes,
+		   size_t nsizes, const struct hc_horizon_options *opt, struct hc_error *err)
+{
+	struct hc_horizon_result *r = NULL;
+	const struct universe *u;
+	struct hjob J;
+	struct hc_paths P;
+	size_t *uniq = NULL, *slot = NULL, m, t, h, j, q, i, s, K, w, mt, kw, k2;
+	double *xt = NULL, *ubar = NULL, *col = NULL, ppy, hp;
+	int rc = HC_OK;
+
+	*out = NULL;
+	memset(&J, 0, sizeof J);
+	if (!src || src->kind != HC_SOURCE_SERIES || !src->u)
+		return hc_error(err, HC_EUSAGE, "%s: ending wealth over a horizon needs a complete return history%s",
+				src && src->name ? src->name : "the source",
+				!src || src->kind == HC_SOURCE_MATRIX ? ", not a covariance matrix"
+				: "; this one has gaps, and horizons on histories with gaps are not yet provided "
+				  "(--missing complete keeps only the securities with none)");
+	u = src->u;
+	m = u->m;
+	t = u->t;
+	ppy = u->periods_per_year;
+	if (!(opt->years > 0) || !isfinite(opt->years))
+		return hc_error(err, HC_EUSAGE, "the horizon must be a positive number of years, not %g", opt->years);
+	hp = opt->years * ppy;
+	if (!(hp >= 0.5) || hp > 1e7)
+		return hc_error(err, HC_EUSAGE, "a horizon of %g years is %g periods at %g a year: expected 1 to 10 million "
+				"periods", opt->years, hp, ppy);
+	h = (size_t)llround(hp);
+	if (opt->paths < 1 || opt->paths > 100000000u)
+		return hc_error(err, HC_EUSAGE, "bad number of paths %zu: expected 1 to 100000000", opt->paths);
+	if (opt->rate_given && (!(opt->rate > -1) || !isfinite(opt->rate)))
+		return hc_error(err, HC_EUSAGE, "the benchmark rate must be above -100%% a year, not %g", opt->rate);
+	if (nsizes < 1)
+		return hc_error(err, HC_EUSAGE, "no holding counts asked for");
+	for (j = 0; j < nsizes; j++)
+		if (sizes[j] < 1 || sizes[j] > m)
+			return hc_error(err, HC_EUSAGE, "bad holding count %zu: expected 1 to %zu", sizes[j], m);
+	J.route = opt->route;
+	if (J.route == HC_HORIZON_AUTO)
+		J.route = h <= t ? HC_HORIZON_WINDOWS : HC_HORIZON_BOOTSTRAP;
+	else if (J.route != HC_HORIZON_WINDOWS && J.route != HC_HORIZON_BOOTSTRAP)
+		return hc_error(err, HC_EUSAGE, "unknown horizon route %d", opt->route);
+	if (J.route == HC_HORIZON_WINDOWS && h > t)
+		return hc_error(err, HC_EUSAGE, "a horizon of %g years is %zu periods, longer than the sample's %zu: "
+				"overlapping windows need the horizon (--years) within the sample; the stationary bootstrap "
+				"(--resample bootstrap or auto) builds longer paths",
+				opt->years, h, t);
+	if (opt->block_length > t)
+		return hc_error(err, HC_EUSAGE, "bad block length %zu: expected 1 to %zu periods", opt->block_length, t);
+	K = opt->paths;
+	if (hc_memory_check(u->max_bytes, 0,
+			    ((double)m * (double)t + (double)t + (double)K * (double)nsizes * 2 + (double)K * 3) * 8.0,
+			    err, "%s: ending wealth over %zu periods for %zu paths", src->name, h, K))
+		return HC_ENOMEM;
+
+	if (hc_mul_size(m, t, &mt) || hc_mul_size(K, nsizes * 2, &kw) || hc_mul_size(K, 2, &k2))
+		return hc_error(err, HC_ENOMEM, "ending wealth over %zu paths: sizes too large", K);
+	r = hc_calloc(1, sizeof *r);
+	uniq = hc_mallocarray(nsizes, sizeof *uniq);
+	slot = hc_mallocarray(nsizes, sizeof *slot);
+	xt = hc_mallocarray(mt, sizeof *xt);
+	ubar = hc_mallocarray(t, sizeof *ubar);
+	col = hc_mallocarray(K, sizeof *col);
+	if (r) {
+		r->sizes = hc_mallocarray(nsizes, sizeof *r->sizes);
+		r->pts = hc_mallocarray(nsizes * HC_HORIZON_WEIGHTINGS, sizeof *r->pts);
+	}
+	J.wealth = hc_mallocarray(kw, sizeof *J.wealth);
+	J.uwealth = hc_mallocarray(k2, sizeof *J.uwealth);
+	if (!r || !uniq || !slot || !xt || !ubar || !col || !r->sizes || !r->pts || !J.wealth || !J.uwealth) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for ending wealth over %zu paths", K);
+		goto fail;
+	}
+	memcpy(r->sizes, sizes, nsizes * sizeof *sizes);
+	memcpy(uniq, sizes, nsizes * sizeof *sizes);
+	qsort(uniq, nsizes, sizeof *uniq, cmp_size);
+	for (q = 0, j = 0; j < nsizes; j++)
+		if (j == 0 || uniq[j] != uniq[q - 1])
+			uniq[q++] = uniq[j];
+	J.nuniq = q;
+	for (j = 0; j < nsizes; j++)
+		for (q = 0; q < J.nuniq; q++)
+			if (uniq[q] == sizes[j])
+				slot[j] = q;
+	/* Period-major copy, and the equal-weight universe's returns summed in
+	 * security order. */
+	for (s = 0; s < t; s++) {
+		double sum = 0.0;
+
+		for (i = 0; i < m; i++) {
+			xt[s * m + i] = u->x[i * t + s];
+			sum += xt[s * m + i];
+		}
+		ubar[s] = sum / (double)m;
+	}
+	J.l = 0;
+	if (J.route == HC_HORIZON_BOOTSTRAP) {
+		if (opt->block_length) {
+			J.l = opt->block_length;
+		} else {
+			double pw = hc_bootstrap_politis_white(ubar, t);
+
+			J.l = isfinite(pw) && pw >= 1 ? (size_t)llround(pw) : 1;
+			if (J.l > t)
+				J.l = t;
+		}
+	}
+	J.m = m;
+	J.t = t;
+	J.h = h;
+	J.nmax = uniq[J.nuniq - 1];
+	J.nsizes = nsizes;
+	J.seed = opt->seed;
+	J.xt = xt;
+	J.ubar = ubar;
+	J.sizes = sizes;
+	J.uniq = uniq;
+	J.slot = slot;
+	J.universe_bench = 1;
+	J.rate_wealth = opt->rate_given ? pow(1.0 + opt->rate, (double)h / ppy) : NAN;
+
+	memset(&P, 0, sizeof P);
+	P.count = K;
+	P.threads = opt->threads;
+	P.chunk = 16;
+	P.job = &J;
+	P.ws_size = sizeof(struct hws);
+	P.ws_init = ws_init;
+	P.ws_release = ws_release;
+	P.path = horizon_path;
+	P.progress = opt->progress.update;
+	P.progress_ctx = opt->progress.ctx;
+	P.name = "horizon's";
+	P.what = "ending wealth";
+	P.unit = "paths";
+	hc_progress_begin(&opt->progress, NULL, "horizon", "paths");
+	rc = hc_paths_run(&P, err);
+	hc_progress_end(&opt->progress);
+	if (rc)
+		goto fail;
+	if (J.failed) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory drawing the horizon's portfolios");
+		goto fail;
+	}
+
+	r->periods = h;
+	r->route = J.route;
+	r->block_length = J.l;
+	r->paths = K;
+	r->nsizes = nsizes;
+	r->rate_wealth = J.rate_wealth;
+	for (j = 0; j < nsizes; j++)
+		for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++) {
+			const double *wv = J.wealth + j * 2 + w;
+			const double *bench = opt->rate_given ? &J.rate_wealth : J.uwealth + w;
+
+			for (i = 0; i < K; i++)
+				col[i] = wv[i * nsizes * 2];
+			summarise(&r->pts[j * 2 + w], col, K, bench, opt->rate_given ? 0 : 2, wv, nsizes * 2);
+		}
+	for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++) {
+		for (i = 0; i < K; i++)
+			col[i] = J.uwealth[i * 2 + w];
+		summarise(&r->universe[w], col, K, opt->rate_given ? &J.rate_wealth : NULL, 0, J.uwealth + w, 2);
+	}
+	if (build_report(r, src, opt, ppy, t)) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the horizon's report");
+		goto fail;
+	}
+	*out = r;
+	r = NULL;
+fail:
+	hc_horizon_result_free(r);
+	hc_free(uniq);
+	hc_free(slot);
+	hc_free(xt);
+	hc_free(ubar);
+	hc_free(col);
+	hc_free(J.wealth);
+	hc_free(J.uwealth);
+	return rc;
+}
+
+void hc_horizon_result_free(struct hc_horizon_result *r)
+{
+	if (!r)
+		return;
+	hc_free(r->sizes);
+	hc_free(r->pts);
+	hc_report_free(r->report);
+	hc_free(r);
+}

@@ -1,0 +1,275 @@
+#!/usr/bin/env python3
+"""Reference check: ending wealth over a horizon by holding count
+(holdcount horizon, docs/horizon.md) against numpy, exact enumeration and a
+published example.
+
+1. numpy recomputation on the same draws: the library exports each path's
+   members and periods (hc_horizon_draw, through ctypes); numpy forms the
+   rebalanced wealth prod_s(1 + mean_i r_is) and the buy-and-hold wealth
+   mean_i prod_s(1 + r_is) of every portfolio, the equal-weight universe's
+   the same two ways, the lag indicators, then the mean, its Monte Carlo
+   standard error, numpy's linear quantiles and the lag share by count.
+   `horizon --format json` must match to 1e-9 relative, on overlapping
+   windows, on the stationary bootstrap (Politis & Romano, 1994, JASA
+   89(428)) and against a fixed benchmark rate.
+2. Exact enumeration (every N-subset x every window start of a 6-security,
+   10-period universe): the mean ending wealth both ways and the
+   probability of lagging; the sampled values must lie within 4.5 Monte
+   Carlo standard errors (each comparison fails by chance with probability
+   under 1e-5).
+3. The stationary bootstrap with mean block length 1 draws periods
+   independently (Politis & Romano, 1994), so the expected ending wealth
+   is a product of sample means: (1 + mu_S)^h rebalanced, the mean of
+   (1 + mu_i)^h buy-and-hold, enumerated over every N-subset; the sampled
+   means within 4.5 standard errors.
+4. Heaton, Polson & Witte (2017, "Why indexing works", Applied Stochastic
+   Models in Business and Industry 33(6)), their example as quoted in
+   issue 15: five stocks returning 10%, 10%, 10%, 10% and 50% -- 4 of the 5
+   one-stock and 6 of the 10 two-stock portfolios lag the equal-weight
+   index.  A second period of 0% for every stock makes the two-period
+   window's wealth the example's one-period one; enumeration confirms the
+   counts and holdcount's lag shares must be within 4.5 s.e. of 0.8 and 0.6.
+
+Environment: HOLDCOUNT (the binary), HOLDCOUNT_LIBRARY (libholdcount.so),
+HOLDCOUNT_TEST_TMP (scratch dir).
+"""
+import ctypes
+import datetime
+import itertools
+import json
+import math
+import os
+import subprocess
+import sys
+
+import numpy as np
+
+HC = os.environ["HOLDCOUNT"]
+
+
+def asan_runtime(lib):
+    """The AddressSanitizer runtime a sanitizer build of the library links
+    (test.sh's second stage), from ldd; None for a plain build."""
+    out = subprocess.run(["ldd", lib], capture_output=True, text=True).stdout
+    for line in out.splitlines():
+        parts = line.split()
+        if parts and parts[0].startswith("libasan.so") and len(parts) >= 3 and parts[1] == "=>":
+            return parts[2]
+    return None
+
+
+# A sanitized library can be loaded into Python only with its runtime
+# first in the process: re-run this script with it preloaded (leak
+# detection off: the interpreter's own allocations are not the library's).
+_asan = asan_runtime(os.environ["HOLDCOUNT_LIBRARY"])
+if _asan and _asan not in os.environ.get("LD_PRELOAD", ""):
+    env = dict(os.environ)
+    env["LD_PRELOAD"] = _asan + (" " + env["LD_PRELOAD"] if env.get("LD_PRELOAD") else "")
+    env["ASAN_OPTIONS"] = (env.get("ASAN_OPTIONS", "") + ":detect_leaks=0").lstrip(":")
+    os.execve(sys.executable, [sys.executable] + sys.argv, env)
+LIB = ctypes.CDLL(os.environ["HOLDCOUNT_LIBRARY"])
+TMP = os.environ.get("HOLDCOUNT_TEST_TMP", "/tmp")
+TMP = os.environ.get("HOLDCOUNT_TEST_TMP", "/tmp")
+failures = []
+W = ("rebal", "hold")
+
+
+def check(what, ok, detail=""):
+    if not ok:
+        failures.append("%s %s" % (what, detail))
+
+
+def close(what, got, want, rel=1e-9, scale=1e-12):
+    check(what, got is not None and abs(got - want) <= rel * max(abs(want), scale),
+          "got %r want %.17g" % (got, want))
+
+
+def month_ends(n):
+    out, y, m = [], 2003, 1
+    for _ in range(n):
+        nxt = datetime.date(y + (m == 12), m % 12 + 1, 1)
+        out.append((nxt - datetime.timedelta(days=1)).isoformat())
+        y, m = nxt.year, nxt.month
+    return out
+
+
+def write(path, r):
+    """Write returns r (periods x securities) with invented ids; return
+    what the file holds, as read back (the library's exact inputs)."""
+    t, m = r.shape
+    with open(path, "w") as fp:
+        fp.write("date," + ",".join("LIR9%02d" % (i + 1) for i in range(m)) + "\n")
+        for k, d in enumerate(month_ends(t)):
+            fp.write(d + "," + ",".join(repr(float(x)) for x in r[k]) + "\n")
+    return np.array([[float(x) for x in line.split(",")[1:]] for line in open(path).read().split("\n")[1:] if line])
+
+
+def invented(m, t, seed):
+    rng = np.random.default_rng(seed)
+    f = 0.045 * rng.standard_t(5, t)
+    beta = rng.uniform(0.5, 1.5, m)
+    s = rng.uniform(0.03, 0.10, m)
+    return 0.007 + np.outer(f, beta) + s * rng.standard_t(4, (t, m)) / math.sqrt(2)
+
+
+def horizon(path, sizes, paths, seed, h, *extra):
+    """holdcount horizon at h months (periods per year 12)."""
+    p = subprocess.run([HC, "horizon", path, "--sizes", ",".join(map(str, sizes)), "--paths", str(paths),
+                        "--seed", str(seed), "--periods-per-year", "12", "--years", repr(h / 12.0),
+                        "--format", "json", "--quiet"] + list(extra), capture_output=True, text=True)
+    if p.returncode != 0:
+        sys.exit("holdcount horizon failed: " + p.stderr)
+    out = json.loads(p.stdout)
+    if out["horizon_periods"] != h:
+        sys.exit("horizon_periods %r, expected %d" % (out["horizon_periods"], h))
+    return out
+
+
+LIB.hc_horizon_draw.argtypes = [ctypes.c_uint64, ctypes.c_size_t, ctypes.c_size_t, ctypes.c_size_t,
+                                ctypes.c_size_t, ctypes.c_int, ctypes.c_size_t,
+                                ctypes.POINTER(ctypes.c_uint32), ctypes.POINTER(ctypes.c_size_t), ctypes.c_void_p]
+
+
+def draw(seed, k, m, t, h, route, block):
+    idx = (ctypes.c_uint32 * m)()
+    per = (ctypes.c_size_t * h)()
+    err = ctypes.create_string_buffer(4096)
+    if LIB.hc_horizon_draw(seed, k, m, t, h, route, block, idx, per, err) != 0:
+        sys.exit("hc_horizon_draw failed")
+    return list(idx), list(per)
+
+
+def wealth(rp):
+    """Rebalanced and buy-and-hold wealth of the returns rp (h x n)."""
+    return float(np.prod(1 + rp.mean(axis=1))), float(np.mean(np.prod(1 + rp, axis=0)))
+
+
+def same_draws(r, path, route, extra, rate=None):
+    t, m = r.shape
+    sizes, paths, seed, h = [1, 3, 8, m], 300, 11, 18 if route == 1 else 40
+    out = horizon(path, sizes, paths, seed, h, *extra)
+    block = out["block_length"] or 0
+    want_route = "overlapping windows" if route == 1 else "stationary bootstrap"
+    check("%s route" % want_route, out["paths_from"].startswith(want_route), out["paths_from"])
+    rows = {row["holdings"]: row for row in out["horizon"]}
+    vals = {(n, w): [] for n in sizes for w in range(2)}
+    lags = {(n, w): [] for n in sizes for w in range(2)}
+    uni = {w: [] for w in range(2)}
+    for k in range(paths):
+        idx, per = draw(seed, k, m, t, h, route, block)
+        rp = r[per]
+        uw = wealth(rp)
+        for w in range(2):
+            uni[w].append(uw[w])
+        bench = uw if rate is None else ((1 + rate) ** (h / 12.0),) * 2
+        for n in sizes:
+            pw = uw if n == m else wealth(rp[:, idx[:n]])  # N = M is the universe itself
+            for w in range(2):
+                vals[n, w].append(pw[w])
+                lags[n, w].append(1.0 if pw[w] < bench[w] else 0.0)
+    tag = "%s%s" % (want_route, "" if rate is None else " rate")
+    for n in sizes:
+        for w in range(2):
+            x, g = np.array(vals[n, w]), np.array(lags[n, w])
+            row = rows[n]
+            close("%s n=%d %s_mean" % (tag, n, W[w]), row[W[w] + "_mean"], x.mean())
+            close("%s n=%d %s_se" % (tag, n, W[w]), row[W[w] + "_se"], x.std(ddof=1) / math.sqrt(paths))
+            for q, key in ((0.05, "_p05"), (0.5, "_p50"), (0.95, "_p95")):
+                close("%s n=%d %s%s" % (tag, n, W[w], key), row[W[w] + key], float(np.quantile(x, q)))
+            close("%s n=%d %s_lag" % (tag, n, W[w]), row[W[w] + "_lag"], g.mean())
+    for w in range(2):
+        for q, key in ((0.05, "_p05"), (0.5, "_p50"), (0.95, "_p95")):
+            close("%s universe %s%s" % (tag, W[w], key), out["universe_" + W[w] + key], float(np.quantile(uni[w], q)))
+    if rate is None:
+        check("%s: N = M never lags" % tag, rows[m]["rebal_lag"] == 0 and rows[m]["hold_lag"] == 0)
+    else:
+        close("%s benchmark wealth" % tag, out["benchmark_wealth"], (1 + rate) ** (h / 12.0))
+
+
+def enumeration():
+    path = os.path.join(TMP, "horizon_enum.csv")
+    r = write(path, invented(6, 10, 77))
+    t, m = r.shape
+    h, sizes, paths = 4, [1, 2, 3, 5, 6], 20000
+    out = horizon(path, sizes, paths, 5, h)
+    rows = {row["holdings"]: row for row in out["horizon"]}
+    starts = range(t - h + 1)
+    for n in sizes:
+        ws, lg = [], []
+        for s in starts:
+            rp = r[s:s + h]
+            uw = wealth(rp)
+            for c in itertools.combinations(range(m), n):
+                pw = uw if n == m else wealth(rp[:, list(c)])
+                ws.append(pw)
+                lg.append([pw[w] < uw[w] for w in range(2)])
+        ws, lg = np.array(ws), np.array(lg, dtype=float)
+        for w in range(2):
+            mean, sd = ws[:, w].mean(), ws[:, w].std()
+            got = rows[n][W[w] + "_mean"]
+            check("enumeration n=%d %s mean" % (n, W[w]), abs(got - mean) <= 4.5 * sd / math.sqrt(paths) + 1e-12,
+                  "got %r exact %.12g (se %.3g)" % (got, mean, sd / math.sqrt(paths)))
+            p = lg[:, w].mean()
+            got = rows[n][W[w] + "_lag"]
+            check("enumeration n=%d %s lag" % (n, W[w]),
+                  abs(got - p) <= 4.5 * math.sqrt(p * (1 - p) / paths) + 1e-12,
+                  "got %r exact %.12g" % (got, p))
+
+
+def bootstrap_expectation():
+    """With mean block length 1 the stationary bootstrap draws each period
+    independently and uniformly (Politis & Romano, 1994: a block continues
+    with probability 1 - 1/L = 0), so for a fixed portfolio S
+    E[prod_s (1 + r_S,p_s)] = (1 + mu_S)^h, mu_S the sample mean of its
+    return, and E over random S is the mean over every N-subset
+    (enumerated): rebalanced (1 + mean of the members' means)^h;
+    buy-and-hold the mean over securities of (1 + mu_i)^h.  The sampled
+    means must lie within 4.5 of their own standard errors."""
+    path = os.path.join(TMP, "horizon_iid.csv")
+    r = write(path, invented(6, 10, 31))
+    t, m = r.shape
+    h, sizes, paths = 15, [1, 2, 4, 6], 20000
+    out = horizon(path, sizes, paths, 8, h, "--block-length", "1")
+    check("bootstrap with L = 1", out["block_length"] == 1 and out["paths_from"].startswith("stationary bootstrap"),
+          out["paths_from"])
+    rows = {row["holdings"]: row for row in out["horizon"]}
+    mu = r.mean(axis=0)
+    for n in sizes:
+        exact = (np.mean([(1 + mu[list(c)].mean()) ** h for c in itertools.combinations(range(m), n)]),
+                 np.mean((1 + mu) ** h))
+        for w in range(2):
+            got, se = rows[n][W[w] + "_mean"], rows[n][W[w] + "_se"]
+            check("bootstrap expectation n=%d %s" % (n, W[w]), abs(got - exact[w]) <= 4.5 * se,
+                  "got %r exact %.12g (se %.3g)" % (got, exact[w], se))
+
+
+def heaton_polson_witte():
+    path = os.path.join(TMP, "horizon_hpw.csv")
+    r = write(path, np.array([[0.10, 0.10, 0.10, 0.10, 0.50], [0.0] * 5]))
+    out = horizon(path, [1, 2], 20000, 3, 2)
+    rows = {row["holdings"]: row for row in out["horizon"]}
+    bar = np.prod(1 + r.mean(axis=1))
+    for n, want in ((1, 0.8), (2, 0.6)):
+        subsets = list(itertools.combinations(range(5), n))
+        exact = np.mean([np.prod(1 + r[:, list(c)].mean(axis=1)) < bar for c in subsets])
+        check("Heaton, Polson & Witte enumeration n=%d" % n, abs(exact - want) < 1e-12, "got %r" % exact)
+        for w in W:
+            got = rows[n][w + "_lag"]
+            check("Heaton, Polson & Witte n=%d %s" % (n, w), abs(got - want) <= 4.5 * math.sqrt(want * (1 - want) / 20000),
+                  "got %r want %r" % (got, want))
+
+
+path = os.path.join(TMP, "horizon_same.csv")
+r = write(path, invented(14, 36, 4242))
+same_draws(r, path, 1, [])
+same_draws(r, path, 2, ["--block-length", "3"])
+same_draws(r, path, 2, [])  # Politis & White's length, from the output
+same_draws(r, path, 1, ["--benchmark-rate", "4%"], rate=0.04)
+enumeration()
+bootstrap_expectation()
+heaton_polson_witte()
+if failures:
+    print("\n".join(failures[:40]))
+    print("%d failure(s)" % len(failures))
+    sys.exit(1)
+print("check_horizon: numpy on the same draws (windows, bootstrap, rate), enumeration, bootstrap expectation, Heaton-Polson-Witte: ok")

@@ -1,0 +1,76 @@
+#!/usr/bin/env bash
+# cli_horizon.sh - `holdcount horizon` on the command line: the three
+# formats and their columns, the route chosen by the horizon's length,
+# the same bytes whatever the thread count, the cautions, and the usage
+# errors (exit 2: include/holdcount/error.h).  The figures themselves are
+# checked against numpy, exact enumeration and a published example in
+# check_horizon.py and by hand in test_horizon.c; this file checks the
+# command.
+set -u
+. "$(dirname "$0")/lib.sh"
+cli_begin cli_horizon
+
+U="$HOLDCOUNT_SOURCE_DIR/data/demo-universe.csv"
+# The demo has securities with gaps; horizons need complete series.
+ARGS=(horizon "$U" --missing complete --sizes 1,5,20,139 --paths 300 --seed 5 --quiet)
+
+for fmt in table csv json; do
+  "$HC" "${ARGS[@]}" --years 10 --format "$fmt" >"$T/w.$fmt" || fail "horizon --format $fmt"
+done
+[ "$(head -1 "$T/w.csv")" = "holdings,rebal_mean,rebal_se,rebal_p05,rebal_p50,rebal_p95,rebal_lag,rebal_lag_se,hold_mean,hold_se,hold_p05,hold_p50,hold_p95,hold_lag,hold_lag_se" ] \
+  || fail "unexpected CSV header: $(head -1 "$T/w.csv")"
+[ "$(wc -l <"$T/w.csv")" -eq 5 ] || fail "CSV should have a header and 4 rows"
+grep -q "^paths from: *overlapping windows: each path a window of 120 consecutive periods, its start uniform over the 121 starts" "$T/w.table" \
+  || fail "10 years of a 20-year monthly sample should be windows of 120 periods"
+grep -q "a bootstrap of the past is not a forecast" "$T/w.json" && fail "windows should not carry the bootstrap's caution"
+grep -q "neighbouring windows share most of their periods" "$T/w.json" || fail "the windows' caution is missing"
+grep -q "survivorship bias" "$T/w.table" || fail "the cautions are missing"
+"$PY" - "$T/w.json" <<'PY' || fail "JSON of horizon --years 10"
+import json, sys
+d = json.load(open(sys.argv[1]))
+assert d["horizon_periods"] == 120 and d["block_length"] is None, d
+rows = d["horizon"]
+assert [r["holdings"] for r in rows] == [1, 5, 20, 139]
+for r in rows:
+    for w in ("rebal", "hold"):
+        assert 0 < r[w + "_p05"] <= r[w + "_p50"] <= r[w + "_p95"], r
+        assert 0 <= r[w + "_lag"] <= 1
+# one holding: the two weightings are the same portfolio
+assert rows[0]["rebal_mean"] == rows[0]["hold_mean"]
+# all 139: the universe itself, never behind
+assert rows[-1]["rebal_lag"] == 0 and rows[-1]["hold_lag"] == 0
+assert rows[-1]["rebal_p50"] == d["universe_rebal_p50"]
+# the spread of ending wealth narrows with the holding count
+assert rows[0]["rebal_p95"] - rows[0]["rebal_p05"] > rows[2]["rebal_p95"] - rows[2]["rebal_p05"]
+PY
+
+# Longer than the sample: the stationary bootstrap, its block length said;
+# the same bytes with 1 and 2 threads.
+"$HC" "${ARGS[@]}" --years 30 --threads 1 --format csv >"$T/b1.csv" || fail "horizon --years 30"
+"$HC" "${ARGS[@]}" --years 30 --threads 2 --format csv >"$T/b2.csv" || fail "horizon --years 30 --threads 2"
+cmp -s "$T/b1.csv" "$T/b2.csv" || fail "the bootstrap's figures differ between 1 and 2 threads"
+"$HC" "${ARGS[@]}" --years 30 --block-length 6 >"$T/b.txt" || fail "horizon --block-length 6"
+grep -q "stationary bootstrap (Politis & Romano, 1994) of whole periods, mean block length 6 periods (given)" "$T/b.txt" \
+  || fail "the bootstrap route is not said"
+"$HC" "${ARGS[@]}" --years 30 --format json >"$T/b.json" || fail "horizon --years 30 --format json"
+grep -q "a bootstrap of the past is not a forecast" "$T/b.json" || fail "the bootstrap's caution is missing"
+# Forced bootstrap within the sample, and a fixed-rate benchmark.
+"$HC" "${ARGS[@]}" --years 5 --resample bootstrap --benchmark-rate 3% --format json >"$T/r.json" || fail "horizon --benchmark-rate"
+"$PY" - "$T/r.json" <<'PY' || fail "JSON of horizon --benchmark-rate 3%"
+import json, sys
+d = json.load(open(sys.argv[1]))
+assert d["paths_from"].startswith("stationary bootstrap"), d["paths_from"]
+assert abs(d["benchmark_wealth"] - 1.03 ** 5) < 1e-12 and d["benchmark_rate"] == 0.03
+assert d["horizon"][-1]["rebal_lag"] > 0 or d["universe_rebal_p05"] > 1.03 ** 5
+PY
+
+# Usage errors (exit 2), nothing on stdout.
+expect 2 "holdcount horizon: $U: ending wealth over a horizon needs a complete return history; this one has gaps" -- horizon "$U" --quiet
+expect 2 "holdcount horizon: a horizon of 30 years is 360 periods, longer than the sample's 240" -- "${ARGS[@]}" --years 30 --resample windows
+expect 2 "holdcount horizon: --paths 0" -- "${ARGS[@]}" --paths 0
+expect 2 "holdcount horizon: --block-length is the bootstrap's" -- "${ARGS[@]}" --resample windows --block-length 4
+expect 2 "holdcount horizon: the horizon must be a positive number of years" -- "${ARGS[@]}" --years -1
+expect 2 "holdcount horizon: the benchmark rate must be above -100%" -- "${ARGS[@]}" --benchmark-rate -100%
+expect 2 "holdcount horizon: --covariance does not apply: ending wealth needs a return history" -- "${ARGS[@]}" --covariance
+
+cli_end cli_horizon
