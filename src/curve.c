@@ -124,6 +124,25 @@ int hc_curve_variance_sd(const struct moments *mo, size_t n, double *sd,
 	return HC_OK;
 }
 
+int hc_curve_set_spread(struct curve *c, const struct moments *mo, struct hc_error *err)
+{
+	size_t i;
+	double sd;
+	int rc;
+
+	if (!mo->has_spread || mo->m != c->m)
+		return hc_error(err, HC_EUSAGE, "the spread needs the covariance sums of the curve's %zu securities",
+				c->m);
+	for (i = 0; i < c->npoints; i++)
+		if ((rc = hc_curve_variance_sd(mo, c->points[i].n, &sd, err)) != HC_OK)
+			return rc;
+	for (i = 0; i < c->npoints; i++) {
+		hc_curve_variance_sd(mo, c->points[i].n, &sd, err);
+		c->points[i].variance_sd = sd * c->periods_per_year;
+	}
+	return HC_OK;
+}
+
 void hc_curve_free(struct curve *c)
 {
 	if (!c)

@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "holdcount/covmatrix.h"
 #include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
 #include "holdcount/periodic.h"
@@ -187,7 +188,7 @@ int hc_curve_add_table(struct report *r, const struct curve *c, int annualised)
 }
 
 static int curve_fields(struct report *r, const struct hc_source *s, const char *input,
-			const struct moments *mo, const struct curve *c)
+			const struct moments *mo, const struct curve *c, const char *reason)
 {
 	const struct universe *u = s->u;
 	char seed[32];
@@ -217,6 +218,10 @@ static int curve_fields(struct report *r, const struct hc_source *s, const char 
 			    : "uniform random subsets without replacement; z compares the sampled mean "
 			      "variance with the exact one in Monte Carlo standard errors") ||
 	    hc_source_report_treatment(s, r) || hc_datacheck_report_kept(r, s->u ? &s->u->checks : NULL))
+		return HC_ENOMEM;
+	if (s->kind == HC_SOURCE_RAGGED &&
+	    (hc_report_add_text(r, "variance_sd_basis", "sd of var is", HC_CURVE_RAGGED_SPREAD_BASIS) ||
+	     (reason && *reason && hc_report_add_text(r, "variance_sd_reason", "sd of var empty because", reason))))
 		return HC_ENOMEM;
 	return hc_curve_add_table(r, c, s->annualised);
 }
@@ -250,7 +255,7 @@ static int build(struct hc_curve_result *res, const struct hc_source *src, const
 {
 	struct report *r = res->report = hc_report_alloc();
 
-	if (!r || curve_fields(r, src, input_text(src), &res->mo, res->curve) ||
+	if (!r || curve_fields(r, src, input_text(src), &res->mo, res->curve, res->spread_reason) ||
 	    add_strata(r, opt->strata, res->strata) ||
 	    /* a ragged source's matrix (funds only) plays no part in the curve */
 	    (src->kind != HC_SOURCE_RAGGED && hc_source_report_psd(src, r)))
@@ -258,6 +263,165 @@ static int build(struct hc_curve_result *res, const struct hc_source *src, const
 	if (res->measures && hc_measures_report(res->measures, r, curve_table(r)))
 		return HC_ENOMEM;
 	return hc_report_add_cautions(r);
+}
+
+/* First and last observed period of security i; t when it has none. */
+static void span(const struct universe *u, size_t i, size_t *first, size_t *last)
+{
+	const double *x = u->x + i * u->t;
+	size_t k;
+
+	*first = *last = u->t;
+	for (k = 0; k < u->t; k++)
+		if (!isnan(x[k])) {
+			if (*first == u->t)
+				*first = k;
+			*last = k;
+		}
+}
+
+/* Common observed periods of securities i and j (O(T)). */
+static size_t common(const struct universe *u, size_t i, size_t j)
+{
+	const double *a = u->x + i * u->t, *b = u->x + j * u->t;
+	size_t k, n = 0;
+
+	for (k = 0; k < u->t; k++)
+		n += !isnan(a[k]) && !isnan(b[k]);
+	return n;
+}
+
+/*
+ * Before O(M^2 T) of products, the pair whose listing spans overlap least:
+ * the latest first observation against the earliest last one (when both
+ * are the same security, each against the runner-up of the other end).
+ * A universe where a security delisted before another listed has no
+ * pairwise-complete matrix, and this says so in O(M T).
+ */
+static int overlap_precheck(const struct universe *u, struct hc_error *err)
+{
+	size_t i, f, l, i1 = 0, i2 = 0, j1 = 0, j2 = 0, *fst, *lst;
+	int rc = HC_OK;
+
+	if (u->m < 2)
+		return HC_OK;
+	if (!(fst = hc_mallocarray(u->m, sizeof *fst)) || !(lst = hc_mallocarray(u->m, sizeof *lst))) {
+		hc_free(fst);
+		return hc_error(err, HC_ENOMEM, "out of memory for the listing spans");
+	}
+	for (i = 0; i < u->m; i++) {
+		span(u, i, &f, &l);
+		fst[i] = f;
+		lst[i] = l;
+		if (f == u->t) {
+			rc = hc_covmatrix_check_overlap(u, i, i, 0, err);
+			goto done;
+		}
+	}
+	/* i1, i2: the two latest first observations; j1, j2: the two earliest last */
+	i1 = fst[0] >= fst[1] ? 0 : 1;
+	i2 = 1 - i1;
+	j1 = lst[0] <= lst[1] ? 0 : 1;
+	j2 = 1 - j1;
+	for (i = 2; i < u->m; i++) {
+		if (fst[i] > fst[i1]) {
+			i2 = i1;
+			i1 = i;
+		} else if (fst[i] > fst[i2]) {
+			i2 = i;
+		}
+		if (lst[i] < lst[j1]) {
+			j2 = j1;
+			j1 = i;
+		} else if (lst[i] < lst[j2]) {
+			j2 = i;
+		}
+	}
+	if (i1 != j1)
+		rc = hc_covmatrix_check_overlap(u, i1, j1, common(u, i1, j1), err);
+	else if ((rc = hc_covmatrix_check_overlap(u, i1, j2, common(u, i1, j2), err)) == HC_OK)
+		rc = hc_covmatrix_check_overlap(u, i2, j1, common(u, i2, j1), err);
+done:
+	hc_free(fst);
+	hc_free(lst);
+	return rc;
+}
+
+int hc_curve_pairwise_spread(struct curve *c, const struct universe *u, struct moments *mo,
+			     struct hc_error *err)
+{
+	int rc;
+
+	if (c->m != u->m)
+		return hc_error(err, HC_EUSAGE, "the curve has %zu securities and the history %zu", c->m, u->m);
+	if ((rc = overlap_precheck(u, err)) != HC_OK)
+		return rc;
+	if ((rc = hc_moments_from_universe_route(mo, u, MOMENTS_ROUTE_PAIRWISE, err)) != HC_OK)
+		return rc;
+	return hc_curve_set_spread(c, mo, err);
+}
+
+/*
+ * The per-period route keeps the securities observed at least twice
+ * (per->member); when it left some of u out, *sub is a view of u cut to
+ * those (its own copy of their rows, ids borrowed from u; free sub->x and
+ * sub->ids), else sub->x is NULL and u serves as it is.
+ */
+static int kept_universe(const struct hc_source *src, struct universe *sub, struct hc_error *err)
+{
+	const struct universe *u = src->u;
+	const struct hc_periodic *p = src->per;
+	size_t i, n;
+
+	memset(sub, 0, sizeof *sub);
+	if (p->m == u->m)
+		return HC_OK;
+	if (hc_mul_size(p->m, u->t, &n) || !(sub->x = hc_mallocarray(n, sizeof *sub->x)) ||
+	    !(sub->ids = hc_mallocarray(p->m ? p->m : 1, sizeof *sub->ids))) {
+		hc_free(sub->x);
+		sub->x = NULL;
+		return hc_error(err, HC_ENOMEM, "out of memory for the %zu securities kept", p->m);
+	}
+	for (i = 0; i < p->m; i++) {
+		memcpy(sub->x + i * u->t, u->x + p->member[i] * u->t, u->t * sizeof *sub->x);
+		sub->ids[i] = u->ids ? u->ids[p->member[i]] : NULL;
+	}
+	sub->m = sub->m_read = p->m;
+	sub->t = u->t;
+	sub->source = u->source;
+	sub->max_bytes = u->max_bytes;
+	sub->has_missing = 1;
+	sub->periods_per_year = u->periods_per_year;
+	return HC_OK;
+}
+
+/*
+ * A ragged source's variance_sd (hc_curve_pairwise_spread).  A universe
+ * with no pairwise-complete matrix (a pair without common periods) or one
+ * too large for the memory budget leaves the column empty with the reason
+ * in res->spread_reason, and the rest of the curve stands.
+ */
+static int ragged_spread(struct hc_curve_result *res, const struct hc_source *src, struct hc_error *err)
+{
+	struct universe sub;
+	struct hc_error why;
+	int rc;
+
+	hc_error_clear(&why);
+	rc = kept_universe(src, &sub, &why);
+	if (rc == HC_OK)
+		rc = hc_curve_pairwise_spread(res->curve, sub.x ? &sub : src->u, &res->spread_mo, &why);
+	hc_free(sub.x);
+	hc_free(sub.ids);
+	if (rc == HC_OK) {
+		res->spread_built = 1;
+		return HC_OK;
+	}
+	if (rc != HC_EDATA && rc != HC_ENOMEM)
+		return hc_error(err, rc, "%s", why.message);
+	snprintf(res->spread_reason, sizeof res->spread_reason,
+		 "not computed: the pairwise-complete covariance matrix it needs cannot be built (%.900s)", why.message);
+	return HC_OK;
 }
 
 /* The exact curve at every count 1..M, for plots. */
@@ -272,6 +436,8 @@ static int full_curve(struct hc_curve_result *res, const struct hc_source *src, 
 		sizes[i] = i + 1;
 	rc = src->kind == HC_SOURCE_RAGGED ? hc_periodic_curve_exact(&res->full, src->per, sizes, m, src->periods_per_year, err)
 					   : hc_curve_exact(&res->full, &res->mo, sizes, m, src->periods_per_year, err);
+	if (rc == HC_OK && res->spread_built)
+		rc = hc_curve_set_spread(res->full, &res->spread_mo, err);
 	hc_free(sizes);
 	return rc;
 }
@@ -324,6 +490,8 @@ int hc_curve_run(struct hc_curve_result **out, const struct hc_source *src, cons
 		rc = src->kind == HC_SOURCE_RAGGED
 		     ? hc_periodic_curve_exact(&res->curve, src->per, sizes, nsizes, src->periods_per_year, err)
 		     : hc_curve_exact(&res->curve, &res->mo, sizes, nsizes, src->periods_per_year, err);
+	if (rc == HC_OK && src->kind == HC_SOURCE_RAGGED)
+		rc = ragged_spread(res, src, err);
 	if (rc == HC_OK && opt->paths > 0)
 		rc = sample(src, opt, res->curve, &res->measures, sizes, nsizes, err);
 	if (rc == HC_OK && opt->full)

@@ -10,6 +10,7 @@
 
 #include "holdcount/covmatrix.h"
 #include "holdcount/datacheck.h"
+#include "holdcount/memory.h"
 #include "holdcount/moments.h"
 
 /* One security's observed periods and annualised standard deviation, two
@@ -171,10 +172,10 @@ static int build_matrix(struct report *r, const struct hc_source *s, const struc
 /* With gaps left and no repair, warn when the pairwise-complete matrix the
  * averages come from is not positive semi-definite -- curve and enough
  * refuse that matrix, so describe must not print its averages silently. */
-static int psd_note(struct report *r, const struct hc_source *s, struct hc_error *err)
+static int psd_note(struct report *r, const struct hc_source *s, const double *pw, struct hc_error *err)
 {
 	struct covmatrix *cm = NULL;
-	const double *a = s->cm ? s->cm->a : NULL;
+	const double *a = s->cm ? s->cm->a : pw;
 	double lmin = 0;
 	char text[400];
 	int rc = HC_OK;
@@ -184,7 +185,10 @@ static int psd_note(struct report *r, const struct hc_source *s, struct hc_error
 			return rc;
 		a = cm->a;
 	}
+	/* dsyevd's O(M^3) on the BLAS threads, stopped again after */
+	hc_moments_blas_threaded(4.0 / 3.0 * (double)s->u->m * (double)s->u->m * (double)s->u->m);
 	rc = hc_covmatrix_min_eigenvalue(a, s->u->m, &lmin, err);
+	hc_moments_blas_serial();
 	hc_covmatrix_free(cm);
 	if (rc != HC_OK || lmin >= 0)
 		return rc;
@@ -199,17 +203,29 @@ int hc_describe(struct report **out, const struct hc_source *s, struct hc_error 
 {
 	struct report *r;
 	struct moments mo;
+	double *pw = NULL;
 	int rc;
 
 	*out = NULL;
-	if ((rc = hc_moments_from_source(&mo, s, err)) != HC_OK)
+	/* series with gaps and no matrix yet: the moments and the matrix for the
+	 * check below from one set of products, not two */
+	if (s->kind == HC_SOURCE_PAIRWISE && !s->cm && s->u->has_missing && !s->psd.repaired)
+		rc = hc_moments_pairwise_matrix(&mo, s->u, &pw, err);
+	else
+		rc = hc_moments_from_source(&mo, s, err);
+	if (rc != HC_OK)
 		return rc;
 	r = hc_report_alloc();
+	/* a ragged history's averages come from per-period sums, not from a
+	 * pairwise matrix (which need not exist: a security delisted before
+	 * another listed), so there is nothing to check */
 	if (r && s->kind == HC_SOURCE_PAIRWISE && s->u->has_missing && !s->psd.repaired &&
-	    (rc = psd_note(r, s, err)) != HC_OK) {
+	    (rc = psd_note(r, s, pw, err)) != HC_OK) {
 		hc_report_free(r);
+		hc_free(pw);
 		return rc;
 	}
+	hc_free(pw);
 	if (!r || (s->kind == HC_SOURCE_MATRIX ? build_matrix(r, s, &mo) : build(r, s, &mo))) {
 		hc_report_free(r);
 		return hc_error(err, HC_ENOMEM, "out of memory building the report");

@@ -422,9 +422,17 @@ cleanup:
  * threads, then back to one with the idle workers stopped
  * (hc_moments_blas_serial), so they do not spin beside the sampler.
  */
-static void blas_threaded(void)
+/* Work (flops) below which a product stays on one thread: starting the
+ * workers costs more than they save there (and a small universe then runs
+ * no BLAS thread at all, as tests/cli_environment.sh counts). */
+#define MOMENTS_THREADED_WORK 1e9
+
+static void blas_threaded(double work)
 {
 	int n = omp_get_max_threads();
+
+	if (work < MOMENTS_THREADED_WORK)
+		return;
 
 	if (n > 1)
 		openblas_set_num_threads(n);
@@ -451,37 +459,87 @@ static void blas_threaded_end(void)
  * subtract small numbers (Chan, Golub & LeVeque, 1983, The American
  * Statistician 37(3)).  Memory: three M x T copies and four M x M arrays.
  */
+/*
+ * Few gaps (at most 1 cell in PAIRWISE_SPARSE_SHARE): the sums over each
+ * pair's common periods from the gaps instead of two dense products.  Z is
+ * 0 at gaps, so the sum of z_i over the periods where j is observed is z_i's
+ * whole sum w1_i less its values at j's gaps:
+ *   (Z K')_ij = w1_i - sum_{k : j missing} z_ik,
+ * and the same for Z*Z with w2; O(M x gaps) instead of 4 M^2 T flops,
+ * threaded over i, each row z_i staying in cache while every j's gaps
+ * (off, idx: the missing periods of each security in turn) are gathered
+ * from it.  sx and q get (Z K') and ((Z*Z) K').
+ */
+#define PAIRWISE_SPARSE_SHARE 8
+static void pairwise_sums_sparse(size_t m, size_t t, const double *z, const size_t *off, const uint32_t *idx,
+				 const double *w1, const double *w2, double *sx, double *q)
+{
+	long ii;
+
+#pragma omp parallel for schedule(static) if ((double)m * (double)off[m] >= MOMENTS_THREADED_WORK / 16)
+	for (ii = 0; ii < (long)m; ii++) {
+		size_t i = (size_t)ii, j, p;
+		const double *zi = z + i * t;
+
+		for (j = 0; j < m; j++) {
+			double g1 = 0, g2 = 0;
+
+			for (p = off[j]; p < off[j + 1]; p++) {
+				double v = zi[idx[p]];
+
+				g1 += v;
+				g2 += v * v;
+			}
+			sx[i * m + j] = w1[i] - g1;
+			q[i * m + j] = w2[i] - g2;
+		}
+	}
+}
+
 static int pairwise_matrix(const struct universe *u, double **out, long double *rsum,
 			   struct hc_error *err)
 {
-	size_t m = u->m, t = u->t, i, j, k, nmm, nmt;
-	double *a = NULL, *z = NULL, *ind = NULL, *z2 = NULL, *sx = NULL, *q = NULL;
+	size_t m = u->m, t = u->t, i, j, k, nmm, nmt, gaps = 0, *off = NULL;
+	double *a = NULL, *z = NULL, *ind = NULL, *z2 = NULL, *sx = NULL, *q = NULL, *w1 = NULL, *w2 = NULL;
 	float *find = NULL, *cnt = NULL;
+	uint32_t *idx = NULL;
 	long double R = 0;
 	char b1[32], b2[32];
-	int rc = HC_OK;
+	int rc = HC_OK, sparse;
 
 	*out = NULL;
 	if (hc_mul_size(m, m, &nmm) || hc_mul_size(m, t, &nmt))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	if (t >= ((size_t)1 << 24))
 		return hc_error(err, HC_ENOMEM, "%zu periods are too many for pairwise counts", t);
+	for (k = 0; k < nmt; k++)
+		gaps += isnan(u->x[k]);
+	sparse = gaps <= nmt / PAIRWISE_SPARSE_SHARE;
 	a = hc_mallocarray(nmm, sizeof *a);
 	cnt = hc_mallocarray(nmm, sizeof *cnt);
 	find = hc_mallocarray(nmt, sizeof *find);
 	sx = hc_mallocarray(nmm, sizeof *sx);
 	q = hc_mallocarray(nmm, sizeof *q);
 	z = hc_mallocarray(nmt, sizeof *z);
-	ind = hc_mallocarray(nmt, sizeof *ind);
-	z2 = hc_mallocarray(nmt, sizeof *z2);
-	if (!a || !cnt || !find || !sx || !q || !z || !ind || !z2) {
+	w1 = hc_mallocarray(m, sizeof *w1);
+	w2 = hc_mallocarray(m, sizeof *w2);
+	if (sparse) {   /* the gaps' periods, security by security */
+		off = hc_mallocarray(m + 1, sizeof *off);
+		idx = hc_mallocarray(gaps ? gaps : 1, sizeof *idx);
+	} else {
+		ind = hc_mallocarray(nmt, sizeof *ind);
+		z2 = hc_mallocarray(nmt, sizeof *z2);
+	}
+	if (!a || !cnt || !find || !sx || !q || !z || !w1 || !w2 || (sparse ? !off || !idx : !ind || !z2)) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
 		goto cleanup;
 	}
+	if (sparse)
+		off[0] = 0;
 	for (i = 0; i < m; i++) {
 		const double *x = u->x + i * t;
 		double mean = 0;
-		size_t obs = 0;
+		size_t obs = 0, g = sparse ? off[i] : 0;
 
 		for (k = 0; k < t; k++)
 			if (!isnan(x[k])) {
@@ -489,26 +547,40 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 				obs++;
 			}
 		mean = obs ? mean / (double)obs : 0;
+		w1[i] = w2[i] = 0;
 		for (k = 0; k < t; k++) {
 			int seen = !isnan(x[k]);
 			double d = seen ? x[k] - mean : 0.0;
 
 			z[i * t + k] = d;
-			z2[i * t + k] = d * d;
-			ind[i * t + k] = seen;
+			w1[i] += d;
+			w2[i] += d * d;
 			find[i * t + k] = (float)seen;
+			if (sparse) {
+				if (!seen)
+					idx[g++] = (uint32_t)k;
+			} else {
+				ind[i * t + k] = seen;
+				z2[i * t + k] = d * d;
+			}
 		}
+		if (sparse)
+			off[i + 1] = g;
 	}
-	blas_threaded();
+	blas_threaded((double)m * (double)m * (double)t);
 	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0, z, (int)t, 0.0, a, (int)m);
 	/* counts in single precision: sums of 0/1 are exact below 2^24 periods,
 	 * at half the cost of the double product */
 	cblas_ssyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0f, find, (int)t, 0.0f, cnt, (int)m);
-	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z, (int)t, ind, (int)t,
-		    0.0, sx, (int)m);
-	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z2, (int)t, ind, (int)t,
-		    0.0, q, (int)m);
+	if (!sparse) {
+		cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z, (int)t, ind,
+			    (int)t, 0.0, sx, (int)m);
+		cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z2, (int)t, ind,
+			    (int)t, 0.0, q, (int)m);
+	}
 	blas_threaded_end();
+	if (sparse)
+		pairwise_sums_sparse(m, t, z, off, idx, w1, w2, sx, q);
 	/* every security's own variance first, so a constant one is named as such */
 	for (i = 0; i < m && rc == HC_OK; i++) {
 		double n = cnt[i * m + i], si = sx[i * m + i];
@@ -546,6 +618,10 @@ static int pairwise_matrix(const struct universe *u, double **out, long double *
 		}
 	}
 cleanup:
+	hc_free(off);
+	hc_free(idx);
+	hc_free(w1);
+	hc_free(w2);
 	hc_free(cnt);
 	hc_free(find);
 	hc_free(sx);
@@ -635,6 +711,37 @@ static int check_shape(const struct universe *u, struct hc_error *err)
 	if (u->m > INT32_MAX || u->t > INT32_MAX)
 		return hc_error(err, HC_ENOMEM, "universe of %zu x %zu is too large for BLAS", u->m, u->t);
 	return HC_OK;
+}
+
+int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, double **a,
+			       struct hc_error *err)
+{
+	long double R;
+	int rc;
+
+	memset(mo, 0, sizeof *mo);
+	*a = NULL;
+	if ((rc = check_shape(u, err)) ||
+	    (rc = check_budget(u, route_bytes(u, MOMENTS_ROUTE_PAIRWISE), "covariances", err)))
+		return rc;
+	if ((rc = pairwise_matrix(u, a, &R, err)))
+		return rc;
+	mo->m = u->m;
+	mo->route = MOMENTS_ROUTE_PAIRWISE;
+	if ((rc = sums_from_matrix(mo, *a, u->m, err)) != HC_OK) {
+		hc_free(*a);
+		*a = NULL;
+		memset(mo, 0, sizeof *mo);
+		return rc;
+	}
+	mo->average_correlation = (double)(R / ((long double)u->m * (u->m - 1)));
+	mo->t = u->t;
+	return HC_OK;
+}
+
+void hc_moments_blas_threaded(double work)
+{
+	blas_threaded(work);
 }
 
 int hc_moments_covariance(const struct universe *u, double **a, struct hc_error *err)

@@ -347,6 +347,60 @@ static void test_moments_allocation_failure(void **state)
 	fixture_free(m);
 }
 
+/* The pairwise matrix pair by pair in long double: each pair over the
+ * periods both have, its own means there, divisor n - 1. */
+static double pair_cov(const double *x, size_t t, size_t i, size_t j)
+{
+	long double si = 0, sj = 0, c = 0;
+	size_t k, n = 0;
+
+	for (k = 0; k < t; k++)
+		if (!isnan(x[i * t + k]) && !isnan(x[j * t + k])) {
+			si += x[i * t + k];
+			sj += x[j * t + k];
+			n++;
+		}
+	si /= n;
+	sj /= n;
+	for (k = 0; k < t; k++)
+		if (!isnan(x[i * t + k]) && !isnan(x[j * t + k]))
+			c += (x[i * t + k] - si) * (x[j * t + k] - sj);
+	return (double)(c / (n - 1));
+}
+
+/* Both ways to the sums over each pair's overlap give the pair-by-pair
+ * matrix: dense products (a quarter of the cells missing, above the
+ * 1-in-8 share) and the sums from the gaps (1 cell in 40 missing). */
+static void test_moments_pairwise_dense_and_sparse(void **state)
+{
+	size_t m = 9, t = 40, i, j, k, pass;
+	double x[360], *a;
+	struct universe *u;
+	struct hc_error err;
+
+	(void)state;
+	for (pass = 0; pass < 2; pass++) {
+		size_t every = pass == 0 ? 4 : 40, gaps = 0;
+
+		fixture_returns(x, m, t, 2718 + pass);
+		for (i = 0; i < m; i++)
+			for (k = 0; k < t; k++)
+				if ((i * 7 + k * 3) % every == 0) {
+					x[i * t + k] = NAN;
+					gaps++;
+				}
+		assert_true(pass == 0 ? gaps > m * t / 8 : gaps <= m * t / 8);
+		u = fixture_universe(x, m, t);
+		assert_non_null(u);
+		assert_int_equal(hc_moments_covariance(u, &a, &err), HC_OK);
+		for (i = 0; i < m; i++)
+			for (j = 0; j < m; j++)
+				assert_close(a[i * m + j], pair_cov(x, t, i, j), a[0], 1e-12);
+		hc_free(a);
+		fixture_free(u);
+	}
+}
+
 /* hc_moments_covariance: the full matrix against the textbook two-pass
  * covariance (complete data), and pairwise entries against the covariance
  * of the overlapping periods (a security with a gap). */
@@ -536,6 +590,7 @@ int main(void)
 		cmocka_unit_test(test_moments_gram_and_matrix_routes_agree),
 		cmocka_unit_test(test_moments_from_matrix_hand_worked),
 		cmocka_unit_test(test_moments_pairwise_route),
+		cmocka_unit_test(test_moments_pairwise_dense_and_sparse),
 		cmocka_unit_test(test_moments_from_summary),
 		cmocka_unit_test(test_moments_summary_rejects_impossible),
 		cmocka_unit_test(test_moments_rejects_bad_data),

@@ -17,6 +17,7 @@
 #include <gsl/gsl_randist.h>
 
 #include "holdcount/curve.h"
+#include "holdcount/curverun.h"
 #include "holdcount/measures.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
@@ -660,6 +661,143 @@ static void test_periodic_alexeev_tapon_sampled_enumeration(void **state)
 	hc_universe_free(u);
 }
 
+/* The exact spread on complete data: hc_curve_pairwise_spread (the masked
+ * Gram products of the pairwise route) on the per-period curve gives the
+ * complete-data variance_sd of hc_curve_exact (design.md section 3) to
+ * 1e-12 relative, 0 at N = M. */
+static void test_periodic_spread_matches_complete_route(void **state)
+{
+	struct universe *u = make_universe(37, 61, 0, 11);
+	struct hc_periodic *p = NULL;
+	struct curve *full = NULL, *per = NULL;
+	struct moments mo, pmo;
+	struct hc_error err;
+	size_t sizes[37], n;
+
+	(void)state;
+	for (n = 0; n < 37; n++)
+		sizes[n] = n + 1;
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_curve_exact(&full, &mo, sizes, 37, 12.0, &err), HC_OK);
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_int_equal(hc_periodic_curve_exact(&per, p, sizes, 37, 12.0, &err), HC_OK);
+	assert_true(isnan(per->points[0].variance_sd));
+	assert_int_equal(hc_curve_pairwise_spread(per, u, &pmo, &err), HC_OK);
+	for (n = 0; n < 36; n++) {
+		assert_true(full->points[n].variance_sd > 0);
+		assert_true(rel(per->points[n].variance_sd, full->points[n].variance_sd) < 1e-12);
+	}
+	assert_true(per->points[36].variance_sd == 0.0 && full->points[36].variance_sd == 0.0);
+	hc_curve_free(full);
+	hc_curve_free(per);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* Where the pairwise matrix cannot be built the spread is refused with the
+ * reason, and the curve run keeps every other column: a security delisted
+ * before another listed (found before any product), and a memory budget
+ * too small for the M x M arrays. */
+static void test_periodic_spread_refusals(void **state)
+{
+	struct universe *u = make_universe(12, 40, 1, 23), *u2 = make_universe(12, 40, 1, 23);
+	struct hc_periodic *p = NULL;
+	struct curve *c = NULL;
+	struct hc_source *s = NULL;
+	struct hc_source_options so;
+	struct hc_curve_options co;
+	struct hc_curve_result *res = NULL;
+	struct moments pmo;
+	struct hc_error err;
+	size_t sizes[3] = {1, 2, 5}, k;
+
+	(void)state;
+	/* LIR001 delists after period 9, LIR002 lists at period 30 */
+	for (k = 10; k < 40; k++)
+		u->x[0 * 40 + k] = NAN;
+	for (k = 0; k < 30; k++)
+		u->x[1 * 40 + k] = NAN;
+	u->has_missing = 1;
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_int_equal(hc_periodic_curve_exact(&c, p, sizes, 3, 12.0, &err), HC_OK);
+	assert_int_equal(hc_curve_pairwise_spread(c, u, &pmo, &err), HC_EDATA);
+	assert_non_null(strstr(err.message, "'LIR002' and 'LIR001' have only 0 common periods"));
+	assert_true(isnan(c->points[0].variance_sd));
+	/* the budget: the returns held plus less than the M x M arrays */
+	u2->max_bytes = (size_t)(12 * 40 * sizeof(double)) + 1000;
+	assert_int_equal(hc_curve_pairwise_spread(c, u2, &pmo, &err), HC_ENOMEM);
+	assert_non_null(strstr(err.message, "too large"));
+	hc_curve_free(c);
+	hc_periodic_free(p);
+	hc_universe_free(u2);
+	/* through the curve run: the column empty, the reason kept, the rest there */
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&s, u, &so, &err), HC_OK);
+	hc_curve_options_init(&co);
+	co.paths = 0;
+	assert_int_equal(hc_curve_run(&res, s, sizes, 3, &co, &err), HC_OK);
+	assert_int_equal(res->spread_built, 0);
+	assert_non_null(strstr(res->spread_reason, "not computed"));
+	assert_non_null(strstr(res->spread_reason, "common periods"));
+	for (k = 0; k < 3; k++) {
+		assert_true(isnan(res->curve->points[k].variance_sd));
+		assert_true(res->curve->points[k].expected_variance > 0);
+	}
+	hc_curve_result_free(res);
+	hc_source_free(s);
+}
+
+/* A security observed once is left out of the per-period route; the
+ * spread is then that of the securities kept (not a refusal): the same
+ * figures as the pairwise moments of the universe without it. */
+static void test_periodic_spread_kept_securities(void **state)
+{
+	struct universe *u = make_universe(10, 40, 1, 29), *w = make_universe(10, 40, 1, 29);
+	struct hc_source *s = NULL;
+	struct hc_source_options so;
+	struct hc_curve_options co;
+	struct hc_curve_result *res = NULL;
+	struct moments mo;
+	struct hc_error err;
+	size_t sizes[3] = {1, 4, 9}, k, i;
+	double sd;
+
+	(void)state;
+	for (k = 0; k < 40; k++)
+		if (k != 17)
+			u->x[3 * 40 + k] = NAN;
+	u->has_missing = 1;
+	/* w: the same universe without security 3 (rows 4..9 moved up) */
+	for (i = 3; i < 9; i++)
+		memcpy(w->x + i * 40, w->x + (i + 1) * 40, 40 * sizeof *w->x);
+	hc_free(w->ids[3]);
+	for (i = 3; i < 9; i++)
+		w->ids[i] = w->ids[i + 1];
+	w->ids[9] = NULL;
+	w->m = w->m_read = 9;
+	w->has_missing = 1;
+	assert_int_equal(hc_moments_from_universe_route(&mo, w, MOMENTS_ROUTE_PAIRWISE, &err), HC_OK);
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&s, u, &so, &err), HC_OK);
+	assert_int_equal(s->per->m, 9);
+	hc_curve_options_init(&co);
+	co.paths = 0;
+	assert_int_equal(hc_curve_run(&res, s, sizes, 3, &co, &err), HC_OK);
+	assert_int_equal(res->spread_built, 1);
+	for (k = 0; k < 3; k++) {
+		assert_int_equal(hc_curve_variance_sd(&mo, sizes[k], &sd, &err), HC_OK);
+		if (k < 2)
+			assert_true(rel(res->curve->points[k].variance_sd, sd * 12.0) < 1e-12);
+		else
+			assert_true(res->curve->points[k].variance_sd == 0.0);
+	}
+	hc_curve_result_free(res);
+	hc_source_free(s);
+	hc_universe_free(w);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -674,6 +812,9 @@ int main(void)
 		cmocka_unit_test(test_periodic_refuses_tiny),
 		cmocka_unit_test(test_periodic_source_kind),
 		cmocka_unit_test(test_periodic_alexeev_tapon_sampled_enumeration),
+		cmocka_unit_test(test_periodic_spread_matches_complete_route),
+		cmocka_unit_test(test_periodic_spread_refusals),
+		cmocka_unit_test(test_periodic_spread_kept_securities),
 	};
 
 	return cmocka_run_group_tests(tests, NULL, NULL);

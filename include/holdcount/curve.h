@@ -29,6 +29,13 @@ double hc_curve_expected_variance(const struct moments *mo, double n);
 int hc_curve_variance_sd(const struct moments *mo, size_t n, double *sd,
 		      struct hc_error *err);
 
+/* Set variance_sd of every point of c (annualised by c->periods_per_year)
+ * from mo by hc_curve_variance_sd: the spread across fixed N-subsets of
+ * mo's m securities.  c->m must equal mo->m.  HC_EUSAGE when mo lacks the
+ * spread sums or the sizes do not match (c unchanged). */
+struct curve;
+int hc_curve_set_spread(struct curve *c, const struct moments *mo, struct hc_error *err);
+
 /* E[TE^2(n)] = (vbar - cbar)(1/n - 1/M) against the universe equal-weight
  * portfolio, per period; with an unbounded universe (m = 0) the 1/M term is 0. */
 double hc_curve_expected_te2(const struct moments *mo, double n);

@@ -26,6 +26,12 @@ extern "C" {
 #define CURVE_DEFAULT_PATHS 10000
 #define CURVE_DEFAULT_SEED 1
 
+/* What variance_sd is on a ragged source (the field variance_sd_basis). */
+#define HC_CURVE_RAGGED_SPREAD_BASIS "the standard deviation, across fixed sets of N securities held over " \
+	"the whole sample, of the portfolio variance under the pairwise-complete covariances (each pair over " \
+	"its common periods); E[var] is that of a portfolio holding, at each period, N of the securities alive " \
+	"then, so on data with gaps the two describe different portfolios (they coincide on complete data)"
+
 struct hc_curve_options {
 	size_t paths;                       /* random portfolios a count; 0 = exact only */
 	uint64_t seed;
@@ -49,7 +55,36 @@ struct hc_curve_result {
 	struct hc_measures_curve *measures; /* with opt->measures; else NULL */
 	struct report *report;         /* fields, table "curve" (with stratified_* columns),
 	                                * what the PSD policy did, notes and cautions */
+	/* A ragged source (HC_SOURCE_RAGGED): the pairwise-complete moments that
+	 * give variance_sd (hc_curve_pairwise_spread), when they could be built
+	 * (spread_built 1); else spread_reason says why variance_sd is empty. */
+	int spread_built;
+	struct moments spread_mo;
+	char spread_reason[HC_ERROR_MESSAGE_MAX];
 };
+
+/*
+ * The exact spread on a history with gaps, into variance_sd of every point
+ * of c (annualised by c->periods_per_year): the standard deviation, across
+ * the fixed-membership N-subsets of u's m securities (c->m == u->m), of the
+ * subset's variance w'Aw (w = 1/N on the subset) under A, the
+ * pairwise-complete covariance matrix of u (each pair over its common
+ * periods, its own means there, divisor n_ij - 1: masked Gram products on
+ * BLAS, hc_moments_from_universe_route's MOMENTS_ROUTE_PAIRWISE), by the
+ * formula of hc_curve_variance_sd.  On complete data A is the sample
+ * covariance matrix and the result is hc_curve_exact's variance_sd.  On
+ * data with gaps it is NOT the spread of the per-period portfolio whose
+ * expectation hc_periodic_curve_exact gives (that one replaces delisted
+ * holdings); it is the spread of the fixed-subset variance whose mean is
+ * vbar/N + (1 - 1/N) cbar of A.  *mo gets A's moments.
+ * A pair whose listing spans overlap by fewer than
+ * COVMATRIX_MIN_COMMON_PERIODS periods is found in O(M T) before any
+ * product.  Errors (c unchanged): HC_EDATA naming a pair without enough
+ * common periods or a security that does not vary; HC_ENOMEM when the
+ * M x M arrays do not fit u->max_bytes (memory.h) or cannot be allocated.
+ */
+int hc_curve_pairwise_spread(struct curve *c, const struct universe *u, struct moments *mo,
+			     struct hc_error *err);
 
 /*
  * The curve of src at sizes[0..nsizes) (each 1..M; hc_curve_parse_sizes or

@@ -89,6 +89,20 @@ int hc_moments_from_universe(struct moments *mo, const struct universe *u,
 int hc_moments_from_universe_route(struct moments *mo, const struct universe *u,
 				int route, struct hc_error *err);
 
+/* The pairwise route's moments (the average correlation too) and the
+ * pairwise-complete matrix they come from, in a new *a (hc_free), from one
+ * set of masked Gram products, for a caller that needs both (describe's
+ * positive semi-definite check); the budget and errors of
+ * hc_moments_from_universe_route.  *a is NULL on error. */
+int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, double **a,
+			       struct hc_error *err);
+
+/* OpenBLAS on omp_get_max_threads() threads for a product or
+ * factorisation of about work flops outside this module (below 1e9 it
+ * stays on one thread); end with hc_moments_blas_serial, which stops the
+ * workers so they do not spin beside OpenMP work. */
+void hc_moments_blas_threaded(double work);
+
 /* The M x M sample covariance matrix of u (divisor T-1, row-major, both
  * triangles) into a new array *a, freed with hc_free: through dsyrk for
  * complete data; pairwise-complete (each pair over the periods both have,
