@@ -46,30 +46,10 @@ import sys
 
 import numpy as np
 
+import hclibrary  # tests/hclibrary.py: the library through ctypes
+
 HC = os.environ["HOLDCOUNT"]
-
-
-def asan_runtime(lib):
-    """The AddressSanitizer runtime a sanitizer build of the library links
-    (test.sh's second stage), from ldd; None for a plain build."""
-    out = subprocess.run(["ldd", lib], capture_output=True, text=True).stdout
-    for line in out.splitlines():
-        parts = line.split()
-        if parts and parts[0].startswith("libasan.so") and len(parts) >= 3 and parts[1] == "=>":
-            return parts[2]
-    return None
-
-
-# A sanitized library can be loaded into Python only with its runtime
-# first in the process: re-run this script with it preloaded (leak
-# detection off: the interpreter's own allocations are not the library's).
-_asan = asan_runtime(os.environ["HOLDCOUNT_LIBRARY"])
-if _asan and _asan not in os.environ.get("LD_PRELOAD", ""):
-    env = dict(os.environ)
-    env["LD_PRELOAD"] = _asan + (" " + env["LD_PRELOAD"] if env.get("LD_PRELOAD") else "")
-    env["ASAN_OPTIONS"] = (env.get("ASAN_OPTIONS", "") + ":detect_leaks=0").lstrip(":")
-    os.execve(sys.executable, [sys.executable] + sys.argv, env)
-LIB = ctypes.CDLL(os.environ["HOLDCOUNT_LIBRARY"])
+LIB = hclibrary.load()
 TMP = os.environ.get("HOLDCOUNT_TEST_TMP", "/tmp")
 KEYS = ["semidev_mean", "semidev_zero", "var95", "var99", "es95", "es99", "max_drawdown",
         "skewness", "excess_kurtosis", "worst_period", "lag_universe"]

@@ -14,29 +14,7 @@ rm -rf "$T"; mkdir -p "$T"
 fails=0
 fail() { echo "FAIL: $*"; fails=$((fails + 1)); }
 
-"$PY" - "$T/u.csv" <<'PY'
-import sys, datetime
-import numpy as np
-rng = np.random.default_rng(2385)
-m, t = 10, 150
-x = 0.0004 + 0.012 * rng.standard_normal((t, m))
-x[40, 0] = -0.5012                       # LIR901: 2-for-1 split, kept
-x[60, 1] = 1.0031; x[62, 1] = 1 / 2.0031 - 1   # LIR902: doubled, undone
-x[20:27, 2] = 0.0                        # LIR903: stale for 7 days
-x[:, 3] *= 100                           # LIR904: percents
-x[:, 4] = 48.75 * (1 + x[:, 4])          # LIR905: prices
-x[30, 5] = -1.2                          # LIR906: below -100%
-d, dates = datetime.date(2024, 1, 1), []
-while len(dates) < t:
-    if d.weekday() < 5:
-        dates.append(d.isoformat())
-    d += datetime.timedelta(days=1)
-with open(sys.argv[1], "w") as f:
-    f.write("date," + ",".join("LIR9%02d" % (i + 1) for i in range(m)) + "\n")
-    for k in range(t):
-        f.write(dates[k] + "," + ",".join(repr(float(v)) for v in x[k]) + "\n")
-print(dates[40], dates[60], dates[62], dates[20], dates[30], file=open(sys.argv[1] + ".dates", "w"))
-PY
+"$PY" "${HOLDCOUNT_SOURCE_DIR:?}/tests/planted_universe.py" "$T/u.csv"
 read -r d40 d60 d62 d20 d30 <"$T/u.csv.dates"
 
 "$HC" check "$T/u.csv" --format json >"$T/f.json" || fail "check exited $?"

@@ -19,30 +19,8 @@ rm -rf "$T"; mkdir -p "$T"
 fails=0
 fail() { echo "FAIL: $*"; fails=$((fails + 1)); }
 
-"$PY" - "$T/u.csv" <<'PY'
-import sys, datetime
-import numpy as np
-rng = np.random.default_rng(2385)
-m, t = 10, 150
-x = 0.0004 + 0.012 * rng.standard_normal((t, m))
-x[40, 0] = -0.5012                       # LIR901: 2-for-1 split, kept
-x[60, 1] = 1.0031; x[62, 1] = 1 / 2.0031 - 1   # LIR902: doubled, undone
-x[20:27, 2] = 0.0                        # LIR903: stale for 7 days
-x[:, 3] *= 100                           # LIR904: percents
-x[:, 4] = 48.75 * (1 + x[:, 4])          # LIR905: prices
-x[30, 5] = -1.2                          # LIR906: below -100%
-d, dates = datetime.date(2024, 1, 1), []
-while len(dates) < t:
-    if d.weekday() < 5:
-        dates.append(d.isoformat())
-    d += datetime.timedelta(days=1)
-with open(sys.argv[1], "w") as f:
-    f.write("date," + ",".join("LIR9%02d" % (i + 1) for i in range(m)) + "\n")
-    for k in range(t):
-        f.write(dates[k] + "," + ",".join(repr(float(v)) for v in x[k]) + "\n")
-print(dates[40], file=open(sys.argv[1] + ".dates", "w"))
-PY
-read -r d40 <"$T/u.csv.dates"
+"$PY" "$SRC/tests/planted_universe.py" "$T/u.csv"
+read -r d40 _ <"$T/u.csv.dates"
 { echo "fund,id,weight"; for i in 01 02 03 04 05 06 07 08 09 10; do echo "Fund LIR,LIR9$i,0.1"; done; } >"$T/h.csv"
 
 # name, then the command line after `holdcount`
