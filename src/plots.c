@@ -887,12 +887,13 @@ static int write_funds(FILE *fp, const struct plots_input *in, struct hc_error *
 static int write_rolling(FILE *fp, const struct plots_input *in)
 {
 	const struct rolling_result *r = in->rolling;
-	char date[11];
+	char date[11], spacing[128];
 	size_t j, q;
 	int id;
 
+	hc_rolling_step_text(r, spacing, sizeof spacing);
 	fprintf(fp, "# holdcount plot data: the count each exact rule recommends in rolling windows of %zu "
-		"periods every %zu\n# window_end", r->window, r->step);
+		"periods, %s\n# window_end", r->window, spacing);
 	for (id = 0; id < RULES_COUNT; id++)
 		if (r->rules & RULES_FLAG(id))
 			fprintf(fp, "  %s", hc_rules_name(id));
@@ -1306,7 +1307,7 @@ static void rolling_plot(FILE *fp, const struct plots_input *in)
 static void subtitle(char *buf, size_t size, int kind, const struct plots_input *in, const struct funds_layout *F)
 {
 	double p = in->exact->periods_per_year;
-	char basis[160];
+	char basis[160], spacing[128];
 
 	snprintf(basis, sizeof basis, "annualised from %.10g periods a year (variance times %.10g, sd times its "
 		 "square root)", p, p);
@@ -1319,8 +1320,14 @@ static void subtitle(char *buf, size_t size, int kind, const struct plots_input 
 			 "%.10g periods a year", F->ymin, F->ymax, p);
 		break;
 	case PLOTS_ROLLING:
-		snprintf(buf, size, "windows of %zu periods (%.3g years), one every %zu; annualised from %.10g "
-			 "periods a year", in->rolling->window, (double)in->rolling->window / p, in->rolling->step, p);
+		/* short: a subtitle line holds about 100 characters */
+		if (in->rolling->step_months)
+			snprintf(spacing, sizeof spacing, "%zu months apart, newest at the last date",
+				 in->rolling->step_months);
+		else
+			snprintf(spacing, sizeof spacing, "one every %zu periods", in->rolling->step);
+		snprintf(buf, size, "%zu-period windows (%.3g years), %s; %.10g periods a year",
+			 in->rolling->window, (double)in->rolling->window / p, spacing, p);
 		break;
 	default:
 		snprintf(buf, size, "%s", basis);
@@ -1473,13 +1480,14 @@ const char *hc_plots_caption(int kind, const struct plots_input *in, char *buf, 
 		{
 			size_t q = 0, len;
 			int id, unmet = 0;
+			char spacing[128];
 
+			hc_rolling_step_text(in->rolling, spacing, sizeof spacing);
 			len = (size_t)snprintf(buf, size, "Holding count needed through time: the count each exact "
-					       "rule recommends from the averages of each window of %zu periods (one "
-					       "every %zu), plotted at the window's last date; gaps are windows where "
+					       "rule recommends from the averages of each window of %zu periods (%s), plotted at the window's last date; gaps are windows where "
 					       "the rule is not met or the window has too few securities. A rising line "
 					       "means the same diversification now takes more holdings (Campbell, "
-					       "Lettau, Malkiel & Xu, 2001).", in->rolling->window, in->rolling->step);
+					       "Lettau, Malkiel & Xu, 2001).", in->rolling->window, spacing);
 			for (id = 0; id < RULES_COUNT && len < size; id++) {
 				if (!(in->rolling->rules & RULES_FLAG(id)))
 					continue;

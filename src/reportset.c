@@ -33,6 +33,10 @@ void hc_reportset_choose_window(struct hc_reportset_options *opt, size_t t, doub
 	opt->window_why[0] = '\0';
 	opt->window_default = 0;
 	opt->step = step ? step : year;
+	/* no step given: calendar windows a year apart, the newest ending at
+	 * the last observation (daily data: each earlier one at a month's last
+	 * trading day), as `holdcount rolling` does by default */
+	opt->step_months = step ? 0 : 12;
 	if (window_given) {
 		opt->window = window;
 		if (!opt->window)
@@ -144,6 +148,7 @@ static int compute_rolling(struct hc_reportset *r, const struct universe *every,
 	hc_rolling_options_init(&ro);
 	ro.window = r->window;
 	ro.step = r->step;
+	ro.step_months = r->o.step_months;
 	ro.rules = r->o.enough.rules;
 	ro.rules.selected &= RULES_EXACT_MASK;
 	/* a ragged history's windows are read period by period too */
@@ -686,19 +691,21 @@ static void md_rolling(FILE *fp, const struct hc_reportset *r)
 	const char *cols[RULES_COUNT + 8][2];
 	const struct report_table *t = hc_report_find_table(r->rep_rolling, "windows");
 	size_t n = 0, j;
+	char spacing[128];
 
 	fputs("## Count needed through time\n\n", fp);
 	if (!r->window || !t) {
 		fprintf(fp, "Left out: %s.\n\n", r->o.window_why[0] ? r->o.window_why : "no rolling windows");
 		return;
 	}
-	fprintf(fp, "Each exact rule's count from the averages of each window of %zu periods (%s), one window "
-		"starting every %zu periods: %zu windows. The sampled rules (band, lag-share, alexeev-tapon-sampled) and the bootstrap "
+	hc_rolling_step_text(r->rolling, spacing, sizeof spacing);
+	fprintf(fp, "Each exact rule's count from the averages of each window of %zu periods (%s), "
+		"%s: %zu windows. The sampled rules (band, lag-share, alexeev-tapon-sampled) and the bootstrap "
 		"interval are not run per window (`holdcount rolling --bootstrap` gives the interval). Averages "
 		"drift over decades (Campbell, Lettau, Malkiel & Xu, 2001, Journal of Finance 56(1)), so a count "
 		"set once is worth revisiting. Every window's averages are in `rolling.csv`.\n\n",
 		r->window, r->o.window_default ? "five years, the report's default; `--window W` sets another length "
-		"and `--window 0` leaves this out" : "set with `--window`", r->step, r->rolling->nwindows);
+		"and `--window 0` leaves this out" : "set with `--window`", spacing, r->rolling->nwindows);
 	for (j = 0; j < sizeof fixed / sizeof fixed[0]; j++) {
 		cols[n][0] = fixed[j][0];
 		cols[n++][1] = fixed[j][1];

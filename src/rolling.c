@@ -702,6 +702,17 @@ int hc_rolling_report(struct report *rep, const struct rolling_result *r,
 	return HC_OK;
 }
 
+void hc_rolling_step_text(const struct rolling_result *r, char *buf, size_t size)
+{
+	if (!size)
+		return;
+	if (r->step_months)
+		snprintf(buf, size, "%zu calendar month%s apart, the newest at the last date",
+			 r->step_months, r->step_months == 1 ? "" : "s");
+	else
+		snprintf(buf, size, "one every %zu period%s", r->step, r->step == 1 ? "" : "s");
+}
+
 int hc_rolling_run(struct rolling_result **out, const struct hc_source *src,
 		   const struct rolling_options *opt, struct hc_error *err)
 {

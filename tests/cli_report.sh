@@ -35,7 +35,7 @@ grep -q '!\[Risk by holding count\](risk.png)' "$T/a/summary.md" || fail "summar
 # = 16 windows (docs/report.md); summary.md says which window was used.
 grep -q '^Each exact rule.s count from the averages of each window of 60 periods (five years, the report.s default' "$T/a/summary.md" ||
 	fail "summary.md does not say which rolling window was used"
-grep -q 'one window starting every 12 periods: 16 windows' "$T/a/summary.md" || fail "summary.md: not 16 windows a year apart"
+grep -q '12 calendar months apart, the newest at the last date: 16 windows' "$T/a/summary.md" || fail "summary.md: not 16 windows a year apart"
 [ "$(grep -c '^| 20[0-9][0-9]-' "$T/a/summary.md")" -eq 16 ] || fail "summary.md: the rolling table has not 16 rows"
 [ "$(wc -l <"$T/a/rolling.csv")" -eq 17 ] || fail "rolling.csv: $(wc -l <"$T/a/rolling.csv") lines, expected a header and 16 windows"
 grep -q '!\[Holding count needed through time\](rolling.png)' "$T/a/summary.md" || fail "summary.md does not embed rolling.png"
@@ -52,7 +52,7 @@ grep -q '^Left out: the history has 100 periods, fewer than two windows of 60 (f
 	fail "summary.md does not say why a short history has no rolling windows"
 "$HC" report "$T/short.csv" -o "$T/short24" --window 24 --step 6 "${FAST[@]}" || fail "--window 24 --step 6 exited $?"
 [ "$(wc -l <"$T/short24/rolling.csv")" -eq 14 ] || fail "--window 24 --step 6 over 100 periods: expected (100-24)/6+1 = 13 windows"
-grep -q 'each window of 24 periods (set with `--window`), one window starting every 6 periods: 13 windows' "$T/short24/summary.md" ||
+grep -q 'each window of 24 periods (set with `--window`), one every 6 periods: 13 windows' "$T/short24/summary.md" ||
 	fail "summary.md does not state the window given"
 
 # 2. Deterministic: a second run gives the same bytes (summary.md differs at

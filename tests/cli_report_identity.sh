@@ -49,9 +49,11 @@ compare "$T/demo" curve 0 "$HC" curve "$src" "${OPTS[@]}"
 compare "$T/demo" enough 0 "$HC" enough "$src" "${OPTS[@]}" --bootstrap 100
 compare "$T/demo" audit 0 "$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}"
 # rolling.csv: the report's default windows on the demo's monthly history
-# are five years (60 periods) a year apart (12), what `holdcount rolling`
-# prints with those options and the report's rule options (the defaults)
-compare "$T/demo" rolling 0 "$HC" rolling "$src" --window 60 --step 12
+# are five years (60 periods), 12 calendar months apart with the newest
+# ending at the last date, what `holdcount rolling` prints with that window
+# and its own default calendar step (12 months on monthly data) and the
+# report's rule options (the defaults)
+compare "$T/demo" rolling 0 "$HC" rolling "$src" --window 60
 # audit-screens.csv, audit-sectors.csv and audit-failures.csv: `audit --table screens|sectors|failures`
 for table in screens sectors failures; do
 	"$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}" -q \

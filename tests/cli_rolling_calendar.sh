@@ -132,5 +132,47 @@ PY
 "$HC" rolling "$T/u.csv" --step 5 --step-months 1 >/dev/null 2>"$T/err"; rc=$?
 [ $rc = 2 ] && grep -q "give one" "$T/err" || fail "--step with --step-months: exit $rc, $(cat "$T/err")"
 
+# The report's windows follow the same calendar: a daily history of about
+# three years ending mid-month, with its June 2022 month-end a holiday; the
+# report's default step is 12 calendar months, so its rolling.csv must have
+# the windows `rolling --step-months 12` prints (the same starts and ends;
+# the figures are checked against numpy above), the newest ending at the
+# last date and each earlier one at the last trading day of the same month
+# a year before (expected ends computed here from the dates written).
+"$PY" - "$T/d3.csv" <<'PY'
+import sys, datetime
+import numpy as np
+d, dates = datetime.date(2021, 1, 4), []
+while d <= datetime.date(2023, 8, 16):
+    if d.weekday() < 5 and d.isoformat() not in ("2022-08-31", "2021-08-31"):
+        dates.append(d.isoformat())
+    d += datetime.timedelta(days=1)
+rng = np.random.default_rng(78)
+m, t = 6, len(dates)
+x = 0.0003 + 0.01 * rng.standard_normal(t)[:, None] + 0.015 * rng.standard_normal((t, m))
+with open(sys.argv[1], "w") as out:
+    out.write("date," + ",".join("LIR8%02d" % (i + 1) for i in range(m)) + "\n")
+    for k in range(t):
+        out.write(dates[k] + "," + ",".join(repr(float(v)) for v in x[k]) + "\n")
+PY
+"$HC" report "$T/d3.csv" -o "$T/rep" --window 200 --paths 200 --bootstrap 50 -q 2>"$T/err" \
+	|| fail "report on a daily history exited $?: $(cat "$T/err")"
+"$HC" rolling "$T/d3.csv" --window 200 --step-months 12 --format csv >"$T/d3roll.csv" 2>"$T/err" \
+	|| fail "rolling --step-months 12 exited $?: $(cat "$T/err")"
+cmp -s <(cut -d, -f1,2 "$T/rep/rolling.csv") <(cut -d, -f1,2 "$T/d3roll.csv") ||
+	fail "the report's windows differ from rolling --step-months 12"
+"$PY" - "$T/rep/rolling.csv" <<'PY' || fail "the report's window ends"
+import csv, sys
+rows = list(csv.DictReader(open(sys.argv[1])))
+ends = [r["window_end"] for r in rows]
+# 2023-08-16 (the last date), then the last trading day of August 2022: the
+# 31st is a holiday, so the 30th (August 2021 has fewer than 200 weekdays
+# before it)
+want = ["2022-08-30", "2023-08-16"]
+if ends != want:
+    print("window ends", ends, "expected", want)
+    sys.exit(1)
+PY
+
 [ $fails -eq 0 ] && echo "cli_rolling_calendar: ok"
 exit $((fails > 0))

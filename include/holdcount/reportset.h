@@ -56,14 +56,19 @@ struct hc_reportset_options {
 	const char *previous;             /* an earlier report folder or its summary.json; NULL: none */
 	const char *label;                /* this report's name in the comparison (its folder) */
 	struct hc_progress progress;      /* stages and counted steps */
+	size_t step_months;               /* > 0: the windows step by calendar months (rolling.h), the
+	                                   * newest ending at the last period; 0: by `step` periods */
 };
 
 /*
  * The rolling windows for a history of t periods at periods_per_year:
- * given (window_given 1) as window and step (step 0 = a year's periods),
- * else REPORTSET_WINDOW_YEARS years a year apart when the history holds
+ * given (window_given 1) as window and step (step 0 = 12 calendar months:
+ * the newest window ends at the last period, each earlier one at the last
+ * period of the month 12 months before), else REPORTSET_WINDOW_YEARS years
+ * 12 calendar months apart when the history holds
  * REPORTSET_WINDOW_MIN_SPANS such windows, else none with the reason in
- * opt->window_why.  Sets opt->window, step, window_default, window_why.
+ * opt->window_why.  Sets opt->window, step, step_months, window_default,
+ * window_why.
  */
 void hc_reportset_choose_window(struct hc_reportset_options *opt, size_t t, double periods_per_year,
 				int window_given, size_t window, size_t step);

@@ -83,6 +83,13 @@ struct rolling_options {
  * months unless --step is given), complete data, default rules, no bootstrap. */
 void hc_rolling_options_init(struct rolling_options *opt);
 
+struct rolling_result;
+
+/* How the windows of r are spaced, in words for captions and reports:
+ * "one every S periods" or "12 calendar months apart, the newest ending at
+ * the last period".  Always NUL-terminated (truncated to size). */
+void hc_rolling_step_text(const struct rolling_result *r, char *buf, size_t size);
+
 struct rolling_window {
 	size_t first;              /* index of the first period */
 	int32_t start_date, end_date; /* days since 1970-01-01 */

@@ -68,8 +68,8 @@ static const struct cli_option report_own[] = {
 	{ "window", 0, CLI_COUNT, RO(window), "W",
 	  "the exact rules' counts in rolling windows of W periods (rolling.csv and its plot); 0 leaves them out",
 	  NULL, "five years of periods, when the history holds two such windows" },
-	{ "step", 0, CLI_COUNT, RO(step), "S", "periods between two rolling windows' starts", NULL,
-	  "one year of periods" },
+	{ "step", 0, CLI_COUNT, RO(step), "S", "periods between two rolling windows (default: 12 calendar months, the newest ending at the last date)", NULL,
+	  "12 calendar months" },
 	{ NULL, 0, 0, 0, NULL, NULL, NULL, NULL }
 };
 static const struct cli_group report_group = { "report options", report_own };
@@ -110,8 +110,9 @@ const struct cli_command cli_command_report = {
 	"and audit.csv (what 'holdcount curve', 'enough' and 'audit' print with --format csv and the same "
 	"options), gnuplot scripts with their data (*.gp, *.dat) and, when gnuplot is on the PATH, their "
 	"renders; and rolling.csv (what 'holdcount rolling' prints) with the plot of the count needed "
-	"through time, in windows of five years of periods a year apart when the history holds two such "
-	"windows (--window W and --step S choose others, --window 0 leaves them out; summary.md says "
+	"through time, in windows of five years of periods, 12 calendar months apart with the newest ending "
+	"at the last date, when the history holds two such windows (--window W, and --step S for windows "
+	"S periods apart, choose others, --window 0 leaves them out; summary.md says "
 	"which). --sizes sets the curve's grid; the rules look at every count. "
 	"The folder is built under a temporary name and renamed into place, so an interrupted run leaves "
 	"the previous report or none. --demo runs on the bundled invented demo universe, its "
