@@ -182,7 +182,8 @@ for row in audit_rows:
 dates = [row[0] for row in data[1:]]
 windows = summary["rolling"]["windows"]
 check(len(windows) == 16, f"{len(windows)} rolling windows, expected (240 - 60)/12 + 1 = 16")
-check(summary["rolling"]["window"] == 60 and summary["rolling"]["step"] == 12, "rolling window and step not 60 and 12")
+check(summary["rolling"]["window"] == 60 and summary["rolling"].get("step_months") == 12 and "step" not in summary["rolling"],
+      "rolling window and calendar step not 60 periods and 12 months")
 check(windows[-1]["window_end"] == dates[-1], "the newest rolling window does not end at the last month")
 for w in windows:
     lo, hi = dates.index(w["window_start"]), dates.index(w["window_end"])
