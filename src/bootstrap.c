@@ -64,18 +64,6 @@ static uint64_t replicate_state(uint64_t seed, size_t rep)
 	return hc_paths_stream(seed, (uint64_t)rep);
 }
 
-/* Uniform integer in 0..n-1 without modulo bias: reject the low
- * (2^64 mod n) outputs. */
-static uint64_t uniform_below(uint64_t *state, uint64_t n)
-{
-	uint64_t threshold = (0 - n) % n, x;
-
-	do
-		x = splitmix64(state);
-	while (x < threshold);
-	return x % n;
-}
-
 /* Uniform double in [0, 1) from the top 53 bits. */
 static double uniform01(uint64_t *state)
 {
@@ -101,7 +89,7 @@ int hc_bootstrap_indices_n(int kind, size_t t, size_t n, size_t block_length, ui
 	if (kind == BOOTSTRAP_BLOCK) {
 		/* Kuensch (1989): blocks start uniformly in 0..T-L. */
 		for (k = 0; k < n; k += l) {
-			size_t start = (size_t)uniform_below(&st, t - l + 1), j;
+			size_t start = (size_t)hc_paths_uniform_below(&st, t - l + 1), j;
 
 			for (j = 0; j < l && k + j < n; j++)
 				idx[k + j] = start + j;
@@ -113,11 +101,11 @@ int hc_bootstrap_indices_n(int kind, size_t t, size_t n, size_t block_length, ui
 	/* Politis & Romano (1994): each period starts a new block with
 	 * probability 1/L at a uniform position, else follows the previous one,
 	 * wrapping circularly. */
-	pos = (size_t)uniform_below(&st, t);
+	pos = (size_t)hc_paths_uniform_below(&st, t);
 	idx[0] = pos;
 	for (k = 1; k < n; k++) {
 		if (uniform01(&st) * (double)l < 1.0)
-			pos = (size_t)uniform_below(&st, t);
+			pos = (size_t)hc_paths_uniform_below(&st, t);
 		else
 			pos = pos + 1 == t ? 0 : pos + 1;
 		idx[k] = pos;

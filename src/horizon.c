@@ -39,18 +39,6 @@ void hc_horizon_options_init(struct hc_horizon_options *opt)
 	opt->rate = NAN;
 }
 
-/* Uniform integer in 0..n-1 from a splitmix64 stream, rejecting the low
- * (2^64 mod n) outputs (no modulo bias). */
-static uint64_t uniform_below(uint64_t *state, uint64_t n)
-{
-	uint64_t threshold = (0 - n) % n, x;
-
-	do
-		x = hc_paths_splitmix64(state);
-	while (x < threshold);
-	return x % n;
-}
-
 static int draw_periods(uint64_t seed, size_t k, size_t t, size_t h, int route, size_t l, size_t *periods,
 			struct hc_error *err)
 {
@@ -63,7 +51,7 @@ static int draw_periods(uint64_t seed, size_t k, size_t t, size_t h, int route, 
 		if (h > t)
 			return hc_error(err, HC_EUSAGE, "a window of %zu periods does not fit in %zu", h, t);
 		st = hc_paths_stream(seed ^ HORIZON_TAG, (uint64_t)k);
-		start = (size_t)uniform_below(&st, (uint64_t)(t - h + 1));
+		start = (size_t)hc_paths_uniform_below(&st, (uint64_t)(t - h + 1));
 		for (s = 0; s < h; s++)
 			periods[s] = start + s;
 		return HC_OK;

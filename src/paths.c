@@ -18,6 +18,16 @@ uint64_t hc_paths_splitmix64(uint64_t *state)
 	return z ^ (z >> 31);
 }
 
+uint64_t hc_paths_uniform_below(uint64_t *state, uint64_t n)
+{
+	uint64_t threshold = (0 - n) % n, x;
+
+	do
+		x = hc_paths_splitmix64(state);
+	while (x < threshold);
+	return x % n;
+}
+
 unsigned long hc_paths_seed32(uint64_t seed, size_t k)
 {
 	uint64_t st = seed + 0x9e3779b97f4a7c15ULL * (uint64_t)k, z;

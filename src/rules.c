@@ -775,9 +775,17 @@ static int at_limit_between(const struct rules_config *cfg, double vbar, double 
 	return 0;
 }
 
+/* The variance of an equal-weight portfolio of m of the securities,
+ * v-bar/m + (1 - 1/m) c-bar (the equal-weight universe's at m = M); c-bar
+ * for m = 0, the unbounded universe's floor. */
+static double equal_weight_variance(double vbar, double cbar, size_t m)
+{
+	return m ? vbar / (double)m + (1 - 1.0 / (double)m) * cbar : cbar;
+}
+
 static int at_limit(const struct rules_config *cfg, double vbar, double cbar, size_t m, double *limit)
 {
-	return at_limit_between(cfg, vbar, m ? vbar / (double)m + (1 - 1.0 / (double)m) * cbar : cbar, limit);
+	return at_limit_between(cfg, vbar, equal_weight_variance(vbar, cbar, m), limit);
 }
 
 /* P(s^2(n) <= limit) by a gamma distribution with the exact mean and
@@ -788,7 +796,7 @@ static int at_limit(const struct rules_config *cfg, double vbar, double cbar, si
 static int at_gamma_prob(const struct moments *mo, double vbar, double cbar, size_t n,
 			 double limit, double *prob, struct hc_error *err)
 {
-	double mean = vbar / (double)n + (1 - 1.0 / (double)n) * cbar, sd;
+	double mean = equal_weight_variance(vbar, cbar, n), sd;
 	int status;
 
 	if ((status = hc_curve_variance_sd(mo, n, &sd, err)) != HC_OK)
@@ -842,8 +850,7 @@ int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct 
 				   double vbar, double cbar, size_t m, struct rule_result *res,
 				   struct hc_error *err)
 {
-	return hc_rules_alexeev_tapon_sampled_between(cfg, r, vbar,
-						      m ? vbar / (double)m + (1 - 1.0 / (double)m) * cbar : cbar,
+	return hc_rules_alexeev_tapon_sampled_between(cfg, r, vbar, equal_weight_variance(vbar, cbar, m),
 						      res, err);
 }
 

@@ -32,6 +32,10 @@ typedef int (*hc_progress_fn)(void *ctx, size_t done, size_t total);
 /* splitmix64 step: advances *state and returns the next output. */
 uint64_t hc_paths_splitmix64(uint64_t *state);
 
+/* Uniform integer in 0..n-1 (n >= 1) from the splitmix64 stream *state,
+ * without modulo bias: the low (2^64 mod n) outputs are rejected. */
+uint64_t hc_paths_uniform_below(uint64_t *state, uint64_t n);
+
 /* Seed for path k of a run seeded with seed: the (k+1)-th splitmix64
  * output from seed, folded to the 32 bits GSL's generators take. */
 unsigned long hc_paths_seed32(uint64_t seed, size_t k);
