@@ -10,7 +10,10 @@
  * matrix (a risk model's, or pairwise-complete covariances) it is the
  * quadratic form w'Aw itself, O(n^2), and the random portfolios come from
  * the sampler's matrix route, which draws the same portfolios for the same
- * seed.
+ * seed.  From a history with gaps read period by period it is w'Aw over
+ * the pairwise-complete covariances of the fund's own n holdings
+ * (O(n^2 T) per fund, never the universe's M x M matrix), and the random
+ * portfolios and the curve come from the per-period route (periodic.h).
  */
 #include "holdcount/audit.h"
 
@@ -23,6 +26,7 @@
 #include "holdcount/curve.h"
 #include "holdcount/datacheck.h"
 #include "holdcount/memory.h"
+#include "holdcount/periodic.h"
 
 /* What the funds' risk comes from: a return history or a covariance matrix. */
 struct source {
@@ -32,6 +36,29 @@ struct source {
 	const char *name;                /* the file, for messages */
 	double pp;                       /* variances are multiplied by this */
 	const struct hc_source *view;    /* the source it was made from (random portfolios) */
+	const struct hc_periodic *per;   /* a history with gaps read period by period (u has
+	                                  * gaps): funds' own covariances, the per-period route */
+};
+
+/* What a ragged audit says of its comparisons (field "comparison") and of
+ * its funds' own matrices (a note). */
+#define AUDIT_RAGGED_COMPARISON "period by period: a random portfolio of N holds, at each period, the first N " \
+	"securities alive then of a random order, equally weighted (the sd rank); the equal-weight random sd is " \
+	"the exact per-period curve at the fund's count; the floor, equivalent count and sqrt E[var] with the " \
+	"fund's weights use the per-period averages, which give that curve up to the fewest securities alive " \
+	"in a period (alive_min)"
+#define AUDIT_RAGGED_NOTE "on a history with gaps read period by period only the pairs among a fund's own " \
+	"holdings need 3 common periods: a fund two of whose holdings share fewer has no risk figures " \
+	"(risk_reason names them; its covered weight is 0, hence the verdict 'insufficient data'), the other " \
+	"funds go on; a fund's own covariance matrix that is not positive semi-definite is replaced by the " \
+	"nearest one (eigenvalue clipping, Higham 1988; risk_matrix_repaired)"
+
+/* Scratch for a fund's own securities on a ragged history, allocated once
+ * for the largest fund: their rows of returns and ids, and its weights. */
+struct ragged_ws {
+	double *x;        /* nmax x T */
+	char **ids;       /* nmax, borrowed from the universe */
+	double *w;        /* nmax */
 };
 
 /* The screens' limits, from memory of the published texts (audit.h). */
@@ -359,6 +386,112 @@ static void matrix_risk(const struct holdings_fund *fd, const struct covmatrix *
 	}
 }
 
+/* w'Aw and sum w_i sqrt(a_ii) over the k x k row-major a. */
+static void quadratic(const double *a, const double *w, size_t k, double *s2, double *wsd)
+{
+	size_t i, j;
+
+	*s2 = *wsd = 0;
+	for (i = 0; i < k; i++) {
+		double cross = 0;
+		for (j = 0; j < k; j++)
+			cross += a[i * k + j] * w[j];
+		*s2 += w[i] * cross;
+		*wsd += w[i] * sqrt(a[i * k + i]);
+	}
+}
+
+/* Record why a fund has no risk figures (owned copy). */
+static int no_risk(struct audit_fund *af, const char *why, struct hc_error *err)
+{
+	hc_free(af->risk_reason);
+	af->risk_reason = hc_strdup(why);
+	return af->risk_reason ? HC_OK : hc_error(err, HC_ENOMEM, "out of memory auditing fund '%s'", af->name);
+}
+
+/*
+ * A history with gaps read period by period: the fund's covariances are
+ * the pairwise-complete ones of its own k holdings, each pair over the
+ * periods both are observed with its own means (hc_covmatrix_from_universe
+ * on a universe of their rows: the masked products of covmatrix.c, the
+ * same numbers the universe's M x M matrix would hold for these pairs), so
+ * only pairs within the fund need COVMATRIX_MIN_COMMON_PERIODS periods in
+ * common.  A pairwise matrix need not be positive semi-definite; a k x k
+ * one that is not is replaced by the nearest (eigenvalue clipping, Higham,
+ * 1988), as the ragged policy always did for the funds' variances, and the
+ * fund says so.  *usable is 0 (and af->risk_reason set) when two holdings
+ * share too few periods.
+ */
+static int ragged_risk(struct audit_fund *af, const struct holdings_fund *fd, const struct source *src,
+		       const long *idx, double in, struct ragged_ws *ws, double *s2, double *wsd,
+		       int *usable, struct hc_error *err)
+{
+	const struct universe *u = src->u;
+	struct universe sub;
+	struct covmatrix *cm = NULL;
+	struct covmatrix_psd st;
+	struct hc_error own;
+	size_t k = 0, l, T = u->t, name = u->source ? strlen(u->source) : 0;
+	double *b = NULL;
+	const double *a;
+	int rc;
+
+	memset(&sub, 0, sizeof sub);
+	for (l = 0; l < fd->n; l++) {
+		const double *x;
+		if (idx[l] < 0)
+			continue;
+		x = &u->x[(size_t)idx[l] * T];
+		memcpy(ws->x + k * T, x, T * sizeof *x);
+		ws->ids[k] = u->ids[idx[l]];
+		ws->w[k] = fd->h[l].weight / in;
+		for (size_t t = 0; t < T && !sub.has_missing; t++)
+			sub.has_missing = isnan(x[t]);
+		k++;
+	}
+	sub.m = sub.m_read = k;
+	sub.t = T;
+	sub.x = ws->x;
+	sub.ids = ws->ids;
+	sub.source = u->source;
+	sub.periods_per_year = u->periods_per_year;
+	sub.max_bytes = u->max_bytes;
+	*usable = 0;
+	hc_error_clear(&own);
+	rc = hc_covmatrix_from_universe(&sub, &cm, &own);
+	if (rc == HC_EDATA) {
+		/* the only data error left with k >= 1 and T >= 2: a pair (or a
+		 * security alone) with too few periods; the reason without the
+		 * file's name, which the report gives once */
+		const char *why = own.message;
+		if (name && strncmp(why, u->source, name) == 0 && strncmp(why + name, ": ", 2) == 0)
+			why += name + 2;
+		return no_risk(af, why, err);
+	}
+	if (rc != HC_OK)
+		return hc_error(err, rc, "%s", own.message);
+	a = cm->a;
+	if (k > 1) {
+		if (!(b = hc_mallocarray(k * k, sizeof *b))) {
+			rc = hc_error(err, HC_ENOMEM, "out of memory auditing fund '%s'", fd->name);
+			goto cleanup;
+		}
+		if ((rc = hc_covmatrix_nearest_psd(cm->a, k, b, &st, err)) != HC_OK)
+			goto cleanup;
+		/* as source.c's policy: moves within the symmetry tolerance are rounding */
+		if (st.max_relative_move > COVMATRIX_DEFAULT_SYMMETRY_TOL) {
+			a = b;
+			af->risk_repaired = 1;
+		}
+	}
+	quadratic(a, ws->w, k, s2, wsd);
+	*usable = 1;
+cleanup:
+	hc_free(b);
+	hc_covmatrix_free(cm);
+	return rc;
+}
+
 /*
  * Coverage and risk.  The covered weight is the share of the gross invested
  * weight whose history is usable (found in the universe or matrix).  The
@@ -369,11 +502,11 @@ static void matrix_risk(const struct holdings_fund *fd, const struct covmatrix *
  */
 static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 		const struct source *src, const struct moments *mo, int cash_risk,
-		const long *idx, double *series, struct hc_error *err)
+		const long *idx, double *series, struct ragged_ws *ws, struct hc_error *err)
 {
 	double in = 0, hhi = 0, wsd = 0, s2 = 0, neq, pp = src->pp, found = 0, sum = 0;
 	size_t k;
-	int rc;
+	int rc, usable;
 
 	for (k = 0; k < fd->n; k++)
 		if (idx[k] >= 0) {
@@ -384,7 +517,24 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 	if (cash_risk == AUDIT_CASH_ZERO && found > 0)
 		in += af->cash_weight;
 	if (!(in > 0))
-		return HC_OK;
+		return no_risk(af, !af->holdings ? "it holds no security (cash only)"
+				   : found > 0 ? "its holdings in the universe have no positive net weight"
+				   : "none of its holdings is in the universe", err);
+	if (src->per) {
+		if ((rc = ragged_risk(af, fd, src, idx, in, ws, &s2, &wsd, &usable, err)) != HC_OK)
+			return rc;
+		if (!usable) {
+			/* its risk rests on none of its weight: the coverage verdict
+			 * ("insufficient data") follows */
+			af->covered_weight = 0;
+			af->risk_unpaired = 1;
+			return HC_OK;
+		}
+	} else if (src->u) {
+		if ((rc = series_risk(fd, src->u, idx, in, series, &s2, &wsd, err)) != HC_OK)
+			return rc;
+	} else
+		matrix_risk(fd, src->cm, idx, in, &s2, &wsd);
 	af->risk_known = 1;
 	af->risk_subset = af->nmissing > 0;
 	for (k = 0; k < fd->n; k++)
@@ -394,11 +544,6 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 			sum += w;
 			af->risk_holdings++;
 		}
-	if (src->u) {
-		if ((rc = series_risk(fd, src->u, idx, in, series, &s2, &wsd, err)) != HC_OK)
-			return rc;
-	} else
-		matrix_risk(fd, src->cm, idx, in, &s2, &wsd);
 	af->variance = s2 * pp;
 	af->sd = s2 >= 0 ? sqrt(af->variance) : NAN;
 	/* Choueifaty & Coignard (2008), J. Portfolio Management 35(1): the ratio
@@ -411,7 +556,9 @@ static int risk(struct audit_fund *af, const struct holdings_fund *fd,
 	 * cash held at zero variance. */
 	s2 = hhi * mo->average_variance + (sum * sum - hhi) * mo->average_covariance;
 	af->weighted_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
-	s2 = hc_curve_expected_variance(mo, (double)af->risk_holdings);
+	/* a ragged history: the exact per-period curve at the fund's count */
+	s2 = src->per ? hc_periodic_expected_variance(&src->per->curve, (double)af->risk_holdings)
+		      : hc_curve_expected_variance(mo, (double)af->risk_holdings);
 	af->equal_random_sd = s2 >= 0 ? sqrt(s2 * pp) : NAN;
 	return HC_OK;
 }
@@ -797,8 +944,10 @@ static int percentiles(struct audit_result *a, const struct source *src,
 	sizes = hc_calloc(a->nfunds ? a->nfunds : 1, sizeof *sizes);
 	if (!sizes)
 		return hc_error(err, HC_ENOMEM, "out of memory sampling portfolios");
+	/* (on a ragged history every holding with risk figures is observed at
+	 * least 3 times, so among the per-period route's securities) */
 	for (f = 0; f < a->nfunds; f++)
-		if (a->funds[f].risk_known)
+		if (a->funds[f].risk_known && (!src->per || a->funds[f].risk_holdings <= src->per->m))
 			sizes[nsizes++] = a->funds[f].risk_holdings;
 	if (!nsizes)
 		goto cleanup;
@@ -814,7 +963,10 @@ static int percentiles(struct audit_result *a, const struct source *src,
 	so.periods_per_year = pp;
 	so.progress = opt->progress;
 	so.progress_ctx = opt->progress_ctx;
-	rc = hc_sampler_run(&sr, src->view, sizes, nsizes, &so, err);
+	/* a ragged history: each path a random order, its portfolio of n at
+	 * each period the first n securities of that order alive then */
+	rc = src->per ? hc_periodic_sample(&sr, src->per, src->u, 0, sizes, nsizes, &so, err)
+		      : hc_sampler_run(&sr, src->view, sizes, nsizes, &so, err);
 	if (rc != HC_OK)
 		goto cleanup;
 	for (f = 0; f < a->nfunds; f++) {
@@ -823,6 +975,8 @@ static int percentiles(struct audit_result *a, const struct source *src,
 		if (!af->risk_known)
 			continue;
 		at = bsearch(&af->risk_holdings, sizes, nsizes, sizeof *sizes, cmp_size);
+		if (!at)
+			continue;
 		af->sd_percentile = mid_rank(sr->variance + (at - sizes), nsizes, sr->paths,
 					     af->variance / pp, opt->tie_rtol);
 	}
@@ -859,7 +1013,7 @@ static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
 		     const struct holdings *h, const struct source *src,
 		     const struct moments *mo, const struct audit_options *opt,
 		     long *idx, double *dwork, struct issuer_weight *iw,
-		     double *series, const struct bench_weight *bw, size_t nb,
+		     double *series, struct ragged_ws *ws, const struct bench_weight *bw, size_t nb,
 		     struct hc_error *err)
 {
 	int rc;
@@ -872,7 +1026,7 @@ static int audit_one(struct audit_fund *af, const struct holdings_fund *fd,
 	concentration(af, fd, dwork);
 	if ((rc = locate(af, fd, h, src, opt->strict, idx, err)) != HC_OK)
 		return rc;
-	if ((rc = risk(af, fd, src, mo, opt->cash_risk, idx, series, err)) != HC_OK)
+	if ((rc = risk(af, fd, src, mo, opt->cash_risk, idx, series, ws, err)) != HC_OK)
 		return rc;
 	if ((rc = sectors(af, fd, opt->sectors, err)) != HC_OK)
 		return rc;
@@ -889,6 +1043,7 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 	double *dwork = NULL, *series = NULL;
 	struct issuer_weight *iw = NULL;
 	struct bench_weight *bw = NULL;
+	struct ragged_ws ws = { NULL, NULL, NULL };
 	size_t nmax = 1, f, nb = 0;
 	int rc;
 
@@ -903,9 +1058,19 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 	idx = hc_calloc(nmax, sizeof *idx);
 	dwork = hc_calloc(nmax, sizeof *dwork);
 	iw = hc_calloc(nmax, sizeof *iw);
-	if (src->u)
+	if (src->per) {
+		/* the largest fund's rows of returns, within the universe's budget */
+		if ((rc = hc_memory_check(src->u->max_bytes, (double)src->u->m * (double)src->u->t * 8.0,
+					  (double)nmax * (double)src->u->t * 8.0, err,
+					  "%s: the returns of a fund of %zu holdings", h->source, nmax)) != HC_OK)
+			goto cleanup;
+		ws.x = hc_mallocarray(nmax * src->u->t, sizeof *ws.x);
+		ws.ids = hc_calloc(nmax, sizeof *ws.ids);
+		ws.w = hc_calloc(nmax, sizeof *ws.w);
+	} else if (src->u)
 		series = hc_calloc(src->u->t, sizeof *series);
-	if (!a || !idx || !dwork || !iw || (src->u && !series) ||
+	if (!a || !idx || !dwork || !iw || (src->u && !src->per && !series) ||
+	    (src->per && (!ws.x || !ws.ids || !ws.w)) ||
 	    !(a->funds = hc_calloc(h->nfunds ? h->nfunds : 1, sizeof *a->funds))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory auditing '%s'", h->source);
 		goto cleanup;
@@ -927,10 +1092,13 @@ static int run(struct audit_result **out, const struct holdings *h, const struct
 	for (f = 0; f < h->nfunds; f++) {
 		a->nfunds = f + 1;
 		rc = audit_one(&a->funds[f], &h->funds[f], h, src, mo, opt,
-				idx, dwork, iw, series, bw, nb, err);
+				idx, dwork, iw, series, &ws, bw, nb, err);
 		if (rc != HC_OK)
 			goto cleanup;
+		a->repaired_funds += a->funds[f].risk_repaired;
+		a->unpaired_funds += a->funds[f].risk_unpaired;
 	}
+	a->ragged = src->per != NULL;
 	if ((rc = percentiles(a, src, opt, err)) != HC_OK)
 		goto cleanup;
 	for (f = 0; f < a->nfunds; f++) {
@@ -947,6 +1115,9 @@ cleanup:
 	hc_free(dwork);
 	hc_free(iw);
 	hc_free(series);
+	hc_free(ws.x);
+	hc_free(ws.ids);
+	hc_free(ws.w);
 	hc_free(bw);
 	return rc;
 }
@@ -964,9 +1135,8 @@ static const char *input_text(const struct hc_source *s)
 					 "repaired to the nearest positive semi-definite matrix"
 				       : "return history with gaps; risk from its pairwise-complete covariances";
 	case HC_SOURCE_RAGGED:
-		return s->psd.repaired ? "return history with gaps; funds' risk from its pairwise-complete covariances, "
-					 "repaired to the nearest positive semi-definite matrix"
-				       : "return history with gaps; funds' risk from its pairwise-complete covariances";
+		return "return history with gaps, read period by period; each fund's risk from its own holdings' "
+		       "pairwise-complete covariances";
 	}
 	return "covariance matrix";
 }
@@ -975,7 +1145,7 @@ int hc_audit_run(struct audit_result **out, const struct holdings *h,
 		 const struct hc_source *s, const struct moments *mo,
 		 const struct audit_options *opt, struct hc_error *err)
 {
-	struct source src = { NULL, NULL, s->u, s->name, s->periods_per_year > 0 ? s->periods_per_year : 1, s };
+	struct source src = { NULL, NULL, s->u, s->name, s->periods_per_year > 0 ? s->periods_per_year : 1, s, NULL };
 	struct hc_source view;
 	struct moments own;
 	int rc;
@@ -994,6 +1164,12 @@ int hc_audit_run(struct audit_result **out, const struct holdings *h,
 		return rc;
 	if (hc_source_has_series(s)) {
 		src.u = s->u;
+		if (s->u->t < 2)
+			return hc_error(err, HC_EDATA, "the universe '%s' has %zu periods, expected at least 2",
+					s->name ? s->name : "", s->u->t);
+	} else if (s->kind == HC_SOURCE_RAGGED && s->per) {
+		src.u = s->u;
+		src.per = s->per;
 		if (s->u->t < 2)
 			return hc_error(err, HC_EDATA, "the universe '%s' has %zu periods, expected at least 2",
 					s->name ? s->name : "", s->u->t);
@@ -1023,6 +1199,7 @@ void hc_audit_result_free(struct audit_result *a)
 	for (f = 0; a->funds && f < a->nfunds; f++) {
 		hc_free(a->funds[f].missing);
 		hc_free(a->funds[f].sectors);
+		hc_free(a->funds[f].risk_reason);
 	}
 	hc_free(a->funds);
 	hc_free(a);
@@ -1040,7 +1217,8 @@ enum {
 	FC_CASH, FC_GOVERNMENT, FC_FUND_SHARES, FC_GROSS, FC_NET, FC_SHORT,
 	FC_ISSUERS, FC_ISSUER_HHI, FC_EFFECTIVE_ISSUERS, FC_MAX_GROUP,
 	FC_MAX_GROUP_WEIGHT, FC_BASKET_1940_EXCLUDED, FC_BASKET_1940_CAPPED,
-	FC_BASKET_RIC_EXCLUDED, FC_BASKET_RIC_CAPPED, FC_ACTIVE_SHARE, FC_N
+	FC_BASKET_RIC_EXCLUDED, FC_BASKET_RIC_CAPPED, FC_ACTIVE_SHARE, FC_RISK_REASON,
+	FC_RISK_REPAIRED, FC_N
 };
 
 static const struct {
@@ -1094,6 +1272,8 @@ static const struct {
 	{ "basket_ric_excluded", "ric basket, excluded", REPORT_STYLE_PERCENT },
 	{ "basket_ric_capped", "ric basket, capped", REPORT_STYLE_PERCENT },
 	{ "active_share", "active share", REPORT_STYLE_PERCENT },
+	{ "risk_reason", "why no risk figures", REPORT_STYLE_PLAIN },
+	{ "risk_matrix_repaired", "own covariances repaired", REPORT_STYLE_PLAIN },
 };
 
 static int failed_text(unsigned failed, char *buf, size_t size)
@@ -1188,6 +1368,10 @@ static int fund_row(struct report_table *t, const struct audit_result *a,
 	hc_report_table_set_real(t, r, FC_BASKET_RIC_CAPPED, af->basket_ric[AUDIT_READING_CAPPED]);
 	if (a->has_benchmark)
 		hc_report_table_set_real(t, r, FC_ACTIVE_SHARE, af->active_share);
+	if (af->risk_reason && hc_report_table_set_text(t, r, FC_RISK_REASON, af->risk_reason) != HC_OK)
+		return HC_ENOMEM;
+	if (a->ragged && af->risk_known)
+		hc_report_table_set_bool(t, r, FC_RISK_REPAIRED, af->risk_repaired);
 	return HC_OK;
 }
 
@@ -1437,6 +1621,13 @@ static int fields(struct report *rep, const struct audit_result *a)
 			       a->cash_risk == AUDIT_CASH_ZERO ? "zero (risk of net assets, cash at zero variance)"
 							       : "exclude (risk of the invested assets, renormalised)") != HC_OK)
 		return HC_ENOMEM;
+	if (a->ragged &&
+	    (hc_report_add_text(rep, "comparison", "random portfolios and curve", AUDIT_RAGGED_COMPARISON) != HC_OK ||
+	     hc_report_add_int(rep, "risk_matrix_repaired_funds", "funds whose own covariances were repaired",
+			       (long long)a->repaired_funds) != HC_OK ||
+	     hc_report_add_int(rep, "unpaired_funds", "funds without risk figures (holdings sharing too few periods)",
+			       (long long)a->unpaired_funds) != HC_OK))
+		return HC_ENOMEM;
 	return HC_OK;
 }
 
@@ -1449,8 +1640,10 @@ static int notes(struct report *rep, const struct audit_result *a, const struct 
 		if (hc_report_add_note(rep, h->warnings[k]) != HC_OK)
 			return HC_ENOMEM;
 	snprintf(buf, sizeof buf,
-		 "sd_percentile ranks the fund's sd among %zu random equal-weight portfolios of the same count (seed %llu); ties (relative difference within %g) count half: (below + equal/2)/paths",
-		 a->paths, (unsigned long long)a->seed, a->tie_rtol);
+		 "sd_percentile ranks the fund's sd among %zu random equal-weight portfolios of the same count (seed %llu%s); ties (relative difference within %g) count half: (below + equal/2)/paths",
+		 a->paths, (unsigned long long)a->seed,
+		 a->ragged ? "; each a random order of the securities, holding at every period the first N of them alive then" : "",
+		 a->tie_rtol);
 	if (hc_report_add_note(rep, buf) != HC_OK)
 		return HC_ENOMEM;
 	if (a->t == 0 && a->annualised)
@@ -1460,8 +1653,11 @@ static int notes(struct report *rep, const struct audit_result *a, const struct 
 		snprintf(buf, sizeof buf, "risk figures come from the covariance matrix, on its own scale (not annualised)");
 	else
 		snprintf(buf, sizeof buf, "risk figures are annualised sample estimates from the universe's history%s",
-			 a->input && strcmp(a->input, "return history") ? ", through its pairwise-complete covariances" : "");
+			 a->ragged ? ", each fund's through the pairwise-complete covariances of its own holdings (each "
+				     "pair over the periods both are observed, with its own means)"
+			 : a->input && strcmp(a->input, "return history") ? ", through its pairwise-complete covariances" : "");
 	if (hc_report_add_note(rep, buf) != HC_OK ||
+	    (a->ragged && hc_report_add_note(rep, AUDIT_RAGGED_NOTE) != HC_OK) ||
 	    hc_report_add_note(rep, "funds with ids missing from the universe have their risk figures computed on the remaining weights, renormalised (risk_on_subset)") != HC_OK ||
 	    hc_report_add_note(rep, "the UCITS (2009/65/EC Art. 52), Investment Company Act of 1940 s. 5(b)(1) and Internal Revenue Code s. 851(b)(3) screens are written from memory of the published texts and test weights only: verify against the current text and defer to compliance counsel") != HC_OK ||
 	    hc_report_add_note(rep, "statute figures are from memory of the text; verify with counsel. The 1940 Act s. 5(b)(1) and s. 851(b)(3) baskets have two readings: 'excluded' leaves an issuer above 5% out of the basket, 'capped' counts it up to 5%; the screens table shows both and says which decides") != HC_OK ||

@@ -125,13 +125,14 @@ static int compute_audit(struct hc_reportset *r, struct hc_error *err)
 	hc_progress_begin(&r->o.progress, NULL, "sampling the funds' counts", "paths");
 	ao.progress = r->o.progress.update;
 	ao.progress_ctx = r->o.progress.ctx;
-	/* a ragged history: funds' risk from the pairwise-complete matrix,
-	 * compared with that matrix's averages (hc_audit_run computes them) */
+	/* a ragged history: funds' risk from their own holdings' pairwise-complete
+	 * covariances, compared with the per-period averages (hc_audit_run
+	 * computes them) */
 	rc = hc_audit_run(&r->audit, r->o.holdings, r->src, r->src->kind == HC_SOURCE_RAGGED ? NULL : &r->mo, &ao, err);
 	hc_progress_end(&r->o.progress);
 	if (rc == HC_OK)
 		rc = hc_audit_report(&r->rep_audit, r->audit, r->o.holdings, err);
-	/* as `holdcount audit` says it: the pairwise matrix of a ragged history, repaired when needed */
+	/* as `holdcount audit` says it (nothing for a ragged history, which builds no matrix) */
 	if (rc == HC_OK && r->src->kind == HC_SOURCE_RAGGED && hc_source_report_psd(r->src, r->rep_audit))
 		rc = hc_error(err, HC_ENOMEM, "out of memory building the audit report");
 	return rc;

@@ -99,9 +99,9 @@ static struct hc_source *source_alloc(int kind, const struct hc_source_options *
 	if (!s)
 		return NULL;
 	s->kind = kind;
-	/* a ragged source's matrix serves only a fund's variance w'Aw: it is
-	 * repaired when needed (and said) rather than refusing the history */
-	s->psd.asked = opt->repair_psd || (kind == HC_SOURCE_RAGGED && opt->need_fund_matrix);
+	/* a ragged source builds no matrix to check or repair: each fund's own
+	 * small matrix is the audit's (audit.c) */
+	s->psd.asked = opt->repair_psd && kind != HC_SOURCE_RAGGED;
 	return s;
 }
 
@@ -140,7 +140,10 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 	 * portfolios and fund variances come from the pairwise-complete
 	 * covariances, when they form a valid matrix (or from its repair, which
 	 * the exact figures then use too).  A ragged source reads the series
-	 * period by period (periodic.h): its exact figures never use the matrix. */
+	 * period by period (periodic.h) and never builds the M x M matrix: its
+	 * figures use the per-period sums, and an audit takes each fund's risk
+	 * from its own holdings' pairwise-complete covariances (audit.c), so
+	 * only pairs within a fund need to overlap. */
 	if (s->kind == HC_SOURCE_RAGGED) {
 		rc = hc_periodic_alloc(&s->own_per, u, 0, u->t, err);
 		if (rc != HC_OK) {
@@ -148,22 +151,8 @@ int hc_source_from_universe(struct hc_source **out, struct universe *u,
 			return rc;
 		}
 		s->per = s->own_per;
-	}
-	if (s->kind == HC_SOURCE_RAGGED ? opt->need_fund_matrix || opt->repair_psd
-	    : s->kind == HC_SOURCE_PAIRWISE && (opt->need_matrix || opt->need_fund_matrix || opt->repair_psd)) {
+	} else if (s->kind == HC_SOURCE_PAIRWISE && (opt->need_matrix || opt->need_fund_matrix || opt->repair_psd)) {
 		rc = hc_covmatrix_from_universe(u, &cm, err);
-		if (rc == HC_EDATA && s->kind == HC_SOURCE_RAGGED && err &&
-		    strstr(err->message, "common period")) {
-			/* the pairwise matrix is asked of a ragged history only for
-			 * funds' variances (an audit): say why it needs the pair and
-			 * what the user can do */
-			size_t len = strlen(err->message);
-
-			snprintf(err->message + len, sizeof err->message - len,
-				 "; a fund's risk uses the pairwise-complete covariances of the whole universe, "
-				 "which need every pair of securities to share that many periods: narrow the "
-				 "sample with --from/--to, or leave one of the two out with --exclude");
-		}
 		if (rc == HC_OK) {
 			s->own_cm = cm;
 			s->cm = cm;
@@ -283,10 +272,7 @@ void hc_source_psd_text(const struct hc_source *s, char *buf, size_t size)
 		 "(Frobenius distance, %.3g%% of its Frobenius norm), and %s",
 		 s->kind == HC_SOURCE_MATRIX ? "the covariance matrix" : "the pairwise-complete covariance matrix",
 		 ps->negative, ps->negative == 1 ? "" : "s", ps->min_eigenvalue * scale, unit,
-		 ps->distance * scale, unit, 100 * ps->distance / ps->norm,
-		 /* a ragged history's own figures come from its per-period sums */
-		 s->kind == HC_SOURCE_RAGGED ? "the funds' variances use the repaired matrix"
-					     : "every figure uses the repaired matrix");
+		 ps->distance * scale, unit, 100 * ps->distance / ps->norm, "every figure uses the repaired matrix");
 }
 
 int hc_source_report_psd(const struct hc_source *s, struct report *r)

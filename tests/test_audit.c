@@ -33,7 +33,9 @@
 #include "holdcount/holdings.h"
 #include "holdcount/memory.h"
 #include "holdcount/moments.h"
+#include "holdcount/periodic.h"
 #include "holdcount/report.h"
+#include "holdcount/source.h"
 #include "holdcount/universe.h"
 
 /* cmocka 1.1 has no double assertion: |got - want| <= tol, values printed. */
@@ -1072,6 +1074,170 @@ static void test_audit_allocation_failures(void **state)
 	hc_universe_free(fx.u);
 }
 
+/* ---- a history with gaps read period by period ---- */
+
+/* The pairwise-complete covariance of securities i and j by its textbook
+ * definition: over the periods both are observed, each with its own mean
+ * over those periods, divisor n - 1. */
+static double cov_pairwise(const struct universe *u, size_t i, size_t j)
+{
+	const double *x = u->x + i * u->t, *y = u->x + j * u->t;
+	double mx = 0, my = 0, s = 0;
+	size_t k, n = 0;
+
+	for (k = 0; k < u->t; k++)
+		if (!isnan(x[k]) && !isnan(y[k])) {
+			mx += x[k];
+			my += y[k];
+			n++;
+		}
+	mx /= (double)n;
+	my /= (double)n;
+	for (k = 0; k < u->t; k++)
+		if (!isnan(x[k]) && !isnan(y[k]))
+			s += (x[k] - mx) * (y[k] - my);
+	return s / (double)(n - 1);
+}
+
+/* 8 securities over 40 months: QX01 delisted after month 15, QX08 listed
+ * at month 21 (the two share no period), QX03 and QX05 with gaps inside. */
+static struct hc_source *ragged_source(void)
+{
+	struct fixture fx;
+	struct hc_source_options so;
+	struct hc_source *s = NULL;
+	struct hc_error err;
+	size_t k;
+
+	fixture_load(&fx, 8, 40, 53, 0);
+	for (k = 15; k < 40; k++)
+		fx.u->x[0 * 40 + k] = NAN;
+	for (k = 0; k < 20; k++)
+		fx.u->x[7 * 40 + k] = NAN;
+	fx.u->x[2 * 40 + 4] = fx.u->x[2 * 40 + 17] = fx.u->x[2 * 40 + 31] = NAN;
+	fx.u->x[4 * 40 + 9] = fx.u->x[4 * 40 + 10] = NAN;
+	fx.u->has_missing = 1;
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	so.need_fund_matrix = 1;        /* as the audit command asks: no M x M matrix all the same */
+	assert_int_equal(hc_source_from_universe(&s, fx.u, &so, &err), HC_OK);
+	assert_int_equal(s->kind, HC_SOURCE_RAGGED);
+	assert_null(s->cm);
+	return s;
+}
+
+/* A fund's risk from its own holdings' pairwise-complete covariances: the
+ * universe holds a pair that never overlaps (the whole matrix could not be
+ * formed) and the audit goes on; a fund holding that pair has no risk
+ * figures and says why, naming both; the comparisons come from the
+ * per-period route. */
+static void test_audit_ragged_own_pairs(void **state)
+{
+	static const char *text =
+		"fund,id,weight\n"
+		"Oak,QX02,0.415\nOak,QX03,0.265\nOak,QX08,0.2\nOak,QX05,0.12\n"
+		"Elm,QX01,0.6\nElm,QX08,0.4\n"
+		"Yew,QX01,0.55\nYew,QX03,0.45\n";
+	static const size_t idx[] = { 1, 2, 7, 4 };
+	static const double w[] = { 0.415, 0.265, 0.2, 0.12 };
+	struct hc_source *s = ragged_source();
+	struct audit_options opt;
+	struct audit_result *a = NULL;
+	struct holdings *h = holdings_text(text);
+	struct moments mo;
+	struct hc_error err;
+	const struct audit_fund *oak, *elm;
+	double s2 = 0, wsd = 0, ev;
+	size_t i, j;
+	int rc;
+
+	(void)state;
+	options(&opt, 400);
+	rc = hc_audit_run(&a, h, s, NULL, &opt, &err);
+	if (rc != HC_OK)
+		print_error("%s\n", err.message);
+	assert_int_equal(rc, HC_OK);
+	assert_int_equal(a->ragged, 1);
+	oak = &a->funds[0];
+	elm = &a->funds[1];
+	/* w'Aw over the textbook pairwise-complete covariances of Oak's four */
+	for (i = 0; i < 4; i++) {
+		for (j = 0; j < 4; j++)
+			s2 += w[i] * w[j] * cov_pairwise(s->u, idx[i], idx[j]);
+		wsd += w[i] * sqrt(cov_pairwise(s->u, idx[i], idx[i]));
+	}
+	assert_true(oak->risk_known);
+	assert_false(oak->risk_repaired);
+	assert_null(oak->risk_reason);
+	assert_rel(oak->variance, 12 * s2, 1e-12);
+	assert_rel(oak->diversification_ratio, wsd / sqrt(s2), 1e-12);
+	/* the comparisons: the per-period averages and exact curve */
+	assert_int_equal(hc_periodic_moments(s->per, &mo, &err), HC_OK);
+	assert_rel(oak->equivalent_count, (mo.average_variance - mo.average_covariance) /
+		   (s2 - mo.average_covariance), 1e-10);
+	ev = hc_periodic_expected_variance(&s->per->curve, 4.0);
+	assert_rel(oak->equal_random_sd, sqrt(12 * ev), 1e-12);
+	assert_true(oak->sd_percentile >= 0 && oak->sd_percentile <= 1);
+	assert_int_equal(oak->verdict, AUDIT_VERDICT_PASSED);
+	/* Elm: QX01 and QX08 share no period */
+	assert_false(elm->risk_known);
+	assert_true(elm->risk_unpaired);
+	assert_non_null(elm->risk_reason);
+	assert_non_null(strstr(elm->risk_reason, "'QX01' and 'QX08' have only 0 common periods"));
+	assert_true(isnan(elm->sd) && isnan(elm->sd_percentile) && isnan(elm->equivalent_count));
+	assert_near(elm->covered_weight, 0, 0);
+	assert_int_equal(elm->risk_holdings, 0);
+	assert_int_equal(elm->verdict, AUDIT_VERDICT_INSUFFICIENT);
+	/* Yew: QX01 and QX03 share 14 of QX01's 15 periods */
+	assert_true(a->funds[2].risk_known);
+	assert_int_equal(a->unpaired_funds, 1);
+	assert_int_equal(a->insufficient_funds, 1);
+	assert_int_equal(a->failed_funds, 0);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_source_free(s);
+}
+
+/* The ragged route's allocations (its rows, each fund's matrix and repair
+ * scratch, the reason, the per-period sampler) fail cleanly. */
+static void test_audit_ragged_allocation_failures(void **state)
+{
+	struct hc_source *s = ragged_source();
+	struct holdings *h = holdings_text("fund,id,weight\nOak,QX02,0.5\nOak,QX03,0.3\nOak,QX08,0.2\n"
+					   "Elm,QX01,0.6\nElm,QX08,0.4\n");
+	struct audit_options opt;
+	struct audit_result *a = NULL;
+	struct report *r = NULL;
+	struct hc_error err;
+	long k;
+	int rc = HC_ENOMEM;
+
+	(void)state;
+	options(&opt, 30);
+	for (k = 0; rc == HC_ENOMEM; k++) {
+		hc_alloc_fail_after(k);
+		rc = hc_audit_run(&a, h, s, NULL, &opt, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_ENOMEM)
+			assert_null(a);
+		assert_true(k < 1000);
+	}
+	assert_int_equal(rc, HC_OK);
+	for (k = 0, rc = HC_ENOMEM; rc == HC_ENOMEM; k++) {
+		hc_alloc_fail_after(k);
+		rc = hc_audit_report(&r, a, h, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_ENOMEM)
+			assert_null(r);
+		assert_true(k < 5000);
+	}
+	assert_int_equal(rc, HC_OK);
+	hc_report_free(r);
+	hc_audit_result_free(a);
+	hc_holdings_free(h);
+	hc_source_free(s);
+}
+
 /* ---- holdings as administrators send them (issue 16) ---- */
 
 static void test_audit_statute_readings_sixteen_issuers(void **state)
@@ -1379,6 +1545,8 @@ int main(void)
 		cmocka_unit_test(test_audit_ucits_group_limit),
 		cmocka_unit_test(test_audit_coverage_verdict),
 		cmocka_unit_test(test_audit_active_share),
+		cmocka_unit_test(test_audit_ragged_own_pairs),
+		cmocka_unit_test(test_audit_ragged_allocation_failures),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

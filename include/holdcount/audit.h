@@ -218,6 +218,11 @@ struct audit_fund {
 	double sd_percentile;       /* mid-rank, 0..1; NaN when not sampled */
 	double weighted_random_sd;  /* sqrt(P (hhi' vbar + (1 - hhi') cbar)) */
 	double equal_random_sd;     /* sqrt(P E[sigma^2(n)]) at n = risk_holdings, equal weights */
+	char *risk_reason;          /* owned; why there are no risk figures (risk_known 0), else NULL */
+	int risk_repaired;          /* ragged history: the fund's own covariance matrix was not
+	                             * positive semi-definite and its nearest one was used */
+	int risk_unpaired;          /* ragged history: no risk figures, two of its holdings share
+	                             * too few periods (risk_reason names them; covered_weight 0) */
 	size_t nsectors;
 	struct audit_sector *sectors;   /* by descending weight; unmapped last */
 	double sector_hhi;          /* over sectors, the unmapped bucket counted as one */
@@ -249,6 +254,10 @@ struct audit_result {
 	int annualised;             /* 0: figures on a covariance matrix's own scale */
 	size_t m, t;                /* t: periods behind the risk figures, 0 = unknown (a matrix) */
 	const char *input;          /* static: "return history", "covariance matrix", ... */
+	int ragged;                 /* a history read period by period (HC_SOURCE_RAGGED) */
+	size_t repaired_funds;      /* ragged: funds whose own matrix was repaired */
+	size_t unpaired_funds;      /* ragged: funds without risk figures for a pair of holdings
+	                             * sharing too few periods */
 	const char *universe_source;
 	const char *holdings_source;
 	const struct hc_source *source; /* borrowed, as universe_source: the report states how it
@@ -267,7 +276,19 @@ struct audit_result {
  * the matrix must be positive semi-definite (source.h applies that policy);
  * a fund whose w'Aw is negative gets no sd.  The percentile's random
  * portfolios come from hc_sampler_run (same seed, same portfolios for either
- * kind).  Variances are multiplied by s->periods_per_year.  *out points
+ * kind).  A history with gaps read period by period (HC_SOURCE_RAGGED):
+ * a fund's variance is w'Aw over the pairwise-complete covariances of its
+ * own holdings only (each pair over the periods both are observed,
+ * hc_covmatrix_from_universe on those securities' rows), repaired to the
+ * nearest positive semi-definite matrix when it is not one (risk_repaired);
+ * two holdings sharing fewer than COVMATRIX_MIN_COMMON_PERIODS periods
+ * leave that fund without risk figures (risk_reason names them, its
+ * covered_weight is 0) and the others go on; no M x M matrix is formed.
+ * Its comparisons come from the per-period route (periodic.h): the
+ * percentile from hc_periodic_sample, the equal-weight random sd from the
+ * exact ragged curve, the floor, equivalent count and weighted random sd
+ * from hc_periodic_moments (mo NULL computes them).
+ * Variances are multiplied by s->periods_per_year.  *out points
  * into h, s and the sector map, which must outlive it.
  * Errors: HC_EDATA for an id missing from the universe under strict
  * ("HOLDINGS:LINE:COLUMN: ..."), fewer than 2 periods or securities;

@@ -11,8 +11,9 @@
  *   HC_SOURCE_RAGGED    return series with gaps read period by period
  *                       (periodic.h): each period uses the securities alive
  *                       then, so listings and delistings stay in (the
- *                       survivorship-free treatment); no M x M matrix unless
- *                       a fund's variance needs it.
+ *                       survivorship-free treatment); never an M x M matrix
+ *                       (an audit takes each fund's covariances from its own
+ *                       holdings, audit.h).
  * The missing-data policy (universe.h) and the positive semi-definite
  * policy (refuse, or repair by eigenvalue clipping, Higham 1988) are
  * applied when the source is built, so no caller repeats them.
@@ -60,19 +61,22 @@ struct hc_source_psd {
 
 struct hc_source_options {
 	int repair_psd;          /* replace a matrix that is not positive semi-definite by the
-	                          * nearest one; 0: refuse it (HC_EDATA) */
-	int need_matrix;         /* series with gaps: build the pairwise-complete matrix (random
-	                          * portfolios and fund variances need it); repair_psd implies it */
+	                          * nearest one; 0: refuse it (HC_EDATA); no effect on a ragged
+	                          * source, which builds no matrix */
+	int need_matrix;         /* series with gaps read pairwise: build the pairwise-complete
+	                          * matrix (random portfolios and fund variances need it);
+	                          * repair_psd implies it; ignored for a ragged source */
 	double periods_per_year; /* a matrix: > 0 annualises by it, 0 keeps its own scale;
 	                          * ignored for series (the universe's own) */
 	const char *psd_refusal; /* the message after "PATH: " when a matrix is refused;
 	                          * NULL: HC_SOURCE_DEFAULT_REFUSAL */
 	int need_fund_matrix;    /* funds' variances w'Aw will be asked (an audit): series with
-	                          * gaps build the pairwise-complete matrix, ragged ones too */
-	int ragged;              /* series with gaps: HC_SOURCE_RAGGED (per-period sums; the
-	                          * pairwise matrix only with need_fund_matrix, and then repaired
-	                          * when not positive semi-definite, said in the output) instead
-	                          * of HC_SOURCE_PAIRWISE */
+	                          * gaps read pairwise build the pairwise-complete matrix; a
+	                          * ragged source builds none (the audit takes each fund's own
+	                          * holdings' covariances) */
+	int ragged;              /* series with gaps: HC_SOURCE_RAGGED (per-period sums, no
+	                          * M x M matrix, need_matrix, need_fund_matrix and repair_psd
+	                          * ignored) instead of HC_SOURCE_PAIRWISE */
 };
 
 #define HC_SOURCE_PSD_HINT "--repair-psd uses the nearest positive semi-definite matrix instead"
@@ -83,7 +87,7 @@ struct hc_source {
 	int kind;                   /* enum hc_source_kind */
 	const char *name;           /* the file, for messages (u->source or the matrix's path) */
 	const struct universe *u;   /* SERIES, PAIRWISE: the returns; NULL for MATRIX */
-	const struct covmatrix *cm; /* MATRIX; PAIRWISE or RAGGED when built (need_matrix, repair_psd); else NULL */
+	const struct covmatrix *cm; /* MATRIX; PAIRWISE when built (need_matrix, repair_psd); else NULL */
 	const struct hc_periodic *per; /* RAGGED: the per-period sums of every period; else NULL */
 	double periods_per_year;    /* per-period variances are multiplied by it (1: not annualised) */
 	int annualised;             /* 0: a matrix on its own scale */
@@ -103,7 +107,7 @@ void hc_source_options_init(struct hc_source_options *opt);
  * A source from a loaded universe; takes ownership of u (freed by
  * hc_source_free, and on failure).  Complete data gives HC_SOURCE_SERIES;
  * gaps left by the missing-data policy give HC_SOURCE_RAGGED when
- * opt->ragged (its per-period sums, hc_periodic_alloc), else
+ * opt->ragged (its per-period sums, hc_periodic_alloc; no matrix), else
  * HC_SOURCE_PAIRWISE, with its
  * pairwise-complete matrix built and checked when opt asks for it.
  * The data checks (datacheck.h) run on u unless they ran already

@@ -412,8 +412,9 @@ int cli_psd_usage(const char *cmd, const struct cli_universe *cu);
  * cu's options (--missing alive: a history with gaps is read period by
  * period, HC_SOURCE_RAGGED).  need_matrix and refusal: series with gaps
  * get their pairwise-complete matrix (hc_source_options): CLI_NEED_SAMPLING
- * for random portfolios (pairwise sources only), CLI_NEED_FUNDS for funds'
- * variances (ragged ones too).  A repair is announced on stderr.  Prints
+ * for random portfolios, CLI_NEED_FUNDS for funds' variances (pairwise
+ * sources only: a ragged one builds no matrix, its audit takes each fund's
+ * own holdings' covariances).  A repair is announced on stderr.  Prints
  * its error; returns the exit status.  cli_source_from_universe does the
  * same for a universe already loaded (taking ownership of u).
  */
@@ -530,7 +531,9 @@ struct audit_options;
 int cli_audit_load(const char *cmd, const struct cli_holdings *ho, const struct cli_policy *po,
 		   const struct cli_sampling *sam, struct audit_options *ao, struct holdings **h,
 		   struct holdings_labels **labels, struct holdings **bench);
-/* One warning line per fund holding ids the universe lacks, on stderr. */
+/* One warning line per fund holding ids the universe lacks, and one per
+ * fund without risk figures for two holdings sharing too few periods (a
+ * history read period by period), on stderr. */
 void cli_audit_say_missing(const char *cmd, const struct audit_result *res);
 /* "holdcount CMD: 2 of 3 funds fail the policy: 'A' (max-weight), ..." on stderr. */
 void cli_audit_say_failures(const char *cmd, const struct audit_result *res);

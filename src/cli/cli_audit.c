@@ -226,6 +226,24 @@ void cli_audit_say_missing(const char *cmd, const struct audit_result *res)
 	if (more)
 		fprintf(stderr, "holdcount %s: warning: %zu more fund%s hold%s ids not in the universe (the missing "
 			"table lists every such id)\n", cmd, more, more == 1 ? "" : "s", more == 1 ? "s" : "");
+	/* a history read period by period: a fund two of whose holdings never
+	 * overlap enough has no risk figures, the others go on */
+	for (f = said = more = 0; f < res->nfunds; f++) {
+		const struct audit_fund *af = &res->funds[f];
+		if (!af->risk_unpaired)
+			continue;
+		if (said == CLI_AUDIT_NAMES_MAX) {
+			more++;
+			continue;
+		}
+		said++;
+		fprintf(stderr, "holdcount %s: warning: '%s' has no risk figures: %s\n", cmd, af->name,
+			af->risk_reason ? af->risk_reason : "two of its holdings share too few periods");
+	}
+	if (more)
+		fprintf(stderr, "holdcount %s: warning: %zu more fund%s ha%s no risk figures for holdings sharing too "
+			"few periods (the funds table's risk_reason says which)\n", cmd, more, more == 1 ? "" : "s",
+			more == 1 ? "s" : "ve");
 }
 
 /* Name the failing funds and rules on stderr, so a log shows why the

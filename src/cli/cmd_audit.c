@@ -118,8 +118,9 @@ int cmd_audit(int argc, char **argv)
 	/* With gaps left (--missing pairwise) no fund has a complete return
 	 * series, so its risk comes from the pairwise-complete covariances,
 	 * which must form a positive semi-definite matrix (or be repaired with
-	 * --repair-psd); under --missing alive (the default) they are repaired
-	 * when needed, and the output says so. */
+	 * --repair-psd); under --missing alive (the default) each fund's own
+	 * holdings' covariances are used (no universe matrix), repaired when
+	 * needed, and the output says so. */
 	rc = cli_load_source("audit", &o.uni, &a, a.positional[0], CLI_NEED_FUNDS,
 			     "the pairwise-complete covariances are not positive semi-definite, so some fund's "
 			     "variance w'Aw could come out negative; " HC_SOURCE_PSD_HINT, &src);
