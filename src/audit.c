@@ -422,6 +422,35 @@ static int no_risk(struct audit_fund *af, const char *why, struct hc_error *err)
  * fund says so.  *usable is 0 (and af->risk_reason set) when two holdings
  * share too few periods.
  */
+/* The fund's found holdings as a universe of their own rows (copied into
+ * ws) and their risk weights w_i / in; sub borrows ws and u's ids. */
+static void own_rows(struct universe *sub, struct ragged_ws *ws, const struct holdings_fund *fd,
+		     const struct universe *u, const long *idx, double in)
+{
+	size_t k = 0, l, t, T = u->t;
+
+	memset(sub, 0, sizeof *sub);
+	for (l = 0; l < fd->n; l++) {
+		const double *x;
+		if (idx[l] < 0)
+			continue;
+		x = &u->x[(size_t)idx[l] * T];
+		memcpy(ws->x + k * T, x, T * sizeof *x);
+		ws->ids[k] = u->ids[idx[l]];
+		ws->w[k] = fd->h[l].weight / in;
+		for (t = 0; t < T && !sub->has_missing; t++)
+			sub->has_missing = isnan(x[t]);
+		k++;
+	}
+	sub->m = sub->m_read = k;
+	sub->t = T;
+	sub->x = ws->x;
+	sub->ids = ws->ids;
+	sub->source = u->source;
+	sub->periods_per_year = u->periods_per_year;
+	sub->max_bytes = u->max_bytes;
+}
+
 static int ragged_risk(struct audit_fund *af, const struct holdings_fund *fd, const struct source *src,
 		       const long *idx, double in, struct ragged_ws *ws, double *s2, double *wsd,
 		       int *usable, struct hc_error *err)
@@ -431,31 +460,13 @@ static int ragged_risk(struct audit_fund *af, const struct holdings_fund *fd, co
 	struct covmatrix *cm = NULL;
 	struct covmatrix_psd st;
 	struct hc_error own;
-	size_t k = 0, l, T = u->t, name = u->source ? strlen(u->source) : 0;
+	size_t k, name = u->source ? strlen(u->source) : 0;
 	double *b = NULL;
 	const double *a;
 	int rc;
 
-	memset(&sub, 0, sizeof sub);
-	for (l = 0; l < fd->n; l++) {
-		const double *x;
-		if (idx[l] < 0)
-			continue;
-		x = &u->x[(size_t)idx[l] * T];
-		memcpy(ws->x + k * T, x, T * sizeof *x);
-		ws->ids[k] = u->ids[idx[l]];
-		ws->w[k] = fd->h[l].weight / in;
-		for (size_t t = 0; t < T && !sub.has_missing; t++)
-			sub.has_missing = isnan(x[t]);
-		k++;
-	}
-	sub.m = sub.m_read = k;
-	sub.t = T;
-	sub.x = ws->x;
-	sub.ids = ws->ids;
-	sub.source = u->source;
-	sub.periods_per_year = u->periods_per_year;
-	sub.max_bytes = u->max_bytes;
+	own_rows(&sub, ws, fd, u, idx, in);
+	k = sub.m;
 	*usable = 0;
 	hc_error_clear(&own);
 	rc = hc_covmatrix_from_universe(&sub, &cm, &own);
