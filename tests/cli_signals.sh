@@ -23,13 +23,22 @@ with open(sys.argv[1], "w") as f:
 PY
 
 for sig in TERM INT; do
-	# Enough paths to run for many seconds on two cores; stopped after 0.5 s.
+	# Enough paths to run for many seconds on two cores; stopped once running.
 	# A shell starts background jobs with SIGINT ignored (and holdcount keeps
 	# an ignored signal ignored), so the job is started with it restored.
 	"$PY" -c 'import os, signal, sys; signal.signal(signal.SIGINT, signal.SIG_DFL); os.execv(sys.argv[1], sys.argv[1:])' \
 		"$HC" curve "$T/big.csv" --paths 5000000 --threads 1 -q --format csv -o "$T/out.csv" 2>"$T/err" &
 	pid=$!
-	sleep 0.5
+	# Signal it once its handler is installed (the SigCgt mask of
+	# /proc/PID/status has bit N-1 for signal N): a fixed sleep raced with a
+	# slow start on a loaded machine.  Then let it run into the paths.
+	case $sig in TERM) num=15 ;; INT) num=2 ;; esac
+	for _ in $(seq 200); do
+		cgt=$(awk '/^SigCgt:/ {print $2}' "/proc/$pid/status" 2>/dev/null)
+		[ -n "$cgt" ] && [ $(( (0x$cgt >> (num - 1)) & 1 )) = 1 ] && break
+		sleep 0.05
+	done
+	sleep 0.3
 	kill -s "$sig" "$pid"
 	wait "$pid"; rc=$?
 	[ "$rc" = 7 ] || fail "SIG$sig: exit $rc, expected 7"
