@@ -37,6 +37,8 @@ void hc_horizon_options_init(struct hc_horizon_options *opt)
 	opt->seed = 1;
 	opt->route = HC_HORIZON_AUTO;
 	opt->rate = NAN;
+	opt->benchmark = NULL;
+	opt->lag_limit = HC_HORIZON_DEFAULT_LAG_LIMIT;
 }
 
 static int draw_periods(uint64_t seed, size_t k, size_t t, size_t h, int route, size_t l, size_t *periods,
@@ -83,6 +85,8 @@ struct hjob {
 	uint64_t seed;
 	const double *xt;          /* t*m period-major */
 	const double *ubar;        /* t equal-weight universe returns (index order) */
+	const double *bench;       /* t benchmark returns, or NULL */
+	double *bwealth;           /* paths: the benchmark's wealth on each path (bench given) */
 	const size_t *sizes;       /* nsizes as asked */
 	const size_t *uniq;        /* nuniq ascending distinct sizes */
 	const size_t *slot;        /* nsizes: index into uniq */
@@ -215,6 +219,15 @@ static void horizon_path(void *job, void *wsv, size_t k)
 	} else {
 		ureb = NAN;
 	}
+	if (J->bench) {
+		/* The benchmark over the path's own periods: the same periods as
+		 * the portfolios', so their correlation is kept. */
+		double bw = 1.0;
+
+		for (s = 0; s < J->h; s++)
+			bw *= grow(J->bench[w->per[s]]);
+		J->bwealth[k] = bw;
+	}
 	J->uwealth[k * 2 + HC_HORIZON_REBALANCED] = ureb;
 	J->uwealth[k * 2 + HC_HORIZON_BUY_HOLD] = ubh;
 	out = J->wealth + k * J->nsizes * 2;
@@ -270,8 +283,109 @@ static void summarise(struct hc_horizon_point *p, double *v, size_t K, const dou
 	p->p95 = hc_measures_quantile(v, K, 0.95);
 }
 
+/* The benchmark's own ending wealth across the paths: a series' varies
+ * with the path, a rate's does not; the universe's is in r->universe. */
+static void summarise_benchmark(struct hc_horizon_result *r, const struct hjob *J, double *col, size_t K,
+				const struct hc_horizon_options *opt)
+{
+	size_t k;
+
+	if (!J->bwealth && !opt->rate_given) {
+		struct hc_horizon_point *b = &r->bench;
+
+		b->mean = b->se = b->p05 = b->p50 = b->p95 = b->lag = b->lag_se = NAN;
+		return;
+	}
+	for (k = 0; k < K; k++)
+		col[k] = J->bwealth ? J->bwealth[k] : J->rate_wealth;
+	summarise(&r->bench, col, K, NULL, 0, NULL, 0);
+}
+
+/* Domian, Louton & Racine (2007, The Financial Review 42(4), 557-570):
+ * the smallest holding count whose buy-and-hold portfolios end behind the
+ * benchmark with probability at most p.  Here: the smallest count asked
+ * (uniq ascending) whose sampled lag share is at most p; no monotony is
+ * assumed, the grid is read from the smallest count up. */
+static void lag_rule(struct hc_horizon_result *r, const size_t *uniq, size_t nuniq, double p)
+{
+	size_t q, j;
+
+	r->lag_limit = p;
+	r->rule_count = 0;
+	r->rule_lag = r->rule_lag_se = NAN;
+	for (q = 0; q < nuniq; q++)
+		for (j = 0; j < r->nsizes; j++)
+			if (r->sizes[j] == uniq[q]) {
+				const struct hc_horizon_point *pt = &r->pts[j * HC_HORIZON_WEIGHTINGS + HC_HORIZON_BUY_HOLD];
+
+				if (pt->lag <= p) {
+					r->rule_count = uniq[q];
+					r->rule_lag = pt->lag;
+					r->rule_lag_se = pt->lag_se;
+					return;
+				}
+				break;
+			}
+}
+
 static const char *const wkey[HC_HORIZON_WEIGHTINGS] = { "rebal", "hold" };
 static const char *const wtitle[HC_HORIZON_WEIGHTINGS] = { "rebal.", "hold" };
+
+/* The benchmark's name and its ending wealth across the paths (a series
+ * or a rate; none for the universe, whose figures are the universe_ ones). */
+static int add_benchmark_fields(struct report *rep, const struct hc_horizon_result *r,
+				const struct hc_horizon_options *opt)
+{
+	const char *name = opt->benchmark ? opt->benchmark->name : NULL;
+	int none = !opt->benchmark && !opt->rate_given;
+	char text[160];
+
+	if (opt->benchmark)
+		snprintf(text, sizeof text, "%s", name ? name : "-");
+	else if (opt->rate_given)
+		snprintf(text, sizeof text, "a fixed rate of %g%% a year", opt->rate * 100);
+	else
+		snprintf(text, sizeof text, "the equal-weight universe");
+	if (hc_report_add_text(rep, "benchmark_name", "benchmark name", text))
+		return -1;
+	if (none)
+		return hc_report_add_none(rep, "benchmark_p05", "benchmark ending wealth: 5%") ||
+		       hc_report_add_none(rep, "benchmark_p50", "benchmark ending wealth: median") ||
+		       hc_report_add_none(rep, "benchmark_p95", "benchmark ending wealth: 95%");
+	return hc_report_add_real(rep, "benchmark_p05", "benchmark ending wealth: 5%", r->bench.p05, REPORT_STYLE_FIXED4) ||
+	       hc_report_add_real(rep, "benchmark_p50", "benchmark ending wealth: median", r->bench.p50,
+				  REPORT_STYLE_FIXED4) ||
+	       hc_report_add_real(rep, "benchmark_p95", "benchmark ending wealth: 95%", r->bench.p95, REPORT_STYLE_FIXED4);
+}
+
+/* The Domian, Louton & Racine rule's count, its lag and s.e., in words. */
+static int add_rule_fields(struct report *rep, const struct hc_horizon_result *r, const struct hc_horizon_options *opt)
+{
+	const char *bname = opt->benchmark ? (opt->benchmark->name ? opt->benchmark->name : "the series")
+		: opt->rate_given ? "the fixed rate" : "the equal-weight universe";
+	char text[400];
+
+	if (r->rule_count)
+		snprintf(text, sizeof text, "%zu holdings: the fewest of the counts asked whose buy-and-hold portfolios end "
+			 "behind %s over %g years on at most %g%% of the paths (%.2f%%, s.e. %.2f%%; Domian, Louton & "
+			 "Racine, 2007)", r->rule_count, bname, opt->years, r->lag_limit * 100, r->rule_lag * 100,
+			 r->rule_lag_se * 100);
+	else
+		snprintf(text, sizeof text, "none of the counts asked: every one's buy-and-hold portfolios end behind %s "
+			 "over %g years on more than %g%% of the paths (Domian, Louton & Racine, 2007); ask larger counts "
+			 "(--sizes)", bname, opt->years, r->lag_limit * 100);
+	if (hc_report_add_real(rep, "lag_limit", "lag limit (buy-and-hold)", r->lag_limit, REPORT_STYLE_PERCENT) ||
+	    hc_report_add_text(rep, "lag_rule", "fewest holdings within the lag limit", text))
+		return -1;
+	if (!r->rule_count)
+		return hc_report_add_none(rep, "lag_rule_count", "lag rule: holdings") ||
+		       hc_report_add_none(rep, "lag_rule_lag", "lag rule: lag at that count") ||
+		       hc_report_add_none(rep, "lag_rule_lag_se", "lag rule: its Monte Carlo s.e.");
+	return hc_report_add_int(rep, "lag_rule_count", "lag rule: holdings", (long long)r->rule_count) ||
+	       hc_report_add_real(rep, "lag_rule_lag", "lag rule: lag at that count", r->rule_lag, REPORT_STYLE_PERCENT) ||
+	       hc_report_add_real(rep, "lag_rule_lag_se", "lag rule: its Monte Carlo s.e.", r->rule_lag_se,
+				  REPORT_STYLE_PERCENT);
+}
 
 static int build_report(struct hc_horizon_result *r, const struct hc_source *src, const struct hc_horizon_options *opt,
 			double ppy, size_t t)
@@ -312,7 +426,15 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 	} else if (hc_report_add_none(rep, "block_length", "mean block length (periods)")) {
 		goto done;
 	}
-	if (opt->rate_given) {
+	if (opt->benchmark) {
+		snprintf(text, sizeof text, "%s (%s): its returns on the same periods as the portfolios', path by path",
+			 opt->benchmark->name ? opt->benchmark->name : "-",
+			 opt->benchmark->source ? opt->benchmark->source : "-");
+		if (hc_report_add_text(rep, "benchmark", "benchmark", text) ||
+		    hc_report_add_none(rep, "benchmark_rate", "benchmark rate (a year)") ||
+		    hc_report_add_none(rep, "benchmark_wealth", "benchmark ending wealth"))
+			goto done;
+	} else if (opt->rate_given) {
 		snprintf(text, sizeof text, "a fixed rate of %g%% a year: ending wealth %.6g", opt->rate * 100,
 			 r->rate_wealth);
 		if (hc_report_add_text(rep, "benchmark", "benchmark", text) ||
@@ -344,6 +466,8 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 		if (hc_report_add_real(rep, key, title, u->p95, REPORT_STYLE_FIXED4))
 			goto done;
 	}
+	if (add_benchmark_fields(rep, r, opt) || add_rule_fields(rep, r, opt))
+		goto done;
 	tab = hc_report_add_table(rep, "horizon", "ending wealth of 1 invested, by holding count");
 	if (!tab || hc_report_table_add_column(tab, "holdings", "holdings", REPORT_STYLE_PLAIN))
 		goto done;
@@ -423,6 +547,15 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 		return hc_error(err, HC_EUSAGE, "bad number of paths %zu: expected 1 to 100000000", opt->paths);
 	if (opt->rate_given && (!(opt->rate > -1) || !isfinite(opt->rate)))
 		return hc_error(err, HC_EUSAGE, "the benchmark rate must be above -100%% a year, not %g", opt->rate);
+	if (opt->benchmark && opt->rate_given)
+		return hc_error(err, HC_EUSAGE, "one benchmark at a time: a return series or a fixed rate, not both");
+	if (opt->benchmark && (opt->benchmark->t != t || !opt->benchmark->r))
+		return hc_error(err, HC_EUSAGE, "the benchmark series '%s' has %zu periods, the universe %zu: expected "
+				"it aligned on the universe's periods", opt->benchmark->name ? opt->benchmark->name : "-",
+				opt->benchmark->t, t);
+	if (!(opt->lag_limit > 0 && opt->lag_limit < 1))
+		return hc_error(err, HC_EUSAGE, "the lag limit must be a share between 0 and 1 (as 1%% or 0.01), not %g",
+				opt->lag_limit);
 	if (nsizes < 1)
 		return hc_error(err, HC_EUSAGE, "no holding counts asked for");
 	for (j = 0; j < nsizes; j++)
@@ -460,7 +593,10 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 	}
 	J.wealth = hc_mallocarray(kw, sizeof *J.wealth);
 	J.uwealth = hc_mallocarray(k2, sizeof *J.uwealth);
-	if (!r || !uniq || !slot || !xt || !ubar || !col || !r->sizes || !r->pts || !J.wealth || !J.uwealth) {
+	if (opt->benchmark)
+		J.bwealth = hc_mallocarray(K, sizeof *J.bwealth);
+	if (!r || !uniq || !slot || !xt || !ubar || !col || !r->sizes || !r->pts || !J.wealth || !J.uwealth ||
+	    (opt->benchmark && !J.bwealth)) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for ending wealth over %zu paths", K);
 		goto fail;
 	}
@@ -510,6 +646,7 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 	J.uniq = uniq;
 	J.slot = slot;
 	J.universe_bench = 1;
+	J.bench = opt->benchmark ? opt->benchmark->r : NULL;
 	J.rate_wealth = opt->rate_given ? pow(1.0 + opt->rate, (double)h / ppy) : NAN;
 
 	memset(&P, 0, sizeof P);
@@ -545,17 +682,21 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 	for (j = 0; j < nsizes; j++)
 		for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++) {
 			const double *wv = J.wealth + j * 2 + w;
-			const double *bench = opt->rate_given ? &J.rate_wealth : J.uwealth + w;
+			const double *bench = J.bwealth ? J.bwealth : opt->rate_given ? &J.rate_wealth : J.uwealth + w;
 
 			for (i = 0; i < K; i++)
 				col[i] = wv[i * nsizes * 2];
-			summarise(&r->pts[j * 2 + w], col, K, bench, opt->rate_given ? 0 : 2, wv, nsizes * 2);
+			summarise(&r->pts[j * 2 + w], col, K, bench, J.bwealth ? 1 : opt->rate_given ? 0 : 2, wv,
+				  nsizes * 2);
 		}
 	for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++) {
 		for (i = 0; i < K; i++)
 			col[i] = J.uwealth[i * 2 + w];
-		summarise(&r->universe[w], col, K, opt->rate_given ? &J.rate_wealth : NULL, 0, J.uwealth + w, 2);
+		summarise(&r->universe[w], col, K, J.bwealth ? J.bwealth : opt->rate_given ? &J.rate_wealth : NULL,
+			  J.bwealth ? 1 : 0, J.uwealth + w, 2);
 	}
+	summarise_benchmark(r, &J, col, K, opt);
+	lag_rule(r, uniq, J.nuniq, opt->lag_limit);
 	if (build_report(r, src, opt, ppy, t)) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the horizon's report");
 		goto fail;
@@ -571,6 +712,7 @@ fail:
 	hc_free(col);
 	hc_free(J.wealth);
 	hc_free(J.uwealth);
+	hc_free(J.bwealth);
 	return rc;
 }
 
