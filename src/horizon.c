@@ -84,13 +84,15 @@ struct hjob {
 	int route, universe_bench;
 	uint64_t seed;
 	const double *xt;          /* t*m period-major */
-	const double *ubar;        /* t equal-weight universe returns (index order) */
+	const double *ubar;        /* t universe returns (index order): equal-weight, or by market value */
 	const double *bench;       /* t benchmark returns, or NULL */
+	const double *cw;          /* m market values (security order), or NULL: equal weights */
 	double *bwealth;           /* paths: the benchmark's wealth on each path (bench given) */
 	const size_t *sizes;       /* nsizes as asked */
 	const size_t *uniq;        /* nuniq ascending distinct sizes */
 	const size_t *slot;        /* nsizes: index into uniq */
 	double rate_wealth;
+	double cw_total;           /* sum of cw over the universe, in security order */
 	double *wealth;            /* paths * nsizes * 2 */
 	double *uwealth;           /* paths * 2 (NaN when not computed) */
 	int failed;
@@ -103,6 +105,7 @@ struct hws {
 	double *ug;                /* m, the universe's growths (universe benchmark) */
 	double *reb;               /* nuniq */
 	double *bh;                /* nuniq */
+	double *csum;              /* nuniq: market value of each size's members (weighted) */
 };
 
 static void ws_release(void *wsv)
@@ -115,6 +118,7 @@ static void ws_release(void *wsv)
 	hc_free(w->ug);
 	hc_free(w->reb);
 	hc_free(w->bh);
+	hc_free(w->csum);
 	memset(w, 0, sizeof *w);
 }
 
@@ -129,11 +133,65 @@ static int ws_init(void *job, void *wsv)
 	w->ug = hc_mallocarray(j->m, sizeof *w->ug);
 	w->reb = hc_mallocarray(j->nuniq, sizeof *w->reb);
 	w->bh = hc_mallocarray(j->nuniq, sizeof *w->bh);
-	if (!w->idx || !w->per || !w->g || !w->ug || !w->reb || !w->bh) {
+	w->csum = hc_mallocarray(j->nuniq, sizeof *w->csum);
+	if (!w->idx || !w->per || !w->g || !w->ug || !w->reb || !w->bh || !w->csum) {
 		ws_release(w);
 		return -1;
 	}
 	return 0;
+}
+
+/* The benchmark universe weighted as the portfolios are: its return in each
+ * period sum_i c_i r_is / sum_i c_i, in security order (replacing ubar). */
+static void cap_weight_universe(struct hjob *J, const double *c, const double *xt, double *ubar, size_t m, size_t t)
+{
+	size_t s, i;
+
+	J->cw = c;
+	J->cw_total = 0.0;
+	for (i = 0; i < m; i++)
+		J->cw_total += c[i];
+	for (s = 0; s < t; s++) {
+		double sum = 0.0;
+
+		for (i = 0; i < m; i++)
+			sum += c[i] * xt[s * m + i];
+		ubar[s] = sum / J->cw_total;
+	}
+}
+
+/* Market value held by each size's members on this path: the running sum
+ * over the ordering. */
+static void weight_sums(const struct hjob *J, struct hws *w)
+{
+	double c = 0.0;
+	size_t i = 0, q;
+
+	for (q = 0; q < J->nuniq; q++) {
+		for (; i < J->uniq[q]; i++)
+			c += J->cw[w->idx[i]];
+		w->csum[q] = c;
+	}
+}
+
+/* One period with capitalisation weights: each size's rebalanced return is
+ * sum c_i r_i / sum c_i over its members (a running sum over the
+ * ordering), and every member's own growth is compounded for
+ * buy-and-hold. */
+static void weighted_period(const struct hjob *J, struct hws *w, const double *row)
+{
+	double sum = 0.0;
+	size_t i = 0, q;
+
+	for (q = 0; q < J->nuniq; q++) {
+		for (; i < J->uniq[q]; i++) {
+			double r = row[w->idx[i]];
+
+			sum += J->cw[w->idx[i]] * r;
+			w->g[i] *= grow(r);
+		}
+		w->reb[q] *= grow(sum / w->csum[q]);
+	}
 }
 
 static void horizon_path(void *job, void *wsv, size_t k)
@@ -155,39 +213,45 @@ static void horizon_path(void *job, void *wsv, size_t k)
 	if (J->universe_bench)
 		for (i = 0; i < m; i++)
 			w->ug[i] = 1.0;
+	if (J->cw)
+		weight_sums(J, w);
 	for (s = 0; s < J->h; s++) {
 		const double *row = J->xt + w->per[s] * m;
 
-		sum = 0.0;
-		i = 0;
-		for (q = 0; q < J->nuniq; q++) {
-			size_t n = J->uniq[q];
-			double a0 = 0.0, a1 = 0.0, a2 = 0.0, a3 = 0.0;
+		if (J->cw) {
+			weighted_period(J, w, row);
+		} else {
+			sum = 0.0;
+			i = 0;
+			for (q = 0; q < J->nuniq; q++) {
+				size_t n = J->uniq[q];
+				double a0 = 0.0, a1 = 0.0, a2 = 0.0, a3 = 0.0;
 
-			/* Four fixed lanes between two sizes, so the adds do not
-			 * wait on each other; the grouping depends on the sizes
-			 * alone, never on the thread. */
-			for (; i + 4 <= n; i += 4) {
-				double r0 = row[w->idx[i]], r1 = row[w->idx[i + 1]];
-				double r2 = row[w->idx[i + 2]], r3 = row[w->idx[i + 3]];
+				/* Four fixed lanes between two sizes, so the adds do not
+				 * wait on each other; the grouping depends on the sizes
+				 * alone, never on the thread. */
+				for (; i + 4 <= n; i += 4) {
+					double r0 = row[w->idx[i]], r1 = row[w->idx[i + 1]];
+					double r2 = row[w->idx[i + 2]], r3 = row[w->idx[i + 3]];
 
-				a0 += r0;
-				a1 += r1;
-				a2 += r2;
-				a3 += r3;
-				w->g[i] *= grow(r0);
-				w->g[i + 1] *= grow(r1);
-				w->g[i + 2] *= grow(r2);
-				w->g[i + 3] *= grow(r3);
+					a0 += r0;
+					a1 += r1;
+					a2 += r2;
+					a3 += r3;
+					w->g[i] *= grow(r0);
+					w->g[i + 1] *= grow(r1);
+					w->g[i + 2] *= grow(r2);
+					w->g[i + 3] *= grow(r3);
+				}
+				for (; i < n; i++) {
+					double r = row[w->idx[i]];
+
+					a0 += r;
+					w->g[i] *= grow(r);
+				}
+				sum += (a0 + a1) + (a2 + a3);
+				w->reb[q] *= grow(sum / (double)n);
 			}
-			for (; i < n; i++) {
-				double r = row[w->idx[i]];
-
-				a0 += r;
-				w->g[i] *= grow(r);
-			}
-			sum += (a0 + a1) + (a2 + a3);
-			w->reb[q] *= grow(sum / (double)n);
 		}
 		if (J->universe_bench) {
 			ureb *= grow(J->ubar[w->per[s]]);
@@ -202,8 +266,8 @@ static void horizon_path(void *job, void *wsv, size_t k)
 		size_t n = J->uniq[q];
 
 		for (; i < n; i++)
-			sum += w->g[i];
-		w->bh[q] = sum / (double)n;
+			sum += J->cw ? J->cw[w->idx[i]] * w->g[i] : w->g[i];
+		w->bh[q] = sum / (J->cw ? w->csum[q] : (double)n);
 	}
 	if (J->universe_bench) {
 		/* With every security drawn, each one's growth is already in g,
@@ -214,8 +278,8 @@ static void horizon_path(void *job, void *wsv, size_t k)
 				w->ug[w->idx[i]] = w->g[i];
 		sum = 0.0;
 		for (i = 0; i < m; i++)
-			sum += w->ug[i];
-		ubh = sum / (double)m;
+			sum += J->cw ? J->cw[i] * w->ug[i] : w->ug[i];
+		ubh = sum / (J->cw ? J->cw_total : (double)m);
 	} else {
 		ureb = NAN;
 	}
@@ -345,7 +409,8 @@ static int add_benchmark_fields(struct report *rep, const struct hc_horizon_resu
 	else if (opt->rate_given)
 		snprintf(text, sizeof text, "a fixed rate of %g%% a year", opt->rate * 100);
 	else
-		snprintf(text, sizeof text, "the equal-weight universe");
+		snprintf(text, sizeof text, "%s", opt->market_values ? "the universe weighted by market value"
+			 : "the equal-weight universe");
 	if (hc_report_add_text(rep, "benchmark_name", "benchmark name", text))
 		return -1;
 	if (none)
@@ -362,7 +427,8 @@ static int add_benchmark_fields(struct report *rep, const struct hc_horizon_resu
 static int add_rule_fields(struct report *rep, const struct hc_horizon_result *r, const struct hc_horizon_options *opt)
 {
 	const char *bname = opt->benchmark ? (opt->benchmark->name ? opt->benchmark->name : "the series")
-		: opt->rate_given ? "the fixed rate" : "the equal-weight universe";
+		: opt->rate_given ? "the fixed rate" : opt->market_values ? "the universe weighted by market value"
+		: "the equal-weight universe";
 	char text[400];
 
 	if (r->rule_count)
@@ -442,8 +508,9 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 		    hc_report_add_real(rep, "benchmark_wealth", "benchmark ending wealth", r->rate_wealth,
 				       REPORT_STYLE_FIXED4))
 			goto done;
-	} else if (hc_report_add_text(rep, "benchmark", "benchmark",
-				      "the equal-weight universe on the same path, held the same way") ||
+	} else if (hc_report_add_text(rep, "benchmark", "benchmark", opt->market_values
+				      ? "the universe weighted by market value on the same path, held the same way"
+				      : "the equal-weight universe on the same path, held the same way") ||
 		   hc_report_add_none(rep, "benchmark_rate", "benchmark rate (a year)") ||
 		   hc_report_add_none(rep, "benchmark_wealth", "benchmark ending wealth")) {
 		goto done;
@@ -452,21 +519,28 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 		const struct hc_horizon_point *u = &r->universe[w];
 		char key[64], title[96];
 		const char *wt = w == HC_HORIZON_REBALANCED ? "rebalanced" : "buy-and-hold";
+		const char *uw = opt->market_values ? "value-weighted" : "equal-weight";
 
 		snprintf(key, sizeof key, "universe_%s_p05", wkey[w]);
-		snprintf(title, sizeof title, "equal-weight universe, %s: 5%%", wt);
+		snprintf(title, sizeof title, "%s universe, %s: 5%%", uw, wt);
 		if (hc_report_add_real(rep, key, title, u->p05, REPORT_STYLE_FIXED4))
 			goto done;
 		snprintf(key, sizeof key, "universe_%s_p50", wkey[w]);
-		snprintf(title, sizeof title, "equal-weight universe, %s: median", wt);
+		snprintf(title, sizeof title, "%s universe, %s: median", uw, wt);
 		if (hc_report_add_real(rep, key, title, u->p50, REPORT_STYLE_FIXED4))
 			goto done;
 		snprintf(key, sizeof key, "universe_%s_p95", wkey[w]);
-		snprintf(title, sizeof title, "equal-weight universe, %s: 95%%", wt);
+		snprintf(title, sizeof title, "%s universe, %s: 95%%", uw, wt);
 		if (hc_report_add_real(rep, key, title, u->p95, REPORT_STYLE_FIXED4))
 			goto done;
 	}
-	if (add_benchmark_fields(rep, r, opt) || add_rule_fields(rep, r, opt))
+	if (opt->market_values)
+		snprintf(text, sizeof text, "proportional to market value (%s): each portfolio's members weighted by their "
+			 "share of its market value", opt->market_values_name ? opt->market_values_name : "given");
+	else
+		snprintf(text, sizeof text, "equal");
+	if (hc_report_add_text(rep, "weights", "weights", text) || add_benchmark_fields(rep, r, opt) ||
+	    add_rule_fields(rep, r, opt))
 		goto done;
 	tab = hc_report_add_table(rep, "horizon", "ending wealth of 1 invested, by holding count");
 	if (!tab || hc_report_table_add_column(tab, "holdings", "holdings", REPORT_STYLE_PLAIN))
@@ -493,7 +567,15 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 				hc_report_table_set_real(tab, j, 1 + w * 7 + c, v[c]);
 		}
 	}
-	if (hc_report_add_note(rep, "Ending wealth of 1 unit invested over the horizon. 'rebal.': equal weights restored "
+	if (hc_report_add_note(rep, opt->market_values
+			       ? "Ending wealth of 1 unit invested over the horizon, weights proportional to market value "
+			       "(c_i, the values given, fixed over the horizon): 'rebal.' restores each member's share "
+			       "c_i / sum c of the portfolio every period, W = prod_s (1 + sum_i c_i r_is / sum c); 'hold' "
+			       "buys in those proportions and lets them drift, W = sum_i c_i prod_s (1 + r_is) / sum c. The "
+			       "universe compared with is weighted the same way. 5%, median and 95% are quantiles across the "
+			       "random portfolios (and their paths); 'lag' is the share of them ending below the benchmark "
+			       "on the same path, with its Monte Carlo standard error."
+			       : "Ending wealth of 1 unit invested over the horizon. 'rebal.': equal weights restored "
 			       "every period, W = prod_s (1 + mean of the members' returns in period s); 'hold': equal "
 			       "amounts bought at the start and held, weights drifting with returns, W = mean over members "
 			       "of prod_s (1 + r). 5%, median and 95% are quantiles across the random portfolios (and their "
@@ -556,6 +638,11 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 	if (!(opt->lag_limit > 0 && opt->lag_limit < 1))
 		return hc_error(err, HC_EUSAGE, "the lag limit must be a share between 0 and 1 (as 1%% or 0.01), not %g",
 				opt->lag_limit);
+	if (opt->market_values)
+		for (i = 0; i < m; i++)
+			if (!(opt->market_values[i] > 0) || !isfinite(opt->market_values[i]))
+				return hc_error(err, HC_EUSAGE, "the market value of '%s' is %g: expected a number above 0",
+						u->ids[i], opt->market_values[i]);
 	if (nsizes < 1)
 		return hc_error(err, HC_EUSAGE, "no holding counts asked for");
 	for (j = 0; j < nsizes; j++)
@@ -634,6 +721,8 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 				J.l = t;
 		}
 	}
+	if (opt->market_values)
+		cap_weight_universe(&J, opt->market_values, xt, ubar, m, t);
 	J.m = m;
 	J.t = t;
 	J.h = h;

@@ -100,6 +100,29 @@ sed '7d' "$T/bill.csv" >"$T/hole.csv"
 expect 3 "holdcount horizon: $T/hole.csv: no row dated " -- "${ARGS[@]}" --years 10 --benchmark-file "$T/hole.csv"
 expect 4 "holdcount horizon: cannot open '$T/none.csv'" -- "${ARGS[@]}" --benchmark-file "$T/none.csv"
 
+# Weights by market value (invented values by id); at N = M the portfolio
+# is the value-weighted universe, which never lags itself.
+head -1 "$U" | tr , '\n' | tail -n +2 | awk '{ printf "%s,%.2f\n", $1, 40 + (NR * 37) % 911 }' \
+  | { echo "id,market_value"; cat; } >"$T/mv.csv"
+"$HC" "${ARGS[@]}" --years 10 --market-values "$T/mv.csv" --format json >"$T/v.json" || fail "horizon --market-values"
+"$PY" - "$T/v.json" "$T/w.json" <<'PY' || fail "JSON of horizon --market-values"
+import json, sys
+d, e = json.load(open(sys.argv[1])), json.load(open(sys.argv[2]))
+assert d["weights"].startswith("proportional to market value ("), d["weights"]
+assert e["weights"] == "equal", e["weights"]
+assert d["benchmark_name"] == "the universe weighted by market value", d["benchmark_name"]
+rows = d["horizon"]
+assert rows[-1]["rebal_lag"] == 0 and rows[-1]["hold_lag"] == 0
+# one holding weighs 100% whatever its value: equal weights' figures (to
+# rounding: c r / c need not be r to the last bit)
+for k in ("rebal_p50", "hold_p05", "hold_mean"):
+    assert abs(rows[0][k] - e["horizon"][0][k]) <= 1e-12 * abs(e["horizon"][0][k]), k
+# the universe's figures change with the weights
+assert d["universe_rebal_p50"] != e["universe_rebal_p50"]
+PY
+grep -v '^LIR007,' "$T/mv.csv" >"$T/mv_hole.csv"
+expect 3 "holdcount horizon: $T/mv_hole.csv: no market value for 'LIR007', a security of the universe" -- "${ARGS[@]}" --market-values "$T/mv_hole.csv"
+
 # Usage errors (exit 2), nothing on stdout.
 expect 2 "holdcount horizon: --benchmark-file and --benchmark-rate: one benchmark at a time" -- "${ARGS[@]}" --benchmark-file "$T/bill.csv" --benchmark-rate 2%
 expect 2 "holdcount horizon: --lag-limit 0: expected a share between 0 and 1" -- "${ARGS[@]}" --lag-limit 0

@@ -21,6 +21,9 @@
  * worse) ending a holding at 0:
  *   rebalanced    W = prod_s (1 + (1/N) sum_i r_{i,s})
  *   buy-and-hold  W = (1/N) sum_i prod_s (1 + r_{i,s})
+ * or, with market values c_i (capitalisation weights, fixed at the values
+ * given), w_i = c_i / sum_{j in portfolio} c_j in place of 1/N: rebalanced
+ * to those weights every period, or bought in those proportions and held.
  * The benchmark on the same path is the equal-weight universe held the same
  * way (all M securities, the same formula), or a fixed annual rate g:
  * (1 + g)^(h/P), or a return series the user gives (a bond or bill index,
@@ -87,6 +90,11 @@ struct hc_horizon_options {
 	double lag_limit;          /* the Domian, Louton & Racine rule's p in (0, 1): the fewest
 	                            * holdings whose buy-and-hold portfolios lag at most this share
 	                            * of paths; default HC_HORIZON_DEFAULT_LAG_LIMIT */
+	const double *market_values; /* m values > 0 in the universe's security order
+	                            * (marketvalues.h): weights proportional to them within each
+	                            * portfolio, and the benchmark universe weighted the same way;
+	                            * NULL = equal weights */
+	const char *market_values_name; /* where they came from, for the output (may be NULL) */
 };
 
 /* Defaults: 20 years, 10 000 paths, seed 1, auto route, the universe as

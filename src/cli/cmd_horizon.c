@@ -10,6 +10,7 @@
 
 #include "cli.h"
 #include "holdcount/horizon.h"
+#include "holdcount/marketvalues.h"
 #include "holdcount/memory.h"
 #include "holdcount/source.h"
 #include "holdcount/universe.h"
@@ -21,6 +22,7 @@ struct horizon_opts {
 	double rate;               /* NaN = the universe is the benchmark */
 	const char *benchmark_file; /* a return series on the universe's dates */
 	double lag_limit;          /* the Domian, Louton & Racine rule's p */
+	const char *market_values; /* id,market_value: capitalisation weights */
 	struct cli_sampling sam;
 	struct cli_universe uni;
 	struct cli_output out;
@@ -48,6 +50,11 @@ static const struct cli_option horizon_own[] = {
 	  "period dates, read as the universe is read (returns, --percent, or prices with --prices); each "
 	  "path takes the benchmark's returns of the same periods as the securities'", NULL,
 	  "the equal-weight universe" },
+	{ "market-values", 0, CLI_STRING, offsetof(struct horizon_opts, market_values), "FILE",
+	  "weight each portfolio by market value instead of equally: a CSV with columns 'id' and "
+	  "'market_value' (above 0; ids the universe lacks are ignored), each member weighted by its share of "
+	  "the portfolio's market value, rebalanced to those weights or bought in them and held; the universe "
+	  "it is compared with is weighted the same way", NULL, "equal weights" },
 	{ "lag-limit", 0, CLI_FRACTION, offsetof(struct horizon_opts, lag_limit), "P",
 	  "the rule of Domian, Louton & Racine (2007): report the fewest holdings, among the counts asked, whose "
 	  "buy-and-hold portfolios end behind the benchmark on at most a share P of the paths (as 1% or 0.01), "
@@ -77,8 +84,8 @@ const struct cli_command cli_command_horizon = {
 	"UNIVERSE",
 	"For each holding count N, K random portfolios (drawn as curve draws them), each followed over an "
 	"H-year path of whole periods of the history: a window of it when H fits in the sample, else a "
-	"stationary bootstrap of it. Ending wealth of 1 unit invested, with equal weights restored every "
-	"period and with equal amounts bought and held: its mean with the Monte Carlo standard error, its "
+	"stationary bootstrap of it. Ending wealth of 1 unit invested, with equal weights (or weights by "
+	"--market-values) restored every period and bought and held: its mean with the Monte Carlo standard error, its "
 	"5%, 50% and 95% quantiles, and the share of portfolios ending below the benchmark (the equal-weight "
 	"universe held the same way on the same path, a series of --benchmark-file on the same periods, or "
 	"--benchmark-rate), and the rule of Domian, Louton & Racine (2007): the fewest holdings whose "
@@ -97,6 +104,7 @@ int cmd_horizon(int argc, char **argv)
 	struct hc_horizon_options ho;
 	struct hc_horizon_result *res = NULL;
 	struct benchseries *bench = NULL;
+	double *mv = NULL;
 	struct cli_steps steps;
 	struct hc_error err;
 	size_t *sizes = NULL, nsizes = 0;
@@ -160,6 +168,14 @@ int cmd_horizon(int argc, char **argv)
 	ho.rate_given = cli_given(&a, "benchmark-rate");
 	ho.rate = o.rate;
 	ho.benchmark = bench;
+	if (o.market_values && src->u) {
+		if (hc_marketvalues_load(&mv, o.market_values, src->u->ids, src->u->m, &err)) {
+			rc = cli_fail("horizon", &err);
+			goto cleanup;
+		}
+		ho.market_values = mv;
+		ho.market_values_name = o.market_values;
+	}
 	ho.lag_limit = o.lag_limit;
 	cli_steps_bind(&steps, &ho.progress, "horizon", o.out.quiet, 0);
 	if (hc_horizon_run(&res, src, sizes, nsizes, &ho, &err))
@@ -170,6 +186,7 @@ cleanup:
 	hc_horizon_result_free(res);
 	hc_source_free(src);
 	hc_benchseries_free(bench);
+	hc_free(mv);
 	hc_free(sizes);
 	cli_args_release(&a);
 	return rc;
