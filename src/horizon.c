@@ -82,6 +82,7 @@ static inline double grow(double r)
 struct hjob {
 	size_t m, t, h, nmax, nsizes, nuniq, l;
 	int route, universe_bench;
+	int ragged;                /* a history with gaps (HC_SOURCE_RAGGED): ragged_path */
 	uint64_t seed;
 	const double *xt;          /* t*m period-major */
 	const double *ubar;        /* t universe returns (index order): equal-weight, or by market value */
@@ -106,6 +107,11 @@ struct hws {
 	double *reb;               /* nuniq */
 	double *bh;                /* nuniq */
 	double *csum;              /* nuniq: market value of each size's members (weighted) */
+	/* ragged histories (ragged_path), nuniq + 1 entries (the last the universe) */
+	uint32_t *ord;             /* m: the ordering's securities listed at the window's start */
+	unsigned char *state;      /* m: HELD, GONE (delisted), or DYING (this period) */
+	double *f, *cash;          /* reinvestment factor; the value once every holding is gone (NaN: not) */
+	size_t *lim;               /* each size, then the universe's count */
 };
 
 static void ws_release(void *wsv)
@@ -119,6 +125,11 @@ static void ws_release(void *wsv)
 	hc_free(w->reb);
 	hc_free(w->bh);
 	hc_free(w->csum);
+	hc_free(w->ord);
+	hc_free(w->state);
+	hc_free(w->f);
+	hc_free(w->cash);
+	hc_free(w->lim);
 	memset(w, 0, sizeof *w);
 }
 
@@ -129,12 +140,20 @@ static int ws_init(void *job, void *wsv)
 
 	w->idx = hc_mallocarray(j->m, sizeof *w->idx);
 	w->per = hc_mallocarray(j->h, sizeof *w->per);
-	w->g = hc_mallocarray(j->nmax, sizeof *w->g);
+	w->g = hc_mallocarray(j->ragged ? j->m : j->nmax, sizeof *w->g);
 	w->ug = hc_mallocarray(j->m, sizeof *w->ug);
-	w->reb = hc_mallocarray(j->nuniq, sizeof *w->reb);
-	w->bh = hc_mallocarray(j->nuniq, sizeof *w->bh);
+	w->reb = hc_mallocarray(j->nuniq + 1, sizeof *w->reb);
+	w->bh = hc_mallocarray(j->nuniq + 1, sizeof *w->bh);
 	w->csum = hc_mallocarray(j->nuniq, sizeof *w->csum);
-	if (!w->idx || !w->per || !w->g || !w->ug || !w->reb || !w->bh || !w->csum) {
+	if (j->ragged) {
+		w->ord = hc_mallocarray(j->m, sizeof *w->ord);
+		w->state = hc_mallocarray(j->m, sizeof *w->state);
+		w->f = hc_mallocarray(j->nuniq + 1, sizeof *w->f);
+		w->cash = hc_mallocarray(j->nuniq + 1, sizeof *w->cash);
+		w->lim = hc_mallocarray(j->nuniq + 1, sizeof *w->lim);
+	}
+	if (!w->idx || !w->per || !w->g || !w->ug || !w->reb || !w->bh || !w->csum ||
+	    (j->ragged && (!w->ord || !w->state || !w->f || !w->cash || !w->lim))) {
 		ws_release(w);
 		return -1;
 	}
@@ -194,6 +213,126 @@ static void weighted_period(const struct hjob *J, struct hws *w, const double *r
 	}
 }
 
+/* The benchmark series over the path's own periods: the same periods as
+ * the portfolios', so their correlation is kept. */
+static void bench_path(struct hjob *J, const struct hws *w, size_t k)
+{
+	double bw = 1.0;
+	size_t s;
+
+	if (!J->bench)
+		return;
+	for (s = 0; s < J->h; s++)
+		bw *= grow(J->bench[w->per[s]]);
+	J->bwealth[k] = bw;
+}
+
+enum { HELD = 0, GONE = 1, DYING = 2 };
+
+/* Holdings delisted this period (state DYING) leave each portfolio that
+ * holds them; buy-and-hold reinvests their value in the holdings left in
+ * proportion to those holdings' current values.  Every holding left is then
+ * scaled by the same factor, so each portfolio keeps one factor f: its
+ * value is f sum_i G_i / n over the holdings left (G_i the holding's own
+ * growth), and a departure multiplies f by (sum before) / (sum after).
+ * When none is left the portfolio holds its value as cash. */
+static void ragged_departures(struct hws *w, size_t nq, size_t na)
+{
+	double before = 0.0, after = 0.0;
+	size_t q, i = 0;
+
+	for (q = 0; q < nq; q++) {
+		for (; i < w->lim[q]; i++)
+			if (w->state[i] != GONE) {
+				before += w->g[i];
+				if (w->state[i] == HELD)
+					after += w->g[i];
+			}
+		if (!isnan(w->cash[q]))
+			continue;
+		if (after > 0)
+			w->f[q] *= before / after;
+		else
+			w->cash[q] = w->f[q] * before / (double)w->lim[q];
+	}
+	for (i = 0; i < na; i++)
+		if (w->state[i] == DYING)
+			w->state[i] = GONE;
+}
+
+/*
+ * One path on a history with gaps (windows only): the portfolio of n holds
+ * the first n securities of the ordering listed at the window's first
+ * period (a return there); the universe, the last "size", holds all of
+ * them.  A holding with no return in a later period of the window has been
+ * delisted then (a later return of it is not used): rebalanced portfolios
+ * take equal weights over the holdings left each period, buy-and-hold ones
+ * reinvest its value in the rest (ragged_departures).  A portfolio with no
+ * holding left keeps its value (cash, no return).
+ */
+static void ragged_path(struct hjob *J, struct hws *w, size_t k)
+{
+	size_t m = J->m, nq = J->nuniq + 1, na = 0, i, q, s, j;
+	const double *first;
+
+	first = J->xt + w->per[0] * m;
+	for (i = 0; i < m; i++)
+		if (!isnan(first[w->idx[i]]))
+			w->ord[na++] = w->idx[i];
+	for (q = 0; q < nq; q++) {
+		w->lim[q] = q < J->nuniq ? (J->uniq[q] < na ? J->uniq[q] : na) : na;
+		w->reb[q] = w->f[q] = 1.0;
+		w->cash[q] = NAN;
+	}
+	for (i = 0; i < na; i++) {
+		w->g[i] = 1.0;
+		w->state[i] = HELD;
+	}
+	for (s = 0; s < J->h; s++) {
+		const double *row = J->xt + w->per[s] * m;
+		double sum = 0.0;
+		size_t cnt = 0, dying = 0;
+
+		for (i = 0; i < na; i++)
+			if (w->state[i] == HELD && isnan(row[w->ord[i]])) {
+				w->state[i] = DYING;
+				dying++;
+			}
+		if (dying)
+			ragged_departures(w, nq, na);
+		for (i = 0, q = 0; q < nq; q++) {
+			for (; i < w->lim[q]; i++)
+				if (w->state[i] == HELD) {
+					double r = row[w->ord[i]];
+
+					sum += r;
+					cnt++;
+					w->g[i] *= grow(r);
+				}
+			if (cnt)
+				w->reb[q] *= grow(sum / (double)cnt);
+		}
+	}
+	{
+		double sum = 0.0;
+
+		for (i = 0, q = 0; q < nq; q++) {
+			for (; i < w->lim[q]; i++)
+				if (w->state[i] == HELD)
+					sum += w->g[i];
+			w->bh[q] = !isnan(w->cash[q]) ? w->cash[q] : w->f[q] * sum / (double)w->lim[q];
+		}
+	}
+	J->uwealth[k * 2 + HC_HORIZON_REBALANCED] = w->reb[J->nuniq];
+	J->uwealth[k * 2 + HC_HORIZON_BUY_HOLD] = w->bh[J->nuniq];
+	for (j = 0; j < J->nsizes; j++) {
+		double *out = J->wealth + (k * J->nsizes + j) * 2;
+
+		out[HC_HORIZON_REBALANCED] = w->reb[J->slot[j]];
+		out[HC_HORIZON_BUY_HOLD] = w->bh[J->slot[j]];
+	}
+}
+
 static void horizon_path(void *job, void *wsv, size_t k)
 {
 	struct hjob *J = job;
@@ -204,6 +343,11 @@ static void horizon_path(void *job, void *wsv, size_t k)
 	if (hc_horizon_draw(J->seed, k, m, J->t, J->h, J->route, J->l, w->idx, w->per, NULL)) {
 #pragma omp atomic write
 		J->failed = 1;
+		return;
+	}
+	bench_path(J, w, k);
+	if (J->ragged) {
+		ragged_path(J, w, k);
 		return;
 	}
 	for (i = 0; i < J->nmax; i++)
@@ -282,15 +426,6 @@ static void horizon_path(void *job, void *wsv, size_t k)
 		ubh = sum / (J->cw ? J->cw_total : (double)m);
 	} else {
 		ureb = NAN;
-	}
-	if (J->bench) {
-		/* The benchmark over the path's own periods: the same periods as
-		 * the portfolios', so their correlation is kept. */
-		double bw = 1.0;
-
-		for (s = 0; s < J->h; s++)
-			bw *= grow(J->bench[w->per[s]]);
-		J->bwealth[k] = bw;
 	}
 	J->uwealth[k * 2 + HC_HORIZON_REBALANCED] = ureb;
 	J->uwealth[k * 2 + HC_HORIZON_BUY_HOLD] = ubh;
@@ -586,13 +721,68 @@ static int build_report(struct hc_horizon_result *r, const struct hc_source *src
 			       "repeats the sample's own returns, good and bad periods alike, in new orders."
 			       : "The paths are windows of the history, which overlap: neighbouring windows share most of "
 			       "their periods, so the spread understates what independent horizons would show.") ||
-	    hc_report_add_note(rep, "No costs, taxes or cash flows; a return of -100% or worse ends a holding at 0. "
+	    hc_report_add_note(rep, src->kind == HC_SOURCE_RAGGED
+			       ? "No costs, taxes or cash flows; a return of -100% or worse ends a holding at 0. History "
+			       "with gaps: each portfolio holds securities listed at its window's start; a holding with no "
+			       "return later in the window is taken as delisted then (its later returns unused): "
+			       "rebalanced portfolios weight the holdings left equally, buy-and-hold ones reinvest its value "
+			       "in the rest in proportion to their values (a delisting's own last price move is whatever "
+			       "the file's last return holds). The universe compared with is every security listed at the "
+			       "window's start, held the same way; securities listed later are not bought."
+			       : "No costs, taxes or cash flows; a return of -100% or worse ends a holding at 0. "
 			       "Complete histories only: securities that left the market are not in the file "
 			       "(survivorship bias flatters every count and most the smaller ones)."))
 		goto done;
 	rc = hc_report_add_cautions(rep);
 done:
 	return rc;
+}
+
+size_t hc_horizon_count_bound(const struct universe *u, size_t h, size_t *first)
+{
+	size_t s, i, best = u->m, at = 0;
+
+	for (s = 0; h >= 1 && s + h <= u->t; s++) {
+		size_t n = 0;
+
+		for (i = 0; i < u->m; i++)
+			n += !isnan(u->x[i * u->t + s]);
+		if (n < best) {
+			best = n;
+			at = s;
+		}
+	}
+	if (first)
+		*first = at;
+	return best;
+}
+
+/* A history with gaps: windows only, equal weights, and no count above the
+ * securities listed at the start of the emptiest window. */
+static int ragged_checks(const struct universe *u, size_t h, int route, const size_t *sizes, size_t nsizes,
+			 const struct hc_horizon_options *opt, struct hc_error *err)
+{
+	size_t bound, at, j;
+	char d[16];
+
+	if (route != HC_HORIZON_WINDOWS || h > u->t)
+		return hc_error(err, HC_EUSAGE, "%s has gaps (securities listed or delisted inside the sample): its "
+				"horizons are windows of the history only, %zu periods at most (--years within the sample); "
+				"a bootstrap would splice periods of different dates, so holdings would list and delist at "
+				"random inside a path (--missing complete keeps the securities with no gap, which the "
+				"bootstrap can resample)", u->source ? u->source : "the history", u->t);
+	if (opt->market_values)
+		return hc_error(err, HC_EUSAGE, "%s has gaps: weights by market value are provided on complete histories "
+				"only (--missing complete)", u->source ? u->source : "the history");
+	bound = hc_horizon_count_bound(u, h, &at);
+	for (j = 0; j < nsizes; j++)
+		if (sizes[j] > bound) {
+			hc_universe_format_date(u->dates[at], d);
+			return hc_error(err, HC_EUSAGE, "bad holding count %zu: the window starting %s has %zu securities "
+					"listed at its start; expected at most %zu on this history with gaps", sizes[j], d,
+					bound, bound);
+		}
+	return HC_OK;
 }
 
 int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, const size_t *sizes,
@@ -608,12 +798,11 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 
 	*out = NULL;
 	memset(&J, 0, sizeof J);
-	if (!src || src->kind != HC_SOURCE_SERIES || !src->u)
-		return hc_error(err, HC_EUSAGE, "%s: ending wealth over a horizon needs a complete return history%s",
+	if (!src || (src->kind != HC_SOURCE_SERIES && src->kind != HC_SOURCE_RAGGED) || !src->u)
+		return hc_error(err, HC_EUSAGE, "%s: ending wealth over a horizon needs a return history%s",
 				src && src->name ? src->name : "the source",
 				!src || src->kind == HC_SOURCE_MATRIX ? ", not a covariance matrix"
-				: "; this one has gaps, and horizons on histories with gaps are not yet provided "
-				  "(--missing complete keeps only the securities with none)");
+				: " read period by period (--missing alive, the default) or complete (--missing complete)");
 	u = src->u;
 	m = u->m;
 	t = u->t;
@@ -653,6 +842,9 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 		J.route = h <= t ? HC_HORIZON_WINDOWS : HC_HORIZON_BOOTSTRAP;
 	else if (J.route != HC_HORIZON_WINDOWS && J.route != HC_HORIZON_BOOTSTRAP)
 		return hc_error(err, HC_EUSAGE, "unknown horizon route %d", opt->route);
+	J.ragged = src->kind == HC_SOURCE_RAGGED;
+	if (J.ragged && (rc = ragged_checks(u, h, J.route, sizes, nsizes, opt, err)))
+		return rc;
 	if (J.route == HC_HORIZON_WINDOWS && h > t)
 		return hc_error(err, HC_EUSAGE, "a horizon of %g years is %zu periods, longer than the sample's %zu: "
 				"overlapping windows need the horizon (--years) within the sample; the stationary bootstrap "
@@ -702,12 +894,16 @@ int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, 
 	 * security order. */
 	for (s = 0; s < t; s++) {
 		double sum = 0.0;
+		size_t n = 0;
 
 		for (i = 0; i < m; i++) {
 			xt[s * m + i] = u->x[i * t + s];
-			sum += xt[s * m + i];
+			if (!isnan(xt[s * m + i])) {
+				sum += xt[s * m + i];
+				n++;
+			}
 		}
-		ubar[s] = sum / (double)m;
+		ubar[s] = n ? sum / (double)n : 0.0;
 	}
 	J.l = 0;
 	if (J.route == HC_HORIZON_BOOTSTRAP) {

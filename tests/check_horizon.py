@@ -45,6 +45,12 @@ published example.
    for each portfolio the library drew (as in 1), the universe weighted the
    same way as the benchmark, on windows, on the bootstrap and against a
    series, to 1e-9 relative.
+8. A history with gaps (listings, delistings, a gap that resumes, a total
+   loss): a plain-Python reimplementation that follows each holding's value
+   (buy-and-hold reinvesting a delisted holding's value in the rest in
+   proportion to their values; rebalanced equal weights over the holdings
+   left), on the library's own draws, to 1e-9 relative; the bootstrap
+   refused on such a history.
 
 Environment: HOLDCOUNT (the binary), HOLDCOUNT_LIBRARY (libholdcount.so),
 HOLDCOUNT_TEST_TMP (scratch dir).
@@ -330,6 +336,90 @@ def lag_rule():
           out["lag_rule"])
 
 
+def ragged_reference(r, idx, per, n):
+    """Plain-Python reference for one portfolio on a history with gaps
+    (docs/horizon.md, "Histories with gaps"): the first n securities of the
+    ordering idx with a return in the window's first period; each period, a
+    holding with no return is delisted (for good): buy-and-hold moves its
+    value to the holdings left in proportion to their values (none left
+    with value: the portfolio is cash), rebalanced takes the equal-weight
+    mean of the returns of the holdings left (none: no return).  n None: all
+    listed at the start (the universe).  Values followed holding by holding,
+    not by the library's shared factor."""
+    first = per[0]
+    held = [i for i in idx if not math.isnan(r[first, i])]
+    if n is not None:
+        held = held[:n]
+    v = {i: 1.0 / len(held) for i in held}
+    alive, reb, cash = set(held), 1.0, None
+    for p_ in per:
+        gone = [i for i in alive if math.isnan(r[p_, i])]
+        if gone and cash is None:
+            freed = sum(v[i] for i in gone)
+            for i in gone:
+                v[i] = 0.0
+            rest = sum(v[i] for i in alive if i not in gone)
+            if rest > 0:
+                for i in alive:
+                    if i not in gone:
+                        v[i] += freed * v[i] / rest
+            else:
+                cash = freed + rest
+        alive -= set(gone)
+        rets = [r[p_, i] for i in alive]
+        if rets:
+            reb *= max(1 + sum(rets) / len(rets), 0.0)
+        if cash is None:
+            for i in alive:
+                v[i] *= max(1 + r[p_, i], 0.0)
+    return reb, (cash if cash is not None else sum(v[i] for i in alive))
+
+
+def ragged():
+    """A history with gaps: late listings, early delistings, a gap that
+    resumes (used only up to the gap), and a security that falls to a total
+    loss; the library's figures against the reference above on the same
+    draws (windows), to 1e-9 relative; the bootstrap refused."""
+    path = os.path.join(TMP, "horizon_ragged.csv")
+    r = invented(12, 40, 99)
+    r[:9, 0] = np.nan      # listed late
+    r[:4, 1] = np.nan
+    r[25:, 2] = np.nan     # delisted
+    r[14:, 3] = np.nan
+    r[18:22, 4] = np.nan   # a gap, then returns again (unused after the gap)
+    r[31:, 5] = np.nan
+    r[30:, 6] = np.nan
+    r[12, 7] = -1.3        # a total loss, then a delisting
+    r[13:, 7] = np.nan
+    r = write(path, r)
+    t, m = r.shape
+    h, sizes, paths, seed = 18, [1, 2, 4, 7], 300, 13
+    out = horizon(path, sizes, paths, seed, h)
+    check("ragged: every security kept", out["securities"] == m, repr(out["securities"]))
+    rows = {row["holdings"]: row for row in out["horizon"]}
+    vals = {(n, w): [] for n in sizes for w in range(2)}
+    lags = {(n, w): [] for n in sizes for w in range(2)}
+    for k in range(paths):
+        idx, per = draw(seed, k, m, t, h, 1, 0)
+        uw = ragged_reference(r, idx, per, None)
+        for n in sizes:
+            pw = ragged_reference(r, idx, per, n)
+            for w in range(2):
+                vals[n, w].append(pw[w])
+                lags[n, w].append(1.0 if pw[w] < uw[w] else 0.0)
+    for n in sizes:
+        for w in range(2):
+            x, g = np.array(vals[n, w]), np.array(lags[n, w])
+            close("ragged n=%d %s_mean" % (n, W[w]), rows[n][W[w] + "_mean"], x.mean())
+            for q, key in ((0.05, "_p05"), (0.5, "_p50"), (0.95, "_p95")):
+                close("ragged n=%d %s%s" % (n, W[w], key), rows[n][W[w] + key], float(np.quantile(x, q)))
+            close("ragged n=%d %s_lag" % (n, W[w]), rows[n][W[w] + "_lag"], g.mean())
+    p = subprocess.run([HC, "horizon", path, "--sizes", "2", "--paths", "10", "--periods-per-year", "12",
+                        "--years", "2", "--resample", "bootstrap", "--quiet"],
+                       capture_output=True, text=True)
+    check("ragged: the bootstrap refused", p.returncode == 2 and "windows of the history only" in p.stderr, p.stderr)
+
+
 def heaton_polson_witte():
     path = os.path.join(TMP, "horizon_hpw.csv")
     r = write(path, np.array([[0.10, 0.10, 0.10, 0.10, 0.50], [0.0] * 5]))
@@ -362,6 +452,7 @@ same_draws(r, path, 1, ["--market-values", vpath], cap=cap)
 same_draws(r, path, 2, ["--market-values", vpath, "--block-length", "3"], cap=cap)
 same_draws(r, path, 1, ["--market-values", vpath, "--benchmark-file", bpath], bench=b, cap=cap)
 lag_rule()
+ragged()
 enumeration()
 bootstrap_expectation()
 heaton_polson_witte()
@@ -369,4 +460,4 @@ if failures:
     print("\n".join(failures[:40]))
     print("%d failure(s)" % len(failures))
     sys.exit(1)
-print("check_horizon: numpy on the same draws (windows, bootstrap, rate), enumeration, bootstrap expectation, Heaton-Polson-Witte, benchmark series, lag rule, market values: ok")
+print("check_horizon: numpy on the same draws (windows, bootstrap, rate), enumeration, bootstrap expectation, Heaton-Polson-Witte, benchmark series, lag rule, market values, gaps: ok")

@@ -127,7 +127,20 @@ expect 3 "holdcount horizon: $T/mv_hole.csv: no market value for 'LIR007', a sec
 expect 2 "holdcount horizon: --benchmark-file and --benchmark-rate: one benchmark at a time" -- "${ARGS[@]}" --benchmark-file "$T/bill.csv" --benchmark-rate 2%
 expect 2 "holdcount horizon: --lag-limit 0: expected a share between 0 and 1" -- "${ARGS[@]}" --lag-limit 0
 expect 2 "holdcount horizon: --lag-limit 1: expected a share between 0 and 1" -- "${ARGS[@]}" --lag-limit 100%
-expect 2 "holdcount horizon: $U: ending wealth over a horizon needs a complete return history; this one has gaps" -- horizon "$U" --quiet
+# The demo with its gaps, read period by period: windows only, the default
+# counts up to the fewest securities listed at a window's start.
+"$HC" horizon "$U" --years 10 --paths 200 --seed 5 --quiet --format json >"$T/g.json" || fail "horizon on a history with gaps"
+"$PY" - "$T/g.json" <<'PY' || fail "JSON of horizon on a history with gaps"
+import json, sys
+d = json.load(open(sys.argv[1]))
+assert d["securities"] == 150 and d["paths_from"].startswith("overlapping windows"), d
+top = d["horizon"][-1]["holdings"]
+assert 139 <= top < 150, top
+assert any("taken as delisted then" in c for c in d["cautions"])
+PY
+expect 2 "holdcount horizon: $U has gaps (securities listed or delisted inside the sample): its horizons are windows of the history only" -- horizon "$U" --years 30 --quiet
+expect 2 "holdcount horizon: bad holding count 150: the window starting " -- horizon "$U" --years 10 --sizes 150 --quiet
+expect 2 "holdcount horizon: $U has gaps: weights by market value are provided on complete histories only" -- horizon "$U" --years 10 --market-values "$T/mv.csv" --quiet
 expect 2 "holdcount horizon: a horizon of 30 years is 360 periods, longer than the sample's 240" -- "${ARGS[@]}" --years 30 --resample windows
 expect 2 "holdcount horizon: --paths 0" -- "${ARGS[@]}" --paths 0
 expect 2 "holdcount horizon: --block-length is the bootstrap's" -- "${ARGS[@]}" --resample windows --block-length 4

@@ -129,7 +129,15 @@ struct hc_horizon_result {
 
 /*
  * Ending wealth over opt->years for random portfolios of each size (1..M,
- * any order) of a complete return history (HC_SOURCE_SERIES).  Errors:
+ * any order) of a complete return history (HC_SOURCE_SERIES), or of one
+ * with gaps read period by period (HC_SOURCE_RAGGED): windows only, equal
+ * weights, sizes up to hc_horizon_count_bound; path k's portfolio of n
+ * holds the first n securities of its ordering listed at the window's
+ * first period, a holding delisted inside the window (no return) leaves:
+ * rebalanced portfolios weight the holdings left equally, buy-and-hold ones
+ * reinvest its value in the rest in proportion to their values; with none
+ * left the portfolio keeps its value as cash.  The universe it is compared
+ * with is every security listed at the window's start, held the same way.  Errors:
  * HC_EUSAGE (a matrix, a history with gaps, a bad size, H, K, L, rate or
  * lag limit, windows asked for a horizon longer than the sample, a
  * benchmark series of another length or with a rate), HC_ENOMEM
@@ -138,6 +146,14 @@ struct hc_horizon_result {
 int hc_horizon_run(struct hc_horizon_result **out, const struct hc_source *src, const size_t *sizes,
 		   size_t nsizes, const struct hc_horizon_options *opt, struct hc_error *err);
 void hc_horizon_result_free(struct hc_horizon_result *r);
+
+/*
+ * The largest holding count a history with gaps allows for windows of h
+ * periods: the fewest securities with a return in the first period of any
+ * window (0..t-h); *first (may be NULL) that window's first period.  u->m
+ * for a complete history (or when h > t).
+ */
+size_t hc_horizon_count_bound(const struct universe *u, size_t h, size_t *first);
 
 /*
  * Path k's draw, exported for reference checks: members[0..m) the

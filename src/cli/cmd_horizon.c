@@ -89,11 +89,27 @@ const struct cli_command cli_command_horizon = {
 	"5%, 50% and 95% quantiles, and the share of portfolios ending below the benchmark (the equal-weight "
 	"universe held the same way on the same path, a series of --benchmark-file on the same periods, or "
 	"--benchmark-rate), and the rule of Domian, Louton & Racine (2007): the fewest holdings whose "
-	"buy-and-hold portfolios lag on at most --lag-limit of the paths. Needs a complete return "
-	"history (--missing complete keeps the securities with no gap). A bootstrap of the history is not "
+	"buy-and-hold portfolios lag on at most --lag-limit of the paths. On a history with gaps (the "
+	"default reading) the paths are windows only: a portfolio holds securities listed at the window's "
+	"start, and a holding delisted inside it leaves (its value reinvested in the rest when held). A bootstrap of the history is not "
 	"a forecast.",
 	1, 1, horizon_groups
 };
+
+/* The default grid's top: every security, or on a history with gaps the
+ * fewest listed at the start of a window (hc_horizon_count_bound). */
+static size_t grid_bound(const struct hc_source *src, double years)
+{
+	const struct universe *u = src->u;
+	double hp;
+
+	if (!u)
+		return hc_source_m(src);
+	hp = years * u->periods_per_year;
+	if (src->kind != HC_SOURCE_RAGGED || !(hp >= 0.5) || hp > (double)u->t + 0.5)
+		return u->m;
+	return hc_horizon_count_bound(u, (size_t)llround(hp), NULL);
+}
 
 int cmd_horizon(int argc, char **argv)
 {
@@ -143,10 +159,6 @@ int cmd_horizon(int argc, char **argv)
 	}
 	if ((rc = cli_load_universe("horizon", &o.uni, path, &u)))
 		goto cleanup;
-	if ((rc = cli_sizes("horizon", o.sam.sizes, u->m, &sizes, &nsizes))) {
-		hc_universe_free(u);
-		goto cleanup;
-	}
 	if (o.benchmark_file &&
 	    hc_benchseries_load(&bench, o.benchmark_file, u->dates, u->t,
 				!o.uni.prices ? BENCHSERIES_RETURNS
@@ -157,6 +169,9 @@ int cmd_horizon(int argc, char **argv)
 		goto cleanup;
 	}
 	if ((rc = cli_source_from_universe("horizon", &o.uni, u, path, 0, NULL, &src)))
+		goto cleanup;
+	if ((rc = cli_sizes("horizon", o.sam.sizes, o.sam.sizes ? hc_source_m(src) : grid_bound(src, o.years), &sizes,
+			    &nsizes)))
 		goto cleanup;
 	hc_horizon_options_init(&ho);
 	ho.years = o.years;
