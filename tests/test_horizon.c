@@ -397,6 +397,34 @@ static void test_horizon_allocation_failure(void **state)
 	fixture_free(u);
 }
 
+/* The same sweep on a history with gaps (a late listing, a delisting):
+ * the ragged path's workspace. */
+static void test_horizon_allocation_failure_gaps(void **state)
+{
+	struct universe *u = fixture_random_universe(8, 30, 6);
+	struct sweep w = { NULL, HC_HORIZON_WINDOWS, NULL };
+	struct heapcheck_call call = { sweep_run, sweep_release, sweep_failed, &w };
+	struct hc_source_options so;
+	struct hc_source *src = NULL;
+	struct hc_error err;
+	size_t k;
+
+	(void)state;
+	assert_non_null(u);
+	for (k = 0; k < 5; k++)
+		u->x[0 * 30 + k] = NAN;
+	for (k = 20; k < 30; k++)
+		u->x[1 * 30 + k] = NAN;
+	u->has_missing = 1;
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&src, u, &so, &err), HC_OK);
+	assert_int_equal(src->kind, HC_SOURCE_RAGGED);
+	w.src = src;
+	assert_true(heapcheck_sweep(&call) > 10);
+	hc_source_free(src);
+}
+
 int main(int argc, char **argv)
 {
 	heapcheck_rerun_without_tcache(argv);
@@ -408,6 +436,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_horizon_refusals),
 		cmocka_unit_test(test_horizon_allocation_failure),
 		cmocka_unit_test(test_horizon_gaps_by_hand),
+		cmocka_unit_test(test_horizon_allocation_failure_gaps),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -25,7 +25,8 @@
  * given), w_i = c_i / sum_{j in portfolio} c_j in place of 1/N: rebalanced
  * to those weights every period, or bought in those proportions and held.
  * The benchmark on the same path is the equal-weight universe held the same
- * way (all M securities, the same formula), or a fixed annual rate g:
+ * way (all M securities, the same formula; weighted by market value when
+ * those are given), or a fixed annual rate g:
  * (1 + g)^(h/P), or a return series the user gives (a bond or bill index,
  * a capitalisation-weighted index: benchseries.h) compounded over path k's
  * own periods, so that the portfolio and the benchmark see the same
