@@ -28,6 +28,10 @@ fail() { echo "FAIL: $*"; fails=$((fails+1)); }
 "$HC" synth --securities 12 --periods 72 --seed 3 --late-share 0 --early-share 0 \
 	-o "$T/u.csv" --sectors-output "$T/s.csv" -q || { echo "FAIL: synth exit $?"; exit 1; }
 printf 'fund,id,weight\nAlder Growth,S01,0.35\nAlder Growth,S02,0.40\nAlder Growth,S07,0.25\n' >"$T/h.csv"
+# A benchmark series on its dates (horizon --benchmark-file).
+awk -F, 'NR == 1 { print "date,Bill"; next } { print $1 ",0.002" }' "$T/u.csv" >"$T/bill.csv"
+# Market values by id (horizon --market-values).
+head -1 "$T/u.csv" | tr , '\n' | tail -n +2 | awk 'BEGIN { print "id,market_value" } { print $1 "," NR * 10 }' >"$T/mv.csv"
 # An earlier report folder, for compare and report --previous.
 "$HC" report "$T/u.csv" -o "$T/rep0" --paths 50 --bootstrap 0 -q || { echo "FAIL: report exit $?"; exit 1; }
 # a second holdings file (--holdings is repeatable; one file given twice is refused)
@@ -86,6 +90,8 @@ value() {
 	sectors-output) echo "$T/so.$n" ;; parameters-output) echo "$T/po.$n" ;;
 	measures) echo es95,max_drawdown ;;
 	years) echo 2 ;;               benchmark-rate) echo 3% ;;
+	benchmark-file) echo "$T/bill.csv" ;; lag-limit) echo 5% ;;
+	market-values) echo "$T/mv.csv" ;;
 	*) return 1 ;;
 	esac
 }

@@ -264,6 +264,91 @@ static void test_horizon_refusals(void **state)
 
 /* Allocation failure at every allocation in turn, on both routes: each
  * failing run says HC_ENOMEM, leaves *out NULL and leaks nothing. */
+/*
+ * A history with gaps, one window of all three periods (h = T = 3):
+ *   A: +10%, then delisted (no return);  B: +20%, -10%, +5%;  C: 0%, +30%, -20%.
+ * Universe (all three listed at the start), buy-and-hold: after period 1,
+ * A 1.1/3, B 1.2/3, C 1/3 (total 1.1); A leaves and its 1.1/3 goes to B and
+ * C in proportion 0.4 : 1/3, so B = 0.6, C = 0.5; then B 0.6 x 0.9 x 1.05 =
+ * 0.567, C 0.5 x 1.3 x 0.8 = 0.52: 1.087.  Rebalanced over the holdings
+ * left: 1.1 x (1 + (-0.10 + 0.30)/2) x (1 + (0.05 - 0.20)/2) = 1.1 x 1.1 x
+ * 0.925 = 1.11925.  A alone: 1.1, then cash (nothing left): 1.1 both ways.
+ * B alone 1.2 x 0.9 x 1.05 = 1.134; C alone 1.3 x 0.8 = 1.04.  {A, B}: A's
+ * 0.55 joins B's 0.6, 1.15 x 0.9 x 1.05 = 1.08675 both ways; {A, C}: 1.05 x
+ * 1.3 x 0.8 = 1.092 both ways; {B, C}: 0.567 + 0.52 = 1.087 held,
+ * 1.1 x 1.1 x 0.925 = 1.11925 rebalanced (B and C make up the universe
+ * after A leaves).
+ */
+static const double *gaps_by_hand(const uint32_t *idx, size_t n, int w)
+{
+	static const double one[3] = { 1.1, 1.134, 1.04 };
+	static double v;
+	int b = 0, c = 0;
+	size_t i;
+
+	for (i = 0; i < n; i++) {
+		b |= idx[i] == 1;
+		c |= idx[i] == 2;
+	}
+	if (n == 1)
+		v = one[idx[0]];
+	else if (n == 3 || (b && c))
+		v = w == HC_HORIZON_REBALANCED ? 1.11925 : 1.087;
+	else
+		v = b ? 1.08675 : 1.092;
+	return &v;
+}
+
+static void test_horizon_gaps_by_hand(void **state)
+{
+	double x[9] = { 0.10, NAN, NAN, 0.20, -0.10, 0.05, 0.0, 0.30, -0.20 };
+	size_t sizes[3] = { 1, 2, 3 }, per[3], j;
+	uint32_t idx[3];
+	uint64_t seed;
+	struct universe *u = fixture_universe(x, 3, 3);
+	struct hc_source_options so;
+	struct hc_source *src = NULL;
+	struct hc_horizon_options o;
+	struct hc_horizon_result *r = NULL;
+	struct hc_error err;
+	int w;
+
+	(void)state;
+	assert_non_null(u);
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&src, u, &so, &err), HC_OK);
+	assert_int_equal(src->kind, HC_SOURCE_RAGGED);
+	assert_int_equal(hc_horizon_count_bound(src->u, 3, NULL), 3);
+	assert_int_equal(hc_horizon_count_bound(src->u, 2, NULL), 2); /* the second period's window: B, C */
+	for (seed = 1; seed <= 8; seed++) {
+		hc_horizon_options_init(&o);
+		o.years = 3.0 / 12.0;
+		o.paths = 1;
+		o.seed = seed;
+		o.threads = 1;
+		assert_int_equal(hc_horizon_run(&r, src, sizes, 3, &o, &err), HC_OK);
+		assert_int_equal(hc_horizon_draw(seed, 0, 3, 3, 3, HC_HORIZON_WINDOWS, 0, idx, per, NULL), HC_OK);
+		for (j = 0; j < 3; j++)
+			for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++)
+				assert_close(r->pts[j * HC_HORIZON_WEIGHTINGS + w].mean, *gaps_by_hand(idx, sizes[j], w), 1e-13);
+		assert_close(r->universe[HC_HORIZON_BUY_HOLD].p50, 1.087, 1e-13);
+		assert_close(r->universe[HC_HORIZON_REBALANCED].p50, 1.11925, 1e-13);
+		hc_horizon_result_free(r);
+		r = NULL;
+	}
+	/* The bootstrap is refused on gaps; a window of 2 periods starting at
+	 * the second period has only B and C listed. */
+	o.route = HC_HORIZON_BOOTSTRAP;
+	assert_int_equal(hc_horizon_run(&r, src, sizes, 3, &o, &err), HC_EUSAGE);
+	assert_null(r);
+	o.route = HC_HORIZON_AUTO;
+	o.years = 2.0 / 12.0;
+	assert_int_equal(hc_horizon_run(&r, src, sizes, 3, &o, &err), HC_EUSAGE);
+	assert_non_null(strstr(err.message, "bad holding count 3: the window starting"));
+	hc_source_free(src);
+}
+
 struct sweep {
 	const struct hc_source *src;
 	int route;
@@ -312,6 +397,34 @@ static void test_horizon_allocation_failure(void **state)
 	fixture_free(u);
 }
 
+/* The same sweep on a history with gaps (a late listing, a delisting):
+ * the ragged path's workspace. */
+static void test_horizon_allocation_failure_gaps(void **state)
+{
+	struct universe *u = fixture_random_universe(8, 30, 6);
+	struct sweep w = { NULL, HC_HORIZON_WINDOWS, NULL };
+	struct heapcheck_call call = { sweep_run, sweep_release, sweep_failed, &w };
+	struct hc_source_options so;
+	struct hc_source *src = NULL;
+	struct hc_error err;
+	size_t k;
+
+	(void)state;
+	assert_non_null(u);
+	for (k = 0; k < 5; k++)
+		u->x[0 * 30 + k] = NAN;
+	for (k = 20; k < 30; k++)
+		u->x[1 * 30 + k] = NAN;
+	u->has_missing = 1;
+	hc_source_options_init(&so);
+	so.ragged = 1;
+	assert_int_equal(hc_source_from_universe(&src, u, &so, &err), HC_OK);
+	assert_int_equal(src->kind, HC_SOURCE_RAGGED);
+	w.src = src;
+	assert_true(heapcheck_sweep(&call) > 10);
+	hc_source_free(src);
+}
+
 int main(int argc, char **argv)
 {
 	heapcheck_rerun_without_tcache(argv);
@@ -322,6 +435,8 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_horizon_threads_and_bootstrap_draws),
 		cmocka_unit_test(test_horizon_refusals),
 		cmocka_unit_test(test_horizon_allocation_failure),
+		cmocka_unit_test(test_horizon_gaps_by_hand),
+		cmocka_unit_test(test_horizon_allocation_failure_gaps),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);
