@@ -24,7 +24,9 @@ static const struct cli_option rules_own[] = {
 	{ "rules", 0, CLI_STRING, RUL(rules), "LIST",
 	  "rules to apply: near-floor, marginal, band, next-holding, tracking-error, lag-share, statman-borrowing, "
 	  "statman-lending, alexeev-tapon, alexeev-tapon-sampled, or all, exact, sampled (old names cost-benefit "
-	  "and shortfall still work)",
+	  "and shortfall still work); enough also takes the rules on the measures es95-near-floor, es99-near-floor, "
+	  "drawdown-near-floor, alexeev-tapon-es, or measures (not in all: they sample every portfolio's return "
+	  "series through the measures, up to 3x the time of the sd's sampled rules)",
 	  NULL, "all (exact only from summary statistics)" },
 	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
 	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
@@ -69,8 +71,9 @@ static const struct cli_option rules_own[] = {
 	  "exact rules' interval: studentized on the log count (bootstrap-t, Hall 1988), bias-corrected and "
 	  "accelerated (Efron 1987) or plain percentiles", interval_choices, "studentized" },
 	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
-	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled) and alexeev-tapon: re-samples "
-	  "portfolios and recomputes the exact spread per replicate, costly",
+	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled), alexeev-tapon and the rules on "
+	  "the measures: re-samples portfolios and recomputes the exact spread per replicate, costly (the measure "
+	  "rules: B more sampler runs with the measures, each at --bootstrap-paths)",
 	  NULL, NULL },
 	{ "bootstrap-paths", 0, CLI_COUNT, RUL(bootstrap_paths), "K",
 	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
@@ -146,8 +149,14 @@ int cli_rules_config(const char *cmd, const struct cli_rules *o, const struct cl
 		cfg->selected = RULES_ALL_MASK & ~RULES_FLAG(RULES_LAG_SHARE);
 	if (o->rules && hc_rules_parse_list(o->rules, &cfg->selected, &err))
 		return cli_fail(cmd, &err);
-	if (!have_data && (cfg->selected & (RULES_SAMPLED_MASK | RULES_SPREAD_MASK)))
-		return cli_usage_error(cmd, "the band, lag-share and alexeev-tapon rules need a universe file, not summary statistics");
+	if (!have_data && (cfg->selected & (RULES_SAMPLED_MASK | RULES_SPREAD_MASK | RULES_MEASURE_MASK)))
+		return cli_usage_error(cmd, "the band, lag-share, alexeev-tapon and measure rules need a universe file, not summary statistics");
+	if ((cfg->selected & RULES_MEASURE_MASK) && strcmp(cmd, "enough") != 0)
+		return cli_usage_error(cmd, "the rules on the measures (es95-near-floor, es99-near-floor, drawdown-near-floor, "
+				       "alexeev-tapon-es) run in holdcount enough only");
+	if (covariance && (cfg->selected & RULES_MEASURE_MASK))
+		return cli_usage_error(cmd, "the rules on the measures need each portfolio's return series, and a "
+				       "covariance matrix has none");
 	/* Everything but time-based figures works from a matrix (design.md section 8). */
 	if (covariance && (cfg->selected & RULES_FLAG(RULES_LAG_SHARE)))
 		return cli_usage_error(cmd, "the lag-share rule needs return series: it compounds each portfolio's "
@@ -195,7 +204,7 @@ int cli_enough_checks(const char *cmd, const struct cli_sampling *smp, const str
 	if ((strat->map || strat->per_stratum_max || strat->proportional) && !(cfg->selected & RULES_SAMPLED_MASK))
 		return cli_usage_error(cmd, "--strata applies to the sampled rules (band, lag-share, alexeev-tapon-sampled), "
 				       "and none is chosen");
-	if (smp->paths == 0 && (cfg->selected & RULES_SAMPLED_MASK))
+	if (smp->paths == 0 && (cfg->selected & (RULES_SAMPLED_MASK | RULES_MEASURE_MASK)))
 		return cli_usage_error(cmd, "--paths 0 leaves the sampled rules nothing to read: choose --rules exact");
 	return HC_OK;
 }
