@@ -25,8 +25,8 @@ static const struct cli_option rules_own[] = {
 	  "rules to apply: near-floor, marginal, band, next-holding, tracking-error, lag-share, statman-borrowing, "
 	  "statman-lending, alexeev-tapon, alexeev-tapon-sampled, or all, exact, sampled (old names cost-benefit "
 	  "and shortfall still work); enough also takes the rules on the measures es95-near-floor, es99-near-floor, "
-	  "drawdown-near-floor, alexeev-tapon-es, or measures (not in all: they sample every portfolio's return "
-	  "series through the measures, up to 3x the time of the sd's sampled rules)",
+	  "drawdown-near-floor, alexeev-tapon-es, or measures (not in all: they pass every sampled portfolio's "
+	  "return series through the measures, 2.5-7x the time of the sd's sampled rules)",
 	  NULL, "all (exact only from summary statistics)" },
 	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
 	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
@@ -73,7 +73,8 @@ static const struct cli_option rules_own[] = {
 	{ "bootstrap-sampled", 0, CLI_FLAG, RUL(bootstrap_sampled), NULL,
 	  "also bootstrap the sampled rules (band, lag-share, alexeev-tapon-sampled), alexeev-tapon and the rules on "
 	  "the measures: re-samples portfolios and recomputes the exact spread per replicate, costly (the measure "
-	  "rules: B more sampler runs with the measures, each at --bootstrap-paths)",
+	  "rules: one more sampler run with the measures a replicate, about 0.3 s of CPU at 1000 paths on "
+	  "139 securities x 240 periods)",
 	  NULL, NULL },
 	{ "bootstrap-paths", 0, CLI_COUNT, RUL(bootstrap_paths), "K",
 	  "portfolios a size in each replicate of --bootstrap-sampled", NULL, "1000" },
