@@ -38,6 +38,11 @@ the tool's own portfolios, and a direction from the literature.
    asserted there.
 5. The interval: with --bootstrap-sampled every measure rule has one, its
    ends ordered, over the replicates asked for.
+6. The command's contract (docs/enough.md, docs/reliability.md): --policy
+   takes a measure rule (the recommended count is its count, the sentence
+   names what it asks); `all` leaves the measure rules out; a covariance
+   matrix, --paths 0, --strata and `report` refuse them with exit 2 and one
+   message; --missing pairwise leaves them undefined with the reason.
 
 Environment: HOLDCOUNT, HOLDCOUNT_LIBRARY, HOLDCOUNT_TEST_TMP.
 """
@@ -305,11 +310,51 @@ def interval():
               "%r %r %r" % (lo, r["count_p50"], hi))
 
 
+def run(args):
+    return subprocess.run([HC] + args, capture_output=True, text=True)
+
+
+def contract():
+    path = os.path.join(TMP, "measrules_same.csv")
+    p = run(["enough", path, "--rules", "near-floor,measures", "--policy", "es95-near-floor", "--policy-at",
+             "estimate", "--paths", "500", "--bootstrap", "0", "--format", "json", "--quiet"])
+    out = json.loads(p.stdout)
+    rules = {r["rule"]: r for r in out["rules"]}
+    check("policy takes es95-near-floor", out["policy_rule"] == "es95-near-floor" and
+          out["policy_count"] == rules["es95-near-floor"]["count"], str(out.get("policy_count")))
+    check("policy sentence names the shortfall", "expected shortfall (95%)" in out["policy_sentence"],
+          out["policy_sentence"][:200])
+    p = run(["enough", path, "--rules", "all", "--paths", "200", "--bootstrap", "0", "--format", "json", "--quiet"])
+    names = [r["rule"] for r in json.loads(p.stdout)["rules"]]
+    check("all leaves the measure rules out", not any(n in NEAR or n == "alexeev-tapon-es" for n in names), str(names))
+    cov = os.path.join(TMP, "measrules_cov.csv")
+    r = np.loadtxt(path, delimiter=",", skiprows=1, usecols=range(1, 31))
+    c = np.cov(r, rowvar=False)
+    with open(cov, "w") as fp:
+        fp.write("id," + ",".join("LQX7%02d" % (i + 1) for i in range(30)) + "\n")
+        for i in range(30):
+            fp.write("LQX7%02d," % (i + 1) + ",".join(repr(float(x)) for x in c[i]) + "\n")
+    for args, words in ((["enough", cov, "--covariance", "--rules", "es95-near-floor"], "return series"),
+                        (["enough", path, "--rules", "measures", "--paths", "0"], "--paths 0"),
+                        (["report", path, "--rules", "alexeev-tapon-es", "-o", os.path.join(TMP, "measrules_rep")],
+                         "enough only")):
+        p = run(args + ["--quiet"] if args[0] == "enough" else args)
+        check("refused: %s" % " ".join(args[:1] + args[2:]), p.returncode == 2 and words in p.stderr and
+              len(p.stderr.strip().splitlines()) == 1, "exit %d: %s" % (p.returncode, p.stderr.strip()))
+    gaps = os.path.join(TMP, "measrules_ragged.csv")
+    p = run(["enough", gaps, "--missing", "pairwise", "--rules", "near-floor,es95-near-floor", "--paths", "200",
+             "--bootstrap", "0", "--format", "json", "--quiet"])
+    es = {r["rule"]: r for r in json.loads(p.stdout)["rules"]}["es95-near-floor"]
+    check("pairwise: undefined with the reason", es["count"] is None and "--missing alive" in (es["note"] or ""),
+          str(es))
+
+
 complete_enumeration()
 ragged_enumeration()
 same_portfolios()
 direction()
 interval()
+contract()
 if failures:
     print("\n".join(failures[:40]))
     print("%d failures" % len(failures))
