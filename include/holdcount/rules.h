@@ -324,7 +324,9 @@ int hc_rules_universe_return(const struct universe *u, double periods_per_year,
 /*
  * Every selected rule, in enum order, into res[0..*nres-1] (res has room for
  * RULES_COUNT).  Sampled rules are evaluated when in->sampled is set; else
- * they are reported as defined = 0 with the note "needs return data".
+ * they are reported as defined = 0 with the note "needs return data".  The
+ * measure rules (RULES_MEASURE_MASK) are always left so, with the note
+ * "needs each sampled portfolio's return series": measrules.h runs them.
  */
 int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
 		   struct rule_result *res, size_t *nres, struct hc_error *err);
