@@ -26,7 +26,7 @@ static const struct cli_option rules_own[] = {
 	  "statman-lending, alexeev-tapon, alexeev-tapon-sampled, or all, exact, sampled (old names cost-benefit "
 	  "and shortfall still work); enough also takes the rules on the measures es95-near-floor, es99-near-floor, "
 	  "drawdown-near-floor, alexeev-tapon-es, or measures (not in all: they pass every sampled portfolio's "
-	  "return series through the measures, 2.5-7x the time of the sd's sampled rules)",
+	  "return series through the measures, 2.5-9x the CPU time of the sd's sampled rules on the demo)",
 	  NULL, "all (exact only from summary statistics)" },
 	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
 	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
