@@ -29,7 +29,8 @@ static const struct cli_option rules_own[] = {
 	  "return series through the measures, 2.5-9x the CPU time of the sd's sampled rules on the demo)",
 	  NULL, "all (exact only from summary statistics)" },
 	{ "near-floor", 0, CLI_FRACTION, RUL(near_floor), "X",
-	  "near-floor: expected sd within X of the floor sd", NULL, "10%" },
+	  "near-floor: expected sd within X of the floor sd (also the X of es95-, es99- and drawdown-near-floor: "
+	  "the mean measure within X of the equal-weight universe's)", NULL, "10%" },
 	{ "marginal", 0, CLI_STRING, RUL(marginal), "EPS",
 	  "marginal: one more holding lowers the expected sd by less than EPS a year (0.10pp, 0.1% or 0.001)",
 	  NULL, "0.10pp" },
@@ -45,7 +46,8 @@ static const struct cli_option rules_own[] = {
 	{ "index-cost", 0, CLI_FRACTION, RUL(index_cost), "C",
 	  "statman-borrowing/-lending: the index fund's cost disadvantage a year", NULL, "0.5% (set yours)" },
 	{ "alexeev-tapon", 0, CLI_STRING, RUL(alexeev_tapon), "X:Q",
-	  "alexeev-tapon: a random portfolio removes at least X of the removable variance with probability Q",
+	  "alexeev-tapon: a random portfolio removes at least X of the removable variance with probability Q "
+	  "(also alexeev-tapon-es's X and Q, on the expected shortfall at 95%)",
 	  NULL, "90%:90%" },
 	{ "te-budget", 0, CLI_FRACTION, RUL(te_budget), "B",
 	  "tracking-error: expected tracking error against the universe within B a year", NULL, "2%" },
