@@ -13,6 +13,7 @@
 
 #include "holdcount/bootstrap.h"
 #include "holdcount/datacheck.h"
+#include "holdcount/measrules.h"
 #include "holdcount/memory.h"
 #include "holdcount/periodic.h"
 #include "holdcount/sampler.h"
@@ -146,6 +147,16 @@ static const int measured_sampled_coverage[2] = { 39, 95 };
  * the interval under-covered as much in the unflagged histories. */
 static const int measured_clustering_flagged[2] = { 11, 27 };
 
+static int measure_rules_bootstrapped(const struct hc_enough *e)
+{
+	size_t j;
+
+	for (j = 0; j < e->nrules; j++)
+		if ((RULES_FLAG(e->rules[j].rule) & RULES_MEASURE_MASK) && e->rules[j].bootstrapped)
+			return 1;
+	return 0;
+}
+
 /* What the interval's coverage is known to be, and whether this history
  * shows the volatility clustering under which it falls short. */
 static int add_coverage_notes(struct report *r, const struct hc_enough *e)
@@ -169,7 +180,8 @@ static int add_coverage_notes(struct report *r, const struct hc_enough *e)
 
 		snprintf(text + len, sizeof text - len, "; the sampled rules' percentile intervals held it in only "
 			 "%d-%d%% (read them as a rough guide); alexeev-tapon's percentile interval has not been "
-			 "measured", measured_sampled_coverage[0], measured_sampled_coverage[1]);
+			 "measured%s", measured_sampled_coverage[0], measured_sampled_coverage[1],
+			 measure_rules_bootstrapped(e) ? ", nor those of the rules on the measures" : "");
 	}
 	bad |= hc_report_add_note(r, text);
 	if (isnan(e->clustering_p))
@@ -259,6 +271,11 @@ static const char *const policy_phrase[RULES_COUNT] = {
 	"a levered index would add no more return than the index fund's cost disadvantage (Statman, 1987, lending investor)",
 	"a random portfolio removes most of the removable risk with high probability (Alexeev & Tapon, 2014)",
 	"a random portfolio removes most of the removable risk with high probability (Alexeev & Tapon, 2014, sampled)",
+	"a random equal-weight portfolio's mean expected shortfall (95%) is close to that of the equal-weight universe",
+	"a random equal-weight portfolio's mean expected shortfall (99%) is close to that of the equal-weight universe",
+	"a random equal-weight portfolio's mean maximum drawdown is close to that of the equal-weight universe",
+	"a random portfolio removes most of the removable expected shortfall (95%) with high probability "
+	"(after Alexeev & Tapon, 2014)",
 };
 
 /* The rule the policy takes: opt->policy, else the default, else the first
@@ -597,6 +614,76 @@ static int run_sampled(struct hc_enough *e, const struct hc_source *src,
 	return HC_OK;
 }
 
+/* The rules on the measures (measrules.h) from opt->paths random portfolios
+ * of src, complete or period by period; their results replace the
+ * placeholders hc_rules_evaluate left.  Unconstrained draws (no strata). */
+static int run_measure_rules(struct hc_enough *e, const struct hc_source *src,
+			     const struct hc_enough_options *opt, struct hc_error *err)
+{
+	struct sampler_options so;
+	struct rule_result mr[RULES_COUNT];
+	size_t n = 0, k, j, largest = 0;
+	int rc;
+
+	if (!(opt->rules.selected & RULES_MEASURE_MASK))
+		return HC_OK;
+	hc_sampler_options_init(&so);
+	so.paths = opt->paths;
+	so.seed = opt->seed;
+	so.threads = opt->threads;
+	so.periods_per_year = e->periods_per_year;
+	hc_progress_begin(&opt->progress, "sampling random portfolios for the rules on the measures",
+			  "sampling", "paths");
+	so.progress = opt->progress.update;
+	so.progress_ctx = opt->progress.ctx;
+	rc = hc_measrules_run(&opt->rules, src, &so, mr, &n, &largest, err);
+	hc_progress_end(&opt->progress);
+	if (rc)
+		return rc;
+	for (k = 0; k < n; k++)
+		for (j = 0; j < e->nrules; j++)
+			if (e->rules[j].rule == mr[k].rule)
+				e->rules[j] = mr[k];
+	e->paths = opt->paths;
+	if (largest > e->sampled_sizes)
+		e->sampled_sizes = largest;
+	return HC_OK;
+}
+
+/* The measure rules' interval with --bootstrap-sampled (bo: the replicates'
+ * kind, seed and block length); without it, a note says why there is none. */
+static int measure_intervals(struct hc_enough *e, const struct hc_source *src, struct bootstrap_options *bo,
+			     const struct hc_enough_options *opt, struct hc_error *err)
+{
+	struct sampler_options so;
+	size_t j;
+	int rc;
+
+	if (!(opt->rules.selected & RULES_MEASURE_MASK))
+		return HC_OK;
+	if (!opt->bootstrap_sampled) {
+		for (j = 0; j < e->nrules; j++)
+			if ((RULES_FLAG(e->rules[j].rule) & RULES_MEASURE_MASK) && e->rules[j].defined &&
+			    !e->rules[j].note[0])
+				snprintf(e->rules[j].note, sizeof e->rules[j].note, "no interval: the rules on the measures "
+					 "are bootstrapped only with --bootstrap-sampled (costly: each replicate re-samples "
+					 "the portfolios with their measures)");
+		return HC_OK;
+	}
+	hc_sampler_options_init(&so);
+	so.paths = opt->bootstrap_paths;
+	so.threads = opt->threads;
+	so.periods_per_year = e->periods_per_year;
+	hc_progress_begin(&opt->progress, "bootstrap of the rules on the measures", "measures bootstrap", "replicates");
+	bo->progress = opt->progress.update;
+	bo->progress_ctx = opt->progress.ctx;
+	rc = hc_measrules_bootstrap(&opt->rules, src, bo, &so, e->rules, e->nrules, err);
+	hc_progress_end(&opt->progress);
+	if (rc == HC_OK)
+		e->sampled_bootstrapped = 1;
+	return rc;
+}
+
 /* The exact rules' intervals from the replicates br of b, by opt->interval. */
 static int exact_intervals(struct hc_enough *e, const struct universe *u, const struct bootstrap_base *b,
 			   const struct bootstrap_options *bo, const struct bootstrap_result *br,
@@ -633,9 +720,10 @@ static int exact_intervals(struct hc_enough *e, const struct universe *u, const 
 	return rc;
 }
 
-static int run_bootstrap(struct hc_enough *e, const struct universe *u,
+static int run_bootstrap(struct hc_enough *e, const struct hc_source *src,
 			 const struct hc_enough_options *opt, struct hc_error *err)
 {
+	const struct universe *u = src->u;
 	const struct rules_config *cfg = &opt->rules;
 	struct bootstrap_base *b = NULL;
 	struct bootstrap_result *br = NULL;
@@ -689,6 +777,8 @@ static int run_bootstrap(struct hc_enough *e, const struct universe *u,
 		hc_progress_end(&opt->progress);
 		e->sampled_bootstrapped = rc == HC_OK;
 	}
+	if (rc == HC_OK)
+		rc = measure_intervals(e, src, &bo, opt, err);
 	hc_bootstrap_result_free(br);
 	hc_bootstrap_base_free(b);
 	return rc;
@@ -736,12 +826,19 @@ static int run_series(struct hc_enough *e, const struct hc_source *src, const st
 		if ((rc = run_sampled(e, src, opt, err)))
 			return rc;
 	}
+	if (u->has_missing) {
+		for (size_t j = 0; j < e->nrules; j++)
+			if (RULES_FLAG(e->rules[j].rule) & RULES_MEASURE_MASK)
+				snprintf(e->rules[j].note, sizeof e->rules[j].note, "needs each portfolio's return series: "
+					 "complete data, or the gaps read period by period (--missing alive)");
+	} else if ((rc = run_measure_rules(e, src, opt, err)))
+		return rc;
 	if (opt->bootstrap == 0)
 		e->no_interval = "no interval: --bootstrap 0";
 	else if (u->has_missing)
 		e->no_interval = "no interval: the bootstrap resamples whole periods and needs complete data";
 	else
-		rc = run_bootstrap(e, u, opt, err);
+		rc = run_bootstrap(e, src, opt, err);
 	return rc;
 }
 
@@ -803,6 +900,8 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 					e->rules[j] = sr[k];
 		e->paths = opt->paths;
 	}
+	if ((rc = run_measure_rules(e, src, opt, err)))
+		return rc;
 	if (opt->bootstrap == 0) {
 		e->no_interval = "no interval: --bootstrap 0";
 		return HC_OK;
@@ -844,6 +943,8 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 		hc_progress_end(&opt->progress);
 		e->sampled_bootstrapped = rc == HC_OK;
 	}
+	if (rc == HC_OK)
+		rc = measure_intervals(e, src, &bo, opt, err);
 	return rc;
 }
 
@@ -859,6 +960,17 @@ static int check(const struct hc_source *src, const struct hc_enough_options *op
 				"(complete, or with gaps read period by period under --missing alive), not %s",
 				src->kind == HC_SOURCE_MATRIX ? "a covariance matrix"
 				: "a history with gaps under --missing pairwise");
+	if (cfg->selected & RULES_MEASURE_MASK) {
+		if (opt->paths == 0)
+			return hc_error(err, HC_EUSAGE, "--paths 0 leaves the rules on the measures nothing to read");
+		if (strata_given(opt))
+			return hc_error(err, HC_EUSAGE, "--strata constrains the sd's sampled rules; the rules on the "
+					"measures draw unconstrained portfolios: run them without --strata");
+		if (src->kind == HC_SOURCE_MATRIX)
+			return hc_error(err, HC_EUSAGE, "the rules on the measures (es95-near-floor, es99-near-floor, "
+					"drawdown-near-floor, alexeev-tapon-es) need each portfolio's return series, and a "
+					"covariance matrix has none");
+	}
 	if (strata_given(opt) && !(cfg->selected & RULES_SAMPLED_MASK))
 		return hc_error(err, HC_EUSAGE, "--strata applies to the sampled rules (band, lag-share, "
 				"alexeev-tapon-sampled), and none is chosen");
@@ -928,9 +1040,9 @@ int hc_enough_summary(struct hc_enough **out, double vbar, double cbar, size_t m
 	 * -v-bar/(M-1), M not 1), by the same function. */
 	if ((rc = hc_moments_from_summary(&mo, vbar, cbar, m, err)))
 		return rc;
-	if (opt->rules.selected & (RULES_SAMPLED_MASK | RULES_SPREAD_MASK))
-		return hc_error(err, HC_EUSAGE, "the band, lag-share and alexeev-tapon rules need a universe file, "
-				"not summary statistics");
+	if (opt->rules.selected & (RULES_SAMPLED_MASK | RULES_SPREAD_MASK | RULES_MEASURE_MASK))
+		return hc_error(err, HC_EUSAGE, "the band, lag-share, alexeev-tapon and measure rules need a universe "
+				"file, not summary statistics");
 	if (opt->measures)
 		return hc_error(err, HC_EUSAGE, "--measures needs each portfolio's return series: a universe file, "
 				"not summary statistics");

@@ -24,7 +24,8 @@
 static const char *const rule_names[RULES_COUNT] = {
 	"near-floor", "marginal", "band", "next-holding", "tracking-error",
 	"lag-share", "statman-borrowing", "statman-lending", "alexeev-tapon",
-	"alexeev-tapon-sampled"
+	"alexeev-tapon-sampled", "es95-near-floor", "es99-near-floor", "drawdown-near-floor",
+	"alexeev-tapon-es"
 };
 
 /* Earlier spellings, still accepted by hc_rules_parse_list so that scripts
@@ -39,10 +40,14 @@ static const struct { const char *name; int rule; } rule_aliases[] = {
 static const char *const rule_units[2][RULES_COUNT] = {
 	{ "sd a year", "sd reduction a year", "sd a year (quantile)",
 	  "return a year", "RMS tracking error a year", "share of portfolios",
-	  "return a year", "return a year", "share of portfolios", "share of portfolios" },
+	  "return a year", "return a year", "share of portfolios", "share of portfolios",
+	  "expected shortfall 95% per period (mean)", "expected shortfall 99% per period (mean)",
+	  "maximum drawdown over the sample (mean)", "share of portfolios" },
 	{ "sd per period", "sd reduction per period", "sd per period (quantile)",
 	  "return per period", "RMS tracking error per period", "share of portfolios",
-	  "return per period", "return per period", "share of portfolios", "share of portfolios" }
+	  "return per period", "return per period", "share of portfolios", "share of portfolios",
+	  "expected shortfall 95% per period (mean)", "expected shortfall 99% per period (mean)",
+	  "maximum drawdown over the sample (mean)", "share of portfolios" }
 };
 
 /* " a year" or " per period" after an amount. */
@@ -120,6 +125,7 @@ static int lookup_rule(const char *s, size_t len, unsigned *mask)
 		{ "all", RULES_ALL_MASK },
 		{ "exact", RULES_EXACT_MASK },
 		{ "sampled", RULES_SAMPLED_MASK },
+		{ "measures", RULES_MEASURE_MASK },
 	};
 	size_t k;
 
@@ -152,7 +158,7 @@ int hc_rules_parse_list(const char *text, unsigned *mask, struct hc_error *err)
 
 		if (lookup_rule(p, len, &one) != 0)
 			return hc_error(err, HC_EUSAGE,
-					"bad rule list: '%.*s' is not a rule (expected near-floor, marginal, band, next-holding, tracking-error, lag-share, statman-borrowing, statman-lending, alexeev-tapon, alexeev-tapon-sampled, all, exact or sampled)",
+					"bad rule list: '%.*s' is not a rule (expected near-floor, marginal, band, next-holding, tracking-error, lag-share, statman-borrowing, statman-lending, alexeev-tapon, alexeev-tapon-sampled, es95-near-floor, es99-near-floor, drawdown-near-floor, alexeev-tapon-es, all, exact, sampled or measures)",
 					(int)len, p);
 		out |= one;
 		if (!end)
@@ -408,6 +414,9 @@ static void rule_parameters(const struct rules_config *cfg, int rule, char *buf,
 
 	switch (rule) {
 	case RULES_NEAR_FLOOR:
+	case RULES_ES95_NEAR_FLOOR:
+	case RULES_ES99_NEAR_FLOOR:
+	case RULES_DRAWDOWN_NEAR_FLOOR:
 		pct(a, sizeof a, cfg->near_floor_x);
 		snprintf(buf, len, "x=%s", a);
 		break;
@@ -438,6 +447,7 @@ static void rule_parameters(const struct rules_config *cfg, int rule, char *buf,
 		break;
 	case RULES_ALEXEEV_TAPON:
 	case RULES_ALEXEEV_TAPON_SAMPLED:
+	case RULES_ALEXEEV_TAPON_ES:
 		pct(a, sizeof a, cfg->at_x);
 		pct(b, sizeof b, cfg->at_q);
 		snprintf(buf, len, "x=%s q=%s", a, b);
@@ -936,10 +946,12 @@ int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *
 					     in->periods_per_year, r, err);
 		else if (rule == RULES_ALEXEEV_TAPON)
 			status = hc_rules_alexeev_tapon(cfg, in->mo, r, err);
-		else if (!in->sampled) {
+		else if (!in->sampled || (RULES_FLAG(rule) & RULES_MEASURE_MASK)) {
+			/* the measure rules are measrules.h's, run by the caller */
 			result_init(cfg, rule, r);
 			r->defined = 0;
-			snprintf(r->note, sizeof r->note, "needs return data and sampled portfolios");
+			snprintf(r->note, sizeof r->note, (RULES_FLAG(rule) & RULES_MEASURE_MASK)
+				 ? "needs each sampled portfolio's return series" : "needs return data and sampled portfolios");
 			status = HC_OK;
 		} else if (rule == RULES_BAND)
 			status = hc_rules_band(cfg, in->sampled, in->cbar, in->periods_per_year, r, err);
@@ -952,6 +964,160 @@ int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *
 		n++;
 	}
 	*nres = n;
+	return HC_OK;
+}
+
+/* ---- rules on the measures beyond the sd -------------------------------- */
+
+/* The measure (measures.h) a measure rule reads. */
+static int rule_measure(int rule)
+{
+	return rule == RULES_ES95_NEAR_FLOOR ? HC_MEASURE_ES95
+	     : rule == RULES_ES99_NEAR_FLOOR ? HC_MEASURE_ES99
+	     : rule == RULES_DRAWDOWN_NEAR_FLOOR ? HC_MEASURE_MAX_DRAWDOWN : HC_MEASURE_ES95;
+}
+
+unsigned hc_rules_measures_needed(unsigned selected)
+{
+	unsigned mask = 0;
+	int rule;
+
+	for (rule = 0; rule < RULES_COUNT; rule++)
+		if (selected & RULES_MEASURE_MASK & RULES_FLAG(rule))
+			mask |= 1u << rule_measure(rule);
+	return mask;
+}
+
+static int check_measured(const struct sampler_result *r, int measure, struct hc_error *err)
+{
+	int status = check_sampled(r, err);
+
+	if (status != HC_OK)
+		return status;
+	if (!r->measures_value || !(r->measures & (1u << measure)))
+		return hc_error(err, HC_EUSAGE, "the rule on %s needs each portfolio's measures",
+				hc_measure_key(measure));
+	return HC_OK;
+}
+
+/* The mean over the paths of one measure at column j of r. */
+static double column_measure_mean(const struct sampler_result *r, size_t j, int measure)
+{
+	double s = 0;
+	size_t k;
+
+	for (k = 0; k < r->paths; k++)
+		s += r->measures_value[(k * r->nsizes + j) * HC_MEASURE_COUNT + measure];
+	return s / (double)r->paths;
+}
+
+/*
+ * Near-floor on a measure: the mean of the measure over the sampled
+ * N-holding portfolios within x of its floor, the equal-weight universe's
+ * own value (the value every portfolio reaches at N = M).  The sd's
+ * near-floor compares with the unbounded universe's floor sqrt(c-bar);
+ * the measures have no such closed form, so their floor is the universe's
+ * value (docs/enough.md says what that changes).  Settled from the top, as
+ * the other sampled rules.
+ */
+int hc_rules_measure_near_floor(const struct rules_config *cfg, int rule, const struct sampler_result *r,
+				struct rule_result *res, struct hc_error *err)
+{
+	int measure = rule_measure(rule), status;
+	double floor_value, limit;
+	size_t j;
+
+	if (rule != RULES_ES95_NEAR_FLOOR && rule != RULES_ES99_NEAR_FLOOR && rule != RULES_DRAWDOWN_NEAR_FLOOR)
+		return hc_error(err, HC_EUSAGE, "rule %d is not a near-floor rule on a measure", rule);
+	if ((status = check_measured(r, measure, err)) != HC_OK)
+		return status;
+	result_init(cfg, rule, res);
+	floor_value = r->universe_measures[measure];
+	if (!(floor_value > 0)) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note, "undefined: the equal-weight universe's %s is %.4g, not above zero",
+			 hc_measure_title(measure), floor_value);
+		return HC_OK;
+	}
+	limit = (1 + cfg->near_floor_x) * floor_value;
+	res->threshold = limit;
+	for (j = r->nsizes; j-- > 0;) {
+		double mean;
+
+		if (!size_feasible(r, j))
+			continue;
+		mean = column_measure_mean(r, j, measure);
+		if (!(mean <= limit))
+			break;
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = mean;
+	}
+	if (!res->met)
+		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
+	grid_note(res, r);
+	return HC_OK;
+}
+
+/*
+ * Alexeev & Tapon's quantile form on the expected shortfall at 95%: the
+ * removable ES runs from the mean ES of the sampled one-holding portfolios
+ * (r->sizes[0] must be 1) down to the equal-weight universe's; a portfolio
+ * of ES e removes (ES(1) - e)/(ES(1) - ES(M)) of it.  The share of sampled
+ * N-holding portfolios with e <= ES(1) - x (ES(1) - ES(M)) is counted
+ * directly: a share of at least q at or below the limit is the same test
+ * as the empirical (inverse-cdf) q-quantile of e being at most the limit,
+ * so neither a sort nor a selection is needed.  Settled from the top.
+ * Alexeev & Tapon (2014), "The number of stocks in your portfolio should
+ * be larger than you think", Journal of Investment Strategies 4(1); the
+ * working paper "Equity Portfolio Diversification: How Many Stocks are
+ * Enough?", SSRN 2182295 (2012): confidence bands that assure a given
+ * reduction of the diversifiable risk, expected shortfall among the
+ * measures (docs/enough.md says what they did and what this does).
+ */
+int hc_rules_alexeev_tapon_es(const struct rules_config *cfg, const struct sampler_result *r,
+			      struct rule_result *res, struct hc_error *err)
+{
+	double es1, esm, limit;
+	size_t j, k;
+	int status;
+
+	if ((status = check_measured(r, HC_MEASURE_ES95, err)) != HC_OK)
+		return status;
+	result_init(cfg, RULES_ALEXEEV_TAPON_ES, res);
+	res->threshold = cfg->at_q;
+	if (r->sizes[0] != 1) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note, "undefined: needs sampled one-holding portfolios for ES(1)");
+		return HC_OK;
+	}
+	es1 = column_measure_mean(r, 0, HC_MEASURE_ES95);
+	esm = r->universe_measures[HC_MEASURE_ES95];
+	if (!(es1 - esm > 0)) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note, "undefined: no expected shortfall to remove (one holding's mean "
+			 "%.4g not above the universe's %.4g)", es1, esm);
+		return HC_OK;
+	}
+	limit = es1 - cfg->at_x * (es1 - esm);
+	for (j = r->nsizes; j-- > 0;) {
+		size_t removed = 0;
+		double share;
+
+		if (!size_feasible(r, j))
+			continue;
+		for (k = 0; k < r->paths; k++)
+			removed += r->measures_value[(k * r->nsizes + j) * HC_MEASURE_COUNT + HC_MEASURE_ES95] <= limit;
+		share = (double)removed / (double)r->paths;
+		if (!(share >= cfg->at_q))
+			break;
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = share;
+	}
+	if (!res->met)
+		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
+	grid_note(res, r);
 	return HC_OK;
 }
 
@@ -996,7 +1162,7 @@ static void note_excluded(struct rule_result *res)
 		snprintf(res->note, sizeof res->note,
 			 "interval excludes the estimate: replicate counts lean %s it (resampling re-estimates "
 			 "the means%s)", (double)res->count < res->count_p05 ? "above" : "below",
-			 RULES_FLAG(res->rule) & RULES_SAMPLED_MASK ? "; fewer, fresh portfolios" : "");
+			 RULES_FLAG(res->rule) & (RULES_SAMPLED_MASK | RULES_MEASURE_MASK) ? "; fewer, fresh portfolios" : "");
 }
 
 void hc_rules_set_interval(struct rule_result *res, size_t *count, size_t nrep)
@@ -1405,7 +1571,8 @@ static int set_percentile(struct report_table *t, size_t row, size_t col,
 /* Rules whose value and threshold are shares of portfolios, not amounts. */
 static int rule_is_share(int rule)
 {
-	return rule == RULES_LAG_SHARE || rule == RULES_ALEXEEV_TAPON || rule == RULES_ALEXEEV_TAPON_SAMPLED;
+	return rule == RULES_LAG_SHARE || rule == RULES_ALEXEEV_TAPON || rule == RULES_ALEXEEV_TAPON_SAMPLED ||
+	       rule == RULES_ALEXEEV_TAPON_ES;
 }
 
 /* The value or threshold of a rule: the column's percent style for yearly

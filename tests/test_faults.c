@@ -1,5 +1,6 @@
 /*
- * test_faults.c - allocation-failure sweeps over the loaders.
+ * test_faults.c - allocation-failure sweeps over the loaders and the rules on
+ * the measures (measrules.h: the staged run and its bootstrap).
  *
  * For each loader, the k-th allocation is made to fail for k = 0, 1, 2, ...
  * until a run succeeds (the idea behind SQLite's fault simulation: every
@@ -23,6 +24,7 @@
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
 #include "holdcount/holdings.h"
+#include "holdcount/measrules.h"
 #include "holdcount/memory.h"
 #include "holdcount/universe.h"
 
@@ -218,6 +220,74 @@ static void test_faults_curve_parse_sizes(void **state)
 	hc_free(sizes);
 }
 
+
+/* The rules on the measures (measrules.h) on the universe above, and their
+ * bootstrap: every allocation failing in turn gives HC_ENOMEM and nothing
+ * filled; the run that succeeds gives the fault-free counts. */
+static void test_faults_measrules_run_and_bootstrap(void **state)
+{
+	struct universe_options uo;
+	struct universe *u = NULL;
+	struct hc_source src;
+	struct rules_config cfg;
+	struct sampler_options so;
+	struct bootstrap_options bo;
+	struct rule_result want[4], got[4];
+	struct hc_error err;
+	size_t nwant, ngot, k2;
+	long k;
+	int rc;
+
+	(void)state;
+	hc_universe_options_init(&uo);
+	assert_int_equal(hc_universe_load_buffer(&u, "faults.csv", universe_csv, sizeof universe_csv - 1, &uo, &err),
+			 HC_OK);
+	hc_source_init_series(&src, u);
+	hc_rules_config_init(&cfg);
+	cfg.selected = RULES_MEASURE_MASK;
+	hc_sampler_options_init(&so);
+	so.paths = 40;
+	so.seed = 3;
+	so.threads = 1;
+	assert_int_equal(hc_measrules_run(&cfg, &src, &so, want, &nwant, NULL, &err), HC_OK);
+	assert_int_equal(nwant, 4);
+	for (k = 0; k < SWEEP_LIMIT; k++) {
+		hc_error_clear(&err);
+		ngot = 99;
+		hc_alloc_fail_after(k);
+		rc = hc_measrules_run(&cfg, &src, &so, got, &ngot, NULL, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_OK)
+			break;
+		assert_int_equal(rc, HC_ENOMEM);
+		assert_int_equal(ngot, 0);
+		assert_true(err.message[0] != '\0');
+	}
+	assert_true(k > 0 && k < SWEEP_LIMIT);
+	assert_int_equal(ngot, nwant);
+	for (k2 = 0; k2 < nwant; k2++)
+		assert_true(got[k2].met == want[k2].met && got[k2].count == want[k2].count);
+	hc_bootstrap_options_init(&bo);
+	bo.replicates = 2;
+	bo.block_length = 2;
+	bo.seed = 5;
+	for (k = 0; k < SWEEP_LIMIT; k++) {
+		memcpy(got, want, sizeof want);
+		hc_error_clear(&err);
+		hc_alloc_fail_after(k);
+		rc = hc_measrules_bootstrap(&cfg, &src, &bo, &so, got, nwant, &err);
+		hc_alloc_fail_after(-1);
+		if (rc == HC_OK)
+			break;
+		assert_int_equal(rc, HC_ENOMEM);
+	}
+	assert_true(k > 0 && k < SWEEP_LIMIT);
+	for (k2 = 0; k2 < nwant; k2++)
+		if (want[k2].defined)
+			assert_int_equal(got[k2].replicates, 2);
+	hc_universe_free(u);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -226,6 +296,7 @@ int main(void)
 		cmocka_unit_test(test_faults_holdings_load_buffer),
 		cmocka_unit_test(test_faults_labels_load_buffer),
 		cmocka_unit_test(test_faults_curve_parse_sizes),
+		cmocka_unit_test(test_faults_measrules_run_and_bootstrap),
 	};
 
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -1040,7 +1040,7 @@ static void test_rules_evaluate_selects_and_reports_sampled_needs(void **state)
 
 	hc_rules_config_init(&cfg);
 	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
-	assert_int_equal(n, RULES_COUNT);
+	assert_int_equal(n, (size_t)__builtin_popcount(RULES_ALL_MASK));
 	assert_string_equal(res[2].name, "band");
 	assert_false(res[2].defined);
 	assert_string_equal(res[2].note, "needs return data and sampled portfolios");
@@ -1130,7 +1130,7 @@ static void test_rules_report_contract_columns(void **state)
 	assert_int_equal(t->ncols, 13);
 	for (k = 0; k < 13; k++)
 		assert_string_equal(t->cols[k].key, keys[k]);
-	assert_int_equal(t->nrows, RULES_COUNT);
+	assert_int_equal(t->nrows, (size_t)__builtin_popcount(RULES_ALL_MASK));
 	/* near-floor: count 20, interval with a "not met" 95th percentile */
 	assert_int_equal(t->cells[2].kind, REPORT_INT);
 	assert_int_equal(t->cells[2].integer, 20);
@@ -1171,6 +1171,138 @@ static void test_rules_report_contract_columns(void **state)
 	assert_true(fail > 10 && fail < 200);
 }
 
+
+/* A hand-made sample with measures: paths x sizes 1..nsizes, one measure's
+ * values v[k*nsizes + j] in the measures' cells. */
+struct measured_sample {
+	struct sampler_result r;
+	size_t sizes[4];
+	double cells[4 * 4 * HC_MEASURE_COUNT];
+};
+
+static void measured_sample_init(struct measured_sample *s, size_t paths, size_t nsizes, int measure,
+				 const double *v, double universe)
+{
+	size_t k;
+
+	memset(s, 0, sizeof *s);
+	for (k = 0; k < nsizes; k++)
+		s->sizes[k] = k + 1;
+	for (k = 0; k < paths * nsizes; k++)
+		s->cells[k * HC_MEASURE_COUNT + measure] = v[k];
+	s->r.paths = paths;
+	s->r.nsizes = nsizes;
+	s->r.sizes = s->sizes;
+	s->r.measures = 1u << measure;
+	s->r.measures_value = s->cells;
+	for (k = 0; k < HC_MEASURE_COUNT; k++)
+		s->r.universe_measures[k] = NAN;
+	s->r.universe_measures[measure] = universe;
+}
+
+static void test_rules_measure_near_floor_settles(void **state)
+{
+	/* rows are paths; means by size (by hand): 0.12, 0.095, 0.105, 0.28/3;
+	 * the limit 1.1 x 0.088 = 0.0968: size 2 dips under it and size 3 comes
+	 * back above, so the settled count is 4, its mean 0.28/3 */
+	static const double v[] = { 0.13, 0.09, 0.10, 0.11,
+				    0.11, 0.10, 0.11, 0.08,
+				    0.12, 0.095, 0.105, 0.09 };
+	struct measured_sample s;
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	measured_sample_init(&s, 3, 4, HC_MEASURE_ES95, v, 0.088);
+	assert_int_equal(hc_rules_measure_near_floor(&cfg, RULES_ES95_NEAR_FLOOR, &s.r, &res, &err), HC_OK);
+	assert_true(res.defined && res.met);
+	assert_int_equal(res.count, 4);
+	assert_float_equal(res.value, 0.28 / 3, 1e-15);
+	assert_float_equal(res.threshold, 0.0968, 1e-15);
+	assert_string_equal(res.name, "es95-near-floor");
+	assert_string_equal(res.parameters, "x=10%");
+	/* the drawdown rule reads its own measure: absent here */
+	assert_int_equal(hc_rules_measure_near_floor(&cfg, RULES_DRAWDOWN_NEAR_FLOOR, &s.r, &res, &err), HC_EUSAGE);
+	assert_int_equal(hc_rules_measure_near_floor(&cfg, RULES_BAND, &s.r, &res, &err), HC_EUSAGE);
+	/* a universe value of zero leaves nothing to be near */
+	s.r.universe_measures[HC_MEASURE_ES95] = 0;
+	assert_int_equal(hc_rules_measure_near_floor(&cfg, RULES_ES95_NEAR_FLOOR, &s.r, &res, &err), HC_OK);
+	assert_false(res.defined);
+	assert_non_null(strstr(res.note, "not above zero"));
+	s.r.measures_value = NULL;
+	assert_int_equal(hc_rules_measure_near_floor(&cfg, RULES_ES95_NEAR_FLOOR, &s.r, &res, &err), HC_EUSAGE);
+}
+
+static void test_rules_alexeev_tapon_es_counts_shares(void **state)
+{
+	/* ES(1) mean 0.14 (by hand), universe 0.06, x = 50%: limit 0.10; q = 75%.
+	 * Shares at or below it: size 1 1/4, size 2 3/4 (0.10 counts), size 3
+	 * 3/4: count 2, value 0.75 */
+	static const double v[] = { 0.20, 0.09, 0.07,
+				    0.10, 0.11, 0.08,
+				    0.14, 0.10, 0.12,
+				    0.12, 0.095, 0.09 };
+	struct measured_sample s;
+	struct rules_config cfg;
+	struct rule_result res;
+	struct hc_error err;
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	cfg.at_x = 0.5;
+	cfg.at_q = 0.75;
+	measured_sample_init(&s, 4, 3, HC_MEASURE_ES95, v, 0.06);
+	assert_int_equal(hc_rules_alexeev_tapon_es(&cfg, &s.r, &res, &err), HC_OK);
+	assert_true(res.defined && res.met);
+	assert_int_equal(res.count, 2);
+	assert_float_equal(res.value, 0.75, 0);
+	assert_float_equal(res.threshold, 0.75, 0);
+	assert_string_equal(res.unit, "share of portfolios");
+	/* q above every share from size 2 on: not met */
+	cfg.at_q = 0.8;
+	assert_int_equal(hc_rules_alexeev_tapon_es(&cfg, &s.r, &res, &err), HC_OK);
+	assert_false(res.met);
+	assert_non_null(strstr(res.note, "not met"));
+	/* nothing to remove when the universe's ES is the one holding's */
+	s.r.universe_measures[HC_MEASURE_ES95] = 0.14;
+	assert_int_equal(hc_rules_alexeev_tapon_es(&cfg, &s.r, &res, &err), HC_OK);
+	assert_false(res.defined);
+	/* ES(1) needs size 1 sampled */
+	s.r.universe_measures[HC_MEASURE_ES95] = 0.06;
+	s.sizes[0] = 2, s.sizes[1] = 3, s.sizes[2] = 4;
+	assert_int_equal(hc_rules_alexeev_tapon_es(&cfg, &s.r, &res, &err), HC_OK);
+	assert_false(res.defined);
+	assert_non_null(strstr(res.note, "one-holding"));
+}
+
+static void test_rules_measure_group_and_needs(void **state)
+{
+	struct rules_config cfg;
+	struct rules_input in = { 0.011384, 0.0021937, 500, 12, NULL, 0, NULL };
+	struct rule_result res[RULES_COUNT];
+	struct hc_error err;
+	unsigned mask;
+	size_t n;
+
+	(void)state;
+	assert_int_equal(hc_rules_parse_list("measures", &mask, &err), HC_OK);
+	assert_int_equal(mask, RULES_MEASURE_MASK);
+	assert_int_equal(RULES_ALL_MASK & RULES_MEASURE_MASK, 0);
+	assert_int_equal(hc_rules_parse_list("es99-near-floor,alexeev-tapon-es", &mask, &err), HC_OK);
+	assert_int_equal(hc_rules_measures_needed(mask), (1u << HC_MEASURE_ES99) | (1u << HC_MEASURE_ES95));
+	assert_int_equal(hc_rules_measures_needed(RULES_FLAG(RULES_DRAWDOWN_NEAR_FLOOR) | RULES_FLAG(RULES_BAND)),
+			 1u << HC_MEASURE_MAX_DRAWDOWN);
+	/* hc_rules_evaluate leaves them for measrules.h, with a note */
+	hc_rules_config_init(&cfg);
+	cfg.selected = RULES_FLAG(RULES_NEAR_FLOOR) | RULES_FLAG(RULES_ES95_NEAR_FLOOR);
+	assert_int_equal(hc_rules_evaluate(&cfg, &in, res, &n, &err), HC_OK);
+	assert_int_equal(n, 2);
+	assert_false(res[1].defined);
+	assert_string_equal(res[1].note, "needs each sampled portfolio's return series");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -1193,6 +1325,9 @@ int main(void)
 		cmocka_unit_test(test_rules_alexeev_tapon_matches_enumeration),
 		cmocka_unit_test(test_rules_report_contract_columns),
 		cmocka_unit_test(test_rules_per_period_units),
+		cmocka_unit_test(test_rules_measure_near_floor_settles),
+		cmocka_unit_test(test_rules_alexeev_tapon_es_counts_shares),
+		cmocka_unit_test(test_rules_measure_group_and_needs),
 	};
 
 	gsl_set_error_handler_off();

@@ -56,7 +56,13 @@ enum rules_id {
 	RULES_STATMAN_LENDING = 7,   /* the same with the lending investor's premium */
 	RULES_ALEXEEV_TAPON = 8,  /* P(share of removable variance removed >= x) >= q, two-moment gamma from the exact spread */
 	RULES_ALEXEEV_TAPON_SAMPLED = 9, /* the same from sampled portfolios, every sampled n >= N */
-	RULES_COUNT = 10
+	/* Rules on the measures beyond the sd (measrules.h), from each sampled
+	 * portfolio's own return series, every sampled n >= N: */
+	RULES_ES95_NEAR_FLOOR = 10,      /* mean ES95(N) <= (1+x) ES95 of the equal-weight universe */
+	RULES_ES99_NEAR_FLOOR = 11,      /* the same at 99% */
+	RULES_DRAWDOWN_NEAR_FLOOR = 12,  /* mean max drawdown(N) <= (1+x) the universe's */
+	RULES_ALEXEEV_TAPON_ES = 13,     /* P(share of the removable ES95 removed >= x) >= q (Alexeev & Tapon 2014) */
+	RULES_COUNT = 14
 };
 
 #define RULES_FLAG(id) (1u << (id))
@@ -69,6 +75,12 @@ enum rules_id {
 #define RULES_SAMPLED_MASK (RULES_FLAG(RULES_BAND) | RULES_FLAG(RULES_LAG_SHARE) | \
 			    RULES_FLAG(RULES_ALEXEEV_TAPON_SAMPLED))
 #define RULES_ALL_MASK (RULES_EXACT_MASK | RULES_SPREAD_MASK | RULES_SAMPLED_MASK)
+/* The rules on the measures beyond the sd (measrules.h): each portfolio's
+ * series through the measures, so they are chosen by name or by the group
+ * "measures" only, not by "all" (their sampling costs up to three times
+ * the sd's, and their memory K x sizes x 11 doubles). */
+#define RULES_MEASURE_MASK (RULES_FLAG(RULES_ES95_NEAR_FLOOR) | RULES_FLAG(RULES_ES99_NEAR_FLOOR) | \
+			    RULES_FLAG(RULES_DRAWDOWN_NEAR_FLOOR) | RULES_FLAG(RULES_ALEXEEV_TAPON_ES))
 
 /* Defaults, named once (design.md section 5; common practice, no single
  * source, except where a paper is named in docs/enough.md). */
@@ -273,6 +285,35 @@ int hc_rules_alexeev_tapon_sampled_between(const struct rules_config *cfg, const
 					   struct rule_result *res, struct hc_error *err);
 
 /*
+ * Rules on the measures beyond the sd (measures.h), from sampled portfolios
+ * whose measures were asked for (r->measures_value with the rule's measure;
+ * HC_EUSAGE otherwise), settled as the other sampled rules.  Sources and
+ * definitions in docs/enough.md.
+ *
+ * hc_rules_measure_near_floor (rule es95-near-floor, es99-near-floor or
+ * drawdown-near-floor): the mean of the measure over the N-holding
+ * portfolios at most (1 + cfg->near_floor_x) times the equal-weight
+ * universe's own value (r->universe_measures); undefined when that value
+ * is not above zero.  value is the mean at the count (per period for the
+ * expected shortfall, over the sample for the drawdown), threshold the
+ * limit.
+ *
+ * hc_rules_alexeev_tapon_es: Alexeev & Tapon's quantile form on the
+ * expected shortfall at 95%: the smallest N from which at least cfg->at_q
+ * of the sampled portfolios remove at least cfg->at_x of the removable
+ * ES, the mean ES of the one-holding portfolios (r->sizes[0] must be 1)
+ * less the universe's.  value is the share at the count, threshold q.
+ *
+ * hc_rules_measures_needed: the measures.h set the selected measure rules
+ * read.
+ */
+int hc_rules_measure_near_floor(const struct rules_config *cfg, int rule, const struct sampler_result *r,
+				struct rule_result *res, struct hc_error *err);
+int hc_rules_alexeev_tapon_es(const struct rules_config *cfg, const struct sampler_result *r,
+			      struct rule_result *res, struct hc_error *err);
+unsigned hc_rules_measures_needed(unsigned selected);
+
+/*
  * Compound annualised return of the universe's equal-weight portfolio,
  * rebalanced every period: prod_t (1 + mean_i r_ti)^(P/T) - 1 (complete data
  * only).  HC_EDATA when a period's portfolio return is -100% or worse.
@@ -283,7 +324,9 @@ int hc_rules_universe_return(const struct universe *u, double periods_per_year,
 /*
  * Every selected rule, in enum order, into res[0..*nres-1] (res has room for
  * RULES_COUNT).  Sampled rules are evaluated when in->sampled is set; else
- * they are reported as defined = 0 with the note "needs return data".
+ * they are reported as defined = 0 with the note "needs return data".  The
+ * measure rules (RULES_MEASURE_MASK) are always left so, with the note
+ * "needs each sampled portfolio's return series": measrules.h runs them.
  */
 int hc_rules_evaluate(const struct rules_config *cfg, const struct rules_input *in,
 		   struct rule_result *res, size_t *nres, struct hc_error *err);
