@@ -233,11 +233,11 @@ static int add_notes(struct report *r, const struct hc_enough *e, const struct h
 			  "the measured coverage quoted above is that of complete histories"
 			: "ragged history: each replicate of the exact rules sums the drawn periods' cross-sections "
 			  "(O(T) a replicate) with every security centred on its full-sample mean, not re-centred on "
-			  "the replicate; --bootstrap-sampled re-sums and re-centres each replicate before sampling it; "
-			  "the intervals are percentiles of the replicates' counts, not the --interval asked for: the "
-			  "studentized and BCa intervals are built on the two averages of complete data, and period by "
-			  "period a rule's count depends on every alive count's sums; the measured coverage quoted "
-			  "above is that of the percentile interval on complete histories");
+			  "the replicate, and the interval is built on each rule's continuous count on the per-period "
+			  "curve (the studentized one with each period's linearised contribution to it, the BCa "
+			  "acceleration from a jackknife that re-forms the per-period sums without each block); "
+			  "--bootstrap-sampled re-sums and re-centres each replicate before sampling it; the measured "
+			  "coverage quoted above is that of complete histories");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -825,7 +825,11 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	hc_progress_begin(&opt->progress, what, "bootstrap", "replicates");
 	bo.progress = opt->progress.update;
 	bo.progress_ctx = opt->progress.ctx;
-	rc = hc_periodic_bootstrap(cfg, p, &bo, src->periods_per_year, e->rules, e->nrules, err);
+	/* the methods of complete data on the ragged curve's continuous counts */
+	rc = hc_periodic_bootstrap_interval(cfg, p, src->u, &bo, src->periods_per_year,
+					    opt->interval == HC_ENOUGH_INTERVAL_STUDENTIZED ? HC_PERIODIC_INTERVAL_STUDENTIZED
+					    : opt->interval == HC_ENOUGH_INTERVAL_BCA ? HC_PERIODIC_INTERVAL_BCA
+					    : HC_PERIODIC_INTERVAL_PERCENTILE, e->rules, e->nrules, err);
 	hc_progress_end(&opt->progress);
 	if (rc)
 		return rc;
@@ -833,7 +837,7 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	e->replicates = bo.replicates;
 	e->block_length = bo.block_length;
 	e->kind = bo.kind;
-	e->interval = HC_ENOUGH_INTERVAL_PERCENTILE;   /* the ragged replicates' percentiles only */
+	e->interval = opt->interval;
 	if (opt->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
 		so.paths = opt->bootstrap_paths;
 		so.progress = NULL;

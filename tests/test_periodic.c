@@ -16,6 +16,7 @@
 #include <gsl/gsl_permutation.h>
 #include <gsl/gsl_randist.h>
 
+#include "holdcount/bootstrap.h"
 #include "holdcount/curve.h"
 #include "holdcount/curverun.h"
 #include "holdcount/measures.h"
@@ -138,6 +139,96 @@ static void test_periodic_rules_match_complete_route(void **state)
 		assert_int_equal(g2, 1);
 		assert_int_equal(a, b);
 	}
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* Complete data: the continuous count the studentized and BCa intervals
+ * are built on is the complete route's (hc_rules_exact_real of the same
+ * averages), and the delete-a-block jackknife, which re-forms the
+ * per-period sums without each block, gives the continuous counts of
+ * hc_bootstrap_jackknife's averages (Kuensch, 1989), both to 1e-9
+ * relative (the continuous counts come from closed forms on both routes
+ * and, for the steps, from bisections of 60 halvings of one holding). */
+static void test_periodic_continuous_counts_match_complete_route(void **state)
+{
+	struct universe *u = make_universe(40, 96, 0, 13);
+	struct hc_periodic *p = NULL;
+	struct bootstrap_base *b = NULL;
+	struct moments mo;
+	struct rules_config cfg;
+	struct hc_error err;
+	int rules[] = { RULES_NEAR_FLOOR, RULES_MARGINAL, RULES_NEXT_HOLDING, RULES_TRACKING_ERROR,
+			RULES_STATMAN_BORROWING, RULES_STATMAN_LENDING };
+	size_t nr = sizeof rules / sizeof rules[0], j, k, nj = 0, nb = 0;
+	double *jack = NULL, *jv = NULL, *jc = NULL;
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	cfg.te_budget = 0.03;
+	assert_int_equal(hc_moments_from_universe(&mo, u, &err), HC_OK);
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	for (j = 0; j < nr; j++) {
+		double a = hc_rules_exact_real(&cfg, rules[j], mo.average_variance, mo.average_covariance, mo.m, 12);
+		double c = hc_periodic_rule_real(&cfg, rules[j], &p->curve, 12);
+
+		assert_true(isfinite(a) && a > 1);
+		assert_true(rel(a, c) < 1e-9);
+	}
+	assert_int_equal(hc_bootstrap_base_alloc(&b, u, &err), HC_OK);
+	assert_int_equal(hc_bootstrap_jackknife(b, 4, &jv, &jc, &nb, &err), HC_OK);
+	assert_int_equal(hc_periodic_jackknife(&cfg, p, u, 4, 12, rules, nr, &jack, &nj, &err), HC_OK);
+	assert_int_equal(nj, 24);
+	assert_int_equal(nb, nj);
+	for (j = 0; j < nr; j++)
+		for (k = 0; k < nj; k++)
+			assert_true(rel(jack[j * nj + k], hc_rules_exact_real(&cfg, rules[j], jv[k], jc[k], 40, 12)) < 1e-9);
+	/* one block only: no jackknife, no acceleration */
+	hc_free(jack);
+	assert_int_equal(hc_periodic_jackknife(&cfg, p, u, 60, 12, rules, nr, &jack, &nj, &err), HC_OK);
+	assert_int_equal(nj, 0);
+	assert_null(jack);
+	hc_free(jv);
+	hc_free(jc);
+	hc_bootstrap_base_free(b);
+	hc_periodic_free(p);
+	hc_universe_free(u);
+}
+
+/* Ragged data: the continuous count is the real crossing of the rule's
+ * quantity on the curve extended to real N, inside (count - 1, count]. */
+static void test_periodic_continuous_counts_ragged(void **state)
+{
+	struct universe *u = make_universe(30, 90, 1, 14);
+	struct hc_periodic *p = NULL;
+	struct rules_config cfg;
+	struct hc_error err;
+	size_t n;
+	double x;
+
+	(void)state;
+	hc_rules_config_init(&cfg);
+	assert_int_equal(hc_periodic_alloc(&p, u, 0, u->t, &err), HC_OK);
+	assert_true(p->alive_min < p->alive_max);
+	assert_int_equal(hc_periodic_rule_count(&cfg, RULES_NEAR_FLOOR, &p->curve, 12, &n), 1);
+	x = hc_periodic_rule_real(&cfg, RULES_NEAR_FLOOR, &p->curve, 12);
+	assert_true(x > (double)n - 1 && x <= (double)n);
+	/* E(x) equals the limit (1 + 10%)^2 floor, read period by period */
+	{
+		double e = 0, lim = 1.21 * p->curve.floor;
+		size_t k;
+
+		for (k = 0; k < p->t; k++) {
+			double mt = (double)p->alive[k];
+
+			e += p->mean[k] * p->mean[k] + (mt > x ? (1 / x - 1 / mt) * p->cross[k] : 0);
+		}
+		e /= (double)(p->t - 1);
+		assert_true(rel(e, lim) < 1e-10);
+	}
+	assert_int_equal(hc_periodic_rule_count(&cfg, RULES_MARGINAL, &p->curve, 12, &n), 1);
+	x = hc_periodic_rule_real(&cfg, RULES_MARGINAL, &p->curve, 12);
+	assert_true(x > (double)n - 1 && x <= (double)n);
 	hc_periodic_free(p);
 	hc_universe_free(u);
 }
@@ -803,6 +894,8 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_periodic_matches_complete_route),
 		cmocka_unit_test(test_periodic_rules_match_complete_route),
+		cmocka_unit_test(test_periodic_continuous_counts_match_complete_route),
+		cmocka_unit_test(test_periodic_continuous_counts_ragged),
 		cmocka_unit_test(test_periodic_matches_enumeration_ragged),
 		cmocka_unit_test(test_periodic_window_equals_cut),
 		cmocka_unit_test(test_periodic_rules_scan_ragged),

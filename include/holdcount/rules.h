@@ -334,6 +334,23 @@ int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct boot
 			       struct rule_result *res, size_t nres, struct hc_error *err);
 
 /*
+ * The interval methods on continuous counts, shared by the complete-data
+ * route above and the per-period route (periodic.h); est is the sample's
+ * continuous count, x[k] replicate k's (+inf: not met, NaN: undefined).
+ * hc_rules_interval_bca: Efron's (1987) BCa with the acceleration from the
+ * jackknife values jack[0..nj-1] (none finite or nj < 2: no acceleration);
+ * sorts x in place.  hc_rules_interval_studentized: bootstrap-t on log x
+ * with se0 the estimate's and se[k] replicate k's standard error of the
+ * log count; m the largest count (0: unbounded); HC_ENOMEM.  Both set
+ * bootstrapped, replicates, replicates_met, count_p05/p50/p95 and, when
+ * the interval excludes the estimate, the note.
+ */
+void hc_rules_interval_bca(struct rule_result *res, double est, double *x, size_t nrep,
+			   const double *jack, size_t nj);
+int hc_rules_interval_studentized(struct rule_result *res, double est, double se0, const double *x,
+				  const double *se, size_t nrep, size_t m, struct hc_error *err);
+
+/*
  * Set res's interval from per replicate counts: count[k] is the count of
  * replicate k, or 0 when the rule was not met in it.  Sorts count in place.
  * The one place every interval (enough, rolling, report) is computed.
