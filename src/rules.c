@@ -793,10 +793,10 @@ static int at_limit(const struct rules_config *cfg, double vbar, double cbar, si
  * Satterthwaite's for sums of squares; the portfolio variance is a
  * positive, right-skewed quadratic form).  Exactly 0 or 1 when the spread
  * is 0 (n = M). */
-static int at_gamma_prob(const struct moments *mo, double vbar, double cbar, size_t n,
+static int at_gamma_prob(const struct moments *mo, double mean, size_t n,
 			 double limit, double *prob, struct hc_error *err)
 {
-	double mean = equal_weight_variance(vbar, cbar, n), sd;
+	double sd;
 	int status;
 
 	if ((status = hc_curve_variance_sd(mo, n, &sd, err)) != HC_OK)
@@ -808,12 +808,36 @@ static int at_gamma_prob(const struct moments *mo, double vbar, double cbar, siz
 	return HC_OK;
 }
 
+/* Settled from the top, as the sampled rules: the probability rises with n
+ * in practice, and a scan down from m guards against a dip.  mean[n - 1]
+ * is E[s^2(n)], or NULL for the equal-weight v-bar/n + (1 - 1/n) c-bar. */
+static int at_scan(const struct rules_config *cfg, const struct moments *mo, const double *mean, size_t m,
+		   double limit, struct rule_result *res, struct hc_error *err)
+{
+	double prob;
+	size_t n;
+	int status;
+
+	for (n = m; n >= 1; n--) {
+		double mu = mean ? mean[n - 1] : equal_weight_variance(mo->average_variance, mo->average_covariance, n);
+
+		if ((status = at_gamma_prob(mo, mu, n, limit, &prob, err)) != HC_OK)
+			return status;
+		if (!(prob >= cfg->at_q))
+			break;
+		res->met = 1;
+		res->count = n;
+		res->value = prob;
+	}
+	if (!res->met)
+		note_not_met(res, m, "");
+	return HC_OK;
+}
+
 int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments *mo,
 			   struct rule_result *res, struct hc_error *err)
 {
-	double vbar, cbar, limit, prob;
-	size_t n;
-	int status;
+	double limit;
 
 	result_init(cfg, RULES_ALEXEEV_TAPON, res);
 	res->threshold = cfg->at_q;
@@ -823,27 +847,30 @@ int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments 
 			 "needs the exact spread: a return history or a covariance matrix, not summary statistics");
 		return HC_OK;
 	}
-	vbar = mo->average_variance;
-	cbar = mo->average_covariance;
-	if (at_limit(cfg, vbar, cbar, mo->m, &limit) != 0) {
+	if (at_limit(cfg, mo->average_variance, mo->average_covariance, mo->m, &limit) != 0) {
 		res->defined = 0;
 		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
 		return HC_OK;
 	}
-	/* Settled from the top, as the sampled rules: the probability rises
-	 * with n in practice, and a scan down from M guards against a dip. */
-	for (n = mo->m; n >= 1; n--) {
-		if ((status = at_gamma_prob(mo, vbar, cbar, n, limit, &prob, err)) != HC_OK)
-			return status;
-		if (!(prob >= cfg->at_q))
-			break;
-		res->met = 1;
-		res->count = n;
-		res->value = prob;
+	return at_scan(cfg, mo, NULL, mo->m, limit, res, err);
+}
+
+int hc_rules_alexeev_tapon_between(const struct rules_config *cfg, const struct moments *spread,
+				   const double *mean, double one_holding, double universe_variance,
+				   struct rule_result *res, struct hc_error *err)
+{
+	double limit;
+
+	result_init(cfg, RULES_ALEXEEV_TAPON, res);
+	res->threshold = cfg->at_q;
+	if (!spread || !spread->has_spread || spread->m < 2)
+		return hc_error(err, HC_EUSAGE, "the exact Alexeev & Tapon rule needs the exact spread");
+	if (at_limit_between(cfg, one_holding, universe_variance, &limit) != 0) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
+		return HC_OK;
 	}
-	if (!res->met)
-		note_not_met(res, mo->m, "");
-	return HC_OK;
+	return at_scan(cfg, spread, mean, spread->m, limit, res, err);
 }
 
 int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct sampler_result *r,

@@ -258,6 +258,19 @@ int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src
  */
 int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments *mo,
 			   struct rule_result *res, struct hc_error *err);
+
+/*
+ * The same rule with the mean of each count given: mean[n - 1] the
+ * expected variance of a random n-holding portfolio (n = 1..spread->m),
+ * the variance's spread across n-subsets from spread (hc_curve_variance_sd:
+ * spread->has_spread), the removable variance from one_holding down to
+ * universe_variance.  For a ragged history (periodic.h): the per-period
+ * curve's mean, the pairwise-complete matrix's spread.  HC_EUSAGE without
+ * a spread; res undefined (with the reason) when nothing is removable.
+ */
+int hc_rules_alexeev_tapon_between(const struct rules_config *cfg, const struct moments *spread,
+				   const double *mean, double one_holding, double universe_variance,
+				   struct rule_result *res, struct hc_error *err);
 int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct sampler_result *r,
 				   double vbar, double cbar, size_t m, struct rule_result *res,
 				   struct hc_error *err);
