@@ -5,7 +5,7 @@
  *
  * usage: coverage_sim [--trials N] [--replicates B] [--sampled-trials N]
  *                     [--sampled-replicates B] [--seed S] [--securities M]
- *                     [--block-length L]
+ *                     [--block-length L] [--calibrate C] [--laws normal,t4,garch]
  *
  * Model (invented, no real data): r_it = beta_i f_t + e_it with M
  * securities, betas fixed from the seed (0.6..1.4), factor sd 4% and
@@ -25,6 +25,10 @@
  * rules band and alexeev-tapon-sampled are also run (N trials; percentile
  * intervals from --bootstrap-sampled's route, 200 portfolios a size), their
  * true counts from 20000 portfolios drawn from the true covariance matrix.
+ *
+ * With --calibrate C > 0, also the calibrated (double-bootstrap) percentile
+ * interval with C inner replicates per outer one (an experiment: see
+ * calibrated() and docs/enough.md); --laws picks the laws simulated.
  *
  * Output: one Markdown table on stdout (docs/enough.md pastes it).
  */
@@ -127,11 +131,107 @@ static int excludes(const struct rule_result *r)
 			  (!isnan(r->count_p95) && (double)r->count > r->count_p95));
 }
 
+/* The count at order statistic ceil(B alpha) of sorted continuous counts
+ * (inf: not met, NaN). */
+static double order_count(const double *sorted, size_t n, double alpha)
+{
+	double k = ceil((double)n * alpha);
+	size_t i = k < 1 ? 0 : k > (double)n ? n - 1 : (size_t)k - 1;
+
+	return isfinite(sorted[i]) ? fmax(ceil(sorted[i]), 1) : NAN;
+}
+
+static int cmp_dbl(const void *a, const void *b)
+{
+	double x = *(const double *)a, y = *(const double *)b;
+
+	return (x > y) - (x < y);
+}
+
+/*
+ * The calibrated (double-bootstrap) percentile interval of each exact rule's
+ * continuous count: Beran (1987), "Prepivoting to Reduce Level Error of
+ * Confidence Sets", Biometrika 74(3), and Hall & Martin (1988), the
+ * calibration of a bootstrap interval by a second level of resampling
+ * (Davison & Hinkley, 1997, section 3.9, from memory).  For outer replicate
+ * b (bo's draw), `inner` replicates resample its period sequence with the
+ * same scheme and block length (streams from a seed of their own), each
+ * one's averages from hc_bootstrap_moments (exact re-centring, O(MT)); u_b
+ * is the share of inner counts below the estimate (ties half).  Then the
+ * interval is [Q*(u_(0.05)), Q*(u_(0.95))], Q* the outer replicates'
+ * quantile: the levels at which the percentile interval held the estimate
+ * in 90% of the outer worlds, equal-tailed.  res[k] (a copy of the
+ * estimate's result) gets count_p05 and count_p95.
+ */
+static void calibrated(const struct rules_config *cfg, const struct bootstrap_base *b,
+		       const struct bootstrap_options *bo, const struct bootstrap_result *br, size_t inner,
+		       double vhat, double chat, size_t m, struct rule_result *res)
+{
+	size_t t = b->t, B = br->replicates, L = bo->block_length, ob, c, k, q;
+	size_t *oidx = malloc(t * sizeof *oidx), *iidx = malloc(t * sizeof *iidx);
+	double *w = malloc(t * sizeof *w), *u = malloc(NEXACT * B * sizeof *u), *x = malloc(B * sizeof *x);
+	double est[NEXACT];
+
+	for (q = 0; q < NEXACT; q++)
+		est[q] = hc_rules_exact_real(cfg, exact_rules[q], vhat, chat, m, 12);
+	for (ob = 0; ob < B; ob++) {
+		double less[NEXACT] = { 0 };
+
+		hc_bootstrap_indices(bo->kind, t, L, bo->seed, ob, oidx, NULL);
+		for (c = 0; c < inner; c++) {
+			double v2, c2;
+
+			hc_bootstrap_indices(bo->kind, t, L, bo->seed ^ 0x5bd1e995u, ob * inner + c, iidx, NULL);
+			memset(w, 0, t * sizeof *w);
+			for (k = 0; k < t; k++)
+				w[oidx[iidx[k]]] += 1;
+			hc_bootstrap_moments(b, w, &v2, &c2);
+			for (q = 0; q < NEXACT; q++) {
+				double th = hc_rules_exact_real(cfg, exact_rules[q], v2, c2, m, 12);
+
+				if (isnan(th))
+					th = INFINITY;
+				less[q] += th < est[q] ? 1.0 : th == est[q] ? 0.5 : 0.0;
+			}
+		}
+		for (q = 0; q < NEXACT; q++)
+			u[q * B + ob] = less[q] / (double)inner;
+	}
+	for (q = 0; q < NEXACT; q++) {
+		double *uq = u + q * B, lo, hi;
+
+		if (!isfinite(est[q]))
+			continue;
+		qsort(uq, B, sizeof *uq, cmp_dbl);
+		lo = uq[(size_t)fmax(ceil(0.05 * (double)B) - 1, 0)];
+		hi = uq[(size_t)fmax(ceil(0.95 * (double)B) - 1, 0)];
+		for (ob = 0; ob < B; ob++) {
+			double th = hc_rules_exact_real(cfg, exact_rules[q], br->vbar[ob], br->cbar[ob], m, 12);
+
+			x[ob] = isnan(th) ? INFINITY : th;
+		}
+		qsort(x, B, sizeof *x, cmp_dbl);
+		/* a level of 0 or 1 reaches past every replicate: the extreme one */
+		res[q].count_p05 = order_count(x, B, lo);
+		res[q].count_p95 = order_count(x, B, hi > 0 ? hi : 1.0 / (double)B);
+		res[q].bootstrapped = 1;
+	}
+	free(oidx);
+	free(iidx);
+	free(w);
+	free(u);
+	free(x);
+}
+
 int main(int argc, char **argv)
 {
 	size_t trials = 1000, nrep = 999, strials = 0, m = 60, tt[2] = { 120, 240 };
 	unsigned long seed = 20261203;
-	size_t snrep = 99, fixed_block = 0, lsum[NLAWS][2] = { { 0 } };
+	size_t snrep = 99, fixed_block = 0, lsum[NLAWS][2] = { { 0 } }, inner = 0;
+	/* calibrated (--calibrate C) coverage and exclusions per cell and rule */
+	size_t cov_cal[NLAWS][2][NEXACT] = { { { 0 } } }, excl_cal[NLAWS][2][NEXACT] = { { { 0 } } };
+	size_t cov_stu_all[NLAWS][2][NEXACT] = { { { 0 } } };
+	int use_law[NLAWS] = { 1, 1, 1 };
 	/* McLeod-Li flags (p < HC_ENOUGH_CLUSTERING_ALPHA) per cell, and the
 	 * near-floor studentized coverage among flagged and unflagged trials. */
 	size_t flagged[NLAWS][2] = { { 0 } }, cov_flag[NLAWS][2] = { { 0 } }, cov_unflag[NLAWS][2] = { { 0 } };
@@ -152,7 +252,12 @@ int main(int argc, char **argv)
 		else if (!strcmp(argv[k], "--securities")) m = strtoul(argv[k + 1], NULL, 10);
 		else if (!strcmp(argv[k], "--block-length")) fixed_block = strtoul(argv[k + 1], NULL, 10);
 		else if (!strcmp(argv[k], "--sampled-replicates")) snrep = strtoul(argv[k + 1], NULL, 10);
-		else {
+		else if (!strcmp(argv[k], "--calibrate")) inner = strtoul(argv[k + 1], NULL, 10);
+		else if (!strcmp(argv[k], "--laws")) {
+			use_law[LAW_NORMAL] = strstr(argv[k + 1], "normal") != NULL;
+			use_law[LAW_T4] = strstr(argv[k + 1], "t4") != NULL;
+			use_law[LAW_GARCH] = strstr(argv[k + 1], "garch") != NULL;
+		} else {
 			fprintf(stderr, "coverage_sim: unknown option '%s'\n", argv[k]);
 			return 2;
 		}
@@ -191,7 +296,7 @@ int main(int argc, char **argv)
 	       "studentized excludes estimate | BCa excludes estimate |\n");
 	printf("|---|---|---|---|---|---|---|---|---|---|\n");
 	for (law = 0; law < NLAWS; law++)
-		for (it = 0; it < 2; it++) {
+		for (it = 0; it < 2 && use_law[law]; it++) {
 			size_t t = tt[it], cov_bca[NEXACT] = { 0 }, cov_pct[NEXACT] = { 0 }, excl[NEXACT] = { 0 };
 			size_t cov_stu[NEXACT] = { 0 }, excl_stu[NEXACT] = { 0 };
 			size_t trial;
@@ -258,6 +363,18 @@ int main(int argc, char **argv)
 				hc_rules_bootstrap_exact_bca(&cfg, br->vbar, br->cbar, nrep, jv, jc, nj, vhat, chat, m, 12,
 							     res, NEXACT, &err);
 				hc_rules_bootstrap_exact(&cfg, br->vbar, br->cbar, nrep, m, 12, pct, NEXACT, &err);
+				if (inner) {
+					struct rule_result cal[NEXACT];
+
+					for (k = 0; k < NEXACT; k++)
+						hc_rules_exact(&cfg, exact_rules[k], vhat, chat, m, 12, &cal[k], &err);
+					calibrated(&cfg, b, &bo, br, inner, vhat, chat, m, cal);
+					for (k = 0; k < NEXACT; k++) {
+						cov_cal[law][it][k] += covers(&cal[k], true_met[k], true_count[k]);
+						excl_cal[law][it][k] += excludes(&cal[k]);
+						cov_stu_all[law][it][k] += covers(&stu[k], true_met[k], true_count[k]);
+					}
+				}
 				for (k = 0; k < NEXACT; k++) {
 					cov_bca[k] += covers(&res[k], true_met[k], true_count[k]);
 					cov_pct[k] += covers(&pct[k], true_met[k], true_count[k]);
@@ -294,13 +411,28 @@ int main(int argc, char **argv)
 	printf("| law | T | flagged | near-floor covered, flagged | near-floor covered, not flagged |\n"
 	       "|---|---|---|---|---|\n");
 	for (law = 0; law < NLAWS; law++)
-		for (it = 0; it < 2; it++) {
+		for (it = 0; it < 2 && use_law[law]; it++) {
 			size_t nf = flagged[law][it], nu = trials - flagged[law][it];
 
 			printf("| %s | %zu | %zu/%zu (%.1f%%) | %zu/%zu | %zu/%zu |\n", law_names[law], tt[it], nf, trials,
 			       100.0 * (double)nf / (double)trials, cov_flag[law][it], nf, cov_unflag[law][it], nu);
 		}
 	fflush(stdout);
+
+	if (inner) {
+		printf("\nCalibrated (double-bootstrap) percentile interval, %zu inner replicates per outer replicate "
+		       "(Beran 1987; Hall & Martin 1988), against the studentized interval of the same trials.\n\n", inner);
+		printf("| law | T | rule | true count | studentized covered | calibrated covered | calibrated %% | "
+		       "calibrated excludes estimate |\n|---|---|---|---|---|---|---|---|\n");
+		for (law = 0; law < NLAWS; law++)
+			for (it = 0; it < 2 && use_law[law]; it++)
+				for (k = 0; k < NEXACT; k++)
+					printf("| %s | %zu | %s | %zu | %zu/%zu | %zu/%zu | %.1f | %zu |\n", law_names[law], tt[it],
+					       hc_rules_name(exact_rules[k]), true_count[k], cov_stu_all[law][it][k], trials,
+					       cov_cal[law][it][k], trials, 100.0 * (double)cov_cal[law][it][k] / (double)trials,
+					       excl_cal[law][it][k]);
+		fflush(stdout);
+	}
 
 	if (strials) {
 		struct rules_config sc = cfg;

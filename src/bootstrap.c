@@ -577,6 +577,27 @@ void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, doubl
 	}
 }
 
+/* The long-run variance of the mean of g over the drawn periods with
+ * Bartlett weights (Newey & West, 1987, Econometrica 55(3)) up to lag
+ * bw - 1: dependence in the squares (volatility clustering) widens it. */
+double hc_bootstrap_long_run_se(const double *g, const size_t *idx, size_t t, size_t bw)
+{
+	double mean = 0, lrv = 0, dt = (double)t;
+	size_t i, lag;
+
+	for (i = 0; i < t; i++)
+		mean += g[idx ? idx[i] : i];
+	mean /= dt;
+	for (lag = 0; lag < bw && lag < t; lag++) {
+		double c = 0, wgt = lag == 0 ? 1.0 : 2.0 * (1.0 - (double)lag / (double)bw);
+
+		for (i = lag; i < t; i++)
+			c += (g[idx ? idx[i] : i] - mean) * (g[idx ? idx[i - lag] : i - lag] - mean);
+		lrv += wgt * c;
+	}
+	return sqrt(fmax(lrv, 0) / (dt * dt));
+}
+
 /* McLeod & Li (1983): Ljung-Box on the squares of the centred series r. */
 void hc_bootstrap_mcleod_li(const double *r, size_t n, size_t *lags, double *q, double *p)
 {

@@ -395,32 +395,55 @@ static int kept_universe(const struct hc_source *src, struct universe *sub, stru
 	return HC_OK;
 }
 
-/*
- * A ragged source's variance_sd (hc_curve_pairwise_spread).  A universe
- * with no pairwise-complete matrix (a pair without common periods) or one
- * too large for the memory budget leaves the column empty with the reason
- * in res->spread_reason, and the rest of the curve stands.
- */
-static int ragged_spread(struct hc_curve_result *res, const struct hc_source *src, struct hc_error *err)
+int hc_curve_ragged_spread_moments(const struct hc_source *src, struct moments *mo, char *reason, size_t len,
+				   struct hc_error *err)
 {
 	struct universe sub;
 	struct hc_error why;
 	int rc;
 
+	memset(mo, 0, sizeof *mo);
+	if (len)
+		reason[0] = '\0';
 	hc_error_clear(&why);
 	rc = kept_universe(src, &sub, &why);
-	if (rc == HC_OK)
-		rc = hc_curve_pairwise_spread(res->curve, sub.x ? &sub : src->u, &res->spread_mo, &why);
+	if (rc == HC_OK) {
+		const struct universe *v = sub.x ? &sub : src->u;
+
+		if ((rc = overlap_precheck(v, &why)) == HC_OK)
+			rc = hc_moments_from_universe_route(mo, v, MOMENTS_ROUTE_PAIRWISE, &why);
+	}
 	hc_free(sub.x);
 	hc_free(sub.ids);
-	if (rc == HC_OK) {
-		res->spread_built = 1;
+	if (rc == HC_OK)
 		return HC_OK;
-	}
+	memset(mo, 0, sizeof *mo);
 	if (rc != HC_EDATA && rc != HC_ENOMEM)
 		return hc_error(err, rc, "%s", why.message);
-	snprintf(res->spread_reason, sizeof res->spread_reason,
-		 "not computed: the pairwise-complete covariance matrix it needs cannot be built (%.900s)", why.message);
+	snprintf(reason, len, "the pairwise-complete covariance matrix it needs cannot be built (%.900s)", why.message);
+	return HC_OK;
+}
+
+/*
+ * A ragged source's variance_sd (hc_curve_ragged_spread_moments).  A
+ * universe with no pairwise-complete matrix (a pair without common
+ * periods) or one too large for the memory budget leaves the column empty
+ * with the reason in res->spread_reason, and the rest of the curve stands.
+ */
+static int ragged_spread(struct hc_curve_result *res, const struct hc_source *src, struct hc_error *err)
+{
+	char why[HC_ERROR_MESSAGE_MAX - 16];
+	int rc;
+
+	if ((rc = hc_curve_ragged_spread_moments(src, &res->spread_mo, why, sizeof why, err)) != HC_OK)
+		return rc;
+	if (!res->spread_mo.has_spread) {
+		snprintf(res->spread_reason, sizeof res->spread_reason, "not computed: %s", why);
+		return HC_OK;
+	}
+	if ((rc = hc_curve_set_spread(res->curve, &res->spread_mo, err)) != HC_OK)
+		return rc;
+	res->spread_built = 1;
 	return HC_OK;
 }
 

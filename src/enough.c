@@ -12,6 +12,7 @@
 #include <string.h>
 
 #include "holdcount/bootstrap.h"
+#include "holdcount/curverun.h"
 #include "holdcount/datacheck.h"
 #include "holdcount/measrules.h"
 #include "holdcount/memory.h"
@@ -230,6 +231,12 @@ static int add_notes(struct report *r, const struct hc_enough *e, const struct h
 		bad |= add_coverage_notes(r, e);
 	} else if (e->no_interval)
 		bad |= hc_report_add_note(r, e->no_interval);
+	if (e->at_spread_reason[0]) {
+		snprintf(text, sizeof text, "alexeev-tapon has no exact count on this ragged history: the exact spread "
+			 "of the variance is not available (%.540s); alexeev-tapon-sampled gives the rule",
+			 e->at_spread_reason);
+		bad |= hc_report_add_note(r, text);
+	}
 	if (e->annualised && e->vbar * p > HC_MOMENTS_IMPLAUSIBLE_SD * HC_MOMENTS_IMPLAUSIBLE_SD) {
 		snprintf(text, sizeof text,
 			 "implausible: the average sd is %.4g%% a year, above %.0f%%; are the inputs in percent (variances in "
@@ -245,11 +252,11 @@ static int add_notes(struct report *r, const struct hc_enough *e, const struct h
 			  "the measured coverage quoted above is that of complete histories"
 			: "ragged history: each replicate of the exact rules sums the drawn periods' cross-sections "
 			  "(O(T) a replicate) with every security centred on its full-sample mean, not re-centred on "
-			  "the replicate; --bootstrap-sampled re-sums and re-centres each replicate before sampling it; "
-			  "the intervals are percentiles of the replicates' counts, not the --interval asked for: the "
-			  "studentized and BCa intervals are built on the two averages of complete data, and period by "
-			  "period a rule's count depends on every alive count's sums; the measured coverage quoted "
-			  "above is that of the percentile interval on complete histories");
+			  "the replicate, and the interval is built on each rule's continuous count on the per-period "
+			  "curve (the studentized one with each period's linearised contribution to it, the BCa "
+			  "acceleration from a jackknife that re-forms the per-period sums without each block); "
+			  "--bootstrap-sampled re-sums and re-centres each replicate before sampling it; the measured "
+			  "coverage quoted above is that of complete histories");
 	if (!e->annualised)
 		bad |= hc_report_add_note(r, "not annualised: the rule thresholds (--marginal, --te-budget, --premium, "
 				       "--holding-cost) are compared on the scale of the inputs, not as yearly figures");
@@ -842,8 +849,53 @@ static int run_series(struct hc_enough *e, const struct hc_source *src, const st
 	return rc;
 }
 
+/*
+ * Alexeev & Tapon's exact form on a ragged history, the approximation of
+ * complete data (rules.h): a gamma distribution with the per-period curve's
+ * exact mean E[sigma^2(N)] and the exact spread of the variance from the
+ * pairwise-complete matrix (curverun.h; the spread across fixed N-subsets,
+ * which on data with gaps describes a neighbouring portfolio: the note
+ * says so), the removable variance from E[sigma^2(1)] down to the
+ * equal-weight alive portfolio's, as alexeev-tapon-sampled measures it.
+ * Without the matrix (a pair of securities that never overlap), no count
+ * and the reason.
+ */
+static int ragged_alexeev_tapon(struct hc_enough *e, const struct rules_config *cfg, const struct hc_source *src,
+				struct rule_result *r, struct hc_error *err)
+{
+	const struct hc_periodic *p = src->per;
+	struct moments spread;
+	double *mean;
+	size_t n;
+	int rc;
+
+	if ((rc = hc_curve_ragged_spread_moments(src, &spread, e->at_spread_reason, sizeof e->at_spread_reason,
+						 err)) != HC_OK)
+		return rc;
+	if (!spread.has_spread || spread.m != p->m) {
+		hc_rules_alexeev_tapon(cfg, NULL, r, err);
+		r->defined = r->met = 0;
+		r->count = 0;
+		r->value = NAN;
+		snprintf(r->note, sizeof r->note, "no exact spread on this ragged history (the cautions say why); "
+			 "alexeev-tapon-sampled gives the rule");
+		return HC_OK;
+	}
+	if (!(mean = hc_mallocarray(p->m, sizeof *mean)))
+		return hc_error(err, HC_ENOMEM, "out of memory for the curve of %zu securities", p->m);
+	for (n = 1; n <= p->m; n++)
+		mean[n - 1] = hc_periodic_expected_variance(&p->curve, (double)n);
+	rc = hc_rules_alexeev_tapon_between(cfg, &spread, mean, mean[0], p->curve.a, r, err);
+	hc_free(mean);
+	if (rc == HC_OK && r->defined && !r->note[0])
+		snprintf(r->note, sizeof r->note, "ragged: gamma match to the per-period mean and the pairwise-complete "
+			 "fixed-subset spread; no interval (alexeev-tapon-sampled has one)");
+	return rc;
+}
+
 /* A ragged history (HC_SOURCE_RAGGED): every exact rule on the per-period
- * curve (periodic.h), band, lag-share and alexeev-tapon-sampled from ragged
+ * curve (periodic.h), alexeev-tapon from its mean and the pairwise-complete
+ * spread, band, lag-share and alexeev-tapon-sampled from ragged
  * random portfolios in stages, the interval of the exact rules from O(T) replicates and, with
  * bootstrap_sampled, of the sampled ones from re-summed replicates. */
 static int run_ragged(struct hc_enough *e, const struct hc_source *src, const struct moments *mo,
@@ -867,16 +919,8 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 
 		if (RULES_FLAG(r->rule) & RULES_EXACT_MASK)
 			rc = hc_periodic_rule(cfg, r->rule, &p->curve, src->periods_per_year, r, err);
-		else if (r->rule == RULES_ALEXEEV_TAPON) {
-			/* The gamma approximation needs the exact spread of the
-			 * portfolio variance, which period by period is not
-			 * computed (it needs the M x M matrix). */
-			r->defined = r->met = 0;
-			r->count = 0;
-			r->value = NAN;
-			snprintf(r->note, sizeof r->note, "not available period by period (ragged): needs the exact spread "
-				 "of the variance, not computed there; alexeev-tapon-sampled gives the rule");
-		}
+		else if (r->rule == RULES_ALEXEEV_TAPON)
+			rc = ragged_alexeev_tapon(e, cfg, src, r, err);
 	}
 	if (rc)
 		return rc;
@@ -924,7 +968,11 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	hc_progress_begin(&opt->progress, what, "bootstrap", "replicates");
 	bo.progress = opt->progress.update;
 	bo.progress_ctx = opt->progress.ctx;
-	rc = hc_periodic_bootstrap(cfg, p, &bo, src->periods_per_year, e->rules, e->nrules, err);
+	/* the methods of complete data on the ragged curve's continuous counts */
+	rc = hc_periodic_bootstrap_interval(cfg, p, src->u, &bo, src->periods_per_year,
+					    opt->interval == HC_ENOUGH_INTERVAL_STUDENTIZED ? HC_PERIODIC_INTERVAL_STUDENTIZED
+					    : opt->interval == HC_ENOUGH_INTERVAL_BCA ? HC_PERIODIC_INTERVAL_BCA
+					    : HC_PERIODIC_INTERVAL_PERCENTILE, e->rules, e->nrules, err);
 	hc_progress_end(&opt->progress);
 	if (rc)
 		return rc;
@@ -932,7 +980,7 @@ static int run_ragged(struct hc_enough *e, const struct hc_source *src, const st
 	e->replicates = bo.replicates;
 	e->block_length = bo.block_length;
 	e->kind = bo.kind;
-	e->interval = HC_ENOUGH_INTERVAL_PERCENTILE;   /* the ragged replicates' percentiles only */
+	e->interval = opt->interval;
 	if (opt->bootstrap_sampled && (cfg->selected & RULES_SAMPLED_MASK)) {
 		so.paths = opt->bootstrap_paths;
 		so.progress = NULL;

@@ -523,10 +523,176 @@ int hc_periodic_rule(const struct rules_config *cfg, int rule,
 	return HC_OK;
 }
 
+/* ---- continuous counts --------------------------------------------------- */
+
+/* E(n) - E(n + 1) for real n > 0, per period: a period with M_t >= n + 1
+ * adds (1/n - 1/(n+1)) s2_t, one with n < M_t < n + 1 adds (1/n - 1/M_t)
+ * s2_t, written so that the digits of the difference are kept at large n. */
+static double drop_real(const struct hc_periodic_curve *c, double n)
+{
+	size_t k1 = above(c, n), k2 = above(c, n + 1), k;
+	double d = c->s1[k2] / (n * (n + 1));
+
+	for (k = k1; k < k2; k++)
+		d += (c->s1[k] - c->s1[k + 1]) * (1 / n - 1 / (double)c->level[k]);
+	return d;
+}
+
+/* sqrt(E(n)) - sqrt(E(n+1)) annualised, at real n (step_at at whole n). */
+static double step_real(const struct hc_periodic_curve *c, double ppy, double n)
+{
+	double e0 = hc_periodic_expected_variance(c, n) * ppy, e1 = hc_periodic_expected_variance(c, n + 1) * ppy;
+	double sum = (e0 > 0 ? sqrt(e0) : 0) + (e1 > 0 ? sqrt(e1) : 0);
+
+	return sum > 0 ? drop_real(c, n) * ppy / sum : 0.0;
+}
+
+/* Real n in (lo, hi] with step_real(n) = limit, by bisection keeping
+ * step(lo) above the limit and step(hi) at most it. */
+static double step_root_real(const struct hc_periodic_curve *c, double ppy, double limit, double lo, double hi)
+{
+	int k;
+
+	for (k = 0; k < 60; k++) {
+		double mid = 0.5 * (lo + hi);
+
+		if (step_real(c, ppy, mid) <= limit)
+			hi = mid;
+		else
+			lo = mid;
+	}
+	return hi;
+}
+
+double hc_periodic_rule_real(const struct rules_config *cfg, int rule, const struct hc_periodic_curve *c,
+			     double ppy)
+{
+	size_t n, k;
+	double x = NAN, lo, hi, limit;
+	int got = hc_periodic_rule_count(cfg, rule, c, ppy, &n);
+
+	if (got < 0)
+		return NAN;
+	if (got == 0)
+		return INFINITY;
+	hi = (double)n;
+	lo = hi - 1;
+	/* on (n - 1, n] the alive counts above n' are those at least n: one
+	 * branch of the curve, E(n') = a + s1[k]/n' - s2[k] */
+	k = above(c, lo);
+	switch (rule) {
+	case RULES_NEAR_FLOOR:
+	case RULES_STATMAN_BORROWING:
+	case RULES_STATMAN_LENDING:
+		if (rule == RULES_NEAR_FLOOR)
+			limit = (1 + cfg->near_floor_x) * (1 + cfg->near_floor_x) * c->floor;
+		else {
+			double kk = 1 + cfg->index_cost / (rule == RULES_STATMAN_BORROWING ? cfg->borrow_premium
+							   : cfg->lend_premium);
+
+			limit = kk * kk * c->a;
+		}
+		x = limit - c->a + c->s2[k] > 0 ? c->s1[k] / (limit - c->a + c->s2[k]) : hi;
+		break;
+	case RULES_TRACKING_ERROR:
+		limit = cfg->te_budget * cfg->te_budget / ppy;
+		x = c->s1[k] / (limit + c->s2[k]);
+		break;
+	case RULES_MARGINAL:
+		x = step_root_real(c, ppy, cfg->marginal_eps, lo > 0 ? lo : 0, hi);
+		break;
+	case RULES_NEXT_HOLDING:
+		x = step_root_real(c, ppy, cfg->holding_cost * sqrt(c->a * ppy) / cfg->premium, lo > 0 ? lo : 0, hi);
+		break;
+	}
+	if (!(x > lo))
+		x = lo + 1e-9;
+	if (!(x <= hi))
+		x = hi;
+	return x;
+}
+
+/*
+ * The delta-method standard error of log theta, theta = hc_periodic_rule_real
+ * of the curve c of the periods idx[0..n-1] (c is perturbed and restored).
+ * The curve is (n/(n-1)) times the mean over the drawn periods of each
+ * period's contribution: xbar_t^2 to a, s2_t to s1[k] and s2_t/M_t to s2[k]
+ * for every k <= rank_t.  So period t's linearised value is
+ *   g_t = n/(n-1) (xbar_t^2 Da + s2_t D1[rank_t] + s2_t/M_t D2[rank_t]),
+ * Da = d log theta/da and D1[r], D2[r] the sums over k <= r of the
+ * derivatives by s1[k], s2[k] (central differences).  theta reads s1, s2
+ * only at the branches near itself and at k = 0 (the floor), so only those
+ * are differenced.  Then hc_bootstrap_long_run_se, as on complete data.
+ * g holds p->t.
+ */
+static double curve_log_dtheta(const struct rules_config *cfg, int rule, struct hc_periodic_curve *c,
+			       double ppy, double *slot, double h, int also)
+{
+	double keep = *slot, keep_f = c->floor, up, dn;
+
+	*slot = keep + h;
+	c->floor = keep_f + also * h;
+	up = hc_periodic_rule_real(cfg, rule, c, ppy);
+	*slot = keep - h;
+	c->floor = keep_f - also * h;
+	dn = hc_periodic_rule_real(cfg, rule, c, ppy);
+	*slot = keep;
+	c->floor = keep_f;
+	return (log(up) - log(dn)) / (2 * h);
+}
+
+#define PERIODIC_ACTIVE_MAX 8
+
+static double periodic_log_se(const struct rules_config *cfg, int rule, const struct hc_periodic *p,
+			      struct hc_periodic_curve *c, double ppy, const size_t *idx, size_t n, size_t bw,
+			      double *g)
+{
+	double th = hc_periodic_rule_real(cfg, rule, c, ppy), da, d1[PERIODIC_ACTIVE_MAX], d2[PERIODIC_ACTIVE_MAX];
+	double ha, scale = c->s1[0] > 0 ? c->s1[0] : fabs(c->a), f = (double)n / (double)(n - 1);
+	size_t act[PERIODIC_ACTIVE_MAX], na = 0, k, k0, k1, t, j;
+
+	if (!isfinite(th) || !(th > 0) || !(scale > 0))
+		return NAN;
+	ha = 1e-6 * (fabs(c->a) > 0 ? fabs(c->a) : scale);
+	da = curve_log_dtheta(cfg, rule, c, ppy, &c->a, ha, 1);
+	k0 = above(c, th - 1);
+	k1 = above(c, th + 2);
+	act[na++] = 0;
+	for (k = k0 > 0 ? k0 : 1; k <= k1 && k < c->nlevels && na < PERIODIC_ACTIVE_MAX; k++)
+		act[na++] = k;
+	for (j = 0; j < na; j++) {
+		double h1 = 1e-6 * (c->s1[act[j]] > 1e-6 * scale ? c->s1[act[j]] : scale);
+		double h2 = 1e-6 * (c->s2[act[j]] > 1e-6 * scale / (double)c->mmax ? c->s2[act[j]]
+				    : scale / (double)c->mmax);
+
+		d1[j] = curve_log_dtheta(cfg, rule, c, ppy, &c->s1[act[j]], h1, 0);
+		d2[j] = curve_log_dtheta(cfg, rule, c, ppy, &c->s2[act[j]], h2, act[j] == 0 ? -1 : 0);
+	}
+	if (!isfinite(da))
+		return NAN;
+	for (j = 0; j < na; j++)
+		if (!isfinite(d1[j]) || !isfinite(d2[j]))
+			return NAN;
+	for (t = 0; t < p->t; t++) {
+		double s1t = 0, s2t = 0;
+
+		for (j = 0; j < na && act[j] <= p->rank[t]; j++) {
+			s1t += d1[j];
+			s2t += d2[j];
+		}
+		g[t] = f * p->mean[t] * p->mean[t] * da;
+		if (p->alive[t] > 1)
+			g[t] += f * p->cross[t] * (s1t + s2t / (double)p->alive[t]);
+	}
+	return hc_bootstrap_long_run_se(g, idx, n, bw);
+}
+
 /* ---- bootstrap --------------------------------------------------------- */
 
 /* One replicate a path of the one parallel driver (paths.h): its periods
- * drawn as bootstrap.h draws them, its O(T) curve, the rule counts. */
+ * drawn as bootstrap.h draws them, its O(T) curve, the rule counts and,
+ * for the studentized and BCa intervals, the continuous counts and the
+ * standard errors of their logs. */
 struct boot_job {
 	const struct rules_config *cfg;
 	const struct hc_periodic *p;
@@ -535,12 +701,15 @@ struct boot_job {
 	const struct rule_result *res;
 	const size_t *which;
 	size_t nb, L;
-	size_t *counts;
+	int method;
+	size_t *counts;       /* B x nb */
+	double *theta, *se;   /* nb x B each, when the method needs them */
 };
 
 struct boot_ws {
 	struct hc_periodic_curve c;
 	size_t *idx;
+	double *g;
 };
 
 static int boot_ws_init(void *job, void *ws)
@@ -549,11 +718,11 @@ static int boot_ws_init(void *job, void *ws)
 	struct boot_ws *w = ws;
 
 	memset(w, 0, sizeof *w);
-	if (!(w->idx = hc_mallocarray(j->p->t, sizeof *w->idx)))
-		return -1;
-	if (hc_periodic_curve_init(&w->c, j->p)) {
+	if (!(w->idx = hc_mallocarray(j->p->t, sizeof *w->idx)) || !(w->g = hc_mallocarray(j->p->t, sizeof *w->g)) ||
+	    hc_periodic_curve_init(&w->c, j->p)) {
 		hc_free(w->idx);
-		w->idx = NULL;
+		hc_free(w->g);
+		memset(w, 0, sizeof *w);
 		return -1;
 	}
 	return 0;
@@ -566,6 +735,7 @@ static void boot_ws_release(void *ws)
 	if (w->idx) {
 		hc_periodic_curve_release(&w->c);
 		hc_free(w->idx);
+		hc_free(w->g);
 	}
 	memset(w, 0, sizeof *w);
 }
@@ -574,14 +744,21 @@ static void boot_path(void *job, void *ws, size_t r)
 {
 	const struct boot_job *j = job;
 	struct boot_ws *w = ws;
-	size_t q, cnt;
+	size_t q, cnt, B = j->bopt->replicates;
 
 	/* the kind was checked, so the draw cannot fail */
 	hc_bootstrap_indices(j->bopt->kind, j->p->t, j->L, j->bopt->seed, r, w->idx, NULL);
 	hc_periodic_curve_set(&w->c, j->p, w->idx, j->p->t);
-	for (q = 0; q < j->nb; q++)
-		j->counts[r * j->nb + q] =
-			hc_periodic_rule_count(j->cfg, j->res[j->which[q]].rule, &w->c, j->ppy, &cnt) == 1 ? cnt : 0;
+	for (q = 0; q < j->nb; q++) {
+		int rule = j->res[j->which[q]].rule;
+
+		j->counts[r * j->nb + q] = hc_periodic_rule_count(j->cfg, rule, &w->c, j->ppy, &cnt) == 1 ? cnt : 0;
+		if (j->method == HC_PERIODIC_INTERVAL_PERCENTILE)
+			continue;
+		j->theta[q * B + r] = hc_periodic_rule_real(j->cfg, rule, &w->c, j->ppy);
+		if (j->method == HC_PERIODIC_INTERVAL_STUDENTIZED)
+			j->se[q * B + r] = periodic_log_se(j->cfg, rule, j->p, &w->c, j->ppy, w->idx, j->p->t, j->L, w->g);
+	}
 }
 
 int hc_periodic_block_length(const struct hc_periodic *p, size_t *length, struct hc_error *err)
@@ -601,12 +778,143 @@ int hc_periodic_block_length(const struct hc_periodic *p, size_t *length, struct
 	return HC_OK;
 }
 
+/*
+ * The delete-a-block jackknife (Kuensch, 1989) of the continuous counts,
+ * as on complete data (hc_bootstrap_jackknife): block b of L periods is
+ * left out and the per-period sums of the rest are formed afresh
+ * (hc_periodic_alloc on the history without it), because leaving out
+ * periods moves each security's own mean, and with it every period's
+ * centred cross-section; a security observed once in the rest drops out
+ * of its period's alive set, as it would in a history that short.
+ * See periodic.h.
+ */
+int hc_periodic_jackknife(const struct rules_config *cfg, const struct hc_periodic *p, const struct universe *u,
+			  size_t L, double ppy, const int *rules, size_t nb, double **jack, size_t *nj,
+			  struct hc_error *err)
+{
+	struct universe sub;
+	size_t nblk, bk, i, q, keep, cells;
+	int rc = HC_OK;
+
+	*jack = NULL;
+	*nj = 0;
+	if (L < 1 || p->t / L < 2 || p->t - L < 2)
+		return HC_OK;
+	if (!u || u->t != p->t)
+		return hc_error(err, HC_EUSAGE, "the jackknife needs the history the per-period sums came from");
+	nblk = p->t / L;
+	keep = p->t - L;
+	if (hc_mul_size(u->m, keep, &cells))
+		return hc_error(err, HC_ENOMEM, "history too large for the jackknife");
+	if ((rc = hc_memory_check(p->max_bytes, (double)u->m * (double)u->t * 8.0, (double)cells * 8.0 +
+				  (double)nblk * (double)nb * 8.0, err, "the jackknife's copy of %zu x %zu returns",
+				  u->m, keep)))
+		return rc;
+	memset(&sub, 0, sizeof sub);
+	sub.x = hc_mallocarray(cells ? cells : 1, sizeof *sub.x);
+	*jack = hc_mallocarray(nblk * nb, sizeof **jack);
+	if (!sub.x || !*jack) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the jackknife");
+		goto out;
+	}
+	sub.m = sub.m_read = u->m;
+	sub.t = keep;
+	sub.source = u->source;
+	sub.max_bytes = u->max_bytes;
+	sub.periods_per_year = u->periods_per_year;
+	sub.has_missing = 1;
+	for (bk = 0; bk < nblk; bk++) {
+		struct hc_periodic *pp = NULL;
+		struct hc_error why;
+		size_t first = bk * L;
+
+		for (i = 0; i < u->m; i++) {
+			const double *xi = u->x + i * u->t;
+			double *yi = sub.x + i * keep;
+
+			memcpy(yi, xi, first * sizeof *yi);
+			memcpy(yi + first, xi + first + L, (u->t - first - L) * sizeof *yi);
+		}
+		rc = hc_periodic_alloc(&pp, &sub, 0, keep, &why);
+		if (rc == HC_EDATA) {
+			for (q = 0; q < nb; q++)
+				(*jack)[q * nblk + bk] = NAN;
+			rc = HC_OK;
+			continue;
+		}
+		if (rc) {
+			rc = hc_error(err, rc, "%s", why.message);
+			goto out;
+		}
+		for (q = 0; q < nb; q++)
+			(*jack)[q * nblk + bk] = hc_periodic_rule_real(cfg, rules[q], &pp->curve, ppy);
+		hc_periodic_free(pp);
+	}
+	*nj = nblk;
+out:
+	hc_free(sub.x);
+	if (rc) {
+		hc_free(*jack);
+		*jack = NULL;
+	}
+	return rc;
+}
+
+/* The studentized and BCa intervals from the replicates' continuous counts. */
+static int set_intervals(const struct boot_job *j, const struct universe *u, struct rule_result *res,
+			 struct hc_error *err)
+{
+	const struct hc_periodic *p = j->p;
+	struct hc_periodic_curve c0;
+	double *jack = NULL, *g = NULL;
+	size_t q, nj = 0, B = j->bopt->replicates;
+	int rc = HC_OK;
+
+	if (hc_periodic_curve_init(&c0, p) || !(g = hc_mallocarray(p->t, sizeof *g))) {
+		hc_periodic_curve_release(&c0);
+		return hc_error(err, HC_ENOMEM, "out of memory for the interval");
+	}
+	hc_periodic_curve_set(&c0, p, NULL, p->t);
+	if (j->method == HC_PERIODIC_INTERVAL_BCA) {
+		int rules[RULES_COUNT];
+
+		for (q = 0; q < j->nb; q++)
+			rules[q] = res[j->which[q]].rule;
+		rc = hc_periodic_jackknife(j->cfg, p, u, j->L, j->ppy, rules, j->nb, &jack, &nj, err);
+	}
+	for (q = 0; q < j->nb && rc == HC_OK; q++) {
+		struct rule_result *r = &res[j->which[q]];
+		double est = hc_periodic_rule_real(j->cfg, r->rule, &c0, j->ppy);
+
+		if (!r->defined)
+			continue;
+		if (j->method == HC_PERIODIC_INTERVAL_BCA)
+			hc_rules_interval_bca(r, est, j->theta + q * B, B, jack ? jack + q * nj : NULL, nj);
+		else
+			rc = hc_rules_interval_studentized(r, est, periodic_log_se(j->cfg, r->rule, p, &c0, j->ppy, NULL,
+										  p->t, j->L, g),
+							   j->theta + q * B, j->se + q * B, B, p->alive_max, err);
+	}
+	hc_free(jack);
+	hc_free(g);
+	hc_periodic_curve_release(&c0);
+	return rc;
+}
+
 int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_periodic *p,
 			  const struct bootstrap_options *bopt, double ppy,
 			  struct rule_result *res, size_t nres, struct hc_error *err)
 {
-	size_t B = bopt->replicates, L, j, nb = 0, *counts = NULL;
+	return hc_periodic_bootstrap_interval(cfg, p, NULL, bopt, ppy, HC_PERIODIC_INTERVAL_PERCENTILE, res, nres, err);
+}
+
+int hc_periodic_bootstrap_interval(const struct rules_config *cfg, const struct hc_periodic *p,
+				   const struct universe *u, const struct bootstrap_options *bopt, double ppy,
+				   int method, struct rule_result *res, size_t nres, struct hc_error *err)
+{
+	size_t B = bopt->replicates, L, j, nb = 0, *counts = NULL, cells;
 	size_t which[RULES_COUNT];
+	double *theta = NULL, *se = NULL;
 	int rc = HC_OK;
 
 	if (B == 0)
@@ -616,6 +924,10 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
 				B, HC_BOOTSTRAP_MAX_REPLICATES);
 	if (!hc_bootstrap_kind_name(bopt->kind))
 		return hc_error(err, HC_EUSAGE, "unknown bootstrap kind %d", bopt->kind);
+	if (method < HC_PERIODIC_INTERVAL_PERCENTILE || method > HC_PERIODIC_INTERVAL_BCA)
+		return hc_error(err, HC_EUSAGE, "unknown interval method %d", method);
+	if (method == HC_PERIODIC_INTERVAL_BCA && (!u || u->t != p->t))
+		return hc_error(err, HC_EUSAGE, "the BCa interval needs the history the per-period sums came from");
 	L = bopt->block_length ? bopt->block_length : hc_bootstrap_default_block_length(p->t);
 	if (L > p->t)
 		return hc_error(err, HC_EUSAGE, "block length %zu exceeds the %zu periods", L, p->t);
@@ -624,16 +936,21 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
 			which[nb++] = j;
 	if (nb == 0)
 		return HC_OK;
-	/* the counts of every replicate and a curve and draw per thread,
-	 * beside the sums (memory.h's budget) */
+	/* the counts (and continuous counts and standard errors) of every
+	 * replicate and a curve, draw and series per thread, beside the sums
+	 * (memory.h's budget) */
 	if ((rc = hc_memory_check(p->max_bytes, (double)p->t * 48.0,
-				  (double)B * (double)nb * 8.0 + 2.0 * (double)p->t * 24.0, err,
-				  "%zu bootstrap replicates", B)))
+				  (double)B * (double)nb * (method == HC_PERIODIC_INTERVAL_PERCENTILE ? 8.0 : 24.0) +
+				  2.0 * (double)p->t * 32.0, err, "%zu bootstrap replicates", B)))
 		return rc;
-	if (hc_mul_size(B, nb, &j) || !(counts = hc_calloc(B * nb, sizeof *counts)))
-		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
+	if (hc_mul_size(B, nb, &cells) || !(counts = hc_calloc(cells, sizeof *counts)) ||
+	    (method != HC_PERIODIC_INTERVAL_PERCENTILE &&
+	     (!(theta = hc_calloc(cells, sizeof *theta)) || !(se = hc_calloc(cells, sizeof *se))))) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", B);
+		goto out;
+	}
 	{
-		struct boot_job job = { cfg, p, bopt, ppy, res, which, nb, L, counts };
+		struct boot_job job = { cfg, p, bopt, ppy, res, which, nb, L, method, counts, theta, se };
 		struct hc_paths run = {
 			B, bopt->threads, 8, &job, sizeof(struct boot_ws), boot_ws_init, boot_ws_release,
 			boot_path, bopt->progress, bopt->progress_ctx, "bootstrap's", "bootstrap", "replicates"
@@ -641,6 +958,10 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
 
 		if ((rc = hc_paths_run(&run, err)) != HC_OK)
 			goto out;
+		if (method != HC_PERIODIC_INTERVAL_PERCENTILE) {
+			rc = set_intervals(&job, u, res, err);
+			goto out;
+		}
 	}
 	{
 		size_t *col = hc_mallocarray(B, sizeof *col), q, r;
@@ -658,6 +979,8 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
 	}
 out:
 	hc_free(counts);
+	hc_free(theta);
+	hc_free(se);
 	return rc;
 }
 

@@ -803,10 +803,10 @@ static int at_limit(const struct rules_config *cfg, double vbar, double cbar, si
  * Satterthwaite's for sums of squares; the portfolio variance is a
  * positive, right-skewed quadratic form).  Exactly 0 or 1 when the spread
  * is 0 (n = M). */
-static int at_gamma_prob(const struct moments *mo, double vbar, double cbar, size_t n,
+static int at_gamma_prob(const struct moments *mo, double mean, size_t n,
 			 double limit, double *prob, struct hc_error *err)
 {
-	double mean = equal_weight_variance(vbar, cbar, n), sd;
+	double sd;
 	int status;
 
 	if ((status = hc_curve_variance_sd(mo, n, &sd, err)) != HC_OK)
@@ -818,12 +818,36 @@ static int at_gamma_prob(const struct moments *mo, double vbar, double cbar, siz
 	return HC_OK;
 }
 
+/* Settled from the top, as the sampled rules: the probability rises with n
+ * in practice, and a scan down from m guards against a dip.  mean[n - 1]
+ * is E[s^2(n)], or NULL for the equal-weight v-bar/n + (1 - 1/n) c-bar. */
+static int at_scan(const struct rules_config *cfg, const struct moments *mo, const double *mean, size_t m,
+		   double limit, struct rule_result *res, struct hc_error *err)
+{
+	double prob;
+	size_t n;
+	int status;
+
+	for (n = m; n >= 1; n--) {
+		double mu = mean ? mean[n - 1] : equal_weight_variance(mo->average_variance, mo->average_covariance, n);
+
+		if ((status = at_gamma_prob(mo, mu, n, limit, &prob, err)) != HC_OK)
+			return status;
+		if (!(prob >= cfg->at_q))
+			break;
+		res->met = 1;
+		res->count = n;
+		res->value = prob;
+	}
+	if (!res->met)
+		note_not_met(res, m, "");
+	return HC_OK;
+}
+
 int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments *mo,
 			   struct rule_result *res, struct hc_error *err)
 {
-	double vbar, cbar, limit, prob;
-	size_t n;
-	int status;
+	double limit;
 
 	result_init(cfg, RULES_ALEXEEV_TAPON, res);
 	res->threshold = cfg->at_q;
@@ -833,27 +857,30 @@ int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments 
 			 "needs the exact spread: a return history or a covariance matrix, not summary statistics");
 		return HC_OK;
 	}
-	vbar = mo->average_variance;
-	cbar = mo->average_covariance;
-	if (at_limit(cfg, vbar, cbar, mo->m, &limit) != 0) {
+	if (at_limit(cfg, mo->average_variance, mo->average_covariance, mo->m, &limit) != 0) {
 		res->defined = 0;
 		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
 		return HC_OK;
 	}
-	/* Settled from the top, as the sampled rules: the probability rises
-	 * with n in practice, and a scan down from M guards against a dip. */
-	for (n = mo->m; n >= 1; n--) {
-		if ((status = at_gamma_prob(mo, vbar, cbar, n, limit, &prob, err)) != HC_OK)
-			return status;
-		if (!(prob >= cfg->at_q))
-			break;
-		res->met = 1;
-		res->count = n;
-		res->value = prob;
+	return at_scan(cfg, mo, NULL, mo->m, limit, res, err);
+}
+
+int hc_rules_alexeev_tapon_between(const struct rules_config *cfg, const struct moments *spread,
+				   const double *mean, double one_holding, double universe_variance,
+				   struct rule_result *res, struct hc_error *err)
+{
+	double limit;
+
+	result_init(cfg, RULES_ALEXEEV_TAPON, res);
+	res->threshold = cfg->at_q;
+	if (!spread || !spread->has_spread || spread->m < 2)
+		return hc_error(err, HC_EUSAGE, "the exact Alexeev & Tapon rule needs the exact spread");
+	if (at_limit_between(cfg, one_holding, universe_variance, &limit) != 0) {
+		res->defined = 0;
+		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
+		return HC_OK;
 	}
-	if (!res->met)
-		note_not_met(res, mo->m, "");
-	return HC_OK;
+	return at_scan(cfg, spread, mean, spread->m, limit, res, err);
 }
 
 int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct sampler_result *r,
@@ -1313,38 +1340,34 @@ static double bca_count(const double *sorted, size_t nrep, double alpha)
  * below the estimate (ties count half), acceleration a from the
  * delete-a-block jackknife values (Kuensch, 1989), endpoints at the
  * replicate quantiles Phi(z0 + (z0 + z)/(1 - a (z0 + z))) for z = z(0.05),
- * z(0.95); counts are their ceilings.  *z0 and *acc report what was used.
+ * z(0.95); counts are their ceilings.  x is sorted in place.
  */
-static void bca_rule(const struct rules_config *cfg, int rule, const double *vbar, const double *cbar,
-		     size_t nrep, const double *jv, const double *jc, size_t nj, double vhat, double chat,
-		     size_t m, double ppy, double *work, struct rule_result *res)
+void hc_rules_interval_bca(struct rule_result *res, double est, double *x, size_t nrep,
+			   const double *jack, size_t nj)
 {
-	double est = hc_rules_exact_real(cfg, rule, vhat, chat, m, ppy), less = 0, eq = 0, p, z0, acc = 0;
-	double num = 0, den = 0, jmean = 0, zl = gsl_cdf_ugaussian_Pinv(0.05), zh = -zl, al, ah;
+	double less = 0, eq = 0, p, z0, acc = 0, num = 0, den = 0, jmean = 0;
+	double zl = gsl_cdf_ugaussian_Pinv(0.05), zh = -zl, al, ah;
 	size_t k, met = 0;
 	int finite = 1;
 
 	for (k = 0; k < nrep; k++) {
-		double x = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, ppy);
-
-		work[k] = isnan(x) ? INFINITY : x;   /* undefined in a replicate: never met there */
-		met += isfinite(work[k]) != 0;
-		less += work[k] < est;
-		eq += work[k] == est;
+		if (isnan(x[k]))
+			x[k] = INFINITY;   /* undefined in a replicate: never met there */
+		met += isfinite(x[k]) != 0;
+		less += x[k] < est;
+		eq += x[k] == est;
 	}
 	p = (less + 0.5 * eq) / (double)nrep;
 	p = fmin(fmax(p, 0.5 / (double)nrep), 1 - 0.5 / (double)nrep);
 	z0 = gsl_cdf_ugaussian_Pinv(p);
 	for (k = 0; k < nj; k++) {
-		double x = hc_rules_exact_real(cfg, rule, jv[k], jc[k], m, ppy);
-
-		finite &= isfinite(x) != 0;
-		jmean += x;
+		finite &= isfinite(jack[k]) != 0;
+		jmean += jack[k];
 	}
 	if (finite && nj > 1) {
 		jmean /= (double)nj;
 		for (k = 0; k < nj; k++) {
-			double d = jmean - hc_rules_exact_real(cfg, rule, jv[k], jc[k], m, ppy);
+			double d = jmean - jack[k];
 
 			num += d * d * d;
 			den += d * d;
@@ -1353,13 +1376,13 @@ static void bca_rule(const struct rules_config *cfg, int rule, const double *vba
 	}
 	al = gsl_cdf_ugaussian_P(z0 + (z0 + zl) / (1 - acc * (z0 + zl)));
 	ah = gsl_cdf_ugaussian_P(z0 + (z0 + zh) / (1 - acc * (z0 + zh)));
-	qsort(work, nrep, sizeof *work, cmp_double);
+	qsort(x, nrep, sizeof *x, cmp_double);
 	res->bootstrapped = 1;
 	res->replicates = nrep;
 	res->replicates_met = met;
-	res->count_p05 = bca_count(work, nrep, al);
-	res->count_p50 = bca_count(work, nrep, 0.5);
-	res->count_p95 = bca_count(work, nrep, ah);
+	res->count_p05 = bca_count(x, nrep, al);
+	res->count_p50 = bca_count(x, nrep, 0.5);
+	res->count_p95 = bca_count(x, nrep, ah);
 	if (res->met && !res->note[0] &&
 	    ((!isnan(res->count_p05) && (double)res->count < res->count_p05) ||
 	     (!isnan(res->count_p95) && (double)res->count > res->count_p95)))
@@ -1373,19 +1396,32 @@ int hc_rules_bootstrap_exact_bca(const struct rules_config *cfg, const double *v
 				 double chat, size_t m, double periods_per_year, struct rule_result *res,
 				 size_t nres, struct hc_error *err)
 {
-	double *work;
-	size_t j;
+	double *work, *jack;
+	size_t j, k;
 
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
 	work = hc_malloc(nrep * sizeof *work);
-	if (!work)
+	jack = hc_malloc((nj ? nj : 1) * sizeof *jack);
+	if (!work || !jack) {
+		hc_free(work);
+		hc_free(jack);
 		return hc_error(err, HC_ENOMEM, "out of memory for %zu bootstrap counts", nrep);
-	for (j = 0; j < nres; j++)
-		if ((RULES_FLAG(res[j].rule) & RULES_EXACT_MASK) && res[j].defined)
-			bca_rule(cfg, res[j].rule, vbar, cbar, nrep, jv, jc, nj, vhat, chat, m,
-				 periods_per_year, work, &res[j]);
+	}
+	for (j = 0; j < nres; j++) {
+		int rule = res[j].rule;
+
+		if (!(RULES_FLAG(rule) & RULES_EXACT_MASK) || !res[j].defined)
+			continue;
+		for (k = 0; k < nrep; k++)
+			work[k] = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, periods_per_year);
+		for (k = 0; k < nj; k++)
+			jack[k] = hc_rules_exact_real(cfg, rule, jv[k], jc[k], m, periods_per_year);
+		hc_rules_interval_bca(&res[j], hc_rules_exact_real(cfg, rule, vhat, chat, m, periods_per_year),
+				      work, nrep, jack, nj);
+	}
 	hc_free(work);
+	hc_free(jack);
 	return HC_OK;
 }
 
@@ -1394,17 +1430,67 @@ int hc_rules_bootstrap_exact_bca(const struct rules_config *cfg, const double *v
  * (Efron & Tibshirani, 1993, An Introduction to the Bootstrap, ch. 12, and
  * Hall, 1988, Annals of Statistics 16(3), for its second-order accuracy):
  * t_k = (log theta*_k - log theta-hat) / se*_k with each replicate's own
- * delta-method standard error from the per-period series q_t and s2_t of
- * its periods (hc_bootstrap_period_series), so that a replicate that
- * missed the sample's large shocks has both a low estimate and a low
- * standard error -- the link a percentile interval loses under fat tails.
+ * delta-method standard error, so that a replicate that missed the
+ * sample's large shocks has both a low estimate and a low standard error
+ * -- the link a percentile interval loses under fat tails.
  * Interval: exp(log theta-hat - t_(0.95) se, log theta-hat - t_(0.05) se).
  */
+int hc_rules_interval_studentized(struct rule_result *res, double est, double se0, const double *x,
+				  const double *se, size_t nrep, size_t m, struct hc_error *err)
+{
+	double *tk = hc_malloc(nrep * sizeof *tk), *cnt = hc_malloc(nrep * sizeof *cnt), lo, hi, tl, th;
+	double nmax = m ? (double)m : (double)RULES_UNBOUNDED_MAX;
+	size_t k, met = 0;
+
+	if (!tk || !cnt) {
+		hc_free(tk);
+		hc_free(cnt);
+		return hc_error(err, HC_ENOMEM, "out of memory for the studentized bootstrap");
+	}
+	for (k = 0; k < nrep; k++) {
+		cnt[k] = isnan(x[k]) ? INFINITY : x[k];
+		met += isfinite(cnt[k]) != 0;
+		/* a replicate not met, or without a standard error, lies beyond every other */
+		tk[k] = isfinite(x[k]) && se[k] > 0 ? (log(x[k]) - log(est)) / se[k] : INFINITY;
+	}
+	qsort(cnt, nrep, sizeof *cnt, cmp_double);
+	res->bootstrapped = 1;
+	res->replicates = nrep;
+	res->replicates_met = met;
+	res->count_p50 = bca_count(cnt, nrep, 0.5);
+	if (!isfinite(est) || !(se0 > 0)) {
+		res->count_p05 = bca_count(cnt, nrep, 0.05);
+		res->count_p95 = bca_count(cnt, nrep, 0.95);
+		goto out;
+	}
+	qsort(tk, nrep, sizeof *tk, cmp_double);
+	tl = tk[(size_t)fmax(ceil(0.05 * (double)nrep) - 1, 0)];
+	th = tk[(size_t)fmax(ceil(0.95 * (double)nrep) - 1, 0)];
+	lo = isfinite(th) ? exp(log(est) - th * se0) : 0;
+	hi = exp(log(est) - tl * se0);
+	res->count_p05 = ceil(lo) < 1 ? 1 : ceil(lo);
+	res->count_p95 = ceil(hi) > nmax ? NAN : fmax(ceil(hi), 1);
+	if (res->met && !res->note[0] &&
+	    ((double)res->count < res->count_p05 ||
+	     (!isnan(res->count_p95) && (double)res->count > res->count_p95)))
+		snprintf(res->note, sizeof res->note,
+			 "the studentized interval excludes the estimate: the replicates' t-statistics lie "
+			 "to one side of 0 (from %.2f to %.2f)", tl, th);
+out:
+	hc_free(tk);
+	hc_free(cnt);
+	return HC_OK;
+}
+
+/* The delta-method standard error of log theta from the per-period series
+ * q_t and s2_t of the drawn periods idx (bootstrap.h's
+ * hc_bootstrap_long_run_se on the linearised series); g holds t. */
 static double log_se(const struct rules_config *cfg, int rule, double vbar, double cbar, size_t m,
-		     double ppy, size_t t, const double *q, const double *s2, const size_t *idx, size_t bw)
+		     double ppy, size_t t, const double *q, const double *s2, const size_t *idx, size_t bw,
+		     double *g)
 {
 	double th = hc_rules_exact_real(cfg, rule, vbar, cbar, m, ppy), hv = 1e-6 * fabs(vbar), hc = 1e-6 * fabs(cbar);
-	double dv, dc, k1, k2, ga, gb, mq = 0, ms = 0, sqq = 0, sss = 0, sqs = 0, dm = (double)m, dt = (double)t;
+	double dv, dc, k1, k2, ga, gb, dm = (double)m, dt = (double)t;
 	size_t i;
 
 	if (!isfinite(th) || !(hv > 0) || !(hc > 0))
@@ -1419,36 +1505,9 @@ static double log_se(const struct rules_config *cfg, int rule, double vbar, doub
 	k2 = dt / ((dt - 1) * dm * (dm - 1));
 	ga = dv * k1 - dc * k2;   /* d log theta / d mean(q) */
 	gb = dc * k2;             /* d log theta / d mean(s2) */
-	for (i = 0; i < t; i++) {
-		size_t p = idx ? idx[i] : i;
-
-		mq += q[p];
-		ms += s2[p];
-	}
-	mq /= dt;
-	ms /= dt;
-	/* Long-run variance of the linearised series g_i = ga q + gb s2 with
-	 * Bartlett weights (Newey & West, 1987, Econometrica 55(3)) up to lag
-	 * bw - 1: dependence in the squares (volatility clustering) widens it. */
-	{
-		double lrv = 0;
-		size_t lag;
-
-		for (lag = 0; lag < bw && lag < t; lag++) {
-			double c = 0, wgt = lag == 0 ? 1.0 : 2.0 * (1.0 - (double)lag / (double)bw);
-
-			for (i = lag; i < t; i++) {
-				size_t p = idx ? idx[i] : i, p0 = idx ? idx[i - lag] : i - lag;
-
-				c += (ga * (q[p] - mq) + gb * (s2[p] - ms)) * (ga * (q[p0] - mq) + gb * (s2[p0] - ms));
-			}
-			lrv += wgt * c;
-		}
-		(void)sqq;
-		(void)sss;
-		(void)sqs;
-		return sqrt(fmax(lrv, 0) / (dt * dt));
-	}
+	for (i = 0; i < t; i++)
+		g[i] = ga * q[i] + gb * s2[i];
+	return hc_bootstrap_long_run_se(g, idx, t, bw);
 }
 
 int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct bootstrap_base *b,
@@ -1457,81 +1516,50 @@ int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct boot
 			       struct rule_result *res, size_t nres, struct hc_error *err)
 {
 	size_t t = b->t, m = b->m, j, k, *idx = NULL;
-	double *q = NULL, *s2 = NULL, *tk = NULL, *cnt = NULL, *se = NULL;
+	double *q = NULL, *s2 = NULL, *g = NULL, *x = NULL, *se = NULL;
 	int status = HC_OK;
 
 	if (nrep == 0)
 		return hc_error(err, HC_EUSAGE, "the bootstrap needs at least one replicate");
 	q = hc_malloc(t * sizeof *q);
 	s2 = hc_malloc(t * sizeof *s2);
+	g = hc_malloc(t * sizeof *g);
 	idx = hc_malloc(t * sizeof *idx);
-	tk = hc_malloc(nrep * sizeof *tk);
-	cnt = hc_malloc(nrep * sizeof *cnt);
+	x = hc_malloc(nrep * sizeof *x);
 	se = hc_malloc(nrep * RULES_COUNT * sizeof *se);
-	if (!q || !s2 || !idx || !tk || !cnt || !se) {
+	if (!q || !s2 || !g || !idx || !x || !se) {
 		status = hc_error(err, HC_ENOMEM, "out of memory for the studentized bootstrap");
 		goto cleanup;
 	}
 	hc_bootstrap_period_series(b, q, s2);
+	/* se[rule * nrep + k]: replicate k's standard error for the rule */
 	for (k = 0; k < nrep; k++) {
 		if ((status = hc_bootstrap_indices(bopt->kind, t, block_length, bopt->seed, k, idx, err)) != HC_OK)
 			goto cleanup;
 		for (j = 0; j < nres; j++)
-			se[k * RULES_COUNT + res[j].rule] = (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
-				? log_se(cfg, res[j].rule, vbar[k], cbar[k], m, periods_per_year, t, q, s2, idx, block_length) : NAN;
+			se[(size_t)res[j].rule * nrep + k] = (RULES_FLAG(res[j].rule) & RULES_EXACT_MASK)
+				? log_se(cfg, res[j].rule, vbar[k], cbar[k], m, periods_per_year, t, q, s2, idx,
+					 block_length, g) : NAN;
 	}
-	for (j = 0; j < nres; j++) {
+	for (j = 0; j < nres && status == HC_OK; j++) {
 		int rule = res[j].rule;
-		double est, se0, lo, hi, tl, th;
-		size_t met = 0, n = 0;
 
 		if (!(RULES_FLAG(rule) & RULES_EXACT_MASK) || !res[j].defined)
 			continue;
-		est = hc_rules_exact_real(cfg, rule, vhat, chat, m, periods_per_year);
-		se0 = log_se(cfg, rule, vhat, chat, m, periods_per_year, t, q, s2, NULL, block_length);
-		for (k = 0; k < nrep; k++) {
-			double x = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, periods_per_year);
-			double s = se[k * RULES_COUNT + rule];
-
-			cnt[k] = isnan(x) ? INFINITY : x;
-			met += isfinite(cnt[k]) != 0;
-			/* a replicate not met, or without a standard error, lies beyond every other */
-			tk[n++] = isfinite(x) && s > 0 ? (log(x) - log(est)) / s : INFINITY;
-		}
-		qsort(cnt, nrep, sizeof *cnt, cmp_double);
-		res[j].bootstrapped = 1;
-		res[j].replicates = nrep;
-		res[j].replicates_met = met;
-		res[j].count_p50 = bca_count(cnt, nrep, 0.5);
-		if (!isfinite(est) || !(se0 > 0)) {
-			res[j].count_p05 = bca_count(cnt, nrep, 0.05);
-			res[j].count_p95 = bca_count(cnt, nrep, 0.95);
-			continue;
-		}
-		qsort(tk, n, sizeof *tk, cmp_double);
-		tl = tk[(size_t)fmax(ceil(0.05 * (double)n) - 1, 0)];
-		th = tk[(size_t)fmax(ceil(0.95 * (double)n) - 1, 0)];
-		lo = isfinite(th) ? exp(log(est) - th * se0) : 0;
-		hi = exp(log(est) - tl * se0);
-		res[j].count_p05 = ceil(lo) < 1 ? 1 : ceil(lo);
-		{
-			double nmax = m ? (double)m : (double)RULES_UNBOUNDED_MAX;
-
-			res[j].count_p95 = ceil(hi) > nmax ? NAN : fmax(ceil(hi), 1);
-		}
-		if (res[j].met && !res[j].note[0] &&
-		    ((double)res[j].count < res[j].count_p05 ||
-		     (!isnan(res[j].count_p95) && (double)res[j].count > res[j].count_p95)))
-			snprintf(res[j].note, sizeof res[j].note,
-				 "the studentized interval excludes the estimate: the replicates' t-statistics lie "
-				 "to one side of 0 (from %.2f to %.2f)", tl, th);
+		for (k = 0; k < nrep; k++)
+			x[k] = hc_rules_exact_real(cfg, rule, vbar[k], cbar[k], m, periods_per_year);
+		status = hc_rules_interval_studentized(&res[j], hc_rules_exact_real(cfg, rule, vhat, chat, m,
+										   periods_per_year),
+						       log_se(cfg, rule, vhat, chat, m, periods_per_year, t, q, s2,
+							      NULL, block_length, g),
+						       x, se + (size_t)rule * nrep, nrep, m, err);
 	}
 cleanup:
 	hc_free(q);
 	hc_free(s2);
+	hc_free(g);
 	hc_free(idx);
-	hc_free(tk);
-	hc_free(cnt);
+	hc_free(x);
 	hc_free(se);
 	return status;
 }

@@ -155,6 +155,18 @@ int hc_bootstrap_jackknife(const struct bootstrap_base *b, size_t block_length, 
 void hc_bootstrap_period_series(const struct bootstrap_base *b, double *q, double *s2);
 
 /*
+ * The standard error of the mean of a linearised per-period series g over
+ * the periods idx[0..t-1] of a replicate (idx NULL: periods 0..t-1 in
+ * order; g indexed by period): sqrt(sum_{|k|<bw} w_k gamma_k / t), gamma_k
+ * the lag-k autocovariance sum of g about its mean over the drawn periods
+ * (divisor t) and w_k the Bartlett weights 1 - |k|/bw (Newey & West, 1987,
+ * Econometrica 55(3)).  The delta-method standard error of a smooth
+ * function of per-period means, as the studentized intervals (rules.h,
+ * periodic.h) use it.  No allocation.
+ */
+double hc_bootstrap_long_run_se(const double *g, const size_t *idx, size_t t, size_t bw);
+
+/*
  * Volatility clustering in b's history: the McLeod & Li (1983) test,
  * "Diagnostic Checking ARMA Time Series Models Using Squared-Residual
  * Autocorrelations", Journal of Time Series Analysis 4(4) -- the Ljung &

@@ -87,6 +87,19 @@ int hc_curve_pairwise_spread(struct curve *c, const struct universe *u, struct m
 			     struct hc_error *err);
 
 /*
+ * The moments behind a ragged source's exact spread (those of
+ * hc_curve_pairwise_spread, has_spread set) for the securities the
+ * per-period route kept (src->per->member).  When the pairwise-complete
+ * matrix cannot be built (a pair without enough common periods, a security
+ * that does not vary: HC_EDATA; too large for the memory budget:
+ * HC_ENOMEM) the result is HC_OK with *mo zeroed (has_spread 0) and the
+ * reason in reason[0..len); other errors are returned.  src must be
+ * HC_SOURCE_RAGGED.
+ */
+int hc_curve_ragged_spread_moments(const struct hc_source *src, struct moments *mo, char *reason, size_t len,
+				   struct hc_error *err);
+
+/*
  * The curve of src at sizes[0..nsizes) (each 1..M; hc_curve_parse_sizes or
  * hc_curve_default_sizes make them), annualised like the source: stratified
  * draws first when asked (from complete series only, paths above 0), then

@@ -103,6 +103,8 @@ struct hc_enough {
 	size_t sampled_sizes;        /* sampled sizes 1..this */
 	int sampled_bootstrapped;
 	const char *no_interval;     /* static: why there is no interval, or NULL */
+	char at_spread_reason[HC_ERROR_MESSAGE_MAX - 16]; /* ragged: why alexeev-tapon has no exact
+				     * spread (the pairwise-complete matrix cannot be built); "" otherwise */
 	struct hc_measures_curve *measures; /* with opt->measures and a rule met; else NULL */
 	int policy_rule;             /* enum rules_id the recommendation took; -1: no rule was run */
 	size_t policy_count;         /* the recommended minimum holdings; 0: none (see the report) */
@@ -118,7 +120,8 @@ struct hc_enough {
  * alexeev-tapon-sampled also from a matrix (a covariance matrix, or the
  * pairwise-complete covariances of series with gaps: build such a source
  * with need_matrix when they are selected) and lag-share only from complete
- * series; the bootstrap interval of the exact rules (complete series only;
+ * series; the bootstrap interval of the exact rules (complete series, or a
+ * ragged history period by period: periodic.h;
  * opt->interval) and, with bootstrap_sampled, of the sampled ones; then the
  * recommendation (opt->policy, opt->policy_at) with its policy sentence.
  * A matrix's figures are on its own scale unless the source is

@@ -164,6 +164,67 @@ int hc_periodic_bootstrap(const struct rules_config *cfg, const struct hc_period
 			  struct rule_result *res, size_t nres, struct hc_error *err);
 
 /*
+ * The continuous count of an exact rule on the curve c: the real N at
+ * which the rule's quantity crosses its threshold on the curve extended to
+ * real N (E(N) = a + sum over periods of max(0, 1/N - 1/M_t) s2_t/(T-1),
+ * continuous in N), clamped into (count - 1, count] so that its ceiling is
+ * hc_periodic_rule_count's count.  +inf when not met, NaN when undefined.
+ * On complete data it is hc_rules_exact_real of the same averages (to
+ * rounding): the quantity the studentized and BCa intervals are built on.
+ */
+double hc_periodic_rule_real(const struct rules_config *cfg, int rule, const struct hc_periodic_curve *c,
+			     double periods_per_year);
+
+/* The interval method of hc_periodic_bootstrap_interval. */
+enum hc_periodic_interval {
+	HC_PERIODIC_INTERVAL_PERCENTILE = 0,   /* percentiles of the replicates' counts */
+	HC_PERIODIC_INTERVAL_STUDENTIZED = 1,  /* bootstrap-t on the log continuous count */
+	HC_PERIODIC_INTERVAL_BCA = 2           /* Efron's (1987) BCa, jackknife acceleration */
+};
+
+/*
+ * hc_periodic_bootstrap with a choice of interval, the methods of complete
+ * data on the same quantity (rules.h: hc_rules_interval_studentized,
+ * hc_rules_interval_bca), from the same replicates:
+ *   - studentized: each replicate's continuous count (hc_periodic_rule_real
+ *     of its curve) studentized by the delta-method standard error of its
+ *     log from the replicate's own periods -- the curve is a mean of
+ *     per-period contributions (xbar_t^2, and s2_t and s2_t/M_t to every
+ *     branch at or below M_t), so each period has a linearised value, and
+ *     their long-run variance with Bartlett weights up to the block length
+ *     gives the error (hc_bootstrap_long_run_se), as on complete data;
+ *   - BCa: bias correction from the replicates, acceleration from
+ *     hc_periodic_jackknife with the block length (none with fewer than two
+ *     blocks).  u is the history p was computed from (window from period 0,
+ *     all of its periods); needed for BCa only (else may be NULL).
+ * Rules not defined on the sample are left without an interval, as on
+ * complete data.  HC_EUSAGE for an unknown method or a missing u; the
+ * errors of hc_periodic_bootstrap.
+ */
+int hc_periodic_bootstrap_interval(const struct rules_config *cfg, const struct hc_periodic *p,
+				   const struct universe *u, const struct bootstrap_options *bopt,
+				   double periods_per_year, int method, struct rule_result *res, size_t nres,
+				   struct hc_error *err);
+
+/*
+ * The delete-a-block jackknife (Kuensch, 1989) of the continuous counts of
+ * rules[0..nrules-1], as hc_bootstrap_jackknife does it on complete data:
+ * block b (periods bL..bL+L-1, b < floor(T/L)) left out, the per-period
+ * sums of the rest formed afresh (hc_periodic_alloc on u without the
+ * block: leaving out periods moves each security's own mean and so every
+ * period's centred cross-section; a security observed once in the rest
+ * drops out of the alive sets).  (*jack)[q * *nj + b] is rule q's value
+ * (NaN when the rest has no per-period sums); *jack is allocated (hc_free).
+ * *nj = 0 and *jack NULL with fewer than two blocks or fewer than two
+ * periods left.  On complete data the values are hc_rules_exact_real of
+ * hc_bootstrap_jackknife's averages.  O(M T) a block.  HC_EUSAGE when u
+ * does not have p's periods; HC_ENOMEM (budget p->max_bytes).
+ */
+int hc_periodic_jackknife(const struct rules_config *cfg, const struct hc_periodic *p, const struct universe *u,
+			  size_t block_length, double periods_per_year, const int *rules, size_t nrules,
+			  double **jack, size_t *nj, struct hc_error *err);
+
+/*
  * Sample ragged portfolios: a path is a random order of the p->m
  * securities; at each period its portfolio of size n holds the first
  * min(n, M_t) securities of that order alive then, equally weighted.

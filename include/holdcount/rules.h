@@ -270,6 +270,19 @@ int hc_rules_sampled(const struct rules_config *cfg, const struct hc_source *src
  */
 int hc_rules_alexeev_tapon(const struct rules_config *cfg, const struct moments *mo,
 			   struct rule_result *res, struct hc_error *err);
+
+/*
+ * The same rule with the mean of each count given: mean[n - 1] the
+ * expected variance of a random n-holding portfolio (n = 1..spread->m),
+ * the variance's spread across n-subsets from spread (hc_curve_variance_sd:
+ * spread->has_spread), the removable variance from one_holding down to
+ * universe_variance.  For a ragged history (periodic.h): the per-period
+ * curve's mean, the pairwise-complete matrix's spread.  HC_EUSAGE without
+ * a spread; res undefined (with the reason) when nothing is removable.
+ */
+int hc_rules_alexeev_tapon_between(const struct rules_config *cfg, const struct moments *spread,
+				   const double *mean, double one_holding, double universe_variance,
+				   struct rule_result *res, struct hc_error *err);
 int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct sampler_result *r,
 				   double vbar, double cbar, size_t m, struct rule_result *res,
 				   struct hc_error *err);
@@ -375,6 +388,23 @@ int hc_rules_bootstrap_exact_t(const struct rules_config *cfg, const struct boot
 			       const struct bootstrap_options *bopt, size_t block_length, const double *vbar,
 			       const double *cbar, size_t nrep, double vhat, double chat, double periods_per_year,
 			       struct rule_result *res, size_t nres, struct hc_error *err);
+
+/*
+ * The interval methods on continuous counts, shared by the complete-data
+ * route above and the per-period route (periodic.h); est is the sample's
+ * continuous count, x[k] replicate k's (+inf: not met, NaN: undefined).
+ * hc_rules_interval_bca: Efron's (1987) BCa with the acceleration from the
+ * jackknife values jack[0..nj-1] (none finite or nj < 2: no acceleration);
+ * sorts x in place.  hc_rules_interval_studentized: bootstrap-t on log x
+ * with se0 the estimate's and se[k] replicate k's standard error of the
+ * log count; m the largest count (0: unbounded); HC_ENOMEM.  Both set
+ * bootstrapped, replicates, replicates_met, count_p05/p50/p95 and, when
+ * the interval excludes the estimate, the note.
+ */
+void hc_rules_interval_bca(struct rule_result *res, double est, double *x, size_t nrep,
+			   const double *jack, size_t nj);
+int hc_rules_interval_studentized(struct rule_result *res, double est, double se0, const double *x,
+				  const double *se, size_t nrep, size_t m, struct hc_error *err);
 
 /*
  * Set res's interval from per replicate counts: count[k] is the count of
