@@ -464,19 +464,32 @@ static void blas_threaded_end(void)
  */
 #define PAIRWISE_SPARSE_SHARE 8
 
-/* Rows and columns of the tiles the gaps way walks: two tiles' rows of Z
- * (2 x 32 x T doubles, 1.3 MB at T = 2500) stay in the second-level cache
- * while each pair gathers from them. */
-#define PAIRWISE_TILE 32
+/* Rows and columns of the tiles the gaps way walks.  A row of Z is
+ * gathered from at the gaps of a whole tile's width of securities while it
+ * is in cache (with 32, most of its cache lines were fetched for one or
+ * two gathers each and the gathers waited on memory); each thread holds
+ * two tiles of sums (2 x 256^2 x 24 bytes, 3 MB). */
+#define PAIRWISE_TILE 256
+
+/* Runs of at least this many gaps in a row (a late listing, an early
+ * delisting, a suspension) are summed as ranges, not gathered period by
+ * period. */
+#define PAIRWISE_LONG_RUN 16
+
+struct gap_run {
+	uint32_t start, len;
+};
 
 /* The shifted returns and what both ways share.  d[i] counts i's gaps;
- * the gaps way also has miss (the M x T 0/1 mask of gaps) and i's missing
- * periods in order at idx[off[i] .. off[i+1]). */
+ * the gaps way also has miss (the M x T 0/1 mask of gaps), i's missing
+ * periods outside long runs in order at idx[off[i] .. off[i+1]) and its
+ * runs of PAIRWISE_LONG_RUN gaps or more at run[roff[i] .. roff[i+1]). */
 struct pairwise_data {
 	size_t m, t, gaps;
 	double *z, *w1, *w2;       /* Z; sum_k z_ik and sum_k z_ik^2 */
-	size_t *d, *off;
+	size_t *d, *off, *roff;
 	uint32_t *idx;
+	struct gap_run *run;
 	unsigned char *miss;
 	float *find;               /* dense: K in single precision */
 	double *ind, *z2;          /* dense: K and Z2 */
@@ -490,6 +503,8 @@ static void pairwise_data_release(struct pairwise_data *p)
 	hc_free(p->d);
 	hc_free(p->off);
 	hc_free(p->idx);
+	hc_free(p->roff);
+	hc_free(p->run);
 	hc_free(p->miss);
 	hc_free(p->find);
 	hc_free(p->ind);
@@ -511,27 +526,41 @@ static int pairwise_data_fill(struct pairwise_data *p, const struct universe *u,
 	p->t = t;
 	p->d = hc_mallocarray(m, sizeof *p->d);
 	p->off = hc_mallocarray(m + 1, sizeof *p->off);
+	p->roff = hc_mallocarray(m + 1, sizeof *p->roff);
 	mean = hc_mallocarray(m, sizeof *mean);
-	if (!p->d || !p->off || !mean)
+	if (!p->d || !p->off || !p->roff || !mean)
 		goto nomem;
 #pragma omp parallel for schedule(static) if (threads)
 	for (ii = 0; ii < (long)m; ii++) {
 		const double *x = u->x + (size_t)ii * t;
 		double s = 0;
-		size_t k, obs = 0;
+		size_t k = 0, e, obs = 0, shortgaps = 0, runs = 0;
 
-		for (k = 0; k < t; k++)
+		while (k < t) {
 			if (!isnan(x[k])) {
-				s += x[k];
+				s += x[k++];
 				obs++;
+				continue;
 			}
+			for (e = k; e < t && isnan(x[e]); e++)
+				;
+			if (e - k >= PAIRWISE_LONG_RUN)
+				runs++;
+			else
+				shortgaps += e - k;
+			k = e;
+		}
 		mean[ii] = obs ? s / (double)obs : 0;
 		p->d[ii] = t - obs;
+		p->off[ii + 1] = shortgaps;
+		p->roff[ii + 1] = runs;
 	}
-	p->off[0] = 0;
-	for (i = 0; i < m; i++)
-		p->off[i + 1] = p->off[i] + p->d[i];
-	p->gaps = p->off[m];
+	p->off[0] = p->roff[0] = 0;
+	for (i = 0; i < m; i++) {
+		p->off[i + 1] += p->off[i];
+		p->roff[i + 1] += p->roff[i];
+		p->gaps += p->d[i];
+	}
 	sparse = way == MOMENTS_PAIRWISE_GAPS ||
 		 (way == MOMENTS_PAIRWISE_AUTO && p->gaps <= nmt / PAIRWISE_SPARSE_SHARE);
 	p->z = hc_mallocarray(nmt, sizeof *p->z);
@@ -540,9 +569,10 @@ static int pairwise_data_fill(struct pairwise_data *p, const struct universe *u,
 	if (!p->z || !p->w1 || !p->w2)
 		goto nomem;
 	if (sparse) {
-		p->idx = hc_mallocarray(p->gaps ? p->gaps : 1, sizeof *p->idx);
+		p->idx = hc_mallocarray(p->off[m] ? p->off[m] : 1, sizeof *p->idx);
+		p->run = hc_mallocarray(p->roff[m] ? p->roff[m] : 1, sizeof *p->run);
 		p->miss = hc_malloc(nmt);
-		if (!p->idx || !p->miss)
+		if (!p->idx || !p->run || !p->miss)
 			goto nomem;
 	} else {
 		p->find = hc_mallocarray(nmt, sizeof *p->find);
@@ -553,10 +583,20 @@ static int pairwise_data_fill(struct pairwise_data *p, const struct universe *u,
 	}
 #pragma omp parallel for schedule(static) if (threads)
 	for (ii = 0; ii < (long)m; ii++) {
-		size_t k, r = (size_t)ii * t, g = p->off[ii];
+		size_t k, e, r = (size_t)ii * t, g = p->off[ii], q = p->roff[ii];
 		const double *x = u->x + r;
 		double w1 = 0, w2 = 0;
 
+		for (k = 0; sparse && k < t; k = e) {   /* the gaps, short ones and long runs */
+			for (e = k; e < t && isnan(x[e]); e++)
+				;
+			if (e - k >= PAIRWISE_LONG_RUN)
+				p->run[q++] = (struct gap_run){ (uint32_t)k, (uint32_t)(e - k) };
+			else
+				while (k < e)
+					p->idx[g++] = (uint32_t)k++;
+			e += e < t;
+		}
 		for (k = 0; k < t; k++) {
 			int seen = !isnan(x[k]);
 			double v = seen ? x[k] - mean[ii] : 0.0;
@@ -566,8 +606,6 @@ static int pairwise_data_fill(struct pairwise_data *p, const struct universe *u,
 			w2 += v * v;
 			if (sparse) {
 				p->miss[r + k] = (unsigned char)!seen;
-				if (!seen)
-					p->idx[g++] = (uint32_t)k;
 			} else {
 				p->find[r + k] = (float)seen;
 				p->ind[r + k] = seen;
@@ -607,12 +645,14 @@ struct gap_sums {
 
 /* Row r's sums over the gaps of each c in c0..c1, into g[r - r0][c - c0]
  * (with the periods both miss when count is set): row r stays in the
- * first-level cache while the gap lists stream past.  Four partial sums,
- * so that the additions do not wait on each other. */
+ * cache while the gap lists stream past (g[r - r0][c - c0]
+ * with rows of ld, or g[c - c0][r - r0] when transposed); a long run of gaps
+ * is a range read in order.  Four partial sums, so that the additions do
+ * not wait on each other. */
 static void gather_tile(const struct pairwise_data *p, size_t r0, size_t r1, size_t c0, size_t c1, int count,
-			struct gap_sums g[PAIRWISE_TILE][PAIRWISE_TILE])
+			struct gap_sums *g, size_t ld, int transposed)
 {
-	size_t r, c, k;
+	size_t r, c, k, q;
 
 	for (r = r0; r < r1; r++) {
 		const double *zr = p->z + r * p->t;
@@ -649,8 +689,30 @@ static void gather_tile(const struct pairwise_data *p, size_t r0, size_t r1, siz
 				for (; k < ng; k++)
 					b0 += mr[gap[k]];
 			}
-			g[r - r0][c - c0] = (struct gap_sums){ (s0 + s1) + (s2 + s3), (q0 + q1) + (q2 + q3),
-							       b0 + b1 + b2 + b3 };
+			for (q = p->roff[c]; q < p->roff[c + 1]; q++) {
+				const double *zz = zr + p->run[q].start;
+				const unsigned char *mm = mr + p->run[q].start;
+				size_t len = p->run[q].len;
+
+				for (k = 0; k + 4 <= len; k += 4) {
+					s0 += zz[k];
+					s1 += zz[k + 1];
+					s2 += zz[k + 2];
+					s3 += zz[k + 3];
+					q0 += zz[k] * zz[k];
+					q1 += zz[k + 1] * zz[k + 1];
+					q2 += zz[k + 2] * zz[k + 2];
+					q3 += zz[k + 3] * zz[k + 3];
+				}
+				for (; k < len; k++) {
+					s0 += zz[k];
+					q0 += zz[k] * zz[k];
+				}
+				for (k = 0; count && k < len; k++)
+					b1 += mm[k];
+			}
+			g[transposed ? (c - c0) * ld + (r - r0) : (r - r0) * ld + (c - c0)] =
+				(struct gap_sums){ (s0 + s1) + (s2 + s3), (q0 + q1) + (q2 + q3), b0 + b1 + b2 + b3 };
 		}
 	}
 }
@@ -729,27 +791,29 @@ static int pairwise_diagonal(const struct universe *u, const struct pairwise_dat
 
 /* The pairs i < j of one tile; the correlations' sum into *rsum; 0 when
  * some pair has no correlation.  Both directions are gathered row by row
- * (gij: rows of block bi over the gaps of block bj; gji the other way),
- * each from a row in cache. */
-static int gaps_tile(const struct pairwise_data *p, size_t bi, size_t bj, double *a, double *cnt,
-		     long double *rsum)
+ * (gij: rows of block bi over the gaps
+ * of block bj, gji the other way, stored transposed so that both are read
+ * by [i][j]), each from a row in cache. */
+static int gaps_tile(const struct pairwise_data *p, size_t bi, size_t bj, struct gap_sums *gij,
+		     struct gap_sums *gji, double *a, double *cnt, long double *rsum)
 {
-	struct gap_sums gij[PAIRWISE_TILE][PAIRWISE_TILE], gji[PAIRWISE_TILE][PAIRWISE_TILE];
 	size_t m = p->m, i, j, i0 = bi * PAIRWISE_TILE, j0 = bj * PAIRWISE_TILE;
 	size_t i1 = i0 + PAIRWISE_TILE < m ? i0 + PAIRWISE_TILE : m, j1 = j0 + PAIRWISE_TILE < m ? j0 + PAIRWISE_TILE : m;
+	size_t ld = j1 - j0;
 	long double r = 0;
 	int ok = 1;
 
-	gather_tile(p, i0, i1, j0, j1, 1, gij);
+	gather_tile(p, i0, i1, j0, j1, 1, gij, ld, 0);
 	if (bi != bj)
-		gather_tile(p, j0, j1, i0, i1, 0, gji);
+		gather_tile(p, j0, j1, i0, i1, 0, gji, ld, 1);
 	for (i = i0; i < i1; i++)
 		for (j = i + 1 > j0 ? i + 1 : j0; j < j1; j++) {
-			const struct gap_sums *back = bi != bj ? &gji[j - j0][i - i0] : &gij[j - j0][i - i0];
+			const struct gap_sums *back = bi != bj ? &gji[(i - i0) * ld + (j - j0)]
+							       : &gij[(j - j0) * ld + (i - i0)];
 			struct pair_sums s;
 			double cov, vx, vy;
 
-			pair_from_gaps(p, i, j, &gij[i - i0][j - j0], back, &s);
+			pair_from_gaps(p, i, j, &gij[(i - i0) * ld + (j - j0)], back, &s);
 			if (!pair_finish(&s, a[i * m + j], &cov, &vx, &vy)) {
 				ok = 0;
 				continue;
@@ -774,35 +838,44 @@ static int gaps_tile(const struct pairwise_data *p, size_t bi, size_t bj, double
 static int pairwise_from_gaps(const struct universe *u, const struct pairwise_data *p, double *a,
 			      double *cnt, long double *rsum, struct hc_error *err)
 {
-	size_t m = p->m, nb = (m + PAIRWISE_TILE - 1) / PAIRWISE_TILE, b, i, j;
-	long double *part, R = 0;
-	int ok = 1, rc;
+	size_t m = p->m, nb = (m + PAIRWISE_TILE - 1) / PAIRWISE_TILE, b, i, j, per;
+	int threaded = (double)m * (double)(p->gaps + m) >= MOMENTS_THREADED_WORK / 16;
+	int nth = threaded ? omp_get_max_threads() : 1, ok = 1, rc;
+	struct gap_sums *g = NULL;
+	long double *part = NULL, R = 0;
 	long bb;
 
 	if ((rc = pairwise_diagonal(u, p, a, cnt, err)) != HC_OK)
 		return rc;
-	if (!(part = hc_calloc(nb * nb, sizeof *part)))
+	per = m < PAIRWISE_TILE ? m * m : PAIRWISE_TILE * PAIRWISE_TILE;   /* one tile's sums */
+	part = hc_calloc(nb * nb, sizeof *part);
+	g = hc_mallocarray(2 * (size_t)nth * per, sizeof *g);
+	if (!part || !g) {
+		hc_free(part);
+		hc_free(g);
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
-#pragma omp parallel for schedule(dynamic) reduction(&& : ok) \
-	if ((double)m * (double)(p->gaps + m) >= MOMENTS_THREADED_WORK / 16)
+	}
+#pragma omp parallel for schedule(dynamic) reduction(&& : ok) num_threads(nth) if (threaded)
 	for (bb = 0; bb < (long)(nb * nb); bb++) {
 		size_t bi = (size_t)bb / nb, bj = (size_t)bb % nb;
+		struct gap_sums *gt = g + 2 * (size_t)omp_get_thread_num() * per;
 
 		if (bj >= bi)
-			ok = gaps_tile(p, bi, bj, a, cnt, &part[bb]) && ok;
+			ok = gaps_tile(p, bi, bj, gt, gt + per, a, cnt, &part[bb]) && ok;
 	}
 	for (b = 0; b < nb * nb; b++)
 		R += part[b];
 	hc_free(part);
+	hc_free(g);
 	for (i = 0; !ok && i < m; i++)
 		for (j = i + 1; j < m; j++) {
-			struct gap_sums g[2][PAIRWISE_TILE][PAIRWISE_TILE];
+			struct gap_sums gi, gj;
 			struct pair_sums s;
 			double cov, vx = 0, vy;
 
-			gather_tile(p, i, i + 1, j, j + 1, 1, g[0]);
-			gather_tile(p, j, j + 1, i, i + 1, 0, g[1]);
-			pair_from_gaps(p, i, j, &g[0][0][0], &g[1][0][0], &s);
+			gather_tile(p, i, i + 1, j, j + 1, 1, &gi, 1, 0);
+			gather_tile(p, j, j + 1, i, i + 1, 0, &gj, 1, 0);
+			pair_from_gaps(p, i, j, &gi, &gj, &s);
 			if (!pair_finish(&s, 0.0, &cov, &vx, &vy))
 				return pair_error(u, i, j, &s, vx, err);
 		}

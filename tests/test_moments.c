@@ -425,8 +425,8 @@ static double pair_corr(const double *x, size_t t, size_t i, size_t j)
 	return (double)(c * (n - 1) / sqrtl(vi * vj));
 }
 
-/* A ragged 70 x 40 history (three 32-wide tiles of pairs, the last one
- * partial): scattered gaps, periods every security but one misses, a
+/* A ragged history, M x 40 (at M = 300, two 256-wide tiles of pairs, the
+ * second one partial): scattered gaps, periods every security but one misses, a
  * late listing and an early delisting (long runs of gaps). */
 static void ragged_returns(double *x, size_t m, size_t t)
 {
@@ -450,7 +450,7 @@ static void ragged_returns(double *x, size_t m, size_t t)
  */
 static void test_moments_pairwise_gap_counts(void **state)
 {
-	enum { M = 70, T = 40 };
+	enum { M = 300, T = 40 };
 	static double x[M * T];
 	double *ag, *ad, *ng, *nd, cg, cd;
 	long double rs = 0;
@@ -493,11 +493,11 @@ static void test_moments_pairwise_gap_counts(void **state)
 
 /* A pair with too few common periods, and one where a security does not
  * vary over the overlap: the gaps way, which checks pairs in tiles on
- * several threads (3 and 40 in one tile, 3 and 68 in another), names the
- * same first pair in row order as the dense way. */
+ * several threads (100 and 200 in the first tile, 3 and 270 in the
+ * second), names the same first pair in row order as the dense way. */
 static void test_moments_pairwise_gap_errors(void **state)
 {
-	enum { M = 70, T = 40 };
+	enum { M = 300, T = 40 };
 	static double x[M * T];
 	struct universe *u;
 	struct hc_error eg, ed;
@@ -506,9 +506,9 @@ static void test_moments_pairwise_gap_errors(void **state)
 
 	(void)state;
 	ragged_returns(x, M, T);
-	for (k = 0; k < T; k++) {   /* 3 (observed before 20) shares no period with 40 and 68 (after) */
-		x[(k < 20 ? 40 : 3) * T + k] = NAN;
-		x[(k < 20 ? 68 : 3) * T + k] = NAN;
+	for (k = 0; k < T; k++) {   /* 3 (observed before 20) shares no period with 270 (after); */
+		x[(k < 20 ? 270 : 3) * T + k] = NAN;
+		x[(k < 10 ? 200 : 100) * T + k] = NAN;   /* nor 100 (before 10) with 200 (after) */
 	}
 	u = fixture_universe(x, M, T);
 	assert_non_null(u);
@@ -516,7 +516,7 @@ static void test_moments_pairwise_gap_errors(void **state)
 	assert_null(a);
 	assert_int_equal(hc_moments_pairwise_by(u, MOMENTS_PAIRWISE_DENSE, &a, NULL, &c, &ed), HC_EDATA);
 	assert_string_equal(eg.message, ed.message);
-	assert_non_null(strstr(eg.message, "securities 'S04' and 'S41' have only 0 common periods"));
+	assert_non_null(strstr(eg.message, "securities 'S04' and 'S271' have only 0 common periods"));
 	fixture_free(u);
 
 	ragged_returns(x, M, T);
