@@ -564,6 +564,7 @@ static int pairwise_data_fill(struct pairwise_data *p, const struct universe *u,
 	sparse = way == MOMENTS_PAIRWISE_GAPS ||
 		 (way == MOMENTS_PAIRWISE_AUTO && p->gaps <= nmt / PAIRWISE_SPARSE_SHARE);
 	p->z = hc_mallocarray(nmt, sizeof *p->z);
+	hc_memory_advise_huge(p->z, nmt * sizeof *p->z);   /* first touches: 0.2 s of page faults in 4 KiB */
 	p->w1 = hc_mallocarray(m, sizeof *p->w1);
 	p->w2 = hc_mallocarray(m, sizeof *p->w2);
 	if (!p->z || !p->w1 || !p->w2)
@@ -572,6 +573,7 @@ static int pairwise_data_fill(struct pairwise_data *p, const struct universe *u,
 		p->idx = hc_mallocarray(p->off[m] ? p->off[m] : 1, sizeof *p->idx);
 		p->run = hc_mallocarray(p->roff[m] ? p->roff[m] : 1, sizeof *p->run);
 		p->miss = hc_malloc(nmt);
+		hc_memory_advise_huge(p->miss, nmt);
 		if (!p->idx || !p->run || !p->miss)
 			goto nomem;
 	} else {
@@ -951,6 +953,7 @@ static int pairwise_matrix(const struct universe *u, int way, double **out, doub
 	if ((rc = pairwise_data_fill(&p, u, way, err)) != HC_OK)
 		return rc;
 	a = hc_mallocarray(nmm, sizeof *a);
+	hc_memory_advise_huge(a, nmm * sizeof *a);
 	if (!a || (cnt_out && !(cnt = hc_mallocarray(nmm, sizeof *cnt)))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
 		goto cleanup;
