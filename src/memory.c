@@ -8,6 +8,9 @@
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
+#ifdef __linux__
+#include <sys/mman.h>
+#endif
 
 #include "holdcount/error.h"
 
@@ -199,4 +202,18 @@ int hc_memory_check(size_t max_bytes, double held, double need, struct hc_error 
 	va_end(ap);
 	return hc_error(err, HC_ENOMEM, "%s: needs at least %.1f MiB, budget %.1f MiB", what,
 			ceil(10 * (held + need) / mib) / 10, floor(10 * budget / mib) / 10);
+}
+
+void hc_memory_advise_huge(void *p, size_t bytes)
+{
+#if defined(__linux__) && defined(MADV_HUGEPAGE)
+	const uintptr_t page = 4096;
+	uintptr_t b = ((uintptr_t)p + page - 1) & ~(page - 1), e = ((uintptr_t)p + bytes) & ~(page - 1);
+
+	if (p && bytes >= HC_MEMORY_HUGE_BYTES && e > b)
+		(void)madvise((void *)b, e - b, MADV_HUGEPAGE);
+#else
+	(void)p;
+	(void)bytes;
+#endif
 }

@@ -446,195 +446,532 @@ static void blas_threaded_end(void)
 
 /*
  * The pairwise-complete matrix into a new *out, and the sum of the
- * off-diagonal pairwise correlations (each on its own overlap) into *rsum,
- * by masked Gram products on BLAS rather than a loop over pairs.  With Z
- * the returns shifted by each security's own mean (0 at gaps), K the 0/1
- * indicator of an observation and Z2 = Z*Z elementwise, over the periods
- * common to i and j:
+ * off-diagonal pairwise correlations (each on its own overlap) into *rsum.
+ * With Z the returns shifted by each security's own mean (0 at gaps), K the
+ * 0/1 indicator of an observation and Z2 = Z*Z elementwise, over the
+ * periods common to i and j:
  *   n_ij = (K K')_ij, sum z_i = (Z K')_ij, sum z_j = (Z K')_ji,
  *   sum z_i z_j = (Z Z')_ij, sum z_i^2 = (Z2 K')_ij,
  *   cov_ij = (sum z_i z_j - sum z_i sum z_j / n_ij) / (n_ij - 1),
  * each pair with its own means over the overlap (pandas' DataFrame.cov,
  * R's use = "pairwise.complete.obs"); the shift makes the one-pass formula
  * subtract small numbers (Chan, Golub & LeVeque, 1983, The American
- * Statistician 37(3)).  Memory: three M x T copies and four M x M arrays.
- */
-/*
- * Few gaps (at most 1 cell in PAIRWISE_SPARSE_SHARE): the sums over each
- * pair's common periods from the gaps instead of two dense products.  Z is
- * 0 at gaps, so the sum of z_i over the periods where j is observed is z_i's
- * whole sum w1_i less its values at j's gaps:
- *   (Z K')_ij = w1_i - sum_{k : j missing} z_ik,
- * and the same for Z*Z with w2; O(M x gaps) instead of 4 M^2 T flops,
- * threaded over i, each row z_i staying in cache while every j's gaps
- * (off, idx: the missing periods of each security in turn) are gathered
- * from it.  sx and q get (Z K') and ((Z*Z) K').
+ * Statistician 37(3)).  Z Z' is one dsyrk on threaded BLAS either way; the
+ * rest comes one of two ways (enum moments_pairwise_way):
+ *   dense  K K' (ssyrk), Z K' and Z2 K' (dgemm) as masked Gram products;
+ *   gaps   with few gaps (at most 1 cell in PAIRWISE_SPARSE_SHARE), from
+ *          each security's list of missing periods, pair by pair (below).
  */
 #define PAIRWISE_SPARSE_SHARE 8
-static void pairwise_sums_sparse(size_t m, size_t t, const double *z, const size_t *off, const uint32_t *idx,
-				 const double *w1, const double *w2, double *sx, double *q)
+
+/* Rows and columns of the tiles the gaps way walks.  A row of Z is
+ * gathered from at the gaps of a whole tile's width of securities while it
+ * is in cache (with 32, most of its cache lines were fetched for one or
+ * two gathers each and the gathers waited on memory); each thread holds
+ * two tiles of sums (2 x 256^2 x 24 bytes, 3 MB). */
+#define PAIRWISE_TILE 256
+
+/* Runs of at least this many gaps in a row (a late listing, an early
+ * delisting, a suspension) are summed as ranges, not gathered period by
+ * period. */
+#define PAIRWISE_LONG_RUN 16
+
+struct gap_run {
+	uint32_t start, len;
+};
+
+/* The shifted returns and what both ways share.  d[i] counts i's gaps;
+ * the gaps way also has miss (the M x T 0/1 mask of gaps), i's missing
+ * periods outside long runs in order at idx[off[i] .. off[i+1]) and its
+ * runs of PAIRWISE_LONG_RUN gaps or more at run[roff[i] .. roff[i+1]). */
+struct pairwise_data {
+	size_t m, t, gaps;
+	double *z, *w1, *w2;       /* Z; sum_k z_ik and sum_k z_ik^2 */
+	size_t *d, *off, *roff;
+	uint32_t *idx;
+	struct gap_run *run;
+	unsigned char *miss;
+	float *find;               /* dense: K in single precision */
+	double *ind, *z2;          /* dense: K and Z2 */
+};
+
+static void pairwise_data_release(struct pairwise_data *p)
 {
+	hc_free(p->z);
+	hc_free(p->w1);
+	hc_free(p->w2);
+	hc_free(p->d);
+	hc_free(p->off);
+	hc_free(p->idx);
+	hc_free(p->roff);
+	hc_free(p->run);
+	hc_free(p->miss);
+	hc_free(p->find);
+	hc_free(p->ind);
+	hc_free(p->z2);
+}
+
+/* Each security's gaps and mean, then Z and its sums, rows in parallel
+ * (each row's own sums in the same order as on one thread). */
+static int pairwise_data_fill(struct pairwise_data *p, const struct universe *u, int way,
+			      struct hc_error *err)
+{
+	size_t m = u->m, t = u->t, nmt = m * t, i;
+	double *mean = NULL;
+	int sparse, threads = (double)nmt >= MOMENTS_THREADED_WORK / 64;
 	long ii;
 
-#pragma omp parallel for schedule(static) if ((double)m * (double)off[m] >= MOMENTS_THREADED_WORK / 16)
+	memset(p, 0, sizeof *p);
+	p->m = m;
+	p->t = t;
+	p->d = hc_mallocarray(m, sizeof *p->d);
+	p->off = hc_mallocarray(m + 1, sizeof *p->off);
+	p->roff = hc_mallocarray(m + 1, sizeof *p->roff);
+	mean = hc_mallocarray(m, sizeof *mean);
+	if (!p->d || !p->off || !p->roff || !mean)
+		goto nomem;
+#pragma omp parallel for schedule(static) if (threads)
 	for (ii = 0; ii < (long)m; ii++) {
-		size_t i = (size_t)ii, j, p;
-		const double *zi = z + i * t;
+		const double *x = u->x + (size_t)ii * t;
+		double s = 0;
+		size_t k = 0, e, obs = 0, shortgaps = 0, runs = 0;
 
-		for (j = 0; j < m; j++) {
-			double g1 = 0, g2 = 0;
-
-			for (p = off[j]; p < off[j + 1]; p++) {
-				double v = zi[idx[p]];
-
-				g1 += v;
-				g2 += v * v;
+		while (k < t) {
+			if (!isnan(x[k])) {
+				s += x[k++];
+				obs++;
+				continue;
 			}
-			sx[i * m + j] = w1[i] - g1;
-			q[i * m + j] = w2[i] - g2;
+			for (e = k; e < t && isnan(x[e]); e++)
+				;
+			if (e - k >= PAIRWISE_LONG_RUN)
+				runs++;
+			else
+				shortgaps += e - k;
+			k = e;
+		}
+		mean[ii] = obs ? s / (double)obs : 0;
+		p->d[ii] = t - obs;
+		p->off[ii + 1] = shortgaps;
+		p->roff[ii + 1] = runs;
+	}
+	p->off[0] = p->roff[0] = 0;
+	for (i = 0; i < m; i++) {
+		p->off[i + 1] += p->off[i];
+		p->roff[i + 1] += p->roff[i];
+		p->gaps += p->d[i];
+	}
+	sparse = way == MOMENTS_PAIRWISE_GAPS ||
+		 (way == MOMENTS_PAIRWISE_AUTO && p->gaps <= nmt / PAIRWISE_SPARSE_SHARE);
+	p->z = hc_mallocarray(nmt, sizeof *p->z);
+	hc_memory_advise_huge(p->z, nmt * sizeof *p->z);   /* first touches: 0.2 s of page faults in 4 KiB */
+	p->w1 = hc_mallocarray(m, sizeof *p->w1);
+	p->w2 = hc_mallocarray(m, sizeof *p->w2);
+	if (!p->z || !p->w1 || !p->w2)
+		goto nomem;
+	if (sparse) {
+		p->idx = hc_mallocarray(p->off[m] ? p->off[m] : 1, sizeof *p->idx);
+		p->run = hc_mallocarray(p->roff[m] ? p->roff[m] : 1, sizeof *p->run);
+		p->miss = hc_malloc(nmt);
+		hc_memory_advise_huge(p->miss, nmt);
+		if (!p->idx || !p->run || !p->miss)
+			goto nomem;
+	} else {
+		p->find = hc_mallocarray(nmt, sizeof *p->find);
+		p->ind = hc_mallocarray(nmt, sizeof *p->ind);
+		p->z2 = hc_mallocarray(nmt, sizeof *p->z2);
+		if (!p->find || !p->ind || !p->z2)
+			goto nomem;
+	}
+#pragma omp parallel for schedule(static) if (threads)
+	for (ii = 0; ii < (long)m; ii++) {
+		size_t k, e, r = (size_t)ii * t, g = p->off[ii], q = p->roff[ii];
+		const double *x = u->x + r;
+		double w1 = 0, w2 = 0;
+
+		for (k = 0; sparse && k < t; k = e) {   /* the gaps, short ones and long runs */
+			for (e = k; e < t && isnan(x[e]); e++)
+				;
+			if (e - k >= PAIRWISE_LONG_RUN)
+				p->run[q++] = (struct gap_run){ (uint32_t)k, (uint32_t)(e - k) };
+			else
+				while (k < e)
+					p->idx[g++] = (uint32_t)k++;
+			e += e < t;
+		}
+		for (k = 0; k < t; k++) {
+			int seen = !isnan(x[k]);
+			double v = seen ? x[k] - mean[ii] : 0.0;
+
+			p->z[r + k] = v;
+			w1 += v;
+			w2 += v * v;
+			if (sparse) {
+				p->miss[r + k] = (unsigned char)!seen;
+			} else {
+				p->find[r + k] = (float)seen;
+				p->ind[r + k] = seen;
+				p->z2[r + k] = v * v;
+			}
+		}
+		p->w1[ii] = w1;
+		p->w2[ii] = w2;
+	}
+	hc_free(mean);
+	return HC_OK;
+nomem:
+	hc_free(mean);
+	pairwise_data_release(p);
+	return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
+}
+
+/* The figures of one pair over its common periods: n, the sums of z_i and
+ * z_j, and of their squares. */
+struct pair_sums {
+	double n, si, sj, qi, qj;
+};
+
+/*
+ * The pairs from the gaps.  Z is 0 at gaps, so the sum of z_i over the
+ * periods where j is observed is z_i's whole sum w1_i less its values at
+ * j's gaps, (Z K')_ij = w1_i - sum_{k : j missing} z_ik, the same for Z2
+ * with w2; and the common periods are
+ *   n_ij = T - d_i - d_j + (periods both miss),
+ * the last counted over j's gaps in i's mask.  Integers: n is exact.
+ * O(d_i + d_j) instead of O(T) per pair.
+ */
+struct gap_sums {
+	double s1, s2;   /* sum of z_ik, z_ik^2 over the other's gaps k */
+	size_t both;     /* periods both miss */
+};
+
+/* Row r's sums over the gaps of each c in c0..c1, into g[r - r0][c - c0]
+ * (with the periods both miss when count is set): row r stays in the
+ * cache while the gap lists stream past (g[r - r0][c - c0]
+ * with rows of ld, or g[c - c0][r - r0] when transposed); a long run of gaps
+ * is a range read in order.  Four partial sums, so that the additions do
+ * not wait on each other. */
+static void gather_tile(const struct pairwise_data *p, size_t r0, size_t r1, size_t c0, size_t c1, int count,
+			struct gap_sums *g, size_t ld, int transposed)
+{
+	size_t r, c, k, q;
+
+	for (r = r0; r < r1; r++) {
+		const double *zr = p->z + r * p->t;
+		const unsigned char *mr = p->miss + r * p->t;
+
+		for (c = c0; c < c1; c++) {
+			const uint32_t *gap = p->idx + p->off[c];
+			size_t ng = p->off[c + 1] - p->off[c], b0 = 0, b1 = 0, b2 = 0, b3 = 0;
+			double s0 = 0, s1 = 0, s2 = 0, s3 = 0, q0 = 0, q1 = 0, q2 = 0, q3 = 0;
+
+			for (k = 0; k + 4 <= ng; k += 4) {
+				double v0 = zr[gap[k]], v1 = zr[gap[k + 1]], v2 = zr[gap[k + 2]], v3 = zr[gap[k + 3]];
+
+				s0 += v0;
+				s1 += v1;
+				s2 += v2;
+				s3 += v3;
+				q0 += v0 * v0;
+				q1 += v1 * v1;
+				q2 += v2 * v2;
+				q3 += v3 * v3;
+			}
+			for (; k < ng; k++) {
+				s0 += zr[gap[k]];
+				q0 += zr[gap[k]] * zr[gap[k]];
+			}
+			if (count) {
+				for (k = 0; k + 4 <= ng; k += 4) {
+					b0 += mr[gap[k]];
+					b1 += mr[gap[k + 1]];
+					b2 += mr[gap[k + 2]];
+					b3 += mr[gap[k + 3]];
+				}
+				for (; k < ng; k++)
+					b0 += mr[gap[k]];
+			}
+			for (q = p->roff[c]; q < p->roff[c + 1]; q++) {
+				const double *zz = zr + p->run[q].start;
+				const unsigned char *mm = mr + p->run[q].start;
+				size_t len = p->run[q].len;
+
+				for (k = 0; k + 4 <= len; k += 4) {
+					s0 += zz[k];
+					s1 += zz[k + 1];
+					s2 += zz[k + 2];
+					s3 += zz[k + 3];
+					q0 += zz[k] * zz[k];
+					q1 += zz[k + 1] * zz[k + 1];
+					q2 += zz[k + 2] * zz[k + 2];
+					q3 += zz[k + 3] * zz[k + 3];
+				}
+				for (; k < len; k++) {
+					s0 += zz[k];
+					q0 += zz[k] * zz[k];
+				}
+				for (k = 0; count && k < len; k++)
+					b1 += mm[k];
+			}
+			g[transposed ? (c - c0) * ld + (r - r0) : (r - r0) * ld + (c - c0)] =
+				(struct gap_sums){ (s0 + s1) + (s2 + s3), (q0 + q1) + (q2 + q3), b0 + b1 + b2 + b3 };
 		}
 	}
 }
 
-static int pairwise_matrix(const struct universe *u, double **out, long double *rsum,
-			   struct hc_error *err)
+/* One pair from its sums over each other's gaps (gij: i's over j's gaps,
+ * with the count; gji: j's over i's). */
+static inline void pair_from_gaps(const struct pairwise_data *p, size_t i, size_t j, const struct gap_sums *gij,
+				  const struct gap_sums *gji, struct pair_sums *s)
 {
-	size_t m = u->m, t = u->t, i, j, k, nmm, nmt, gaps = 0, *off = NULL;
-	double *a = NULL, *z = NULL, *ind = NULL, *z2 = NULL, *sx = NULL, *q = NULL, *w1 = NULL, *w2 = NULL;
-	float *find = NULL, *cnt = NULL;
-	uint32_t *idx = NULL;
-	long double R = 0;
+	s->n = (double)(p->t - p->d[i] - p->d[j] + gij->both);
+	s->si = p->w1[i] - gij->s1;
+	s->sj = p->w1[j] - gji->s1;
+	s->qi = p->w2[i] - gij->s2;
+	s->qj = p->w2[j] - gji->s2;
+}
+
+/* The covariance of a pair (zz = sum z_i z_j over the overlap) and the
+ * variances of each over the overlap; 0 when the pair cannot have a
+ * correlation (too few common periods, or one does not vary there). */
+static inline int pair_finish(const struct pair_sums *s, double zz, double *cov, double *vx, double *vy)
+{
+	double n = s->n;
+
+	if (!(n >= COVMATRIX_MIN_COMMON_PERIODS))
+		return 0;
+	*cov = (zz - s->si * s->sj / n) / (n - 1);
+	*vx = (s->qi - s->si * s->si / n) / (n - 1);
+	*vy = (s->qj - s->sj * s->sj / n) / (n - 1);
+	return *vx > 0 && *vy > 0;
+}
+
+/* The message for a pair pair_finish refused. */
+static int pair_error(const struct universe *u, size_t i, size_t j, const struct pair_sums *s,
+		      double vx, struct hc_error *err)
+{
 	char b1[32], b2[32];
-	int rc = HC_OK, sparse;
+	const char *ni, *nj;
+	int rc;
+
+	if ((rc = hc_covmatrix_check_overlap(u, i, j, (size_t)s->n, err)) != HC_OK)
+		return rc;
+	ni = security_name(u, i, b1, sizeof b1);
+	nj = security_name(u, j, b2, sizeof b2);
+	return hc_error(err, HC_EDATA,
+			"securities '%s' and '%s': '%s' does not vary over their common periods, "
+			"so they have no correlation", ni, nj, vx > 0 ? nj : ni);
+}
+
+/* Every security's own variance first (a holds Z Z'), so a constant one is
+ * named as such; then the diagonal of a. */
+static int pairwise_diagonal(const struct universe *u, const struct pairwise_data *p, double *a,
+			     double *cnt, struct hc_error *err)
+{
+	size_t m = p->m, i;
+	char b1[32];
+	int rc;
+
+	for (i = 0; i < m; i++) {
+		double n = (double)(p->t - p->d[i]), si = p->w1[i];
+
+		if ((rc = hc_covmatrix_check_overlap(u, i, i, p->t - p->d[i], err)) != HC_OK)
+			return rc;
+		if (!((a[i * m + i] - si * si / n) / (n - 1) > 0))
+			return hc_error(err, HC_EDATA, "security '%s' has zero variance",
+					security_name(u, i, b1, sizeof b1));
+	}
+	for (i = 0; i < m; i++) {
+		double n = (double)(p->t - p->d[i]), si = p->w1[i];
+
+		a[i * m + i] = (a[i * m + i] - si * si / n) / (n - 1);
+		if (cnt)
+			cnt[i * m + i] = n;
+	}
+	return HC_OK;
+}
+
+/* The pairs i < j of one tile; the correlations' sum into *rsum; 0 when
+ * some pair has no correlation.  Both directions are gathered row by row
+ * (gij: rows of block bi over the gaps
+ * of block bj, gji the other way, stored transposed so that both are read
+ * by [i][j]), each from a row in cache. */
+static int gaps_tile(const struct pairwise_data *p, size_t bi, size_t bj, struct gap_sums *gij,
+		     struct gap_sums *gji, double *a, double *cnt, long double *rsum)
+{
+	size_t m = p->m, i, j, i0 = bi * PAIRWISE_TILE, j0 = bj * PAIRWISE_TILE;
+	size_t i1 = i0 + PAIRWISE_TILE < m ? i0 + PAIRWISE_TILE : m, j1 = j0 + PAIRWISE_TILE < m ? j0 + PAIRWISE_TILE : m;
+	size_t ld = j1 - j0;
+	long double r = 0;
+	int ok = 1;
+
+	gather_tile(p, i0, i1, j0, j1, 1, gij, ld, 0);
+	if (bi != bj)
+		gather_tile(p, j0, j1, i0, i1, 0, gji, ld, 1);
+	for (i = i0; i < i1; i++)
+		for (j = i + 1 > j0 ? i + 1 : j0; j < j1; j++) {
+			const struct gap_sums *back = bi != bj ? &gji[(i - i0) * ld + (j - j0)]
+							       : &gij[(j - j0) * ld + (i - i0)];
+			struct pair_sums s;
+			double cov, vx, vy;
+
+			pair_from_gaps(p, i, j, &gij[(i - i0) * ld + (j - j0)], back, &s);
+			if (!pair_finish(&s, a[i * m + j], &cov, &vx, &vy)) {
+				ok = 0;
+				continue;
+			}
+			a[i * m + j] = a[j * m + i] = cov;
+			if (cnt)
+				cnt[i * m + j] = cnt[j * m + i] = s.n;
+			r += 2.0L * cov / sqrtl((long double)vx * vy);
+		}
+	*rsum = r;
+	return ok;
+}
+
+/*
+ * The gaps way, after Z Z' is in a's upper triangle: every pair from the
+ * gaps and finished at once, in tiles of PAIRWISE_TILE x PAIRWISE_TILE
+ * (on the OpenMP threads; each tile's correlations summed apart and the
+ * tiles added in order, so the sum is the same for any thread count).  No
+ * M x M array besides a (and cnt when asked for).  On a refused pair, the
+ * first one in row order is found again and named.
+ */
+static int pairwise_from_gaps(const struct universe *u, const struct pairwise_data *p, double *a,
+			      double *cnt, long double *rsum, struct hc_error *err)
+{
+	size_t m = p->m, nb = (m + PAIRWISE_TILE - 1) / PAIRWISE_TILE, b, i, j, per;
+	int threaded = (double)m * (double)(p->gaps + m) >= MOMENTS_THREADED_WORK / 16;
+	int nth = threaded ? omp_get_max_threads() : 1, ok = 1, rc;
+	struct gap_sums *g = NULL;
+	long double *part = NULL, R = 0;
+	long bb;
+
+	if ((rc = pairwise_diagonal(u, p, a, cnt, err)) != HC_OK)
+		return rc;
+	per = m < PAIRWISE_TILE ? m * m : PAIRWISE_TILE * PAIRWISE_TILE;   /* one tile's sums */
+	part = hc_calloc(nb * nb, sizeof *part);
+	g = hc_mallocarray(2 * (size_t)nth * per, sizeof *g);
+	if (!part || !g) {
+		hc_free(part);
+		hc_free(g);
+		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
+	}
+#pragma omp parallel for schedule(dynamic) reduction(&& : ok) num_threads(nth) if (threaded)
+	for (bb = 0; bb < (long)(nb * nb); bb++) {
+		size_t bi = (size_t)bb / nb, bj = (size_t)bb % nb;
+		struct gap_sums *gt = g + 2 * (size_t)omp_get_thread_num() * per;
+
+		if (bj >= bi)
+			ok = gaps_tile(p, bi, bj, gt, gt + per, a, cnt, &part[bb]) && ok;
+	}
+	for (b = 0; b < nb * nb; b++)
+		R += part[b];
+	hc_free(part);
+	hc_free(g);
+	for (i = 0; !ok && i < m; i++)
+		for (j = i + 1; j < m; j++) {
+			struct gap_sums gi, gj;
+			struct pair_sums s;
+			double cov, vx = 0, vy;
+
+			gather_tile(p, i, i + 1, j, j + 1, 1, &gi, 1, 0);
+			gather_tile(p, j, j + 1, i, i + 1, 0, &gj, 1, 0);
+			pair_from_gaps(p, i, j, &gi, &gj, &s);
+			if (!pair_finish(&s, 0.0, &cov, &vx, &vy))
+				return pair_error(u, i, j, &s, vx, err);
+		}
+	*rsum = R;
+	return HC_OK;
+}
+
+/* The dense way: K K', Z K' and Z2 K' as masked Gram products (after Z Z'
+ * into a), then pair by pair. */
+static int pairwise_dense(const struct universe *u, const struct pairwise_data *p, double *a,
+			  double *cnt_out, long double *rsum, struct hc_error *err)
+{
+	size_t m = p->m, t = p->t, i, j, nmm = m * m;
+	float *cnt = hc_mallocarray(nmm, sizeof *cnt);
+	double *sx = hc_mallocarray(nmm, sizeof *sx), *q = hc_mallocarray(nmm, sizeof *q);
+	long double R = 0;
+	int rc = HC_OK;
+
+	if (!cnt || !sx || !q) {
+		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
+		goto cleanup;
+	}
+	blas_threaded((double)m * (double)m * (double)t);
+	/* counts in single precision: sums of 0/1 are exact below 2^24 periods,
+	 * at half the cost of the double product */
+	cblas_ssyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0f, p->find, (int)t, 0.0f, cnt, (int)m);
+	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, p->z, (int)t, p->ind,
+		    (int)t, 0.0, sx, (int)m);
+	cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, p->z2, (int)t, p->ind,
+		    (int)t, 0.0, q, (int)m);
+	blas_threaded_end();
+	if ((rc = pairwise_diagonal(u, p, a, cnt_out, err)) != HC_OK)
+		goto cleanup;
+	for (i = 0; i < m; i++) {
+		for (j = i + 1; j < m; j++) {
+			/* exact: sums of 0/1 below 2^24 */
+			struct pair_sums s = { cnt[i * m + j], sx[i * m + j], sx[j * m + i], q[i * m + j], q[j * m + i] };
+			double cov, vx = 0, vy;
+
+			if (!pair_finish(&s, a[i * m + j], &cov, &vx, &vy)) {
+				rc = pair_error(u, i, j, &s, vx, err);
+				goto cleanup;
+			}
+			a[i * m + j] = a[j * m + i] = cov;
+			if (cnt_out)
+				cnt_out[i * m + j] = cnt_out[j * m + i] = s.n;
+			R += 2.0L * cov / sqrtl((long double)vx * vy);
+		}
+	}
+	*rsum = R;
+cleanup:
+	hc_free(cnt);
+	hc_free(sx);
+	hc_free(q);
+	return rc;
+}
+
+static int pairwise_matrix(const struct universe *u, int way, double **out, double **cnt_out,
+			   long double *rsum, struct hc_error *err)
+{
+	size_t m = u->m, t = u->t, nmm, nmt;
+	struct pairwise_data p;
+	double *a = NULL, *cnt = NULL;
+	int rc;
 
 	*out = NULL;
+	if (cnt_out)
+		*cnt_out = NULL;
 	if (hc_mul_size(m, m, &nmm) || hc_mul_size(m, t, &nmt))
 		return hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu covariance matrix", m, m);
 	if (t >= ((size_t)1 << 24))
 		return hc_error(err, HC_ENOMEM, "%zu periods are too many for pairwise counts", t);
-	for (k = 0; k < nmt; k++)
-		gaps += isnan(u->x[k]);
-	sparse = gaps <= nmt / PAIRWISE_SPARSE_SHARE;
+	if ((rc = pairwise_data_fill(&p, u, way, err)) != HC_OK)
+		return rc;
 	a = hc_mallocarray(nmm, sizeof *a);
-	cnt = hc_mallocarray(nmm, sizeof *cnt);
-	find = hc_mallocarray(nmt, sizeof *find);
-	sx = hc_mallocarray(nmm, sizeof *sx);
-	q = hc_mallocarray(nmm, sizeof *q);
-	z = hc_mallocarray(nmt, sizeof *z);
-	w1 = hc_mallocarray(m, sizeof *w1);
-	w2 = hc_mallocarray(m, sizeof *w2);
-	if (sparse) {   /* the gaps' periods, security by security */
-		off = hc_mallocarray(m + 1, sizeof *off);
-		idx = hc_mallocarray(gaps ? gaps : 1, sizeof *idx);
-	} else {
-		ind = hc_mallocarray(nmt, sizeof *ind);
-		z2 = hc_mallocarray(nmt, sizeof *z2);
-	}
-	if (!a || !cnt || !find || !sx || !q || !z || !w1 || !w2 || (sparse ? !off || !idx : !ind || !z2)) {
+	hc_memory_advise_huge(a, nmm * sizeof *a);
+	if (!a || (cnt_out && !(cnt = hc_mallocarray(nmm, sizeof *cnt)))) {
 		rc = hc_error(err, HC_ENOMEM, "out of memory for the %zu x %zu pairwise covariances", m, m);
 		goto cleanup;
 	}
-	if (sparse)
-		off[0] = 0;
-	for (i = 0; i < m; i++) {
-		const double *x = u->x + i * t;
-		double mean = 0;
-		size_t obs = 0, g = sparse ? off[i] : 0;
-
-		for (k = 0; k < t; k++)
-			if (!isnan(x[k])) {
-				mean += x[k];
-				obs++;
-			}
-		mean = obs ? mean / (double)obs : 0;
-		w1[i] = w2[i] = 0;
-		for (k = 0; k < t; k++) {
-			int seen = !isnan(x[k]);
-			double d = seen ? x[k] - mean : 0.0;
-
-			z[i * t + k] = d;
-			w1[i] += d;
-			w2[i] += d * d;
-			find[i * t + k] = (float)seen;
-			if (sparse) {
-				if (!seen)
-					idx[g++] = (uint32_t)k;
-			} else {
-				ind[i * t + k] = seen;
-				z2[i * t + k] = d * d;
-			}
-		}
-		if (sparse)
-			off[i + 1] = g;
-	}
 	blas_threaded((double)m * (double)m * (double)t);
-	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0, z, (int)t, 0.0, a, (int)m);
-	/* counts in single precision: sums of 0/1 are exact below 2^24 periods,
-	 * at half the cost of the double product */
-	cblas_ssyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0f, find, (int)t, 0.0f, cnt, (int)m);
-	if (!sparse) {
-		cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z, (int)t, ind,
-			    (int)t, 0.0, sx, (int)m);
-		cblas_dgemm(CblasRowMajor, CblasNoTrans, CblasTrans, (int)m, (int)m, (int)t, 1.0, z2, (int)t, ind,
-			    (int)t, 0.0, q, (int)m);
-	}
+	cblas_dsyrk(CblasRowMajor, CblasUpper, CblasNoTrans, (int)m, (int)t, 1.0, p.z, (int)t, 0.0, a, (int)m);
 	blas_threaded_end();
-	if (sparse)
-		pairwise_sums_sparse(m, t, z, off, idx, w1, w2, sx, q);
-	/* every security's own variance first, so a constant one is named as such */
-	for (i = 0; i < m && rc == HC_OK; i++) {
-		double n = cnt[i * m + i], si = sx[i * m + i];
-
-		if ((rc = hc_covmatrix_check_overlap(u, i, i, (size_t)n, err)) == HC_OK &&
-		    !((a[i * m + i] - si * si / n) / (n - 1) > 0))
-			rc = hc_error(err, HC_EDATA, "security '%s' has zero variance",
-				      security_name(u, i, b1, sizeof b1));
-	}
-	for (i = 0; i < m && rc == HC_OK; i++) {
-		for (j = i; j < m; j++) {
-			double n = cnt[i * m + j];   /* exact: sums of 0/1 below 2^24 */
-			double si = sx[i * m + j], sj = sx[j * m + i], cov, vx, vy;
-
-			if ((rc = hc_covmatrix_check_overlap(u, i, j, (size_t)n, err)) != HC_OK)
-				break;
-			cov = (a[i * m + j] - si * sj / n) / (n - 1);
-			if (i == j) {
-				a[i * m + i] = cov;
-				continue;
-			}
-			vx = (q[i * m + j] - si * si / n) / (n - 1);
-			vy = (q[j * m + i] - sj * sj / n) / (n - 1);
-			if (!(vx > 0) || !(vy > 0)) {
-				const char *ni = security_name(u, i, b1, sizeof b1);
-				const char *nj = security_name(u, j, b2, sizeof b2);
-
-				rc = hc_error(err, HC_EDATA,
-					      "securities '%s' and '%s': '%s' does not vary over their common periods, "
-					      "so they have no correlation", ni, nj, vx > 0 ? nj : ni);
-				break;
-			}
-			a[i * m + j] = a[j * m + i] = cov;
-			R += 2.0L * cov / sqrtl((long double)vx * vy);
-		}
-	}
+	rc = p.miss ? pairwise_from_gaps(u, &p, a, cnt, rsum, err) : pairwise_dense(u, &p, a, cnt, rsum, err);
 cleanup:
-	hc_free(off);
-	hc_free(idx);
-	hc_free(w1);
-	hc_free(w2);
-	hc_free(cnt);
-	hc_free(find);
-	hc_free(sx);
-	hc_free(q);
-	hc_free(z);
-	hc_free(ind);
-	hc_free(z2);
+	pairwise_data_release(&p);
 	if (rc != HC_OK) {
 		hc_free(a);
+		hc_free(cnt);
 		return rc;
 	}
 	*out = a;
-	*rsum = R;
+	if (cnt_out)
+		*cnt_out = cnt;
 	return HC_OK;
 }
 
@@ -646,7 +983,7 @@ static int route_pairwise(struct moments *mo, const struct universe *u, struct h
 	long double R;
 	int rc;
 
-	if ((rc = pairwise_matrix(u, &a, &R, err)))
+	if ((rc = pairwise_matrix(u, MOMENTS_PAIRWISE_AUTO, &a, NULL, &R, err)))
 		return rc;
 	rc = sums_from_matrix(mo, a, u->m, err);
 	mo->average_correlation = (double)(R / ((long double)u->m * (u->m - 1)));
@@ -696,8 +1033,8 @@ static double route_bytes(const struct universe *u, int route)
 		return (m * t + t * t + 2 * t) * sizeof(double);
 	case MOMENTS_ROUTE_MATRIX:  /* centred copy, one block of rows, v, and r in long double */
 		return (m * t + b * m + m) * sizeof(double) + m * sizeof(long double);
-	default:                    /* pairwise: three M x M arrays and three M x T copies in
-	                             * double, one of each in float */
+	default:                    /* pairwise, the dense way (the larger): three M x M arrays
+	                             * and three M x T copies in double, one of each in float */
 		return (3 * m * m + 3 * m * t) * sizeof(double) + (m * m + m * t) * sizeof(float);
 	}
 }
@@ -724,7 +1061,7 @@ int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, dou
 	if ((rc = check_shape(u, err)) ||
 	    (rc = check_budget(u, route_bytes(u, MOMENTS_ROUTE_PAIRWISE), "covariances", err)))
 		return rc;
-	if ((rc = pairwise_matrix(u, a, &R, err)))
+	if ((rc = pairwise_matrix(u, MOMENTS_PAIRWISE_AUTO, a, NULL, &R, err)))
 		return rc;
 	mo->m = u->m;
 	mo->route = MOMENTS_ROUTE_PAIRWISE;
@@ -736,6 +1073,25 @@ int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, dou
 	}
 	mo->average_correlation = (double)(R / ((long double)u->m * (u->m - 1)));
 	mo->t = u->t;
+	return HC_OK;
+}
+
+int hc_moments_pairwise_by(const struct universe *u, int way, double **a, double **counts,
+			   double *average_correlation, struct hc_error *err)
+{
+	long double R;
+	int rc;
+
+	*a = NULL;
+	if (counts)
+		*counts = NULL;
+	if (way != MOMENTS_PAIRWISE_AUTO && way != MOMENTS_PAIRWISE_DENSE && way != MOMENTS_PAIRWISE_GAPS)
+		return hc_error(err, HC_EUSAGE, "pairwise way %d is not one of auto, dense or gaps", way);
+	if ((rc = check_shape(u, err)) ||
+	    (rc = check_budget(u, route_bytes(u, MOMENTS_ROUTE_PAIRWISE), "covariances", err)) ||
+	    (rc = pairwise_matrix(u, way, a, counts, &R, err)))
+		return rc;
+	*average_correlation = (double)(R / ((long double)u->m * (u->m - 1)));
 	return HC_OK;
 }
 
@@ -758,7 +1114,7 @@ int hc_moments_covariance(const struct universe *u, double **a, struct hc_error 
 				      * sizeof(double), "covariance matrix", err)))
 		return rc;
 	if (u->has_missing)
-		return pairwise_matrix(u, a, &R, err);
+		return pairwise_matrix(u, MOMENTS_PAIRWISE_AUTO, a, NULL, &R, err);
 	if ((rc = centred_copy(u, &xc, err)))
 		return rc;
 	rc = full_matrix(u, xc, a, err);

@@ -660,6 +660,7 @@ static int wide_grow(struct loader *L, struct hc_error *err)
 	if (!r)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory reading row %zu", L->name, L->nrows + 1);
 	L->rows = r;
+	hc_memory_advise_huge(r, nc * L->m * sizeof(double));
 	d = hc_reallocarray(L->dates, nc, sizeof *d);
 	if (!d)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory reading row %zu", L->name, L->nrows + 1);
@@ -899,6 +900,7 @@ static int wide_finish(struct loader *L, struct universe *u, struct hc_error *er
 	u->x = hc_reallocarray(NULL, n ? n : 1, sizeof(double));
 	if (!u->x)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", L->name);
+	hc_memory_advise_huge(u->x, n * sizeof(double));
 	transpose(L->rows, u->x, L->nrows, L->m);
 	hc_free(L->rows);
 	L->rows = NULL;

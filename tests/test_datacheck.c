@@ -8,6 +8,7 @@
 #include <stdint.h>
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <cmocka.h>
 
@@ -238,10 +239,78 @@ static void test_datacheck_demo_is_clean(void **state)
 	hc_universe_free(u);
 }
 
+static int cmp_double(const void *a, const void *b)
+{
+	double x = *(const double *)a, y = *(const double *)b;
+
+	return (x > y) - (x < y);
+}
+
+/* The median a sort gives (the reference; the check selects it instead). */
+static double sorted_median(double *v, size_t n)
+{
+	qsort(v, n, sizeof *v, cmp_double);
+	return n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
+}
+
+/*
+ * The medians behind the findings are the sorted ones exactly, for odd and
+ * even counts, ties and gaps: a series of prices (every cell positive) is
+ * reported with its median cell, a series in percents with its median
+ * size of a return.
+ */
+static void test_datacheck_medians(void **state)
+{
+	gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
+	struct datacheck_result *r = NULL;
+	struct hc_error err;
+	double v[64], w[64];
+	size_t t, k, n;
+	int pct;
+
+	(void)state;
+	assert_non_null(g);
+	gsl_rng_set(g, 6271);
+	for (pct = 0; pct < 2; pct++)
+		for (t = 2; t <= 41; t++) {
+			struct universe *u = hc_calloc(1, sizeof *u);
+
+			assert_non_null(u);
+			u->m = 1;
+			u->t = t;
+			u->x = hc_malloc(t * sizeof *u->x);
+			u->dates = hc_malloc(t * sizeof *u->dates);
+			assert_non_null(u->x);
+			assert_non_null(u->dates);
+			for (k = n = 0; k < t; k++) {
+				/* a few values repeat (ties); every seventh cell is a gap */
+				double x = pct ? (gsl_rng_uniform(g) - 0.45) * 12.5 : 23.85 + 4 * gsl_rng_uniform(g);
+
+				u->dates[k] = 19723 + (int32_t)k;
+				u->x[k] = k % 7 == 6 ? NAN : k % 5 == 4 ? u->x[k - 1] : x;
+				if (!isnan(u->x[k]))
+					v[n++] = pct ? fabs(u->x[k]) : u->x[k];
+			}
+			u->x[0] = pct ? -fabs(u->x[0]) - 0.5 : u->x[0];   /* not all positive: not prices */
+			v[0] = fabs(u->x[0]);
+			memcpy(w, v, n * sizeof *v);
+			assert_int_equal(hc_datacheck_run(&r, u, &err), HC_OK);
+			assert_true(r->nfindings >= 1);
+			assert_int_equal(r->findings[0].kind, pct ? DATACHECK_PERCENTS : DATACHECK_PRICES);
+			if (r->findings[0].value != sorted_median(w, n))
+				fail_msg("%zu cells: median %.17g, sorted %.17g", n, r->findings[0].value,
+					 sorted_median(w, n));
+			hc_datacheck_free(r);
+			hc_universe_free(u);
+		}
+	gsl_rng_free(g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_datacheck_finds_plants),
+		cmocka_unit_test(test_datacheck_medians),
 		cmocka_unit_test(test_datacheck_keeps_count),
 		cmocka_unit_test(test_datacheck_sunday_thursday),
 		cmocka_unit_test(test_datacheck_demo_is_clean),

@@ -121,6 +121,32 @@ static void test_memory_check_available(void **state)
 	assert_int_equal(hc_memory_check(0, 1e18, 4096.0, &err, "held"), HC_OK);
 }
 
+/* The huge-page hint keeps what an array holds (it only changes how the
+ * kernel backs the pages): values written before and after the hint on an
+ * array not aligned to a page, and the hint on NULL and on a small block,
+ * which it leaves alone. */
+static void test_memory_advise_huge(void **state)
+{
+	size_t n = HC_MEMORY_HUGE_BYTES / sizeof(double) + 4099, k;
+	double *a = hc_mallocarray(n, sizeof *a), small[3] = { 2.385, -0.5, 7.25 };
+
+	(void)state;
+	assert_non_null(a);
+	for (k = 0; k < n; k += 509)
+		a[k] = 0.125 * (double)k;
+	hc_memory_advise_huge(a + 1, (n - 1) * sizeof *a);
+	hc_memory_advise_huge(NULL, HC_MEMORY_HUGE_BYTES);
+	hc_memory_advise_huge(small, sizeof small);
+	for (k = 0; k < n; k++)
+		if (k % 509)
+			a[k] = -(double)k;
+	for (k = 0; k < n; k++)
+		if (a[k] != (k % 509 ? -(double)k : 0.125 * (double)k))
+			fail_msg("element %zu is %g after the hint", k, a[k]);
+	assert_true(small[0] == 2.385 && small[1] == -0.5 && small[2] == 7.25);
+	hc_free(a);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -129,6 +155,7 @@ int main(void)
 		cmocka_unit_test(test_memory_grow),
 		cmocka_unit_test(test_memory_check_given_budget),
 		cmocka_unit_test(test_memory_check_available),
+		cmocka_unit_test(test_memory_advise_huge),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -401,6 +401,172 @@ static void test_moments_pairwise_dense_and_sparse(void **state)
 	}
 }
 
+/* The correlation of a pair over the periods both have, pair by pair in
+ * long double (its own means and variances there). */
+static double pair_corr(const double *x, size_t t, size_t i, size_t j)
+{
+	double c = pair_cov(x, t, i, j);
+	long double si = 0, sj = 0, vi = 0, vj = 0;
+	size_t k, n = 0;
+
+	for (k = 0; k < t; k++)
+		if (!isnan(x[i * t + k]) && !isnan(x[j * t + k])) {
+			si += x[i * t + k];
+			sj += x[j * t + k];
+			n++;
+		}
+	si /= n;
+	sj /= n;
+	for (k = 0; k < t; k++)
+		if (!isnan(x[i * t + k]) && !isnan(x[j * t + k])) {
+			vi += (x[i * t + k] - si) * (x[i * t + k] - si);
+			vj += (x[j * t + k] - sj) * (x[j * t + k] - sj);
+		}
+	return (double)(c * (n - 1) / sqrtl(vi * vj));
+}
+
+/* A ragged history, M x 40 (at M = 300, two 256-wide tiles of pairs, the
+ * second one partial): scattered gaps, periods every security but one misses, a
+ * late listing and an early delisting (long runs of gaps). */
+static void ragged_returns(double *x, size_t m, size_t t)
+{
+	size_t i, k;
+
+	fixture_returns(x, m, t, 31415);
+	for (i = 0; i < m; i++)
+		for (k = 0; k < t; k++)
+			if ((i * 11 + k * 7) % 37 == 0 || (k == 9 && i != 4) || (k == 23 && i % 3 == 0) ||
+			    (i == 5 && k < 17) || (i == 66 && k >= 29) || (i == 33 && (k == 2 || k == 3)))
+				x[i * t + k] = NAN;
+}
+
+/*
+ * The counts of common periods from the gaps (n_ij = T - d_i - d_j + the
+ * periods both miss) against the dense way's K K' and against a direct
+ * count, pair by pair: exactly equal.  The matrix and the average
+ * correlation from the gaps against the dense way's and against the
+ * pair-by-pair covariance and correlation in long double: 1e-12 relative
+ * (the two ways add the same terms in other orders; a few ulps each).
+ */
+static void test_moments_pairwise_gap_counts(void **state)
+{
+	enum { M = 300, T = 40 };
+	static double x[M * T];
+	double *ag, *ad, *ng, *nd, cg, cd;
+	long double rs = 0;
+	size_t i, j, k, n;
+	struct universe *u;
+	struct hc_error err;
+
+	(void)state;
+	ragged_returns(x, M, T);
+	u = fixture_universe(x, M, T);
+	assert_non_null(u);
+	assert_true(u->has_missing);
+	assert_int_equal(hc_moments_pairwise_by(u, MOMENTS_PAIRWISE_GAPS, &ag, &ng, &cg, &err), HC_OK);
+	assert_int_equal(hc_moments_pairwise_by(u, MOMENTS_PAIRWISE_DENSE, &ad, &nd, &cd, &err), HC_OK);
+	for (i = 0; i < M; i++)
+		for (j = 0; j < M; j++) {
+			for (k = n = 0; k < T; k++)
+				n += !isnan(x[i * T + k]) && !isnan(x[j * T + k]);
+			if (ng[i * M + j] != (double)n || nd[i * M + j] != (double)n)
+				fail_msg("pair %zu, %zu: %g periods from the gaps, %g dense, %zu counted", i, j,
+					 ng[i * M + j], nd[i * M + j], n);
+			assert_close(ag[i * M + j], ad[i * M + j], ad[0], 1e-12);
+			assert_close(ag[i * M + j], pair_cov(x, T, i, j), ad[0], 1e-12);
+			if (i != j)
+				rs += pair_corr(x, T, i, j);
+		}
+	/* the late listing and a pair with the common gaps: counts worked by hand */
+	assert_true(ng[5 * M + 5] < T - 17 + 1 && ng[4 * M + 4] > ng[3 * M + 3]);
+	assert_close(cg, cd, 1.0, 1e-12);
+	assert_close(cg, (double)(rs / (M * (M - 1.0))), 1.0, 1e-12);
+	assert_true(cg > 0.05 && cg < 0.95);
+	hc_free(ag);
+	hc_free(ad);
+	hc_free(ng);
+	hc_free(nd);
+	assert_int_equal(hc_moments_pairwise_by(u, 3, &ag, NULL, &cg, &err), HC_EUSAGE);
+	assert_null(ag);
+	fixture_free(u);
+}
+
+/* A pair with too few common periods, and one where a security does not
+ * vary over the overlap: the gaps way, which checks pairs in tiles on
+ * several threads (100 and 200 in the first tile, 3 and 270 in the
+ * second), names the same first pair in row order as the dense way. */
+static void test_moments_pairwise_gap_errors(void **state)
+{
+	enum { M = 300, T = 40 };
+	static double x[M * T];
+	struct universe *u;
+	struct hc_error eg, ed;
+	double *a, c;
+	size_t k;
+
+	(void)state;
+	ragged_returns(x, M, T);
+	for (k = 0; k < T; k++) {   /* 3 (observed before 20) shares no period with 270 (after); */
+		x[(k < 20 ? 270 : 3) * T + k] = NAN;
+		x[(k < 10 ? 200 : 100) * T + k] = NAN;   /* nor 100 (before 10) with 200 (after) */
+	}
+	u = fixture_universe(x, M, T);
+	assert_non_null(u);
+	assert_int_equal(hc_moments_pairwise_by(u, MOMENTS_PAIRWISE_GAPS, &a, NULL, &c, &eg), HC_EDATA);
+	assert_null(a);
+	assert_int_equal(hc_moments_pairwise_by(u, MOMENTS_PAIRWISE_DENSE, &a, NULL, &c, &ed), HC_EDATA);
+	assert_string_equal(eg.message, ed.message);
+	assert_non_null(strstr(eg.message, "securities 'S04' and 'S271' have only 0 common periods"));
+	fixture_free(u);
+
+	ragged_returns(x, M, T);
+	for (k = 0; k < T; k++) {   /* 12 is constant where 57 is observed (exactly: dyadic values, mean 0.25) */
+		x[12 * T + k] = k < 20 ? 0.125 : 0.375;
+		if (k < 20)
+			x[57 * T + k] = NAN;
+	}
+	u = fixture_universe(x, M, T);
+	assert_non_null(u);
+	assert_int_equal(hc_moments_pairwise_by(u, MOMENTS_PAIRWISE_GAPS, &a, NULL, &c, &eg), HC_EDATA);
+	assert_int_equal(hc_moments_pairwise_by(u, MOMENTS_PAIRWISE_DENSE, &a, NULL, &c, &ed), HC_EDATA);
+	assert_string_equal(eg.message, ed.message);
+	assert_non_null(strstr(eg.message, "'S13' does not vary over their common periods"));
+	fixture_free(u);
+}
+
+/* Every allocation failure on either way ends in HC_ENOMEM. */
+static void test_moments_pairwise_by_allocation_failure(void **state)
+{
+	enum { M = 70, T = 40 };
+	static double x[M * T];
+	struct universe *u;
+	struct hc_error err;
+	double *a, *n, c;
+	int way, rc;
+	long k;
+
+	(void)state;
+	ragged_returns(x, M, T);
+	u = fixture_universe(x, M, T);
+	assert_non_null(u);
+	for (way = MOMENTS_PAIRWISE_DENSE; way <= MOMENTS_PAIRWISE_GAPS; way++) {
+		for (k = 0;; k++) {
+			hc_alloc_fail_after(k);
+			rc = hc_moments_pairwise_by(u, way, &a, &n, &c, &err);
+			hc_alloc_fail_after(-1);
+			if (rc == HC_OK)
+				break;
+			assert_int_equal(rc, HC_ENOMEM);
+			assert_null(a);
+			assert_null(n);
+		}
+		assert_true(k >= 5);
+		hc_free(a);
+		hc_free(n);
+	}
+	fixture_free(u);
+}
+
 /* hc_moments_covariance: the full matrix against the textbook two-pass
  * covariance (complete data), and pairwise entries against the covariance
  * of the overlapping periods (a security with a gap). */
@@ -591,6 +757,9 @@ int main(void)
 		cmocka_unit_test(test_moments_from_matrix_hand_worked),
 		cmocka_unit_test(test_moments_pairwise_route),
 		cmocka_unit_test(test_moments_pairwise_dense_and_sparse),
+		cmocka_unit_test(test_moments_pairwise_gap_counts),
+		cmocka_unit_test(test_moments_pairwise_gap_errors),
+		cmocka_unit_test(test_moments_pairwise_by_allocation_failure),
 		cmocka_unit_test(test_moments_from_summary),
 		cmocka_unit_test(test_moments_summary_rejects_impossible),
 		cmocka_unit_test(test_moments_rejects_bad_data),

@@ -82,6 +82,14 @@ void *hc_mallocarray(size_t n, size_t size);
  * cannot be found out. */
 size_t hc_memory_available(void);
 
+/* Ask the kernel for huge pages (2 MiB) behind the bytes at p, an array of
+ * at least HC_MEMORY_HUGE_BYTES about to be written for the first time:
+ * fewer page faults (on Linux, where transparent huge pages are often given
+ * only on request).  A hint: nothing changes when it is refused or on
+ * other systems.  Cannot fail; p may be NULL. */
+#define HC_MEMORY_HUGE_BYTES ((size_t)8 << 20)
+void hc_memory_advise_huge(void *p, size_t bytes);
+
 /*
  * Check a step that allocates need bytes while held bytes of its input stay
  * allocated, against max_bytes (0 = from available memory).  With a given

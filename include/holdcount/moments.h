@@ -71,8 +71,11 @@ void hc_moments_blas_serial(void);
  * matrix route; data with gaps uses pairwise-complete covariances.
  * Memory besides the universe: the centred copy (M x T) and the T x T Gram
  * matrix, or the centred copy and MOMENTS_BLOCK_ROWS x M doubles (matrix
- * route), or four M x M arrays and four M x T copies, one of each in
- * float (pairwise, masked Gram products on threaded BLAS); checked first against the
+ * route), or for pairwise covariances at most four M x M arrays and four
+ * M x T copies, one of each in float (masked Gram products on threaded
+ * BLAS; with few gaps only the M x M result, one M x T copy and a mask of
+ * bytes, the rest from the gaps on the OpenMP threads: enum
+ * moments_pairwise_way; the budget counts the larger); checked first against the
  * universe's budget u->max_bytes (memory.h's hc_memory_check), HC_ENOMEM
  * "SOURCE: universe too large for its covariances: needs at least ..."
  * when they do not fit.
@@ -96,6 +99,25 @@ int hc_moments_from_universe_route(struct moments *mo, const struct universe *u,
  * hc_moments_from_universe_route.  *a is NULL on error. */
 int hc_moments_pairwise_matrix(struct moments *mo, const struct universe *u, double **a,
 			       struct hc_error *err);
+
+/* The two ways to the sums over each pair's common periods. */
+enum moments_pairwise_way {
+	MOMENTS_PAIRWISE_AUTO = 0,  /* from the gaps when at most 1 cell in 8 is missing, else dense */
+	MOMENTS_PAIRWISE_DENSE = 1, /* masked Gram products on BLAS: K K', Z K', (Z*Z) K' */
+	MOMENTS_PAIRWISE_GAPS = 2   /* from each security's list of missing periods */
+};
+
+/* The pairwise-complete matrix of u by a chosen way (enum
+ * moments_pairwise_way), for tests and benchmarks: both ways give the same
+ * matrix up to rounding and the same counts exactly, only the cost
+ * differs.  *a (M x M, row-major, hc_free) as hc_moments_covariance; when
+ * counts is not NULL, *counts (M x M, hc_free) gets each pair's number of
+ * common periods (each security's own on the diagonal);
+ * *average_correlation the mean off-diagonal pairwise correlation.  Budget
+ * and errors as hc_moments_from_universe_route's pairwise route; HC_EUSAGE
+ * for an unknown way.  *a and *counts are NULL on error. */
+int hc_moments_pairwise_by(const struct universe *u, int way, double **a, double **counts,
+			   double *average_correlation, struct hc_error *err);
 
 /* OpenBLAS on omp_get_max_threads() threads for a product or
  * factorisation of about work flops outside this module (below 1e9 it
