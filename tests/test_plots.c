@@ -74,7 +74,7 @@ static FILE *open_in(const char *name)
 static void test_plots_exact_data_follows_the_closed_form(void **state)
 {
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented", NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented", NULL, NULL, NULL, 0, 0 };
 	char *buf = NULL, *line;
 	size_t len = 0, rows = 0, n;
 	double sd, share, te;
@@ -101,7 +101,7 @@ static void test_plots_exact_data_follows_the_closed_form(void **state)
 static void test_plots_formats_and_availability(void **state)
 {
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 
 	(void)state;
 	assert_int_equal(hc_plots_parse_format("svg"), PLOTS_SVG);
@@ -137,7 +137,7 @@ static void test_plots_risk_renders_a_png_of_the_stated_size(void **state)
 {
 	struct curve *c = make_curve();
 	struct rule_result rules[2];
-	struct plots_input in = { c, NULL, rules, 2, 0.02, NULL, "invented", NULL };
+	struct plots_input in = { c, NULL, rules, 2, 0.02, NULL, "invented", NULL, NULL, NULL, 0, 0 };
 	char gp[4200], png[4200];
 	unsigned char head[24];
 	struct hc_error err;
@@ -186,7 +186,7 @@ static void test_plots_funds_mark_a_failing_fund(void **state)
 	struct curve *c = make_curve();
 	struct audit_fund funds[2];
 	struct audit_result ar;
-	struct plots_input in = { c, NULL, NULL, 0, NAN, &ar, "invented", NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, &ar, "invented", NULL, NULL, NULL, 0, 0 };
 	char gp[4200], *buf = NULL, line[4400];
 	size_t len = 0, rows = 0, h;
 	double e, sd, x, y;
@@ -282,7 +282,7 @@ static void test_plots_script_allocation_failure(void **state)
 {
 	struct curve *c = make_curve();
 	struct rule_result rule;
-	struct plots_input in = { c, NULL, &rule, 1, 0.02, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, &rule, 1, 0.02, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 	struct hc_error err;
 	char *buf = NULL;
 	size_t len = 0;
@@ -314,7 +314,7 @@ static void rolling_ticks(size_t nwin, int months_apart, size_t *nticks, int *ye
 	struct rolling_window *w = hc_calloc(nwin, sizeof *w);
 	struct rolling_result r;
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 	char *buf = NULL, *tics, *p, labels[16][16], date[16];
 	size_t len = 0, j, k;
 	FILE *mem;
@@ -379,7 +379,7 @@ static void test_plots_rolling_rules_styled_apart(void **state)
 	struct rolling_window w[NW];
 	struct rolling_result r;
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 	char *buf = NULL, *p, seen[NR][128], date[16];
 	size_t len = 0, j, k, n = 0;
 	FILE *mem;
