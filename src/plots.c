@@ -1592,7 +1592,10 @@ static void horizon_route_text(char *buf, size_t size, const struct plots_input 
 
 	if (h->route == HC_HORIZON_WINDOWS && !full)
 		snprintf(buf, size, "overlapping windows of the history");
-	else if (h->route == HC_HORIZON_WINDOWS && in->periods >= h->periods)
+	else if (h->route == HC_HORIZON_WINDOWS && in->periods == h->periods)
+		snprintf(buf, size, "the whole history, %zu %ss (one window: every portfolio sees the same %ss, so "
+			 "the spread is across portfolios alone)", h->periods, per, per);
+	else if (h->route == HC_HORIZON_WINDOWS && in->periods > h->periods)
 		snprintf(buf, size, "a window of %zu consecutive %ss of the history, its start uniform over the %zu "
 			 "possible starts (the windows overlap, so the spread understates what independent horizons "
 			 "would show)", h->periods, per, in->periods - h->periods + 1);
