@@ -701,9 +701,9 @@ static int readable_holdings(const struct report_table *t, size_t row, const voi
 static void tail_measures(FILE *fp, const struct htmlreport_input *in)
 {
 	static const struct column cols[] = {
-		{ "n", "holdings" }, { "es95_mean", "expected shortfall 95%, mean" }, { "es95_p05", "its 5%" },
-		{ "es95_p95", "its 95%" }, { "es99_mean", "expected shortfall 99%, mean" },
-		{ "max_drawdown_mean", "maximum drawdown, mean" }, { "max_drawdown_p95", "its 95%" },
+		{ "n", "holdings" }, { "es95_mean", "ES 95%" }, { "es95_p05", "ES 95%: 5%" },
+		{ "es95_p95", "ES 95%: 95%" }, { "es99_mean", "ES 99%" },
+		{ "max_drawdown_mean", "drawdown" }, { "max_drawdown_p95", "drawdown: 95%" },
 	};
 	const struct report_table *t = hc_report_find_table(in->tail, "tail");
 	long long last_n = t && t->nrows ? cell(t, t->nrows - 1, "n")->integer : 0;
@@ -722,7 +722,9 @@ static void tail_measures(FILE *fp, const struct htmlreport_input *in)
 	fact(fp, "whole universe (N = M): maximum drawdown", field(in->tail, "universe_max_drawdown"));
 	fputs("</dl>\n", fp);
 	figures(fp, in, HTMLREPORT_TAIL);
-	whole_table(fp, t, "Tail measures by holding count (selected counts; every count in tail.csv)", cols,
+	whole_table(fp, t, "Tail measures by holding count: ES is the expected shortfall (mean over the random "
+		    "portfolios, and their 5% and 95%), drawdown the maximum drawdown (mean, and the unlucky 95%); "
+		    "selected counts, every count in tail.csv", cols,
 		    sizeof cols / sizeof cols[0], readable, &last_n);
 }
 
@@ -730,8 +732,8 @@ static void horizon_part(FILE *fp, const struct htmlreport_input *in)
 {
 	static const struct column cols[] = {
 		{ "holdings", "holdings" }, { "rebal_p05", "rebalanced: 5%" }, { "rebal_p50", "median" },
-		{ "rebal_p95", "95%" }, { "rebal_lag", "behind the benchmark" }, { "hold_p05", "bought and held: 5%" },
-		{ "hold_p50", "median" }, { "hold_p95", "95%" }, { "hold_lag", "behind the benchmark" },
+		{ "rebal_p95", "95%" }, { "rebal_lag", "behind" }, { "hold_p05", "held: 5%" },
+		{ "hold_p50", "median" }, { "hold_p95", "95%" }, { "hold_lag", "behind" },
 	};
 	const struct report_table *t = hc_report_find_table(in->horizon, "horizon");
 	long long last_n = t && t->nrows ? cell(t, t->nrows - 1, "holdings")->integer : 0;
@@ -755,7 +757,9 @@ static void horizon_part(FILE *fp, const struct htmlreport_input *in)
 	fact(fp, "whole universe, bought and held: median", field(in->horizon, "universe_hold_p50"));
 	fputs("</dl>\n", fp);
 	figures(fp, in, HTMLREPORT_HORIZON);
-	whole_table(fp, t, "Ending wealth of 1 invested by holding count (selected counts; every count in horizon.csv)",
+	whole_table(fp, t, "Ending wealth of 1 invested by holding count: rebalanced, and bought and held, each with "
+		    "its 5%, median and 95% across the random portfolios and the share ending behind the benchmark; "
+		    "selected counts, every count in horizon.csv",
 		    cols, sizeof cols / sizeof cols[0], readable_holdings, &last_n);
 }
 

@@ -1465,12 +1465,12 @@ static int key_fits_top_right(const struct key_plan *k)
 		/* a straight segment on screen lies below its higher end */
 		ya = hc_plotlayout_to_px(k->ay, k->top[j]);
 		yb = j + 1 < k->n ? hc_plotlayout_to_px(k->ay, k->top[j + 1]) : ya;
-		if (!(fmax(ya, yb) < y0 - 4.0))
+		if (!(fmax(ya, yb) < y0 - 10.0))
 			return 0;
 	}
 	for (j = 0; j < k->nref; j++) {
 		ya = hc_plotlayout_to_px(k->ay, k->ref[j]);
-		if (ya >= y0 - 4.0 && ya <= y1 + 4.0)
+		if (ya >= y0 - 10.0 && ya <= y1 + 4.0)
 			return 0;
 	}
 	return 1;
