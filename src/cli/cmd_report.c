@@ -122,8 +122,8 @@ const struct cli_command cli_command_report = {
 	"report", cmd_report, "write a report folder: tables, JSON summary, gnuplot scripts and plots",
 	"UNIVERSE | --demo",
 	"Writes DIR with report.html (one self-contained document for a committee: the recommendation, "
-	"the universe, the curve, every rule, the funds, the count through time, the cautions and a "
-	"technical appendix, with the plots inline as SVG; it prints a page per section), summary.md (the universe, the curve at a readable grid, every rule's count with "
+	"the universe, the curve, every rule, tail risk and long horizons, the funds, the count through "
+	"time, the cautions and a technical appendix, with the plots inline as SVG; it prints a page per section), summary.md (the universe, the curve at a readable grid, every rule's count with "
 	"its 90% bootstrap interval, the audited funds with their pass or fail under the policy options, "
 	"the plots and the cautions), summary.json (every figure of the summary), curve.csv, enough.csv "
 	"and audit.csv (what 'holdcount curve', 'enough' and 'audit' print with --format csv and the same "
@@ -132,7 +132,11 @@ const struct cli_command cli_command_report = {
 	"through time, in windows of five years of periods, 12 calendar months apart with the newest ending "
 	"at the last date, when the history holds two such windows (--window W, and --step S for windows "
 	"S periods apart, choose others, --window 0 leaves them out; summary.md says "
-	"which). --sizes sets the curve's grid; the rules look at every count. "
+	"which). The tail-and-horizon section (--tail off leaves it out): the curve's random portfolios' "
+	"expected shortfall and maximum drawdown by count (tail.csv; curve.csv gains their columns), and on a "
+	"complete history ending wealth over --horizon years with the chance of ending behind the equal-weight "
+	"universe (horizon.csv), each with its plot; a history with gaps gets the reason instead of ending "
+	"wealth. --sizes sets the curve's grid; the rules look at every count. "
 	"The folder is built under a temporary name and renamed into place, so an interrupted run leaves "
 	"the previous report or none. --demo runs on the bundled invented demo universe, its "
 	"sectors and funds; without it a UNIVERSE is required. --previous DIR compares with an earlier report "
