@@ -79,8 +79,8 @@ static const struct cli_option report_own[] = {
 	  "12 calendar months" },
 	{ "tail", 0, CLI_CHOICE, RO(tail), NULL,
 	  "the tail-and-horizon section: expected shortfall (95%, 99%) and maximum drawdown of the curve's random "
-	  "portfolios, in the same pass (a few percent more time), and ending wealth over --horizon years; off "
-	  "leaves it out", on_off_words, "on" },
+	  "portfolios, in the same pass as their sd (0.7 s of CPU time with ending wealth on 600 x 240; "
+	  "docs/report.md), and ending wealth over --horizon years; off leaves it out", on_off_words, "on" },
 	{ "horizon", 0, CLI_REAL, RO(horizon), "H",
 	  "the horizon of the ending-wealth plots in years: windows of the history when H fits in it, else a "
 	  "stationary bootstrap; 0 leaves them out. Complete histories only: one with gaps gets the reason instead",
