@@ -1476,19 +1476,22 @@ static int key_fits_top_right(const struct key_plan *k)
 	return 1;
 }
 
-static void key_place(FILE *fp, const struct key_plan *k)
+/* left: the frame's left edge, a screen fraction (wider than FRAME_LEFT for
+ * long tick labels such as "0.001"). */
+static void key_place(FILE *fp, const struct key_plan *k, double left)
 {
 	int rows = (k->entries + 1) / 2;
+	double bottom = (75.0 + rows * 1.25 * 20.0 + 16.0) / PLOTS_HEIGHT;
 
-	if (key_fits_top_right(k)) {
-		frame_margins(fp, 0);
-		fputs("set key top right\n", fp);
-		return;
-	}
-	/* tick labels and the axis label take about 75 pixels under the frame */
+	/* below: tick labels and the axis label take about 75 pixels under the frame */
+	if (key_fits_top_right(k))
+		bottom = FRAME_BOTTOM;
 	fprintf(fp, "set lmargin at screen %g\nset rmargin at screen %g\nset tmargin at screen %g\n"
-		"set bmargin at screen %.4f\nset key outside below center horizontal maxrows %d width -2\n",
-		FRAME_LEFT, FRAME_RIGHT, FRAME_TOP, (75.0 + rows * 1.25 * 20.0 + 16.0) / PLOTS_HEIGHT, rows);
+		"set bmargin at screen %.4f\n", left, FRAME_RIGHT, FRAME_TOP, bottom);
+	if (bottom == FRAME_BOTTOM)
+		fputs("set key top right\n", fp);
+	else
+		fprintf(fp, "set key outside below center horizontal maxrows %d width -2\n", rows);
 }
 
 static void shortfall_plot(FILE *fp, const struct plots_input *in)
@@ -1511,7 +1514,7 @@ static void shortfall_plot(FILE *fp, const struct plots_input *in)
 	ax = frame_x(1.0, (double)in->exact->points[in->exact->npoints - 1].n, 1);
 	ay = frame_y(0.0, ymax, 0, 0);
 	k = (struct key_plan){ &ax, &ay, x, top, n, &ref, 1, 3, "middle 90% of random portfolios (5% to 95%)" };
-	key_place(fp, &k);
+	key_place(fp, &k, FRAME_LEFT);
 	hc_free(x);
 	hc_free(top);
 	fprintf(fp, "set yrange [0:%.10g]\n", ymax);
@@ -1539,7 +1542,8 @@ static void wealth_plot(FILE *fp, const struct plots_input *in)
 	ax = frame_x(1.0, (double)in->exact->points[in->exact->npoints - 1].n, 1);
 	ay = frame_y(lo, hi, 1, 0);
 	k = (struct key_plan){ &ax, &ay, x, top, n, &one, 1, 5, "rebalanced: middle 90% (5% to 95%)" };
-	key_place(fp, &k);
+	/* ticks below 0.1 ("0.05", "0.001") or from 1000 up are a character or two wider */
+	key_place(fp, &k, lo < 0.095 || hi > 999.0 ? FRAME_LEFT + 0.02 : FRAME_LEFT);
 	hc_free(x);
 	hc_free(top);
 	/* past four decades, ticks at the powers of ten only (gnuplot's own) */
@@ -1574,7 +1578,7 @@ static void lagging_plot(FILE *fp, const struct plots_input *in)
 	ax = frame_x(1.0, (double)in->exact->points[in->exact->npoints - 1].n, 1);
 	ay = frame_y(0.0, 100.0, 0, 0);
 	k = (struct key_plan){ &ax, &ay, x, top, n, &half, 1, 3, "bought in equal amounts and held" };
-	key_place(fp, &k);
+	key_place(fp, &k, FRAME_LEFT);
 	hc_free(x);
 	hc_free(top);
 	fputs("set yrange [0:100]\n"
