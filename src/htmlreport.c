@@ -713,8 +713,8 @@ static void tail_measures(FILE *fp, const struct htmlreport_input *in)
 	      "<strong>expected shortfall</strong> at 95% (99%), the mean loss in a portfolio's worst 5% (1%) of "
 	      "periods, per period and not annualised (a tail mean does not scale with the square root of time); "
 	      "and the <strong>maximum drawdown</strong>, the largest fall from a peak over the whole sample. The "
-	      "universe's own value, which every portfolio reaches at N = M, is the floor to compare each count "
-	      "with.</p>\n<dl class=\"facts\">\n", fp);
+	      "universe's own value, which every portfolio reaches at N = M, is the reference to compare each "
+	      "count with; unlike the sd's floor, a lucky portfolio can sit below it.</p>\n<dl class=\"facts\">\n", fp);
 	fact(fp, "random portfolios per count", field(in->tail, "paths"));
 	fact(fp, "periods per year", field(in->tail, "periods_per_year"));
 	fact(fp, "whole universe (N = M): expected shortfall 95%, a period", field(in->tail, "universe_es95"));
