@@ -86,6 +86,7 @@ value() {
 	sectors-output) echo "$T/so.$n" ;; parameters-output) echo "$T/po.$n" ;;
 	measures) echo es95,max_drawdown ;;
 	years) echo 2 ;;               benchmark-rate) echo 3% ;;
+	horizon) echo 2 ;;             horizon-paths) echo 100 ;;
 	*) return 1 ;;
 	esac
 }
