@@ -4,7 +4,10 @@
 # renders when gnuplot is on the PATH): the bundled demo (the README's first
 # command, through scripts/demo.sh), then an invented universe of 600
 # securities x 240 months from `holdcount synth` (above 256, so the sampled
-# rules' staged sampling matters).
+# rules' staged sampling matters); the same size with no listing or
+# delisting (a complete history, so the tail section's ending wealth over
+# ten years is computed too); and each with the tail-and-horizon section
+# off (--tail off), to show its cost.
 #
 # Usage: bench/bench_report.sh [BUILD_DIR] [RUNS]   (defaults: build, 3)
 # The machine is shared: read the best and the spread, and the CPU seconds
@@ -19,6 +22,7 @@ work="$(mktemp -d)"
 trap 'rm -rf "$work"' EXIT
 
 "$bin" synth -q --securities 600 --periods 240 --seed 7 -o "$work/u600.csv"
+"$bin" synth -q --securities 600 --periods 240 --seed 7 --late-share 0 --early-share 0 -o "$work/c600.csv"
 
 timeit() {   # label args...
 	local label=$1; shift
@@ -30,5 +34,9 @@ timeit() {   # label args...
 }
 echo "load average: $(cut -d' ' -f1-3 /proc/loadavg)"
 timeit "demo report"
+timeit "demo report, --tail off" --demo --tail off
 timeit "600 x 240 report" "$work/u600.csv"
+timeit "600 x 240 report, --tail off" "$work/u600.csv" --tail off
+timeit "600 x 240 complete report" "$work/c600.csv"
+timeit "600 x 240 complete report, --tail off" "$work/c600.csv" --tail off
 run_path=/nonexistent timeit "demo report, no gnuplot"

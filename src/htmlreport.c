@@ -38,6 +38,7 @@ const char *const hc_htmlreport_sections[][2] = {
 	{ "universe", "The universe and its treatment" },
 	{ "curve", "Risk by holding count" },
 	{ "rules", "How many holdings are enough: every rule" },
+	{ "tail", "Tail risk and long horizons" },
 	{ "funds", "Audited funds" },
 	{ "time", "The count needed through time" },
 	{ "cautions", "Cautions" },
@@ -45,7 +46,7 @@ const char *const hc_htmlreport_sections[][2] = {
 };
 const size_t hc_htmlreport_nsections = sizeof hc_htmlreport_sections / sizeof hc_htmlreport_sections[0];
 
-enum { S_REC, S_SINCE, S_UNIVERSE, S_CURVE, S_RULES, S_FUNDS, S_TIME, S_CAUTIONS, S_APPENDIX };
+enum { S_REC, S_SINCE, S_UNIVERSE, S_CURVE, S_RULES, S_TAIL, S_FUNDS, S_TIME, S_CAUTIONS, S_APPENDIX };
 
 /* The rows of the curve a committee reads (the CSV has every grid row). */
 static const long long readable_grid[] = { 1, 2, 3, 5, 10, 15, 20, 25, 30, 40, 50, 75, 100, 150, 200, 300, 500, 1000 };
@@ -680,6 +681,108 @@ static void rules(FILE *fp, const struct htmlreport_input *in)
 	fputs("</section>\n", fp);
 }
 
+/* ---- tail risk and long horizons ------------------------------------------------------- */
+
+static int readable_holdings(const struct report_table *t, size_t row, const void *ctx)
+{
+	const struct report_value *v = cell(t, row, "holdings");
+	size_t k;
+
+	if (v->kind != REPORT_INT)
+		return 0;
+	if (v->integer == *(const long long *)ctx)
+		return 1;
+	for (k = 0; k < sizeof readable_grid / sizeof readable_grid[0]; k++)
+		if (v->integer == readable_grid[k])
+			return 1;
+	return 0;
+}
+
+static void tail_measures(FILE *fp, const struct htmlreport_input *in)
+{
+	static const struct column cols[] = {
+		{ "n", "holdings" }, { "es95_mean", "ES 95%" }, { "es95_p05", "ES 95%: 5%" },
+		{ "es95_p95", "ES 95%: 95%" }, { "es99_mean", "ES 99%" },
+		{ "max_drawdown_mean", "drawdown" }, { "max_drawdown_p95", "drawdown: 95%" },
+	};
+	const struct report_table *t = hc_report_find_table(in->tail, "tail");
+	long long last_n = t && t->nrows ? cell(t, t->nrows - 1, "n")->integer : 0;
+
+	fputs("<p>The standard deviation treats gains and losses alike; a committee worried about bad months "
+	      "and deep falls reads these instead. For the same random portfolios as the curve: the "
+	      "<strong>expected shortfall</strong> at 95% (99%), the mean loss in a portfolio's worst 5% (1%) of "
+	      "periods, per period and not annualised (a tail mean does not scale with the square root of time); "
+	      "and the <strong>maximum drawdown</strong>, the largest fall from a peak over the whole sample. The "
+	      "universe's own value, which every portfolio reaches at N = M, is the reference to compare each "
+	      "count with; unlike the sd's floor, a lucky portfolio can sit below it.</p>\n<dl class=\"facts\">\n", fp);
+	fact(fp, "random portfolios per count", field(in->tail, "paths"));
+	fact(fp, "periods per year", field(in->tail, "periods_per_year"));
+	fact(fp, "whole universe (N = M): expected shortfall 95%, a period", field(in->tail, "universe_es95"));
+	fact(fp, "whole universe (N = M): expected shortfall 99%, a period", field(in->tail, "universe_es99"));
+	fact(fp, "whole universe (N = M): maximum drawdown", field(in->tail, "universe_max_drawdown"));
+	fputs("</dl>\n", fp);
+	figures(fp, in, HTMLREPORT_TAIL);
+	whole_table(fp, t, "Tail measures by holding count: ES is the expected shortfall (mean over the random "
+		    "portfolios, and their 5% and 95%), drawdown the maximum drawdown (mean, and the unlucky 95%); "
+		    "selected counts, every count in tail.csv", cols,
+		    sizeof cols / sizeof cols[0], readable, &last_n);
+}
+
+static void horizon_part(FILE *fp, const struct htmlreport_input *in)
+{
+	static const struct column cols[] = {
+		{ "holdings", "holdings" }, { "rebal_p05", "rebalanced: 5%" }, { "rebal_p50", "median" },
+		{ "rebal_p95", "95%" }, { "rebal_lag", "behind" }, { "hold_p05", "held: 5%" },
+		{ "hold_p50", "median" }, { "hold_p95", "95%" }, { "hold_lag", "behind" },
+	};
+	const struct report_table *t = hc_report_find_table(in->horizon, "horizon");
+	long long last_n = t && t->nrows ? cell(t, t->nrows - 1, "holdings")->integer : 0;
+
+	fprintf(fp, "<h3>Ending wealth over %g years</h3>\n", in->horizon_years);
+	if (!in->horizon) {
+		fputs("<p>Left out: ", fp);
+		esc(fp, in->horizon_why ? in->horizon_why : "not computed");
+		fputs(".</p>\n", fp);
+		return;
+	}
+	fputs("<p>How much 1 invested becomes, for random portfolios of each count held two ways: rebalanced to "
+	      "equal weights every period, and bought in equal amounts and left alone: the median outcome, the "
+	      "unlucky (5%) and lucky (95%) ones, and the share of portfolios that end behind the benchmark on the "
+	      "same path.</p>\n<dl class=\"facts\">\n", fp);
+	fact(fp, "horizon (periods)", field(in->horizon, "horizon_periods"));
+	fact(fp, "random portfolios (and paths) per count", field(in->horizon, "paths"));
+	fact(fp, "paths from", field(in->horizon, "paths_from"));
+	fact(fp, "benchmark", field(in->horizon, "benchmark"));
+	fact(fp, "whole universe, rebalanced: median", field(in->horizon, "universe_rebal_p50"));
+	fact(fp, "whole universe, bought and held: median", field(in->horizon, "universe_hold_p50"));
+	fputs("</dl>\n", fp);
+	figures(fp, in, HTMLREPORT_HORIZON);
+	whole_table(fp, t, "Ending wealth of 1 invested by holding count: rebalanced, and bought and held, each with "
+		    "its 5%, median and 95% across the random portfolios and the share ending behind the benchmark; "
+		    "selected counts, every count in horizon.csv",
+		    cols, sizeof cols / sizeof cols[0], readable_holdings, &last_n);
+}
+
+static void tail(FILE *fp, const struct htmlreport_input *in)
+{
+	section_open(fp, S_TAIL);
+	if (in->tail_off) {
+		fputs("<p>Left out: ", fp);
+		esc(fp, in->tail_why ? in->tail_why : "not asked for");
+		fputs(".</p>\n</section>\n", fp);
+		return;
+	}
+	if (in->tail)
+		tail_measures(fp, in);
+	else {
+		fputs("<p>Tail measures left out: ", fp);
+		esc(fp, in->tail_why ? in->tail_why : "not computed");
+		fputs(".</p>\n", fp);
+	}
+	horizon_part(fp, in);
+	fputs("</section>\n", fp);
+}
+
 /* ---- funds ----------------------------------------------------------------------------- */
 
 /* The audit's own notes (how its figures are computed; with the statutes'
@@ -927,6 +1030,7 @@ int hc_htmlreport_write(FILE *fp, const struct htmlreport_input *in, struct hc_e
 	universe(fp, in);
 	curve(fp, in);
 	rules(fp, in);
+	tail(fp, in);
 	funds(fp, in);
 	through_time(fp, in);
 	cautions(fp, in);

@@ -46,10 +46,13 @@ static const struct {
 	{ "tracking", "Expected tracking error by holding count", 1u << PLOTS_DATA_EXACT },
 	{ "funds", "Audited funds on the risk curve", 1u << PLOTS_DATA_EXACT | 1u << PLOTS_DATA_FUNDS },
 	{ "rolling", "Holding count needed through time", 1u << PLOTS_DATA_ROLLING },
+	{ "shortfall", "Expected shortfall by holding count", 1u << PLOTS_DATA_TAIL },
+	{ "wealth", "Ending wealth by holding count", 1u << PLOTS_DATA_HORIZON },
+	{ "lagging", "Chance of ending behind the benchmark by holding count", 1u << PLOTS_DATA_HORIZON },
 };
 
 static const char *const data_names[PLOTS_NDATA] = { "exact.dat", "sampled.dat", "rules.dat", "funds.dat",
-						      "rolling.dat" };
+						      "rolling.dat", "tail.dat", "horizon.dat" };
 static const char *const format_names[] = { "png", "svg", "pdf" };
 
 const char *hc_plots_name(int kind)
@@ -780,6 +783,12 @@ static size_t rolling_plottable(const struct plots_input *in)
 	return n;
 }
 
+/* Expected shortfall 95% summarised at some count. */
+static int tail_plottable(const struct plots_input *in)
+{
+	return in->tail && (in->tail->mask & (1u << HC_MEASURE_ES95)) && in->tail->npoints > 0;
+}
+
 int hc_plots_available(int kind, const struct plots_input *in)
 {
 	if (!in || !in->exact || in->exact->npoints == 0)
@@ -795,6 +804,11 @@ int hc_plots_available(int kind, const struct plots_input *in)
 		return funds_plottable(in) > 0;
 	case PLOTS_ROLLING:
 		return rolling_plottable(in) > 0;
+	case PLOTS_SHORTFALL:
+		return tail_plottable(in);
+	case PLOTS_WEALTH:
+	case PLOTS_LAGGING:
+		return in->horizon && in->horizon->nsizes > 0;
 	default:
 		return 0;
 	}
@@ -916,6 +930,109 @@ static int write_rolling(FILE *fp, const struct plots_input *in)
 	return HC_OK;
 }
 
+const char *hc_plots_period_word(double ppy)
+{
+	if (fabs(ppy - 12.0) < 1e-9)
+		return "month";
+	if (fabs(ppy - 4.0) < 1e-9)
+		return "quarter";
+	if (fabs(ppy - 52.0) < 1e-9)
+		return "week";
+	if (ppy >= 250.0 && ppy <= 262.0)
+		return "day";
+	if (fabs(ppy - 1.0) < 1e-9)
+		return "year";
+	return "period";
+}
+
+static const struct hc_measure_point *es95_at(const struct hc_measures_curve *c, size_t j)
+{
+	return &c->pts[j * HC_MEASURE_COUNT + HC_MEASURE_ES95];
+}
+
+static int write_tail(FILE *fp, const struct plots_input *in)
+{
+	const struct hc_measures_curve *c = in->tail;
+	size_t j;
+
+	fprintf(fp, "# holdcount plot data: expected shortfall 95%% of random equal-weight portfolios, percent of "
+		"value lost in one %s (per period, not annualised): the mean over the portfolios of each count, "
+		"then the 5%%, 50%% and 95%% quantiles across them\n# n  es95_mean  es95_p05  es95_p50  es95_p95\n",
+		hc_plots_period_word(c->periods_per_year));
+	for (j = 0; j < c->npoints; j++) {
+		const struct hc_measure_point *p = es95_at(c, j);
+		fprintf(fp, "%zu %.10g %.10g %.10g %.10g\n", c->sizes[j], 100.0 * p->mean, 100.0 * p->p05,
+			100.0 * p->p50, 100.0 * p->p95);
+	}
+	return HC_OK;
+}
+
+/* The 1-2-5 step at or below v > 0 (below = 1) or at or above it. */
+static double step125(double v, int above)
+{
+	static const double steps[] = { 1, 2, 5, 10 };
+	double d = pow(10.0, floor(log10(v)));
+	int i;
+
+	if (!above) {
+		for (i = 2; i > 0 && steps[i] * d > v * (1 + 1e-12); i--)
+			;
+		return steps[i] * d;
+	}
+	for (i = 0; i < 3 && steps[i] * d < v * (1 - 1e-12); i++)
+		;
+	return steps[i] * d;
+}
+
+/*
+ * The ending-wealth axis, log-scaled: from the 1-2-5 step below the
+ * smallest positive 5% quantile (and below 1, the amount invested) to the
+ * one above the largest 95% quantile (and above 1), each with a tenth of
+ * room.  A quantile of 0 (total losses) has no place on a log axis; it is
+ * drawn at the bottom (horizon.dat says so).
+ */
+static void wealth_range(const struct hc_horizon_result *h, double *lo, double *hi)
+{
+	double a = 1.0, b = 1.0;
+	size_t j;
+	int w;
+
+	for (j = 0; j < h->nsizes; j++)
+		for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++) {
+			const struct hc_horizon_point *p = &h->pts[j * HC_HORIZON_WEIGHTINGS + w];
+			if (p->p05 > 0)
+				a = fmin(a, p->p05);
+			if (isfinite(p->p95))
+				b = fmax(b, p->p95);
+		}
+	*lo = step125(a / 1.1, 0);
+	*hi = step125(b * 1.1, 1);
+}
+
+static int write_horizon(FILE *fp, const struct plots_input *in)
+{
+	const struct hc_horizon_result *h = in->horizon;
+	double lo, hi;
+	size_t j;
+	int w;
+
+	wealth_range(h, &lo, &hi);
+	fprintf(fp, "# holdcount plot data: ending wealth of 1 invested over %zu periods, by holding count, "
+		"%zu random portfolios a count: the 5%%, 50%% and 95%% quantiles rebalanced to equal weights every "
+		"period, then bought in equal amounts and held, then the percent of portfolios ending below the "
+		"benchmark each way; a quantile below %.10g (the wealth axis's bottom: a total loss) is written as "
+		"%.10g\n# n  rebal_p05  rebal_p50  rebal_p95  hold_p05  hold_p50  hold_p95  rebal_lag  hold_lag\n",
+		h->periods, h->paths, lo, lo);
+	for (j = 0; j < h->nsizes; j++) {
+		const struct hc_horizon_point *p = &h->pts[j * HC_HORIZON_WEIGHTINGS];
+		fprintf(fp, "%zu", h->sizes[j]);
+		for (w = 0; w < HC_HORIZON_WEIGHTINGS; w++)
+			fprintf(fp, " %.10g %.10g %.10g", fmax(p[w].p05, lo), fmax(p[w].p50, lo), fmax(p[w].p95, lo));
+		fprintf(fp, " %.10g %.10g\n", 100.0 * p[HC_HORIZON_REBALANCED].lag, 100.0 * p[HC_HORIZON_BUY_HOLD].lag);
+	}
+	return HC_OK;
+}
+
 int hc_plots_write_data(FILE *fp, int data, const struct plots_input *in, struct hc_error *err)
 {
 	int rc;
@@ -943,6 +1060,16 @@ int hc_plots_write_data(FILE *fp, int data, const struct plots_input *in, struct
 		if (!rolling_plottable(in))
 			return hc_error(err, HC_EUSAGE, "'%s' needs rolling windows with figures", data_names[data]);
 		rc = write_rolling(fp, in);
+		break;
+	case PLOTS_DATA_TAIL:
+		if (!tail_plottable(in))
+			return hc_error(err, HC_EUSAGE, "'%s' needs the expected shortfall by count", data_names[data]);
+		rc = write_tail(fp, in);
+		break;
+	case PLOTS_DATA_HORIZON:
+		if (!in->horizon || !in->horizon->nsizes)
+			return hc_error(err, HC_EUSAGE, "'%s' needs ending wealth by count", data_names[data]);
+		rc = write_horizon(fp, in);
 		break;
 	default:
 		return hc_error(err, HC_EUSAGE, "no plot data file number %d", data);
@@ -1303,6 +1430,198 @@ static void rolling_plot(FILE *fp, const struct plots_input *in)
 	fputc('\n', fp);
 }
 
+/*
+ * The tail and horizon plots: a log-scaled count axis (the first holdings
+ * do most of the work), and the key in the frame's top right corner when
+ * nothing drawn reaches it there (these curves fall or flatten to the
+ * right, so it usually is free), else below the frame in two columns, the
+ * bottom margin just tall enough for its rows.  x[], top[] are the upper
+ * edges of what is drawn at each count (data units), ref[] the heights of
+ * the horizontal lines across the frame.
+ */
+struct key_plan {
+	const struct plotlayout_axis *ax, *ay;
+	const double *x, *top;
+	size_t n;
+	const double *ref;
+	size_t nref;
+	int entries;
+	const char *longest;          /* the key's longest title */
+};
+
+static int key_fits_top_right(const struct key_plan *k)
+{
+	double x0 = FRAME_RIGHT * PLOTS_WIDTH - 2.0 - hc_plotlayout_text_px(k->longest, KEY_POINTS) - 75.0;
+	double y1 = FRAME_TOP * PLOTS_HEIGHT - 2.0, y0 = y1 - k->entries * 1.25 * 20.0 - 12.0, xa, xb, ya, yb;
+	size_t j;
+
+	if (!k->x || !k->top)
+		return 0;   /* no memory for the check: below is always safe */
+	for (j = 0; j < k->n; j++) {
+		xa = hc_plotlayout_to_px(k->ax, k->x[j]);
+		xb = j + 1 < k->n ? hc_plotlayout_to_px(k->ax, k->x[j + 1]) : xa;
+		if (xb < x0 - 4.0)
+			continue;
+		/* a straight segment on screen lies below its higher end */
+		ya = hc_plotlayout_to_px(k->ay, k->top[j]);
+		yb = j + 1 < k->n ? hc_plotlayout_to_px(k->ay, k->top[j + 1]) : ya;
+		if (!(fmax(ya, yb) < y0 - 10.0))
+			return 0;
+	}
+	for (j = 0; j < k->nref; j++) {
+		ya = hc_plotlayout_to_px(k->ay, k->ref[j]);
+		if (ya >= y0 - 10.0 && ya <= y1 + 4.0)
+			return 0;
+	}
+	return 1;
+}
+
+/* left: the frame's left edge, a screen fraction (wider than FRAME_LEFT for
+ * long tick labels such as "0.001"). */
+static void key_place(FILE *fp, const struct key_plan *k, double left)
+{
+	int rows = (k->entries + 1) / 2;
+	double bottom = (75.0 + rows * 1.25 * 20.0 + 16.0) / PLOTS_HEIGHT;
+
+	/* below: tick labels and the axis label take about 75 pixels under the frame */
+	if (key_fits_top_right(k))
+		bottom = FRAME_BOTTOM;
+	fprintf(fp, "set lmargin at screen %g\nset rmargin at screen %g\nset tmargin at screen %g\n"
+		"set bmargin at screen %.4f\n", left, FRAME_RIGHT, FRAME_TOP, bottom);
+	if (bottom == FRAME_BOTTOM)
+		fputs("set key top right\n", fp);
+	else
+		fprintf(fp, "set key outside below center horizontal maxrows %d width -2\n", rows);
+}
+
+static void shortfall_plot(FILE *fp, const struct plots_input *in)
+{
+	size_t j, n = in->tail->npoints;
+	double *x = hc_calloc(n, sizeof *x), *top = hc_calloc(n, sizeof *top), ymax = 0.0, ref;
+	struct plotlayout_axis ax, ay;
+	struct key_plan k;
+
+	for (j = 0; j < n; j++) {
+		double v = fmax(100.0 * es95_at(in->tail, j)->p95, 100.0 * es95_at(in->tail, j)->mean);
+		if (x && top) {
+			x[j] = (double)in->tail->sizes[j];
+			top[j] = v;
+		}
+		ymax = fmax(ymax, v);
+	}
+	ref = 100.0 * in->tail->universe[HC_MEASURE_ES95];
+	ymax = nice_ceil(fmax(ymax, ref) > 0 ? 1.04 * fmax(ymax, ref) : 1.0);
+	ax = frame_x(1.0, (double)in->exact->points[in->exact->npoints - 1].n, 1);
+	ay = frame_y(0.0, ymax, 0, 0);
+	k = (struct key_plan){ &ax, &ay, x, top, n, &ref, 1, 3, "middle 90% of random portfolios (5% to 95%)" };
+	key_place(fp, &k, FRAME_LEFT);
+	hc_free(x);
+	hc_free(top);
+	fprintf(fp, "set yrange [0:%.10g]\n", ymax);
+	fputs("plot 'tail.dat' using 1:3:5 with filledcurves ls 3 title \"middle 90% of random portfolios (5% to "
+	      "95%)\", \\\n"
+	      "     'tail.dat' using 1:2 with linespoints ls 11 title \"mean of random portfolios\", \\\n"
+	      "     universe_es with lines ls 4 title sprintf(\"equal-weight universe (N = M): %.2f%%\", universe_es)\n",
+	      fp);
+}
+
+static void wealth_plot(FILE *fp, const struct plots_input *in)
+{
+	const struct hc_horizon_result *h = in->horizon;
+	size_t j, n = h->nsizes;
+	double *x = hc_calloc(n, sizeof *x), *top = hc_calloc(n, sizeof *top), lo, hi, one = 1.0;
+	struct plotlayout_axis ax, ay;
+	struct key_plan k;
+	char tics[512];
+
+	wealth_range(h, &lo, &hi);
+	for (j = 0; x && top && j < n; j++) {
+		x[j] = (double)h->sizes[j];
+		top[j] = fmin(hi, fmax(h->pts[j * HC_HORIZON_WEIGHTINGS].p95, h->pts[j * HC_HORIZON_WEIGHTINGS + 1].p95));
+	}
+	ax = frame_x(1.0, (double)in->exact->points[in->exact->npoints - 1].n, 1);
+	ay = frame_y(lo, hi, 1, 0);
+	k = (struct key_plan){ &ax, &ay, x, top, n, &one, 1, 5, "rebalanced: middle 90% (5% to 95%)" };
+	/* ticks below 0.1 ("0.05", "0.001") or from 1000 up are a character or two wider */
+	key_place(fp, &k, lo < 0.095 || hi > 999.0 ? FRAME_LEFT + 0.02 : FRAME_LEFT);
+	hc_free(x);
+	hc_free(top);
+	/* past four decades, ticks at the powers of ten only (gnuplot's own) */
+	if (hi / lo > 1e4)
+		tics[0] = '\0';
+	else
+		log_tics(tics, sizeof tics, lo, hi, 0);
+	fprintf(fp, "set yrange [%.10g:%.10g]\n", lo, hi);
+	if (tics[0])
+		fprintf(fp, "set ytics (%s)\n", tics);
+	fputs("plot 'horizon.dat' using 1:2:4 with filledcurves ls 3 title \"rebalanced: middle 90% (5% to 95%)\", "
+	      "\\\n"
+	      "     'horizon.dat' using 1:3 with linespoints ls 11 title \"rebalanced: median\", \\\n"
+	      "     'horizon.dat' using 1:6 with linespoints ls 12 title \"bought and held: median\", \\\n"
+	      "     'horizon.dat' using 1:5 with lines ls 13 title \"bought and held: 5% and 95%\", \\\n"
+	      "     'horizon.dat' using 1:7 with lines ls 13 notitle, \\\n"
+	      "     1 with lines ls 14 title \"1: the amount invested\"\n", fp);
+}
+
+static void lagging_plot(FILE *fp, const struct plots_input *in)
+{
+	const struct hc_horizon_result *h = in->horizon;
+	size_t j, n = h->nsizes;
+	double *x = hc_calloc(n, sizeof *x), *top = hc_calloc(n, sizeof *top), half = 50.0;
+	struct plotlayout_axis ax, ay;
+	struct key_plan k;
+
+	for (j = 0; x && top && j < n; j++) {
+		x[j] = (double)h->sizes[j];
+		top[j] = 100.0 * fmax(h->pts[j * HC_HORIZON_WEIGHTINGS].lag, h->pts[j * HC_HORIZON_WEIGHTINGS + 1].lag);
+	}
+	ax = frame_x(1.0, (double)in->exact->points[in->exact->npoints - 1].n, 1);
+	ay = frame_y(0.0, 100.0, 0, 0);
+	k = (struct key_plan){ &ax, &ay, x, top, n, &half, 1, 3, "bought in equal amounts and held" };
+	key_place(fp, &k, FRAME_LEFT);
+	hc_free(x);
+	hc_free(top);
+	fputs("set yrange [0:100]\n"
+	      "plot 'horizon.dat' using 1:8 with linespoints ls 11 title \"rebalanced to equal weights\", \\\n"
+	      "     'horizon.dat' using 1:9 with linespoints ls 12 title \"bought in equal amounts and held\", \\\n"
+	      "     50 with lines ls 14 title \"half of the portfolios\"\n", fp);
+}
+
+/* How the horizon's paths were built, short (a subtitle) or in full. */
+static void horizon_route_text(char *buf, size_t size, const struct plots_input *in, int full)
+{
+	const struct hc_horizon_result *h = in->horizon;
+	const char *per = hc_plots_period_word(in->tail ? in->tail->periods_per_year
+					       : in->exact->periods_per_year);
+
+	if (h->route == HC_HORIZON_WINDOWS && !full)
+		snprintf(buf, size, "overlapping windows of the history");
+	else if (h->route == HC_HORIZON_WINDOWS && in->periods == h->periods)
+		snprintf(buf, size, "the whole history, %zu %ss (one window: every portfolio sees the same %ss, so "
+			 "the spread is across portfolios alone)", h->periods, per, per);
+	else if (h->route == HC_HORIZON_WINDOWS && in->periods > h->periods)
+		snprintf(buf, size, "a window of %zu consecutive %ss of the history, its start uniform over the %zu "
+			 "possible starts (the windows overlap, so the spread understates what independent horizons "
+			 "would show)", h->periods, per, in->periods - h->periods + 1);
+	else if (h->route == HC_HORIZON_WINDOWS)
+		snprintf(buf, size, "a window of %zu consecutive %ss of the history", h->periods, per);
+	else if (!full)
+		snprintf(buf, size, "stationary bootstrap, mean block %zu %s%s", h->block_length, per,
+			 h->block_length == 1 ? "" : "s");
+	else
+		snprintf(buf, size, "a stationary bootstrap of whole %ss of the history (Politis & Romano, 1994), "
+			 "blocks of mean length %zu %s%s (Politis & White, 2004); a bootstrap of the past is not a "
+			 "forecast", per, h->block_length, per, h->block_length == 1 ? "" : "s");
+}
+
+static void horizon_benchmark_text(char *buf, size_t size, const struct hc_horizon_result *h, double years)
+{
+	if (isfinite(h->rate_wealth))
+		snprintf(buf, size, "a fixed rate, ending wealth %.4g over %g years", h->rate_wealth, years);
+	else
+		snprintf(buf, size, "the equal-weight universe on the same path, held the same way");
+}
+
 /* The second line of a plot's title: its basis. */
 static void subtitle(char *buf, size_t size, int kind, const struct plots_input *in, const struct funds_layout *F)
 {
@@ -1329,6 +1648,24 @@ static void subtitle(char *buf, size_t size, int kind, const struct plots_input 
 		snprintf(buf, size, "%zu-period windows (%.3g years), %s; %.10g periods a year",
 			 in->rolling->window, (double)in->rolling->window / p, spacing, p);
 		break;
+	case PLOTS_SHORTFALL:
+		if (in->periods)
+			snprintf(buf, size, "per %s, not annualised: the mean loss in the worst 5%% of %ss (%.4g of %zu)",
+				 hc_plots_period_word(in->tail->periods_per_year), hc_plots_period_word(in->tail->periods_per_year),
+				 0.05 * (double)in->periods, in->periods);
+		else
+			snprintf(buf, size, "per %s, not annualised: the mean loss in the worst 5%% of %ss",
+				 hc_plots_period_word(in->tail->periods_per_year), hc_plots_period_word(in->tail->periods_per_year));
+		break;
+	case PLOTS_WEALTH:
+		horizon_route_text(spacing, sizeof spacing, in, 0);
+		snprintf(buf, size, "%g years (%zu %ss), %s; %zu portfolios a count", in->horizon_years,
+			 in->horizon->periods, hc_plots_period_word(p), spacing, in->horizon->paths);
+		break;
+	case PLOTS_LAGGING:
+		horizon_benchmark_text(basis, sizeof basis, in->horizon, in->horizon_years);
+		snprintf(buf, size, "over %g years, against %s", in->horizon_years, basis);
+		break;
 	default:
 		snprintf(buf, size, "%s", basis);
 	}
@@ -1354,6 +1691,15 @@ static void plot_command(FILE *fp, int kind, const struct plots_input *in, const
 		break;
 	case PLOTS_ROLLING:
 		rolling_plot(fp, in);
+		break;
+	case PLOTS_SHORTFALL:
+		shortfall_plot(fp, in);
+		break;
+	case PLOTS_WEALTH:
+		wealth_plot(fp, in);
+		break;
+	case PLOTS_LAGGING:
+		lagging_plot(fp, in);
 		break;
 	}
 }
@@ -1386,7 +1732,7 @@ static int layout_for(int kind, const struct plots_input *in, struct risk_layout
 int hc_plots_write_script(FILE *fp, int kind, const struct plots_input *in, int format,
 		       struct hc_error *err)
 {
-	char title[256], sub[320], xmax[32], floor_s[32], budget[32], tics[256];
+	char title[256], sub[320], xmax[32], floor_s[32], budget[32], tics[256], ues[32];
 	struct risk_layout *L = NULL;
 	struct funds_layout F;
 	int rc, have_funds = 0;
@@ -1410,15 +1756,20 @@ int hc_plots_write_script(FILE *fp, int kind, const struct plots_input *in, int 
 		 : (double)in->exact->points[in->exact->npoints - 1].n);
 	snprintf(floor_s, sizeof floor_s, "%.10g", floor_pct(in->exact));
 	snprintf(budget, sizeof budget, "%.10g", isfinite(in->te_budget) ? 100.0 * in->te_budget : 0.0);
+	snprintf(ues, sizeof ues, "%.10g", in->tail ? 100.0 * in->tail->universe[HC_MEASURE_ES95] : 0.0);
 	log_tics(tics, sizeof tics, have_funds ? F.xmin : 1.0, have_funds ? F.xmax : atof(xmax), 0);
 	{
 		const struct subst s[] = {
 			{ "TITLE", title }, { "SUBTITLE", sub }, { "XMAX", xmax }, { "FLOOR", floor_s },
-			{ "BUDGET", budget }, { "XTICS", tics },
+			{ "BUDGET", budget }, { "XTICS", tics }, { "UNIVERSE_ES", ues },
+			{ "PERIOD", hc_plots_period_word(in->exact->periods_per_year) },
 		};
 		fprintf(fp, "# %s.gp - written by holdcount; render with: gnuplot %s.gp\n"
-			"# It reads the .dat files beside it; figures are percent a year.\n",
-			kinds[kind].name, kinds[kind].name);
+			"# It reads the .dat files beside it; figures are %s.\n",
+			kinds[kind].name, kinds[kind].name,
+			kind == PLOTS_SHORTFALL ? "percent lost in one period (not annualised)"
+			: kind == PLOTS_WEALTH ? "ending wealth of 1 invested"
+			: kind == PLOTS_LAGGING ? "percent of portfolios" : "percent a year");
 		terminal_block(fp, format, kinds[kind].name);
 		rc = emit_template(fp, "style", s, sizeof s / sizeof s[0], err);
 		if (rc == HC_OK)
@@ -1436,6 +1787,71 @@ int hc_plots_write_script(FILE *fp, int kind, const struct plots_input *in, int 
 	if (ferror(fp))
 		return hc_error(err, HC_EIO, "cannot write '%s.gp': %s", kinds[kind].name, strerror(errno));
 	return HC_OK;
+}
+
+static const char *shortfall_caption(const struct plots_input *in, char *buf, size_t size)
+{
+	const char *per = hc_plots_period_word(in->tail->periods_per_year);
+	char worst[64] = "";
+	size_t len;
+
+	if (in->periods)
+		snprintf(worst, sizeof worst, " (%.4g of the %zu)", 0.05 * (double)in->periods, in->periods);
+	len = (size_t)snprintf(buf, size, "Expected shortfall 95%%: for a random equal-weight portfolio of N holdings, "
+			       "rebalanced every %s, the mean loss in its worst 5%% of %ss%s, per %s and not annualised "
+			       "(a tail mean does not scale with the square root of time). The solid line with circles is "
+			       "the mean over the random portfolios of each count; the shaded band holds the middle 90%% "
+			       "of them (5%% to 95%%), so a portfolio above the band is an unlucky draw; the dashed line is "
+			       "the equal-weight universe's own value, %.2f%% a %s, which every portfolio reaches at N = M. "
+			       "Alexeev & Tapon (2014) judge the holding count by this measure.",
+			       per, per, worst, per, 100.0 * in->tail->universe[HC_MEASURE_ES95], per);
+	if (in->tail->ragged && len < size)
+		snprintf(buf + len, size - len, " The history is read period by period: each %s a portfolio holds the "
+			 "first N securities of its random order alive then, and the universe is every security alive "
+			 "then.", per);
+	return buf;
+}
+
+static const char *wealth_caption(const struct plots_input *in, char *buf, size_t size)
+{
+	const struct hc_horizon_result *h = in->horizon;
+	const char *per = hc_plots_period_word(in->exact->periods_per_year);
+	char route[512];
+
+	horizon_route_text(route, sizeof route, in, 1);
+	snprintf(buf, size, "Ending wealth of 1 invested over %g years (%zu %ss), by holding count: %zu random "
+		 "portfolios of each count, each followed over its own path, %s. Rebalanced to equal weights every "
+		 "%s: the shaded band holds the middle 90%% of ending wealth (5%% to 95%%) and the solid line with "
+		 "circles is the median. Bought in equal amounts and held (weights drift with returns): the dashed "
+		 "line with squares is the median, the dotted lines the 5%% and 95%% quantiles. The wealth axis is "
+		 "log-scaled; the dash-dot line at 1 is the amount invested. The whole equal-weight universe's median "
+		 "is %.2f rebalanced and %.2f held. No costs or taxes.",
+		 in->horizon_years, h->periods, per, h->paths, route, per,
+		 h->universe[HC_HORIZON_REBALANCED].p50, h->universe[HC_HORIZON_BUY_HOLD].p50);
+	return buf;
+}
+
+static const char *lagging_caption(const struct plots_input *in, char *buf, size_t size)
+{
+	const struct hc_horizon_result *h = in->horizon;
+	char bench[320];
+
+	if (isfinite(h->rate_wealth))
+		snprintf(bench, sizeof bench, "a fixed rate, which turns 1 into %.4g over the horizon", h->rate_wealth);
+	else
+		snprintf(bench, sizeof bench, "the equal-weight portfolio of the whole universe on the same path, held the "
+			 "same way (rebalanced against rebalanced, bought and held against bought and held); at N = M "
+			 "the portfolio is the universe and never lags");
+	snprintf(buf, size, "Chance of ending the %g years behind the benchmark: the share of the %zu random "
+		 "portfolios of each count whose ending wealth is below the benchmark's on the same path. The "
+		 "benchmark is %s. Solid line with circles: rebalanced to equal weights; dashed line with squares: "
+		 "bought in equal amounts and held; the dash-dot line marks half the portfolios, above which the "
+		 "typical portfolio of that count ends behind (Heaton, Polson & Witte, 2017, explain why small "
+		 "portfolios usually do: a few best performers lift the universe's return, and a small portfolio "
+		 "usually misses them). Each share's Monte Carlo standard error is at most %.2f percentage points "
+		 "(0.5 over the square root of the portfolios).",
+		 in->horizon_years, h->paths, bench, 50.0 / sqrt((double)h->paths));
+	return buf;
 }
 
 const char *hc_plots_caption(int kind, const struct plots_input *in, char *buf, size_t size)
@@ -1499,6 +1915,12 @@ const char *hc_plots_caption(int kind, const struct plots_input *in, char *buf, 
 				snprintf(buf + len, size - len, ".");
 		}
 		return buf;
+	case PLOTS_SHORTFALL:
+		return shortfall_caption(in, buf, size);
+	case PLOTS_WEALTH:
+		return wealth_caption(in, buf, size);
+	case PLOTS_LAGGING:
+		return lagging_caption(in, buf, size);
 	default:
 		return "Holding count needed through time.";
 	}

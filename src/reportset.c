@@ -62,6 +62,8 @@ void hc_reportset_free(struct hc_reportset *r)
 	hc_report_free(r->rep_plots);
 	hc_report_free(r->rep_rolling);
 	hc_report_free(r->rep_compare);
+	hc_report_free(r->rep_tail);
+	hc_horizon_result_free(r->horizon);
 	hc_free(r->previous_json);
 	for (int k = 0; k < PLOTS_NKINDS; k++)
 		hc_free(r->svg[k]);
@@ -79,8 +81,14 @@ static void stage(const struct hc_reportset *r, const char *what)
 	hc_progress_begin(&r->o.progress, what, NULL, NULL);
 }
 
+static unsigned tail_mask(const struct hc_reportset_options *o)
+{
+	return (o->tail_measures ? o->tail_measures : REPORTSET_TAIL_MEASURES) | (1u << HC_MEASURE_ES95);
+}
+
 /* The curve as `holdcount curve` computes and reports it: exact at the
- * grid, sampled there; and the exact curve at every count for the plots. */
+ * grid, sampled there (with the tail section, with its measures: `curve
+ * --measures`); and the exact curve at every count for the plots. */
 static int compute_curve(struct hc_reportset *r, struct hc_error *err)
 {
 	struct hc_curve_options co = r->o.curve;
@@ -90,8 +98,11 @@ static int compute_curve(struct hc_reportset *r, struct hc_error *err)
 	co.moments = &r->mo;
 	co.strata = NULL;
 	co.progress = r->o.progress;
+	/* the tail measures ride on the same random portfolios, in the same pass */
+	co.measures = r->o.tail && co.paths ? tail_mask(&r->o) : 0;
 	if ((rc = hc_curve_run(&r->curve_run, r->src, r->o.sizes, r->o.nsizes, &co, err)) != HC_OK)
 		return rc;
+	r->tail = r->curve_run->measures;
 	r->curve = r->curve_run->curve;
 	r->full = r->curve_run->full;
 	r->rep_curve = r->curve_run->report;
@@ -170,6 +181,72 @@ static int compute_rolling(struct hc_reportset *r, const struct universe *every,
 	return HC_OK;
 }
 
+/*
+ * Ending wealth by count as `holdcount horizon --years H --paths K --seed
+ * S --sizes GRID` computes it, on a complete history only: a history read
+ * period by period is left out with the reason (hc_horizon_run takes no
+ * gaps yet, and the securities with no gap alone would leave out those
+ * that failed).
+ */
+static int compute_horizon(struct hc_reportset *r, struct hc_error *err)
+{
+	struct hc_horizon_options ho;
+	char line[96];
+
+	if (!(r->o.horizon_years > 0)) {
+		snprintf(r->horizon_why, sizeof r->horizon_why, "`--horizon 0` was given");
+		return HC_OK;
+	}
+	if (r->src->kind != HC_SOURCE_SERIES) {
+		snprintf(r->horizon_why, sizeof r->horizon_why, "the history has gaps (securities listed or delisted "
+			 "inside the sample) and is read period by period; ending wealth over a horizon is computed on "
+			 "complete histories only so far, and computed on the securities with no gap alone it would "
+			 "leave out those that failed (survivorship bias), so the report does not show it; `holdcount "
+			 "horizon UNIVERSE --missing complete` gives it on those securities, with that bias");
+		return HC_OK;
+	}
+	hc_horizon_options_init(&ho);
+	ho.years = r->o.horizon_years;
+	ho.paths = r->o.horizon_paths ? r->o.horizon_paths : REPORTSET_HORIZON_PATHS;
+	ho.seed = r->o.curve.seed;
+	ho.threads = r->o.curve.threads;
+	ho.progress = r->o.progress;
+	snprintf(line, sizeof line, "ending wealth over %g years", ho.years);
+	stage(r, line);
+	return hc_horizon_run(&r->horizon, r->src, r->o.sizes, r->o.nsizes, &ho, err);
+}
+
+/* The measures by count as a report of their own (tail.csv, summary.json's
+ * "tail"): the curve's counts, five columns a measure and the universe's
+ * own values, with the measures' notes on scale. */
+static int build_tail(struct hc_reportset *r)
+{
+	const struct hc_measures_curve *c = r->tail;
+	struct report *rep = r->rep_tail = hc_report_alloc();
+	struct report_table *t;
+	char seed[32];
+	size_t j;
+
+	snprintf(seed, sizeof seed, "%llu", (unsigned long long)r->curve->seed);
+	if (!rep || hc_report_add_int(rep, "paths", "random portfolios per count", (long long)r->curve->paths) ||
+	    hc_report_add_text(rep, "seed", "seed", seed) ||
+	    hc_report_add_int(rep, "periods", "periods", (long long)r->u->t) ||
+	    hc_report_add_real(rep, "periods_per_year", "periods per year", c->periods_per_year, REPORT_STYLE_PLAIN) ||
+	    hc_report_add_bool(rep, "ragged", "history read period by period", c->ragged))
+		return HC_ENOMEM;
+	t = hc_report_add_table(rep, "tail", "tail and path measures by holding count");
+	if (!t || hc_report_table_add_column(t, "n", "holdings", REPORT_STYLE_PLAIN))
+		return HC_ENOMEM;
+	for (j = 0; j < c->npoints; j++) {
+		if (hc_report_table_add_row(t))
+			return HC_ENOMEM;
+		hc_report_table_set_int(t, j, 0, (long long)c->sizes[j]);
+	}
+	if (hc_measures_report(c, rep, t))
+		return HC_ENOMEM;
+	return hc_report_add_cautions(rep);
+}
+
 static int build_universe(struct hc_reportset *r, const struct universe *every);
 
 int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
@@ -204,6 +281,22 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
 	if (rc == HC_OK) {
 		stage(r, "exact rules");
 		rc = compute_rules(r, err);
+	}
+	if (rc == HC_OK && !opt->tail) {
+		snprintf(r->tail_why, sizeof r->tail_why, "%s", opt->tail_why[0] ? opt->tail_why : "not asked for");
+		snprintf(r->horizon_why, sizeof r->horizon_why, "%s", r->tail_why);
+	} else if (rc == HC_OK) {
+		if (!r->tail)
+			snprintf(r->tail_why, sizeof r->tail_why, "`--paths 0` draws no random portfolios, whose "
+				 "measures these are");
+		else if (build_tail(r))
+			rc = hc_error(err, HC_ENOMEM, "out of memory building the tail report");
+		if (rc == HC_OK)
+			rc = compute_horizon(r, err);
+		/* summary.json says why ending wealth is missing, beside the measures */
+		if (rc == HC_OK && r->rep_tail && !r->horizon &&
+		    hc_report_add_text(r->rep_tail, "horizon_left_out", "ending wealth left out", r->horizon_why))
+			rc = hc_error(err, HC_ENOMEM, "out of memory building the tail report");
 	}
 	if (rc == HC_OK && opt->holdings) {
 		stage(r, "audit of the funds");
@@ -340,7 +433,7 @@ static int build_plots_report(struct hc_reportset *r, const struct plots_input *
 {
 	struct report *rep = r->rep_plots = hc_report_alloc();
 	struct report_table *t;
-	char name[REPORTDIR_NAME_MAX], cap[1024];
+	char name[REPORTDIR_NAME_MAX], cap[2048];
 	size_t row;
 	int k;
 
@@ -411,20 +504,22 @@ static int write_part_file(struct reportdir *rd, const char *name, const struct 
 /* summary.json: every report of the folder under its name, one JSON tree. */
 static int write_json(struct reportdir *rd, struct hc_reportset *r, struct hc_error *err)
 {
-	static const char *const keys[] = { "universe", "curve", "enough", "audit", "rolling", "plots" };
-	const struct report *reps[6];
+	static const char *const keys[] = { "universe", "curve", "enough", "tail", "horizon", "audit", "rolling", "plots" };
+	const struct report *reps[8];
 	FILE *fp;
 	int rc;
 
 	reps[0] = r->rep_universe;
 	reps[1] = r->rep_curve;
 	reps[2] = r->rep_enough;
-	reps[3] = r->rep_audit;
-	reps[4] = r->rep_rolling;
-	reps[5] = r->rep_plots;
+	reps[3] = r->rep_tail;
+	reps[4] = r->horizon ? r->horizon->report : NULL;
+	reps[5] = r->rep_audit;
+	reps[6] = r->rep_rolling;
+	reps[7] = r->rep_plots;
 	if ((rc = hc_reportdir_open(rd, "summary.json", &fp, err)) != HC_OK)
 		return rc;
-	rc = hc_report_write_json_set(fp, HOLDCOUNT_VERSION, keys, reps, 6, err);
+	rc = hc_report_write_json_set(fp, HOLDCOUNT_VERSION, keys, reps, 8, err);
 	if (rc != HC_OK) {
 		fclose(fp);
 		return rc;
@@ -435,7 +530,13 @@ static int write_json(struct reportdir *rd, struct hc_reportset *r, struct hc_er
 /* ---- summary.md ------------------------------------------------------------------------ */
 
 /* A row of the readable grid (and the last, N = M).  A grid given with
- * --sizes that shares few counts with it is shown whole instead. */
+ * --sizes that shares few counts with it is shown whole instead.  ctx is a
+ * struct readable: the count column's key and M. */
+struct readable {
+	const char *key;
+	size_t m;
+};
+
 static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx);
 
 static int readable_row(const struct report_table *t, size_t row, const void *ctx)
@@ -449,8 +550,9 @@ static int readable_row(const struct report_table *t, size_t row, const void *ct
 
 static int on_readable_grid(const struct report_table *t, size_t row, const void *ctx)
 {
-	const struct report_value *v = hc_report_md_cell(t, row, "n");
-	size_t m = *(const size_t *)ctx, k;
+	const struct readable *rd = ctx;
+	const struct report_value *v = hc_report_md_cell(t, row, rd->key);
+	size_t m = rd->m, k;
 
 	if (v->kind != REPORT_INT)
 		return 0;
@@ -528,7 +630,8 @@ static void md_curve(FILE *fp, const struct hc_reportset *r)
 		"distance from the exact one in Monte Carlo standard errors. Every grid row is in `curve.csv`.\n\n",
 		r->curve->paths, (unsigned long long)r->curve->seed);
 	if (t)
-		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row, &r->u->m);
+		hc_report_md_table(fp, t, cols, sizeof cols / sizeof cols[0], readable_row,
+				   &(struct readable){ "n", r->u->m });
 }
 
 /* What each rule asks, in a line a committee reader can follow; sources as
@@ -609,6 +712,78 @@ static void md_rules(FILE *fp, const struct hc_reportset *r)
 		    r->rep_enough->fields[k].value.kind == REPORT_TEXT)
 			fprintf(fp, "**Recommendation** (`--policy`, `--policy-at`; a sentence for a policy statement):\n\n> %s\n\n",
 				r->rep_enough->fields[k].value.text);
+}
+
+/* A field's value as text (hc_report_value_text), "-" when r lacks it. */
+static const char *field_text(const struct report *r, const char *key, char *buf, size_t size)
+{
+	size_t i;
+
+	for (i = 0; r && i < r->nfields; i++)
+		if (strcmp(r->fields[i].key, key) == 0)
+			return hc_report_value_text(buf, size, &r->fields[i].value);
+	return "-";
+}
+
+/* Tail risk and long horizons: the measures of the curve's random
+ * portfolios by count, then ending wealth over the horizon, or why either
+ * is left out. */
+static void md_tail(FILE *fp, const struct hc_reportset *r)
+{
+	static const char *const cols[][2] = {
+		{ "n", "holdings" }, { "es95_mean", "ES 95% mean" }, { "es95_p05", "ES 95% 5%" },
+		{ "es95_p95", "ES 95% 95%" }, { "es99_mean", "ES 99% mean" }, { "max_drawdown_mean", "max drawdown mean" },
+		{ "max_drawdown_p95", "max drawdown 95%" },
+	};
+	static const char *const hcols[][2] = {
+		{ "holdings", "holdings" }, { "rebal_p05", "rebal. 5%" }, { "rebal_p50", "rebal. median" },
+		{ "rebal_p95", "rebal. 95%" }, { "rebal_lag", "rebal. behind" }, { "hold_p05", "held 5%" },
+		{ "hold_p50", "held median" }, { "hold_p95", "held 95%" }, { "hold_lag", "held behind" },
+	};
+	const char *per = hc_plots_period_word(r->u->periods_per_year);
+	char a[64], b[64], c[64], d[64];
+
+	fputs("## Tail risk and long horizons\n\n", fp);
+	if (r->tail_why[0] && !r->o.tail) {
+		fprintf(fp, "Left out: %s.\n\n", r->tail_why);
+		return;
+	}
+	if (r->tail_why[0]) {
+		fprintf(fp, "Tail measures left out: %s.\n\n", r->tail_why);
+	} else {
+		fprintf(fp, "Beyond the standard deviation, for the same %zu random portfolios per count as the curve "
+			"(seed %llu): each one's expected shortfall at 95%% and 99%% (the mean loss in its worst 5%% and "
+			"1%% of %ss, per %s and not annualised) and its maximum drawdown (the largest fall from a peak "
+			"over the whole sample); the mean over the portfolios of each count and the 5%% and 95%% "
+			"quantiles across them (for the drawdown the 95%%: the unlucky draw). The whole equal-weight universe (N = M): ES "
+			"95%% %s, ES 99%% %s, maximum drawdown %s. %sEvery count and the Monte Carlo standard errors "
+			"are in `tail.csv`.\n\n", r->curve->paths, (unsigned long long)r->curve->seed, per, per,
+			field_text(r->rep_tail, "universe_es95", a, sizeof a),
+			field_text(r->rep_tail, "universe_es99", b, sizeof b),
+			field_text(r->rep_tail, "universe_max_drawdown", c, sizeof c),
+			r->tail->ragged ? "The history is read period by period: each period a portfolio holds the "
+			"first N securities of its random order alive then, and the universe is every security alive "
+			"then. " : "");
+		hc_report_md_table(fp, hc_report_find_table(r->rep_tail, "tail"), cols, sizeof cols / sizeof cols[0],
+				   readable_row, &(struct readable){ "n", r->u->m });
+	}
+	fprintf(fp, "### Ending wealth over %g years\n\n", r->o.horizon_years);
+	if (!r->horizon) {
+		fprintf(fp, "Left out: %s.\n\n", r->horizon_why);
+		return;
+	}
+	fprintf(fp, "Ending wealth of 1 invested over %g years (%zu %ss), %zu random portfolios per count (seed "
+		"%llu), rebalanced to equal weights every %s and bought in equal amounts and held. Paths: %s. "
+		"Benchmark: %s; \"behind\" is the share of portfolios ending below it on the same path. The whole "
+		"universe's median is %s rebalanced and %s held. Every count, the means and the Monte Carlo "
+		"standard errors are in `horizon.csv` (what `holdcount horizon --years %g --paths %zu` prints with "
+		"`--format csv`).\n\n", r->o.horizon_years, r->horizon->periods, per, r->horizon->paths,
+		(unsigned long long)r->o.curve.seed, per, field_text(r->horizon->report, "paths_from", a, sizeof a),
+		field_text(r->horizon->report, "benchmark", b, sizeof b),
+		field_text(r->horizon->report, "universe_rebal_p50", c, sizeof c),
+		field_text(r->horizon->report, "universe_hold_p50", d, sizeof d), r->o.horizon_years, r->horizon->paths);
+	hc_report_md_table(fp, hc_report_find_table(r->horizon->report, "horizon"), hcols,
+			   sizeof hcols / sizeof hcols[0], readable_row, &(struct readable){ "holdings", r->u->m });
 }
 
 /* The failed rules and screen parts with their deciding figures, when a
@@ -780,7 +955,7 @@ static void md_since(FILE *fp, const struct hc_reportset *r)
 
 static void md_plots(FILE *fp, const struct hc_reportset *r, const struct plots_input *pin, const unsigned char *made)
 {
-	char cap[1024];
+	char cap[2048];
 	int k;
 
 	fputs("## Plots\n\n", fp);
@@ -822,6 +997,7 @@ static int write_markdown(struct reportdir *rd, struct hc_reportset *r, const st
 	md_universe(fp, r);
 	md_curve(fp, r);
 	md_rules(fp, r);
+	md_tail(fp, r);
 	md_audit(fp, r);
 	md_rolling(fp, r);
 	md_plots(fp, r, pin, made);
@@ -854,7 +1030,16 @@ static int write_markdown(struct reportdir *rd, struct hc_reportset *r, const st
 			hc_report_find_table(r->rep_audit, "sectors") ? ", `--table sectors`" : "");
 	if (r->rep_rolling)
 		fputs("- `rolling.csv`: what `holdcount rolling` prints with `--format csv` and the same window\n", fp);
-	fputs("- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year)\n", fp);
+	if (r->rep_tail)
+		fputs("- `tail.csv`: the tail measures by count (five columns a measure: mean, its Monte Carlo standard "
+		      "error, 5%, 50% and 95%), the same as those columns of `curve.csv`, which is what `holdcount "
+		      "curve --measures es95,es99,max_drawdown` prints\n", fp);
+	if (r->horizon)
+		fputs("- `horizon.csv`: ending wealth by count, what `holdcount horizon` prints with `--format csv`, "
+		      "the same horizon, paths, seed and counts\n", fp);
+	fprintf(fp, "- `*.gp`, `*.dat`: gnuplot scripts and their data (percent a year%s)\n",
+		r->rep_tail || r->horizon ? "; `tail.dat` percent of one period, `horizon.dat` ending wealth and percent "
+		"of portfolios" : "");
 	return hc_reportdir_close(rd, fp, "summary.md", err);
 }
 
@@ -882,7 +1067,7 @@ static int write_html(struct reportdir *rd, struct hc_reportset *r, const struct
 		"against the current text and defer to compliance counsel",
 	};
 	struct htmlreport_figure fig[PLOTS_NKINDS];
-	char caps[PLOTS_NKINDS][1024], date[16];
+	char caps[PLOTS_NKINDS][2048], date[16];
 	struct htmlreport_input in;
 	time_t now = time(NULL);
 	struct tm tm;
@@ -897,7 +1082,9 @@ static int write_html(struct reportdir *rd, struct hc_reportset *r, const struct
 		fig[n].title = hc_plots_title(k);
 		fig[n].caption = hc_plots_caption(k, pin, caps[k], sizeof caps[k]);
 		fig[n].svg = r->svg[k];
-		fig[n].place = k == PLOTS_FUNDS ? HTMLREPORT_FUNDS : k == PLOTS_ROLLING ? HTMLREPORT_TIME : HTMLREPORT_CURVE;
+		fig[n].place = k == PLOTS_FUNDS ? HTMLREPORT_FUNDS : k == PLOTS_ROLLING ? HTMLREPORT_TIME
+			       : k == PLOTS_SHORTFALL ? HTMLREPORT_TAIL
+			       : k == PLOTS_WEALTH || k == PLOTS_LAGGING ? HTMLREPORT_HORIZON : HTMLREPORT_CURVE;
 		n++;
 	}
 	gmtime_r(&now, &tm);
@@ -912,6 +1099,12 @@ static int write_html(struct reportdir *rd, struct hc_reportset *r, const struct
 	in.rolling = r->rep_rolling;
 	in.compare = r->rep_compare;
 	in.rolling_why = r->o.window_why;
+	in.tail = r->rep_tail;
+	in.horizon = r->horizon ? r->horizon->report : NULL;
+	in.tail_why = r->tail_why;
+	in.horizon_why = r->horizon_why;
+	in.tail_off = !r->o.tail;
+	in.horizon_years = r->o.horizon_years;
 	in.holdings_file = r->o.holdings_name;
 	in.figures = fig;
 	in.nfigures = n;
@@ -1029,6 +1222,10 @@ int hc_reportset_write(struct hc_reportset *r, struct reportdir *rd, struct hc_e
 	pin.te_budget = r->o.enough.rules.te_budget;
 	pin.audit = r->audit;
 	pin.rolling = r->rolling;
+	pin.tail = r->tail;
+	pin.horizon = r->horizon;
+	pin.horizon_years = r->o.horizon_years;
+	pin.periods = r->u->t;
 	pin.universe_name = r->u->source ? (strrchr(r->u->source, '/') ? strrchr(r->u->source, '/') + 1 : r->u->source)
 					 : NULL;
 	r->rendered = hc_plots_find_gnuplot(NULL, r->gnuplot, sizeof r->gnuplot);
@@ -1051,6 +1248,10 @@ int hc_reportset_write(struct hc_reportset *r, struct reportdir *rd, struct hc_e
 		rc = write_part_file(rd, "audit-failures.csv", r->rep_audit, "failures", err);
 	if (rc == HC_OK && r->rep_rolling)
 		rc = write_report_file(rd, "rolling.csv", r->rep_rolling, hc_report_writer_csv, err);
+	if (rc == HC_OK && r->rep_tail)
+		rc = write_report_file(rd, "tail.csv", r->rep_tail, hc_report_writer_csv, err);
+	if (rc == HC_OK && r->horizon)
+		rc = write_report_file(rd, "horizon.csv", r->horizon->report, hc_report_writer_csv, err);
 	if (rc == HC_OK)
 		rc = write_json(rd, r, err);
 	if (rc == HC_OK && r->previous_json)

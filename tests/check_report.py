@@ -21,7 +21,17 @@ Runs `holdcount report` on the bundled demo and checks:
     the curve and the floor strike no fund's name (funds.gp), from the
     scripts' own frame and axes and a measured text width;
   - each PNG is a PNG (signature, PNG specification 1.2 section 12.12) whose
-    IHDR says 1000 x 640 (section 4.1.1).
+    IHDR says 1000 x 640 (section 4.1.1);
+  - the tail section: tail.csv carries the very columns of curve.csv (the
+    same random portfolios), tail.dat 100 times them; the equal-weight
+    universe's own expected shortfall (95%, 99%) and maximum drawdown
+    against numpy on its return series (each month the mean return of the
+    securities listed then), and every portfolio at N = M equal to it;
+  - ending wealth, on the demo's securities with no gap (a complete
+    history; the demo itself has gaps and gets the reason instead): with a
+    horizon of the whole sample (one window) the universe's ending wealth,
+    rebalanced and bought and held, against numpy's products of the
+    returns, and no portfolio of N = M behind the universe.
 """
 import csv
 import json
@@ -73,7 +83,7 @@ with open(os.path.join(out, "summary.json")) as fp:
 for name, section, table in (("curve.csv", "curve", "curve"), ("enough.csv", "enough", "rules"),
                              ("audit.csv", "audit", "funds"), ("audit-screens.csv", "audit", "screens"),
                              ("audit-sectors.csv", "audit", "sectors"), ("audit-failures.csv", "audit", "failures"),
-                             ("rolling.csv", "rolling", "windows")):
+                             ("rolling.csv", "rolling", "windows"), ("tail.csv", "tail", "tail")):
     with open(os.path.join(out, name), newline="") as fp:
         rows = list(csv.DictReader(fp))
     js = summary[section][table]
@@ -307,6 +317,103 @@ for p in pngs:
     check(head[12:16] == b"IHDR", f"{p['image']}: first chunk is not IHDR")
     w, h = struct.unpack(">II", head[16:24])
     check((w, h) == (1000, 640), f"{p['image']}: {w}x{h}, expected 1000x640")
+
+# ---- the tail section ------------------------------------------------------
+# tail.csv: the measures' columns of curve.csv itself (one pass of the same
+# random portfolios), cell for cell; tail.dat: 100 * es95 to 10 digits.
+with open(os.path.join(out, "tail.csv"), newline="") as fp:
+    tail_rows = list(csv.DictReader(fp))
+with open(os.path.join(out, "curve.csv"), newline="") as fp:
+    curve_rows = {r["n"]: r for r in csv.DictReader(fp)}
+check(len(tail_rows) == len(curve_rows) and len(tail_rows) > 10, f"tail.csv: {len(tail_rows)} rows, curve.csv {len(curve_rows)}")
+for row in tail_rows:
+    for k, v in row.items():
+        check(curve_rows[row["n"]].get(k) == v, f"tail.csv n={row['n']} {k}: {v!r}, curve.csv {curve_rows[row['n']].get(k)!r}")
+dat = [l.split() for l in open(os.path.join(out, "tail.dat")) if not l.startswith("#")]
+check(len(dat) == len(tail_rows), "tail.dat rows")
+for d, row in zip(dat, tail_rows):
+    want = [float("%.10g" % (100 * float(row[k]))) for k in ("es95_mean", "es95_p05", "es95_p50", "es95_p95")]
+    check(int(d[0]) == int(row["n"]) and [float(v) for v in d[1:]] == want, f"tail.dat row {d} vs tail.csv {want}")
+
+
+def es(r, p):
+    """Historical expected shortfall (docs/measures.md; Acerbi & Tasche 2002):
+    the mean loss in the worst T p periods, the boundary one by its fraction."""
+    x = np.sort(r)
+    tp = len(r) * p
+    f = int(np.floor(tp + 1e-9))
+    return -(x[:f].sum() + (tp - f) * (x[f] if f < len(x) else 0.0)) / tp
+
+
+def max_drawdown(r):
+    """Largest fall of the compounded path from a prior peak, the start a peak
+    (Magdon-Ismail & Atiya 2004)."""
+    w = np.cumprod(1 + r)
+    peak = np.maximum.accumulate(np.concatenate(([1.0], w)))[1:]
+    return float(np.max(1 - w / peak))
+
+
+# The equal-weight universe of a history read period by period: each month
+# the mean return of the securities listed then (a security observed once
+# has no mean and is left out; docs/measures.md "Histories with gaps").
+x_raw = np.array([[np.nan if v in MISSING else float(v) for v in c] for c in cols])
+x_raw = x_raw[np.sum(~np.isnan(x_raw), axis=1) >= 2]
+alive = ~np.isnan(x_raw)
+ubar = np.where(alive.sum(axis=0) > 0, np.nansum(x_raw, axis=0) / np.maximum(alive.sum(axis=0), 1), 0.0)
+tl = summary["tail"]
+for key, want in (("es95", es(ubar, 0.05)), ("es99", es(ubar, 0.01)), ("max_drawdown", max_drawdown(ubar))):
+    got = tl["universe_" + key]
+    check(abs(got - want) <= 1e-12 * abs(want), f"universe {key}: {got!r}, numpy {want!r}")
+    last = tl["tail"][-1]
+    check(last["n"] == m and all(abs(last[f"{key}_{q}"] - want) <= 1e-12 * abs(want) for q in ("mean", "p05", "p50", "p95")),
+          f"tail at N = M: {key} {[last[key + '_' + q] for q in ('mean', 'p05', 'p95')]} vs the universe's {want}")
+check(summary["horizon"] is None and tl["horizon_left_out"].startswith("the history has gaps"),
+      "the demo (with gaps) has ending wealth, or no reason for its absence")
+caps = {p["name"]: p["caption"] for p in summary["plots"]["plots"]}
+check("shortfall" in caps and ("%.2f%% a month" % (100 * es(ubar, 0.05))) in caps["shortfall"]
+      and "(12 of the 240)" in caps["shortfall"], f"shortfall caption: {caps.get('shortfall')!r}")
+
+# Ending wealth on the demo's securities with no gap, a complete history,
+# over the whole sample (20 years of 240 months: one window, so every path is
+# the same 240 months): the universe's own ending wealth is the product of
+# (1 + its monthly return) rebalanced, and the mean of the securities' own
+# products bought and held (docs/horizon.md; common-practice arithmetic).
+full = [i for i, c in enumerate(cols) if all(v not in MISSING for v in c)]
+comp = os.path.join(TMP, "complete.csv")
+with open(comp, "w", newline="") as fp:
+    w = csv.writer(fp)
+    for row in data:
+        w.writerow([row[0]] + [row[1 + i] for i in full])
+out_c = os.path.join(TMP, "complete")
+subprocess.run([HC, "report", comp, "--force", "-q", "-o", out_c, "--paths", "300", "--bootstrap", "0", "--window", "0",
+                "--horizon", "20", "--horizon-paths", "400"], check=True)
+with open(os.path.join(out_c, "summary.json")) as fp:
+    sc = json.load(fp)
+xc = np.array([[float(v) for v in cols[i]] for i in full])
+rebal = float(np.prod(1 + xc.mean(axis=0)))
+hold = float(np.mean(np.prod(1 + xc, axis=1)))
+hz = sc["horizon"]
+check(hz is not None and hz["horizon_periods"] == 240 and hz["paths"] == 400, "complete report: no 240-period horizon")
+if hz is not None:
+    last = hz["horizon"][-1]
+    check(last["holdings"] == len(full), f"horizon's last count {last['holdings']}, expected M = {len(full)}")
+    for wkey, want in (("rebal", rebal), ("hold", hold)):
+        for q in ("p05", "p50", "p95", "mean"):
+            check(abs(last[f"{wkey}_{q}"] - want) <= 1e-12 * want, f"N = M {wkey}_{q}: {last[wkey + '_' + q]!r}, numpy {want!r}")
+        check(abs(hz[f"universe_{wkey}_p50"] - want) <= 1e-12 * want, f"universe_{wkey}_p50 vs numpy {want!r}")
+        check(last[f"{wkey}_lag"] == 0, f"N = M {wkey}: {last[wkey + '_lag']} of portfolios behind the universe itself")
+    # with one window the spread at N = 1 is across single securities alone:
+    # the median of the 400 drawn securities' own growth lies within the
+    # securities' range
+    one = hz["horizon"][0]
+    own = np.prod(1 + xc, axis=1)
+    check(one["holdings"] == 1 and own.min() <= one["hold_p05"] <= one["hold_p50"] <= one["hold_p95"] <= own.max(),
+          f"N = 1 ending wealth {one['hold_p05']}..{one['hold_p95']} outside the securities' {own.min()}..{own.max()}")
+    check(os.path.getsize(os.path.join(out_c, "wealth.png")) > 0 and os.path.getsize(os.path.join(out_c, "lagging.png")) > 0,
+          "complete report: no wealth.png or lagging.png")
+    caps_c = {p["name"]: p["caption"] for p in sc["plots"]["plots"]}
+    check("over 20 years (240 months)" in caps_c.get("wealth", "") and "the whole history, 240 months (one window"
+          in caps_c.get("wealth", ""), f"wealth caption: {caps_c.get('wealth')!r}")
 
 print("check_report: %d failures" % len(failures))
 sys.exit(1 if failures else 0)

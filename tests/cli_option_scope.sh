@@ -92,6 +92,7 @@ value() {
 	years) echo 2 ;;               benchmark-rate) echo 3% ;;
 	benchmark-file) echo "$T/bill.csv" ;; lag-limit) echo 5% ;;
 	market-values) echo "$T/mv.csv" ;;
+	horizon) echo 2 ;;             horizon-paths) echo 100 ;;
 	*) return 1 ;;
 	esac
 }

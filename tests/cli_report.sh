@@ -14,7 +14,8 @@ FAST=(--paths 1000 --bootstrap 100 -q)
 "$HC" report --demo -o "$T/a" "${FAST[@]}" || fail "demo report exited $?"
 for f in report.html summary.md summary.json curve.csv enough.csv exact.dat sampled.dat rules.dat \
 	 risk.gp risk-log.gp share.gp tracking.gp risk.png risk-log.png share.png tracking.png \
-	 risk.svg risk-log.svg share.svg tracking.svg rolling.csv rolling.dat rolling.gp rolling.png rolling.svg; do
+	 risk.svg risk-log.svg share.svg tracking.svg rolling.csv rolling.dat rolling.gp rolling.png rolling.svg \
+	 tail.csv tail.dat shortfall.gp shortfall.png shortfall.svg; do
 	[ -s "$T/a/$f" ] || fail "demo report lacks $f"
 done
 if [ -f "$HOLDCOUNT_SOURCE_DIR/data/demo-funds.csv" ]; then
@@ -54,6 +55,42 @@ grep -q '^Left out: the history has 100 periods, fewer than two windows of 60 (f
 [ "$(wc -l <"$T/short24/rolling.csv")" -eq 14 ] || fail "--window 24 --step 6 over 100 periods: expected (100-24)/6+1 = 13 windows"
 grep -q 'each window of 24 periods (set with `--window`), one every 6 periods: 13 windows' "$T/short24/summary.md" ||
 	fail "summary.md does not state the window given"
+
+# The tail-and-horizon section.  The demo's history has gaps (listings and
+# delistings): the tail measures are there, read period by period, and the
+# ending wealth is left out with the reason, in summary.md and summary.json.
+grep -q '^## Tail risk and long horizons$' "$T/a/summary.md" || fail "summary.md has no tail section"
+grep -q '^Beyond the standard deviation, for the same 1000 random portfolios per count as the curve (seed 1)' "$T/a/summary.md" ||
+	fail "summary.md's tail section does not say which random portfolios"
+grep -q '^Left out: the history has gaps (securities listed or delisted inside the sample)' "$T/a/summary.md" ||
+	fail "summary.md does not say why the demo has no ending wealth"
+ls "$T"/a/horizon.* "$T"/a/wealth.* "$T"/a/lagging.* >/dev/null 2>&1 && fail "the demo (with gaps) got ending-wealth files"
+python3 -c 'import json,sys; d=json.load(open(sys.argv[1])); sys.exit(not (d["horizon"] is None and d["tail"]["horizon_left_out"].startswith("the history has gaps") and d["tail"]["ragged"] is True))' \
+	"$T/a/summary.json" || fail "summary.json does not say why the demo has no ending wealth"
+grep -q '!\[Expected shortfall by holding count\](shortfall.png)' "$T/a/summary.md" || fail "summary.md does not embed shortfall.png"
+# A complete invented history of 150 months: ending wealth over the default
+# 10 years (120 months) from windows of it, its files and plots; --horizon 0
+# leaves that part out and says so; --tail off leaves the section out, and
+# curve.csv keeps the sd family alone.
+"$HC" synth -q --securities 40 --periods 150 --seed 2385 --late-share 0 --early-share 0 -o "$T/complete.csv" || fail "synth exited $?"
+"$HC" report "$T/complete.csv" -o "$T/hz" "${FAST[@]}" --horizon-paths 300 || fail "report of a complete history exited $?"
+for f in tail.csv horizon.csv horizon.dat wealth.gp wealth.png wealth.svg lagging.gp lagging.png lagging.svg shortfall.png; do
+	[ -s "$T/hz/$f" ] || fail "the complete history's report lacks $f"
+done
+grep -q '^### Ending wealth over 10 years$' "$T/hz/summary.md" || fail "summary.md lacks the ending-wealth part"
+grep -q 'Paths: overlapping windows: each path a window of 120 consecutive periods, its start uniform over the 31 starts' "$T/hz/summary.md" ||
+	fail "summary.md does not say how the paths were built"
+grep -q '^rebal_p05' "$T/hz/horizon.dat" && fail "horizon.dat has no comment header"
+"$HC" report "$T/complete.csv" -o "$T/hz0" "${FAST[@]}" --horizon 0 || fail "--horizon 0 exited $?"
+ls "$T"/hz0/horizon.* "$T"/hz0/wealth.* >/dev/null 2>&1 && fail "--horizon 0 wrote ending-wealth files"
+grep -q '^Left out: `--horizon 0` was given.$' "$T/hz0/summary.md" || fail "summary.md does not say --horizon 0 left ending wealth out"
+"$HC" report --demo -o "$T/toff" "${FAST[@]}" --tail off || fail "--tail off exited $?"
+ls "$T"/toff/tail.* "$T"/toff/shortfall.* >/dev/null 2>&1 && fail "--tail off wrote tail files"
+grep -q '^Left out: `--tail off` was given.$' "$T/toff/summary.md" || fail "summary.md does not say --tail off left the section out"
+grep -q 'es95' "$T/toff/curve.csv" && fail "--tail off: curve.csv still carries the measures"
+grep -q 'es95_mean' "$T/a/curve.csv" || fail "curve.csv lacks the tail measures' columns"
+python3 -c 'import json,sys; d=json.load(open(sys.argv[1])); sys.exit(not (d["tail"] is None and d["horizon"] is None))' \
+	"$T/toff/summary.json" || fail "--tail off: summary.json's tail and horizon are not null"
 
 # 2. Deterministic: a second run gives the same bytes (summary.md differs at
 # most in its date line).
@@ -98,8 +135,8 @@ done
 grep -q 'gnuplot risk.gp' "$T/nognuplot/README-plots.txt" || fail "README-plots.txt does not say how to render"
 grep -q 'gnuplot risk.gp' "$T/nognuplot/summary.md" || fail "summary.md does not say how to render"
 # report.html is still written, each figure saying it was not rendered
-[ "$(grep -c 'role="img" aria-label="[^"]*">Not rendered: gnuplot was not found' "$T/nognuplot/report.html")" -eq 6 ] ||
-	fail "report.html without gnuplot does not say, for each of the 6 figures, that it was not rendered"
+[ "$(grep -c 'role="img" aria-label="[^"]*">Not rendered: gnuplot was not found' "$T/nognuplot/report.html")" -eq 7 ] ||
+	fail "report.html without gnuplot does not say, for each of the 7 figures, that it was not rendered"
 ls "$T"/nognuplot/*.png >/dev/null 2>&1 && fail "PNG files without gnuplot"
 (cd "$T/nognuplot" && for g in *.gp; do gnuplot "$g" 2>>"$T/render-err"; done)
 [ -s "$T/render-err" ] && fail "rendering the scripts by hand printed: $(head -3 "$T/render-err")"
@@ -177,6 +214,14 @@ ls -d "$T"/kill.tmp-* >/dev/null 2>&1 && fail "the run after SIGKILL did not rem
 "$HC" report --demo -o "$T/x" --window 0 --step 6 2>"$T/err"; rc=$?
 [ $rc -eq 2 ] && grep -q -- "--step applies to the rolling windows, which --window 0 leaves out" "$T/err" ||
 	fail "--step with --window 0: exit $rc, $(cat "$T/err")"
+for bad in "--tail off --horizon 5:--horizon applies to the tail-and-horizon section, which --tail off leaves out" \
+	"--horizon -1:--horizon must be 0 (no ending wealth) or a number of years up to 1000, not -1" \
+	"--horizon-paths 0:--horizon-paths must be at least 1" \
+	"--horizon 0 --horizon-paths 50:--horizon-paths applies to the ending wealth, which --horizon 0 leaves out"; do
+	# shellcheck disable=SC2086
+	"$HC" report --demo -o "$T/x" ${bad%%:*} 2>"$T/err"; rc=$?
+	[ $rc -eq 2 ] && grep -qF -- "${bad#*:}" "$T/err" || fail "${bad%%:*}: exit $rc, $(cat "$T/err")"
+done
 "$HC" report --demo -o "$T/x" --plot-format gif 2>/dev/null; rc=$?
 [ $rc -eq 2 ] || fail "--plot-format gif: exit $rc, expected 2"
 [ -e "$T/x" ] && fail "a usage error wrote a folder"

@@ -20,7 +20,12 @@
 #   - the PDF's page count is within 8 to 24 pages on Letter and on A4
 #     (pdfinfo; nine sections, each from a new page, figures kept whole);
 #   - the recommendation sentence (the near-floor count from summary.json and
-#     the policy sentence's minimum) is in the PDF's text.
+#     the policy sentence's minimum) is in the PDF's text;
+#   - the tail-and-horizon section: on the demo (a history with gaps) its
+#     heading, the expected-shortfall figure and caption, and the sentence
+#     saying why ending wealth is left out; on an invented complete history
+#     the ending-wealth and lagging figures laid out at a non-zero size and
+#     their captions in the PDF's text.
 # The screenshot is left in the test folder ($T/screenshot.png); docs/img/
 # report-html.png is a copy of its top.
 set -u
@@ -69,7 +74,7 @@ grep -Eiq '<script|<link|<img|<iframe|@import|src=' "$H" && fail "report.html lo
 grep -Eo '(https?|ftp)://[^"'"'"' )]*' "$H" | grep -Ev '^http://www\.w3\.org/(2000/svg|1999/xlink)$' | head -3 >"$T/urls"
 [ -s "$T/urls" ] && fail "report.html names a URL to fetch: $(cat "$T/urls")"
 nfig=$(grep -c '<figure ' "$H")
-[ "$nfig" -eq 6 ] || fail "report.html has $nfig figures, expected the demo's 6"
+[ "$nfig" -eq 7 ] || fail "report.html has $nfig figures, expected the demo's 7 (six and expected shortfall)"
 [ "$(grep -c '<svg role="img" aria-label="[^"]' "$H")" -eq "$nfig" ] || fail "a figure lacks role=img and an aria-label"
 [ "$(grep -c '<figcaption>' "$H")" -eq "$nfig" ] || fail "a figure lacks a caption"
 grep -q '<th scope="col">' "$H" || fail "tables have no column headers with scope"
@@ -81,7 +86,7 @@ app_at=$(grep -n '<section id="appendix"' "$H" | cut -d: -f1)
 
 # The sections, in order.
 SECTIONS=("Recommendation" "Since the last report" "The universe and its treatment" "Risk by holding count"
-	  "How many holdings are enough: every rule" "Audited funds" "The count needed through time" "Cautions"
+	  "How many holdings are enough: every rule" "Tail risk and long horizons" "Audited funds" "The count needed through time" "Cautions"
 	  "Technical appendix: self-checks")
 
 # 1. Screenshot (the page as a reader first sees it, at a desktop width).
@@ -164,6 +169,35 @@ grep -qF "not investment advice" "$T/letter.txt" || fail "letter.pdf lacks the c
 # (144 to 146 of the file's securities; counted from the CSV by check_report.py)
 grep -qF "Securities with a return, by year (the file as read)" "$T/letter.txt" || fail "letter.pdf lacks the securities-by-year table"
 grep -qE "2011 12 144 146 " "$T/letter.txt" || fail "letter.pdf lacks the demo's 2011 row '2011 12 144 146'"
+
+# The tail-and-horizon section: the demo's expected shortfall caption, and
+# why its ending wealth is left out (a history with gaps), in the PDF.
+grep -qF "Expected shortfall 95%: for a random equal-weight portfolio of N holdings, rebalanced every month, the mean loss in its worst 5% of months (12 of the 240)" "$T/letter.txt" ||
+	fail "letter.pdf lacks the expected-shortfall caption"
+grep -qF "Ending wealth over 10 years Left out: the history has gaps (securities listed or delisted inside the sample)" "$T/letter.txt" ||
+	fail "letter.pdf does not say why the demo has no ending wealth"
+grep -q '^figure fig-shortfall ' "$T/sizes" || fail "the browser laid out no expected-shortfall figure"
+# A complete invented history (no listing or delisting): the ending-wealth
+# and lagging figures, laid out at a non-zero size, and their captions in
+# the PDF.
+"$HC" synth -q --securities 60 --periods 180 --seed 2385 --late-share 0 --early-share 0 -o complete.csv || fail "synth exited $?"
+"$HC" report complete.csv -o report-complete --window 0 --horizon-paths 300 "${FAST[@]}" || fail "report of a complete history exited $?"
+HC2=$T/report-complete/report.html
+sed 's|</body>|<script>(function(){var o=[];document.querySelectorAll("figure").forEach(function(f){var s=f.querySelector("svg");var r=s?s.getBoundingClientRect():{width:0,height:0};o.push("figure "+f.id+" "+Math.round(r.width)+" "+Math.round(r.height));});var p=document.createElement("pre");p.id="hc-sizes";p.textContent=o.join("\\n");document.body.appendChild(p);})();</script></body>|' \
+	"$HC2" >"$T/report-complete/report-sizes.html"
+browse "$T/dom2.log" --window-size=1000,1300 --dump-dom "file://$T/report-complete/report-sizes.html" >"$T/dom2.html" || fail "dump-dom (complete): chromium exited $?"
+console_clean "$T/dom2.log" || fail "console messages in the complete history's copy: $(grep CONSOLE "$T/dom2.log" | head -3)"
+for fig in fig-shortfall fig-wealth fig-lagging; do
+	read -r _ _ w h < <(grep -o "figure $fig [0-9]* [0-9]*" "$T/dom2.html")
+	[ "${w:-0}" -gt 300 ] && [ "${h:-0}" -gt 150 ] || fail "$fig of the complete history rendered at ${w:-?} x ${h:-?} pixels"
+done
+browse "$T/pdf2.log" --no-pdf-header-footer --print-to-pdf="$T/complete.pdf" "file://$HC2" || fail "print to PDF (complete): chromium exited $?"
+pdftotext -layout "$T/complete.pdf" - | tr -s ' \n' '  ' >"$T/complete.txt"
+for want in "Tail risk and long horizons" "Ending wealth over 10 years" \
+	"Ending wealth of 1 invested over 10 years (120 months), by holding count: 300 random portfolios of each count" \
+	"Chance of ending the 10 years behind the benchmark: the share of the 300 random portfolios of each count"; do
+	grep -qF "$want" "$T/complete.txt" || fail "complete.pdf lacks '$want'"
+done
 
 # The console check is not blind: a page that logs an error is caught.
 printf '<!DOCTYPE html><html lang="en"><title>x</title><p>x</p><script>console.error("hc-control")</script></html>\n' >"$T/control.html"

@@ -1,10 +1,12 @@
 #!/usr/bin/env bash
 # cli_report_identity.sh - curve.csv, enough.csv, audit.csv (with
-# audit-screens.csv and audit-sectors.csv) and rolling.csv of a report are
-# byte for byte what `holdcount curve`, `enough`, `audit` (--table) and
-# `rolling` print with --format csv and the same options and seed, and the
-# report's summary.json holds, under "curve", "enough", "audit" and
-# "rolling", exactly the JSON those commands print (Python's json, compared
+# audit-screens.csv and audit-sectors.csv), rolling.csv and horizon.csv of a
+# report are byte for byte what `holdcount curve` (with the tail section's
+# --measures es95,es99,max_drawdown), `enough`, `audit` (--table),
+# `rolling` and `horizon` (--years 10 --paths 2000, the report's defaults)
+# print with --format csv and the same options and seed, and the report's
+# summary.json holds, under "curve", "enough", "audit", "rolling" and
+# "horizon", exactly the JSON those commands print (Python's json, compared
 # as parsed values).
 #
 # Two universes: the bundled demo (150 securities), and an invented one of
@@ -45,7 +47,9 @@ mkdir -p "$T/demo"
 U=$(ls "$D/demo-universe.csv")
 # the report names its universe by the path it read (HOLDCOUNT_DATA_DIR)
 src=$("$PY" -c 'import json,sys; print(json.load(open(sys.argv[1]))["curve"]["source"])' "$T/demo/r/summary.json")
-compare "$T/demo" curve 0 "$HC" curve "$src" "${OPTS[@]}"
+# the tail section's measures ride on the curve's random portfolios
+TAIL=(--measures es95,es99,max_drawdown)
+compare "$T/demo" curve 0 "$HC" curve "$src" "${OPTS[@]}" "${TAIL[@]}"
 compare "$T/demo" enough 0 "$HC" enough "$src" "${OPTS[@]}" --bootstrap 100
 compare "$T/demo" audit 0 "$HC" audit "$src" --holdings "$D/demo-funds.csv" --sectors "$D/demo-sectors.csv" "${OPTS[@]}"
 # rolling.csv: the report's default windows on the demo's monthly history
@@ -85,7 +89,12 @@ rc=$?
 [ $rc -eq 1 ] || fail "report with a failing fund exited $rc, expected 1: $(head -2 "$B/report.err")"
 grep -q "fails the policy: 'Tallow Focus'" "$B/report.err" || fail "report did not name the failing fund: $(cat "$B/report.err")"
 [ -s "$B/r/summary.md" ] || fail "report with a failing fund wrote no folder"
-compare "$B" curve 0 "$HC" curve "$B/universe.csv" "${BOPTS[@]}"
+compare "$B" curve 0 "$HC" curve "$B/universe.csv" "${BOPTS[@]}" "${TAIL[@]}"
+# a complete history: ending wealth over the default 10 years, longer than
+# its 96 months, so from the stationary bootstrap
+compare "$B" horizon 0 "$HC" horizon "$B/universe.csv" --seed 5 --years 10 --paths 2000
+"$PY" -c 'import json,sys; h=json.load(open(sys.argv[1]))["horizon"]; sys.exit(0 if h["horizon_periods"] == 120 and h["paths_from"].startswith("stationary bootstrap") else 1)' \
+	"$B/r/summary.json" || fail "the 96-period report's ending wealth is not 120 periods from the bootstrap"
 compare "$B" enough 0 "$HC" enough "$B/universe.csv" "${BOPTS[@]}" "${RULES[@]}"
 compare "$B" audit 1 "$HC" audit "$B/universe.csv" --holdings "$B/funds.csv" --sectors "$B/sectors.csv" \
 	"${BOPTS[@]}" "${POLICY[@]}"

@@ -143,6 +143,66 @@ static void test_htmlreport_sections_in_order(void **state)
 	release(&f);
 }
 
+/* The tail section sits between the rules and the funds: with the measures,
+ * its figure, the universe's own value and the table at the readable grid,
+ * and the reason ending wealth is left out; with --tail off, only why. */
+static void test_htmlreport_tail_section(void **state)
+{
+	struct fixture f;
+	struct report *tail;
+	struct report_table *t;
+	struct htmlreport_figure fig[3];
+	char *doc, *sec, *end;
+	size_t i;
+
+	(void)state;
+	build(&f);
+	tail = hc_report_alloc();
+	assert_non_null(tail);
+	assert_int_equal(hc_report_add_real(tail, "universe_es95", "es95", 0.0855, REPORT_STYLE_PERCENT), HC_OK);
+	t = hc_report_add_table(tail, "tail", NULL);
+	assert_non_null(t);
+	assert_int_equal(hc_report_table_add_column(t, "n", "holdings", REPORT_STYLE_PLAIN), HC_OK);
+	assert_int_equal(hc_report_table_add_column(t, "es95_mean", "es95", REPORT_STYLE_PERCENT), HC_OK);
+	for (i = 0; i < 4; i++) {
+		assert_int_equal(hc_report_table_add_row(t), HC_OK);
+		hc_report_table_set_int(t, i, 0, (long long[]){ 1, 7, 10, 139 }[i]);
+		hc_report_table_set_real(t, i, 1, 0.2035 / (double)(i + 1));
+	}
+	fig[0] = f.fig[0];
+	fig[1] = (struct htmlreport_figure){ "shortfall", "Expected shortfall", "Shortfall caption.", NULL, HTMLREPORT_TAIL };
+	fig[2] = (struct htmlreport_figure){ "wealth", "Ending wealth", "Wealth caption.", NULL, HTMLREPORT_HORIZON };
+	f.in.figures = fig;
+	f.in.nfigures = 3;
+	f.in.tail = tail;
+	f.in.horizon_years = 10;
+	f.in.horizon_why = "the history has gaps";
+	doc = write_doc(&f);
+	sec = strstr(doc, "<section id=\"tail\"");
+	assert_non_null(sec);
+	end = strstr(sec, "</section>");
+	assert_non_null(end);
+	*end = '\0';
+	assert_true(strstr(doc, "<section id=\"rules\"") < sec && strstr(end + 1, "<section id=\"funds\"") != NULL);
+	assert_non_null(strstr(sec, "<h2 id=\"h-tail\">Tail risk and long horizons</h2>"));
+	assert_non_null(strstr(sec, "<figure id=\"fig-shortfall\">"));
+	assert_non_null(strstr(sec, "<dd>8.55%</dd>"));
+	assert_non_null(strstr(sec, "<th scope=\"row\">10</th><td class=\"n\">6.78%</td>"));
+	assert_null(strstr(sec, "<th scope=\"row\">7</th>"));     /* off the readable grid */
+	assert_non_null(strstr(sec, "<h3>Ending wealth over 10 years</h3>\n<p>Left out: the history has gaps.</p>"));
+	assert_null(strstr(sec, "fig-wealth"));                     /* its figure goes with ending wealth only */
+	free(doc);
+	f.in.tail_off = 1;
+	f.in.tail_why = "`--tail off` was given";
+	doc = write_doc(&f);
+	sec = strstr(doc, "<section id=\"tail\"");
+	assert_non_null(sec);
+	assert_non_null(strstr(sec, "<p>Left out: `--tail off` was given.</p>\n</section>"));
+	free(doc);
+	hc_report_free(tail);
+	release(&f);
+}
+
 static void test_htmlreport_escapes_text(void **state)
 {
 	struct fixture f;
@@ -384,6 +444,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_htmlreport_sections_in_order),
+		cmocka_unit_test(test_htmlreport_tail_section),
 		cmocka_unit_test(test_htmlreport_escapes_text),
 		cmocka_unit_test(test_htmlreport_inlines_svg),
 		cmocka_unit_test(test_htmlreport_committee_tables),

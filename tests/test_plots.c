@@ -74,7 +74,7 @@ static FILE *open_in(const char *name)
 static void test_plots_exact_data_follows_the_closed_form(void **state)
 {
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented", NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented", NULL, NULL, NULL, 0, 0 };
 	char *buf = NULL, *line;
 	size_t len = 0, rows = 0, n;
 	double sd, share, te;
@@ -101,7 +101,7 @@ static void test_plots_exact_data_follows_the_closed_form(void **state)
 static void test_plots_formats_and_availability(void **state)
 {
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 
 	(void)state;
 	assert_int_equal(hc_plots_parse_format("svg"), PLOTS_SVG);
@@ -137,7 +137,7 @@ static void test_plots_risk_renders_a_png_of_the_stated_size(void **state)
 {
 	struct curve *c = make_curve();
 	struct rule_result rules[2];
-	struct plots_input in = { c, NULL, rules, 2, 0.02, NULL, "invented", NULL };
+	struct plots_input in = { c, NULL, rules, 2, 0.02, NULL, "invented", NULL, NULL, NULL, 0, 0 };
 	char gp[4200], png[4200];
 	unsigned char head[24];
 	struct hc_error err;
@@ -186,7 +186,7 @@ static void test_plots_funds_mark_a_failing_fund(void **state)
 	struct curve *c = make_curve();
 	struct audit_fund funds[2];
 	struct audit_result ar;
-	struct plots_input in = { c, NULL, NULL, 0, NAN, &ar, "invented", NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, &ar, "invented", NULL, NULL, NULL, 0, 0 };
 	char gp[4200], *buf = NULL, line[4400];
 	size_t len = 0, rows = 0, h;
 	double e, sd, x, y;
@@ -282,7 +282,7 @@ static void test_plots_script_allocation_failure(void **state)
 {
 	struct curve *c = make_curve();
 	struct rule_result rule;
-	struct plots_input in = { c, NULL, &rule, 1, 0.02, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, &rule, 1, 0.02, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 	struct hc_error err;
 	char *buf = NULL;
 	size_t len = 0;
@@ -314,7 +314,7 @@ static void rolling_ticks(size_t nwin, int months_apart, size_t *nticks, int *ye
 	struct rolling_window *w = hc_calloc(nwin, sizeof *w);
 	struct rolling_result r;
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 	char *buf = NULL, *tics, *p, labels[16][16], date[16];
 	size_t len = 0, j, k;
 	FILE *mem;
@@ -379,7 +379,7 @@ static void test_plots_rolling_rules_styled_apart(void **state)
 	struct rolling_window w[NW];
 	struct rolling_result r;
 	struct curve *c = make_curve();
-	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL };
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, NULL, NULL, NULL, NULL, 0, 0 };
 	char *buf = NULL, *p, seen[NR][128], date[16];
 	size_t len = 0, j, k, n = 0;
 	FILE *mem;
@@ -449,10 +449,137 @@ static void test_plots_rolling_date_ticks_by_span(void **state)
 	assert_true(yearly);
 }
 
+/* numpy's default linear quantile of x[0..n) (sorted here): position
+ * h = (n-1) q between the order statistics at floor(h) and floor(h)+1. */
+static double linear_quantile(double *x, size_t n, double q)
+{
+	double h = (double)(n - 1) * q, t;
+	size_t i, j, lo;
+
+	for (i = 1; i < n; i++)
+		for (j = i; j > 0 && x[j - 1] > x[j]; j--) {
+			t = x[j];
+			x[j] = x[j - 1];
+			x[j - 1] = t;
+		}
+	lo = (size_t)floor(h);
+	return lo + 1 < n ? x[lo] + (h - (double)lo) * (x[lo + 1] - x[lo]) : x[lo];
+}
+
+/*
+ * tail.dat: 100 times the mean and numpy's 5/50/95% quantiles of three
+ * portfolios' expected shortfall at each count (per period: no
+ * annualisation); horizon.dat: ending wealth and the lag share, a total loss
+ * (a 5% quantile of 0) drawn at the log axis's bottom; the three scripts,
+ * and the data files refused without their results.
+ */
+static void test_plots_tail_and_horizon(void **state)
+{
+	static const size_t sizes[] = { 1, 4 };
+	static const double es[2][3] = { { 0.2385, 0.1917, 0.3021 }, { 0.1102, 0.0987, 0.1213 } };
+	struct curve *c = make_curve();
+	struct plots_input in = { c, NULL, NULL, 0, NAN, NULL, "invented", NULL, NULL, NULL, 10.0, 120 };
+	struct hc_measures_curve *mc = NULL;
+	struct hc_horizon_result h;
+	struct hc_horizon_point pts[4];
+	double v[3 * 2 * HC_MEASURE_COUNT], uni[HC_MEASURE_COUNT], x[3], row[5], w[9];
+	char *buf = NULL, *line;
+	size_t len = 0, j, k, n = 0;
+	struct hc_error err;
+	FILE *mem;
+	int kind;
+
+	(void)state;
+	for (k = 0; k < 3 * 2 * HC_MEASURE_COUNT; k++)
+		v[k] = NAN;
+	for (k = 0; k < HC_MEASURE_COUNT; k++)
+		uni[k] = NAN;
+	for (k = 0; k < 3; k++)
+		for (j = 0; j < 2; j++)
+			v[(k * 2 + j) * HC_MEASURE_COUNT + HC_MEASURE_ES95] = es[j][k];
+	uni[HC_MEASURE_ES95] = 0.0855;
+	assert_int_equal(hc_measures_summarise(&mc, v, 3, sizes, 2, 1u << HC_MEASURE_ES95, uni, 12.0, &err), HC_OK);
+	assert_false(hc_plots_available(PLOTS_SHORTFALL, &in));
+	assert_int_equal(hc_plots_write_data(stdout, PLOTS_DATA_TAIL, &in, &err), HC_EUSAGE);
+	assert_int_equal(hc_plots_write_data(stdout, PLOTS_DATA_HORIZON, &in, &err), HC_EUSAGE);
+	in.tail = mc;
+	assert_true(hc_plots_available(PLOTS_SHORTFALL, &in));
+	assert_false(hc_plots_available(PLOTS_WEALTH, &in));
+	mem = open_memstream(&buf, &len);
+	assert_int_equal(hc_plots_write_data(mem, PLOTS_DATA_TAIL, &in, &err), HC_OK);
+	fclose(mem);
+	assert_non_null(strstr(buf, "percent of value lost in one month (per period, not annualised)"));
+	for (line = strtok(buf, "\n"); line; line = strtok(NULL, "\n")) {
+		if (line[0] == '#')
+			continue;
+		assert_int_equal(sscanf(line, "%lf %lf %lf %lf %lf", &row[0], &row[1], &row[2], &row[3], &row[4]), 5);
+		assert_true(n < 2 && row[0] == (double)sizes[n]);
+		memcpy(x, es[n], sizeof x);
+		/* 10 significant digits printed: rtol 1e-9 */
+		assert_true(fabs(row[1] - 100.0 * (x[0] + x[1] + x[2]) / 3.0) <= 1e-9 * row[1]);
+		assert_true(fabs(row[2] - 100.0 * linear_quantile(x, 3, 0.05)) <= 1e-9 * row[2]);
+		assert_true(fabs(row[3] - 100.0 * linear_quantile(x, 3, 0.50)) <= 1e-9 * row[3]);
+		assert_true(fabs(row[4] - 100.0 * linear_quantile(x, 3, 0.95)) <= 1e-9 * row[4]);
+		n++;
+	}
+	assert_int_equal(n, 2);
+	free(buf);
+
+	memset(&h, 0, sizeof h);
+	memset(pts, 0, sizeof pts);
+	h.periods = 120;
+	h.route = HC_HORIZON_WINDOWS;
+	h.paths = 2000;
+	h.nsizes = 2;
+	h.sizes = (size_t *)sizes;
+	h.pts = pts;
+	h.rate_wealth = NAN;
+	pts[0] = (struct hc_horizon_point){ 1.64, 0.02, 0.0, 1.0428, 5.0471, 0.653, 0.011 };    /* a total loss at 5% */
+	pts[1] = (struct hc_horizon_point){ 1.64, 0.02, 0.1172, 1.0428, 5.0471, 0.6616, 0.011 };
+	pts[2] = (struct hc_horizon_point){ 1.64, 0.01, 0.6630, 1.5266, 3.0064, 0.5277, 0.011 };
+	pts[3] = (struct hc_horizon_point){ 1.64, 0.01, 0.6961, 1.5435, 2.9158, 0.5538, 0.011 };
+	in.horizon = &h;
+	assert_true(hc_plots_available(PLOTS_WEALTH, &in) && hc_plots_available(PLOTS_LAGGING, &in));
+	buf = NULL;
+	mem = open_memstream(&buf, &len);
+	assert_int_equal(hc_plots_write_data(mem, PLOTS_DATA_HORIZON, &in, &err), HC_OK);
+	fclose(mem);
+	/* the axis: the 1-2-5 step below 0.1172/1.1 (0.1065) is 0.1, above 5.0471 * 1.1 is 10 */
+	assert_non_null(strstr(buf, "a quantile below 0.1 (the wealth axis's bottom: a total loss) is written as 0.1"));
+	line = strstr(buf, "\n1 ");
+	assert_non_null(line);
+	assert_int_equal(sscanf(line + 1, "%lf %lf %lf %lf %lf %lf %lf %lf %lf", &w[0], &w[1], &w[2], &w[3], &w[4], &w[5],
+				&w[6], &w[7], &w[8]), 9);
+	assert_true(w[1] == 0.1 && w[2] == 1.0428 && w[3] == 5.0471 && w[4] == 0.1172);
+	assert_true(fabs(w[7] - 65.3) < 1e-9 && fabs(w[8] - 66.16) < 1e-9);
+	free(buf);
+	for (kind = PLOTS_SHORTFALL; kind <= PLOTS_LAGGING; kind++) {
+		char cap[2048];
+
+		buf = NULL;
+		mem = open_memstream(&buf, &len);
+		assert_int_equal(hc_plots_write_script(mem, kind, &in, PLOTS_PNG, &err), HC_OK);
+		fclose(mem);
+		assert_non_null(strstr(buf, "set logscale x"));
+		assert_non_null(strstr(buf, kind == PLOTS_SHORTFALL ? "'tail.dat' using 1:3:5 with filledcurves"
+					    : kind == PLOTS_WEALTH ? "set yrange [0.1:10]" : "'horizon.dat' using 1:9"));
+		snprintf(cap, sizeof cap, "set output \"%s.svg\"", hc_plots_name(kind));   /* for report.html */
+		assert_non_null(strstr(buf, cap));
+		hc_plots_caption(kind, &in, cap, sizeof cap);
+		assert_non_null(strstr(cap, kind == PLOTS_SHORTFALL ? "(6 of the 120), per month and not annualised"
+					    : kind == PLOTS_WEALTH ? "the whole history, 120 months (one window"
+					    : "at most 1.12 percentage points"));
+		free(buf);
+	}
+	hc_measures_curve_free(mc);
+	hc_curve_free(c);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_plots_exact_data_follows_the_closed_form),
+		cmocka_unit_test(test_plots_tail_and_horizon),
 		cmocka_unit_test(test_plots_formats_and_availability),
 		cmocka_unit_test(test_plots_find_gnuplot_along_a_path),
 		cmocka_unit_test(test_plots_risk_renders_a_png_of_the_stated_size),

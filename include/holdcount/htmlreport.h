@@ -16,6 +16,9 @@
  *   universe        the data and their treatment
  *   curve           risk by holding count (figures and a readable table)
  *   rules           every rule's count with its 90% interval
+ *   tail            tail risk and long horizons: expected shortfall and
+ *                   drawdown by count, ending wealth and the chance of
+ *                   ending behind the benchmark (or why a part is left out)
  *   funds           the audited funds (with an audit)
  *   time            the count needed through time (or why it is left out)
  *   cautions        the cautions
@@ -38,7 +41,9 @@ extern "C" {
 enum htmlreport_place {
 	HTMLREPORT_CURVE = 0,
 	HTMLREPORT_FUNDS = 1,
-	HTMLREPORT_TIME = 2
+	HTMLREPORT_TIME = 2,
+	HTMLREPORT_TAIL = 3,       /* the tail measures' part of section "tail" */
+	HTMLREPORT_HORIZON = 4     /* its ending-wealth part */
 };
 
 struct htmlreport_figure {
@@ -61,6 +66,11 @@ struct htmlreport_input {
 	const struct report *rolling;  /* NULL = no rolling windows (rolling_why says why) */
 	const struct report *compare;  /* NULL = no previous report (compare.h) */
 	const char *rolling_why;
+	const struct report *tail;     /* NULL = no tail measures (tail_why says why) */
+	const struct report *horizon;  /* NULL = no ending wealth (horizon_why says why) */
+	const char *tail_why, *horizon_why;
+	int tail_off;                  /* the whole section was left out (tail_why says how) */
+	double horizon_years;
 	const char *holdings_file;
 	const struct htmlreport_figure *figures;
 	size_t nfigures;

@@ -7,8 +7,10 @@
  * the plots/ folder (one NAME.gp each) and built into the library (hc_plots_template); the parts that
  * depend on the figures (the plot command, tick marks, the floor) are filled
  * in here.  Figures in the data files are percent a year (annualised as the
- * curve is), printed with 10 significant digits and no dates or times, so
- * the same results give the same bytes.
+ * curve is), but for tail.dat (expected shortfall, percent of one period:
+ * a tail mean is not annualised) and horizon.dat (ending wealth of 1
+ * invested, and percent of portfolios); printed with 10 significant digits
+ * and no dates or times, so the same results give the same bytes.
  *
  * Labels are laid out here (plotlayout.h) so that no line strikes them:
  * each script fixes its frame in screen coordinates, and the data files
@@ -27,6 +29,8 @@
 #include "holdcount/audit.h"
 #include "holdcount/curve.h"
 #include "holdcount/error.h"
+#include "holdcount/horizon.h"
+#include "holdcount/measures.h"
 #include "holdcount/rolling.h"
 #include "holdcount/rules.h"
 
@@ -41,7 +45,10 @@ enum plots_kind {
 	PLOTS_TRACKING = 3,    /* expected tracking error by count, budget line */
 	PLOTS_FUNDS = 4,       /* audited funds on the risk curve */
 	PLOTS_ROLLING = 5,     /* count needed through time, per rolling window */
-	PLOTS_NKINDS = 6
+	PLOTS_SHORTFALL = 6,   /* expected shortfall 95% by count: mean, 5-95% band, the universe's own */
+	PLOTS_WEALTH = 7,      /* ending wealth by count: median and 5/95% quantiles, both weightings */
+	PLOTS_LAGGING = 8,     /* chance of ending behind the benchmark by count, both weightings */
+	PLOTS_NKINDS = 9
 };
 
 enum plots_data {
@@ -52,7 +59,10 @@ enum plots_data {
 	PLOTS_DATA_FUNDS = 3,   /* funds.dat: holdings, effective holdings, sd, passed, the name's
 				 * anchor and side (hc_plotlayout_choose), name */
 	PLOTS_DATA_ROLLING = 4, /* rolling.dat: window end date, each exact rule's count */
-	PLOTS_NDATA = 5
+	PLOTS_DATA_TAIL = 5,    /* tail.dat: n, expected shortfall 95% mean, 5%, 50%, 95% (percent a period) */
+	PLOTS_DATA_HORIZON = 6, /* horizon.dat: n, ending wealth 5/50/95% rebalanced then buy-and-hold,
+				 * the chance of lagging (percent) each way */
+	PLOTS_NDATA = 7
 };
 
 enum plots_format { PLOTS_PNG = 0, PLOTS_SVG = 1, PLOTS_PDF = 2 };
@@ -71,6 +81,10 @@ struct plots_input {
 	const struct audit_result *audit; /* NULL = no funds plot */
 	const char *universe_name;      /* shown in titles; NULL = none */
 	const struct rolling_result *rolling; /* NULL = no rolling plot */
+	const struct hc_measures_curve *tail; /* measures by count with es95; NULL = no shortfall plot */
+	const struct hc_horizon_result *horizon; /* NULL = no wealth and lagging plots */
+	double horizon_years;           /* the horizon asked for, in years (captions) */
+	size_t periods;                 /* the history's periods (captions); 0 = not said */
 };
 
 /* The template text of plots/NAME.gp, or NULL (defined in the generated
@@ -107,6 +121,11 @@ int hc_plots_write_script(FILE *fp, int kind, const struct plots_input *in, int 
 /* A caption line for summary.md: what the plot shows and how to read it
  * (static text or built into buf of size bytes; returns buf or static). */
 const char *hc_plots_caption(int kind, const struct plots_input *in, char *buf, size_t size);
+
+/* The period of a history of ppy periods a year, as a word: "month" (12),
+ * "quarter" (4), "week" (52), "day" (250 to 262), "year" (1), else
+ * "period". */
+const char *hc_plots_period_word(double ppy);
 
 /* Look for an executable "gnuplot" along the PATH given (the environment's
  * PATH when NULL).  Returns 1 and copies its path into buf (size bytes), or

@@ -19,6 +19,8 @@
 #include "holdcount/enough.h"
 #include "holdcount/error.h"
 #include "holdcount/holdings.h"
+#include "holdcount/horizon.h"
+#include "holdcount/measures.h"
 #include "holdcount/plots.h"
 #include "holdcount/report.h"
 #include "holdcount/reportdir.h"
@@ -37,6 +39,19 @@ extern "C" {
  * apart, enough for a line to show a drift). */
 #define REPORTSET_WINDOW_YEARS 5
 #define REPORTSET_WINDOW_MIN_SPANS 2
+
+/* The tail-and-horizon section unless told otherwise: the measures the
+ * curve's random portfolios carry besides the sd (expected shortfall at 95%
+ * and 99%, maximum drawdown; measures.h), and ending wealth (horizon.h)
+ * over ten years, a planning horizon a committee commonly states (this
+ * tool's choice; no single source), from 2000 paths a count: the plotted
+ * shares within about a percentage point (0.5/sqrt(2000) = 1.1 points, one
+ * Monte Carlo s.e. at most) for about 0.05 s on the demo's size
+ * (docs/performance.md). */
+#define REPORTSET_TAIL_MEASURES ((1u << HC_MEASURE_ES95) | (1u << HC_MEASURE_ES99) | \
+				 (1u << HC_MEASURE_MAX_DRAWDOWN))
+#define REPORTSET_HORIZON_YEARS 10.0
+#define REPORTSET_HORIZON_PATHS 2000
 
 /* Room for the path of gnuplot found on the PATH (Linux's PATH_MAX). */
 #define REPORTSET_GNUPLOT_PATH_MAX 4096
@@ -58,6 +73,13 @@ struct hc_reportset_options {
 	struct hc_progress progress;      /* stages and counted steps */
 	size_t step_months;               /* > 0: the windows step by calendar months (rolling.h), the
 	                                   * newest ending at the last period; 0: by `step` periods */
+	int tail;                         /* 1: the tail-and-horizon section (curve.paths random portfolios
+	                                   * carry tail_measures; ending wealth over horizon_years) */
+	unsigned tail_measures;           /* measures.h set; 0 = REPORTSET_TAIL_MEASURES (es95 is always in) */
+	double horizon_years;             /* > 0: ending wealth over this many years (windows of the history
+	                                   * when they fit, else a stationary bootstrap); 0: none */
+	size_t horizon_paths;             /* random portfolios (and paths) a count; 0 = REPORTSET_HORIZON_PATHS */
+	char tail_why[256];               /* why the section is left out, when tail is 0 */
 };
 
 /*
@@ -90,6 +112,11 @@ struct hc_reportset {
 	struct report *rep_compare;       /* what changed since o.previous (hc_reportset_write) */
 	char *svg[PLOTS_NKINDS];          /* the rendered plots as SVG, for report.html */
 	const struct report *rep_curve, *rep_enough;   /* into curve_run and enough */
+	const struct hc_measures_curve *tail; /* into curve_run; NULL when not computed (tail_why) */
+	struct report *rep_tail;          /* the measures by count: table "tail" (tail.csv) */
+	struct hc_horizon_result *horizon; /* NULL when not computed (horizon_why) */
+	char tail_why[256];               /* why the measures are left out; "" when computed */
+	char horizon_why[640];            /* why ending wealth is left out; "" when computed */
 	size_t window, step;
 	int rendered;                     /* gnuplot was found (hc_reportset_write) */
 	char gnuplot[REPORTSET_GNUPLOT_PATH_MAX]; /* its path */
@@ -101,7 +128,12 @@ struct hc_reportset {
  * apply the missing-data policy each; hc_universe_apply_missing makes src's
  * universe from it), required when opt->window is set; when given, the
  * universe report also counts the securities with a return in each year's
- * periods (table "alive").  opt->previous is read first
+ * periods (table "alive").  With opt->tail, the curve's random portfolios
+ * also carry the tail measures (rs->tail, rs->rep_tail; not with paths 0),
+ * and ending wealth by count is computed (hc_horizon_run, seeded with the
+ * curve's seed) over opt->horizon_years on a complete history; a history
+ * read period by period, horizon_years 0 or paths 0 leave a part out with
+ * the reason in rs->horizon_why or rs->tail_why.  opt->previous is read first
  * (HC_EIO naming it, before any analysis).  *out is new (hc_reportset_free)
  * or NULL on error: the analyses' errors.
  */
@@ -113,7 +145,7 @@ int hc_reportset_run(struct hc_reportset **out, const struct hc_source *src,
  * Write rs into the report folder rd (reportdir.h) and commit it: the plots'
  * data and scripts (rendered when gnuplot is on the PATH, else
  * README-plots.txt), curve.csv, enough.csv, audit.csv, audit-screens.csv,
- * audit-sectors.csv, audit-failures.csv, rolling.csv (the commands' CSVs),
+ * audit-sectors.csv, audit-failures.csv, rolling.csv, tail.csv, horizon.csv (the commands' CSVs),
  * summary.json, summary.md and report.html; with o.previous, the comparison
  * of its summary.json with the one just written (rs->rep_compare) as a
  * section of both documents.  HC_EIO, HC_ENOMEM, HC_EDATA (the previous
