@@ -64,6 +64,7 @@ void hc_reportset_free(struct hc_reportset *r)
 	hc_report_free(r->rep_compare);
 	hc_report_free(r->rep_tail);
 	hc_horizon_result_free(r->horizon);
+	hc_free(r->horizon_sizes);
 	hc_free(r->previous_json);
 	for (int k = 0; k < PLOTS_NKINDS; k++)
 		hc_free(r->svg[k]);
@@ -197,13 +198,34 @@ static int compute_horizon(struct hc_reportset *r, struct hc_error *err)
 		snprintf(r->horizon_why, sizeof r->horizon_why, "`--horizon 0` was given");
 		return HC_OK;
 	}
-	if (r->src->kind != HC_SOURCE_SERIES) {
-		snprintf(r->horizon_why, sizeof r->horizon_why, "the history has gaps (securities listed or delisted "
-			 "inside the sample) and is read period by period; ending wealth over a horizon is computed on "
-			 "complete histories only so far, and computed on the securities with no gap alone it would "
-			 "leave out those that failed (survivorship bias), so the report does not show it; `holdcount "
-			 "horizon UNIVERSE --missing complete` gives it on those securities, with that bias");
-		return HC_OK;
+	if (r->src->kind == HC_SOURCE_RAGGED) {
+		/* A history with gaps is followed in windows of its own dates only
+		 * (hc_horizon_run): the horizon must fit in the sample and the
+		 * counts stop at the fewest securities listed at a window's start. */
+		double hp = r->o.horizon_years * r->u->periods_per_year;
+		size_t h = hp >= 0.5 && hp <= 1e7 ? (size_t)llround(hp) : 0, bound, j;
+
+		if (h == 0 || h > r->u->t) {
+			snprintf(r->horizon_why, sizeof r->horizon_why, "the history has gaps (securities listed or "
+				 "delisted inside the sample), so ending wealth is followed in windows of its own dates, "
+				 "and %g years (%g periods) do not fit in its %zu periods; give a shorter `--horizon`",
+				 r->o.horizon_years, hp, r->u->t);
+			return HC_OK;
+		}
+		bound = hc_horizon_count_bound(r->u, h, NULL);
+		hc_free(r->horizon_sizes);
+		r->horizon_sizes = hc_malloc((r->o.nsizes ? r->o.nsizes : 1) * sizeof *r->horizon_sizes);
+		if (!r->horizon_sizes)
+			return hc_error(err, HC_ENOMEM, "out of memory for the horizon's counts");
+		r->horizon_nsizes = 0;
+		for (j = 0; j < r->o.nsizes; j++)
+			if (r->o.sizes[j] <= bound)
+				r->horizon_sizes[r->horizon_nsizes++] = r->o.sizes[j];
+		if (r->horizon_nsizes == 0) {
+			snprintf(r->horizon_why, sizeof r->horizon_why, "no count of the curve is at most the %zu "
+				 "securities listed at the start of every %zu-period window", bound, h);
+			return HC_OK;
+		}
 	}
 	hc_horizon_options_init(&ho);
 	ho.years = r->o.horizon_years;
@@ -213,6 +235,8 @@ static int compute_horizon(struct hc_reportset *r, struct hc_error *err)
 	ho.progress = r->o.progress;
 	snprintf(line, sizeof line, "ending wealth over %g years", ho.years);
 	stage(r, line);
+	if (r->horizon_sizes)
+		return hc_horizon_run(&r->horizon, r->src, r->horizon_sizes, r->horizon_nsizes, &ho, err);
 	return hc_horizon_run(&r->horizon, r->src, r->o.sizes, r->o.nsizes, &ho, err);
 }
 

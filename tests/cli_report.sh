@@ -58,15 +58,24 @@ grep -q 'each window of 24 periods (set with `--window`), one every 6 periods: 1
 
 # The tail-and-horizon section.  The demo's history has gaps (listings and
 # delistings): the tail measures are there, read period by period, and the
-# ending wealth is left out with the reason, in summary.md and summary.json.
+# ending wealth over 10 years follows windows of its own dates
+# (docs/horizon.md, "Histories with gaps"); a horizon longer than its 20
+# years cannot, and is left out with the reason, in summary.md and
+# summary.json.
 grep -q '^## Tail risk and long horizons$' "$T/a/summary.md" || fail "summary.md has no tail section"
 grep -q '^Beyond the standard deviation, for the same 1000 random portfolios per count as the curve (seed 1)' "$T/a/summary.md" ||
 	fail "summary.md's tail section does not say which random portfolios"
-grep -q '^Left out: the history has gaps (securities listed or delisted inside the sample)' "$T/a/summary.md" ||
-	fail "summary.md does not say why the demo has no ending wealth"
-ls "$T"/a/horizon.* "$T"/a/wealth.* "$T"/a/lagging.* >/dev/null 2>&1 && fail "the demo (with gaps) got ending-wealth files"
+for f in horizon.csv wealth.png lagging.png; do
+	[ -s "$T/a/$f" ] || fail "the demo (with gaps) lacks $f"
+done
+grep -q 'Paths: overlapping windows: each path a window of 120 consecutive periods, its start uniform over the 121 starts' "$T/a/summary.md" ||
+	fail "summary.md does not say the demo's paths are windows of its history"
+"$HC" report --demo -o "$T/hz30" "${FAST[@]}" --horizon 30 || fail "the demo with --horizon 30 exited $?"
+grep -q '^Left out: the history has gaps (securities listed or delisted inside the sample), so ending wealth is followed in windows of its own dates, and 30 years (360 periods) do not fit in its 240 periods' "$T/hz30/summary.md" ||
+	fail "summary.md does not say why the demo has no 30-year ending wealth"
+ls "$T"/hz30/horizon.* "$T"/hz30/wealth.* "$T"/hz30/lagging.* >/dev/null 2>&1 && fail "the demo with --horizon 30 got ending-wealth files"
 python3 -c 'import json,sys; d=json.load(open(sys.argv[1])); sys.exit(not (d["horizon"] is None and d["tail"]["horizon_left_out"].startswith("the history has gaps") and d["tail"]["ragged"] is True))' \
-	"$T/a/summary.json" || fail "summary.json does not say why the demo has no ending wealth"
+	"$T/hz30/summary.json" || fail "summary.json does not say why the demo has no 30-year ending wealth"
 grep -q '!\[Expected shortfall by holding count\](shortfall.png)' "$T/a/summary.md" || fail "summary.md does not embed shortfall.png"
 # A complete invented history of 150 months: ending wealth over the default
 # 10 years (120 months) from windows of it, its files and plots; --horizon 0
@@ -135,8 +144,8 @@ done
 grep -q 'gnuplot risk.gp' "$T/nognuplot/README-plots.txt" || fail "README-plots.txt does not say how to render"
 grep -q 'gnuplot risk.gp' "$T/nognuplot/summary.md" || fail "summary.md does not say how to render"
 # report.html is still written, each figure saying it was not rendered
-[ "$(grep -c 'role="img" aria-label="[^"]*">Not rendered: gnuplot was not found' "$T/nognuplot/report.html")" -eq 7 ] ||
-	fail "report.html without gnuplot does not say, for each of the 7 figures, that it was not rendered"
+[ "$(grep -c 'role="img" aria-label="[^"]*">Not rendered: gnuplot was not found' "$T/nognuplot/report.html")" -eq 9 ] ||
+	fail "report.html without gnuplot does not say, for each of the 9 figures, that it was not rendered"
 ls "$T"/nognuplot/*.png >/dev/null 2>&1 && fail "PNG files without gnuplot"
 (cd "$T/nognuplot" && for g in *.gp; do gnuplot "$g" 2>>"$T/render-err"; done)
 [ -s "$T/render-err" ] && fail "rendering the scripts by hand printed: $(head -3 "$T/render-err")"

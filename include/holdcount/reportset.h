@@ -117,6 +117,7 @@ struct hc_reportset {
 	struct hc_horizon_result *horizon; /* NULL when not computed (horizon_why) */
 	char tail_why[256];               /* why the measures are left out; "" when computed */
 	char horizon_why[640];            /* why ending wealth is left out; "" when computed */
+	size_t *horizon_sizes, horizon_nsizes; /* a history with gaps: the counts its windows allow */
 	size_t window, step;
 	int rendered;                     /* gnuplot was found (hc_reportset_write) */
 	char gnuplot[REPORTSET_GNUPLOT_PATH_MAX]; /* its path */
