@@ -83,7 +83,8 @@ static const struct cli_option report_own[] = {
 	  "docs/report.md), and ending wealth over --horizon years; off leaves it out", on_off_words, "on" },
 	{ "horizon", 0, CLI_REAL, RO(horizon), "H",
 	  "the horizon of the ending-wealth plots in years: windows of the history when H fits in it, else a "
-	  "stationary bootstrap; 0 leaves them out. Complete histories only: one with gaps gets the reason instead",
+	  "stationary bootstrap; 0 leaves them out. A history with gaps: windows of its own dates only (a longer H "
+	  "gets the reason instead)",
 	  NULL, "10" },
 	{ "horizon-paths", 0, CLI_COUNT, RO(horizon_paths), "K",
 	  "random portfolios (and paths) per count for the ending wealth; the time grows with K times the "
