@@ -660,7 +660,7 @@ static void md_curve(FILE *fp, const struct hc_reportset *r)
 
 /* What each rule asks, in a line a committee reader can follow; sources as
  * in docs/enough.md. */
-static const char *const rule_legend[RULES_COUNT] = {
+static const char *const rule_legend[] = {
 	"near-floor: the expected sd is within x of the floor, the sd no number of holdings gets below",
 	"marginal: one more holding lowers the expected sd by less than eps a year",
 	"band: the q-quantile of random portfolios' sd is within x of the floor, so even an unlucky "
@@ -679,7 +679,15 @@ static const char *const rule_legend[RULES_COUNT] = {
 	"at least x of the removable variance with probability at least q (gamma approximation from the "
 	"exact mean and spread)",
 	"alexeev-tapon-sampled: the same rule counted over sampled random portfolios",
+	"es95-near-floor: the mean expected shortfall (95%) of random portfolios is within x of the "
+	"equal-weight universe's own",
+	"es99-near-floor: the same at 99%",
+	"drawdown-near-floor: the mean maximum drawdown of random portfolios is within x of the "
+	"equal-weight universe's own",
+	"alexeev-tapon-es (after Alexeev & Tapon, 2014): a random portfolio removes at least x of the "
+	"removable expected shortfall (95%) with probability at least q",
 };
+_Static_assert(sizeof rule_legend / sizeof rule_legend[0] == RULES_COUNT, "a legend line per rule");
 
 static void md_rules(FILE *fp, const struct hc_reportset *r)
 {
