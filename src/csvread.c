@@ -598,3 +598,27 @@ const char *hc_csvread_quote(const char *s, size_t len, char *buf)
 	buf[o] = '\0';
 	return buf;
 }
+
+/* ASCII case folding by hand: strcasecmp follows the locale. */
+int hc_csvread_header_is(const char *s, size_t len, const char *want)
+{
+	size_t i, n = strlen(want);
+
+	while (len && (*s == ' ' || *s == '\t'))
+		s++, len--;
+	while (len && (s[len - 1] == ' ' || s[len - 1] == '\t'))
+		len--;
+	if (len != n)
+		return 0;
+	for (i = 0; i < n; i++) {
+		int a = (unsigned char)s[i], b = (unsigned char)want[i];
+
+		if (a >= 'A' && a <= 'Z')
+			a += 'a' - 'A';
+		if (b >= 'A' && b <= 'Z')
+			b += 'a' - 'A';
+		if (a != b)
+			return 0;
+	}
+	return 1;
+}

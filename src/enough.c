@@ -572,6 +572,18 @@ static int evaluate(struct hc_enough *e, const struct moments *mo, const struct 
 	return hc_rules_evaluate(&opt->rules, &in, e->rules, &e->nrules, err);
 }
 
+/* Results computed apart (sampled, on the measures) replace the
+ * placeholders hc_rules_evaluate left for the same rules. */
+static void replace_results(struct hc_enough *e, const struct rule_result *res, size_t n)
+{
+	size_t k, j;
+
+	for (k = 0; k < n; k++)
+		for (j = 0; j < e->nrules; j++)
+			if (e->rules[j].rule == res[k].rule)
+				e->rules[j] = res[k];
+}
+
 /* The sampled rules (band, lag-share, alexeev-tapon-sampled) by sampling (hc_rules_sampled stops at the
  * smallest stage of sizes that settles them) src's series, or (band only)
  * its matrix; their results replace the "needs sampled portfolios"
@@ -583,7 +595,7 @@ static int run_sampled(struct hc_enough *e, const struct hc_source *src,
 	const struct hc_strata_use *su = strata_given(opt) && !hc_source_matrix(src) ? opt->strata : NULL;
 	struct sampler_options so;
 	struct rule_result sr[3];
-	size_t n = 0, k, j;
+	size_t n = 0, j;
 	int rc;
 
 	hc_sampler_options_init(&so);
@@ -602,10 +614,7 @@ static int run_sampled(struct hc_enough *e, const struct hc_source *src,
 	hc_progress_end(&opt->progress);
 	if (rc)
 		return rc;
-	for (k = 0; k < n; k++)
-		for (j = 0; j < e->nrules; j++)
-			if (e->rules[j].rule == sr[k].rule)
-				e->rules[j] = sr[k];
+	replace_results(e, sr, n);
 	e->paths = opt->paths;
 	e->seed = opt->seed;
 	if (su && su->mode == SAMPLER_STRATA_CAP) {
@@ -629,7 +638,7 @@ static int run_measure_rules(struct hc_enough *e, const struct hc_source *src,
 {
 	struct sampler_options so;
 	struct rule_result mr[RULES_COUNT];
-	size_t n = 0, k, j, largest = 0;
+	size_t n = 0, largest = 0;
 	int rc;
 
 	if (!(opt->rules.selected & RULES_MEASURE_MASK))
@@ -647,10 +656,7 @@ static int run_measure_rules(struct hc_enough *e, const struct hc_source *src,
 	hc_progress_end(&opt->progress);
 	if (rc)
 		return rc;
-	for (k = 0; k < n; k++)
-		for (j = 0; j < e->nrules; j++)
-			if (e->rules[j].rule == mr[k].rule)
-				e->rules[j] = mr[k];
+	replace_results(e, mr, n);
 	e->paths = opt->paths;
 	if (largest > e->sampled_sizes)
 		e->sampled_sizes = largest;

@@ -613,10 +613,11 @@ static void universe(FILE *fp, const struct htmlreport_input *in)
 
 /* ---- the curve --------------------------------------------------------------------- */
 
-/* A row of the readable grid, or the last (N = M, *ctx). */
-static int readable(const struct report_table *t, size_t row, const void *ctx)
+/* A row whose count column `key` is on the readable grid, or is the last
+ * count (N = M, *ctx). */
+static int readable_by(const struct report_table *t, size_t row, const char *key, const void *ctx)
 {
-	const struct report_value *v = cell(t, row, "n");
+	const struct report_value *v = cell(t, row, key);
 	size_t k;
 
 	if (v->kind != REPORT_INT)
@@ -627,6 +628,11 @@ static int readable(const struct report_table *t, size_t row, const void *ctx)
 		if (v->integer == readable_grid[k])
 			return 1;
 	return 0;
+}
+
+static int readable(const struct report_table *t, size_t row, const void *ctx)
+{
+	return readable_by(t, row, "n", ctx);
 }
 
 static void curve(FILE *fp, const struct htmlreport_input *in)
@@ -685,17 +691,7 @@ static void rules(FILE *fp, const struct htmlreport_input *in)
 
 static int readable_holdings(const struct report_table *t, size_t row, const void *ctx)
 {
-	const struct report_value *v = cell(t, row, "holdings");
-	size_t k;
-
-	if (v->kind != REPORT_INT)
-		return 0;
-	if (v->integer == *(const long long *)ctx)
-		return 1;
-	for (k = 0; k < sizeof readable_grid / sizeof readable_grid[0]; k++)
-		if (v->integer == readable_grid[k])
-			return 1;
-	return 0;
+	return readable_by(t, row, "holdings", ctx);
 }
 
 static void tail_measures(FILE *fp, const struct htmlreport_input *in)

@@ -30,37 +30,13 @@ struct mvreader {
 	int have_v;
 };
 
-/* Header names compare ignoring ASCII case and surrounding blanks. */
-static int name_is(const char *s, size_t len, const char *want)
-{
-	size_t i, n = strlen(want);
-
-	while (len && (*s == ' ' || *s == '\t'))
-		s++, len--;
-	while (len && (s[len - 1] == ' ' || s[len - 1] == '\t'))
-		len--;
-	if (len != n)
-		return 0;
-	for (i = 0; i < n; i++) {
-		int a = (unsigned char)s[i], b = (unsigned char)want[i];
-
-		if (a >= 'A' && a <= 'Z')
-			a += 'a' - 'A';
-		if (b >= 'A' && b <= 'Z')
-			b += 'a' - 'A';
-		if (a != b)
-			return 0;
-	}
-	return 1;
-}
-
 static int on_header(struct mvreader *r, const struct csvread_field *f, struct hc_error *err)
 {
-	if (name_is(f->text, f->len, "id")) {
+	if (hc_csvread_header_is(f->text, f->len, "id")) {
 		if (r->id_col != NO_COLUMN)
 			return hc_error(err, HC_EDATA, "%s:%zu:%zu: a second 'id' column", r->name, f->line, f->column);
 		r->id_col = f->column;
-	} else if (name_is(f->text, f->len, "market_value")) {
+	} else if (hc_csvread_header_is(f->text, f->len, "market_value")) {
 		if (r->v_col != NO_COLUMN)
 			return hc_error(err, HC_EDATA, "%s:%zu:%zu: a second 'market_value' column", r->name, f->line,
 					f->column);

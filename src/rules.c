@@ -891,12 +891,42 @@ int hc_rules_alexeev_tapon_sampled(const struct rules_config *cfg, const struct 
 						      res, err);
 }
 
+/* The Alexeev & Tapon settling, shared by the variance and the expected
+ * shortfall forms: scanning down from the largest size, the rule holds while
+ * the share of sampled portfolios whose value (values[(k * nsizes + j) *
+ * stride + at]) is at most limit stays at least q; the count is the last
+ * size where it held, so it holds for good from there up. */
+static void settle_share_at_most(const struct rules_config *cfg, const struct sampler_result *r,
+				 const double *values, size_t stride, size_t at, double limit,
+				 struct rule_result *res)
+{
+	size_t j, k;
+
+	for (j = r->nsizes; j-- > 0;) {
+		size_t removed = 0;
+		double share;
+
+		if (!size_feasible(r, j))
+			continue;
+		for (k = 0; k < r->paths; k++)
+			removed += values[(k * r->nsizes + j) * stride + at] <= limit;
+		share = (double)removed / (double)r->paths;
+		if (!(share >= cfg->at_q))
+			break;
+		res->met = 1;
+		res->count = r->sizes[j];
+		res->value = share;
+	}
+	if (!res->met)
+		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
+	grid_note(res, r);
+}
+
 int hc_rules_alexeev_tapon_sampled_between(const struct rules_config *cfg, const struct sampler_result *r,
 					   double one_holding, double universe_variance,
 					   struct rule_result *res, struct hc_error *err)
 {
 	double limit;
-	size_t j, k;
 	int status;
 
 	if ((status = check_sampled(r, err)) != HC_OK)
@@ -908,24 +938,7 @@ int hc_rules_alexeev_tapon_sampled_between(const struct rules_config *cfg, const
 		snprintf(res->note, sizeof res->note, "undefined: no risk to remove (average variance not above the universe's)");
 		return HC_OK;
 	}
-	for (j = r->nsizes; j-- > 0;) {
-		size_t removed = 0;
-		double share;
-
-		if (!size_feasible(r, j))
-			continue;
-		for (k = 0; k < r->paths; k++)
-			removed += r->variance[k * r->nsizes + j] <= limit;
-		share = (double)removed / (double)r->paths;
-		if (!(share >= cfg->at_q))
-			break;
-		res->met = 1;
-		res->count = r->sizes[j];
-		res->value = share;
-	}
-	if (!res->met)
-		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
-	grid_note(res, r);
+	settle_share_at_most(cfg, r, r->variance, 1, 0, limit, res);
 	return HC_OK;
 }
 
@@ -1106,7 +1119,6 @@ int hc_rules_alexeev_tapon_es(const struct rules_config *cfg, const struct sampl
 			      struct rule_result *res, struct hc_error *err)
 {
 	double es1, esm, limit;
-	size_t j, k;
 	int status;
 
 	if ((status = check_measured(r, HC_MEASURE_ES95, err)) != HC_OK)
@@ -1127,24 +1139,7 @@ int hc_rules_alexeev_tapon_es(const struct rules_config *cfg, const struct sampl
 		return HC_OK;
 	}
 	limit = es1 - cfg->at_x * (es1 - esm);
-	for (j = r->nsizes; j-- > 0;) {
-		size_t removed = 0;
-		double share;
-
-		if (!size_feasible(r, j))
-			continue;
-		for (k = 0; k < r->paths; k++)
-			removed += r->measures_value[(k * r->nsizes + j) * HC_MEASURE_COUNT + HC_MEASURE_ES95] <= limit;
-		share = (double)removed / (double)r->paths;
-		if (!(share >= cfg->at_q))
-			break;
-		res->met = 1;
-		res->count = r->sizes[j];
-		res->value = share;
-	}
-	if (!res->met)
-		note_not_met(res, r->sizes[r->nsizes - 1], " sampled");
-	grid_note(res, r);
+	settle_share_at_most(cfg, r, r->measures_value, HC_MEASURE_COUNT, HC_MEASURE_ES95, limit, res);
 	return HC_OK;
 }
 

@@ -42,30 +42,6 @@ struct reader {
 	size_t row_label_column;
 };
 
-/* Header names compare ignoring ASCII case and surrounding blanks. */
-static int name_is(const char *s, size_t len, const char *want)
-{
-	size_t i, n = strlen(want);
-
-	while (len && (*s == ' ' || *s == '\t'))
-		s++, len--;
-	while (len && (s[len - 1] == ' ' || s[len - 1] == '\t'))
-		len--;
-	if (len != n)
-		return 0;
-	for (i = 0; i < n; i++) {
-		int a = (unsigned char)s[i], b = (unsigned char)want[i];
-
-		if (a >= 'A' && a <= 'Z')
-			a += 'a' - 'A';
-		if (b >= 'A' && b <= 'Z')
-			b += 'a' - 'A';
-		if (a != b)
-			return 0;
-	}
-	return 1;
-}
-
 static int grow(struct reader *r, struct hc_error *err)
 {
 	struct sectors *s = r->s;
@@ -96,9 +72,9 @@ static int on_field(void *ctx, const struct csvread_field *f, struct hc_error *e
 	int rc;
 
 	if (f->record == 0) {
-		if (r->id_col == NO_COLUMN && name_is(f->text, f->len, r->want_id))
+		if (r->id_col == NO_COLUMN && hc_csvread_header_is(f->text, f->len, r->want_id))
 			r->id_col = col;
-		else if (r->label_col == NO_COLUMN && name_is(f->text, f->len, r->want_label))
+		else if (r->label_col == NO_COLUMN && hc_csvread_header_is(f->text, f->len, r->want_label))
 			r->label_col = col;
 		r->ncols = f->column;
 		return HC_OK;
@@ -289,7 +265,7 @@ static int load(struct sectors **out, const char *name, const char *path,
 	r.s = hc_calloc(1, sizeof *r.s);
 	if (!r.s)
 		return hc_error(err, HC_ENOMEM, "%s: out of memory", name);
-	if (name_is(r.want_id, strlen(r.want_id), r.want_label)) {
+	if (hc_csvread_header_is(r.want_id, strlen(r.want_id), r.want_label)) {
 		rc = hc_error(err, HC_EUSAGE, "the id and label columns must differ; both are '%s'", r.want_id);
 		goto cleanup;
 	}

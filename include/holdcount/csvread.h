@@ -97,6 +97,12 @@ const char *hc_csvread_quote(const char *s, size_t len, char *buf);
 /* 1 when the cell means "missing": empty, NA, NaN, N/A, '.', null (any case). */
 int hc_csvread_is_missing(const char *s, size_t len);
 
+/*
+ * 1 when the field s[0..len) names the header want: ASCII letters compared
+ * without case, blanks (space, tab) around s ignored; else 0.
+ */
+int hc_csvread_header_is(const char *s, size_t len, const char *want);
+
 #ifdef __cplusplus
 }
 #endif
