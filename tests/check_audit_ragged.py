@@ -146,6 +146,7 @@ FUNDS = {
     "Ragged Fund S": (["ZR01", "ZR04", "ZR05", "ZR07"], [0.385, 0.245, 0.25, 0.12]),
     "Ragged Fund U": (["ZR02", "ZR03", "ZR04", "ZR05", "ZR06", "ZR07"], [0.2, 0.15, 0.2, 0.1, 0.2, 0.15]),
     "Ragged Fund T": (["ZR01", "ZR08"], [0.5, 0.5]),
+    "Ragged Fund V": (["ZR01", "ZR08", "ZQ99"], [0.4, 0.4, 0.2]),
 }
 
 
@@ -232,6 +233,15 @@ def main():
         # the same paths for the same counts and seed: every cell as without T
         if rows2.get(name) != rows.get(name):
             failures.append(f"{name}: its row changed when fund T was added")
+    # (2b) the pair and an id the universe lacks: the warning about the
+    # missing id says the risk figures are left out (not "the only id")
+    hpath3 = os.path.join(TMP, "check_audit_ragged_f3.csv")
+    write_funds(hpath3, ["Ragged Fund V"])
+    out = audit(upath, hpath3)
+    want_missing = ("holdcount audit: warning: 1 id of 'Ragged Fund V' is not in the universe (carrying 20% of its "
+                    "weight); its risk figures are left out for the reason below")
+    if out.returncode != 10 or want_missing not in out.stderr or "'ZR01' and 'ZR08'" not in out.stderr:
+        failures.append(f"fund V: exit {out.returncode}, stderr {out.stderr.strip()!r}")
     doc = json.loads(audit(upath, hpath2, fmt="json").stdout)
     tj = [f for f in doc["funds"] if f["fund"] == "Ragged Fund T"][0]
     if tj["sd"] is not None or tj["equivalent_count"] is not None or tj["risk_matrix_repaired"] is not None:

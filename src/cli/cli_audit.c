@@ -212,10 +212,11 @@ void cli_audit_say_missing(const char *cmd, const struct audit_result *res)
 			continue;
 		}
 		said++;
-		if (af->risk_known)
+		if (af->risk_known || af->risk_unpaired)
 			fprintf(stderr, "holdcount %s: warning: %zu id%s of '%s' %s not in the universe (carrying "
-				"%.3g%% of its weight); its risk figures use the rest\n", cmd, n, n == 1 ? "" : "s",
-				af->name, n == 1 ? "is" : "are", 100 * af->missing_weight);
+				"%.3g%% of its weight); %s\n", cmd, n, n == 1 ? "" : "s",
+				af->name, n == 1 ? "is" : "are", 100 * af->missing_weight,
+				af->risk_known ? "its risk figures use the rest" : "its risk figures are left out for the reason below");
 		else if (n == 1)
 			fprintf(stderr, "holdcount %s: warning: the only id of '%s' is not in the universe; it has "
 				"no risk figures\n", cmd, af->name);
