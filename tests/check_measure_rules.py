@@ -47,7 +47,6 @@ the tool's own portfolios, and a direction from the literature.
 Environment: HOLDCOUNT, HOLDCOUNT_LIBRARY, HOLDCOUNT_TEST_TMP.
 """
 import ctypes
-import datetime
 import itertools
 import json
 import math
@@ -72,21 +71,12 @@ def check(what, ok, detail=""):
         failures.append("%s %s" % (what, detail))
 
 
-def month_ends(n):
-    out, y, m = [], 2006, 1
-    for _ in range(n):
-        nxt = datetime.date(y + (m == 12), m % 12 + 1, 1)
-        out.append((nxt - datetime.timedelta(days=1)).isoformat())
-        y, m = nxt.year, nxt.month
-    return out
-
-
 def write(path, r):
     """r (NaN for a gap) as a wide CSV; returns the values as read back."""
     t, m = r.shape
     with open(path, "w") as fp:
         fp.write("date," + ",".join("LQX7%02d" % (i + 1) for i in range(m)) + "\n")
-        for k, d in enumerate(month_ends(t)):
+        for k, d in enumerate(hclibrary.month_ends(2006, t)):
             fp.write(d + "," + ",".join("" if math.isnan(x) else repr(float(x)) for x in r[k]) + "\n")
     return np.array([[float(x) if x else math.nan for x in line.split(",")[1:]]
                      for line in open(path).read().split("\n")[1:] if line])

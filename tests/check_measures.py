@@ -36,7 +36,6 @@ Environment: HOLDCOUNT (the binary), HOLDCOUNT_LIBRARY (libholdcount.so),
 HOLDCOUNT_TEST_TMP (scratch dir).
 """
 import ctypes
-import datetime
 import itertools
 import json
 import math
@@ -66,20 +65,11 @@ def close(what, got, want, rel=1e-9, scale=1e-12):
           "got %r want %.17g" % (got, want))
 
 
-def month_ends(n):
-    out, y, m = [], 2003, 1
-    for _ in range(n):
-        nxt = datetime.date(y + (m == 12), m % 12 + 1, 1)
-        out.append((nxt - datetime.timedelta(days=1)).isoformat())
-        y, m = nxt.year, nxt.month
-    return out
-
-
 def write(path, r):
     t, m = r.shape
     with open(path, "w") as fp:
         fp.write("date," + ",".join("LIR9%02d" % (i + 1) for i in range(m)) + "\n")
-        for k, d in enumerate(month_ends(t)):
+        for k, d in enumerate(hclibrary.month_ends(2003, t)):
             fp.write(d + "," + ",".join(repr(float(x)) for x in r[k]) + "\n")
     return np.array([[float(x) for x in line.split(",")[1:]] for line in open(path).read().split("\n")[1:] if line])
 
@@ -226,7 +216,7 @@ def write_ragged(path, r):
     t, m = r.shape
     with open(path, "w") as fp:
         fp.write("date," + ",".join("LIR9%02d" % (i + 1) for i in range(m)) + "\n")
-        for k, d in enumerate(month_ends(t)):
+        for k, d in enumerate(hclibrary.month_ends(2003, t)):
             fp.write(d + "," + ",".join("" if math.isnan(x) else repr(float(x)) for x in r[k]) + "\n")
     return np.array([[float(x) if x else math.nan for x in line.split(",")[1:]]
                      for line in open(path).read().split("\n")[1:] if line])

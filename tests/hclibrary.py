@@ -8,6 +8,7 @@ detection off: the interpreter's own allocations are not the library's),
 then returns the library.  Environment: HOLDCOUNT_LIBRARY.
 """
 import ctypes
+import datetime
 import os
 import subprocess
 import sys
@@ -33,3 +34,14 @@ def load():
         env["ASAN_OPTIONS"] = (env.get("ASAN_OPTIONS", "") + ":detect_leaks=0").lstrip(":")
         os.execve(sys.executable, [sys.executable] + sys.argv, env)
     return ctypes.CDLL(path)
+
+
+def month_ends(year, n):
+    """n month-end dates (ISO) from January of year, as the tests' invented
+    monthly histories are dated."""
+    out, y, m = [], year, 1
+    for _ in range(n):
+        nxt = datetime.date(y + (m == 12), m % 12 + 1, 1)
+        out.append((nxt - datetime.timedelta(days=1)).isoformat())
+        y, m = nxt.year, nxt.month
+    return out
